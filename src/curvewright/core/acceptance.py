@@ -1,0 +1,343 @@
+"""Acceptance profiles: named, sourced rules for judging a calibration's standards and QC samples.
+
+Profiles are data (JSON files in ``profiles/``, or the laboratory's own), never code. Each names its
+source. A standard passes when |%RE| ≤ its tolerance (the lowest and highest non-zero levels may
+have their own); a level passes when enough of its replicates pass; the calibration passes when
+enough standards and levels pass. Standards of zero nominal concentration (blanks used as a point)
+are not judged, and excluded standards count as not passing — an exclusion never improves the
+fraction of standards that pass (common practice in bioanalytical review).
+
+Fractions are kept exact ("2/3", "3/4") so that 4 passing QCs out of 6 meet a two-thirds rule.
+"""
+
+from __future__ import annotations
+
+import json
+from dataclasses import dataclass, replace
+from fractions import Fraction
+from importlib import resources
+from pathlib import Path
+from typing import TYPE_CHECKING, Any, Mapping
+
+import numpy as np
+
+from ._arrays import FloatArray, as_finite_vector, frozen
+from .errors import ProfileError
+from .levels import group_levels
+
+if TYPE_CHECKING:  # pragma: no cover
+    from .calibration import Calibration
+
+PROFILE_FORMAT = "curvewright-acceptance-profile/1"
+_BOUNDARY = 1e-9
+"""Allowance (in % points) so that a back-calculated error of exactly the limit is not failed by round-off."""
+
+
+@dataclass(frozen=True)
+class StandardRules:
+    tolerance_percent: float
+    lowest_level_tolerance_percent: float
+    highest_level_tolerance_percent: float
+    min_fraction_passing: Fraction
+    min_levels: int
+    min_levels_passing: int
+    min_fraction_passing_per_level: Fraction
+
+
+@dataclass(frozen=True)
+class QcRules:
+    tolerance_percent: float
+    min_fraction_passing: Fraction
+    min_fraction_passing_per_level: Fraction
+
+
+@dataclass(frozen=True)
+class AcceptanceVerdict:
+    """Outcome of judging standards (or QC samples) against a profile.
+
+    ``passing`` has one entry per item judged (False for zero-nominal standards, which are not
+    judged: see ``judged``); ``reasons`` says, check by check, what passed and what did not.
+    """
+
+    profile: str
+    passed: bool
+    reasons: tuple[str, ...]
+    passing: np.ndarray
+    judged: np.ndarray
+    tolerance_percent: FloatArray
+    relative_error: FloatArray
+
+
+@dataclass(frozen=True)
+class AcceptanceProfile:
+    """A named set of acceptance rules with its source."""
+
+    id: str
+    name: str
+    source: str
+    standards: StandardRules
+    qc: QcRules
+
+    # --- construction ---------------------------------------------------------------------------
+    @classmethod
+    def from_mapping(cls, data: Mapping[str, Any], origin: str = "profile") -> "AcceptanceProfile":
+        """Build a profile from parsed JSON, naming the field of any problem."""
+        if not isinstance(data, Mapping):
+            raise ProfileError(f"{origin}: expected a JSON object at the top level.")
+        if data.get("format") != PROFILE_FORMAT:
+            raise ProfileError(f"{origin}: 'format' must be {PROFILE_FORMAT!r}, found {data.get('format')!r}.")
+        text = {key: _text(data, key, origin) for key in ("id", "name", "source")}
+        s = _section(data, "standards", origin)
+        q = _section(data, "qc", origin)
+        where = f"{origin} standards"
+        standards = StandardRules(
+            tolerance_percent=_percent(s, "tolerance_percent", where),
+            lowest_level_tolerance_percent=_percent(s, "lowest_level_tolerance_percent", where),
+            highest_level_tolerance_percent=_percent(s, "highest_level_tolerance_percent", where),
+            min_fraction_passing=_fraction(s, "min_fraction_passing", where),
+            min_levels=_count(s, "min_levels", where),
+            min_levels_passing=_count(s, "min_levels_passing", where),
+            min_fraction_passing_per_level=_fraction(s, "min_fraction_passing_per_level", where),
+        )
+        where = f"{origin} qc"
+        qc = QcRules(
+            tolerance_percent=_percent(q, "tolerance_percent", where),
+            min_fraction_passing=_fraction(q, "min_fraction_passing", where),
+            min_fraction_passing_per_level=_fraction(q, "min_fraction_passing_per_level", where),
+        )
+        return cls(standards=standards, qc=qc, **text)
+
+    def with_limits(
+        self,
+        tolerance_percent: float | None = None,
+        lowest_level_tolerance_percent: float | None = None,
+        highest_level_tolerance_percent: float | None = None,
+        name: str | None = None,
+    ) -> "AcceptanceProfile":
+        """A copy with the laboratory's own tolerances; the name says the limits were changed."""
+        changes = {
+            k: float(v)
+            for k, v in {
+                "tolerance_percent": tolerance_percent,
+                "lowest_level_tolerance_percent": lowest_level_tolerance_percent,
+                "highest_level_tolerance_percent": highest_level_tolerance_percent,
+            }.items()
+            if v is not None
+        }
+        for key, value in changes.items():
+            if not (0 < value < 1000):
+                raise ProfileError(f"{key}: {value!r} must be a percentage above 0.")
+        label = ", ".join(f"{k.replace('_', ' ')} {v:g}" for k, v in changes.items())
+        return replace(
+            self,
+            standards=replace(self.standards, **changes),
+            name=name or (f"{self.name} (laboratory limits: {label})" if label else self.name),
+        )
+
+    def to_mapping(self) -> dict[str, Any]:
+        """The profile as JSON-ready data (the inverse of :meth:`from_mapping`)."""
+        def plain(rules: object) -> dict[str, Any]:
+            return {k: (str(v) if isinstance(v, Fraction) else v) for k, v in vars(rules).items()}
+
+        return {
+            "format": PROFILE_FORMAT,
+            "id": self.id,
+            "name": self.name,
+            "source": self.source,
+            "standards": plain(self.standards),
+            "qc": plain(self.qc),
+        }
+
+    # --- judging --------------------------------------------------------------------------------
+    def evaluate(self, cal: "Calibration", excluded: int = 0) -> AcceptanceVerdict:
+        """Judge the back-calculated standards of ``cal``.
+
+        ``excluded`` is the number of non-zero standards the analyst excluded from this fit; they
+        count as not passing.
+        """
+        if excluded < 0:
+            raise ProfileError(f"excluded: {excluded!r}; the number of excluded standards cannot be negative.")
+        rules = self.standards
+        x = cal.concentration
+        re = cal.relative_error
+        judged = x != 0
+        levels = cal.levels
+        nonzero_levels = np.flatnonzero(levels.concentration != 0)
+        tol = np.full(x.size, rules.tolerance_percent)
+        if nonzero_levels.size:
+            low, high = nonzero_levels[0], nonzero_levels[-1]
+            tol[levels.index == high] = rules.highest_level_tolerance_percent
+            tol[levels.index == low] = rules.lowest_level_tolerance_percent
+        with np.errstate(invalid="ignore"):
+            passing = judged & np.isfinite(re) & (np.abs(re) <= tol + _BOUNDARY)
+
+        reasons: list[str] = []
+        ok = True
+        n_judged = int(judged.sum()) + excluded
+        n_pass = int(passing.sum())
+        if n_judged == 0:
+            raise ProfileError("no standard of non-zero concentration to judge.")
+        frac_ok = Fraction(n_pass, n_judged) >= rules.min_fraction_passing
+        ok &= frac_ok
+        reasons.append(
+            f"{'pass' if frac_ok else 'FAIL'}: {n_pass} of {n_judged} standards within limits "
+            f"(±{rules.tolerance_percent:g} %, ±{rules.lowest_level_tolerance_percent:g} % at the lowest "
+            f"level, ±{rules.highest_level_tolerance_percent:g} % at the highest); "
+            f"{_percent_text(rules.min_fraction_passing)} required"
+            + (f"; {excluded} excluded standard(s) counted as not passing" if excluded else "")
+        )
+        level_pass = []
+        for j in nonzero_levels:
+            at = levels.index == j
+            level_pass.append(Fraction(int(passing[at].sum()), int(at.sum())) >= rules.min_fraction_passing_per_level)
+        n_levels = int(nonzero_levels.size)
+        n_levels_pass = int(sum(level_pass))
+        levels_ok = n_levels >= rules.min_levels
+        ok &= levels_ok
+        reasons.append(
+            f"{'pass' if levels_ok else 'FAIL'}: {n_levels} non-zero concentration levels; at least "
+            f"{rules.min_levels} required"
+        )
+        passing_levels_ok = n_levels_pass >= rules.min_levels_passing
+        ok &= passing_levels_ok
+        reasons.append(
+            f"{'pass' if passing_levels_ok else 'FAIL'}: {n_levels_pass} levels pass (a level passes with "
+            f"{_percent_text(rules.min_fraction_passing_per_level)} of its standards within limits); at "
+            f"least {rules.min_levels_passing} required"
+        )
+        if level_pass and not level_pass[0]:
+            reasons.append(
+                f"note: the lowest level ({levels.concentration[nonzero_levels[0]]:g}) fails; the "
+                "quantitation range would have to start at the next passing level"
+            )
+        if len(level_pass) > 1 and not level_pass[-1]:
+            reasons.append(
+                f"note: the highest level ({levels.concentration[nonzero_levels[-1]]:g}) fails; the "
+                "quantitation range would have to end at the previous passing level"
+            )
+        return AcceptanceVerdict(
+            profile=self.name,
+            passed=bool(ok),
+            reasons=tuple(reasons),
+            passing=frozen(passing),
+            judged=frozen(judged),
+            tolerance_percent=frozen(tol),
+            relative_error=re,
+        )
+
+    def evaluate_qc(self, nominal: object, found: object) -> AcceptanceVerdict:
+        """Judge QC samples: found concentrations against their nominal values (arrays of shape (k,))."""
+        x = as_finite_vector(nominal, "QC nominal concentration", ProfileError, item="QC sample")
+        y = as_finite_vector(found, "QC found concentration", ProfileError, item="QC sample")
+        if x.size != y.size or x.size == 0:
+            raise ProfileError(f"QC samples: {x.size} nominal values and {y.size} results; give one of each per QC.")
+        bad = np.flatnonzero(x <= 0)
+        if bad.size:
+            raise ProfileError(f"QC nominal concentration: QC sample {int(bad[0]) + 1} has {x[bad[0]]:g}; it must be above zero.")
+        rules = self.qc
+        re = 100.0 * (y - x) / x
+        passing = np.abs(re) <= rules.tolerance_percent + _BOUNDARY
+        levels = group_levels(x)
+        n_pass = int(passing.sum())
+        overall = Fraction(n_pass, x.size) >= rules.min_fraction_passing
+        reasons = [
+            f"{'pass' if overall else 'FAIL'}: {n_pass} of {x.size} QC samples within ±{rules.tolerance_percent:g} %; "
+            f"{_percent_text(rules.min_fraction_passing)} required"
+        ]
+        ok = overall
+        for j, level in enumerate(levels.concentration):
+            at = levels.index == j
+            k_pass, k = int(passing[at].sum()), int(at.sum())
+            level_ok = Fraction(k_pass, k) >= rules.min_fraction_passing_per_level
+            ok &= level_ok
+            reasons.append(
+                f"{'pass' if level_ok else 'FAIL'}: QC level {level:g}: {k_pass} of {k} within limits; "
+                f"{_percent_text(rules.min_fraction_passing_per_level)} required"
+            )
+        return AcceptanceVerdict(
+            profile=self.name,
+            passed=bool(ok),
+            reasons=tuple(reasons),
+            passing=frozen(passing),
+            judged=frozen(np.ones(x.size, dtype=bool)),
+            tolerance_percent=frozen(np.full(x.size, rules.tolerance_percent)),
+            relative_error=frozen(re),
+        )
+
+
+def available_profiles() -> tuple[str, ...]:
+    """Ids of the profiles shipped with Curvewright."""
+    ids = []
+    for entry in resources.files(__package__).joinpath("profiles").iterdir():
+        if entry.name.endswith(".json"):
+            ids.append(json.loads(entry.read_text(encoding="utf-8"))["id"])
+    return tuple(sorted(ids))
+
+
+def load_profile(profile: str | Path) -> AcceptanceProfile:
+    """Load a shipped profile by id (e.g. ``"ich-m10-chromatographic"``) or a profile file by path."""
+    path = Path(profile)
+    if path.suffix == ".json" and path.exists():
+        try:
+            data = json.loads(path.read_text(encoding="utf-8"))
+        except (OSError, UnicodeDecodeError, json.JSONDecodeError) as exc:
+            raise ProfileError(f"{path}: cannot read the profile ({exc}).") from None
+        return AcceptanceProfile.from_mapping(data, str(path))
+    for entry in resources.files(__package__).joinpath("profiles").iterdir():
+        if entry.name.endswith(".json"):
+            data = json.loads(entry.read_text(encoding="utf-8"))
+            if data.get("id") == str(profile):
+                return AcceptanceProfile.from_mapping(data, entry.name)
+    raise ProfileError(
+        f"acceptance profile: {str(profile)!r} is neither a profile file nor one of "
+        f"{', '.join(available_profiles())}."
+    )
+
+
+def _section(data: Mapping[str, Any], key: str, origin: str) -> Mapping[str, Any]:
+    value = data.get(key)
+    if not isinstance(value, Mapping):
+        raise ProfileError(f"{origin}: '{key}' must be an object of rules.")
+    return value
+
+
+def _text(data: Mapping[str, Any], key: str, origin: str) -> str:
+    value = data.get(key)
+    if not isinstance(value, str) or not value.strip():
+        raise ProfileError(f"{origin}: '{key}' must be non-empty text.")
+    return value
+
+
+def _percent(data: Mapping[str, Any], key: str, where: str) -> float:
+    value = data.get(key)
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not (0 < value < 1000):
+        raise ProfileError(f"{where}: '{key}' must be a percentage above 0, found {value!r}.")
+    return float(value)
+
+
+def _count(data: Mapping[str, Any], key: str, where: str) -> int:
+    value = data.get(key)
+    if isinstance(value, bool) or not isinstance(value, int) or value < 0:
+        raise ProfileError(f"{where}: '{key}' must be a whole number ≥ 0, found {value!r}.")
+    return value
+
+
+def _fraction(data: Mapping[str, Any], key: str, where: str) -> Fraction:
+    value = data.get(key)
+    try:
+        if isinstance(value, bool):
+            raise TypeError
+        fraction = Fraction(value) if isinstance(value, str) else Fraction(str(value))
+    except (TypeError, ValueError, ZeroDivisionError):
+        raise ProfileError(f"{where}: '{key}' must be a fraction such as \"3/4\" or 0.75, found {value!r}.") from None
+    if not (0 <= fraction <= 1):
+        raise ProfileError(f"{where}: '{key}' must lie between 0 and 1, found {value!r}.")
+    return fraction
+
+
+def _percent_text(fraction: Fraction) -> str:
+    if fraction == 1:
+        return "all"
+    if fraction.denominator in (3, 6):
+        return f"at least {fraction.numerator}/{fraction.denominator}"
+    return f"at least {float(fraction) * 100:g} %"

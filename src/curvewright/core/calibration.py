@@ -1,0 +1,378 @@
+"""Fitting a calibration curve to standards, and the immutable result every view reads.
+
+``fit(concentration, response, model, weighting)`` fits by weighted least squares (QR on a centred,
+scaled basis; see :mod:`.least_squares` and :mod:`.models`) and returns a :class:`Calibration` that
+answers everything the plot, the tables, the command line and the workbook need.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
+
+import numpy as np
+from scipy import stats
+
+from ._arrays import FloatArray, as_finite_vector, frozen
+from .errors import CalibrationInputError
+from .influence import Influence, InfluenceFlag, measure_influence
+from .inverse import Quantitation, quantify, solve_z
+from .lack_of_fit import LackOfFit, lack_of_fit_test
+from .least_squares import solve_weighted
+from .levels import DEFAULT_LEVEL_TOLERANCE, Levels, group_levels
+from .models import Basis, Model, make_basis
+from .weighting import WeightModel, Weighting, make_weights
+
+if TYPE_CHECKING:  # pragma: no cover
+    from .acceptance import AcceptanceProfile, AcceptanceVerdict
+    from .limits import DetectionLimits
+
+
+@dataclass(frozen=True, eq=False)
+class Calibration:
+    """A fitted calibration curve. Immutable: every array is read-only.
+
+    Units: concentrations in the standards' concentration unit, responses in the instrument's
+    response unit; ``relative_error`` in percent. Arrays named per standard have shape (n,), in
+    the order the standards were given.
+
+    Attributes
+    ----------
+    coefficients : array of shape (degree + 1,)
+        b0, b1[, b2] in ascending powers of x. The proportional model reports b0 = 0 (fixed).
+    covariance, standard_errors
+        Covariance matrix and standard errors of ``coefficients`` (zero for a fixed b0).
+    residual_sd : float
+        s = √(Σwᵢ(yᵢ − ŷᵢ)²/(n − p)), in response units because the weights sum to n.
+    df_residual : int
+        n − p.
+    r_squared, adjusted_r_squared : float
+        1 − SSE/SST with SST = Σwᵢ(yᵢ − ȳ_w)², adjusted by (n − 1)/(n − p). Without an intercept
+        (proportional model) SST = Σwᵢyᵢ² and the adjustment is n/(n − p), as is customary for
+        regression through the origin.
+    leverage, studentized_residuals, cooks_distance
+        Influence of each standard (see :mod:`.influence`); ``influence_flags`` names what stands out.
+    back_calculated, relative_error
+        Each standard read back through the curve, and 100·(found − nominal)/nominal. A
+        zero-concentration standard has no relative error (NaN; see ``relative_error_note``).
+    lack_of_fit : LackOfFit
+        The pure-error F-test, or the reason it could not be made.
+    """
+
+    model: Model
+    weighting: Weighting
+    concentration: FloatArray
+    response: FloatArray
+    levels: Levels
+    weight_model: WeightModel
+    basis: Basis
+    z_coefficients: FloatArray
+    z_covariance: FloatArray
+    coefficients: FloatArray
+    covariance: FloatArray
+    standard_errors: FloatArray
+    residual_sd: float
+    df_residual: int
+    r_squared: float
+    adjusted_r_squared: float
+    fitted: FloatArray
+    residuals: FloatArray
+    influence: Influence
+    lack_of_fit: LackOfFit
+    back_calculated: FloatArray
+    relative_error: FloatArray
+    quadratic_branch: int = 0
+    vertex_z: float | None = None
+    notes: tuple[str, ...] = field(default=())
+
+    # --- plain views of the result --------------------------------------------------------------
+    @property
+    def n_standards(self) -> int:
+        return int(self.concentration.size)
+
+    @property
+    def n_parameters(self) -> int:
+        return self.model.n_parameters
+
+    @property
+    def weights(self) -> FloatArray:
+        """Weights of the standards, scaled so that they sum to n."""
+        return self.weight_model.weights
+
+    @property
+    def leverage(self) -> FloatArray:
+        return self.influence.leverage
+
+    @property
+    def studentized_residuals(self) -> FloatArray:
+        """Externally studentized (deleted) residuals; NaN only where leverage is 1 (flagged)."""
+        return self.influence.studentized_residuals
+
+    @property
+    def cooks_distance(self) -> FloatArray:
+        """Cook's distance; NaN only where leverage is 1 (flagged ``DETERMINES_FIT``)."""
+        return self.influence.cooks_distance
+
+    @property
+    def influence_flags(self) -> tuple[tuple[InfluenceFlag, ...], ...]:
+        return self.influence.flags
+
+    @property
+    def calibrated_range(self) -> tuple[float, float]:
+        """Lowest and highest standard concentration."""
+        return float(self.concentration.min()), float(self.concentration.max())
+
+    @property
+    def vertex(self) -> float | None:
+        """Concentration at which a quadratic turns over (None for a straight line)."""
+        if self.vertex_z is None:
+            return None
+        return self.basis.centre + self.basis.scale * self.vertex_z
+
+    @property
+    def sum_abs_relative_error(self) -> float:
+        """Σ|%RE| over the standards with non-zero nominal concentration (and a solution)."""
+        values = self.relative_error[np.isfinite(self.relative_error)]
+        return float(np.sum(np.abs(values)))
+
+    @property
+    def relative_error_note(self) -> str | None:
+        zero = int(np.count_nonzero(self.concentration == 0))
+        if zero:
+            return f"{zero} standard(s) of zero nominal concentration have no relative error"
+        return None
+
+    @property
+    def sse(self) -> float:
+        """Weighted residual sum of squares Σwᵢ(yᵢ − ŷᵢ)²."""
+        return float(self.residual_sd**2 * self.df_residual)
+
+    def equation(self, digits: int = 10) -> str:
+        """The curve as text, coefficients to ``digits`` significant figures."""
+        names = ("", "·x", "·x²")
+        terms = []
+        for power, b in enumerate(self.coefficients):
+            if self.model is Model.PROPORTIONAL and power == 0:
+                continue
+            text = f"{abs(b):.{digits}g}{names[power]}"
+            terms.append((b < 0, text))
+        out = ("−" if terms[0][0] else "") + terms[0][1]
+        for negative, text in terms[1:]:
+            out += (" − " if negative else " + ") + text
+        return "y = " + out
+
+    # --- questions ------------------------------------------------------------------------------
+    def predict(self, concentration: object) -> FloatArray:
+        """Response the curve gives at ``concentration`` (array-like, any shape)."""
+        x = np.asarray(concentration, dtype=np.float64)
+        return self.basis.design(x) @ self.z_coefficients
+
+    def curve_sd(self, concentration: object) -> FloatArray:
+        """Standard error of the fitted curve (the mean response) at ``concentration``."""
+        phi = self.basis.design(np.asarray(concentration, dtype=np.float64))
+        return np.sqrt(np.einsum("...i,ij,...j->...", phi, self.z_covariance, phi))
+
+    def confidence_band(self, concentration: object, level: float = 0.95) -> tuple[FloatArray, FloatArray]:
+        """Lower and upper confidence band of the curve: ŷ ± t·SE(ŷ)."""
+        y = self.predict(concentration)
+        half = self._t(level) * self.curve_sd(concentration)
+        return y - half, y + half
+
+    def prediction_band(
+        self, concentration: object, level: float = 0.95, replicates: int = 1
+    ) -> tuple[FloatArray, FloatArray]:
+        """Band expected to hold the mean of ``replicates`` new responses: ŷ ± t·√(σ²/(m·w) + SE(ŷ)²).
+
+        The weight w of a new response follows the weighting (for 1/y-type weights, evaluated at
+        the predicted response).
+        """
+        x = np.asarray(concentration, dtype=np.float64)
+        y = self.predict(x)
+        new = self.residual_sd**2 / (replicates * self.weight_model.weight_at(x, y))
+        half = self._t(level) * np.sqrt(new + self.curve_sd(x) ** 2)
+        return y - half, y + half
+
+    def quantify(
+        self,
+        mean_response: object,
+        replicates: object = 1,
+        level: float = 0.95,
+        interval: str = "band",
+        limits: "DetectionLimits | None" = None,
+    ) -> Quantitation:
+        """Concentrations of unknowns from their mean responses, with intervals and flags.
+
+        Parameters
+        ----------
+        mean_response : array-like of shape (k,)
+            Mean response of each unknown, in response units.
+        replicates : int or array-like of shape (k,)
+            Number of replicate responses averaged into each mean (m).
+        level : float
+            Confidence level of the interval (0.95 = 95 %).
+        interval : {"band", "symmetric"}
+            ``"band"`` inverts the prediction band for the mean of m new responses (Fieller's
+            interval for a straight line); ``"symmetric"`` gives x̂ ± t·s_x̂.
+        limits : DetectionLimits, optional
+            Limits used for the below-LOD/LOQ flags; default ``self.limits()``.
+
+        See :mod:`.inverse` for the formulas.
+        """
+        return quantify(self, mean_response, replicates, level, interval, limits)
+
+    def limits(self, method: str = "residual_sd", **options: object) -> "DetectionLimits":
+        """Detection and quantitation limits; see :func:`curvewright.core.limits.detection_limits`."""
+        from .limits import detection_limits
+
+        return detection_limits(self, method, **options)  # type: ignore[arg-type]
+
+    def evaluate(self, profile: "AcceptanceProfile", excluded: int = 0) -> "AcceptanceVerdict":
+        """Judge the back-calculated standards against an acceptance ``profile``."""
+        return profile.evaluate(self, excluded=excluded)
+
+    def _t(self, level: float) -> float:
+        if not (0.0 < level < 1.0):
+            raise CalibrationInputError(f"confidence level: {level!r} must lie between 0 and 1 (e.g. 0.95).")
+        return float(stats.t.ppf(0.5 + level / 2.0, self.df_residual))
+
+
+def fit(
+    concentration: object,
+    response: object,
+    model: Model | str = "linear",
+    weighting: Weighting | str = "none",
+    *,
+    response_sd: object | None = None,
+    level_tolerance: float = DEFAULT_LEVEL_TOLERANCE,
+) -> Calibration:
+    """Fit a calibration curve to standards.
+
+    Parameters
+    ----------
+    concentration : array-like of shape (n,)
+        Nominal concentration of each standard. Replicates are repeated concentrations; values
+        within ``level_tolerance`` (relative) form one level.
+    response : array-like of shape (n,)
+        Instrument response of each standard.
+    model : {"linear", "quadratic", "proportional"}
+        y = b0 + b1·x; y = b0 + b1·x + b2·x²; or y = b1·x through the origin.
+    weighting : {"none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2"}
+        Weights are scaled to sum to n, so ``residual_sd`` stays in response units (see
+        :mod:`.weighting`). 1/x-type weights refuse concentrations ≤ 0, 1/y-type responses ≤ 0, and
+        1/s² needs ≥ 2 replicates at every level unless ``response_sd`` is given.
+    response_sd : array-like of shape (n,), optional
+        Known response SDs for 1/s² weighting.
+
+    Raises
+    ------
+    CalibrationInputError
+        With a message naming the standard and the problem: non-finite values, mismatched lengths,
+        fewer levels than parameters, no residual degree of freedom, all concentrations equal.
+    """
+    model = Model.parse(model)
+    weighting = Weighting.parse(weighting)
+    x = as_finite_vector(concentration, "concentration", CalibrationInputError)
+    y = as_finite_vector(response, "response", CalibrationInputError)
+    if x.size != y.size:
+        raise CalibrationInputError(
+            f"standards: {x.size} concentrations but {y.size} responses; each standard needs both."
+        )
+    p = model.n_parameters
+    if x.size == 0:
+        raise CalibrationInputError("standards: none given; a calibration needs standards.")
+    levels = group_levels(x, level_tolerance)
+    if levels.n_levels == 1:
+        raise CalibrationInputError(
+            f"concentration: all {x.size} standards are at {levels.concentration[0]:g}; a curve needs "
+            "standards at different concentrations."
+        )
+    if levels.n_levels < p:
+        raise CalibrationInputError(
+            f"standards: {levels.n_levels} concentration levels cannot fix the {p} parameters of the "
+            f"{model.description}; add levels or choose a simpler model."
+        )
+    if x.size <= p:
+        raise CalibrationInputError(
+            f"standards: {x.size} standards leave no degree of freedom to estimate the scatter of "
+            f"the {model.description} ({p} parameters); at least {p + 1} are needed."
+        )
+    x.setflags(write=False)
+    y.setflags(write=False)
+    weights = make_weights(
+        weighting, x, y, levels, None if response_sd is None else np.asarray(response_sd, dtype=float)
+    )
+    basis = make_basis(model, x)
+    solution = solve_weighted(basis.design(x), y, weights.weights)
+    df = x.size - p
+    residual_sd = float(np.sqrt(solution.sse / df))
+    z_cov = residual_sd**2 * solution.unscaled_covariance
+    transform = basis.power_transform()
+    coefficients = transform @ solution.coefficients
+    covariance = transform @ z_cov @ transform.T
+    if model.has_intercept:
+        mean_w = float(np.sum(weights.weights * y) / np.sum(weights.weights))
+        sst = float(np.sum(weights.weights * (y - mean_w) ** 2))
+        adjust = (x.size - 1) / df
+    else:
+        sst = float(np.sum(weights.weights * y**2))
+        adjust = x.size / df
+    r_squared = 1.0 - solution.sse / sst if sst > 0 else 1.0
+    branch, vertex_z, notes = _quadratic_geometry(model, solution.coefficients, basis, x)
+    influence = measure_influence(solution.weighted_residuals, solution.leverage, p)
+    lack = lack_of_fit_test(y, weights.weights, levels, solution.sse, p)
+    z_range = (float(basis.z(x.min())), float(basis.z(x.max())))
+    z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
+    back = basis.centre + basis.scale * z_back
+    with np.errstate(invalid="ignore", divide="ignore"):
+        relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
+
+    return Calibration(
+        model=model,
+        weighting=weighting,
+        concentration=x,
+        response=y,
+        levels=levels,
+        weight_model=weights,
+        basis=basis,
+        z_coefficients=frozen(solution.coefficients),
+        z_covariance=frozen(z_cov),
+        coefficients=frozen(coefficients),
+        covariance=frozen(covariance),
+        standard_errors=frozen(np.sqrt(np.maximum(np.diag(covariance), 0.0))),
+        residual_sd=residual_sd,
+        df_residual=df,
+        r_squared=float(r_squared),
+        adjusted_r_squared=float(1.0 - (1.0 - r_squared) * adjust),
+        fitted=frozen(solution.fitted),
+        residuals=frozen(y - solution.fitted),
+        influence=influence,
+        lack_of_fit=lack,
+        back_calculated=frozen(back),
+        relative_error=frozen(relative),
+        quadratic_branch=branch,
+        vertex_z=vertex_z,
+        notes=notes,
+    )
+
+
+def _quadratic_geometry(
+    model: Model, z_coefficients: FloatArray, basis: Basis, x: FloatArray
+) -> tuple[int, float | None, tuple[str, ...]]:
+    """Which side of its vertex a quadratic is calibrated on, and where the vertex is (in z)."""
+    if model is not Model.QUADRATIC:
+        return 0, None, ()
+    _, a1, a2 = z_coefficients
+    if a2 == 0.0:
+        return (1 if a1 >= 0 else -1), None, ()
+    vertex = -a1 / (2.0 * a2)
+    z_low, z_high = basis.z(np.array([x.min(), x.max()]))
+    if vertex <= z_low:
+        return 1, float(vertex), ()
+    if vertex >= z_high:
+        return -1, float(vertex), ()
+    branch = 1 if (z_high - vertex) >= (vertex - z_low) else -1
+    at = basis.centre + basis.scale * vertex
+    return branch, float(vertex), (
+        f"the quadratic turns over at concentration {at:.6g}, inside the calibrated range: "
+        "responses near the top of the curve may be reached twice",
+    )

@@ -1,0 +1,355 @@
+"""Every candidate calibration side by side, and a recommendation the analyst may overrule.
+
+Statistics per candidate: residual SD, adjusted R², lack-of-fit p (when replicates allow), Mandel's
+test for the pair linear/quadratic under the same weighting, Σ|%RE| of the standards, the number
+of standards failing the acceptance profile, and AICc.
+
+Mandel's fitting test (ISO 8466-1; DIN 38402-51): with s₁, s₂ the residual SDs of the straight line
+and of the quadratic on N standards, DS² = (N − 2)·s₁² − (N − 3)·s₂², PG = DS²/s₂², compared with
+F(1, N − 3) at 99 %. It equals the partial F of the x² term.
+
+AICc (Hurvich & Tsai 1989, Biometrika 76:297) from the Gaussian log-likelihood of the weighted fit,
+ln L = −n/2·ln(2π·SSE/n) − n/2 + ½·Σ ln wᵢ (weights summing to n), with k = p + 1 parameters:
+AICc = −2 ln L + 2k + 2k(k + 1)/(n − k − 1). Weights taken from the data (1/y, 1/s²) make it a
+guide rather than a strict likelihood comparison.
+
+How the recommendation is reached (the simplest adequate model):
+1. Weighting: unweighted unless the variance evidence shows the scatter changing across the range
+   (:mod:`.variance`). Without replicates the evidence is missing and the fit stays unweighted: the
+   Σ|%RE| comparison alone favours 1/x² even for constant variance (Tellinghuisen 2007, Analyst
+   132:536).
+2. Model, under each weighting: the straight line unless its lack-of-fit test (p < 0.05) or
+   Mandel's test (p < 0.01) rejects it, and then the quadratic only if it does not turn over
+   inside the calibrated range.
+3. Among weightings, when weighting is needed, the smallest Σ|%RE| (Almeida, Castel-Branco &
+   Falcão 2002, J. Chromatogr. B 774:215), the simpler weighting winning ties within 1 %.
+The proportional model is listed on request and never recommended: forcing through the origin is a
+decision for the laboratory's procedure; the reasons say when the intercept is indistinguishable
+from zero.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import stats
+
+from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
+from .calibration import Calibration, fit
+from .errors import CalibrationInputError
+from .levels import DEFAULT_LEVEL_TOLERANCE, group_levels
+from .models import Model
+from .variance import VarianceEvidence, variance_evidence
+from .weighting import Weighting
+
+LACK_OF_FIT_ALPHA = 0.05
+"""Lack-of-fit significance level (common practice)."""
+MANDEL_ALPHA = 0.01
+"""Mandel's test at 99 % (ISO 8466-1)."""
+TIE_FRACTION = 0.01
+"""Σ|%RE| values within 1 % of each other count as a tie; the simpler weighting wins."""
+
+
+@dataclass(frozen=True)
+class MandelTest:
+    """Mandel's fitting test of the straight line against the quadratic, one weighting."""
+
+    weighting: Weighting
+    statistic: float
+    df: tuple[int, int]
+    p_value: float
+    critical_value: float
+
+    @property
+    def significant(self) -> bool:
+        return self.p_value < MANDEL_ALPHA
+
+
+@dataclass(frozen=True, eq=False)
+class Candidate:
+    """One model × weighting in the comparison."""
+
+    calibration: Calibration
+    verdict: AcceptanceVerdict
+    mandel: MandelTest | None
+    aicc: float | None
+
+    @property
+    def model(self) -> Model:
+        return self.calibration.model
+
+    @property
+    def weighting(self) -> Weighting:
+        return self.calibration.weighting
+
+    @property
+    def label(self) -> str:
+        return f"{self.model.value}, {self.weighting.description}"
+
+    @property
+    def residual_sd(self) -> float:
+        return self.calibration.residual_sd
+
+    @property
+    def adjusted_r_squared(self) -> float:
+        return self.calibration.adjusted_r_squared
+
+    @property
+    def lack_of_fit_p(self) -> float | None:
+        return self.calibration.lack_of_fit.p_value
+
+    @property
+    def sum_abs_relative_error(self) -> float:
+        return self.calibration.sum_abs_relative_error
+
+    @property
+    def standards_failing(self) -> int:
+        return int(np.count_nonzero(self.verdict.judged & ~self.verdict.passing))
+
+
+@dataclass(frozen=True)
+class SkippedCandidate:
+    model: Model
+    weighting: Weighting
+    reason: str
+
+
+@dataclass(frozen=True, eq=False)
+class ModelComparison:
+    """Result of :func:`compare`. ``recommended`` is a suggestion; the choice stays the user's."""
+
+    candidates: tuple[Candidate, ...]
+    skipped: tuple[SkippedCandidate, ...]
+    variance: VarianceEvidence
+    mandel: tuple[MandelTest, ...]
+    recommended: Candidate
+    reasons: tuple[str, ...]
+    profile: str
+
+    def candidate(self, model: Model | str, weighting: Weighting | str) -> Candidate:
+        m, w = Model.parse(model), Weighting.parse(weighting)
+        for c in self.candidates:
+            if c.model is m and c.weighting is w:
+                return c
+        raise KeyError(f"no candidate {m.value}, {w.value} in this comparison")
+
+
+def compare(
+    concentration: object,
+    response: object,
+    *,
+    models: tuple[Model | str, ...] = ("linear", "quadratic"),
+    weightings: tuple[Weighting | str, ...] = tuple(w.value for w in Weighting),
+    include_proportional: bool = False,
+    response_sd: object | None = None,
+    profile: AcceptanceProfile | str = "general",
+    level_tolerance: float = DEFAULT_LEVEL_TOLERANCE,
+) -> ModelComparison:
+    """Fit every candidate model × weighting and recommend the simplest adequate one.
+
+    Candidates that cannot be fitted (1/x with a zero standard, 1/s² without replicates…) are listed
+    in ``skipped`` with the reason, never silently left out.
+    """
+    model_list = [Model.parse(m) for m in models]
+    if include_proportional and Model.PROPORTIONAL not in model_list:
+        model_list.append(Model.PROPORTIONAL)
+    weighting_list = [Weighting.parse(w) for w in weightings]
+    rules = profile if isinstance(profile, AcceptanceProfile) else load_profile(profile)
+
+    fits: dict[tuple[Model, Weighting], Calibration] = {}
+    skipped: list[SkippedCandidate] = []
+    first_error: CalibrationInputError | None = None
+    for w in weighting_list:
+        for m in model_list:
+            try:
+                fits[(m, w)] = fit(
+                    concentration, response, m, w, response_sd=response_sd, level_tolerance=level_tolerance
+                )
+            except CalibrationInputError as exc:
+                skipped.append(SkippedCandidate(m, w, str(exc)))
+                first_error = first_error or exc
+    if not fits:
+        raise CalibrationInputError(f"no candidate model could be fitted: {first_error}")
+
+    any_cal = next(iter(fits.values()))
+    evidence = variance_evidence(any_cal.response, group_levels(any_cal.concentration, level_tolerance))
+    mandel = tuple(
+        _mandel(fits[(Model.LINEAR, w)], fits[(Model.QUADRATIC, w)])
+        for w in weighting_list
+        if (Model.LINEAR, w) in fits and (Model.QUADRATIC, w) in fits
+    )
+    mandel_by_weighting = {t.weighting: t for t in mandel}
+    candidates = tuple(
+        Candidate(
+            calibration=cal,
+            verdict=rules.evaluate(cal),
+            mandel=mandel_by_weighting.get(w) if m is not Model.PROPORTIONAL else None,
+            aicc=_aicc(cal),
+        )
+        for (m, w), cal in fits.items()
+    )
+    recommended, reasons = _recommend(candidates, evidence, mandel_by_weighting)
+    return ModelComparison(
+        candidates=candidates,
+        skipped=tuple(skipped),
+        variance=evidence,
+        mandel=mandel,
+        recommended=recommended,
+        reasons=tuple(reasons),
+        profile=rules.name,
+    )
+
+
+def mandel_test(linear: Calibration, quadratic: Calibration) -> MandelTest:
+    """Mandel's fitting test of ``linear`` against ``quadratic`` (same standards and weighting)."""
+    if linear.model is not Model.LINEAR or quadratic.model is not Model.QUADRATIC:
+        raise CalibrationInputError("Mandel's test compares a straight line with a quadratic.")
+    if linear.weighting is not quadratic.weighting or linear.n_standards != quadratic.n_standards:
+        raise CalibrationInputError("Mandel's test needs both fits on the same standards with the same weighting.")
+    return _mandel(linear, quadratic)
+
+
+def _mandel(linear: Calibration, quadratic: Calibration) -> MandelTest:
+    n = linear.n_standards
+    s1, s2 = linear.residual_sd**2, quadratic.residual_sd**2
+    ds2 = (n - 2) * s1 - (n - 3) * s2
+    pg = ds2 / s2 if s2 > 0 else np.inf
+    df = (1, n - 3)
+    return MandelTest(
+        weighting=linear.weighting,
+        statistic=float(pg),
+        df=df,
+        p_value=float(stats.f.sf(pg, *df)),
+        critical_value=float(stats.f.ppf(1 - MANDEL_ALPHA, *df)),
+    )
+
+
+def _aicc(cal: Calibration) -> float | None:
+    n = cal.n_standards
+    k = cal.n_parameters + 1
+    if n - k - 1 <= 0 or cal.sse <= 0:
+        return None
+    log_l = -0.5 * n * np.log(2 * np.pi * cal.sse / n) - 0.5 * n + 0.5 * float(np.sum(np.log(cal.weights)))
+    return float(-2 * log_l + 2 * k + 2 * k * (k + 1) / (n - k - 1))
+
+
+def _model_for(
+    candidates: dict[Model, Candidate], mandel: MandelTest | None, weighting: Weighting
+) -> tuple[Candidate, list[str]]:
+    """Straight line or quadratic under one weighting, with the reasons."""
+    linear = candidates.get(Model.LINEAR)
+    quadratic = candidates.get(Model.QUADRATIC)
+    reasons: list[str] = []
+    if linear is None:
+        assert quadratic is not None
+        return quadratic, ["the straight line could not be fitted"]
+    lof = linear.calibration.lack_of_fit
+    lof_rejects = lof.significant(LACK_OF_FIT_ALPHA)
+    mandel_rejects = mandel.significant if mandel is not None else False
+    if lof.available:
+        reasons.append(
+            f"straight line lack-of-fit: F = {lof.f_statistic:.4g} on ({lof.df_lack_of_fit}, {lof.df_pure_error}) df, "
+            f"p = {lof.p_value:.3g} ({'significant' if lof_rejects else 'not significant'} at {LACK_OF_FIT_ALPHA:g})"
+        )
+    else:
+        reasons.append(f"no lack-of-fit test for the straight line: {lof.reason}")
+    if mandel is not None:
+        reasons.append(
+            f"Mandel's test: PG = {mandel.statistic:.4g}, p = {mandel.p_value:.3g} "
+            f"({'the quadratic fits significantly better' if mandel_rejects else 'the quadratic is no significant improvement'} at 99 %)"
+        )
+    if not (lof_rejects or mandel_rejects):
+        reasons.append("the straight line is adequate, so the simpler model is kept")
+        return linear, reasons
+    if quadratic is None:
+        reasons.append("the straight line is rejected but no quadratic could be fitted; the straight line is shown")
+        return linear, reasons
+    if quadratic.calibration.notes:
+        reasons.append(
+            "the straight line is rejected, but the quadratic turns over inside the calibrated range; "
+            "narrow the range rather than use either"
+        )
+        return linear, reasons
+    q_lof = quadratic.calibration.lack_of_fit
+    if q_lof.available and q_lof.significant(LACK_OF_FIT_ALPHA):
+        reasons.append(
+            f"the quadratic also lacks fit (p = {q_lof.p_value:.3g}); neither model follows the data — "
+            "check the standards or narrow the range"
+        )
+    reasons.append("the straight line is rejected, so the quadratic is recommended")
+    return quadratic, reasons
+
+
+def _recommend(
+    candidates: tuple[Candidate, ...], evidence: VarianceEvidence, mandel: dict[Weighting, MandelTest]
+) -> tuple[Candidate, list[str]]:
+    by_weighting: dict[Weighting, dict[Model, Candidate]] = {}
+    for c in candidates:
+        if c.model is not Model.PROPORTIONAL:
+            by_weighting.setdefault(c.weighting, {})[c.model] = c
+    reasons = [evidence.summary]
+    if not by_weighting:
+        only = candidates[0]
+        return only, reasons + ["only the proportional model could be fitted"]
+    if evidence.heteroscedastic and any(w is not Weighting.NONE for w in by_weighting):
+        choices = []
+        for w, models in by_weighting.items():
+            if w is Weighting.NONE:
+                continue
+            choice, _ = _model_for(models, mandel.get(w), w)
+            choices.append(choice)
+        best = min(c.sum_abs_relative_error for c in choices)
+        tied = [c for c in choices if c.sum_abs_relative_error <= best * (1 + TIE_FRACTION) + 1e-12]
+        order = list(Weighting)
+        chosen = min(tied, key=lambda c: order.index(c.weighting))
+        reasons.append(
+            "weighting is needed; among weighted candidates "
+            + ", ".join(f"{c.weighting.value} (Σ|%RE| = {c.sum_abs_relative_error:.3g})" for c in choices)
+            + (
+                f"; {chosen.weighting.value} gives the smallest sum of absolute relative errors"
+                if len(tied) == 1
+                else f"; {chosen.weighting.value} is the simplest within {TIE_FRACTION:.0%} of the smallest"
+            )
+        )
+        _, model_reasons = _model_for(by_weighting[chosen.weighting], mandel.get(chosen.weighting), chosen.weighting)
+        reasons.extend(model_reasons)
+    else:
+        weighting = Weighting.NONE if Weighting.NONE in by_weighting else next(iter(by_weighting))
+        if evidence.heteroscedastic is None:
+            reasons.append(
+                "without replicates at the ends of the range weighting cannot be justified from the "
+                "data; the unweighted fit is kept (replicate the lowest and highest standards to test)"
+            )
+        elif evidence.heteroscedastic is False:
+            reasons.append("the scatter is constant within the evidence, so no weighting is needed")
+        chosen, model_reasons = _model_for(by_weighting[weighting], mandel.get(weighting), weighting)
+        reasons.extend(model_reasons)
+    failing = chosen.standards_failing
+    if failing:
+        reasons.append(f"{failing} standard(s) fall outside the acceptance limits with this choice")
+    if not chosen.verdict.passed:
+        others = [c.label for c in candidates if c.verdict.passed]
+        reasons.append(
+            "this choice fails the acceptance profile"
+            + (f"; candidates that pass: {', '.join(others)}" if others else "; no candidate passes it")
+        )
+    reasons.extend(_intercept_note(chosen))
+    return chosen, reasons
+
+
+def _intercept_note(chosen: Candidate) -> list[str]:
+    cal = chosen.calibration
+    if cal.model is not Model.LINEAR:
+        return []
+    t_value = cal.coefficients[0] / cal.standard_errors[0] if cal.standard_errors[0] > 0 else np.inf
+    p = float(2 * stats.t.sf(abs(t_value), cal.df_residual))
+    if p >= 0.05:
+        return [
+            f"the intercept is not significantly different from zero (p = {p:.3g}); a line through the "
+            "origin is possible only where the laboratory's procedure permits it"
+        ]
+    return []
+
+
+__all__ = ["Candidate", "ModelComparison", "MandelTest", "SkippedCandidate", "compare", "mandel_test"]

@@ -1,0 +1,351 @@
+"""Inverse prediction: from the mean response of an unknown to its concentration and interval.
+
+Point estimate
+    x̂ solves f(x) = ȳ₀. A straight line gives x̂ = (ȳ₀ − b0)/b1. For the quadratic the root is
+    taken on the calibrated branch, the side of the vertex that holds the standards; a response the
+    curve never reaches on that branch has no solution and is flagged, never extrapolated past the
+    vertex.
+
+Standard error (delta method)
+    s_x̂ = √(σ²/(m·w₀) + var f̂(x̂)) / |f'(x̂)|, with w₀ the weight of the new mean response
+    (1 when unweighted) and var f̂ the variance of the fitted curve. For an unweighted straight
+    line this is exactly the textbook formula
+    s_x0 = (s_y/x / b)·√(1/m + 1/n + (ȳ₀ − ȳ)²/(b²·Σ(xᵢ − x̄)²))
+    (Miller & Miller, *Statistics and Chemometrics for Analytical Chemistry*, ch. 5).
+
+Calibration interval (``interval="band"``, the default)
+    The set of concentrations whose prediction band for the mean of m new responses contains ȳ₀:
+    {x : (ȳ₀ − f̂(x))² ≤ t²·(σ²/(m·w(x)) + var f̂(x))}, t = t(1 − α/2; n − p). For a straight
+    line whose weights do not depend on x this is Fieller's interval, solved in closed form
+    (Draper & Smith, *Applied Regression Analysis*, 3rd ed., §3.2); otherwise the band is inverted
+    numerically, bracketing outward from x̂ and bisecting to full precision. When the band does not
+    close on one side the interval is unbounded there (±inf, flagged).
+
+Symmetric interval (``interval="symmetric"``)
+    x̂ ± t·s_x̂.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from enum import IntFlag
+from functools import cached_property
+from typing import TYPE_CHECKING
+
+import numpy as np
+from scipy import stats
+
+from ._arrays import FloatArray, as_finite_vector, frozen
+from .errors import QuantitationInputError
+from .models import Model
+from .weighting import Weighting
+
+if TYPE_CHECKING:  # pragma: no cover
+    from .calibration import Calibration
+    from .limits import DetectionLimits
+
+INTERVAL_METHODS = ("band", "symmetric")
+SEARCH_HALF_RANGES = 200.0
+"""How far beyond x̂ the band inversion looks for the interval's ends, in half-ranges of the standards."""
+_GRID = np.geomspace(1e-9, 1.0, 72)
+_BISECTION_STEPS = 64
+
+
+class QuantFlag(IntFlag):
+    """What the analyst must know about one unknown's result; several may apply at once."""
+
+    IN_RANGE = 1
+    BELOW_RANGE = 2
+    ABOVE_RANGE = 4
+    BELOW_LOQ = 8
+    BELOW_LOD = 16
+    NO_SOLUTION = 32
+    AMBIGUOUS_ROOT = 64
+    UNBOUNDED_INTERVAL = 128
+
+    @property
+    def words(self) -> str:
+        """The flag(s) in plain words, joined by '; '."""
+        return "; ".join(_WORDS[member] for member in self)  # type: ignore[index]
+
+
+_WORDS = {
+    QuantFlag.IN_RANGE: "inside the calibrated range",
+    QuantFlag.BELOW_RANGE: "below the lowest standard",
+    QuantFlag.ABOVE_RANGE: "above the highest standard",
+    QuantFlag.BELOW_LOQ: "below the quantitation limit (LOQ)",
+    QuantFlag.BELOW_LOD: "below the detection limit (LOD)",
+    QuantFlag.NO_SOLUTION: "no solution: the curve never reaches this response on its calibrated branch",
+    QuantFlag.AMBIGUOUS_ROOT: "ambiguous: the curve reaches this response twice within the calibrated range",
+    QuantFlag.UNBOUNDED_INTERVAL: "interval unbounded: the calibration cannot bound this concentration",
+}
+
+
+@dataclass(frozen=True, eq=False)
+class Quantitation:
+    """Concentrations of a set of unknowns read from one calibration (arrays of shape (k,)).
+
+    ``estimate``, ``standard_error``, ``lower`` and ``upper`` are in concentration units of the
+    standards, for the solution measured (apply dilution factors afterwards). ``lower``/``upper`` are
+    ±inf where the interval is unbounded and NaN only where there is no solution (flagged).
+    """
+
+    mean_response: FloatArray
+    replicates: np.ndarray
+    level: float
+    interval: str
+    df: int
+    estimate: FloatArray
+    standard_error: FloatArray
+    lower: FloatArray
+    upper: FloatArray
+    flag_bits: np.ndarray
+    limits: "DetectionLimits | None"
+    limits_note: str | None
+
+    @cached_property
+    def flags(self) -> tuple[QuantFlag, ...]:
+        """One :class:`QuantFlag` per unknown; ``QuantFlag.BELOW_LOQ in q.flags[i]`` tests one."""
+        return tuple(QuantFlag(int(bits)) for bits in self.flag_bits)
+
+    def flag_words(self) -> tuple[str, ...]:
+        """The flags of each unknown in plain words."""
+        return tuple(flag.words for flag in self.flags)
+
+    def __len__(self) -> int:
+        return int(self.estimate.size)
+
+
+def quantify(
+    cal: "Calibration",
+    mean_response: object,
+    replicates: object = 1,
+    level: float = 0.95,
+    interval: str = "band",
+    limits: "DetectionLimits | None" = None,
+) -> Quantitation:
+    """Quantify unknowns; see :meth:`curvewright.core.calibration.Calibration.quantify`."""
+    y0 = as_finite_vector(mean_response, "mean response", QuantitationInputError, item="unknown")
+    m = _replicate_counts(replicates, y0.size)
+    if not (0.0 < level < 1.0):
+        raise QuantitationInputError(f"confidence level: {level!r} must lie between 0 and 1 (e.g. 0.95).")
+    if interval not in INTERVAL_METHODS:
+        raise QuantitationInputError(
+            f"interval: {interval!r} is not one of {', '.join(map(repr, INTERVAL_METHODS))}."
+        )
+    t = float(stats.t.ppf(0.5 + level / 2.0, cal.df_residual))
+
+    z_range = tuple(cal.basis.z(np.array(cal.calibrated_range)))
+    z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
+    x_hat = cal.basis.centre + cal.basis.scale * z_hat
+    new_var = _new_response_variance(cal, x_hat, y0, m)
+    slope = _slope_z(cal, z_hat) / cal.basis.scale
+    with np.errstate(invalid="ignore", divide="ignore"):
+        se = np.sqrt(new_var + _curve_variance(cal, z_hat)) / np.abs(slope)
+
+    if interval == "symmetric":
+        lower, upper = x_hat - t * se, x_hat + t * se
+        unbounded = ~np.isfinite(se) & ~no_solution
+    else:
+        lower, upper = _band_interval(cal, y0, m, t, z_hat, no_solution)
+        unbounded = (np.isinf(lower) | np.isinf(upper)) & ~no_solution
+
+    limits_note = None
+    if limits is None:
+        from .limits import LimitsError
+
+        try:
+            limits = cal.limits()
+        except LimitsError as exc:
+            limits_note = f"LOD/LOQ flags not set: {exc}"
+
+    low, high = cal.calibrated_range
+    bits = np.zeros(y0.size, dtype=np.int64)
+    solved = ~no_solution
+    bits |= np.where(solved & (x_hat < low), int(QuantFlag.BELOW_RANGE), 0)
+    bits |= np.where(solved & (x_hat > high), int(QuantFlag.ABOVE_RANGE), 0)
+    bits |= np.where(solved & (x_hat >= low) & (x_hat <= high), int(QuantFlag.IN_RANGE), 0)
+    if limits is not None:
+        if limits.loq is not None:
+            bits |= np.where(solved & (x_hat < limits.loq), int(QuantFlag.BELOW_LOQ), 0)
+        bits |= np.where(solved & (x_hat < limits.lod), int(QuantFlag.BELOW_LOD), 0)
+    bits |= np.where(no_solution, int(QuantFlag.NO_SOLUTION), 0)
+    bits |= np.where(ambiguous, int(QuantFlag.AMBIGUOUS_ROOT), 0)
+    bits |= np.where(unbounded, int(QuantFlag.UNBOUNDED_INTERVAL), 0)
+
+    nan = np.where(no_solution, np.nan, 0.0)
+    return Quantitation(
+        mean_response=frozen(y0),
+        replicates=frozen(m),
+        level=float(level),
+        interval=interval,
+        df=cal.df_residual,
+        estimate=frozen(x_hat + nan),
+        standard_error=frozen(se + nan),
+        lower=frozen(lower + nan),
+        upper=frozen(upper + nan),
+        flag_bits=frozen(bits),
+        limits=limits,
+        limits_note=limits_note,
+    )
+
+
+def _replicate_counts(replicates: object, k: int) -> np.ndarray:
+    counts = np.broadcast_to(np.asarray(replicates), (k,)) if np.ndim(replicates) == 0 else np.asarray(replicates)
+    if counts.shape != (k,):
+        raise QuantitationInputError(
+            f"replicates: {counts.size} counts given for {k} unknowns; give one count per unknown or a single count."
+        )
+    as_float = counts.astype(np.float64)
+    bad = np.flatnonzero(~np.isfinite(as_float) | (as_float < 1) | (as_float != np.round(as_float)))
+    if bad.size:
+        i = int(bad[0])
+        raise QuantitationInputError(
+            f"replicates: unknown {i + 1} has {counts[i]!r}; the number of replicate responses "
+            "averaged must be a whole number of at least 1."
+        )
+    return as_float.astype(np.int64)
+
+
+def solve_z(
+    model: Model,
+    a: FloatArray,
+    branch: int,
+    z_range: tuple[float, float],
+    y0: FloatArray,
+) -> tuple[FloatArray, np.ndarray, np.ndarray]:
+    """Solve f(z) = y0 in the fitting variable z for z-coefficients ``a``.
+
+    Returns the root on the calibrated ``branch`` (+1: right of the vertex, −1: left), a mask of
+    responses with no solution there and a mask of responses reached twice inside ``z_range``.
+    """
+    false = np.zeros(y0.size, dtype=bool)
+    if model is Model.PROPORTIONAL:
+        return y0 / a[0], false, false
+    if model is Model.LINEAR:
+        return (y0 - a[0]) / a[1], false, false
+    a0, a1, a2 = a
+    c = a0 - y0
+    disc = a1 * a1 - 4.0 * a2 * c
+    no_solution = disc < 0
+    root_disc = np.sqrt(np.maximum(disc, 0.0))
+    q = -0.5 * (a1 + np.copysign(root_disc, a1))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        r1 = q / a2
+        r2 = np.where(q != 0.0, c / q, r1)
+    root = np.maximum(r1, r2) if branch > 0 else np.minimum(r1, r2)
+    other = np.minimum(r1, r2) if branch > 0 else np.maximum(r1, r2)
+    z_low, z_high = z_range
+    tolerance = 1e-12 * (z_high - z_low)
+    ambiguous = (
+        ~no_solution
+        & (np.abs(other - root) > tolerance)
+        & (other >= z_low - tolerance)
+        & (other <= z_high + tolerance)
+    )
+    return np.where(no_solution, np.nan, root), no_solution, ambiguous
+
+
+def _slope_z(cal: "Calibration", z: FloatArray) -> FloatArray:
+    a = cal.z_coefficients
+    if cal.model is Model.PROPORTIONAL:
+        return np.full_like(z, a[0])
+    if cal.model is Model.LINEAR:
+        return np.full_like(z, a[1])
+    return a[1] + 2.0 * a[2] * z
+
+
+def _curve_variance(cal: "Calibration", z: FloatArray) -> FloatArray:
+    """Variance of the fitted curve at z: φ(z)ᵀ·C·φ(z), C the coefficient covariance."""
+    cov = cal.z_covariance
+    phi = np.stack([z**p for p in cal.basis.powers], axis=-1)
+    return np.einsum("...i,ij,...j->...", phi, cov, phi)
+
+
+def _new_response_variance(cal: "Calibration", x: FloatArray, y0: FloatArray, m: np.ndarray) -> FloatArray:
+    """Variance σ²/(m·w) of the mean of m new responses at concentration x with mean y0."""
+    weight = cal.weight_model.weight_at(x, y0)
+    return cal.residual_sd**2 / (m * weight)
+
+
+def _band_interval(
+    cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float, z_hat: FloatArray, no_solution: np.ndarray
+) -> tuple[FloatArray, FloatArray]:
+    closed_form = cal.model is not Model.QUADRATIC and not cal.weighting.uses_concentration
+    if closed_form:
+        z_lo, z_hi = _fieller_z(cal, y0, m, t)
+    else:
+        z_lo = _band_edge(cal, y0, m, t, z_hat, no_solution, direction=-1.0)
+        z_hi = _band_edge(cal, y0, m, t, z_hat, no_solution, direction=+1.0)
+    to_x = lambda z: cal.basis.centre + cal.basis.scale * z  # noqa: E731
+    # scale > 0, so the order of the ends survives the change of variable.
+    return to_x(z_lo), to_x(z_hi)
+
+
+def _fieller_z(cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float) -> tuple[FloatArray, FloatArray]:
+    """Fieller's interval for a straight line, in z: the roots of A·z² + B·z + C = 0."""
+    cov = cal.z_covariance
+    s2_new = _new_response_variance(cal, np.zeros_like(y0), y0, m)
+    t2 = t * t
+    if cal.model is Model.PROPORTIONAL:
+        (b,) = cal.z_coefficients
+        d = y0
+        a_quad = b * b - t2 * cov[0, 0]
+        b_quad = -2.0 * d * b
+        c_quad = d * d - t2 * s2_new
+    else:
+        a0, b = cal.z_coefficients
+        d = y0 - a0
+        a_quad = b * b - t2 * cov[1, 1]
+        b_quad = -2.0 * (d * b + t2 * cov[0, 1])
+        c_quad = d * d - t2 * (s2_new + cov[0, 0])
+    if a_quad <= 0.0:
+        # The slope is not significantly different from zero: the band never closes.
+        inf = np.full_like(y0, np.inf)
+        return -inf, inf
+    root = np.sqrt(np.maximum(b_quad * b_quad - 4.0 * a_quad * c_quad, 0.0))
+    return (-b_quad - root) / (2.0 * a_quad), (-b_quad + root) / (2.0 * a_quad)
+
+
+def _band_excess(cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float, z: FloatArray) -> FloatArray:
+    """(ȳ₀ − f̂(z))² − t²·(σ²/(m·w) + var f̂(z)); ≤ 0 inside the calibration interval."""
+    phi = np.stack([z**p for p in cal.basis.powers], axis=-1)
+    fitted = phi @ cal.z_coefficients
+    curve_var = np.einsum("...i,ij,...j->...", phi, cal.z_covariance, phi)
+    x = cal.basis.centre + cal.basis.scale * z
+    new_var = cal.residual_sd**2 / (m * cal.weight_model.weight_at(x, y0))
+    return (y0 - fitted) ** 2 - t * t * (new_var + curve_var)
+
+
+def _band_edge(
+    cal: "Calibration",
+    y0: FloatArray,
+    m: np.ndarray,
+    t: float,
+    z_hat: FloatArray,
+    no_solution: np.ndarray,
+    direction: float,
+) -> FloatArray:
+    """End of the calibration interval on one side of ẑ (vectorised over unknowns)."""
+    k = y0.size
+    start = np.where(no_solution, 0.0, z_hat)
+    reach = np.full(k, SEARCH_HALF_RANGES)
+    if cal.model is Model.QUADRATIC and cal.vertex_z is not None:
+        towards_vertex = (cal.vertex_z - start) * direction > 0
+        reach = np.where(towards_vertex, np.abs(cal.vertex_z - start), reach)
+    offsets = reach[:, None] * _GRID[None, :]
+    grid_z = start[:, None] + direction * offsets
+    excess = _band_excess(cal, y0[:, None], m[:, None], t, grid_z)
+    outside = excess > 0
+    closed = outside.any(axis=1)
+    first = np.argmax(outside, axis=1)
+    rows = np.arange(k)
+    inner = np.where(first > 0, offsets[rows, np.maximum(first - 1, 0)], 0.0)
+    outer = offsets[rows, first]
+    for _ in range(_BISECTION_STEPS):
+        middle = 0.5 * (inner + outer)
+        out = _band_excess(cal, y0, m, t, start + direction * middle) > 0
+        outer = np.where(out, middle, outer)
+        inner = np.where(out, inner, middle)
+    edge = start + direction * 0.5 * (inner + outer)
+    return np.where(closed, edge, direction * np.inf)

@@ -1,0 +1,108 @@
+"""The calibration functions Curvewright fits, and their centred, scaled basis.
+
+Each model is a polynomial in the concentration x with ascending-power coefficients b:
+
+* ``linear``        y = b0 + b1·x
+* ``quadratic``     y = b0 + b1·x + b2·x²
+* ``proportional``  y = b1·x           (through the origin; coefficients are reported as (0, b1))
+
+Fitting is done in the variable z = (x − c)/s, with c the mean and s half the range of the
+standards' concentrations (c = 0 for the proportional model, so the line stays through the origin).
+Working in z keeps the least-squares problem well conditioned (NIST StRD Pontius needs it to reach
+twelve correct digits); :func:`to_power_basis` turns z-coefficients into ascending powers of x.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from enum import Enum
+from math import comb
+
+import numpy as np
+
+from ._arrays import FloatArray
+from .errors import CalibrationInputError
+
+
+class Model(str, Enum):
+    """A calibration function, named as the analyst chooses it."""
+
+    LINEAR = "linear"
+    QUADRATIC = "quadratic"
+    PROPORTIONAL = "proportional"
+
+    @property
+    def n_parameters(self) -> int:
+        return {Model.LINEAR: 2, Model.QUADRATIC: 3, Model.PROPORTIONAL: 1}[self]
+
+    @property
+    def has_intercept(self) -> bool:
+        return self is not Model.PROPORTIONAL
+
+    @property
+    def powers(self) -> tuple[int, ...]:
+        """Powers of z in the design matrix."""
+        return {Model.LINEAR: (0, 1), Model.QUADRATIC: (0, 1, 2), Model.PROPORTIONAL: (1,)}[self]
+
+    @property
+    def description(self) -> str:
+        return {
+            Model.LINEAR: "straight line y = b0 + b1·x",
+            Model.QUADRATIC: "quadratic y = b0 + b1·x + b2·x²",
+            Model.PROPORTIONAL: "straight line through the origin y = b1·x",
+        }[self]
+
+    @classmethod
+    def parse(cls, value: "Model | str") -> "Model":
+        try:
+            return cls(value)
+        except ValueError:
+            names = ", ".join(repr(m.value) for m in cls)
+            raise CalibrationInputError(f"model: {value!r} is not one of {names}.") from None
+
+
+@dataclass(frozen=True)
+class Basis:
+    """The change of variable z = (x − centre)/scale used for fitting."""
+
+    centre: float
+    scale: float
+    powers: tuple[int, ...]
+
+    def z(self, x: FloatArray) -> FloatArray:
+        return (np.asarray(x, dtype=np.float64) - self.centre) / self.scale
+
+    def design(self, x: FloatArray) -> FloatArray:
+        """Design matrix of shape (len(x), n_parameters) in powers of z."""
+        z = self.z(x)
+        return np.stack([z**p for p in self.powers], axis=-1)
+
+    def power_transform(self) -> FloatArray:
+        """Matrix T with b = T·a, from z-coefficients a to ascending powers of x (b0, b1, b2…).
+
+        The result always has rows for powers 0 … max power, so a proportional model yields
+        (b0 = 0, b1).
+        """
+        degree = max(self.powers)
+        c, s = self.centre, self.scale
+        transform = np.zeros((degree + 1, len(self.powers)))
+        for column, p in enumerate(self.powers):
+            # ((x − c)/s)^p = Σ_k C(p, k) x^k (−c)^(p−k) / s^p
+            for k in range(p + 1):
+                transform[k, column] = comb(p, k) * (-c) ** (p - k) / s**p
+        return transform
+
+
+def make_basis(model: Model, concentration: FloatArray) -> Basis:
+    """Choose the centring and scaling for ``model`` fitted to ``concentration``."""
+    low, high = float(concentration.min()), float(concentration.max())
+    if model.has_intercept:
+        centre = float(concentration.mean())
+        scale = (high - low) / 2.0
+    else:
+        centre = 0.0
+        scale = float(np.max(np.abs(concentration)))
+    if not scale > 0:
+        scale = 1.0
+    return Basis(centre=centre, scale=scale, powers=model.powers)
+

@@ -1,0 +1,117 @@
+"""Evidence on whether the response scatter is the same across the range (homoscedasticity).
+
+* ISO 8466-1 variance F-test: the replicate variances of the lowest and the highest level,
+  PG = s²(larger)/s²(smaller), compared with F(f_larger, f_smaller) at 99 % (ISO 8466-1:1990 §5;
+  the standard asks for 10 replicates at each end, where the critical value is F(9, 9; 0.99) = 5.35).
+* Across every replicated level: Bartlett's test (Bartlett 1937, Proc. R. Soc. A 160:268) and the
+  Brown–Forsythe test (Levene's test about the median; Brown & Forsythe 1974, JASA 69:364), which
+  is robust to non-normal replicates. Both as implemented by scipy.stats.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import stats
+
+from ._arrays import FloatArray
+from .levels import Levels
+
+ISO_8466_LEVEL = 0.99
+"""Confidence level of the ISO 8466-1 variance F-test (ISO 8466-1)."""
+ACROSS_LEVELS_ALPHA = 0.05
+"""Significance level for the tests across all replicated levels (common practice)."""
+
+
+@dataclass(frozen=True)
+class VarianceTest:
+    """One test of equal variances; ``available`` False with ``reason`` when it cannot be made."""
+
+    name: str
+    available: bool
+    reason: str | None = None
+    statistic: float | None = None
+    df: tuple[int, ...] | None = None
+    p_value: float | None = None
+    critical_value: float | None = None
+    significant: bool | None = None
+
+
+@dataclass(frozen=True)
+class VarianceEvidence:
+    """All the variance-homogeneity evidence the standards give.
+
+    ``heteroscedastic`` is True when the variance demonstrably changes across the range, False
+    when the tests find no change, None when no test could be made (too few replicates).
+    """
+
+    end_levels: VarianceTest
+    bartlett: VarianceTest
+    brown_forsythe: VarianceTest
+    heteroscedastic: bool | None
+    summary: str
+
+
+def variance_evidence(response: FloatArray, levels: Levels) -> VarianceEvidence:
+    """Test whether the replicate variance changes across the levels."""
+    end = _end_level_test(response, levels)
+    groups = [response[levels.index == j] for j in np.flatnonzero(levels.count >= 2)]
+    bartlett = _across_levels("Bartlett", groups, stats.bartlett)
+    brown = _across_levels("Brown–Forsythe", groups, lambda *g: stats.levene(*g, center="median"))
+    if end.available:
+        hetero = bool(end.significant)
+        summary = (
+            f"ISO 8466-1 F-test of the end levels: F = {end.statistic:.4g} "
+            f"{'>' if hetero else '≤'} F({end.df[0]}, {end.df[1]}; 99 %) = {end.critical_value:.4g}: the variance "
+            + ("changes across the range" if hetero else "shows no significant change across the range")
+        )
+    elif brown.available:
+        hetero = bool(brown.significant)
+        summary = (
+            f"Brown–Forsythe test across {len(groups)} replicated levels: p = {brown.p_value:.3g}: "
+            + ("the variance changes across the range" if hetero else "no significant change in variance")
+        )
+    else:
+        hetero = None
+        summary = "variance homogeneity could not be tested: " + (end.reason or "too few replicates")
+    return VarianceEvidence(end, bartlett, brown, hetero, summary)
+
+
+def _end_level_test(response: FloatArray, levels: Levels) -> VarianceTest:
+    name = "ISO 8466-1 end-level F-test"
+    low, high = 0, levels.n_levels - 1
+    if levels.count[low] < 2 or levels.count[high] < 2:
+        return VarianceTest(name, False, "needs replicates at both the lowest and the highest level")
+    sd = levels.level_sd(response)
+    var_low, var_high = sd[low] ** 2, sd[high] ** 2
+    df_low, df_high = int(levels.count[low]) - 1, int(levels.count[high]) - 1
+    if min(var_low, var_high) == 0.0:
+        return VarianceTest(name, False, "the replicates at an end level are identical (zero variance)")
+    if var_high >= var_low:
+        f, df = var_high / var_low, (df_high, df_low)
+    else:
+        f, df = var_low / var_high, (df_low, df_high)
+    critical = float(stats.f.ppf(ISO_8466_LEVEL, *df))
+    return VarianceTest(
+        name,
+        True,
+        statistic=float(f),
+        df=df,
+        p_value=float(stats.f.sf(f, *df)),
+        critical_value=critical,
+        significant=bool(f > critical),
+    )
+
+
+def _across_levels(name: str, groups: list[FloatArray], test) -> VarianceTest:  # type: ignore[no-untyped-def]
+    if len(groups) < 2:
+        return VarianceTest(name, False, "needs at least two replicated levels")
+    if any(np.ptp(g) == 0.0 for g in groups):
+        return VarianceTest(name, False, "a replicated level has identical replicates (zero variance)")
+    result = test(*groups)
+    stat, p = float(result.statistic), float(result.pvalue)
+    if not (np.isfinite(stat) and np.isfinite(p)):
+        return VarianceTest(name, False, "the replicates do not allow the test (degenerate spread)")
+    df = (len(groups) - 1,) if name == "Bartlett" else (len(groups) - 1, sum(map(len, groups)) - len(groups))
+    return VarianceTest(name, True, statistic=stat, df=df, p_value=p, significant=bool(p < ACROSS_LEVELS_ALPHA))

@@ -1,0 +1,207 @@
+"""Weights for weighted least squares, and the variance they imply for a new response.
+
+A weighting says how the variance of a response changes across the range:
+var(yᵢ) = σ²/wᵢ. Curvewright offers
+
+* ``none``   wᵢ = 1                     (ordinary least squares)
+* ``1/x``    wᵢ ∝ 1/xᵢ      ``1/x^2``  wᵢ ∝ 1/xᵢ²   (x = nominal concentration)
+* ``1/y``    wᵢ ∝ 1/yᵢ      ``1/y^2``  wᵢ ∝ 1/yᵢ²   (y = measured response)
+* ``1/s^2``  wᵢ ∝ 1/sᵢ²  with sᵢ the replicate standard deviation of the response at the level of
+  standard i, or the standard deviations the caller gives.
+
+The weights are scaled so that Σwᵢ = n (Miller & Miller, *Statistics and Chemometrics for
+Analytical Chemistry*, ch. 5). With that scaling σ, the residual SD, stays in response units: it is
+the SD of a response whose weight is the average weight.
+
+For a new response (an unknown) the same rule gives its weight, on the same scale: 1/x-type
+weights use the estimated concentration, 1/y-type the measured mean response, and 1/s² the SD
+interpolated linearly in concentration between levels (held flat beyond the end levels). Below the
+lowest standard the weighting is not extrapolated toward zero variance: the weight of the lowest
+standard is used, so an interval there is never narrower than at the bottom of the curve.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from enum import Enum
+
+import numpy as np
+
+from ._arrays import FloatArray, as_finite_vector, frozen
+from .errors import WeightingError
+from .levels import Levels
+
+
+class Weighting(str, Enum):
+    """How the variance of the response is taken to change with concentration."""
+
+    NONE = "none"
+    INVERSE_X = "1/x"
+    INVERSE_X2 = "1/x^2"
+    INVERSE_Y = "1/y"
+    INVERSE_Y2 = "1/y^2"
+    INVERSE_S2 = "1/s^2"
+
+    @classmethod
+    def parse(cls, value: "Weighting | str") -> "Weighting":
+        if isinstance(value, str):
+            value = value.strip().replace("²", "^2").replace(" ", "").lower()
+            value = {"": "none", "1": "none", "1/x2": "1/x^2", "1/y2": "1/y^2", "1/s2": "1/s^2"}.get(
+                value, value
+            )
+        try:
+            return cls(value)
+        except ValueError:
+            names = ", ".join(repr(w.value) for w in cls)
+            raise WeightingError(f"weighting: {value!r} is not one of {names}.") from None
+
+    @property
+    def description(self) -> str:
+        return {
+            Weighting.NONE: "unweighted (ordinary least squares)",
+            Weighting.INVERSE_X: "weighted 1/x",
+            Weighting.INVERSE_X2: "weighted 1/x²",
+            Weighting.INVERSE_Y: "weighted 1/y",
+            Weighting.INVERSE_Y2: "weighted 1/y²",
+            Weighting.INVERSE_S2: "weighted 1/s² (replicate standard deviations)",
+        }[self]
+
+    @property
+    def uses_concentration(self) -> bool:
+        return self in (Weighting.INVERSE_X, Weighting.INVERSE_X2, Weighting.INVERSE_S2)
+
+
+@dataclass(frozen=True, eq=False)
+class WeightModel:
+    """The weighting of a fitted calibration, able to weigh new responses on the same scale.
+
+    ``weights`` are the standards' weights (Σw = n); ``normaliser`` is the factor k that turned the
+    raw weights (1/x, 1/y², …) into them.
+    """
+
+    weighting: Weighting
+    weights: FloatArray
+    normaliser: float
+    lowest_concentration: float
+    lowest_response: float
+    level_concentration: FloatArray
+    level_sd: FloatArray
+
+    def weight_at(self, concentration: FloatArray, response: FloatArray) -> FloatArray:
+        """Weight of one new response at ``concentration`` with measured ``response``.
+
+        Both arrays broadcast together; the result has their broadcast shape.
+        """
+        x = np.asarray(concentration, dtype=np.float64)
+        y = np.asarray(response, dtype=np.float64)
+        shape = np.broadcast_shapes(x.shape, y.shape)
+        k = self.normaliser
+        match self.weighting:
+            case Weighting.NONE:
+                return np.ones(shape)
+            case Weighting.INVERSE_X:
+                return np.broadcast_to(k / np.maximum(x, self.lowest_concentration), shape)
+            case Weighting.INVERSE_X2:
+                return np.broadcast_to(k / np.maximum(x, self.lowest_concentration) ** 2, shape)
+            case Weighting.INVERSE_Y:
+                return np.broadcast_to(k / np.maximum(y, self.lowest_response), shape)
+            case Weighting.INVERSE_Y2:
+                return np.broadcast_to(k / np.maximum(y, self.lowest_response) ** 2, shape)
+            case Weighting.INVERSE_S2:
+                sd = np.interp(x, self.level_concentration, self.level_sd)
+                return np.broadcast_to(k / sd**2, shape)
+        raise AssertionError(self.weighting)  # pragma: no cover - every member is matched
+
+
+def make_weights(
+    weighting: Weighting,
+    concentration: FloatArray,
+    response: FloatArray,
+    levels: Levels,
+    response_sd: FloatArray | None = None,
+) -> WeightModel:
+    """Compute the standards' weights for ``weighting``, refusing data it cannot apply to."""
+    n = concentration.size
+    level_sd = np.full(levels.n_levels, np.nan)
+    if weighting in (Weighting.INVERSE_X, Weighting.INVERSE_X2):
+        bad = np.flatnonzero(concentration <= 0)
+        if bad.size:
+            i = int(bad[0])
+            raise WeightingError(
+                f"weighting {weighting.value}: standard {i + 1} has concentration "
+                f"{concentration[i]:g}; 1/x-type weights need every concentration above zero "
+                "(leave blanks out of the fit or choose another weighting)."
+            )
+    if weighting in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2):
+        bad = np.flatnonzero(response <= 0)
+        if bad.size:
+            i = int(bad[0])
+            raise WeightingError(
+                f"weighting {weighting.value}: standard {i + 1} has response {response[i]:g}; "
+                "1/y-type weights need every response above zero."
+            )
+    match weighting:
+        case Weighting.NONE:
+            raw = np.ones(n)
+        case Weighting.INVERSE_X:
+            raw = 1.0 / concentration
+        case Weighting.INVERSE_X2:
+            raw = 1.0 / concentration**2
+        case Weighting.INVERSE_Y:
+            raw = 1.0 / response
+        case Weighting.INVERSE_Y2:
+            raw = 1.0 / response**2
+        case Weighting.INVERSE_S2:
+            sd_per_standard, level_sd = _standard_deviations(concentration, response, levels, response_sd)
+            raw = 1.0 / sd_per_standard**2
+    normaliser = n / float(raw.sum())
+    lowest = int(np.argmin(concentration))
+    return WeightModel(
+        weighting=weighting,
+        weights=frozen(raw * normaliser),
+        normaliser=normaliser,
+        lowest_concentration=float(concentration[lowest]),
+        lowest_response=float(np.min(response)),
+        level_concentration=frozen(levels.concentration.copy()),
+        level_sd=frozen(level_sd),
+    )
+
+
+def _standard_deviations(
+    concentration: FloatArray,
+    response: FloatArray,
+    levels: Levels,
+    response_sd: FloatArray | None,
+) -> tuple[FloatArray, FloatArray]:
+    """SD of each standard's response for 1/s² weighting, and the SD of each level."""
+    if response_sd is not None:
+        sd = as_finite_vector(response_sd, "response SD", WeightingError)
+        if sd.size != concentration.size:
+            raise WeightingError(
+                f"response SD: {sd.size} values given for {concentration.size} standards; "
+                "give one standard deviation per standard."
+            )
+        bad = np.flatnonzero(sd <= 0)
+        if bad.size:
+            i = int(bad[0])
+            raise WeightingError(
+                f"response SD: standard {i + 1} has SD {sd[i]:g}; 1/s² weights need every SD above zero."
+            )
+        return sd, levels.level_means(sd)
+    single = np.flatnonzero(levels.count < 2)
+    if single.size:
+        j = int(single[0])
+        raise WeightingError(
+            f"weighting 1/s^2: the level at concentration {levels.concentration[j]:g} has "
+            f"{int(levels.count[j])} standard; 1/s² needs at least 2 replicates at every level "
+            "(or give the response SDs)."
+        )
+    level_sd = levels.level_sd(response)
+    zero = np.flatnonzero(level_sd <= 0)
+    if zero.size:
+        j = int(zero[0])
+        raise WeightingError(
+            f"weighting 1/s^2: the replicates at concentration {levels.concentration[j]:g} are all "
+            "identical, so their SD is zero and cannot give a weight."
+        )
+    return level_sd[levels.index], level_sd
