@@ -36,7 +36,7 @@ def as_finite_vector(
     if bad.size:
         first = int(bad[0])
         raise error(
-            f"{field}: {item} {first + 1} is {array[first]!r}; every value must be a finite number"
+            f"{field}: {item} {first + 1} is {float(array[first])!r}; every value must be a finite number"
             + (f" ({bad.size} such values in all)." if bad.size > 1 else ".")
         )
     return array

@@ -47,6 +47,8 @@ if TYPE_CHECKING:  # pragma: no cover
 INTERVAL_METHODS = ("band", "symmetric")
 SEARCH_HALF_RANGES = 200.0
 """How far beyond x̂ the band inversion looks for the interval's ends, in half-ranges of the standards."""
+RANGE_SLACK = 1e-9
+"""Fraction of the calibrated span allowed for round-off when testing whether x̂ is in range."""
 _GRID = np.geomspace(1e-9, 1.0, 72)
 _BISECTION_STEPS = 64
 
@@ -160,6 +162,9 @@ def quantify(
             limits_note = f"LOD/LOQ flags not set: {exc}"
 
     low, high = cal.calibrated_range
+    # Round-off must not push a response read at exactly an end standard outside the range.
+    slack = RANGE_SLACK * (high - low)
+    low, high = low - slack, high + slack
     bits = np.zeros(y0.size, dtype=np.int64)
     solved = ~no_solution
     bits |= np.where(solved & (x_hat < low), int(QuantFlag.BELOW_RANGE), 0)
@@ -201,7 +206,7 @@ def _replicate_counts(replicates: object, k: int) -> np.ndarray:
     if bad.size:
         i = int(bad[0])
         raise QuantitationInputError(
-            f"replicates: unknown {i + 1} has {counts[i]!r}; the number of replicate responses "
+            f"replicates: unknown {i + 1} has {counts[i].item()!r}; the number of replicate responses "
             "averaged must be a whole number of at least 1."
         )
     return as_float.astype(np.int64)

@@ -1,0 +1,91 @@
+"""Model comparison: every candidate side by side, a recommendation with reasons."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+import curvewright as cw
+from tests.conftest import load_strd
+
+
+def test_pontius_recommends_the_quadratic() -> None:
+    # NIST Pontius: the straight line fails lack of fit (F = 214.7, NIST e-Handbook §4.6.1.5).
+    x, y = load_strd("nist_strd_pontius.csv")
+    result = cw.compare(x, y, weightings=("none",))
+    assert result.recommended.model is cw.Model.QUADRATIC
+    assert any("lack-of-fit" in r and "significant" in r for r in result.reasons)
+    # Mandel's PG on Pontius, recomputed with numpy/scipy: 4218.5.
+    assert result.mandel[0].statistic == pytest.approx(4218.5, rel=1e-4)
+
+
+def test_mandel_equals_partial_f_of_the_square_term() -> None:
+    # ISO 8466-1 Mandel statistic equals the partial F of x² (extra sum of squares).
+    x, y = load_strd("nist_strd_pontius.csv")
+    lin, quad = cw.fit(x, y), cw.fit(x, y, "quadratic")
+    partial_f = (lin.sse - quad.sse) / (quad.sse / quad.df_residual)
+    assert cw.mandel_test(lin, quad).statistic == pytest.approx(partial_f, rel=1e-12)
+    # and t² of the b2 coefficient
+    t = quad.coefficients[2] / quad.standard_errors[2]
+    assert cw.mandel_test(lin, quad).statistic == pytest.approx(t**2, rel=1e-9)
+
+
+def invented_wide_range_run(seed: int = 11) -> tuple[np.ndarray, np.ndarray]:
+    """An invented LC-MS style curve over three decades with 5 % relative scatter, triplicates."""
+    rng = np.random.default_rng(seed)
+    x = np.repeat([1.0, 2.0, 5.0, 20.0, 100.0, 250.0, 500.0, 1000.0], 3)
+    return x, (0.002 + 0.0125 * x) * (1 + 0.05 * rng.standard_normal(x.size))
+
+
+def test_heteroscedastic_data_get_a_weighted_recommendation() -> None:
+    x, y = invented_wide_range_run()
+    result = cw.compare(x, y, profile="ich-m10-chromatographic")
+    assert result.variance.heteroscedastic is True
+    assert result.variance.end_levels.available and result.variance.end_levels.significant
+    assert result.recommended.weighting in (cw.Weighting.INVERSE_X2, cw.Weighting.INVERSE_Y2, cw.Weighting.INVERSE_S2)
+    assert result.recommended.model is cw.Model.LINEAR
+    assert any("weighting is needed" in r for r in result.reasons)
+    labels = {(c.model, c.weighting) for c in result.candidates}
+    assert len(labels) == 12 and not result.skipped
+    unweighted = result.candidate("linear", "none")
+    assert unweighted.sum_abs_relative_error > result.recommended.sum_abs_relative_error
+
+
+def test_without_replicates_the_fit_stays_unweighted_and_says_why(fluorescence) -> None:
+    result = cw.compare(*fluorescence, include_proportional=True)
+    assert result.variance.heteroscedastic is None
+    assert result.recommended.model is cw.Model.LINEAR
+    assert result.recommended.weighting is cw.Weighting.NONE
+    assert any("replicate the lowest and highest" in r for r in result.reasons)
+    # The zero standard rules out 1/x weights and the missing replicates rule out 1/s²: listed, not dropped.
+    skipped = {(s.model, s.weighting) for s in result.skipped}
+    assert (cw.Model.LINEAR, cw.Weighting.INVERSE_X) in skipped
+    assert (cw.Model.LINEAR, cw.Weighting.INVERSE_S2) in skipped
+    assert all(s.reason for s in result.skipped)
+    assert any(c.model is cw.Model.PROPORTIONAL for c in result.candidates)
+    assert result.recommended.model is not cw.Model.PROPORTIONAL
+
+
+def test_candidate_statistics_are_the_calibrations_own() -> None:
+    x, y = invented_wide_range_run()
+    result = cw.compare(x, y)
+    for c in result.candidates:
+        cal = cw.fit(x, y, c.model, c.weighting)
+        assert c.residual_sd == pytest.approx(cal.residual_sd, rel=1e-12)
+        assert c.adjusted_r_squared == pytest.approx(cal.adjusted_r_squared, rel=1e-12)
+        assert c.aicc is not None and np.isfinite(c.aicc)
+
+
+def test_variance_tests_against_scipy() -> None:
+    from scipy import stats
+
+    x, y = invented_wide_range_run()
+    evidence = cw.compare(x, y).variance
+    groups = [y[x == level] for level in np.unique(x)]
+    assert evidence.bartlett.statistic == pytest.approx(stats.bartlett(*groups).statistic, rel=1e-12)
+    assert evidence.brown_forsythe.p_value == pytest.approx(stats.levene(*groups, center="median").pvalue, rel=1e-12)
+    low, high = groups[0], groups[-1]
+    f = np.var(high, ddof=1) / np.var(low, ddof=1)
+    assert evidence.end_levels.statistic == pytest.approx(f, rel=1e-12)
+    # ISO 8466-1 quotes F(9, 9; 99 %) = 5.35 for its ten-replicate design; scipy gives the same.
+    assert stats.f.ppf(0.99, 9, 9) == pytest.approx(5.35, abs=0.005)

@@ -1,0 +1,121 @@
+"""One contract every model × weighting must keep (round trip, intervals, scale, refusals)."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+import curvewright as cw
+
+MODELS = ["linear", "quadratic", "proportional"]
+WEIGHTINGS = ["none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2"]
+CASES = [(m, w) for m in MODELS for w in WEIGHTINGS]
+
+
+def standards(model: str, seed: int = 3) -> tuple[np.ndarray, np.ndarray]:
+    """Invented standards: 7 levels × 3 replicates from 2 to 200 units, 2 % relative scatter."""
+    rng = np.random.default_rng(seed)
+    x = np.repeat([2.0, 5.0, 10.0, 20.0, 50.0, 100.0, 200.0], 3)
+    truth = {"linear": 1.5 + 3.0 * x, "quadratic": 1.5 + 3.0 * x - 0.004 * x**2, "proportional": 3.0 * x}[model]
+    return x, truth * (1 + 0.02 * rng.standard_normal(x.size))
+
+
+@pytest.fixture(scope="module", params=CASES, ids=[f"{m}-{w}" for m, w in CASES])
+def calibration(request) -> cw.Calibration:
+    model, weighting = request.param
+    return cw.fit(*standards(model), model, weighting)
+
+
+def test_round_trip_inside_the_range(calibration: cw.Calibration) -> None:
+    x = np.linspace(2.0, 200.0, 41)
+    q = calibration.quantify(calibration.predict(x))
+    np.testing.assert_allclose(q.estimate, x, rtol=1e-11, atol=1e-11)
+    assert all(cw.QuantFlag.IN_RANGE in f for f in q.flags)
+
+
+def test_interval_contains_estimate_and_narrows_with_replicates(calibration: cw.Calibration) -> None:
+    y0 = calibration.predict(np.array([3.0, 30.0, 150.0]))
+    widths = []
+    for m in (1, 2, 4, 8):
+        for method in ("band", "symmetric"):
+            q = calibration.quantify(y0, replicates=m, interval=method)
+            assert np.all(q.lower < q.estimate) and np.all(q.estimate < q.upper)
+        widths.append(calibration.quantify(y0, replicates=m).upper - calibration.quantify(y0, replicates=m).lower)
+    assert np.all(np.diff(np.array(widths), axis=0) < 0)
+
+
+def test_result_is_immutable(calibration: cw.Calibration) -> None:
+    with pytest.raises(ValueError):
+        calibration.coefficients[0] = 1.0
+    with pytest.raises(AttributeError):
+        calibration.residual_sd = 0.0  # type: ignore[misc]
+    q = calibration.quantify([100.0])
+    with pytest.raises(ValueError):
+        q.estimate[0] = 0.0
+
+
+def test_non_finite_responses_are_refused(calibration: cw.Calibration) -> None:
+    with pytest.raises(cw.QuantitationInputError, match="unknown 2"):
+        calibration.quantify([10.0, np.nan])
+
+
+@pytest.mark.parametrize("model, weighting", CASES)
+@pytest.mark.parametrize("x_power, y_power", [(3, 0), (0, -4), (-6, 5)])
+def test_rescaling_units_rescales_results(model: str, weighting: str, x_power: int, y_power: int) -> None:
+    x, y = standards(model)
+    kx, ky = 10.0**x_power, 10.0**y_power
+    base = cw.fit(x, y, model, weighting)
+    scaled = cw.fit(x * kx, y * ky, model, weighting)
+    powers = np.arange(base.coefficients.size)
+    np.testing.assert_allclose(scaled.coefficients, base.coefficients * ky / kx**powers, rtol=1e-9, atol=1e-300)
+    np.testing.assert_allclose(scaled.standard_errors, base.standard_errors * ky / kx**powers, rtol=1e-9, atol=1e-300)
+    assert scaled.residual_sd == pytest.approx(base.residual_sd * ky, rel=1e-9)
+    assert scaled.r_squared == pytest.approx(base.r_squared, rel=1e-12)
+    np.testing.assert_allclose(scaled.leverage, base.leverage, rtol=1e-9)
+    np.testing.assert_allclose(scaled.cooks_distance, base.cooks_distance, rtol=1e-7)
+    np.testing.assert_allclose(scaled.relative_error, base.relative_error, rtol=1e-7, atol=1e-9)
+    y0 = base.predict(np.array([4.0, 60.0]))
+    a, b = base.quantify(y0), scaled.quantify(y0 * ky)
+    for name in ("estimate", "standard_error", "lower", "upper"):
+        np.testing.assert_allclose(getattr(b, name), getattr(a, name) * kx, rtol=1e-8)
+    la, lb = base.limits(), scaled.limits()
+    assert lb.lod == pytest.approx(la.lod * kx, rel=1e-9)
+
+
+@settings(max_examples=60, deadline=None)
+@given(
+    slope=st.floats(0.05, 50.0),
+    intercept=st.floats(-5.0, 5.0),
+    noise=st.floats(1e-4, 0.05),
+    seed=st.integers(0, 2**31 - 1),
+    fraction=st.floats(0.0, 1.0),
+)
+def test_quantify_inverts_predict_for_random_lines(slope, intercept, noise, seed, fraction) -> None:
+    rng = np.random.default_rng(seed)
+    x = np.repeat([1.0, 2.0, 4.0, 8.0, 16.0], 2)
+    y = intercept + slope * x + noise * slope * rng.standard_normal(x.size)
+    cal = cw.fit(x, y)
+    x0 = 1.0 + 15.0 * fraction
+    q = cal.quantify([cal.predict(x0)], replicates=3)
+    assert q.estimate[0] == pytest.approx(x0, rel=1e-9, abs=1e-9)
+    assert q.lower[0] <= q.estimate[0] <= q.upper[0]
+
+
+@settings(max_examples=40, deadline=None)
+@given(
+    curvature=st.floats(-0.02, 0.02),
+    seed=st.integers(0, 2**31 - 1),
+    fraction=st.floats(0.0, 1.0),
+)
+def test_quantify_inverts_predict_for_random_quadratics(curvature, seed, fraction) -> None:
+    rng = np.random.default_rng(seed)
+    x = np.repeat([1.0, 3.0, 6.0, 10.0, 15.0, 20.0], 2)
+    y = 0.3 + 2.0 * x + curvature * x**2
+    y = y * (1 + 0.01 * rng.standard_normal(x.size))
+    cal = cw.fit(x, y, "quadratic")
+    x0 = 1.0 + 19.0 * fraction
+    q = cal.quantify([cal.predict(x0)])
+    if cw.QuantFlag.AMBIGUOUS_ROOT not in q.flags[0]:
+        assert q.estimate[0] == pytest.approx(x0, rel=1e-8, abs=1e-8)

@@ -1,0 +1,73 @@
+"""Detection limits and the grouping of standards into levels."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from scipy import stats
+
+import curvewright as cw
+from curvewright.core.levels import group_levels
+
+
+def test_intercept_sd_method(fluorescence) -> None:
+    cal = cw.fit(*fluorescence)
+    limits = cal.limits("intercept_sd")
+    assert limits.sigma == pytest.approx(cal.standard_errors[0], rel=1e-15)
+    assert limits.lod == pytest.approx(3.3 * cal.standard_errors[0] / cal.coefficients[1], rel=1e-14)
+    assert "intercept" in limits.description
+
+
+def test_iso11843_against_its_formula(fluorescence) -> None:
+    # ISO 11843-2 (formula recalled, not re-read): x_c = t(0.95; ν)·(σ/b)·q, x_d = δ·(σ/b)·q with δ the
+    # non-centrality for which the non-central t has its 5 % quantile at t(0.95; ν).
+    x, y = fluorescence
+    cal = cw.fit(x, y)
+    limits = cal.limits("iso11843")
+    nu = x.size - 2
+    q = np.sqrt(1 + 1 / x.size + x.mean() ** 2 / np.sum((x - x.mean()) ** 2))
+    t = stats.t.ppf(0.95, nu)
+    factor = cal.residual_sd / cal.coefficients[1] * q
+    assert limits.critical_concentration == pytest.approx(t * factor, rel=1e-12)
+    delta = limits.lod / factor
+    assert stats.nct.cdf(t, nu, delta) == pytest.approx(0.05, abs=1e-10)
+    # The common approximation δ ≈ 2t (for α = β) is close but not equal (common practice).
+    assert delta == pytest.approx(2 * t, rel=0.1)
+    assert limits.loq is None and "ISO 11843-2" in limits.description
+
+
+def test_iso11843_refuses_weighted_fits() -> None:
+    cal = cw.fit([1, 2, 4, 8, 16], [0.11, 0.2, 0.41, 0.79, 1.62], weighting="1/x")
+    with pytest.raises(cw.LimitsError, match="unweighted straight line"):
+        cal.limits("iso11843")
+
+
+def test_weighted_residual_sd_method_uses_the_low_end() -> None:
+    x = np.array([1, 2, 4, 8, 16.0])
+    cal = cw.fit(x, [0.11, 0.2, 0.41, 0.79, 1.62], weighting="1/x^2")
+    limits = cal.limits()
+    assert limits.sigma == pytest.approx(cal.residual_sd / np.sqrt(cal.weights[0]), rel=1e-12)
+    assert "lowest standard" in limits.description
+
+
+def test_unknown_limits_method() -> None:
+    with pytest.raises(cw.LimitsError, match="not one of"):
+        cw.fit([1, 2, 4], [1, 2, 4.1]).limits("signal_to_noise")
+
+
+def test_levels_group_standards_made_up_by_mass() -> None:
+    levels = group_levels(np.array([0.0, 0.0, 1.002, 0.999, 1.0, 5.01, 4.99, 10.0]))
+    assert levels.n_levels == 4
+    assert levels.count.tolist() == [2, 3, 2, 1]
+    assert levels.concentration[1] == pytest.approx(1.000333, rel=1e-5)
+
+
+def test_exact_levels_only_with_zero_tolerance() -> None:
+    assert group_levels(np.array([1.0, 1.001, 1.0]), 0.0).n_levels == 2
+
+
+def test_inexact_replicates_still_give_lack_of_fit() -> None:
+    x = [1.001, 0.998, 2.003, 1.996, 5.0, 5.02, 10.01, 9.98]
+    y = [1.02, 0.99, 2.03, 1.98, 5.1, 5.0, 9.9, 10.1]
+    lof = cw.fit(x, y).lack_of_fit
+    assert lof.available and lof.df_pure_error == 4 and lof.df_lack_of_fit == 2
