@@ -20,6 +20,8 @@ from .levels import Levels
 
 ISO_8466_LEVEL = 0.99
 """Confidence level of the ISO 8466-1 variance F-test (ISO 8466-1)."""
+LOW_POWER_DF = 4
+"""Below this many degrees of freedom at an end level, say that the F-test has little power (common practice)."""
 ACROSS_LEVELS_ALPHA = 0.05
 """Significance level for the tests across all replicated levels (common practice)."""
 
@@ -66,6 +68,8 @@ def variance_evidence(response: FloatArray, levels: Levels) -> VarianceEvidence:
             f"{'>' if hetero else '≤'} F({end.df[0]}, {end.df[1]}; 99 %) = {end.critical_value:.4g}: the variance "
             + ("changes across the range" if hetero else "shows no significant change across the range")
         )
+        if min(end.df or (0,)) < LOW_POWER_DF:
+            summary += f" (with {min(end.df or (0,)) + 1} replicates at an end the test has little power)"
     elif brown.available:
         hetero = bool(brown.significant)
         summary = (
