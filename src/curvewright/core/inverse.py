@@ -33,6 +33,7 @@ from functools import cached_property
 from typing import TYPE_CHECKING
 
 import numpy as np
+from numpy.polynomial.polynomial import polyval
 from scipy import stats
 
 from ._arrays import FloatArray, as_finite_vector, frozen
@@ -50,7 +51,7 @@ SEARCH_HALF_RANGES = 200.0
 RANGE_SLACK = 1e-9
 """Fraction of the calibrated span allowed for round-off when testing whether x̂ is in range."""
 _GRID = np.geomspace(1e-9, 1.0, 72)
-_BISECTION_STEPS = 64
+_MAX_REFINE_STEPS = 100
 
 
 class QuantFlag(IntFlag):
@@ -280,8 +281,7 @@ def _band_interval(
     if closed_form:
         z_lo, z_hi = _fieller_z(cal, y0, m, t)
     else:
-        z_lo = _band_edge(cal, y0, m, t, z_hat, no_solution, direction=-1.0)
-        z_hi = _band_edge(cal, y0, m, t, z_hat, no_solution, direction=+1.0)
+        z_lo, z_hi = _band_edges(cal, y0, m, t, z_hat, no_solution)
     to_x = lambda z: cal.basis.centre + cal.basis.scale * z  # noqa: E731
     # scale > 0, so the order of the ends survives the change of variable.
     return to_x(z_lo), to_x(z_hi)
@@ -312,45 +312,89 @@ def _fieller_z(cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float) -> t
     return (-b_quad - root) / (2.0 * a_quad), (-b_quad + root) / (2.0 * a_quad)
 
 
-def _band_excess(cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float, z: FloatArray) -> FloatArray:
+def curve_polynomials(cal: "Calibration") -> tuple[FloatArray, FloatArray]:
+    """Ascending coefficients, in z, of the fitted curve f̂(z) and of its variance φ(z)ᵀ·C·φ(z)."""
+    powers = cal.basis.powers
+    fitted = np.zeros(max(powers) + 1)
+    variance = np.zeros(2 * max(powers) + 1)
+    for i, p in enumerate(powers):
+        fitted[p] = cal.z_coefficients[i]
+        for j, q in enumerate(powers):
+            variance[p + q] += cal.z_covariance[i, j]
+    return fitted, variance
+
+
+def _band_excess(
+    cal: "Calibration",
+    polys: tuple[FloatArray, FloatArray],
+    y0: FloatArray,
+    m: np.ndarray,
+    t: float,
+    z: FloatArray,
+) -> FloatArray:
     """(ȳ₀ − f̂(z))² − t²·(σ²/(m·w) + var f̂(z)); ≤ 0 inside the calibration interval."""
-    phi = np.stack([z**p for p in cal.basis.powers], axis=-1)
-    fitted = phi @ cal.z_coefficients
-    curve_var = np.einsum("...i,ij,...j->...", phi, cal.z_covariance, phi)
+    fitted = polyval(z, polys[0])
+    curve_var = polyval(z, polys[1])
     x = cal.basis.centre + cal.basis.scale * z
     new_var = cal.residual_sd**2 / (m * cal.weight_model.weight_at(x, y0))
     return (y0 - fitted) ** 2 - t * t * (new_var + curve_var)
 
 
-def _band_edge(
+def _band_edges(
     cal: "Calibration",
     y0: FloatArray,
     m: np.ndarray,
     t: float,
     z_hat: FloatArray,
     no_solution: np.ndarray,
-    direction: float,
-) -> FloatArray:
-    """End of the calibration interval on one side of ẑ (vectorised over unknowns)."""
+) -> tuple[FloatArray, FloatArray]:
+    """Both ends of the calibration interval around ẑ, in z (vectorised over unknowns).
+
+    Each side is bracketed on a geometric grid outward from ẑ (the first grid point outside the
+    band), then the crossing is refined by the Illinois variant of regula falsi (Dowell & Jarratt
+    1971, BIT 11:168), which keeps the bracket and converges superlinearly.
+    """
     k = y0.size
-    start = np.where(no_solution, 0.0, z_hat)
-    reach = np.full(k, SEARCH_HALF_RANGES)
+    polys = curve_polynomials(cal)
+    start = np.tile(np.where(no_solution, 0.0, z_hat), 2)
+    direction = np.repeat([-1.0, 1.0], k)
+    yy, mm = np.tile(y0, 2), np.tile(m, 2)
+    reach = np.full(2 * k, SEARCH_HALF_RANGES)
     if cal.model is Model.QUADRATIC and cal.vertex_z is not None:
         towards_vertex = (cal.vertex_z - start) * direction > 0
         reach = np.where(towards_vertex, np.abs(cal.vertex_z - start), reach)
     offsets = reach[:, None] * _GRID[None, :]
-    grid_z = start[:, None] + direction * offsets
-    excess = _band_excess(cal, y0[:, None], m[:, None], t, grid_z)
+    excess = _band_excess(cal, polys, yy[:, None], mm[:, None], t, start[:, None] + direction[:, None] * offsets)
     outside = excess > 0
     closed = outside.any(axis=1)
     first = np.argmax(outside, axis=1)
-    rows = np.arange(k)
-    inner = np.where(first > 0, offsets[rows, np.maximum(first - 1, 0)], 0.0)
-    outer = offsets[rows, first]
-    for _ in range(_BISECTION_STEPS):
-        middle = 0.5 * (inner + outer)
-        out = _band_excess(cal, y0, m, t, start + direction * middle) > 0
-        outer = np.where(out, middle, outer)
-        inner = np.where(out, inner, middle)
-    edge = start + direction * 0.5 * (inner + outer)
-    return np.where(closed, edge, direction * np.inf)
+    rows = np.arange(2 * k)
+    a = np.where(first > 0, offsets[rows, np.maximum(first - 1, 0)], 0.0)
+    b = offsets[rows, first]
+    g_a = np.where(first > 0, excess[rows, np.maximum(first - 1, 0)], _band_excess(cal, polys, yy, mm, t, start))
+    g_b = excess[rows, first]
+    side = 0
+    previous = np.full(2 * k, np.inf)
+    resolution = 4 * np.finfo(float).eps * (np.abs(start) + b)
+    active = closed.copy()
+    for _ in range(_MAX_REFINE_STEPS):
+        if not active.any():
+            break
+        c = b - g_b * (b - a) / (g_b - g_a)
+        c = np.where(np.isfinite(c) & (c > a) & (c < b), c, 0.5 * (a + b))
+        active &= (np.abs(c - previous) > resolution) & (b - a > resolution)
+        previous = c
+        g_c = _band_excess(cal, polys, yy, mm, t, start + direction * c)
+        right = g_c > 0  # c is outside the band: it becomes the outer end
+        a_new = np.where(right, a, c)
+        b_new = np.where(right, c, b)
+        g_a_new = np.where(right, g_a, g_c)
+        g_b_new = np.where(right, g_c, g_b)
+        # Illinois step: halve the value kept at an end that survived twice in a row.
+        side_now = np.where(right, 1, -1)
+        g_a_new = np.where((side_now == 1) & (side == 1), 0.5 * g_a_new, g_a_new)
+        g_b_new = np.where((side_now == -1) & (side == -1), 0.5 * g_b_new, g_b_new)
+        side = side_now
+        a, b, g_a, g_b = a_new, b_new, g_a_new, g_b_new
+    edge = np.where(closed, start + direction * previous, direction * np.inf)
+    return edge[:k], edge[k:]
