@@ -13,11 +13,12 @@ PACKAGE = Path(cw.__file__).parent
 QT_MODULES = ("PySide6", "pyqtgraph", "shiboken6")
 
 
-def test_core_never_imports_qt_when_loaded() -> None:
+def test_core_and_io_never_import_qt_when_loaded() -> None:
     code = (
         "import sys, curvewright, curvewright.core.comparison, curvewright.core.acceptance;"
-        "import pkgutil, importlib, curvewright.core as c;"
+        "import pkgutil, importlib, curvewright.core as c, curvewright.io as i;"
         "[importlib.import_module('curvewright.core.' + m.name) for m in pkgutil.iter_modules(c.__path__)];"
+        "[importlib.import_module('curvewright.io.' + m.name) for m in pkgutil.iter_modules(i.__path__) if m.name != 'report_pdf'];"
         f"bad = [m for m in sys.modules if m.split('.')[0] in {QT_MODULES!r}];"
         "print(bad); sys.exit(1 if bad else 0)"
     )

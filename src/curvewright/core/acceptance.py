@@ -5,7 +5,8 @@ source. A standard passes when |%RE| ≤ its tolerance (the lowest and highest n
 have their own); a level passes when enough of its replicates pass; the calibration passes when
 enough standards and levels pass. Standards of zero nominal concentration (blanks used as a point)
 are not judged, and excluded standards count as not passing — an exclusion never improves the
-fraction of standards that pass (common practice in bioanalytical review).
+fraction of standards that pass (common practice in bioanalytical review) unless the profile says
+``count_excluded_as_failing: false``.
 
 Fractions are kept exact ("2/3", "3/4") so that 4 passing QCs out of 6 meet a two-thirds rule.
 """
@@ -42,6 +43,7 @@ class StandardRules:
     min_levels: int
     min_levels_passing: int
     min_fraction_passing_per_level: Fraction
+    count_excluded_as_failing: bool = True
 
 
 @dataclass(frozen=True)
@@ -98,6 +100,7 @@ class AcceptanceProfile:
             min_levels=_count(s, "min_levels", where),
             min_levels_passing=_count(s, "min_levels_passing", where),
             min_fraction_passing_per_level=_fraction(s, "min_fraction_passing_per_level", where),
+            count_excluded_as_failing=_flag(s, "count_excluded_as_failing", where),
         )
         where = f"{origin} qc"
         qc = QcRules(
@@ -173,7 +176,8 @@ class AcceptanceProfile:
 
         reasons: list[str] = []
         ok = True
-        n_judged = int(judged.sum()) + excluded
+        counted_excluded = excluded if rules.count_excluded_as_failing else 0
+        n_judged = int(judged.sum()) + counted_excluded
         n_pass = int(passing.sum())
         if n_judged == 0:
             raise ProfileError("no standard of non-zero concentration to judge.")
@@ -184,7 +188,8 @@ class AcceptanceProfile:
             f"(±{rules.tolerance_percent:g} %, ±{rules.lowest_level_tolerance_percent:g} % at the lowest "
             f"level, ±{rules.highest_level_tolerance_percent:g} % at the highest); "
             f"{_percent_text(rules.min_fraction_passing)} required"
-            + (f"; {excluded} excluded standard(s) counted as not passing" if excluded else "")
+            + (f"; {excluded} excluded standard(s) counted as not passing" if counted_excluded else "")
+            + (f"; {excluded} excluded standard(s) with recorded reasons not counted" if excluded and not counted_excluded else "")
         )
         level_pass = []
         for j in nonzero_levels:
@@ -319,6 +324,13 @@ def _count(data: Mapping[str, Any], key: str, where: str) -> int:
     value = data.get(key)
     if isinstance(value, bool) or not isinstance(value, int) or value < 0:
         raise ProfileError(f"{where}: '{key}' must be a whole number ≥ 0, found {value!r}.")
+    return value
+
+
+def _flag(data: Mapping[str, Any], key: str, where: str) -> bool:
+    value = data.get(key)
+    if not isinstance(value, bool):
+        raise ProfileError(f"{where}: '{key}' must be true or false, found {value!r}.")
     return value
 
 

@@ -21,8 +21,12 @@ How the recommendation is reached (the simplest adequate model):
 2. Model, under each weighting: the straight line unless its lack-of-fit test (p < 0.05) or
    Mandel's test (p < 0.01) rejects it, and then the quadratic only if it does not turn over
    inside the calibrated range.
-3. Among weightings, when weighting is needed, the smallest Σ|%RE| (Almeida, Castel-Branco &
-   Falcão 2002, J. Chromatogr. B 774:215), the simpler weighting winning ties within 1 %.
+3. Among weightings, when weighting is needed: where replicates at three or more levels show how
+   the SD grows (s ∝ x^k, :mod:`.variance`), the weighting that power implies (1/x for k < 0.75,
+   else 1/x²); otherwise the smallest Σ|%RE| (Almeida, Castel-Branco & Falcão 2002,
+   J. Chromatogr. B 774:215), the simpler weighting winning ties within 1 %. 1/s² is recommended
+   only with at least 5 replicates at every level: weights from fewer replicates are too imprecise
+   (common practice; Tellinghuisen 2007).
 The proportional model is listed on request and never recommended: forcing through the origin is a
 decision for the laboratory's procedure; the reasons say when the intercept is indistinguishable
 from zero.
@@ -48,6 +52,10 @@ LACK_OF_FIT_ALPHA = 0.05
 MANDEL_ALPHA = 0.01
 """Mandel's test at 99 % (ISO 8466-1)."""
 TIE_FRACTION = 0.01
+MIN_REPLICATES_FOR_S2 = 5
+"""Replicates per level below which 1/s² weights are not recommended (common practice)."""
+POWER_BOUNDARY = 0.75
+"""SD power k below which 1/x rather than 1/x² is implied (midway between 0.5 and 1)."""
 """Σ|%RE| values within 1 % of each other count as a tie; the simpler weighting wins."""
 
 
@@ -294,24 +302,46 @@ def _recommend(
         return only, reasons + ["only the proportional model could be fitted"]
     if evidence.heteroscedastic and any(w is not Weighting.NONE for w in by_weighting):
         choices = []
+        few_replicates = False
         for w, models in by_weighting.items():
             if w is Weighting.NONE:
                 continue
             choice, _ = _model_for(models, mandel.get(w), w)
+            if w is Weighting.INVERSE_S2 and int(choice.calibration.levels.count.min()) < MIN_REPLICATES_FOR_S2:
+                few_replicates = True
+                continue
             choices.append(choice)
-        best = min(c.sum_abs_relative_error for c in choices)
-        tied = [c for c in choices if c.sum_abs_relative_error <= best * (1 + TIE_FRACTION) + 1e-12]
-        order = list(Weighting)
-        chosen = min(tied, key=lambda c: order.index(c.weighting))
-        reasons.append(
-            "weighting is needed; among weighted candidates "
-            + ", ".join(f"{c.weighting.value} (Σ|%RE| = {c.sum_abs_relative_error:.3g})" for c in choices)
-            + (
-                f"; {chosen.weighting.value} gives the smallest sum of absolute relative errors"
-                if len(tied) == 1
-                else f"; {chosen.weighting.value} is the simplest within {TIE_FRACTION:.0%} of the smallest"
+        if not choices:
+            chosen = next(c for c in candidates if c.weighting is Weighting.INVERSE_S2)
+            reasons.append("weighting is needed and only 1/s² could be fitted")
+        else:
+            listing = ", ".join(f"{c.weighting.value} (Σ|%RE| = {c.sum_abs_relative_error:.3g})" for c in choices)
+            implied = _implied_by_power(evidence)
+            by_power = [c for c in choices if c.weighting is implied]
+            if by_power:
+                chosen = by_power[0]
+                reasons.append(
+                    f"weighting is needed; the replicate SD grows as x^{evidence.sd_power:.2f} over "
+                    f"{evidence.sd_power_levels} levels, which implies {implied.value} weights; "
+                    f"Σ|%RE| of the weighted candidates: {listing}"
+                )
+            else:
+                best = min(c.sum_abs_relative_error for c in choices)
+                tied = [c for c in choices if c.sum_abs_relative_error <= best * (1 + TIE_FRACTION) + 1e-12]
+                order = list(Weighting)
+                chosen = min(tied, key=lambda c: order.index(c.weighting))
+                reasons.append(
+                    "weighting is needed; among weighted candidates " + listing
+                    + (
+                        f"; {chosen.weighting.value} gives the smallest sum of absolute relative errors"
+                        if len(tied) == 1
+                        else f"; {chosen.weighting.value} is the simplest within {TIE_FRACTION:.0%} of the smallest"
+                    )
+                )
+        if few_replicates:
+            reasons.append(
+                f"1/s² is not recommended: fewer than {MIN_REPLICATES_FOR_S2} replicates at a level make its weights imprecise"
             )
-        )
         _, model_reasons = _model_for(by_weighting[chosen.weighting], mandel.get(chosen.weighting), chosen.weighting)
         reasons.extend(model_reasons)
     else:
@@ -336,6 +366,12 @@ def _recommend(
         )
     reasons.extend(_intercept_note(chosen))
     return chosen, reasons
+
+
+def _implied_by_power(evidence: VarianceEvidence) -> Weighting | None:
+    if evidence.sd_power is None:
+        return None
+    return Weighting.INVERSE_X if evidence.sd_power < POWER_BOUNDARY else Weighting.INVERSE_X2
 
 
 def _intercept_note(chosen: Candidate) -> list[str]:

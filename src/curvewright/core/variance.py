@@ -5,7 +5,13 @@
   the standard asks for 10 replicates at each end, where the critical value is F(9, 9; 0.99) = 5.35).
 * Across every replicated level: Bartlett's test (Bartlett 1937, Proc. R. Soc. A 160:268) and the
   Brown–Forsythe test (Levene's test about the median; Brown & Forsythe 1974, JASA 69:364), which
-  is robust to non-normal replicates. Both as implemented by scipy.stats.
+  is robust to non-normal replicates. Both as implemented by scipy.stats. Brown–Forsythe needs at
+  least 3 replicates per level: with duplicates both deviations from the median are equal and the
+  statistic is undefined.
+* How the SD grows: the slope k of log(s) against log(x) over the replicated levels with x > 0
+  (a power variance function, s ∝ x^k; Tellinghuisen 2007, Analyst 132:536, recommends weights
+  from a fitted variance function). k ≈ 1 (constant relative SD) points to 1/x² weights, k ≈ 0.5
+  (Poisson-like counts) to 1/x.
 """
 
 from __future__ import annotations
@@ -53,6 +59,8 @@ class VarianceEvidence:
     brown_forsythe: VarianceTest
     heteroscedastic: bool | None
     summary: str
+    sd_power: float | None = None
+    sd_power_levels: int = 0
 
 
 def variance_evidence(response: FloatArray, levels: Levels) -> VarianceEvidence:
@@ -60,7 +68,12 @@ def variance_evidence(response: FloatArray, levels: Levels) -> VarianceEvidence:
     end = _end_level_test(response, levels)
     groups = [response[levels.index == j] for j in np.flatnonzero(levels.count >= 2)]
     bartlett = _across_levels("Bartlett", groups, stats.bartlett)
-    brown = _across_levels("Brown–Forsythe", groups, lambda *g: stats.levene(*g, center="median"))
+    brown = (
+        _across_levels("Brown–Forsythe", groups, lambda *g: stats.levene(*g, center="median"))
+        if all(g.size >= 3 for g in groups)
+        else VarianceTest("Brown–Forsythe", False, "needs at least 3 replicates at every replicated level")
+    )
+    power, power_levels = _sd_power(response, levels)
     if end.available:
         hetero = bool(end.significant)
         summary = (
@@ -79,7 +92,21 @@ def variance_evidence(response: FloatArray, levels: Levels) -> VarianceEvidence:
     else:
         hetero = None
         summary = "variance homogeneity could not be tested: " + (end.reason or "too few replicates")
-    return VarianceEvidence(end, bartlett, brown, hetero, summary)
+    return VarianceEvidence(end, bartlett, brown, hetero, summary, power, power_levels)
+
+
+def _sd_power(response: FloatArray, levels: Levels) -> tuple[float | None, int]:
+    """Slope of log(SD) on log(concentration) over replicated levels with x > 0 and SD > 0."""
+    sd = levels.level_sd(response)
+    use = (levels.count >= 2) & (levels.concentration > 0) & (np.nan_to_num(sd) > 0)
+    n = int(use.sum())
+    if n < 3:
+        return None, n
+    log_x, log_s = np.log(levels.concentration[use]), np.log(sd[use])
+    if np.ptp(log_x) == 0:
+        return None, n
+    slope = np.polyfit(log_x, log_s, 1)[0]
+    return float(slope), n
 
 
 def _end_level_test(response: FloatArray, levels: Levels) -> VarianceTest:
@@ -113,7 +140,8 @@ def _across_levels(name: str, groups: list[FloatArray], test) -> VarianceTest:  
         return VarianceTest(name, False, "needs at least two replicated levels")
     if any(np.ptp(g) == 0.0 for g in groups):
         return VarianceTest(name, False, "a replicated level has identical replicates (zero variance)")
-    result = test(*groups)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        result = test(*groups)
     stat, p = float(result.statistic), float(result.pvalue)
     if not (np.isfinite(stat) and np.isfinite(p)):
         return VarianceTest(name, False, "the replicates do not allow the test (degenerate spread)")

@@ -1,0 +1,74 @@
+"""Rounding of reported values, done once at the end and only in the "reported" column.
+
+Stored and exported full-precision values are never rounded. A rounding rule keeps either a number
+of significant figures or a number of decimal places, with a stated tie-break: round half up (USP
+General Notices 7.20: look only at the first digit dropped; 5 rounds up) or round half to even.
+Decimal arithmetic on the shortest repr of the double, so 0.145 rounds to 0.15 under half up as a
+reader of the printed value expects (Ph. Eur. example), not to 0.14 as binary round-off would give.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from decimal import ROUND_HALF_EVEN, ROUND_HALF_UP, Decimal
+
+from .errors import CurvewrightError
+
+
+class RoundingError(CurvewrightError, ValueError):
+    """A rounding rule is malformed."""
+
+
+_TIES = {"half_up": ROUND_HALF_UP, "half_even": ROUND_HALF_EVEN}
+
+
+@dataclass(frozen=True)
+class RoundingRule:
+    """``kind`` is "significant" or "decimals"; ``digits`` how many; ``tie`` "half_up" or "half_even"."""
+
+    kind: str = "significant"
+    digits: int = 3
+    tie: str = "half_up"
+
+    def __post_init__(self) -> None:
+        if self.kind not in ("significant", "decimals"):
+            raise RoundingError(f"rounding kind: {self.kind!r} is not 'significant' or 'decimals'.")
+        if isinstance(self.digits, bool) or not isinstance(self.digits, int) or not (0 <= self.digits <= 15):
+            raise RoundingError(f"rounding digits: {self.digits!r} must be a whole number from 0 to 15.")
+        if self.kind == "significant" and self.digits == 0:
+            raise RoundingError("rounding digits: at least 1 significant figure is kept.")
+        if self.tie not in _TIES:
+            raise RoundingError(f"rounding tie-break: {self.tie!r} is not 'half_up' or 'half_even'.")
+
+    @property
+    def description(self) -> str:
+        what = "significant figures" if self.kind == "significant" else "decimal places"
+        tie = "round half up" if self.tie == "half_up" else "round half to even"
+        return f"{self.digits} {what}, {tie}"
+
+    def text(self, value: float) -> str:
+        """``value`` rounded under this rule, as text that keeps trailing zeros ("12.0")."""
+        if not math.isfinite(value):
+            return "" if math.isnan(value) else ("∞" if value > 0 else "−∞")
+        d = Decimal(repr(float(value)))
+        if self.kind == "decimals":
+            exponent = -self.digits
+        else:
+            if d.is_zero():
+                exponent = -(self.digits - 1)
+            else:
+                exponent = d.adjusted() - (self.digits - 1)
+        rounded = d.quantize(Decimal(1).scaleb(exponent), rounding=_TIES[self.tie])
+        if self.kind == "significant" and not rounded.is_zero() and rounded.adjusted() > d.adjusted():
+            # 9.99 → 10.0: the carry added a digit; drop one decimal to keep the figure count.
+            rounded = rounded.quantize(Decimal(1).scaleb(exponent + 1), rounding=_TIES[self.tie])
+        text = format(rounded, "f")
+        if rounded.is_zero() and text.startswith("-"):
+            text = text[1:]  # a rounded −0.00 is reported as 0.00
+        return text
+
+    def value(self, value: float) -> float:
+        """The rounded value as a number (for numeric "reported" cells)."""
+        text = self.text(value)
+        return float(text.replace("∞", "inf").replace("−", "-")) if text else math.nan

@@ -1,0 +1,186 @@
+"""The run: one batch of standards and samples, as plain immutable values.
+
+A run holds one or more analytes, each with its units, its standards and the calibration choices
+made for it, the samples measured in the batch, the settings used to judge them, and the audit
+trail of everything done to it. Every value keeps the text it was entered as, so nothing typed is
+lost; excluding a standard sets a flag with a reason and never removes it.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, replace
+from enum import Enum
+from typing import Any, Mapping
+
+from .errors import CurvewrightError
+from .rounding import RoundingRule
+
+
+class RunError(CurvewrightError, ValueError):
+    """A run is inconsistent (an unknown analyte, a duplicate id…)."""
+
+
+CENSORED_WORDS = ("ND", "BLQ", "BQL", "NQ", "<LOD", "<LOQ", "<LLOQ", ">ULOQ", "NR")
+"""Tokens kept as censored readings rather than numbers (non-detect, below/above limits)."""
+
+
+@dataclass(frozen=True)
+class Reading:
+    """One measured value as entered.
+
+    ``value`` is the number (None when the reading is censored or absent), ``text`` the characters
+    the analyst entered or pasted, ``qualifier`` the censoring sign or word ("<", ">", "ND", "BLQ"…)
+    and, for "<0.5"-style readings, ``limit`` the number after the sign.
+    """
+
+    value: float | None
+    text: str = ""
+    qualifier: str | None = None
+    limit: float | None = None
+
+    @classmethod
+    def of(cls, value: float) -> "Reading":
+        """A plain numeric reading, its text the shortest repr of the number."""
+        return cls(float(value), repr(float(value)))
+
+    @property
+    def is_number(self) -> bool:
+        return self.value is not None and math.isfinite(self.value)
+
+    @property
+    def is_censored(self) -> bool:
+        return self.qualifier is not None
+
+    @property
+    def is_missing(self) -> bool:
+        return self.value is None and self.qualifier is None
+
+
+@dataclass(frozen=True)
+class Standard:
+    """One calibration standard injection of one analyte."""
+
+    id: str
+    concentration: float
+    response: Reading
+    replicate: int = 1
+    level: str = ""
+    included: bool = True
+    exclusion_reason: str = ""
+    internal_standard_response: Reading | None = None
+
+
+class SampleKind(str, Enum):
+    UNKNOWN = "unknown"
+    QC = "qc"
+    BLANK = "blank"
+    CHECK_STANDARD = "check_standard"
+
+    @property
+    def words(self) -> str:
+        return {"unknown": "unknown", "qc": "QC sample", "blank": "blank", "check_standard": "check standard"}[self.value]
+
+
+@dataclass(frozen=True)
+class Measurement:
+    """One replicate response of one analyte in a sample."""
+
+    analyte: str
+    replicate: int
+    response: Reading
+    internal_standard_response: Reading | None = None
+
+
+@dataclass(frozen=True)
+class Sample:
+    """A sample measured in the run: an unknown, a QC sample, a blank or a check standard.
+
+    ``nominal`` holds the known concentration of QC samples and check standards per analyte, as
+    (analyte, concentration) pairs, in the concentration unit of that analyte.
+    """
+
+    id: str
+    kind: SampleKind = SampleKind.UNKNOWN
+    run_order: int | None = None
+    dilution_factor: float = 1.0
+    measurements: tuple[Measurement, ...] = ()
+    nominal: tuple[tuple[str, float], ...] = ()
+
+    def measurements_of(self, analyte: str) -> tuple[Measurement, ...]:
+        return tuple(m for m in self.measurements if m.analyte == analyte)
+
+    def nominal_of(self, analyte: str) -> float | None:
+        for name, value in self.nominal:
+            if name == analyte:
+                return value
+        return None
+
+
+@dataclass(frozen=True)
+class Analyte:
+    """One analyte: units, standards, and the calibration choice with its reason."""
+
+    name: str
+    concentration_unit: str
+    response_unit: str
+    standards: tuple[Standard, ...] = ()
+    model: str = "linear"
+    weighting: str = "none"
+    choice_reason: str = ""
+    uses_internal_standard: bool = False
+
+    def standard(self, standard_id: str) -> Standard:
+        for s in self.standards:
+            if s.id == standard_id:
+                return s
+        raise RunError(f"analyte {self.name!r}: there is no standard with id {standard_id!r}.")
+
+
+@dataclass(frozen=True)
+class RunSettings:
+    """How the run is judged and reported."""
+
+    confidence_level: float = 0.95
+    interval: str = "band"
+    limits_method: str = "residual_sd"
+    acceptance_profile: str = "general"
+    custom_profile: Mapping[str, Any] | None = None
+    rounding: RoundingRule = field(default_factory=RoundingRule)
+    level_tolerance: float = 0.005
+
+
+@dataclass(frozen=True)
+class AuditEntry:
+    """One entry of the append-only audit trail; ``hash`` chains it to the entry before."""
+
+    time_utc: str
+    user: str
+    action: str
+    details: Mapping[str, Any]
+    previous_hash: str
+    hash: str
+
+
+@dataclass(frozen=True)
+class Run:
+    """One analytical batch."""
+
+    name: str
+    analytes: tuple[Analyte, ...]
+    samples: tuple[Sample, ...] = ()
+    settings: RunSettings = field(default_factory=RunSettings)
+    description: str = ""
+    audit: tuple[AuditEntry, ...] = ()
+
+    def analyte(self, name: str) -> Analyte:
+        for a in self.analytes:
+            if a.name == name:
+                return a
+        known = ", ".join(repr(a.name) for a in self.analytes) or "none"
+        raise RunError(f"there is no analyte {name!r} in run {self.name!r} (analytes: {known}).")
+
+    def with_analyte(self, analyte: Analyte) -> "Run":
+        """A copy with the analyte of the same name replaced."""
+        self.analyte(analyte.name)
+        return replace(self, analytes=tuple(analyte if a.name == analyte.name else a for a in self.analytes))

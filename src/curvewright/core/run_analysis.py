@@ -1,0 +1,287 @@
+"""Judging a whole run: fit each analyte as chosen, quantify every sample, apply the profile.
+
+For each analyte the calibration uses the included standards with a numeric response (and, for
+internal-standard calibration, the ratio response/IS response). Each sample's replicate responses
+are averaged (m = number of numeric replicates) and read through the curve; the dilution factor
+multiplies the estimate and both interval ends to give the reported concentration. A censored
+replicate ("ND", "<0.5") gives no numeric result: the sample is reported with its censored text.
+QC samples and check standards are compared with their nominal values (recovery in percent).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
+from .calibration import Calibration, fit
+from .errors import CurvewrightError, LimitsError
+from .inverse import QuantFlag
+from .limits import DetectionLimits
+from .run import Analyte, Reading, Run, SampleKind, Standard
+
+
+@dataclass(frozen=True)
+class SampleResult:
+    """One sample × analyte. Concentrations in the analyte's unit; ``reported_*`` after dilution."""
+
+    sample_id: str
+    kind: SampleKind
+    run_order: int | None
+    analyte: str
+    replicate_responses: tuple[float, ...]
+    mean_response: float | None
+    estimate: float | None
+    standard_error: float | None
+    lower: float | None
+    upper: float | None
+    dilution_factor: float
+    reported: float | None
+    reported_lower: float | None
+    reported_upper: float | None
+    flags: QuantFlag | None
+    note: str
+    nominal: float | None = None
+    recovery_percent: float | None = None
+
+    @property
+    def flag_words(self) -> str:
+        parts = [self.flags.words] if self.flags else []
+        if self.note:
+            parts.append(self.note)
+        return "; ".join(parts)
+
+
+@dataclass(frozen=True)
+class UnusableStandard:
+    standard_id: str
+    reason: str
+
+
+@dataclass(frozen=True, eq=False)
+class AnalyteResult:
+    """Everything judged for one analyte. ``calibration`` is None when no curve could be fitted
+    (``error`` then says why)."""
+
+    analyte: Analyte
+    calibration: Calibration | None
+    error: str | None
+    fitted_standards: tuple[Standard, ...]
+    excluded_standards: tuple[Standard, ...]
+    unusable_standards: tuple[UnusableStandard, ...]
+    limits: DetectionLimits | None
+    limits_note: str | None
+    verdict: AcceptanceVerdict | None
+    qc_verdict: AcceptanceVerdict | None
+    samples: tuple[SampleResult, ...]
+    model_overridden: bool = False
+
+    @property
+    def accepted(self) -> bool:
+        if self.verdict is None or not self.verdict.passed:
+            return False
+        return self.qc_verdict is None or self.qc_verdict.passed
+
+
+@dataclass(frozen=True, eq=False)
+class RunResult:
+    run: Run
+    profile: AcceptanceProfile
+    analytes: tuple[AnalyteResult, ...]
+
+    @property
+    def accepted(self) -> bool:
+        return all(a.accepted for a in self.analytes)
+
+    @property
+    def reasons(self) -> tuple[str, ...]:
+        out = []
+        for a in self.analytes:
+            name = a.analyte.name
+            if a.error:
+                out.append(f"{name}: FAIL: {a.error}")
+                continue
+            for r in a.verdict.reasons if a.verdict else ():
+                out.append(f"{name}: standards: {r}")
+            for r in a.qc_verdict.reasons if a.qc_verdict else ():
+                out.append(f"{name}: QC: {r}")
+        return tuple(out)
+
+    def analyte(self, name: str) -> AnalyteResult:
+        for a in self.analytes:
+            if a.analyte.name == name:
+                return a
+        raise KeyError(name)
+
+
+def run_profile(run: Run) -> AcceptanceProfile:
+    """The acceptance profile a run names (its own embedded profile, or a shipped one by id)."""
+    if run.settings.custom_profile is not None:
+        return AcceptanceProfile.from_mapping(run.settings.custom_profile, "run settings custom_profile")
+    return load_profile(run.settings.acceptance_profile)
+
+
+def analyse_run(
+    run: Run, *, analytes: tuple[str, ...] | None = None, model: str | None = None, weighting: str | None = None
+) -> RunResult:
+    """Fit and quantify every analyte of ``run`` (or those named), optionally overriding the model."""
+    profile = run_profile(run)
+    chosen = run.analytes if analytes is None else tuple(run.analyte(n) for n in analytes)
+    return RunResult(
+        run=run,
+        profile=profile,
+        analytes=tuple(_analyse_analyte(run, a, profile, model, weighting) for a in chosen),
+    )
+
+
+def response_value(reading: Reading, internal_standard: Reading | None, ratio: bool) -> tuple[float | None, str]:
+    """The response used for fitting: the reading, or reading/IS for ratio calibration; a reason if none."""
+    if reading.is_censored:
+        return None, f"response is censored ({reading.text})"
+    if not reading.is_number:
+        return None, "no response recorded"
+    if not ratio:
+        return float(reading.value), ""  # type: ignore[arg-type]
+    if internal_standard is None or not internal_standard.is_number:
+        return None, "no internal-standard response for the ratio"
+    if internal_standard.value <= 0:  # type: ignore[operator]
+        return None, f"internal-standard response {internal_standard.text} is not above zero"
+    return float(reading.value) / float(internal_standard.value), ""  # type: ignore[arg-type]
+
+
+def _analyse_analyte(
+    run: Run, analyte: Analyte, profile: AcceptanceProfile, model: str | None, weighting: str | None
+) -> AnalyteResult:
+    settings = run.settings
+    fitted, excluded, unusable, x, y = [], [], [], [], []
+    for s in analyte.standards:
+        if not s.included:
+            excluded.append(s)
+            continue
+        value, reason = response_value(s.response, s.internal_standard_response, analyte.uses_internal_standard)
+        if value is None:
+            unusable.append(UnusableStandard(s.id, reason))
+            continue
+        fitted.append(s)
+        x.append(s.concentration)
+        y.append(value)
+    use_model = model or analyte.model
+    use_weighting = weighting or analyte.weighting
+    overridden = (model is not None and model != analyte.model) or (
+        weighting is not None and weighting != analyte.weighting
+    )
+    try:
+        cal = fit(x, y, use_model, use_weighting, level_tolerance=settings.level_tolerance)
+    except CurvewrightError as exc:
+        return AnalyteResult(
+            analyte=analyte, calibration=None, error=str(exc), fitted_standards=tuple(fitted),
+            excluded_standards=tuple(excluded), unusable_standards=tuple(unusable), limits=None,
+            limits_note=None, verdict=None, qc_verdict=None, samples=(), model_overridden=overridden,
+        )
+    limits, limits_note = None, None
+    try:
+        limits = cal.limits(settings.limits_method)
+    except LimitsError as exc:
+        limits_note = str(exc)
+    excluded_nonzero = sum(1 for s in excluded if s.concentration != 0) + sum(
+        1 for u in unusable if analyte.standard(u.standard_id).concentration != 0
+    )
+    verdict = profile.evaluate(cal, excluded=excluded_nonzero)
+    samples = _quantify_samples(run, analyte, cal, limits)
+    qc = [s for s in samples if s.kind is SampleKind.QC and s.nominal is not None and s.reported is not None]
+    qc_verdict = profile.evaluate_qc([s.nominal for s in qc], [s.reported for s in qc]) if qc else None
+    return AnalyteResult(
+        analyte=analyte,
+        calibration=cal,
+        error=None,
+        fitted_standards=tuple(fitted),
+        excluded_standards=tuple(excluded),
+        unusable_standards=tuple(unusable),
+        limits=limits,
+        limits_note=limits_note,
+        verdict=verdict,
+        qc_verdict=qc_verdict,
+        samples=samples,
+        model_overridden=overridden,
+    )
+
+
+def _quantify_samples(
+    run: Run, analyte: Analyte, cal: Calibration, limits: DetectionLimits | None
+) -> tuple[SampleResult, ...]:
+    settings = run.settings
+    rows = []
+    means, counts, positions = [], [], []
+    for sample in run.samples:
+        measurements = sample.measurements_of(analyte.name)
+        if not measurements:
+            continue
+        values, notes, censored = [], [], None
+        for m in measurements:
+            value, reason = response_value(m.response, m.internal_standard_response, analyte.uses_internal_standard)
+            if value is None:
+                if m.response.is_censored:
+                    censored = m.response.text
+                notes.append(f"replicate {m.replicate}: {reason}")
+            else:
+                values.append(value)
+        rows.append((sample, tuple(values), "; ".join(notes), censored))
+        if values and censored is None:
+            positions.append(len(rows) - 1)
+            means.append(float(np.mean(values)))
+            counts.append(len(values))
+    quant = (
+        cal.quantify(means, counts, settings.confidence_level, settings.interval, limits) if means else None
+    )
+    index_of = {row: i for i, row in enumerate(positions)}
+    out = []
+    for r, (sample, values, note, censored) in enumerate(rows):
+        nominal = sample.nominal_of(analyte.name)
+        base = dict(
+            sample_id=sample.id,
+            kind=sample.kind,
+            run_order=sample.run_order,
+            analyte=analyte.name,
+            replicate_responses=values,
+            dilution_factor=sample.dilution_factor,
+            nominal=nominal,
+        )
+        i = index_of.get(r)
+        if i is None or quant is None:
+            reason = f"reported as censored: {censored}" if censored else (note or "no numeric response")
+            out.append(
+                SampleResult(
+                    **base, mean_response=None, estimate=None, standard_error=None, lower=None, upper=None,
+                    reported=None, reported_lower=None, reported_upper=None, flags=None,
+                    note=reason if not note or reason == note else f"{reason}; {note}",
+                )
+            )
+            continue
+        df = sample.dilution_factor
+        estimate = _number(quant.estimate[i])
+        reported = None if estimate is None else estimate * df
+        recovery = None
+        if nominal is not None and reported is not None and nominal != 0:
+            recovery = 100.0 * reported / nominal
+        out.append(
+            SampleResult(
+                **base,
+                mean_response=float(quant.mean_response[i]),
+                estimate=estimate,
+                standard_error=_number(quant.standard_error[i]),
+                lower=_number(quant.lower[i]),
+                upper=_number(quant.upper[i]),
+                reported=reported,
+                reported_lower=None if quant.lower[i] != quant.lower[i] else float(quant.lower[i]) * df,
+                reported_upper=None if quant.upper[i] != quant.upper[i] else float(quant.upper[i]) * df,
+                flags=quant.flags[i],
+                note=note,
+                recovery_percent=recovery,
+            )
+        )
+    return tuple(out)
+
+
+def _number(value: float) -> float | None:
+    return None if value != value else float(value)

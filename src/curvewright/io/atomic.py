@@ -1,0 +1,60 @@
+"""Writing files so that a crash or a full disk never leaves a half-written file behind.
+
+The bytes go to a temporary file in the same folder, which is flushed and fsynced and then
+renamed over the target (``os.replace`` is atomic on one file system). The previous version, when
+asked for, is kept beside it as ``NAME.bak``.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import tempfile
+from pathlib import Path
+
+from .errors import ExportError
+
+
+def write_atomically(path: Path, data: bytes, *, keep_backup: bool = False) -> None:
+    """Write ``data`` to ``path`` atomically; raise :class:`ExportError` with the reason on failure."""
+    path = Path(path)
+    folder = path.parent if str(path.parent) else Path(".")
+    try:
+        handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+    except OSError as exc:
+        raise ExportError(f"{path}: cannot write in folder {folder} ({exc.strerror or exc}).") from None
+    try:
+        with os.fdopen(handle, "wb") as stream:
+            stream.write(data)
+            stream.flush()
+            os.fsync(stream.fileno())
+        if keep_backup and path.exists():
+            shutil.copy2(path, backup_path(path))
+        os.replace(temporary, path)
+    except OSError as exc:
+        try:
+            os.unlink(temporary)
+        except OSError:
+            pass
+        raise ExportError(
+            f"{path}: not written ({exc.strerror or exc}); the file may be open in another program or "
+            "the folder not writable. Nothing was lost: the previous file, if any, is unchanged."
+        ) from None
+    _sync_folder(folder)
+
+
+def backup_path(path: Path) -> Path:
+    return Path(path).with_name(Path(path).name + ".bak")
+
+
+def _sync_folder(folder: Path) -> None:
+    try:
+        fd = os.open(folder, os.O_RDONLY)
+    except OSError:
+        return
+    try:
+        os.fsync(fd)
+    except OSError:
+        pass
+    finally:
+        os.close(fd)

@@ -1,0 +1,59 @@
+"""CSV export of the samples table, with its delimiter and decimal mark recorded in the file.
+
+The first two lines start with "#": the caution, then the format (delimiter, decimal mark, text
+protection). Numbers are written at full precision (shortest round-trip repr), with a decimal comma
+when asked; the delimiter then cannot be a comma.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+from pathlib import Path
+
+from .. import CAUTION, __version__
+from ..core.run_analysis import RunResult
+from .atomic import write_atomically
+from .errors import ExportError
+from .result_tables import Table, samples_table
+from .safe_text import csv_safe
+
+DELIMITERS = {",": "comma", ";": "semicolon", "\t": "tab"}
+
+
+def write_csv(result: RunResult, path: str | Path, *, delimiter: str = ",", decimal_mark: str = ".") -> None:
+    write_atomically(Path(path), csv_text(samples_table(result), delimiter=delimiter, decimal_mark=decimal_mark).encode("utf-8"))
+
+
+def csv_text(table: Table, *, delimiter: str = ",", decimal_mark: str = ".") -> str:
+    if delimiter not in DELIMITERS:
+        raise ExportError(f"CSV delimiter: {delimiter!r} is not a comma, semicolon or tab.")
+    if decimal_mark not in (".", ","):
+        raise ExportError(f"CSV decimal mark: {decimal_mark!r} is not '.' or ','.")
+    if delimiter == "," and decimal_mark == ",":
+        raise ExportError("CSV: a decimal comma needs a semicolon or tab delimiter.")
+    out = io.StringIO(newline="")
+    out.write(f"# {CAUTION}\n")
+    out.write(
+        f"# Curvewright {__version__} {table.title.lower()} export; delimiter: {DELIMITERS[delimiter]}; "
+        f"decimal mark: '{decimal_mark}'; text that would start with = + - @ is preceded by an apostrophe\n"
+    )
+    writer = csv.writer(out, delimiter=delimiter, lineterminator="\n", quoting=csv.QUOTE_MINIMAL)
+    writer.writerow([csv_safe(c.heading) for c in table.columns])
+    for row in table.rows:
+        writer.writerow([_field(v, c.kind, decimal_mark) for v, c in zip(row, table.columns)])
+    return out.getvalue()
+
+
+def _field(value: object, kind: str, decimal_mark: str) -> str:
+    if value is None:
+        return ""
+    if isinstance(value, float):
+        text = repr(value)
+    elif isinstance(value, int):
+        text = str(value)
+    else:
+        text = str(value)
+        if kind != "reported":
+            return csv_safe(text)
+    return text.replace(".", ",") if decimal_mark == "," else text

@@ -1,0 +1,223 @@
+"""The results of a run as plain tables: the one source for the workbook, the CSV and the report.
+
+Each table is a title, named columns (with their unit) and rows of plain values: text, numbers at
+full precision, whole numbers, or None for an empty cell. Renderers only lay them out.
+"""
+
+from __future__ import annotations
+
+import json
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from .. import CAUTION, __version__
+from ..core.comparison import mandel_test
+from ..core.calibration import Calibration, fit
+from ..core.errors import CurvewrightError
+from ..core.models import Model
+from ..core.run_analysis import AnalyteResult, RunResult, response_value
+from .audit import verify_chain
+
+Value = str | float | int | None
+
+
+@dataclass(frozen=True)
+class Column:
+    name: str
+    unit: str = ""
+    kind: str = "text"  # text | number | int | reported
+
+    @property
+    def heading(self) -> str:
+        return f"{self.name} ({self.unit})" if self.unit else self.name
+
+
+@dataclass(frozen=True)
+class Table:
+    title: str
+    columns: tuple[Column, ...]
+    rows: tuple[tuple[Value, ...], ...]
+
+
+def interval_words(run_result: RunResult) -> str:
+    s = run_result.run.settings
+    method = "prediction band inverted (Fieller for a straight line)" if s.interval == "band" else "symmetric x̂ ± t·s"
+    return f"{s.confidence_level:.0%} {method}"
+
+
+def samples_table(result: RunResult) -> Table:
+    rule = result.run.settings.rounding
+    unit = {a.analyte.name: a.analyte.concentration_unit for a in result.analytes}
+    columns = (
+        Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Run order", kind="int"),
+        Column("Replicates", kind="int"), Column("Replicate responses"), Column("Mean response", kind="number"),
+        Column("Estimated concentration", kind="number"), Column("Dilution factor", kind="number"),
+        Column("Reported concentration", kind="number"), Column("Reported (rounded)", kind="reported"),
+        Column("Lower limit", kind="number"), Column("Upper limit", kind="number"), Column("Interval"),
+        Column("Unit"), Column("Flags"), Column("Nominal", kind="number"), Column("Recovery (%)", kind="number"),
+    )
+    words = interval_words(result)
+    rows = []
+    for a in result.analytes:
+        for s in a.samples:
+            rows.append((
+                s.sample_id, s.kind.words, s.analyte, s.run_order, len(s.replicate_responses),
+                " | ".join(repr(v) for v in s.replicate_responses), s.mean_response, s.estimate, s.dilution_factor,
+                s.reported, None if s.reported is None else rule.text(s.reported),
+                s.reported_lower, s.reported_upper, words if s.reported is not None else "",
+                unit[s.analyte], s.flag_words, s.nominal, s.recovery_percent,
+            ))
+    return Table("Samples", columns, tuple(rows))
+
+
+def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
+    """Key–value rows describing one analyte's calibration."""
+    cal = a.calibration
+    an = a.analyte
+    rows: list[tuple[Value, ...]] = [
+        ("Run", result.run.name, None), ("Analyte", an.name, None),
+        ("Concentration unit", an.concentration_unit, None), ("Response unit", an.response_unit, None),
+        ("Response used", "analyte/internal-standard ratio" if an.uses_internal_standard else "analyte response", None),
+        ("Software", f"Curvewright {__version__}", None),
+    ]
+    chosen_by = _chooser(result, an.name)
+    model = cal.model.description if cal else an.model
+    rows += [
+        ("Model", model + (" (given for this calculation, not the run's choice)" if a.model_overridden else ""), None),
+        ("Weighting", cal.weighting.description if cal else an.weighting, None),
+        ("Reason for the choice", an.choice_reason or "(none recorded)", None),
+        ("Chosen by", chosen_by, None),
+    ]
+    if cal is None:
+        rows.append(("Calibration", f"not fitted: {a.error}", None))
+        return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value"), Column("Standard error")), tuple(rows))
+    rows.append(("Equation", cal.equation(12), None))
+    for power, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors)):
+        fixed = cal.model is Model.PROPORTIONAL and power == 0
+        rows.append((f"b{power} (coefficient of x^{power})", 0.0 if fixed else float(b), None if fixed else float(se)))
+    for i in range(cal.covariance.shape[0]):
+        for j in range(i + 1, cal.covariance.shape[0]):
+            rows.append((f"covariance(b{i}, b{j})", float(cal.covariance[i, j]), None))
+    lof = cal.lack_of_fit
+    rows += [
+        ("Standards in the fit (n)", cal.n_standards, None), ("Concentration levels", cal.levels.n_levels, None),
+        ("Residual SD", cal.residual_sd, None), ("Residual degrees of freedom", cal.df_residual, None),
+        ("R²", cal.r_squared, None), ("Adjusted R²", cal.adjusted_r_squared, None),
+        ("Lack-of-fit F", lof.f_statistic if lof.available else f"not tested: {lof.reason}", None),
+        ("Lack-of-fit df (lack of fit, pure error)", f"{lof.df_lack_of_fit}, {lof.df_pure_error}" if lof.available else None, None),
+        ("Lack-of-fit p", lof.p_value, None), ("Pure-error SD", lof.pure_error_sd, None),
+    ]
+    mandel = _mandel(cal)
+    rows.append(("Mandel's test PG (ISO 8466-1)", mandel[0], None))
+    rows.append(("Mandel's test p", mandel[1], None))
+    low, high = cal.calibrated_range
+    rows += [("Calibrated range, lowest standard", low, None), ("Calibrated range, highest standard", high, None)]
+    if cal.vertex is not None:
+        rows.append(("Vertex of the quadratic", cal.vertex, None))
+    for note in cal.notes:
+        rows.append(("Note", note, None))
+    if a.limits is not None:
+        rows += [("LOD", a.limits.lod, None), ("LOQ", a.limits.loq if a.limits.loq is not None else "not defined by this method", None),
+                 ("LOD/LOQ method", a.limits.description, None)]
+    else:
+        rows.append(("LOD/LOQ", f"not computed: {a.limits_note}", None))
+    if a.verdict is not None:
+        rows.append(("Acceptance profile", result.profile.name, None))
+        rows.append(("Profile source", result.profile.source, None))
+        rows.append(("Standards verdict", "accepted" if a.verdict.passed else "NOT accepted", None))
+        rows += [("Reason", r, None) for r in a.verdict.reasons]
+    if a.qc_verdict is not None:
+        rows.append(("QC verdict", "accepted" if a.qc_verdict.passed else "NOT accepted", None))
+        rows += [("QC reason", r, None) for r in a.qc_verdict.reasons]
+    for u in a.unusable_standards:
+        rows.append(("Standard not usable", f"{u.standard_id}: {u.reason}", None))
+    return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value"), Column("Standard error")), tuple(rows))
+
+
+def standards_table(a: AnalyteResult) -> Table:
+    cal = a.calibration
+    an = a.analyte
+    columns = (
+        Column("Standard id"), Column("Level"), Column("Replicate", kind="int"),
+        Column("Nominal concentration", an.concentration_unit, "number"), Column("Response as entered"),
+        Column("Response used", kind="number"), Column("Back-calculated", an.concentration_unit, "number"),
+        Column("Relative error (%)", kind="number"), Column("Tolerance (%)", kind="number"), Column("Within limits"),
+        Column("Leverage", kind="number"), Column("Cook's distance", kind="number"),
+        Column("Studentized residual", kind="number"), Column("Influence flags"), Column("Included"), Column("Exclusion reason"),
+    )
+    position = {s.id: i for i, s in enumerate(a.fitted_standards)}
+    rows = []
+    for s in an.standards:
+        used, why = response_value(s.response, s.internal_standard_response, an.uses_internal_standard)
+        base = [s.id, s.level, s.replicate, s.concentration, s.response.text, used]
+        i = position.get(s.id)
+        if cal is not None and i is not None and a.verdict is not None:
+            flags = "; ".join(f.value for f in cal.influence_flags[i])
+            rows.append(tuple(base + [
+                _finite(cal.back_calculated[i]), _finite(cal.relative_error[i]),
+                float(a.verdict.tolerance_percent[i]) if a.verdict.judged[i] else None,
+                ("yes" if a.verdict.passing[i] else "NO") if a.verdict.judged[i] else "not judged (zero concentration)",
+                float(cal.leverage[i]), _finite(cal.cooks_distance[i]), _finite(cal.studentized_residuals[i]),
+                flags, "yes", "",
+            ]))
+            continue
+        back = re_ = None
+        if cal is not None and used is not None:
+            q = cal.quantify([used])
+            back = _finite(q.estimate[0])
+            if back is not None and s.concentration != 0:
+                re_ = 100.0 * (back - s.concentration) / s.concentration
+        reason = s.exclusion_reason if not s.included else f"not usable: {why}"
+        rows.append(tuple(base + [back, re_, None, "excluded" if not s.included else "not usable", None, None, None, "",
+                                  "no", reason]))
+    return Table(f"Standards – {an.name}", columns, tuple(rows))
+
+
+def audit_table(result: RunResult) -> Table:
+    trail = result.run.audit
+    problems = verify_chain(trail)
+    rows: list[tuple[Value, ...]] = [
+        (None, "", "", "chain check", "verified: every entry follows the one before and is unaltered" if not problems
+         else "NOT verified: " + "; ".join(problems), "")
+    ]
+    for i, e in enumerate(trail, start=1):
+        rows.append((i, e.time_utc, e.user, e.action, json.dumps(e.details, ensure_ascii=False, sort_keys=True), e.hash))
+    columns = (Column("Entry", kind="int"), Column("Time (UTC)"), Column("User"), Column("Action"), Column("Details"), Column("SHA-256"))
+    return Table("Audit trail", columns, tuple(rows))
+
+
+def all_tables(result: RunResult) -> tuple[Table, ...]:
+    tables = [samples_table(result)]
+    for a in result.analytes:
+        tables += [calibration_table(a, result), standards_table(a)]
+    tables.append(audit_table(result))
+    return tuple(tables)
+
+
+def caution_line() -> str:
+    return CAUTION
+
+
+def _chooser(result: RunResult, analyte: str) -> str:
+    for e in reversed(result.run.audit):
+        if e.action == "model_chosen" and e.details.get("analyte") == analyte:
+            return f"{e.user}, {e.time_utc}"
+    return "(no choice recorded in the audit trail)"
+
+
+def _mandel(cal: Calibration) -> tuple[Any, Any]:
+    if cal.model is Model.PROPORTIONAL:
+        return "not applicable to a line through the origin", None
+    try:
+        lin = cal if cal.model is Model.LINEAR else fit(cal.concentration, cal.response, "linear", cal.weighting.value)
+        quad = cal if cal.model is Model.QUADRATIC else fit(cal.concentration, cal.response, "quadratic", cal.weighting.value)
+    except CurvewrightError as exc:
+        return f"not computed: {exc}", None
+    test = mandel_test(lin, quad)
+    return test.statistic, test.p_value
+
+
+def _finite(value: float) -> float | None:
+    return float(value) if np.isfinite(value) else None

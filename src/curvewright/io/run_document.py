@@ -1,0 +1,473 @@
+"""Run documents: versioned, human-readable JSON with validation, migrations and atomic saving.
+
+Format ``curvewright-run``, ``schema_version`` 1 (JSON Schema: ``resources/run-document.schema.json``).
+Opening validates everything and reports every problem with its path in the document
+(``analytes[0].standards[3].concentration: expected a number, found "abc"``); it refuses files over
+:data:`MAX_DOCUMENT_BYTES` and only ever parses JSON, never executes anything. Older versions are
+brought up to date by one migration function per format change (:data:`MIGRATIONS`). Saving is
+atomic and keeps the previous version as ``NAME.bak``.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any, Callable, Mapping
+
+from .._version import __version__
+from ..core.acceptance import AcceptanceProfile, available_profiles
+from ..core.errors import CurvewrightError
+from ..core.models import Model
+from ..core.rounding import RoundingRule
+from ..core.run import (
+    Analyte,
+    AuditEntry,
+    Measurement,
+    Reading,
+    Run,
+    RunSettings,
+    Sample,
+    SampleKind,
+    Standard,
+)
+from ..core.weighting import Weighting
+from .atomic import write_atomically
+from .audit import verify_chain
+from .errors import DocumentError
+
+FORMAT = "curvewright-run"
+SCHEMA_VERSION = 1
+MAX_DOCUMENT_BYTES = 64 * 1024 * 1024
+
+Migration = Callable[[dict[str, Any]], dict[str, Any]]
+MIGRATIONS: dict[int, Migration] = {}
+"""``MIGRATIONS[v]`` turns a version-v document into version v + 1. None yet: version 1 is the first."""
+
+
+@dataclass(frozen=True)
+class OpenedRun:
+    """A run read from disk, with what the reader must be told about it."""
+
+    run: Run
+    path: Path | None
+    chain_problems: tuple[str, ...]
+    migrated_from: int | None
+
+    @property
+    def chain_verified(self) -> bool:
+        return not self.chain_problems
+
+
+# --- writing ---------------------------------------------------------------------------------------
+def run_to_mapping(run: Run) -> dict[str, Any]:
+    """The run as JSON-ready data (floats kept exactly: JSON carries their shortest repr)."""
+    s = run.settings
+    return {
+        "format": FORMAT,
+        "schema_version": SCHEMA_VERSION,
+        "software_version": __version__,
+        "name": run.name,
+        "description": run.description,
+        "settings": {
+            "confidence_level": s.confidence_level,
+            "interval": s.interval,
+            "limits_method": s.limits_method,
+            "acceptance_profile": s.acceptance_profile,
+            "custom_profile": None if s.custom_profile is None else dict(s.custom_profile),
+            "rounding": {"kind": s.rounding.kind, "digits": s.rounding.digits, "tie": s.rounding.tie},
+            "level_tolerance": s.level_tolerance,
+        },
+        "analytes": [
+            {
+                "name": a.name,
+                "concentration_unit": a.concentration_unit,
+                "response_unit": a.response_unit,
+                "model": a.model,
+                "weighting": a.weighting,
+                "choice_reason": a.choice_reason,
+                "uses_internal_standard": a.uses_internal_standard,
+                "standards": [
+                    {
+                        "id": st.id,
+                        "level": st.level,
+                        "concentration": st.concentration,
+                        "response": _reading_out(st.response),
+                        "replicate": st.replicate,
+                        "included": st.included,
+                        "exclusion_reason": st.exclusion_reason,
+                        "internal_standard_response": _reading_out(st.internal_standard_response),
+                    }
+                    for st in a.standards
+                ],
+            }
+            for a in run.analytes
+        ],
+        "samples": [
+            {
+                "id": sm.id,
+                "kind": sm.kind.value,
+                "run_order": sm.run_order,
+                "dilution_factor": sm.dilution_factor,
+                "nominal": {name: value for name, value in sm.nominal},
+                "measurements": [
+                    {
+                        "analyte": m.analyte,
+                        "replicate": m.replicate,
+                        "response": _reading_out(m.response),
+                        "internal_standard_response": _reading_out(m.internal_standard_response),
+                    }
+                    for m in sm.measurements
+                ],
+            }
+            for sm in run.samples
+        ],
+        "audit": [
+            {
+                "time_utc": e.time_utc,
+                "user": e.user,
+                "action": e.action,
+                "details": dict(e.details),
+                "previous_hash": e.previous_hash,
+                "hash": e.hash,
+            }
+            for e in run.audit
+        ],
+    }
+
+
+def dumps_run(run: Run) -> str:
+    try:
+        return json.dumps(run_to_mapping(run), indent=1, ensure_ascii=False, allow_nan=False) + "\n"
+    except ValueError as exc:
+        raise DocumentError(f"run {run.name!r} holds a value JSON cannot store ({exc}).") from None
+
+
+def save_run(run: Run, path: str | Path) -> None:
+    """Save atomically, keeping the previous file as ``NAME.bak``."""
+    write_atomically(Path(path), dumps_run(run).encode("utf-8"), keep_backup=True)
+
+
+def _reading_out(reading: Reading | None) -> dict[str, Any] | None:
+    if reading is None:
+        return None
+    out: dict[str, Any] = {"value": reading.value, "text": reading.text}
+    if reading.qualifier is not None:
+        out["qualifier"] = reading.qualifier
+    if reading.limit is not None:
+        out["limit"] = reading.limit
+    return out
+
+
+# --- reading ---------------------------------------------------------------------------------------
+def open_run(path: str | Path) -> OpenedRun:
+    """Read, validate and (if older) migrate a run document."""
+    path = Path(path)
+    try:
+        size = path.stat().st_size
+    except OSError as exc:
+        raise DocumentError(f"{path}: cannot open ({exc.strerror or exc}).") from None
+    if size > MAX_DOCUMENT_BYTES:
+        raise DocumentError(
+            f"{path}: {size / 1e6:.1f} MB is larger than a run document can be "
+            f"({MAX_DOCUMENT_BYTES / 1e6:.0f} MB); it is not opened."
+        )
+    try:
+        raw = path.read_bytes()
+    except OSError as exc:
+        raise DocumentError(f"{path}: cannot read ({exc.strerror or exc}).") from None
+    opened = loads_run(raw, origin=str(path))
+    return OpenedRun(opened.run, path, opened.chain_problems, opened.migrated_from)
+
+
+def loads_run(data: str | bytes, origin: str = "run document") -> OpenedRun:
+    """Parse a run document from its text."""
+    if isinstance(data, bytes):
+        if len(data) > MAX_DOCUMENT_BYTES:
+            raise DocumentError(f"{origin}: larger than a run document can be; it is not opened.")
+        try:
+            data = data.decode("utf-8")
+        except UnicodeDecodeError as exc:
+            raise DocumentError(f"{origin}: not UTF-8 text (byte {exc.start}); a run document is JSON text.") from None
+    try:
+        mapping = json.loads(data, parse_constant=_refuse_constant)
+    except json.JSONDecodeError as exc:
+        raise DocumentError(
+            f"{origin}: not valid JSON at line {exc.lineno}, column {exc.colno} ({exc.msg}); the file may be "
+            "truncated or edited by hand."
+        ) from None
+    except ValueError as exc:
+        raise DocumentError(f"{origin}: {exc}") from None
+    return run_from_mapping(mapping, origin)
+
+
+def run_from_mapping(mapping: Any, origin: str = "run document") -> OpenedRun:
+    if not isinstance(mapping, dict):
+        raise DocumentError(f"{origin}: a run document is a JSON object, found {type(mapping).__name__}.")
+    if mapping.get("format") != FORMAT:
+        raise DocumentError(f"{origin}: not a Curvewright run document ('format' is {mapping.get('format')!r}).")
+    version = mapping.get("schema_version")
+    if isinstance(version, bool) or not isinstance(version, int) or version < 1:
+        raise DocumentError(f"{origin}: 'schema_version' must be a whole number ≥ 1, found {version!r}.")
+    if version > SCHEMA_VERSION:
+        raise DocumentError(
+            f"{origin}: written with schema version {version}, newer than this Curvewright ({__version__}) "
+            f"reads (up to {SCHEMA_VERSION}); open it with a newer version."
+        )
+    migrated_from = version if version < SCHEMA_VERSION else None
+    while version < SCHEMA_VERSION:
+        mapping = MIGRATIONS[version](mapping)
+        version += 1
+        mapping["schema_version"] = version
+    reader = _Reader()
+    run = reader.run(mapping)
+    if reader.problems:
+        raise DocumentError(f"{origin}: the document has {len(reader.problems)} problem(s)", tuple(reader.problems))
+    assert run is not None
+    return OpenedRun(run, None, verify_chain(run.audit), migrated_from)
+
+
+def _refuse_constant(name: str) -> None:
+    raise ValueError(f"{name} is not a number a run document may hold")
+
+
+class _Reader:
+    """Builds the run while collecting every problem with its path."""
+
+    def __init__(self) -> None:
+        self.problems: list[str] = []
+
+    def fail(self, path: str, message: str) -> None:
+        self.problems.append(f"{path}: {message}")
+
+    # typed getters: they record a problem and return a safe default
+    def get(self, obj: Mapping[str, Any], key: str, path: str, kind: str, default: Any = None, required: bool = True) -> Any:
+        where = f"{path}.{key}" if path else key
+        if key not in obj:
+            if required:
+                self.fail(where, "missing")
+            return default
+        value = obj[key]
+        checks: dict[str, Callable[[Any], bool]] = {
+            "text": lambda v: isinstance(v, str),
+            "number": lambda v: isinstance(v, (int, float)) and not isinstance(v, bool) and math.isfinite(v),
+            "number?": lambda v: v is None or (isinstance(v, (int, float)) and not isinstance(v, bool) and math.isfinite(v)),
+            "int": lambda v: isinstance(v, int) and not isinstance(v, bool),
+            "int?": lambda v: v is None or (isinstance(v, int) and not isinstance(v, bool)),
+            "bool": lambda v: isinstance(v, bool),
+            "list": lambda v: isinstance(v, list),
+            "object": lambda v: isinstance(v, dict),
+            "object?": lambda v: v is None or isinstance(v, dict),
+        }
+        if not checks[kind](value):
+            words = {"text": "text", "number": "a finite number", "number?": "a finite number or null",
+                     "int": "a whole number", "int?": "a whole number or null", "bool": "true or false",
+                     "list": "a list", "object": "an object", "object?": "an object or null"}[kind]
+            self.fail(where, f"expected {words}, found {json.dumps(value, ensure_ascii=False)[:60]}")
+            return default
+        return float(value) if kind in ("number",) else value
+
+    def run(self, m: Mapping[str, Any]) -> Run | None:
+        name = self.get(m, "name", "", "text", "")
+        if isinstance(name, str) and not name.strip():
+            self.fail("name", "the run needs a name")
+        settings = self.settings(self.get(m, "settings", "", "object", {}))
+        analytes = tuple(
+            built for i, item in enumerate(self.get(m, "analytes", "", "list", []))
+            if (built := self.analyte(item, f"analytes[{i}]")) is not None
+        )
+        if not analytes and "analytes" in m and isinstance(m["analytes"], list):
+            self.fail("analytes", "the run needs at least one analyte")
+        self.unique([a.name for a in analytes], "analytes", "analyte name")
+        names = {a.name for a in analytes}
+        samples = tuple(
+            built for i, item in enumerate(self.get(m, "samples", "", "list", []))
+            if (built := self.sample(item, f"samples[{i}]", names)) is not None
+        )
+        self.unique([s.id for s in samples], "samples", "sample id")
+        audit = tuple(
+            built for i, item in enumerate(self.get(m, "audit", "", "list", []))
+            if (built := self.entry(item, f"audit[{i}]")) is not None
+        )
+        return Run(
+            name=name,
+            analytes=analytes,
+            samples=samples,
+            settings=settings,
+            description=self.get(m, "description", "", "text", "", required=False),
+            audit=audit,
+        )
+
+    def unique(self, values: list[str], path: str, what: str) -> None:
+        seen: set[str] = set()
+        for i, v in enumerate(values):
+            if v in seen:
+                self.fail(f"{path}[{i}]", f"duplicate {what} {v!r}")
+            seen.add(v)
+
+    def settings(self, m: Mapping[str, Any]) -> RunSettings:
+        p = "settings"
+        level = self.get(m, "confidence_level", p, "number", 0.95)
+        if not (0 < level < 1):
+            self.fail(f"{p}.confidence_level", f"{level!r} must lie between 0 and 1 (e.g. 0.95)")
+            level = 0.95
+        interval = self.get(m, "interval", p, "text", "band")
+        if interval not in ("band", "symmetric"):
+            self.fail(f"{p}.interval", f"{interval!r} is not 'band' or 'symmetric'")
+        limits = self.get(m, "limits_method", p, "text", "residual_sd")
+        if limits not in ("residual_sd", "intercept_sd", "iso11843"):
+            self.fail(f"{p}.limits_method", f"{limits!r} is not 'residual_sd', 'intercept_sd' or 'iso11843'")
+        profile = self.get(m, "acceptance_profile", p, "text", "general")
+        custom = self.get(m, "custom_profile", p, "object?", None, required=False)
+        if custom is not None:
+            try:
+                AcceptanceProfile.from_mapping(custom, f"{p}.custom_profile")
+            except CurvewrightError as exc:
+                self.problems.append(str(exc))
+        elif profile not in available_profiles():
+            self.fail(f"{p}.acceptance_profile", f"{profile!r} is not one of {', '.join(available_profiles())}")
+        rounding_map = self.get(m, "rounding", p, "object", {})
+        rounding = RoundingRule()
+        if rounding_map:
+            try:
+                rounding = RoundingRule(
+                    rounding_map.get("kind", "significant"), rounding_map.get("digits", 3), rounding_map.get("tie", "half_up")
+                )
+            except CurvewrightError as exc:
+                self.fail(f"{p}.rounding", str(exc))
+        tolerance = self.get(m, "level_tolerance", p, "number", 0.005, required=False)
+        if not (0 <= tolerance < 0.5):
+            self.fail(f"{p}.level_tolerance", f"{tolerance!r} must lie from 0 to 0.5")
+            tolerance = 0.005
+        return RunSettings(level, interval, limits, profile, custom, rounding, tolerance)
+
+    def reading(self, m: Any, path: str, required: bool = True) -> Reading | None:
+        if m is None:
+            if required:
+                self.fail(path, "missing reading")
+            return None
+        if not isinstance(m, dict):
+            self.fail(path, f"expected a reading object, found {json.dumps(m)[:40]}")
+            return None
+        value = self.get(m, "value", path, "number?", None)
+        text = self.get(m, "text", path, "text", "")
+        qualifier = self.get(m, "qualifier", path, "text", None, required=False)
+        limit = self.get(m, "limit", path, "number?", None, required=False)
+        if value is None and qualifier is None and text.strip():
+            self.fail(path, f"text {text!r} has neither a value nor a censoring qualifier")
+        return Reading(None if value is None else float(value), text, qualifier, None if limit is None else float(limit))
+
+    def analyte(self, m: Any, path: str) -> Analyte | None:
+        if not isinstance(m, dict):
+            self.fail(path, "expected an analyte object")
+            return None
+        name = self.get(m, "name", path, "text", "")
+        if isinstance(name, str) and not name.strip():
+            self.fail(f"{path}.name", "an analyte needs a name")
+        model = self.get(m, "model", path, "text", "linear")
+        if model not in [x.value for x in Model]:
+            self.fail(f"{path}.model", f"{model!r} is not one of {', '.join(x.value for x in Model)}")
+        weighting = self.get(m, "weighting", path, "text", "none")
+        if weighting not in [x.value for x in Weighting]:
+            self.fail(f"{path}.weighting", f"{weighting!r} is not one of {', '.join(x.value for x in Weighting)}")
+        standards = []
+        for i, s in enumerate(self.get(m, "standards", path, "list", [])):
+            sp = f"{path}.standards[{i}]"
+            if not isinstance(s, dict):
+                self.fail(sp, "expected a standard object")
+                continue
+            included = self.get(s, "included", sp, "bool", True)
+            reason = self.get(s, "exclusion_reason", sp, "text", "")
+            if not included and not reason.strip():
+                self.fail(f"{sp}.exclusion_reason", "an excluded standard needs its reason")
+            replicate = self.get(s, "replicate", sp, "int", 1)
+            if replicate < 1:
+                self.fail(f"{sp}.replicate", f"{replicate} must be 1 or more")
+            standards.append(
+                Standard(
+                    id=self.get(s, "id", sp, "text", f"#{i + 1}"),
+                    concentration=self.get(s, "concentration", sp, "number", 0.0),
+                    response=self.reading(s.get("response"), f"{sp}.response") or Reading(None, ""),
+                    replicate=replicate,
+                    level=self.get(s, "level", sp, "text", "", required=False),
+                    included=included,
+                    exclusion_reason=reason,
+                    internal_standard_response=self.reading(s.get("internal_standard_response"), f"{sp}.internal_standard_response", required=False),
+                )
+            )
+        self.unique([s.id for s in standards], f"{path}.standards", "standard id")
+        return Analyte(
+            name=name,
+            concentration_unit=self.get(m, "concentration_unit", path, "text", ""),
+            response_unit=self.get(m, "response_unit", path, "text", ""),
+            standards=tuple(standards),
+            model=model,
+            weighting=weighting,
+            choice_reason=self.get(m, "choice_reason", path, "text", "", required=False),
+            uses_internal_standard=self.get(m, "uses_internal_standard", path, "bool", False, required=False),
+        )
+
+    def sample(self, m: Any, path: str, analytes: set[str]) -> Sample | None:
+        if not isinstance(m, dict):
+            self.fail(path, "expected a sample object")
+            return None
+        kind_text = self.get(m, "kind", path, "text", "unknown")
+        try:
+            kind = SampleKind(kind_text)
+        except ValueError:
+            self.fail(f"{path}.kind", f"{kind_text!r} is not one of {', '.join(k.value for k in SampleKind)}")
+            kind = SampleKind.UNKNOWN
+        dilution = self.get(m, "dilution_factor", path, "number", 1.0)
+        if dilution <= 0:
+            self.fail(f"{path}.dilution_factor", f"{dilution!r} must be above zero")
+        nominal_map = self.get(m, "nominal", path, "object", {}, required=False)
+        nominal = []
+        for name, value in nominal_map.items():
+            np_ = f"{path}.nominal.{name}"
+            if name not in analytes:
+                self.fail(np_, f"names analyte {name!r}, which the run does not have")
+            if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
+                self.fail(np_, f"expected a finite number, found {json.dumps(value)[:40]}")
+                continue
+            nominal.append((name, float(value)))
+        measurements = []
+        for i, mm in enumerate(self.get(m, "measurements", path, "list", [])):
+            mp = f"{path}.measurements[{i}]"
+            if not isinstance(mm, dict):
+                self.fail(mp, "expected a measurement object")
+                continue
+            analyte = self.get(mm, "analyte", mp, "text", "")
+            if analyte not in analytes:
+                self.fail(f"{mp}.analyte", f"{analyte!r} is not an analyte of this run")
+            measurements.append(
+                Measurement(
+                    analyte=analyte,
+                    replicate=self.get(mm, "replicate", mp, "int", 1),
+                    response=self.reading(mm.get("response"), f"{mp}.response") or Reading(None, ""),
+                    internal_standard_response=self.reading(mm.get("internal_standard_response"), f"{mp}.internal_standard_response", required=False),
+                )
+            )
+        keys = [f"{x.analyte}/{x.replicate}" for x in measurements]
+        self.unique(keys, f"{path}.measurements", "analyte/replicate")
+        return Sample(
+            id=self.get(m, "id", path, "text", ""),
+            kind=kind,
+            run_order=self.get(m, "run_order", path, "int?", None, required=False),
+            dilution_factor=dilution if dilution > 0 else 1.0,
+            measurements=tuple(measurements),
+            nominal=tuple(nominal),
+        )
+
+    def entry(self, m: Any, path: str) -> AuditEntry | None:
+        if not isinstance(m, dict):
+            self.fail(path, "expected an audit entry object")
+            return None
+        return AuditEntry(
+            time_utc=self.get(m, "time_utc", path, "text", ""),
+            user=self.get(m, "user", path, "text", ""),
+            action=self.get(m, "action", path, "text", ""),
+            details=self.get(m, "details", path, "object", {}),
+            previous_hash=self.get(m, "previous_hash", path, "text", ""),
+            hash=self.get(m, "hash", path, "text", ""),
+        )

@@ -1,0 +1,129 @@
+"""The reviewer's workbook: samples, a calibration and a standards sheet per analyte, the audit trail.
+
+Numbers are numeric cells at full double precision (written as their exact shortest repr); the "Reported (rounded)" column holds the
+value rounded under the run's rule, displayed with exactly its digits. Every text cell is a string
+cell, so no cell is ever a formula (:mod:`.safe_text`). The caution stands in the first row of
+every sheet. Written in openpyxl's write-only mode (memory stays flat) and saved atomically.
+"""
+
+from __future__ import annotations
+
+import io
+import math
+import threading
+from contextlib import contextmanager
+from pathlib import Path
+from typing import Callable, Iterator, Iterable
+
+from openpyxl import Workbook
+from openpyxl.cell import WriteOnlyCell
+from openpyxl.styles import Font
+
+from .. import CAUTION
+from ..core.run_analysis import RunResult
+from .atomic import write_atomically
+from .result_tables import Table, Value, all_tables
+from .safe_text import xml_safe
+
+Progress = Callable[[int, int], None]
+_SHEET_FORBIDDEN = str.maketrans({c: "_" for c in "[]:*?/\\"})
+
+
+def write_xlsx(result: RunResult, path: str | Path, *, progress: Progress | None = None) -> None:
+    """Write the workbook for ``result`` to ``path`` atomically."""
+    write_atomically(Path(path), xlsx_bytes(all_tables(result), progress=progress))
+
+
+def xlsx_bytes(tables: Iterable[Table], *, progress: Progress | None = None) -> bytes:
+    # write-only sheets stream their rows as they are appended, so the exact number writer must be
+    # in place for the whole build, not only for the final save
+    with _exact_floats():
+        return _build(list(tables), progress)
+
+
+def _build(tables: list[Table], progress: Progress | None) -> bytes:
+    workbook = Workbook(write_only=True)
+    bold = Font(bold=True)
+    used: set[str] = set()
+    total = sum(len(t.rows) for t in tables)
+    done = 0
+    for table in tables:
+        sheet = workbook.create_sheet(_sheet_name(table.title, used))
+        caution = WriteOnlyCell(sheet, value=CAUTION)
+        caution.font = bold
+        sheet.append([caution])
+        sheet.append([_text_cell(sheet, table.title, bold)])
+        sheet.append([_text_cell(sheet, c.heading, bold) for c in table.columns])
+        kinds = [c.kind for c in table.columns]
+        for row in table.rows:
+            sheet.append([_cell(sheet, value, kind) for value, kind in zip(row, kinds)])
+            done += 1
+            if progress is not None and done % 5000 == 0:
+                progress(done, total)
+    buffer = io.BytesIO()
+    workbook.save(buffer)
+    if progress is not None:
+        progress(total, total)
+    return buffer.getvalue()
+
+
+def _cell(sheet, value: Value, kind: str):  # type: ignore[no-untyped-def]
+    if value is None:
+        return None
+    if isinstance(value, str):
+        if kind == "reported" and value and value.lstrip("-").replace(".", "", 1).isdigit():
+            cell = WriteOnlyCell(sheet, value=float(value))
+            decimals = len(value.split(".", 1)[1]) if "." in value else 0
+            cell.number_format = "0" if decimals == 0 else "0." + "0" * decimals
+            return cell
+        return _text_cell(sheet, value)
+    return float(value) if isinstance(value, float) else value
+
+
+def _text_cell(sheet, text: str, font: Font | None = None):  # type: ignore[no-untyped-def]
+    cell = WriteOnlyCell(sheet, value=xml_safe(text))
+    cell.data_type = "s"  # a string, even when it starts with "=": never a formula
+    if font is not None:
+        cell.font = font
+    return cell
+
+
+def _sheet_name(title: str, used: set[str]) -> str:
+    base = title.translate(_SHEET_FORBIDDEN)[:31]
+    name, n = base, 2
+    while name.lower() in used:
+        suffix = f" ({n})"
+        name = base[: 31 - len(suffix)] + suffix
+        n += 1
+    used.add(name.lower())
+    return name
+
+
+_WRITER_LOCK = threading.Lock()
+
+
+def _exact_number_text(value: object) -> str:
+    """Numbers as their shortest round-trip repr (17 significant digits when needed)."""
+    from openpyxl.compat.numbers import NUMERIC_TYPES
+    from openpyxl.compat.strings import safe_string
+
+    if isinstance(value, NUMERIC_TYPES) and not isinstance(value, bool):
+        number = float(value)
+        if math.isfinite(number):
+            return repr(int(value)) if isinstance(value, int) else repr(number)
+    return safe_string(value)
+
+
+@contextmanager
+def _exact_floats() -> Iterator[None]:
+    """openpyxl writes numbers with 16 significant digits, which changes some doubles in the last
+    bit; while our workbook is saved its cell writer uses the exact repr instead."""
+    from openpyxl.cell import _writer
+
+    with _WRITER_LOCK:
+        original = _writer.safe_string
+        _writer.safe_string = _exact_number_text
+        try:
+            yield
+        finally:
+            _writer.safe_string = original
