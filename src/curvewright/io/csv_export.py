@@ -14,6 +14,7 @@ from pathlib import Path
 from .. import CAUTION, __version__
 from ..core.run_analysis import RunResult
 from .atomic import write_atomically
+from .audit import file_sha256
 from .errors import ExportError
 from .result_tables import Table, samples_table
 from .safe_text import csv_safe
@@ -21,8 +22,11 @@ from .safe_text import csv_safe
 DELIMITERS = {",": "comma", ";": "semicolon", "\t": "tab"}
 
 
-def write_csv(result: RunResult, path: str | Path, *, delimiter: str = ",", decimal_mark: str = ".") -> None:
-    write_atomically(Path(path), csv_text(samples_table(result), delimiter=delimiter, decimal_mark=decimal_mark).encode("utf-8"))
+def write_csv(result: RunResult, path: str | Path, *, delimiter: str = ",", decimal_mark: str = ".") -> str:
+    """Write the samples table as CSV atomically; return the SHA-256 of what was written."""
+    data = csv_text(samples_table(result), delimiter=delimiter, decimal_mark=decimal_mark).encode("utf-8")
+    write_atomically(Path(path), data)
+    return file_sha256(data)
 
 
 def csv_text(table: Table, *, delimiter: str = ",", decimal_mark: str = ".") -> str:

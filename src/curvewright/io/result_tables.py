@@ -118,6 +118,8 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         rows.append(("Vertex of the quadratic", cal.vertex, None))
     for note in cal.notes:
         rows.append(("Note", note, None))
+    rows.append(("Reported values rounded to", result.run.settings.rounding.description, None))
+    rows.append(("Interval", interval_words(result), None))
     if a.limits is not None:
         rows += [("LOD", a.limits.lod, None), ("LOQ", a.limits.loq if a.limits.loq is not None else "not defined by this method", None),
                  ("LOD/LOQ method", a.limits.description, None)]

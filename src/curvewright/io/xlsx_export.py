@@ -22,6 +22,7 @@ from openpyxl.styles import Font
 from .. import CAUTION
 from ..core.run_analysis import RunResult
 from .atomic import write_atomically
+from .audit import file_sha256
 from .result_tables import Table, Value, all_tables
 from .safe_text import xml_safe
 
@@ -29,9 +30,12 @@ Progress = Callable[[int, int], None]
 _SHEET_FORBIDDEN = str.maketrans({c: "_" for c in "[]:*?/\\"})
 
 
-def write_xlsx(result: RunResult, path: str | Path, *, progress: Progress | None = None) -> None:
-    """Write the workbook for ``result`` to ``path`` atomically."""
-    write_atomically(Path(path), xlsx_bytes(all_tables(result), progress=progress))
+def write_xlsx(result: RunResult, path: str | Path, *, progress: Progress | None = None) -> str:
+    """Write the workbook for ``result`` to ``path`` atomically; return the SHA-256 of what was written
+    (for the audit trail's "export written" entry)."""
+    data = xlsx_bytes(all_tables(result), progress=progress)
+    write_atomically(Path(path), data)
+    return file_sha256(data)
 
 
 def xlsx_bytes(tables: Iterable[Table], *, progress: Progress | None = None) -> bytes:
