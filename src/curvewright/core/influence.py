@@ -58,6 +58,7 @@ class Influence:
     studentized_residuals: FloatArray
     cooks_distance: FloatArray
     flags: tuple[tuple[InfluenceFlag, ...], ...]
+    internal_studentized: FloatArray
     leverage_threshold: float
     cooks_threshold: float
 
@@ -111,4 +112,15 @@ def measure_influence(
         flags=tuple(flags),
         leverage_threshold=leverage_threshold,
         cooks_threshold=cooks_threshold,
+        internal_studentized=frozen(internal),
     )
+
+
+def cooks_contour(distance: float, n_parameters: int, leverage: FloatArray) -> FloatArray:
+    """|internally studentized residual| at which Cook's distance equals ``distance`` for each leverage.
+
+    From D = r²·h/(p·(1 − h)): |r| = √(D·p·(1 − h)/h), for 0 < h < 1.
+    """
+    h = np.asarray(leverage, dtype=np.float64)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.sqrt(distance * n_parameters * (1.0 - h) / h)

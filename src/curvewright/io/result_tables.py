@@ -40,6 +40,18 @@ class Table:
     columns: tuple[Column, ...]
     rows: tuple[tuple[Value, ...], ...]
 
+    def select(self, names: tuple[str, ...], title: str | None = None, where: tuple[str, Value] | None = None) -> "Table":
+        """The named columns only (in that order), optionally only rows whose column ``where[0]`` equals ``where[1]``."""
+        index = {c.name: i for i, c in enumerate(self.columns)}
+        missing = [n for n in names if n not in index]
+        if missing:
+            raise KeyError(f"table {self.title!r} has no column {missing[0]!r}")
+        rows = self.rows
+        if where is not None:
+            rows = tuple(r for r in rows if r[index[where[0]]] == where[1])
+        return Table(title or self.title, tuple(self.columns[index[n]] for n in names),
+                     tuple(tuple(r[index[n]] for n in names) for r in rows))
+
 
 def interval_words(run_result: RunResult) -> str:
     s = run_result.run.settings
@@ -160,7 +172,7 @@ def standards_table(a: AnalyteResult) -> Table:
             rows.append(tuple(base + [
                 _finite(cal.back_calculated[i]), _finite(cal.relative_error[i]),
                 float(a.verdict.tolerance_percent[i]) if a.verdict.judged[i] else None,
-                ("yes" if a.verdict.passing[i] else "NO") if a.verdict.judged[i] else "not judged (zero concentration)",
+                ("yes" if a.verdict.passing[i] else "NO") if a.verdict.judged[i] else "not judged (blank)",
                 float(cal.leverage[i]), _finite(cal.cooks_distance[i]), _finite(cal.studentized_residuals[i]),
                 flags, "yes", "",
             ]))
