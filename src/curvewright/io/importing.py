@@ -207,13 +207,14 @@ def import_samples(
 
 def _normalise(header: str) -> tuple[str, str]:
     """(header words in lower case without units, unit text) — "Conc. (ng/mL)" → ("conc.", "ng/mL")."""
-    text = unicodedata.normalize("NFKC", header).strip()
+    text = header.strip()
     unit = ""
     match = re.search(r"[\(\[]([^\)\]]*)[\)\]]\s*$", text)
     if match:
-        unit = match.group(1).strip()
+        unit = match.group(1).strip()  # kept exactly as typed (µ stays the micro sign)
         text = text[: match.start()]
-    return re.sub(r"[\s_]+", " ", text).strip().lower(), unit
+    words = unicodedata.normalize("NFKC", text)
+    return re.sub(r"[\s_]+", " ", words).strip().lower(), unit
 
 
 class _Context:

@@ -1,0 +1,179 @@
+"""The command line: every demo run, JSON equal to the engine, each exit code, the printed record."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import unicodedata
+import sys
+from pathlib import Path
+
+import numpy as np
+import pytest
+from pypdf import PdfReader
+
+import curvewright as cw
+from curvewright import cli
+from curvewright.core.run_analysis import analyse_run
+from curvewright.io.run_document import open_run, save_run
+from tests.io.helpers import DEMO_RUNS, ROOT
+
+
+def run_cli(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess:
+    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
+                          cwd=cwd or ROOT, timeout=300)
+
+
+@pytest.mark.parametrize("path", DEMO_RUNS, ids=[p.stem for p in DEMO_RUNS])
+def test_quantify_every_demo_run(path, capsys) -> None:
+    code = cli.main(["quantify", str(path)])
+    out = capsys.readouterr().out
+    assert code == 0
+    assert "verdict: ACCEPTED" in out and cw.CAUTION in out
+    assert "y = " in out
+
+
+def test_json_output_equals_the_engine(capsys) -> None:
+    path = ROOT / "sample_runs" / "veltaprine_plasma_weighted.json"
+    assert cli.main(["quantify", str(path), "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    engine = analyse_run(open_run(path).run).analytes[0]
+    entry = data["analytes"][0]
+    assert entry["coefficients"] == engine.calibration.coefficients.tolist()
+    assert entry["residual_sd"] == engine.calibration.residual_sd
+    for exported, sample in zip(entry["samples"], engine.samples, strict=True):
+        assert exported["reported"] == sample.reported
+        assert exported["lower"] == sample.lower and exported["upper"] == sample.upper
+    above = [s for s in entry["samples"] if "above_range" in s["flags"]]
+    assert above and data["caution"] == cw.CAUTION and data["audit_chain_verified"] is True
+
+
+def test_model_override_is_recorded_as_given(capsys) -> None:
+    path = ROOT / "sample_runs" / "nitrate_water_linear.json"
+    cli.main(["quantify", str(path), "--model", "quadratic", "--json"])
+    entry = json.loads(capsys.readouterr().out)["analytes"][0]
+    assert entry["model"] == "quadratic" and entry["model_overridden"] is True
+
+
+def test_failed_acceptance_exits_1(tmp_path, capsys) -> None:
+    # the invented nitrate run judged against a strict laboratory profile of ±0.1 %
+    strict = cw.load_profile("general").with_limits(0.1, 0.1, 0.1)
+    profile = tmp_path / "strict.json"
+    profile.write_text(json.dumps(strict.to_mapping()), encoding="utf-8")
+    code = cli.main(["quantify", str(ROOT / "sample_runs" / "nitrate_water_linear.json"), "--profile", str(profile)])
+    assert code == 1
+    assert "NOT ACCEPTED" in capsys.readouterr().out
+
+
+def test_malformed_input_exits_2_naming_row_and_field(tmp_path) -> None:
+    standards = tmp_path / "standards.csv"
+    standards.write_text("Concentration;Response\n1;10,5\n2;abc\n4;41,0\n", encoding="utf-8")
+    samples = tmp_path / "samples.csv"
+    samples.write_text("Sample;Response\nU1;20,1\n", encoding="utf-8")
+    result = run_cli("quantify", "--standards", str(standards), "--samples", str(samples))
+    assert result.returncode == 2
+    assert "row 3, column 2 (Response): 'abc'" in result.stderr
+
+
+def test_broken_document_exits_2(tmp_path) -> None:
+    path = tmp_path / "broken.json"
+    path.write_text('{"format": "curvewright-run", "schema_version": 1, "name": "x"', encoding="utf-8")
+    result = run_cli("quantify", str(path))
+    assert result.returncode == 2 and "not valid JSON at line 1" in result.stderr
+
+
+def test_internal_error_exits_3(monkeypatch, capsys) -> None:
+    import curvewright.core.run_analysis as analysis
+
+    def fail(*args, **kwargs):
+        raise ZeroDivisionError("simulated fault")
+
+    monkeypatch.setattr(analysis, "analyse_run", fail)
+    assert cli.main(["quantify", str(DEMO_RUNS[0])]) == 3
+    assert "internal error" in capsys.readouterr().err
+
+
+def test_tables_without_a_run_document(tmp_path, capsys) -> None:
+    standards = tmp_path / "standards.csv"
+    standards.write_text("Concentration (µg/L),Area\n1,101\n2,199\n5,502\n10,1003\n20,1996\n", encoding="utf-8")
+    samples = tmp_path / "samples.csv"
+    samples.write_text("Sample,Dilution,Area\nWell 3,2,640\nWell 3,2,652\nTap,1,55\n", encoding="utf-8")
+    out = tmp_path / "results.csv"
+    code = cli.main(["quantify", "--standards", str(standards), "--samples", str(samples), "--analyte", "lead",
+                     "--export", str(out), "--json"])
+    data = json.loads(capsys.readouterr().out)
+    assert code == 0
+    well = data["analytes"][0]["samples"][0]
+    cal = cw.fit([1, 2, 5, 10, 20], [101, 199, 502, 1003, 1996])
+    expected = cal.quantify([646.0], replicates=2)
+    assert well["replicates"] == 2
+    assert well["reported"] == pytest.approx(2 * expected.estimate[0], rel=1e-14)
+    assert data["analytes"][0]["concentration_unit"] == "µg/L"
+    assert out.read_text(encoding="utf-8").startswith("# " + cw.CAUTION)
+
+
+def test_report_pdf_has_the_record(tmp_path) -> None:
+    path = ROOT / "sample_runs" / "zinc_emission_quadratic.json"
+    report = tmp_path / "record.pdf"
+    workbook = tmp_path / "results.xlsx"
+    assert cli.main(["quantify", str(path), "--report", str(report), "--export", str(workbook)]) == 0
+    reader = PdfReader(report)
+    assert len(reader.pages) >= 4
+    text = " ".join(page.extract_text() for page in reader.pages)
+    flat = " ".join(unicodedata.normalize("NFKC", text).split())  # NFKC undoes typographic ligatures (ﬁ)
+    cal = analyse_run(open_run(path).run).analytes[0].calibration
+    assert "Equation: y =" in flat and f"{cal.coefficients[1]:.12g}"[:8] in flat
+    assert "Verdict for zinc: ACCEPTED" in flat
+    assert "qualified laboratory personnel" in flat
+    assert "preparation error" in flat  # the exclusion and its reason
+    assert "Reviewer" in flat and "Analyst" in flat
+    assert "Model evidence" in flat and "Audit trail" in flat
+
+
+def test_record_appends_exports_to_the_audit_trail(tmp_path) -> None:
+    source = tmp_path / "run.json"
+    save_run(open_run(DEMO_RUNS[0]).run, source)
+    before = len(open_run(source).run.audit)
+    assert cli.main(["quantify", str(source), "--export", str(tmp_path / "r.xlsx"), "--record"]) == 0
+    opened = open_run(source)
+    assert opened.chain_verified and len(opened.run.audit) == before + 1
+    assert opened.run.audit[-1].action == "export_written"
+
+
+def test_many_runs_with_progress_and_processes(tmp_path) -> None:
+    folder = tmp_path / "incoming"
+    folder.mkdir()
+    for path in DEMO_RUNS:
+        save_run(open_run(path).run, folder / path.name)
+    result = run_cli("quantify", str(folder), "--export", str(tmp_path / "out") + "/", "--jobs", "2")
+    assert result.returncode == 0, result.stderr
+    assert f"{len(DEMO_RUNS)}/{len(DEMO_RUNS)}" in result.stderr
+    assert sorted(p.name for p in (tmp_path / "out").iterdir()) == sorted(p.stem + ".xlsx" for p in DEMO_RUNS)
+
+
+def test_check_and_compare(tmp_path, capsys) -> None:
+    assert cli.main(["check", *map(str, DEMO_RUNS)]) == 0
+    assert "audit trail verified" in capsys.readouterr().out
+    broken = tmp_path / "tampered.json"
+    data = json.loads(DEMO_RUNS[0].read_text(encoding="utf-8"))
+    data["audit"][0]["user"] = "someone else"
+    broken.write_text(json.dumps(data), encoding="utf-8")
+    assert cli.main(["check", str(broken)]) == 1
+    assert "does NOT verify" in capsys.readouterr().out
+    assert cli.main(["compare", str(DEMO_RUNS[0])]) == 0
+    out = capsys.readouterr().out
+    assert "recommended" in out and "chosen" in out and "Mandel" in out
+
+
+def test_version_and_help() -> None:
+    result = run_cli("--version")
+    assert result.stdout.strip() == f"curvewright {cw.__version__}"
+    helped = run_cli("quantify", "--help")
+    assert "exit codes" in helped.stdout and "examples" in helped.stdout
+
+
+def test_options_are_checked(capsys) -> None:
+    assert cli.main(["quantify", str(DEMO_RUNS[0]), "--level", "95"]) == 2
+    assert "--level: 95.0 must lie between 0 and 1" in capsys.readouterr().err
+    assert cli.main(["quantify", "no-such-run.json"]) == 2
+    assert cli.main(["quantify", *map(str, DEMO_RUNS), "--export", "single.xlsx"]) == 2
