@@ -134,7 +134,7 @@ DOCUMENT_PROBLEMS = [
     (broken("analytes.0.weighting", "1/z"), "analytes[0].weighting: '1/z' is not one of"),
     (broken("analytes.0.name", ""), "analytes[0].name: an analyte needs a name"),
     (broken("analytes.0.standards.0.response", KeyError), "analytes[0].standards[0].response: missing reading"),
-    (broken("analytes.0.standards.0.response", {"value": None, "text": "12"}), "has neither a value nor a censoring qualifier"),
+    (broken("analytes.0.standards.0.response", {"value": "12", "text": "12"}), 'analytes[0].standards[0].response.value: expected a finite number or null, found "12"'),
     (broken("samples.0.kind", "mystery"), "samples[0].kind: 'mystery' is not one of"),
     (broken("samples.0.dilution_factor", -2), "samples[0].dilution_factor: -2.0 must be above zero"),
     (broken("samples.1.id", good_document()["samples"][0]["id"]), "samples[1]: duplicate sample id"),

@@ -152,14 +152,15 @@ class AcceptanceProfile:
         }
 
     # --- judging --------------------------------------------------------------------------------
-    def evaluate(self, cal: "Calibration", excluded: int = 0) -> AcceptanceVerdict:
+    def evaluate(self, cal: "Calibration", excluded: int = 0, unusable: int = 0) -> AcceptanceVerdict:
         """Judge the back-calculated standards of ``cal``.
 
-        ``excluded`` is the number of non-zero standards the analyst excluded from this fit; they
-        count as not passing.
+        ``excluded`` is the number of non-zero standards the analyst excluded from this fit (they
+        count as not passing when the profile says so); ``unusable`` the number with no usable value
+        (censored or unreadable), which always count as not passing.
         """
-        if excluded < 0:
-            raise ProfileError(f"excluded: {excluded!r}; the number of excluded standards cannot be negative.")
+        if excluded < 0 or unusable < 0:
+            raise ProfileError("excluded/unusable: the number of standards left out cannot be negative.")
         rules = self.standards
         x = cal.concentration
         re = cal.relative_error
@@ -177,7 +178,7 @@ class AcceptanceProfile:
         reasons: list[str] = []
         ok = True
         counted_excluded = excluded if rules.count_excluded_as_failing else 0
-        n_judged = int(judged.sum()) + counted_excluded
+        n_judged = int(judged.sum()) + counted_excluded + unusable
         n_pass = int(passing.sum())
         if n_judged == 0:
             raise ProfileError("no standard of non-zero concentration to judge.")
@@ -190,6 +191,7 @@ class AcceptanceProfile:
             f"{_percent_text(rules.min_fraction_passing)} required"
             + (f"; {excluded} excluded standard(s) counted as not passing" if counted_excluded else "")
             + (f"; {excluded} excluded standard(s) with recorded reasons not counted" if excluded and not counted_excluded else "")
+            + (f"; {unusable} standard(s) without a usable value counted as not passing" if unusable else "")
         )
         level_pass = []
         for j in nonzero_levels:

@@ -226,9 +226,9 @@ class Calibration:
 
         return detection_limits(self, method, **options)  # type: ignore[arg-type]
 
-    def evaluate(self, profile: "AcceptanceProfile", excluded: int = 0) -> "AcceptanceVerdict":
+    def evaluate(self, profile: "AcceptanceProfile", excluded: int = 0, unusable: int = 0) -> "AcceptanceVerdict":
         """Judge the back-calculated standards against an acceptance ``profile``."""
-        return profile.evaluate(self, excluded=excluded)
+        return profile.evaluate(self, excluded=excluded, unusable=unusable)
 
     def _t(self, level: float) -> float:
         if not (0.0 < level < 1.0):

@@ -29,9 +29,11 @@ CENSORED_WORDS = ("ND", "BLQ", "BQL", "NQ", "<LOD", "<LOQ", "<LLOQ", ">ULOQ", "N
 class Reading:
     """One measured value as entered.
 
-    ``value`` is the number (None when the reading is censored or absent), ``text`` the characters
-    the analyst entered or pasted, ``qualifier`` the censoring sign or word ("<", ">", "ND", "BLQ"…)
-    and, for "<0.5"-style readings, ``limit`` the number after the sign.
+    ``value`` is the number (None when the reading is censored, absent or not a number), ``text``
+    the characters the analyst entered or pasted, ``qualifier`` the censoring sign or word ("<", ">",
+    "ND", "BLQ"…) and, for "<0.5"-style readings, ``limit`` the number after the sign. Text that is
+    not a number is kept as typed (value None, no qualifier): it is never silently dropped, and the
+    analysis reports the standard or sample as not usable with the reason.
     """
 
     value: float | None
@@ -54,12 +56,22 @@ class Reading:
 
     @property
     def is_missing(self) -> bool:
-        return self.value is None and self.qualifier is None
+        return self.value is None and self.qualifier is None and not self.text.strip()
+
+    @property
+    def is_unreadable(self) -> bool:
+        """Text that is neither a number nor a censored value (kept as typed)."""
+        return self.value is None and self.qualifier is None and bool(self.text.strip())
 
 
 @dataclass(frozen=True)
 class Standard:
-    """One calibration standard injection of one analyte."""
+    """One calibration standard injection of one analyte.
+
+    ``concentration`` is the nominal concentration; when what was typed is not a number it is NaN
+    and ``concentration_text`` keeps the text, so that nothing typed is lost (the analysis then
+    reports the standard as not usable, with the reason).
+    """
 
     id: str
     concentration: float
@@ -69,6 +81,11 @@ class Standard:
     included: bool = True
     exclusion_reason: str = ""
     internal_standard_response: Reading | None = None
+    concentration_text: str = ""
+
+    @property
+    def has_concentration(self) -> bool:
+        return math.isfinite(self.concentration)
 
 
 class SampleKind(str, Enum):

@@ -140,6 +140,8 @@ def response_value(reading: Reading, internal_standard: Reading | None, ratio: b
     if reading.is_censored:
         return None, f"response is censored ({reading.text})"
     if not reading.is_number:
+        if reading.text.strip():
+            return None, f"response {reading.text.strip()!r} is not a number"
         return None, "no response recorded"
     if not ratio:
         return float(reading.value), ""  # type: ignore[arg-type]
@@ -158,6 +160,9 @@ def _analyse_analyte(
     for s in analyte.standards:
         if not s.included:
             excluded.append(s)
+            continue
+        if not s.has_concentration:
+            unusable.append(UnusableStandard(s.id, f"concentration {s.concentration_text.strip()!r} is not a number"))
             continue
         value, reason = response_value(s.response, s.internal_standard_response, analyte.uses_internal_standard)
         if value is None:
@@ -184,10 +189,9 @@ def _analyse_analyte(
         limits = cal.limits(settings.limits_method)
     except LimitsError as exc:
         limits_note = str(exc)
-    excluded_nonzero = sum(1 for s in excluded if s.concentration != 0) + sum(
-        1 for u in unusable if analyte.standard(u.standard_id).concentration != 0
-    )
-    verdict = profile.evaluate(cal, excluded=excluded_nonzero)
+    excluded_nonzero = sum(1 for s in excluded if s.concentration != 0)
+    unusable_nonzero = sum(1 for u in unusable if analyte.standard(u.standard_id).concentration != 0)
+    verdict = profile.evaluate(cal, excluded=excluded_nonzero, unusable=unusable_nonzero)
     samples = _quantify_samples(run, analyte, cal, limits)
     qc = [s for s in samples if s.kind is SampleKind.QC and s.nominal is not None and s.reported is not None]
     qc_verdict = profile.evaluate_qc([s.nominal for s in qc], [s.reported for s in qc]) if qc else None

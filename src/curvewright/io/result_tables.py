@@ -165,7 +165,7 @@ def standards_table(a: AnalyteResult) -> Table:
     rows = []
     for s in an.standards:
         used, why = response_value(s.response, s.internal_standard_response, an.uses_internal_standard)
-        base = [s.id, s.level, s.replicate, s.concentration, s.response.text, used]
+        base = [s.id, s.level, s.replicate, s.concentration if s.has_concentration else None, s.response.text, used]
         i = position.get(s.id)
         if cal is not None and i is not None and a.verdict is not None:
             flags = "; ".join(f.value for f in cal.influence_flags[i])
@@ -178,11 +178,13 @@ def standards_table(a: AnalyteResult) -> Table:
             ]))
             continue
         back = re_ = None
-        if cal is not None and used is not None:
+        if cal is not None and used is not None and s.has_concentration:
             q = cal.quantify([used])
             back = _finite(q.estimate[0])
             if back is not None and s.concentration != 0:
                 re_ = 100.0 * (back - s.concentration) / s.concentration
+        if not s.has_concentration:
+            why = f"concentration {s.concentration_text.strip()!r} is not a number"
         reason = s.exclusion_reason if not s.included else f"not usable: {why}"
         rows.append(tuple(base + [back, re_, None, "excluded" if not s.included else "not usable", None, None, None, "",
                                   "no", reason]))

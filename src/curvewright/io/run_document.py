@@ -92,7 +92,8 @@ def run_to_mapping(run: Run) -> dict[str, Any]:
                     {
                         "id": st.id,
                         "level": st.level,
-                        "concentration": st.concentration,
+                        "concentration": st.concentration if st.has_concentration else None,
+                        **({"concentration_text": st.concentration_text} if st.concentration_text else {}),
                         "response": _reading_out(st.response),
                         "replicate": st.replicate,
                         "included": st.included,
@@ -354,8 +355,6 @@ class _Reader:
         text = self.get(m, "text", path, "text", "")
         qualifier = self.get(m, "qualifier", path, "text", None, required=False)
         limit = self.get(m, "limit", path, "number?", None, required=False)
-        if value is None and qualifier is None and text.strip():
-            self.fail(path, f"text {text!r} has neither a value nor a censoring qualifier")
         return Reading(None if value is None else float(value), text, qualifier, None if limit is None else float(limit))
 
     def analyte(self, m: Any, path: str) -> Analyte | None:
@@ -387,7 +386,8 @@ class _Reader:
             standards.append(
                 Standard(
                     id=self.get(s, "id", sp, "text", f"#{i + 1}"),
-                    concentration=self.get(s, "concentration", sp, "number", 0.0),
+                    concentration=self._concentration(s, sp),
+                    concentration_text=self.get(s, "concentration_text", sp, "text", "", required=False),
                     response=self.reading(s.get("response"), f"{sp}.response") or Reading(None, ""),
                     replicate=replicate,
                     level=self.get(s, "level", sp, "text", "", required=False),
@@ -407,6 +407,12 @@ class _Reader:
             choice_reason=self.get(m, "choice_reason", path, "text", "", required=False),
             uses_internal_standard=self.get(m, "uses_internal_standard", path, "bool", False, required=False),
         )
+
+    def _concentration(self, s: Mapping[str, Any], path: str) -> float:
+        """A number, or null with the text that was typed instead (kept, never dropped)."""
+        if s.get("concentration") is None and isinstance(s.get("concentration_text"), str) and s["concentration_text"].strip():
+            return math.nan
+        return self.get(s, "concentration", path, "number", 0.0)
 
     def sample(self, m: Any, path: str, analytes: set[str]) -> Sample | None:
         if not isinstance(m, dict):

@@ -1,0 +1,204 @@
+"""The open run in the app: the current immutable run, its file, undo history, autosave and the
+background analysis. Widgets read from here and send every change through :meth:`RunSession.apply`.
+
+Each change is a new :class:`~curvewright.core.run.Run` (with its audit entry, made by
+:mod:`curvewright.io.run_edits`) pushed on a QUndoStack. Analysis runs on a worker thread: each
+request carries a generation number, rapid edits are debounced, and an answer for a run that is no
+longer current is dropped.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import time
+from dataclasses import dataclass
+from pathlib import Path
+
+from PySide6.QtCore import QObject, QRunnable, QStandardPaths, QThreadPool, QTimer, Signal, Slot
+from PySide6.QtGui import QUndoCommand, QUndoStack
+
+from ..core.run import Run
+from ..core.run_analysis import RunResult, analyse_run
+from ..io.run_document import open_run, save_run
+
+DEBOUNCE_MS = 120
+"""Edits closer together than this are analysed once."""
+
+
+class RunChange(QUndoCommand):
+    """One change of the run; undo brings the previous run back (its audit trail with it)."""
+
+    def __init__(self, session: "RunSession", before: Run, after: Run, text: str) -> None:
+        super().__init__(text)
+        self.session, self.before, self.after = session, before, after
+
+    def redo(self) -> None:
+        self.session._set_run(self.after)
+
+    def undo(self) -> None:
+        self.session._set_run(self.before)
+
+
+@dataclass(frozen=True)
+class AnalysisAnswer:
+    generation: int
+    result: RunResult | None
+    error: str | None
+    seconds: float
+
+
+class _AnalysisSignals(QObject):
+    done = Signal(object)
+
+
+class _AnalysisJob(QRunnable):
+    def __init__(self, run: Run, generation: int, signals: _AnalysisSignals) -> None:
+        super().__init__()
+        self.run, self.generation, self.signals = run, generation, signals
+        self.setAutoDelete(True)
+
+    def run(self) -> None:  # noqa: D401 - QRunnable entry point
+        start = time.perf_counter()
+        try:
+            answer = AnalysisAnswer(self.generation, analyse_run(self.run), None, time.perf_counter() - start)
+        except Exception as exc:  # noqa: BLE001 - shown to the user in the status line
+            answer = AnalysisAnswer(self.generation, None, str(exc), time.perf_counter() - start)
+        self.signals.done.emit(answer)
+
+
+class RunSession(QObject):
+    """The run being worked on."""
+
+    run_changed = Signal(object)        # Run
+    analysis_ready = Signal(object)     # RunResult
+    analysis_failed = Signal(str)
+    dirty_changed = Signal(bool)
+    path_changed = Signal(object)       # Path | None
+
+    def __init__(self, run: Run, path: Path | None = None, *, recovery_folder: Path | None = None,
+                 parent: QObject | None = None) -> None:
+        super().__init__(parent)
+        self._run = run
+        self._path = path
+        self.undo_stack = QUndoStack(self)
+        self.undo_stack.cleanChanged.connect(lambda clean: self.dirty_changed.emit(not clean))
+        self.result: RunResult | None = None
+        self.last_analysis_seconds = 0.0
+        self._generation = 0
+        self._signals = _AnalysisSignals()
+        self._signals.done.connect(self._on_answer)
+        self._pool = QThreadPool(self)
+        self._pool.setMaxThreadCount(1)
+        self._debounce = QTimer(self)
+        self._debounce.setSingleShot(True)
+        self._debounce.setInterval(DEBOUNCE_MS)
+        self._debounce.timeout.connect(self._start_analysis)
+        self.recovery_folder = recovery_folder or default_recovery_folder()
+        self.request_analysis(immediate=True)
+
+    # --- state -----------------------------------------------------------------------------------
+    @property
+    def run(self) -> Run:
+        return self._run
+
+    @property
+    def path(self) -> Path | None:
+        return self._path
+
+    @property
+    def dirty(self) -> bool:
+        return not self.undo_stack.isClean()
+
+    def apply(self, new_run: Run, description: str) -> None:
+        """Make ``new_run`` current as one undoable step."""
+        if new_run is self._run:
+            return
+        self.undo_stack.push(RunChange(self, self._run, new_run, description))
+
+    def _set_run(self, run: Run) -> None:
+        self._run = run
+        self.run_changed.emit(run)
+        self.write_recovery()
+        self.request_analysis()
+
+    # --- files -------------------------------------------------------------------------------------
+    def save(self, path: Path | None = None) -> Path:
+        target = Path(path or self._path)  # type: ignore[arg-type]
+        save_run(self._run, target)
+        self._path = target
+        self.undo_stack.setClean()
+        self.path_changed.emit(target)
+        self.discard_recovery()
+        return target
+
+    @classmethod
+    def open(cls, path: Path, **kwargs) -> tuple["RunSession", tuple[str, ...]]:  # type: ignore[no-untyped-def]
+        opened = open_run(path)
+        return cls(opened.run, Path(path), **kwargs), opened.chain_problems
+
+    # --- recovery ----------------------------------------------------------------------------------
+    def recovery_path(self) -> Path:
+        key = str(self._path.resolve()) if self._path else f"untitled-{id(self)}"
+        digest = hashlib.sha256(key.encode("utf-8")).hexdigest()[:16]
+        return self.recovery_folder / f"recovery-{digest}.json"
+
+    def write_recovery(self) -> None:
+        """Autosave after every change, so that a crash loses nothing."""
+        if not self.dirty:
+            self.discard_recovery()
+            return
+        self.recovery_folder.mkdir(parents=True, exist_ok=True)
+        save_run(self._run, self.recovery_path())
+        marker = self.recovery_path().with_suffix(".source")
+        marker.write_text(str(self._path or ""), encoding="utf-8")
+
+    def discard_recovery(self) -> None:
+        for p in (self.recovery_path(), self.recovery_path().with_suffix(".source"),
+                  self.recovery_path().with_name(self.recovery_path().name + ".bak")):
+            p.unlink(missing_ok=True)
+
+    # --- analysis ----------------------------------------------------------------------------------
+    def request_analysis(self, immediate: bool = False) -> None:
+        self._generation += 1
+        if immediate:
+            self._debounce.stop()
+            self._start_analysis()
+        else:
+            self._debounce.start()
+
+    @Slot()
+    def _start_analysis(self) -> None:
+        self._pool.start(_AnalysisJob(self._run, self._generation, self._signals))
+
+    @Slot(object)
+    def _on_answer(self, answer: AnalysisAnswer) -> None:
+        if answer.generation != self._generation:
+            return  # a newer edit is already being analysed
+        self.last_analysis_seconds = answer.seconds
+        if answer.result is None:
+            self.analysis_failed.emit(answer.error or "analysis failed")
+            return
+        self.result = answer.result
+        self.analysis_ready.emit(answer.result)
+
+    def wait_for_analysis(self, timeout_ms: int = 10000) -> bool:
+        """Block until no analysis is pending (for scripts and tests)."""
+        self._debounce.stop()
+        return self._pool.waitForDone(timeout_ms)
+
+
+def default_recovery_folder() -> Path:
+    base = QStandardPaths.writableLocation(QStandardPaths.StandardLocation.AppDataLocation)
+    return Path(base or Path.home() / ".curvewright") / "recovery"
+
+
+def pending_recoveries(folder: Path | None = None) -> list[tuple[Path, str]]:
+    """Recovery files left by a session that did not close normally: (file, original path or "")."""
+    folder = folder or default_recovery_folder()
+    if not folder.exists():
+        return []
+    out = []
+    for p in sorted(folder.glob("recovery-*.json")):
+        marker = p.with_suffix(".source")
+        out.append((p, marker.read_text(encoding="utf-8") if marker.exists() else ""))
+    return out
