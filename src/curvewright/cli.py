@@ -49,7 +49,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="curvewright",
         description="Calibration curves for testing laboratories: fit, diagnose, quantify and report. "
-        "Without a command, opens the desktop app.",
+        "Without a command, opens the desktop app: curvewright [RUN.json | --demo [NAME]].",
         epilog=EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
@@ -94,7 +94,13 @@ class InputError(Exception):
     """An option or file the user gave cannot be used (exit 2)."""
 
 
+COMMANDS = ("quantify", "compare", "check")
+
+
 def main(argv: Sequence[str] | None = None) -> int:
+    argv = list(sys.argv[1:] if argv is None else argv)
+    if not argv or argv[0] == "--demo" or (argv[0] not in COMMANDS and not argv[0].startswith("-")):
+        return open_app(argv)
     parser = build_parser()
     args = parser.parse_args(argv)
     if args.command is None:
@@ -114,6 +120,22 @@ def main(argv: Sequence[str] | None = None) -> int:
         print(f"curvewright: internal error: {exc!r}; please report this with the input file.", file=sys.stderr)
         traceback.print_exc(file=sys.stderr)
         return EXIT_INTERNAL
+
+
+def open_app(argv: list[str]) -> int:
+    """``curvewright``, ``curvewright RUN.json`` or ``curvewright --demo [NAME]``: the desktop app."""
+    if len(argv) > 2 or (argv and argv[0] != "--demo" and len(argv) > 1):
+        print("curvewright: the app opens one run at a time: curvewright [RUN.json | --demo [NAME]]", file=sys.stderr)
+        return EXIT_INPUT
+    from .app.main import run_app
+
+    if argv and argv[0] == "--demo":
+        return run_app(demo=argv[1] if len(argv) > 1 else None)
+    if argv and not Path(argv[0]).exists():
+        print(f"curvewright: {argv[0]}: no such file (commands: {', '.join(COMMANDS)}; see curvewright --help)",
+              file=sys.stderr)
+        return EXIT_INPUT
+    return run_app(argv[0] if argv else None)
 
 
 # --- finding the runs -------------------------------------------------------------------------------

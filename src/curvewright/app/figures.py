@@ -76,7 +76,8 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, level: float = 0.95, show
     unit = a.analyte.concentration_unit
     styled_plot(plot, f"Concentration ({unit})" if unit else "Concentration",
                 f"Response ({a.analyte.response_unit})" if a.analyte.response_unit else "Response", font_size)
-    legend = plot.addLegend(offset=(10, 10), labelTextColor="#222222", brush=pg.mkBrush(255, 255, 255, 220),
+    # bottom right: a rising calibration leaves that corner empty
+    legend = plot.addLegend(offset=(-10, -10), labelTextColor="#222222", brush=pg.mkBrush(255, 255, 255, 220),
                             labelTextSize=f"{font_size - 1}pt")
     if cal is None:
         return
@@ -178,6 +179,23 @@ def draw_relative_errors(plot: pg.PlotItem, a: AnalyteResult, *, log_x: bool = F
     if failing.any():
         plot.plot(x[failing], cal.relative_error[failing], pen=None, symbol="star", symbolSize=12,
                   symbolBrush=palette.FLAGGED, symbolPen=None)
+
+
+def draw_residuals(plot: pg.PlotItem, a: AnalyteResult, *, log_x: bool = False, font_size: int = 10) -> None:
+    """Residuals y − ŷ of the standards in the fit, in response units, against concentration."""
+    unit = a.analyte.concentration_unit
+    styled_plot(plot, f"Concentration ({unit})" if unit else "Concentration",
+                f"Residual ({a.analyte.response_unit})" if a.analyte.response_unit else "Residual", font_size)
+    cal = a.calibration
+    if cal is None:
+        return
+    positive = cal.concentration[cal.concentration > 0]
+    span = (float(positive.min()), float(positive.max())) if log_x and positive.size else None
+    tx = _axis_transform(plot, log_x, "bottom", span)
+    keep = cal.concentration > 0 if log_x else np.ones(cal.n_standards, dtype=bool)
+    plot.addItem(pg.InfiniteLine(pos=0, angle=0, pen=pg.mkPen("#777777", width=1)))
+    plot.plot(tx(cal.concentration[keep]), cal.residuals[keep], pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,
+              symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8))
 
 
 def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, font_size: int = 10) -> None:

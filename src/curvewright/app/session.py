@@ -11,14 +11,17 @@ from __future__ import annotations
 
 import hashlib
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 from PySide6.QtCore import QObject, QRunnable, QStandardPaths, QThreadPool, QTimer, Signal, Slot
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
+from ..core.comparison import ModelComparison, compare
+from ..core.errors import CurvewrightError
 from ..core.run import Run
 from ..core.run_analysis import RunResult, analyse_run
+from ..io.audit import append_entry
 from ..io.run_document import open_run, save_run
 
 DEBOUNCE_MS = 120
@@ -26,17 +29,27 @@ DEBOUNCE_MS = 120
 
 
 class RunChange(QUndoCommand):
-    """One change of the run; undo brings the previous run back (its audit trail with it)."""
+    """One change of the run. Undo brings the previous content back, but the audit trail only ever
+    grows: undoing and redoing are themselves recorded, so no entry is ever taken away."""
 
     def __init__(self, session: "RunSession", before: Run, after: Run, text: str) -> None:
         super().__init__(text)
         self.session, self.before, self.after = session, before, after
+        self._done_once = False
 
     def redo(self) -> None:
-        self.session._set_run(self.after)
+        if not self._done_once:
+            self._done_once = True
+            self.session._set_run(self.after)
+            return
+        self.session._set_run(self._with_trail(self.after, "change_redone"))
 
     def undo(self) -> None:
-        self.session._set_run(self.before)
+        self.session._set_run(self._with_trail(self.before, "change_undone"))
+
+    def _with_trail(self, content: Run, action: str) -> Run:
+        trail = append_entry(self.session.run.audit, action, {"change": self.text()})
+        return replace(content, audit=trail)
 
 
 @dataclass(frozen=True)
@@ -45,6 +58,24 @@ class AnalysisAnswer:
     result: RunResult | None
     error: str | None
     seconds: float
+    evidence: dict[str, ModelComparison | str] | None = None
+
+
+def analyse_with_evidence(run: Run) -> tuple[RunResult, dict[str, ModelComparison | str]]:
+    """The run's results and, per analyte, the model comparison on the standards in its fit."""
+    result = analyse_run(run)
+    evidence: dict[str, ModelComparison | str] = {}
+    for a in result.analytes:
+        if a.calibration is None:
+            evidence[a.analyte.name] = a.error or "no calibration"
+            continue
+        try:
+            evidence[a.analyte.name] = compare(a.calibration.concentration, a.calibration.response,
+                                               include_proportional=True, profile=result.profile,
+                                               level_tolerance=run.settings.level_tolerance)
+        except CurvewrightError as exc:
+            evidence[a.analyte.name] = str(exc)
+    return result, evidence
 
 
 class _AnalysisSignals(QObject):
@@ -54,13 +85,14 @@ class _AnalysisSignals(QObject):
 class _AnalysisJob(QRunnable):
     def __init__(self, run: Run, generation: int, signals: _AnalysisSignals) -> None:
         super().__init__()
-        self.run, self.generation, self.signals = run, generation, signals
+        self.subject, self.generation, self.signals = run, generation, signals
         self.setAutoDelete(True)
 
     def run(self) -> None:  # noqa: D401 - QRunnable entry point
         start = time.perf_counter()
         try:
-            answer = AnalysisAnswer(self.generation, analyse_run(self.run), None, time.perf_counter() - start)
+            result, evidence = analyse_with_evidence(self.subject)
+            answer = AnalysisAnswer(self.generation, result, None, time.perf_counter() - start, evidence)
         except Exception as exc:  # noqa: BLE001 - shown to the user in the status line
             answer = AnalysisAnswer(self.generation, None, str(exc), time.perf_counter() - start)
         self.signals.done.emit(answer)
@@ -80,9 +112,11 @@ class RunSession(QObject):
         super().__init__(parent)
         self._run = run
         self._path = path
+        self._unsaved_records = False
         self.undo_stack = QUndoStack(self)
         self.undo_stack.cleanChanged.connect(lambda clean: self.dirty_changed.emit(not clean))
         self.result: RunResult | None = None
+        self.evidence: dict[str, ModelComparison | str] = {}
         self.last_analysis_seconds = 0.0
         self._generation = 0
         self._signals = _AnalysisSignals()
@@ -107,7 +141,15 @@ class RunSession(QObject):
 
     @property
     def dirty(self) -> bool:
-        return not self.undo_stack.isClean()
+        return not self.undo_stack.isClean() or self._unsaved_records
+
+    def record(self, action: str, details: dict) -> None:  # type: ignore[type-arg]
+        """Add an audit entry that is not a change of content (an export, a report): not undoable."""
+        self._run = replace(self._run, audit=append_entry(self._run.audit, action, details))
+        self._unsaved_records = True
+        self.dirty_changed.emit(True)
+        self.run_changed.emit(self._run)
+        self.write_recovery()
 
     def apply(self, new_run: Run, description: str) -> None:
         """Make ``new_run`` current as one undoable step."""
@@ -126,7 +168,9 @@ class RunSession(QObject):
         target = Path(path or self._path)  # type: ignore[arg-type]
         save_run(self._run, target)
         self._path = target
+        self._unsaved_records = False
         self.undo_stack.setClean()
+        self.dirty_changed.emit(False)
         self.path_changed.emit(target)
         self.discard_recovery()
         return target
@@ -179,11 +223,15 @@ class RunSession(QObject):
             self.analysis_failed.emit(answer.error or "analysis failed")
             return
         self.result = answer.result
+        self.evidence = answer.evidence or {}
         self.analysis_ready.emit(answer.result)
 
     def wait_for_analysis(self, timeout_ms: int = 10000) -> bool:
-        """Block until no analysis is pending (for scripts and tests)."""
-        self._debounce.stop()
+        """Block until no analysis is pending (for scripts and benchmarks); answers arrive as queued
+        signals, so the caller still has to let the event loop run once."""
+        if self._debounce.isActive():
+            self._debounce.stop()
+            self._start_analysis()
         return self._pool.waitForDone(timeout_ms)
 
 

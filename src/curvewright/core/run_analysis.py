@@ -10,7 +10,7 @@ QC samples and check standards are compared with their nominal values (recovery 
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -44,6 +44,8 @@ class SampleResult:
     note: str
     nominal: float | None = None
     recovery_percent: float | None = None
+    within_limits: bool | None = None
+    """For QC samples and check standards: the recovery lies within the profile's QC tolerance."""
 
     @property
     def flag_words(self) -> str:
@@ -162,7 +164,8 @@ def _analyse_analyte(
             excluded.append(s)
             continue
         if not s.has_concentration:
-            unusable.append(UnusableStandard(s.id, f"concentration {s.concentration_text.strip()!r} is not a number"))
+            text = s.concentration_text.strip()
+            unusable.append(UnusableStandard(s.id, f"concentration {text!r} is not a number" if text else "no concentration entered"))
             continue
         value, reason = response_value(s.response, s.internal_standard_response, analyte.uses_internal_standard)
         if value is None:
@@ -192,7 +195,11 @@ def _analyse_analyte(
     excluded_nonzero = sum(1 for s in excluded if s.concentration != 0)
     unusable_nonzero = sum(1 for u in unusable if analyte.standard(u.standard_id).concentration != 0)
     verdict = profile.evaluate(cal, excluded=excluded_nonzero, unusable=unusable_nonzero)
-    samples = _quantify_samples(run, analyte, cal, limits)
+    samples = tuple(
+        replace(s, within_limits=abs(s.recovery_percent - 100.0) <= profile.qc.tolerance_percent + 1e-9)
+        if s.recovery_percent is not None and s.kind in (SampleKind.QC, SampleKind.CHECK_STANDARD) else s
+        for s in _quantify_samples(run, analyte, cal, limits)
+    )
     qc = [s for s in samples if s.kind is SampleKind.QC and s.nominal is not None and s.reported is not None]
     qc_verdict = profile.evaluate_qc([s.nominal for s in qc], [s.reported for s in qc]) if qc else None
     return AnalyteResult(

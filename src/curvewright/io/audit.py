@@ -34,6 +34,9 @@ ACTIONS = (
     "export_written",
     "report_written",
     "document_migrated",
+    "change_undone",
+    "change_redone",
+    "recovered_after_crash",
 )
 
 Clock = Callable[[], datetime]

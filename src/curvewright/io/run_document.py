@@ -410,8 +410,8 @@ class _Reader:
 
     def _concentration(self, s: Mapping[str, Any], path: str) -> float:
         """A number, or null with the text that was typed instead (kept, never dropped)."""
-        if s.get("concentration") is None and isinstance(s.get("concentration_text"), str) and s["concentration_text"].strip():
-            return math.nan
+        if "concentration" in s and s["concentration"] is None:
+            return math.nan  # not entered, or typed text that is not a number (in concentration_text)
         return self.get(s, "concentration", path, "number", 0.0)
 
     def sample(self, m: Any, path: str, analytes: set[str]) -> Sample | None:

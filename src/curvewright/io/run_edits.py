@@ -10,7 +10,7 @@ from typing import Any, Mapping
 
 from ..core.acceptance import AcceptanceProfile, load_profile
 from ..core.models import Model
-from ..core.run import Analyte, Reading, Run, RunError, RunSettings, Standard
+from ..core.run import Analyte, Reading, Run, RunError, RunSettings, Sample, Standard
 from ..core.weighting import Weighting
 from .audit import Clock, append_entry, utc_now
 
@@ -120,3 +120,126 @@ def _with_standard(analyte: Analyte, standard: Standard) -> Analyte:
 
 def _log(run: Run, action: str, details: Mapping[str, Any], user: str | None, clock: Clock) -> Run:
     return replace(run, audit=append_entry(run.audit, action, details, user=user, clock=clock))
+
+
+def _standard_fields(s: Standard) -> dict[str, Any]:
+    return {
+        "id": s.id, "level": s.level, "replicate": s.replicate,
+        "concentration": s.concentration if s.has_concentration else s.concentration_text,
+        "response": s.response.text,
+        "internal_standard_response": s.internal_standard_response.text if s.internal_standard_response else None,
+    }
+
+
+def update_standards(
+    run: Run, analyte: str, standards: tuple[Standard, ...], note: str, *, user: str | None = None, clock: Clock = utc_now
+) -> Run:
+    """Replace an analyte's standards (typed or pasted values, added rows) as one audited step.
+
+    The entry lists every changed field old → new and every added standard; inclusion flags and
+    exclusion reasons cannot change here (see :func:`exclude_standard`), and no standard may vanish
+    (see :func:`remove_standard`).
+    """
+    a = run.analyte(analyte)
+    old = {s.id: s for s in a.standards}
+    ids = [s.id for s in standards]
+    if len(set(ids)) != len(ids):
+        duplicate = next(i for i in ids if ids.count(i) > 1)
+        raise RunError(f"{analyte}: standard id {duplicate!r} is used twice; each standard needs its own id.")
+    missing = [i for i in old if i not in set(ids)]
+    if missing:
+        raise RunError(f"{analyte}: standard {missing[0]!r} would be lost; remove standards one at a time, with a reason.")
+    changes, added = [], []
+    for s in standards:
+        before = old.get(s.id)
+        if before is None:
+            added.append(_standard_fields(s))
+            continue
+        if (s.included, s.exclusion_reason) != (before.included, before.exclusion_reason):
+            raise RunError(f"{analyte}: standard {s.id!r}: exclude or include it with a reason, not by editing.")
+        new_fields, old_fields = _standard_fields(s), _standard_fields(before)
+        for field_name, value in new_fields.items():
+            if value != old_fields[field_name]:
+                changes.append({"standard": s.id, "field": field_name, "old": old_fields[field_name], "new": value})
+    if not changes and not added:
+        return run
+    action = "value_edited" if changes else "standard_added"
+    changed = replace(a, standards=standards)
+    return _log(run.with_analyte(changed), action,
+                {"analyte": analyte, "note": note, "changes": changes, "added": added}, user, clock)
+
+
+def remove_standard(
+    run: Run, analyte: str, standard_id: str, reason: str, *, user: str | None = None, clock: Clock = utc_now
+) -> Run:
+    """Remove a standard entered by mistake. Its values stay in the audit entry; to keep a measured
+    standard out of the fit, exclude it instead."""
+    if not reason.strip():
+        raise RunError(f"removing standard {standard_id!r}: give the reason.")
+    a = run.analyte(analyte)
+    s = a.standard(standard_id)
+    changed = replace(a, standards=tuple(x for x in a.standards if x.id != standard_id))
+    return _log(run.with_analyte(changed), "standard_removed_before_review",
+                {"analyte": analyte, "standard": _standard_fields(s), "reason": reason.strip()}, user, clock)
+
+
+def _sample_fields(s: Sample) -> dict[str, Any]:
+    return {
+        "kind": s.kind.value, "run_order": s.run_order, "dilution_factor": s.dilution_factor,
+        "nominal": dict(s.nominal),
+        "responses": {f"{m.analyte}/{m.replicate}": m.response.text for m in s.measurements},
+    }
+
+
+def update_samples(
+    run: Run, samples: tuple[Sample, ...], note: str, *, removed_reason: str = "",
+    user: str | None = None, clock: Clock = utc_now,
+) -> Run:
+    """Replace the run's samples as one audited step (changed fields old → new, added, removed)."""
+    ids = [s.id for s in samples]
+    if len(set(ids)) != len(ids):
+        duplicate = next(i for i in ids if ids.count(i) > 1)
+        raise RunError(f"sample id {duplicate!r} is used twice; each sample needs its own id.")
+    known = {a.name for a in run.analytes}
+    for s in samples:
+        for m in s.measurements:
+            if m.analyte not in known:
+                raise RunError(f"sample {s.id!r}: analyte {m.analyte!r} is not in this run.")
+        if not s.dilution_factor > 0:
+            raise RunError(f"sample {s.id!r}: dilution factor {s.dilution_factor!r} must be above zero.")
+    old = {s.id: s for s in run.samples}
+    new = {s.id: s for s in samples}
+    removed = [{"id": i, **_sample_fields(s)} for i, s in old.items() if i not in new]
+    if removed and not removed_reason.strip():
+        raise RunError(f"removing sample {removed[0]['id']!r}: give the reason.")
+    added = [{"id": i, **_sample_fields(s)} for i, s in new.items() if i not in old]
+    changes = []
+    for i, s in new.items():
+        if i in old:
+            before, after = _sample_fields(old[i]), _sample_fields(s)
+            for field_name in after:
+                if after[field_name] != before[field_name]:
+                    changes.append({"sample": i, "field": field_name, "old": before[field_name], "new": after[field_name]})
+    if not (changes or added or removed) and tuple(old) == tuple(new):
+        return run
+    return _log(replace(run, samples=samples), "samples_edited",
+                {"note": note, "changes": changes, "added": added, "removed": removed,
+                 "reason": removed_reason.strip()}, user, clock)
+
+
+def change_settings(
+    run: Run, settings: RunSettings, reason: str, *, user: str | None = None, clock: Clock = utc_now
+) -> Run:
+    """New settings (confidence level, interval, limits method, profile, rounding) as one audited step."""
+    before, after = _settings_fields(run.settings), _settings_fields(settings)
+    changes = {k: {"old": before[k], "new": v} for k, v in after.items() if before[k] != v}
+    if not changes:
+        return run
+    action = "profile_changed" if set(changes) == {"acceptance_profile"} else "settings_changed"
+    return _log(replace(run, settings=settings), action, {"changes": changes, "reason": reason.strip()}, user, clock)
+
+
+def _settings_fields(s: RunSettings) -> dict[str, Any]:
+    return {"confidence_level": s.confidence_level, "interval": s.interval, "limits_method": s.limits_method,
+            "acceptance_profile": s.acceptance_profile, "custom_profile": s.custom_profile is not None,
+            "rounding": s.rounding.description, "level_tolerance": s.level_tolerance}

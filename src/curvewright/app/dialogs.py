@@ -1,0 +1,266 @@
+"""Dialogs that ask for a reason, preview a refit, preview an import, and edit settings."""
+
+from __future__ import annotations
+
+from dataclasses import replace
+from pathlib import Path
+
+from PySide6.QtCore import Qt
+from PySide6.QtGui import QBrush
+from PySide6.QtWidgets import (QComboBox, QDialog, QDialogButtonBox, QDoubleSpinBox, QFormLayout, QLabel,
+                               QLineEdit, QPlainTextEdit, QSpinBox, QTableWidget, QTableWidgetItem, QVBoxLayout,
+                               QWidget)
+
+from ..core.acceptance import available_profiles, load_profile
+from ..core.errors import CurvewrightError
+from ..core.rounding import RoundingRule
+from ..core.run import Run
+from ..core.run_analysis import analyse_run
+from ..io import run_edits
+from ..io.importing import ImportResult, import_samples, import_standards
+from ..io.tables import RawTable, table_from_csv, table_from_text, table_from_xlsx, xlsx_sheet_names
+from .standards_model import INVALID
+
+EXCLUSION_REASONS = (
+    "preparation error (standard made up wrongly)",
+    "injection or instrument fault recorded at the time",
+    "internal-standard response outside 70–130 % of the standards' mean",
+    "contaminated or broken vial",
+    "integration error confirmed by review",
+    "other (describe below)",
+)
+
+
+class ReasonDialog(QDialog):
+    """Asks for a reason: a choice from a list plus free text; OK only once a reason is given."""
+
+    def __init__(self, title: str, prompt: str, choices: tuple[str, ...] = (), parent: QWidget | None = None,
+                 preview: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self.setWindowTitle(title)
+        self.choices = QComboBox()
+        self.choices.addItems(list(choices))
+        self.choices.setVisible(bool(choices))
+        self.choices.setAccessibleName("Reason")
+        self.details = QPlainTextEdit()
+        self.details.setPlaceholderText("Details (required for 'other', and whenever no reason is listed)")
+        self.details.setAccessibleName("Details of the reason")
+        self.details.setTabChangesFocus(True)
+        self.buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Ok | QDialogButtonBox.StandardButton.Cancel)
+        self.buttons.accepted.connect(self.accept)
+        self.buttons.rejected.connect(self.reject)
+        layout = QVBoxLayout(self)
+        label = QLabel(prompt)
+        label.setWordWrap(True)
+        layout.addWidget(label)
+        layout.addWidget(self.choices)
+        layout.addWidget(self.details)
+        if preview is not None:
+            layout.addWidget(preview)
+        layout.addWidget(self.buttons)
+        self.choices.currentIndexChanged.connect(self._update)
+        self.details.textChanged.connect(self._update)
+        self._update()
+
+    def reason(self) -> str:
+        choice = self.choices.currentText() if self.choices.count() else ""
+        details = self.details.toPlainText().strip()
+        if choice.startswith("other") or not choice:
+            return details
+        return f"{choice}: {details}" if details else choice
+
+    def _update(self) -> None:
+        self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(bool(self.reason()))
+
+
+def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
+    """A side-by-side of the calibration before and after a change, shown before it is committed."""
+    rows = []
+    results = []
+    for run in (before, after):
+        try:
+            results.append(analyse_run(run, analytes=(analyte,)).analytes[0])
+        except CurvewrightError as exc:
+            results.append(str(exc))
+
+    def describe(a) -> list[str]:  # type: ignore[no-untyped-def]
+        if isinstance(a, str) or a.calibration is None:
+            return [a if isinstance(a, str) else f"not fitted: {a.error}"] + [""] * 4
+        cal = a.calibration
+        return [cal.equation(6), f"{cal.residual_sd:.5g}", f"{cal.adjusted_r_squared:.6f}",
+                f"{cal.n_standards}", "accepted" if a.accepted else "NOT accepted"]
+
+    names = ("Curve", "Residual SD", "Adjusted R²", "Standards in fit", "Verdict")
+    old, new = describe(results[0]), describe(results[1])
+    rows = "".join(f"<tr><td>{n}</td><td>{o}</td><td><b>{w}</b></td></tr>" for n, o, w in zip(names, old, new))
+    label = QLabel(f"<p>The refit, before it is committed:</p><table cellpadding='3'><tr><th></th><th>now</th>"
+                   f"<th>after the change</th></tr>{rows}</table>")
+    label.setTextFormat(Qt.TextFormat.RichText)
+    return label
+
+
+def ask_exclusion(parent: QWidget, run: Run, analyte: str, standard_id: str) -> str | None:
+    """Ask why a standard is excluded, showing the refit; returns the reason or None if cancelled."""
+    try:
+        after = run_edits.exclude_standard(run, analyte, standard_id, "preview")
+    except CurvewrightError as exc:
+        from PySide6.QtWidgets import QMessageBox
+
+        QMessageBox.information(parent, "Exclude standard", str(exc))
+        return None
+    dialog = ReasonDialog(f"Exclude standard {standard_id}",
+                          f"Why is standard {standard_id} of {analyte} excluded from the fit? The standard stays in "
+                          "the run, flagged, with your reason in the audit trail.",
+                          EXCLUSION_REASONS, parent, refit_preview(run, after, analyte))
+    return dialog.reason() if dialog.exec() == QDialog.DialogCode.Accepted else None
+
+
+class ImportDialog(QDialog):
+    """Shows how every value of a table was read before it is imported."""
+
+    def __init__(self, what: str, source: Path | str, parent: QWidget | None = None, *, text: bool = False) -> None:
+        super().__init__(parent)
+        self.what, self.source, self.is_text = what, source, text
+        self.setWindowTitle(f"Import {what}")
+        self.resize(900, 560)
+        self.result: ImportResult | None = None
+        self.sheet = QComboBox()
+        self.decimal = QComboBox()
+        self.decimal.addItems(["detect", ". (point)", ", (comma)"])
+        self.thousands = QComboBox()
+        self.thousands.addItems(["none (refuse)", ",", ".", "space", "'"])
+        self.analyte = QLineEdit("analyte")
+        form = QFormLayout()
+        if not text and str(source).lower().endswith((".xlsx", ".xlsm")):
+            self.sheet.addItems(list(xlsx_sheet_names(source)))
+            form.addRow("&Sheet", self.sheet)
+        form.addRow("&Decimal mark", self.decimal)
+        form.addRow("&Thousands separator", self.thousands)
+        form.addRow("&Analyte name (when the table has no analyte column)", self.analyte)
+        self.summary = QPlainTextEdit()
+        self.summary.setReadOnly(True)
+        self.preview = QTableWidget()
+        self.preview.setAccessibleName("How each value was read")
+        self.buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Ok | QDialogButtonBox.StandardButton.Cancel)
+        self.buttons.accepted.connect(self.accept)
+        self.buttons.rejected.connect(self.reject)
+        layout = QVBoxLayout(self)
+        layout.addLayout(form)
+        layout.addWidget(QLabel("Each cell shows the text found → the value read; red cells cannot be used:"))
+        layout.addWidget(self.preview, 3)
+        layout.addWidget(self.summary, 1)
+        layout.addWidget(self.buttons)
+        for combo in (self.sheet, self.decimal, self.thousands):
+            combo.currentIndexChanged.connect(self.refresh)
+        self.analyte.editingFinished.connect(self.refresh)
+        self.refresh()
+
+    def table(self) -> RawTable:
+        if self.is_text:
+            return table_from_text(str(self.source))
+        path = str(self.source)
+        if path.lower().endswith((".xlsx", ".xlsm")):
+            return table_from_xlsx(path, self.sheet.currentText() or None)
+        return table_from_csv(path)
+
+    def refresh(self) -> None:
+        decimal = {0: None, 1: ".", 2: ","}[self.decimal.currentIndex()]
+        thousands = {0: None, 1: ",", 2: ".", 3: " ", 4: "'"}[self.thousands.currentIndex()]
+        importer = import_standards if self.what == "standards" else import_samples
+        try:
+            table = self.table()
+            self.result = importer(table, decimal_mark=decimal, thousands=thousands, analyte=self.analyte.text() or "analyte")
+        except CurvewrightError as exc:
+            self.result = None
+            self.summary.setPlainText(str(exc))
+            self.preview.setRowCount(0)
+            self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(False)
+            return
+        self._fill(table, self.result)
+        self.summary.setPlainText(self.result.summary())
+        self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(bool(self.result.standards or self.result.samples))
+
+    def _fill(self, table: RawTable, result: ImportResult) -> None:
+        rows = list(zip(table.row_numbers, table.rows))
+        width = max((len(r) for _, r in rows), default=0)
+        self.preview.setRowCount(len(rows))
+        self.preview.setColumnCount(width)
+        self.preview.setVerticalHeaderLabels([str(n) for n, _ in rows])
+        bad = {(r.row, r.column.split(" ")[0]): r.reason for r in result.rejected}
+        from ..io.number_text import parse_reading
+
+        for i, (number, cells) in enumerate(rows):
+            for j, cell in enumerate(cells):
+                text = repr(cell) if isinstance(cell, float) else cell
+                shown = text
+                if i > 0 and isinstance(cell, str) and cell.strip():
+                    parsed = parse_reading(cell, result.decimal_mark)
+                    if parsed.reading is not None and parsed.reading.is_number:
+                        shown = f"{cell} → {parsed.reading.value!r}"
+                    elif parsed.reading is not None and parsed.reading.is_censored:
+                        shown = f"{cell} → censored"
+                item = QTableWidgetItem(shown)
+                reason = bad.get((number, str(j + 1)))
+                if reason:
+                    item.setBackground(QBrush(INVALID))
+                    item.setToolTip(reason)
+                self.preview.setItem(i, j, item)
+        self.preview.resizeColumnsToContents()
+
+
+class SettingsDialog(QDialog):
+    """The run's confidence level, acceptance profile and rounding rule."""
+
+    def __init__(self, run: Run, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self.setWindowTitle("Run settings")
+        s = run.settings
+        self.level = QDoubleSpinBox()
+        self.level.setRange(0.5, 0.999)
+        self.level.setDecimals(3)
+        self.level.setSingleStep(0.01)
+        self.level.setValue(s.confidence_level)
+        self.interval = QComboBox()
+        self.interval.addItems(["band", "symmetric"])
+        self.interval.setCurrentText(s.interval)
+        self.limits = QComboBox()
+        self.limits.addItems(["residual_sd", "intercept_sd", "iso11843"])
+        self.limits.setCurrentText(s.limits_method)
+        self.profile = QComboBox()
+        for pid in available_profiles():
+            self.profile.addItem(load_profile(pid).name, pid)
+        index = self.profile.findData(s.acceptance_profile)
+        if index >= 0:
+            self.profile.setCurrentIndex(index)
+        self.rounding_kind = QComboBox()
+        self.rounding_kind.addItems(["significant", "decimals"])
+        self.rounding_kind.setCurrentText(s.rounding.kind)
+        self.rounding_digits = QSpinBox()
+        self.rounding_digits.setRange(0, 15)
+        self.rounding_digits.setValue(s.rounding.digits)
+        self.rounding_tie = QComboBox()
+        self.rounding_tie.addItems(["half_up", "half_even"])
+        self.rounding_tie.setCurrentText(s.rounding.tie)
+        self.reason = QLineEdit()
+        self.reason.setPlaceholderText("why the settings change (recorded in the audit trail)")
+        form = QFormLayout(self)
+        form.addRow("&Confidence level", self.level)
+        form.addRow("&Interval", self.interval)
+        form.addRow("&LOD/LOQ method", self.limits)
+        form.addRow("Acceptance &profile", self.profile)
+        form.addRow("&Rounding", self.rounding_kind)
+        form.addRow("&Digits", self.rounding_digits)
+        form.addRow("&Tie-break", self.rounding_tie)
+        form.addRow("R&eason", self.reason)
+        buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Ok | QDialogButtonBox.StandardButton.Cancel)
+        buttons.accepted.connect(self.accept)
+        buttons.rejected.connect(self.reject)
+        form.addRow(buttons)
+
+    def settings(self, run: Run):  # type: ignore[no-untyped-def]
+        return replace(run.settings, confidence_level=round(self.level.value(), 3), interval=self.interval.currentText(),
+                       limits_method=self.limits.currentText(), acceptance_profile=self.profile.currentData(),
+                       custom_profile=None if self.profile.currentData() != run.settings.acceptance_profile
+                       else run.settings.custom_profile,
+                       rounding=RoundingRule(self.rounding_kind.currentText(), self.rounding_digits.value(),
+                                             self.rounding_tie.currentText()))

@@ -1,0 +1,93 @@
+"""The model-evidence panel: every candidate from the engine's comparison side by side, the
+recommended one marked with its reasons, and the analyst's current choice."""
+
+from __future__ import annotations
+
+from PySide6.QtCore import Qt, Signal
+from PySide6.QtGui import QFont
+from PySide6.QtWidgets import (QAbstractItemView, QHBoxLayout, QLabel, QPushButton, QTableWidget, QTableWidgetItem,
+                               QTextBrowser, QVBoxLayout, QWidget)
+
+from ..core.comparison import ModelComparison
+from ..core.run import Analyte
+
+HEADERS = ("Model", "Weighting", "Residual SD", "Adjusted R²", "Lack-of-fit p", "Mandel p", "Σ|%RE|",
+           "Standards failing", "AICc", "Recommended", "Chosen")
+
+
+def _g(value: float | None, digits: int = 4) -> str:
+    return "—" if value is None else f"{value:.{digits}g}"
+
+
+class EvidencePanel(QWidget):
+    choose_requested = Signal(str, str, object)  # model, weighting, recommended (model, weighting) | None
+
+    def __init__(self, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self.comparison: ModelComparison | None = None
+        self.table = QTableWidget(0, len(HEADERS))
+        self.table.setHorizontalHeaderLabels(HEADERS)
+        self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
+        self.table.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
+        self.table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
+        self.table.setAccessibleName("Candidate models")
+        self.reasons = QTextBrowser()
+        self.reasons.setAccessibleName("Reasons for the recommendation")
+        self.choice = QLabel("")
+        self.choice.setWordWrap(True)
+        self.use_button = QPushButton("&Use the selected model…")
+        self.use_button.clicked.connect(self._use_selected)
+        self.table.doubleClicked.connect(lambda _: self._use_selected())
+        row = QHBoxLayout()
+        row.addWidget(self.choice, 1)
+        row.addWidget(self.use_button)
+        layout = QVBoxLayout(self)
+        layout.setContentsMargins(0, 0, 0, 0)
+        layout.addWidget(self.table, 3)
+        layout.addLayout(row)
+        layout.addWidget(QLabel("Why the recommendation (the choice stays yours):"))
+        layout.addWidget(self.reasons, 2)
+
+    def show_evidence(self, evidence: ModelComparison | str | None, analyte: Analyte) -> None:
+        self.comparison = evidence if isinstance(evidence, ModelComparison) else None
+        self.table.setRowCount(0)
+        self.choice.setText(f"Chosen for {analyte.name}: {analyte.model}, {analyte.weighting}"
+                            + (f" — {analyte.choice_reason}" if analyte.choice_reason else " — no reason recorded yet"))
+        if self.comparison is None:
+            self.reasons.setPlainText(f"No comparison: {evidence}" if evidence else "Waiting for the analysis…")
+            return
+        bold = QFont()
+        bold.setBold(True)
+        for c in self.comparison.candidates:
+            r = self.table.rowCount()
+            self.table.insertRow(r)
+            recommended = c is self.comparison.recommended
+            chosen = c.model.value == analyte.model and c.weighting.value == analyte.weighting
+            values = (c.model.value, c.weighting.value, _g(c.residual_sd), _g(c.adjusted_r_squared, 6),
+                      _g(c.lack_of_fit_p, 3), _g(c.mandel.p_value if c.mandel else None, 3),
+                      _g(c.sum_abs_relative_error), str(c.standards_failing), _g(c.aicc, 5),
+                      "★ recommended" if recommended else "", "● chosen" if chosen else "")
+            for col, text in enumerate(values):
+                item = QTableWidgetItem(text)
+                item.setData(Qt.ItemDataRole.UserRole, (c.model.value, c.weighting.value))
+                if recommended:
+                    item.setFont(bold)
+                self.table.setItem(r, col, item)
+        self.table.resizeColumnsToContents()
+        lines = [f"• {r}" for r in self.comparison.reasons]
+        lines += [f"• not fitted: {s.model.value}, {s.weighting.value}: {s.reason}" for s in self.comparison.skipped]
+        self.reasons.setPlainText("\n".join(lines))
+
+    def select(self, model: str, weighting: str) -> None:
+        for r in range(self.table.rowCount()):
+            if self.table.item(r, 0).data(Qt.ItemDataRole.UserRole) == (model, weighting):
+                self.table.selectRow(r)
+                return
+
+    def _use_selected(self) -> None:
+        rows = self.table.selectionModel().selectedRows()
+        if not rows or self.comparison is None:
+            return
+        model, weighting = self.table.item(rows[0].row(), 0).data(Qt.ItemDataRole.UserRole)
+        rec = self.comparison.recommended
+        self.choose_requested.emit(model, weighting, (rec.model.value, rec.weighting.value))

@@ -1,0 +1,98 @@
+"""Starting the desktop app: ``curvewright``, ``curvewright RUN.json``, ``curvewright --demo [NAME]``."""
+
+from __future__ import annotations
+
+import sys
+import sysconfig
+from pathlib import Path
+
+from PySide6.QtCore import QSettings
+from PySide6.QtWidgets import QMessageBox
+
+from ..core.errors import CurvewrightError
+from ..io import run_edits
+from ..io.run_document import open_run
+from .qt_runtime import ensure_application
+from .session import RunSession, pending_recoveries
+
+
+def demo_run_paths() -> list[Path]:
+    """The demo runs: beside the source in a checkout, or where the installation put them."""
+    candidates = [Path(__file__).resolve().parents[3] / "sample_runs",
+                  Path(sysconfig.get_paths()["data"]) / "share" / "curvewright" / "sample_runs"]
+    for folder in candidates:
+        found = sorted(folder.glob("*.json")) if folder.is_dir() else []
+        if found:
+            return found
+    return []
+
+
+def find_demo(name: str | None) -> Path:
+    paths = demo_run_paths()
+    if not paths:
+        raise CurvewrightError("no demo runs were installed with this copy of Curvewright.")
+    if not name:
+        return paths[0]
+    for p in paths:
+        if name.lower() in p.stem.lower():
+            return p
+    raise CurvewrightError(f"no demo run matches {name!r} (demo runs: {', '.join(p.stem for p in paths)}).")
+
+
+def offer_recovery(folder: Path | None, parent=None) -> RunSession | None:  # type: ignore[no-untyped-def]
+    """After a crash: offer to restore the work kept in a recovery file (one offer per file)."""
+    for recovery, source in pending_recoveries(folder):
+        try:
+            opened = open_run(recovery)
+        except CurvewrightError:
+            opened = None
+        answer = QMessageBox.StandardButton.No
+        if opened is not None:
+            answer = QMessageBox.question(
+                parent, "Restore unsaved work?",
+                "Curvewright did not close normally. Unsaved work was kept"
+                + (f" for {source}" if source else " for a run that was never saved") + ". Restore it?",
+                QMessageBox.StandardButton.Yes | QMessageBox.StandardButton.No)
+        for stale in (recovery, recovery.with_suffix(".source"), recovery.with_name(recovery.name + ".bak")):
+            stale.unlink(missing_ok=True)
+        if opened is not None and answer == QMessageBox.StandardButton.Yes:
+            session = RunSession(opened.run, Path(source) if source else None, recovery_folder=folder)
+            session.apply(run_edits.record(opened.run, "recovered_after_crash", {"recovery_file": recovery.name}),
+                          "Restore unsaved work")
+            return session
+    return None
+
+
+def build_window(path: Path | None = None, *, settings: QSettings | None = None, recovery_folder: Path | None = None):  # type: ignore[no-untyped-def]
+    from .main_window import MainWindow, blank_run
+
+    ensure_application()
+    settings = settings or QSettings("Curvewright", "Curvewright")
+    session = offer_recovery(recovery_folder)
+    problems: tuple[str, ...] = ()
+    if session is None:
+        if path is not None:
+            session, problems = RunSession.open(path, recovery_folder=recovery_folder)
+        else:
+            session = RunSession(blank_run(settings), recovery_folder=recovery_folder)
+    window = MainWindow(session, settings)
+    if path is not None:
+        window._remember(path)
+    if problems:
+        QMessageBox.warning(window, "Audit trail does not verify", "\n".join(problems))
+    return window
+
+
+def run_app(path: str | None = None, demo: str | None | bool = False) -> int:
+    app = ensure_application(offscreen_if_headless=False)
+    try:
+        target = find_demo(demo if isinstance(demo, str) else None) if demo is not False else (Path(path) if path else None)
+        window = build_window(target)
+    except CurvewrightError as exc:
+        print(f"curvewright: {exc}", file=sys.stderr)
+        return 2
+    window.resize(1400, 860)
+    window.show()
+    return app.exec()
+
+

@@ -1,0 +1,597 @@
+"""The main window: tables on the left, the curve and its evidence on the right, the caution always
+in view. Every change goes through the session (undoable, audited); every number comes from the
+engine's results."""
+
+from __future__ import annotations
+
+from dataclasses import replace
+from pathlib import Path
+
+from PySide6.QtCore import QSettings, Qt
+from PySide6.QtGui import QAction, QKeySequence
+from PySide6.QtWidgets import (QComboBox, QFileDialog, QHBoxLayout, QInputDialog, QLabel, QMainWindow,
+                               QMessageBox, QProgressDialog, QPushButton, QSplitter, QTabWidget, QTableView,
+                               QVBoxLayout, QWidget)
+
+from .. import CAUTION, __version__
+from ..core.errors import CurvewrightError
+from ..core.run import Analyte, Run
+from ..core.run_analysis import RunResult
+from ..io import run_edits
+from ..io.errors import ExportError
+from .curve_view import CurveView, InfluenceView
+from .dialogs import ImportDialog, ReasonDialog, SettingsDialog, ask_exclusion
+from .evidence_panel import EvidencePanel
+from .results_model import ResultsModel
+from .samples_model import SamplesModel
+from .session import RunSession
+from .standards_model import StandardsModel
+from .table_view import SheetTableView
+
+MAX_RECENT = 8
+
+
+def blank_run(settings: QSettings | None = None) -> Run:
+    from ..core.rounding import RoundingRule
+    from ..core.run import RunSettings
+
+    run_settings = RunSettings()
+    if settings is not None:
+        run_settings = RunSettings(
+            confidence_level=float(settings.value("defaults/confidence_level", 0.95)),
+            acceptance_profile=str(settings.value("defaults/profile", "general")),
+            rounding=RoundingRule(str(settings.value("defaults/rounding_kind", "significant")),
+                                  int(settings.value("defaults/rounding_digits", 3)),
+                                  str(settings.value("defaults/rounding_tie", "half_up"))),
+        )
+    return run_edits.new_run("Untitled run", (Analyte("analyte 1", "", ""),), settings=run_settings)
+
+
+class MainWindow(QMainWindow):
+    def __init__(self, session: RunSession, settings: QSettings) -> None:
+        super().__init__()
+        self.settings = settings
+        self.session: RunSession = session
+        self.setMinimumSize(1000, 680)
+        self._build()
+        self._menus()
+        self.attach(session)
+
+    # --- layout ----------------------------------------------------------------------------------
+    def _build(self) -> None:
+        self.caution = QLabel("⚠ " + CAUTION)
+        self.caution.setWordWrap(True)
+        self.caution.setAccessibleName("Caution")
+        self.caution.setStyleSheet("background:#fff4e5; color:#6b3000; border:1px solid #d9a066; padding:4px;")
+        self.verdict = QLabel("")
+        self.verdict.setWordWrap(True)
+        self.verdict.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self.analyte_box = QComboBox()
+        self.analyte_box.setAccessibleName("Analyte")
+        self.analyte_box.currentTextChanged.connect(self._on_analyte)
+        self.standards_view = SheetTableView("Standards")
+        self.samples_view = SheetTableView("Samples")
+        self.results_view = QTableView()
+        self.results_view.setAccessibleName("Results of the samples")
+        self.results_model = ResultsModel()
+        self.results_view.setModel(self.results_model)
+        self.exclude_button = QPushButton("E&xclude / include…")
+        self.exclude_button.clicked.connect(self.toggle_exclusion)
+        self.add_standard_button = QPushButton("&Add standard")
+        self.add_standard_button.clicked.connect(lambda: self.standards_model.add_row())
+        left_tabs = QTabWidget()
+        standards_page = QWidget()
+        v = QVBoxLayout(standards_page)
+        v.setContentsMargins(0, 0, 0, 0)
+        v.addWidget(self.standards_view)
+        row = QHBoxLayout()
+        row.addWidget(self.add_standard_button)
+        row.addWidget(self.exclude_button)
+        row.addStretch(1)
+        v.addLayout(row)
+        left_tabs.addTab(standards_page, "&Standards")
+        left_tabs.addTab(self.samples_view, "Sa&mples")
+        self.left_tabs = left_tabs
+        left = QWidget()
+        lv = QVBoxLayout(left)
+        lv.setContentsMargins(0, 0, 0, 0)
+        top = QHBoxLayout()
+        label = QLabel("A&nalyte:")
+        label.setBuddy(self.analyte_box)
+        top.addWidget(label)
+        top.addWidget(self.analyte_box, 1)
+        lv.addLayout(top)
+        lv.addWidget(left_tabs, 1)
+        self.curve_view = CurveView()
+        self.influence_view = InfluenceView()
+        self.evidence_panel = EvidencePanel()
+        self.evidence_panel.choose_requested.connect(self.choose_model)
+        results_page = QWidget()
+        rv = QVBoxLayout(results_page)
+        rv.setContentsMargins(0, 0, 0, 0)
+        rv.addWidget(self.results_view)
+        self.bottom_tabs = QTabWidget()
+        self.bottom_tabs.addTab(results_page, "&Results")
+        self.bottom_tabs.addTab(self.evidence_panel, "Model &evidence")
+        self.bottom_tabs.addTab(self.influence_view, "&Influence")
+        right = QSplitter(Qt.Orientation.Vertical)
+        right.addWidget(self.curve_view)
+        right.addWidget(self.bottom_tabs)
+        right.setSizes([430, 300])
+        split = QSplitter(Qt.Orientation.Horizontal)
+        split.addWidget(left)
+        split.addWidget(right)
+        split.setSizes([460, 740])
+        central = QWidget()
+        layout = QVBoxLayout(central)
+        layout.addWidget(self.caution)
+        layout.addWidget(self.verdict)
+        layout.addWidget(split, 1)
+        self.setCentralWidget(central)
+        self.statusBar().showMessage("Ready")
+
+    def _menus(self) -> None:
+        def action(menu, text: str, slot, shortcut=None) -> QAction:  # type: ignore[no-untyped-def]
+            act = QAction(text, self)
+            if shortcut is not None:
+                act.setShortcut(shortcut)
+            act.triggered.connect(slot)
+            menu.addAction(act)
+            return act
+
+        file_menu = self.menuBar().addMenu("&File")
+        action(file_menu, "&New run", self.new_run, QKeySequence.StandardKey.New)
+        action(file_menu, "&Open…", self.open_dialog, QKeySequence.StandardKey.Open)
+        self.recent_menu = file_menu.addMenu("Open &recent")
+        self.demo_menu = file_menu.addMenu("Open &demo run")
+        from .main import demo_run_paths
+
+        for path in demo_run_paths():
+            action(self.demo_menu, path.stem.replace("_", " "), lambda _=False, p=path: self.open_path(p))
+        action(file_menu, "&Save", self.save, QKeySequence.StandardKey.Save)
+        action(file_menu, "Save &as…", self.save_as, QKeySequence.StandardKey.SaveAs)
+        file_menu.addSeparator()
+        action(file_menu, "Import s&tandards…", lambda: self.import_table("standards"), "Ctrl+Shift+I")
+        action(file_menu, "Import sa&mples…", lambda: self.import_table("samples"), "Ctrl+Alt+I")
+        file_menu.addSeparator()
+        action(file_menu, "Export results as &XLSX…", lambda: self.export_results("xlsx"), "Ctrl+E")
+        action(file_menu, "Export samples as &CSV…", lambda: self.export_results("csv"))
+        action(file_menu, "Export &plot image…", self.export_plot)
+        action(file_menu, "Export calibration &record (PDF)…", self.export_report, "Ctrl+P")
+        file_menu.addSeparator()
+        action(file_menu, "&Quit", self.close, QKeySequence.StandardKey.Quit)
+
+        edit = self.menuBar().addMenu("&Edit")
+        self.undo_action = action(edit, "&Undo", lambda: self.session.undo_stack.undo(), QKeySequence.StandardKey.Undo)
+        self.redo_action = action(edit, "&Redo", lambda: self.session.undo_stack.redo(), QKeySequence.StandardKey.Redo)
+        edit.addSeparator()
+        action(edit, "&Copy table as text", self.copy_table, "Ctrl+Shift+C")
+        action(edit, "Add &standard", lambda: self.standards_model.add_row(), "Ctrl+Shift+N")
+        action(edit, "Add sa&mple", lambda: self.samples_model.add_row())
+        action(edit, "&Remove row…", self.remove_row, "Ctrl+Shift+Delete")
+        action(edit, "E&xclude or include standard…", self.toggle_exclusion, "Ctrl+Shift+X")
+
+        analysis = self.menuBar().addMenu("&Analysis")
+        action(analysis, "&Choose model…", self.choose_model_dialog, "Ctrl+M")
+        action(analysis, "Run &settings…", self.edit_settings, "Ctrl+,")
+        action(analysis, "Rename &run…", self.rename_run)
+        action(analysis, "Add &analyte…", self.add_analyte)
+
+        help_menu = self.menuBar().addMenu("&Help")
+        action(help_menu, "&About Curvewright", self.about)
+
+    # --- session wiring --------------------------------------------------------------------------
+    def attach(self, session: RunSession) -> None:
+        self.session = session
+        first = session.run.analytes[0].name
+        self.standards_model = StandardsModel(session, first)
+        self.samples_model = SamplesModel(session, first)
+        self.standards_view.setModel(self.standards_model)
+        self.samples_view.setModel(self.samples_model)
+        for model, view in ((self.standards_model, self.standards_view), (self.samples_model, self.samples_view)):
+            model.message.connect(self.show_message)
+            model.modelReset.connect(view.resizeColumnsToContents)
+        session.run_changed.connect(self._on_run_changed)
+        session.analysis_ready.connect(self._on_result)
+        session.analysis_failed.connect(lambda e: self.show_message(f"analysis failed: {e}"))
+        session.dirty_changed.connect(lambda _: self._update_title())
+        session.path_changed.connect(lambda _: self._update_title())
+        self._fill_analytes()
+        self._update_title()
+        self._fill_recent()
+        if session.result is not None:
+            self._on_result(session.result)
+
+    def current_analyte(self) -> str:
+        return self.analyte_box.currentText() or self.session.run.analytes[0].name
+
+    def _fill_analytes(self) -> None:
+        names = [a.name for a in self.session.run.analytes]
+        current = self.analyte_box.currentText()
+        self.analyte_box.blockSignals(True)
+        self.analyte_box.clear()
+        self.analyte_box.addItems(names)
+        self.analyte_box.setCurrentText(current if current in names else names[0])
+        self.analyte_box.blockSignals(False)
+        self._on_analyte(self.analyte_box.currentText())
+
+    def _on_analyte(self, name: str) -> None:
+        if not name:
+            return
+        self.standards_model.set_analyte(name)
+        self.samples_model.set_analyte(name)
+        self._show_views()
+
+    def _on_run_changed(self, run: Run) -> None:
+        if [a.name for a in run.analytes] != [self.analyte_box.itemText(i) for i in range(self.analyte_box.count())]:
+            self._fill_analytes()
+        self._update_title()
+        self.evidence_panel.show_evidence(self.session.evidence.get(self.current_analyte()),
+                                          run.analyte(self.current_analyte()))
+
+    def _on_result(self, result: RunResult) -> None:
+        self._show_views()
+        self.statusBar().showMessage(f"Refit in {self.session.last_analysis_seconds * 1000:.0f} ms", 4000)
+
+    def _show_views(self) -> None:
+        result = self.session.result
+        name = self.current_analyte()
+        analyte = None
+        if result is not None:
+            try:
+                analyte = result.analyte(name)
+            except KeyError:
+                analyte = None
+        level = self.session.run.settings.confidence_level
+        self.curve_view.show_analyte(analyte, level)
+        self.influence_view.show_analyte(analyte)
+        self.results_model.show(result, name)
+        self.results_view.resizeColumnsToContents()
+        self.evidence_panel.show_evidence(self.session.evidence.get(name), self.session.run.analyte(name))
+        self._show_verdict(result)
+
+    def _show_verdict(self, result: RunResult | None) -> None:
+        if result is None:
+            self.verdict.setText("Analysing…")
+            return
+        word = "✔ Run ACCEPTED" if result.accepted else "✖ Run NOT ACCEPTED"
+        colour = "#1d6b36" if result.accepted else "#a11b1b"
+        failing = [r for r in result.reasons if "FAIL" in r]
+        detail = "; ".join(failing[:3]) if failing else f"all checks of {result.profile.name} pass"
+        self.verdict.setText(f"<b style='color:{colour}'>{word}</b> — {detail}")
+        self.verdict.setToolTip("\n".join(result.reasons))
+
+    def _update_title(self) -> None:
+        self.setWindowTitle(f"{self.session.run.name}[*] — Curvewright")
+        self.setWindowModified(self.session.dirty)
+
+    def show_message(self, text: str) -> None:
+        self.statusBar().showMessage(text, 15000)
+
+    # --- files -----------------------------------------------------------------------------------
+    def maybe_save(self) -> bool:
+        """True when it is safe to drop the current run (saved, discarded, or nothing to lose)."""
+        if not self.session.dirty:
+            return True
+        answer = QMessageBox.question(
+            self, "Unsaved changes", f"Save the changes to {self.session.run.name!r}?",
+            QMessageBox.StandardButton.Save | QMessageBox.StandardButton.Discard | QMessageBox.StandardButton.Cancel)
+        if answer == QMessageBox.StandardButton.Save:
+            return self.save()
+        return answer == QMessageBox.StandardButton.Discard
+
+    def replace_session(self, session: RunSession) -> None:
+        old = self.session
+        for signal in (old.run_changed, old.analysis_ready, old.analysis_failed, old.dirty_changed, old.path_changed):
+            try:
+                signal.disconnect()
+            except (RuntimeError, TypeError):
+                pass
+        old.discard_recovery()
+        old.deleteLater()
+        self.analyte_box.clear()
+        self.attach(session)
+
+    def new_run(self) -> None:
+        if self.maybe_save():
+            self.replace_session(RunSession(blank_run(self.settings), recovery_folder=self.session.recovery_folder))
+
+    def open_dialog(self) -> None:
+        path, _ = QFileDialog.getOpenFileName(self, "Open run", "", "Curvewright runs (*.json)")
+        if path:
+            self.open_path(Path(path))
+
+    def open_path(self, path: Path) -> bool:
+        if not self.maybe_save():
+            return False
+        try:
+            session, problems = RunSession.open(path, recovery_folder=self.session.recovery_folder)
+        except CurvewrightError as exc:
+            QMessageBox.warning(self, "Cannot open", str(exc))
+            return False
+        self.replace_session(session)
+        self._remember(path)
+        if problems:
+            QMessageBox.warning(self, "Audit trail does not verify",
+                                "This run opened, but its audit trail does not verify:\n\n" + "\n".join(problems))
+        return True
+
+    def save(self) -> bool:
+        if self.session.path is None:
+            return self.save_as()
+        return self._save_to(self.session.path)
+
+    def save_as(self) -> bool:
+        path, _ = QFileDialog.getSaveFileName(self, "Save run", f"{self.session.run.name}.json", "Curvewright runs (*.json)")
+        return self._save_to(Path(path)) if path else False
+
+    def _save_to(self, path: Path) -> bool:
+        try:
+            self.session.save(path)
+        except CurvewrightError as exc:
+            QMessageBox.warning(self, "Not saved", str(exc))
+            return False
+        self._remember(path)
+        self.show_message(f"Saved {path}")
+        return True
+
+    def _remember(self, path: Path) -> None:
+        recent = [str(Path(path).resolve())] + [p for p in self._recent() if p != str(Path(path).resolve())]
+        self.settings.setValue("recent_files", recent[:MAX_RECENT])
+        self._fill_recent()
+
+    def _recent(self) -> list[str]:
+        value = self.settings.value("recent_files", [])
+        return [value] if isinstance(value, str) else list(value or [])
+
+    def _fill_recent(self) -> None:
+        self.recent_menu.clear()
+        for p in self._recent():
+            act = self.recent_menu.addAction(p)
+            act.triggered.connect(lambda _=False, path=p: self.open_path(Path(path)))
+        self.recent_menu.setEnabled(bool(self._recent()))
+
+    def import_table(self, what: str, path: str | None = None) -> bool:
+        if path is None:
+            path, _ = QFileDialog.getOpenFileName(self, f"Import {what}", "", "Tables (*.csv *.txt *.tsv *.xlsx)")
+            if not path:
+                return False
+        try:
+            dialog = ImportDialog(what, path, self)
+        except CurvewrightError as exc:
+            QMessageBox.warning(self, f"Import {what}", str(exc))
+            return False
+        if dialog.exec() != ImportDialog.DialogCode.Accepted or dialog.result is None:
+            return False
+        return self.apply_import(what, dialog.result)
+
+    def apply_import(self, what: str, result) -> bool:  # type: ignore[no-untyped-def]
+        from ..io.importing import analytes_from_import
+
+        run = self.session.run
+        details = {"what": what, "source": result.source, "sha256": result.sha256,
+                   "rejected_cells": [str(r) for r in result.rejected]}
+        try:
+            if what == "standards":
+                for analyte in analytes_from_import(result):
+                    if analyte.name in {a.name for a in run.analytes}:
+                        existing = run.analyte(analyte.name)
+                        run = run_edits.update_standards(run, analyte.name, existing.standards + analyte.standards,
+                                                         f"imported from {result.source}")
+                    elif len(run.analytes) == 1 and not run.analytes[0].standards:
+                        run = replace(run, analytes=(replace(analyte, name=analyte.name),))
+                    else:
+                        run = replace(run, analytes=run.analytes + (analyte,))
+            else:
+                known = {s.id for s in run.samples}
+                clash = [s.id for s in result.samples if s.id in known]
+                if clash:
+                    raise CurvewrightError(f"sample id {clash[0]!r} is already in the run; rename it in the table first.")
+                names = {a.name for a in run.analytes}
+                missing = sorted({m.analyte for s in result.samples for m in s.measurements} - names)
+                if missing:
+                    raise CurvewrightError(f"the samples name analyte {missing[0]!r}, which the run does not have; "
+                                           "import its standards first or set the analyte name.")
+                run = run_edits.update_samples(run, run.samples + result.samples, f"imported from {result.source}")
+            run = run_edits.record(run, "imported", details)
+        except CurvewrightError as exc:
+            QMessageBox.warning(self, f"Import {what}", str(exc))
+            return False
+        self.session.apply(run, f"Import {what}")
+        self.show_message(result.summary().splitlines()[0])
+        return True
+
+    def export_results(self, kind: str, path: str | None = None) -> bool:
+        result = self._fresh_result()
+        if result is None:
+            return False
+        if path is None:
+            path, _ = QFileDialog.getSaveFileName(self, "Export results", f"{self.session.run.name}.{kind}",
+                                                  "Workbook (*.xlsx)" if kind == "xlsx" else "CSV (*.csv)")
+            if not path:
+                return False
+        from ..io.csv_export import write_csv
+        from ..io.xlsx_export import write_xlsx
+
+        progress = QProgressDialog("Writing the workbook…", "", 0, 100, self)
+        progress.setCancelButton(None)
+        progress.setMinimumDuration(400)
+
+        def step(done: int, total: int) -> None:
+            progress.setValue(int(100 * done / max(total, 1)))
+
+        try:
+            sha = write_xlsx(result, path, progress=step) if kind == "xlsx" else write_csv(result, path)
+        except (ExportError, CurvewrightError) as exc:
+            QMessageBox.warning(self, "Not exported", str(exc))
+            return False
+        finally:
+            progress.close()
+        self.session.record("export_written", {"path": str(path), "format": kind, "sha256": sha})
+        self.show_message(f"Exported {path}")
+        return True
+
+    def export_report(self, path: str | None = None) -> bool:
+        result = self._fresh_result()
+        if result is None:
+            return False
+        if path is None:
+            path, _ = QFileDialog.getSaveFileName(self, "Calibration record", f"{self.session.run.name}.pdf", "PDF (*.pdf)")
+            if not path:
+                return False
+        from ..io.report import build_report
+        from .report_pdf import write_report
+
+        try:
+            sha = write_report(build_report(result), path)
+        except (ExportError, CurvewrightError) as exc:
+            QMessageBox.warning(self, "Not written", str(exc))
+            return False
+        self.session.record("report_written", {"path": str(path), "sha256": sha})
+        self.show_message(f"Calibration record written: {path}")
+        return True
+
+    def export_plot(self, path: str | None = None) -> bool:
+        if path is None:
+            path, _ = QFileDialog.getSaveFileName(self, "Export plot", "curve.png", "PNG image (*.png);;SVG drawing (*.svg)")
+            if not path:
+                return False
+        import pyqtgraph.exporters as exporters
+
+        scene_item = self.curve_view.graphics.ci
+        exporter = exporters.SVGExporter(scene_item) if path.lower().endswith(".svg") else exporters.ImageExporter(scene_item)
+        if not path.lower().endswith(".svg"):
+            exporter.parameters()["width"] = 1800
+        exporter.export(path)
+        self.show_message(f"Plot exported: {path}")
+        return True
+
+    def _fresh_result(self) -> RunResult | None:
+        self.session.wait_for_analysis()
+        from PySide6.QtWidgets import QApplication
+
+        QApplication.processEvents()
+        if self.session.result is None or self.session.result.run is not self.session.run:
+            from ..core.run_analysis import analyse_run
+
+            return analyse_run(self.session.run)
+        return self.session.result
+
+    # --- edits -----------------------------------------------------------------------------------
+    def toggle_exclusion(self, row: int | None = None) -> None:
+        if row is None:
+            index = self.standards_view.currentIndex()
+            if not index.isValid():
+                self.show_message("Select a standard first.")
+                return
+            row = index.row()
+        analyte = self.current_analyte()
+        standard = self.session.run.analyte(analyte).standards[row]
+        if standard.included:
+            reason = ask_exclusion(self, self.session.run, analyte, standard.id)
+            if reason:
+                self.session.apply(run_edits.exclude_standard(self.session.run, analyte, standard.id, reason),
+                                   f"Exclude {standard.id}")
+        else:
+            dialog = ReasonDialog(f"Include {standard.id} again",
+                                  f"Why is {standard.id} put back in the fit? (It was excluded: {standard.exclusion_reason})",
+                                  (), self)
+            if dialog.exec() == ReasonDialog.DialogCode.Accepted:
+                self.session.apply(run_edits.include_standard(self.session.run, analyte, standard.id, dialog.reason()),
+                                   f"Include {standard.id}")
+
+    def choose_model(self, model: str, weighting: str, recommended) -> bool:  # type: ignore[no-untyped-def]
+        analyte = self.current_analyte()
+        needs_reason = recommended is not None and (model, weighting) != tuple(recommended)
+        prompt = (f"{model}, {weighting} is not the recommended {recommended[0]}, {recommended[1]}. Why is it chosen?"
+                  if needs_reason else f"Use {model}, {weighting} for {analyte}. Reason (optional for the recommended model):")
+        dialog = ReasonDialog(f"Choose the model for {analyte}", prompt, (), self)
+        if needs_reason:
+            if dialog.exec() != ReasonDialog.DialogCode.Accepted:
+                return False
+            reason = dialog.reason()
+        else:
+            reason = "the recommended model (see the model evidence)"
+        try:
+            new_run = run_edits.choose_model(self.session.run, analyte, model, weighting, reason, recommended=recommended)
+        except CurvewrightError as exc:
+            self.show_message(str(exc))
+            return False
+        self.session.apply(new_run, f"Choose {model}, {weighting} for {analyte}")
+        return True
+
+    def choose_model_dialog(self) -> None:
+        self.bottom_tabs.setCurrentWidget(self.evidence_panel)
+        self.evidence_panel.table.setFocus()
+        self.show_message("Select a candidate and press 'Use the selected model'.")
+
+    def edit_settings(self) -> None:
+        dialog = SettingsDialog(self.session.run, self)
+        if dialog.exec() != SettingsDialog.DialogCode.Accepted:
+            return
+        try:
+            new_run = run_edits.change_settings(self.session.run, dialog.settings(self.session.run), dialog.reason.text())
+        except CurvewrightError as exc:
+            QMessageBox.warning(self, "Settings", str(exc))
+            return
+        self.session.apply(new_run, "Change run settings")
+        self.settings.setValue("defaults/confidence_level", new_run.settings.confidence_level)
+        self.settings.setValue("defaults/profile", new_run.settings.acceptance_profile)
+        self.settings.setValue("defaults/rounding_kind", new_run.settings.rounding.kind)
+        self.settings.setValue("defaults/rounding_digits", new_run.settings.rounding.digits)
+        self.settings.setValue("defaults/rounding_tie", new_run.settings.rounding.tie)
+
+    def rename_run(self) -> None:
+        name, ok = QInputDialog.getText(self, "Rename run", "Run name:", text=self.session.run.name)
+        if ok and name.strip() and name.strip() != self.session.run.name:
+            new_run = run_edits.record(replace(self.session.run, name=name.strip()), "settings_changed",
+                                       {"changes": {"name": {"old": self.session.run.name, "new": name.strip()}}})
+            self.session.apply(new_run, "Rename run")
+
+    def add_analyte(self) -> None:
+        name, ok = QInputDialog.getText(self, "Add analyte", "Analyte name:")
+        if not ok or not name.strip():
+            return
+        if name.strip() in {a.name for a in self.session.run.analytes}:
+            self.show_message(f"analyte {name.strip()!r} is already in the run.")
+            return
+        unit, _ = QInputDialog.getText(self, "Add analyte", f"Concentration unit of {name.strip()}:")
+        new_run = run_edits.record(
+            replace(self.session.run, analytes=self.session.run.analytes + (Analyte(name.strip(), unit.strip(), ""),)),
+            "settings_changed", {"changes": {"analyte_added": name.strip()}})
+        self.session.apply(new_run, f"Add analyte {name.strip()}")
+        self.analyte_box.setCurrentText(name.strip())
+
+    def remove_row(self) -> None:
+        on_standards = self.left_tabs.currentIndex() == 0
+        view = self.standards_view if on_standards else self.samples_view
+        index = view.currentIndex()
+        if not index.isValid():
+            self.show_message("Select a row first.")
+            return
+        what = "standard" if on_standards else "sample"
+        dialog = ReasonDialog(f"Remove {what}", f"Why is this {what} removed? (To keep a measured standard out of the "
+                              "fit, exclude it instead; its values stay in the audit trail either way.)", (), self)
+        if dialog.exec() == ReasonDialog.DialogCode.Accepted:
+            (self.standards_model if on_standards else self.samples_model).remove_row(index.row(), dialog.reason())
+
+    def copy_table(self) -> str:
+        view = self.focusWidget()
+        if isinstance(view, SheetTableView):
+            return view.copy_selection()
+        from PySide6.QtGui import QGuiApplication
+
+        text = self.results_model.as_text()
+        QGuiApplication.clipboard().setText(text)
+        return text
+
+    def about(self) -> None:
+        QMessageBox.about(self, "About Curvewright", f"Curvewright {__version__}\n\nCalibration curves for testing "
+                          f"laboratories.\n\n{CAUTION}")
+
+    def closeEvent(self, event) -> None:  # noqa: N802 - Qt override
+        if self.maybe_save():
+            self.session.discard_recovery()
+            event.accept()
+        else:
+            event.ignore()

@@ -1,0 +1,219 @@
+"""The samples of the run as an editable table, showing the responses of the selected analyte.
+
+Responses of replicates are typed in one cell separated by ";" (e.g. "0.512; 0.508"). A value
+that cannot be used is never dropped: a response that is not a number is kept as typed and marked;
+a dilution factor, run order or nominal value that is not a number is refused, stays in the cell
+marked in red with the reason, and is named in the status line.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, Signal
+from PySide6.QtGui import QBrush
+
+from ..core.run import Measurement, RunError, Sample, SampleKind
+from ..io import run_edits
+from ..io.importing import KIND_WORDS
+from .cells import number_from_text, reading_from_text, reading_problem
+from .session import RunSession
+from .standards_model import INVALID
+
+COLUMNS = ("Id", "Kind", "Run order", "Dilution factor", "Nominal", "Responses (replicates separated by ;)")
+ID, KIND, ORDER, DILUTION, NOMINAL, RESPONSES = range(len(COLUMNS))
+
+
+class SamplesModel(QAbstractTableModel):
+    message = Signal(str)
+
+    def __init__(self, session: RunSession, analyte: str) -> None:
+        super().__init__()
+        self.session = session
+        self.analyte_name = analyte
+        self.pending: dict[tuple[str, int], tuple[str, str]] = {}
+        session.run_changed.connect(self._reload)
+
+    @property
+    def samples(self) -> tuple[Sample, ...]:
+        return self.session.run.samples
+
+    def set_analyte(self, name: str) -> None:
+        self.beginResetModel()
+        self.analyte_name = name
+        self.endResetModel()
+
+    def rowCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
+        return 0 if parent.isValid() else len(self.samples)
+
+    def columnCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
+        return 0 if parent.isValid() else len(COLUMNS)
+
+    def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole):  # noqa: N802
+        if role != Qt.ItemDataRole.DisplayRole:
+            return None
+        if orientation == Qt.Orientation.Vertical:
+            return str(section + 1)
+        analyte = self.session.run.analyte(self.analyte_name)
+        if section == NOMINAL:
+            return f"Nominal ({analyte.concentration_unit})" if analyte.concentration_unit else "Nominal"
+        if section == RESPONSES:
+            return f"{self.analyte_name} responses (replicates separated by ;)"
+        return COLUMNS[section]
+
+    def flags(self, index: QModelIndex) -> Qt.ItemFlag:
+        return Qt.ItemFlag.ItemIsEnabled | Qt.ItemFlag.ItemIsSelectable | Qt.ItemFlag.ItemIsEditable
+
+    def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):
+        if not index.isValid():
+            return None
+        s = self.samples[index.row()]
+        col = index.column()
+        pending = self.pending.get((s.id, col))
+        problem = pending[1] if pending else self._problem(s, col)
+        if role in (Qt.ItemDataRole.DisplayRole, Qt.ItemDataRole.EditRole):
+            return pending[0] if pending else self._text(s, col)
+        if role == Qt.ItemDataRole.ToolTipRole and problem:
+            return f"Not used: {problem}"
+        if role == Qt.ItemDataRole.BackgroundRole and problem:
+            return QBrush(INVALID)
+        return None
+
+    def _problem(self, s: Sample, col: int) -> str | None:
+        if col != RESPONSES:
+            return None
+        problems = [f"replicate {m.replicate}: {p}" for m in s.measurements_of(self.analyte_name)
+                    if (p := reading_problem(m.response))]
+        return "; ".join(problems) or None
+
+    def _text(self, s: Sample, col: int) -> str:
+        if col == ID:
+            return s.id
+        if col == KIND:
+            return s.kind.words
+        if col == ORDER:
+            return "" if s.run_order is None else str(s.run_order)
+        if col == DILUTION:
+            return f"{s.dilution_factor:g}"
+        if col == NOMINAL:
+            value = s.nominal_of(self.analyte_name)
+            return "" if value is None else f"{value:g}"
+        return "; ".join(m.response.text.strip() for m in s.measurements_of(self.analyte_name))
+
+    # --- editing ---------------------------------------------------------------------------------
+    def setData(self, index: QModelIndex, value, role: int = Qt.ItemDataRole.EditRole) -> bool:  # noqa: N802
+        if role != Qt.ItemDataRole.EditRole:
+            return False
+        samples = list(self.samples)
+        row, col = index.row(), index.column()
+        ok, sample = self._with_cell(samples[row], col, str(value), row + 1)
+        if not ok:
+            self.dataChanged.emit(index, index)
+            return False
+        samples[row] = sample
+        return self._commit(tuple(samples), f"Edit {COLUMNS[col].split(' (')[0].lower()} of {sample.id}")
+
+    def _with_cell(self, s: Sample, col: int, text: str, row_number: int) -> tuple[bool, Sample]:
+        where = f"samples row {row_number}, {COLUMNS[col].split(' (')[0].lower()}"
+        self.pending.pop((s.id, col), None)
+        t = text.strip()
+
+        def refuse(reason: str) -> tuple[bool, Sample]:
+            self.pending[(s.id, col)] = (text, reason)
+            self.message.emit(f"{where}: {text!r} {reason}; not applied (the cell keeps what you typed)")
+            return False, s
+
+        if col == ID:
+            if not t:
+                return refuse("is empty: a sample needs an id")
+            if any(x.id == t for x in self.samples if x is not s):
+                return refuse("is already the id of another sample")
+            return True, replace(s, id=t)
+        if col == KIND:
+            kind = KIND_WORDS.get(t.lower()) or next((k for k in SampleKind if k.words == t.lower()), None)
+            if kind is None:
+                return refuse("is not a sample kind (unknown, QC, blank, check standard)")
+            return True, replace(s, kind=kind)
+        if col == ORDER:
+            if not t:
+                return True, replace(s, run_order=None)
+            value, problem = number_from_text(t)
+            if problem or value != int(value) or value < 0:
+                return refuse("is not a whole number")
+            return True, replace(s, run_order=int(value))
+        if col == DILUTION:
+            value, problem = number_from_text(t)
+            if problem or value <= 0:
+                return refuse(problem or "must be above zero")
+            return True, replace(s, dilution_factor=value)
+        if col == NOMINAL:
+            others = tuple((a, v) for a, v in s.nominal if a != self.analyte_name)
+            if not t:
+                return True, replace(s, nominal=others)
+            value, problem = number_from_text(t)
+            if problem:
+                return refuse(problem)
+            return True, replace(s, nominal=others + ((self.analyte_name, value),))
+        parts = [p for p in text.split(";")] if t else []
+        readings = [reading_from_text(p)[0] for p in parts]
+        others = tuple(m for m in s.measurements if m.analyte != self.analyte_name)
+        mine = tuple(Measurement(self.analyte_name, i + 1, r) for i, r in enumerate(readings))
+        bad = [f"replicate {i + 1}: {reading_from_text(p)[1]}" for i, p in enumerate(parts) if reading_from_text(p)[1]]
+        if bad:
+            self.message.emit(f"{where}: " + "; ".join(bad) + "; kept as typed, not used")
+        return True, replace(s, measurements=others + mine)
+
+    def _commit(self, samples: tuple[Sample, ...], description: str, reason: str = "") -> bool:
+        try:
+            new_run = run_edits.update_samples(self.session.run, samples, description, removed_reason=reason)
+        except RunError as exc:
+            self.message.emit(str(exc))
+            return False
+        self.session.apply(new_run, description)
+        return True
+
+    def paste_block(self, top: int, left: int, text: str) -> int:
+        lines = text.replace("\r\n", "\n").replace("\r", "\n").split("\n")
+        while lines and not lines[-1].strip():
+            lines.pop()
+        samples = list(self.samples)
+        for i, line in enumerate(lines):
+            row = top + i
+            if row >= len(samples):
+                samples.append(Sample(self._new_id(samples)))
+            for j, cell in enumerate(line.split("\t")):
+                col = left + j
+                if col >= len(COLUMNS):
+                    if cell.strip():
+                        self.message.emit(f"samples row {row + 1}: {cell!r} lies beyond the last column; not used")
+                    continue
+                ok, sample = self._with_cell(samples[row], col, cell, row + 1)
+                if ok:
+                    samples[row] = sample
+        return len(lines) if self._commit(tuple(samples), f"Paste {len(lines)} row(s) of samples") else 0
+
+    def add_row(self) -> None:
+        samples = list(self.samples)
+        samples.append(Sample(self._new_id(samples)))
+        self._commit(tuple(samples), "Add a sample")
+
+    def remove_row(self, row: int, reason: str) -> None:
+        samples = list(self.samples)
+        removed = samples.pop(row)
+        self._commit(tuple(samples), f"Remove sample {removed.id}", reason)
+
+    def _new_id(self, samples: list[Sample]) -> str:
+        taken = {s.id for s in samples}
+        n = len(samples) + 1
+        while f"Sample {n}" in taken:
+            n += 1
+        return f"Sample {n}"
+
+    def as_text(self) -> str:
+        lines = ["\t".join(self.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))]
+        lines += ["\t".join(self._text(s, c) for c in range(len(COLUMNS))) for s in self.samples]
+        return "\n".join(lines) + "\n"
+
+    def _reload(self, _run) -> None:  # type: ignore[no-untyped-def]
+        self.beginResetModel()
+        self.endResetModel()

@@ -1,0 +1,288 @@
+"""The standards of one analyte as an editable table (Qt model over the immutable run).
+
+Typing or pasting never loses text: a value that is not a number is kept as typed, marked in red
+with the reason in its tooltip, and reported in the status line. Inclusion changes only through
+the exclusion dialog, with a reason. Read-only columns show what the engine found for each standard.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+
+import numpy as np
+from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, Signal
+from PySide6.QtGui import QBrush, QColor, QFont
+
+from ..core.run import Reading, RunError, Standard
+from ..core.run_analysis import AnalyteResult
+from ..io import run_edits
+from .cells import display_reading, number_from_text, reading_from_text, reading_problem
+from .session import RunSession
+
+COLUMNS = ("Id", "Level", "Rep.", "Concentration", "Response", "IS response", "In fit", "Exclusion reason",
+           "Back-calc.", "%RE", "Within limits", "Influence")
+ID, LEVEL, REP, CONC, RESP, IS, IN_FIT, REASON, BACK, RE, LIMITS, INFLUENCE = range(len(COLUMNS))
+EDITABLE = (ID, LEVEL, REP, CONC, RESP, IS)
+INVALID = QColor(255, 214, 214)
+EXCLUDED = QColor(110, 110, 110)
+FAILING = QColor(255, 236, 200)
+
+
+class StandardsModel(QAbstractTableModel):
+    message = Signal(str)
+
+    def __init__(self, session: RunSession, analyte: str) -> None:
+        super().__init__()
+        self.session = session
+        self.analyte_name = analyte
+        self.result: AnalyteResult | None = None
+        session.run_changed.connect(self._reload)
+        session.analysis_ready.connect(self._on_result)
+        if session.result is not None:
+            self._on_result(session.result)
+
+    # --- reading ---------------------------------------------------------------------------------
+    @property
+    def standards(self) -> tuple[Standard, ...]:
+        return self.session.run.analyte(self.analyte_name).standards
+
+    def set_analyte(self, name: str) -> None:
+        self.beginResetModel()
+        self.analyte_name = name
+        self.result = None
+        if self.session.result is not None:
+            self._pick(self.session.result)
+        self.endResetModel()
+
+    def rowCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802 - Qt override
+        return 0 if parent.isValid() else len(self.standards)
+
+    def columnCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
+        return 0 if parent.isValid() else len(COLUMNS)
+
+    def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole):  # noqa: N802
+        if role != Qt.ItemDataRole.DisplayRole:
+            return None
+        if orientation == Qt.Orientation.Horizontal:
+            unit = self.session.run.analyte(self.analyte_name).concentration_unit
+            if section in (CONC, BACK) and unit:
+                return f"{COLUMNS[section]} ({unit})"
+            return COLUMNS[section]
+        return str(section + 1)
+
+    def flags(self, index: QModelIndex) -> Qt.ItemFlag:
+        base = Qt.ItemFlag.ItemIsEnabled | Qt.ItemFlag.ItemIsSelectable
+        return base | Qt.ItemFlag.ItemIsEditable if index.column() in EDITABLE else base
+
+    def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):  # noqa: C901
+        if not index.isValid():
+            return None
+        s = self.standards[index.row()]
+        col = index.column()
+        problem = self._problem(s, col)
+        if role in (Qt.ItemDataRole.DisplayRole, Qt.ItemDataRole.EditRole):
+            return self._text(s, col, edit=role == Qt.ItemDataRole.EditRole)
+        if role == Qt.ItemDataRole.ToolTipRole:
+            if problem:
+                return f"Not used: {problem}"
+            if col == REASON and s.exclusion_reason:
+                return s.exclusion_reason
+            if col == INFLUENCE:
+                return self._text(s, col) or "nothing stands out"
+            return None
+        if role == Qt.ItemDataRole.BackgroundRole:
+            if problem:
+                return QBrush(INVALID)
+            if col == LIMITS and self._text(s, col) == "NO":
+                return QBrush(FAILING)
+            return None
+        if role == Qt.ItemDataRole.ForegroundRole and not s.included:
+            return QBrush(EXCLUDED)
+        if role == Qt.ItemDataRole.FontRole and not s.included:
+            font = QFont()
+            font.setItalic(True)
+            return font
+        if role == Qt.ItemDataRole.TextAlignmentRole and col in (REP, CONC, RESP, IS, BACK, RE):
+            return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+        return None
+
+    def _problem(self, s: Standard, col: int) -> str | None:
+        if col == CONC and not s.has_concentration:
+            return number_from_text(s.concentration_text)[1] if s.concentration_text.strip() else "no concentration entered"
+        if col == RESP:
+            return reading_problem(s.response) or ("no response entered" if s.response.is_missing else None)
+        if col == IS and self.session.run.analyte(self.analyte_name).uses_internal_standard:
+            return reading_problem(s.internal_standard_response)
+        return None
+
+    def _text(self, s: Standard, col: int, edit: bool = False) -> str:
+        if col == ID:
+            return s.id
+        if col == LEVEL:
+            return s.level
+        if col == REP:
+            return str(s.replicate)
+        if col == CONC:
+            return repr(s.concentration) if s.has_concentration and edit else (
+                f"{s.concentration:g}" if s.has_concentration else s.concentration_text)
+        if col == RESP:
+            return display_reading(s.response)
+        if col == IS:
+            return display_reading(s.internal_standard_response)
+        if col == IN_FIT:
+            return "yes" if s.included else "excluded"
+        if col == REASON:
+            return s.exclusion_reason
+        return self._result_text(s, col)
+
+    def _result_text(self, s: Standard, col: int) -> str:
+        a = self.result
+        if a is None or a.calibration is None:
+            return ""
+        cal = a.calibration
+        position = next((i for i, f in enumerate(a.fitted_standards) if f.id == s.id), None)
+        if position is None:
+            if col == LIMITS:
+                return "excluded" if not s.included else "not used"
+            return ""
+        if col == BACK:
+            value = cal.back_calculated[position]
+            return f"{value:.5g}" if np.isfinite(value) else "no solution"
+        if col == RE:
+            value = cal.relative_error[position]
+            return f"{value:+.2f}" if np.isfinite(value) else "—"
+        if col == LIMITS and a.verdict is not None:
+            if not a.verdict.judged[position]:
+                return "not judged (blank)"
+            return "yes" if a.verdict.passing[position] else "NO"
+        if col == INFLUENCE:
+            return "; ".join(f.value for f in cal.influence_flags[position])
+        return ""
+
+    # --- editing ---------------------------------------------------------------------------------
+    def setData(self, index: QModelIndex, value, role: int = Qt.ItemDataRole.EditRole) -> bool:  # noqa: N802
+        if role != Qt.ItemDataRole.EditRole or index.column() not in EDITABLE:
+            return False
+        standards = list(self.standards)
+        row = index.row()
+        try:
+            updated, warning = self._with_cell(standards[row], index.column(), str(value), row + 1)
+        except RunError as exc:
+            self.message.emit(str(exc))
+            return False
+        standards[row] = updated
+        return self._commit(tuple(standards), f"Edit {COLUMNS[index.column()].lower()} of {updated.id}", warning)
+
+    def _with_cell(self, s: Standard, col: int, text: str, row_number: int) -> tuple[Standard, str | None]:
+        where = f"row {row_number}, {COLUMNS[col].lower()}"
+        if col == ID:
+            if not text.strip():
+                raise RunError(f"{where}: a standard needs an id.")
+            if any(x.id == text.strip() for x in self.standards if x is not s):
+                raise RunError(f"{where}: id {text.strip()!r} is already used by another standard.")
+            return replace(s, id=text.strip()), None
+        if col == LEVEL:
+            return replace(s, level=text.strip()), None
+        if col == REP:
+            value, problem = number_from_text(text)
+            if problem or value != int(value) or value < 1:
+                raise RunError(f"{where}: {text!r} is not a whole number of 1 or more; the replicate stays {s.replicate}.")
+            return replace(s, replicate=int(value)), None
+        if col == CONC:
+            value, problem = number_from_text(text)
+            if problem:
+                return replace(s, concentration=math.nan, concentration_text=text), f"{where}: {text!r} {problem}; kept as typed, not used"
+            return replace(s, concentration=value, concentration_text=""), None
+        reading, problem = reading_from_text(text)
+        warning = f"{where}: {text!r} {problem}; kept as typed, not used" if problem else None
+        if col == RESP:
+            return replace(s, response=reading), warning
+        return replace(s, internal_standard_response=reading if text.strip() else None), warning
+
+    def _commit(self, standards: tuple[Standard, ...], description: str, warning: str | None = None) -> bool:
+        try:
+            new_run = run_edits.update_standards(self.session.run, self.analyte_name, standards, description)
+        except RunError as exc:
+            self.message.emit(str(exc))
+            return False
+        self.session.apply(new_run, description)
+        if warning:
+            self.message.emit(warning)
+        return True
+
+    def paste_block(self, top: int, left: int, text: str) -> int:
+        """Paste tab-separated rows at (top, left), adding standards below the last; returns rows pasted."""
+        lines = [line for line in text.replace("\r\n", "\n").replace("\r", "\n").split("\n")]
+        while lines and not lines[-1].strip():
+            lines.pop()
+        if not lines:
+            return 0
+        standards = list(self.standards)
+        warnings = []
+        for i, line in enumerate(lines):
+            row = top + i
+            if row >= len(standards):
+                standards.append(Standard(self._new_id(standards), math.nan, Reading(None, ""), 1))
+            for j, cell in enumerate(line.split("\t")):
+                col = left + j
+                if col not in EDITABLE:
+                    if cell.strip():
+                        warnings.append(f"row {row + 1}: {cell!r} falls in column {COLUMNS[col] if col < len(COLUMNS) else col + 1}, which cannot be pasted into; not used")
+                    continue
+                try:
+                    standards[row], warning = self._with_cell(standards[row], col, cell, row + 1)
+                except RunError as exc:
+                    warnings.append(str(exc))
+                    continue
+                if warning:
+                    warnings.append(warning)
+        if self._commit(tuple(standards), f"Paste {len(lines)} row(s) of standards"):
+            if warnings:
+                self.message.emit(f"{len(warnings)} pasted cell(s) need attention: " + " | ".join(warnings[:4])
+                                  + (" …" if len(warnings) > 4 else ""))
+            return len(lines)
+        return 0
+
+    def add_row(self) -> None:
+        standards = list(self.standards)
+        standards.append(Standard(self._new_id(standards), math.nan, Reading(None, ""), 1))
+        self._commit(tuple(standards), "Add a standard")
+
+    def remove_row(self, row: int, reason: str) -> None:
+        s = self.standards[row]
+        try:
+            self.session.apply(run_edits.remove_standard(self.session.run, self.analyte_name, s.id, reason), f"Remove {s.id}")
+        except RunError as exc:
+            self.message.emit(str(exc))
+
+    def _new_id(self, standards: list[Standard]) -> str:
+        taken = {s.id for s in standards}
+        n = len(standards) + 1
+        while f"STD-{n}" in taken:
+            n += 1
+        return f"STD-{n}"
+
+    def as_text(self, rows: list[int] | None = None) -> str:
+        """Tab-separated text of the table (header and rows), for the clipboard."""
+        chosen = range(self.rowCount()) if rows is None else rows
+        lines = ["\t".join(self.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))]
+        for r in chosen:
+            lines.append("\t".join(self._text(self.standards[r], c) for c in range(len(COLUMNS))))
+        return "\n".join(lines) + "\n"
+
+    # --- updates ---------------------------------------------------------------------------------
+    def _reload(self, _run) -> None:  # type: ignore[no-untyped-def]
+        self.beginResetModel()
+        self.endResetModel()
+
+    def _pick(self, result) -> None:  # type: ignore[no-untyped-def]
+        try:
+            self.result = result.analyte(self.analyte_name)
+        except KeyError:
+            self.result = None
+
+    def _on_result(self, result) -> None:  # type: ignore[no-untyped-def]
+        self._pick(result)
+        if self.rowCount():
+            self.dataChanged.emit(self.index(0, BACK), self.index(self.rowCount() - 1, INFLUENCE))
