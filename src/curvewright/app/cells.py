@@ -8,30 +8,33 @@ from ..core.run import Reading
 from ..io.number_text import clean, parse_number, parse_reading
 
 
-def reading_from_text(text: str) -> tuple[Reading, str | None]:
-    """A reading and, when the text is not usable, why (the text is kept either way)."""
-    parsed = parse_reading(text, None)
+def reading_from_text(text: str, decimal_mark: str | None = None) -> tuple[Reading, str | None]:
+    """A reading and, when the text is not usable, why (the text is kept either way).
+
+    ``decimal_mark`` is the analyst's stated mark ("." or ","); None refuses tokens that read two ways.
+    """
+    parsed = parse_reading(text, decimal_mark)
     if parsed.reading is not None:
         return parsed.reading, None
     return Reading(None, text), (parsed.problem or "not a number").split(": ", 1)[-1]
 
 
-def number_from_text(text: str) -> tuple[float, str | None]:
+def number_from_text(text: str, decimal_mark: str | None = None) -> tuple[float, str | None]:
     """A finite number, or NaN and why."""
     t = clean(text)
     if not t:
         return math.nan, "empty: a number is needed here"
-    value, problem = parse_number(t, None)
+    value, problem = parse_number(t, decimal_mark)
     if problem or value is None:
         return math.nan, problem or "not a number"
     return value, None
 
 
-def reading_problem(reading: Reading | None) -> str | None:
+def reading_problem(reading: Reading | None, decimal_mark: str | None = None) -> str | None:
     """Why a stored reading is not usable (None when it is a number, censored or empty)."""
     if reading is None or not reading.is_unreadable:
         return None
-    return reading_from_text(reading.text)[1]
+    return reading_from_text(reading.text, decimal_mark)[1] or "not a number"
 
 
 def display_reading(reading: Reading | None) -> str:

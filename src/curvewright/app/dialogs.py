@@ -211,9 +211,14 @@ class ImportDialog(QDialog):
 class SettingsDialog(QDialog):
     """The run's confidence level, acceptance profile and rounding rule."""
 
-    def __init__(self, run: Run, parent: QWidget | None = None) -> None:
+    def __init__(self, run: Run, parent: QWidget | None = None, decimal_mark: str = "system") -> None:
         super().__init__(parent)
         self.setWindowTitle("Run settings")
+        self.decimal = QComboBox()
+        for label, value in (("as the system sets it", "system"), (". (point)", "."), (", (comma)", ","),
+                             ("ask: refuse values that read two ways", "ask")):
+            self.decimal.addItem(label, value)
+        self.decimal.setCurrentIndex(max(self.decimal.findData(decimal_mark), 0))
         s = run.settings
         self.level = QDoubleSpinBox()
         self.level.setRange(0.5, 0.999)
@@ -251,11 +256,15 @@ class SettingsDialog(QDialog):
         form.addRow("&Rounding", self.rounding_kind)
         form.addRow("&Digits", self.rounding_digits)
         form.addRow("&Tie-break", self.rounding_tie)
+        form.addRow("Decimal mark of typed and &pasted values", self.decimal)
         form.addRow("R&eason", self.reason)
         buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Ok | QDialogButtonBox.StandardButton.Cancel)
         buttons.accepted.connect(self.accept)
         buttons.rejected.connect(self.reject)
         form.addRow(buttons)
+
+    def decimal_setting(self) -> str:
+        return str(self.decimal.currentData())
 
     def settings(self, run: Run):  # type: ignore[no-untyped-def]
         return replace(run.settings, confidence_level=round(self.level.value(), 3), interval=self.interval.currentText(),

@@ -18,6 +18,7 @@ from ..core.errors import CurvewrightError
 from ..core.run import Analyte, Run
 from ..core.run_analysis import RunResult
 from ..io import run_edits
+from ..io.atomic import write_atomically
 from ..io.errors import ExportError
 from .curve_view import CurveView, InfluenceView
 from .dialogs import ImportDialog, ReasonDialog, SettingsDialog, ask_exclusion
@@ -29,6 +30,39 @@ from .standards_model import StandardsModel
 from .table_view import SheetTableView
 
 MAX_RECENT = 8
+
+
+def plot_image_bytes(widget: QWidget, *, svg: bool = False, scale: float = 2.0) -> bytes:
+    """The widget drawn as PNG (at ``scale`` times its size) or as an SVG drawing."""
+    from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QRect, QSize
+    from PySide6.QtGui import QColor, QImage, QPainter
+
+    data = QByteArray()
+    buffer = QBuffer(data)
+    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
+    if svg:
+        from PySide6.QtSvg import QSvgGenerator
+
+        generator = QSvgGenerator()
+        generator.setOutputDevice(buffer)
+        generator.setSize(widget.size())
+        generator.setViewBox(QRect(0, 0, widget.width(), widget.height()))
+        generator.setTitle("Curvewright calibration plot")
+        painter = QPainter(generator)
+        widget.render(painter)
+        painter.end()
+    else:
+        size = QSize(int(widget.width() * scale), int(widget.height() * scale))
+        image = QImage(size, QImage.Format.Format_ARGB32)
+        image.fill(QColor("white"))
+        painter = QPainter(image)
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing)
+        painter.scale(scale, scale)
+        widget.render(painter)
+        painter.end()
+        image.save(buffer, "PNG")
+    buffer.close()
+    return bytes(data.data())
 
 
 def blank_run(settings: QSettings | None = None) -> Run:
@@ -128,6 +162,9 @@ class MainWindow(QMainWindow):
         layout.addWidget(self.verdict)
         layout.addWidget(split, 1)
         self.setCentralWidget(central)
+        self.refit_label = QLabel("")
+        self.refit_label.setAccessibleName("Time of the last refit")
+        self.statusBar().addPermanentWidget(self.refit_label)
         self.statusBar().showMessage("Ready")
 
     def _menus(self) -> None:
@@ -189,6 +226,7 @@ class MainWindow(QMainWindow):
         self.standards_view.setModel(self.standards_model)
         self.samples_view.setModel(self.samples_model)
         for model, view in ((self.standards_model, self.standards_view), (self.samples_model, self.samples_view)):
+            model.decimal_mark = self.decimal_mark()
             model.message.connect(self.show_message)
             model.modelReset.connect(view.resizeColumnsToContents)
         session.run_changed.connect(self._on_run_changed)
@@ -201,6 +239,17 @@ class MainWindow(QMainWindow):
         self._fill_recent()
         if session.result is not None:
             self._on_result(session.result)
+
+    def decimal_mark(self) -> str | None:
+        """The decimal mark typed and pasted values use: the setting, else the system's."""
+        value = str(self.settings.value("input/decimal_mark", "system"))
+        if value in (".", ","):
+            return value
+        if value == "ask":
+            return None
+        from PySide6.QtCore import QLocale
+
+        return QLocale.system().decimalPoint() if QLocale.system().decimalPoint() in (".", ",") else None
 
     def current_analyte(self) -> str:
         return self.analyte_box.currentText() or self.session.run.analytes[0].name
@@ -231,7 +280,7 @@ class MainWindow(QMainWindow):
 
     def _on_result(self, result: RunResult) -> None:
         self._show_views()
-        self.statusBar().showMessage(f"Refit in {self.session.last_analysis_seconds * 1000:.0f} ms", 4000)
+        self.refit_label.setText(f"refit in {self.session.last_analysis_seconds * 1000:.0f} ms")
 
     def _show_views(self) -> None:
         result = self.session.result
@@ -456,13 +505,12 @@ class MainWindow(QMainWindow):
             path, _ = QFileDialog.getSaveFileName(self, "Export plot", "curve.png", "PNG image (*.png);;SVG drawing (*.svg)")
             if not path:
                 return False
-        import pyqtgraph.exporters as exporters
-
-        scene_item = self.curve_view.graphics.ci
-        exporter = exporters.SVGExporter(scene_item) if path.lower().endswith(".svg") else exporters.ImageExporter(scene_item)
-        if not path.lower().endswith(".svg"):
-            exporter.parameters()["width"] = 1800
-        exporter.export(path)
+        try:
+            data = plot_image_bytes(self.curve_view.graphics, svg=path.lower().endswith(".svg"))
+            write_atomically(Path(path), data)
+        except ExportError as exc:
+            QMessageBox.warning(self, "Plot not exported", str(exc))
+            return False
         self.show_message(f"Plot exported: {path}")
         return True
 
@@ -526,7 +574,7 @@ class MainWindow(QMainWindow):
         self.show_message("Select a candidate and press 'Use the selected model'.")
 
     def edit_settings(self) -> None:
-        dialog = SettingsDialog(self.session.run, self)
+        dialog = SettingsDialog(self.session.run, self, str(self.settings.value("input/decimal_mark", "system")))
         if dialog.exec() != SettingsDialog.DialogCode.Accepted:
             return
         try:
@@ -534,6 +582,9 @@ class MainWindow(QMainWindow):
         except CurvewrightError as exc:
             QMessageBox.warning(self, "Settings", str(exc))
             return
+        self.settings.setValue("input/decimal_mark", dialog.decimal_setting())
+        for model in (self.standards_model, self.samples_model):
+            model.decimal_mark = self.decimal_mark()
         self.session.apply(new_run, "Change run settings")
         self.settings.setValue("defaults/confidence_level", new_run.settings.confidence_level)
         self.settings.setValue("defaults/profile", new_run.settings.acceptance_profile)

@@ -31,6 +31,7 @@ class SamplesModel(QAbstractTableModel):
         super().__init__()
         self.session = session
         self.analyte_name = analyte
+        self.decimal_mark: str | None = None  # the analyst's decimal mark for typed and pasted values
         self.pending: dict[tuple[str, int], tuple[str, str]] = {}
         session.run_changed.connect(self._reload)
 
@@ -83,7 +84,7 @@ class SamplesModel(QAbstractTableModel):
         if col != RESPONSES:
             return None
         problems = [f"replicate {m.replicate}: {p}" for m in s.measurements_of(self.analyte_name)
-                    if (p := reading_problem(m.response))]
+                    if (p := reading_problem(m.response, self.decimal_mark))]
         return "; ".join(problems) or None
 
     def _text(self, s: Sample, col: int) -> str:
@@ -137,12 +138,12 @@ class SamplesModel(QAbstractTableModel):
         if col == ORDER:
             if not t:
                 return True, replace(s, run_order=None)
-            value, problem = number_from_text(t)
+            value, problem = number_from_text(t, self.decimal_mark)
             if problem or value != int(value) or value < 0:
                 return refuse("is not a whole number")
             return True, replace(s, run_order=int(value))
         if col == DILUTION:
-            value, problem = number_from_text(t)
+            value, problem = number_from_text(t, self.decimal_mark)
             if problem or value <= 0:
                 return refuse(problem or "must be above zero")
             return True, replace(s, dilution_factor=value)
@@ -150,15 +151,15 @@ class SamplesModel(QAbstractTableModel):
             others = tuple((a, v) for a, v in s.nominal if a != self.analyte_name)
             if not t:
                 return True, replace(s, nominal=others)
-            value, problem = number_from_text(t)
+            value, problem = number_from_text(t, self.decimal_mark)
             if problem:
                 return refuse(problem)
             return True, replace(s, nominal=others + ((self.analyte_name, value),))
         parts = [p for p in text.split(";")] if t else []
-        readings = [reading_from_text(p)[0] for p in parts]
+        readings = [reading_from_text(p, self.decimal_mark)[0] for p in parts]
         others = tuple(m for m in s.measurements if m.analyte != self.analyte_name)
         mine = tuple(Measurement(self.analyte_name, i + 1, r) for i, r in enumerate(readings))
-        bad = [f"replicate {i + 1}: {reading_from_text(p)[1]}" for i, p in enumerate(parts) if reading_from_text(p)[1]]
+        bad = [f"replicate {i + 1}: {reading_from_text(p, self.decimal_mark)[1]}" for i, p in enumerate(parts) if reading_from_text(p, self.decimal_mark)[1]]
         if bad:
             self.message.emit(f"{where}: " + "; ".join(bad) + "; kept as typed, not used")
         return True, replace(s, measurements=others + mine)

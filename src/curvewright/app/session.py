@@ -114,7 +114,9 @@ class RunSession(QObject):
         self._path = path
         self._unsaved_records = False
         self.undo_stack = QUndoStack(self)
-        self.undo_stack.cleanChanged.connect(lambda clean: self.dirty_changed.emit(not clean))
+        self.undo_stack.cleanChanged.connect(self._on_clean_changed)
+        # after the stack has moved (its clean state is then current), keep the recovery file in step
+        self.undo_stack.indexChanged.connect(self._on_index_changed)
         self.result: RunResult | None = None
         self.evidence: dict[str, ModelComparison | str] = {}
         self.last_analysis_seconds = 0.0
@@ -143,6 +145,14 @@ class RunSession(QObject):
     def dirty(self) -> bool:
         return not self.undo_stack.isClean() or self._unsaved_records
 
+    @Slot(int)
+    def _on_index_changed(self, _index: int) -> None:
+        self.write_recovery()
+
+    @Slot(bool)
+    def _on_clean_changed(self, clean: bool) -> None:
+        self.dirty_changed.emit(not clean or self._unsaved_records)
+
     def record(self, action: str, details: dict) -> None:  # type: ignore[type-arg]
         """Add an audit entry that is not a change of content (an export, a report): not undoable."""
         self._run = replace(self._run, audit=append_entry(self._run.audit, action, details))
@@ -160,7 +170,6 @@ class RunSession(QObject):
     def _set_run(self, run: Run) -> None:
         self._run = run
         self.run_changed.emit(run)
-        self.write_recovery()
         self.request_analysis()
 
     # --- files -------------------------------------------------------------------------------------

@@ -31,11 +31,14 @@ FAILING = QColor(255, 236, 200)
 
 class StandardsModel(QAbstractTableModel):
     message = Signal(str)
+    default_paste_column = CONC
+    """Where a block lands when no cell is selected: concentration, then response (as instruments export)."""
 
     def __init__(self, session: RunSession, analyte: str) -> None:
         super().__init__()
         self.session = session
         self.analyte_name = analyte
+        self.decimal_mark: str | None = None  # the analyst's decimal mark for typed and pasted values
         self.result: AnalyteResult | None = None
         session.run_changed.connect(self._reload)
         session.analysis_ready.connect(self._on_result)
@@ -109,11 +112,11 @@ class StandardsModel(QAbstractTableModel):
 
     def _problem(self, s: Standard, col: int) -> str | None:
         if col == CONC and not s.has_concentration:
-            return number_from_text(s.concentration_text)[1] if s.concentration_text.strip() else "no concentration entered"
+            return number_from_text(s.concentration_text, self.decimal_mark)[1] if s.concentration_text.strip() else "no concentration entered"
         if col == RESP:
-            return reading_problem(s.response) or ("no response entered" if s.response.is_missing else None)
+            return reading_problem(s.response, self.decimal_mark) or ("no response entered" if s.response.is_missing else None)
         if col == IS and self.session.run.analyte(self.analyte_name).uses_internal_standard:
-            return reading_problem(s.internal_standard_response)
+            return reading_problem(s.internal_standard_response, self.decimal_mark)
         return None
 
     def _text(self, s: Standard, col: int, edit: bool = False) -> str:
@@ -185,16 +188,16 @@ class StandardsModel(QAbstractTableModel):
         if col == LEVEL:
             return replace(s, level=text.strip()), None
         if col == REP:
-            value, problem = number_from_text(text)
+            value, problem = number_from_text(text, self.decimal_mark)
             if problem or value != int(value) or value < 1:
                 raise RunError(f"{where}: {text!r} is not a whole number of 1 or more; the replicate stays {s.replicate}.")
             return replace(s, replicate=int(value)), None
         if col == CONC:
-            value, problem = number_from_text(text)
+            value, problem = number_from_text(text, self.decimal_mark)
             if problem:
                 return replace(s, concentration=math.nan, concentration_text=text), f"{where}: {text!r} {problem}; kept as typed, not used"
             return replace(s, concentration=value, concentration_text=""), None
-        reading, problem = reading_from_text(text)
+        reading, problem = reading_from_text(text, self.decimal_mark)
         warning = f"{where}: {text!r} {problem}; kept as typed, not used" if problem else None
         if col == RESP:
             return replace(s, response=reading), warning

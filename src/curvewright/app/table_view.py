@@ -32,7 +32,7 @@ class SheetTableView(QTableView):
         text = QGuiApplication.clipboard().text() if text is None else text
         current = self.currentIndex()
         top = current.row() if current.isValid() else model.rowCount()
-        left = current.column() if current.isValid() else 0
+        left = current.column() if current.isValid() else getattr(model, "default_paste_column", 0)
         return model.paste_block(max(top, 0), max(left, 0), text)
 
     def copy_selection(self) -> str:

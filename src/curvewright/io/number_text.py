@@ -21,7 +21,9 @@ SPACES = "\u00a0\u202f\u2007\u2009 \t"
 _PLAIN = re.compile(r"^[+-]?(\d+([.,]\d*)?|[.,]\d+)([eE][+-]?\d+)?$")
 _GROUPED_POINT = re.compile(r"^[+-]?\d{1,3}(,\d{3})+(\.\d*)?$")
 _GROUPED_COMMA = re.compile(r"^[+-]?\d{1,3}(\.\d{3})+(,\d*)?$")
-_AMBIGUOUS = re.compile(r"^[+-]?\d{1,3}[.,]\d{3}$")
+_AMBIGUOUS = re.compile(r"^[+-]?[1-9]\d{0,2}[.,]\d{3}$")
+"""1–3 digits (not starting with 0), one mark, exactly 3 digits: "1,000" and "2.500" read two ways;
+"0.101" does not (a group of thousands never starts with 0)."""
 
 
 @dataclass(frozen=True)
