@@ -108,6 +108,7 @@ def test_switch_model_with_a_reason(make_window, qtbot, answer_dialogs) -> None:
     assert window.session.result.analytes[0].calibration.model is cw.Model.QUADRATIC
     entry = window.session.run.audit[-1]
     assert entry.action == "model_chosen" and entry.details["recommended"] == ["linear", "none"]
+    window.bottom_tabs.setCurrentWidget(window.evidence_panel)
     panel = window.evidence_panel
     chosen = [panel.table.item(r, 10).text() for r in range(panel.table.rowCount())]
     assert "● chosen" in chosen and any("recommended" in panel.table.item(r, 9).text() for r in range(panel.table.rowCount()))
@@ -158,6 +159,7 @@ def test_reopen_after_a_crash_and_restore(make_window, qtbot, tmp_path, settings
     model = window.standards_model
     model.setData(model.index(3, sm.RESP), "0.1111")
     settle(qtbot, window)
+    window.session.flush_recovery()
     recovery = window.session.recovery_path()
     assert recovery.exists()
     # simulate the crash: the window is gone without closing, the recovery file stays

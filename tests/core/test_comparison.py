@@ -89,3 +89,19 @@ def test_variance_tests_against_scipy() -> None:
     assert evidence.end_levels.statistic == pytest.approx(f, rel=1e-12)
     # ISO 8466-1 quotes F(9, 9; 99 %) = 5.35 for its ten-replicate design; scipy gives the same.
     assert stats.f.ppf(0.99, 9, 9) == pytest.approx(5.35, abs=0.005)
+
+
+def test_bartlett_and_brown_forsythe_match_scipy() -> None:
+    # scipy.stats is the reference library for both tests
+    from scipy import stats
+
+    from curvewright.core.variance import bartlett_statistic, brown_forsythe_statistic
+
+    rng = np.random.default_rng(5)
+    groups = [rng.normal(0, s, n) for s, n in ((1, 3), (2, 4), (4, 5), (3, 3))]
+    t, p = bartlett_statistic(*groups)
+    ref = stats.bartlett(*groups)
+    assert (t, p) == pytest.approx((ref.statistic, ref.pvalue), rel=1e-12)
+    w, p = brown_forsythe_statistic(*groups)
+    ref = stats.levene(*groups, center="median")
+    assert (w, p) == pytest.approx((ref.statistic, ref.pvalue), rel=1e-12)

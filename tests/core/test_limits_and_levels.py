@@ -71,3 +71,13 @@ def test_inexact_replicates_still_give_lack_of_fit() -> None:
     y = [1.02, 0.99, 2.03, 1.98, 5.1, 5.0, 9.9, 10.1]
     lof = cw.fit(x, y).lack_of_fit
     assert lof.available and lof.df_pure_error == 4 and lof.df_lack_of_fit == 2
+
+
+def test_distribution_functions_match_scipy_stats() -> None:
+    # scipy.stats is the reference library for these quantiles and tail probabilities
+    from curvewright.core.distributions import f_quantile, f_upper_tail, t_quantile
+
+    for df in (1, 3, 8, 30, 200):
+        assert t_quantile(0.975, df) == pytest.approx(stats.t.ppf(0.975, df), rel=1e-13)
+        assert f_upper_tail(2.7, 3, df) == pytest.approx(stats.f.sf(2.7, 3, df), rel=1e-12)
+        assert f_quantile(0.99, df, 9) == pytest.approx(stats.f.ppf(0.99, df, 9), rel=1e-12)

@@ -148,6 +148,7 @@ class MainWindow(QMainWindow):
         self.bottom_tabs.addTab(results_page, "&Results")
         self.bottom_tabs.addTab(self.evidence_panel, "Model &evidence")
         self.bottom_tabs.addTab(self.influence_view, "&Influence")
+        self.bottom_tabs.currentChanged.connect(self._refresh_tab)
         right = QSplitter(Qt.Orientation.Vertical)
         right.addWidget(self.curve_view)
         right.addWidget(self.bottom_tabs)
@@ -225,10 +226,9 @@ class MainWindow(QMainWindow):
         self.samples_model = SamplesModel(session, first)
         self.standards_view.setModel(self.standards_model)
         self.samples_view.setModel(self.samples_model)
-        for model, view in ((self.standards_model, self.standards_view), (self.samples_model, self.samples_view)):
+        for model in (self.standards_model, self.samples_model):
             model.decimal_mark = self.decimal_mark()
             model.message.connect(self.show_message)
-            model.modelReset.connect(view.resizeColumnsToContents)
         session.run_changed.connect(self._on_run_changed)
         session.analysis_ready.connect(self._on_result)
         session.analysis_failed.connect(lambda e: self.show_message(f"analysis failed: {e}"))
@@ -270,13 +270,16 @@ class MainWindow(QMainWindow):
         self.standards_model.set_analyte(name)
         self.samples_model.set_analyte(name)
         self._show_views()
+        # column widths follow the content once per analyte, not on every edit (thousands of rows)
+        for view in (self.standards_view, self.samples_view, self.results_view):
+            view.resizeColumnsToContents()
 
     def _on_run_changed(self, run: Run) -> None:
         if [a.name for a in run.analytes] != [self.analyte_box.itemText(i) for i in range(self.analyte_box.count())]:
             self._fill_analytes()
         self._update_title()
-        self.evidence_panel.show_evidence(self.session.evidence.get(self.current_analyte()),
-                                          run.analyte(self.current_analyte()))
+        self._stale_tabs = getattr(self, "_stale_tabs", set()) | {self.evidence_panel}
+        self._refresh_tab(self.bottom_tabs.currentIndex())
 
     def _on_result(self, result: RunResult) -> None:
         self._show_views()
@@ -293,11 +296,26 @@ class MainWindow(QMainWindow):
                 analyte = None
         level = self.session.run.settings.confidence_level
         self.curve_view.show_analyte(analyte, level)
-        self.influence_view.show_analyte(analyte)
+        self._shown_analyte = analyte
+        # the views behind other tabs are drawn when their tab is opened
+        self._stale_tabs = {self.influence_view, self.evidence_panel}
+        self._refresh_tab(self.bottom_tabs.currentIndex())
+        fresh_columns = self.results_model.rowCount() == 0
         self.results_model.show(result, name)
-        self.results_view.resizeColumnsToContents()
-        self.evidence_panel.show_evidence(self.session.evidence.get(name), self.session.run.analyte(name))
+        if fresh_columns:
+            self.results_view.resizeColumnsToContents()
         self._show_verdict(result)
+
+    def _refresh_tab(self, index: int) -> None:
+        widget = self.bottom_tabs.widget(index)
+        if widget not in getattr(self, "_stale_tabs", set()):
+            return
+        self._stale_tabs.discard(widget)
+        name = self.current_analyte()
+        if widget is self.influence_view:
+            self.influence_view.show_analyte(getattr(self, "_shown_analyte", None))
+        elif widget is self.evidence_panel:
+            self.evidence_panel.show_evidence(self.session.evidence.get(name), self.session.run.analyte(name))
 
     def _show_verdict(self, result: RunResult | None) -> None:
         if result is None:

@@ -26,6 +26,8 @@ from ..io.run_document import open_run, save_run
 
 DEBOUNCE_MS = 120
 """Edits closer together than this are analysed once."""
+RECOVERY_DELAY_MS = 400
+"""The recovery file is written this long after the last change (at most this much work is at risk)."""
 
 
 class RunChange(QUndoCommand):
@@ -98,6 +100,21 @@ class _AnalysisJob(QRunnable):
         self.signals.done.emit(answer)
 
 
+class _RecoveryJob(QRunnable):
+    def __init__(self, run: Run, path: Path, source: str) -> None:
+        super().__init__()
+        self.subject, self.path, self.source = run, path, source
+        self.setAutoDelete(True)
+
+    def run(self) -> None:  # noqa: D401 - QRunnable entry point
+        try:
+            self.path.parent.mkdir(parents=True, exist_ok=True)
+            save_run(self.subject, self.path)
+            self.path.with_suffix(".source").write_text(self.source, encoding="utf-8")
+        except (OSError, CurvewrightError):
+            pass  # a recovery file is a safety net; saving the run itself reports its own errors
+
+
 class RunSession(QObject):
     """The run being worked on."""
 
@@ -130,6 +147,13 @@ class RunSession(QObject):
         self._debounce.setInterval(DEBOUNCE_MS)
         self._debounce.timeout.connect(self._start_analysis)
         self.recovery_folder = recovery_folder or default_recovery_folder()
+        # the recovery file is written shortly after the last change, off the GUI thread
+        self._recovery_timer = QTimer(self)
+        self._recovery_timer.setSingleShot(True)
+        self._recovery_timer.setInterval(RECOVERY_DELAY_MS)
+        self._recovery_timer.timeout.connect(self.write_recovery)
+        self._writer = QThreadPool(self)
+        self._writer.setMaxThreadCount(1)
         self.request_analysis(immediate=True)
 
     # --- state -----------------------------------------------------------------------------------
@@ -147,7 +171,7 @@ class RunSession(QObject):
 
     @Slot(int)
     def _on_index_changed(self, _index: int) -> None:
-        self.write_recovery()
+        self._recovery_timer.start()
 
     @Slot(bool)
     def _on_clean_changed(self, clean: bool) -> None:
@@ -159,7 +183,7 @@ class RunSession(QObject):
         self._unsaved_records = True
         self.dirty_changed.emit(True)
         self.run_changed.emit(self._run)
-        self.write_recovery()
+        self._recovery_timer.start()
 
     def apply(self, new_run: Run, description: str) -> None:
         """Make ``new_run`` current as one undoable step."""
@@ -196,16 +220,22 @@ class RunSession(QObject):
         return self.recovery_folder / f"recovery-{digest}.json"
 
     def write_recovery(self) -> None:
-        """Autosave after every change, so that a crash loses nothing."""
+        """Autosave after a change (on the writer thread), so that a crash loses nothing."""
         if not self.dirty:
             self.discard_recovery()
             return
-        self.recovery_folder.mkdir(parents=True, exist_ok=True)
-        save_run(self._run, self.recovery_path())
-        marker = self.recovery_path().with_suffix(".source")
-        marker.write_text(str(self._path or ""), encoding="utf-8")
+        self._writer.start(_RecoveryJob(self._run, self.recovery_path(), str(self._path or "")))
+
+    def flush_recovery(self) -> None:
+        """Write a pending recovery file now and wait for it (before a risky step, and in tests)."""
+        if self._recovery_timer.isActive():
+            self._recovery_timer.stop()
+            self.write_recovery()
+        self._writer.waitForDone(10000)
 
     def discard_recovery(self) -> None:
+        self._recovery_timer.stop()
+        self._writer.waitForDone(10000)
         for p in (self.recovery_path(), self.recovery_path().with_suffix(".source"),
                   self.recovery_path().with_name(self.recovery_path().name + ".bak")):
             p.unlink(missing_ok=True)

@@ -16,6 +16,7 @@ from __future__ import annotations
 import json
 from dataclasses import dataclass, replace
 from fractions import Fraction
+from functools import lru_cache
 from importlib import resources
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, Mapping
@@ -284,6 +285,8 @@ def available_profiles() -> tuple[str, ...]:
 def load_profile(profile: str | Path) -> AcceptanceProfile:
     """Load a shipped profile by id (e.g. ``"ich-m10-chromatographic"``) or a profile file by path."""
     path = Path(profile)
+    if isinstance(profile, str) and profile in _shipped():
+        return _shipped()[profile]
     if path.suffix == ".json" and path.exists():
         try:
             data = json.loads(path.read_text(encoding="utf-8"))
@@ -299,6 +302,17 @@ def load_profile(profile: str | Path) -> AcceptanceProfile:
         f"acceptance profile: {str(profile)!r} is neither a profile file nor one of "
         f"{', '.join(available_profiles())}."
     )
+
+
+@lru_cache(maxsize=1)
+def _shipped() -> dict[str, AcceptanceProfile]:
+    """The profiles shipped in the package, read once (they are immutable)."""
+    out = {}
+    for entry in resources.files(__package__).joinpath("profiles").iterdir():
+        if entry.name.endswith(".json"):
+            profile = AcceptanceProfile.from_mapping(json.loads(entry.read_text(encoding="utf-8")), entry.name)
+            out[profile.id] = profile
+    return out
 
 
 def _section(data: Mapping[str, Any], key: str, origin: str) -> Mapping[str, Any]:

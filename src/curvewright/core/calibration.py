@@ -11,9 +11,9 @@ from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
 import numpy as np
-from scipy import stats
 
 from ._arrays import FloatArray, as_finite_vector, frozen
+from .distributions import t_quantile
 from .errors import CalibrationInputError
 from .influence import Influence, InfluenceFlag, measure_influence
 from .inverse import Quantitation, quantify, solve_z
@@ -233,7 +233,7 @@ class Calibration:
     def _t(self, level: float) -> float:
         if not (0.0 < level < 1.0):
             raise CalibrationInputError(f"confidence level: {level!r} must lie between 0 and 1 (e.g. 0.95).")
-        return float(stats.t.ppf(0.5 + level / 2.0, self.df_residual))
+        return t_quantile(0.5 + level / 2.0, self.df_residual)
 
 
 def fit(
@@ -244,6 +244,7 @@ def fit(
     *,
     response_sd: object | None = None,
     level_tolerance: float = DEFAULT_LEVEL_TOLERANCE,
+    levels: Levels | None = None,
 ) -> Calibration:
     """Fit a calibration curve to standards.
 
@@ -262,6 +263,9 @@ def fit(
         1/s² needs ≥ 2 replicates at every level unless ``response_sd`` is given.
     response_sd : array-like of shape (n,), optional
         Known response SDs for 1/s² weighting.
+    levels : Levels, optional
+        The grouping of these concentrations from :func:`~curvewright.core.levels.group_levels`,
+        for callers that fit the same standards many times (it must belong to ``concentration``).
 
     Raises
     ------
@@ -280,7 +284,8 @@ def fit(
     p = model.n_parameters
     if x.size == 0:
         raise CalibrationInputError("standards: none given; a calibration needs standards.")
-    levels = group_levels(x, level_tolerance)
+    if levels is None or levels.index.size != x.size:
+        levels = group_levels(x, level_tolerance)
     if levels.n_levels == 1:
         raise CalibrationInputError(
             f"concentration: all {x.size} standards are at {levels.concentration[0]:g}; a curve needs "

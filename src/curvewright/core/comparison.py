@@ -37,10 +37,12 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats
+from scipy import special
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
+from ._arrays import as_finite_vector
 from .calibration import Calibration, fit
+from .distributions import f_quantile, f_upper_tail
 from .errors import CalibrationInputError
 from .levels import DEFAULT_LEVEL_TOLERANCE, group_levels
 from .models import Model
@@ -168,11 +170,13 @@ def compare(
     fits: dict[tuple[Model, Weighting], Calibration] = {}
     skipped: list[SkippedCandidate] = []
     first_error: CalibrationInputError | None = None
+    x = as_finite_vector(concentration, "concentration", CalibrationInputError)
+    shared_levels = group_levels(x, level_tolerance) if x.size else None
     for w in weighting_list:
         for m in model_list:
             try:
                 fits[(m, w)] = fit(
-                    concentration, response, m, w, response_sd=response_sd, level_tolerance=level_tolerance
+                    x, response, m, w, response_sd=response_sd, level_tolerance=level_tolerance, levels=shared_levels
                 )
             except CalibrationInputError as exc:
                 skipped.append(SkippedCandidate(m, w, str(exc)))
@@ -181,7 +185,7 @@ def compare(
         raise CalibrationInputError(f"no candidate model could be fitted: {first_error}")
 
     any_cal = next(iter(fits.values()))
-    evidence = variance_evidence(any_cal.response, group_levels(any_cal.concentration, level_tolerance))
+    evidence = variance_evidence(any_cal.response, any_cal.levels)
     mandel = tuple(
         _mandel(fits[(Model.LINEAR, w)], fits[(Model.QUADRATIC, w)])
         for w in weighting_list
@@ -228,8 +232,8 @@ def _mandel(linear: Calibration, quadratic: Calibration) -> MandelTest:
         weighting=linear.weighting,
         statistic=float(pg),
         df=df,
-        p_value=float(stats.f.sf(pg, *df)),
-        critical_value=float(stats.f.ppf(1 - MANDEL_ALPHA, *df)),
+        p_value=f_upper_tail(pg, *df),
+        critical_value=f_quantile(1 - MANDEL_ALPHA, *df),
     )
 
 
@@ -379,7 +383,7 @@ def _intercept_note(chosen: Candidate) -> list[str]:
     if cal.model is not Model.LINEAR:
         return []
     t_value = cal.coefficients[0] / cal.standard_errors[0] if cal.standard_errors[0] > 0 else np.inf
-    p = float(2 * stats.t.sf(abs(t_value), cal.df_residual))
+    p = float(2 * special.stdtr(cal.df_residual, -abs(t_value)))
     if p >= 0.05:
         return [
             f"the intercept is not significantly different from zero (p = {p:.3g}); a line through the "

@@ -90,21 +90,17 @@ def measure_influence(
         cooks = np.where(full, np.nan, 0.0)
     leverage_threshold = 2.0 * p / n
     cooks_threshold = 4.0 / n
-    flags: list[tuple[InfluenceFlag, ...]] = []
-    for i in range(n):
-        if full[i]:
-            flags.append((InfluenceFlag.DETERMINES_FIT,))
-            continue
-        these: list[InfluenceFlag] = []
-        if leverage[i] > leverage_threshold:
-            these.append(InfluenceFlag.HIGH_LEVERAGE)
-        if cooks[i] > cooks_threshold:
-            these.append(InfluenceFlag.COOKS_ABOVE_4_OVER_N)
-        if cooks[i] > 1.0:
-            these.append(InfluenceFlag.COOKS_ABOVE_1)
-        if abs(external[i]) > STUDENTIZED_LIMIT:
-            these.append(InfluenceFlag.LARGE_STUDENTIZED)
-        flags.append(tuple(these))
+    with np.errstate(invalid="ignore"):
+        tests = (
+            (leverage > leverage_threshold, InfluenceFlag.HIGH_LEVERAGE),
+            (cooks > cooks_threshold, InfluenceFlag.COOKS_ABOVE_4_OVER_N),
+            (cooks > 1.0, InfluenceFlag.COOKS_ABOVE_1),
+            (np.abs(external) > STUDENTIZED_LIMIT, InfluenceFlag.LARGE_STUDENTIZED),
+        )
+    flags: list[tuple[InfluenceFlag, ...]] = [()] * n
+    standing_out = np.flatnonzero(full | np.logical_or.reduce([mask for mask, _ in tests]))
+    for i in standing_out:
+        flags[i] = (InfluenceFlag.DETERMINES_FIT,) if full[i] else tuple(f for mask, f in tests if mask[i])
     return Influence(
         leverage=frozen(np.minimum(leverage, 1.0)),
         studentized_residuals=frozen(external),

@@ -34,9 +34,9 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 from numpy.polynomial.polynomial import polyval
-from scipy import stats
 
 from ._arrays import FloatArray, as_finite_vector, frozen
+from .distributions import t_quantile
 from .errors import QuantitationInputError
 from .models import Model
 from .weighting import Weighting
@@ -50,8 +50,8 @@ SEARCH_HALF_RANGES = 200.0
 """How far beyond x̂ the band inversion looks for the interval's ends, in half-ranges of the standards."""
 RANGE_SLACK = 1e-9
 """Fraction of the calibrated span allowed for round-off when testing whether x̂ is in range."""
-_GRID = np.geomspace(1e-9, 1.0, 72)
 _MAX_REFINE_STEPS = 100
+_MAX_EXPANSIONS = 40
 
 
 class QuantFlag(IntFlag):
@@ -136,7 +136,7 @@ def quantify(
         raise QuantitationInputError(
             f"interval: {interval!r} is not one of {', '.join(map(repr, INTERVAL_METHODS))}."
         )
-    t = float(stats.t.ppf(0.5 + level / 2.0, cal.df_residual))
+    t = t_quantile(0.5 + level / 2.0, cal.df_residual)
 
     z_range = tuple(cal.basis.z(np.array(cal.calibrated_range)))
     z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
@@ -150,7 +150,7 @@ def quantify(
         lower, upper = x_hat - t * se, x_hat + t * se
         unbounded = ~np.isfinite(se) & ~no_solution
     else:
-        lower, upper = _band_interval(cal, y0, m, t, z_hat, no_solution)
+        lower, upper = _band_interval(cal, y0, m, t, z_hat, no_solution, se / cal.basis.scale)
         unbounded = (np.isinf(lower) | np.isinf(upper)) & ~no_solution
 
     limits_note = None
@@ -262,10 +262,9 @@ def _slope_z(cal: "Calibration", z: FloatArray) -> FloatArray:
 
 
 def _curve_variance(cal: "Calibration", z: FloatArray) -> FloatArray:
-    """Variance of the fitted curve at z: φ(z)ᵀ·C·φ(z), C the coefficient covariance."""
-    cov = cal.z_covariance
-    phi = np.stack([z**p for p in cal.basis.powers], axis=-1)
-    return np.einsum("...i,ij,...j->...", phi, cov, phi)
+    """Variance of the fitted curve at z: φ(z)ᵀ·C·φ(z), C the coefficient covariance, evaluated as
+    the polynomial in z it is."""
+    return polyval(z, curve_polynomials(cal)[1])
 
 
 def _new_response_variance(cal: "Calibration", x: FloatArray, y0: FloatArray, m: np.ndarray) -> FloatArray:
@@ -275,13 +274,14 @@ def _new_response_variance(cal: "Calibration", x: FloatArray, y0: FloatArray, m:
 
 
 def _band_interval(
-    cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float, z_hat: FloatArray, no_solution: np.ndarray
+    cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float, z_hat: FloatArray, no_solution: np.ndarray,
+    se_z: FloatArray,
 ) -> tuple[FloatArray, FloatArray]:
     closed_form = cal.model is not Model.QUADRATIC and not cal.weighting.uses_concentration
     if closed_form:
         z_lo, z_hi = _fieller_z(cal, y0, m, t)
     else:
-        z_lo, z_hi = _band_edges(cal, y0, m, t, z_hat, no_solution)
+        z_lo, z_hi = _band_edges(cal, y0, m, t, z_hat, no_solution, t * se_z)
     to_x = lambda z: cal.basis.centre + cal.basis.scale * z  # noqa: E731
     # scale > 0, so the order of the ends survives the change of variable.
     return to_x(z_lo), to_x(z_hi)
@@ -347,12 +347,15 @@ def _band_edges(
     t: float,
     z_hat: FloatArray,
     no_solution: np.ndarray,
+    guess: FloatArray,
 ) -> tuple[FloatArray, FloatArray]:
     """Both ends of the calibration interval around ẑ, in z (vectorised over unknowns).
 
-    Each side is bracketed on a geometric grid outward from ẑ (the first grid point outside the
-    band), then the crossing is refined by the Illinois variant of regula falsi (Dowell & Jarratt
-    1971, BIT 11:168), which keeps the bracket and converges superlinearly.
+    Each side starts from ``guess`` (the half-width t·s_ẑ of the symmetric interval, close to the
+    true end), doubles outward until it leaves the band (bracketing the first crossing; never past
+    the vertex of a quadratic nor beyond :data:`SEARCH_HALF_RANGES`), then refines the crossing by
+    the Illinois variant of regula falsi (Dowell & Jarratt 1971, BIT 11:168), which keeps the
+    bracket and converges superlinearly.
     """
     k = y0.size
     polys = curve_polynomials(cal)
@@ -363,20 +366,36 @@ def _band_edges(
     if cal.model is Model.QUADRATIC and cal.vertex_z is not None:
         towards_vertex = (cal.vertex_z - start) * direction > 0
         reach = np.where(towards_vertex, np.abs(cal.vertex_z - start), reach)
-    offsets = reach[:, None] * _GRID[None, :]
-    excess = _band_excess(cal, polys, yy[:, None], mm[:, None], t, start[:, None] + direction[:, None] * offsets)
-    outside = excess > 0
-    closed = outside.any(axis=1)
-    first = np.argmax(outside, axis=1)
-    rows = np.arange(2 * k)
-    a = np.where(first > 0, offsets[rows, np.maximum(first - 1, 0)], 0.0)
-    b = offsets[rows, first]
-    g_a = np.where(first > 0, excess[rows, np.maximum(first - 1, 0)], _band_excess(cal, polys, yy, mm, t, start))
-    g_b = excess[rows, first]
-    side = 0
+
+    def excess(offset: FloatArray) -> FloatArray:
+        return _band_excess(cal, polys, yy, mm, t, start + direction * offset)
+
+    first = np.tile(np.where(np.isfinite(guess) & (guess > 0), guess, 1e-3), 2)
+    b = np.minimum(first, reach)
+    a = np.zeros(2 * k)
+    g_a = excess(a)
+    g_b = excess(b)
+    # the guess may already lie outside the band; otherwise walk outward by doubling
+    inside = g_b <= 0
+    closed = ~inside
+    for _ in range(_MAX_EXPANSIONS):
+        if not inside.any():
+            break
+        at_reach = inside & (b >= reach)
+        inside &= ~at_reach
+        a = np.where(inside, b, a)
+        g_a = np.where(inside, g_b, g_a)
+        b = np.where(inside, np.minimum(2.0 * b, reach), b)
+        g_new = excess(b)
+        g_b = np.where(inside, g_new, g_b)
+        newly_out = inside & (g_new > 0)
+        closed |= newly_out
+        inside &= ~newly_out
+    side = np.zeros(2 * k, dtype=np.int8)
     previous = np.full(2 * k, np.inf)
     resolution = 4 * np.finfo(float).eps * (np.abs(start) + b)
     active = closed.copy()
+    c = 0.5 * (a + b)
     for _ in range(_MAX_REFINE_STEPS):
         if not active.any():
             break
@@ -384,17 +403,13 @@ def _band_edges(
         c = np.where(np.isfinite(c) & (c > a) & (c < b), c, 0.5 * (a + b))
         active &= (np.abs(c - previous) > resolution) & (b - a > resolution)
         previous = c
-        g_c = _band_excess(cal, polys, yy, mm, t, start + direction * c)
-        right = g_c > 0  # c is outside the band: it becomes the outer end
-        a_new = np.where(right, a, c)
-        b_new = np.where(right, c, b)
-        g_a_new = np.where(right, g_a, g_c)
-        g_b_new = np.where(right, g_c, g_b)
-        # Illinois step: halve the value kept at an end that survived twice in a row.
-        side_now = np.where(right, 1, -1)
-        g_a_new = np.where((side_now == 1) & (side == 1), 0.5 * g_a_new, g_a_new)
-        g_b_new = np.where((side_now == -1) & (side == -1), 0.5 * g_b_new, g_b_new)
-        side = side_now
-        a, b, g_a, g_b = a_new, b_new, g_a_new, g_b_new
-    edge = np.where(closed, start + direction * previous, direction * np.inf)
+        g_c = excess(c)
+        out = g_c > 0  # c lies outside the band: it becomes the outer end
+        # Illinois step: halve the value kept at an end that survived twice in a row
+        g_a = np.where(out, np.where(side == 1, 0.5 * g_a, g_a), g_c)
+        g_b = np.where(out, g_c, np.where(side == -1, 0.5 * g_b, g_b))
+        a = np.where(out, a, c)
+        b = np.where(out, c, b)
+        side = np.where(out, 1, -1).astype(np.int8)
+    edge = np.where(closed, start + direction * c, direction * np.inf)
     return edge[:k], edge[k:]

@@ -17,9 +17,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats
 
 from ._arrays import FloatArray
+from .distributions import f_upper_tail
 from .levels import Levels
 
 
@@ -88,7 +88,7 @@ def lack_of_fit_test(
         f_statistic=float(f),
         df_lack_of_fit=df_lf,
         df_pure_error=df_pe,
-        p_value=float(stats.f.sf(f, df_lf, df_pe)),
+        p_value=f_upper_tail(f, df_lf, df_pe),
         ss_lack_of_fit=ss_lf,
         ss_pure_error=ss_pe,
     )

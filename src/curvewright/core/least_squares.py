@@ -12,7 +12,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import solve_triangular
 
 from ._arrays import FloatArray
 from .errors import CalibrationInputError
@@ -44,8 +43,8 @@ def solve_weighted(design: FloatArray, response: FloatArray, weights: FloatArray
             "concentrations (too few distinct levels, or levels too close together)."
         )
     qty = q.T @ (response * root_w)
-    coefficients = solve_triangular(r, qty, lower=False)
-    r_inverse = solve_triangular(r, np.eye(r.shape[0]), lower=False)
+    r_inverse = _upper_triangular_inverse(r)
+    coefficients = _back_substitute(r, qty)
     fitted = design @ coefficients
     weighted_residuals = root_w * (response - fitted)
     return LeastSquaresSolution(
@@ -56,3 +55,21 @@ def solve_weighted(design: FloatArray, response: FloatArray, weights: FloatArray
         leverage=np.einsum("ij,ij->i", q, q),
         sse=float(weighted_residuals @ weighted_residuals),
     )
+
+
+def _back_substitute(r: FloatArray, b: FloatArray) -> FloatArray:
+    """Solve R·a = b for upper-triangular R by back substitution (p is 1 to 3 here)."""
+    p = r.shape[0]
+    a = np.zeros(p)
+    for i in range(p - 1, -1, -1):
+        a[i] = (b[i] - r[i, i + 1:] @ a[i + 1:]) / r[i, i]
+    return a
+
+
+def _upper_triangular_inverse(r: FloatArray) -> FloatArray:
+    p = r.shape[0]
+    inverse = np.zeros((p, p))
+    identity = np.eye(p)
+    for j in range(p):
+        inverse[:, j] = _back_substitute(r, identity[:, j])
+    return inverse

@@ -70,14 +70,24 @@ def group_levels(concentration: FloatArray, tolerance: float = DEFAULT_LEVEL_TOL
         )
     order = np.argsort(concentration, kind="stable")
     sorted_x = concentration[order]
-    level_of_sorted = np.empty(sorted_x.size, dtype=np.intp)
-    level = 0
-    first = sorted_x[0] if sorted_x.size else 0.0
-    for i, x in enumerate(sorted_x):
-        if i and not _same_level(first, x, tolerance):
-            level += 1
-            first = x
-        level_of_sorted[i] = level
+    gaps = np.diff(sorted_x)
+    scale = np.maximum(np.abs(sorted_x[1:]), np.abs(sorted_x[:-1]))
+    zero_pair = (sorted_x[1:] == 0) | (sorted_x[:-1] == 0)
+    near = (gaps > 0) & ~zero_pair & (gaps <= tolerance * scale)
+    if sorted_x.size == 0:
+        level_of_sorted = np.zeros(0, dtype=np.intp)
+    elif not near.any():
+        # every neighbour is either identical or clearly apart: levels follow the gaps directly
+        level_of_sorted = np.concatenate([[0], np.cumsum(gaps > 0)]).astype(np.intp)
+    else:
+        level_of_sorted = np.empty(sorted_x.size, dtype=np.intp)
+        level = 0
+        first = sorted_x[0]
+        for i, x in enumerate(sorted_x):
+            if i and not _same_level(first, x, tolerance):
+                level += 1
+                first = x
+            level_of_sorted[i] = level
     index = np.empty_like(level_of_sorted)
     index[order] = level_of_sorted
     count = np.bincount(index)

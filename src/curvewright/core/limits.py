@@ -23,7 +23,6 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
-from scipy import optimize, stats
 
 from .errors import LimitsError
 from .models import Model
@@ -94,6 +93,8 @@ def detection_limits(
 
 
 def _iso11843(cal: "Calibration", slope: float, alpha: float, beta: float, replicates: int) -> DetectionLimits:
+    from scipy import optimize, stats  # the non-central t is needed here only; loading it is slow
+
     if cal.model is not Model.LINEAR or cal.weighting is not Weighting.NONE:
         raise LimitsError(
             "ISO 11843-2 limits apply to an unweighted straight line with an intercept; this "

@@ -10,7 +10,9 @@ from __future__ import annotations
 import os
 import shutil
 import tempfile
+from contextlib import contextmanager
 from pathlib import Path
+from typing import Iterator
 
 from .errors import ExportError
 
@@ -58,3 +60,32 @@ def _sync_folder(folder: Path) -> None:
         pass
     finally:
         os.close(fd)
+
+
+@contextmanager
+def atomic_target(path: Path) -> Iterator[Path]:
+    """A temporary path beside ``path`` to write to; on success it is fsynced and renamed over
+    ``path``, on failure removed. Failures raise :class:`ExportError` with the reason."""
+    path = Path(path)
+    folder = path.parent if str(path.parent) else Path(".")
+    try:
+        handle, name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+        os.close(handle)
+    except OSError as exc:
+        raise ExportError(f"{path}: cannot write in folder {folder} ({exc.strerror or exc}).") from None
+    temporary = Path(name)
+    try:
+        yield temporary
+        with open(temporary, "rb+") as stream:
+            os.fsync(stream.fileno())
+        os.replace(temporary, path)
+    except OSError as exc:
+        temporary.unlink(missing_ok=True)
+        raise ExportError(
+            f"{path}: not written ({exc.strerror or exc}); the file may be open in another program or "
+            "the folder not writable. Nothing was lost: the previous file, if any, is unchanged."
+        ) from None
+    except BaseException:
+        temporary.unlink(missing_ok=True)
+        raise
+    _sync_folder(folder)

@@ -101,3 +101,12 @@ def verify_chain(trail: Sequence[AuditEntry]) -> tuple[str, ...]:
 
 def file_sha256(data: bytes) -> str:
     return hashlib.sha256(data).hexdigest()
+
+
+def file_sha256_streamed(path) -> str:  # type: ignore[no-untyped-def]
+    """SHA-256 of a file read in 1 MiB pieces (memory stays flat for large exports)."""
+    digest = hashlib.sha256()
+    with open(path, "rb") as stream:
+        for block in iter(lambda: stream.read(1 << 20), b""):
+            digest.update(block)
+    return digest.hexdigest()

@@ -11,7 +11,7 @@ from __future__ import annotations
 import re
 
 FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
-_ILLEGAL_XML = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")
+ILLEGAL_XML = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")
 
 
 def looks_like_formula(text: str) -> bool:
@@ -20,7 +20,7 @@ def looks_like_formula(text: str) -> bool:
 
 def xml_safe(text: str) -> str:
     """Control characters XML cannot hold, shown as \\xNN so that nothing is silently lost."""
-    return _ILLEGAL_XML.sub(lambda m: f"\\x{ord(m.group()):02x}", text)
+    return ILLEGAL_XML.sub(lambda m: f"\\x{ord(m.group()):02x}", text)
 
 
 def csv_safe(text: str) -> str:

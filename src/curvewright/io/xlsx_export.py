@@ -21,31 +21,39 @@ from openpyxl.styles import Font
 
 from .. import CAUTION
 from ..core.run_analysis import RunResult
-from .atomic import write_atomically
-from .audit import file_sha256
+from .atomic import atomic_target
+from .audit import file_sha256_streamed
 from .result_tables import Table, Value, all_tables
-from .safe_text import xml_safe
+from .safe_text import ILLEGAL_XML, xml_safe
 
 Progress = Callable[[int, int], None]
+_needs_escaping = ILLEGAL_XML.search
 _SHEET_FORBIDDEN = str.maketrans({c: "_" for c in "[]:*?/\\"})
 
 
 def write_xlsx(result: RunResult, path: str | Path, *, progress: Progress | None = None) -> str:
     """Write the workbook for ``result`` to ``path`` atomically; return the SHA-256 of what was written
-    (for the audit trail's "export written" entry)."""
-    data = xlsx_bytes(all_tables(result), progress=progress)
-    write_atomically(Path(path), data)
-    return file_sha256(data)
+    (for the audit trail's "export written" entry). The workbook streams to a temporary file beside
+    the target, so memory stays flat however many rows there are."""
+    return write_tables(all_tables(result), Path(path), progress=progress)
+
+
+def write_tables(tables: Iterable[Table], path: Path, *, progress: Progress | None = None) -> str:
+    with _exact_floats(), atomic_target(path) as temporary:
+        _build(list(tables), progress, temporary)
+        return file_sha256_streamed(temporary)
 
 
 def xlsx_bytes(tables: Iterable[Table], *, progress: Progress | None = None) -> bytes:
     # write-only sheets stream their rows as they are appended, so the exact number writer must be
     # in place for the whole build, not only for the final save
+    buffer = io.BytesIO()
     with _exact_floats():
-        return _build(list(tables), progress)
+        _build(list(tables), progress, buffer)
+    return buffer.getvalue()
 
 
-def _build(tables: list[Table], progress: Progress | None) -> bytes:
+def _build(tables: list[Table], progress: Progress | None, target) -> None:  # type: ignore[no-untyped-def]
     workbook = Workbook(write_only=True)
     bold = Font(bold=True)
     used: set[str] = set()
@@ -64,11 +72,9 @@ def _build(tables: list[Table], progress: Progress | None) -> bytes:
             done += 1
             if progress is not None and done % 5000 == 0:
                 progress(done, total)
-    buffer = io.BytesIO()
-    workbook.save(buffer)
+    workbook.save(target)
     if progress is not None:
         progress(total, total)
-    return buffer.getvalue()
 
 
 def _cell(sheet, value: Value, kind: str):  # type: ignore[no-untyped-def]
@@ -80,8 +86,10 @@ def _cell(sheet, value: Value, kind: str):  # type: ignore[no-untyped-def]
             decimals = len(value.split(".", 1)[1]) if "." in value else 0
             cell.number_format = "0" if decimals == 0 else "0." + "0" * decimals
             return cell
-        return _text_cell(sheet, value)
-    return float(value) if isinstance(value, float) else value
+        if value.startswith("=") or _needs_escaping(value):
+            return _text_cell(sheet, value)
+        return value  # openpyxl writes any other text as a plain string cell
+    return value
 
 
 def _text_cell(sheet, text: str, font: Font | None = None):  # type: ignore[no-untyped-def]

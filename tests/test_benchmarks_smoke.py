@@ -1,0 +1,31 @@
+"""The benchmarks run, in a short smoke mode, and their results agree with the engine.
+
+No timing is asserted here: speed targets are measured by the benchmarks themselves (benchmarks/).
+The batch and model-screen benchmarks assert their own agreement with the reference library.
+"""
+
+from __future__ import annotations
+
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[1]
+BENCHMARKS = sorted((ROOT / "benchmarks").glob("bench_*.py"))
+
+
+@pytest.mark.parametrize("script", BENCHMARKS, ids=[p.stem for p in BENCHMARKS])
+def test_benchmark_runs_in_smoke_mode(script: Path) -> None:
+    env = {**os.environ, "QT_QPA_PLATFORM": "offscreen"}
+    result = subprocess.run([sys.executable, str(script), "--smoke"], capture_output=True, text=True,
+                            timeout=600, env=env, cwd=ROOT)
+    assert result.returncode == 0, result.stdout[-2000:] + result.stderr[-2000:]
+    assert "×" in result.stdout  # every benchmark reports its ratios
+
+
+def test_there_is_a_benchmark_for_each_target() -> None:
+    assert {p.stem for p in BENCHMARKS} == {"bench_batch_quantitation", "bench_model_screen", "bench_app_start",
+                                          "bench_edit_redraw", "bench_xlsx_export"}
