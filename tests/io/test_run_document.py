@@ -73,7 +73,7 @@ def test_exclusion_is_a_flag_and_the_standard_stays() -> None:
 
 
 def test_edits_log_old_and_new_values() -> None:
-    run = run_edits.edit_standard(small_run(), "cobalt", "S1a", "response", Reading(1030.0, "1030"), "transcription",
+    run = run_edits.edit_standard(small_run(), "cobalt", "S1a", "response", Reading(1030.0, "1030"), "typing error corrected",
                                   user="tester", clock=FixedClock())
     entry = run.audit[-1]
     assert (entry.action, entry.details["old"], entry.details["new"]) == ("value_edited", "1031.5", "1030")
