@@ -261,3 +261,15 @@ def test_screens_render_to_png(tmp_path) -> None:
     assert result.returncode == 0, result.stderr
     pngs = sorted(tmp_path.glob("*.png"))
     assert len(pngs) == len(DEMOS) and all(p.stat().st_size > 20000 for p in pngs)
+
+
+def test_import_from_a_file_through_the_menu_path(make_window, qtbot, tmp_path, monkeypatch, answer_dialogs) -> None:
+    from curvewright.app import main_window
+
+    path = tmp_path / "more.csv"
+    path.write_text("Sample;Absorbance\nLake 2;0,41\n", encoding="utf-8")
+    monkeypatch.setattr(main_window.ImportDialog, "exec", lambda self: main_window.ImportDialog.DialogCode.Accepted)
+    window = make_window(NITRATE)
+    assert window.import_table("samples", str(path))  # the table has no analyte column: the current analyte
+    settle(qtbot, window)
+    assert any(s.sample_id == "Lake 2" for s in window.session.result.analytes[0].samples)

@@ -118,7 +118,8 @@ def ask_exclusion(parent: QWidget, run: Run, analyte: str, standard_id: str) -> 
 class ImportDialog(QDialog):
     """Shows how every value of a table was read before it is imported."""
 
-    def __init__(self, what: str, source: Path | str, parent: QWidget | None = None, *, text: bool = False) -> None:
+    def __init__(self, what: str, source: Path | str, parent: QWidget | None = None, *, text: bool = False,
+                 analyte: str = "analyte") -> None:
         super().__init__(parent)
         self.what, self.source, self.is_text = what, source, text
         self.setWindowTitle(f"Import {what}")
@@ -129,7 +130,7 @@ class ImportDialog(QDialog):
         self.decimal.addItems(["detect", ". (point)", ", (comma)"])
         self.thousands = QComboBox()
         self.thousands.addItems(["none (refuse)", ",", ".", "space", "'"])
-        self.analyte = QLineEdit("analyte")
+        self.analyte = QLineEdit(analyte)
         form = QFormLayout()
         if not text and str(source).lower().endswith((".xlsx", ".xlsm")):
             self.sheet.addItems(list(xlsx_sheet_names(source)))

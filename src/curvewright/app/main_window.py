@@ -423,11 +423,20 @@ class MainWindow(QMainWindow):
             path, _ = QFileDialog.getOpenFileName(self, f"Import {what}", "", "Tables (*.csv *.txt *.tsv *.xlsx)")
             if not path:
                 return False
+        busy = QProgressDialog(f"Reading {Path(path).name}…", "", 0, 0, self)
+        busy.setCancelButton(None)
+        busy.setMinimumDuration(300)
+        busy.setValue(0)
+        from PySide6.QtWidgets import QApplication
+
+        QApplication.processEvents()
         try:
-            dialog = ImportDialog(what, path, self)
+            dialog = ImportDialog(what, path, self, analyte=self.current_analyte())
         except CurvewrightError as exc:
             QMessageBox.warning(self, f"Import {what}", str(exc))
             return False
+        finally:
+            busy.close()
         if dialog.exec() != ImportDialog.DialogCode.Accepted or dialog.result is None:
             return False
         return self.apply_import(what, dialog.result)
