@@ -341,6 +341,8 @@ def _export(result, target: Path, options: dict[str, Any]) -> str:  # type: igno
 
 # --- text and JSON ----------------------------------------------------------------------------------
 def summary_text(result, source: Path | None, notes: list[str], written: list[tuple[str, str, str]]) -> str:  # type: ignore[no-untyped-def]
+    from .io.result_tables import display_number
+
     run = result.run
     lines = [f"Run: {run.name}" + (f"  ({source})" if source else ""),
              f"Profile: {result.profile.name}; verdict: {'ACCEPTED' if result.accepted else 'NOT ACCEPTED'}"]
@@ -379,21 +381,11 @@ def summary_text(result, source: Path | None, notes: list[str], written: list[tu
             if s.reported is None:
                 lines.append(f"  {s.sample_id[:24]:<24} {'—':>12} {'':>26}  {s.flag_words}")
                 continue
-            interval = f"{_num(s.reported_lower)} – {_num(s.reported_upper)}"
+            interval = f"{display_number(s.reported_lower, 5)} – {display_number(s.reported_upper, 5)}"
             lines.append(f"  {s.sample_id[:24]:<24} {rule.text(s.reported):>12} {interval:>26}  {s.flag_words}")
     for action, path, sha in written:
         lines.append(f"{'workbook' if action == 'export_written' else 'report'} written: {path} (SHA-256 {sha[:16]}…)")
     return "\n".join(lines)
-
-
-def _num(value: float | None) -> str:
-    if value is None:
-        return "—"
-    if value == float("inf"):
-        return "∞"
-    if value == float("-inf"):
-        return "−∞"
-    return f"{value:.5g}"
 
 
 def _plain(value: Any) -> Any:

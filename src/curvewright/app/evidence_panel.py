@@ -10,13 +10,10 @@ from PySide6.QtWidgets import (QAbstractItemView, QHBoxLayout, QLabel, QPushButt
 
 from ..core.comparison import ModelComparison
 from ..core.run import Analyte
+from ..io.result_tables import display_number
 
 HEADERS = ("Model", "Weighting", "Residual SD", "Adjusted R²", "Lack-of-fit p", "Mandel p", "Σ|%RE|",
            "Standards failing", "AICc", "Recommended", "Chosen")
-
-
-def _g(value: float | None, digits: int = 4) -> str:
-    return "—" if value is None else f"{value:.{digits}g}"
 
 
 class EvidencePanel(QWidget):
@@ -63,9 +60,11 @@ class EvidencePanel(QWidget):
             self.table.insertRow(r)
             recommended = c is self.comparison.recommended
             chosen = c.model.value == analyte.model and c.weighting.value == analyte.weighting
-            values = (c.model.value, c.weighting.value, _g(c.residual_sd), _g(c.adjusted_r_squared, 6),
-                      _g(c.lack_of_fit_p, 3), _g(c.mandel.p_value if c.mandel else None, 3),
-                      _g(c.sum_abs_relative_error), str(c.standards_failing), _g(c.aicc, 5),
+            values = (c.model.value, c.weighting.value, display_number(c.residual_sd, 4),
+                      display_number(c.adjusted_r_squared, 6), display_number(c.lack_of_fit_p, 3),
+                      display_number(c.mandel.p_value if c.mandel else None, 3),
+                      display_number(c.sum_abs_relative_error, 4), str(c.standards_failing),
+                      display_number(c.aicc, 5),
                       "★ recommended" if recommended else "", "● chosen" if chosen else "")
             for col, text in enumerate(values):
                 item = QTableWidgetItem(text)

@@ -7,6 +7,7 @@ from PySide6.QtGui import QBrush, QColor
 
 from ..core.inverse import QuantFlag
 from ..core.run_analysis import AnalyteResult, RunResult, SampleResult
+from ..io.result_tables import display_number
 
 COLUMNS = ("Sample", "Kind", "n", "Mean response", "Estimate", "Dilution", "Reported", "Reported (rounded)",
            "Lower", "Upper", "Flags", "Recovery (%)", "QC")
@@ -71,10 +72,10 @@ class ResultsModel(QAbstractTableModel):
     def text(self, s: SampleResult, col: int) -> str:
         rule = self.result.run.settings.rounding if self.result else None
         values = {
-            0: s.sample_id, 1: s.kind.words, 2: str(len(s.replicate_responses)), 3: _g(s.mean_response),
-            4: _g(s.estimate), 5: f"{s.dilution_factor:g}", 6: _g(s.reported),
+            0: s.sample_id, 1: s.kind.words, 2: str(len(s.replicate_responses)), 3: display_number(s.mean_response),
+            4: display_number(s.estimate), 5: f"{s.dilution_factor:g}", 6: display_number(s.reported),
             7: rule.text(s.reported) if (rule and s.reported is not None) else "—",
-            8: _g(s.reported_lower), 9: _g(s.reported_upper), 10: s.flag_words,
+            8: display_number(s.reported_lower), 9: display_number(s.reported_upper), 10: s.flag_words,
             11: "" if s.recovery_percent is None else f"{s.recovery_percent:.1f}",
             12: self._qc(s),
         }
@@ -89,11 +90,3 @@ class ResultsModel(QAbstractTableModel):
         lines = ["\t".join(self.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))]
         lines += ["\t".join(self.text(s, c) for c in range(len(COLUMNS))) for s in self.rows]
         return "\n".join(lines) + "\n"
-
-
-def _g(value: float | None) -> str:
-    if value is None:
-        return "—"
-    if value in (float("inf"), float("-inf")):
-        return "∞" if value > 0 else "−∞"
-    return f"{value:.6g}"

@@ -1,4 +1,3 @@
-"""Run documents, import (paste, CSV, XLSX), export (XLSX, CSV) and the printable report.
-
-Never imports Qt except in the report renderer, which is loaded on demand.
+"""Run documents, import (paste, CSV, XLSX), export (XLSX, CSV) and the content of the printable
+record. Never imports Qt: the record is laid out as PDF by :mod:`curvewright.app.report_pdf`.
 """

@@ -19,30 +19,9 @@ from .errors import ExportError
 
 def write_atomically(path: Path, data: bytes, *, keep_backup: bool = False) -> None:
     """Write ``data`` to ``path`` atomically; raise :class:`ExportError` with the reason on failure."""
-    path = Path(path)
-    folder = path.parent if str(path.parent) else Path(".")
-    try:
-        handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
-    except OSError as exc:
-        raise ExportError(f"{path}: cannot write in folder {folder} ({exc.strerror or exc}).") from None
-    try:
-        with os.fdopen(handle, "wb") as stream:
+    with atomic_target(Path(path), keep_backup=keep_backup) as temporary:
+        with open(temporary, "wb") as stream:
             stream.write(data)
-            stream.flush()
-            os.fsync(stream.fileno())
-        if keep_backup and path.exists():
-            shutil.copy2(path, backup_path(path))
-        os.replace(temporary, path)
-    except OSError as exc:
-        try:
-            os.unlink(temporary)
-        except OSError:
-            pass
-        raise ExportError(
-            f"{path}: not written ({exc.strerror or exc}); the file may be open in another program or "
-            "the folder not writable. Nothing was lost: the previous file, if any, is unchanged."
-        ) from None
-    _sync_folder(folder)
 
 
 def backup_path(path: Path) -> Path:
@@ -63,9 +42,10 @@ def _sync_folder(folder: Path) -> None:
 
 
 @contextmanager
-def atomic_target(path: Path) -> Iterator[Path]:
+def atomic_target(path: Path, *, keep_backup: bool = False) -> Iterator[Path]:
     """A temporary path beside ``path`` to write to; on success it is fsynced and renamed over
-    ``path``, on failure removed. Failures raise :class:`ExportError` with the reason."""
+    ``path`` (the previous file first copied to ``NAME.bak`` when ``keep_backup``), on failure
+    removed. Failures raise :class:`ExportError` with the reason."""
     path = Path(path)
     folder = path.parent if str(path.parent) else Path(".")
     try:
@@ -78,6 +58,8 @@ def atomic_target(path: Path) -> Iterator[Path]:
         yield temporary
         with open(temporary, "rb+") as stream:
             os.fsync(stream.fileno())
+        if keep_backup and path.exists():
+            shutil.copy2(path, backup_path(path))
         os.replace(temporary, path)
     except OSError as exc:
         temporary.unlink(missing_ok=True)

@@ -212,6 +212,16 @@ def all_tables(result: RunResult) -> tuple[Table, ...]:
     return tuple(tables)
 
 
+def display_number(value: float | None, digits: int = 6) -> str:
+    """A number for reading on screen: ``digits`` significant figures, "—" when there is none, ∞ for
+    an unbounded interval end (full precision stays in the exported cells)."""
+    if value is None:
+        return "—"
+    if value in (float("inf"), float("-inf")):
+        return "∞" if value > 0 else "−∞"
+    return f"{value:.{digits}g}"
+
+
 def caution_line() -> str:
     return CAUTION
 
