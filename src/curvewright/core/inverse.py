@@ -231,6 +231,12 @@ def solve_z(
     if model is Model.LINEAR:
         return (y0 - a[0]) / a[1], false, false
     a0, a1, a2 = a
+    if a2 == 0.0:
+        # No curvature at all (±0.0: a quadratic fitted to standards on an exact straight line). The
+        # root formula would divide by it and pick an infinite root; the curve is a line in z.
+        if a1 == 0.0:
+            return np.full(y0.size, np.nan), ~false, false
+        return (y0 - a0) / a1, false, false
     c = a0 - y0
     disc = a1 * a1 - 4.0 * a2 * c
     no_solution = disc < 0

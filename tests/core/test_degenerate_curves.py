@@ -1,0 +1,76 @@
+"""Curves whose shape degenerates: a quadratic with no curvature at all, a flat response.
+
+A quadratic fitted to standards lying on an exact straight line can come out with a curvature
+coefficient of exactly 0.0 or −0.0, depending on the machine's rounding. Both must read back as the
+straight line they are, never as an infinite root.
+"""
+
+from __future__ import annotations
+
+import warnings
+
+import numpy as np
+import pytest
+
+import curvewright as cw
+from curvewright.core import inverse
+from curvewright.core.models import Model
+
+# Duplicates at six levels on y = 2 + 3x, ±0.01 alternating: the replicate means lie exactly on the line.
+X = np.array([1, 1, 2, 2, 4, 4, 8, 8, 16, 16, 32, 32], dtype=float)
+Y = 2.0 + 3.0 * X + np.tile([0.01, -0.01], 6)
+
+
+@pytest.mark.parametrize("curvature", [0.0, -0.0], ids=["plus-zero", "minus-zero"])
+@pytest.mark.parametrize("branch", [1, -1])
+def test_a_quadratic_without_curvature_solves_as_a_line(curvature, branch) -> None:
+    a = np.array([33.5, 46.5, curvature])
+    y0 = np.array([33.5, 80.0, -13.0])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        z, no_solution, ambiguous = inverse.solve_z(Model.QUADRATIC, a, branch, (-1.0, 1.0), y0)
+    assert np.array_equal(z, (y0 - 33.5) / 46.5)
+    assert not no_solution.any() and not ambiguous.any()
+
+
+def test_a_flat_quadratic_has_no_solution_rather_than_a_division_by_zero() -> None:
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        z, no_solution, _ = inverse.solve_z(Model.QUADRATIC, np.array([5.0, 0.0, -0.0]), 1, (-1.0, 1.0), np.array([5.0, 6.0]))
+    assert no_solution.all() and np.isnan(z).all()
+
+
+def test_quadratic_on_straight_line_data_quantifies_like_the_line() -> None:
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        quadratic = cw.fit(X, Y, "quadratic")
+        q = quadratic.quantify([20.0, 50.0, 95.0], replicates=2)
+    line = cw.fit(X, Y, "linear")
+    # the replicate means lie on y = 2 + 3x exactly, so both fits give that line to round-off
+    assert np.all(np.isfinite(quadratic.back_calculated))
+    assert quadratic.back_calculated == pytest.approx(line.back_calculated, rel=1e-12, abs=1e-12)
+    assert q.estimate == pytest.approx([6.0, 16.0, 31.0], rel=1e-12)
+    assert np.all(np.isfinite(q.lower)) and np.all(np.isfinite(q.upper))
+    assert np.all(q.lower < q.estimate) and np.all(q.estimate < q.upper)
+
+
+def test_quadratic_forced_to_minus_zero_curvature_still_quantifies(monkeypatch) -> None:
+    """The machine-dependent case, made certain: the fit's curvature is replaced by −0.0."""
+    from curvewright.core import calibration
+
+    real = calibration.solve_weighted
+
+    def exact_line(design, y, weights):  # type: ignore[no-untyped-def]
+        solution = real(design, y, weights)
+        coefficients = np.array(solution.coefficients, dtype=float)
+        if coefficients.size == 3:
+            coefficients[2] = -0.0
+        return type(solution)(**{**solution.__dict__, "coefficients": coefficients})
+
+    monkeypatch.setattr(calibration, "solve_weighted", exact_line)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        cal = cw.fit(X, Y, "quadratic")
+        q = cal.quantify([50.0])
+    assert np.all(np.isfinite(cal.back_calculated))
+    assert q.estimate[0] == pytest.approx(16.0, rel=1e-9)
