@@ -55,22 +55,50 @@ def settle(qtbot, window) -> None:
     qtbot.wait(20)
 
 
+class DialogAnswers(dict):
+    """How the dialogs are answered, and what each one showed (``seen``: title and prompt)."""
+
+    def __init__(self) -> None:
+        super().__init__(reason="bench note 14: vial cracked", question=None, choice=None)
+        self.seen: list[tuple[str, str]] = []
+
+    @property
+    def last_title(self) -> str:
+        return self.seen[-1][0] if self.seen else ""
+
+
 @pytest.fixture
 def answer_dialogs(monkeypatch):
-    """Answer reason dialogs and questions without a person at the keyboard."""
-    from PySide6.QtWidgets import QDialog, QMessageBox
+    """Answer reason dialogs, questions and warnings without a person at the keyboard, and record what
+    each showed. By default a reason dialog gets the last listed reason ("other") and the details text;
+    ``answers["choice"] = i`` picks list item i instead; ``answers["reason"] = None`` cancels it."""
+    from PySide6.QtWidgets import QDialog, QLabel, QMessageBox
 
     from curvewright.app import dialogs
 
-    replies = {"reason": "bench note 14: vial cracked", "question": QMessageBox.StandardButton.Yes}
+    answers = DialogAnswers()
+    answers["question"] = QMessageBox.StandardButton.Yes
 
     def exec_reason(self) -> int:
-        self.details.setPlainText(replies["reason"])
+        prompt = " ".join(label.text() for label in self.findChildren(QLabel))
+        answers.seen.append((self.windowTitle(), prompt))
+        if answers["reason"] is None:
+            return QDialog.DialogCode.Rejected
+        self.details.setPlainText(answers["reason"])
         if self.choices.count():
-            self.choices.setCurrentIndex(self.choices.count() - 1)  # "other (describe below)"
+            chosen = answers["choice"]
+            self.choices.setCurrentIndex(self.choices.count() - 1 if chosen is None else chosen)
+        assert self.buttons.button(self.buttons.StandardButton.Ok).isEnabled(), "OK is disabled: no reason given"
         return QDialog.DialogCode.Accepted
 
+    def message(kind):  # type: ignore[no-untyped-def]
+        def show(parent, title, text, *args, **kwargs):  # type: ignore[no-untyped-def]
+            answers.seen.append((title, text))
+            return answers["question"] if kind == "question" else QMessageBox.StandardButton.Ok
+        return show
+
     monkeypatch.setattr(dialogs.ReasonDialog, "exec", exec_reason)
-    monkeypatch.setattr(QMessageBox, "question", lambda *a, **k: replies["question"])
-    monkeypatch.setattr(QMessageBox, "warning", lambda *a, **k: QMessageBox.StandardButton.Ok)
-    return replies
+    for kind in ("question", "warning", "information", "critical"):
+        monkeypatch.setattr(QMessageBox, kind, message(kind))
+    monkeypatch.setattr(QMessageBox, "about", lambda parent, title, text: answers.seen.append((title, text)))
+    return answers

@@ -69,17 +69,16 @@ def test_malformed_paste_marks_cells_and_loses_nothing(make_window, qtbot) -> No
     assert {u.standard_id for u in result.unusable_standards} == {standards[i].id for i in (1, 2, 3)}
 
 
-def test_exclude_a_standard_with_a_reason_records_it(make_window, qtbot, answer_dialogs, monkeypatch) -> None:
-    from curvewright.app import main_window
-
-    monkeypatch.setattr(main_window, "ask_exclusion", lambda parent, run, analyte, sid: "spilled vial (bench note 7)")
+def test_exclude_a_standard_with_a_reason_records_it(make_window, qtbot, answer_dialogs) -> None:
     window = make_window(NITRATE)
     before = slope(window)
-    window.standards_view.setCurrentIndex(window.standards_model.index(20, 0))
-    window.toggle_exclusion()
+    answer_dialogs["reason"] = "spilled vial (bench note 7)"
+    window.standards_view.selectRow(20)
+    qtbot.mouseClick(window.exclude_button, Qt.MouseButton.LeftButton)
     settle(qtbot, window)
     entry = window.session.run.audit[-1]
     assert entry.action == "standard_excluded" and entry.details["reason"] == "spilled vial (bench note 7)"
+    assert entry.details["standard"] == window.session.run.analyte("nitrate-N").standards[20].id
     assert window.standards_model.data(window.standards_model.index(20, sm.IN_FIT)) == "excluded"
     assert slope(window) != before
     assert window.isWindowModified()
@@ -135,20 +134,20 @@ def test_undo_and_redo(make_window, qtbot) -> None:
 def test_export_and_read_the_workbook_back(make_window, qtbot, tmp_path) -> None:
     window = make_window(ZINC)
     path = tmp_path / "zinc.xlsx"
-    assert window.export_results("xlsx", str(path))
+    assert window.export_results("xlsx", path=str(path))
     book = openpyxl.load_workbook(path)
     assert "Calibration – zinc" in book.sheetnames
     rows = list(book["Samples"].iter_rows(min_row=4, values_only=True))
     shown = [window.results_model.rows[i].reported for i in range(window.results_model.rowCount())]
     assert [r[9] for r in rows] == shown
     assert window.session.run.audit[-1].action == "export_written"
-    assert window.export_plot(str(tmp_path / "curve.png")) and (tmp_path / "curve.png").stat().st_size > 1000
-    assert window.export_plot(str(tmp_path / "curve.svg")) and "<svg" in (tmp_path / "curve.svg").read_text()[:500]
+    assert window.export_plot(path=str(tmp_path / "curve.png")) and (tmp_path / "curve.png").stat().st_size > 1000
+    assert window.export_plot(path=str(tmp_path / "curve.svg")) and "<svg" in (tmp_path / "curve.svg").read_text()[:500]
 
 
 def test_report_from_the_app(make_window, tmp_path) -> None:
     window = make_window(ZINC)
-    assert window.export_report(str(tmp_path / "zinc.pdf"))
+    assert window.export_report(path=str(tmp_path / "zinc.pdf"))
     assert (tmp_path / "zinc.pdf").read_bytes()[:4] == b"%PDF"
 
 
@@ -270,6 +269,6 @@ def test_import_from_a_file_through_the_menu_path(make_window, qtbot, tmp_path, 
     path.write_text("Sample;Absorbance\nLake 2;0,41\n", encoding="utf-8")
     monkeypatch.setattr(main_window.ImportDialog, "exec", lambda self: main_window.ImportDialog.DialogCode.Accepted)
     window = make_window(NITRATE)
-    assert window.import_table("samples", str(path))  # the table has no analyte column: the current analyte
+    assert window.import_table("samples", path=str(path))  # the table has no analyte column: the current analyte
     settle(qtbot, window)
     assert any(s.sample_id == "Lake 2" for s in window.session.result.analytes[0].samples)

@@ -12,11 +12,10 @@ from ..core.run_analysis import AnalyteResult, response_value
 from . import figures
 
 
-def _reset(plot: pg.PlotItem) -> None:
+def _reset(plot: pg.PlotItem, legend: pg.LegendItem | None = None) -> None:
     plot.clear()
-    if plot.legend is not None:
-        plot.legend.scene().removeItem(plot.legend)
-        plot.legend = None
+    if legend is not None:
+        legend.clear()
     for side in ("bottom", "left"):
         plot.getAxis(side).setTicks(None)
 
@@ -34,6 +33,11 @@ class CurveView(QWidget):
         self.graphics.setBackground("w")
         self.curve_plot = self.graphics.addPlot(row=0, col=0)
         self.lower_plot = self.graphics.addPlot(row=1, col=0)
+        # the legends sit in a column of their own, beside the data, never over it
+        self.curve_legend = figures.new_legend()
+        self.lower_legend = figures.new_legend()
+        figures.legend_beside(self.graphics.ci, self.curve_legend, row=0)
+        figures.legend_beside(self.graphics.ci, self.lower_legend, row=1)
         self.graphics.ci.layout.setRowStretchFactor(0, 3)
         self.graphics.ci.layout.setRowStretchFactor(1, 2)
         self.confidence = QCheckBox("&Confidence band")
@@ -70,25 +74,35 @@ class CurveView(QWidget):
         self.redraw()
 
     def redraw(self) -> None:
-        _reset(self.curve_plot)
-        _reset(self.lower_plot)
+        _reset(self.curve_plot, self.curve_legend)
+        _reset(self.lower_plot, self.lower_legend)
         a = self.analyte
         if a is None or a.calibration is None:
             self.empty_note.setText("No curve: " + (a.error if a is not None and a.error else "no standards yet."))
             self._hover_points = []
+            self._fit_legends()
             return
         self.empty_note.setText("")
         log_x = self.log_axis.isChecked()
-        figures.draw_curve(self.curve_plot, a, level=self.level, show_confidence=self.confidence.isChecked(),
-                           show_prediction=self.prediction.isChecked(), log_x=log_x)
+        figures.draw_curve(self.curve_plot, a, legend=self.curve_legend, level=self.level,
+                           show_confidence=self.confidence.isChecked(), show_prediction=self.prediction.isChecked(),
+                           log_x=log_x)
         if self.lower_kind.currentIndex() == 0:
-            figures.draw_relative_errors(self.lower_plot, a, log_x=log_x)
+            figures.draw_relative_errors(self.lower_plot, a, legend=self.lower_legend, log_x=log_x)
         else:
-            figures.draw_residuals(self.lower_plot, a, log_x=log_x)
+            figures.draw_residuals(self.lower_plot, a, legend=self.lower_legend, log_x=log_x)
+        self._fit_legends()
         self._hover_points = self._points(a, log_x)
         self.curve_plot.getViewBox().autoRange(padding=0.04)
         self.lower_plot.getViewBox().autoRange(padding=0.08)
         self.options_changed.emit()
+
+    def _fit_legends(self) -> None:
+        # both legends take the wider one's width, so that the two plots keep one concentration axis
+        legends = (self.curve_legend, self.lower_legend)
+        width = max(figures.fit_legend(self.graphics.ci, legend) for legend in legends)
+        for legend in legends:
+            legend.setFixedWidth(width)
 
     def _points(self, a: AnalyteResult, log_x: bool) -> list[tuple[float, float, str]]:
         cal = a.calibration
@@ -144,11 +158,17 @@ class CurveView(QWidget):
 
 
 class InfluenceView(QWidget):
+    """Leverage against the externally studentized residual, the same measures as the standards table."""
+
     def __init__(self, parent: QWidget | None = None) -> None:
         super().__init__(parent)
-        self.widget = pg.PlotWidget(background="w")
-        self.note = QLabel("Leverage against studentized residual; dashed and solid curves are Cook's distance 4/n "
-                           "and 1; stars mark flagged standards.")
+        self.widget = pg.GraphicsLayoutWidget()
+        self.widget.setBackground("w")
+        self.plot = self.widget.addPlot(row=0, col=0)
+        self.legend = figures.new_legend()
+        figures.legend_beside(self.widget.ci, self.legend, row=0)
+        self.note = QLabel("Leverage against the externally studentized residual (as in the standards table and its "
+                           "flags); the curves are Cook's distance 4/n and 1; stars mark flagged standards.")
         self.note.setWordWrap(True)
         layout = QVBoxLayout(self)
         layout.setContentsMargins(0, 0, 0, 0)
@@ -156,7 +176,7 @@ class InfluenceView(QWidget):
         layout.addWidget(self.widget, 1)
 
     def show_analyte(self, analyte: AnalyteResult | None) -> None:
-        plot = self.widget.getPlotItem()
-        _reset(plot)
+        _reset(self.plot, self.legend)
         if analyte is not None and analyte.calibration is not None:
-            figures.draw_influence(plot, analyte)
+            figures.draw_influence(self.plot, analyte, legend=self.legend)
+        figures.fit_legend(self.widget.ci, self.legend)

@@ -14,7 +14,7 @@ from PySide6.QtWidgets import (QComboBox, QDialog, QDialogButtonBox, QDoubleSpin
 from ..core.acceptance import available_profiles, load_profile
 from ..core.errors import CurvewrightError
 from ..core.rounding import RoundingRule
-from ..core.run import Run
+from ..core.run import Analyte, Run
 from ..core.run_analysis import analyse_run
 from ..io import run_edits
 from ..io.importing import ImportResult, import_samples, import_standards
@@ -32,7 +32,11 @@ EXCLUSION_REASONS = (
 
 
 class ReasonDialog(QDialog):
-    """Asks for a reason: a choice from a list plus free text; OK only once a reason is given."""
+    """Asks for a reason: a choice from a list plus free text; OK only once a reason is given.
+
+    With a list, nothing is chosen at first: OK stays disabled until the analyst picks a reason (and,
+    for "other", describes it), so that two quick clicks never record a reason nobody gave.
+    """
 
     def __init__(self, title: str, prompt: str, choices: tuple[str, ...] = (), parent: QWidget | None = None,
                  preview: QWidget | None = None) -> None:
@@ -40,6 +44,8 @@ class ReasonDialog(QDialog):
         self.setWindowTitle(title)
         self.choices = QComboBox()
         self.choices.addItems(list(choices))
+        self.choices.setPlaceholderText("choose the reason…")
+        self.choices.setCurrentIndex(-1)
         self.choices.setVisible(bool(choices))
         self.choices.setAccessibleName("Reason")
         self.details = QPlainTextEdit()
@@ -63,9 +69,14 @@ class ReasonDialog(QDialog):
         self._update()
 
     def reason(self) -> str:
-        choice = self.choices.currentText() if self.choices.count() else ""
+        """The reason given: the chosen item (with any details), or the details when there is no list."""
         details = self.details.toPlainText().strip()
-        if choice.startswith("other") or not choice:
+        if not self.choices.count():
+            return details
+        choice = self.choices.currentText() if self.choices.currentIndex() >= 0 else ""
+        if not choice:
+            return ""
+        if choice.startswith("other"):
             return details
         return f"{choice}: {details}" if details else choice
 
@@ -99,8 +110,8 @@ def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
     return label
 
 
-def ask_exclusion(parent: QWidget, run: Run, analyte: str, standard_id: str) -> str | None:
-    """Ask why a standard is excluded, showing the refit; returns the reason or None if cancelled."""
+def ask_exclusion(parent: QWidget, run: Run, analyte: str, standard_id: str, *, row: int | None = None) -> str | None:
+    """Ask why a standard is excluded, naming it and showing the refit; the reason, or None if cancelled."""
     try:
         after = run_edits.exclude_standard(run, analyte, standard_id, "preview")
     except CurvewrightError as exc:
@@ -108,11 +119,53 @@ def ask_exclusion(parent: QWidget, run: Run, analyte: str, standard_id: str) -> 
 
         QMessageBox.information(parent, "Exclude standard", str(exc))
         return None
+    a = run.analyte(analyte)
+    s = a.standard(standard_id)
+    where = f"row {row + 1}, " if row is not None else ""
+    conc = f"{s.concentration:g} {a.concentration_unit}".strip() if s.has_concentration else repr(s.concentration_text)
     dialog = ReasonDialog(f"Exclude standard {standard_id}",
-                          f"Why is standard {standard_id} of {analyte} excluded from the fit? The standard stays in "
-                          "the run, flagged, with your reason in the audit trail.",
+                          f"Why is standard {standard_id} ({where}nominal {conc}, response {s.response.text.strip()}) "
+                          f"of {analyte} excluded from the fit? The standard stays in the run, flagged, with your "
+                          "reason in the audit trail.",
                           EXCLUSION_REASONS, parent, refit_preview(run, after, analyte))
     return dialog.reason() if dialog.exec() == QDialog.DialogCode.Accepted else None
+
+
+class AnalyteDialog(QDialog):
+    """An analyte's name and units: editing one (``analyte`` given) or adding one (``analyte`` None)."""
+
+    def __init__(self, analyte: Analyte | None, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self.setWindowTitle(f"Name and units of {analyte.name}" if analyte else "Add analyte")
+        self.name = QLineEdit(analyte.name if analyte else "")
+        self.name.setAccessibleName("Analyte name")
+        self.concentration_unit = QLineEdit(analyte.concentration_unit if analyte else "")
+        self.concentration_unit.setPlaceholderText("e.g. mg/L, ng/mL, µg/kg")
+        self.concentration_unit.setAccessibleName("Concentration unit")
+        self.response_unit = QLineEdit(analyte.response_unit if analyte else "")
+        self.response_unit.setPlaceholderText("e.g. absorbance, peak area, counts/s (optional)")
+        self.response_unit.setAccessibleName("Response unit")
+        self.reason = QLineEdit()
+        self.reason.setPlaceholderText("why (recorded in the audit trail; optional)")
+        self.buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Ok | QDialogButtonBox.StandardButton.Cancel)
+        self.buttons.accepted.connect(self.accept)
+        self.buttons.rejected.connect(self.reject)
+        form = QFormLayout(self)
+        form.addRow("&Name", self.name)
+        form.addRow("&Concentration unit", self.concentration_unit)
+        form.addRow("&Response unit", self.response_unit)
+        form.addRow("R&eason", self.reason)
+        form.addRow(self.buttons)
+        self.name.textChanged.connect(self._update)
+        self.concentration_unit.textChanged.connect(self._update)
+        self._update()
+
+    def values(self) -> dict[str, str]:
+        return {"name": self.name.text().strip(), "concentration_unit": self.concentration_unit.text().strip(),
+                "response_unit": self.response_unit.text().strip(), "reason": self.reason.text().strip()}
+
+    def _update(self) -> None:
+        self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(bool(self.name.text().strip()))
 
 
 class ImportDialog(QDialog):
@@ -209,6 +262,28 @@ class ImportDialog(QDialog):
         self.preview.resizeColumnsToContents()
 
 
+INTERVAL_LABELS = (
+    ("prediction band inverted (Fieller's interval for a straight line)", "band"),
+    ("symmetric: estimate ± t·standard error", "symmetric"),
+)
+LIMITS_LABELS = (
+    ("ICH Q2: 3.3σ/slope and 10σ/slope, σ the residual SD", "residual_sd"),
+    ("ICH Q2: 3.3σ/slope and 10σ/slope, σ the SD of the intercept", "intercept_sd"),
+    ("ISO 11843-2: critical value and minimum detectable value", "iso11843"),
+)
+ROUNDING_KIND_LABELS = (("significant figures", "significant"), ("decimal places", "decimals"))
+TIE_LABELS = (("round half up (5 rounds up)", "half_up"), ("round half to even", "half_even"))
+
+
+def _choices(labels: tuple[tuple[str, str], ...], current: str) -> QComboBox:
+    """A combo box showing words, holding the setting's value as item data, set to ``current``."""
+    box = QComboBox()
+    for label, value in labels:
+        box.addItem(label, value)
+    box.setCurrentIndex(max(box.findData(current), 0))
+    return box
+
+
 class SettingsDialog(QDialog):
     """The run's confidence level, acceptance profile and rounding rule."""
 
@@ -226,27 +301,19 @@ class SettingsDialog(QDialog):
         self.level.setDecimals(3)
         self.level.setSingleStep(0.01)
         self.level.setValue(s.confidence_level)
-        self.interval = QComboBox()
-        self.interval.addItems(["band", "symmetric"])
-        self.interval.setCurrentText(s.interval)
-        self.limits = QComboBox()
-        self.limits.addItems(["residual_sd", "intercept_sd", "iso11843"])
-        self.limits.setCurrentText(s.limits_method)
+        self.interval = _choices(INTERVAL_LABELS, s.interval)
+        self.limits = _choices(LIMITS_LABELS, s.limits_method)
         self.profile = QComboBox()
         for pid in available_profiles():
             self.profile.addItem(load_profile(pid).name, pid)
         index = self.profile.findData(s.acceptance_profile)
         if index >= 0:
             self.profile.setCurrentIndex(index)
-        self.rounding_kind = QComboBox()
-        self.rounding_kind.addItems(["significant", "decimals"])
-        self.rounding_kind.setCurrentText(s.rounding.kind)
+        self.rounding_kind = _choices(ROUNDING_KIND_LABELS, s.rounding.kind)
         self.rounding_digits = QSpinBox()
         self.rounding_digits.setRange(0, 15)
         self.rounding_digits.setValue(s.rounding.digits)
-        self.rounding_tie = QComboBox()
-        self.rounding_tie.addItems(["half_up", "half_even"])
-        self.rounding_tie.setCurrentText(s.rounding.tie)
+        self.rounding_tie = _choices(TIE_LABELS, s.rounding.tie)
         self.reason = QLineEdit()
         self.reason.setPlaceholderText("why the settings change (recorded in the audit trail)")
         form = QFormLayout(self)
@@ -254,8 +321,8 @@ class SettingsDialog(QDialog):
         form.addRow("&Interval", self.interval)
         form.addRow("&LOD/LOQ method", self.limits)
         form.addRow("Acceptance &profile", self.profile)
-        form.addRow("&Rounding", self.rounding_kind)
-        form.addRow("&Digits", self.rounding_digits)
+        form.addRow("&Rounding of reported values", self.rounding_kind)
+        form.addRow("&Digits (figures or places)", self.rounding_digits)
         form.addRow("&Tie-break", self.rounding_tie)
         form.addRow("Decimal mark of typed and &pasted values", self.decimal)
         form.addRow("R&eason", self.reason)
@@ -268,9 +335,9 @@ class SettingsDialog(QDialog):
         return str(self.decimal.currentData())
 
     def settings(self, run: Run):  # type: ignore[no-untyped-def]
-        return replace(run.settings, confidence_level=round(self.level.value(), 3), interval=self.interval.currentText(),
-                       limits_method=self.limits.currentText(), acceptance_profile=self.profile.currentData(),
+        return replace(run.settings, confidence_level=round(self.level.value(), 3), interval=self.interval.currentData(),
+                       limits_method=self.limits.currentData(), acceptance_profile=self.profile.currentData(),
                        custom_profile=None if self.profile.currentData() != run.settings.acceptance_profile
                        else run.settings.custom_profile,
-                       rounding=RoundingRule(self.rounding_kind.currentText(), self.rounding_digits.value(),
-                                             self.rounding_tie.currentText()))
+                       rounding=RoundingRule(self.rounding_kind.currentData(), self.rounding_digits.value(),
+                                             self.rounding_tie.currentData()))

@@ -33,7 +33,7 @@ class EvidencePanel(QWidget):
         self.choice = QLabel("")
         self.choice.setWordWrap(True)
         self.use_button = QPushButton("&Use the selected model…")
-        self.use_button.clicked.connect(self._use_selected)
+        self.use_button.clicked.connect(lambda _checked=False: self._use_selected())
         self.table.doubleClicked.connect(lambda _: self._use_selected())
         row = QHBoxLayout()
         row.addWidget(self.choice, 1)
@@ -55,7 +55,10 @@ class EvidencePanel(QWidget):
             return
         bold = QFont()
         bold.setBold(True)
-        for c in self.comparison.candidates:
+        # the recommended candidate on top, then the chosen one, then the rest in the engine's order
+        order = sorted(self.comparison.candidates, key=lambda c: (c is not self.comparison.recommended,
+                       not (c.model.value == analyte.model and c.weighting.value == analyte.weighting)))
+        for c in order:
             r = self.table.rowCount()
             self.table.insertRow(r)
             recommended = c is self.comparison.recommended
@@ -73,6 +76,8 @@ class EvidencePanel(QWidget):
                     item.setFont(bold)
                 self.table.setItem(r, col, item)
         self.table.resizeColumnsToContents()
+        self.table.selectRow(0)
+        self.table.scrollToTop()
         lines = [f"• {r}" for r in self.comparison.reasons]
         lines += [f"• not fitted: {s.model.value}, {s.weighting.value}: {s.reason}" for s in self.comparison.skipped]
         self.reasons.setPlainText("\n".join(lines))

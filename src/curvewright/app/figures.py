@@ -5,7 +5,10 @@
   curve with horizontal bars for their concentration intervals, the calibrated range (outside it
   shaded) and the LOQ (dotted line);
 * relative error of each standard against concentration, with the acceptance limits;
-* influence: leverage against internally studentized residual with Cook's distance contours.
+* influence: leverage against the externally studentized residual (the one the influence flags use),
+  with Cook's distance contours converted to that residual and the flag thresholds.
+
+Legends sit outside the data, in a column of their own beside each plot (:func:`legend_beside`).
 
 Everything drawn is read from :class:`~curvewright.core.run_analysis.AnalyteResult` and
 :func:`~curvewright.core.curve_trace.curve_trace`; nothing here computes a statistic.
@@ -17,9 +20,10 @@ import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QColor, QFont, QImage
+from PySide6.QtWidgets import QWidget
 
 from ..core.curve_trace import curve_trace
-from ..core.influence import cooks_contour
+from ..core.influence import STUDENTIZED_LIMIT, cooks_contour_external
 from ..core.run import SampleKind
 from ..core.run_analysis import AnalyteResult
 from ..core.run_analysis import response_value
@@ -69,16 +73,46 @@ def _decade_ticks(axis: pg.AxisItem, low: float, high: float) -> None:
     axis.setTicks([major, minor])
 
 
-def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, level: float = 0.95, show_confidence: bool = True,
-               show_prediction: bool = True, log_x: bool = False, font_size: int = 10) -> None:
-    """Fill ``plot`` with the calibration view of one analyte (zero concentrations are left off a log axis)."""
+def new_legend(font_size: int = 10) -> pg.LegendItem:
+    """An empty legend, to be placed beside its plot with :func:`legend_beside`."""
+    return pg.LegendItem(labelTextColor="#222222", brush=pg.mkBrush(255, 255, 255, 0), labelTextSize=f"{font_size - 1}pt",
+                         verSpacing=-2)
+
+
+def legend_beside(layout: pg.GraphicsLayout, legend: pg.LegendItem, row: int, col: int = 1) -> None:
+    """Put ``legend`` in the layout cell (row, col), sized to its entries and aligned to the top left,
+    so that it never covers a plotted point."""
+    if legend.parentItem() is None:
+        layout.addItem(legend, row=row, col=col)
+    fit_legend(layout, legend)
+
+
+def fit_legend(layout: pg.GraphicsLayout, legend: pg.LegendItem) -> float:
+    """Size a legend placed in a layout cell to its entries (call after adding or clearing entries);
+    returns the width it takes."""
+    width = float(legend.layout.preferredWidth()) if legend.items else 0.0
+    height = float(legend.layout.preferredHeight()) if legend.items else 0.0
+    legend.setFixedWidth(width)
+    legend.setFixedHeight(height)
+    legend.setVisible(bool(legend.items))
+    layout.layout.setAlignment(legend, Qt.AlignmentFlag.AlignTop | Qt.AlignmentFlag.AlignLeft)
+    return width
+
+
+def _name(legend: pg.LegendItem | None, item, text: str) -> None:  # type: ignore[no-untyped-def]
+    if legend is not None:
+        legend.addItem(item, text)
+
+
+def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None, level: float = 0.95,
+               show_confidence: bool = True, show_prediction: bool = True, log_x: bool = False,
+               font_size: int = 10) -> None:
+    """Fill ``plot`` with the calibration view of one analyte (zero concentrations are left off a log axis);
+    its entries go into ``legend``, which the caller places outside the plot."""
     cal = a.calibration
     unit = a.analyte.concentration_unit
     styled_plot(plot, f"Concentration ({unit})" if unit else "Concentration",
                 f"Response ({a.analyte.response_unit})" if a.analyte.response_unit else "Response", font_size)
-    # bottom right: a rising calibration leaves that corner empty
-    legend = plot.addLegend(offset=(-10, -10), labelTextColor="#222222", brush=pg.mkBrush(255, 255, 255, 220),
-                            labelTextSize=f"{font_size - 1}pt")
     if cal is None:
         return
     low, high = cal.calibrated_range
@@ -87,8 +121,6 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, level: float = 0.95, show
         low = float(cal.concentration[cal.concentration > 0].min())
     tx = _axis_transform(plot, log_x, "bottom", (low, high))
     ty = _axis_transform(plot, log_y, "left", (float(cal.response.min()), float(cal.response.max())) if log_y else None)
-    if log_y:
-        plot.setLabel("left", plot.getAxis("left").labelText + " (log scale)")
     if log_x:
         plot.setLabel("bottom", plot.getAxis("bottom").labelText + " (log scale)")
     trace = curve_trace(cal, level=level, log_spacing=log_x)
@@ -98,24 +130,27 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, level: float = 0.95, show
         upper = pg.PlotDataItem(*_finite(x, ty(trace.confidence_upper)), pen=None)
         lower = pg.PlotDataItem(*_finite(x, ty(trace.confidence_lower)), pen=None)
         plot.addItem(pg.FillBetweenItem(upper, lower, brush=pg.mkBrush(*palette.CONFIDENCE_FILL)))
-        legend.addItem(pg.BarGraphItem(x=[0], height=[0], width=0, brush=pg.mkBrush(*palette.CONFIDENCE_FILL)),
-                       f"{level:.0%} confidence band")
+        _name(legend, pg.BarGraphItem(x=[0], height=[0], width=0, brush=pg.mkBrush(*palette.CONFIDENCE_FILL)),
+              f"{level:.0%} confidence band")
     if show_prediction:
         dashed = pg.mkPen(palette.PREDICTION, width=1.2, style=Qt.PenStyle.DashLine)
-        plot.plot(*_finite(x, ty(trace.prediction_upper)), pen=dashed, name=f"{level:.0%} prediction band")
+        band = plot.plot(*_finite(x, ty(trace.prediction_upper)), pen=dashed, name=f"{level:.0%} prediction band")
+        _name(legend, band, f"{level:.0%} prediction band")
         plot.plot(*_finite(x, ty(trace.prediction_lower)), pen=dashed)
-    plot.plot(*_finite(x, ty(trace.response)), pen=pg.mkPen(palette.CURVE, width=2), name="fitted curve")
+    _name(legend, plot.plot(*_finite(x, ty(trace.response)), pen=pg.mkPen(palette.CURVE, width=2), name="fitted curve"),
+          "fitted curve")
     for region in ((x.min(), low), (high, x.max())):
         if region[1] > region[0]:
             plot.addItem(pg.LinearRegionItem(values=region, movable=False, brush=pg.mkBrush(*palette.RANGE_SHADE),
                                              pen=pg.mkPen(None)))
     if a.limits is not None and a.limits.loq is not None and a.limits.loq > 0 and tx(a.limits.loq) > x.min():
-        line = pg.InfiniteLine(pos=float(tx(a.limits.loq)), angle=90, pen=pg.mkPen(palette.LIMIT, style=Qt.PenStyle.DotLine, width=1.5),
-                               label="LOQ", labelOpts={"color": palette.LIMIT, "position": 0.92})
-        plot.addItem(line)
+        pen = pg.mkPen(palette.LIMIT, style=Qt.PenStyle.DotLine, width=1.5)
+        plot.addItem(pg.InfiniteLine(pos=float(tx(a.limits.loq)), angle=90, pen=pen))
+        _name(legend, pg.PlotDataItem([0], [0], pen=pen), "LOQ")
     shown = cal.concentration > 0 if log_x else np.ones(cal.n_standards, dtype=bool)
-    plot.plot(tx(cal.concentration[shown]), ty(cal.response[shown]), pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,
-              symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8), name="standard in the fit")
+    _name(legend, plot.plot(tx(cal.concentration[shown]), ty(cal.response[shown]), pen=None, symbol=palette.SYMBOL_INCLUDED,
+                            symbolSize=8, symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8),
+                            name="standard in the fit"), "standard in the fit")
     ex_x, ex_y = [], []
     for s in a.excluded_standards:
         used, _ = response_value(s.response, s.internal_standard_response, a.analyte.uses_internal_standard)
@@ -123,8 +158,9 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, level: float = 0.95, show
             ex_x.append(float(tx(s.concentration)))
             ex_y.append(float(ty(used)))
     if ex_x:
-        plot.plot(ex_x, ex_y, pen=None, symbol=palette.SYMBOL_EXCLUDED, symbolSize=10, symbolBrush=None,
-                  symbolPen=pg.mkPen(palette.EXCLUDED, width=2), name="standard excluded")
+        _name(legend, plot.plot(ex_x, ex_y, pen=None, symbol=palette.SYMBOL_EXCLUDED, symbolSize=10, symbolBrush=None,
+                                symbolPen=pg.mkPen(palette.EXCLUDED, width=2), name="standard excluded"),
+              "standard excluded")
         plot.plot(ex_x, ex_y, pen=None, symbol="x", symbolSize=7, symbolBrush=palette.EXCLUDED, symbolPen=None)
     for kind, colour, symbol, label in ((SampleKind.UNKNOWN, palette.UNKNOWN, palette.SYMBOL_UNKNOWN, "unknown"),
                                         (SampleKind.QC, palette.QC, palette.SYMBOL_QC, "QC sample")):
@@ -138,8 +174,9 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, level: float = 0.95, show
         hi_raw = [s.upper if s.upper is not None and np.isfinite(s.upper) else s.estimate for s in chosen]
         sx, lo, hi = tx([s.estimate for s in chosen]), tx(lo_raw), tx(hi_raw)
         plot.addItem(pg.ErrorBarItem(x=sx, y=sy, left=sx - lo, right=hi - sx, beam=0, pen=pg.mkPen(colour, width=1.5)))
-        plot.plot(sx, sy, pen=None, symbol=symbol, symbolSize=9, symbolBrush=colour, symbolPen=pg.mkPen("w", width=0.6),
-                  name=f"{label} with interval")
+        _name(legend, plot.plot(sx, sy, pen=None, symbol=symbol, symbolSize=9, symbolBrush=colour,
+                                symbolPen=pg.mkPen("w", width=0.6), name=f"{label} with interval"),
+              f"{label} with interval")
 
 
 def _finite(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -147,9 +184,11 @@ def _finite(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return x[keep], y[keep]
 
 
-def draw_relative_errors(plot: pg.PlotItem, a: AnalyteResult, *, log_x: bool = False, font_size: int = 10) -> None:
+def draw_relative_errors(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
+                         log_x: bool = False, font_size: int = 10) -> None:
+    """%RE of each standard in the fit against concentration, with the profile's acceptance limits."""
     unit = a.analyte.concentration_unit
-    styled_plot(plot, f"Concentration ({unit})" if unit else "Concentration", "Relative error (%)", font_size)
+    styled_plot(plot, f"Concentration ({unit})" if unit else "Concentration", "%RE", font_size)
     cal, verdict = a.calibration, a.verdict
     if cal is None or verdict is None:
         return
@@ -168,20 +207,24 @@ def draw_relative_errors(plot: pg.PlotItem, a: AnalyteResult, *, log_x: bool = F
         spread = (judged_levels[-1] - judged_levels[0]) or abs(judged_levels[0]) or 1.0
         edges = np.concatenate([[judged_levels[0] - 0.03 * spread], mids, [judged_levels[-1] + 0.03 * spread]])
         limit_pen = pg.mkPen(palette.LIMIT, width=1.2, style=Qt.PenStyle.DashLine)
-        plot.plot(edges, tol_at, stepMode="center", pen=limit_pen, name="acceptance limit")
+        _name(legend, plot.plot(edges, tol_at, stepMode="center", pen=limit_pen, name="acceptance limit"),
+              "acceptance limit")
         plot.plot(edges, -tol_at, stepMode="center", pen=limit_pen)
     plot.addItem(pg.InfiniteLine(pos=0, angle=0, pen=pg.mkPen("#777777", width=1)))
     judged = verdict.judged & np.isfinite(cal.relative_error)
     passing = judged & verdict.passing
     failing = judged & ~verdict.passing
-    plot.plot(x[passing], cal.relative_error[passing], pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,
-              symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8))
+    _name(legend, plot.plot(x[passing], cal.relative_error[passing], pen=None, symbol=palette.SYMBOL_INCLUDED,
+                            symbolSize=8, symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8)),
+          "within limits")
     if failing.any():
-        plot.plot(x[failing], cal.relative_error[failing], pen=None, symbol="star", symbolSize=12,
-                  symbolBrush=palette.FLAGGED, symbolPen=None)
+        outside = plot.plot(x[failing], cal.relative_error[failing], pen=None, symbol="star", symbolSize=12,
+                            symbolBrush=palette.FLAGGED, symbolPen=None)
+        _name(legend, outside, "outside the limits")
 
 
-def draw_residuals(plot: pg.PlotItem, a: AnalyteResult, *, log_x: bool = False, font_size: int = 10) -> None:
+def draw_residuals(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None, log_x: bool = False,
+                   font_size: int = 10) -> None:
     """Residuals y − ŷ of the standards in the fit, in response units, against concentration."""
     unit = a.analyte.concentration_unit
     styled_plot(plot, f"Concentration ({unit})" if unit else "Concentration",
@@ -194,59 +237,72 @@ def draw_residuals(plot: pg.PlotItem, a: AnalyteResult, *, log_x: bool = False, 
     tx = _axis_transform(plot, log_x, "bottom", span)
     keep = cal.concentration > 0 if log_x else np.ones(cal.n_standards, dtype=bool)
     plot.addItem(pg.InfiniteLine(pos=0, angle=0, pen=pg.mkPen("#777777", width=1)))
-    plot.plot(tx(cal.concentration[keep]), cal.residuals[keep], pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,
-              symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8))
+    _name(legend, plot.plot(tx(cal.concentration[keep]), cal.residuals[keep], pen=None, symbol=palette.SYMBOL_INCLUDED,
+                            symbolSize=8, symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8)),
+          "standard in the fit")
 
 
-def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, font_size: int = 10) -> None:
-    styled_plot(plot, "Leverage", "Studentized residual (internal)", font_size)
+def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
+                   font_size: int = 10) -> None:
+    """Leverage against the externally studentized residual, the one the influence flags and the tables
+    use, with Cook's distance contours at 4/n and 1 converted to that residual, the |t| = 3 limit and
+    the 2p/n leverage limit."""
+    styled_plot(plot, "Leverage", "Studentized residual (external)", font_size)
     cal = a.calibration
     if cal is None:
         return
     h = cal.leverage
-    r = cal.influence.internal_studentized
+    t = cal.studentized_residuals
     n, p = cal.n_standards, cal.n_parameters
     grid = np.linspace(max(1e-3, 0.5 * h.min()), min(0.999, max(h.max() * 1.1, 2.5 * p / n)), 200)
     for distance, style in ((4.0 / n, Qt.PenStyle.DashLine), (1.0, Qt.PenStyle.SolidLine)):
-        bound = cooks_contour(distance, p, grid)
+        bound = cooks_contour_external(distance, p, n, grid)
         pen = pg.mkPen(palette.LIMIT, width=1.2, style=style)
-        plot.plot(grid, bound, pen=pen)
-        plot.plot(grid, -bound, pen=pen)
-        text = pg.TextItem(f"Cook's D = {distance:.2g}", color=palette.LIMIT, anchor=(0, 1))
-        at = len(grid) // 6
-        text.setPos(float(grid[at]), float(bound[at]))
-        plot.addItem(text)
-    plot.addItem(pg.InfiniteLine(pos=2.0 * p / n, angle=90, pen=pg.mkPen("#888888", style=Qt.PenStyle.DotLine),
-                                 label="2p/n", labelOpts={"color": "#555555", "position": 0.95}))
-    finite = np.isfinite(r)
+        upper = plot.plot(*_finite(grid, bound), pen=pen)
+        plot.plot(*_finite(grid, -bound), pen=pen)
+        _name(legend, upper, f"Cook's distance {distance:.2g}" + (" (4/n)" if distance != 1.0 else ""))
+    studentized_pen = pg.mkPen("#888888", width=1, style=Qt.PenStyle.DashDotLine)
+    for sign in (1.0, -1.0):
+        plot.addItem(pg.InfiniteLine(pos=sign * STUDENTIZED_LIMIT, angle=0, pen=studentized_pen))
+    _name(legend, pg.PlotDataItem([0], [0], pen=studentized_pen), f"|studentized residual| = {STUDENTIZED_LIMIT:g}")
+    leverage_pen = pg.mkPen("#888888", style=Qt.PenStyle.DotLine)
+    plot.addItem(pg.InfiniteLine(pos=2.0 * p / n, angle=90, pen=leverage_pen))
+    _name(legend, pg.PlotDataItem([0], [0], pen=leverage_pen), "leverage 2p/n")
+    finite = np.isfinite(t)
     flagged = np.array([bool(f) for f in cal.influence_flags])
     plain = finite & ~flagged
-    plot.plot(h[plain], r[plain], pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,
-              symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8))
+    _name(legend, plot.plot(h[plain], t[plain], pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,
+                            symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8)), "standard")
     marked = flagged & finite
     if marked.any():
-        plot.plot(h[marked], r[marked], pen=None, symbol="star", symbolSize=13, symbolBrush=palette.FLAGGED, symbolPen=None)
+        _name(legend, plot.plot(h[marked], t[marked], pen=None, symbol="star", symbolSize=13, symbolBrush=palette.FLAGGED,
+                                symbolPen=None), "flagged standard (labelled)")
     ids = [s.id for s in a.fitted_standards]
     for i in np.flatnonzero(flagged):
         label = pg.TextItem(ids[i] if i < len(ids) else str(i + 1), color=palette.FLAGGED, anchor=(-0.1, 1.1))
-        label.setPos(float(h[i]), float(r[i]) if np.isfinite(r[i]) else 0.0)
+        label.setPos(float(h[i]), float(t[i]) if np.isfinite(t[i]) else 0.0)
         plot.addItem(label)
-    limit = float(np.nanmax(np.abs(r[finite]))) if finite.any() else 1.0
-    plot.setYRange(-max(3.2, 1.15 * limit), max(3.2, 1.15 * limit))
+    limit = float(np.nanmax(np.abs(t[finite]))) if finite.any() else 1.0
+    plot.setYRange(-max(3.5, 1.15 * limit), max(3.5, 1.15 * limit))
 
 
 def render(draw, a: AnalyteResult, width: int = 1400, height: int = 820, **options) -> QImage:  # type: ignore[no-untyped-def]
-    """Draw one view off screen into an image (for the report and for exported plot images)."""
+    """Draw one view off screen into an image (for the report and for exported plot images), its legend
+    in a column of its own to the right of the plot."""
     ensure_application()
-    widget = pg.PlotWidget(background="w")
+    widget = pg.GraphicsLayoutWidget()
+    widget.setBackground("w")
     widget.resize(width, height)
-    draw(widget.getPlotItem(), a, **options)
+    plot = widget.addPlot(row=0, col=0)
+    legend = new_legend(int(options.get("font_size", 10)))
+    draw(plot, a, legend=legend, **options)
+    legend_beside(widget.ci, legend, row=0)
     # lay the plot out as if shown, so that the axes size themselves to their tick labels
     widget.show()
     from PySide6.QtWidgets import QApplication
 
     QApplication.processEvents()
-    widget.getPlotItem().getViewBox().autoRange(padding=0.04)
+    plot.getViewBox().autoRange(padding=0.04)
     QApplication.processEvents()
     image = QImage(width, height, QImage.Format.Format_ARGB32)
     image.fill(QColor("white"))
@@ -258,3 +314,36 @@ def render(draw, a: AnalyteResult, width: int = 1400, height: int = 820, **optio
     painter.end()
     widget.deleteLater()
     return image
+
+
+def plot_image_bytes(widget: QWidget, *, svg: bool = False, scale: float = 2.0) -> bytes:
+    """The widget drawn as PNG (at ``scale`` times its size) or as an SVG drawing."""
+    from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QRect, QSize
+    from PySide6.QtGui import QPainter
+
+    data = QByteArray()
+    buffer = QBuffer(data)
+    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
+    if svg:
+        from PySide6.QtSvg import QSvgGenerator
+
+        generator = QSvgGenerator()
+        generator.setOutputDevice(buffer)
+        generator.setSize(widget.size())
+        generator.setViewBox(QRect(0, 0, widget.width(), widget.height()))
+        generator.setTitle("Curvewright calibration plot")
+        painter = QPainter(generator)
+        widget.render(painter)
+        painter.end()
+    else:
+        size = QSize(int(widget.width() * scale), int(widget.height() * scale))
+        image = QImage(size, QImage.Format.Format_ARGB32)
+        image.fill(QColor("white"))
+        painter = QPainter(image)
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing)
+        painter.scale(scale, scale)
+        widget.render(painter)
+        painter.end()
+        image.save(buffer, "PNG")
+    buffer.close()
+    return bytes(data.data())

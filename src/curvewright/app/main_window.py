@@ -1,17 +1,24 @@
-"""The main window: tables on the left, the curve and its evidence on the right, the caution always
-in view. Every change goes through the session (undoable, audited); every number comes from the
-engine's results."""
+"""The main window: the inputs on the left, the curve and the job's answer on the right, the caution
+always in view. Every change goes through the session (undoable, audited); every number comes from the
+engine's results.
+
+Every menu item and button is connected through :meth:`MainWindow.command`, which calls its slot with
+no arguments: a signal's own argument (``clicked(bool)``, ``triggered(bool)``) never reaches a slot
+whose optional parameter it would fill.
+"""
 
 from __future__ import annotations
 
 from dataclasses import replace
 from pathlib import Path
+from typing import Callable
 
+import shiboken6
 from PySide6.QtCore import QSettings, Qt
 from PySide6.QtGui import QAction, QKeySequence
-from PySide6.QtWidgets import (QComboBox, QFileDialog, QHBoxLayout, QInputDialog, QLabel, QMainWindow,
-                               QMessageBox, QProgressDialog, QPushButton, QSplitter, QTabWidget, QTableView,
-                               QVBoxLayout, QWidget)
+from PySide6.QtWidgets import (QComboBox, QFileDialog, QHBoxLayout, QInputDialog, QLabel, QMainWindow, QMenu,
+                               QMessageBox, QProgressDialog, QPushButton, QSplitter, QTabWidget, QVBoxLayout,
+                               QWidget)
 
 from .. import CAUTION, __version__
 from ..core.errors import CurvewrightError
@@ -21,50 +28,16 @@ from ..io import run_edits
 from ..io.atomic import write_atomically
 from ..io.errors import ExportError
 from .curve_view import CurveView, InfluenceView
-from .dialogs import ImportDialog, ReasonDialog, SettingsDialog, ask_exclusion
+from .dialogs import AnalyteDialog, ImportDialog, ReasonDialog, SettingsDialog, ask_exclusion
 from .evidence_panel import EvidencePanel
-from .results_model import ResultsModel
+from .figures import plot_image_bytes
+from .results_model import ResultsView
 from .samples_model import SamplesModel
 from .session import RunSession
 from .standards_model import StandardsModel
-from .table_view import SheetTableView
+from .table_view import SheetTableView, fit_columns
 
 MAX_RECENT = 8
-
-
-def plot_image_bytes(widget: QWidget, *, svg: bool = False, scale: float = 2.0) -> bytes:
-    """The widget drawn as PNG (at ``scale`` times its size) or as an SVG drawing."""
-    from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QRect, QSize
-    from PySide6.QtGui import QColor, QImage, QPainter
-
-    data = QByteArray()
-    buffer = QBuffer(data)
-    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
-    if svg:
-        from PySide6.QtSvg import QSvgGenerator
-
-        generator = QSvgGenerator()
-        generator.setOutputDevice(buffer)
-        generator.setSize(widget.size())
-        generator.setViewBox(QRect(0, 0, widget.width(), widget.height()))
-        generator.setTitle("Curvewright calibration plot")
-        painter = QPainter(generator)
-        widget.render(painter)
-        painter.end()
-    else:
-        size = QSize(int(widget.width() * scale), int(widget.height() * scale))
-        image = QImage(size, QImage.Format.Format_ARGB32)
-        image.fill(QColor("white"))
-        painter = QPainter(image)
-        painter.setRenderHint(QPainter.RenderHint.Antialiasing)
-        painter.scale(scale, scale)
-        widget.render(painter)
-        painter.end()
-        image.save(buffer, "PNG")
-    buffer.close()
-    return bytes(data.data())
-
-
 def blank_run(settings: QSettings | None = None) -> Run:
     from ..core.rounding import RoundingRule
     from ..core.run import RunSettings
@@ -86,12 +59,19 @@ class MainWindow(QMainWindow):
         super().__init__()
         self.settings = settings
         self.session: RunSession = session
-        self.setMinimumSize(1000, 680)
+        self.actions_by_name: dict[str, QAction] = {}
+        self.setMinimumSize(960, 600)
         self._build()
         self._menus()
         self.attach(session)
 
     # --- layout ----------------------------------------------------------------------------------
+    def command(self, slot: Callable[[], object]) -> Callable[..., None]:
+        """A receiver for a signal that calls ``slot()`` with no arguments, whatever the signal carries."""
+        def receive(*_signal_arguments: object) -> None:
+            slot()
+        return receive
+
     def _build(self) -> None:
         self.caution = QLabel("⚠ " + CAUTION)
         self.caution.setWordWrap(True)
@@ -99,20 +79,30 @@ class MainWindow(QMainWindow):
         self.caution.setStyleSheet("background:#fff4e5; color:#6b3000; border:1px solid #d9a066; padding:4px;")
         self.verdict = QLabel("")
         self.verdict.setWordWrap(True)
+        self.verdict.setAccessibleName("Verdict of the run")
         self.verdict.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self.attention = QLabel("")
+        self.attention.setWordWrap(True)
+        self.attention.setAccessibleName("What needs attention")
+        self.attention.setStyleSheet("color:#6b4a00;")
         self.analyte_box = QComboBox()
         self.analyte_box.setAccessibleName("Analyte")
         self.analyte_box.currentTextChanged.connect(self._on_analyte)
+        self.analyte_button = QPushButton("Name and &units…")
+        self.analyte_button.setToolTip("Rename the analyte or set its concentration and response units")
+        self.analyte_button.clicked.connect(self.command(self.edit_analyte))
         self.standards_view = SheetTableView("Standards")
         self.samples_view = SheetTableView("Samples")
-        self.results_view = QTableView()
-        self.results_view.setAccessibleName("Results of the samples")
-        self.results_model = ResultsModel()
-        self.results_view.setModel(self.results_model)
+        self.results_view = ResultsView()
+        self.results_model = self.results_view.results_model
         self.exclude_button = QPushButton("E&xclude / include…")
-        self.exclude_button.clicked.connect(self.toggle_exclusion)
+        self.exclude_button.setAccessibleName("Exclude or include the selected standard")
+        self.exclude_button.clicked.connect(self.command(self.toggle_exclusion))
         self.add_standard_button = QPushButton("&Add standard")
-        self.add_standard_button.clicked.connect(lambda: self.standards_model.add_row())
+        self.add_standard_button.clicked.connect(self.command(self.add_standard))
+        self.remove_button = QPushButton("Remo&ve…")
+        self.remove_button.setToolTip("Remove the selected row (entered by mistake), with a reason")
+        self.remove_button.clicked.connect(self.command(self.remove_row))
         left_tabs = QTabWidget()
         standards_page = QWidget()
         v = QVBoxLayout(standards_page)
@@ -121,10 +111,12 @@ class MainWindow(QMainWindow):
         row = QHBoxLayout()
         row.addWidget(self.add_standard_button)
         row.addWidget(self.exclude_button)
+        row.addWidget(self.remove_button)
         row.addStretch(1)
         v.addLayout(row)
         left_tabs.addTab(standards_page, "&Standards")
         left_tabs.addTab(self.samples_view, "Sa&mples")
+        left_tabs.currentChanged.connect(self.command(self._update_buttons))
         self.left_tabs = left_tabs
         left = QWidget()
         lv = QVBoxLayout(left)
@@ -134,33 +126,36 @@ class MainWindow(QMainWindow):
         label.setBuddy(self.analyte_box)
         top.addWidget(label)
         top.addWidget(self.analyte_box, 1)
+        top.addWidget(self.analyte_button)
         lv.addLayout(top)
         lv.addWidget(left_tabs, 1)
         self.curve_view = CurveView()
         self.influence_view = InfluenceView()
         self.evidence_panel = EvidencePanel()
         self.evidence_panel.choose_requested.connect(self.choose_model)
-        results_page = QWidget()
-        rv = QVBoxLayout(results_page)
-        rv.setContentsMargins(0, 0, 0, 0)
-        rv.addWidget(self.results_view)
         self.bottom_tabs = QTabWidget()
-        self.bottom_tabs.addTab(results_page, "&Results")
+        self.bottom_tabs.addTab(self.results_view, "&Results")
         self.bottom_tabs.addTab(self.evidence_panel, "Model &evidence")
         self.bottom_tabs.addTab(self.influence_view, "&Influence")
         self.bottom_tabs.currentChanged.connect(self._refresh_tab)
         right = QSplitter(Qt.Orientation.Vertical)
         right.addWidget(self.curve_view)
         right.addWidget(self.bottom_tabs)
-        right.setSizes([430, 300])
+        right.setStretchFactor(0, 5)
+        right.setStretchFactor(1, 4)
         split = QSplitter(Qt.Orientation.Horizontal)
         split.addWidget(left)
         split.addWidget(right)
-        split.setSizes([460, 740])
+        split.setStretchFactor(0, 2)
+        split.setStretchFactor(1, 3)
+        self.splitter = split
         central = QWidget()
         layout = QVBoxLayout(central)
+        layout.setContentsMargins(6, 4, 6, 2)
+        layout.setSpacing(3)
         layout.addWidget(self.caution)
         layout.addWidget(self.verdict)
+        layout.addWidget(self.attention)
         layout.addWidget(split, 1)
         self.setCentralWidget(central)
         self.refit_label = QLabel("")
@@ -168,55 +163,72 @@ class MainWindow(QMainWindow):
         self.statusBar().addPermanentWidget(self.refit_label)
         self.statusBar().showMessage("Ready")
 
+    def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().resizeEvent(event)
+        # the inputs take two fifths of the width, the curve and the results the rest
+        if not getattr(self, "_split_placed", False) and self.width() > 0:
+            self.splitter.setSizes([int(self.width() * 0.4), int(self.width() * 0.6)])
+
+    def showEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().showEvent(event)
+        self._split_placed = True
+
     def _menus(self) -> None:
-        def action(menu, text: str, slot, shortcut=None) -> QAction:  # type: ignore[no-untyped-def]
+        def action(menu: QMenu, name: str, text: str, slot: Callable[[], object], shortcut=None) -> QAction:  # type: ignore[no-untyped-def]
             act = QAction(text, self)
+            act.setObjectName(f"action-{name}")
             if shortcut is not None:
                 act.setShortcut(shortcut)
-            act.triggered.connect(slot)
+            act.triggered.connect(self.command(slot))
             menu.addAction(act)
+            self.actions_by_name[name] = act
             return act
 
         file_menu = self.menuBar().addMenu("&File")
-        action(file_menu, "&New run", self.new_run, QKeySequence.StandardKey.New)
-        action(file_menu, "&Open…", self.open_dialog, QKeySequence.StandardKey.Open)
+        action(file_menu, "new", "&New run", self.new_run, QKeySequence.StandardKey.New)
+        action(file_menu, "open", "&Open…", self.open_dialog, QKeySequence.StandardKey.Open)
         self.recent_menu = file_menu.addMenu("Open &recent")
         self.demo_menu = file_menu.addMenu("Open &demo run")
         from .main import demo_run_paths
 
         for path in demo_run_paths():
-            action(self.demo_menu, path.stem.replace("_", " "), lambda _=False, p=path: self.open_path(p))
-        action(file_menu, "&Save", self.save, QKeySequence.StandardKey.Save)
-        action(file_menu, "Save &as…", self.save_as, QKeySequence.StandardKey.SaveAs)
+            action(self.demo_menu, f"demo-{path.stem}", path.stem.replace("_", " "),
+                   lambda p=path: self.open_path(p))
+        action(file_menu, "save", "&Save", self.save, QKeySequence.StandardKey.Save)
+        action(file_menu, "save-as", "Save &as…", self.save_as, QKeySequence.StandardKey.SaveAs)
         file_menu.addSeparator()
-        action(file_menu, "Import s&tandards…", lambda: self.import_table("standards"), "Ctrl+Shift+I")
-        action(file_menu, "Import sa&mples…", lambda: self.import_table("samples"), "Ctrl+Alt+I")
+        action(file_menu, "import-standards", "Import s&tandards…", lambda: self.import_table("standards"), "Ctrl+Shift+I")
+        action(file_menu, "import-samples", "Import sa&mples…", lambda: self.import_table("samples"), "Ctrl+Alt+I")
         file_menu.addSeparator()
-        action(file_menu, "Export results as &XLSX…", lambda: self.export_results("xlsx"), "Ctrl+E")
-        action(file_menu, "Export samples as &CSV…", lambda: self.export_results("csv"))
-        action(file_menu, "Export &plot image…", self.export_plot)
-        action(file_menu, "Export calibration &record (PDF)…", self.export_report, "Ctrl+P")
+        action(file_menu, "export-xlsx", "Export results as &XLSX…", lambda: self.export_results("xlsx"), "Ctrl+E")
+        action(file_menu, "export-csv", "Export samples as &CSV…", lambda: self.export_results("csv"))
+        action(file_menu, "export-plot", "Export &plot image…", self.export_plot)
+        action(file_menu, "export-record", "Export calibration &record (PDF)…", self.export_report, "Ctrl+P")
         file_menu.addSeparator()
-        action(file_menu, "&Quit", self.close, QKeySequence.StandardKey.Quit)
+        action(file_menu, "quit", "&Quit", self.close, QKeySequence.StandardKey.Quit)
 
         edit = self.menuBar().addMenu("&Edit")
-        self.undo_action = action(edit, "&Undo", lambda: self.session.undo_stack.undo(), QKeySequence.StandardKey.Undo)
-        self.redo_action = action(edit, "&Redo", lambda: self.session.undo_stack.redo(), QKeySequence.StandardKey.Redo)
+        self.undo_action = action(edit, "undo", "&Undo", self.undo, QKeySequence.StandardKey.Undo)
+        self.redo_action = action(edit, "redo", "&Redo", self.redo, QKeySequence.StandardKey.Redo)
         edit.addSeparator()
-        action(edit, "&Copy table as text", self.copy_table, "Ctrl+Shift+C")
-        action(edit, "Add &standard", lambda: self.standards_model.add_row(), "Ctrl+Shift+N")
-        action(edit, "Add sa&mple", lambda: self.samples_model.add_row())
-        action(edit, "&Remove row…", self.remove_row, "Ctrl+Shift+Delete")
-        action(edit, "E&xclude or include standard…", self.toggle_exclusion, "Ctrl+Shift+X")
+        action(edit, "copy", "&Copy", self.copy_selection, QKeySequence.StandardKey.Copy)
+        action(edit, "paste", "&Paste", self.paste, QKeySequence.StandardKey.Paste)
+        action(edit, "copy-table", "Copy &table as text", self.copy_table, "Ctrl+Shift+C")
+        edit.addSeparator()
+        action(edit, "add-standard", "Add &standard", self.add_standard, "Ctrl+Shift+N")
+        action(edit, "add-sample", "Add sa&mple", self.add_sample)
+        action(edit, "remove-row", "&Remove row…", self.remove_row, "Ctrl+Shift+Delete")
+        action(edit, "exclude", "E&xclude or include standard…", self.toggle_exclusion, "Ctrl+Shift+X")
 
         analysis = self.menuBar().addMenu("&Analysis")
-        action(analysis, "&Choose model…", self.choose_model_dialog, "Ctrl+M")
-        action(analysis, "Run &settings…", self.edit_settings, "Ctrl+,")
-        action(analysis, "Rename &run…", self.rename_run)
-        action(analysis, "Add &analyte…", self.add_analyte)
+        action(analysis, "choose-model", "&Choose model…", self.choose_model_dialog, "Ctrl+M")
+        action(analysis, "settings", "Run &settings…", self.edit_settings, "Ctrl+,")
+        action(analysis, "rename-run", "Rename &run…", self.rename_run)
+        action(analysis, "edit-analyte", "Analyte name and &units…", self.edit_analyte)
+        action(analysis, "add-analyte", "Add &analyte…", self.add_analyte)
 
         help_menu = self.menuBar().addMenu("&Help")
-        action(help_menu, "&About Curvewright", self.about)
+        action(help_menu, "about", "&About Curvewright", self.about)
 
     # --- session wiring --------------------------------------------------------------------------
     def attach(self, session: RunSession) -> None:
@@ -226,6 +238,9 @@ class MainWindow(QMainWindow):
         self.samples_model = SamplesModel(session, first)
         self.standards_view.setModel(self.standards_model)
         self.samples_view.setModel(self.samples_model)
+        for view in (self.standards_view, self.samples_view):
+            view.selectionModel().selectionChanged.connect(self.command(self._update_buttons))
+            view.selectionModel().currentChanged.connect(self.command(self._update_buttons))
         for model in (self.standards_model, self.samples_model):
             model.decimal_mark = self.decimal_mark()
             model.message.connect(self.show_message)
@@ -234,9 +249,15 @@ class MainWindow(QMainWindow):
         session.analysis_failed.connect(lambda e: self.show_message(f"analysis failed: {e}"))
         session.dirty_changed.connect(lambda _: self._update_title())
         session.path_changed.connect(lambda _: self._update_title())
+        session.undo_stack.undoTextChanged.connect(self.command(self._update_undo_texts))
+        session.undo_stack.redoTextChanged.connect(self.command(self._update_undo_texts))
+        session.undo_stack.canUndoChanged.connect(self.command(self._update_undo_texts))
+        session.undo_stack.canRedoChanged.connect(self.command(self._update_undo_texts))
         self._fill_analytes()
         self._update_title()
+        self._update_undo_texts()
         self._fill_recent()
+        self._show_verdict(session.result)
         if session.result is not None:
             self._on_result(session.result)
 
@@ -252,7 +273,9 @@ class MainWindow(QMainWindow):
         return QLocale.system().decimalPoint() if QLocale.system().decimalPoint() in (".", ",") else None
 
     def current_analyte(self) -> str:
-        return self.analyte_box.currentText() or self.session.run.analytes[0].name
+        names = [a.name for a in self.session.run.analytes]
+        current = self.analyte_box.currentText()
+        return current if current in names else names[0]
 
     def _fill_analytes(self) -> None:
         names = [a.name for a in self.session.run.analytes]
@@ -269,21 +292,33 @@ class MainWindow(QMainWindow):
             return
         self.standards_model.set_analyte(name)
         self.samples_model.set_analyte(name)
+        self._show_internal_standard_column()
         self._show_views()
-        # column widths follow the content once per analyte, not on every edit (thousands of rows)
-        for view in (self.standards_view, self.samples_view, self.results_view):
-            view.resizeColumnsToContents()
+        for view in (self.standards_view, self.samples_view):
+            fit_columns(view)
+        self._update_buttons()
+
+    def _show_internal_standard_column(self) -> None:
+        """The IS-response column only for an analyte calibrated against an internal standard."""
+        from .standards_model import IS
+
+        uses = self.session.run.analyte(self.current_analyte()).uses_internal_standard
+        self.standards_view.setColumnHidden(IS, not uses)
 
     def _on_run_changed(self, run: Run) -> None:
         if [a.name for a in run.analytes] != [self.analyte_box.itemText(i) for i in range(self.analyte_box.count())]:
             self._fill_analytes()
+        self._show_internal_standard_column()
         self._update_title()
+        self._update_buttons()
         self._stale_tabs = getattr(self, "_stale_tabs", set()) | {self.evidence_panel}
         self._refresh_tab(self.bottom_tabs.currentIndex())
 
     def _on_result(self, result: RunResult) -> None:
         self._show_views()
         self.refit_label.setText(f"refit in {self.session.last_analysis_seconds * 1000:.0f} ms")
+        # the columns that show the engine's answers (back-calculated, %RE, flags) fit their text
+        fit_columns(self.standards_view)
 
     def _show_views(self) -> None:
         result = self.session.result
@@ -300,10 +335,7 @@ class MainWindow(QMainWindow):
         # the views behind other tabs are drawn when their tab is opened
         self._stale_tabs = {self.influence_view, self.evidence_panel}
         self._refresh_tab(self.bottom_tabs.currentIndex())
-        fresh_columns = self.results_model.rowCount() == 0
-        self.results_model.show(result, name)
-        if fresh_columns:
-            self.results_view.resizeColumnsToContents()
+        self.results_view.show_result(result, name)
         self._show_verdict(result)
 
     def _refresh_tab(self, index: int) -> None:
@@ -318,8 +350,17 @@ class MainWindow(QMainWindow):
             self.evidence_panel.show_evidence(self.session.evidence.get(name), self.session.run.analyte(name))
 
     def _show_verdict(self, result: RunResult | None) -> None:
-        if result is None:
-            self.verdict.setText("Analysing…")
+        run = self.session.run
+        self.attention.setText(" ".join(f"⚠ {line}" for line in self.attention_lines(result)))
+        self.attention.setVisible(bool(self.attention.text()))
+        if not any(a.standards for a in run.analytes):
+            self.verdict.setText("<b>No standards yet.</b> Paste them (Edit → Paste, Ctrl+V) or import a table "
+                                 "(File → Import standards…); the verdict appears once a curve can be fitted.")
+            self.verdict.setToolTip("")
+            return
+        if result is None or result.run is not run:
+            if result is None:
+                self.verdict.setText("Analysing…")
             return
         word = "✔ Run ACCEPTED" if result.accepted else "✖ Run NOT ACCEPTED"
         colour = "#1d6b36" if result.accepted else "#a11b1b"
@@ -328,9 +369,58 @@ class MainWindow(QMainWindow):
         self.verdict.setText(f"<b style='color:{colour}'>{word}</b> — {detail}")
         self.verdict.setToolTip("\n".join(result.reasons))
 
+    def attention_lines(self, result: RunResult | None) -> list[str]:
+        """What the analyst should see to before signing, beyond the verdict (missing units, samples
+        without a result), each with where to fix it."""
+        lines = []
+        run = self.session.run
+        for a in run.analytes:
+            if a.standards and not a.concentration_unit.strip():
+                lines.append(f"The concentration unit of {a.name} is not set (Analysis → Analyte name and units…).")
+        if result is not None and result.run is run:
+            for a in result.analytes:
+                missing = [s.sample_id for s in a.samples if s.reported is None]
+                if missing and a.calibration is not None:
+                    shown = ", ".join(missing[:3]) + (f" and {len(missing) - 3} more" if len(missing) > 3 else "")
+                    lines.append(f"{len(missing)} of {len(a.samples)} samples of {a.analyte.name} have no result "
+                                 f"({shown}); see the Results tab.")
+        return lines
+
     def _update_title(self) -> None:
         self.setWindowTitle(f"{self.session.run.name}[*] — Curvewright")
         self.setWindowModified(self.session.dirty)
+
+    def _update_undo_texts(self) -> None:
+        stack = self.session.undo_stack
+        if not shiboken6.isValid(stack) or not shiboken6.isValid(self.undo_action):
+            return  # the stack is going away with its session
+        self.undo_action.setText(f"&Undo {stack.undoText()}" if stack.canUndo() else "&Undo")
+        self.redo_action.setText(f"&Redo {stack.redoText()}" if stack.canRedo() else "&Redo")
+        self.undo_action.setEnabled(stack.canUndo())
+        self.redo_action.setEnabled(stack.canRedo())
+
+    def _update_buttons(self) -> None:
+        """The buttons say what they will act on: the standard selected, or that one must be selected."""
+        rows = self.selected_rows(self.standards_view)
+        standards = self.session.run.analyte(self.current_analyte()).standards
+        if len(rows) == 1 and rows[0] < len(standards):
+            s = standards[rows[0]]
+            self.exclude_button.setText(f"E&xclude {s.id}…" if s.included else f"Include {s.id} a&gain…")
+            self.exclude_button.setEnabled(True)
+        else:
+            self.exclude_button.setText("E&xclude / include…")
+            self.exclude_button.setEnabled(False)
+            self.exclude_button.setToolTip("Select one standard (click its row) to exclude or include it")
+        self.remove_button.setEnabled(len(rows) == 1)
+
+    @staticmethod
+    def selected_rows(view: SheetTableView) -> list[int]:
+        """The rows the analyst selected in a table (the current cell's row when nothing is selected)."""
+        model = view.selectionModel()
+        rows = sorted({i.row() for i in model.selectedIndexes()}) if model is not None else []
+        if not rows and view.currentIndex().isValid():
+            rows = [view.currentIndex().row()]
+        return rows
 
     def show_message(self, text: str) -> None:
         self.statusBar().showMessage(text, 15000)
@@ -349,7 +439,9 @@ class MainWindow(QMainWindow):
 
     def replace_session(self, session: RunSession) -> None:
         old = self.session
-        for signal in (old.run_changed, old.analysis_ready, old.analysis_failed, old.dirty_changed, old.path_changed):
+        for signal in (old.run_changed, old.analysis_ready, old.analysis_failed, old.dirty_changed, old.path_changed,
+                       old.undo_stack.undoTextChanged, old.undo_stack.redoTextChanged, old.undo_stack.canUndoChanged,
+                       old.undo_stack.canRedoChanged):
             try:
                 signal.disconnect()
             except (RuntimeError, TypeError):
@@ -415,10 +507,12 @@ class MainWindow(QMainWindow):
         self.recent_menu.clear()
         for p in self._recent():
             act = self.recent_menu.addAction(p)
-            act.triggered.connect(lambda _=False, path=p: self.open_path(Path(path)))
+            act.setObjectName("action-recent")
+            act.triggered.connect(self.command(lambda path=p: self.open_path(Path(path))))
         self.recent_menu.setEnabled(bool(self._recent()))
 
-    def import_table(self, what: str, path: str | None = None) -> bool:
+    def import_table(self, what: str, *, path: str | None = None) -> bool:
+        """File → Import standards/samples: a table file read with a preview of every value."""
         if path is None:
             path, _ = QFileDialog.getOpenFileName(self, f"Import {what}", "", "Tables (*.csv *.txt *.tsv *.xlsx)")
             if not path:
@@ -454,6 +548,11 @@ class MainWindow(QMainWindow):
                         existing = run.analyte(analyte.name)
                         run = run_edits.update_standards(run, analyte.name, existing.standards + analyte.standards,
                                                          f"imported from {result.source}")
+                        if not existing.concentration_unit and analyte.concentration_unit:
+                            run = run_edits.edit_analyte(run, analyte.name, name=analyte.name,
+                                                         concentration_unit=analyte.concentration_unit,
+                                                         response_unit=existing.response_unit or analyte.response_unit,
+                                                         reason=f"units from the header of {result.source}")
                     elif len(run.analytes) == 1 and not run.analytes[0].standards:
                         run = replace(run, analytes=(replace(analyte, name=analyte.name),))
                     else:
@@ -477,7 +576,8 @@ class MainWindow(QMainWindow):
         self.show_message(result.summary().splitlines()[0])
         return True
 
-    def export_results(self, kind: str, path: str | None = None) -> bool:
+    def export_results(self, kind: str, *, path: str | None = None) -> bool:
+        """File → Export results as XLSX / samples as CSV."""
         result = self._fresh_result()
         if result is None:
             return False
@@ -507,7 +607,8 @@ class MainWindow(QMainWindow):
         self.show_message(f"Exported {path}")
         return True
 
-    def export_report(self, path: str | None = None) -> bool:
+    def export_report(self, *, path: str | None = None) -> bool:
+        """File → Export calibration record (PDF)."""
         result = self._fresh_result()
         if result is None:
             return False
@@ -527,13 +628,14 @@ class MainWindow(QMainWindow):
         self.show_message(f"Calibration record written: {path}")
         return True
 
-    def export_plot(self, path: str | None = None) -> bool:
+    def export_plot(self, *, path: str | None = None) -> bool:
+        """File → Export plot image: the curve view as PNG or SVG."""
         if path is None:
             path, _ = QFileDialog.getSaveFileName(self, "Export plot", "curve.png", "PNG image (*.png);;SVG drawing (*.svg)")
             if not path:
                 return False
         try:
-            data = plot_image_bytes(self.curve_view.graphics, svg=path.lower().endswith(".svg"))
+            data = plot_image_bytes(self.curve_view.graphics, svg=str(path).lower().endswith(".svg"))
             write_atomically(Path(path), data)
         except ExportError as exc:
             QMessageBox.warning(self, "Plot not exported", str(exc))
@@ -553,27 +655,60 @@ class MainWindow(QMainWindow):
         return self.session.result
 
     # --- edits -----------------------------------------------------------------------------------
-    def toggle_exclusion(self, row: int | None = None) -> None:
+    def undo(self) -> None:
+        self.session.undo_stack.undo()
+
+    def redo(self) -> None:
+        self.session.undo_stack.redo()
+
+    def add_standard(self) -> None:
+        self.left_tabs.setCurrentIndex(0)
+        self.standards_model.add_row()
+        self.standards_view.setCurrentIndex(self.standards_model.index(self.standards_model.rowCount() - 1, 0))
+
+    def add_sample(self) -> None:
+        self.left_tabs.setCurrentIndex(1)
+        self.samples_model.add_row()
+        self.samples_view.setCurrentIndex(self.samples_model.index(self.samples_model.rowCount() - 1, 0))
+
+    def toggle_exclusion(self, *, row: int | None = None) -> None:
+        """Exclude the selected standard (asking why, with the refit shown) or include it again."""
         if row is None:
-            index = self.standards_view.currentIndex()
-            if not index.isValid():
-                self.show_message("Select a standard first.")
+            rows = self.selected_rows(self.standards_view)
+            if len(rows) != 1:
+                self.show_message("Select one standard (click its row in the Standards table) to exclude or include it."
+                                  if not rows else f"{len(rows)} rows are selected; select one standard to exclude or "
+                                  "include it.")
                 return
-            row = index.row()
+            row = rows[0]
         analyte = self.current_analyte()
-        standard = self.session.run.analyte(analyte).standards[row]
+        standards = self.session.run.analyte(analyte).standards
+        if not 0 <= row < len(standards):
+            self.show_message(f"There is no standard in row {row + 1}.")
+            return
+        standard = standards[row]
         if standard.included:
-            reason = ask_exclusion(self, self.session.run, analyte, standard.id)
+            reason = ask_exclusion(self, self.session.run, analyte, standard.id, row=row)
             if reason:
                 self.session.apply(run_edits.exclude_standard(self.session.run, analyte, standard.id, reason),
                                    f"Exclude {standard.id}")
+                self.show_message(f"Standard {standard.id} (row {row + 1}) excluded: {reason}")
         else:
-            dialog = ReasonDialog(f"Include {standard.id} again",
-                                  f"Why is {standard.id} put back in the fit? (It was excluded: {standard.exclusion_reason})",
-                                  (), self)
+            dialog = ReasonDialog(f"Include standard {standard.id} again",
+                                  f"Why is standard {standard.id} (row {row + 1}) of {analyte} put back in the fit? "
+                                  f"It was excluded because: {standard.exclusion_reason}", (), self)
             if dialog.exec() == ReasonDialog.DialogCode.Accepted:
                 self.session.apply(run_edits.include_standard(self.session.run, analyte, standard.id, dialog.reason()),
                                    f"Include {standard.id}")
+                self.show_message(f"Standard {standard.id} (row {row + 1}) is in the fit again.")
+        self._select_row(self.standards_view, row)
+
+    @staticmethod
+    def _select_row(view: SheetTableView, row: int) -> None:
+        model = view.model()
+        if model is not None and 0 <= row < model.rowCount():
+            view.setCurrentIndex(model.index(row, 0))
+            view.selectRow(row)
 
     def choose_model(self, model: str, weighting: str, recommended) -> bool:  # type: ignore[no-untyped-def]
         analyte = self.current_analyte()
@@ -596,6 +731,7 @@ class MainWindow(QMainWindow):
         return True
 
     def choose_model_dialog(self) -> None:
+        """Analysis → Choose model: opens the model evidence with the recommended model selected."""
         self.bottom_tabs.setCurrentWidget(self.evidence_panel)
         self.evidence_panel.table.setFocus()
         self.show_message("Select a candidate and press 'Use the selected model'.")
@@ -626,41 +762,92 @@ class MainWindow(QMainWindow):
                                        {"changes": {"name": {"old": self.session.run.name, "new": name.strip()}}})
             self.session.apply(new_run, "Rename run")
 
+    def edit_analyte(self) -> None:
+        """Analysis → Analyte name and units: rename the current analyte or set its units."""
+        name = self.current_analyte()
+        dialog = AnalyteDialog(self.session.run.analyte(name), self)
+        if dialog.exec() != AnalyteDialog.DialogCode.Accepted:
+            return
+        try:
+            new_run = run_edits.edit_analyte(self.session.run, name, **dialog.values())
+        except CurvewrightError as exc:
+            QMessageBox.warning(self, "Analyte name and units", str(exc))
+            return
+        if new_run is self.session.run:
+            return
+        self.session.apply(new_run, f"Edit name and units of {name}")
+        self.analyte_box.setCurrentText(dialog.values()["name"])
+
     def add_analyte(self) -> None:
-        name, ok = QInputDialog.getText(self, "Add analyte", "Analyte name:")
-        if not ok or not name.strip():
+        """Analysis → Add analyte: a new analyte with its name and units."""
+        dialog = AnalyteDialog(None, self)
+        if dialog.exec() != AnalyteDialog.DialogCode.Accepted:
             return
-        if name.strip() in {a.name for a in self.session.run.analytes}:
-            self.show_message(f"analyte {name.strip()!r} is already in the run.")
+        values = dialog.values()
+        if values["name"] in {a.name for a in self.session.run.analytes}:
+            QMessageBox.warning(self, "Add analyte", f"analyte {values['name']!r} is already in the run.")
             return
-        unit, _ = QInputDialog.getText(self, "Add analyte", f"Concentration unit of {name.strip()}:")
         new_run = run_edits.record(
-            replace(self.session.run, analytes=self.session.run.analytes + (Analyte(name.strip(), unit.strip(), ""),)),
-            "settings_changed", {"changes": {"analyte_added": name.strip()}})
-        self.session.apply(new_run, f"Add analyte {name.strip()}")
-        self.analyte_box.setCurrentText(name.strip())
+            replace(self.session.run, analytes=self.session.run.analytes
+                    + (Analyte(values["name"], values["concentration_unit"], values["response_unit"]),)),
+            "settings_changed", {"changes": {"analyte_added": values["name"]}, "reason": values["reason"]})
+        self.session.apply(new_run, f"Add analyte {values['name']}")
+        self.analyte_box.setCurrentText(values["name"])
 
     def remove_row(self) -> None:
+        """Edit → Remove row: the selected standard or sample, entered by mistake, with a reason."""
         on_standards = self.left_tabs.currentIndex() == 0
         view = self.standards_view if on_standards else self.samples_view
-        index = view.currentIndex()
-        if not index.isValid():
-            self.show_message("Select a row first.")
+        rows = self.selected_rows(view)
+        if len(rows) != 1:
+            self.show_message("Select one row to remove." if not rows else
+                              f"{len(rows)} rows are selected; remove rows one at a time, each with its reason.")
+            return
+        row = rows[0]
+        model = self.standards_model if on_standards else self.samples_model
+        if row >= model.rowCount():
             return
         what = "standard" if on_standards else "sample"
-        dialog = ReasonDialog(f"Remove {what}", f"Why is this {what} removed? (To keep a measured standard out of the "
-                              "fit, exclude it instead; its values stay in the audit trail either way.)", (), self)
+        ident = model.index(row, 0).data()
+        dialog = ReasonDialog(f"Remove {what} {ident}", f"Why is {what} {ident} (row {row + 1}) removed? (To keep a "
+                              "measured standard out of the fit, exclude it instead; its values stay in the audit trail "
+                              "either way.)", (), self)
         if dialog.exec() == ReasonDialog.DialogCode.Accepted:
-            (self.standards_model if on_standards else self.samples_model).remove_row(index.row(), dialog.reason())
+            model.remove_row(row, dialog.reason())
+
+    def input_view(self) -> SheetTableView:
+        """The input table the analyst is working in: the focused one, else the one on the open tab."""
+        focused = self.focusWidget()
+        if isinstance(focused, SheetTableView):
+            return focused
+        return self.standards_view if self.left_tabs.currentIndex() == 0 else self.samples_view
+
+    def paste(self) -> None:
+        """Edit → Paste: the clipboard's cells into the standards or samples table, at the selected cell."""
+        view = self.input_view()
+        self.left_tabs.setCurrentIndex(0 if view is self.standards_view else 1)
+        view.paste()
+
+    def copy_selection(self) -> str:
+        """Edit → Copy: the selected cells of the focused table (all of it when nothing is selected)."""
+        focused = self.focusWidget()
+        if isinstance(focused, SheetTableView):
+            return focused.copy_selection()
+        if focused is self.results_view.table:
+            return self.results_view.copy_selection()
+        return self.copy_table()
 
     def copy_table(self) -> str:
+        """Edit → Copy table as text: the focused input table, else the results, tab-separated."""
         view = self.focusWidget()
-        if isinstance(view, SheetTableView):
-            return view.copy_selection()
         from PySide6.QtGui import QGuiApplication
 
-        text = self.results_model.as_text()
+        if isinstance(view, SheetTableView):
+            text = view.model().as_text()
+        else:
+            text = self.results_model.as_text()
         QGuiApplication.clipboard().setText(text)
+        self.show_message(f"Copied {text.count(chr(10)) - 1} row(s) as tab-separated text.")
         return text
 
     def about(self) -> None:

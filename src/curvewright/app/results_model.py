@@ -1,16 +1,26 @@
-"""The results of the unknowns and QC samples of one analyte (read-only), flags in words."""
+"""The results of the unknowns and QC samples of one analyte (read-only): the job's answer first.
+
+The first columns are what the analyst reports and signs: the sample, the reported concentration
+(rounded by the run's rule), its interval and the flags as short words. Kind, QC recovery and the
+working (replicates, mean response, estimate before dilution, dilution factor, full precision) follow.
+Selecting a row shows everything about that sample in words beneath the table.
+"""
 
 from __future__ import annotations
 
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
-from PySide6.QtGui import QBrush, QColor
+from PySide6.QtGui import QBrush, QColor, QGuiApplication
+from PySide6.QtWidgets import QAbstractItemView, QLabel, QTableView, QVBoxLayout, QWidget
 
 from ..core.inverse import QuantFlag
 from ..core.run_analysis import AnalyteResult, RunResult, SampleResult
-from ..io.result_tables import display_number
+from ..io.result_tables import display_number, interval_text
 
-COLUMNS = ("Sample", "Kind", "n", "Mean response", "Estimate", "Dilution", "Reported", "Reported (rounded)",
-           "Lower", "Upper", "Flags", "Recovery (%)", "QC")
+COLUMNS = ("Sample", "Reported", "Interval", "Flags", "Kind", "QC recovery", "n", "Mean response",
+           "Estimate", "Dilution", "Reported, full precision")
+SAMPLE, REPORTED, INTERVAL, FLAGS, KIND, QC, N, MEAN, ESTIMATE, DILUTION, FULL = range(len(COLUMNS))
+WITH_UNIT = (REPORTED, INTERVAL, ESTIMATE, FULL)
+NUMERIC = (REPORTED, QC, N, MEAN, ESTIMATE, DILUTION, FULL)
 ATTENTION = QColor(255, 236, 200)
 
 
@@ -44,10 +54,13 @@ class ResultsModel(QAbstractTableModel):
             return None
         if orientation == Qt.Orientation.Vertical:
             return str(section + 1)
+        name = COLUMNS[section]
+        if section == INTERVAL and self.result is not None:
+            name = f"{self.result.run.settings.confidence_level:.0%} interval"
         unit = self.analyte.analyte.concentration_unit if self.analyte else ""
-        if unit and COLUMNS[section] in ("Estimate", "Reported", "Reported (rounded)", "Lower", "Upper"):
-            return f"{COLUMNS[section]} ({unit})"
-        return COLUMNS[section]
+        if unit and section in WITH_UNIT:
+            return f"{name} ({unit})"
+        return name
 
     def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):
         if not index.isValid():
@@ -56,37 +69,124 @@ class ResultsModel(QAbstractTableModel):
         col = index.column()
         if role == Qt.ItemDataRole.DisplayRole:
             return self.text(s, col)
-        if role == Qt.ItemDataRole.ToolTipRole and col == 10:
-            return s.flag_words
+        if role == Qt.ItemDataRole.ToolTipRole:
+            return self.description(s)
         if role == Qt.ItemDataRole.BackgroundRole and self._needs_attention(s):
             return QBrush(ATTENTION)
-        if role == Qt.ItemDataRole.TextAlignmentRole and 2 <= col <= 9:
+        if role == Qt.ItemDataRole.TextAlignmentRole and col in NUMERIC:
             return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
         return None
 
     def _needs_attention(self, s: SampleResult) -> bool:
         if s.reported is None or s.flags is None:
             return True
+        if s.within_limits is False:
+            return True
         return not (s.flags & QuantFlag.IN_RANGE) or bool(s.flags & (QuantFlag.BELOW_LOQ | QuantFlag.UNBOUNDED_INTERVAL))
 
-    def text(self, s: SampleResult, col: int) -> str:
-        rule = self.result.run.settings.rounding if self.result else None
-        values = {
-            0: s.sample_id, 1: s.kind.words, 2: str(len(s.replicate_responses)), 3: display_number(s.mean_response),
-            4: display_number(s.estimate), 5: f"{s.dilution_factor:g}", 6: display_number(s.reported),
-            7: rule.text(s.reported) if (rule and s.reported is not None) else "—",
-            8: display_number(s.reported_lower), 9: display_number(s.reported_upper), 10: s.flag_words,
-            11: "" if s.recovery_percent is None else f"{s.recovery_percent:.1f}",
-            12: self._qc(s),
-        }
-        return values[col]
+    @property
+    def _rule(self):  # type: ignore[no-untyped-def]
+        return self.result.run.settings.rounding if self.result else None
 
-    def _qc(self, s: SampleResult) -> str:
-        if s.within_limits is None:
-            return ""
-        return "pass" if s.within_limits else "FAIL"
+    def _rounded(self, value: float | None) -> str:
+        if value is None:
+            return "—"
+        if value in (float("inf"), float("-inf")):
+            return display_number(value)
+        return self._rule.text(value) if self._rule is not None else display_number(value)
+
+    def text(self, s: SampleResult, col: int) -> str:
+        if col == SAMPLE:
+            return s.sample_id
+        if col == REPORTED:
+            return self._rounded(s.reported)
+        if col == INTERVAL:
+            if s.reported is None:
+                return ""
+            return interval_text(s.reported_lower, s.reported_upper, self._rule)
+        if col == FLAGS:
+            return s.short_flags
+        if col == KIND:
+            return s.kind.words
+        if col == QC:
+            if s.recovery_percent is None:
+                return ""
+            verdict = "" if s.within_limits is None else (" pass" if s.within_limits else " FAIL")
+            return f"{s.recovery_percent:.1f} %{verdict}"
+        if col == N:
+            return str(len(s.replicate_responses))
+        if col == MEAN:
+            return display_number(s.mean_response)
+        if col == ESTIMATE:
+            return display_number(s.estimate)
+        if col == DILUTION:
+            return f"{s.dilution_factor:g}"
+        return display_number(s.reported, 12)
+
+    def description(self, s: SampleResult) -> str:
+        """Everything about one sample's result in words (the tooltip and the details line)."""
+        unit = self.analyte.analyte.concentration_unit if self.analyte else ""
+        level = f"{self.result.run.settings.confidence_level:.0%}" if self.result else ""
+        parts = [f"{s.kind.words} {s.sample_id}"]
+        if s.reported is not None:
+            parts.append(f"reported {self._rounded(s.reported)} {unit} ({level} interval "
+                         f"{interval_text(s.reported_lower, s.reported_upper, self._rule)} {unit}); estimate {display_number(s.estimate)} {unit} × dilution "
+                         f"{s.dilution_factor:g}, from the mean of {len(s.replicate_responses)} response(s) "
+                         f"{display_number(s.mean_response)}")
+        if s.flag_words:
+            parts.append(s.flag_words)
+        if s.recovery_percent is not None:
+            parts.append(f"recovery {s.recovery_percent:.1f} % of nominal {display_number(s.nominal)} {unit}"
+                         + ("" if s.within_limits is None else (", within the QC tolerance" if s.within_limits
+                                                                 else ", OUTSIDE the QC tolerance")))
+        return "; ".join(p.replace("  ", " ") for p in parts)
 
     def as_text(self) -> str:
         lines = ["\t".join(self.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))]
         lines += ["\t".join(self.text(s, c) for c in range(len(COLUMNS))) for s in self.rows]
         return "\n".join(lines) + "\n"
+
+
+class ResultsView(QWidget):
+    """The results table and, beneath it, the selected sample's result in words."""
+
+    def __init__(self, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self.results_model = ResultsModel()
+        self.table = QTableView()
+        self.table.setAccessibleName("Results of the samples")
+        self.table.setModel(self.results_model)
+        self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
+        self.table.setAlternatingRowColors(True)
+        self.table.horizontalHeader().setStretchLastSection(True)
+        self.details = QLabel("Select a sample to read its result in words.")
+        self.details.setWordWrap(True)
+        self.details.setAccessibleName("The selected sample's result in words")
+        self.details.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        layout = QVBoxLayout(self)
+        layout.setContentsMargins(0, 0, 0, 0)
+        layout.addWidget(self.table, 1)
+        layout.addWidget(self.details)
+        self.table.selectionModel().currentRowChanged.connect(self._on_row)
+
+    def show_result(self, result: RunResult | None, analyte: str) -> None:
+        selected = self.table.currentIndex().row()
+        self.results_model.show(result, analyte)
+        self.table.resizeColumnsToContents()
+        if 0 <= selected < self.results_model.rowCount():
+            self.table.selectRow(selected)
+        else:
+            self.details.setText("Select a sample to read its result in words.")
+
+    def _on_row(self, current: QModelIndex, _previous: QModelIndex) -> None:
+        if current.isValid() and current.row() < self.results_model.rowCount():
+            self.details.setText(self.results_model.description(self.results_model.rows[current.row()]))
+
+    def copy_selection(self) -> str:
+        rows = sorted({i.row() for i in self.table.selectionModel().selectedIndexes()})
+        model = self.results_model
+        lines = ["\t".join(model.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))]
+        lines += ["\t".join(model.text(model.rows[r], c) for c in range(len(COLUMNS))) for r in rows or range(model.rowCount())]
+        text = "\n".join(lines) + "\n"
+        QGuiApplication.clipboard().setText(text)
+        return text

@@ -18,6 +18,7 @@ from ..io import run_edits
 from ..io.importing import KIND_WORDS
 from .cells import number_from_text, reading_from_text, reading_problem
 from .session import RunSession
+from .table_view import RowCache
 from .standards_model import INVALID
 
 COLUMNS = ("Id", "Kind", "Run order", "Dilution factor", "Nominal", "Responses (replicates separated by ;)")
@@ -33,16 +34,16 @@ class SamplesModel(QAbstractTableModel):
         self.analyte_name = analyte
         self.decimal_mark: str | None = None  # the analyst's decimal mark for typed and pasted values
         self.pending: dict[tuple[str, int], tuple[str, str]] = {}
+        self._cache = RowCache(self, session.run.samples)
         session.run_changed.connect(self._reload)
 
     @property
     def samples(self) -> tuple[Sample, ...]:
-        return self.session.run.samples
+        return self._cache.rows
 
     def set_analyte(self, name: str) -> None:
-        self.beginResetModel()
         self.analyte_name = name
-        self.endResetModel()
+        self._cache.reset(self.session.run.samples)
 
     def rowCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
         return 0 if parent.isValid() else len(self.samples)
@@ -55,9 +56,12 @@ class SamplesModel(QAbstractTableModel):
             return None
         if orientation == Qt.Orientation.Vertical:
             return str(section + 1)
-        analyte = self.session.run.analyte(self.analyte_name)
+        try:
+            unit = self.session.run.analyte(self.analyte_name).concentration_unit
+        except RunError:
+            unit = ""  # the analyte is being renamed; the window shows the new name next
         if section == NOMINAL:
-            return f"Nominal ({analyte.concentration_unit})" if analyte.concentration_unit else "Nominal"
+            return f"Nominal ({unit})" if unit else "Nominal"
         if section == RESPONSES:
             return f"{self.analyte_name} responses (replicates separated by ;)"
         return COLUMNS[section]
@@ -215,6 +219,5 @@ class SamplesModel(QAbstractTableModel):
         lines += ["\t".join(self._text(s, c) for c in range(len(COLUMNS))) for s in self.samples]
         return "\n".join(lines) + "\n"
 
-    def _reload(self, _run) -> None:  # type: ignore[no-untyped-def]
-        self.beginResetModel()
-        self.endResetModel()
+    def _reload(self, run) -> None:  # type: ignore[no-untyped-def]
+        self._cache.update(run.samples, key=lambda s: s.id)

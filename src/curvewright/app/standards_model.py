@@ -14,15 +14,20 @@ import numpy as np
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, Signal
 from PySide6.QtGui import QBrush, QColor, QFont
 
-from ..core.run import Reading, RunError, Standard
+from ..core.run import Analyte, Reading, RunError, Standard
 from ..core.run_analysis import AnalyteResult
 from ..io import run_edits
 from .cells import display_reading, number_from_text, reading_from_text, reading_problem
 from .session import RunSession
+from .table_view import RowCache
 
-COLUMNS = ("Id", "Level", "Rep.", "Concentration", "Response", "IS response", "In fit", "Exclusion reason",
-           "Back-calc.", "%RE", "Within limits", "Influence")
-ID, LEVEL, REP, CONC, RESP, IS, IN_FIT, REASON, BACK, RE, LIMITS, INFLUENCE = range(len(COLUMNS))
+COLUMNS = ("Id", "Level", "Rep.", "Nominal", "Response", "IS response", "Back-calc.", "%RE", "Within limits",
+           "In fit", "Influence", "Exclusion reason")
+ID, LEVEL, REP, CONC, RESP, IS, BACK, RE, LIMITS, IN_FIT, INFLUENCE, REASON = range(len(COLUMNS))
+RESULT_COLUMNS = (BACK, RE, LIMITS, INFLUENCE)
+"""The columns that show what the engine found for each standard (read-only)."""
+FIELD_WORDS = {ID: "id", LEVEL: "level", REP: "replicate", CONC: "nominal concentration", RESP: "response",
+               IS: "internal-standard response"}
 EDITABLE = (ID, LEVEL, REP, CONC, RESP, IS)
 INVALID = QColor(255, 214, 214)
 EXCLUDED = QColor(110, 110, 110)
@@ -40,6 +45,7 @@ class StandardsModel(QAbstractTableModel):
         self.analyte_name = analyte
         self.decimal_mark: str | None = None  # the analyst's decimal mark for typed and pasted values
         self.result: AnalyteResult | None = None
+        self._cache = RowCache(self, session.run.analyte(analyte).standards)
         session.run_changed.connect(self._reload)
         session.analysis_ready.connect(self._on_result)
         if session.result is not None:
@@ -48,15 +54,22 @@ class StandardsModel(QAbstractTableModel):
     # --- reading ---------------------------------------------------------------------------------
     @property
     def standards(self) -> tuple[Standard, ...]:
-        return self.session.run.analyte(self.analyte_name).standards
+        return self._cache.rows
+
+    @property
+    def analyte(self) -> Analyte | None:
+        """The analyte shown (None for a moment while it is being renamed)."""
+        try:
+            return self.session.run.analyte(self.analyte_name)
+        except RunError:
+            return None
 
     def set_analyte(self, name: str) -> None:
-        self.beginResetModel()
         self.analyte_name = name
         self.result = None
         if self.session.result is not None:
             self._pick(self.session.result)
-        self.endResetModel()
+        self._cache.reset(self.session.run.analyte(name).standards)
 
     def rowCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802 - Qt override
         return 0 if parent.isValid() else len(self.standards)
@@ -68,7 +81,8 @@ class StandardsModel(QAbstractTableModel):
         if role != Qt.ItemDataRole.DisplayRole:
             return None
         if orientation == Qt.Orientation.Horizontal:
-            unit = self.session.run.analyte(self.analyte_name).concentration_unit
+            analyte = self.analyte
+            unit = analyte.concentration_unit if analyte is not None else ""
             if section in (CONC, BACK) and unit:
                 return f"{COLUMNS[section]} ({unit})"
             return COLUMNS[section]
@@ -115,7 +129,7 @@ class StandardsModel(QAbstractTableModel):
             return number_from_text(s.concentration_text, self.decimal_mark)[1] if s.concentration_text.strip() else "no concentration entered"
         if col == RESP:
             return reading_problem(s.response, self.decimal_mark) or ("no response entered" if s.response.is_missing else None)
-        if col == IS and self.session.run.analyte(self.analyte_name).uses_internal_standard:
+        if col == IS and self.analyte is not None and self.analyte.uses_internal_standard:
             return reading_problem(s.internal_standard_response, self.decimal_mark)
         return None
 
@@ -175,10 +189,10 @@ class StandardsModel(QAbstractTableModel):
             self.message.emit(str(exc))
             return False
         standards[row] = updated
-        return self._commit(tuple(standards), f"Edit {COLUMNS[index.column()].lower()} of {updated.id}", warning)
+        return self._commit(tuple(standards), f"Edit {FIELD_WORDS[index.column()]} of {updated.id}", warning)
 
     def _with_cell(self, s: Standard, col: int, text: str, row_number: int) -> tuple[Standard, str | None]:
-        where = f"row {row_number}, {COLUMNS[col].lower()}"
+        where = f"row {row_number}, {FIELD_WORDS[col]}"
         if col == ID:
             if not text.strip():
                 raise RunError(f"{where}: a standard needs an id.")
@@ -275,9 +289,12 @@ class StandardsModel(QAbstractTableModel):
         return "\n".join(lines) + "\n"
 
     # --- updates ---------------------------------------------------------------------------------
-    def _reload(self, _run) -> None:  # type: ignore[no-untyped-def]
-        self.beginResetModel()
-        self.endResetModel()
+    def _reload(self, run) -> None:  # type: ignore[no-untyped-def]
+        try:
+            rows = run.analyte(self.analyte_name).standards
+        except RunError:
+            rows = ()  # the analyte was renamed or removed; the window selects another
+        self._cache.update(rows, key=lambda s: s.id)
 
     def _pick(self, result) -> None:  # type: ignore[no-untyped-def]
         try:
@@ -288,4 +305,4 @@ class StandardsModel(QAbstractTableModel):
     def _on_result(self, result) -> None:  # type: ignore[no-untyped-def]
         self._pick(result)
         if self.rowCount():
-            self.dataChanged.emit(self.index(0, BACK), self.index(self.rowCount() - 1, INFLUENCE))
+            self.dataChanged.emit(self.index(0, min(RESULT_COLUMNS)), self.index(self.rowCount() - 1, max(RESULT_COLUMNS)))

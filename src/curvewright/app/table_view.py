@@ -1,9 +1,17 @@
-"""A table view that pastes blocks from spreadsheets and copies selections as text."""
+"""A table view that pastes blocks from spreadsheets and copies selections as text, and the rule that
+every column is wide enough for its header and its cells (nothing on screen is elided)."""
 
 from __future__ import annotations
 
 from PySide6.QtGui import QGuiApplication, QKeySequence
 from PySide6.QtWidgets import QAbstractItemView, QTableView
+
+
+def fit_columns(view: QTableView) -> None:
+    """Widen each column to its header and the cells in view, so that no text is cut to "…"."""
+    if view.model() is None:
+        return
+    view.resizeColumnsToContents()
 
 
 class SheetTableView(QTableView):
@@ -46,3 +54,46 @@ class SheetTableView(QTableView):
             text = "\n".join("\t".join(cells) for cells in rows.values()) + "\n"
         QGuiApplication.clipboard().setText(text)
         return text
+
+
+class RowCache:
+    """The rows a table model shows, kept in step with the run without resetting the view.
+
+    A model reset clears the analyst's selection and scroll position, so that after an edit the
+    buttons would no longer act on the row just edited. Changes are told to the view as what they
+    are: cells changed, rows appended, one row removed; only anything else resets.
+    """
+
+    def __init__(self, model, rows: tuple) -> None:  # type: ignore[no-untyped-def]
+        self.model, self.rows = model, rows
+
+    def update(self, rows: tuple, key) -> None:  # type: ignore[no-untyped-def]
+        from PySide6.QtCore import QModelIndex, Qt
+
+        model, old = self.model, self.rows
+        last_column = model.columnCount() - 1
+        old_keys, new_keys = [key(r) for r in old], [key(r) for r in rows]
+        if new_keys[: len(old_keys)] == old_keys and len(rows) > len(old):
+            model.beginInsertRows(QModelIndex(), len(old), len(rows) - 1)
+            self.rows = rows
+            model.endInsertRows()
+        elif len(rows) == len(old) - 1 and any(new_keys == old_keys[:i] + old_keys[i + 1:] for i in range(len(old))):
+            i = next(i for i in range(len(old)) if new_keys == old_keys[:i] + old_keys[i + 1:])
+            model.beginRemoveRows(QModelIndex(), i, i)
+            self.rows = rows
+            model.endRemoveRows()
+        elif len(rows) != len(old):
+            model.beginResetModel()
+            self.rows = rows
+            model.endResetModel()
+            return
+        else:
+            self.rows = rows
+        if rows:
+            model.dataChanged.emit(model.index(0, 0), model.index(len(rows) - 1, last_column))
+        model.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, last_column)
+
+    def reset(self, rows: tuple) -> None:
+        self.model.beginResetModel()
+        self.rows = rows
+        self.model.endResetModel()

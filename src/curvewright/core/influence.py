@@ -120,3 +120,18 @@ def cooks_contour(distance: float, n_parameters: int, leverage: FloatArray) -> F
     h = np.asarray(leverage, dtype=np.float64)
     with np.errstate(divide="ignore", invalid="ignore"):
         return np.sqrt(distance * n_parameters * (1.0 - h) / h)
+
+
+def cooks_contour_external(distance: float, n_parameters: int, n_standards: int, leverage: FloatArray) -> FloatArray:
+    """|externally studentized residual| at which Cook's distance equals ``distance``, per leverage.
+
+    The internal residual r of :func:`cooks_contour` converted with t = r·√((n − p − 1)/(n − p − r²))
+    (Belsley, Kuh & Welsch 1980, eq. 2.26), so that the contour can be drawn against the same
+    studentized residual the flags use. NaN where r² ≥ n − p (no such residual exists) or n − p < 2.
+    """
+    df = n_standards - n_parameters
+    r = cooks_contour(distance, n_parameters, leverage)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = r * np.sqrt((df - 1) / (df - r * r))
+    return np.where((df >= 2) & (r * r < df), t, np.nan)
+

@@ -71,6 +71,11 @@ class QuantFlag(IntFlag):
         """The flag(s) in plain words, joined by '; '."""
         return "; ".join(_WORDS[member] for member in self)  # type: ignore[index]
 
+    @property
+    def short_words(self) -> str:
+        """The flag(s) as short words for a table cell, joined by ', ' (``words`` says them in full)."""
+        return ", ".join(_SHORT_WORDS[member] for member in self)  # type: ignore[index]
+
 
 _WORDS = {
     QuantFlag.IN_RANGE: "inside the calibrated range",
@@ -81,6 +86,16 @@ _WORDS = {
     QuantFlag.NO_SOLUTION: "no solution: the curve never reaches this response on its calibrated branch",
     QuantFlag.AMBIGUOUS_ROOT: "ambiguous: the curve reaches this response twice within the calibrated range",
     QuantFlag.UNBOUNDED_INTERVAL: "interval unbounded: the calibration cannot bound this concentration",
+}
+_SHORT_WORDS = {
+    QuantFlag.IN_RANGE: "in range",
+    QuantFlag.BELOW_RANGE: "below range",
+    QuantFlag.ABOVE_RANGE: "above range",
+    QuantFlag.BELOW_LOQ: "< LOQ",
+    QuantFlag.BELOW_LOD: "< LOD",
+    QuantFlag.NO_SOLUTION: "no solution",
+    QuantFlag.AMBIGUOUS_ROOT: "two roots",
+    QuantFlag.UNBOUNDED_INTERVAL: "open interval",
 }
 
 

@@ -54,6 +54,16 @@ class SampleResult:
             parts.append(self.note)
         return "; ".join(parts)
 
+    @property
+    def short_flags(self) -> str:
+        """The flags as short words for a table cell (``flag_words`` says them in full)."""
+        if self.flags is None:
+            return "censored" if self.note.startswith("reported as censored") else "not quantified"
+        parts = [self.flags.short_words] if self.flags else []
+        if self.note:
+            parts.append("replicate not usable")
+        return ", ".join(parts)
+
 
 @dataclass(frozen=True)
 class UnusableStandard:

@@ -30,6 +30,7 @@ ACTIONS = (
     "model_chosen",
     "profile_changed",
     "settings_changed",
+    "analyte_edited",
     "samples_edited",
     "export_written",
     "report_written",

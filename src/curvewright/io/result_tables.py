@@ -7,6 +7,7 @@ full precision, whole numbers, or None for an empty cell. Renderers only lay the
 from __future__ import annotations
 
 import json
+import math
 from dataclasses import dataclass
 from typing import Any
 
@@ -17,6 +18,7 @@ from ..core.comparison import mandel_test
 from ..core.calibration import Calibration, fit
 from ..core.errors import CurvewrightError
 from ..core.models import Model
+from ..core.rounding import RoundingRule
 from ..core.run_analysis import AnalyteResult, RunResult, response_value
 from .audit import verify_chain
 
@@ -220,6 +222,26 @@ def display_number(value: float | None, digits: int = 6) -> str:
     if value in (float("inf"), float("-inf")):
         return "∞" if value > 0 else "−∞"
     return f"{value:.{digits}g}"
+
+
+def interval_text(lower: float | None, upper: float | None, rule: RoundingRule | None = None) -> str:
+    """An interval's ends for reading, "lower – upper", to the decimal place of the second significant
+    figure of its half-width (the uncertainty to two significant figures, GUM §7.2.6), and never
+    coarser than the reporting ``rule`` would print them; ∞ for an unbounded end, "—" when there is none."""
+    if lower is None or upper is None:
+        return "—"
+    ends = (lower, upper)
+    if not all(math.isfinite(v) for v in ends):
+        return " – ".join(display_number(v, 6) for v in ends)
+    half = (upper - lower) / 2.0
+    places = 1 - math.floor(math.log10(half)) if half > 0 else 0
+    if rule is not None:
+        places = max(places, max(_decimal_places(rule.text(v)) for v in ends))
+    return " – ".join(f"{v:.{max(places, 0)}f}" if places >= 0 else f"{round(v, places):.0f}" for v in ends)
+
+
+def _decimal_places(text: str) -> int:
+    return len(text.split(".", 1)[1]) if "." in text else 0
 
 
 def caution_line() -> str:

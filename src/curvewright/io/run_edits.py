@@ -114,6 +114,39 @@ def change_profile(
                  "reason": reason.strip()}, user, clock)
 
 
+def edit_analyte(
+    run: Run, analyte: str, *, name: str, concentration_unit: str, response_unit: str, reason: str = "",
+    user: str | None = None, clock: Clock = utc_now,
+) -> Run:
+    """Rename an analyte or set its units as one audited step (old → new in the trail).
+
+    A new name is carried into every sample's responses and nominal values of that analyte. Units are
+    kept exactly as typed (µ stays the micro sign), stripped of surrounding spaces.
+    """
+    a = run.analyte(analyte)
+    new_name = name.strip()
+    if not new_name:
+        raise RunError(f"analyte {analyte!r}: the name cannot be empty.")
+    if new_name != analyte and new_name in {x.name for x in run.analytes}:
+        raise RunError(f"analyte name {new_name!r} is already used by another analyte of this run.")
+    after = {"name": new_name, "concentration_unit": concentration_unit.strip(), "response_unit": response_unit.strip()}
+    before = {"name": a.name, "concentration_unit": a.concentration_unit, "response_unit": a.response_unit}
+    changes = {k: {"old": before[k], "new": v} for k, v in after.items() if before[k] != v}
+    if not changes:
+        return run
+    changed = replace(a, **after)
+    analytes = tuple(changed if x.name == analyte else x for x in run.analytes)
+    samples = run.samples
+    if new_name != analyte:
+        samples = tuple(
+            replace(s, measurements=tuple(replace(m, analyte=new_name) if m.analyte == analyte else m for m in s.measurements),
+                    nominal=tuple((new_name if n == analyte else n, v) for n, v in s.nominal))
+            for s in run.samples
+        )
+    return _log(replace(run, analytes=analytes, samples=samples), "analyte_edited",
+                {"analyte": analyte, "changes": changes, "reason": reason.strip()}, user, clock)
+
+
 def _with_standard(analyte: Analyte, standard: Standard) -> Analyte:
     return replace(analyte, standards=tuple(standard if s.id == standard.id else s for s in analyte.standards))
 
