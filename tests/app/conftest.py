@@ -59,8 +59,9 @@ class DialogAnswers(dict):
     """How the dialogs are answered, and what each one showed (``seen``: title and prompt)."""
 
     def __init__(self) -> None:
-        super().__init__(reason="bench note 14: vial cracked", question=None, choice=None)
+        super().__init__(reason="bench note 14: vial cracked", question=None, choice=None, paste=None)
         self.seen: list[tuple[str, str]] = []
+        self.paste_dialogs: list = []
 
     @property
     def last_title(self) -> str:
@@ -71,10 +72,11 @@ class DialogAnswers(dict):
 def answer_dialogs(monkeypatch):
     """Answer reason dialogs, questions and warnings without a person at the keyboard, and record what
     each showed. By default a reason dialog gets the last listed reason ("other") and the details text;
-    ``answers["choice"] = i`` picks list item i instead; ``answers["reason"] = None`` cancels it."""
+    ``answers["choice"] = i`` picks list item i instead; ``answers["reason"] = None`` cancels it. A paste
+    preview is accepted as shown, after ``answers["paste"](dialog)`` when that is set."""
     from PySide6.QtWidgets import QDialog, QLabel, QMessageBox
 
-    from curvewright.app import dialogs
+    from curvewright.app import dialogs, paste_dialog
 
     answers = DialogAnswers()
     answers["question"] = QMessageBox.StandardButton.Yes
@@ -97,7 +99,15 @@ def answer_dialogs(monkeypatch):
             return answers["question"] if kind == "question" else QMessageBox.StandardButton.Ok
         return show
 
+    def exec_paste(self) -> int:
+        answers.seen.append((self.windowTitle(), self.summary.text()))
+        answers.paste_dialogs.append(self)
+        if answers["paste"] is not None:
+            answers["paste"](self)
+        return QDialog.DialogCode.Accepted
+
     monkeypatch.setattr(dialogs.ReasonDialog, "exec", exec_reason)
+    monkeypatch.setattr(paste_dialog.PasteDialog, "exec", exec_paste)
     for kind in ("question", "warning", "information", "critical"):
         monkeypatch.setattr(QMessageBox, kind, message(kind))
     monkeypatch.setattr(QMessageBox, "about", lambda parent, title, text: answers.seen.append((title, text)))

@@ -28,7 +28,9 @@ from ..io import run_edits
 from ..io.atomic import write_atomically
 from ..io.errors import ExportError
 from .curve_view import CurveView, InfluenceView
+from ..io.paste import read_block
 from .dialogs import AnalyteDialog, ImportDialog, ReasonDialog, SettingsDialog, ask_exclusion
+from .paste_dialog import PasteDialog
 from .evidence_panel import EvidencePanel
 from .figures import plot_image_bytes
 from .results_model import ResultsView
@@ -239,6 +241,7 @@ class MainWindow(QMainWindow):
         self.standards_view.setModel(self.standards_model)
         self.samples_view.setModel(self.samples_model)
         for view in (self.standards_view, self.samples_view):
+            view.paste_handler = self.paste_into
             view.selectionModel().selectionChanged.connect(self.command(self._update_buttons))
             view.selectionModel().currentChanged.connect(self.command(self._update_buttons))
         for model in (self.standards_model, self.samples_model):
@@ -827,6 +830,39 @@ class MainWindow(QMainWindow):
         view = self.input_view()
         self.left_tabs.setCurrentIndex(0 if view is self.standards_view else 1)
         view.paste()
+
+    def stated_decimal_mark(self) -> str | None:
+        """The decimal mark the analyst set in the settings ("." or ","), None when left to detection."""
+        value = str(self.settings.value("input/decimal_mark", "system"))
+        return value if value in (".", ",") else None
+
+    def paste_into(self, view: SheetTableView, text: str) -> int:
+        """Enter pasted text into a table: one cell as if typed; a block read as a file is read (header
+        names, decimal mark from the whole block), previewed, then entered as one audited step."""
+        model = view.model()
+        current = view.currentIndex()
+        one_cell = text.rstrip("\r\n")
+        if not one_cell.strip():
+            self.show_message("The clipboard holds no text to paste.")
+            return 0
+        if current.isValid() and not any(ch in one_cell for ch in "\t\r\n"):
+            return 1 if model.setData(current, one_cell) else 0
+        fields = {column: field for field, column in model.field_columns().items()}
+        start = fields.get(current.column()) if current.isValid() else None
+        try:
+            block = read_block(text, model.target, start_field=start, decimal_mark=self.stated_decimal_mark())
+        except CurvewrightError as exc:
+            self.show_message(f"Not pasted: {exc}")
+            return 0
+        dialog = PasteDialog(block, model.rowCount(), current.row() if current.isValid() else None, self)
+        if dialog.exec() != PasteDialog.DialogCode.Accepted:
+            return 0
+        entered, notes = model.apply_block(dialog.block, dialog.top)
+        if entered:
+            attention = (f"; {len(notes)} cell(s) need attention: " + " | ".join(notes[:4])
+                         + (f" … and {len(notes) - 4} more" if len(notes) > 4 else "")) if notes else "."
+            self.show_message(f"Pasted {entered} row(s) into the {model.target} table{attention}")
+        return entered
 
     def copy_selection(self) -> str:
         """Edit → Copy: the selected cells of the focused table (all of it when nothing is selected)."""

@@ -9,6 +9,7 @@ marked in red with the reason, and is named in the status line.
 from __future__ import annotations
 
 from dataclasses import replace
+from typing import Callable
 
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, Signal
 from PySide6.QtGui import QBrush
@@ -16,6 +17,7 @@ from PySide6.QtGui import QBrush
 from ..core.run import Measurement, RunError, Sample, SampleKind
 from ..io import run_edits
 from ..io.importing import KIND_WORDS
+from ..io.paste import PastedBlock
 from .cells import number_from_text, reading_from_text, reading_problem
 from .session import RunSession
 from .table_view import RowCache
@@ -23,10 +25,14 @@ from .standards_model import INVALID
 
 COLUMNS = ("Id", "Kind", "Run order", "Dilution factor", "Nominal", "Responses (replicates separated by ;)")
 ID, KIND, ORDER, DILUTION, NOMINAL, RESPONSES = range(len(COLUMNS))
+FIELD_COLUMNS = {"id": ID, "kind": KIND, "run_order": ORDER, "dilution": DILUTION, "nominal": NOMINAL, "response": RESPONSES}
+"""The column of each field a pasted block can fill."""
 
 
 class SamplesModel(QAbstractTableModel):
     message = Signal(str)
+    target = "samples"
+    """What a pasted block fills (see :mod:`curvewright.io.paste`)."""
 
     def __init__(self, session: RunSession, analyte: str) -> None:
         super().__init__()
@@ -111,21 +117,24 @@ class SamplesModel(QAbstractTableModel):
             return False
         samples = list(self.samples)
         row, col = index.row(), index.column()
-        ok, sample = self._with_cell(samples[row], col, str(value), row + 1)
+        ok, sample = self._with_cell(samples[row], col, str(value), row + 1, self.decimal_mark, self.message.emit)
         if not ok:
             self.dataChanged.emit(index, index)
             return False
         samples[row] = sample
         return self._commit(tuple(samples), f"Edit {COLUMNS[col].split(' (')[0].lower()} of {sample.id}")
 
-    def _with_cell(self, s: Sample, col: int, text: str, row_number: int) -> tuple[bool, Sample]:
+    def _with_cell(self, s: Sample, col: int, text: str, row_number: int, decimal_mark: str | None,
+                   report: Callable[[str], object]) -> tuple[bool, Sample]:
+        """The sample with one cell's text entered, or (False, the sample unchanged) when the value is
+        refused (the cell then keeps the text, marked); ``report`` receives what needs attention."""
         where = f"samples row {row_number}, {COLUMNS[col].split(' (')[0].lower()}"
         self.pending.pop((s.id, col), None)
         t = text.strip()
 
         def refuse(reason: str) -> tuple[bool, Sample]:
             self.pending[(s.id, col)] = (text, reason)
-            self.message.emit(f"{where}: {text!r} {reason}; not applied (the cell keeps what you typed)")
+            report(f"{where}: {text!r} {reason}; not applied (the cell keeps what you typed)")
             return False, s
 
         if col == ID:
@@ -142,12 +151,12 @@ class SamplesModel(QAbstractTableModel):
         if col == ORDER:
             if not t:
                 return True, replace(s, run_order=None)
-            value, problem = number_from_text(t, self.decimal_mark)
+            value, problem = number_from_text(t, decimal_mark)
             if problem or value != int(value) or value < 0:
                 return refuse("is not a whole number")
             return True, replace(s, run_order=int(value))
         if col == DILUTION:
-            value, problem = number_from_text(t, self.decimal_mark)
+            value, problem = number_from_text(t, decimal_mark)
             if problem or value <= 0:
                 return refuse(problem or "must be above zero")
             return True, replace(s, dilution_factor=value)
@@ -155,17 +164,17 @@ class SamplesModel(QAbstractTableModel):
             others = tuple((a, v) for a, v in s.nominal if a != self.analyte_name)
             if not t:
                 return True, replace(s, nominal=others)
-            value, problem = number_from_text(t, self.decimal_mark)
+            value, problem = number_from_text(t, decimal_mark)
             if problem:
                 return refuse(problem)
             return True, replace(s, nominal=others + ((self.analyte_name, value),))
         parts = [p for p in text.split(";")] if t else []
-        readings = [reading_from_text(p, self.decimal_mark)[0] for p in parts]
+        readings = [reading_from_text(p, decimal_mark)[0] for p in parts]
         others = tuple(m for m in s.measurements if m.analyte != self.analyte_name)
         mine = tuple(Measurement(self.analyte_name, i + 1, r) for i, r in enumerate(readings))
-        bad = [f"replicate {i + 1}: {reading_from_text(p, self.decimal_mark)[1]}" for i, p in enumerate(parts) if reading_from_text(p, self.decimal_mark)[1]]
+        bad = [f"replicate {i + 1}: {reading_from_text(p, decimal_mark)[1]}" for i, p in enumerate(parts) if reading_from_text(p, decimal_mark)[1]]
         if bad:
-            self.message.emit(f"{where}: " + "; ".join(bad) + "; kept as typed, not used")
+            report(f"{where}: " + "; ".join(bad) + "; kept as typed, not used")
         return True, replace(s, measurements=others + mine)
 
     def _commit(self, samples: tuple[Sample, ...], description: str, reason: str = "") -> bool:
@@ -177,25 +186,42 @@ class SamplesModel(QAbstractTableModel):
         self.session.apply(new_run, description)
         return True
 
-    def paste_block(self, top: int, left: int, text: str) -> int:
-        lines = text.replace("\r\n", "\n").replace("\r", "\n").split("\n")
-        while lines and not lines[-1].strip():
-            lines.pop()
+    @staticmethod
+    def field_columns() -> dict[str, int]:
+        """The column of each field a pasted block can fill."""
+        return dict(FIELD_COLUMNS)
+
+    def apply_block(self, block: PastedBlock, top: int | None) -> tuple[int, tuple[str, ...]]:
+        """Enter a pasted block (read by :func:`curvewright.io.paste.read_block`) from row ``top``
+        (0-based; None adds every row below the last), as one undoable, audited step. Rows with the
+        same sample id are one sample with replicate responses, as in a file import. Returns the
+        samples entered and what needs attention (row, field, reason)."""
         samples = list(self.samples)
-        for i, line in enumerate(lines):
-            row = top + i
+        start = len(samples) if top is None else top
+        notes: list[str] = []
+        records = block.records()
+        for i, (cells, _) in enumerate(records):
+            row = start + i
             if row >= len(samples):
-                samples.append(Sample(self._new_id(samples)))
-            for j, cell in enumerate(line.split("\t")):
-                col = left + j
-                if col >= len(COLUMNS):
-                    if cell.strip():
-                        self.message.emit(f"samples row {row + 1}: {cell!r} lies beyond the last column; not used")
-                    continue
-                ok, sample = self._with_cell(samples[row], col, cell, row + 1)
+                sid = cells.get("id", "").strip()
+                if not sid or any(x.id == sid for x in samples):
+                    if sid:
+                        notes.append(f"samples row {row + 1}: id {sid!r} is already used; the new sample is named "
+                                     f"{self._new_id(samples)!r}")
+                    sid = self._new_id(samples)
+                samples.append(Sample(sid))
+                cells = {k: v for k, v in cells.items() if k != "id"}
+            for name, text in cells.items():
+                ok, sample = self._with_cell(samples[row], FIELD_COLUMNS[name], text, row + 1, block.decimal_mark,
+                                             notes.append)
                 if ok:
                     samples[row] = sample
-        return len(lines) if self._commit(tuple(samples), f"Paste {len(lines)} row(s) of samples") else 0
+        if not records:
+            return 0, ()
+        where = "added below the last" if start >= len(self.samples) else f"from row {start + 1}"
+        if not self._commit(tuple(samples), f"Paste {len(records)} sample(s) ({where})"):
+            return 0, ()
+        return len(records), tuple(notes)
 
     def add_row(self) -> None:
         samples = list(self.samples)

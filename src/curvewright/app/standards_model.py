@@ -17,6 +17,7 @@ from PySide6.QtGui import QBrush, QColor, QFont
 from ..core.run import Analyte, Reading, RunError, Standard
 from ..core.run_analysis import AnalyteResult
 from ..io import run_edits
+from ..io.paste import PastedBlock
 from .cells import display_reading, number_from_text, reading_from_text, reading_problem
 from .session import RunSession
 from .table_view import RowCache
@@ -26,6 +27,8 @@ COLUMNS = ("Id", "Level", "Rep.", "Nominal", "Response", "IS response", "Back-ca
 ID, LEVEL, REP, CONC, RESP, IS, BACK, RE, LIMITS, IN_FIT, INFLUENCE, REASON = range(len(COLUMNS))
 RESULT_COLUMNS = (BACK, RE, LIMITS, INFLUENCE)
 """The columns that show what the engine found for each standard (read-only)."""
+FIELD_COLUMNS = {"id": ID, "level": LEVEL, "replicate": REP, "concentration": CONC, "response": RESP, "is_response": IS}
+"""The column of each field a pasted block can fill."""
 FIELD_WORDS = {ID: "id", LEVEL: "level", REP: "replicate", CONC: "nominal concentration", RESP: "response",
                IS: "internal-standard response"}
 EDITABLE = (ID, LEVEL, REP, CONC, RESP, IS)
@@ -36,8 +39,8 @@ FAILING = QColor(255, 236, 200)
 
 class StandardsModel(QAbstractTableModel):
     message = Signal(str)
-    default_paste_column = CONC
-    """Where a block lands when no cell is selected: concentration, then response (as instruments export)."""
+    target = "standards"
+    """What a pasted block fills (see :mod:`curvewright.io.paste`)."""
 
     def __init__(self, session: RunSession, analyte: str) -> None:
         super().__init__()
@@ -184,14 +187,17 @@ class StandardsModel(QAbstractTableModel):
         standards = list(self.standards)
         row = index.row()
         try:
-            updated, warning = self._with_cell(standards[row], index.column(), str(value), row + 1)
+            updated, warning = self._with_cell(standards[row], index.column(), str(value), row + 1, self.decimal_mark)
         except RunError as exc:
             self.message.emit(str(exc))
             return False
         standards[row] = updated
         return self._commit(tuple(standards), f"Edit {FIELD_WORDS[index.column()]} of {updated.id}", warning)
 
-    def _with_cell(self, s: Standard, col: int, text: str, row_number: int) -> tuple[Standard, str | None]:
+    def _with_cell(self, s: Standard, col: int, text: str, row_number: int,
+                   decimal_mark: str | None) -> tuple[Standard, str | None]:
+        """The standard with one cell's text entered (kept as typed when it is not a usable value), and
+        a warning naming the row, the field and the reason when it is not."""
         where = f"row {row_number}, {FIELD_WORDS[col]}"
         if col == ID:
             if not text.strip():
@@ -202,16 +208,16 @@ class StandardsModel(QAbstractTableModel):
         if col == LEVEL:
             return replace(s, level=text.strip()), None
         if col == REP:
-            value, problem = number_from_text(text, self.decimal_mark)
+            value, problem = number_from_text(text, decimal_mark)
             if problem or value != int(value) or value < 1:
                 raise RunError(f"{where}: {text!r} is not a whole number of 1 or more; the replicate stays {s.replicate}.")
             return replace(s, replicate=int(value)), None
         if col == CONC:
-            value, problem = number_from_text(text, self.decimal_mark)
+            value, problem = number_from_text(text, decimal_mark)
             if problem:
                 return replace(s, concentration=math.nan, concentration_text=text), f"{where}: {text!r} {problem}; kept as typed, not used"
             return replace(s, concentration=value, concentration_text=""), None
-        reading, problem = reading_from_text(text, self.decimal_mark)
+        reading, problem = reading_from_text(text, decimal_mark)
         warning = f"{where}: {text!r} {problem}; kept as typed, not used" if problem else None
         if col == RESP:
             return replace(s, response=reading), warning
@@ -228,38 +234,47 @@ class StandardsModel(QAbstractTableModel):
             self.message.emit(warning)
         return True
 
-    def paste_block(self, top: int, left: int, text: str) -> int:
-        """Paste tab-separated rows at (top, left), adding standards below the last; returns rows pasted."""
-        lines = [line for line in text.replace("\r\n", "\n").replace("\r", "\n").split("\n")]
-        while lines and not lines[-1].strip():
-            lines.pop()
-        if not lines:
-            return 0
+    @staticmethod
+    def field_columns() -> dict[str, int]:
+        """The column of each field a pasted block can fill."""
+        return dict(FIELD_COLUMNS)
+
+    def apply_block(self, block: PastedBlock, top: int | None) -> tuple[int, tuple[str, ...]]:
+        """Enter a pasted block (read by :func:`curvewright.io.paste.read_block`) from row ``top``
+        (0-based; None adds every row below the last), as one undoable, audited step.
+
+        Values that cannot be used are kept as typed and marked; new standards without a replicate
+        number get the next one at their concentration, as a file import numbers them. Returns the
+        rows entered and what needs attention (row, field, reason).
+        """
         standards = list(self.standards)
-        warnings = []
-        for i, line in enumerate(lines):
-            row = top + i
-            if row >= len(standards):
+        start = len(standards) if top is None else top
+        warnings: list[str] = []
+        records = block.records()
+        for i, (cells, _) in enumerate(records):
+            row = start + i
+            is_new = row >= len(standards)
+            if is_new:
                 standards.append(Standard(self._new_id(standards), math.nan, Reading(None, ""), 1))
-            for j, cell in enumerate(line.split("\t")):
-                col = left + j
-                if col not in EDITABLE:
-                    if cell.strip():
-                        warnings.append(f"row {row + 1}: {cell!r} falls in column {COLUMNS[col] if col < len(COLUMNS) else col + 1}, which cannot be pasted into; not used")
-                    continue
+            for name, text in cells.items():
                 try:
-                    standards[row], warning = self._with_cell(standards[row], col, cell, row + 1)
+                    standards[row], warning = self._with_cell(standards[row], FIELD_COLUMNS[name], text, row + 1,
+                                                              block.decimal_mark)
                 except RunError as exc:
                     warnings.append(str(exc))
                     continue
                 if warning:
                     warnings.append(warning)
-        if self._commit(tuple(standards), f"Paste {len(lines)} row(s) of standards"):
-            if warnings:
-                self.message.emit(f"{len(warnings)} pasted cell(s) need attention: " + " | ".join(warnings[:4])
-                                  + (" …" if len(warnings) > 4 else ""))
-            return len(lines)
-        return 0
+            if is_new and "replicate" not in cells:
+                conc = standards[row].concentration
+                same = sum(1 for other in standards[:row] if other.has_concentration and other.concentration == conc)
+                standards[row] = replace(standards[row], replicate=same + 1 if standards[row].has_concentration else 1)
+        if not records:
+            return 0, ()
+        where = "added below the last" if top is None or start >= len(self.standards) else f"from row {start + 1}"
+        if not self._commit(tuple(standards), f"Paste {len(records)} row(s) of standards ({where})"):
+            return 0, ()
+        return len(records), tuple(warnings)
 
     def add_row(self) -> None:
         standards = list(self.standards)

@@ -3,6 +3,8 @@ every column is wide enough for its header and its cells (nothing on screen is e
 
 from __future__ import annotations
 
+from typing import Callable
+
 from PySide6.QtGui import QGuiApplication, QKeySequence
 from PySide6.QtWidgets import QAbstractItemView, QTableView
 
@@ -15,6 +17,12 @@ def fit_columns(view: QTableView) -> None:
 
 
 class SheetTableView(QTableView):
+    """An editable table that takes pasted blocks (Ctrl+V) and copies its selection as text.
+
+    What a paste does is decided by ``paste_handler(view, text)`` (the window reads the block and
+    shows its preview); without one, nothing is pasted.
+    """
+
     def __init__(self, name: str) -> None:
         super().__init__()
         self.setAccessibleName(name)
@@ -23,6 +31,7 @@ class SheetTableView(QTableView):
         self.setEditTriggers(QAbstractItemView.EditTrigger.DoubleClicked | QAbstractItemView.EditTrigger.EditKeyPressed
                              | QAbstractItemView.EditTrigger.AnyKeyPressed)
         self.horizontalHeader().setStretchLastSection(True)
+        self.paste_handler: Callable[["SheetTableView", str], int] | None = None
 
     def keyPressEvent(self, event) -> None:  # noqa: N802 - Qt override
         if event.matches(QKeySequence.StandardKey.Paste):
@@ -34,14 +43,9 @@ class SheetTableView(QTableView):
         super().keyPressEvent(event)
 
     def paste(self, text: str | None = None) -> int:
-        model = self.model()
-        if not hasattr(model, "paste_block"):
-            return 0
+        """Paste ``text`` (the clipboard's when None) at the current cell; returns the rows entered."""
         text = QGuiApplication.clipboard().text() if text is None else text
-        current = self.currentIndex()
-        top = current.row() if current.isValid() else model.rowCount()
-        left = current.column() if current.isValid() else getattr(model, "default_paste_column", 0)
-        return model.paste_block(max(top, 0), max(left, 0), text)
+        return self.paste_handler(self, text) if self.paste_handler is not None else 0
 
     def copy_selection(self) -> str:
         indexes = sorted(self.selectedIndexes(), key=lambda i: (i.row(), i.column()))

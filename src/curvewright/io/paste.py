@@ -1,0 +1,178 @@
+"""A block pasted from a spreadsheet into the standards or samples table, read as a file is read.
+
+* The block is split like a text table (tab, semicolon or comma; quoted cells kept whole).
+* Its first row is a header when one of its cells names a column (the header names a file import
+  accepts, a unit in brackets read from it, e.g. "Concentration (ng/mL)") and none of its cells is a
+  number. The columns then go where their headers say, wherever the block is pasted.
+* Without a header the columns fill the table's columns from the one selected, in the table's
+  order (:data:`STANDARD_COLUMNS`, :data:`SAMPLE_COLUMNS`). With no cell selected, standards start
+  at the nominal concentration (concentration, then response, as instruments list them) and a
+  two-column block of samples is read as sample id and response.
+* The decimal mark is decided from the block's numeric cells as a whole, as for a file
+  (:func:`.number_text.detect_decimal_mark`); an analyst's stated mark takes precedence.
+* Nothing is read here into values: the front end keeps every cell's text, and a value that cannot
+  be read stays as typed, marked, with the reason.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Mapping
+
+from .errors import ImportProblem
+from .importing import SYNONYMS, _normalise
+from .number_text import detect_decimal_mark, parse_number
+from .tables import table_from_text
+
+STANDARD_COLUMNS = ("id", "level", "replicate", "concentration", "response", "is_response")
+"""The fields of the standards table, in its column order."""
+SAMPLE_COLUMNS = ("id", "kind", "run_order", "dilution", "nominal", "response")
+"""The fields of the samples table, in its column order."""
+TEXT_FIELDS = ("id", "level", "kind", "analyte")
+"""Fields holding words: they are no evidence of the decimal mark."""
+FIELD_WORDS = {
+    "id": "id", "level": "level", "replicate": "replicate", "concentration": "nominal concentration",
+    "response": "response", "is_response": "internal-standard response", "kind": "kind", "run_order": "run order",
+    "dilution": "dilution factor", "nominal": "nominal value", "analyte": "analyte",
+}
+
+
+@dataclass(frozen=True)
+class PastedColumn:
+    """One column of the block: its header text (empty without a header), the field it fills (None when
+    it has no place in the table) and the unit its header names."""
+
+    header: str
+    field: str | None
+    unit: str = ""
+
+
+@dataclass(frozen=True)
+class PastedBlock:
+    """A pasted block as read: its columns, its body rows (cell texts) and how numbers read."""
+
+    target: str
+    columns: tuple[PastedColumn, ...]
+    has_header: bool
+    rows: tuple[tuple[str, ...], ...]
+    decimal_mark: str | None
+    decimal_note: str
+    delimiter: str
+
+    @property
+    def fields(self) -> tuple[str | None, ...]:
+        return tuple(c.field for c in self.columns)
+
+    def cells(self, row: int) -> dict[str, str]:
+        """The texts of body row ``row`` (0-based) by field; columns without a field are left out."""
+        cells = self.rows[row]
+        return {c.field: cells[i] if i < len(cells) else "" for i, c in enumerate(self.columns) if c.field}
+
+    def records(self) -> tuple[tuple[dict[str, str], tuple[int, ...]], ...]:
+        """The rows to enter, each as texts by field with the 0-based body rows it came from.
+
+        For samples, rows with the same sample id are one sample, as in a file import: their responses
+        become that sample's replicates (joined with "; "), the other cells come from its first row.
+        """
+        records: list[tuple[dict[str, str], list[int]]] = []
+        by_id: dict[str, int] = {}
+        for i in range(len(self.rows)):
+            cells = self.cells(i)
+            sid = cells.get("id", "").strip()
+            if self.target == "samples" and sid and sid in by_id:
+                merged, sources = records[by_id[sid]]
+                if cells.get("response", "").strip():
+                    earlier = merged.get("response", "").strip()
+                    merged["response"] = f"{earlier}; {cells['response'].strip()}" if earlier else cells["response"]
+                sources.append(i)
+                continue
+            if self.target == "samples" and sid:
+                by_id[sid] = len(records)
+            records.append((dict(cells), [i]))
+        return tuple((cells, tuple(sources)) for cells, sources in records)
+
+    def unused(self) -> tuple[str, ...]:
+        """Headers (or column numbers) of the columns that fill no field of the table."""
+        return tuple(c.header or f"column {i + 1}" for i, c in enumerate(self.columns) if c.field is None)
+
+    def with_fields(self, fields: Mapping[int, str | None], decimal_mark: str | None = None) -> "PastedBlock":
+        """The same block with the columns at the given 0-based positions moved to other fields (the
+        analyst's correction in the preview), the decimal mark decided again unless one is given."""
+        columns = tuple(PastedColumn(c.header, fields.get(i, c.field), c.unit) for i, c in enumerate(self.columns))
+        mark, note = _decimal_mark(self.rows, tuple(c.field for c in columns), decimal_mark)
+        return PastedBlock(self.target, columns, self.has_header, self.rows, mark, note, self.delimiter)
+
+
+def table_fields(target: str) -> tuple[str, ...]:
+    if target == "standards":
+        return STANDARD_COLUMNS
+    if target == "samples":
+        return SAMPLE_COLUMNS
+    raise ValueError(f"paste target {target!r} is not 'standards' or 'samples'")
+
+
+def read_block(text: str, target: str, *, start_field: str | None = None, decimal_mark: str | None = None) -> PastedBlock:
+    """Read a pasted block for the ``target`` table ("standards" or "samples").
+
+    ``start_field`` is the field of the selected column (None when no cell is selected);
+    ``decimal_mark`` the analyst's stated mark ("." or ","), None to decide it from the block.
+    Raises :class:`~curvewright.io.errors.ImportProblem` when the text holds no cells.
+    """
+    order = table_fields(target)
+    if start_field is not None and start_field not in order:
+        raise ValueError(f"field {start_field!r} is not a column of the {target} table")
+    table = table_from_text(text, source="the pasted block")
+    rows = [tuple(str(c) for c in r) for r in table.rows]
+    while rows and not any(c.strip() for c in rows[-1]):
+        rows.pop()
+    if not rows:
+        raise ImportProblem("the clipboard holds no cells to paste.")
+    width = max(len(r) for r in rows)
+    header = _header_columns(rows[0], order)
+    if header is not None:
+        columns, body = header, rows[1:]
+    else:
+        columns, body = _positional_columns(width, order, start_field, target), rows
+    columns = columns + tuple(PastedColumn("", None) for _ in range(width - len(columns)))
+    body = tuple(r + ("",) * (width - len(r)) for r in body)
+    mark, note = _decimal_mark(body, tuple(c.field for c in columns), decimal_mark)
+    return PastedBlock(target, columns, header is not None, body, mark, note, table.delimiter_name)
+
+
+def _header_columns(first: tuple[str, ...], order: tuple[str, ...]) -> tuple[PastedColumn, ...] | None:
+    """The columns named by a header row, or None when the first row is data."""
+    if any(_is_number(c) for c in first):
+        return None
+    taken: set[str] = set()
+    columns = []
+    for cell in first:
+        words, unit = _normalise(cell)
+        field = next((f for f in order if f not in taken and words in SYNONYMS.get(f, ())), None)
+        if field is not None:
+            taken.add(field)
+        columns.append(PastedColumn(cell.strip(), field, unit))
+    return tuple(columns) if taken else None
+
+
+def _positional_columns(width: int, order: tuple[str, ...], start: str | None, target: str) -> tuple[PastedColumn, ...]:
+    if start is None and target == "samples" and width == 2:
+        fields: tuple[str, ...] = ("id", "response")
+    else:
+        begin = order.index(start) if start is not None else order.index("concentration" if target == "standards" else "id")
+        fields = order[begin:]
+    return tuple(PastedColumn("", fields[i] if i < len(fields) else None) for i in range(width))
+
+
+def _decimal_mark(rows, fields, given: str | None) -> tuple[str | None, str]:  # type: ignore[no-untyped-def]
+    if given is not None:
+        return given, f"decimal mark {given!r} as set"
+    tokens = [cells[i] for cells in rows for i, f in enumerate(fields)
+              if f is not None and f not in TEXT_FIELDS and i < len(cells)]
+    return detect_decimal_mark(tokens)
+
+
+def _is_number(text: str) -> bool:
+    t = text.strip()
+    if not t:
+        return False
+    return any(parse_number(t, mark)[0] is not None for mark in (".", ","))
