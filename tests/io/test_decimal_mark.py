@@ -130,3 +130,20 @@ def test_a_quoted_tab_in_a_sample_id_keeps_the_comma_table() -> None:
     # spaces and tabs around an id are trimmed as everywhere; inside it they stay
     assert [(s.id, s.measurements[0].response.value) for s in result.samples] == [
         ("=1", 101.082), ("Well 3, rinse", 99.517), ("Vial\t7", 100.25)]
+
+
+def test_numbers_stored_as_text_in_a_workbook_follow_the_same_rule(tmp_path) -> None:
+    import openpyxl
+
+    from curvewright.io.tables import table_from_xlsx
+
+    path = tmp_path / "standards.xlsx"
+    book = openpyxl.Workbook()
+    sheet = book.active
+    for row in (["Concentration", "Response"], [0.5, "50,25"], [1, "101,082"], [2, 202.164]):
+        sheet.append(row)
+    book.save(path)
+    result = import_standards(table_from_xlsx(path))
+    assert result.complete, result.summary()
+    assert result.decimal_mark == "," and "numbers stored as text: decimal comma" in result.decimal_note
+    assert values(result) == [(0.5, 50.25), (1.0, 101.082), (2.0, 202.164)]

@@ -77,7 +77,7 @@ def test_missing_columns_list_the_accepted_headers() -> None:
     assert "(row 1: 'Level', 'Peak height')" in message
     for name in SYNONYMS["concentration"] + SYNONYMS["response"]:
         assert repr(name) in message
-    assert "'Concentration (µg/L)'" in message and "say which column holds it" in message
+    assert "'Concentration (µg/L)'" in message and "Rename the column in the table, or map it to the field." in message
     assert isinstance(info.value, ImportProblem)
 
 
@@ -107,7 +107,7 @@ def test_the_wrong_decimal_mark_given_points_to_the_right_one() -> None:
     assert len(remedies) == 1
     remedy = remedies.pop()
     assert (remedy.option, remedy.value) == ("decimal_mark", ",")
-    assert "the decimal mark '.' was given, but values use ','" in remedy.finding
+    assert remedy.finding == "the decimal mark '.' was given, but the table's values show decimal comma (shown by 3 values)"
 
 
 def test_thousands_in_a_decimal_point_table_point_to_the_separator() -> None:
@@ -120,8 +120,9 @@ def test_grouped_cells_say_the_finding_once_and_cap_the_list() -> None:
     cells = [RejectedCell(r, "2 (Area)", "1,5", "uses ','", remedy) for r in range(2, 16)]
     cells.append(RejectedCell(20, "2 (Area)", "abc", "is not a number"))
     lines = grouped_cells(cells, lambda r: f"give --decimal-mark {r.value}", limit=10)
-    assert lines[0] == "  the table shows a decimal comma; give --decimal-mark ,:"
+    assert lines[0] == "  the table shows a decimal comma → give --decimal-mark ,"
     assert lines[1] == "    row 2, column 2 (Area): '1,5' — uses ','"
     assert lines[11] == "    … and 4 more"
     assert lines[12] == "  row 20, column 2 (Area): 'abc' — is not a number"
     assert len(lines) == 13
+

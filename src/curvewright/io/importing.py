@@ -94,6 +94,10 @@ class RejectedCell:
         return f"row {self.row}, column {self.column}: {self.text!r} — {self.reason}"
 
 
+class ColumnMappingProblem(ImportProblem):
+    """A column named by the caller (header text or number) is not in the table, or fits more than one."""
+
+
 class MissingColumns(ImportProblem):
     """No column of the header row could be taken for a required field.
 
@@ -109,8 +113,8 @@ class MissingColumns(ImportProblem):
         found = ", ".join(repr(h) for h in headers) or "no header text"
         super().__init__(
             f"{source}: no column for {', '.join(missing)} in the header row (row {header_row}: {found}). "
-            f"Headers accepted (in any case, a unit may follow in brackets, e.g. 'Concentration (µg/L)') — "
-            f"{accepted}. Rename the column, or say which column holds it."
+            f"Headers accepted (upper or lower case; a unit may follow in brackets, e.g. 'Concentration (µg/L)') — "
+            f"{accepted}. Rename the column in the table, or map it to the field."
         )
 
 
@@ -127,7 +131,7 @@ def grouped_cells(
     for remedy in sorted(groups, key=lambda r: r is None):
         members = groups[remedy]
         if remedy is not None:
-            lines.append(f"{indent}{remedy.finding}; {answer(remedy)}:")
+            lines.append(f"{indent}{remedy.finding} → {answer(remedy)}")
             pad = indent * 2
         else:
             pad = indent
@@ -143,7 +147,7 @@ def dialog_answer(remedy: Remedy) -> str:
         return (f'choose {remedy.value!r} under "Decimal mark"' if remedy.value
                 else 'choose the table\'s mark under "Decimal mark"')
     shown = "space" if remedy.value == " " else repr(remedy.value) if remedy.value else "the separator"
-    return f'choose {shown} under "Thousands separator", or remove the separators'
+    return f'remove the separators, or choose {shown} under "Thousands separator"'
 
 
 @dataclass(frozen=True)
@@ -153,7 +157,8 @@ class ImportResult:
     ``standards`` is a tuple of (analyte name, Standard); ``samples`` a tuple of Sample.
     ``rejected`` lists each unusable cell; ``rejected_rows`` the rows not imported because of them;
     ``empty_rows`` the blank rows passed over. ``unusable_readings`` lists the sample readings kept
-    as typed (empty, or text that is not a number) whose samples are reported without them.
+    as typed (empty, or text that is not a number) whose samples are reported without them;
+    ``unused_columns`` the headers of the columns no field was taken from.
     """
 
     source: str
@@ -170,6 +175,7 @@ class ImportResult:
     empty_rows: tuple[int, ...] = ()
     warnings: tuple[str, ...] = field(default=())
     unusable_readings: tuple[RejectedCell, ...] = ()
+    unused_columns: tuple[str, ...] = ()
 
     @property
     def complete(self) -> bool:
@@ -206,8 +212,8 @@ def import_standards(
 ) -> ImportResult:
     """Standards from a table with a header row: one row per standard injection.
 
-    Every problem is fatal to its row: a curve from part of the standards is not what the analyst
-    meant. A nominal concentration below zero is refused.
+    Every problem refuses its row, with the cell, the text and the reason. A nominal concentration
+    below zero is refused.
     """
     ctx = _Context(table, STANDARD_FIELDS, mapping, decimal_mark, thousands, required=STANDARD_REQUIRED)
     standards: list[tuple[str, Standard]] = []
@@ -364,8 +370,10 @@ class _Context:
         elif thousands in (",", "."):
             decimal_mark = "." if thousands == "," else ","
             self.decimal_note = f"decimal mark {decimal_mark!r} (the thousands separator is {thousands!r})"
-        elif table.delimiter is None and not tokens:
-            self.decimal_note = "numbers read from workbook cells"
+        elif table.delimiter is None:
+            decimal_mark, self.decimal_note = self.evidence.mark, "numbers read from workbook cells"
+            if self.evidence.point or self.evidence.comma or self.evidence.undecided:
+                self.decimal_note += f"; numbers stored as text: {self.evidence.note}"
         else:
             decimal_mark, self.decimal_note = self.evidence.mark, self.evidence.note
         self.decimal_mark = decimal_mark
@@ -377,10 +385,13 @@ class _Context:
         normal = [_normalise(h) for h in self.headers]
         for f, where in override.items():
             if f not in fields:
-                raise ImportProblem(f"column mapping: {f!r} is not one of {', '.join(fields)}.")
+                raise ColumnMappingProblem(f"{self.table.source}: column mapping: {f!r} is not one of {', '.join(fields)}.")
             if isinstance(where, int):
                 if not (1 <= where <= len(self.headers)):
-                    raise ImportProblem(f"column mapping: {f} → column {where}, but the table has {len(self.headers)} columns.")
+                    raise ColumnMappingProblem(
+                        f"{self.table.source}: column mapping: {f} → column {where}, but the table has "
+                        f"{len(self.headers)} columns."
+                    )
                 mapping[f] = where - 1
             else:
                 mapping[f] = self._header_index(f, where, normal)
@@ -396,9 +407,9 @@ class _Context:
         for f, i in mapping.items():
             if normal[i][1]:
                 units[f] = normal[i][1]
-        unused = [self.headers[i] for i in range(len(self.headers)) if i not in taken and self.headers[i]]
-        if unused:
-            self.warnings.append(f"columns not used: {', '.join(repr(u) for u in unused)}")
+        self.unused = tuple(self.headers[i] for i in range(len(self.headers)) if i not in taken and self.headers[i])
+        if self.unused:
+            self.warnings.append(f"columns not used: {', '.join(repr(u) for u in self.unused)}")
         return mapping, units
 
     def _header_index(self, f: str, where: str, normal: list[tuple[str, str]]) -> int:
@@ -409,11 +420,13 @@ class _Context:
         matches = [i for i, (w, _) in enumerate(normal) if w == words or self.headers[i].casefold() == where.casefold()]
         headers = ", ".join(repr(h) for h in self.headers)
         if not matches:
-            raise ImportProblem(f"column mapping: {f} → {where!r}, but no header is {where!r} (headers: {headers}).")
+            raise ColumnMappingProblem(
+                f"{self.table.source}: column mapping: {f} → {where!r}, but no header is {where!r} (headers: {headers})."
+            )
         if len(matches) > 1:
-            raise ImportProblem(
-                f"column mapping: {f} → {where!r} fits columns {', '.join(str(i + 1) for i in matches)}; "
-                "give the column number instead."
+            raise ColumnMappingProblem(
+                f"{self.table.source}: column mapping: {f} → {where!r} fits columns "
+                f"{', '.join(str(i + 1) for i in matches)}; give the column number instead."
             )
         return matches[0]
 
@@ -440,6 +453,8 @@ class _Context:
         return repr(value) if isinstance(value, float) else value
 
     def reject(self, row: int, f: str, text: str, reason: str, *, row_fails: bool, remedy: Remedy | None = None) -> None:
+        if remedy is not None:
+            reason = reason.split("; ", 1)[0]  # the advice is given once, with the remedy
         column = self.column_name(f) if f in self.mapping else f
         self.rejected.append(RejectedCell(row, column, text, reason, remedy))
         if row_fails:
@@ -466,21 +481,24 @@ class _Context:
         """The option that answers a parse problem about marks or separators (None for other problems)."""
         if problem.startswith("has thousands separators"):
             separator = thousands_separator_in(value)
-            return Remedy("thousands", separator, "values are written with thousands separators")
-        if problem.startswith("uses '"):
-            other = problem[len("uses '")]
-            grouped = thousands_separator_in(value) == other or ambiguous_problem(value) is not None
-            if self.given_mark is not None and (not grouped or self.evidence.mark == other):
-                shown = f"; the table's other values show {self.evidence.note}" if self.evidence.mark == other else ""
-                return Remedy("decimal_mark", other,
-                              f"the decimal mark {self.given_mark!r} was given, but values use {other!r}{shown}")
-            if grouped:
-                return Remedy("thousands", other,
-                              f"values use {other!r} although the table's decimal mark is {self.decimal_mark!r} "
-                              f"({self.decimal_note}); {other!r} separates thousands in them, or they are mistyped")
-            return Remedy("decimal_mark", None,
-                          f"values use {other!r} although the table's decimal mark is {self.decimal_mark!r} ({self.decimal_note})")
-        return None
+            return Remedy("thousands", separator, _thousands_finding(separator))
+        if not problem.startswith("uses '"):
+            return None
+        other = problem[len("uses '")]
+        grouped = thousands_separator_in(value) == other or ambiguous_problem(value) is not None
+        if self.given_mark is not None:
+            if self.evidence.mark == other:
+                finding = f"the decimal mark {self.given_mark!r} was given, but the table's values show {self.evidence.note}"
+            elif grouped:
+                finding = (f"the decimal mark {self.given_mark!r} was given, but values use {other!r}; if {other!r} "
+                           "separates thousands in them instead, name it as the thousands separator")
+            else:
+                finding = f"the decimal mark {self.given_mark!r} was given, but values use {other!r}"
+            return Remedy("decimal_mark", other, finding)
+        if grouped:
+            return Remedy("thousands", other, _thousands_finding(other))
+        return Remedy("decimal_mark", None,
+                      f"values use {other!r} although the table's decimal mark is {self.decimal_mark!r} ({self.decimal_note})")
 
     def parse(self, value: str) -> tuple[Reading | None, str | None, Remedy | None]:
         """A text cell read as a reading, or (None, the reason, the option that answers it)."""
@@ -581,8 +599,14 @@ class _Context:
             empty_rows=tuple(sorted(self.empty_rows)),
             warnings=tuple(self.warnings),
             unusable_readings=tuple(c for c in self.unusable if c.row not in self.failed_rows),
+            unused_columns=self.unused,
             **parts,
         )
+
+
+def _thousands_finding(separator: str | None) -> str:
+    shown = {" ": "spaces", None: "separators"}.get(separator, repr(separator))
+    return f"values are written with thousands separators ({shown} between groups of three digits)"
 
 
 def _blank(cell: Cell) -> bool:
