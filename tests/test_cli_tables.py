@@ -330,3 +330,25 @@ def test_compare_reads_a_standards_table(tmp_path) -> None:
     linear = cw.fit(ZN_X, ZN_Y)
     assert rows[("linear", "none")][2] == pytest.approx(linear.residual_sd, rel=1e-12)  # cw.fit residual SD
 
+
+def test_the_readme_example_tables_quantify_as_documented(tmp_path) -> None:
+    import re
+
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    blocks = re.findall(r"```\n(.*?)```", readme, flags=re.S)
+    (tmp_path / "mn_standards.csv").write_text(next(b for b in blocks if b.startswith("Standard id,")), encoding="utf-8")
+    (tmp_path / "mn_samples.csv").write_text(next(b for b in blocks if b.startswith("Sample,Type")), encoding="utf-8")
+    command = next(b for b in blocks if b.startswith("curvewright quantify --standards mn_standards.csv")).split()
+    args = [str(tmp_path / a) if a.endswith(".csv") else a for a in command[1:]]
+    result = run_cli(*args, "--json")
+    assert result.returncode == 0, result.stderr
+    entry = json.loads(result.stdout)["analytes"][0]
+    assert entry["name"] == "manganese" and entry["concentration_unit"] == "µg/L"
+    reported = {s["id"]: s for s in entry["samples"]}
+    cal = cw.fit(MN_X, MN_Y)  # the README's standards are the Larkmoor standards above
+    expected = float(cal.quantify([(640.225 + 652.118) / 2], replicates=2).estimate[0])  # cw.fit(...).quantify(...)
+    assert reported["LWL-0412"]["reported"] == pytest.approx(expected, rel=1e-12)
+    assert reported["Well 3, rinse"]["reported"] == pytest.approx(2 * float(cal.quantify([1503.871]).estimate[0]),
+                                                                  rel=1e-12)
+    assert reported["QC mid"]["recovery_percent"] is not None
+    assert reported["Field blank"]["reported"] is None

@@ -126,3 +126,20 @@ def test_grouped_cells_say_the_finding_once_and_cap_the_list() -> None:
     assert lines[12] == "  row 20, column 2 (Area): 'abc' — is not a number"
     assert len(lines) == 13
 
+
+def test_the_readme_table_layout_lists_every_accepted_header() -> None:
+    import re
+
+    from curvewright.io.importing import SAMPLE_FIELDS, SAMPLE_REQUIRED, STANDARD_FIELDS, STANDARD_REQUIRED
+    from tests.io.helpers import ROOT
+
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    section = readme[readme.index("## Table layout"):]
+    standards_part, samples_part = section.split("Samples, one row per replicate", 1)
+    for part, fields, required in ((standards_part, STANDARD_FIELDS, STANDARD_REQUIRED),
+                                   (samples_part, SAMPLE_FIELDS, SAMPLE_REQUIRED)):
+        rows = {m.group(1): m.group(2) for m in re.finditer(r"^\| (\w+) \| ([^|]+) \|([^|]*)\|$", part, flags=re.M)}
+        for f in fields:
+            assert rows[f].strip() == ", ".join(SYNONYMS[f]), f
+        for f in required:
+            assert re.search(rf"^\| {f} \|[^|]+\| required", part, flags=re.M), f
