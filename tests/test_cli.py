@@ -53,6 +53,13 @@ def test_model_override_is_recorded_as_given(capsys) -> None:
     cli.main(["quantify", str(path), "--model", "quadratic", "--json"])
     entry = json.loads(capsys.readouterr().out)["analytes"][0]
     assert entry["model"] == "quadratic" and entry["model_overridden"] is True
+    # the run's own reason belonged to its own choice, not to this one
+    assert entry["model_chosen_by"] == "command line" and entry["choice_reason"] == "given on the command line"
+    cli.main(["quantify", str(path), "--json"])
+    entry = json.loads(capsys.readouterr().out)["analytes"][0]
+    run_analyte = open_run(path).run.analytes[0]
+    assert entry["model_chosen_by"] == "run document"
+    assert entry["choice_reason"] == run_analyte.choice_reason and entry["choice_reasons"] == [run_analyte.choice_reason]
 
 
 def test_failed_acceptance_exits_1(tmp_path, capsys) -> None:

@@ -3,8 +3,16 @@
 Exit codes (also in ``curvewright --help``):
   0  completed; every run accepted (for ``check``: valid and the audit trail verifies)
   1  completed, but a run failed its acceptance profile (``check``: the audit trail does not verify)
-  2  input error: a file or an option could not be used (the message names the row and field)
+  2  input error: a file or an option could not be used (the message names the row and field);
+     with ``--standards``/``--samples`` also when a sample reading could not be read: the other
+     samples are still quantified and reported, the unreadable cells are listed on stderr, and
+     ``--allow-unreadable`` accepts them once checked (the exit code then follows the verdict)
   3  internal error: a fault in Curvewright itself; please report it
+
+With tables and no ``--model``/``--weighting``, each analyte gets the model the comparison
+recommends (:func:`curvewright.core.comparison.compare`, with the run's profile and level tolerance,
+on the standards in the fit); the choice is recorded as recommended, with the reasons. Given both
+options, the choice is recorded as given on the command line.
 """
 
 from __future__ import annotations
@@ -13,12 +21,13 @@ import argparse
 import glob
 import json
 import os
+import shlex
 import sys
 import traceback
 from concurrent.futures import ProcessPoolExecutor
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 from pathlib import Path
-from typing import Any, Sequence
+from typing import Any, Mapping, Sequence
 
 from . import CAUTION, __version__
 
@@ -31,14 +40,26 @@ examples:
   curvewright quantify run.json --model quadratic --weighting 1/x --json
   curvewright quantify --standards standards.csv --samples samples.csv --analyte lead \\
       --concentration-unit "µg/L" --export results.csv
+  curvewright quantify --standards std.csv --samples smp.csv --analyte lead \\
+      --map "response=Peak height" --decimal-mark , --thousands space
   curvewright quantify "incoming/*.json" --export out/ --report out/ --jobs 2
   curvewright compare run.json
+  curvewright compare --standards standards.csv --analyte lead
   curvewright check run.json
+
+tables (--standards, --samples):
+  columns are found by their header (see README, "Table layout"); --map FIELD=HEADER names one
+  (HEADER a header text or a column number; standards.FIELD or samples.FIELD for one table only).
+  The decimal mark is decided from the whole table; --decimal-mark answers when it cannot be.
+  Without --model and --weighting the recommended model is used and recorded as recommended.
+  An empty sample response, or one that is not a number, is reported for that sample only.
 
 exit codes:
   0  completed; every run accepted (check: valid, audit trail verified)
   1  completed, but a run failed its acceptance profile (check: audit trail not verified)
-  2  input error (the message names the file, row and field)
+  2  input error (the message names the file, row and field); with tables also when sample
+     readings could not be read: the rest is still quantified and reported, the cells are listed,
+     and --allow-unreadable accepts them
   3  internal error in Curvewright
 
 {CAUTION}
@@ -61,14 +82,16 @@ def build_parser() -> argparse.ArgumentParser:
     q.add_argument("runs", nargs="*", metavar="RUN", help="run documents, folders of them, or glob patterns")
     q.add_argument("--standards", metavar="FILE", help="standards table (CSV or XLSX) instead of a run document")
     q.add_argument("--samples", metavar="FILE", help="samples table (CSV or XLSX), with --standards")
-    q.add_argument("--sheet", help="sheet of an XLSX table (default: the first)")
     q.add_argument("--analyte", action="append", metavar="NAME",
                    help="analyte to process (repeatable; default all); with --standards, the analyte's name")
-    q.add_argument("--concentration-unit", default=None, help="with --standards: unit of concentration")
-    q.add_argument("--response-unit", default=None, help="with --standards: unit of response")
-    q.add_argument("--decimal-mark", choices=(".", ","), help="decimal mark of the tables (default: detected)")
-    q.add_argument("--model", choices=("linear", "quadratic", "proportional"), help="override the run's model")
-    q.add_argument("--weighting", choices=("none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2"), help="override the weighting")
+    _table_options(q)
+    q.add_argument("--allow-unreadable", action="store_true",
+                   help="with --samples: accept sample readings that could not be read (still listed); "
+                        "otherwise the exit code is 2")
+    q.add_argument("--model", choices=("linear", "quadratic", "proportional"),
+                   help="override the run's model (with tables: give --weighting too)")
+    q.add_argument("--weighting", choices=("none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2"),
+                   help="override the weighting (with tables: give --model too)")
     q.add_argument("--profile", help="acceptance profile id or file (default: the run's)")
     q.add_argument("--level", type=float, help="confidence level of the intervals, e.g. 0.95 (default: the run's)")
     q.add_argument("--export", metavar="PATH", help="results workbook (.xlsx) or samples table (.csv); a folder for many runs")
@@ -80,9 +103,13 @@ def build_parser() -> argparse.ArgumentParser:
     q.add_argument("--json", action="store_true", help="print the results as JSON for scripts")
     q.add_argument("--jobs", type=int, default=1, help="processes for many runs (default 1)")
 
-    c = sub.add_parser("compare", help="the model-evidence table for each analyte")
-    c.add_argument("runs", nargs="+", metavar="RUN")
-    c.add_argument("--analyte", action="append", metavar="NAME")
+    c = sub.add_parser("compare", help="the model-evidence table for each analyte",
+                       epilog=EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
+    c.add_argument("runs", nargs="*", metavar="RUN", help="run documents, folders of them, or glob patterns")
+    c.add_argument("--standards", metavar="FILE", help="a standards table (CSV or XLSX) instead of run documents")
+    c.add_argument("--analyte", action="append", metavar="NAME",
+                   help="analyte to show (repeatable); with --standards, the analyte's name")
+    _table_options(c)
     c.add_argument("--json", action="store_true")
 
     k = sub.add_parser("check", help="validate run documents and their audit trails")
@@ -90,8 +117,44 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+def _table_options(parser: argparse.ArgumentParser) -> None:
+    """How tables are read: shared by ``quantify`` and ``compare``."""
+    parser.add_argument("--sheet", help="sheet of an XLSX table (default: the first)")
+    parser.add_argument("--map", action="append", metavar="FIELD=HEADER", default=[],
+                        help="take FIELD from the column with this header text or 1-based number "
+                             "(repeatable; standards.FIELD or samples.FIELD for one table only), "
+                             "e.g. --map \"response=Peak height\"")
+    parser.add_argument("--decimal-mark", choices=(".", ","), metavar="MARK",
+                        help="decimal mark of the tables, . or , (default: decided from the values)")
+    parser.add_argument("--thousands", choices=(",", ".", "space", "'"), metavar="SEP",
+                        help="thousands separator of the tables: , or . or space or ' "
+                             "(default: values with one are refused)")
+    parser.add_argument("--concentration-unit", default=None, metavar="UNIT",
+                        help="with --standards: unit of concentration (default: from the header, e.g. 'Concentration (µg/L)')")
+    parser.add_argument("--response-unit", default=None, metavar="UNIT",
+                        help="with --standards: unit of response (default: from the header)")
+
+
 class InputError(Exception):
     """An option or file the user gave cannot be used (exit 2)."""
+
+
+TABLE_SUFFIXES = (".csv", ".txt", ".tsv", ".xlsx", ".xlsm")
+UNNAMED_ANALYTE = "unnamed analyte"
+"""The analyte's name when tables have no analyte column and --analyte is not given."""
+GIVEN = "given on the command line"
+
+
+@dataclass(frozen=True)
+class ModelChoice:
+    """How an analyte's model and weighting were chosen for this calculation, and why.
+
+    ``by`` is "recommended", "command line", "run document" or "not chosen"; ``reasons`` the
+    recommendation's reasons, or the reason recorded with the choice.
+    """
+
+    by: str
+    reasons: tuple[str, ...] = ()
 
 
 COMMANDS = ("quantify", "compare", "check")
@@ -166,6 +229,8 @@ class Outcome:
     text: str
     data: dict[str, Any] | None
     error: str = ""
+    warnings: tuple[str, ...] = ()
+    """Printed on stderr whatever the output format."""
 
 
 def cmd_quantify(args: argparse.Namespace) -> int:
@@ -182,6 +247,7 @@ def cmd_quantify(args: argparse.Namespace) -> int:
             raise InputError("--samples goes with --standards.")
         if not args.runs:
             raise InputError("give a run document (or --standards and --samples); see curvewright quantify --help.")
+        _refuse_tables("quantify", args.runs)
         paths = expand_runs(args.runs)
         many = len(paths) > 1
         for option in ("export", "report"):
@@ -203,6 +269,10 @@ def _finish(outcomes: list[Outcome], as_json: bool) -> int:
             if o.error:
                 print(f"curvewright: {o.error}", file=sys.stderr)
         print(CAUTION)
+    sys.stdout.flush()
+    for o in outcomes:
+        for w in o.warnings:
+            print(f"curvewright: {w}", file=sys.stderr)
     return max(o.code for o in outcomes)
 
 
@@ -248,30 +318,224 @@ def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
 
 
 def _quantify_tables(args: argparse.Namespace) -> Outcome:
-    from .io import run_edits
-    from .io.importing import analytes_from_import, import_samples, import_standards
-
+    """``quantify --standards … --samples …``: build a run from the tables, choose the model, quantify."""
     if not args.samples:
         raise InputError("--standards needs --samples (the table of samples to quantify).")
+    if bool(args.model) != bool(args.weighting):
+        raise InputError(
+            "with --standards, give --model and --weighting together (e.g. --model quadratic --weighting 1/x^2), "
+            "or neither to use the recommended model (curvewright compare --standards FILE shows the evidence)."
+        )
+    tables = _run_from_tables(args, with_samples=True)
+    run = tables.run
+    if args.model:
+        choices = {}
+        for a in run.analytes:
+            run = _record_choice(run, a.name, args.model, args.weighting, GIVEN)
+            choices[a.name] = ModelChoice("command line", (GIVEN,))
+    else:
+        run, choices = _choose_recommended(run)
+    options = _options(args)
+    options.update(analyte=None, record=False, model=None, weighting=None)  # the choice is in the run now
+    warnings = list(tables.warnings)
+    unreadable = [c for c in tables.unusable if c[1].text.strip()]
+    outcome = _quantify(run, options, source=None, notes=tables.notes, choices=choices,
+                        analyte_warnings=_table_analyte_warnings(run), unusable=tables.unusable)
+    code = outcome.code
+    if unreadable:
+        if args.allow_unreadable:
+            warnings.append(f"{len(unreadable)} sample reading(s) could not be read and were accepted (--allow-unreadable); "
+                            "those samples are reported without them.")
+        else:
+            code = max(code, EXIT_INPUT)
+            warnings.append(
+                f"{len(unreadable)} sample reading(s) could not be read (listed above). The other samples were "
+                "quantified, and these are reported without them. Correct the table, or give --allow-unreadable "
+                "once the cells have been checked; exit code 2 until then."
+            )
+    return replace(outcome, code=code, warnings=tuple(warnings))
+
+
+def _record_choice(run, analyte: str, model: str, weighting: str, reason: str,  # type: ignore[no-untyped-def]
+                   recommended: tuple[str, str] | None = None):
+    """Record the model choice for an analyte in the run and its audit trail."""
+    from .io import run_edits
+
+    return run_edits.choose_model(run, analyte, model, weighting, reason, recommended=recommended)
+
+
+@dataclass(frozen=True)
+class TableRun:
+    """A run built from tables, with what the import found."""
+
+    run: Any
+    notes: list[str]
+    warnings: list[str]
+    unusable: list[tuple[str, Any]] = field(default_factory=list)
+    """(file, RejectedCell) of each sample reading kept as typed."""
+
+
+def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRun:
+    """Read the standards (and samples) tables; stop with one grouped message if any cell cannot be used."""
+    from .io import run_edits
+    from .io.importing import analytes_from_import, grouped_cells, import_samples, import_standards
+
     if args.analyte and len(args.analyte) > 1:
         raise InputError("with --standards, give at most one --analyte (the analyte's name).")
-    name = args.analyte[0] if args.analyte else "analyte"
-    std = import_standards(_table(args.standards, args.sheet), decimal_mark=args.decimal_mark, analyte=name)
-    smp = import_samples(_table(args.samples, args.sheet), decimal_mark=args.decimal_mark, analyte=std.standards[0][0] if std.standards else name)
-    problems = [f"{r.source}: {c}" for r in (std, smp) for c in r.rejected]
+    name = args.analyte[0] if args.analyte else UNNAMED_ANALYTE
+    std_map, smp_map = parse_maps(args.map)
+    thousands = {"space": " "}.get(args.thousands, args.thousands)
+    reading = {"decimal_mark": args.decimal_mark, "thousands": thousands}
+    std = _import_table(import_standards, args.standards, args.sheet, std_map, analyte=name, **reading)
+    results = [std]
+    smp = None
+    if with_samples:
+        smp_name = std.standards[0][0] if std.standards else name
+        smp = _import_table(import_samples, args.samples, args.sheet, smp_map, analyte=smp_name, **reading)
+        results.append(smp)
+    problems: list[str] = []
+    for result in results:
+        if result.rejected:
+            problems.append(f"{result.source}: {len(result.rejected)} cell(s) cannot be used; "
+                            f"{len(result.rejected_rows)} row(s) not imported:")
+            problems += grouped_cells(result.rejected, cli_answer)
     if problems:
-        raise InputError("cells could not be read, so nothing was quantified:\n  " + "\n  ".join(problems))
+        raise InputError("the tables cannot be used as they stand, so nothing was quantified:\n" + "\n".join(problems))
     analytes = analytes_from_import(std, concentration_unit=args.concentration_unit, response_unit=args.response_unit)
-    analytes = tuple(replace(a, model=args.model or "linear", weighting=args.weighting or "none",
-                             choice_reason="given on the command line") for a in analytes)
-    run = run_edits.new_run(Path(args.standards).stem, analytes, description=f"built from {args.standards} and {args.samples}")
-    run = replace(run, samples=smp.samples)
-    for result, what in ((std, "standards"), (smp, "samples")):
+    description = f"built from {args.standards}" + (f" and {args.samples}" if with_samples else "")
+    run = run_edits.new_run(Path(args.standards).stem, analytes, description=description)
+    if smp is not None:
+        run = replace(run, samples=smp.samples)
+    for result, what in zip(results, ("standards", "samples")):
         run = run_edits.record(run, "imported", {"what": what, "source": result.source, "sha256": result.sha256})
-    options = _options(args)
-    options["analyte"] = None
-    options["record"] = False
-    return _quantify(run, options, source=None, notes=[])
+    run = _with_settings(run, getattr(args, "level", None), getattr(args, "profile", None))
+    notes = [f"{what}: {r.headline}" for r, what in zip(results, ("standards", "samples"))]
+    notes += [f"{what}: {r.source}: columns not used: {', '.join(repr(c) for c in r.unused_columns)}"
+              for r, what in zip(results, ("standards", "samples")) if r.unused_columns]
+    unusable = [(smp.source, c) for c in smp.unusable_readings] if smp is not None else []
+    warnings = [f"warning: {source}: {cell}" for source, cell in unusable]
+    return TableRun(run, notes, warnings, unusable)
+
+
+def _import_table(importer, path: str, sheet: str | None, mapping: dict[str, str | int], **options):  # type: ignore[no-untyped-def]
+    """One table through its importer, with the command line's words added to a missing-column message."""
+    from .io.importing import ColumnMappingProblem, MissingColumns
+
+    try:
+        return importer(_table(path, sheet), mapping=mapping, **options)
+    except MissingColumns as exc:
+        maps = " or ".join(f"--map {f}=HEADER" for f in exc.missing)
+        raise InputError(f"{exc} On the command line: {maps} (HEADER a header text or a column number).") from None
+    except ColumnMappingProblem as exc:
+        raise InputError(
+            f"{exc} (--map FIELD=HEADER applies to both tables; for one table only write "
+            "--map standards.FIELD=HEADER or --map samples.FIELD=HEADER.)"
+        ) from None
+
+
+def parse_maps(items: Sequence[str]) -> tuple[dict[str, str | int], dict[str, str | int]]:
+    """``--map`` options as (standards mapping, samples mapping); a header of digits is a column number."""
+    from .io.importing import SAMPLE_FIELDS, STANDARD_FIELDS
+
+    fields = {"standards": STANDARD_FIELDS, "samples": SAMPLE_FIELDS}
+    maps: dict[str, dict[str, str | int]] = {"standards": {}, "samples": {}}
+    listing = f"standards: {', '.join(STANDARD_FIELDS)}; samples: {', '.join(SAMPLE_FIELDS)}"
+    for item in items:
+        key, sep, header = item.partition("=")
+        header = header.strip()
+        if not sep or not header or not key.strip():
+            raise InputError(f"--map {item!r}: write FIELD=HEADER, e.g. --map \"response=Peak height\" "
+                             "(HEADER a header text or a 1-based column number).")
+        table, _, name = key.strip().rpartition(".")
+        name = name.strip().lower().replace(" ", "_").replace("-", "_")
+        if table not in ("", "standards", "samples"):
+            raise InputError(f"--map {item!r}: {table!r} is not 'standards' or 'samples'.")
+        targets = [t for t in ("standards", "samples") if table in ("", t) and name in fields[t]]
+        if not targets:
+            where = f"a field of the {table} table" if table else "a field of either table"
+            raise InputError(f"--map {item!r}: {name!r} is not {where} ({listing}).")
+        for t in targets:
+            maps[t][name] = int(header) if header.isdigit() else header
+    return maps["standards"], maps["samples"]
+
+
+def cli_answer(remedy) -> str:  # type: ignore[no-untyped-def]
+    """The command-line option that answers an import remedy."""
+    if remedy.option == "decimal_mark":
+        return f"give --decimal-mark {remedy.value}" if remedy.value else "give --decimal-mark . or --decimal-mark ,"
+    shown = {" ": "space", "'": '"\'"'}.get(remedy.value, remedy.value)
+    if shown is None:
+        return "remove the thousands separators, or give --thousands with the one the table uses"
+    return f"remove the separators, or give --thousands {shown}"
+
+
+def _choose_recommended(run):  # type: ignore[no-untyped-def]
+    """Each analyte gets the model and weighting the comparison recommends on its standards in the fit."""
+    from .core.comparison import compare
+    from .core.errors import CurvewrightError
+    from .core.run_analysis import analyse_run, response_value, run_profile
+
+    provisional = analyse_run(replace(run, samples=()))
+    profile = run_profile(run)
+    choices: dict[str, ModelChoice] = {}
+    for a in provisional.analytes:
+        analyte = a.analyte
+        x = [s.concentration for s in a.fitted_standards]
+        y = [response_value(s.response, s.internal_standard_response, analyte.uses_internal_standard)[0]
+             for s in a.fitted_standards]
+        try:
+            comparison = compare(x, y, profile=profile, level_tolerance=run.settings.level_tolerance)
+        except CurvewrightError as exc:
+            choices[analyte.name] = ModelChoice("not chosen", (f"no model comparison: {exc}",))
+            continue
+        rec = comparison.recommended
+        pick = (rec.model.value, rec.weighting.value)
+        reason = (f"recommended by the model comparison on the {len(x)} standards in the fit, acceptance profile "
+                  f"{profile.name!r}: " + "; ".join(comparison.reasons))
+        run = _record_choice(run, analyte.name, *pick, reason, recommended=pick)
+        choices[analyte.name] = ModelChoice("recommended", tuple(comparison.reasons))
+    return run, choices
+
+
+def _table_analyte_warnings(run) -> dict[str, list[str]]:  # type: ignore[no-untyped-def]
+    """What a table run lacks, per analyte: its name, its concentration unit."""
+    out: dict[str, list[str]] = {}
+    for a in run.analytes:
+        notes = []
+        if a.name == UNNAMED_ANALYTE:
+            notes.append("analyte name not given: give --analyte NAME (or an 'Analyte' column in the tables)")
+        if not a.concentration_unit.strip():
+            notes.append("concentration unit not given: give --concentration-unit UNIT, or write it in the "
+                         "header, e.g. 'Concentration (µg/L)'")
+        out[a.name] = notes
+    return out
+
+
+def _refuse_tables(command: str, paths: Sequence[str]) -> None:
+    """A table given where a run document is expected: say what the command takes and how to use tables."""
+    for given in paths:
+        if Path(given).suffix.lower() not in TABLE_SUFFIXES:
+            continue
+        quantify = f"curvewright quantify --standards {shlex.quote(given)} --samples SAMPLES.csv --analyte NAME"
+        takes = {"compare": "compare reads run documents (.json)",
+                 "check": "check validates run documents (.json) and their audit trails",
+                 "quantify": "quantify reads run documents (.json) unless the tables are named"}[command]
+        evidence = (f" For the model evidence of a standards table: curvewright compare --standards {shlex.quote(given)}."
+                    if command != "quantify" else "")
+        raise InputError(f"{given} is a table, not a run document: {takes}.{evidence} To quantify tables: {quantify}")
+
+
+def _with_settings(run, level: float | None, profile: str | None):  # type: ignore[no-untyped-def]
+    """The run with the confidence level and acceptance profile given on the command line."""
+    settings = run.settings
+    if level is not None:
+        settings = replace(settings, confidence_level=level)
+    if profile:
+        from .core.acceptance import load_profile
+
+        loaded = load_profile(profile)
+        settings = replace(settings, acceptance_profile=loaded.id, custom_profile=loaded.to_mapping())
+    return replace(run, settings=settings)
 
 
 def _table(path: str, sheet: str | None):  # type: ignore[no-untyped-def]
@@ -280,22 +544,24 @@ def _table(path: str, sheet: str | None):  # type: ignore[no-untyped-def]
     return table_from_xlsx(path, sheet) if path.lower().endswith((".xlsx", ".xlsm")) else table_from_csv(path)
 
 
-def _quantify(run, options: dict[str, Any], *, source: Path | None, notes: list[str]) -> Outcome:  # type: ignore[no-untyped-def]
+def _quantify(  # type: ignore[no-untyped-def]
+    run, options: dict[str, Any], *, source: Path | None, notes: list[str],
+    choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
+    unusable: Sequence[tuple[str, Any]] = (),
+) -> Outcome:
+    """Analyse, export and report one run. ``choices`` says how each analyte's model was chosen
+    (default: from the run document, or the command line when --model/--weighting override it)."""
     from .core.run_analysis import analyse_run
     from .io import run_edits
     from .io.run_document import save_run
 
-    settings = run.settings
-    if options["level"] is not None:
-        settings = replace(settings, confidence_level=options["level"])
-    if options["profile"]:
-        from .core.acceptance import load_profile
-
-        profile = load_profile(options["profile"])
-        settings = replace(settings, acceptance_profile=profile.id, custom_profile=profile.to_mapping())
-    run = replace(run, settings=settings)
+    run = _with_settings(run, options["level"], options["profile"])
     names = tuple(options["analyte"]) if options["analyte"] else None
     result = analyse_run(run, analytes=names, model=options["model"], weighting=options["weighting"])
+    chosen = {a.analyte.name: _document_choice(a) for a in result.analytes}
+    chosen.update(choices or {})
+    per_analyte = {a.analyte.name: _document_warnings(a) if analyte_warnings is None
+                   else list(analyte_warnings.get(a.analyte.name, [])) for a in result.analytes}
     written: list[tuple[str, str, str]] = []
     stem = source.stem if source else run.name.replace("/", "_")
     if options["export"]:
@@ -314,8 +580,22 @@ def _quantify(run, options: dict[str, Any], *, source: Path | None, notes: list[
             run = run_edits.record(run, action, {"path": path, "sha256": sha})
         save_run(run, source)
     code = EXIT_ACCEPTED if result.accepted else EXIT_REJECTED
-    data = result_json(result, source, written) if options["json"] else None
-    return Outcome(code, "" if options["json"] else summary_text(result, source, notes, written), data)
+    if options["json"]:
+        data = result_json(result, source, written, choices=chosen, analyte_warnings=per_analyte, notes=notes,
+                           unusable=unusable)
+        return Outcome(code, "", data)
+    return Outcome(code, summary_text(result, source, notes, written, choices=chosen, analyte_warnings=per_analyte), None)
+
+
+def _document_choice(a) -> ModelChoice:  # type: ignore[no-untyped-def]
+    """How a run document's analyte got its model: the run's own recorded choice, or the command line."""
+    if a.model_overridden:
+        return ModelChoice("command line", (GIVEN,))
+    return ModelChoice("run document", (a.analyte.choice_reason,) if a.analyte.choice_reason else ())
+
+
+def _document_warnings(a) -> list[str]:  # type: ignore[no-untyped-def]
+    return [] if a.analyte.concentration_unit.strip() else ["concentration unit not given in the run document"]
 
 
 def _target(given: str, stem: str, suffix: str) -> Path:
@@ -340,7 +620,11 @@ def _export(result, target: Path, options: dict[str, Any]) -> str:  # type: igno
 
 
 # --- text and JSON ----------------------------------------------------------------------------------
-def summary_text(result, source: Path | None, notes: list[str], written: list[tuple[str, str, str]]) -> str:  # type: ignore[no-untyped-def]
+def summary_text(  # type: ignore[no-untyped-def]
+    result, source: Path | None, notes: list[str], written: list[tuple[str, str, str]], *,
+    choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
+) -> str:
+    """The results as text. A missing unit is said once per analyte and never printed empty."""
     from .io.result_tables import display_number
 
     run = result.run
@@ -348,15 +632,26 @@ def summary_text(result, source: Path | None, notes: list[str], written: list[tu
              f"Profile: {result.profile.name}; verdict: {'ACCEPTED' if result.accepted else 'NOT ACCEPTED'}"]
     lines += notes
     for a in result.analytes:
-        unit = a.analyte.concentration_unit
+        unit = a.analyte.concentration_unit.strip()
+        in_unit = f" {unit}" if unit else ""
         lines.append("")
-        lines.append(f"{a.analyte.name} ({unit})")
+        lines.append(a.analyte.name + (f" ({unit})" if unit else ""))
+        lines += [f"  note: {w}" for w in (analyte_warnings or {}).get(a.analyte.name, [])]
         if a.calibration is None:
             lines.append(f"  not fitted: {a.error}")
             continue
         cal = a.calibration
-        given = " (given on the command line)" if a.model_overridden else ""
-        lines.append(f"  model: {cal.model.description}, {cal.weighting.description}{given}")
+        choice = (choices or {}).get(a.analyte.name) or _document_choice(a)
+        described = f"  model: {cal.model.description}, {cal.weighting.description}"
+        if choice.by == "recommended":
+            lines.append(f"{described} — recommended by the model comparison:")
+            lines += [f"    • {r}" for r in choice.reasons]
+        elif choice.by == "command line":
+            lines.append(f"{described} ({GIVEN})")
+        elif choice.by == "not chosen":
+            lines.append(f"{described} — not chosen ({'; '.join(choice.reasons)})")
+        else:
+            lines.append(described)
         lines.append(f"  {cal.equation(10)}")
         lof = cal.lack_of_fit
         lof_text = (f"lack-of-fit F = {lof.f_statistic:.4g}, p = {lof.p_value:.3g}" if lof.available
@@ -364,7 +659,8 @@ def summary_text(result, source: Path | None, notes: list[str], written: list[tu
         lines.append(f"  residual SD {cal.residual_sd:.6g}; adjusted R² {cal.adjusted_r_squared:.6f}; {lof_text}")
         if a.limits:
             loq = f"{a.limits.loq:.4g}" if a.limits.loq is not None else "not defined"
-            lines.append(f"  LOD {a.limits.lod:.4g} {unit}, LOQ {loq} {unit} ({a.limits.description})")
+            loq_unit = in_unit if a.limits.loq is not None else ""
+            lines.append(f"  LOD {a.limits.lod:.4g}{in_unit}, LOQ {loq}{loq_unit} ({a.limits.description})")
         flagged = [f"{s.id} ({', '.join(f.value for f in cal.influence_flags[i])})"
                    for i, s in enumerate(a.fitted_standards) if cal.influence_flags[i]]
         if flagged:
@@ -401,7 +697,15 @@ def _plain(value: Any) -> Any:
     return value
 
 
-def result_json(result, source: Path | None, written: list[tuple[str, str, str]]) -> dict[str, Any]:  # type: ignore[no-untyped-def]
+def result_json(  # type: ignore[no-untyped-def]
+    result, source: Path | None, written: list[tuple[str, str, str]], *,
+    choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
+    notes: Sequence[str] = (), unusable: Sequence[tuple[str, Any]] = (),
+) -> dict[str, Any]:
+    """The results for scripts. Per analyte, ``model_chosen_by`` ("recommended", "command line",
+    "run document" or "not chosen") and ``choice_reasons`` say how the model was chosen, and
+    ``warnings`` what is missing (a unit, a name); ``unusable_readings`` lists the sample cells of
+    a table kept as typed."""
     from .io.audit import verify_chain
 
     run = result.run
@@ -410,17 +714,24 @@ def result_json(result, source: Path | None, written: list[tuple[str, str, str]]
         "accepted": result.accepted, "reasons": list(result.reasons), "profile": result.profile.name,
         "confidence_level": run.settings.confidence_level, "interval": run.settings.interval,
         "audit_chain_verified": not verify_chain(run.audit), "caution": CAUTION,
-        "files_written": [{"kind": a, "path": p, "sha256": s} for a, p, s in written], "analytes": [],
+        "files_written": [{"kind": a, "path": p, "sha256": s} for a, p, s in written],
+        "notes": list(notes),
+        "unusable_readings": [{"file": f, "row": c.row, "column": c.column, "text": c.text, "reason": c.reason}
+                              for f, c in unusable],
+        "analytes": [],
     }
     for a in result.analytes:
+        choice = (choices or {}).get(a.analyte.name) or _document_choice(a)
         entry: dict[str, Any] = {"name": a.analyte.name, "concentration_unit": a.analyte.concentration_unit,
-                                 "response_unit": a.analyte.response_unit, "error": a.error, "accepted": a.accepted}
+                                 "response_unit": a.analyte.response_unit, "error": a.error, "accepted": a.accepted,
+                                 "warnings": list((analyte_warnings or {}).get(a.analyte.name, [])),
+                                 "model_chosen_by": choice.by, "choice_reasons": list(choice.reasons)}
         cal = a.calibration
         if cal is not None:
             lof = cal.lack_of_fit
             entry.update({
                 "model": cal.model.value, "weighting": cal.weighting.value, "model_overridden": a.model_overridden,
-                "choice_reason": a.analyte.choice_reason, "equation": cal.equation(17),
+                "choice_reason": GIVEN if a.model_overridden else a.analyte.choice_reason, "equation": cal.equation(17),
                 "coefficients": cal.coefficients, "standard_errors": cal.standard_errors, "covariance": cal.covariance,
                 "residual_sd": cal.residual_sd, "df_residual": cal.df_residual, "r_squared": cal.r_squared,
                 "adjusted_r_squared": cal.adjusted_r_squared, "calibrated_range": list(cal.calibrated_range),
@@ -476,42 +787,74 @@ class _Progress:
 
 # --- compare and check ------------------------------------------------------------------------------
 def cmd_compare(args: argparse.Namespace) -> int:
+    """The model-evidence table of each analyte of run documents, or of a standards table."""
     from .core.run_analysis import analyse_run
-    from .io.report import evidence_table
     from .io.run_document import open_run
 
     code = EXIT_ACCEPTED
-    payload = []
-    for path in expand_runs(args.runs):
-        try:
-            run = open_run(path).run
-            result = analyse_run(run, analytes=tuple(args.analyte) if args.analyte else None)
-        except Exception as exc:  # noqa: BLE001
-            from .core.errors import CurvewrightError
+    payload: list[dict[str, Any]] = []
+    if args.standards:
+        if args.runs:
+            raise InputError("give either run documents or --standards, not both.")
+        tables = _run_from_tables(args, with_samples=False)
+        run, choices = _choose_recommended(tables.run)
+        if not args.json:
+            for note in tables.notes:
+                print(note)
+        _print_evidence(run, analyse_run(run), args.json, payload, choices)
+    else:
+        if not args.runs:
+            raise InputError("give a run document, or a standards table with --standards FILE; see curvewright compare --help.")
+        _refuse_tables("compare", args.runs)
+        for path in expand_runs(args.runs):
+            try:
+                run = open_run(path).run
+                result = analyse_run(run, analytes=tuple(args.analyte) if args.analyte else None)
+            except Exception as exc:  # noqa: BLE001
+                from .core.errors import CurvewrightError
 
-            if not isinstance(exc, (CurvewrightError, OSError)):
-                raise
-            print(f"curvewright: {path}: {exc}", file=sys.stderr)
-            code = EXIT_INPUT
-            continue
-        for a in result.analytes:
-            table, reasons = evidence_table(a)
-            if args.json:
-                payload.append({"run": run.name, "analyte": a.analyte.name,
-                                "columns": [c.heading for c in table.columns], "rows": _plain(list(table.rows)),
-                                "reasons": list(reasons)})
+                if not isinstance(exc, (CurvewrightError, OSError)):
+                    raise
+                print(f"curvewright: {path}: {exc}", file=sys.stderr)
+                code = EXIT_INPUT
                 continue
-            print(f"{run.name} — {a.analyte.name}")
-            print(_text_table(table))
-            print(f"chosen: {a.analyte.model}, {a.analyte.weighting} — {a.analyte.choice_reason or '(no reason recorded)'}")
-            for r in reasons:
-                print(f"  • {r}")
-            print()
+            _print_evidence(run, result, args.json, payload, None)
     if args.json:
         print(json.dumps(payload, indent=1, ensure_ascii=False, allow_nan=False))
     else:
         print(CAUTION)
     return code
+
+
+def _print_evidence(run, result, as_json: bool, payload: list[dict[str, Any]],  # type: ignore[no-untyped-def]
+                    choices: Mapping[str, ModelChoice] | None) -> None:
+    """Print (or add to ``payload``) the evidence table of each analyte; ``choices`` for a table's recommendation."""
+    from .io.report import evidence_table
+
+    for a in result.analytes:
+        table, reasons = evidence_table(a)
+        choice = (choices or {}).get(a.analyte.name)
+        if choice is not None:  # a table holds no choice of its own: show the evidence and the recommendation
+            table = table.select(tuple(c.name for c in table.columns if c.name != "Chosen"))
+        if as_json:
+            entry = {"run": run.name, "analyte": a.analyte.name, "columns": [c.heading for c in table.columns],
+                     "rows": _plain(list(table.rows)), "reasons": list(reasons)}
+            if choice is not None:
+                entry["recommended"] = [a.analyte.model, a.analyte.weighting] if choice.by == "recommended" else None
+            payload.append(entry)
+            continue
+        print(f"{run.name} — {a.analyte.name}")
+        print(_text_table(table))
+        if choice is None:
+            print(f"chosen: {a.analyte.model}, {a.analyte.weighting} — {a.analyte.choice_reason or '(no reason recorded)'}")
+        elif choice.by == "recommended":
+            print(f"recommended: {a.analyte.model}, {a.analyte.weighting} (what quantify --standards uses unless "
+                  "--model and --weighting are given)")
+        else:
+            print(f"no recommendation: {'; '.join(choice.reasons)}")
+        for r in reasons:
+            print(f"  • {r}")
+        print()
 
 
 def _text_table(table) -> str:  # type: ignore[no-untyped-def]
@@ -530,6 +873,7 @@ def cmd_check(args: argparse.Namespace) -> int:
     from .io.run_document import open_run
 
     code = EXIT_ACCEPTED
+    _refuse_tables("check", args.runs)
     for path in expand_runs(args.runs):
         try:
             opened = open_run(path)

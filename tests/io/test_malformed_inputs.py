@@ -19,7 +19,7 @@ HEADER = "Concentration\tResponse\n"
 REJECTED_CELLS = [
     ("Concentration\tResponse\n1\tabc\n2\t2.0\n", {}, "row 2, column 2 (Response): 'abc' — is not a number"),
     ("Concentration\tResponse\nx1\t1.0\n2\t2.0\n", {}, "row 2, column 1 (Concentration): 'x1' — is not a number"),
-    ("Concentration\tResponse\n1\t1,5\n2\t2.5\n", {}, "values with '.', 1 with ','"),
+    ("Concentration\tResponse\n1\t1,5\n2\t2.5\n", {}, "1 value with '.', 1 with ','"),
     ("Concentration\tResponse\n1\t1,000\n2\t2\n", {}, "'1,000' — is ambiguous"),
     ("Concentration\tResponse\n1\t1,234.5\n2\t2.5\n", {}, "has thousands separators"),
     ("Concentration\tResponse\n1\t1.2.3\n2\t2.5\n", {}, "mixes decimal marks"),

@@ -1,7 +1,8 @@
 """Judging a whole run: fit each analyte as chosen, quantify every sample, apply the profile.
 
-For each analyte the calibration uses the included standards with a numeric response (and, for
-internal-standard calibration, the ratio response/IS response). Each sample's replicate responses
+For each analyte the calibration uses the included standards with a nominal concentration of zero
+or more and a numeric response (and, for internal-standard calibration, the ratio response/IS
+response); any other included standard is reported as not usable, with the reason. Each sample's replicate responses
 are averaged (m = number of numeric replicates) and read through the curve; the dilution factor
 multiplies the estimate and both interval ends to give the reported concentration. A censored
 replicate ("ND", "<0.5") gives no numeric result: the sample is reported with its censored text.
@@ -176,6 +177,9 @@ def _analyse_analyte(
         if not s.has_concentration:
             text = s.concentration_text.strip()
             unusable.append(UnusableStandard(s.id, f"concentration {text!r} is not a number" if text else "no concentration entered"))
+            continue
+        if s.concentration < 0:
+            unusable.append(UnusableStandard(s.id, f"concentration {s.concentration:g} is below zero"))
             continue
         value, reason = response_value(s.response, s.internal_standard_response, analyte.uses_internal_standard)
         if value is None:

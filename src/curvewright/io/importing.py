@@ -5,6 +5,15 @@ or a 1-based column number). Units in brackets are read from the header ("Concen
 Every rejected cell is reported with its row, column, the text found and the reason; a row that
 cannot be imported is listed, never dropped silently. The result lists what was imported and what
 was not.
+
+The decimal mark is decided from the table's numeric columns as a whole
+(:func:`.number_text.decimal_evidence`). A cell refused because the table's decimal mark or
+thousands separator is not known carries a :class:`Remedy` naming the import option that answers
+it, so that a front end can say once what the table shows and which of its controls to set
+(:func:`grouped_cells`). A standard's nominal concentration below zero is refused. In the samples
+table an empty response, or text that is neither a number nor a censored value, does not stop the
+import: the reading is kept as typed, the sample is reported without it, and the cell is listed in
+``ImportResult.unusable_readings``.
 """
 
 from __future__ import annotations
@@ -12,15 +21,29 @@ from __future__ import annotations
 import re
 import unicodedata
 from dataclasses import dataclass, field
-from typing import Mapping
+from typing import Callable, Iterable, Mapping
 
 from ..core.run import Analyte, Measurement, Reading, Sample, SampleKind, Standard
 from .errors import ImportProblem
-from .number_text import ambiguous_problem, detect_decimal_mark, parse_number, parse_reading
+from .number_text import (
+    DecimalEvidence,
+    ambiguous_problem,
+    clean,
+    decimal_evidence,
+    parse_number,
+    parse_reading,
+    thousands_separator_in,
+)
 from .tables import Cell, RawTable
 
 STANDARD_FIELDS = ("id", "analyte", "level", "concentration", "response", "replicate", "is_response")
 SAMPLE_FIELDS = ("id", "analyte", "kind", "run_order", "dilution", "nominal", "response", "replicate", "is_response")
+STANDARD_REQUIRED = ("concentration", "response")
+SAMPLE_REQUIRED = ("id", "response")
+TEXT_FIELDS = ("id", "analyte", "kind", "level")
+"""Columns of words, not numbers: they are no evidence of the table's decimal mark."""
+GROUP_LIMIT = 10
+"""Cells listed under one grouped finding before "… and N more"."""
 
 SYNONYMS = {
     "id": ("id", "sample id", "sample", "sample name", "name", "standard", "standard id", "std id"),
@@ -46,14 +69,85 @@ KIND_WORDS = {
 
 
 @dataclass(frozen=True)
+class Remedy:
+    """The import option that answers a cell's problem, and what the table shows.
+
+    ``option`` is "decimal_mark" or "thousands"; ``value`` the setting the table points to ("." or
+    ","; for thousands also " " or "'"), None when only the analyst can say; ``finding`` what the
+    table as a whole shows, the same words for every cell the option would answer.
+    """
+
+    option: str
+    value: str | None
+    finding: str
+
+
+@dataclass(frozen=True)
 class RejectedCell:
     row: int
     column: str
     text: str
     reason: str
+    remedy: Remedy | None = None
 
     def __str__(self) -> str:
         return f"row {self.row}, column {self.column}: {self.text!r} — {self.reason}"
+
+
+class ColumnMappingProblem(ImportProblem):
+    """A column named by the caller (header text or number) is not in the table, or fits more than one."""
+
+
+class MissingColumns(ImportProblem):
+    """No column of the header row could be taken for a required field.
+
+    ``missing`` lists the fields, ``headers`` the header row as found and ``accepted`` the header
+    names recognised for each missing field.
+    """
+
+    def __init__(self, source: str, header_row: int, headers: list[str], missing: list[str]) -> None:
+        self.source, self.header_row = source, header_row
+        self.headers, self.missing = tuple(headers), tuple(missing)
+        self.accepted = {f: SYNONYMS[f] for f in missing}
+        accepted = "; ".join(f"{f}: {', '.join(repr(h) for h in SYNONYMS[f])}" for f in missing)
+        found = ", ".join(repr(h) for h in headers) or "no header text"
+        super().__init__(
+            f"{source}: no column for {', '.join(missing)} in the header row (row {header_row}: {found}). "
+            f"Headers accepted (upper or lower case; a unit may follow in brackets, e.g. 'Concentration (µg/L)') — "
+            f"{accepted}. Rename the column in the table, or map it to the field."
+        )
+
+
+def grouped_cells(
+    cells: Iterable[RejectedCell], answer: Callable[[Remedy], str], *, limit: int = GROUP_LIMIT, indent: str = "  "
+) -> list[str]:
+    """Lines reporting ``cells``: for each remedy, once what the table shows and ``answer(remedy)``
+    (the control of the front end that sets the option), then its cells; then the other cells.
+    Each list stops after ``limit`` cells with "… and N more"."""
+    groups: dict[Remedy | None, list[RejectedCell]] = {}
+    for cell in cells:
+        groups.setdefault(cell.remedy, []).append(cell)
+    lines: list[str] = []
+    for remedy in sorted(groups, key=lambda r: r is None):
+        members = groups[remedy]
+        if remedy is not None:
+            lines.append(f"{indent}{remedy.finding} → {answer(remedy)}")
+            pad = indent * 2
+        else:
+            pad = indent
+        lines += [f"{pad}{c}" for c in members[:limit]]
+        if len(members) > limit:
+            lines.append(f"{pad}… and {len(members) - limit} more")
+    return lines
+
+
+def dialog_answer(remedy: Remedy) -> str:
+    """How the import dialog answers a remedy (its "Decimal mark" and "Thousands separator" choices)."""
+    if remedy.option == "decimal_mark":
+        return (f'choose {remedy.value!r} under "Decimal mark"' if remedy.value
+                else 'choose the table\'s mark under "Decimal mark"')
+    shown = "space" if remedy.value == " " else repr(remedy.value) if remedy.value else "the separator"
+    return f'remove the separators, or choose {shown} under "Thousands separator"'
 
 
 @dataclass(frozen=True)
@@ -62,7 +156,9 @@ class ImportResult:
 
     ``standards`` is a tuple of (analyte name, Standard); ``samples`` a tuple of Sample.
     ``rejected`` lists each unusable cell; ``rejected_rows`` the rows not imported because of them;
-    ``empty_rows`` the blank rows passed over.
+    ``empty_rows`` the blank rows passed over. ``unusable_readings`` lists the sample readings kept
+    as typed (empty, or text that is not a number) whose samples are reported without them;
+    ``unused_columns`` the headers of the columns no field was taken from.
     """
 
     source: str
@@ -78,19 +174,28 @@ class ImportResult:
     rejected_rows: tuple[int, ...] = ()
     empty_rows: tuple[int, ...] = ()
     warnings: tuple[str, ...] = field(default=())
+    unusable_readings: tuple[RejectedCell, ...] = ()
+    unused_columns: tuple[str, ...] = ()
 
     @property
     def complete(self) -> bool:
         return not self.rejected
 
-    def summary(self) -> str:
+    @property
+    def headline(self) -> str:
+        """What was imported and how the text was read, in one line."""
         what = f"{len(self.standards)} standards" if self.standards or not self.samples else f"{len(self.samples)} samples"
-        lines = [
-            f"{self.source}: imported {what}; columns separated by {self.delimiter}; {self.decimal_note}",
-        ]
+        return f"{self.source}: imported {what}; columns separated by {self.delimiter}; {self.decimal_note}"
+
+    def summary(self, answer: Callable[[Remedy], str] = dialog_answer) -> str:
+        """The headline, then every cell not used, grouped by the option that answers it."""
+        lines = [self.headline]
         if self.rejected_rows:
             lines.append(f"{len(self.rejected_rows)} row(s) not imported: {', '.join(map(str, self.rejected_rows))}")
-        lines += [f"  {r}" for r in self.rejected]
+        lines += grouped_cells(self.rejected, answer)
+        if self.unusable_readings:
+            lines.append(f"{len(self.unusable_readings)} reading(s) kept as typed; their samples are reported without them:")
+            lines += grouped_cells(self.unusable_readings, answer)
         if self.empty_rows:
             lines.append(f"empty rows passed over: {', '.join(map(str, self.empty_rows))}")
         lines += self.warnings
@@ -105,14 +210,21 @@ def import_standards(
     thousands: str | None = None,
     analyte: str = "analyte",
 ) -> ImportResult:
-    """Standards from a table with a header row: one row per standard injection."""
-    ctx = _Context(table, STANDARD_FIELDS, mapping, decimal_mark, thousands, required=("concentration", "response"))
+    """Standards from a table with a header row: one row per standard injection.
+
+    Every problem refuses its row, with the cell, the text and the reason. A nominal concentration
+    below zero is refused.
+    """
+    ctx = _Context(table, STANDARD_FIELDS, mapping, decimal_mark, thousands, required=STANDARD_REQUIRED)
     standards: list[tuple[str, Standard]] = []
     first_seen: dict[tuple[str, str], int] = {}
     replicate_count: dict[tuple[str, float], int] = {}
     for row_number, cells in ctx.body():
         name = ctx.text(cells, "analyte", row_number) or analyte
         conc = ctx.number(cells, "concentration", row_number, required=True)
+        if conc is not None and conc < 0:
+            ctx.reject(row_number, "concentration", ctx.raw(cells, "concentration"),
+                       "a nominal concentration cannot be below zero; correct it in the table", row_fails=True)
         response = ctx.reading(cells, "response", row_number, required=True)
         is_response = ctx.reading(cells, "is_response", row_number) if "is_response" in ctx.mapping else None
         replicate = ctx.whole(cells, "replicate", row_number)
@@ -145,9 +257,13 @@ def import_samples(
     """Samples from a table with a header row: one row per replicate response of one analyte.
 
     Rows with the same sample id are replicates (or other analytes) of one sample; the sample's
-    kind, run order, dilution factor and nominal value must agree across its rows.
+    kind, run order, dilution factor and nominal value must agree across its rows. An empty
+    response or internal-standard cell, or text in it that is neither a number nor a censored
+    value, is kept as typed and listed in ``unusable_readings``: the sample is reported without
+    that reading. A value refused for want of the table's decimal mark or thousands separator
+    still refuses its row (the answer is an import option, not a correction).
     """
-    ctx = _Context(table, SAMPLE_FIELDS, mapping, decimal_mark, thousands, required=("id", "response"))
+    ctx = _Context(table, SAMPLE_FIELDS, mapping, decimal_mark, thousands, required=SAMPLE_REQUIRED)
     order: list[str] = []
     info: dict[str, dict] = {}
     seen: dict[tuple[str, str, int], int] = {}
@@ -161,8 +277,8 @@ def import_samples(
         kind = KIND_WORDS.get(kind_text)
         if kind is None:
             ctx.reject(row_number, "kind", kind_text, "not a sample kind (unknown, QC, blank, check standard)", row_fails=True)
-        response = ctx.reading(cells, "response", row_number, required=True)
-        is_response = ctx.reading(cells, "is_response", row_number) if "is_response" in ctx.mapping else None
+        response = ctx.sample_reading(cells, "response", row_number, sid)
+        is_response = ctx.sample_reading(cells, "is_response", row_number, sid) if "is_response" in ctx.mapping else None
         dilution = ctx.number(cells, "dilution", row_number)
         if dilution is not None and dilution <= 0:
             ctx.reject(row_number, "dilution", ctx.raw(cells, "dilution"), "a dilution factor must be above zero", row_fails=True)
@@ -218,7 +334,7 @@ def _normalise(header: str) -> tuple[str, str]:
 
 
 class _Context:
-    """Shared machinery of the two importers: header mapping, cell parsing, rejections."""
+    """Shared machinery of the two importers: header mapping, the decimal mark, cell parsing, rejections."""
 
     def __init__(self, table, fields, mapping, decimal_mark, thousands, required) -> None:  # type: ignore[no-untyped-def]
         if decimal_mark not in (None, ".", ","):
@@ -227,8 +343,8 @@ class _Context:
             raise ImportProblem(f"thousands separator: {thousands!r} is not '.', ',', a space or an apostrophe.")
         self.table = table
         self.thousands = thousands
-        given_mark = decimal_mark
         self.rejected: list[RejectedCell] = []
+        self.unusable: list[RejectedCell] = []
         self.failed_rows: set[int] = set()
         self.empty_rows: list[int] = []
         self.warnings: list[str] = []
@@ -243,24 +359,25 @@ class _Context:
         self.mapping, self.units = self._map_columns(fields, mapping or {})
         missing = [f for f in required if f not in self.mapping]
         if missing:
-            raise ImportProblem(
-                f"{table.source}: no column for {', '.join(missing)} in the header row (row {header_row}: "
-                f"{', '.join(repr(h) for h in self.headers)}); name the columns to use."
-            )
+            raise MissingColumns(table.source, header_row, self.headers, missing)
         self.rows = rows[1:]
-        if decimal_mark is None and table.delimiter is not None:
-            tokens = [c for _, r in self.rows for c in r if isinstance(c, str)]
-            if table.delimiter == ",":
-                decimal_mark, self.decimal_note = ".", "decimal point (the columns are comma-separated)"
-                if any(_has_decimal_comma(t) for t in tokens):
-                    self.decimal_note += "; values with a decimal comma are refused"
-            else:
-                decimal_mark, self.decimal_note = detect_decimal_mark(tokens)
+        text_columns = {i for f, i in self.mapping.items() if f in TEXT_FIELDS}
+        tokens = [c for _, r in self.rows for i, c in enumerate(r) if isinstance(c, str) and i not in text_columns]
+        self.evidence: DecimalEvidence = decimal_evidence(tokens, table.delimiter)
+        self.given_mark = decimal_mark
+        if decimal_mark is not None:
+            self.decimal_note = f"decimal mark {decimal_mark!r} as given"
+        elif thousands in (",", "."):
+            decimal_mark = "." if thousands == "," else ","
+            self.decimal_note = f"decimal mark {decimal_mark!r} (the thousands separator is {thousands!r})"
+        elif table.delimiter is None:
+            decimal_mark, self.decimal_note = self.evidence.mark, "numbers read from workbook cells"
+            if self.evidence.point or self.evidence.comma or self.evidence.undecided:
+                self.decimal_note += f"; numbers stored as text: {self.evidence.note}"
         else:
-            self.decimal_note = f"decimal mark {decimal_mark!r} as given" if decimal_mark else "numbers read from workbook cells"
+            decimal_mark, self.decimal_note = self.evidence.mark, self.evidence.note
         self.decimal_mark = decimal_mark
-        self.decimal_confirmed = given_mark is not None or table.delimiter is None
-        self.decimal_conflict = decimal_mark is None and self.decimal_note.startswith("both decimal marks")
+        self.decimal_conflict = decimal_mark is None and self.evidence.conflict
 
     def _map_columns(self, fields, override):  # type: ignore[no-untyped-def]
         mapping: dict[str, int] = {}
@@ -268,16 +385,16 @@ class _Context:
         normal = [_normalise(h) for h in self.headers]
         for f, where in override.items():
             if f not in fields:
-                raise ImportProblem(f"column mapping: {f!r} is not one of {', '.join(fields)}.")
+                raise ColumnMappingProblem(f"{self.table.source}: column mapping: {f!r} is not one of {', '.join(fields)}.")
             if isinstance(where, int):
                 if not (1 <= where <= len(self.headers)):
-                    raise ImportProblem(f"column mapping: {f} → column {where}, but the table has {len(self.headers)} columns.")
+                    raise ColumnMappingProblem(
+                        f"{self.table.source}: column mapping: {f} → column {where}, but the table has "
+                        f"{len(self.headers)} columns."
+                    )
                 mapping[f] = where - 1
             else:
-                try:
-                    mapping[f] = self.headers.index(where)
-                except ValueError:
-                    raise ImportProblem(f"column mapping: {f} → {where!r}, but no header is {where!r}.") from None
+                mapping[f] = self._header_index(f, where, normal)
         taken = set(mapping.values())
         for f in fields:
             if f in mapping:
@@ -290,10 +407,28 @@ class _Context:
         for f, i in mapping.items():
             if normal[i][1]:
                 units[f] = normal[i][1]
-        unused = [self.headers[i] for i in range(len(self.headers)) if i not in taken and self.headers[i]]
-        if unused:
-            self.warnings.append(f"columns not used: {', '.join(repr(u) for u in unused)}")
+        self.unused = tuple(self.headers[i] for i in range(len(self.headers)) if i not in taken and self.headers[i])
+        if self.unused:
+            self.warnings.append(f"columns not used: {', '.join(repr(u) for u in self.unused)}")
         return mapping, units
+
+    def _header_index(self, f: str, where: str, normal: list[tuple[str, str]]) -> int:
+        """The column whose header is ``where``: as written, else in any case and without its unit."""
+        if where in self.headers:
+            return self.headers.index(where)
+        words = _normalise(where)[0]
+        matches = [i for i, (w, _) in enumerate(normal) if w == words or self.headers[i].casefold() == where.casefold()]
+        headers = ", ".join(repr(h) for h in self.headers)
+        if not matches:
+            raise ColumnMappingProblem(
+                f"{self.table.source}: column mapping: {f} → {where!r}, but no header is {where!r} (headers: {headers})."
+            )
+        if len(matches) > 1:
+            raise ColumnMappingProblem(
+                f"{self.table.source}: column mapping: {f} → {where!r} fits columns "
+                f"{', '.join(str(i + 1) for i in matches)}; give the column number instead."
+            )
+        return matches[0]
 
     def body(self):  # type: ignore[no-untyped-def]
         width = len(self.headers)
@@ -317,9 +452,11 @@ class _Context:
         value = cells[self.mapping[f]]
         return repr(value) if isinstance(value, float) else value
 
-    def reject(self, row: int, f: str, text: str, reason: str, *, row_fails: bool) -> None:
+    def reject(self, row: int, f: str, text: str, reason: str, *, row_fails: bool, remedy: Remedy | None = None) -> None:
+        if remedy is not None:
+            reason = reason.split("; ", 1)[0]  # the advice is given once, with the remedy
         column = self.column_name(f) if f in self.mapping else f
-        self.rejected.append(RejectedCell(row, column, text, reason))
+        self.rejected.append(RejectedCell(row, column, text, reason, remedy))
         if row_fails:
             self.failed_rows.add(row)
 
@@ -329,13 +466,49 @@ class _Context:
     def text(self, cells: tuple[Cell, ...], f: str, row: int) -> str:
         return self.raw(cells, f).strip() if f in self.mapping else ""
 
-    def mark_problem(self, value: str) -> str | None:
-        """Why a token cannot be read while the table's decimal mark is undecided."""
-        if self.decimal_conflict and ("," in value or "." in value):
-            return self.decimal_note
-        if not self.decimal_confirmed and self.thousands is None:
-            return ambiguous_problem(value)
+    def mark_problem(self, value: str) -> tuple[str, Remedy] | None:
+        """Why a token cannot be read while the table's decimal mark is undecided, and the option that answers."""
+        t = clean(value).lstrip("<>≤≥").strip()
+        if self.decimal_conflict and ("," in t or "." in t):
+            mark = "," if "," in t else "."
+            return (f"uses '{mark}' while the table uses both decimal marks",
+                    Remedy("decimal_mark", None, self.decimal_note))
+        if self.decimal_mark is None and self.thousands is None and (problem := ambiguous_problem(value)):
+            return problem, Remedy("decimal_mark", None, self.decimal_note)
         return None
+
+    def remedy_for(self, value: str, problem: str) -> Remedy | None:
+        """The option that answers a parse problem about marks or separators (None for other problems)."""
+        if problem.startswith("has thousands separators"):
+            separator = thousands_separator_in(value)
+            return Remedy("thousands", separator, _thousands_finding(separator))
+        if not problem.startswith("uses '"):
+            return None
+        other = problem[len("uses '")]
+        grouped = thousands_separator_in(value) == other or ambiguous_problem(value) is not None
+        if self.given_mark is not None:
+            if self.evidence.mark == other:
+                finding = f"the decimal mark {self.given_mark!r} was given, but the table's values show {self.evidence.note}"
+            elif grouped:
+                finding = (f"the decimal mark {self.given_mark!r} was given, but values use {other!r}; if {other!r} "
+                           "separates thousands in them instead, name it as the thousands separator")
+            else:
+                finding = f"the decimal mark {self.given_mark!r} was given, but values use {other!r}"
+            return Remedy("decimal_mark", other, finding)
+        if grouped:
+            return Remedy("thousands", other, _thousands_finding(other))
+        return Remedy("decimal_mark", None,
+                      f"values use {other!r} although the table's decimal mark is {self.decimal_mark!r} ({self.decimal_note})")
+
+    def parse(self, value: str) -> tuple[Reading | None, str | None, Remedy | None]:
+        """A text cell read as a reading, or (None, the reason, the option that answers it)."""
+        if question := self.mark_problem(value):
+            return None, question[0], question[1]
+        parsed = parse_reading(value, self.decimal_mark, self.thousands)
+        if parsed.problem:
+            problem = parsed.problem.split(": ", 1)[-1]
+            return None, problem, self.remedy_for(value, problem)
+        return parsed.reading, None, None
 
     def reading(self, cells: tuple[Cell, ...], f: str, row: int, required: bool = False) -> Reading | None:
         if f not in self.mapping:
@@ -344,18 +517,39 @@ class _Context:
         value = cells[i] if i < len(cells) else ""
         if isinstance(value, float):
             return Reading(value, repr(value))
-        if problem := self.mark_problem(value):
-            self.reject(row, f, value, problem, row_fails=True)
+        reading, problem, remedy = self.parse(value)
+        if problem:
+            self.reject(row, f, value, problem, row_fails=True, remedy=remedy)
             return None
-        parsed = parse_reading(value, self.decimal_mark, self.thousands)
-        if parsed.problem:
-            self.reject(row, f, value, parsed.problem.split(": ", 1)[-1], row_fails=True)
-            return None
-        assert parsed.reading is not None
-        if required and parsed.reading.is_missing:
+        assert reading is not None
+        if required and reading.is_missing:
             self.reject(row, f, value, "empty: a value is needed here", row_fails=True)
             return None
-        return parsed.reading
+        return reading
+
+    def sample_reading(self, cells: tuple[Cell, ...], f: str, row: int, sample_id: str) -> Reading | None:
+        """A sample's reading. Empty, or text that is not a number, is kept as typed and listed;
+        a value that needs the table's decimal mark or thousands separator refuses the row."""
+        if f not in self.mapping:
+            return None
+        i = self.mapping[f]
+        value = cells[i] if i < len(cells) else ""
+        if isinstance(value, float):
+            return Reading(value, repr(value))
+        what = "response" if f == "response" else "internal-standard response"
+        reading, problem, remedy = self.parse(value)
+        if problem and remedy is not None:
+            self.reject(row, f, value, problem, row_fails=True, remedy=remedy)
+            return None
+        if problem:
+            self.unusable.append(RejectedCell(row, self.column_name(f), value,
+                                              f"{problem}; sample {sample_id!r} is reported without this {what}"))
+            return Reading(None, value)
+        assert reading is not None
+        if reading.is_missing:
+            self.unusable.append(RejectedCell(row, self.column_name(f), value,
+                                              f"empty: no {what} recorded; sample {sample_id!r} is reported without it"))
+        return reading
 
     def number(self, cells: tuple[Cell, ...], f: str, row: int, required: bool = False) -> float | None:
         if f not in self.mapping:
@@ -368,12 +562,12 @@ class _Context:
             if required:
                 self.reject(row, f, value, "empty: a number is needed here", row_fails=True)
             return None
-        if problem := self.mark_problem(value):
-            self.reject(row, f, value, problem, row_fails=True)
+        if question := self.mark_problem(value):
+            self.reject(row, f, value, question[0], row_fails=True, remedy=question[1])
             return None
-        number, problem = parse_number(value.strip(" \u00a0\u202f\t").replace("\u2212", "-"), self.decimal_mark, self.thousands)
+        number, problem = parse_number(clean(value), self.decimal_mark, self.thousands)
         if problem:
-            self.reject(row, f, value, problem, row_fails=True)
+            self.reject(row, f, value, problem, row_fails=True, remedy=self.remedy_for(value, problem))
             return None
         return number
 
@@ -404,16 +598,19 @@ class _Context:
             rejected_rows=tuple(sorted(self.failed_rows)),
             empty_rows=tuple(sorted(self.empty_rows)),
             warnings=tuple(self.warnings),
+            unusable_readings=tuple(c for c in self.unusable if c.row not in self.failed_rows),
+            unused_columns=self.unused,
             **parts,
         )
 
 
+def _thousands_finding(separator: str | None) -> str:
+    shown = {" ": "spaces", None: "separators"}.get(separator, repr(separator))
+    return f"values are written with thousands separators ({shown} between groups of three digits)"
+
+
 def _blank(cell: Cell) -> bool:
     return isinstance(cell, str) and not cell.strip(" \u00a0\u202f\t")
-
-
-def _has_decimal_comma(token: str) -> bool:
-    return bool(re.fullmatch(r"\s*[+-]?\d+,\d+\s*", token))
 
 
 def analytes_from_import(

@@ -1,7 +1,11 @@
 """Reading numbers typed or pasted by people, without silent corruption.
 
 * Decimal comma and decimal point are both read, but one table uses one mark: the caller says
-  which, or it is detected from the table as a whole (:func:`detect_decimal_mark`).
+  which, or it is decided from the table as a whole (:func:`decimal_evidence`), as an analyst
+  would: a value with other than three digits after its mark ("1.5", "0.101" with its leading
+  zero, "1010.82" with four digits before) or with two marks ("1,234.5") decides it; in a
+  comma-separated file an unquoted cell cannot hold a comma, so when no value holds one the mark
+  is the point. Only when no value gives evidence are values such as "1,000" refused.
 * Thousands separators are refused unless the caller names the separator; a token such as
   "1,000" that reads either as one or as a thousand is refused until the caller says which.
 * Spaces, non-breaking and narrow no-break spaces around a value are stripped.
@@ -107,24 +111,93 @@ def parse_number(t: str, decimal_mark: str | None, thousands: str | None = None)
     return value, None
 
 
-def detect_decimal_mark(tokens: list[str]) -> tuple[str | None, str]:
-    """The decimal mark a table's numeric tokens use, and how that was decided.
+@dataclass(frozen=True)
+class DecimalEvidence:
+    """What a table's values show about their decimal mark.
+
+    ``point`` and ``comma`` count the values that show their mark, ``undecided`` those that read
+    two ways ("1,000"); ``mark`` is the decision (None when the values conflict or show nothing)
+    and ``note`` says how it was reached, in words for the analyst.
+    """
+
+    mark: str | None
+    note: str
+    point: int = 0
+    comma: int = 0
+    undecided: int = 0
+
+    @property
+    def conflict(self) -> bool:
+        return bool(self.point and self.comma)
+
+
+def decimal_evidence(tokens: list[str], delimiter: str | None = None) -> DecimalEvidence:
+    """Decide the decimal mark from all of a table's numeric cells (``delimiter`` as the text was split).
+
+    A value with one mark and other than three digits after it, or three digits after a leading
+    zero or after more than three digits, shows its mark; a value with two marks ("1,234.5",
+    "1.234.567") shows the decimal mark to be the other one. When no value shows it: in a
+    comma-separated table with no value holding a comma the mark is the point (an unquoted cell
+    cannot hold the delimiter); otherwise it stays undecided.
+    """
+    comma = point = undecided = 0
+    holds_comma = False
+    for token in tokens:
+        t = clean(token).lstrip("<>≤≥").strip(SPACES)
+        holds_comma = holds_comma or "," in t
+        if _AMBIGUOUS.match(t):
+            undecided += 1
+        elif _PLAIN.match(t):
+            if "," in t:
+                comma += 1
+            elif "." in t:
+                point += 1
+        elif _GROUPED_POINT.match(t):
+            point += 1
+        elif _GROUPED_COMMA.match(t):
+            comma += 1
+    if comma and point:
+        return DecimalEvidence(
+            None, f"both decimal marks appear ({_values(point)} with '.', {comma} with ',')", point, comma, undecided
+        )
+    if comma:
+        return DecimalEvidence(",", f"decimal comma (shown by {_values(comma)})", point, comma, undecided)
+    if point:
+        return DecimalEvidence(".", f"decimal point (shown by {_values(point)})", point, comma, undecided)
+    if delimiter == "," and not holds_comma:
+        note = "decimal point (the columns are separated by commas and no value holds one)"
+        return DecimalEvidence(".", note, point, comma, undecided)
+    if undecided:
+        return DecimalEvidence(
+            None,
+            f"no value shows the decimal mark: {_values(undecided)} with three digits after a single mark "
+            "(such as '1,000') read either as a decimal or as thousands",
+            point, comma, undecided,
+        )
+    return DecimalEvidence(None, "no value shows its decimal mark", point, comma, undecided)
+
+
+def detect_decimal_mark(tokens: list[str], delimiter: str | None = None) -> tuple[str | None, str]:
+    """The decimal mark a table's numeric tokens use, and how that was decided (:func:`decimal_evidence`).
 
     Returns (None, reason) when the tokens use both marks unambiguously or give no evidence.
     """
-    comma = point = 0
-    for token in tokens:
-        t = clean(token).lstrip("<>≤≥").strip(SPACES)
-        if not _PLAIN.match(t) or _AMBIGUOUS.match(t):
-            continue
-        if "," in t:
-            comma += 1
-        elif "." in t:
-            point += 1
-    if comma and point:
-        return None, f"both decimal marks appear ({point} values with '.', {comma} with ','); say which the table uses"
-    if comma:
-        return ",", f"decimal comma detected ({comma} values)"
-    if point:
-        return ".", f"decimal point detected ({point} values)"
-    return None, "no value shows its decimal mark"
+    evidence = decimal_evidence(tokens, delimiter)
+    return evidence.mark, evidence.note
+
+
+def thousands_separator_in(text: str) -> str | None:
+    """The thousands separator a token such as "1,234.5", "12 500" or "1'000" appears to use."""
+    t = clean(text).lstrip("<>≤≥").strip(SPACES)
+    if _GROUPED_POINT.match(t):
+        return ","
+    if _GROUPED_COMMA.match(t):
+        return "."
+    match = re.match(r"^[+-]?\d+([ '’\u00a0\u202f])\d{3}", t)
+    if match:
+        return "'" if match.group(1) in "'’" else " "
+    return None
+
+
+def _values(count: int) -> str:
+    return f"{count} value" if count == 1 else f"{count} values"

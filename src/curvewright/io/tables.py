@@ -36,8 +36,12 @@ class RawTable:
 
 
 def detect_delimiter(text: str) -> str:
-    """Tab if any line holds a tab (spreadsheets copy as tab-separated), else ';' or ',' by consistency."""
-    lines = [line for line in text.splitlines() if line.strip()]
+    """Tab if any line holds a tab (spreadsheets copy as tab-separated), else ';' or ',' by consistency.
+
+    Only what lies outside quoted fields counts: a tab or comma inside a quoted sample id
+    (``"Well 3, rinse"``) says nothing about how the columns are separated.
+    """
+    lines = [line for line in _outside_quotes(text).splitlines() if line.strip()]
     if not lines:
         raise ImportProblem("the table is empty: nothing was pasted or the file holds no rows.")
     if any("\t" in line for line in lines):
@@ -59,6 +63,35 @@ def detect_delimiter(text: str) -> str:
         "cannot tell how the columns are separated (no tab, semicolon or comma on every line); "
         "copy the cells from the spreadsheet, or save as CSV."
     )
+
+
+def _outside_quotes(text: str) -> str:
+    """The text with the content of quoted fields left out (line breaks inside them too).
+
+    A quote opens a field only at the start of a line or after a tab, ';' or ','; a doubled quote
+    inside a quoted field is a quote character. An unmatched quote leaves the rest out (the CSV
+    reader then reports it).
+    """
+    out: list[str] = []
+    quoted = False
+    previous = "\n"
+    i = 0
+    while i < len(text):
+        ch = text[i]
+        if quoted:
+            if ch == '"':
+                if text.startswith('""', i):
+                    i += 2
+                    continue
+                quoted = False
+                out.append('""')
+        elif ch == '"' and previous in "\r\n\t;,":
+            quoted = True
+        else:
+            out.append(ch)
+        previous = ch
+        i += 1
+    return "".join(out)
 
 
 def table_from_text(text: str, *, delimiter: str | None = None, source: str = "pasted text", sha256: str | None = None) -> RawTable:
