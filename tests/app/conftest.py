@@ -51,7 +51,8 @@ def make_window(qtbot, tmp_path, settings):
 def settle(qtbot, window) -> None:
     """Wait until the latest edit has been analysed and shown."""
     session = window.session
-    qtbot.waitUntil(lambda: session.result is not None and session.result.run is session.run, timeout=10000)
+    qtbot.waitUntil(lambda: not session.analysis_pending and session.result is not None
+                    and session.result.run is session.run, timeout=10000)
     qtbot.wait(20)
 
 

@@ -32,7 +32,7 @@ def test_window_shows_the_run_the_caution_and_the_verdict(make_window) -> None:
     assert window.results_model.rowCount() == 8
 
 
-def test_paste_a_block_and_see_the_curve_update(make_window, qtbot) -> None:
+def test_paste_a_block_and_see_the_curve_update(make_window, qtbot, answer_dialogs) -> None:
     window = make_window()  # a new, empty run
     assert window.session.result.analytes[0].calibration is None
     block = "1\t0.101\n2\t0.199\n4\t0.405\n8\t0.796\n16\t1.610\n"
@@ -49,7 +49,7 @@ def test_paste_a_block_and_see_the_curve_update(make_window, qtbot) -> None:
     assert window.session.run.audit[-1].action == "standard_added"
 
 
-def test_malformed_paste_marks_cells_and_loses_nothing(make_window, qtbot) -> None:
+def test_malformed_paste_marks_cells_and_loses_nothing(make_window, qtbot, answer_dialogs) -> None:
     window = make_window()
     window.standards_view.paste("1\t0.10\nabc\t0.20\n4\t1,000\n8\tND\n16\t1.6\n")
     settle(qtbot, window)

@@ -16,7 +16,7 @@ import openpyxl
 import pytest
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QGuiApplication, QKeySequence
-from PySide6.QtWidgets import QDialog, QFileDialog, QInputDialog
+from PySide6.QtWidgets import QApplication, QDialog, QFileDialog, QInputDialog
 
 from curvewright import CAUTION
 from curvewright.app import dialogs, main_window
@@ -340,10 +340,11 @@ def test_every_shortcut_triggers_its_menu_item(make_window, qtbot, slot_errors, 
         action.triggered.connect(lambda _checked=False, name=name: fired.append(name))
     select_standard(window, 3)
     window.standards_view.setFocus()
-    order = ["copy", "copy-table", "exclude", "undo", "redo", "add-standard", "choose-model", "settings",
-             "export-xlsx", "export-record", "import-standards", "import-samples", "save", "save-as", "open", "new", "quit"]
+    order = ["copy", "paste", "copy-table", "exclude", "undo", "redo", "add-standard", "remove-row", "choose-model",
+             "settings", "export-xlsx", "export-record", "import-standards", "import-samples", "save", "save-as", "open",
+             "new", "quit"]
     with_keys = {n for n, a in window.actions_by_name.items() if not a.shortcut().isEmpty()}
-    assert with_keys <= set(order) | {"paste", "remove-row", "add-standard"}, with_keys - set(order)
+    assert with_keys == set(order), with_keys ^ set(order)
     for name in order:
         if name not in with_keys:
             continue
@@ -351,9 +352,15 @@ def test_every_shortcut_triggers_its_menu_item(make_window, qtbot, slot_errors, 
             answer_dialogs["question"] = __import__("PySide6.QtWidgets", fromlist=["QMessageBox"]).QMessageBox.StandardButton.Discard
         sequence: QKeySequence = window.actions_by_name[name].shortcut()
         combination = sequence[0]
-        qtbot.keyClick(window.focusWidget() or window, combination.key(), combination.keyboardModifiers())
+        # the analyst types into the active window (a dialog answered without being shown can leave the
+        # offscreen platform with no active window)
+        window.activateWindow()
+        qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
+        target = window.focusWidget() or window
+        qtbot.keyClick(target, combination.key(), combination.keyboardModifiers())
+        qtbot.keyRelease(target, Qt.Key.Key_Shift)  # the test driver can leave a modifier held after a combination
         qtbot.wait(20)
-        assert fired and fired[-1] == name, f"{sequence.toString()} did not trigger {name!r}"
+        assert fired and fired[-1] == name, (f"{sequence.toString()} did not trigger {name!r}", window.focusWidget(), window.actions_by_name[name].isEnabled())
         assert not slot_errors, slot_errors
         if name == "settings":
             settle(qtbot, window)

@@ -207,7 +207,7 @@ class MainWindow(QMainWindow):
         action(file_menu, "export-plot", "Export &plot image…", self.export_plot)
         action(file_menu, "export-record", "Export calibration &record (PDF)…", self.export_report, "Ctrl+P")
         file_menu.addSeparator()
-        action(file_menu, "quit", "&Quit", self.close, QKeySequence.StandardKey.Quit)
+        action(file_menu, "quit", "&Quit", self.close, "Ctrl+Q")
 
         edit = self.menuBar().addMenu("&Edit")
         self.undo_action = action(edit, "undo", "&Undo", self.undo, QKeySequence.StandardKey.Undo)

@@ -138,6 +138,7 @@ class RunSession(QObject):
         self.evidence: dict[str, ModelComparison | str] = {}
         self.last_analysis_seconds = 0.0
         self._generation = 0
+        self._answered = -1
         self._signals = _AnalysisSignals()
         self._signals.done.connect(self._on_answer)
         self._pool = QThreadPool(self)
@@ -178,8 +179,14 @@ class RunSession(QObject):
         self.dirty_changed.emit(not clean or self._unsaved_records)
 
     def record(self, action: str, details: dict) -> None:  # type: ignore[type-arg]
-        """Add an audit entry that is not a change of content (an export, a report): not undoable."""
+        """Add an audit entry that is not a change of content (an export, a report): not undoable.
+
+        The analysis does not read the audit trail, so a current result stays current: it is carried
+        over to the run with the new entry instead of being computed again."""
+        previous = self._run
         self._run = replace(self._run, audit=append_entry(self._run.audit, action, details))
+        if self.result is not None and self.result.run is previous:
+            self.result = replace(self.result, run=self._run)
         self._unsaved_records = True
         self.dirty_changed.emit(True)
         self.run_changed.emit(self._run)
@@ -253,10 +260,16 @@ class RunSession(QObject):
     def _start_analysis(self) -> None:
         self._pool.start(_AnalysisJob(self._run, self._generation, self._signals))
 
+    @property
+    def analysis_pending(self) -> bool:
+        """True while the latest change has not been analysed yet."""
+        return self._answered != self._generation
+
     @Slot(object)
     def _on_answer(self, answer: AnalysisAnswer) -> None:
         if answer.generation != self._generation:
             return  # a newer edit is already being analysed
+        self._answered = answer.generation
         self.last_analysis_seconds = answer.seconds
         if answer.result is None:
             self.analysis_failed.emit(answer.error or "analysis failed")

@@ -321,7 +321,7 @@ def import_samples(
     return ctx.result(samples=samples)
 
 
-def _normalise(header: str) -> tuple[str, str]:
+def header_words(header: str) -> tuple[str, str]:
     """(header words in lower case without units, unit text) — "Conc. (ng/mL)" → ("conc.", "ng/mL")."""
     text = header.strip()
     unit = ""
@@ -382,7 +382,7 @@ class _Context:
     def _map_columns(self, fields, override):  # type: ignore[no-untyped-def]
         mapping: dict[str, int] = {}
         units: dict[str, str] = {}
-        normal = [_normalise(h) for h in self.headers]
+        normal = [header_words(h) for h in self.headers]
         for f, where in override.items():
             if f not in fields:
                 raise ColumnMappingProblem(f"{self.table.source}: column mapping: {f!r} is not one of {', '.join(fields)}.")
@@ -416,7 +416,7 @@ class _Context:
         """The column whose header is ``where``: as written, else in any case and without its unit."""
         if where in self.headers:
             return self.headers.index(where)
-        words = _normalise(where)[0]
+        words = header_words(where)[0]
         matches = [i for i, (w, _) in enumerate(normal) if w == words or self.headers[i].casefold() == where.casefold()]
         headers = ", ".join(repr(h) for h in self.headers)
         if not matches:

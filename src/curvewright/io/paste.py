@@ -20,7 +20,7 @@ from dataclasses import dataclass
 from typing import Mapping
 
 from .errors import ImportProblem
-from .importing import SYNONYMS, _normalise
+from .importing import SYNONYMS, TEXT_FIELDS, header_words
 from .number_text import detect_decimal_mark, parse_number
 from .tables import table_from_text
 
@@ -28,8 +28,6 @@ STANDARD_COLUMNS = ("id", "level", "replicate", "concentration", "response", "is
 """The fields of the standards table, in its column order."""
 SAMPLE_COLUMNS = ("id", "kind", "run_order", "dilution", "nominal", "response")
 """The fields of the samples table, in its column order."""
-TEXT_FIELDS = ("id", "level", "kind", "analyte")
-"""Fields holding words: they are no evidence of the decimal mark."""
 FIELD_WORDS = {
     "id": "id", "level": "level", "replicate": "replicate", "concentration": "nominal concentration",
     "response": "response", "is_response": "internal-standard response", "kind": "kind", "run_order": "run order",
@@ -58,6 +56,9 @@ class PastedBlock:
     decimal_mark: str | None
     decimal_note: str
     delimiter: str
+    """How the columns were separated, in words ("tab", "semicolon", "comma")."""
+    separator: str | None = None
+    """The character itself."""
 
     @property
     def fields(self) -> tuple[str | None, ...]:
@@ -99,8 +100,8 @@ class PastedBlock:
         """The same block with the columns at the given 0-based positions moved to other fields (the
         analyst's correction in the preview), the decimal mark decided again unless one is given."""
         columns = tuple(PastedColumn(c.header, fields.get(i, c.field), c.unit) for i, c in enumerate(self.columns))
-        mark, note = _decimal_mark(self.rows, tuple(c.field for c in columns), decimal_mark)
-        return PastedBlock(self.target, columns, self.has_header, self.rows, mark, note, self.delimiter)
+        mark, note = _decimal_mark(self.rows, tuple(c.field for c in columns), decimal_mark, self.separator)
+        return PastedBlock(self.target, columns, self.has_header, self.rows, mark, note, self.delimiter, self.separator)
 
 
 def table_fields(target: str) -> tuple[str, ...]:
@@ -135,8 +136,8 @@ def read_block(text: str, target: str, *, start_field: str | None = None, decima
         columns, body = _positional_columns(width, order, start_field, target), rows
     columns = columns + tuple(PastedColumn("", None) for _ in range(width - len(columns)))
     body = tuple(r + ("",) * (width - len(r)) for r in body)
-    mark, note = _decimal_mark(body, tuple(c.field for c in columns), decimal_mark)
-    return PastedBlock(target, columns, header is not None, body, mark, note, table.delimiter_name)
+    mark, note = _decimal_mark(body, tuple(c.field for c in columns), decimal_mark, table.delimiter)
+    return PastedBlock(target, columns, header is not None, body, mark, note, table.delimiter_name, table.delimiter)
 
 
 def _header_columns(first: tuple[str, ...], order: tuple[str, ...]) -> tuple[PastedColumn, ...] | None:
@@ -146,7 +147,7 @@ def _header_columns(first: tuple[str, ...], order: tuple[str, ...]) -> tuple[Pas
     taken: set[str] = set()
     columns = []
     for cell in first:
-        words, unit = _normalise(cell)
+        words, unit = header_words(cell)
         field = next((f for f in order if f not in taken and words in SYNONYMS.get(f, ())), None)
         if field is not None:
             taken.add(field)
@@ -163,12 +164,12 @@ def _positional_columns(width: int, order: tuple[str, ...], start: str | None, t
     return tuple(PastedColumn("", fields[i] if i < len(fields) else None) for i in range(width))
 
 
-def _decimal_mark(rows, fields, given: str | None) -> tuple[str | None, str]:  # type: ignore[no-untyped-def]
+def _decimal_mark(rows, fields, given: str | None, separator: str | None) -> tuple[str | None, str]:  # type: ignore[no-untyped-def]
     if given is not None:
         return given, f"decimal mark {given!r} as set"
     tokens = [cells[i] for cells in rows for i, f in enumerate(fields)
               if f is not None and f not in TEXT_FIELDS and i < len(cells)]
-    return detect_decimal_mark(tokens)
+    return detect_decimal_mark(tokens, separator)
 
 
 def _is_number(text: str) -> bool:
