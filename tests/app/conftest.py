@@ -113,3 +113,17 @@ def answer_dialogs(monkeypatch):
         monkeypatch.setattr(QMessageBox, kind, message(kind))
     monkeypatch.setattr(QMessageBox, "about", lambda parent, title, text: answers.seen.append((title, text)))
     return answers
+
+
+def type_keys(qtbot, widget, key, modifiers=None) -> None:  # type: ignore[no-untyped-def]
+    """Type a key combination into ``widget`` as the analyst does, then let go of every modifier key
+    (the test driver can leave Ctrl or Shift held in Qt's record, which turns the next click on a
+    table row into a toggle)."""
+    from PySide6.QtCore import Qt
+
+    if modifiers is None:
+        qtbot.keyClick(widget, key)
+    else:
+        qtbot.keyClick(widget, key, modifiers)
+    for held in (Qt.Key.Key_Control, Qt.Key.Key_Shift, Qt.Key.Key_Alt):
+        qtbot.keyRelease(widget, held, Qt.KeyboardModifier.NoModifier)

@@ -14,7 +14,8 @@ from pathlib import Path
 
 import openpyxl
 import pytest
-from PySide6.QtCore import Qt
+from PySide6.QtCore import QPoint, Qt
+from PySide6.QtTest import QTest
 from PySide6.QtGui import QGuiApplication, QKeySequence
 from PySide6.QtWidgets import QApplication, QDialog, QFileDialog, QInputDialog
 
@@ -22,7 +23,7 @@ from curvewright import CAUTION
 from curvewright.app import dialogs, main_window
 from curvewright.app import standards_model as sm
 from curvewright.io.run_document import open_run
-from tests.app.conftest import DEMOS, settle
+from tests.app.conftest import DEMOS, settle, type_keys
 
 
 @pytest.fixture
@@ -110,8 +111,14 @@ def menu_items(window) -> set[str]:
 
 
 def select_standard(window, row: int) -> str:
+    """Click a standard's row (its number in the row header), as the analyst selects it."""
     window.left_tabs.setCurrentIndex(0)
-    window.standards_view.selectRow(row)
+    view = window.standards_view
+    view.scrollTo(window.standards_model.index(row, 0))
+    header = view.verticalHeader()
+    QTest.mouseClick(header.viewport(), Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier,
+                     QPoint(header.width() // 2, header.sectionViewportPosition(row) + header.sectionSize(row) // 2))
+    assert sorted({i.row() for i in view.selectionModel().selectedIndexes()}) == [row]
     return window.standards_model.standards[row].id
 
 
@@ -357,8 +364,7 @@ def test_every_shortcut_triggers_its_menu_item(make_window, qtbot, slot_errors, 
         window.activateWindow()
         qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
         target = window.focusWidget() or window
-        qtbot.keyClick(target, combination.key(), combination.keyboardModifiers())
-        qtbot.keyRelease(target, Qt.Key.Key_Shift)  # the test driver can leave a modifier held after a combination
+        type_keys(qtbot, target, combination.key(), combination.keyboardModifiers())
         qtbot.wait(20)
         assert fired and fired[-1] == name, (f"{sequence.toString()} did not trigger {name!r}", window.focusWidget(), window.actions_by_name[name].isEnabled())
         assert not slot_errors, slot_errors

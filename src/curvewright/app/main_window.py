@@ -322,6 +322,7 @@ class MainWindow(QMainWindow):
         self.refit_label.setText(f"refit in {self.session.last_analysis_seconds * 1000:.0f} ms")
         # the columns that show the engine's answers (back-calculated, %RE, flags) fit their text
         fit_columns(self.standards_view)
+        fit_columns(self.samples_view)
 
     def _show_views(self) -> None:
         result = self.session.result
@@ -850,7 +851,7 @@ class MainWindow(QMainWindow):
         fields = {column: field for field, column in model.field_columns().items()}
         start = fields.get(current.column()) if current.isValid() else None
         try:
-            block = read_block(text, model.target, start_field=start, decimal_mark=self.stated_decimal_mark())
+            block = read_block(text, model.target, start_field=start, usual_mark=self.stated_decimal_mark())
         except CurvewrightError as exc:
             self.show_message(f"Not pasted: {exc}")
             return 0
@@ -858,11 +859,25 @@ class MainWindow(QMainWindow):
         if dialog.exec() != PasteDialog.DialogCode.Accepted:
             return 0
         entered, notes = model.apply_block(dialog.block, dialog.top)
+        if entered and model.target == "standards":
+            self._units_from_header(dialog.block)
         if entered:
             attention = (f"; {len(notes)} cell(s) need attention: " + " | ".join(notes[:4])
                          + (f" … and {len(notes) - 4} more" if len(notes) > 4 else "")) if notes else "."
             self.show_message(f"Pasted {entered} row(s) into the {model.target} table{attention}")
         return entered
+
+    def _units_from_header(self, block) -> None:  # type: ignore[no-untyped-def]
+        """An analyte without a concentration unit takes the one a pasted header names ("Conc. (ng/mL)")."""
+        name = self.current_analyte()
+        analyte = self.session.run.analyte(name)
+        unit = next((c.unit for c in block.columns if c.field == "concentration" and c.unit), "")
+        if analyte.concentration_unit or not unit:
+            return
+        response_unit = analyte.response_unit or next((c.unit for c in block.columns if c.field == "response" and c.unit), "")
+        self.session.apply(run_edits.edit_analyte(self.session.run, name, name=name, concentration_unit=unit,
+                                                  response_unit=response_unit, reason="unit named in the pasted header"),
+                           f"Set the units of {name} from the pasted header")
 
     def copy_selection(self) -> str:
         """Edit → Copy: the selected cells of the focused table (all of it when nothing is selected)."""

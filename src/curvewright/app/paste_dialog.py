@@ -39,7 +39,7 @@ class PasteDialog(QDialog):
         self.decimal.addItem("as the block shows it", None)
         self.decimal.addItem(". (point)", ".")
         self.decimal.addItem(", (comma)", ",")
-        if block.decimal_note.startswith("decimal mark") and block.decimal_mark in (".", ","):
+        if block.decimal_note.endswith("as chosen") and block.decimal_mark in (".", ","):
             self.decimal.setCurrentIndex(self.decimal.findData(block.decimal_mark))
         self.preview = QTableWidget()
         self.preview.setAccessibleName("How each pasted value was read")

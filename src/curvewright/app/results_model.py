@@ -10,14 +10,15 @@ from __future__ import annotations
 
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtGui import QBrush, QColor, QGuiApplication
-from PySide6.QtWidgets import QAbstractItemView, QLabel, QTableView, QVBoxLayout, QWidget
+from PySide6.QtWidgets import QAbstractItemView, QLabel, QVBoxLayout, QWidget
 
 from ..core.inverse import QuantFlag
 from ..core.run_analysis import AnalyteResult, RunResult, SampleResult
 from ..io.result_tables import display_number, interval_text
+from .table_view import FittedTableView, fit_columns
 
 COLUMNS = ("Sample", "Reported", "Interval", "Flags", "Kind", "QC recovery", "n", "Mean response",
-           "Estimate", "Dilution", "Reported, full precision")
+           "Estimate", "Dilution", "Full precision")
 SAMPLE, REPORTED, INTERVAL, FLAGS, KIND, QC, N, MEAN, ESTIMATE, DILUTION, FULL = range(len(COLUMNS))
 WITH_UNIT = (REPORTED, INTERVAL, ESTIMATE, FULL)
 NUMERIC = (REPORTED, QC, N, MEAN, ESTIMATE, DILUTION, FULL)
@@ -153,12 +154,11 @@ class ResultsView(QWidget):
     def __init__(self, parent: QWidget | None = None) -> None:
         super().__init__(parent)
         self.results_model = ResultsModel()
-        self.table = QTableView()
+        self.table = FittedTableView()
         self.table.setAccessibleName("Results of the samples")
         self.table.setModel(self.results_model)
         self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
         self.table.setAlternatingRowColors(True)
-        self.table.horizontalHeader().setStretchLastSection(True)
         self.details = QLabel("Select a sample to read its result in words.")
         self.details.setWordWrap(True)
         self.details.setAccessibleName("The selected sample's result in words")
@@ -172,7 +172,7 @@ class ResultsView(QWidget):
     def show_result(self, result: RunResult | None, analyte: str) -> None:
         selected = self.table.currentIndex().row()
         self.results_model.show(result, analyte)
-        self.table.resizeColumnsToContents()
+        fit_columns(self.table)
         if 0 <= selected < self.results_model.rowCount():
             self.table.selectRow(selected)
         else:

@@ -23,10 +23,12 @@ from .session import RunSession
 from .table_view import RowCache
 from .standards_model import INVALID
 
-COLUMNS = ("Id", "Kind", "Run order", "Dilution factor", "Nominal", "Responses (replicates separated by ;)")
+COLUMNS = ("Id", "Kind", "Order", "Dilution", "Nominal", "Responses")
 ID, KIND, ORDER, DILUTION, NOMINAL, RESPONSES = range(len(COLUMNS))
 FIELD_COLUMNS = {"id": ID, "kind": KIND, "run_order": ORDER, "dilution": DILUTION, "nominal": NOMINAL, "response": RESPONSES}
 """The column of each field a pasted block can fill."""
+FIELD_WORDS = {ID: "id", KIND: "kind", ORDER: "run order", DILUTION: "dilution factor", NOMINAL: "nominal value",
+               RESPONSES: "responses"}
 
 
 class SamplesModel(QAbstractTableModel):
@@ -58,6 +60,8 @@ class SamplesModel(QAbstractTableModel):
         return 0 if parent.isValid() else len(COLUMNS)
 
     def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole):  # noqa: N802
+        if role == Qt.ItemDataRole.ToolTipRole and orientation == Qt.Orientation.Horizontal and section == RESPONSES:
+            return "The responses of the replicates, separated by ';' (e.g. 0.512; 0.508)"
         if role != Qt.ItemDataRole.DisplayRole:
             return None
         if orientation == Qt.Orientation.Vertical:
@@ -69,7 +73,7 @@ class SamplesModel(QAbstractTableModel):
         if section == NOMINAL:
             return f"Nominal ({unit})" if unit else "Nominal"
         if section == RESPONSES:
-            return f"{self.analyte_name} responses (replicates separated by ;)"
+            return f"{self.analyte_name} responses (replicates: a; b)"
         return COLUMNS[section]
 
     def flags(self, index: QModelIndex) -> Qt.ItemFlag:
@@ -122,13 +126,13 @@ class SamplesModel(QAbstractTableModel):
             self.dataChanged.emit(index, index)
             return False
         samples[row] = sample
-        return self._commit(tuple(samples), f"Edit {COLUMNS[col].split(' (')[0].lower()} of {sample.id}")
+        return self._commit(tuple(samples), f"Edit {FIELD_WORDS[col]} of {sample.id}")
 
     def _with_cell(self, s: Sample, col: int, text: str, row_number: int, decimal_mark: str | None,
                    report: Callable[[str], object]) -> tuple[bool, Sample]:
         """The sample with one cell's text entered, or (False, the sample unchanged) when the value is
         refused (the cell then keeps the text, marked); ``report`` receives what needs attention."""
-        where = f"samples row {row_number}, {COLUMNS[col].split(' (')[0].lower()}"
+        where = f"samples row {row_number}, {FIELD_WORDS[col]}"
         self.pending.pop((s.id, col), None)
         t = text.strip()
 

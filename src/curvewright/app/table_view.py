@@ -10,13 +10,45 @@ from PySide6.QtWidgets import QAbstractItemView, QTableView
 
 
 def fit_columns(view: QTableView) -> None:
-    """Widen each column to its header and the cells in view, so that no text is cut to "…"."""
+    """Widen each column to its header and the cells in view, so that no text is cut to "…", then let
+    the last column take any room left (see :func:`fill_last_column`)."""
     if view.model() is None:
         return
+    view.horizontalHeader().setStretchLastSection(False)
     view.resizeColumnsToContents()
+    view.setProperty("fitted_last_width", None)
+    fill_last_column(view)
 
 
-class SheetTableView(QTableView):
+def fill_last_column(view: QTableView) -> None:
+    """Let the last shown column fill the room the others leave, never narrower than its own text.
+
+    (Qt's stretched last section shrinks below its header's width when the other columns need
+    more room than there is; this one scrolls instead.)"""
+    model = view.model()
+    if model is None or model.columnCount() == 0:
+        return
+    shown = [c for c in range(model.columnCount()) if not view.isColumnHidden(c)]
+    if not shown:
+        return
+    last = shown[-1]
+    natural = view.property("fitted_last_width")
+    if natural is None:
+        natural = view.columnWidth(last)
+        view.setProperty("fitted_last_width", natural)
+    others = sum(view.columnWidth(c) for c in shown[:-1])
+    view.setColumnWidth(last, max(int(natural), view.viewport().width() - others))
+
+
+class FittedTableView(QTableView):
+    """A table whose last column fills the room left whenever the table changes size."""
+
+    def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().resizeEvent(event)
+        fill_last_column(self)
+
+
+class SheetTableView(FittedTableView):
     """An editable table that takes pasted blocks (Ctrl+V) and copies its selection as text.
 
     What a paste does is decided by ``paste_handler(view, text)`` (the window reads the block and
@@ -30,7 +62,6 @@ class SheetTableView(QTableView):
         self.setAlternatingRowColors(True)
         self.setEditTriggers(QAbstractItemView.EditTrigger.DoubleClicked | QAbstractItemView.EditTrigger.EditKeyPressed
                              | QAbstractItemView.EditTrigger.AnyKeyPressed)
-        self.horizontalHeader().setStretchLastSection(True)
         self.paste_handler: Callable[["SheetTableView", str], int] | None = None
 
     def keyPressEvent(self, event) -> None:  # noqa: N802 - Qt override

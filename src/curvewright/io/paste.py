@@ -9,7 +9,8 @@
   at the nominal concentration (concentration, then response, as instruments list them) and a
   two-column block of samples is read as sample id and response.
 * The decimal mark is decided from the block's numeric cells as a whole, as for a file
-  (:func:`.number_text.detect_decimal_mark`); an analyst's stated mark takes precedence.
+  (:func:`.number_text.decimal_evidence`); the analyst's usual mark is taken only when the block
+  shows none, and a mark chosen in the preview overrides both.
 * Nothing is read here into values: the front end keeps every cell's text, and a value that cannot
   be read stays as typed, marked, with the reason.
 """
@@ -21,7 +22,7 @@ from typing import Mapping
 
 from .errors import ImportProblem
 from .importing import SYNONYMS, TEXT_FIELDS, header_words
-from .number_text import detect_decimal_mark, parse_number
+from .number_text import decimal_evidence, parse_number
 from .tables import table_from_text
 
 STANDARD_COLUMNS = ("id", "level", "replicate", "concentration", "response", "is_response")
@@ -112,12 +113,14 @@ def table_fields(target: str) -> tuple[str, ...]:
     raise ValueError(f"paste target {target!r} is not 'standards' or 'samples'")
 
 
-def read_block(text: str, target: str, *, start_field: str | None = None, decimal_mark: str | None = None) -> PastedBlock:
+def read_block(text: str, target: str, *, start_field: str | None = None, decimal_mark: str | None = None,
+               usual_mark: str | None = None) -> PastedBlock:
     """Read a pasted block for the ``target`` table ("standards" or "samples").
 
     ``start_field`` is the field of the selected column (None when no cell is selected);
-    ``decimal_mark`` the analyst's stated mark ("." or ","), None to decide it from the block.
-    Raises :class:`~curvewright.io.errors.ImportProblem` when the text holds no cells.
+    ``decimal_mark`` a mark to use whatever the block shows ("." or ","), None to decide it from the
+    block; ``usual_mark`` the analyst's usual mark, taken only when the block shows none (never when
+    it shows both). Raises :class:`~curvewright.io.errors.ImportProblem` when the text holds no cells.
     """
     order = table_fields(target)
     if start_field is not None and start_field not in order:
@@ -136,7 +139,7 @@ def read_block(text: str, target: str, *, start_field: str | None = None, decima
         columns, body = _positional_columns(width, order, start_field, target), rows
     columns = columns + tuple(PastedColumn("", None) for _ in range(width - len(columns)))
     body = tuple(r + ("",) * (width - len(r)) for r in body)
-    mark, note = _decimal_mark(body, tuple(c.field for c in columns), decimal_mark, table.delimiter)
+    mark, note = _decimal_mark(body, tuple(c.field for c in columns), decimal_mark, table.delimiter, usual_mark)
     return PastedBlock(target, columns, header is not None, body, mark, note, table.delimiter_name, table.delimiter)
 
 
@@ -164,12 +167,16 @@ def _positional_columns(width: int, order: tuple[str, ...], start: str | None, t
     return tuple(PastedColumn("", fields[i] if i < len(fields) else None) for i in range(width))
 
 
-def _decimal_mark(rows, fields, given: str | None, separator: str | None) -> tuple[str | None, str]:  # type: ignore[no-untyped-def]
+def _decimal_mark(rows, fields, given: str | None, separator: str | None,  # type: ignore[no-untyped-def]
+                  usual: str | None = None) -> tuple[str | None, str]:
     if given is not None:
-        return given, f"decimal mark {given!r} as set"
+        return given, f"decimal mark {given!r} as chosen"
     tokens = [cells[i] for cells in rows for i, f in enumerate(fields)
               if f is not None and f not in TEXT_FIELDS and i < len(cells)]
-    return detect_decimal_mark(tokens, separator)
+    evidence = decimal_evidence(tokens, separator)
+    if evidence.mark is None and usual is not None and not evidence.conflict:
+        return usual, f"decimal mark {usual!r} as set in the settings ({evidence.note})"
+    return evidence.mark, evidence.note
 
 
 def _is_number(text: str) -> bool:
