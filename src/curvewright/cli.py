@@ -625,7 +625,7 @@ def summary_text(  # type: ignore[no-untyped-def]
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
 ) -> str:
     """The results as text. A missing unit is said once per analyte and never printed empty."""
-    from .io.result_tables import display_number
+    from .io.result_tables import interval_text
 
     run = result.run
     lines = [f"Run: {run.name}" + (f"  ({source})" if source else ""),
@@ -677,7 +677,7 @@ def summary_text(  # type: ignore[no-untyped-def]
             if s.reported is None:
                 lines.append(f"  {s.sample_id[:24]:<24} {'—':>12} {'':>26}  {s.flag_words}")
                 continue
-            interval = f"{display_number(s.reported_lower, 5)} – {display_number(s.reported_upper, 5)}"
+            interval = interval_text(s.reported_lower, s.reported_upper, rule)
             lines.append(f"  {s.sample_id[:24]:<24} {rule.text(s.reported):>12} {interval:>26}  {s.flag_words}")
     for action, path, sha in written:
         lines.append(f"{'workbook' if action == 'export_written' else 'report'} written: {path} (SHA-256 {sha[:16]}…)")

@@ -272,3 +272,20 @@ def test_import_from_a_file_through_the_menu_path(make_window, qtbot, tmp_path, 
     assert window.import_table("samples", path=str(path))  # the table has no analyte column: the current analyte
     settle(qtbot, window)
     assert any(s.sample_id == "Lake 2" for s in window.session.result.analytes[0].samples)
+
+
+def test_settings_are_offered_in_words_not_identifiers(qtbot) -> None:
+    from curvewright.app.dialogs import SettingsDialog
+    from PySide6.QtWidgets import QComboBox
+
+    run = open_run(NITRATE).run
+    dialog = SettingsDialog(run)
+    qtbot.addWidget(dialog)
+    shown = [box.itemText(i) for box in dialog.findChildren(QComboBox) for i in range(box.count())]
+    assert shown and not [t for t in shown if "_" in t or t in ("band", "symmetric", "significant", "decimals")]
+    # each choice still maps to the setting it stands for
+    assert dialog.settings(run) == run.settings
+    dialog.limits.setCurrentIndex(dialog.limits.findData("iso11843"))
+    dialog.rounding_tie.setCurrentIndex(dialog.rounding_tie.findData("half_even"))
+    changed = dialog.settings(run)
+    assert (changed.limits_method, changed.rounding.tie) == ("iso11843", "half_even")
