@@ -149,9 +149,10 @@ def zinc_run() -> "Run":  # type: ignore[name-defined]  # noqa: F821
             rows.append([f"Zn-{i}{'abc'[r - 1]}", f"S{i}", c, r, f"{e:.1f}"])
     rows.append(["Zn-5b", "S5", 4.0, 2, "4990.7"])  # a vial later found to be made up wrongly
     standards = _tsv(["Standard id", "Level", "Concentration (mg/L)", "Replicate", "Emission (counts)"], rows)
-    plan = [("Reagent blank", "blank", 1, None, 0.0), ("Check 5 mg/L", "check standard", 1, 5.0, 5.0),
+    plan = [("Check 5 mg/L", "check standard", 1, 5.0, 5.0), ("Reagent blank", "blank", 1, None, 0.0),
             ("Alloy digest 1", "unknown", 20, None, 96.0), ("Alloy digest 2", "unknown", 20, None, 131.0),
-            ("Rinse water", "unknown", 1, None, 0.35), ("Alloy digest 3", "unknown", 1, None, 11.5)]
+            ("Rinse water", "unknown", 1, None, 0.35), ("Alloy digest 3", "unknown", 1, None, 11.5),
+            ("Check 5 mg/L, closing", "check standard", 1, 5.0, 5.0)]
     samples = []
     for order, (sid, kind, dilution, nominal, true_c) in enumerate(plan, start=1):
         c = true_c / dilution

@@ -184,3 +184,30 @@ def test_options_are_checked(capsys) -> None:
     assert "--level: 95.0 must lie between 0 and 1" in capsys.readouterr().err
     assert cli.main(["quantify", "no-such-run.json"]) == 2
     assert cli.main(["quantify", *map(str, DEMO_RUNS), "--export", "single.xlsx"]) == 2
+
+
+def test_a_failed_calibration_check_shows_its_recovery_and_fails_the_run(tmp_path) -> None:
+    from curvewright.core.rounding import RoundingRule
+    from curvewright.core.run import Analyte, Measurement, Reading, Run, RunSettings, Sample, SampleKind, Standard
+
+    # invented: copper on an exact line y = 2 + 3x; the CCV reads back at 7.2 mg/L against a nominal 5
+    standards = tuple(Standard(f"Cu-{i}{r}", x, Reading.of(2 + 3 * x + (0.003 if r == 1 else -0.003)), r)
+                      for i, x in enumerate((0.5, 1.0, 2.0, 4.0, 6.0, 8.0)) for r in (1, 2))
+    samples = (Sample("ICV", SampleKind.ICV, 1, 1.0, (Measurement("copper", 1, Reading.of(17.0)),), (("copper", 5.0),)),
+               Sample("Tap 1", SampleKind.UNKNOWN, 2, 1.0, (Measurement("copper", 1, Reading.of(11.0)),)),
+               Sample("CCV-1", SampleKind.CCV, 3, 1.0, (Measurement("copper", 1, Reading.of(23.6)),), (("copper", 5.0),)))
+    run = Run("invented copper batch", (Analyte("copper", "mg/L", "counts", standards),), samples,
+              RunSettings(rounding=RoundingRule("significant", 3)))
+    path = tmp_path / "copper.json"
+    save_run(run, path)
+    result = run_cli("quantify", str(path))
+    assert result.returncode == 1
+    assert "verdict: NOT ACCEPTED" in result.stdout
+    assert "FAIL: CCV CCV-1 (run order 3): recovery 144.0 % of 5 mg/L, outside 90–110 %" in result.stdout
+    assert "pass: ICV ICV (run order 1): recovery 100.0 %" in result.stdout
+    tap = next(line for line in result.stdout.splitlines() if line.strip().startswith("Tap 1"))
+    assert "not reportable" in tap and "CCV-1" in tap
+    data = json.loads(run_cli("quantify", str(path), "--json").stdout)
+    checks = data["analytes"][0]["calibration_checks"]
+    assert checks["passed"] is False and checks["checks"][1]["recovery_percent"] == pytest.approx(144.0)
+    assert any("CCV-1" in r for r in data["reasons"])

@@ -625,8 +625,6 @@ def summary_text(  # type: ignore[no-untyped-def]
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
 ) -> str:
     """The results as text. A missing unit is said once per analyte and never printed empty."""
-    from .io.result_tables import interval_text
-
     run = result.run
     lines = [f"Run: {run.name}" + (f"  ({source})" if source else ""),
              f"Profile: {result.profile.name}; verdict: {'ACCEPTED' if result.accepted else 'NOT ACCEPTED'}"]
@@ -671,17 +669,34 @@ def summary_text(  # type: ignore[no-untyped-def]
             lines.append(f"  standards {r}")
         for r in (a.qc_verdict.reasons if a.qc_verdict else ()):
             lines.append(f"  QC {r}")
+        if a.checks is not None:
+            lines.append("  calibration checks:")
+            lines += [f"    {r}" for r in a.checks.reasons]
         rule = run.settings.rounding
-        lines.append(f"  {'sample':<24} {'reported':>12} {'interval (' + f'{run.settings.confidence_level:.0%}' + ')':>26}  flags")
-        for s in a.samples:
-            if s.reported is None:
-                lines.append(f"  {s.sample_id[:24]:<24} {'—':>12} {'':>26}  {s.flag_words}")
-                continue
-            interval = interval_text(s.reported_lower, s.reported_upper, rule)
-            lines.append(f"  {s.sample_id[:24]:<24} {rule.text(s.reported):>12} {interval:>26}  {s.flag_words}")
+        if a.reporting is not None:
+            rr = a.reporting
+            lines.append(f"  calibrated range {rr.lloq:g}–{rr.uloq:g}{in_unit} (LLOQ–ULOQ); reporting limit "
+                         f"{rr.reporting_limit:.4g}{in_unit} ({rr.basis}): {rr.note}")
+        lines += _samples_lines(a.samples, rule, run.settings.confidence_level)
     for action, path, sha in written:
         lines.append(f"{'workbook' if action == 'export_written' else 'report'} written: {path} (SHA-256 {sha[:16]}…)")
     return "\n".join(lines)
+
+
+def _samples_lines(samples, rule, level: float) -> list[str]:  # type: ignore[no-untyped-def]
+    """The samples as aligned text: what is reported, the number behind it, its interval, the flags."""
+    from .io.result_tables import interval_text
+
+    heading = ("sample", "reported", "value", f"interval ({level:.0%})", "flags")
+    rows = [(s.sample_id, s.reported_text or "—", "—" if s.reported is None else rule.text(s.reported),
+             "" if s.reported is None else interval_text(s.reported_lower, s.reported_upper, rule), s.flag_words)
+            for s in samples]
+    widths = [max(len(r[i]) for r in [heading, *rows]) for i in range(4)]
+    out = []
+    for i, r in enumerate([heading, *rows]):
+        cells = [r[0].ljust(widths[0]), r[1].ljust(widths[1]), r[2].rjust(widths[2]), r[3].rjust(widths[3]), r[4]]
+        out.append("  " + "  ".join(cells).rstrip())
+    return out
 
 
 def _plain(value: Any) -> Any:
@@ -742,6 +757,16 @@ def result_json(  # type: ignore[no-untyped-def]
                                                          "lod": a.limits.lod, "loq": a.limits.loq},
                 "verdict": {"passed": a.verdict.passed, "reasons": list(a.verdict.reasons)} if a.verdict else None,
                 "qc_verdict": {"passed": a.qc_verdict.passed, "reasons": list(a.qc_verdict.reasons)} if a.qc_verdict else None,
+                "calibration_checks": None if a.checks is None else {
+                    "passed": a.checks.passed, "reasons": list(a.checks.reasons),
+                    "checks": [{"id": c.sample_id, "kind": c.kind.value, "run_order": c.run_order, "nominal": c.nominal,
+                                "found": c.found, "recovery_percent": c.recovery_percent,
+                                "window_percent": c.window_percent, "passed": c.passed, "reason": c.reason}
+                               for c in a.checks.checks]},
+                "reporting_range": None if a.reporting is None else {
+                    "lloq": a.reporting.lloq, "uloq": a.reporting.uloq, "lod": a.reporting.lod, "loq": a.reporting.loq,
+                    "reporting_limit": a.reporting.reporting_limit, "basis": a.reporting.basis,
+                    "note": a.reporting.note},
                 "standards": [
                     {"id": s.id, "concentration": s.concentration, "response": cal.response[i],
                      "back_calculated": cal.back_calculated[i], "relative_error": cal.relative_error[i],
@@ -759,8 +784,11 @@ def result_json(  # type: ignore[no-untyped-def]
              "lower": s.lower, "upper": s.upper, "dilution_factor": s.dilution_factor, "reported": s.reported,
              "reported_lower": s.reported_lower, "reported_upper": s.reported_upper,
              "reported_rounded": None if s.reported is None else run.settings.rounding.text(s.reported),
+             "reported_text": s.reported_text, "status": s.status.value, "reportable": s.reportable,
+             "suggested_dilution": s.suggested_dilution,
              "flags": [f.name.lower() for f in s.flags] if s.flags is not None else [],
-             "flag_words": s.flag_words, "nominal": s.nominal, "recovery_percent": s.recovery_percent}
+             "flag_words": s.flag_words, "nominal": s.nominal, "recovery_percent": s.recovery_percent,
+             "within_limits": s.within_limits}
             for s in a.samples
         ]
         out["analytes"].append(entry)
@@ -832,7 +860,7 @@ def _print_evidence(run, result, as_json: bool, payload: list[dict[str, Any]],  
     from .io.report import evidence_table
 
     for a in result.analytes:
-        table, reasons = evidence_table(a)
+        table, reasons = evidence_table(result, a)
         choice = (choices or {}).get(a.analyte.name)
         if choice is not None:  # a table holds no choice of its own: show the evidence and the recommendation
             table = table.select(tuple(c.name for c in table.columns if c.name != "Chosen"))

@@ -61,8 +61,8 @@ def test_numbers_are_full_precision_numeric_cells(workbook) -> None:
     assert values["Standards verdict"] in ("accepted", "NOT accepted")
     samples = book["Samples"]
     header = [c.value for c in samples[3]]
-    col = header.index("Reported concentration")
-    rounded = header.index("Reported (rounded)")
+    col = header.index("Concentration × dilution")
+    rounded = header.index("Reported")
     exported = [r for r in samples.iter_rows(min_row=4, values_only=True)]
     expected = [s for s in result.analytes[0].samples]
     assert [r[col] for r in exported] == [s.reported for s in expected]
@@ -96,7 +96,7 @@ def test_csv_records_its_format_and_protects_text(tmp_path) -> None:
     rows = list(csv.reader(io.StringIO("\n".join(lines[2:])), delimiter=";"))
     ids = [r[0] for r in rows[1:]]
     assert "'=HYPERLINK(\"http://example.invalid\")" in ids and "'@SUM(1+1)" in ids
-    reported = rows[1][rows[0].index("Reported concentration")]
+    reported = rows[1][rows[0].index("Concentration × dilution")]
     value = result.analytes[0].samples[0].reported
     assert float(reported.replace(",", ".")) == value  # full precision survives the decimal comma
 

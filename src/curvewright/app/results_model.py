@@ -1,7 +1,8 @@
 """The results of the unknowns and QC samples of one analyte (read-only): the job's answer first.
 
-The first columns are what the analyst reports and signs: the sample, the reported concentration
-(rounded by the run's rule), its interval and the flags as short words. Kind, QC recovery and the
+The first columns are what the analyst reports and signs: the sample, what is reported for it (the
+concentration rounded by the run's rule, or "< 1.00 ng/mL (LLOQ)", "> 1000 ng/mL (ULOQ)", "not
+reportable"), its interval and the flags as short words. Kind, QC recovery and the
 working (replicates, mean response, estimate before dilution, dilution factor, full precision) follow.
 Selecting a row shows everything about that sample in words beneath the table.
 """
@@ -13,12 +14,13 @@ from PySide6.QtGui import QBrush, QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QLabel, QVBoxLayout, QWidget
 
 from ..core.inverse import QuantFlag
+from ..core.reporting import ReportStatus
 from ..core.run_analysis import AnalyteResult, RunResult, SampleResult
 from ..io.result_tables import display_number, interval_text
 from .table_view import FittedTableView, fit_columns
 
-COLUMNS = ("Sample", "Reported", "Interval", "Flags", "Kind", "QC recovery", "n", "Mean response",
-           "Estimate", "Dilution", "Full precision")
+COLUMNS = ("Sample", "Reported", "Interval", "Flags", "Kind", "QC / check", "n", "Mean response",
+           "Estimate", "Dilution", "Value × dilution")
 SAMPLE, REPORTED, INTERVAL, FLAGS, KIND, QC, N, MEAN, ESTIMATE, DILUTION, FULL = range(len(COLUMNS))
 WITH_UNIT = (REPORTED, INTERVAL, ESTIMATE, FULL)
 NUMERIC = (REPORTED, QC, N, MEAN, ESTIMATE, DILUTION, FULL)
@@ -79,11 +81,9 @@ class ResultsModel(QAbstractTableModel):
         return None
 
     def _needs_attention(self, s: SampleResult) -> bool:
-        if s.reported is None or s.flags is None:
+        if s.within_limits is False or s.status is not ReportStatus.IN_RANGE:
             return True
-        if s.within_limits is False:
-            return True
-        return not (s.flags & QuantFlag.IN_RANGE) or bool(s.flags & (QuantFlag.BELOW_LOQ | QuantFlag.UNBOUNDED_INTERVAL))
+        return bool(s.flags and s.flags & (QuantFlag.UNBOUNDED_INTERVAL | QuantFlag.AMBIGUOUS_ROOT))
 
     @property
     def _rule(self):  # type: ignore[no-untyped-def]
@@ -100,7 +100,7 @@ class ResultsModel(QAbstractTableModel):
         if col == SAMPLE:
             return s.sample_id
         if col == REPORTED:
-            return self._rounded(s.reported)
+            return s.reported_text or self._rounded(s.reported)
         if col == INTERVAL:
             if s.reported is None:
                 return ""
@@ -110,10 +110,10 @@ class ResultsModel(QAbstractTableModel):
         if col == KIND:
             return s.kind.words
         if col == QC:
+            verdict = "" if s.within_limits is None else ("pass" if s.within_limits else "FAIL")
             if s.recovery_percent is None:
-                return ""
-            verdict = "" if s.within_limits is None else (" pass" if s.within_limits else " FAIL")
-            return f"{s.recovery_percent:.1f} %{verdict}"
+                return verdict
+            return f"{s.recovery_percent:.1f} % {verdict}".rstrip()
         if col == N:
             return str(len(s.replicate_responses))
         if col == MEAN:
@@ -122,7 +122,7 @@ class ResultsModel(QAbstractTableModel):
             return display_number(s.estimate)
         if col == DILUTION:
             return f"{s.dilution_factor:g}"
-        return display_number(s.reported, 12)
+        return display_number(s.reported, 12)  # the number behind what is reported, at full precision
 
     def description(self, s: SampleResult) -> str:
         """Everything about one sample's result in words (the tooltip and the details line)."""
@@ -130,16 +130,19 @@ class ResultsModel(QAbstractTableModel):
         level = f"{self.result.run.settings.confidence_level:.0%}" if self.result else ""
         parts = [f"{s.kind.words} {s.sample_id}"]
         if s.reported is not None:
-            parts.append(f"reported {self._rounded(s.reported)} {unit} ({level} interval "
+            parts.append(f"reported {s.reported_text or self._rounded(s.reported)}; value {self._rounded(s.reported)} {unit} ({level} interval "
                          f"{interval_text(s.reported_lower, s.reported_upper, self._rule)} {unit}); estimate {display_number(s.estimate)} {unit} × dilution "
                          f"{s.dilution_factor:g}, from the mean of {len(s.replicate_responses)} response(s) "
                          f"{display_number(s.mean_response)}")
         if s.flag_words:
             parts.append(s.flag_words)
         if s.recovery_percent is not None:
+            window = "its check window" if s.kind.is_check else "the QC tolerance"
             parts.append(f"recovery {s.recovery_percent:.1f} % of nominal {display_number(s.nominal)} {unit}"
-                         + ("" if s.within_limits is None else (", within the QC tolerance" if s.within_limits
-                                                                 else ", OUTSIDE the QC tolerance")))
+                         + ("" if s.within_limits is None else (f", within {window}" if s.within_limits
+                                                                 else f", OUTSIDE {window}")))
+        elif s.kind.is_check and s.within_limits is not None:
+            parts.append("calibration check " + ("passed" if s.within_limits else "FAILED"))
         return "; ".join(p.replace("  ", " ") for p in parts)
 
     def as_text(self) -> str:

@@ -16,7 +16,7 @@ from PySide6.QtGui import QBrush
 
 from ..core.run import Measurement, RunError, Sample, SampleKind
 from ..io import run_edits
-from ..io.importing import KIND_WORDS
+from ..io.importing import KIND_CHOICES, KIND_WORDS
 from ..io.paste import PastedBlock
 from .cells import number_from_text, reading_from_text, reading_problem
 from .session import RunSession
@@ -150,7 +150,7 @@ class SamplesModel(QAbstractTableModel):
         if col == KIND:
             kind = KIND_WORDS.get(t.lower()) or next((k for k in SampleKind if k.words == t.lower()), None)
             if kind is None:
-                return refuse("is not a sample kind (unknown, QC, blank, check standard)")
+                return refuse(f"is not a sample kind ({KIND_CHOICES})")
             return True, replace(s, kind=kind)
         if col == ORDER:
             if not t:

@@ -17,7 +17,7 @@ from pathlib import Path
 from PySide6.QtCore import QObject, QRunnable, QStandardPaths, QThreadPool, QTimer, Signal, Slot
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
-from ..core.comparison import ModelComparison, compare
+from ..core.comparison import ModelComparison
 from ..core.errors import CurvewrightError
 from ..core.run import Run
 from ..core.run_analysis import RunResult, analyse_run
@@ -64,20 +64,10 @@ class AnalysisAnswer:
 
 
 def analyse_with_evidence(run: Run) -> tuple[RunResult, dict[str, ModelComparison | str]]:
-    """The run's results and, per analyte, the model comparison on the standards in its fit."""
+    """The run's results and, per analyte, its model comparison (the run's one evidence, computed here
+    on the analysis thread so that the window only reads it)."""
     result = analyse_run(run)
-    evidence: dict[str, ModelComparison | str] = {}
-    for a in result.analytes:
-        if a.calibration is None:
-            evidence[a.analyte.name] = a.error or "no calibration"
-            continue
-        try:
-            evidence[a.analyte.name] = compare(a.calibration.concentration, a.calibration.response,
-                                               include_proportional=True, profile=result.profile,
-                                               level_tolerance=run.settings.level_tolerance)
-        except CurvewrightError as exc:
-            evidence[a.analyte.name] = str(exc)
-    return result, evidence
+    return result, dict(result.evidence)
 
 
 class _AnalysisSignals(QObject):

@@ -55,6 +55,38 @@ class QcRules:
 
 
 @dataclass(frozen=True)
+class CheckRules:
+    """Windows for the calibration checks, each in percent of the nominal (recovery within 100 ± window).
+
+    A window left out (None) is one the profile does not set: a check of that kind cannot be judged,
+    and the run's verdict says so rather than pass it. ``calibration_blank_below`` is what a
+    calibration blank must stay below ("reporting_limit"), or None.
+    """
+
+    icv_tolerance_percent: float | None = None
+    ccv_tolerance_percent: float | None = None
+    low_level_tolerance_percent: float | None = None
+    calibration_blank_below: str | None = None
+    source: str = ""
+
+    def window(self, kind: str) -> float | None:
+        """The window in percent for a check of ``kind`` (a :class:`~.run.SampleKind` value)."""
+        return {"icv": self.icv_tolerance_percent, "ccv": self.ccv_tolerance_percent,
+                "check_standard": self.ccv_tolerance_percent,
+                "low_level_check": self.low_level_tolerance_percent}.get(kind)
+
+
+BELOW_LIMIT_RULES = ("censor", "estimate")
+"""How a result between the detection limit and the reporting limit is reported: as "< limit"
+(``censor``) or as the estimate with a qualifier that it is estimated (``estimate``)."""
+
+
+@dataclass(frozen=True)
+class ReportingRules:
+    between_lod_and_reporting_limit: str = "censor"
+
+
+@dataclass(frozen=True)
 class AcceptanceVerdict:
     """Outcome of judging standards (or QC samples) against a profile.
 
@@ -80,6 +112,8 @@ class AcceptanceProfile:
     source: str
     standards: StandardRules
     qc: QcRules
+    checks: CheckRules = CheckRules()
+    reporting: ReportingRules = ReportingRules()
 
     # --- construction ---------------------------------------------------------------------------
     @classmethod
@@ -109,7 +143,29 @@ class AcceptanceProfile:
             min_fraction_passing=_fraction(q, "min_fraction_passing", where),
             min_fraction_passing_per_level=_fraction(q, "min_fraction_passing_per_level", where),
         )
-        return cls(standards=standards, qc=qc, **text)
+        checks = CheckRules()
+        if data.get("checks") is not None:
+            c = _section(data, "checks", origin)
+            where = f"{origin} checks"
+            blank = c.get("calibration_blank_below")
+            if blank not in (None, "reporting_limit"):
+                raise ProfileError(f"{where}: 'calibration_blank_below' must be \"reporting_limit\" or null, found {blank!r}.")
+            checks = CheckRules(
+                icv_tolerance_percent=_optional_percent(c, "icv_tolerance_percent", where),
+                ccv_tolerance_percent=_optional_percent(c, "ccv_tolerance_percent", where),
+                low_level_tolerance_percent=_optional_percent(c, "low_level_tolerance_percent", where),
+                calibration_blank_below=blank,
+                source=_text(c, "source", where),
+            )
+        reporting = ReportingRules()
+        if data.get("reporting") is not None:
+            r = _section(data, "reporting", origin)
+            rule = r.get("between_lod_and_reporting_limit", "censor")
+            if rule not in BELOW_LIMIT_RULES:
+                raise ProfileError(f"{origin} reporting: 'between_lod_and_reporting_limit' must be one of "
+                                   f"{', '.join(BELOW_LIMIT_RULES)}, found {rule!r}.")
+            reporting = ReportingRules(rule)
+        return cls(standards=standards, qc=qc, checks=checks, reporting=reporting, **text)
 
     def with_limits(
         self,
@@ -150,6 +206,8 @@ class AcceptanceProfile:
             "source": self.source,
             "standards": plain(self.standards),
             "qc": plain(self.qc),
+            "checks": plain(self.checks),
+            "reporting": plain(self.reporting),
         }
 
     # --- judging --------------------------------------------------------------------------------
@@ -334,6 +392,10 @@ def _percent(data: Mapping[str, Any], key: str, where: str) -> float:
     if isinstance(value, bool) or not isinstance(value, (int, float)) or not (0 < value < 1000):
         raise ProfileError(f"{where}: '{key}' must be a percentage above 0, found {value!r}.")
     return float(value)
+
+
+def _optional_percent(data: Mapping[str, Any], key: str, where: str) -> float | None:
+    return None if data.get(key) is None else _percent(data, key, where)
 
 
 def _count(data: Mapping[str, Any], key: str, where: str) -> int:

@@ -89,14 +89,34 @@ class Standard:
 
 
 class SampleKind(str, Enum):
+    """What a sample is in the run. The calibration checks (ICV, CCV, a check standard, the calibration
+    blank and the low-level check at the reporting limit) are judged against windows of their own in
+    the acceptance profile, and bracket the samples measured between them."""
+
     UNKNOWN = "unknown"
     QC = "qc"
     BLANK = "blank"
     CHECK_STANDARD = "check_standard"
+    ICV = "icv"
+    CCV = "ccv"
+    CALIBRATION_BLANK = "calibration_blank"
+    LOW_LEVEL_CHECK = "low_level_check"
 
     @property
     def words(self) -> str:
-        return {"unknown": "unknown", "qc": "QC sample", "blank": "blank", "check_standard": "check standard"}[self.value]
+        return _KIND_WORDS[self.value]
+
+    @property
+    def is_check(self) -> bool:
+        """A calibration check: judged against its own window, and bracketing the samples around it."""
+        return self in (SampleKind.CHECK_STANDARD, SampleKind.ICV, SampleKind.CCV, SampleKind.CALIBRATION_BLANK,
+                        SampleKind.LOW_LEVEL_CHECK)
+
+
+_KIND_WORDS = {
+    "unknown": "unknown", "qc": "QC sample", "blank": "blank", "check_standard": "check standard",
+    "icv": "ICV", "ccv": "CCV", "calibration_blank": "calibration blank", "low_level_check": "reporting-limit check",
+}
 
 
 @dataclass(frozen=True)

@@ -6,26 +6,45 @@ response); any other included standard is reported as not usable, with the reaso
 are averaged (m = number of numeric replicates) and read through the curve; the dilution factor
 multiplies the estimate and both interval ends to give the reported concentration. A censored
 replicate ("ND", "<0.5") gives no numeric result: the sample is reported with its censored text.
-QC samples and check standards are compared with their nominal values (recovery in percent).
+
+Each result is then reported against the calibrated range (LLOQ–ULOQ, the non-zero standards in the
+fit) and the reporting limit (:mod:`.reporting`): one status per result, and its words. QC samples
+are compared with their nominal values (recovery in percent) under the profile's QC rules; the
+calibration checks (ICV, CCV, check standards, calibration blanks, the low-level check) each under
+their own window, and with run order they bracket the samples between them (:mod:`.checks`). A
+failed check fails the run's verdict and is named in its reasons.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
+from functools import cached_property
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
 from .calibration import Calibration, fit
+from .checks import CheckInput, CheckVerdict, bracketing, judge_checks
 from .errors import CurvewrightError, LimitsError
 from .inverse import QuantFlag
 from .limits import DetectionLimits
+from .reporting import ReportingRange, ReportStatus, report_value, reporting_range
 from .run import Analyte, Reading, Run, SampleKind, Standard
+
+if TYPE_CHECKING:  # pragma: no cover
+    from .comparison import ModelComparison
 
 
 @dataclass(frozen=True)
 class SampleResult:
-    """One sample × analyte. Concentrations in the analyte's unit; ``reported_*`` after dilution."""
+    """One sample × analyte. Concentrations in the analyte's unit; ``reported_*`` after dilution.
+
+    ``reported`` is the number (estimate × dilution factor), kept for the reviewer whatever is
+    reported; ``reported_text`` is what stands for the result ("12.3", "< 1.00 ng/mL (LLOQ)", "> 1000
+    ng/mL (ULOQ)", "not reportable"…), by ``status`` (:class:`~.reporting.ReportStatus`); ``flags``
+    agree with it. ``note`` lists replicates that could not be used, or why there is no number.
+    """
 
     sample_id: str
     kind: SampleKind
@@ -46,24 +65,35 @@ class SampleResult:
     nominal: float | None = None
     recovery_percent: float | None = None
     within_limits: bool | None = None
-    """For QC samples and check standards: the recovery lies within the profile's QC tolerance."""
+    """For QC samples: the recovery lies within the profile's QC tolerance; for calibration checks:
+    the check passed its own window."""
+    status: ReportStatus = ReportStatus.NOT_QUANTIFIED
+    reported_text: str = ""
+    words: str = ""
+    short: str = ""
+    suggested_dilution: float | None = None
+    """For a result above the range: the total dilution factor for a re-assay in mid-range."""
 
     @property
     def flag_words(self) -> str:
-        parts = [self.flags.words] if self.flags else []
-        if self.note:
+        """Everything to know about the result, in words (one status, then qualifiers and notes)."""
+        parts = [self.words] if self.words else []
+        if self.note and self.note not in self.words:
             parts.append(self.note)
         return "; ".join(parts)
 
     @property
     def short_flags(self) -> str:
         """The flags as short words for a table cell (``flag_words`` says them in full)."""
-        if self.flags is None:
-            return "censored" if self.note.startswith("reported as censored") else "not quantified"
-        parts = [self.flags.short_words] if self.flags else []
-        if self.note:
-            parts.append("replicate not usable")
-        return ", ".join(parts)
+        if self.estimate is not None and self.note:
+            return f"{self.short}, replicate not usable" if self.short else "replicate not usable"
+        return self.short
+
+    @property
+    def reportable(self) -> bool:
+        """A number may be reported for this result (inside the range, or estimated where allowed)."""
+        return self.status is ReportStatus.IN_RANGE or (
+            self.status is ReportStatus.BELOW_REPORTING_LIMIT and "estimated" in self.short)
 
 
 @dataclass(frozen=True)
@@ -89,10 +119,14 @@ class AnalyteResult:
     qc_verdict: AcceptanceVerdict | None
     samples: tuple[SampleResult, ...]
     model_overridden: bool = False
+    checks: CheckVerdict | None = None
+    reporting: ReportingRange | None = None
 
     @property
     def accepted(self) -> bool:
         if self.verdict is None or not self.verdict.passed:
+            return False
+        if self.checks is not None and not self.checks.passed:
             return False
         return self.qc_verdict is None or self.qc_verdict.passed
 
@@ -119,7 +153,29 @@ class RunResult:
                 out.append(f"{name}: standards: {r}")
             for r in a.qc_verdict.reasons if a.qc_verdict else ():
                 out.append(f"{name}: QC: {r}")
+            for r in a.checks.reasons if a.checks else ():
+                out.append(f"{name}: calibration check: {r}")
         return tuple(out)
+
+    @cached_property
+    def evidence(self) -> dict[str, "ModelComparison | str"]:
+        """Per analyte, the comparison of candidate models on the standards in its fit, judged by the
+        run's profile and level tolerance (the one model evidence every output shows), or why there is
+        none."""
+        from .comparison import compare
+
+        out: dict[str, ModelComparison | str] = {}
+        for a in self.analytes:
+            if a.calibration is None:
+                out[a.analyte.name] = a.error or "no calibration"
+                continue
+            try:
+                out[a.analyte.name] = compare(a.calibration.concentration, a.calibration.response,
+                                              include_proportional=True, profile=self.profile,
+                                              level_tolerance=self.run.settings.level_tolerance)
+            except CurvewrightError as exc:
+                out[a.analyte.name] = str(exc)
+        return out
 
     def analyte(self, name: str) -> AnalyteResult:
         for a in self.analytes:
@@ -209,10 +265,26 @@ def _analyse_analyte(
     excluded_nonzero = sum(1 for s in excluded if s.concentration != 0)
     unusable_nonzero = sum(1 for u in unusable if analyte.standard(u.standard_id).concentration != 0)
     verdict = profile.evaluate(cal, excluded=excluded_nonzero, unusable=unusable_nonzero)
+    unit = analyte.concentration_unit
+    rng = reporting_range(cal.concentration, limits.lod if limits else None, limits.loq if limits else None, unit)
+    samples = tuple(_report(s, rng, run, profile, unit) for s in _quantify_samples(run, analyte, cal, limits))
+    checks = judge_checks([CheckInput(s.sample_id, s.kind, s.run_order, s.nominal, s.reported, s.status,
+                                      s.dilution_factor, s.note) for s in samples],
+                          profile.checks, rng, profile.name, unit)
+    if checks is not None:
+        by_id = {c.sample_id: c for c in checks.checks}
+        unbracketed = bracketing([(s.sample_id, s.run_order) for s in samples if not s.kind.is_check], checks.checks)
+        samples = tuple(
+            replace(s, within_limits=by_id[s.sample_id].passed, recovery_percent=by_id[s.sample_id].recovery_percent)
+            if s.sample_id in by_id else
+            _report(s, rng, run, profile, unit, not_reportable=unbracketed[s.sample_id])
+            if s.sample_id in unbracketed and s.estimate is not None else s
+            for s in samples
+        )
     samples = tuple(
         replace(s, within_limits=abs(s.recovery_percent - 100.0) <= profile.qc.tolerance_percent + 1e-9)
-        if s.recovery_percent is not None and s.kind in (SampleKind.QC, SampleKind.CHECK_STANDARD) else s
-        for s in _quantify_samples(run, analyte, cal, limits)
+        if s.recovery_percent is not None and s.kind is SampleKind.QC else s
+        for s in samples
     )
     qc = [s for s in samples if s.kind is SampleKind.QC and s.nominal is not None and s.reported is not None]
     qc_verdict = profile.evaluate_qc([s.nominal for s in qc], [s.reported for s in qc]) if qc else None
@@ -229,7 +301,20 @@ def _analyse_analyte(
         qc_verdict=qc_verdict,
         samples=samples,
         model_overridden=overridden,
+        checks=checks,
+        reporting=rng,
     )
+
+
+def _report(s: SampleResult, rng: ReportingRange, run: Run, profile: AcceptanceProfile, unit: str,
+            not_reportable: str = "") -> SampleResult:
+    """The sample with what is reported for it (status, text, words, agreeing flags)."""
+    engine = s.flags
+    value = report_value(s.estimate, s.dilution_factor, engine, rng, run.settings.rounding, unit=unit,
+                         below_limit=profile.reporting.between_lod_and_reporting_limit,
+                         not_quantified=s.note if s.estimate is None else "", not_reportable=not_reportable)
+    return replace(s, status=value.status, reported_text=value.text, words=value.words, short=value.short,
+                   flags=value.flags if s.estimate is not None else engine, suggested_dilution=value.suggested_dilution)
 
 
 def _quantify_samples(

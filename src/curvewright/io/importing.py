@@ -64,8 +64,16 @@ KIND_WORDS = {
     "qc": SampleKind.QC, "quality control": SampleKind.QC, "control": SampleKind.QC,
     "blank": SampleKind.BLANK, "blk": SampleKind.BLANK, "method blank": SampleKind.BLANK,
     "check": SampleKind.CHECK_STANDARD, "check standard": SampleKind.CHECK_STANDARD, "check_standard": SampleKind.CHECK_STANDARD,
-    "icv": SampleKind.CHECK_STANDARD, "ccv": SampleKind.CHECK_STANDARD,
+    "icv": SampleKind.ICV, "initial calibration verification": SampleKind.ICV,
+    "ccv": SampleKind.CCV, "continuing calibration verification": SampleKind.CCV,
+    "ccb": SampleKind.CALIBRATION_BLANK, "icb": SampleKind.CALIBRATION_BLANK, "calibration blank": SampleKind.CALIBRATION_BLANK,
+    "calibration_blank": SampleKind.CALIBRATION_BLANK,
+    "low-level check": SampleKind.LOW_LEVEL_CHECK, "low level check": SampleKind.LOW_LEVEL_CHECK,
+    "reporting-limit check": SampleKind.LOW_LEVEL_CHECK, "reporting limit check": SampleKind.LOW_LEVEL_CHECK,
+    "llcv": SampleKind.LOW_LEVEL_CHECK, "low_level_check": SampleKind.LOW_LEVEL_CHECK,
 }
+KIND_CHOICES = "unknown, QC, blank, check standard, ICV, CCV, calibration blank (CCB), reporting-limit check"
+"""The sample kinds in words, for messages."""
 
 
 @dataclass(frozen=True)
@@ -276,7 +284,7 @@ def import_samples(
         kind_text = ctx.text(cells, "kind", row_number).lower()
         kind = KIND_WORDS.get(kind_text)
         if kind is None:
-            ctx.reject(row_number, "kind", kind_text, "not a sample kind (unknown, QC, blank, check standard)", row_fails=True)
+            ctx.reject(row_number, "kind", kind_text, f"not a sample kind ({KIND_CHOICES})", row_fails=True)
         response = ctx.sample_reading(cells, "response", row_number, sid)
         is_response = ctx.sample_reading(cells, "is_response", row_number, sid) if "is_response" in ctx.mapping else None
         dilution = ctx.number(cells, "dilution", row_number)

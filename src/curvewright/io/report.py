@@ -13,10 +13,10 @@ from dataclasses import dataclass
 from datetime import datetime, timezone
 
 from .. import CAUTION, __version__
-from ..core.comparison import compare
-from ..core.errors import CurvewrightError
+from ..core.comparison import ModelComparison
 from ..core.run_analysis import AnalyteResult, RunResult
-from .result_tables import Column, Table, audit_table, calibration_table, interval_words, samples_table, standards_table
+from .result_tables import (Column, Table, audit_table, calibration_table, checks_table, interval_words, samples_table,
+                            standards_table)
 
 FORMULA_SOURCES = (
     "Least squares by QR decomposition on a centred, scaled basis (Björck 1996); weights scaled to sum to n "
@@ -40,8 +40,8 @@ STANDARD_ACCURACY_COLUMNS = ("Standard id", "Level", "Replicate", "Nominal conce
                              "Exclusion reason")
 STANDARD_INFLUENCE_COLUMNS = ("Standard id", "Leverage", "Cook's distance", "Studentized residual", "Influence flags")
 SAMPLE_COLUMNS = ("Sample id", "Kind", "Run order", "Replicates", "Mean response", "Dilution factor",
-                  "Reported concentration", "Reported (rounded)", "Lower limit", "Upper limit", "Flags", "Nominal",
-                  "Recovery (%)")
+                  "Concentration × dilution", "Reported", "Lower limit", "Upper limit", "Status", "Flags", "Nominal",
+                  "Recovery (%)", "QC or check")
 
 
 @dataclass(frozen=True)
@@ -91,8 +91,9 @@ class ReportContent:
         return "\n".join(parts)
 
 
-def evidence_table(a: AnalyteResult) -> tuple[Table, tuple[str, ...]]:
-    """The model-evidence table for the standards in the fit, with the recommendation's reasons."""
+def evidence_table(result: RunResult, a: AnalyteResult) -> tuple[Table, tuple[str, ...]]:
+    """The model-evidence table for the standards in the fit, with the recommendation's reasons: the
+    run's one comparison (:attr:`RunResult.evidence`, judged by the run's profile), as every output shows it."""
     cal = a.calibration
     columns = (
         Column("Model"), Column("Weighting"), Column("Residual SD", kind="number"), Column("Adjusted R²", kind="number"),
@@ -101,25 +102,24 @@ def evidence_table(a: AnalyteResult) -> tuple[Table, tuple[str, ...]]:
     )
     if cal is None:
         return Table("Model evidence", columns, ()), (f"no comparison: {a.error}",)
-    try:
-        result = compare(cal.concentration, cal.response, include_proportional=True)
-    except CurvewrightError as exc:
-        return Table("Model evidence", columns, ()), (f"no comparison: {exc}",)
+    comparison = result.evidence.get(a.analyte.name)
+    if not isinstance(comparison, ModelComparison):
+        return Table("Model evidence", columns, ()), (f"no comparison: {comparison}",)
     rows = []
-    for c in result.candidates:
+    for c in comparison.candidates:
         rows.append((
             c.model.value, c.weighting.value, c.residual_sd, c.adjusted_r_squared, c.lack_of_fit_p,
             c.mandel.p_value if c.mandel else None, c.sum_abs_relative_error, c.standards_failing, c.aicc,
-            "recommended" if c is result.recommended else "",
+            "recommended" if c is comparison.recommended else "",
             "chosen" if (c.model is cal.model and c.weighting is cal.weighting) else "",
         ))
     skipped: dict[str, list[str]] = {}
-    for s in result.skipped:
+    for s in comparison.skipped:
         reason = s.reason.split(": ", 1)[-1] if s.reason.startswith("weighting") else s.reason
         skipped.setdefault(s.weighting.value, [])
         if reason not in skipped[s.weighting.value]:
             skipped[s.weighting.value].append(reason)
-    reasons = tuple(result.reasons) + tuple(
+    reasons = tuple(comparison.reasons) + tuple(
         f"not fitted with {w} weighting: {'; '.join(why)}" for w, why in skipped.items()
     )
     return Table("Model evidence", columns, tuple(rows)), reasons
@@ -150,10 +150,10 @@ def build_report(result: RunResult, *, generated: datetime | None = None) -> Rep
                                      "unknowns with their concentration intervals; calibrated range and LOQ marked."))
             blocks.append(FigureSlot("residuals", name, f"{name}: relative error of each back-calculated standard against "
                                      "concentration, with the acceptance limits."))
-            blocks.append(FigureSlot("influence", name, f"{name}: leverage against internally studentized residual, "
+            blocks.append(FigureSlot("influence", name, f"{name}: leverage against the externally studentized residual, "
                                      "with Cook's distance contours at 4/n and 1; flagged standards labelled."))
         blocks.append(calibration_table(a, result))
-        table, reasons = evidence_table(a)
+        table, reasons = evidence_table(result, a)
         blocks.append(table)
         blocks.append(Paragraph(f"Chosen: {a.analyte.model}, {a.analyte.weighting}. Reason given: "
                                 f"{a.analyte.choice_reason or '(none recorded)'}", "body"))
@@ -161,9 +161,14 @@ def build_report(result: RunResult, *, generated: datetime | None = None) -> Rep
         standards = standards_table(a)
         blocks.append(standards.select(STANDARD_ACCURACY_COLUMNS, f"Standards – {name}: back-calculated accuracy"))
         blocks.append(standards.select(STANDARD_INFLUENCE_COLUMNS, f"Standards – {name}: influence"))
+        if a.checks is not None:
+            blocks.append(checks_table(a))
+            blocks.append(Paragraph(f"Check windows: {result.profile.checks.source}", "small"))
+        range_words = "" if a.reporting is None else (
+            f" Calibrated range {a.reporting.lloq:g}–{a.reporting.uloq:g} (LLOQ–ULOQ); {a.reporting.note}.")
         blocks.append(Paragraph(f"Samples – {name}: concentrations in {a.analyte.concentration_unit} after dilution; "
                                 f"interval: {interval_words(result)}; reported values rounded to "
-                                f"{run.settings.rounding.description}.", "subheading"))
+                                f"{run.settings.rounding.description}.{range_words}", "subheading"))
         blocks.append(samples_table(result).select(SAMPLE_COLUMNS, f"Samples – {name}", where=("Analyte", name)))
     blocks.append(PageBreak())
     blocks.append(audit_table(result))

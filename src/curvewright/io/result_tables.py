@@ -19,6 +19,7 @@ from ..core.calibration import Calibration, fit
 from ..core.errors import CurvewrightError
 from ..core.models import Model
 from ..core.rounding import RoundingRule
+from ..core.reporting import ReportStatus
 from ..core.run_analysis import AnalyteResult, RunResult, response_value
 from .audit import verify_chain
 
@@ -62,15 +63,17 @@ def interval_words(run_result: RunResult) -> str:
 
 
 def samples_table(result: RunResult) -> Table:
+    """One row per sample × analyte: what is reported (text), and the working behind it at full precision."""
     rule = result.run.settings.rounding
     unit = {a.analyte.name: a.analyte.concentration_unit for a in result.analytes}
     columns = (
         Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Run order", kind="int"),
         Column("Replicates", kind="int"), Column("Replicate responses"), Column("Mean response", kind="number"),
         Column("Estimated concentration", kind="number"), Column("Dilution factor", kind="number"),
-        Column("Reported concentration", kind="number"), Column("Reported (rounded)", kind="reported"),
+        Column("Concentration × dilution", kind="number"), Column("Reported", kind="reported"),
         Column("Lower limit", kind="number"), Column("Upper limit", kind="number"), Column("Interval"),
-        Column("Unit"), Column("Flags"), Column("Nominal", kind="number"), Column("Recovery (%)", kind="number"),
+        Column("Unit"), Column("Status"), Column("Flags"), Column("Suggested dilution", kind="number"),
+        Column("Nominal", kind="number"), Column("Recovery (%)", kind="number"), Column("QC or check"),
     )
     words = interval_words(result)
     rows = []
@@ -79,11 +82,38 @@ def samples_table(result: RunResult) -> Table:
             rows.append((
                 s.sample_id, s.kind.words, s.analyte, s.run_order, len(s.replicate_responses),
                 " | ".join(repr(v) for v in s.replicate_responses), s.mean_response, s.estimate, s.dilution_factor,
-                s.reported, None if s.reported is None else rule.text(s.reported),
+                s.reported, s.reported_text or (None if s.reported is None else rule.text(s.reported)),
                 s.reported_lower, s.reported_upper, words if s.reported is not None else "",
-                unit[s.analyte], s.flag_words, s.nominal, s.recovery_percent,
+                unit[s.analyte], STATUS_WORDS[s.status], s.flag_words, s.suggested_dilution, s.nominal,
+                s.recovery_percent, verdict_word(s.within_limits),
             ))
     return Table("Samples", columns, tuple(rows))
+
+
+STATUS_WORDS = {
+    ReportStatus.IN_RANGE: "reported", ReportStatus.ABOVE_RANGE: "above the range",
+    ReportStatus.BELOW_REPORTING_LIMIT: "below the reporting limit", ReportStatus.BELOW_LOD: "below the detection limit",
+    ReportStatus.NOT_QUANTIFIED: "not quantified", ReportStatus.NOT_REPORTABLE: "not reportable",
+}
+"""The status of a result in words (the same in every output)."""
+
+
+def verdict_word(within: bool | None) -> str:
+    return "" if within is None else ("pass" if within else "FAIL")
+
+
+def checks_table(a: AnalyteResult) -> Table:
+    """The calibration checks of one analyte: recovery, window and verdict, with the reason."""
+    unit = a.analyte.concentration_unit
+    columns = (Column("Check"), Column("Kind"), Column("Run order", kind="int"), Column("Nominal", unit, "number"),
+               Column("Found", unit, "number"), Column("Recovery (%)", kind="number"),
+               Column("Window (± %)", kind="number"), Column("Verdict"), Column("Reason"))
+    rows = tuple(
+        (c.sample_id, c.kind.words, c.run_order, c.nominal, c.found, c.recovery_percent, c.window_percent,
+         "pass" if c.passed else "FAIL", c.reason.split(": ", 2)[-1])
+        for c in (a.checks.checks if a.checks else ())
+    )
+    return Table(f"Calibration checks – {a.analyte.name}", columns, rows)
 
 
 def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
@@ -126,8 +156,12 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     mandel = _mandel(cal)
     rows.append(("Mandel's test PG (ISO 8466-1)", mandel[0], None))
     rows.append(("Mandel's test p", mandel[1], None))
-    low, high = cal.calibrated_range
-    rows += [("Calibrated range, lowest standard", low, None), ("Calibrated range, highest standard", high, None)]
+    if a.reporting is not None:
+        rows += [("Calibrated range, LLOQ (lowest non-zero standard)", a.reporting.lloq, None),
+                 ("Calibrated range, ULOQ (highest standard)", a.reporting.uloq, None),
+                 (f"Reporting limit ({a.reporting.basis})", a.reporting.reporting_limit, None),
+                 ("Reporting limit, why", a.reporting.note, None),
+                 ("Between the LOD and the reporting limit", BELOW_LIMIT_WORDS[result.profile.reporting.between_lod_and_reporting_limit], None)]
     if cal.vertex is not None:
         rows.append(("Vertex of the quadratic", cal.vertex, None))
     for note in cal.notes:
@@ -147,6 +181,10 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     if a.qc_verdict is not None:
         rows.append(("QC verdict", "accepted" if a.qc_verdict.passed else "NOT accepted", None))
         rows += [("QC reason", r, None) for r in a.qc_verdict.reasons]
+    if a.checks is not None:
+        rows.append(("Calibration checks verdict", "accepted" if a.checks.passed else "NOT accepted", None))
+        rows += [("Calibration check", r, None) for r in a.checks.reasons]
+        rows.append(("Calibration check windows, source", result.profile.checks.source, None))
     for u in a.unusable_standards:
         rows.append(("Standard not usable", f"{u.standard_id}: {u.reason}", None))
     return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value"), Column("Standard error")), tuple(rows))
@@ -206,10 +244,16 @@ def audit_table(result: RunResult) -> Table:
     return Table("Audit trail", columns, tuple(rows))
 
 
+BELOW_LIMIT_WORDS = {"censor": "reported as below the reporting limit (\"< limit\")",
+                     "estimate": "reported as estimated values, marked so; below the LOD as \"< LOD\""}
+
+
 def all_tables(result: RunResult) -> tuple[Table, ...]:
     tables = [samples_table(result)]
     for a in result.analytes:
         tables += [calibration_table(a, result), standards_table(a)]
+        if a.checks is not None:
+            tables.append(checks_table(a))
     tables.append(audit_table(result))
     return tuple(tables)
 

@@ -1,0 +1,186 @@
+"""How each result is reported against the calibrated range and the limits.
+
+The calibrated range runs from the lowest to the highest non-zero standard in the fit, the LLOQ and
+the ULOQ: a zero standard (a blank used as a point of the curve) does not stretch it. The
+reporting limit is the larger of the LLOQ and the computed LOQ (when the limits method gives one);
+which one stands is said in a note. Ranges and limits apply to the solution measured, so a
+diluted sample's limits are multiplied by its dilution factor.
+
+Each result has exactly one status, and its words, short words and flags all follow from it, so
+that no sample is called "inside the calibrated range" and "below the LOQ" at once:
+
+========================  =========================================================================
+``IN_RANGE``              reporting limit ≤ x̂ ≤ ULOQ: reported as the number
+``ABOVE_RANGE``           x̂ > ULOQ: reported as "> ULOQ", with the dilution that brings it to the
+                          middle of the range, (LLOQ + ULOQ)/2, for the re-assay
+``BELOW_REPORTING_LIMIT`` LOD ≤ x̂ < reporting limit: "< reporting limit", or, where the profile
+                          allows it (``estimate``), the number marked as estimated
+``BELOW_LOD``             x̂ < LOD: "< reporting limit" (with ``estimate``: "< LOD")
+``NOT_QUANTIFIED``        no numeric result (censored, unreadable, no solution on the curve)
+``NOT_REPORTABLE``        a number exists but may not be reported (not bracketed by passing
+                          calibration checks); the reason says why
+========================  =========================================================================
+
+Sources: reporting study-sample results below the LLOQ as below it, and diluting samples above the
+ULOQ into the range rather than extrapolating, is the practice ICH M10 sets for study samples and
+common practice elsewhere (from memory, not re-read); the dilution target in mid-range and the 1-2-5
+series of suggested factors are common practice.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from enum import Enum
+
+from .inverse import QuantFlag
+from .rounding import RoundingRule
+
+
+class ReportStatus(str, Enum):
+    IN_RANGE = "in_range"
+    ABOVE_RANGE = "above_range"
+    BELOW_REPORTING_LIMIT = "below_reporting_limit"
+    BELOW_LOD = "below_lod"
+    NOT_QUANTIFIED = "not_quantified"
+    NOT_REPORTABLE = "not_reportable"
+
+
+@dataclass(frozen=True)
+class ReportingRange:
+    """The range and limits results are reported against, in the concentration unit of the standards
+    (the solution measured). ``basis`` says which limit is the reporting limit: "LLOQ" or "LOQ"."""
+
+    lloq: float
+    uloq: float
+    lod: float | None
+    loq: float | None
+    reporting_limit: float
+    basis: str
+    note: str
+
+    @property
+    def middle(self) -> float:
+        """The concentration a diluted re-assay aims at: the middle of the calibrated range."""
+        return 0.5 * (self.lloq + self.uloq)
+
+
+def reporting_range(concentrations: object, lod: float | None, loq: float | None, unit: str = "") -> ReportingRange:
+    """The calibrated range of the standards in the fit and the reporting limit.
+
+    ``concentrations`` are the nominal concentrations of the standards in the fit; ``lod`` and
+    ``loq`` the computed limits (None where the method gives none).
+    """
+    values = [float(c) for c in concentrations]  # type: ignore[attr-defined]
+    positive = [c for c in values if c > 0]
+    if not positive:
+        raise ValueError("no standard of non-zero concentration: the calibrated range is not defined")
+    lloq, uloq = min(positive), max(positive)
+    u = f" {unit}" if unit else ""
+    if loq is not None and math.isfinite(loq) and loq > lloq:
+        return ReportingRange(lloq, uloq, lod, loq, loq, "LOQ",
+                              f"the computed LOQ ({loq:.4g}{u}) lies above the lowest standard ({lloq:g}{u}): the "
+                              "reporting limit is the LOQ, and results between them are below it")
+    note = (f"the computed LOQ ({loq:.4g}{u}) lies below the lowest standard ({lloq:g}{u}): the reporting limit is "
+            "the LLOQ, the lowest standard" if loq is not None and math.isfinite(loq)
+            else "the reporting limit is the LLOQ, the lowest standard (no LOQ was computed)")
+    return ReportingRange(lloq, uloq, lod, loq, lloq, "LLOQ", note)
+
+
+@dataclass(frozen=True)
+class ReportedValue:
+    """What is reported for one result: its status, the text that stands for the value, the flags in
+    words and in short words, the flag bits that agree with them, and for a result above the range the
+    total dilution factor suggested for the re-assay."""
+
+    status: ReportStatus
+    text: str
+    words: str
+    short: str
+    flags: QuantFlag | None
+    suggested_dilution: float | None = None
+
+
+def report_value(
+    estimate: float | None,
+    dilution: float,
+    flags: QuantFlag | None,
+    rng: ReportingRange,
+    rule: RoundingRule,
+    *,
+    unit: str = "",
+    below_limit: str = "censor",
+    not_quantified: str = "",
+    not_reportable: str = "",
+) -> ReportedValue:
+    """Report one result: ``estimate`` is the concentration in the solution measured (before the
+    dilution factor), ``flags`` the quantitation flags of the engine (for the no-solution, two-root and
+    unbounded-interval qualifiers). ``not_quantified`` gives the reason when there is no number;
+    ``not_reportable`` the reason a number may not be reported."""
+    u = f" {unit}" if unit else ""
+    extra = flags & (QuantFlag.AMBIGUOUS_ROOT | QuantFlag.UNBOUNDED_INTERVAL) if flags is not None else QuantFlag(0)
+    qualifiers = [extra.words] if extra else []
+    short_qualifiers = [extra.short_words] if extra else []
+    if estimate is None or (flags is not None and QuantFlag.NO_SOLUTION in flags):
+        reason = not_quantified or (QuantFlag.NO_SOLUTION.words if flags is not None else "no numeric result")
+        censored = reason.startswith("reported as censored")
+        return ReportedValue(ReportStatus.NOT_QUANTIFIED, "not quantified" if not censored else reason.split(": ", 1)[-1],
+                             reason, "censored" if censored else "not quantified", flags)
+    reported = estimate * dilution
+    bits = QuantFlag(0)
+    if estimate < rng.lloq:
+        bits |= QuantFlag.BELOW_RANGE
+    elif estimate > rng.uloq:
+        bits |= QuantFlag.ABOVE_RANGE
+    else:
+        bits |= QuantFlag.IN_RANGE if estimate >= rng.reporting_limit else QuantFlag(0)
+    if estimate < rng.reporting_limit:
+        bits |= QuantFlag.BELOW_LOQ
+    if rng.lod is not None and estimate < rng.lod:
+        bits |= QuantFlag.BELOW_LOD
+    bits |= extra
+    diluted = f" × dilution {dilution:g}" if dilution != 1 else ""
+    limit_text = f"{rule.text(rng.reporting_limit * dilution)}{u} ({rng.basis}{diluted})"
+    if not_reportable:
+        return ReportedValue(ReportStatus.NOT_REPORTABLE, "not reportable",
+                             "; ".join([f"not reportable: {not_reportable}"] + qualifiers),
+                             ", ".join(["not reportable"] + short_qualifiers), bits)
+    if estimate > rng.uloq:
+        factor = estimate / rng.middle
+        total = dilution * _one_two_five(factor)
+        words = (f"above the calibrated range (ULOQ {rule.text(rng.uloq * dilution)}{u}{diluted}): not reported as a "
+                 f"number; re-assay at a dilution of ×{total:g} to bring it to mid-range")
+        return ReportedValue(ReportStatus.ABOVE_RANGE, f"> {rule.text(rng.uloq * dilution)}{u} (ULOQ{diluted})",
+                             "; ".join([words] + qualifiers), ", ".join(["> ULOQ"] + short_qualifiers), bits, total)
+    if estimate < rng.reporting_limit:
+        below_lod = rng.lod is not None and estimate < rng.lod
+        status = ReportStatus.BELOW_LOD if below_lod else ReportStatus.BELOW_REPORTING_LIMIT
+        if below_limit == "estimate":
+            if below_lod:
+                text = f"< {rule.text(rng.lod * dilution)}{u} (LOD{diluted})"  # type: ignore[operator]
+                words = "below the detection limit (LOD): not detected"
+                short = "< LOD"
+            else:
+                text = f"{rule.text(reported)}{u} (estimated, below {rng.basis})"
+                words = f"estimated: between the detection limit and the reporting limit of {limit_text}"
+                short = "estimated"
+        else:
+            text = f"< {limit_text}"
+            words = (f"below the reporting limit of {limit_text}"
+                     + ("; below the detection limit (LOD)" if below_lod else ""))
+            short = f"< {rng.basis}" + (", < LOD" if below_lod else "")
+        return ReportedValue(status, text, "; ".join([words] + qualifiers), ", ".join([short] + short_qualifiers), bits)
+    return ReportedValue(ReportStatus.IN_RANGE, rule.text(reported),
+                         "; ".join(["inside the calibrated range"] + qualifiers),
+                         ", ".join(["in range"] + short_qualifiers), bits)
+
+
+def _one_two_five(factor: float) -> float:
+    """The smallest dilution of the 1-2-5 series (2, 5, 10, 20, 50, …) at least ``factor``."""
+    if not math.isfinite(factor) or factor <= 1:
+        return 2.0
+    decade = 10.0 ** math.floor(math.log10(factor))
+    for step in (1.0, 2.0, 5.0, 10.0):
+        if step * decade >= factor * (1 - 1e-12):
+            return step * decade
+    return 10.0 * decade
