@@ -628,6 +628,8 @@ def summary_text(  # type: ignore[no-untyped-def]
     run = result.run
     lines = [f"Run: {run.name}" + (f"  ({source})" if source else ""),
              f"Profile: {result.profile.name}; verdict: {'ACCEPTED' if result.accepted else 'NOT ACCEPTED'}"]
+    if result.profile.caveat:
+        lines.append(f"About the profile: {result.profile.caveat}")
     lines += notes
     for a in result.analytes:
         unit = a.analyte.concentration_unit.strip()
@@ -726,7 +728,7 @@ def result_json(  # type: ignore[no-untyped-def]
     run = result.run
     out: dict[str, Any] = {
         "run": run.name, "source": str(source) if source else None, "software_version": __version__,
-        "accepted": result.accepted, "reasons": list(result.reasons), "profile": result.profile.name,
+        "accepted": result.accepted, "reasons": list(result.reasons), "profile": result.profile.name, "profile_caveat": result.profile.caveat or None,
         "confidence_level": run.settings.confidence_level, "interval": run.settings.interval,
         "audit_chain_verified": not verify_chain(run.audit), "caution": CAUTION,
         "files_written": [{"kind": a, "path": p, "sha256": s} for a, p, s in written],

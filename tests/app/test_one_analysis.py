@@ -48,6 +48,9 @@ def test_every_output_reads_one_analysis(demo, make_window, tmp_path) -> None:
     assert f"verdict: {word}" in text and f"Run {word}" in window.verdict.text()
     pages = " ".join(page.extract_text() for page in PdfReader(record).pages)
     assert squeeze(f"Run verdict: {word}") in squeeze(pages)
+    # what the laboratory must confirm about the profile stands beside every verdict
+    assert engine.profile.caveat and squeeze(engine.profile.caveat) in squeeze(pages)
+    assert engine.profile.caveat in text and data["profile_caveat"] == engine.profile.caveat
 
     book = openpyxl.load_workbook(workbook)
     rows = list(book["Samples"].iter_rows(min_row=3, values_only=True))

@@ -113,3 +113,25 @@ def test_malformed_profiles_name_the_field(change, message) -> None:
 def test_unknown_profile_lists_the_known_ones() -> None:
     with pytest.raises(cw.ProfileError, match="ich-m10-chromatographic"):
         cw.load_profile("strictest")
+
+
+def test_the_m10_profiles_carry_the_caveat_that_their_limits_were_not_confirmed() -> None:
+    # The ICH M10 limits (±15/±20 %, 75 %, six levels; ligand binding ±20/±25 %) were checked against
+    # secondary sources quoting the guideline, not against its primary text: the profiles say so,
+    # and every verdict under them carries the caveat.
+    for pid in ("ich-m10-chromatographic", "ich-m10-ligand-binding"):
+        profile = cw.load_profile(pid)
+        assert "not confirmed against the primary text" in profile.caveat
+        assert "must confirm" in profile.caveat
+        assert profile.to_mapping()["caveat"] == profile.caveat
+    assert "common practice" in cw.load_profile("general").caveat
+
+
+def test_profiles_define_check_windows_or_say_they_set_none() -> None:
+    general = cw.load_profile("general")
+    # laboratory-set defaults, marked common practice in the profile's file
+    assert (general.checks.icv_tolerance_percent, general.checks.ccv_tolerance_percent,
+            general.checks.low_level_tolerance_percent) == (10.0, 10.0, 30.0)
+    assert "Common practice" in general.checks.source
+    m10 = cw.load_profile("ich-m10-chromatographic")
+    assert m10.checks.window("ccv") is None and "sets no windows" in m10.checks.source

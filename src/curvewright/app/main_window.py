@@ -371,7 +371,7 @@ class MainWindow(QMainWindow):
         failing = [r for r in result.reasons if "FAIL" in r]
         detail = "; ".join(failing[:3]) if failing else f"all checks of {result.profile.name} pass"
         self.verdict.setText(f"<b style='color:{colour}'>{word}</b> — {detail}")
-        self.verdict.setToolTip("\n".join(result.reasons))
+        self.verdict.setToolTip("\n".join(result.reasons + ((result.profile.caveat,) if result.profile.caveat else ())))
 
     def attention_lines(self, result: RunResult | None) -> list[str]:
         """What the analyst should see to before signing, beyond the verdict (missing units, samples

@@ -114,6 +114,8 @@ class AcceptanceProfile:
     qc: QcRules
     checks: CheckRules = CheckRules()
     reporting: ReportingRules = ReportingRules()
+    caveat: str = ""
+    """What the laboratory must confirm before relying on the profile (printed with every verdict)."""
 
     # --- construction ---------------------------------------------------------------------------
     @classmethod
@@ -165,7 +167,10 @@ class AcceptanceProfile:
                 raise ProfileError(f"{origin} reporting: 'between_lod_and_reporting_limit' must be one of "
                                    f"{', '.join(BELOW_LIMIT_RULES)}, found {rule!r}.")
             reporting = ReportingRules(rule)
-        return cls(standards=standards, qc=qc, checks=checks, reporting=reporting, **text)
+        caveat = data.get("caveat", "")
+        if not isinstance(caveat, str):
+            raise ProfileError(f"{origin}: 'caveat' must be text, found {caveat!r}.")
+        return cls(standards=standards, qc=qc, checks=checks, reporting=reporting, caveat=caveat, **text)
 
     def with_limits(
         self,
@@ -208,6 +213,7 @@ class AcceptanceProfile:
             "qc": plain(self.qc),
             "checks": plain(self.checks),
             "reporting": plain(self.reporting),
+            "caveat": self.caveat,
         }
 
     # --- judging --------------------------------------------------------------------------------

@@ -134,6 +134,8 @@ def build_report(result: RunResult, *, generated: datetime | None = None) -> Rep
         Paragraph(f"Generated {when} by Curvewright {__version__}. Acceptance profile: {result.profile.name}. "
                   f"Run verdict: {'ACCEPTED' if result.accepted else 'NOT ACCEPTED'}.", "body"),
     ]
+    if result.profile.caveat:
+        blocks.append(Paragraph(f"About the profile: {result.profile.caveat}", "small"))
     if run.description:
         blocks.append(Paragraph(run.description, "small"))
     for i, a in enumerate(result.analytes):
