@@ -10,6 +10,7 @@ import json
 import re
 import subprocess
 import sys
+import unicodedata
 
 import openpyxl
 import pytest
@@ -24,8 +25,9 @@ from tests.app.conftest import DEMOS, ROOT
 
 
 def squeeze(text: str) -> str:
-    """Text without any white space, so that a word wrapped in a narrow table cell still matches."""
-    return re.sub(r"\s+", "", text)
+    """Text without any white space, so that a word wrapped in a narrow table cell still matches (and
+    NFKC-normalised: the PDF's text has typographic ligatures such as "ﬁ")."""
+    return re.sub(r"\s+", "", unicodedata.normalize("NFKC", text))
 
 
 @pytest.mark.parametrize("demo", DEMOS, ids=[p.stem for p in DEMOS])
