@@ -15,6 +15,26 @@ ROOT = Path(__file__).resolve().parents[2]
 DEMOS = sorted((ROOT / "sample_runs").glob("*.json"))
 
 
+@pytest.fixture(autouse=True)
+def unanswered_dialogs_fail(monkeypatch):
+    """A dialog that waits for an answer the test does not give fails the test instead of hanging it
+    (tests answer dialogs with ``answer_dialogs`` or by patching that dialog's ``exec``)."""
+    from PySide6.QtWidgets import QDialog, QFileDialog, QInputDialog, QMessageBox
+
+    def waits(what: str):  # type: ignore[no-untyped-def]
+        def refuse(*args, **kwargs):  # type: ignore[no-untyped-def]
+            shown = args[0].windowTitle() if args and hasattr(args[0], "windowTitle") and what == "dialog" else args[1:3]
+            raise AssertionError(f"{what} {shown!r} waits for an answer this test does not give")
+        return refuse
+
+    monkeypatch.setattr(QDialog, "exec", waits("dialog"))
+    for name in ("question", "warning", "information", "critical", "about"):
+        monkeypatch.setattr(QMessageBox, name, waits(f"message box ({name})"))
+    for name in ("getOpenFileName", "getSaveFileName", "getExistingDirectory"):
+        monkeypatch.setattr(QFileDialog, name, waits(f"file dialog ({name})"))
+    monkeypatch.setattr(QInputDialog, "getText", waits("input dialog"))
+
+
 @pytest.fixture
 def settings(tmp_path) -> QSettings:
     values = QSettings(str(tmp_path / "settings.ini"), QSettings.Format.IniFormat)

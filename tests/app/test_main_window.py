@@ -113,7 +113,7 @@ def test_switch_model_with_a_reason(make_window, qtbot, answer_dialogs) -> None:
     assert "● chosen" in chosen and any("recommended" in panel.table.item(r, 9).text() for r in range(panel.table.rowCount()))
 
 
-def test_undo_and_redo(make_window, qtbot) -> None:
+def test_undo_and_redo(make_window, qtbot, answer_dialogs) -> None:
     window = make_window(NITRATE)
     model = window.standards_model
     original = window.session.run.analyte("nitrate-N").standards[5].response.text
@@ -185,7 +185,7 @@ def test_closing_with_unsaved_changes_asks(make_window, qtbot, answer_dialogs, m
     assert asked and window.isVisible()
 
 
-def test_save_keeps_every_value_and_title_mark(make_window, qtbot, tmp_path) -> None:
+def test_save_keeps_every_value_and_title_mark(make_window, qtbot, tmp_path, answer_dialogs) -> None:
     window = make_window(NITRATE)
     window.standards_model.setData(window.standards_model.index(2, sm.RESP), "0.19876")
     settle(qtbot, window)
@@ -230,7 +230,7 @@ def test_hovering_a_point_shows_its_values(make_window) -> None:
     assert text and "N-L2-3" in text and "back-calculated" in text
 
 
-def test_sample_edits_refuse_bad_numbers_but_keep_the_text(make_window, qtbot) -> None:
+def test_sample_edits_refuse_bad_numbers_but_keep_the_text(make_window, qtbot, answer_dialogs) -> None:
     from curvewright.app import samples_model
 
     window = make_window(NITRATE)

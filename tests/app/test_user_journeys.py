@@ -371,3 +371,36 @@ def test_every_shortcut_triggers_its_menu_item(make_window, qtbot, slot_errors, 
         if name == "settings":
             settle(qtbot, window)
     assert not window.isVisible()
+
+
+def test_changing_an_entered_value_asks_why_and_cancel_keeps_it(make_window, qtbot, slot_errors, answer_dialogs,
+                                                                demo_copies) -> None:
+    from curvewright.io.run_edits import VALUE_CHANGE_REASONS
+
+    window = make_window(demo_copies[0])
+    model = window.standards_model
+    index = model.index(5, sm.RESP)
+    before = model.standards[5].response.text
+    window.standards_view.setCurrentIndex(index)
+    # typing over the cell: the editor opens, the text is typed, Enter commits it
+    window.standards_view.edit(index)
+    editor = window.standards_view.focusWidget()
+    answer_dialogs["reason"] = None  # the analyst cancels the question
+    editor.selectAll()
+    qtbot.keyClicks(editor, "0.4321")
+    qtbot.keyClick(editor, Qt.Key.Key_Return)
+    settle(qtbot, window)
+    assert answer_dialogs.last_title == "Why does this value change?"
+    assert model.standards[5].response.text == before and "needs a reason" in window.statusBar().currentMessage()
+    answer_dialogs["reason"] = ""
+    answer_dialogs["choice"] = VALUE_CHANGE_REASONS.index("transcription error corrected against the raw data")
+    window.standards_view.edit(index)
+    editor = window.standards_view.focusWidget()
+    editor.selectAll()
+    qtbot.keyClicks(editor, "0.4321")
+    qtbot.keyClick(editor, Qt.Key.Key_Return)
+    settle(qtbot, window)
+    assert model.standards[5].response.text == "0.4321"
+    entry = window.session.run.audit[-1]
+    assert entry.details["reason"] == "transcription error corrected against the raw data"
+    assert entry.details["changes"][0]["old"] == before and not slot_errors

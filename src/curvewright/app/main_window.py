@@ -246,6 +246,7 @@ class MainWindow(QMainWindow):
             view.selectionModel().currentChanged.connect(self.command(self._update_buttons))
         for model in (self.standards_model, self.samples_model):
             model.decimal_mark = self.decimal_mark()
+            model.reason_provider = self.ask_value_change_reason
             model.message.connect(self.show_message)
         session.run_changed.connect(self._on_run_changed)
         session.analysis_ready.connect(self._on_result)
@@ -818,6 +819,13 @@ class MainWindow(QMainWindow):
                               "either way.)", (), self)
         if dialog.exec() == ReasonDialog.DialogCode.Accepted:
             model.remove_row(row, dialog.reason())
+
+    def ask_value_change_reason(self, what: str) -> str | None:
+        """Why a raw value that was already entered changes: a reason from the list, or typed."""
+        dialog = ReasonDialog("Why does this value change?",
+                              f"{what} The old and the new value and your reason go into the audit trail.",
+                              run_edits.VALUE_CHANGE_REASONS, self)
+        return dialog.reason() if dialog.exec() == ReasonDialog.DialogCode.Accepted else None
 
     def input_view(self) -> SheetTableView:
         """The input table the analyst is working in: the focused one, else the one on the open tab."""

@@ -14,13 +14,13 @@ from typing import Callable
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, Signal
 from PySide6.QtGui import QBrush
 
-from ..core.run import Measurement, RunError, Sample, SampleKind
+from ..core.run import Measurement, Run, RunError, Sample, SampleKind
 from ..io import run_edits
 from ..io.importing import KIND_CHOICES, KIND_WORDS
 from ..io.paste import PastedBlock
 from .cells import number_from_text, reading_from_text, reading_problem
 from .session import RunSession
-from .table_view import RowCache
+from .table_view import ReasonProvider, RowCache, ask_reason_when_required
 from .standards_model import INVALID
 
 COLUMNS = ("Id", "Kind", "Order", "Dilution", "Nominal", "Responses")
@@ -42,6 +42,7 @@ class SamplesModel(QAbstractTableModel):
         self.analyte_name = analyte
         self.decimal_mark: str | None = None  # the analyst's decimal mark for typed and pasted values
         self.pending: dict[tuple[str, int], tuple[str, str]] = {}
+        self.reason_provider: ReasonProvider | None = None  # asks why a raw value that was entered changes
         self._cache = RowCache(self, session.run.samples)
         session.run_changed.connect(self._reload)
 
@@ -182,10 +183,20 @@ class SamplesModel(QAbstractTableModel):
         return True, replace(s, measurements=others + mine)
 
     def _commit(self, samples: tuple[Sample, ...], description: str, reason: str = "") -> bool:
+        """Make the samples current as one undoable step (``reason`` for a removal); a changed raw value
+        first asks why (``reason_provider``), and nothing changes when no reason is given."""
+        def update(why: str = "") -> Run:
+            return run_edits.update_samples(self.session.run, samples, description, reason=why, removed_reason=reason)
+
         try:
-            new_run = run_edits.update_samples(self.session.run, samples, description, removed_reason=reason)
+            new_run = ask_reason_when_required(update, self.reason_provider)
         except RunError as exc:
             self.message.emit(str(exc))
+            return False
+        if new_run is None:
+            self.message.emit("Not changed: a changed value needs a reason.")
+            self.pending.clear()
+            self.dataChanged.emit(self.index(0, 0), self.index(max(self.rowCount() - 1, 0), len(COLUMNS) - 1))
             return False
         self.session.apply(new_run, description)
         return True

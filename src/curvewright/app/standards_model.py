@@ -14,13 +14,13 @@ import numpy as np
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, Signal
 from PySide6.QtGui import QBrush, QColor, QFont
 
-from ..core.run import Analyte, Reading, RunError, Standard
+from ..core.run import Analyte, Reading, Run, RunError, Standard
 from ..core.run_analysis import AnalyteResult
 from ..io import run_edits
 from ..io.paste import PastedBlock
 from .cells import display_reading, number_from_text, reading_from_text, reading_problem
 from .session import RunSession
-from .table_view import RowCache
+from .table_view import ReasonProvider, RowCache, ask_reason_when_required
 
 COLUMNS = ("Id", "Level", "Rep.", "Nominal", "Response", "IS response", "Back-calc.", "%RE", "Within limits",
            "In fit", "Influence", "Exclusion reason")
@@ -47,6 +47,7 @@ class StandardsModel(QAbstractTableModel):
         self.session = session
         self.analyte_name = analyte
         self.decimal_mark: str | None = None  # the analyst's decimal mark for typed and pasted values
+        self.reason_provider: ReasonProvider | None = None  # asks why a raw value that was entered changes
         self.result: AnalyteResult | None = None
         self._cache = RowCache(self, session.run.analyte(analyte).standards)
         session.run_changed.connect(self._reload)
@@ -224,10 +225,19 @@ class StandardsModel(QAbstractTableModel):
         return replace(s, internal_standard_response=reading if text.strip() else None), warning
 
     def _commit(self, standards: tuple[Standard, ...], description: str, warning: str | None = None) -> bool:
+        """Make the standards current as one undoable step; a changed raw value first asks why
+        (``reason_provider``), and nothing changes when no reason is given."""
+        def update(reason: str = "") -> Run:
+            return run_edits.update_standards(self.session.run, self.analyte_name, standards, description, reason=reason)
+
         try:
-            new_run = run_edits.update_standards(self.session.run, self.analyte_name, standards, description)
+            new_run = ask_reason_when_required(update, self.reason_provider)
         except RunError as exc:
             self.message.emit(str(exc))
+            return False
+        if new_run is None:
+            self.message.emit("Not changed: a changed value needs a reason.")
+            self.dataChanged.emit(self.index(0, 0), self.index(max(self.rowCount() - 1, 0), len(COLUMNS) - 1))
             return False
         self.session.apply(new_run, description)
         if warning:

@@ -3,10 +3,29 @@ every column is wide enough for its header and its cells (nothing on screen is e
 
 from __future__ import annotations
 
-from typing import Callable
+from typing import Callable, TypeVar
 
 from PySide6.QtGui import QGuiApplication, QKeySequence
 from PySide6.QtWidgets import QAbstractItemView, QTableView
+
+
+ReasonProvider = Callable[[str], "str | None"]
+"""Asks the analyst why a raw value that was entered changes; the reason, or None when cancelled."""
+T = TypeVar("T")
+
+
+def ask_reason_when_required(update: Callable[..., T], provider: ReasonProvider | None) -> T | None:
+    """Run ``update()``; when it needs a reason (a raw value that was entered changes), ask ``provider``
+    and run ``update(reason)``. None when no reason was given."""
+    from ..io.run_edits import ReasonRequired
+
+    try:
+        return update()
+    except ReasonRequired as exc:
+        reason = provider(str(exc)) if provider is not None else None
+        if not reason:
+            return None
+        return update(reason)
 
 
 def fit_columns(view: QTableView) -> None:

@@ -78,6 +78,8 @@ def edit_standard(
         updated = replace(s, **{field: reading})
     else:
         raise RunError(f"standard field {field!r} cannot be edited (concentration, response, internal_standard_response).")
+    change = {"standard": standard_id, "field": field, "old": old, "new": new}
+    _require_reason(raw_changes([change], STANDARD_RAW_FIELDS), reason, analyte)
     return _log(run.with_analyte(_with_standard(a, updated)), "value_edited",
                 {"analyte": analyte, "standard": standard_id, "field": field, "old": old, "new": new,
                  "reason": reason.strip()}, user, clock)
@@ -147,6 +149,56 @@ def edit_analyte(
                 {"analyte": analyte, "changes": changes, "reason": reason.strip()}, user, clock)
 
 
+VALUE_CHANGE_REASONS = (
+    "first entry: the value was not recorded yet",
+    "transcription error corrected against the raw data",
+    "value re-read from the instrument's record",
+    "re-integration documented in the raw data",
+    "other (describe below)",
+)
+"""Reasons offered when a raw value that was already entered is changed (the analyst may type another)."""
+STANDARD_RAW_FIELDS = ("concentration", "response", "internal_standard_response")
+SAMPLE_RAW_FIELDS = ("dilution_factor", "nominal", "responses")
+
+
+class ReasonRequired(RunError):
+    """A raw value that was already entered is changed without a reason; ``changes`` names them."""
+
+    def __init__(self, message: str, changes: list[dict[str, Any]]) -> None:
+        super().__init__(message)
+        self.changes = changes
+
+
+def raw_changes(changes: list[dict[str, Any]], raw_fields: tuple[str, ...]) -> list[dict[str, Any]]:
+    """The changes of raw values that had been entered (an empty value filled in for the first time is
+    an entry, not a change)."""
+    def entered(value: Any) -> bool:
+        if isinstance(value, dict):
+            return any(entered(v) for v in value.values())
+        return value not in (None, "") and not (isinstance(value, str) and not value.strip())
+
+    out = []
+    for c in changes:
+        if c["field"] not in raw_fields:
+            continue
+        if c["field"] == "responses":
+            replaced = {k: v for k, v in c["old"].items() if entered(v) and c["new"].get(k) != v}
+            if replaced:
+                out.append(c)
+        elif c["field"] == "dilution_factor" or entered(c["old"]):
+            out.append(c)
+    return out
+
+
+def _require_reason(changes: list[dict[str, Any]], reason: str, what: str) -> None:
+    if changes and not reason.strip():
+        first = changes[0]
+        raise ReasonRequired(
+            f"{what}: changing the {first['field'].replace('_', ' ')} of {first.get('standard') or first.get('sample')!r} "
+            f"from {first['old']!r} to {first['new']!r} needs a reason (a raw value that was entered is changed"
+            + (f", with {len(changes) - 1} more" if len(changes) > 1 else "") + ").", changes)
+
+
 def _with_standard(analyte: Analyte, standard: Standard) -> Analyte:
     return replace(analyte, standards=tuple(standard if s.id == standard.id else s for s in analyte.standards))
 
@@ -165,21 +217,25 @@ def _standard_fields(s: Standard) -> dict[str, Any]:
 
 
 def update_standards(
-    run: Run, analyte: str, standards: tuple[Standard, ...], note: str, *, user: str | None = None, clock: Clock = utc_now
+    run: Run, analyte: str, standards: tuple[Standard, ...], note: str, *, reason: str = "",
+    user: str | None = None, clock: Clock = utc_now,
 ) -> Run:
     """Replace an analyte's standards (typed or pasted values, added rows) as one audited step.
 
     The entry lists every changed field old → new and every added standard; inclusion flags and
     exclusion reasons cannot change here (see :func:`exclude_standard`), and no standard may vanish
-    (see :func:`remove_standard`).
+    (see :func:`remove_standard`). Changing a concentration or response that was already entered
+    needs a ``reason`` (:class:`ReasonRequired` otherwise); filling in an empty one does not.
     """
     a = run.analyte(analyte)
     old = {s.id: s for s in a.standards}
     ids = [s.id for s in standards]
-    if len(set(ids)) != len(ids):
-        duplicate = next(i for i in ids if ids.count(i) > 1)
+    id_set = set(ids)
+    if len(id_set) != len(ids):
+        seen: set[str] = set()
+        duplicate = next(i for i in ids if i in seen or seen.add(i))  # type: ignore[func-returns-value]
         raise RunError(f"{analyte}: standard id {duplicate!r} is used twice; each standard needs its own id.")
-    missing = [i for i in old if i not in set(ids)]
+    missing = [i for i in old if i not in id_set]
     if missing:
         raise RunError(f"{analyte}: standard {missing[0]!r} would be lost; remove standards one at a time, with a reason.")
     changes, added = [], []
@@ -196,10 +252,12 @@ def update_standards(
                 changes.append({"standard": s.id, "field": field_name, "old": old_fields[field_name], "new": value})
     if not changes and not added:
         return run
+    _require_reason(raw_changes(changes, STANDARD_RAW_FIELDS), reason, analyte)
     action = "value_edited" if changes else "standard_added"
     changed = replace(a, standards=standards)
     return _log(run.with_analyte(changed), action,
-                {"analyte": analyte, "note": note, "changes": changes, "added": added}, user, clock)
+                {"analyte": analyte, "note": note, "changes": changes, "added": added, "reason": reason.strip()},
+                user, clock)
 
 
 def remove_standard(
@@ -225,13 +283,18 @@ def _sample_fields(s: Sample) -> dict[str, Any]:
 
 
 def update_samples(
-    run: Run, samples: tuple[Sample, ...], note: str, *, removed_reason: str = "",
+    run: Run, samples: tuple[Sample, ...], note: str, *, reason: str = "", removed_reason: str = "",
     user: str | None = None, clock: Clock = utc_now,
 ) -> Run:
-    """Replace the run's samples as one audited step (changed fields old → new, added, removed)."""
+    """Replace the run's samples as one audited step (changed fields old → new, added, removed).
+
+    Removing a sample needs a reason (``removed_reason``), and so does changing a dilution factor, a
+    nominal value or a response that was already entered (``reason``; :class:`ReasonRequired`)."""
     ids = [s.id for s in samples]
-    if len(set(ids)) != len(ids):
-        duplicate = next(i for i in ids if ids.count(i) > 1)
+    id_set = set(ids)
+    if len(id_set) != len(ids):
+        seen: set[str] = set()
+        duplicate = next(i for i in ids if i in seen or seen.add(i))  # type: ignore[func-returns-value]
         raise RunError(f"sample id {duplicate!r} is used twice; each sample needs its own id.")
     known = {a.name for a in run.analytes}
     for s in samples:
@@ -255,9 +318,10 @@ def update_samples(
                     changes.append({"sample": i, "field": field_name, "old": before[field_name], "new": after[field_name]})
     if not (changes or added or removed) and tuple(old) == tuple(new):
         return run
+    _require_reason(raw_changes(changes, SAMPLE_RAW_FIELDS), reason, "samples")
+    why = "; ".join(r.strip() for r in (reason, removed_reason) if r.strip())
     return _log(replace(run, samples=samples), "samples_edited",
-                {"note": note, "changes": changes, "added": added, "removed": removed,
-                 "reason": removed_reason.strip()}, user, clock)
+                {"note": note, "changes": changes, "added": added, "removed": removed, "reason": why}, user, clock)
 
 
 def change_settings(

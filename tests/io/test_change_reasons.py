@@ -1,0 +1,64 @@
+"""A raw value that was entered changes only with a reason, in the API as in the app."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+
+import pytest
+
+from curvewright.core.run import Reading, Sample, Standard
+from curvewright.io import run_edits
+from curvewright.io.run_edits import ReasonRequired
+from tests.io.helpers import small_run
+
+
+def with_response(run, index: int, text: str):  # type: ignore[no-untyped-def]
+    standards = list(run.analytes[0].standards)
+    standards[index] = replace(standards[index], response=Reading(float(text), text))
+    return tuple(standards)
+
+
+def test_changing_an_entered_response_needs_a_reason() -> None:
+    run = small_run()
+    old = run.analytes[0].standards[2]
+    with pytest.raises(ReasonRequired, match=rf"changing the response of '{old.id}' from '{old.response.text}' to '1234.5'"):
+        run_edits.update_standards(run, "cobalt", with_response(run, 2, "1234.5"), "typed")
+    changed = run_edits.update_standards(run, "cobalt", with_response(run, 2, "1234.5"), "typed",
+                                         reason="transcription error corrected against the raw data")
+    entry = changed.audit[-1]
+    assert entry.details["reason"] == "transcription error corrected against the raw data"
+    assert entry.details["changes"] == [{"standard": old.id, "field": "response", "old": old.response.text, "new": "1234.5"}]
+
+
+def test_filling_in_an_empty_value_is_an_entry_not_a_change() -> None:
+    run = small_run()
+    blank = Standard("S-new", math.nan, Reading(None, ""), 1)
+    run = run_edits.update_standards(run, "cobalt", run.analytes[0].standards + (blank,), "added")
+    filled = replace(blank, concentration=3.0, response=Reading(310.2, "310.2"))
+    after = run_edits.update_standards(run, "cobalt", run.analytes[0].standards[:-1] + (filled,), "typed")
+    assert after.audit[-1].action == "value_edited" and after.audit[-1].details["reason"] == ""
+
+
+def test_changing_a_dilution_factor_or_a_sample_response_needs_a_reason() -> None:
+    run = small_run()
+    first = run.samples[0]
+    diluted = (replace(first, dilution_factor=first.dilution_factor * 10),) + run.samples[1:]
+    with pytest.raises(ReasonRequired, match="dilution factor"):
+        run_edits.update_samples(run, diluted, "typed")
+    done = run_edits.update_samples(run, diluted, "typed", reason="first entry: the value was not recorded yet")
+    assert done.audit[-1].details["reason"] == "first entry: the value was not recorded yet"
+    m = first.measurements[0]
+    reread = (replace(first, measurements=(replace(m, response=Reading(1.0, "1.0")),) + first.measurements[1:]),) + run.samples[1:]
+    with pytest.raises(ReasonRequired, match="responses"):
+        run_edits.update_samples(run, reread, "typed")
+    added = run.samples + (Sample("New well"),)
+    assert run_edits.update_samples(run, added, "added").audit[-1].details["added"][0]["id"] == "New well"
+
+
+def test_edit_standard_needs_a_reason_for_an_entered_value() -> None:
+    run = small_run()
+    sid = run.analytes[0].standards[0].id
+    with pytest.raises(ReasonRequired):
+        run_edits.edit_standard(run, "cobalt", sid, "concentration", 1.5)
+    assert run_edits.edit_standard(run, "cobalt", sid, "concentration", 1.5, "re-read from the weighing record").audit[-1].details["reason"]
