@@ -282,8 +282,7 @@ def _table(path: str, sheet: str | None):  # type: ignore[no-untyped-def]
 
 def _quantify(run, options: dict[str, Any], *, source: Path | None, notes: list[str]) -> Outcome:  # type: ignore[no-untyped-def]
     from .core.run_analysis import analyse_run
-    from .io import run_edits
-    from .io.run_document import save_run
+    from .io.run_document import append_to_run_document
 
     settings = run.settings
     if options["level"] is not None:
@@ -310,9 +309,7 @@ def _quantify(run, options: dict[str, Any], *, source: Path | None, notes: list[
             raise InputError(f"--report: {target} should end in .pdf.")
         written.append(("report_written", str(target), write_report(build_report(result), target)))
     if options["record"] and source is not None and written:
-        for action, path, sha in written:
-            run = run_edits.record(run, action, {"path": path, "sha256": sha})
-        save_run(run, source)
+        append_to_run_document(source, [(action, {"path": path, "sha256": sha}) for action, path, sha in written])
     code = EXIT_ACCEPTED if result.accepted else EXIT_REJECTED
     data = result_json(result, source, written) if options["json"] else None
     return Outcome(code, "" if options["json"] else summary_text(result, source, notes, written), data)

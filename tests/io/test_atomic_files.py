@@ -212,3 +212,5 @@ def test_saving_a_linked_document_writes_through_the_link(tmp_path) -> None:
     assert doc.open_run(real).run == second and doc.open_run(link).run == second
     assert doc.open_run(real.with_name("batch.json.bak")).run == first  # the backup lies beside the real file
     assert not (tmp_path / "my batch.json.bak").exists()
+    doc.append_to_run_document(link, [("report_written", {"path": "r.pdf", "sha256": "1" * 64})])
+    assert link.is_symlink() and doc.open_run(real).run.audit[-1].action == "report_written"

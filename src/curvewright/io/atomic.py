@@ -41,6 +41,8 @@ from .errors import ExportError
 
 STALE_AFTER_SECONDS = 600.0
 """A temporary of ours untouched this long is a left-over even when its writer cannot be checked."""
+LOCK_TIMEOUT_SECONDS = 60.0
+"""How long a writer waits for another to finish with the same file before giving up."""
 _NAME_BYTES = 150  # the target name is shortened in temporary names so that they stay legal
 _ADVICE = "Check that the disk has space, the folder is writable and the file is not open in another program, then try again."
 
@@ -253,3 +255,69 @@ def atomic_target(path: Path, *, keep_backup: bool = False) -> Iterator[Path]:
         temporary.unlink(missing_ok=True)
         raise
     _sync_folder(folder)
+
+
+# --- several writers -------------------------------------------------------------------------------
+def lock_path(path: Path) -> Path:
+    """The lock file of ``path``: ``.NAME.lock`` beside the file itself (kept; it is empty)."""
+    target = resolve_target(Path(path))
+    return target.with_name(f".{_short(target.name)}.lock")
+
+
+@contextmanager
+def exclusive_lock(path: Path, *, timeout: float = LOCK_TIMEOUT_SECONDS) -> Iterator[None]:
+    """Hold the operating system's exclusive lock on ``path``'s lock file while the block runs, so
+    that a read-modify-write by another process (or thread) waits for this one to finish.
+    ``fcntl.flock`` on POSIX, ``msvcrt.locking`` on Windows; the lock ends with the process."""
+    target = resolve_target(Path(path))
+    where = lock_path(target)
+    try:
+        fd = os.open(where, os.O_RDWR | os.O_CREAT | getattr(os, "O_CLOEXEC", 0), 0o666)
+    except OSError as exc:
+        raise ExportError(f"{target}: cannot write in folder {where.parent} ({_reason(exc)}); nothing was written.") from None
+    try:
+        deadline = time.monotonic() + timeout
+        while not _try_lock(fd):
+            if time.monotonic() > deadline:
+                raise ExportError(
+                    f"{target}: another program has been writing this file for more than {timeout:.0f} s; "
+                    "nothing was written. Try again when it has finished."
+                )
+            time.sleep(0.02)
+        try:
+            yield
+        finally:
+            _unlock(fd)
+    finally:
+        os.close(fd)
+
+
+def _try_lock(fd: int) -> bool:
+    if sys.platform == "win32":  # pragma: no cover - exercised on Windows only
+        import msvcrt
+
+        try:
+            os.lseek(fd, 0, os.SEEK_SET)
+            msvcrt.locking(fd, msvcrt.LK_NBLCK, 1)
+            return True
+        except OSError:
+            return False
+    import fcntl
+
+    try:
+        fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+        return True
+    except BlockingIOError:
+        return False
+
+
+def _unlock(fd: int) -> None:
+    if sys.platform == "win32":  # pragma: no cover - exercised on Windows only
+        import msvcrt
+
+        os.lseek(fd, 0, os.SEEK_SET)
+        msvcrt.locking(fd, msvcrt.LK_UNLCK, 1)
+        return
+    import fcntl
+
+    fcntl.flock(fd, fcntl.LOCK_UN)

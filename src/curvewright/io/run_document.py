@@ -4,17 +4,25 @@ Format ``curvewright-run``, ``schema_version`` 1 (JSON Schema: ``resources/run-d
 Opening validates everything and reports every problem with its path in the document
 (``analytes[0].standards[3].concentration: expected a number, found "abc"``); it refuses files over
 :data:`MAX_DOCUMENT_BYTES` and only ever parses JSON, never executes anything. Older versions are
-brought up to date by one migration function per format change (:data:`MIGRATIONS`). Saving is
-atomic and keeps the previous version as ``NAME.bak``.
+brought up to date by one migration function per format change (:data:`MIGRATIONS`).
+
+Saving is atomic and keeps the previous version as ``NAME.bak`` (:mod:`.atomic`; a symbolic link is
+written through to the file it points to). Every write of a document holds the operating system's
+lock on ``.NAME.lock`` beside it, so that :func:`append_to_run_document` (the command line's
+``--record``) re-reads and replaces the file while no other writer can come in between: two
+processes recording at once both keep their entries. A program that holds a document open can pass
+the :attr:`OpenedRun.sha256` it read to :func:`save_run` (``expected_sha256``), which then refuses
+with :class:`DocumentChanged` if the file on disk changed meanwhile; :func:`document_unchanged` asks
+the same question without saving.
 """
 
 from __future__ import annotations
 
 import json
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
-from typing import Any, Callable, Mapping
+from typing import Any, Callable, Iterable, Mapping
 
 from .._version import __version__
 from ..core.acceptance import AcceptanceProfile, available_profiles
@@ -33,9 +41,9 @@ from ..core.run import (
     Standard,
 )
 from ..core.weighting import Weighting
-from .atomic import write_atomically
-from .audit import verify_chain
-from .errors import DocumentError
+from .atomic import exclusive_lock, write_atomically
+from .audit import Clock, append_entry, file_sha256, file_sha256_streamed, utc_now, verify_chain
+from .errors import DocumentError, ExportError
 
 FORMAT = "curvewright-run"
 SCHEMA_VERSION = 1
@@ -54,6 +62,8 @@ class OpenedRun:
     path: Path | None
     chain_problems: tuple[str, ...]
     migrated_from: int | None
+    sha256: str | None = None
+    """SHA-256 of the bytes read (None when parsed from text): compare with :func:`document_unchanged`."""
 
     @property
     def chain_verified(self) -> bool:
@@ -145,9 +155,62 @@ def dumps_run(run: Run) -> str:
         raise DocumentError(f"run {run.name!r} holds a value JSON cannot store ({exc}).") from None
 
 
-def save_run(run: Run, path: str | Path) -> None:
-    """Save atomically, keeping the previous file as ``NAME.bak``."""
-    write_atomically(Path(path), dumps_run(run).encode("utf-8"), keep_backup=True)
+class DocumentChanged(ExportError):
+    """The document on disk is no longer the one that was opened; nothing was written."""
+
+
+def save_run(run: Run, path: str | Path, *, expected_sha256: str | None = None) -> str:
+    """Save atomically under the document's lock, keeping the previous file as ``NAME.bak``;
+    return the SHA-256 of what was written. With ``expected_sha256`` (the :attr:`OpenedRun.sha256`
+    read when the document was opened, or returned by the last save) the save is refused with
+    :class:`DocumentChanged` when the file on disk is no longer that one."""
+    path = Path(path)
+    data = dumps_run(run).encode("utf-8")
+    with exclusive_lock(path):
+        if expected_sha256 is not None and document_sha256(path) != expected_sha256:
+            raise DocumentChanged(
+                f"{path}: not saved, because the file was changed on disk after it was opened (by another "
+                "program, or by a command that recorded an export in it); nothing was written. Open it again "
+                "to see the changes, or save this run under another name."
+            )
+        write_atomically(path, data, keep_backup=True)
+    return file_sha256(data)
+
+
+def append_to_run_document(
+    path: str | Path,
+    entries: Iterable[tuple[str, Mapping[str, Any]]],
+    *,
+    user: str | None = None,
+    clock: Clock = utc_now,
+) -> Run:
+    """Append audit entries ``(action, details)`` to the document at ``path`` and save it: the
+    document is re-read and replaced while its lock is held, so entries appended by another
+    process at the same time are kept. Only the trail grows; nothing else in the document changes.
+    Returns the run as saved."""
+    path = Path(path)
+    with exclusive_lock(path):
+        run = open_run(path).run
+        trail = run.audit
+        for action, details in entries:
+            trail = append_entry(trail, action, details, user=user, clock=clock)
+        run = replace(run, audit=trail)
+        write_atomically(path, dumps_run(run).encode("utf-8"), keep_backup=True)
+    return run
+
+
+def document_sha256(path: str | Path) -> str | None:
+    """SHA-256 of the file at ``path`` as it is now; None when it cannot be read."""
+    try:
+        return file_sha256_streamed(Path(path))
+    except OSError:
+        return None
+
+
+def document_unchanged(path: str | Path, sha256: str | None) -> bool:
+    """True when the file at ``path`` still holds exactly the bytes whose SHA-256 is ``sha256``
+    (for a program that opened it and wants to know whether someone else has written it since)."""
+    return sha256 is not None and document_sha256(path) == sha256
 
 
 def _reading_out(reading: Reading | None) -> dict[str, Any] | None:
@@ -165,6 +228,12 @@ def _reading_out(reading: Reading | None) -> dict[str, Any] | None:
 def open_run(path: str | Path) -> OpenedRun:
     """Read, validate and (if older) migrate a run document."""
     path = Path(path)
+    raw = _read_document(path)
+    opened = loads_run(raw, origin=str(path))
+    return OpenedRun(opened.run, path, opened.chain_problems, opened.migrated_from, file_sha256(raw))
+
+
+def _read_document(path: Path) -> bytes:
     try:
         size = path.stat().st_size
     except OSError as exc:
@@ -175,11 +244,9 @@ def open_run(path: str | Path) -> OpenedRun:
             f"({MAX_DOCUMENT_BYTES / 1e6:.0f} MB); it is not opened."
         )
     try:
-        raw = path.read_bytes()
+        return path.read_bytes()
     except OSError as exc:
         raise DocumentError(f"{path}: cannot read ({exc.strerror or exc}).") from None
-    opened = loads_run(raw, origin=str(path))
-    return OpenedRun(opened.run, path, opened.chain_problems, opened.migrated_from)
 
 
 def loads_run(data: str | bytes, origin: str = "run document") -> OpenedRun:
