@@ -16,7 +16,7 @@ import pytest
 from curvewright.io import atomic, run_edits
 from curvewright.io import run_document as doc
 from curvewright.io.errors import ExportError
-from tests.io.helpers import small_run
+from tests.io.helpers import ROOT, small_run
 
 POSIX = pytest.mark.skipif(sys.platform == "win32", reason="POSIX permissions, links and limits")
 
@@ -214,3 +214,30 @@ def test_saving_a_linked_document_writes_through_the_link(tmp_path) -> None:
     assert not (tmp_path / "my batch.json.bak").exists()
     doc.append_to_run_document(link, [("report_written", {"path": "r.pdf", "sha256": "1" * 64})])
     assert link.is_symlink() and doc.open_run(real).run.audit[-1].action == "report_written"
+
+
+@POSIX
+def test_a_full_disk_prints_no_stray_tracebacks_and_leaves_no_temporaries(tmp_path) -> None:
+    script = textwrap.dedent("""
+        import resource, signal, sys
+        from curvewright.core.run_analysis import analyse_run
+        from curvewright.io.errors import ExportError
+        from curvewright.io.run_document import open_run
+        from curvewright.io.xlsx_export import write_xlsx
+        result = analyse_run(open_run(sys.argv[1]).run)
+        signal.signal(signal.SIGXFSZ, signal.SIG_IGN)
+        resource.setrlimit(resource.RLIMIT_FSIZE, (3000, resource.RLIM_INFINITY))
+        try:
+            write_xlsx(result, sys.argv[2])
+        except ExportError as exc:
+            print(exc)
+    """)
+    scratch = tmp_path / "scratch"
+    scratch.mkdir()
+    demo = ROOT / "sample_runs" / "veltaprine_plasma_weighted.json"
+    result = subprocess.run([sys.executable, "-W", "error", "-c", script, str(demo), str(tmp_path / "results.xlsx")],
+                            capture_output=True, text=True, timeout=120,
+                            env={**os.environ, "PYTHONPATH": os.pathsep.join(sys.path), "TMPDIR": str(scratch)})
+    assert "results.xlsx: not written (File too large)" in result.stdout, result.stdout + result.stderr
+    assert result.stderr == ""  # no "Exception ignored" traceback from the workbook writer
+    assert result.returncode == 0 and temporaries(tmp_path) == [] and list(scratch.iterdir()) == []

@@ -16,7 +16,7 @@ import re
 import unicodedata
 
 FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r", "\n", "＝", "＋", "－", "＠")
-ILLEGAL_XML = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")
+ILLEGAL_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
 _PLAIN_NUMBER = re.compile(r"[-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?")
 _INVISIBLE_CATEGORIES = ("Zs", "Zl", "Zp", "Cc", "Cf")
 
@@ -40,8 +40,10 @@ def looks_like_formula(text: str) -> bool:
 
 
 def xml_safe(text: str) -> str:
-    """Control characters XML cannot hold, shown as \\xNN so that nothing is silently lost."""
-    return ILLEGAL_XML.sub(lambda m: f"\\x{ord(m.group()):02x}", text)
+    """Characters XML cannot hold (control characters, unpaired surrogates, U+FFFE and U+FFFF),
+    shown as ``\\xNN`` or ``\\uNNNN`` so that nothing is silently lost."""
+    return ILLEGAL_XML.sub(lambda m: f"\\x{ord(m.group()):02x}" if ord(m.group()) < 0x100 else f"\\u{ord(m.group()):04x}",
+                           text)
 
 
 def csv_safe(text: str) -> str:
