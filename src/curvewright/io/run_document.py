@@ -1,10 +1,12 @@
 """Run documents: versioned, human-readable JSON with validation, migrations and atomic saving.
 
 Format ``curvewright-run``, ``schema_version`` 1 (JSON Schema: ``resources/run-document.schema.json``).
-Opening validates everything and reports every problem with its path in the document
-(``analytes[0].standards[3].concentration: expected a number, found "abc"``); it refuses files over
-:data:`MAX_DOCUMENT_BYTES` and only ever parses JSON, never executes anything. Older versions are
-brought up to date by one migration function per format change (:data:`MIGRATIONS`).
+Opening validates everything the analysis relies on and reports every problem with its path in the
+document (``analytes[0].standards[3].concentration: expected a number, found "abc"``); it refuses
+files over :data:`MAX_DOCUMENT_BYTES`, nesting deeper than :data:`MAX_NESTING`, whole numbers of
+more than :data:`MAX_DIGITS` digits and text that is not Unicode characters (unpaired surrogates),
+and only ever parses JSON, never executes anything. Older versions are brought up to date by one
+migration function per format change (:data:`MIGRATIONS`).
 
 Saving is atomic and keeps the previous version as ``NAME.bak`` (:mod:`.atomic`; a symbolic link is
 written through to the file it points to). Every write of a document holds the operating system's
@@ -20,6 +22,8 @@ from __future__ import annotations
 
 import json
 import math
+import re
+import sys
 from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any, Callable, Iterable, Mapping
@@ -48,6 +52,17 @@ from .errors import DocumentError, ExportError
 FORMAT = "curvewright-run"
 SCHEMA_VERSION = 1
 MAX_DOCUMENT_BYTES = 64 * 1024 * 1024
+MAX_NESTING = 64
+"""Levels of lists and objects a document may nest (a run document uses fewer than ten)."""
+MAX_DIGITS = 300
+"""Digits a whole number in a document may have (a double's range ends at about 1.8e308)."""
+MAX_WHOLE = 2**53 - 1
+"""Largest whole number a counting field (replicate, run order) may hold: exact in every JSON reader."""
+MEASURE_RANGE = (1e-30, 1e30)
+"""Sizes a measured value (concentration, response, dilution factor, nominal value) may have, zero
+apart: wider than any measurement, and narrow enough that no step of a fit (squares, weights such as
+1/x², their products) overflows or underflows a double."""
+_MEASURE_WORDS = "a finite number, zero or from 1e-30 to 1e30 in size"
 
 Migration = Callable[[dict[str, Any]], dict[str, Any]]
 MIGRATIONS: dict[int, Migration] = {}
@@ -165,7 +180,7 @@ def save_run(run: Run, path: str | Path, *, expected_sha256: str | None = None) 
     read when the document was opened, or returned by the last save) the save is refused with
     :class:`DocumentChanged` when the file on disk is no longer that one."""
     path = Path(path)
-    data = dumps_run(run).encode("utf-8")
+    data = _readable_document(run, path)
     with exclusive_lock(path):
         if expected_sha256 is not None and document_sha256(path) != expected_sha256:
             raise DocumentChanged(
@@ -195,8 +210,24 @@ def append_to_run_document(
         for action, details in entries:
             trail = append_entry(trail, action, details, user=user, clock=clock)
         run = replace(run, audit=trail)
-        write_atomically(path, dumps_run(run).encode("utf-8"), keep_backup=True)
+        write_atomically(path, _readable_document(run, path), keep_backup=True)
     return run
+
+
+def _readable_document(run: Run, path: Path) -> bytes:
+    """The document's bytes, once it is certain that they open again: a run holding what no run
+    document may (a value out of range, text that is not characters) is not written, so that no
+    save ever produces a file that cannot be opened."""
+    text = dumps_run(run)
+    try:
+        loads_run(text, origin=str(path))
+    except DocumentError as exc:
+        raise DocumentError(
+            f"{path}: not saved, because the run holds values a run document cannot hold (the file could not be "
+            "opened again); nothing was written. Correct them and save again",
+            exc.problems or (str(exc).split(": ", 1)[-1],),
+        ) from None
+    return text.encode("utf-8")
 
 
 def document_sha256(path: str | Path) -> str | None:
@@ -251,6 +282,11 @@ def _read_document(path: Path) -> bytes:
 
 def loads_run(data: str | bytes, origin: str = "run document") -> OpenedRun:
     """Parse a run document from its text."""
+    return run_from_mapping(_parse(data, origin), origin)
+
+
+def _parse(data: str | bytes, origin: str) -> Any:
+    """JSON text to plain data, refusing what no run document holds (see the module docstring)."""
     if isinstance(data, bytes):
         if len(data) > MAX_DOCUMENT_BYTES:
             raise DocumentError(f"{origin}: larger than a run document can be; it is not opened.")
@@ -259,15 +295,133 @@ def loads_run(data: str | bytes, origin: str = "run document") -> OpenedRun:
         except UnicodeDecodeError as exc:
             raise DocumentError(f"{origin}: not UTF-8 text (byte {exc.start}); a run document is JSON text.") from None
     try:
-        mapping = json.loads(data, parse_constant=_refuse_constant)
+        mapping = json.loads(data, parse_constant=_refuse_constant, parse_int=_whole_number)
     except json.JSONDecodeError as exc:
         raise DocumentError(
             f"{origin}: not valid JSON at line {exc.lineno}, column {exc.colno} ({exc.msg}); the file may be "
             "truncated or edited by hand."
         ) from None
-    except ValueError as exc:
-        raise DocumentError(f"{origin}: {exc}") from None
-    return run_from_mapping(mapping, origin)
+    except RecursionError:
+        raise DocumentError(
+            f"{origin}: lists and objects nested more than {MAX_NESTING} levels deep{_too_deep_at(data)}; no run "
+            "document is built like this, so it is not opened."
+        ) from None
+    except ValueError as exc:  # a constant JSON does not have (NaN, Infinity), refused by _refuse_constant
+        raise DocumentError(f"{origin}: {exc}{_constant_at(data)} is not a number a run document may hold "
+                            "(every number must be finite).") from None
+    problems = _structure_problems(mapping)
+    if problems:
+        raise DocumentError(f"{origin}: the document has {len(problems)} problem(s)", tuple(problems))
+    return mapping
+
+
+_TOKENS = re.compile(r'"(?:[^"\\]|\\.)*"|[\[\]{}]')
+
+
+_CONSTANTS = re.compile(r'"(?:[^"\\]|\\.)*"|(-?Infinity|NaN)')
+
+
+def _line_column(text: str, at: int) -> str:
+    line = text.count("\n", 0, at) + 1
+    return f" at line {line}, column {at - (text.rfind(chr(10), 0, at) + 1) + 1}"
+
+
+def _constant_at(text: str) -> str:
+    """Where the first NaN or Infinity outside strings stands (" at line L, column C")."""
+    for token in _CONSTANTS.finditer(text):
+        if token.group(1):
+            return _line_column(text, token.start())
+    return ""
+
+
+def _too_deep_at(text: str) -> str:
+    """Where the nesting first goes past :data:`MAX_NESTING` (" at line L, column C"), found by
+    scanning brackets outside strings without recursion."""
+    depth = 0
+    for token in _TOKENS.finditer(text):
+        mark = token.group()
+        if mark in "[{":
+            depth += 1
+            if depth > MAX_NESTING:
+                return _line_column(text, token.start())
+        elif mark in "]}":
+            depth -= 1
+    return ""
+
+
+class _Oversized:
+    """A whole number with too many digits, kept as its digit count until it is reported."""
+
+    def __init__(self, digits: int) -> None:
+        self.digits = digits
+
+
+def _whole_number(text: str) -> int | _Oversized:
+    digits = len(text.lstrip("-"))
+    return _Oversized(digits) if digits > MAX_DIGITS else int(text)
+
+
+_SURROGATE = re.compile("[\ud800-\udfff]")
+_MAX_LISTED = 20
+
+
+def _structure_problems(document: Any) -> list[str]:
+    """Nesting deeper than :data:`MAX_NESTING`, oversized whole numbers and unpaired surrogates,
+    each with its path (iteratively: a deep document cannot exhaust the stack here)."""
+    problems: list[str] = []
+    count = 0
+
+    def note(path: str, message: str) -> None:
+        nonlocal count
+        count += 1
+        if count <= _MAX_LISTED:
+            problems.append(f"{path or '(the document)'}: {message}")
+
+    def text(value: str, path: str, what: str) -> None:
+        if (found := _SURROGATE.search(value)) is not None:
+            note(path, f"{what} holds U+{ord(found.group()):04X}, an unpaired surrogate that is not a character; "
+                       "the file was damaged or written by a faulty program")
+
+    stack: list[tuple[Any, str, int]] = [(document, "", 0)]
+    while stack:
+        value, path, depth = stack.pop()
+        if isinstance(value, str):
+            text(value, path, "the text")
+        elif isinstance(value, _Oversized):
+            note(path, f"a whole number of {value.digits} digits is larger than any a run document holds")
+        elif isinstance(value, (dict, list)):
+            if depth >= MAX_NESTING:
+                note(path, f"nested more than {MAX_NESTING} levels deep; no run document is built like this")
+                continue
+            if isinstance(value, dict):
+                for key, item in value.items():
+                    shown = _SURROGATE.sub(lambda m: f"\\u{ord(m.group()):04x}", key)
+                    where = f"{path}.{shown}" if path else shown
+                    text(key, where, "the name")
+                    stack.append((item, where, depth + 1))
+            else:
+                stack.extend((item, f"{path}[{i}]", depth + 1) for i, item in enumerate(value))
+    if count > _MAX_LISTED:
+        problems.append(f"… and {count - _MAX_LISTED} more problem(s) of these kinds")
+    return problems
+
+
+def _finite_number(value: Any) -> bool:
+    """A JSON number that a double holds as a finite value (whole numbers of any size included)."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return False
+    if isinstance(value, int):
+        return abs(value) <= sys.float_info.max
+    return math.isfinite(value)
+
+
+def _measure(value: Any) -> bool:
+    """A finite number that is zero or lies within :data:`MEASURE_RANGE` in size."""
+    return _finite_number(value) and (value == 0 or MEASURE_RANGE[0] <= abs(value) <= MEASURE_RANGE[1])
+
+
+def _whole(value: Any) -> bool:
+    return isinstance(value, int) and not isinstance(value, bool) and abs(value) <= MAX_WHOLE
 
 
 def run_from_mapping(mapping: Any, origin: str = "run document") -> OpenedRun:
@@ -297,7 +451,7 @@ def run_from_mapping(mapping: Any, origin: str = "run document") -> OpenedRun:
 
 
 def _refuse_constant(name: str) -> None:
-    raise ValueError(f"{name} is not a number a run document may hold")
+    raise ValueError(name)
 
 
 class _Reader:
@@ -319,22 +473,27 @@ class _Reader:
         value = obj[key]
         checks: dict[str, Callable[[Any], bool]] = {
             "text": lambda v: isinstance(v, str),
-            "number": lambda v: isinstance(v, (int, float)) and not isinstance(v, bool) and math.isfinite(v),
-            "number?": lambda v: v is None or (isinstance(v, (int, float)) and not isinstance(v, bool) and math.isfinite(v)),
-            "int": lambda v: isinstance(v, int) and not isinstance(v, bool),
-            "int?": lambda v: v is None or (isinstance(v, int) and not isinstance(v, bool)),
+            "number": _finite_number,
+            "number?": lambda v: v is None or _finite_number(v),
+            "measure": _measure,
+            "measure?": lambda v: v is None or _measure(v),
+            "int": _whole,
+            "int?": lambda v: v is None or _whole(v),
             "bool": lambda v: isinstance(v, bool),
             "list": lambda v: isinstance(v, list),
             "object": lambda v: isinstance(v, dict),
             "object?": lambda v: v is None or isinstance(v, dict),
         }
         if not checks[kind](value):
+            whole = f"a whole number within ±{MAX_WHOLE}"
+            measure = _MEASURE_WORDS
             words = {"text": "text", "number": "a finite number", "number?": "a finite number or null",
-                     "int": "a whole number", "int?": "a whole number or null", "bool": "true or false",
+                     "measure": measure, "measure?": measure + ", or null",
+                     "int": whole, "int?": whole + " or null", "bool": "true or false",
                      "list": "a list", "object": "an object", "object?": "an object or null"}[kind]
             self.fail(where, f"expected {words}, found {json.dumps(value, ensure_ascii=False)[:60]}")
             return default
-        return float(value) if kind in ("number",) else value
+        return float(value) if kind in ("number", "measure") else value
 
     def run(self, m: Mapping[str, Any]) -> Run | None:
         name = self.get(m, "name", "", "text", "")
@@ -398,12 +557,16 @@ class _Reader:
         rounding_map = self.get(m, "rounding", p, "object", {})
         rounding = RoundingRule()
         if rounding_map:
-            try:
-                rounding = RoundingRule(
-                    rounding_map.get("kind", "significant"), rounding_map.get("digits", 3), rounding_map.get("tie", "half_up")
-                )
-            except CurvewrightError as exc:
-                self.fail(f"{p}.rounding", str(exc))
+            rp = f"{p}.rounding"
+            before = len(self.problems)
+            kind = self.get(rounding_map, "kind", rp, "text", "significant", required=False)
+            digits = self.get(rounding_map, "digits", rp, "int", 3, required=False)
+            tie = self.get(rounding_map, "tie", rp, "text", "half_up", required=False)
+            if len(self.problems) == before:
+                try:
+                    rounding = RoundingRule(kind, digits, tie)
+                except CurvewrightError as exc:
+                    self.fail(rp, str(exc))
         tolerance = self.get(m, "level_tolerance", p, "number", 0.005, required=False)
         if not (0 <= tolerance < 0.5):
             self.fail(f"{p}.level_tolerance", f"{tolerance!r} must lie from 0 to 0.5")
@@ -418,10 +581,10 @@ class _Reader:
         if not isinstance(m, dict):
             self.fail(path, f"expected a reading object, found {json.dumps(m)[:40]}")
             return None
-        value = self.get(m, "value", path, "number?", None)
+        value = self.get(m, "value", path, "measure?", None)
         text = self.get(m, "text", path, "text", "")
         qualifier = self.get(m, "qualifier", path, "text", None, required=False)
-        limit = self.get(m, "limit", path, "number?", None, required=False)
+        limit = self.get(m, "limit", path, "measure?", None, required=False)
         return Reading(None if value is None else float(value), text, qualifier, None if limit is None else float(limit))
 
     def analyte(self, m: Any, path: str) -> Analyte | None:
@@ -479,7 +642,7 @@ class _Reader:
         """A number, or null with the text that was typed instead (kept, never dropped)."""
         if "concentration" in s and s["concentration"] is None:
             return math.nan  # not entered, or typed text that is not a number (in concentration_text)
-        return self.get(s, "concentration", path, "number", 0.0)
+        return self.get(s, "concentration", path, "measure", 0.0)
 
     def sample(self, m: Any, path: str, analytes: set[str]) -> Sample | None:
         if not isinstance(m, dict):
@@ -491,7 +654,7 @@ class _Reader:
         except ValueError:
             self.fail(f"{path}.kind", f"{kind_text!r} is not one of {', '.join(k.value for k in SampleKind)}")
             kind = SampleKind.UNKNOWN
-        dilution = self.get(m, "dilution_factor", path, "number", 1.0)
+        dilution = self.get(m, "dilution_factor", path, "measure", 1.0)
         if dilution <= 0:
             self.fail(f"{path}.dilution_factor", f"{dilution!r} must be above zero")
         nominal_map = self.get(m, "nominal", path, "object", {}, required=False)
@@ -500,8 +663,8 @@ class _Reader:
             np_ = f"{path}.nominal.{name}"
             if name not in analytes:
                 self.fail(np_, f"names analyte {name!r}, which the run does not have")
-            if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
-                self.fail(np_, f"expected a finite number, found {json.dumps(value)[:40]}")
+            if not _measure(value):
+                self.fail(np_, f"expected {_MEASURE_WORDS}, found {json.dumps(value)[:40]}")
                 continue
             nominal.append((name, float(value)))
         measurements = []
