@@ -1,5 +1,5 @@
 """The files the command writes, as colleagues and the next command find them: readable on a shared
-folder, and written through a link rather than over it."""
+folder, never written over an input, and written through a link rather than over it."""
 
 from __future__ import annotations
 
@@ -53,6 +53,34 @@ def test_a_replaced_export_keeps_the_mode_it_had(tmp_path) -> None:
     os.chmod(workbook, 0o640)
     assert run_cli("quantify", str(DEMO_RUNS[0]), "--export", str(workbook), umask=0o022).returncode == 0
     assert mode(workbook) == 0o640 and openpyxl.load_workbook(workbook).sheetnames[0] == "Samples"
+
+
+def test_an_export_over_an_input_table_is_refused_naming_both(tmp_path) -> None:
+    standards = tmp_path / "std.csv"
+    standards.write_text("Concentration (µg/L),Area\n1,101\n2,199\n5,502\n10,1003\n20,1996\n", encoding="utf-8")
+    samples = tmp_path / "smp.csv"
+    samples.write_text("Sample,Dilution,Area\nWell 3,2,640\nTap,1,55\n", encoding="utf-8")
+    before = samples.read_bytes()
+    result = run_cli("quantify", "--standards", str(standards), "--samples", str(samples), "--export", str(samples))
+    assert result.returncode == 2
+    assert f"--export: {samples} is the samples table this command reads ({samples}); nothing was written" in result.stderr
+    assert samples.read_bytes() == before
+    result = run_cli("quantify", "--standards", str(standards), "--samples", str(samples), "--export",
+                     str(tmp_path / "." / "std.csv"))
+    assert result.returncode == 2 and "is the standards table this command reads" in result.stderr
+
+
+@POSIX
+def test_an_export_through_a_link_to_an_input_is_refused(tmp_path) -> None:
+    standards = tmp_path / "std.csv"
+    standards.write_text("Concentration,Area\n1,101\n2,199\n5,502\n", encoding="utf-8")
+    samples = tmp_path / "smp.csv"
+    samples.write_text("Sample,Area\nWell 3,640\n", encoding="utf-8")
+    link = tmp_path / "out.csv"
+    link.symlink_to(samples)
+    result = run_cli("quantify", "--standards", str(standards), "--samples", str(samples), "--export", str(link))
+    assert result.returncode == 2 and f"{link} is the samples table this command reads ({samples})" in result.stderr
+    assert samples.read_text(encoding="utf-8") == "Sample,Area\nWell 3,640\n"
 
 
 @POSIX

@@ -271,6 +271,7 @@ def _quantify_tables(args: argparse.Namespace) -> Outcome:
     options = _options(args)
     options["analyte"] = None
     options["record"] = False
+    options["inputs"] = {"standards table": args.standards, "samples table": args.samples}
     return _quantify(run, options, source=None, notes=[])
 
 
@@ -282,6 +283,7 @@ def _table(path: str, sheet: str | None):  # type: ignore[no-untyped-def]
 
 def _quantify(run, options: dict[str, Any], *, source: Path | None, notes: list[str]) -> Outcome:  # type: ignore[no-untyped-def]
     from .core.run_analysis import analyse_run
+    from .io.atomic import ensure_not_input
     from .io.run_document import append_to_run_document
 
     settings = run.settings
@@ -297,8 +299,10 @@ def _quantify(run, options: dict[str, Any], *, source: Path | None, notes: list[
     result = analyse_run(run, analytes=names, model=options["model"], weighting=options["weighting"])
     written: list[tuple[str, str, str]] = []
     stem = source.stem if source else run.name.replace("/", "_")
+    inputs = {"run document": source, **options.get("inputs", {})}
     if options["export"]:
         target = _target(options["export"], stem, "." + options["export_format"])
+        ensure_not_input(target, inputs, "--export")
         written.append(("export_written", str(target), _export(result, target, options)))
     if options["report"]:
         from .app.report_pdf import write_report
@@ -307,6 +311,7 @@ def _quantify(run, options: dict[str, Any], *, source: Path | None, notes: list[
         target = _target(options["report"], stem, ".pdf")
         if target.suffix.lower() != ".pdf":
             raise InputError(f"--report: {target} should end in .pdf.")
+        ensure_not_input(target, inputs, "--report")
         written.append(("report_written", str(target), write_report(build_report(result), target)))
     if options["record"] and source is not None and written:
         append_to_run_document(source, [(action, {"path": path, "sha256": sha}) for action, path, sha in written])

@@ -216,6 +216,15 @@ def test_saving_a_linked_document_writes_through_the_link(tmp_path) -> None:
     assert link.is_symlink() and doc.open_run(real).run.audit[-1].action == "report_written"
 
 
+# --- outputs that are inputs ---------------------------------------------------------------------
+def test_an_output_that_is_an_input_is_refused(tmp_path) -> None:
+    samples = tmp_path / "smp.csv"
+    samples.write_text("Sample,Response\nU1,5\n", encoding="utf-8")
+    with pytest.raises(ExportError, match=r"--export: .*smp\.csv is the samples table this command reads"):
+        atomic.ensure_not_input(tmp_path / "." / "smp.csv", {"samples table": samples}, "--export")
+    atomic.ensure_not_input(tmp_path / "results.csv", {"samples table": samples}, "--export")
+
+
 @POSIX
 def test_a_full_disk_prints_no_stray_tracebacks_and_leaves_no_temporaries(tmp_path) -> None:
     script = textwrap.dedent("""

@@ -35,7 +35,7 @@ import sys
 import time
 from contextlib import contextmanager
 from pathlib import Path
-from typing import Iterator
+from typing import Iterator, Mapping
 
 from .errors import ExportError
 
@@ -321,3 +321,25 @@ def _unlock(fd: int) -> None:
     import fcntl
 
     fcntl.flock(fd, fcntl.LOCK_UN)
+
+
+# --- outputs that would destroy inputs -------------------------------------------------------------
+def same_file(a: Path, b: Path) -> bool:
+    """True when ``a`` and ``b`` name one file (the same file when both exist, else the same
+    resolved path, compared as the operating system compares names)."""
+    try:
+        return os.path.samefile(a, b)
+    except OSError:
+        pass
+    return os.path.normcase(os.path.realpath(a)) == os.path.normcase(os.path.realpath(b))
+
+
+def ensure_not_input(target: Path, inputs: Mapping[str, Path | str | None], option: str) -> None:
+    """Refuse to write ``target`` when it is one of the files being read (``inputs`` maps what
+    each input is, e.g. "samples table", to its path)."""
+    for what, source in inputs.items():
+        if source is not None and same_file(Path(target), Path(source)):
+            raise ExportError(
+                f"{option}: {target} is the {what} this command reads ({source}); nothing was written. "
+                "Give the output another name."
+            )
