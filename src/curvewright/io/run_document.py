@@ -16,6 +16,9 @@ processes recording at once both keep their entries. A program that holds a docu
 the :attr:`OpenedRun.sha256` it read to :func:`save_run` (``expected_sha256``), which then refuses
 with :class:`DocumentChanged` if the file on disk changed meanwhile; :func:`document_unchanged` asks
 the same question without saving.
+
+Recovery files (the app's autosave) are a small wrapper, format ``curvewright-recovery``, holding
+the run and the path of the document it belongs to (:func:`save_recovery`, :func:`open_recovery`).
 """
 
 from __future__ import annotations
@@ -63,6 +66,8 @@ MEASURE_RANGE = (1e-30, 1e30)
 apart: wider than any measurement, and narrow enough that no step of a fit (squares, weights such as
 1/x², their products) overflows or underflows a double."""
 _MEASURE_WORDS = "a finite number, zero or from 1e-30 to 1e30 in size"
+RECOVERY_FORMAT = "curvewright-recovery"
+RECOVERY_VERSION = 1
 
 Migration = Callable[[dict[str, Any]], dict[str, Any]]
 MIGRATIONS: dict[int, Migration] = {}
@@ -242,6 +247,44 @@ def document_unchanged(path: str | Path, sha256: str | None) -> bool:
     """True when the file at ``path`` still holds exactly the bytes whose SHA-256 is ``sha256``
     (for a program that opened it and wants to know whether someone else has written it since)."""
     return sha256 is not None and document_sha256(path) == sha256
+
+
+def dumps_recovery(run: Run, source: str | Path | None) -> str:
+    """A recovery file: the run and the document it belongs to ("" for a run never saved)."""
+    wrapper = {"format": RECOVERY_FORMAT, "schema_version": RECOVERY_VERSION,
+               "source": "" if source is None else str(source), "run": run_to_mapping(run)}
+    try:
+        return json.dumps(wrapper, indent=1, ensure_ascii=False, allow_nan=False) + "\n"
+    except ValueError as exc:
+        raise DocumentError(f"run {run.name!r} holds a value JSON cannot store ({exc}).") from None
+
+
+def save_recovery(run: Run, path: str | Path, source: str | Path | None) -> None:
+    """Write a recovery file atomically (the previous one kept as ``NAME.bak``): one file holds
+    both the run and where it came from, so a crash can never separate them."""
+    _readable_document(run, Path(path))
+    write_atomically(Path(path), dumps_recovery(run, source).encode("utf-8"), keep_backup=True)
+
+
+def open_recovery(path: str | Path) -> tuple[OpenedRun, str]:
+    """Read a recovery file: the run and the path of its document ("" when it was never saved).
+    A recovery file of an earlier version (a plain run document with the path in a ``.source``
+    file beside it) is read too."""
+    path = Path(path)
+    raw = _read_document(path)
+    mapping = _parse(raw, str(path))
+    if isinstance(mapping, dict) and mapping.get("format") == RECOVERY_FORMAT:
+        source = mapping.get("source")
+        opened = run_from_mapping(mapping.get("run"), str(path))
+        source = source if isinstance(source, str) else ""
+    else:
+        opened = run_from_mapping(mapping, str(path))
+        companion = path.with_suffix(".source")
+        try:
+            source = companion.read_text(encoding="utf-8") if companion.exists() else ""
+        except (OSError, UnicodeDecodeError):
+            source = ""
+    return OpenedRun(opened.run, path, opened.chain_problems, opened.migrated_from, file_sha256(raw)), source
 
 
 def _reading_out(reading: Reading | None) -> dict[str, Any] | None:
