@@ -74,6 +74,15 @@ def test_without_hard_links_the_backup_is_copied_atomically(tmp_path, monkeypatc
     assert temporaries(tmp_path) == []
 
 
+def test_a_save_stopped_between_its_two_renames_is_completed_by_the_next(tmp_path) -> None:
+    path = tmp_path / "r.bin"
+    atomic.write_atomically(path, b"first")
+    os.link(path, tmp_path / "r.bin.bak")  # the backup made, the target not yet replaced: one file, two names
+    atomic.write_atomically(path, b"second", keep_backup=True)
+    assert path.read_bytes() == b"second" and (tmp_path / "r.bin.bak").read_bytes() == b"first"
+    assert temporaries(tmp_path) == []
+
+
 @POSIX
 def test_a_backup_that_is_a_link_is_replaced_never_followed(tmp_path) -> None:
     victim = tmp_path / "someone else's file.txt"

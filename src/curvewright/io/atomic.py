@@ -182,7 +182,14 @@ class _BackupFailed(Exception):
 
 def _write_backup(target: Path, backup: Path) -> None:
     """Make ``backup`` a complete copy of ``target`` atomically: a hard link (else a copy) under a
-    temporary name, renamed over the backup (a link there is replaced, never followed)."""
+    temporary name, renamed over the backup (a link there is replaced, never followed). When the
+    backup already is the target's file (a save stopped between the two renames), nothing is done:
+    renaming one link of a file over another link of it would leave the temporary in place."""
+    try:
+        if not backup.is_symlink() and os.path.samefile(target, backup):
+            return
+    except OSError:
+        pass
     temporary = new_temporary(backup)
     try:
         try:
@@ -198,6 +205,7 @@ def _write_backup(target: Path, backup: Path) -> None:
     except BaseException:
         temporary.unlink(missing_ok=True)
         raise
+    temporary.unlink(missing_ok=True)  # still there only if the backup was already this very file
     _sync_folder(backup.parent)
 
 
