@@ -189,7 +189,7 @@ def damaged_documents(draw) -> str:  # type: ignore[no-untyped-def]
     return text
 
 
-PLACE = re.compile(r"line \d+, column \d+|^\s+- [^\n]+: |'format'|'schema_version'|a JSON object|UTF-8|nested", re.M)
+PLACE = re.compile(r"line \d+, column \d+|^\s+- [^\n]+: |'format'|'schema_version'|schema version|a JSON object|UTF-8|nested", re.M)
 
 
 def document_property(text: str) -> None:
