@@ -19,12 +19,11 @@ POSIX = pytest.mark.skipif(sys.platform == "win32", reason="POSIX permissions an
 
 
 def run_cli(*args: str, umask: int | None = None) -> subprocess.CompletedProcess:
-    def set_umask() -> None:
-        if umask is not None:
-            os.umask(umask)
-
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True, cwd=ROOT,
-                          timeout=300, preexec_fn=set_umask if sys.platform != "win32" else None)
+    """The command as a user runs it; with ``umask``, from a shell that set it first."""
+    command = [sys.executable, "-m", "curvewright.cli", *args]
+    if umask is not None:
+        command = ["sh", "-c", f"umask {umask:03o} && exec \"$@\"", "sh", *command]
+    return subprocess.run(command, capture_output=True, text=True, cwd=ROOT, timeout=300)
 
 
 def mode(path: Path) -> int:
