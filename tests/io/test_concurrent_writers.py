@@ -84,3 +84,36 @@ def test_a_program_holding_the_document_learns_that_it_changed(tmp_path) -> None
     reopened = doc.open_run(document)
     written = doc.save_run(reopened.run, document, expected_sha256=reopened.sha256)
     assert doc.document_unchanged(document, written)
+
+
+def test_without_file_locks_an_append_still_keeps_the_other_writers_entry(tmp_path, monkeypatch) -> None:
+    """On a file system that has no locks, a change made between the read and the replace is seen
+    and the entries are appended to the new version."""
+    import fcntl
+
+    def no_locks(fd, operation):
+        raise OSError(37, "No locks available")
+
+    monkeypatch.setattr(fcntl, "flock", no_locks)
+    document = tmp_path / "R.json"
+    doc.save_run(small_run(), document)
+    real = doc._readable_document
+    calls = []
+
+    def another_writer_comes_in(run, path):  # the other writer saves while this one is between read and write
+        data = real(run, path)
+        if not calls:
+            calls.append(1)
+            other = doc.open_run(path).run
+            from curvewright.io.audit import append_entry
+            from dataclasses import replace
+
+            trail = append_entry(other.audit, "report_written", {"path": "other.pdf", "sha256": "2" * 64}, user="other")
+            path.write_text(doc.dumps_run(replace(other, audit=trail)), encoding="utf-8")
+        return data
+
+    monkeypatch.setattr(doc, "_readable_document", another_writer_comes_in)
+    saved = doc.append_to_run_document(document, [("export_written", {"path": "mine.xlsx", "sha256": "3" * 64})])
+    actions = [(e.action, e.details["path"]) for e in doc.open_run(document).run.audit[-2:]]
+    assert actions == [("report_written", "other.pdf"), ("export_written", "mine.xlsx")]
+    assert saved == doc.open_run(document).run and doc.open_run(document).chain_verified

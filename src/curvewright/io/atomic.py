@@ -273,10 +273,14 @@ def lock_path(path: Path) -> Path:
 
 
 @contextmanager
-def exclusive_lock(path: Path, *, timeout: float = LOCK_TIMEOUT_SECONDS) -> Iterator[None]:
+def exclusive_lock(path: Path, *, timeout: float = LOCK_TIMEOUT_SECONDS) -> Iterator[bool]:
     """Hold the operating system's exclusive lock on ``path``'s lock file while the block runs, so
     that a read-modify-write by another process (or thread) waits for this one to finish.
-    ``fcntl.flock`` on POSIX, ``msvcrt.locking`` on Windows; the lock ends with the process."""
+    ``fcntl.flock`` on POSIX, ``msvcrt.locking`` on Windows; the lock ends with the process.
+
+    Yields True while the lock is held, or False on a file system that has no locks (some network
+    shares): the block then goes on unlocked, and a caller that reads before it writes checks
+    itself that the file did not change in between."""
     target = resolve_target(Path(path))
     where = lock_path(target)
     try:
@@ -285,7 +289,7 @@ def exclusive_lock(path: Path, *, timeout: float = LOCK_TIMEOUT_SECONDS) -> Iter
         raise ExportError(f"{target}: cannot write in folder {where.parent} ({_reason(exc)}); nothing was written.") from None
     try:
         deadline = time.monotonic() + timeout
-        while not _try_lock(fd):
+        while (locked := _try_lock(fd)) is False:
             if time.monotonic() > deadline:
                 raise ExportError(
                     f"{target}: another program has been writing this file for more than {timeout:.0f} s; "
@@ -293,14 +297,16 @@ def exclusive_lock(path: Path, *, timeout: float = LOCK_TIMEOUT_SECONDS) -> Iter
                 )
             time.sleep(0.02)
         try:
-            yield
+            yield bool(locked)
         finally:
-            _unlock(fd)
+            if locked:
+                _unlock(fd)
     finally:
         os.close(fd)
 
 
-def _try_lock(fd: int) -> bool:
+def _try_lock(fd: int) -> bool | None:
+    """True when locked, False when another holds the lock, None when the file system has none."""
     if sys.platform == "win32":  # pragma: no cover - exercised on Windows only
         import msvcrt
 
@@ -317,6 +323,8 @@ def _try_lock(fd: int) -> bool:
         return True
     except BlockingIOError:
         return False
+    except OSError:  # ENOLCK, EOPNOTSUPP…: no locks on this file system
+        return None
 
 
 def _unlock(fd: int) -> None:

@@ -66,6 +66,7 @@ MEASURE_RANGE = (1e-30, 1e30)
 apart: wider than any measurement, and narrow enough that no step of a fit (squares, weights such as
 1/x², their products) overflows or underflows a double."""
 _MEASURE_WORDS = "a finite number, zero or from 1e-30 to 1e30 in size"
+_APPEND_ATTEMPTS = 20
 RECOVERY_FORMAT = "curvewright-recovery"
 RECOVERY_VERSION = 1
 
@@ -207,16 +208,26 @@ def append_to_run_document(
     """Append audit entries ``(action, details)`` to the document at ``path`` and save it: the
     document is re-read and replaced while its lock is held, so entries appended by another
     process at the same time are kept. Only the trail grows; nothing else in the document changes.
-    Returns the run as saved."""
+    Where the file system has no locks, the document is checked to be unchanged just before it is
+    replaced, and read again if it was. Returns the run as saved."""
     path = Path(path)
-    with exclusive_lock(path):
-        run = open_run(path).run
-        trail = run.audit
-        for action, details in entries:
-            trail = append_entry(trail, action, details, user=user, clock=clock)
-        run = replace(run, audit=trail)
-        write_atomically(path, _readable_document(run, path), keep_backup=True)
-    return run
+    entries = list(entries)
+    for _ in range(_APPEND_ATTEMPTS):
+        with exclusive_lock(path) as locked:
+            opened = open_run(path)
+            trail = opened.run.audit
+            for action, details in entries:
+                trail = append_entry(trail, action, details, user=user, clock=clock)
+            run = replace(opened.run, audit=trail)
+            data = _readable_document(run, path)
+            if not locked and not document_unchanged(path, opened.sha256):
+                continue  # another writer came in between: read its version and append to that
+            write_atomically(path, data, keep_backup=True)
+            return run
+    raise ExportError(
+        f"{path}: the audit entries were not added, because other programs kept changing the file "
+        f"({_APPEND_ATTEMPTS} attempts); nothing was written. Try again."
+    )
 
 
 def _readable_document(run: Run, path: Path) -> bytes:
