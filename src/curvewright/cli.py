@@ -337,6 +337,7 @@ def _quantify_tables(args: argparse.Namespace) -> Outcome:
         run, choices = _choose_recommended(run)
     options = _options(args)
     options.update(analyte=None, record=False, model=None, weighting=None)  # the choice is in the run now
+    options["inputs"] = {"standards table": args.standards, "samples table": args.samples}
     warnings = list(tables.warnings)
     unreadable = [c for c in tables.unusable if c[1].text.strip()]
     outcome = _quantify(run, options, source=None, notes=tables.notes, choices=choices,
@@ -552,8 +553,8 @@ def _quantify(  # type: ignore[no-untyped-def]
     """Analyse, export and report one run. ``choices`` says how each analyte's model was chosen
     (default: from the run document, or the command line when --model/--weighting override it)."""
     from .core.run_analysis import analyse_run
-    from .io import run_edits
-    from .io.run_document import save_run
+    from .io.atomic import ensure_not_input
+    from .io.run_document import append_to_run_document
 
     run = _with_settings(run, options["level"], options["profile"])
     names = tuple(options["analyte"]) if options["analyte"] else None
@@ -564,8 +565,10 @@ def _quantify(  # type: ignore[no-untyped-def]
                    else list(analyte_warnings.get(a.analyte.name, [])) for a in result.analytes}
     written: list[tuple[str, str, str]] = []
     stem = source.stem if source else run.name.replace("/", "_")
+    inputs = {"run document": source, **options.get("inputs", {})}
     if options["export"]:
         target = _target(options["export"], stem, "." + options["export_format"])
+        ensure_not_input(target, inputs, "--export")
         written.append(("export_written", str(target), _export(result, target, options)))
     if options["report"]:
         from .app.report_pdf import write_report
@@ -574,11 +577,10 @@ def _quantify(  # type: ignore[no-untyped-def]
         target = _target(options["report"], stem, ".pdf")
         if target.suffix.lower() != ".pdf":
             raise InputError(f"--report: {target} should end in .pdf.")
+        ensure_not_input(target, inputs, "--report")
         written.append(("report_written", str(target), write_report(build_report(result), target)))
     if options["record"] and source is not None and written:
-        for action, path, sha in written:
-            run = run_edits.record(run, action, {"path": path, "sha256": sha})
-        save_run(run, source)
+        append_to_run_document(source, [(action, {"path": path, "sha256": sha}) for action, path, sha in written])
     code = EXIT_ACCEPTED if result.accepted else EXIT_REJECTED
     if options["json"]:
         data = result_json(result, source, written, choices=chosen, analyte_warnings=per_analyte, notes=notes,

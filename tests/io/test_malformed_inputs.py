@@ -126,7 +126,7 @@ def broken(path: str, value) -> dict:  # type: ignore[no-untyped-def]
 
 
 DOCUMENT_PROBLEMS = [
-    (broken("analytes.0.standards.3.concentration", "abc"), 'analytes[0].standards[3].concentration: expected a finite number, found "abc"'),
+    (broken("analytes.0.standards.3.concentration", "abc"), 'analytes[0].standards[3].concentration: expected a finite number, zero or from 1e-30 to 1e30 in size, found "abc"'),
     (broken("analytes.0.standards.0.replicate", 0), "analytes[0].standards[0].replicate: 0 must be 1 or more"),
     (broken("analytes.0.standards.11.exclusion_reason", ""), "analytes[0].standards[11].exclusion_reason: an excluded standard needs its reason"),
     (broken("analytes.0.standards.1.id", "S1a"), "analytes[0].standards[1]: duplicate standard id 'S1a'"),
@@ -134,7 +134,7 @@ DOCUMENT_PROBLEMS = [
     (broken("analytes.0.weighting", "1/z"), "analytes[0].weighting: '1/z' is not one of"),
     (broken("analytes.0.name", ""), "analytes[0].name: an analyte needs a name"),
     (broken("analytes.0.standards.0.response", KeyError), "analytes[0].standards[0].response: missing reading"),
-    (broken("analytes.0.standards.0.response", {"value": "12", "text": "12"}), 'analytes[0].standards[0].response.value: expected a finite number or null, found "12"'),
+    (broken("analytes.0.standards.0.response", {"value": "12", "text": "12"}), 'analytes[0].standards[0].response.value: expected a finite number, zero or from 1e-30 to 1e30 in size, or null, found "12"'),
     (broken("samples.0.kind", "mystery"), "samples[0].kind: 'mystery' is not one of"),
     (broken("samples.0.dilution_factor", -2), "samples[0].dilution_factor: -2.0 must be above zero"),
     (broken("samples.1.id", good_document()["samples"][0]["id"]), "samples[1]: duplicate sample id"),
@@ -169,7 +169,7 @@ def test_every_problem_is_reported_at_once() -> None:
     "text, message",
     [
         (doc.dumps_run(small_run())[:500], "not valid JSON at line"),
-        ('{"format": "curvewright-run", "schema_version": 1, "x": NaN}', "NaN is not a number"),
+        ('{"format": "curvewright-run", "schema_version": 1, "x": NaN}', "NaN at line 1, column 57 is not a number"),
         ("[1, 2, 3]", "a run document is a JSON object"),
         ('{"format": "other-program"}', "not a Curvewright run document"),
         ('{"format": "curvewright-run", "schema_version": "1"}', "'schema_version' must be a whole number"),

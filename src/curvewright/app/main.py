@@ -11,9 +11,9 @@ from PySide6.QtWidgets import QMessageBox
 
 from ..core.errors import CurvewrightError
 from ..io import run_edits
-from ..io.run_document import open_run
+from ..io.run_document import open_recovery
 from .qt_runtime import ensure_application
-from .session import RunSession, pending_recoveries
+from .session import RunSession, pending_recoveries, recovery_files
 
 
 def demo_run_paths() -> list[Path]:
@@ -40,12 +40,16 @@ def find_demo(name: str | None) -> Path:
 
 
 def offer_recovery(folder: Path | None, parent=None) -> RunSession | None:  # type: ignore[no-untyped-def]
-    """After a crash: offer to restore the work kept in a recovery file (one offer per file)."""
-    for recovery, source in pending_recoveries(folder):
-        try:
-            opened = open_run(recovery)
-        except CurvewrightError:
-            opened = None
+    """After a crash: offer to restore the work kept in a recovery file (one offer per file). The
+    document the work belongs to is named in the recovery file itself."""
+    for recovery, _ in pending_recoveries(folder):
+        opened, source = None, ""
+        for candidate in (recovery, recovery_files(recovery)[2]):  # the file, else its backup
+            try:
+                opened, source = open_recovery(candidate)
+                break
+            except CurvewrightError:
+                continue
         answer = QMessageBox.StandardButton.No
         if opened is not None:
             answer = QMessageBox.question(
@@ -53,8 +57,11 @@ def offer_recovery(folder: Path | None, parent=None) -> RunSession | None:  # ty
                 "Curvewright did not close normally. Unsaved work was kept"
                 + (f" for {source}" if source else " for a run that was never saved") + ". Restore it?",
                 QMessageBox.StandardButton.Yes | QMessageBox.StandardButton.No)
-        for stale in (recovery, recovery.with_suffix(".source"), recovery.with_name(recovery.name + ".bak")):
-            stale.unlink(missing_ok=True)
+        for stale in recovery_files(recovery):
+            try:
+                stale.unlink(missing_ok=True)
+            except OSError:
+                pass  # offered again at the next start
         if opened is not None and answer == QMessageBox.StandardButton.Yes:
             session = RunSession(opened.run, Path(source) if source else None, recovery_folder=folder)
             session.apply(run_edits.record(opened.run, "recovered_after_crash", {"recovery_file": recovery.name}),

@@ -22,7 +22,7 @@ from ..core.errors import CurvewrightError
 from ..core.run import Run
 from ..core.run_analysis import RunResult, analyse_run
 from ..io.audit import append_entry
-from ..io.run_document import open_run, save_run
+from ..io.run_document import open_recovery, open_run, save_recovery, save_run
 
 DEBOUNCE_MS = 120
 """Edits closer together than this are analysed once."""
@@ -90,19 +90,31 @@ class _AnalysisJob(QRunnable):
         self.signals.done.emit(answer)
 
 
+class _RecoverySignals(QObject):
+    written = Signal()
+    failed = Signal(str)
+
+
 class _RecoveryJob(QRunnable):
-    def __init__(self, run: Run, path: Path, source: str) -> None:
+    """Writes the recovery file on the writer thread: the run and the path of its document in one
+    file, written atomically. The outcome goes back to the session as a queued signal."""
+
+    def __init__(self, run: Run, path: Path, source: str, signals: _RecoverySignals) -> None:
         super().__init__()
-        self.subject, self.path, self.source = run, path, source
+        self.subject, self.path, self.source, self.signals = run, path, source, signals
         self.setAutoDelete(True)
 
     def run(self) -> None:  # noqa: D401 - QRunnable entry point
         try:
-            self.path.parent.mkdir(parents=True, exist_ok=True)
-            save_run(self.subject, self.path)
-            self.path.with_suffix(".source").write_text(self.source, encoding="utf-8")
-        except (OSError, CurvewrightError):
-            pass  # a recovery file is a safety net; saving the run itself reports its own errors
+            try:
+                self.path.parent.mkdir(parents=True, exist_ok=True)
+            except OSError as exc:
+                raise CurvewrightError(f"cannot make the folder {self.path.parent} ({exc.strerror or exc})") from None
+            save_recovery(self.subject, self.path, self.source)
+        except (OSError, CurvewrightError) as exc:
+            self.signals.failed.emit(str(exc))
+            return
+        self.signals.written.emit()
 
 
 class RunSession(QObject):
@@ -113,6 +125,7 @@ class RunSession(QObject):
     analysis_failed = Signal(str)
     dirty_changed = Signal(bool)
     path_changed = Signal(object)       # Path | None
+    recovery_failed = Signal(str)       # what cannot be kept for recovery, and why (once until it works again)
 
     def __init__(self, run: Run, path: Path | None = None, *, recovery_folder: Path | None = None,
                  parent: QObject | None = None) -> None:
@@ -145,6 +158,10 @@ class RunSession(QObject):
         self._recovery_timer.timeout.connect(self.write_recovery)
         self._writer = QThreadPool(self)
         self._writer.setMaxThreadCount(1)
+        self._recovery_signals = _RecoverySignals()
+        self._recovery_signals.failed.connect(self._on_recovery_failed)
+        self._recovery_signals.written.connect(self._on_recovery_written)
+        self._recovery_warned = False
         self.request_analysis(immediate=True)
 
     # --- state -----------------------------------------------------------------------------------
@@ -197,12 +214,14 @@ class RunSession(QObject):
     def save(self, path: Path | None = None) -> Path:
         target = Path(path or self._path)  # type: ignore[arg-type]
         save_run(self._run, target)
+        previous_recovery = self.recovery_path()  # a new run's, or the old name's after Save As
         self._path = target
         self._unsaved_records = False
         self.undo_stack.setClean()
         self.dirty_changed.emit(False)
         self.path_changed.emit(target)
         self.discard_recovery()
+        self._discard_recovery_files(previous_recovery)
         return target
 
     @classmethod
@@ -217,11 +236,27 @@ class RunSession(QObject):
         return self.recovery_folder / f"recovery-{digest}.json"
 
     def write_recovery(self) -> None:
-        """Autosave after a change (on the writer thread), so that a crash loses nothing."""
+        """Autosave after a change (on the writer thread), so that a crash loses nothing. When the
+        recovery file cannot be written, :attr:`recovery_failed` says so once (again only after a
+        write has worked in between)."""
         if not self.dirty:
             self.discard_recovery()
             return
-        self._writer.start(_RecoveryJob(self._run, self.recovery_path(), str(self._path or "")))
+        self._writer.start(_RecoveryJob(self._run, self.recovery_path(), str(self._path or ""), self._recovery_signals))
+
+    @Slot(str)
+    def _on_recovery_failed(self, reason: str) -> None:
+        if self._recovery_warned:
+            return
+        self._recovery_warned = True
+        self.recovery_failed.emit(
+            f"Unsaved changes cannot be kept for recovery after a crash: {reason}. Save the run to keep "
+            "your changes; the recovery folder is set by the system's application-data location."
+        )
+
+    @Slot()
+    def _on_recovery_written(self) -> None:
+        self._recovery_warned = False
 
     def flush_recovery(self) -> None:
         """Write a pending recovery file now and wait for it (before a risky step, and in tests)."""
@@ -233,9 +268,15 @@ class RunSession(QObject):
     def discard_recovery(self) -> None:
         self._recovery_timer.stop()
         self._writer.waitForDone(10000)
-        for p in (self.recovery_path(), self.recovery_path().with_suffix(".source"),
-                  self.recovery_path().with_name(self.recovery_path().name + ".bak")):
-            p.unlink(missing_ok=True)
+        self._discard_recovery_files(self.recovery_path())
+
+    @staticmethod
+    def _discard_recovery_files(recovery: Path) -> None:
+        for p in recovery_files(recovery):
+            try:
+                p.unlink(missing_ok=True)
+            except OSError:
+                pass  # a file we cannot remove is offered again at the next start, never lost
 
     # --- analysis ----------------------------------------------------------------------------------
     def request_analysis(self, immediate: bool = False) -> None:
@@ -282,13 +323,24 @@ def default_recovery_folder() -> Path:
     return Path(base or Path.home() / ".curvewright") / "recovery"
 
 
+def recovery_files(recovery: Path) -> tuple[Path, ...]:
+    """A recovery file and its companions: its backup, and the ``.source`` file earlier versions
+    wrote beside it."""
+    return (recovery, recovery.with_suffix(".source"), recovery.with_name(recovery.name + ".bak"))
+
+
 def pending_recoveries(folder: Path | None = None) -> list[tuple[Path, str]]:
-    """Recovery files left by a session that did not close normally: (file, original path or "")."""
+    """Recovery files left by a session that did not close normally: (file, original path or "").
+    The path is read from inside the file (from a ``.source`` file beside it for files written by
+    earlier versions); a file that cannot be read is listed with ""."""
     folder = folder or default_recovery_folder()
     if not folder.exists():
         return []
     out = []
     for p in sorted(folder.glob("recovery-*.json")):
-        marker = p.with_suffix(".source")
-        out.append((p, marker.read_text(encoding="utf-8") if marker.exists() else ""))
+        try:
+            _, source = open_recovery(p)
+        except CurvewrightError:
+            source = ""
+        out.append((p, source))
     return out

@@ -5,13 +5,15 @@ of significant figures or a number of decimal places, with a stated tie-break: r
 General Notices 7.20: look only at the first digit dropped; 5 rounds up) or round half to even.
 Decimal arithmetic on the shortest repr of the double, so 0.145 rounds to 0.15 under half up as a
 reader of the printed value expects (Ph. Eur. example), not to 0.14 as binary round-off would give.
+The arithmetic runs with enough decimal digits for any double (up to about 1.8e308 with 15 decimals
+kept), so a large value is rounded exactly, never refused.
 """
 
 from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from decimal import ROUND_HALF_EVEN, ROUND_HALF_UP, Decimal
+from decimal import ROUND_HALF_EVEN, ROUND_HALF_UP, Decimal, localcontext
 
 from .errors import CurvewrightError
 
@@ -21,6 +23,8 @@ class RoundingError(CurvewrightError, ValueError):
 
 
 _TIES = {"half_up": ROUND_HALF_UP, "half_even": ROUND_HALF_EVEN}
+_PRECISION = 400
+"""Decimal digits for the rounding: 309 integer digits of the largest double and 15 decimals fit."""
 
 
 @dataclass(frozen=True)
@@ -32,13 +36,13 @@ class RoundingRule:
     tie: str = "half_up"
 
     def __post_init__(self) -> None:
-        if self.kind not in ("significant", "decimals"):
+        if not isinstance(self.kind, str) or self.kind not in ("significant", "decimals"):
             raise RoundingError(f"rounding kind: {self.kind!r} is not 'significant' or 'decimals'.")
         if isinstance(self.digits, bool) or not isinstance(self.digits, int) or not (0 <= self.digits <= 15):
             raise RoundingError(f"rounding digits: {self.digits!r} must be a whole number from 0 to 15.")
         if self.kind == "significant" and self.digits == 0:
             raise RoundingError("rounding digits: at least 1 significant figure is kept.")
-        if self.tie not in _TIES:
+        if not isinstance(self.tie, str) or self.tie not in _TIES:
             raise RoundingError(f"rounding tie-break: {self.tie!r} is not 'half_up' or 'half_even'.")
 
     @property
@@ -51,19 +55,21 @@ class RoundingRule:
         """``value`` rounded under this rule, as text that keeps trailing zeros ("12.0")."""
         if not math.isfinite(value):
             return "" if math.isnan(value) else ("∞" if value > 0 else "−∞")
-        d = Decimal(repr(float(value)))
-        if self.kind == "decimals":
-            exponent = -self.digits
-        else:
-            if d.is_zero():
-                exponent = -(self.digits - 1)
+        with localcontext() as context:
+            context.prec = _PRECISION
+            d = Decimal(repr(float(value)))
+            if self.kind == "decimals":
+                exponent = -self.digits
             else:
-                exponent = d.adjusted() - (self.digits - 1)
-        rounded = d.quantize(Decimal(1).scaleb(exponent), rounding=_TIES[self.tie])
-        if self.kind == "significant" and not rounded.is_zero() and rounded.adjusted() > d.adjusted():
-            # 9.99 → 10.0: the carry added a digit; drop one decimal to keep the figure count.
-            rounded = rounded.quantize(Decimal(1).scaleb(exponent + 1), rounding=_TIES[self.tie])
-        text = format(rounded, "f")
+                if d.is_zero():
+                    exponent = -(self.digits - 1)
+                else:
+                    exponent = d.adjusted() - (self.digits - 1)
+            rounded = d.quantize(Decimal(1).scaleb(exponent), rounding=_TIES[self.tie])
+            if self.kind == "significant" and not rounded.is_zero() and rounded.adjusted() > d.adjusted():
+                # 9.99 → 10.0: the carry added a digit; drop one decimal to keep the figure count.
+                rounded = rounded.quantize(Decimal(1).scaleb(exponent + 1), rounding=_TIES[self.tie])
+            text = format(rounded, "f")
         if rounded.is_zero() and text.startswith("-"):
             text = text[1:]  # a rounded −0.00 is reported as 0.00
         return text

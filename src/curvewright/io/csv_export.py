@@ -2,14 +2,17 @@
 
 The first two lines start with "#": the caution, then the format (delimiter, decimal mark, text
 protection). Numbers are written at full precision (shortest round-trip repr), with a decimal comma
-when asked; the delimiter then cannot be a comma.
+when asked; the delimiter then cannot be a comma. Text that a spreadsheet could read as a formula
+is preceded by an apostrophe (:mod:`.safe_text`). Every field holding the delimiter, a double
+quote, a carriage return or a line feed is quoted (RFC 4180, with embedded quotes doubled), so no
+character inside a field can start a new record.
 """
 
 from __future__ import annotations
 
-import csv
 import io
 from pathlib import Path
+from typing import Sequence
 
 from .. import CAUTION, __version__
 from ..core.run_analysis import RunResult
@@ -40,13 +43,25 @@ def csv_text(table: Table, *, delimiter: str = ",", decimal_mark: str = ".") -> 
     out.write(f"# {CAUTION}\n")
     out.write(
         f"# Curvewright {__version__} {table.title.lower()} export; delimiter: {DELIMITERS[delimiter]}; "
-        f"decimal mark: '{decimal_mark}'; text that would start with = + - @ is preceded by an apostrophe\n"
+        f"decimal mark: '{decimal_mark}'; text a spreadsheet could read as a formula (starting with = + - @, "
+        "a tab or a line break, also after spaces or invisible characters) is preceded by an apostrophe\n"
     )
-    writer = csv.writer(out, delimiter=delimiter, lineterminator="\n", quoting=csv.QUOTE_MINIMAL)
-    writer.writerow([csv_safe(c.heading) for c in table.columns])
+    out.write(_record([csv_safe(c.heading) for c in table.columns], delimiter))
     for row in table.rows:
-        writer.writerow([_field(v, c.kind, decimal_mark) for v, c in zip(row, table.columns)])
+        out.write(_record([_field(v, c.kind, decimal_mark) for v, c in zip(row, table.columns)], delimiter))
     return out.getvalue()
+
+
+def _record(fields: Sequence[str], delimiter: str) -> str:
+    """One CSV line; a field is quoted when it holds the delimiter, a quote, CR or LF (the csv
+    module's writer leaves a lone CR unquoted, which splits the record in a spreadsheet)."""
+    return delimiter.join(_quoted(f, delimiter) for f in fields) + "\n"
+
+
+def _quoted(field: str, delimiter: str) -> str:
+    if delimiter in field or '"' in field or "\r" in field or "\n" in field:
+        return '"' + field.replace('"', '""') + '"'
+    return field
 
 
 def _field(value: object, kind: str, decimal_mark: str) -> str:
@@ -60,4 +75,5 @@ def _field(value: object, kind: str, decimal_mark: str) -> str:
         text = str(value)
         if kind != "reported":
             return csv_safe(text)
+        return csv_safe(text.replace(".", ",") if decimal_mark == "," else text)
     return text.replace(".", ",") if decimal_mark == "," else text

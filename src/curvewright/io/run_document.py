@@ -1,20 +1,35 @@
 """Run documents: versioned, human-readable JSON with validation, migrations and atomic saving.
 
 Format ``curvewright-run``, ``schema_version`` 1 (JSON Schema: ``resources/run-document.schema.json``).
-Opening validates everything and reports every problem with its path in the document
-(``analytes[0].standards[3].concentration: expected a number, found "abc"``); it refuses files over
-:data:`MAX_DOCUMENT_BYTES` and only ever parses JSON, never executes anything. Older versions are
-brought up to date by one migration function per format change (:data:`MIGRATIONS`). Saving is
-atomic and keeps the previous version as ``NAME.bak``.
+Opening validates everything the analysis relies on and reports every problem with its path in the
+document (``analytes[0].standards[3].concentration: expected a number, found "abc"``); it refuses
+files over :data:`MAX_DOCUMENT_BYTES`, nesting deeper than :data:`MAX_NESTING`, whole numbers of
+more than :data:`MAX_DIGITS` digits and text that is not Unicode characters (unpaired surrogates),
+and only ever parses JSON, never executes anything. Older versions are brought up to date by one
+migration function per format change (:data:`MIGRATIONS`).
+
+Saving is atomic and keeps the previous version as ``NAME.bak`` (:mod:`.atomic`; a symbolic link is
+written through to the file it points to). Every write of a document holds the operating system's
+lock on ``.NAME.lock`` beside it, so that :func:`append_to_run_document` (the command line's
+``--record``) re-reads and replaces the file while no other writer can come in between: two
+processes recording at once both keep their entries. A program that holds a document open can pass
+the :attr:`OpenedRun.sha256` it read to :func:`save_run` (``expected_sha256``), which then refuses
+with :class:`DocumentChanged` if the file on disk changed meanwhile; :func:`document_unchanged` asks
+the same question without saving.
+
+Recovery files (the app's autosave) are a small wrapper, format ``curvewright-recovery``, holding
+the run and the path of the document it belongs to (:func:`save_recovery`, :func:`open_recovery`).
 """
 
 from __future__ import annotations
 
 import json
 import math
-from dataclasses import dataclass
+import re
+import sys
+from dataclasses import dataclass, replace
 from pathlib import Path
-from typing import Any, Callable, Mapping
+from typing import Any, Callable, Iterable, Mapping
 
 from .._version import __version__
 from ..core.acceptance import AcceptanceProfile, available_profiles
@@ -33,13 +48,27 @@ from ..core.run import (
     Standard,
 )
 from ..core.weighting import Weighting
-from .atomic import write_atomically
-from .audit import verify_chain
-from .errors import DocumentError
+from .atomic import exclusive_lock, write_atomically
+from .audit import Clock, append_entry, file_sha256, file_sha256_streamed, utc_now, verify_chain
+from .errors import DocumentError, ExportError
 
 FORMAT = "curvewright-run"
 SCHEMA_VERSION = 1
 MAX_DOCUMENT_BYTES = 64 * 1024 * 1024
+MAX_NESTING = 64
+"""Levels of lists and objects a document may nest (a run document uses fewer than ten)."""
+MAX_DIGITS = 300
+"""Digits a whole number in a document may have (a double's range ends at about 1.8e308)."""
+MAX_WHOLE = 2**53 - 1
+"""Largest whole number a counting field (replicate, run order) may hold: exact in every JSON reader."""
+MEASURE_RANGE = (1e-30, 1e30)
+"""Sizes a measured value (concentration, response, dilution factor, nominal value) may have, zero
+apart: wider than any measurement, and narrow enough that no step of a fit (squares, weights such as
+1/x², their products) overflows or underflows a double."""
+_MEASURE_WORDS = "a finite number, zero or from 1e-30 to 1e30 in size"
+_APPEND_ATTEMPTS = 20
+RECOVERY_FORMAT = "curvewright-recovery"
+RECOVERY_VERSION = 1
 
 Migration = Callable[[dict[str, Any]], dict[str, Any]]
 MIGRATIONS: dict[int, Migration] = {}
@@ -54,6 +83,8 @@ class OpenedRun:
     path: Path | None
     chain_problems: tuple[str, ...]
     migrated_from: int | None
+    sha256: str | None = None
+    """SHA-256 of the bytes read (None when parsed from text): compare with :func:`document_unchanged`."""
 
     @property
     def chain_verified(self) -> bool:
@@ -145,9 +176,126 @@ def dumps_run(run: Run) -> str:
         raise DocumentError(f"run {run.name!r} holds a value JSON cannot store ({exc}).") from None
 
 
-def save_run(run: Run, path: str | Path) -> None:
-    """Save atomically, keeping the previous file as ``NAME.bak``."""
-    write_atomically(Path(path), dumps_run(run).encode("utf-8"), keep_backup=True)
+class DocumentChanged(ExportError):
+    """The document on disk is no longer the one that was opened; nothing was written."""
+
+
+def save_run(run: Run, path: str | Path, *, expected_sha256: str | None = None) -> str:
+    """Save atomically under the document's lock, keeping the previous file as ``NAME.bak``;
+    return the SHA-256 of what was written. With ``expected_sha256`` (the :attr:`OpenedRun.sha256`
+    read when the document was opened, or returned by the last save) the save is refused with
+    :class:`DocumentChanged` when the file on disk is no longer that one."""
+    path = Path(path)
+    data = _readable_document(run, path)
+    with exclusive_lock(path):
+        if expected_sha256 is not None and document_sha256(path) != expected_sha256:
+            raise DocumentChanged(
+                f"{path}: not saved, because the file was changed on disk after it was opened (by another "
+                "program, or by a command that recorded an export in it); nothing was written. Open it again "
+                "to see the changes, or save this run under another name."
+            )
+        write_atomically(path, data, keep_backup=True)
+    return file_sha256(data)
+
+
+def append_to_run_document(
+    path: str | Path,
+    entries: Iterable[tuple[str, Mapping[str, Any]]],
+    *,
+    user: str | None = None,
+    clock: Clock = utc_now,
+) -> Run:
+    """Append audit entries ``(action, details)`` to the document at ``path`` and save it: the
+    document is re-read and replaced while its lock is held, so entries appended by another
+    process at the same time are kept. Only the trail grows; nothing else in the document changes.
+    Where the file system has no locks, the document is checked to be unchanged just before it is
+    replaced, and read again if it was. Returns the run as saved."""
+    path = Path(path)
+    entries = list(entries)
+    for _ in range(_APPEND_ATTEMPTS):
+        with exclusive_lock(path) as locked:
+            opened = open_run(path)
+            trail = opened.run.audit
+            for action, details in entries:
+                trail = append_entry(trail, action, details, user=user, clock=clock)
+            run = replace(opened.run, audit=trail)
+            data = _readable_document(run, path)
+            if not locked and not document_unchanged(path, opened.sha256):
+                continue  # another writer came in between: read its version and append to that
+            write_atomically(path, data, keep_backup=True)
+            return run
+    raise ExportError(
+        f"{path}: the audit entries were not added, because other programs kept changing the file "
+        f"({_APPEND_ATTEMPTS} attempts); nothing was written. Try again."
+    )
+
+
+def _readable_document(run: Run, path: Path) -> bytes:
+    """The document's bytes, once it is certain that they open again: a run holding what no run
+    document may (a value out of range, text that is not characters) is not written, so that no
+    save ever produces a file that cannot be opened."""
+    text = dumps_run(run)
+    try:
+        loads_run(text, origin=str(path))
+    except DocumentError as exc:
+        raise DocumentError(
+            f"{path}: not saved, because the run holds values a run document cannot hold (the file could not be "
+            "opened again); nothing was written. Correct them and save again",
+            exc.problems or (str(exc).split(": ", 1)[-1],),
+        ) from None
+    return text.encode("utf-8")
+
+
+def document_sha256(path: str | Path) -> str | None:
+    """SHA-256 of the file at ``path`` as it is now; None when it cannot be read."""
+    try:
+        return file_sha256_streamed(Path(path))
+    except OSError:
+        return None
+
+
+def document_unchanged(path: str | Path, sha256: str | None) -> bool:
+    """True when the file at ``path`` still holds exactly the bytes whose SHA-256 is ``sha256``
+    (for a program that opened it and wants to know whether someone else has written it since)."""
+    return sha256 is not None and document_sha256(path) == sha256
+
+
+def dumps_recovery(run: Run, source: str | Path | None) -> str:
+    """A recovery file: the run and the document it belongs to ("" for a run never saved)."""
+    wrapper = {"format": RECOVERY_FORMAT, "schema_version": RECOVERY_VERSION,
+               "source": "" if source is None else str(source), "run": run_to_mapping(run)}
+    try:
+        return json.dumps(wrapper, indent=1, ensure_ascii=False, allow_nan=False) + "\n"
+    except ValueError as exc:
+        raise DocumentError(f"run {run.name!r} holds a value JSON cannot store ({exc}).") from None
+
+
+def save_recovery(run: Run, path: str | Path, source: str | Path | None) -> None:
+    """Write a recovery file atomically (the previous one kept as ``NAME.bak``): one file holds
+    both the run and where it came from, so a crash can never separate them."""
+    _readable_document(run, Path(path))
+    write_atomically(Path(path), dumps_recovery(run, source).encode("utf-8"), keep_backup=True)
+
+
+def open_recovery(path: str | Path) -> tuple[OpenedRun, str]:
+    """Read a recovery file: the run and the path of its document ("" when it was never saved).
+    A recovery file of an earlier version (a plain run document with the path in a ``.source``
+    file beside it) is read too."""
+    path = Path(path)
+    raw = _read_document(path)
+    mapping = _parse(raw, str(path))
+    if isinstance(mapping, dict) and mapping.get("format") == RECOVERY_FORMAT:
+        source = mapping.get("source")
+        opened = run_from_mapping(mapping.get("run"), str(path))
+        source = source if isinstance(source, str) else ""
+    else:
+        opened = run_from_mapping(mapping, str(path))
+        companion = path.with_suffix(".source")
+        try:
+            source = companion.read_text(encoding="utf-8") if companion.exists() else ""
+        except (OSError, UnicodeDecodeError):
+            source = ""
+    return OpenedRun(opened.run, path, opened.chain_problems, opened.migrated_from, file_sha256(raw)), source
 
 
 def _reading_out(reading: Reading | None) -> dict[str, Any] | None:
@@ -165,6 +313,12 @@ def _reading_out(reading: Reading | None) -> dict[str, Any] | None:
 def open_run(path: str | Path) -> OpenedRun:
     """Read, validate and (if older) migrate a run document."""
     path = Path(path)
+    raw = _read_document(path)
+    opened = loads_run(raw, origin=str(path))
+    return OpenedRun(opened.run, path, opened.chain_problems, opened.migrated_from, file_sha256(raw))
+
+
+def _read_document(path: Path) -> bytes:
     try:
         size = path.stat().st_size
     except OSError as exc:
@@ -175,15 +329,18 @@ def open_run(path: str | Path) -> OpenedRun:
             f"({MAX_DOCUMENT_BYTES / 1e6:.0f} MB); it is not opened."
         )
     try:
-        raw = path.read_bytes()
+        return path.read_bytes()
     except OSError as exc:
         raise DocumentError(f"{path}: cannot read ({exc.strerror or exc}).") from None
-    opened = loads_run(raw, origin=str(path))
-    return OpenedRun(opened.run, path, opened.chain_problems, opened.migrated_from)
 
 
 def loads_run(data: str | bytes, origin: str = "run document") -> OpenedRun:
     """Parse a run document from its text."""
+    return run_from_mapping(_parse(data, origin), origin)
+
+
+def _parse(data: str | bytes, origin: str) -> Any:
+    """JSON text to plain data, refusing what no run document holds (see the module docstring)."""
     if isinstance(data, bytes):
         if len(data) > MAX_DOCUMENT_BYTES:
             raise DocumentError(f"{origin}: larger than a run document can be; it is not opened.")
@@ -192,15 +349,133 @@ def loads_run(data: str | bytes, origin: str = "run document") -> OpenedRun:
         except UnicodeDecodeError as exc:
             raise DocumentError(f"{origin}: not UTF-8 text (byte {exc.start}); a run document is JSON text.") from None
     try:
-        mapping = json.loads(data, parse_constant=_refuse_constant)
+        mapping = json.loads(data, parse_constant=_refuse_constant, parse_int=_whole_number)
     except json.JSONDecodeError as exc:
         raise DocumentError(
             f"{origin}: not valid JSON at line {exc.lineno}, column {exc.colno} ({exc.msg}); the file may be "
             "truncated or edited by hand."
         ) from None
-    except ValueError as exc:
-        raise DocumentError(f"{origin}: {exc}") from None
-    return run_from_mapping(mapping, origin)
+    except RecursionError:
+        raise DocumentError(
+            f"{origin}: lists and objects nested more than {MAX_NESTING} levels deep{_too_deep_at(data)}; no run "
+            "document is built like this, so it is not opened."
+        ) from None
+    except ValueError as exc:  # a constant JSON does not have (NaN, Infinity), refused by _refuse_constant
+        raise DocumentError(f"{origin}: {exc}{_constant_at(data)} is not a number a run document may hold "
+                            "(every number must be finite).") from None
+    problems = _structure_problems(mapping)
+    if problems:
+        raise DocumentError(f"{origin}: the document has {len(problems)} problem(s)", tuple(problems))
+    return mapping
+
+
+_TOKENS = re.compile(r'"(?:[^"\\]|\\.)*"|[\[\]{}]')
+
+
+_CONSTANTS = re.compile(r'"(?:[^"\\]|\\.)*"|(-?Infinity|NaN)')
+
+
+def _line_column(text: str, at: int) -> str:
+    line = text.count("\n", 0, at) + 1
+    return f" at line {line}, column {at - (text.rfind(chr(10), 0, at) + 1) + 1}"
+
+
+def _constant_at(text: str) -> str:
+    """Where the first NaN or Infinity outside strings stands (" at line L, column C")."""
+    for token in _CONSTANTS.finditer(text):
+        if token.group(1):
+            return _line_column(text, token.start())
+    return ""
+
+
+def _too_deep_at(text: str) -> str:
+    """Where the nesting first goes past :data:`MAX_NESTING` (" at line L, column C"), found by
+    scanning brackets outside strings without recursion."""
+    depth = 0
+    for token in _TOKENS.finditer(text):
+        mark = token.group()
+        if mark in "[{":
+            depth += 1
+            if depth > MAX_NESTING:
+                return _line_column(text, token.start())
+        elif mark in "]}":
+            depth -= 1
+    return ""
+
+
+class _Oversized:
+    """A whole number with too many digits, kept as its digit count until it is reported."""
+
+    def __init__(self, digits: int) -> None:
+        self.digits = digits
+
+
+def _whole_number(text: str) -> int | _Oversized:
+    digits = len(text.lstrip("-"))
+    return _Oversized(digits) if digits > MAX_DIGITS else int(text)
+
+
+_SURROGATE = re.compile("[\ud800-\udfff]")
+_MAX_LISTED = 20
+
+
+def _structure_problems(document: Any) -> list[str]:
+    """Nesting deeper than :data:`MAX_NESTING`, oversized whole numbers and unpaired surrogates,
+    each with its path (iteratively: a deep document cannot exhaust the stack here)."""
+    problems: list[str] = []
+    count = 0
+
+    def note(path: str, message: str) -> None:
+        nonlocal count
+        count += 1
+        if count <= _MAX_LISTED:
+            problems.append(f"{path or '(the document)'}: {message}")
+
+    def text(value: str, path: str, what: str) -> None:
+        if (found := _SURROGATE.search(value)) is not None:
+            note(path, f"{what} holds U+{ord(found.group()):04X}, an unpaired surrogate that is not a character; "
+                       "the file was damaged or written by a faulty program")
+
+    stack: list[tuple[Any, str, int]] = [(document, "", 0)]
+    while stack:
+        value, path, depth = stack.pop()
+        if isinstance(value, str):
+            text(value, path, "the text")
+        elif isinstance(value, _Oversized):
+            note(path, f"a whole number of {value.digits} digits is larger than any a run document holds")
+        elif isinstance(value, (dict, list)):
+            if depth >= MAX_NESTING:
+                note(path, f"nested more than {MAX_NESTING} levels deep; no run document is built like this")
+                continue
+            if isinstance(value, dict):
+                for key, item in value.items():
+                    shown = _SURROGATE.sub(lambda m: f"\\u{ord(m.group()):04x}", key)
+                    where = f"{path}.{shown}" if path else shown
+                    text(key, where, "the name")
+                    stack.append((item, where, depth + 1))
+            else:
+                stack.extend((item, f"{path}[{i}]", depth + 1) for i, item in enumerate(value))
+    if count > _MAX_LISTED:
+        problems.append(f"… and {count - _MAX_LISTED} more problem(s) of these kinds")
+    return problems
+
+
+def _finite_number(value: Any) -> bool:
+    """A JSON number that a double holds as a finite value (whole numbers of any size included)."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return False
+    if isinstance(value, int):
+        return abs(value) <= sys.float_info.max
+    return math.isfinite(value)
+
+
+def _measure(value: Any) -> bool:
+    """A finite number that is zero or lies within :data:`MEASURE_RANGE` in size."""
+    return _finite_number(value) and (value == 0 or MEASURE_RANGE[0] <= abs(value) <= MEASURE_RANGE[1])
+
+
+def _whole(value: Any) -> bool:
+    return isinstance(value, int) and not isinstance(value, bool) and abs(value) <= MAX_WHOLE
 
 
 def run_from_mapping(mapping: Any, origin: str = "run document") -> OpenedRun:
@@ -230,7 +505,7 @@ def run_from_mapping(mapping: Any, origin: str = "run document") -> OpenedRun:
 
 
 def _refuse_constant(name: str) -> None:
-    raise ValueError(f"{name} is not a number a run document may hold")
+    raise ValueError(name)
 
 
 class _Reader:
@@ -252,22 +527,27 @@ class _Reader:
         value = obj[key]
         checks: dict[str, Callable[[Any], bool]] = {
             "text": lambda v: isinstance(v, str),
-            "number": lambda v: isinstance(v, (int, float)) and not isinstance(v, bool) and math.isfinite(v),
-            "number?": lambda v: v is None or (isinstance(v, (int, float)) and not isinstance(v, bool) and math.isfinite(v)),
-            "int": lambda v: isinstance(v, int) and not isinstance(v, bool),
-            "int?": lambda v: v is None or (isinstance(v, int) and not isinstance(v, bool)),
+            "number": _finite_number,
+            "number?": lambda v: v is None or _finite_number(v),
+            "measure": _measure,
+            "measure?": lambda v: v is None or _measure(v),
+            "int": _whole,
+            "int?": lambda v: v is None or _whole(v),
             "bool": lambda v: isinstance(v, bool),
             "list": lambda v: isinstance(v, list),
             "object": lambda v: isinstance(v, dict),
             "object?": lambda v: v is None or isinstance(v, dict),
         }
         if not checks[kind](value):
+            whole = f"a whole number within ±{MAX_WHOLE}"
+            measure = _MEASURE_WORDS
             words = {"text": "text", "number": "a finite number", "number?": "a finite number or null",
-                     "int": "a whole number", "int?": "a whole number or null", "bool": "true or false",
+                     "measure": measure, "measure?": measure + ", or null",
+                     "int": whole, "int?": whole + " or null", "bool": "true or false",
                      "list": "a list", "object": "an object", "object?": "an object or null"}[kind]
             self.fail(where, f"expected {words}, found {json.dumps(value, ensure_ascii=False)[:60]}")
             return default
-        return float(value) if kind in ("number",) else value
+        return float(value) if kind in ("number", "measure") else value
 
     def run(self, m: Mapping[str, Any]) -> Run | None:
         name = self.get(m, "name", "", "text", "")
@@ -331,12 +611,16 @@ class _Reader:
         rounding_map = self.get(m, "rounding", p, "object", {})
         rounding = RoundingRule()
         if rounding_map:
-            try:
-                rounding = RoundingRule(
-                    rounding_map.get("kind", "significant"), rounding_map.get("digits", 3), rounding_map.get("tie", "half_up")
-                )
-            except CurvewrightError as exc:
-                self.fail(f"{p}.rounding", str(exc))
+            rp = f"{p}.rounding"
+            before = len(self.problems)
+            kind = self.get(rounding_map, "kind", rp, "text", "significant", required=False)
+            digits = self.get(rounding_map, "digits", rp, "int", 3, required=False)
+            tie = self.get(rounding_map, "tie", rp, "text", "half_up", required=False)
+            if len(self.problems) == before:
+                try:
+                    rounding = RoundingRule(kind, digits, tie)
+                except CurvewrightError as exc:
+                    self.fail(rp, str(exc))
         tolerance = self.get(m, "level_tolerance", p, "number", 0.005, required=False)
         if not (0 <= tolerance < 0.5):
             self.fail(f"{p}.level_tolerance", f"{tolerance!r} must lie from 0 to 0.5")
@@ -351,10 +635,10 @@ class _Reader:
         if not isinstance(m, dict):
             self.fail(path, f"expected a reading object, found {json.dumps(m)[:40]}")
             return None
-        value = self.get(m, "value", path, "number?", None)
+        value = self.get(m, "value", path, "measure?", None)
         text = self.get(m, "text", path, "text", "")
         qualifier = self.get(m, "qualifier", path, "text", None, required=False)
-        limit = self.get(m, "limit", path, "number?", None, required=False)
+        limit = self.get(m, "limit", path, "measure?", None, required=False)
         return Reading(None if value is None else float(value), text, qualifier, None if limit is None else float(limit))
 
     def analyte(self, m: Any, path: str) -> Analyte | None:
@@ -412,7 +696,7 @@ class _Reader:
         """A number, or null with the text that was typed instead (kept, never dropped)."""
         if "concentration" in s and s["concentration"] is None:
             return math.nan  # not entered, or typed text that is not a number (in concentration_text)
-        return self.get(s, "concentration", path, "number", 0.0)
+        return self.get(s, "concentration", path, "measure", 0.0)
 
     def sample(self, m: Any, path: str, analytes: set[str]) -> Sample | None:
         if not isinstance(m, dict):
@@ -424,7 +708,7 @@ class _Reader:
         except ValueError:
             self.fail(f"{path}.kind", f"{kind_text!r} is not one of {', '.join(k.value for k in SampleKind)}")
             kind = SampleKind.UNKNOWN
-        dilution = self.get(m, "dilution_factor", path, "number", 1.0)
+        dilution = self.get(m, "dilution_factor", path, "measure", 1.0)
         if dilution <= 0:
             self.fail(f"{path}.dilution_factor", f"{dilution!r} must be above zero")
         nominal_map = self.get(m, "nominal", path, "object", {}, required=False)
@@ -433,8 +717,8 @@ class _Reader:
             np_ = f"{path}.nominal.{name}"
             if name not in analytes:
                 self.fail(np_, f"names analyte {name!r}, which the run does not have")
-            if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
-                self.fail(np_, f"expected a finite number, found {json.dumps(value)[:40]}")
+            if not _measure(value):
+                self.fail(np_, f"expected {_MEASURE_WORDS}, found {json.dumps(value)[:40]}")
                 continue
             nominal.append((name, float(value)))
         measurements = []

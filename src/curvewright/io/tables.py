@@ -8,11 +8,13 @@ from __future__ import annotations
 
 import csv
 import io
+import math
 from dataclasses import dataclass
 from pathlib import Path
 
 from .audit import file_sha256
 from .errors import ImportProblem
+from .xlsx_checks import MAX_CELLS, MAX_ROWS, check_workbook, malformed_part
 
 MAX_TABLE_BYTES = 200 * 1024 * 1024
 
@@ -124,7 +126,8 @@ def table_from_csv(path: str | Path, *, delimiter: str | None = None) -> RawTabl
 
 
 def xlsx_sheet_names(path: str | Path) -> tuple[str, ...]:
-    workbook = _open_workbook(Path(path))
+    path = Path(path)
+    workbook = _open_workbook(path, _read_bytes(path))
     try:
         return tuple(workbook.sheetnames)
     finally:
@@ -134,30 +137,65 @@ def xlsx_sheet_names(path: str | Path) -> tuple[str, ...]:
 def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
     """Read one sheet (the first when ``sheet`` is None) in read-only mode, taking the values the
     spreadsheet stored (a formula cell gives its last calculated value; one never calculated reads
-    as empty, and the importer then reports the cell as missing)."""
+    as empty, and the importer then reports the cell as missing). Every row the sheet holds is read,
+    each up to its last cell, whatever range the sheet's own dimension claims (a wrong claim would
+    otherwise drop rows or pad every row to thousands of columns).
+
+    The workbook is checked before it is parsed and its cells are bounded while they are read
+    (:mod:`.xlsx_checks`); whatever is wrong with the file ends in :class:`ImportProblem` naming the
+    file and, where it is known, the part, the sheet and the row."""
     path = Path(path)
     data = _read_bytes(path)
-    workbook = _open_workbook(path)
+    workbook = _open_workbook(path, data)
+    rows: list[tuple[Cell, ...]] = []
+    numbers: list[int] = []
     try:
-        name = sheet or workbook.sheetnames[0]
+        name = sheet or (workbook.sheetnames[0] if workbook.sheetnames else None)
+        if name is None:
+            raise ImportProblem(f"{path}: the workbook has no sheets.")
         if name not in workbook.sheetnames:
             raise ImportProblem(f"{path}: there is no sheet {name!r} (sheets: {', '.join(workbook.sheetnames)}).")
-        rows, numbers = [], []
-        for index, record in enumerate(workbook[name].iter_rows(values_only=True), start=1):
-            rows.append(tuple(_cell(v) for v in record))
-            numbers.append(index)
+        worksheet = workbook[name]
+        if not hasattr(worksheet, "reset_dimensions"):
+            raise ImportProblem(f"{path}: sheet {name!r} is a chart, not a table of cells; choose another sheet.")
+        worksheet.reset_dimensions()
+        cells = 0
+        try:
+            for index, record in enumerate(worksheet.iter_rows(values_only=True), start=1):
+                cells += len(record)
+                if cells > MAX_CELLS or index > MAX_ROWS:
+                    raise ImportProblem(
+                        f"{path}: sheet {name!r} holds more than {MAX_CELLS:,} cells or {MAX_ROWS:,} rows (counting "
+                        f"the empty cells up to the last one used, at row {index:,}); a table to import is smaller. "
+                        "Copy the table to a new workbook and import that."
+                    )
+                rows.append(tuple(_cell(v) for v in record))
+                numbers.append(index)
+        except ImportProblem:
+            raise
+        except Exception as exc:  # noqa: BLE001 - the XLSX reader raises many types on damaged files
+            raise ImportProblem(
+                f"{path}: sheet {name!r} cannot be read after row {len(rows)} ({_damage(exc)}); open the "
+                "workbook in the spreadsheet program and save it again as .xlsx."
+            ) from None
     finally:
         workbook.close()
     return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name)
 
 
 def _cell(value: object) -> Cell:
+    """A workbook value as a cell: numbers as finite floats; everything else as text, including a
+    number no double holds (kept as its digits or "inf"/"nan", which the importer reports)."""
     if value is None:
         return ""
     if isinstance(value, bool):
         return str(value).upper()
     if isinstance(value, (int, float)):
-        return float(value)
+        try:
+            number = float(value)
+        except OverflowError:
+            return str(value)
+        return number if math.isfinite(number) else repr(number)
     return str(value)
 
 
@@ -171,12 +209,30 @@ def _read_bytes(path: Path) -> bytes:
         raise ImportProblem(f"{path}: cannot read ({exc.strerror or exc}).") from None
 
 
-def _open_workbook(path: Path):  # type: ignore[no-untyped-def]
-    from zipfile import BadZipFile
-
+def _open_workbook(path: Path, data: bytes):  # type: ignore[no-untyped-def]
+    """The workbook in read-only mode, after :func:`~.xlsx_checks.check_workbook` has passed it."""
     import openpyxl
 
+    check_workbook(data, str(path))
     try:
-        return openpyxl.load_workbook(path, read_only=True, data_only=True)
-    except (OSError, BadZipFile, KeyError, ValueError) as exc:
-        raise ImportProblem(f"{path}: not a readable XLSX workbook ({exc}).") from None
+        return openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=True, keep_links=False)
+    except Exception as exc:  # noqa: BLE001 - the XLSX reader raises many types on damaged files
+        raise ImportProblem(
+            f"{path}: not a readable XLSX workbook ({_damage(exc, malformed_part(data))}); open it in the "
+            "spreadsheet program and save it again as .xlsx."
+        ) from None
+
+
+def _damage(exc: BaseException, part: str | None = None) -> str:
+    """What is wrong with a damaged workbook, in words (the reader wraps the first cause)."""
+    from xml.etree.ElementTree import ParseError
+
+    while exc.__cause__ is not None:
+        exc = exc.__cause__
+    if isinstance(exc, ParseError):
+        line, column = getattr(exc, "position", (0, 0))
+        return f"malformed XML{f' in part {part}' if part else ''} at line {line}, column {column}"
+    if isinstance(exc, KeyError):
+        return f"a part it refers to is missing: {exc.args[0] if exc.args else exc}"
+    text = str(exc).strip() or type(exc).__name__
+    return f"damaged content{f' in part {part}' if part else ''}: {text[:200]}"

@@ -3,17 +3,24 @@
 Numbers are numeric cells at full double precision (written as their exact shortest repr); the "Reported (rounded)" column holds the
 value rounded under the run's rule, displayed with exactly its digits. Every text cell is a string
 cell, so no cell is ever a formula (:mod:`.safe_text`). The caution stands in the first row of
-every sheet. Written in openpyxl's write-only mode (memory stays flat) and saved atomically.
+every sheet. Written in openpyxl's write-only mode (memory stays flat) and saved atomically
+(:mod:`.atomic`): the sheets stream to temporaries of our naming beside the target, so a failed or
+killed export leaves nothing behind that the next write of the same file does not remove, and a
+failure (a full disk) is reported once, as an :class:`~.errors.ExportError`. A number no cell can
+hold (an unbounded interval end) is written as the text "∞" or "−∞", never as a number Excel
+would refuse.
 """
 
 from __future__ import annotations
 
 import io
 import math
+import os
 import threading
-from contextlib import contextmanager
+import zipfile
+from contextlib import contextmanager, suppress
 from pathlib import Path
-from typing import Callable, Iterator, Iterable
+from typing import IO, Callable, Iterator, Iterable
 
 from openpyxl import Workbook
 from openpyxl.cell import WriteOnlyCell
@@ -21,7 +28,7 @@ from openpyxl.styles import Font
 
 from .. import CAUTION
 from ..core.run_analysis import RunResult
-from .atomic import atomic_target
+from .atomic import atomic_target, new_temporary, resolve_target
 from .audit import file_sha256_streamed
 from .result_tables import Table, Value, all_tables
 from .safe_text import ILLEGAL_XML, xml_safe
@@ -39,8 +46,9 @@ def write_xlsx(result: RunResult, path: str | Path, *, progress: Progress | None
 
 
 def write_tables(tables: Iterable[Table], path: Path, *, progress: Progress | None = None) -> str:
+    target = resolve_target(Path(path))
     with _exact_floats(), atomic_target(path) as temporary:
-        _build(list(tables), progress, temporary)
+        _build(list(tables), progress, temporary, scratch=lambda: new_temporary(target))
         return file_sha256_streamed(temporary)
 
 
@@ -53,33 +61,86 @@ def xlsx_bytes(tables: Iterable[Table], *, progress: Progress | None = None) -> 
     return buffer.getvalue()
 
 
-def _build(tables: list[Table], progress: Progress | None, target) -> None:  # type: ignore[no-untyped-def]
+def _build(tables: list[Table], progress: Progress | None, target: Path | IO[bytes],
+           scratch: Callable[[], Path] | None = None) -> None:
+    """Write the workbook to ``target``; each sheet streams to ``scratch()`` (a temporary of ours)
+    when given, else to openpyxl's own temporary. On failure everything is closed and removed."""
     workbook = Workbook(write_only=True)
-    bold = Font(bold=True)
-    used: set[str] = set()
-    total = sum(len(t.rows) for t in tables)
-    done = 0
-    for table in tables:
-        sheet = workbook.create_sheet(_sheet_name(table.title, used))
-        caution = WriteOnlyCell(sheet, value=CAUTION)
-        caution.font = bold
-        sheet.append([caution])
-        sheet.append([_text_cell(sheet, table.title, bold)])
-        sheet.append([_text_cell(sheet, c.heading, bold) for c in table.columns])
-        kinds = [c.kind for c in table.columns]
-        for row in table.rows:
-            sheet.append([_cell(sheet, value, kind) for value, kind in zip(row, kinds)])
-            done += 1
-            if progress is not None and done % 5000 == 0:
-                progress(done, total)
-    workbook.save(target)
+    try:
+        bold = Font(bold=True)
+        used: set[str] = set()
+        total = sum(len(t.rows) for t in tables)
+        done = 0
+        for table in tables:
+            sheet = workbook.create_sheet(_sheet_name(table.title, used))
+            if scratch is not None:
+                _stream_to(sheet, scratch())
+            caution = WriteOnlyCell(sheet, value=CAUTION)
+            caution.font = bold
+            sheet.append([caution])
+            sheet.append([_text_cell(sheet, table.title, bold)])
+            sheet.append([_text_cell(sheet, c.heading, bold) for c in table.columns])
+            kinds = [c.kind for c in table.columns]
+            for row in table.rows:
+                sheet.append([_cell(sheet, value, kind) for value, kind in zip(row, kinds)])
+                done += 1
+                if progress is not None and done % 5000 == 0:
+                    progress(done, total)
+        _save(workbook, target)
+    except BaseException:
+        _abandon(workbook)
+        raise
     if progress is not None:
         progress(total, total)
+
+
+def _stream_to(sheet, path: Path) -> None:  # type: ignore[no-untyped-def]
+    """Make a write-only sheet stream its rows to ``path`` instead of the system's temporary folder."""
+    from openpyxl.worksheet._writer import ALL_TEMP_FILES, WorksheetWriter
+
+    ALL_TEMP_FILES.append(str(path))  # openpyxl removes the file from this list when it is done with it
+    sheet._writer = WorksheetWriter(sheet, out=str(path))
+    sheet._writer.write_top()
+
+
+def _save(workbook: Workbook, target: Path | IO[bytes]) -> None:
+    """Save with an archive we close ourselves, so that a failure leaves no half-closed zip behind
+    to complain when it is collected."""
+    from openpyxl.writer.excel import ExcelWriter
+
+    archive = zipfile.ZipFile(target, "w", zipfile.ZIP_DEFLATED, allowZip64=True)
+    try:
+        ExcelWriter(workbook, archive).save()  # writes every part, then closes the archive
+    except BaseException:
+        with suppress(Exception):
+            archive.close()
+        raise
+
+
+def _abandon(workbook: Workbook) -> None:
+    """After a failed write: close every sheet's stream (their errors are the one already being
+    reported) and remove the files they were writing."""
+    from openpyxl.worksheet._writer import ALL_TEMP_FILES
+
+    for sheet in workbook._sheets:
+        for stream in (getattr(sheet, "_rows", None), getattr(getattr(sheet, "_writer", None), "xf", None)):
+            if stream is not None:
+                with suppress(Exception):
+                    stream.close()
+        writer = getattr(sheet, "_writer", None)
+        out = getattr(writer, "out", None)
+        if isinstance(out, str):
+            with suppress(OSError):
+                os.remove(out)
+            with suppress(ValueError):
+                ALL_TEMP_FILES.remove(out)
 
 
 def _cell(sheet, value: Value, kind: str):  # type: ignore[no-untyped-def]
     if value is None:
         return None
+    if isinstance(value, float) and not math.isfinite(value):
+        return _text_cell(sheet, "∞" if value > 0 else "−∞" if value < 0 else "not a number")
     if isinstance(value, str):
         if kind == "reported" and value and value.lstrip("-").replace(".", "", 1).isdigit():
             cell = WriteOnlyCell(sheet, value=float(value))
@@ -101,7 +162,9 @@ def _text_cell(sheet, text: str, font: Font | None = None):  # type: ignore[no-u
 
 
 def _sheet_name(title: str, used: set[str]) -> str:
-    base = title.translate(_SHEET_FORBIDDEN)[:31]
+    """A legal, unique sheet name: at most 31 characters, none of []:*?/\\ or characters XML cannot
+    hold, not starting or ending with an apostrophe."""
+    base = xml_safe(title).translate(_SHEET_FORBIDDEN).strip("'")[:31] or "Sheet"
     name, n = base, 2
     while name.lower() in used:
         suffix = f" ({n})"
