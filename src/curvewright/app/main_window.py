@@ -27,6 +27,7 @@ from ..core.run_analysis import RunResult
 from ..io import run_edits
 from ..io.atomic import write_atomically
 from ..io.errors import ExportError
+from ..io.run_document import DocumentChanged, document_sha256
 from .curve_view import CurveView, InfluenceView
 from ..io.paste import read_block
 from .dialogs import AnalyteDialog, ImportDialog, ReasonDialog, SettingsDialog, ask_exclusion
@@ -257,6 +258,7 @@ class MainWindow(QMainWindow):
         session.undo_stack.redoTextChanged.connect(self.command(self._update_undo_texts))
         session.undo_stack.canUndoChanged.connect(self.command(self._update_undo_texts))
         session.undo_stack.canRedoChanged.connect(self.command(self._update_undo_texts))
+        session.recovery_failed.connect(self.warn_recovery_failed)
         self._fill_analytes()
         self._update_title()
         self._update_undo_texts()
@@ -427,6 +429,11 @@ class MainWindow(QMainWindow):
             rows = [view.currentIndex().row()]
         return rows
 
+    def warn_recovery_failed(self, text: str) -> None:
+        """The recovery file cannot be written: said once, in the status bar and a dialog."""
+        self.show_message(text)
+        QMessageBox.warning(self, "Unsaved work is not protected", text)
+
     def show_message(self, text: str) -> None:
         self.statusBar().showMessage(text, 15000)
 
@@ -445,6 +452,7 @@ class MainWindow(QMainWindow):
     def replace_session(self, session: RunSession) -> None:
         old = self.session
         for signal in (old.run_changed, old.analysis_ready, old.analysis_failed, old.dirty_changed, old.path_changed,
+                       old.recovery_failed,
                        old.undo_stack.undoTextChanged, old.undo_stack.redoTextChanged, old.undo_stack.canUndoChanged,
                        old.undo_stack.canRedoChanged):
             try:
@@ -492,12 +500,59 @@ class MainWindow(QMainWindow):
     def _save_to(self, path: Path) -> bool:
         try:
             self.session.save(path)
+        except DocumentChanged:
+            answer = QMessageBox.question(
+                self, "The file was changed on disk",
+                f"{path} was changed by another program (or a command that recorded an export in it) after "
+                "you opened it. Overwrite it with this run (the other changes are kept in its .bak copy), or "
+                "cancel and save this run under another name?",
+                QMessageBox.StandardButton.Save | QMessageBox.StandardButton.Cancel)
+            if answer != QMessageBox.StandardButton.Save:
+                return False
+            try:
+                self.session.save(path, overwrite_changes=True)
+            except CurvewrightError as exc:
+                QMessageBox.warning(self, "Not saved", str(exc))
+                return False
         except CurvewrightError as exc:
             QMessageBox.warning(self, "Not saved", str(exc))
             return False
         self._remember(path)
         self.show_message(f"Saved {path}")
         return True
+
+    def changeEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().changeEvent(event)
+        from PySide6.QtCore import QEvent
+
+        if event.type() == QEvent.Type.ActivationChange and self.isActiveWindow():
+            self.check_file_on_disk()
+
+    def check_file_on_disk(self) -> bool:
+        """When the run's file was changed by someone else since it was opened, offer to reload it.
+        Returns True when the file was reloaded."""
+        if getattr(self, "_asking_about_disk", False) or not self.session.changed_on_disk():
+            return False
+        on_disk = document_sha256(self.session.path)  # type: ignore[arg-type]
+        if on_disk is not None and on_disk == getattr(self, "_reload_declined_for", None):
+            return False  # asked about this version of the file already
+        self._asking_about_disk = True
+        try:
+            path = self.session.path
+            unsaved = " Your unsaved changes here would be lost." if self.session.dirty else ""
+            answer = QMessageBox.question(
+                self, "The file was changed on disk",
+                f"{path} was changed by another program (or by a command that recorded an export in it) since "
+                f"it was opened here. Reload it to see those changes?{unsaved}",
+                QMessageBox.StandardButton.Yes | QMessageBox.StandardButton.No)
+            if answer != QMessageBox.StandardButton.Yes:
+                self._reload_declined_for = on_disk  # not asked again for this version; a save still asks
+                return False
+            self.session.undo_stack.setClean()
+            self.session._unsaved_records = False
+            return self.open_path(path)  # type: ignore[arg-type]
+        finally:
+            self._asking_about_disk = False
 
     def _remember(self, path: Path) -> None:
         recent = [str(Path(path).resolve())] + [p for p in self._recent() if p != str(Path(path).resolve())]

@@ -22,7 +22,7 @@ from ..core.errors import CurvewrightError
 from ..core.run import Run
 from ..core.run_analysis import RunResult, analyse_run
 from ..io.audit import append_entry
-from ..io.run_document import open_recovery, open_run, save_recovery, save_run
+from ..io.run_document import document_unchanged, open_recovery, open_run, save_recovery, save_run
 
 DEBOUNCE_MS = 120
 """Edits closer together than this are analysed once."""
@@ -128,10 +128,13 @@ class RunSession(QObject):
     recovery_failed = Signal(str)       # what cannot be kept for recovery, and why (once until it works again)
 
     def __init__(self, run: Run, path: Path | None = None, *, recovery_folder: Path | None = None,
-                 parent: QObject | None = None) -> None:
+                 parent: QObject | None = None, disk_sha256: str | None = None) -> None:
         super().__init__(parent)
         self._run = run
         self._path = path
+        self.disk_sha256 = disk_sha256
+        """SHA-256 of the file as this session last read or wrote it: a save refuses to overwrite a
+        file someone else has changed since (see :meth:`changed_on_disk`)."""
         self._unsaved_records = False
         self.undo_stack = QUndoStack(self)
         self.undo_stack.cleanChanged.connect(self._on_clean_changed)
@@ -211,9 +214,20 @@ class RunSession(QObject):
         self.request_analysis()
 
     # --- files -------------------------------------------------------------------------------------
-    def save(self, path: Path | None = None) -> Path:
+    def changed_on_disk(self) -> bool:
+        """True when the run's file no longer holds what this session read or wrote (another program,
+        or a command recording an export in it, has written it since)."""
+        return (self._path is not None and self.disk_sha256 is not None
+                and not document_unchanged(self._path, self.disk_sha256))
+
+    def save(self, path: Path | None = None, *, overwrite_changes: bool = False) -> Path:
+        """Save to ``path`` (the run's own file when None). Saving over the run's own file refuses
+        (:class:`~curvewright.io.run_document.DocumentChanged`) when it was changed on disk since it was
+        opened, unless ``overwrite_changes``."""
         target = Path(path or self._path)  # type: ignore[arg-type]
-        save_run(self._run, target)
+        same_file = self._path is not None and target.resolve() == self._path.resolve()
+        expected = self.disk_sha256 if same_file and not overwrite_changes else None
+        self.disk_sha256 = save_run(self._run, target, expected_sha256=expected)
         previous_recovery = self.recovery_path()  # a new run's, or the old name's after Save As
         self._path = target
         self._unsaved_records = False
@@ -227,7 +241,7 @@ class RunSession(QObject):
     @classmethod
     def open(cls, path: Path, **kwargs) -> tuple["RunSession", tuple[str, ...]]:  # type: ignore[no-untyped-def]
         opened = open_run(path)
-        return cls(opened.run, Path(path), **kwargs), opened.chain_problems
+        return cls(opened.run, Path(path), disk_sha256=opened.sha256, **kwargs), opened.chain_problems
 
     # --- recovery ----------------------------------------------------------------------------------
     def recovery_path(self) -> Path:
