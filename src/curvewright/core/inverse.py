@@ -37,13 +37,13 @@ from numpy.polynomial.polynomial import polyval
 
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .distributions import t_quantile
-from .errors import QuantitationInputError
+from .errors import LimitsError, QuantitationInputError
+from .limits import DetectionLimits, detection_limits
 from .models import Model
 from .weighting import Weighting
 
 if TYPE_CHECKING:  # pragma: no cover
-    from .calibration import Calibration
-    from .limits import DetectionLimits
+    from .fitted_curve import FittedCurve
 
 INTERVAL_METHODS = ("band", "symmetric")
 SEARCH_HALF_RANGES = 200.0
@@ -118,7 +118,7 @@ class Quantitation:
     lower: FloatArray
     upper: FloatArray
     flag_bits: np.ndarray
-    limits: "DetectionLimits | None"
+    limits: DetectionLimits | None
     limits_note: str | None
 
     @cached_property
@@ -135,12 +135,12 @@ class Quantitation:
 
 
 def quantify(
-    cal: "Calibration",
+    cal: "FittedCurve",
     mean_response: object,
     replicates: object = 1,
     level: float = 0.95,
     interval: str = "band",
-    limits: "DetectionLimits | None" = None,
+    limits: DetectionLimits | None = None,
 ) -> Quantitation:
     """Quantify unknowns; see :meth:`curvewright.core.calibration.Calibration.quantify`."""
     y0 = as_finite_vector(mean_response, "mean response", QuantitationInputError, item="unknown")
@@ -170,10 +170,8 @@ def quantify(
 
     limits_note = None
     if limits is None:
-        from .limits import LimitsError
-
         try:
-            limits = cal.limits()
+            limits = detection_limits(cal)
         except LimitsError as exc:
             limits_note = f"LOD/LOQ flags not set: {exc}"
 
@@ -273,7 +271,7 @@ def solve_z(
     return np.where(no_solution, np.nan, root), no_solution, ambiguous
 
 
-def _slope_z(cal: "Calibration", z: FloatArray) -> FloatArray:
+def _slope_z(cal: "FittedCurve", z: FloatArray) -> FloatArray:
     a = cal.z_coefficients
     if cal.model is Model.PROPORTIONAL:
         return np.full_like(z, a[0])
@@ -282,20 +280,20 @@ def _slope_z(cal: "Calibration", z: FloatArray) -> FloatArray:
     return a[1] + 2.0 * a[2] * z
 
 
-def _curve_variance(cal: "Calibration", z: FloatArray) -> FloatArray:
+def _curve_variance(cal: "FittedCurve", z: FloatArray) -> FloatArray:
     """Variance of the fitted curve at z: φ(z)ᵀ·C·φ(z), C the coefficient covariance, evaluated as
     the polynomial in z it is."""
     return polyval(z, curve_polynomials(cal)[1])
 
 
-def _new_response_variance(cal: "Calibration", x: FloatArray, y0: FloatArray, m: np.ndarray) -> FloatArray:
+def _new_response_variance(cal: "FittedCurve", x: FloatArray, y0: FloatArray, m: np.ndarray) -> FloatArray:
     """Variance σ²/(m·w) of the mean of m new responses at concentration x with mean y0."""
     weight = cal.weight_model.weight_at(x, y0)
     return cal.residual_sd**2 / (m * weight)
 
 
 def _band_interval(
-    cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float, z_hat: FloatArray, no_solution: np.ndarray,
+    cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float, z_hat: FloatArray, no_solution: np.ndarray,
     se_z: FloatArray,
 ) -> tuple[FloatArray, FloatArray]:
     closed_form = cal.model is not Model.QUADRATIC and not cal.weighting.uses_concentration
@@ -308,7 +306,7 @@ def _band_interval(
     return to_x(z_lo), to_x(z_hi)
 
 
-def _fieller_z(cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float) -> tuple[FloatArray, FloatArray]:
+def _fieller_z(cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float) -> tuple[FloatArray, FloatArray]:
     """Fieller's interval for a straight line, in z: the roots of A·z² + B·z + C = 0."""
     cov = cal.z_covariance
     s2_new = _new_response_variance(cal, np.zeros_like(y0), y0, m)
@@ -333,7 +331,7 @@ def _fieller_z(cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float) -> t
     return (-b_quad - root) / (2.0 * a_quad), (-b_quad + root) / (2.0 * a_quad)
 
 
-def curve_polynomials(cal: "Calibration") -> tuple[FloatArray, FloatArray]:
+def curve_polynomials(cal: "FittedCurve") -> tuple[FloatArray, FloatArray]:
     """Ascending coefficients, in z, of the fitted curve f̂(z) and of its variance φ(z)ᵀ·C·φ(z)."""
     powers = cal.basis.powers
     fitted = np.zeros(max(powers) + 1)
@@ -346,7 +344,7 @@ def curve_polynomials(cal: "Calibration") -> tuple[FloatArray, FloatArray]:
 
 
 def _band_excess(
-    cal: "Calibration",
+    cal: "FittedCurve",
     polys: tuple[FloatArray, FloatArray],
     y0: FloatArray,
     m: np.ndarray,
@@ -362,7 +360,7 @@ def _band_excess(
 
 
 def _band_edges(
-    cal: "Calibration",
+    cal: "FittedCurve",
     y0: FloatArray,
     m: np.ndarray,
     t: float,

@@ -29,7 +29,7 @@ from .models import Model
 from .weighting import Weighting
 
 if TYPE_CHECKING:  # pragma: no cover
-    from .calibration import Calibration
+    from .fitted_curve import FittedCurve
 
 LIMIT_METHODS = ("residual_sd", "intercept_sd", "iso11843")
 
@@ -49,7 +49,7 @@ class DetectionLimits:
 
 
 def detection_limits(
-    cal: "Calibration",
+    cal: "FittedCurve",
     method: str = "residual_sd",
     *,
     alpha: float = 0.05,
@@ -92,7 +92,7 @@ def detection_limits(
     )
 
 
-def _iso11843(cal: "Calibration", slope: float, alpha: float, beta: float, replicates: int) -> DetectionLimits:
+def _iso11843(cal: "FittedCurve", slope: float, alpha: float, beta: float, replicates: int) -> DetectionLimits:
     from scipy import optimize, stats  # the non-central t is needed here only; loading it is slow
 
     if cal.model is not Model.LINEAR or cal.weighting is not Weighting.NONE:
