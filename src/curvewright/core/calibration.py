@@ -140,7 +140,7 @@ def fit(
     weights = make_weights(
         weighting, x, y, levels, None if response_sd is None else np.asarray(response_sd, dtype=float)
     )
-    basis = make_basis(model, x)
+    basis = make_basis(model, x, weights.weights)
     solution = solve_weighted(basis.design(x), y, weights.weights)
     df = x.size - p
     residual_sd = float(np.sqrt(solution.sse / df))
