@@ -141,13 +141,16 @@ def fit(
         weighting, x, y, levels, None if response_sd is None else np.asarray(response_sd, dtype=float)
     )
     basis = make_basis(model, x, weights.weights)
-    solution = solve_weighted(basis.design(x), y, weights.weights)
-    df = x.size - p
-    residual_sd = float(np.sqrt(solution.sse / df))
-    z_cov = residual_sd**2 * solution.unscaled_covariance
-    transform = basis.power_transform()
-    coefficients = transform @ solution.coefficients
-    covariance = transform @ z_cov @ transform.T
+    # Values near the ends of double precision overflow here; they are refused by name below.
+    with np.errstate(over="ignore", under="ignore", invalid="ignore"):
+        solution = solve_weighted(basis.design(x), y, weights.weights)
+        df = x.size - p
+        residual_sd = float(np.sqrt(solution.sse / df))
+        z_cov = residual_sd**2 * solution.unscaled_covariance
+        transform = basis.power_transform()
+        coefficients = transform @ solution.coefficients
+        covariance = transform @ z_cov @ transform.T
+    _refuse_unrepresentable(model, x, y, basis, coefficients, covariance, residual_sd)
     if model.has_intercept:
         mean_w = float(np.sum(weights.weights * y) / np.sum(weights.weights))
         sst = float(np.sum(weights.weights * (y - mean_w) ** 2))
@@ -192,6 +195,38 @@ def fit(
         vertex_z=vertex_z,
         notes=notes,
     )
+
+
+def _refuse_unrepresentable(
+    model: Model, x: FloatArray, y: FloatArray, basis: Basis, coefficients: FloatArray, covariance: FloatArray,
+    residual_sd: float,
+) -> None:
+    """Refuse a fit whose numbers overflow or underflow double precision, rather than return inf or NaN.
+
+    The coefficient of xᵏ is in units of response/concentrationᵏ and its variance in their square,
+    so concentrations near 1e200 (a quadratic) or responses near 1e300 leave the representable range
+    even though each value typed is a valid number.
+    """
+    problem = None
+    if not np.isfinite(residual_sd):
+        problem = "the residual variance overflows"
+    elif not (np.all(np.isfinite(coefficients)) and np.all(np.isfinite(covariance))):
+        problem = "a coefficient or its variance overflows"
+    else:
+        with np.errstate(over="ignore", under="ignore"):
+            unit = np.array([np.float64(basis.scale) ** -p for p in basis.powers])
+        free = np.diag(covariance)[1 - int(model.has_intercept):]
+        if not np.all(np.isfinite(unit) & (unit > 0)):
+            problem = f"x^{max(basis.powers)} leaves the range of representable numbers"
+        elif residual_sd > 0 and np.any(free <= 0):
+            problem = "a coefficient's variance underflows to zero"
+    if problem is not None:
+        raise CalibrationInputError(
+            f"concentration and response: a {model.description} over concentrations up to "
+            f"{float(np.max(np.abs(x))):g} and responses up to {float(np.max(np.abs(y))):g} cannot be "
+            f"computed in double precision ({problem}); express them in units that bring the values "
+            "nearer to 1 (a larger or smaller unit)."
+        )
 
 
 def _quadratic_geometry(

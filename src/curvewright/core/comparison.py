@@ -176,7 +176,8 @@ def compare(
         for m in model_list:
             try:
                 fits[(m, w)] = fit(
-                    x, response, m, w, response_sd=response_sd, level_tolerance=level_tolerance, levels=shared_levels
+                    x, response, m, w, response_sd=response_sd if w is Weighting.INVERSE_S2 else None,
+                    level_tolerance=level_tolerance, levels=shared_levels,
                 )
             except CalibrationInputError as exc:
                 skipped.append(SkippedCandidate(m, w, str(exc)))
@@ -277,7 +278,7 @@ def _model_for(
     if quadratic is None:
         reasons.append("the straight line is rejected but no quadratic could be fitted; the straight line is shown")
         return linear, reasons
-    if quadratic.calibration.notes:
+    if quadratic.calibration.turns_over_in_range:
         reasons.append(
             "the straight line is rejected, but the quadratic turns over inside the calibrated range; "
             "narrow the range rather than use either"

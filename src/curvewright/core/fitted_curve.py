@@ -13,7 +13,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ._arrays import FloatArray
+from ._arrays import FloatArray, as_confidence_level, as_whole_count
 from .distributions import t_quantile
 from .errors import CalibrationInputError
 from .influence import Influence, InfluenceFlag
@@ -125,6 +125,13 @@ class FittedCurve:
         return self.basis.centre + self.basis.scale * self.vertex_z
 
     @property
+    def turns_over_in_range(self) -> bool:
+        """A quadratic whose vertex lies inside the calibrated range (responses there are reached twice)."""
+        vertex = self.vertex
+        low, high = self.calibrated_range
+        return vertex is not None and low < vertex < high
+
+    @property
     def sum_abs_relative_error(self) -> float:
         """Σ|%RE| over the standards with non-zero nominal concentration (and a solution)."""
         values = self.relative_error[np.isfinite(self.relative_error)]
@@ -180,13 +187,14 @@ class FittedCurve:
         The weight w of a new response follows the weighting (for 1/y-type weights, evaluated at
         the predicted response).
         """
+        m = as_whole_count(replicates, "replicates", CalibrationInputError, "the number of new responses averaged")
+        t = self._t(level)
         x = np.asarray(concentration, dtype=np.float64)
         y = self.predict(x)
-        new = self.residual_sd**2 / (replicates * self.weight_model.weight_at(x, y))
-        half = self._t(level) * np.sqrt(new + self.curve_sd(x) ** 2)
+        new = self.residual_sd**2 / (m * self.weight_model.weight_at(x, y))
+        half = t * np.sqrt(new + self.curve_sd(x) ** 2)
         return y - half, y + half
 
     def _t(self, level: float) -> float:
-        if not (0.0 < level < 1.0):
-            raise CalibrationInputError(f"confidence level: {level!r} must lie between 0 and 1 (e.g. 0.95).")
-        return t_quantile(0.5 + level / 2.0, self.df_residual)
+        value = as_confidence_level(level, CalibrationInputError)
+        return t_quantile(0.5 + value / 2.0, self.df_residual)

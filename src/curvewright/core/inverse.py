@@ -35,7 +35,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 from numpy.polynomial.polynomial import polyval
 
-from ._arrays import FloatArray, as_finite_vector, frozen
+from ._arrays import FloatArray, as_confidence_level, as_finite_vector, frozen
 from .distributions import t_quantile
 from .errors import LimitsError, QuantitationInputError
 from .limits import DetectionLimits, detection_limits
@@ -145,8 +145,7 @@ def quantify(
     """Quantify unknowns; see :meth:`curvewright.core.calibration.Calibration.quantify`."""
     y0 = as_finite_vector(mean_response, "mean response", QuantitationInputError, item="unknown")
     m = _replicate_counts(replicates, y0.size)
-    if not (0.0 < level < 1.0):
-        raise QuantitationInputError(f"confidence level: {level!r} must lie between 0 and 1 (e.g. 0.95).")
+    level = as_confidence_level(level, QuantitationInputError)
     if interval not in INTERVAL_METHODS:
         raise QuantitationInputError(
             f"interval: {interval!r} is not one of {', '.join(map(repr, INTERVAL_METHODS))}."
@@ -154,19 +153,24 @@ def quantify(
     t = t_quantile(0.5 + level / 2.0, cal.df_residual)
 
     z_range = tuple(cal.basis.z(np.array(cal.calibrated_range)))
-    z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
-    x_hat = cal.basis.centre + cal.basis.scale * z_hat
-    new_var = _new_response_variance(cal, x_hat, y0, m)
-    slope = _slope_z(cal, z_hat) / cal.basis.scale
-    with np.errstate(invalid="ignore", divide="ignore"):
+    # Overflow is detected below, per unknown, and refused by name rather than left as inf or NaN.
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
+        x_hat = cal.basis.centre + cal.basis.scale * z_hat
+        new_var = _new_response_variance(cal, x_hat, y0, m)
+        slope = _slope_z(cal, z_hat) / cal.basis.scale
         se = np.sqrt(new_var + _curve_variance(cal, z_hat)) / np.abs(slope)
-
+        flat = slope == 0.0
+        if interval == "symmetric":
+            lower, upper = x_hat - t * se, x_hat + t * se
+        else:
+            lower, upper = _band_interval(cal, y0, m, t, z_hat, no_solution, se / cal.basis.scale)
+    solved = ~no_solution
+    _refuse_unrepresentable(y0, solved & ~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | (solved & (np.isnan(lower) | np.isnan(upper))))
     if interval == "symmetric":
-        lower, upper = x_hat - t * se, x_hat + t * se
-        unbounded = ~np.isfinite(se) & ~no_solution
+        unbounded = ~np.isfinite(se) & solved
     else:
-        lower, upper = _band_interval(cal, y0, m, t, z_hat, no_solution, se / cal.basis.scale)
-        unbounded = (np.isinf(lower) | np.isinf(upper)) & ~no_solution
+        unbounded = (np.isinf(lower) | np.isinf(upper)) & solved
 
     limits_note = None
     if limits is None:
@@ -180,7 +184,6 @@ def quantify(
     slack = RANGE_SLACK * (high - low)
     low, high = low - slack, high + slack
     bits = np.zeros(y0.size, dtype=np.int64)
-    solved = ~no_solution
     bits |= np.where(solved & (x_hat < low), int(QuantFlag.BELOW_RANGE), 0)
     bits |= np.where(solved & (x_hat > high), int(QuantFlag.ABOVE_RANGE), 0)
     bits |= np.where(solved & (x_hat >= low) & (x_hat <= high), int(QuantFlag.IN_RANGE), 0)
@@ -209,11 +212,27 @@ def quantify(
     )
 
 
+def _refuse_unrepresentable(y0: FloatArray, bad: np.ndarray) -> None:
+    """Refuse unknowns whose concentration or interval overflows double precision, naming the first."""
+    if bad.any():
+        i = int(np.flatnonzero(bad)[0])
+        raise QuantitationInputError(
+            f"mean response: unknown {i + 1} is {y0[i]:g}, so far beyond the standards that its "
+            "concentration or interval cannot be represented as a number; check the value and its unit"
+            + (f" ({int(bad.sum())} such unknowns in all)." if bad.sum() > 1 else ".")
+        )
+
+
 def _replicate_counts(replicates: object, k: int) -> np.ndarray:
     counts = np.broadcast_to(np.asarray(replicates), (k,)) if np.ndim(replicates) == 0 else np.asarray(replicates)
     if counts.shape != (k,):
         raise QuantitationInputError(
             f"replicates: {counts.size} counts given for {k} unknowns; give one count per unknown or a single count."
+        )
+    if counts.dtype.kind not in "iuf":
+        raise QuantitationInputError(
+            f"replicates: {replicates!r}; the number of replicate responses averaged must be a whole "
+            "number of at least 1 for each unknown."
         )
     as_float = counts.astype(np.float64)
     bad = np.flatnonzero(~np.isfinite(as_float) | (as_float < 1) | (as_float != np.round(as_float)))

@@ -24,6 +24,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from ._arrays import as_whole_count
 from .errors import LimitsError
 from .models import Model
 from .weighting import Weighting
@@ -101,10 +102,11 @@ def _iso11843(cal: "FittedCurve", slope: float, alpha: float, beta: float, repli
             f"calibration is {cal.model.description}, {cal.weighting.description}."
         )
     for name, value in (("alpha", alpha), ("beta", beta)):
-        if not (0.0 < value < 0.5):
-            raise LimitsError(f"{name}: {value!r} must lie between 0 and 0.5 (e.g. 0.05).")
-    if replicates < 1:
-        raise LimitsError(f"replicates: {replicates!r}; the test sample is measured at least once.")
+        if isinstance(value, bool) or not isinstance(value, (int, float, np.integer, np.floating)) or not (0.0 < value < 0.5):
+            raise LimitsError(f"{name}: {value!r} must be a number between 0 and 0.5 (e.g. 0.05).")
+    replicates = as_whole_count(
+        replicates, "replicates", LimitsError, "the number of times the test sample is measured (K)"
+    )
     x = cal.concentration
     n = x.size
     nu = cal.df_residual

@@ -85,12 +85,15 @@ class Basis:
         (b0 = 0, b1).
         """
         degree = max(self.powers)
-        c, s = self.centre, self.scale
+        ratio, s = np.float64(-self.centre / self.scale), np.float64(self.scale)
         transform = np.zeros((degree + 1, len(self.powers)))
-        for column, p in enumerate(self.powers):
-            # ((x − c)/s)^p = Σ_k C(p, k) x^k (−c)^(p−k) / s^p
-            for k in range(p + 1):
-                transform[k, column] = comb(p, k) * (-c) ** (p - k) / s**p
+        # Far beyond the range of double precision (x near 1e200 for a quadratic) an entry overflows
+        # to inf or underflows to 0; the caller checks the coefficients it gives and refuses them.
+        with np.errstate(over="ignore", under="ignore"):
+            for column, p in enumerate(self.powers):
+                # ((x − c)/s)^p = Σ_k C(p, k) x^k (−c/s)^(p−k) / s^k
+                for k in range(p + 1):
+                    transform[k, column] = comb(p, k) * ratio ** (p - k) / s**k
         return transform
 
 

@@ -75,8 +75,10 @@ class Weighting(str, Enum):
 class WeightModel:
     """The weighting of a fitted calibration, able to weigh new responses on the same scale.
 
-    ``weights`` are the standards' weights (Σw = n); ``normaliser`` is the factor k that turned the
-    raw weights (1/x, 1/y², …) into them.
+    ``weights`` are the standards' weights (Σw = n). They are computed as k·(r/v)^q, with v the
+    concentration, response or SD the weighting uses, q its power (1 or 2), r the smallest such
+    value among the standards (so that r/v ≤ 1 never overflows, however small or large the units)
+    and k = ``normaliser`` the factor that makes them sum to n.
     """
 
     weighting: Weighting
@@ -86,6 +88,8 @@ class WeightModel:
     lowest_response: float
     level_concentration: FloatArray
     level_sd: FloatArray
+    reference: float = 1.0
+    power: int = 0
 
     def weight_at(self, concentration: FloatArray, response: FloatArray) -> FloatArray:
         """Weight of one new response at ``concentration`` with measured ``response``.
@@ -95,21 +99,17 @@ class WeightModel:
         x = np.asarray(concentration, dtype=np.float64)
         y = np.asarray(response, dtype=np.float64)
         shape = np.broadcast_shapes(x.shape, y.shape)
-        k = self.normaliser
+        k, r, q = self.normaliser, self.reference, self.power
         match self.weighting:
             case Weighting.NONE:
                 return np.ones(shape)
-            case Weighting.INVERSE_X:
-                return np.broadcast_to(k / np.maximum(x, self.lowest_concentration), shape)
-            case Weighting.INVERSE_X2:
-                return np.broadcast_to(k / np.maximum(x, self.lowest_concentration) ** 2, shape)
-            case Weighting.INVERSE_Y:
-                return np.broadcast_to(k / np.maximum(y, self.lowest_response), shape)
-            case Weighting.INVERSE_Y2:
-                return np.broadcast_to(k / np.maximum(y, self.lowest_response) ** 2, shape)
+            case Weighting.INVERSE_X | Weighting.INVERSE_X2:
+                return np.broadcast_to(k * (r / np.maximum(x, self.lowest_concentration)) ** q, shape)
+            case Weighting.INVERSE_Y | Weighting.INVERSE_Y2:
+                return np.broadcast_to(k * (r / np.maximum(y, self.lowest_response)) ** q, shape)
             case Weighting.INVERSE_S2:
                 sd = np.interp(x, self.level_concentration, self.level_sd)
-                return np.broadcast_to(k / sd**2, shape)
+                return np.broadcast_to(k * (r / sd) ** 2, shape)
         raise AssertionError(self.weighting)  # pragma: no cover - every member is matched
 
 
@@ -120,9 +120,20 @@ def make_weights(
     levels: Levels,
     response_sd: FloatArray | None = None,
 ) -> WeightModel:
-    """Compute the standards' weights for ``weighting``, refusing data it cannot apply to."""
+    """Compute the standards' weights for ``weighting``, refusing data it cannot apply to.
+
+    ``response_sd`` (one SD per standard) is checked whatever the weighting, and refused unless the
+    weighting is 1/s², which is the only one that uses it: SDs given and silently ignored would
+    leave the analyst believing they had been used.
+    """
     n = concentration.size
     level_sd = np.full(levels.n_levels, np.nan)
+    given_sd = None if response_sd is None else _checked_sd(response_sd, n)
+    if given_sd is not None and weighting is not Weighting.INVERSE_S2:
+        raise WeightingError(
+            f"response SD: given, but weighting {weighting.value} does not use it; choose weighting "
+            "1/s^2 to weight by these SDs, or leave them out."
+        )
     if weighting in (Weighting.INVERSE_X, Weighting.INVERSE_X2):
         bad = np.flatnonzero(concentration <= 0)
         if bad.size:
@@ -142,18 +153,28 @@ def make_weights(
             )
     match weighting:
         case Weighting.NONE:
-            raw = np.ones(n)
+            values, power = np.ones(n), 0
         case Weighting.INVERSE_X:
-            raw = 1.0 / concentration
+            values, power = concentration, 1
         case Weighting.INVERSE_X2:
-            raw = 1.0 / concentration**2
+            values, power = concentration, 2
         case Weighting.INVERSE_Y:
-            raw = 1.0 / response
+            values, power = response, 1
         case Weighting.INVERSE_Y2:
-            raw = 1.0 / response**2
+            values, power = response, 2
         case Weighting.INVERSE_S2:
-            sd_per_standard, level_sd = _standard_deviations(concentration, response, levels, response_sd)
-            raw = 1.0 / sd_per_standard**2
+            values, level_sd = _standard_deviations(concentration, response, levels, given_sd)
+            power = 2
+    reference = float(values.min())
+    with np.errstate(under="ignore"):
+        raw = (reference / values) ** power
+    if raw.min() < np.finfo(float).tiny:
+        i = int(np.argmin(raw))
+        raise WeightingError(
+            f"weighting {weighting.value}: the values it weighs by run from {reference:g} to "
+            f"{values[i]:g} (standard {i + 1}), too many orders of magnitude apart for the weights to be "
+            "represented as numbers; check the units of the standards."
+        )
     normaliser = n / float(raw.sum())
     lowest = int(np.argmin(concentration))
     return WeightModel(
@@ -164,7 +185,25 @@ def make_weights(
         lowest_response=float(np.min(response)),
         level_concentration=frozen(levels.concentration.copy()),
         level_sd=frozen(level_sd),
+        reference=reference,
+        power=power,
     )
+
+
+def _checked_sd(response_sd: object, n: int) -> FloatArray:
+    """The response SDs the caller gives: one finite value above zero per standard."""
+    sd = as_finite_vector(response_sd, "response SD", WeightingError)
+    if sd.size != n:
+        raise WeightingError(
+            f"response SD: {sd.size} values given for {n} standards; give one standard deviation per standard."
+        )
+    bad = np.flatnonzero(sd <= 0)
+    if bad.size:
+        i = int(bad[0])
+        raise WeightingError(
+            f"response SD: standard {i + 1} has SD {sd[i]:g}; a standard deviation must be above zero."
+        )
+    return sd
 
 
 def _standard_deviations(
@@ -175,19 +214,7 @@ def _standard_deviations(
 ) -> tuple[FloatArray, FloatArray]:
     """SD of each standard's response for 1/s² weighting, and the SD of each level."""
     if response_sd is not None:
-        sd = as_finite_vector(response_sd, "response SD", WeightingError)
-        if sd.size != concentration.size:
-            raise WeightingError(
-                f"response SD: {sd.size} values given for {concentration.size} standards; "
-                "give one standard deviation per standard."
-            )
-        bad = np.flatnonzero(sd <= 0)
-        if bad.size:
-            i = int(bad[0])
-            raise WeightingError(
-                f"response SD: standard {i + 1} has SD {sd[i]:g}; 1/s² weights need every SD above zero."
-            )
-        return sd, levels.level_means(sd)
+        return response_sd, levels.level_means(response_sd)
     single = np.flatnonzero(levels.count < 2)
     if single.size:
         j = int(single[0])
