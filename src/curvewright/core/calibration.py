@@ -160,7 +160,10 @@ def fit(
         adjust = x.size / df
     r_squared = 1.0 - solution.sse / sst if sst > 0 else 1.0
     branch, vertex_z, notes = _quadratic_geometry(model, solution.coefficients, basis, x)
-    influence = measure_influence(solution.weighted_residuals, solution.leverage, p)
+    influence = measure_influence(
+        solution.weighted_residuals, solution.leverage, p, np.sqrt(weights.weights) * y
+    )
+    notes = notes + influence.notes
     lack = lack_of_fit_test(y, weights.weights, levels, solution.sse, p)
     z_range = (float(basis.z(x.min())), float(basis.z(x.max())))
     z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
