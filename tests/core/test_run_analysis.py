@@ -116,3 +116,17 @@ def test_rounding_rule_refuses_nonsense() -> None:
         RoundingRule("significant", 0)
     with pytest.raises(RoundingError, match="tie-break"):
         RoundingRule("decimals", 2, "bankers")
+
+
+def test_standards_are_grouped_by_their_level_labels() -> None:
+    # Invented standards made up by mass: the replicates of each level differ by about 1 %, more than
+    # any tolerance would join, but the analyst's labels say which standards belong together.
+    xs = [(1.0, 1.01), (2.0, 2.02), (5.0, 4.95), (10.0, 10.1), (20.0, 19.8)]
+    standards = tuple(
+        Standard(f"S{i}{r}", x, Reading.of(2 + 3 * x + (0.02 if r else -0.02)), r + 1, level=f"L{i + 1}")
+        for i, pair in enumerate(xs) for r, x in enumerate(pair)
+    )
+    run = Run("invented", (Analyte("copper", "µg/L", "counts", standards),), (), RunSettings())
+    cal = analyse_run(run).analytes[0].calibration
+    assert cal.levels.n_levels == 5 and cal.levels.count.tolist() == [2] * 5
+    assert cal.lack_of_fit.available and cal.lack_of_fit.df_pure_error == 5

@@ -7,6 +7,7 @@ answers everything the plot, the tables, the command line and the workbook need.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -18,8 +19,8 @@ from .fitted_curve import FittedCurve
 from .influence import measure_influence
 from .inverse import Quantitation, quantify, solve_z
 from .lack_of_fit import lack_of_fit_test
-from .least_squares import solve_weighted
-from .levels import DEFAULT_LEVEL_TOLERANCE, Levels, group_levels
+from .least_squares import solve_weighted, without_roundoff
+from .levels import Levels, group_levels
 from .models import Basis, Model, make_basis
 from .limits import DetectionLimits, detection_limits
 from .weighting import Weighting, make_weights
@@ -77,7 +78,8 @@ def fit(
     weighting: Weighting | str = "none",
     *,
     response_sd: object | None = None,
-    level_tolerance: float = DEFAULT_LEVEL_TOLERANCE,
+    level_tolerance: float | None = None,
+    level_labels: Sequence[str] | None = None,
     levels: Levels | None = None,
 ) -> Calibration:
     """Fit a calibration curve to standards.
@@ -85,8 +87,9 @@ def fit(
     Parameters
     ----------
     concentration : array-like of shape (n,)
-        Nominal concentration of each standard. Replicates are repeated concentrations; values
-        within ``level_tolerance`` (relative) form one level.
+        Nominal concentration of each standard. Replicates are standards of equal nominal
+        concentration, or of the same ``level_labels`` entry, or (only when ``level_tolerance`` is
+        given) within that relative tolerance of each other (see :mod:`.levels`).
     response : array-like of shape (n,)
         Instrument response of each standard.
     model : {"linear", "quadratic", "proportional"}
@@ -96,7 +99,11 @@ def fit(
         :mod:`.weighting`). 1/x-type weights refuse concentrations ≤ 0, 1/y-type responses ≤ 0, and
         1/s² needs ≥ 2 replicates at every level unless ``response_sd`` is given.
     response_sd : array-like of shape (n,), optional
-        Known response SDs for 1/s² weighting.
+        Known response SDs for 1/s² weighting (refused with any other weighting, which would ignore them).
+    level_tolerance : float, optional
+        Relative tolerance (0.005 = 0.5 %) within which nominal concentrations count as one level.
+    level_labels : sequence of str, optional
+        The level label of each standard ("" for none); standards sharing a label form one level.
     levels : Levels, optional
         The grouping of these concentrations from :func:`~curvewright.core.levels.group_levels`,
         for callers that fit the same standards many times (it must belong to ``concentration``).
@@ -119,15 +126,18 @@ def fit(
     if x.size == 0:
         raise CalibrationInputError("standards: none given; a calibration needs standards.")
     if levels is None or levels.index.size != x.size:
-        levels = group_levels(x, level_tolerance)
-    if levels.n_levels == 1:
+        levels = group_levels(x, level_tolerance, level_labels)
+    # Whether the curve can be fixed depends on the distinct concentrations, never on how they are
+    # grouped into levels: 1e6 + 0…10 are eleven concentrations even if a tolerance makes one level.
+    distinct = int(np.unique(x).size)
+    if distinct == 1:
         raise CalibrationInputError(
-            f"concentration: all {x.size} standards are at {levels.concentration[0]:g}; a curve needs "
+            f"concentration: all {x.size} standards are at {x[0]:g}; a curve needs "
             "standards at different concentrations."
         )
-    if levels.n_levels < p:
+    if distinct < p:
         raise CalibrationInputError(
-            f"standards: {levels.n_levels} concentration levels cannot fix the {p} parameters of the "
+            f"standards: {distinct} concentration levels cannot fix the {p} parameters of the "
             f"{model.description}; add levels or choose a simpler model."
         )
     if x.size <= p:
@@ -164,7 +174,8 @@ def fit(
         solution.weighted_residuals, solution.leverage, p, np.sqrt(weights.weights) * y
     )
     notes = notes + influence.notes
-    lack = lack_of_fit_test(y, weights.weights, levels, solution.sse, p)
+    clean = without_roundoff(solution.weighted_residuals, np.sqrt(weights.weights) * y)
+    lack = lack_of_fit_test(clean / np.sqrt(weights.weights), weights.weights, levels, p)
     z_range = (float(basis.z(x.min())), float(basis.z(x.max())))
     z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
     back = basis.centre + basis.scale * z_back

@@ -34,6 +34,7 @@ from zero.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -44,7 +45,7 @@ from ._arrays import as_finite_vector
 from .calibration import Calibration, fit
 from .distributions import f_quantile, f_upper_tail
 from .errors import CalibrationInputError
-from .levels import DEFAULT_LEVEL_TOLERANCE, group_levels
+from .levels import group_levels
 from .models import Model
 from .variance import VarianceEvidence, variance_evidence
 from .weighting import Weighting
@@ -154,7 +155,8 @@ def compare(
     include_proportional: bool = False,
     response_sd: object | None = None,
     profile: AcceptanceProfile | str = "general",
-    level_tolerance: float = DEFAULT_LEVEL_TOLERANCE,
+    level_tolerance: float | None = None,
+    level_labels: Sequence[str] | None = None,
 ) -> ModelComparison:
     """Fit every candidate model × weighting and recommend the simplest adequate one.
 
@@ -171,7 +173,7 @@ def compare(
     skipped: list[SkippedCandidate] = []
     first_error: CalibrationInputError | None = None
     x = as_finite_vector(concentration, "concentration", CalibrationInputError)
-    shared_levels = group_levels(x, level_tolerance) if x.size else None
+    shared_levels = group_levels(x, level_tolerance, level_labels) if x.size else None
     for w in weighting_list:
         for m in model_list:
             try:

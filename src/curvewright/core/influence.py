@@ -54,6 +54,7 @@ import numpy as np
 from scipy import special
 
 from ._arrays import FloatArray, frozen
+from .least_squares import ROUNDOFF
 
 FULL_LEVERAGE = 1.0 - 1e-9
 """Leverage at or above which a standard is taken to fix the curve through itself."""
@@ -66,8 +67,6 @@ COOKS_QUANTILE = 0.5
 """Cook's distance is compared with this quantile of F(p, n − p) (the median; Cook & Weisberg 1982)."""
 HIGH_LEVERAGE = 0.5
 """Leverage above which a standard is named in the notes (Huber 1981, from memory)."""
-ROUNDOFF = 1000.0 * np.finfo(float).eps
-"""Residuals below ROUNDOFF·max|√w·y| are round-off, not scatter."""
 
 STUDENTIZED_LIMIT = 3.0
 """|studentized residual| = 3, drawn as a guide in plots (common practice); the flags use

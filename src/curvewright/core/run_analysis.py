@@ -169,7 +169,7 @@ def _analyse_analyte(
     run: Run, analyte: Analyte, profile: AcceptanceProfile, model: str | None, weighting: str | None
 ) -> AnalyteResult:
     settings = run.settings
-    fitted, excluded, unusable, x, y = [], [], [], [], []
+    fitted, excluded, unusable, x, y, labels = [], [], [], [], [], []
     for s in analyte.standards:
         if not s.included:
             excluded.append(s)
@@ -188,13 +188,14 @@ def _analyse_analyte(
         fitted.append(s)
         x.append(s.concentration)
         y.append(value)
+        labels.append(s.level)
     use_model = model or analyte.model
     use_weighting = weighting or analyte.weighting
     overridden = (model is not None and model != analyte.model) or (
         weighting is not None and weighting != analyte.weighting
     )
     try:
-        cal = fit(x, y, use_model, use_weighting, level_tolerance=settings.level_tolerance)
+        cal = fit(x, y, use_model, use_weighting, level_tolerance=settings.level_tolerance, level_labels=labels)
     except CurvewrightError as exc:
         return AnalyteResult(
             analyte=analyte, calibration=None, error=str(exc), fitted_standards=tuple(fitted),
