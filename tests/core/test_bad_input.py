@@ -101,13 +101,17 @@ def test_vertex_inside_range_gives_ambiguous_flag() -> None:
     assert cw.QuantFlag.AMBIGUOUS_ROOT in q.flags[0]
 
 
-def test_flat_calibration_gives_unbounded_interval() -> None:
-    # The slope is not distinguishable from zero, so no interval can bound the concentration.
+def test_a_calibration_whose_response_does_not_change_refuses_to_quantify() -> None:
+    # The slope is not distinguishable from zero (F-test of the regression, p ≥ 0.05).
     x = np.array([1, 2, 3, 4, 5, 6.0])
     y = np.array([10.0, 10.4, 9.7, 10.2, 9.9, 10.3])
-    q = cw.fit(x, y).quantify([10.1])
-    assert cw.QuantFlag.UNBOUNDED_INTERVAL in q.flags[0]
-    assert np.isinf(q.lower[0]) and np.isinf(q.upper[0])
+    cal = cw.fit(x, y)
+    assert not cal.regression.significant and cal.regression.p_value > 0.05
+    assert "does not change significantly with concentration" in cal.notes[0]
+    with pytest.raises(cw.QuantitationInputError, match=r"calibration: the response does not change significantly .* p = "):
+        cal.quantify([10.1])
+    with pytest.raises(cw.LimitsError, match="no limit can be computed: the response does not change"):
+        cal.limits()
 
 
 def test_out_of_range_flags() -> None:

@@ -105,3 +105,22 @@ def test_bartlett_and_brown_forsythe_match_scipy() -> None:
     w, p = brown_forsythe_statistic(*groups)
     ref = stats.levene(*groups, center="median")
     assert (w, p) == pytest.approx((ref.statistic, ref.pvalue), rel=1e-12)
+
+
+def test_the_line_through_the_origin_is_not_made_to_look_better_than_a_needed_intercept() -> None:
+    # Invented standards on y = 10 + 5x over a narrow range far from zero: the intercept is about
+    # 10 ± 0.8, plainly needed. Against the uncentred total Σy² the proportional model's R² came out
+    # above the line's; measured about the mean response, like the other models, it falls below.
+    rng = np.random.default_rng(2)
+    x = np.repeat([40.0, 45.0, 50.0, 55.0, 60.0], 2)
+    y = 10 + 5 * x + 0.3 * rng.standard_normal(x.size)
+    result = cw.compare(x, y, weightings=("none",), include_proportional=True)
+    line, origin = result.candidate("linear", "none"), result.candidate("proportional", "none")
+    assert line.calibration.coefficients[0] == pytest.approx(10, abs=1)
+    assert line.calibration.standard_errors[0] == pytest.approx(0.8, abs=0.2)
+    assert origin.adjusted_r_squared < line.adjusted_r_squared
+    assert origin.calibration.r_squared == pytest.approx(
+        1 - origin.calibration.sse / np.sum((y - y.mean()) ** 2), rel=1e-12
+    )
+    assert any("R² is taken about the mean response for every model" in r for r in result.reasons)
+    assert result.notes and "does not compare weightings" in result.notes[0]

@@ -74,3 +74,43 @@ def test_quadratic_forced_to_minus_zero_curvature_still_quantifies(monkeypatch) 
         q = cal.quantify([50.0])
     assert np.all(np.isfinite(cal.back_calculated))
     assert q.estimate[0] == pytest.approx(16.0, rel=1e-9)
+
+
+def test_a_flat_response_is_not_a_perfect_fit() -> None:
+    # Every standard gives the same response: nothing changes with concentration.
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        cal = cw.fit([1, 2, 3, 4], [5, 5, 5, 5])
+    assert cal.r_squared == 0.0
+    assert cal.regression.f_statistic == 0.0 and cal.regression.p_value == 1.0 and not cal.regression.significant
+    with pytest.raises(cw.QuantitationInputError, match="the fitted response is the same at every standard"):
+        cal.quantify([5.0])
+    with pytest.raises(cw.LimitsError, match="does not change"):
+        cal.limits()
+    assert not any(cal.influence_flags)
+
+
+def test_exact_standards_on_a_line_are_a_perfect_fit() -> None:
+    x = np.array([1, 2, 4, 8, 16.0])
+    cal = cw.fit(x, 2 + 3 * x)
+    assert cal.residual_sd == 0.0 and cal.r_squared == 1.0
+    assert cal.regression.significant and cal.regression.p_value == 0.0
+    q = cal.quantify([14.0])
+    assert q.estimate[0] == pytest.approx(4.0, rel=1e-14) and q.lower[0] == q.upper[0] == q.estimate[0]
+
+
+def test_comparing_all_zero_responses_warns_of_nothing_and_says_why() -> None:
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        result = cw.compare([1, 1, 2, 2, 3, 3], [0, 0, 0, 0, 0, 0.0])
+    assert any("does not change" in reason for reason in result.reasons)
+    assert all(not c.calibration.regression.significant for c in result.candidates)
+
+
+def test_a_weak_but_real_slope_still_quantifies() -> None:
+    # slope t ≈ 3 on 4 df: significant at 5 %, so the calibration is used (with a wide interval)
+    x = np.array([1, 2, 3, 4, 5, 6.0])
+    y = 10 + 0.2 * x + np.array([0.1, -0.15, 0.05, 0.12, -0.1, -0.02])
+    cal = cw.fit(x, y)
+    assert cal.regression.significant
+    assert np.isfinite(cal.quantify([10.7]).estimate[0])

@@ -19,9 +19,10 @@ from .fitted_curve import FittedCurve
 from .influence import measure_influence
 from .inverse import Quantitation, quantify, solve_z
 from .lack_of_fit import lack_of_fit_test
-from .least_squares import solve_weighted, without_roundoff
+from .least_squares import ROUNDOFF, solve_weighted, without_roundoff
 from .levels import Levels, group_levels
 from .models import Basis, Model, make_basis
+from .regression_test import regression_test
 from .limits import DetectionLimits, detection_limits
 from .weighting import Weighting, make_weights
 
@@ -154,28 +155,32 @@ def fit(
     # Values near the ends of double precision overflow here; they are refused by name below.
     with np.errstate(over="ignore", under="ignore", invalid="ignore"):
         solution = solve_weighted(basis.design(x), y, weights.weights)
+        root_wy = np.sqrt(weights.weights) * y
+        clean = without_roundoff(solution.weighted_residuals, root_wy)  # exact standards: zeros
         df = x.size - p
-        residual_sd = float(np.sqrt(solution.sse / df))
+        residual_sd = float(np.sqrt((clean @ clean) / df))
         z_cov = residual_sd**2 * solution.unscaled_covariance
         transform = basis.power_transform()
         coefficients = transform @ solution.coefficients
         covariance = transform @ z_cov @ transform.T
     _refuse_unrepresentable(model, x, y, basis, coefficients, covariance, residual_sd)
-    if model.has_intercept:
-        mean_w = float(np.sum(weights.weights * y) / np.sum(weights.weights))
-        sst = float(np.sum(weights.weights * (y - mean_w) ** 2))
-        adjust = (x.size - 1) / df
+    w = weights.weights
+    mean_w = float(np.sum(w * y) / np.sum(w))
+    sst = float(np.sum(w * (y - mean_w) ** 2))
+    adjust = (x.size - 1) / df
+    if sst <= x.size * (ROUNDOFF * float(np.max(np.abs(root_wy)))) ** 2:
+        r_squared = 0.0  # the responses do not vary: nothing to explain
     else:
-        sst = float(np.sum(weights.weights * y**2))
-        adjust = x.size / df
-    r_squared = 1.0 - solution.sse / sst if sst > 0 else 1.0
+        r_squared = 1.0 - float(clean @ clean) / sst
     branch, vertex_z, notes = _quadratic_geometry(model, solution.coefficients, basis, x)
-    influence = measure_influence(
-        solution.weighted_residuals, solution.leverage, p, np.sqrt(weights.weights) * y
+    influence = measure_influence(solution.weighted_residuals, solution.leverage, p, root_wy)
+    lack = lack_of_fit_test(clean / np.sqrt(w), w, levels, p)
+    regression = regression_test(
+        solution.coefficients, z_cov, basis.powers, solution.fitted, y, not np.any(clean), df
     )
+    if not regression.significant:
+        notes = (regression.words,) + notes
     notes = notes + influence.notes
-    clean = without_roundoff(solution.weighted_residuals, np.sqrt(weights.weights) * y)
-    lack = lack_of_fit_test(clean / np.sqrt(weights.weights), weights.weights, levels, p)
     z_range = (float(basis.z(x.min())), float(basis.z(x.max())))
     z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
     back = basis.centre + basis.scale * z_back
@@ -203,6 +208,7 @@ def fit(
         residuals=frozen(y - solution.fitted),
         influence=influence,
         lack_of_fit=lack,
+        regression=regression,
         back_calculated=frozen(back),
         relative_error=frozen(relative),
         quadratic_branch=branch,

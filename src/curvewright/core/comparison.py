@@ -54,6 +54,11 @@ LACK_OF_FIT_ALPHA = 0.05
 """Lack-of-fit significance level (common practice)."""
 MANDEL_ALPHA = 0.01
 """Mandel's test at 99 % (ISO 8466-1)."""
+R_SQUARED_NOTE = (
+    "note: R² is taken about the mean response for every model, the line through the origin too, so it "
+    "compares models under one weighting; each weighting measures the scatter differently, so R² does not "
+    "compare weightings"
+)
 TIE_FRACTION = 0.01
 MIN_REPLICATES_FOR_S2 = 5
 """Replicates per level below which 1/s² weights are not recommended (common practice)."""
@@ -137,6 +142,7 @@ class ModelComparison:
     recommended: Candidate
     reasons: tuple[str, ...]
     profile: str
+    notes: tuple[str, ...] = (R_SQUARED_NOTE,)
 
     def candidate(self, model: Model | str, weighting: Weighting | str) -> Candidate:
         m, w = Model.parse(model), Weighting.parse(weighting)
@@ -204,7 +210,15 @@ def compare(
         )
         for (m, w), cal in fits.items()
     )
-    recommended, reasons = _recommend(candidates, evidence, mandel_by_weighting)
+    if not any(c.calibration.regression.significant for c in candidates):
+        recommended = next((c for c in candidates if c.model is Model.LINEAR and c.weighting is Weighting.NONE), candidates[0])
+        reasons = [
+            recommended.calibration.regression.words,
+            "no candidate can be recommended: check the standards' concentrations and responses",
+        ]
+    else:
+        recommended, reasons = _recommend(candidates, evidence, mandel_by_weighting)
+    reasons = list(reasons) + [R_SQUARED_NOTE]
     return ModelComparison(
         candidates=candidates,
         skipped=tuple(skipped),

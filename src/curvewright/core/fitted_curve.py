@@ -20,6 +20,7 @@ from .influence import Influence, InfluenceFlag
 from .lack_of_fit import LackOfFit
 from .levels import Levels
 from .models import Basis, Model
+from .regression_test import RegressionTest
 from .weighting import WeightModel, Weighting
 
 
@@ -42,9 +43,15 @@ class FittedCurve:
     df_residual : int
         n − p.
     r_squared, adjusted_r_squared : float
-        1 − SSE/SST with SST = Σwᵢ(yᵢ − ȳ_w)², adjusted by (n − 1)/(n − p). Without an intercept
-        (proportional model) SST = Σwᵢyᵢ² and the adjustment is n/(n − p), as is customary for
-        regression through the origin.
+        1 − SSE/SST with SST = Σwᵢ(yᵢ − ȳ_w)² about the weighted mean response, adjusted by
+        (n − 1)/(n − p), for every model. The line through the origin is measured the same way (not
+        against Σwᵢyᵢ², the uncentred total customary for it, which makes it look better than a line
+        whose intercept is plainly needed), so that models fitted with one weighting compare; it can
+        then fall below zero. Different weightings measure the scatter differently, so R² does not
+        compare across weightings. When the responses do not vary at all (SST is round-off) there is
+        nothing to explain and R² is 0.
+    regression : RegressionTest
+        The F-test of whether the response changes with concentration (see :mod:`.regression_test`).
     leverage, studentized_residuals, cooks_distance
         Influence of each standard (see :mod:`.influence`); ``influence_flags`` names what stands out.
     back_calculated, relative_error
@@ -74,6 +81,7 @@ class FittedCurve:
     residuals: FloatArray
     influence: Influence
     lack_of_fit: LackOfFit
+    regression: RegressionTest
     back_calculated: FloatArray
     relative_error: FloatArray
     quadratic_branch: int = 0

@@ -143,6 +143,10 @@ def quantify(
     limits: DetectionLimits | None = None,
 ) -> Quantitation:
     """Quantify unknowns; see :meth:`curvewright.core.calibration.Calibration.quantify`."""
+    if not cal.regression.significant:
+        raise QuantitationInputError(
+            f"calibration: {cal.regression.words}; check the standards' concentrations and responses."
+        )
     y0 = as_finite_vector(mean_response, "mean response", QuantitationInputError, item="unknown")
     m = _replicate_counts(replicates, y0.size)
     level = as_confidence_level(level, QuantitationInputError)
@@ -258,6 +262,9 @@ def solve_z(
     responses with no solution there and a mask of responses reached twice inside ``z_range``.
     """
     false = np.zeros(y0.size, dtype=bool)
+    if model is not Model.QUADRATIC and a[-1] == 0.0:
+        # a line of slope exactly zero reaches no response but its own level, and that one everywhere
+        return np.full(y0.size, np.nan), ~false, false
     if model is Model.PROPORTIONAL:
         return y0 / a[0], false, false
     if model is Model.LINEAR:

@@ -60,6 +60,8 @@ def detection_limits(
     """Compute LOD and LOQ of ``cal`` by ``method`` (one of :data:`LIMIT_METHODS`)."""
     if method not in LIMIT_METHODS:
         raise LimitsError(f"limits method: {method!r} is not one of {', '.join(map(repr, LIMIT_METHODS))}.")
+    if not cal.regression.significant:
+        raise LimitsError(f"no limit can be computed: {cal.regression.words}.")
     slope = float(cal.coefficients[1])
     if slope == 0.0:
         raise LimitsError("the calibration has zero slope at zero concentration, so no limit can be computed.")

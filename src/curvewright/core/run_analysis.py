@@ -17,7 +17,7 @@ import numpy as np
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
 from .calibration import Calibration, fit
-from .errors import CurvewrightError, LimitsError
+from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag
 from .limits import DetectionLimits
 from .run import Analyte, Reading, Run, SampleKind, Standard
@@ -257,9 +257,11 @@ def _quantify_samples(
             positions.append(len(rows) - 1)
             means.append(float(np.mean(values)))
             counts.append(len(values))
-    quant = (
-        cal.quantify(means, counts, settings.confidence_level, settings.interval, limits) if means else None
-    )
+    refusal = None
+    try:
+        quant = cal.quantify(means, counts, settings.confidence_level, settings.interval, limits) if means else None
+    except QuantitationInputError as exc:  # a calibration that cannot quantify: every sample says why
+        quant, refusal = None, f"not quantified: {exc}"
     index_of = {row: i for i, row in enumerate(positions)}
     out = []
     for r, (sample, values, note, censored) in enumerate(rows):
@@ -275,7 +277,7 @@ def _quantify_samples(
         )
         i = index_of.get(r)
         if i is None or quant is None:
-            reason = f"reported as censored: {censored}" if censored else (note or "no numeric response")
+            reason = f"reported as censored: {censored}" if censored else (refusal or note or "no numeric response")
             out.append(
                 SampleResult(
                     **base, mean_response=None, estimate=None, standard_error=None, lower=None, upper=None,
