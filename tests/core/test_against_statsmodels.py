@@ -95,6 +95,7 @@ def test_numeric_inversion_matches_fieller_where_both_apply() -> None:
     z_hat, no_solution, _ = inverse.solve_z(cal.model, cal.z_coefficients, 0, (-1.0, 1.0), y0)
     closed = inverse._fieller_z(cal, y0, m, t)
     guess = np.full(y0.size, 0.05)  # a deliberately rough starting half-width, in z units
-    lower, upper = inverse._band_edges(cal, y0, m, t, z_hat, no_solution, guess)
+    lower, upper, past_vertex = inverse._band_edges(cal, y0, m, t, z_hat, no_solution, guess)
+    assert not past_vertex.any()
     np.testing.assert_allclose(lower, closed[0], rtol=1e-12, atol=1e-13)
     np.testing.assert_allclose(upper, closed[1], rtol=1e-12, atol=1e-13)

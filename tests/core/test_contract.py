@@ -119,3 +119,17 @@ def test_quantify_inverts_predict_for_random_quadratics(curvature, seed, fractio
     q = cal.quantify([cal.predict(x0)])
     if cw.QuantFlag.AMBIGUOUS_ROOT not in q.flags[0]:
         assert q.estimate[0] == pytest.approx(x0, rel=1e-8, abs=1e-8)
+
+
+def test_each_unknown_is_quantified_independently_of_the_others_in_the_call(calibration: cw.Calibration) -> None:
+    # The inverted band's ends of one unknown must not change, even in the last bit, with the other
+    # unknowns quantified alongside it.
+    y0 = calibration.predict(np.linspace(2.0, 200.0, 23)) * (1 + 0.01 * np.sin(np.arange(23)))
+    together = calibration.quantify(y0, replicates=np.arange(23) % 3 + 1)
+    for i in range(y0.size):
+        alone = calibration.quantify(y0[i:i + 1], replicates=i % 3 + 1)
+        for name in ("estimate", "standard_error", "lower", "upper"):
+            assert getattr(alone, name)[0] == getattr(together, name)[i] or (
+                np.isnan(getattr(alone, name)[0]) and np.isnan(getattr(together, name)[i])
+            ), (name, i)
+        assert alone.flag_bits[0] == together.flag_bits[i]

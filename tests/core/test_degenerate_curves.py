@@ -114,3 +114,32 @@ def test_a_weak_but_real_slope_still_quantifies() -> None:
     cal = cw.fit(x, y)
     assert cal.regression.significant
     assert np.isfinite(cal.quantify([10.7]).estimate[0])
+
+
+def test_unknowns_at_the_top_standard_near_the_vertex_always_get_a_result() -> None:
+    # Invented detector saturating just above the top standard: y = 2x − 0.1x², vertex at 10, top
+    # standard 9.5. Noise puts about a third of the top standard's responses above the fitted curve's
+    # highest value; the prediction band still holds almost all of them.
+    rng = np.random.default_rng(11)
+    x = np.repeat([1, 2, 4, 6, 8, 9.5], 2)
+    curve = lambda c: 2 * c - 0.1 * c**2  # noqa: E731
+    grid = np.linspace(1.0, 9.5, 400)
+    covered = results = turning = 0
+    for _ in range(150):
+        cal = cw.fit(x, curve(x) + 0.05 * rng.standard_normal(x.size), "quadratic")
+        y0 = curve(9.5) + 0.05 * rng.standard_normal(4)
+        q = cal.quantify(y0)
+        low_band, high_band = cal.prediction_band(grid)
+        for i in range(y0.size):
+            if cw.QuantFlag.NO_SOLUTION in q.flags[i]:
+                # only a response outside the prediction band over the whole range has no result
+                assert not np.any((low_band <= y0[i]) & (y0[i] <= high_band))
+                continue
+            results += 1
+            covered += q.lower[i] <= 9.5 <= q.upper[i]
+            if y0[i] > cal.predict(cal.vertex):
+                assert cw.QuantFlag.TURNING_POINT in q.flags[i] and q.estimate[i] == pytest.approx(cal.vertex)
+                turning += 1
+            assert np.isfinite(q.lower[i]) and np.isfinite(q.upper[i])
+    assert results >= 0.97 * 600 and turning >= 100
+    assert covered / results >= 0.93

@@ -2,9 +2,10 @@
 
 Point estimate
     x̂ solves f(x) = ȳ₀. A straight line gives x̂ = (ȳ₀ − b0)/b1. For the quadratic the root is
-    taken on the calibrated branch, the side of the vertex that holds the standards; a response the
-    curve never reaches on that branch has no solution and is flagged, never extrapolated past the
-    vertex.
+    taken on the calibrated branch, the side of the vertex that holds the standards. A response
+    beyond the curve's highest (or lowest) value that the prediction band still holds at the vertex
+    is read as the vertex itself, flagged ``TURNING_POINT`` (its symmetric interval is unbounded,
+    since the slope there is zero); only a response outside the band even there has no solution.
 
 Standard error (delta method)
     s_x̂ = √(σ²/(m·w₀) + var f̂(x̂)) / |f'(x̂)|, with w₀ the weight of the new mean response
@@ -18,8 +19,11 @@ Calibration interval (``interval="band"``, the default)
     {x : (ȳ₀ − f̂(x))² ≤ t²·(σ²/(m·w(x)) + var f̂(x))}, t = t(1 − α/2; n − p). For a straight
     line whose weights do not depend on x this is Fieller's interval, solved in closed form
     (Draper & Smith, *Applied Regression Analysis*, 3rd ed., §3.2); otherwise the band is inverted
-    numerically, bracketing outward from x̂ and bisecting to full precision. When the band does not
-    close on one side the interval is unbounded there (±inf, flagged).
+    numerically, bracketing outward from x̂ and refining to full precision, each unknown on its own
+    (its ends never depend on the other unknowns of the call). For a quadratic the search stops at
+    the vertex; when the band still holds ȳ₀ there it goes on past it, so the interval is the
+    connected set of concentrations whose band holds ȳ₀ (flagged ``TURNING_POINT``). When the band
+    does not close on one side the interval is unbounded there (±inf, flagged).
 
 Symmetric interval (``interval="symmetric"``)
     x̂ ± t·s_x̂.
@@ -47,7 +51,8 @@ if TYPE_CHECKING:  # pragma: no cover
 
 INTERVAL_METHODS = ("band", "symmetric")
 SEARCH_HALF_RANGES = 200.0
-"""How far beyond x̂ the band inversion looks for the interval's ends, in half-ranges of the standards."""
+"""How far beyond x̂ the band inversion looks for the interval's ends, in spans of the standards
+(measured in the fitting variable z)."""
 RANGE_SLACK = 1e-9
 """Fraction of the calibrated span allowed for round-off when testing whether x̂ is in range."""
 _MAX_REFINE_STEPS = 100
@@ -65,6 +70,7 @@ class QuantFlag(IntFlag):
     NO_SOLUTION = 32
     AMBIGUOUS_ROOT = 64
     UNBOUNDED_INTERVAL = 128
+    TURNING_POINT = 256
 
     @property
     def words(self) -> str:
@@ -83,9 +89,17 @@ _WORDS = {
     QuantFlag.ABOVE_RANGE: "above the highest standard",
     QuantFlag.BELOW_LOQ: "below the quantitation limit (LOQ)",
     QuantFlag.BELOW_LOD: "below the detection limit (LOD)",
-    QuantFlag.NO_SOLUTION: "no solution: the curve never reaches this response on its calibrated branch",
+    QuantFlag.NO_SOLUTION: (
+        "no solution: the curve never reaches this response on its calibrated branch, not even within "
+        "its prediction band"
+    ),
     QuantFlag.AMBIGUOUS_ROOT: "ambiguous: the curve reaches this response twice within the calibrated range",
     QuantFlag.UNBOUNDED_INTERVAL: "interval unbounded: the calibration cannot bound this concentration",
+    QuantFlag.TURNING_POINT: (
+        "at the curve's turning point: the prediction band holds this response on both sides of the "
+        "turning point, so the interval is read from the band on both sides (where the response lies "
+        "beyond the curve's highest or lowest value, the estimate is the turning point itself)"
+    ),
 }
 _SHORT_WORDS = {
     QuantFlag.IN_RANGE: "in range",
@@ -96,6 +110,7 @@ _SHORT_WORDS = {
     QuantFlag.NO_SOLUTION: "no solution",
     QuantFlag.AMBIGUOUS_ROOT: "two roots",
     QuantFlag.UNBOUNDED_INTERVAL: "open interval",
+    QuantFlag.TURNING_POINT: "turning point",
 }
 
 
@@ -160,21 +175,28 @@ def quantify(
     # Overflow is detected below, per unknown, and refused by name rather than left as inf or NaN.
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
+        at_turning_point = _inside_band_at_vertex(cal, y0, m, t, no_solution)
+        z_hat = np.where(at_turning_point, cal.vertex_z if cal.vertex_z is not None else np.nan, z_hat)
+        no_solution = no_solution & ~at_turning_point
         x_hat = cal.basis.centre + cal.basis.scale * z_hat
         new_var = _new_response_variance(cal, x_hat, y0, m)
         slope = _slope_z(cal, z_hat) / cal.basis.scale
         se = np.sqrt(new_var + _curve_variance(cal, z_hat)) / np.abs(slope)
         flat = slope == 0.0
+        past_vertex = np.zeros(y0.size, dtype=bool)
         if interval == "symmetric":
             lower, upper = x_hat - t * se, x_hat + t * se
         else:
-            lower, upper = _band_interval(cal, y0, m, t, z_hat, no_solution, se / cal.basis.scale)
+            lower, upper, past_vertex = _band_interval(cal, y0, m, t, z_hat, no_solution, se / cal.basis.scale)
     solved = ~no_solution
-    _refuse_unrepresentable(y0, solved & ~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | (solved & (np.isnan(lower) | np.isnan(upper))))
+    _refuse_unrepresentable(
+        y0, solved & (~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | np.isnan(lower) | np.isnan(upper))
+    )
     if interval == "symmetric":
         unbounded = ~np.isfinite(se) & solved
     else:
         unbounded = (np.isinf(lower) | np.isinf(upper)) & solved
+    turning = at_turning_point | (past_vertex & solved)
 
     limits_note = None
     if limits is None:
@@ -198,6 +220,7 @@ def quantify(
     bits |= np.where(no_solution, int(QuantFlag.NO_SOLUTION), 0)
     bits |= np.where(ambiguous, int(QuantFlag.AMBIGUOUS_ROOT), 0)
     bits |= np.where(unbounded, int(QuantFlag.UNBOUNDED_INTERVAL), 0)
+    bits |= np.where(turning, int(QuantFlag.TURNING_POINT), 0)
 
     nan = np.where(no_solution, np.nan, 0.0)
     return Quantitation(
@@ -321,15 +344,27 @@ def _new_response_variance(cal: "FittedCurve", x: FloatArray, y0: FloatArray, m:
 def _band_interval(
     cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float, z_hat: FloatArray, no_solution: np.ndarray,
     se_z: FloatArray,
-) -> tuple[FloatArray, FloatArray]:
+) -> tuple[FloatArray, FloatArray, np.ndarray]:
+    """Both ends of the calibration interval, in x, and which unknowns' intervals reach past the vertex."""
     closed_form = cal.model is not Model.QUADRATIC and not cal.weighting.uses_concentration
+    past_vertex = np.zeros(y0.size, dtype=bool)
     if closed_form:
         z_lo, z_hi = _fieller_z(cal, y0, m, t)
     else:
-        z_lo, z_hi = _band_edges(cal, y0, m, t, z_hat, no_solution, t * se_z)
+        z_lo, z_hi, past_vertex = _band_edges(cal, y0, m, t, z_hat, no_solution, t * se_z)
     to_x = lambda z: cal.basis.centre + cal.basis.scale * z  # noqa: E731
     # scale > 0, so the order of the ends survives the change of variable.
-    return to_x(z_lo), to_x(z_hi)
+    return to_x(z_lo), to_x(z_hi), past_vertex
+
+
+def _inside_band_at_vertex(
+    cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float, no_solution: np.ndarray
+) -> np.ndarray:
+    """Responses beyond a quadratic's extreme that its prediction band still holds at the vertex."""
+    if cal.model is not Model.QUADRATIC or cal.vertex_z is None or not no_solution.any():
+        return np.zeros(y0.size, dtype=bool)
+    at_vertex = np.full(y0.size, cal.vertex_z)
+    return no_solution & (_band_excess(cal, curve_polynomials(cal), y0, m, t, at_vertex) <= 0)
 
 
 def _fieller_z(cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float) -> tuple[FloatArray, FloatArray]:
@@ -393,68 +428,109 @@ def _band_edges(
     z_hat: FloatArray,
     no_solution: np.ndarray,
     guess: FloatArray,
-) -> tuple[FloatArray, FloatArray]:
+) -> tuple[FloatArray, FloatArray, np.ndarray]:
     """Both ends of the calibration interval around ẑ, in z (vectorised over unknowns).
 
-    Each side starts from ``guess`` (the half-width t·s_ẑ of the symmetric interval, close to the
-    true end), doubles outward until it leaves the band (bracketing the first crossing; never past
-    the vertex of a quadratic nor beyond :data:`SEARCH_HALF_RANGES`), then refines the crossing by
-    the Illinois variant of regula falsi (Dowell & Jarratt 1971, BIT 11:168), which keeps the
-    bracket and converges superlinearly.
+    Each side walks outward from ẑ (see :func:`_band_crossing`), never past the vertex of a quadratic
+    at first. A side still inside the band at the vertex goes on past it: the band holds the response
+    on the far side of the turning point too, and the interval is the connected set of
+    concentrations whose band holds it. Returns the lower and upper ends and a mask of the unknowns
+    whose interval reaches past the vertex.
     """
     k = y0.size
     polys = curve_polynomials(cal)
     start = np.tile(np.where(no_solution, 0.0, z_hat), 2)
     direction = np.repeat([-1.0, 1.0], k)
     yy, mm = np.tile(y0, 2), np.tile(m, 2)
-    reach = np.full(2 * k, SEARCH_HALF_RANGES)
+    full_reach = SEARCH_HALF_RANGES * max(1.0, float(np.ptp(cal.basis.z(cal.concentration))))
+    reach = np.full(2 * k, full_reach)
+    towards_vertex = np.zeros(2 * k, dtype=bool)
     if cal.model is Model.QUADRATIC and cal.vertex_z is not None:
-        towards_vertex = (cal.vertex_z - start) * direction > 0
+        towards_vertex = (cal.vertex_z - start) * direction >= 0
         reach = np.where(towards_vertex, np.abs(cal.vertex_z - start), reach)
-
-    def excess(offset: FloatArray) -> FloatArray:
-        return _band_excess(cal, polys, yy, mm, t, start + direction * offset)
-
     first = np.tile(np.where(np.isfinite(guess) & (guess > 0), guess, 1e-3), 2)
+    offset, closed = _band_crossing(cal, polys, yy, mm, t, start, direction, reach, first)
+    edge = np.where(closed, start + direction * offset, direction * np.inf)
+    onward = towards_vertex & ~closed & ~np.tile(no_solution, 2)
+    if onward.any():
+        vertex = np.full(int(onward.sum()), float(cal.vertex_z))  # type: ignore[arg-type]
+        more, more_closed = _band_crossing(
+            cal, polys, yy[onward], mm[onward], t, vertex, direction[onward],
+            np.full(vertex.size, full_reach), first[onward],
+        )
+        edge[onward] = np.where(more_closed, vertex + direction[onward] * more, direction[onward] * np.inf)
+    past_vertex = onward[:k] | onward[k:]
+    return edge[:k], edge[k:], past_vertex
+
+
+def _band_crossing(
+    cal: "FittedCurve",
+    polys: tuple[FloatArray, FloatArray],
+    y0: FloatArray,
+    m: np.ndarray,
+    t: float,
+    start: FloatArray,
+    direction: FloatArray,
+    reach: FloatArray,
+    first: FloatArray,
+) -> tuple[FloatArray, np.ndarray]:
+    """Distance from ``start`` along ``direction`` to the first point outside the prediction band.
+
+    Starts from ``first`` (the half-width t·s_ẑ of the symmetric interval, close to the true end),
+    doubles outward until it leaves the band (bracketing the first crossing; never beyond
+    ``reach``), then refines the crossing by the Illinois variant of regula falsi (Dowell & Jarratt
+    1971, BIT 11:168), which keeps the bracket and converges superlinearly. Each side is frozen as
+    soon as it has converged, so its result depends on its own unknown only, never on the others
+    quantified in the same call. Returns the distance and whether the band closed within reach.
+    """
+
+    def excess(at: np.ndarray, offset: FloatArray) -> FloatArray:
+        return _band_excess(cal, polys, y0[at], m[at], t, start[at] + direction[at] * offset)
+
+    every = np.ones(start.size, dtype=bool)
     b = np.minimum(first, reach)
-    a = np.zeros(2 * k)
-    g_a = excess(a)
-    g_b = excess(b)
+    a = np.zeros(start.size)
+    g_a = excess(every, a)
+    g_b = excess(every, b)
     # the guess may already lie outside the band; otherwise walk outward by doubling
     inside = g_b <= 0
     closed = ~inside
     for _ in range(_MAX_EXPANSIONS):
+        inside &= b < reach
         if not inside.any():
             break
-        at_reach = inside & (b >= reach)
-        inside &= ~at_reach
-        a = np.where(inside, b, a)
-        g_a = np.where(inside, g_b, g_a)
-        b = np.where(inside, np.minimum(2.0 * b, reach), b)
-        g_new = excess(b)
-        g_b = np.where(inside, g_new, g_b)
-        newly_out = inside & (g_new > 0)
+        a[inside], g_a[inside] = b[inside], g_b[inside]
+        b[inside] = np.minimum(2.0 * b[inside], reach[inside])
+        g_b[inside] = excess(inside, b[inside])
+        newly_out = inside & (g_b > 0)
         closed |= newly_out
         inside &= ~newly_out
-    side = np.zeros(2 * k, dtype=np.int8)
-    previous = np.full(2 * k, np.inf)
+    side = np.zeros(start.size, dtype=np.int8)
+    previous = np.full(start.size, np.inf)
     resolution = 4 * np.finfo(float).eps * (np.abs(start) + b)
     active = closed.copy()
     c = 0.5 * (a + b)
     for _ in range(_MAX_REFINE_STEPS):
         if not active.any():
             break
-        c = b - g_b * (b - a) / (g_b - g_a)
-        c = np.where(np.isfinite(c) & (c > a) & (c < b), c, 0.5 * (a + b))
-        active &= (np.abs(c - previous) > resolution) & (b - a > resolution)
-        previous = c
-        g_c = excess(c)
+        at = active
+        step = b[at] - g_b[at] * (b[at] - a[at]) / (g_b[at] - g_a[at])
+        step = np.where(np.isfinite(step) & (step > a[at]) & (step < b[at]), step, 0.5 * (a[at] + b[at]))
+        moving = (np.abs(step - previous[at]) > resolution[at]) & (b[at] - a[at] > resolution[at])
+        # a side that has converged keeps its last point and takes no further step
+        at = np.flatnonzero(at)[moving]
+        active[:] = False
+        active[at] = True
+        if not at.size:
+            break
+        step = step[moving]
+        c[at] = previous[at] = step
+        g_c = excess(at, step)
         out = g_c > 0  # c lies outside the band: it becomes the outer end
         # Illinois step: halve the value kept at an end that survived twice in a row
-        g_a = np.where(out, np.where(side == 1, 0.5 * g_a, g_a), g_c)
-        g_b = np.where(out, g_c, np.where(side == -1, 0.5 * g_b, g_b))
-        a = np.where(out, a, c)
-        b = np.where(out, c, b)
-        side = np.where(out, 1, -1).astype(np.int8)
-    edge = np.where(closed, start + direction * c, direction * np.inf)
-    return edge[:k], edge[k:]
+        g_a[at] = np.where(out, np.where(side[at] == 1, 0.5 * g_a[at], g_a[at]), g_c)
+        g_b[at] = np.where(out, g_c, np.where(side[at] == -1, 0.5 * g_b[at], g_b[at]))
+        a[at] = np.where(out, a[at], step)
+        b[at] = np.where(out, step, b[at])
+        side[at] = np.where(out, 1, -1)
+    return c, closed

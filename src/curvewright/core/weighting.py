@@ -104,13 +104,18 @@ class WeightModel:
             case Weighting.NONE:
                 return np.ones(shape)
             case Weighting.INVERSE_X | Weighting.INVERSE_X2:
-                return np.broadcast_to(k * (r / np.maximum(x, self.lowest_concentration)) ** q, shape)
+                return np.broadcast_to(k * _power(r / np.maximum(x, self.lowest_concentration), q), shape)
             case Weighting.INVERSE_Y | Weighting.INVERSE_Y2:
-                return np.broadcast_to(k * (r / np.maximum(y, self.lowest_response)) ** q, shape)
+                return np.broadcast_to(k * _power(r / np.maximum(y, self.lowest_response), q), shape)
             case Weighting.INVERSE_S2:
                 sd = np.interp(x, self.level_concentration, self.level_sd)
-                return np.broadcast_to(k * (r / sd) ** 2, shape)
+                return np.broadcast_to(k * _power(r / sd, 2), shape)
         raise AssertionError(self.weighting)  # pragma: no cover - every member is matched
+
+
+def _power(ratio: FloatArray, q: int) -> FloatArray:
+    """ratio^q for q = 1 or 2 by plain multiplication, exact to the same bits for every array length."""
+    return ratio if q == 1 else ratio * ratio
 
 
 def make_weights(
@@ -167,7 +172,7 @@ def make_weights(
             power = 2
     reference = float(values.min())
     with np.errstate(under="ignore"):
-        raw = (reference / values) ** power
+        raw = np.ones(n) if power == 0 else _power(reference / values, power)
     if raw.min() < np.finfo(float).tiny:
         i = int(np.argmin(raw))
         raise WeightingError(
