@@ -46,7 +46,12 @@ def test_heteroscedastic_data_get_a_weighted_recommendation() -> None:
     assert result.recommended.model is cw.Model.LINEAR
     assert any("weighting is needed" in r for r in result.reasons)
     labels = {(c.model, c.weighting) for c in result.candidates}
-    assert len(labels) == 12 and not result.skipped
+    # 2 models × 8 weightings; 1/s² from three replicates per level is refused, with the reason
+    assert len(labels) == 14
+    assert {(s.model, s.weighting) for s in result.skipped} == {
+        (cw.Model.LINEAR, cw.Weighting.INVERSE_S2), (cw.Model.QUADRATIC, cw.Weighting.INVERSE_S2)
+    }
+    assert all("fewer than 10" in s.reason for s in result.skipped)
     unweighted = result.candidate("linear", "none")
     assert unweighted.sum_abs_relative_error > result.recommended.sum_abs_relative_error
 

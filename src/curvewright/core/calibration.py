@@ -148,9 +148,7 @@ def fit(
         )
     x.setflags(write=False)
     y.setflags(write=False)
-    weights = make_weights(
-        weighting, x, y, levels, None if response_sd is None else np.asarray(response_sd, dtype=float)
-    )
+    weights = make_weights(weighting, x, y, levels, response_sd, model)
     basis = make_basis(model, x, weights.weights)
     # Values near the ends of double precision overflow here; they are refused by name below.
     with np.errstate(over="ignore", under="ignore", invalid="ignore"):
@@ -174,12 +172,14 @@ def fit(
         r_squared = 1.0 - float(clean @ clean) / sst
     branch, vertex_z, notes = _quadratic_geometry(model, solution.coefficients, basis, x)
     influence = measure_influence(solution.weighted_residuals, solution.leverage, p, root_wy)
-    lack = lack_of_fit_test(clean / np.sqrt(w), w, levels, p)
+    lack = lack_of_fit_test(clean / np.sqrt(w), w, levels, p, weights_from_replicates=weights.from_replicates)
     regression = regression_test(
         solution.coefficients, z_cov, basis.powers, solution.fitted, y, not np.any(clean), df
     )
     if not regression.significant:
         notes = (regression.words,) + notes
+    if weights.variance_fit is not None:
+        notes = notes + (f"weights from a variance function: {weights.variance_fit.function.words}",)
     notes = notes + influence.notes
     z_range = (float(basis.z(x.min())), float(basis.z(x.max())))
     z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)

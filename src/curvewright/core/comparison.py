@@ -6,7 +6,10 @@ of standards failing the acceptance profile, and AICc.
 
 Mandel's fitting test (ISO 8466-1; DIN 38402-51): with s₁, s₂ the residual SDs of the straight line
 and of the quadratic on N standards, DS² = (N − 2)·s₁² − (N − 3)·s₂², PG = DS²/s₂², compared with
-F(1, N − 3) at 99 %. It equals the partial F of the x² term.
+F(1, N − 3) at 99 %. It equals the partial F of the x² term. Under weights estimated from the data
+(a variance function, 1/s² from replicates) each fit has its own weights, and sums of squares under
+different weights do not compare (the test rejected a true line in 5.5 % of simulated runs at a
+nominal 1 %); the quadratic is then refitted with the line's weights for the test.
 
 AICc (Hurvich & Tsai 1989, Biometrika 76:297) from the Gaussian log-likelihood of the weighted fit,
 ln L = −n/2·ln(2π·SSE/n) − n/2 + ½·Σ ln wᵢ (weights summing to n), with k = p + 1 parameters:
@@ -46,7 +49,8 @@ from .calibration import Calibration, fit
 from .distributions import f_quantile, f_upper_tail
 from .errors import CalibrationInputError
 from .levels import group_levels
-from .models import Model
+from .least_squares import solve_weighted
+from .models import Model, make_basis
 from .variance import VarianceEvidence, variance_evidence
 from .weighting import Weighting
 
@@ -242,6 +246,13 @@ def mandel_test(linear: Calibration, quadratic: Calibration) -> MandelTest:
 def _mandel(linear: Calibration, quadratic: Calibration) -> MandelTest:
     n = linear.n_standards
     s1, s2 = linear.residual_sd**2, quadratic.residual_sd**2
+    if linear.weight_model.estimated:
+        # Weights estimated from the data differ between the two fits; the statistic compares sums
+        # of squares, which only means something under one set of weights: the line's.
+        w = linear.weights
+        basis = make_basis(Model.QUADRATIC, linear.concentration, w)
+        same_weights = solve_weighted(basis.design(linear.concentration), linear.response, w)
+        s2 = same_weights.sse / (n - 3)
     ds2 = (n - 2) * s1 - (n - 3) * s2
     pg = ds2 / s2 if s2 > 0 else np.inf
     df = (1, n - 3)

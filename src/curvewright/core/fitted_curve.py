@@ -12,6 +12,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
+from scipy import special
 
 from ._arrays import FloatArray, as_confidence_level, as_whole_count
 from .distributions import t_quantile
@@ -193,15 +194,37 @@ class FittedCurve:
         """Band expected to hold the mean of ``replicates`` new responses: ŷ ± t·√(σ²/(m·w) + SE(ŷ)²).
 
         The weight w of a new response follows the weighting (for 1/y-type weights, evaluated at
-        the predicted response).
+        the predicted response); t is :meth:`band_t`. Inverting this band gives the calibration
+        interval of an unknown.
         """
         m = as_whole_count(replicates, "replicates", CalibrationInputError, "the number of new responses averaged")
-        t = self._t(level)
+        self._t(level)
         x = np.asarray(concentration, dtype=np.float64)
         y = self.predict(x)
         new = self.residual_sd**2 / (m * self.weight_model.weight_at(x, y))
-        half = t * np.sqrt(new + self.curve_sd(x) ** 2)
+        curve = self.curve_sd(x) ** 2
+        half = self.band_t(0.5 + float(level) / 2.0, x, new, curve) * np.sqrt(new + curve)
         return y - half, y + half
+
+    def band_t(
+        self, probability: float, concentration: FloatArray, new_variance: FloatArray, curve_variance: FloatArray
+    ) -> FloatArray:
+        """Student's t quantile for the prediction band at ``concentration``.
+
+        With weights known in form (none, 1/x, 1/y, known SDs…) it is t(probability; n − p). With a
+        variance function estimated from the standards the degrees of freedom are Satterthwaite's,
+        2/(2/(n − p) + (V_new/V)²·var_shape(x)), smaller where the estimated shape is less certain
+        (see :mod:`.variance_function`).
+        """
+        fit = self.weight_model.variance_fit
+        if fit is None:
+            shape = np.broadcast_shapes(np.shape(concentration), np.shape(new_variance), np.shape(curve_variance))
+            return np.full(shape, t_quantile(probability, self.df_residual))
+        total = new_variance + curve_variance
+        with np.errstate(invalid="ignore", divide="ignore"):
+            share = np.where(total > 0, new_variance / total, 0.0)
+        relative = 2.0 / self.df_residual + share**2 * fit.shape_variance(concentration)
+        return special.stdtrit(2.0 / relative, probability)
 
     def _t(self, level: float) -> float:
         value = as_confidence_level(level, CalibrationInputError)

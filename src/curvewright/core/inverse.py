@@ -169,25 +169,28 @@ def quantify(
         raise QuantitationInputError(
             f"interval: {interval!r} is not one of {', '.join(map(repr, INTERVAL_METHODS))}."
         )
-    t = t_quantile(0.5 + level / 2.0, cal.df_residual)
+    probability = 0.5 + level / 2.0
+    t = t_quantile(probability, cal.df_residual)
 
     z_range = tuple(cal.basis.z(np.array(cal.calibrated_range)))
     # Overflow is detected below, per unknown, and refused by name rather than left as inf or NaN.
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
-        at_turning_point = _inside_band_at_vertex(cal, y0, m, t, no_solution)
+        at_turning_point = _inside_band_at_vertex(cal, y0, m, probability, no_solution)
         z_hat = np.where(at_turning_point, cal.vertex_z if cal.vertex_z is not None else np.nan, z_hat)
         no_solution = no_solution & ~at_turning_point
         x_hat = cal.basis.centre + cal.basis.scale * z_hat
         new_var = _new_response_variance(cal, x_hat, y0, m)
         slope = _slope_z(cal, z_hat) / cal.basis.scale
-        se = np.sqrt(new_var + _curve_variance(cal, z_hat)) / np.abs(slope)
+        curve_var = _curve_variance(cal, z_hat)
+        se = np.sqrt(new_var + curve_var) / np.abs(slope)
         flat = slope == 0.0
         past_vertex = np.zeros(y0.size, dtype=bool)
         if interval == "symmetric":
-            lower, upper = x_hat - t * se, x_hat + t * se
+            t_hat = cal.band_t(probability, x_hat, new_var, curve_var)
+            lower, upper = x_hat - t_hat * se, x_hat + t_hat * se
         else:
-            lower, upper, past_vertex = _band_interval(cal, y0, m, t, z_hat, no_solution, se / cal.basis.scale)
+            lower, upper, past_vertex = _band_interval(cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale)
     solved = ~no_solution
     _refuse_unrepresentable(
         y0, solved & (~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | np.isnan(lower) | np.isnan(upper))
@@ -342,29 +345,29 @@ def _new_response_variance(cal: "FittedCurve", x: FloatArray, y0: FloatArray, m:
 
 
 def _band_interval(
-    cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float, z_hat: FloatArray, no_solution: np.ndarray,
-    se_z: FloatArray,
+    cal: "FittedCurve", y0: FloatArray, m: np.ndarray, probability: float, z_hat: FloatArray,
+    no_solution: np.ndarray, guess: FloatArray,
 ) -> tuple[FloatArray, FloatArray, np.ndarray]:
     """Both ends of the calibration interval, in x, and which unknowns' intervals reach past the vertex."""
     closed_form = cal.model is not Model.QUADRATIC and not cal.weighting.uses_concentration
     past_vertex = np.zeros(y0.size, dtype=bool)
     if closed_form:
-        z_lo, z_hi = _fieller_z(cal, y0, m, t)
+        z_lo, z_hi = _fieller_z(cal, y0, m, t_quantile(probability, cal.df_residual))
     else:
-        z_lo, z_hi, past_vertex = _band_edges(cal, y0, m, t, z_hat, no_solution, t * se_z)
+        z_lo, z_hi, past_vertex = _band_edges(cal, y0, m, probability, z_hat, no_solution, guess)
     to_x = lambda z: cal.basis.centre + cal.basis.scale * z  # noqa: E731
     # scale > 0, so the order of the ends survives the change of variable.
     return to_x(z_lo), to_x(z_hi), past_vertex
 
 
 def _inside_band_at_vertex(
-    cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float, no_solution: np.ndarray
+    cal: "FittedCurve", y0: FloatArray, m: np.ndarray, probability: float, no_solution: np.ndarray
 ) -> np.ndarray:
     """Responses beyond a quadratic's extreme that its prediction band still holds at the vertex."""
     if cal.model is not Model.QUADRATIC or cal.vertex_z is None or not no_solution.any():
         return np.zeros(y0.size, dtype=bool)
     at_vertex = np.full(y0.size, cal.vertex_z)
-    return no_solution & (_band_excess(cal, curve_polynomials(cal), y0, m, t, at_vertex) <= 0)
+    return no_solution & (_band_excess(cal, curve_polynomials(cal), y0, m, probability, at_vertex) <= 0)
 
 
 def _fieller_z(cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float) -> tuple[FloatArray, FloatArray]:
@@ -409,7 +412,7 @@ def _band_excess(
     polys: tuple[FloatArray, FloatArray],
     y0: FloatArray,
     m: np.ndarray,
-    t: float,
+    probability: float,
     z: FloatArray,
 ) -> FloatArray:
     """(ȳ₀ − f̂(z))² − t²·(σ²/(m·w) + var f̂(z)); ≤ 0 inside the calibration interval."""
@@ -417,6 +420,7 @@ def _band_excess(
     curve_var = polyval(z, polys[1])
     x = cal.basis.centre + cal.basis.scale * z
     new_var = cal.residual_sd**2 / (m * cal.weight_model.weight_at(x, y0))
+    t = cal.band_t(probability, x, new_var, curve_var)
     return (y0 - fitted) ** 2 - t * t * (new_var + curve_var)
 
 
@@ -424,7 +428,7 @@ def _band_edges(
     cal: "FittedCurve",
     y0: FloatArray,
     m: np.ndarray,
-    t: float,
+    probability: float,
     z_hat: FloatArray,
     no_solution: np.ndarray,
     guess: FloatArray,
@@ -449,13 +453,13 @@ def _band_edges(
         towards_vertex = (cal.vertex_z - start) * direction >= 0
         reach = np.where(towards_vertex, np.abs(cal.vertex_z - start), reach)
     first = np.tile(np.where(np.isfinite(guess) & (guess > 0), guess, 1e-3), 2)
-    offset, closed = _band_crossing(cal, polys, yy, mm, t, start, direction, reach, first)
+    offset, closed = _band_crossing(cal, polys, yy, mm, probability, start, direction, reach, first)
     edge = np.where(closed, start + direction * offset, direction * np.inf)
     onward = towards_vertex & ~closed & ~np.tile(no_solution, 2)
     if onward.any():
         vertex = np.full(int(onward.sum()), float(cal.vertex_z))  # type: ignore[arg-type]
         more, more_closed = _band_crossing(
-            cal, polys, yy[onward], mm[onward], t, vertex, direction[onward],
+            cal, polys, yy[onward], mm[onward], probability, vertex, direction[onward],
             np.full(vertex.size, full_reach), first[onward],
         )
         edge[onward] = np.where(more_closed, vertex + direction[onward] * more, direction[onward] * np.inf)
@@ -468,7 +472,7 @@ def _band_crossing(
     polys: tuple[FloatArray, FloatArray],
     y0: FloatArray,
     m: np.ndarray,
-    t: float,
+    probability: float,
     start: FloatArray,
     direction: FloatArray,
     reach: FloatArray,
@@ -485,7 +489,7 @@ def _band_crossing(
     """
 
     def excess(at: np.ndarray, offset: FloatArray) -> FloatArray:
-        return _band_excess(cal, polys, y0[at], m[at], t, start[at] + direction[at] * offset)
+        return _band_excess(cal, polys, y0[at], m[at], probability, start[at] + direction[at] * offset)
 
     every = np.ones(start.size, dtype=bool)
     b = np.minimum(first, reach)
