@@ -50,6 +50,15 @@ if TYPE_CHECKING:  # pragma: no cover
     from .fitted_curve import FittedCurve
 
 INTERVAL_METHODS = ("band", "symmetric")
+INTERVAL_SCOPE_NOTE = (
+    "This interval covers the calibration and the repeatability of the unknown's replicate measurements "
+    "only; it is not the full measurement uncertainty, which also holds sampling, preparation, recovery, "
+    "matrix effects and between-run variation."
+)
+"""What the calibration interval is, to be shown wherever it is. Measurement uncertainty comprises every
+component (JCGM 100:2008, the GUM, §2.2.3 and §3.3); the Eurachem/CITAC Guide *Quantifying
+Uncertainty in Analytical Measurement* (3rd ed., 2012) lists calibration as one source among several
+(section numbers from memory)."""
 SEARCH_HALF_RANGES = 200.0
 """How far beyond x̂ the band inversion looks for the interval's ends, in spans of the standards
 (measured in the fitting variable z)."""

@@ -13,6 +13,7 @@ from dataclasses import dataclass
 from datetime import datetime, timezone
 
 from .. import CAUTION, __version__
+from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.comparison import compare
 from ..core.errors import CurvewrightError
 from ..core.run_analysis import AnalyteResult, RunResult
@@ -163,7 +164,7 @@ def build_report(result: RunResult, *, generated: datetime | None = None) -> Rep
         blocks.append(standards.select(STANDARD_INFLUENCE_COLUMNS, f"Standards – {name}: influence"))
         blocks.append(Paragraph(f"Samples – {name}: concentrations in {a.analyte.concentration_unit} after dilution; "
                                 f"interval: {interval_words(result)}; reported values rounded to "
-                                f"{run.settings.rounding.description}.", "subheading"))
+                                f"{run.settings.rounding.description}. {INTERVAL_SCOPE_NOTE}", "subheading"))
         blocks.append(samples_table(result).select(SAMPLE_COLUMNS, f"Samples – {name}", where=("Analyte", name)))
     blocks.append(PageBreak())
     blocks.append(audit_table(result))

@@ -20,6 +20,7 @@ from openpyxl.cell import WriteOnlyCell
 from openpyxl.styles import Font
 
 from .. import CAUTION
+from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.run_analysis import RunResult
 from .atomic import atomic_target
 from .audit import file_sha256_streamed
@@ -64,7 +65,8 @@ def _build(tables: list[Table], progress: Progress | None, target) -> None:  # t
         caution = WriteOnlyCell(sheet, value=CAUTION)
         caution.font = bold
         sheet.append([caution])
-        sheet.append([_text_cell(sheet, table.title, bold)])
+        note = [_text_cell(sheet, INTERVAL_SCOPE_NOTE)] if any(c.heading == "Interval" for c in table.columns) else []
+        sheet.append([_text_cell(sheet, table.title, bold)] + note)
         sheet.append([_text_cell(sheet, c.heading, bold) for c in table.columns])
         kinds = [c.kind for c in table.columns]
         for row in table.rows:
