@@ -145,3 +145,15 @@ def test_intervals_widen_where_the_estimated_shape_is_least_certain() -> None:
     t = cal.band_t(0.975, at, new, curve)
     assert t[1] < t[0] and t[1] < t[2]
     assert np.all(t >= cal.band_t(0.975, at, np.zeros(3), np.ones(3)))  # the curve's own part: n − p df
+
+
+def test_power_weights_over_three_decades_survive_a_first_fit_below_zero() -> None:
+    # Invented bioanalytical curve, 1 to 1000 with 5 % CV: the unweighted first cycle dips below zero
+    # at the lowest standard, which the weighted cycles that follow do not.
+    rng = np.random.default_rng(6)
+    x = np.repeat([1.0, 2.0, 5.0, 20.0, 100.0, 250.0, 500.0, 1000.0], 2)
+    y = (0.002 + 0.0125 * x) * (1 + 0.05 * rng.standard_normal(x.size))
+    assert cw.fit(x, y).fitted[0] < 0
+    cal = cw.fit(x, y, "linear", "power")
+    assert np.all(cal.weight_model.variance_fit.fitted_mean > 0)
+    assert 0.7 < cal.weight_model.variance_fit.function.parameter < 1.3

@@ -175,7 +175,7 @@ def estimate_variance_function(kind: str, model: Model, concentration: FloatArra
     """
     weights = np.ones(concentration.size)
     fitted: VarianceFunctionFit | None = None
-    for _ in range(CYCLES):
+    for cycle in range(CYCLES):
         basis = make_basis(model, concentration, weights)
         solution = solve_weighted(basis.design(concentration), response, weights)
         root_w = np.sqrt(weights)
@@ -188,7 +188,7 @@ def estimate_variance_function(kind: str, model: Model, concentration: FloatArra
         mean = solution.fitted
         if kind == "power":
             bad = np.flatnonzero(mean <= ROUNDOFF * float(np.max(np.abs(response))))
-            if bad.size:
+            if bad.size and cycle == CYCLES - 1:
                 i = int(bad[0])
                 raise WeightingError(
                     f"weighting power: the fitted response at standard {i + 1} (concentration "
@@ -196,6 +196,16 @@ def estimate_variance_function(kind: str, model: Model, concentration: FloatArra
                     "fitted response above zero (choose 'two-component', whose constant part covers "
                     "responses near zero)."
                 )
+            if bad.size:
+                # an early, less well weighted fit may dip below zero at the low end; its responses are
+                # held at the smallest positive response of the standards until the weights settle
+                positive = response[response > 0]
+                if not positive.size:
+                    raise WeightingError(
+                        "weighting power: no standard has a response above zero; a power of the mean needs "
+                        "positive responses (choose 'two-component')."
+                    )
+                mean = np.maximum(mean, float(positive.min()))
         scaled = clean**2 / np.maximum(1.0 - solution.leverage, 1e-12)
         floor = float(np.min(np.abs(mean)))
         function = _estimate(kind, scaled, mean)
