@@ -13,7 +13,7 @@ import statsmodels.api as sm
 
 import curvewright as cw
 
-WEIGHTINGS = ["none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2"]
+WEIGHTINGS = ["none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2", "power", "two-component"]
 MODELS = ["linear", "quadratic", "proportional"]
 
 
@@ -25,6 +25,14 @@ def invented_standards(model: str, seed: int = 7) -> tuple[np.ndarray, np.ndarra
     return x, truth * (1 + 0.03 * rng.standard_normal(x.size)) + 0.05 * rng.standard_normal(x.size)
 
 
+def fit(x: np.ndarray, y: np.ndarray, model: str, weighting: str) -> cw.Calibration:
+    """1/s² with the replicate SDs given as known (three replicates are too few to estimate them)."""
+    sd = None
+    if weighting == "1/s^2":
+        sd = np.array([np.std(y[x == v], ddof=1) for v in x])
+    return cw.fit(x, y, model, weighting, response_sd=sd)
+
+
 def design(model: str, x: np.ndarray) -> np.ndarray:
     columns = {"linear": [np.ones_like(x), x], "quadratic": [np.ones_like(x), x, x**2], "proportional": [x]}[model]
     return np.column_stack(columns)
@@ -34,8 +42,8 @@ def design(model: str, x: np.ndarray) -> np.ndarray:
 @pytest.mark.parametrize("model", MODELS)
 def test_fit_and_influence_match_statsmodels(model: str, weighting: str) -> None:
     x, y = invented_standards(model)
-    cal = cw.fit(x, y, model, weighting)
-    w = cal.weights
+    cal = fit(x, y, model, weighting)
+    w = cal.weights  # for the variance functions, the estimated weights of the final cycle
     X = design(model, x)
     reference = sm.WLS(y, X, weights=w).fit()
     offset = 1 if model == "proportional" else 0  # our b0 = 0 is reported but fixed
@@ -44,8 +52,17 @@ def test_fit_and_influence_match_statsmodels(model: str, weighting: str) -> None
     np.testing.assert_allclose(cal.covariance[offset:, offset:], reference.cov_params(), rtol=1e-9, atol=1e-300)
     assert cal.residual_sd == pytest.approx(np.sqrt(reference.scale), rel=1e-12)
     assert cal.df_residual == reference.df_resid
-    assert cal.r_squared == pytest.approx(reference.rsquared, rel=1e-11)
-    assert cal.adjusted_r_squared == pytest.approx(reference.rsquared_adj, rel=1e-11)
+    # R² about the weighted mean for every model; statsmodels reports the uncentred R² for a model
+    # without a constant, so the line through the origin is checked against its centred total.
+    centred = 1 - reference.ssr / reference.centered_tss
+    assert cal.r_squared == pytest.approx(centred, rel=1e-11)
+    assert cal.adjusted_r_squared == pytest.approx(1 - (1 - centred) * (x.size - 1) / reference.df_resid, rel=1e-11)
+    if model != "proportional":
+        assert cal.r_squared == pytest.approx(reference.rsquared, rel=1e-11)
+        assert cal.adjusted_r_squared == pytest.approx(reference.rsquared_adj, rel=1e-11)
+    # the F-test of the regression: every term in x zero together
+    assert cal.regression.f_statistic == pytest.approx(reference.fvalue, rel=1e-9)
+    assert cal.regression.p_value == pytest.approx(reference.f_pvalue, rel=1e-6, abs=1e-300)
 
     whitened = sm.OLS(y * np.sqrt(w), X * np.sqrt(w[:, None])).fit()
     influence = whitened.get_influence()
@@ -57,21 +74,28 @@ def test_fit_and_influence_match_statsmodels(model: str, weighting: str) -> None
 @pytest.mark.parametrize(
     "model, weighting",
     [("linear", "none"), ("linear", "1/x^2"), ("linear", "1/y"), ("quadratic", "none"), ("quadratic", "1/x"),
-     ("proportional", "none"), ("linear", "1/s^2")],
+     ("proportional", "none"), ("linear", "1/s^2"), ("linear", "power"), ("quadratic", "two-component")],
 )
 def test_interval_ends_lie_on_statsmodels_prediction_band(model: str, weighting: str) -> None:
     """At each end of the calibration interval, the 95 % prediction band passes through ȳ0."""
     x, y = invented_standards(model)
-    cal = cw.fit(x, y, model, weighting)
+    cal = fit(x, y, model, weighting)
     y0 = np.array([cal.predict(3.0), cal.predict(12.0)])
     q = cal.quantify(y0)
     reference = sm.WLS(y, design(model, x), weights=cal.weights).fit()
     for k in range(y0.size):
-        for end, column in ((q.lower[k], "obs_ci_upper"), (q.upper[k], "obs_ci_lower")):
+        for end, column, sign in ((q.lower[k], "obs_ci_upper", 1.0), (q.upper[k], "obs_ci_lower", -1.0)):
             exog = design(model, np.array([end]))
             w_new = cal.weight_model.weight_at(np.array([end]), np.array([y0[k]]))
-            band = reference.get_prediction(exog, weights=w_new).summary_frame(alpha=0.05)[column].iloc[0]
-            assert band == pytest.approx(y0[k], rel=1e-9)
+            frame = reference.get_prediction(exog, weights=w_new).summary_frame(alpha=0.05)
+            if not cal.weight_model.estimated:
+                assert frame[column].iloc[0] == pytest.approx(y0[k], rel=1e-9)
+            # statsmodels' pieces (curve SE, residual variance) with the engine's t: with a variance
+            # function estimated from the standards, t has Satterthwaite's degrees of freedom
+            new_var, curve_var = reference.scale / w_new, frame["mean_se"].to_numpy() ** 2
+            t = cal.band_t(0.975, np.array([end]), new_var, curve_var)
+            edge = frame["mean"].iloc[0] + sign * float(t[0] * np.sqrt(new_var + curve_var)[0])
+            assert edge == pytest.approx(y0[k], rel=1e-9)
 
 
 def test_numeric_inversion_matches_fieller_where_both_apply() -> None:
@@ -86,6 +110,7 @@ def test_numeric_inversion_matches_fieller_where_both_apply() -> None:
     z_hat, no_solution, _ = inverse.solve_z(cal.model, cal.z_coefficients, 0, (-1.0, 1.0), y0)
     closed = inverse._fieller_z(cal, y0, m, t)
     guess = np.full(y0.size, 0.05)  # a deliberately rough starting half-width, in z units
-    lower, upper = inverse._band_edges(cal, y0, m, t, z_hat, no_solution, guess)
+    lower, upper, past_vertex = inverse._band_edges(cal, y0, m, 0.975, z_hat, no_solution, guess)
+    assert not past_vertex.any()
     np.testing.assert_allclose(lower, closed[0], rtol=1e-12, atol=1e-13)
     np.testing.assert_allclose(upper, closed[1], rtol=1e-12, atol=1e-13)

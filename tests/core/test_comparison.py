@@ -46,7 +46,12 @@ def test_heteroscedastic_data_get_a_weighted_recommendation() -> None:
     assert result.recommended.model is cw.Model.LINEAR
     assert any("weighting is needed" in r for r in result.reasons)
     labels = {(c.model, c.weighting) for c in result.candidates}
-    assert len(labels) == 12 and not result.skipped
+    # 2 models × 8 weightings; 1/s² from three replicates per level is refused, with the reason
+    assert len(labels) == 14
+    assert {(s.model, s.weighting) for s in result.skipped} == {
+        (cw.Model.LINEAR, cw.Weighting.INVERSE_S2), (cw.Model.QUADRATIC, cw.Weighting.INVERSE_S2)
+    }
+    assert all("fewer than 10" in s.reason for s in result.skipped)
     unweighted = result.candidate("linear", "none")
     assert unweighted.sum_abs_relative_error > result.recommended.sum_abs_relative_error
 
@@ -105,3 +110,88 @@ def test_bartlett_and_brown_forsythe_match_scipy() -> None:
     w, p = brown_forsythe_statistic(*groups)
     ref = stats.levene(*groups, center="median")
     assert (w, p) == pytest.approx((ref.statistic, ref.pvalue), rel=1e-12)
+
+
+def test_the_line_through_the_origin_is_not_made_to_look_better_than_a_needed_intercept() -> None:
+    # Invented standards on y = 10 + 5x over a narrow range far from zero: the intercept is about
+    # 10 ± 0.8, plainly needed. Against the uncentred total Σy² the proportional model's R² came out
+    # above the line's; measured about the mean response, like the other models, it falls below.
+    rng = np.random.default_rng(2)
+    x = np.repeat([40.0, 45.0, 50.0, 55.0, 60.0], 2)
+    y = 10 + 5 * x + 0.3 * rng.standard_normal(x.size)
+    result = cw.compare(x, y, weightings=("none",), include_proportional=True)
+    line, origin = result.candidate("linear", "none"), result.candidate("proportional", "none")
+    assert line.calibration.coefficients[0] == pytest.approx(10, abs=1)
+    assert line.calibration.standard_errors[0] == pytest.approx(0.8, abs=0.2)
+    assert origin.adjusted_r_squared < line.adjusted_r_squared
+    assert origin.calibration.r_squared == pytest.approx(
+        1 - origin.calibration.sse / np.sum((y - y.mean()) ** 2), rel=1e-12
+    )
+    assert any("R² is taken about the mean response for every model" in r for r in result.reasons)
+    assert result.notes and "does not compare weightings" in result.notes[0]
+
+
+DUPLICATES = np.repeat([2.0, 5.0, 10.0, 20.0, 50.0, 100.0], 2)
+
+
+def recommended_weighting_rate(sd, runs: int) -> float:  # type: ignore[no-untyped-def]
+    """Fraction of invented calibrations (6 levels from 2 to 100, duplicates) given a weighted recommendation."""
+    rng = np.random.default_rng(20260515)
+    weighted = 0
+    for _ in range(runs):
+        y = 0.5 + 1.2 * DUPLICATES + sd(DUPLICATES) * rng.standard_normal(DUPLICATES.size)
+        result = cw.compare(DUPLICATES, y)
+        weighted += result.recommended.weighting is not cw.Weighting.NONE
+        assert not any("constant within the evidence" in reason for reason in result.reasons)
+    return weighted / runs
+
+
+@pytest.mark.slow
+def test_a_true_five_percent_cv_gets_a_weighted_recommendation() -> None:
+    # Target: weighted in at least 90 % of calibrations when the SD is 5 % of the response.
+    rate = recommended_weighting_rate(lambda x: 0.05 * (0.5 + 1.2 * x), runs=200)
+    assert rate >= 0.90, f"weighted in {rate:.3f} of calibrations"
+
+
+@pytest.mark.slow
+def test_a_constant_sd_stays_unweighted() -> None:
+    # Target: unweighted in at least 90 % of calibrations when the SD is the same at every level.
+    rate = recommended_weighting_rate(lambda x: 0.6 + 0 * x, runs=200)
+    assert 1 - rate >= 0.90, f"unweighted in {1 - rate:.3f} of calibrations"
+
+
+def test_a_weak_variance_test_is_worded_as_weak() -> None:
+    # Invented duplicates whose scatter happens not to show its growth: the summary must not claim a
+    # constant scatter, and says what the interval for θ still allows.
+    y = 0.5 + 1.2 * DUPLICATES + np.array([0.3, -0.3, 0.4, -0.4, -0.5, 0.5, 0.6, -0.6, 0.5, -0.5, 0.7, -0.7])
+    result = cw.compare(DUPLICATES, y)
+    evidence = result.variance
+    assert evidence.heteroscedastic is False and evidence.pooled.available
+    assert "does not show the scatter to be constant" in evidence.summary
+    assert "the test has little power" in evidence.summary
+    assert result.recommended.weighting is cw.Weighting.NONE
+    assert any("not proof of a constant scatter" in reason for reason in result.reasons)
+
+
+def test_the_pooled_variance_function_matches_its_likelihood() -> None:
+    # The maximum-likelihood θ of SD ∝ mean^θ from pure-error sums of squares, against a direct
+    # numerical maximisation with scipy.optimize of the same χ² likelihood.
+    from scipy import optimize, stats
+
+    rng = np.random.default_rng(30)
+    y = (0.5 + 1.2 * DUPLICATES) * (1 + 0.05 * rng.standard_normal(DUPLICATES.size))
+    evidence = cw.compare(DUPLICATES, y).variance
+    levels = np.unique(DUPLICATES)
+    ss = np.array([np.sum((y[DUPLICATES == v] - y[DUPLICATES == v].mean()) ** 2) for v in levels])
+    mu = np.array([y[DUPLICATES == v].mean() for v in levels])
+
+    def minus_log_likelihood(params: np.ndarray) -> float:
+        log_s2, theta = params
+        var = np.exp(log_s2) * mu ** (2 * theta)
+        return -float(np.sum(stats.chi2.logpdf(ss / var, 1) - np.log(var)))
+
+    best = optimize.minimize(minus_log_likelihood, [np.log(np.mean(ss)), 0.5], method="Nelder-Mead",
+                             options={"xatol": 1e-10, "fatol": 1e-12, "maxiter": 20000})
+    assert evidence.sd_power == pytest.approx(best.x[1], abs=1e-5)
+    null = optimize.minimize_scalar(lambda v: minus_log_likelihood(np.array([v, 0.0])))
+    assert evidence.pooled.statistic == pytest.approx(2 * (null.fun - best.fun), rel=1e-6)

@@ -74,3 +74,72 @@ def test_quadratic_forced_to_minus_zero_curvature_still_quantifies(monkeypatch) 
         q = cal.quantify([50.0])
     assert np.all(np.isfinite(cal.back_calculated))
     assert q.estimate[0] == pytest.approx(16.0, rel=1e-9)
+
+
+def test_a_flat_response_is_not_a_perfect_fit() -> None:
+    # Every standard gives the same response: nothing changes with concentration.
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        cal = cw.fit([1, 2, 3, 4], [5, 5, 5, 5])
+    assert cal.r_squared == 0.0
+    assert cal.regression.f_statistic == 0.0 and cal.regression.p_value == 1.0 and not cal.regression.significant
+    with pytest.raises(cw.QuantitationInputError, match="the fitted response is the same at every standard"):
+        cal.quantify([5.0])
+    with pytest.raises(cw.LimitsError, match="does not change"):
+        cal.limits()
+    assert not any(cal.influence_flags)
+
+
+def test_exact_standards_on_a_line_are_a_perfect_fit() -> None:
+    x = np.array([1, 2, 4, 8, 16.0])
+    cal = cw.fit(x, 2 + 3 * x)
+    assert cal.residual_sd == 0.0 and cal.r_squared == 1.0
+    assert cal.regression.significant and cal.regression.p_value == 0.0
+    q = cal.quantify([14.0])
+    assert q.estimate[0] == pytest.approx(4.0, rel=1e-14) and q.lower[0] == q.upper[0] == q.estimate[0]
+
+
+def test_comparing_all_zero_responses_warns_of_nothing_and_says_why() -> None:
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        result = cw.compare([1, 1, 2, 2, 3, 3], [0, 0, 0, 0, 0, 0.0])
+    assert any("does not change" in reason for reason in result.reasons)
+    assert all(not c.calibration.regression.significant for c in result.candidates)
+
+
+def test_a_weak_but_real_slope_still_quantifies() -> None:
+    # slope t ≈ 3 on 4 df: significant at 5 %, so the calibration is used (with a wide interval)
+    x = np.array([1, 2, 3, 4, 5, 6.0])
+    y = 10 + 0.2 * x + np.array([0.1, -0.15, 0.05, 0.12, -0.1, -0.02])
+    cal = cw.fit(x, y)
+    assert cal.regression.significant
+    assert np.isfinite(cal.quantify([10.7]).estimate[0])
+
+
+def test_unknowns_at_the_top_standard_near_the_vertex_always_get_a_result() -> None:
+    # Invented detector saturating just above the top standard: y = 2x − 0.1x², vertex at 10, top
+    # standard 9.5. Noise puts about a third of the top standard's responses above the fitted curve's
+    # highest value; the prediction band still holds almost all of them.
+    rng = np.random.default_rng(11)
+    x = np.repeat([1, 2, 4, 6, 8, 9.5], 2)
+    curve = lambda c: 2 * c - 0.1 * c**2  # noqa: E731
+    grid = np.linspace(1.0, 9.5, 400)
+    covered = results = turning = 0
+    for _ in range(150):
+        cal = cw.fit(x, curve(x) + 0.05 * rng.standard_normal(x.size), "quadratic")
+        y0 = curve(9.5) + 0.05 * rng.standard_normal(4)
+        q = cal.quantify(y0)
+        low_band, high_band = cal.prediction_band(grid)
+        for i in range(y0.size):
+            if cw.QuantFlag.NO_SOLUTION in q.flags[i]:
+                # only a response outside the prediction band over the whole range has no result
+                assert not np.any((low_band <= y0[i]) & (y0[i] <= high_band))
+                continue
+            results += 1
+            covered += q.lower[i] <= 9.5 <= q.upper[i]
+            if y0[i] > cal.predict(cal.vertex):
+                assert cw.QuantFlag.TURNING_POINT in q.flags[i] and q.estimate[i] == pytest.approx(cal.vertex)
+                turning += 1
+            assert np.isfinite(q.lower[i]) and np.isfinite(q.upper[i])
+    assert results >= 0.97 * 600 and turning >= 100
+    assert covered / results >= 0.93

@@ -55,22 +55,71 @@ def test_unknown_limits_method() -> None:
         cw.fit([1, 2, 4], [1, 2, 4.1]).limits("signal_to_noise")
 
 
-def test_levels_group_standards_made_up_by_mass() -> None:
-    levels = group_levels(np.array([0.0, 0.0, 1.002, 0.999, 1.0, 5.01, 4.99, 10.0]))
-    assert levels.n_levels == 4
+def test_levels_group_standards_made_up_by_mass_only_within_a_tolerance_given() -> None:
+    x = np.array([0.0, 0.0, 1.002, 0.999, 1.0, 5.01, 4.99, 10.0])
+    levels = group_levels(x, 0.005)
+    assert levels.n_levels == 4 and not levels.exact
     assert levels.count.tolist() == [2, 3, 2, 1]
     assert levels.concentration[1] == pytest.approx(1.000333, rel=1e-5)
+    # without a tolerance every distinct nominal concentration is its own level
+    exact = group_levels(x)
+    assert exact.n_levels == 7 and exact.exact
 
 
 def test_exact_levels_only_with_zero_tolerance() -> None:
     assert group_levels(np.array([1.0, 1.001, 1.0]), 0.0).n_levels == 2
+    assert group_levels(np.array([1.0, 1.001, 1.0])).n_levels == 2
+
+
+def test_level_labels_group_standards_and_unlabelled_ones_go_by_concentration() -> None:
+    x = np.array([1.002, 0.998, 2.003, 1.996, 5.0, 5.0, 10.0])
+    levels = group_levels(x, labels=["L1", "L1", "L2", "L2", "", "", " "])
+    assert levels.n_levels == 4 and levels.count.tolist() == [2, 2, 2, 1]
+    assert levels.index.tolist() == [0, 0, 1, 1, 2, 2, 3]
+    with pytest.raises(cw.CalibrationInputError, match="level labels: 2 labels given for 7 standards"):
+        group_levels(x, labels=["L1", "L2"])
 
 
 def test_inexact_replicates_still_give_lack_of_fit() -> None:
     x = [1.001, 0.998, 2.003, 1.996, 5.0, 5.02, 10.01, 9.98]
     y = [1.02, 0.99, 2.03, 1.98, 5.1, 5.0, 9.9, 10.1]
-    lof = cw.fit(x, y).lack_of_fit
-    assert lof.available and lof.df_pure_error == 4 and lof.df_lack_of_fit == 2
+    for grouping in ({"level_tolerance": 0.005}, {"level_labels": ["a", "a", "b", "b", "c", "c", "d", "d"]}):
+        lof = cw.fit(x, y, **grouping).lack_of_fit
+        assert lof.available and lof.df_pure_error == 4 and lof.df_lack_of_fit == 2
+
+
+def test_pure_error_of_inexact_replicates_is_taken_about_the_curve() -> None:
+    # Invented standards made up by mass: 6 levels × 3, each within ±0.2 % of its nominal value, on a
+    # steep line with little scatter. About the level means the pure error would hold slope × Δx.
+    rng = np.random.default_rng(12)
+    nominal = np.repeat([1.0, 2.0, 5.0, 10.0, 20.0, 50.0], 3)
+    labels = [f"L{int(v)}" for v in nominal]
+    p_values, rejected, runs = [], 0, 400
+    for _ in range(runs):
+        x = nominal * (1 + 0.002 * rng.uniform(-1, 1, nominal.size))
+        y = 2.0 + 100.0 * x + 0.5 * rng.standard_normal(x.size)
+        cal = cw.fit(x, y, level_labels=labels)
+        lof = cal.lack_of_fit
+        assert lof.ss_pure_error <= cal.sse * (1 + 1e-12)
+        assert lof.ss_pure_error + lof.ss_lack_of_fit == pytest.approx(cal.sse, rel=1e-9)
+        p_values.append(lof.p_value)
+        rejected += lof.p_value < 0.05
+        tolerant = cw.fit(x, y, level_tolerance=0.005).lack_of_fit
+        assert tolerant.p_value == pytest.approx(lof.p_value, rel=1e-9)
+    # the true curve is a straight line: F follows F(4, 12) closely and p is spread over (0, 1)
+    assert sum(p == 1.0 for p in p_values) == 0
+    assert 0.02 <= rejected / runs <= 0.08
+
+
+def test_distinct_concentrations_are_never_refused() -> None:
+    # Twelve standards at 1e6 + 0…10 (invented): eleven distinct concentrations.
+    x = 1e6 + np.array([0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 10.0])
+    y = 3.0 + 0.5 * (x - 1e6) + np.array([0.01, -0.02, 0.0, 0.02, -0.01, 0.01, -0.02, 0.02, 0.0, -0.01, 0.01, -0.01])
+    for grouping in ({}, {"level_tolerance": 0.005}):
+        cal = cw.fit(x, y, **grouping)
+        assert cal.coefficients[1] == pytest.approx(0.5, rel=1e-3)
+    assert cw.fit(x, y, level_tolerance=0.005).levels.n_levels == 1
+    assert "no level is spare" in cw.fit(x, y, level_tolerance=0.005).lack_of_fit.reason
 
 
 def test_distribution_functions_match_scipy_stats() -> None:

@@ -116,3 +116,32 @@ def test_rounding_rule_refuses_nonsense() -> None:
         RoundingRule("significant", 0)
     with pytest.raises(RoundingError, match="tie-break"):
         RoundingRule("decimals", 2, "bankers")
+
+
+def test_standards_are_grouped_by_their_level_labels() -> None:
+    # Invented standards made up by mass: the replicates of each level differ by about 1 %, more than
+    # any tolerance would join, but the analyst's labels say which standards belong together.
+    xs = [(1.0, 1.01), (2.0, 2.02), (5.0, 4.95), (10.0, 10.1), (20.0, 19.8)]
+    standards = tuple(
+        Standard(f"S{i}{r}", x, Reading.of(2 + 3 * x + (0.02 if r else -0.02)), r + 1, level=f"L{i + 1}")
+        for i, pair in enumerate(xs) for r, x in enumerate(pair)
+    )
+    run = Run("invented", (Analyte("copper", "µg/L", "counts", standards),), (), RunSettings())
+    cal = analyse_run(run).analytes[0].calibration
+    assert cal.levels.n_levels == 5 and cal.levels.count.tolist() == [2] * 5
+    assert cal.lack_of_fit.available and cal.lack_of_fit.df_pure_error == 5
+
+
+def test_a_flat_calibration_reports_every_sample_as_not_quantified_with_the_reason() -> None:
+    # Invented standards whose response does not change with concentration (a detector left off).
+    standards = tuple(
+        Standard(f"S{i}", x, Reading.of(r)) for i, (x, r) in enumerate(zip([1.0, 2.0, 4.0, 8.0, 16.0], [5.1, 4.9, 5.0, 5.2, 4.8]))
+    )
+    samples = (Sample("U1", SampleKind.UNKNOWN, 1, 1.0, (Measurement("copper", 1, Reading.of(5.0)),)),)
+    result = analyse_run(Run("invented", (Analyte("copper", "µg/L", "counts", standards),), samples, RunSettings()))
+    a = result.analytes[0]
+    assert a.calibration is not None and not a.calibration.regression.significant
+    (u1,) = a.samples
+    assert u1.reported is None and u1.flags is None
+    assert u1.note.startswith("not quantified: calibration: the response does not change significantly")
+    assert a.limits is None and "no limit can be computed" in a.limits_note

@@ -13,7 +13,7 @@ from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtGui import QBrush, QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QLabel, QVBoxLayout, QWidget
 
-from ..core.inverse import QuantFlag
+from ..core.inverse import INTERVAL_SCOPE_NOTE, QuantFlag
 from ..core.reporting import ReportStatus
 from ..core.run_analysis import AnalyteResult, RunResult, SampleResult
 from ..io.result_tables import display_number, interval_text
@@ -53,6 +53,8 @@ class ResultsModel(QAbstractTableModel):
         return 0 if parent.isValid() else len(COLUMNS)
 
     def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole):  # noqa: N802
+        if role == Qt.ItemDataRole.ToolTipRole and orientation == Qt.Orientation.Horizontal and section == INTERVAL:
+            return INTERVAL_SCOPE_NOTE
         if role != Qt.ItemDataRole.DisplayRole:
             return None
         if orientation == Qt.Orientation.Vertical:

@@ -40,3 +40,25 @@ def as_finite_vector(
             + (f" ({bad.size} such values in all)." if bad.size > 1 else ".")
         )
     return array
+
+
+def as_confidence_level(level: object, error: type[CurvewrightError]) -> float:
+    """Check a confidence level (0.95 = 95 %): a number strictly between 0 and 1, never text or a bool."""
+    if isinstance(level, (bool, np.bool_)) or not isinstance(level, (int, float, np.integer, np.floating)):
+        raise error(
+            f"confidence level: {level!r} is not a number; give a fraction between 0 and 1 such as 0.95."
+        )
+    value = float(level)
+    if not (0.0 < value < 1.0):
+        raise error(f"confidence level: {level!r} must lie between 0 and 1 (e.g. 0.95).")
+    return value
+
+
+def as_whole_count(value: object, field: str, error: type[CurvewrightError], what: str) -> int:
+    """Check a count such as a number of replicates: a whole number of at least 1."""
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, float, np.integer, np.floating)):
+        raise error(f"{field}: {value!r} is not a number; {what} is a whole number of at least 1.")
+    number = float(value)
+    if not (np.isfinite(number) and number >= 1 and number == round(number)):
+        raise error(f"{field}: {value!r}; {what} is a whole number of at least 1.")
+    return int(number)

@@ -28,7 +28,7 @@ from .errors import ProfileError
 from .levels import group_levels
 
 if TYPE_CHECKING:  # pragma: no cover
-    from .calibration import Calibration
+    from .fitted_curve import FittedCurve
 
 PROFILE_FORMAT = "curvewright-acceptance-profile/1"
 _BOUNDARY = 1e-9
@@ -217,7 +217,7 @@ class AcceptanceProfile:
         }
 
     # --- judging --------------------------------------------------------------------------------
-    def evaluate(self, cal: "Calibration", excluded: int = 0, unusable: int = 0) -> AcceptanceVerdict:
+    def evaluate(self, cal: "FittedCurve", excluded: int = 0, unusable: int = 0) -> AcceptanceVerdict:
         """Judge the back-calculated standards of ``cal``.
 
         ``excluded`` is the number of non-zero standards the analyst excluded from this fit (they

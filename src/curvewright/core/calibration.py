@@ -7,190 +7,33 @@ answers everything the plot, the tables, the command line and the workbook need.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
-from typing import TYPE_CHECKING
+from collections.abc import Sequence
+from dataclasses import dataclass
 
 import numpy as np
 
 from ._arrays import FloatArray, as_finite_vector, frozen
-from .distributions import t_quantile
+from .acceptance import AcceptanceProfile, AcceptanceVerdict
 from .errors import CalibrationInputError
-from .influence import Influence, InfluenceFlag, measure_influence
+from .fitted_curve import FittedCurve
+from .influence import measure_influence
 from .inverse import Quantitation, quantify, solve_z
-from .lack_of_fit import LackOfFit, lack_of_fit_test
-from .least_squares import solve_weighted
-from .levels import DEFAULT_LEVEL_TOLERANCE, Levels, group_levels
+from .lack_of_fit import lack_of_fit_test
+from .least_squares import ROUNDOFF, solve_weighted, without_roundoff
+from .levels import Levels, group_levels
 from .models import Basis, Model, make_basis
-from .weighting import WeightModel, Weighting, make_weights
-
-if TYPE_CHECKING:  # pragma: no cover
-    from .acceptance import AcceptanceProfile, AcceptanceVerdict
-    from .limits import DetectionLimits
+from .regression_test import regression_test
+from .limits import DetectionLimits, detection_limits
+from .weighting import Weighting, make_weights
 
 
 @dataclass(frozen=True, eq=False)
-class Calibration:
-    """A fitted calibration curve. Immutable: every array is read-only.
+class Calibration(FittedCurve):
+    """A fitted calibration curve that answers questions about unknowns, limits and acceptance.
 
-    Units: concentrations in the standards' concentration unit, responses in the instrument's
-    response unit; ``relative_error`` in percent. Arrays named per standard have shape (n,), in
-    the order the standards were given.
-
-    Attributes
-    ----------
-    coefficients : array of shape (degree + 1,)
-        b0, b1[, b2] in ascending powers of x. The proportional model reports b0 = 0 (fixed).
-    covariance, standard_errors
-        Covariance matrix and standard errors of ``coefficients`` (zero for a fixed b0).
-    residual_sd : float
-        s = √(Σwᵢ(yᵢ − ŷᵢ)²/(n − p)), in response units because the weights sum to n.
-    df_residual : int
-        n − p.
-    r_squared, adjusted_r_squared : float
-        1 − SSE/SST with SST = Σwᵢ(yᵢ − ȳ_w)², adjusted by (n − 1)/(n − p). Without an intercept
-        (proportional model) SST = Σwᵢyᵢ² and the adjustment is n/(n − p), as is customary for
-        regression through the origin.
-    leverage, studentized_residuals, cooks_distance
-        Influence of each standard (see :mod:`.influence`); ``influence_flags`` names what stands out.
-    back_calculated, relative_error
-        Each standard read back through the curve, and 100·(found − nominal)/nominal. A
-        zero-concentration standard has no relative error (NaN; see ``relative_error_note``).
-    lack_of_fit : LackOfFit
-        The pure-error F-test, or the reason it could not be made.
+    Every number is a field of :class:`~curvewright.core.fitted_curve.FittedCurve` (see there for
+    the attributes and their units); this class adds the questions as methods.
     """
-
-    model: Model
-    weighting: Weighting
-    concentration: FloatArray
-    response: FloatArray
-    levels: Levels
-    weight_model: WeightModel
-    basis: Basis
-    z_coefficients: FloatArray
-    z_covariance: FloatArray
-    coefficients: FloatArray
-    covariance: FloatArray
-    standard_errors: FloatArray
-    residual_sd: float
-    df_residual: int
-    r_squared: float
-    adjusted_r_squared: float
-    fitted: FloatArray
-    residuals: FloatArray
-    influence: Influence
-    lack_of_fit: LackOfFit
-    back_calculated: FloatArray
-    relative_error: FloatArray
-    quadratic_branch: int = 0
-    vertex_z: float | None = None
-    notes: tuple[str, ...] = field(default=())
-
-    # --- plain views of the result --------------------------------------------------------------
-    @property
-    def n_standards(self) -> int:
-        return int(self.concentration.size)
-
-    @property
-    def n_parameters(self) -> int:
-        return self.model.n_parameters
-
-    @property
-    def weights(self) -> FloatArray:
-        """Weights of the standards, scaled so that they sum to n."""
-        return self.weight_model.weights
-
-    @property
-    def leverage(self) -> FloatArray:
-        return self.influence.leverage
-
-    @property
-    def studentized_residuals(self) -> FloatArray:
-        """Externally studentized (deleted) residuals; NaN only where leverage is 1 (flagged)."""
-        return self.influence.studentized_residuals
-
-    @property
-    def cooks_distance(self) -> FloatArray:
-        """Cook's distance; NaN only where leverage is 1 (flagged ``DETERMINES_FIT``)."""
-        return self.influence.cooks_distance
-
-    @property
-    def influence_flags(self) -> tuple[tuple[InfluenceFlag, ...], ...]:
-        return self.influence.flags
-
-    @property
-    def calibrated_range(self) -> tuple[float, float]:
-        """Lowest and highest standard concentration."""
-        return float(self.concentration.min()), float(self.concentration.max())
-
-    @property
-    def vertex(self) -> float | None:
-        """Concentration at which a quadratic turns over (None for a straight line)."""
-        if self.vertex_z is None:
-            return None
-        return self.basis.centre + self.basis.scale * self.vertex_z
-
-    @property
-    def sum_abs_relative_error(self) -> float:
-        """Σ|%RE| over the standards with non-zero nominal concentration (and a solution)."""
-        values = self.relative_error[np.isfinite(self.relative_error)]
-        return float(np.sum(np.abs(values)))
-
-    @property
-    def relative_error_note(self) -> str | None:
-        zero = int(np.count_nonzero(self.concentration == 0))
-        if zero:
-            return f"{zero} standard(s) of zero nominal concentration have no relative error"
-        return None
-
-    @property
-    def sse(self) -> float:
-        """Weighted residual sum of squares Σwᵢ(yᵢ − ŷᵢ)²."""
-        return float(self.residual_sd**2 * self.df_residual)
-
-    def equation(self, digits: int = 10) -> str:
-        """The curve as text, coefficients to ``digits`` significant figures."""
-        names = ("", "·x", "·x²")
-        terms = []
-        for power, b in enumerate(self.coefficients):
-            if self.model is Model.PROPORTIONAL and power == 0:
-                continue
-            text = f"{abs(b):.{digits}g}{names[power]}"
-            terms.append((b < 0, text))
-        out = ("−" if terms[0][0] else "") + terms[0][1]
-        for negative, text in terms[1:]:
-            out += (" − " if negative else " + ") + text
-        return "y = " + out
-
-    # --- questions ------------------------------------------------------------------------------
-    def predict(self, concentration: object) -> FloatArray:
-        """Response the curve gives at ``concentration`` (array-like, any shape)."""
-        x = np.asarray(concentration, dtype=np.float64)
-        return self.basis.design(x) @ self.z_coefficients
-
-    def curve_sd(self, concentration: object) -> FloatArray:
-        """Standard error of the fitted curve (the mean response) at ``concentration``."""
-        phi = self.basis.design(np.asarray(concentration, dtype=np.float64))
-        return np.sqrt(np.einsum("...i,ij,...j->...", phi, self.z_covariance, phi))
-
-    def confidence_band(self, concentration: object, level: float = 0.95) -> tuple[FloatArray, FloatArray]:
-        """Lower and upper confidence band of the curve: ŷ ± t·SE(ŷ)."""
-        y = self.predict(concentration)
-        half = self._t(level) * self.curve_sd(concentration)
-        return y - half, y + half
-
-    def prediction_band(
-        self, concentration: object, level: float = 0.95, replicates: int = 1
-    ) -> tuple[FloatArray, FloatArray]:
-        """Band expected to hold the mean of ``replicates`` new responses: ŷ ± t·√(σ²/(m·w) + SE(ŷ)²).
-
-        The weight w of a new response follows the weighting (for 1/y-type weights, evaluated at
-        the predicted response).
-        """
-        x = np.asarray(concentration, dtype=np.float64)
-        y = self.predict(x)
-        new = self.residual_sd**2 / (replicates * self.weight_model.weight_at(x, y))
-        half = self._t(level) * np.sqrt(new + self.curve_sd(x) ** 2)
-        return y - half, y + half
 
     def quantify(
         self,
@@ -198,7 +41,7 @@ class Calibration:
         replicates: object = 1,
         level: float = 0.95,
         interval: str = "band",
-        limits: "DetectionLimits | None" = None,
+        limits: DetectionLimits | None = None,
     ) -> Quantitation:
         """Concentrations of unknowns from their mean responses, with intervals and flags.
 
@@ -220,20 +63,13 @@ class Calibration:
         """
         return quantify(self, mean_response, replicates, level, interval, limits)
 
-    def limits(self, method: str = "residual_sd", **options: object) -> "DetectionLimits":
+    def limits(self, method: str = "residual_sd", **options: object) -> DetectionLimits:
         """Detection and quantitation limits; see :func:`curvewright.core.limits.detection_limits`."""
-        from .limits import detection_limits
-
         return detection_limits(self, method, **options)  # type: ignore[arg-type]
 
-    def evaluate(self, profile: "AcceptanceProfile", excluded: int = 0, unusable: int = 0) -> "AcceptanceVerdict":
+    def evaluate(self, profile: AcceptanceProfile, excluded: int = 0, unusable: int = 0) -> AcceptanceVerdict:
         """Judge the back-calculated standards against an acceptance ``profile``."""
         return profile.evaluate(self, excluded=excluded, unusable=unusable)
-
-    def _t(self, level: float) -> float:
-        if not (0.0 < level < 1.0):
-            raise CalibrationInputError(f"confidence level: {level!r} must lie between 0 and 1 (e.g. 0.95).")
-        return t_quantile(0.5 + level / 2.0, self.df_residual)
 
 
 def fit(
@@ -243,7 +79,8 @@ def fit(
     weighting: Weighting | str = "none",
     *,
     response_sd: object | None = None,
-    level_tolerance: float = DEFAULT_LEVEL_TOLERANCE,
+    level_tolerance: float | None = None,
+    level_labels: Sequence[str] | None = None,
     levels: Levels | None = None,
 ) -> Calibration:
     """Fit a calibration curve to standards.
@@ -251,8 +88,9 @@ def fit(
     Parameters
     ----------
     concentration : array-like of shape (n,)
-        Nominal concentration of each standard. Replicates are repeated concentrations; values
-        within ``level_tolerance`` (relative) form one level.
+        Nominal concentration of each standard. Replicates are standards of equal nominal
+        concentration, or of the same ``level_labels`` entry, or (only when ``level_tolerance`` is
+        given) within that relative tolerance of each other (see :mod:`.levels`).
     response : array-like of shape (n,)
         Instrument response of each standard.
     model : {"linear", "quadratic", "proportional"}
@@ -262,7 +100,11 @@ def fit(
         :mod:`.weighting`). 1/x-type weights refuse concentrations ≤ 0, 1/y-type responses ≤ 0, and
         1/s² needs ≥ 2 replicates at every level unless ``response_sd`` is given.
     response_sd : array-like of shape (n,), optional
-        Known response SDs for 1/s² weighting.
+        Known response SDs for 1/s² weighting (refused with any other weighting, which would ignore them).
+    level_tolerance : float, optional
+        Relative tolerance (0.005 = 0.5 %) within which nominal concentrations count as one level.
+    level_labels : sequence of str, optional
+        The level label of each standard ("" for none); standards sharing a label form one level.
     levels : Levels, optional
         The grouping of these concentrations from :func:`~curvewright.core.levels.group_levels`,
         for callers that fit the same standards many times (it must belong to ``concentration``).
@@ -285,15 +127,18 @@ def fit(
     if x.size == 0:
         raise CalibrationInputError("standards: none given; a calibration needs standards.")
     if levels is None or levels.index.size != x.size:
-        levels = group_levels(x, level_tolerance)
-    if levels.n_levels == 1:
+        levels = group_levels(x, level_tolerance, level_labels)
+    # Whether the curve can be fixed depends on the distinct concentrations, never on how they are
+    # grouped into levels: 1e6 + 0…10 are eleven concentrations even if a tolerance makes one level.
+    distinct = int(np.unique(x).size)
+    if distinct == 1:
         raise CalibrationInputError(
-            f"concentration: all {x.size} standards are at {levels.concentration[0]:g}; a curve needs "
+            f"concentration: all {x.size} standards are at {x[0]:g}; a curve needs "
             "standards at different concentrations."
         )
-    if levels.n_levels < p:
+    if distinct < p:
         raise CalibrationInputError(
-            f"standards: {levels.n_levels} concentration levels cannot fix the {p} parameters of the "
+            f"standards: {distinct} concentration levels cannot fix the {p} parameters of the "
             f"{model.description}; add levels or choose a simpler model."
         )
     if x.size <= p:
@@ -303,28 +148,39 @@ def fit(
         )
     x.setflags(write=False)
     y.setflags(write=False)
-    weights = make_weights(
-        weighting, x, y, levels, None if response_sd is None else np.asarray(response_sd, dtype=float)
-    )
-    basis = make_basis(model, x)
-    solution = solve_weighted(basis.design(x), y, weights.weights)
-    df = x.size - p
-    residual_sd = float(np.sqrt(solution.sse / df))
-    z_cov = residual_sd**2 * solution.unscaled_covariance
-    transform = basis.power_transform()
-    coefficients = transform @ solution.coefficients
-    covariance = transform @ z_cov @ transform.T
-    if model.has_intercept:
-        mean_w = float(np.sum(weights.weights * y) / np.sum(weights.weights))
-        sst = float(np.sum(weights.weights * (y - mean_w) ** 2))
-        adjust = (x.size - 1) / df
+    weights = make_weights(weighting, x, y, levels, response_sd, model)
+    basis = make_basis(model, x, weights.weights)
+    # Values near the ends of double precision overflow here; they are refused by name below.
+    with np.errstate(over="ignore", under="ignore", invalid="ignore"):
+        solution = solve_weighted(basis.design(x), y, weights.weights)
+        root_wy = np.sqrt(weights.weights) * y
+        clean = without_roundoff(solution.weighted_residuals, root_wy)  # exact standards: zeros
+        df = x.size - p
+        residual_sd = float(np.sqrt((clean @ clean) / df))
+        z_cov = residual_sd**2 * solution.unscaled_covariance
+        transform = basis.power_transform()
+        coefficients = transform @ solution.coefficients
+        covariance = transform @ z_cov @ transform.T
+    _refuse_unrepresentable(model, x, y, basis, coefficients, covariance, residual_sd)
+    w = weights.weights
+    mean_w = float(np.sum(w * y) / np.sum(w))
+    sst = float(np.sum(w * (y - mean_w) ** 2))
+    adjust = (x.size - 1) / df
+    if sst <= x.size * (ROUNDOFF * float(np.max(np.abs(root_wy)))) ** 2:
+        r_squared = 0.0  # the responses do not vary: nothing to explain
     else:
-        sst = float(np.sum(weights.weights * y**2))
-        adjust = x.size / df
-    r_squared = 1.0 - solution.sse / sst if sst > 0 else 1.0
+        r_squared = 1.0 - float(clean @ clean) / sst
     branch, vertex_z, notes = _quadratic_geometry(model, solution.coefficients, basis, x)
-    influence = measure_influence(solution.weighted_residuals, solution.leverage, p)
-    lack = lack_of_fit_test(y, weights.weights, levels, solution.sse, p)
+    influence = measure_influence(solution.weighted_residuals, solution.leverage, p, root_wy)
+    lack = lack_of_fit_test(clean / np.sqrt(w), w, levels, p, weights_from_replicates=weights.from_replicates)
+    regression = regression_test(
+        solution.coefficients, z_cov, basis.powers, solution.fitted, y, not np.any(clean), df
+    )
+    if not regression.significant:
+        notes = (regression.words,) + notes
+    if weights.variance_fit is not None:
+        notes = notes + (f"weights from a variance function: {weights.variance_fit.function.words}",)
+    notes = notes + influence.notes
     z_range = (float(basis.z(x.min())), float(basis.z(x.max())))
     z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
     back = basis.centre + basis.scale * z_back
@@ -352,12 +208,45 @@ def fit(
         residuals=frozen(y - solution.fitted),
         influence=influence,
         lack_of_fit=lack,
+        regression=regression,
         back_calculated=frozen(back),
         relative_error=frozen(relative),
         quadratic_branch=branch,
         vertex_z=vertex_z,
         notes=notes,
     )
+
+
+def _refuse_unrepresentable(
+    model: Model, x: FloatArray, y: FloatArray, basis: Basis, coefficients: FloatArray, covariance: FloatArray,
+    residual_sd: float,
+) -> None:
+    """Refuse a fit whose numbers overflow or underflow double precision, rather than return inf or NaN.
+
+    The coefficient of xᵏ is in units of response/concentrationᵏ and its variance in their square,
+    so concentrations near 1e200 (a quadratic) or responses near 1e300 leave the representable range
+    even though each value typed is a valid number.
+    """
+    problem = None
+    if not np.isfinite(residual_sd):
+        problem = "the residual variance overflows"
+    elif not (np.all(np.isfinite(coefficients)) and np.all(np.isfinite(covariance))):
+        problem = "a coefficient or its variance overflows"
+    else:
+        with np.errstate(over="ignore", under="ignore"):
+            unit = np.array([np.float64(basis.scale) ** -p for p in basis.powers])
+        free = np.diag(covariance)[1 - int(model.has_intercept):]
+        if not np.all(np.isfinite(unit) & (unit > 0)):
+            problem = f"x^{max(basis.powers)} leaves the range of representable numbers"
+        elif residual_sd > 0 and np.any(free <= 0):
+            problem = "a coefficient's variance underflows to zero"
+    if problem is not None:
+        raise CalibrationInputError(
+            f"concentration and response: a {model.description} over concentrations up to "
+            f"{float(np.max(np.abs(x))):g} and responses up to {float(np.max(np.abs(y))):g} cannot be "
+            f"computed in double precision ({problem}); express them in units that bring the values "
+            "nearer to 1 (a larger or smaller unit)."
+        )
 
 
 def _quadratic_geometry(

@@ -2,9 +2,10 @@
 
 Point estimate
     x̂ solves f(x) = ȳ₀. A straight line gives x̂ = (ȳ₀ − b0)/b1. For the quadratic the root is
-    taken on the calibrated branch, the side of the vertex that holds the standards; a response the
-    curve never reaches on that branch has no solution and is flagged, never extrapolated past the
-    vertex.
+    taken on the calibrated branch, the side of the vertex that holds the standards. A response
+    beyond the curve's highest (or lowest) value that the prediction band still holds at the vertex
+    is read as the vertex itself, flagged ``TURNING_POINT`` (its symmetric interval is unbounded,
+    since the slope there is zero); only a response outside the band even there has no solution.
 
 Standard error (delta method)
     s_x̂ = √(σ²/(m·w₀) + var f̂(x̂)) / |f'(x̂)|, with w₀ the weight of the new mean response
@@ -18,8 +19,11 @@ Calibration interval (``interval="band"``, the default)
     {x : (ȳ₀ − f̂(x))² ≤ t²·(σ²/(m·w(x)) + var f̂(x))}, t = t(1 − α/2; n − p). For a straight
     line whose weights do not depend on x this is Fieller's interval, solved in closed form
     (Draper & Smith, *Applied Regression Analysis*, 3rd ed., §3.2); otherwise the band is inverted
-    numerically, bracketing outward from x̂ and bisecting to full precision. When the band does not
-    close on one side the interval is unbounded there (±inf, flagged).
+    numerically, bracketing outward from x̂ and refining to full precision, each unknown on its own
+    (its ends never depend on the other unknowns of the call). For a quadratic the search stops at
+    the vertex; when the band still holds ȳ₀ there it goes on past it, so the interval is the
+    connected set of concentrations whose band holds ȳ₀ (flagged ``TURNING_POINT``). When the band
+    does not close on one side the interval is unbounded there (±inf, flagged).
 
 Symmetric interval (``interval="symmetric"``)
     x̂ ± t·s_x̂.
@@ -35,19 +39,29 @@ from typing import TYPE_CHECKING
 import numpy as np
 from numpy.polynomial.polynomial import polyval
 
-from ._arrays import FloatArray, as_finite_vector, frozen
+from ._arrays import FloatArray, as_confidence_level, as_finite_vector, frozen
 from .distributions import t_quantile
-from .errors import QuantitationInputError
+from .errors import LimitsError, QuantitationInputError
+from .limits import DetectionLimits, detection_limits
 from .models import Model
 from .weighting import Weighting
 
 if TYPE_CHECKING:  # pragma: no cover
-    from .calibration import Calibration
-    from .limits import DetectionLimits
+    from .fitted_curve import FittedCurve
 
 INTERVAL_METHODS = ("band", "symmetric")
+INTERVAL_SCOPE_NOTE = (
+    "This interval covers the calibration and the repeatability of the unknown's replicate measurements "
+    "only; it is not the full measurement uncertainty, which also holds sampling, preparation, recovery, "
+    "matrix effects and between-run variation."
+)
+"""What the calibration interval is, to be shown wherever it is. Measurement uncertainty comprises every
+component (JCGM 100:2008, the GUM, §2.2.3 and §3.3); the Eurachem/CITAC Guide *Quantifying
+Uncertainty in Analytical Measurement* (3rd ed., 2012) lists calibration as one source among several
+(section numbers from memory)."""
 SEARCH_HALF_RANGES = 200.0
-"""How far beyond x̂ the band inversion looks for the interval's ends, in half-ranges of the standards."""
+"""How far beyond x̂ the band inversion looks for the interval's ends, in spans of the standards
+(measured in the fitting variable z)."""
 RANGE_SLACK = 1e-9
 """Fraction of the calibrated span allowed for round-off when testing whether x̂ is in range."""
 _MAX_REFINE_STEPS = 100
@@ -65,6 +79,7 @@ class QuantFlag(IntFlag):
     NO_SOLUTION = 32
     AMBIGUOUS_ROOT = 64
     UNBOUNDED_INTERVAL = 128
+    TURNING_POINT = 256
 
     @property
     def words(self) -> str:
@@ -83,9 +98,17 @@ _WORDS = {
     QuantFlag.ABOVE_RANGE: "above the highest standard",
     QuantFlag.BELOW_LOQ: "below the quantitation limit (LOQ)",
     QuantFlag.BELOW_LOD: "below the detection limit (LOD)",
-    QuantFlag.NO_SOLUTION: "no solution: the curve never reaches this response on its calibrated branch",
+    QuantFlag.NO_SOLUTION: (
+        "no solution: the curve never reaches this response on its calibrated branch, not even within "
+        "its prediction band"
+    ),
     QuantFlag.AMBIGUOUS_ROOT: "ambiguous: the curve reaches this response twice within the calibrated range",
     QuantFlag.UNBOUNDED_INTERVAL: "interval unbounded: the calibration cannot bound this concentration",
+    QuantFlag.TURNING_POINT: (
+        "at the curve's turning point: the prediction band holds this response on both sides of the "
+        "turning point, so the interval is read from the band on both sides (where the response lies "
+        "beyond the curve's highest or lowest value, the estimate is the turning point itself)"
+    ),
 }
 _SHORT_WORDS = {
     QuantFlag.IN_RANGE: "in range",
@@ -96,6 +119,7 @@ _SHORT_WORDS = {
     QuantFlag.NO_SOLUTION: "no solution",
     QuantFlag.AMBIGUOUS_ROOT: "two roots",
     QuantFlag.UNBOUNDED_INTERVAL: "open interval",
+    QuantFlag.TURNING_POINT: "turning point",
 }
 
 
@@ -118,7 +142,7 @@ class Quantitation:
     lower: FloatArray
     upper: FloatArray
     flag_bits: np.ndarray
-    limits: "DetectionLimits | None"
+    limits: DetectionLimits | None
     limits_note: str | None
 
     @cached_property
@@ -135,45 +159,61 @@ class Quantitation:
 
 
 def quantify(
-    cal: "Calibration",
+    cal: "FittedCurve",
     mean_response: object,
     replicates: object = 1,
     level: float = 0.95,
     interval: str = "band",
-    limits: "DetectionLimits | None" = None,
+    limits: DetectionLimits | None = None,
 ) -> Quantitation:
     """Quantify unknowns; see :meth:`curvewright.core.calibration.Calibration.quantify`."""
+    if not cal.regression.significant:
+        raise QuantitationInputError(
+            f"calibration: {cal.regression.words}; check the standards' concentrations and responses."
+        )
     y0 = as_finite_vector(mean_response, "mean response", QuantitationInputError, item="unknown")
     m = _replicate_counts(replicates, y0.size)
-    if not (0.0 < level < 1.0):
-        raise QuantitationInputError(f"confidence level: {level!r} must lie between 0 and 1 (e.g. 0.95).")
+    level = as_confidence_level(level, QuantitationInputError)
     if interval not in INTERVAL_METHODS:
         raise QuantitationInputError(
             f"interval: {interval!r} is not one of {', '.join(map(repr, INTERVAL_METHODS))}."
         )
-    t = t_quantile(0.5 + level / 2.0, cal.df_residual)
+    probability = 0.5 + level / 2.0
+    t = t_quantile(probability, cal.df_residual)
 
     z_range = tuple(cal.basis.z(np.array(cal.calibrated_range)))
-    z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
-    x_hat = cal.basis.centre + cal.basis.scale * z_hat
-    new_var = _new_response_variance(cal, x_hat, y0, m)
-    slope = _slope_z(cal, z_hat) / cal.basis.scale
-    with np.errstate(invalid="ignore", divide="ignore"):
-        se = np.sqrt(new_var + _curve_variance(cal, z_hat)) / np.abs(slope)
-
+    # Overflow is detected below, per unknown, and refused by name rather than left as inf or NaN.
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
+        at_turning_point = _inside_band_at_vertex(cal, y0, m, probability, no_solution)
+        z_hat = np.where(at_turning_point, cal.vertex_z if cal.vertex_z is not None else np.nan, z_hat)
+        no_solution = no_solution & ~at_turning_point
+        x_hat = cal.basis.centre + cal.basis.scale * z_hat
+        new_var = _new_response_variance(cal, x_hat, y0, m)
+        slope = _slope_z(cal, z_hat) / cal.basis.scale
+        curve_var = _curve_variance(cal, z_hat)
+        se = np.sqrt(new_var + curve_var) / np.abs(slope)
+        flat = slope == 0.0
+        past_vertex = np.zeros(y0.size, dtype=bool)
+        if interval == "symmetric":
+            t_hat = cal.band_t(probability, x_hat, new_var, curve_var)
+            lower, upper = x_hat - t_hat * se, x_hat + t_hat * se
+        else:
+            lower, upper, past_vertex = _band_interval(cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale)
+    solved = ~no_solution
+    _refuse_unrepresentable(
+        y0, solved & (~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | np.isnan(lower) | np.isnan(upper))
+    )
     if interval == "symmetric":
-        lower, upper = x_hat - t * se, x_hat + t * se
-        unbounded = ~np.isfinite(se) & ~no_solution
+        unbounded = ~np.isfinite(se) & solved
     else:
-        lower, upper = _band_interval(cal, y0, m, t, z_hat, no_solution, se / cal.basis.scale)
-        unbounded = (np.isinf(lower) | np.isinf(upper)) & ~no_solution
+        unbounded = (np.isinf(lower) | np.isinf(upper)) & solved
+    turning = at_turning_point | (past_vertex & solved)
 
     limits_note = None
     if limits is None:
-        from .limits import LimitsError
-
         try:
-            limits = cal.limits()
+            limits = detection_limits(cal)
         except LimitsError as exc:
             limits_note = f"LOD/LOQ flags not set: {exc}"
 
@@ -182,7 +222,6 @@ def quantify(
     slack = RANGE_SLACK * (high - low)
     low, high = low - slack, high + slack
     bits = np.zeros(y0.size, dtype=np.int64)
-    solved = ~no_solution
     bits |= np.where(solved & (x_hat < low), int(QuantFlag.BELOW_RANGE), 0)
     bits |= np.where(solved & (x_hat > high), int(QuantFlag.ABOVE_RANGE), 0)
     bits |= np.where(solved & (x_hat >= low) & (x_hat <= high), int(QuantFlag.IN_RANGE), 0)
@@ -193,6 +232,7 @@ def quantify(
     bits |= np.where(no_solution, int(QuantFlag.NO_SOLUTION), 0)
     bits |= np.where(ambiguous, int(QuantFlag.AMBIGUOUS_ROOT), 0)
     bits |= np.where(unbounded, int(QuantFlag.UNBOUNDED_INTERVAL), 0)
+    bits |= np.where(turning, int(QuantFlag.TURNING_POINT), 0)
 
     nan = np.where(no_solution, np.nan, 0.0)
     return Quantitation(
@@ -211,11 +251,27 @@ def quantify(
     )
 
 
+def _refuse_unrepresentable(y0: FloatArray, bad: np.ndarray) -> None:
+    """Refuse unknowns whose concentration or interval overflows double precision, naming the first."""
+    if bad.any():
+        i = int(np.flatnonzero(bad)[0])
+        raise QuantitationInputError(
+            f"mean response: unknown {i + 1} is {y0[i]:g}, so far beyond the standards that its "
+            "concentration or interval cannot be represented as a number; check the value and its unit"
+            + (f" ({int(bad.sum())} such unknowns in all)." if bad.sum() > 1 else ".")
+        )
+
+
 def _replicate_counts(replicates: object, k: int) -> np.ndarray:
     counts = np.broadcast_to(np.asarray(replicates), (k,)) if np.ndim(replicates) == 0 else np.asarray(replicates)
     if counts.shape != (k,):
         raise QuantitationInputError(
             f"replicates: {counts.size} counts given for {k} unknowns; give one count per unknown or a single count."
+        )
+    if counts.dtype.kind not in "iuf":
+        raise QuantitationInputError(
+            f"replicates: {replicates!r}; the number of replicate responses averaged must be a whole "
+            "number of at least 1 for each unknown."
         )
     as_float = counts.astype(np.float64)
     bad = np.flatnonzero(~np.isfinite(as_float) | (as_float < 1) | (as_float != np.round(as_float)))
@@ -241,6 +297,9 @@ def solve_z(
     responses with no solution there and a mask of responses reached twice inside ``z_range``.
     """
     false = np.zeros(y0.size, dtype=bool)
+    if model is not Model.QUADRATIC and a[-1] == 0.0:
+        # a line of slope exactly zero reaches no response but its own level, and that one everywhere
+        return np.full(y0.size, np.nan), ~false, false
     if model is Model.PROPORTIONAL:
         return y0 / a[0], false, false
     if model is Model.LINEAR:
@@ -273,7 +332,7 @@ def solve_z(
     return np.where(no_solution, np.nan, root), no_solution, ambiguous
 
 
-def _slope_z(cal: "Calibration", z: FloatArray) -> FloatArray:
+def _slope_z(cal: "FittedCurve", z: FloatArray) -> FloatArray:
     a = cal.z_coefficients
     if cal.model is Model.PROPORTIONAL:
         return np.full_like(z, a[0])
@@ -282,33 +341,45 @@ def _slope_z(cal: "Calibration", z: FloatArray) -> FloatArray:
     return a[1] + 2.0 * a[2] * z
 
 
-def _curve_variance(cal: "Calibration", z: FloatArray) -> FloatArray:
+def _curve_variance(cal: "FittedCurve", z: FloatArray) -> FloatArray:
     """Variance of the fitted curve at z: φ(z)ᵀ·C·φ(z), C the coefficient covariance, evaluated as
     the polynomial in z it is."""
     return polyval(z, curve_polynomials(cal)[1])
 
 
-def _new_response_variance(cal: "Calibration", x: FloatArray, y0: FloatArray, m: np.ndarray) -> FloatArray:
+def _new_response_variance(cal: "FittedCurve", x: FloatArray, y0: FloatArray, m: np.ndarray) -> FloatArray:
     """Variance σ²/(m·w) of the mean of m new responses at concentration x with mean y0."""
     weight = cal.weight_model.weight_at(x, y0)
     return cal.residual_sd**2 / (m * weight)
 
 
 def _band_interval(
-    cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float, z_hat: FloatArray, no_solution: np.ndarray,
-    se_z: FloatArray,
-) -> tuple[FloatArray, FloatArray]:
+    cal: "FittedCurve", y0: FloatArray, m: np.ndarray, probability: float, z_hat: FloatArray,
+    no_solution: np.ndarray, guess: FloatArray,
+) -> tuple[FloatArray, FloatArray, np.ndarray]:
+    """Both ends of the calibration interval, in x, and which unknowns' intervals reach past the vertex."""
     closed_form = cal.model is not Model.QUADRATIC and not cal.weighting.uses_concentration
+    past_vertex = np.zeros(y0.size, dtype=bool)
     if closed_form:
-        z_lo, z_hi = _fieller_z(cal, y0, m, t)
+        z_lo, z_hi = _fieller_z(cal, y0, m, t_quantile(probability, cal.df_residual))
     else:
-        z_lo, z_hi = _band_edges(cal, y0, m, t, z_hat, no_solution, t * se_z)
+        z_lo, z_hi, past_vertex = _band_edges(cal, y0, m, probability, z_hat, no_solution, guess)
     to_x = lambda z: cal.basis.centre + cal.basis.scale * z  # noqa: E731
     # scale > 0, so the order of the ends survives the change of variable.
-    return to_x(z_lo), to_x(z_hi)
+    return to_x(z_lo), to_x(z_hi), past_vertex
 
 
-def _fieller_z(cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float) -> tuple[FloatArray, FloatArray]:
+def _inside_band_at_vertex(
+    cal: "FittedCurve", y0: FloatArray, m: np.ndarray, probability: float, no_solution: np.ndarray
+) -> np.ndarray:
+    """Responses beyond a quadratic's extreme that its prediction band still holds at the vertex."""
+    if cal.model is not Model.QUADRATIC or cal.vertex_z is None or not no_solution.any():
+        return np.zeros(y0.size, dtype=bool)
+    at_vertex = np.full(y0.size, cal.vertex_z)
+    return no_solution & (_band_excess(cal, curve_polynomials(cal), y0, m, probability, at_vertex) <= 0)
+
+
+def _fieller_z(cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float) -> tuple[FloatArray, FloatArray]:
     """Fieller's interval for a straight line, in z: the roots of A·z² + B·z + C = 0."""
     cov = cal.z_covariance
     s2_new = _new_response_variance(cal, np.zeros_like(y0), y0, m)
@@ -333,7 +404,7 @@ def _fieller_z(cal: "Calibration", y0: FloatArray, m: np.ndarray, t: float) -> t
     return (-b_quad - root) / (2.0 * a_quad), (-b_quad + root) / (2.0 * a_quad)
 
 
-def curve_polynomials(cal: "Calibration") -> tuple[FloatArray, FloatArray]:
+def curve_polynomials(cal: "FittedCurve") -> tuple[FloatArray, FloatArray]:
     """Ascending coefficients, in z, of the fitted curve f̂(z) and of its variance φ(z)ᵀ·C·φ(z)."""
     powers = cal.basis.powers
     fitted = np.zeros(max(powers) + 1)
@@ -346,11 +417,11 @@ def curve_polynomials(cal: "Calibration") -> tuple[FloatArray, FloatArray]:
 
 
 def _band_excess(
-    cal: "Calibration",
+    cal: "FittedCurve",
     polys: tuple[FloatArray, FloatArray],
     y0: FloatArray,
     m: np.ndarray,
-    t: float,
+    probability: float,
     z: FloatArray,
 ) -> FloatArray:
     """(ȳ₀ − f̂(z))² − t²·(σ²/(m·w) + var f̂(z)); ≤ 0 inside the calibration interval."""
@@ -358,79 +429,121 @@ def _band_excess(
     curve_var = polyval(z, polys[1])
     x = cal.basis.centre + cal.basis.scale * z
     new_var = cal.residual_sd**2 / (m * cal.weight_model.weight_at(x, y0))
+    t = cal.band_t(probability, x, new_var, curve_var)
     return (y0 - fitted) ** 2 - t * t * (new_var + curve_var)
 
 
 def _band_edges(
-    cal: "Calibration",
+    cal: "FittedCurve",
     y0: FloatArray,
     m: np.ndarray,
-    t: float,
+    probability: float,
     z_hat: FloatArray,
     no_solution: np.ndarray,
     guess: FloatArray,
-) -> tuple[FloatArray, FloatArray]:
+) -> tuple[FloatArray, FloatArray, np.ndarray]:
     """Both ends of the calibration interval around ẑ, in z (vectorised over unknowns).
 
-    Each side starts from ``guess`` (the half-width t·s_ẑ of the symmetric interval, close to the
-    true end), doubles outward until it leaves the band (bracketing the first crossing; never past
-    the vertex of a quadratic nor beyond :data:`SEARCH_HALF_RANGES`), then refines the crossing by
-    the Illinois variant of regula falsi (Dowell & Jarratt 1971, BIT 11:168), which keeps the
-    bracket and converges superlinearly.
+    Each side walks outward from ẑ (see :func:`_band_crossing`), never past the vertex of a quadratic
+    at first. A side still inside the band at the vertex goes on past it: the band holds the response
+    on the far side of the turning point too, and the interval is the connected set of
+    concentrations whose band holds it. Returns the lower and upper ends and a mask of the unknowns
+    whose interval reaches past the vertex.
     """
     k = y0.size
     polys = curve_polynomials(cal)
     start = np.tile(np.where(no_solution, 0.0, z_hat), 2)
     direction = np.repeat([-1.0, 1.0], k)
     yy, mm = np.tile(y0, 2), np.tile(m, 2)
-    reach = np.full(2 * k, SEARCH_HALF_RANGES)
+    full_reach = SEARCH_HALF_RANGES * max(1.0, float(np.ptp(cal.basis.z(cal.concentration))))
+    reach = np.full(2 * k, full_reach)
+    towards_vertex = np.zeros(2 * k, dtype=bool)
     if cal.model is Model.QUADRATIC and cal.vertex_z is not None:
-        towards_vertex = (cal.vertex_z - start) * direction > 0
+        towards_vertex = (cal.vertex_z - start) * direction >= 0
         reach = np.where(towards_vertex, np.abs(cal.vertex_z - start), reach)
-
-    def excess(offset: FloatArray) -> FloatArray:
-        return _band_excess(cal, polys, yy, mm, t, start + direction * offset)
-
     first = np.tile(np.where(np.isfinite(guess) & (guess > 0), guess, 1e-3), 2)
+    offset, closed = _band_crossing(cal, polys, yy, mm, probability, start, direction, reach, first)
+    edge = np.where(closed, start + direction * offset, direction * np.inf)
+    onward = towards_vertex & ~closed & ~np.tile(no_solution, 2)
+    if onward.any():
+        vertex = np.full(int(onward.sum()), float(cal.vertex_z))  # type: ignore[arg-type]
+        more, more_closed = _band_crossing(
+            cal, polys, yy[onward], mm[onward], probability, vertex, direction[onward],
+            np.full(vertex.size, full_reach), first[onward],
+        )
+        edge[onward] = np.where(more_closed, vertex + direction[onward] * more, direction[onward] * np.inf)
+    past_vertex = onward[:k] | onward[k:]
+    return edge[:k], edge[k:], past_vertex
+
+
+def _band_crossing(
+    cal: "FittedCurve",
+    polys: tuple[FloatArray, FloatArray],
+    y0: FloatArray,
+    m: np.ndarray,
+    probability: float,
+    start: FloatArray,
+    direction: FloatArray,
+    reach: FloatArray,
+    first: FloatArray,
+) -> tuple[FloatArray, np.ndarray]:
+    """Distance from ``start`` along ``direction`` to the first point outside the prediction band.
+
+    Starts from ``first`` (the half-width t·s_ẑ of the symmetric interval, close to the true end),
+    doubles outward until it leaves the band (bracketing the first crossing; never beyond
+    ``reach``), then refines the crossing by the Illinois variant of regula falsi (Dowell & Jarratt
+    1971, BIT 11:168), which keeps the bracket and converges superlinearly. Each side is frozen as
+    soon as it has converged, so its result depends on its own unknown only, never on the others
+    quantified in the same call. Returns the distance and whether the band closed within reach.
+    """
+
+    def excess(at: np.ndarray, offset: FloatArray) -> FloatArray:
+        return _band_excess(cal, polys, y0[at], m[at], probability, start[at] + direction[at] * offset)
+
+    every = np.ones(start.size, dtype=bool)
     b = np.minimum(first, reach)
-    a = np.zeros(2 * k)
-    g_a = excess(a)
-    g_b = excess(b)
+    a = np.zeros(start.size)
+    g_a = excess(every, a)
+    g_b = excess(every, b)
     # the guess may already lie outside the band; otherwise walk outward by doubling
     inside = g_b <= 0
     closed = ~inside
     for _ in range(_MAX_EXPANSIONS):
+        inside &= b < reach
         if not inside.any():
             break
-        at_reach = inside & (b >= reach)
-        inside &= ~at_reach
-        a = np.where(inside, b, a)
-        g_a = np.where(inside, g_b, g_a)
-        b = np.where(inside, np.minimum(2.0 * b, reach), b)
-        g_new = excess(b)
-        g_b = np.where(inside, g_new, g_b)
-        newly_out = inside & (g_new > 0)
+        a[inside], g_a[inside] = b[inside], g_b[inside]
+        b[inside] = np.minimum(2.0 * b[inside], reach[inside])
+        g_b[inside] = excess(inside, b[inside])
+        newly_out = inside & (g_b > 0)
         closed |= newly_out
         inside &= ~newly_out
-    side = np.zeros(2 * k, dtype=np.int8)
-    previous = np.full(2 * k, np.inf)
+    side = np.zeros(start.size, dtype=np.int8)
+    previous = np.full(start.size, np.inf)
     resolution = 4 * np.finfo(float).eps * (np.abs(start) + b)
     active = closed.copy()
     c = 0.5 * (a + b)
     for _ in range(_MAX_REFINE_STEPS):
         if not active.any():
             break
-        c = b - g_b * (b - a) / (g_b - g_a)
-        c = np.where(np.isfinite(c) & (c > a) & (c < b), c, 0.5 * (a + b))
-        active &= (np.abs(c - previous) > resolution) & (b - a > resolution)
-        previous = c
-        g_c = excess(c)
+        at = active
+        step = b[at] - g_b[at] * (b[at] - a[at]) / (g_b[at] - g_a[at])
+        step = np.where(np.isfinite(step) & (step > a[at]) & (step < b[at]), step, 0.5 * (a[at] + b[at]))
+        moving = (np.abs(step - previous[at]) > resolution[at]) & (b[at] - a[at] > resolution[at])
+        # a side that has converged keeps its last point and takes no further step
+        at = np.flatnonzero(at)[moving]
+        active[:] = False
+        active[at] = True
+        if not at.size:
+            break
+        step = step[moving]
+        c[at] = previous[at] = step
+        g_c = excess(at, step)
         out = g_c > 0  # c lies outside the band: it becomes the outer end
         # Illinois step: halve the value kept at an end that survived twice in a row
-        g_a = np.where(out, np.where(side == 1, 0.5 * g_a, g_a), g_c)
-        g_b = np.where(out, g_c, np.where(side == -1, 0.5 * g_b, g_b))
-        a = np.where(out, a, c)
-        b = np.where(out, c, b)
-        side = np.where(out, 1, -1).astype(np.int8)
-    edge = np.where(closed, start + direction * c, direction * np.inf)
-    return edge[:k], edge[k:]
+        g_a[at] = np.where(out, np.where(side[at] == 1, 0.5 * g_a[at], g_a[at]), g_c)
+        g_b[at] = np.where(out, g_c, np.where(side[at] == -1, 0.5 * g_b[at], g_b[at]))
+        a[at] = np.where(out, a[at], step)
+        b[at] = np.where(out, step, b[at])
+        side[at] = np.where(out, 1, -1)
+    return c, closed

@@ -1,15 +1,27 @@
 """Lack-of-fit F-test with pure error from replicated standards.
 
-The residual sum of squares splits into pure error (scatter of replicates about their level mean)
-and lack of fit (distance of the level means from the curve):
+The residual sum of squares splits into pure error (scatter of replicates within their level) and
+lack of fit (distance of the levels from the curve). With eᵢⱼ = yᵢⱼ − ŷᵢⱼ the residuals and ēᵢ their
+weighted mean within level i:
 
-    SS_PE = Σ_levels Σ_j wᵢⱼ (yᵢⱼ − ȳᵢ)²          df_PE = n − c
-    SS_LF = SSE − SS_PE                          df_LF = c − p
+    SS_PE = Σ_levels Σ_j wᵢⱼ (eᵢⱼ − ēᵢ)²          df_PE = n − c
+    SS_LF = Σ_levels Wᵢ ēᵢ²  (= SSE − SS_PE)       df_LF = c − p
     F = (SS_LF/df_LF) / (SS_PE/df_PE),  p = P(F(df_LF, df_PE) > F)
 
-with c levels, p parameters and ȳᵢ the (weighted) level mean (NIST/SEMATECH e-Handbook of
-Statistical Methods §4.4.4.3; Kutner et al., *Applied Linear Statistical Models*, 5th ed., §3.7).
-A small p says the model does not follow the level means within the replicate scatter.
+with c levels, p parameters and Wᵢ = Σ_j wᵢⱼ. For exact replicates (one concentration per level)
+ŷ is constant within a level, so eᵢⱼ − ēᵢ = yᵢⱼ − ȳᵢ and this is the textbook split (NIST/SEMATECH
+e-Handbook of Statistical Methods §4.4.4.3; Kutner et al., *Applied Linear Statistical Models*,
+5th ed., §3.7). When a level holds slightly different concentrations (standards made up by mass,
+grouped by a label or a tolerance) the pure error is taken about the curve drawn through the level
+— each level's own line, with the curve's slope and the level's mean residual — never about the
+level's mean response, which would count slope × Δx as replicate scatter (with ±0.2 % by mass that
+made SS_PE exceed SSE in most runs). This uses near replicates as Kutner et al. §3.7 describe
+(from memory); the F-test is then approximate. A small p says the model does not follow the levels
+within the replicate scatter.
+
+When the weights are the replicates' own SDs (1/s² estimated from the same standards), the pure
+error is fixed by construction (each level contributes its degrees of freedom exactly), so the
+ratio tests nothing and the test is not made.
 """
 
 from __future__ import annotations
@@ -53,10 +65,18 @@ class LackOfFit:
 
 
 def lack_of_fit_test(
-    response: FloatArray, weights: FloatArray, levels: Levels, sse: float, n_parameters: int
+    residuals: FloatArray,
+    weights: FloatArray,
+    levels: Levels,
+    n_parameters: int,
+    *,
+    weights_from_replicates: bool = False,
 ) -> LackOfFit:
-    """Split ``sse`` into pure error and lack of fit over ``levels`` and test the ratio."""
-    n = response.size
+    """Split the weighted residual sum of squares over ``levels`` and test lack of fit against pure error.
+
+    ``residuals`` are yᵢ − ŷᵢ in response units, with round-off already set to zero.
+    """
+    n = residuals.size
     c = levels.n_levels
     df_pe = n - c
     df_lf = c - n_parameters
@@ -68,8 +88,18 @@ def lack_of_fit_test(
             f"there are {c} levels for {n_parameters} parameters, so no level is spare to test the "
             "shape of the curve",
         )
-    means = levels.level_means(response, weights)
-    ss_pe = float(np.sum(weights * (response - means[levels.index]) ** 2))
+    if weights_from_replicates:
+        return LackOfFit(
+            False,
+            "the weights are the replicates' own SDs (1/s²), which fixes the pure error by construction, "
+            "so the test cannot be made; use known SDs or a variance function fitted to all levels",
+            df_lack_of_fit=df_lf,
+            df_pure_error=df_pe,
+        )
+    level_weight = np.bincount(levels.index, weights=weights, minlength=c)
+    mean_residual = np.bincount(levels.index, weights=weights * residuals, minlength=c) / level_weight
+    ss_pe = float(np.sum(weights * (residuals - mean_residual[levels.index]) ** 2))
+    ss_lf = float(np.sum(level_weight * mean_residual**2))
     if ss_pe <= 0.0:
         return LackOfFit(
             False,
@@ -79,8 +109,6 @@ def lack_of_fit_test(
             df_pure_error=df_pe,
             ss_pure_error=0.0,
         )
-    # Standards made up by mass (inexact replicates) can leave SSE a hair below SS_PE.
-    ss_lf = max(sse - ss_pe, 0.0)
     f = (ss_lf / df_lf) / (ss_pe / df_pe)
     return LackOfFit(
         available=True,

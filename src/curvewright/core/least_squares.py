@@ -18,6 +18,14 @@ from .errors import CalibrationInputError
 
 RANK_TOLERANCE = 1e-11
 """Smallest |R_jj|/max|R_kk| accepted before the design is called rank deficient."""
+ROUNDOFF = 1000.0 * np.finfo(float).eps
+"""Weighted residuals below ROUNDOFF·max|√w·y| are round-off of standards exactly on the curve, not scatter."""
+
+
+def without_roundoff(weighted_residuals: FloatArray, weighted_response: FloatArray) -> FloatArray:
+    """``weighted_residuals`` with those at the level of round-off set to exactly zero."""
+    floor = ROUNDOFF * float(np.max(np.abs(weighted_response))) if weighted_response.size else 0.0
+    return np.where(np.abs(weighted_residuals) <= floor, 0.0, weighted_residuals)
 
 
 @dataclass(frozen=True, eq=False)

@@ -24,12 +24,13 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from ._arrays import as_whole_count
 from .errors import LimitsError
 from .models import Model
 from .weighting import Weighting
 
 if TYPE_CHECKING:  # pragma: no cover
-    from .calibration import Calibration
+    from .fitted_curve import FittedCurve
 
 LIMIT_METHODS = ("residual_sd", "intercept_sd", "iso11843")
 
@@ -49,7 +50,7 @@ class DetectionLimits:
 
 
 def detection_limits(
-    cal: "Calibration",
+    cal: "FittedCurve",
     method: str = "residual_sd",
     *,
     alpha: float = 0.05,
@@ -59,6 +60,8 @@ def detection_limits(
     """Compute LOD and LOQ of ``cal`` by ``method`` (one of :data:`LIMIT_METHODS`)."""
     if method not in LIMIT_METHODS:
         raise LimitsError(f"limits method: {method!r} is not one of {', '.join(map(repr, LIMIT_METHODS))}.")
+    if not cal.regression.significant:
+        raise LimitsError(f"no limit can be computed: {cal.regression.words}.")
     slope = float(cal.coefficients[1])
     if slope == 0.0:
         raise LimitsError("the calibration has zero slope at zero concentration, so no limit can be computed.")
@@ -92,7 +95,7 @@ def detection_limits(
     )
 
 
-def _iso11843(cal: "Calibration", slope: float, alpha: float, beta: float, replicates: int) -> DetectionLimits:
+def _iso11843(cal: "FittedCurve", slope: float, alpha: float, beta: float, replicates: int) -> DetectionLimits:
     from scipy import optimize, stats  # the non-central t is needed here only; loading it is slow
 
     if cal.model is not Model.LINEAR or cal.weighting is not Weighting.NONE:
@@ -101,10 +104,11 @@ def _iso11843(cal: "Calibration", slope: float, alpha: float, beta: float, repli
             f"calibration is {cal.model.description}, {cal.weighting.description}."
         )
     for name, value in (("alpha", alpha), ("beta", beta)):
-        if not (0.0 < value < 0.5):
-            raise LimitsError(f"{name}: {value!r} must lie between 0 and 0.5 (e.g. 0.05).")
-    if replicates < 1:
-        raise LimitsError(f"replicates: {replicates!r}; the test sample is measured at least once.")
+        if isinstance(value, bool) or not isinstance(value, (int, float, np.integer, np.floating)) or not (0.0 < value < 0.5):
+            raise LimitsError(f"{name}: {value!r} must be a number between 0 and 0.5 (e.g. 0.05).")
+    replicates = as_whole_count(
+        replicates, "replicates", LimitsError, "the number of times the test sample is measured (K)"
+    )
     x = cal.concentration
     n = x.size
     nu = cal.df_residual

@@ -6,8 +6,9 @@ Each model is a polynomial in the concentration x with ascending-power coefficie
 * ``quadratic``     y = b0 + b1·x + b2·x²
 * ``proportional``  y = b1·x           (through the origin; coefficients are reported as (0, b1))
 
-Fitting is done in the variable z = (x − c)/s, with c the mean and s half the range of the
-standards' concentrations (c = 0 for the proportional model, so the line stays through the origin).
+Fitting is done in the variable z = (x − c)/s, with c the weighted mean of the standards'
+concentrations and s the largest |x − c| (c = 0 for the proportional model, so the line stays
+through the origin).
 Working in z keeps the least-squares problem well conditioned (NIST StRD Pontius needs it to reach
 twelve correct digits); :func:`to_power_basis` turns z-coefficients into ascending powers of x.
 """
@@ -84,21 +85,31 @@ class Basis:
         (b0 = 0, b1).
         """
         degree = max(self.powers)
-        c, s = self.centre, self.scale
+        ratio, s = np.float64(-self.centre / self.scale), np.float64(self.scale)
         transform = np.zeros((degree + 1, len(self.powers)))
-        for column, p in enumerate(self.powers):
-            # ((x − c)/s)^p = Σ_k C(p, k) x^k (−c)^(p−k) / s^p
-            for k in range(p + 1):
-                transform[k, column] = comb(p, k) * (-c) ** (p - k) / s**p
+        # Far beyond the range of double precision (x near 1e200 for a quadratic) an entry overflows
+        # to inf or underflows to 0; the caller checks the coefficients it gives and refuses them.
+        with np.errstate(over="ignore", under="ignore"):
+            for column, p in enumerate(self.powers):
+                # ((x − c)/s)^p = Σ_k C(p, k) x^k (−c/s)^(p−k) / s^k
+                for k in range(p + 1):
+                    transform[k, column] = comb(p, k) * ratio ** (p - k) / s**k
         return transform
 
 
-def make_basis(model: Model, concentration: FloatArray) -> Basis:
-    """Choose the centring and scaling for ``model`` fitted to ``concentration``."""
-    low, high = float(concentration.min()), float(concentration.max())
+def make_basis(model: Model, concentration: FloatArray, weights: FloatArray | None = None) -> Basis:
+    """Choose the centring and scaling for ``model`` fitted to ``concentration`` with ``weights``.
+
+    The centre is the weighted mean Σwᵢxᵢ/Σwᵢ (the plain mean when unweighted): there the constant
+    and linear columns of the whitened design are orthogonal, so the intercept's standard error
+    does not come from the difference of two large, nearly equal numbers when the weights crowd
+    toward one end of a range of many decades (1/x² over 10⁻³ to 10⁴, for instance). The scale is
+    the largest distance of a standard from the centre, so that every standard has |z| ≤ 1.
+    """
+    w = np.ones_like(concentration) if weights is None else weights
     if model.has_intercept:
-        centre = float(concentration.mean())
-        scale = (high - low) / 2.0
+        centre = float(np.sum(w * concentration) / np.sum(w))
+        scale = float(np.max(np.abs(concentration - centre)))
     else:
         centre = 0.0
         scale = float(np.max(np.abs(concentration)))

@@ -26,7 +26,7 @@ import numpy as np
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
 from .calibration import Calibration, fit
 from .checks import CheckInput, CheckVerdict, bracketing, judge_checks
-from .errors import CurvewrightError, LimitsError
+from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag
 from .limits import DetectionLimits
 from .reporting import ReportingRange, ReportStatus, report_value, reporting_range
@@ -225,7 +225,7 @@ def _analyse_analyte(
     run: Run, analyte: Analyte, profile: AcceptanceProfile, model: str | None, weighting: str | None
 ) -> AnalyteResult:
     settings = run.settings
-    fitted, excluded, unusable, x, y = [], [], [], [], []
+    fitted, excluded, unusable, x, y, labels = [], [], [], [], [], []
     for s in analyte.standards:
         if not s.included:
             excluded.append(s)
@@ -244,13 +244,14 @@ def _analyse_analyte(
         fitted.append(s)
         x.append(s.concentration)
         y.append(value)
+        labels.append(s.level)
     use_model = model or analyte.model
     use_weighting = weighting or analyte.weighting
     overridden = (model is not None and model != analyte.model) or (
         weighting is not None and weighting != analyte.weighting
     )
     try:
-        cal = fit(x, y, use_model, use_weighting, level_tolerance=settings.level_tolerance)
+        cal = fit(x, y, use_model, use_weighting, level_tolerance=settings.level_tolerance, level_labels=labels)
     except CurvewrightError as exc:
         return AnalyteResult(
             analyte=analyte, calibration=None, error=str(exc), fitted_standards=tuple(fitted),
@@ -341,9 +342,11 @@ def _quantify_samples(
             positions.append(len(rows) - 1)
             means.append(float(np.mean(values)))
             counts.append(len(values))
-    quant = (
-        cal.quantify(means, counts, settings.confidence_level, settings.interval, limits) if means else None
-    )
+    refusal = None
+    try:
+        quant = cal.quantify(means, counts, settings.confidence_level, settings.interval, limits) if means else None
+    except QuantitationInputError as exc:  # a calibration that cannot quantify: every sample says why
+        quant, refusal = None, f"not quantified: {exc}"
     index_of = {row: i for i, row in enumerate(positions)}
     out = []
     for r, (sample, values, note, censored) in enumerate(rows):
@@ -359,7 +362,7 @@ def _quantify_samples(
         )
         i = index_of.get(r)
         if i is None or quant is None:
-            reason = f"reported as censored: {censored}" if censored else (note or "no numeric response")
+            reason = f"reported as censored: {censored}" if censored else (refusal or note or "no numeric response")
             out.append(
                 SampleResult(
                     **base, mean_response=None, estimate=None, standard_error=None, lower=None, upper=None,

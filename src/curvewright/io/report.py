@@ -14,6 +14,7 @@ from datetime import datetime, timezone
 
 from .. import CAUTION, __version__
 from ..core.comparison import ModelComparison
+from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.run_analysis import AnalyteResult, RunResult
 from .result_tables import (Column, Table, audit_table, calibration_table, checks_table, interval_words, samples_table,
                             standards_table)
@@ -170,7 +171,7 @@ def build_report(result: RunResult, *, generated: datetime | None = None) -> Rep
             f" Calibrated range {a.reporting.lloq:g}–{a.reporting.uloq:g} (LLOQ–ULOQ); {a.reporting.note}.")
         blocks.append(Paragraph(f"Samples – {name}: concentrations in {a.analyte.concentration_unit} after dilution; "
                                 f"interval: {interval_words(result)}; reported values rounded to "
-                                f"{run.settings.rounding.description}.{range_words}", "subheading"))
+                                f"{run.settings.rounding.description}.{range_words} {INTERVAL_SCOPE_NOTE}", "subheading"))
         blocks.append(samples_table(result).select(SAMPLE_COLUMNS, f"Samples – {name}", where=("Analyte", name)))
     blocks.append(PageBreak())
     blocks.append(audit_table(result))

@@ -27,6 +27,7 @@ from openpyxl.cell import WriteOnlyCell
 from openpyxl.styles import Font
 
 from .. import CAUTION
+from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.run_analysis import RunResult
 from .atomic import atomic_target, new_temporary, resolve_target
 from .audit import file_sha256_streamed
@@ -78,7 +79,8 @@ def _build(tables: list[Table], progress: Progress | None, target: Path | IO[byt
             caution = WriteOnlyCell(sheet, value=CAUTION)
             caution.font = bold
             sheet.append([caution])
-            sheet.append([_text_cell(sheet, table.title, bold)])
+            note = [_text_cell(sheet, INTERVAL_SCOPE_NOTE)] if any(c.heading == "Interval" for c in table.columns) else []
+            sheet.append([_text_cell(sheet, table.title, bold)] + note)
             sheet.append([_text_cell(sheet, c.heading, bold) for c in table.columns])
             kinds = [c.kind for c in table.columns]
             for row in table.rows:

@@ -1,0 +1,231 @@
+"""The fitted calibration curve as plain, immutable numbers, and what follows from them directly.
+
+:class:`FittedCurve` holds everything one weighted fit produced (coefficients, covariance, residual
+SD, influence, lack of fit, back-calculated standards) and the views drawn straight from them: the
+curve, its standard error, the confidence and prediction bands, the equation. It needs none of the
+modules that answer questions about a calibration (inverse prediction, limits, acceptance); those
+take a ``FittedCurve``, and :class:`~curvewright.core.calibration.Calibration` adds them as methods.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy import special
+
+from ._arrays import FloatArray, as_confidence_level, as_whole_count
+from .distributions import t_quantile
+from .errors import CalibrationInputError
+from .influence import Influence, InfluenceFlag
+from .lack_of_fit import LackOfFit
+from .levels import Levels
+from .models import Basis, Model
+from .regression_test import RegressionTest
+from .weighting import WeightModel, Weighting
+
+
+@dataclass(frozen=True, eq=False)
+class FittedCurve:
+    """A fitted calibration curve. Immutable: every array is read-only.
+
+    Units: concentrations in the standards' concentration unit, responses in the instrument's
+    response unit; ``relative_error`` in percent. Arrays named per standard have shape (n,), in
+    the order the standards were given.
+
+    Attributes
+    ----------
+    coefficients : array of shape (degree + 1,)
+        b0, b1[, b2] in ascending powers of x. The proportional model reports b0 = 0 (fixed).
+    covariance, standard_errors
+        Covariance matrix and standard errors of ``coefficients`` (zero for a fixed b0).
+    residual_sd : float
+        s = √(Σwᵢ(yᵢ − ŷᵢ)²/(n − p)), in response units because the weights sum to n.
+    df_residual : int
+        n − p.
+    r_squared, adjusted_r_squared : float
+        1 − SSE/SST with SST = Σwᵢ(yᵢ − ȳ_w)² about the weighted mean response, adjusted by
+        (n − 1)/(n − p), for every model. The line through the origin is measured the same way (not
+        against Σwᵢyᵢ², the uncentred total customary for it, which makes it look better than a line
+        whose intercept is plainly needed), so that models fitted with one weighting compare; it can
+        then fall below zero. Different weightings measure the scatter differently, so R² does not
+        compare across weightings. When the responses do not vary at all (SST is round-off) there is
+        nothing to explain and R² is 0.
+    regression : RegressionTest
+        The F-test of whether the response changes with concentration (see :mod:`.regression_test`).
+    leverage, studentized_residuals, cooks_distance
+        Influence of each standard (see :mod:`.influence`); ``influence_flags`` names what stands out.
+    back_calculated, relative_error
+        Each standard read back through the curve, and 100·(found − nominal)/nominal. A
+        zero-concentration standard has no relative error (NaN; see ``relative_error_note``).
+    lack_of_fit : LackOfFit
+        The pure-error F-test, or the reason it could not be made.
+    """
+
+    model: Model
+    weighting: Weighting
+    concentration: FloatArray
+    response: FloatArray
+    levels: Levels
+    weight_model: WeightModel
+    basis: Basis
+    z_coefficients: FloatArray
+    z_covariance: FloatArray
+    coefficients: FloatArray
+    covariance: FloatArray
+    standard_errors: FloatArray
+    residual_sd: float
+    df_residual: int
+    r_squared: float
+    adjusted_r_squared: float
+    fitted: FloatArray
+    residuals: FloatArray
+    influence: Influence
+    lack_of_fit: LackOfFit
+    regression: RegressionTest
+    back_calculated: FloatArray
+    relative_error: FloatArray
+    quadratic_branch: int = 0
+    vertex_z: float | None = None
+    notes: tuple[str, ...] = field(default=())
+
+    # --- plain views of the result --------------------------------------------------------------
+    @property
+    def n_standards(self) -> int:
+        return int(self.concentration.size)
+
+    @property
+    def n_parameters(self) -> int:
+        return self.model.n_parameters
+
+    @property
+    def weights(self) -> FloatArray:
+        """Weights of the standards, scaled so that they sum to n."""
+        return self.weight_model.weights
+
+    @property
+    def leverage(self) -> FloatArray:
+        return self.influence.leverage
+
+    @property
+    def studentized_residuals(self) -> FloatArray:
+        """Externally studentized (deleted) residuals; NaN only where leverage is 1 (flagged)."""
+        return self.influence.studentized_residuals
+
+    @property
+    def cooks_distance(self) -> FloatArray:
+        """Cook's distance; NaN only where leverage is 1 (flagged ``DETERMINES_FIT``)."""
+        return self.influence.cooks_distance
+
+    @property
+    def influence_flags(self) -> tuple[tuple[InfluenceFlag, ...], ...]:
+        return self.influence.flags
+
+    @property
+    def calibrated_range(self) -> tuple[float, float]:
+        """Lowest and highest standard concentration."""
+        return float(self.concentration.min()), float(self.concentration.max())
+
+    @property
+    def vertex(self) -> float | None:
+        """Concentration at which a quadratic turns over (None for a straight line)."""
+        if self.vertex_z is None:
+            return None
+        return self.basis.centre + self.basis.scale * self.vertex_z
+
+    @property
+    def turns_over_in_range(self) -> bool:
+        """A quadratic whose vertex lies inside the calibrated range (responses there are reached twice)."""
+        vertex = self.vertex
+        low, high = self.calibrated_range
+        return vertex is not None and low < vertex < high
+
+    @property
+    def sum_abs_relative_error(self) -> float:
+        """Σ|%RE| over the standards with non-zero nominal concentration (and a solution)."""
+        values = self.relative_error[np.isfinite(self.relative_error)]
+        return float(np.sum(np.abs(values)))
+
+    @property
+    def relative_error_note(self) -> str | None:
+        zero = int(np.count_nonzero(self.concentration == 0))
+        if zero:
+            return f"{zero} standard(s) of zero nominal concentration have no relative error"
+        return None
+
+    @property
+    def sse(self) -> float:
+        """Weighted residual sum of squares Σwᵢ(yᵢ − ŷᵢ)²."""
+        return float(self.residual_sd**2 * self.df_residual)
+
+    def equation(self, digits: int = 10) -> str:
+        """The curve as text, coefficients to ``digits`` significant figures."""
+        names = ("", "·x", "·x²")
+        terms = []
+        for power, b in enumerate(self.coefficients):
+            if self.model is Model.PROPORTIONAL and power == 0:
+                continue
+            text = f"{abs(b):.{digits}g}{names[power]}"
+            terms.append((b < 0, text))
+        out = ("−" if terms[0][0] else "") + terms[0][1]
+        for negative, text in terms[1:]:
+            out += (" − " if negative else " + ") + text
+        return "y = " + out
+
+    def predict(self, concentration: object) -> FloatArray:
+        """Response the curve gives at ``concentration`` (array-like, any shape)."""
+        x = np.asarray(concentration, dtype=np.float64)
+        return self.basis.design(x) @ self.z_coefficients
+
+    def curve_sd(self, concentration: object) -> FloatArray:
+        """Standard error of the fitted curve (the mean response) at ``concentration``."""
+        phi = self.basis.design(np.asarray(concentration, dtype=np.float64))
+        return np.sqrt(np.einsum("...i,ij,...j->...", phi, self.z_covariance, phi))
+
+    def confidence_band(self, concentration: object, level: float = 0.95) -> tuple[FloatArray, FloatArray]:
+        """Lower and upper confidence band of the curve: ŷ ± t·SE(ŷ)."""
+        y = self.predict(concentration)
+        half = self._t(level) * self.curve_sd(concentration)
+        return y - half, y + half
+
+    def prediction_band(
+        self, concentration: object, level: float = 0.95, replicates: int = 1
+    ) -> tuple[FloatArray, FloatArray]:
+        """Band expected to hold the mean of ``replicates`` new responses: ŷ ± t·√(σ²/(m·w) + SE(ŷ)²).
+
+        The weight w of a new response follows the weighting (for 1/y-type weights, evaluated at
+        the predicted response); t is :meth:`band_t`. Inverting this band gives the calibration
+        interval of an unknown.
+        """
+        m = as_whole_count(replicates, "replicates", CalibrationInputError, "the number of new responses averaged")
+        self._t(level)
+        x = np.asarray(concentration, dtype=np.float64)
+        y = self.predict(x)
+        new = self.residual_sd**2 / (m * self.weight_model.weight_at(x, y))
+        curve = self.curve_sd(x) ** 2
+        half = self.band_t(0.5 + float(level) / 2.0, x, new, curve) * np.sqrt(new + curve)
+        return y - half, y + half
+
+    def band_t(
+        self, probability: float, concentration: FloatArray, new_variance: FloatArray, curve_variance: FloatArray
+    ) -> FloatArray:
+        """Student's t quantile for the prediction band at ``concentration``.
+
+        With weights known in form (none, 1/x, 1/y, known SDs…) it is t(probability; n − p). With a
+        variance function estimated from the standards the degrees of freedom are Satterthwaite's,
+        2/(2/(n − p) + (V_new/V)²·var_shape(x)), smaller where the estimated shape is less certain
+        (see :mod:`.variance_function`).
+        """
+        fit = self.weight_model.variance_fit
+        if fit is None:
+            shape = np.broadcast_shapes(np.shape(concentration), np.shape(new_variance), np.shape(curve_variance))
+            return np.full(shape, t_quantile(probability, self.df_residual))
+        total = new_variance + curve_variance
+        with np.errstate(invalid="ignore", divide="ignore"):
+            share = np.where(total > 0, new_variance / total, 0.0)
+        relative = 2.0 / self.df_residual + share**2 * fit.shape_variance(concentration)
+        return special.stdtrit(2.0 / relative, probability)
+
+    def _t(self, level: float) -> float:
+        value = as_confidence_level(level, CalibrationInputError)
+        return t_quantile(0.5 + value / 2.0, self.df_residual)

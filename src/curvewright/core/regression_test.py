@@ -1,0 +1,88 @@
+"""Does the response change with concentration at all? The F-test of the regression.
+
+The curve can turn a response into a concentration only if its response changes with
+concentration. The test asks whether every term that depends on x is zero together: with a the
+coefficients of the terms in x (the slope of a line; b1 and b2 of a quadratic) and C their
+covariance,
+
+    F = aᵀ·C⁻¹·a / q,  q = number of such terms,  p = P(F(q, n − p) > F)
+
+the Wald form of the regression F-test, which for a model with an intercept equals the analysis of
+variance ratio (SSR/q)/(SSE/(n − p)) and for one term is the square of the slope's t statistic
+(Draper & Smith, *Applied Regression Analysis*, 3rd ed., §1.3 and §6.1; Kutner et al., *Applied
+Linear Statistical Models*, 5th ed., §2.7 and §6.5). The curve is taken not to change with
+concentration when p ≥ 0.05 (common practice).
+
+Two limits are decided without the ratio, because round-off would decide them otherwise: a fitted
+response that is constant to round-off across the standards (all responses equal) does not change
+(F = 0, p = 1), and a curve that changes while every residual is round-off (exact standards) does
+(F = inf, p = 0).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ._arrays import FloatArray
+from .distributions import f_upper_tail
+from .least_squares import ROUNDOFF
+
+REGRESSION_ALPHA = 0.05
+"""Significance level below which the response is taken to change with concentration (common practice)."""
+
+
+@dataclass(frozen=True)
+class RegressionTest:
+    """Outcome of the F-test of the regression: does the response change with concentration?"""
+
+    f_statistic: float
+    df: tuple[int, int]
+    p_value: float
+
+    @property
+    def significant(self) -> bool:
+        """True when the response changes with concentration at the 5 % level."""
+        return self.p_value < REGRESSION_ALPHA
+
+    @property
+    def words(self) -> str:
+        """The outcome in words, with the statistic."""
+        numbers = (
+            f"F = {self.f_statistic:.4g} on ({self.df[0]}, {self.df[1]}) df, p = {self.p_value:.3g}"
+            if np.isfinite(self.f_statistic)
+            else "every standard lies on the curve"
+        )
+        if self.f_statistic == 0.0:
+            numbers = "the fitted response is the same at every standard"
+        if self.significant:
+            return f"the response changes with concentration ({numbers})"
+        return (
+            f"the response does not change significantly with concentration ({numbers}); the curve "
+            "cannot turn a response into a concentration"
+        )
+
+
+def regression_test(
+    z_coefficients: FloatArray,
+    z_covariance: FloatArray,
+    powers: tuple[int, ...],
+    fitted: FloatArray,
+    response: FloatArray,
+    residual_sd_is_roundoff: bool,
+    df_residual: int,
+) -> RegressionTest:
+    """Test the terms of powers ≥ 1 (in the fitting variable z; f is constant in x exactly when it is in z)."""
+    slope_terms = [i for i, p in enumerate(powers) if p >= 1]
+    q = len(slope_terms)
+    df = (q, df_residual)
+    change = float(np.ptp(fitted)) if fitted.size else 0.0
+    if change <= ROUNDOFF * float(np.max(np.abs(response), initial=0.0)):
+        return RegressionTest(0.0, df, 1.0)
+    if residual_sd_is_roundoff:
+        return RegressionTest(float("inf"), df, 0.0)
+    a = z_coefficients[slope_terms]
+    c = z_covariance[np.ix_(slope_terms, slope_terms)]
+    f = float(a @ np.linalg.solve(c, a)) / q
+    return RegressionTest(f, df, f_upper_tail(f, q, df_residual))
