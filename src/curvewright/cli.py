@@ -67,6 +67,8 @@ exit codes:
 
 
 def build_parser() -> argparse.ArgumentParser:
+    from .core.weighting import Weighting
+
     parser = argparse.ArgumentParser(
         prog="curvewright",
         description="Calibration curves for testing laboratories: fit, diagnose, quantify and report. "
@@ -90,7 +92,7 @@ def build_parser() -> argparse.ArgumentParser:
                         "otherwise the exit code is 2")
     q.add_argument("--model", choices=("linear", "quadratic", "proportional"),
                    help="override the run's model (with tables: give --weighting too)")
-    q.add_argument("--weighting", choices=("none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2"),
+    q.add_argument("--weighting", choices=tuple(w.value for w in Weighting),
                    help="override the weighting (with tables: give --model too)")
     q.add_argument("--profile", help="acceptance profile id or file (default: the run's)")
     q.add_argument("--level", type=float, help="confidence level of the intervals, e.g. 0.95 (default: the run's)")
@@ -472,26 +474,20 @@ def cli_answer(remedy) -> str:  # type: ignore[no-untyped-def]
 
 def _choose_recommended(run):  # type: ignore[no-untyped-def]
     """Each analyte gets the model and weighting the comparison recommends on its standards in the fit."""
-    from .core.comparison import compare
-    from .core.errors import CurvewrightError
-    from .core.run_analysis import analyse_run, response_value, run_profile
+    from .core.run_analysis import analyse_run
 
     provisional = analyse_run(replace(run, samples=()))
-    profile = run_profile(run)
+    profile = provisional.profile
     choices: dict[str, ModelChoice] = {}
     for a in provisional.analytes:
         analyte = a.analyte
-        x = [s.concentration for s in a.fitted_standards]
-        y = [response_value(s.response, s.internal_standard_response, analyte.uses_internal_standard)[0]
-             for s in a.fitted_standards]
-        try:
-            comparison = compare(x, y, profile=profile, level_tolerance=run.settings.level_tolerance)
-        except CurvewrightError as exc:
-            choices[analyte.name] = ModelChoice("not chosen", (f"no model comparison: {exc}",))
+        comparison = provisional.evidence[analyte.name]  # the run's one model evidence
+        if isinstance(comparison, str):
+            choices[analyte.name] = ModelChoice("not chosen", (f"no model comparison: {comparison}",))
             continue
         rec = comparison.recommended
         pick = (rec.model.value, rec.weighting.value)
-        reason = (f"recommended by the model comparison on the {len(x)} standards in the fit, acceptance profile "
+        reason = (f"recommended by the model comparison on the {len(a.fitted_standards)} standards in the fit, acceptance profile "
                   f"{profile.name!r}: " + "; ".join(comparison.reasons))
         run = _record_choice(run, analyte.name, *pick, reason, recommended=pick)
         choices[analyte.name] = ModelChoice("recommended", tuple(comparison.reasons))

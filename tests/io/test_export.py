@@ -147,3 +147,19 @@ def test_workbook_standards_import_back(tmp_path) -> None:
     assert [(s.concentration, s.response.value) for _, s in result.standards] == values
     assert result.units == {"concentration": "ng/mL"}
     assert any("columns not used" in w for w in result.warnings)
+
+
+def test_a_calibration_that_cannot_read_back_still_exports_its_standards(tmp_path) -> None:
+    from curvewright.core.run import Analyte, Reading, Run, Standard
+    from curvewright.io.xlsx_export import write_xlsx
+
+    # invented: a response that does not change with concentration, one standard excluded
+    flat = tuple(Standard(f"F{i}", float(c), Reading.of(50.0 + (0.4 if i % 2 else -0.4)), 1)
+                 for i, c in enumerate((1, 2, 3, 4, 5, 6)))
+    flat += (Standard("F-x", 7.0, Reading.of(50.1), 1, included=False, exclusion_reason="vial broken"),)
+    result = analyse_run(Run("flat batch (invented)", (Analyte("tin", "mg/L", "counts", flat),)))
+    path = tmp_path / "flat.xlsx"
+    write_xlsx(result, path)
+    rows = list(openpyxl.load_workbook(path)["Standards – tin"].iter_rows(min_row=4, values_only=True))
+    excluded = [r for r in rows if r[0] == "F-x"][0]
+    assert excluded[6] is None and excluded[-1] == "vial broken"

@@ -168,7 +168,7 @@ class InfluenceView(QWidget):
         self.legend = figures.new_legend()
         figures.legend_beside(self.widget.ci, self.legend, row=0)
         self.note = QLabel("Leverage against the externally studentized residual (as in the standards table and its "
-                           "flags); the curves are Cook's distance 4/n and 1; stars mark flagged standards.")
+                           "flags), with the limits the flags use; stars mark flagged standards.")
         self.note.setWordWrap(True)
         layout = QVBoxLayout(self)
         layout.setContentsMargins(0, 0, 0, 0)

@@ -6,7 +6,7 @@
   shaded) and the LOQ (dotted line);
 * relative error of each standard against concentration, with the acceptance limits;
 * influence: leverage against the externally studentized residual (the one the influence flags use),
-  with Cook's distance contours converted to that residual and the flag thresholds.
+  with the limits of the flags themselves.
 
 Legends sit outside the data, in a column of their own beside each plot (:func:`legend_beside`).
 
@@ -23,7 +23,7 @@ from PySide6.QtGui import QColor, QFont, QImage
 from PySide6.QtWidgets import QWidget
 
 from ..core.curve_trace import curve_trace
-from ..core.influence import STUDENTIZED_LIMIT, cooks_contour_external
+from ..core.influence import HIGH_LEVERAGE, influence_boundary
 from ..core.run import SampleKind
 from ..core.run_analysis import AnalyteResult
 from ..core.run_analysis import response_value
@@ -245,8 +245,9 @@ def draw_residuals(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem
 def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
                    font_size: int = 10) -> None:
     """Leverage against the externally studentized residual, the one the influence flags and the tables
-    use, with Cook's distance contours at 4/n and 1 converted to that residual, the |t| = 3 limit and
-    the 2p/n leverage limit."""
+    use, with the limits of the flags themselves: the Bonferroni outlier limit, and the boundary of the
+    influence rule (Cook's distance above the median of F(p, n − p) together with a residual beyond
+    chance for its leverage), drawn from :mod:`curvewright.core.influence`."""
     styled_plot(plot, "Leverage", "Studentized residual (external)", font_size)
     cal = a.calibration
     if cal is None:
@@ -254,20 +255,22 @@ def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem
     h = cal.leverage
     t = cal.studentized_residuals
     n, p = cal.n_standards, cal.n_parameters
-    grid = np.linspace(max(1e-3, 0.5 * h.min()), min(0.999, max(h.max() * 1.1, 2.5 * p / n)), 200)
-    for distance, style in ((4.0 / n, Qt.PenStyle.DashLine), (1.0, Qt.PenStyle.SolidLine)):
-        bound = cooks_contour_external(distance, p, n, grid)
-        pen = pg.mkPen(palette.LIMIT, width=1.2, style=style)
-        upper = plot.plot(*_finite(grid, bound), pen=pen)
-        plot.plot(*_finite(grid, -bound), pen=pen)
-        _name(legend, upper, f"Cook's distance {distance:.2g}" + (" (4/n)" if distance != 1.0 else ""))
-    studentized_pen = pg.mkPen("#888888", width=1, style=Qt.PenStyle.DashDotLine)
-    for sign in (1.0, -1.0):
-        plot.addItem(pg.InfiniteLine(pos=sign * STUDENTIZED_LIMIT, angle=0, pen=studentized_pen))
-    _name(legend, pg.PlotDataItem([0], [0], pen=studentized_pen), f"|studentized residual| = {STUDENTIZED_LIMIT:g}")
+    inf = cal.influence
+    grid = np.linspace(max(1e-3, 0.5 * float(np.nanmin(h))), min(0.999, max(float(np.nanmax(h)) * 1.1, 0.6)), 240)
+    if np.isfinite(inf.studentized_threshold):
+        outlier_pen = pg.mkPen(palette.LIMIT, width=1.2, style=Qt.PenStyle.DashLine)
+        for sign in (1.0, -1.0):
+            plot.addItem(pg.InfiniteLine(pos=sign * inf.studentized_threshold, angle=0, pen=outlier_pen))
+        _name(legend, pg.PlotDataItem([0], [0], pen=outlier_pen),
+              f"outlier limit (Bonferroni), |t| = {inf.studentized_threshold:.2f}")
+        bound = influence_boundary(grid, p, n, inf.cooks_threshold)
+        influence_pen = pg.mkPen(palette.LIMIT, width=1.2)
+        upper = plot.plot(*_finite(grid, bound), pen=influence_pen)
+        plot.plot(*_finite(grid, -bound), pen=influence_pen)
+        _name(legend, upper, "influence limit (Cook's D and residual)")
     leverage_pen = pg.mkPen("#888888", style=Qt.PenStyle.DotLine)
-    plot.addItem(pg.InfiniteLine(pos=2.0 * p / n, angle=90, pen=leverage_pen))
-    _name(legend, pg.PlotDataItem([0], [0], pen=leverage_pen), "leverage 2p/n")
+    plot.addItem(pg.InfiniteLine(pos=HIGH_LEVERAGE, angle=90, pen=leverage_pen))
+    _name(legend, pg.PlotDataItem([0], [0], pen=leverage_pen), f"leverage {HIGH_LEVERAGE:g} (noted)")
     finite = np.isfinite(t)
     flagged = np.array([bool(f) for f in cal.influence_flags])
     plain = finite & ~flagged
@@ -283,7 +286,8 @@ def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem
         label.setPos(float(h[i]), float(t[i]) if np.isfinite(t[i]) else 0.0)
         plot.addItem(label)
     limit = float(np.nanmax(np.abs(t[finite]))) if finite.any() else 1.0
-    plot.setYRange(-max(3.5, 1.15 * limit), max(3.5, 1.15 * limit))
+    top = max(1.15 * limit, 1.15 * inf.studentized_threshold if np.isfinite(inf.studentized_threshold) else 3.5, 3.5)
+    plot.setYRange(-top, top)
 
 
 def render(draw, a: AnalyteResult, width: int = 1400, height: int = 820, **options) -> QImage:  # type: ignore[no-untyped-def]

@@ -157,9 +157,7 @@ def measure_influence(
     if df > 1:
         studentized_threshold = float(special.stdtrit(df - 1, 1.0 - OUTLIER_ALPHA / (2 * n)))
         cooks_threshold = float(special.fdtri(p, df, COOKS_QUANTILE))
-        share = INFLUENCE_ALPHA * np.clip(leverage, 0.0, 1.0) / (2 * p)
-        with np.errstate(divide="ignore"):
-            influence_thresholds = special.stdtrit(df - 1, 1.0 - np.maximum(share, 1e-300))
+        influence_thresholds = influence_limit(leverage, p, n)
     else:
         studentized_threshold = cooks_threshold = float("nan")
         influence_thresholds = np.full(n, np.nan)
@@ -191,6 +189,27 @@ def measure_influence(
         influence_thresholds=frozen(np.asarray(influence_thresholds, dtype=float)),
         notes=notes,
     )
+
+
+def influence_limit(leverage: FloatArray, n_parameters: int, n_standards: int) -> FloatArray:
+    """The |externally studentized residual| beyond which the influence rule counts a standard of
+    each leverage as beyond chance: t(1 − α₂·h/(2p); n − p − 1), α₂ = :data:`INFLUENCE_ALPHA` (the
+    Bonferroni share in proportion to leverage; see the module's notes). NaN when n − p < 2."""
+    h = np.clip(np.asarray(leverage, dtype=np.float64), 0.0, 1.0)
+    df = n_standards - n_parameters
+    if df < 2:
+        return np.full(h.shape, np.nan)
+    share = INFLUENCE_ALPHA * h / (2 * n_parameters)
+    with np.errstate(divide="ignore"):
+        return special.stdtrit(df - 1, 1.0 - np.maximum(share, 1e-300))
+
+
+def influence_boundary(leverage: FloatArray, n_parameters: int, n_standards: int, cooks_threshold: float) -> FloatArray:
+    """|externally studentized residual| above which a standard of each leverage is flagged
+    ``INFLUENTIAL``: both its Cook's distance above ``cooks_threshold`` and its residual beyond
+    :func:`influence_limit`, so the larger of the two boundaries."""
+    return np.fmax(cooks_contour_external(cooks_threshold, n_parameters, n_standards, leverage),
+                   influence_limit(leverage, n_parameters, n_standards))
 
 
 def cooks_contour(distance: float, n_parameters: int, leverage: FloatArray) -> FloatArray:

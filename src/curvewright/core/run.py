@@ -184,7 +184,9 @@ class RunSettings:
     acceptance_profile: str = "general"
     custom_profile: Mapping[str, Any] | None = None
     rounding: RoundingRule = field(default_factory=RoundingRule)
-    level_tolerance: float = 0.005
+    level_tolerance: float | None = None
+    """Relative tolerance within which standards of different nominal concentration count as one level
+    (standards made up by mass); None: a level is the same label or the same nominal concentration."""
 
 
 @dataclass(frozen=True)

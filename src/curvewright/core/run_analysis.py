@@ -160,8 +160,8 @@ class RunResult:
     @cached_property
     def evidence(self) -> dict[str, "ModelComparison | str"]:
         """Per analyte, the comparison of candidate models on the standards in its fit, judged by the
-        run's profile and level tolerance (the one model evidence every output shows), or why there is
-        none."""
+        run's profile, level tolerance and level labels (the one model evidence every output shows), or
+        why there is none."""
         from .comparison import compare
 
         out: dict[str, ModelComparison | str] = {}
@@ -172,7 +172,8 @@ class RunResult:
             try:
                 out[a.analyte.name] = compare(a.calibration.concentration, a.calibration.response,
                                               include_proportional=True, profile=self.profile,
-                                              level_tolerance=self.run.settings.level_tolerance)
+                                              level_tolerance=self.run.settings.level_tolerance,
+                                              level_labels=[s.level for s in a.fitted_standards])
             except CurvewrightError as exc:
                 out[a.analyte.name] = str(exc)
         return out

@@ -26,7 +26,9 @@ FORMULA_SOURCES = (
     "Mandel's fitting test (ISO 8466-1; DIN 38402-51); end-level variance F-test (ISO 8466-1); "
     "Bartlett (1937) and Brown–Forsythe (1974) tests across levels.",
     "Leverage, externally studentized residuals (Belsley, Kuh & Welsch 1980), Cook's distance (Cook 1977); "
-    "thresholds 2p/n (Hoaglin & Welsch 1978), Cook's D > 1 (Cook & Weisberg 1982), 4/n and |t| > 3 (common practice).",
+    "flags: Bonferroni outlier limit on the studentized residual, and Cook's distance above the median of "
+    "F(p, n − p) with a residual beyond chance for its leverage (Cook & Weisberg 1982; split of a 5 % false-alarm "
+    "rate checked by simulation); leverage above 0.5 noted (Huber 1981).",
     "Calibration interval by inverting the prediction band for the mean of m responses (Fieller's interval for a "
     "straight line; Draper & Smith 1998, §3.2); standard error of x̂ by the delta method, equal to "
     "(s/b)·√(1/m + 1/n + (ȳ₀ − ȳ)²/(b²Σ(x − x̄)²)) for an unweighted line (Miller & Miller, ch. 5).",
@@ -154,7 +156,7 @@ def build_report(result: RunResult, *, generated: datetime | None = None) -> Rep
             blocks.append(FigureSlot("residuals", name, f"{name}: relative error of each back-calculated standard against "
                                      "concentration, with the acceptance limits."))
             blocks.append(FigureSlot("influence", name, f"{name}: leverage against the externally studentized residual, "
-                                     "with Cook's distance contours at 4/n and 1; flagged standards labelled."))
+                                     "with the outlier and influence limits the flags use; flagged standards labelled."))
         blocks.append(calibration_table(a, result))
         table, reasons = evidence_table(result, a)
         blocks.append(table)

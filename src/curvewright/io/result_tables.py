@@ -219,8 +219,10 @@ def standards_table(a: AnalyteResult) -> Table:
             continue
         back = re_ = None
         if cal is not None and used is not None and s.has_concentration:
-            q = cal.quantify([used])
-            back = _finite(q.estimate[0])
+            try:
+                back = _finite(cal.quantify([used]).estimate[0])
+            except CurvewrightError:
+                back = None  # the curve cannot read responses back (it says why in the calibration sheet)
             if back is not None and s.concentration != 0:
                 re_ = 100.0 * (back - s.concentration) / s.concentration
         if not s.has_concentration:

@@ -621,10 +621,12 @@ class _Reader:
                     rounding = RoundingRule(kind, digits, tie)
                 except CurvewrightError as exc:
                     self.fail(rp, str(exc))
-        tolerance = self.get(m, "level_tolerance", p, "number", 0.005, required=False)
-        if not (0 <= tolerance < 0.5):
-            self.fail(f"{p}.level_tolerance", f"{tolerance!r} must lie from 0 to 0.5")
-            tolerance = 0.005
+        tolerance = None
+        if m.get("level_tolerance") is not None:
+            tolerance = self.get(m, "level_tolerance", p, "number", 0.0, required=False)
+            if not (0 <= tolerance < 0.5):
+                self.fail(f"{p}.level_tolerance", f"{tolerance!r} must lie from 0 to 0.5")
+                tolerance = None
         return RunSettings(level, interval, limits, profile, custom, rounding, tolerance)
 
     def reading(self, m: Any, path: str, required: bool = True) -> Reading | None:
