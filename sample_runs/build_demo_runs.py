@@ -1,7 +1,7 @@
 """Build the demo run documents in this folder from invented instrument exports.
 
-Every number here is invented for demonstration: the laboratories, analytes, samples and
-responses are fictional. The responses are drawn from a seeded generator so the documents are
+Every number here is invented for demonstration: the laboratories, analysts, analytes, samples and
+responses are fictional, and named so that no one could take them for real ones. The responses are drawn from a seeded generator so the documents are
 reproducible (``tests/io/test_demo_runs.py`` checks that the committed files match this script).
 
 Run with: python sample_runs/build_demo_runs.py
@@ -20,7 +20,7 @@ from curvewright.core.rounding import RoundingRule
 from curvewright.core.run_analysis import analyse_run, run_profile
 from curvewright.core.run import RunSettings
 from curvewright.io import run_edits
-from curvewright.io.audit import file_sha256
+from curvewright.io.audit import Identity, file_sha256
 from curvewright.io.importing import analytes_from_import, import_samples, import_standards
 from curvewright.io.run_document import dumps_run
 from curvewright.io.tables import table_from_text
@@ -89,12 +89,12 @@ def nitrate_run() -> "Run":  # type: ignore[name-defined]  # noqa: F821
             order += 1
     samples_text = _tsv(["Sample", "Type", "Run order", "Dilution", "Nominal", "Replicate", "Absorbance"], samples)
     return _build(
-        "Alder Creek Water Lab — nitrate-N batch 2026-118",
+        "Demo Water Lab (invented) — nitrate-N batch 118",
         "Nitrate-N by UV absorbance at 220 nm; seven levels in triplicate; duplicate readings of each sample. " + INVENTED,
         standards_text=standards, samples_text=samples_text,
         settings=RunSettings(acceptance_profile="general", rounding=RoundingRule("decimals", 2)),
         choices={"nitrate-N": ("linear", "none", "lack of fit and Mandel's test do not reject the straight line; replicate variances equal")},
-        clock=Clock("2026-11-02T08:00:00"), user="j.okafor", analyte="nitrate-N", response_unit="AU",
+        clock=Clock("2026-11-02T08:00:00"), user=Identity("Demo Analyst One", "DEMO-01", "demo.analyst1"), analyte="nitrate-N", response_unit="AU",
     )
 
 
@@ -126,14 +126,14 @@ def plasma_run() -> "Run":  # type: ignore[name-defined]  # noqa: F821
         samples.append([sid, kind, order, dilution, "" if nominal is None else nominal, a, b])
     samples_text = _tsv(["Sample", "Type", "Run order", "Dilution", "Nominal", "Area", "IS area"], samples)
     return _build(
-        "Harrow Bioanalytical — veltaprine in human plasma, run 0457",
+        "Demo Bioanalysis Lab (invented) — veltaprine in plasma, run 457",
         "LC-MS/MS, analyte/internal-standard area ratio; duplicate standards at eight levels over three decades; "
         "QC samples at three levels in duplicate. 'Veltaprine' is an invented compound. " + INVENTED,
         standards_text=standards, samples_text=samples_text,
         settings=RunSettings(acceptance_profile="ich-m10-chromatographic", rounding=RoundingRule("significant", 3)),
         choices={"veltaprine": ("linear", "1/x^2", "replicate variance grows with concentration (ISO 8466-1 F-test) and "
                                 "the replicate SD grows in proportion to concentration, as 1/x² weighting assumes")},
-        clock=Clock("2026-11-05T13:30:00"), user="m.lindqvist", analyte="veltaprine", response_unit="area ratio",
+        clock=Clock("2026-11-05T13:30:00"), user=Identity("Demo Analyst Two", "DEMO-02", "demo.analyst2"), analyte="veltaprine", response_unit="area ratio",
     )
 
 
@@ -168,13 +168,13 @@ def zinc_run() -> "Run":  # type: ignore[name-defined]  # noqa: F821
         )
 
     return _build(
-        "Kestrel Materials Lab — zinc in alloy digests, batch 77",
+        "Demo Materials Lab (invented) — zinc in alloy digests, batch 77",
         "Flame emission; the response bends toward saturation, so a quadratic is used; the 10 mg/L standard sits "
         "alone at the top and carries high leverage. " + INVENTED,
         standards_text=standards, samples_text=samples_text,
         settings=RunSettings(acceptance_profile="general", rounding=RoundingRule("significant", 3)),
         choices={"zinc": ("quadratic", "none", "lack of fit and Mandel's test reject the straight line; the vertex lies above the top standard")},
-        clock=Clock("2026-11-09T10:15:00"), user="a.ferreira", extra=exclude, analyte="zinc", response_unit="counts",
+        clock=Clock("2026-11-09T10:15:00"), user=Identity("Demo Analyst Three", "DEMO-03", "demo.analyst3"), extra=exclude, analyte="zinc", response_unit="counts",
     )
 
 

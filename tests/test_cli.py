@@ -211,3 +211,22 @@ def test_a_failed_calibration_check_shows_its_recovery_and_fails_the_run(tmp_pat
     checks = data["analytes"][0]["calibration_checks"]
     assert checks["passed"] is False and checks["checks"][1]["recovery_percent"] == pytest.approx(144.0)
     assert any("CCV-1" in r for r in data["reasons"])
+
+
+def test_check_names_data_edited_by_hand_and_exits_non_zero(tmp_path) -> None:
+    path = tmp_path / "edited.json"
+    data = json.loads(DEMO_RUNS[0].read_text(encoding="utf-8"))
+    standard = data["analytes"][0]["standards"][4]
+    standard["response"]["value"] = 0.1531
+    standard["response"]["text"] = "0.1531"
+    sample = data["samples"][2]
+    sample["dilution_factor"] = 10
+    path.write_text(json.dumps(data, indent=1, ensure_ascii=False), encoding="utf-8")
+    result = run_cli("check", str(path))
+    assert result.returncode == 1, result.stdout
+    assert "data changed outside Curvewright after entry" in result.stdout
+    assert f"the response of standard {standard['id']} of {data['analytes'][0]['name']}" in result.stdout
+    assert f"the dilution factor of sample {sample['id']}" in result.stdout
+    # the unedited document verifies, and says what the chain shows
+    clean = run_cli("check", str(DEMO_RUNS[0]))
+    assert clean.returncode == 0 and "the data match the content hash of its last entry" in clean.stdout

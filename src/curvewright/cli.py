@@ -311,7 +311,7 @@ def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
 
     try:
         opened = open_run(path)
-        notes = [f"warning: {p}" for p in opened.chain_problems]
+        notes = [f"warning: {p}" for p in opened.integrity_problems]
         return _quantify(opened.run, options, source=path, notes=notes)
     except (CurvewrightError, OSError, InputError) as exc:
         return Outcome(EXIT_INPUT, "", None, f"{path}: {exc}")
@@ -910,15 +910,20 @@ def cmd_check(args: argparse.Namespace) -> int:
             code = max(code, EXIT_INPUT)
             continue
         run = opened.run
-        if opened.chain_problems:
-            print(f"{path}: valid document, but the audit trail does NOT verify:")
-            for p in opened.chain_problems:
+        if opened.integrity_problems:
+            what = ("the audit trail does NOT verify" if opened.chain_problems else
+                    "the data do NOT match the audit trail")
+            print(f"{path}: valid document, but {what}:")
+            for p in opened.integrity_problems:
                 print(f"  - {p}")
             code = max(code, EXIT_REJECTED)
         else:
             standards = sum(len(a.standards) for a in run.analytes)
-            print(f"{path}: valid; audit trail verified ({len(run.audit)} entries); {len(run.analytes)} analyte(s), "
-                  f"{standards} standards, {len(run.samples)} samples")
+            recorded = sum(1 for e in run.audit if e.content_sha256)
+            data = ("the data match the content hash of its last entry" if recorded else
+                    "no entry records a content hash (written by an earlier version), so edits to the data cannot be detected")
+            print(f"{path}: valid; audit trail verified ({len(run.audit)} entries); {data}; {len(run.analytes)} "
+                  f"analyte(s), {standards} standards, {len(run.samples)} samples")
         if opened.migrated_from is not None:
             print(f"  written in schema version {opened.migrated_from}; it opens as the current version")
     return code

@@ -39,6 +39,8 @@ def unanswered_dialogs_fail(monkeypatch):
 def settings(tmp_path) -> QSettings:
     values = QSettings(str(tmp_path / "settings.ini"), QSettings.Format.IniFormat)
     values.setValue("input/decimal_mark", ".")  # the tests type decimal points, whatever the machine's locale
+    values.setValue("identity/name", "Robin Example")  # an invented analyst, recorded in every audit entry
+    values.setValue("identity/id", "QA-0042")
     return values
 
 

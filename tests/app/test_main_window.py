@@ -24,7 +24,7 @@ def slope(window) -> float:
 
 def test_window_shows_the_run_the_caution_and_the_verdict(make_window) -> None:
     window = make_window(NITRATE)
-    assert window.windowTitle().startswith("Alder Creek Water Lab")
+    assert window.windowTitle().startswith("Demo Water Lab (invented)")
     assert "qualified laboratory personnel" in window.caution.text()
     assert window.caution.isVisible()
     assert "ACCEPTED" in window.verdict.text()

@@ -145,7 +145,7 @@ def test_a_new_run_asks_for_units_and_never_shows_a_verdict_without_standards(ma
     analyte = window.session.run.analytes[0]
     assert (analyte.name, analyte.concentration_unit) == ("nitrite-N", "mg/L")
     assert window.analyte_box.currentText() == "nitrite-N"
-    assert "not set" not in window.attention.text()
+    assert "concentration unit" not in window.attention.text()
     assert window.standards_model.headerData(sm.CONC, Qt.Orientation.Horizontal) == "Nominal (mg/L)"
     entry = window.session.run.audit[-1]
     assert entry.action == "analyte_edited" and entry.details["changes"]["name"] == {"old": "analyte 1", "new": "nitrite-N"}

@@ -17,6 +17,7 @@ from ..core.rounding import RoundingRule
 from ..core.run import Analyte, Run
 from ..core.run_analysis import analyse_run
 from ..io import run_edits
+from ..io.audit import Identity
 from ..io.importing import ImportResult, import_samples, import_standards
 from ..io.tables import RawTable, table_from_csv, table_from_text, table_from_xlsx, xlsx_sheet_names
 from .standards_model import INVALID
@@ -287,9 +288,14 @@ def _choices(labels: tuple[tuple[str, str], ...], current: str) -> QComboBox:
 class SettingsDialog(QDialog):
     """The run's confidence level, acceptance profile and rounding rule."""
 
-    def __init__(self, run: Run, parent: QWidget | None = None, decimal_mark: str = "system") -> None:
+    def __init__(self, run: Run, parent: QWidget | None = None, decimal_mark: str = "system",
+                 identity: Identity | None = None) -> None:
         super().__init__(parent)
         self.setWindowTitle("Run settings")
+        self.person_name = QLineEdit(identity.name if identity else "")
+        self.person_name.setPlaceholderText("as it should appear in the audit trail and the record")
+        self.person_id = QLineEdit(identity.id if identity else "")
+        self.person_id.setPlaceholderText("laboratory ID (optional)")
         self.decimal = QComboBox()
         for label, value in (("as the system sets it", "system"), (". (point)", "."), (", (comma)", ","),
                              ("ask: refuse values that read two ways", "ask")):
@@ -325,11 +331,17 @@ class SettingsDialog(QDialog):
         form.addRow("&Digits (figures or places)", self.rounding_digits)
         form.addRow("&Tie-break", self.rounding_tie)
         form.addRow("Decimal mark of typed and &pasted values", self.decimal)
+        form.addRow("Your &full name", self.person_name)
+        form.addRow("Your laboratory &ID", self.person_id)
         form.addRow("R&eason", self.reason)
         buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Ok | QDialogButtonBox.StandardButton.Cancel)
         buttons.accepted.connect(self.accept)
         buttons.rejected.connect(self.reject)
         form.addRow(buttons)
+
+    def identity(self) -> tuple[str, str]:
+        """The person's full name and laboratory ID as typed (kept in the app's settings, not the run)."""
+        return self.person_name.text().strip(), self.person_id.text().strip()
 
     def decimal_setting(self) -> str:
         return str(self.decimal.currentData())

@@ -11,6 +11,7 @@ from PySide6.QtWidgets import QMessageBox
 
 from ..core.errors import CurvewrightError
 from ..io import run_edits
+from ..io.audit import Identity, identity_from
 from ..io.run_document import open_recovery
 from .qt_runtime import ensure_application
 from .session import RunSession, pending_recoveries, recovery_files
@@ -39,7 +40,12 @@ def find_demo(name: str | None) -> Path:
     raise CurvewrightError(f"no demo run matches {name!r} (demo runs: {', '.join(p.stem for p in paths)}).")
 
 
-def offer_recovery(folder: Path | None, parent=None) -> RunSession | None:  # type: ignore[no-untyped-def]
+def settings_identity(settings: QSettings) -> Identity:
+    """The person working, as set in the app's settings (full name and laboratory ID), with the login."""
+    return identity_from(str(settings.value("identity/name", "") or ""), str(settings.value("identity/id", "") or ""))
+
+
+def offer_recovery(folder: Path | None, parent=None, identity: Identity | None = None) -> RunSession | None:  # type: ignore[no-untyped-def]
     """After a crash: offer to restore the work kept in a recovery file (one offer per file). The
     document the work belongs to is named in the recovery file itself."""
     for recovery, _ in pending_recoveries(folder):
@@ -63,8 +69,9 @@ def offer_recovery(folder: Path | None, parent=None) -> RunSession | None:  # ty
             except OSError:
                 pass  # offered again at the next start
         if opened is not None and answer == QMessageBox.StandardButton.Yes:
-            session = RunSession(opened.run, Path(source) if source else None, recovery_folder=folder)
-            session.apply(run_edits.record(opened.run, "recovered_after_crash", {"recovery_file": recovery.name}),
+            session = RunSession(opened.run, Path(source) if source else None, recovery_folder=folder, identity=identity)
+            session.apply(run_edits.record(opened.run, "recovered_after_crash", {"recovery_file": recovery.name},
+                                           user=session.identity),
                           "Restore unsaved work")
             return session
     return None
@@ -75,18 +82,19 @@ def build_window(path: Path | None = None, *, settings: QSettings | None = None,
 
     ensure_application()
     settings = settings or QSettings("Curvewright", "Curvewright")
-    session = offer_recovery(recovery_folder)
+    identity = settings_identity(settings)
+    session = offer_recovery(recovery_folder, identity=identity)
     problems: tuple[str, ...] = ()
     if session is None:
         if path is not None:
-            session, problems = RunSession.open(path, recovery_folder=recovery_folder)
+            session, problems = RunSession.open(path, recovery_folder=recovery_folder, identity=identity)
         else:
-            session = RunSession(blank_run(settings), recovery_folder=recovery_folder)
+            session = RunSession(blank_run(settings), recovery_folder=recovery_folder, identity=identity)
     window = MainWindow(session, settings)
     if path is not None:
         window._remember(path)
     if problems:
-        QMessageBox.warning(window, "Audit trail does not verify", "\n".join(problems))
+        QMessageBox.warning(window, "Not as Curvewright left it", "\n".join(problems))
     return window
 
 

@@ -34,6 +34,7 @@ from .dialogs import AnalyteDialog, ImportDialog, ReasonDialog, SettingsDialog, 
 from .paste_dialog import PasteDialog
 from .evidence_panel import EvidencePanel
 from .figures import plot_image_bytes
+from .main import settings_identity
 from .results_model import ResultsView
 from .samples_model import SamplesModel
 from .session import RunSession
@@ -54,7 +55,8 @@ def blank_run(settings: QSettings | None = None) -> Run:
                                   int(settings.value("defaults/rounding_digits", 3)),
                                   str(settings.value("defaults/rounding_tie", "half_up"))),
         )
-    return run_edits.new_run("Untitled run", (Analyte("analyte 1", "", ""),), settings=run_settings)
+    return run_edits.new_run("Untitled run", (Analyte("analyte 1", "", ""),), settings=run_settings,
+                             user=settings_identity(settings) if settings is not None else None)
 
 
 class MainWindow(QMainWindow):
@@ -381,6 +383,9 @@ class MainWindow(QMainWindow):
         without a result), each with where to fix it."""
         lines = []
         run = self.session.run
+        if not self.session.identity.name:
+            lines.append("Your full name is not set, so the audit trail records only your login "
+                         "(Analysis → Run settings…).")
         for a in run.analytes:
             if a.standards and not a.concentration_unit.strip():
                 lines.append(f"The concentration unit of {a.name} is not set (Analysis → Analyte name and units…).")
@@ -466,7 +471,8 @@ class MainWindow(QMainWindow):
 
     def new_run(self) -> None:
         if self.maybe_save():
-            self.replace_session(RunSession(blank_run(self.settings), recovery_folder=self.session.recovery_folder))
+            self.replace_session(RunSession(blank_run(self.settings), recovery_folder=self.session.recovery_folder,
+                                            identity=settings_identity(self.settings)))
 
     def open_dialog(self) -> None:
         path, _ = QFileDialog.getOpenFileName(self, "Open run", "", "Curvewright runs (*.json)")
@@ -477,15 +483,16 @@ class MainWindow(QMainWindow):
         if not self.maybe_save():
             return False
         try:
-            session, problems = RunSession.open(path, recovery_folder=self.session.recovery_folder)
+            session, problems = RunSession.open(path, recovery_folder=self.session.recovery_folder,
+                                                identity=settings_identity(self.settings))
         except CurvewrightError as exc:
             QMessageBox.warning(self, "Cannot open", str(exc))
             return False
         self.replace_session(session)
         self._remember(path)
         if problems:
-            QMessageBox.warning(self, "Audit trail does not verify",
-                                "This run opened, but its audit trail does not verify:\n\n" + "\n".join(problems))
+            QMessageBox.warning(self, "Not as Curvewright left it",
+                                "This run opened, but it is not as Curvewright left it:\n\n" + "\n".join(problems))
         return True
 
     def save(self) -> bool:
@@ -607,12 +614,13 @@ class MainWindow(QMainWindow):
                     if analyte.name in {a.name for a in run.analytes}:
                         existing = run.analyte(analyte.name)
                         run = run_edits.update_standards(run, analyte.name, existing.standards + analyte.standards,
-                                                         f"imported from {result.source}")
+                                                         f"imported from {result.source}", user=self.session.identity)
                         if not existing.concentration_unit and analyte.concentration_unit:
                             run = run_edits.edit_analyte(run, analyte.name, name=analyte.name,
                                                          concentration_unit=analyte.concentration_unit,
                                                          response_unit=existing.response_unit or analyte.response_unit,
-                                                         reason=f"units from the header of {result.source}")
+                                                         reason=f"units from the header of {result.source}",
+                                                         user=self.session.identity)
                     elif len(run.analytes) == 1 and not run.analytes[0].standards:
                         run = replace(run, analytes=(replace(analyte, name=analyte.name),))
                     else:
@@ -627,8 +635,9 @@ class MainWindow(QMainWindow):
                 if missing:
                     raise CurvewrightError(f"the samples name analyte {missing[0]!r}, which the run does not have; "
                                            "import its standards first or set the analyte name.")
-                run = run_edits.update_samples(run, run.samples + result.samples, f"imported from {result.source}")
-            run = run_edits.record(run, "imported", details)
+                run = run_edits.update_samples(run, run.samples + result.samples, f"imported from {result.source}",
+                                               user=self.session.identity)
+            run = run_edits.record(run, "imported", details, user=self.session.identity)
         except CurvewrightError as exc:
             QMessageBox.warning(self, f"Import {what}", str(exc))
             return False
@@ -750,7 +759,8 @@ class MainWindow(QMainWindow):
         if standard.included:
             reason = ask_exclusion(self, self.session.run, analyte, standard.id, row=row)
             if reason:
-                self.session.apply(run_edits.exclude_standard(self.session.run, analyte, standard.id, reason),
+                self.session.apply(run_edits.exclude_standard(self.session.run, analyte, standard.id, reason,
+                                                              user=self.session.identity),
                                    f"Exclude {standard.id}")
                 self.show_message(f"Standard {standard.id} (row {row + 1}) excluded: {reason}")
         else:
@@ -758,7 +768,8 @@ class MainWindow(QMainWindow):
                                   f"Why is standard {standard.id} (row {row + 1}) of {analyte} put back in the fit? "
                                   f"It was excluded because: {standard.exclusion_reason}", (), self)
             if dialog.exec() == ReasonDialog.DialogCode.Accepted:
-                self.session.apply(run_edits.include_standard(self.session.run, analyte, standard.id, dialog.reason()),
+                self.session.apply(run_edits.include_standard(self.session.run, analyte, standard.id, dialog.reason(),
+                                                              user=self.session.identity),
                                    f"Include {standard.id}")
                 self.show_message(f"Standard {standard.id} (row {row + 1}) is in the fit again.")
         self._select_row(self.standards_view, row)
@@ -783,7 +794,8 @@ class MainWindow(QMainWindow):
         else:
             reason = "the recommended model (see the model evidence)"
         try:
-            new_run = run_edits.choose_model(self.session.run, analyte, model, weighting, reason, recommended=recommended)
+            new_run = run_edits.choose_model(self.session.run, analyte, model, weighting, reason, recommended=recommended,
+                                             user=self.session.identity)
         except CurvewrightError as exc:
             self.show_message(str(exc))
             return False
@@ -797,11 +809,18 @@ class MainWindow(QMainWindow):
         self.show_message("Select a candidate and press 'Use the selected model'.")
 
     def edit_settings(self) -> None:
-        dialog = SettingsDialog(self.session.run, self, str(self.settings.value("input/decimal_mark", "system")))
+        dialog = SettingsDialog(self.session.run, self, str(self.settings.value("input/decimal_mark", "system")),
+                                identity=self.session.identity)
         if dialog.exec() != SettingsDialog.DialogCode.Accepted:
             return
+        name, person_id = dialog.identity()
+        self.settings.setValue("identity/name", name)
+        self.settings.setValue("identity/id", person_id)
+        self.session.identity = settings_identity(self.settings)
+        self._show_verdict(self.session.result)
         try:
-            new_run = run_edits.change_settings(self.session.run, dialog.settings(self.session.run), dialog.reason.text())
+            new_run = run_edits.change_settings(self.session.run, dialog.settings(self.session.run), dialog.reason.text(),
+                                                user=self.session.identity)
         except CurvewrightError as exc:
             QMessageBox.warning(self, "Settings", str(exc))
             return
@@ -819,7 +838,8 @@ class MainWindow(QMainWindow):
         name, ok = QInputDialog.getText(self, "Rename run", "Run name:", text=self.session.run.name)
         if ok and name.strip() and name.strip() != self.session.run.name:
             new_run = run_edits.record(replace(self.session.run, name=name.strip()), "settings_changed",
-                                       {"changes": {"name": {"old": self.session.run.name, "new": name.strip()}}})
+                                       {"changes": {"name": {"old": self.session.run.name, "new": name.strip()}}},
+                                       user=self.session.identity)
             self.session.apply(new_run, "Rename run")
 
     def edit_analyte(self) -> None:
@@ -829,7 +849,7 @@ class MainWindow(QMainWindow):
         if dialog.exec() != AnalyteDialog.DialogCode.Accepted:
             return
         try:
-            new_run = run_edits.edit_analyte(self.session.run, name, **dialog.values())
+            new_run = run_edits.edit_analyte(self.session.run, name, **dialog.values(), user=self.session.identity)
         except CurvewrightError as exc:
             QMessageBox.warning(self, "Analyte name and units", str(exc))
             return
@@ -850,7 +870,7 @@ class MainWindow(QMainWindow):
         new_run = run_edits.record(
             replace(self.session.run, analytes=self.session.run.analytes
                     + (Analyte(values["name"], values["concentration_unit"], values["response_unit"]),)),
-            "settings_changed", {"changes": {"analyte_added": values["name"]}, "reason": values["reason"]})
+            "settings_changed", {"changes": {"analyte_added": values["name"]}, "reason": values["reason"]}, user=self.session.identity)
         self.session.apply(new_run, f"Add analyte {values['name']}")
         self.analyte_box.setCurrentText(values["name"])
 
@@ -939,7 +959,8 @@ class MainWindow(QMainWindow):
             return
         response_unit = analyte.response_unit or next((c.unit for c in block.columns if c.field == "response" and c.unit), "")
         self.session.apply(run_edits.edit_analyte(self.session.run, name, name=name, concentration_unit=unit,
-                                                  response_unit=response_unit, reason="unit named in the pasted header"),
+                                                  response_unit=response_unit, reason="unit named in the pasted header",
+                                                  user=self.session.identity),
                            f"Set the units of {name} from the pasted header")
 
     def copy_selection(self) -> str:

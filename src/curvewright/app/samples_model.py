@@ -186,7 +186,8 @@ class SamplesModel(QAbstractTableModel):
         """Make the samples current as one undoable step (``reason`` for a removal); a changed raw value
         first asks why (``reason_provider``), and nothing changes when no reason is given."""
         def update(why: str = "") -> Run:
-            return run_edits.update_samples(self.session.run, samples, description, reason=why, removed_reason=reason)
+            return run_edits.update_samples(self.session.run, samples, description, reason=why, removed_reason=reason,
+                                            user=self.session.identity)
 
         try:
             new_run = ask_reason_when_required(update, self.reason_provider)

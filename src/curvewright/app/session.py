@@ -21,7 +21,8 @@ from ..core.comparison import ModelComparison
 from ..core.errors import CurvewrightError
 from ..core.run import Run
 from ..core.run_analysis import RunResult, analyse_run
-from ..io.audit import append_entry
+from ..io.audit import Identity, append_entry, identity_from
+from ..io.integrity import content_sha256
 from ..io.run_document import document_unchanged, open_recovery, open_run, save_recovery, save_run
 
 DEBOUNCE_MS = 120
@@ -50,7 +51,8 @@ class RunChange(QUndoCommand):
         self.session._set_run(self._with_trail(self.before, "change_undone"))
 
     def _with_trail(self, content: Run, action: str) -> Run:
-        trail = append_entry(self.session.run.audit, action, {"change": self.text()})
+        trail = append_entry(self.session.run.audit, action, {"change": self.text()}, user=self.session.identity,
+                             content_sha256=content_sha256(content))
         return replace(content, audit=trail)
 
 
@@ -128,11 +130,14 @@ class RunSession(QObject):
     recovery_failed = Signal(str)       # what cannot be kept for recovery, and why (once until it works again)
 
     def __init__(self, run: Run, path: Path | None = None, *, recovery_folder: Path | None = None,
-                 parent: QObject | None = None, disk_sha256: str | None = None) -> None:
+                 parent: QObject | None = None, disk_sha256: str | None = None,
+                 identity: Identity | None = None) -> None:
         super().__init__(parent)
         self._run = run
         self._path = path
         self.disk_sha256 = disk_sha256
+        self.identity = identity or identity_from()
+        """Who is working: full name and ID from the settings, recorded in every audit entry."""
         """SHA-256 of the file as this session last read or wrote it: a save refuses to overwrite a
         file someone else has changed since (see :meth:`changed_on_disk`)."""
         self._unsaved_records = False
@@ -194,7 +199,8 @@ class RunSession(QObject):
         The analysis does not read the audit trail, so a current result stays current: it is carried
         over to the run with the new entry instead of being computed again."""
         previous = self._run
-        self._run = replace(self._run, audit=append_entry(self._run.audit, action, details))
+        self._run = replace(self._run, audit=append_entry(self._run.audit, action, details, user=self.identity,
+                                                          content_sha256=content_sha256(previous)))
         if self.result is not None and self.result.run is previous:
             self.result = replace(self.result, run=self._run)
         self._unsaved_records = True
@@ -241,7 +247,7 @@ class RunSession(QObject):
     @classmethod
     def open(cls, path: Path, **kwargs) -> tuple["RunSession", tuple[str, ...]]:  # type: ignore[no-untyped-def]
         opened = open_run(path)
-        return cls(opened.run, Path(path), disk_sha256=opened.sha256, **kwargs), opened.chain_problems
+        return cls(opened.run, Path(path), disk_sha256=opened.sha256, **kwargs), opened.integrity_problems
 
     # --- recovery ----------------------------------------------------------------------------------
     def recovery_path(self) -> Path:

@@ -228,7 +228,8 @@ class StandardsModel(QAbstractTableModel):
         """Make the standards current as one undoable step; a changed raw value first asks why
         (``reason_provider``), and nothing changes when no reason is given."""
         def update(reason: str = "") -> Run:
-            return run_edits.update_standards(self.session.run, self.analyte_name, standards, description, reason=reason)
+            return run_edits.update_standards(self.session.run, self.analyte_name, standards, description, reason=reason,
+                                              user=self.session.identity)
 
         try:
             new_run = ask_reason_when_required(update, self.reason_provider)
@@ -294,7 +295,8 @@ class StandardsModel(QAbstractTableModel):
     def remove_row(self, row: int, reason: str) -> None:
         s = self.standards[row]
         try:
-            self.session.apply(run_edits.remove_standard(self.session.run, self.analyte_name, s.id, reason), f"Remove {s.id}")
+            self.session.apply(run_edits.remove_standard(self.session.run, self.analyte_name, s.id, reason,
+                                                         user=self.session.identity), f"Remove {s.id}")
         except RunError as exc:
             self.message.emit(str(exc))
 

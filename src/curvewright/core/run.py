@@ -191,7 +191,13 @@ class RunSettings:
 
 @dataclass(frozen=True)
 class AuditEntry:
-    """One entry of the append-only audit trail; ``hash`` chains it to the entry before."""
+    """One entry of the append-only audit trail; ``hash`` chains it to the entry before.
+
+    ``user`` is the operating-system login; ``analyst`` and ``analyst_id`` the person's full name and
+    laboratory ID as set in the settings or given on the command line (empty when not set);
+    ``content_sha256`` the SHA-256 of the run's content after the change (empty in entries written
+    before it was recorded).
+    """
 
     time_utc: str
     user: str
@@ -199,6 +205,9 @@ class AuditEntry:
     details: Mapping[str, Any]
     previous_hash: str
     hash: str
+    analyst: str = ""
+    analyst_id: str = ""
+    content_sha256: str = ""
 
 
 @dataclass(frozen=True)

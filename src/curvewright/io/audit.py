@@ -1,9 +1,16 @@
 """The audit trail: append-only, hash-chained entries inside the run document.
 
-Each entry records the UTC time, the operating-system user, the action and its details (old and new
-values, the reason, the source file's SHA-256…), and the SHA-256 of the entry before it. Its own
-hash is the SHA-256 of its canonical JSON (sorted keys, no spaces, UTF-8) without the hash field,
-so any later change to any entry, or a removed or reordered entry, breaks the chain.
+Each entry records the UTC time, the person (full name and laboratory ID, with the operating-system
+login beside them), the action and its details (old and new values, the reason, the source file's
+SHA-256…), the SHA-256 of the run's content after the change (:mod:`.integrity`), and the SHA-256 of
+the entry before it. Its own hash is the SHA-256 of its canonical JSON (sorted keys, no spaces,
+UTF-8) without the hash field, so any later change to any entry, or a removed or reordered entry,
+breaks the chain; and data changed after the last entry no longer match its content hash.
+
+What the chain can show: an accidental or casual edit of the file (a value typed over, an entry
+deleted) is detected. What it cannot show on its own: someone who edits the data and rebuilds the
+whole chain with this program's published rules leaves a chain that verifies. Signatures made with a
+laboratory key (:mod:`.signatures`) close that gap for everything they sign.
 """
 
 from __future__ import annotations
@@ -11,6 +18,8 @@ from __future__ import annotations
 import getpass
 import hashlib
 import json
+import os
+from dataclasses import dataclass
 from datetime import datetime, timezone
 from typing import Any, Callable, Mapping, Sequence
 
@@ -38,9 +47,42 @@ ACTIONS = (
     "change_undone",
     "change_redone",
     "recovered_after_crash",
+    "signed",
+    "approval_withdrawn",
+    "method_applied",
 )
 
 Clock = Callable[[], datetime]
+
+
+@dataclass(frozen=True)
+class Identity:
+    """Who acts: full name and laboratory ID (as set by the person), and the operating-system login."""
+
+    name: str = ""
+    id: str = ""
+    login: str = ""
+
+    @property
+    def words(self) -> str:
+        """The person as a record shows them: "Name (ID 123; login abc)", or the login alone."""
+        login = self.login or current_user()
+        if not self.name:
+            return f"{login} (login; full name not set)"
+        return f"{self.name} ({'ID ' + self.id + '; ' if self.id else ''}login {login})"
+
+
+ANALYST_ENV, ANALYST_ID_ENV = "CURVEWRIGHT_ANALYST", "CURVEWRIGHT_ANALYST_ID"
+"""Environment variables that name the person for the command line when ``--analyst`` is not given."""
+
+
+def identity_from(name: str | None = None, analyst_id: str | None = None,
+                  environ: Mapping[str, str] | None = None) -> Identity:
+    """The person acting: the given name and ID, else the environment's, with the login."""
+    env = os.environ if environ is None else environ
+    return Identity((name if name is not None else env.get(ANALYST_ENV, "")).strip(),
+                    (analyst_id if analyst_id is not None else env.get(ANALYST_ID_ENV, "")).strip(),
+                    current_user())
 
 
 def current_user() -> str:
@@ -55,10 +97,23 @@ def utc_now() -> datetime:
     return datetime.now(timezone.utc)
 
 
-def entry_hash(time_utc: str, user: str, action: str, details: Mapping[str, Any], previous_hash: str) -> str:
-    payload = {"time_utc": time_utc, "user": user, "action": action, "details": details, "previous_hash": previous_hash}
+def entry_hash(time_utc: str, user: str, action: str, details: Mapping[str, Any], previous_hash: str,
+               analyst: str = "", analyst_id: str = "", content_sha256: str = "") -> str:
+    """SHA-256 of the entry's canonical JSON. The person and the content hash are part of it when
+    recorded (entries of earlier versions, without them, keep their hashes)."""
+    payload: dict[str, Any] = {"time_utc": time_utc, "user": user, "action": action, "details": details,
+                               "previous_hash": previous_hash}
+    for key, value in (("analyst", analyst), ("analyst_id", analyst_id), ("content_sha256", content_sha256)):
+        if value:
+            payload[key] = value
     canonical = json.dumps(payload, sort_keys=True, separators=(",", ":"), ensure_ascii=False, allow_nan=False)
     return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
+
+
+def hash_of(e: AuditEntry) -> str:
+    """The hash an entry must carry."""
+    return entry_hash(e.time_utc, e.user, e.action, e.details, e.previous_hash, e.analyst, e.analyst_id,
+                      e.content_sha256)
 
 
 def append_entry(
@@ -66,17 +121,22 @@ def append_entry(
     action: str,
     details: Mapping[str, Any],
     *,
-    user: str | None = None,
+    user: "Identity | str | None" = None,
     clock: Clock = utc_now,
+    content_sha256: str = "",
 ) -> tuple[AuditEntry, ...]:
-    """The trail with one new entry at its end."""
+    """The trail with one new entry at its end. ``user`` is the person acting (an :class:`Identity`,
+    or a login name); ``content_sha256`` the hash of the run's content after the change."""
     if action not in ACTIONS:
         raise ValueError(f"audit action {action!r} is not one of {', '.join(ACTIONS)}")
     previous = trail[-1].hash if trail else GENESIS
     time_utc = clock().astimezone(timezone.utc).isoformat(timespec="milliseconds").replace("+00:00", "Z")
-    who = user or current_user()
+    person = user if isinstance(user, Identity) else Identity(login=user or "")
+    who = person.login or current_user()
     plain = json.loads(json.dumps(dict(details), allow_nan=False))
-    entry = AuditEntry(time_utc, who, action, plain, previous, entry_hash(time_utc, who, action, plain, previous))
+    entry = AuditEntry(time_utc, who, action, plain, previous,
+                       entry_hash(time_utc, who, action, plain, previous, person.name, person.id, content_sha256),
+                       person.name, person.id, content_sha256)
     return (*trail, entry)
 
 
@@ -91,7 +151,7 @@ def verify_chain(trail: Sequence[AuditEntry]) -> tuple[str, ...]:
                 "removed, inserted or reordered"
             )
         try:
-            expected = entry_hash(e.time_utc, e.user, e.action, e.details, e.previous_hash)
+            expected = hash_of(e)
         except (TypeError, ValueError):
             expected = ""
         if e.hash != expected:

@@ -49,8 +49,9 @@ from ..core.run import (
 )
 from ..core.weighting import Weighting
 from .atomic import exclusive_lock, write_atomically
-from .audit import Clock, append_entry, file_sha256, file_sha256_streamed, utc_now, verify_chain
+from .audit import Clock, Identity, append_entry, file_sha256, file_sha256_streamed, utc_now, verify_chain
 from .errors import DocumentError, ExportError
+from .integrity import ContentChange, content_change, content_sha256, digest_of
 
 FORMAT = "curvewright-run"
 SCHEMA_VERSION = 1
@@ -85,6 +86,13 @@ class OpenedRun:
     migrated_from: int | None
     sha256: str | None = None
     """SHA-256 of the bytes read (None when parsed from text): compare with :func:`document_unchanged`."""
+    content_change: ContentChange | None = None
+    """The data differ from the content hash the audit trail recorded last (edited outside Curvewright)."""
+
+    @property
+    def integrity_problems(self) -> tuple[str, ...]:
+        """Everything that is not as Curvewright left it: the chain's problems and changed data."""
+        return self.chain_problems + ((str(self.content_change),) if self.content_change else ())
 
     @property
     def chain_verified(self) -> bool:
@@ -163,6 +171,9 @@ def run_to_mapping(run: Run) -> dict[str, Any]:
                 "details": dict(e.details),
                 "previous_hash": e.previous_hash,
                 "hash": e.hash,
+                **({"analyst": e.analyst} if e.analyst else {}),
+                **({"analyst_id": e.analyst_id} if e.analyst_id else {}),
+                **({"content_sha256": e.content_sha256} if e.content_sha256 else {}),
             }
             for e in run.audit
         ],
@@ -170,8 +181,11 @@ def run_to_mapping(run: Run) -> dict[str, Any]:
 
 
 def dumps_run(run: Run) -> str:
+    """The run document's text: the run, and the digest of its content (:mod:`.integrity`)."""
     try:
-        return json.dumps(run_to_mapping(run), indent=1, ensure_ascii=False, allow_nan=False) + "\n"
+        mapping = run_to_mapping(run)
+        mapping["content"] = digest_of(mapping)
+        return json.dumps(mapping, indent=1, ensure_ascii=False, allow_nan=False) + "\n"
     except ValueError as exc:
         raise DocumentError(f"run {run.name!r} holds a value JSON cannot store ({exc}).") from None
 
@@ -202,7 +216,7 @@ def append_to_run_document(
     path: str | Path,
     entries: Iterable[tuple[str, Mapping[str, Any]]],
     *,
-    user: str | None = None,
+    user: "Identity | str | None" = None,
     clock: Clock = utc_now,
 ) -> Run:
     """Append audit entries ``(action, details)`` to the document at ``path`` and save it: the
@@ -216,8 +230,9 @@ def append_to_run_document(
         with exclusive_lock(path) as locked:
             opened = open_run(path)
             trail = opened.run.audit
+            unchanged = content_sha256(opened.run)
             for action, details in entries:
-                trail = append_entry(trail, action, details, user=user, clock=clock)
+                trail = append_entry(trail, action, details, user=user, clock=clock, content_sha256=unchanged)
             run = replace(opened.run, audit=trail)
             data = _readable_document(run, path)
             if not locked and not document_unchanged(path, opened.sha256):
@@ -295,7 +310,7 @@ def open_recovery(path: str | Path) -> tuple[OpenedRun, str]:
             source = companion.read_text(encoding="utf-8") if companion.exists() else ""
         except (OSError, UnicodeDecodeError):
             source = ""
-    return OpenedRun(opened.run, path, opened.chain_problems, opened.migrated_from, file_sha256(raw)), source
+    return replace(opened, path=path, sha256=file_sha256(raw)), source
 
 
 def _reading_out(reading: Reading | None) -> dict[str, Any] | None:
@@ -315,7 +330,7 @@ def open_run(path: str | Path) -> OpenedRun:
     path = Path(path)
     raw = _read_document(path)
     opened = loads_run(raw, origin=str(path))
-    return OpenedRun(opened.run, path, opened.chain_problems, opened.migrated_from, file_sha256(raw))
+    return replace(opened, path=path, sha256=file_sha256(raw))
 
 
 def _read_document(path: Path) -> bytes:
@@ -501,7 +516,8 @@ def run_from_mapping(mapping: Any, origin: str = "run document") -> OpenedRun:
     if reader.problems:
         raise DocumentError(f"{origin}: the document has {len(reader.problems)} problem(s)", tuple(reader.problems))
     assert run is not None
-    return OpenedRun(run, None, verify_chain(run.audit), migrated_from)
+    return OpenedRun(run, None, verify_chain(run.audit), migrated_from,
+                     content_change=content_change(run, mapping.get("content")))
 
 
 def _refuse_constant(name: str) -> None:
@@ -762,4 +778,7 @@ class _Reader:
             details=self.get(m, "details", path, "object", {}),
             previous_hash=self.get(m, "previous_hash", path, "text", ""),
             hash=self.get(m, "hash", path, "text", ""),
+            analyst=self.get(m, "analyst", path, "text", "", required=False),
+            analyst_id=self.get(m, "analyst_id", path, "text", "", required=False),
+            content_sha256=self.get(m, "content_sha256", path, "text", "", required=False),
         )

@@ -12,12 +12,13 @@ from ..core.acceptance import AcceptanceProfile, load_profile
 from ..core.models import Model
 from ..core.run import Analyte, Reading, Run, RunError, RunSettings, Sample, Standard
 from ..core.weighting import Weighting
-from .audit import Clock, append_entry, utc_now
+from .audit import Clock, Identity, append_entry, utc_now
+from .integrity import content_sha256
 
 
 def new_run(
     name: str, analytes: tuple[Analyte, ...], *, description: str = "", settings: RunSettings | None = None,
-    user: str | None = None, clock: Clock = utc_now,
+    user: Identity | str | None = None, clock: Clock = utc_now,
 ) -> Run:
     if not name.strip():
         raise RunError("run name: a run needs a name.")
@@ -25,13 +26,13 @@ def new_run(
     return _log(run, "run_created", {"name": name, "analytes": [a.name for a in analytes]}, user, clock)
 
 
-def record(run: Run, action: str, details: Mapping[str, Any], *, user: str | None = None, clock: Clock = utc_now) -> Run:
+def record(run: Run, action: str, details: Mapping[str, Any], *, user: Identity | str | None = None, clock: Clock = utc_now) -> Run:
     """Append an entry without changing anything else (imports, exports, reports)."""
     return _log(run, action, details, user, clock)
 
 
 def exclude_standard(
-    run: Run, analyte: str, standard_id: str, reason: str, *, user: str | None = None, clock: Clock = utc_now
+    run: Run, analyte: str, standard_id: str, reason: str, *, user: Identity | str | None = None, clock: Clock = utc_now
 ) -> Run:
     if not reason.strip():
         raise RunError(f"excluding standard {standard_id!r} of {analyte}: give the reason for the exclusion.")
@@ -45,7 +46,7 @@ def exclude_standard(
 
 
 def include_standard(
-    run: Run, analyte: str, standard_id: str, reason: str, *, user: str | None = None, clock: Clock = utc_now
+    run: Run, analyte: str, standard_id: str, reason: str, *, user: Identity | str | None = None, clock: Clock = utc_now
 ) -> Run:
     a = run.analyte(analyte)
     s = a.standard(standard_id)
@@ -59,7 +60,7 @@ def include_standard(
 
 def edit_standard(
     run: Run, analyte: str, standard_id: str, field: str, value: float | Reading, reason: str = "",
-    *, user: str | None = None, clock: Clock = utc_now,
+    *, user: Identity | str | None = None, clock: Clock = utc_now,
 ) -> Run:
     """Change the concentration, response or IS response of one standard (old → new in the trail)."""
     a = run.analyte(analyte)
@@ -87,7 +88,7 @@ def edit_standard(
 
 def choose_model(
     run: Run, analyte: str, model: str, weighting: str, reason: str, *,
-    recommended: tuple[str, str] | None = None, user: str | None = None, clock: Clock = utc_now,
+    recommended: tuple[str, str] | None = None, user: Identity | str | None = None, clock: Clock = utc_now,
 ) -> Run:
     """Record the calibration function chosen for an analyte; a choice against the recommendation needs a reason."""
     m, w = Model.parse(model).value, Weighting.parse(weighting).value
@@ -103,7 +104,7 @@ def choose_model(
 
 
 def change_profile(
-    run: Run, profile: str | AcceptanceProfile, reason: str, *, user: str | None = None, clock: Clock = utc_now
+    run: Run, profile: str | AcceptanceProfile, reason: str, *, user: Identity | str | None = None, clock: Clock = utc_now
 ) -> Run:
     if isinstance(profile, AcceptanceProfile):
         settings = replace(run.settings, acceptance_profile=profile.id, custom_profile=profile.to_mapping())
@@ -118,7 +119,7 @@ def change_profile(
 
 def edit_analyte(
     run: Run, analyte: str, *, name: str, concentration_unit: str, response_unit: str, reason: str = "",
-    user: str | None = None, clock: Clock = utc_now,
+    user: Identity | str | None = None, clock: Clock = utc_now,
 ) -> Run:
     """Rename an analyte or set its units as one audited step (old → new in the trail).
 
@@ -203,8 +204,10 @@ def _with_standard(analyte: Analyte, standard: Standard) -> Analyte:
     return replace(analyte, standards=tuple(standard if s.id == standard.id else s for s in analyte.standards))
 
 
-def _log(run: Run, action: str, details: Mapping[str, Any], user: str | None, clock: Clock) -> Run:
-    return replace(run, audit=append_entry(run.audit, action, details, user=user, clock=clock))
+def _log(run: Run, action: str, details: Mapping[str, Any], user: Identity | str | None, clock: Clock) -> Run:
+    """The run with one audit entry: the person, the change, and the hash of the content after it."""
+    return replace(run, audit=append_entry(run.audit, action, details, user=user, clock=clock,
+                                           content_sha256=content_sha256(run)))
 
 
 def _standard_fields(s: Standard) -> dict[str, Any]:
@@ -218,7 +221,7 @@ def _standard_fields(s: Standard) -> dict[str, Any]:
 
 def update_standards(
     run: Run, analyte: str, standards: tuple[Standard, ...], note: str, *, reason: str = "",
-    user: str | None = None, clock: Clock = utc_now,
+    user: Identity | str | None = None, clock: Clock = utc_now,
 ) -> Run:
     """Replace an analyte's standards (typed or pasted values, added rows) as one audited step.
 
@@ -261,7 +264,7 @@ def update_standards(
 
 
 def remove_standard(
-    run: Run, analyte: str, standard_id: str, reason: str, *, user: str | None = None, clock: Clock = utc_now
+    run: Run, analyte: str, standard_id: str, reason: str, *, user: Identity | str | None = None, clock: Clock = utc_now
 ) -> Run:
     """Remove a standard entered by mistake. Its values stay in the audit entry; to keep a measured
     standard out of the fit, exclude it instead."""
@@ -284,7 +287,7 @@ def _sample_fields(s: Sample) -> dict[str, Any]:
 
 def update_samples(
     run: Run, samples: tuple[Sample, ...], note: str, *, reason: str = "", removed_reason: str = "",
-    user: str | None = None, clock: Clock = utc_now,
+    user: Identity | str | None = None, clock: Clock = utc_now,
 ) -> Run:
     """Replace the run's samples as one audited step (changed fields old → new, added, removed).
 
@@ -325,7 +328,7 @@ def update_samples(
 
 
 def change_settings(
-    run: Run, settings: RunSettings, reason: str, *, user: str | None = None, clock: Clock = utc_now
+    run: Run, settings: RunSettings, reason: str, *, user: Identity | str | None = None, clock: Clock = utc_now
 ) -> Run:
     """New settings (confidence level, interval, limits method, profile, rounding) as one audited step."""
     before, after = _settings_fields(run.settings), _settings_fields(settings)

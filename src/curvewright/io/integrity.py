@@ -1,0 +1,141 @@
+"""The identity of a run's content, and what changed when the file was edited outside Curvewright.
+
+The content hash is a SHA-256 over everything the analysis reads — analytes, standards, samples,
+settings, name and description — in canonical JSON (keys sorted, no insignificant white space,
+UTF-8). It leaves out the audit trail (which records the hash after every change), the signatures
+(which sign it) and the digest below. Two runs with the same hash hold the same data.
+
+Every saved document also carries a digest of its parts: for each standard, sample and analyte a
+short hash of each of its fields. When the data no longer match the last audit entry's content hash,
+comparing the parts names what was changed ("the response of standard N-L2-1 of nitrate-N"). The
+parts only serve to name a change; detecting it rests on the full hash in the hash-chained trail.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+from dataclasses import dataclass
+from typing import Any, Mapping
+
+from ..core.run import Run
+
+LEFT_OUT = ("audit", "signatures", "content")
+"""Parts of the run document that are not content: they record, sign and digest the content."""
+STANDARD_FIELDS = ("id", "level", "replicate", "concentration", "concentration_text", "response",
+                   "internal_standard_response", "included", "exclusion_reason")
+SAMPLE_FIELDS = ("kind", "run_order", "dilution_factor", "nominal", "measurements")
+ANALYTE_FIELDS = ("concentration_unit", "response_unit", "model", "weighting", "choice_reason",
+                  "uses_internal_standard")
+FIELD_WORDS = {"concentration": "nominal concentration", "concentration_text": "nominal concentration (as typed)",
+               "internal_standard_response": "internal-standard response", "exclusion_reason": "exclusion reason",
+               "included": "inclusion", "run_order": "run order", "dilution_factor": "dilution factor",
+               "measurements": "responses", "nominal": "nominal value", "concentration_unit": "concentration unit",
+               "response_unit": "response unit", "choice_reason": "reason for the model",
+               "uses_internal_standard": "use of an internal standard"}
+SHORT = 8
+"""Hex digits of each field's hash in the parts digest (enough to name a change, not to prove one)."""
+
+
+def _canonical(value: Any) -> bytes:
+    return json.dumps(value, sort_keys=True, ensure_ascii=False, separators=(",", ":"), allow_nan=False).encode("utf-8")
+
+
+def content_of(mapping: Mapping[str, Any]) -> dict[str, Any]:
+    """The content part of a run document's mapping (see :data:`LEFT_OUT`)."""
+    return {k: v for k, v in mapping.items() if k not in LEFT_OUT}
+
+
+def sha256_of_content(mapping: Mapping[str, Any]) -> str:
+    """SHA-256 (hex) of a run document mapping's content in canonical JSON."""
+    return hashlib.sha256(_canonical(content_of(mapping))).hexdigest()
+
+
+def content_sha256(run: Run) -> str:
+    """SHA-256 (hex) of the run's content in canonical JSON."""
+    from .run_document import run_to_mapping
+
+    return sha256_of_content(run_to_mapping(run))
+
+
+def _short(value: Any) -> str:
+    return hashlib.sha256(_canonical(value)).hexdigest()[:SHORT]
+
+
+def parts_of(mapping: Mapping[str, Any]) -> dict[str, str]:
+    """Each part of the content with the short hashes of its fields, joined by "." in field order."""
+    parts: dict[str, str] = {"run": ".".join(_short(mapping.get(k)) for k in ("name", "description")),
+                             "settings": _short(mapping.get("settings"))}
+    for a in mapping.get("analytes", []):
+        name = a.get("name")
+        parts[f"analyte\x1f{name}"] = ".".join(_short(a.get(k)) for k in ANALYTE_FIELDS)
+        for s in a.get("standards", []):
+            parts[f"standard\x1f{name}\x1f{s.get('id')}"] = ".".join(_short(s.get(k)) for k in STANDARD_FIELDS)
+    for s in mapping.get("samples", []):
+        parts[f"sample\x1f{s.get('id')}"] = ".".join(_short(s.get(k)) for k in SAMPLE_FIELDS)
+    return parts
+
+
+def digest_of(mapping: Mapping[str, Any]) -> dict[str, Any]:
+    """The digest a saved document carries: the content hash and the parts."""
+    return {"sha256": sha256_of_content(mapping), "parts": parts_of(mapping)}
+
+
+@dataclass(frozen=True)
+class ContentChange:
+    """The data no longer match the last audit entry that recorded their hash."""
+
+    entry_number: int
+    entry_time: str
+    entry_user: str
+    changes: tuple[str, ...]
+
+    def __str__(self) -> str:
+        named = "; ".join(self.changes) if self.changes else "which values cannot be said (the digest is missing or altered too)"
+        return (f"data changed outside Curvewright after entry {self.entry_number} ({self.entry_time}, "
+                f"{self.entry_user}): {named}")
+
+
+def content_change(run: Run, stored: Any = None) -> ContentChange | None:
+    """Whether the run's content differs from the hash its audit trail recorded last, naming what
+    changed from the digest ``stored`` with the document (when that digest itself is intact)."""
+    from .run_document import run_to_mapping
+
+    numbered = [(i + 1, e) for i, e in enumerate(run.audit) if e.content_sha256]
+    if not numbered:
+        return None
+    number, entry = numbered[-1]
+    mapping = run_to_mapping(run)
+    if sha256_of_content(mapping) == entry.content_sha256:
+        return None
+    changes: list[str] = []
+    if (isinstance(stored, Mapping) and stored.get("sha256") == entry.content_sha256
+            and isinstance(stored.get("parts"), Mapping)):
+        changes = _named_changes(stored["parts"], parts_of(mapping))
+    who = entry.analyst or entry.user
+    return ContentChange(number, entry.time_utc, who, tuple(changes))
+
+
+def _named_changes(before: Mapping[str, str], after: Mapping[str, str]) -> list[str]:
+    out = []
+    for key in sorted(set(before) | set(after)):
+        old, new = before.get(key), after.get(key)
+        if old == new:
+            continue
+        kind, *names = key.split("\x1f")
+        what = {"standard": lambda: f"standard {names[1]} of {names[0]}", "sample": lambda: f"sample {names[0]}",
+                "analyte": lambda: f"analyte {names[0]}", "run": lambda: "the run's name or description",
+                "settings": lambda: "the run's settings"}[kind]()
+        if old is None:
+            out.append(f"{what} was added")
+            continue
+        if new is None:
+            out.append(f"{what} was removed")
+            continue
+        fields = {"standard": STANDARD_FIELDS, "sample": SAMPLE_FIELDS, "analyte": ANALYTE_FIELDS}.get(kind)
+        if fields is None:
+            out.append(f"{what} changed")
+            continue
+        changed = [FIELD_WORDS.get(f, f) for f, o, n in zip(fields, old.split("."), new.split(".")) if o != n]
+        out.append(f"the {', '.join(changed)} of {what}" if changed else f"{what} changed")
+    return out
