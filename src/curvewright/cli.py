@@ -33,6 +33,23 @@ from . import CAUTION, __version__
 
 EXIT_ACCEPTED, EXIT_REJECTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
+SIGNING_EPILOG = """\
+what a signature proves:
+  A signature records who signed (full name, ID, login), in which role, meaning what, when, and the
+  SHA-256 of the data and of the audit trail at that moment; the audit trail records it too. An
+  approval locks the run until it is withdrawn with a reason. With --key (a laboratory key made by
+  'curvewright keys new'), the signature is keyed: 'curvewright check --lab-key PUBLIC.pem' then shows
+  that nothing it signed was changed, even by someone who rebuilt the whole audit trail. Without a key,
+  the chain detects accidental or casual edits of the file, not a deliberate rebuild.
+
+examples:
+  curvewright sign run.json --role analyst --analyst "Robin Example" --analyst-id QA-0042
+  curvewright sign run.json --role approver --key lab-signing.key --meaning "released for the client report"
+  curvewright withdraw-approval run.json --reason "re-integration of CAL4 requested by QA"
+  curvewright keys new --private lab-signing.key --public lab-signing.pub
+  curvewright check run.json --lab-key lab-signing.pub
+"""
+
 EPILOG = f"""\
 examples:
   curvewright quantify sample_runs/nitrate_water_linear.json
@@ -114,9 +131,35 @@ def build_parser() -> argparse.ArgumentParser:
     _table_options(c)
     c.add_argument("--json", action="store_true")
 
-    k = sub.add_parser("check", help="validate run documents and their audit trails")
+    k = sub.add_parser("check", help="validate run documents, their audit trails, data and signatures")
     k.add_argument("runs", nargs="+", metavar="RUN")
+    k.add_argument("--lab-key", metavar="PUBLIC.pem", help="the laboratory's public signing key, to check keyed signatures against")
+
+    g = sub.add_parser("sign", help="sign a run document as analyst, reviewer or approver (approval locks it)",
+                       epilog=SIGNING_EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
+    g.add_argument("run", metavar="RUN")
+    g.add_argument("--role", required=True, choices=("analyst", "reviewer", "approver"))
+    g.add_argument("--meaning", default="", help="what the signature means (default: the role's usual meaning)")
+    g.add_argument("--key", metavar="PRIVATE.pem", help="the laboratory's signing key: the signature is keyed")
+    _identity_options(g)
+
+    w = sub.add_parser("withdraw-approval", help="withdraw the approval of a run document, with a reason (unlocks it)")
+    w.add_argument("run", metavar="RUN")
+    w.add_argument("--reason", required=True)
+    _identity_options(w)
+
+    keys = sub.add_parser("keys", help="make a laboratory signing key pair")
+    keys.add_argument("action", choices=("new",))
+    keys.add_argument("--private", required=True, metavar="PRIVATE.pem", help="where the private key goes (only signers read it)")
+    keys.add_argument("--public", required=True, metavar="PUBLIC.pem", help="where the public key goes (for checking)")
     return parser
+
+
+def _identity_options(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("--analyst", metavar="NAME", default=None,
+                        help="your full name for the audit trail (default: $CURVEWRIGHT_ANALYST)")
+    parser.add_argument("--analyst-id", metavar="ID", default=None,
+                        help="your laboratory ID (default: $CURVEWRIGHT_ANALYST_ID)")
 
 
 def _table_options(parser: argparse.ArgumentParser) -> None:
@@ -159,7 +202,7 @@ class ModelChoice:
     reasons: tuple[str, ...] = ()
 
 
-COMMANDS = ("quantify", "compare", "check")
+COMMANDS = ("quantify", "compare", "check", "sign", "withdraw-approval", "keys")
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -172,7 +215,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         parser.print_help()
         return EXIT_ACCEPTED
     try:
-        return {"quantify": cmd_quantify, "compare": cmd_compare, "check": cmd_check}[args.command](args)
+        return {"quantify": cmd_quantify, "compare": cmd_compare, "check": cmd_check, "sign": cmd_sign,
+                "withdraw-approval": cmd_withdraw, "keys": cmd_keys}[args.command](args)
     except InputError as exc:
         print(f"curvewright: {exc}", file=sys.stderr)
         return EXIT_INPUT
@@ -902,6 +946,11 @@ def cmd_check(args: argparse.Namespace) -> int:
 
     code = EXIT_ACCEPTED
     _refuse_tables("check", args.runs)
+    lab_key = None
+    if args.lab_key:
+        from .io.signatures import public_key_hex
+
+        lab_key = public_key_hex(args.lab_key)
     for path in expand_runs(args.runs):
         try:
             opened = open_run(path)
@@ -926,7 +975,58 @@ def cmd_check(args: argparse.Namespace) -> int:
                   f"analyte(s), {standards} standards, {len(run.samples)} samples")
         if opened.migrated_from is not None:
             print(f"  written in schema version {opened.migrated_from}; it opens as the current version")
+        code = max(code, _print_signatures(run, lab_key))
     return code
+
+
+def _print_signatures(run, lab_key: str | None) -> int:  # type: ignore[no-untyped-def]
+    """Each signature checked, in words; EXIT_REJECTED when one does not hold."""
+    from .io.signatures import check_signatures
+
+    checks = check_signatures(run, lab_key)
+    if not checks:
+        print("  no signatures")
+        return EXIT_ACCEPTED
+    for c in checks:
+        print(f"  {'signature' if c.holds else 'signature does NOT hold'}: {c.words}")
+    if run.approval is not None:
+        print(f"  approved by {run.approval.name} ({run.approval.time_utc}): the run is locked")
+    return EXIT_ACCEPTED if all(c.holds for c in checks) else EXIT_REJECTED
+
+
+def cmd_sign(args: argparse.Namespace) -> int:
+    from .io.audit import identity_from
+    from .io.run_document import update_run_document
+    from .io.signatures import sign
+
+    person = identity_from(args.analyst, args.analyst_id)
+    run = update_run_document(args.run, lambda r: sign(r, args.role, person, meaning=args.meaning, key_file=args.key))
+    signed = run.signatures[-1]
+    keyed = " (keyed)" if signed.signature else ""
+    print(f"{args.run}: signed by {signed.name} as {signed.role}{keyed}: “{signed.meaning}”")
+    if run.approval is not None:
+        print("the run is approved and locked; edits are refused until the approval is withdrawn with a reason")
+    print(CAUTION)
+    return EXIT_ACCEPTED
+
+
+def cmd_withdraw(args: argparse.Namespace) -> int:
+    from .io.audit import identity_from
+    from .io.run_document import update_run_document
+    from .io.signatures import withdraw_approval
+
+    person = identity_from(args.analyst, args.analyst_id)
+    update_run_document(args.run, lambda r: withdraw_approval(r, person, args.reason))
+    print(f"{args.run}: approval withdrawn by {person.name} ({args.reason}); the run can be edited again")
+    return EXIT_ACCEPTED
+
+
+def cmd_keys(args: argparse.Namespace) -> int:
+    from .io.signatures import new_key_pair
+
+    print(f"signing key made: private {args.private} (keep it where only signers can read it), public {args.public}; "
+          f"fingerprint {new_key_pair(args.private, args.public)}")
+    return EXIT_ACCEPTED
 
 
 if __name__ == "__main__":  # pragma: no cover

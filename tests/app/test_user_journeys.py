@@ -30,7 +30,14 @@ from tests.app.conftest import DEMOS, settle, type_keys
 def slot_errors(monkeypatch):
     """Exceptions raised inside slots (Qt hands them to sys.excepthook); each step asserts there are none."""
     seen: list[BaseException] = []
-    monkeypatch.setattr(sys, "excepthook", lambda kind, value, trace: seen.append(value))
+
+    def record(kind, value, trace) -> None:  # type: ignore[no-untyped-def]
+        import traceback
+
+        value.add_note("".join(traceback.format_tb(trace)))
+        seen.append(value)
+
+    monkeypatch.setattr(sys, "excepthook", record)
     return seen
 
 
@@ -89,6 +96,7 @@ def typed_dialogs(monkeypatch):
         return QDialog.DialogCode.Accepted
 
     monkeypatch.setattr(dialogs.SettingsDialog, "exec", settings_exec)
+    monkeypatch.setattr(dialogs.SignDialog, "exec", lambda self: QDialog.DialogCode.Accepted)
     monkeypatch.setattr(dialogs.AnalyteDialog, "exec", analyte_exec)
     monkeypatch.setattr(dialogs.ImportDialog, "exec", lambda self: QDialog.DialogCode.Accepted)
     monkeypatch.setattr(QInputDialog, "getText", lambda *a, **k: (typed["run name"], True))
@@ -102,7 +110,7 @@ def press(window, qtbot, slot_errors, name: str) -> None:
     action.trigger()
     if window.isVisible():
         settle(qtbot, window)
-    assert not slot_errors, f"{action.text()!r} raised {slot_errors[0]!r}"
+    assert not slot_errors, f"{action.text()!r} raised {slot_errors[0]!r}\n{''.join(getattr(slot_errors[0], '__notes__', []))}"
 
 
 def menu_items(window) -> set[str]:
@@ -227,6 +235,23 @@ def test_every_menu_item_does_what_it_says(demo, make_window, qtbot, slot_errors
     files.to_open.append(samples_file)
     do("import-samples")
     assert "Bench check 1" in {s.id for s in window.session.run.samples}
+
+    # Review: signatures in each role; approval locks the run until it is withdrawn with a reason
+    do("sign-analyst")
+    do("sign-reviewer")
+    assert [sig.role for sig in window.session.run.signatures] == ["analyst", "reviewer"]
+    assert window.session.run.signatures[0].name == "Robin Example"
+    do("sign-approver")
+    assert window.session.run.approval is not None and "locked" in window.attention.text()
+    locked = select_standard(window, 1)
+    count = len(window.session.run.audit)
+    do("exclude")
+    assert len(window.session.run.audit) == count and window.session.run.analyte(analyte).standard(locked).included
+    assert "locked" in window.statusBar().currentMessage() or "locked" in answer_dialogs.seen[-1][1]
+    do("withdraw-approval")
+    assert window.session.run.approval is None and window.session.run.audit[-1].action == "approval_withdrawn"
+    do("exclude")
+    assert not window.session.run.analyte(analyte).standard(locked).included
 
     # Save, save as (into the dialog's folder), open, recent, demo
     do("save")

@@ -353,3 +353,43 @@ class SettingsDialog(QDialog):
                        else run.settings.custom_profile,
                        rounding=RoundingRule(self.rounding_kind.currentData(), self.rounding_digits.value(),
                                              self.rounding_tie.currentData()))
+
+
+class SignDialog(QDialog):
+    """Signing the run: the role, what the signature means (the role's usual words, which the signer may
+    change), and the laboratory's signing key when the signature is to be keyed."""
+
+    def __init__(self, role: str, signer: str, key_file: str = "", parent: QWidget | None = None) -> None:
+        from ..io.signatures import DEFAULT_MEANINGS
+
+        super().__init__(parent)
+        self.setWindowTitle(f"Sign the run as {role}")
+        self.role = role
+        self.meaning = QPlainTextEdit(DEFAULT_MEANINGS[role])
+        self.meaning.setAccessibleName("What the signature means")
+        self.meaning.setTabChangesFocus(True)
+        self.key_file = QLineEdit(key_file)
+        self.key_file.setPlaceholderText("optional: the laboratory's signing key (PEM); the signature is then keyed")
+        self.key_file.setAccessibleName("Signing key file")
+        self.buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Ok | QDialogButtonBox.StandardButton.Cancel)
+        self.buttons.accepted.connect(self.accept)
+        self.buttons.rejected.connect(self.reject)
+        note = QLabel(f"Signed by {signer}. The signature records your name, ID and login, the role, its meaning, the "
+                      "time and the SHA-256 of the data and of the audit trail."
+                      + (" Approval locks the run: edits are refused until the approval is withdrawn with a reason."
+                         if role == "approver" else ""))
+        note.setWordWrap(True)
+        form = QFormLayout(self)
+        form.addRow(note)
+        form.addRow("&Meaning", self.meaning)
+        form.addRow("Signing &key", self.key_file)
+        form.addRow(self.buttons)
+        self.meaning.textChanged.connect(self._update)
+        self._update()
+
+    def values(self) -> tuple[str, str | None]:
+        return self.meaning.toPlainText().strip(), (self.key_file.text().strip() or None)
+
+    def _update(self) -> None:
+        self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(bool(self.meaning.toPlainText().strip()))
+

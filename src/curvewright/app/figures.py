@@ -61,8 +61,13 @@ def _axis_transform(plot: pg.PlotItem, log: bool, side: str = "bottom", span: tu
         return lambda v: np.asarray(v, dtype=float)
     if span is not None:
         _decade_ticks(plot.getAxis(side), *span)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        return lambda v: np.log10(np.asarray(v, dtype=float))
+    def log10(v):  # type: ignore[no-untyped-def]
+        # values at or below zero (a band's lower edge near a blank) have no place on a log axis: NaN,
+        # which the drawing leaves out
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return np.log10(np.asarray(v, dtype=float))
+
+    return log10
 
 
 def _decade_ticks(axis: pg.AxisItem, low: float, high: float) -> None:

@@ -232,6 +232,12 @@ class MainWindow(QMainWindow):
         action(analysis, "edit-analyte", "Analyte name and &units…", self.edit_analyte)
         action(analysis, "add-analyte", "Add &analyte…", self.add_analyte)
 
+        review = self.menuBar().addMenu("Re&view")
+        action(review, "sign-analyst", "Sign as &analyst…", lambda: self.sign_run("analyst"))
+        action(review, "sign-reviewer", "Sign as &reviewer…", lambda: self.sign_run("reviewer"))
+        action(review, "sign-approver", "A&pprove (locks the run)…", lambda: self.sign_run("approver"))
+        action(review, "withdraw-approval", "&Withdraw approval…", self.withdraw_approval)
+
         help_menu = self.menuBar().addMenu("&Help")
         action(help_menu, "about", "&About Curvewright", self.about)
 
@@ -319,6 +325,7 @@ class MainWindow(QMainWindow):
         self._show_internal_standard_column()
         self._update_title()
         self._update_buttons()
+        self._show_verdict(self.session.result)
         self._stale_tabs = getattr(self, "_stale_tabs", set()) | {self.evidence_panel}
         self._refresh_tab(self.bottom_tabs.currentIndex())
 
@@ -383,6 +390,9 @@ class MainWindow(QMainWindow):
         without a result), each with where to fix it."""
         lines = []
         run = self.session.run
+        if run.approval is not None:
+            lines.append(f"Approved by {run.approval.name} ({run.approval.time_utc}): the run is locked "
+                         "(Review → Withdraw approval… to change it).")
         if not self.session.identity.name:
             lines.append("Your full name is not set, so the audit trail records only your login "
                          "(Analysis → Run settings…).")
@@ -894,6 +904,54 @@ class MainWindow(QMainWindow):
                               "either way.)", (), self)
         if dialog.exec() == ReasonDialog.DialogCode.Accepted:
             model.remove_row(row, dialog.reason())
+
+    def sign_run(self, role: str) -> bool:
+        """Review → Sign / Approve: the person's signature, keyed when a signing key is given."""
+        from ..io.signatures import sign
+        from .dialogs import SignDialog
+
+        person = self.session.identity
+        if not person.name:
+            QMessageBox.warning(self, "Sign the run", "A signature needs your full name: set it under Analysis → Run "
+                                "settings… (“Your full name”), then sign.")
+            return False
+        dialog = SignDialog(role, person.words, str(self.settings.value("signing/key_file", "") or ""), self)
+        if dialog.exec() != SignDialog.DialogCode.Accepted:
+            return False
+        meaning, key_file = dialog.values()
+        try:
+            signed = sign(self.session.run, role, person, meaning=meaning, key_file=key_file)
+        except CurvewrightError as exc:
+            QMessageBox.warning(self, "Not signed", str(exc))
+            return False
+        if key_file:
+            self.settings.setValue("signing/key_file", key_file)
+        self.session.record_run(signed)
+        self.show_message(f"Signed as {role} by {person.name}" + (" (keyed)" if key_file else "")
+                          + ("; the run is approved and locked." if role == "approver" else "."))
+        return True
+
+    def withdraw_approval(self) -> bool:
+        """Review → Withdraw approval: with a reason, so that the run can be edited again."""
+        from ..io.signatures import withdraw_approval
+
+        approval = self.session.run.approval
+        if approval is None:
+            self.show_message("The run is not approved; there is nothing to withdraw.")
+            return False
+        dialog = ReasonDialog("Withdraw the approval", f"Why is the approval by {approval.name} ({approval.time_utc}) "
+                              "withdrawn? The run can then be edited; the approval and your reason stay on record.",
+                              (), self)
+        if dialog.exec() != ReasonDialog.DialogCode.Accepted:
+            return False
+        try:
+            unlocked = withdraw_approval(self.session.run, self.session.identity, dialog.reason())
+        except CurvewrightError as exc:
+            QMessageBox.warning(self, "Approval not withdrawn", str(exc))
+            return False
+        self.session.record_run(unlocked)
+        self.show_message("Approval withdrawn; the run can be edited again.")
+        return True
 
     def ask_value_change_reason(self, what: str) -> str | None:
         """Why a raw value that was already entered changes: a reason from the list, or typed."""

@@ -198,11 +198,18 @@ class RunSession(QObject):
 
         The analysis does not read the audit trail, so a current result stays current: it is carried
         over to the run with the new entry instead of being computed again."""
+        self.record_run(replace(self._run, audit=append_entry(self._run.audit, action, details, user=self.identity,
+                                                              content_sha256=content_sha256(self._run))))
+
+    def record_run(self, new_run: Run) -> None:
+        """Make current a run that differs only in what it records (audit entries, signatures): not
+        undoable. An approval also empties the undo history, so that nothing approved can be undone."""
         previous = self._run
-        self._run = replace(self._run, audit=append_entry(self._run.audit, action, details, user=self.identity,
-                                                          content_sha256=content_sha256(previous)))
+        self._run = new_run
         if self.result is not None and self.result.run is previous:
             self.result = replace(self.result, run=self._run)
+        if new_run.approval is not None:
+            self.undo_stack.clear()
         self._unsaved_records = True
         self.dirty_changed.emit(True)
         self.run_changed.emit(self._run)

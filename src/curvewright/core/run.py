@@ -210,6 +210,31 @@ class AuditEntry:
     content_sha256: str = ""
 
 
+SIGNATURE_ROLES = ("analyst", "reviewer", "approver")
+
+
+@dataclass(frozen=True)
+class Signature:
+    """A person's signature on the run's content, or (``role`` "approval withdrawn") the withdrawal of
+    an approval with its reason in ``meaning``.
+
+    ``content_sha256`` is the content signed and ``trail_sha256`` the hash of the last audit entry
+    when signing; with a laboratory key, ``signature`` is the Ed25519 signature (hex) of both and of
+    the person, role, meaning and time, made with the key whose public half is ``public_key`` (hex).
+    """
+
+    role: str
+    name: str
+    person_id: str
+    login: str
+    meaning: str
+    time_utc: str
+    content_sha256: str
+    trail_sha256: str
+    public_key: str = ""
+    signature: str = ""
+
+
 @dataclass(frozen=True)
 class Run:
     """One analytical batch."""
@@ -220,6 +245,18 @@ class Run:
     settings: RunSettings = field(default_factory=RunSettings)
     description: str = ""
     audit: tuple[AuditEntry, ...] = ()
+    signatures: tuple[Signature, ...] = ()
+
+    @property
+    def approval(self) -> Signature | None:
+        """The approval in force (the last approver's signature not withdrawn since), if any: the run is
+        then locked against edits."""
+        for s in reversed(self.signatures):
+            if s.role == "approval withdrawn":
+                return None
+            if s.role == "approver":
+                return s
+        return None
 
     def analyte(self, name: str) -> Analyte:
         for a in self.analytes:

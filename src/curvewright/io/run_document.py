@@ -37,6 +37,7 @@ from ..core.errors import CurvewrightError
 from ..core.models import Model
 from ..core.rounding import RoundingRule
 from ..core.run import (
+    SIGNATURE_ROLES,
     Analyte,
     AuditEntry,
     Measurement,
@@ -45,6 +46,7 @@ from ..core.run import (
     RunSettings,
     Sample,
     SampleKind,
+    Signature,
     Standard,
 )
 from ..core.weighting import Weighting
@@ -177,6 +179,7 @@ def run_to_mapping(run: Run) -> dict[str, Any]:
             }
             for e in run.audit
         ],
+        **({"signatures": [dict(vars(sig)) for sig in run.signatures]} if run.signatures else {}),
     }
 
 
@@ -243,6 +246,24 @@ def append_to_run_document(
         f"{path}: the audit entries were not added, because other programs kept changing the file "
         f"({_APPEND_ATTEMPTS} attempts); nothing was written. Try again."
     )
+
+
+def update_run_document(path: str | Path, change: Callable[[Run], Run]) -> Run:
+    """Apply ``change`` to the run in the document at ``path`` and save it, read and replaced under the
+    document's lock (as :func:`append_to_run_document`), so that no other writer's entries are lost.
+    Returns the run as saved; whatever ``change`` raises reaches the caller, with nothing written."""
+    path = Path(path)
+    for _ in range(_APPEND_ATTEMPTS):
+        with exclusive_lock(path) as locked:
+            opened = open_run(path)
+            run = change(opened.run)
+            data = _readable_document(run, path)
+            if not locked and not document_unchanged(path, opened.sha256):
+                continue  # another writer came in between: read its version and change that
+            write_atomically(path, data, keep_backup=True)
+            return run
+    raise ExportError(f"{path}: not changed, because other programs kept changing the file "
+                      f"({_APPEND_ATTEMPTS} attempts); nothing was written. Try again.")
 
 
 def _readable_document(run: Run, path: Path) -> bytes:
@@ -587,6 +608,10 @@ class _Reader:
             built for i, item in enumerate(self.get(m, "audit", "", "list", []))
             if (built := self.entry(item, f"audit[{i}]")) is not None
         )
+        signatures = tuple(
+            built for i, item in enumerate(self.get(m, "signatures", "", "list", [], required=False))
+            if (built := self.signature(item, f"signatures[{i}]")) is not None
+        )
         return Run(
             name=name,
             analytes=analytes,
@@ -594,7 +619,18 @@ class _Reader:
             settings=settings,
             description=self.get(m, "description", "", "text", "", required=False),
             audit=audit,
+            signatures=signatures,
         )
+
+    def signature(self, m: Any, path: str) -> Signature | None:
+        if not isinstance(m, dict):
+            self.fail(path, "expected a signature object")
+            return None
+        fields = {name: self.get(m, name, path, "text", "", required=name not in ("public_key", "signature"))
+                  for name in Signature.__dataclass_fields__}
+        if fields["role"] not in (*SIGNATURE_ROLES, "approval withdrawn"):
+            self.fail(f"{path}.role", f"{fields['role']!r} is not one of {', '.join(SIGNATURE_ROLES)} or 'approval withdrawn'")
+        return Signature(**fields)
 
     def unique(self, values: list[str], path: str, what: str) -> None:
         seen: set[str] = set()

@@ -204,8 +204,29 @@ def _with_standard(analyte: Analyte, standard: Standard) -> Analyte:
     return replace(analyte, standards=tuple(standard if s.id == standard.id else s for s in analyte.standards))
 
 
+class RunLocked(RunError):
+    """The run is approved: its content cannot change until the approval is withdrawn, with a reason."""
+
+
+RECORDS_ONLY = ("export_written", "report_written", "recovered_after_crash", "document_migrated")
+"""Entries that record what was done with the run without changing its content (allowed on an
+approved run)."""
+
+
+def refuse_if_locked(run: Run, what: str) -> None:
+    """Raise :class:`RunLocked` when the run is approved."""
+    approval = run.approval
+    if approval is not None:
+        raise RunLocked(
+            f"{what}: the run was approved by {approval.name} ({approval.time_utc}) and is locked; withdraw the "
+            "approval, with a reason, before changing it.")
+
+
 def _log(run: Run, action: str, details: Mapping[str, Any], user: Identity | str | None, clock: Clock) -> Run:
-    """The run with one audit entry: the person, the change, and the hash of the content after it."""
+    """The run with one audit entry: the person, the change, and the hash of the content after it. An
+    approved run takes only entries that record without changing its content."""
+    if action not in RECORDS_ONLY:
+        refuse_if_locked(run, action.replace("_", " "))
     return replace(run, audit=append_entry(run.audit, action, details, user=user, clock=clock,
                                            content_sha256=content_sha256(run)))
 

@@ -1,0 +1,217 @@
+"""Signatures on a run: who signed, in which role, meaning what, on which content; approval locks it.
+
+A signature records the person (full name, laboratory ID, login), the role (analyst, reviewer,
+approver), the meaning the person gives it, the UTC time, the SHA-256 of the run's content and the
+hash of the last audit entry when signing. It is added to the run's signatures and to its audit
+trail, so that the chain also covers it. After an approval the run is locked: every change of its
+content is refused (:class:`~curvewright.io.run_edits.RunLocked`) until the approval is withdrawn,
+with a reason.
+
+With a laboratory key (an Ed25519 private key, made by :func:`new_key_pair`), the signature is keyed:
+the person, role, meaning, time, content hash and trail hash are signed (RFC 8032 Ed25519 through the
+``cryptography`` package), and the public half travels with the signature. Anyone can then check that
+nothing signed was changed since; someone without the private key cannot rebuild the data and the
+chain and sign them again. Whether the public key is the laboratory's own is checked by comparing its
+fingerprint with the laboratory's public key file (``curvewright check --lab-key``).
+
+Without a key, a signature shows who signed what and when, and the chain detects accidental or
+casual edits; it cannot show that nobody edited the data and rebuilt the whole chain deliberately.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+from dataclasses import dataclass, replace
+from datetime import datetime, timezone
+from pathlib import Path
+
+from ..core.run import SIGNATURE_ROLES, Run, RunError, Signature
+from .atomic import write_atomically
+from .audit import Clock, Identity, append_entry, utc_now
+from .errors import DocumentError
+from .integrity import content_sha256
+
+DEFAULT_MEANINGS = {
+    "analyst": "I performed this analysis; the data and the results are complete and correct to my knowledge.",
+    "reviewer": "I reviewed the data, the calibration, the results and the audit trail of this run.",
+    "approver": "I approve these results for release.",
+}
+WITHDRAWN = "approval withdrawn"
+
+
+class SigningError(RunError):
+    """A run cannot be signed as asked (no name, a key that cannot be read, an approval to withdraw…)."""
+
+
+def _time_text(moment: datetime) -> str:
+    """UTC time as the audit trail writes it."""
+    return moment.isoformat(timespec="milliseconds").replace("+00:00", "Z")
+
+
+def fingerprint(public_key_hex: str) -> str:
+    """The key's fingerprint: the first 16 hex digits of the SHA-256 of its 32 bytes."""
+    return hashlib.sha256(bytes.fromhex(public_key_hex)).hexdigest()[:16]
+
+
+def _payload(s: Signature) -> bytes:
+    fields = {k: v for k, v in vars(s).items() if k != "signature"}
+    return json.dumps(fields, sort_keys=True, ensure_ascii=False, separators=(",", ":")).encode("utf-8")
+
+
+def new_key_pair(private_path: str | Path, public_path: str | Path) -> str:
+    """Make a laboratory signing key: the private key (PKCS #8 PEM; keep it where only signers can read
+    it) and its public half (PEM, to hand to whoever checks). Returns the fingerprint."""
+    from cryptography.hazmat.primitives import serialization
+    from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PrivateKey
+
+    key = Ed25519PrivateKey.generate()
+    private = key.private_bytes(serialization.Encoding.PEM, serialization.PrivateFormat.PKCS8,
+                                serialization.NoEncryption())
+    public = key.public_key().public_bytes(serialization.Encoding.PEM, serialization.PublicFormat.SubjectPublicKeyInfo)
+    write_atomically(Path(private_path), private)
+    Path(private_path).chmod(0o600)
+    write_atomically(Path(public_path), public)
+    raw = key.public_key().public_bytes(serialization.Encoding.Raw, serialization.PublicFormat.Raw)
+    return fingerprint(raw.hex())
+
+
+def _private_key(path: str | Path):  # type: ignore[no-untyped-def]
+    from cryptography.hazmat.primitives import serialization
+    from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PrivateKey
+
+    try:
+        key = serialization.load_pem_private_key(Path(path).read_bytes(), password=None)
+    except (OSError, ValueError, TypeError) as exc:
+        raise SigningError(f"{path}: cannot read the signing key ({exc}).") from None
+    if not isinstance(key, Ed25519PrivateKey):
+        raise SigningError(f"{path}: not an Ed25519 signing key (make one with 'curvewright keys new').")
+    return key
+
+
+def public_key_hex(path: str | Path) -> str:
+    """The 32-byte public key (hex) in a PEM public-key file (the laboratory's key, to check against)."""
+    from cryptography.hazmat.primitives import serialization
+    from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PublicKey
+
+    try:
+        key = serialization.load_pem_public_key(Path(path).read_bytes())
+    except (OSError, ValueError, TypeError) as exc:
+        raise DocumentError(f"{path}: cannot read the laboratory's public key ({exc}).") from None
+    if not isinstance(key, Ed25519PublicKey):
+        raise DocumentError(f"{path}: not an Ed25519 public key.")
+    return key.public_bytes(serialization.Encoding.Raw, serialization.PublicFormat.Raw).hex()
+
+
+def sign(run: Run, role: str, person: Identity, *, meaning: str = "", key_file: str | Path | None = None,
+         clock: Clock = utc_now) -> Run:
+    """The run signed by ``person`` in ``role`` (the role's usual meaning unless one is given), keyed
+    when ``key_file`` is given. An approver's signature locks the run."""
+    if role not in SIGNATURE_ROLES:
+        raise SigningError(f"role: {role!r} is not one of {', '.join(SIGNATURE_ROLES)}.")
+    if not person.name.strip():
+        raise SigningError("a signature needs the signer's full name (set it in the app's settings, or give "
+                           "--analyst NAME on the command line).")
+    if role == "approver" and run.approval is not None:
+        raise SigningError(f"the run is already approved by {run.approval.name} ({run.approval.time_utc}).")
+    meaning = (meaning or DEFAULT_MEANINGS[role]).strip()
+    moment = clock().astimezone(timezone.utc)
+    time_utc = _time_text(moment)
+    head = run.audit[-1].hash if run.audit else ""
+    signature = Signature(role, person.name.strip(), person.id.strip(), person.login, meaning, time_utc,
+                          content_sha256(run), head)
+    if key_file is not None:
+        from cryptography.hazmat.primitives import serialization
+
+        key = _private_key(key_file)
+        raw = key.public_key().public_bytes(serialization.Encoding.Raw, serialization.PublicFormat.Raw)
+        signature = replace(signature, public_key=raw.hex())
+        signature = replace(signature, signature=key.sign(_payload(signature)).hex())
+    details = {"role": role, "name": signature.name, "person_id": signature.person_id, "meaning": meaning,
+               "signed_content_sha256": signature.content_sha256, "signed_trail_sha256": head,
+               "key_fingerprint": fingerprint(signature.public_key) if signature.public_key else None,
+               "signature": signature.signature or None}
+    trail = append_entry(run.audit, "signed", details, user=person, clock=lambda: moment,
+                         content_sha256=signature.content_sha256)
+    return replace(run, signatures=run.signatures + (signature,), audit=trail)
+
+
+def withdraw_approval(run: Run, person: Identity, reason: str, *, clock: Clock = utc_now) -> Run:
+    """The run with its approval withdrawn (the reason recorded), so that it can be edited again."""
+    if run.approval is None:
+        raise SigningError("the run is not approved; there is no approval to withdraw.")
+    if not reason.strip():
+        raise SigningError("withdrawing an approval needs a reason.")
+    if not person.name.strip():
+        raise SigningError("withdrawing an approval needs your full name (set it in the app's settings, or give "
+                           "--analyst NAME on the command line).")
+    moment = clock().astimezone(timezone.utc)
+    time_utc = _time_text(moment)
+    head = run.audit[-1].hash if run.audit else ""
+    record = Signature(WITHDRAWN, person.name.strip(), person.id.strip(), person.login, reason.strip(), time_utc,
+                       content_sha256(run), head)
+    trail = append_entry(run.audit, "approval_withdrawn",
+                         {"approval_by": run.approval.name, "approved_at": run.approval.time_utc, "reason": reason.strip()},
+                         user=person, clock=lambda: moment, content_sha256=record.content_sha256)
+    return replace(run, signatures=run.signatures + (record,), audit=trail)
+
+
+@dataclass(frozen=True)
+class SignatureCheck:
+    """What checking one signature showed, in words, and whether it holds."""
+
+    signature: Signature
+    holds: bool
+    words: str
+
+
+def check_signatures(run: Run, lab_key_hex: str | None = None) -> tuple[SignatureCheck, ...]:
+    """Check every signature: it is recorded in the audit trail, the trail it signed is still there,
+    and (keyed) its Ed25519 signature verifies — against the laboratory's key when ``lab_key_hex`` is
+    given. A signature on content that has since changed (through edits after a withdrawn approval)
+    holds for that earlier content, and says so."""
+    hashes = {e.hash for e in run.audit}
+    signed_entries = [e for e in run.audit if e.action in ("signed", "approval_withdrawn")]
+    current = content_sha256(run)
+    out = []
+    for s in run.signatures:
+        label = f"{s.role} {s.name}" + (f" (ID {s.person_id})" if s.person_id else "") + f", {s.time_utc}"
+        recorded = any(e.time_utc == s.time_utc for e in signed_entries)
+        problems = []
+        if not recorded:
+            problems.append("not recorded in the audit trail")
+        if s.trail_sha256 and s.trail_sha256 not in hashes:
+            problems.append("the audit trail it signed is no longer in the document (the chain was rebuilt)")
+        keyed = ""
+        if s.signature:
+            if not _verifies(s):
+                problems.append("its keyed signature does NOT verify: what it signed was changed")
+            elif lab_key_hex is not None and s.public_key != lab_key_hex:
+                problems.append(f"signed with key {fingerprint(s.public_key)}, which is NOT the laboratory's key "
+                                f"{fingerprint(lab_key_hex)}")
+            else:
+                keyed = (f"; keyed signature verified with the laboratory's key {fingerprint(s.public_key)}"
+                         if lab_key_hex is not None else
+                         f"; keyed signature valid for key {fingerprint(s.public_key)} (compare it with the "
+                         "laboratory's key: --lab-key)")
+        elif s.role != WITHDRAWN:
+            keyed = "; not keyed: it shows who signed, not that nobody rebuilt the data and the chain since"
+        if s.role == WITHDRAWN:
+            meaning = f"withdrew the approval: {s.meaning}"
+        else:
+            meaning = f"“{s.meaning}”"
+        later = "" if s.content_sha256 == current or s.role == WITHDRAWN else "; the data have changed since it was signed"
+        words = f"{label}: {meaning}" + ("; " + "; ".join(problems) if problems else keyed + later)
+        out.append(SignatureCheck(s, not problems, words))
+    return tuple(out)
+
+
+def _verifies(s: Signature) -> bool:
+    from cryptography.exceptions import InvalidSignature
+    from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PublicKey
+
+    try:
+        Ed25519PublicKey.from_public_bytes(bytes.fromhex(s.public_key)).verify(bytes.fromhex(s.signature), _payload(s))
+    except (InvalidSignature, ValueError):
+        return False
+    return True
