@@ -230,3 +230,17 @@ def test_check_names_data_edited_by_hand_and_exits_non_zero(tmp_path) -> None:
     # the unedited document verifies, and says what the chain shows
     clean = run_cli("check", str(DEMO_RUNS[0]))
     assert clean.returncode == 0 and "the data match the content hash of its last entry" in clean.stdout
+
+
+def test_the_person_given_on_the_command_line_is_recorded_beside_the_login(tmp_path) -> None:
+    source = tmp_path / "run.json"
+    save_run(open_run(DEMO_RUNS[0]).run, source)
+    done = run_cli("quantify", str(source), "--export", str(tmp_path / "r.xlsx"), "--record",
+                   "--analyst", "Robin Example", "--analyst-id", "QA-0042")
+    assert done.returncode == 0, done.stderr
+    entry = open_run(source).run.audit[-1]
+    assert (entry.action, entry.analyst, entry.analyst_id) == ("export_written", "Robin Example", "QA-0042")
+    assert entry.user  # the operating-system login stays beside the name
+    data = json.loads(run_cli("quantify", str(source), "--json").stdout)
+    assert data["audit_chain_verified"] and data["data_match_audit_trail"]
+    assert data["chain_check"].startswith("verified") and "does not detect someone who edits" in data["chain_check"]

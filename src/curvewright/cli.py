@@ -121,6 +121,7 @@ def build_parser() -> argparse.ArgumentParser:
     q.add_argument("--record", action="store_true", help="append the exports to the run document's audit trail and save it")
     q.add_argument("--json", action="store_true", help="print the results as JSON for scripts")
     q.add_argument("--jobs", type=int, default=1, help="processes for many runs (default 1)")
+    _identity_options(q)
 
     c = sub.add_parser("compare", help="the model-evidence table for each analyte",
                        epilog=EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
@@ -344,8 +345,12 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
 
 
 def _options(args: argparse.Namespace) -> dict[str, Any]:
-    return {k: getattr(args, k) for k in ("analyte", "model", "weighting", "profile", "level", "export", "export_format",
-                                          "csv_delimiter", "csv_decimal", "report", "record", "json")}
+    from .io.audit import identity_from
+
+    options = {k: getattr(args, k) for k in ("analyte", "model", "weighting", "profile", "level", "export", "export_format",
+                                             "csv_delimiter", "csv_decimal", "report", "record", "json")}
+    options["person"] = identity_from(getattr(args, "analyst", None), getattr(args, "analyst_id", None))
+    return options
 
 
 def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
@@ -377,10 +382,10 @@ def _quantify_tables(args: argparse.Namespace) -> Outcome:
     if args.model:
         choices = {}
         for a in run.analytes:
-            run = _record_choice(run, a.name, args.model, args.weighting, GIVEN)
+            run = _record_choice(run, a.name, args.model, args.weighting, GIVEN, user=_options(args)["person"])
             choices[a.name] = ModelChoice("command line", (GIVEN,))
     else:
-        run, choices = _choose_recommended(run)
+        run, choices = _choose_recommended(run, _options(args)["person"])
     options = _options(args)
     options.update(analyte=None, record=False, model=None, weighting=None)  # the choice is in the run now
     options["inputs"] = {"standards table": args.standards, "samples table": args.samples}
@@ -404,11 +409,11 @@ def _quantify_tables(args: argparse.Namespace) -> Outcome:
 
 
 def _record_choice(run, analyte: str, model: str, weighting: str, reason: str,  # type: ignore[no-untyped-def]
-                   recommended: tuple[str, str] | None = None):
+                   recommended: tuple[str, str] | None = None, user=None):
     """Record the model choice for an analyte in the run and its audit trail."""
     from .io import run_edits
 
-    return run_edits.choose_model(run, analyte, model, weighting, reason, recommended=recommended)
+    return run_edits.choose_model(run, analyte, model, weighting, reason, recommended=recommended, user=user)
 
 
 @dataclass(frozen=True)
@@ -424,6 +429,7 @@ class TableRun:
 
 def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRun:
     """Read the standards (and samples) tables; stop with one grouped message if any cell cannot be used."""
+    from .io.audit import identity_from
     from .io import run_edits
     from .io.importing import analytes_from_import, grouped_cells, import_samples, import_standards
 
@@ -450,11 +456,13 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
         raise InputError("the tables cannot be used as they stand, so nothing was quantified:\n" + "\n".join(problems))
     analytes = analytes_from_import(std, concentration_unit=args.concentration_unit, response_unit=args.response_unit)
     description = f"built from {args.standards}" + (f" and {args.samples}" if with_samples else "")
-    run = run_edits.new_run(Path(args.standards).stem, analytes, description=description)
+    person = identity_from(getattr(args, "analyst", None), getattr(args, "analyst_id", None))
+    run = run_edits.new_run(Path(args.standards).stem, analytes, description=description, user=person)
     if smp is not None:
         run = replace(run, samples=smp.samples)
     for result, what in zip(results, ("standards", "samples")):
-        run = run_edits.record(run, "imported", {"what": what, "source": result.source, "sha256": result.sha256})
+        run = run_edits.record(run, "imported", {"what": what, "source": result.source, "sha256": result.sha256},
+                               user=person)
     run = _with_settings(run, getattr(args, "level", None), getattr(args, "profile", None))
     notes = [f"{what}: {r.headline}" for r, what in zip(results, ("standards", "samples"))]
     notes += [f"{what}: {r.source}: columns not used: {', '.join(repr(c) for c in r.unused_columns)}"
@@ -516,7 +524,7 @@ def cli_answer(remedy) -> str:  # type: ignore[no-untyped-def]
     return f"remove the separators, or give --thousands {shown}"
 
 
-def _choose_recommended(run):  # type: ignore[no-untyped-def]
+def _choose_recommended(run, person=None):  # type: ignore[no-untyped-def]
     """Each analyte gets the model and weighting the comparison recommends on its standards in the fit."""
     from .core.run_analysis import analyse_run
 
@@ -533,7 +541,7 @@ def _choose_recommended(run):  # type: ignore[no-untyped-def]
         pick = (rec.model.value, rec.weighting.value)
         reason = (f"recommended by the model comparison on the {len(a.fitted_standards)} standards in the fit, acceptance profile "
                   f"{profile.name!r}: " + "; ".join(comparison.reasons))
-        run = _record_choice(run, analyte.name, *pick, reason, recommended=pick)
+        run = _record_choice(run, analyte.name, *pick, reason, recommended=pick, user=person)
         choices[analyte.name] = ModelChoice("recommended", tuple(comparison.reasons))
     return run, choices
 
@@ -620,7 +628,8 @@ def _quantify(  # type: ignore[no-untyped-def]
         ensure_not_input(target, inputs, "--report")
         written.append(("report_written", str(target), write_report(build_report(result), target)))
     if options["record"] and source is not None and written:
-        append_to_run_document(source, [(action, {"path": path, "sha256": sha}) for action, path, sha in written])
+        append_to_run_document(source, [(action, {"path": path, "sha256": sha}) for action, path, sha in written],
+                               user=options.get("person"))
     code = EXIT_ACCEPTED if result.accepted else EXIT_REJECTED
     if options["json"]:
         data = result_json(result, source, written, choices=chosen, analyte_warnings=per_analyte, notes=notes,
@@ -766,13 +775,22 @@ def result_json(  # type: ignore[no-untyped-def]
     ``warnings`` what is missing (a unit, a name); ``unusable_readings`` lists the sample cells of
     a table kept as typed."""
     from .io.audit import verify_chain
+    from .io.integrity import content_change
+    from .io.result_tables import chain_claim
+    from .io.signatures import check_signatures
 
     run = result.run
     out: dict[str, Any] = {
         "run": run.name, "source": str(source) if source else None, "software_version": __version__,
         "accepted": result.accepted, "reasons": list(result.reasons), "profile": result.profile.name, "profile_caveat": result.profile.caveat or None,
         "confidence_level": run.settings.confidence_level, "interval": run.settings.interval,
-        "audit_chain_verified": not verify_chain(run.audit), "caution": CAUTION,
+        "audit_chain_verified": not verify_chain(run.audit), "data_match_audit_trail": content_change(run) is None,
+        "chain_check": chain_claim(run)[1],
+        "signatures": [{"role": c.signature.role, "name": c.signature.name, "id": c.signature.person_id,
+                        "time_utc": c.signature.time_utc, "meaning": c.signature.meaning,
+                        "keyed": bool(c.signature.signature), "holds": c.holds, "check": c.words}
+                       for c in check_signatures(run)],
+        "caution": CAUTION,
         "files_written": [{"kind": a, "path": p, "sha256": s} for a, p, s in written],
         "notes": list(notes),
         "unusable_readings": [{"file": f, "row": c.row, "column": c.column, "text": c.text, "reason": c.reason}

@@ -17,7 +17,7 @@ from ..core.comparison import ModelComparison
 from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.run_analysis import AnalyteResult, RunResult
 from .result_tables import (Column, Table, audit_table, calibration_table, checks_table, interval_words, samples_table,
-                            standards_table)
+                            signatures_table, standards_table)
 
 FORMULA_SOURCES = (
     "Least squares by QR decomposition on a centred, scaled basis (Björck 1996); weights scaled to sum to n "
@@ -176,6 +176,8 @@ def build_report(result: RunResult, *, generated: datetime | None = None) -> Rep
                                 f"{run.settings.rounding.description}.{range_words} {INTERVAL_SCOPE_NOTE}", "subheading"))
         blocks.append(samples_table(result).select(SAMPLE_COLUMNS, f"Samples – {name}", where=("Analyte", name)))
     blocks.append(PageBreak())
+    if result.run.signatures:
+        blocks.append(signatures_table(result))
     blocks.append(audit_table(result))
     blocks.append(Paragraph("Formulas and their sources", "subheading"))
     blocks += [Paragraph("• " + s, "small") for s in FORMULA_SOURCES]

@@ -233,17 +233,50 @@ def standards_table(a: AnalyteResult) -> Table:
     return Table(f"Standards – {an.name}", columns, tuple(rows))
 
 
+def chain_claim(run) -> tuple[bool, str]:  # type: ignore[no-untyped-def]
+    """What checking the run's audit trail showed, in words exactly as strong as the check."""
+    from .integrity import content_change
+
+    problems = list(verify_chain(run.audit))
+    change = content_change(run)
+    if change is not None:
+        problems.append(str(change))
+    if problems:
+        return False, "NOT verified: " + "; ".join(problems)
+    recorded = any(e.content_sha256 for e in run.audit)
+    data = ("and the data match the content hash of the last entry" if recorded else
+            "but no entry records a content hash (written by an earlier version), so edits of the data cannot be seen")
+    keyed = any(s.signature for s in run.signatures)
+    return True, (f"verified: every entry follows the one before and is unaltered, {data}. This detects accidental or "
+                  "casual edits of the file; it does not detect someone who edits the data and rebuilds the whole chain"
+                  + (" — the keyed signatures below do" if keyed else " (only signatures with a laboratory key would)")
+                  + ".")
+
+
 def audit_table(result: RunResult) -> Table:
     trail = result.run.audit
-    problems = verify_chain(trail)
-    rows: list[tuple[Value, ...]] = [
-        (None, "", "", "chain check", "verified: every entry follows the one before and is unaltered" if not problems
-         else "NOT verified: " + "; ".join(problems), "")
-    ]
+    _, claim = chain_claim(result.run)
+    rows: list[tuple[Value, ...]] = [(None, "", "", "chain check", claim, "")]
     for i, e in enumerate(trail, start=1):
-        rows.append((i, e.time_utc, e.user, e.action, json.dumps(e.details, ensure_ascii=False, sort_keys=True), e.hash))
+        who = f"{e.analyst} ({'ID ' + e.analyst_id + '; ' if e.analyst_id else ''}login {e.user})" if e.analyst else e.user
+        rows.append((i, e.time_utc, who, e.action, json.dumps(e.details, ensure_ascii=False, sort_keys=True), e.hash))
     columns = (Column("Entry", kind="int"), Column("Time (UTC)"), Column("User"), Column("Action"), Column("Details"), Column("SHA-256"))
     return Table("Audit trail", columns, tuple(rows))
+
+
+def signatures_table(result: RunResult) -> Table:
+    """The run's signatures and withdrawals: who, role, meaning, when, keyed or not, and whether each holds."""
+    from .signatures import check_signatures, fingerprint
+
+    rows = tuple(
+        (c.signature.role, c.signature.name, c.signature.person_id, c.signature.time_utc, c.signature.meaning,
+         fingerprint(c.signature.public_key) if c.signature.public_key else "not keyed",
+         "holds" if c.holds else "does NOT hold", c.words)
+        for c in check_signatures(result.run)
+    )
+    columns = (Column("Role"), Column("Name"), Column("ID"), Column("Time (UTC)"), Column("Meaning"),
+               Column("Key fingerprint"), Column("Check"), Column("What was checked"))
+    return Table("Signatures", columns, rows)
 
 
 BELOW_LIMIT_WORDS = {"censor": "reported as below the reporting limit (\"< limit\")",
@@ -256,6 +289,8 @@ def all_tables(result: RunResult) -> tuple[Table, ...]:
         tables += [calibration_table(a, result), standards_table(a)]
         if a.checks is not None:
             tables.append(checks_table(a))
+    if result.run.signatures:
+        tables.append(signatures_table(result))
     tables.append(audit_table(result))
     return tuple(tables)
 
