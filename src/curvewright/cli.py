@@ -121,6 +121,9 @@ def build_parser() -> argparse.ArgumentParser:
     q.add_argument("--record", action="store_true", help="append the exports to the run document's audit trail and save it")
     q.add_argument("--json", action="store_true", help="print the results as JSON for scripts")
     q.add_argument("--jobs", type=int, default=1, help="processes for many runs (default 1)")
+    q.add_argument("--method", metavar="METHOD.json", help="a validated method: it fixes the model, weighting, profile, "
+                   "units, levels and rounding (the recommendation is then shown for information only)")
+    q.add_argument("--reason", help="why the run departs from its method's model (with --model/--weighting)")
     _identity_options(q)
 
     c = sub.add_parser("compare", help="the model-evidence table for each analyte",
@@ -350,6 +353,8 @@ def _options(args: argparse.Namespace) -> dict[str, Any]:
     options = {k: getattr(args, k) for k in ("analyte", "model", "weighting", "profile", "level", "export", "export_format",
                                              "csv_delimiter", "csv_decimal", "report", "record", "json")}
     options["person"] = identity_from(getattr(args, "analyst", None), getattr(args, "analyst_id", None))
+    options["method"] = getattr(args, "method", None)
+    options["reason"] = getattr(args, "reason", None)
     return options
 
 
@@ -368,6 +373,20 @@ def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
         return Outcome(EXIT_INTERNAL, "", None, f"{path}: internal error: {exc!r}\n{traceback.format_exc()}")
 
 
+def _depart_from_method(run, model: str | None, weighting: str | None, options: dict[str, Any]):  # type: ignore[no-untyped-def]
+    """--model/--weighting on a run that follows a validated method: a departure, which needs --reason and
+    is recorded in the run (for this calculation) with that reason."""
+    from .io import run_edits
+
+    if not (options.get("reason") or "").strip():
+        raise InputError("the run follows a validated method, which fixes its model and weighting; give --reason "
+                         "to depart from it (the reason is recorded).")
+    for a in run.analytes:
+        run = run_edits.choose_model(run, a.name, model or a.model, weighting or a.weighting,
+                                     options["reason"].strip(), user=options.get("person"))
+    return run, None, None
+
+
 def _quantify_tables(args: argparse.Namespace) -> Outcome:
     """``quantify --standards … --samples …``: build a run from the tables, choose the model, quantify."""
     if not args.samples:
@@ -379,7 +398,19 @@ def _quantify_tables(args: argparse.Namespace) -> Outcome:
         )
     tables = _run_from_tables(args, with_samples=True)
     run = tables.run
-    if args.model:
+    if args.method:
+        from .core.method import load_method
+        from .io import run_edits
+
+        method = load_method(args.method)
+        run = run_edits.apply_method(run, method, user=_options(args)["person"])
+        fixed = f"fixed by the validated method {method.label} (the recommendation is for information only)"
+        choices = {a.name: ModelChoice("method", (fixed,)) for a in run.analytes}
+        if args.model:
+            run, _, _ = _depart_from_method(run, args.model, args.weighting, _options(args))
+            choices = {a.name: ModelChoice("command line", (f"departs from method {method.label}: {args.reason}",))
+                       for a in run.analytes}
+    elif args.model:
         choices = {}
         for a in run.analytes:
             run = _record_choice(run, a.name, args.model, args.weighting, GIVEN, user=_options(args)["person"])
@@ -605,8 +636,16 @@ def _quantify(  # type: ignore[no-untyped-def]
     from .io.run_document import append_to_run_document
 
     run = _with_settings(run, options["level"], options["profile"])
+    model, weighting = options["model"], options["weighting"]
+    if options.get("method") and run.settings.method is None:
+        from .core.method import load_method
+        from .io import run_edits
+
+        run = run_edits.apply_method(run, load_method(options["method"]), user=options.get("person"))
+    if run.settings.method is not None and (model or weighting):
+        run, model, weighting = _depart_from_method(run, model, weighting, options)
     names = tuple(options["analyte"]) if options["analyte"] else None
-    result = analyse_run(run, analytes=names, model=options["model"], weighting=options["weighting"])
+    result = analyse_run(run, analytes=names, model=model, weighting=weighting)
     chosen = {a.analyte.name: _document_choice(a) for a in result.analytes}
     chosen.update(choices or {})
     per_analyte = {a.analyte.name: _document_warnings(a) if analyte_warnings is None
@@ -681,6 +720,10 @@ def summary_text(  # type: ignore[no-untyped-def]
              f"Profile: {result.profile.name}; verdict: {'ACCEPTED' if result.accepted else 'NOT ACCEPTED'}"]
     if result.profile.caveat:
         lines.append(f"About the profile: {result.profile.caveat}")
+    lines.append(f"Profile rules by content: SHA-256 {result.profile.sha256[:16]}…")
+    if result.method is not None:
+        lines.append(f"Method: {result.method.label} — {result.method.name} (content SHA-256 {result.method.sha256[:16]}…); "
+                     "it fixes the calibration function: the model comparison is for information only")
     lines += notes
     for a in result.analytes:
         unit = a.analyte.concentration_unit.strip()
@@ -698,11 +741,16 @@ def summary_text(  # type: ignore[no-untyped-def]
             lines.append(f"{described} — recommended by the model comparison:")
             lines += [f"    • {r}" for r in choice.reasons]
         elif choice.by == "command line":
-            lines.append(f"{described} ({GIVEN})")
+            said = [r for r in choice.reasons if r != GIVEN]
+            lines.append(f"{described} ({GIVEN}" + (f"; {'; '.join(said)})" if said else ")"))
         elif choice.by == "not chosen":
             lines.append(f"{described} — not chosen ({'; '.join(choice.reasons)})")
+        elif choice.by == "method":
+            lines.append(f"{described} — {'; '.join(choice.reasons)}")
         else:
-            lines.append(described)
+            lines.append(described + (f" — {a.analyte.choice_reason}" if a.analyte.choice_reason else ""))
+        for r in a.method_reasons:
+            lines.append(f"  method {r}")
         lines.append(f"  {cal.equation(10)}")
         lof = cal.lack_of_fit
         lof_text = (f"lack-of-fit F = {lof.f_statistic:.4g}, p = {lof.p_value:.3g}" if lof.available
@@ -783,6 +831,9 @@ def result_json(  # type: ignore[no-untyped-def]
     out: dict[str, Any] = {
         "run": run.name, "source": str(source) if source else None, "software_version": __version__,
         "accepted": result.accepted, "reasons": list(result.reasons), "profile": result.profile.name, "profile_caveat": result.profile.caveat or None,
+        "profile_sha256": result.profile.sha256,
+        "method": None if result.method is None else {"id": result.method.id, "version": result.method.version,
+                                                      "name": result.method.name, "sha256": result.method.sha256},
         "confidence_level": run.settings.confidence_level, "interval": run.settings.interval,
         "audit_chain_verified": not verify_chain(run.audit), "data_match_audit_trail": content_change(run) is None,
         "chain_check": chain_claim(run)[1],

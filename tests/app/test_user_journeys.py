@@ -23,7 +23,7 @@ from curvewright import CAUTION
 from curvewright.app import dialogs, main_window
 from curvewright.app import standards_model as sm
 from curvewright.io.run_document import open_run
-from tests.app.conftest import DEMOS, settle, type_keys
+from tests.app.conftest import DEMOS, ROOT, settle, type_keys
 
 
 @pytest.fixture
@@ -271,6 +271,11 @@ def test_every_menu_item_does_what_it_says(demo, make_window, qtbot, slot_errors
     answer_dialogs["question"] = __import__("PySide6.QtWidgets", fromlist=["QMessageBox"]).QMessageBox.StandardButton.Discard
     do(demo_item)
     assert window.session.run == open_run(DEMOS[demo]).run
+    files.to_open.append(ROOT / "sample_runs" / "methods" / "demo_nitrate_uv_method.json")
+    do("new-from-method")
+    made = window.session.run
+    assert made.settings.method["id"] == "DEMO-NO3-UV" and made.analytes[0].name == "nitrate-N"
+    assert made.analytes[0].concentration_unit == "mg/L" and "fixed by the validated method" in made.analytes[0].choice_reason
     do("new")
     assert window.session.run.name == "Untitled run" and not window.session.run.analytes[0].standards
     assert "No standards yet" in window.verdict.text() and "NOT ACCEPTED" not in window.verdict.text()

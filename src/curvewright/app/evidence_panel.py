@@ -45,11 +45,18 @@ class EvidencePanel(QWidget):
         layout.addWidget(QLabel("Why the recommendation (the choice stays yours):"))
         layout.addWidget(self.reasons, 2)
 
-    def show_evidence(self, evidence: ModelComparison | str | None, analyte: Analyte) -> None:
+    def show_evidence(self, evidence: ModelComparison | str | None, analyte: Analyte, method=None) -> None:  # type: ignore[no-untyped-def]
+        """The candidates and the recommendation; with a validated ``method`` that fixes the analyte's model,
+        the recommendation is shown for information only."""
         self.comparison = evidence if isinstance(evidence, ModelComparison) else None
         self.table.setRowCount(0)
+        fixed = method.analyte(analyte.name) if method is not None else None
+        self.method_fixes = fixed is not None
         self.choice.setText(f"Chosen for {analyte.name}: {analyte.model}, {analyte.weighting}"
-                            + (f" — {analyte.choice_reason}" if analyte.choice_reason else " — no reason recorded yet"))
+                            + (f" — {analyte.choice_reason}" if analyte.choice_reason else " — no reason recorded yet")
+                            + (f". Method {method.label} fixes {fixed.model}, {fixed.weighting}: the recommendation "
+                               "below is for information only, and departing from the method needs a reason."
+                               if fixed is not None else ""))
         if self.comparison is None:
             self.reasons.setPlainText(f"No comparison: {evidence}" if evidence else "Waiting for the analysis…")
             return
@@ -94,4 +101,6 @@ class EvidencePanel(QWidget):
             return
         model, weighting = self.table.item(rows[0].row(), 0).data(Qt.ItemDataRole.UserRole)
         rec = self.comparison.recommended
-        self.choose_requested.emit(model, weighting, (rec.model.value, rec.weighting.value))
+        # with a method, what the choice departs from is the method's model (run_edits asks the reason)
+        self.choose_requested.emit(model, weighting, None if getattr(self, "method_fixes", False)
+                                   else (rec.model.value, rec.weighting.value))

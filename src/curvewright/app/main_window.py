@@ -192,6 +192,7 @@ class MainWindow(QMainWindow):
         file_menu = self.menuBar().addMenu("&File")
         action(file_menu, "new", "&New run", self.new_run, QKeySequence.StandardKey.New)
         action(file_menu, "open", "&Open…", self.open_dialog, QKeySequence.StandardKey.Open)
+        action(file_menu, "new-from-method", "New run from &method…", self.new_run_from_method)
         self.recent_menu = file_menu.addMenu("Open &recent")
         self.demo_menu = file_menu.addMenu("Open &demo run")
         from .main import demo_run_paths
@@ -363,7 +364,8 @@ class MainWindow(QMainWindow):
         if widget is self.influence_view:
             self.influence_view.show_analyte(getattr(self, "_shown_analyte", None))
         elif widget is self.evidence_panel:
-            self.evidence_panel.show_evidence(self.session.evidence.get(name), self.session.run.analyte(name))
+            self.evidence_panel.show_evidence(self.session.evidence.get(name), self.session.run.analyte(name),
+                                              method=self.session.result.method if self.session.result else None)
 
     def _show_verdict(self, result: RunResult | None) -> None:
         run = self.session.run
@@ -483,6 +485,25 @@ class MainWindow(QMainWindow):
         if self.maybe_save():
             self.replace_session(RunSession(blank_run(self.settings), recovery_folder=self.session.recovery_folder,
                                             identity=settings_identity(self.settings)))
+
+    def new_run_from_method(self) -> bool:
+        """File → New run from method: a run of a validated method (its analytes, units, fixed models,
+        profile and rounding), ready for its standards and samples."""
+        from ..core.method import load_method
+
+        path, _ = QFileDialog.getOpenFileName(self, "New run from a validated method", "", "Method files (*.json)")
+        if not path or not self.maybe_save():
+            return False
+        try:
+            method = load_method(path)
+            run = run_edits.run_from_method(method, f"{method.name} — new run", user=settings_identity(self.settings))
+        except CurvewrightError as exc:
+            QMessageBox.warning(self, "New run from method", str(exc))
+            return False
+        self.replace_session(RunSession(run, recovery_folder=self.session.recovery_folder,
+                                        identity=settings_identity(self.settings)))
+        self.show_message(f"New run of method {method.label}; paste or import its standards and samples.")
+        return True
 
     def open_dialog(self) -> None:
         path, _ = QFileDialog.getOpenFileName(self, "Open run", "", "Curvewright runs (*.json)")
@@ -793,16 +814,25 @@ class MainWindow(QMainWindow):
 
     def choose_model(self, model: str, weighting: str, recommended) -> bool:  # type: ignore[no-untyped-def]
         analyte = self.current_analyte()
-        needs_reason = recommended is not None and (model, weighting) != tuple(recommended)
-        prompt = (f"{model}, {weighting} is not the recommended {recommended[0]}, {recommended[1]}. Why is it chosen?"
-                  if needs_reason else f"Use {model}, {weighting} for {analyte}. Reason (optional for the recommended model):")
-        dialog = ReasonDialog(f"Choose the model for {analyte}", prompt, (), self)
+        method = self.session.result.method if self.session.result is not None else None
+        fixed = method.analyte(analyte) if method is not None else None
+        if fixed is not None:
+            needs_reason = (model, weighting) != (fixed.model, fixed.weighting)
+            prompt = (f"{model}, {weighting} departs from the {fixed.model}, {fixed.weighting} that the validated method "
+                      f"{method.label} fixes. Why?")
+            settled = f"fixed by the validated method {method.label}"
+        else:
+            needs_reason = recommended is not None and (model, weighting) != tuple(recommended)
+            prompt = (f"{model}, {weighting} is not the recommended {recommended[0]}, {recommended[1]}. Why is it chosen?"
+                      if needs_reason else "")
+            settled = "the recommended model (see the model evidence)"
         if needs_reason:
+            dialog = ReasonDialog(f"Choose the model for {analyte}", prompt, (), self)
             if dialog.exec() != ReasonDialog.DialogCode.Accepted:
                 return False
             reason = dialog.reason()
         else:
-            reason = "the recommended model (see the model evidence)"
+            reason = settled
         try:
             new_run = run_edits.choose_model(self.session.run, analyte, model, weighting, reason, recommended=recommended,
                                              user=self.session.identity)

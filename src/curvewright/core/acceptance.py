@@ -216,6 +216,14 @@ class AcceptanceProfile:
             "caveat": self.caveat,
         }
 
+    @property
+    def sha256(self) -> str:
+        """SHA-256 of the profile's rules in canonical JSON: which rules judged a run, by content."""
+        import hashlib
+
+        text = json.dumps(self.to_mapping(), sort_keys=True, ensure_ascii=False, separators=(",", ":"))
+        return hashlib.sha256(text.encode("utf-8")).hexdigest()
+
     # --- judging --------------------------------------------------------------------------------
     def evaluate(self, cal: "FittedCurve", excluded: int = 0, unusable: int = 0) -> AcceptanceVerdict:
         """Judge the back-calculated standards of ``cal``.

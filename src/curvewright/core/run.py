@@ -187,6 +187,9 @@ class RunSettings:
     level_tolerance: float | None = None
     """Relative tolerance within which standards of different nominal concentration count as one level
     (standards made up by mass); None: a level is the same label or the same nominal concentration."""
+    method: Mapping[str, Any] | None = None
+    """The validated method the run follows: a copy of the method file's content (see
+    :mod:`curvewright.core.method`), so that the run is judged as validated whatever version reopens it."""
 
 
 @dataclass(frozen=True)

@@ -34,6 +34,7 @@ from .run import Analyte, Reading, Run, SampleKind, Standard
 
 if TYPE_CHECKING:  # pragma: no cover
     from .comparison import ModelComparison
+    from .method import Method
 
 
 @dataclass(frozen=True)
@@ -121,12 +122,17 @@ class AnalyteResult:
     model_overridden: bool = False
     checks: CheckVerdict | None = None
     reporting: ReportingRange | None = None
+    method_reasons: tuple[str, ...] = ()
+    """What the run's validated method requires of this analyte and is not met (a level without a
+    standard, a model departing from the method's), or what it notes; "FAIL" marks a failure."""
 
     @property
     def accepted(self) -> bool:
         if self.verdict is None or not self.verdict.passed:
             return False
         if self.checks is not None and not self.checks.passed:
+            return False
+        if any(r.startswith("FAIL") for r in self.method_reasons):
             return False
         return self.qc_verdict is None or self.qc_verdict.passed
 
@@ -155,7 +161,16 @@ class RunResult:
                 out.append(f"{name}: QC: {r}")
             for r in a.checks.reasons if a.checks else ():
                 out.append(f"{name}: calibration check: {r}")
+            for r in a.method_reasons:
+                out.append(f"{name}: method: {r}")
         return tuple(out)
+
+    @cached_property
+    def method(self) -> "Method | None":
+        """The validated method the run follows (from its stored copy), or None."""
+        from .method import method_from_mapping
+
+        return None if self.run.settings.method is None else method_from_mapping(self.run.settings.method, "the run's method")
 
     @cached_property
     def evidence(self) -> dict[str, "ModelComparison | str"]:
@@ -305,7 +320,33 @@ def _analyse_analyte(
         model_overridden=overridden,
         checks=checks,
         reporting=rng,
+        method_reasons=_method_reasons(run, analyte, cal, use_model, use_weighting),
     )
+
+
+def _method_reasons(run: Run, analyte: Analyte, cal: Calibration, model: str, weighting: str) -> tuple[str, ...]:
+    """What the run's validated method asks of this analyte: every level it fixes has a standard in the
+    fit, and the calibration function is the method's (or a recorded reason departs from it)."""
+    if run.settings.method is None:
+        return ()
+    from .method import method_from_mapping
+
+    method = method_from_mapping(run.settings.method, "the run's method")
+    fixed = method.analyte(analyte.name)
+    if fixed is None:
+        return (f"note: method {method.label} does not cover {analyte.name}",)
+    out = []
+    missing = method.missing_levels(analyte.name, cal.concentration)
+    out.append(("FAIL: " if missing else "pass: ")
+               + (f"the method's level(s) {', '.join(f'{v:g}' for v in missing)} have no standard in the fit"
+                  if missing else f"every level of method {method.label} has a standard in the fit"))
+    if (model, weighting) != (fixed.model, fixed.weighting):
+        reason = analyte.choice_reason.strip()
+        departed = reason and not reason.startswith("fixed by the validated method")
+        out.append(("note: " if departed else "FAIL: ")
+                   + f"{model}, {weighting} departs from the method's {fixed.model}, {fixed.weighting}"
+                   + (f" (reason recorded: {reason})" if departed else " and no reason is recorded"))
+    return tuple(out)
 
 
 def _report(s: SampleResult, rng: ReportingRange, run: Run, profile: AcceptanceProfile, unit: str,

@@ -119,6 +119,7 @@ def run_to_mapping(run: Run) -> dict[str, Any]:
             "custom_profile": None if s.custom_profile is None else dict(s.custom_profile),
             "rounding": {"kind": s.rounding.kind, "digits": s.rounding.digits, "tie": s.rounding.tie},
             "level_tolerance": s.level_tolerance,
+            **({"method": dict(s.method)} if s.method is not None else {}),
         },
         "analytes": [
             {
@@ -655,7 +656,10 @@ class _Reader:
         custom = self.get(m, "custom_profile", p, "object?", None, required=False)
         if custom is not None:
             try:
-                AcceptanceProfile.from_mapping(custom, f"{p}.custom_profile")
+                stored = AcceptanceProfile.from_mapping(custom, f"{p}.custom_profile")
+                if profile != stored.id:
+                    self.fail(f"{p}.acceptance_profile", f"{profile!r} is not one of the id of the profile the run stores "
+                              f"({stored.id!r}); the two must agree")
             except CurvewrightError as exc:
                 self.problems.append(str(exc))
         elif profile not in available_profiles():
@@ -679,7 +683,16 @@ class _Reader:
             if not (0 <= tolerance < 0.5):
                 self.fail(f"{p}.level_tolerance", f"{tolerance!r} must lie from 0 to 0.5")
                 tolerance = None
-        return RunSettings(level, interval, limits, profile, custom, rounding, tolerance)
+        method = self.get(m, "method", p, "object?", None, required=False)
+        if method is not None:
+            from ..core.method import method_from_mapping
+
+            try:
+                method_from_mapping(method, f"{p}.method")
+            except CurvewrightError as exc:
+                self.problems.append(str(exc))
+        return RunSettings(confidence_level=level, interval=interval, limits_method=limits, acceptance_profile=profile,
+                           custom_profile=custom, rounding=rounding, level_tolerance=tolerance, method=method)
 
     def reading(self, m: Any, path: str, required: bool = True) -> Reading | None:
         if m is None:

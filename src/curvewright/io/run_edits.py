@@ -9,11 +9,20 @@ from dataclasses import replace
 from typing import Any, Mapping
 
 from ..core.acceptance import AcceptanceProfile, load_profile
+from ..core.method import Method, method_from_mapping
 from ..core.models import Model
 from ..core.run import Analyte, Reading, Run, RunError, RunSettings, Sample, Standard
 from ..core.weighting import Weighting
 from .audit import Clock, Identity, append_entry, utc_now
 from .integrity import content_sha256
+
+
+def with_profile_content(settings: RunSettings) -> RunSettings:
+    """Settings that hold their acceptance profile by content (a copy of its rules), not by id only, so
+    that a run is judged as it was whatever version of Curvewright reopens it."""
+    if settings.custom_profile is not None:
+        return settings
+    return replace(settings, custom_profile=load_profile(settings.acceptance_profile).to_mapping())
 
 
 def new_run(
@@ -22,7 +31,8 @@ def new_run(
 ) -> Run:
     if not name.strip():
         raise RunError("run name: a run needs a name.")
-    run = Run(name=name, analytes=analytes, settings=settings or RunSettings(), description=description)
+    run = Run(name=name, analytes=analytes, settings=with_profile_content(settings or RunSettings()),
+              description=description)
     return _log(run, "run_created", {"name": name, "analytes": [a.name for a in analytes]}, user, clock)
 
 
@@ -90,9 +100,17 @@ def choose_model(
     run: Run, analyte: str, model: str, weighting: str, reason: str, *,
     recommended: tuple[str, str] | None = None, user: Identity | str | None = None, clock: Clock = utc_now,
 ) -> Run:
-    """Record the calibration function chosen for an analyte; a choice against the recommendation needs a reason."""
+    """Record the calibration function chosen for an analyte. A choice against the recommendation, or
+    against the model the run's validated method fixes, needs a reason."""
     m, w = Model.parse(model).value, Weighting.parse(weighting).value
-    if recommended is not None and (m, w) != tuple(recommended) and not reason.strip():
+    fixed = method_of(run)
+    fixed_analyte = fixed.analyte(analyte) if fixed is not None else None
+    if fixed_analyte is not None and (m, w) != (fixed_analyte.model, fixed_analyte.weighting) and not reason.strip():
+        raise RunError(
+            f"{analyte}: {m}, {w} departs from the {fixed_analyte.model}, {fixed_analyte.weighting} that method "
+            f"{fixed.label} fixes; give the reason for departing from the validated method."  # type: ignore[union-attr]
+        )
+    if fixed_analyte is None and recommended is not None and (m, w) != tuple(recommended) and not reason.strip():
         raise RunError(
             f"{analyte}: {m}, {w} differs from the recommended {recommended[0]}, {recommended[1]}; give the reason for the choice."
         )
@@ -348,10 +366,53 @@ def update_samples(
                 {"note": note, "changes": changes, "added": added, "removed": removed, "reason": why}, user, clock)
 
 
+def method_of(run: Run) -> Method | None:
+    """The validated method the run follows, from the copy it stores."""
+    return None if run.settings.method is None else method_from_mapping(run.settings.method, "the run's method")
+
+
+def apply_method(run: Run, method: Method, *, user: Identity | str | None = None, clock: Clock = utc_now) -> Run:
+    """The run following a validated method: its profile (by content), rounding, confidence level,
+    interval and limits method, and for each of its analytes the units and the calibration function
+    the method fixes. The method's copy and SHA-256 are kept in the run and the audit trail."""
+    settings = replace(run.settings, custom_profile=method.profile.to_mapping(), acceptance_profile=method.profile.id,
+                       method=dict(method.mapping))
+    for key, value in (("rounding", method.rounding), ("confidence_level", method.confidence_level),
+                       ("interval", method.interval), ("limits_method", method.limits_method)):
+        if value is not None:
+            settings = replace(settings, **{key: value})
+    analytes = []
+    for a in run.analytes:
+        fixed = method.analyte(a.name)
+        if fixed is None:
+            analytes.append(a)
+            continue
+        analytes.append(replace(a, model=fixed.model, weighting=fixed.weighting,
+                                concentration_unit=fixed.concentration_unit or a.concentration_unit,
+                                response_unit=fixed.response_unit or a.response_unit,
+                                choice_reason=f"fixed by the validated method {method.label}"))
+    missing = [a.name for a in method.analytes if a.name not in {x.name for x in run.analytes}]
+    details = {"method": method.id, "version": method.version, "name": method.name, "sha256": method.sha256,
+               "profile": method.profile.id, "profile_sha256": method.profile.sha256,
+               "analytes_not_in_run": missing}
+    return _log(replace(run, settings=settings, analytes=tuple(analytes)), "method_applied", details, user, clock)
+
+
+def run_from_method(method: Method, name: str, *, user: Identity | str | None = None, clock: Clock = utc_now) -> Run:
+    """A new, empty run of a validated method: its analytes with their units and fixed calibration
+    functions, its settings, and the method's copy."""
+    analytes = tuple(Analyte(a.name, a.concentration_unit, a.response_unit, model=a.model, weighting=a.weighting,
+                             choice_reason=f"fixed by the validated method {method.label}",
+                             uses_internal_standard=a.uses_internal_standard) for a in method.analytes)
+    run = new_run(name, analytes, description=f"a run of method {method.label}: {method.name}", user=user, clock=clock)
+    return apply_method(run, method, user=user, clock=clock)
+
+
 def change_settings(
     run: Run, settings: RunSettings, reason: str, *, user: Identity | str | None = None, clock: Clock = utc_now
 ) -> Run:
     """New settings (confidence level, interval, limits method, profile, rounding) as one audited step."""
+    settings = with_profile_content(settings)
     before, after = _settings_fields(run.settings), _settings_fields(settings)
     changes = {k: {"old": before[k], "new": v} for k, v in after.items() if before[k] != v}
     if not changes:
@@ -362,5 +423,6 @@ def change_settings(
 
 def _settings_fields(s: RunSettings) -> dict[str, Any]:
     return {"confidence_level": s.confidence_level, "interval": s.interval, "limits_method": s.limits_method,
-            "acceptance_profile": s.acceptance_profile, "custom_profile": s.custom_profile is not None,
+            "acceptance_profile": s.acceptance_profile,
+            "profile_sha256": None if s.custom_profile is None else AcceptanceProfile.from_mapping(s.custom_profile).sha256,
             "rounding": s.rounding.description, "level_tolerance": s.level_tolerance}
