@@ -29,7 +29,7 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any, Mapping, Sequence
 
-from . import CAUTION, __version__
+from . import CAUTION, __version__, cli_archive
 
 EXIT_ACCEPTED, EXIT_REJECTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
@@ -114,6 +114,7 @@ def build_parser() -> argparse.ArgumentParser:
 
     k = sub.add_parser("check", help="validate run documents and their audit trails")
     k.add_argument("runs", nargs="+", metavar="RUN")
+    cli_archive.add_parsers(sub)
     return parser
 
 
@@ -157,7 +158,7 @@ class ModelChoice:
     reasons: tuple[str, ...] = ()
 
 
-COMMANDS = ("quantify", "compare", "check")
+COMMANDS = ("quantify", "compare", "check", "archive", "trend")
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -170,7 +171,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         parser.print_help()
         return EXIT_ACCEPTED
     try:
-        return {"quantify": cmd_quantify, "compare": cmd_compare, "check": cmd_check}[args.command](args)
+        return {"quantify": cmd_quantify, "compare": cmd_compare, "check": cmd_check,
+                "archive": cli_archive.cmd_archive, "trend": cli_archive.cmd_trend}[args.command](args)
     except InputError as exc:
         print(f"curvewright: {exc}", file=sys.stderr)
         return EXIT_INPUT
