@@ -217,3 +217,39 @@ def test_the_demo_archive_shows_its_drift_caught_by_the_rules(qtbot, tmp_path, s
     assert axis.tickStrings([0.0041, 0.0042], axis.autoSIPrefixScale * axis.scale, 0.0001) == ["0.0041", "0.0042"]
     assert "(x" not in axis.labelString()
     save_png(view, "history_view_demo_slope.png")
+
+
+def shown_history_windows() -> list[HistoryWindow]:
+    from PySide6.QtWidgets import QApplication
+
+    return [w for w in QApplication.topLevelWidgets() if isinstance(w, HistoryWindow) and w.isVisible()]
+
+
+def test_archive_show_opens_the_history_with_the_latest_run_marked(archive_folder, monkeypatch, qtbot) -> None:
+    from PySide6.QtWidgets import QApplication
+
+    from curvewright import cli
+
+    monkeypatch.setattr(QApplication, "exec", lambda self: 0)  # the analyst would now look, then close it
+    assert cli.main(["archive", "show", "--at", str(archive_folder), "--analyte", "lead", "--quantity", "r"]) == 0
+    (view,) = shown_history_windows()
+    qtbot.addWidget(view)
+    assert view.quantity_box.currentData() == "r" and not view.file_button.isVisible()
+    assert ("latest run", 20.0, drawn(view)["points"]["d"][1][0]) in drawn(view)["texts"]
+    assert "The latest run (Lead in water, run 020) breaks no rule" in plain(view.verdict)
+    view.close()
+
+
+def test_the_readme_command_builds_the_demo_archive_and_opens_its_history(tmp_path, monkeypatch, qtbot) -> None:
+    from PySide6.QtWidgets import QApplication
+
+    from tests.io.test_demo_archive import builder
+
+    monkeypatch.setattr(QApplication, "exec", lambda self: 0)
+    assert builder().main(["--to", str(tmp_path / "demo"), "--show"]) == 0
+    (view,) = shown_history_windows()
+    qtbot.addWidget(view)
+    assert view.analyte_box.currentText() == "copper" and view.quantity_box.currentData() == "slope"
+    points = drawn(view)["points"]
+    assert len(points["o"][0]) == 59 and points["s"][0] == [17.0] and points["star"][0]  # run 17 not accepted
+    view.close()
