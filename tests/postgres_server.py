@@ -123,8 +123,9 @@ def postgres_server():  # type: ignore[no-untyped-def]
 
 
 @pytest.fixture
-def pg_url(postgres_server) -> str:  # type: ignore[no-untyped-def]
+def pg_url(postgres_server):  # type: ignore[no-untyped-def]
     """A new, empty database on the test server, as an archive URL."""
     name = f"archive_{uuid.uuid4().hex[:12]}"
     postgres_server.psql(f"CREATE DATABASE {name}")
-    return postgres_server.url(name)
+    yield postgres_server.url(name)
+    postgres_server.psql(f"DROP DATABASE IF EXISTS {name} WITH (FORCE)")

@@ -186,3 +186,14 @@ def test_filing_listing_and_trending_on_a_postgresql_server(pg_url, lead_files) 
     assert [p["rules_broken"] for p in data["points"]] == [[]] * 20 + [["1-3s"]]
     assert [p["value"] for p in data["points"]] == [tracked_values(analyse_run(lead_run(i + 1, slope=s)))[0].slope
                                                     for i, s in enumerate(SLOPES)]
+
+
+def test_a_malformed_trend_rules_section_is_named_and_the_run_is_still_filed(tmp_path) -> None:
+    profile = {**load_profile("general").to_mapping(), "id": "lead-lab", "trend_rules": {"fail_on": ["3-1s"]}}
+    (path,) = write_runs(tmp_path / "runs", [lead_run(1, custom_profile=profile)])
+    out = run_cli("archive", "add", str(path), "--to", str(tmp_path / "archive"))
+    assert out.returncode == 2
+    assert "filed: Lead in water, run 001" in out.stdout
+    assert (f"{path}: filed, but the trend rules could not be judged: profile 'lead-lab' trend_rules: 'fail_on' "
+            "names '3-1s', which is not one of 1-3s, 2-2s, R-4s, 4-1s, 10-x.") in out.stderr
+    assert "Lead in water, run 001" in run_cli("archive", "list", "--at", str(tmp_path / "archive")).stdout

@@ -143,7 +143,7 @@ def cmd_archive(args: argparse.Namespace) -> int:
 def _add(args: argparse.Namespace) -> int:
     from .cli import EXIT_ACCEPTED, EXIT_INPUT, EXIT_REJECTED
     from .core.run_analysis import analyse_run
-    from .io.archive import judge_run, open_archive
+    from .io.archive import TrendVerdict, judge_run, open_archive
     from .io.run_document import open_run
 
     baseline = _baseline(args)
@@ -161,13 +161,18 @@ def _add(args: argparse.Namespace) -> int:
                                  "archive keeps only runs whose record is intact (curvewright check shows why).")
                 result = analyse_run(opened.run)
                 receipt = archive.file(opened.run, source=str(path), result=result)
-                verdict = judge_run(archive, result, baseline)
             except (CurvewrightError, OSError) as exc:
                 code = max(code, EXIT_INPUT)
                 text = str(exc) if str(exc).startswith("not filed") else f"not filed: {exc}"
                 print(f"curvewright: {path}: {text}", file=sys.stderr)
                 report.append({"file": str(path), "error": text})
                 continue
+            try:
+                verdict = judge_run(archive, result, baseline)
+            except CurvewrightError as exc:  # filed, but its history could not be judged (a malformed profile)
+                code = max(code, EXIT_INPUT)
+                verdict = TrendVerdict((), (f"the trend rules could not be judged: {exc}",), baseline)
+                print(f"curvewright: {path}: filed, but the trend rules could not be judged: {exc}", file=sys.stderr)
             if not verdict.passed:
                 code = max(code, EXIT_REJECTED)
             entry = receipt.run

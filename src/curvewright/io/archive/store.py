@@ -38,6 +38,8 @@ from .schema import CURRENT_VERSION, migrate, recoveries, run_analytes, runs, st
 
 BUSY_SECONDS = 60.0
 """How long a SQLite filing waits for another one to finish before it gives up."""
+CONNECT_SECONDS = 15
+"""How long to wait for a PostgreSQL server to answer before saying it cannot be reached."""
 
 
 def content_hash(run: Run) -> str:
@@ -147,7 +149,7 @@ class Archive:
             engine = create_engine(url, connect_args={"timeout": BUSY_SECONDS})
             _sqlite_transactions(engine, read_only)
         else:
-            engine = create_engine(location.url, pool_pre_ping=False)
+            engine = create_engine(location.url, connect_args={"connect_timeout": CONNECT_SECONDS})
         archive = cls(location, engine)
         archive.read_only = location.kind == "sqlite" and read_only
         try:
