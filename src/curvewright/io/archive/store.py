@@ -19,7 +19,6 @@ from dataclasses import dataclass
 from datetime import datetime
 from pathlib import Path
 from typing import Iterator
-from urllib.parse import quote
 
 from sqlalchemy import Connection, Engine, create_engine, event, func, insert, select
 from sqlalchemy.engine import URL
@@ -144,7 +143,7 @@ class Archive:
             read_only = not _may_write(location.path)
             url = location.url
             if read_only:  # read the archive as it stands; filing needs the right to write in its folder
-                url = URL.create("sqlite", database=f"file:{quote(str(location.path))}?mode=ro&immutable=1",
+                url = URL.create("sqlite", database=f"{location.path.as_uri()}?mode=ro&immutable=1",
                                  query={"uri": "true"})
             engine = create_engine(url, connect_args={"timeout": BUSY_SECONDS})
             _sqlite_transactions(engine, read_only)
