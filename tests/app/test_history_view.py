@@ -16,7 +16,6 @@ from curvewright import CAUTION
 from curvewright.app.history_view import SETTINGS_KEY, HistoryWindow
 from curvewright.io.archive import history, open_archive
 from curvewright.io.run_document import save_run
-from tests.app.conftest import settle
 from tests.io.archive_runs import lead_run
 
 ARTEFACTS = Path(__file__).resolve().parents[2] / "test-artefacts"

@@ -33,10 +33,6 @@ def where(request, tmp_path) -> str:  # type: ignore[no-untyped-def]
     return request.getfixturevalue("pg_url")
 
 
-def engine_of(archive):  # type: ignore[no-untyped-def]
-    return archive.engine
-
-
 # --- filing ----------------------------------------------------------------------------------------
 def test_filing_the_same_content_twice_is_one_entry(where) -> None:  # type: ignore[no-untyped-def]
     run = lead_run(1)
