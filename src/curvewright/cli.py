@@ -29,7 +29,7 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any, Mapping, Sequence
 
-from . import CAUTION, __version__
+from . import CAUTION, __version__, cli_archive
 
 EXIT_ACCEPTED, EXIT_REJECTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
@@ -156,6 +156,7 @@ def build_parser() -> argparse.ArgumentParser:
     keys.add_argument("action", choices=("new",))
     keys.add_argument("--private", required=True, metavar="PRIVATE.pem", help="where the private key goes (only signers read it)")
     keys.add_argument("--public", required=True, metavar="PUBLIC.pem", help="where the public key goes (for checking)")
+    cli_archive.add_parsers(sub)
     return parser
 
 
@@ -206,7 +207,7 @@ class ModelChoice:
     reasons: tuple[str, ...] = ()
 
 
-COMMANDS = ("quantify", "compare", "check", "sign", "withdraw-approval", "keys")
+COMMANDS = ("quantify", "compare", "check", "sign", "withdraw-approval", "keys", "archive", "trend")
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -220,7 +221,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_ACCEPTED
     try:
         return {"quantify": cmd_quantify, "compare": cmd_compare, "check": cmd_check, "sign": cmd_sign,
-                "withdraw-approval": cmd_withdraw, "keys": cmd_keys}[args.command](args)
+                "withdraw-approval": cmd_withdraw, "keys": cmd_keys,
+                "archive": cli_archive.cmd_archive, "trend": cli_archive.cmd_trend}[args.command](args)
     except InputError as exc:
         print(f"curvewright: {exc}", file=sys.stderr)
         return EXIT_INPUT

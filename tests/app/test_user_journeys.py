@@ -207,6 +207,9 @@ def test_every_menu_item_does_what_it_says(demo, make_window, qtbot, slot_errors
     assert window.session.run.analyte(analyte).concentration_unit == "µg/L"
     do("add-analyte")
     assert "lead" in [a.name for a in window.session.run.analytes]
+    do("history")
+    assert window.history_window.isVisible() and CAUTION in window.history_window.caution.text()
+    window.history_window.close()
     window.analyte_box.setCurrentText(analyte)
     do("about")
     assert CAUTION in answer_dialogs.seen[-1][1]

@@ -232,6 +232,8 @@ class MainWindow(QMainWindow):
         action(analysis, "rename-run", "Rename &run…", self.rename_run)
         action(analysis, "edit-analyte", "Analyte name and &units…", self.edit_analyte)
         action(analysis, "add-analyte", "Add &analyte…", self.add_analyte)
+        analysis.addSeparator()
+        action(analysis, "history", "Calibration &history…", self.open_history)
 
         review = self.menuBar().addMenu("Re&view")
         action(review, "sign-analyst", "Sign as &analyst…", lambda: self.sign_run("analyst"))
@@ -873,6 +875,12 @@ class MainWindow(QMainWindow):
         self.settings.setValue("defaults/rounding_kind", new_run.settings.rounding.kind)
         self.settings.setValue("defaults/rounding_digits", new_run.settings.rounding.digits)
         self.settings.setValue("defaults/rounding_tie", new_run.settings.rounding.tie)
+
+    def open_history(self) -> None:
+        """Analysis → Calibration history: the archive's control charts, with this run marked."""
+        from .history_view import open_history
+
+        self.history_window = open_history(self)
 
     def rename_run(self) -> None:
         name, ok = QInputDialog.getText(self, "Rename run", "Run name:", text=self.session.run.name)
