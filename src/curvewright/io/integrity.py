@@ -111,9 +111,27 @@ def content_change(run: Run, stored: Any = None) -> ContentChange | None:
     changes: list[str] = []
     if (isinstance(stored, Mapping) and stored.get("sha256") == entry.content_sha256
             and isinstance(stored.get("parts"), Mapping)):
-        changes = _named_changes(stored["parts"], parts_of(mapping))
+        changes = _named_changes(_text_parts(stored["parts"]), parts_of(mapping))
     who = entry.analyst or entry.user
     return ContentChange(number, entry.time_utc, who, tuple(changes))
+
+
+def _text_parts(parts: Mapping[object, object]) -> dict[str, str]:
+    """The stored part digests that can be compared; anything else was damaged and counts as changed."""
+    return {key: value for key, value in parts.items() if isinstance(key, str) and isinstance(value, str)}
+
+
+def _part_words(kind: str, names: list[str]) -> str:
+    """Words for one part of the run digest, e.g. "standard N-L2-1 of nitrate-N"."""
+    if kind == "standard" and len(names) == 2:
+        return f"standard {names[1]} of {names[0]}"
+    if kind in ("sample", "analyte") and len(names) == 1:
+        return f"{kind} {names[0]}"
+    if kind == "run" and not names:
+        return "the run's name or description"
+    if kind == "settings" and not names:
+        return "the run's settings"
+    return "an unrecognised part of the run"
 
 
 def _named_changes(before: Mapping[str, str], after: Mapping[str, str]) -> list[str]:
@@ -123,9 +141,7 @@ def _named_changes(before: Mapping[str, str], after: Mapping[str, str]) -> list[
         if old == new:
             continue
         kind, *names = key.split("\x1f")
-        what = {"standard": lambda: f"standard {names[1]} of {names[0]}", "sample": lambda: f"sample {names[0]}",
-                "analyte": lambda: f"analyte {names[0]}", "run": lambda: "the run's name or description",
-                "settings": lambda: "the run's settings"}[kind]()
+        what = _part_words(kind, names)
         if old is None:
             out.append(f"{what} was added")
             continue
