@@ -44,13 +44,14 @@ def _tsv(header: list[str], rows: list[list[object]]) -> str:
     return "\n".join(["\t".join(header)] + ["\t".join(str(v) for v in r) for r in rows]) + "\n"
 
 
-def _build(name, description, standards_text, samples_text, settings, choices, clock, user, extra=None, **units):  # type: ignore[no-untyped-def]
+def _build(name, description, standards_text, samples_text, settings, choices, clock, user, extra=None,  # type: ignore[no-untyped-def]
+           instrument="", **units):
     std = import_standards(table_from_text(standards_text, source="instrument export (standards)", sha256=file_sha256(standards_text.encode())), analyte=units.pop("analyte"))
     smp = import_samples(table_from_text(samples_text, source="instrument export (samples)", sha256=file_sha256(samples_text.encode())), analyte=std.standards[0][0])
     assert std.complete and smp.complete, (std.summary(), smp.summary())
     analytes = analytes_from_import(std, **units)
     run = run_edits.new_run(name, analytes, description=description, settings=settings, user=user, clock=clock)
-    run = replace(run, samples=smp.samples)
+    run = replace(run, samples=smp.samples, instrument=instrument)
     for result, what in ((std, "standards"), (smp, "samples")):
         run = run_edits.record(run, "imported", {"what": what, "source": result.source, "sha256": result.sha256,
                                                  "rows": len(result.standards) or len(result.samples)}, user=user, clock=clock)
@@ -95,6 +96,7 @@ def nitrate_run() -> "Run":  # type: ignore[name-defined]  # noqa: F821
         settings=RunSettings(acceptance_profile="general", rounding=RoundingRule("decimals", 2)),
         choices={"nitrate-N": ("linear", "none", "lack of fit and Mandel's test do not reject the straight line; replicate variances equal")},
         clock=Clock("2026-11-02T08:00:00"), user=Identity("Demo Analyst One", "DEMO-01", "demo.analyst1"), analyte="nitrate-N", response_unit="AU",
+        instrument="UV-Vis spectrophotometer, asset DEMO-UV-1 (invented)",
     )
 
 
@@ -134,6 +136,7 @@ def plasma_run() -> "Run":  # type: ignore[name-defined]  # noqa: F821
         choices={"veltaprine": ("linear", "1/x^2", "replicate variance grows with concentration (ISO 8466-1 F-test) and "
                                 "the replicate SD grows in proportion to concentration, as 1/x² weighting assumes")},
         clock=Clock("2026-11-05T13:30:00"), user=Identity("Demo Analyst Two", "DEMO-02", "demo.analyst2"), analyte="veltaprine", response_unit="area ratio",
+        instrument="LC-MS/MS system, asset DEMO-MS-3 (invented)",
     )
 
 
@@ -175,6 +178,7 @@ def zinc_run() -> "Run":  # type: ignore[name-defined]  # noqa: F821
         settings=RunSettings(acceptance_profile="general", rounding=RoundingRule("significant", 3)),
         choices={"zinc": ("quadratic", "none", "lack of fit and Mandel's test reject the straight line; the vertex lies above the top standard")},
         clock=Clock("2026-11-09T10:15:00"), user=Identity("Demo Analyst Three", "DEMO-03", "demo.analyst3"), extra=exclude, analyte="zinc", response_unit="counts",
+        instrument="flame emission spectrometer, asset DEMO-FE-2 (invented)",
     )
 
 

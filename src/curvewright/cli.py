@@ -179,6 +179,8 @@ def _table_options(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--thousands", choices=(",", ".", "space", "'"), metavar="SEP",
                         help="thousands separator of the tables: , or . or space or ' "
                              "(default: values with one are refused)")
+    parser.add_argument("--instrument", default=None, metavar="NAME",
+                        help="with --standards: the instrument the batch was measured on (for the record)")
     parser.add_argument("--concentration-unit", default=None, metavar="UNIT",
                         help="with --standards: unit of concentration (default: from the header, e.g. 'Concentration (µg/L)')")
     parser.add_argument("--response-unit", default=None, metavar="UNIT",
@@ -491,8 +493,7 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
     description = f"built from {args.standards}" + (f" and {args.samples}" if with_samples else "")
     person = identity_from(getattr(args, "analyst", None), getattr(args, "analyst_id", None))
     run = run_edits.new_run(Path(args.standards).stem, analytes, description=description, user=person)
-    if smp is not None:
-        run = replace(run, samples=smp.samples)
+    run = replace(run, samples=smp.samples if smp is not None else (), instrument=getattr(args, "instrument", None) or "")
     for result, what in zip(results, ("standards", "samples")):
         run = run_edits.record(run, "imported", {"what": what, "source": result.source, "sha256": result.sha256},
                                user=person)

@@ -17,7 +17,7 @@ import pytest
 from PySide6.QtCore import QPoint, Qt
 from PySide6.QtTest import QTest
 from PySide6.QtGui import QGuiApplication, QKeySequence
-from PySide6.QtWidgets import QApplication, QDialog, QFileDialog, QInputDialog
+from PySide6.QtWidgets import QApplication, QDialog, QFileDialog
 
 from curvewright import CAUTION
 from curvewright.app import dialogs, main_window
@@ -99,7 +99,12 @@ def typed_dialogs(monkeypatch):
     monkeypatch.setattr(dialogs.SignDialog, "exec", lambda self: QDialog.DialogCode.Accepted)
     monkeypatch.setattr(dialogs.AnalyteDialog, "exec", analyte_exec)
     monkeypatch.setattr(dialogs.ImportDialog, "exec", lambda self: QDialog.DialogCode.Accepted)
-    monkeypatch.setattr(QInputDialog, "getText", lambda *a, **k: (typed["run name"], True))
+    def details_exec(self) -> int:
+        self.name.setText(typed["run name"])
+        self.instrument.setText("UV-Vis spectrophotometer, asset DEMO-7 (invented)")
+        return QDialog.DialogCode.Accepted
+
+    monkeypatch.setattr(dialogs.RunDetailsDialog, "exec", details_exec)
     return typed
 
 
@@ -203,6 +208,7 @@ def test_every_menu_item_does_what_it_says(demo, make_window, qtbot, slot_errors
     assert window.session.run.settings.confidence_level == 0.99
     do("rename-run")
     assert window.session.run.name == typed_dialogs["run name"]
+    assert window.session.run.instrument == "UV-Vis spectrophotometer, asset DEMO-7 (invented)"
     do("edit-analyte")
     assert window.session.run.analyte(analyte).concentration_unit == "µg/L"
     do("add-analyte")

@@ -393,3 +393,32 @@ class SignDialog(QDialog):
     def _update(self) -> None:
         self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(bool(self.meaning.toPlainText().strip()))
 
+
+class RunDetailsDialog(QDialog):
+    """The run's name, the instrument it was measured on, and its description."""
+
+    def __init__(self, run: Run, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self.setWindowTitle("Run name and instrument")
+        self.name = QLineEdit(run.name)
+        self.name.setAccessibleName("Run name")
+        self.instrument = QLineEdit(run.instrument)
+        self.instrument.setPlaceholderText("e.g. UV-Vis spectrophotometer, asset 0412")
+        self.instrument.setAccessibleName("Instrument")
+        self.description = QPlainTextEdit(run.description)
+        self.description.setTabChangesFocus(True)
+        self.buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Ok | QDialogButtonBox.StandardButton.Cancel)
+        self.buttons.accepted.connect(self.accept)
+        self.buttons.rejected.connect(self.reject)
+        form = QFormLayout(self)
+        form.addRow("&Name", self.name)
+        form.addRow("&Instrument", self.instrument)
+        form.addRow("&Description", self.description)
+        form.addRow(self.buttons)
+        self.name.textChanged.connect(
+            lambda text: self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(bool(text.strip())))
+
+    def values(self) -> dict[str, str]:
+        return {"name": self.name.text().strip(), "instrument": self.instrument.text().strip(),
+                "description": self.description.toPlainText().strip()}
+

@@ -249,6 +249,8 @@ class Run:
     description: str = ""
     audit: tuple[AuditEntry, ...] = ()
     signatures: tuple[Signature, ...] = ()
+    instrument: str = ""
+    """The instrument the batch was measured on, as the laboratory names it (with its ID)."""
 
     @property
     def approval(self) -> Signature | None:

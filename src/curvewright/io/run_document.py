@@ -181,6 +181,7 @@ def run_to_mapping(run: Run) -> dict[str, Any]:
             for e in run.audit
         ],
         **({"signatures": [dict(vars(sig)) for sig in run.signatures]} if run.signatures else {}),
+        **({"instrument": run.instrument} if run.instrument else {}),
     }
 
 
@@ -621,6 +622,7 @@ class _Reader:
             description=self.get(m, "description", "", "text", "", required=False),
             audit=audit,
             signatures=signatures,
+            instrument=self.get(m, "instrument", "", "text", "", required=False),
         )
 
     def signature(self, m: Any, path: str) -> Signature | None:

@@ -218,6 +218,21 @@ def _require_reason(changes: list[dict[str, Any]], reason: str, what: str) -> No
             + (f", with {len(changes) - 1} more" if len(changes) > 1 else "") + ").", changes)
 
 
+def edit_run_details(
+    run: Run, *, name: str, instrument: str, description: str, reason: str = "",
+    user: Identity | str | None = None, clock: Clock = utc_now,
+) -> Run:
+    """Rename the run, or set the instrument it was measured on or its description (old → new recorded)."""
+    after = {"name": name.strip(), "instrument": instrument.strip(), "description": description.strip()}
+    if not after["name"]:
+        raise RunError("run name: a run needs a name.")
+    before = {"name": run.name, "instrument": run.instrument, "description": run.description}
+    changes = {k: {"old": before[k], "new": v} for k, v in after.items() if before[k] != v}
+    if not changes:
+        return run
+    return _log(replace(run, **after), "settings_changed", {"changes": changes, "reason": reason.strip()}, user, clock)
+
+
 def _with_standard(analyte: Analyte, standard: Standard) -> Analyte:
     return replace(analyte, standards=tuple(standard if s.id == standard.id else s for s in analyte.standards))
 
