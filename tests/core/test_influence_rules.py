@@ -127,3 +127,28 @@ def test_round_off_floor_scales_with_the_response() -> None:
     assert np.all(exact.studentized_residuals == 0.0)
     real = measure_influence(e, h, 2, np.array([1e-3, 2e-3, 3e-3, 4e-3]))
     assert np.all(real.studentized_residuals[:3] != 0.0)
+
+
+def test_the_drawn_influence_boundary_is_the_rule_the_flags_use() -> None:
+    # The plot's boundary must separate exactly the standards the rule flags: |t| above the boundary
+    # at a standard's leverage ⇔ flagged INFLUENTIAL. Where no residual can bring Cook's distance over
+    # its threshold (r² ≤ n − p always), the boundary is infinite: nothing there can be flagged.
+    from curvewright.core.influence import influence_boundary
+
+    rng = np.random.default_rng(11)
+    checked = 0
+    for _ in range(300):
+        x = np.array([0, 0.5, 1, 2, 3, 4, 5, 6, 8, 20.0])
+        y = 1 + 2 * x + 0.3 * rng.standard_normal(x.size)
+        y[rng.integers(x.size)] += rng.uniform(-4, 4)
+        cal = cw.fit(x, y)
+        bound = influence_boundary(cal.leverage, cal.n_parameters, cal.n_standards, cal.influence.cooks_threshold)
+        beyond = np.abs(cal.studentized_residuals) > bound
+        flagged = np.array([InfluenceFlag.INFLUENTIAL in f for f in cal.influence_flags])
+        close = np.isclose(np.abs(cal.studentized_residuals), bound, rtol=1e-9)
+        np.testing.assert_array_equal(beyond[~close], flagged[~close])
+        checked += int(flagged.sum())
+    assert checked > 10  # the draws include standards the rule flags
+    h = np.array([0.01, 0.05, 0.3])
+    low = influence_boundary(h, 2, 10, stats.f.ppf(0.5, 2, 8))
+    assert np.isinf(low[0]) and np.isfinite(low[2])

@@ -207,9 +207,12 @@ def influence_limit(leverage: FloatArray, n_parameters: int, n_standards: int) -
 def influence_boundary(leverage: FloatArray, n_parameters: int, n_standards: int, cooks_threshold: float) -> FloatArray:
     """|externally studentized residual| above which a standard of each leverage is flagged
     ``INFLUENTIAL``: both its Cook's distance above ``cooks_threshold`` and its residual beyond
-    :func:`influence_limit`, so the larger of the two boundaries."""
-    return np.fmax(cooks_contour_external(cooks_threshold, n_parameters, n_standards, leverage),
-                   influence_limit(leverage, n_parameters, n_standards))
+    :func:`influence_limit`, so the larger of the two boundaries. Infinite where no residual can
+    bring Cook's distance above the threshold (the internally studentized residual never exceeds
+    √(n − p)), so that no standard of that leverage can be flagged for influence."""
+    contour = cooks_contour_external(cooks_threshold, n_parameters, n_standards, leverage)
+    limit = influence_limit(leverage, n_parameters, n_standards)
+    return np.where(np.isnan(contour) | np.isnan(limit), np.inf, np.maximum(contour, limit))
 
 
 def cooks_contour(distance: float, n_parameters: int, leverage: FloatArray) -> FloatArray:
