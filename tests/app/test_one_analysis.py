@@ -18,8 +18,7 @@ from pypdf import PdfReader
 
 from curvewright.app import results_model as rm
 from curvewright.core.run_analysis import analyse_run
-from curvewright.io.report import build_report, evidence_table
-from curvewright.io.result_tables import Table
+from curvewright.io.report import PrintedTable, build_report, evidence_table
 from curvewright.io.run_document import open_run
 from tests.app.conftest import DEMOS, ROOT
 
@@ -103,8 +102,8 @@ def test_every_output_reads_one_analysis(demo, make_window, tmp_path) -> None:
                   for r in range(panel.rowCount())}
         assert in_app == {(c.model.value, c.weighting.value): c.standards_failing for c in evidence.candidates}
         content = build_report(engine)
-        tables = [b for b in content.blocks if isinstance(b, Table) and b.title == "Model evidence"]
-        assert tables and [r[7] for r in tables[0].rows] == failing
+        tables = [b for b in content.blocks if isinstance(b, PrintedTable) and b.title == "Model evidence"]
+        assert tables and [r[7] for r in tables[0].rows] == [str(f) for f in failing]
 
 
 def _as_number(text: str) -> float | str:

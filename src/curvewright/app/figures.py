@@ -40,6 +40,7 @@ def styled_plot(plot: pg.PlotItem, x_label: str, y_label: str, font_size: int = 
         axis.setTextPen(pg.mkPen("#222222"))
         axis.setTickFont(font)
         axis.label.setFont(font)
+        axis.enableAutoSIPrefix(False)  # a scaled axis ("×0.001") is easily misread on a concentration
     plot.setLabel("bottom", x_label)
     plot.setLabel("left", y_label)
     plot.showGrid(x=True, y=True, alpha=0.15)
@@ -262,21 +263,29 @@ def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem
     n, p = cal.n_standards, cal.n_parameters
     inf = cal.influence
     grid = np.linspace(max(1e-3, 0.5 * float(np.nanmin(h))), min(0.999, max(float(np.nanmax(h)) * 1.1, 0.6)), 240)
+    finite = np.isfinite(t)
+    limit = float(np.nanmax(np.abs(t[finite]))) if finite.any() else 1.0
+    top = max(1.15 * limit, 1.15 * inf.studentized_threshold if np.isfinite(inf.studentized_threshold) else 3.5, 3.5)
     if np.isfinite(inf.studentized_threshold):
         outlier_pen = pg.mkPen(palette.LIMIT, width=1.2, style=Qt.PenStyle.DashLine)
         for sign in (1.0, -1.0):
             plot.addItem(pg.InfiniteLine(pos=sign * inf.studentized_threshold, angle=0, pen=outlier_pen))
         _name(legend, pg.PlotDataItem([0], [0], pen=outlier_pen),
               f"outlier limit (Bonferroni), |t| = {inf.studentized_threshold:.2f}")
+        # the boundary rises steeply where Cook's distance becomes reachable and runs off the top of
+        # the plot (nothing is drawn where no standard can be flagged for influence at all); the
+        # curve does not set the plot's range, the standards and the outlier limit do
         bound = influence_boundary(grid, p, n, inf.cooks_threshold)
+        bound = np.where(bound <= 3 * top, bound, np.nan)
         influence_pen = pg.mkPen(palette.LIMIT, width=1.2)
-        upper = plot.plot(*_finite(grid, bound), pen=influence_pen)
-        plot.plot(*_finite(grid, -bound), pen=influence_pen)
+        upper = pg.PlotDataItem(*_finite(grid, bound), pen=influence_pen)
+        lower = pg.PlotDataItem(*_finite(grid, -bound), pen=influence_pen)
+        for curve in (upper, lower):
+            plot.addItem(curve, ignoreBounds=True)
         _name(legend, upper, "influence limit (Cook's D and residual)")
     leverage_pen = pg.mkPen("#888888", style=Qt.PenStyle.DotLine)
     plot.addItem(pg.InfiniteLine(pos=HIGH_LEVERAGE, angle=90, pen=leverage_pen))
     _name(legend, pg.PlotDataItem([0], [0], pen=leverage_pen), f"leverage {HIGH_LEVERAGE:g} (noted)")
-    finite = np.isfinite(t)
     flagged = np.array([bool(f) for f in cal.influence_flags])
     plain = finite & ~flagged
     _name(legend, plot.plot(h[plain], t[plain], pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,
@@ -290,8 +299,7 @@ def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem
         label = pg.TextItem(ids[i] if i < len(ids) else str(i + 1), color=palette.FLAGGED, anchor=(-0.1, 1.1))
         label.setPos(float(h[i]), float(t[i]) if np.isfinite(t[i]) else 0.0)
         plot.addItem(label)
-    limit = float(np.nanmax(np.abs(t[finite]))) if finite.any() else 1.0
-    top = max(1.15 * limit, 1.15 * inf.studentized_threshold if np.isfinite(inf.studentized_threshold) else 3.5, 3.5)
+    plot.addItem(pg.PlotDataItem([grid[0], grid[-1]], [-top, top], pen=None))  # the range to show
     plot.setYRange(-top, top)
 
 

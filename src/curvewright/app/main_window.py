@@ -16,7 +16,7 @@ from typing import Callable
 import shiboken6
 from PySide6.QtCore import QSettings, Qt
 from PySide6.QtGui import QAction, QKeySequence
-from PySide6.QtWidgets import (QComboBox, QFileDialog, QHBoxLayout, QInputDialog, QLabel, QMainWindow, QMenu,
+from PySide6.QtWidgets import (QComboBox, QFileDialog, QHBoxLayout, QLabel, QMainWindow, QMenu,
                                QMessageBox, QProgressDialog, QPushButton, QSplitter, QTabWidget, QVBoxLayout,
                                QWidget)
 
@@ -229,7 +229,7 @@ class MainWindow(QMainWindow):
         analysis = self.menuBar().addMenu("&Analysis")
         action(analysis, "choose-model", "&Choose model…", self.choose_model_dialog, "Ctrl+M")
         action(analysis, "settings", "Run &settings…", self.edit_settings, "Ctrl+,")
-        action(analysis, "rename-run", "Rename &run…", self.rename_run)
+        action(analysis, "rename-run", "Run name and &instrument…", self.rename_run)
         action(analysis, "edit-analyte", "Analyte name and &units…", self.edit_analyte)
         action(analysis, "add-analyte", "Add &analyte…", self.add_analyte)
         analysis.addSeparator()
@@ -883,12 +883,18 @@ class MainWindow(QMainWindow):
         self.history_window = open_history(self)
 
     def rename_run(self) -> None:
-        name, ok = QInputDialog.getText(self, "Rename run", "Run name:", text=self.session.run.name)
-        if ok and name.strip() and name.strip() != self.session.run.name:
-            new_run = run_edits.record(replace(self.session.run, name=name.strip()), "settings_changed",
-                                       {"changes": {"name": {"old": self.session.run.name, "new": name.strip()}}},
-                                       user=self.session.identity)
-            self.session.apply(new_run, "Rename run")
+        """Analysis → Run name and instrument: the run's name, instrument and description."""
+        from .dialogs import RunDetailsDialog
+
+        dialog = RunDetailsDialog(self.session.run, self)
+        if dialog.exec() != RunDetailsDialog.DialogCode.Accepted:
+            return
+        try:
+            new_run = run_edits.edit_run_details(self.session.run, **dialog.values(), user=self.session.identity)
+        except CurvewrightError as exc:
+            QMessageBox.warning(self, "Run name and instrument", str(exc))
+            return
+        self.session.apply(new_run, "Edit the run's name and instrument")
 
     def edit_analyte(self) -> None:
         """Analysis → Analyte name and units: rename the current analyte or set its units."""

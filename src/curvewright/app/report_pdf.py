@@ -1,107 +1,103 @@
-"""Lay out the calibration record (:mod:`curvewright.io.report`) as a PDF with Qt's PDF writer.
+"""Write the calibration record (:mod:`curvewright.io.report`) as a PDF on A4.
 
-The content is turned into rich text (HTML subset that QTextDocument understands) with the figures
-as embedded images, then printed page by page to a QPdfWriter on A4. Works offscreen.
+The content is placed with :class:`curvewright.app.record_layout.RecordLayout` (measured in the
+fonts it is printed in, rows never split, headers repeated, figures scaled to the text width) and
+painted on a QPdfWriter at 300 dpi. The PDF carries its title, author, creator and subject (the
+subject in the XMP metadata as dc:description). Works offscreen.
 """
 
 from __future__ import annotations
 
-import html
+from html import escape
 from pathlib import Path
 
+from .. import CAUTION, __version__
 from ..io.atomic import write_atomically
 from ..io.audit import file_sha256
-from ..io.report import FigureSlot, PageBreak, Paragraph, ReportContent, SignatureLines
+from ..io.report import (FigureSlot, PageBreak, Paragraph, PrintedTable, ReportContent, Section, SignatureLines,
+                         printed)
 from ..io.result_tables import Table
 from . import figures
 from .qt_runtime import ensure_application
 
-STYLES = {
-    "title": "font-size:15pt; font-weight:bold; margin-bottom:4px;",
-    "heading": "font-size:12.5pt; font-weight:bold; margin-top:10px; color:#1d4f91;",
-    "subheading": "font-size:10.5pt; font-weight:bold; margin-top:6px;",
-    "body": "font-size:8.5pt;",
-    "small": "font-size:7.5pt; color:#333333;",
-    "caution": "font-size:8.5pt; font-weight:bold; color:#7a2400; border:1px solid #7a2400; padding:3px;",
-}
-FULL_PRECISION_TABLES = ("Calibration",)
+FIGURE_PIXELS = {"curve": (1800, 980), "residuals": (1800, 720), "influence": (1800, 720)}
+"""Pixels of each figure as drawn; printed at the text width (178 mm), about 250 dpi."""
 
 
-def report_html(content: ReportContent) -> tuple[str, dict[str, object]]:
-    """Rich text for the report and the images it refers to (name → QImage)."""
-    images: dict[str, object] = {}
-    parts = ["<html><body style='font-family:sans-serif;'>"]
-    draw = {"curve": figures.draw_curve, "residuals": figures.draw_relative_errors, "influence": figures.draw_influence}
+def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
+    """Place every block of ``content`` on pages measured for ``device`` (a QPdfWriter)."""
+    from .record_layout import RecordLayout
+
+    layout = RecordLayout(device, content.header or content.title, content.footer or f"Curvewright {__version__}",
+                          CAUTION)
+    draw = {"curve": figures.draw_curve, "residuals": figures.draw_relative_errors,
+            "influence": figures.draw_influence}
     level = content.result.run.settings.confidence_level
+    rule = content.result.run.settings.rounding
     for block in content.blocks:
-        if isinstance(block, Paragraph):
-            parts.append(f"<p style='{STYLES[block.style]}'>{html.escape(block.text)}</p>")
+        if isinstance(block, Section):
+            layout.set_section(block.text)
         elif isinstance(block, PageBreak):
-            parts.append("<div style='page-break-before: always'></div>")
+            if layout.y > layout.top:
+                layout.new_page()
+        elif isinstance(block, Paragraph):
+            layout.paragraph(block.text, block.style)
+        elif isinstance(block, (PrintedTable, Table)):
+            table = block if isinstance(block, PrintedTable) else printed(block, rule)
+            layout.table(table.title, list(table.headings), [list(r) for r in table.rows], list(table.numeric),
+                         table.note)
         elif isinstance(block, FigureSlot):
             analyte = content.result.analyte(block.analyte)
-            name = f"figure-{len(images)}.png"
-            options: dict[str, object] = {"font_size": 17}
+            options: dict[str, object] = {"font_size": 20}
             if block.kind == "curve":
                 options["level"] = level
             if block.kind in ("curve", "residuals"):
                 options["log_x"] = figures.wide_range(analyte)
-            size = (1500, 820) if block.kind == "curve" else (1500, 600)
-            images[name] = figures.render(draw[block.kind], analyte, *size, **options)
-            parts.append(f"<p><img src='{name}' width='640'></p><p style='{STYLES['small']}'>{html.escape(block.caption)}</p>")
-        elif isinstance(block, Table):
-            parts.append(_table(block))
+            image = figures.render(draw[block.kind], analyte, *FIGURE_PIXELS[block.kind], **options)
+            layout.figure(image, block.caption)
         elif isinstance(block, SignatureLines):
-            parts.append("<table cellspacing='0' cellpadding='10' style='margin-top:18px; font-size:9pt;'>")
-            for role in block.roles:
-                parts.append(f"<tr><td>{role}:</td><td>______________________________</td>"
-                             "<td>Date:</td><td>________________</td></tr>")
-            parts.append("</table>")
-    parts.append("</body></html>")
-    return "".join(parts), images
+            layout.signatures(list(block.lines))
+    return layout
 
 
-def _format(value: object, full: bool) -> str:
-    if value is None:
-        return ""
-    if isinstance(value, float):
-        return repr(value) if full else f"{value:.6g}"
-    return html.escape(str(value))
+def xmp_metadata(content: ReportContent) -> bytes:
+    """XMP packet with the title, author, subject (dc:description) and the producing program."""
+    def alt(text: str) -> str:
+        return f"<rdf:Alt><rdf:li xml:lang='x-default'>{escape(text)}</rdf:li></rdf:Alt>"
 
-
-def _table(table: Table) -> str:
-    full = table.title.startswith(FULL_PRECISION_TABLES)
-    out = [f"<p style='{STYLES['subheading']}'>{html.escape(table.title)}</p>",
-           "<table border='1' cellspacing='0' cellpadding='2' style='border-color:#999999; font-size:6.5pt;'>",
-           "<tr style='background-color:#e8edf5;'>"]
-    out += [f"<th>{html.escape(c.heading)}</th>" for c in table.columns]
-    out.append("</tr>")
-    for row in table.rows:
-        out.append("<tr>" + "".join(f"<td>{_format(v, full)}</td>" for v in row) + "</tr>")
-    out.append("</table>")
-    return "".join(out)
+    return (
+        "<?xpacket begin='' id='W5M0MpCehiHzreSzNTczkc9d'?>"
+        "<x:xmpmeta xmlns:x='adobe:ns:meta/'><rdf:RDF xmlns:rdf='http://www.w3.org/1999/02/22-rdf-syntax-ns#'>"
+        "<rdf:Description rdf:about='' xmlns:dc='http://purl.org/dc/elements/1.1/' "
+        "xmlns:xmp='http://ns.adobe.com/xap/1.0/' xmlns:pdf='http://ns.adobe.com/pdf/1.3/'>"
+        f"<dc:title>{alt(content.title)}</dc:title>"
+        f"<dc:creator><rdf:Seq><rdf:li>{escape(content.author)}</rdf:li></rdf:Seq></dc:creator>"
+        f"<dc:description>{alt(content.subject)}</dc:description>"
+        f"<xmp:CreatorTool>Curvewright {escape(__version__)}</xmp:CreatorTool>"
+        f"<pdf:Producer>Curvewright {escape(__version__)}</pdf:Producer>"
+        "</rdf:Description></rdf:RDF></x:xmpmeta><?xpacket end='w'?>"
+    ).encode("utf-8")
 
 
 def pdf_bytes(content: ReportContent) -> bytes:
     ensure_application()
-    from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF, QUrl
-    from PySide6.QtGui import QPageLayout, QPageSize, QPdfWriter, QTextDocument
+    from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF
+    from PySide6.QtGui import QPageLayout, QPageSize, QPdfWriter
 
-    text, images = report_html(content)
     data = QByteArray()
     buffer = QBuffer(data)
     buffer.open(QIODevice.OpenModeFlag.WriteOnly)
     writer = QPdfWriter(buffer)
     writer.setTitle(content.title)
-    writer.setCreator("Curvewright")
-    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), QPageLayout.Orientation.Portrait,
-                                     QMarginsF(14, 14, 14, 16), QPageLayout.Unit.Millimeter))
+    writer.setCreator(f"Curvewright {__version__}")
+    if hasattr(writer, "setAuthor"):  # Qt 6.8 and later
+        writer.setAuthor(content.author)
+    writer.setDocumentXmpMetadata(xmp_metadata(content))
     writer.setResolution(300)
-    document = QTextDocument()
-    for name, image in images.items():
-        document.addResource(QTextDocument.ResourceType.ImageResource, QUrl(name), image)
-    document.setHtml(text)
-    document.print_(writer)
+    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), QPageLayout.Orientation.Portrait,
+                                     QMarginsF(0, 0, 0, 0), QPageLayout.Unit.Millimeter))
+    layout = lay_out(content, writer)
+    layout.paint(writer)
     del writer
     buffer.close()
     return bytes(data.data())

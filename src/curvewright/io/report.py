@@ -1,23 +1,32 @@
-"""The printable calibration record, built as plain content (paragraphs, tables, figure slots).
+"""The printable calibration record, built as plain content; :mod:`curvewright.app.report_pdf` lays
+it out on pages.
 
-One record per analyte: identity, the software version and the formulas' sources, the curve with
-its bands and the unknowns, residual and influence views, the equation and every statistic at full
-precision, the model-evidence table with the chosen model and its reason, the standards and samples
-tables, LOD/LOQ with method, the acceptance verdict with reasons, the audit trail, the caution and
-signature lines. :mod:`curvewright.app.report_pdf` lays it out as PDF.
+The first page is a summary a reviewer can check in two minutes: the run, its method, instrument,
+analysts and dates; the verdict and its reasons; per analyte the equation, the calibrated range, the
+weighting, and how many results are reportable and how many are exceptions; the content hash and
+what the audit trail shows; and the signatures with what each means. Then, per analyte: the curve,
+relative-error and influence views, the calibration (numbers at the digits chosen for each
+quantity), the model evidence, the standards, the calibration checks and the samples (flags as short
+words with a legend). Then the full-precision coefficients, the signatures, the audit trail in
+words, the formulas' sources and the caution.
 """
 
 from __future__ import annotations
 
+import hashlib
 from dataclasses import dataclass
 from datetime import datetime, timezone
 
 from .. import CAUTION, __version__
 from ..core.comparison import ModelComparison
 from ..core.inverse import INTERVAL_SCOPE_NOTE
+from ..core.reporting import ReportStatus
 from ..core.run_analysis import AnalyteResult, RunResult
-from .result_tables import (Column, Table, audit_table, calibration_table, checks_table, interval_words, samples_table,
-                            signatures_table, standards_table)
+from .audit_words import entry_words, when, who
+from .integrity import content_sha256
+from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, samples_table,
+                            standards_table)
+from .signatures import DEFAULT_MEANINGS, check_signatures, fingerprint
 
 FORMULA_SOURCES = (
     "Least squares by QR decomposition on a centred, scaled basis (Björck 1996); weights scaled to sum to n "
@@ -30,21 +39,38 @@ FORMULA_SOURCES = (
     "F(p, n − p) with a residual beyond chance for its leverage (Cook & Weisberg 1982; split of a 5 % false-alarm "
     "rate checked by simulation); leverage above 0.5 noted (Huber 1981).",
     "Calibration interval by inverting the prediction band for the mean of m responses (Fieller's interval for a "
-    "straight line; Draper & Smith 1998, §3.2); standard error of x̂ by the delta method, equal to "
-    "(s/b)·√(1/m + 1/n + (ȳ₀ − ȳ)²/(b²Σ(x − x̄)²)) for an unweighted line (Miller & Miller, ch. 5).",
+    "straight line; Draper & Smith 1998, §3.2); standard error of the estimated concentration by the delta method, equal to "
+    "(s/b)·√(1/m + 1/n + (ȳ₀ − ȳ)²/(b²·Sxx)) for an unweighted line, Sxx being the sum of squared deviations of the standards' concentrations from their mean (Miller & Miller, ch. 5).",
     "LOD = 3.3σ/S and LOQ = 10σ/S (ICH Q2(R1)); critical value and minimum detectable value (ISO 11843-2).",
     "AICc (Hurvich & Tsai 1989); weighting choice by Σ|%RE| (Almeida, Castel-Branco & Falcão 2002) and by the "
     "growth of the replicate SD (Tellinghuisen 2007).",
 )
 
 
+
+APPENDIX = "appendix and audit trail"
+"""What the running header names on the pages after the analytes."""
 STANDARD_ACCURACY_COLUMNS = ("Standard id", "Level", "Replicate", "Nominal concentration", "Response as entered",
-                             "Back-calculated", "Relative error (%)", "Tolerance (%)", "Within limits", "Included",
-                             "Exclusion reason")
+                             "Back-calculated", "Relative error (%)", "Tolerance (%)", "Within limits")
+"""The printed accuracy table ("Within limits" says "excluded" for a standard left out); each
+exclusion's reason, person and time are listed beneath it."""
 STANDARD_INFLUENCE_COLUMNS = ("Standard id", "Leverage", "Cook's distance", "Studentized residual", "Influence flags")
-SAMPLE_COLUMNS = ("Sample id", "Kind", "Run order", "Replicates", "Mean response", "Dilution factor",
-                  "Concentration × dilution", "Reported", "Lower limit", "Upper limit", "Status", "Flags", "Nominal",
-                  "Recovery (%)", "QC or check")
+SAMPLE_COLUMNS = ("Sample id", "Kind", "Run order", "Replicates", "Dilution factor", "Concentration × dilution",
+                  "Reported", "Interval", "Flags", "Recovery (%)", "QC or check")
+SHORT_FLAG_LEGEND = (
+    ("in range", "inside the calibrated range (LLOQ to ULOQ) and at or above the reporting limit: reported as the number"),
+    ("< LLOQ / < LOQ", "below the reporting limit: reported as “< limit”"),
+    ("< LOD", "below the detection limit"),
+    ("> ULOQ", "above the calibrated range: not reported as a number; the flags say the dilution for a re-assay"),
+    ("estimated", "between the detection and the reporting limit, reported as estimated (where the profile allows)"),
+    ("not reportable", "a number exists, but the calibration checks do not bracket the sample"),
+    ("not quantified", "no numeric result (a response that is not a number, or none)"),
+    ("censored", "reported as entered (e.g. ND, < 0.5)"),
+    ("open interval", "the calibration cannot bound the concentration on one side"),
+    ("two roots", "the curve reaches the response twice within the calibrated range"),
+    ("turning point", "the response lies beyond the curve's extreme; read at the extreme"),
+    ("replicate not usable", "a replicate was left out (its note says why)"),
+)
 
 
 @dataclass(frozen=True)
@@ -66,18 +92,45 @@ class PageBreak:
 
 
 @dataclass(frozen=True)
+class Section:
+    """From here on the running header names this analyte (and the method)."""
+
+    text: str
+
+
+@dataclass(frozen=True)
 class SignatureLines:
-    roles: tuple[str, ...] = ("Analyst", "Reviewer")
+    """Lines to sign on paper: (role, what signing means)."""
+
+    lines: tuple[tuple[str, str], ...]
 
 
-Block = Paragraph | Table | FigureSlot | PageBreak | SignatureLines
+@dataclass(frozen=True)
+class PrintedTable:
+    """A table as printed: headings and cells already in words, numeric columns marked to align right."""
+
+    title: str
+    headings: tuple[str, ...]
+    rows: tuple[tuple[str, ...], ...]
+    numeric: tuple[bool, ...]
+    note: str = ""
+
+
+Block = Paragraph | PrintedTable | Table | FigureSlot | PageBreak | Section | SignatureLines
 
 
 @dataclass(frozen=True, eq=False)
 class ReportContent:
+    """The record's content: its title and author (for the PDF's metadata), the subject, the running
+    header's text and the footer's, and the blocks."""
+
     title: str
     blocks: tuple[Block, ...]
     result: RunResult
+    author: str = ""
+    subject: str = ""
+    header: str = ""
+    footer: str = ""
 
     def text(self) -> str:
         """Every word of the report, for checks and for a plain-text record."""
@@ -85,13 +138,26 @@ class ReportContent:
         for b in self.blocks:
             if isinstance(b, Paragraph):
                 parts.append(b.text)
+            elif isinstance(b, PrintedTable):
+                parts.append(b.title)
+                parts.append(" | ".join(b.headings))
+                parts.extend(" | ".join(row) for row in b.rows)
             elif isinstance(b, Table):
                 parts.append(b.title)
-                parts.extend(" | ".join(c.heading for c in b.columns) for _ in [0])
+                parts.append(" | ".join(c.heading for c in b.columns))
                 parts.extend(" | ".join("" if v is None else str(v) for v in row) for row in b.rows)
             elif isinstance(b, FigureSlot):
                 parts.append(b.caption)
         return "\n".join(parts)
+
+
+def printed(table: Table, rule=None, note: str = "") -> PrintedTable:  # type: ignore[no-untyped-def]
+    """A result table as printed: each number at the digits its column shows (see :class:`Column`)."""
+    from .result_tables import format_value
+
+    return PrintedTable(table.title, tuple(c.heading for c in table.columns),
+                        tuple(tuple(format_value(v, c, rule) for v, c in zip(row, table.columns)) for row in table.rows),
+                        tuple(c.kind in ("number", "int", "reported") for c in table.columns), note)
 
 
 def evidence_table(result: RunResult, a: AnalyteResult) -> tuple[Table, tuple[str, ...]]:
@@ -128,59 +194,239 @@ def evidence_table(result: RunResult, a: AnalyteResult) -> tuple[Table, tuple[st
     return Table("Model evidence", columns, tuple(rows)), reasons
 
 
-def build_report(result: RunResult, *, generated: datetime | None = None) -> ReportContent:
+
+def analysts_of(result: RunResult) -> tuple[str, ...]:
+    """The people named in the audit trail, in the order they first appear."""
+    seen: list[str] = []
+    for e in result.run.audit:
+        person = who(e)
+        if person not in seen:
+            seen.append(person)
+    return tuple(seen)
+
+
+def record_author(result: RunResult) -> str:
+    """The PDF's author: the analyst who signed, else the person who created the run."""
+    analyst = next((s for s in reversed(result.run.signatures) if s.role == "analyst"), None)
+    if analyst is not None:
+        return analyst.name
+    first = result.run.audit[0] if result.run.audit else None
+    return (first.analyst or first.user) if first is not None else ""
+
+
+def _counts(a: AnalyteResult) -> tuple[int, int]:
+    """Unknowns and QC samples reported as numbers, and those that are not (blanks and checks are
+    judged elsewhere)."""
+    judged = [s for s in a.samples if s.kind.value in ("unknown", "qc")]
+    reportable = sum(1 for s in judged if s.reportable)
+    return reportable, len(judged) - reportable
+
+
+def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
+    """The first page: identity, verdict, per-analyte summary, integrity, signatures."""
     run = result.run
-    when = (generated or datetime.now(timezone.utc)).strftime("%Y-%m-%d %H:%M UTC")
-    blocks: list[Block] = [
-        Paragraph(f"Calibration record — {run.name}", "title"),
-        Paragraph(CAUTION, "caution"),
-        Paragraph(f"Generated {when} by Curvewright {__version__}. Acceptance profile: {result.profile.name}. "
-                  f"Run verdict: {'ACCEPTED' if result.accepted else 'NOT ACCEPTED'}.", "body"),
+    method = result.method
+    trail = run.audit
+    created = when(trail[0]) if trail else "not recorded"
+    changed = when(trail[-1]) if trail else "not recorded"
+    identity = [
+        ("Run", run.name),
+        ("Method", f"{method.label} — {method.name} (content SHA-256 {method.sha256[:16]}…)" if method
+         else "no validated method stored with the run"),
+        ("Instrument", run.instrument or "not recorded"),
+        ("Analysts", "; ".join(analysts_of(result)) or "not recorded"),
+        ("Dates", f"created {created}; last change {changed}; this record {when_text}"),
+        ("Acceptance profile", f"{result.profile.name} (rules SHA-256 {result.profile.sha256[:16]}…)"),
+        ("Software", f"Curvewright {__version__}"),
     ]
+    blocks: list[Block] = [PrintedTable("Run", ("Item", "Value"), tuple(identity), (False, False))]
+    word = "ACCEPTED" if result.accepted else "NOT ACCEPTED"
+    failing = [r for r in result.reasons if "FAIL" in r]
+    blocks.append(Paragraph(f"Run verdict: {word}" + (" — " + "; ".join(failing) if failing else
+                                                      f" — all checks of {result.profile.name} pass"), "subheading"))
     if result.profile.caveat:
         blocks.append(Paragraph(f"About the profile: {result.profile.caveat}", "small"))
+    rows = []
+    for a in result.analytes:
+        unit = a.analyte.concentration_unit
+        if a.calibration is None:
+            rows.append((a.analyte.name, f"not fitted: {a.error}", "", "", "", "", ""))
+            continue
+        rng = f"{a.reporting.lloq:g}–{a.reporting.uloq:g} {unit}".strip() if a.reporting else ""
+        reportable, exceptions = _counts(a)
+        rows.append((a.analyte.name, a.calibration.equation(6), rng, a.calibration.weighting.value,
+                     str(reportable), str(exceptions), "accepted" if a.accepted else "NOT accepted"))
+    blocks.append(PrintedTable("Analytes", ("Analyte", "Equation", "Range (LLOQ–ULOQ)", "Weighting", "Reportable",
+                                            "Exceptions", "Verdict"), tuple(rows),
+                               (False, False, False, False, True, True, False),
+                               "Reportable: unknowns and QC samples reported as numbers. Exceptions: results below or "
+                               "above the range, not quantified or not reportable (see each analyte's samples)."))
+    ok, claim = chain_claim(run)
+    blocks.append(Paragraph(f"Content SHA-256: {content_sha256(run)}. Audit trail ({len(trail)} entries): {claim}",
+                            "small"))
+    checks = check_signatures(run)
+    if checks:
+        blocks.append(PrintedTable("Signatures", ("Role", "Name", "Time (UTC)", "Meaning", "Check"),
+                                   tuple((c.signature.role, c.signature.name + (f" (ID {c.signature.person_id})"
+                                                                                if c.signature.person_id else ""),
+                                          c.signature.time_utc.replace("T", " ")[:19], c.signature.meaning,
+                                          ("keyed " + fingerprint(c.signature.public_key) if c.signature.signature
+                                           else "not keyed") + ("" if c.holds else "; does NOT hold"))
+                                         for c in checks), (False, False, False, False, False)))
+    signed = {c.signature.role for c in checks}
+    to_sign = tuple((role.capitalize(), DEFAULT_MEANINGS[role]) for role in ("analyst", "reviewer", "approver")
+                    if role not in signed)
+    if to_sign:
+        blocks.append(Paragraph("To be signed (the meaning of each signature stands beside its role):", "small"))
+        blocks.append(SignatureLines(to_sign))
+    return blocks
+
+
+def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
+    run = result.run
+    name = a.analyte.name
+    rule = run.settings.rounding
+    method = result.method
+    blocks: list[Block] = [PageBreak(), Section(f"{name}" + (f" · method {method.label}" if method else ""))]
+    unit = a.analyte.concentration_unit
+    blocks.append(Paragraph(f"Analyte: {name}" + (f" ({unit}" + (f"; response in {a.analyte.response_unit})"
+                                                                   if a.analyte.response_unit else ")") if unit else ""),
+                            "heading"))
+    verdict = "not fitted" if a.calibration is None else ("ACCEPTED" if a.accepted else "NOT ACCEPTED")
+    blocks.append(Paragraph(f"Verdict for {name}: {verdict}", "subheading"))
+    for r in [r for r in result.reasons if r.startswith(f"{name}: ")]:
+        blocks.append(Paragraph("• " + r.split(": ", 1)[1], "small"))
+    if a.calibration is not None:
+        blocks.append(Paragraph(f"Equation: {a.calibration.equation(12)}", "body"))
+        blocks.append(FigureSlot("curve", name, f"{name}: standards (filled: in the fit; open squares: excluded), "
+                                 f"fitted curve with {run.settings.confidence_level:.0%} confidence and prediction bands, "
+                                 "unknowns with their concentration intervals; calibrated range and LOQ marked."))
+        blocks.append(FigureSlot("residuals", name, f"{name}: relative error of each back-calculated standard against "
+                                 "concentration, with the acceptance limits."))
+        blocks.append(FigureSlot("influence", name, f"{name}: leverage against the externally studentized residual, "
+                                 "with the outlier and influence limits the flags use; flagged standards labelled."))
+    blocks.append(printed(calibration_table(a, result), rule))
+    table, reasons = evidence_table(result, a)
+    blocks.append(_evidence_printed(table, rule))
+    blocks.append(Paragraph(f"Chosen: {a.analyte.model}, {a.analyte.weighting}. Reason given: "
+                            f"{a.analyte.choice_reason or '(none recorded)'}", "body"))
+    blocks += [Paragraph("• " + r, "small") for r in reasons]
+    standards = standards_table(a)
+    blocks.append(printed(standards.select(STANDARD_ACCURACY_COLUMNS, f"Standards – {name}: back-calculated accuracy"), rule))
+    blocks += exclusion_blocks(result, a)
+    blocks.append(printed(standards.select(STANDARD_INFLUENCE_COLUMNS, f"Standards – {name}: influence"), rule))
+    if a.checks is not None:
+        blocks.append(printed(checks_table(a), rule, f"Check windows: {result.profile.checks.source}"))
+    range_words = "" if a.reporting is None else (
+        f" Calibrated range {a.reporting.lloq:g}–{a.reporting.uloq:g} (LLOQ–ULOQ); {a.reporting.note}.")
+    blocks.append(Paragraph(f"Samples – {name}: concentrations in {unit or '(unit not set)'} after dilution; "
+                            f"interval: {interval_words(result)}; reported values rounded to "
+                            f"{rule.description}.{range_words} {INTERVAL_SCOPE_NOTE}", "small"))
+    blocks.append(_samples_printed(result, a))
+    return blocks
+
+
+def exclusion_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
+    """Every standard left out of the fit: its level and nominal concentration, the reason, and who
+    left it out and when (the last audit entry that excluded it)."""
+    name = a.analyte.name
+    excluded = [s for s in a.analyte.standards if not s.included]
+    if not excluded:
+        return [Paragraph(f"No standard of {name} is excluded from the fit.", "small")]
+    out: list[Block] = [Paragraph(f"Standards of {name} excluded from the fit ({len(excluded)}):", "small")]
+    unit = a.analyte.concentration_unit
+    for s in excluded:
+        entry = next((e for e in reversed(result.run.audit) if e.action == "standard_excluded"
+                      and e.details.get("analyte") == name and e.details.get("standard") == s.id), None)
+        by = f"; excluded by {who(entry)}, {when(entry)}" if entry is not None else \
+            "; no audit entry records the exclusion"
+        out.append(Paragraph(f"• {s.id} (level {s.level or '—'}, {s.concentration:g} {unit}".rstrip() +
+                             f"): {s.exclusion_reason or '(no reason recorded)'}{by}", "small"))
+    return out
+
+
+def _evidence_printed(table: Table, rule) -> PrintedTable:  # type: ignore[no-untyped-def]
+    """The model evidence as printed: "Recommended" and "Chosen" in one column, so that the table fits
+    the width of the page in one piece."""
+    shown = printed(table, rule)
+    rows = tuple(row[:-2] + (" and ".join(w for w in row[-2:] if w),) for row in shown.rows)
+    return PrintedTable(shown.title, shown.headings[:-2] + ("Status",), rows, shown.numeric[:-2] + (False,), shown.note)
+
+
+def _samples_printed(result: RunResult, a: AnalyteResult) -> PrintedTable:
+    """The samples of one analyte, the flags as short words (the legend below the table)."""
+    from .result_tables import format_value, interval_text
+
+    rule = result.run.settings.rounding
+    full = samples_table(result)
+    index = {c.name: i for i, c in enumerate(full.columns)}
+    rows = []
+    for s, row in zip(a.samples, (r for r in full.rows if r[index["Analyte"]] == a.analyte.name)):
+        def cell(name: str) -> str:
+            return format_value(row[index[name]], full.columns[index[name]], rule)
+        rows.append((s.sample_id, s.kind.words, cell("Run order"), cell("Replicates"), cell("Dilution factor"),
+                     cell("Concentration × dilution"), s.reported_text,
+                     interval_text(s.reported_lower, s.reported_upper, rule) if s.reported is not None else "",
+                     s.short_flags, cell("Recovery (%)"), cell("QC or check")))
+    used = {word.strip() for row in rows for word in row[8].split(",") if word.strip()}
+    legend = "Flags: " + "; ".join(f"{short} — {meaning}" for short, meaning in SHORT_FLAG_LEGEND
+                                   if used & {w.strip() for w in short.split("/")}) + ". " + \
+             "Each sample's flags in full are in the workbook."
+    return PrintedTable(f"Samples – {a.analyte.name}", SAMPLE_COLUMNS, tuple(rows),
+                        (False, False, True, True, True, True, True, True, False, True, False), legend)
+
+
+def precision_appendix(result: RunResult) -> list[Block]:
+    """The coefficients and their covariance at full precision (shortest exact decimal of each double)."""
+    blocks: list[Block] = [PageBreak(), Section(APPENDIX),
+                           Paragraph("Appendix: calibration coefficients at full precision", "heading")]
+    for a in result.analytes:
+        cal = a.calibration
+        if cal is None:
+            continue
+        rows = [(f"b{p}", repr(float(b)), repr(float(se))) for p, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors))]
+        for i in range(cal.covariance.shape[0]):
+            for j in range(i + 1, cal.covariance.shape[0]):
+                rows.append((f"covariance(b{i}, b{j})", repr(float(cal.covariance[i, j])), ""))
+        rows.append(("residual SD", repr(float(cal.residual_sd)), ""))
+        blocks.append(PrintedTable(f"{a.analyte.name}: {cal.equation(6)}", ("Coefficient", "Value", "Standard error"),
+                                   tuple(rows), (False, True, True)))
+    return blocks
+
+
+def audit_blocks(result: RunResult) -> list[Block]:
+    """The audit trail in words: who, when, what changed from what to what, and why."""
+    trail = result.run.audit
+    ok, claim = chain_claim(result.run)
+    rows = tuple((str(i), when(e), who(e), entry_words(e), e.hash[:12]) for i, e in enumerate(trail, start=1))
+    return [Section(APPENDIX), Paragraph("Audit trail", "heading"),
+            Paragraph(f"Chain check: {claim}", "small"),
+            PrintedTable("Audit trail in words", ("Entry", "Time", "Who", "What was done", "Entry hash"), rows,
+                         (True, False, False, False, False),
+                         "Entry hash: the first 12 hex digits of each entry's SHA-256 (all digits in the workbook).")]
+
+
+def build_report(result: RunResult, *, generated: datetime | None = None) -> ReportContent:
+    run = result.run
+    when_text = (generated or datetime.now(timezone.utc)).strftime("%Y-%m-%d %H:%M UTC")
+    title = f"Calibration record — {run.name}"
+    blocks: list[Block] = [Section("summary"), Paragraph(title, "title"), Paragraph(CAUTION, "caution")]
     if run.description:
         blocks.append(Paragraph(run.description, "small"))
-    for i, a in enumerate(result.analytes):
-        name = a.analyte.name
-        if i:
-            blocks.append(PageBreak())
-        blocks.append(Paragraph(f"Analyte: {name} ({a.analyte.concentration_unit}; response in {a.analyte.response_unit})", "heading"))
-        verdict = "not fitted" if a.calibration is None else ("ACCEPTED" if a.accepted else "NOT ACCEPTED")
-        blocks.append(Paragraph(f"Verdict for {name}: {verdict}", "subheading"))
-        if a.calibration is not None:
-            blocks.append(Paragraph(f"Equation: {a.calibration.equation(12)}", "body"))
-            blocks.append(FigureSlot("curve", name, f"{name}: standards (filled: in the fit; open squares: excluded), "
-                                     f"fitted curve with {run.settings.confidence_level:.0%} confidence and prediction bands, "
-                                     "unknowns with their concentration intervals; calibrated range and LOQ marked."))
-            blocks.append(FigureSlot("residuals", name, f"{name}: relative error of each back-calculated standard against "
-                                     "concentration, with the acceptance limits."))
-            blocks.append(FigureSlot("influence", name, f"{name}: leverage against the externally studentized residual, "
-                                     "with the outlier and influence limits the flags use; flagged standards labelled."))
-        blocks.append(calibration_table(a, result))
-        table, reasons = evidence_table(result, a)
-        blocks.append(table)
-        blocks.append(Paragraph(f"Chosen: {a.analyte.model}, {a.analyte.weighting}. Reason given: "
-                                f"{a.analyte.choice_reason or '(none recorded)'}", "body"))
-        blocks += [Paragraph("• " + r, "small") for r in reasons]
-        standards = standards_table(a)
-        blocks.append(standards.select(STANDARD_ACCURACY_COLUMNS, f"Standards – {name}: back-calculated accuracy"))
-        blocks.append(standards.select(STANDARD_INFLUENCE_COLUMNS, f"Standards – {name}: influence"))
-        if a.checks is not None:
-            blocks.append(checks_table(a))
-            blocks.append(Paragraph(f"Check windows: {result.profile.checks.source}", "small"))
-        range_words = "" if a.reporting is None else (
-            f" Calibrated range {a.reporting.lloq:g}–{a.reporting.uloq:g} (LLOQ–ULOQ); {a.reporting.note}.")
-        blocks.append(Paragraph(f"Samples – {name}: concentrations in {a.analyte.concentration_unit} after dilution; "
-                                f"interval: {interval_words(result)}; reported values rounded to "
-                                f"{run.settings.rounding.description}.{range_words} {INTERVAL_SCOPE_NOTE}", "subheading"))
-        blocks.append(samples_table(result).select(SAMPLE_COLUMNS, f"Samples – {name}", where=("Analyte", name)))
-    blocks.append(PageBreak())
-    if result.run.signatures:
-        blocks.append(signatures_table(result))
-    blocks.append(audit_table(result))
+    blocks += summary_blocks(result, when_text)
+    for a in result.analytes:
+        blocks += analyte_blocks(result, a)
+    blocks += precision_appendix(result)
+    blocks += audit_blocks(result)
     blocks.append(Paragraph("Formulas and their sources", "subheading"))
     blocks += [Paragraph("• " + s, "small") for s in FORMULA_SOURCES]
     blocks.append(Paragraph(CAUTION, "caution"))
-    blocks.append(SignatureLines())
-    return ReportContent(f"Calibration record — {run.name}", tuple(blocks), result)
+    names = ", ".join(a.analyte.name for a in result.analytes)
+    method = f" · method {result.method.label}" if result.method else ""
+    digest = content_sha256(run)
+    return ReportContent(
+        title, tuple(blocks), result, author=record_author(result),
+        subject=f"Calibration record of run {run.name}: {names}; verdict {'ACCEPTED' if result.accepted else 'NOT ACCEPTED'}",
+        header=f"{run.name}{method}",
+        footer=f"Curvewright {__version__} · content SHA-256 {digest[:16]}… · generated {when_text}",
+    )

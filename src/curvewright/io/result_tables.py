@@ -28,13 +28,86 @@ Value = str | float | int | None
 
 @dataclass(frozen=True)
 class Column:
+    """A column: its name and unit, the kind of its values, and how a number is shown for reading.
+
+    ``display`` is ``"rule"`` (the run's rounding rule, for reported concentrations), ``"sig:N"``
+    (N significant figures), ``"dec:N"`` (N decimals), ``"signed:N"`` (N decimals with a sign),
+    ``"plain"`` (up to six significant figures without trailing zeros: for values as a person
+    set them, such as a nominal concentration, a dilution factor or a tolerance) or ``""`` (six
+    significant figures). The workbook keeps every number at full precision and only
+    formats it so; the printed record prints it so.
+    """
+
     name: str
     unit: str = ""
     kind: str = "text"  # text | number | int | reported
+    display: str = ""
 
     @property
     def heading(self) -> str:
         return f"{self.name} ({self.unit})" if self.unit else self.name
+
+
+def shown_decimals(value: float, display: str, rule: RoundingRule | None = None) -> int | None:
+    """How many decimals a number is shown with under ``display`` (None: in scientific notation)."""
+    if display == "rule" and rule is not None:
+        return _decimal_places(rule.text(value))
+    if display == "plain":
+        text = f"{value:.6g}"
+        return None if "e" in text else _decimal_places(text)
+    kind, _, n = display.partition(":")
+    if kind in ("dec", "signed"):
+        return int(n)
+    digits = int(n) if kind == "sig" else 6
+    if value == 0:
+        return digits - 1
+    magnitude = math.floor(math.log10(abs(value)))
+    if magnitude < -4 or magnitude >= 9:
+        return None
+    return max(digits - 1 - magnitude, 0)
+
+
+def format_value(value: Value, column: Column, rule: RoundingRule | None = None) -> str:
+    """A value as printed for reading (the record): numbers by the column's ``display``."""
+    if value is None:
+        return ""
+    if isinstance(value, str):
+        return value
+    if column.kind == "int" or (isinstance(value, int) and not isinstance(value, bool)):
+        return str(value)
+    v = float(value)
+    if not math.isfinite(v):
+        return display_number(v)
+    if column.display == "rule" and rule is not None:
+        return rule.text(v)
+    if column.display == "plain":
+        return f"{v:.6g}"
+    decimals = shown_decimals(v, column.display, rule)
+    kind, _, n = column.display.partition(":")
+    if decimals is None:
+        return f"{v:.{(int(n) if kind == 'sig' else 6) - 1}e}"
+    return f"{v:+.{decimals}f}" if kind == "signed" else f"{v:.{decimals}f}"
+
+
+def excel_format(value: Value, column: Column, rule: RoundingRule | None = None) -> str | None:
+    """The number format that shows a workbook cell as :func:`format_value` prints it, while the cell
+    keeps the full-precision number; None for text."""
+    if not isinstance(value, (int, float)) or isinstance(value, bool):
+        return None
+    if column.kind == "int" or isinstance(value, int):
+        return "0"
+    v = float(value)
+    if not math.isfinite(v):
+        return None
+    decimals = shown_decimals(v, column.display, rule)
+    if decimals is None:
+        kind, _, n = column.display.partition(":")
+        if kind == "plain":
+            mantissa = f"{v:.6g}".split("e")[0]
+            return "0." + "0" * _decimal_places(mantissa) + "E+00" if "." in mantissa else "0E+00"
+        return "0." + "0" * ((int(n) if kind == "sig" else 6) - 1) + "E+00"
+    body = "0" if decimals == 0 else "0." + "0" * decimals
+    return f"+{body};-{body};{body}" if column.display.startswith("signed") else body
 
 
 @dataclass(frozen=True)
@@ -68,12 +141,13 @@ def samples_table(result: RunResult) -> Table:
     unit = {a.analyte.name: a.analyte.concentration_unit for a in result.analytes}
     columns = (
         Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Run order", kind="int"),
-        Column("Replicates", kind="int"), Column("Replicate responses"), Column("Mean response", kind="number"),
-        Column("Estimated concentration", kind="number"), Column("Dilution factor", kind="number"),
-        Column("Concentration × dilution", kind="number"), Column("Reported", kind="reported"),
-        Column("Lower limit", kind="number"), Column("Upper limit", kind="number"), Column("Interval"),
-        Column("Unit"), Column("Status"), Column("Flags"), Column("Suggested dilution", kind="number"),
-        Column("Nominal", kind="number"), Column("Recovery (%)", kind="number"), Column("QC or check"),
+        Column("Replicates", kind="int"), Column("Replicate responses"), Column("Mean response", kind="number", display="sig:6"),
+        Column("Estimated concentration", kind="number", display="rule"), Column("Dilution factor", kind="number", display="plain"),
+        Column("Concentration × dilution", kind="number", display="rule"), Column("Reported", kind="reported"),
+        Column("Lower limit", kind="number", display="sig:5"), Column("Upper limit", kind="number", display="sig:5"),
+        Column("Interval"), Column("Unit"), Column("Status"), Column("Flags"),
+        Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="plain"),
+        Column("Recovery (%)", kind="number", display="dec:1"), Column("QC or check"),
     )
     words = interval_words(result)
     rows = []
@@ -105,9 +179,9 @@ def verdict_word(within: bool | None) -> str:
 def checks_table(a: AnalyteResult) -> Table:
     """The calibration checks of one analyte: recovery, window and verdict, with the reason."""
     unit = a.analyte.concentration_unit
-    columns = (Column("Check"), Column("Kind"), Column("Run order", kind="int"), Column("Nominal", unit, "number"),
-               Column("Found", unit, "number"), Column("Recovery (%)", kind="number"),
-               Column("Window (± %)", kind="number"), Column("Verdict"), Column("Reason"))
+    columns = (Column("Check"), Column("Kind"), Column("Run order", kind="int"), Column("Nominal", unit, "number", "plain"),
+               Column("Found", unit, "number", "rule"), Column("Recovery (%)", kind="number", display="dec:1"),
+               Column("Window (±%)", kind="number", display="plain"), Column("Verdict"), Column("Reason"))
     rows = tuple(
         (c.sample_id, c.kind.words, c.run_order, c.nominal, c.found, c.recovery_percent, c.window_percent,
          "pass" if c.passed else "FAIL", c.reason.split(": ", 2)[-1])
@@ -136,7 +210,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     ]
     if cal is None:
         rows.append(("Calibration", f"not fitted: {a.error}", None))
-        return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value"), Column("Standard error")), tuple(rows))
+        return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value", display="plain"), Column("Standard error", display="sig:3")), tuple(rows))
     rows.append(("Equation", cal.equation(12), None))
     for power, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors)):
         fixed = cal.model is Model.PROPORTIONAL and power == 0
@@ -187,7 +261,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         rows.append(("Calibration check windows, source", result.profile.checks.source, None))
     for u in a.unusable_standards:
         rows.append(("Standard not usable", f"{u.standard_id}: {u.reason}", None))
-    return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value"), Column("Standard error")), tuple(rows))
+    return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value", display="plain"), Column("Standard error", display="sig:3")), tuple(rows))
 
 
 def standards_table(a: AnalyteResult) -> Table:
@@ -195,11 +269,14 @@ def standards_table(a: AnalyteResult) -> Table:
     an = a.analyte
     columns = (
         Column("Standard id"), Column("Level"), Column("Replicate", kind="int"),
-        Column("Nominal concentration", an.concentration_unit, "number"), Column("Response as entered"),
-        Column("Response used", kind="number"), Column("Back-calculated", an.concentration_unit, "number"),
-        Column("Relative error (%)", kind="number"), Column("Tolerance (%)", kind="number"), Column("Within limits"),
-        Column("Leverage", kind="number"), Column("Cook's distance", kind="number"),
-        Column("Studentized residual", kind="number"), Column("Influence flags"), Column("Included"), Column("Exclusion reason"),
+        Column("Nominal concentration", an.concentration_unit, "number", "plain"), Column("Response as entered"),
+        Column("Response used", kind="number", display="sig:6"),
+        Column("Back-calculated", an.concentration_unit, "number", "rule"),
+        Column("Relative error (%)", kind="number", display="signed:1"), Column("Tolerance (%)", kind="number", display="plain"),
+        Column("Within limits"), Column("Leverage", kind="number", display="dec:3"),
+        Column("Cook's distance", kind="number", display="sig:3"),
+        Column("Studentized residual", kind="number", display="signed:2"), Column("Influence flags"), Column("Included"),
+        Column("Exclusion reason"),
     )
     position = {s.id: i for i, s in enumerate(a.fitted_standards)}
     rows = []

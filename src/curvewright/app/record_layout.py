@@ -1,0 +1,391 @@
+"""Laying out the calibration record on A4 pages, for a reviewer who signs it.
+
+The content (:mod:`curvewright.io.report`) is placed block by block into the text area of each
+page, measured with the fonts it is printed in, in two passes: the first places everything and so
+knows the number of pages, the second paints, with a running header (run, analyte, method) and a
+footer (page N of M, the software version, the content hash and the caution) on every page.
+
+Tables
+    Each column is at least as wide as the longest word or number in it (header included), so that
+    no word or number is broken inside a cell; when the columns cannot all fit the page, the table
+    is printed in column groups, each repeating the first column. A row is never split across pages,
+    and the header row is repeated on every page the table runs onto. Only a token longer than
+    nearly half the page (a file path, a hash) is broken, at "/", "_" or "-" where it has them.
+Figures
+    Scaled to the text width (never past the margins) and moved to the next page rather than cut.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from PySide6.QtCore import QRectF, Qt
+from PySide6.QtGui import QColor, QFont, QFontMetricsF, QImage, QPainter, QPen
+
+MM = 300 / 25.4
+"""Device units per millimetre at the 300 dpi the record is written at."""
+PAGE_WIDTH, PAGE_HEIGHT = 210 * MM, 297 * MM
+MARGIN_LEFT, MARGIN_RIGHT, MARGIN_TOP, MARGIN_BOTTOM = 16 * MM, 14 * MM, 20 * MM, 22 * MM
+"""The text area; the running header sits above it and the footer below it, both inside the page's
+printable area (at least 8 mm from each edge)."""
+PRINTABLE_MARGIN = 8 * MM
+CELL_PAD_X, CELL_PAD_Y = 1.2 * MM, 0.6 * MM
+FIT_SLACK = 1.0
+"""Device units added to a column's width so that rounding never breaks its longest word."""
+LONGEST_UNBROKEN = 0.45
+"""Fraction of the text width beyond which a single token may be broken (paths, hashes)."""
+
+STYLES = {
+    # name: (point size, bold, colour)
+    "title": (15.0, True, "#111111"),
+    "heading": (12.5, True, "#1d4f91"),
+    "subheading": (10.0, True, "#222222"),
+    "body": (8.8, False, "#111111"),
+    "small": (7.6, False, "#333333"),
+    "caution": (8.8, True, "#7a2400"),
+    "table": (7.2, False, "#111111"),
+    "table_header": (7.2, True, "#111111"),
+    "running": (7.2, False, "#444444"),
+}
+SPACE_BEFORE = {"heading": 2.5, "subheading": 1.8}
+SPACE_AFTER = {"title": 2.5, "heading": 2.0, "subheading": 1.4, "body": 1.4, "small": 1.0, "caution": 2.0}
+
+
+def font(style: str) -> QFont:
+    size, bold, _ = STYLES[style]
+    f = QFont("DejaVu Sans")
+    f.setPointSizeF(size)
+    f.setBold(bold)
+    return f
+
+
+@dataclass
+class TextOp:
+    rect: QRectF
+    style: str
+    text: str
+    align: Qt.AlignmentFlag = Qt.AlignmentFlag.AlignLeft
+
+
+@dataclass
+class LineOp:
+    x1: float
+    y1: float
+    x2: float
+    y2: float
+    colour: str = "#999999"
+    width: float = 0.6
+
+
+@dataclass
+class FillOp:
+    rect: QRectF
+    colour: str
+
+
+@dataclass
+class ImageOp:
+    rect: QRectF
+    image: QImage
+
+
+@dataclass
+class Page:
+    ops: list = field(default_factory=list)
+    section: str = ""
+
+
+class Metrics:
+    """Font metrics at the writer's resolution, one per style."""
+
+    def __init__(self, device) -> None:  # type: ignore[no-untyped-def]
+        self.metrics = {name: QFontMetricsF(font(name), device) for name in STYLES}
+
+    def width(self, style: str, text: str) -> float:
+        return self.metrics[style].horizontalAdvance(text)
+
+    def line_height(self, style: str) -> float:
+        return self.metrics[style].lineSpacing()
+
+
+class RecordLayout:
+    """Places blocks on pages; :meth:`paint` then draws them with the running header and footer."""
+
+    def __init__(self, device, header_left: str, footer_left: str, caution: str) -> None:  # type: ignore[no-untyped-def]
+        self.m = Metrics(device)
+        self.header_left, self.footer_left, self.caution = header_left, footer_left, caution
+        self.left, self.right = MARGIN_LEFT, PAGE_WIDTH - MARGIN_RIGHT
+        self.top, self.bottom = MARGIN_TOP, PAGE_HEIGHT - MARGIN_BOTTOM
+        self.width = self.right - self.left
+        self.pages: list[Page] = []
+        self.section = ""
+        self.new_page()
+
+    # --- pages -------------------------------------------------------------------------------------
+    def new_page(self) -> None:
+        self.pages.append(Page(section=self.section))
+        self.y = self.top
+
+    def set_section(self, text: str) -> None:
+        """What the running header names from here on (the analyte and method)."""
+        self.section = text
+        if self.y == self.top:
+            self.pages[-1].section = text
+
+    def room(self) -> float:
+        return self.bottom - self.y
+
+    def ensure(self, height: float) -> None:
+        if height > self.room() and self.y > self.top:
+            self.new_page()
+
+    def add(self, op) -> None:  # type: ignore[no-untyped-def]
+        self.pages[-1].ops.append(op)
+
+    # --- text ----------------------------------------------------------------------------------------
+    def wrap(self, style: str, text: str, width: float) -> list[str]:
+        """Lines of ``text`` within ``width``, broken between words only (see :meth:`tokens`)."""
+        lines: list[str] = []
+        for paragraph in str(text).split("\n"):
+            line = ""
+            for token in self.tokens(style, paragraph, width):
+                candidate = token if not line else f"{line} {token}"
+                if self.m.width(style, candidate) <= width or not line:
+                    line = candidate
+                else:
+                    lines.append(line)
+                    line = token
+            lines.append(line)
+        return lines
+
+    def tokens(self, style: str, text: str, width: float) -> list[str]:
+        """The words of ``text``, a sign kept with the number after it ("< 0.50") and an interval kept
+        whole ("4.99 – 5.02"); a word wider than ``width`` is split at "/", "_" or "-" where it has
+        them, else between characters (only ever a path or a hash, never a word of prose or a number)."""
+        out = []
+        for word in self.bound_words(text):
+            if self.m.width(style, word) <= width:
+                out.append(word)
+                continue
+            piece = ""
+            for ch in word:
+                if piece and self.m.width(style, piece + ch) > width:
+                    cut = max(piece.rfind(c) for c in "/_-")
+                    if cut > 0:
+                        out.append(piece[: cut + 1])
+                        piece = piece[cut + 1:]
+                    else:
+                        out.append(piece)
+                        piece = ""
+                piece += ch
+            if piece:
+                out.append(piece)
+        return out
+
+    @staticmethod
+    def bound_words(text: str) -> list[str]:
+        """Words, with a lone comparison sign joined to the word after it and a lone dash to the
+        words on both sides (joined by no-break spaces)."""
+        words: list[str] = []
+        glue_next = False
+        for word in text.split():
+            if glue_next and words:
+                words[-1] += "\u00a0" + word
+            elif word == "–" and words:
+                words[-1] += "\u00a0" + word
+                glue_next = True
+                continue
+            else:
+                words.append(word)
+            glue_next = word in ("<", ">", "≤", "≥")
+        return words
+
+    def paragraph(self, text: str, style: str = "body", *, keep_with: float = 0.0) -> None:
+        lines = self.wrap(style, text, self.width - (4 * MM if style == "caution" else 0))
+        height = self.m.line_height(style)
+        box = style == "caution"
+        if style in SPACE_BEFORE and self.y > self.top:
+            self.y += SPACE_BEFORE[style] * MM
+        self.ensure(min(len(lines), 2) * height + keep_with)
+        if box:
+            total = len(lines) * height + 2 * MM
+            self.ensure(total)
+            self.add(FillOp(QRectF(self.left, self.y, self.width, total), "#fff4e5"))
+            self.y += 1 * MM
+        for line in lines:
+            self.ensure(height)
+            self.add(TextOp(QRectF(self.left + (2 * MM if box else 0), self.y, self.width, height), style, line))
+            self.y += height
+        self.y += SPACE_AFTER.get(style, 1.0) * MM + (1 * MM if box else 0)
+
+    # --- tables --------------------------------------------------------------------------------------
+    def table(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool],
+              note: str = "") -> None:
+        """A table in column groups that fit the page, rows never split, the header repeated."""
+        for group, group_title in self._column_groups(title, headings, rows):
+            self._table_part(group_title, [headings[c] for c in group], [[r[c] for c in group] for r in rows],
+                             [numeric[c] for c in group])
+        if note:
+            self.paragraph(note, "small")
+
+    def _min_width(self, texts: list[str], style: str) -> float:
+        """The narrowest a column can be without breaking a word."""
+        limit = LONGEST_UNBROKEN * self.width
+        words = [w for t in texts for w in self.bound_words(str(t))]
+        longest = max((self.m.width(style, w) for w in words), default=0.0)
+        return min(longest, limit) + 2 * CELL_PAD_X + FIT_SLACK
+
+    def _full_width(self, texts: list[str], style: str) -> float:
+        return min(max((self.m.width(style, str(t)) for t in texts), default=0.0), 0.6 * self.width) + 2 * CELL_PAD_X
+
+    def _column_groups(self, title: str, headings: list[str], rows: list[list[str]]):  # type: ignore[no-untyped-def]
+        mins = [max(self._min_width([h], "table_header"), self._min_width([r[c] for r in rows], "table"))
+                for c, h in enumerate(headings)]
+        if sum(mins) <= self.width or len(headings) <= 2:
+            return [(list(range(len(headings))), title)]
+        groups, current, used = [], [0], mins[0]
+        for c in range(1, len(headings)):
+            if used + mins[c] > self.width and len(current) > 1:
+                groups.append(current)
+                current, used = [0], mins[0]
+            current.append(c)
+            used += mins[c]
+        groups.append(current)
+        return [(g, title if i == 0 else f"{title} (continued: {', '.join(headings[c] for c in g[1:])})")
+                for i, g in enumerate(groups)]
+
+    def _widths(self, headings: list[str], rows: list[list[str]]) -> list[float]:
+        mins, fulls = [], []
+        for c, h in enumerate(headings):
+            cells = [r[c] for r in rows]
+            mins.append(max(self._min_width([h], "table_header"), self._min_width(cells, "table")))
+            fulls.append(max(mins[-1], self._full_width(cells, "table"),
+                             min(self._full_width([h], "table_header"), 2.2 * mins[-1])))
+        if sum(fulls) <= self.width:
+            return fulls
+        spare = self.width - sum(mins)
+        extra = sum(f - m for f, m in zip(fulls, mins)) or 1.0
+        return [m + (f - m) * max(spare, 0.0) / extra for m, f in zip(mins, fulls)]
+
+    def _row_height(self, cells: list[str], widths: list[float], style: str) -> tuple[float, list[list[str]]]:
+        wrapped = [self.wrap(style, t, w - 2 * CELL_PAD_X) if t else [""] for t, w in zip(cells, widths)]
+        lines = max(len(w) for w in wrapped)
+        return lines * self.m.line_height(style) + 2 * CELL_PAD_Y, wrapped
+
+    def _table_part(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool]) -> None:
+        widths = self._widths(headings, rows)
+        header_h, header_lines = self._row_height(headings, widths, "table_header")
+        first_h = self._row_height(rows[0], widths, "table")[0] if rows else 0.0
+        title_h = self.m.line_height("subheading") + 1.4 * MM
+        self.ensure(title_h + header_h + first_h)
+        self.paragraph(title, "subheading")
+        self._header_row(widths, header_h, header_lines)
+        for row in rows:
+            h, lines = self._row_height(row, widths, "table")
+            if h > self.room():
+                self.new_page()
+                self.paragraph(f"{title} (continued)", "small")
+                self._header_row(widths, header_h, header_lines)
+            x = self.left
+            for w, cell_lines, right in zip(widths, lines, numeric):
+                for k, line in enumerate(cell_lines):
+                    rect = QRectF(x + CELL_PAD_X, self.y + CELL_PAD_Y + k * self.m.line_height("table"),
+                                  w - 2 * CELL_PAD_X, self.m.line_height("table"))
+                    self.add(TextOp(rect, "table", line, Qt.AlignmentFlag.AlignRight if right else Qt.AlignmentFlag.AlignLeft))
+                x += w
+            self.y += h
+            self.add(LineOp(self.left, self.y, self.left + sum(widths), self.y, "#cccccc", 0.5))
+        self.y += 2.5 * MM
+
+    def _header_row(self, widths: list[float], height: float, lines: list[list[str]]) -> None:
+        self.add(FillOp(QRectF(self.left, self.y, sum(widths), height), "#e8edf5"))
+        x = self.left
+        for w, cell_lines in zip(widths, lines):
+            for k, line in enumerate(cell_lines):
+                self.add(TextOp(QRectF(x + CELL_PAD_X, self.y + CELL_PAD_Y + k * self.m.line_height("table_header"),
+                                       w - 2 * CELL_PAD_X, self.m.line_height("table_header")), "table_header", line))
+            x += w
+        self.y += height
+        self.add(LineOp(self.left, self.y, self.left + sum(widths), self.y, "#777777", 0.8))
+
+    # --- figures and signatures ------------------------------------------------------------------------
+    def figure(self, image: QImage, caption: str) -> None:
+        scale = self.width / image.width()
+        height = image.height() * scale
+        caption_lines = self.wrap("small", caption, self.width)
+        needed = height + len(caption_lines) * self.m.line_height("small") + 2 * MM
+        if needed > self.room():
+            self.new_page()
+        if needed > self.room():  # taller than a page: shrink to fit
+            height = self.room() - len(caption_lines) * self.m.line_height("small") - 2 * MM
+        width = image.width() * height / image.height()
+        self.add(ImageOp(QRectF(self.left, self.y, min(width, self.width), height), image))
+        self.y += height + 1 * MM
+        self.paragraph(caption, "small")
+
+    def signatures(self, lines: list[tuple[str, str]]) -> None:
+        """Signature lines: (role, what signing means), each with room for the name, signature and date."""
+        height = 3 * self.m.line_height("body") + 4 * MM
+        self.ensure(len(lines) * height)
+        for role, meaning in lines:
+            self.paragraph(f"{role} — {meaning}", "body")
+            y = self.y + 5 * MM
+            for x0, x1, label in ((self.left, self.left + 80 * MM, "name and signature"),
+                                  (self.left + 95 * MM, self.right, "date")):
+                self.add(LineOp(x0, y, x1, y, "#333333", 0.8))
+                self.add(TextOp(QRectF(x0, y + 0.5 * MM, x1 - x0, self.m.line_height("small")), "small", label))
+            self.y = y + self.m.line_height("small") + 3 * MM
+
+    # --- painting --------------------------------------------------------------------------------------
+    def paint(self, writer) -> None:  # type: ignore[no-untyped-def]
+        """Draw every page on ``writer`` (a QPdfWriter at 300 dpi on A4 with zero page margins)."""
+        painter = QPainter(writer)
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing)
+        painter.setRenderHint(QPainter.RenderHint.SmoothPixmapTransform)
+        total = len(self.pages)
+        for number, page in enumerate(self.pages, start=1):
+            if number > 1:
+                writer.newPage()
+            for op in page.ops:
+                self._draw(painter, op)
+            self._running(painter, page, number, total)
+        painter.end()
+
+    def _draw(self, painter: QPainter, op) -> None:  # type: ignore[no-untyped-def]
+        if isinstance(op, TextOp):
+            painter.setFont(font(op.style))
+            painter.setPen(QColor(STYLES[op.style][2]))
+            painter.drawText(op.rect, int(op.align | Qt.AlignmentFlag.AlignVCenter), op.text)
+        elif isinstance(op, LineOp):
+            painter.setPen(QPen(QColor(op.colour), op.width * MM / 3))
+            painter.drawLine(int(op.x1), int(op.y1), int(op.x2), int(op.y2))
+        elif isinstance(op, FillOp):
+            painter.fillRect(op.rect, QColor(op.colour))
+        elif isinstance(op, ImageOp):
+            painter.drawImage(op.rect, op.image)
+
+    def _running(self, painter: QPainter, page: Page, number: int, total: int) -> None:
+        line_h = self.m.line_height("running")
+        head_y = MARGIN_TOP - 4 * MM - line_h
+        self._draw(painter, TextOp(QRectF(self.left, head_y, self.width * 0.62, line_h), "running",
+                                   self._fit("running", self.header_left, self.width * 0.62)))
+        self._draw(painter, TextOp(QRectF(self.left + self.width * 0.62, head_y, self.width * 0.38, line_h), "running",
+                                   self._fit("running", page.section, self.width * 0.38), Qt.AlignmentFlag.AlignRight))
+        self._draw(painter, LineOp(self.left, MARGIN_TOP - 3 * MM, self.right, MARGIN_TOP - 3 * MM, "#999999", 0.6))
+        foot_y = PAGE_HEIGHT - MARGIN_BOTTOM + 3 * MM
+        self._draw(painter, LineOp(self.left, foot_y, self.right, foot_y, "#999999", 0.6))
+        self._draw(painter, TextOp(QRectF(self.left, foot_y + 1 * MM, self.width * 0.8, line_h), "running",
+                                   self.footer_left))
+        self._draw(painter, TextOp(QRectF(self.left + self.width * 0.8, foot_y + 1 * MM, self.width * 0.2, line_h),
+                                   "running", f"page {number} of {total}", Qt.AlignmentFlag.AlignRight))
+        for k, line in enumerate(self.wrap("running", self.caution, self.width)[:2]):
+            self._draw(painter, TextOp(QRectF(self.left, foot_y + 1 * MM + (k + 1) * line_h, self.width, line_h),
+                                       "running", line))
+
+    def _fit(self, style: str, text: str, width: float) -> str:
+        """``text`` shortened with "…" to ``width`` (only the running header, which repeats the title)."""
+        if self.m.width(style, text) <= width:
+            return text
+        while text and self.m.width(style, text + "…") > width:
+            text = text[:-1]
+        return text + "…"

@@ -1,0 +1,113 @@
+"""The audit trail in words, as a reviewer reads it: who, when, what changed from what to what, and why."""
+
+from __future__ import annotations
+
+from typing import Any, Mapping
+
+from ..core.run import AuditEntry
+
+
+def who(e: AuditEntry) -> str:
+    """The person of an entry: full name with laboratory ID and login, or the login alone."""
+    if e.analyst:
+        return f"{e.analyst} ({'ID ' + e.analyst_id + ', ' if e.analyst_id else ''}login {e.user})"
+    return f"{e.user} (login; full name not recorded)"
+
+
+def when(e: AuditEntry) -> str:
+    """'2026-11-02 08:03:00 UTC' from the entry's ISO time."""
+    return e.time_utc.replace("T", " ").split(".")[0].rstrip("Z") + " UTC"
+
+
+def _value(v: Any) -> str:
+    if v is None or v == "":
+        return "(empty)"
+    if isinstance(v, float):
+        return f"{v:g}"
+    if isinstance(v, dict):
+        return "; ".join(f"{k}: {_value(x)}" for k, x in v.items()) or "(none)"
+    if isinstance(v, list):
+        return ", ".join(_value(x) for x in v) or "(none)"
+    return str(v)
+
+
+def _because(d: Mapping[str, Any]) -> str:
+    reason = str(d.get("reason") or "").strip()
+    return f" Reason: {reason}." if reason else ""
+
+
+def _changes(changes: Any, subject: str) -> str:
+    if isinstance(changes, dict):
+        return "; ".join(f"{k.replace('_', ' ')} from {_value(c.get('old'))} to {_value(c.get('new'))}"
+                         if isinstance(c, dict) else f"{k.replace('_', ' ')}: {_value(c)}" for k, c in changes.items())
+    parts = []
+    for c in changes or []:
+        item = c.get(subject) or c.get("standard") or c.get("sample") or ""
+        parts.append(f"{c.get('field', '').replace('_', ' ')} of {item} from {_value(c.get('old'))} to {_value(c.get('new'))}")
+    return "; ".join(parts)
+
+
+def entry_words(e: AuditEntry) -> str:
+    """What one entry did, in a sentence."""
+    d = e.details
+    a = e.action
+    if a == "run_created":
+        return f"created the run “{d.get('name', '')}” with analyte(s) {_value(d.get('analytes'))}."
+    if a == "imported":
+        source = d.get("source") or "a table"
+        sha = f" (file SHA-256 {str(d['sha256'])[:16]}…)" if d.get("sha256") else ""
+        return f"imported the {d.get('what', 'data')} from {source}{sha}."
+    if a == "value_edited":
+        if "changes" in d:
+            added = f"; added {len(d.get('added') or [])} standard(s)" if d.get("added") else ""
+            return (f"changed, for {d.get('analyte', '')}: {_changes(d.get('changes'), 'standard')}{added}."
+                    + _because(d))
+        return (f"changed the {str(d.get('field', '')).replace('_', ' ')} of standard {d.get('standard', '')} of "
+                f"{d.get('analyte', '')} from {_value(d.get('old'))} to {_value(d.get('new'))}." + _because(d))
+    if a == "standard_added":
+        ids = ", ".join(str(s.get("id", "")) for s in d.get("added") or [])
+        return f"added standard(s) {ids} to {d.get('analyte', '')}."
+    if a == "standard_removed_before_review":
+        s = d.get("standard") or {}
+        return f"removed standard {s.get('id', '')} of {d.get('analyte', '')} (entered by mistake)." + _because(d)
+    if a == "standard_excluded":
+        return f"excluded standard {d.get('standard', '')} of {d.get('analyte', '')} from the fit." + _because(d)
+    if a == "standard_included":
+        return (f"put standard {d.get('standard', '')} of {d.get('analyte', '')} back in the fit (it had been excluded: "
+                f"{d.get('previous_reason', '')})." + _because(d))
+    if a == "model_chosen":
+        old, new = d.get("old") or ["", ""], d.get("new") or ["", ""]
+        rec = d.get("recommended")
+        return (f"chose {new[0]}, {new[1]} for {d.get('analyte', '')} (before: {old[0]}, {old[1]}"
+                + (f"; recommended: {rec[0]}, {rec[1]}" if rec else "") + ")." + _because(d))
+    if a in ("settings_changed", "profile_changed"):
+        return f"changed the run's settings: {_changes(d.get('changes'), '')}." + _because(d)
+    if a == "analyte_edited":
+        return f"changed analyte {d.get('analyte', '')}: {_changes(d.get('changes'), '')}." + _because(d)
+    if a == "samples_edited":
+        parts = []
+        if d.get("changes"):
+            parts.append("changed " + _changes(d.get("changes"), "sample"))
+        if d.get("added"):
+            parts.append("added sample(s) " + ", ".join(str(s.get("id", "")) for s in d["added"]))
+        if d.get("removed"):
+            parts.append("removed sample(s) " + ", ".join(str(s.get("id", "")) for s in d["removed"]))
+        return ("; ".join(parts) or "edited the samples") + "." + _because(d)
+    if a in ("export_written", "report_written"):
+        what = "the calibration record" if a == "report_written" else f"the {d.get('format', 'workbook')} export"
+        sha = f" (SHA-256 {str(d['sha256'])[:16]}…)" if d.get("sha256") else ""
+        return f"wrote {what} to {d.get('path', '')}{sha}."
+    if a == "signed":
+        keyed = f", keyed with key {d['key_fingerprint']}" if d.get("key_fingerprint") else ", not keyed"
+        return f"signed as {d.get('role', '')}: “{d.get('meaning', '')}”{keyed}."
+    if a == "approval_withdrawn":
+        return f"withdrew the approval by {d.get('approval_by', '')} ({d.get('approved_at', '')})." + _because(d)
+    if a == "method_applied":
+        return f"applied the validated method {d.get('method', '')} version {d.get('version', '')} ({d.get('name', '')})."
+    if a in ("change_undone", "change_redone"):
+        return f"{'undid' if a == 'change_undone' else 'redid'}: {d.get('change', '')}."
+    if a == "recovered_after_crash":
+        return "restored unsaved work after the program did not close normally."
+    if a == "document_migrated":
+        return f"opened the document in a newer format ({_value(dict(d))})."
+    return f"{a.replace('_', ' ')}: {_value(dict(d))}."
