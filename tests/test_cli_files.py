@@ -51,7 +51,7 @@ def test_a_replaced_export_keeps_the_mode_it_had(tmp_path) -> None:
     workbook.write_bytes(b"an older export")
     os.chmod(workbook, 0o640)
     assert run_cli("quantify", str(DEMO_RUNS[0]), "--export", str(workbook), umask=0o022).returncode == 0
-    assert mode(workbook) == 0o640 and openpyxl.load_workbook(workbook).sheetnames[0] == "Samples"
+    assert mode(workbook) == 0o640 and "Samples" in openpyxl.load_workbook(workbook).sheetnames
 
 
 def test_an_export_over_an_input_table_is_refused_naming_both(tmp_path) -> None:
@@ -91,4 +91,4 @@ def test_an_export_to_a_link_writes_the_file_it_points_to(tmp_path) -> None:
     link.symlink_to(real)
     assert run_cli("quantify", str(DEMO_RUNS[0]), "--export", str(link)).returncode == 0
     assert link.is_symlink() and os.readlink(link) == str(real)
-    assert openpyxl.load_workbook(real).sheetnames[0] == "Samples"
+    assert "Samples" in openpyxl.load_workbook(real).sheetnames

@@ -52,3 +52,46 @@ def small_run() -> Run:
     run = replace(run, samples=smp.samples)
     run = run_edits.record(run, "imported", {"what": "standards", "sha256": "0" * 64}, user="tester", clock=clock)
     return run_edits.exclude_standard(run, "cobalt", "S6b", "=cmd() typed as a reason", user="tester", clock=clock)
+
+
+ICP_ELEMENTS = ("Ag", "Al", "As", "B", "Ba", "Be", "Ca", "Cd", "Co", "Cr", "Cu", "Fe", "K", "Li", "Mg", "Mn", "Mo",
+                "Na", "Ni", "P", "Pb", "Sb", "Se", "Si", "Sn", "Sr", "Ti", "Tl", "V", "Zn")
+
+
+def many_element_run(elements: tuple[str, ...] = ICP_ELEMENTS) -> Run:
+    """An invented multi-element emission run: for each element six standards (0 to 100 µg/L) on a
+    straight line with its own sensitivity and a little scatter, five unknowns (one diluted tenfold,
+    one above the range for some elements) and a QC sample at 20 µg/L. The numbers describe no real
+    instrument or sample."""
+    import numpy as np
+
+    from dataclasses import replace
+
+    from curvewright.core.run import Analyte, Measurement, Reading, Sample, SampleKind, Standard
+
+    clock = FixedClock()
+    rng = np.random.default_rng(30)
+    levels = (0.0, 1.0, 5.0, 20.0, 50.0, 100.0)
+    sensitivity = {e: float(s) for e, s in zip(elements, rng.uniform(200.0, 9000.0, len(elements)))}
+    analytes = []
+    for e in elements:
+        standards = tuple(
+            Standard(f"{e}-S{i}", x, Reading(round(40.0 + sensitivity[e] * x * (1 + rng.normal(0, 0.01)), 1)),
+                     level=f"L{i}")
+            for i, x in enumerate(levels, start=1))
+        analytes.append(Analyte(e, "µg/L", "counts/s", standards))
+    truths = {"Well 4 raw": 3.2, "Well 9 raw": 27.0, "Effluent A": 61.5, "Effluent B ×10": 8.4, "Leachate 2": 140.0}
+    samples = []
+    for order, (sample_id, truth) in enumerate(truths.items(), start=1):
+        measurements = tuple(Measurement(e, 1, Reading(round(40.0 + sensitivity[e] * truth * (1 + rng.normal(0, 0.01)), 1)))
+                             for e in elements)
+        samples.append(Sample(sample_id, SampleKind.UNKNOWN, order, 10.0 if "×10" in sample_id else 1.0, measurements))
+    samples.append(Sample("QC 20", SampleKind.QC, len(samples) + 1, 1.0,
+                          tuple(Measurement(e, 1, Reading(round(40.0 + sensitivity[e] * 20.0 * (1 + rng.normal(0, 0.01)), 1)))
+                                for e in elements),
+                          tuple((e, 20.0) for e in elements)))
+    run = run_edits.new_run("Demo Metals Lab (invented) — trace elements, batch 12", tuple(analytes), user="tester",
+                            clock=clock)
+    run = replace(run, samples=tuple(samples), instrument="ICP emission spectrometer, asset DEMO-ICP-1 (invented)")
+    return run_edits.record(run, "imported", {"what": "standards and samples", "sha256": "1" * 64}, user="tester",
+                            clock=clock)

@@ -69,7 +69,7 @@ def complete(kind: str, path: Path, names: set[str]) -> bool:
         if kind == "workbook":
             book = openpyxl.load_workbook(path, read_only=True)
             try:
-                rows = {r[0]: r[1] for r in book[book.sheetnames[1]].iter_rows(min_row=4, values_only=True)}
+                rows = {r[0]: r[1] for r in book[next(n for n in book.sheetnames if n.startswith("Calibration"))].iter_rows(min_row=4, values_only=True)}
                 book["Audit trail"].calculate_dimension(force=True)
             finally:
                 book.close()

@@ -32,7 +32,8 @@ def workbook(tmp_path_factory):
 
 def test_every_sheet_carries_the_caution(workbook) -> None:
     book, _ = workbook
-    assert book.sheetnames == ["Samples", "Calibration – cobalt", "Standards – cobalt", "Audit trail"]
+    assert book.sheetnames == ["Run information", "Analytes", "Summary", "Samples", "Calibration – cobalt",
+                              "Standards – cobalt", "Audit trail"]
     for sheet in book.worksheets:
         assert sheet["A1"].value == cw.CAUTION
 

@@ -24,8 +24,8 @@ from ..core.reporting import ReportStatus
 from ..core.run_analysis import AnalyteResult, RunResult
 from .audit_words import entry_words, when, who
 from .integrity import content_sha256
-from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, samples_table,
-                            standards_table)
+from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
+                            run_identity, samples_table, standards_table)
 from .signatures import DEFAULT_MEANINGS, check_signatures, fingerprint
 
 FORMULA_SOURCES = (
@@ -195,16 +195,6 @@ def evidence_table(result: RunResult, a: AnalyteResult) -> tuple[Table, tuple[st
 
 
 
-def analysts_of(result: RunResult) -> tuple[str, ...]:
-    """The people named in the audit trail, in the order they first appear."""
-    seen: list[str] = []
-    for e in result.run.audit:
-        person = who(e)
-        if person not in seen:
-            seen.append(person)
-    return tuple(seen)
-
-
 def record_author(result: RunResult) -> str:
     """The PDF's author: the analyst who signed, else the person who created the run."""
     analyst = next((s for s in reversed(result.run.signatures) if s.role == "analyst"), None)
@@ -214,31 +204,14 @@ def record_author(result: RunResult) -> str:
     return (first.analyst or first.user) if first is not None else ""
 
 
-def _counts(a: AnalyteResult) -> tuple[int, int]:
-    """Unknowns and QC samples reported as numbers, and those that are not (blanks and checks are
-    judged elsewhere)."""
-    judged = [s for s in a.samples if s.kind.value in ("unknown", "qc")]
-    reportable = sum(1 for s in judged if s.reportable)
-    return reportable, len(judged) - reportable
-
-
 def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
     """The first page: identity, verdict, per-analyte summary, integrity, signatures."""
     run = result.run
-    method = result.method
     trail = run.audit
-    created = when(trail[0]) if trail else "not recorded"
-    changed = when(trail[-1]) if trail else "not recorded"
-    identity = [
-        ("Run", run.name),
-        ("Method", f"{method.label} — {method.name} (content SHA-256 {method.sha256[:16]}…)" if method
-         else "no validated method stored with the run"),
-        ("Instrument", run.instrument or "not recorded"),
-        ("Analysts", "; ".join(analysts_of(result)) or "not recorded"),
-        ("Dates", f"created {created}; last change {changed}; this record {when_text}"),
-        ("Acceptance profile", f"{result.profile.name} (rules SHA-256 {result.profile.sha256[:16]}…)"),
-        ("Software", f"Curvewright {__version__}"),
-    ]
+    known = run_identity(result)
+    dates = dict(known)
+    identity = [(item, value) for item, value in known if item not in ("Created", "Last change")]
+    identity.insert(4, ("Dates", f"created {dates['Created']}; last change {dates['Last change']}; this record {when_text}"))
     blocks: list[Block] = [PrintedTable("Run", ("Item", "Value"), tuple(identity), (False, False))]
     word = "ACCEPTED" if result.accepted else "NOT ACCEPTED"
     failing = [r for r in result.reasons if "FAIL" in r]
@@ -253,7 +226,7 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
             rows.append((a.analyte.name, f"not fitted: {a.error}", "", "", "", "", ""))
             continue
         rng = f"{a.reporting.lloq:g}–{a.reporting.uloq:g} {unit}".strip() if a.reporting else ""
-        reportable, exceptions = _counts(a)
+        reportable, exceptions = result_counts(a)
         rows.append((a.analyte.name, a.calibration.equation(6), rng, a.calibration.weighting.value,
                      str(reportable), str(exceptions), "accepted" if a.accepted else "NOT accepted"))
     blocks.append(PrintedTable("Analytes", ("Analyte", "Equation", "Range (LLOQ–ULOQ)", "Weighting", "Reportable",
@@ -297,7 +270,8 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     for r in [r for r in result.reasons if r.startswith(f"{name}: ")]:
         blocks.append(Paragraph("• " + r.split(": ", 1)[1], "small"))
     if a.calibration is not None:
-        blocks.append(Paragraph(f"Equation: {a.calibration.equation(12)}", "body"))
+        blocks.append(Paragraph(f"Equation: {a.calibration.equation(6)} (coefficients at full precision in the "
+                                "appendix)", "body"))
         blocks.append(FigureSlot("curve", name, f"{name}: standards (filled: in the fit; open squares: excluded), "
                                  f"fitted curve with {run.settings.confidence_level:.0%} confidence and prediction bands, "
                                  "unknowns with their concentration intervals; calibrated range and LOQ marked."))
@@ -305,18 +279,23 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
                                  "concentration, with the acceptance limits."))
         blocks.append(FigureSlot("influence", name, f"{name}: leverage against the externally studentized residual, "
                                  "with the outlier and influence limits the flags use; flagged standards labelled."))
-    blocks.append(printed(calibration_table(a, result), rule))
+    calibration = calibration_table(a, result)
+    if a.calibration is not None:  # six significant figures here; every digit in the appendix and the workbook
+        calibration = Table(calibration.title, calibration.columns,
+                            tuple(("Equation", a.calibration.equation(6), None) if row[0] == "Equation" else row
+                                  for row in calibration.rows), calibration.rounding)
+    blocks.append(printed(calibration, rule))
     table, reasons = evidence_table(result, a)
     blocks.append(_evidence_printed(table, rule))
     blocks.append(Paragraph(f"Chosen: {a.analyte.model}, {a.analyte.weighting}. Reason given: "
                             f"{a.analyte.choice_reason or '(none recorded)'}", "body"))
     blocks += [Paragraph("• " + r, "small") for r in reasons]
-    standards = standards_table(a)
+    standards = standards_table(a, result.run.settings.rounding)
     blocks.append(printed(standards.select(STANDARD_ACCURACY_COLUMNS, f"Standards – {name}: back-calculated accuracy"), rule))
     blocks += exclusion_blocks(result, a)
     blocks.append(printed(standards.select(STANDARD_INFLUENCE_COLUMNS, f"Standards – {name}: influence"), rule))
     if a.checks is not None:
-        blocks.append(printed(checks_table(a), rule, f"Check windows: {result.profile.checks.source}"))
+        blocks.append(printed(checks_table(a, rule), rule, f"Check windows: {result.profile.checks.source}"))
     range_words = "" if a.reporting is None else (
         f" Calibrated range {a.reporting.lloq:g}–{a.reporting.uloq:g} (LLOQ–ULOQ); {a.reporting.note}.")
     blocks.append(Paragraph(f"Samples – {name}: concentrations in {unit or '(unit not set)'} after dilution; "

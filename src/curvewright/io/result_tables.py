@@ -112,9 +112,12 @@ def excel_format(value: Value, column: Column, rule: RoundingRule | None = None)
 
 @dataclass(frozen=True)
 class Table:
+    """A titled table; ``rounding`` is the run's rule for the columns shown by it (``display="rule"``)."""
+
     title: str
     columns: tuple[Column, ...]
     rows: tuple[tuple[Value, ...], ...]
+    rounding: RoundingRule | None = None
 
     def select(self, names: tuple[str, ...], title: str | None = None, where: tuple[str, Value] | None = None) -> "Table":
         """The named columns only (in that order), optionally only rows whose column ``where[0]`` equals ``where[1]``."""
@@ -126,7 +129,7 @@ class Table:
         if where is not None:
             rows = tuple(r for r in rows if r[index[where[0]]] == where[1])
         return Table(title or self.title, tuple(self.columns[index[n]] for n in names),
-                     tuple(tuple(r[index[n]] for n in names) for r in rows))
+                     tuple(tuple(r[index[n]] for n in names) for r in rows), self.rounding)
 
 
 def interval_words(run_result: RunResult) -> str:
@@ -161,7 +164,7 @@ def samples_table(result: RunResult) -> Table:
                 unit[s.analyte], STATUS_WORDS[s.status], s.flag_words, s.suggested_dilution, s.nominal,
                 s.recovery_percent, verdict_word(s.within_limits),
             ))
-    return Table("Samples", columns, tuple(rows))
+    return Table("Samples", columns, tuple(rows), rule)
 
 
 STATUS_WORDS = {
@@ -176,8 +179,9 @@ def verdict_word(within: bool | None) -> str:
     return "" if within is None else ("pass" if within else "FAIL")
 
 
-def checks_table(a: AnalyteResult) -> Table:
-    """The calibration checks of one analyte: recovery, window and verdict, with the reason."""
+def checks_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table:
+    """The calibration checks of one analyte: recovery, window and verdict, with the reason (``rule``:
+    the run's rounding, for the found concentrations)."""
     unit = a.analyte.concentration_unit
     columns = (Column("Check"), Column("Kind"), Column("Run order", kind="int"), Column("Nominal", unit, "number", "plain"),
                Column("Found", unit, "number", "rule"), Column("Recovery (%)", kind="number", display="dec:1"),
@@ -187,7 +191,7 @@ def checks_table(a: AnalyteResult) -> Table:
          "pass" if c.passed else "FAIL", c.reason.split(": ", 2)[-1])
         for c in (a.checks.checks if a.checks else ())
     )
-    return Table(f"Calibration checks – {a.analyte.name}", columns, rows)
+    return Table(f"Calibration checks – {a.analyte.name}", columns, rows, rule)
 
 
 def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
@@ -264,7 +268,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value", display="plain"), Column("Standard error", display="sig:3")), tuple(rows))
 
 
-def standards_table(a: AnalyteResult) -> Table:
+def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table:
     cal = a.calibration
     an = a.analyte
     columns = (
@@ -307,7 +311,7 @@ def standards_table(a: AnalyteResult) -> Table:
         reason = s.exclusion_reason if not s.included else f"not usable: {why}"
         rows.append(tuple(base + [back, re_, None, "excluded" if not s.included else "not usable", None, None, None, "",
                                   "no", reason]))
-    return Table(f"Standards – {an.name}", columns, tuple(rows))
+    return Table(f"Standards – {an.name}", columns, tuple(rows), rule)
 
 
 def chain_claim(run) -> tuple[bool, str]:  # type: ignore[no-untyped-def]
@@ -331,13 +335,18 @@ def chain_claim(run) -> tuple[bool, str]:  # type: ignore[no-untyped-def]
 
 
 def audit_table(result: RunResult) -> Table:
+    """Every entry: when, who, the action, what was done in words, the details as recorded and the entry's hash."""
+    from .audit_words import entry_words
+
     trail = result.run.audit
     _, claim = chain_claim(result.run)
-    rows: list[tuple[Value, ...]] = [(None, "", "", "chain check", claim, "")]
+    rows: list[tuple[Value, ...]] = [(None, "", "", "chain check", claim, "", "")]
     for i, e in enumerate(trail, start=1):
         who = f"{e.analyst} ({'ID ' + e.analyst_id + '; ' if e.analyst_id else ''}login {e.user})" if e.analyst else e.user
-        rows.append((i, e.time_utc, who, e.action, json.dumps(e.details, ensure_ascii=False, sort_keys=True), e.hash))
-    columns = (Column("Entry", kind="int"), Column("Time (UTC)"), Column("User"), Column("Action"), Column("Details"), Column("SHA-256"))
+        rows.append((i, e.time_utc, who, e.action, entry_words(e), json.dumps(e.details, ensure_ascii=False, sort_keys=True),
+                     e.hash))
+    columns = (Column("Entry", kind="int"), Column("Time (UTC)"), Column("User"), Column("Action"), Column("What was done"),
+               Column("Details"), Column("SHA-256"))
     return Table("Audit trail", columns, tuple(rows))
 
 
@@ -360,12 +369,123 @@ BELOW_LIMIT_WORDS = {"censor": "reported as below the reporting limit (\"< limit
                      "estimate": "reported as estimated values, marked so; below the LOD as \"< LOD\""}
 
 
-def all_tables(result: RunResult) -> tuple[Table, ...]:
-    tables = [samples_table(result)]
+def analysts_of(result: RunResult) -> tuple[str, ...]:
+    """The people named in the audit trail, in the order they first appear."""
+    from .audit_words import who
+
+    seen: list[str] = []
+    for e in result.run.audit:
+        person = who(e)
+        if person not in seen:
+            seen.append(person)
+    return tuple(seen)
+
+
+def run_identity(result: RunResult) -> tuple[tuple[str, str], ...]:
+    """Who, what and with what: the run, its method, instrument, analysts, dates, profile and the software."""
+    from .audit_words import when
+
+    run, method, trail = result.run, result.method, result.run.audit
+    return (
+        ("Run", run.name),
+        ("Method", f"{method.label} — {method.name} (content SHA-256 {method.sha256[:16]}…)" if method
+         else "no validated method stored with the run"),
+        ("Instrument", run.instrument or "not recorded"),
+        ("Analysts", "; ".join(analysts_of(result)) or "not recorded"),
+        ("Created", when(trail[0]) if trail else "not recorded"),
+        ("Last change", when(trail[-1]) if trail else "not recorded"),
+        ("Acceptance profile", f"{result.profile.name} (rules SHA-256 {result.profile.sha256[:16]}…)"),
+        ("Software", f"Curvewright {__version__}"),
+    )
+
+
+def run_information_table(result: RunResult) -> Table:
+    """The run's identity, verdict, interval method, content hash and what the audit trail shows."""
+    from .integrity import content_sha256
+
+    _, claim = chain_claim(result.run)
+    rows: list[tuple[Value, ...]] = [(item, value) for item, value in run_identity(result)]
+    if result.method is not None:
+        rows.append(("Method content SHA-256", result.method.sha256))
+    rows.append(("Acceptance profile rules SHA-256", result.profile.sha256))
+    rows += [
+        ("Run verdict", "ACCEPTED" if result.accepted else "NOT ACCEPTED"),
+        *(("Reason", r) for r in result.reasons),
+        ("Intervals", interval_words(result)),
+        ("Between the LOD and the reporting limit", BELOW_LIMIT_WORDS[result.profile.reporting.between_lod_and_reporting_limit]),
+        ("Content SHA-256", content_sha256(result.run)),
+        ("Audit trail", f"{len(result.run.audit)} entries; {claim}"),
+    ]
+    if result.run.description:
+        rows.insert(1, ("Description", result.run.description))
+    return Table("Run information", (Column("Item"), Column("Value")), tuple(rows))
+
+
+def result_counts(a: AnalyteResult) -> tuple[int, int]:
+    """Unknowns and QC samples reported as numbers, and those that are not (exceptions: below or above
+    the range, not quantified, not reportable). Blanks and checks are judged elsewhere."""
+    judged = [s for s in a.samples if s.kind.value in ("unknown", "qc")]
+    reportable = sum(1 for s in judged if s.reportable)
+    return reportable, len(judged) - reportable
+
+
+def analytes_table(result: RunResult) -> Table:
+    """One row per analyte: the equation, the calibrated range, the weighting, counts and the verdict."""
+    columns = (Column("Analyte"), Column("Equation"), Column("Weighting"), Column("LLOQ", kind="number", display="plain"),
+               Column("ULOQ", kind="number", display="plain"), Column("Unit"), Column("Reportable", kind="int"),
+               Column("Exceptions", kind="int"), Column("Verdict"), Column("Not fitted because"))
+    rows = []
     for a in result.analytes:
-        tables += [calibration_table(a, result), standards_table(a)]
+        unit = a.analyte.concentration_unit
+        if a.calibration is None:
+            rows.append((a.analyte.name, "", "", None, None, unit, None, None, "NOT accepted", a.error or ""))
+            continue
+        reportable, exceptions = result_counts(a)
+        rows.append((a.analyte.name, a.calibration.equation(6), a.calibration.weighting.value,
+                     a.reporting.lloq if a.reporting else None, a.reporting.uloq if a.reporting else None, unit,
+                     reportable, exceptions, "accepted" if a.accepted else "NOT accepted", ""))
+    return Table("Analytes", columns, tuple(rows))
+
+
+def summary_table(result: RunResult) -> Table:
+    """One row per sample × analyte, sample by sample in run order: what is reported, the estimate behind
+    it, its interval, the status and the flags as short words (in full on the Samples sheet)."""
+    rule = result.run.settings.rounding
+    analyte_order = {a.analyte.name: i for i, a in enumerate(result.analytes)}
+    unit = {a.analyte.name: a.analyte.concentration_unit for a in result.analytes}
+    first_seen: dict[str, int] = {}
+    for a in result.analytes:
+        for s in a.samples:
+            first_seen.setdefault(s.sample_id, len(first_seen))
+    everything = [s for a in result.analytes for s in a.samples]
+
+    def order(s):  # type: ignore[no-untyped-def]
+        return (s.run_order if s.run_order is not None else math.inf, first_seen[s.sample_id], analyte_order[s.analyte])
+
+    columns = (Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Reported", kind="reported"), Column("Unit"),
+               Column("Estimate × dilution", kind="number", display="rule"),
+               Column("Lower limit", kind="number", display="rule"), Column("Upper limit", kind="number", display="rule"),
+               Column("Status"), Column("Flags (short)"))
+    rows = tuple(
+        (s.sample_id, s.kind.words, s.analyte, s.reported_text or (None if s.reported is None else rule.text(s.reported)),
+         unit[s.analyte], _finite(s.reported) if s.reported is not None else None,
+         _finite(s.reported_lower) if s.reported_lower is not None else None,
+         _finite(s.reported_upper) if s.reported_upper is not None else None,
+         STATUS_WORDS[s.status], s.short_flags)
+        for s in sorted(everything, key=order)
+    )
+    return Table("Summary", columns, rows, rule)
+
+
+def all_tables(result: RunResult) -> tuple[Table, ...]:
+    """The workbook's sheets: run information, the analytes, the summary (sample × analyte), the samples
+    in full, per analyte its calibration, standards and checks, the signatures and the audit trail."""
+    rule = result.run.settings.rounding
+    tables = [run_information_table(result), analytes_table(result), summary_table(result), samples_table(result)]
+    for a in result.analytes:
+        tables += [calibration_table(a, result), standards_table(a, rule)]
         if a.checks is not None:
-            tables.append(checks_table(a))
+            tables.append(checks_table(a, rule))
     if result.run.signatures:
         tables.append(signatures_table(result))
     tables.append(audit_table(result))

@@ -1,7 +1,11 @@
-"""The reviewer's workbook: samples, a calibration and a standards sheet per analyte, the audit trail.
+"""The reviewer's workbook: run information, the analytes, a summary of every sample × analyte, the
+samples in full, a calibration, standards and checks sheet per analyte, signatures and the audit trail.
 
-Numbers are numeric cells at full double precision (written as their exact shortest repr); the "Reported (rounded)" column holds the
-value rounded under the run's rule, displayed with exactly its digits. Every text cell is a string
+Numbers are numeric cells at full double precision (written as their exact shortest repr), each with
+the number format that shows it as the printed record does (:func:`.result_tables.excel_format`); the
+"Reported" column holds the value rounded under the run's rule, displayed with exactly its digits.
+Each sheet has its columns fitted to what they show (:mod:`.sheet_layout`), its headings frozen, an
+autofilter over its table and a print set-up one page wide with the headings repeated. Every text cell is a string
 cell, so no cell is ever a formula (:mod:`.safe_text`). The caution stands in the first row of
 every sheet. Written in openpyxl's write-only mode (memory stays flat) and saved atomically
 (:mod:`.atomic`): the sheets stream to temporaries of our naming beside the target, so a failed or
@@ -24,14 +28,17 @@ from typing import IO, Callable, Iterator, Iterable
 
 from openpyxl import Workbook
 from openpyxl.cell import WriteOnlyCell
-from openpyxl.styles import Font
+from openpyxl.styles import Alignment, Font
+from openpyxl.utils import get_column_letter
+from openpyxl.worksheet.properties import PageSetupProperties
 
 from .. import CAUTION
 from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.run_analysis import RunResult
 from .atomic import atomic_target, new_temporary, resolve_target
 from .audit import file_sha256_streamed
-from .result_tables import Table, Value, all_tables
+from .result_tables import Table, Value, all_tables, excel_format
+from .sheet_layout import HEADER_ROW, MARGIN, MAX_WIDTH, column_widths, freeze_cell, header_height
 from .safe_text import ILLEGAL_XML, xml_safe
 
 Progress = Callable[[int, int], None]
@@ -74,6 +81,7 @@ def _build(tables: list[Table], progress: Progress | None, target: Path | IO[byt
         done = 0
         for table in tables:
             sheet = workbook.create_sheet(_sheet_name(table.title, used))
+            widths = _lay_out(sheet, table)  # before the first row: widths and panes are written at the top of the sheet
             if scratch is not None:
                 _stream_to(sheet, scratch())
             caution = WriteOnlyCell(sheet, value=CAUTION)
@@ -81,10 +89,13 @@ def _build(tables: list[Table], progress: Progress | None, target: Path | IO[byt
             sheet.append([caution])
             note = [_text_cell(sheet, INTERVAL_SCOPE_NOTE)] if any(c.heading == "Interval" for c in table.columns) else []
             sheet.append([_text_cell(sheet, table.title, bold)] + note)
-            sheet.append([_text_cell(sheet, c.heading, bold) for c in table.columns])
-            kinds = [c.kind for c in table.columns]
+            headings = [_text_cell(sheet, c.heading, bold) for c in table.columns]
+            for cell in headings:
+                cell.alignment = _WRAPPED
+            sheet.append(headings)
+            cells = _NumberCells(sheet, table, widths)
             for row in table.rows:
-                sheet.append([_cell(sheet, value, kind) for value, kind in zip(row, kinds)])
+                sheet.append([cells.cell(j, value) for j, value in enumerate(row)])
                 done += 1
                 if progress is not None and done % 5000 == 0:
                     progress(done, total)
@@ -138,29 +149,79 @@ def _abandon(workbook: Workbook) -> None:
                 ALL_TEMP_FILES.remove(out)
 
 
-def _cell(sheet, value: Value, kind: str):  # type: ignore[no-untyped-def]
-    if value is None:
-        return None
-    if isinstance(value, float) and not math.isfinite(value):
-        return _text_cell(sheet, "∞" if value > 0 else "−∞" if value < 0 else "not a number")
-    if isinstance(value, str):
-        if kind == "reported" and value and value.lstrip("-").replace(".", "", 1).isdigit():
-            cell = WriteOnlyCell(sheet, value=float(value))
-            decimals = len(value.split(".", 1)[1]) if "." in value else 0
-            cell.number_format = "0" if decimals == 0 else "0." + "0" * decimals
-            return cell
-        if value.startswith("=") or _needs_escaping(value):
-            return _text_cell(sheet, value)
-        return value  # openpyxl writes any other text as a plain string cell
-    return value
+def _lay_out(sheet, table: Table) -> tuple[float, ...]:  # type: ignore[no-untyped-def]
+    """Column widths that fit, the header row's height, frozen headings (and first column on wide
+    tables), an autofilter over the table, and a page set-up that prints it across one page width
+    with the headings repeated (landscape when wide)."""
+    widths = column_widths(table)
+    for j, width in enumerate(widths, start=1):
+        sheet.column_dimensions[get_column_letter(j)].width = width
+    sheet.row_dimensions[HEADER_ROW].height = header_height(table, widths)
+    sheet.freeze_panes = freeze_cell(table)
+    last = get_column_letter(max(len(table.columns), 1))
+    if table.rows:
+        sheet.auto_filter.ref = f"A{HEADER_ROW}:{last}{HEADER_ROW + len(table.rows)}"
+    sheet.print_title_rows = f"{HEADER_ROW}:{HEADER_ROW}"
+    sheet.sheet_properties.pageSetUpPr = PageSetupProperties(fitToPage=True)
+    sheet.page_setup.fitToWidth = 1
+    sheet.page_setup.fitToHeight = 0
+    sheet.page_setup.orientation = "landscape" if sum(widths) > 100 else "portrait"
+    return widths
 
 
-def _text_cell(sheet, text: str, font: Font | None = None):  # type: ignore[no-untyped-def]
+class _NumberCells:
+    """The cells of one sheet's rows. A number is a numeric cell at full precision with the number
+    format that shows it as the record prints it (:func:`~.result_tables.excel_format`). Rows are
+    written as soon as they are appended, so one styled cell per column and format is reused."""
+
+    def __init__(self, sheet, table: Table, widths: tuple[float, ...]) -> None:  # type: ignore[no-untyped-def]
+        self.sheet = sheet
+        self.columns = table.columns
+        self.rule = table.rounding
+        self.wrap_beyond = [w - MARGIN if w >= MAX_WIDTH else math.inf for w in widths]
+        """Text longer than its column, in a column held at the widest, wraps inside its cell."""
+        self._styled: dict[tuple[int, str], object] = {}
+
+    def cell(self, j: int, value: Value):  # type: ignore[no-untyped-def]
+        column = self.columns[j]
+        if value is None:
+            return None
+        if isinstance(value, float) and not math.isfinite(value):
+            return _text_cell(self.sheet, "∞" if value > 0 else "−∞" if value < 0 else "not a number")
+        if isinstance(value, str):
+            if column.kind == "reported" and value and value.lstrip("-").replace(".", "", 1).isdigit():
+                decimals = len(value.split(".", 1)[1]) if "." in value else 0
+                return self._numeric(j, float(value), "0" if decimals == 0 else "0." + "0" * decimals)
+            if value.startswith("=") or _needs_escaping(value) or len(value) > self.wrap_beyond[j]:
+                return _text_cell(self.sheet, value, wrap=len(value) > self.wrap_beyond[j])
+            return value  # openpyxl writes any other text as a plain string cell
+        if isinstance(value, bool):
+            return value
+        fmt = excel_format(value, column, self.rule)
+        return value if fmt is None else self._numeric(j, value, fmt)
+
+    def _numeric(self, j: int, value: float | int, fmt: str):  # type: ignore[no-untyped-def]
+        cell = self._styled.get((j, fmt))
+        if cell is None:
+            cell = WriteOnlyCell(self.sheet, value=value)
+            cell.number_format = fmt
+            self._styled[(j, fmt)] = cell
+        else:
+            cell.value = value
+        return cell
+
+
+def _text_cell(sheet, text: str, font: Font | None = None, wrap: bool = False):  # type: ignore[no-untyped-def]
     cell = WriteOnlyCell(sheet, value=xml_safe(text))
     cell.data_type = "s"  # a string, even when it starts with "=": never a formula
     if font is not None:
         cell.font = font
+    if wrap:
+        cell.alignment = _WRAPPED
     return cell
+
+
+_WRAPPED = Alignment(wrap_text=True, vertical="top")
 
 
 def _sheet_name(title: str, used: set[str]) -> str:
