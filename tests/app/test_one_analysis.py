@@ -64,7 +64,9 @@ def test_every_output_reads_one_analysis(demo, make_window, tmp_path) -> None:
         # the model and its coefficients
         assert (entry["model"], entry["weighting"]) == (cal.model.value, cal.weighting.value)
         assert entry["coefficients"] == cal.coefficients.tolist()
-        assert cal.equation(10) in text and squeeze(f"Equation: {cal.equation(12)}") in squeeze(pages)
+        assert cal.equation(10) in text and squeeze(f"Equation: {cal.equation(6)}") in squeeze(pages)
+        # every digit of each coefficient in the record's appendix
+        assert all(repr(float(b)) in squeeze(pages) for b in cal.coefficients)
         sheet = {r[0]: r[1] for r in book[f"Calibration – {name}"].iter_rows(min_row=4, values_only=True)}
         assert [sheet[f"b{p} (coefficient of x^{p})"] for p in range(len(cal.coefficients))] == cal.coefficients.tolist()
         app = shown.analyte(name)

@@ -2,12 +2,14 @@
 
 The content is placed with :class:`curvewright.app.record_layout.RecordLayout` (measured in the
 fonts it is printed in, rows never split, headers repeated, figures scaled to the text width) and
-painted on a QPdfWriter at 300 dpi. The PDF carries its title, author, creator and subject (the
-subject in the XMP metadata as dc:description). Works offscreen.
+painted on a QPdfWriter at 300 dpi. The PDF carries its title, author (the analyst), subject,
+creator and creation date, in the document information dictionary and in the XMP metadata.
+Works offscreen.
 """
 
 from __future__ import annotations
 
+import re
 from html import escape
 from pathlib import Path
 
@@ -100,7 +102,38 @@ def pdf_bytes(content: ReportContent) -> bytes:
     layout.paint(writer)
     del writer
     buffer.close()
-    return bytes(data.data())
+    return with_document_info(bytes(data.data()), content)
+
+
+def _pdf_text(text: str) -> bytes:
+    """A PDF text string: UTF-16BE with its byte-order mark, written in hex (ISO 32000-1 §7.9.2.2)."""
+    return b"<" + ("\ufeff" + text).encode("utf-16-be").hex().upper().encode("ascii") + b">"
+
+
+def with_document_info(data: bytes, content: ReportContent) -> bytes:
+    """``data`` with an incremental update (ISO 32000-1 §7.5.6) that rewrites the document information
+    dictionary: title, author, subject (which QPdfWriter cannot set), creator, producer and the dates
+    QPdfWriter wrote. The original bytes stay as they were; readers take the latest definition."""
+    tail = data[data.rindex(b"trailer"):]
+    found = {key: re.search(pattern, tail) for key, pattern in (
+        ("info", rb"/Info (\d+) 0 R"), ("root", rb"/Root (\d+) 0 R"), ("size", rb"/Size (\d+)"),
+        ("id", rb"/ID \[[^\]]*\]"), ("prev", rb"startxref\s+(\d+)"))}
+    missing = [key for key in ("info", "root", "size", "prev") if found[key] is None]
+    if missing:
+        raise ValueError(f"the PDF written for the record has no {', '.join(missing)} in its trailer")
+    info, root, size, prev = (int(found[k].group(1)) for k in ("info", "root", "size", "prev"))  # type: ignore[union-attr]
+    dates = b"".join(m.group(0) + b"\n" for m in re.finditer(rb"/(?:CreationDate|ModDate) \(D:[0-9Z+\-']*\)", data[:4096]))
+    dictionary = (b"<<\n/Title " + _pdf_text(content.title) + b"\n/Author " + _pdf_text(content.author)
+                  + b"\n/Subject " + _pdf_text(content.subject) + b"\n/Creator " + _pdf_text(f"Curvewright {__version__}")
+                  + b"\n/Producer " + _pdf_text(f"Curvewright {__version__}") + b"\n" + dates + b">>")
+    start = data if data.endswith(b"\n") else data + b"\n"
+    body = b"%d 0 obj\n" % info + dictionary + b"\nendobj\n"
+    xref_at = len(start) + len(body)
+    ident = (b" " + found["id"].group(0)) if found["id"] is not None else b""
+    update = (body + b"xref\n0 1\n0000000000 65535 f \n%d 1\n%010d 00000 n \n" % (info, len(start))
+              + b"trailer\n<< /Size %d /Root %d 0 R /Info %d 0 R%s /Prev %d >>\nstartxref\n%d\n%%%%EOF\n"
+              % (size, root, info, ident, prev, xref_at))
+    return start + update
 
 
 def write_report(content: ReportContent, path: str | Path) -> str:
