@@ -272,8 +272,7 @@ def import_samples(
     still refuses its row (the answer is an import option, not a correction).
     """
     ctx = _Context(table, SAMPLE_FIELDS, mapping, decimal_mark, thousands, required=SAMPLE_REQUIRED)
-    order: list[str] = []
-    info: dict[str, dict] = {}
+    info: dict[str, dict] = {}  # in the order the samples first appear
     seen: dict[tuple[str, str, int], int] = {}
     for row_number, cells in ctx.body():
         sid = ctx.text(cells, "id", row_number)
@@ -296,11 +295,10 @@ def import_samples(
         if ctx.row_failed(row_number):
             continue
         assert response is not None and kind is not None
+        first_row_of_sample = sid not in info  # a dict: the lookup stays constant-time however many samples
         entry = info.setdefault(sid, {"kind": kind, "run_order": run_order, "dilution": dilution or 1.0,
-                                      "nominal": {}, "measurements": [], "row": row_number})
-        if sid not in order:
-            order.append(sid)
-        else:
+                                      "nominal": {}, "measurements": [], "counts": {}, "row": row_number})
+        if not first_row_of_sample:
             first = entry["row"]
             if entry["kind"] is not kind:
                 ctx.reject(row_number, "kind", ctx.raw(cells, "kind"),
@@ -311,7 +309,7 @@ def import_samples(
             if ctx.row_failed(row_number):
                 continue
         if replicate is None:
-            replicate = 1 + sum(1 for m in entry["measurements"] if m.analyte == name)
+            replicate = 1 + entry["counts"].get(name, 0)
         key3 = (sid, name, replicate)
         if key3 in seen:
             ctx.reject(row_number, "replicate", str(replicate),
@@ -321,10 +319,11 @@ def import_samples(
         if nominal is not None:
             entry["nominal"][name] = nominal
         entry["measurements"].append(Measurement(name, replicate, response, is_response))
+        entry["counts"][name] = entry["counts"].get(name, 0) + 1
     samples = tuple(
         Sample(sid, info[sid]["kind"], info[sid]["run_order"], info[sid]["dilution"],
                tuple(info[sid]["measurements"]), tuple(info[sid]["nominal"].items()))
-        for sid in order
+        for sid in info
     )
     return ctx.result(samples=samples)
 
