@@ -5,7 +5,7 @@ from __future__ import annotations
 import pytest
 
 from curvewright.io.importing import import_samples, import_standards
-from curvewright.io.number_text import decimal_evidence
+from curvewright.io.number_text import decimal_evidence, parse_reading
 from curvewright.io.tables import detect_delimiter, table_from_text
 
 
@@ -147,3 +147,13 @@ def test_numbers_stored_as_text_in_a_workbook_follow_the_same_rule(tmp_path) -> 
     assert result.complete, result.summary()
     assert result.decimal_mark == "," and "numbers stored as text: decimal comma" in result.decimal_note
     assert values(result) == [(0.5, 50.25), (1.0, 101.082), (2.0, 202.164)]
+
+
+@pytest.mark.parametrize("text", ["１,０００", "١,٠٠٠", "۱,۰۰۰", "१,०००"])
+def test_a_thousand_in_any_script_is_as_ambiguous_as_in_ascii_digits(text: str) -> None:
+    # full-width, Arabic-Indic, Eastern Arabic-Indic and Devanagari digits are read as their ASCII digits first
+    problem = parse_reading(text, None).problem
+    assert problem is not None and "is ambiguous" in problem and repr(text) in problem
+    assert parse_reading(text, ".", thousands=",").reading.value == 1000.0
+    assert parse_reading(text, ",").reading.value == 1.0
+    assert parse_reading(text, ",").reading.text == text  # kept as typed

@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import math
 import re
+import unicodedata
 from dataclasses import dataclass
 
 from ..core.run import CENSORED_WORDS, Reading
@@ -39,7 +40,18 @@ class ParsedCell:
 
 
 def clean(text: str) -> str:
-    return text.strip(SPACES).replace("\u2212", "-")
+    """The text of a cell as a number is read from it: spaces around it stripped, the minus sign
+    as "-", and digits of any script (full-width "１", Arabic-Indic "١"…) and full-width signs and
+    marks as their ASCII forms, so that the same rules (the ambiguity guard among them) apply to
+    every way of writing a number."""
+    t = text.strip(SPACES).replace("\u2212", "-")
+    return t if t.isascii() else _ascii_digits(t)
+
+
+def _ascii_digits(text: str) -> str:
+    folded = unicodedata.normalize("NFKC", text)  # full-width digits, signs, comma and full stop
+    return "".join(str(unicodedata.decimal(c)) if not c.isascii() and c.isdecimal() else c
+                   for c in folded).strip(SPACES).replace("\u2212", "-")
 
 
 def ambiguous_problem(text: str) -> str | None:
