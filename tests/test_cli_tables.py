@@ -248,6 +248,39 @@ def test_thousands_separators_name_the_option_that_reads_them(tmp_path) -> None:
     assert reported == pytest.approx(float(cal.quantify([6000.5]).estimate[0]), rel=1e-12)  # cw.fit(...).quantify(...)
 
 
+@pytest.mark.parametrize("thousand", ["１,０００", "١,٠٠٠"], ids=["full-width", "arabic-indic"])
+def test_digits_of_any_script_meet_the_same_ambiguity_guard(tmp_path, thousand: str) -> None:
+    # "1,000" written with full-width or Arabic-Indic digits meets the rules "1,000" meets: in a table whose
+    # decimal mark is the point, it is refused until a thousands separator is named, never read silently as 1.0
+    standards = write(tmp_path / "std.csv", ["Concentration\tResponse", "0.5\t510.5", "1\t1012.25", "2\t2030.5",
+                                             "5\t5044.75", "8\t8101.5", "10\t10090.25"])
+    samples = write(tmp_path / "smp.csv", ["Sample\tResponse", f"S1\t{thousand}", "S2\t３０１２.５"])
+    result = run_cli("quantify", "--standards", str(standards), "--samples", str(samples))
+    assert result.returncode == 2
+    assert f"{samples}" in result.stderr and f"row 2, column 2 (Response): {thousand!r}" in result.stderr
+    assert "--thousands ," in result.stderr
+    answered = run_cli("quantify", "--standards", str(standards), "--samples", str(samples), "--thousands", ",",
+                       "--json")
+    assert answered.returncode == 0, answered.stderr
+    cal = cw.fit([0.5, 1, 2, 5, 8, 10], [510.5, 1012.25, 2030.5, 5044.75, 8101.5, 10090.25])
+    reported = {s["id"]: s["reported"] for s in json.loads(answered.stdout)["analytes"][0]["samples"]}
+    expected = cal.quantify([1000.0, 3012.5]).estimate  # cw.fit(...).quantify(...)
+    assert reported["S1"] == pytest.approx(float(expected[0]), rel=1e-12)
+    assert reported["S2"] == pytest.approx(float(expected[1]), rel=1e-12)
+
+
+@pytest.mark.parametrize("lines", [[], ["", "   "], ["Sample id Response", "S1 3,1 4", "S2 Q 8 9 1"]],
+                         ids=["empty", "blank lines", "no separator"])
+def test_a_table_that_cannot_be_read_is_named(tmp_path, lines: list[str]) -> None:
+    standards = write(tmp_path / "std.csv", ["Concentration,Response"] + [f"{x:g},{y:.3f}" for x, y in zip(MN_X, MN_Y)])
+    samples = write(tmp_path / "smp.csv", lines) if lines else tmp_path / "smp.csv"
+    if not lines:
+        samples.write_bytes(b"")
+    result = run_cli("quantify", "--standards", str(standards), "--samples", str(samples))
+    assert result.returncode == 2 and "Traceback" not in result.stderr
+    assert f"{samples}:" in result.stderr
+
+
 def test_a_missing_column_lists_accepted_headers_and_the_map_option(tmp_path) -> None:
     standards = write(tmp_path / "std.csv", ["Concentration,Peak height"] + [f"{x:g},{y:.3f}" for x, y in zip(MN_X, MN_Y)])
     samples = write(tmp_path / "smp.csv", ["Sample,Peak height", "S1,640.225"])

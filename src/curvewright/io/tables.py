@@ -101,7 +101,10 @@ def table_from_text(text: str, *, delimiter: str | None = None, source: str = "p
     if delimiter is not None and delimiter not in ("\t", ";", ","):
         raise ImportProblem(f"delimiter: {delimiter!r} is not tab, ';' or ','.")
     text = text.lstrip("\ufeff")
-    used = delimiter or detect_delimiter(text)
+    try:
+        used = delimiter or detect_delimiter(text)
+    except ImportProblem as problem:
+        raise ImportProblem(f"{source}: {problem}") from None
     rows, numbers = [], []
     reader = csv.reader(io.StringIO(text, newline=""), delimiter=used, quotechar='"', strict=True)
     try:

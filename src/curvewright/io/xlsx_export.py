@@ -17,6 +17,7 @@ would refuse.
 
 from __future__ import annotations
 
+import errno
 import io
 import math
 import os
@@ -56,8 +57,27 @@ def write_xlsx(result: RunResult, path: str | Path, *, progress: Progress | None
 def write_tables(tables: Iterable[Table], path: Path, *, progress: Progress | None = None) -> str:
     target = resolve_target(Path(path))
     with _exact_floats(), atomic_target(path) as temporary:
-        _build(list(tables), progress, temporary, scratch=lambda: new_temporary(target))
+        try:
+            _build(list(tables), progress, temporary, scratch=lambda: new_temporary(target))
+        except Exception as exc:  # noqa: BLE001 - only a failed write is turned into its OSError
+            failed = _write_failure(exc)
+            if failed is None:
+                raise
+            raise failed from None
         return file_sha256_streamed(temporary)
+
+
+def _write_failure(exc: Exception) -> OSError | None:
+    """The OSError behind a failed write of a sheet: openpyxl writes through lxml when it is installed,
+    and lxml reports a failed write as ``SerialisationError('IO_EFBIG')``, naming the errno."""
+    if isinstance(exc, OSError):
+        return exc
+    if type(exc).__name__ == "SerialisationError" and type(exc).__module__.startswith("lxml"):
+        code = getattr(errno, str(exc).removeprefix("IO_"), None)
+        if isinstance(code, int):
+            return OSError(code, os.strerror(code))
+        return OSError(errno.EIO, f"{os.strerror(errno.EIO)} ({exc})")
+    return None
 
 
 def xlsx_bytes(tables: Iterable[Table], *, progress: Progress | None = None) -> bytes:
