@@ -38,6 +38,76 @@ SLOW = settings(derandomize=True, max_examples=2000, deadline=None, suppress_hea
 TIME_BOUND = 20.0  # seconds for any one input
 
 
+# --- text tables (pasted, CSV, TSV) -------------------------------------------------------------
+BASE_TEXT_TABLES = [
+    "Standard id,Concentration (µg/L),Response\r\nS1,0.5,52.251\r\nS2,1,102.236\r\nS3,2,202.427\r\n",
+    "\ufeffSample;Dilution;Response\nW1;1;640,225\nW1;1;652,118\n\"Well 3; rinse\";2;1503,871\n",
+    "Sample\tType\tNominal\tResponse\nQC mid\tQC\t15\t15100\nBlank\tblank\t\tND\nU7\tunknown\t\t<0.5\n",
+    "Concentration,Response,Sample,Dilution\n1,1.0,S1,1\n2,2.0,S2,2\n4,4.5,S3,1\n",
+]
+TEXT_SNIPPETS = ['"', '""', ",", ";", "\t", "\r", "\n", "\r\n", "\x00", "\u00a0", "\u202f", "\ufeff", "１,０００", "١٫٥",
+                 "=1+1", "＝SUM(A1)", "\u200b@x", "1,000", "2.500", "1e999", "-1e-400", "nan", "inf", "<", "> 5", "ND",
+                 "9" * 400, "\ud800", "µg/L", "Response", "Concentration", "Sample id", "\t\t\t", ",,,,"]
+
+
+@st.composite
+def damaged_text_tables(draw) -> str:  # type: ignore[no-untyped-def]
+    """A valid standards or samples table with snippets inserted, slices removed or lines repeated."""
+    text = draw(st.sampled_from(BASE_TEXT_TABLES))
+    for _ in range(draw(st.integers(1, 6))):
+        at = draw(st.integers(0, len(text)))
+        action = draw(st.sampled_from(["insert", "delete", "repeat", "random"]))
+        if action == "insert":
+            text = text[:at] + draw(st.sampled_from(TEXT_SNIPPETS)) + text[at:]
+        elif action == "delete":
+            text = text[:at] + text[at + draw(st.integers(1, 12)):]
+        elif action == "repeat":
+            line = text[:at].rsplit("\n", 1)[-1]
+            text = text[:at] + "\n" + line * draw(st.integers(1, 3)) + text[at:]
+        else:
+            text = text[:at] + draw(st.text(max_size=8)) + text[at:]
+    return text
+
+
+def text_table_property(text: str) -> None:
+    """A damaged text table is refused naming the source, or imported with each unusable cell named by
+    row and column; never an internal error, never past the time bound."""
+    from curvewright.io.importing import import_samples, import_standards
+    from curvewright.io.tables import table_from_text
+
+    source = "fuzzed batch 7.csv"
+    start = time.perf_counter()
+    try:
+        table = table_from_text(text, source=source)
+    except ImportProblem as exc:
+        assert str(exc).startswith(f"{source}: "), str(exc)
+        return
+    for importer in (import_standards, import_samples):
+        try:
+            result = importer(table, analyte="lead")
+        except ImportProblem as exc:
+            assert source in str(exc), str(exc)
+            continue
+        for cell in result.rejected:
+            assert cell.row >= 1 and cell.column and cell.reason, cell
+        for _, standard in result.standards:  # a number read is finite; text that is not one is kept as typed
+            assert standard.response.value is None or math.isfinite(standard.response.value)
+    assert time.perf_counter() - start < TIME_BOUND
+
+
+@CI
+@given(damaged_text_tables())
+def test_damaged_text_tables_are_imported_or_refused_naming_the_source(text) -> None:
+    text_table_property(text)
+
+
+@pytest.mark.slow
+@SLOW
+@given(damaged_text_tables())
+def test_damaged_text_tables_are_imported_or_refused_naming_the_source_2000(text) -> None:
+    text_table_property(text)
+
+
 # --- workbooks -----------------------------------------------------------------------------------
 BASE_WORKBOOKS = [
     workbook_bytes(),

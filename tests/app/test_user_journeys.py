@@ -324,6 +324,39 @@ def test_buttons_act_on_the_selected_row(make_window, qtbot, slot_errors, answer
     assert "Select one standard" in window.statusBar().currentMessage()
 
 
+@pytest.mark.parametrize("damage", ["one character short", "not a zip", "empty"])
+def test_a_damaged_workbook_imported_from_the_menu_is_named_in_a_message(make_window, qtbot, slot_errors, files,
+                                                                          answer_dialogs, demo_copies, tmp_path,
+                                                                          monkeypatch, damage: str) -> None:
+    from tests.io.workbook_files import SHEET, rezip, workbook_bytes
+
+    good = workbook_bytes()
+    data = {"one character short": rezip(good, {SHEET: lambda xml: xml[:-1]}),  # a sheet XML missing its last ">"
+            "not a zip": good[: len(good) // 2], "empty": b""}[damage]
+    path = tmp_path / "Cal batch 7.xlsx"
+    path.write_bytes(data)
+    shown: list[tuple[str, bool]] = []
+
+    def preview_exec(self) -> int:  # the preview opens when the file's sheets can be listed: what does it say?
+        shown.append((self.summary.toPlainText(), self.buttons.button(self.buttons.StandardButton.Ok).isEnabled()))
+        return QDialog.DialogCode.Rejected
+
+    monkeypatch.setattr(dialogs.ImportDialog, "exec", preview_exec)
+    window = make_window(demo_copies[0])
+    before = window.session.run
+    files.to_open.append(path)
+    window.actions_by_name["import-standards"].trigger()
+    settle(qtbot, window)
+    assert not slot_errors
+    if shown:  # a sheet that cannot be read: the preview says why, naming the file, and cannot be accepted
+        text, can_accept = shown[-1]
+        assert text.startswith(f"{path}: ") and not can_accept
+    else:  # a file that is no workbook at all: a message names it
+        title, text = answer_dialogs.seen[-1]
+        assert title == "Import standards" and str(path) in text
+    assert window.session.run is before  # nothing imported, nothing lost
+
+
 def test_the_exclusion_dialog_needs_a_chosen_reason(qtbot, demo_copies) -> None:
     from curvewright.app.dialogs import EXCLUSION_REASONS, ReasonDialog
 
@@ -359,6 +392,18 @@ def test_other_buttons_and_view_controls(make_window, qtbot, slot_errors, answer
         box.click()
         qtbot.wait(10)
         box.click()
+    # the log-axis box: the concentration axis says it is logarithmic, and so does the response axis when
+    # every response in the fit is positive (only then is it drawn on a log scale too)
+    if not view.log_axis.isChecked():
+        view.log_axis.click()
+        settle(qtbot, window)
+    positive = all(s.response.value > 0 for s in window.session.run.analyte(analyte).standards
+                   if s.included and s.response.value is not None)
+    assert view.curve_plot.getAxis("bottom").labelText.endswith("(log scale)")
+    assert view.curve_plot.getAxis("left").labelText.endswith("(log scale)") == positive
+    view.log_axis.click()
+    settle(qtbot, window)
+    assert "(log scale)" not in view.curve_plot.getAxis("left").labelText
     view.lower_kind.setCurrentIndex(1)
     assert view.lower_plot.getAxis("left").labelText.startswith("Residual")
     view.lower_kind.setCurrentIndex(0)
