@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+from pathlib import Path
 
 import numpy as np
 import openpyxl
@@ -289,3 +290,15 @@ def test_settings_are_offered_in_words_not_identifiers(qtbot) -> None:
     dialog.rounding_tie.setCurrentIndex(dialog.rounding_tie.findData("half_even"))
     changed = dialog.settings(run)
     assert (changed.limits_method, changed.rounding.tie) == ("iso11843", "half_even")
+
+
+def test_a_curve_over_three_decades_opens_with_both_axes_said_logarithmic(make_window, tmp_path) -> None:
+    # the weighted demo spans 1–1000 ng/mL with positive area ratios: the view opens on log axes and both
+    # axis titles say so (the tick labels alone do not tell a reader the scale)
+    import shutil
+
+    window = make_window(Path(shutil.copy(ROOT / "sample_runs" / "veltaprine_plasma_weighted.json", tmp_path)))
+    view = window.curve_view
+    assert view.log_axis.isChecked()
+    assert view.curve_plot.getAxis("bottom").labelText == "Concentration (ng/mL) (log scale)"
+    assert view.curve_plot.getAxis("left").labelText == "Response (area ratio) (log scale)"

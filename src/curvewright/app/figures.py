@@ -129,6 +129,8 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
     ty = _axis_transform(plot, log_y, "left", (float(cal.response.min()), float(cal.response.max())) if log_y else None)
     if log_x:
         plot.setLabel("bottom", plot.getAxis("bottom").labelText + " (log scale)")
+    if log_y:
+        plot.setLabel("left", plot.getAxis("left").labelText + " (log scale)")
     trace = curve_trace(cal, level=level, log_spacing=log_x)
     x = tx(trace.concentration)
     low, high = float(tx(low)), float(tx(high))
