@@ -104,6 +104,22 @@ def test_a_failure_in_the_middle_of_filing_leaves_no_part_of_the_run(where, monk
         assert archive.file(lead_run(2)).new  # and the run can be filed once the fault is gone
 
 
+def test_a_run_under_a_validated_method_is_filed_with_that_method(where) -> None:  # type: ignore[no-untyped-def]
+    from curvewright.core.method import load_method
+    from curvewright.io import run_edits
+    from curvewright.io.run_document import open_run
+    from tests.io.helpers import ROOT
+
+    method = load_method(ROOT / "sample_runs" / "methods" / "demo_nitrate_uv_method.json")
+    under_method = run_edits.apply_method(open_run(ROOT / "sample_runs" / "nitrate_water_linear.json").run, method)
+    with open_archive(where, create=True) as archive:
+        archive.file(under_method)
+        archive.file(lead_run(1))
+        with archive.engine.connect() as conn:
+            filed = dict(conn.execute(text("SELECT analyte, method FROM run_analytes")).all())
+    assert filed == {"nitrate-N": method.label, "lead": None}  # a run without a method leaves the column empty
+
+
 def test_filed_rows_cannot_be_changed_or_removed(where) -> None:  # type: ignore[no-untyped-def]
     with open_archive(where, create=True) as archive:
         archive.file(lead_run(1))

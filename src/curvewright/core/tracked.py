@@ -27,7 +27,7 @@ The trends (:mod:`.trends`) follow each of these through the runs filed for one 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -75,6 +75,8 @@ class TrackedValues:
     is_response: float | None = None
     is_response_count: int | None = None
     recoveries: tuple[Recovery, ...] = ()
+    method: str | None = None
+    """The validated method the run followed (its label, e.g. ``"ENV-NO3 v2"``), None without one."""
 
     @property
     def method_key(self) -> str:
@@ -142,7 +144,8 @@ def quantity_words(quantity: str, concentration_unit: str = "", response_unit: s
 
 def tracked_values(result: RunResult) -> tuple[TrackedValues, ...]:
     """The tracked quantities of every analyte of an analysed run."""
-    return tuple(_of_analyte(a, result.profile.id) for a in result.analytes)
+    method = result.method.label if result.method is not None else None
+    return tuple(replace(_of_analyte(a, result.profile.id), method=method) for a in result.analytes)
 
 
 def _of_analyte(a: AnalyteResult, profile_id: str) -> TrackedValues:

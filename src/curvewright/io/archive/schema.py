@@ -6,7 +6,8 @@ Version 1 (the current one):
 * ``runs`` — one row per filed run: its content hash (unique), name, date, who filed it and when,
   the file it came from, its verdict, and the run document itself (the JSON as saved);
 * ``run_analytes`` — per run and analyte: the method key (profile | model | weighting), a
-  ``method`` column kept empty until runs carry a method of their own, the verdict, and the tracked
+  ``method`` column holding the validated method the run followed (its id and version; empty for runs
+  without one), the verdict, and the tracked
   quantities of :mod:`curvewright.core.tracked` (``rf_rsd_percent`` stays empty until average
   response-factor models exist);
 * ``recoveries`` — per run and analyte, the mean recovery of each QC level and calibration check.

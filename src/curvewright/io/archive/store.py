@@ -246,7 +246,7 @@ class Archive:
     def _file_analyte(conn: Connection, run_id: int, tracked: TrackedValues) -> None:
         values = {q: getattr(tracked, q) for q in CALIBRATION_QUANTITIES}
         analyte_id = int(conn.execute(insert(run_analytes).values(
-            run_id=run_id, analyte=tracked.analyte, method=None, method_key=tracked.method_key,
+            run_id=run_id, analyte=tracked.analyte, method=tracked.method, method_key=tracked.method_key,
             profile_id=tracked.profile_id, model=tracked.model, weighting=tracked.weighting,
             concentration_unit=tracked.concentration_unit, response_unit=tracked.response_unit,
             accepted=tracked.accepted, error=tracked.error, is_response_count=tracked.is_response_count, **values,
