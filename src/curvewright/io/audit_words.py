@@ -48,7 +48,15 @@ def _changes(changes: Any, subject: str) -> str:
 
 
 def entry_words(e: AuditEntry) -> str:
-    """What one entry did, in a sentence."""
+    """What one entry did, in a sentence. Details of a shape this version does not expect (a document
+    written by another program, or damaged) are said as recorded, never dropped and never an error."""
+    try:
+        return _entry_words(e)
+    except (AttributeError, IndexError, KeyError, TypeError, ValueError):
+        return f"{e.action.replace('_', ' ')} (details as recorded: {_value(e.details)})."
+
+
+def _entry_words(e: AuditEntry) -> str:
     d = e.details
     a = e.action
     if a == "run_created":
