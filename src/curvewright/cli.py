@@ -84,6 +84,7 @@ exit codes:
 
 
 def build_parser() -> argparse.ArgumentParser:
+    from .core.models import Model
     from .core.weighting import Weighting
 
     parser = argparse.ArgumentParser(
@@ -107,7 +108,7 @@ def build_parser() -> argparse.ArgumentParser:
     q.add_argument("--allow-unreadable", action="store_true",
                    help="with --samples: accept sample readings that could not be read (still listed); "
                         "otherwise the exit code is 2")
-    q.add_argument("--model", choices=("linear", "quadratic", "proportional"),
+    q.add_argument("--model", choices=tuple(m.value for m in Model),
                    help="override the run's model (with tables: give --weighting too)")
     q.add_argument("--weighting", choices=tuple(w.value for w in Weighting),
                    help="override the weighting (with tables: give --model too)")

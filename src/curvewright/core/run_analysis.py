@@ -241,6 +241,7 @@ def _analyse_analyte(
     run: Run, analyte: Analyte, profile: AcceptanceProfile, model: str | None, weighting: str | None
 ) -> AnalyteResult:
     settings = run.settings
+    use_model = model or analyte.model
     fitted, excluded, unusable, x, y, labels = [], [], [], [], [], []
     for s in analyte.standards:
         if not s.included:
@@ -253,6 +254,10 @@ def _analyse_analyte(
         if s.concentration < 0:
             unusable.append(UnusableStandard(s.id, f"concentration {s.concentration:g} is below zero"))
             continue
+        if s.concentration == 0 and use_model == "average-rf":
+            unusable.append(UnusableStandard(s.id, "a response factor y/x needs a concentration above zero, so a "
+                                                   "blank is not part of an average response factor calibration"))
+            continue
         value, reason = response_value(s.response, s.internal_standard_response, analyte.uses_internal_standard)
         if value is None:
             unusable.append(UnusableStandard(s.id, reason))
@@ -261,7 +266,6 @@ def _analyse_analyte(
         x.append(s.concentration)
         y.append(value)
         labels.append(s.level)
-    use_model = model or analyte.model
     use_weighting = weighting or analyte.weighting
     overridden = (model is not None and model != analyte.model) or (
         weighting is not None and weighting != analyte.weighting

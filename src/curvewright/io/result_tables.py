@@ -213,7 +213,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value", display="plain"), Column("Standard error", display="sig:3")), tuple(rows))
     rows.append(("Equation", cal.equation(12), None))
     for power, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors)):
-        fixed = cal.model is Model.PROPORTIONAL and power == 0
+        fixed = not cal.model.has_intercept and power == 0
         rows.append((f"b{power} (coefficient of x^{power})", 0.0 if fixed else float(b), None if fixed else float(se)))
     for i in range(cal.covariance.shape[0]):
         for j in range(i + 1, cal.covariance.shape[0]):
@@ -414,7 +414,7 @@ def _chooser(result: RunResult, analyte: str) -> str:
 
 
 def _mandel(cal: Calibration) -> tuple[Any, Any]:
-    if cal.model is Model.PROPORTIONAL:
+    if not cal.model.has_intercept:
         return "not applicable to a line through the origin", None
     try:
         lin = cal if cal.model is Model.LINEAR else fit(cal.concentration, cal.response, "linear", cal.weighting.value)
