@@ -24,6 +24,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
+from .addition_series import AdditionSeriesResult, analyse_additions
 from .calibration import Calibration, fit
 from .checks import CheckInput, CheckVerdict, bracketing, judge_checks
 from .errors import CurvewrightError, LimitsError, QuantitationInputError
@@ -125,6 +126,8 @@ class AnalyteResult:
     method_reasons: tuple[str, ...] = ()
     """What the run's validated method requires of this analyte and is not met (a level without a
     standard, a model departing from the method's), or what it notes; "FAIL" marks a failure."""
+    additions: tuple[AdditionSeriesResult, ...] = ()
+    """The samples measured by standard additions (:mod:`.addition_series`), whatever the calibration."""
 
     @property
     def accepted(self) -> bool:
@@ -216,7 +219,8 @@ def analyse_run(
     return RunResult(
         run=run,
         profile=profile,
-        analytes=tuple(_analyse_analyte(run, a, profile, model, weighting) for a in chosen),
+        analytes=tuple(replace(_analyse_analyte(run, a, profile, model, weighting), additions=analyse_additions(run, a, response_value))
+                       for a in chosen),
     )
 
 

@@ -218,6 +218,9 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     for i in range(cal.covariance.shape[0]):
         for j in range(i + 1, cal.covariance.shape[0]):
             rows.append((f"covariance(b{i}, b{j})", float(cal.covariance[i, j]), None))
+    from .model_outputs import response_factor_rows
+
+    rows += response_factor_rows(cal, an.uses_internal_standard)
     lof = cal.lack_of_fit
     rows += [
         ("Standards in the fit (n)", cal.n_standards, None), ("Concentration levels", cal.levels.n_levels, None),
@@ -366,6 +369,10 @@ def all_tables(result: RunResult) -> tuple[Table, ...]:
         tables += [calibration_table(a, result), standards_table(a)]
         if a.checks is not None:
             tables.append(checks_table(a))
+        if a.additions:
+            from .model_outputs import additions_table
+
+            tables.append(additions_table(a, result.run.settings.confidence_level))
     if result.run.signatures:
         tables.append(signatures_table(result))
     tables.append(audit_table(result))
