@@ -67,3 +67,36 @@ def test_workbook_and_record_show_the_series(document, tmp_path) -> None:
     pages = re.sub(r"\s+", "", unicodedata.normalize("NFKC", " ".join(p.extract_text() for p in PdfReader(record).pages)))
     assert "Standardadditions–lead" in pages and "River4" in pages
     assert "matrix-matchedlinearity" in pages
+
+
+def test_environmental_demo_reports_the_average_rrf_from_the_command_line() -> None:
+    demo = ROOT / "sample_runs" / "volatiles_water_average_rf.json"
+    engine = analyse_run(__import__("curvewright.io.run_document", fromlist=["open_run"]).open_run(demo).run)
+    text = run_cli("quantify", str(demo))
+    assert text.returncode == 0, text.stderr
+    data = json.loads(run_cli("quantify", str(demo), "--json").stdout)
+    for a, entry in zip(engine.analytes, data["analytes"], strict=True):
+        rf = a.calibration.response_factors
+        assert (f"mean relative response factor (response ratio to the internal standard per unit concentration) "
+                f"{rf.mean:.6g} (standard error {rf.standard_error:.3g}); RRF SD {rf.sd:.4g}, %RSD {rf.rsd_percent:.3g} %") in text.stdout
+        assert entry["model"] == "average-rf" and entry["equation"] == a.calibration.equation(17)
+        assert entry["response_factors"]["rsd_percent"] == rf.rsd_percent and entry["response_factors"]["relative"] is True
+        assert f"pass: response factor %RSD = {rf.rsd_percent:.3g} %; at most 20 %" in text.stdout
+    assert "pass: CCV CCV-2 10 (closing)" in text.stdout
+
+
+def test_environmental_demo_workbook_and_record_carry_the_rrf_and_its_rsd(tmp_path) -> None:
+    from curvewright.io.run_document import open_run
+
+    demo = ROOT / "sample_runs" / "volatiles_water_average_rf.json"
+    benzene = analyse_run(open_run(demo).run).analytes[0].calibration.response_factors
+    workbook, record = tmp_path / "voc.xlsx", tmp_path / "voc.pdf"
+    done = run_cli("quantify", str(demo), "--export", str(workbook), "--report", str(record))
+    assert done.returncode == 0, done.stderr
+    rows = {r[0]: r for r in openpyxl.load_workbook(workbook)["Calibration – benzene"].iter_rows(values_only=True) if r and r[0]}
+    mean_row = rows["Mean relative response factor (response ratio to the internal standard per unit concentration)"]
+    assert mean_row[1] == benzene.mean and mean_row[2] == benzene.standard_error
+    assert rows["RRF %RSD"][1] == benzene.rsd_percent
+    assert rows["Equation"][1].startswith("y = ") and rows["Equation"][1].endswith("·x")
+    pages = re.sub(r"\s+", "", unicodedata.normalize("NFKC", " ".join(p.extract_text() for p in PdfReader(record).pages)))
+    assert "RRF%RSD" in pages and "Meanrelativeresponsefactor" in pages

@@ -56,6 +56,24 @@ def response_factor_json(cal: FittedCurve, uses_internal_standard: bool) -> dict
             "rsd_percent": rf.rsd_percent, "factors": [float(v) for v in rf.factors]}
 
 
+def curve_words(cal: FittedCurve, uses_internal_standard: bool) -> str:
+    """The calibration in one line for the app: model, equation, each parameter with its standard error, and
+    the model's own diagnostic (the RF %RSD for the average response factor, R² otherwise)."""
+    parts = [f"{cal.model.description}, {cal.weighting.description}: {cal.equation(6)}"]
+    rf = cal.response_factors
+    if rf is not None:
+        short = "RRF" if uses_internal_standard else "RF"
+        parts.append(f"mean {short} = {rf.mean:.6g} (standard error {rf.standard_error:.3g}), {short} %RSD = "
+                     f"{rf.rsd_percent:.3g} % over {rf.n} standards")
+    else:
+        terms = [f"b{p} = {b:.6g} (SE {se:.3g})" for p, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors))
+                 if cal.model.has_intercept or p > 0]
+        parts.append(", ".join(terms))
+        parts.append(f"R² = {cal.r_squared:.6f}")
+    parts.append(f"residual SD {cal.residual_sd:.4g} on {cal.df_residual} df")
+    return "; ".join(parts)
+
+
 def additions_table(a: "AnalyteResult", level: float) -> Table:
     """One row per sample measured by standard additions: the line, the extrapolated concentration, its interval."""
     unit = a.analyte.concentration_unit
@@ -126,6 +144,7 @@ def additions_json(a: "AnalyteResult") -> list[dict[str, Any]]:
 
 
 __all__ = [
+    "curve_words",
     "additions_json", "additions_lines", "additions_table", "factor_name", "response_factor_json",
     "response_factor_lines", "response_factor_rows",
 ]
