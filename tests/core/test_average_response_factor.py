@@ -120,3 +120,20 @@ def test_a_blank_in_a_run_is_left_out_of_the_average_rf_with_the_reason() -> Non
     # the same run with a straight line keeps the blank in the fit
     line = replace(invented_is_run(blank=True), analytes=(replace(invented_is_run(blank=True).analytes[0], model="linear"),))
     assert analyse_run(line).analytes[0].calibration.n_standards == 6
+
+
+@pytest.mark.slow
+def test_inverse_interval_covers_at_its_nominal_level_under_a_constant_relative_sd() -> None:
+    # Invented design: six levels 1–50 in duplicate, true RF 2.0, a 5 % CV on every response (the average
+    # RF's own assumption). The interval is exact there, so 95 % intervals must cover 93–97 % of the time.
+    rng = np.random.default_rng(2026)
+    x = np.repeat([1.0, 2.0, 5.0, 10.0, 20.0, 50.0], 2)
+    x0 = np.array([3.0, 15.0, 40.0])
+    covered, total = 0, 0
+    for _ in range(1500):
+        y = 2.0 * x * (1 + 0.05 * rng.standard_normal(x.size))
+        y0 = 2.0 * x0 * (1 + 0.05 * rng.standard_normal(x0.size))
+        q = cw.fit(x, y, "average-rf").quantify(y0)
+        covered += int(np.sum((q.lower <= x0) & (x0 <= q.upper)))
+        total += x0.size
+    assert 0.93 <= covered / total <= 0.97, covered / total
