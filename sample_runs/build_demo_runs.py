@@ -18,7 +18,7 @@ import numpy as np
 from curvewright.core.comparison import compare
 from curvewright.core.rounding import RoundingRule
 from curvewright.core.run_analysis import analyse_run, run_profile
-from curvewright.core.run import RunSettings
+from curvewright.core.run import Addition, Reading, RunSettings, Sample, SampleKind
 from curvewright.io import run_edits
 from curvewright.io.audit import Identity, file_sha256
 from curvewright.io.importing import analytes_from_import, import_samples, import_standards
@@ -182,8 +182,71 @@ def zinc_run() -> "Run":  # type: ignore[name-defined]  # noqa: F821
     )
 
 
+def volatiles_run() -> "Run":  # type: ignore[name-defined]  # noqa: F821
+    """An environmental volatile-organics batch by GC-MS: three analytes calibrated by their average relative
+    response factor against one internal standard, judged by the RF %RSD; an ICV, continuing checks and
+    calibration blanks bracket the samples; one leachate is measured by standard additions because its
+    matrix suppresses the signal."""
+    rng = np.random.default_rng(404)
+    levels = [1.0, 2.0, 5.0, 10.0, 20.0, 50.0]
+    rrf = {"benzene": 1.21, "toluene": 0.94, "ethylbenzene": 0.71}  # per 10 µg/L of internal standard
+    is_area = 250000.0
+
+    def areas(name: str, c: float, matrix: float = 1.0) -> tuple[int, int]:
+        is_a = is_area * (1 + 0.05 * rng.standard_normal())
+        ratio = matrix * rrf[name] * c / 10.0 * (1 + 0.05 * rng.standard_normal())
+        return int(round(ratio * is_a)), int(round(is_a))
+
+    rows = []
+    for name in rrf:
+        for i, c in enumerate(levels, start=1):
+            rows.append([f"{name[:3].upper()}-CAL{i}", name, f"CAL{i}", c, 1, *areas(name, c)])
+    standards = _tsv(["Standard id", "Compound", "Level", "Concentration (µg/L)", "Replicate", "Area", "IS area"], rows)
+    plan = [("ICV 10 (second source)", "icv", 1, 10.0, 10.0), ("CCB-1", "ccb", 1, None, 0.0),
+            ("Monitoring well MW-2", "unknown", 1, None, 3.4), ("Monitoring well MW-5", "unknown", 1, None, 17.0),
+            ("Field blank FB-1", "blank", 1, None, 0.0), ("Stream S-1", "unknown", 1, None, 0.8),
+            ("Tank rinse T-9", "unknown", 10, None, 260.0),
+            ("CCV-1 10", "ccv", 1, 10.0, 10.0), ("CCB-2", "ccb", 1, None, 0.0),
+            ("Monitoring well MW-7", "unknown", 1, None, 42.0), ("Lagoon L-2", "unknown", 1, None, 6.1),
+            ("CCV-2 10 (closing)", "ccv", 1, 10.0, 10.0), ("CCB-3", "ccb", 1, None, 0.0)]
+    samples = []
+    for order, (sid, kind, dilution, nominal, true_c) in enumerate(plan, start=1):
+        for name in rrf:
+            samples.append([sid, name, kind, order, dilution, "" if nominal is None else nominal,
+                            *areas(name, true_c / dilution)])
+    samples_text = _tsv(["Sample", "Compound", "Type", "Run order", "Dilution", "Nominal", "Area", "IS area"], samples)
+
+    def leachate(run, clock, user):  # type: ignore[no-untyped-def]
+        # Landfill leachate: its matrix suppresses benzene's response to 70 %, so it is spiked in duplicate
+        # with 0, 5, 10 and 20 µg/L and read by standard additions (true content 8.0 µg/L, invented).
+        additions = []
+        for added in (0.0, 5.0, 10.0, 20.0):
+            for r in (1, 2):
+                a, b = areas("benzene", 8.0 + added, matrix=0.7)
+                additions.append(Addition("benzene", added, r, Reading.of(float(a)), Reading.of(float(b))))
+        sample = Sample("Leachate LF-3 (standard additions)", SampleKind.UNKNOWN, len(plan) + 1, 1.0,
+                        additions=tuple(additions))
+        return run_edits.update_samples(run, (*run.samples, sample), "standard additions entered for the leachate",
+                                        user=user, clock=clock)
+
+    reason = ("average relative response factor: the RF %RSD is within the environmental profile's 20 %, "
+              "so no fitted curve is needed")
+    return _build(
+        "Demo Environmental Lab (invented) — volatile organics in water, batch 2291",
+        "GC-MS, analyte/internal-standard area ratio (one internal standard at 10 µg/L in every standard and "
+        "sample); six levels; average relative response factor judged by its %RSD; ICV, CCVs and calibration "
+        "blanks bracket the samples; one leachate by standard additions. " + INVENTED,
+        standards_text=standards, samples_text=samples_text,
+        settings=RunSettings(acceptance_profile="environmental", rounding=RoundingRule("significant", 3)),
+        choices={name: ("average-rf", "1/x^2", reason) for name in rrf},
+        clock=Clock("2026-11-12T07:45:00"), user=Identity("Demo Analyst Four", "DEMO-04", "demo.analyst4"),
+        extra=leachate, analyte="benzene", response_unit="area ratio",
+        instrument="GC-MS with purge and trap, asset DEMO-GCMS-5 (invented)",
+    )
+
+
 DEMOS = {"nitrate_water_linear.json": nitrate_run, "veltaprine_plasma_weighted.json": plasma_run,
-         "zinc_emission_quadratic.json": zinc_run}
+         "zinc_emission_quadratic.json": zinc_run, "volatiles_water_average_rf.json": volatiles_run}
 
 
 def main() -> None:

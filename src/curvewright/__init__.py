@@ -25,6 +25,7 @@ from .core.inverse import QuantFlag, Quantitation
 from .core.lack_of_fit import LackOfFit
 from .core.limits import DetectionLimits
 from .core.models import Model
+from .core.standard_additions import StandardAdditions, standard_additions
 from .core.weighting import Weighting
 
 CAUTION = (
@@ -54,8 +55,10 @@ __all__ = [
     "QuantFlag",
     "Quantitation",
     "QuantitationInputError",
+    "StandardAdditions",
     "Weighting",
     "WeightingError",
     "__version__",
     "fit",
+    "standard_additions",
 ]

@@ -84,6 +84,7 @@ exit codes:
 
 
 def build_parser() -> argparse.ArgumentParser:
+    from .core.models import Model
     from .core.weighting import Weighting
 
     parser = argparse.ArgumentParser(
@@ -107,7 +108,7 @@ def build_parser() -> argparse.ArgumentParser:
     q.add_argument("--allow-unreadable", action="store_true",
                    help="with --samples: accept sample readings that could not be read (still listed); "
                         "otherwise the exit code is 2")
-    q.add_argument("--model", choices=("linear", "quadratic", "proportional"),
+    q.add_argument("--model", choices=tuple(m.value for m in Model),
                    help="override the run's model (with tables: give --weighting too)")
     q.add_argument("--weighting", choices=tuple(w.value for w in Weighting),
                    help="override the weighting (with tables: give --model too)")
@@ -718,6 +719,8 @@ def summary_text(  # type: ignore[no-untyped-def]
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
 ) -> str:
     """The results as text. A missing unit is said once per analyte and never printed empty."""
+    from .io.model_outputs import additions_lines, response_factor_lines
+
     run = result.run
     lines = [f"Run: {run.name}" + (f"  ({source})" if source else ""),
              f"Profile: {result.profile.name}; verdict: {'ACCEPTED' if result.accepted else 'NOT ACCEPTED'}"]
@@ -736,6 +739,7 @@ def summary_text(  # type: ignore[no-untyped-def]
         lines += [f"  note: {w}" for w in (analyte_warnings or {}).get(a.analyte.name, [])]
         if a.calibration is None:
             lines.append(f"  not fitted: {a.error}")
+            lines += additions_lines(a, run.settings.confidence_level)
             continue
         cal = a.calibration
         choice = (choices or {}).get(a.analyte.name) or _document_choice(a)
@@ -755,6 +759,7 @@ def summary_text(  # type: ignore[no-untyped-def]
         for r in a.method_reasons:
             lines.append(f"  method {r}")
         lines.append(f"  {cal.equation(10)}")
+        lines += response_factor_lines(cal, a.analyte.uses_internal_standard)
         lof = cal.lack_of_fit
         lof_text = (f"lack-of-fit F = {lof.f_statistic:.4g}, p = {lof.p_value:.3g}" if lof.available
                     else f"lack of fit not tested ({lof.reason})")
@@ -782,6 +787,7 @@ def summary_text(  # type: ignore[no-untyped-def]
             lines.append(f"  calibrated range {rr.lloq:g}–{rr.uloq:g}{in_unit} (LLOQ–ULOQ); reporting limit "
                          f"{rr.reporting_limit:.4g}{in_unit} ({rr.basis}): {rr.note}")
         lines += _samples_lines(a.samples, rule, run.settings.confidence_level)
+        lines += additions_lines(a, run.settings.confidence_level)
     for action, path, sha in written:
         lines.append(f"{'workbook' if action == 'export_written' else 'report'} written: {path} (SHA-256 {sha[:16]}…)")
     return "\n".join(lines)
@@ -827,6 +833,7 @@ def result_json(  # type: ignore[no-untyped-def]
     a table kept as typed."""
     from .io.audit import verify_chain
     from .io.integrity import content_change
+    from .io.model_outputs import additions_json, response_factor_json
     from .io.result_tables import chain_claim
     from .io.signatures import check_signatures
 
@@ -893,7 +900,9 @@ def result_json(  # type: ignore[no-untyped-def]
                     for i, s in enumerate(a.fitted_standards)
                 ],
                 "excluded_standards": [{"id": s.id, "reason": s.exclusion_reason} for s in a.excluded_standards],
+                "response_factors": response_factor_json(cal, a.analyte.uses_internal_standard),
             })
+        entry["standard_additions"] = additions_json(a)
         entry["samples"] = [
             {"id": s.sample_id, "kind": s.kind.value, "run_order": s.run_order, "replicates": len(s.replicate_responses),
              "mean_response": s.mean_response, "estimate": s.estimate, "standard_error": s.standard_error,

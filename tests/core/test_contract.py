@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+
 import numpy as np
 import pytest
 from hypothesis import given, settings
@@ -12,6 +14,9 @@ import curvewright as cw
 MODELS = ["linear", "quadratic", "proportional"]
 WEIGHTINGS = ["none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2", "power", "two-component"]
 CASES = [(m, w) for m in MODELS for w in WEIGHTINGS]
+# The average response factor is the mean of yᵢ/xᵢ, the line through the origin weighted 1/x²: it takes
+# no other weighting ("none", the default, means its own).
+CASES += [("average-rf", "none"), ("average-rf", "1/x^2")]
 
 
 def standards(model: str, seed: int = 3) -> tuple[np.ndarray, np.ndarray]:
@@ -22,7 +27,8 @@ def standards(model: str, seed: int = 3) -> tuple[np.ndarray, np.ndarray]:
 
 
 def truth(model: str, x: np.ndarray) -> np.ndarray:
-    return {"linear": 1.5 + 3.0 * x, "quadratic": 1.5 + 3.0 * x - 0.004 * x**2, "proportional": 3.0 * x}[model]
+    return {"linear": 1.5 + 3.0 * x, "quadratic": 1.5 + 3.0 * x - 0.004 * x**2, "proportional": 3.0 * x,
+            "average-rf": 3.0 * x}[model]
 
 
 def fit_case(
@@ -144,3 +150,10 @@ def test_each_unknown_is_quantified_independently_of_the_others_in_the_call(cali
                 np.isnan(getattr(alone, name)[0]) and np.isnan(getattr(together, name)[i])
             ), (name, i)
         assert alone.flag_bits[0] == together.flag_bits[i]
+
+
+@pytest.mark.parametrize("weighting", [w for w in WEIGHTINGS if w not in ("none", "1/x^2")])
+def test_average_response_factor_refuses_other_weightings(weighting: str) -> None:
+    x, y = standards("average-rf")
+    with pytest.raises(cw.WeightingError, match=re.escape(f"weighting {weighting}: the average response factor")):
+        cw.fit(x, y, "average-rf", weighting)

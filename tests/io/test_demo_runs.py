@@ -69,3 +69,27 @@ def test_quadratic_demo_has_an_influential_standard_and_an_exclusion() -> None:
     assert any(f"standard {top + 1} has leverage" in note for note in cal.notes)
     assert [s.id for s in a.excluded_standards] == ["Zn-5b"] and a.excluded_standards[0].exclusion_reason
     assert cal.vertex > cal.calibrated_range[1]
+
+
+def test_environmental_demo_is_calibrated_by_average_relative_response_factors_with_continuing_checks() -> None:
+    run = open_run(ROOT / "sample_runs" / "volatiles_water_average_rf.json").run
+    result = analyse_run(run)
+    assert result.profile.id == "environmental" and result.accepted
+    assert [a.analyte.name for a in result.analytes] == ["benzene", "toluene", "ethylbenzene"]
+    for a in result.analytes:
+        cal = a.calibration
+        assert cal.model is cw.Model.AVERAGE_RF and a.analyte.uses_internal_standard
+        assert cal.rf_rsd_percent <= 20
+        # the recommendation under the environmental profile is the average RF, as chosen
+        evidence = cw.compare(cal.concentration, cal.response, profile="environmental")
+        assert evidence.recommended.model is cw.Model.AVERAGE_RF
+        kinds = [c.kind for c in a.checks.checks]
+        assert SampleKind.ICV in kinds and kinds.count(SampleKind.CCV) == 2 and kinds.count(SampleKind.CALIBRATION_BLANK) == 3
+        assert a.checks.passed
+        assert all(s.status.value != "not_reportable" for s in a.samples)
+    benzene = result.analytes[0]
+    (leachate,) = benzene.additions
+    assert leachate.result is not None and "matrix-matched linearity" in leachate.result.warnings[0]
+    # the leachate's invented content is 8.0 µg/L; its interval holds it
+    assert leachate.reported_lower < 8.0 < leachate.reported_upper
+    assert any(e.action == "samples_edited" and "additions" in str(e.details) for e in run.audit)

@@ -5,10 +5,11 @@ from __future__ import annotations
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QPointF, Signal
+from PySide6.QtCore import QPointF, Qt, Signal
 from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QToolTip, QVBoxLayout, QWidget
 
 from ..core.run_analysis import AnalyteResult, response_value
+from ..io.model_outputs import curve_words
 from . import figures
 
 
@@ -49,6 +50,10 @@ class CurveView(QWidget):
         self.lower_kind.addItems(["Relative error (%) with acceptance limits", "Residuals (response units)"])
         self.lower_kind.setAccessibleName("Lower plot")
         self.empty_note = QLabel("")
+        self.curve_words = QLabel("")
+        self.curve_words.setWordWrap(True)
+        self.curve_words.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self.curve_words.setAccessibleName("The fitted curve: equation and parameters")
         controls = QHBoxLayout()
         for w in (self.confidence, self.prediction, self.log_axis, QLabel("Below:"), self.lower_kind):
             controls.addWidget(w)
@@ -57,6 +62,7 @@ class CurveView(QWidget):
         layout.setContentsMargins(0, 0, 0, 0)
         layout.addLayout(controls)
         layout.addWidget(self.empty_note)
+        layout.addWidget(self.curve_words)
         layout.addWidget(self.graphics, 1)
         for box in (self.confidence, self.prediction, self.log_axis):
             box.toggled.connect(self.redraw)
@@ -79,10 +85,12 @@ class CurveView(QWidget):
         a = self.analyte
         if a is None or a.calibration is None:
             self.empty_note.setText("No curve: " + (a.error if a is not None and a.error else "no standards yet."))
+            self.curve_words.setText("")
             self._hover_points = []
             self._fit_legends()
             return
         self.empty_note.setText("")
+        self.curve_words.setText(curve_words(a.calibration, a.analyte.uses_internal_standard))
         log_x = self.log_axis.isChecked()
         figures.draw_curve(self.curve_plot, a, legend=self.curve_legend, level=self.level,
                            show_confidence=self.confidence.isChecked(), show_prediction=self.prediction.isChecked(),

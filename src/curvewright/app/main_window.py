@@ -37,6 +37,7 @@ from .figures import plot_image_bytes
 from .main import settings_identity
 from .results_model import ResultsView
 from .samples_model import SamplesModel
+from .additions_view import AdditionsView
 from .session import RunSession
 from .standards_model import StandardsModel
 from .table_view import SheetTableView, fit_columns
@@ -142,6 +143,8 @@ class MainWindow(QMainWindow):
         self.bottom_tabs.addTab(self.results_view, "&Results")
         self.bottom_tabs.addTab(self.evidence_panel, "Model &evidence")
         self.bottom_tabs.addTab(self.influence_view, "&Influence")
+        self.additions_view = AdditionsView()
+        self.bottom_tabs.addTab(self.additions_view, "Standard a&dditions")
         self.bottom_tabs.currentChanged.connect(self._refresh_tab)
         right = QSplitter(Qt.Orientation.Vertical)
         right.addWidget(self.curve_view)
@@ -352,7 +355,7 @@ class MainWindow(QMainWindow):
         self.curve_view.show_analyte(analyte, level)
         self._shown_analyte = analyte
         # the views behind other tabs are drawn when their tab is opened
-        self._stale_tabs = {self.influence_view, self.evidence_panel}
+        self._stale_tabs = {self.influence_view, self.evidence_panel, self.additions_view}
         self._refresh_tab(self.bottom_tabs.currentIndex())
         self.results_view.show_result(result, name)
         self._show_verdict(result)
@@ -365,6 +368,8 @@ class MainWindow(QMainWindow):
         name = self.current_analyte()
         if widget is self.influence_view:
             self.influence_view.show_analyte(getattr(self, "_shown_analyte", None))
+        elif widget is self.additions_view:
+            self.additions_view.show_analyte(getattr(self, "_shown_analyte", None))
         elif widget is self.evidence_panel:
             self.evidence_panel.show_evidence(self.session.evidence.get(name), self.session.run.analyte(name),
                                               method=self.session.result.method if self.session.result else None)

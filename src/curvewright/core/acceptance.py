@@ -24,6 +24,7 @@ from typing import TYPE_CHECKING, Any, Mapping
 import numpy as np
 
 from ._arrays import FloatArray, as_finite_vector, frozen
+from .curve_rules import CurveRules
 from .errors import ProfileError
 from .levels import group_levels
 
@@ -116,6 +117,8 @@ class AcceptanceProfile:
     reporting: ReportingRules = ReportingRules()
     caveat: str = ""
     """What the laboratory must confirm before relying on the profile (printed with every verdict)."""
+    curve: CurveRules | None = None
+    """Rules on the whole calibration (response-factor %RSD, r or r²; :mod:`.curve_rules`), or None."""
 
     # --- construction ---------------------------------------------------------------------------
     @classmethod
@@ -170,7 +173,8 @@ class AcceptanceProfile:
         caveat = data.get("caveat", "")
         if not isinstance(caveat, str):
             raise ProfileError(f"{origin}: 'caveat' must be text, found {caveat!r}.")
-        return cls(standards=standards, qc=qc, checks=checks, reporting=reporting, caveat=caveat, **text)
+        curve = None if data.get("curve") is None else CurveRules.from_mapping(data["curve"], f"{origin} curve")
+        return cls(standards=standards, qc=qc, checks=checks, reporting=reporting, caveat=caveat, curve=curve, **text)
 
     def with_limits(
         self,
@@ -204,7 +208,7 @@ class AcceptanceProfile:
         def plain(rules: object) -> dict[str, Any]:
             return {k: (str(v) if isinstance(v, Fraction) else v) for k, v in vars(rules).items()}
 
-        return {
+        out = {
             "format": PROFILE_FORMAT,
             "id": self.id,
             "name": self.name,
@@ -215,6 +219,9 @@ class AcceptanceProfile:
             "reporting": plain(self.reporting),
             "caveat": self.caveat,
         }
+        if self.curve is not None:  # left out otherwise, so the content hash of a profile without it is unchanged
+            out["curve"] = self.curve.to_mapping()
+        return out
 
     @property
     def sha256(self) -> str:
@@ -295,6 +302,10 @@ class AcceptanceProfile:
                 f"note: the highest level ({levels.concentration[nonzero_levels[-1]]:g}) fails; the "
                 "quantitation range would have to end at the previous passing level"
             )
+        if self.curve is not None:
+            curve_ok, curve_reasons = self.curve.judge(cal)
+            ok &= curve_ok
+            reasons.extend(curve_reasons)
         return AcceptanceVerdict(
             profile=self.name,
             passed=bool(ok),

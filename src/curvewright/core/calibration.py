@@ -23,6 +23,7 @@ from .least_squares import ROUNDOFF, solve_weighted, without_roundoff
 from .levels import Levels, group_levels
 from .models import Basis, Model, make_basis
 from .regression_test import regression_test
+from .response_factor import response_factor_weighting
 from .limits import DetectionLimits, detection_limits
 from .weighting import Weighting, make_weights
 
@@ -93,8 +94,10 @@ def fit(
         given) within that relative tolerance of each other (see :mod:`.levels`).
     response : array-like of shape (n,)
         Instrument response of each standard.
-    model : {"linear", "quadratic", "proportional"}
-        y = b0 + b1·x; y = b0 + b1·x + b2·x²; or y = b1·x through the origin.
+    model : {"linear", "quadratic", "proportional", "average-rf"}
+        y = b0 + b1·x; y = b0 + b1·x + b2·x²; y = b1·x through the origin; or y = RF·x with RF the
+        mean response factor yᵢ/xᵢ of the standards (fitted as the line through the origin weighted
+        1/x², which it is; weighting none or 1/x^2 only; see :mod:`.response_factor`).
     weighting : {"none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2"}
         Weights are scaled to sum to n, so ``residual_sd`` stays in response units (see
         :mod:`.weighting`). 1/x-type weights refuse concentrations ≤ 0, 1/y-type responses ≤ 0, and
@@ -124,6 +127,8 @@ def fit(
             f"standards: {x.size} concentrations but {y.size} responses; each standard needs both."
         )
     p = model.n_parameters
+    if model is Model.AVERAGE_RF and x.size == y.size:
+        weighting = response_factor_weighting(weighting, x, response_sd)
     if x.size == 0:
         raise CalibrationInputError("standards: none given; a calibration needs standards.")
     if levels is None or levels.index.size != x.size:

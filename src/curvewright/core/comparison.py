@@ -36,6 +36,12 @@ How the recommendation is reached (the simplest adequate model):
 The proportional model is listed on request and never recommended: forcing through the origin is a
 decision for the laboratory's procedure; the reasons say when the intercept is indistinguishable
 from zero.
+
+The average response factor is listed when asked for (``models``) and whenever the profile has rules
+on the whole curve (the environmental profile; :mod:`.curve_rules`). Under such a profile it is
+recommended when its RF %RSD is within the profile's limit and its standards pass the profile: the
+simplest calibration the method allows. Otherwise the fitted curve chosen as above is recommended,
+and the reasons give the RF %RSD and whether that curve meets the profile's r or r² rule.
 """
 
 from __future__ import annotations
@@ -104,6 +110,8 @@ class Candidate:
 
     @property
     def label(self) -> str:
+        if self.model is Model.AVERAGE_RF:
+            return "average-rf, the mean of the standards' response factors"
         return f"{self.model.value}, {self.weighting.description}"
 
     @property
@@ -183,6 +191,16 @@ def compare(
     first_error: CalibrationInputError | None = None
     x = as_finite_vector(concentration, "concentration", CalibrationInputError)
     shared_levels = group_levels(x, level_tolerance, level_labels) if x.size else None
+    wants_rf = Model.AVERAGE_RF in model_list or rules.curve is not None
+    model_list = [m for m in model_list if m is not Model.AVERAGE_RF]
+    if wants_rf:
+        try:  # one fit: the mean of the response factors takes no other weighting
+            fits[(Model.AVERAGE_RF, Weighting.INVERSE_X2)] = fit(
+                x, response, Model.AVERAGE_RF, level_tolerance=level_tolerance, levels=shared_levels
+            )
+        except CalibrationInputError as exc:
+            skipped.append(SkippedCandidate(Model.AVERAGE_RF, Weighting.INVERSE_X2, str(exc)))
+            first_error = exc
     for w in weighting_list:
         for m in model_list:
             try:
@@ -208,7 +226,7 @@ def compare(
         Candidate(
             calibration=cal,
             verdict=rules.evaluate(cal),
-            mandel=mandel_by_weighting.get(w) if m is not Model.PROPORTIONAL else None,
+            mandel=mandel_by_weighting.get(w) if m.has_intercept else None,
             aicc=_aicc(cal),
         )
         for (m, w), cal in fits.items()
@@ -221,6 +239,8 @@ def compare(
         ]
     else:
         recommended, reasons = _recommend(candidates, evidence, mandel_by_weighting)
+        if rules.curve is not None:
+            recommended, reasons = _under_curve_rules(candidates, skipped, recommended, reasons, rules)
     reasons = list(reasons) + [R_SQUARED_NOTE]
     return ModelComparison(
         candidates=candidates,
@@ -325,12 +345,12 @@ def _recommend(
 ) -> tuple[Candidate, list[str]]:
     by_weighting: dict[Weighting, dict[Model, Candidate]] = {}
     for c in candidates:
-        if c.model is not Model.PROPORTIONAL:
+        if c.model.has_intercept:
             by_weighting.setdefault(c.weighting, {})[c.model] = c
     reasons = [evidence.summary]
     if not by_weighting:
         only = candidates[0]
-        return only, reasons + ["only the proportional model could be fitted"]
+        return only, reasons + [f"only the {only.model.description} could be fitted"]
     if evidence.heteroscedastic and any(w is not Weighting.NONE for w in by_weighting):
         choices = {
             w: _model_for(models, mandel.get(w), w)[0] for w, models in by_weighting.items() if w is not Weighting.NONE
@@ -365,6 +385,37 @@ def _recommend(
         )
     reasons.extend(_intercept_note(chosen))
     return chosen, reasons
+
+
+def _under_curve_rules(
+    candidates: tuple[Candidate, ...], skipped: list[SkippedCandidate], curve: Candidate, reasons: list[str],
+    rules: AcceptanceProfile,
+) -> tuple[Candidate, list[str]]:
+    """The average response factor when the profile's RF %RSD rule and its standards allow it, else ``curve``."""
+    assert rules.curve is not None
+    limit = rules.curve.max_rf_rsd_percent
+    rf = next((c for c in candidates if c.model is Model.AVERAGE_RF), None)
+    if rf is None:
+        why = next((s.reason for s in skipped if s.model is Model.AVERAGE_RF), "it was not fitted")
+        return curve, [f"the average response factor could not be used: {why}"] + reasons
+    rsd = rf.calibration.rf_rsd_percent
+    assert rsd is not None
+    if rsd <= limit and rf.verdict.passed:
+        return rf, [
+            f"the response factors' %RSD is {rsd:.3g} %, within the profile's {limit:g} %, and every rule of "
+            f"the profile passes, so the average response factor (RF = {rf.calibration.coefficients[1]:.6g}) is "
+            "the simplest adequate calibration",
+            f"had a fitted curve been needed it would have been the {curve.label}",
+        ]
+    if rsd <= limit:
+        failing = "; ".join(r for r in rf.verdict.reasons if r.startswith("FAIL"))
+        head = (f"the response factors' %RSD is {rsd:.3g} %, within the profile's {limit:g} %, but the average "
+                f"response factor fails the profile ({failing}), so a fitted curve is recommended")
+    else:
+        head = (f"the response factors' %RSD is {rsd:.3g} %, above the profile's {limit:g} %, so the average "
+                "response factor may not be used and a fitted curve is recommended")
+    curve_words = [r for r in curve.verdict.reasons if "r = " in r or "r² = " in r]
+    return curve, [head] + reasons + [f"the recommended curve: {w}" for w in curve_words]
 
 
 IMPLIED_POWER = {

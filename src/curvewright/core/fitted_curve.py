@@ -22,6 +22,7 @@ from .lack_of_fit import LackOfFit
 from .levels import Levels
 from .models import Basis, Model
 from .regression_test import RegressionTest
+from .response_factor import ResponseFactors, response_factors
 from .weighting import WeightModel, Weighting
 
 
@@ -127,6 +128,19 @@ class FittedCurve:
         return float(self.concentration.min()), float(self.concentration.max())
 
     @property
+    def response_factors(self) -> ResponseFactors | None:
+        """For the average response factor: each standard's yᵢ/xᵢ, their mean, SD and %RSD (else None)."""
+        if self.model is not Model.AVERAGE_RF:
+            return None
+        return response_factors(self.concentration, self.response)
+
+    @property
+    def rf_rsd_percent(self) -> float | None:
+        """%RSD of the standards' response factors, 100·s_RF/RF̄, for the average response factor (else None)."""
+        factors = self.response_factors
+        return None if factors is None else factors.rsd_percent
+
+    @property
     def vertex(self) -> float | None:
         """Concentration at which a quadratic turns over (None for a straight line)."""
         if self.vertex_z is None:
@@ -163,7 +177,7 @@ class FittedCurve:
         names = ("", "·x", "·x²")
         terms = []
         for power, b in enumerate(self.coefficients):
-            if self.model is Model.PROPORTIONAL and power == 0:
+            if not self.model.has_intercept and power == 0:
                 continue
             text = f"{abs(b):.{digits}g}{names[power]}"
             terms.append((b < 0, text))

@@ -70,7 +70,7 @@ def detection_limits(
         return _iso11843(cal, slope, alpha, beta, replicates)
     if method == "intercept_sd":
         if not cal.model.has_intercept:
-            raise LimitsError("the proportional model has no intercept, so its SD cannot serve as σ.")
+            raise LimitsError(f"the {cal.model.description} has no intercept, so its SD cannot serve as σ.")
         sigma = float(cal.standard_errors[0])
         sigma_words = "standard error of the intercept"
     else:

@@ -5,6 +5,8 @@ Each model is a polynomial in the concentration x with ascending-power coefficie
 * ``linear``        y = b0 + b1·x
 * ``quadratic``     y = b0 + b1·x + b2·x²
 * ``proportional``  y = b1·x           (through the origin; coefficients are reported as (0, b1))
+* ``average-rf``    y = RF̄·x           (RF̄ the mean response factor yᵢ/xᵢ of the standards, which is
+  the line through the origin fitted with 1/x² weights; see :mod:`.response_factor`)
 
 Fitting is done in the variable z = (x − c)/s, with c the weighted mean of the standards'
 concentrations and s the largest |x − c| (c = 0 for the proportional model, so the line stays
@@ -31,19 +33,20 @@ class Model(str, Enum):
     LINEAR = "linear"
     QUADRATIC = "quadratic"
     PROPORTIONAL = "proportional"
+    AVERAGE_RF = "average-rf"
 
     @property
     def n_parameters(self) -> int:
-        return {Model.LINEAR: 2, Model.QUADRATIC: 3, Model.PROPORTIONAL: 1}[self]
+        return {Model.LINEAR: 2, Model.QUADRATIC: 3, Model.PROPORTIONAL: 1, Model.AVERAGE_RF: 1}[self]
 
     @property
     def has_intercept(self) -> bool:
-        return self is not Model.PROPORTIONAL
+        return self not in (Model.PROPORTIONAL, Model.AVERAGE_RF)
 
     @property
     def powers(self) -> tuple[int, ...]:
         """Powers of z in the design matrix."""
-        return {Model.LINEAR: (0, 1), Model.QUADRATIC: (0, 1, 2), Model.PROPORTIONAL: (1,)}[self]
+        return {Model.LINEAR: (0, 1), Model.QUADRATIC: (0, 1, 2), Model.PROPORTIONAL: (1,), Model.AVERAGE_RF: (1,)}[self]
 
     @property
     def description(self) -> str:
@@ -51,6 +54,7 @@ class Model(str, Enum):
             Model.LINEAR: "straight line y = b0 + b1·x",
             Model.QUADRATIC: "quadratic y = b0 + b1·x + b2·x²",
             Model.PROPORTIONAL: "straight line through the origin y = b1·x",
+            Model.AVERAGE_RF: "average response factor y = RF·x (RF the mean of the standards' yᵢ/xᵢ)",
         }[self]
 
     @classmethod

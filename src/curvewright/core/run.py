@@ -130,11 +130,27 @@ class Measurement:
 
 
 @dataclass(frozen=True)
+class Addition:
+    """One replicate response of a portion of a sample spiked for standard additions.
+
+    ``added`` is the concentration of the analyte added to the portion (0 for the unspiked portion), in
+    the analyte's concentration unit as measured (before the sample's dilution factor is applied).
+    """
+
+    analyte: str
+    added: float
+    replicate: int
+    response: Reading
+    internal_standard_response: Reading | None = None
+
+
+@dataclass(frozen=True)
 class Sample:
     """A sample measured in the run: an unknown, a QC sample, a blank or a check standard.
 
     ``nominal`` holds the known concentration of QC samples and check standards per analyte, as
-    (analyte, concentration) pairs, in the concentration unit of that analyte.
+    (analyte, concentration) pairs, in the concentration unit of that analyte. ``additions`` holds the
+    sample's standard-addition series, if it was measured so (:mod:`.addition_series`).
     """
 
     id: str
@@ -143,9 +159,13 @@ class Sample:
     dilution_factor: float = 1.0
     measurements: tuple[Measurement, ...] = ()
     nominal: tuple[tuple[str, float], ...] = ()
+    additions: tuple[Addition, ...] = ()
 
     def measurements_of(self, analyte: str) -> tuple[Measurement, ...]:
         return tuple(m for m in self.measurements if m.analyte == analyte)
+
+    def additions_of(self, analyte: str) -> tuple[Addition, ...]:
+        return tuple(a for a in self.additions if a.analyte == analyte)
 
     def nominal_of(self, analyte: str) -> float | None:
         for name, value in self.nominal:

@@ -24,6 +24,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
+from .addition_series import AdditionSeriesResult, analyse_additions
 from .calibration import Calibration, fit
 from .checks import CheckInput, CheckVerdict, bracketing, judge_checks
 from .errors import CurvewrightError, LimitsError, QuantitationInputError
@@ -125,6 +126,8 @@ class AnalyteResult:
     method_reasons: tuple[str, ...] = ()
     """What the run's validated method requires of this analyte and is not met (a level without a
     standard, a model departing from the method's), or what it notes; "FAIL" marks a failure."""
+    additions: tuple[AdditionSeriesResult, ...] = ()
+    """The samples measured by standard additions (:mod:`.addition_series`), whatever the calibration."""
 
     @property
     def accepted(self) -> bool:
@@ -216,7 +219,8 @@ def analyse_run(
     return RunResult(
         run=run,
         profile=profile,
-        analytes=tuple(_analyse_analyte(run, a, profile, model, weighting) for a in chosen),
+        analytes=tuple(replace(_analyse_analyte(run, a, profile, model, weighting), additions=analyse_additions(run, a, response_value))
+                       for a in chosen),
     )
 
 
@@ -241,6 +245,7 @@ def _analyse_analyte(
     run: Run, analyte: Analyte, profile: AcceptanceProfile, model: str | None, weighting: str | None
 ) -> AnalyteResult:
     settings = run.settings
+    use_model = model or analyte.model
     fitted, excluded, unusable, x, y, labels = [], [], [], [], [], []
     for s in analyte.standards:
         if not s.included:
@@ -253,6 +258,10 @@ def _analyse_analyte(
         if s.concentration < 0:
             unusable.append(UnusableStandard(s.id, f"concentration {s.concentration:g} is below zero"))
             continue
+        if s.concentration == 0 and use_model == "average-rf":
+            unusable.append(UnusableStandard(s.id, "a response factor y/x needs a concentration above zero, so a "
+                                                   "blank is not part of an average response factor calibration"))
+            continue
         value, reason = response_value(s.response, s.internal_standard_response, analyte.uses_internal_standard)
         if value is None:
             unusable.append(UnusableStandard(s.id, reason))
@@ -261,7 +270,6 @@ def _analyse_analyte(
         x.append(s.concentration)
         y.append(value)
         labels.append(s.level)
-    use_model = model or analyte.model
     use_weighting = weighting or analyte.weighting
     overridden = (model is not None and model != analyte.model) or (
         weighting is not None and weighting != analyte.weighting

@@ -302,7 +302,30 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
                             f"interval: {interval_words(result)}; reported values rounded to "
                             f"{rule.description}.{range_words} {INTERVAL_SCOPE_NOTE}", "small"))
     blocks.append(_samples_printed(result, a))
+    blocks += _additions_blocks(result, a)
     return blocks
+
+
+def _additions_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
+    """The samples measured by standard additions: the line, the extrapolated concentration and its interval."""
+    if not a.additions:
+        return []
+    from ..core.standard_additions import MATRIX_WARNING
+    from .model_outputs import additions_table
+
+    level = result.run.settings.confidence_level
+    table = additions_table(a, level)
+    names = ("Sample id", "Additions", "Intercept a", "Slope b", "Concentration a/b", "Standard error",
+             "Dilution factor", "Reported concentration", f"Lower limit ({level:.0%})", f"Upper limit ({level:.0%})")
+    notes = [f"{s.sample_id}: {s.note}" for s in a.additions if s.note]
+    notes += [f"{s.sample_id}: {w}" for s in a.additions if s.result is not None for w in s.result.warnings[1:]]
+    return [
+        Paragraph(f"Standard additions – {a.analyte.name}: the concentration is the magnitude of the x-intercept of the "
+                  "line through the spiked portions, x = a/b, with standard error (s/b)·√(1/n + ȳ²/(b²·Σ(xᵢ − x̄)²)) and "
+                  f"a t interval; reported after the dilution factor. Warning: {MATRIX_WARNING}.", "small"),
+        printed(table.select(names), result.run.settings.rounding),
+        *[Paragraph("• " + n, "small") for n in notes],
+    ]
 
 
 def exclusion_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:

@@ -217,11 +217,14 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value", display="plain"), Column("Standard error", display="sig:3")), tuple(rows))
     rows.append(("Equation", cal.equation(12), None))
     for power, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors)):
-        fixed = cal.model is Model.PROPORTIONAL and power == 0
+        fixed = not cal.model.has_intercept and power == 0
         rows.append((f"b{power} (coefficient of x^{power})", 0.0 if fixed else float(b), None if fixed else float(se)))
     for i in range(cal.covariance.shape[0]):
         for j in range(i + 1, cal.covariance.shape[0]):
             rows.append((f"covariance(b{i}, b{j})", float(cal.covariance[i, j]), None))
+    from .model_outputs import response_factor_rows
+
+    rows += response_factor_rows(cal, an.uses_internal_standard)
     lof = cal.lack_of_fit
     rows += [
         ("Standards in the fit (n)", cal.n_standards, None), ("Concentration levels", cal.levels.n_levels, None),
@@ -486,6 +489,10 @@ def all_tables(result: RunResult) -> tuple[Table, ...]:
         tables += [calibration_table(a, result), standards_table(a, rule)]
         if a.checks is not None:
             tables.append(checks_table(a, rule))
+        if a.additions:
+            from .model_outputs import additions_table
+
+            tables.append(additions_table(a, result.run.settings.confidence_level))
     if result.run.signatures:
         tables.append(signatures_table(result))
     tables.append(audit_table(result))
@@ -534,7 +541,7 @@ def _chooser(result: RunResult, analyte: str) -> str:
 
 
 def _mandel(cal: Calibration) -> tuple[Any, Any]:
-    if cal.model is Model.PROPORTIONAL:
+    if not cal.model.has_intercept:
         return "not applicable to a line through the origin", None
     try:
         lin = cal if cal.model is Model.LINEAR else fit(cal.concentration, cal.response, "linear", cal.weighting.value)

@@ -38,6 +38,7 @@ from ..core.models import Model
 from ..core.rounding import RoundingRule
 from ..core.run import (
     SIGNATURE_ROLES,
+    Addition,
     Analyte,
     AuditEntry,
     Measurement,
@@ -163,6 +164,17 @@ def run_to_mapping(run: Run) -> dict[str, Any]:
                     }
                     for m in sm.measurements
                 ],
+                # only when measured, so that documents without standard additions keep their content digest
+                **({"additions": [
+                    {
+                        "analyte": ad.analyte,
+                        "added": ad.added,
+                        "replicate": ad.replicate,
+                        "response": _reading_out(ad.response),
+                        "internal_standard_response": _reading_out(ad.internal_standard_response),
+                    }
+                    for ad in sm.additions
+                ]} if sm.additions else {}),
             }
             for sm in run.samples
         ],
@@ -809,6 +821,26 @@ class _Reader:
             )
         keys = [f"{x.analyte}/{x.replicate}" for x in measurements]
         self.unique(keys, f"{path}.measurements", "analyte/replicate")
+        additions = []
+        for i, ad in enumerate(self.get(m, "additions", path, "list", [], required=False)):
+            ap = f"{path}.additions[{i}]"
+            if not isinstance(ad, dict):
+                self.fail(ap, "expected an addition object")
+                continue
+            analyte = self.get(ad, "analyte", ap, "text", "")
+            if analyte not in analytes:
+                self.fail(f"{ap}.analyte", f"{analyte!r} is not an analyte of this run")
+            added = self.get(ad, "added", ap, "measure", 0.0)
+            if added < 0:
+                self.fail(f"{ap}.added", f"{added!r}: an added concentration cannot be below zero")
+            additions.append(Addition(
+                analyte=analyte,
+                added=added,
+                replicate=self.get(ad, "replicate", ap, "int", 1),
+                response=self.reading(ad.get("response"), f"{ap}.response") or Reading(None, ""),
+                internal_standard_response=self.reading(ad.get("internal_standard_response"), f"{ap}.internal_standard_response", required=False),
+            ))
+        self.unique([f"{x.analyte}/{x.added!r}/{x.replicate}" for x in additions], f"{path}.additions", "analyte/added/replicate")
         return Sample(
             id=self.get(m, "id", path, "text", ""),
             kind=kind,
@@ -816,6 +848,7 @@ class _Reader:
             dilution_factor=dilution if dilution > 0 else 1.0,
             measurements=tuple(measurements),
             nominal=tuple(nominal),
+            additions=tuple(additions),
         )
 
     def entry(self, m: Any, path: str) -> AuditEntry | None:

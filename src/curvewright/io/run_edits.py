@@ -177,7 +177,7 @@ VALUE_CHANGE_REASONS = (
 )
 """Reasons offered when a raw value that was already entered is changed (the analyst may type another)."""
 STANDARD_RAW_FIELDS = ("concentration", "response", "internal_standard_response")
-SAMPLE_RAW_FIELDS = ("dilution_factor", "nominal", "responses")
+SAMPLE_RAW_FIELDS = ("dilution_factor", "nominal", "responses", "additions")
 
 
 class ReasonRequired(RunError):
@@ -200,8 +200,8 @@ def raw_changes(changes: list[dict[str, Any]], raw_fields: tuple[str, ...]) -> l
     for c in changes:
         if c["field"] not in raw_fields:
             continue
-        if c["field"] == "responses":
-            replaced = {k: v for k, v in c["old"].items() if entered(v) and c["new"].get(k) != v}
+        if c["field"] in ("responses", "additions"):
+            replaced = {k: v for k, v in (c["old"] or {}).items() if entered(v) and (c["new"] or {}).get(k) != v}
             if replaced:
                 out.append(c)
         elif c["field"] == "dilution_factor" or entered(c["old"]):
@@ -336,6 +336,9 @@ def _sample_fields(s: Sample) -> dict[str, Any]:
         "kind": s.kind.value, "run_order": s.run_order, "dilution_factor": s.dilution_factor,
         "nominal": dict(s.nominal),
         "responses": {f"{m.analyte}/{m.replicate}": m.response.text for m in s.measurements},
+        # standard additions, only where measured (so the audit of other samples reads as before)
+        **({"additions": {f"{a.analyte}/{a.added!r}/{a.replicate}": a.response.text for a in s.additions}}
+           if s.additions else {}),
     }
 
 
@@ -355,7 +358,7 @@ def update_samples(
         raise RunError(f"sample id {duplicate!r} is used twice; each sample needs its own id.")
     known = {a.name for a in run.analytes}
     for s in samples:
-        for m in s.measurements:
+        for m in (*s.measurements, *s.additions):
             if m.analyte not in known:
                 raise RunError(f"sample {s.id!r}: analyte {m.analyte!r} is not in this run.")
         if not s.dilution_factor > 0:
@@ -370,9 +373,10 @@ def update_samples(
     for i, s in new.items():
         if i in old:
             before, after = _sample_fields(old[i]), _sample_fields(s)
-            for field_name in after:
-                if after[field_name] != before[field_name]:
-                    changes.append({"sample": i, "field": field_name, "old": before[field_name], "new": after[field_name]})
+            for field_name in dict.fromkeys([*after, *before]):
+                if after.get(field_name) != before.get(field_name):
+                    changes.append({"sample": i, "field": field_name, "old": before.get(field_name),
+                                    "new": after.get(field_name)})
     if not (changes or added or removed) and tuple(old) == tuple(new):
         return run
     _require_reason(raw_changes(changes, SAMPLE_RAW_FIELDS), reason, "samples")
