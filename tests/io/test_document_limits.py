@@ -76,6 +76,8 @@ REFUSED = [
     (splice(with_value("samples.0.id"), "@@", '"U\\udfff1"'), "samples[0].id: the text holds U+DFFF"),
     (splice(with_value("audit.0.details"), "@@", '{"\\ud800": 1}'), "audit[0].details.\\ud800: the name holds U+D800"),
     (splice(with_value("analytes.0.standards.0.concentration"), "@@", "1e999"), "analytes[0].standards[0].concentration: expected a finite number"),
+    # a QC sample's recovery is found/nominal: a nominal of zero cannot be judged, so check refuses it as quantify would
+    (splice(with_value("samples.1.nominal.cobalt"), "@@", "0"), "samples[1].nominal.cobalt: a QC sample's nominal concentration must be above zero"),
 ]
 
 

@@ -801,6 +801,9 @@ class _Reader:
             if not _measure(value):
                 self.fail(np_, f"expected {_MEASURE_WORDS}, found {json.dumps(value)[:40]}")
                 continue
+            if kind is SampleKind.QC and float(value) <= 0:  # a recovery against it is not defined
+                self.fail(np_, f"a QC sample's nominal concentration must be above zero, found {json.dumps(value)}")
+                continue
             nominal.append((name, float(value)))
         measurements = []
         for i, mm in enumerate(self.get(m, "measurements", path, "list", [])):
