@@ -259,31 +259,34 @@ def _quantify_block(
             lower, upper, past_vertex = _band_interval(
                 cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale, band
             )
-    solved = ~no_solution
-    bad = solved & (~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | np.isnan(lower) | np.isnan(upper))
+    unsolved = bool(no_solution.any())
+    bad = ~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | np.isnan(lower) | np.isnan(upper)
     if interval == "symmetric":
-        unbounded = ~np.isfinite(se) & solved
+        unbounded = ~np.isfinite(se)
     else:
-        unbounded = (np.isinf(lower) | np.isinf(upper)) & solved
-    turning = at_turning_point | (past_vertex & solved)
+        unbounded = np.isinf(lower) | np.isinf(upper)
+    turning = at_turning_point | past_vertex
 
     low, high = cal.calibrated_range
     # Round-off must not push a response read at exactly an end standard outside the range.
     slack = RANGE_SLACK * (high - low)
     low, high = low - slack, high + slack
-    bits = np.zeros(y0.size, dtype=np.int64)
-    bits |= np.where(solved & (x_hat < low), int(QuantFlag.BELOW_RANGE), 0)
-    bits |= np.where(solved & (x_hat > high), int(QuantFlag.ABOVE_RANGE), 0)
-    bits |= np.where(solved & (x_hat >= low) & (x_hat <= high), int(QuantFlag.IN_RANGE), 0)
+    bits = np.where(
+        x_hat < low, int(QuantFlag.BELOW_RANGE), np.where(x_hat > high, int(QuantFlag.ABOVE_RANGE), int(QuantFlag.IN_RANGE))
+    ).astype(np.int64, copy=False)
     if limits is not None:
         if limits.loq is not None:
-            bits |= np.where(solved & (x_hat < limits.loq), int(QuantFlag.BELOW_LOQ), 0)
-        bits |= np.where(solved & (x_hat < limits.lod), int(QuantFlag.BELOW_LOD), 0)
-    bits |= np.where(no_solution, int(QuantFlag.NO_SOLUTION), 0)
-    bits |= np.where(ambiguous, int(QuantFlag.AMBIGUOUS_ROOT), 0)
-    bits |= np.where(unbounded, int(QuantFlag.UNBOUNDED_INTERVAL), 0)
-    bits |= np.where(turning, int(QuantFlag.TURNING_POINT), 0)
-
+            np.bitwise_or(bits, int(QuantFlag.BELOW_LOQ), out=bits, where=x_hat < limits.loq)
+        np.bitwise_or(bits, int(QuantFlag.BELOW_LOD), out=bits, where=x_hat < limits.lod)
+    for flag, mask in ((QuantFlag.AMBIGUOUS_ROOT, ambiguous), (QuantFlag.UNBOUNDED_INTERVAL, unbounded),
+                       (QuantFlag.TURNING_POINT, turning)):
+        if mask.any():
+            np.bitwise_or(bits, int(flag), out=bits, where=mask)
+    if not unsolved:
+        return x_hat, se, lower, upper, bits, bad
+    # an unknown with no solution carries that flag alone, and NaN for every number
+    bits[no_solution] = int(QuantFlag.NO_SOLUTION)
+    bad &= ~no_solution
     nan = np.where(no_solution, np.nan, 0.0)
     return x_hat + nan, se + nan, lower + nan, upper + nan, bits, bad
 
@@ -300,6 +303,13 @@ def _refuse_unrepresentable(y0: FloatArray, bad: np.ndarray) -> None:
 
 
 def _replicate_counts(replicates: object, k: int) -> np.ndarray:
+    if np.ndim(replicates) == 0 and k > 0:
+        # one count for every unknown: checked once, as the first unknown's
+        single = np.asarray(replicates)
+        if single.dtype.kind in "iuf":
+            value = float(single)
+            if np.isfinite(value) and value >= 1 and value == round(value):
+                return np.full(k, int(value), dtype=np.int64)
     counts = np.broadcast_to(np.asarray(replicates), (k,)) if np.ndim(replicates) == 0 else np.asarray(replicates)
     if counts.shape != (k,):
         raise QuantitationInputError(
@@ -369,12 +379,13 @@ def solve_z(
     return np.where(no_solution, np.nan, root), no_solution, ambiguous
 
 
-def _slope_z(cal: "FittedCurve", z: FloatArray) -> FloatArray:
+def _slope_z(cal: "FittedCurve", z: FloatArray) -> FloatArray | np.float64:
+    """df/dz at z (one number for a straight line)."""
     a = cal.z_coefficients
     if cal.model is Model.PROPORTIONAL:
-        return np.full_like(z, a[0])
+        return a[0]
     if cal.model is Model.LINEAR:
-        return np.full_like(z, a[1])
+        return a[1]
     return a[1] + 2.0 * a[2] * z
 
 
@@ -386,6 +397,8 @@ def _curve_variance(cal: "FittedCurve", z: FloatArray) -> FloatArray:
 
 def _new_response_variance(cal: "FittedCurve", x: FloatArray, y0: FloatArray, m: np.ndarray) -> FloatArray:
     """Variance σ²/(m·w) of the mean of m new responses at concentration x with mean y0."""
+    if cal.weighting is Weighting.NONE:
+        return cal.residual_sd**2 / m
     weight = cal.weight_model.weight_at(x, y0)
     return cal.residual_sd**2 / (m * weight)
 
