@@ -106,13 +106,13 @@ class BandPolynomial:
         c0 = _horner(z0, c)
         c1 = _horner(z0, np.array([c[1], 2.0 * c[2], 3.0 * c[3], 4.0 * c[4]]))
         c2 = _horner(z0, np.array([c[2], 3.0 * c[3], 6.0 * c[4]]))
-        c3 = c[3] + 4.0 * c[4] * z0
         t2 = self.t2
+        straight = f[2] == 0.0 and c[3] == 0.0 and c[4] == 0.0  # a straight line: g is quadratic in h
         base = [
             r * r - t2 * c0,
             -2.0 * r * s1 - t2 * c1,
             s1 * s1 - 2.0 * r * f[2] - t2 * c2,
-            2.0 * s1 * f[2] - t2 * c3,
+            0.0 if straight else 2.0 * s1 * f[2] - t2 * (c[3] + 4.0 * c[4] * z0),
             float(f[2] * f[2] - t2 * c[4]),
         ]
         tv = t2 * v
@@ -240,8 +240,9 @@ def polynomial_band_edges(
         else:
             towards = np.zeros(y0.size, dtype=bool)
             reach = np.full(y0.size, full_reach)
-        h_end, certain = _convex_end(shifted, direction, reach, h_vertex, guess, start)
-        beyond_vertex = np.zeros(y0.size, dtype=bool)
+        h_end, certain = _convex_end(shifted, direction, reach, guess, start)
+        # an end past the vertex leaves the band holding ȳ₀ all the way to the vertex
+        beyond_vertex = np.zeros(y0.size, dtype=bool) if h_vertex is None else h_end * direction > h_vertex * direction
         rest = np.flatnonzero(~certain)
         if rest.size:
             part = shifted.take(rest)
@@ -263,7 +264,6 @@ def _convex_end(
     shifted: ShiftedBand,
     direction: float,
     reach: FloatArray,
-    h_vertex: FloatArray | None,
     guess: FloatArray,
     start: FloatArray,
 ) -> tuple[FloatArray, np.ndarray]:
@@ -273,8 +273,8 @@ def _convex_end(
     h³ and h⁴ terms). The root h* found is certainly the first exit from the band when g(0) < 0 and
     g is convex on [0, h*]: a convex function that is negative at 0 and zero at h* stays below
     the chord between them, so it is ≤ 0 on [0, h*] and rises through zero at h*. It must also lie
-    within reach, short of the vertex and in the same piece as ẑ. The others are searched in full
-    (:func:`_side`).
+    within reach and in the same piece as ẑ; it may lie past the vertex of a quadratic, since g ≤ 0
+    all the way to it. The others are searched in full (:func:`_side`).
     """
     c = shifted.at_zero()
     c0, c1, c2 = c[0], c[1], c[2]
@@ -283,26 +283,28 @@ def _convex_end(
         q = -0.5 * (c1 + np.copysign(root, c1))
         r1, r2 = q / c2, c0 / q
         h = np.where(r1 * direction > 0, r1, r2)
-        h = np.where(np.isfinite(h) & (h * direction > 0), h, direction * guess)
-        step = h
-        for _ in range(_CONVEX_NEWTON_STEPS):
-            slope = ((4.0 * c[4] * h + 3.0 * c[3]) * h + 2.0 * c2) * h + c1
-            step = _quartic(c, h) / slope
-            h = h - step
-        # g″ = 2c2 + 6c3·h + 12c4·h² must not fall below zero on [0, h*]
-        curvature = lambda v: (12.0 * c[4] * v + 6.0 * c[3]) * v + 2.0 * c2  # noqa: E731
-        convex = (curvature(0.0) >= 0) & (curvature(h) >= 0)
-        if c[4] > 0:
-            lowest = -c[3] / (4.0 * c[4])
-            between = (lowest - 0.0) * (lowest - h) < 0
-            convex &= ~between | (curvature(lowest) >= 0)
+        quadratic = np.ndim(c[3]) == 0 and c[3] == 0.0 and c[4] == 0.0
+        if quadratic:
+            # g is c0 + c1·h + c2·h² (a straight line): that root is the end, and g″ = 2c2
+            convex = c2 >= 0
+            converged = np.isfinite(h)
+        else:
+            h = np.where(np.isfinite(h) & (h * direction > 0), h, direction * guess)
+            step = h
+            for _ in range(_CONVEX_NEWTON_STEPS):
+                slope = ((4.0 * c[4] * h + 3.0 * c[3]) * h + 2.0 * c2) * h + c1
+                step = _quartic(c, h) / slope
+                h = h - step
+            # g″ = 2c2 + 6c3·h + 12c4·h² must not fall below zero on [0, h*]
+            curvature = lambda v: (12.0 * c[4] * v + 6.0 * c[3]) * v + 2.0 * c2  # noqa: E731
+            convex = (curvature(0.0) >= 0) & (curvature(h) >= 0)
+            if c[4] > 0:
+                lowest = -c[3] / (4.0 * c[4])
+                between = (lowest - 0.0) * (lowest - h) < 0
+                convex &= ~between | (curvature(lowest) >= 0)
+            converged = np.abs(step) <= _CONVERGED * (np.abs(start) + np.abs(h))
         u = h * direction
-        certain = (
-            np.isfinite(h) & (u > 0) & (u <= reach) & (c0 < 0) & convex
-            & (np.abs(step) <= _CONVERGED * (np.abs(start) + u))
-        )
-        if h_vertex is not None:
-            certain &= (h_vertex * direction <= 0) | (u < h_vertex * direction)
+        certain = np.isfinite(h) & (u > 0) & (u <= reach) & (c0 < 0) & convex & converged
         if shifted.h_break is not None:
             certain &= (shifted.h_break > 0) == (h < shifted.h_break)
     return h, certain
