@@ -17,7 +17,7 @@ is as accurate as g evaluated directly. The h⁴ coefficient is the same for eve
 
 The interval is the connected set of z around ẑ where g ≤ 0, searched as far as the numeric
 inversion searches (``SEARCH_HALF_RANGES`` spans of the standards beyond ẑ, or beyond the vertex of a
-quadratic on the side that faces it). For most unknowns each end is had directly: Newton's method
+quadratic on the side that faces it). For most unknowns each end is had directly: Halley's method
 from the root of g's quadratic part, accepted when g(0) < 0 and g is convex between ẑ and the root
 (then g stays below the chord from ẑ to the root, so the root is where the band first lets go).
 For the others, the points where g may turn (the real roots of the cubic g′ in each piece), the
@@ -54,11 +54,10 @@ _CUBIC_POLISH_STEPS = 2
 _FULL_WIDTH_STEPS = 4
 """Newton steps taken on every unknown of a block before the few still moving are worked alone."""
 _EPS = float(np.finfo(float).eps)
-_CONVEX_NEWTON_STEPS = 4
-_CONVERGED = 1e-7
-"""Relative size of the last of the Newton steps above which the direct end is not trusted: Newton's
-error after a step is of the order of the step squared, so the next would be far below a double's
-resolution."""
+_CONVEX_STEPS = 4
+_CONVERGED = 1e-6
+"""Relative size of the last of Halley's steps above which the direct end is not trusted: the error
+after a step is of the order of the step cubed, far below a double's resolution."""
 
 
 @dataclass(frozen=True)
@@ -269,7 +268,7 @@ def _convex_end(
 ) -> tuple[FloatArray, np.ndarray]:
     """The end on one side where it can be had directly, and where that is certain.
 
-    Newton's method on the piece that holds ẑ, from the root of its quadratic part (g without its
+    Halley's method on the piece that holds ẑ, from the root of its quadratic part (g without its
     h³ and h⁴ terms). The root h* found is certainly the first exit from the band when g(0) < 0 and
     g is convex on [0, h*]: a convex function that is negative at 0 and zero at h* stays below
     the chord between them, so it is ≤ 0 on [0, h*] and rises through zero at h*. It must also lie
@@ -290,11 +289,19 @@ def _convex_end(
             converged = np.isfinite(h)
         else:
             h = np.where(np.isfinite(h) & (h * direction > 0), h, direction * guess)
-            step = h
-            for _ in range(_CONVEX_NEWTON_STEPS):
+            tolerance = _CONVERGED * np.abs(start)
+            converged = np.zeros(h.size, dtype=bool)
+            for _ in range(_CONVEX_STEPS):
+                value = _quartic(c, h)
                 slope = ((4.0 * c[4] * h + 3.0 * c[3]) * h + 2.0 * c2) * h + c1
-                step = _quartic(c, h) / slope
-                h = h - step
+                bend = (12.0 * c[4] * h + 6.0 * c[3]) * h + 2.0 * c2
+                # Halley's step: third-order convergence from the quadratic part's root. Each unknown
+                # stops after its own converged step, so its end never depends on the others.
+                step = 2.0 * value * slope / (2.0 * slope * slope - value * bend)
+                h = np.where(converged, h, h - step)
+                converged |= np.abs(step) <= tolerance + _CONVERGED * np.abs(h)
+                if converged.all():
+                    break
             # g″ = 2c2 + 6c3·h + 12c4·h² must not fall below zero on [0, h*]
             curvature = lambda v: (12.0 * c[4] * v + 6.0 * c[3]) * v + 2.0 * c2  # noqa: E731
             convex = (curvature(0.0) >= 0) & (curvature(h) >= 0)
@@ -302,7 +309,6 @@ def _convex_end(
                 lowest = -c[3] / (4.0 * c[4])
                 between = (lowest - 0.0) * (lowest - h) < 0
                 convex &= ~between | (curvature(lowest) >= 0)
-            converged = np.abs(step) <= _CONVERGED * (np.abs(start) + np.abs(h))
         u = h * direction
         certain = np.isfinite(h) & (u > 0) & (u <= reach) & (c0 < 0) & convex & converged
         if shifted.h_break is not None:
