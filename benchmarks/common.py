@@ -6,6 +6,7 @@ machine, so that machine speed and load largely cancel.
 
 from __future__ import annotations
 
+import gc
 import statistics
 import sys
 import time
@@ -41,6 +42,44 @@ def measure(label: str, fn: Callable[[], object], repeats: int = 5, warmup: int 
         fn()
         seconds.append(time.perf_counter() - start)
     return Timing(label, seconds)
+
+
+def interleaved(fns: dict[str, Callable[[], object]], rounds: int = 5, warmup: int = 1) -> dict[str, Timing]:
+    """Time several functions in interleaved rounds (A, B, C, A, B, C, ...) after ``warmup`` runs of
+    each, so that a change of machine load during the run falls on every side alike."""
+    for _ in range(warmup):
+        for fn in fns.values():
+            fn()
+    seconds: dict[str, list[float]] = {label: [] for label in fns}
+    for _ in range(rounds):
+        for label, fn in fns.items():
+            # one side's garbage is collected before the other is timed, and none while it runs
+            gc.collect()
+            gc.disable()
+            try:
+                start = time.perf_counter()
+                fn()
+                seconds[label].append(time.perf_counter() - start)
+            finally:
+                gc.enable()
+    return {label: Timing(label, values) for label, values in seconds.items()}
+
+
+def peak_bytes(fn: Callable[[], object]) -> int:
+    """Peak memory traced by tracemalloc while ``fn`` runs (numpy's buffers included), less what
+    was already allocated when it started."""
+    import tracemalloc
+
+    gc.collect()
+    tracemalloc.start()
+    try:
+        base = tracemalloc.get_traced_memory()[0]
+        result = fn()
+        peak = tracemalloc.get_traced_memory()[1]
+    finally:
+        tracemalloc.stop()
+    del result
+    return peak - base
 
 
 def print_table(title: str, rows: list[tuple[str, ...]], header: tuple[str, ...]) -> None:

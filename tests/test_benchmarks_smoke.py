@@ -1,7 +1,7 @@
 """The benchmarks run, in a short smoke mode, and their results agree with the engine.
 
 No timing is asserted here: speed targets are measured by the benchmarks themselves (benchmarks/).
-The batch and model-screen benchmarks assert their own agreement with the reference library.
+The batch, model-screen and many-runs benchmarks assert their own agreement with their peers.
 """
 
 from __future__ import annotations
@@ -29,4 +29,4 @@ def test_benchmark_runs_in_smoke_mode(script: Path) -> None:
 def test_there_is_a_benchmark_for_each_target() -> None:
     assert {p.stem for p in BENCHMARKS} == {"bench_batch_quantitation", "bench_model_screen", "bench_app_start",
                                           "bench_edit_redraw", "bench_xlsx_export", "bench_safe_files",
-                                          "bench_import_scaling"}
+                                          "bench_import_scaling", "bench_many_runs", "bench_scaling"}

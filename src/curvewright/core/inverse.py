@@ -18,12 +18,17 @@ Calibration interval (``interval="band"``, the default)
     The set of concentrations whose prediction band for the mean of m new responses contains ȳ₀:
     {x : (ȳ₀ − f̂(x))² ≤ t²·(σ²/(m·w(x)) + var f̂(x))}, t = t(1 − α/2; n − p). For a straight
     line whose weights do not depend on x this is Fieller's interval, solved in closed form
-    (Draper & Smith, *Applied Regression Analysis*, 3rd ed., §3.2); otherwise the band is inverted
-    numerically, bracketing outward from x̂ and refining to full precision, each unknown on its own
-    (its ends never depend on the other unknowns of the call). For a quadratic the search stops at
-    the vertex; when the band still holds ȳ₀ there it goes on past it, so the interval is the
-    connected set of concentrations whose band holds ȳ₀ (flagged ``TURNING_POINT``). When the band
-    does not close on one side the interval is unbounded there (±inf, flagged).
+    (Draper & Smith, *Applied Regression Analysis*, 3rd ed., §3.2). Wherever else the band is a
+    polynomial in x (a quadratic, unweighted or weighted 1/x, 1/x², 1/y or 1/y²; a straight line
+    weighted 1/x or 1/x²) its ends are the roots of a polynomial of degree ≤ 4, solved for all
+    unknowns at once (:mod:`.band_polynomial`). Otherwise (1/s², variance functions estimated from
+    the standards) the band is inverted numerically, bracketing outward from x̂ and refining to full
+    precision. Either way each unknown is solved on its own (its ends never depend on the other
+    unknowns of the call), and the interval is the connected set of concentrations around x̂ whose
+    band holds ȳ₀. For a quadratic the search stops at the vertex; when the band still holds ȳ₀
+    there it goes on past it (flagged ``TURNING_POINT``). Ends are searched up to
+    ``SEARCH_HALF_RANGES`` spans of the standards beyond x̂ (or the vertex); when the band does not
+    close within that on one side the interval is unbounded there (±inf, flagged).
 
 Symmetric interval (``interval="symmetric"``)
     x̂ ± t·s_x̂.
@@ -40,6 +45,7 @@ import numpy as np
 from numpy.polynomial.polynomial import polyval
 
 from ._arrays import FloatArray, as_confidence_level, as_finite_vector, frozen
+from .band_polynomial import BandPolynomial, band_polynomial, polynomial_band_edges
 from .distributions import t_quantile
 from .errors import LimitsError, QuantitationInputError
 from .limits import DetectionLimits, detection_limits
@@ -64,6 +70,9 @@ SEARCH_HALF_RANGES = 200.0
 (measured in the fitting variable z)."""
 RANGE_SLACK = 1e-9
 """Fraction of the calibrated span allowed for round-off when testing whether x̂ is in range."""
+CHUNK = 1 << 15
+"""Unknowns worked at once: enough to amortise numpy's per-call cost, few enough to keep the working
+arrays small beside the results."""
 _MAX_REFINE_STEPS = 100
 _MAX_EXPANSIONS = 40
 
@@ -181,6 +190,54 @@ def quantify(
     probability = 0.5 + level / 2.0
     t = t_quantile(probability, cal.df_residual)
 
+    limits_note = None
+    if limits is None:
+        try:
+            limits = detection_limits(cal)
+        except LimitsError as exc:
+            limits_note = f"LOD/LOQ flags not set: {exc}"
+
+    k = y0.size
+    estimate, standard_error, lower, upper = (np.empty(k) for _ in range(4))
+    bits = np.zeros(k, dtype=np.int64)
+    bad = np.zeros(k, dtype=bool)
+    band = None
+    if interval == "band" and (cal.model is Model.QUADRATIC or cal.weighting.uses_concentration):
+        band = band_polynomial(cal, t)
+    # Unknowns are worked in blocks so that the working arrays stay a fixed size however many there
+    # are; every unknown's result depends on its own response and replicate count only.
+    for first in range(0, k, CHUNK):
+        block = slice(first, first + CHUNK)
+        (estimate[block], standard_error[block], lower[block], upper[block], bits[block],
+         bad[block]) = _quantify_block(cal, y0[block], m[block], probability, t, interval, limits, band)
+    _refuse_unrepresentable(y0, bad)
+    return Quantitation(
+        mean_response=frozen(y0),
+        replicates=frozen(m),
+        level=float(level),
+        interval=interval,
+        df=cal.df_residual,
+        estimate=frozen(estimate),
+        standard_error=frozen(standard_error),
+        lower=frozen(lower),
+        upper=frozen(upper),
+        flag_bits=frozen(bits),
+        limits=limits,
+        limits_note=limits_note,
+    )
+
+
+def _quantify_block(
+    cal: "FittedCurve",
+    y0: FloatArray,
+    m: np.ndarray,
+    probability: float,
+    t: float,
+    interval: str,
+    limits: DetectionLimits | None,
+    band: BandPolynomial | None,
+) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray, np.ndarray, np.ndarray]:
+    """Estimate, standard error, interval ends, flag bits and the unrepresentable mask of a block of unknowns."""
     z_range = tuple(cal.basis.z(np.array(cal.calibrated_range)))
     # Overflow is detected below, per unknown, and refused by name rather than left as inf or NaN.
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
@@ -199,56 +256,39 @@ def quantify(
             t_hat = cal.band_t(probability, x_hat, new_var, curve_var)
             lower, upper = x_hat - t_hat * se, x_hat + t_hat * se
         else:
-            lower, upper, past_vertex = _band_interval(cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale)
-    solved = ~no_solution
-    _refuse_unrepresentable(
-        y0, solved & (~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | np.isnan(lower) | np.isnan(upper))
-    )
+            lower, upper, past_vertex = _band_interval(
+                cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale, band
+            )
+    unsolved = bool(no_solution.any())
+    bad = ~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | np.isnan(lower) | np.isnan(upper)
     if interval == "symmetric":
-        unbounded = ~np.isfinite(se) & solved
+        unbounded = ~np.isfinite(se)
     else:
-        unbounded = (np.isinf(lower) | np.isinf(upper)) & solved
-    turning = at_turning_point | (past_vertex & solved)
-
-    limits_note = None
-    if limits is None:
-        try:
-            limits = detection_limits(cal)
-        except LimitsError as exc:
-            limits_note = f"LOD/LOQ flags not set: {exc}"
+        unbounded = np.isinf(lower) | np.isinf(upper)
+    turning = at_turning_point | past_vertex
 
     low, high = cal.calibrated_range
     # Round-off must not push a response read at exactly an end standard outside the range.
     slack = RANGE_SLACK * (high - low)
     low, high = low - slack, high + slack
-    bits = np.zeros(y0.size, dtype=np.int64)
-    bits |= np.where(solved & (x_hat < low), int(QuantFlag.BELOW_RANGE), 0)
-    bits |= np.where(solved & (x_hat > high), int(QuantFlag.ABOVE_RANGE), 0)
-    bits |= np.where(solved & (x_hat >= low) & (x_hat <= high), int(QuantFlag.IN_RANGE), 0)
+    bits = np.where(
+        x_hat < low, int(QuantFlag.BELOW_RANGE), np.where(x_hat > high, int(QuantFlag.ABOVE_RANGE), int(QuantFlag.IN_RANGE))
+    ).astype(np.int64, copy=False)
     if limits is not None:
         if limits.loq is not None:
-            bits |= np.where(solved & (x_hat < limits.loq), int(QuantFlag.BELOW_LOQ), 0)
-        bits |= np.where(solved & (x_hat < limits.lod), int(QuantFlag.BELOW_LOD), 0)
-    bits |= np.where(no_solution, int(QuantFlag.NO_SOLUTION), 0)
-    bits |= np.where(ambiguous, int(QuantFlag.AMBIGUOUS_ROOT), 0)
-    bits |= np.where(unbounded, int(QuantFlag.UNBOUNDED_INTERVAL), 0)
-    bits |= np.where(turning, int(QuantFlag.TURNING_POINT), 0)
-
+            np.bitwise_or(bits, int(QuantFlag.BELOW_LOQ), out=bits, where=x_hat < limits.loq)
+        np.bitwise_or(bits, int(QuantFlag.BELOW_LOD), out=bits, where=x_hat < limits.lod)
+    for flag, mask in ((QuantFlag.AMBIGUOUS_ROOT, ambiguous), (QuantFlag.UNBOUNDED_INTERVAL, unbounded),
+                       (QuantFlag.TURNING_POINT, turning)):
+        if mask.any():
+            np.bitwise_or(bits, int(flag), out=bits, where=mask)
+    if not unsolved:
+        return x_hat, se, lower, upper, bits, bad
+    # an unknown with no solution carries that flag alone, and NaN for every number
+    bits[no_solution] = int(QuantFlag.NO_SOLUTION)
+    bad &= ~no_solution
     nan = np.where(no_solution, np.nan, 0.0)
-    return Quantitation(
-        mean_response=frozen(y0),
-        replicates=frozen(m),
-        level=float(level),
-        interval=interval,
-        df=cal.df_residual,
-        estimate=frozen(x_hat + nan),
-        standard_error=frozen(se + nan),
-        lower=frozen(lower + nan),
-        upper=frozen(upper + nan),
-        flag_bits=frozen(bits),
-        limits=limits,
-        limits_note=limits_note,
-    )
+    return x_hat + nan, se + nan, lower + nan, upper + nan, bits, bad
 
 
 def _refuse_unrepresentable(y0: FloatArray, bad: np.ndarray) -> None:
@@ -263,6 +303,13 @@ def _refuse_unrepresentable(y0: FloatArray, bad: np.ndarray) -> None:
 
 
 def _replicate_counts(replicates: object, k: int) -> np.ndarray:
+    if np.ndim(replicates) == 0 and k > 0:
+        # one count for every unknown: checked once, as the first unknown's
+        single = np.asarray(replicates)
+        if single.dtype.kind in "iuf":
+            value = float(single)
+            if np.isfinite(value) and value >= 1 and value == round(value):
+                return np.full(k, int(value), dtype=np.int64)
     counts = np.broadcast_to(np.asarray(replicates), (k,)) if np.ndim(replicates) == 0 else np.asarray(replicates)
     if counts.shape != (k,):
         raise QuantitationInputError(
@@ -332,12 +379,13 @@ def solve_z(
     return np.where(no_solution, np.nan, root), no_solution, ambiguous
 
 
-def _slope_z(cal: "FittedCurve", z: FloatArray) -> FloatArray:
+def _slope_z(cal: "FittedCurve", z: FloatArray) -> FloatArray | np.float64:
+    """df/dz at z (one number for a straight line)."""
     a = cal.z_coefficients
     if not cal.model.has_intercept:
-        return np.full_like(z, a[0])
+        return a[0]
     if cal.model is Model.LINEAR:
-        return np.full_like(z, a[1])
+        return a[1]
     return a[1] + 2.0 * a[2] * z
 
 
@@ -349,19 +397,32 @@ def _curve_variance(cal: "FittedCurve", z: FloatArray) -> FloatArray:
 
 def _new_response_variance(cal: "FittedCurve", x: FloatArray, y0: FloatArray, m: np.ndarray) -> FloatArray:
     """Variance σ²/(m·w) of the mean of m new responses at concentration x with mean y0."""
+    if cal.weighting is Weighting.NONE:
+        return cal.residual_sd**2 / m
     weight = cal.weight_model.weight_at(x, y0)
     return cal.residual_sd**2 / (m * weight)
 
 
 def _band_interval(
     cal: "FittedCurve", y0: FloatArray, m: np.ndarray, probability: float, z_hat: FloatArray,
-    no_solution: np.ndarray, guess: FloatArray,
+    no_solution: np.ndarray, guess: FloatArray, band: BandPolynomial | None = None,
 ) -> tuple[FloatArray, FloatArray, np.ndarray]:
-    """Both ends of the calibration interval, in x, and which unknowns' intervals reach past the vertex."""
+    """Both ends of the calibration interval, in x, and which unknowns' intervals reach past the vertex.
+
+    Fieller's closed form for a straight line whose weights do not depend on x; the polynomial band
+    (:mod:`.band_polynomial`) wherever ``band`` is given; otherwise the numeric inversion.
+    """
     closed_form = cal.model is not Model.QUADRATIC and not cal.weighting.uses_concentration
     past_vertex = np.zeros(y0.size, dtype=bool)
     if closed_form:
         z_lo, z_hi = _fieller_z(cal, y0, m, t_quantile(probability, cal.df_residual))
+    elif band is not None:
+        start = np.where(no_solution, 0.0, z_hat)
+        z_lo, z_hi, past_vertex = polynomial_band_edges(
+            band, y0, m, start, _full_reach(cal), cal.vertex_z if cal.model is Model.QUADRATIC else None,
+            np.where(np.isfinite(guess) & (guess > 0), guess, 1e-3),
+        )
+        past_vertex &= ~no_solution
     else:
         z_lo, z_hi, past_vertex = _band_edges(cal, y0, m, probability, z_hat, no_solution, guess)
     to_x = lambda z: cal.basis.centre + cal.basis.scale * z  # noqa: E731
@@ -455,7 +516,7 @@ def _band_edges(
     start = np.tile(np.where(no_solution, 0.0, z_hat), 2)
     direction = np.repeat([-1.0, 1.0], k)
     yy, mm = np.tile(y0, 2), np.tile(m, 2)
-    full_reach = SEARCH_HALF_RANGES * max(1.0, float(np.ptp(cal.basis.z(cal.concentration))))
+    full_reach = _full_reach(cal)
     reach = np.full(2 * k, full_reach)
     towards_vertex = np.zeros(2 * k, dtype=bool)
     if cal.model is Model.QUADRATIC and cal.vertex_z is not None:
@@ -474,6 +535,11 @@ def _band_edges(
         edge[onward] = np.where(more_closed, vertex + direction[onward] * more, direction[onward] * np.inf)
     past_vertex = onward[:k] | onward[k:]
     return edge[:k], edge[k:], past_vertex
+
+
+def _full_reach(cal: "FittedCurve") -> float:
+    """How far beyond ẑ (or the vertex) the interval's ends are searched, in z."""
+    return SEARCH_HALF_RANGES * max(1.0, float(np.ptp(cal.basis.z(cal.concentration))))
 
 
 def _band_crossing(

@@ -1,0 +1,489 @@
+"""Calibration-interval ends in closed form wherever the prediction band is a polynomial.
+
+The ends of an unknown's calibration interval solve, in the fitting variable z,
+
+    g(z) = (ȳ₀ − f̂(z))² − t²·(σ²/(m·w) + φ(z)ᵀ·C·φ(z)) = 0        (x = c + s·z)
+
+(see :mod:`.inverse`). f̂ is a polynomial of degree ≤ 2 in z and φᵀCφ one of degree ≤ 4. The variance
+of a new response σ²/w is a polynomial in x, hence in z, for every weighting that is not estimated:
+a constant when unweighted; σ²·(x/r)^q/k for 1/x (q = 1) and 1/x² (q = 2) at and above the lowest
+standard, and the constant of the lowest standard below it; and for 1/y-type weights a constant for
+each unknown, since they follow its measured response (see :mod:`.weighting`). So g is a
+polynomial of degree ≤ 4 in z, in at most two pieces split at the lowest standard.
+
+Each unknown's g is expanded about its own ẑ, in h = z − ẑ. With r = ȳ₀ − f̂(ẑ) (zero up to
+round-off) the square is (r − f̂′(ẑ)·h − a₂·h²)², so ȳ₀² never cancels against f̂²: the expansion
+is as accurate as g evaluated directly. The h⁴ coefficient is the same for every unknown.
+
+The interval is the connected set of z around ẑ where g ≤ 0, searched as far as the numeric
+inversion searches (``SEARCH_HALF_RANGES`` spans of the standards beyond ẑ, or beyond the vertex of a
+quadratic on the side that faces it). For most unknowns each end is had directly: Halley's method
+from the root of g's quadratic part, accepted when g(0) < 0 and g is convex between ẑ and the root
+(then g stays below the chord from ẑ to the root, so the root is where the band first lets go).
+For the others, the points where g may turn (the real roots of the cubic g′ in each piece), the
+piece boundary and the vertex split the search into stretches on which g is monotone. The first of
+these points at which g > 0 closes the stretch that holds the end; g has exactly one root there,
+which Newton's method, kept inside the bracket by regula falsi and bisection, finds to full
+precision. No such point within reach: the interval is unbounded on that side.
+
+The roots of the cubic come from Cardano's formula, or its trigonometric form when all three are
+real (Press et al., *Numerical Recipes*, 3rd ed., §5.6; section from memory), polished by Newton
+steps. They only split the search: one found a little off, or one too many, moves no end, since the
+end itself is solved on g.
+
+Everything is vectorised over the unknowns of a call, and each unknown's ends depend on its own
+ȳ₀ and m alone.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+import numpy as np
+from numpy.polynomial.polynomial import polymul
+
+from ._arrays import FloatArray
+from .weighting import Weighting
+
+if TYPE_CHECKING:  # pragma: no cover
+    from .fitted_curve import FittedCurve
+
+_MAX_NEWTON_STEPS = 100
+_CUBIC_POLISH_STEPS = 2
+_FULL_WIDTH_STEPS = 4
+"""Newton steps taken on every unknown of a block before the few still moving are worked alone."""
+_EPS = float(np.finfo(float).eps)
+_CONVEX_STEPS = 4
+_CONVERGED = 1e-6
+"""Relative size of the last of Halley's steps above which the direct end is not trusted: the error
+after a step is of the order of the step cubed, far below a double's resolution."""
+
+
+@dataclass(frozen=True)
+class BandPolynomial:
+    """The pieces of g for one calibration and confidence level (ascending coefficients in z).
+
+    The variance of the mean of m new responses is ``new_variance``(z)·v, with v = 1/m, or
+    v = (max(ȳ₀, floor)/r)^q/m for 1/y-type weights (the weight follows the measured response, so
+    it is one number for each unknown).
+    """
+
+    fitted: FloatArray
+    """f̂(z), 3 coefficients."""
+    curve_variance: FloatArray
+    """φ(z)ᵀ·C·φ(z), 5 coefficients."""
+    new_variance: FloatArray
+    """σ²/w at and above the lowest standard, for v = 1, 3 coefficients."""
+    new_variance_below: float
+    """σ²/w below the lowest standard, for v = 1."""
+    z_break: float
+    """z of the lowest standard where the weights depend on x, −inf otherwise."""
+    t2: float
+    response_power: int = 0
+    response_floor: float = 0.0
+    response_reference: float = 1.0
+
+    def multiplier(self, y0: FloatArray, m: np.ndarray) -> FloatArray:
+        """v for each unknown (see the class)."""
+        v = 1.0 / m.astype(np.float64)
+        if self.response_power:
+            ratio = np.maximum(y0, self.response_floor) / self.response_reference
+            v = v * (ratio if self.response_power == 1 else ratio * ratio)
+        return v
+
+    def about(self, y0: FloatArray, v: FloatArray, z0: FloatArray) -> "ShiftedBand":
+        """g as polynomials in h = z − z0, one for each unknown, expanded about its own z0.
+
+        With r = ȳ₀ − f̂(z0) and f̂(z0 + h) = f̂(z0) + f̂′(z0)·h + a₂·h², the square is
+        (r − f̂′·h − a₂·h²)², expanded without the cancellation of ȳ₀² against f̂²: at ẑ, r is zero.
+        """
+        f, c, w = self.fitted, self.curve_variance, self.new_variance
+        r = y0 - _horner(z0, f)
+        s1 = f[1] + 2.0 * f[2] * z0
+        # Taylor coefficients of the curve variance about z0
+        c0 = _horner(z0, c)
+        c1 = _horner(z0, np.array([c[1], 2.0 * c[2], 3.0 * c[3], 4.0 * c[4]]))
+        c2 = _horner(z0, np.array([c[2], 3.0 * c[3], 6.0 * c[4]]))
+        t2 = self.t2
+        straight = f[2] == 0.0 and c[3] == 0.0 and c[4] == 0.0  # a straight line: g is quadratic in h
+        base = [
+            r * r - t2 * c0,
+            -2.0 * r * s1 - t2 * c1,
+            s1 * s1 - 2.0 * r * f[2] - t2 * c2,
+            0.0 if straight else 2.0 * s1 * f[2] - t2 * (c[3] + 4.0 * c[4] * z0),
+            float(f[2] * f[2] - t2 * c[4]),
+        ]
+        tv = t2 * v
+        upper = list(base)
+        upper[0] = base[0] - tv * _horner(z0, w)
+        if w[1] != 0.0 or w[2] != 0.0:
+            upper[1] = base[1] - tv * (w[1] + 2.0 * w[2] * z0)
+            upper[2] = base[2] - tv * w[2]
+        lower = None
+        if np.isfinite(self.z_break):
+            lower = list(base)
+            lower[0] = base[0] - tv * self.new_variance_below
+        return ShiftedBand(z0, upper, lower, self.z_break - z0 if lower is not None else None)
+
+
+@dataclass(frozen=True)
+class ShiftedBand:
+    """g about z0 for each unknown: ``upper`` holds where h ≥ ``h_break`` (everywhere when there is
+    one piece), ``lower`` below it. Coefficient lists in ascending powers of h; the last (h⁴) is one
+    number for every unknown."""
+
+    z0: FloatArray
+    upper: list
+    lower: list | None
+    h_break: FloatArray | None
+
+    def take(self, index: np.ndarray) -> "ShiftedBand":
+        """The same for the unknowns at ``index`` only."""
+        pick = lambda c: c[index] if np.ndim(c) else c  # noqa: E731
+        return ShiftedBand(
+            self.z0[index], [pick(c) for c in self.upper], None if self.lower is None else [pick(c) for c in self.lower],
+            None if self.h_break is None else self.h_break[index],
+        )
+
+    def at_zero(self) -> list:
+        """Coefficients of the piece that holds h = 0 (z = z0)."""
+        if self.lower is None or self.h_break is None:
+            return self.upper
+        below = self.h_break > 0
+        return [np.where(below, lo, up) if np.ndim(up) or np.ndim(lo) else up for lo, up in zip(self.lower, self.upper)]
+
+    def excess(self, h: FloatArray) -> FloatArray:
+        value = _quartic(self.upper, h)
+        if self.lower is not None:
+            value = np.where(h >= self.h_break, value, _quartic(self.lower, h))
+        return value
+
+    def turning_points(self) -> list[FloatArray]:
+        """Real roots of g′ in each piece, each restricted to its piece (NaN where absent)."""
+        out: list[FloatArray] = []
+        for piece, upper in ((self.upper, True), (self.lower, False)):
+            if piece is None:
+                continue
+            d0, d1, d2, d3 = piece[1], 2.0 * piece[2], 3.0 * piece[3], 4.0 * piece[4]
+            for root in _cubic_real_roots(d3, d2, d1, d0):
+                if self.h_break is not None:
+                    inside = root >= self.h_break if upper else root < self.h_break
+                    root = np.where(inside, root, np.nan)
+                out.append(root)
+        return out
+
+
+def _quartic(c: list, h: FloatArray) -> FloatArray:
+    return (((c[4] * h + c[3]) * h + c[2]) * h + c[1]) * h + c[0]
+
+
+def band_polynomial(cal: "FittedCurve", t: float) -> BandPolynomial | None:
+    """The polynomial pieces of g for Student's ``t``, or None where the band is not a polynomial in x.
+
+    None for 1/s² (interpolated SDs) and for variance functions estimated from the standards (their t
+    varies along the band too).
+    """
+    wm = cal.weight_model
+    if wm.variance_fit is not None or cal.weighting is Weighting.INVERSE_S2:
+        return None
+    powers = cal.basis.powers
+    fitted = np.zeros(3)
+    curve_variance = np.zeros(5)
+    for i, p in enumerate(powers):
+        fitted[p] = cal.z_coefficients[i]
+        for j, q in enumerate(powers):
+            curve_variance[p + q] += cal.z_covariance[i, j]
+    s2 = cal.residual_sd**2
+    centre, scale = cal.basis.centre, cal.basis.scale
+    k, r, power = wm.normaliser, wm.reference, wm.power
+    response = {}
+    if cal.weighting in (Weighting.INVERSE_X, Weighting.INVERSE_X2):
+        ratio = np.array([centre / r, scale / r])  # x/r as a polynomial in z
+        shape = ratio if power == 1 else polymul(ratio, ratio)
+        new_variance = _padded(s2 / k * shape, 3)
+        low = wm.lowest_concentration
+        below = float(s2 / (k * (r / low) ** power))
+        z_break = float((low - centre) / scale)
+    else:
+        new_variance, below, z_break = np.array([s2 / k, 0.0, 0.0]), s2 / k, -np.inf
+        if cal.weighting in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2):
+            response = dict(response_power=power, response_floor=wm.lowest_response, response_reference=r)
+    return BandPolynomial(
+        fitted=fitted, curve_variance=curve_variance, new_variance=new_variance, new_variance_below=below,
+        z_break=z_break, t2=t * t, **response,
+    )
+
+
+def polynomial_band_edges(
+    band: BandPolynomial,
+    y0: FloatArray,
+    m: np.ndarray,
+    start: FloatArray,
+    full_reach: float,
+    vertex_z: float | None,
+    guess: FloatArray,
+) -> tuple[FloatArray, FloatArray, np.ndarray]:
+    """Lower and upper ends of the calibration interval around ``start`` (ẑ), in z, and which
+    unknowns' intervals reach past the vertex. The same search as the numeric inversion
+    (:func:`curvewright.core.inverse._band_edges`), solved on the polynomial. ``guess`` is a distance
+    from ẑ close to either end (the half-width of the symmetric interval), used to narrow the bracket."""
+    shifted = band.about(y0, band.multiplier(y0, m), start)
+    h_vertex = None if vertex_z is None else vertex_z - start
+    ends = []
+    past_vertex = np.zeros(y0.size, dtype=bool)
+    for direction in (-1.0, 1.0):
+        if h_vertex is not None:
+            towards = h_vertex * direction >= 0
+            reach = np.where(towards, np.abs(h_vertex), 0.0) + full_reach
+        else:
+            towards = np.zeros(y0.size, dtype=bool)
+            reach = np.full(y0.size, full_reach)
+        h_end, certain = _convex_end(shifted, direction, reach, guess, start)
+        # an end past the vertex leaves the band holding ȳ₀ all the way to the vertex
+        beyond_vertex = np.zeros(y0.size, dtype=bool) if h_vertex is None else h_end * direction > h_vertex * direction
+        rest = np.flatnonzero(~certain)
+        if rest.size:
+            part = shifted.take(rest)
+            splits = part.turning_points()
+            if part.h_break is not None:
+                splits.append(part.h_break)
+            if h_vertex is not None:
+                splits.append(h_vertex[rest])
+            h_end[rest], beyond_vertex[rest] = _side(
+                part, part.excess(np.zeros(rest.size)), direction, splits, reach[rest],
+                None if h_vertex is None else h_vertex[rest], guess[rest], start[rest],
+            )
+        ends.append(start + h_end)
+        past_vertex |= towards & beyond_vertex
+    return ends[0], ends[1], past_vertex
+
+
+def _convex_end(
+    shifted: ShiftedBand,
+    direction: float,
+    reach: FloatArray,
+    guess: FloatArray,
+    start: FloatArray,
+) -> tuple[FloatArray, np.ndarray]:
+    """The end on one side where it can be had directly, and where that is certain.
+
+    Halley's method on the piece that holds ẑ, from the root of its quadratic part (g without its
+    h³ and h⁴ terms). The root h* found is certainly the first exit from the band when g(0) < 0 and
+    g is convex on [0, h*]: a convex function that is negative at 0 and zero at h* stays below
+    the chord between them, so it is ≤ 0 on [0, h*] and rises through zero at h*. It must also lie
+    within reach and in the same piece as ẑ; it may lie past the vertex of a quadratic, since g ≤ 0
+    all the way to it. The others are searched in full (:func:`_side`).
+    """
+    c = shifted.at_zero()
+    c0, c1, c2 = c[0], c[1], c[2]
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        root = np.sqrt(c1 * c1 - 4.0 * c2 * c0)
+        q = -0.5 * (c1 + np.copysign(root, c1))
+        r1, r2 = q / c2, c0 / q
+        h = np.where(r1 * direction > 0, r1, r2)
+        quadratic = np.ndim(c[3]) == 0 and c[3] == 0.0 and c[4] == 0.0
+        if quadratic:
+            # g is c0 + c1·h + c2·h² (a straight line): that root is the end, and g″ = 2c2
+            convex = c2 >= 0
+            converged = np.isfinite(h)
+        else:
+            h = np.where(np.isfinite(h) & (h * direction > 0), h, direction * guess)
+            tolerance = _CONVERGED * np.abs(start)
+            converged = np.zeros(h.size, dtype=bool)
+            for _ in range(_CONVEX_STEPS):
+                value = _quartic(c, h)
+                slope = ((4.0 * c[4] * h + 3.0 * c[3]) * h + 2.0 * c2) * h + c1
+                bend = (12.0 * c[4] * h + 6.0 * c[3]) * h + 2.0 * c2
+                # Halley's step: third-order convergence from the quadratic part's root. Each unknown
+                # stops after its own converged step, so its end never depends on the others.
+                step = 2.0 * value * slope / (2.0 * slope * slope - value * bend)
+                h = np.where(converged, h, h - step)
+                converged |= np.abs(step) <= tolerance + _CONVERGED * np.abs(h)
+                if converged.all():
+                    break
+            # g″ = 2c2 + 6c3·h + 12c4·h² must not fall below zero on [0, h*]
+            curvature = lambda v: (12.0 * c[4] * v + 6.0 * c[3]) * v + 2.0 * c2  # noqa: E731
+            convex = (curvature(0.0) >= 0) & (curvature(h) >= 0)
+            if c[4] > 0:
+                lowest = -c[3] / (4.0 * c[4])
+                between = (lowest - 0.0) * (lowest - h) < 0
+                convex &= ~between | (curvature(lowest) >= 0)
+        u = h * direction
+        certain = np.isfinite(h) & (u > 0) & (u <= reach) & (c0 < 0) & convex & converged
+        if shifted.h_break is not None:
+            certain &= (shifted.h_break > 0) == (h < shifted.h_break)
+    return h, certain
+
+
+def _side(
+    shifted: ShiftedBand,
+    g_start: FloatArray,
+    direction: float,
+    splits: list[FloatArray],
+    reach: FloatArray,
+    h_vertex: FloatArray | None,
+    guess: FloatArray,
+    start: FloatArray,
+) -> tuple[FloatArray, np.ndarray]:
+    """One end, as h: the first root of g from h = 0 along ``direction`` within ``reach``."""
+    k = g_start.size
+    u = np.empty((len(splits) + 2, k))  # distances from ẑ along the direction
+    for row, split in zip(u, splits):
+        np.multiply(split, direction, out=row)
+    u[-2] = guess
+    u[-1] = reach
+    valid = (u > 0) & (u <= reach)  # NaN compares False
+    u = np.where(valid, u, 0.0)
+    g = shifted.excess(direction * u)
+    # the nearest point outside the band closes the stretch; the farthest point before it opens it
+    outside_u = np.where(valid & (g > 0), u, np.inf)
+    outside_row = np.argmin(outside_u, axis=0)
+    columns = np.arange(k)
+    outside_at = outside_u[outside_row, columns]
+    found = np.isfinite(outside_at)
+    inside_u = np.where(valid & (u < outside_at), u, 0.0)
+    inside_row = np.argmax(inside_u, axis=0)
+    inside_at = inside_u[inside_row, columns]
+    g_inside = np.where(inside_at > 0, g[inside_row, columns], g_start)
+    beyond_vertex = ~found
+    if h_vertex is not None:
+        beyond_vertex |= outside_at > h_vertex * direction
+    end = np.full(k, direction * np.inf)
+    at = np.flatnonzero(found)
+    if at.size:
+        if shifted.lower is not None:
+            # the stretch lies in one piece (the break splits the search): pick its coefficients
+            assert shifted.h_break is not None
+            below = (direction * 0.5 * (inside_at[at] + outside_at[at])) < shifted.h_break[at]
+            coefficients = [np.where(below, lo[at] if np.ndim(lo) else lo, up[at] if np.ndim(up) else up)
+                            for lo, up in zip(shifted.lower, shifted.upper)]
+        else:
+            coefficients = [c[at] if np.ndim(c) else c for c in shifted.upper]
+        a = direction * inside_at[at]
+        b = direction * outside_at[at]
+        scale = np.abs(start[at]) + outside_at[at]
+        end[at] = _bracketed_root(coefficients, a, b, g_inside[at], g[outside_row[at], at], scale)
+    return end, beyond_vertex
+
+
+def _bracketed_root(
+    c: list, a: FloatArray, b: FloatArray, g_a: FloatArray, g_b: FloatArray, scale: FloatArray,
+) -> FloatArray:
+    """The root of the quartic c between a (≤ 0) and b (> 0), monotone between them: Newton's
+    method, falling back to the Illinois variant of regula falsi (Dowell & Jarratt 1971, BIT
+    11:168), then to bisection, whenever a step would leave the bracket; until the step is at the
+    resolution of a double on the ``scale`` of the search (|ẑ| plus the distance searched), as in
+    the numeric inversion, or the value is zero to within its round-off. Each unknown stops on its
+    own: after a few steps on the whole block, the unknowns still moving are worked on alone."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        h = a - g_a * (b - a) / (g_b - g_a)
+    h = np.where((h - a) * (h - b) < 0, h, 0.5 * (a + b))
+    resolution = 4.0 * _EPS * scale
+    state = [h, a.copy(), b.copy(), g_a.copy(), g_b.copy()]
+    result = h.copy()
+    active = np.ones(h.size, dtype=bool)
+    for _ in range(_FULL_WIDTH_STEPS):
+        *state, done = _safeguarded_step(c, *state, resolution)
+        result = np.where(active, state[0], result)
+        active &= ~done
+        if not active.any():
+            return result
+    index = np.flatnonzero(active)
+    state = [array[index] for array in state]
+    cc = [ci[index] if np.ndim(ci) else ci for ci in c]
+    rr = resolution[index]
+    for _ in range(_MAX_NEWTON_STEPS - _FULL_WIDTH_STEPS):
+        *state, done = _safeguarded_step(cc, *state, rr)
+        result[index] = state[0]
+        keep = ~done
+        if not keep.any():
+            break
+        index, rr = index[keep], rr[keep]
+        state = [array[keep] for array in state]
+        cc = [ci[keep] if np.ndim(ci) else ci for ci in cc]
+    return result
+
+
+def _safeguarded_step(
+    c: list, h: FloatArray, a: FloatArray, b: FloatArray, g_a: FloatArray, g_b: FloatArray,
+    resolution: FloatArray,
+) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray, FloatArray, np.ndarray]:
+    """One step of :func:`_bracketed_root` from h: the new point, bracket, end values, and which have converged."""
+    g = _quartic(c, h)
+    slope = ((4.0 * c[4] * h + 3.0 * c[3]) * h + 2.0 * c[2]) * h + c[1]
+    ah = np.abs(h)
+    size = (((abs(c[4]) * ah + np.abs(c[3])) * ah + np.abs(c[2])) * ah + np.abs(c[1])) * ah + np.abs(c[0])
+    out = g > 0
+    # Illinois: the end that stays put has its value halved, so the false position moves on
+    g_a = np.where(out, 0.5 * g_a, g)
+    g_b = np.where(out, g, 0.5 * g_b)
+    a = np.where(out, a, h)
+    b = np.where(out, h, b)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        step = h - g / slope
+        false_position = a - g_a * (b - a) / (g_b - g_a)
+    step = np.where((step - a) * (step - b) < 0, step, false_position)  # NaN compares False
+    step = np.where((step - a) * (step - b) < 0, step, 0.5 * (a + b))
+    # the value within its own round-off of zero: h is the root as closely as it can tell
+    at_root = np.abs(g) <= 8.0 * _EPS * size
+    done = (np.abs(step - h) <= resolution) | (np.abs(b - a) <= resolution) | at_root
+    return np.where(at_root, h, step), a, b, g_a, g_b, done
+
+
+def _cubic_real_roots(d3: float, d2: FloatArray, d1: FloatArray, d0: FloatArray) -> list[FloatArray]:
+    """Real roots of d3·z³ + d2·z² + d1·z + d0 (NaN where a root is complex or absent).
+
+    The leading coefficient is one number. Cardano's formula for one real root, the trigonometric
+    form for three, then Newton steps on the cubic itself to recover digits lost to cancellation.
+    """
+    with np.errstate(all="ignore"):
+        if d3 != 0.0:
+            a, b, c = d2 / d3, d1 / d3, d0 / d3
+            p = b - a * a / 3.0
+            q = 2.0 * a**3 / 27.0 - a * b / 3.0 + c
+            disc = (q / 2.0) ** 2 + (p / 3.0) ** 3
+            one = disc > 0
+            # one real root: u = ∛(−q/2 − sign(q)·√disc), w = u − p/(3u) (no cancellation in u)
+            u = np.cbrt(-q / 2.0 - np.copysign(np.sqrt(np.where(one, disc, 0.0)), q))
+            w_one = np.where(u != 0.0, u - p / (3.0 * u), 0.0)
+            # three real roots: w = 2·√(−p/3)·cos(θ/3 − 2πj/3)
+            rad = np.sqrt(np.where(one, 0.0, np.maximum(-p / 3.0, 0.0)))
+            cos_arg = np.where(rad > 0, -q / (2.0 * np.where(rad > 0, rad, 1.0) ** 3), 0.0)
+            theta = np.arccos(np.clip(cos_arg, -1.0, 1.0))
+            shift = a / 3.0
+            roots = [np.where(one, w_one, 2.0 * rad * np.cos(theta / 3.0)) - shift]
+            for j in (1, 2):
+                roots.append(np.where(one, np.nan, 2.0 * rad * np.cos((theta - 2.0 * np.pi * j) / 3.0) - shift))
+        else:
+            disc = d1 * d1 - 4.0 * d2 * d0
+            real = (disc >= 0) & (d2 != 0.0)
+            qq = -0.5 * (d1 + np.copysign(np.sqrt(np.where(real, disc, 0.0)), d1))
+            linear = np.where(d1 != 0.0, -d0 / d1, np.nan)
+            r1 = np.where(real, qq / d2, np.where(d2 == 0.0, linear, np.nan))
+            r2 = np.where(real & (qq != 0.0), d0 / qq, np.nan)
+            roots = [r1, r2]
+        polished = []
+        for r in roots:
+            for _ in range(_CUBIC_POLISH_STEPS):
+                value = ((d3 * r + d2) * r + d1) * r + d0
+                slope = (3.0 * d3 * r + 2.0 * d2) * r + d1
+                step = value / slope
+                r = np.where(np.isfinite(step), r - step, r)
+            polished.append(np.where(np.isfinite(r), r, np.nan))
+        return polished
+
+
+def _horner(z: FloatArray, coefficients: FloatArray) -> FloatArray:
+    """Σ cᵢ·zⁱ by Horner's rule, in the order of numpy's ``polyval`` (so to the same bits)."""
+    value = coefficients[-1] + 0.0 * z
+    for c in coefficients[-2::-1]:
+        value = c + value * z
+    return value
+
+
+def _padded(coefficients: FloatArray, size: int) -> FloatArray:
+    out = np.zeros(size)
+    out[: len(coefficients)] = coefficients
+    return out
+

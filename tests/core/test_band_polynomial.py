@@ -1,0 +1,213 @@
+"""Interval ends solved on the polynomial band agree with the numeric inversion of the band.
+
+Wherever the prediction band is a polynomial (a quadratic under any weighting but 1/s² and the
+estimated variance functions; a straight line under 1/x-type weights), the interval's ends are
+solved on that polynomial (core/band_polynomial.py). The numeric inversion that bracketed and
+refined each end (core/inverse.py, still used where no polynomial exists) is the reference: the
+same definition (the connected set of concentrations around x̂ whose band holds ȳ₀), solved
+another way. The prediction band itself is checked against statsmodels in test_against_statsmodels.py.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+import curvewright as cw
+from curvewright.core import inverse
+from curvewright.core.band_polynomial import band_polynomial
+from curvewright.core.distributions import t_quantile
+
+RTOL = 1e-10
+
+
+def numeric(cal, y0, m, monkeypatch, interval="band"):  # type: ignore[no-untyped-def]
+    """The same quantitation with the band inverted numerically."""
+    with monkeypatch.context() as patch:
+        patch.setattr(inverse, "band_polynomial", lambda cal, t: None)
+        return cal.quantify(y0, m, interval=interval)
+
+
+def invented_design(seed: int) -> tuple[cw.Calibration, np.ndarray, np.ndarray]:
+    """A random calibration (model, weighting, levels, replicates, scatter, curvature) and unknowns
+    spread from well below the lowest to well above the highest response."""
+    rng = np.random.default_rng(seed)
+    model = ["quadratic", "linear", "proportional"][seed % 3]
+    weightings = ["none", "1/x", "1/x^2", "1/y", "1/y^2"] if model == "quadratic" else ["1/x", "1/x^2"]
+    weighting = weightings[(seed // 3) % len(weightings)]
+    levels = np.sort(rng.uniform(0.5, 100.0, rng.integers(4, 8)))
+    x = np.repeat(levels, rng.integers(1, 4))
+    slope = rng.uniform(0.1, 3.0)
+    curvature = rng.uniform(-0.01, 0.01) * slope if model == "quadratic" else 0.0
+    y = 0.2 + slope * x + curvature * x * x
+    y = y * (1 + rng.uniform(0.002, 0.08) * rng.standard_normal(x.size))
+    cal = cw.fit(x, y, model, weighting)
+    spread = np.ptp(y)
+    y0 = rng.uniform(y.min() - spread, y.max() + spread, 300)
+    m = rng.integers(1, 5, y0.size)
+    return cal, y0, m
+
+
+def band_excess(cal, y0: float, m: int, x: np.ndarray) -> np.ndarray:  # type: ignore[no-untyped-def]
+    """(ȳ₀ − f̂(x))² − t²·(σ²/(m·w(x)) + var f̂(x)) at concentrations x, straight from the curve."""
+    t = t_quantile(0.975, cal.df_residual)
+    new = cal.residual_sd**2 / (m * cal.weight_model.weight_at(x, np.full_like(x, y0)))
+    return (y0 - cal.predict(x)) ** 2 - t * t * (new + cal.curve_sd(x) ** 2)
+
+
+def assert_first_exit(cal, y0: float, m: int, estimate: float, end: float, numeric_end: float) -> None:  # type: ignore[no-untyped-def]
+    """Where the two disagree, the numeric end is the one that is wrong: its doubling search stepped
+    over a narrow stretch where the band lets go of ȳ₀ and takes it back. The polynomial end is
+    where the band first lets go, and the band holds ȳ₀ at no point between the two."""
+    between = np.linspace(end, numeric_end, 20001)[1:-1]
+    assert np.any(band_excess(cal, y0, m, between) > 0)
+    inside = np.linspace(estimate, end, 20001)[:-1]
+    assert np.all(band_excess(cal, y0, m, inside) <= 1e-9 * np.max(np.abs(band_excess(cal, y0, m, inside))))
+    step = 1e-7 * max(abs(end), np.ptp(cal.concentration))
+    beyond = end + np.sign(end - estimate) * step
+    assert band_excess(cal, y0, m, np.array([beyond]))[0] > 0
+
+
+@pytest.mark.parametrize("seed", range(120))
+def test_ends_agree_with_the_numeric_inversion(seed: int, monkeypatch) -> None:
+    cal, y0, m = invented_design(seed)
+    if not cal.regression.significant:
+        pytest.skip("this invented calibration does not separate its levels")
+    assert band_polynomial(cal, 2.0) is not None
+    ours = cal.quantify(y0, m)
+    theirs = numeric(cal, y0, m, monkeypatch)
+    assert np.array_equal(ours.estimate, theirs.estimate, equal_nan=True)
+    assert np.array_equal(ours.standard_error, theirs.standard_error, equal_nan=True)
+    span = np.ptp(cal.concentration)
+    disagreements = 0
+    for name in ("lower", "upper"):
+        a, b = getattr(ours, name), getattr(theirs, name)
+        same = (a == b) | (np.isnan(a) & np.isnan(b))
+        finite = np.isfinite(a) & np.isfinite(b)
+        with np.errstate(invalid="ignore"):
+            close = finite & (np.abs(a - b) <= RTOL * np.maximum(np.abs(b), 1e-3 * span))
+        for i in np.flatnonzero(~(same | close)):
+            disagreements += 1
+            assert np.isfinite(a[i])
+            target = b[i] if np.isfinite(b[i]) else a[i] + np.sign(a[i] - ours.estimate[i]) * 200 * span
+            assert_first_exit(cal, y0[i], m[i], ours.estimate[i], a[i], target)
+            # the flags follow the interval: only "unbounded" and "turning point" can differ
+            changed = int(ours.flag_bits[i]) ^ int(theirs.flag_bits[i])
+            assert changed & ~int(inverse.QuantFlag.UNBOUNDED_INTERVAL | inverse.QuantFlag.TURNING_POINT) == 0
+    assert np.sum(ours.flag_bits != theirs.flag_bits) <= disagreements
+
+
+def test_every_end_is_where_the_band_passes_through_the_response() -> None:
+    """At each finite end the band's edge passes through ȳ₀, to round-off."""
+    for seed in range(0, 60, 7):
+        cal, y0, m = invented_design(seed)
+        if not cal.regression.significant:
+            continue
+        q = cal.quantify(y0, m)
+        for name in ("lower", "upper"):
+            end = getattr(q, name)
+            ok = np.isfinite(end)
+            t = t_quantile(0.975, cal.df_residual)
+            x = end[ok]
+            new = cal.residual_sd**2 / (m[ok] * cal.weight_model.weight_at(x, y0[ok]))
+            half = t * np.sqrt(new + cal.curve_sd(x) ** 2)
+            distance = np.minimum(np.abs(cal.predict(x) + half - y0[ok]), np.abs(cal.predict(x) - half - y0[ok]))
+            assert np.all(distance <= 1e-9 * np.maximum(np.abs(y0[ok]), half))
+
+
+def test_results_do_not_depend_on_the_other_unknowns_or_the_blocks() -> None:
+    """An unknown quantified alone, or in a large call that is worked in blocks, gives the same bits."""
+    cal, y0, m = invented_design(0)
+    rng = np.random.default_rng(5)
+    many = rng.uniform(y0.min(), y0.max(), inverse.CHUNK * 2 + 17)
+    many[: y0.size] = y0
+    big = cal.quantify(many)
+    alone = [cal.quantify(many[i : i + 1]) for i in (0, 5, inverse.CHUNK - 1, inverse.CHUNK, many.size - 1)]
+    for q, i in zip(alone, (0, 5, inverse.CHUNK - 1, inverse.CHUNK, many.size - 1)):
+        for name in ("estimate", "lower", "upper", "standard_error", "flag_bits"):
+            assert np.array_equal(getattr(q, name), getattr(big, name)[i : i + 1], equal_nan=True), (name, i)
+
+
+# Standards for the edge cases: a curve that bends over, duplicates at seven levels.
+X = np.repeat([1.0, 2.0, 5.0, 10.0, 20.0, 35.0, 50.0], 2)
+Y = 0.5 + 3.0 * X - 0.025 * X**2 + np.tile([0.15, -0.15], 7) * np.sqrt(X)
+
+
+@pytest.mark.parametrize("weighting", ["none", "1/x", "1/x^2", "1/y^2"])
+def test_edge_cases_agree_with_the_numeric_inversion(weighting: str, monkeypatch) -> None:
+    cal = cw.fit(X, Y, "quadratic", weighting)
+    top = float(cal.predict(cal.vertex))  # the curve's highest response
+    y0 = np.array([
+        float(cal.predict(1.0)), float(cal.predict(50.0)),  # the end standards
+        float(cal.predict(0.05)), -2.0,  # below the lowest standard, below the blank
+        float(cal.predict(60.0)),  # above the highest standard
+        top, top - 1e-9,  # at the turning point, a hair below it
+        top + 0.05,  # beyond the curve's top, inside the band at the vertex
+        top + 50.0,  # far beyond: no solution
+    ])
+    ours = cal.quantify(y0, 2)
+    theirs = numeric(cal, y0, 2, monkeypatch)
+    for name in ("estimate", "lower", "upper"):
+        np.testing.assert_allclose(getattr(ours, name), getattr(theirs, name), rtol=RTOL, atol=1e-12)
+    assert np.array_equal(ours.flag_bits, theirs.flag_bits)
+    assert inverse.QuantFlag.TURNING_POINT in ours.flags[7]
+    assert inverse.QuantFlag.NO_SOLUTION in ours.flags[8] and np.isnan(ours.lower[8])
+
+
+@pytest.mark.parametrize("curvature", [0.0, -0.0], ids=["plus-zero", "minus-zero"])
+def test_a_quadratic_without_curvature_agrees_with_the_numeric_inversion(curvature, monkeypatch) -> None:
+    """A fitted curvature of exactly ±0.0 (standards on an exact straight line)."""
+    from curvewright.core import calibration
+
+    x = np.array([1, 1, 2, 2, 4, 4, 8, 8, 16, 16, 32, 32], dtype=float)
+    y = 2.0 + 3.0 * x + np.tile([0.01, -0.01], 6)
+    solve = calibration.solve_weighted
+
+    def flattened(*args, **kwargs):  # type: ignore[no-untyped-def]
+        solution = solve(*args, **kwargs)
+        coefficients = np.array(solution.coefficients, dtype=float)
+        if coefficients.size == 3:
+            coefficients[2] = curvature
+        return type(solution)(**{**solution.__dict__, "coefficients": coefficients})
+
+    monkeypatch.setattr(calibration, "solve_weighted", flattened)
+    cal = cw.fit(x, y, "quadratic")
+    monkeypatch.undo()
+    assert cal.z_coefficients[2] == 0.0 and np.signbit(cal.z_coefficients[2]) == np.signbit(curvature)
+    y0 = np.array([5.0, 20.0, 50.0, 95.0, 150.0])
+    ours = cal.quantify(y0, 2)
+    theirs = numeric(cal, y0, 2, monkeypatch)
+    for name in ("estimate", "lower", "upper"):
+        np.testing.assert_allclose(getattr(ours, name), getattr(theirs, name), rtol=RTOL)
+    assert np.all(ours.lower < ours.estimate) and np.all(ours.estimate < ours.upper)
+
+
+@pytest.mark.parametrize("model", ["linear", "quadratic"])
+def test_standards_on_an_exact_line_give_a_tight_interval(model: str, monkeypatch) -> None:
+    """Responses exactly on y = 1 + 2x, weighted 1/x: the band is round-off wide, and so is the interval."""
+    x = np.repeat([1.0, 2.0, 4.0, 8.0, 16.0], 2)
+    cal = cw.fit(x, 1.0 + 2.0 * x + np.tile([1e-9, -1e-9], 5), model, "1/x")
+    y0 = np.array([4.0, 11.0, 30.0])
+    ours = cal.quantify(y0)
+    theirs = numeric(cal, y0, 1, monkeypatch)
+    np.testing.assert_allclose(ours.estimate, [1.5, 5.0, 14.5], rtol=1e-9)
+    for name in ("lower", "upper"):
+        np.testing.assert_allclose(getattr(ours, name), getattr(theirs, name), rtol=RTOL)
+    assert np.all(ours.lower < ours.estimate) and np.all(ours.estimate < ours.upper)
+    assert np.all(ours.upper - ours.lower < 1e-6 * ours.estimate)
+
+
+def test_a_band_that_never_closes_is_unbounded_on_both_paths(monkeypatch) -> None:
+    """Three scattered levels under 1/x²: the slope is barely significant and a high unknown's band
+    never closes above it."""
+    x = np.repeat([1.0, 10.0, 100.0], 2)
+    y = np.array([1.0, 1.9, 8.0, 15.0, 60.0, 140.0])
+    cal = cw.fit(x, y, "linear", "1/x^2")
+    y0 = np.array([5.0, 100.0, 400.0])
+    ours = cal.quantify(y0)
+    theirs = numeric(cal, y0, 1, monkeypatch)
+    assert np.array_equal(np.isinf(ours.upper), np.isinf(theirs.upper))
+    assert np.array_equal(ours.flag_bits, theirs.flag_bits)
+    finite = np.isfinite(theirs.upper)
+    np.testing.assert_allclose(ours.upper[finite], theirs.upper[finite], rtol=RTOL)
+    np.testing.assert_allclose(ours.lower, theirs.lower, rtol=RTOL)
