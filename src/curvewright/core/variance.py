@@ -35,7 +35,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import optimize, special
+from scipy import special
 
 from ._arrays import FloatArray
 from .distributions import f_quantile, f_upper_tail
@@ -186,6 +186,8 @@ def _pooled_power_test(
     elif score(high) >= 0.0:
         theta = high
     else:
+        from scipy import optimize  # loaded only when a root is searched: most runs never need it
+
         theta = float(optimize.brentq(score, low, high, xtol=1e-12))
     ratio = max(2.0 * (profile(theta) - profile(0.0)), 0.0)
     two_sided = float(special.chdtrc(1, ratio))
