@@ -8,8 +8,11 @@ import pyqtgraph as pg
 from PySide6.QtCore import QPointF, Signal
 from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QToolTip, QVBoxLayout, QWidget
 
-from ..core.run_analysis import AnalyteResult, response_value
 from . import figures
+
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from ..core.run_analysis import AnalyteResult
 
 
 def _reset(plot: pg.PlotItem, legend: pg.LegendItem | None = None) -> None:
@@ -105,6 +108,8 @@ class CurveView(QWidget):
             legend.setFixedWidth(width)
 
     def _points(self, a: AnalyteResult, log_x: bool) -> list[tuple[float, float, str]]:
+        from ..core.run_analysis import response_value
+
         cal = a.calibration
         log_y = log_x and bool(np.all(cal.response > 0))
 

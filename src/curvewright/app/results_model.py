@@ -13,11 +13,12 @@ from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtGui import QBrush, QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QLabel, QVBoxLayout, QWidget
 
-from ..core.inverse import INTERVAL_SCOPE_NOTE, QuantFlag
-from ..core.reporting import ReportStatus
-from ..core.run_analysis import AnalyteResult, RunResult, SampleResult
 from ..io.result_tables import display_number, interval_text
 from .table_view import FittedTableView, fit_columns
+
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from ..core.run_analysis import AnalyteResult, RunResult, SampleResult
 
 COLUMNS = ("Sample", "Reported", "Interval", "Flags", "Kind", "QC / check", "n", "Mean response",
            "Estimate", "Dilution", "Value × dilution")
@@ -54,6 +55,8 @@ class ResultsModel(QAbstractTableModel):
 
     def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole):  # noqa: N802
         if role == Qt.ItemDataRole.ToolTipRole and orientation == Qt.Orientation.Horizontal and section == INTERVAL:
+            from ..core.inverse import INTERVAL_SCOPE_NOTE  # the engine loads on the analysis thread
+
             return INTERVAL_SCOPE_NOTE
         if role != Qt.ItemDataRole.DisplayRole:
             return None
@@ -83,6 +86,9 @@ class ResultsModel(QAbstractTableModel):
         return None
 
     def _needs_attention(self, s: SampleResult) -> bool:
+        from ..core.inverse import QuantFlag  # loaded: rows exist only once a result has arrived
+        from ..core.reporting import ReportStatus
+
         if s.within_limits is False or s.status is not ReportStatus.IN_RANGE:
             return True
         return bool(s.flags and s.flags & (QuantFlag.UNBOUNDED_INTERVAL | QuantFlag.AMBIGUOUS_ROOT))

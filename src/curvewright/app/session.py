@@ -17,16 +17,22 @@ from pathlib import Path
 from PySide6.QtCore import QObject, QRunnable, QStandardPaths, QThreadPool, QTimer, Signal, Slot
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
-from ..core.comparison import ModelComparison
 from ..core.errors import CurvewrightError
 from ..core.run import Run
-from ..core.run_analysis import RunResult, analyse_run
 from ..io.audit import Identity, append_entry, identity_from
 from ..io.integrity import content_sha256
 from ..io.run_document import document_unchanged, open_recovery, open_run, save_recovery, save_run
 
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from ..core.comparison import ModelComparison
+    from ..core.run_analysis import RunResult
+
 DEBOUNCE_MS = 120
 """Edits closer together than this are analysed once."""
+DEFERRED_START_MS = 300
+"""A session made with ``defer_analysis`` starts its first analysis at the latest this long after the
+event loop runs, if no window has asked for it sooner."""
 RECOVERY_DELAY_MS = 400
 """The recovery file is written this long after the last change (at most this much work is at risk)."""
 
@@ -67,7 +73,10 @@ class AnalysisAnswer:
 
 def analyse_with_evidence(run: Run) -> tuple[RunResult, dict[str, ModelComparison | str]]:
     """The run's results and, per analyte, its model comparison (the run's one evidence, computed here
-    on the analysis thread so that the window only reads it)."""
+    on the analysis thread so that the window only reads it). The engine, and scipy with it, is
+    loaded here on the first call: on the analysis thread, while the window is being shown."""
+    from ..core.run_analysis import analyse_run
+
     result = analyse_run(run)
     return result, dict(result.evidence)
 
@@ -131,7 +140,7 @@ class RunSession(QObject):
 
     def __init__(self, run: Run, path: Path | None = None, *, recovery_folder: Path | None = None,
                  parent: QObject | None = None, disk_sha256: str | None = None,
-                 identity: Identity | None = None) -> None:
+                 identity: Identity | None = None, defer_analysis: bool = False) -> None:
         super().__init__(parent)
         self._run = run
         self._path = path
@@ -170,7 +179,16 @@ class RunSession(QObject):
         self._recovery_signals.failed.connect(self._on_recovery_failed)
         self._recovery_signals.written.connect(self._on_recovery_written)
         self._recovery_warned = False
-        self.request_analysis(immediate=True)
+        self._deferred_start = False
+        if defer_analysis:
+            # The window starts the first analysis once it has been painted (start_deferred_analysis),
+            # so that loading the engine on the analysis thread does not slow the first paint. Should
+            # no window ask for it, it starts shortly after the event loop runs.
+            self._generation += 1
+            self._deferred_start = True
+            QTimer.singleShot(DEFERRED_START_MS, self, self.start_deferred_analysis)
+        else:
+            self.request_analysis(immediate=True)
 
     # --- state -----------------------------------------------------------------------------------
     @property
@@ -308,11 +326,19 @@ class RunSession(QObject):
     # --- analysis ----------------------------------------------------------------------------------
     def request_analysis(self, immediate: bool = False) -> None:
         self._generation += 1
+        self._deferred_start = False
         if immediate:
             self._debounce.stop()
             self._start_analysis()
         else:
             self._debounce.start()
+
+    @Slot()
+    def start_deferred_analysis(self) -> None:
+        """Start the first analysis of a session made with ``defer_analysis`` (once; no-op after)."""
+        if self._deferred_start:
+            self._deferred_start = False
+            self._start_analysis()
 
     @Slot()
     def _start_analysis(self) -> None:
@@ -339,6 +365,7 @@ class RunSession(QObject):
     def wait_for_analysis(self, timeout_ms: int = 10000) -> bool:
         """Block until no analysis is pending (for scripts and benchmarks); answers arrive as queued
         signals, so the caller still has to let the event loop run once."""
+        self.start_deferred_analysis()
         if self._debounce.isActive():
             self._debounce.stop()
             self._start_analysis()
