@@ -33,9 +33,14 @@ class ResultsModel(QAbstractTableModel):
         super().__init__()
         self.result: RunResult | None = None
         self.analyte: AnalyteResult | None = None
+        self._texts: dict[int, tuple[str, ...]] = {}
+        self._attention: dict[int, bool] = {}
+        """Each row's cell texts and whether it needs attention, worked out once per result (a table
+        asks for the same cells many times: sizing its columns, painting, scrolling)."""
 
     def show(self, result: RunResult | None, analyte: str) -> None:
         self.beginResetModel()
+        self._texts, self._attention = {}, {}
         self.result = result
         try:
             self.analyte = result.analyte(analyte) if result is not None else None
@@ -73,14 +78,20 @@ class ResultsModel(QAbstractTableModel):
     def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):
         if not index.isValid():
             return None
-        s = self.rows[index.row()]
-        col = index.column()
+        row, col = index.row(), index.column()
         if role == Qt.ItemDataRole.DisplayRole:
-            return self.text(s, col)
+            texts = self._texts.get(row)
+            if texts is None:
+                s = self.rows[row]
+                texts = self._texts[row] = tuple(self.text(s, c) for c in range(len(COLUMNS)))
+            return texts[col]
         if role == Qt.ItemDataRole.ToolTipRole:
-            return self.description(s)
-        if role == Qt.ItemDataRole.BackgroundRole and self._needs_attention(s):
-            return QBrush(ATTENTION)
+            return self.description(self.rows[row])
+        if role == Qt.ItemDataRole.BackgroundRole:
+            attention = self._attention.get(row)
+            if attention is None:
+                attention = self._attention[row] = self._needs_attention(self.rows[row])
+            return QBrush(ATTENTION) if attention else None
         if role == Qt.ItemDataRole.TextAlignmentRole and col in NUMERIC:
             return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
         return None

@@ -3,8 +3,10 @@ background analysis. Widgets read from here and send every change through :meth:
 
 Each change is a new :class:`~curvewright.core.run.Run` (with its audit entry, made by
 :mod:`curvewright.io.run_edits`) pushed on a QUndoStack. Analysis runs on a worker thread: each
-request carries a generation number, rapid edits are debounced, and an answer for a run that is no
-longer current is dropped.
+request carries a generation number and an answer for a run that is no longer current is dropped.
+An analysis that took less than a frame last time is done at once on the GUI thread; a slower one
+starts on the worker thread as soon as the edit is made, and edits made while it runs are analysed
+together once it answers (so a burst of edits costs at most one analysis more than the last).
 """
 
 from __future__ import annotations
@@ -28,8 +30,8 @@ if TYPE_CHECKING:
     from ..core.comparison import ModelComparison
     from ..core.run_analysis import RunResult
 
-DEBOUNCE_MS = 120
-"""Edits closer together than this are analysed once."""
+FRAME_SECONDS = 1 / 60
+"""An analysis that took less than this (one frame at 60 Hz) is done at once on the GUI thread."""
 DEFERRED_START_MS = 300
 """A session made with ``defer_analysis`` starts its first analysis at the latest this long after the
 event loop runs, if no window has asked for it sooner."""
@@ -163,10 +165,8 @@ class RunSession(QObject):
         self._signals.done.connect(self._on_answer)
         self._pool = QThreadPool(self)
         self._pool.setMaxThreadCount(1)
-        self._debounce = QTimer(self)
-        self._debounce.setSingleShot(True)
-        self._debounce.setInterval(DEBOUNCE_MS)
-        self._debounce.timeout.connect(self._start_analysis)
+        self._running: int | None = None
+        """Generation of the analysis under way on the worker thread, if any."""
         self.recovery_folder = recovery_folder or default_recovery_folder()
         # the recovery file is written shortly after the last change, off the GUI thread
         self._recovery_timer = QTimer(self)
@@ -325,13 +325,17 @@ class RunSession(QObject):
 
     # --- analysis ----------------------------------------------------------------------------------
     def request_analysis(self, immediate: bool = False) -> None:
+        """Analyse the current run: at once on the GUI thread when the last analysis took less than a
+        frame, else on the worker thread (right away, or when the analysis under way answers).
+        ``immediate`` always uses the worker thread (the first analysis of a session)."""
         self._generation += 1
         self._deferred_start = False
-        if immediate:
-            self._debounce.stop()
-            self._start_analysis()
+        if self._running is not None:
+            return  # analysed when the analysis under way answers (see _on_answer)
+        if not immediate and self.result is not None and self.last_analysis_seconds < FRAME_SECONDS:
+            self._analyse_here()
         else:
-            self._debounce.start()
+            self._start_analysis()
 
     @Slot()
     def start_deferred_analysis(self) -> None:
@@ -342,7 +346,18 @@ class RunSession(QObject):
 
     @Slot()
     def _start_analysis(self) -> None:
+        self._running = self._generation
         self._pool.start(_AnalysisJob(self._run, self._generation, self._signals))
+
+    def _analyse_here(self) -> None:
+        """The analysis on the GUI thread, for runs that take less than a frame."""
+        start = time.perf_counter()
+        try:
+            result, evidence = analyse_with_evidence(self._run)
+            answer = AnalysisAnswer(self._generation, result, None, time.perf_counter() - start, evidence)
+        except Exception as exc:  # noqa: BLE001 - shown to the user in the status line
+            answer = AnalysisAnswer(self._generation, None, str(exc), time.perf_counter() - start)
+        self._on_answer(answer)
 
     @property
     def analysis_pending(self) -> bool:
@@ -351,8 +366,13 @@ class RunSession(QObject):
 
     @Slot(object)
     def _on_answer(self, answer: AnalysisAnswer) -> None:
+        if self._running == answer.generation:
+            self._running = None
         if answer.generation != self._generation:
-            return  # a newer edit is already being analysed
+            # a newer edit came while this was analysed: analyse the newest run now
+            if self._running is None and self._answered != self._generation:
+                self._start_analysis()
+            return
         self._answered = answer.generation
         self.last_analysis_seconds = answer.seconds
         if answer.result is None:
@@ -363,13 +383,16 @@ class RunSession(QObject):
         self.analysis_ready.emit(answer.result)
 
     def wait_for_analysis(self, timeout_ms: int = 10000) -> bool:
-        """Block until no analysis is pending (for scripts and benchmarks); answers arrive as queued
-        signals, so the caller still has to let the event loop run once."""
+        """Block until the latest run has been analysed (for scripts and benchmarks); answers arrive
+        as queued signals, so the caller still has to let the event loop run once."""
         self.start_deferred_analysis()
-        if self._debounce.isActive():
-            self._debounce.stop()
+        if not self._pool.waitForDone(timeout_ms):
+            return False
+        if self.analysis_pending and self._running != self._generation:
+            # the analysis that ran was of an earlier run (its answer is still queued): run the latest
             self._start_analysis()
-        return self._pool.waitForDone(timeout_ms)
+            return self._pool.waitForDone(timeout_ms)
+        return True
 
 
 def default_recovery_folder() -> Path:
