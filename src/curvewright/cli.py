@@ -24,7 +24,6 @@ import os
 import shlex
 import sys
 import traceback
-from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any, Mapping, Sequence
@@ -84,8 +83,8 @@ exit codes:
 
 
 def build_parser() -> argparse.ArgumentParser:
-    from .core.models import Model
-    from .core.weighting import Weighting
+    from .core.model_kinds import Model
+    from .core.weighting_kinds import Weighting
 
     parser = argparse.ArgumentParser(
         prog="curvewright",
@@ -335,6 +334,8 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
     progress = _Progress(len(paths)) if len(paths) > 1 else None
     settings = _options(args)
     if args.jobs > 1 and len(paths) > 1:
+        from concurrent.futures import ProcessPoolExecutor
+
         with ProcessPoolExecutor(max_workers=args.jobs) as pool:
             outcomes = []
             for path, outcome in zip(paths, pool.map(_quantify_file, paths, [settings] * len(paths))):

@@ -8,9 +8,11 @@ import pyqtgraph as pg
 from PySide6.QtCore import QPointF, Qt, Signal
 from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QToolTip, QVBoxLayout, QWidget
 
-from ..core.run_analysis import AnalyteResult, response_value
-from ..io.model_outputs import curve_words
 from . import figures
+
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from ..core.run_analysis import AnalyteResult
 
 
 def _reset(plot: pg.PlotItem, legend: pg.LegendItem | None = None) -> None:
@@ -90,6 +92,8 @@ class CurveView(QWidget):
             self._fit_legends()
             return
         self.empty_note.setText("")
+        from ..io.model_outputs import curve_words  # the engine loads on the analysis thread, not with the window
+
         self.curve_words.setText(curve_words(a.calibration, a.analyte.uses_internal_standard))
         log_x = self.log_axis.isChecked()
         figures.draw_curve(self.curve_plot, a, legend=self.curve_legend, level=self.level,
@@ -113,6 +117,8 @@ class CurveView(QWidget):
             legend.setFixedWidth(width)
 
     def _points(self, a: AnalyteResult, log_x: bool) -> list[tuple[float, float, str]]:
+        from ..core.run_analysis import response_value
+
         cal = a.calibration
         log_y = log_x and bool(np.all(cal.response > 0))
 

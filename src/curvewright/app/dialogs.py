@@ -15,7 +15,6 @@ from ..core.acceptance import available_profiles, load_profile
 from ..core.errors import CurvewrightError
 from ..core.rounding import RoundingRule
 from ..core.run import Analyte, Run
-from ..core.run_analysis import analyse_run
 from ..io import run_edits
 from ..io.audit import Identity
 from ..io.importing import ImportResult, import_samples, import_standards
@@ -87,6 +86,8 @@ class ReasonDialog(QDialog):
 
 def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
     """A side-by-side of the calibration before and after a change, shown before it is committed."""
+    from ..core.run_analysis import analyse_run
+
     rows = []
     results = []
     for run in (before, after):

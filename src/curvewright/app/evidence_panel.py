@@ -8,9 +8,12 @@ from PySide6.QtGui import QFont
 from PySide6.QtWidgets import (QAbstractItemView, QHBoxLayout, QLabel, QPushButton, QTableWidget, QTableWidgetItem,
                                QTextBrowser, QVBoxLayout, QWidget)
 
-from ..core.comparison import ModelComparison
 from ..core.run import Analyte
 from ..io.result_tables import display_number
+
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from ..core.comparison import ModelComparison
 
 HEADERS = ("Model", "Weighting", "Residual SD", "Adjusted R²", "Lack-of-fit p", "Mandel p", "Σ|%RE|",
            "Standards failing", "AICc", "Recommended", "Chosen")
@@ -48,6 +51,8 @@ class EvidencePanel(QWidget):
     def show_evidence(self, evidence: ModelComparison | str | None, analyte: Analyte, method=None) -> None:  # type: ignore[no-untyped-def]
         """The candidates and the recommendation; with a validated ``method`` that fixes the analyte's model,
         the recommendation is shown for information only."""
+        from ..core.comparison import ModelComparison
+
         self.comparison = evidence if isinstance(evidence, ModelComparison) else None
         self.table.setRowCount(0)
         fixed = method.analyte(analyte.name) if method is not None else None

@@ -22,13 +22,14 @@ from PySide6.QtCore import Qt
 from PySide6.QtGui import QColor, QFont, QImage
 from PySide6.QtWidgets import QWidget
 
-from ..core.curve_trace import curve_trace
 from ..core.influence import HIGH_LEVERAGE, influence_boundary
 from ..core.run import SampleKind
-from ..core.run_analysis import AnalyteResult
-from ..core.run_analysis import response_value
 from . import palette
 from .qt_runtime import ensure_application
+
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from ..core.run_analysis import AnalyteResult
 
 
 def styled_plot(plot: pg.PlotItem, x_label: str, y_label: str, font_size: int = 10) -> pg.PlotItem:
@@ -115,6 +116,9 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
                font_size: int = 10) -> None:
     """Fill ``plot`` with the calibration view of one analyte (zero concentrations are left off a log axis);
     its entries go into ``legend``, which the caller places outside the plot."""
+    from ..core.curve_trace import curve_trace  # the engine is loaded by the time a result is drawn
+    from ..core.run_analysis import response_value
+
     cal = a.calibration
     unit = a.analyte.concentration_unit
     styled_plot(plot, f"Concentration ({unit})" if unit else "Concentration",

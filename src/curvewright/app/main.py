@@ -87,9 +87,11 @@ def build_window(path: Path | None = None, *, settings: QSettings | None = None,
     problems: tuple[str, ...] = ()
     if session is None:
         if path is not None:
-            session, problems = RunSession.open(path, recovery_folder=recovery_folder, identity=identity)
+            session, problems = RunSession.open(path, recovery_folder=recovery_folder, identity=identity,
+                                                defer_analysis=True)
         else:
-            session = RunSession(blank_run(settings), recovery_folder=recovery_folder, identity=identity)
+            session = RunSession(blank_run(settings), recovery_folder=recovery_folder, identity=identity,
+                                 defer_analysis=True)
     window = MainWindow(session, settings)
     if path is not None:
         window._remember(path)

@@ -14,7 +14,7 @@ from pathlib import Path
 from typing import Callable
 
 import shiboken6
-from PySide6.QtCore import QSettings, Qt
+from PySide6.QtCore import QSettings, Qt, QTimer
 from PySide6.QtGui import QAction, QKeySequence
 from PySide6.QtWidgets import (QComboBox, QFileDialog, QHBoxLayout, QLabel, QMainWindow, QMenu,
                                QMessageBox, QProgressDialog, QPushButton, QSplitter, QTabWidget, QVBoxLayout,
@@ -23,7 +23,6 @@ from PySide6.QtWidgets import (QComboBox, QFileDialog, QHBoxLayout, QLabel, QMai
 from .. import CAUTION, __version__
 from ..core.errors import CurvewrightError
 from ..core.run import Analyte, Run
-from ..core.run_analysis import RunResult
 from ..io import run_edits
 from ..io.atomic import write_atomically
 from ..io.errors import ExportError
@@ -41,6 +40,10 @@ from .additions_view import AdditionsView
 from .session import RunSession
 from .standards_model import StandardsModel
 from .table_view import SheetTableView, fit_columns
+
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from ..core.run_analysis import RunResult
 
 MAX_RECENT = 8
 def blank_run(settings: QSettings | None = None) -> Run:
@@ -180,6 +183,13 @@ class MainWindow(QMainWindow):
     def showEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().showEvent(event)
         self._split_placed = True
+
+    def paintEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().paintEvent(event)
+        if not getattr(self, "_painted", False):
+            # the first analysis of an opened run starts once the window is on screen (see RunSession)
+            self._painted = True
+            QTimer.singleShot(0, self, self.session.start_deferred_analysis)
 
     def _menus(self) -> None:
         def action(menu: QMenu, name: str, text: str, slot: Callable[[], object], shortcut=None) -> QAction:  # type: ignore[no-untyped-def]

@@ -100,9 +100,15 @@ class Metrics:
 
     def __init__(self, device) -> None:  # type: ignore[no-untyped-def]
         self.metrics = {name: QFontMetricsF(font(name), device) for name in STYLES}
+        self._widths: dict[tuple[str, str], float] = {}
 
     def width(self, style: str, text: str) -> float:
-        return self.metrics[style].horizontalAdvance(text)
+        # a record measures the same words many times over (wrapping, column widths, row heights)
+        key = (style, text)
+        found = self._widths.get(key)
+        if found is None:
+            found = self._widths[key] = self.metrics[style].horizontalAdvance(text)
+        return found
 
     def line_height(self, style: str) -> float:
         return self.metrics[style].lineSpacing()

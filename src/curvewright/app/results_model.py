@@ -13,11 +13,12 @@ from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtGui import QBrush, QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QLabel, QVBoxLayout, QWidget
 
-from ..core.inverse import INTERVAL_SCOPE_NOTE, QuantFlag
-from ..core.reporting import ReportStatus
-from ..core.run_analysis import AnalyteResult, RunResult, SampleResult
 from ..io.result_tables import display_number, interval_text
 from .table_view import FittedTableView, fit_columns
+
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from ..core.run_analysis import AnalyteResult, RunResult, SampleResult
 
 COLUMNS = ("Sample", "Reported", "Interval", "Flags", "Kind", "QC / check", "n", "Mean response",
            "Estimate", "Dilution", "Value × dilution")
@@ -32,9 +33,14 @@ class ResultsModel(QAbstractTableModel):
         super().__init__()
         self.result: RunResult | None = None
         self.analyte: AnalyteResult | None = None
+        self._texts: dict[int, tuple[str, ...]] = {}
+        self._attention: dict[int, bool] = {}
+        """Each row's cell texts and whether it needs attention, worked out once per result (a table
+        asks for the same cells many times: sizing its columns, painting, scrolling)."""
 
     def show(self, result: RunResult | None, analyte: str) -> None:
         self.beginResetModel()
+        self._texts, self._attention = {}, {}
         self.result = result
         try:
             self.analyte = result.analyte(analyte) if result is not None else None
@@ -54,6 +60,8 @@ class ResultsModel(QAbstractTableModel):
 
     def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole):  # noqa: N802
         if role == Qt.ItemDataRole.ToolTipRole and orientation == Qt.Orientation.Horizontal and section == INTERVAL:
+            from ..core.inverse import INTERVAL_SCOPE_NOTE  # the engine loads on the analysis thread
+
             return INTERVAL_SCOPE_NOTE
         if role != Qt.ItemDataRole.DisplayRole:
             return None
@@ -70,19 +78,28 @@ class ResultsModel(QAbstractTableModel):
     def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):
         if not index.isValid():
             return None
-        s = self.rows[index.row()]
-        col = index.column()
+        row, col = index.row(), index.column()
         if role == Qt.ItemDataRole.DisplayRole:
-            return self.text(s, col)
+            texts = self._texts.get(row)
+            if texts is None:
+                s = self.rows[row]
+                texts = self._texts[row] = tuple(self.text(s, c) for c in range(len(COLUMNS)))
+            return texts[col]
         if role == Qt.ItemDataRole.ToolTipRole:
-            return self.description(s)
-        if role == Qt.ItemDataRole.BackgroundRole and self._needs_attention(s):
-            return QBrush(ATTENTION)
+            return self.description(self.rows[row])
+        if role == Qt.ItemDataRole.BackgroundRole:
+            attention = self._attention.get(row)
+            if attention is None:
+                attention = self._attention[row] = self._needs_attention(self.rows[row])
+            return QBrush(ATTENTION) if attention else None
         if role == Qt.ItemDataRole.TextAlignmentRole and col in NUMERIC:
             return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
         return None
 
     def _needs_attention(self, s: SampleResult) -> bool:
+        from ..core.inverse import QuantFlag  # loaded: rows exist only once a result has arrived
+        from ..core.reporting import ReportStatus
+
         if s.within_limits is False or s.status is not ReportStatus.IN_RANGE:
             return True
         return bool(s.flags and s.flags & (QuantFlag.UNBOUNDED_INTERVAL | QuantFlag.AMBIGUOUS_ROOT))

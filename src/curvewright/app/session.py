@@ -3,8 +3,10 @@ background analysis. Widgets read from here and send every change through :meth:
 
 Each change is a new :class:`~curvewright.core.run.Run` (with its audit entry, made by
 :mod:`curvewright.io.run_edits`) pushed on a QUndoStack. Analysis runs on a worker thread: each
-request carries a generation number, rapid edits are debounced, and an answer for a run that is no
-longer current is dropped.
+request carries a generation number and an answer for a run that is no longer current is dropped.
+An analysis that took less than a frame last time is done at once on the GUI thread; a slower one
+starts on the worker thread as soon as the edit is made, and edits made while it runs are analysed
+together once it answers (so a burst of edits costs at most one analysis more than the last).
 """
 
 from __future__ import annotations
@@ -17,16 +19,22 @@ from pathlib import Path
 from PySide6.QtCore import QObject, QRunnable, QStandardPaths, QThreadPool, QTimer, Signal, Slot
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
-from ..core.comparison import ModelComparison
 from ..core.errors import CurvewrightError
 from ..core.run import Run
-from ..core.run_analysis import RunResult, analyse_run
 from ..io.audit import Identity, append_entry, identity_from
 from ..io.integrity import content_sha256
 from ..io.run_document import document_unchanged, open_recovery, open_run, save_recovery, save_run
 
-DEBOUNCE_MS = 120
-"""Edits closer together than this are analysed once."""
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from ..core.comparison import ModelComparison
+    from ..core.run_analysis import RunResult
+
+FRAME_SECONDS = 1 / 60
+"""An analysis that took less than this (one frame at 60 Hz) is done at once on the GUI thread."""
+DEFERRED_START_MS = 300
+"""A session made with ``defer_analysis`` starts its first analysis at the latest this long after the
+event loop runs, if no window has asked for it sooner."""
 RECOVERY_DELAY_MS = 400
 """The recovery file is written this long after the last change (at most this much work is at risk)."""
 
@@ -67,7 +75,10 @@ class AnalysisAnswer:
 
 def analyse_with_evidence(run: Run) -> tuple[RunResult, dict[str, ModelComparison | str]]:
     """The run's results and, per analyte, its model comparison (the run's one evidence, computed here
-    on the analysis thread so that the window only reads it)."""
+    on the analysis thread so that the window only reads it). The engine, and scipy with it, is
+    loaded here on the first call: on the analysis thread, while the window is being shown."""
+    from ..core.run_analysis import analyse_run
+
     result = analyse_run(run)
     return result, dict(result.evidence)
 
@@ -131,7 +142,7 @@ class RunSession(QObject):
 
     def __init__(self, run: Run, path: Path | None = None, *, recovery_folder: Path | None = None,
                  parent: QObject | None = None, disk_sha256: str | None = None,
-                 identity: Identity | None = None) -> None:
+                 identity: Identity | None = None, defer_analysis: bool = False) -> None:
         super().__init__(parent)
         self._run = run
         self._path = path
@@ -154,10 +165,8 @@ class RunSession(QObject):
         self._signals.done.connect(self._on_answer)
         self._pool = QThreadPool(self)
         self._pool.setMaxThreadCount(1)
-        self._debounce = QTimer(self)
-        self._debounce.setSingleShot(True)
-        self._debounce.setInterval(DEBOUNCE_MS)
-        self._debounce.timeout.connect(self._start_analysis)
+        self._running: int | None = None
+        """Generation of the analysis under way on the worker thread, if any."""
         self.recovery_folder = recovery_folder or default_recovery_folder()
         # the recovery file is written shortly after the last change, off the GUI thread
         self._recovery_timer = QTimer(self)
@@ -170,7 +179,16 @@ class RunSession(QObject):
         self._recovery_signals.failed.connect(self._on_recovery_failed)
         self._recovery_signals.written.connect(self._on_recovery_written)
         self._recovery_warned = False
-        self.request_analysis(immediate=True)
+        self._deferred_start = False
+        if defer_analysis:
+            # The window starts the first analysis once it has been painted (start_deferred_analysis),
+            # so that loading the engine on the analysis thread does not slow the first paint. Should
+            # no window ask for it, it starts shortly after the event loop runs.
+            self._generation += 1
+            self._deferred_start = True
+            QTimer.singleShot(DEFERRED_START_MS, self, self.start_deferred_analysis)
+        else:
+            self.request_analysis(immediate=True)
 
     # --- state -----------------------------------------------------------------------------------
     @property
@@ -307,16 +325,39 @@ class RunSession(QObject):
 
     # --- analysis ----------------------------------------------------------------------------------
     def request_analysis(self, immediate: bool = False) -> None:
+        """Analyse the current run: at once on the GUI thread when the last analysis took less than a
+        frame, else on the worker thread (right away, or when the analysis under way answers).
+        ``immediate`` always uses the worker thread (the first analysis of a session)."""
         self._generation += 1
-        if immediate:
-            self._debounce.stop()
-            self._start_analysis()
+        self._deferred_start = False
+        if self._running is not None:
+            return  # analysed when the analysis under way answers (see _on_answer)
+        if not immediate and self.result is not None and self.last_analysis_seconds < FRAME_SECONDS:
+            self._analyse_here()
         else:
-            self._debounce.start()
+            self._start_analysis()
+
+    @Slot()
+    def start_deferred_analysis(self) -> None:
+        """Start the first analysis of a session made with ``defer_analysis`` (once; no-op after)."""
+        if self._deferred_start:
+            self._deferred_start = False
+            self._start_analysis()
 
     @Slot()
     def _start_analysis(self) -> None:
+        self._running = self._generation
         self._pool.start(_AnalysisJob(self._run, self._generation, self._signals))
+
+    def _analyse_here(self) -> None:
+        """The analysis on the GUI thread, for runs that take less than a frame."""
+        start = time.perf_counter()
+        try:
+            result, evidence = analyse_with_evidence(self._run)
+            answer = AnalysisAnswer(self._generation, result, None, time.perf_counter() - start, evidence)
+        except Exception as exc:  # noqa: BLE001 - shown to the user in the status line
+            answer = AnalysisAnswer(self._generation, None, str(exc), time.perf_counter() - start)
+        self._on_answer(answer)
 
     @property
     def analysis_pending(self) -> bool:
@@ -325,8 +366,13 @@ class RunSession(QObject):
 
     @Slot(object)
     def _on_answer(self, answer: AnalysisAnswer) -> None:
+        if self._running == answer.generation:
+            self._running = None
         if answer.generation != self._generation:
-            return  # a newer edit is already being analysed
+            # a newer edit came while this was analysed: analyse the newest run now
+            if self._running is None and self._answered != self._generation:
+                self._start_analysis()
+            return
         self._answered = answer.generation
         self.last_analysis_seconds = answer.seconds
         if answer.result is None:
@@ -337,12 +383,16 @@ class RunSession(QObject):
         self.analysis_ready.emit(answer.result)
 
     def wait_for_analysis(self, timeout_ms: int = 10000) -> bool:
-        """Block until no analysis is pending (for scripts and benchmarks); answers arrive as queued
-        signals, so the caller still has to let the event loop run once."""
-        if self._debounce.isActive():
-            self._debounce.stop()
+        """Block until the latest run has been analysed (for scripts and benchmarks); answers arrive
+        as queued signals, so the caller still has to let the event loop run once."""
+        self.start_deferred_analysis()
+        if not self._pool.waitForDone(timeout_ms):
+            return False
+        if self.analysis_pending and self._running != self._generation:
+            # the analysis that ran was of an earlier run (its answer is still queued): run the latest
             self._start_analysis()
-        return self._pool.waitForDone(timeout_ms)
+            return self._pool.waitForDone(timeout_ms)
+        return True
 
 
 def default_recovery_folder() -> Path:

@@ -15,12 +15,15 @@ from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, Signal
 from PySide6.QtGui import QBrush, QColor, QFont
 
 from ..core.run import Analyte, Reading, Run, RunError, Standard
-from ..core.run_analysis import AnalyteResult
 from ..io import run_edits
 from ..io.paste import PastedBlock
 from .cells import display_reading, number_from_text, reading_from_text, reading_problem
 from .session import RunSession
 from .table_view import ReasonProvider, RowCache, ask_reason_when_required
+
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from ..core.run_analysis import AnalyteResult
 
 COLUMNS = ("Id", "Level", "Rep.", "Nominal", "Response", "IS response", "Back-calc.", "%RE", "Within limits",
            "In fit", "Influence", "Exclusion reason")

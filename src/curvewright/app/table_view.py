@@ -28,12 +28,26 @@ def ask_reason_when_required(update: Callable[..., T], provider: ReasonProvider 
         return update(reason)
 
 
+FIT_EVERY_ROW_UP_TO = 200
+"""Tables up to this many rows are fitted to every row; longer ones to the rows in view, and widened
+as more rows scroll into view (:func:`widen_to_rows_in_view`), so that measuring thousands of cells
+never holds up a redraw."""
+
+
 def fit_columns(view: QTableView) -> None:
-    """Widen each column to its header and the cells in view, so that no text is cut to "…", then let
-    the last column take any room left (see :func:`fill_last_column`)."""
-    if view.model() is None:
+    """Widen each column to its header and its cells, so that no text is cut to "…", then let the
+    last column take any room left (see :func:`fill_last_column`). A long table is fitted to the rows
+    in view; its columns widen as other rows come into view."""
+    model = view.model()
+    if model is None:
         return
-    view.horizontalHeader().setStretchLastSection(False)
+    long_table = model.rowCount() > FIT_EVERY_ROW_UP_TO
+    if long_table and isinstance(view, FittedTableView) and not view.isVisible():
+        view.fit_when_shown = True  # a hidden table has no rows in view: it is fitted when shown
+        return
+    header = view.horizontalHeader()
+    header.setStretchLastSection(False)
+    header.setResizeContentsPrecision(0 if long_table else -1)
     view.resizeColumnsToContents()
     view.setProperty("fitted_last_width", None)
     fill_last_column(view)
@@ -59,8 +73,41 @@ def fill_last_column(view: QTableView) -> None:
     view.setColumnWidth(last, max(int(natural), view.viewport().width() - others))
 
 
+def widen_to_rows_in_view(view: QTableView) -> None:
+    """Widen the columns that are narrower than a cell now in view (a long table's columns are fitted
+    to the rows in view only; see :func:`fit_columns`). Columns never narrow here."""
+    model = view.model()
+    if model is None or model.rowCount() <= FIT_EVERY_ROW_UP_TO:
+        return
+    shown = [c for c in range(model.columnCount()) if not view.isColumnHidden(c)]
+    if not shown:
+        return
+    last = shown[-1]
+    for c in shown:
+        need = view.sizeHintForColumn(c)
+        if c == last:
+            natural = view.property("fitted_last_width")
+            if natural is not None and need > int(natural):
+                view.setProperty("fitted_last_width", need)
+                fill_last_column(view)
+        elif need > view.columnWidth(c):
+            view.setColumnWidth(c, need)
+
+
 class FittedTableView(QTableView):
-    """A table whose last column fills the room left whenever the table changes size."""
+    """A table whose last column fills the room left whenever the table changes size, and whose
+    columns widen when a wider cell scrolls into view."""
+
+    def __init__(self, parent=None) -> None:  # type: ignore[no-untyped-def]
+        super().__init__(parent)
+        self.fit_when_shown = False
+        self.verticalScrollBar().valueChanged.connect(lambda _value: widen_to_rows_in_view(self))
+
+    def showEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().showEvent(event)
+        if self.fit_when_shown:
+            self.fit_when_shown = False
+            fit_columns(self)
 
     def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().resizeEvent(event)

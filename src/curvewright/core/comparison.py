@@ -50,7 +50,6 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import special
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
 from ._arrays import as_finite_vector
@@ -462,6 +461,8 @@ def _intercept_note(chosen: Candidate) -> list[str]:
     if cal.model is not Model.LINEAR:
         return []
     t_value = cal.coefficients[0] / cal.standard_errors[0] if cal.standard_errors[0] > 0 else np.inf
+    from scipy import special  # loaded on first use: importing the engine stays light
+
     p = float(2 * special.stdtr(cal.df_residual, -abs(t_value)))
     if p >= 0.05:
         return [

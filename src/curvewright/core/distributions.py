@@ -7,19 +7,23 @@ Student's t quantile: ``stdtrit``; F upper tail and quantile: ``fdtrc`` and ``fd
 
 from __future__ import annotations
 
-from scipy import special
-
 
 def t_quantile(probability: float, df: float) -> float:
     """q such that P(T ≤ q) = probability for Student's t with ``df`` degrees of freedom."""
+    from scipy import special  # loaded on first use: importing the engine stays light
+
     return float(special.stdtrit(df, probability))
 
 
 def f_upper_tail(value: float, df1: float, df2: float) -> float:
     """P(F > value) for the F distribution with (df1, df2) degrees of freedom."""
+    from scipy import special  # loaded on first use: importing the engine stays light
+
     return float(special.fdtrc(df1, df2, value))
 
 
 def f_quantile(probability: float, df1: float, df2: float) -> float:
     """q such that P(F ≤ q) = probability."""
+    from scipy import special  # loaded on first use: importing the engine stays light
+
     return float(special.fdtri(df1, df2, probability))

@@ -12,7 +12,6 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy import special
 
 from ._arrays import FloatArray, as_confidence_level, as_whole_count
 from .distributions import t_quantile
@@ -238,6 +237,8 @@ class FittedCurve:
         with np.errstate(invalid="ignore", divide="ignore"):
             share = np.where(total > 0, new_variance / total, 0.0)
         relative = 2.0 / self.df_residual + share**2 * fit.shape_variance(concentration)
+        from scipy import special  # loaded on first use: importing the engine stays light
+
         return special.stdtrit(2.0 / relative, probability)
 
     def _t(self, level: float) -> float:

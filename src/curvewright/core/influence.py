@@ -51,7 +51,6 @@ from dataclasses import dataclass, field
 from enum import Enum
 
 import numpy as np
-from scipy import special
 
 from ._arrays import FloatArray, frozen
 from .least_squares import ROUNDOFF
@@ -155,6 +154,8 @@ def measure_influence(
         external = np.where(full | (df <= 1), np.nan, 0.0)
         cooks = np.where(full, np.nan, 0.0)
     if df > 1:
+        from scipy import special  # loaded on first use: importing the engine stays light
+
         studentized_threshold = float(special.stdtrit(df - 1, 1.0 - OUTLIER_ALPHA / (2 * n)))
         cooks_threshold = float(special.fdtri(p, df, COOKS_QUANTILE))
         influence_thresholds = influence_limit(leverage, p, n)
@@ -201,6 +202,8 @@ def influence_limit(leverage: FloatArray, n_parameters: int, n_standards: int) -
         return np.full(h.shape, np.nan)
     share = INFLUENCE_ALPHA * h / (2 * n_parameters)
     with np.errstate(divide="ignore"):
+        from scipy import special  # loaded on first use: importing the engine stays light
+
         return special.stdtrit(df - 1, 1.0 - np.maximum(share, 1e-300))
 
 

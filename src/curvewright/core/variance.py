@@ -35,7 +35,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import optimize, special
 
 from ._arrays import FloatArray
 from .distributions import f_quantile, f_upper_tail
@@ -186,8 +185,12 @@ def _pooled_power_test(
     elif score(high) >= 0.0:
         theta = high
     else:
+        from scipy import optimize  # loaded only when a root is searched: most runs never need it
+
         theta = float(optimize.brentq(score, low, high, xtol=1e-12))
     ratio = max(2.0 * (profile(theta) - profile(0.0)), 0.0)
+    from scipy import special  # loaded on first use: importing the engine stays light
+
     two_sided = float(special.chdtrc(1, ratio))
     p_value = 0.5 * two_sided if theta > 0 else 1.0 - 0.5 * two_sided
     half = 1.959963984540054 / np.sqrt(2.0 * spread)
@@ -232,6 +235,8 @@ def bartlett_statistic(*groups: FloatArray) -> tuple[float, float]:
     numerator = (total - k) * np.log(pooled) - np.sum((n - 1) * np.log(var))
     denominator = 1 + (np.sum(1 / (n - 1)) - 1 / (total - k)) / (3 * (k - 1))
     statistic = float(numerator / denominator)
+    from scipy import special  # loaded on first use: importing the engine stays light
+
     return statistic, float(special.chdtrc(k - 1, statistic))
 
 

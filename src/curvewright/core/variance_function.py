@@ -46,7 +46,6 @@ from dataclasses import dataclass
 from functools import cached_property
 
 import numpy as np
-from scipy import optimize
 
 from ._arrays import FloatArray
 from .errors import CalibrationInputError, WeightingError
@@ -282,6 +281,8 @@ def _power(squared: FloatArray, mean: FloatArray) -> float:
         return low
     if score(high) >= 0.0:
         return high
+    from scipy import optimize  # loaded only when a root is searched: most runs never need it
+
     return float(optimize.brentq(score, low, high, xtol=1e-14, rtol=4 * np.finfo(float).eps))
 
 
@@ -306,5 +307,7 @@ def _kappa(squared: FloatArray, mean: FloatArray) -> float:
     if 0 < best < grid.size - 1:
         left, right = float(grid[best - 1]), float(grid[best + 1])
         if slope(left) < 0.0 < slope(right):
+            from scipy import optimize  # loaded only when a root is searched: most runs never need it
+
             u = float(optimize.brentq(slope, left, right, xtol=1e-14, rtol=4 * np.finfo(float).eps))
     return reference * float(np.exp(u))

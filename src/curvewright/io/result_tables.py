@@ -14,14 +14,16 @@ from typing import Any
 import numpy as np
 
 from .. import CAUTION, __version__
-from ..core.comparison import mandel_test
-from ..core.calibration import Calibration, fit
 from ..core.errors import CurvewrightError
 from ..core.models import Model
 from ..core.rounding import RoundingRule
 from ..core.reporting import ReportStatus
-from ..core.run_analysis import AnalyteResult, RunResult, response_value
 from .audit import verify_chain
+
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from ..core.calibration import Calibration
+    from ..core.run_analysis import AnalyteResult, RunResult
 
 Value = str | float | int | None
 
@@ -285,6 +287,8 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
         Column("Studentized residual", kind="number", display="signed:2"), Column("Influence flags"), Column("Included"),
         Column("Exclusion reason"),
     )
+    from ..core.run_analysis import response_value
+
     position = {s.id: i for i, s in enumerate(a.fitted_standards)}
     rows = []
     for s in an.standards:
@@ -541,6 +545,9 @@ def _chooser(result: RunResult, analyte: str) -> str:
 
 
 def _mandel(cal: Calibration) -> tuple[Any, Any]:
+    from ..core.calibration import fit
+    from ..core.comparison import mandel_test
+
     if not cal.model.has_intercept:
         return "not applicable to a line through the origin", None
     try:

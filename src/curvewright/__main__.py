@@ -1,0 +1,29 @@
+"""The ``curvewright`` program (also ``python -m curvewright``).
+
+``curvewright --version`` answers here, from the version string alone, without loading the command
+line, the engine or the app. Everything else goes to :func:`curvewright.cli.main`.
+"""
+
+from __future__ import annotations
+
+import sys
+
+TYPE_CHECKING = False
+if TYPE_CHECKING:
+    from collections.abc import Sequence
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    args = list(sys.argv[1:] if argv is None else argv)
+    if args == ["--version"]:
+        from ._version import __version__
+
+        print(f"curvewright {__version__}")  # the same line as argparse's --version in cli.build_parser
+        return 0
+    from .cli import main as run_command
+
+    return run_command(args)
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,113 @@
+"""Edit → redraw: a fast run is analysed at once, a slow one on the analysis thread without waiting
+for a timer, and edits made while it runs are analysed together; long tables are fitted to the rows
+in view and widen as wider rows scroll into view. How long a redraw takes is measured in
+``benchmarks/bench_edit_redraw.py``."""
+
+from __future__ import annotations
+
+from PySide6.QtGui import QStandardItem, QStandardItemModel
+
+from curvewright.app import session as session_module
+from curvewright.app.table_view import FIT_EVERY_ROW_UP_TO, FittedTableView, fit_columns
+from curvewright.io import run_edits
+from tests.app.conftest import DEMOS, settle
+
+WEIGHTED = next(p for p in DEMOS if "weighted" in p.stem)
+
+
+def changed_response(run, k: int):  # type: ignore[no-untyped-def]
+    """The run with its first standard's response changed (a new value for each k), with a reason."""
+    from dataclasses import replace
+
+    from curvewright.core.run import Reading
+
+    analyte = run.analytes[0]
+    first = analyte.standards[0]
+    changed = replace(first, response=Reading.of(float(first.response.value) * (1 + 0.001 * k)))
+    return run_edits.update_standards(run, analyte.name, (changed, *analyte.standards[1:]), "typed",
+                                      reason="re-read from the instrument")
+
+
+def test_a_run_that_fits_within_a_frame_is_analysed_at_once(make_window, monkeypatch) -> None:
+    window = make_window(WEIGHTED)
+    session = window.session
+    session.last_analysis_seconds = 0.0  # as if the last fit took less than a frame
+    calls = []
+    real = session_module.analyse_with_evidence
+    monkeypatch.setattr(session_module, "analyse_with_evidence", lambda run: calls.append(run) or real(run))
+    session.apply(changed_response(session.run, 1), "Change a response")
+    # no event loop has run: the answer is already there, and the views show it
+    assert calls == [session.run]
+    assert not session.analysis_pending and session.result.run is session.run
+    assert window.results_model.rowCount() > 0
+
+
+def test_a_slow_run_goes_to_the_analysis_thread_and_a_burst_of_edits_is_analysed_together(
+        qtbot, make_window, monkeypatch) -> None:
+    window = make_window(WEIGHTED)
+    session = window.session
+    session.last_analysis_seconds = 1.0  # as if the last fit took a second
+    analysed = []
+    real = session_module.analyse_with_evidence
+    monkeypatch.setattr(session_module, "analyse_with_evidence", lambda run: analysed.append(run) or real(run))
+    for k in range(1, 6):
+        session.apply(changed_response(session.run, k), "Change a response")
+    assert session.analysis_pending  # started on the analysis thread, nothing waited for a timer
+    settle(qtbot, window)
+    # the first edit's run, then (once it answered) only the newest: never one analysis per edit
+    assert len(analysed) <= 2 and analysed[-1] is session.run
+    assert session.result.run is session.run
+
+
+def table_of(texts: list[str]) -> QStandardItemModel:
+    model = QStandardItemModel(len(texts), 2)
+    for r, text in enumerate(texts):
+        model.setItem(r, 0, QStandardItem(text))
+        model.setItem(r, 1, QStandardItem("x"))
+    return model
+
+
+def needed(view: FittedTableView, text: str) -> int:
+    return view.fontMetrics().horizontalAdvance(text)
+
+
+def test_a_short_table_is_fitted_to_every_row(qtbot) -> None:
+    texts = ["a"] * (FIT_EVERY_ROW_UP_TO - 1) + ["a much longer sample name, far below the rows in view"]
+    view = FittedTableView()
+    qtbot.addWidget(view)
+    view.setModel(table_of(texts))
+    view.resize(400, 200)
+    view.show()
+    qtbot.waitExposed(view)
+    fit_columns(view)
+    assert view.columnWidth(0) >= needed(view, texts[-1])
+
+
+def test_a_long_table_widens_as_wider_rows_scroll_into_view(qtbot) -> None:
+    long_text = "a much longer sample name, far below the rows in view"
+    texts = ["a"] * (5 * FIT_EVERY_ROW_UP_TO) + [long_text]
+    view = FittedTableView()
+    qtbot.addWidget(view)
+    view.setModel(table_of(texts))
+    view.resize(400, 200)
+    view.show()
+    qtbot.waitExposed(view)
+    fit_columns(view)
+    assert view.columnWidth(0) < needed(view, long_text)  # fitted to the rows in view only
+    view.scrollToBottom()
+    assert view.columnWidth(0) >= needed(view, long_text)  # widened once the row is in view
+    view.scrollToTop()
+    assert view.columnWidth(0) >= needed(view, long_text)  # and never narrowed again while scrolling
+
+
+def test_a_hidden_long_table_is_fitted_when_shown(qtbot) -> None:
+    texts = ["b" * 30] * (2 * FIT_EVERY_ROW_UP_TO)
+    view = FittedTableView()
+    qtbot.addWidget(view)
+    view.setModel(table_of(texts))
+    view.resize(500, 200)
+    fit_columns(view)  # hidden: nothing measured yet
+    assert view.fit_when_shown
+    view.show()
+    qtbot.waitExposed(view)
+    assert not view.fit_when_shown and view.columnWidth(0) >= needed(view, texts[0])

@@ -1,0 +1,96 @@
+"""Start-up: each command loads only what it uses.
+
+``curvewright --version`` and ``--help`` load neither numpy nor scipy; ``quantify RUN --json`` loads
+nothing of Qt, pyqtgraph or openpyxl (nor scipy.optimize, which no run of the demo needs); an export
+loads the library it writes with. Checked in a fresh process with ``python -X importtime``, which
+lists every module the process imported. How long start-up takes is measured in
+``benchmarks/bench_cli_start.py``, not here.
+"""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+import curvewright
+from curvewright import __version__
+
+ROOT = Path(__file__).resolve().parents[1]
+RUN = ROOT / "sample_runs" / "veltaprine_plasma_weighted.json"
+NUMERICS = {"numpy", "scipy"}
+FRONT_END = {"PySide6", "shiboken6", "pyqtgraph", "openpyxl"}
+
+
+def imported(*args: str, module: str = "curvewright", cwd: Path = ROOT) -> tuple[set[str], subprocess.CompletedProcess]:
+    """The modules a fresh ``python -m MODULE ARGS`` imports, and its result."""
+    done = subprocess.run([sys.executable, "-X", "importtime", "-m", module, *args], capture_output=True,
+                          text=True, cwd=cwd, timeout=300)
+    names = {line.rsplit("|", 1)[1].strip() for line in done.stderr.splitlines()
+             if line.startswith("import time:") and "|" in line}
+    names.discard("imported package")  # the header line of the listing
+    return names, done
+
+
+def tops(names: set[str]) -> set[str]:
+    return {n.split(".")[0] for n in names}
+
+
+def test_version_loads_no_numerics_and_no_command_line() -> None:
+    names, done = imported("--version")
+    assert done.returncode == 0, done.stderr[-2000:]
+    assert done.stdout == f"curvewright {__version__}\n"
+    assert "curvewright._version" in names  # the listing is read correctly
+    assert not tops(names) & (NUMERICS | FRONT_END)
+    assert "argparse" not in names and "curvewright.cli" not in names
+
+
+def test_version_line_is_the_same_as_the_full_command_lines() -> None:
+    _, short = imported("--version")
+    _, full = imported("--version", module="curvewright.cli")
+    assert full.returncode == 0 and short.stdout == full.stdout
+
+
+@pytest.mark.parametrize("args", [("--help",), ("quantify", "--help"), ("archive", "--help")])
+def test_help_loads_no_numerics(args: tuple[str, ...]) -> None:
+    names, done = imported(*args)
+    assert done.returncode == 0, done.stderr[-2000:]
+    assert "usage: curvewright" in done.stdout and curvewright.CAUTION.split()[0] in done.stdout
+    assert "curvewright.cli" in names
+    assert not tops(names) & (NUMERICS | FRONT_END)
+
+
+def test_quantify_json_loads_no_front_end_and_no_optimiser() -> None:
+    names, done = imported("quantify", str(RUN), "--json")
+    assert done.returncode == 0, done.stderr[-2000:]
+    assert done.stdout.lstrip().startswith("{")
+    assert {"numpy", "scipy"} <= tops(names)  # it does compute
+    assert not tops(names) & FRONT_END
+    assert "scipy.optimize" not in names and "scipy.stats" not in names
+
+
+def test_an_export_loads_what_it_writes_with(tmp_path: Path) -> None:
+    workbook = tmp_path / "results.xlsx"
+    names, done = imported("quantify", str(RUN), "--json", "--export", str(workbook))
+    assert done.returncode == 0, done.stderr[-2000:]
+    assert workbook.stat().st_size > 0
+    assert "openpyxl" in tops(names)
+    assert not tops(names) & {"PySide6", "pyqtgraph"}
+
+
+def test_the_package_loads_its_public_names_on_first_use() -> None:
+    code = ("import sys, curvewright as cw; before = 'numpy' in sys.modules; "
+            "cal = cw.fit([1, 2, 4, 8], [0.1, 0.2, 0.41, 0.79]); "
+            "print(before, 'numpy' in sys.modules, type(cal).__name__, sorted(set(cw.__all__) - set(dir(cw))))")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=120)
+    assert done.returncode == 0, done.stderr[-2000:]
+    assert done.stdout.split() == ["False", "True", "Calibration", "[]"]
+
+
+def test_every_public_name_resolves() -> None:
+    for name in curvewright.__all__:
+        assert getattr(curvewright, name) is not None
+    with pytest.raises(AttributeError, match="no attribute 'nothing_here'"):
+        curvewright.nothing_here  # noqa: B018 - the access is the check
