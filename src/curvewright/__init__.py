@@ -14,6 +14,7 @@ from .core.calibration import Calibration, fit
 from .core.comparison import Candidate, ModelComparison, compare, mandel_test
 from .core.errors import (
     CalibrationInputError,
+    ConvergenceError,
     CurvewrightError,
     LimitsError,
     ProfileError,
@@ -44,6 +45,7 @@ __all__ = [
     "mandel_test",
     "Calibration",
     "CalibrationInputError",
+    "ConvergenceError",
     "CurvewrightError",
     "DetectionLimits",
     "InfluenceFlag",

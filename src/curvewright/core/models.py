@@ -6,6 +6,13 @@ Each model is a polynomial in the concentration x with ascending-power coefficie
 * ``quadratic``     y = b0 + b1·x + b2·x²
 * ``proportional``  y = b1·x           (through the origin; coefficients are reported as (0, b1))
 
+and the curves that are not polynomials, fitted by weighted nonlinear least squares
+(:mod:`.curve_families`, :mod:`.nonlinear_calibration`):
+
+* ``4pl``           y = d + (a − d)/(1 + (x/c)^b)
+* ``5pl``           y = d + (a − d)/(1 + (x/c)^b)^g
+* ``power``         y = a·x^b
+
 Fitting is done in the variable z = (x − c)/s, with c the weighted mean of the standards'
 concentrations and s the largest |x − c| (c = 0 for the proportional model, so the line stays
 through the origin).
@@ -31,19 +38,30 @@ class Model(str, Enum):
     LINEAR = "linear"
     QUADRATIC = "quadratic"
     PROPORTIONAL = "proportional"
+    FOUR_PL = "4pl"
+    FIVE_PL = "5pl"
+    POWER = "power"
 
     @property
     def n_parameters(self) -> int:
-        return {Model.LINEAR: 2, Model.QUADRATIC: 3, Model.PROPORTIONAL: 1}[self]
+        return {
+            Model.LINEAR: 2, Model.QUADRATIC: 3, Model.PROPORTIONAL: 1, Model.FOUR_PL: 4, Model.FIVE_PL: 5,
+            Model.POWER: 2,
+        }[self]
+
+    @property
+    def is_polynomial(self) -> bool:
+        """Fitted by linear least squares in a polynomial basis (else by nonlinear least squares)."""
+        return self in (Model.LINEAR, Model.QUADRATIC, Model.PROPORTIONAL)
 
     @property
     def has_intercept(self) -> bool:
-        return self is not Model.PROPORTIONAL
+        return self in (Model.LINEAR, Model.QUADRATIC)
 
     @property
     def powers(self) -> tuple[int, ...]:
-        """Powers of z in the design matrix."""
-        return {Model.LINEAR: (0, 1), Model.QUADRATIC: (0, 1, 2), Model.PROPORTIONAL: (1,)}[self]
+        """Powers of z in the design matrix (none for a curve that is not a polynomial)."""
+        return {Model.LINEAR: (0, 1), Model.QUADRATIC: (0, 1, 2), Model.PROPORTIONAL: (1,)}.get(self, ())
 
     @property
     def description(self) -> str:
@@ -51,6 +69,9 @@ class Model(str, Enum):
             Model.LINEAR: "straight line y = b0 + b1·x",
             Model.QUADRATIC: "quadratic y = b0 + b1·x + b2·x²",
             Model.PROPORTIONAL: "straight line through the origin y = b1·x",
+            Model.FOUR_PL: "four-parameter logistic y = d + (a − d)/(1 + (x/c)^b)",
+            Model.FIVE_PL: "five-parameter logistic y = d + (a − d)/(1 + (x/c)^b)^g",
+            Model.POWER: "power curve y = a·x^b",
         }[self]
 
     @classmethod

@@ -63,7 +63,9 @@ class NonlinearFit:
     parameters : array of shape (p,)
         β̂, or the last point reached when the fit did not converge.
     covariance, standard_errors
-        s²·(JᵀJ)⁻¹ and the square roots of its diagonal (NaN when the Jacobian is rank deficient).
+        s²·(JᵀJ)⁻¹ and the square roots of its diagonal (NaN when the fit did not converge).
+    unscaled_covariance
+        (JᵀJ)⁻¹ alone.
     residual_sd : float
         s = √(S/(n − p)), in response units when the weights sum to n.
     df_residual : int
@@ -82,6 +84,7 @@ class NonlinearFit:
 
     parameters: FloatArray
     covariance: FloatArray
+    unscaled_covariance: FloatArray
     standard_errors: FloatArray
     residual_sd: float
     df_residual: int
@@ -185,15 +188,16 @@ def _result(
     df = n - p
     sse = float(r @ r)
     residual_sd = float(np.sqrt(sse / df)) if df > 0 else float("nan")
-    covariance = np.full((p, p), np.nan)
+    unscaled = np.full((p, p), np.nan)
     if converged:
         _, s, vt, scale = _scaled_svd(j)
         # (JᵀJ)⁻¹ = D⁻¹·V·diag(1/s²)·Vᵀ·D⁻¹
-        scaled = (vt.T / s) @ (vt.T / s).T
-        covariance = residual_sd**2 * scaled / np.outer(scale, scale)
+        unscaled = ((vt.T / s) @ (vt.T / s).T) / np.outer(scale, scale)
+    covariance = residual_sd**2 * unscaled
     return NonlinearFit(
         parameters=frozen(beta.copy()),
         covariance=frozen(covariance),
+        unscaled_covariance=frozen(unscaled),
         standard_errors=frozen(np.sqrt(np.abs(np.diag(covariance)))),
         residual_sd=residual_sd,
         df_residual=df,
