@@ -122,7 +122,14 @@ class NonlinearCalibration(Calibration):
         """Standard error of the fitted curve at ``concentration`` (delta method)."""
         assert self.family is not None
         g = self.family.jacobian(np.asarray(concentration, dtype=np.float64), self.coefficients)
-        return np.sqrt(np.maximum(np.einsum("...i,ij,...j->...", g, self.covariance, g), 0.0))
+        # term by term in a fixed order, so that each concentration's value has the same bits whatever
+        # else is computed alongside it
+        variance = np.zeros(g.shape[:-1])
+        p = g.shape[-1]
+        for i in range(p):
+            for j in range(p):
+                variance = variance + g[..., i] * self.covariance[i, j] * g[..., j]
+        return np.sqrt(np.maximum(variance, 0.0))
 
     def limits(self, method: str = "residual_sd", **options: object) -> DetectionLimits:
         """Refused: see the module docstring (the range of quantitation comes from acceptance)."""
