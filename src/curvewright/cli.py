@@ -84,6 +84,7 @@ exit codes:
 
 
 def build_parser() -> argparse.ArgumentParser:
+    from .core.models import Model
     from .core.weighting import Weighting
 
     parser = argparse.ArgumentParser(
@@ -107,7 +108,7 @@ def build_parser() -> argparse.ArgumentParser:
     q.add_argument("--allow-unreadable", action="store_true",
                    help="with --samples: accept sample readings that could not be read (still listed); "
                         "otherwise the exit code is 2")
-    q.add_argument("--model", choices=("linear", "quadratic", "proportional"),
+    q.add_argument("--model", choices=tuple(m.value for m in Model),
                    help="override the run's model (with tables: give --weighting too)")
     q.add_argument("--weighting", choices=tuple(w.value for w in Weighting),
                    help="override the weighting (with tables: give --model too)")
@@ -755,6 +756,11 @@ def summary_text(  # type: ignore[no-untyped-def]
         for r in a.method_reasons:
             lines.append(f"  method {r}")
         lines.append(f"  {cal.equation(10)}")
+        if not cal.model.is_polynomial:
+            lines.append("  parameters: " + "; ".join(
+                f"{name} ({words}) = {b:.6g} ± {se:.2g}" for name, words, b, se in
+                zip(cal.coefficient_names, cal.coefficient_descriptions, cal.coefficients, cal.standard_errors)))
+            lines.append(f"  fit: {'; '.join(n for n in cal.notes if n.startswith('fitted by nonlinear'))}")
         lof = cal.lack_of_fit
         lof_text = (f"lack-of-fit F = {lof.f_statistic:.4g}, p = {lof.p_value:.3g}" if lof.available
                     else f"lack of fit not tested ({lof.reason})")
@@ -863,7 +869,9 @@ def result_json(  # type: ignore[no-untyped-def]
             entry.update({
                 "model": cal.model.value, "weighting": cal.weighting.value, "model_overridden": a.model_overridden,
                 "choice_reason": GIVEN if a.model_overridden else a.analyte.choice_reason, "equation": cal.equation(17),
+                "coefficient_names": list(cal.coefficient_names),
                 "coefficients": cal.coefficients, "standard_errors": cal.standard_errors, "covariance": cal.covariance,
+                "convergence": getattr(cal, "convergence", None), "notes": list(cal.notes),
                 "residual_sd": cal.residual_sd, "df_residual": cal.df_residual, "r_squared": cal.r_squared,
                 "adjusted_r_squared": cal.adjusted_r_squared, "calibrated_range": list(cal.calibrated_range),
                 "lack_of_fit": {"available": lof.available, "reason": lof.reason, "f_statistic": lof.f_statistic,

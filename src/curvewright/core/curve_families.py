@@ -211,7 +211,7 @@ FAMILIES = {
     Model.FOUR_PL: CurveFamily(
         Model.FOUR_PL, ("a", "b", "c", "d"), "y = d + (a − d)/(1 + (x/c)^b)",
         _four_pl, _four_pl_jacobian, _four_pl_slope, _four_pl_inverse, _four_pl_starts,
-        ("response at zero concentration", "slope factor", "inflection point (concentration)",
+        ("response at zero concentration", "slope factor", "inflection point, in concentration units",
          "response at infinite concentration"),
     ),
     Model.FIVE_PL: CurveFamily(

@@ -91,6 +91,15 @@ class NonlinearCalibration(Calibration):
         return self.family.parameter_names
 
     @property
+    def coefficient_names(self) -> tuple[str, ...]:
+        return self.parameter_names
+
+    @property
+    def coefficient_descriptions(self) -> tuple[str, ...]:
+        assert self.family is not None
+        return self.family.parameter_words
+
+    @property
     def parameters(self) -> dict[str, float]:
         """The fitted parameters by name."""
         return dict(zip(self.parameter_names, (float(v) for v in self.coefficients), strict=True))
