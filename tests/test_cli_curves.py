@@ -105,3 +105,26 @@ def test_power_model_on_the_command_line(tmp_path: Path) -> None:
     assert entry["equation"].startswith("y = a·x^b with a = ")
     expected = float(cal.quantify([45210.5]).estimate[0])  # cw.fit(...).quantify(...) above
     assert entry["samples"][0]["reported"] == pytest.approx(expected, rel=1e-12)
+
+
+def test_demo_ligand_binding_run_with_anchor_points() -> None:
+    # The invented immunoassay demo: anchor points in the run document are fitted but not judged, and
+    # the calibrated range (LLOQ–ULOQ) is that of the eight calibration levels.
+    path = ROOT / "sample_runs" / "cytokine_serum_4pl.json"
+    result = run_cli("quantify", str(path), "--json")
+    assert result.returncode == 0, result.stderr
+    entry = json.loads(result.stdout)["analytes"][0]
+    document = json.loads(path.read_text(encoding="utf-8"))
+    standards = document["analytes"][0]["standards"]
+    x = [s["concentration"] for s in standards]
+    y = [s["response"]["value"] for s in standards]
+    anchors = [bool(s.get("anchor", False)) for s in standards]
+    assert sum(anchors) == 4
+    cal = cw.fit(x, y, "4pl", "1/y^2", anchor_points=anchors)
+    np.testing.assert_allclose(entry["coefficients"], cal.coefficients, rtol=1e-12)  # cw.fit(...) above
+    assert entry["calibrated_range"] == [3.0, 1600.0]
+    assert entry["reporting_range"]["lloq"] == 3.0 and entry["reporting_range"]["uloq"] == 1600.0
+    assert any("4 anchor point(s) fitted but not judged" in r for r in entry["verdict"]["reasons"])
+    by_id = {s["id"]: s for s in entry["samples"]}
+    assert by_id["Donor 035"]["status"] == "not_quantified" and "beyond_asymptote" in by_id["Donor 035"]["flags"]
+    assert "below_range" in by_id["Donor 033"]["flags"]
