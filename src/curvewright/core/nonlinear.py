@@ -39,7 +39,7 @@ TOLERANCE = 1e-15
 """Relative tolerance on the sum of squares, the parameters and the gradient (MINPACK ftol, xtol, gtol)."""
 RANK_TOLERANCE = 1e-10
 """Smallest ratio of singular values of the column-scaled Jacobian accepted as full rank."""
-MAX_EVALUATIONS_PER_PARAMETER = 2000
+MAX_EVALUATIONS_PER_PARAMETER = 200
 _REFINE_STEPS = 3
 
 ModelFunction = Callable[[FloatArray, FloatArray], FloatArray]

@@ -6,8 +6,8 @@ that answers the same questions; only the formulas differ.
 
 Fit
     Weighted nonlinear least squares (:mod:`.nonlinear`) from start values derived from the
-    standards (:mod:`.curve_families`); every start is tried and the converged fit with the smallest
-    weighted sum of squares is kept. A fit that converges from no start raises
+    standards (:mod:`.curve_families`); every start is tried and the converged, plausible fit with the
+    smallest weighted sum of squares is kept. A fit that converges from no start raises
     :class:`~curvewright.core.errors.ConvergenceError` with the reason; a converged fit says how it
     stopped in ``convergence`` and in its notes.
 
@@ -292,7 +292,11 @@ def _anchor_mask(model: Model, x: FloatArray, anchor_points: object | None) -> n
 
 
 def _best_fit(family: CurveFamily, x: FloatArray, y: FloatArray, w: FloatArray) -> NonlinearFit:
-    """Fit from every start; keep the converged fit with the smallest weighted sum of squares."""
+    """Fit from every start; keep the converged, plausible fit with the smallest weighted sum of squares.
+
+    A start that does not converge stops after a bounded number of evaluations (:mod:`.nonlinear`), and
+    the reasons of every failure are reported if no start succeeds.
+    """
     starts = family.starts(x, y)
     if family.model is Model.FIVE_PL:
         four = FAMILIES[Model.FOUR_PL]
