@@ -245,8 +245,57 @@ def volatiles_run() -> "Run":  # type: ignore[name-defined]  # noqa: F821
     )
 
 
+def cytokine_run() -> "Run":  # type: ignore[name-defined]  # noqa: F821
+    """A ligand-binding assay of an invented cytokine in serum: a 4PL with anchor points at both ends."""
+    rng = np.random.default_rng(404)
+    a, b, c, d = 0.045, 1.1, 220.0, 3.1  # optical density at zero and at saturation, slope, mid-point (pg/mL)
+
+    def od(conc: float) -> float:
+        return (d + (a - d) / (1.0 + (conc / c) ** b)) * (1.0 + 0.03 * rng.standard_normal())
+
+    levels = [("A1", 0.8), ("S1", 3.0), ("S2", 7.5), ("S3", 18.0), ("S4", 45.0), ("S5", 110.0), ("S6", 280.0),
+              ("S7", 700.0), ("S8", 1600.0), ("A2", 6000.0)]
+    rows = []
+    for label, conc in levels:
+        for r in (1, 2):
+            rows.append([f"{label}-{r}", label, conc, r, f"{od(conc):.4f}"])
+    standards = _tsv(["Standard id", "Level", "Concentration (pg/mL)", "Replicate", "Absorbance (OD)"], rows)
+    plan = [("QC-L-1", "qc", 1, 9.0, 9.0), ("QC-M-1", "qc", 1, 150.0, 150.0), ("QC-H-1", "qc", 1, 1200.0, 1200.0),
+            ("Donor 031", "unknown", 1, None, 24.0), ("Donor 032", "unknown", 1, None, 310.0),
+            ("Donor 033", "unknown", 1, None, 2.0), ("Donor 034 ×4", "unknown", 4, None, 2600.0),
+            ("Donor 035", "unknown", 1, None, 40000.0),
+            ("QC-L-2", "qc", 1, 9.0, 9.0), ("QC-M-2", "qc", 1, 150.0, 150.0), ("QC-H-2", "qc", 1, 1200.0, 1200.0)]
+    samples = []
+    for order, (sid, kind, dilution, nominal, true_c) in enumerate(plan, start=1):
+        for r in (1, 2):
+            value = od(true_c / dilution) if sid != "Donor 035" else d * (1.06 + 0.01 * rng.standard_normal())  # a well read above saturation
+            samples.append([sid, kind, order, dilution, "" if nominal is None else nominal, r, f"{value:.4f}"])
+    samples_text = _tsv(["Sample", "Type", "Run order", "Dilution", "Nominal", "Replicate", "Absorbance"], samples)
+
+    clock, user = Clock("2026-11-12T09:00:00"), Identity("Demo Analyst Four", "DEMO-04", "demo.analyst4")
+    run = _build(
+        "Demo Immunoassay Lab (invented) — cytokine in serum, plate 12",
+        "Sandwich immunoassay read at 450 nm; eight calibration levels (3 to 1600 pg/mL) and an anchor point below "
+        "and above them, all in duplicate wells; QC samples at three levels in duplicate. Donor 035 reads beyond "
+        "the upper asymptote. 'Cytokine' stands for an invented analyte. " + INVENTED,
+        standards_text=standards, samples_text=samples_text,
+        settings=RunSettings(acceptance_profile="ich-m10-ligand-binding", rounding=RoundingRule("significant", 3)),
+        choices={"cytokine": ("4pl", "1/y^2", "ligand-binding assay: 4PL, the 5PL's asymmetry is no significant "
+                              "improvement; the replicate SD grows with the response, so 1/y² weighting")},
+        clock=clock, user=user, analyte="cytokine", response_unit="OD",
+        instrument="microplate reader, asset DEMO-PR-5 (invented)",
+    )
+    # once the 4PL is chosen, the wells beyond the calibration levels become its anchor points
+    return run_edits.mark_anchor_points(
+        run, "cytokine", ["A1-1", "A1-2", "A2-1", "A2-2"],
+        "anchor points below the LLOQ and above the ULOQ fix the asymptotes of the 4PL (method SOP, invented)",
+        user=user, clock=clock,
+    )
+
+
 DEMOS = {"nitrate_water_linear.json": nitrate_run, "veltaprine_plasma_weighted.json": plasma_run,
-         "zinc_emission_quadratic.json": zinc_run, "volatiles_water_average_rf.json": volatiles_run}
+         "zinc_emission_quadratic.json": zinc_run, "volatiles_water_average_rf.json": volatiles_run,
+         "cytokine_serum_4pl.json": cytokine_run}
 
 
 def main() -> None:

@@ -21,6 +21,7 @@ if TYPE_CHECKING:  # the names below are loaded on first use (see __getattr__)
     from .core.comparison import Candidate, ModelComparison, compare, mandel_test
     from .core.errors import (
         CalibrationInputError,
+        ConvergenceError,
         CurvewrightError,
         LimitsError,
         ProfileError,
@@ -41,7 +42,7 @@ _PUBLIC = {
     "Calibration": "calibration", "fit": "calibration",
     "Candidate": "comparison", "ModelComparison": "comparison", "compare": "comparison",
     "mandel_test": "comparison",
-    "CalibrationInputError": "errors", "CurvewrightError": "errors", "LimitsError": "errors",
+    "CalibrationInputError": "errors", "ConvergenceError": "errors", "CurvewrightError": "errors", "LimitsError": "errors",
     "ProfileError": "errors", "QuantitationInputError": "errors", "WeightingError": "errors",
     "InfluenceFlag": "influence",
     "QuantFlag": "inverse", "Quantitation": "inverse",
@@ -87,6 +88,7 @@ __all__ = [
     "mandel_test",
     "Calibration",
     "CalibrationInputError",
+    "ConvergenceError",
     "CurvewrightError",
     "DetectionLimits",
     "InfluenceFlag",

@@ -761,6 +761,11 @@ def summary_text(  # type: ignore[no-untyped-def]
             lines.append(f"  method {r}")
         lines.append(f"  {cal.equation(10)}")
         lines += response_factor_lines(cal, a.analyte.uses_internal_standard)
+        if not cal.model.is_polynomial:
+            lines.append("  parameters: " + "; ".join(
+                f"{name} ({words}) = {b:.6g} ± {se:.2g}" for name, words, b, se in
+                zip(cal.coefficient_names, cal.coefficient_descriptions, cal.coefficients, cal.standard_errors)))
+            lines.append(f"  fit: {'; '.join(n for n in cal.notes if n.startswith('fitted by nonlinear'))}")
         lof = cal.lack_of_fit
         lof_text = (f"lack-of-fit F = {lof.f_statistic:.4g}, p = {lof.p_value:.3g}" if lof.available
                     else f"lack of fit not tested ({lof.reason})")
@@ -871,7 +876,9 @@ def result_json(  # type: ignore[no-untyped-def]
             entry.update({
                 "model": cal.model.value, "weighting": cal.weighting.value, "model_overridden": a.model_overridden,
                 "choice_reason": GIVEN if a.model_overridden else a.analyte.choice_reason, "equation": cal.equation(17),
+                "coefficient_names": list(cal.coefficient_names),
                 "coefficients": cal.coefficients, "standard_errors": cal.standard_errors, "covariance": cal.covariance,
+                "convergence": getattr(cal, "convergence", None), "notes": list(cal.notes),
                 "residual_sd": cal.residual_sd, "df_residual": cal.df_residual, "r_squared": cal.r_squared,
                 "adjusted_r_squared": cal.adjusted_r_squared, "calibrated_range": list(cal.calibrated_range),
                 "lack_of_fit": {"available": lof.available, "reason": lof.reason, "f_statistic": lof.f_statistic,

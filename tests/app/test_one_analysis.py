@@ -68,7 +68,8 @@ def test_every_output_reads_one_analysis(demo, make_window, tmp_path) -> None:
         # every digit of each coefficient in the record's appendix
         assert all(repr(float(b)) in squeeze(pages) for b in cal.coefficients)
         sheet = {r[0]: r[1] for r in book[f"Calibration – {name}"].iter_rows(min_row=4, values_only=True)}
-        assert [sheet[f"b{p} (coefficient of x^{p})"] for p in range(len(cal.coefficients))] == cal.coefficients.tolist()
+        labels = [f"{n} ({w})" for n, w in zip(cal.coefficient_names, cal.coefficient_descriptions, strict=True)]
+        assert [sheet[label] for label in labels] == cal.coefficients.tolist()
         app = shown.analyte(name)
         assert app.calibration.coefficients.tolist() == cal.coefficients.tolist()
         # every sample: what is reported, the number behind it, the flags

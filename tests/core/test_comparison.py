@@ -46,11 +46,14 @@ def test_heteroscedastic_data_get_a_weighted_recommendation() -> None:
     assert result.recommended.model is cw.Model.LINEAR
     assert any("weighting is needed" in r for r in result.reasons)
     labels = {(c.model, c.weighting) for c in result.candidates}
-    # 2 models × 8 weightings; 1/s² from three replicates per level is refused, with the reason
-    assert len(labels) == 14
+    # 2 models × 8 weightings, and the power curve (the standards span more than two decades) under
+    # the 6 weightings it accepts; 1/s² from three replicates per level is refused, with the reason
+    assert len(labels) == 14 + 5
     assert {(s.model, s.weighting) for s in result.skipped} == {
-        (cw.Model.LINEAR, cw.Weighting.INVERSE_S2), (cw.Model.QUADRATIC, cw.Weighting.INVERSE_S2)
+        (cw.Model.LINEAR, cw.Weighting.INVERSE_S2), (cw.Model.QUADRATIC, cw.Weighting.INVERSE_S2),
+        (cw.Model.POWER, cw.Weighting.INVERSE_S2),
     }
+    assert any("power curve" in r and "no substantial improvement" in r for r in result.reasons)
     assert all("fewer than 10" in s.reason for s in result.skipped)
     unweighted = result.candidate("linear", "none")
     assert unweighted.sum_abs_relative_error > result.recommended.sum_abs_relative_error

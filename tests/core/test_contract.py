@@ -11,9 +11,11 @@ from hypothesis import strategies as st
 
 import curvewright as cw
 
-MODELS = ["linear", "quadratic", "proportional"]
+MODELS = ["linear", "quadratic", "proportional", "4pl", "5pl", "power"]
 WEIGHTINGS = ["none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2", "power", "two-component"]
-CASES = [(m, w) for m in MODELS for w in WEIGHTINGS]
+NONLINEAR = {"4pl", "5pl", "power"}
+"""Curves fitted by nonlinear least squares; the variance-function weightings are refused for them."""
+CASES = [(m, w) for m in MODELS for w in WEIGHTINGS if not (m in NONLINEAR and w in ("power", "two-component"))]
 # The average response factor is the mean of yᵢ/xᵢ, the line through the origin weighted 1/x²: it takes
 # no other weighting ("none", the default, means its own).
 CASES += [("average-rf", "none"), ("average-rf", "1/x^2")]
@@ -27,8 +29,24 @@ def standards(model: str, seed: int = 3) -> tuple[np.ndarray, np.ndarray]:
 
 
 def truth(model: str, x: np.ndarray) -> np.ndarray:
-    return {"linear": 1.5 + 3.0 * x, "quadratic": 1.5 + 3.0 * x - 0.004 * x**2, "proportional": 3.0 * x,
-            "average-rf": 3.0 * x}[model]
+    return {
+        "linear": 1.5 + 3.0 * x,
+        "quadratic": 1.5 + 3.0 * x - 0.004 * x**2,
+        "proportional": 3.0 * x,
+        "average-rf": 3.0 * x,
+        "4pl": 3.0 + (0.05 - 3.0) / (1.0 + (x / 40.0) ** 1.2),
+        "5pl": 3.0 + (0.05 - 3.0) / (1.0 + (x / 15.0) ** 2.0) ** 0.6,
+        "power": 3.0 * x**1.4,
+    }[model]
+
+
+def coefficient_scale(model: str, coefficients: np.ndarray, kx: float, ky: float) -> np.ndarray:
+    """How each coefficient changes when concentrations are multiplied by kx and responses by ky."""
+    if model in ("4pl", "5pl"):  # a, d in response units, c in concentration units, b and g pure numbers
+        return np.array([ky, 1.0, kx, ky, 1.0][: coefficients.size])
+    if model == "power":  # a in response/concentration^b, b a pure number
+        return np.array([ky / kx ** coefficients[1], 1.0])
+    return ky / kx ** np.arange(coefficients.size)
 
 
 def fit_case(
@@ -59,8 +77,18 @@ def test_interval_contains_estimate_and_narrows_with_replicates(calibration: cw.
         for method in ("band", "symmetric"):
             q = calibration.quantify(y0, replicates=m, interval=method)
             assert np.all(q.lower < q.estimate) and np.all(q.estimate < q.upper)
-        widths.append(calibration.quantify(y0, replicates=m).upper - calibration.quantify(y0, replicates=m).lower)
-    assert np.all(np.diff(np.array(widths), axis=0) < 0)
+        q = calibration.quantify(y0, replicates=m)
+        widths.append(q.upper - q.lower)
+        # an interval the band cannot close (a weighting that lets the SD grow faster than the curve
+        # rises, such as 1/x² on a logistic curve near its plateau) is flagged, never a number
+        assert all(cw.QuantFlag.UNBOUNDED_INTERVAL in f for f, w in zip(q.flags, widths[-1]) if not np.isfinite(w))
+    widths_array = np.array(widths)
+    finite = np.isfinite(widths_array)
+    both = finite[1:] & finite[:-1]
+    change = np.subtract(widths_array[1:], widths_array[:-1], out=np.full(both.shape, -1.0), where=both)
+    assert np.all(change < 0)
+    assert np.all(finite[:-1] <= finite[1:])  # once closed, an interval stays closed with more replicates
+    assert finite.any()
 
 
 def test_result_is_immutable(calibration: cw.Calibration) -> None:
@@ -85,9 +113,18 @@ def test_rescaling_units_rescales_results(model: str, weighting: str, x_power: i
     kx, ky = 10.0**x_power, 10.0**y_power
     base = fit_case(x, y, model, weighting)
     scaled = fit_case(x * kx, y * ky, model, weighting, x_scale=kx, y_scale=ky)
-    powers = np.arange(base.coefficients.size)
-    np.testing.assert_allclose(scaled.coefficients, base.coefficients * ky / kx**powers, rtol=1e-9, atol=1e-300)
-    np.testing.assert_allclose(scaled.standard_errors, base.standard_errors * ky / kx**powers, rtol=1e-9, atol=1e-300)
+    factor = coefficient_scale(model, base.coefficients, kx, ky)
+    np.testing.assert_allclose(scaled.coefficients, base.coefficients * factor, rtol=1e-9, atol=1e-300)
+    if model == "power":
+        # a' = a·ky/kx^b depends on b too, so its SE follows the delta method: C' = T·C·Tᵀ with
+        # T = ∂(a', b')/∂(a, b) = [[ky/kx^b, −a'·ln kx], [0, 1]]
+        a_scaled = scaled.coefficients[0]
+        transform = np.array([[factor[0], -a_scaled * np.log(kx)], [0.0, 1.0]])
+        expected = np.sqrt(np.diag(transform @ base.covariance @ transform.T))
+        np.testing.assert_allclose(scaled.standard_errors, expected, rtol=1e-8)
+    else:
+        np.testing.assert_allclose(scaled.standard_errors, base.standard_errors * factor, rtol=1e-9, atol=1e-300)
+    np.testing.assert_allclose(scaled.fitted, base.fitted * ky, rtol=1e-9)
     assert scaled.residual_sd == pytest.approx(base.residual_sd * ky, rel=1e-9)
     assert scaled.r_squared == pytest.approx(base.r_squared, rel=1e-12)
     np.testing.assert_allclose(scaled.leverage, base.leverage, rtol=1e-9)
@@ -97,6 +134,11 @@ def test_rescaling_units_rescales_results(model: str, weighting: str, x_power: i
     a, b = base.quantify(y0), scaled.quantify(y0 * ky)
     for name in ("estimate", "standard_error", "lower", "upper"):
         np.testing.assert_allclose(getattr(b, name), getattr(a, name) * kx, rtol=1e-8)
+    if model in NONLINEAR:  # no ICH Q2 limits for these curves: both refuse, with the reason
+        for cal in (base, scaled):
+            with pytest.raises(cw.LimitsError, match="range of quantitation"):
+                cal.limits()
+        return
     la, lb = base.limits(), scaled.limits()
     assert lb.lod == pytest.approx(la.lod * kx, rel=1e-9)
 
@@ -157,3 +199,11 @@ def test_average_response_factor_refuses_other_weightings(weighting: str) -> Non
     x, y = standards("average-rf")
     with pytest.raises(cw.WeightingError, match=re.escape(f"weighting {weighting}: the average response factor")):
         cw.fit(x, y, "average-rf", weighting)
+
+
+@pytest.mark.parametrize("model", sorted(NONLINEAR))
+@pytest.mark.parametrize("weighting", ["power", "two-component"])
+def test_variance_function_weights_are_refused_for_nonlinear_curves_by_name(model: str, weighting: str) -> None:
+    x, y = standards(model)
+    with pytest.raises(cw.WeightingError, match=f"weighting {weighting}: a variance function"):
+        cw.fit(x, y, model, weighting)

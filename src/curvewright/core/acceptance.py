@@ -4,7 +4,8 @@ Profiles are data (JSON files in ``profiles/``, or the laboratory's own), never 
 source. A standard passes when |%RE| ≤ its tolerance (the lowest and highest non-zero levels may
 have their own); a level passes when enough of its replicates pass; the calibration passes when
 enough standards and levels pass. Standards of zero nominal concentration (blanks used as a point)
-are not judged, and excluded standards count as not passing — an exclusion never improves the
+and anchor points (standards beyond the range of a logistic curve that fix its asymptotes) are not
+judged, and excluded standards count as not passing — an exclusion never improves the
 fraction of standards that pass (common practice in bioanalytical review) unless the profile says
 ``count_excluded_as_failing: false``.
 
@@ -244,9 +245,12 @@ class AcceptanceProfile:
         rules = self.standards
         x = cal.concentration
         re = cal.relative_error
-        judged = x != 0
+        # anchor points (logistic curves) are fitted but never judged, and do not make a level
+        anchors = getattr(cal, "anchors", np.zeros(x.size, dtype=bool))
+        judged = (x != 0) & ~anchors
         levels = cal.levels
-        nonzero_levels = np.flatnonzero(levels.concentration != 0)
+        judged_levels = np.bincount(levels.index[judged], minlength=levels.n_levels) > 0
+        nonzero_levels = np.flatnonzero((levels.concentration != 0) & judged_levels)
         tol = np.full(x.size, rules.tolerance_percent)
         if nonzero_levels.size:
             low, high = nonzero_levels[0], nonzero_levels[-1]
@@ -272,6 +276,7 @@ class AcceptanceProfile:
             + (f"; {excluded} excluded standard(s) counted as not passing" if counted_excluded else "")
             + (f"; {excluded} excluded standard(s) with recorded reasons not counted" if excluded and not counted_excluded else "")
             + (f"; {unusable} standard(s) without a usable value counted as not passing" if unusable else "")
+            + (f"; {int(anchors.sum())} anchor point(s) fitted but not judged" if anchors.any() else "")
         )
         level_pass = []
         for j in nonzero_levels:

@@ -7,7 +7,7 @@ answers everything the plot, the tables, the command line and the workbook need.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -73,6 +73,18 @@ class Calibration(FittedCurve):
         return profile.evaluate(self, excluded=excluded, unusable=unusable)
 
 
+CurveFitter = Callable[..., Calibration]
+_curve_fitter: CurveFitter | None = None
+"""Fits the curves that are not polynomials (:func:`.nonlinear_calibration.fit_nonlinear_curve`, which
+builds on this module and registers itself when :mod:`curvewright.core` is imported)."""
+
+
+def register_curve_fitter(fitter: CurveFitter) -> None:
+    """Set the function :func:`fit` calls for models that are not polynomials."""
+    global _curve_fitter
+    _curve_fitter = fitter
+
+
 def fit(
     concentration: object,
     response: object,
@@ -83,6 +95,7 @@ def fit(
     level_tolerance: float | None = None,
     level_labels: Sequence[str] | None = None,
     levels: Levels | None = None,
+    anchor_points: Sequence[bool] | None = None,
 ) -> Calibration:
     """Fit a calibration curve to standards.
 
@@ -94,10 +107,13 @@ def fit(
         given) within that relative tolerance of each other (see :mod:`.levels`).
     response : array-like of shape (n,)
         Instrument response of each standard.
-    model : {"linear", "quadratic", "proportional", "average-rf"}
-        y = b0 + b1·x; y = b0 + b1·x + b2·x²; y = b1·x through the origin; or y = RF·x with RF the
+    model : {"linear", "quadratic", "proportional", "average-rf", "4pl", "5pl", "power"}
+        y = b0 + b1·x; y = b0 + b1·x + b2·x²; y = b1·x through the origin; y = RF·x with RF the
         mean response factor yᵢ/xᵢ of the standards (fitted as the line through the origin weighted
-        1/x², which it is; weighting none or 1/x^2 only; see :mod:`.response_factor`).
+        1/x², which it is; weighting none or 1/x^2 only; see :mod:`.response_factor`); the four- and
+        five-parameter logistic curves y = d + (a − d)/(1 + (x/c)^b)[^g]; or the power curve
+        y = a·x^b. The last three are fitted by weighted nonlinear least squares and return a
+        :class:`~curvewright.core.nonlinear_calibration.NonlinearCalibration` (see there).
     weighting : {"none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2"}
         Weights are scaled to sum to n, so ``residual_sd`` stays in response units (see
         :mod:`.weighting`). 1/x-type weights refuse concentrations ≤ 0, 1/y-type responses ≤ 0, and
@@ -111,6 +127,10 @@ def fit(
     levels : Levels, optional
         The grouping of these concentrations from :func:`~curvewright.core.levels.group_levels`,
         for callers that fit the same standards many times (it must belong to ``concentration``).
+    anchor_points : sequence of bool, optional
+        For the logistic curves: True for each standard that is an anchor point, placed beyond the
+        range of quantitation to fix an asymptote. Anchor points are fitted but never judged for
+        acceptance, and the calibrated range is that of the other standards.
 
     Raises
     ------
@@ -153,6 +173,14 @@ def fit(
         )
     x.setflags(write=False)
     y.setflags(write=False)
+    if not model.is_polynomial:
+        assert _curve_fitter is not None, "curvewright.core registers the nonlinear curve fitter on import"
+        return _curve_fitter(model, weighting, x, y, levels, response_sd, anchor_points)
+    if anchor_points is not None and np.any(np.asarray(anchor_points, dtype=bool)):
+        raise CalibrationInputError(
+            f"anchor points: a {model.description} has no asymptotes to anchor; anchor points belong to "
+            "the logistic curves (4pl, 5pl)."
+        )
     weights = make_weights(weighting, x, y, levels, response_sd, model)
     basis = make_basis(model, x, weights.weights)
     # Values near the ends of double precision overflow here; they are refused by name below.

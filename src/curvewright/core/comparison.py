@@ -42,6 +42,20 @@ on the whole curve (the environmental profile; :mod:`.curve_rules`). Under such 
 recommended when its RF %RSD is within the profile's limit and its standards pass the profile: the
 simplest calibration the method allows. Otherwise the fitted curve chosen as above is recommended,
 and the reasons give the RF %RSD and whether that curve meets the profile's r or r² rule.
+The curves that are not polynomials (see :mod:`.nonlinear_calibration`) are considered where they apply,
+under the weightings they accept (not the variance functions):
+4. Logistic curves (4PL, 5PL): on a ligand-binding profile, and whenever asked for. On a
+   ligand-binding profile the recommendation is a logistic curve: weighted 1/y² when the variance
+   evidence shows the scatter growing with the response (a constant CV, common practice for
+   immunoassay responses), else unweighted; the 4PL unless the 5PL's asymmetry lowers the weighted
+   sum of squares significantly (extra-sum-of-squares F-test on (1, n − 5) df at 5 %; same weights
+   for both). Elsewhere they are listed, and recommended only when the polynomial chosen lacks fit
+   (p < 0.05) and the 4PL does not.
+5. The power curve: whenever the positive standards span at least two decades (and whenever asked).
+   It is recommended only over at least two decades, when under the chosen weighting its AICc is
+   more than 2 below the chosen polynomial's (a difference of 2 as "substantial" is common practice;
+   Burnham & Anderson, *Model Selection and Multimodel Inference*, 2nd ed., 2002, §2.6, from
+   memory) and its lack-of-fit test, where there is one, does not reject it.
 """
 
 from __future__ import annotations
@@ -62,6 +76,17 @@ from .models import Model, make_basis
 from .variance import VarianceEvidence, variance_evidence
 from .weighting import Weighting
 
+POWER_MIN_DECADES = 2.0
+"""The power curve is considered, and may be recommended, when the positive standards span at least this many decades."""
+FIVE_PL_ALPHA = 0.05
+"""Significance level of the 5PL's extra parameter against the 4PL (common practice)."""
+AICC_MARGIN = 2.0
+"""AICc difference taken as substantial support for the power curve over a polynomial (common practice)."""
+NONLINEAR_WEIGHTINGS = (
+    Weighting.NONE, Weighting.INVERSE_X, Weighting.INVERSE_X2, Weighting.INVERSE_Y, Weighting.INVERSE_Y2,
+    Weighting.INVERSE_S2,
+)
+"""The weightings the nonlinear curves accept (no variance function is estimated for them yet)."""
 LACK_OF_FIT_ALPHA = 0.05
 """Lack-of-fit significance level (common practice)."""
 MANDEL_ALPHA = 0.01
@@ -180,10 +205,19 @@ def compare(
     in ``skipped`` with the reason, never silently left out.
     """
     model_list = [Model.parse(m) for m in models]
+    asked = set(model_list)
     if include_proportional and Model.PROPORTIONAL not in model_list:
         model_list.append(Model.PROPORTIONAL)
     weighting_list = [Weighting.parse(w) for w in weightings]
     rules = profile if isinstance(profile, AcceptanceProfile) else load_profile(profile)
+    ligand_binding = is_ligand_binding(rules)
+    decades = _decades(concentration)
+    added = set()
+    for extra, wanted in ((Model.FOUR_PL, ligand_binding), (Model.FIVE_PL, ligand_binding),
+                          (Model.POWER, decades is not None and decades >= POWER_MIN_DECADES)):
+        if wanted and extra not in model_list:
+            model_list.append(extra)
+            added.add(extra)
 
     fits: dict[tuple[Model, Weighting], Calibration] = {}
     skipped: list[SkippedCandidate] = []
@@ -202,6 +236,8 @@ def compare(
             first_error = exc
     for w in weighting_list:
         for m in model_list:
+            if m in added and w not in NONLINEAR_WEIGHTINGS:
+                continue  # a curve brought in by the profile or the span, under the weightings it accepts
             try:
                 fits[(m, w)] = fit(
                     x, response, m, w, response_sd=response_sd if w is Weighting.INVERSE_S2 else None,
@@ -238,6 +274,9 @@ def compare(
         ]
     else:
         recommended, reasons = _recommend(candidates, evidence, mandel_by_weighting)
+        recommended, reasons = _consider_curves(
+            candidates, recommended, list(reasons), evidence, ligand_binding, decades, asked | added
+        )
         if rules.curve is not None:
             recommended, reasons = _under_curve_rules(candidates, skipped, recommended, reasons, rules)
     reasons = list(reasons) + [R_SQUARED_NOTE]
@@ -349,7 +388,7 @@ def _recommend(
     reasons = [evidence.summary]
     if not by_weighting:
         only = candidates[0]
-        return only, reasons + [f"only the {only.model.description} could be fitted"]
+        return only, reasons + [f"neither the straight line nor the quadratic could be fitted; {only.label} is shown"]
     if evidence.heteroscedastic and any(w is not Weighting.NONE for w in by_weighting):
         choices = {
             w: _model_for(models, mandel.get(w), w)[0] for w, models in by_weighting.items() if w is not Weighting.NONE
@@ -454,6 +493,121 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
         if len(tied) == 1
         else f"{chosen.weighting.value} is the simplest within {TIE_FRACTION:.0%} of the smallest sum of absolute relative errors"
     )
+
+
+def is_ligand_binding(profile: AcceptanceProfile) -> bool:
+    """Whether ``profile`` is for ligand-binding assays (its id or name says so)."""
+    return "ligand" in f"{profile.id} {profile.name}".lower()
+
+
+def _decades(concentration: object) -> float | None:
+    """log10 of the highest over the lowest positive concentration (None with fewer than two)."""
+    x = np.asarray(concentration, dtype=np.float64)
+    positive = x[np.isfinite(x) & (x > 0)]
+    if positive.size < 2:
+        return None
+    return float(np.log10(positive.max() / positive.min()))
+
+
+def _consider_curves(
+    candidates: tuple[Candidate, ...], chosen: Candidate, reasons: list[str], evidence: VarianceEvidence,
+    ligand_binding: bool, decades: float | None, considered: set[Model],
+) -> tuple[Candidate, list[str]]:
+    """Steps 4 and 5 of the module docstring: the logistic and power curves, with the reasons."""
+    table = {(c.model, c.weighting): c for c in candidates}
+    logistic = [c for c in candidates if c.model in (Model.FOUR_PL, Model.FIVE_PL)]
+    if ligand_binding:
+        if not logistic:
+            return chosen, reasons + [
+                "on a ligand-binding profile a logistic curve is expected, but neither the 4PL nor the 5PL "
+                "could be fitted (see the skipped candidates); the polynomial choice is shown"
+            ]
+        weighting = Weighting.INVERSE_Y2 if evidence.heteroscedastic else Weighting.NONE
+        why = (
+            "the scatter grows with the response, so 1/y² weighting (a constant CV, common practice for "
+            "immunoassay responses)" if evidence.heteroscedastic else "no growth of the scatter is shown, so no weighting"
+        )
+        four, five = table.get((Model.FOUR_PL, weighting)), table.get((Model.FIVE_PL, weighting))
+        if four is None and five is None:
+            pick = min(logistic, key=lambda c: c.sum_abs_relative_error)
+            return pick, reasons[:1] + [
+                f"ligand-binding profile: a logistic curve is recommended; under {weighting.value} none could be "
+                f"fitted, so {pick.label} (the smallest Σ|%RE| among the logistic candidates)"
+            ]
+        words = reasons[:1] + [f"ligand-binding profile: a logistic curve is recommended; {why}"]
+        if four is not None and five is not None:
+            test = _extra_parameter_test(four.calibration, five.calibration)
+            if test is not None and test[1] < FIVE_PL_ALPHA:
+                words.append(
+                    f"the 5PL's asymmetry improves the fit significantly (F = {test[0]:.4g} on (1, "
+                    f"{five.calibration.df_residual}) df, p = {test[1]:.3g}), so the 5PL"
+                )
+                return five, words + _failing_words(five, candidates)
+            if test is not None:
+                words.append(
+                    f"the 5PL's asymmetry is no significant improvement (F = {test[0]:.4g}, p = {test[1]:.3g}), "
+                    "so the simpler 4PL"
+                )
+            return four, words + _failing_words(four, candidates)
+        pick = four or five
+        assert pick is not None
+        return pick, words + [f"only the {pick.model.value} could be fitted under {weighting.value}"] + _failing_words(pick, candidates)
+    if logistic:
+        four = table.get((Model.FOUR_PL, chosen.weighting))
+        lof = chosen.calibration.lack_of_fit
+        if four is not None and lof.available and lof.significant(LACK_OF_FIT_ALPHA):
+            four_lof = four.calibration.lack_of_fit
+            if four_lof.available and not four_lof.significant(LACK_OF_FIT_ALPHA):
+                return four, reasons + [
+                    f"the {chosen.model.value} lacks fit but the 4PL does not (p = {four_lof.p_value:.3g}), so the 4PL"
+                ] + _failing_words(four, candidates)
+        reasons.append("the logistic curves are listed for comparison; a polynomial that fits is kept (not a ligand-binding profile)")
+    power = table.get((Model.POWER, chosen.weighting))
+    if Model.POWER in considered:
+        if decades is None or decades < POWER_MIN_DECADES:
+            span = "fewer than two positive concentrations" if decades is None else f"{decades:.2g} decades"
+            reasons.append(
+                f"the power curve is recommended only when the standards span at least {POWER_MIN_DECADES:g} "
+                f"decades; these span {span}"
+            )
+        elif power is None:
+            reasons.append(f"the power curve could not be fitted under {chosen.weighting.value}, so it is not compared")
+        elif power.aicc is not None and chosen.aicc is not None:
+            lof = power.calibration.lack_of_fit
+            rejected = lof.available and lof.significant(LACK_OF_FIT_ALPHA)
+            better = chosen.aicc - power.aicc > AICC_MARGIN
+            if better and not rejected:
+                return power, reasons + [
+                    f"over {decades:.2g} decades the power curve y = a·x^b fits better than the {chosen.model.value} "
+                    f"(AICc {power.aicc:.4g} against {chosen.aicc:.4g}, more than {AICC_MARGIN:g} lower"
+                    + (f"; its lack-of-fit p = {lof.p_value:.3g}" if lof.available else "") + "), so the power curve"
+                ] + _failing_words(power, candidates)
+            reasons.append(
+                f"the power curve (AICc {power.aicc:.4g}) is no substantial improvement on the {chosen.model.value} "
+                f"(AICc {chosen.aicc:.4g})" + ("; its lack-of-fit test rejects it" if rejected else "")
+            )
+    return chosen, reasons
+
+
+def _extra_parameter_test(four: Calibration, five: Calibration) -> tuple[float, float] | None:
+    """Extra-sum-of-squares F-test of the 5PL against the 4PL (same standards and weights)."""
+    if five.df_residual <= 0 or five.sse <= 0 or not np.allclose(four.weights, five.weights, rtol=1e-12):
+        return None
+    f = max(four.sse - five.sse, 0.0) / (five.sse / five.df_residual)
+    return float(f), f_upper_tail(f, 1, five.df_residual)
+
+
+def _failing_words(chosen: Candidate, candidates: tuple[Candidate, ...]) -> list[str]:
+    words = []
+    if chosen.standards_failing:
+        words.append(f"{chosen.standards_failing} standard(s) fall outside the acceptance limits with this choice")
+    if not chosen.verdict.passed:
+        others = [c.label for c in candidates if c.verdict.passed]
+        words.append(
+            "this choice fails the acceptance profile"
+            + (f"; candidates that pass: {', '.join(others)}" if others else "; no candidate passes it")
+        )
+    return words
 
 
 def _intercept_note(chosen: Candidate) -> list[str]:

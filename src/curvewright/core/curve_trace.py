@@ -28,18 +28,23 @@ class CurveTrace:
 def curve_trace(
     cal: Calibration, *, level: float = 0.95, points: int = 200, log_spacing: bool = False, margin: float = 0.05
 ) -> CurveTrace:
-    """Sample the curve over the calibrated range widened by ``margin`` (fraction of the span).
+    """Sample the curve over the standards' concentrations widened by ``margin`` (fraction of the span).
 
-    With ``log_spacing`` the points are spaced evenly in log(x) over the positive part of the range.
+    The span is that of every standard in the fit, the anchor points of a logistic curve included (for
+    the other models it is the calibrated range). With ``log_spacing`` the points are spaced evenly in
+    log(x) over the positive part of the range.
     """
-    low, high = cal.calibrated_range
+    low, high = float(cal.concentration.min()), float(cal.concentration.max())
     if log_spacing:
         positive = cal.concentration[cal.concentration > 0]
         start = float(positive.min()) if positive.size else max(high * 1e-3, 1e-12)
         x = np.geomspace(start / (1 + margin), high * (1 + margin), points)
     else:
         span = high - low
-        x = np.linspace(low - margin * span, high + margin * span, points)
+        start = low - margin * span
+        if not cal.model.is_polynomial:
+            start = max(start, 0.0)  # the logistic and power curves are defined for concentrations ≥ 0
+        x = np.linspace(start, high + margin * span, points)
     if cal.model.value == "quadratic" and cal.vertex is not None:
         # never draw the curve past its vertex on the calibrated side
         if cal.quadratic_branch > 0:

@@ -5,7 +5,8 @@ laboratory analyst understands. The hierarchy::
 
     CurvewrightError                      base of every error the project raises on purpose
     ├── CalibrationInputError (ValueError)   the standards or options given to a fit are unusable
-    │   └── WeightingError                   the chosen weighting cannot be applied to these data
+    │   ├── WeightingError                   the chosen weighting cannot be applied to these data
+    │   └── ConvergenceError                 a nonlinear curve could not be fitted (the reason in words)
     ├── QuantitationInputError (ValueError)  the unknowns' responses or options are unusable
     ├── LimitsError (ValueError)             detection/quantitation limits cannot be computed
     └── ProfileError (ValueError)            an acceptance profile is malformed
@@ -24,6 +25,10 @@ class CalibrationInputError(CurvewrightError, ValueError):
 
 class WeightingError(CalibrationInputError):
     """The chosen weighting cannot be applied to these standards."""
+
+
+class ConvergenceError(CalibrationInputError):
+    """A curve fitted by nonlinear least squares did not converge; the message says why."""
 
 
 class QuantitationInputError(CurvewrightError, ValueError):

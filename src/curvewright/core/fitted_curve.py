@@ -99,6 +99,16 @@ class FittedCurve:
         return self.model.n_parameters
 
     @property
+    def coefficient_names(self) -> tuple[str, ...]:
+        """Names of ``coefficients`` for tables: b0, b1[, b2]."""
+        return tuple(f"b{p}" for p in range(self.coefficients.size))
+
+    @property
+    def coefficient_descriptions(self) -> tuple[str, ...]:
+        """What each coefficient is, in words."""
+        return tuple(f"coefficient of x^{p}" for p in range(self.coefficients.size))
+
+    @property
     def weights(self) -> FloatArray:
         """Weights of the standards, scaled so that they sum to n."""
         return self.weight_model.weights

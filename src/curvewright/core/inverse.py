@@ -89,6 +89,7 @@ class QuantFlag(IntFlag):
     AMBIGUOUS_ROOT = 64
     UNBOUNDED_INTERVAL = 128
     TURNING_POINT = 256
+    BEYOND_ASYMPTOTE = 512
 
     @property
     def words(self) -> str:
@@ -118,6 +119,10 @@ _WORDS = {
         "turning point, so the interval is read from the band on both sides (where the response lies "
         "beyond the curve's highest or lowest value, the estimate is the turning point itself)"
     ),
+    QuantFlag.BEYOND_ASYMPTOTE: (
+        "beyond an asymptote: the curve approaches this response but never reaches it, so no "
+        "concentration gives it"
+    ),
 }
 _SHORT_WORDS = {
     QuantFlag.IN_RANGE: "in range",
@@ -129,6 +134,7 @@ _SHORT_WORDS = {
     QuantFlag.AMBIGUOUS_ROOT: "two roots",
     QuantFlag.UNBOUNDED_INTERVAL: "open interval",
     QuantFlag.TURNING_POINT: "turning point",
+    QuantFlag.BEYOND_ASYMPTOTE: "beyond asymptote",
 }
 
 

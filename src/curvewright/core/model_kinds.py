@@ -18,19 +18,31 @@ class Model(str, Enum):
     QUADRATIC = "quadratic"
     PROPORTIONAL = "proportional"
     AVERAGE_RF = "average-rf"
+    FOUR_PL = "4pl"
+    FIVE_PL = "5pl"
+    POWER = "power"
 
     @property
     def n_parameters(self) -> int:
-        return {Model.LINEAR: 2, Model.QUADRATIC: 3, Model.PROPORTIONAL: 1, Model.AVERAGE_RF: 1}[self]
+        return {
+            Model.LINEAR: 2, Model.QUADRATIC: 3, Model.PROPORTIONAL: 1, Model.AVERAGE_RF: 1, Model.FOUR_PL: 4,
+            Model.FIVE_PL: 5, Model.POWER: 2,
+        }[self]
+
+    @property
+    def is_polynomial(self) -> bool:
+        """Fitted by linear least squares in a polynomial basis (else by nonlinear least squares)."""
+        return self in (Model.LINEAR, Model.QUADRATIC, Model.PROPORTIONAL, Model.AVERAGE_RF)
 
     @property
     def has_intercept(self) -> bool:
-        return self not in (Model.PROPORTIONAL, Model.AVERAGE_RF)
+        return self in (Model.LINEAR, Model.QUADRATIC)
 
     @property
     def powers(self) -> tuple[int, ...]:
-        """Powers of z in the design matrix."""
-        return {Model.LINEAR: (0, 1), Model.QUADRATIC: (0, 1, 2), Model.PROPORTIONAL: (1,), Model.AVERAGE_RF: (1,)}[self]
+        """Powers of z in the design matrix (none for a curve that is not a polynomial)."""
+        return {Model.LINEAR: (0, 1), Model.QUADRATIC: (0, 1, 2), Model.PROPORTIONAL: (1,),
+                Model.AVERAGE_RF: (1,)}.get(self, ())
 
     @property
     def description(self) -> str:
@@ -39,6 +51,9 @@ class Model(str, Enum):
             Model.QUADRATIC: "quadratic y = b0 + b1·x + b2·x²",
             Model.PROPORTIONAL: "straight line through the origin y = b1·x",
             Model.AVERAGE_RF: "average response factor y = RF·x (RF the mean of the standards' yᵢ/xᵢ)",
+            Model.FOUR_PL: "four-parameter logistic y = d + (a − d)/(1 + (x/c)^b)",
+            Model.FIVE_PL: "five-parameter logistic y = d + (a − d)/(1 + (x/c)^b)^g",
+            Model.POWER: "power curve y = a·x^b",
         }[self]
 
     @classmethod

@@ -8,6 +8,13 @@ Each model is a polynomial in the concentration x with ascending-power coefficie
 * ``average-rf``    y = RF̄·x           (RF̄ the mean response factor yᵢ/xᵢ of the standards, which is
   the line through the origin fitted with 1/x² weights; see :mod:`.response_factor`)
 
+and the curves that are not polynomials, fitted by weighted nonlinear least squares
+(:mod:`.curve_families`, :mod:`.nonlinear_calibration`):
+
+* ``4pl``           y = d + (a − d)/(1 + (x/c)^b)
+* ``5pl``           y = d + (a − d)/(1 + (x/c)^b)^g
+* ``power``         y = a·x^b
+
 Fitting is done in the variable z = (x − c)/s, with c the weighted mean of the standards'
 concentrations and s the largest |x − c| (c = 0 for the proportional model, so the line stays
 through the origin).

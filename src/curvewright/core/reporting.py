@@ -122,7 +122,9 @@ def report_value(
     qualifiers = [extra.words] if extra else []
     short_qualifiers = [extra.short_words] if extra else []
     if estimate is None or (flags is not None and QuantFlag.NO_SOLUTION in flags):
-        reason = not_quantified or (QuantFlag.NO_SOLUTION.words if flags is not None else "no numeric result")
+        reason = not_quantified or (
+            (flags & (QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_ASYMPTOTE)).words if flags is not None else "no numeric result"
+        )
         censored = reason.startswith("reported as censored")
         return ReportedValue(ReportStatus.NOT_QUANTIFIED, "not quantified" if not censored else reason.split(": ", 1)[-1],
                              reason, "censored" if censored else "not quantified", flags)

@@ -82,6 +82,8 @@ class Standard:
     exclusion_reason: str = ""
     internal_standard_response: Reading | None = None
     concentration_text: str = ""
+    anchor: bool = False
+    """An anchor point of a logistic curve: fitted, never judged for acceptance, outside the range."""
 
     @property
     def has_concentration(self) -> bool:

@@ -246,7 +246,7 @@ def _analyse_analyte(
 ) -> AnalyteResult:
     settings = run.settings
     use_model = model or analyte.model
-    fitted, excluded, unusable, x, y, labels = [], [], [], [], [], []
+    fitted, excluded, unusable, x, y, labels, anchors = [], [], [], [], [], [], []
     for s in analyte.standards:
         if not s.included:
             excluded.append(s)
@@ -270,12 +270,14 @@ def _analyse_analyte(
         x.append(s.concentration)
         y.append(value)
         labels.append(s.level)
+        anchors.append(s.anchor)
     use_weighting = weighting or analyte.weighting
     overridden = (model is not None and model != analyte.model) or (
         weighting is not None and weighting != analyte.weighting
     )
     try:
-        cal = fit(x, y, use_model, use_weighting, level_tolerance=settings.level_tolerance, level_labels=labels)
+        cal = fit(x, y, use_model, use_weighting, level_tolerance=settings.level_tolerance, level_labels=labels,
+                  anchor_points=anchors if any(anchors) else None)
     except CurvewrightError as exc:
         return AnalyteResult(
             analyte=analyte, calibration=None, error=str(exc), fitted_standards=tuple(fitted),
@@ -291,7 +293,9 @@ def _analyse_analyte(
     unusable_nonzero = sum(1 for u in unusable if analyte.standard(u.standard_id).concentration != 0)
     verdict = profile.evaluate(cal, excluded=excluded_nonzero, unusable=unusable_nonzero)
     unit = analyte.concentration_unit
-    rng = reporting_range(cal.concentration, limits.lod if limits else None, limits.loq if limits else None, unit)
+    low, high = cal.calibrated_range  # anchor points of a logistic curve lie outside it
+    in_range = cal.concentration[(cal.concentration >= low) & (cal.concentration <= high)]
+    rng = reporting_range(in_range, limits.lod if limits else None, limits.loq if limits else None, unit)
     samples = tuple(_report(s, rng, run, profile, unit) for s in _quantify_samples(run, analyte, cal, limits))
     checks = judge_checks([CheckInput(s.sample_id, s.kind, s.run_order, s.nominal, s.reported, s.status,
                                       s.dilution_factor, s.note) for s in samples],

@@ -36,6 +36,7 @@ ACTIONS = (
     "standard_removed_before_review",
     "standard_excluded",
     "standard_included",
+    "anchor_points_marked",
     "model_chosen",
     "profile_changed",
     "settings_changed",

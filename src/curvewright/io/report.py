@@ -386,10 +386,11 @@ def precision_appendix(result: RunResult) -> list[Block]:
         cal = a.calibration
         if cal is None:
             continue
-        rows = [(f"b{p}", repr(float(b)), repr(float(se))) for p, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors))]
+        names = cal.coefficient_names
+        rows = [(name, repr(float(b)), repr(float(se))) for name, b, se in zip(names, cal.coefficients, cal.standard_errors)]
         for i in range(cal.covariance.shape[0]):
             for j in range(i + 1, cal.covariance.shape[0]):
-                rows.append((f"covariance(b{i}, b{j})", repr(float(cal.covariance[i, j])), ""))
+                rows.append((f"covariance({names[i]}, {names[j]})", repr(float(cal.covariance[i, j])), ""))
         rows.append(("residual SD", repr(float(cal.residual_sd)), ""))
         blocks.append(PrintedTable(f"{a.analyte.name}: {cal.equation(6)}", ("Coefficient", "Value", "Standard error"),
                                    tuple(rows), (False, True, True)))

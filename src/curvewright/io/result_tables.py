@@ -218,12 +218,17 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         rows.append(("Calibration", f"not fitted: {a.error}", None))
         return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value", display="plain"), Column("Standard error", display="sig:3")), tuple(rows))
     rows.append(("Equation", cal.equation(12), None))
-    for power, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors)):
-        fixed = not cal.model.has_intercept and power == 0
-        rows.append((f"b{power} (coefficient of x^{power})", 0.0 if fixed else float(b), None if fixed else float(se)))
+    names = cal.coefficient_names
+    for power, (name, words, b, se) in enumerate(zip(names, cal.coefficient_descriptions, cal.coefficients,
+                                                    cal.standard_errors)):
+        fixed = cal.model in (Model.PROPORTIONAL, Model.AVERAGE_RF) and power == 0  # through the origin
+        rows.append((f"{name} ({words})", 0.0 if fixed else float(b), None if fixed else float(se)))
     for i in range(cal.covariance.shape[0]):
         for j in range(i + 1, cal.covariance.shape[0]):
-            rows.append((f"covariance(b{i}, b{j})", float(cal.covariance[i, j]), None))
+            rows.append((f"covariance({names[i]}, {names[j]})", float(cal.covariance[i, j]), None))
+    convergence = getattr(cal, "convergence", "")
+    if convergence:
+        rows.append(("Fit (nonlinear least squares)", f"converged: {convergence}", None))
     from .model_outputs import response_factor_rows
 
     rows += response_factor_rows(cal, an.uses_internal_standard)
@@ -550,6 +555,8 @@ def _mandel(cal: Calibration) -> tuple[Any, Any]:
 
     if not cal.model.has_intercept:
         return "not applicable to a line through the origin", None
+    if not cal.model.is_polynomial:
+        return f"not applicable to a {cal.model.description} (it compares a straight line with a quadratic)", None
     try:
         lin = cal if cal.model is Model.LINEAR else fit(cal.concentration, cal.response, "linear", cal.weighting.value)
         quad = cal if cal.model is Model.QUADRATIC else fit(cal.concentration, cal.response, "quadratic", cal.weighting.value)

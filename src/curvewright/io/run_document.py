@@ -142,6 +142,7 @@ def run_to_mapping(run: Run) -> dict[str, Any]:
                         "included": st.included,
                         "exclusion_reason": st.exclusion_reason,
                         "internal_standard_response": _reading_out(st.internal_standard_response),
+                        **({"anchor": True} if st.anchor else {}),
                     }
                     for st in a.standards
                 ],
@@ -759,6 +760,7 @@ class _Reader:
                     included=included,
                     exclusion_reason=reason,
                     internal_standard_response=self.reading(s.get("internal_standard_response"), f"{sp}.internal_standard_response", required=False),
+                    anchor=self.get(s, "anchor", sp, "bool", False, required=False),
                 )
             )
         self.unique([s.id for s in standards], f"{path}.standards", "standard id")

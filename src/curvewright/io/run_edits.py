@@ -55,6 +55,20 @@ def exclude_standard(
                 {"analyte": analyte, "standard": standard_id, "reason": reason.strip()}, user, clock)
 
 
+def mark_anchor_points(
+    run: Run, analyte: str, standard_ids: list[str], reason: str, *, user: Identity | str | None = None,
+    clock: Clock = utc_now,
+) -> Run:
+    """Mark standards as anchor points of a logistic curve (fitted, never judged), with the reason."""
+    if not reason.strip():
+        raise RunError(f"marking anchor points of {analyte}: give the reason.")
+    a = run.analyte(analyte)
+    for standard_id in standard_ids:
+        a = _with_standard(a, replace(a.standard(standard_id), anchor=True))
+    return _log(run.with_analyte(a), "anchor_points_marked",
+                {"analyte": analyte, "standards": list(standard_ids), "reason": reason.strip()}, user, clock)
+
+
 def include_standard(
     run: Run, analyte: str, standard_id: str, reason: str, *, user: Identity | str | None = None, clock: Clock = utc_now
 ) -> Run:

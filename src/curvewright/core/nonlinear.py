@@ -1,0 +1,260 @@
+"""Weighted nonlinear least squares: the fitter behind the curves that are not polynomials.
+
+Problem
+    Minimise S(β) = Σ wᵢ (yᵢ − f(xᵢ; β))² over the parameters β, with known weights wᵢ (scaled to
+    sum to n by the caller, so that the residual SD stays in response units).
+
+Method
+    Levenberg–Marquardt with a trust region and scaling by the columns of the Jacobian (Moré, "The
+    Levenberg–Marquardt algorithm: implementation and theory", Lecture Notes in Mathematics 630,
+    1978), as implemented by MINPACK's ``lmder`` behind ``scipy.optimize.least_squares(method="lm")``.
+    The model gives its own analytic Jacobian ∂f/∂β; the fitter never differences numerically.
+    Tolerances on the relative change of S, of β and on the gradient are 1e-15, so the fit stops
+    only when double precision can improve nothing more.
+
+Standard errors
+    At the minimum, with J the Jacobian of the weighted residuals √wᵢ·(f(xᵢ; β) − yᵢ),
+    cov(β̂) = s²·(JᵀJ)⁻¹ and s² = S(β̂)/(n − p) (the linearised covariance; Bates & Watts,
+    *Nonlinear Regression Analysis and Its Applications*, Wiley 1988, §2.3). (JᵀJ)⁻¹ comes from the
+    singular value decomposition of J with its columns scaled to unit length, never from forming
+    JᵀJ: its condition number enters once, not squared.
+
+Convergence
+    Every fit says whether it converged and why it stopped, in words (:attr:`NonlinearFit.reason`).
+    A fit that ran out of evaluations, met a non-finite value or whose parameters the data cannot
+    separate (a Jacobian of deficient rank) is not converged, and says which.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import optimize
+
+from ._arrays import FloatArray, frozen
+
+TOLERANCE = 1e-15
+"""Relative tolerance on the sum of squares, the parameters and the gradient (MINPACK ftol, xtol, gtol)."""
+RANK_TOLERANCE = 1e-10
+"""Smallest ratio of singular values of the column-scaled Jacobian accepted as full rank."""
+MAX_EVALUATIONS_PER_PARAMETER = 200
+_REFINE_STEPS = 3
+
+ModelFunction = Callable[[FloatArray, FloatArray], FloatArray]
+"""f(x, β) → responses of shape (n,)."""
+JacobianFunction = Callable[[FloatArray, FloatArray], FloatArray]
+"""∂f/∂β at (x, β) → array of shape (n, p)."""
+
+_STOP_WORDS = {
+    1: "the gradient of the sum of squares vanished (to 1e-15 relative)",
+    2: "the sum of squares stopped decreasing (relative change below 1e-15)",
+    3: "the parameters stopped changing (relative change below 1e-15)",
+    4: "the sum of squares and the parameters both stopped changing (relative change below 1e-15)",
+}
+
+
+@dataclass(frozen=True, eq=False)
+class NonlinearFit:
+    """The outcome of one weighted nonlinear least-squares fit. Arrays are read-only.
+
+    Attributes
+    ----------
+    parameters : array of shape (p,)
+        β̂, or the last point reached when the fit did not converge.
+    covariance, standard_errors
+        s²·(JᵀJ)⁻¹ and the square roots of its diagonal (NaN when the fit did not converge).
+    unscaled_covariance
+        (JᵀJ)⁻¹ alone.
+    residual_sd : float
+        s = √(S/(n − p)), in response units when the weights sum to n.
+    df_residual : int
+        n − p.
+    fitted : array of shape (n,)
+        f(xᵢ; β̂).
+    weighted_jacobian : array of shape (n, p)
+        √wᵢ·∂f/∂β at β̂ (the leverages and the delta method use it).
+    converged : bool
+        Whether the fit stopped at a minimum that the data determine.
+    reason : str
+        Why the fit stopped, in words (for a failure, what went wrong).
+    evaluations : int
+        Number of evaluations of the model.
+    """
+
+    parameters: FloatArray
+    covariance: FloatArray
+    unscaled_covariance: FloatArray
+    standard_errors: FloatArray
+    residual_sd: float
+    df_residual: int
+    sse: float
+    fitted: FloatArray
+    weighted_residuals: FloatArray
+    weighted_jacobian: FloatArray
+    converged: bool
+    reason: str
+    evaluations: int
+
+    @property
+    def leverage(self) -> FloatArray:
+        """Diagonal of the tangent-plane hat matrix J(JᵀJ)⁻¹Jᵀ (Bates & Watts 1988, §4.3)."""
+        u = _scaled_svd(self.weighted_jacobian)[0]
+        return np.einsum("ij,ij->i", u, u)
+
+
+def fit_nonlinear(
+    function: ModelFunction,
+    jacobian: JacobianFunction,
+    x: FloatArray,
+    y: FloatArray,
+    start: FloatArray,
+    weights: FloatArray | None = None,
+    *,
+    max_evaluations: int | None = None,
+) -> NonlinearFit:
+    """Fit ``function`` to (x, y) from ``start`` by weighted least squares (see the module docstring).
+
+    Never raises for a fit that fails to converge: the result says so in ``converged`` and ``reason``,
+    and the caller decides what to tell the analyst.
+    """
+    x = np.asarray(x, dtype=np.float64)
+    y = np.asarray(y, dtype=np.float64)
+    beta0 = np.asarray(start, dtype=np.float64).copy()
+    n, p = y.size, beta0.size
+    w = np.ones(n) if weights is None else np.asarray(weights, dtype=np.float64)
+    root_w = np.sqrt(w)
+    limit = max_evaluations or MAX_EVALUATIONS_PER_PARAMETER * (p + 1)
+
+    def residuals(beta: FloatArray) -> FloatArray:
+        with np.errstate(all="ignore"):
+            r = root_w * (function(x, beta) - y)
+        # A non-finite residual makes MINPACK wander; a huge finite one makes it step back instead.
+        return np.where(np.isfinite(r), r, 1e150)
+
+    def weighted_jacobian(beta: FloatArray) -> FloatArray:
+        with np.errstate(all="ignore"):
+            j = root_w[:, None] * jacobian(x, beta)
+        return np.where(np.isfinite(j), j, 0.0)
+
+    if not np.all(np.isfinite(beta0)):
+        return _failed(function, jacobian, x, y, beta0, root_w, 0, "the start values are not all finite numbers")
+    try:
+        result = optimize.least_squares(
+            residuals, beta0, jac=weighted_jacobian, method="lm", x_scale="jac",
+            ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, max_nfev=limit,
+        )
+    except (ValueError, np.linalg.LinAlgError) as exc:  # improper input reported by MINPACK
+        return _failed(function, jacobian, x, y, beta0, root_w, 0, f"the fit could not start ({exc})")
+    beta = np.asarray(result.x, dtype=np.float64)
+    evaluations = int(result.nfev)
+    if result.status > 0:
+        beta, extra = _refine(residuals, weighted_jacobian, beta)
+        evaluations += extra
+    with np.errstate(all="ignore"):
+        fitted = function(x, beta)
+        j = root_w[:, None] * jacobian(x, beta)
+    r = root_w * (y - fitted)
+    if not (np.all(np.isfinite(fitted)) and np.all(np.isfinite(j)) and np.all(np.isfinite(beta))):
+        return _failed(
+            function, jacobian, x, y, beta, root_w, evaluations,
+            "the curve or its derivatives stopped being finite numbers at the last parameters reached",
+        )
+    if result.status <= 0:
+        reason = (
+            f"no minimum was reached within {limit} evaluations of the curve"
+            if result.status == 0 else f"the fit stopped: {result.message}"
+        )
+        return _result(beta, j, fitted, r, n, p, evaluations, False, reason)
+    s = _scaled_svd(j)[1]
+    if s.size < p or s[-1] <= RANK_TOLERANCE * s[0]:
+        return _result(
+            beta, j, fitted, r, n, p, evaluations, False,
+            "the data cannot separate the parameters at the point reached (the curve's derivatives "
+            "with respect to them are linearly dependent over these concentrations)",
+        )
+    return _result(beta, j, fitted, r, n, p, evaluations, True, _STOP_WORDS.get(int(result.status), str(result.message)))
+
+
+def _refine(
+    residuals: Callable[[FloatArray], FloatArray], jacobian: Callable[[FloatArray], FloatArray], beta: FloatArray
+) -> tuple[FloatArray, int]:
+    """Up to three full Gauss–Newton steps from the converged point, each kept while it brings the
+    gradient of S closer to zero.
+
+    MINPACK stops when a step changes S by less than its tolerance relative to S. Near the minimum S
+    changes only in the square of the step, so S itself locates the minimum to no better than about
+    √ε times the parameters' standard errors (a few parts in 10⁸ where those are large). The gradient
+    Jᵀr vanishes linearly there, so it locates the minimum to about ε times the condition number.
+    A Gauss–Newton step, solved through the SVD of the column-scaled Jacobian, is kept while the
+    scaled gradient shrinks, which gives the same parameters in any units.
+    """
+    r = residuals(beta)
+    j = jacobian(beta)
+    u, s, vt, scale = _scaled_svd(j)
+    gradient = float(np.linalg.norm((j / scale).T @ r))
+    evaluations = 0
+    for _ in range(_REFINE_STEPS):
+        if s[-1] <= RANK_TOLERANCE * s[0] or gradient == 0.0:
+            break
+        trial = beta - (vt.T @ ((u.T @ r) / s)) / scale
+        r_trial = residuals(trial)
+        j_trial = jacobian(trial)
+        evaluations += 1
+        u_t, s_t, vt_t, scale_t = _scaled_svd(j_trial)
+        gradient_trial = float(np.linalg.norm((j_trial / scale_t).T @ r_trial))
+        if not gradient_trial < gradient:
+            break
+        beta, r, gradient = trial, r_trial, gradient_trial
+        u, s, vt, scale = u_t, s_t, vt_t, scale_t
+    return beta, evaluations
+
+
+def _scaled_svd(j: FloatArray) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
+    """SVD of J with its columns scaled to unit length: J·D⁻¹ = U·diag(s)·Vᵀ, D = column norms."""
+    scale = np.sqrt(np.sum(j * j, axis=0))
+    scale = np.where(scale > 0, scale, 1.0)
+    u, s, vt = np.linalg.svd(j / scale, full_matrices=False)
+    return u, s, vt, scale
+
+
+def _result(
+    beta: FloatArray, j: FloatArray, fitted: FloatArray, r: FloatArray, n: int, p: int,
+    evaluations: int, converged: bool, reason: str,
+) -> NonlinearFit:
+    df = n - p
+    sse = float(r @ r)
+    residual_sd = float(np.sqrt(sse / df)) if df > 0 else float("nan")
+    unscaled = np.full((p, p), np.nan)
+    if converged:
+        _, s, vt, scale = _scaled_svd(j)
+        # (JᵀJ)⁻¹ = D⁻¹·V·diag(1/s²)·Vᵀ·D⁻¹
+        unscaled = ((vt.T / s) @ (vt.T / s).T) / np.outer(scale, scale)
+    covariance = residual_sd**2 * unscaled
+    return NonlinearFit(
+        parameters=frozen(beta.copy()),
+        covariance=frozen(covariance),
+        unscaled_covariance=frozen(unscaled),
+        standard_errors=frozen(np.sqrt(np.abs(np.diag(covariance)))),
+        residual_sd=residual_sd,
+        df_residual=df,
+        sse=sse,
+        fitted=frozen(np.asarray(fitted, dtype=np.float64).copy()),
+        weighted_residuals=frozen(r),
+        weighted_jacobian=frozen(j),
+        converged=converged,
+        reason=reason,
+        evaluations=evaluations,
+    )
+
+
+def _failed(
+    function: ModelFunction, jacobian: JacobianFunction, x: FloatArray, y: FloatArray, beta: FloatArray,
+    root_w: FloatArray, evaluations: int, reason: str,
+) -> NonlinearFit:
+    n, p = y.size, beta.size
+    with np.errstate(all="ignore"):
+        fitted = np.asarray(function(x, beta), dtype=np.float64) if np.all(np.isfinite(beta)) else np.full(n, np.nan)
+    j = np.full((n, p), np.nan)
+    return _result(beta, j, fitted, root_w * (y - fitted), n, p, evaluations, False, reason)

@@ -1,0 +1,487 @@
+"""Calibrations on curves that are not polynomials (4PL, 5PL, power), fitted by nonlinear least squares.
+
+:func:`fit_nonlinear_curve` is what :func:`curvewright.core.calibration.fit` calls for these models.
+It returns a :class:`NonlinearCalibration`, a :class:`~curvewright.core.calibration.Calibration`
+that answers the same questions; only the formulas differ.
+
+Fit
+    Weighted nonlinear least squares (:mod:`.nonlinear`) from start values derived from the
+    standards (:mod:`.curve_families`); every start is tried and the converged, plausible fit with the
+    smallest weighted sum of squares is kept. A fit that converges from no start raises
+    :class:`~curvewright.core.errors.ConvergenceError` with the reason; a converged fit says how it
+    stopped in ``convergence`` and in its notes.
+
+Standard errors and bands
+    cov(β̂) = s²·(JᵀWJ)⁻¹ (linearised); the variance of the fitted curve at x is
+    ∇ᵦf(x)ᵀ·cov(β̂)·∇ᵦf(x) (delta method; Bates & Watts, *Nonlinear Regression Analysis and Its
+    Applications*, Wiley 1988, §2.3). Leverages are those of the tangent plane, J(JᵀWJ)⁻¹JᵀW.
+
+Regression test
+    Whether the response changes with concentration: the extra-sum-of-squares F-test of the fitted
+    curve against a constant, F = ((SST − SSE)/(p − 1))/(SSE/(n − p)) on (p − 1, n − p) degrees of
+    freedom (approximate for a nonlinear curve; Bates & Watts 1988, §3.2.2, from memory).
+
+Inverse prediction
+    x̂ solves f(x̂) = ȳ₀ in closed form (see :mod:`.curve_families`). A response at or beyond an
+    asymptote of the curve has no solution and is flagged (``NO_SOLUTION`` and ``BEYOND_ASYMPTOTE``).
+    Standard error by the delta method, s_x̂ = √(σ²/(m·w₀) + var f̂(x̂))/|f'(x̂)|. The interval
+    inverts the prediction band for the mean of m new responses: the concentrations x ≥ 0 with
+    (ȳ₀ − f̂(x))² ≤ t²·(σ²/(m·w(x)) + var f̂(x)), searched outward from x̂ in ln x and refined by
+    bisection to full precision, each unknown on its own. Where the band still holds ȳ₀ as x → 0 the
+    lower end is 0; where it never closes upward the upper end is +inf (flagged unbounded).
+
+Anchor points
+    Standards marked as anchor points (ligand-binding assays place them beyond the range of
+    quantitation to fix the asymptotes) take part in the fit but not in acceptance, and the
+    calibrated range (LLOQ to ULOQ) is that of the other standards.
+
+Limits
+    The ICH Q2 LOD/LOQ (3.3σ/S, 10σ/S) need the slope of a straight line at zero; these curves have
+    none that means the same thing, so :meth:`NonlinearCalibration.limits` refuses with the reason:
+    the range of quantitation is set by the lowest and highest standards that meet acceptance.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ._arrays import FloatArray, as_confidence_level, as_finite_vector, frozen
+from .calibration import Calibration, register_curve_fitter
+from .curve_families import FAMILIES, CurveFamily
+from .distributions import f_upper_tail, t_quantile
+from .errors import CalibrationInputError, ConvergenceError, LimitsError, QuantitationInputError, WeightingError
+from .influence import measure_influence
+from .inverse import INTERVAL_METHODS, RANGE_SLACK, QuantFlag, Quantitation, _refuse_unrepresentable, _replicate_counts
+from .lack_of_fit import lack_of_fit_test
+from .least_squares import ROUNDOFF, without_roundoff
+from .levels import Levels
+from .limits import DetectionLimits
+from .models import Basis, Model
+from .nonlinear import NonlinearFit, fit_nonlinear
+from .regression_test import RegressionTest
+from .weighting import Weighting, make_weights
+
+LOGISTIC_MODELS = (Model.FOUR_PL, Model.FIVE_PL)
+SEARCH_DECADES = 20.0
+"""How far beyond the standards the band inversion looks for an interval's ends, in spans of ln x
+(at least one natural-log unit)."""
+_EXPANSIONS = 80
+_BISECTIONS = 200
+
+
+@dataclass(frozen=True, eq=False)
+class NonlinearCalibration(Calibration):
+    """A calibration on a 4PL, 5PL or power curve. Immutable; see :mod:`.nonlinear_calibration`.
+
+    ``coefficients`` are the named parameters in the order of ``parameter_names`` (a, b, c, d[, g] for
+    the logistic curves, a, b for the power curve), with ``covariance`` and ``standard_errors``.
+    """
+
+    family: CurveFamily | None = None
+    convergence: str = ""
+    evaluations: int = 0
+    anchor_points: np.ndarray | None = None
+    """One flag per standard: True for an anchor point (fitted, never judged, outside the range)."""
+
+    @property
+    def parameter_names(self) -> tuple[str, ...]:
+        assert self.family is not None
+        return self.family.parameter_names
+
+    @property
+    def coefficient_names(self) -> tuple[str, ...]:
+        return self.parameter_names
+
+    @property
+    def coefficient_descriptions(self) -> tuple[str, ...]:
+        assert self.family is not None
+        return self.family.parameter_words
+
+    @property
+    def parameters(self) -> dict[str, float]:
+        """The fitted parameters by name."""
+        return dict(zip(self.parameter_names, (float(v) for v in self.coefficients), strict=True))
+
+    @property
+    def anchors(self) -> np.ndarray:
+        """Boolean mask of the anchor points (all False when none were marked)."""
+        if self.anchor_points is None:
+            return np.zeros(self.concentration.size, dtype=bool)
+        return self.anchor_points
+
+    @property
+    def calibrated_range(self) -> tuple[float, float]:
+        """Lowest and highest standard concentration, anchor points left out (LLOQ to ULOQ)."""
+        x = self.concentration[~self.anchors]
+        return float(x.min()), float(x.max())
+
+    def equation(self, digits: int = 10) -> str:
+        """The formula and its fitted parameters to ``digits`` significant figures."""
+        assert self.family is not None
+        values = ", ".join(f"{name} = {value:.{digits}g}" for name, value in self.parameters.items())
+        return f"{self.family.formula} with {values}"
+
+    def predict(self, concentration: object) -> FloatArray:
+        assert self.family is not None
+        return self.family.function(np.asarray(concentration, dtype=np.float64), self.coefficients)
+
+    def curve_sd(self, concentration: object) -> FloatArray:
+        """Standard error of the fitted curve at ``concentration`` (delta method)."""
+        assert self.family is not None
+        g = self.family.jacobian(np.asarray(concentration, dtype=np.float64), self.coefficients)
+        # term by term in a fixed order, so that each concentration's value has the same bits whatever
+        # else is computed alongside it
+        variance = np.zeros(g.shape[:-1])
+        p = g.shape[-1]
+        for i in range(p):
+            for j in range(p):
+                variance = variance + g[..., i] * self.covariance[i, j] * g[..., j]
+        return np.sqrt(np.maximum(variance, 0.0))
+
+    def limits(self, method: str = "residual_sd", **options: object) -> DetectionLimits:
+        """Refused: see the module docstring (the range of quantitation comes from acceptance)."""
+        raise LimitsError(
+            f"LOD and LOQ from the residual SD and the slope (ICH Q2) are defined for straight lines and "
+            f"quadratics; for a {self.model.description} the range of quantitation runs from the lowest "
+            "to the highest standard that meets acceptance (LLOQ to ULOQ)."
+        )
+
+    def quantify(
+        self,
+        mean_response: object,
+        replicates: object = 1,
+        level: float = 0.95,
+        interval: str = "band",
+        limits: DetectionLimits | None = None,
+    ) -> Quantitation:
+        """Concentrations of unknowns from their mean responses; see the module docstring."""
+        return _quantify(self, mean_response, replicates, level, interval, limits)
+
+
+def fit_nonlinear_curve(
+    model: Model,
+    weighting: Weighting,
+    x: FloatArray,
+    y: FloatArray,
+    levels: Levels,
+    response_sd: FloatArray | None,
+    anchor_points: object | None,
+) -> NonlinearCalibration:
+    """Fit a 4PL, 5PL or power curve to checked standards (called by :func:`~.calibration.fit`)."""
+    family = FAMILIES[model]
+    anchors = _anchor_mask(model, x, anchor_points)
+    if model is Model.POWER:
+        bad = np.flatnonzero(x <= 0)
+        if bad.size:
+            i = int(bad[0])
+            raise CalibrationInputError(
+                f"concentration: standard {i + 1} is at {x[i]:g}; a power curve y = a·x^b is fitted to "
+                "concentrations above zero (leave blanks out of this fit)."
+            )
+    else:
+        bad = np.flatnonzero(x < 0)
+        if bad.size:
+            i = int(bad[0])
+            raise CalibrationInputError(
+                f"concentration: standard {i + 1} is at {x[i]:g}; a logistic curve needs concentrations of zero or more."
+            )
+    if weighting.variance_function is not None:
+        raise WeightingError(
+            f"weighting {weighting.value}: a variance function is estimated for straight lines and quadratics "
+            f"only so far; for a {model.description} choose 1/y^2 (a constant relative SD), 1/y, 1/x^2, 1/x, "
+            "none, or 1/s^2 with known SDs."
+        )
+    weights = make_weights(weighting, x, y, levels, response_sd, model)
+    w = weights.weights
+    fit = _best_fit(family, x, y, w)
+    p = model.n_parameters
+    df = x.size - p
+    root_w = np.sqrt(w)
+    root_wy = root_w * y
+    clean = without_roundoff(fit.weighted_residuals, root_wy)
+    residual_sd = float(np.sqrt((clean @ clean) / df))
+    covariance = residual_sd**2 * fit.unscaled_covariance
+    coefficients = fit.parameters.copy()
+    mean_w = float(np.sum(w * y) / np.sum(w))
+    sst = float(np.sum(w * (y - mean_w) ** 2))
+    sse = float(clean @ clean)
+    if sst <= x.size * (ROUNDOFF * float(np.max(np.abs(root_wy)))) ** 2:
+        r_squared = 0.0
+    else:
+        r_squared = 1.0 - sse / sst
+    regression = _regression_test(fit.fitted, y, sst, sse, p, df)
+    influence = measure_influence(fit.weighted_residuals, fit.leverage, p, root_wy)
+    lack = lack_of_fit_test(clean / root_w, w, levels, p, weights_from_replicates=weights.from_replicates)
+    back, _ = family.inverse(y, coefficients)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
+    notes: tuple[str, ...] = (f"fitted by nonlinear least squares: converged ({fit.reason}) after {fit.evaluations} evaluations",)
+    if not regression.significant:
+        notes = (regression.words,) + notes
+    beyond = int(np.count_nonzero(np.isnan(back)))
+    if beyond:
+        notes = notes + (f"{beyond} standard(s) lie beyond an asymptote of the fitted curve and cannot be read back",)
+    if anchors.any():
+        notes = notes + (
+            f"{int(anchors.sum())} anchor point(s) fitted but left out of acceptance and of the calibrated range",
+        )
+    notes = notes + influence.notes
+    adjust = (x.size - 1) / df
+    return NonlinearCalibration(
+        model=model,
+        weighting=weighting,
+        concentration=x,
+        response=y,
+        levels=levels,
+        weight_model=weights,
+        basis=Basis(centre=0.0, scale=1.0, powers=()),
+        z_coefficients=frozen(coefficients.copy()),
+        z_covariance=frozen(covariance.copy()),
+        coefficients=frozen(coefficients),
+        covariance=frozen(covariance),
+        standard_errors=frozen(np.sqrt(np.maximum(np.diag(covariance), 0.0))),
+        residual_sd=residual_sd,
+        df_residual=df,
+        r_squared=float(r_squared),
+        adjusted_r_squared=float(1.0 - (1.0 - r_squared) * adjust),
+        fitted=frozen(fit.fitted.copy()),
+        residuals=frozen(y - fit.fitted),
+        influence=influence,
+        lack_of_fit=lack,
+        regression=regression,
+        back_calculated=frozen(back),
+        relative_error=frozen(relative),
+        notes=notes,
+        family=family,
+        convergence=fit.reason,
+        evaluations=fit.evaluations,
+        anchor_points=frozen(anchors) if anchors.any() else None,
+    )
+
+
+def _anchor_mask(model: Model, x: FloatArray, anchor_points: object | None) -> np.ndarray:
+    """The anchor points as a boolean mask, checked: logistic curves only, outside the other standards' range."""
+    if anchor_points is None:
+        return np.zeros(x.size, dtype=bool)
+    mask = np.asarray(anchor_points)
+    if mask.shape != x.shape or mask.dtype != bool:
+        raise CalibrationInputError(
+            f"anchor points: give one True/False per standard ({x.size} standards); found {mask.shape[0] if mask.ndim else 1} value(s)."
+        )
+    if not mask.any():
+        return mask.copy()
+    if model not in LOGISTIC_MODELS:
+        raise CalibrationInputError(
+            f"anchor points: a {model.description} has no asymptotes to anchor; anchor points belong to "
+            "the logistic curves (4pl, 5pl)."
+        )
+    rest = x[~mask]
+    if rest.size == 0:
+        raise CalibrationInputError("anchor points: every standard is marked as one; the calibration standards are needed too.")
+    low, high = rest.min(), rest.max()
+    inside = np.flatnonzero(mask & (x >= low) & (x <= high))
+    if inside.size:
+        i = int(inside[0])
+        raise CalibrationInputError(
+            f"anchor points: standard {i + 1} (concentration {x[i]:g}) is marked as an anchor point but lies "
+            f"within the range of the calibration standards ({low:g} to {high:g}); anchor points lie outside it."
+        )
+    return mask.copy()
+
+
+def _best_fit(family: CurveFamily, x: FloatArray, y: FloatArray, w: FloatArray) -> NonlinearFit:
+    """Fit from every start; keep the converged, plausible fit with the smallest weighted sum of squares.
+
+    A start that does not converge stops after a bounded number of evaluations (:mod:`.nonlinear`), and
+    the reasons of every failure are reported if no start succeeds.
+    """
+    starts = family.starts(x, y)
+    if family.model is Model.FIVE_PL:
+        four = FAMILIES[Model.FOUR_PL]
+        try:
+            start = _best_fit(four, x, y, w).parameters
+            starts = [np.append(start, 1.0)] + starts
+        except ConvergenceError:
+            pass
+    best: NonlinearFit | None = None
+    failures: list[str] = []
+    for start in starts:
+        result = fit_nonlinear(family.function, family.jacobian, x, y, start, w)
+        problem = _implausible(family, result) if result.converged else result.reason
+        if problem:
+            failures.append(problem)
+            continue
+        if best is None or result.sse < best.sse:
+            best = result
+    if best is None:
+        reasons = "; ".join(dict.fromkeys(failures))
+        raise ConvergenceError(
+            f"standards: the {family.model.description} could not be fitted to these standards from any of "
+            f"{len(starts)} start values derived from them ({reasons}); check the standards, or choose another model."
+        )
+    return best
+
+
+def _implausible(family: CurveFamily, result: NonlinearFit) -> str | None:
+    """Why a converged logistic fit is not a calibration curve (None when it is)."""
+    if family.model not in LOGISTIC_MODELS:
+        return None
+    b, c = result.parameters[1], result.parameters[2]
+    if not c > 0:
+        return f"the fit converged to an inflection point of {c:.4g}, not a concentration above zero"
+    if not b > 0:
+        return "the fit converged to a slope factor b ≤ 0"
+    if family.model is Model.FIVE_PL and not result.parameters[4] > 0:
+        return "the fit converged to an asymmetry g ≤ 0"
+    return None
+
+
+def _regression_test(fitted: FloatArray, y: FloatArray, sst: float, sse: float, p: int, df: int) -> RegressionTest:
+    dfs = (p - 1, df)
+    if float(np.ptp(fitted)) <= ROUNDOFF * float(np.max(np.abs(y))):
+        return RegressionTest(0.0, dfs, 1.0)
+    if sse == 0.0:
+        return RegressionTest(float("inf"), dfs, 0.0)
+    f = ((sst - sse) / (p - 1)) / (sse / df)
+    if not f > 0:
+        return RegressionTest(0.0, dfs, 1.0)
+    return RegressionTest(float(f), dfs, f_upper_tail(float(f), p - 1, df))
+
+
+# --- inverse prediction ------------------------------------------------------------------------------
+def _quantify(
+    cal: NonlinearCalibration,
+    mean_response: object,
+    replicates: object,
+    level: float,
+    interval: str,
+    limits: DetectionLimits | None,
+) -> Quantitation:
+    assert cal.family is not None
+    if not cal.regression.significant:
+        raise QuantitationInputError(
+            f"calibration: {cal.regression.words}; check the standards' concentrations and responses."
+        )
+    y0 = as_finite_vector(mean_response, "mean response", QuantitationInputError, item="unknown")
+    m = _replicate_counts(replicates, y0.size)
+    level = as_confidence_level(level, QuantitationInputError)
+    if interval not in INTERVAL_METHODS:
+        raise QuantitationInputError(
+            f"interval: {interval!r} is not one of {', '.join(map(repr, INTERVAL_METHODS))}."
+        )
+    probability = 0.5 + level / 2.0
+    params = cal.coefficients
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        x_hat, beyond = cal.family.inverse(y0, params)
+        solved = ~beyond
+        at = np.where(solved, x_hat, cal.calibrated_range[0])
+        new_var = cal.residual_sd**2 / (m * cal.weight_model.weight_at(at, y0))
+        curve_var = cal.curve_sd(at) ** 2
+        slope = cal.family.slope(at, params)
+        se = np.sqrt(new_var + curve_var) / np.abs(slope)
+        if interval == "symmetric":
+            t_hat = cal.band_t(probability, at, new_var, curve_var)
+            lower, upper = x_hat - t_hat * se, x_hat + t_hat * se
+        else:
+            lower, upper = _band_ends(cal, y0, m, probability, at, se, solved)
+    _refuse_unrepresentable(y0, solved & ~(np.isfinite(x_hat) & np.isfinite(se) & ~np.isnan(lower) & ~np.isnan(upper)))
+    unbounded = solved & (np.isinf(lower) | np.isinf(upper))
+
+    limits_note = None
+    if limits is None:
+        try:
+            limits = cal.limits()
+        except LimitsError as exc:
+            limits_note = f"LOD/LOQ flags not set: {exc}"
+    low, high = cal.calibrated_range
+    slack = RANGE_SLACK * (high - low)
+    low, high = low - slack, high + slack
+    bits = np.zeros(y0.size, dtype=np.int64)
+    bits |= np.where(solved & (x_hat < low), int(QuantFlag.BELOW_RANGE), 0)
+    bits |= np.where(solved & (x_hat > high), int(QuantFlag.ABOVE_RANGE), 0)
+    bits |= np.where(solved & (x_hat >= low) & (x_hat <= high), int(QuantFlag.IN_RANGE), 0)
+    if limits is not None:
+        if limits.loq is not None:
+            bits |= np.where(solved & (x_hat < limits.loq), int(QuantFlag.BELOW_LOQ), 0)
+        bits |= np.where(solved & (x_hat < limits.lod), int(QuantFlag.BELOW_LOD), 0)
+    bits |= np.where(beyond, int(QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_ASYMPTOTE), 0)
+    bits |= np.where(unbounded, int(QuantFlag.UNBOUNDED_INTERVAL), 0)
+    nan = np.where(beyond, np.nan, 0.0)
+    return Quantitation(
+        mean_response=frozen(y0),
+        replicates=frozen(m),
+        level=float(level),
+        interval=interval,
+        df=cal.df_residual,
+        estimate=frozen(np.where(beyond, np.nan, x_hat)),
+        standard_error=frozen(se + nan),
+        lower=frozen(np.where(beyond, np.nan, lower)),
+        upper=frozen(np.where(beyond, np.nan, upper)),
+        flag_bits=frozen(bits),
+        limits=limits,
+        limits_note=limits_note,
+    )
+
+
+def _band_excess(
+    cal: NonlinearCalibration, y0: FloatArray, m: np.ndarray, probability: float, u: FloatArray
+) -> FloatArray:
+    """(ȳ₀ − f̂(x))² − t²·(σ²/(m·w(x)) + var f̂(x)) at x = eᵘ; ≤ 0 inside the calibration interval."""
+    x = np.exp(u)
+    fitted = cal.predict(x)
+    curve_var = cal.curve_sd(x) ** 2
+    new_var = cal.residual_sd**2 / (m * cal.weight_model.weight_at(x, y0))
+    t = cal.band_t(probability, x, new_var, curve_var)
+    return (y0 - fitted) ** 2 - t * t * (new_var + curve_var)
+
+
+def _band_ends(
+    cal: NonlinearCalibration, y0: FloatArray, m: np.ndarray, probability: float, x_hat: FloatArray,
+    se: FloatArray, solved: np.ndarray,
+) -> tuple[FloatArray, FloatArray]:
+    """Both ends of the calibration interval, in x (vectorised; each unknown on its own).
+
+    Works in u = ln x: from û = ln x̂ each side steps outward, doubling from the symmetric half-width
+    t·s_x̂/x̂, until it leaves the band or reaches ``SEARCH_DECADES`` spans beyond the standards, then
+    bisects the bracket to full precision. A lower side that never leaves the band ends at x = 0;
+    an upper side that never leaves it is unbounded (+inf).
+    """
+    positive = cal.concentration[cal.concentration > 0]
+    ln_low, ln_high = float(np.log(positive.min())), float(np.log(positive.max()))
+    reach = SEARCH_DECADES * max(1.0, ln_high - ln_low)
+    k = y0.size
+    u0 = np.tile(np.log(np.where(solved, x_hat, np.exp(ln_low))), 2)
+    direction = np.repeat([-1.0, 1.0], k)
+    limit = np.where(direction < 0, ln_low - reach, ln_high + reach)
+    limit = np.maximum(np.abs(limit - u0), 1e-3)  # distance available on each side
+    yy, mm = np.tile(y0, 2), np.tile(m, 2)
+    t = t_quantile(probability, cal.df_residual)
+    first = np.tile(t * se / np.where(solved, x_hat, 1.0), 2)
+    first = np.where(np.isfinite(first) & (first > 0), np.minimum(first, limit), 1e-3)
+    inner = np.zeros(2 * k)
+    outer = first.copy()
+    closed = _band_excess(cal, yy, mm, probability, u0 + direction * outer) > 0
+    for _ in range(_EXPANSIONS):
+        open_ = ~closed & (outer < limit)
+        if not open_.any():
+            break
+        inner = np.where(open_, outer, inner)
+        outer = np.where(open_, np.minimum(2.0 * outer, limit), outer)
+        closed = closed | (open_ & (_band_excess(cal, yy, mm, probability, u0 + direction * outer) > 0))
+    for _ in range(_BISECTIONS):
+        mid = 0.5 * (inner + outer)
+        moving = closed & (mid > inner) & (mid < outer)
+        if not moving.any():
+            break
+        out = _band_excess(cal, yy, mm, probability, u0 + direction * mid) > 0
+        outer = np.where(moving & out, mid, outer)
+        inner = np.where(moving & ~out, mid, inner)
+    edge = np.exp(u0 + direction * outer)
+    edge = np.where(closed, edge, np.where(direction < 0, 0.0, np.inf))
+    lower, upper = edge[:k], edge[k:]
+    return np.where(solved, lower, np.nan), np.where(solved, upper, np.nan)
+
+
+register_curve_fitter(fit_nonlinear_curve)
