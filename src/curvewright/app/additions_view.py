@@ -12,10 +12,12 @@ import pyqtgraph as pg
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QComboBox, QHBoxLayout, QLabel, QVBoxLayout, QWidget
 
-from ..core.addition_series import AdditionSeriesResult
-from ..core.run_analysis import AnalyteResult
-from ..core.standard_additions import MATRIX_WARNING
 from . import figures, palette
+
+TYPE_CHECKING = False
+if TYPE_CHECKING:  # the engine loads on the analysis thread, after the window is painted
+    from ..core.addition_series import AdditionSeriesResult
+    from ..core.run_analysis import AnalyteResult
 
 
 def draw_additions(plot: pg.PlotItem, a: AnalyteResult, series: AdditionSeriesResult, *,
@@ -68,6 +70,8 @@ def series_words(a: AnalyteResult, series: AdditionSeriesResult) -> str:
         words += (f"; × dilution factor {series.dilution_factor:g} = {series.reported:.5g}{in_unit} "
                   f"({series.reported_lower:.5g} to {series.reported_upper:.5g})")
     extra = [w for w in r.warnings[1:]] + ([series.note] if series.note else [])
+    from ..core.standard_additions import MATRIX_WARNING
+
     return words + "".join(f". Note: {w}" for w in extra) + f". Warning: {MATRIX_WARNING}."
 
 

@@ -2,5 +2,3 @@
 
 numpy and scipy only; this package never imports Qt.
 """
-
-from . import nonlinear_calibration  # noqa: E402,F401  (registers the fitter of the curves that are not polynomials)

@@ -7,7 +7,7 @@ answers everything the plot, the tables, the command line and the workbook need.
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -71,18 +71,6 @@ class Calibration(FittedCurve):
     def evaluate(self, profile: AcceptanceProfile, excluded: int = 0, unusable: int = 0) -> AcceptanceVerdict:
         """Judge the back-calculated standards against an acceptance ``profile``."""
         return profile.evaluate(self, excluded=excluded, unusable=unusable)
-
-
-CurveFitter = Callable[..., Calibration]
-_curve_fitter: CurveFitter | None = None
-"""Fits the curves that are not polynomials (:func:`.nonlinear_calibration.fit_nonlinear_curve`, which
-builds on this module and registers itself when :mod:`curvewright.core` is imported)."""
-
-
-def register_curve_fitter(fitter: CurveFitter) -> None:
-    """Set the function :func:`fit` calls for models that are not polynomials."""
-    global _curve_fitter
-    _curve_fitter = fitter
 
 
 def fit(
@@ -174,8 +162,10 @@ def fit(
     x.setflags(write=False)
     y.setflags(write=False)
     if not model.is_polynomial:
-        assert _curve_fitter is not None, "curvewright.core registers the nonlinear curve fitter on import"
-        return _curve_fitter(model, weighting, x, y, levels, response_sd, anchor_points)
+        # imported here, not at the top: it builds on this module, and scipy.optimize loads only when needed
+        from .nonlinear_calibration import fit_nonlinear_curve
+
+        return fit_nonlinear_curve(model, weighting, x, y, levels, response_sd, anchor_points)
     if anchor_points is not None and np.any(np.asarray(anchor_points, dtype=bool)):
         raise CalibrationInputError(
             f"anchor points: a {model.description} has no asymptotes to anchor; anchor points belong to "

@@ -41,7 +41,6 @@ from dataclasses import dataclass
 from typing import Callable
 
 import numpy as np
-from scipy import special
 
 from ._arrays import FloatArray
 from .models import Model
@@ -71,6 +70,8 @@ def _logistic_parts(x: FloatArray, c: float, b: float) -> tuple[FloatArray, Floa
     with np.errstate(divide="ignore", invalid="ignore"):
         log_ratio = np.log(x) - np.log(c)
         t = b * log_ratio
+        from scipy import special  # loaded on first use: the app's window opens before the engine loads
+
         s = special.expit(-t)
     return s, np.where(x > 0, log_ratio, 0.0)
 

@@ -48,7 +48,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ._arrays import FloatArray, as_confidence_level, as_finite_vector, frozen
-from .calibration import Calibration, register_curve_fitter
+from .calibration import Calibration
 from .curve_families import FAMILIES, CurveFamily
 from .distributions import f_upper_tail, t_quantile
 from .errors import CalibrationInputError, ConvergenceError, LimitsError, QuantitationInputError, WeightingError
@@ -484,4 +484,3 @@ def _band_ends(
     return np.where(solved, lower, np.nan), np.where(solved, upper, np.nan)
 
 
-register_curve_fitter(fit_nonlinear_curve)
