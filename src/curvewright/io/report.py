@@ -44,6 +44,14 @@ FORMULA_SOURCES = (
     "LOD = 3.3σ/S and LOQ = 10σ/S (ICH Q2(R1)); critical value and minimum detectable value (ISO 11843-2).",
     "AICc (Hurvich & Tsai 1989); weighting choice by Σ|%RE| (Almeida, Castel-Branco & Falcão 2002) and by the "
     "growth of the replicate SD (Tellinghuisen 2007).",
+    "Four- and five-parameter logistic and power curves by weighted nonlinear least squares (Levenberg–Marquardt; "
+    "Moré 1978), checked on the NIST StRD nonlinear datasets; their intervals by inverting the prediction band, "
+    "standard errors by the delta method.",
+    "Average response factor: RF the mean of yᵢ/xᵢ with its %RSD; interval ȳ₀/(RF ± t·s_RF·√(1/m + 1/n)) (the "
+    "normal prediction interval; Hahn & Meeker 1991, ch. 4, chapter from memory).",
+    "Standard additions: the magnitude of the x-intercept a/b with s = (s_y/x / b)·√(1/n + ȳ²/(b²·Sxx)) "
+    "(Miller & Miller, §5.11; Harvey, Analytical Chemistry 2.1, ch. 5; section numbers from memory); it assumes "
+    "matrix-matched linearity.",
 )
 
 
