@@ -17,7 +17,8 @@ if TYPE_CHECKING:  # the names below are loaded on first use (see __getattr__)
     from typing import Any
 
     from .core.acceptance import AcceptanceProfile, AcceptanceVerdict, available_profiles, load_profile
-    from .core.calibration import Calibration, fit
+    from .core.calibration import Calibration
+    from .core.fitting import fit
     from .core.comparison import Candidate, ModelComparison, compare, mandel_test
     from .core.errors import (
         CalibrationInputError,
@@ -39,7 +40,7 @@ if TYPE_CHECKING:  # the names below are loaded on first use (see __getattr__)
 _PUBLIC = {
     "AcceptanceProfile": "acceptance", "AcceptanceVerdict": "acceptance",
     "available_profiles": "acceptance", "load_profile": "acceptance",
-    "Calibration": "calibration", "fit": "calibration",
+    "Calibration": "calibration", "fit": "fitting",
     "Candidate": "comparison", "ModelComparison": "comparison", "compare": "comparison",
     "mandel_test": "comparison",
     "CalibrationInputError": "errors", "ConvergenceError": "errors", "CurvewrightError": "errors", "LimitsError": "errors",

@@ -7,7 +7,7 @@ answers everything the plot, the tables, the command line and the workbook need.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -84,8 +84,11 @@ def fit(
     level_labels: Sequence[str] | None = None,
     levels: Levels | None = None,
     anchor_points: Sequence[bool] | None = None,
+    curve_fitter: Callable[..., Calibration] | None = None,
 ) -> Calibration:
-    """Fit a calibration curve to standards.
+    """Fit a calibration curve to standards (:func:`curvewright.core.fitting.fit`, the public entry,
+    passes ``curve_fitter``: the fitter of the curves that are not polynomials, which builds on this
+    module and so is never imported by it).
 
     Parameters
     ----------
@@ -162,10 +165,10 @@ def fit(
     x.setflags(write=False)
     y.setflags(write=False)
     if not model.is_polynomial:
-        # imported here, not at the top: it builds on this module, and scipy.optimize loads only when needed
-        from .nonlinear_calibration import fit_nonlinear_curve
-
-        return fit_nonlinear_curve(model, weighting, x, y, levels, response_sd, anchor_points)
+        if curve_fitter is None:
+            raise CalibrationInputError(f"model {model.value}: fitted by curvewright.fit, which also fits the curves "
+                                        "that are not polynomials.")
+        return curve_fitter(model, weighting, x, y, levels, response_sd, anchor_points)
     if anchor_points is not None and np.any(np.asarray(anchor_points, dtype=bool)):
         raise CalibrationInputError(
             f"anchor points: a {model.description} has no asymptotes to anchor; anchor points belong to "

@@ -67,7 +67,8 @@ import numpy as np
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
 from ._arrays import as_finite_vector
-from .calibration import Calibration, fit
+from .calibration import Calibration
+from .fitting import fit
 from .distributions import f_quantile, f_upper_tail
 from .errors import CalibrationInputError
 from .levels import group_levels

@@ -1,6 +1,6 @@
 """Calibrations on curves that are not polynomials (4PL, 5PL, power), fitted by nonlinear least squares.
 
-:func:`fit_nonlinear_curve` is what :func:`curvewright.core.calibration.fit` calls for these models.
+:func:`fit_nonlinear_curve` is what :func:`curvewright.core.fitting.fit` passes to :func:`.calibration.fit` for these models.
 It returns a :class:`NonlinearCalibration`, a :class:`~curvewright.core.calibration.Calibration`
 that answers the same questions; only the formulas differ.
 
@@ -169,7 +169,7 @@ def fit_nonlinear_curve(
     response_sd: FloatArray | None,
     anchor_points: object | None,
 ) -> NonlinearCalibration:
-    """Fit a 4PL, 5PL or power curve to checked standards (called by :func:`~.calibration.fit`)."""
+    """Fit a 4PL, 5PL or power curve to checked standards (passed by :func:`~.fitting.fit` to :func:`~.calibration.fit`)."""
     family = FAMILIES[model]
     anchors = _anchor_mask(model, x, anchor_points)
     if model is Model.POWER:

@@ -25,7 +25,8 @@ import numpy as np
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
 from .addition_series import AdditionSeriesResult, analyse_additions
-from .calibration import Calibration, fit
+from .calibration import Calibration
+from .fitting import fit
 from .checks import CheckInput, CheckVerdict, bracketing, judge_checks
 from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag

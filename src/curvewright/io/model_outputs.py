@@ -66,8 +66,12 @@ def curve_words(cal: FittedCurve, uses_internal_standard: bool) -> str:
         parts.append(f"mean {short} = {rf.mean:.6g} (standard error {rf.standard_error:.3g}), {short} %RSD = "
                      f"{rf.rsd_percent:.3g} % over {rf.n} standards")
     else:
-        terms = [f"b{p} = {b:.6g} (SE {se:.3g})" for p, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors))
-                 if cal.model.has_intercept or p > 0]
+        if cal.model.is_polynomial:  # b0 … b2; a line through the origin has no b0 to show
+            terms = [f"b{p} = {b:.6g} (SE {se:.3g})" for p, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors))
+                     if cal.model.has_intercept or p > 0]
+        else:  # the curve's own named parameters
+            terms = [f"{name} = {b:.6g} (SE {se:.3g})"
+                     for name, b, se in zip(cal.coefficient_names, cal.coefficients, cal.standard_errors)]
         parts.append(", ".join(terms))
         parts.append(f"R² = {cal.r_squared:.6f}")
     parts.append(f"residual SD {cal.residual_sd:.4g} on {cal.df_residual} df")

@@ -550,13 +550,13 @@ def _chooser(result: RunResult, analyte: str) -> str:
 
 
 def _mandel(cal: Calibration) -> tuple[Any, Any]:
-    from ..core.calibration import fit
+    from ..core.fitting import fit
     from ..core.comparison import mandel_test
 
-    if not cal.model.has_intercept:
-        return "not applicable to a line through the origin", None
     if not cal.model.is_polynomial:
         return f"not applicable to a {cal.model.description} (it compares a straight line with a quadratic)", None
+    if not cal.model.has_intercept:
+        return "not applicable to a line through the origin", None
     try:
         lin = cal if cal.model is Model.LINEAR else fit(cal.concentration, cal.response, "linear", cal.weighting.value)
         quad = cal if cal.model is Model.QUADRATIC else fit(cal.concentration, cal.response, "quadratic", cal.weighting.value)
