@@ -477,7 +477,7 @@ def test_changing_an_entered_value_asks_why_and_cancel_keeps_it(make_window, qtb
     assert answer_dialogs.last_title == "Why does this value change?"
     assert model.standards[5].response.text == before and "needs a reason" in window.statusBar().currentMessage()
     answer_dialogs["reason"] = ""
-    answer_dialogs["choice"] = VALUE_CHANGE_REASONS.index("transcription error corrected against the raw data")
+    answer_dialogs["choice"] = VALUE_CHANGE_REASONS.index("data entry error corrected against the raw data")
     window.standards_view.edit(index)
     editor = window.standards_view.focusWidget()
     editor.selectAll()
@@ -486,5 +486,5 @@ def test_changing_an_entered_value_asks_why_and_cancel_keeps_it(make_window, qtb
     settle(qtbot, window)
     assert model.standards[5].response.text == "0.4321"
     entry = window.session.run.audit[-1]
-    assert entry.details["reason"] == "transcription error corrected against the raw data"
+    assert entry.details["reason"] == "data entry error corrected against the raw data"
     assert entry.details["changes"][0]["old"] == before and not slot_errors

@@ -15,9 +15,9 @@ def entry(action: str, details, **person) -> AuditEntry:  # type: ignore[no-unty
 
 def test_a_change_says_from_what_to_what_and_why() -> None:
     e = entry("value_edited", {"analyte": "lead", "standard": "Pb-3", "field": "response", "old": 502.7, "new": 512.7,
-                               "reason": "transcription error"}, analyst="Robin Example", analyst_id="QA-0042")
+                               "reason": "data entry error"}, analyst="Robin Example", analyst_id="QA-0042")
     assert entry_words(e) == ("changed the response of standard Pb-3 of lead from 502.7 to 512.7. "
-                              "Reason: transcription error.")
+                              "Reason: data entry error.")
     assert who(e) == "Robin Example (ID QA-0042, login demo.analyst2)" and when(e) == "2026-11-05 13:42:00 UTC"
     assert who(entry("x", {})) == "demo.analyst2 (login; full name not recorded)"
 

@@ -25,9 +25,9 @@ def test_changing_an_entered_response_needs_a_reason() -> None:
     with pytest.raises(ReasonRequired, match=rf"changing the response of '{old.id}' from '{old.response.text}' to '1234.5'"):
         run_edits.update_standards(run, "cobalt", with_response(run, 2, "1234.5"), "typed")
     changed = run_edits.update_standards(run, "cobalt", with_response(run, 2, "1234.5"), "typed",
-                                         reason="transcription error corrected against the raw data")
+                                         reason="data entry error corrected against the raw data")
     entry = changed.audit[-1]
-    assert entry.details["reason"] == "transcription error corrected against the raw data"
+    assert entry.details["reason"] == "data entry error corrected against the raw data"
     assert entry.details["changes"] == [{"standard": old.id, "field": "response", "old": old.response.text, "new": "1234.5"}]
 
 

@@ -184,7 +184,7 @@ def edit_analyte(
 
 VALUE_CHANGE_REASONS = (
     "first entry: the value was not recorded yet",
-    "transcription error corrected against the raw data",
+    "data entry error corrected against the raw data",
     "value re-read from the instrument's record",
     "re-integration documented in the raw data",
     "other (describe below)",
