@@ -173,15 +173,12 @@ class Quantitation:
         return int(self.estimate.size)
 
 
-def quantify(
-    cal: "FittedCurve",
-    mean_response: object,
-    replicates: object = 1,
-    level: float = 0.95,
-    interval: str = "band",
-    limits: DetectionLimits | None = None,
-) -> Quantitation:
-    """Quantify unknowns; see :meth:`curvewright.core.calibration.Calibration.quantify`."""
+def checked_request(cal, mean_response: object, replicates: object, level: float,  # type: ignore[no-untyped-def]
+                    interval: str) -> tuple[FloatArray, np.ndarray, float]:
+    """The unknowns' mean responses, replicate counts and confidence level of a quantitation request,
+    checked for every kind of calibration: a curve whose response does not change with concentration
+    quantifies nothing; each response is finite, each count whole and positive, the level in (0, 1),
+    the interval method known. Raises :class:`QuantitationInputError` naming the field."""
     if not cal.regression.significant:
         raise QuantitationInputError(
             f"calibration: {cal.regression.words}; check the standards' concentrations and responses."
@@ -193,6 +190,19 @@ def quantify(
         raise QuantitationInputError(
             f"interval: {interval!r} is not one of {', '.join(map(repr, INTERVAL_METHODS))}."
         )
+    return y0, m, level
+
+
+def quantify(
+    cal: "FittedCurve",
+    mean_response: object,
+    replicates: object = 1,
+    level: float = 0.95,
+    interval: str = "band",
+    limits: DetectionLimits | None = None,
+) -> Quantitation:
+    """Quantify unknowns; see :meth:`curvewright.core.calibration.Calibration.quantify`."""
+    y0, m, level = checked_request(cal, mean_response, replicates, level, interval)
     probability = 0.5 + level / 2.0
     t = t_quantile(probability, cal.df_residual)
 

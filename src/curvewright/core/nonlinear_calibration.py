@@ -47,13 +47,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._arrays import FloatArray, as_confidence_level, as_finite_vector, frozen
+from ._arrays import FloatArray, frozen
 from .calibration import Calibration
 from .curve_families import FAMILIES, CurveFamily
 from .distributions import f_upper_tail, t_quantile
-from .errors import CalibrationInputError, ConvergenceError, LimitsError, QuantitationInputError, WeightingError
+from .errors import CalibrationInputError, ConvergenceError, LimitsError, WeightingError
 from .influence import measure_influence
-from .inverse import INTERVAL_METHODS, RANGE_SLACK, QuantFlag, Quantitation, _refuse_unrepresentable, _replicate_counts
+from .inverse import RANGE_SLACK, QuantFlag, Quantitation, _refuse_unrepresentable, checked_request
 from .lack_of_fit import lack_of_fit_test
 from .least_squares import ROUNDOFF, without_roundoff
 from .levels import Levels
@@ -360,17 +360,7 @@ def _quantify(
     limits: DetectionLimits | None,
 ) -> Quantitation:
     assert cal.family is not None
-    if not cal.regression.significant:
-        raise QuantitationInputError(
-            f"calibration: {cal.regression.words}; check the standards' concentrations and responses."
-        )
-    y0 = as_finite_vector(mean_response, "mean response", QuantitationInputError, item="unknown")
-    m = _replicate_counts(replicates, y0.size)
-    level = as_confidence_level(level, QuantitationInputError)
-    if interval not in INTERVAL_METHODS:
-        raise QuantitationInputError(
-            f"interval: {interval!r} is not one of {', '.join(map(repr, INTERVAL_METHODS))}."
-        )
+    y0, m, level = checked_request(cal, mean_response, replicates, level, interval)
     probability = 0.5 + level / 2.0
     params = cal.coefficients
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
