@@ -158,6 +158,24 @@ def test_many_runs_with_progress_and_processes(tmp_path) -> None:
     assert sorted(p.name for p in (tmp_path / "out").iterdir()) == sorted(p.stem + ".xlsx" for p in DEMO_RUNS)
 
 
+def test_json_of_many_runs_in_two_processes_equals_the_json_of_one_process(tmp_path) -> None:
+    """The results of each run reach the JSON alike whether a worker process made them or this one."""
+    folder = tmp_path / "incoming"
+    folder.mkdir()
+    for path in DEMO_RUNS[:3]:
+        save_run(open_run(path).run, folder / path.name)
+    parallel = run_cli("quantify", str(folder), "--json", "--jobs", "2")
+    serial = run_cli("quantify", str(folder), "--json")
+    assert parallel.returncode == serial.returncode == 0, parallel.stderr + serial.stderr
+    assert json.loads(parallel.stdout) == json.loads(serial.stdout)
+    runs = json.loads(serial.stdout)
+    assert len(runs) == 3 and all(run["analytes"][0]["samples"] for run in runs)
+    # each sample's result is one line of the text, so a long run can be read line by line
+    first = runs[0]["analytes"][0]["samples"][0]
+    assert any(line.strip().rstrip(",") == json.dumps(first, ensure_ascii=False, separators=(", ", ": "))
+               for line in serial.stdout.splitlines())
+
+
 def test_check_and_compare(tmp_path, capsys) -> None:
     assert cli.main(["check", *map(str, DEMO_RUNS)]) == 0
     assert "audit trail verified" in capsys.readouterr().out

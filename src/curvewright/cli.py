@@ -25,6 +25,7 @@ import shlex
 import sys
 import traceback
 from dataclasses import dataclass, field, replace
+from functools import partial
 from pathlib import Path
 from typing import Any, Mapping, Sequence
 
@@ -314,8 +315,10 @@ def cmd_quantify(args: argparse.Namespace) -> int:
 
 def _finish(outcomes: list[Outcome], as_json: bool) -> int:
     if as_json:
+        from .io.results_json import write_json
+
         data = [o.data if o.data is not None else {"error": o.error, "exit_code": o.code} for o in outcomes]
-        print(json.dumps(data[0] if len(data) == 1 else data, indent=1, ensure_ascii=False, allow_nan=False))
+        write_json(data[0] if len(data) == 1 else data, sys.stdout)
     else:
         for o in outcomes:
             if o.text:
@@ -815,19 +818,6 @@ def _samples_lines(samples, rule, level: float) -> list[str]:  # type: ignore[no
     return out
 
 
-def _plain(value: Any) -> Any:
-    """JSON-safe: non-finite floats become null (the flags say why)."""
-    if isinstance(value, float):
-        return value if value == value and value not in (float("inf"), float("-inf")) else None
-    if isinstance(value, (list, tuple)):
-        return [_plain(v) for v in value]
-    if isinstance(value, dict):
-        return {k: _plain(v) for k, v in value.items()}
-    if hasattr(value, "tolist"):
-        return _plain(value.tolist())
-    return value
-
-
 def result_json(  # type: ignore[no-untyped-def]
     result, source: Path | None, written: list[tuple[str, str, str]], *,
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
@@ -841,6 +831,7 @@ def result_json(  # type: ignore[no-untyped-def]
     from .io.integrity import content_change
     from .io.model_outputs import additions_json, response_factor_json
     from .io.result_tables import chain_claim
+    from .io.results_json import Rows, finite
     from .io.signatures import check_signatures
 
     run = result.run
@@ -911,21 +902,30 @@ def result_json(  # type: ignore[no-untyped-def]
                 "response_factors": response_factor_json(cal, a.analyte.uses_internal_standard),
             })
         entry["standard_additions"] = additions_json(a)
-        entry["samples"] = [
-            {"id": s.sample_id, "kind": s.kind.value, "run_order": s.run_order, "replicates": len(s.replicate_responses),
-             "mean_response": s.mean_response, "estimate": s.estimate, "standard_error": s.standard_error,
-             "lower": s.lower, "upper": s.upper, "dilution_factor": s.dilution_factor, "reported": s.reported,
-             "reported_lower": s.reported_lower, "reported_upper": s.reported_upper,
-             "reported_rounded": None if s.reported is None else run.settings.rounding.text(s.reported),
-             "reported_text": s.reported_text, "status": s.status.value, "reportable": s.reportable,
-             "suggested_dilution": s.suggested_dilution,
-             "flags": [f.name.lower() for f in s.flags] if s.flags is not None else [],
-             "flag_words": s.flag_words, "nominal": s.nominal, "recovery_percent": s.recovery_percent,
-             "within_limits": s.within_limits}
-            for s in a.samples
-        ]
+        entry["samples"] = Rows(a.samples, partial(_sample_row, run.settings.rounding))
         out["analytes"].append(entry)
-    return _plain(out)
+    return finite(out)
+
+
+def _sample_row(rounding, s) -> dict[str, Any]:  # type: ignore[no-untyped-def]
+    """One sample's result as a JSON row, made when it is written."""
+    return {
+        "id": s.sample_id, "kind": s.kind.value, "run_order": s.run_order, "replicates": len(s.replicate_responses),
+        "mean_response": s.mean_response, "estimate": s.estimate, "standard_error": s.standard_error,
+        "lower": s.lower, "upper": s.upper, "dilution_factor": s.dilution_factor, "reported": s.reported,
+        "reported_lower": s.reported_lower, "reported_upper": s.reported_upper,
+        "reported_rounded": None if s.reported is None else rounding.text(s.reported),
+        "reported_text": s.reported_text, "status": s.status.value, "reportable": s.reportable,
+        "suggested_dilution": s.suggested_dilution,
+        "flags": [f.name.lower() for f in s.flags] if s.flags is not None else [],
+        "flag_words": s.flag_words, "nominal": s.nominal, "recovery_percent": s.recovery_percent,
+        "within_limits": s.within_limits}
+
+
+def _finite(value: Any) -> Any:
+    from .io.results_json import finite
+
+    return finite(value)
 
 
 class _Progress:
@@ -999,7 +999,7 @@ def _print_evidence(run, result, as_json: bool, payload: list[dict[str, Any]],  
             table = table.select(tuple(c.name for c in table.columns if c.name != "Chosen"))
         if as_json:
             entry = {"run": run.name, "analyte": a.analyte.name, "columns": [c.heading for c in table.columns],
-                     "rows": _plain(list(table.rows)), "reasons": list(reasons)}
+                     "rows": _finite(list(table.rows)), "reasons": list(reasons)}
             if choice is not None:
                 entry["recommended"] = [a.analyte.model, a.analyte.weighting] if choice.by == "recommended" else None
             payload.append(entry)

@@ -1,0 +1,150 @@
+"""The results for scripts as JSON text, written piece by piece.
+
+A run of a million unknowns must not become one string of a gigabyte, nor a million dictionaries
+held at once. :func:`write_json` writes a value to a text stream as it goes: objects and lists are
+indented one space per level, as ``json.dumps(value, indent=1)`` writes them, except that a row of
+a table (an object whose values are numbers, words, null, or flat lists and objects of them) is
+written on one line. A long list of rows can be given as :class:`Rows`, which makes each row only
+when it is written.
+
+Numbers that are not finite (NaN, ±inf) are written as ``null``: JSON has no such numbers, and the
+flags of the row say why a value is missing.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from typing import Any, Callable, Iterable, Iterator, Sequence, TextIO
+
+_SCALARS = (str, int, float, bool, type(None))
+_FLUSH_EVERY = 512
+"""Rows gathered before they are handed to the stream in one write."""
+
+
+class Rows:
+    """A long list of JSON rows, each made from one item only when it is written.
+
+    Each row is an object of numbers, words, null, and flat lists or objects of them.
+
+    ``len()`` is the number of items. Pickled (to pass a result between processes) it becomes the
+    plain list of its rows.
+    """
+
+    __slots__ = ("_items", "_make")
+
+    def __init__(self, items: Sequence[Any], make: Callable[[Any], dict[str, Any]]) -> None:
+        self._items = items
+        self._make = make
+
+    def __iter__(self) -> Iterator[dict[str, Any]]:
+        return (self._make(item) for item in self._items)
+
+    def __len__(self) -> int:
+        return len(self._items)
+
+    def __reduce__(self) -> tuple[type, tuple[list[dict[str, Any]]]]:
+        return (list, (list(self),))
+
+
+def finite(value: Any) -> Any:
+    """``value`` with every non-finite float, at any depth, replaced by None; numpy arrays and
+    numbers become lists and Python numbers."""
+    if isinstance(value, float):
+        return value if math.isfinite(value) else None
+    if isinstance(value, _SCALARS):
+        return value
+    if isinstance(value, (list, tuple)):
+        return [finite(v) for v in value]
+    if isinstance(value, dict):
+        return {k: finite(v) for k, v in value.items()}
+    if isinstance(value, Rows):
+        return value
+    if hasattr(value, "tolist"):
+        return finite(value.tolist())
+    return value
+
+
+def _flat(value: Any) -> bool:
+    """A scalar, or a list/object of scalars."""
+    if isinstance(value, _SCALARS):
+        return True
+    if isinstance(value, (list, tuple)):
+        return all(isinstance(v, _SCALARS) for v in value)
+    if isinstance(value, dict):
+        return all(isinstance(v, _SCALARS) for v in value.values())
+    return False
+
+
+def _is_row(value: Any) -> bool:
+    return isinstance(value, dict) and all(_flat(v) for v in value.values())
+
+
+def _one_line(value: Any) -> str:
+    return json.dumps(finite(value), ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
+
+
+def _row_line(row: dict[str, Any]) -> str:
+    """A row of :class:`Rows` on one line: its maker gives numbers, words and flat lists, so the JSON
+    encoder takes it as it is unless a number is not finite or is a numpy scalar."""
+    try:
+        return json.dumps(row, ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
+    except (ValueError, TypeError):
+        return _one_line(row)
+
+
+def _scalar(value: Any) -> str:
+    return json.dumps(finite(value), ensure_ascii=False, allow_nan=False)
+
+
+def _pieces(value: Any, level: int) -> Iterable[str]:
+    """The JSON text of ``value`` at indentation ``level``, in pieces."""
+    if isinstance(value, dict):
+        if not value:
+            yield "{}"
+            return
+        inner = "\n" + " " * (level + 1)
+        yield "{"
+        for i, (key, item) in enumerate(value.items()):
+            yield ("," if i else "") + inner + json.dumps(str(key), ensure_ascii=False) + ": "
+            yield from _pieces(item, level + 1)
+        yield "\n" + " " * level + "}"
+    elif isinstance(value, Rows):
+        if len(value) == 0:
+            yield "[]"
+            return
+        inner = "\n" + " " * (level + 1)
+        yield "["
+        for i, row in enumerate(value):
+            yield ("," if i else "") + inner + _row_line(row)
+        yield "\n" + " " * level + "]"
+    elif isinstance(value, (list, tuple)):
+        if len(value) == 0:
+            yield "[]"
+            return
+        inner = "\n" + " " * (level + 1)
+        yield "["
+        for i, item in enumerate(value):
+            yield "," if i else ""
+            if _is_row(item):
+                yield inner + _one_line(item)
+            else:
+                yield inner
+                yield from _pieces(item, level + 1)
+        yield "\n" + " " * level + "]"
+    elif hasattr(value, "tolist") and not isinstance(value, _SCALARS):
+        yield from _pieces(value.tolist(), level)
+    else:
+        yield _scalar(value)
+
+
+def write_json(value: Any, stream: TextIO) -> None:
+    """Write ``value`` to ``stream`` as JSON text followed by a newline, in pieces (see the module)."""
+    batch: list[str] = []
+    for piece in _pieces(value, 0):
+        batch.append(piece)
+        if len(batch) >= _FLUSH_EVERY:
+            stream.write("".join(batch))
+            batch.clear()
+    batch.append("\n")
+    stream.write("".join(batch))
