@@ -30,4 +30,4 @@ def test_there_is_a_benchmark_for_each_target() -> None:
     assert {p.stem for p in BENCHMARKS} == {"bench_batch_quantitation", "bench_model_screen", "bench_app_start",
                                           "bench_edit_redraw", "bench_xlsx_export", "bench_safe_files",
                                           "bench_import_scaling", "bench_many_runs", "bench_scaling",
-                                          "bench_cli_start", "bench_record"}
+                                          "bench_cli_start", "bench_record", "bench_large_run"}
