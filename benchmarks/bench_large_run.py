@@ -99,7 +99,7 @@ def _option(name: str, default: int) -> int:
 
 
 def main() -> None:
-    unknowns = _option("--unknowns", 5_000 if smoke_requested() else 1_000_000)
+    unknowns = _option("--unknowns", 2_000 if smoke_requested() else 1_000_000)
     rounds = _option("--rounds", 1 if smoke_requested() else 3)
     with tempfile.TemporaryDirectory() as tmp:
         folder = Path(tmp)
