@@ -191,6 +191,32 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
               f"{label} with interval")
 
 
+def draw_anchor_points(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
+                       log_x: bool = False) -> None:
+    """Ring the anchor points of a logistic curve (drawn by :func:`draw_curve` as standards in the fit)
+    with an open hexagon, named in the legend: they are fitted but never judged."""
+    cal = a.calibration
+    anchors = getattr(cal, "anchors", None)
+    if anchors is None or not np.any(anchors):
+        return
+    log_y = log_x and bool(np.all(cal.response > 0))
+    shown = anchors & (cal.concentration > 0) if log_x else anchors
+    with np.errstate(divide="ignore"):
+        x = np.log10(cal.concentration[shown]) if log_x else cal.concentration[shown]
+        y = np.log10(cal.response[shown]) if log_y else cal.response[shown]
+    ring = plot.plot(x, y, pen=None, symbol=palette.SYMBOL_ANCHOR, symbolSize=17, symbolBrush=None,
+                     symbolPen=pg.mkPen(palette.ANCHOR, width=2), name="anchor point (fitted, not judged)")
+    _name(legend, ring, "anchor point (fitted, not judged)")
+
+
+def draw_curve_with_anchors(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
+                            **options) -> None:  # type: ignore[no-untyped-def]
+    """:func:`draw_curve` with the anchor points ringed (the record's curve figure)."""
+    draw_curve(plot, a, legend=legend, **options)
+    if a.calibration is not None:
+        draw_anchor_points(plot, a, legend=legend, log_x=bool(options.get("log_x", False)))
+
+
 def _finite(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     keep = np.isfinite(x) & np.isfinite(y)
     return x[keep], y[keep]

@@ -32,7 +32,7 @@ def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
 
     layout = RecordLayout(device, content.header or content.title, content.footer or f"Curvewright {__version__}",
                           CAUTION)
-    draw = {"curve": figures.draw_curve, "residuals": figures.draw_relative_errors,
+    draw = {"curve": figures.draw_curve_with_anchors, "residuals": figures.draw_relative_errors,
             "influence": figures.draw_influence}
     level = content.result.run.settings.confidence_level
     rule = content.result.run.settings.rounding
