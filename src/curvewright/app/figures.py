@@ -127,7 +127,7 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
         return
     low, high = cal.calibrated_range
     log_y = log_x and bool(np.all(cal.response > 0))
-    if log_x:
+    if log_x and low <= 0:  # a blank at the bottom of the range has no place on a log axis
         low = float(cal.concentration[cal.concentration > 0].min())
     tx = _axis_transform(plot, log_x, "bottom", (low, high))
     ty = _axis_transform(plot, log_y, "left", (float(cal.response.min()), float(cal.response.max())) if log_y else None)
@@ -192,7 +192,7 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
 
 
 def draw_anchor_points(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
-                       log_x: bool = False) -> None:
+                       log_x: bool = False, font_size: int = 10) -> None:
     """Ring the anchor points of a logistic curve (drawn by :func:`draw_curve` as standards in the fit)
     with an open hexagon, named in the legend: they are fitted but never judged."""
     cal = a.calibration
@@ -204,8 +204,9 @@ def draw_anchor_points(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.Legend
     with np.errstate(divide="ignore"):
         x = np.log10(cal.concentration[shown]) if log_x else cal.concentration[shown]
         y = np.log10(cal.response[shown]) if log_y else cal.response[shown]
-    ring = plot.plot(x, y, pen=None, symbol=palette.SYMBOL_ANCHOR, symbolSize=17, symbolBrush=None,
-                     symbolPen=pg.mkPen(palette.ANCHOR, width=2), name="anchor point (fitted, not judged)")
+    k = font_size / 10  # the ring grows with the lettering (a printed figure is drawn larger)
+    ring = plot.plot(x, y, pen=None, symbol=palette.SYMBOL_ANCHOR, symbolSize=17 * k, symbolBrush=None,
+                     symbolPen=pg.mkPen(palette.ANCHOR, width=2 * k), name="anchor point (fitted, not judged)")
     _name(legend, ring, "anchor point (fitted, not judged)")
 
 
@@ -214,7 +215,8 @@ def draw_curve_with_anchors(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.L
     """:func:`draw_curve` with the anchor points ringed (the record's curve figure)."""
     draw_curve(plot, a, legend=legend, **options)
     if a.calibration is not None:
-        draw_anchor_points(plot, a, legend=legend, log_x=bool(options.get("log_x", False)))
+        draw_anchor_points(plot, a, legend=legend, log_x=bool(options.get("log_x", False)),
+                           font_size=int(options.get("font_size", 10)))
 
 
 def _finite(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
