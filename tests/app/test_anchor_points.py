@@ -3,6 +3,8 @@ the Standards table, the button or the Edit menu, the reason dialog answered, Un
 
 from __future__ import annotations
 
+import re
+
 import numpy as np
 from PySide6.QtCore import QPoint, Qt
 from PySide6.QtTest import QTest
@@ -76,7 +78,11 @@ def test_clear_and_mark_anchor_points_with_a_reason_then_undo_and_redo(make_wind
     title, prompt = answer_dialogs.seen[-1]
     assert title == "Clear anchor points"
     assert "A2-1 (row 19, nominal 6000 pg/mL); A2-2 (row 20, nominal 6000 pg/mL)" in prompt
-    assert "after the change" in prompt  # the refit is shown before the change is made
+    # the refit is shown before the change is made: the same curve, judged over a wider range
+    assert "after the change" in prompt
+    preview = " ".join(re.sub(r"<[^>]+>", " ", prompt).split())
+    assert "Calibrated range 3 to 1600 3 to 6000" in preview
+    assert "Standards within limits 16 of 16 judged 16 of 18 judged" in preview
     assert anchors(window) == ["A1-1", "A1-2"]
     entry = window.session.run.audit[-1]
     assert len(window.session.run.audit) == count + 1 and entry.action == "anchor_points_cleared"

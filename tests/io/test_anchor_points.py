@@ -81,3 +81,18 @@ def test_a_standard_inside_the_range_marked_as_an_anchor_is_refused_by_the_fit()
     assert result.calibration is None
     assert result.error.startswith("anchor points: standard 9 (concentration 45) is marked as an anchor point but "
                                    "lies within the range")
+
+
+def test_the_standards_table_says_which_standards_are_anchor_points() -> None:
+    # the table the workbook and the record print: an anchor point's %RE is there, its verdict says why none
+    from curvewright.io.result_tables import standards_table
+
+    result = analyse_run(open_run(CYTOKINE).run).analyte("cytokine")
+    table = standards_table(result)
+    names = [c.name for c in table.columns]
+    rows = {row[0]: dict(zip(names, row)) for row in table.rows}
+    for sid in ANCHORS:
+        assert rows[sid]["Within limits"] == "anchor point, not judged"
+        assert rows[sid]["Tolerance (%)"] is None and rows[sid]["Included"] == "yes"
+    assert round(rows["A2-2"]["Relative error (%)"], 1) == 53.2
+    assert rows["S1-1"]["Within limits"] == "yes" and rows["S1-1"]["Tolerance (%)"] == 25.0

@@ -109,12 +109,16 @@ def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
 
     def describe(a) -> list[str]:  # type: ignore[no-untyped-def]
         if isinstance(a, str) or a.calibration is None:
-            return [a if isinstance(a, str) else f"not fitted: {a.error}"] + [""] * 4
+            return [a if isinstance(a, str) else f"not fitted: {a.error}"] + [""] * 6
         cal = a.calibration
+        low, high = cal.calibrated_range
+        judged = (f"{int(a.verdict.passing.sum())} of {int(a.verdict.judged.sum())} judged"
+                  if a.verdict is not None else "")
         return [cal.equation(6), f"{cal.residual_sd:.5g}", f"{cal.adjusted_r_squared:.6f}",
-                f"{cal.n_standards}", "accepted" if a.accepted else "NOT accepted"]
+                f"{cal.n_standards}", f"{low:g} to {high:g}", judged, "accepted" if a.accepted else "NOT accepted"]
 
-    names = ("Curve", "Residual SD", "Adjusted R²", "Standards in fit", "Verdict")
+    names = ("Curve", "Residual SD", "Adjusted R²", "Standards in fit", "Calibrated range", "Standards within limits",
+             "Verdict")
     old, new = describe(results[0]), describe(results[1])
     rows = "".join(f"<tr><td>{n}</td><td>{o}</td><td><b>{w}</b></td></tr>" for n, o, w in zip(names, old, new))
     label = QLabel(f"<p>The refit, before it is committed:</p><table cellpadding='3'><tr><th></th><th>now</th>"
