@@ -167,6 +167,16 @@ def test_every_menu_item_does_what_it_says(demo, make_window, qtbot, slot_errors
     do("redo")
     assert window.session.run.analyte(analyte).standard(chosen).included
 
+    # Edit: mark the selected standard as an anchor point; every demo's row 5 is a calibration standard of a
+    # straight line, a quadratic, a response factor, or inside the range of a logistic curve: refused in words
+    count = len(window.session.run.audit)
+    chosen = select_standard(window, 4)
+    do("anchor")
+    assert answer_dialogs.last_title == "Mark anchor points"
+    assert answer_dialogs.seen[-1][1].startswith(f"Not marked: standard(s) {chosen} of {analyte}. The fit refuses "
+                                                 "it: anchor points: ")
+    assert len(window.session.run.audit) == count
+
     # Copy the selected cells; copy the whole table; paste a block of new standards below the last
     window.standards_view.setFocus()
     select_standard(window, 2)

@@ -30,25 +30,31 @@ def draw_additions(plot: pg.PlotItem, a: AnalyteResult, series: AdditionSeriesRe
     added = np.asarray(series.added)
     means = np.asarray(series.mean_response)
     r = series.result
+    k = font_size / 10  # markers and lines grow with the lettering (a printed figure is drawn larger)
     if r is not None:
         x_low = -r.concentration
+        lower, upper = -r.upper, -r.lower
+        # the interval of the extrapolated concentration, shaded across the plot and barred on the zero line
+        plot.addItem(pg.LinearRegionItem(values=(lower, upper), movable=False, brush=pg.mkBrush(42, 127, 98, 40),
+                                         pen=pg.mkPen(palette.UNKNOWN, width=k, style=Qt.PenStyle.DotLine)))
         top = float(added.max())
         solid = plot.plot([float(added.min()), top], list(r.line([float(added.min()), top])),
-                          pen=pg.mkPen(palette.CURVE, width=2), name="line through the additions")
+                          pen=pg.mkPen(palette.CURVE, width=2 * k), name="line through the additions")
         _name(legend, solid, "line through the additions")
         dashed = plot.plot([x_low, float(added.min())], list(r.line([x_low, float(added.min())])),
-                           pen=pg.mkPen(palette.CURVE, width=1.5, style=Qt.PenStyle.DashLine), name="extrapolated")
+                           pen=pg.mkPen(palette.CURVE, width=1.5 * k, style=Qt.PenStyle.DashLine), name="extrapolated")
         _name(legend, dashed, "extrapolated to zero response")
-        plot.addItem(pg.InfiniteLine(pos=0.0, angle=0, pen=pg.mkPen("#888888", width=1)))
-        lower, upper = -r.upper, -r.lower
-        plot.addItem(pg.ErrorBarItem(x=np.array([x_low]), y=np.array([0.0]), left=np.array([x_low - lower]),
-                                     right=np.array([upper - x_low]), beam=0, pen=pg.mkPen(palette.UNKNOWN, width=2)))
-        _name(legend, plot.plot([x_low], [0.0], pen=None, symbol=palette.SYMBOL_UNKNOWN, symbolSize=10,
-                                symbolBrush=palette.UNKNOWN, symbolPen=pg.mkPen("w", width=0.6),
+        plot.addItem(pg.InfiniteLine(pos=0.0, angle=0, pen=pg.mkPen("#888888", width=k)))
+        bar = pg.ErrorBarItem(x=np.array([x_low]), y=np.array([0.0]), left=np.array([x_low - lower]),
+                              right=np.array([upper - x_low]), beam=0.04 * float(np.ptp(means) or 1.0),
+                              pen=pg.mkPen(palette.UNKNOWN, width=2 * k))
+        plot.addItem(bar)
+        _name(legend, plot.plot([x_low], [0.0], pen=None, symbol=palette.SYMBOL_UNKNOWN, symbolSize=10 * k,
+                                symbolBrush=palette.UNKNOWN, symbolPen=pg.mkPen("w", width=0.6 * k),
                                 name="x-intercept with interval"),
-              f"x-intercept −{r.concentration:.4g} with {r.level:.0%} interval")
-    _name(legend, plot.plot(added, means, pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,
-                            symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8), name="mean response"),
+              f"x-intercept −{r.concentration:.4g} with {r.level:.0%} interval (shaded)")
+    _name(legend, plot.plot(added, means, pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8 * k,
+                            symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8 * k), name="mean response"),
           "mean response of each addition")
 
 

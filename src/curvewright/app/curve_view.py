@@ -99,6 +99,7 @@ class CurveView(QWidget):
         figures.draw_curve(self.curve_plot, a, legend=self.curve_legend, level=self.level,
                            show_confidence=self.confidence.isChecked(), show_prediction=self.prediction.isChecked(),
                            log_x=log_x)
+        figures.draw_anchor_points(self.curve_plot, a, legend=self.curve_legend, log_x=log_x)
         if self.lower_kind.currentIndex() == 0:
             figures.draw_relative_errors(self.lower_plot, a, legend=self.lower_legend, log_x=log_x)
         else:
@@ -134,7 +135,7 @@ class CurveView(QWidget):
             if log_x and s.concentration <= 0:
                 continue
             out.append((tx(s.concentration), ty(cal.response[i]),
-                        f"standard {s.id}: nominal {s.concentration:g} {unit}, response {cal.response[i]:.6g}, "
+                        f"standard {s.id}{' (anchor point: fitted, not judged)' if s.anchor else ''}: nominal {s.concentration:g} {unit}, response {cal.response[i]:.6g}, "
                         f"back-calculated {cal.back_calculated[i]:.5g} ({cal.relative_error[i]:+.2f} %)"))
         for s in a.excluded_standards:
             used, _ = response_value(s.response, s.internal_standard_response, a.analyte.uses_internal_standard)

@@ -30,6 +30,17 @@ EXCLUSION_REASONS = (
     "other (describe below)",
 )
 
+ANCHOR_REASONS = (
+    "placed beyond the calibrated range to fix an asymptote, as the plate layout sets out",
+    "the validated method names this level as an anchor point",
+    "other (describe below)",
+)
+CLEAR_ANCHOR_REASONS = (
+    "marked as an anchor point by mistake",
+    "the validated method judges this level as a calibration standard",
+    "other (describe below)",
+)
+
 
 class ReasonDialog(QDialog):
     """Asks for a reason: a choice from a list plus free text; OK only once a reason is given.
@@ -98,12 +109,16 @@ def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
 
     def describe(a) -> list[str]:  # type: ignore[no-untyped-def]
         if isinstance(a, str) or a.calibration is None:
-            return [a if isinstance(a, str) else f"not fitted: {a.error}"] + [""] * 4
+            return [a if isinstance(a, str) else f"not fitted: {a.error}"] + [""] * 6
         cal = a.calibration
+        low, high = cal.calibrated_range
+        judged = (f"{int(a.verdict.passing.sum())} of {int(a.verdict.judged.sum())} judged"
+                  if a.verdict is not None else "")
         return [cal.equation(6), f"{cal.residual_sd:.5g}", f"{cal.adjusted_r_squared:.6f}",
-                f"{cal.n_standards}", "accepted" if a.accepted else "NOT accepted"]
+                f"{cal.n_standards}", f"{low:g} to {high:g}", judged, "accepted" if a.accepted else "NOT accepted"]
 
-    names = ("Curve", "Residual SD", "Adjusted R²", "Standards in fit", "Verdict")
+    names = ("Curve", "Residual SD", "Adjusted R²", "Standards in fit", "Calibrated range", "Standards within limits",
+             "Verdict")
     old, new = describe(results[0]), describe(results[1])
     rows = "".join(f"<tr><td>{n}</td><td>{o}</td><td><b>{w}</b></td></tr>" for n, o, w in zip(names, old, new))
     label = QLabel(f"<p>The refit, before it is committed:</p><table cellpadding='3'><tr><th></th><th>now</th>"
@@ -130,6 +145,48 @@ def ask_exclusion(parent: QWidget, run: Run, analyte: str, standard_id: str, *, 
                           f"of {analyte} excluded from the fit? The standard stays in the run, flagged, with your "
                           "reason in the audit trail.",
                           EXCLUSION_REASONS, parent, refit_preview(run, after, analyte))
+    return dialog.reason() if dialog.exec() == QDialog.DialogCode.Accepted else None
+
+
+def anchor_refusal(run: Run, analyte: str) -> str | None:
+    """Why the fit refuses the anchor points of ``analyte`` in ``run`` (the core's words), or None."""
+    from ..core.run_analysis import analyse_run
+
+    result = analyse_run(run, analytes=(analyte,)).analytes[0]
+    if result.calibration is None and result.error and result.error.startswith("anchor points:"):
+        return result.error
+    return None
+
+
+def ask_anchor_points(parent: QWidget, run: Run, analyte: str, standard_ids: list[str], *, mark: bool,
+                      rows: list[int]) -> str | None:
+    """Ask why standards are marked as anchor points (or their mark cleared), naming them and showing the
+    refit; a mark the curve cannot take (not a logistic curve, a point inside the calibrated range) is
+    refused with the fit's reason. The reason, or None if refused or cancelled."""
+    from PySide6.QtWidgets import QMessageBox
+
+    title = "Mark anchor points" if mark else "Clear anchor points"
+    change = run_edits.mark_anchor_points if mark else run_edits.clear_anchor_points
+    try:
+        after = change(run, analyte, standard_ids, "preview")
+    except CurvewrightError as exc:
+        QMessageBox.information(parent, title, str(exc))
+        return None
+    refusal = anchor_refusal(after, analyte)
+    if refusal is not None:
+        QMessageBox.warning(parent, title, f"{'Not marked' if mark else 'Not cleared'}: standard(s) "
+                            f"{', '.join(standard_ids)} of {analyte}. The fit refuses it: {refusal}")
+        return None
+    a = run.analyte(analyte)
+    named = "; ".join(f"{s.id} (row {row + 1}, nominal {s.concentration:g} {a.concentration_unit})".replace(" )", ")")
+                      for s, row in zip((a.standard(i) for i in standard_ids), rows))
+    prompt = (f"Why are standard(s) {named} of {analyte} marked as anchor points? They stay in the fit, but are not "
+              "judged for acceptance and lie outside the calibrated range (LLOQ to ULOQ); your reason goes into the "
+              "audit trail." if mark else
+              f"Why is the anchor-point mark of standard(s) {named} of {analyte} cleared? They will be judged for "
+              "acceptance like any standard; your reason goes into the audit trail.")
+    dialog = ReasonDialog(title, prompt, ANCHOR_REASONS if mark else CLEAR_ANCHOR_REASONS, parent,
+                          refit_preview(run, after, analyte))
     return dialog.reason() if dialog.exec() == QDialog.DialogCode.Accepted else None
 
 

@@ -127,7 +127,7 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
         return
     low, high = cal.calibrated_range
     log_y = log_x and bool(np.all(cal.response > 0))
-    if log_x:
+    if log_x and low <= 0:  # a blank at the bottom of the range has no place on a log axis
         low = float(cal.concentration[cal.concentration > 0].min())
     tx = _axis_transform(plot, log_x, "bottom", (low, high))
     ty = _axis_transform(plot, log_y, "left", (float(cal.response.min()), float(cal.response.max())) if log_y else None)
@@ -189,6 +189,34 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
         _name(legend, plot.plot(sx, sy, pen=None, symbol=symbol, symbolSize=9, symbolBrush=colour,
                                 symbolPen=pg.mkPen("w", width=0.6), name=f"{label} with interval"),
               f"{label} with interval")
+
+
+def draw_anchor_points(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
+                       log_x: bool = False, font_size: int = 10) -> None:
+    """Ring the anchor points of a logistic curve (drawn by :func:`draw_curve` as standards in the fit)
+    with an open hexagon, named in the legend: they are fitted but never judged."""
+    cal = a.calibration
+    anchors = getattr(cal, "anchors", None)
+    if anchors is None or not np.any(anchors):
+        return
+    log_y = log_x and bool(np.all(cal.response > 0))
+    shown = anchors & (cal.concentration > 0) if log_x else anchors
+    with np.errstate(divide="ignore"):
+        x = np.log10(cal.concentration[shown]) if log_x else cal.concentration[shown]
+        y = np.log10(cal.response[shown]) if log_y else cal.response[shown]
+    k = font_size / 10  # the ring grows with the lettering (a printed figure is drawn larger)
+    ring = plot.plot(x, y, pen=None, symbol=palette.SYMBOL_ANCHOR, symbolSize=17 * k, symbolBrush=None,
+                     symbolPen=pg.mkPen(palette.ANCHOR, width=2 * k), name="anchor point (fitted, not judged)")
+    _name(legend, ring, "anchor point (fitted, not judged)")
+
+
+def draw_curve_with_anchors(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
+                            **options) -> None:  # type: ignore[no-untyped-def]
+    """:func:`draw_curve` with the anchor points ringed (the record's curve figure)."""
+    draw_curve(plot, a, legend=legend, **options)
+    if a.calibration is not None:
+        draw_anchor_points(plot, a, legend=legend, log_x=bool(options.get("log_x", False)),
+                           font_size=int(options.get("font_size", 10)))
 
 
 def _finite(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -29,7 +29,7 @@ from ..io.errors import ExportError
 from ..io.run_document import DocumentChanged, document_sha256
 from .curve_view import CurveView, InfluenceView
 from ..io.paste import read_block
-from .dialogs import AnalyteDialog, ImportDialog, ReasonDialog, SettingsDialog, ask_exclusion
+from .dialogs import AnalyteDialog, ImportDialog, ReasonDialog, SettingsDialog, ask_anchor_points, ask_exclusion
 from .paste_dialog import PasteDialog
 from .evidence_panel import EvidencePanel
 from .figures import plot_image_bytes
@@ -107,6 +107,9 @@ class MainWindow(QMainWindow):
         self.exclude_button = QPushButton("E&xclude / include…")
         self.exclude_button.setAccessibleName("Exclude or include the selected standard")
         self.exclude_button.clicked.connect(self.command(self.toggle_exclusion))
+        self.anchor_button = QPushButton("Anchor poin&ts…")
+        self.anchor_button.setAccessibleName("Mark the selected standards as anchor points, or clear the mark")
+        self.anchor_button.clicked.connect(self.command(self.change_anchor_points))
         self.add_standard_button = QPushButton("&Add standard")
         self.add_standard_button.clicked.connect(self.command(self.add_standard))
         self.remove_button = QPushButton("Remo&ve…")
@@ -120,6 +123,7 @@ class MainWindow(QMainWindow):
         row = QHBoxLayout()
         row.addWidget(self.add_standard_button)
         row.addWidget(self.exclude_button)
+        row.addWidget(self.anchor_button)
         row.addWidget(self.remove_button)
         row.addStretch(1)
         v.addLayout(row)
@@ -238,6 +242,7 @@ class MainWindow(QMainWindow):
         action(edit, "add-sample", "Add sa&mple", self.add_sample)
         action(edit, "remove-row", "&Remove row…", self.remove_row, "Ctrl+Shift+Delete")
         action(edit, "exclude", "E&xclude or include standard…", self.toggle_exclusion, "Ctrl+Shift+X")
+        action(edit, "anchor", "Mark or clear anc&hor points…", self.change_anchor_points)
 
         analysis = self.menuBar().addMenu("&Analysis")
         action(analysis, "choose-model", "&Choose model…", self.choose_model_dialog, "Ctrl+M")
@@ -453,6 +458,18 @@ class MainWindow(QMainWindow):
             self.exclude_button.setEnabled(False)
             self.exclude_button.setToolTip("Select one standard (click its row) to exclude or include it")
         self.remove_button.setEnabled(len(rows) == 1)
+        chosen = [standards[r] for r in rows if r < len(standards)]
+        if chosen:
+            mark = not all(s.anchor for s in chosen)
+            named = chosen[0].id if len(chosen) == 1 else f"{len(chosen)} standards"
+            self.anchor_button.setText(f"Mark {named} as anchor poin&t{'s' if len(chosen) > 1 else ''}…" if mark
+                                       else f"Clear the anchor poin&t mark of {named}…")
+            self.anchor_button.setEnabled(True)
+        else:
+            self.anchor_button.setText("Anchor poin&ts…")
+            self.anchor_button.setEnabled(False)
+            self.anchor_button.setToolTip("Select one or more standards (click their rows) to mark them as anchor "
+                                          "points of a logistic curve, or to clear the mark")
 
     @staticmethod
     def selected_rows(view: SheetTableView) -> list[int]:
@@ -821,6 +838,54 @@ class MainWindow(QMainWindow):
                                    f"Include {standard.id}")
                 self.show_message(f"Standard {standard.id} (row {row + 1}) is in the fit again.")
         self._select_row(self.standards_view, row)
+
+    def change_anchor_points(self) -> None:
+        """Mark the selected standards as anchor points of a logistic curve (fitted, never judged), or clear
+        the mark when every selected standard carries it; asks why, shows the refit, and refuses in the
+        fit's own words a mark the curve cannot take."""
+        rows = self.selected_rows(self.standards_view)
+        analyte = self.current_analyte()
+        standards = self.session.run.analyte(analyte).standards
+        chosen = [standards[r] for r in rows if 0 <= r < len(standards)]
+        if not chosen:
+            self.show_message("Select one or more standards (click their rows in the Standards table) to mark them "
+                              "as anchor points or to clear the mark.")
+            return
+        mark = not all(s.anchor for s in chosen)
+        changing = [(r, s) for r, s in zip(rows, chosen) if s.anchor != mark]
+        excluded = [s.id for _, s in changing if not s.included]
+        if mark and excluded:
+            self.show_message(f"Not marked: standard(s) {', '.join(excluded)} of {analyte} are excluded from the fit; "
+                              "an anchor point is a standard in the fit. Include them first.")
+            return
+        ids = [s.id for _, s in changing]
+        reason = ask_anchor_points(self, self.session.run, analyte, ids, mark=mark, rows=[r for r, _ in changing])
+        if not reason:
+            return
+        change = run_edits.mark_anchor_points if mark else run_edits.clear_anchor_points
+        description = (f"Mark {', '.join(ids)} as anchor point{'s' if len(ids) > 1 else ''}" if mark
+                       else f"Clear the anchor point mark of {', '.join(ids)}")
+        try:
+            new_run = change(self.session.run, analyte, ids, reason, user=self.session.identity)
+        except CurvewrightError as exc:
+            self.show_message(str(exc))
+            return
+        self.session.apply(new_run, description)
+        self.show_message(f"{description} ({analyte}): {reason}")
+        self._select_rows(self.standards_view, rows)
+
+    @staticmethod
+    def _select_rows(view: SheetTableView, rows: list[int]) -> None:
+        """Select ``rows`` again (after an edit the buttons act on the same standards)."""
+        from PySide6.QtCore import QItemSelection, QItemSelectionModel
+
+        model, selection = view.model(), QItemSelection()
+        if model is None:
+            return
+        for row in rows:
+            if 0 <= row < model.rowCount():
+                selection.select(model.index(row, 0), model.index(row, model.columnCount() - 1))
+        view.selectionModel().select(selection, QItemSelectionModel.SelectionFlag.ClearAndSelect)
 
     @staticmethod
     def _select_row(view: SheetTableView, row: int) -> None:

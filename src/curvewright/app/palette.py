@@ -13,8 +13,10 @@ PREDICTION = "#5b7fb0"
 RANGE_SHADE = (120, 120, 120, 28)
 LIMIT = "#8a6d00"
 FLAGGED = "#b01c2e"
+ANCHOR = "#0b7285"        # dark cyan, open hexagon around the standard's filled circle
 
 SYMBOL_INCLUDED = "o"
 SYMBOL_EXCLUDED = "s"
 SYMBOL_UNKNOWN = "d"
 SYMBOL_QC = "t1"
+SYMBOL_ANCHOR = "h"

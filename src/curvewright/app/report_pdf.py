@@ -32,7 +32,7 @@ def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
 
     layout = RecordLayout(device, content.header or content.title, content.footer or f"Curvewright {__version__}",
                           CAUTION)
-    draw = {"curve": figures.draw_curve, "residuals": figures.draw_relative_errors,
+    draw = {"curve": figures.draw_curve_with_anchors, "residuals": figures.draw_relative_errors,
             "influence": figures.draw_influence}
     level = content.result.run.settings.confidence_level
     rule = content.result.run.settings.rounding
@@ -48,6 +48,8 @@ def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
             table = block if isinstance(block, PrintedTable) else printed(block, rule)
             layout.table(table.title, list(table.headings), [list(r) for r in table.rows], list(table.numeric),
                          table.note)
+        elif isinstance(block, FigureSlot) and block.kind == "additions":
+            layout.figure(additions_image(content, block), block.caption)
         elif isinstance(block, FigureSlot):
             analyte = content.result.analyte(block.analyte)
             options: dict[str, object] = {"font_size": 20}
@@ -60,6 +62,19 @@ def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
         elif isinstance(block, SignatureLines):
             layout.signatures(list(block.lines))
     return layout
+
+
+def additions_image(content: ReportContent, block: FigureSlot):  # type: ignore[no-untyped-def]
+    """The standard-addition series of one sample drawn as the app's Standard additions tab draws it."""
+    from .additions_view import draw_additions
+
+    analyte = content.result.analyte(block.analyte)
+    series = next(s for s in analyte.additions if s.sample_id == block.sample)
+    return figures.render(draw_additions, analyte, *ADDITIONS_PIXELS, series=series, font_size=20)
+
+
+ADDITIONS_PIXELS = (1800, 900)
+"""Pixels of a standard-additions figure as drawn; printed at the text width."""
 
 
 def xmp_metadata(content: ReportContent) -> bytes:

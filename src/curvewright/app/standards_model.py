@@ -38,6 +38,10 @@ EDITABLE = (ID, LEVEL, REP, CONC, RESP, IS)
 INVALID = QColor(255, 214, 214)
 EXCLUDED = QColor(110, 110, 110)
 FAILING = QColor(255, 236, 200)
+ANCHOR_WORDS = "anchor point, not judged"
+"""What the Within-limits cell of an anchor point says: its %RE is shown, never judged."""
+ANCHOR_TIP = ("An anchor point of the logistic curve: fitted, but not judged for acceptance and outside the "
+              "calibrated range (LLOQ to ULOQ). Its back-calculated value and %RE are shown for information.")
 
 
 class StandardsModel(QAbstractTableModel):
@@ -114,6 +118,8 @@ class StandardsModel(QAbstractTableModel):
                 return s.exclusion_reason
             if col == INFLUENCE:
                 return self._text(s, col) or "nothing stands out"
+            if col in (LIMITS, IN_FIT) and s.anchor:
+                return ANCHOR_TIP
             return None
         if role == Qt.ItemDataRole.BackgroundRole:
             if problem:
@@ -155,7 +161,7 @@ class StandardsModel(QAbstractTableModel):
         if col == IS:
             return display_reading(s.internal_standard_response)
         if col == IN_FIT:
-            return "yes" if s.included else "excluded"
+            return ("yes, anchor point" if s.anchor else "yes") if s.included else "excluded"
         if col == REASON:
             return s.exclusion_reason
         return self._result_text(s, col)
@@ -178,7 +184,7 @@ class StandardsModel(QAbstractTableModel):
             return f"{value:+.2f}" if np.isfinite(value) else "—"
         if col == LIMITS and a.verdict is not None:
             if not a.verdict.judged[position]:
-                return "not judged (blank)"
+                return ANCHOR_WORDS if s.anchor else "not judged (blank)"
             return "yes" if a.verdict.passing[position] else "NO"
         if col == INFLUENCE:
             return "; ".join(f.value for f in cal.influence_flags[position])

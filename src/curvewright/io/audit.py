@@ -37,6 +37,7 @@ ACTIONS = (
     "standard_excluded",
     "standard_included",
     "anchor_points_marked",
+    "anchor_points_cleared",
     "model_chosen",
     "profile_changed",
     "settings_changed",

@@ -83,6 +83,9 @@ def _entry_words(e: AuditEntry) -> str:
     if a == "anchor_points_marked":
         return (f"marked standard(s) {_value(d.get('standards'))} of {d.get('analyte', '')} as anchor points (fitted, "
                 "not judged for acceptance)." + _because(d))
+    if a == "anchor_points_cleared":
+        return (f"cleared the anchor-point mark of standard(s) {_value(d.get('standards'))} of {d.get('analyte', '')} "
+                "(judged for acceptance again)." + _because(d))
     if a == "standard_included":
         return (f"put standard {d.get('standard', '')} of {d.get('analyte', '')} back in the fit (it had been excluded: "
                 f"{d.get('previous_reason', '')})." + _because(d))

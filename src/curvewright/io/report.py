@@ -89,9 +89,11 @@ class Paragraph:
 
 @dataclass(frozen=True)
 class FigureSlot:
-    kind: str  # curve | residuals | influence
+    kind: str  # curve | residuals | influence | additions
     analyte: str
     caption: str
+    sample: str = ""
+    """The sample whose standard-addition series an "additions" figure draws."""
 
 
 @dataclass(frozen=True)
@@ -280,11 +282,15 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     if a.calibration is not None:
         blocks.append(Paragraph(f"Equation: {a.calibration.equation(6)} (coefficients at full precision in the "
                                 "appendix)", "body"))
-        blocks.append(FigureSlot("curve", name, f"{name}: standards (filled: in the fit; open squares: excluded), "
-                                 f"fitted curve with {run.settings.confidence_level:.0%} confidence and prediction bands, "
-                                 "unknowns with their concentration intervals; calibrated range and LOQ marked."))
+        anchored = bool(any(s.anchor for s in a.fitted_standards))
+        blocks.append(FigureSlot("curve", name, f"{name}: standards (filled: in the fit; open squares: excluded"
+                                 + ("; ringed by open hexagons: anchor points, fitted but not judged" if anchored else "")
+                                 + f"), fitted curve with {run.settings.confidence_level:.0%} confidence and prediction "
+                                 "bands, unknowns with their concentration intervals; calibrated range and LOQ marked."))
         blocks.append(FigureSlot("residuals", name, f"{name}: relative error of each back-calculated standard against "
-                                 "concentration, with the acceptance limits."))
+                                 "concentration, with the acceptance limits"
+                                 + ("; anchor points are not judged and not drawn (their %RE is in the standards table)"
+                                    if anchored else "") + "."))
         blocks.append(FigureSlot("influence", name, f"{name}: leverage against the externally studentized residual, "
                                  "with the outlier and influence limits the flags use; flagged standards labelled."))
     calibration = calibration_table(a, result)
@@ -301,6 +307,7 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     standards = standards_table(a, result.run.settings.rounding)
     blocks.append(printed(standards.select(STANDARD_ACCURACY_COLUMNS, f"Standards – {name}: back-calculated accuracy"), rule))
     blocks += exclusion_blocks(result, a)
+    blocks += anchor_blocks(result, a)
     blocks.append(printed(standards.select(STANDARD_INFLUENCE_COLUMNS, f"Standards – {name}: influence"), rule))
     if a.checks is not None:
         blocks.append(printed(checks_table(a, rule), rule, f"Check windows: {result.profile.checks.source}"))
@@ -333,7 +340,34 @@ def _additions_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
                   f"a t interval; reported after the dilution factor. Warning: {MATRIX_WARNING}.", "small"),
         printed(table.select(names), result.run.settings.rounding),
         *[Paragraph("• " + n, "small") for n in notes],
+        *additions_figures(result, a),
     ]
+
+
+def additions_figures(result: RunResult, a: AnalyteResult) -> list[Block]:
+    """One figure per sample whose standard-addition series has a line: the points, the line drawn back to
+    its x-intercept, and the extrapolated concentration with its interval on the concentration axis."""
+    from ..core.standard_additions import MATRIX_WARNING
+
+    unit = a.analyte.concentration_unit.strip()
+    in_unit = f" {unit}" if unit else ""
+    out: list[Block] = []
+    for s in a.additions:
+        r = s.result
+        if r is None:
+            continue
+        diluted = (f"; × dilution factor {s.dilution_factor:g}, reported {s.reported:.5g}{in_unit} "
+                   f"({s.reported_lower:.5g} to {s.reported_upper:.5g})" if s.dilution_factor != 1 else "")
+        out.append(FigureSlot(
+            "additions", a.analyte.name,
+            f"{a.analyte.name}, {s.sample_id}: the standard-addition series. Mean response of each addition "
+            f"against the concentration added ({unit or 'unit not set'}); the line {r.equation(6)} through them, "
+            f"dashed where it is extended back to zero response; its x-intercept at −{r.concentration:.5g}{in_unit} "
+            f"gives the concentration {r.concentration:.5g}{in_unit} in the measured solution, with its "
+            f"{r.level:.0%} interval {r.lower:.5g} to {r.upper:.5g}{in_unit} shaded (from −{r.upper:.5g} to "
+            f"−{r.lower:.5g}) on the concentration axis{diluted}. "
+            f"Warning: {MATRIX_WARNING}.", sample=s.sample_id))
+    return out
 
 
 def exclusion_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
@@ -352,6 +386,35 @@ def exclusion_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
             "; no audit entry records the exclusion"
         out.append(Paragraph(f"• {s.id} (level {s.level or '—'}, {s.concentration:g} {unit}".rstrip() +
                              f"): {s.exclusion_reason or '(no reason recorded)'}{by}", "small"))
+    return out
+
+
+def anchor_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
+    """The anchor points of a logistic curve (fitted, never judged, outside the calibrated range): each
+    with its level and nominal concentration, and who marked it, when and why (the last audit entry that
+    marked it)."""
+    name = a.analyte.name
+    marked = [s for s in a.analyte.standards if s.anchor]
+    if not marked:
+        return []
+    unit = a.analyte.concentration_unit
+    out: list[Block] = [Paragraph(f"Anchor points of {name} ({len(marked)}): fitted, but not judged for acceptance and "
+                                  "outside the calibrated range (LLOQ to ULOQ); their back-calculated values are "
+                                  "shown for information.", "small")]
+    groups: dict[int, list] = {}  # the standards each marking entry (by its position in the trail) still holds
+    for s in marked:
+        at = next((i for i in range(len(result.run.audit) - 1, -1, -1) if result.run.audit[i].action == "anchor_points_marked"
+                   and result.run.audit[i].details.get("analyte") == name
+                   and s.id in (result.run.audit[i].details.get("standards") or [])), -1)
+        groups.setdefault(at, []).append(s)
+    for at, standards in groups.items():
+        named = ", ".join(f"{s.id} ({s.concentration:g} {unit})".replace(" )", ")") for s in standards)
+        if at < 0:
+            out.append(Paragraph(f"• {named}: no audit entry records the mark", "small"))
+            continue
+        entry = result.run.audit[at]
+        out.append(Paragraph(f"• {named}: {entry.details.get('reason') or '(no reason recorded)'}; marked by "
+                             f"{who(entry)}, {when(entry)}", "small"))
     return out
 
 

@@ -59,14 +59,46 @@ def mark_anchor_points(
     run: Run, analyte: str, standard_ids: list[str], reason: str, *, user: Identity | str | None = None,
     clock: Clock = utc_now,
 ) -> Run:
-    """Mark standards as anchor points of a logistic curve (fitted, never judged), with the reason."""
-    if not reason.strip():
-        raise RunError(f"marking anchor points of {analyte}: give the reason.")
-    a = run.analyte(analyte)
+    """Mark standards as anchor points of a logistic curve (fitted, never judged), with the reason.
+
+    Whether the curve can take them (a logistic curve, the points outside the other standards' range)
+    is the fit's question: a run whose marks it refuses is analysed with that reason as its error."""
+    a = _anchor_standards(run, analyte, standard_ids, reason, "marking", marked=False)
     for standard_id in standard_ids:
         a = _with_standard(a, replace(a.standard(standard_id), anchor=True))
     return _log(run.with_analyte(a), "anchor_points_marked",
                 {"analyte": analyte, "standards": list(standard_ids), "reason": reason.strip()}, user, clock)
+
+
+def clear_anchor_points(
+    run: Run, analyte: str, standard_ids: list[str], reason: str, *, user: Identity | str | None = None,
+    clock: Clock = utc_now,
+) -> Run:
+    """Take the anchor-point mark off standards, with the reason: they are judged again like any standard."""
+    a = _anchor_standards(run, analyte, standard_ids, reason, "clearing", marked=True)
+    for standard_id in standard_ids:
+        a = _with_standard(a, replace(a.standard(standard_id), anchor=False))
+    return _log(run.with_analyte(a), "anchor_points_cleared",
+                {"analyte": analyte, "standards": list(standard_ids), "reason": reason.strip()}, user, clock)
+
+
+def _anchor_standards(run: Run, analyte: str, standard_ids: list[str], reason: str, doing: str, *,
+                      marked: bool) -> Analyte:
+    """The analyte whose standards ``standard_ids`` change their anchor mark, checked: a reason, at least
+    one standard, each named once and each now marked (``marked``) or not."""
+    if not reason.strip():
+        raise RunError(f"{doing} anchor points of {analyte}: give the reason.")
+    if not standard_ids:
+        raise RunError(f"{doing} anchor points of {analyte}: name at least one standard.")
+    twice = sorted({i for i in standard_ids if list(standard_ids).count(i) > 1})
+    if twice:
+        raise RunError(f"{doing} anchor points of {analyte}: standard(s) {', '.join(twice)} named more than once.")
+    a = run.analyte(analyte)
+    wrong = [i for i in standard_ids if a.standard(i).anchor != marked]
+    if wrong:
+        state = "is not an anchor point" if marked else "is already an anchor point"
+        raise RunError(f"{doing} anchor points of {analyte}: standard(s) {', '.join(wrong)} {state}.")
+    return a
 
 
 def include_standard(
