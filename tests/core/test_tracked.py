@@ -25,9 +25,25 @@ def test_the_calibration_quantities_are_the_fit_s_own() -> None:
     assert (values.intercept, values.slope) == (cal.coefficients[0], cal.coefficients[1])
     assert values.curvature is None and values.residual_sd == cal.residual_sd
     assert values.lloq == a.reporting.lloq == 0.5
-    assert values.rf_rsd_percent is None  # no average response-factor model exists: never made up
+    assert values.rf_rsd_percent is None  # a straight line has no response factors: never made up
     assert values.is_response is None and values.accepted and values.error is None
     assert values.method_key == "general | linear | none" == method_key("general", "linear", "none")
+
+
+def test_an_average_response_factor_tracks_its_rf_rsd() -> None:
+    result = analyse_run(open_run(DEMOS / "volatiles_water_average_rf.json").run)
+    values = tracked_values(result)
+    assert len(values) == len(result.analytes) >= 2
+    for a, v in zip(result.analytes, values, strict=True):
+        cal = a.calibration
+        assert cal.model.value == v.model == "average-rf"
+        # by hand: RF = y/x of each standard in the fit, %RSD = 100·s/mean with s on n − 1
+        rf = [float(y) / float(x) for x, y in zip(cal.concentration, cal.response, strict=True)]
+        mean = sum(rf) / len(rf)
+        sd = math.sqrt(sum((r - mean) ** 2 for r in rf) / (len(rf) - 1))
+        assert v.rf_rsd_percent == pytest.approx(100.0 * sd / mean, rel=1e-12)
+        assert v.rf_rsd_percent == cal.rf_rsd_percent
+        assert v.slope == pytest.approx(mean, rel=1e-12) and v.intercept is None
 
 
 def test_r_of_an_unweighted_straight_line_is_pearson_s_correlation() -> None:

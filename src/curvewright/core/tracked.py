@@ -168,7 +168,7 @@ def _of_analyte(a: AnalyteResult, profile_id: str) -> TrackedValues:
         curvature=b[2] if len(b) > 2 else None,
         residual_sd=float(cal.residual_sd),
         r=r,
-        rf_rsd_percent=None,
+        rf_rsd_percent=cal.rf_rsd_percent,
         lloq=a.reporting.lloq if a.reporting is not None else None,
         is_response=float(np.mean(is_values)) if is_values else None,
         is_response_count=len(is_values) if is_values else None,
