@@ -128,3 +128,23 @@ def test_demo_ligand_binding_run_with_anchor_points() -> None:
     by_id = {s["id"]: s for s in entry["samples"]}
     assert by_id["Donor 035"]["status"] == "not_quantified" and "beyond_asymptote" in by_id["Donor 035"]["flags"]
     assert "below_range" in by_id["Donor 033"]["flags"]
+
+
+def test_compare_on_the_demo_ligand_binding_run_leaves_anchor_points_unjudged() -> None:
+    # The evidence table of the demo immunoassay: the logistic curves fit the anchor points as such,
+    # every other candidate is fitted without them, and none counts them among the standards failing.
+    path = ROOT / "sample_runs" / "cytokine_serum_4pl.json"
+    result = run_cli("compare", str(path), "--json")
+    assert result.returncode == 0, result.stderr
+    (entry,) = json.loads(result.stdout)
+    rows = [dict(zip(entry["columns"], row, strict=True)) for row in entry["rows"]]
+    chosen = next(r for r in rows if r["Chosen"] == "chosen")
+    assert (chosen["Model"], chosen["Weighting"]) == ("4pl", "1/y^2") and chosen["Recommended"] == "recommended"
+    quantified = json.loads(run_cli("quantify", str(path), "--json").stdout)["analytes"][0]
+    verdicts = {s["id"]: s["within_limits"] for s in quantified["standards"]}
+    assert [k for k, v in verdicts.items() if v is None] == ["A1-1", "A1-2", "A2-1", "A2-2"]  # the anchor points
+    failing = sum(1 for v in verdicts.values() if v is False)
+    assert chosen["Standards failing"] == failing == 0  # the comparison counts as the run's own verdict does
+    assert all(r["Standards failing"] <= 16 for r in rows)  # 16 calibration standards, 4 anchor points
+    assert any(r.startswith("4 anchor point(s) (concentration 0.8, 6000) fix the logistic curves' asymptotes")
+               for r in entry["reasons"])

@@ -305,7 +305,8 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
             rows.append(tuple(base + [
                 _finite(cal.back_calculated[i]), _finite(cal.relative_error[i]),
                 float(a.verdict.tolerance_percent[i]) if a.verdict.judged[i] else None,
-                ("yes" if a.verdict.passing[i] else "NO") if a.verdict.judged[i] else "not judged (blank)",
+                ("yes" if a.verdict.passing[i] else "NO") if a.verdict.judged[i]
+                else "not judged (anchor point)" if s.anchor else "not judged (blank)",
                 float(cal.leverage[i]), _finite(cal.cooks_distance[i]), _finite(cal.studentized_residuals[i]),
                 flags, "yes", "",
             ]))
