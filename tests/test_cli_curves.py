@@ -148,3 +148,23 @@ def test_compare_on_the_demo_ligand_binding_run_leaves_anchor_points_unjudged() 
     assert all(r["Standards failing"] <= 16 for r in rows)  # 16 calibration standards, 4 anchor points
     assert any(r.startswith("4 anchor point(s) (concentration 0.8, 6000) fix the logistic curves' asymptotes")
                for r in entry["reasons"])
+
+
+def test_the_command_line_fits_a_logistic_curve_with_a_variance_function(tmp_path: Path) -> None:
+    from tests.core.test_nonlinear_variance_function import standards
+
+    x, y = standards("4pl")
+    table = tmp_path / "standards.csv"
+    table.write_text("Standard id,Concentration (pg/mL),Response (OD)\r\n" + "".join(
+        f"S{i + 1:02d},{c:g},{r:.6f}\r\n" for i, (c, r) in enumerate(zip(x, y))), encoding="utf-8")
+    samples = tmp_path / "samples.csv"
+    samples.write_text("Sample,Response (OD)\r\nP-01,0.9\r\n", encoding="utf-8")
+    result = run_cli("quantify", "--standards", str(table), "--samples", str(samples), "--model", "4pl",
+                     "--weighting", "power", "--json")
+    assert result.returncode in (0, 1), result.stderr
+    (entry,) = json.loads(result.stdout)["analytes"]
+    cal = cw.fit(x.round(6), np.round(y, 6), "4pl", "power")
+    assert (entry["model"], entry["weighting"]) == ("4pl", "power")
+    np.testing.assert_allclose(entry["coefficients"], cal.coefficients, rtol=1e-9)  # cw.fit(...) above
+    assert any(n.startswith("weights from a variance function") for n in entry["notes"])
+    assert entry["samples"][0]["reported"] == pytest.approx(float(cal.quantify([0.9]).estimate[0]), rel=1e-9)

@@ -33,7 +33,7 @@ def test_ligand_binding_profile_recommends_the_4pl_with_its_reasons() -> None:
     assert result.recommended.model is cw.Model.FOUR_PL
     assert any("ligand-binding profile: a logistic curve is recommended" in r for r in result.reasons)
     assert any("no significant improvement" in r and "4PL" in r for r in result.reasons)
-    # no variance function is estimated for the logistic curves: they are tried only under the weightings they accept
+    # the comparison tries the logistic curves it brings in under the fixed weightings only
     assert not any(c.model is cw.Model.FOUR_PL and c.weighting.variance_function for c in result.candidates)
 
 

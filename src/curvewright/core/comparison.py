@@ -50,7 +50,8 @@ asymptote for them to fix (its notes say so). No candidate judges them for accep
 among the standards failing or adds their relative errors to Σ|%RE|; the span of the power curve is
 that of the other standards. AICc then compares only candidates fitted to the same standards.
 The curves that are not polynomials (see :mod:`.nonlinear_calibration`) are considered where they apply,
-under the weightings they accept (not the variance functions):
+under the fixed weightings (a variance function may be chosen for them, but the comparison does not try
+one: each takes several nonlinear fits and a jackknife of them):
 4. Logistic curves (4PL, 5PL): on a ligand-binding profile, and whenever asked for. On a
    ligand-binding profile the recommendation is a logistic curve: weighted 1/y² when the variance
    evidence shows the scatter growing with the response (a constant CV, common practice for
@@ -94,7 +95,8 @@ NONLINEAR_WEIGHTINGS = (
     Weighting.NONE, Weighting.INVERSE_X, Weighting.INVERSE_X2, Weighting.INVERSE_Y, Weighting.INVERSE_Y2,
     Weighting.INVERSE_S2,
 )
-"""The weightings the nonlinear curves accept (no variance function is estimated for them yet)."""
+"""The weightings under which the comparison tries the nonlinear curves it brings in (not the variance functions,
+which they accept but which cost several nonlinear fits each)."""
 LACK_OF_FIT_ALPHA = 0.05
 """Lack-of-fit significance level (common practice)."""
 MANDEL_ALPHA = 0.01
