@@ -168,3 +168,28 @@ def test_the_command_line_fits_a_logistic_curve_with_a_variance_function(tmp_pat
     np.testing.assert_allclose(entry["coefficients"], cal.coefficients, rtol=1e-9)  # cw.fit(...) above
     assert any(n.startswith("weights from a variance function") for n in entry["notes"])
     assert entry["samples"][0]["reported"] == pytest.approx(float(cal.quantify([0.9]).estimate[0]), rel=1e-9)
+
+
+def test_the_archive_tracks_each_curve_s_own_quantities(tmp_path: Path) -> None:
+    # Filed from the command line: the 4PL run has no slope, intercept or r to follow (its b is a slope
+    # factor, not a slope in OD per pg/mL); the average-RF run follows its response-factor %RSD.
+    demos = ROOT / "sample_runs"
+    added = run_cli("archive", "add", str(demos / "cytokine_serum_4pl.json"),
+                    str(demos / "volatiles_water_average_rf.json"), "--to", str(tmp_path))
+    assert added.returncode == 0, added.stderr
+    logistic = run_cli("trend", "--at", str(tmp_path), "--analyte", "cytokine", "--quantity", "slope", "--json")
+    assert logistic.returncode == 0, logistic.stderr
+    data = json.loads(logistic.stdout)
+    assert not {"slope", "intercept", "curvature", "r", "rf_rsd_percent"} & set(data["quantities"])
+    assert "residual_sd" in data["quantities"]
+    assert data["problem"].startswith("no filed run of cytokine (ich-m10-ligand-binding | 4pl | 1/y^2) has a slope")
+    rf = run_cli("trend", "--at", str(tmp_path), "--analyte", "toluene", "--quantity", "rf_rsd_percent", "--json")
+    assert rf.returncode == 0, rf.stderr
+    data = json.loads(rf.stdout)
+    from curvewright.core.run_analysis import analyse_run
+    from curvewright.io.run_document import open_run
+
+    cal = analyse_run(open_run(demos / "volatiles_water_average_rf.json").run).analyte("toluene").calibration
+    assert "intercept" not in data["quantities"] and "rf_rsd_percent" in data["quantities"]
+    (point,) = data["points"]
+    assert point["value"] == pytest.approx(cal.rf_rsd_percent, rel=1e-12)

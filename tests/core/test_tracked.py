@@ -116,3 +116,24 @@ def test_quantity_keys_read_back_and_speak_with_their_units() -> None:
     assert quantity_words("qc_recovery@1.5", "mg/L") == "QC recovery at 1.5 mg/L (%)"
     assert quantity_words("check_standard_recovery@5", "mg/L") == "check standard recovery at 5 mg/L (%)"
     assert quantity_words("lloq") == "LLOQ"
+
+
+def test_a_logistic_curve_tracks_no_slope_intercept_or_r_of_another_meaning() -> None:
+    # The 4PL's b is a slope factor without units and its a is an asymptote: neither is the straight
+    # line's slope or intercept that the history follows, nor is the curve through the origin.
+    result = analyse_run(open_run(DEMOS / "cytokine_serum_4pl.json").run)
+    (values,) = tracked_values(result)
+    (a,) = result.analytes
+    assert a.calibration.model.value == values.model == "4pl"
+    assert not a.calibration.through_origin and not a.calibration.model.has_intercept
+    assert (values.slope, values.intercept, values.curvature, values.r, values.rf_rsd_percent) == (None,) * 5
+    assert values.residual_sd == a.calibration.residual_sd and values.lloq == 3.0
+
+
+@pytest.mark.parametrize("model, through", [("linear", False), ("quadratic", False), ("proportional", True),
+                                            ("average-rf", True), ("4pl", False), ("5pl", False), ("power", False)])
+def test_through_origin_names_the_curves_forced_through_zero(model: str, through: bool) -> None:
+    from curvewright.core.model_kinds import Model
+
+    assert Model(model).through_origin is through
+    assert Model(model).has_intercept is (model in ("linear", "quadratic"))

@@ -255,7 +255,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     names = cal.coefficient_names
     for power, (name, words, b, se) in enumerate(zip(names, cal.coefficient_descriptions, cal.coefficients,
                                                     cal.standard_errors)):
-        fixed = cal.model in (Model.PROPORTIONAL, Model.AVERAGE_RF) and power == 0  # through the origin
+        fixed = cal.through_origin and power == 0  # b0 fixed at 0
         rows.append((f"{name} ({words})", 0.0 if fixed else float(b), None if fixed else float(se)))
     for i in range(cal.covariance.shape[0]):
         for j in range(i + 1, cal.covariance.shape[0]):
@@ -590,7 +590,7 @@ def _mandel(cal: Calibration) -> tuple[Any, Any]:
 
     if not cal.model.is_polynomial:
         return f"not applicable to a {cal.model.description} (it compares a straight line with a quadratic)", None
-    if not cal.model.has_intercept:
+    if cal.through_origin:
         return "not applicable to a line through the origin", None
     try:
         lin = cal if cal.model is Model.LINEAR else fit(cal.concentration, cal.response, "linear", cal.weighting.value)
