@@ -157,3 +157,24 @@ def test_the_refusals_are_those_of_the_polynomials() -> None:
     cal = cw.fit(x, y, "4pl", "two-component")
     assert cal.weights.sum() == pytest.approx(x.size)
 
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("weighting", ["power", "two-component"])
+def test_coverage_with_a_variance_function_from_duplicates(weighting: str) -> None:
+    # The rule of the estimated weights (tests/core/test_estimated_weights.py): a 95 % interval from
+    # weights estimated from the standards covers at least 93 % with duplicates, or the weighting is
+    # refused for that design. 4PL, 8 levels in duplicate, 3 % CV; unknowns measured once at four
+    # concentrations across the range. 300 calibrations × 4 unknowns: binomial SE about 0.6 %.
+    rng = np.random.default_rng(20261203)
+    x = np.repeat(LEVELS, 2)
+    x0 = np.array([2.0, 10.0, 60.0, 300.0])
+    covered = total = 0
+    for _ in range(300):
+        y = four_pl(x, *TRUE_4PL) * (1.0 + 0.03 * rng.standard_normal(x.size))
+        cal = cw.fit(x, y, "4pl", weighting)
+        y0 = four_pl(x0, *TRUE_4PL) * (1.0 + 0.03 * rng.standard_normal(x0.size))
+        q = cal.quantify(y0)
+        covered += int(np.sum((q.lower <= x0) & (x0 <= q.upper)))
+        total += x0.size
+    assert covered / total >= 0.93, covered / total
