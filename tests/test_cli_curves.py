@@ -128,3 +128,68 @@ def test_demo_ligand_binding_run_with_anchor_points() -> None:
     by_id = {s["id"]: s for s in entry["samples"]}
     assert by_id["Donor 035"]["status"] == "not_quantified" and "beyond_asymptote" in by_id["Donor 035"]["flags"]
     assert "below_range" in by_id["Donor 033"]["flags"]
+
+
+def test_compare_on_the_demo_ligand_binding_run_leaves_anchor_points_unjudged() -> None:
+    # The evidence table of the demo immunoassay: the logistic curves fit the anchor points as such,
+    # every other candidate is fitted without them, and none counts them among the standards failing.
+    path = ROOT / "sample_runs" / "cytokine_serum_4pl.json"
+    result = run_cli("compare", str(path), "--json")
+    assert result.returncode == 0, result.stderr
+    (entry,) = json.loads(result.stdout)
+    rows = [dict(zip(entry["columns"], row, strict=True)) for row in entry["rows"]]
+    chosen = next(r for r in rows if r["Chosen"] == "chosen")
+    assert (chosen["Model"], chosen["Weighting"]) == ("4pl", "1/y^2") and chosen["Recommended"] == "recommended"
+    quantified = json.loads(run_cli("quantify", str(path), "--json").stdout)["analytes"][0]
+    verdicts = {s["id"]: s["within_limits"] for s in quantified["standards"]}
+    assert [k for k, v in verdicts.items() if v is None] == ["A1-1", "A1-2", "A2-1", "A2-2"]  # the anchor points
+    failing = sum(1 for v in verdicts.values() if v is False)
+    assert chosen["Standards failing"] == failing == 0  # the comparison counts as the run's own verdict does
+    assert all(r["Standards failing"] <= 16 for r in rows)  # 16 calibration standards, 4 anchor points
+    assert any(r.startswith("4 anchor point(s) (concentration 0.8, 6000) fix the logistic curves' asymptotes")
+               for r in entry["reasons"])
+
+
+def test_the_command_line_fits_a_logistic_curve_with_a_variance_function(tmp_path: Path) -> None:
+    from tests.core.test_nonlinear_variance_function import standards
+
+    x, y = standards("4pl")
+    table = tmp_path / "standards.csv"
+    table.write_text("Standard id,Concentration (pg/mL),Response (OD)\r\n" + "".join(
+        f"S{i + 1:02d},{c:g},{r:.6f}\r\n" for i, (c, r) in enumerate(zip(x, y))), encoding="utf-8")
+    samples = tmp_path / "samples.csv"
+    samples.write_text("Sample,Response (OD)\r\nP-01,0.9\r\n", encoding="utf-8")
+    result = run_cli("quantify", "--standards", str(table), "--samples", str(samples), "--model", "4pl",
+                     "--weighting", "power", "--json")
+    assert result.returncode in (0, 1), result.stderr
+    (entry,) = json.loads(result.stdout)["analytes"]
+    cal = cw.fit(x.round(6), np.round(y, 6), "4pl", "power")
+    assert (entry["model"], entry["weighting"]) == ("4pl", "power")
+    np.testing.assert_allclose(entry["coefficients"], cal.coefficients, rtol=1e-9)  # cw.fit(...) above
+    assert any(n.startswith("weights from a variance function") for n in entry["notes"])
+    assert entry["samples"][0]["reported"] == pytest.approx(float(cal.quantify([0.9]).estimate[0]), rel=1e-9)
+
+
+def test_the_archive_tracks_each_curve_s_own_quantities(tmp_path: Path) -> None:
+    # Filed from the command line: the 4PL run has no slope, intercept or r to follow (its b is a slope
+    # factor, not a slope in OD per pg/mL); the average-RF run follows its response-factor %RSD.
+    demos = ROOT / "sample_runs"
+    added = run_cli("archive", "add", str(demos / "cytokine_serum_4pl.json"),
+                    str(demos / "volatiles_water_average_rf.json"), "--to", str(tmp_path))
+    assert added.returncode == 0, added.stderr
+    logistic = run_cli("trend", "--at", str(tmp_path), "--analyte", "cytokine", "--quantity", "slope", "--json")
+    assert logistic.returncode == 0, logistic.stderr
+    data = json.loads(logistic.stdout)
+    assert not {"slope", "intercept", "curvature", "r", "rf_rsd_percent"} & set(data["quantities"])
+    assert "residual_sd" in data["quantities"]
+    assert data["problem"].startswith("no filed run of cytokine (ich-m10-ligand-binding | 4pl | 1/y^2) has a slope")
+    rf = run_cli("trend", "--at", str(tmp_path), "--analyte", "toluene", "--quantity", "rf_rsd_percent", "--json")
+    assert rf.returncode == 0, rf.stderr
+    data = json.loads(rf.stdout)
+    from curvewright.core.run_analysis import analyse_run
+    from curvewright.io.run_document import open_run
+
+    cal = analyse_run(open_run(demos / "volatiles_water_average_rf.json").run).analyte("toluene").calibration
+    assert "intercept" not in data["quantities"] and "rf_rsd_percent" in data["quantities"]
+    (point,) = data["points"]
+    assert point["value"] == pytest.approx(cal.rf_rsd_percent, rel=1e-12)

@@ -895,7 +895,7 @@ def result_json(  # type: ignore[no-untyped-def]
                      "leverage": cal.leverage[i], "cooks_distance": cal.cooks_distance[i],
                      "studentized_residual": cal.studentized_residuals[i],
                      "influence_flags": [f.name.lower() for f in cal.influence_flags[i]],
-                     "within_limits": bool(a.verdict.passing[i]) if a.verdict else None}
+                     "within_limits": bool(a.verdict.passing[i]) if a.verdict and a.verdict.judged[i] else None}
                     for i, s in enumerate(a.fitted_standards)
                 ],
                 "excluded_standards": [{"id": s.id, "reason": s.exclusion_reason} for s in a.excluded_standards],

@@ -76,6 +76,35 @@ def test_inverse_interval_is_the_prediction_interval_of_a_new_mean_rf(y0: float,
     assert q.flags[0] == cw.QuantFlag.IN_RANGE
 
 
+@pytest.mark.parametrize("m", [1, 3])
+def test_a_zero_or_negative_response_reads_the_band_of_the_lowest_standard(m: int) -> None:
+    # Below the lowest standard (x_low = 1) the response factors' interval ȳ₀/(RF̄ ± h) no longer
+    # applies: at ȳ₀ = 0 it would be [0, 0], a certainty no measurement has. The rule is that of every
+    # calibration below its lowest standard (see curvewright.core.weighting): the variance of the new
+    # response is held at the lowest standard's, s_RF²·x_low²/m, so the band is
+    # (ȳ₀ − RF̄·x)² ≤ t²·(s_RF²·x_low²/m + x²·s_RF²/n), with t on n − 1 df (scipy.stats), solved by hand:
+    # (RF̄² − t²s²/n)·x² − 2ȳ₀RF̄·x + ȳ₀² − t²s²·x_low²/m = 0.
+    cal = cw.fit(X, Y, "average-rf")
+    rf = Y / X
+    mean, sd, n = rf.mean(), rf.std(ddof=1), X.size
+    t = stats.t.ppf(0.975, n - 1)
+    a = mean**2 - t**2 * sd**2 / n
+    for y0 in (0.0, -0.5, 0.5):
+        b, c = -2 * y0 * mean, y0**2 - t**2 * sd**2 * X.min() ** 2 / m
+        roots = np.sort(np.roots([a, b, c]).real)
+        q = cal.quantify([y0], replicates=m)
+        assert q.estimate[0] == pytest.approx(y0 / mean, abs=1e-15)
+        np.testing.assert_allclose([q.lower[0], q.upper[0]], roots, rtol=1e-9)
+        assert q.lower[0] < q.estimate[0] < q.upper[0]
+        assert q.flags[0] & cw.QuantFlag.BELOW_RANGE
+    # at zero the interval is symmetric about 0: ±t·s_RF·x_low/√m/√(RF̄² − t²s_RF²/n), as for the straight
+    # lines, whose intervals are not cut at zero either (the result is flagged below the detection limit)
+    q = cal.quantify([0.0], replicates=m)
+    half = t * sd * X.min() / np.sqrt(m) / np.sqrt(a)
+    np.testing.assert_allclose([q.lower[0], q.upper[0]], [-half, half], rtol=1e-9)
+    assert q.flags[0] & cw.QuantFlag.BELOW_LOD
+
+
 def test_a_response_above_the_top_standard_is_flagged() -> None:
     q = cw.fit(X, Y, "average-rf").quantify([80.0])
     assert cw.QuantFlag.ABOVE_RANGE in q.flags[0]

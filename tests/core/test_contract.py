@@ -14,8 +14,8 @@ import curvewright as cw
 MODELS = ["linear", "quadratic", "proportional", "4pl", "5pl", "power"]
 WEIGHTINGS = ["none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2", "power", "two-component"]
 NONLINEAR = {"4pl", "5pl", "power"}
-"""Curves fitted by nonlinear least squares; the variance-function weightings are refused for them."""
-CASES = [(m, w) for m in MODELS for w in WEIGHTINGS if not (m in NONLINEAR and w in ("power", "two-component"))]
+"""Curves fitted by nonlinear least squares (the variance-function weightings by nonlinear fits too)."""
+CASES = [(m, w) for m in MODELS for w in WEIGHTINGS]
 # The average response factor is the mean of yᵢ/xᵢ, the line through the origin weighted 1/x²: it takes
 # no other weighting ("none", the default, means its own).
 CASES += [("average-rf", "none"), ("average-rf", "1/x^2")]
@@ -128,7 +128,8 @@ def test_rescaling_units_rescales_results(model: str, weighting: str, x_power: i
     assert scaled.residual_sd == pytest.approx(base.residual_sd * ky, rel=1e-9)
     assert scaled.r_squared == pytest.approx(base.r_squared, rel=1e-12)
     np.testing.assert_allclose(scaled.leverage, base.leverage, rtol=1e-9)
-    np.testing.assert_allclose(scaled.cooks_distance, base.cooks_distance, rtol=1e-7)
+    # a Cook's distance near zero comes from a residual near zero, known only to the fit's absolute precision
+    np.testing.assert_allclose(scaled.cooks_distance, base.cooks_distance, rtol=1e-7, atol=1e-12)
     np.testing.assert_allclose(scaled.relative_error, base.relative_error, rtol=1e-7, atol=1e-9)
     y0 = base.predict(np.array([4.0, 60.0]))
     a, b = base.quantify(y0), scaled.quantify(y0 * ky)
@@ -200,10 +201,3 @@ def test_average_response_factor_refuses_other_weightings(weighting: str) -> Non
     with pytest.raises(cw.WeightingError, match=re.escape(f"weighting {weighting}: the average response factor")):
         cw.fit(x, y, "average-rf", weighting)
 
-
-@pytest.mark.parametrize("model", sorted(NONLINEAR))
-@pytest.mark.parametrize("weighting", ["power", "two-component"])
-def test_variance_function_weights_are_refused_for_nonlinear_curves_by_name(model: str, weighting: str) -> None:
-    x, y = standards(model)
-    with pytest.raises(cw.WeightingError, match=f"weighting {weighting}: a variance function"):
-        cw.fit(x, y, model, weighting)

@@ -25,9 +25,25 @@ def test_the_calibration_quantities_are_the_fit_s_own() -> None:
     assert (values.intercept, values.slope) == (cal.coefficients[0], cal.coefficients[1])
     assert values.curvature is None and values.residual_sd == cal.residual_sd
     assert values.lloq == a.reporting.lloq == 0.5
-    assert values.rf_rsd_percent is None  # no average response-factor model exists: never made up
+    assert values.rf_rsd_percent is None  # a straight line has no response factors: never made up
     assert values.is_response is None and values.accepted and values.error is None
     assert values.method_key == "general | linear | none" == method_key("general", "linear", "none")
+
+
+def test_an_average_response_factor_tracks_its_rf_rsd() -> None:
+    result = analyse_run(open_run(DEMOS / "volatiles_water_average_rf.json").run)
+    values = tracked_values(result)
+    assert len(values) == len(result.analytes) >= 2
+    for a, v in zip(result.analytes, values, strict=True):
+        cal = a.calibration
+        assert cal.model.value == v.model == "average-rf"
+        # by hand: RF = y/x of each standard in the fit, %RSD = 100·s/mean with s on n − 1
+        rf = [float(y) / float(x) for x, y in zip(cal.concentration, cal.response, strict=True)]
+        mean = sum(rf) / len(rf)
+        sd = math.sqrt(sum((r - mean) ** 2 for r in rf) / (len(rf) - 1))
+        assert v.rf_rsd_percent == pytest.approx(100.0 * sd / mean, rel=1e-12)
+        assert v.rf_rsd_percent == cal.rf_rsd_percent
+        assert v.slope == pytest.approx(mean, rel=1e-12) and v.intercept is None
 
 
 def test_r_of_an_unweighted_straight_line_is_pearson_s_correlation() -> None:
@@ -100,3 +116,24 @@ def test_quantity_keys_read_back_and_speak_with_their_units() -> None:
     assert quantity_words("qc_recovery@1.5", "mg/L") == "QC recovery at 1.5 mg/L (%)"
     assert quantity_words("check_standard_recovery@5", "mg/L") == "check standard recovery at 5 mg/L (%)"
     assert quantity_words("lloq") == "LLOQ"
+
+
+def test_a_logistic_curve_tracks_no_slope_intercept_or_r_of_another_meaning() -> None:
+    # The 4PL's b is a slope factor without units and its a is an asymptote: neither is the straight
+    # line's slope or intercept that the history follows, nor is the curve through the origin.
+    result = analyse_run(open_run(DEMOS / "cytokine_serum_4pl.json").run)
+    (values,) = tracked_values(result)
+    (a,) = result.analytes
+    assert a.calibration.model.value == values.model == "4pl"
+    assert not a.calibration.through_origin and not a.calibration.model.has_intercept
+    assert (values.slope, values.intercept, values.curvature, values.r, values.rf_rsd_percent) == (None,) * 5
+    assert values.residual_sd == a.calibration.residual_sd and values.lloq == 3.0
+
+
+@pytest.mark.parametrize("model, through", [("linear", False), ("quadratic", False), ("proportional", True),
+                                            ("average-rf", True), ("4pl", False), ("5pl", False), ("power", False)])
+def test_through_origin_names_the_curves_forced_through_zero(model: str, through: bool) -> None:
+    from curvewright.core.model_kinds import Model
+
+    assert Model(model).through_origin is through
+    assert Model(model).has_intercept is (model in ("linear", "quadratic"))

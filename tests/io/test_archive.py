@@ -271,7 +271,7 @@ def test_asking_for_what_is_not_filed_names_what_is(where) -> None:  # type: ign
                                                r"\(1 run\)"):
             history(archive, "lead", method="x")
         h = history(archive, "lead", "rf_rsd_percent")
-        assert h.trend is None and "average response-factor models do not exist yet" in h.problem
+        assert h.trend is None and "tracked only for runs calibrated by the average response factor" in h.problem
 
 
 # --- access ------------------------------------------------------------------------------------------

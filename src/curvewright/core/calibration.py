@@ -105,10 +105,12 @@ def fit(
         five-parameter logistic curves y = d + (a − d)/(1 + (x/c)^b)[^g]; or the power curve
         y = a·x^b. The last three are fitted by weighted nonlinear least squares and return a
         :class:`~curvewright.core.nonlinear_calibration.NonlinearCalibration` (see there).
-    weighting : {"none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2"}
+    weighting : {"none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2", "power", "two-component"}
         Weights are scaled to sum to n, so ``residual_sd`` stays in response units (see
         :mod:`.weighting`). 1/x-type weights refuse concentrations ≤ 0, 1/y-type responses ≤ 0, and
-        1/s² needs ≥ 2 replicates at every level unless ``response_sd`` is given.
+        1/s² from replicates needs 10 at every level unless ``response_sd`` is given. "power" and
+        "two-component" fit a variance function to all standards (:mod:`.variance_function`), for
+        every model but the average response factor.
     response_sd : array-like of shape (n,), optional
         Known response SDs for 1/s² weighting (refused with any other weighting, which would ignore them).
     level_tolerance : float, optional

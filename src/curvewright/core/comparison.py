@@ -42,8 +42,16 @@ on the whole curve (the environmental profile; :mod:`.curve_rules`). Under such 
 recommended when its RF %RSD is within the profile's limit and its standards pass the profile: the
 simplest calibration the method allows. Otherwise the fitted curve chosen as above is recommended,
 and the reasons give the RF %RSD and whether that curve meets the profile's r or r² rule.
+Anchor points (standards a ligand-binding assay places beyond the range of quantitation to fix a
+logistic curve's asymptotes; ``anchor_points``) are handled as :func:`~.run_analysis.analyse_run`
+fits them: the logistic candidates fit them as anchor points, and every other candidate is fitted
+without them, since beyond the calibrated range a polynomial, a power curve or a response factor has no
+asymptote for them to fix (its notes say so). No candidate judges them for acceptance, counts them
+among the standards failing or adds their relative errors to Σ|%RE|; the span of the power curve is
+that of the other standards. AICc then compares only candidates fitted to the same standards.
 The curves that are not polynomials (see :mod:`.nonlinear_calibration`) are considered where they apply,
-under the weightings they accept (not the variance functions):
+under the fixed weightings (a variance function may be chosen for them, but the comparison does not try
+one: each takes several nonlinear fits and a jackknife of them):
 4. Logistic curves (4PL, 5PL): on a ligand-binding profile, and whenever asked for. On a
    ligand-binding profile the recommendation is a logistic curve: weighted 1/y² when the variance
    evidence shows the scatter growing with the response (a constant CV, common practice for
@@ -60,7 +68,7 @@ under the weightings they accept (not the variance functions):
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -87,7 +95,8 @@ NONLINEAR_WEIGHTINGS = (
     Weighting.NONE, Weighting.INVERSE_X, Weighting.INVERSE_X2, Weighting.INVERSE_Y, Weighting.INVERSE_Y2,
     Weighting.INVERSE_S2,
 )
-"""The weightings the nonlinear curves accept (no variance function is estimated for them yet)."""
+"""The weightings under which the comparison tries the nonlinear curves it brings in (not the variance functions,
+which they accept but which cost several nonlinear fits each)."""
 LACK_OF_FIT_ALPHA = 0.05
 """Lack-of-fit significance level (common practice)."""
 MANDEL_ALPHA = 0.01
@@ -124,6 +133,8 @@ class Candidate:
     verdict: AcceptanceVerdict
     mandel: MandelTest | None
     aicc: float | None
+    notes: tuple[str, ...] = ()
+    """What the comparison did with this candidate beyond fitting it (anchor points left out of its fit)."""
 
     @property
     def model(self) -> Model:
@@ -153,7 +164,13 @@ class Candidate:
 
     @property
     def sum_abs_relative_error(self) -> float:
-        return self.calibration.sum_abs_relative_error
+        """Σ|%RE| over the standards judged for acceptance (anchor points of a logistic curve left out)."""
+        cal = self.calibration
+        anchors = getattr(cal, "anchors", None)
+        if anchors is None or not np.any(anchors):
+            return cal.sum_abs_relative_error
+        values = cal.relative_error[~anchors]
+        return float(np.sum(np.abs(values[np.isfinite(values)])))
 
     @property
     def standards_failing(self) -> int:
@@ -199,11 +216,14 @@ def compare(
     profile: AcceptanceProfile | str = "general",
     level_tolerance: float | None = None,
     level_labels: Sequence[str] | None = None,
+    anchor_points: Sequence[bool] | None = None,
 ) -> ModelComparison:
     """Fit every candidate model × weighting and recommend the simplest adequate one.
 
     Candidates that cannot be fitted (1/x with a zero standard, 1/s² without replicates…) are listed
-    in ``skipped`` with the reason, never silently left out.
+    in ``skipped`` with the reason, never silently left out. ``anchor_points`` (one True/False per
+    standard) marks the anchor points of a logistic curve: fitted as such by the logistic candidates,
+    left out of every other candidate's fit, judged by none (see the module docstring).
     """
     model_list = [Model.parse(m) for m in models]
     asked = set(model_list)
@@ -212,7 +232,9 @@ def compare(
     weighting_list = [Weighting.parse(w) for w in weightings]
     rules = profile if isinstance(profile, AcceptanceProfile) else load_profile(profile)
     ligand_binding = is_ligand_binding(rules)
-    decades = _decades(concentration)
+    x = as_finite_vector(concentration, "concentration", CalibrationInputError)
+    anchors = _anchor_mask(anchor_points, x.size)
+    decades = _decades(x[~anchors])
     added = set()
     for extra, wanted in ((Model.FOUR_PL, ligand_binding), (Model.FIVE_PL, ligand_binding),
                           (Model.POWER, decades is not None and decades >= POWER_MIN_DECADES)):
@@ -223,14 +245,30 @@ def compare(
     fits: dict[tuple[Model, Weighting], Calibration] = {}
     skipped: list[SkippedCandidate] = []
     first_error: CalibrationInputError | None = None
-    x = as_finite_vector(concentration, "concentration", CalibrationInputError)
     shared_levels = group_levels(x, level_tolerance, level_labels) if x.size else None
+    # every candidate but the logistic curves is fitted to the standards that are not anchor points
+    y = as_finite_vector(response, "response", CalibrationInputError) if anchors.any() else response
+    sd = response_sd
+    inner_x, inner_y, inner_levels = x, y, shared_levels
+    if anchors.any():
+        if np.size(y) != x.size:
+            raise CalibrationInputError(
+                f"standards: {x.size} concentrations but {np.size(y)} responses; each standard needs both."
+            )
+        keep = ~anchors
+        inner_x, inner_y = x[keep], np.asarray(y)[keep]
+        labels = None if level_labels is None else [label for label, k in zip(level_labels, keep, strict=True) if k]
+        inner_levels = group_levels(inner_x, level_tolerance, labels)
+        if response_sd is not None:
+            sd = np.asarray(as_finite_vector(response_sd, "response SD", CalibrationInputError))
+            sd = sd[keep] if sd.size == x.size else sd
+    left_out = _left_out_words(int(anchors.sum())) if anchors.any() else None
     wants_rf = Model.AVERAGE_RF in model_list or rules.curve is not None
     model_list = [m for m in model_list if m is not Model.AVERAGE_RF]
     if wants_rf:
         try:  # one fit: the mean of the response factors takes no other weighting
             fits[(Model.AVERAGE_RF, Weighting.INVERSE_X2)] = fit(
-                x, response, Model.AVERAGE_RF, level_tolerance=level_tolerance, levels=shared_levels
+                inner_x, inner_y, Model.AVERAGE_RF, level_tolerance=level_tolerance, levels=inner_levels
             )
         except CalibrationInputError as exc:
             skipped.append(SkippedCandidate(Model.AVERAGE_RF, Weighting.INVERSE_X2, str(exc)))
@@ -239,11 +277,19 @@ def compare(
         for m in model_list:
             if m in added and w not in NONLINEAR_WEIGHTINGS:
                 continue  # a curve brought in by the profile or the span, under the weightings it accepts
+            logistic = m in (Model.FOUR_PL, Model.FIVE_PL)
             try:
-                fits[(m, w)] = fit(
-                    x, response, m, w, response_sd=response_sd if w is Weighting.INVERSE_S2 else None,
-                    level_tolerance=level_tolerance, levels=shared_levels,
-                )
+                if logistic:
+                    fits[(m, w)] = fit(
+                        x, y, m, w, response_sd=response_sd if w is Weighting.INVERSE_S2 else None,
+                        level_tolerance=level_tolerance, levels=shared_levels,
+                        anchor_points=anchors if anchors.any() else None,
+                    )
+                else:
+                    fits[(m, w)] = fit(
+                        inner_x, inner_y, m, w, response_sd=sd if w is Weighting.INVERSE_S2 else None,
+                        level_tolerance=level_tolerance, levels=inner_levels,
+                    )
             except CalibrationInputError as exc:
                 skipped.append(SkippedCandidate(m, w, str(exc)))
                 first_error = first_error or exc
@@ -264,6 +310,7 @@ def compare(
             verdict=rules.evaluate(cal),
             mandel=mandel_by_weighting.get(w) if m.has_intercept else None,
             aicc=_aicc(cal),
+            notes=(left_out(m),) if left_out is not None else (),
         )
         for (m, w), cal in fits.items()
     )
@@ -280,6 +327,8 @@ def compare(
         )
         if rules.curve is not None:
             recommended, reasons = _under_curve_rules(candidates, skipped, recommended, reasons, rules)
+    if anchors.any():
+        reasons = list(reasons) + [_anchor_reason(x[anchors])]
     reasons = list(reasons) + [R_SQUARED_NOTE]
     return ModelComparison(
         candidates=candidates,
@@ -493,6 +542,45 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
         f"{chosen.weighting.value} gives the smallest sum of absolute relative errors"
         if len(tied) == 1
         else f"{chosen.weighting.value} is the simplest within {TIE_FRACTION:.0%} of the smallest sum of absolute relative errors"
+    )
+
+
+def _anchor_mask(anchor_points: Sequence[bool] | None, n: int) -> np.ndarray:
+    """The anchor points as a boolean mask of the ``n`` standards (all False when none are given)."""
+    if anchor_points is None:
+        return np.zeros(n, dtype=bool)
+    mask = np.asarray(anchor_points)
+    if mask.ndim != 1 or mask.size != n or (mask.size and mask.dtype != bool):
+        raise CalibrationInputError(
+            f"anchor points: give one True/False per standard ({n} standards); found {mask.size} value(s)."
+        )
+    return mask.astype(bool)
+
+
+_SHORT_NAMES = {
+    Model.LINEAR: "a straight line", Model.QUADRATIC: "a quadratic", Model.PROPORTIONAL: "a line through the origin",
+    Model.AVERAGE_RF: "an average response factor", Model.POWER: "a power curve",
+}
+
+
+def _left_out_words(count: int) -> Callable[[Model], str]:
+    """The note each candidate carries about the ``count`` anchor points, by model."""
+
+    def words(model: Model) -> str:
+        if model in (Model.FOUR_PL, Model.FIVE_PL):
+            return f"{count} anchor point(s) fitted as anchor points (they fix the asymptotes) and not judged for acceptance"
+        return (f"{count} anchor point(s) left out of this fit: they lie beyond the calibrated range, where "
+                f"{_SHORT_NAMES[model]} has no asymptote for them to fix")
+
+    return words
+
+
+def _anchor_reason(at: np.ndarray) -> str:
+    levels = ", ".join(f"{v:g}" for v in np.unique(at))
+    return (
+        f"{at.size} anchor point(s) (concentration {levels}) fix the logistic curves' asymptotes and are fitted "
+        "only by them; every other candidate is fitted without them, no candidate judges them for acceptance, "
+        "and AICc compares only candidates fitted to the same standards"
     )
 
 

@@ -99,6 +99,12 @@ class FittedCurve:
         return self.model.n_parameters
 
     @property
+    def through_origin(self) -> bool:
+        """Forced through the origin (y = b1·x, b0 fixed at 0): the proportional line and the average
+        response factor; never a 4PL, 5PL or power curve (see :attr:`Model.through_origin`)."""
+        return self.model.through_origin
+
+    @property
     def coefficient_names(self) -> tuple[str, ...]:
         """Names of ``coefficients`` for tables: b0, b1[, b2]."""
         return tuple(f"b{p}" for p in range(self.coefficients.size))
@@ -186,7 +192,7 @@ class FittedCurve:
         names = ("", "·x", "·x²")
         terms = []
         for power, b in enumerate(self.coefficients):
-            if not self.model.has_intercept and power == 0:
+            if self.model.through_origin and power == 0:
                 continue
             text = f"{abs(b):.{digits}g}{names[power]}"
             terms.append((b < 0, text))

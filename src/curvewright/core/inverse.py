@@ -363,7 +363,7 @@ def solve_z(
     if model is not Model.QUADRATIC and a[-1] == 0.0:
         # a line of slope exactly zero reaches no response but its own level, and that one everywhere
         return np.full(y0.size, np.nan), ~false, false
-    if not model.has_intercept:
+    if model.through_origin:
         return y0 / a[0], false, false
     if model is Model.LINEAR:
         return (y0 - a[0]) / a[1], false, false
@@ -398,7 +398,7 @@ def solve_z(
 def _slope_z(cal: "FittedCurve", z: FloatArray) -> FloatArray | np.float64:
     """df/dz at z (one number for a straight line)."""
     a = cal.z_coefficients
-    if not cal.model.has_intercept:
+    if cal.model.through_origin:
         return a[0]
     if cal.model is Model.LINEAR:
         return a[1]
@@ -461,7 +461,7 @@ def _fieller_z(cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float) -> t
     cov = cal.z_covariance
     s2_new = _new_response_variance(cal, np.zeros_like(y0), y0, m)
     t2 = t * t
-    if not cal.model.has_intercept:
+    if cal.model.through_origin:
         (b,) = cal.z_coefficients
         d = y0
         a_quad = b * b - t2 * cov[0, 0]

@@ -36,7 +36,17 @@ class Model(str, Enum):
 
     @property
     def has_intercept(self) -> bool:
+        """A polynomial with a free constant term b0 (the straight line, the quadratic). False for the lines
+        through the origin and for the curves that are not polynomials, whose parameters include no
+        intercept: to ask whether a curve is forced through the origin, use :attr:`through_origin`."""
         return self in (Model.LINEAR, Model.QUADRATIC)
+
+    @property
+    def through_origin(self) -> bool:
+        """The curve is y = b1·x, forced through the origin (the proportional line, the average response
+        factor): b0 is fixed at 0 and not estimated. False for the 4PL, 5PL and power curves, which have
+        no intercept term but are not lines through the origin."""
+        return self in (Model.PROPORTIONAL, Model.AVERAGE_RF)
 
     @property
     def powers(self) -> tuple[int, ...]:

@@ -9,7 +9,10 @@ Fit
     standards (:mod:`.curve_families`); every start is tried and the converged, plausible fit with the
     smallest weighted sum of squares is kept. A fit that converges from no start raises
     :class:`~curvewright.core.errors.ConvergenceError` with the reason; a converged fit says how it
-    stopped in ``convergence`` and in its notes.
+    stopped in ``convergence`` and in its notes. The weightings are those of the polynomials (see
+    :mod:`.weighting`); a variance function ("power", "two-component") is estimated from all standards
+    as for them (:mod:`.variance_function`), each cycle's curve fitted by weighted nonlinear least
+    squares, and the notes say so.
 
 Standard errors and bands
     cov(β̂) = s²·(JᵀWJ)⁻¹ (linearised); the variance of the fitted curve at x is
@@ -51,7 +54,7 @@ from ._arrays import FloatArray, frozen
 from .calibration import Calibration
 from .curve_families import FAMILIES, CurveFamily
 from .distributions import f_upper_tail, t_quantile
-from .errors import CalibrationInputError, ConvergenceError, LimitsError, WeightingError
+from .errors import CalibrationInputError, ConvergenceError, LimitsError
 from .influence import measure_influence
 from .inverse import RANGE_SLACK, QuantFlag, Quantitation, _refuse_unrepresentable, checked_request
 from .lack_of_fit import lack_of_fit_test
@@ -61,6 +64,7 @@ from .limits import DetectionLimits
 from .models import Basis, Model
 from .nonlinear import NonlinearFit, fit_nonlinear
 from .regression_test import RegressionTest
+from .variance_function import CYCLES, MeanFit
 from .weighting import Weighting, make_weights
 
 LOGISTIC_MODELS = (Model.FOUR_PL, Model.FIVE_PL)
@@ -187,15 +191,12 @@ def fit_nonlinear_curve(
             raise CalibrationInputError(
                 f"concentration: standard {i + 1} is at {x[i]:g}; a logistic curve needs concentrations of zero or more."
             )
-    if weighting.variance_function is not None:
-        raise WeightingError(
-            f"weighting {weighting.value}: a variance function is estimated for straight lines and quadratics "
-            f"only so far; for a {model.description} choose 1/y^2 (a constant relative SD), 1/y, 1/x^2, 1/x, "
-            "none, or 1/s^2 with known SDs."
-        )
-    weights = make_weights(weighting, x, y, levels, response_sd, model)
+    fitter = _MeanFitter(family) if weighting.variance_function is not None else None
+    weights = make_weights(weighting, x, y, levels, response_sd, model, fitter)
     w = weights.weights
     fit = _best_fit(family, x, y, w)
+    if fitter is not None:
+        fitter.start = fit.parameters.copy()
     p = model.n_parameters
     df = x.size - p
     root_w = np.sqrt(w)
@@ -226,6 +227,12 @@ def fit_nonlinear_curve(
     if anchors.any():
         notes = notes + (
             f"{int(anchors.sum())} anchor point(s) fitted but left out of acceptance and of the calibrated range",
+        )
+    if weights.variance_fit is not None:
+        notes = notes + (
+            f"weights from a variance function: {weights.variance_fit.function.words}; the curve fitted by "
+            f"weighted nonlinear least squares with weights 1/g(μ̂)² from the fitted responses μ̂ "
+            f"({CYCLES} cycles of fit and estimate, then the final fit)",
         )
     notes = notes + influence.notes
     adjust = (x.size - 1) / df
@@ -259,6 +266,43 @@ def fit_nonlinear_curve(
         evaluations=fit.evaluations,
         anchor_points=frozen(anchors) if anchors.any() else None,
     )
+
+
+class _MeanFitter:
+    """The weighted nonlinear fit of ``family`` as the variance-function cycles call it (a
+    :data:`~.variance_function.MeanFitter`).
+
+    The cycles fit from every start derived from the standards, as the calibration does. Once the
+    calibration is fitted, ``start`` holds its parameters, and the jackknife's fits with one standard
+    left out (:meth:`~.variance_function.VarianceFunctionFit.shape_variance`) start from them, falling
+    back on every start only when that fit fails: the same minimum, found in a few evaluations.
+    """
+
+    def __init__(self, family: CurveFamily) -> None:
+        self.family = family
+        self.start: FloatArray | None = None
+
+    def __call__(self, x: FloatArray, y: FloatArray, w: FloatArray) -> MeanFit:
+        family = self.family
+        fit = None
+        if self.start is not None:
+            fit = fit_nonlinear(family.function, family.jacobian, x, y, self.start, w)
+            if not fit.converged or _implausible(family, fit):
+                fit = None
+        if fit is None:
+            fit = _best_fit(family, x, y, w)
+        return MeanFit(fit.fitted, fit.leverage, fit.weighted_residuals, _FittedFamily(family, fit.parameters))
+
+
+@dataclass(frozen=True, eq=False)
+class _FittedFamily:
+    """μ̂(x) = f(x; β̂) of one fit of a curve family."""
+
+    family: CurveFamily
+    parameters: FloatArray
+
+    def __call__(self, concentration: FloatArray) -> FloatArray:
+        return self.family.function(np.asarray(concentration, dtype=np.float64), self.parameters)
 
 
 def _anchor_mask(model: Model, x: FloatArray, anchor_points: object | None) -> np.ndarray:

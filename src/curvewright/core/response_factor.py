@@ -24,6 +24,13 @@ Inverse prediction
     general band inversion of :mod:`.inverse`, which below the lowest standard holds the variance of
     the lowest standard rather than let it shrink toward zero).
 
+    A mean response at or below zero lies below the lowest standard x_low, where that rule holds:
+    the band is (ȳ₀ − RF̄·x)² ≤ t²·(s_RF²·x_low²/m + s_RF²·x²/n). At ȳ₀ = 0 the estimate is 0 and the
+    interval ±t·s_RF·x_low/√(m·(RF̄² − t²·s_RF²/n)), what the scatter of a response at the lowest
+    standard allows (the formula above would give [0, 0], a certainty no measurement has); a
+    negative ȳ₀ gives a negative estimate and interval. As for every calibration the ends are not cut
+    at zero, and such a result is flagged below the range and below the LOD.
+
 Relative response factor
     With an internal standard the response is the ratio A/A_IS of the analyte's response to the
     internal standard's, and RF becomes the relative response factor per unit concentration of

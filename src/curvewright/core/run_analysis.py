@@ -192,7 +192,8 @@ class RunResult:
                 out[a.analyte.name] = compare(a.calibration.concentration, a.calibration.response,
                                               include_proportional=True, profile=self.profile,
                                               level_tolerance=self.run.settings.level_tolerance,
-                                              level_labels=[s.level for s in a.fitted_standards])
+                                              level_labels=[s.level for s in a.fitted_standards],
+                                              anchor_points=[s.anchor for s in a.fitted_standards])
             except CurvewrightError as exc:
                 out[a.analyte.name] = str(exc)
         return out

@@ -3,15 +3,21 @@
 For one analyte of an analysed run (:func:`~.run_analysis.analyse_run`):
 
 =====================  ======================================================================
-``slope``              b1 of the fitted curve, in response units per concentration unit
-``intercept``          b0, in response units (None for the proportional model, which has none)
+``slope``              b1 of the fitted curve, in response units per concentration unit (the
+                       mean RF for the average response factor)
+``intercept``          b0, in response units (None for a curve through the origin, which has none)
 ``curvature``          b2 of a quadratic, in response units per concentration unit squared
                        (None for the straight lines)
 ``residual_sd``        the residual SD s of the fit, in response units (weights sum to n)
 ``r``                  the correlation coefficient, sign(b1)·√R² (R² as the fit reports it:
-                       weighted when the fit is; about the origin for the proportional model)
+                       weighted when the fit is; about the mean response for every model)
 ``rf_rsd_percent``     the %RSD of the response factors of an average-response-factor model;
-                       None: no such model exists yet, and it is never made up from another fit
+                       None for any other model: it is never made up from another fit
+
+The 4PL, 5PL and power curves have no slope, intercept or curvature coefficient (their parameters
+are asymptotes, an inflection point, a slope factor and exponents), so those, and r, are None for
+them rather than a parameter of another meaning under the same name; their residual SD, LLOQ,
+internal-standard response and recoveries are tracked.
 ``lloq``               the lowest non-zero standard in the fit (:mod:`.reporting`), in the
                        concentration unit
 ``is_response``        the mean internal-standard response of the standards in the fit, in
@@ -155,20 +161,22 @@ def _of_analyte(a: AnalyteResult, profile_id: str) -> TrackedValues:
                 response_unit=analyte.response_unit, profile_id=profile_id, accepted=a.accepted, error=a.error)
     if cal is None:
         return TrackedValues(model=analyte.model, weighting=analyte.weighting, **base)
-    b = [float(v) for v in cal.coefficients]
-    slope = b[1]
-    r = math.copysign(math.sqrt(cal.r_squared), slope) if cal.r_squared >= 0 and slope != 0 else None
+    polynomial = cal.model.is_polynomial  # b0, b1[, b2]; a curve's named parameters are none of these
+    b = [float(v) for v in cal.coefficients] if polynomial else []
+    slope = b[1] if polynomial else None
+    r = (math.copysign(math.sqrt(cal.r_squared), slope) if slope is not None and cal.r_squared >= 0 and slope != 0
+         else None)
     is_values = [float(s.internal_standard_response.value) for s in a.fitted_standards  # type: ignore[arg-type]
                  if analyte.uses_internal_standard and s.internal_standard_response is not None
                  and s.internal_standard_response.is_number]
     return TrackedValues(
         model=cal.model.value, weighting=cal.weighting.value, **base,
         slope=slope,
-        intercept=b[0] if cal.model.has_intercept else None,
+        intercept=b[0] if polynomial and not cal.through_origin else None,
         curvature=b[2] if len(b) > 2 else None,
         residual_sd=float(cal.residual_sd),
         r=r,
-        rf_rsd_percent=None,
+        rf_rsd_percent=cal.rf_rsd_percent,
         lloq=a.reporting.lloq if a.reporting is not None else None,
         is_response=float(np.mean(is_values)) if is_values else None,
         is_response_count=len(is_values) if is_values else None,

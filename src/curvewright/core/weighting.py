@@ -38,7 +38,7 @@ from ._arrays import FloatArray, as_finite_vector, frozen
 from .errors import WeightingError
 from .levels import Levels
 from .models import Model
-from .variance_function import VarianceFunctionFit, estimate_variance_function
+from .variance_function import MeanFitter, VarianceFunctionFit, estimate_variance_function
 from .weighting_kinds import Weighting
 
 MIN_REPLICATES_FOR_S2 = 10
@@ -113,13 +113,15 @@ def make_weights(
     levels: Levels,
     response_sd: FloatArray | None = None,
     model: Model = Model.LINEAR,
+    mean_fitter: MeanFitter | None = None,
 ) -> WeightModel:
     """Compute the standards' weights for ``weighting``, refusing data it cannot apply to.
 
     ``response_sd`` (one SD per standard) is checked whatever the weighting, and refused unless the
     weighting is 1/s², which is the only one that uses it: SDs given and silently ignored would
     leave the analyst believing they had been used. ``model`` is the calibration function, which
-    the variance-function weightings fit along the way.
+    the variance-function weightings fit along the way (by weighted linear least squares, or by
+    ``mean_fitter`` when given: the nonlinear fit of a curve that is not a polynomial).
     """
     n = concentration.size
     level_sd = np.full(levels.n_levels, np.nan)
@@ -162,7 +164,8 @@ def make_weights(
             values, level_sd = _standard_deviations(concentration, response, levels, given_sd)
             power = 2
         case Weighting.POWER | Weighting.TWO_COMPONENT:
-            variance_fit = estimate_variance_function(weighting.variance_function, model, concentration, response)  # type: ignore[arg-type]
+            variance_fit = estimate_variance_function(weighting.variance_function, model, concentration, response,  # type: ignore[arg-type]
+                                                      mean_fitter)
             values, power = variance_fit.fitted_mean, 0
     if variance_fit is not None:
         reference = variance_fit.floor

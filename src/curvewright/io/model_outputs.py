@@ -68,7 +68,7 @@ def curve_words(cal: FittedCurve, uses_internal_standard: bool) -> str:
     else:
         if cal.model.is_polynomial:  # b0 … b2; a line through the origin has no b0 to show
             terms = [f"b{p} = {b:.6g} (SE {se:.3g})" for p, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors))
-                     if cal.model.has_intercept or p > 0]
+                     if not cal.through_origin or p > 0]
         else:  # the curve's own named parameters
             terms = [f"{name} = {b:.6g} (SE {se:.3g})"
                      for name, b, se in zip(cal.coefficient_names, cal.coefficients, cal.standard_errors)]

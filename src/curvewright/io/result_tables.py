@@ -134,10 +134,44 @@ class Table:
                      tuple(tuple(r[index[n]] for n in names) for r in rows), self.rounding)
 
 
-def interval_words(run_result: RunResult) -> str:
+def interval_words(run_result: RunResult, analyte: AnalyteResult | None = None) -> str:
+    """How the run's intervals are computed, in words: for ``analyte``'s calibration, or for every analyte
+    of the run (one method, or each analyte's when they differ)."""
     s = run_result.run.settings
-    method = "prediction band inverted (Fieller for a straight line)" if s.interval == "band" else "symmetric x̂ ± t·s"
-    return f"{s.confidence_level:.0%} {method}"
+    level = f"{s.confidence_level:.0%}"
+    if s.interval != "band":
+        return f"{level} symmetric x̂ ± t·s_x̂ (s_x̂ by the delta method)"
+    if analyte is not None:
+        cal = analyte.calibration
+        return f"{level} {band_method_words(cal) if cal is not None else 'prediction band inverted'}"
+    methods = {a.analyte.name: band_method_words(a.calibration) for a in run_result.analytes if a.calibration is not None}
+    distinct = set(methods.values())
+    if len(distinct) <= 1:
+        return f"{level} {distinct.pop() if distinct else 'prediction band inverted'}"
+    return f"{level}; " + "; ".join(f"{name}: {words}" for name, words in methods.items())
+
+
+def band_method_words(cal: Calibration) -> str:
+    """What inverting the prediction band amounts to for ``cal`` (see :mod:`curvewright.core.inverse`,
+    :mod:`curvewright.core.nonlinear_calibration` and :mod:`curvewright.core.response_factor`)."""
+    from ..core.weighting_kinds import Weighting
+
+    weighting = cal.weighting
+    estimated = (
+        "; Student's t on Satterthwaite's degrees of freedom for the estimated variance function"
+        if weighting.variance_function is not None else ""
+    )
+    if cal.model is Model.AVERAGE_RF:
+        return ("ȳ₀/(RF̄ ± t·s_RF·√(1/m + 1/n)), the prediction interval of the mean of m response factors "
+                "(below the lowest standard, the prediction band inverted with the lowest standard's variance)")
+    if not cal.model.is_polynomial:
+        return ("prediction band inverted numerically over concentrations ≥ 0, the curve's variance by the delta "
+                f"method (the lower end 0 where the band holds down to zero){estimated}")
+    if weighting is Weighting.INVERSE_S2 or weighting.variance_function is not None:
+        return f"prediction band inverted numerically{estimated}"
+    if cal.model is Model.QUADRATIC or weighting.uses_concentration:
+        return "prediction band inverted, its ends the roots of a polynomial in x"
+    return "prediction band inverted: Fieller's interval for a straight line"
 
 
 def samples_table(result: RunResult) -> Table:
@@ -154,9 +188,9 @@ def samples_table(result: RunResult) -> Table:
         Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="plain"),
         Column("Recovery (%)", kind="number", display="dec:1"), Column("QC or check"),
     )
-    words = interval_words(result)
     rows = []
     for a in result.analytes:
+        words = interval_words(result, a)
         for s in a.samples:
             rows.append((
                 s.sample_id, s.kind.words, s.analyte, s.run_order, len(s.replicate_responses),
@@ -221,7 +255,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     names = cal.coefficient_names
     for power, (name, words, b, se) in enumerate(zip(names, cal.coefficient_descriptions, cal.coefficients,
                                                     cal.standard_errors)):
-        fixed = cal.model in (Model.PROPORTIONAL, Model.AVERAGE_RF) and power == 0  # through the origin
+        fixed = cal.through_origin and power == 0  # b0 fixed at 0
         rows.append((f"{name} ({words})", 0.0 if fixed else float(b), None if fixed else float(se)))
     for i in range(cal.covariance.shape[0]):
         for j in range(i + 1, cal.covariance.shape[0]):
@@ -255,7 +289,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     for note in cal.notes:
         rows.append(("Note", note, None))
     rows.append(("Reported values rounded to", result.run.settings.rounding.description, None))
-    rows.append(("Interval", interval_words(result), None))
+    rows.append(("Interval", interval_words(result, a), None))
     if a.limits is not None:
         rows += [("LOD", a.limits.lod, None), ("LOQ", a.limits.loq if a.limits.loq is not None else "not defined by this method", None),
                  ("LOD/LOQ method", a.limits.description, None)]
@@ -556,7 +590,7 @@ def _mandel(cal: Calibration) -> tuple[Any, Any]:
 
     if not cal.model.is_polynomial:
         return f"not applicable to a {cal.model.description} (it compares a straight line with a quadratic)", None
-    if not cal.model.has_intercept:
+    if cal.through_origin:
         return "not applicable to a line through the origin", None
     try:
         lin = cal if cal.model is Model.LINEAR else fit(cal.concentration, cal.response, "linear", cal.weighting.value)

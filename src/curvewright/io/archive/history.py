@@ -115,7 +115,8 @@ def history(archive: Archive, analyte: str, quantity: str = "slope", *, method: 
                                      mine.accepted))
             today_index = len(points) - 1
     if quantity == "rf_rsd_percent" and not points:
-        problem: str | None = "no run has a response-factor %RSD: average response-factor models do not exist yet"
+        problem: str | None = (f"no filed run of {analyte} ({method}) has a response-factor %RSD: it is tracked "
+                               "only for runs calibrated by the average response factor")
         result = None
     elif not points:
         problem, result = f"no filed run of {analyte} ({method}) has a {words}", None

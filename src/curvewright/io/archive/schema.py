@@ -8,8 +8,8 @@ Version 1 (the current one):
 * ``run_analytes`` — per run and analyte: the method key (profile | model | weighting), a
   ``method`` column holding the validated method the run followed (its id and version; empty for runs
   without one), the verdict, and the tracked
-  quantities of :mod:`curvewright.core.tracked` (``rf_rsd_percent`` stays empty until average
-  response-factor models exist);
+  quantities of :mod:`curvewright.core.tracked` (``rf_rsd_percent`` is filled only for
+  calibrations by the average response factor);
 * ``recoveries`` — per run and analyte, the mean recovery of each QC level and calibration check.
 
 Filed rows are never changed or removed: triggers refuse UPDATE and DELETE (and TRUNCATE on
