@@ -155,3 +155,19 @@ def test_the_demo_immunoassay_s_evidence_leaves_its_anchor_points_unjudged() -> 
     line = comparison.candidate("linear", "none")
     assert line.calibration.n_standards == a.calibration.n_standards - 4
     assert 0.8 not in line.calibration.concentration and 6000.0 not in line.calibration.concentration
+
+
+def test_anchor_points_on_a_general_profile_bring_the_logistic_curves_and_one_of_them_is_recommended() -> None:
+    # Anchor points are taken by a logistic curve alone (a run holding them cannot be fitted by any other),
+    # so the recommendation must be one the run can use, whatever the profile.
+    x, y, anchors = with_anchor_points()
+    result = cw.compare(x, y, profile="general", weightings=("none", "1/y^2"), anchor_points=anchors)
+    assert {c.model.value for c in result.candidates} >= {"4pl", "5pl", "linear", "quadratic"}
+    assert result.recommended.model.value in ("4pl", "5pl")
+    assert any(r.startswith("anchor points are marked, and only a logistic curve takes them: a logistic curve is "
+                            "recommended") for r in result.reasons)
+    # the run can be fitted as recommended, anchor points and all
+    cw.fit(x, y, result.recommended.model.value, result.recommended.weighting.value, anchor_points=anchors)
+    # without anchor points the general profile keeps the logistic curves out unless asked
+    plain = cw.compare(x[~anchors], y[~anchors], profile="general", weightings=("none", "1/y^2"))
+    assert not any(c.model.value in ("4pl", "5pl") for c in plain.candidates)

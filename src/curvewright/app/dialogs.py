@@ -322,7 +322,7 @@ class ImportDialog(QDialog):
 
 
 INTERVAL_LABELS = (
-    ("prediction band inverted (Fieller's interval for a straight line)", "band"),
+    ("prediction band inverted (Fieller's interval for a straight line; the band's ends for every other curve)", "band"),
     ("symmetric: estimate ± t·standard error", "symmetric"),
 )
 LIMITS_LABELS = (

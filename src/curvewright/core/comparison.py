@@ -52,8 +52,9 @@ that of the other standards. AICc then compares only candidates fitted to the sa
 The curves that are not polynomials (see :mod:`.nonlinear_calibration`) are considered where they apply,
 under the fixed weightings (a variance function may be chosen for them, but the comparison does not try
 one: each takes several nonlinear fits and a jackknife of them):
-4. Logistic curves (4PL, 5PL): on a ligand-binding profile, and whenever asked for. On a
-   ligand-binding profile the recommendation is a logistic curve: weighted 1/y² when the variance
+4. Logistic curves (4PL, 5PL): on a ligand-binding profile, when anchor points are marked, and
+   whenever asked for. On a ligand-binding profile, and with anchor points (which no other curve
+   takes), the recommendation is a logistic curve: weighted 1/y² when the variance
    evidence shows the scatter growing with the response (a constant CV, common practice for
    immunoassay responses), else unweighted; the 4PL unless the 5PL's asymmetry lowers the weighted
    sum of squares significantly (extra-sum-of-squares F-test on (1, n − 5) df at 5 %; same weights
@@ -231,12 +232,15 @@ def compare(
         model_list.append(Model.PROPORTIONAL)
     weighting_list = [Weighting.parse(w) for w in weightings]
     rules = profile if isinstance(profile, AcceptanceProfile) else load_profile(profile)
-    ligand_binding = is_ligand_binding(rules)
     x = as_finite_vector(concentration, "concentration", CalibrationInputError)
     anchors = _anchor_mask(anchor_points, x.size)
+    # anchor points are taken by a logistic curve alone: with them the run can be fitted by no other
+    logistic_because = ("ligand-binding profile" if is_ligand_binding(rules) else
+                        "anchor points are marked, and only a logistic curve takes them" if anchors.any() else None)
     decades = _decades(x[~anchors])
     added = set()
-    for extra, wanted in ((Model.FOUR_PL, ligand_binding), (Model.FIVE_PL, ligand_binding),
+    logistic_wanted = logistic_because is not None
+    for extra, wanted in ((Model.FOUR_PL, logistic_wanted), (Model.FIVE_PL, logistic_wanted),
                           (Model.POWER, decades is not None and decades >= POWER_MIN_DECADES)):
         if wanted and extra not in model_list:
             model_list.append(extra)
@@ -323,7 +327,7 @@ def compare(
     else:
         recommended, reasons = _recommend(candidates, evidence, mandel_by_weighting)
         recommended, reasons = _consider_curves(
-            candidates, recommended, list(reasons), evidence, ligand_binding, decades, asked | added
+            candidates, recommended, list(reasons), evidence, logistic_because, decades, asked | added
         )
         if rules.curve is not None:
             recommended, reasons = _under_curve_rules(candidates, skipped, recommended, reasons, rules)
@@ -600,15 +604,17 @@ def _decades(concentration: object) -> float | None:
 
 def _consider_curves(
     candidates: tuple[Candidate, ...], chosen: Candidate, reasons: list[str], evidence: VarianceEvidence,
-    ligand_binding: bool, decades: float | None, considered: set[Model],
+    logistic_because: str | None, decades: float | None, considered: set[Model],
 ) -> tuple[Candidate, list[str]]:
-    """Steps 4 and 5 of the module docstring: the logistic and power curves, with the reasons."""
+    """Steps 4 and 5 of the module docstring: the logistic and power curves, with the reasons.
+    ``logistic_because`` says why a logistic curve must be recommended (a ligand-binding profile,
+    or anchor points), None when a polynomial that fits may be kept."""
     table = {(c.model, c.weighting): c for c in candidates}
     logistic = [c for c in candidates if c.model in (Model.FOUR_PL, Model.FIVE_PL)]
-    if ligand_binding:
+    if logistic_because is not None:
         if not logistic:
             return chosen, reasons + [
-                "on a ligand-binding profile a logistic curve is expected, but neither the 4PL nor the 5PL "
+                f"{logistic_because}: a logistic curve is expected, but neither the 4PL nor the 5PL "
                 "could be fitted (see the skipped candidates); the polynomial choice is shown"
             ]
         weighting = Weighting.INVERSE_Y2 if evidence.heteroscedastic else Weighting.NONE
@@ -620,10 +626,10 @@ def _consider_curves(
         if four is None and five is None:
             pick = min(logistic, key=lambda c: c.sum_abs_relative_error)
             return pick, reasons[:1] + [
-                f"ligand-binding profile: a logistic curve is recommended; under {weighting.value} none could be "
+                f"{logistic_because}: a logistic curve is recommended; under {weighting.value} none could be "
                 f"fitted, so {pick.label} (the smallest Σ|%RE| among the logistic candidates)"
             ]
-        words = reasons[:1] + [f"ligand-binding profile: a logistic curve is recommended; {why}"]
+        words = reasons[:1] + [f"{logistic_because}: a logistic curve is recommended; {why}"]
         if four is not None and five is not None:
             test = _extra_parameter_test(four.calibration, five.calibration)
             if test is not None and test[1] < FIVE_PL_ALPHA:

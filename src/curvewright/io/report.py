@@ -314,7 +314,7 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     range_words = "" if a.reporting is None else (
         f" Calibrated range {a.reporting.lloq:g}–{a.reporting.uloq:g} (LLOQ–ULOQ); {a.reporting.note}.")
     blocks.append(Paragraph(f"Samples – {name}: concentrations in {unit or '(unit not set)'} after dilution; "
-                            f"interval: {interval_words(result)}; reported values rounded to "
+                            f"interval: {interval_words(result, a)}; reported values rounded to "
                             f"{rule.description}.{range_words} {INTERVAL_SCOPE_NOTE}", "small"))
     blocks.append(_samples_printed(result, a))
     blocks += _additions_blocks(result, a)
