@@ -262,3 +262,16 @@ def test_the_person_given_on_the_command_line_is_recorded_beside_the_login(tmp_p
     data = json.loads(run_cli("quantify", str(source), "--json").stdout)
     assert data["audit_chain_verified"] and data["data_match_audit_trail"]
     assert data["chain_check"].startswith("verified") and "does not detect someone who edits" in data["chain_check"]
+
+
+def test_an_analyte_measured_by_standard_additions_only_is_reported_and_does_not_fail_the_run(tmp_path) -> None:
+    from tests.core.test_addition_series import _additions_only_run
+
+    path = tmp_path / "river.json"
+    save_run(_additions_only_run(with_flat=False), path)
+    result = run_cli("quantify", str(path))
+    assert result.returncode == 0, result.stdout + result.stderr
+    assert "verdict: ACCEPTED" in result.stdout
+    assert ("cadmium (µg/L)\n  no calibration standards: measured by standard additions only, so the standards' "
+            "acceptance does not apply; 1 of 1 series extrapolated") in result.stdout
+    assert "not fitted" not in result.stdout.split("cadmium (µg/L)")[1]

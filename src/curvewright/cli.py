@@ -742,7 +742,7 @@ def summary_text(  # type: ignore[no-untyped-def]
         lines.append(a.analyte.name + (f" ({unit})" if unit else ""))
         lines += [f"  note: {w}" for w in (analyte_warnings or {}).get(a.analyte.name, [])]
         if a.calibration is None:
-            lines.append(f"  not fitted: {a.error}")
+            lines.append(f"  {a.not_fitted_words}")
             lines += additions_lines(a, run.settings.confidence_level)
             continue
         cal = a.calibration

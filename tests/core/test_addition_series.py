@@ -99,3 +99,45 @@ def test_additions_of_an_analyte_the_run_lacks_are_named() -> None:
     data.pop("content", None)
     with pytest.raises(DocumentError, match=r"additions\[0\]\.analyte: 'cadmium' is not an analyte of this run"):
         doc.loads_run(json.dumps(data))
+
+
+def _additions_only_run(with_flat: bool) -> Run:
+    """The invented run with a second analyte, cadmium, that has no calibration standards and is measured
+    only by standard additions on River 4 (and on Flat, whose responses do not change, when asked)."""
+    run = invented_run()
+    cadmium = Analyte("cadmium", "µg/L", "counts", ())
+    river = run.samples[0]
+    extra = tuple(replace(a, analyte="cadmium", response=Reading.of(a.response.value / 4))
+                  for a in river.additions if a.response.value is not None)
+    samples = (replace(river, additions=river.additions + extra), *run.samples[1:])
+    if with_flat:
+        flat = samples[2]
+        samples = (*samples[:2], replace(flat, additions=flat.additions + tuple(
+            replace(a, analyte="cadmium") for a in flat.additions if a.analyte == "lead")))
+    return replace(run, analytes=(*run.analytes, cadmium), samples=samples)
+
+
+def test_an_analyte_measured_by_standard_additions_only_is_judged_by_its_series_not_failed_for_lacking_standards() -> None:
+    result = analyse_run(_additions_only_run(with_flat=False))
+    lead, cadmium = result.analytes
+    assert cadmium.calibration is None and cadmium.by_additions_only and not lead.by_additions_only
+    assert [s.sample_id for s in cadmium.additions] == ["River 4"] and cadmium.additions[0].result is not None
+    assert cadmium.accepted
+    assert ("cadmium: standard additions: no calibration standards: measured by standard additions only, so the "
+            "standards' acceptance does not apply; 1 of 1 series extrapolated") in result.reasons
+    # the run's verdict is the lead calibration's alone
+    assert result.accepted == lead.accepted
+
+
+def test_a_series_that_cannot_be_extrapolated_fails_an_analyte_measured_by_additions_only() -> None:
+    result = analyse_run(_additions_only_run(with_flat=True))
+    cadmium = result.analytes[1]
+    assert not cadmium.accepted and not result.accepted
+    assert cadmium.additions_words.endswith("1 of 2 series extrapolated; FAIL: not extrapolated: Flat")
+
+
+def test_an_analyte_without_standards_or_additions_still_fails() -> None:
+    run = invented_run()
+    run = replace(run, analytes=(*run.analytes, Analyte("cadmium", "µg/L", "counts", ())))
+    cadmium = analyse_run(run).analytes[1]
+    assert not cadmium.by_additions_only and not cadmium.accepted and cadmium.error

@@ -109,7 +109,7 @@ def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
 
     def describe(a) -> list[str]:  # type: ignore[no-untyped-def]
         if isinstance(a, str) or a.calibration is None:
-            return [a if isinstance(a, str) else f"not fitted: {a.error}"] + [""] * 6
+            return [a if isinstance(a, str) else a.not_fitted_words] + [""] * 6
         cal = a.calibration
         low, high = cal.calibrated_range
         judged = (f"{int(a.verdict.passing.sum())} of {int(a.verdict.judged.sum())} judged"

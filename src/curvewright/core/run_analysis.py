@@ -131,7 +131,29 @@ class AnalyteResult:
     """The samples measured by standard additions (:mod:`.addition_series`), whatever the calibration."""
 
     @property
+    def by_additions_only(self) -> bool:
+        """No calibration standards at all, and samples measured by standard additions: each such sample
+        is its own calibration, so the standards' acceptance does not apply to the analyte."""
+        return self.calibration is None and not self.analyte.standards and bool(self.additions)
+
+    @property
+    def additions_words(self) -> str:
+        """For an analyte measured by standard additions only: what was found, in words."""
+        done = sum(1 for s in self.additions if s.result is not None)
+        failed = [s.sample_id for s in self.additions if s.result is None]
+        words = (f"no calibration standards: measured by standard additions only, so the standards' acceptance "
+                 f"does not apply; {done} of {len(self.additions)} series extrapolated")
+        return words + (f"; FAIL: not extrapolated: {', '.join(failed)}" if failed else "")
+
+    @property
+    def not_fitted_words(self) -> str:
+        """Why there is no calibration curve, in words (for an analyte whose ``calibration`` is None)."""
+        return self.additions_words if self.by_additions_only else f"not fitted: {self.error}"
+
+    @property
     def accepted(self) -> bool:
+        if self.by_additions_only:
+            return all(s.result is not None for s in self.additions)
         if self.verdict is None or not self.verdict.passed:
             return False
         if self.checks is not None and not self.checks.passed:
@@ -156,6 +178,9 @@ class RunResult:
         out = []
         for a in self.analytes:
             name = a.analyte.name
+            if a.by_additions_only:
+                out.append(f"{name}: standard additions: {a.additions_words}")
+                continue
             if a.error:
                 out.append(f"{name}: FAIL: {a.error}")
                 continue

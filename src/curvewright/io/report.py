@@ -233,7 +233,7 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
     for a in result.analytes:
         unit = a.analyte.concentration_unit
         if a.calibration is None:
-            rows.append((a.analyte.name, f"not fitted: {a.error}", "", "", "", "", ""))
+            rows.append((a.analyte.name, a.not_fitted_words, "", "", "", "", ""))
             continue
         rng = f"{a.reporting.lloq:g}–{a.reporting.uloq:g} {unit}".strip() if a.reporting else ""
         reportable, exceptions = result_counts(a)
@@ -275,7 +275,8 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     blocks.append(Paragraph(f"Analyte: {name}" + (f" ({unit}" + (f"; response in {a.analyte.response_unit})"
                                                                    if a.analyte.response_unit else ")") if unit else ""),
                             "heading"))
-    verdict = "not fitted" if a.calibration is None else ("ACCEPTED" if a.accepted else "NOT ACCEPTED")
+    verdict = ("ACCEPTED" if a.accepted else "NOT ACCEPTED") if a.calibration is not None or a.by_additions_only else "not fitted"
+    verdict += " (standard additions only)" if a.by_additions_only else ""
     blocks.append(Paragraph(f"Verdict for {name}: {verdict}", "subheading"))
     for r in [r for r in result.reasons if r.startswith(f"{name}: ")]:
         blocks.append(Paragraph("• " + r.split(": ", 1)[1], "small"))

@@ -249,7 +249,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         ("Chosen by", chosen_by, None),
     ]
     if cal is None:
-        rows.append(("Calibration", f"not fitted: {a.error}", None))
+        rows.append(("Calibration", a.not_fitted_words, None))
         return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value", display="plain"), Column("Standard error", display="sig:3")), tuple(rows))
     rows.append(("Equation", cal.equation(12), None))
     names = cal.coefficient_names
