@@ -417,7 +417,7 @@ class RunSession(QObject):
             self.analysis_failed.emit(answer.error or "analysis failed")
             return
         self.result = answer.result
-        self.evidence = answer.evidence or {}
+        self.evidence = answer.evidence if answer.evidence is not None else {}  # not worked out here
         self.analysis_ready.emit(answer.result)
 
     def wait_for_analysis(self, timeout_ms: int = 10000) -> bool:
