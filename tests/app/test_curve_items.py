@@ -92,3 +92,65 @@ def test_switching_the_lower_plot_keeps_its_tick_labels_unscaled(make_window, qt
         view.graphics.grab()
         axis = view.lower_plot.getAxis("left")
         assert axis.autoSIPrefixScale == 1.0 and axis.labelUnitPrefix == ""
+
+
+def test_the_view_looks_exactly_as_when_it_was_cleared_and_drawn_anew(make_window, qtbot, answer_dialogs) -> None:
+    """The kept items are drawn pixel for pixel as the view was drawn when each redraw cleared the
+    plots and drew them again with the record's drawing functions, through an edit and the view's
+    options (the reference below is that way of drawing, on a view of the same size, less the tick
+    scale that way could leave on an axis)."""
+    from curvewright.app.curve_view import CurveView, _reset
+    from curvewright.io.model_outputs import curve_words
+
+    class DrawnAnew(CurveView):
+        def redraw(self) -> None:
+            _reset(self.curve_plot, self.curve_legend)
+            _reset(self.lower_plot, self.lower_legend)
+            a = self.analyte
+            self.curve_words.setText(curve_words(a.calibration, a.analyte.uses_internal_standard))
+            log_x = self.log_axis.isChecked()
+            figures.draw_curve(self.curve_plot, a, legend=self.curve_legend, level=self.level,
+                               show_confidence=self.confidence.isChecked(),
+                               show_prediction=self.prediction.isChecked(), log_x=log_x)
+            draw = figures.draw_relative_errors if self.lower_kind.currentIndex() == 0 else figures.draw_residuals
+            draw(self.lower_plot, a, legend=self.lower_legend, log_x=log_x)
+            for plot in (self.curve_plot, self.lower_plot):  # without the leftover tick scale (test below)
+                for side in ("bottom", "left"):
+                    axis = plot.getAxis(side)
+                    if axis.autoSIPrefixScale != 1.0:
+                        axis.autoSIPrefixScale, axis.labelUnitPrefix = 1.0, ""
+                        axis._updateLabel()
+            self._fit_legends()
+            self.curve_plot.getViewBox().autoRange(padding=0.04)
+            self.lower_plot.getViewBox().autoRange(padding=0.08)
+
+    window = make_window(WEIGHTED)
+    kept = CurveView()
+    anew = DrawnAnew()
+    for view in (kept, anew):
+        qtbot.addWidget(view)
+        view.resize(900, 640)
+        view.show()
+    qtbot.waitExposed(anew)
+
+    def image(view):  # type: ignore[no-untyped-def]
+        for _ in range(4):  # the axes size themselves to the tick labels they last painted
+            qtbot.wait(5)
+            view.graphics.grab()
+        return view.graphics.grab().toImage()
+
+    def both(step) -> None:  # type: ignore[no-untyped-def]
+        for view in (kept, anew):
+            step(view)
+        assert image(kept) == image(anew)
+
+    level = window.session.run.settings.confidence_level
+    both(lambda v: v.show_analyte(window.session.result.analytes[0], level))
+    model = window.standards_model
+    type_into(qtbot, window.standards_view, model.index(4, sm.RESP), f"{float(model.standards[4].response.value) * 1.3:.5g}")
+    settle(qtbot, window)
+    both(lambda v: v.show_analyte(window.session.result.analytes[0], level))
+    both(lambda v: v.log_axis.setChecked(not v.log_axis.isChecked()))
+    both(lambda v: v.lower_kind.setCurrentIndex(1))
+    both(lambda v: v.confidence.setChecked(False))
+    both(lambda v: (v.confidence.setChecked(True), v.lower_kind.setCurrentIndex(0)))

@@ -14,7 +14,6 @@ from __future__ import annotations
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QPointF, Qt, Signal
-from PySide6.QtGui import QFont
 from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QToolTip, QVBoxLayout, QWidget
 
 from . import figures, palette
@@ -54,28 +53,12 @@ def _as_float(v):  # type: ignore[no-untyped-def]
     return np.asarray(v, dtype=float)
 
 
-def _style_axes(plot: pg.PlotItem, font_size: int = 10) -> None:
-    """The axes and grid as :func:`figures.styled_plot` styles them, without labels yet (a label is
-    placed when its axis is laid out, so it is first set with the analyte's words, as before)."""
-    font = QFont()
-    font.setPointSize(font_size)
-    for side in ("left", "bottom"):
-        axis = plot.getAxis(side)
-        axis.setPen(pg.mkPen("#333333"))
-        axis.setTextPen(pg.mkPen("#222222"))
-        axis.setTickFont(font)
-        axis.label.setFont(font)
-        axis.enableAutoSIPrefix(False)  # a scaled axis ("×0.001") is easily misread on a concentration
-    plot.showGrid(x=True, y=True, alpha=0.15)
-
-
 class _KeptPlot:
     """A plot whose items are made once, shown or hidden, and given new data; its axes' labels and
     ticks and its legend's entries are set only when they change."""
 
     def __init__(self, plot: pg.PlotItem, legend: pg.LegendItem) -> None:
         self.plot, self.legend = plot, legend
-        _style_axes(plot)
         self._entries: list[tuple[object, str]] = []
         self._ticks: dict[str, object] = {"bottom": None, "left": None}
         self._shown: set[int] = set()
@@ -88,6 +71,8 @@ class _KeptPlot:
     def begin(self) -> None:
         self._shown = set()
         self._legend_wanted: list[tuple[object, str]] = []
+        for side in ("bottom", "left"):  # as a cleared plot starts
+            self.ticks(side, None)
 
     def show(self, item, *data, name: str | None = None, legend_item=None, named: bool = False, **options):  # type: ignore[no-untyped-def]
         """Give ``item`` its data (positional for a PlotDataItem, keywords for an ErrorBarItem) and show it;
@@ -126,22 +111,26 @@ class _KeptPlot:
             self.plot.setLabel(side, text)
 
     def labels(self, x_label: str, y_label: str, log_x: bool = False, log_y: bool = False) -> None:
-        """The axis labels, set in the order the drawing functions set them (an axis places its label
-        when it is laid out, so the order decides where a label stands)."""
-        if (self.plot.getAxis("bottom").labelText, self.plot.getAxis("left").labelText) == (
-                x_label + (" (log scale)" if log_x else ""), y_label + (" (log scale)" if log_y else "")):
-            return
-        self.label("bottom", x_label)
-        self.label("left", y_label)
+        """The axis labels, set on every drawing and in the order the drawing functions set them
+        (setting a label also sizes its axis to the tick texts last drawn, so the plots keep the
+        widths they had)."""
+        figures.styled_plot(self.plot, x_label, y_label)
         if log_x:
-            self.label("bottom", x_label + " (log scale)")
+            self.plot.setLabel("bottom", x_label + " (log scale)")
         if log_y:
-            self.label("left", y_label + " (log scale)")
+            self.plot.setLabel("left", y_label + " (log scale)")
+        for side in ("bottom", "left"):
+            axis = self.plot.getAxis(side)
+            if axis.autoSIPrefixScale != 1.0 or axis.labelUnitPrefix:
+                # Turning the SI prefix off on an axis that shows its label makes pyqtgraph keep a
+                # scale worked out from the range then shown (the residuals' thousandths), which would
+                # then label 0.004 as "4" with no sign of it: the values are labelled as they are.
+                axis.autoSIPrefixScale, axis.labelUnitPrefix = 1.0, ""
+                axis._updateLabel()
 
     def ticks(self, side: str, ticks) -> None:  # type: ignore[no-untyped-def]
-        if ticks != self._ticks[side]:
-            self.plot.getAxis(side).setTicks(ticks)
-            self._ticks[side] = ticks
+        self.plot.getAxis(side).setTicks(ticks)
+        self._ticks[side] = ticks
 
 
 class _CurveItems(_KeptPlot):
