@@ -5,8 +5,8 @@ The view draws what :func:`figures.draw_curve`, :func:`figures.draw_relative_err
 :func:`figures.draw_residuals` draw for the printed record, but its plot items are made once and
 given new data on each redraw (an edit redraws the view): the curve, each band, each set of points
 and all the unknowns' interval bars are one item each, and a legend is rebuilt only when its
-entries change. ``tests/app/test_curve_items.py`` checks that the view looks exactly as the
-record's drawing functions draw it.
+entries change. ``tests/app/test_curve_items.py`` checks that the view looks pixel for pixel as
+when each redraw cleared the plots and drew them with the record's drawing functions.
 """
 
 from __future__ import annotations
@@ -54,13 +54,13 @@ def _as_float(v):  # type: ignore[no-untyped-def]
 
 
 class _KeptPlot:
-    """A plot whose items are made once, shown or hidden, and given new data; its axes' labels and
-    ticks and its legend's entries are set only when they change."""
+    """A plot whose items are made once, shown or hidden, and given new data; its legend is built
+    again only when its entries change. Its axes are styled, labelled and ticked on every drawing,
+    in the order the record's drawing functions do it (an axis sizes itself to what it last drew)."""
 
     def __init__(self, plot: pg.PlotItem, legend: pg.LegendItem) -> None:
         self.plot, self.legend = plot, legend
         self._entries: list[tuple[object, str]] = []
-        self._ticks: dict[str, object] = {"bottom": None, "left": None}
         self._shown: set[int] = set()
 
     def add(self, item, ignore_bounds: bool = False):  # type: ignore[no-untyped-def]
@@ -89,9 +89,6 @@ class _KeptPlot:
             self._legend_wanted.append((legend_item or item, name))
         return item
 
-    def name(self, item, text: str) -> None:  # type: ignore[no-untyped-def]
-        self._legend_wanted.append((item, text))
-
     def finish(self, items) -> bool:  # type: ignore[no-untyped-def]
         """Hide the items not shown in this drawing; True when the legend's entries changed (then
         :meth:`rebuild_legend`)."""
@@ -105,10 +102,6 @@ class _KeptPlot:
         for item, text in self._legend_wanted:
             self.legend.addItem(item, text)
         self._entries = self._legend_wanted
-
-    def label(self, side: str, text: str) -> None:
-        if self.plot.getAxis(side).labelText != text:
-            self.plot.setLabel(side, text)
 
     def labels(self, x_label: str, y_label: str, log_x: bool = False, log_y: bool = False) -> None:
         """The axis labels, set on every drawing and in the order the drawing functions set them
@@ -130,7 +123,6 @@ class _KeptPlot:
 
     def ticks(self, side: str, ticks) -> None:  # type: ignore[no-untyped-def]
         self.plot.getAxis(side).setTicks(ticks)
-        self._ticks[side] = ticks
 
 
 class _CurveItems(_KeptPlot):
