@@ -3,10 +3,12 @@
 For each run size (30 standards × 2,000 samples, 16 × 50, 30 × 10,000), a standard's response is
 edited repeatedly. Each edit is timed in three parts: until the analysis has answered, until the
 views have been rebuilt from it (the slots of the analysis signal), and until the window has been
-repainted (a synchronous repaint). The engine's compute time alone (analysis and model comparison
-on the same run) is given beside it. A fit that took less than a frame is done at once on the GUI
-thread; larger runs go to the analysis thread as soon as the edit is made (nothing waits for a
-debounce timer). Scrolling the results table of the 10,000-sample run is timed per repainted frame.
+repainted (a synchronous repaint). The engine's compute time alone (the analysis of the same run)
+is given beside it, and the model comparison, which is worked out with an edit only while the
+model-evidence tab is shown (the benchmark edits with the results tab shown). A fit that took less
+than a frame is done at once on the GUI thread; larger runs go to the analysis thread as soon as
+the edit is made (nothing waits for a debounce timer). Scrolling the results table of the
+10,000-sample run is timed per repainted frame.
 
 Targets: ≤ 100 ms from edit to repaint for 30 × 2,000; ≤ 30 ms for 16 × 50; ≤ 250 ms for 10,000
 samples; < 16 ms per frame scrolling the results.
@@ -75,7 +77,7 @@ def edits(label: str, run: Run, n_edits: int, target_ms: float, scroll_frames: i
     session._on_answer = on_answer  # type: ignore[method-assign]
     session._signals.done.disconnect()
     session._signals.done.connect(on_answer)
-    total, analysis, rebuild, repaint, computes = [], [], [], [], []
+    total, analysis, rebuild, repaint, computes, comparisons = [], [], [], [], [], []
     row = 6 % model.rowCount()
     base = float(run.analytes[0].standards[row].response.value)  # type: ignore[arg-type]
     for k in range(n_edits + 1):  # the first edit warms up (it may move the analysis to the GUI thread)
@@ -96,14 +98,17 @@ def edits(label: str, run: Run, n_edits: int, target_ms: float, scroll_frames: i
         rebuild.append(views_done - answered[-1])
         repaint.append(end - views_done)
         t0 = time.perf_counter()
-        analyse_with_evidence(session.run)
-        computes.append(time.perf_counter() - t0)
+        _result, evidence = analyse_with_evidence(session.run)
+        t1 = time.perf_counter()
+        evidence.load()
+        computes.append(t1 - t0)
+        comparisons.append(time.perf_counter() - t1)
     med = statistics.median
     where = "GUI thread" if session.last_analysis_seconds < 1 / 60 else "analysis thread"
     rows = [
         (label, f"{med(total) * 1e3:.1f} ms", f"{min(total) * 1e3:.1f}–{max(total) * 1e3:.1f}",
          f"{med(analysis) * 1e3:.1f} ms ({where})", f"{med(rebuild) * 1e3:.1f} ms", f"{med(repaint) * 1e3:.1f} ms",
-         f"{med(computes) * 1e3:.1f} ms", f"{med(total) / med(computes):.2f}×",
+         f"{med(computes) * 1e3:.1f} ms", f"{med(comparisons) * 1e3:.1f} ms", f"{med(total) / med(computes):.2f}×",
          f"≤ {target_ms:g} ms: {'met' if med(total) * 1e3 <= target_ms else 'NOT met'}"),
     ]
     scroll_rows = []
@@ -141,7 +146,7 @@ def main() -> None:
         scroll += s
     print_table(f"Edit → repainted curve and results (median of {n} edits after a warm-up)", rows,
                 ("run", "edit → repainted", "min–max", "analysis answered", "views rebuilt", "window repainted",
-                 "engine alone", "ratio to engine", "target"))
+                 "engine alone", "model comparison (not redone)", "ratio to engine", "target"))
     print_table("Scrolling the results table (one repaint per frame)", scroll,
                 ("", "median frame", "slowest frame", "target"))
     os._exit(0)

@@ -1,5 +1,13 @@
 """The curve view: the calibration with its bands and the unknowns, and below it the relative errors
-(or residuals) of the standards with the acceptance limits. Hovering a point shows its values."""
+(or residuals) of the standards with the acceptance limits. Hovering a point shows its values.
+
+The view draws what :func:`figures.draw_curve`, :func:`figures.draw_relative_errors` and
+:func:`figures.draw_residuals` draw for the printed record, but its plot items are made once and
+given new data on each redraw (an edit redraws the view): the curve, each band, each set of points
+and all the unknowns' interval bars are one item each, and a legend is rebuilt only when its
+entries change. ``tests/app/test_curve_items.py`` checks that the view looks pixel for pixel as
+when each redraw cleared the plots and drew them with the record's drawing functions.
+"""
 
 from __future__ import annotations
 
@@ -8,7 +16,7 @@ import pyqtgraph as pg
 from PySide6.QtCore import QPointF, Qt, Signal
 from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QToolTip, QVBoxLayout, QWidget
 
-from . import figures
+from . import figures, palette
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -21,6 +29,284 @@ def _reset(plot: pg.PlotItem, legend: pg.LegendItem | None = None) -> None:
         legend.clear()
     for side in ("bottom", "left"):
         plot.getAxis(side).setTicks(None)
+
+
+def _concentration_label(a: AnalyteResult) -> str:
+    unit = a.analyte.concentration_unit
+    return f"Concentration ({unit})" if unit else "Concentration"
+
+
+def _decade_ticks(low: float, high: float) -> list:  # type: ignore[type-arg]
+    """The ticks :func:`figures._decade_ticks` puts on a log axis from ``low`` to ``high``."""
+    first, last = int(np.floor(np.log10(low))) - 1, int(np.ceil(np.log10(high))) + 1
+    major = [(float(k), f"{10.0 ** k:g}") for k in range(first, last + 1)]
+    minor = [(float(np.log10(m * 10.0**k)), "") for k in range(first, last) for m in range(2, 10)]
+    return [major, minor]
+
+
+def _log10(v):  # type: ignore[no-untyped-def]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.log10(np.asarray(v, dtype=float))
+
+
+def _as_float(v):  # type: ignore[no-untyped-def]
+    return np.asarray(v, dtype=float)
+
+
+class _KeptPlot:
+    """A plot whose items are made once, shown or hidden, and given new data; its legend is built
+    again only when its entries change. Its axes are styled, labelled and ticked on every drawing,
+    in the order the record's drawing functions do it (an axis sizes itself to what it last drew)."""
+
+    def __init__(self, plot: pg.PlotItem, legend: pg.LegendItem) -> None:
+        self.plot, self.legend = plot, legend
+        self._entries: list[tuple[object, str]] = []
+        self._shown: set[int] = set()
+
+    def add(self, item, ignore_bounds: bool = False):  # type: ignore[no-untyped-def]
+        self.plot.addItem(item, ignoreBounds=ignore_bounds)
+        item.hide()
+        return item
+
+    def begin(self) -> None:
+        self._shown = set()
+        self._legend_wanted: list[tuple[object, str]] = []
+        for side in ("bottom", "left"):  # as a cleared plot starts
+            self.ticks(side, None)
+
+    def show(self, item, *data, name: str | None = None, legend_item=None, named: bool = False, **options):  # type: ignore[no-untyped-def]
+        """Give ``item`` its data (positional for a PlotDataItem, keywords for an ErrorBarItem) and show it;
+        ``name`` is its legend entry, and ``named`` gives the item that name too (as the drawing functions do)."""
+        if named:
+            item.opts["name"] = name
+        if data:
+            item.setData(*data)
+        elif options:
+            item.setData(**options)
+        item.show()
+        self._shown.add(id(item))
+        if name is not None:
+            self._legend_wanted.append((legend_item or item, name))
+        return item
+
+    def finish(self, items) -> bool:  # type: ignore[no-untyped-def]
+        """Hide the items not shown in this drawing; True when the legend's entries changed (then
+        :meth:`rebuild_legend`)."""
+        for item in items:
+            if id(item) not in self._shown and item.isVisible():
+                item.hide()
+        return [(id(i), t) for i, t in self._legend_wanted] != [(id(i), t) for i, t in self._entries]
+
+    def rebuild_legend(self) -> None:
+        self.legend.clear()
+        for item, text in self._legend_wanted:
+            self.legend.addItem(item, text)
+        self._entries = self._legend_wanted
+
+    def labels(self, x_label: str, y_label: str, log_x: bool = False, log_y: bool = False) -> None:
+        """The axis labels, set on every drawing and in the order the drawing functions set them
+        (setting a label also sizes its axis to the tick texts last drawn, so the plots keep the
+        widths they had)."""
+        figures.styled_plot(self.plot, x_label, y_label)
+        if log_x:
+            self.plot.setLabel("bottom", x_label + " (log scale)")
+        if log_y:
+            self.plot.setLabel("left", y_label + " (log scale)")
+        for side in ("bottom", "left"):
+            axis = self.plot.getAxis(side)
+            if axis.autoSIPrefixScale != 1.0 or axis.labelUnitPrefix:
+                # Turning the SI prefix off on an axis that shows its label makes pyqtgraph keep a
+                # scale worked out from the range then shown (the residuals' thousandths), which would
+                # then label 0.004 as "4" with no sign of it: the values are labelled as they are.
+                axis.autoSIPrefixScale, axis.labelUnitPrefix = 1.0, ""
+                axis._updateLabel()
+
+    def ticks(self, side: str, ticks) -> None:  # type: ignore[no-untyped-def]
+        self.plot.getAxis(side).setTicks(ticks)
+
+
+class _CurveItems(_KeptPlot):
+    """The items of the calibration plot, in the order :func:`figures.draw_curve` adds them."""
+
+    def __init__(self, plot: pg.PlotItem, legend: pg.LegendItem) -> None:
+        super().__init__(plot, legend)
+        self.confidence_upper = pg.PlotDataItem(pen=None)
+        self.confidence_lower = pg.PlotDataItem(pen=None)
+        self.confidence = self.add(pg.FillBetweenItem(self.confidence_upper, self.confidence_lower,
+                                                      brush=pg.mkBrush(*palette.CONFIDENCE_FILL)))
+        self.confidence_sample = pg.BarGraphItem(x=[0], height=[0], width=0, brush=pg.mkBrush(*palette.CONFIDENCE_FILL))
+        dashed = pg.mkPen(palette.PREDICTION, width=1.2, style=Qt.PenStyle.DashLine)
+        self.prediction_upper = self.add(pg.PlotDataItem(pen=dashed))
+        self.prediction_lower = self.add(pg.PlotDataItem(pen=dashed))
+        self.curve = self.add(pg.PlotDataItem(pen=pg.mkPen(palette.CURVE, width=2)))
+        self.regions = [self.add(pg.LinearRegionItem(values=(0, 1), movable=False, brush=pg.mkBrush(*palette.RANGE_SHADE),
+                                                     pen=pg.mkPen(None))) for _ in range(2)]
+        loq_pen = pg.mkPen(palette.LIMIT, style=Qt.PenStyle.DotLine, width=1.5)
+        self.loq = self.add(pg.InfiniteLine(pos=0, angle=90, pen=loq_pen))
+        self.loq_sample = pg.PlotDataItem([0], [0], pen=loq_pen)
+        self.standards = self.add(pg.PlotDataItem(pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,
+                                                  symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8)))
+        self.excluded = self.add(pg.PlotDataItem(pen=None, symbol=palette.SYMBOL_EXCLUDED, symbolSize=10, symbolBrush=None,
+                                                 symbolPen=pg.mkPen(palette.EXCLUDED, width=2)))
+        self.excluded_cross = self.add(pg.PlotDataItem(pen=None, symbol="x", symbolSize=7, symbolBrush=palette.EXCLUDED,
+                                                       symbolPen=None))
+        self.samples = {}
+        from ..core.run import SampleKind
+
+        for kind, colour, symbol in ((SampleKind.UNKNOWN, palette.UNKNOWN, palette.SYMBOL_UNKNOWN),
+                                     (SampleKind.QC, palette.QC, palette.SYMBOL_QC)):
+            bars = self.add(pg.ErrorBarItem(x=None, y=None, beam=0, pen=pg.mkPen(colour, width=1.5)))
+            points = self.add(pg.PlotDataItem(pen=None, symbol=symbol, symbolSize=9, symbolBrush=colour,
+                                              symbolPen=pg.mkPen("w", width=0.6)))
+            self.samples[kind] = (bars, points)
+        # drawn last, as figures.draw_anchor_points rings them after draw_curve
+        self.anchors = self.add(pg.PlotDataItem(pen=None, symbol=palette.SYMBOL_ANCHOR, symbolSize=17, symbolBrush=None,
+                                                symbolPen=pg.mkPen(palette.ANCHOR, width=2)))
+        self.items = [self.confidence, self.prediction_upper, self.prediction_lower, self.curve, *self.regions,
+                      self.loq, self.standards, self.excluded, self.excluded_cross,
+                      *(item for pair in self.samples.values() for item in pair), self.anchors]
+
+    def draw(self, a: AnalyteResult, *, level: float, show_confidence: bool, show_prediction: bool,
+             log_x: bool) -> bool:
+        """What :func:`figures.draw_curve_with_anchors` draws for ``a``, on the kept items; True when the legend
+        changed."""
+        from ..core.curve_trace import curve_trace
+        from ..core.run import SampleKind
+        from ..core.run_analysis import response_value
+
+        self.begin()
+        cal = a.calibration
+        x_label = _concentration_label(a)
+        y_label = f"Response ({a.analyte.response_unit})" if a.analyte.response_unit else "Response"
+        low, high = cal.calibrated_range
+        log_y = log_x and bool(np.all(cal.response > 0))
+        if log_x and low <= 0:  # a blank at the bottom of the range has no place on a log axis
+            low = float(cal.concentration[cal.concentration > 0].min())
+        self.labels(x_label, y_label, log_x, log_y)
+        self.ticks("bottom", _decade_ticks(low, high) if log_x else None)
+        self.ticks("left", _decade_ticks(float(cal.response.min()), float(cal.response.max())) if log_y else None)
+        tx = _log10 if log_x else _as_float
+        ty = _log10 if log_y else _as_float
+        trace = curve_trace(cal, level=level, log_spacing=log_x)
+        x = tx(trace.concentration)
+        low, high = float(tx(low)), float(tx(high))
+        finite = figures._finite
+        if show_confidence:
+            self.confidence_upper.setData(*finite(x, ty(trace.confidence_upper)))
+            self.confidence_lower.setData(*finite(x, ty(trace.confidence_lower)))
+            self.show(self.confidence, name=f"{level:.0%} confidence band", legend_item=self.confidence_sample)
+        if show_prediction:
+            self.show(self.prediction_upper, *finite(x, ty(trace.prediction_upper)), name=f"{level:.0%} prediction band", named=True)
+            self.show(self.prediction_lower, *finite(x, ty(trace.prediction_lower)))
+        self.show(self.curve, *finite(x, ty(trace.response)), name="fitted curve", named=True)
+        for item, region in zip(self.regions, ((x.min(), low), (high, x.max()))):
+            if region[1] > region[0]:
+                item.setRegion(region)
+                self.show(item)
+        if a.limits is not None and a.limits.loq is not None and a.limits.loq > 0 and tx(a.limits.loq) > x.min():
+            self.loq.setValue(float(tx(a.limits.loq)))
+            self.show(self.loq, name="LOQ", legend_item=self.loq_sample)
+        shown = cal.concentration > 0 if log_x else np.ones(cal.n_standards, dtype=bool)
+        self.show(self.standards, tx(cal.concentration[shown]), ty(cal.response[shown]), name="standard in the fit",
+                  named=True)
+        ex_x, ex_y = [], []
+        for s in a.excluded_standards:
+            used, _ = response_value(s.response, s.internal_standard_response, a.analyte.uses_internal_standard)
+            if used is not None and (s.concentration > 0 or not log_x) and (used > 0 or not log_y):
+                ex_x.append(float(tx(s.concentration)))
+                ex_y.append(float(ty(used)))
+        if ex_x:
+            self.show(self.excluded, ex_x, ex_y, name="standard excluded", named=True)
+            self.show(self.excluded_cross, ex_x, ex_y)
+        for kind, label in ((SampleKind.UNKNOWN, "unknown"), (SampleKind.QC, "QC sample")):
+            chosen = [s for s in a.samples if s.kind is kind and s.estimate is not None
+                      and (s.estimate > 0 or not log_x) and (s.mean_response > 0 or not log_y)]
+            if not chosen:
+                continue
+            sy = ty([s.mean_response for s in chosen])
+            lo_raw = [s.lower if s.lower is not None and np.isfinite(s.lower) and (s.lower > 0 or not log_x) else s.estimate
+                      for s in chosen]
+            hi_raw = [s.upper if s.upper is not None and np.isfinite(s.upper) else s.estimate for s in chosen]
+            sx, lo, hi = tx([s.estimate for s in chosen]), tx(lo_raw), tx(hi_raw)
+            bars, points = self.samples[kind]
+            self.show(bars, x=sx, y=sy, left=sx - lo, right=hi - sx)
+            self.show(points, sx, sy, name=f"{label} with interval", named=True)
+        anchors = getattr(cal, "anchors", None)
+        if anchors is not None and np.any(anchors):
+            ringed = anchors & (cal.concentration > 0) if log_x else anchors
+            self.show(self.anchors, tx(cal.concentration[ringed]), ty(cal.response[ringed]),
+                      name="anchor point (fitted, not judged)", named=True)
+        return self.finish(self.items)
+
+
+class _LowerItems(_KeptPlot):
+    """The items of the plot below the curve: relative errors with their acceptance limits, in the
+    order :func:`figures.draw_relative_errors` adds them, or residuals as
+    :func:`figures.draw_residuals` draws them."""
+
+    def __init__(self, plot: pg.PlotItem, legend: pg.LegendItem) -> None:
+        super().__init__(plot, legend)
+        limit_pen = pg.mkPen(palette.LIMIT, width=1.2, style=Qt.PenStyle.DashLine)
+        self.limit_upper = self.add(pg.PlotDataItem(stepMode="center", pen=limit_pen))
+        self.limit_lower = self.add(pg.PlotDataItem(stepMode="center", pen=limit_pen))
+        self.re_zero = self.add(pg.InfiniteLine(pos=0, angle=0, pen=pg.mkPen("#777777", width=1)))
+        self.passing = self.add(pg.PlotDataItem(pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,
+                                                symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8)))
+        self.failing = self.add(pg.PlotDataItem(pen=None, symbol="star", symbolSize=12, symbolBrush=palette.FLAGGED,
+                                                symbolPen=None))
+        self.residual_zero = self.add(pg.InfiniteLine(pos=0, angle=0, pen=pg.mkPen("#777777", width=1)))
+        self.residuals = self.add(pg.PlotDataItem(pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,
+                                                  symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8)))
+        self.items = [self.limit_upper, self.limit_lower, self.re_zero, self.passing, self.failing,
+                      self.residual_zero, self.residuals]
+
+    def _axis(self, cal, log_x: bool):  # type: ignore[no-untyped-def]
+        positive = cal.concentration[cal.concentration > 0]
+        span = (float(positive.min()), float(positive.max())) if log_x and positive.size else None
+        self.ticks("bottom", _decade_ticks(*span) if span is not None else None)
+        return _log10 if log_x else _as_float
+
+    def draw_relative_errors(self, a: AnalyteResult, *, log_x: bool) -> bool:
+        self.begin()
+        self.ticks("left", None)
+        cal, verdict = a.calibration, a.verdict
+        if cal is None or verdict is None:
+            self.labels(_concentration_label(a), "%RE")
+            self.ticks("bottom", None)
+            return self.finish(self.items)
+        self.labels(_concentration_label(a), "%RE", log_x)
+        tx = self._axis(cal, log_x)
+        x = tx(cal.concentration)
+        judged_levels = np.unique(x[verdict.judged])
+        if judged_levels.size:
+            tol_at = np.array([verdict.tolerance_percent[x == lv][0] for lv in judged_levels])
+            mids = (judged_levels[1:] + judged_levels[:-1]) / 2
+            spread = (judged_levels[-1] - judged_levels[0]) or abs(judged_levels[0]) or 1.0
+            edges = np.concatenate([[judged_levels[0] - 0.03 * spread], mids, [judged_levels[-1] + 0.03 * spread]])
+            self.show(self.limit_upper, edges, tol_at, name="acceptance limit", named=True)
+            self.show(self.limit_lower, edges, -tol_at)
+        self.show(self.re_zero)
+        judged = verdict.judged & np.isfinite(cal.relative_error)
+        passing = judged & verdict.passing
+        failing = judged & ~verdict.passing
+        self.show(self.passing, x[passing], cal.relative_error[passing], name="within limits")
+        if failing.any():
+            self.show(self.failing, x[failing], cal.relative_error[failing], name="outside the limits")
+        return self.finish(self.items)
+
+    def draw_residuals(self, a: AnalyteResult, *, log_x: bool) -> bool:
+        self.begin()
+        self.ticks("left", None)
+        self.labels(_concentration_label(a), f"Residual ({a.analyte.response_unit})" if a.analyte.response_unit else "Residual")
+        cal = a.calibration
+        if cal is None:
+            self.ticks("bottom", None)
+            return self.finish(self.items)
+        tx = self._axis(cal, log_x)
+        keep = cal.concentration > 0 if log_x else np.ones(cal.n_standards, dtype=bool)
+        self.show(self.residual_zero)
+        self.show(self.residuals, tx(cal.concentration[keep]), cal.residuals[keep], name="standard in the fit")
+        return self.finish(self.items)
 
 
 class CurveView(QWidget):
@@ -69,8 +355,18 @@ class CurveView(QWidget):
         for box in (self.confidence, self.prediction, self.log_axis):
             box.toggled.connect(self.redraw)
         self.lower_kind.currentIndexChanged.connect(self.redraw)
-        self._hover_points: list[tuple[float, float, str]] = []
+        self.curve_items = _CurveItems(self.curve_plot, self.curve_legend)
+        self.lower_items = _LowerItems(self.lower_plot, self.lower_legend)
+        self._hover_source: tuple[AnalyteResult, bool] | None = None
+        self._hover_cache: list[tuple[float, float, str]] | None = None
         self._proxy = pg.SignalProxy(self.graphics.scene().sigMouseMoved, rateLimit=30, slot=self._on_mouse)
+
+    @property
+    def _hover_points(self) -> list[tuple[float, float, str]]:
+        """The points hovering can name, worked out when first asked for after a redraw."""
+        if self._hover_cache is None:
+            self._hover_cache = [] if self._hover_source is None else self._points(*self._hover_source)
+        return self._hover_cache
 
     def show_analyte(self, analyte: AnalyteResult | None, level: float) -> None:
         self.analyte = analyte
@@ -82,13 +378,19 @@ class CurveView(QWidget):
         self.redraw()
 
     def redraw(self) -> None:
-        _reset(self.curve_plot, self.curve_legend)
-        _reset(self.lower_plot, self.lower_legend)
+        """Give the kept plot items the shown analyte's data (see the module's note)."""
         a = self.analyte
+        self._hover_cache = None
         if a is None or a.calibration is None:
             self.empty_note.setText("No curve: " + (a.error if a is not None and a.error else "no standards yet."))
             self.curve_words.setText("")
-            self._hover_points = []
+            self._hover_source = None
+            for kept in (self.curve_items, self.lower_items):
+                kept.begin()
+                kept.ticks("bottom", None)
+                kept.ticks("left", None)
+                kept.finish(kept.items)
+                kept.rebuild_legend()
             self._fit_legends()
             return
         self.empty_note.setText("")
@@ -96,16 +398,17 @@ class CurveView(QWidget):
 
         self.curve_words.setText(curve_words(a.calibration, a.analyte.uses_internal_standard))
         log_x = self.log_axis.isChecked()
-        figures.draw_curve(self.curve_plot, a, legend=self.curve_legend, level=self.level,
-                           show_confidence=self.confidence.isChecked(), show_prediction=self.prediction.isChecked(),
-                           log_x=log_x)
-        figures.draw_anchor_points(self.curve_plot, a, legend=self.curve_legend, log_x=log_x)
+        changed = self.curve_items.draw(a, level=self.level, show_confidence=self.confidence.isChecked(),
+                                        show_prediction=self.prediction.isChecked(), log_x=log_x)
         if self.lower_kind.currentIndex() == 0:
-            figures.draw_relative_errors(self.lower_plot, a, legend=self.lower_legend, log_x=log_x)
+            changed |= self.lower_items.draw_relative_errors(a, log_x=log_x)
         else:
-            figures.draw_residuals(self.lower_plot, a, legend=self.lower_legend, log_x=log_x)
-        self._fit_legends()
-        self._hover_points = self._points(a, log_x)
+            changed |= self.lower_items.draw_residuals(a, log_x=log_x)
+        if changed:  # both legends are built again and share one width, as the two plots share one axis
+            self.curve_items.rebuild_legend()
+            self.lower_items.rebuild_legend()
+            self._fit_legends()
+        self._hover_source = (a, log_x)
         self.curve_plot.getViewBox().autoRange(padding=0.04)
         self.lower_plot.getViewBox().autoRange(padding=0.08)
         self.options_changed.emit()

@@ -265,6 +265,7 @@ class MainWindow(QMainWindow):
     # --- session wiring --------------------------------------------------------------------------
     def attach(self, session: RunSession) -> None:
         self.session = session
+        session.evidence_wanted = self.bottom_tabs.currentWidget() is self.evidence_panel
         first = session.run.analytes[0].name
         self.standards_model = StandardsModel(session, first)
         self.samples_model = SamplesModel(session, first)
@@ -377,6 +378,8 @@ class MainWindow(QMainWindow):
 
     def _refresh_tab(self, index: int) -> None:
         widget = self.bottom_tabs.widget(index)
+        # the model comparison is worked out with each analysis only while its tab is shown
+        self.session.evidence_wanted = widget is self.evidence_panel
         if widget not in getattr(self, "_stale_tabs", set()):
             return
         self._stale_tabs.discard(widget)

@@ -26,6 +26,8 @@ SAMPLE, REPORTED, INTERVAL, FLAGS, KIND, QC, N, MEAN, ESTIMATE, DILUTION, FULL =
 WITH_UNIT = (REPORTED, INTERVAL, ESTIMATE, FULL)
 NUMERIC = (REPORTED, QC, N, MEAN, ESTIMATE, DILUTION, FULL)
 ATTENTION = QColor(255, 236, 200)
+_ATTENTION_BRUSH = QBrush(ATTENTION)
+_RIGHT = int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
 
 
 class ResultsModel(QAbstractTableModel):
@@ -38,15 +40,29 @@ class ResultsModel(QAbstractTableModel):
         """Each row's cell texts and whether it needs attention, worked out once per result (a table
         asks for the same cells many times: sizing its columns, painting, scrolling)."""
 
-    def show(self, result: RunResult | None, analyte: str) -> None:
-        self.beginResetModel()
-        self._texts, self._attention = {}, {}
-        self.result = result
+    def show(self, result: RunResult | None, analyte: str) -> bool:
+        """Show ``analyte``'s samples in ``result``. The same samples as shown (a new analysis of the
+        same run, after an edit) are updated in place, keeping the selection and scroll position;
+        the table is reset only when the rows are other samples. True when updated in place."""
         try:
-            self.analyte = result.analyte(analyte) if result is not None else None
+            shown = result.analyte(analyte) if result is not None else None
         except KeyError:
-            self.analyte = None
-        self.endResetModel()
+            shown = None
+        old_rows = self.rows
+        new_rows = shown.samples if shown is not None else ()
+        in_place = bool(old_rows) and len(old_rows) == len(new_rows) and all(
+            a.sample_id == b.sample_id for a, b in zip(old_rows, new_rows))
+        if not in_place:
+            self.beginResetModel()
+        self._texts, self._attention = {}, {}
+        self.result, self.analyte = result, shown
+        if not in_place:
+            self.endResetModel()
+            return False
+        last = len(COLUMNS) - 1
+        self.dataChanged.emit(self.index(0, 0), self.index(len(new_rows) - 1, last))
+        self.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, last)
+        return True
 
     @property
     def rows(self) -> tuple[SampleResult, ...]:
@@ -80,21 +96,31 @@ class ResultsModel(QAbstractTableModel):
             return None
         row, col = index.row(), index.column()
         if role == Qt.ItemDataRole.DisplayRole:
-            texts = self._texts.get(row)
-            if texts is None:
-                s = self.rows[row]
-                texts = self._texts[row] = tuple(self.text(s, c) for c in range(len(COLUMNS)))
-            return texts[col]
+            return self.row_texts(row)[col]
         if role == Qt.ItemDataRole.ToolTipRole:
             return self.description(self.rows[row])
         if role == Qt.ItemDataRole.BackgroundRole:
             attention = self._attention.get(row)
             if attention is None:
                 attention = self._attention[row] = self._needs_attention(self.rows[row])
-            return QBrush(ATTENTION) if attention else None
+            return _ATTENTION_BRUSH if attention else None
         if role == Qt.ItemDataRole.TextAlignmentRole and col in NUMERIC:
-            return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+            return _RIGHT
         return None
+
+    def row_texts(self, row: int) -> tuple[str, ...]:
+        """The cell texts of one row, worked out when the row is first shown and kept for the result
+        (a table asks for the same cells many times: sizing its columns, painting, scrolling)."""
+        texts = self._texts.get(row)
+        if texts is None:
+            s = self.rows[row]
+            texts = self._texts[row] = tuple(self.text(s, c) for c in range(len(COLUMNS)))
+        return texts
+
+    def fit_key(self, col: int, rows: range) -> tuple[str, ...]:
+        """What the widths of column ``col``'s cells in ``rows`` depend on: their texts (see
+        :func:`~curvewright.app.table_view.fit_columns`)."""
+        return tuple(self.row_texts(r)[col] for r in rows)
 
     def _needs_attention(self, s: SampleResult) -> bool:
         from ..core.inverse import QuantFlag  # loaded: rows exist only once a result has arrived
@@ -193,9 +219,12 @@ class ResultsView(QWidget):
 
     def show_result(self, result: RunResult | None, analyte: str) -> None:
         selected = self.table.currentIndex().row()
-        self.results_model.show(result, analyte)
+        in_place = self.results_model.show(result, analyte)
         fit_columns(self.table)
-        if 0 <= selected < self.results_model.rowCount():
+        if in_place and selected >= 0:
+            # the same samples, updated: the selection and current row stay; the words follow the values
+            self.details.setText(self.results_model.description(self.results_model.rows[selected]))
+        elif 0 <= selected < self.results_model.rowCount():
             self.table.selectRow(selected)
         else:
             self.details.setText("Select a sample to read its result in words.")

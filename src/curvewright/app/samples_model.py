@@ -263,3 +263,9 @@ class SamplesModel(QAbstractTableModel):
 
     def _reload(self, run) -> None:  # type: ignore[no-untyped-def]
         self._cache.update(run.samples, key=lambda s: s.id)
+
+    def fit_key(self, col: int, rows: range) -> tuple[str, ...]:
+        """What the widths of column ``col``'s cells in ``rows`` depend on: their texts (see
+        :func:`~curvewright.app.table_view.fit_columns`)."""
+        samples, pending = self.samples, self.pending
+        return tuple(p[0] if (p := pending.get((samples[r].id, col))) else self._text(samples[r], col) for r in rows)

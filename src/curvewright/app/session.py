@@ -7,12 +7,17 @@ request carries a generation number and an answer for a run that is no longer cu
 An analysis that took less than a frame last time is done at once on the GUI thread; a slower one
 starts on the worker thread as soon as the edit is made, and edits made while it runs are analysed
 together once it answers (so a burst of edits costs at most one analysis more than the last).
+
+The model comparison (the model-evidence tab) is worked out on the analysis thread only while that
+tab is shown (:attr:`RunSession.evidence_wanted`); otherwise it is worked out when it is first read,
+from the same result, so an edit that the evidence tab does not show never waits for it.
 """
 
 from __future__ import annotations
 
 import hashlib
 import time
+from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, replace
 from pathlib import Path
 
@@ -70,17 +75,42 @@ class AnalysisAnswer:
     result: RunResult | None
     error: str | None
     seconds: float
-    evidence: dict[str, ModelComparison | str] | None = None
+    evidence: Mapping[str, ModelComparison | str] | None = None
 
 
-def analyse_with_evidence(run: Run) -> tuple[RunResult, dict[str, ModelComparison | str]]:
-    """The run's results and, per analyte, its model comparison (the run's one evidence, computed here
-    on the analysis thread so that the window only reads it). The engine, and scipy with it, is
-    loaded here on the first call: on the analysis thread, while the window is being shown."""
+class RunEvidence(Mapping):
+    """Per analyte, the run's one model comparison (:attr:`RunResult.evidence`), worked out when it is
+    first read (or by :meth:`load`, on the analysis thread) and kept with its result."""
+
+    def __init__(self, result: RunResult) -> None:
+        self.result = result
+
+    def load(self) -> "RunEvidence":
+        self.result.evidence  # noqa: B018 - a cached property: worked out once, here
+        return self
+
+    @property
+    def loaded(self) -> bool:
+        return "evidence" in vars(self.result)
+
+    def __getitem__(self, name: str) -> ModelComparison | str:
+        return self.result.evidence[name]
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self.result.evidence)
+
+    def __len__(self) -> int:
+        return len(self.result.evidence)
+
+
+def analyse_with_evidence(run: Run) -> tuple[RunResult, RunEvidence]:
+    """The run's results and, per analyte, its model comparison (the run's one evidence), which is
+    worked out when first read (:class:`RunEvidence`). The engine, and scipy with it, is loaded here
+    on the first call: on the analysis thread, while the window is being shown."""
     from ..core.run_analysis import analyse_run
 
     result = analyse_run(run)
-    return result, dict(result.evidence)
+    return result, RunEvidence(result)
 
 
 class _AnalysisSignals(QObject):
@@ -88,15 +118,18 @@ class _AnalysisSignals(QObject):
 
 
 class _AnalysisJob(QRunnable):
-    def __init__(self, run: Run, generation: int, signals: _AnalysisSignals) -> None:
+    def __init__(self, run: Run, generation: int, signals: _AnalysisSignals, with_evidence: bool = True) -> None:
         super().__init__()
         self.subject, self.generation, self.signals = run, generation, signals
+        self.with_evidence = with_evidence
         self.setAutoDelete(True)
 
     def run(self) -> None:  # noqa: D401 - QRunnable entry point
         start = time.perf_counter()
         try:
             result, evidence = analyse_with_evidence(self.subject)
+            if self.with_evidence:
+                evidence.load()
             answer = AnalysisAnswer(self.generation, result, None, time.perf_counter() - start, evidence)
         except Exception as exc:  # noqa: BLE001 - shown to the user in the status line
             answer = AnalysisAnswer(self.generation, None, str(exc), time.perf_counter() - start)
@@ -157,7 +190,10 @@ class RunSession(QObject):
         # after the stack has moved (its clean state is then current), keep the recovery file in step
         self.undo_stack.indexChanged.connect(self._on_index_changed)
         self.result: RunResult | None = None
-        self.evidence: dict[str, ModelComparison | str] = {}
+        self.evidence: Mapping[str, ModelComparison | str] = {}
+        self.evidence_wanted = False
+        """True while the model evidence is shown: the analysis then works out the model comparison
+        too (on the analysis thread); otherwise it is worked out when first read."""
         self.last_analysis_seconds = 0.0
         self._generation = 0
         self._answered = -1
@@ -347,13 +383,15 @@ class RunSession(QObject):
     @Slot()
     def _start_analysis(self) -> None:
         self._running = self._generation
-        self._pool.start(_AnalysisJob(self._run, self._generation, self._signals))
+        self._pool.start(_AnalysisJob(self._run, self._generation, self._signals, self.evidence_wanted))
 
     def _analyse_here(self) -> None:
         """The analysis on the GUI thread, for runs that take less than a frame."""
         start = time.perf_counter()
         try:
             result, evidence = analyse_with_evidence(self._run)
+            if self.evidence_wanted:
+                evidence.load()
             answer = AnalysisAnswer(self._generation, result, None, time.perf_counter() - start, evidence)
         except Exception as exc:  # noqa: BLE001 - shown to the user in the status line
             answer = AnalysisAnswer(self._generation, None, str(exc), time.perf_counter() - start)
@@ -379,7 +417,7 @@ class RunSession(QObject):
             self.analysis_failed.emit(answer.error or "analysis failed")
             return
         self.result = answer.result
-        self.evidence = answer.evidence or {}
+        self.evidence = answer.evidence if answer.evidence is not None else {}  # not worked out here
         self.analysis_ready.emit(answer.result)
 
     def wait_for_analysis(self, timeout_ms: int = 10000) -> bool:

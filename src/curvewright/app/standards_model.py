@@ -44,6 +44,18 @@ ANCHOR_TIP = ("An anchor point of the logistic curve: fitted, but not judged for
               "calibrated range (LLOQ to ULOQ). Its back-calculated value and %RE are shown for information.")
 
 
+_ROLES_READ = (Qt.ItemDataRole.ToolTipRole, Qt.ItemDataRole.BackgroundRole, Qt.ItemDataRole.ForegroundRole,
+               Qt.ItemDataRole.FontRole, Qt.ItemDataRole.TextAlignmentRole)
+"""The roles this table answers besides its texts (a view asks for many more, for every cell)."""
+_RIGHT = int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+
+
+def _context(analyte: Analyte) -> Analyte:
+    """What the cells show besides the standards themselves: the analyte's settings (whether an
+    internal standard is used decides whether its responses are checked)."""
+    return replace(analyte, standards=())
+
+
 class StandardsModel(QAbstractTableModel):
     message = Signal(str)
     target = "standards"
@@ -56,7 +68,10 @@ class StandardsModel(QAbstractTableModel):
         self.decimal_mark: str | None = None  # the analyst's decimal mark for typed and pasted values
         self.reason_provider: ReasonProvider | None = None  # asks why a raw value that was entered changes
         self.result: AnalyteResult | None = None
-        self._cache = RowCache(self, session.run.analyte(analyte).standards)
+        self._positions: dict[str, int] = {}
+        """Each fitted standard's place in the result's arrays, by id."""
+        first = session.run.analyte(analyte)
+        self._cache = RowCache(self, first.standards, _context(first))
         session.run_changed.connect(self._reload)
         session.analysis_ready.connect(self._on_result)
         if session.result is not None:
@@ -78,9 +93,11 @@ class StandardsModel(QAbstractTableModel):
     def set_analyte(self, name: str) -> None:
         self.analyte_name = name
         self.result = None
+        self._positions = {}
         if self.session.result is not None:
             self._pick(self.session.result)
-        self._cache.reset(self.session.run.analyte(name).standards)
+        analyte = self.session.run.analyte(name)
+        self._cache.reset(analyte.standards, _context(analyte))
 
     def rowCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802 - Qt override
         return 0 if parent.isValid() else len(self.standards)
@@ -108,9 +125,11 @@ class StandardsModel(QAbstractTableModel):
             return None
         s = self.standards[index.row()]
         col = index.column()
-        problem = self._problem(s, col)
         if role in (Qt.ItemDataRole.DisplayRole, Qt.ItemDataRole.EditRole):
             return self._text(s, col, edit=role == Qt.ItemDataRole.EditRole)
+        if role not in _ROLES_READ:
+            return None
+        problem = self._problem(s, col)
         if role == Qt.ItemDataRole.ToolTipRole:
             if problem:
                 return f"Not used: {problem}"
@@ -134,8 +153,14 @@ class StandardsModel(QAbstractTableModel):
             font.setItalic(True)
             return font
         if role == Qt.ItemDataRole.TextAlignmentRole and col in (REP, CONC, RESP, IS, BACK, RE):
-            return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+            return _RIGHT
         return None
+
+    def fit_key(self, col: int, rows: range) -> tuple:  # type: ignore[type-arg]
+        """What the widths of column ``col``'s cells in ``rows`` depend on: their texts, and the italic
+        font of an excluded standard (see :func:`~curvewright.app.table_view.fit_columns`)."""
+        standards = self.standards
+        return tuple((self._text(standards[r], col), standards[r].included) for r in rows)
 
     def _problem(self, s: Standard, col: int) -> str | None:
         if col == CONC and not s.has_concentration:
@@ -171,7 +196,9 @@ class StandardsModel(QAbstractTableModel):
         if a is None or a.calibration is None:
             return ""
         cal = a.calibration
-        position = next((i for i, f in enumerate(a.fitted_standards) if f.id == s.id), None)
+        if not self._positions and a.fitted_standards:
+            self._positions = {f.id: i for i, f in enumerate(a.fitted_standards)}
+        position = self._positions.get(s.id)
         if position is None:
             if col == LIMITS:
                 return "excluded" if not s.included else "not used"
@@ -330,9 +357,12 @@ class StandardsModel(QAbstractTableModel):
             rows = run.analyte(self.analyte_name).standards
         except RunError:
             rows = ()  # the analyte was renamed or removed; the window selects another
-        self._cache.update(rows, key=lambda s: s.id)
+            self._cache.update(rows, key=lambda s: s.id)
+            return
+        self._cache.update(rows, key=lambda s: s.id, context=_context(run.analyte(self.analyte_name)))
 
     def _pick(self, result) -> None:  # type: ignore[no-untyped-def]
+        self._positions = {}
         try:
             self.result = result.analyte(self.analyte_name)
         except KeyError:

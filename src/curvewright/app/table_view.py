@@ -37,7 +37,12 @@ never holds up a redraw."""
 def fit_columns(view: QTableView) -> None:
     """Widen each column to its header and its cells, so that no text is cut to "…", then let the
     last column take any room left (see :func:`fill_last_column`). A long table is fitted to the rows
-    in view; its columns widen as other rows come into view."""
+    in view; its columns widen as other rows come into view.
+
+    A model that tells what its cells' sizes depend on (``fit_key(column, rows)``: the texts and
+    fonts of those rows in that column) has only the columns that changed measured again; the
+    others keep the width measured for the same content (a table is fitted after every analysis,
+    and most of its columns are as they were)."""
     model = view.model()
     if model is None:
         return
@@ -48,9 +53,45 @@ def fit_columns(view: QTableView) -> None:
     header = view.horizontalHeader()
     header.setStretchLastSection(False)
     header.setResizeContentsPrecision(0 if long_table else -1)
-    view.resizeColumnsToContents()
+    if not hasattr(model, "fit_key"):
+        view.resizeColumnsToContents()
+    else:
+        _fit_changed_columns(view, model, long_table)
     view.setProperty("fitted_last_width", None)
     fill_last_column(view)
+
+
+def _rows_measured(view: QTableView, long_table: bool) -> range:
+    """The rows Qt measures to fit a column: every row, or for a long table those in view."""
+    count = view.model().rowCount()
+    if not long_table:
+        return range(count)
+    vertical = view.verticalHeader()
+    top = max(0, vertical.visualIndexAt(0))
+    bottom = vertical.visualIndexAt(view.viewport().height())
+    if not view.isVisible() or bottom == -1:
+        bottom = count - 1
+    return range(top, bottom + 1)
+
+
+def _fit_changed_columns(view: QTableView, model, long_table: bool) -> None:  # type: ignore[no-untyped-def]
+    """Each shown column fitted to its contents (as ``resizeColumnsToContents`` does), measuring
+    again only the columns whose header, cells or font changed since they were last measured."""
+    from PySide6.QtCore import Qt
+
+    rows = _rows_measured(view, long_table)
+    base = (view.font().key(), (rows.start, rows.stop), model.rowCount())
+    measured: dict[int, tuple[object, int]] = view.__dict__.setdefault("_measured_columns", {})
+    for c in range(model.columnCount()):
+        if view.isColumnHidden(c):
+            continue
+        key = (base, model.headerData(c, Qt.Orientation.Horizontal), model.fit_key(c, rows))
+        known = measured.get(c)
+        if known is not None and known[0] == key:
+            view.setColumnWidth(c, known[1])
+        else:
+            view.resizeColumnToContents(c)
+            measured[c] = (key, view.columnWidth(c))
 
 
 def fill_last_column(view: QTableView) -> None:
@@ -165,13 +206,18 @@ class RowCache:
     are: cells changed, rows appended, one row removed; only anything else resets.
     """
 
-    def __init__(self, model, rows: tuple) -> None:  # type: ignore[no-untyped-def]
-        self.model, self.rows = model, rows
+    def __init__(self, model, rows: tuple, context: object = None) -> None:  # type: ignore[no-untyped-def]
+        self.model, self.rows, self.context = model, rows, context
 
-    def update(self, rows: tuple, key) -> None:  # type: ignore[no-untyped-def]
+    def update(self, rows: tuple, key, context: object = None) -> None:  # type: ignore[no-untyped-def]
+        """Take the rows of a new run. Rows are immutable: a row that is the same object as before
+        shows the same cells, so only the span of rows that changed is told to the view, unless
+        ``context`` (what else the cells show, e.g. the analyte's settings) changed too."""
         from PySide6.QtCore import QModelIndex, Qt
 
         model, old = self.model, self.rows
+        same_context = context == self.context
+        self.context = context
         last_column = model.columnCount() - 1
         old_keys, new_keys = [key(r) for r in old], [key(r) for r in rows]
         if new_keys[: len(old_keys)] == old_keys and len(rows) > len(old):
@@ -190,11 +236,13 @@ class RowCache:
             return
         else:
             self.rows = rows
-        if rows:
-            model.dataChanged.emit(model.index(0, 0), model.index(len(rows) - 1, last_column))
+        changed = range(len(rows)) if not same_context else [
+            i for i in range(min(len(old), len(rows))) if old[i] is not rows[i]]
+        if len(changed):
+            model.dataChanged.emit(model.index(changed[0], 0), model.index(changed[-1], last_column))
         model.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, last_column)
 
-    def reset(self, rows: tuple) -> None:
+    def reset(self, rows: tuple, context: object = None) -> None:
         self.model.beginResetModel()
-        self.rows = rows
+        self.rows, self.context = rows, context
         self.model.endResetModel()
