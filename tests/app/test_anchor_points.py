@@ -133,8 +133,8 @@ def test_a_standard_inside_the_range_is_refused_in_the_fits_words(make_window, q
     settle(qtbot, window)
     title, text = answer_dialogs.seen[-1]
     assert title == "Mark anchor points"
-    assert text.startswith("Not marked: standard(s) S4-1 of cytokine. The fit refuses it: anchor points: standard 9 "
-                           "(concentration 45) is marked as an anchor point but lies within the range of the "
+    assert text.startswith("Not marked: standard(s) S4-1 of cytokine. The fit refuses it: anchor points: the standard at "
+                           "concentration 45 is marked as an anchor point but lies within the range of the "
                            "calibration standards (3 to 1600)")
     assert len(window.session.run.audit) == count and anchors(window) == ["A1-1", "A1-2", "A2-1", "A2-2"]
     assert not window.undo_action.isEnabled()

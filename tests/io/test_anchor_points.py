@@ -79,7 +79,7 @@ def test_a_standard_inside_the_range_marked_as_an_anchor_is_refused_by_the_fit()
     marked = run_edits.mark_anchor_points(run, "cytokine", ["S4-1"], "trying a mid-range anchor")
     result = analyse_run(marked).analyte("cytokine")
     assert result.calibration is None
-    assert result.error.startswith("anchor points: standard 9 (concentration 45) is marked as an anchor point but "
+    assert result.error.startswith("anchor points: the standard at concentration 45 is marked as an anchor point but "
                                    "lies within the range")
 
 

@@ -329,7 +329,7 @@ def _anchor_mask(model: Model, x: FloatArray, anchor_points: object | None) -> n
     if inside.size:
         i = int(inside[0])
         raise CalibrationInputError(
-            f"anchor points: standard {i + 1} (concentration {x[i]:g}) is marked as an anchor point but lies "
+            f"anchor points: the standard at concentration {x[i]:g} is marked as an anchor point but lies "
             f"within the range of the calibration standards ({low:g} to {high:g}); anchor points lie outside it."
         )
     return mask.copy()
