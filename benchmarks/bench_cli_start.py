@@ -1,6 +1,6 @@
 """Benchmark 3b: command-line start-up, each command against the floor it cannot go below.
 
-- ``curvewright --version`` and ``--help`` against ``python -c pass`` (target ≤ 1.5×);
+- ``curvewright --version``, ``--help`` and ``quantify --help`` against ``python -c pass`` (target ≤ 1.5×);
 - ``curvewright quantify RUN --json`` on a demo run against ``python -c "import numpy, scipy.special"``,
   the libraries its statistics need (target ≤ 1.3×).
 
@@ -29,11 +29,13 @@ SIDES = {
     "python -c 'import numpy, scipy.special'": ["-c", "import numpy, scipy.special"],
     "curvewright --version": ["-c", ENTRY, "--version"],
     "curvewright --help": ["-c", ENTRY, "--help"],
+    "curvewright quantify --help": ["-c", ENTRY, "quantify", "--help"],
     "curvewright quantify RUN --json": ["-c", ENTRY, "quantify", RUN, "--json"],
 }
 TARGETS = [  # (command, floor, target ratio)
     ("curvewright --version", "python -c pass", 1.5),
     ("curvewright --help", "python -c pass", 1.5),
+    ("curvewright quantify --help", "python -c pass", 1.5),
     ("curvewright quantify RUN --json", "python -c 'import numpy, scipy.special'", 1.3),
 ]
 WATCHED = ("numpy", "scipy", "PySide6", "pyqtgraph", "openpyxl", "argparse")

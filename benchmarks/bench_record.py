@@ -3,7 +3,8 @@
 For each demo run (analysed once, its model evidence computed beforehand, as in ``quantify``), the
 time to build and write the PDF record is compared with the time to write the XLSX workbook, per
 analyte. Both are warmed once and then timed in interleaved rounds. The record's time is split into
-its parts: building the content, drawing the figures, placing tables and text, painting the pages.
+its parts: building the content, laying out and recording the figures, placing tables and text,
+painting the pages.
 Target: the record of each analyte within 1.5× the workbook export of the same run.
 
 Run: python benchmarks/bench_record.py [--smoke]
@@ -45,10 +46,10 @@ def timed(owner, name: str, label: str) -> None:  # type: ignore[no-untyped-def]
     setattr(owner, name, wrapper)
 
 
-timed(figures, "render", "drawing the figures")
+timed(figures, "figure", "laying out and recording the figures")
 timed(record_layout.RecordLayout, "table", "placing the tables")
 timed(record_layout.RecordLayout, "paragraph", "placing the text")
-timed(record_layout.RecordLayout, "paint", "painting the pages (images compressed)")
+timed(record_layout.RecordLayout, "paint", "painting the pages (figures as vectors)")
 
 
 def main() -> None:

@@ -1,6 +1,7 @@
 """Start-up: each command loads only what it uses.
 
-``curvewright --version`` and ``--help`` load neither numpy nor scipy; ``quantify RUN --json`` loads
+``curvewright --version`` and ``--help`` load neither numpy, scipy nor argparse (the help is kept as
+text in ``curvewright.cli_help``, checked against the parser in ``tests/test_cli_help.py``); ``quantify RUN --json`` loads
 nothing of Qt, pyqtgraph or openpyxl (nor scipy.optimize, which no run of the demo needs); an export
 loads the library it writes with. Checked in a fresh process with ``python -X importtime``, which
 lists every module the process imported. How long start-up takes is measured in
@@ -54,12 +55,13 @@ def test_version_line_is_the_same_as_the_full_command_lines() -> None:
 
 
 @pytest.mark.parametrize("args", [("--help",), ("quantify", "--help"), ("archive", "--help")])
-def test_help_loads_no_numerics(args: tuple[str, ...]) -> None:
+def test_help_loads_no_numerics_and_no_command_line(args: tuple[str, ...]) -> None:
     names, done = imported(*args)
     assert done.returncode == 0, done.stderr[-2000:]
     assert "usage: curvewright" in done.stdout and curvewright.CAUTION.split()[0] in done.stdout
-    assert "curvewright.cli" in names
+    assert "curvewright.cli_help" in names  # the listing is read correctly
     assert not tops(names) & (NUMERICS | FRONT_END)
+    assert "argparse" not in names and "curvewright.cli" not in names
 
 
 def test_quantify_json_loads_no_front_end_and_no_optimiser() -> None:

@@ -1,7 +1,8 @@
 """The ``curvewright`` program (also ``python -m curvewright``).
 
-``curvewright --version`` answers here, from the version string alone, without loading the command
-line, the engine or the app. Everything else goes to :func:`curvewright.cli.main`.
+``curvewright --version`` answers here, from the version string alone, and ``curvewright [COMMAND]
+--help`` from the help texts kept in :mod:`curvewright.cli_help`, without loading the command line,
+argparse, the engine or the app. Everything else goes to :func:`curvewright.cli.main`.
 """
 
 from __future__ import annotations
@@ -20,6 +21,13 @@ def main(argv: Sequence[str] | None = None) -> int:
 
         print(f"curvewright {__version__}")  # the same line as argparse's --version in cli.build_parser
         return 0
+    if args and args[-1] in ("-h", "--help"):
+        from .cli_help import help_text
+
+        text = help_text(args)
+        if text is not None:
+            sys.stdout.write(text)  # as argparse's print_help; it then exits with 0
+            return 0
     from .cli import main as run_command
 
     return run_command(args)

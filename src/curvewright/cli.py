@@ -83,11 +83,24 @@ exit codes:
 """
 
 
+HELP_COLUMNS = 80
+"""The help is laid out for a console this wide, whatever the terminal (as argparse does when the
+output is not a terminal), so that it is one text: the one :mod:`curvewright.cli_help` keeps."""
+
+
+class CommandParser(argparse.ArgumentParser):
+    """An argument parser whose help and usage are laid out for :data:`HELP_COLUMNS` columns; its
+    subcommands' parsers are of this class too."""
+
+    def _get_formatter(self) -> argparse.HelpFormatter:
+        return self.formatter_class(prog=self.prog, width=HELP_COLUMNS - 2)  # argparse keeps 2 columns free
+
+
 def build_parser() -> argparse.ArgumentParser:
     from .core.model_kinds import Model
     from .core.weighting_kinds import Weighting
 
-    parser = argparse.ArgumentParser(
+    parser = CommandParser(
         prog="curvewright",
         description="Calibration curves for testing laboratories: fit, diagnose, quantify and report. "
         "Without a command, opens the desktop app: curvewright [RUN.json | --demo [NAME]].",

@@ -64,6 +64,48 @@ def printed_words(document: str) -> frozenset[str]:
     return frozenset(words)
 
 
+@lru_cache(maxsize=None)
+def figure_spans(document: str) -> tuple[tuple[tuple[float, float], ...], ...]:
+    """For each page of the record, the vertical spans (top, bottom, in points from the page's top
+    edge) of the figures on it, from the record's own layout of the same content."""
+    from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF
+    from PySide6.QtGui import QPageLayout, QPageSize, QPdfWriter
+
+    from curvewright.app.qt_runtime import ensure_application
+    from curvewright.app.record_layout import FigureOp
+    from curvewright.app.report_pdf import lay_out
+
+    ensure_application()
+    data = QByteArray()
+    buffer = QBuffer(data)
+    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
+    writer = QPdfWriter(buffer)
+    writer.setResolution(300)
+    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), QPageLayout.Orientation.Portrait,
+                                     QMarginsF(0, 0, 0, 0), QPageLayout.Unit.Millimeter))
+    layout = lay_out(build_report(analyse_run(open_run(Path(document)).run)), writer)
+    to_pt = 72 / 300
+    spans = tuple(tuple((op.rect.top() * to_pt, op.rect.bottom() * to_pt) for op in page.ops if isinstance(op, FigureOp))
+                  for page in layout.pages)
+    del layout, writer
+    buffer.close()
+    return spans
+
+
+def text_beside_figures(page, spans) -> str:  # type: ignore[no-untyped-def]
+    """The page's text from top to bottom, leaving out the text drawn inside the figures (their axis
+    labels and legends), which is no part of the record's running text or tables."""
+    width, height = page.get_size()
+    textpage = page.get_textpage()
+    parts, top = [], 0.0
+    for start, end in (*sorted(spans), (height, height)):
+        if start > top:  # pdfium measures from the bottom edge
+            parts.append(textpage.get_text_bounded(0, height - start, width, height - top))
+        top = max(top, end)
+    text = "\n".join(parts)
+    return unicodedata.normalize("NFKC", text).replace("\u00a0", " ").replace("\u202f", " ")
+
+
 def split_pieces(text: str, whole: frozenset[str]) -> list[str]:
     """Places where a line ends and the next begins with two pieces of one printed word (or the first
     pieces of a word broken more than once), at least one of them no printed word by itself."""
@@ -115,8 +157,11 @@ def test_every_page_of_each_demo_record_reads_whole(document: Path, tmp_path: Pa
         assert run.name[:40] in header, f"{document.stem} page {n + 1}: header {header!r}"
         assert f"page {n + 1} of {pages}" in footer, f"{document.stem} page {n + 1}: footer {footer!r}"
         assert squeezed_caution in re.sub(r"\s+", "", text), f"{document.stem} page {n + 1}: no caution"
-        # no word of a table heading or cell, and no number, broken across two lines
-        assert split_pieces(text, whole) == [], f"{document.stem} page {n + 1}"
+        # no word of a table heading or cell, and no number, broken across two lines (the figures, drawn
+        # as lines and text, hold tick labels that stand one above the other: they are read apart)
+        spans = figure_spans(str(document))
+        assert len(spans) == pages, f"{document.stem}: the record's layout has {len(spans)} pages, the PDF {pages}"
+        assert split_pieces(text_beside_figures(page, spans[n]), whole) == [], f"{document.stem} page {n + 1}"
         save_preview(page, ARTEFACTS / f"{document.stem}-{n + 1:02d}.png")
     # the document's own description of itself
     meta = pdf.get_metadata_dict()
@@ -146,4 +191,24 @@ def test_a_thirty_element_run_is_summarised_on_the_first_page(tmp_path: Path) ->
     assert "Run verdict: ACCEPTED" in first and "ICP emission spectrometer" in first
     ARTEFACTS.mkdir(parents=True, exist_ok=True)
     save_preview(pdf[0], ARTEFACTS / "metals-batch-12-01.png")
+    pdf.close()
+
+
+def test_figures_are_drawn_as_lines_and_text_inside_their_place(tmp_path: Path) -> None:
+    document = next(d for d in DEMO_RUNS if d.stem == "nitrate_water_linear")
+    pdf_path = write_record(document, tmp_path)
+    strict = pypdf.PdfReader(pdf_path, strict=True)
+    assert all(not page.images for page in strict.pages)  # no figure is a picture of pixels
+    pdf = pdfium.PdfDocument(pdf_path)
+    spans = figure_spans(str(document))
+    assert sum(len(s) for s in spans) == 3  # the curve, the relative errors and the influence plot
+    found = ""
+    for n, page_spans in enumerate(spans):
+        width, height = pdf[n].get_size()
+        textpage = pdf[n].get_textpage()
+        for top, bottom in page_spans:
+            found += textpage.get_text_bounded(0, height - bottom, width, height - top) + "\n"
+    for label in ("Concentration (mg/L)", "Response (AU)", "%RE", "Leverage", "Studentized residual (external)",
+                  "fitted curve", "acceptance limit", "influence limit (Cook's D and residual)"):
+        assert label in unicodedata.normalize("NFKC", found), label
     pdf.close()

@@ -337,31 +337,182 @@ def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem
     plot.setYRange(-top, top)
 
 
-def render(draw, a: AnalyteResult, width: int = 1400, height: int = 820, **options) -> QImage:  # type: ignore[no-untyped-def]
-    """Draw one view off screen into an image (for the report and for exported plot images), its legend
-    in a column of its own to the right of the plot."""
+def laid_out(draw, a: AnalyteResult, width: int, height: int, **options) -> pg.GraphicsLayoutWidget:  # type: ignore[no-untyped-def]
+    """One view drawn by ``draw`` (one of the ``draw_*`` functions) in a widget of ``width`` × ``height``
+    pixels that is never shown, its legend in a column of its own to the right of the plot, and laid out
+    as a shown one is: the axes sized to their tick labels, the data range fitted with 4 % padding.
+
+    The axes measure their labels as they do before they paint (on a recording, with their tick font);
+    measuring, laying out and fitting the range are repeated until the axes keep their size, so nothing
+    is painted on a screen to get there."""
     ensure_application()
+    from PySide6.QtWidgets import QApplication
+
     widget = pg.GraphicsLayoutWidget()
     widget.setBackground("w")
     widget.resize(width, height)
-    plot = widget.addPlot(row=0, col=0)
+    plot = widget.addPlot(row=0, col=0, enableMenu=False)  # never shown: no context menus to build
     legend = new_legend(int(options.get("font_size", 10)))
     draw(plot, a, legend=legend, **options)
     legend_beside(widget.ci, legend, row=0)
-    # lay the plot out as if shown, so that the axes size themselves to their tick labels
-    widget.show()
-    from PySide6.QtWidgets import QApplication
-
+    widget.resizeEvent(None)  # the layout takes the widget's size, as when it is first shown
+    QApplication.processEvents()
+    _measure_axes(plot)
     QApplication.processEvents()
     plot.getViewBox().autoRange(padding=0.04)
     QApplication.processEvents()
-    image = QImage(width, height, QImage.Format.Format_ARGB32)
-    image.fill(QColor("white"))
+    sizes = _measure_axes(plot)
+    for _ in range(4):  # new ticks may need wider labels, which narrow the plot: until the axes settle
+        QApplication.processEvents()
+        again = _measure_axes(plot)
+        if again == sizes:
+            break
+        sizes = again
+    return widget
+
+
+def _measure_axes(plot: pg.PlotItem) -> list[tuple[float, float]]:
+    """Let each axis measure its tick labels (what it does first when it paints), so that it asks the
+    layout for the room they take; returns the sizes the axes now keep."""
+    from PySide6.QtGui import QPainter, QPicture
+
+    sizes = []
+    for side in ("left", "bottom"):
+        axis = plot.getAxis(side)
+        recording = QPicture()
+        painter = QPainter(recording)
+        if axis.style["tickFont"]:
+            painter.setFont(axis.style["tickFont"])
+        axis.generateDrawSpecs(painter)
+        painter.end()
+        sizes.append((axis.textWidth, axis.textHeight))
+    return sizes
+
+
+def _paint_scene(widget: pg.GraphicsLayoutWidget, painter, *, vectors: bool) -> None:  # type: ignore[no-untyped-def]
+    """Paint the whole scene of ``widget`` on ``painter`` at its own size in pixels. With ``vectors``,
+    markers are drawn as shapes rather than from the on-screen cache of small images."""
+    from PySide6.QtCore import QRectF
     from PySide6.QtGui import QPainter
 
-    painter = QPainter(image)
+    scene = widget.scene()
+    whole = QRectF(0, 0, widget.width(), widget.height())
     painter.setRenderHint(QPainter.RenderHint.Antialiasing)
-    widget.render(painter)
+    scene.prepareForPaint()
+    items = [item for item in scene.items() if hasattr(item, "setExportMode")] if vectors else []
+    for item in items:
+        item.setExportMode(True, {"antialias": True, "background": QColor("white"), "painter": painter,
+                                  "resolutionScale": 1.0})
+    try:
+        scene.render(painter, whole, whole)
+    finally:
+        for item in items:
+            item.setExportMode(False)
+
+
+def _clip_polyline(x: np.ndarray, y: np.ndarray, box: tuple[float, float, float, float]) -> tuple[np.ndarray, np.ndarray]:
+    """The parts of the polyline (x, y) inside ``box`` = (x0, x1, y0, y1), each segment cut where it
+    crosses the box's edge (Liang–Barsky clipping); separate parts are separated by NaN."""
+    x0, x1, y0, y1 = box
+    xs: list[float] = []
+    ys: list[float] = []
+    for i in range(len(x) - 1):
+        ax, ay, bx, by = float(x[i]), float(y[i]), float(x[i + 1]), float(y[i + 1])
+        if not all(np.isfinite((ax, ay, bx, by))):
+            continue
+        dx, dy = bx - ax, by - ay
+        low, high = 0.0, 1.0
+        for p, q in ((-dx, ax - x0), (dx, x1 - ax), (-dy, ay - y0), (dy, y1 - ay)):
+            if p == 0:
+                if q < 0:
+                    low, high = 1.0, 0.0
+            elif p < 0:
+                low = max(low, q / p)
+            else:
+                high = min(high, q / p)
+        if low > high:
+            continue
+        start, end = (ax + low * dx, ay + low * dy), (ax + high * dx, ay + high * dy)
+        if not xs or (xs[-1], ys[-1]) != start:
+            if xs:
+                xs.append(np.nan)
+                ys.append(np.nan)
+            xs.append(start[0])
+            ys.append(start[1])
+        xs.append(end[0])
+        ys.append(end[1])
+    return np.asarray(xs), np.asarray(ys)
+
+
+def _trim_to_view(plot: pg.PlotItem) -> None:
+    """Cut the lines that do not set the plot's range (added with ``ignoreBounds``, such as the influence
+    limit that runs off the plot) to the plot's view, with a margin of 1 %. The view clips them as it
+    draws, so they look the same; a drawing of the figure then keeps no line outside it."""
+    view = plot.getViewBox()
+    (x0, x1), (y0, y1) = view.viewRange()
+    mx, my = 0.01 * (x1 - x0), 0.01 * (y1 - y0)
+    box = (x0 - mx, x1 + mx, y0 - my, y1 + my)
+    for item in view.childGroup.childItems():
+        if (isinstance(item, pg.PlotDataItem) and item not in view.addedItems and item.opts["pen"] is not None
+                and item.opts["symbol"] is None):
+            x, y = item.getData()
+            if x is None or not len(x):
+                continue
+            cx, cy = _clip_polyline(np.asarray(x, dtype=float), np.asarray(y, dtype=float), box)
+            item.setData(cx, cy, connect="finite")
+
+
+class Figure:
+    """One view recorded once as a drawing (lines, shapes and text, no pixels), to be painted at any size:
+    on the record's page as vectors (:meth:`paint`) or into an image (:meth:`image`).
+
+    ``width`` × ``height`` are the pixels the view was laid out in; the drawing keeps their proportions
+    and the sizes of text, lines and markers relative to them."""
+
+    def __init__(self, widget: pg.GraphicsLayoutWidget) -> None:
+        from PySide6.QtGui import QPainter, QPicture
+
+        self.width, self.height = widget.width(), widget.height()
+        _trim_to_view(widget.ci.getItem(0, 0))
+        self.picture = QPicture()
+        painter = QPainter(self.picture)
+        _paint_scene(widget, painter, vectors=True)
+        painter.end()
+
+    def paint(self, painter, rect) -> None:  # type: ignore[no-untyped-def]
+        """Draw the figure into ``rect`` (device units of ``painter``), scaled to its width."""
+        # a recording replays scaled by the device's resolution over its own (it is resolution
+        # independent), so the scale that maps its pixels onto rect is divided by that ratio
+        ratio = painter.device().logicalDpiX() / self.picture.logicalDpiX()
+        scale = rect.width() / self.width / ratio
+        painter.save()
+        painter.setClipRect(rect)
+        painter.translate(rect.left(), rect.top())
+        painter.scale(scale, scale)
+        painter.drawPicture(0, 0, self.picture)
+        painter.restore()
+
+
+def figure(draw, a: AnalyteResult, width: int = 1400, height: int = 820, **options) -> Figure:  # type: ignore[no-untyped-def]
+    """One view (``draw`` is one of the ``draw_*`` functions) laid out once off screen and recorded as a
+    :class:`Figure`, for the printed record."""
+    widget = laid_out(draw, a, width, height, **options)
+    try:
+        return Figure(widget)
+    finally:
+        widget.deleteLater()
+
+
+def render(draw, a: AnalyteResult, width: int = 1400, height: int = 820, **options) -> QImage:  # type: ignore[no-untyped-def]
+    """Draw one view off screen into an image (for exported plot images), its legend in a column of its
+    own to the right of the plot."""
+    from PySide6.QtGui import QPainter
+
+    widget = laid_out(draw, a, width, height, **options)
+    image = QImage(width, height, QImage.Format.Format_ARGB32_Premultiplied)  # the fast format to paint on
+    image.fill(QColor("white"))
+    painter = QPainter(image)
+    _paint_scene(widget, painter, vectors=False)
     painter.end()
     widget.deleteLater()
     return image

@@ -90,6 +90,14 @@ class ImageOp:
 
 
 @dataclass
+class FigureOp:
+    """A figure that paints itself into a rectangle (:class:`curvewright.app.figures.Figure`: vectors)."""
+
+    rect: QRectF
+    figure: object
+
+
+@dataclass
 class Page:
     ops: list = field(default_factory=list)
     section: str = ""
@@ -315,17 +323,24 @@ class RecordLayout:
         self.add(LineOp(self.left, self.y, self.left + sum(widths), self.y, "#777777", 0.8))
 
     # --- figures and signatures ------------------------------------------------------------------------
-    def figure(self, image: QImage, caption: str) -> None:
-        scale = self.width / image.width()
-        height = image.height() * scale
+    def figure(self, image, caption: str) -> None:  # type: ignore[no-untyped-def]
+        """A figure scaled to the text width, then its caption: ``image`` is a QImage, or an object with
+        ``width`` and ``height`` (its proportions) that paints itself with ``paint(painter, rect)``."""
+        if isinstance(image, QImage):
+            image_width, image_height = image.width(), image.height()
+        else:
+            image_width, image_height = image.width, image.height
+        scale = self.width / image_width
+        height = image_height * scale
         caption_lines = self.wrap("small", caption, self.width)
         needed = height + len(caption_lines) * self.m.line_height("small") + 2 * MM
         if needed > self.room():
             self.new_page()
         if needed > self.room():  # taller than a page: shrink to fit
             height = self.room() - len(caption_lines) * self.m.line_height("small") - 2 * MM
-        width = image.width() * height / image.height()
-        self.add(ImageOp(QRectF(self.left, self.y, min(width, self.width), height), image))
+        width = image_width * height / image_height
+        rect = QRectF(self.left, self.y, min(width, self.width), height)
+        self.add(ImageOp(rect, image) if isinstance(image, QImage) else FigureOp(rect, image))
         self.y += height + 1 * MM
         self.paragraph(caption, "small")
 
@@ -369,6 +384,8 @@ class RecordLayout:
             painter.fillRect(op.rect, QColor(op.colour))
         elif isinstance(op, ImageOp):
             painter.drawImage(op.rect, op.image)
+        elif isinstance(op, FigureOp):
+            op.figure.paint(painter, op.rect)
 
     def _running(self, painter: QPainter, page: Page, number: int, total: int) -> None:
         line_h = self.m.line_height("running")

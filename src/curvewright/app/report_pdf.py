@@ -2,9 +2,10 @@
 
 The content is placed with :class:`curvewright.app.record_layout.RecordLayout` (measured in the
 fonts it is printed in, rows never split, headers repeated, figures scaled to the text width) and
-painted on a QPdfWriter at 300 dpi. The PDF carries its title, author (the analyst), subject,
-creator and creation date, in the document information dictionary and in the XMP metadata.
-Works offscreen.
+painted on a QPdfWriter at 300 dpi. Each figure is laid out once off screen and painted on its page
+as lines, shapes and text (:func:`curvewright.app.figures.figure`), not as an image. The PDF carries
+its title, author (the analyst), subject, creator and creation date, in the document information
+dictionary and in the XMP metadata. Works offscreen.
 """
 
 from __future__ import annotations
@@ -23,7 +24,8 @@ from . import figures
 from .qt_runtime import ensure_application
 
 FIGURE_PIXELS = {"curve": (1800, 980), "residuals": (1800, 720), "influence": (1800, 720)}
-"""Pixels of each figure as drawn; printed at the text width (178 mm), about 250 dpi."""
+"""Pixels each figure is laid out in (its proportions, and the sizes of its text, lines and markers
+relative to it); it is printed as vectors at the text width (178 mm)."""
 
 
 def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
@@ -57,8 +59,8 @@ def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
                 options["level"] = level
             if block.kind in ("curve", "residuals"):
                 options["log_x"] = figures.wide_range(analyte)
-            image = figures.render(draw[block.kind], analyte, *FIGURE_PIXELS[block.kind], **options)
-            layout.figure(image, block.caption)
+            drawn = figures.figure(draw[block.kind], analyte, *FIGURE_PIXELS[block.kind], **options)
+            layout.figure(drawn, block.caption)
         elif isinstance(block, SignatureLines):
             layout.signatures(list(block.lines))
     return layout
