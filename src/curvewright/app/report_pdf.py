@@ -51,7 +51,7 @@ def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
             layout.table(table.title, list(table.headings), [list(r) for r in table.rows], list(table.numeric),
                          table.note)
         elif isinstance(block, FigureSlot) and block.kind == "additions":
-            layout.figure(additions_image(content, block), block.caption)
+            layout.figure(additions_figure(content, block), block.caption)
         elif isinstance(block, FigureSlot):
             analyte = content.result.analyte(block.analyte)
             options: dict[str, object] = {"font_size": 20}
@@ -66,17 +66,18 @@ def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
     return layout
 
 
-def additions_image(content: ReportContent, block: FigureSlot):  # type: ignore[no-untyped-def]
-    """The standard-addition series of one sample drawn as the app's Standard additions tab draws it."""
+def additions_figure(content: ReportContent, block: FigureSlot):  # type: ignore[no-untyped-def]
+    """The standard-addition series of one sample drawn as the app's Standard additions tab draws it,
+    recorded as a :class:`figures.Figure` (painted on the page as vectors, as the other figures are)."""
     from .additions_view import draw_additions
 
     analyte = content.result.analyte(block.analyte)
     series = next(s for s in analyte.additions if s.sample_id == block.sample)
-    return figures.render(draw_additions, analyte, *ADDITIONS_PIXELS, series=series, font_size=20)
+    return figures.figure(draw_additions, analyte, *ADDITIONS_PIXELS, series=series, font_size=20)
 
 
 ADDITIONS_PIXELS = (1800, 900)
-"""Pixels of a standard-additions figure as drawn; printed at the text width."""
+"""Size of a standard-additions figure as laid out (pixels of its off-screen view); printed at the text width."""
 
 
 def xmp_metadata(content: ReportContent) -> bytes:
