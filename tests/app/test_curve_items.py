@@ -57,9 +57,11 @@ def test_an_edit_gives_the_kept_plot_items_new_data_and_keeps_the_results_select
     model = window.standards_model
     old = float(model.standards[0].response.value)
     type_into(qtbot, window.standards_view, model.index(0, sm.RESP), f"{old * 1.5:.6g}")
+    # the edit is committed from the event loop: wait for the run to hold it before waiting for its analysis
+    qtbot.waitUntil(lambda: float(window.session.run.analytes[0].standards[0].response.value)
+                    == float(f"{old * 1.5:.6g}"), timeout=10000)
     settle(qtbot, window)
     assert answer_dialogs.last_title == "Why does this value change?"
-    assert float(window.session.run.analytes[0].standards[0].response.value) == float(f"{old * 1.5:.6g}")
 
     # the same items, no item made or dropped, now holding the new fit's data
     assert view.curve_items.curve is curve and view.curve_items.standards is standards
