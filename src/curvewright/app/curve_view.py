@@ -172,7 +172,6 @@ class _CurveItems(_KeptPlot):
         changed."""
         from ..core.curve_trace import curve_trace
         from ..core.run import SampleKind
-        from ..core.run_analysis import response_value
 
         self.begin()
         cal = a.calibration
@@ -209,25 +208,15 @@ class _CurveItems(_KeptPlot):
         shown = cal.concentration > 0 if log_x else np.ones(cal.n_standards, dtype=bool)
         self.show(self.standards, tx(cal.concentration[shown]), ty(cal.response[shown]), name="standard in the fit",
                   named=True)
-        ex_x, ex_y = [], []
-        for s in a.excluded_standards:
-            used, _ = response_value(s.response, s.internal_standard_response, a.analyte.uses_internal_standard)
-            if used is not None and (s.concentration > 0 or not log_x) and (used > 0 or not log_y):
-                ex_x.append(float(tx(s.concentration)))
-                ex_y.append(float(ty(used)))
+        ex_x, ex_y = figures.excluded_points(a, tx, ty, log_x, log_y)
         if ex_x:
             self.show(self.excluded, ex_x, ex_y, name="standard excluded", named=True)
             self.show(self.excluded_cross, ex_x, ex_y)
         for kind, label in ((SampleKind.UNKNOWN, "unknown"), (SampleKind.QC, "QC sample")):
-            chosen = [s for s in a.samples if s.kind is kind and s.estimate is not None
-                      and (s.estimate > 0 or not log_x) and (s.mean_response > 0 or not log_y)]
-            if not chosen:
+            drawn = figures.sample_points(a, kind, tx, ty, log_x, log_y)
+            if drawn is None:
                 continue
-            sy = ty([s.mean_response for s in chosen])
-            lo_raw = [s.lower if s.lower is not None and np.isfinite(s.lower) and (s.lower > 0 or not log_x) else s.estimate
-                      for s in chosen]
-            hi_raw = [s.upper if s.upper is not None and np.isfinite(s.upper) else s.estimate for s in chosen]
-            sx, lo, hi = tx([s.estimate for s in chosen]), tx(lo_raw), tx(hi_raw)
+            sx, sy, lo, hi = drawn
             bars, points = self.samples[kind]
             self.show(bars, x=sx, y=sy, left=sx - lo, right=hi - sx)
             self.show(points, sx, sy, name=f"{label} with interval", named=True)

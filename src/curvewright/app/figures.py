@@ -117,7 +117,6 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
     """Fill ``plot`` with the calibration view of one analyte (zero concentrations are left off a log axis);
     its entries go into ``legend``, which the caller places outside the plot."""
     from ..core.curve_trace import curve_trace  # the engine is loaded by the time a result is drawn
-    from ..core.run_analysis import response_value
 
     cal = a.calibration
     unit = a.analyte.concentration_unit
@@ -163,12 +162,7 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
     _name(legend, plot.plot(tx(cal.concentration[shown]), ty(cal.response[shown]), pen=None, symbol=palette.SYMBOL_INCLUDED,
                             symbolSize=8, symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8),
                             name="standard in the fit"), "standard in the fit")
-    ex_x, ex_y = [], []
-    for s in a.excluded_standards:
-        used, _ = response_value(s.response, s.internal_standard_response, a.analyte.uses_internal_standard)
-        if used is not None and (s.concentration > 0 or not log_x) and (used > 0 or not log_y):
-            ex_x.append(float(tx(s.concentration)))
-            ex_y.append(float(ty(used)))
+    ex_x, ex_y = excluded_points(a, tx, ty, log_x, log_y)
     if ex_x:
         _name(legend, plot.plot(ex_x, ex_y, pen=None, symbol=palette.SYMBOL_EXCLUDED, symbolSize=10, symbolBrush=None,
                                 symbolPen=pg.mkPen(palette.EXCLUDED, width=2), name="standard excluded"),
@@ -176,19 +170,42 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
         plot.plot(ex_x, ex_y, pen=None, symbol="x", symbolSize=7, symbolBrush=palette.EXCLUDED, symbolPen=None)
     for kind, colour, symbol, label in ((SampleKind.UNKNOWN, palette.UNKNOWN, palette.SYMBOL_UNKNOWN, "unknown"),
                                         (SampleKind.QC, palette.QC, palette.SYMBOL_QC, "QC sample")):
-        chosen = [s for s in a.samples if s.kind is kind and s.estimate is not None
-                  and (s.estimate > 0 or not log_x) and (s.mean_response > 0 or not log_y)]
-        if not chosen:
+        points = sample_points(a, kind, tx, ty, log_x, log_y)
+        if points is None:
             continue
-        sy = ty([s.mean_response for s in chosen])
-        lo_raw = [s.lower if s.lower is not None and np.isfinite(s.lower) and (s.lower > 0 or not log_x) else s.estimate
-                  for s in chosen]
-        hi_raw = [s.upper if s.upper is not None and np.isfinite(s.upper) else s.estimate for s in chosen]
-        sx, lo, hi = tx([s.estimate for s in chosen]), tx(lo_raw), tx(hi_raw)
+        sx, sy, lo, hi = points
         plot.addItem(pg.ErrorBarItem(x=sx, y=sy, left=sx - lo, right=hi - sx, beam=0, pen=pg.mkPen(colour, width=1.5)))
         _name(legend, plot.plot(sx, sy, pen=None, symbol=symbol, symbolSize=9, symbolBrush=colour,
                                 symbolPen=pg.mkPen("w", width=0.6), name=f"{label} with interval"),
               f"{label} with interval")
+
+
+def excluded_points(a: AnalyteResult, tx, ty, log_x: bool, log_y: bool) -> tuple[list[float], list[float]]:  # type: ignore[no-untyped-def]
+    """The excluded standards that have a usable response and a place on the axes, as plotted
+    (concentration and response through the axis transforms ``tx`` and ``ty``)."""
+    from ..core.run_analysis import response_value
+
+    ex_x, ex_y = [], []
+    for s in a.excluded_standards:
+        used, _ = response_value(s.response, s.internal_standard_response, a.analyte.uses_internal_standard)
+        if used is not None and (s.concentration > 0 or not log_x) and (used > 0 or not log_y):
+            ex_x.append(float(tx(s.concentration)))
+            ex_y.append(float(ty(used)))
+    return ex_x, ex_y
+
+
+def sample_points(a: AnalyteResult, kind, tx, ty, log_x: bool, log_y: bool):  # type: ignore[no-untyped-def]
+    """The samples of ``kind`` with an estimate that the axes can show, as plotted: estimate, mean
+    response, and the interval's ends (an end that is missing, open or off a log axis drawn at the
+    estimate), each through the axis transforms ``tx`` and ``ty``; None when there is none."""
+    chosen = [s for s in a.samples if s.kind is kind and s.estimate is not None
+              and (s.estimate > 0 or not log_x) and (s.mean_response > 0 or not log_y)]
+    if not chosen:
+        return None
+    lo_raw = [s.lower if s.lower is not None and np.isfinite(s.lower) and (s.lower > 0 or not log_x) else s.estimate
+              for s in chosen]
+    hi_raw = [s.upper if s.upper is not None and np.isfinite(s.upper) else s.estimate for s in chosen]
+    return tx([s.estimate for s in chosen]), ty([s.mean_response for s in chosen]), tx(lo_raw), tx(hi_raw)
 
 
 def draw_anchor_points(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,

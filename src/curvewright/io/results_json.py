@@ -109,24 +109,18 @@ def _pieces(value: Any, level: int) -> Iterable[str]:
             yield ("," if i else "") + inner + json.dumps(str(key), ensure_ascii=False) + ": "
             yield from _pieces(item, level + 1)
         yield "\n" + " " * level + "}"
-    elif isinstance(value, Rows):
+    elif isinstance(value, (list, tuple, Rows)):
         if len(value) == 0:
             yield "[]"
             return
         inner = "\n" + " " * (level + 1)
-        yield "["
-        for i, row in enumerate(value):
-            yield ("," if i else "") + inner + _row_line(row)
-        yield "\n" + " " * level + "]"
-    elif isinstance(value, (list, tuple)):
-        if len(value) == 0:
-            yield "[]"
-            return
-        inner = "\n" + " " * (level + 1)
+        made_as_rows = isinstance(value, Rows)  # its maker gives rows: no need to look inside each
         yield "["
         for i, item in enumerate(value):
             yield "," if i else ""
-            if _is_row(item):
+            if made_as_rows:
+                yield inner + _row_line(item)
+            elif _is_row(item):
                 yield inner + _one_line(item)
             else:
                 yield inner
