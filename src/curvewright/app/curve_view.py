@@ -266,12 +266,9 @@ class _LowerItems(_KeptPlot):
         self.labels(_concentration_label(a), "%RE", log_x)
         tx = self._axis(cal, log_x)
         x = tx(cal.concentration)
-        judged_levels = np.unique(x[verdict.judged])
-        if judged_levels.size:
-            tol_at = np.array([verdict.tolerance_percent[x == lv][0] for lv in judged_levels])
-            mids = (judged_levels[1:] + judged_levels[:-1]) / 2
-            spread = (judged_levels[-1] - judged_levels[0]) or abs(judged_levels[0]) or 1.0
-            edges = np.concatenate([[judged_levels[0] - 0.03 * spread], mids, [judged_levels[-1] + 0.03 * spread]])
+        steps = figures.acceptance_steps(x, verdict)
+        if steps is not None:
+            edges, tol_at = steps
             self.show(self.limit_upper, edges, tol_at, name="acceptance limit", named=True)
             self.show(self.limit_lower, edges, -tol_at)
         self.show(self.re_zero)

@@ -256,13 +256,9 @@ def draw_relative_errors(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.Lege
         plot.setLabel("bottom", plot.getAxis("bottom").labelText + " (log scale)")
     with np.errstate(divide="ignore"):
         x = tx(cal.concentration)
-    # acceptance limits as steps: each judged level's tolerance held from midway to its neighbours
-    judged_levels = np.unique(x[verdict.judged])
-    if judged_levels.size:
-        tol_at = np.array([verdict.tolerance_percent[x == lv][0] for lv in judged_levels])
-        mids = (judged_levels[1:] + judged_levels[:-1]) / 2
-        spread = (judged_levels[-1] - judged_levels[0]) or abs(judged_levels[0]) or 1.0
-        edges = np.concatenate([[judged_levels[0] - 0.03 * spread], mids, [judged_levels[-1] + 0.03 * spread]])
+    steps = acceptance_steps(x, verdict)
+    if steps is not None:
+        edges, tol_at = steps
         limit_pen = pg.mkPen(palette.LIMIT, width=1.2, style=Qt.PenStyle.DashLine)
         _name(legend, plot.plot(edges, tol_at, stepMode="center", pen=limit_pen, name="acceptance limit"),
               "acceptance limit")
@@ -278,6 +274,20 @@ def draw_relative_errors(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.Lege
         outside = plot.plot(x[failing], cal.relative_error[failing], pen=None, symbol="star", symbolSize=12,
                             symbolBrush=palette.FLAGGED, symbolPen=None)
         _name(legend, outside, "outside the limits")
+
+
+def acceptance_steps(x: np.ndarray, verdict) -> tuple[np.ndarray, np.ndarray] | None:  # type: ignore[no-untyped-def]
+    """The acceptance limits as steps over the plotted concentrations ``x``: each judged level's
+    tolerance (%) held from midway to its neighbours; the step edges and the tolerances, or None
+    when no standard is judged."""
+    judged_levels = np.unique(x[verdict.judged])
+    if not judged_levels.size:
+        return None
+    tol_at = np.array([verdict.tolerance_percent[x == lv][0] for lv in judged_levels])
+    mids = (judged_levels[1:] + judged_levels[:-1]) / 2
+    spread = (judged_levels[-1] - judged_levels[0]) or abs(judged_levels[0]) or 1.0
+    edges = np.concatenate([[judged_levels[0] - 0.03 * spread], mids, [judged_levels[-1] + 0.03 * spread]])
+    return edges, tol_at
 
 
 def draw_residuals(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None, log_x: bool = False,
