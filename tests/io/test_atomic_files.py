@@ -3,6 +3,7 @@ followed through a link, messages that say exactly what is where, and no left-ov
 
 from __future__ import annotations
 
+import importlib.util
 import os
 import stat
 import subprocess
@@ -235,9 +236,14 @@ def test_an_output_that_is_an_input_is_refused(tmp_path) -> None:
 
 
 @POSIX
-def test_a_full_disk_prints_no_stray_tracebacks_and_leaves_no_temporaries(tmp_path) -> None:
+@pytest.mark.parametrize("use_lxml", [True, False], ids=["lxml writer", "standard-library writer"])
+def test_a_full_disk_prints_no_stray_tracebacks_and_leaves_no_temporaries(tmp_path, use_lxml: bool) -> None:
+    if use_lxml and importlib.util.find_spec("lxml") is None:
+        pytest.skip("lxml is not installed here: openpyxl writes with the standard library")
     script = textwrap.dedent("""
         import resource, signal, sys
+        import openpyxl
+        assert openpyxl.LXML is (sys.argv[3] == "True")  # the writer asked for is the one used
         from curvewright.core.run_analysis import analyse_run
         from curvewright.io.errors import ExportError
         from curvewright.io.run_document import open_run
@@ -253,9 +259,10 @@ def test_a_full_disk_prints_no_stray_tracebacks_and_leaves_no_temporaries(tmp_pa
     scratch = tmp_path / "scratch"
     scratch.mkdir()
     demo = ROOT / "sample_runs" / "veltaprine_plasma_weighted.json"
-    result = subprocess.run([sys.executable, "-W", "error", "-c", script, str(demo), str(tmp_path / "results.xlsx")],
-                            capture_output=True, text=True, timeout=120,
-                            env={**os.environ, "PYTHONPATH": os.pathsep.join(sys.path), "TMPDIR": str(scratch)})
+    result = subprocess.run([sys.executable, "-W", "error", "-c", script, str(demo), str(tmp_path / "results.xlsx"),
+                             str(use_lxml)], capture_output=True, text=True, timeout=120,
+                            env={**os.environ, "PYTHONPATH": os.pathsep.join(sys.path), "TMPDIR": str(scratch),
+                                 "OPENPYXL_LXML": str(use_lxml)})
     assert "results.xlsx: not written (File too large)" in result.stdout, result.stdout + result.stderr
     assert result.stderr == ""  # no "Exception ignored" traceback from the workbook writer
     assert result.returncode == 0 and temporaries(tmp_path) == [] and list(scratch.iterdir()) == []

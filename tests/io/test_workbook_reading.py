@@ -223,3 +223,39 @@ def test_a_good_workbook_still_reads(tmp_path) -> None:
     path = tmp_path / "good.xlsx"
     path.write_bytes(shared_string_workbook(TWO_STRINGS, GOOD_ROWS))
     assert table_from_xlsx(path).rows == (("Concentration", "Response"), (1.0, 10.5), (2.0, 20.25))
+
+
+
+DAMAGED_MESSAGE = r"""
+import sys
+from pathlib import Path
+import openpyxl
+from curvewright.io.errors import ImportProblem
+from curvewright.io.tables import table_from_xlsx
+try:
+    table_from_xlsx(Path(sys.argv[1]))
+except ImportProblem as exc:
+    print(openpyxl.LXML)
+    print(exc)
+"""
+
+
+@pytest.mark.parametrize("use_lxml", [True, False], ids=["lxml reader", "standard-library reader"])
+def test_malformed_xml_is_placed_alike_by_either_xml_reader(tmp_path, use_lxml: bool) -> None:
+    """The XLSX reader parses with lxml where it is installed (a dependency), else with the standard
+    library, which counts columns from 0 where lxml counts from 1; the message counts from 1 either way."""
+    import importlib.util
+    import os
+
+    if use_lxml and importlib.util.find_spec("lxml") is None:
+        pytest.skip("lxml is not installed here: the reader parses with the standard library")
+    path = tmp_path / "cal.xlsx"
+    # an attribute value without quotes: the 15th character of line 1 is where a quote must be
+    path.write_bytes(rezip(workbook_bytes(), {"xl/styles.xml": lambda _x: b"<styleSheet a=1/>"}))
+    done = subprocess.run([sys.executable, "-c", DAMAGED_MESSAGE, str(path)], capture_output=True, text=True,
+                          env={**os.environ, "OPENPYXL_LXML": str(use_lxml)}, cwd=ROOT, timeout=300)
+    assert done.returncode == 0, done.stderr[-2000:]
+    used, message = done.stdout.strip().splitlines()
+    assert used == str(use_lxml)  # the reader asked for is the one used
+    assert message == (f"{path}: not a readable XLSX workbook (malformed XML in part xl/styles.xml at line 1, "
+                       "column 15); open it in the spreadsheet program and save it again as .xlsx.")

@@ -227,13 +227,19 @@ def _open_workbook(path: Path, data: bytes):  # type: ignore[no-untyped-def]
 
 
 def _damage(exc: BaseException, part: str | None = None) -> str:
-    """What is wrong with a damaged workbook, in words (the reader wraps the first cause)."""
-    from xml.etree.ElementTree import ParseError
+    """What is wrong with a damaged workbook, in words (the reader wraps the first cause).
 
+    The XLSX reader parses with lxml (a dependency, for speed) or, where it is absent, with the
+    standard library's ElementTree. Both report malformed XML as a ``SyntaxError`` subclass with a
+    ``position`` (line, column); ElementTree counts columns from 0 and lxml from 1, and the message
+    gives the column counted from 1 whichever parsed the part.
+    """
     while exc.__cause__ is not None:
         exc = exc.__cause__
-    if isinstance(exc, ParseError):
-        line, column = getattr(exc, "position", (0, 0))
+    if isinstance(exc, SyntaxError) and isinstance(getattr(exc, "position", None), tuple):
+        line, column = exc.position  # type: ignore[attr-defined]
+        if not type(exc).__module__.startswith("lxml"):
+            column += 1
         return f"malformed XML{f' in part {part}' if part else ''} at line {line}, column {column}"
     if isinstance(exc, KeyError):
         return f"a part it refers to is missing: {exc.args[0] if exc.args else exc}"
