@@ -7,7 +7,7 @@ Problem
 Method
     Levenberg–Marquardt with a trust region and scaling by the columns of the Jacobian (Moré, "The
     Levenberg–Marquardt algorithm: implementation and theory", Lecture Notes in Mathematics 630,
-    1978), as implemented by MINPACK's ``lmder`` behind ``scipy.optimize.least_squares(method="lm")``.
+    1978), as implemented by MINPACK's ``lmder`` (called through ``scipy.optimize.leastsq``).
     The model gives its own analytic Jacobian ∂f/∂β; the fitter never differences numerically.
     Tolerances on the relative change of S, of β and on the gradient are 1e-15, so the fit stops
     only when double precision can improve nothing more.
@@ -47,6 +47,8 @@ ModelFunction = Callable[[FloatArray, FloatArray], FloatArray]
 JacobianFunction = Callable[[FloatArray, FloatArray], FloatArray]
 """∂f/∂β at (x, β) → array of shape (n, p)."""
 
+_STATUS = {1: 2, 2: 3, 3: 4, 4: 1, 5: 0}
+"""MINPACK's info code → the stop reason of :data:`_STOP_WORDS` (0: out of evaluations; missing: improper input)."""
 _STOP_WORDS = {
     1: "the gradient of the sum of squares vanished (to 1e-15 relative)",
     2: "the sum of squares stopped decreasing (relative change below 1e-15)",
@@ -140,16 +142,23 @@ def fit_nonlinear(
 
     if not np.all(np.isfinite(beta0)):
         return _failed(function, jacobian, x, y, beta0, root_w, 0, "the start values are not all finite numbers")
+    if n < p:
+        return _failed(function, jacobian, x, y, beta0, root_w, 0,
+                       f"the fit could not start ({n} standards for {p} parameters)")
     try:
-        result = optimize.least_squares(
-            residuals, beta0, jac=weighted_jacobian, method="lm", x_scale="jac",
-            ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, max_nfev=limit,
+        # MINPACK's lmder itself (mode 1: the scaling follows the Jacobian's column norms, step bound
+        # factor 100); the same iterations as least_squares(method="lm", x_scale="jac"), without its
+        # per-call set-up, which costs more than the fit on a few dozen standards.
+        beta, _, info, _, code = optimize.leastsq(
+            residuals, beta0, Dfun=weighted_jacobian, full_output=True, col_deriv=False,
+            ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, maxfev=limit, factor=100.0, diag=None,
         )
-    except (ValueError, np.linalg.LinAlgError) as exc:  # improper input reported by MINPACK
+    except (ValueError, TypeError, np.linalg.LinAlgError) as exc:  # improper input reported by MINPACK
         return _failed(function, jacobian, x, y, beta0, root_w, 0, f"the fit could not start ({exc})")
-    beta = np.asarray(result.x, dtype=np.float64)
-    evaluations = int(result.nfev)
-    if result.status > 0:
+    status = _STATUS.get(int(code), -1)
+    beta = np.asarray(beta, dtype=np.float64)
+    evaluations = int(info["nfev"])
+    if status > 0:
         beta, extra = _refine(residuals, weighted_jacobian, beta)
         evaluations += extra
     with np.errstate(all="ignore"):
@@ -161,10 +170,10 @@ def fit_nonlinear(
             function, jacobian, x, y, beta, root_w, evaluations,
             "the curve or its derivatives stopped being finite numbers at the last parameters reached",
         )
-    if result.status <= 0:
+    if status <= 0:
         reason = (
             f"no minimum was reached within {limit} evaluations of the curve"
-            if result.status == 0 else f"the fit stopped: {result.message}"
+            if status == 0 else f"the fit stopped: MINPACK reported code {int(code)} (improper input)"
         )
         return _result(beta, j, fitted, r, n, p, evaluations, False, reason)
     s = _scaled_svd(j)[1]
@@ -174,7 +183,7 @@ def fit_nonlinear(
             "the data cannot separate the parameters at the point reached (the curve's derivatives "
             "with respect to them are linearly dependent over these concentrations)",
         )
-    return _result(beta, j, fitted, r, n, p, evaluations, True, _STOP_WORDS.get(int(result.status), str(result.message)))
+    return _result(beta, j, fitted, r, n, p, evaluations, True, _STOP_WORDS[status])
 
 
 def _refine(
