@@ -28,7 +28,7 @@ Convergence
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 from scipy import optimize
@@ -98,11 +98,13 @@ class NonlinearFit:
     converged: bool
     reason: str
     evaluations: int
+    scaled_u: FloatArray | None = field(default=None, repr=False)
+    """U of the SVD of the column-scaled weighted Jacobian at β̂, when the fit computed it."""
 
     @property
     def leverage(self) -> FloatArray:
         """Diagonal of the tangent-plane hat matrix J(JᵀJ)⁻¹Jᵀ (Bates & Watts 1988, §4.3)."""
-        u = _scaled_svd(self.weighted_jacobian)[0]
+        u = self.scaled_u if self.scaled_u is not None else _scaled_svd(self.weighted_jacobian)[0]
         return np.einsum("ij,ij->i", u, u)
 
 
@@ -158,8 +160,9 @@ def fit_nonlinear(
     status = _STATUS.get(int(code), -1)
     beta = np.asarray(beta, dtype=np.float64)
     evaluations = int(info["nfev"])
+    svd = None
     if status > 0:
-        beta, extra = _refine(residuals, weighted_jacobian, beta)
+        beta, extra, svd = _refine(residuals, weighted_jacobian, beta)
         evaluations += extra
     with np.errstate(all="ignore"):
         fitted = function(x, beta)
@@ -176,19 +179,21 @@ def fit_nonlinear(
             if status == 0 else f"the fit stopped: MINPACK reported code {int(code)} (improper input)"
         )
         return _result(beta, j, fitted, r, n, p, evaluations, False, reason)
-    s = _scaled_svd(j)[1]
+    # the refinement's SVD was taken of this same Jacobian (weighted_jacobian(β) is j when j is finite)
+    svd = svd if svd is not None else _scaled_svd(j)
+    s = svd[1]
     if s.size < p or s[-1] <= RANK_TOLERANCE * s[0]:
         return _result(
             beta, j, fitted, r, n, p, evaluations, False,
             "the data cannot separate the parameters at the point reached (the curve's derivatives "
             "with respect to them are linearly dependent over these concentrations)",
         )
-    return _result(beta, j, fitted, r, n, p, evaluations, True, _STOP_WORDS[status])
+    return _result(beta, j, fitted, r, n, p, evaluations, True, _STOP_WORDS[status], svd)
 
 
 def _refine(
     residuals: Callable[[FloatArray], FloatArray], jacobian: Callable[[FloatArray], FloatArray], beta: FloatArray
-) -> tuple[FloatArray, int]:
+) -> tuple[FloatArray, int, tuple[FloatArray, FloatArray, FloatArray, FloatArray]]:
     """Up to three full Gauss–Newton steps from the converged point, each kept while it brings the
     gradient of S closer to zero.
 
@@ -197,7 +202,8 @@ def _refine(
     √ε times the parameters' standard errors (a few parts in 10⁸ where those are large). The gradient
     Jᵀr vanishes linearly there, so it locates the minimum to about ε times the condition number.
     A Gauss–Newton step, solved through the SVD of the column-scaled Jacobian, is kept while the
-    scaled gradient shrinks, which gives the same parameters in any units.
+    scaled gradient shrinks, which gives the same parameters in any units. Returns the parameters,
+    the evaluations made and the SVD of the column-scaled Jacobian at them (:func:`_scaled_svd`).
     """
     r = residuals(beta)
     j = jacobian(beta)
@@ -217,7 +223,7 @@ def _refine(
             break
         beta, r, gradient = trial, r_trial, gradient_trial
         u, s, vt, scale = u_t, s_t, vt_t, scale_t
-    return beta, evaluations
+    return beta, evaluations, (u, s, vt, scale)
 
 
 def _scaled_svd(j: FloatArray) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
@@ -231,13 +237,16 @@ def _scaled_svd(j: FloatArray) -> tuple[FloatArray, FloatArray, FloatArray, Floa
 def _result(
     beta: FloatArray, j: FloatArray, fitted: FloatArray, r: FloatArray, n: int, p: int,
     evaluations: int, converged: bool, reason: str,
+    svd: tuple[FloatArray, FloatArray, FloatArray, FloatArray] | None = None,
 ) -> NonlinearFit:
+    """The fit's record; ``svd`` is :func:`_scaled_svd` of ``j`` when the caller has it already."""
     df = n - p
     sse = float(r @ r)
     residual_sd = float(np.sqrt(sse / df)) if df > 0 else float("nan")
     unscaled = np.full((p, p), np.nan)
+    u = None
     if converged:
-        _, s, vt, scale = _scaled_svd(j)
+        u, s, vt, scale = svd if svd is not None else _scaled_svd(j)
         # (JᵀJ)⁻¹ = D⁻¹·V·diag(1/s²)·Vᵀ·D⁻¹
         unscaled = ((vt.T / s) @ (vt.T / s).T) / np.outer(scale, scale)
     covariance = residual_sd**2 * unscaled
@@ -255,6 +264,7 @@ def _result(
         converged=converged,
         reason=reason,
         evaluations=evaluations,
+        scaled_u=None if u is None else frozen(u),
     )
 
 
