@@ -135,12 +135,14 @@ def fit_nonlinear(
         with np.errstate(all="ignore"):
             r = root_w * (function(x, beta) - y)
         # A non-finite residual makes MINPACK wander; a huge finite one makes it step back instead.
-        return np.where(np.isfinite(r), r, 1e150)
+        finite = np.isfinite(r)
+        return r if finite.all() else np.where(finite, r, 1e150)
 
     def weighted_jacobian(beta: FloatArray) -> FloatArray:
         with np.errstate(all="ignore"):
             j = root_w[:, None] * jacobian(x, beta)
-        return np.where(np.isfinite(j), j, 0.0)
+        finite = np.isfinite(j)
+        return j if finite.all() else np.where(finite, j, 0.0)
 
     if not np.all(np.isfinite(beta0)):
         return _failed(function, jacobian, x, y, beta0, root_w, 0, "the start values are not all finite numbers")
