@@ -130,3 +130,20 @@ def test_distribution_functions_match_scipy_stats() -> None:
         assert t_quantile(0.975, df) == pytest.approx(stats.t.ppf(0.975, df), rel=1e-13)
         assert f_upper_tail(2.7, 3, df) == pytest.approx(stats.f.sf(2.7, 3, df), rel=1e-12)
         assert f_quantile(0.99, df, 9) == pytest.approx(stats.f.ppf(0.99, df, 9), rel=1e-12)
+
+
+@pytest.mark.parametrize("tolerance", [None, 0.0, 0.005, 0.3])
+def test_levels_without_labels_are_those_of_empty_labels(tolerance: float | None) -> None:
+    # Standards without labels are grouped by the sorted values directly; empty labels take the
+    # general path (labels first, then renumbering by mean concentration). Both must give the same
+    # levels, numbers, means, counts and exactness, bit for bit.
+    rng = np.random.default_rng(15)
+    for _ in range(300):
+        n = int(rng.integers(1, 25))
+        x = rng.choice([0.0, 0.1, 0.3, 1.0, 1.001, 2.0, 2.004, 5.0, -1.0, 1e-300, 1e300], n)
+        x = x * np.where(rng.random(n) < 0.4, 1 + rng.uniform(-0.004, 0.004, n), 1.0)
+        fast, general = group_levels(x, tolerance), group_levels(x, tolerance, [""] * n)
+        assert fast.index.tolist() == general.index.tolist()
+        assert fast.concentration.tolist() == general.concentration.tolist()
+        assert fast.count.tolist() == general.count.tolist()
+        assert fast.exact is general.exact

@@ -278,10 +278,12 @@ class AcceptanceProfile:
             + (f"; {unusable} standard(s) without a usable value counted as not passing" if unusable else "")
             + (f"; {int(anchors.sum())} anchor point(s) fitted but not judged" if anchors.any() else "")
         )
-        level_pass = []
-        for j in nonzero_levels:
-            at = levels.index == j
-            level_pass.append(Fraction(int(passing[at].sum()), int(at.sum())) >= rules.min_fraction_passing_per_level)
+        # a level passes when passing/standards ≥ the fraction required, compared exactly in integers
+        needed = Fraction(rules.min_fraction_passing_per_level)
+        per_level = np.bincount(levels.index, minlength=levels.n_levels)[nonzero_levels]
+        passing_per_level = np.bincount(levels.index[passing], minlength=levels.n_levels)[nonzero_levels]
+        level_pass = [bool(a * needed.denominator >= needed.numerator * b)
+                      for a, b in zip(passing_per_level.tolist(), per_level.tolist(), strict=True)]
         n_levels = int(nonzero_levels.size)
         n_levels_pass = int(sum(level_pass))
         levels_ok = n_levels >= rules.min_levels

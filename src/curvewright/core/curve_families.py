@@ -176,9 +176,12 @@ def _power(x: FloatArray, p: FloatArray) -> FloatArray:
 def _power_jacobian(x: FloatArray, p: FloatArray) -> FloatArray:
     a, b = p
     x = np.asarray(x, dtype=np.float64)
+    out = np.empty(x.shape + (2,))
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         xb = x**b
-        return np.stack([xb, a * xb * np.log(x)], axis=-1)
+        out[..., 0] = xb
+        out[..., 1] = a * xb * np.log(x)
+    return out
 
 
 def _power_slope(x: FloatArray, p: FloatArray) -> FloatArray:

@@ -118,6 +118,12 @@ class Influence:
     notes: tuple[str, ...] = field(default=())
 
 
+_FLAG_SETS: tuple[tuple[InfluenceFlag, ...], ...] = (
+    (), (InfluenceFlag.OUTLIER,), (InfluenceFlag.INFLUENTIAL,), (InfluenceFlag.OUTLIER, InfluenceFlag.INFLUENTIAL),
+    (InfluenceFlag.DETERMINES_FIT,), (InfluenceFlag.NOT_STUDENTIZED,),
+)
+
+
 def measure_influence(
     weighted_residuals: FloatArray,
     leverage: FloatArray,
@@ -165,14 +171,9 @@ def measure_influence(
     with np.errstate(invalid="ignore"):
         outlier = np.abs(external) > studentized_threshold
         influential = (cooks > cooks_threshold) & (np.abs(external) > influence_thresholds)
-    flags: list[tuple[InfluenceFlag, ...]] = [()] * n
-    for i in range(n):
-        if full[i]:
-            flags[i] = (InfluenceFlag.DETERMINES_FIT,)
-        elif df <= 1:
-            flags[i] = (InfluenceFlag.NOT_STUDENTIZED,)
-        else:
-            flags[i] = tuple(f for mask, f in ((outlier, InfluenceFlag.OUTLIER), (influential, InfluenceFlag.INFLUENTIAL)) if mask[i])
+    # each standard's flags, by a code: 0 none, 1 outlier, 2 influential, 3 both, 4 leverage 1, 5 not studentized
+    code = np.where(full, 4, 5) if df <= 1 else np.where(full, 4, outlier + 2 * influential.astype(np.int64))
+    flags = [_FLAG_SETS[c] for c in code.tolist()]
     notes = tuple(
         f"standard {i + 1} has leverage {leverage[i]:.2f} (above {HIGH_LEVERAGE:g}): the curve near it rests "
         "mostly on this one standard, so an error in it would hardly show in its residual; replicate it "

@@ -259,8 +259,9 @@ def _quantify_block(
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
         at_turning_point = _inside_band_at_vertex(cal, y0, m, probability, no_solution)
-        z_hat = np.where(at_turning_point, cal.vertex_z if cal.vertex_z is not None else np.nan, z_hat)
-        no_solution = no_solution & ~at_turning_point
+        if at_turning_point.any():
+            z_hat = np.where(at_turning_point, cal.vertex_z if cal.vertex_z is not None else np.nan, z_hat)
+            no_solution = no_solution & ~at_turning_point
         x_hat = cal.basis.centre + cal.basis.scale * z_hat
         new_var = _new_response_variance(cal, x_hat, y0, m)
         slope = _slope_z(cal, z_hat) / cal.basis.scale
@@ -273,7 +274,7 @@ def _quantify_block(
             lower, upper = x_hat - t_hat * se, x_hat + t_hat * se
         else:
             lower, upper, past_vertex = _band_interval(
-                cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale, band
+                cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale, band, t, new_var
             )
     unsolved = bool(no_solution.any())
     bad = ~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | np.isnan(lower) | np.isnan(upper)
@@ -421,17 +422,22 @@ def _new_response_variance(cal: "FittedCurve", x: FloatArray, y0: FloatArray, m:
 
 def _band_interval(
     cal: "FittedCurve", y0: FloatArray, m: np.ndarray, probability: float, z_hat: FloatArray,
-    no_solution: np.ndarray, guess: FloatArray, band: BandPolynomial | None = None,
+    no_solution: np.ndarray, guess: FloatArray, band: BandPolynomial | None = None, t: float | None = None,
+    new_var: FloatArray | None = None,
 ) -> tuple[FloatArray, FloatArray, np.ndarray]:
     """Both ends of the calibration interval, in x, and which unknowns' intervals reach past the vertex.
 
     Fieller's closed form for a straight line whose weights do not depend on x; the polynomial band
-    (:mod:`.band_polynomial`) wherever ``band`` is given; otherwise the numeric inversion.
+    (:mod:`.band_polynomial`) wherever ``band`` is given; otherwise the numeric inversion. ``t`` is
+    Student's quantile at ``probability`` and ``new_var`` the variance of the new responses' mean
+    (σ²/(m·w)), when the caller has them already.
     """
     closed_form = cal.model is not Model.QUADRATIC and not cal.weighting.uses_concentration
     past_vertex = np.zeros(y0.size, dtype=bool)
     if closed_form:
-        z_lo, z_hi = _fieller_z(cal, y0, m, t_quantile(probability, cal.df_residual))
+        # the weights of these fits do not depend on x, so the caller's new_var is Fieller's σ²/(m·w)
+        t = t_quantile(probability, cal.df_residual) if t is None else t
+        z_lo, z_hi = _fieller_z(cal, y0, m, t, new_var)
     elif band is not None:
         start = np.where(no_solution, 0.0, z_hat)
         z_lo, z_hi, past_vertex = polynomial_band_edges(
@@ -456,10 +462,14 @@ def _inside_band_at_vertex(
     return no_solution & (_band_excess(cal, curve_polynomials(cal), y0, m, probability, at_vertex) <= 0)
 
 
-def _fieller_z(cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float) -> tuple[FloatArray, FloatArray]:
-    """Fieller's interval for a straight line, in z: the roots of A·z² + B·z + C = 0."""
+def _fieller_z(
+    cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float, s2_new: FloatArray | None = None
+) -> tuple[FloatArray, FloatArray]:
+    """Fieller's interval for a straight line, in z: the roots of A·z² + B·z + C = 0 (``s2_new``, the
+    variance σ²/(m·w) of each unknown's mean response, is computed when not given)."""
     cov = cal.z_covariance
-    s2_new = _new_response_variance(cal, np.zeros_like(y0), y0, m)
+    if s2_new is None:
+        s2_new = _new_response_variance(cal, np.zeros_like(y0), y0, m)
     t2 = t * t
     if cal.model.through_origin:
         (b,) = cal.z_coefficients

@@ -87,6 +87,13 @@ def group_levels(
             f"level tolerance: {tolerance!r} is outside 0 to 0.5 (a relative fraction, 0.005 = 0.5 %)."
         )
     n = concentration.size
+    if labels is None and n:
+        # Without labels the levels are runs of the sorted values, numbered as they ascend already:
+        # the renumbering below would leave them as they are.
+        index, exact = _group_sorted(concentration, tolerance or 0.0)
+        count = np.bincount(index)
+        means = np.bincount(index, weights=concentration) / count
+        return Levels(index=frozen(index), concentration=frozen(means), count=frozen(count), exact=exact)
     if labels is not None:
         names = [str(label).strip() if label is not None else "" for label in labels]
         if len(names) != n:
@@ -136,6 +143,12 @@ def _group_values(values: FloatArray, tolerance: float) -> np.ndarray:
     """Level key of each value: equal values share one, and with ``tolerance`` > 0 so do near ones."""
     if values.size == 0:
         return np.zeros(0, dtype=np.intp)
+    return _group_sorted(values, tolerance)[0]
+
+
+def _group_sorted(values: FloatArray, tolerance: float) -> tuple[np.ndarray, bool]:
+    """:func:`_group_values` of at least one value (keys ascending with the values, from 0), and
+    whether every level holds a single value."""
     order = np.argsort(values, kind="stable")
     sorted_x = values[order]
     gaps = np.diff(sorted_x)
@@ -156,7 +169,9 @@ def _group_values(values: FloatArray, tolerance: float) -> np.ndarray:
             level_of_sorted[i] = level
     key = np.empty_like(level_of_sorted)
     key[order] = level_of_sorted
-    return key
+    # a level holds one value unless two neighbours in it differ
+    exact = not bool(np.any((gaps > 0) & (np.diff(level_of_sorted) == 0)))
+    return key, exact
 
 
 def _same_level(first: float, x: float, tolerance: float) -> bool:

@@ -7,7 +7,7 @@ Problem
 Method
     Levenberg–Marquardt with a trust region and scaling by the columns of the Jacobian (Moré, "The
     Levenberg–Marquardt algorithm: implementation and theory", Lecture Notes in Mathematics 630,
-    1978), as implemented by MINPACK's ``lmder`` behind ``scipy.optimize.least_squares(method="lm")``.
+    1978), as implemented by MINPACK's ``lmder`` (called through ``scipy.optimize.leastsq``).
     The model gives its own analytic Jacobian ∂f/∂β; the fitter never differences numerically.
     Tolerances on the relative change of S, of β and on the gradient are 1e-15, so the fit stops
     only when double precision can improve nothing more.
@@ -28,7 +28,7 @@ Convergence
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 from scipy import optimize
@@ -47,6 +47,8 @@ ModelFunction = Callable[[FloatArray, FloatArray], FloatArray]
 JacobianFunction = Callable[[FloatArray, FloatArray], FloatArray]
 """∂f/∂β at (x, β) → array of shape (n, p)."""
 
+_STATUS = {1: 2, 2: 3, 3: 4, 4: 1, 5: 0}
+"""MINPACK's info code → the stop reason of :data:`_STOP_WORDS` (0: out of evaluations; missing: improper input)."""
 _STOP_WORDS = {
     1: "the gradient of the sum of squares vanished (to 1e-15 relative)",
     2: "the sum of squares stopped decreasing (relative change below 1e-15)",
@@ -96,11 +98,13 @@ class NonlinearFit:
     converged: bool
     reason: str
     evaluations: int
+    scaled_u: FloatArray | None = field(default=None, repr=False)
+    """U of the SVD of the column-scaled weighted Jacobian at β̂, when the fit computed it."""
 
     @property
     def leverage(self) -> FloatArray:
         """Diagonal of the tangent-plane hat matrix J(JᵀJ)⁻¹Jᵀ (Bates & Watts 1988, §4.3)."""
-        u = _scaled_svd(self.weighted_jacobian)[0]
+        u = self.scaled_u if self.scaled_u is not None else _scaled_svd(self.weighted_jacobian)[0]
         return np.einsum("ij,ij->i", u, u)
 
 
@@ -131,26 +135,36 @@ def fit_nonlinear(
         with np.errstate(all="ignore"):
             r = root_w * (function(x, beta) - y)
         # A non-finite residual makes MINPACK wander; a huge finite one makes it step back instead.
-        return np.where(np.isfinite(r), r, 1e150)
+        finite = np.isfinite(r)
+        return r if finite.all() else np.where(finite, r, 1e150)
 
     def weighted_jacobian(beta: FloatArray) -> FloatArray:
         with np.errstate(all="ignore"):
             j = root_w[:, None] * jacobian(x, beta)
-        return np.where(np.isfinite(j), j, 0.0)
+        finite = np.isfinite(j)
+        return j if finite.all() else np.where(finite, j, 0.0)
 
     if not np.all(np.isfinite(beta0)):
         return _failed(function, jacobian, x, y, beta0, root_w, 0, "the start values are not all finite numbers")
+    if n < p:
+        return _failed(function, jacobian, x, y, beta0, root_w, 0,
+                       f"the fit could not start ({n} standards for {p} parameters)")
     try:
-        result = optimize.least_squares(
-            residuals, beta0, jac=weighted_jacobian, method="lm", x_scale="jac",
-            ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, max_nfev=limit,
+        # MINPACK's lmder itself (mode 1: the scaling follows the Jacobian's column norms, step bound
+        # factor 100); the same iterations as least_squares(method="lm", x_scale="jac"), without its
+        # per-call set-up, which costs more than the fit on a few dozen standards.
+        beta, _, info, _, code = optimize.leastsq(
+            residuals, beta0, Dfun=weighted_jacobian, full_output=True, col_deriv=False,
+            ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, maxfev=limit, factor=100.0, diag=None,
         )
-    except (ValueError, np.linalg.LinAlgError) as exc:  # improper input reported by MINPACK
+    except (ValueError, TypeError, np.linalg.LinAlgError) as exc:  # improper input reported by MINPACK
         return _failed(function, jacobian, x, y, beta0, root_w, 0, f"the fit could not start ({exc})")
-    beta = np.asarray(result.x, dtype=np.float64)
-    evaluations = int(result.nfev)
-    if result.status > 0:
-        beta, extra = _refine(residuals, weighted_jacobian, beta)
+    status = _STATUS.get(int(code), -1)
+    beta = np.asarray(beta, dtype=np.float64)
+    evaluations = int(info["nfev"])
+    svd = None
+    if status > 0:
+        beta, extra, svd = _refine(residuals, weighted_jacobian, beta)
         evaluations += extra
     with np.errstate(all="ignore"):
         fitted = function(x, beta)
@@ -161,25 +175,27 @@ def fit_nonlinear(
             function, jacobian, x, y, beta, root_w, evaluations,
             "the curve or its derivatives stopped being finite numbers at the last parameters reached",
         )
-    if result.status <= 0:
+    if status <= 0:
         reason = (
             f"no minimum was reached within {limit} evaluations of the curve"
-            if result.status == 0 else f"the fit stopped: {result.message}"
+            if status == 0 else f"the fit stopped: MINPACK reported code {int(code)} (improper input)"
         )
         return _result(beta, j, fitted, r, n, p, evaluations, False, reason)
-    s = _scaled_svd(j)[1]
+    # the refinement's SVD was taken of this same Jacobian (weighted_jacobian(β) is j when j is finite)
+    svd = svd if svd is not None else _scaled_svd(j)
+    s = svd[1]
     if s.size < p or s[-1] <= RANK_TOLERANCE * s[0]:
         return _result(
             beta, j, fitted, r, n, p, evaluations, False,
             "the data cannot separate the parameters at the point reached (the curve's derivatives "
             "with respect to them are linearly dependent over these concentrations)",
         )
-    return _result(beta, j, fitted, r, n, p, evaluations, True, _STOP_WORDS.get(int(result.status), str(result.message)))
+    return _result(beta, j, fitted, r, n, p, evaluations, True, _STOP_WORDS[status], svd)
 
 
 def _refine(
     residuals: Callable[[FloatArray], FloatArray], jacobian: Callable[[FloatArray], FloatArray], beta: FloatArray
-) -> tuple[FloatArray, int]:
+) -> tuple[FloatArray, int, tuple[FloatArray, FloatArray, FloatArray, FloatArray]]:
     """Up to three full Gauss–Newton steps from the converged point, each kept while it brings the
     gradient of S closer to zero.
 
@@ -188,7 +204,8 @@ def _refine(
     √ε times the parameters' standard errors (a few parts in 10⁸ where those are large). The gradient
     Jᵀr vanishes linearly there, so it locates the minimum to about ε times the condition number.
     A Gauss–Newton step, solved through the SVD of the column-scaled Jacobian, is kept while the
-    scaled gradient shrinks, which gives the same parameters in any units.
+    scaled gradient shrinks, which gives the same parameters in any units. Returns the parameters,
+    the evaluations made and the SVD of the column-scaled Jacobian at them (:func:`_scaled_svd`).
     """
     r = residuals(beta)
     j = jacobian(beta)
@@ -208,7 +225,7 @@ def _refine(
             break
         beta, r, gradient = trial, r_trial, gradient_trial
         u, s, vt, scale = u_t, s_t, vt_t, scale_t
-    return beta, evaluations
+    return beta, evaluations, (u, s, vt, scale)
 
 
 def _scaled_svd(j: FloatArray) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
@@ -222,13 +239,16 @@ def _scaled_svd(j: FloatArray) -> tuple[FloatArray, FloatArray, FloatArray, Floa
 def _result(
     beta: FloatArray, j: FloatArray, fitted: FloatArray, r: FloatArray, n: int, p: int,
     evaluations: int, converged: bool, reason: str,
+    svd: tuple[FloatArray, FloatArray, FloatArray, FloatArray] | None = None,
 ) -> NonlinearFit:
+    """The fit's record; ``svd`` is :func:`_scaled_svd` of ``j`` when the caller has it already."""
     df = n - p
     sse = float(r @ r)
     residual_sd = float(np.sqrt(sse / df)) if df > 0 else float("nan")
     unscaled = np.full((p, p), np.nan)
+    u = None
     if converged:
-        _, s, vt, scale = _scaled_svd(j)
+        u, s, vt, scale = svd if svd is not None else _scaled_svd(j)
         # (JᵀJ)⁻¹ = D⁻¹·V·diag(1/s²)·Vᵀ·D⁻¹
         unscaled = ((vt.T / s) @ (vt.T / s).T) / np.outer(scale, scale)
     covariance = residual_sd**2 * unscaled
@@ -246,6 +266,7 @@ def _result(
         converged=converged,
         reason=reason,
         evaluations=evaluations,
+        scaled_u=None if u is None else frozen(u),
     )
 
 
