@@ -15,7 +15,9 @@ from __future__ import annotations
 
 import hashlib
 import json
+import weakref
 from dataclasses import dataclass
+from functools import partial
 from typing import Any, Mapping
 
 from ..core.run import Run
@@ -51,11 +53,29 @@ def sha256_of_content(mapping: Mapping[str, Any]) -> str:
     return hashlib.sha256(_canonical(content_of(mapping))).hexdigest()
 
 
+_HASHED: dict[int, tuple["weakref.ref[Run]", str]] = {}
+"""The content hash of each run still alive, by its identity: a run is an immutable value, so its
+hash is worked out once however many checks, tables and audit entries ask for it."""
+
+
 def content_sha256(run: Run) -> str:
-    """SHA-256 (hex) of the run's content in canonical JSON."""
+    """SHA-256 (hex) of the run's content in canonical JSON (worked out once per run value)."""
+    key = id(run)
+    known = _HASHED.get(key)
+    if known is not None and known[0]() is run:
+        return known[1]
     from .run_document import run_to_mapping
 
-    return sha256_of_content(run_to_mapping(run))
+    digest = sha256_of_content(run_to_mapping(run))
+    _HASHED[key] = (weakref.ref(run, partial(_forget, key)), digest)
+    return digest
+
+
+def _forget(key: int, gone: "weakref.ref[Run]") -> None:
+    """A run was freed: its identity may be given to another value, so its hash is dropped."""
+    known = _HASHED.get(key)
+    if known is not None and known[0] is gone:
+        del _HASHED[key]
 
 
 def _short(value: Any) -> str:
@@ -105,9 +125,9 @@ def content_change(run: Run, stored: Any = None) -> ContentChange | None:
     if not numbered:
         return None
     number, entry = numbered[-1]
-    mapping = run_to_mapping(run)
-    if sha256_of_content(mapping) == entry.content_sha256:
+    if content_sha256(run) == entry.content_sha256:
         return None
+    mapping = run_to_mapping(run)
     changes: list[str] = []
     if (isinstance(stored, Mapping) and stored.get("sha256") == entry.content_sha256
             and isinstance(stored.get("parts"), Mapping)):
