@@ -61,3 +61,20 @@ def test_the_content_hash_is_that_of_the_content_however_often_asked() -> None:
     del renamed
     gc.collect()
     assert key not in integrity._HASHED  # a freed run's identity may be reused: its hash is forgotten
+
+
+def test_runs_that_share_their_samples_hash_their_own_content() -> None:
+    """Runs made one from another by edits share their samples' text; each hash is still that of the
+    run's whole content (the samples' canonical text sits in the content's as the encoder writes it)."""
+    from dataclasses import replace
+
+    from curvewright.io import integrity
+    from curvewright.io.run_document import run_to_mapping
+
+    run = loads_run(DEMO.read_text(encoding="utf-8")).run
+    others = [replace(run, description="edited"), replace(run, samples=run.samples[1:]), replace(run, samples=()),
+              replace(run, analytes=run.analytes[:1], name="ä ∑ \"quoted\"")]
+    for value in [run, *others, run, others[1]]:
+        expected = integrity.sha256_of_content(run_to_mapping(value))
+        assert integrity.content_sha256(replace(value)) == expected  # a fresh value: worked out, not remembered
+    assert len({integrity.content_sha256(v) for v in [run, *others]}) == 5

@@ -16,7 +16,7 @@ from __future__ import annotations
 import hashlib
 import json
 import weakref
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import partial
 from typing import Any, Mapping
 
@@ -66,9 +66,32 @@ def content_sha256(run: Run) -> str:
         return known[1]
     from .run_document import run_to_mapping
 
-    digest = sha256_of_content(run_to_mapping(run))
+    content = content_of(run_to_mapping(replace(run, samples=())))
+    samples = _samples_text(run.samples)
+    text = b"{" + b",".join(_canonical(k) + b":" + (samples if k == "samples" else _canonical(v))
+                            for k, v in sorted(content.items())) + b"}"
+    digest = hashlib.sha256(text).hexdigest()
     _HASHED[key] = (weakref.ref(run, partial(_forget, key)), digest)
     return digest
+
+
+_LAST_SAMPLES: tuple[Any, bytes] = ((), b"[]")
+"""The samples last written as canonical JSON, and that text: the runs made one from another by
+edits share their samples, so the text of many thousands of samples is made once for them all."""
+
+
+def _samples_text(samples: Any) -> bytes:
+    """The canonical JSON of the samples, as :func:`_canonical` writes them within the content (the
+    canonical JSON of an object is its members' texts, keys sorted, joined)."""
+    global _LAST_SAMPLES
+    last = _LAST_SAMPLES
+    if last[0] is samples:
+        return last[1]
+    from .run_document import samples_out
+
+    text = _canonical(samples_out(samples))
+    _LAST_SAMPLES = (samples, text)
+    return text
 
 
 def _forget(key: int, gone: "weakref.ref[Run]") -> None:

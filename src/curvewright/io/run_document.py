@@ -149,36 +149,7 @@ def run_to_mapping(run: Run) -> dict[str, Any]:
             }
             for a in run.analytes
         ],
-        "samples": [
-            {
-                "id": sm.id,
-                "kind": sm.kind.value,
-                "run_order": sm.run_order,
-                "dilution_factor": sm.dilution_factor,
-                "nominal": {name: value for name, value in sm.nominal},
-                "measurements": [
-                    {
-                        "analyte": m.analyte,
-                        "replicate": m.replicate,
-                        "response": _reading_out(m.response),
-                        "internal_standard_response": _reading_out(m.internal_standard_response),
-                    }
-                    for m in sm.measurements
-                ],
-                # only when measured, so that documents without standard additions keep their content digest
-                **({"additions": [
-                    {
-                        "analyte": ad.analyte,
-                        "added": ad.added,
-                        "replicate": ad.replicate,
-                        "response": _reading_out(ad.response),
-                        "internal_standard_response": _reading_out(ad.internal_standard_response),
-                    }
-                    for ad in sm.additions
-                ]} if sm.additions else {}),
-            }
-            for sm in run.samples
-        ],
+        "samples": samples_out(run.samples),
         "audit": [
             {
                 "time_utc": e.time_utc,
@@ -347,6 +318,40 @@ def open_recovery(path: str | Path) -> tuple[OpenedRun, str]:
         except (OSError, UnicodeDecodeError):
             source = ""
     return replace(opened, path=path, sha256=file_sha256(raw)), source
+
+
+def samples_out(samples: Iterable[Sample]) -> list[dict[str, Any]]:
+    """The samples as JSON-ready data (the "samples" of :func:`run_to_mapping`)."""
+    return [
+        {
+            "id": sm.id,
+            "kind": sm.kind.value,
+            "run_order": sm.run_order,
+            "dilution_factor": sm.dilution_factor,
+            "nominal": {name: value for name, value in sm.nominal},
+            "measurements": [
+                {
+                    "analyte": m.analyte,
+                    "replicate": m.replicate,
+                    "response": _reading_out(m.response),
+                    "internal_standard_response": _reading_out(m.internal_standard_response),
+                }
+                for m in sm.measurements
+            ],
+            # only when measured, so that documents without standard additions keep their content digest
+            **({"additions": [
+                {
+                    "analyte": ad.analyte,
+                    "added": ad.added,
+                    "replicate": ad.replicate,
+                    "response": _reading_out(ad.response),
+                    "internal_standard_response": _reading_out(ad.internal_standard_response),
+                }
+                for ad in sm.additions
+            ]} if sm.additions else {}),
+        }
+        for sm in samples
+    ]
 
 
 def _reading_out(reading: Reading | None) -> dict[str, Any] | None:
