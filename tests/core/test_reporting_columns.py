@@ -106,10 +106,11 @@ def per_sample_definitions(run: Run, name: str) -> list[tuple]:
             estimate = None if math.isnan(quant.estimate[i]) else float(quant.estimate[i])
             engine = quant.flags[i]
             value = report_value(estimate, df, engine, rng, settings.rounding, unit=analyte.concentration_unit,
-                                 below_limit=below_limit)
+                                 below_limit=below_limit, not_quantified=note if estimate is None else "")
             out.append((sample.id, float(quant.mean_response[i]), estimate,
-                        None if estimate is None else estimate * df, float(quant.lower[i]) * df,
-                        float(quant.upper[i]) * df, value.status, value.text, value.words, value.short,
+                        None if estimate is None else estimate * df,
+                        None if math.isnan(quant.lower[i]) else float(quant.lower[i]) * df,
+                        None if math.isnan(quant.upper[i]) else float(quant.upper[i]) * df, value.status, value.text, value.words, value.short,
                         value.flags if estimate is not None else engine, value.suggested_dilution, note))
             i += 1
         else:
@@ -139,6 +140,27 @@ def test_run_results_equal_the_per_sample_definitions(below_limit: str, rule: Ro
     assert {len(s.replicate_responses) for s in result.samples} >= set(range(1, 12))
     assert any(s.kind is SampleKind.QC and s.recovery_percent is not None for s in result.samples)
     assert len(result.samples) == 240
+
+
+def test_a_curve_that_never_reaches_a_response_is_reported_as_one_at_a_time() -> None:
+    """A concave quadratic (invented: y = 10 + 50x − x², highest at x = 25) and responses beyond its
+    highest value, some with a replicate missing: no solution, said with the replicates' notes."""
+    xs = [1.0, 2.0, 4.0, 8.0, 12.0, 16.0, 20.0]
+    standards = tuple(Standard(f"Q{i}-{r}", x, Reading.of(10 + 50 * x - x * x + (0.2 if r == 1 else -0.2)), r)
+                      for i, x in enumerate(xs) for r in (1, 2))
+    responses = [(700.0,), (700.0, None), (120.0, None), (650.0, 660.0), (300.0,), (5.0,), (900.0, 910.0, None)]
+    samples = tuple(Sample(f"Q-U{j}", SampleKind.UNKNOWN, j, 2.0 if j % 2 else 1.0,
+                           tuple(Measurement("tin", r, Reading(None, "") if v is None else Reading.of(v))
+                                 for r, v in enumerate(values, start=1)))
+                    for j, values in enumerate(responses))
+    analyte = Analyte("tin", "mg/L", "counts", standards, "quadratic", "none", "invented")
+    run = Run("concave (invented)", (analyte,), samples, RunSettings())
+    result = analyse_run(run).analyte("tin")
+    got = [(s.sample_id, s.mean_response, s.estimate, s.reported, s.reported_lower, s.reported_upper, s.status,
+            s.reported_text, s.words, s.short, s.flags, s.suggested_dilution, s.note) for s in result.samples]
+    assert got == per_sample_definitions(run, "tin")
+    unreached = [s for s in result.samples if s.flags is not None and QuantFlag.NO_SOLUTION in s.flags]
+    assert any("replicate 2: no response recorded" in s.words for s in unreached), [s.words for s in unreached]
 
 
 def test_many_values_are_reported_as_one_at_a_time() -> None:

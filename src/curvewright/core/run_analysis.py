@@ -451,9 +451,11 @@ def _quantify_samples(
             flags[r] = flags_of[j]
     index_of = {r: j for j, r in enumerate(at.tolist())}
     for r, (sample, values, note, censored) in enumerate(rows):
-        if r not in index_of:
-            reason = f"reported as censored: {censored}" if censored else (refusal or note or "no numeric response")
-            reasons[r] = reason if not note or reason == note else f"{reason}; {note}"
+        if r in index_of:  # quantified: without an estimate (no solution), the replicates' notes say why
+            reasons[r] = note if np.isnan(estimate[r]) else ""
+            continue
+        reason = f"reported as censored: {censored}" if censored else (refusal or note or "no numeric response")
+        reasons[r] = reason if not note or reason == note else f"{reason}; {note}"
     reported = report_values(estimate, dilution, flags, rng, settings.rounding, unit=analyte.concentration_unit,
                              below_limit=profile.reporting.between_lod_and_reporting_limit, not_quantified=reasons)
     if quant is not None:
