@@ -167,9 +167,15 @@ def test_json_of_many_runs_in_two_processes_equals_the_json_of_one_process(tmp_p
     parallel = run_cli("quantify", str(folder), "--json", "--jobs", "2")
     serial = run_cli("quantify", str(folder), "--json")
     assert parallel.returncode == serial.returncode == 0, parallel.stderr + serial.stderr
-    assert json.loads(parallel.stdout) == json.loads(serial.stdout)
+    assert parallel.stdout == serial.stdout  # the workers send their runs' text: the same text, byte for byte
     runs = json.loads(serial.stdout)
     assert len(runs) == 3 and all(run["analytes"][0]["samples"] for run in runs)
+    # a document that cannot be read is one flat row of the list, the same from both
+    (folder / "zz_damaged.json").write_text('{"format": "curvewright-run", "schema_version": 1', encoding="utf-8")
+    parallel = run_cli("quantify", str(folder), "--json", "--jobs", "2")
+    serial = run_cli("quantify", str(folder), "--json")
+    assert parallel.returncode == serial.returncode != 0
+    assert parallel.stdout == serial.stdout and json.loads(serial.stdout)[3]["error"]
     # each sample's result is one line of the text, so a long run can be read line by line
     first = runs[0]["analytes"][0]["samples"][0]
     assert any(line.strip().rstrip(",") == json.dumps(first, ensure_ascii=False, separators=(", ", ": "))

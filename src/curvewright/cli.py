@@ -352,9 +352,14 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
     if args.jobs > 1 and len(paths) > 1:
         from concurrent.futures import ProcessPoolExecutor
 
+        # Each process sends back its runs' JSON text, written as it will stand in the list, rather
+        # than the results to be written here one after the other; runs go out in chunks, a few per
+        # process at a time, so that the processes stay busy without a round trip per run.
+        chunk = max(1, min(16, len(paths) // (4 * args.jobs)))
         with ProcessPoolExecutor(max_workers=args.jobs) as pool:
             outcomes = []
-            for path, outcome in zip(paths, pool.map(_quantify_file, paths, [settings] * len(paths))):
+            for path, outcome in zip(paths, pool.map(_quantify_file_in_list, paths, [settings] * len(paths),
+                                                     chunksize=chunk)):
                 outcomes.append(outcome)
                 if progress:
                     progress.step(path.name)
@@ -393,6 +398,17 @@ def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
         return Outcome(EXIT_INPUT, "", None, f"{path}: {exc}")
     except Exception as exc:  # noqa: BLE001 - reported as an internal error with its trace
         return Outcome(EXIT_INTERNAL, "", None, f"{path}: internal error: {exc!r}\n{traceback.format_exc()}")
+
+
+def _quantify_file_in_list(path: Path, options: dict[str, Any]) -> Outcome:
+    """:func:`_quantify_file` in a process of a pool: the JSON results come back as their text, made
+    for their place in the list of runs (:class:`.io.results_json.Written`)."""
+    outcome = _quantify_file(path, options)
+    if options["json"] and outcome.data is not None:
+        from .io.results_json import Written
+
+        return replace(outcome, data=Written(outcome.data, 1))  # type: ignore[arg-type]
+    return outcome
 
 
 def _depart_from_method(run, model: str | None, weighting: str | None, options: dict[str, Any]):  # type: ignore[no-untyped-def]
@@ -627,7 +643,10 @@ def _refuse_tables(command: str, paths: Sequence[str]) -> None:
 
 
 def _with_settings(run, level: float | None, profile: str | None):  # type: ignore[no-untyped-def]
-    """The run with the confidence level and acceptance profile given on the command line."""
+    """The run with the confidence level and acceptance profile given on the command line (the same
+    run when neither is given)."""
+    if level is None and not profile:
+        return run
     settings = run.settings
     if level is not None:
         settings = replace(settings, confidence_level=level)

@@ -156,3 +156,34 @@ def test_a_run_that_could_not_be_opened_again_is_not_saved(tmp_path) -> None:
     assert "not saved, because the run holds values a run document cannot hold" in str(info.value)
     assert "samples[0].dilution_factor: expected a finite number, zero or from 1e-30 to 1e30" in str(info.value)
     assert path.read_bytes() == before
+
+
+@pytest.mark.parametrize("text", [
+    "[]", "{}", '"plain"', "12", "[" * 64 + "]" * 64, "[" * 65 + "]" * 65, '{"a":' * 64 + "1" + "}" * 64,
+    '{"a":' * 65 + "1" + "}" * 65, '["' + "[" * 200 + '"]', '{"k": "\\ud800"}', '{"\\udfff": 1}',
+    '{"k": "\\ud83d\\ude00"}', '["\\\\ud800"]', "[" + "9" * 301 + "]", '{"a": [[' + "1" * 400 + "]]}",
+    "[" + "9" * 300 + "]", '[1.' + "5" * 400 + "]",
+])
+def test_the_quick_structure_check_never_passes_what_the_full_walk_refuses(text: str) -> None:
+    """The walk that names each problem's path runs only when the quick check finds a reason: the
+    quick check must find one whenever the walk would report something."""
+    from curvewright.io import run_document
+
+    oversized: list[object] = []
+
+    def whole(digits: str) -> object:
+        value = run_document._whole_number(digits)
+        if isinstance(value, run_document._Oversized):
+            oversized.append(value)
+        return value
+
+    document = json.loads(text, parse_int=whole)
+    found = run_document._structure_problems(document)
+    quick = run_document._may_have_structure_problems(text, document, bool(oversized))
+    assert quick or not found, found
+    # it finds a reason where there is none only for a surrogate-like escape (a pair, or a backslash written out)
+    assert not quick or found or text in ('{"k": "\\ud83d\\ude00"}', '["\\\\ud800"]')
+    # a text given as a string may hold a lone surrogate itself (not escaped)
+    lone = json.dumps(["\ud800"], ensure_ascii=False)
+    assert run_document._may_have_structure_problems(lone, json.loads(lone), False)
+    assert run_document._structure_problems(json.loads(lone))

@@ -38,3 +38,43 @@ def test_a_damaged_digest_still_reports_the_change_without_naming_garbage() -> N
     assert str(change).startswith("data changed outside Curvewright after entry")
     assert "an unrecognised part of the run was removed" in change.changes
     assert any("standard N-L2-2 of nitrate-N" in c for c in change.changes)
+
+
+def test_the_content_hash_is_that_of_the_content_however_often_asked() -> None:
+    """The hash of a run is worked out once per run value; it is always the SHA-256 of the run's
+    canonical content, and a changed run (a new value) has its own."""
+    import gc
+    import hashlib
+    from dataclasses import replace
+
+    from curvewright.io import integrity
+    from curvewright.io.run_document import run_to_mapping
+
+    run = loads_run(DEMO.read_text(encoding="utf-8")).run
+    canonical = json.dumps(integrity.content_of(run_to_mapping(run)), sort_keys=True, ensure_ascii=False,
+                           separators=(",", ":"), allow_nan=False).encode("utf-8")
+    assert integrity.content_sha256(run) == hashlib.sha256(canonical).hexdigest() == integrity.content_sha256(run)
+    renamed = replace(run, name=run.name + " (copy)")
+    assert integrity.content_sha256(renamed) != integrity.content_sha256(run)
+    assert integrity.content_sha256(renamed) == integrity.sha256_of_content(run_to_mapping(renamed))
+    key = id(renamed)
+    del renamed
+    gc.collect()
+    assert key not in integrity._HASHED  # a freed run's identity may be reused: its hash is forgotten
+
+
+def test_runs_that_share_their_samples_hash_their_own_content() -> None:
+    """Runs made one from another by edits share their samples' text; each hash is still that of the
+    run's whole content (the samples' canonical text sits in the content's as the encoder writes it)."""
+    from dataclasses import replace
+
+    from curvewright.io import integrity
+    from curvewright.io.run_document import run_to_mapping
+
+    run = loads_run(DEMO.read_text(encoding="utf-8")).run
+    others = [replace(run, description="edited"), replace(run, samples=run.samples[1:]), replace(run, samples=()),
+              replace(run, analytes=run.analytes[:1], name="ä ∑ \"quoted\"")]
+    for value in [run, *others, run, others[1]]:
+        expected = integrity.sha256_of_content(run_to_mapping(value))
+        assert integrity.content_sha256(replace(value)) == expected  # a fresh value: worked out, not remembered
+    assert len({integrity.content_sha256(v) for v in [run, *others]}) == 5

@@ -32,6 +32,9 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from enum import Enum
+from typing import Sequence
+
+import numpy as np
 
 from .inverse import QuantFlag
 from .rounding import RoundingRule
@@ -186,3 +189,106 @@ def _one_two_five(factor: float) -> float:
         if step * decade >= factor * (1 - 1e-12):
             return step * decade
     return 10.0 * decade
+
+
+_NO_SOLUTION = int(QuantFlag.NO_SOLUTION)
+_QUALIFIER_BITS = int(QuantFlag.AMBIGUOUS_ROOT | QuantFlag.UNBOUNDED_INTERVAL)
+
+
+def report_values(
+    estimates: object,
+    dilutions: object,
+    flags: Sequence[QuantFlag | None],
+    rng: ReportingRange,
+    rule: RoundingRule,
+    *,
+    unit: str = "",
+    below_limit: str = "censor",
+    not_quantified: Sequence[str] | None = None,
+) -> list[ReportedValue]:
+    """:func:`report_value` for many results at once, equal to it result by result.
+
+    ``estimates`` are the concentrations in the solution measured (NaN where there is none),
+    ``dilutions`` the dilution factors, ``flags`` the engine's flags of each result and
+    ``not_quantified`` the reason of each result without a number (None: none given). The status
+    and flag bits of the numeric results are worked out over arrays; each text that depends only on
+    the dilution factor or on the qualifiers is made once, and the rounded numbers in one pass
+    (:meth:`.RoundingRule.texts`).
+    """
+    est = np.asarray(estimates, dtype=float).reshape(-1)
+    dil = np.asarray(dilutions, dtype=float).reshape(-1)
+    n = est.size
+    if dil.size != n or len(flags) != n or (not_quantified is not None and len(not_quantified) != n):
+        raise ValueError("report_values: the estimates, dilutions, flags and reasons differ in length")
+    out: list[ReportedValue | None] = [None] * n
+    bits_in = np.array([-1 if f is None else int(f) for f in flags], dtype=np.int64)
+    numeric = ~np.isnan(est) & ((bits_in < 0) | ((bits_in & _NO_SOLUTION) == 0))
+    for i in np.flatnonzero(~numeric).tolist():  # no number: the reason is said for each
+        estimate = None if math.isnan(est[i]) else float(est[i])
+        out[i] = report_value(estimate, float(dil[i]), flags[i], rng, rule, unit=unit, below_limit=below_limit,
+                              not_quantified=not_quantified[i] if not_quantified is not None else "")
+    where = np.flatnonzero(numeric)
+    if where.size == 0:
+        return out  # type: ignore[return-value]
+    e, d = est[where], dil[where]
+    extra = np.where(bits_in[where] < 0, 0, bits_in[where] & _QUALIFIER_BITS)
+    limit = rng.reporting_limit
+    below_range = e < rng.lloq
+    above = ~below_range & (e > rng.uloq)
+    bits = np.where(below_range, int(QuantFlag.BELOW_RANGE),
+                    np.where(above, int(QuantFlag.ABOVE_RANGE), np.where(e >= limit, int(QuantFlag.IN_RANGE), 0)))
+    bits |= np.where(e < limit, int(QuantFlag.BELOW_LOQ), 0)
+    below_lod = e < rng.lod if rng.lod is not None else np.zeros(e.size, dtype=bool)
+    bits |= np.where(below_lod, int(QuantFlag.BELOW_LOD), 0) | extra
+    reported = e * d
+    estimated = below_limit == "estimate"
+    # which results show a rounded number: inside the range, and estimates between the LOD and the limit
+    numbered = (e <= rng.uloq) & ((e >= limit) | (estimated & ~below_lod))
+    numbers = iter(rule.texts(reported[numbered].tolist()))
+    u = f" {unit}" if unit else ""
+    flag_of: dict[int, QuantFlag] = {}
+    qualifiers_of: dict[int, tuple[list[str], list[str]]] = {}
+    by_dilution: dict[float, tuple[str, str, str, str]] = {}
+    for k, (i, value, factor, b, x, is_numbered, low_lod) in enumerate(zip(
+            where.tolist(), e.tolist(), d.tolist(), bits.tolist(), extra.tolist(), numbered.tolist(),
+            below_lod.tolist())):
+        flag = flag_of.get(b)
+        if flag is None:
+            flag = flag_of[b] = QuantFlag(b)
+        quals = qualifiers_of.get(x)
+        if quals is None:
+            q = QuantFlag(x)
+            quals = qualifiers_of[x] = ([q.words] if q else [], [q.short_words] if q else [])
+        texts = by_dilution.get(factor)
+        if texts is None:
+            diluted = f" × dilution {factor:g}" if factor != 1 else ""
+            texts = by_dilution[factor] = (
+                diluted, f"{rule.text(limit * factor)}{u} ({rng.basis}{diluted})", f"{rule.text(rng.uloq * factor)}{u}",
+                f"{rule.text(rng.lod * factor)}{u}" if rng.lod is not None else "")
+        diluted, limit_text, uloq_text, lod_text = texts
+        words_q, short_q = quals
+        if value > rng.uloq:
+            total = factor * _one_two_five(value / rng.middle)
+            words = (f"above the calibrated range (ULOQ {uloq_text}{diluted}): not reported as a "
+                     f"number; re-assay at a dilution of ×{total:g} to bring it to mid-range")
+            out[i] = ReportedValue(ReportStatus.ABOVE_RANGE, f"> {uloq_text} (ULOQ{diluted})",
+                                   "; ".join([words] + words_q), ", ".join(["> ULOQ"] + short_q), flag, total)
+        elif value < limit:
+            status = ReportStatus.BELOW_LOD if low_lod else ReportStatus.BELOW_REPORTING_LIMIT
+            if estimated:
+                if low_lod:
+                    text, words, short = (f"< {lod_text} (LOD{diluted})", "below the detection limit (LOD): not detected",
+                                          "< LOD")
+                else:
+                    text = f"{next(numbers)}{u} (estimated, below {rng.basis})"
+                    words = f"estimated: between the detection limit and the reporting limit of {limit_text}"
+                    short = "estimated"
+            else:
+                text = f"< {limit_text}"
+                words = f"below the reporting limit of {limit_text}" + ("; below the detection limit (LOD)" if low_lod else "")
+                short = f"< {rng.basis}" + (", < LOD" if low_lod else "")
+            out[i] = ReportedValue(status, text, "; ".join([words] + words_q), ", ".join([short] + short_q), flag)
+        else:
+            out[i] = ReportedValue(ReportStatus.IN_RANGE, next(numbers), "; ".join(["inside the calibrated range"] + words_q),
+                                   ", ".join(["in range"] + short_q), flag)
+    return out  # type: ignore[return-value]

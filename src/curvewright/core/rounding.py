@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Iterable
 from decimal import ROUND_HALF_EVEN, ROUND_HALF_UP, Decimal, localcontext
 
 from .errors import CurvewrightError
@@ -57,19 +58,43 @@ class RoundingRule:
             return "" if math.isnan(value) else ("∞" if value > 0 else "−∞")
         with localcontext() as context:
             context.prec = _PRECISION
-            d = Decimal(repr(float(value)))
-            if self.kind == "decimals":
-                exponent = -self.digits
+            return self._rounded(value)
+
+    def texts(self, values: Iterable[float]) -> list[str]:
+        """``text`` of each value, worked out in one pass: one decimal context for them all, and each
+        distinct value rounded once."""
+        out: list[str] = []
+        seen: dict[float, str] = {}
+        with localcontext() as context:
+            context.prec = _PRECISION
+            for value in values:
+                value = float(value)
+                text = seen.get(value)
+                if text is None or value == 0:  # 0.0 and −0.0 are equal keys; each is rounded as itself
+                    if not math.isfinite(value):
+                        text = "" if math.isnan(value) else ("∞" if value > 0 else "−∞")
+                    else:
+                        text = self._rounded(value)
+                    if value == value:
+                        seen[value] = text
+                out.append(text)
+        return out
+
+    def _rounded(self, value: float) -> str:
+        """The rounded text of a finite ``value``, in a decimal context of ``_PRECISION`` digits."""
+        d = Decimal(repr(float(value)))
+        if self.kind == "decimals":
+            exponent = -self.digits
+        else:
+            if d.is_zero():
+                exponent = -(self.digits - 1)
             else:
-                if d.is_zero():
-                    exponent = -(self.digits - 1)
-                else:
-                    exponent = d.adjusted() - (self.digits - 1)
-            rounded = d.quantize(Decimal(1).scaleb(exponent), rounding=_TIES[self.tie])
-            if self.kind == "significant" and not rounded.is_zero() and rounded.adjusted() > d.adjusted():
-                # 9.99 → 10.0: the carry added a digit; drop one decimal to keep the figure count.
-                rounded = rounded.quantize(Decimal(1).scaleb(exponent + 1), rounding=_TIES[self.tie])
-            text = format(rounded, "f")
+                exponent = d.adjusted() - (self.digits - 1)
+        rounded = d.quantize(Decimal(1).scaleb(exponent), rounding=_TIES[self.tie])
+        if self.kind == "significant" and not rounded.is_zero() and rounded.adjusted() > d.adjusted():
+            # 9.99 → 10.0: the carry added a digit; drop one decimal to keep the figure count.
+            rounded = rounded.quantize(Decimal(1).scaleb(exponent + 1), rounding=_TIES[self.tie])
+        text = format(rounded, "f")
         if rounded.is_zero() and text.startswith("-"):
             text = text[1:]  # a rounded −0.00 is reported as 0.00
         return text

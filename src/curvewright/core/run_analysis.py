@@ -31,7 +31,7 @@ from .checks import CheckInput, CheckVerdict, bracketing, judge_checks
 from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag
 from .limits import DetectionLimits
-from .reporting import ReportingRange, ReportStatus, report_value, reporting_range
+from .reporting import ReportingRange, ReportStatus, report_value, report_values, reporting_range
 from .run import Analyte, Reading, Run, SampleKind, Standard
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -323,7 +323,7 @@ def _analyse_analyte(
     low, high = cal.calibrated_range  # anchor points of a logistic curve lie outside it
     in_range = cal.concentration[(cal.concentration >= low) & (cal.concentration <= high)]
     rng = reporting_range(in_range, limits.lod if limits else None, limits.loq if limits else None, unit)
-    samples = tuple(_report(s, rng, run, profile, unit) for s in _quantify_samples(run, analyte, cal, limits))
+    samples = _quantify_samples(run, analyte, cal, limits, rng, profile)
     checks = judge_checks([CheckInput(s.sample_id, s.kind, s.run_order, s.nominal, s.reported, s.status,
                                       s.dilution_factor, s.note) for s in samples],
                           profile.checks, rng, profile.name, unit)
@@ -400,18 +400,26 @@ def _report(s: SampleResult, rng: ReportingRange, run: Run, profile: AcceptanceP
 
 
 def _quantify_samples(
-    run: Run, analyte: Analyte, cal: Calibration, limits: DetectionLimits | None
+    run: Run, analyte: Analyte, cal: Calibration, limits: DetectionLimits | None, rng: ReportingRange,
+    profile: AcceptanceProfile,
 ) -> tuple[SampleResult, ...]:
+    """Every sample of the analyte, quantified and reported.
+
+    Each sample's result is what :func:`_report` gives for it; the work is done over all samples at
+    once: the replicate means of the samples with the same number of replicates as one array (each
+    mean summed exactly as ``np.mean`` sums that sample's replicates alone), one call of the engine,
+    and the statuses and texts by :func:`.reporting.report_values`.
+    """
     settings = run.settings
+    name, ratio = analyte.name, analyte.uses_internal_standard
     rows = []
-    means, counts, positions = [], [], []
     for sample in run.samples:
-        measurements = sample.measurements_of(analyte.name)
+        measurements = [m for m in sample.measurements if m.analyte == name]
         if not measurements:
             continue
         values, notes, censored = [], [], None
         for m in measurements:
-            value, reason = response_value(m.response, m.internal_standard_response, analyte.uses_internal_standard)
+            value, reason = response_value(m.response, m.internal_standard_response, ratio)
             if value is None:
                 if m.response.is_censored:
                     censored = m.response.text
@@ -419,61 +427,71 @@ def _quantify_samples(
             else:
                 values.append(value)
         rows.append((sample, tuple(values), "; ".join(notes), censored))
-        if values and censored is None:
-            positions.append(len(rows) - 1)
-            means.append(float(np.mean(values)))
-            counts.append(len(values))
+    positions = [r for r, row in enumerate(rows) if row[1] and row[3] is None]
+    counts = np.array([len(rows[r][1]) for r in positions], dtype=np.int64)
+    means = np.empty(len(positions))
+    for m in np.unique(counts).tolist():  # samples with m replicates: one row each, averaged along the rows
+        at = np.flatnonzero(counts == m)
+        means[at] = np.array([rows[positions[i]][1] for i in at.tolist()], dtype=float).reshape(at.size, m).mean(axis=1)
     refusal = None
     try:
-        quant = cal.quantify(means, counts, settings.confidence_level, settings.interval, limits) if means else None
+        quant = cal.quantify(means, counts, settings.confidence_level, settings.interval, limits) if positions else None
     except QuantitationInputError as exc:  # a calibration that cannot quantify: every sample says why
         quant, refusal = None, f"not quantified: {exc}"
-    index_of = {row: i for i, row in enumerate(positions)}
+    n = len(rows)
+    estimate = np.full(n, np.nan)
+    dilution = np.array([row[0].dilution_factor for row in rows], dtype=float)
+    flags: list[QuantFlag | None] = [None] * n
+    reasons = [""] * n
+    at = np.array(positions if quant is not None else [], dtype=np.int64)
+    if quant is not None:
+        estimate[at] = quant.estimate
+        flags_of = list(quant.flags)
+        for j, r in enumerate(positions):
+            flags[r] = flags_of[j]
+    index_of = {r: j for j, r in enumerate(at.tolist())}
+    for r, (sample, values, note, censored) in enumerate(rows):
+        if r in index_of:  # quantified: without an estimate (no solution), the replicates' notes say why
+            reasons[r] = note if np.isnan(estimate[r]) else ""
+            continue
+        reason = f"reported as censored: {censored}" if censored else (refusal or note or "no numeric response")
+        reasons[r] = reason if not note or reason == note else f"{reason}; {note}"
+    reported = report_values(estimate, dilution, flags, rng, settings.rounding, unit=analyte.concentration_unit,
+                             below_limit=profile.reporting.between_lod_and_reporting_limit, not_quantified=reasons)
+    if quant is not None:
+        columns = [c.tolist() for c in (quant.mean_response, quant.estimate, quant.standard_error, quant.lower,
+                                        quant.upper)]
     out = []
     for r, (sample, values, note, censored) in enumerate(rows):
-        nominal = sample.nominal_of(analyte.name)
-        base = dict(
-            sample_id=sample.id,
-            kind=sample.kind,
-            run_order=sample.run_order,
-            analyte=analyte.name,
-            replicate_responses=values,
-            dilution_factor=sample.dilution_factor,
-            nominal=nominal,
-        )
-        i = index_of.get(r)
-        if i is None or quant is None:
-            reason = f"reported as censored: {censored}" if censored else (refusal or note or "no numeric response")
-            out.append(
-                SampleResult(
-                    **base, mean_response=None, estimate=None, standard_error=None, lower=None, upper=None,
-                    reported=None, reported_lower=None, reported_upper=None, flags=None,
-                    note=reason if not note or reason == note else f"{reason}; {note}",
-                )
-            )
+        nominal = sample.nominal_of(name)
+        value = reported[r]
+        j = index_of.get(r)
+        if j is None:
+            out.append(SampleResult(
+                sample_id=sample.id, kind=sample.kind, run_order=sample.run_order, analyte=name,
+                replicate_responses=values, dilution_factor=sample.dilution_factor, nominal=nominal,
+                mean_response=None, estimate=None, standard_error=None, lower=None, upper=None,
+                reported=None, reported_lower=None, reported_upper=None, flags=None, note=reasons[r],
+                status=value.status, reported_text=value.text, words=value.words, short=value.short,
+                suggested_dilution=value.suggested_dilution,
+            ))
             continue
         df = sample.dilution_factor
-        estimate = _number(quant.estimate[i])
-        reported = None if estimate is None else estimate * df
-        recovery = None
-        if nominal is not None and reported is not None and nominal != 0:
-            recovery = 100.0 * reported / nominal
-        out.append(
-            SampleResult(
-                **base,
-                mean_response=float(quant.mean_response[i]),
-                estimate=estimate,
-                standard_error=_number(quant.standard_error[i]),
-                lower=_number(quant.lower[i]),
-                upper=_number(quant.upper[i]),
-                reported=reported,
-                reported_lower=None if quant.lower[i] != quant.lower[i] else float(quant.lower[i]) * df,
-                reported_upper=None if quant.upper[i] != quant.upper[i] else float(quant.upper[i]) * df,
-                flags=quant.flags[i],
-                note=note,
-                recovery_percent=recovery,
-            )
-        )
+        mean, est, se, low, high = (c[j] for c in columns)
+        est = None if est != est else est
+        got = None if est is None else est * df
+        recovery = 100.0 * got / nominal if nominal is not None and got is not None and nominal != 0 else None
+        out.append(SampleResult(
+            sample_id=sample.id, kind=sample.kind, run_order=sample.run_order, analyte=name,
+            replicate_responses=values, dilution_factor=df, nominal=nominal,
+            mean_response=mean, estimate=est, standard_error=None if se != se else se,
+            lower=None if low != low else low, upper=None if high != high else high,
+            reported=got, reported_lower=None if low != low else low * df,
+            reported_upper=None if high != high else high * df,
+            flags=value.flags if est is not None else flags[r], note=note, recovery_percent=recovery,
+            status=value.status, reported_text=value.text, words=value.words, short=value.short,
+            suggested_dilution=value.suggested_dilution,
+        ))
     return tuple(out)
 
 

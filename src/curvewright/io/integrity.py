@@ -15,7 +15,9 @@ from __future__ import annotations
 
 import hashlib
 import json
-from dataclasses import dataclass
+import weakref
+from dataclasses import dataclass, replace
+from functools import partial
 from typing import Any, Mapping
 
 from ..core.run import Run
@@ -51,11 +53,52 @@ def sha256_of_content(mapping: Mapping[str, Any]) -> str:
     return hashlib.sha256(_canonical(content_of(mapping))).hexdigest()
 
 
+_HASHED: dict[int, tuple["weakref.ref[Run]", str]] = {}
+"""The content hash of each run still alive, by its identity: a run is an immutable value, so its
+hash is worked out once however many checks, tables and audit entries ask for it."""
+
+
 def content_sha256(run: Run) -> str:
-    """SHA-256 (hex) of the run's content in canonical JSON."""
+    """SHA-256 (hex) of the run's content in canonical JSON (worked out once per run value)."""
+    key = id(run)
+    known = _HASHED.get(key)
+    if known is not None and known[0]() is run:
+        return known[1]
     from .run_document import run_to_mapping
 
-    return sha256_of_content(run_to_mapping(run))
+    content = content_of(run_to_mapping(replace(run, samples=())))
+    samples = _samples_text(run.samples)
+    text = b"{" + b",".join(_canonical(k) + b":" + (samples if k == "samples" else _canonical(v))
+                            for k, v in sorted(content.items())) + b"}"
+    digest = hashlib.sha256(text).hexdigest()
+    _HASHED[key] = (weakref.ref(run, partial(_forget, key)), digest)
+    return digest
+
+
+_LAST_SAMPLES: tuple[Any, bytes] = ((), b"[]")
+"""The samples last written as canonical JSON, and that text: the runs made one from another by
+edits share their samples, so the text of many thousands of samples is made once for them all."""
+
+
+def _samples_text(samples: Any) -> bytes:
+    """The canonical JSON of the samples, as :func:`_canonical` writes them within the content (the
+    canonical JSON of an object is its members' texts, keys sorted, joined)."""
+    global _LAST_SAMPLES
+    last = _LAST_SAMPLES
+    if last[0] is samples:
+        return last[1]
+    from .run_document import samples_out
+
+    text = _canonical(samples_out(samples))
+    _LAST_SAMPLES = (samples, text)
+    return text
+
+
+def _forget(key: int, gone: "weakref.ref[Run]") -> None:
+    """A run was freed: its identity may be given to another value, so its hash is dropped."""
+    known = _HASHED.get(key)
+    if known is not None and known[0] is gone:
+        del _HASHED[key]
 
 
 def _short(value: Any) -> str:
@@ -105,9 +148,9 @@ def content_change(run: Run, stored: Any = None) -> ContentChange | None:
     if not numbered:
         return None
     number, entry = numbered[-1]
-    mapping = run_to_mapping(run)
-    if sha256_of_content(mapping) == entry.content_sha256:
+    if content_sha256(run) == entry.content_sha256:
         return None
+    mapping = run_to_mapping(run)
     changes: list[str] = []
     if (isinstance(stored, Mapping) and stored.get("sha256") == entry.content_sha256
             and isinstance(stored.get("parts"), Mapping)):

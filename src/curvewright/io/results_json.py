@@ -93,20 +93,53 @@ def _row_line(row: dict[str, Any]) -> str:
         return _one_line(row)
 
 
+_encode_text = json.encoder.encode_basestring  # type: ignore[attr-defined]
+"""The JSON encoder's own quoting of text (``ensure_ascii=False``)."""
+
+
 def _scalar(value: Any) -> str:
+    """A scalar's JSON text, as ``json.dumps`` writes it (plain words, numbers, true/false and null
+    are written here directly, the same way the encoder writes them)."""
+    kind = type(value)
+    if kind is str:
+        return _encode_text(value)
+    if kind is float:
+        return float.__repr__(value) if math.isfinite(value) else "null"
+    if kind is int:
+        return int.__repr__(value)
+    if value is None:
+        return "null"
+    if kind is bool:
+        return "true" if value else "false"
     return json.dumps(finite(value), ensure_ascii=False, allow_nan=False)
+
+
+class Written:
+    """A value's JSON text made beforehand (by the process that analysed a run), for its place in
+    the output: at the top (``level`` 0) or as an item of the top-level list (``level`` 1, a row
+    then on one line). :func:`write_json` writes the text as it stands."""
+
+    __slots__ = ("level", "text")
+
+    def __init__(self, value: Any, level: int) -> None:
+        self.level = level
+        self.text = _one_line(value) if level and _is_row(value) else "".join(_pieces(value, level))
 
 
 def _pieces(value: Any, level: int) -> Iterable[str]:
     """The JSON text of ``value`` at indentation ``level``, in pieces."""
-    if isinstance(value, dict):
+    if isinstance(value, Written):
+        if value.level != level:
+            raise ValueError(f"JSON text made for level {value.level} placed at level {level}")
+        yield value.text
+    elif isinstance(value, dict):
         if not value:
             yield "{}"
             return
         inner = "\n" + " " * (level + 1)
         yield "{"
         for i, (key, item) in enumerate(value.items()):
-            yield ("," if i else "") + inner + json.dumps(str(key), ensure_ascii=False) + ": "
+            yield ("," if i else "") + inner + _encode_text(str(key)) + ": "
             yield from _pieces(item, level + 1)
         yield "\n" + " " * level + "}"
     elif isinstance(value, (list, tuple, Rows)):
@@ -120,6 +153,9 @@ def _pieces(value: Any, level: int) -> Iterable[str]:
             yield "," if i else ""
             if made_as_rows:
                 yield inner + _row_line(item)
+            elif isinstance(item, Written):
+                yield inner
+                yield from _pieces(item, level + 1)
             elif _is_row(item):
                 yield inner + _one_line(item)
             else:

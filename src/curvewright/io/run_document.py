@@ -149,36 +149,7 @@ def run_to_mapping(run: Run) -> dict[str, Any]:
             }
             for a in run.analytes
         ],
-        "samples": [
-            {
-                "id": sm.id,
-                "kind": sm.kind.value,
-                "run_order": sm.run_order,
-                "dilution_factor": sm.dilution_factor,
-                "nominal": {name: value for name, value in sm.nominal},
-                "measurements": [
-                    {
-                        "analyte": m.analyte,
-                        "replicate": m.replicate,
-                        "response": _reading_out(m.response),
-                        "internal_standard_response": _reading_out(m.internal_standard_response),
-                    }
-                    for m in sm.measurements
-                ],
-                # only when measured, so that documents without standard additions keep their content digest
-                **({"additions": [
-                    {
-                        "analyte": ad.analyte,
-                        "added": ad.added,
-                        "replicate": ad.replicate,
-                        "response": _reading_out(ad.response),
-                        "internal_standard_response": _reading_out(ad.internal_standard_response),
-                    }
-                    for ad in sm.additions
-                ]} if sm.additions else {}),
-            }
-            for sm in run.samples
-        ],
+        "samples": samples_out(run.samples),
         "audit": [
             {
                 "time_utc": e.time_utc,
@@ -349,6 +320,40 @@ def open_recovery(path: str | Path) -> tuple[OpenedRun, str]:
     return replace(opened, path=path, sha256=file_sha256(raw)), source
 
 
+def samples_out(samples: Iterable[Sample]) -> list[dict[str, Any]]:
+    """The samples as JSON-ready data (the "samples" of :func:`run_to_mapping`)."""
+    return [
+        {
+            "id": sm.id,
+            "kind": sm.kind.value,
+            "run_order": sm.run_order,
+            "dilution_factor": sm.dilution_factor,
+            "nominal": {name: value for name, value in sm.nominal},
+            "measurements": [
+                {
+                    "analyte": m.analyte,
+                    "replicate": m.replicate,
+                    "response": _reading_out(m.response),
+                    "internal_standard_response": _reading_out(m.internal_standard_response),
+                }
+                for m in sm.measurements
+            ],
+            # only when measured, so that documents without standard additions keep their content digest
+            **({"additions": [
+                {
+                    "analyte": ad.analyte,
+                    "added": ad.added,
+                    "replicate": ad.replicate,
+                    "response": _reading_out(ad.response),
+                    "internal_standard_response": _reading_out(ad.internal_standard_response),
+                }
+                for ad in sm.additions
+            ]} if sm.additions else {}),
+        }
+        for sm in samples
+    ]
+
+
 def _reading_out(reading: Reading | None) -> dict[str, Any] | None:
     if reading is None:
         return None
@@ -399,8 +404,16 @@ def _parse(data: str | bytes, origin: str) -> Any:
             data = data.decode("utf-8")
         except UnicodeDecodeError as exc:
             raise DocumentError(f"{origin}: not UTF-8 text (byte {exc.start}); a run document is JSON text.") from None
+    oversized: list[_Oversized] = []
+
+    def whole_number(digits: str) -> int | _Oversized:
+        value = _whole_number(digits)
+        if type(value) is _Oversized:
+            oversized.append(value)
+        return value
+
     try:
-        mapping = json.loads(data, parse_constant=_refuse_constant, parse_int=_whole_number)
+        mapping = json.loads(data, parse_constant=_refuse_constant, parse_int=whole_number)
     except json.JSONDecodeError as exc:
         raise DocumentError(
             f"{origin}: not valid JSON at line {exc.lineno}, column {exc.colno} ({exc.msg}); the file may be "
@@ -414,7 +427,7 @@ def _parse(data: str | bytes, origin: str) -> Any:
     except ValueError as exc:  # a constant JSON does not have (NaN, Infinity), refused by _refuse_constant
         raise DocumentError(f"{origin}: {exc}{_constant_at(data)} is not a number a run document may hold "
                             "(every number must be finite).") from None
-    problems = _structure_problems(mapping)
+    problems = _structure_problems(mapping) if _may_have_structure_problems(data, mapping, bool(oversized)) else []
     if problems:
         raise DocumentError(f"{origin}: the document has {len(problems)} problem(s)", tuple(problems))
     return mapping
@@ -468,6 +481,35 @@ def _whole_number(text: str) -> int | _Oversized:
 
 _SURROGATE = re.compile("[\ud800-\udfff]")
 _MAX_LISTED = 20
+
+
+_SURROGATE_ESCAPE = re.compile(r"\\u[dD][89a-fA-F]")
+
+
+def _may_have_structure_problems(text: str, document: Any, oversized: bool) -> bool:
+    """Whether :func:`_structure_problems` could find anything, found without naming paths: an
+    unpaired surrogate can only come from a surrogate in the text (which UTF-8 cannot encode) or a
+    ``\\uD800``–``\\uDFFF`` escape in it; ``oversized`` says whether the parser met a whole number
+    of too many digits; the nesting is counted on the lists and objects alone, one level at a time.
+    The full walk, which names the paths, runs only when this finds a reason (it is then the judge)."""
+    if oversized or _SURROGATE_ESCAPE.search(text) is not None:
+        return True
+    try:
+        text.encode("utf-8")
+    except UnicodeEncodeError:
+        return True
+    level = [document] if type(document) in (dict, list) else []
+    depth = 0
+    while level:
+        depth += 1
+        if depth > MAX_NESTING:
+            return True
+        inner: list[Any] = []
+        for value in level:
+            inner.extend([item for item in (value.values() if type(value) is dict else value)
+                          if type(item) is dict or type(item) is list])
+        level = inner
+    return False
 
 
 def _structure_problems(document: Any) -> list[str]:
@@ -560,6 +602,22 @@ def _refuse_constant(name: str) -> None:
     raise ValueError(name)
 
 
+_CHECKS: dict[str, Callable[[Any], bool]] = {
+    "text": lambda v: isinstance(v, str),
+    "number": _finite_number,
+    "number?": lambda v: v is None or _finite_number(v),
+    "measure": _measure,
+    "measure?": lambda v: v is None or _measure(v),
+    "int": _whole,
+    "int?": lambda v: v is None or _whole(v),
+    "bool": lambda v: isinstance(v, bool),
+    "list": lambda v: isinstance(v, list),
+    "object": lambda v: isinstance(v, dict),
+    "object?": lambda v: v is None or isinstance(v, dict),
+}
+"""What each kind of field read by :meth:`_Reader.get` must hold."""
+
+
 class _Reader:
     """Builds the run while collecting every problem with its path."""
 
@@ -577,20 +635,7 @@ class _Reader:
                 self.fail(where, "missing")
             return default
         value = obj[key]
-        checks: dict[str, Callable[[Any], bool]] = {
-            "text": lambda v: isinstance(v, str),
-            "number": _finite_number,
-            "number?": lambda v: v is None or _finite_number(v),
-            "measure": _measure,
-            "measure?": lambda v: v is None or _measure(v),
-            "int": _whole,
-            "int?": lambda v: v is None or _whole(v),
-            "bool": lambda v: isinstance(v, bool),
-            "list": lambda v: isinstance(v, list),
-            "object": lambda v: isinstance(v, dict),
-            "object?": lambda v: v is None or isinstance(v, dict),
-        }
-        if not checks[kind](value):
+        if not _CHECKS[kind](value):
             whole = f"a whole number within ±{MAX_WHOLE}"
             measure = _MEASURE_WORDS
             words = {"text": "text", "number": "a finite number", "number?": "a finite number or null",
