@@ -52,7 +52,7 @@ def edits(label: str, run: Run, n_edits: int, target_ms: float, scroll_frames: i
 
     from curvewright.app.main_window import MainWindow
     from curvewright.app.qt_runtime import ensure_application
-    from curvewright.app.session import RunSession, analyse_with_evidence
+    from curvewright.app.session import FRAME_SECONDS, RunSession, analyse_with_evidence
     from curvewright.app.standards_model import RESP
 
     app = ensure_application()
@@ -104,7 +104,7 @@ def edits(label: str, run: Run, n_edits: int, target_ms: float, scroll_frames: i
         computes.append(t1 - t0)
         comparisons.append(time.perf_counter() - t1)
     med = statistics.median
-    where = "GUI thread" if session.last_analysis_seconds < 1 / 60 else "analysis thread"
+    where = "GUI thread" if session.last_analysis_work_seconds < FRAME_SECONDS else "analysis thread"
     rows = [
         (label, f"{med(total) * 1e3:.1f} ms", f"{min(total) * 1e3:.1f}–{max(total) * 1e3:.1f}",
          f"{med(analysis) * 1e3:.1f} ms ({where})", f"{med(rebuild) * 1e3:.1f} ms", f"{med(repaint) * 1e3:.1f} ms",

@@ -31,7 +31,7 @@ def changed_response(run, k: int):  # type: ignore[no-untyped-def]
 def test_a_run_that_fits_within_a_frame_is_analysed_at_once(make_window, monkeypatch) -> None:
     window = make_window(WEIGHTED)
     session = window.session
-    session.last_analysis_seconds = 0.0  # as if the last fit took less than a frame
+    session.last_analysis_work_seconds = 0.0  # as if the last fit took less than a frame
     calls = []
     real = session_module.analyse_with_evidence
     monkeypatch.setattr(session_module, "analyse_with_evidence", lambda run: calls.append(run) or real(run))
@@ -46,7 +46,7 @@ def test_a_slow_run_goes_to_the_analysis_thread_and_a_burst_of_edits_is_analysed
         qtbot, make_window, monkeypatch) -> None:
     window = make_window(WEIGHTED)
     session = window.session
-    session.last_analysis_seconds = 1.0  # as if the last fit took a second
+    session.last_analysis_work_seconds = 1.0  # as if the last fit took a second
     analysed = []
     real = session_module.analyse_with_evidence
     monkeypatch.setattr(session_module, "analyse_with_evidence", lambda run: analysed.append(run) or real(run))
@@ -57,6 +57,36 @@ def test_a_slow_run_goes_to_the_analysis_thread_and_a_burst_of_edits_is_analysed
     # the first edit's run, then (once it answered) only the newest: never one analysis per edit
     assert len(analysed) <= 2 and analysed[-1] is session.run
     assert session.result.run is session.run
+
+
+def test_time_an_analysis_spent_waiting_on_the_thread_does_not_send_the_next_one_there(
+        qtbot, make_window, monkeypatch) -> None:
+    # On the analysis thread the elapsed time also counts waiting (for the interpreter lock while the
+    # GUI thread draws); the choice of thread goes by the analysis's own work, so a small run whose
+    # answer was slow to arrive is analysed at once after the next edit, with no queued hop.
+    import time
+
+    window = make_window(WEIGHTED)
+    session = window.session
+    real = session_module.analyse_with_evidence
+
+    def waiting(run):  # type: ignore[no-untyped-def]
+        time.sleep(0.1)  # waits without working, as a thread waiting for the lock does
+        return real(run)
+
+    monkeypatch.setattr(session_module, "analyse_with_evidence", waiting)
+    # a "frame" longer than this small run's work (a few ms) but shorter than the wait, so that the
+    # check does not depend on how fast the machine is
+    monkeypatch.setattr(session_module, "FRAME_SECONDS", 0.09)
+    session.last_analysis_work_seconds = 1.0  # this edit goes to the analysis thread
+    session.apply(changed_response(session.run, 1), "Change a response")
+    assert session.analysis_pending
+    settle(qtbot, window)
+    assert session.last_analysis_seconds >= 0.1  # the status line shows the time it took to answer
+    assert session.last_analysis_work_seconds <= session.last_analysis_seconds - 0.09  # the wait is not work
+    monkeypatch.setattr(session_module, "analyse_with_evidence", real)
+    session.apply(changed_response(session.run, 2), "Change a response")
+    assert not session.analysis_pending and session.result.run is session.run  # answered at once
 
 
 def table_of(texts: list[str]) -> QStandardItemModel:
