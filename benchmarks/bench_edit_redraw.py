@@ -8,7 +8,9 @@ is given beside it, and the model comparison, which is worked out with an edit o
 model-evidence tab is shown (the benchmark edits with the results tab shown). A fit that took less
 than a frame is done at once on the GUI thread; larger runs go to the analysis thread as soon as
 the edit is made (nothing waits for a debounce timer). Scrolling the results table of the
-10,000-sample run is timed per repainted frame.
+10,000-sample run is timed per frame (moving the scroll bar by half a page, with the columns widened
+to the rows coming into view, and repainting the rows in view); the target holds for every frame,
+so the slowest is judged, and the median is given beside it.
 
 Targets: ≤ 100 ms from edit to repaint for 30 × 2,000; ≤ 30 ms for 16 × 50; ≤ 250 ms for 10,000
 samples; < 16 ms per frame scrolling the results.
@@ -118,8 +120,10 @@ def edits(label: str, run: Run, n_edits: int, target_ms: float, scroll_frames: i
         bar = table.verticalScrollBar()
         frames = []
         for _ in range(scroll_frames):
-            bar.setValue(bar.value() + max(1, bar.pageStep() // 2) if bar.value() < bar.maximum() else 0)
+            # a frame: the scroll bar moves (the table widens its columns to the rows coming into
+            # view) and the rows in view are repainted
             start = time.perf_counter()
+            bar.setValue(bar.value() + max(1, bar.pageStep() // 2) if bar.value() < bar.maximum() else 0)
             table.viewport().repaint()
             frames.append(time.perf_counter() - start)
         scroll_rows.append((f"{label}: scrolling the results table", f"{med(frames) * 1e3:.2f} ms",

@@ -5,6 +5,7 @@ in view and widen as wider rows scroll into view. How long a redraw takes is mea
 
 from __future__ import annotations
 
+from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtGui import QStandardItem, QStandardItemModel
 
 from curvewright.app import session as session_module
@@ -141,3 +142,56 @@ def test_a_hidden_long_table_is_fitted_when_shown(qtbot) -> None:
     view.show()
     qtbot.waitExposed(view)
     assert not view.fit_when_shown and view.columnWidth(0) >= needed(view, texts[0])
+
+
+class TextsModel(QAbstractTableModel):
+    """A read-only table of texts that tells what its columns' widths depend on (``fit_key``), as
+    the app's models do; counts the rows whose cells are asked for their texts."""
+
+    def __init__(self, texts: list[str]) -> None:
+        super().__init__()
+        self.texts = texts
+        self.asked: set[int] = set()
+
+    def rowCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
+        return 0 if parent.isValid() else len(self.texts)
+
+    def columnCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
+        return 0 if parent.isValid() else 2
+
+    def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):  # type: ignore[no-untyped-def]
+        if role == Qt.ItemDataRole.DisplayRole and index.isValid():
+            self.asked.add(index.row())
+            return self.texts[index.row()] if index.column() == 0 else "x"
+        return None
+
+    def fit_key(self, col: int, rows: range) -> tuple[str, ...]:
+        return tuple(self.texts[r] if col == 0 else "x" for r in rows)
+
+
+def test_a_long_table_that_tells_its_texts_is_measured_only_when_a_wider_text_scrolls_into_view(qtbot) -> None:
+    long_text = "a much longer sample name, far below the rows in view"
+    texts = ["sample 12"] * (5 * FIT_EVERY_ROW_UP_TO) + ["s 1"] * 50 + [long_text]
+    model = TextsModel(texts)
+    view = FittedTableView()
+    qtbot.addWidget(view)
+    view.setModel(model)
+    view.resize(400, 200)
+    view.show()
+    qtbot.waitExposed(view)
+    fit_columns(view)
+    fitted = view.columnWidth(0)
+    assert fitted >= needed(view, "sample 12") and fitted < needed(view, long_text)
+    model.asked.clear()
+    view.scrollTo(model.index(5 * FIT_EVERY_ROW_UP_TO + 10, 0))  # texts no wider than those fitted
+    assert view.columnWidth(0) == fitted
+    assert model.asked == set()  # no cell was measured (and none painted yet)
+    view.scrollToBottom()  # the wider text comes into view: the column widens
+    assert view.columnWidth(0) >= needed(view, long_text)
+    # fitted again to the same rows at the top (after an analysis that changed nothing): back to the
+    # width those rows need, and widened again when the wider text comes back into view
+    view.scrollToTop()
+    fit_columns(view)
+    assert view.columnWidth(0) == fitted
+    view.scrollToBottom()
+    assert view.columnWidth(0) >= needed(view, long_text)

@@ -81,17 +81,30 @@ def _fit_changed_columns(view: QTableView, model, long_table: bool) -> None:  # 
 
     rows = _rows_measured(view, long_table)
     base = (view.font().key(), (rows.start, rows.stop), model.rowCount())
-    measured: dict[int, tuple[object, int]] = view.__dict__.setdefault("_measured_columns", {})
+    measured: dict[int, tuple[object, int, float]] = view.__dict__.setdefault("_measured_columns", {})
+    widest: dict[int, float] = view.__dict__.setdefault("_widest_text", {})
+    """Per column, the widest text it was fitted to (see :func:`widen_to_rows_in_view`)."""
+    metrics = view.fontMetrics()
     for c in range(model.columnCount()):
         if view.isColumnHidden(c):
             continue
-        key = (base, model.headerData(c, Qt.Orientation.Horizontal), model.fit_key(c, rows))
+        texts = model.fit_key(c, rows)
+        key = (base, model.headerData(c, Qt.Orientation.Horizontal), texts)
         known = measured.get(c)
-        if known is not None and known[0] == key:
-            view.setColumnWidth(c, known[1])
-        else:
+        if known is None or known[0] != key:
             view.resizeColumnToContents(c)
-            measured[c] = (key, view.columnWidth(c))
+            known = measured[c] = (key, view.columnWidth(c), _widest_advance(metrics, texts))
+        else:
+            view.setColumnWidth(c, known[1])
+        widest[c] = known[2]
+
+
+def _widest_advance(metrics, texts: tuple) -> float:  # type: ignore[no-untyped-def, type-arg]
+    """The widest of the texts of a column's cells (all in the view's font), or infinity when the
+    cells are not plain texts (their fonts may differ), so that they are always measured."""
+    if not all(isinstance(t, str) for t in texts):
+        return float("inf")
+    return max((metrics.horizontalAdvance(t) for t in texts), default=0)
 
 
 def fill_last_column(view: QTableView) -> None:
@@ -116,7 +129,11 @@ def fill_last_column(view: QTableView) -> None:
 
 def widen_to_rows_in_view(view: QTableView) -> None:
     """Widen the columns that are narrower than a cell now in view (a long table's columns are fitted
-    to the rows in view only; see :func:`fit_columns`). Columns never narrow here."""
+    to the rows in view only; see :func:`fit_columns`). Columns never narrow here.
+
+    A model that tells its cells' texts (``fit_key``, plain texts in the view's font) has a column
+    measured only when a text in view is wider than every text the column was measured for: one no
+    wider needs no more room. Scrolling then measures nothing until a wider text comes into view."""
     model = view.model()
     if model is None or model.rowCount() <= FIT_EVERY_ROW_UP_TO:
         return
@@ -124,7 +141,15 @@ def widen_to_rows_in_view(view: QTableView) -> None:
     if not shown:
         return
     last = shown[-1]
+    widest: dict[int, float] | None = view.__dict__.get("_widest_text") if hasattr(model, "fit_key") else None
+    rows = _rows_measured(view, True) if widest is not None else range(0)
+    metrics = view.fontMetrics()
     for c in shown:
+        if widest is not None and c in widest:
+            in_view = _widest_advance(metrics, model.fit_key(c, rows))
+            if in_view <= widest[c]:
+                continue  # no text in view is wider than one the column already fits
+            widest[c] = in_view
         need = view.sizeHintForColumn(c)
         if c == last:
             natural = view.property("fitted_last_width")
