@@ -195,3 +195,44 @@ def test_a_long_table_that_tells_its_texts_is_measured_only_when_a_wider_text_sc
     assert view.columnWidth(0) == fitted
     view.scrollToBottom()
     assert view.columnWidth(0) >= needed(view, long_text)
+
+
+def test_after_edits_every_column_is_as_wide_as_qt_fits_it(qtbot, make_window) -> None:
+    # The tables measure only their widest texts (and every cell in another font); each column must
+    # come out exactly as wide as Qt's own fitting to every cell makes it.
+    window = make_window(WEIGHTED)
+    session = window.session
+    analyte = session.run.analytes[0]
+    excluded = analyte.standards[len(analyte.standards) // 2]
+    session.apply(run_edits.exclude_standard(session.run, analyte.name, excluded.id, "pipetting error noted"),
+                  f"Exclude {excluded.id}")
+    settle(qtbot, window)
+    session.apply(changed_response(session.run, 3), "Change a response")
+    settle(qtbot, window)
+    assert not window.standards_model.standards[len(analyte.standards) // 2].included
+    for view in (window.standards_view, window.results_view.table):
+        model = view.model()
+        shown = [c for c in range(model.columnCount()) if not view.isColumnHidden(c)]
+        for c in shown[:-1]:  # the last one also takes the room left
+            fitted = view.columnWidth(c)
+            view.resizeColumnToContents(c)
+            assert fitted == view.columnWidth(c), (view.accessibleName(), model.headerData(c, Qt.Orientation.Horizontal))
+
+
+def test_a_column_of_texts_is_fitted_as_qt_fits_it_whatever_the_texts(qtbot) -> None:
+    # the widest texts decide; a text of several lines is measured by Qt, never judged by its length
+    cases = [["12.5", "1.25e+03", "—", "no solution", ""],
+             ["short", "a text of two lines\nand this is the second one, longer", "medium text here"],
+             ["x\tin columns", "wider than the tabbed text", "ab"],
+             ["", ""], ["0.001", "0.002", "0.003"]]
+    for texts in cases:
+        model = TextsModel(texts)
+        view = FittedTableView()
+        qtbot.addWidget(view)
+        view.setModel(model)
+        view.resize(600, 300)
+        view.show()
+        fit_columns(view)
+        fitted = view.columnWidth(0)
+        view.resizeColumnToContents(0)
+        assert fitted == view.columnWidth(0), texts

@@ -161,10 +161,12 @@ class StandardsModel(QAbstractTableModel):
         return None
 
     def fit_key(self, col: int, rows: range) -> tuple:  # type: ignore[type-arg]
-        """What the widths of column ``col``'s cells in ``rows`` depend on: their texts, and the italic
-        font of an excluded standard (see :func:`~curvewright.app.table_view.fit_columns`)."""
+        """What the widths of column ``col``'s cells in ``rows`` depend on: their texts, in the table's
+        font, or for an excluded standard its text in italics (see
+        :func:`~curvewright.app.table_view.fit_columns`)."""
         standards = self.standards
-        return tuple((self._text(standards[r], col), standards[r].included) for r in rows)
+        return tuple(self._text(s, col) if s.included else (self._text(s, col), "italic")
+                     for s in (standards[r] for r in rows))
 
     def _problem(self, s: Standard, col: int) -> str | None:
         if col == CONC and not s.has_concentration:

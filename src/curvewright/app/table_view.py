@@ -3,6 +3,7 @@ every column is wide enough for its header and its cells (nothing on screen is e
 
 from __future__ import annotations
 
+import math
 from typing import Callable, TypeVar
 
 from PySide6.QtGui import QGuiApplication, QKeySequence
@@ -39,10 +40,11 @@ def fit_columns(view: QTableView) -> None:
     last column take any room left (see :func:`fill_last_column`). A long table is fitted to the rows
     in view; its columns widen as other rows come into view.
 
-    A model that tells what its cells' sizes depend on (``fit_key(column, rows)``: the texts and
-    fonts of those rows in that column) has only the columns that changed measured again; the
-    others keep the width measured for the same content (a table is fitted after every analysis,
-    and most of its columns are as they were)."""
+    A model that tells what its cells' sizes depend on (``fit_key(column, rows)``: per row, the
+    cell's text when it is shown in the table's font without decoration, else anything that changes
+    with what the cell shows) has only the columns that changed measured again; the others keep the
+    width measured for the same content (a table is fitted after every analysis, and most of its
+    columns are as they were). A changed column has only its widest texts measured by the delegate."""
     model = view.model()
     if model is None:
         return
@@ -92,17 +94,44 @@ def _fit_changed_columns(view: QTableView, model, long_table: bool) -> None:  # 
         key = (base, model.headerData(c, Qt.Orientation.Horizontal), texts)
         known = measured.get(c)
         if known is None or known[0] != key:
-            view.resizeColumnToContents(c)
+            _resize_to_texts(view, model, c, rows, texts, metrics)
             known = measured[c] = (key, view.columnWidth(c), _widest_advance(metrics, texts))
         else:
             view.setColumnWidth(c, known[1])
         widest[c] = known[2]
 
 
+def _resize_to_texts(view: QTableView, model, c: int, rows: range, texts: tuple, metrics) -> None:  # type: ignore[no-untyped-def, type-arg]
+    """What ``view.resizeColumnToContents(c)`` does, asking the delegate only for the cells that can
+    be the widest: a cell's width is its text's width plus the same margins in every row, so only
+    the texts within two pixels of the widest (Qt lays text out at fractions of a pixel, font
+    metrics round) and the cells in another font (keys that are not plain texts) or of several lines
+    or tabs are measured. The table's rows are never hidden."""
+    from PySide6.QtWidgets import QStyleOptionViewItem
+
+    advances = [metrics.horizontalAdvance(t) if isinstance(t, str) and "\n" not in t and "\t" not in t else None
+                for t in texts]
+    plain = [a for a in advances if a is not None]
+    floor = max(plain) - 2 if plain else 0
+    view.ensurePolished()
+    option = QStyleOptionViewItem()
+    view.initViewItemOption(option)
+    content = 0
+    for r, advance in zip(rows, advances):
+        if advance is None or advance >= floor:
+            index = model.index(r, c)
+            content = max(content, view.itemDelegateForIndex(index).sizeHint(option, index).width())
+    if view.showGrid():
+        content += 1
+    header = view.horizontalHeader()
+    view.setColumnWidth(c, max(content, 0 if header.isHidden() else header.sectionSizeHint(c)))
+
+
 def _widest_advance(metrics, texts: tuple) -> float:  # type: ignore[no-untyped-def, type-arg]
-    """The widest of the texts of a column's cells (all in the view's font), or infinity when the
-    cells are not plain texts (their fonts may differ), so that they are always measured."""
-    if not all(isinstance(t, str) for t in texts):
+    """The widest of the texts of a column's cells (all in the view's font, one line each), or
+    infinity when some cell is not such a text (its font or its lines may differ), so that the
+    column is always measured."""
+    if not all(isinstance(t, str) and "\n" not in t and "\t" not in t for t in texts):
         return float("inf")
     return max((metrics.horizontalAdvance(t) for t in texts), default=0)
 
@@ -145,7 +174,7 @@ def widen_to_rows_in_view(view: QTableView) -> None:
     rows = _rows_measured(view, True) if widest is not None else range(0)
     metrics = view.fontMetrics()
     for c in shown:
-        if widest is not None and c in widest:
+        if widest is not None and widest.get(c, math.inf) < math.inf:
             in_view = _widest_advance(metrics, model.fit_key(c, rows))
             if in_view <= widest[c]:
                 continue  # no text in view is wider than one the column already fits
