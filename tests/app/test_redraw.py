@@ -236,3 +236,19 @@ def test_a_column_of_texts_is_fitted_as_qt_fits_it_whatever_the_texts(qtbot) -> 
         fitted = view.columnWidth(0)
         view.resizeColumnToContents(0)
         assert fitted == view.columnWidth(0), texts
+
+
+def test_a_redraw_gives_the_unknowns_points_their_data_once(qtbot, make_window, monkeypatch) -> None:
+    # pyqtgraph rebuilds a set of points when it is given data; with its range limit it also gives it
+    # its data again when the vertical range changes, which every edit does
+    from curvewright.core.run import SampleKind
+
+    window = make_window(WEIGHTED)
+    session = window.session
+    points = window.curve_view.curve_items.samples[SampleKind.UNKNOWN][1]
+    given = []
+    real = points.scatter.setData
+    monkeypatch.setattr(points.scatter, "setData", lambda *a, **k: given.append(1) or real(*a, **k))
+    session.apply(changed_response(session.run, 5), "Change a response")
+    settle(qtbot, window)
+    assert points.isVisible() and len(given) == 1
