@@ -128,7 +128,8 @@ class ResultsModel(QAbstractTableModel):
     def fit_key(self, col: int, rows: range) -> tuple[str, ...]:
         """What the widths of column ``col``'s cells in ``rows`` depend on: their texts (see
         :func:`~curvewright.app.table_view.fit_columns`)."""
-        return tuple(self.row_texts(r)[col] for r in rows)
+        known, row_texts = self._texts, self.row_texts
+        return tuple((known.get(r) or row_texts(r))[col] for r in rows)
 
     def _needs_attention(self, s: SampleResult) -> bool:
         from ..core.inverse import QuantFlag  # loaded: rows exist only once a result has arrived

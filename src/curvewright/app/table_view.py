@@ -6,7 +6,7 @@ from __future__ import annotations
 import math
 from typing import Callable, TypeVar
 
-from PySide6.QtGui import QGuiApplication, QKeySequence
+from PySide6.QtGui import QFontMetricsF, QGuiApplication, QKeySequence
 from PySide6.QtWidgets import QAbstractItemView, QTableView
 
 
@@ -86,7 +86,7 @@ def _fit_changed_columns(view: QTableView, model, long_table: bool) -> None:  # 
     measured: dict[int, tuple[object, int, float]] = view.__dict__.setdefault("_measured_columns", {})
     widest: dict[int, float] = view.__dict__.setdefault("_widest_text", {})
     """Per column, the widest text it was fitted to (see :func:`widen_to_rows_in_view`)."""
-    metrics = view.fontMetrics()
+    metrics = QFontMetricsF(view.font())
     for c in range(model.columnCount()):
         if view.isColumnHidden(c):
             continue
@@ -94,46 +94,61 @@ def _fit_changed_columns(view: QTableView, model, long_table: bool) -> None:  # 
         key = (base, model.headerData(c, Qt.Orientation.Horizontal), texts)
         known = measured.get(c)
         if known is None or known[0] != key:
-            _resize_to_texts(view, model, c, rows, texts, metrics)
-            known = measured[c] = (key, view.columnWidth(c), _widest_advance(metrics, texts))
+            widest_text = _resize_to_texts(view, model, c, rows, texts, metrics)
+            known = measured[c] = (key, view.columnWidth(c), widest_text)
         else:
             view.setColumnWidth(c, known[1])
         widest[c] = known[2]
 
 
-def _resize_to_texts(view: QTableView, model, c: int, rows: range, texts: tuple, metrics) -> None:  # type: ignore[no-untyped-def, type-arg]
+def _resize_to_texts(view: QTableView, model, c: int, rows: range, texts: tuple, metrics) -> float:  # type: ignore[no-untyped-def, type-arg]
     """What ``view.resizeColumnToContents(c)`` does, asking the delegate only for the cells that can
-    be the widest: a cell's width is its text's width plus the same margins in every row, so only
-    the texts within two pixels of the widest (Qt lays text out at fractions of a pixel, font
-    metrics round) and the cells in another font (keys that are not plain texts) or of several lines
-    or tabs are measured. The table's rows are never hidden."""
+    be the widest; returns the widest text's advance (see :func:`_widest_advance`).
+
+    A cell's width is its text's laid-out width plus the same margins in every row, and texts of
+    the same advance in the same font lay out alike. So the delegate measures one cell of each
+    advance within two pixels of the widest (Qt rounds a laid-out width up to whole pixels), and
+    every cell in another font (keys that are not plain texts) or of several lines or tabs. The
+    table's rows are never hidden."""
     from PySide6.QtWidgets import QStyleOptionViewItem
 
-    advances = [metrics.horizontalAdvance(t) if isinstance(t, str) and "\n" not in t and "\t" not in t else None
-                for t in texts]
+    advances = [_advance(metrics, t) for t in texts]
     plain = [a for a in advances if a is not None]
     floor = max(plain) - 2 if plain else 0
     view.ensurePolished()
     option = QStyleOptionViewItem()
     view.initViewItemOption(option)
-    content = 0
+    content, seen = 0, set()
     for r, advance in zip(rows, advances):
-        if advance is None or advance >= floor:
+        if advance is None or (advance >= floor and advance not in seen):
+            seen.add(advance)
             index = model.index(r, c)
             content = max(content, view.itemDelegateForIndex(index).sizeHint(option, index).width())
     if view.showGrid():
         content += 1
     header = view.horizontalHeader()
     view.setColumnWidth(c, max(content, 0 if header.isHidden() else header.sectionSizeHint(c)))
+    return math.inf if len(plain) < len(advances) else max(plain, default=0.0)
+
+
+def _advance(metrics, text: object) -> float | None:  # type: ignore[no-untyped-def]
+    """A plain text's advance in the table's font (QFontMetricsF), or None for anything else."""
+    if isinstance(text, str) and "\n" not in text and "\t" not in text:
+        return metrics.horizontalAdvance(text)
+    return None
 
 
 def _widest_advance(metrics, texts: tuple) -> float:  # type: ignore[no-untyped-def, type-arg]
     """The widest of the texts of a column's cells (all in the view's font, one line each), or
     infinity when some cell is not such a text (its font or its lines may differ), so that the
     column is always measured."""
-    if not all(isinstance(t, str) and "\n" not in t and "\t" not in t for t in texts):
-        return float("inf")
-    return max((metrics.horizontalAdvance(t) for t in texts), default=0)
+    widest = 0.0
+    for t in texts:
+        advance = _advance(metrics, t)
+        if advance is None:
+            return math.inf
+        widest = max(widest, advance)
+    return widest
 
 
 def fill_last_column(view: QTableView) -> None:
@@ -172,7 +187,7 @@ def widen_to_rows_in_view(view: QTableView) -> None:
     last = shown[-1]
     widest: dict[int, float] | None = view.__dict__.get("_widest_text") if hasattr(model, "fit_key") else None
     rows = _rows_measured(view, True) if widest is not None else range(0)
-    metrics = view.fontMetrics()
+    metrics = QFontMetricsF(view.font())
     for c in shown:
         if widest is not None and widest.get(c, math.inf) < math.inf:
             in_view = _widest_advance(metrics, model.fit_key(c, rows))
