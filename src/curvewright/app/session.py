@@ -5,8 +5,9 @@ Each change is a new :class:`~curvewright.core.run.Run` (with its audit entry, m
 :mod:`curvewright.io.run_edits`) pushed on a QUndoStack. Analysis runs on a worker thread: each
 request carries a generation number and an answer for a run that is no longer current is dropped.
 An analysis whose work took less than a frame last time is done at once on the GUI thread, with no
-queued hop; a slower one starts on the worker thread as soon as the edit is made, and edits made while it runs are analysed
-together once it answers (so a burst of edits costs at most one analysis more than the last).
+queued hop; a slower one starts on the worker thread as soon as the edit is made, and edits made
+while it runs are analysed together once it answers (so a burst of edits costs at most one
+analysis more than the last).
 
 The model comparison (the model-evidence tab) is worked out on the analysis thread only while that
 tab is shown (:attr:`RunSession.evidence_wanted`); otherwise it is worked out when it is first read,
