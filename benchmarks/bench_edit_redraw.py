@@ -8,7 +8,9 @@ is given beside it, and the model comparison, which is worked out with an edit o
 model-evidence tab is shown (the benchmark edits with the results tab shown). A fit that took less
 than a frame is done at once on the GUI thread; larger runs go to the analysis thread as soon as
 the edit is made (nothing waits for a debounce timer). Scrolling the results table of the
-10,000-sample run is timed per repainted frame.
+10,000-sample run is timed per frame (moving the scroll bar by half a page, with the columns widened
+to the rows coming into view, and repainting the rows in view); the target holds for every frame,
+so the slowest is judged, and the median is given beside it.
 
 Targets: ≤ 100 ms from edit to repaint for 30 × 2,000; ≤ 30 ms for 16 × 50; ≤ 250 ms for 10,000
 samples; < 16 ms per frame scrolling the results.
@@ -52,7 +54,7 @@ def edits(label: str, run: Run, n_edits: int, target_ms: float, scroll_frames: i
 
     from curvewright.app.main_window import MainWindow
     from curvewright.app.qt_runtime import ensure_application
-    from curvewright.app.session import RunSession, analyse_with_evidence
+    from curvewright.app.session import FRAME_SECONDS, RunSession, analyse_with_evidence
     from curvewright.app.standards_model import RESP
 
     app = ensure_application()
@@ -104,7 +106,7 @@ def edits(label: str, run: Run, n_edits: int, target_ms: float, scroll_frames: i
         computes.append(t1 - t0)
         comparisons.append(time.perf_counter() - t1)
     med = statistics.median
-    where = "GUI thread" if session.last_analysis_seconds < 1 / 60 else "analysis thread"
+    where = "GUI thread" if session.last_analysis_work_seconds < FRAME_SECONDS else "analysis thread"
     rows = [
         (label, f"{med(total) * 1e3:.1f} ms", f"{min(total) * 1e3:.1f}–{max(total) * 1e3:.1f}",
          f"{med(analysis) * 1e3:.1f} ms ({where})", f"{med(rebuild) * 1e3:.1f} ms", f"{med(repaint) * 1e3:.1f} ms",
@@ -115,15 +117,23 @@ def edits(label: str, run: Run, n_edits: int, target_ms: float, scroll_frames: i
     if scroll_frames:
         table = window.results_view.table
         window.bottom_tabs.setCurrentWidget(window.results_view)
+        # the recovery file of the last edit is written on the writer thread; its serialising holds
+        # Python's interpreter lock and would stall the frames it overlaps (timed separately below)
+        start = time.perf_counter()
+        session.flush_recovery()
+        recovery_wait = time.perf_counter() - start
         bar = table.verticalScrollBar()
         frames = []
         for _ in range(scroll_frames):
-            bar.setValue(bar.value() + max(1, bar.pageStep() // 2) if bar.value() < bar.maximum() else 0)
+            # a frame: the scroll bar moves (the table widens its columns to the rows coming into
+            # view) and the rows in view are repainted
             start = time.perf_counter()
+            bar.setValue(bar.value() + max(1, bar.pageStep() // 2) if bar.value() < bar.maximum() else 0)
             table.viewport().repaint()
             frames.append(time.perf_counter() - start)
         scroll_rows.append((f"{label}: scrolling the results table", f"{med(frames) * 1e3:.2f} ms",
-                            f"{max(frames) * 1e3:.2f} ms", f"< 16 ms: {'met' if max(frames) < 0.016 else 'NOT met'}"))
+                            f"{max(frames) * 1e3:.2f} ms", f"{recovery_wait * 1e3:.0f} ms",
+                            f"< 16 ms: {'met' if max(frames) < 0.016 else 'NOT met'}"))
     session.undo_stack.setClean()
     window.close()
     window.deleteLater()
@@ -148,7 +158,7 @@ def main() -> None:
                 ("run", "edit → repainted", "min–max", "analysis answered", "views rebuilt", "window repainted",
                  "engine alone", "model comparison (not redone)", "ratio to engine", "target"))
     print_table("Scrolling the results table (one repaint per frame)", scroll,
-                ("", "median frame", "slowest frame", "target"))
+                ("", "median frame", "slowest frame", "recovery write waited for first", "target (slowest frame)"))
     os._exit(0)
 
 

@@ -5,6 +5,7 @@ in view and widen as wider rows scroll into view. How long a redraw takes is mea
 
 from __future__ import annotations
 
+from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtGui import QStandardItem, QStandardItemModel
 
 from curvewright.app import session as session_module
@@ -31,7 +32,7 @@ def changed_response(run, k: int):  # type: ignore[no-untyped-def]
 def test_a_run_that_fits_within_a_frame_is_analysed_at_once(make_window, monkeypatch) -> None:
     window = make_window(WEIGHTED)
     session = window.session
-    session.last_analysis_seconds = 0.0  # as if the last fit took less than a frame
+    session.last_analysis_work_seconds = 0.0  # as if the last fit took less than a frame
     calls = []
     real = session_module.analyse_with_evidence
     monkeypatch.setattr(session_module, "analyse_with_evidence", lambda run: calls.append(run) or real(run))
@@ -46,7 +47,7 @@ def test_a_slow_run_goes_to_the_analysis_thread_and_a_burst_of_edits_is_analysed
         qtbot, make_window, monkeypatch) -> None:
     window = make_window(WEIGHTED)
     session = window.session
-    session.last_analysis_seconds = 1.0  # as if the last fit took a second
+    session.last_analysis_work_seconds = 1.0  # as if the last fit took a second
     analysed = []
     real = session_module.analyse_with_evidence
     monkeypatch.setattr(session_module, "analyse_with_evidence", lambda run: analysed.append(run) or real(run))
@@ -57,6 +58,36 @@ def test_a_slow_run_goes_to_the_analysis_thread_and_a_burst_of_edits_is_analysed
     # the first edit's run, then (once it answered) only the newest: never one analysis per edit
     assert len(analysed) <= 2 and analysed[-1] is session.run
     assert session.result.run is session.run
+
+
+def test_time_an_analysis_spent_waiting_on_the_thread_does_not_send_the_next_one_there(
+        qtbot, make_window, monkeypatch) -> None:
+    # On the analysis thread the elapsed time also counts waiting (for the interpreter lock while the
+    # GUI thread draws); the choice of thread goes by the analysis's own work, so a small run whose
+    # answer was slow to arrive is analysed at once after the next edit, with no queued hop.
+    import time
+
+    window = make_window(WEIGHTED)
+    session = window.session
+    real = session_module.analyse_with_evidence
+
+    def waiting(run):  # type: ignore[no-untyped-def]
+        time.sleep(0.1)  # waits without working, as a thread waiting for the lock does
+        return real(run)
+
+    monkeypatch.setattr(session_module, "analyse_with_evidence", waiting)
+    # a "frame" longer than this small run's work (a few ms) but shorter than the wait, so that the
+    # check does not depend on how fast the machine is
+    monkeypatch.setattr(session_module, "FRAME_SECONDS", 0.09)
+    session.last_analysis_work_seconds = 1.0  # this edit goes to the analysis thread
+    session.apply(changed_response(session.run, 1), "Change a response")
+    assert session.analysis_pending
+    settle(qtbot, window)
+    assert session.last_analysis_seconds >= 0.1  # the status line shows the time it took to answer
+    assert session.last_analysis_work_seconds <= session.last_analysis_seconds - 0.09  # the wait is not work
+    monkeypatch.setattr(session_module, "analyse_with_evidence", real)
+    session.apply(changed_response(session.run, 2), "Change a response")
+    assert not session.analysis_pending and session.result.run is session.run  # answered at once
 
 
 def table_of(texts: list[str]) -> QStandardItemModel:
@@ -111,3 +142,113 @@ def test_a_hidden_long_table_is_fitted_when_shown(qtbot) -> None:
     view.show()
     qtbot.waitExposed(view)
     assert not view.fit_when_shown and view.columnWidth(0) >= needed(view, texts[0])
+
+
+class TextsModel(QAbstractTableModel):
+    """A read-only table of texts that tells what its columns' widths depend on (``fit_key``), as
+    the app's models do; counts the rows whose cells are asked for their texts."""
+
+    def __init__(self, texts: list[str]) -> None:
+        super().__init__()
+        self.texts = texts
+        self.asked: set[int] = set()
+
+    def rowCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
+        return 0 if parent.isValid() else len(self.texts)
+
+    def columnCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
+        return 0 if parent.isValid() else 2
+
+    def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):  # type: ignore[no-untyped-def]
+        if role == Qt.ItemDataRole.DisplayRole and index.isValid():
+            self.asked.add(index.row())
+            return self.texts[index.row()] if index.column() == 0 else "x"
+        return None
+
+    def fit_key(self, col: int, rows: range) -> tuple[str, ...]:
+        return tuple(self.texts[r] if col == 0 else "x" for r in rows)
+
+
+def test_a_long_table_that_tells_its_texts_is_measured_only_when_a_wider_text_scrolls_into_view(qtbot) -> None:
+    long_text = "a much longer sample name, far below the rows in view"
+    texts = ["sample 12"] * (5 * FIT_EVERY_ROW_UP_TO) + ["s 1"] * 50 + [long_text]
+    model = TextsModel(texts)
+    view = FittedTableView()
+    qtbot.addWidget(view)
+    view.setModel(model)
+    view.resize(400, 200)
+    view.show()
+    qtbot.waitExposed(view)
+    fit_columns(view)
+    fitted = view.columnWidth(0)
+    assert fitted >= needed(view, "sample 12") and fitted < needed(view, long_text)
+    model.asked.clear()
+    view.scrollTo(model.index(5 * FIT_EVERY_ROW_UP_TO + 10, 0))  # texts no wider than those fitted
+    assert view.columnWidth(0) == fitted
+    assert model.asked == set()  # no cell was measured (and none painted yet)
+    view.scrollToBottom()  # the wider text comes into view: the column widens
+    assert view.columnWidth(0) >= needed(view, long_text)
+    # fitted again to the same rows at the top (after an analysis that changed nothing): back to the
+    # width those rows need, and widened again when the wider text comes back into view
+    view.scrollToTop()
+    fit_columns(view)
+    assert view.columnWidth(0) == fitted
+    view.scrollToBottom()
+    assert view.columnWidth(0) >= needed(view, long_text)
+
+
+def test_after_edits_every_column_is_as_wide_as_qt_fits_it(qtbot, make_window) -> None:
+    # The tables measure only their widest texts (and every cell in another font); each column must
+    # come out exactly as wide as Qt's own fitting to every cell makes it.
+    window = make_window(WEIGHTED)
+    session = window.session
+    analyte = session.run.analytes[0]
+    excluded = analyte.standards[len(analyte.standards) // 2]
+    session.apply(run_edits.exclude_standard(session.run, analyte.name, excluded.id, "pipetting error noted"),
+                  f"Exclude {excluded.id}")
+    settle(qtbot, window)
+    session.apply(changed_response(session.run, 3), "Change a response")
+    settle(qtbot, window)
+    assert not window.standards_model.standards[len(analyte.standards) // 2].included
+    for view in (window.standards_view, window.results_view.table):
+        model = view.model()
+        shown = [c for c in range(model.columnCount()) if not view.isColumnHidden(c)]
+        for c in shown[:-1]:  # the last one also takes the room left
+            fitted = view.columnWidth(c)
+            view.resizeColumnToContents(c)
+            assert fitted == view.columnWidth(c), (view.accessibleName(), model.headerData(c, Qt.Orientation.Horizontal))
+
+
+def test_a_column_of_texts_is_fitted_as_qt_fits_it_whatever_the_texts(qtbot) -> None:
+    # the widest texts decide; a text of several lines is measured by Qt, never judged by its length
+    cases = [["12.5", "1.25e+03", "—", "no solution", ""],
+             ["short", "a text of two lines\nand this is the second one, longer", "medium text here"],
+             ["x\tin columns", "wider than the tabbed text", "ab"],
+             ["", ""], ["0.001", "0.002", "0.003"]]
+    for texts in cases:
+        model = TextsModel(texts)
+        view = FittedTableView()
+        qtbot.addWidget(view)
+        view.setModel(model)
+        view.resize(600, 300)
+        view.show()
+        fit_columns(view)
+        fitted = view.columnWidth(0)
+        view.resizeColumnToContents(0)
+        assert fitted == view.columnWidth(0), texts
+
+
+def test_a_redraw_gives_the_unknowns_points_their_data_once(qtbot, make_window, monkeypatch) -> None:
+    # pyqtgraph rebuilds a set of points when it is given data; with its range limit it also gives it
+    # its data again when the vertical range changes, which every edit does
+    from curvewright.core.run import SampleKind
+
+    window = make_window(WEIGHTED)
+    session = window.session
+    points = window.curve_view.curve_items.samples[SampleKind.UNKNOWN][1]
+    given = []
+    real = points.scatter.setData
+    monkeypatch.setattr(points.scatter, "setData", lambda *a, **k: given.append(1) or real(*a, **k))
+    session.apply(changed_response(session.run, 5), "Change a response")
+    settle(qtbot, window)
+    assert points.isVisible() and len(given) == 1

@@ -64,6 +64,12 @@ class _KeptPlot:
         self._shown: set[int] = set()
 
     def add(self, item, ignore_bounds: bool = False):  # type: ignore[no-untyped-def]
+        if isinstance(item, pg.PlotDataItem) and item.opts["pen"] is None:
+            # Points only: with its range limit pyqtgraph gives such an item its data again whenever
+            # the vertical range changes, rebuilding every point a second time on each redraw. The
+            # limit keeps lines that run far outside a zoomed view drawable; points are drawn one
+            # by one, and after autoranging every point lies in the view, so they look the same.
+            item.setDynamicRangeLimit(None)
         self.plot.addItem(item, ignoreBounds=ignore_bounds)
         item.hide()
         return item

@@ -28,6 +28,13 @@ NUMERIC = (REPORTED, QC, N, MEAN, ESTIMATE, DILUTION, FULL)
 ATTENTION = QColor(255, 236, 200)
 _ATTENTION_BRUSH = QBrush(ATTENTION)
 _RIGHT = int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+_DISPLAY, _TOOLTIP, _BACKGROUND, _ALIGNMENT = (int(r) for r in (
+    Qt.ItemDataRole.DisplayRole, Qt.ItemDataRole.ToolTipRole, Qt.ItemDataRole.BackgroundRole,
+    Qt.ItemDataRole.TextAlignmentRole))
+_ANSWERED = frozenset((_DISPLAY, _TOOLTIP, _BACKGROUND, _ALIGNMENT))
+"""The roles this table answers. A view asks for about eight roles of every cell it paints or
+measures (font, colours, check state, decoration, size...); the others are turned away first."""
+_ALIGNMENTS = tuple(_RIGHT if c in NUMERIC else None for c in range(len(COLUMNS)))
 
 
 class ResultsModel(QAbstractTableModel):
@@ -91,22 +98,23 @@ class ResultsModel(QAbstractTableModel):
             return f"{name} ({unit})"
         return name
 
-    def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):
-        if not index.isValid():
+    def data(self, index: QModelIndex, role: int = _DISPLAY):
+        """A lookup of what was worked out once per row (painting and scrolling ask for every cell in
+        view, several roles each)."""
+        if role not in _ANSWERED or not index.isValid():
             return None
-        row, col = index.row(), index.column()
-        if role == Qt.ItemDataRole.DisplayRole:
-            return self.row_texts(row)[col]
-        if role == Qt.ItemDataRole.ToolTipRole:
-            return self.description(self.rows[row])
-        if role == Qt.ItemDataRole.BackgroundRole:
+        if role == _DISPLAY:
+            texts = self._texts.get(index.row())
+            return (texts if texts is not None else self.row_texts(index.row()))[index.column()]
+        if role == _ALIGNMENT:
+            return _ALIGNMENTS[index.column()]
+        row = index.row()
+        if role == _BACKGROUND:
             attention = self._attention.get(row)
             if attention is None:
                 attention = self._attention[row] = self._needs_attention(self.rows[row])
             return _ATTENTION_BRUSH if attention else None
-        if role == Qt.ItemDataRole.TextAlignmentRole and col in NUMERIC:
-            return _RIGHT
-        return None
+        return self.description(self.rows[row])  # the tooltip, asked for one cell at a time
 
     def row_texts(self, row: int) -> tuple[str, ...]:
         """The cell texts of one row, worked out when the row is first shown and kept for the result
@@ -120,7 +128,8 @@ class ResultsModel(QAbstractTableModel):
     def fit_key(self, col: int, rows: range) -> tuple[str, ...]:
         """What the widths of column ``col``'s cells in ``rows`` depend on: their texts (see
         :func:`~curvewright.app.table_view.fit_columns`)."""
-        return tuple(self.row_texts(r)[col] for r in rows)
+        known, row_texts = self._texts, self.row_texts
+        return tuple((known.get(r) or row_texts(r))[col] for r in rows)
 
     def _needs_attention(self, s: SampleResult) -> bool:
         from ..core.inverse import QuantFlag  # loaded: rows exist only once a result has arrived

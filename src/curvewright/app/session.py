@@ -4,9 +4,10 @@ background analysis. Widgets read from here and send every change through :meth:
 Each change is a new :class:`~curvewright.core.run.Run` (with its audit entry, made by
 :mod:`curvewright.io.run_edits`) pushed on a QUndoStack. Analysis runs on a worker thread: each
 request carries a generation number and an answer for a run that is no longer current is dropped.
-An analysis that took less than a frame last time is done at once on the GUI thread; a slower one
-starts on the worker thread as soon as the edit is made, and edits made while it runs are analysed
-together once it answers (so a burst of edits costs at most one analysis more than the last).
+An analysis whose work took less than a frame last time is done at once on the GUI thread, with no
+queued hop; a slower one starts on the worker thread as soon as the edit is made, and edits made
+while it runs are analysed together once it answers (so a burst of edits costs at most one
+analysis more than the last).
 
 The model comparison (the model-evidence tab) is worked out on the analysis thread only while that
 tab is shown (:attr:`RunSession.evidence_wanted`); otherwise it is worked out when it is first read,
@@ -36,7 +37,7 @@ if TYPE_CHECKING:
     from ..core.run_analysis import RunResult
 
 FRAME_SECONDS = 1 / 60
-"""An analysis that took less than this (one frame at 60 Hz) is done at once on the GUI thread."""
+"""An analysis whose work took less than this (one frame at 60 Hz) is done at once on the GUI thread."""
 DEFERRED_START_MS = 300
 """A session made with ``defer_analysis`` starts its first analysis at the latest this long after the
 event loop runs, if no window has asked for it sooner."""
@@ -76,6 +77,10 @@ class AnalysisAnswer:
     error: str | None
     seconds: float
     evidence: Mapping[str, ModelComparison | str] | None = None
+    work_seconds: float | None = None
+    """The analysing thread's own CPU time. On the worker thread the elapsed time also counts the
+    waits for Python's interpreter lock while the GUI thread draws, which an analysis done on the
+    GUI thread would not wait for; the choice of thread is made on this (``seconds`` when None)."""
 
 
 class RunEvidence(Mapping):
@@ -113,6 +118,21 @@ def analyse_with_evidence(run: Run) -> tuple[RunResult, RunEvidence]:
     return result, RunEvidence(result)
 
 
+def analysis_answer(run: Run, generation: int, with_evidence: bool) -> AnalysisAnswer:
+    """Analyse ``run`` (and work out its model comparison when ``with_evidence``), timed both as
+    elapsed time and as the calling thread's CPU time (:attr:`AnalysisAnswer.work_seconds`)."""
+    start, work_start = time.perf_counter(), time.thread_time()
+    try:
+        result, evidence = analyse_with_evidence(run)
+        if with_evidence:
+            evidence.load()
+        return AnalysisAnswer(generation, result, None, time.perf_counter() - start, evidence,
+                              time.thread_time() - work_start)
+    except Exception as exc:  # noqa: BLE001 - shown to the user in the status line
+        return AnalysisAnswer(generation, None, str(exc), time.perf_counter() - start, None,
+                              time.thread_time() - work_start)
+
+
 class _AnalysisSignals(QObject):
     done = Signal(object)
 
@@ -125,15 +145,7 @@ class _AnalysisJob(QRunnable):
         self.setAutoDelete(True)
 
     def run(self) -> None:  # noqa: D401 - QRunnable entry point
-        start = time.perf_counter()
-        try:
-            result, evidence = analyse_with_evidence(self.subject)
-            if self.with_evidence:
-                evidence.load()
-            answer = AnalysisAnswer(self.generation, result, None, time.perf_counter() - start, evidence)
-        except Exception as exc:  # noqa: BLE001 - shown to the user in the status line
-            answer = AnalysisAnswer(self.generation, None, str(exc), time.perf_counter() - start)
-        self.signals.done.emit(answer)
+        self.signals.done.emit(analysis_answer(self.subject, self.generation, self.with_evidence))
 
 
 class _RecoverySignals(QObject):
@@ -195,6 +207,9 @@ class RunSession(QObject):
         """True while the model evidence is shown: the analysis then works out the model comparison
         too (on the analysis thread); otherwise it is worked out when first read."""
         self.last_analysis_seconds = 0.0
+        """How long the last analysis took (elapsed), as the status line shows it."""
+        self.last_analysis_work_seconds = 0.0
+        """The last analysis's own CPU time: below a frame, the next one is done on the GUI thread."""
         self._generation = 0
         self._answered = -1
         self._signals = _AnalysisSignals()
@@ -361,14 +376,15 @@ class RunSession(QObject):
 
     # --- analysis ----------------------------------------------------------------------------------
     def request_analysis(self, immediate: bool = False) -> None:
-        """Analyse the current run: at once on the GUI thread when the last analysis took less than a
-        frame, else on the worker thread (right away, or when the analysis under way answers).
+        """Analyse the current run: at once on the GUI thread when the last analysis's work took less
+        than a frame (:attr:`last_analysis_work_seconds`), else on the worker thread (right away, or
+        when the analysis under way answers).
         ``immediate`` always uses the worker thread (the first analysis of a session)."""
         self._generation += 1
         self._deferred_start = False
         if self._running is not None:
             return  # analysed when the analysis under way answers (see _on_answer)
-        if not immediate and self.result is not None and self.last_analysis_seconds < FRAME_SECONDS:
+        if not immediate and self.result is not None and self.last_analysis_work_seconds < FRAME_SECONDS:
             self._analyse_here()
         else:
             self._start_analysis()
@@ -387,15 +403,7 @@ class RunSession(QObject):
 
     def _analyse_here(self) -> None:
         """The analysis on the GUI thread, for runs that take less than a frame."""
-        start = time.perf_counter()
-        try:
-            result, evidence = analyse_with_evidence(self._run)
-            if self.evidence_wanted:
-                evidence.load()
-            answer = AnalysisAnswer(self._generation, result, None, time.perf_counter() - start, evidence)
-        except Exception as exc:  # noqa: BLE001 - shown to the user in the status line
-            answer = AnalysisAnswer(self._generation, None, str(exc), time.perf_counter() - start)
-        self._on_answer(answer)
+        self._on_answer(analysis_answer(self._run, self._generation, self.evidence_wanted))
 
     @property
     def analysis_pending(self) -> bool:
@@ -413,6 +421,7 @@ class RunSession(QObject):
             return
         self._answered = answer.generation
         self.last_analysis_seconds = answer.seconds
+        self.last_analysis_work_seconds = answer.seconds if answer.work_seconds is None else answer.work_seconds
         if answer.result is None:
             self.analysis_failed.emit(answer.error or "analysis failed")
             return

@@ -48,6 +48,11 @@ _ROLES_READ = (Qt.ItemDataRole.ToolTipRole, Qt.ItemDataRole.BackgroundRole, Qt.I
                Qt.ItemDataRole.FontRole, Qt.ItemDataRole.TextAlignmentRole)
 """The roles this table answers besides its texts (a view asks for many more, for every cell)."""
 _RIGHT = int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+_RIGHT_ALIGNED = frozenset((REP, CONC, RESP, IS, BACK, RE))
+_DISPLAY, _EDIT, _FONT, _FOREGROUND, _ALIGNMENT = (int(r) for r in (
+    Qt.ItemDataRole.DisplayRole, Qt.ItemDataRole.EditRole, Qt.ItemDataRole.FontRole, Qt.ItemDataRole.ForegroundRole,
+    Qt.ItemDataRole.TextAlignmentRole))
+_ROLES_ANSWERED = frozenset((_DISPLAY, _EDIT, *(int(r) for r in _ROLES_READ)))
 
 
 def _context(analyte: Analyte) -> Analyte:
@@ -121,14 +126,22 @@ class StandardsModel(QAbstractTableModel):
         return base | Qt.ItemFlag.ItemIsEditable if index.column() in EDITABLE else base
 
     def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):  # noqa: C901
-        if not index.isValid():
-            return None
+        if role not in _ROLES_ANSWERED or not index.isValid():
+            return None  # a role this table leaves to the view, turned away first
         s = self.standards[index.row()]
         col = index.column()
-        if role in (Qt.ItemDataRole.DisplayRole, Qt.ItemDataRole.EditRole):
-            return self._text(s, col, edit=role == Qt.ItemDataRole.EditRole)
-        if role not in _ROLES_READ:
-            return None
+        if role == _DISPLAY or role == _EDIT:
+            return self._text(s, col, edit=role == _EDIT)
+        if role == _ALIGNMENT:
+            return _RIGHT if col in _RIGHT_ALIGNED else None
+        if role == _FONT or role == _FOREGROUND:
+            if s.included:
+                return None
+            if role == _FOREGROUND:
+                return QBrush(EXCLUDED)
+            font = QFont()
+            font.setItalic(True)
+            return font
         problem = self._problem(s, col)
         if role == Qt.ItemDataRole.ToolTipRole:
             if problem:
@@ -140,27 +153,20 @@ class StandardsModel(QAbstractTableModel):
             if col in (LIMITS, IN_FIT) and s.anchor:
                 return ANCHOR_TIP
             return None
-        if role == Qt.ItemDataRole.BackgroundRole:
-            if problem:
-                return QBrush(INVALID)
-            if col == LIMITS and self._text(s, col) == "NO":
-                return QBrush(FAILING)
-            return None
-        if role == Qt.ItemDataRole.ForegroundRole and not s.included:
-            return QBrush(EXCLUDED)
-        if role == Qt.ItemDataRole.FontRole and not s.included:
-            font = QFont()
-            font.setItalic(True)
-            return font
-        if role == Qt.ItemDataRole.TextAlignmentRole and col in (REP, CONC, RESP, IS, BACK, RE):
-            return _RIGHT
+        # the background
+        if problem:
+            return QBrush(INVALID)
+        if col == LIMITS and self._text(s, col) == "NO":
+            return QBrush(FAILING)
         return None
 
     def fit_key(self, col: int, rows: range) -> tuple:  # type: ignore[type-arg]
-        """What the widths of column ``col``'s cells in ``rows`` depend on: their texts, and the italic
-        font of an excluded standard (see :func:`~curvewright.app.table_view.fit_columns`)."""
+        """What the widths of column ``col``'s cells in ``rows`` depend on: their texts, in the table's
+        font, or for an excluded standard its text in italics (see
+        :func:`~curvewright.app.table_view.fit_columns`)."""
         standards = self.standards
-        return tuple((self._text(standards[r], col), standards[r].included) for r in rows)
+        return tuple(self._text(s, col) if s.included else (self._text(s, col), "italic")
+                     for s in (standards[r] for r in rows))
 
     def _problem(self, s: Standard, col: int) -> str | None:
         if col == CONC and not s.has_concentration:

@@ -3,9 +3,10 @@ every column is wide enough for its header and its cells (nothing on screen is e
 
 from __future__ import annotations
 
+import math
 from typing import Callable, TypeVar
 
-from PySide6.QtGui import QGuiApplication, QKeySequence
+from PySide6.QtGui import QFontMetricsF, QGuiApplication, QKeySequence
 from PySide6.QtWidgets import QAbstractItemView, QTableView
 
 
@@ -39,10 +40,11 @@ def fit_columns(view: QTableView) -> None:
     last column take any room left (see :func:`fill_last_column`). A long table is fitted to the rows
     in view; its columns widen as other rows come into view.
 
-    A model that tells what its cells' sizes depend on (``fit_key(column, rows)``: the texts and
-    fonts of those rows in that column) has only the columns that changed measured again; the
-    others keep the width measured for the same content (a table is fitted after every analysis,
-    and most of its columns are as they were)."""
+    A model that tells what its cells' sizes depend on (``fit_key(column, rows)``: per row, the
+    cell's text when it is shown in the table's font without decoration, else anything that changes
+    with what the cell shows) has only the columns that changed measured again; the others keep the
+    width measured for the same content (a table is fitted after every analysis, and most of its
+    columns are as they were). A changed column has only its widest texts measured by the delegate."""
     model = view.model()
     if model is None:
         return
@@ -81,17 +83,72 @@ def _fit_changed_columns(view: QTableView, model, long_table: bool) -> None:  # 
 
     rows = _rows_measured(view, long_table)
     base = (view.font().key(), (rows.start, rows.stop), model.rowCount())
-    measured: dict[int, tuple[object, int]] = view.__dict__.setdefault("_measured_columns", {})
+    measured: dict[int, tuple[object, int, float]] = view.__dict__.setdefault("_measured_columns", {})
+    widest: dict[int, float] = view.__dict__.setdefault("_widest_text", {})
+    """Per column, the widest text it was fitted to (see :func:`widen_to_rows_in_view`)."""
+    metrics = QFontMetricsF(view.font())
     for c in range(model.columnCount()):
         if view.isColumnHidden(c):
             continue
-        key = (base, model.headerData(c, Qt.Orientation.Horizontal), model.fit_key(c, rows))
+        texts = model.fit_key(c, rows)
+        key = (base, model.headerData(c, Qt.Orientation.Horizontal), texts)
         known = measured.get(c)
-        if known is not None and known[0] == key:
-            view.setColumnWidth(c, known[1])
+        if known is None or known[0] != key:
+            widest_text = _resize_to_texts(view, model, c, rows, texts, metrics)
+            known = measured[c] = (key, view.columnWidth(c), widest_text)
         else:
-            view.resizeColumnToContents(c)
-            measured[c] = (key, view.columnWidth(c))
+            view.setColumnWidth(c, known[1])
+        widest[c] = known[2]
+
+
+def _resize_to_texts(view: QTableView, model, c: int, rows: range, texts: tuple, metrics) -> float:  # type: ignore[no-untyped-def, type-arg]
+    """What ``view.resizeColumnToContents(c)`` does, asking the delegate only for the cells that can
+    be the widest; returns the widest text's advance (see :func:`_widest_advance`).
+
+    A cell's width is its text's laid-out width plus the same margins in every row, and texts of
+    the same advance in the same font lay out alike. So the delegate measures one cell of each
+    advance within two pixels of the widest (Qt rounds a laid-out width up to whole pixels), and
+    every cell in another font (keys that are not plain texts) or of several lines or tabs. The
+    table's rows are never hidden."""
+    from PySide6.QtWidgets import QStyleOptionViewItem
+
+    advances = [_advance(metrics, t) for t in texts]
+    plain = [a for a in advances if a is not None]
+    floor = max(plain) - 2 if plain else 0
+    view.ensurePolished()
+    option = QStyleOptionViewItem()
+    view.initViewItemOption(option)
+    content, seen = 0, set()
+    for r, advance in zip(rows, advances):
+        if advance is None or (advance >= floor and advance not in seen):
+            seen.add(advance)
+            index = model.index(r, c)
+            content = max(content, view.itemDelegateForIndex(index).sizeHint(option, index).width())
+    if view.showGrid():
+        content += 1
+    header = view.horizontalHeader()
+    view.setColumnWidth(c, max(content, 0 if header.isHidden() else header.sectionSizeHint(c)))
+    return math.inf if len(plain) < len(advances) else max(plain, default=0.0)
+
+
+def _advance(metrics, text: object) -> float | None:  # type: ignore[no-untyped-def]
+    """A plain text's advance in the table's font (QFontMetricsF), or None for anything else."""
+    if isinstance(text, str) and "\n" not in text and "\t" not in text:
+        return metrics.horizontalAdvance(text)
+    return None
+
+
+def _widest_advance(metrics, texts: tuple) -> float:  # type: ignore[no-untyped-def, type-arg]
+    """The widest of the texts of a column's cells (all in the view's font, one line each), or
+    infinity when some cell is not such a text (its font or its lines may differ), so that the
+    column is always measured."""
+    widest = 0.0
+    for t in texts:
+        advance = _advance(metrics, t)
+        if advance is None:
+            return math.inf
+        widest = max(widest, advance)
+    return widest
 
 
 def fill_last_column(view: QTableView) -> None:
@@ -116,7 +173,11 @@ def fill_last_column(view: QTableView) -> None:
 
 def widen_to_rows_in_view(view: QTableView) -> None:
     """Widen the columns that are narrower than a cell now in view (a long table's columns are fitted
-    to the rows in view only; see :func:`fit_columns`). Columns never narrow here."""
+    to the rows in view only; see :func:`fit_columns`). Columns never narrow here.
+
+    A model that tells its cells' texts (``fit_key``, plain texts in the view's font) has a column
+    measured only when a text in view is wider than every text the column was measured for: one no
+    wider needs no more room. Scrolling then measures nothing until a wider text comes into view."""
     model = view.model()
     if model is None or model.rowCount() <= FIT_EVERY_ROW_UP_TO:
         return
@@ -124,7 +185,15 @@ def widen_to_rows_in_view(view: QTableView) -> None:
     if not shown:
         return
     last = shown[-1]
+    widest: dict[int, float] | None = view.__dict__.get("_widest_text") if hasattr(model, "fit_key") else None
+    rows = _rows_measured(view, True) if widest is not None else range(0)
+    metrics = QFontMetricsF(view.font())
     for c in shown:
+        if widest is not None and widest.get(c, math.inf) < math.inf:
+            in_view = _widest_advance(metrics, model.fit_key(c, rows))
+            if in_view <= widest[c]:
+                continue  # no text in view is wider than one the column already fits
+            widest[c] = in_view
         need = view.sizeHintForColumn(c)
         if c == last:
             natural = view.property("fitted_last_width")
