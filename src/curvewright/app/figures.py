@@ -430,17 +430,18 @@ def laid_out(draw, a: AnalyteResult, width: int, height: int, *, canvas: Canvas 
     legend_beside(widget.ci, legend, row=0)
     widget.resizeEvent(None)  # the layout takes the widget's size, as when it is first shown
     QApplication.processEvents()
-    _measure_axes(plot)
+    kept = _measure_axes(plot)
     QApplication.processEvents()
     plot.getViewBox().autoRange(padding=0.04)
     QApplication.processEvents()
     sizes = _measure_axes(plot)
     for _ in range(4):  # new ticks may need wider labels, which narrow the plot: until the axes settle
-        QApplication.processEvents()
-        again = _measure_axes(plot)
-        if again == sizes:
+        if sizes == kept:
+            # the axes kept the room they had when the layout was last settled: the plot keeps its
+            # size and its ticks, so measuring again would find the same
             break
-        sizes = again
+        QApplication.processEvents()
+        kept, sizes = sizes, _measure_axes(plot)
     return widget
 
 
