@@ -366,7 +366,7 @@ def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem
 
 class Canvas:
     """A widget that is never shown, holding one plot with its legend in a column of its own to the
-    right, on which the figures of a record are drawn one after another. Clearing the plot costs far
+    right, on which the figures of a record are drawn one after another. Clearing the plot costs
     less than making a new one (its axes, view box and their items); :meth:`ready` leaves it as a new
     plot starts, so that a figure drawn on it looks as one drawn on a new widget."""
 
