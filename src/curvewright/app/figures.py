@@ -364,10 +364,57 @@ def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem
     plot.setYRange(-top, top)
 
 
-def laid_out(draw, a: AnalyteResult, width: int, height: int, **options) -> pg.GraphicsLayoutWidget:  # type: ignore[no-untyped-def]
+class Canvas:
+    """A widget that is never shown, holding one plot with its legend in a column of its own to the
+    right, on which the figures of a record are drawn one after another. Clearing the plot costs
+    less than making a new one (its axes, view box and their items); :meth:`ready` leaves it as a new
+    plot starts, so that a figure drawn on it looks as one drawn on a new widget."""
+
+    def __init__(self, font_size: int = 10) -> None:
+        ensure_application()
+        self.font_size = font_size
+        self.widget = pg.GraphicsLayoutWidget()
+        self.widget.setBackground("w")
+        self.plot = self.widget.addPlot(row=0, col=0, enableMenu=False)  # never shown: no context menus to build
+        self.legend = new_legend(font_size)
+        # the room an axis starts with for its tick labels; it grows to fit them, and shrinks again only
+        # when they need clearly less, so a cleared plot must start from it again
+        self._text_room = {side: (self.plot.getAxis(side).textWidth, self.plot.getAxis(side).textHeight)
+                           for side in ("left", "bottom")}
+        self._drawn = False
+
+    def ready(self, width: int, height: int) -> None:
+        """Clear the last figure and size the widget to ``width`` × ``height`` pixels for the next one:
+        no items, no legend entries, the range found automatically again, the axes with their own ticks
+        and the room for tick labels a new plot starts with."""
+        if self._drawn:
+            self.plot.clear()
+            self.legend.clear()
+            view = self.plot.getViewBox()
+            view.setRange(xRange=(0, 1), yRange=(0, 1), padding=0)  # the range a new view box starts with
+            view.enableAutoRange()
+            for side, (text_width, text_height) in self._text_room.items():
+                axis = self.plot.getAxis(side)
+                axis.setTicks(None)
+                axis.textWidth, axis.textHeight = text_width, text_height
+                # a new axis shows no label and scales nothing: with its label hidden, the scale
+                # :func:`styled_plot` keeps when it turns the SI prefix off is 1 again, not one worked
+                # out from the last figure's range
+                axis.showLabel(False)
+                axis.enableAutoSIPrefix(True)
+        self._drawn = True
+        self.widget.resize(width, height)
+
+    def close(self) -> None:
+        self.widget.deleteLater()
+
+
+def laid_out(draw, a: AnalyteResult, width: int, height: int, *, canvas: Canvas | None = None,
+             **options) -> pg.GraphicsLayoutWidget:  # type: ignore[no-untyped-def]
     """One view drawn by ``draw`` (one of the ``draw_*`` functions) in a widget of ``width`` × ``height``
     pixels that is never shown, its legend in a column of its own to the right of the plot, and laid out
     as a shown one is: the axes sized to their tick labels, the data range fitted with 4 % padding.
+    With ``canvas``, the view is drawn on its widget (cleared first) instead of a new one.
 
     The axes measure their labels as they do before they paint (on a recording, with their tick font);
     measuring, laying out and fitting the range are repeated until the axes keep their size, so nothing
@@ -375,26 +422,26 @@ def laid_out(draw, a: AnalyteResult, width: int, height: int, **options) -> pg.G
     ensure_application()
     from PySide6.QtWidgets import QApplication
 
-    widget = pg.GraphicsLayoutWidget()
-    widget.setBackground("w")
-    widget.resize(width, height)
-    plot = widget.addPlot(row=0, col=0, enableMenu=False)  # never shown: no context menus to build
-    legend = new_legend(int(options.get("font_size", 10)))
+    if canvas is None or canvas.font_size != int(options.get("font_size", 10)):
+        canvas = Canvas(int(options.get("font_size", 10)))
+    canvas.ready(width, height)
+    widget, plot, legend = canvas.widget, canvas.plot, canvas.legend
     draw(plot, a, legend=legend, **options)
     legend_beside(widget.ci, legend, row=0)
     widget.resizeEvent(None)  # the layout takes the widget's size, as when it is first shown
     QApplication.processEvents()
-    _measure_axes(plot)
+    kept = _measure_axes(plot)
     QApplication.processEvents()
     plot.getViewBox().autoRange(padding=0.04)
     QApplication.processEvents()
     sizes = _measure_axes(plot)
     for _ in range(4):  # new ticks may need wider labels, which narrow the plot: until the axes settle
-        QApplication.processEvents()
-        again = _measure_axes(plot)
-        if again == sizes:
+        if sizes == kept:
+            # the axes kept the room they had when the layout was last settled: the plot keeps its
+            # size and its ticks, so measuring again would find the same
             break
-        sizes = again
+        QApplication.processEvents()
+        kept, sizes = sizes, _measure_axes(plot)
     return widget
 
 
@@ -520,14 +567,17 @@ class Figure:
         painter.restore()
 
 
-def figure(draw, a: AnalyteResult, width: int = 1400, height: int = 820, **options) -> Figure:  # type: ignore[no-untyped-def]
+def figure(draw, a: AnalyteResult, width: int = 1400, height: int = 820, *, canvas: Canvas | None = None,
+           **options) -> Figure:  # type: ignore[no-untyped-def]
     """One view (``draw`` is one of the ``draw_*`` functions) laid out once off screen and recorded as a
-    :class:`Figure`, for the printed record."""
-    widget = laid_out(draw, a, width, height, **options)
+    :class:`Figure`, for the printed record; drawn on ``canvas`` when one is given (the record draws all
+    its figures on one), else on a widget of its own."""
+    widget = laid_out(draw, a, width, height, canvas=canvas, **options)
     try:
         return Figure(widget)
     finally:
-        widget.deleteLater()
+        if canvas is None or widget is not canvas.widget:
+            widget.deleteLater()
 
 
 def render(draw, a: AnalyteResult, width: int = 1400, height: int = 820, **options) -> QImage:  # type: ignore[no-untyped-def]

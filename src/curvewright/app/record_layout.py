@@ -52,11 +52,18 @@ SPACE_AFTER = {"title": 2.5, "heading": 2.0, "subheading": 1.4, "body": 1.4, "sm
 
 
 def font(style: str) -> QFont:
-    size, bold, _ = STYLES[style]
-    f = QFont("DejaVu Sans")
-    f.setPointSizeF(size)
-    f.setBold(bold)
-    return f
+    """The font of ``style``, made once (every line of the record is set in one of a few fonts)."""
+    found = _FONTS.get(style)
+    if found is None:
+        size, bold, _ = STYLES[style]
+        found = QFont("DejaVu Sans")
+        found.setPointSizeF(size)
+        found.setBold(bold)
+        _FONTS[style] = found
+    return QFont(found)
+
+
+_FONTS: dict[str, QFont] = {}
 
 
 @dataclass
@@ -133,6 +140,7 @@ class RecordLayout:
         self.width = self.right - self.left
         self.pages: list[Page] = []
         self.section = ""
+        self._text_style = ""
         self.new_page()
 
     # --- pages -------------------------------------------------------------------------------------
@@ -161,6 +169,12 @@ class RecordLayout:
         """Lines of ``text`` within ``width``, broken between words only (see :meth:`tokens`)."""
         lines: list[str] = []
         for paragraph in str(text).split("\n"):
+            whole = " ".join(self.bound_words(paragraph))
+            if self.m.width(style, whole) <= width:
+                # it fits on one line (most cells and captions): so does every word and every start of
+                # it, and the line found word by word would be this one
+                lines.append(whole)
+                continue
             line = ""
             for token in self.tokens(style, paragraph, width):
                 candidate = token if not line else f"{line} {token}"
@@ -363,6 +377,7 @@ class RecordLayout:
         painter = QPainter(writer)
         painter.setRenderHint(QPainter.RenderHint.Antialiasing)
         painter.setRenderHint(QPainter.RenderHint.SmoothPixmapTransform)
+        self._text_style = ""  # the style whose font and colour the painter holds ("" for none)
         total = len(self.pages)
         for number, page in enumerate(self.pages, start=1):
             if number > 1:
@@ -374,11 +389,14 @@ class RecordLayout:
 
     def _draw(self, painter: QPainter, op) -> None:  # type: ignore[no-untyped-def]
         if isinstance(op, TextOp):
-            painter.setFont(font(op.style))
-            painter.setPen(QColor(STYLES[op.style][2]))
+            if op.style != self._text_style:  # a page sets many lines in one style in a row
+                painter.setFont(font(op.style))
+                painter.setPen(QColor(STYLES[op.style][2]))
+                self._text_style = op.style
             painter.drawText(op.rect, int(op.align | Qt.AlignmentFlag.AlignVCenter), op.text)
         elif isinstance(op, LineOp):
             painter.setPen(QPen(QColor(op.colour), op.width * MM / 3))
+            self._text_style = ""
             painter.drawLine(int(op.x1), int(op.y1), int(op.x2), int(op.y2))
         elif isinstance(op, FillOp):
             painter.fillRect(op.rect, QColor(op.colour))

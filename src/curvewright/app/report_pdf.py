@@ -26,6 +26,8 @@ from .qt_runtime import ensure_application
 FIGURE_PIXELS = {"curve": (1800, 980), "residuals": (1800, 720), "influence": (1800, 720)}
 """Pixels each figure is laid out in (its proportions, and the sizes of its text, lines and markers
 relative to it); it is printed as vectors at the text width (178 mm)."""
+FIGURE_FONT_SIZE = 20
+"""Point size of the figures' lettering as they are laid out (the figure is then scaled to the text width)."""
 
 
 def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
@@ -38,6 +40,15 @@ def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
             "influence": figures.draw_influence}
     level = content.result.run.settings.confidence_level
     rule = content.result.run.settings.rounding
+    canvas = figures.Canvas(FIGURE_FONT_SIZE)  # every figure of the record is drawn on it in turn
+    try:
+        _place_blocks(content, layout, canvas, draw, level, rule)
+    finally:
+        canvas.close()
+    return layout
+
+
+def _place_blocks(content: ReportContent, layout, canvas, draw, level: float, rule) -> None:  # type: ignore[no-untyped-def]
     for block in content.blocks:
         if isinstance(block, Section):
             layout.set_section(block.text)
@@ -51,29 +62,30 @@ def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
             layout.table(table.title, list(table.headings), [list(r) for r in table.rows], list(table.numeric),
                          table.note)
         elif isinstance(block, FigureSlot) and block.kind == "additions":
-            layout.figure(additions_figure(content, block), block.caption)
+            layout.figure(additions_figure(content, block, canvas), block.caption)
         elif isinstance(block, FigureSlot):
             analyte = content.result.analyte(block.analyte)
-            options: dict[str, object] = {"font_size": 20}
+            options: dict[str, object] = {"font_size": FIGURE_FONT_SIZE}
             if block.kind == "curve":
                 options["level"] = level
             if block.kind in ("curve", "residuals"):
                 options["log_x"] = figures.wide_range(analyte)
-            drawn = figures.figure(draw[block.kind], analyte, *FIGURE_PIXELS[block.kind], **options)
+            drawn = figures.figure(draw[block.kind], analyte, *FIGURE_PIXELS[block.kind], canvas=canvas, **options)
             layout.figure(drawn, block.caption)
         elif isinstance(block, SignatureLines):
             layout.signatures(list(block.lines))
-    return layout
 
 
-def additions_figure(content: ReportContent, block: FigureSlot):  # type: ignore[no-untyped-def]
+def additions_figure(content: ReportContent, block: FigureSlot, canvas=None):  # type: ignore[no-untyped-def]
     """The standard-addition series of one sample drawn as the app's Standard additions tab draws it,
-    recorded as a :class:`figures.Figure` (painted on the page as vectors, as the other figures are)."""
+    recorded as a :class:`figures.Figure` (painted on the page as vectors, as the other figures are);
+    drawn on ``canvas`` (a :class:`figures.Canvas`) when one is given."""
     from .additions_view import draw_additions
 
     analyte = content.result.analyte(block.analyte)
     series = next(s for s in analyte.additions if s.sample_id == block.sample)
-    return figures.figure(draw_additions, analyte, *ADDITIONS_PIXELS, series=series, font_size=20)
+    return figures.figure(draw_additions, analyte, *ADDITIONS_PIXELS, canvas=canvas, series=series,
+                          font_size=FIGURE_FONT_SIZE)
 
 
 ADDITIONS_PIXELS = (1800, 900)
