@@ -169,15 +169,21 @@ class TextsModel(QAbstractTableModel):
         return tuple(self.texts[r] if col == 0 else "x" for r in rows)
 
 
-def test_a_long_table_that_tells_its_texts_is_measured_only_when_a_wider_text_scrolls_into_view(qtbot) -> None:
-    long_text = "a much longer sample name, far below the rows in view"
-    texts = ["sample 12"] * (5 * FIT_EVERY_ROW_UP_TO) + ["s 1"] * 50 + [long_text]
+def shown_table(qtbot, texts: list[str], width: int, height: int) -> tuple[TextsModel, FittedTableView]:
+    """A fitted table of one column of ``texts``, shown at ``width`` × ``height`` pixels."""
     model = TextsModel(texts)
     view = FittedTableView()
     qtbot.addWidget(view)
     view.setModel(model)
-    view.resize(400, 200)
+    view.resize(width, height)
     view.show()
+    return model, view
+
+
+def test_a_long_table_that_tells_its_texts_is_measured_only_when_a_wider_text_scrolls_into_view(qtbot) -> None:
+    long_text = "a much longer sample name, far below the rows in view"
+    texts = ["sample 12"] * (5 * FIT_EVERY_ROW_UP_TO) + ["s 1"] * 50 + [long_text]
+    model, view = shown_table(qtbot, texts, 400, 200)
     qtbot.waitExposed(view)
     fit_columns(view)
     fitted = view.columnWidth(0)
@@ -226,12 +232,7 @@ def test_a_column_of_texts_is_fitted_as_qt_fits_it_whatever_the_texts(qtbot) -> 
              ["x\tin columns", "wider than the tabbed text", "ab"],
              ["", ""], ["0.001", "0.002", "0.003"]]
     for texts in cases:
-        model = TextsModel(texts)
-        view = FittedTableView()
-        qtbot.addWidget(view)
-        view.setModel(model)
-        view.resize(600, 300)
-        view.show()
+        _model, view = shown_table(qtbot, texts, 600, 300)
         fit_columns(view)
         fitted = view.columnWidth(0)
         view.resizeColumnToContents(0)
