@@ -349,16 +349,30 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
     progress = _Progress(len(paths)) if len(paths) > 1 else None
     settings = _options(args)
     if args.jobs > 1 and len(paths) > 1:
+        import multiprocessing
         from concurrent.futures import ProcessPoolExecutor
 
         # Each process sends back its runs' JSON text, written as it will stand in the list, rather
         # than the results to be written here one after the other; runs go out in chunks, a few per
-        # process at a time, so that the processes stay busy without a round trip per run.
-        chunk = max(1, min(16, len(paths) // (4 * args.jobs)))
-        with ProcessPoolExecutor(max_workers=args.jobs) as pool:
-            outcomes = []
-            for path, outcome in zip(paths, pool.map(_quantify_file_in_list, paths, [settings] * len(paths),
-                                                     chunksize=chunk)):
+        # process at a time, so that the processes stay busy without a round trip per run. Where
+        # processes can be forked, the modules an analysis needs are loaded here first, once, and
+        # the pool processes start with them loaded instead of each importing them again.
+        # The first run is analysed here too, which loads what its analysis asks for on the way
+        # (not when a record is drawn: Qt is not loaded in a process that is then forked).
+        forked = "fork" in multiprocessing.get_all_start_methods()
+        outcomes = []
+        if forked:
+            _load_for_runs(settings)
+            if not settings["report"]:
+                outcomes.append(_quantify_file_in_list(paths[0], settings))
+                if progress:
+                    progress.step(paths[0].name)
+        rest = paths[len(outcomes):]
+        chunk = max(1, min(16, len(rest) // (4 * args.jobs)))
+        with ProcessPoolExecutor(max_workers=args.jobs,
+                                 mp_context=multiprocessing.get_context("fork") if forked else None) as pool:
+            for path, outcome in zip(rest, pool.map(_quantify_file_in_list, rest, [settings] * len(rest),
+                                                    chunksize=chunk)):
                 outcomes.append(outcome)
                 if progress:
                     progress.step(path.name)
@@ -371,6 +385,16 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
     if progress:
         progress.done()
     return outcomes
+
+
+def _load_for_runs(options: dict[str, Any]) -> None:
+    """Import what analysing a run document and writing its results need (numpy, scipy and the
+    engine among them), so that processes forked afterwards have them already."""
+    from .core import run_analysis  # noqa: F401
+    from .io import audit, integrity, model_outputs, result_tables, results_json, run_document, signatures  # noqa: F401
+
+    if options.get("export"):
+        from .io import csv_export, xlsx_export  # noqa: F401
 
 
 def _options(args: argparse.Namespace) -> dict[str, Any]:
