@@ -1010,7 +1010,9 @@ class _SampleRows:
                     "mean_response": mean, "estimate": estimate, "standard_error": se,
                     "lower": low, "upper": high, "dilution_factor": df, "reported": reported,
                     "reported_lower": reported_lower, "reported_upper": reported_upper,
-                    "reported_rounded": None if reported is None else text(reported),
+                    # inside the range, the reported text is the rounded number itself
+                    "reported_rounded": None if reported is None else (
+                        reported_text if status is in_range else text(reported)),
                     "reported_text": reported_text, "status": status.value,
                     "reportable": status is in_range or (status is below and "estimated" in short),
                     "suggested_dilution": None if suggested != suggested else suggested,
