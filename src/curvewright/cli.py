@@ -977,10 +977,12 @@ class _SampleRows:
     def __iter__(self) -> Iterator[dict[str, Any]]:
         if self.columns is None:
             return
-        from .core.reporting import ReportStatus
         from .core.inverse import QuantFlag
+        from .core.reporting import ReportStatus
+        from .core.run import SampleKind
 
         names: dict[int, list[str]] = {}
+        words_of = {member: member.value for member in (*SampleKind, *ReportStatus)}
         text = self.rounding.text
         in_range, below = ReportStatus.IN_RANGE, ReportStatus.BELOW_REPORTING_LIMIT
         for _, c in self.columns.chunks():
@@ -1006,14 +1008,14 @@ class _SampleRows:
                 if note and note not in words:
                     parts.append(note)
                 yield {
-                    "id": sid, "kind": kind.value, "run_order": order, "replicates": count,
+                    "id": sid, "kind": words_of[kind], "run_order": order, "replicates": count,
                     "mean_response": mean, "estimate": estimate, "standard_error": se,
                     "lower": low, "upper": high, "dilution_factor": df, "reported": reported,
                     "reported_lower": reported_lower, "reported_upper": reported_upper,
                     # inside the range, the reported text is the rounded number itself
                     "reported_rounded": None if reported is None else (
                         reported_text if status is in_range else text(reported)),
-                    "reported_text": reported_text, "status": status.value,
+                    "reported_text": reported_text, "status": words_of[status],
                     "reportable": status is in_range or (status is below and "estimated" in short),
                     "suggested_dilution": None if suggested != suggested else suggested,
                     "flags": flag_names, "flag_words": "; ".join(parts), "nominal": None if nominal != nominal else nominal,

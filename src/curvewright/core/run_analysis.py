@@ -466,7 +466,8 @@ def _analyse_analyte(
     in_range = cal.concentration[(cal.concentration >= low) & (cal.concentration <= high)]
     rng = reporting_range(in_range, limits.lod if limits else None, limits.loq if limits else None, unit)
     columns = _quantify_samples(run, analyte, cal, limits, rng, profile)
-    check_results = [columns.result(i) for i, kind in enumerate(columns.kinds) if kind.is_check]
+    check_kinds = {kind for kind in SampleKind if kind.is_check}
+    check_results = [columns.result(i) for i, kind in enumerate(columns.kinds) if kind in check_kinds]
     checks = judge_checks([CheckInput(s.sample_id, s.kind, s.run_order, s.nominal, s.reported, s.status,
                                       s.dilution_factor, s.note) for s in check_results],
                           profile.checks, rng, profile.name, unit)
