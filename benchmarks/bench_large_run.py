@@ -12,11 +12,17 @@ measured and above the floor of a process that has imported numpy and scipy (tar
 Both sides are run in interleaved rounds after a warm-up; every estimate and interval end of the
 command's JSON is compared with the engine's.
 
+The floor of any command that writes a JSON row per unknown is measured beside it and printed in
+the same units: starting a process that imports numpy and scipy.special, reading the samples CSV
+with the ``csv`` module into floats, and writing the command's own rows (parsed back) as JSON text
+with ``json.dumps``, one row at a time; each against 5× the engine's time.
+
 Run: python benchmarks/bench_large_run.py [--smoke] [--unknowns N] [--rounds R]
 """
 
 from __future__ import annotations
 
+import csv
 import json
 import os
 import subprocess
@@ -94,6 +100,26 @@ def floor_rss(folder: Path) -> int:
     return _peak_of([], None, folder)[1]
 
 
+def floor_parts(samples: Path, rows: list[dict], folder: Path) -> dict[str, float]:
+    """Seconds of the work no command writing a JSON row per unknown can avoid (see the module)."""
+    start = time.perf_counter()
+    subprocess.run([sys.executable, "-c", "import numpy, scipy.special"], check=True)
+    process = time.perf_counter() - start
+    start = time.perf_counter()
+    with samples.open(encoding="utf-8", newline="") as f:
+        reader = csv.reader(f)
+        next(reader)
+        values = [float(r[1]) for r in reader]
+    read = time.perf_counter() - start
+    assert len(values) == len(rows)
+    start = time.perf_counter()
+    text = ",\n".join(json.dumps(row, ensure_ascii=False, separators=(", ", ": ")) for row in rows)
+    write = time.perf_counter() - start
+    assert text
+    return {"process start (import numpy, scipy.special)": process, "reading the CSV into floats": read,
+            "JSON text of the rows": write}
+
+
 def _option(name: str, default: int) -> int:
     return int(sys.argv[sys.argv.index(name) + 1]) if name in sys.argv else default
 
@@ -120,6 +146,7 @@ def main() -> None:
             assert np.array_equal(np.isfinite(theirs), np.isfinite(column)), name
             worst = float(np.max(np.abs(theirs[both] - column[both]) / np.maximum(np.abs(column[both]), 1e-300)))
             assert worst < 1e-12, f"{name}: the command and the engine differ by {worst:.2e} (relative)"
+        floor_seconds = floor_parts(samples, rows, folder)
         del data, rows, order
 
         peaks: list[int] = [peak]
@@ -140,7 +167,13 @@ def main() -> None:
                 [(t.label, f"{t.median:.3f} s", f"{min(t.seconds):.3f}–{max(t.seconds):.3f} s")
                  for t in timings.values()],
                 ("work", "median", "range"))
-    print(f"\nratio: the command is {command_time / engine_time:.1f}× the engine's quantify (target ≤ 5×)")
+    print(f"\nratio: the command is {command_time / engine_time:.1f}× the engine's quantify (target ≤ 5×, "
+          f"{5 * engine_time:.3f} s)")
+    for label, seconds in floor_seconds.items():
+        print(f"floor: {label}: {seconds:.3f} s, {seconds / engine_time:.1f}× the engine")
+    floor_total = sum(floor_seconds.values())
+    print(f"floor in all: {floor_total:.3f} s, {floor_total / engine_time:.1f}× the engine; the command is "
+          f"{command_time / floor_total:.1f}× its floor")
     print(f"peak resident memory: {peak / 2**20:.0f} MiB, {peak / unknowns:.0f} B per unknown; above the "
           f"{floor / 2**20:.0f} MiB of a process that imported numpy and scipy: {(peak - floor) / unknowns:.0f} B "
           "per unknown (target ≤ 1 KB)")

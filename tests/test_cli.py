@@ -176,6 +176,12 @@ def test_json_of_many_runs_in_two_processes_equals_the_json_of_one_process(tmp_p
     serial = run_cli("quantify", str(folder), "--json")
     assert parallel.returncode == serial.returncode != 0
     assert parallel.stdout == serial.stdout and json.loads(serial.stdout)[3]["error"]
+    # the first document, analysed by the first process before the pool starts, cannot be read: the same
+    (folder / "aa_damaged.json").write_text('{"format": "curvewright-run", "schema_version": 1', encoding="utf-8")
+    parallel = run_cli("quantify", str(folder), "--json", "--jobs", "2")
+    serial = run_cli("quantify", str(folder), "--json")
+    assert parallel.returncode == serial.returncode != 0
+    assert parallel.stdout == serial.stdout and json.loads(serial.stdout)[0]["error"]
     # each sample's result is one line of the text, so a long run can be read line by line
     first = runs[0]["analytes"][0]["samples"][0]
     assert any(line.strip().rstrip(",") == json.dumps(first, ensure_ascii=False, separators=(", ", ": "))

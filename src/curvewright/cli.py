@@ -25,9 +25,8 @@ import shlex
 import sys
 import traceback
 from dataclasses import dataclass, field, replace
-from functools import partial
 from pathlib import Path
-from typing import Any, Mapping, Sequence
+from typing import Any, Iterator, Mapping, Sequence
 
 from . import CAUTION, __version__, cli_archive
 
@@ -350,16 +349,30 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
     progress = _Progress(len(paths)) if len(paths) > 1 else None
     settings = _options(args)
     if args.jobs > 1 and len(paths) > 1:
+        import multiprocessing
         from concurrent.futures import ProcessPoolExecutor
 
         # Each process sends back its runs' JSON text, written as it will stand in the list, rather
         # than the results to be written here one after the other; runs go out in chunks, a few per
-        # process at a time, so that the processes stay busy without a round trip per run.
-        chunk = max(1, min(16, len(paths) // (4 * args.jobs)))
-        with ProcessPoolExecutor(max_workers=args.jobs) as pool:
-            outcomes = []
-            for path, outcome in zip(paths, pool.map(_quantify_file_in_list, paths, [settings] * len(paths),
-                                                     chunksize=chunk)):
+        # process at a time, so that the processes stay busy without a round trip per run. Where
+        # processes can be forked, the modules an analysis needs are loaded here first, once, and
+        # the pool processes start with them loaded instead of each importing them again.
+        # The first run is analysed here too, which loads what its analysis asks for on the way
+        # (not when a record is drawn: Qt is not loaded in a process that is then forked).
+        forked = "fork" in multiprocessing.get_all_start_methods()
+        outcomes = []
+        if forked:
+            _load_for_runs(settings)
+            if not settings["report"]:
+                outcomes.append(_quantify_file_in_list(paths[0], settings))
+                if progress:
+                    progress.step(paths[0].name)
+        rest = paths[len(outcomes):]
+        chunk = max(1, min(16, len(rest) // (4 * args.jobs)))
+        with ProcessPoolExecutor(max_workers=args.jobs,
+                                 mp_context=multiprocessing.get_context("fork") if forked else None) as pool:
+            for path, outcome in zip(rest, pool.map(_quantify_file_in_list, rest, [settings] * len(rest),
+                                                    chunksize=chunk)):
                 outcomes.append(outcome)
                 if progress:
                     progress.step(path.name)
@@ -372,6 +385,16 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
     if progress:
         progress.done()
     return outcomes
+
+
+def _load_for_runs(options: dict[str, Any]) -> None:
+    """Import what analysing a run document and writing its results need (numpy, scipy and the
+    engine among them), so that processes forked afterwards have them already."""
+    from .core import run_analysis  # noqa: F401
+    from .io import audit, integrity, model_outputs, result_tables, results_json, run_document, signatures  # noqa: F401
+
+    if options.get("export"):
+        from .io import csv_export, xlsx_export  # noqa: F401
 
 
 def _options(args: argparse.Namespace) -> dict[str, Any]:
@@ -934,24 +957,74 @@ def result_json(  # type: ignore[no-untyped-def]
                 "response_factors": response_factor_json(cal, a.analyte.uses_internal_standard),
             })
         entry["standard_additions"] = additions_json(a)
-        entry["samples"] = Rows(a.samples, partial(_sample_row, run.settings.rounding))
+        entry["samples"] = Rows(_SampleRows(a.sample_columns, run.settings.rounding), _as_made)
         out["analytes"].append(entry)
     return finite(out)
 
 
-def _sample_row(rounding, s) -> dict[str, Any]:  # type: ignore[no-untyped-def]
-    """One sample's result as a JSON row, made when it is written."""
-    return {
-        "id": s.sample_id, "kind": s.kind.value, "run_order": s.run_order, "replicates": len(s.replicate_responses),
-        "mean_response": s.mean_response, "estimate": s.estimate, "standard_error": s.standard_error,
-        "lower": s.lower, "upper": s.upper, "dilution_factor": s.dilution_factor, "reported": s.reported,
-        "reported_lower": s.reported_lower, "reported_upper": s.reported_upper,
-        "reported_rounded": None if s.reported is None else rounding.text(s.reported),
-        "reported_text": s.reported_text, "status": s.status.value, "reportable": s.reportable,
-        "suggested_dilution": s.suggested_dilution,
-        "flags": [f.name.lower() for f in s.flags] if s.flags is not None else [],
-        "flag_words": s.flag_words, "nominal": s.nominal, "recovery_percent": s.recovery_percent,
-        "within_limits": s.within_limits}
+class _SampleRows:
+    """The samples' JSON rows, made from their columns a chunk at a time as they are written, with no
+    result object per sample (``len()`` is the number of samples)."""
+
+    __slots__ = ("columns", "rounding")
+
+    def __init__(self, columns, rounding) -> None:  # type: ignore[no-untyped-def]
+        self.columns, self.rounding = columns, rounding
+
+    def __len__(self) -> int:
+        return 0 if self.columns is None else len(self.columns)
+
+    def __iter__(self) -> Iterator[dict[str, Any]]:
+        if self.columns is None:
+            return
+        from .core.inverse import QuantFlag
+        from .core.reporting import ReportStatus
+        from .core.run import SampleKind
+
+        names: dict[int, list[str]] = {}
+        words_of = {member: member.value for member in (*SampleKind, *ReportStatus)}
+        text = self.rounding.text
+        in_range, below = ReportStatus.IN_RANGE, ReportStatus.BELOW_REPORTING_LIMIT
+        for _, c in self.columns.chunks():
+            for (sid, kind, order, count, quantified, mean, est, se, low, high, df, nominal, recovery, within, bits,
+                 suggested, note, status, reported_text, words, short) in zip(
+                    c["ids"], c["kinds"], c["run_orders"], c["replicate_counts"], c["quantified"], c["mean_response"],
+                    c["estimate"], c["standard_error"], c["lower"], c["upper"], c["dilution"], c["nominal"],
+                    c["recovery_percent"], c["within_limits"], c["flags"], c["suggested_dilution"], c["notes"],
+                    c["statuses"], c["texts"], c["words"], c["shorts"]):
+                if quantified:
+                    estimate = None if est != est else est
+                    reported = None if estimate is None else estimate * df
+                    se = None if se != se else se
+                    low, high = (None if low != low else low), (None if high != high else high)
+                    reported_lower = None if low is None else low * df
+                    reported_upper = None if high is None else high * df
+                else:
+                    mean = estimate = se = low = high = reported = reported_lower = reported_upper = None
+                flag_names = names.get(bits)
+                if flag_names is None:
+                    flag_names = names[bits] = [] if bits < 0 else [f.name.lower() for f in QuantFlag(bits)]
+                parts = [words] if words else []
+                if note and note not in words:
+                    parts.append(note)
+                yield {
+                    "id": sid, "kind": words_of[kind], "run_order": order, "replicates": count,
+                    "mean_response": mean, "estimate": estimate, "standard_error": se,
+                    "lower": low, "upper": high, "dilution_factor": df, "reported": reported,
+                    "reported_lower": reported_lower, "reported_upper": reported_upper,
+                    # inside the range, the reported text is the rounded number itself
+                    "reported_rounded": None if reported is None else (
+                        reported_text if status is in_range else text(reported)),
+                    "reported_text": reported_text, "status": words_of[status],
+                    "reportable": status is in_range or (status is below and "estimated" in short),
+                    "suggested_dilution": None if suggested != suggested else suggested,
+                    "flags": flag_names, "flag_words": "; ".join(parts), "nominal": None if nominal != nominal else nominal,
+                    "recovery_percent": None if recovery != recovery else recovery,
+                    "within_limits": None if within < 0 else bool(within)}
+
+
+def _as_made(row: dict[str, Any]) -> dict[str, Any]:
+    return row
 
 
 def _finite(value: Any) -> Any:

@@ -187,3 +187,52 @@ def test_the_quick_structure_check_never_passes_what_the_full_walk_refuses(text:
     lone = json.dumps(["\ud800"], ensure_ascii=False)
     assert run_document._may_have_structure_problems(lone, json.loads(lone), False)
     assert run_document._structure_problems(json.loads(lone))
+
+
+# one document having each kind of structure problem, the sign's own test of it, and a word of its message
+_ONE_OF_EACH_KIND = {
+    "oversized": ("[" + "9" * 301 + "]", "a whole number of 301 digits"),
+    "surrogate": ('{"k": "\\ud800"}', "an unpaired surrogate"),
+    "nesting": ("[" * 65 + "]" * 65, "nested more than 64 levels deep"),
+}
+
+
+def test_every_kind_of_structure_problem_has_a_sign_the_quick_check_asks() -> None:
+    """Every kind the full walk notes (read from its source) is a kind of the table the quick check
+    asks; for a document having it, the kind's own sign and the quick check both say "maybe", and the
+    walk reports it with its message."""
+    import inspect
+    import re
+
+    from curvewright.io import run_document
+
+    noted = set(re.findall(r'\bnote\("(\w+)"', inspect.getsource(run_document._structure_problems)))
+    assert noted == set(run_document._STRUCTURE_KINDS) == set(_ONE_OF_EACH_KIND)
+    for kind, (text, words) in _ONE_OF_EACH_KIND.items():
+        oversized: list[object] = []
+
+        def whole(digits: str) -> object:
+            value = run_document._whole_number(digits)
+            if isinstance(value, run_document._Oversized):
+                oversized.append(value)
+            return value
+
+        document = json.loads(text, parse_int=whole)
+        assert run_document._STRUCTURE_KINDS[kind](text, document, bool(oversized)), kind
+        assert run_document._may_have_structure_problems(text, document, bool(oversized)), kind
+        found = run_document._structure_problems(document)
+        assert len(found) == 1 and words in found[0], (kind, found)
+        # the other signs stay quiet, so each kind is seen by its own sign
+        others = [k for k, sign in run_document._STRUCTURE_KINDS.items()
+                  if k != kind and sign(text, document, bool(oversized))]
+        assert others == [], (kind, others)
+
+
+def test_a_problem_of_a_kind_without_a_sign_is_an_error(monkeypatch) -> None:
+    from curvewright.io import run_document
+
+    kinds = dict(run_document._STRUCTURE_KINDS)
+    del kinds["nesting"]
+    monkeypatch.setattr(run_document, "_STRUCTURE_KINDS", kinds)
+    with pytest.raises(KeyError, match="'nesting' has no sign"):
+        run_document._structure_problems(json.loads("[" * 65 + "]" * 65))

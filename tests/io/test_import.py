@@ -113,3 +113,43 @@ def test_generated_tables_raise_only_project_errors(header, rows, delimiter) -> 
             continue
         # everything is accounted for: imported, rejected, or listed as empty
         assert result.rejected_rows == tuple(sorted(set(result.rejected_rows)))
+
+
+def _outside_quotes_by_character(text: str) -> str:
+    """The definition of the text outside quoted fields, one character at a time: a quote opens a
+    field only at the start of a line or after a tab, ';' or ','; a doubled quote inside a quoted
+    field is a quote character; the closing quote leaves '""' in the field's place; an unmatched
+    quote leaves the rest out."""
+    out: list[str] = []
+    quoted = False
+    previous = "\n"
+    i = 0
+    while i < len(text):
+        ch = text[i]
+        if quoted:
+            if ch == '"':
+                if text.startswith('""', i):
+                    i += 2
+                    continue
+                quoted = False
+                out.append('""')
+        elif ch == '"' and previous in "\r\n\t;,":
+            quoted = True
+        else:
+            out.append(ch)
+        previous = ch
+        i += 1
+    return "".join(out)
+
+
+def test_text_outside_quotes_is_found_as_the_definition_finds_it() -> None:
+    import random
+
+    from curvewright.io.tables import _outside_quotes
+
+    cases = ['', 'a,b\n1,2\n', '"Well 3, rinse",1.5\n', 'x"y,2\n', '"a""b",3\r\n"c\nd";4', '"open,1\n2,3',
+             '""', '"', 'a\t"b\tc"\t"', ',"",""""\n', 'id,"x"y",z']
+    rng = random.Random(15)
+    cases += ["".join(rng.choice('ab"",;\t\n\r') for _ in range(rng.randrange(0, 40))) for _ in range(3000)]
+    for text in cases:
+        assert _outside_quotes(text) == _outside_quotes_by_character(text), repr(text)

@@ -32,7 +32,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from enum import Enum
-from typing import Sequence
+from typing import Callable, Sequence
 
 import numpy as np
 
@@ -120,7 +120,6 @@ def report_value(
     dilution factor), ``flags`` the quantitation flags of the engine (for the no-solution, two-root and
     unbounded-interval qualifiers). ``not_quantified`` gives the reason when there is no number;
     ``not_reportable`` the reason a number may not be reported."""
-    u = f" {unit}" if unit else ""
     extra = flags & (QuantFlag.AMBIGUOUS_ROOT | QuantFlag.UNBOUNDED_INTERVAL) if flags is not None else QuantFlag(0)
     qualifiers = [extra.words] if extra else []
     short_qualifiers = [extra.short_words] if extra else []
@@ -131,7 +130,6 @@ def report_value(
         censored = reason.startswith("reported as censored")
         return ReportedValue(ReportStatus.NOT_QUANTIFIED, "not quantified" if not censored else reason.split(": ", 1)[-1],
                              reason, "censored" if censored else "not quantified", flags)
-    reported = estimate * dilution
     bits = QuantFlag(0)
     if estimate < rng.lloq:
         bits |= QuantFlag.BELOW_RANGE
@@ -144,40 +142,58 @@ def report_value(
     if rng.lod is not None and estimate < rng.lod:
         bits |= QuantFlag.BELOW_LOD
     bits |= extra
-    diluted = f" × dilution {dilution:g}" if dilution != 1 else ""
-    limit_text = f"{rule.text(rng.reporting_limit * dilution)}{u} ({rng.basis}{diluted})"
     if not_reportable:
         return ReportedValue(ReportStatus.NOT_REPORTABLE, "not reportable",
                              "; ".join([f"not reportable: {not_reportable}"] + qualifiers),
                              ", ".join(["not reportable"] + short_qualifiers), bits)
+    return _numeric_value(estimate, dilution, bits, (qualifiers, short_qualifiers),
+                          _dilution_texts(dilution, rng, rule, unit), lambda: rule.text(estimate * dilution), rng,
+                          unit, below_limit == "estimate", rng.lod is not None and estimate < rng.lod)
+
+
+def _dilution_texts(dilution: float, rng: ReportingRange, rule: RoundingRule, unit: str) -> tuple[str, str, str, str]:
+    """The texts of a result that depend only on its dilution factor: the dilution itself (empty at 1),
+    the reporting limit with its basis, the ULOQ and the LOD, each in the sample's own terms."""
+    u = f" {unit}" if unit else ""
+    diluted = f" × dilution {dilution:g}" if dilution != 1 else ""
+    return (diluted, f"{rule.text(rng.reporting_limit * dilution)}{u} ({rng.basis}{diluted})",
+            f"{rule.text(rng.uloq * dilution)}{u}", f"{rule.text(rng.lod * dilution)}{u}" if rng.lod is not None else "")
+
+
+def _numeric_value(
+    estimate: float, dilution: float, flags: QuantFlag, qualifiers: tuple[list[str], list[str]],
+    texts: tuple[str, str, str, str], number: Callable[[], str], rng: ReportingRange, unit: str, estimated: bool,
+    below_lod: bool,
+) -> ReportedValue:
+    """What is reported for a result with a number (and no reason it may not be reported): the words of
+    every status are written here alone. ``texts`` are :func:`_dilution_texts` of its dilution,
+    ``number`` gives the rounded text of the reported value (asked only when it is shown), ``estimated``
+    says that results between the LOD and the reporting limit are shown as estimated numbers."""
+    u = f" {unit}" if unit else ""
+    diluted, limit_text, uloq_text, lod_text = texts
+    words_q, short_q = qualifiers
     if estimate > rng.uloq:
-        factor = estimate / rng.middle
-        total = dilution * _one_two_five(factor)
-        words = (f"above the calibrated range (ULOQ {rule.text(rng.uloq * dilution)}{u}{diluted}): not reported as a "
+        total = dilution * _one_two_five(estimate / rng.middle)
+        words = (f"above the calibrated range (ULOQ {uloq_text}{diluted}): not reported as a "
                  f"number; re-assay at a dilution of ×{total:g} to bring it to mid-range")
-        return ReportedValue(ReportStatus.ABOVE_RANGE, f"> {rule.text(rng.uloq * dilution)}{u} (ULOQ{diluted})",
-                             "; ".join([words] + qualifiers), ", ".join(["> ULOQ"] + short_qualifiers), bits, total)
+        return ReportedValue(ReportStatus.ABOVE_RANGE, f"> {uloq_text} (ULOQ{diluted})",
+                             "; ".join([words] + words_q), ", ".join(["> ULOQ"] + short_q), flags, total)
     if estimate < rng.reporting_limit:
-        below_lod = rng.lod is not None and estimate < rng.lod
         status = ReportStatus.BELOW_LOD if below_lod else ReportStatus.BELOW_REPORTING_LIMIT
-        if below_limit == "estimate":
+        if estimated:
             if below_lod:
-                text = f"< {rule.text(rng.lod * dilution)}{u} (LOD{diluted})"  # type: ignore[operator]
-                words = "below the detection limit (LOD): not detected"
-                short = "< LOD"
+                text, words, short = f"< {lod_text} (LOD{diluted})", "below the detection limit (LOD): not detected", "< LOD"
             else:
-                text = f"{rule.text(reported)}{u} (estimated, below {rng.basis})"
+                text = f"{number()}{u} (estimated, below {rng.basis})"
                 words = f"estimated: between the detection limit and the reporting limit of {limit_text}"
                 short = "estimated"
         else:
             text = f"< {limit_text}"
-            words = (f"below the reporting limit of {limit_text}"
-                     + ("; below the detection limit (LOD)" if below_lod else ""))
+            words = f"below the reporting limit of {limit_text}" + ("; below the detection limit (LOD)" if below_lod else "")
             short = f"< {rng.basis}" + (", < LOD" if below_lod else "")
-        return ReportedValue(status, text, "; ".join([words] + qualifiers), ", ".join([short] + short_qualifiers), bits)
-    return ReportedValue(ReportStatus.IN_RANGE, rule.text(reported),
-                         "; ".join(["inside the calibrated range"] + qualifiers),
-                         ", ".join(["in range"] + short_qualifiers), bits)
+        return ReportedValue(status, text, "; ".join([words] + words_q), ", ".join([short] + short_q), flags)
+    return ReportedValue(ReportStatus.IN_RANGE, number(), "; ".join(["inside the calibrated range"] + words_q),
+                         ", ".join(["in range"] + short_q), flags)
 
 
 def _one_two_five(factor: float) -> float:
@@ -245,13 +261,12 @@ def report_values(
     # which results show a rounded number: inside the range, and estimates between the LOD and the limit
     numbered = (e <= rng.uloq) & ((e >= limit) | (estimated & ~below_lod))
     numbers = iter(rule.texts(reported[numbered].tolist()))
-    u = f" {unit}" if unit else ""
     flag_of: dict[int, QuantFlag] = {}
     qualifiers_of: dict[int, tuple[list[str], list[str]]] = {}
     by_dilution: dict[float, tuple[str, str, str, str]] = {}
-    for k, (i, value, factor, b, x, is_numbered, low_lod) in enumerate(zip(
-            where.tolist(), e.tolist(), d.tolist(), bits.tolist(), extra.tolist(), numbered.tolist(),
-            below_lod.tolist())):
+    number = numbers.__next__
+    for i, value, factor, b, x, low_lod in zip(where.tolist(), e.tolist(), d.tolist(), bits.tolist(), extra.tolist(),
+                                               below_lod.tolist()):
         flag = flag_of.get(b)
         if flag is None:
             flag = flag_of[b] = QuantFlag(b)
@@ -261,34 +276,6 @@ def report_values(
             quals = qualifiers_of[x] = ([q.words] if q else [], [q.short_words] if q else [])
         texts = by_dilution.get(factor)
         if texts is None:
-            diluted = f" × dilution {factor:g}" if factor != 1 else ""
-            texts = by_dilution[factor] = (
-                diluted, f"{rule.text(limit * factor)}{u} ({rng.basis}{diluted})", f"{rule.text(rng.uloq * factor)}{u}",
-                f"{rule.text(rng.lod * factor)}{u}" if rng.lod is not None else "")
-        diluted, limit_text, uloq_text, lod_text = texts
-        words_q, short_q = quals
-        if value > rng.uloq:
-            total = factor * _one_two_five(value / rng.middle)
-            words = (f"above the calibrated range (ULOQ {uloq_text}{diluted}): not reported as a "
-                     f"number; re-assay at a dilution of ×{total:g} to bring it to mid-range")
-            out[i] = ReportedValue(ReportStatus.ABOVE_RANGE, f"> {uloq_text} (ULOQ{diluted})",
-                                   "; ".join([words] + words_q), ", ".join(["> ULOQ"] + short_q), flag, total)
-        elif value < limit:
-            status = ReportStatus.BELOW_LOD if low_lod else ReportStatus.BELOW_REPORTING_LIMIT
-            if estimated:
-                if low_lod:
-                    text, words, short = (f"< {lod_text} (LOD{diluted})", "below the detection limit (LOD): not detected",
-                                          "< LOD")
-                else:
-                    text = f"{next(numbers)}{u} (estimated, below {rng.basis})"
-                    words = f"estimated: between the detection limit and the reporting limit of {limit_text}"
-                    short = "estimated"
-            else:
-                text = f"< {limit_text}"
-                words = f"below the reporting limit of {limit_text}" + ("; below the detection limit (LOD)" if low_lod else "")
-                short = f"< {rng.basis}" + (", < LOD" if low_lod else "")
-            out[i] = ReportedValue(status, text, "; ".join([words] + words_q), ", ".join([short] + short_q), flag)
-        else:
-            out[i] = ReportedValue(ReportStatus.IN_RANGE, next(numbers), "; ".join(["inside the calibrated range"] + words_q),
-                                   ", ".join(["in range"] + short_q), flag)
+            texts = by_dilution[factor] = _dilution_texts(factor, rng, rule, unit)
+        out[i] = _numeric_value(value, factor, flag, quals, texts, number, rng, unit, estimated, low_lod)
     return out  # type: ignore[return-value]

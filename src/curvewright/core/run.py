@@ -25,7 +25,7 @@ CENSORED_WORDS = ("ND", "BLQ", "BQL", "NQ", "<LOD", "<LOQ", "<LLOQ", ">ULOQ", "N
 """Tokens kept as censored readings rather than numbers (non-detect, below/above limits)."""
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Reading:
     """One measured value as entered.
 
@@ -64,7 +64,7 @@ class Reading:
         return self.value is None and self.qualifier is None and bool(self.text.strip())
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Standard:
     """One calibration standard injection of one analyte.
 
@@ -121,7 +121,7 @@ _KIND_WORDS = {
 }
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Measurement:
     """One replicate response of one analyte in a sample."""
 
@@ -131,7 +131,7 @@ class Measurement:
     internal_standard_response: Reading | None = None
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Addition:
     """One replicate response of a portion of a sample spiked for standard additions.
 
@@ -146,7 +146,7 @@ class Addition:
     internal_standard_response: Reading | None = None
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Sample:
     """A sample measured in the run: an unknown, a QC sample, a blank or a check standard.
 

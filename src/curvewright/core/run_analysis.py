@@ -19,7 +19,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 from functools import cached_property
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any, Iterable, Iterator, Sequence
 
 import numpy as np
 
@@ -99,6 +99,142 @@ class SampleResult:
             self.status is ReportStatus.BELOW_REPORTING_LIMIT and "estimated" in self.short)
 
 
+_NONE = -1
+"""In an integer column (flag bits, ``within_limits``): the field is None."""
+
+
+@dataclass(frozen=True, eq=False)
+class SampleColumns:
+    """The samples of one analyte as columns, one entry per sample: what :class:`SampleResult` holds,
+    without an object per sample. :meth:`result` makes one sample's result, :meth:`results` them all,
+    equal field for field to what the analysis reports.
+
+    In the float columns NaN stands for None. ``quantified`` marks the samples read through the curve:
+    only they have a mean response (kept as computed) and the numbers that follow from the estimate
+    (``reported`` = estimate × dilution factor, and the interval ends likewise). The replicate
+    responses of all samples stand one after another in ``replicate_values``, ``replicate_counts``
+    of them per sample. ``flags`` holds the flag bits (-1: None), ``within_limits`` 1, 0 or -1 (None).
+    """
+
+    analyte: str
+    ids: list[str]
+    kinds: list[SampleKind]
+    run_orders: list[int | None]
+    replicate_values: np.ndarray
+    replicate_counts: np.ndarray
+    quantified: np.ndarray
+    mean_response: np.ndarray
+    estimate: np.ndarray
+    standard_error: np.ndarray
+    lower: np.ndarray
+    upper: np.ndarray
+    dilution: np.ndarray
+    nominal: np.ndarray
+    recovery_percent: np.ndarray
+    within_limits: np.ndarray
+    flags: np.ndarray
+    notes: list[str]
+    statuses: list[ReportStatus]
+    texts: list[str]
+    words: list[str]
+    shorts: list[str]
+    suggested_dilution: np.ndarray
+
+    def __len__(self) -> int:
+        return len(self.ids)
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, SampleColumns):
+            return NotImplemented
+        return self.analyte == other.analyte and self.results() == other.results()
+
+    __hash__ = None  # type: ignore[assignment]
+
+    def chunks(self, size: int = 4096) -> Iterator[tuple[int, dict[str, list[Any]]]]:
+        """The columns ``size`` samples at a time, as plain Python values (NaN kept; see the class):
+        (index of the first sample, the columns by name)."""
+        names = ("mean_response", "estimate", "standard_error", "lower", "upper", "dilution", "nominal",
+                 "recovery_percent", "within_limits", "flags", "suggested_dilution", "quantified", "replicate_counts")
+        for start in range(0, len(self.ids), size):
+            stop = min(start + size, len(self.ids))
+            out: dict[str, list[Any]] = {name: getattr(self, name)[start:stop].tolist() for name in names}
+            for name in ("ids", "kinds", "run_orders", "notes", "statuses", "texts", "words", "shorts"):
+                out[name] = getattr(self, name)[start:stop]
+            yield start, out
+
+    def results(self) -> tuple[SampleResult, ...]:
+        """Every sample's result."""
+        offsets = np.concatenate([[0], np.cumsum(self.replicate_counts)]).tolist()
+        values = self.replicate_values.tolist()
+        out = []
+        for start, c in self.chunks():
+            for k in range(len(c["ids"])):
+                i = start + k
+                out.append(_result_of(self.analyte, c, k, tuple(values[offsets[i]:offsets[i + 1]])))
+        return tuple(out)
+
+    def result(self, i: int) -> SampleResult:
+        """The result of the ``i``-th sample."""
+        start = int(np.sum(self.replicate_counts[:i]))
+        values = tuple(self.replicate_values[start:start + int(self.replicate_counts[i])].tolist())
+        c = {name: [v[i] if isinstance(v, list) else v[i].item()] for name, v in (
+            (name, getattr(self, name)) for name in (
+                "mean_response", "estimate", "standard_error", "lower", "upper", "dilution", "nominal",
+                "recovery_percent", "within_limits", "flags", "suggested_dilution", "quantified", "replicate_counts",
+                "ids", "kinds", "run_orders", "notes", "statuses", "texts", "words", "shorts"))}
+        return _result_of(self.analyte, c, 0, values)
+
+    @classmethod
+    def of(cls, analyte: str, results: Sequence[SampleResult]) -> "SampleColumns":
+        """The columns of ``results`` (each as :meth:`results` gives it back)."""
+        def floats(values: Iterable[float | None]) -> np.ndarray:
+            return np.array([np.nan if v is None else v for v in values], dtype=float)
+
+        quantified = np.array([s.mean_response is not None for s in results], dtype=bool)
+        return cls(
+            analyte=analyte, ids=[s.sample_id for s in results], kinds=[s.kind for s in results],
+            run_orders=[s.run_order for s in results],
+            replicate_values=np.array([v for s in results for v in s.replicate_responses], dtype=float),
+            replicate_counts=np.array([len(s.replicate_responses) for s in results], dtype=np.int64),
+            quantified=quantified, mean_response=floats(s.mean_response for s in results),
+            estimate=floats(s.estimate for s in results), standard_error=floats(s.standard_error for s in results),
+            lower=floats(s.lower for s in results), upper=floats(s.upper for s in results),
+            dilution=floats(s.dilution_factor for s in results), nominal=floats(s.nominal for s in results),
+            recovery_percent=floats(s.recovery_percent for s in results),
+            within_limits=np.array([_NONE if s.within_limits is None else int(s.within_limits) for s in results],
+                                   dtype=np.int8),
+            flags=np.array([_NONE if s.flags is None else int(s.flags) for s in results], dtype=np.int64),
+            notes=[s.note for s in results], statuses=[s.status for s in results],
+            texts=[s.reported_text for s in results], words=[s.words for s in results],
+            shorts=[s.short for s in results], suggested_dilution=floats(s.suggested_dilution for s in results),
+        )
+
+
+def _result_of(analyte: str, c: dict[str, list[Any]], k: int, values: tuple[float, ...]) -> SampleResult:
+    """The result of the ``k``-th sample of a chunk of columns (:meth:`SampleColumns.chunks`)."""
+    def some(value: float) -> float | None:
+        return None if value != value else value
+
+    bits = c["flags"][k]
+    flags = None if bits == _NONE else QuantFlag(bits)
+    within = c["within_limits"][k]
+    common = dict(sample_id=c["ids"][k], kind=c["kinds"][k], run_order=c["run_orders"][k], analyte=analyte,
+                  replicate_responses=values, dilution_factor=c["dilution"][k], nominal=some(c["nominal"][k]),
+                  flags=flags, note=c["notes"][k], recovery_percent=some(c["recovery_percent"][k]),
+                  within_limits=None if within == _NONE else bool(within), status=c["statuses"][k],
+                  reported_text=c["texts"][k], words=c["words"][k], short=c["shorts"][k],
+                  suggested_dilution=some(c["suggested_dilution"][k]))
+    if not c["quantified"][k]:
+        return SampleResult(mean_response=None, estimate=None, standard_error=None, lower=None, upper=None,
+                            reported=None, reported_lower=None, reported_upper=None, **common)
+    df = c["dilution"][k]
+    est, se, low, high = some(c["estimate"][k]), c["standard_error"][k], c["lower"][k], c["upper"][k]
+    return SampleResult(
+        mean_response=c["mean_response"][k], estimate=est, standard_error=some(se), lower=some(low),
+        upper=some(high), reported=None if est is None else est * df, reported_lower=None if low != low else low * df,
+        reported_upper=None if high != high else high * df, **common)
+
+
 @dataclass(frozen=True)
 class UnusableStandard:
     standard_id: str
@@ -120,7 +256,8 @@ class AnalyteResult:
     limits_note: str | None
     verdict: AcceptanceVerdict | None
     qc_verdict: AcceptanceVerdict | None
-    samples: tuple[SampleResult, ...]
+    sample_columns: SampleColumns | None
+    """The samples' results as columns (None: no sample was quantified, the analyte has no curve)."""
     model_overridden: bool = False
     checks: CheckVerdict | None = None
     reporting: ReportingRange | None = None
@@ -129,6 +266,11 @@ class AnalyteResult:
     standard, a model departing from the method's), or what it notes; "FAIL" marks a failure."""
     additions: tuple[AdditionSeriesResult, ...] = ()
     """The samples measured by standard additions (:mod:`.addition_series`), whatever the calibration."""
+
+    @cached_property
+    def samples(self) -> tuple[SampleResult, ...]:
+        """Every sample's result (made from :attr:`sample_columns` when first read)."""
+        return () if self.sample_columns is None else self.sample_columns.results()
 
     @property
     def by_additions_only(self) -> bool:
@@ -309,7 +451,7 @@ def _analyse_analyte(
         return AnalyteResult(
             analyte=analyte, calibration=None, error=str(exc), fitted_standards=tuple(fitted),
             excluded_standards=tuple(excluded), unusable_standards=tuple(unusable), limits=None,
-            limits_note=None, verdict=None, qc_verdict=None, samples=(), model_overridden=overridden,
+            limits_note=None, verdict=None, qc_verdict=None, sample_columns=None, model_overridden=overridden,
         )
     limits, limits_note = None, None
     try:
@@ -323,10 +465,15 @@ def _analyse_analyte(
     low, high = cal.calibrated_range  # anchor points of a logistic curve lie outside it
     in_range = cal.concentration[(cal.concentration >= low) & (cal.concentration <= high)]
     rng = reporting_range(in_range, limits.lod if limits else None, limits.loq if limits else None, unit)
-    samples = _quantify_samples(run, analyte, cal, limits, rng, profile)
+    columns = _quantify_samples(run, analyte, cal, limits, rng, profile)
+    check_kinds = {kind for kind in SampleKind if kind.is_check}
+    check_results = [columns.result(i) for i, kind in enumerate(columns.kinds) if kind in check_kinds]
     checks = judge_checks([CheckInput(s.sample_id, s.kind, s.run_order, s.nominal, s.reported, s.status,
-                                      s.dilution_factor, s.note) for s in samples],
+                                      s.dilution_factor, s.note) for s in check_results],
                           profile.checks, rng, profile.name, unit)
+    samples: tuple[SampleResult, ...] | None = None
+    if checks is not None or SampleKind.QC in columns.kinds:  # results judged further: as objects
+        samples = columns.results()
     if checks is not None:
         by_id = {c.sample_id: c for c in checks.checks}
         unbracketed = bracketing([(s.sample_id, s.run_order) for s in samples if not s.kind.is_check], checks.checks)
@@ -337,14 +484,17 @@ def _analyse_analyte(
             if s.sample_id in unbracketed and s.estimate is not None else s
             for s in samples
         )
-    samples = tuple(
-        replace(s, within_limits=abs(s.recovery_percent - 100.0) <= profile.qc.tolerance_percent + 1e-9)
-        if s.recovery_percent is not None and s.kind is SampleKind.QC else s
-        for s in samples
-    )
-    qc = [s for s in samples if s.kind is SampleKind.QC and s.nominal is not None and s.reported is not None]
-    qc_verdict = profile.evaluate_qc([s.nominal for s in qc], [s.reported for s in qc]) if qc else None
-    return AnalyteResult(
+    qc_verdict = None
+    if samples is not None:
+        samples = tuple(
+            replace(s, within_limits=abs(s.recovery_percent - 100.0) <= profile.qc.tolerance_percent + 1e-9)
+            if s.recovery_percent is not None and s.kind is SampleKind.QC else s
+            for s in samples
+        )
+        qc = [s for s in samples if s.kind is SampleKind.QC and s.nominal is not None and s.reported is not None]
+        qc_verdict = profile.evaluate_qc([s.nominal for s in qc], [s.reported for s in qc]) if qc else None
+        columns = SampleColumns.of(analyte.name, samples)
+    result = AnalyteResult(
         analyte=analyte,
         calibration=cal,
         error=None,
@@ -355,12 +505,15 @@ def _analyse_analyte(
         limits_note=limits_note,
         verdict=verdict,
         qc_verdict=qc_verdict,
-        samples=samples,
+        sample_columns=columns,
         model_overridden=overridden,
         checks=checks,
         reporting=rng,
         method_reasons=_method_reasons(run, analyte, cal, use_model, use_weighting),
     )
+    if samples is not None:
+        result.__dict__["samples"] = samples  # already made: the columns give the same results
+    return result
 
 
 def _method_reasons(run: Run, analyte: Analyte, cal: Calibration, model: str, weighting: str) -> tuple[str, ...]:
@@ -402,8 +555,8 @@ def _report(s: SampleResult, rng: ReportingRange, run: Run, profile: AcceptanceP
 def _quantify_samples(
     run: Run, analyte: Analyte, cal: Calibration, limits: DetectionLimits | None, rng: ReportingRange,
     profile: AcceptanceProfile,
-) -> tuple[SampleResult, ...]:
-    """Every sample of the analyte, quantified and reported.
+) -> SampleColumns:
+    """Every sample of the analyte, quantified and reported, as columns.
 
     Each sample's result is what :func:`_report` gives for it; the work is done over all samples at
     once: the replicate means of the samples with the same number of replicates as one array (each
@@ -412,87 +565,102 @@ def _quantify_samples(
     """
     settings = run.settings
     name, ratio = analyte.name, analyte.uses_internal_standard
-    rows = []
+    ids: list[str] = []
+    kinds: list[SampleKind] = []
+    run_orders: list[int | None] = []
+    dilution_list: list[float] = []
+    nominal_list: list[float] = []
+    values: list[float] = []
+    counts_list: list[int] = []
+    notes: list[str] = []
+    censored_of: dict[int, str] = {}
     for sample in run.samples:
         measurements = [m for m in sample.measurements if m.analyte == name]
         if not measurements:
             continue
-        values, notes, censored = [], [], None
+        r = len(ids)
+        count, reasons_here = 0, []
         for m in measurements:
             value, reason = response_value(m.response, m.internal_standard_response, ratio)
             if value is None:
                 if m.response.is_censored:
-                    censored = m.response.text
-                notes.append(f"replicate {m.replicate}: {reason}")
+                    censored_of[r] = m.response.text
+                reasons_here.append(f"replicate {m.replicate}: {reason}")
             else:
                 values.append(value)
-        rows.append((sample, tuple(values), "; ".join(notes), censored))
-    positions = [r for r, row in enumerate(rows) if row[1] and row[3] is None]
-    counts = np.array([len(rows[r][1]) for r in positions], dtype=np.int64)
-    means = np.empty(len(positions))
+                count += 1
+        ids.append(sample.id)
+        kinds.append(sample.kind)
+        run_orders.append(sample.run_order)
+        dilution_list.append(sample.dilution_factor)
+        nominal = sample.nominal_of(name)
+        nominal_list.append(np.nan if nominal is None else nominal)
+        counts_list.append(count)
+        notes.append("; ".join(reasons_here))
+    n = len(ids)
+    replicate_values = np.array(values, dtype=float)
+    del values
+    replicate_counts = np.array(counts_list, dtype=np.int64)
+    offsets = np.concatenate([[0], np.cumsum(replicate_counts)])
+    quantifiable = replicate_counts > 0
+    if censored_of:
+        quantifiable[list(censored_of)] = False
+    positions = np.flatnonzero(quantifiable)
+    counts = replicate_counts[positions]
+    means = np.empty(positions.size)
     for m in np.unique(counts).tolist():  # samples with m replicates: one row each, averaged along the rows
         at = np.flatnonzero(counts == m)
-        means[at] = np.array([rows[positions[i]][1] for i in at.tolist()], dtype=float).reshape(at.size, m).mean(axis=1)
+        starts = offsets[positions[at]]
+        means[at] = replicate_values[starts[:, None] + np.arange(m)].reshape(at.size, m).mean(axis=1)
     refusal = None
     try:
-        quant = cal.quantify(means, counts, settings.confidence_level, settings.interval, limits) if positions else None
+        quant = cal.quantify(means, counts, settings.confidence_level, settings.interval, limits) if positions.size else None
     except QuantitationInputError as exc:  # a calibration that cannot quantify: every sample says why
         quant, refusal = None, f"not quantified: {exc}"
-    n = len(rows)
     estimate = np.full(n, np.nan)
-    dilution = np.array([row[0].dilution_factor for row in rows], dtype=float)
+    mean_response, standard_error, lower, upper = (np.full(n, np.nan) for _ in range(4))
+    dilution = np.array(dilution_list, dtype=float)
     flags: list[QuantFlag | None] = [None] * n
-    reasons = [""] * n
-    at = np.array(positions if quant is not None else [], dtype=np.int64)
+    quantified = np.zeros(n, dtype=bool)
     if quant is not None:
-        estimate[at] = quant.estimate
-        flags_of = list(quant.flags)
-        for j, r in enumerate(positions):
-            flags[r] = flags_of[j]
-    index_of = {r: j for j, r in enumerate(at.tolist())}
-    for r, (sample, values, note, censored) in enumerate(rows):
-        if r in index_of:  # quantified: without an estimate (no solution), the replicates' notes say why
-            reasons[r] = note if np.isnan(estimate[r]) else ""
+        quantified[positions] = True
+        estimate[positions] = quant.estimate
+        mean_response[positions] = quant.mean_response
+        standard_error[positions] = quant.standard_error
+        lower[positions] = quant.lower
+        upper[positions] = quant.upper
+        for r, flag in zip(positions.tolist(), quant.flags):
+            flags[r] = flag
+    reasons = [""] * n
+    no_estimate = np.isnan(estimate).tolist()
+    for r, (done, note) in enumerate(zip(quantified.tolist(), notes)):
+        if done:  # quantified: without an estimate (no solution), the replicates' notes say why
+            reasons[r] = note if no_estimate[r] else ""
             continue
+        censored = censored_of.get(r)
         reason = f"reported as censored: {censored}" if censored else (refusal or note or "no numeric response")
         reasons[r] = reason if not note or reason == note else f"{reason}; {note}"
     reported = report_values(estimate, dilution, flags, rng, settings.rounding, unit=analyte.concentration_unit,
                              below_limit=profile.reporting.between_lod_and_reporting_limit, not_quantified=reasons)
-    if quant is not None:
-        columns = [c.tolist() for c in (quant.mean_response, quant.estimate, quant.standard_error, quant.lower,
-                                        quant.upper)]
-    out = []
-    for r, (sample, values, note, censored) in enumerate(rows):
-        nominal = sample.nominal_of(name)
-        value = reported[r]
-        j = index_of.get(r)
-        if j is None:
-            out.append(SampleResult(
-                sample_id=sample.id, kind=sample.kind, run_order=sample.run_order, analyte=name,
-                replicate_responses=values, dilution_factor=sample.dilution_factor, nominal=nominal,
-                mean_response=None, estimate=None, standard_error=None, lower=None, upper=None,
-                reported=None, reported_lower=None, reported_upper=None, flags=None, note=reasons[r],
-                status=value.status, reported_text=value.text, words=value.words, short=value.short,
-                suggested_dilution=value.suggested_dilution,
-            ))
-            continue
-        df = sample.dilution_factor
-        mean, est, se, low, high = (c[j] for c in columns)
-        est = None if est != est else est
-        got = None if est is None else est * df
-        recovery = 100.0 * got / nominal if nominal is not None and got is not None and nominal != 0 else None
-        out.append(SampleResult(
-            sample_id=sample.id, kind=sample.kind, run_order=sample.run_order, analyte=name,
-            replicate_responses=values, dilution_factor=df, nominal=nominal,
-            mean_response=mean, estimate=est, standard_error=None if se != se else se,
-            lower=None if low != low else low, upper=None if high != high else high,
-            reported=got, reported_lower=None if low != low else low * df,
-            reported_upper=None if high != high else high * df,
-            flags=value.flags if est is not None else flags[r], note=note, recovery_percent=recovery,
-            status=value.status, reported_text=value.text, words=value.words, short=value.short,
-            suggested_dilution=value.suggested_dilution,
-        ))
-    return tuple(out)
+    nominal = np.array(nominal_list, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        got = estimate * dilution
+        recovery = np.where(quantified & ~np.isnan(estimate) & ~np.isnan(nominal) & (nominal != 0),
+                            100.0 * got / nominal, np.nan)
+    has_estimate = quantified & ~np.isnan(estimate)
+    bits = np.array([_NONE if (f := (v.flags if e else q)) is None else int(f)
+                     for v, e, q in zip(reported, has_estimate.tolist(), flags)], dtype=np.int64)
+    return SampleColumns(
+        analyte=name, ids=ids, kinds=kinds, run_orders=run_orders, replicate_values=replicate_values,
+        replicate_counts=replicate_counts, quantified=quantified, mean_response=mean_response, estimate=estimate,
+        standard_error=standard_error, lower=lower, upper=upper, dilution=dilution, nominal=nominal,
+        recovery_percent=recovery, within_limits=np.full(n, _NONE, dtype=np.int8), flags=bits,
+        notes=[reasons[r] if not done else note for r, (done, note) in enumerate(zip(quantified.tolist(), notes))],
+        statuses=[v.status for v in reported], texts=[v.text for v in reported], words=[v.words for v in reported],
+        shorts=[v.short for v in reported],
+        suggested_dilution=np.array([np.nan if v.suggested_dilution is None else v.suggested_dilution
+                                     for v in reported], dtype=float),
+    )
 
 
 def _number(value: float) -> float | None:

@@ -84,11 +84,25 @@ def _one_line(value: Any) -> str:
     return json.dumps(finite(value), ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
 
 
+def _refuse(value: Any) -> Any:
+    raise TypeError(f"{type(value).__name__} is not a JSON value")
+
+
+_C_ENCODER = json.encoder.c_make_encoder  # type: ignore[attr-defined]
+_ROW_ENCODER = None if _C_ENCODER is None else _C_ENCODER(
+    None, _refuse, json.encoder.encode_basestring, None, ": ", ", ", False, False, False)
+"""The JSON encoder's own C encoder, made once, with the settings of ``json.dumps(row,
+ensure_ascii=False, allow_nan=False, separators=(", ", ": "))`` (a flat row cannot hold itself,
+so circular references are not looked for)."""
+
+
 def _row_line(row: dict[str, Any]) -> str:
     """A row of :class:`Rows` on one line: its maker gives numbers, words and flat lists, so the JSON
     encoder takes it as it is unless a number is not finite or is a numpy scalar."""
     try:
-        return json.dumps(row, ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
+        if _ROW_ENCODER is None:
+            return json.dumps(row, ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
+        return "".join(_ROW_ENCODER(row, 0))
     except (ValueError, TypeError):
         return _one_line(row)
 

@@ -486,18 +486,25 @@ _MAX_LISTED = 20
 _SURROGATE_ESCAPE = re.compile(r"\\u[dD][89a-fA-F]")
 
 
-def _may_have_structure_problems(text: str, document: Any, oversized: bool) -> bool:
-    """Whether :func:`_structure_problems` could find anything, found without naming paths: an
-    unpaired surrogate can only come from a surrogate in the text (which UTF-8 cannot encode) or a
-    ``\\uD800``–``\\uDFFF`` escape in it; ``oversized`` says whether the parser met a whole number
-    of too many digits; the nesting is counted on the lists and objects alone, one level at a time.
-    The full walk, which names the paths, runs only when this finds a reason (it is then the judge)."""
-    if oversized or _SURROGATE_ESCAPE.search(text) is not None:
+def _may_be_oversized(text: str, document: Any, oversized: bool) -> bool:
+    """The parser met a whole number of too many digits (it says so in ``oversized``)."""
+    return oversized
+
+
+def _may_hold_surrogate(text: str, document: Any, oversized: bool) -> bool:
+    """An unpaired surrogate can only come from a surrogate in the text (which UTF-8 cannot encode)
+    or a ``\\uD800``–``\\uDFFF`` escape in it."""
+    if _SURROGATE_ESCAPE.search(text) is not None:
         return True
     try:
         text.encode("utf-8")
     except UnicodeEncodeError:
         return True
+    return False
+
+
+def _may_nest_too_deep(text: str, document: Any, oversized: bool) -> bool:
+    """The nesting counted on the lists and objects alone, one level at a time, without paths."""
     level = [document] if type(document) in (dict, list) else []
     depth = 0
     while level:
@@ -512,22 +519,43 @@ def _may_have_structure_problems(text: str, document: Any, oversized: bool) -> b
     return False
 
 
+_STRUCTURE_KINDS: dict[str, Callable[[str, Any, bool], bool]] = {
+    "oversized": _may_be_oversized,
+    "surrogate": _may_hold_surrogate,
+    "nesting": _may_nest_too_deep,
+}
+"""Every kind of problem :func:`_structure_problems` reports, with its cheap sign that the kind may be
+there. The walk names the kind of each problem it notes and looks it up here, so a kind without a sign
+cannot be reported; :func:`_may_have_structure_problems` asks every sign."""
+
+
+def _may_have_structure_problems(text: str, document: Any, oversized: bool) -> bool:
+    """Whether :func:`_structure_problems` could find anything, found without naming paths: any kind
+    of :data:`_STRUCTURE_KINDS` whose sign is there. ``oversized`` says whether the parser met a whole
+    number of too many digits. The full walk, which names the paths, runs only when this finds a
+    reason (it is then the judge)."""
+    return any(sign(text, document, oversized) for sign in _STRUCTURE_KINDS.values())
+
+
 def _structure_problems(document: Any) -> list[str]:
     """Nesting deeper than :data:`MAX_NESTING`, oversized whole numbers and unpaired surrogates,
-    each with its path (iteratively: a deep document cannot exhaust the stack here)."""
+    each with its path (iteratively: a deep document cannot exhaust the stack here). Each problem is
+    of a kind of :data:`_STRUCTURE_KINDS`."""
     problems: list[str] = []
     count = 0
 
-    def note(path: str, message: str) -> None:
+    def note(kind: str, path: str, message: str) -> None:
         nonlocal count
+        if kind not in _STRUCTURE_KINDS:  # a kind the pre-check cannot see is an error here, not a missed problem
+            raise KeyError(f"structure problem kind {kind!r} has no sign in _STRUCTURE_KINDS")
         count += 1
         if count <= _MAX_LISTED:
             problems.append(f"{path or '(the document)'}: {message}")
 
     def text(value: str, path: str, what: str) -> None:
         if (found := _SURROGATE.search(value)) is not None:
-            note(path, f"{what} holds U+{ord(found.group()):04X}, an unpaired surrogate that is not a character; "
-                       "the file was damaged or written by a faulty program")
+            note("surrogate", path, f"{what} holds U+{ord(found.group()):04X}, an unpaired surrogate that is not a "
+                                    "character; the file was damaged or written by a faulty program")
 
     stack: list[tuple[Any, str, int]] = [(document, "", 0)]
     while stack:
@@ -535,10 +563,10 @@ def _structure_problems(document: Any) -> list[str]:
         if isinstance(value, str):
             text(value, path, "the text")
         elif isinstance(value, _Oversized):
-            note(path, f"a whole number of {value.digits} digits is larger than any a run document holds")
+            note("oversized", path, f"a whole number of {value.digits} digits is larger than any a run document holds")
         elif isinstance(value, (dict, list)):
             if depth >= MAX_NESTING:
-                note(path, f"nested more than {MAX_NESTING} levels deep; no run document is built like this")
+                note("nesting", path, f"nested more than {MAX_NESTING} levels deep; no run document is built like this")
                 continue
             if isinstance(value, dict):
                 for key, item in value.items():

@@ -74,26 +74,32 @@ def _outside_quotes(text: str) -> str:
     inside a quoted field is a quote character. An unmatched quote leaves the rest out (the CSV
     reader then reports it).
     """
+    if '"' not in text:
+        return text
     out: list[str] = []
-    quoted = False
-    previous = "\n"
+    previous = "\n"  # the character before the next one looked at
     i = 0
-    while i < len(text):
-        ch = text[i]
-        if quoted:
-            if ch == '"':
-                if text.startswith('""', i):
-                    i += 2
-                    continue
-                quoted = False
-                out.append('""')
-        elif ch == '"' and previous in "\r\n\t;,":
-            quoted = True
-        else:
-            out.append(ch)
-        previous = ch
-        i += 1
-    return "".join(out)
+    while True:
+        j = text.find('"', i)
+        if j < 0:
+            out.append(text[i:])
+            return "".join(out)
+        out.append(text[i:j])
+        if (text[j - 1] if j > i else previous) not in "\r\n\t;,":  # a quote inside a field: kept
+            out.append('"')
+            previous, i = '"', j + 1
+            continue
+        k = j + 1
+        while True:  # the end of the quoted field: a quote not doubled
+            k = text.find('"', k)
+            if k < 0:
+                return "".join(out)  # unmatched: the rest is left out
+            if text.startswith('""', k):
+                k += 2
+                continue
+            break
+        out.append('""')
+        previous, i = '"', k + 1
 
 
 def table_from_text(text: str, *, delimiter: str | None = None, source: str = "pasted text", sha256: str | None = None) -> RawTable:
