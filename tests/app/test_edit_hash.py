@@ -6,6 +6,8 @@ from __future__ import annotations
 import json
 import shutil
 
+import numpy as np
+
 from curvewright.app import standards_model as sm
 from curvewright.io.integrity import sha256_of_content
 from curvewright.io.run_document import dumps_run, loads_run
@@ -52,3 +54,41 @@ def test_a_typed_edit_records_the_hash_of_the_saved_content(make_window, qtbot, 
     assert first.session.run.audit[-1].content_sha256 != document_hash(untouched)
     close(first)
     close(second)
+
+
+def test_a_typed_sample_response_moves_its_point_and_its_result(make_window, qtbot, tmp_path, answer_dialogs) -> None:  # type: ignore[no-untyped-def]
+    """Typing a sample's responses in the table: its point on the curve moves to the new estimate (drawn
+    with the unknowns' one style, placed in the symbol atlas as pyqtgraph places each point), the
+    results table shows the new estimate, and the audit entry records the saved content's hash."""
+    import pyqtgraph as pg
+
+    from curvewright.app import results_model, samples_model
+    from curvewright.core.run import SampleKind
+
+    window = make_window(shutil.copy(NITRATE, tmp_path / "nitrate.json"))
+    model = window.samples_model
+    row = next(r for r, s in enumerate(window.session.run.samples) if s.kind is SampleKind.UNKNOWN)
+    sample_id = window.session.run.samples[row].id
+    before = next(s for s in window.session.result.analytes[0].samples if s.sample_id == sample_id)
+    assert model.setData(model.index(row, samples_model.RESPONSES), "0.31; 0.33")
+    settle(qtbot, window)
+    after = next(s for s in window.session.result.analytes[0].samples if s.sample_id == sample_id)
+    assert after.replicate_responses == (0.31, 0.33) and after.estimate != before.estimate
+    _bars, points = window.curve_view.curve_items.samples[SampleKind.UNKNOWN]
+    assert points.isVisible()
+    x, _y = points.getData()
+    assert np.any(np.isclose(x, after.estimate, rtol=0, atol=1e-12 * abs(after.estimate)))
+    assert not np.any(np.isclose(x, before.estimate, rtol=0, atol=1e-12 * abs(before.estimate)))
+    # the atlas places the general way (each point's style looked up one by one) are the same
+    placed = points.scatter.data["sourceRect"].copy()
+    points.scatter.data["sourceRect"] = 0
+    pg.ScatterPlotItem.updateSpots(points.scatter)
+    assert np.array_equal(points.scatter.data["sourceRect"], placed)
+    table = window.results_view.table.model()
+    shown = [r for r in range(table.rowCount()) if table.data(table.index(r, results_model.SAMPLE)) == sample_id]
+    assert shown
+    assert table.data(table.index(shown[0], results_model.ESTIMATE)) == table.text(after, results_model.ESTIMATE)
+    assert table.rows[shown[0]] is after
+    entry = window.session.run.audit[-1]
+    assert entry.action == "samples_edited" and entry.content_sha256 == document_hash(window.session.run)
+    close(window)
