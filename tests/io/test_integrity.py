@@ -127,3 +127,26 @@ def test_an_edit_writes_out_only_the_samples_it_changed(monkeypatch) -> None:  #
     assert written == [changed.id]
     monkeypatch.setattr(run_document, "samples_out", samples_out)
     assert digest == integrity.sha256_of_content(run_document.run_to_mapping(edited)) != integrity.content_sha256(run)
+
+
+def test_plain_values_are_written_as_the_json_encoder_writes_them() -> None:
+    """Texts, whole numbers and finite floats are written directly; the bytes are the encoder's
+    (Python's json module with the canonical options), and what it refuses is still refused."""
+    import math
+
+    import pytest
+
+    from curvewright.io import integrity
+
+    def encoder(value):  # type: ignore[no-untyped-def]
+        return json.dumps(value, sort_keys=True, ensure_ascii=False, separators=(",", ":"),
+                          allow_nan=False).encode("utf-8")
+
+    values = ["", "plain", "µg/L", 'ä ∑ "quoted" \\ back', "tab\tnew\nline\r\x00\x1f\x7f", "\u2028\u2029",
+              "😀 emoji", 0, 1, -7, 10**30, -(10**30), 0.0, -0.0, 1.5, 0.1 + 0.2, 1e-300, 5e-324, 1.7976931348623157e308,
+              1e16, 123456789.0, None, True, False, [1, "a"], {"b": 1, "a": [0.5]}]
+    for value in values:
+        assert integrity._canonical(value) == encoder(value), value
+    for bad in (math.nan, math.inf, -math.inf):
+        with pytest.raises(ValueError):
+            integrity._canonical(bad)

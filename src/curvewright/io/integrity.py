@@ -15,6 +15,8 @@ from __future__ import annotations
 
 import hashlib
 import json
+import math
+from json.encoder import encode_basestring
 from dataclasses import dataclass, replace
 from typing import Any, Mapping, Sequence
 
@@ -38,6 +40,16 @@ SHORT = 8
 
 
 def _canonical(value: Any) -> bytes:
+    """The value in canonical JSON (keys sorted, no insignificant white space, UTF-8). A plain text,
+    whole number or finite float is written directly, as the encoder writes it (its string escape,
+    ``int.__repr__``, ``float.__repr__``); anything else goes through the encoder."""
+    kind = type(value)
+    if kind is str:
+        return encode_basestring(value).encode("utf-8")
+    if kind is float and math.isfinite(value):
+        return float.__repr__(value).encode("ascii")
+    if kind is int:
+        return int.__repr__(value).encode("ascii")
     return json.dumps(value, sort_keys=True, ensure_ascii=False, separators=(",", ":"), allow_nan=False).encode("utf-8")
 
 
