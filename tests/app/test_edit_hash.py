@@ -92,3 +92,34 @@ def test_a_typed_sample_response_moves_its_point_and_its_result(make_window, qtb
     entry = window.session.run.audit[-1]
     assert entry.action == "samples_edited" and entry.content_sha256 == document_hash(window.session.run)
     close(window)
+
+
+def test_the_curve_is_painted_once_after_an_edit(make_window, qtbot, tmp_path, answer_dialogs) -> None:  # type: ignore[no-untyped-def]
+    """After a typed edit the curve is redrawn and painted once: nothing the first paint works out
+    (the view's range and transform, the bounds of the lines across it) asks for a second paint."""
+    from PySide6.QtCore import QEvent, QObject
+
+    window = make_window(shutil.copy(NITRATE, tmp_path / "nitrate.json"))
+    viewport = window.curve_view.graphics.viewport()
+    paints = []
+
+    class Count(QObject):
+        def eventFilter(self, obj, event):  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+            if obj is viewport and event.type() == QEvent.Type.Paint:
+                paints.append(event.region().boundingRect())
+            return False
+
+    counter = Count()
+    viewport.installEventFilter(counter)
+    model = window.standards_model
+    for text in ("0.1111", "0.1122", "0.1133"):
+        model.setData(model.index(3, sm.RESP), text)
+        settle(qtbot, window)
+        qtbot.wait(50)  # let every posted layout and paint run
+        paints.clear()
+        model.setData(model.index(3, sm.RESP), text[:-1] + "9")
+        settle(qtbot, window)
+        qtbot.wait(100)
+        assert len(paints) == 1, paints
+    viewport.removeEventFilter(counter)
+    close(window)

@@ -433,7 +433,19 @@ class CurveView(QWidget):
         self._hover_source = (a, log_x)
         self.curve_plot.getViewBox().autoRange(padding=0.04)
         self.lower_plot.getViewBox().autoRange(padding=0.08)
+        self._settle_before_paint()
         self.options_changed.emit()
+
+    def _settle_before_paint(self) -> None:
+        """Work out now what pyqtgraph otherwise works out at the start of the next paint: the view
+        boxes' ranges and transforms, and the bounds of the items that follow them (lines across the
+        view, shaded ranges). Worked out during the paint, they mark those items changed again, and
+        the plot was painted a second time after every redraw. The same values either way."""
+        scene = self.graphics.scene()
+        scene.prepareForPaint()
+        for item in scene.items():
+            if item.isVisible():
+                item.boundingRect()
 
     def _fit_legends(self) -> None:
         # both legends take the wider one's width, so that the two plots keep one concentration axis
