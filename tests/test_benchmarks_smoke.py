@@ -24,6 +24,10 @@ def test_benchmark_runs_in_smoke_mode(script: Path) -> None:
                             timeout=600, env=env, cwd=ROOT)
     assert result.returncode == 0, result.stdout[-2000:] + result.stderr[-2000:]
     assert "×" in result.stdout  # every benchmark reports its ratios
+    if script.stem == "bench_edit_redraw":  # the parts of an edit, CPU times beside elapsed, and scrolling
+        for column in ("analysis answered", "views rebuilt", "window repainted", "GUI thread CPU", "analysis CPU",
+                       "scrolling the results table"):
+            assert column in result.stdout, column
 
 
 def test_there_is_a_benchmark_for_each_target() -> None:

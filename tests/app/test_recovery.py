@@ -124,3 +124,45 @@ def test_a_recovery_folder_that_cannot_be_written_is_reported_once(qtbot, tmp_pa
     assert "cannot be kept for recovery" in warnings[0] and str(blocker) in warnings[0]
     assert "Save the run to keep your changes" in warnings[0]
     close(window)
+
+
+def test_edits_made_while_a_recovery_write_is_under_way_are_written_once_together(make_window, qtbot, tmp_path,
+                                                                                  monkeypatch, answer_dialogs) -> None:  # type: ignore[no-untyped-def]
+    """A burst of typed edits does not queue one whole-run write per edit: while a write is under way
+    the later edits wait, and the latest run is written once as soon as it ends (nothing typed is
+    lost: the recovery file ends holding the last edit)."""
+    import threading
+
+    from curvewright.app import session as session_module
+    from curvewright.io.run_document import open_recovery
+
+    window = make_window(shutil.copy(NITRATE, tmp_path / "nitrate.json"))
+    session = window.session
+    release = threading.Event()
+    written = []
+    save_recovery = session_module.save_recovery
+
+    def slow_save(run, path, source):  # type: ignore[no-untyped-def]
+        written.append(run)
+        release.wait(10)
+        save_recovery(run, path, source)
+
+    monkeypatch.setattr(session_module, "save_recovery", slow_save)
+    model = window.standards_model
+    model.setData(model.index(3, sm.RESP), "0.1111")
+    settle(qtbot, window)
+    session.write_recovery()  # the first write starts and is held up
+    qtbot.waitUntil(lambda: len(written) == 1)
+    for text in ("0.1112", "0.1113", "0.1114"):
+        model.setData(model.index(3, sm.RESP), text)
+        settle(qtbot, window)
+        session.write_recovery()
+    assert len(written) == 1  # nothing queued behind the write under way
+    release.set()
+    qtbot.waitUntil(lambda: len(written) == 2 and session._recovery_writing is None, timeout=10000)
+    session.flush_recovery()
+    assert written[1] is session.run  # the latest run, written once
+    recovered, _ = open_recovery(session.recovery_path())
+    assert recovered.run == session.run
+    assert "0.1114" in [s.response.text for s in recovered.run.analytes[0].standards]
+    close(window)

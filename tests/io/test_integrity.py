@@ -45,6 +45,7 @@ def test_the_content_hash_is_that_of_the_content_however_often_asked() -> None:
     canonical content, and a changed run (a new value) has its own."""
     import gc
     import hashlib
+    import weakref
     from dataclasses import replace
 
     from curvewright.io import integrity
@@ -57,10 +58,31 @@ def test_the_content_hash_is_that_of_the_content_however_often_asked() -> None:
     renamed = replace(run, name=run.name + " (copy)")
     assert integrity.content_sha256(renamed) != integrity.content_sha256(run)
     assert integrity.content_sha256(renamed) == integrity.sha256_of_content(run_to_mapping(renamed))
-    key = id(renamed)
+    gone = weakref.ref(renamed)
     del renamed
     gc.collect()
-    assert key not in integrity._HASHED  # a freed run's identity may be reused: its hash is forgotten
+    assert gone() is None  # nothing outside the run keeps it (or its hash) alive
+
+
+def test_the_integrity_module_keeps_no_state_of_its_own() -> None:
+    """Hashing runs changes nothing in the module: what is worked out is kept with each value, so two
+    runs (or two sessions, two processes' runs) never share hash state."""
+    import copy
+    from dataclasses import replace
+
+    from curvewright.io import integrity
+
+    def module_state() -> dict[str, object]:
+        return {k: copy.deepcopy(v) for k, v in vars(integrity).items()
+                if not k.startswith("__") and isinstance(v, (dict, list, set, tuple, bytes, str, int, float))}
+
+    before = module_state()
+    run = loads_run(DEMO.read_text(encoding="utf-8")).run
+    other = replace(run, samples=run.samples[1:])
+    assert integrity.content_sha256(run) != integrity.content_sha256(other)
+    assert module_state() == before
+    assert not [k for k, v in vars(integrity).items() if isinstance(v, (dict, list, set)) and k.startswith("_")
+                and not k.startswith("__")]
 
 
 def test_runs_that_share_their_samples_hash_their_own_content() -> None:
@@ -78,3 +100,53 @@ def test_runs_that_share_their_samples_hash_their_own_content() -> None:
         expected = integrity.sha256_of_content(run_to_mapping(value))
         assert integrity.content_sha256(replace(value)) == expected  # a fresh value: worked out, not remembered
     assert len({integrity.content_sha256(v) for v in [run, *others]}) == 5
+
+
+def test_an_edit_writes_out_only_the_samples_it_changed(monkeypatch) -> None:  # type: ignore[no-untyped-def]
+    """Runs made one from another by edits share their unchanged samples: hashing the edited run
+    writes the canonical text of the changed sample only, and the hash is that of the whole content."""
+    from dataclasses import replace
+
+    from curvewright.io import integrity, run_document
+
+    run = loads_run(DEMO.read_text(encoding="utf-8")).run
+    assert len(run.samples) >= 3
+    integrity.content_sha256(run)
+    written: list[str] = []
+    samples_out = run_document.samples_out
+
+    def counted(samples):  # type: ignore[no-untyped-def]
+        out = samples_out(samples)
+        written.extend(s["id"] for s in out)
+        return out
+
+    monkeypatch.setattr(run_document, "samples_out", counted)
+    changed = replace(run.samples[1], dilution_factor=run.samples[1].dilution_factor * 2)
+    edited = replace(run, samples=(run.samples[0], changed, *run.samples[2:]))
+    digest = integrity.content_sha256(edited)
+    assert written == [changed.id]
+    monkeypatch.setattr(run_document, "samples_out", samples_out)
+    assert digest == integrity.sha256_of_content(run_document.run_to_mapping(edited)) != integrity.content_sha256(run)
+
+
+def test_plain_values_are_written_as_the_json_encoder_writes_them() -> None:
+    """Texts, whole numbers and finite floats are written directly; the bytes are the encoder's
+    (Python's json module with the canonical options), and what it refuses is still refused."""
+    import math
+
+    import pytest
+
+    from curvewright.io import integrity
+
+    def encoder(value):  # type: ignore[no-untyped-def]
+        return json.dumps(value, sort_keys=True, ensure_ascii=False, separators=(",", ":"),
+                          allow_nan=False).encode("utf-8")
+
+    values = ["", "plain", "µg/L", 'ä ∑ "quoted" \\ back', "tab\tnew\nline\r\x00\x1f\x7f", "\u2028\u2029",
+              "😀 emoji", 0, 1, -7, 10**30, -(10**30), 0.0, -0.0, 1.5, 0.1 + 0.2, 1e-300, 5e-324, 1.7976931348623157e308,
+              1e16, 123456789.0, None, True, False, [1, "a"], {"b": 1, "a": [0.5]}]
+    for value in values:
+        assert integrity._canonical(value) == encoder(value), value
+    for bad in (math.nan, math.inf, -math.inf):
+        with pytest.raises(ValueError):
+            integrity._canonical(bad)

@@ -197,15 +197,33 @@ def excluded_points(a: AnalyteResult, tx, ty, log_x: bool, log_y: bool) -> tuple
 def sample_points(a: AnalyteResult, kind, tx, ty, log_x: bool, log_y: bool):  # type: ignore[no-untyped-def]
     """The samples of ``kind`` with an estimate that the axes can show, as plotted: estimate, mean
     response, and the interval's ends (an end that is missing, open or off a log axis drawn at the
-    estimate), each through the axis transforms ``tx`` and ``ty``; None when there is none."""
-    chosen = [s for s in a.samples if s.kind is kind and s.estimate is not None
-              and (s.estimate > 0 or not log_x) and (s.mean_response > 0 or not log_y)]
-    if not chosen:
+    estimate), each through the axis transforms ``tx`` and ``ty``; None when there is none.
+
+    The results are read once into arrays (a missing value as NaN) and chosen over the arrays."""
+    samples = a.samples
+    n = len(samples)
+    if not n:
         return None
-    lo_raw = [s.lower if s.lower is not None and np.isfinite(s.lower) and (s.lower > 0 or not log_x) else s.estimate
-              for s in chosen]
-    hi_raw = [s.upper if s.upper is not None and np.isfinite(s.upper) else s.estimate for s in chosen]
-    return tx([s.estimate for s in chosen]), ty([s.mean_response for s in chosen]), tx(lo_raw), tx(hi_raw)
+    of_kind = np.fromiter((s.kind is kind and s.estimate is not None for s in samples), bool, n)
+    if not of_kind.any():
+        return None
+    chosen = [s for s, keep in zip(samples, of_kind.tolist()) if keep]
+    estimate = np.array([s.estimate for s in chosen], dtype=float)
+    mean = np.array([s.mean_response for s in chosen], dtype=float)
+    shown = np.ones(len(chosen), bool)
+    if log_x:
+        shown &= estimate > 0
+    if log_y:
+        shown &= mean > 0
+    if not shown.any():
+        return None
+    lower = np.array([s.lower for s in chosen], dtype=float)[shown]  # None is read as NaN: not finite
+    upper = np.array([s.upper for s in chosen], dtype=float)[shown]
+    estimate, mean = estimate[shown], mean[shown]
+    lower_shown = np.isfinite(lower) & (lower > 0) if log_x else np.isfinite(lower)
+    lo_raw = np.where(lower_shown, lower, estimate)
+    hi_raw = np.where(np.isfinite(upper), upper, estimate)
+    return tx(estimate), ty(mean), tx(lo_raw), tx(hi_raw)
 
 
 def draw_anchor_points(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,

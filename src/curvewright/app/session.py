@@ -149,17 +149,18 @@ class _AnalysisJob(QRunnable):
 
 
 class _RecoverySignals(QObject):
-    written = Signal()
-    failed = Signal(str)
+    written = Signal(int)       # the write's number
+    failed = Signal(int, str)   # the write's number, and why it failed
 
 
 class _RecoveryJob(QRunnable):
     """Writes the recovery file on the writer thread: the run and the path of its document in one
     file, written atomically. The outcome goes back to the session as a queued signal."""
 
-    def __init__(self, run: Run, path: Path, source: str, signals: _RecoverySignals) -> None:
+    def __init__(self, run: Run, path: Path, source: str, signals: _RecoverySignals, number: int = 0) -> None:
         super().__init__()
         self.subject, self.path, self.source, self.signals = run, path, source, signals
+        self.number = number
         self.setAutoDelete(True)
 
     def run(self) -> None:  # noqa: D401 - QRunnable entry point
@@ -170,9 +171,9 @@ class _RecoveryJob(QRunnable):
                 raise CurvewrightError(f"cannot make the folder {self.path.parent} ({exc.strerror or exc})") from None
             save_recovery(self.subject, self.path, self.source)
         except (OSError, CurvewrightError) as exc:
-            self.signals.failed.emit(str(exc))
+            self.signals.failed.emit(self.number, str(exc))
             return
-        self.signals.written.emit()
+        self.signals.written.emit(self.number)
 
 
 class RunSession(QObject):
@@ -230,6 +231,11 @@ class RunSession(QObject):
         self._recovery_signals.failed.connect(self._on_recovery_failed)
         self._recovery_signals.written.connect(self._on_recovery_written)
         self._recovery_warned = False
+        self._recovery_writing: int | None = None
+        """The number of the recovery write under way on the writer thread, if any."""
+        self._recovery_writes = 0
+        self._recovery_again = False
+        """A change came while a recovery write was under way: the latest run is written when it ends."""
         self._deferred_start = False
         if defer_analysis:
             # The window starts the first analysis once it has been painted (start_deferred_analysis),
@@ -332,16 +338,33 @@ class RunSession(QObject):
         return self.recovery_folder / f"recovery-{digest}.json"
 
     def write_recovery(self) -> None:
-        """Autosave after a change (on the writer thread), so that a crash loses nothing. When the
+        """Autosave after a change (on the writer thread), so that a crash loses nothing. One write at
+        a time: changes made while one is under way are written together, the latest run once, as
+        soon as it ends (the writes of a burst of edits are not queued one behind another). When the
         recovery file cannot be written, :attr:`recovery_failed` says so once (again only after a
         write has worked in between)."""
         if not self.dirty:
             self.discard_recovery()
             return
-        self._writer.start(_RecoveryJob(self._run, self.recovery_path(), str(self._path or ""), self._recovery_signals))
+        if self._recovery_writing is not None:
+            self._recovery_again = True
+            return
+        self._recovery_again = False
+        self._recovery_writes += 1
+        self._recovery_writing = self._recovery_writes
+        self._writer.start(_RecoveryJob(self._run, self.recovery_path(), str(self._path or ""), self._recovery_signals,
+                                        self._recovery_writes))
 
-    @Slot(str)
-    def _on_recovery_failed(self, reason: str) -> None:
+    def _recovery_write_ended(self, number: int) -> None:
+        if number != self._recovery_writing:
+            return  # a write already waited for (flush_recovery)
+        self._recovery_writing = None
+        if self._recovery_again:
+            self.write_recovery()
+
+    @Slot(int, str)
+    def _on_recovery_failed(self, number: int, reason: str) -> None:
+        self._recovery_write_ended(number)
         if self._recovery_warned:
             return
         self._recovery_warned = True
@@ -350,20 +373,27 @@ class RunSession(QObject):
             "your changes; the recovery folder is set by the system's application-data location."
         )
 
-    @Slot()
-    def _on_recovery_written(self) -> None:
+    @Slot(int)
+    def _on_recovery_written(self, number: int) -> None:
         self._recovery_warned = False
+        self._recovery_write_ended(number)
 
     def flush_recovery(self) -> None:
         """Write a pending recovery file now and wait for it (before a risky step, and in tests)."""
-        if self._recovery_timer.isActive():
-            self._recovery_timer.stop()
-            self.write_recovery()
+        pending = self._recovery_timer.isActive() or self._recovery_again
+        self._recovery_timer.stop()
         self._writer.waitForDone(10000)
+        self._recovery_writing = None  # waited for: its queued answer is passed over
+        if pending:
+            self.write_recovery()
+            self._writer.waitForDone(10000)
+            self._recovery_writing = None
 
     def discard_recovery(self) -> None:
         self._recovery_timer.stop()
+        self._recovery_again = False
         self._writer.waitForDone(10000)
+        self._recovery_writing = None
         self._discard_recovery_files(self.recovery_path())
 
     @staticmethod

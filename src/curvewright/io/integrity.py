@@ -15,12 +15,12 @@ from __future__ import annotations
 
 import hashlib
 import json
-import weakref
+import math
+from json.encoder import encode_basestring
 from dataclasses import dataclass, replace
-from functools import partial
-from typing import Any, Mapping
+from typing import Any, Mapping, Sequence
 
-from ..core.run import Run
+from ..core.run import Run, Sample
 
 LEFT_OUT = ("audit", "signatures", "content")
 """Parts of the run document that are not content: they record, sign and digest the content."""
@@ -40,6 +40,16 @@ SHORT = 8
 
 
 def _canonical(value: Any) -> bytes:
+    """The value in canonical JSON (keys sorted, no insignificant white space, UTF-8). A plain text,
+    whole number or finite float is written directly, as the encoder writes it (its string escape,
+    ``int.__repr__``, ``float.__repr__``); anything else goes through the encoder."""
+    kind = type(value)
+    if kind is str:
+        return encode_basestring(value).encode("utf-8")
+    if kind is float and math.isfinite(value):
+        return float.__repr__(value).encode("ascii")
+    if kind is int:
+        return int.__repr__(value).encode("ascii")
     return json.dumps(value, sort_keys=True, ensure_ascii=False, separators=(",", ":"), allow_nan=False).encode("utf-8")
 
 
@@ -53,52 +63,53 @@ def sha256_of_content(mapping: Mapping[str, Any]) -> str:
     return hashlib.sha256(_canonical(content_of(mapping))).hexdigest()
 
 
-_HASHED: dict[int, tuple["weakref.ref[Run]", str]] = {}
-"""The content hash of each run still alive, by its identity: a run is an immutable value, so its
-hash is worked out once however many checks, tables and audit entries ask for it."""
+_RUN_MEMO = "_content_sha256"
+_SAMPLE_MEMO = "_canonical_json"
+"""Where a run keeps its content hash, and a sample its canonical JSON, once worked out: in the
+value's own attributes, as :func:`functools.cached_property` keeps what it works out. A run and its
+samples are immutable, so what is kept is never stale; it lives and dies with the value (no table
+in this module, no identity that could be given to another value), and the runs made one from
+another by edits share their unchanged samples, so an edit works out the text of the samples it
+changed only. The document text is joined from the parts and hashed once per run."""
 
 
 def content_sha256(run: Run) -> str:
-    """SHA-256 (hex) of the run's content in canonical JSON (worked out once per run value)."""
-    key = id(run)
-    known = _HASHED.get(key)
-    if known is not None and known[0]() is run:
-        return known[1]
-    from .run_document import run_to_mapping
-
-    content = content_of(run_to_mapping(replace(run, samples=())))
-    samples = _samples_text(run.samples)
-    text = b"{" + b",".join(_canonical(k) + b":" + (samples if k == "samples" else _canonical(v))
-                            for k, v in sorted(content.items())) + b"}"
-    digest = hashlib.sha256(text).hexdigest()
-    _HASHED[key] = (weakref.ref(run, partial(_forget, key)), digest)
+    """SHA-256 (hex) of the run's content in canonical JSON: the same digest as
+    :func:`sha256_of_content` of the run's document mapping, worked out once per run value and, for
+    its samples, once per sample value."""
+    known = vars(run).get(_RUN_MEMO)
+    if known is not None:
+        return known
+    digest = hashlib.sha256(content_text(run)).hexdigest()
+    object.__setattr__(run, _RUN_MEMO, digest)
     return digest
 
 
-_LAST_SAMPLES: tuple[Any, bytes] = ((), b"[]")
-"""The samples last written as canonical JSON, and that text: the runs made one from another by
-edits share their samples, so the text of many thousands of samples is made once for them all."""
+def content_text(run: Run) -> bytes:
+    """The run's content in canonical JSON, as :func:`_canonical` writes :func:`content_of` of its
+    document mapping (the canonical JSON of an object is its members' texts, keys sorted, joined;
+    of a list, its items' texts joined), with each sample's text kept with the sample."""
+    from .run_document import run_to_mapping
+
+    content = content_of(run_to_mapping(replace(run, samples=(), audit=(), signatures=())))
+    samples = b"[" + b",".join(sample_texts(run.samples)) + b"]"
+    return b"{" + b",".join(_canonical(k) + b":" + (samples if k == "samples" else _canonical(v))
+                            for k, v in sorted(content.items())) + b"}"
 
 
-def _samples_text(samples: Any) -> bytes:
-    """The canonical JSON of the samples, as :func:`_canonical` writes them within the content (the
-    canonical JSON of an object is its members' texts, keys sorted, joined)."""
-    global _LAST_SAMPLES
-    last = _LAST_SAMPLES
-    if last[0] is samples:
-        return last[1]
-    from .run_document import samples_out
+def sample_texts(samples: Sequence[Sample]) -> list[bytes]:
+    """Each sample's canonical JSON (as within the run's content), worked out only for samples that
+    have not been written before."""
+    texts: list[bytes | None] = [vars(s).get(_SAMPLE_MEMO) for s in samples]
+    new = [i for i, t in enumerate(texts) if t is None]
+    if new:
+        from .run_document import samples_out
 
-    text = _canonical(samples_out(samples))
-    _LAST_SAMPLES = (samples, text)
-    return text
-
-
-def _forget(key: int, gone: "weakref.ref[Run]") -> None:
-    """A run was freed: its identity may be given to another value, so its hash is dropped."""
-    known = _HASHED.get(key)
-    if known is not None and known[0] is gone:
-        del _HASHED[key]
+        for i, data in zip(new, samples_out(samples[i] for i in new)):
+            text = _canonical(data)
+            object.__setattr__(samples[i], _SAMPLE_MEMO, text)
+            texts[i] = text
+    return texts  # type: ignore[return-value]
 
 
 def _short(value: Any) -> str:
