@@ -150,3 +150,21 @@ def test_plain_values_are_written_as_the_json_encoder_writes_them() -> None:
     for bad in (math.nan, math.inf, -math.inf):
         with pytest.raises(ValueError):
             integrity._canonical(bad)
+
+
+def test_a_samples_kept_text_is_left_out_of_equality_copies_and_pickles() -> None:
+    """The text the content hash keeps with a sample never travels to a changed or copied value."""
+    import dataclasses
+    import pickle
+
+    from curvewright.core.run import Run, Sample
+    from curvewright.io.integrity import content_sha256
+
+    sample = Sample("U-1", dilution_factor=2.0)
+    first = content_sha256(Run(name="r", analytes=(), samples=(sample,)))
+    assert getattr(sample, "_kept_text", None) is not None
+    changed = dataclasses.replace(sample, dilution_factor=5.0)
+    assert getattr(changed, "_kept_text", None) is None
+    assert getattr(pickle.loads(pickle.dumps(sample)), "_kept_text", None) is None
+    assert pickle.loads(pickle.dumps(sample)) == sample
+    assert content_sha256(Run(name="r", analytes=(), samples=(changed,))) != first

@@ -146,8 +146,17 @@ class Addition:
     internal_standard_response: Reading | None = None
 
 
+class KeepsText:
+    """Room for one text an outer layer works out from an immutable value and keeps with it, as a
+    cached property keeps what it works out (the sample's canonical JSON in the run's content hash,
+    :mod:`curvewright.io.integrity`). It is not a field: equality, copies made by
+    :func:`dataclasses.replace` and pickles leave it out, so a changed value never carries it over."""
+
+    __slots__ = ("_kept_text",)
+
+
 @dataclass(frozen=True, slots=True)
-class Sample:
+class Sample(KeepsText):
     """A sample measured in the run: an unknown, a QC sample, a blank or a check standard.
 
     ``nominal`` holds the known concentration of QC samples and check standards per analyte, as

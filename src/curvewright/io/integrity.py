@@ -64,9 +64,9 @@ def sha256_of_content(mapping: Mapping[str, Any]) -> str:
 
 
 _RUN_MEMO = "_content_sha256"
-_SAMPLE_MEMO = "_canonical_json"
+_SAMPLE_MEMO = "_kept_text"
 """Where a run keeps its content hash, and a sample its canonical JSON, once worked out: in the
-value's own attributes, as :func:`functools.cached_property` keeps what it works out. A run and its
+value's own attribute (a sample's room for it: :class:`~curvewright.core.run.KeepsText`), as :func:`functools.cached_property` keeps what it works out. A run and its
 samples are immutable, so what is kept is never stale; it lives and dies with the value (no table
 in this module, no identity that could be given to another value), and the runs made one from
 another by edits share their unchanged samples, so an edit works out the text of the samples it
@@ -100,7 +100,7 @@ def content_text(run: Run) -> bytes:
 def sample_texts(samples: Sequence[Sample]) -> list[bytes]:
     """Each sample's canonical JSON (as within the run's content), worked out only for samples that
     have not been written before."""
-    texts: list[bytes | None] = [vars(s).get(_SAMPLE_MEMO) for s in samples]
+    texts: list[bytes | None] = [getattr(s, _SAMPLE_MEMO, None) for s in samples]
     new = [i for i, t in enumerate(texts) if t is None]
     if new:
         from .run_document import samples_out
