@@ -131,19 +131,7 @@ def fit_nonlinear(
     root_w = np.sqrt(w)
     limit = max_evaluations or MAX_EVALUATIONS_PER_PARAMETER * (p + 1)
 
-    def residuals(beta: FloatArray) -> FloatArray:
-        with np.errstate(all="ignore"):
-            r = root_w * (function(x, beta) - y)
-        # A non-finite residual makes MINPACK wander; a huge finite one makes it step back instead.
-        finite = np.isfinite(r)
-        return r if finite.all() else np.where(finite, r, 1e150)
-
-    def weighted_jacobian(beta: FloatArray) -> FloatArray:
-        with np.errstate(all="ignore"):
-            j = root_w[:, None] * jacobian(x, beta)
-        finite = np.isfinite(j)
-        return j if finite.all() else np.where(finite, j, 0.0)
-
+    residuals, weighted_jacobian = _weighted_problem(function, jacobian, x, y, root_w)
     if not np.all(np.isfinite(beta0)):
         return _failed(function, jacobian, x, y, beta0, root_w, 0, "the start values are not all finite numbers")
     if n < p:
@@ -153,18 +141,52 @@ def fit_nonlinear(
         # MINPACK's lmder itself (mode 1: the scaling follows the Jacobian's column norms, step bound
         # factor 100); the same iterations as least_squares(method="lm", x_scale="jac"), without its
         # per-call set-up, which costs more than the fit on a few dozen standards.
-        beta, _, info, _, code = optimize.leastsq(
-            residuals, beta0, Dfun=weighted_jacobian, full_output=True, col_deriv=False,
-            ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, maxfev=limit, factor=100.0, diag=None,
-        )
+        with np.errstate(all="ignore"):
+            beta, _, info, _, code = optimize.leastsq(
+                residuals, beta0, Dfun=weighted_jacobian, full_output=True, col_deriv=False,
+                ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, maxfev=limit, factor=100.0, diag=None,
+            )
     except (ValueError, TypeError, np.linalg.LinAlgError) as exc:  # improper input reported by MINPACK
         return _failed(function, jacobian, x, y, beta0, root_w, 0, f"the fit could not start ({exc})")
     status = _STATUS.get(int(code), -1)
     beta = np.asarray(beta, dtype=np.float64)
     evaluations = int(info["nfev"])
+    return _finish(function, jacobian, x, y, root_w, residuals, weighted_jacobian, beta, status, code, evaluations,
+                   limit)
+
+
+def _weighted_problem(
+    function: ModelFunction, jacobian: JacobianFunction, x: FloatArray, y: FloatArray, root_w: FloatArray
+) -> tuple[Callable[[FloatArray], FloatArray], Callable[[FloatArray], FloatArray]]:
+    """The weighted residuals √wᵢ·(f(xᵢ; β) − yᵢ) and their Jacobian, as functions of β."""
+
+    # Called only inside np.errstate(all="ignore") (around MINPACK and the Gauss–Newton steps), so
+    # that an overflow on the way is not reported as an error: one context for all evaluations.
+    def residuals(beta: FloatArray) -> FloatArray:
+        r = root_w * (function(x, beta) - y)
+        # A non-finite residual makes MINPACK wander; a huge finite one makes it step back instead.
+        finite = np.isfinite(r)
+        return r if finite.all() else np.where(finite, r, 1e150)
+
+    def weighted_jacobian(beta: FloatArray) -> FloatArray:
+        j = root_w[:, None] * jacobian(x, beta)
+        finite = np.isfinite(j)
+        return j if finite.all() else np.where(finite, j, 0.0)
+
+    return residuals, weighted_jacobian
+
+
+def _finish(
+    function: ModelFunction, jacobian: JacobianFunction, x: FloatArray, y: FloatArray, root_w: FloatArray,
+    residuals: Callable[[FloatArray], FloatArray], weighted_jacobian: Callable[[FloatArray], FloatArray],
+    beta: FloatArray, status: int, code: int, evaluations: int, limit: int,
+) -> NonlinearFit:
+    """The fit's record from the point MINPACK reached, polished by :func:`_refine` when it converged."""
+    n, p = y.size, beta.size
     svd = None
     if status > 0:
-        beta, extra, svd = _refine(residuals, weighted_jacobian, beta)
+        with np.errstate(all="ignore"):
+            beta, extra, svd = _refine(residuals, weighted_jacobian, beta)
         evaluations += extra
     with np.errstate(all="ignore"):
         fitted = function(x, beta)
@@ -219,19 +241,26 @@ def _refine(
         r_trial = residuals(trial)
         j_trial = jacobian(trial)
         evaluations += 1
-        u_t, s_t, vt_t, scale_t = _scaled_svd(j_trial)
-        gradient_trial = float(np.linalg.norm((j_trial / scale_t).T @ r_trial))
+        scale_t = _column_scale(j_trial)
+        scaled_t = j_trial / scale_t
+        gradient_trial = float(np.linalg.norm(scaled_t.T @ r_trial))
         if not gradient_trial < gradient:
-            break
+            break  # the trial is not kept: its SVD is never needed
         beta, r, gradient = trial, r_trial, gradient_trial
-        u, s, vt, scale = u_t, s_t, vt_t, scale_t
+        u, s, vt = np.linalg.svd(scaled_t, full_matrices=False)
+        scale = scale_t
     return beta, evaluations, (u, s, vt, scale)
+
+
+def _column_scale(j: FloatArray) -> FloatArray:
+    """The column norms of J (1 for a column of zeros)."""
+    scale = np.sqrt(np.sum(j * j, axis=0))
+    return np.where(scale > 0, scale, 1.0)
 
 
 def _scaled_svd(j: FloatArray) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
     """SVD of J with its columns scaled to unit length: J·D⁻¹ = U·diag(s)·Vᵀ, D = column norms."""
-    scale = np.sqrt(np.sum(j * j, axis=0))
-    scale = np.where(scale > 0, scale, 1.0)
+    scale = _column_scale(j)
     u, s, vt = np.linalg.svd(j / scale, full_matrices=False)
     return u, s, vt, scale
 
