@@ -48,6 +48,7 @@ or infinite studentized residuals.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import lru_cache
 from enum import Enum
 
 import numpy as np
@@ -160,10 +161,7 @@ def measure_influence(
         external = np.where(full | (df <= 1), np.nan, 0.0)
         cooks = np.where(full, np.nan, 0.0)
     if df > 1:
-        from scipy import special  # loaded on first use: importing the engine stays light
-
-        studentized_threshold = float(special.stdtrit(df - 1, 1.0 - OUTLIER_ALPHA / (2 * n)))
-        cooks_threshold = float(special.fdtri(p, df, COOKS_QUANTILE))
+        studentized_threshold, cooks_threshold = _thresholds(n, p)
         influence_thresholds = influence_limit(leverage, p, n)
     else:
         studentized_threshold = cooks_threshold = float("nan")
@@ -191,6 +189,18 @@ def measure_influence(
         influence_thresholds=frozen(np.asarray(influence_thresholds, dtype=float)),
         notes=notes,
     )
+
+
+@lru_cache(maxsize=256)
+def _thresholds(n: int, p: int) -> tuple[float, float]:
+    """The Bonferroni outlier limit t(1 − α₁/(2n); n − p − 1) and the median of F(p, n − p), for n − p > 1.
+
+    They depend on n and p alone, so the candidates of a model screen share them."""
+    from scipy import special  # loaded on first use: importing the engine stays light
+
+    df = n - p
+    return (float(special.stdtrit(df - 1, 1.0 - OUTLIER_ALPHA / (2 * n))),
+            float(special.fdtri(p, df, COOKS_QUANTILE)))
 
 
 def influence_limit(leverage: FloatArray, n_parameters: int, n_standards: int) -> FloatArray:

@@ -44,15 +44,19 @@ def solve_weighted(design: FloatArray, response: FloatArray, weights: FloatArray
     """Solve the weighted least-squares problem for ``design`` (n, p) and ``response`` (n,)."""
     root_w = np.sqrt(weights)
     q, r = np.linalg.qr(design * root_w[:, None], mode="reduced")
-    diagonal = np.abs(np.diag(r))
-    if diagonal.min() <= RANK_TOLERANCE * diagonal.max():
+    # R is at most 3 × 3 here: its few numbers are worked as Python floats, which costs less than
+    # the call overhead of the numpy operations on arrays of one to three elements
+    rows = r.tolist()
+    p = len(rows)
+    diagonal = [abs(rows[i][i]) for i in range(p)]
+    if min(diagonal) <= RANK_TOLERANCE * max(diagonal):
         raise CalibrationInputError(
             "the standards cannot determine this model: its terms are not independent over these "
             "concentrations (too few distinct levels, or levels too close together)."
         )
-    qty = q.T @ (response * root_w)
-    r_inverse = _upper_triangular_inverse(r)
-    coefficients = _back_substitute(r, qty)
+    qty = (q.T @ (response * root_w)).tolist()
+    r_inverse = np.array([_back_substitute(rows, [1.0 if i == j else 0.0 for i in range(p)]) for j in range(p)]).T
+    coefficients = np.array(_back_substitute(rows, qty))
     fitted = design @ coefficients
     weighted_residuals = root_w * (response - fitted)
     return LeastSquaresSolution(
@@ -65,19 +69,14 @@ def solve_weighted(design: FloatArray, response: FloatArray, weights: FloatArray
     )
 
 
-def _back_substitute(r: FloatArray, b: FloatArray) -> FloatArray:
-    """Solve R·a = b for upper-triangular R by back substitution (p is 1 to 3 here)."""
-    p = r.shape[0]
-    a = np.zeros(p)
+def _back_substitute(r: list[list[float]], b: list[float]) -> list[float]:
+    """Solve R·a = b for upper-triangular R (as nested lists) by back substitution (p is 1 to 3 here)."""
+    p = len(r)
+    a = [0.0] * p
     for i in range(p - 1, -1, -1):
-        a[i] = (b[i] - r[i, i + 1:] @ a[i + 1:]) / r[i, i]
+        row = r[i]
+        total = 0.0
+        for k in range(i + 1, p):
+            total += row[k] * a[k]
+        a[i] = (b[i] - total) / row[i]
     return a
-
-
-def _upper_triangular_inverse(r: FloatArray) -> FloatArray:
-    p = r.shape[0]
-    inverse = np.zeros((p, p))
-    identity = np.eye(p)
-    for j in range(p):
-        inverse[:, j] = _back_substitute(r, identity[:, j])
-    return inverse
