@@ -7,7 +7,7 @@ Problem
 Method
     Levenberg–Marquardt with a trust region and scaling by the columns of the Jacobian (Moré, "The
     Levenberg–Marquardt algorithm: implementation and theory", Lecture Notes in Mathematics 630,
-    1978), as implemented by MINPACK's ``lmder`` (called through ``scipy.optimize.leastsq``).
+    1978), as implemented by MINPACK's ``lmder`` (scipy's binding of it, as ``scipy.optimize.leastsq`` calls it).
     The model gives its own analytic Jacobian ∂f/∂β; the fitter never differences numerically.
     Tolerances on the relative change of S, of β and on the gradient are 1e-15, so the fit stops
     only when double precision can improve nothing more.
@@ -117,8 +117,14 @@ def fit_nonlinear(
     weights: FloatArray | None = None,
     *,
     max_evaluations: int | None = None,
+    problem: Callable[[FloatArray, FloatArray, FloatArray], tuple[Callable[[FloatArray], FloatArray],
+                                                                    Callable[[FloatArray], FloatArray]]] | None = None,
 ) -> NonlinearFit:
     """Fit ``function`` to (x, y) from ``start`` by weighted least squares (see the module docstring).
+
+    ``problem`` (x, y, √w) → (weighted residuals, their Jacobian) as functions of β, when the curve
+    gives a cheaper form of √w·(f − y) and √w·∂f/∂β than ``function`` and ``jacobian`` weighted here
+    (:attr:`curvewright.core.curve_families.CurveFamily.weighted_problem`); it must give the same numbers.
 
     Never raises for a fit that fails to converge: the result says so in ``converged`` and ``reason``,
     and the caller decides what to tell the analyst.
@@ -131,7 +137,9 @@ def fit_nonlinear(
     root_w = np.sqrt(w)
     limit = max_evaluations or MAX_EVALUATIONS_PER_PARAMETER * (p + 1)
 
-    residuals, weighted_jacobian = _weighted_problem(function, jacobian, x, y, root_w)
+    residuals, weighted_jacobian = (
+        _weighted_problem(function, jacobian, x, y, root_w) if problem is None else _finite(*problem(x, y, root_w))
+    )
     if not np.all(np.isfinite(beta0)):
         return _failed(function, jacobian, x, y, beta0, root_w, 0, "the start values are not all finite numbers")
     if n < p:
@@ -142,10 +150,7 @@ def fit_nonlinear(
         # factor 100); the same iterations as least_squares(method="lm", x_scale="jac"), without its
         # per-call set-up, which costs more than the fit on a few dozen standards.
         with np.errstate(all="ignore"):
-            beta, _, info, _, code = optimize.leastsq(
-                residuals, beta0, Dfun=weighted_jacobian, full_output=True, col_deriv=False,
-                ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, maxfev=limit, factor=100.0, diag=None,
-            )
+            beta, info, code = _lmder(residuals, weighted_jacobian, beta0, limit)
     except (ValueError, TypeError, np.linalg.LinAlgError) as exc:  # improper input reported by MINPACK
         return _failed(function, jacobian, x, y, beta0, root_w, 0, f"the fit could not start ({exc})")
     status = _STATUS.get(int(code), -1)
@@ -155,25 +160,80 @@ def fit_nonlinear(
                    limit)
 
 
+def _lmder(
+    residuals: Callable[[FloatArray], FloatArray], jacobian: Callable[[FloatArray], FloatArray],
+    beta0: FloatArray, limit: int,
+) -> tuple[FloatArray, dict, int]:  # type: ignore[type-arg]
+    """MINPACK's lmder from ``beta0``: the parameters reached, the information record (``nfev``…) and
+    MINPACK's info code.
+
+    scipy's binding of lmder is called directly where it is present: ``leastsq`` around it would
+    evaluate the residuals and the Jacobian once more to check their shapes (ours are (n,) and
+    (n, p) by construction), and invert R for a covariance that is not used here. The iterations
+    are MINPACK's own either way, with the same arguments, so the results are the same.
+    """
+    binding = _minpack_lmder()
+    if binding is None:
+        beta, _, info, _, code = optimize.leastsq(
+            residuals, beta0, Dfun=jacobian, full_output=True, col_deriv=False,
+            ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, maxfev=limit, factor=100.0, diag=None,
+        )
+        return beta, info, int(code)
+    # lmder(fcn, Dfun, x0, args, full_output, col_deriv, ftol, xtol, gtol, maxfev, factor, diag)
+    beta, info, code = binding(residuals, jacobian, beta0, (), 1, 0, TOLERANCE, TOLERANCE, TOLERANCE, limit, 100.0, None)
+    return beta, info, int(code)
+
+
+_BINDING: list[Callable[..., tuple[FloatArray, dict, int]] | None] = []  # type: ignore[type-arg]
+
+
+def _minpack_lmder() -> Callable[..., tuple[FloatArray, dict, int]] | None:  # type: ignore[type-arg]
+    """scipy's compiled lmder, or None where this scipy does not expose it under that name."""
+    if not _BINDING:
+        try:
+            from scipy.optimize import _minpack  # type: ignore[attr-defined]
+
+            _BINDING.append(getattr(_minpack, "_lmder", None))
+        except ImportError:
+            _BINDING.append(None)
+    return _BINDING[0]
+
+
 def _weighted_problem(
     function: ModelFunction, jacobian: JacobianFunction, x: FloatArray, y: FloatArray, root_w: FloatArray
 ) -> tuple[Callable[[FloatArray], FloatArray], Callable[[FloatArray], FloatArray]]:
     """The weighted residuals √wᵢ·(f(xᵢ; β) − yᵢ) and their Jacobian, as functions of β."""
 
-    # Called only inside np.errstate(all="ignore") (around MINPACK and the Gauss–Newton steps), so
-    # that an overflow on the way is not reported as an error: one context for all evaluations.
-    def residuals(beta: FloatArray) -> FloatArray:
-        r = root_w * (function(x, beta) - y)
+    return _finite(lambda beta: root_w * (function(x, beta) - y), lambda beta: root_w[:, None] * jacobian(x, beta))
+
+
+def _finite(
+    residuals: Callable[[FloatArray], FloatArray], jacobian: Callable[[FloatArray], FloatArray]
+) -> tuple[Callable[[FloatArray], FloatArray], Callable[[FloatArray], FloatArray]]:
+    """The weighted residuals and Jacobian with their non-finite values replaced (see below).
+
+    Called only inside np.errstate(all="ignore") (around MINPACK and the Gauss–Newton steps), so
+    that an overflow on the way is not reported as an error: one context for all evaluations. A
+    finite sum means every term is finite (an infinity or NaN anywhere makes it infinite or NaN);
+    only when it is not are the values looked at one by one.
+    """
+
+    def finite_residuals(beta: FloatArray) -> FloatArray:
+        r = residuals(beta)
+        if np.isfinite(np.add.reduce(r)):
+            return r
         # A non-finite residual makes MINPACK wander; a huge finite one makes it step back instead.
         finite = np.isfinite(r)
         return r if finite.all() else np.where(finite, r, 1e150)
 
-    def weighted_jacobian(beta: FloatArray) -> FloatArray:
-        j = root_w[:, None] * jacobian(x, beta)
+    def finite_jacobian(beta: FloatArray) -> FloatArray:
+        j = jacobian(beta)
+        if np.isfinite(np.add.reduce(j, axis=None)):
+            return j
         finite = np.isfinite(j)
         return j if finite.all() else np.where(finite, j, 0.0)
 
-    return residuals, weighted_jacobian
+    return finite_residuals, finite_jacobian
 
 
 def _finish(

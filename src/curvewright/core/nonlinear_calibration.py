@@ -286,7 +286,7 @@ class _MeanFitter:
         family = self.family
         fit = None
         if self.start is not None:
-            fit = fit_nonlinear(family.function, family.jacobian, x, y, self.start, w)
+            fit = fit_nonlinear(family.function, family.jacobian, x, y, self.start, w, problem=family.weighted_problem)
             if not fit.converged or _implausible(family, fit):
                 fit = None
         if fit is None:
@@ -352,7 +352,7 @@ def _best_fit(family: CurveFamily, x: FloatArray, y: FloatArray, w: FloatArray) 
     best: NonlinearFit | None = None
     failures: list[str] = []
     for start in starts:
-        result = fit_nonlinear(family.function, family.jacobian, x, y, start, w)
+        result = fit_nonlinear(family.function, family.jacobian, x, y, start, w, problem=family.weighted_problem)
         problem = _implausible(family, result) if result.converged else result.reason
         if problem:
             failures.append(problem)
