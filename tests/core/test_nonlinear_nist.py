@@ -171,3 +171,21 @@ def test_weights_enter_as_in_the_weighted_sum_of_squares() -> None:
     repeated = fit_nonlinear(rat42, rat42_jac, np.repeat(x, w.astype(int)), np.repeat(y, w.astype(int)), data["start2"])
     np.testing.assert_allclose(weighted.parameters, repeated.parameters, rtol=1e-9)
     assert weighted.sse == pytest.approx(repeated.sse, rel=1e-9)
+
+
+def test_the_fitters_svd_is_numpys_to_the_last_bit_and_refuses_as_numpy_does() -> None:
+    # numpy.linalg.svd is the reference: the fitter calls the same LAPACK routine through numpy's
+    # binding, so U, s and Vᵀ must be the same numbers; a matrix it cannot decompose raises as numpy does.
+    from curvewright.core.nonlinear import _thin_svd
+
+    rng = np.random.default_rng(11)
+    for n, p in ((6, 2), (24, 2), (24, 4), (40, 5)):
+        a = rng.standard_normal((n, p)) * 10.0 ** rng.uniform(-3, 3, p)
+        for quiet in (False, True):
+            with np.errstate(invalid="ignore"):
+                got = _thin_svd(a, quiet)
+            for mine, numpys in zip(got, np.linalg.svd(a, full_matrices=False), strict=True):
+                np.testing.assert_array_equal(mine, numpys)
+    bad = np.full((5, 2), np.nan)
+    with pytest.raises(np.linalg.LinAlgError):
+        _thin_svd(bad)

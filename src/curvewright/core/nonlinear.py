@@ -27,6 +27,7 @@ Convergence
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
@@ -291,8 +292,8 @@ def _refine(
     """
     r = residuals(beta)
     j = jacobian(beta)
-    u, s, vt, scale = _scaled_svd(j)
-    gradient = float(np.linalg.norm((j / scale).T @ r))
+    u, s, vt, scale = _scaled_svd(j, quiet=True)
+    gradient = _norm((j / scale).T @ r)
     evaluations = 0
     for _ in range(_REFINE_STEPS):
         if s[-1] <= RANK_TOLERANCE * s[0] or gradient == 0.0:
@@ -303,26 +304,65 @@ def _refine(
         evaluations += 1
         scale_t = _column_scale(j_trial)
         scaled_t = j_trial / scale_t
-        gradient_trial = float(np.linalg.norm(scaled_t.T @ r_trial))
+        gradient_trial = _norm(scaled_t.T @ r_trial)
         if not gradient_trial < gradient:
             break  # the trial is not kept: its SVD is never needed
         beta, r, gradient = trial, r_trial, gradient_trial
-        u, s, vt = np.linalg.svd(scaled_t, full_matrices=False)
+        u, s, vt = _thin_svd(scaled_t, quiet=True)
         scale = scale_t
     return beta, evaluations, (u, s, vt, scale)
 
 
+def _norm(v: FloatArray) -> float:
+    """‖v‖₂ of a vector as numpy.linalg.norm takes it (√(v·v)), without its argument handling."""
+    return math.sqrt(float(v @ v))
+
+
 def _column_scale(j: FloatArray) -> FloatArray:
     """The column norms of J (1 for a column of zeros)."""
-    scale = np.sqrt(np.sum(j * j, axis=0))
+    scale = np.sqrt(np.add.reduce(j * j, axis=0))
     return np.where(scale > 0, scale, 1.0)
 
 
-def _scaled_svd(j: FloatArray) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
+def _scaled_svd(j: FloatArray, quiet: bool = False) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
     """SVD of J with its columns scaled to unit length: J·D⁻¹ = U·diag(s)·Vᵀ, D = column norms."""
     scale = _column_scale(j)
-    u, s, vt = np.linalg.svd(j / scale, full_matrices=False)
+    u, s, vt = _thin_svd(j / scale, quiet)
     return u, s, vt, scale
+
+
+def _thin_svd(a: FloatArray, quiet: bool = False) -> tuple[FloatArray, FloatArray, FloatArray]:
+    """numpy.linalg.svd(a, full_matrices=False) of a real matrix: the same LAPACK routine through
+    numpy's own binding, without the wrapper's checks and error-state set-up, which cost more than
+    the decomposition of a few dozen rows by two to five columns. Where the routine does not
+    converge (its values are not finite) the answer is numpy.linalg.svd's, which raises.
+    ``quiet``: the caller runs inside np.errstate(invalid="ignore") already (the Gauss–Newton steps)."""
+    binding = _svd_binding()
+    if binding is not None:
+        if quiet:
+            u, s, vt = binding(a, signature="d->ddd")
+        else:
+            with np.errstate(invalid="ignore"):  # a failure is answered by numpy.linalg.svd below
+                u, s, vt = binding(a, signature="d->ddd")
+        if np.isfinite(np.add.reduce(s)):
+            return u, s, vt
+    u, s, vt = np.linalg.svd(a, full_matrices=False)
+    return u, s, vt
+
+
+_SVD: list[Callable[..., tuple[FloatArray, FloatArray, FloatArray]] | None] = []
+
+
+def _svd_binding() -> Callable[..., tuple[FloatArray, FloatArray, FloatArray]] | None:
+    """numpy's compiled thin SVD (what numpy.linalg.svd calls), or None where it is not found."""
+    if not _SVD:
+        try:
+            from numpy.linalg import _umath_linalg  # type: ignore[attr-defined]
+
+            _SVD.append(getattr(_umath_linalg, "svd_s", None))
+        except ImportError:
+            _SVD.append(None)
+    return _SVD[0]
 
 
 def _result(
