@@ -191,10 +191,10 @@ def fit(
         covariance = transform @ z_cov @ transform.T
     _refuse_unrepresentable(model, x, y, basis, coefficients, covariance, residual_sd)
     w = weights.weights
-    mean_w = float(np.sum(w * y) / np.sum(w))
-    sst = float(np.sum(w * (y - mean_w) ** 2))
+    mean_w = float(np.add.reduce(w * y) / np.add.reduce(w))
+    sst = float(np.add.reduce(w * (y - mean_w) ** 2))
     adjust = (x.size - 1) / df
-    if sst <= x.size * (ROUNDOFF * float(np.max(np.abs(root_wy)))) ** 2:
+    if sst <= x.size * (ROUNDOFF * float(np.maximum.reduce(np.abs(root_wy)))) ** 2:
         r_squared = 0.0  # the responses do not vary: nothing to explain
     else:
         r_squared = 1.0 - float(clean @ clean) / sst

@@ -139,7 +139,7 @@ def measure_influence(
     p = n_parameters
     df = n - p
     full = leverage >= FULL_LEVERAGE
-    scale = float(np.max(np.abs(weighted_response))) if weighted_response is not None else 0.0
+    scale = float(np.maximum.reduce(np.abs(weighted_response))) if weighted_response is not None else 0.0
     floor = ROUNDOFF * scale
     e = np.where(np.abs(weighted_residuals) <= floor, 0.0, weighted_residuals)
     sse = float(e @ e)

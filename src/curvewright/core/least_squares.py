@@ -24,7 +24,7 @@ ROUNDOFF = 1000.0 * np.finfo(float).eps
 
 def without_roundoff(weighted_residuals: FloatArray, weighted_response: FloatArray) -> FloatArray:
     """``weighted_residuals`` with those at the level of round-off set to exactly zero."""
-    floor = ROUNDOFF * float(np.max(np.abs(weighted_response))) if weighted_response.size else 0.0
+    floor = ROUNDOFF * float(np.maximum.reduce(np.abs(weighted_response))) if weighted_response.size else 0.0
     return np.where(np.abs(weighted_residuals) <= floor, 0.0, weighted_residuals)
 
 
@@ -43,7 +43,7 @@ class LeastSquaresSolution:
 def solve_weighted(design: FloatArray, response: FloatArray, weights: FloatArray) -> LeastSquaresSolution:
     """Solve the weighted least-squares problem for ``design`` (n, p) and ``response`` (n,)."""
     root_w = np.sqrt(weights)
-    q, r = np.linalg.qr(design * root_w[:, None], mode="reduced")
+    q, r = _thin_qr(design * root_w[:, None])
     # R is at most 3 × 3 here: its few numbers are worked as Python floats, which costs less than
     # the call overhead of the numpy operations on arrays of one to three elements
     rows = r.tolist()
@@ -67,6 +67,40 @@ def solve_weighted(design: FloatArray, response: FloatArray, weights: FloatArray
         leverage=np.einsum("ij,ij->i", q, q),
         sse=float(weighted_residuals @ weighted_residuals),
     )
+
+
+def _thin_qr(a: FloatArray) -> tuple[FloatArray, FloatArray]:
+    """numpy.linalg.qr(a, mode="reduced") of a real n × p matrix (n ≥ p), whose rows R's upper
+    triangle is read from: the same LAPACK routines (Householder QR, then Q formed from the
+    reflectors) through numpy's own binding, without the wrapper's checks and error-state set-up.
+    Where they give numbers that are not finite, the answer is numpy.linalg.qr's, which raises."""
+    qr_raw, qr_reduced = _qr_bindings()
+    if qr_raw is not None and qr_reduced is not None:
+        packed = np.array(a, dtype=np.float64, order="C")  # overwritten by R and the reflectors
+        with np.errstate(invalid="ignore"):  # a failure is answered by numpy.linalg.qr below
+            tau = qr_raw(packed, signature="d->d")
+            q = qr_reduced(packed, tau, signature="dd->d")
+        p = packed.shape[1]
+        r = np.triu(packed[:p, :])
+        if np.isfinite(np.add.reduce(q, axis=None)) and np.isfinite(np.add.reduce(r, axis=None)):
+            return q, r
+    q, r = np.linalg.qr(a, mode="reduced")
+    return q, r
+
+
+_QR: list[tuple[object, object]] = []
+
+
+def _qr_bindings() -> tuple[object, object]:
+    """numpy's compiled QR steps (what numpy.linalg.qr calls), or Nones where they are not found."""
+    if not _QR:
+        try:
+            from numpy.linalg import _umath_linalg  # type: ignore[attr-defined]
+
+            _QR.append((getattr(_umath_linalg, "qr_r_raw", None), getattr(_umath_linalg, "qr_reduced", None)))
+        except ImportError:
+            _QR.append((None, None))
+    return _QR[0]
 
 
 def _back_substitute(r: list[list[float]], b: list[float]) -> list[float]:

@@ -205,10 +205,10 @@ def fit_nonlinear_curve(
     residual_sd = float(np.sqrt((clean @ clean) / df))
     covariance = residual_sd**2 * fit.unscaled_covariance
     coefficients = fit.parameters.copy()
-    mean_w = float(np.sum(w * y) / np.sum(w))
-    sst = float(np.sum(w * (y - mean_w) ** 2))
+    mean_w = float(np.add.reduce(w * y) / np.add.reduce(w))
+    sst = float(np.add.reduce(w * (y - mean_w) ** 2))
     sse = float(clean @ clean)
-    if sst <= x.size * (ROUNDOFF * float(np.max(np.abs(root_wy)))) ** 2:
+    if sst <= x.size * (ROUNDOFF * float(np.maximum.reduce(np.abs(root_wy)))) ** 2:
         r_squared = 0.0
     else:
         r_squared = 1.0 - sse / sst
@@ -384,7 +384,7 @@ def _implausible(family: CurveFamily, result: NonlinearFit) -> str | None:
 
 def _regression_test(fitted: FloatArray, y: FloatArray, sst: float, sse: float, p: int, df: int) -> RegressionTest:
     dfs = (p - 1, df)
-    if float(np.ptp(fitted)) <= ROUNDOFF * float(np.max(np.abs(y))):
+    if float(np.ptp(fitted)) <= ROUNDOFF * float(np.maximum.reduce(np.abs(y))):
         return RegressionTest(0.0, dfs, 1.0)
     if sse == 0.0:
         return RegressionTest(float("inf"), dfs, 0.0)
