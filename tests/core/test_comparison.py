@@ -6,6 +6,7 @@ import numpy as np
 import pytest
 
 import curvewright as cw
+from curvewright.core.errors import CalibrationInputError
 from tests.conftest import load_strd
 
 
@@ -218,3 +219,47 @@ def test_the_pooled_variance_function_matches_its_likelihood() -> None:
     assert evidence.sd_power == pytest.approx(best.x[1], abs=1e-5)
     null = optimize.minimize_scalar(lambda v: minus_log_likelihood(np.array([v, 0.0])))
     assert evidence.pooled.statistic == pytest.approx(2 * (null.fun - best.fun), rel=1e-6)
+
+
+def _same(a: object, b: object) -> bool:
+    """Equal to the last bit, NaN where NaN (arrays and floats), or equal (anything else)."""
+    if isinstance(a, np.ndarray) or isinstance(b, np.ndarray):
+        a, b = np.asarray(a), np.asarray(b)
+        return a.shape == b.shape and a.dtype == b.dtype and a.tobytes() == b.tobytes()
+    if isinstance(a, float) and isinstance(b, float):
+        return np.float64(a).tobytes() == np.float64(b).tobytes()
+    return bool(a == b)
+
+
+@pytest.mark.parametrize("case", range(8))
+def test_the_polynomials_fitted_together_are_the_fits_made_one_by_one(case: int) -> None:
+    # compare() fits the line, the quadratic and the line through the origin under all weightings
+    # together; every candidate must be the calibration fit() gives for it alone, to the last bit,
+    # and every candidate it skips must carry the reason fit() gives (a blank under 1/x, 1/s²
+    # without replicates…). Invented standards of several shapes.
+    rng = np.random.default_rng(100 + case)
+    levels = np.geomspace(0.5, 0.5 * 10 ** rng.uniform(1, 3), int(rng.integers(5, 9)))
+    x = np.repeat(levels, int(rng.integers(1, 4)))
+    if case % 3 == 0:
+        x = np.concatenate([[0.0, 0.0], x])  # blanks: the 1/x-type weightings cannot be made
+    y = (0.03 + 0.9 * x - 0.0005 * case * x**2) * (1 + 0.03 * rng.standard_normal(x.size)) + 0.01 * rng.standard_normal(x.size)
+    result = cw.compare(x, y, include_proportional=True)
+    fitted = 0
+    for model in ("linear", "quadratic", "proportional"):
+        for weighting in ("none", "1/x", "1/x^2", "1/y", "1/y^2", "1/s^2"):
+            try:
+                alone = cw.fit(x, y, model, weighting)
+            except CalibrationInputError as exc:
+                assert any(s.model.value == model and s.weighting.value == weighting and s.reason == str(exc)
+                           for s in result.skipped), (model, weighting, str(exc))
+                continue
+            together = result.candidate(model, weighting).calibration
+            fitted += 1
+            for name in ("coefficients", "covariance", "standard_errors", "residual_sd", "r_squared",
+                         "adjusted_r_squared", "fitted", "residuals", "back_calculated", "relative_error",
+                         "leverage", "studentized_residuals", "cooks_distance", "influence_flags", "notes"):
+                assert _same(getattr(together, name), getattr(alone, name)), (model, weighting, name)
+            assert together.lack_of_fit == alone.lack_of_fit
+            assert together.regression == alone.regression
+            assert _same(together.influence.influence_thresholds, alone.influence.influence_thresholds)
+    assert fitted >= 3  # the unweighted and 1/y-type fits of the line and the quadratic at least

@@ -44,6 +44,30 @@ def solve_weighted(design: FloatArray, response: FloatArray, weights: FloatArray
     """Solve the weighted least-squares problem for ``design`` (n, p) and ``response`` (n,)."""
     root_w = np.sqrt(weights)
     q, r = _thin_qr(design * root_w[:, None])
+    return _solution(q, r, design, response, root_w)
+
+
+def solve_weighted_stack(
+    designs: FloatArray, response: FloatArray, weights: FloatArray
+) -> list[LeastSquaresSolution | CalibrationInputError]:
+    """:func:`solve_weighted` of k problems on the same responses: ``designs`` (k, n, p) and
+    ``weights`` (k, n), the k QR decompositions taken in one call. Each entry is the solution, or the
+    error :func:`solve_weighted` would raise for that problem; the numbers are the same as k calls."""
+    root_w = np.sqrt(weights)
+    qs, rs = _thin_qr(designs * root_w[:, :, None])
+    out: list[LeastSquaresSolution | CalibrationInputError] = []
+    for j in range(designs.shape[0]):
+        try:
+            out.append(_solution(qs[j], rs[j], designs[j], response, root_w[j]))
+        except CalibrationInputError as exc:
+            out.append(exc)
+    return out
+
+
+def _solution(
+    q: FloatArray, r: FloatArray, design: FloatArray, response: FloatArray, root_w: FloatArray
+) -> LeastSquaresSolution:
+    """The solution from the QR decomposition of the whitened design √w·Z = Q·R."""
     # R is at most 3 × 3 here: its few numbers are worked as Python floats, which costs less than
     # the call overhead of the numpy operations on arrays of one to three elements
     rows = r.tolist()
@@ -70,18 +94,18 @@ def solve_weighted(design: FloatArray, response: FloatArray, weights: FloatArray
 
 
 def _thin_qr(a: FloatArray) -> tuple[FloatArray, FloatArray]:
-    """numpy.linalg.qr(a, mode="reduced") of a real n × p matrix (n ≥ p), whose rows R's upper
-    triangle is read from: the same LAPACK routines (Householder QR, then Q formed from the
-    reflectors) through numpy's own binding, without the wrapper's checks and error-state set-up.
-    Where they give numbers that are not finite, the answer is numpy.linalg.qr's, which raises."""
+    """numpy.linalg.qr(a, mode="reduced") of a real n × p matrix (n ≥ p), or of a stack of them
+    (k, n, p), each decomposed on its own: the same LAPACK routines (Householder QR, then Q formed
+    from the reflectors) through numpy's own binding, without the wrapper's checks and error-state
+    set-up. Where they give numbers that are not finite, the answer is numpy.linalg.qr's."""
     qr_raw, qr_reduced = _qr_bindings()
     if qr_raw is not None and qr_reduced is not None:
         packed = np.array(a, dtype=np.float64, order="C")  # overwritten by R and the reflectors
         with np.errstate(invalid="ignore"):  # a failure is answered by numpy.linalg.qr below
             tau = qr_raw(packed, signature="d->d")
             q = qr_reduced(packed, tau, signature="dd->d")
-        p = packed.shape[1]
-        r = np.triu(packed[:p, :])
+        p = packed.shape[-1]
+        r = np.triu(packed[..., :p, :])
         if np.isfinite(np.add.reduce(q, axis=None)) and np.isfinite(np.add.reduce(r, axis=None)):
             return q, r
     q, r = np.linalg.qr(a, mode="reduced")
