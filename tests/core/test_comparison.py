@@ -263,3 +263,32 @@ def test_the_polynomials_fitted_together_are_the_fits_made_one_by_one(case: int)
             assert together.regression == alone.regression
             assert _same(together.influence.influence_thresholds, alone.influence.influence_thresholds)
     assert fitted >= 3  # the unweighted and 1/y-type fits of the line and the quadratic at least
+
+
+@pytest.mark.parametrize("case", range(4))
+def test_the_power_curves_of_a_screen_are_the_fits_made_one_by_one(case: int) -> None:
+    # compare() checks the standards and finds the power curve's start values once for all its
+    # weightings; every power-curve candidate must be fit() alone to the last bit, and every one it
+    # skips must carry fit()'s reason. Invented standards over two to three decades, every weighting
+    # (the variance functions too).
+    rng = np.random.default_rng(200 + case)
+    x = np.repeat(np.geomspace(0.2, 0.2 * 10 ** rng.uniform(2, 3), int(rng.integers(5, 8))), int(rng.integers(2, 4)))
+    y = 1.3 * x ** rng.uniform(0.8, 1.1) * (1 + 0.04 * rng.standard_normal(x.size))
+    weightings = tuple(w.value for w in cw.Weighting)
+    result = cw.compare(x, y, models=("linear", "power"), weightings=weightings)
+    fitted = 0
+    for weighting in weightings:
+        try:
+            alone = cw.fit(x, y, "power", weighting)
+        except CalibrationInputError as exc:
+            assert any(s.model.value == "power" and s.weighting.value == weighting and s.reason == str(exc)
+                       for s in result.skipped), (weighting, str(exc))
+            continue
+        together = result.candidate("power", weighting).calibration
+        fitted += 1
+        for name in ("coefficients", "covariance", "standard_errors", "residual_sd", "adjusted_r_squared",
+                     "fitted", "back_calculated", "leverage", "studentized_residuals", "cooks_distance",
+                     "influence_flags", "notes"):
+            assert _same(getattr(together, name), getattr(alone, name)), (weighting, name)
+        assert together.lack_of_fit == alone.lack_of_fit
+    assert fitted >= 4

@@ -286,6 +286,16 @@ def compare(
         ), strict=True))
         for m in model_list if m.is_polynomial and m not in added
     }
+    if Model.POWER in model_list:
+        # the power curve under every weighting it takes, the standards checked and its starts found once
+        from .nonlinear_calibration import fit_curve_weightings  # loaded only when a curve is fitted
+
+        power_weightings = [w for w in weighting_list if Model.POWER not in added or w in NONLINEAR_WEIGHTINGS]
+        together[Model.POWER] = dict(zip(power_weightings, fit_curve_weightings(
+            inner_x, inner_y, Model.POWER, power_weightings,
+            response_sd=[sd if w is Weighting.INVERSE_S2 else None for w in power_weightings],
+            level_tolerance=level_tolerance, levels=inner_levels,
+        ), strict=True))
     for w in weighting_list:
         for m in model_list:
             if m in added and w not in NONLINEAR_WEIGHTINGS:
