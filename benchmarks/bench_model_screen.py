@@ -21,9 +21,10 @@ change of the sum of squares, which fixes the parameters to about 1e-10 relative
 polishes the minimum with Gauss–Newton steps on the gradient), and a standard lying close to the
 curve has a residual that is a small difference of near-equal numbers, so its studentized residual
 and Cook's distance carry that 1e-10 magnified about a thousandfold (up to 1.1e-7 relative seen). The three are timed in interleaved rounds after a warm-up. Beside the
-ratio, the same rounds time the twelve polynomial candidates alone (the engine's ``fit`` with the
-shared level grouping, as ``compare`` calls it, against the numpy peer's twelve) and the engine's six
-power-curve fits alone, to show where the engine's time goes.
+ratio, the same rounds time the twelve polynomial candidates alone (the engine's fits of each degree
+under the six weightings together, with the shared level grouping, as ``compare`` makes them, against
+the numpy peer's twelve) and the engine's six power-curve fits alone, to show where the engine's
+time goes; and each side's CPU time.
 
 Run: python benchmarks/bench_model_screen.py [--smoke]
 """
@@ -174,14 +175,24 @@ def _sd_weights_given() -> np.ndarray:
 
 
 def engine_fits(models: tuple[str, ...]):  # type: ignore[no-untyped-def]
-    """The fits of ``models`` under the six weightings, alone (no comparison, no acceptance)."""
+    """The fits of ``models`` under the six weightings as ``compare`` makes them (each model under
+    all weightings together, with the shared level grouping), alone: no comparison, no acceptance."""
+    from curvewright.core.calibration import fit_weightings
+    from curvewright.core.models import Model
+    from curvewright.core.nonlinear_calibration import fit_curve_weightings
+    from curvewright.core.weighting import Weighting
+
     levels = group_levels(X)
     sd = _sd_weights_given()
+    weightings = [Weighting.parse(w) for w in WEIGHTINGS]
+    sds = [sd if w is Weighting.INVERSE_S2 else None for w in weightings]
 
     def run() -> None:
-        for weighting in WEIGHTINGS:
-            for model in models:
-                cw.fit(X, Y, model, weighting, levels=levels, response_sd=sd if weighting == "1/s^2" else None)
+        for model in models:
+            m = Model.parse(model)
+            together = fit_weightings if m.is_polynomial else fit_curve_weightings
+            results = together(X, Y, m, weightings, response_sd=sds, levels=levels)
+            assert not any(isinstance(r, Exception) for r in results), results
 
     return run
 
