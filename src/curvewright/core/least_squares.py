@@ -101,13 +101,17 @@ def _thin_qr(a: FloatArray) -> tuple[FloatArray, FloatArray]:
     qr_raw, qr_reduced = _qr_bindings()
     if qr_raw is not None and qr_reduced is not None:
         packed = np.array(a, dtype=np.float64, order="C")  # overwritten by R and the reflectors
-        with np.errstate(invalid="ignore"):  # a failure is answered by numpy.linalg.qr below
-            tau = qr_raw(packed, signature="d->d")
-            q = qr_reduced(packed, tau, signature="dd->d")
-        p = packed.shape[-1]
-        r = np.triu(packed[..., :p, :])
-        if np.isfinite(np.add.reduce(q, axis=None)) and np.isfinite(np.add.reduce(r, axis=None)):
-            return q, r
+        try:
+            with np.errstate(invalid="ignore"):  # a failure is answered by numpy.linalg.qr below
+                tau = qr_raw(packed, signature="d->d")
+                q = qr_reduced(packed, tau, signature="dd->d")
+        except (TypeError, ValueError):
+            q = None  # a numpy whose bindings are called otherwise: numpy.linalg.qr below
+        if q is not None:
+            p = packed.shape[-1]
+            r = np.triu(packed[..., :p, :])
+            if np.isfinite(np.add.reduce(q, axis=None)) and np.isfinite(np.add.reduce(r, axis=None)):
+                return q, r
     q, r = np.linalg.qr(a, mode="reduced")
     return q, r
 

@@ -174,14 +174,18 @@ def _lmder(
     are MINPACK's own either way, with the same arguments, so the results are the same.
     """
     binding = _minpack_lmder()
-    if binding is None:
-        beta, _, info, _, code = optimize.leastsq(
-            residuals, beta0, Dfun=jacobian, full_output=True, col_deriv=False,
-            ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, maxfev=limit, factor=100.0, diag=None,
-        )
-        return beta, info, int(code)
-    # lmder(fcn, Dfun, x0, args, full_output, col_deriv, ftol, xtol, gtol, maxfev, factor, diag)
-    beta, info, code = binding(residuals, jacobian, beta0, (), 1, 0, TOLERANCE, TOLERANCE, TOLERANCE, limit, 100.0, None)
+    if binding is not None:
+        try:
+            # lmder(fcn, Dfun, x0, args, full_output, col_deriv, ftol, xtol, gtol, maxfev, factor, diag)
+            beta, info, code = binding(residuals, jacobian, beta0, (), 1, 0, TOLERANCE, TOLERANCE, TOLERANCE, limit,
+                                       100.0, None)
+            return beta, info, int(code)
+        except TypeError:
+            pass  # a scipy whose binding takes other arguments: leastsq below (which raises improper input again)
+    beta, _, info, _, code = optimize.leastsq(
+        residuals, beta0, Dfun=jacobian, full_output=True, col_deriv=False,
+        ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, maxfev=limit, factor=100.0, diag=None,
+    )
     return beta, info, int(code)
 
 
@@ -339,11 +343,14 @@ def _thin_svd(a: FloatArray, quiet: bool = False) -> tuple[FloatArray, FloatArra
     ``quiet``: the caller runs inside np.errstate(invalid="ignore") already (the Gauss–Newton steps)."""
     binding = _svd_binding()
     if binding is not None:
-        if quiet:
-            u, s, vt = binding(a, signature="d->ddd")
-        else:
-            with np.errstate(invalid="ignore"):  # a failure is answered by numpy.linalg.svd below
+        try:
+            if quiet:
                 u, s, vt = binding(a, signature="d->ddd")
+            else:
+                with np.errstate(invalid="ignore"):  # a failure is answered by numpy.linalg.svd below
+                    u, s, vt = binding(a, signature="d->ddd")
+        except (TypeError, ValueError):
+            s = np.array([np.nan])  # a numpy whose binding is called otherwise: numpy.linalg.svd below
         if np.isfinite(np.add.reduce(s)):
             return u, s, vt
     u, s, vt = np.linalg.svd(a, full_matrices=False)
