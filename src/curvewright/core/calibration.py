@@ -19,13 +19,13 @@ from .fitted_curve import FittedCurve
 from .influence import Influence, measure_influence, measure_influence_of_fits
 from .inverse import Quantitation, quantify, solve_z
 from .lack_of_fit import lack_of_fit_test
-from .least_squares import ROUNDOFF, solve_weighted, solve_weighted_stack, without_roundoff
+from .least_squares import ROUNDOFF, LeastSquaresSolution, solve_weighted, solve_weighted_stack, without_roundoff
 from .levels import Levels, group_levels
 from .models import Basis, Model, make_basis
 from .regression_test import regression_test
 from .response_factor import response_factor_weighting
 from .limits import DetectionLimits, detection_limits
-from .weighting import Weighting, make_weights
+from .weighting import Weighting, WeightModel, make_weights
 
 
 @dataclass(frozen=True, eq=False)
@@ -282,9 +282,9 @@ class _PolynomialCore:
     x: FloatArray
     y: FloatArray
     levels: Levels
-    weights: object
+    weights: WeightModel
     basis: Basis
-    solution: object
+    solution: LeastSquaresSolution
     root_wy: FloatArray
     clean: FloatArray
     df: int
@@ -295,8 +295,10 @@ class _PolynomialCore:
 
 
 def _polynomial_core(
-    model: Model, weighting: Weighting, x: FloatArray, y: FloatArray, levels: Levels, weights, basis: Basis, solution,  # type: ignore[no-untyped-def]
+    model: Model, weighting: Weighting, x: FloatArray, y: FloatArray, levels: Levels, weights: WeightModel,
+    basis: Basis, solution: LeastSquaresSolution,
 ) -> _PolynomialCore:
+    """The coefficients and their covariance in powers of x, refused by name when they leave double precision."""
     p = model.n_parameters
     with np.errstate(over="ignore", under="ignore", invalid="ignore"):
         root_wy = np.sqrt(weights.weights) * y
@@ -313,6 +315,8 @@ def _polynomial_core(
 
 
 def _polynomial_calibration(core: _PolynomialCore, influence: Influence) -> Calibration:
+    """The calibration from a fit's core and its influence measures: R², lack of fit, the regression
+    test, back-calculation and notes."""
     model, weighting, x, y, levels = core.model, core.weighting, core.x, core.y, core.levels
     weights, basis, solution = core.weights, core.basis, core.solution
     root_wy, clean, df, residual_sd = core.root_wy, core.clean, core.df, core.residual_sd
