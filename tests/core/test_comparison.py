@@ -6,6 +6,7 @@ import numpy as np
 import pytest
 
 import curvewright as cw
+from curvewright.core.errors import CalibrationInputError
 from tests.conftest import load_strd
 
 
@@ -115,6 +116,26 @@ def test_bartlett_and_brown_forsythe_match_scipy() -> None:
     assert (w, p) == pytest.approx((ref.statistic, ref.pvalue), rel=1e-12)
 
 
+def test_bartlett_and_brown_forsythe_match_scipy_over_unequal_groups() -> None:
+    # scipy.stats.bartlett and scipy.stats.levene(center="median") are the references. The groups are
+    # worked as flat arrays: odd and even sizes (the median of an even group is the mean of the
+    # middle two), groups of up to 12, given in any order within a group.
+    from scipy import stats
+
+    from curvewright.core.variance import bartlett_statistic, brown_forsythe_statistic
+
+    rng = np.random.default_rng(15)
+    for _ in range(60):
+        sizes = rng.integers(3, 13, size=rng.integers(2, 9))
+        groups = [rng.normal(0, rng.uniform(0.1, 10), n) * 10 ** rng.uniform(-4, 4) for n in sizes]
+        t, p = bartlett_statistic(*groups)
+        ref = stats.bartlett(*groups)
+        assert (t, p) == pytest.approx((ref.statistic, ref.pvalue), rel=1e-11)
+        w, p = brown_forsythe_statistic(*groups)
+        ref = stats.levene(*groups, center="median")
+        assert (w, p) == pytest.approx((ref.statistic, ref.pvalue), rel=1e-11)
+
+
 def test_the_line_through_the_origin_is_not_made_to_look_better_than_a_needed_intercept() -> None:
     # Invented standards on y = 10 + 5x over a narrow range far from zero: the intercept is about
     # 10 ± 0.8, plainly needed. Against the uncentred total Σy² the proportional model's R² came out
@@ -198,3 +219,76 @@ def test_the_pooled_variance_function_matches_its_likelihood() -> None:
     assert evidence.sd_power == pytest.approx(best.x[1], abs=1e-5)
     null = optimize.minimize_scalar(lambda v: minus_log_likelihood(np.array([v, 0.0])))
     assert evidence.pooled.statistic == pytest.approx(2 * (null.fun - best.fun), rel=1e-6)
+
+
+def _same(a: object, b: object) -> bool:
+    """Equal to the last bit, NaN where NaN (arrays and floats), or equal (anything else)."""
+    if isinstance(a, np.ndarray) or isinstance(b, np.ndarray):
+        a, b = np.asarray(a), np.asarray(b)
+        return a.shape == b.shape and a.dtype == b.dtype and a.tobytes() == b.tobytes()
+    if isinstance(a, float) and isinstance(b, float):
+        return np.float64(a).tobytes() == np.float64(b).tobytes()
+    return bool(a == b)
+
+
+@pytest.mark.parametrize("case", range(8))
+def test_the_polynomials_fitted_together_are_the_fits_made_one_by_one(case: int) -> None:
+    # compare() fits the line, the quadratic and the line through the origin under all weightings
+    # together; every candidate must be the calibration fit() gives for it alone, to the last bit,
+    # and every candidate it skips must carry the reason fit() gives (a blank under 1/x, 1/s²
+    # without replicates…), under every weighting. Invented standards of several shapes.
+    rng = np.random.default_rng(100 + case)
+    levels = np.geomspace(0.5, 0.5 * 10 ** rng.uniform(1, 3), int(rng.integers(5, 9)))
+    x = np.repeat(levels, int(rng.integers(1, 4)))
+    if case % 3 == 0:
+        x = np.concatenate([[0.0, 0.0], x])  # blanks: the 1/x-type weightings cannot be made
+    y = (0.03 + 0.9 * x - 0.0005 * case * x**2) * (1 + 0.03 * rng.standard_normal(x.size)) + 0.01 * rng.standard_normal(x.size)
+    result = cw.compare(x, y, include_proportional=True)
+    fitted = 0
+    for model in ("linear", "quadratic", "proportional"):
+        for weighting in (w.value for w in cw.Weighting):  # the variance functions too
+            try:
+                alone = cw.fit(x, y, model, weighting)
+            except CalibrationInputError as exc:
+                assert any(s.model.value == model and s.weighting.value == weighting and s.reason == str(exc)
+                           for s in result.skipped), (model, weighting, str(exc))
+                continue
+            together = result.candidate(model, weighting).calibration
+            fitted += 1
+            for name in ("coefficients", "covariance", "standard_errors", "residual_sd", "r_squared",
+                         "adjusted_r_squared", "fitted", "residuals", "back_calculated", "relative_error",
+                         "leverage", "studentized_residuals", "cooks_distance", "influence_flags", "notes"):
+                assert _same(getattr(together, name), getattr(alone, name)), (model, weighting, name)
+            assert together.lack_of_fit == alone.lack_of_fit
+            assert together.regression == alone.regression
+            assert _same(together.influence.influence_thresholds, alone.influence.influence_thresholds)
+    assert fitted >= 3  # the unweighted and 1/y-type fits of the line and the quadratic at least
+
+
+@pytest.mark.parametrize("case", range(4))
+def test_the_power_curves_of_a_screen_are_the_fits_made_one_by_one(case: int) -> None:
+    # compare() checks the standards and finds the power curve's start values once for all its
+    # weightings; every power-curve candidate must be fit() alone to the last bit, and every one it
+    # skips must carry fit()'s reason. Invented standards over two to three decades, every weighting
+    # (the variance functions too).
+    rng = np.random.default_rng(200 + case)
+    x = np.repeat(np.geomspace(0.2, 0.2 * 10 ** rng.uniform(2, 3), int(rng.integers(5, 8))), int(rng.integers(2, 4)))
+    y = 1.3 * x ** rng.uniform(0.8, 1.1) * (1 + 0.04 * rng.standard_normal(x.size))
+    weightings = tuple(w.value for w in cw.Weighting)
+    result = cw.compare(x, y, models=("linear", "power"), weightings=weightings)
+    fitted = 0
+    for weighting in weightings:
+        try:
+            alone = cw.fit(x, y, "power", weighting)
+        except CalibrationInputError as exc:
+            assert any(s.model.value == "power" and s.weighting.value == weighting and s.reason == str(exc)
+                       for s in result.skipped), (weighting, str(exc))
+            continue
+        together = result.candidate("power", weighting).calibration
+        fitted += 1
+        for name in ("coefficients", "covariance", "standard_errors", "residual_sd", "adjusted_r_squared",
+                     "fitted", "back_calculated", "leverage", "studentized_residuals", "cooks_distance",
+                     "influence_flags", "notes"):
+            assert _same(getattr(together, name), getattr(alone, name)), (weighting, name)
+        assert together.lack_of_fit == alone.lack_of_fit
+    assert fitted >= 4

@@ -13,6 +13,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
+import curvewright as cw
 from curvewright.core.nonlinear import fit_nonlinear
 from tests.conftest import REFERENCE_DATA, lre
 
@@ -171,3 +172,43 @@ def test_weights_enter_as_in_the_weighted_sum_of_squares() -> None:
     repeated = fit_nonlinear(rat42, rat42_jac, np.repeat(x, w.astype(int)), np.repeat(y, w.astype(int)), data["start2"])
     np.testing.assert_allclose(weighted.parameters, repeated.parameters, rtol=1e-9)
     assert weighted.sse == pytest.approx(repeated.sse, rel=1e-9)
+
+
+def test_the_fitters_svd_is_numpys_to_the_last_bit_and_refuses_as_numpy_does() -> None:
+    # numpy.linalg.svd is the reference: the fitter calls the same LAPACK routine through numpy's
+    # binding, so U, s and Vᵀ must be the same numbers; a matrix it cannot decompose raises as numpy does.
+    from curvewright.core.nonlinear import _thin_svd
+
+    rng = np.random.default_rng(11)
+    for n, p in ((6, 2), (24, 2), (24, 4), (40, 5)):
+        a = rng.standard_normal((n, p)) * 10.0 ** rng.uniform(-3, 3, p)
+        for quiet in (False, True):
+            with np.errstate(invalid="ignore"):
+                got = _thin_svd(a, quiet)
+            for mine, numpys in zip(got, np.linalg.svd(a, full_matrices=False), strict=True):
+                np.testing.assert_array_equal(mine, numpys)
+    bad = np.full((5, 2), np.nan)
+    with pytest.raises(np.linalg.LinAlgError):
+        _thin_svd(bad)
+
+
+def test_the_fits_are_the_same_through_the_public_routines(monkeypatch: pytest.MonkeyPatch) -> None:
+    # Where a numpy or scipy release names or calls its compiled routines otherwise, the fits fall
+    # back to numpy.linalg.svd, numpy.linalg.qr and scipy.optimize.leastsq: the same numbers.
+    from curvewright.core import least_squares, nonlinear
+
+    x = np.repeat([0.5, 1.0, 2.0, 5.0, 10.0, 20.0, 50.0, 100.0], 3)
+    y = (0.05 + 0.8 * x) * (1 + 0.03 * np.cos(7.0 * x))
+    before = cw.compare(x, y, models=("linear", "quadratic", "power"), weightings=("none", "1/x", "1/y^2"))
+
+    def refuse(*args: object, **kwargs: object) -> None:
+        raise TypeError("called otherwise")
+
+    monkeypatch.setattr(nonlinear, "_BINDING", [refuse])
+    monkeypatch.setattr(nonlinear, "_SVD", [refuse])
+    monkeypatch.setattr(least_squares, "_QR", [(refuse, refuse)])
+    after = cw.compare(x, y, models=("linear", "quadratic", "power"), weightings=("none", "1/x", "1/y^2"))
+    for a, b in zip(before.candidates, after.candidates, strict=True):
+        for name in ("coefficients", "covariance", "leverage", "studentized_residuals", "cooks_distance"):
+            np.testing.assert_array_equal(getattr(a.calibration, name), getattr(b.calibration, name))
+        assert a.calibration.notes == b.calibration.notes

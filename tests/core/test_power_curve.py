@@ -64,3 +64,35 @@ def test_concentrations_at_or_below_zero_are_refused_by_name() -> None:
     x[0] = 0.0
     with pytest.raises(cw.CalibrationInputError, match="standard 1 is at 0; a power curve"):
         cw.fit(x, y, "power")
+
+
+def test_the_fitters_form_of_the_weighted_problem_gives_the_curves_own_numbers() -> None:
+    # The power curve hands the fitter √w·(a·x^b − y) and its Jacobian with ln x taken once; they
+    # must be the curve's own function and derivatives weighted by √w, to the last bit, and a fit
+    # from them the same as one from the curve's function and derivatives.
+    from curvewright.core.curve_families import FAMILIES
+    from curvewright.core.models import Model
+    from curvewright.core.nonlinear import fit_nonlinear
+
+    family = FAMILIES[Model.POWER]
+    x, y = standards()
+    x = np.concatenate([[0.0], x])  # a blank: ln 0 is −∞, and its derivative column must come out the same
+    y = np.concatenate([[0.4], y])
+    rng = np.random.default_rng(3)
+    root_w = np.sqrt(rng.uniform(0.1, 3.0, x.size))
+    residuals, jacobian = family.weighted_problem(x, y, root_w)
+    for beta in (np.array([A, B]), np.array([0.01, -0.7]), np.array([-3.0, 2.5])):
+        with np.errstate(all="ignore"):
+            expected_r = root_w * (family.function(x, beta) - y)
+            expected_j = root_w[:, None] * family.jacobian(x, beta)
+            got_r, got_j = residuals(beta), jacobian(beta)
+        np.testing.assert_array_equal(got_r, expected_r)
+        np.testing.assert_array_equal(got_j, expected_j)
+    w = root_w[1:] ** 2
+    fast = fit_nonlinear(family.function, family.jacobian, x[1:], y[1:], np.array([100.0, 1.5]), w,
+                         problem=family.weighted_problem)
+    plain = fit_nonlinear(family.function, family.jacobian, x[1:], y[1:], np.array([100.0, 1.5]), w)
+    assert fast.converged and plain.converged
+    np.testing.assert_array_equal(fast.parameters, plain.parameters)
+    np.testing.assert_array_equal(fast.covariance, plain.covariance)
+    assert fast.evaluations == plain.evaluations

@@ -106,3 +106,24 @@ def _exact_straight_line_lack_of_fit(x: np.ndarray, y: np.ndarray) -> tuple[floa
     c = len(groups)
     f = ((sse - sspe) / (c - 2)) / (sspe / (n - c))
     return float(f), float(sse / (n - 2)) ** 0.5
+
+
+def test_the_least_squares_qr_is_numpys_to_the_last_bit() -> None:
+    # numpy.linalg.qr(mode="reduced") is the reference: the fit calls the same LAPACK routines
+    # through numpy's binding, so Q and R must be the same numbers, for well and badly scaled
+    # columns alike; a matrix with values that are not finite gets numpy's own answer.
+    from curvewright.core.least_squares import _thin_qr
+
+    rng = np.random.default_rng(12)
+    for n, p in ((3, 2), (24, 2), (24, 3), (60, 3)):
+        a = rng.standard_normal((n, p)) * 10.0 ** rng.uniform(-6, 6, p)
+        q, r = _thin_qr(a)
+        ref_q, ref_r = np.linalg.qr(a, mode="reduced")
+        np.testing.assert_array_equal(q, ref_q)
+        np.testing.assert_array_equal(r, ref_r)
+    bad = np.ones((5, 2))
+    bad[2, 1] = np.nan
+    q, r = _thin_qr(bad)
+    ref_q, ref_r = np.linalg.qr(bad, mode="reduced")
+    np.testing.assert_array_equal(q, ref_q)
+    np.testing.assert_array_equal(r, ref_r)

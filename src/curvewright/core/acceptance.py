@@ -246,27 +246,32 @@ class AcceptanceProfile:
         x = cal.concentration
         re = cal.relative_error
         # anchor points (logistic curves) are fitted but never judged, and do not make a level
-        anchors = getattr(cal, "anchors", np.zeros(x.size, dtype=bool))
-        judged = (x != 0) & ~anchors
+        anchors = getattr(cal, "anchors", None)
+        n_anchors = 0 if anchors is None else int(np.count_nonzero(anchors))
+        judged = (x != 0) & ~anchors if n_anchors else x != 0
         levels = cal.levels
-        judged_levels = np.bincount(levels.index[judged], minlength=levels.n_levels) > 0
+        index = levels.index
+        judged_levels = np.bincount(index[judged], minlength=levels.n_levels) > 0
         nonzero_levels = np.flatnonzero((levels.concentration != 0) & judged_levels)
-        tol = np.full(x.size, rules.tolerance_percent)
+        # the tolerance of each level (the lowest and highest judged levels have their own), then of each standard
+        tol_by_level = np.full(levels.n_levels, rules.tolerance_percent)
         if nonzero_levels.size:
-            low, high = nonzero_levels[0], nonzero_levels[-1]
-            tol[levels.index == high] = rules.highest_level_tolerance_percent
-            tol[levels.index == low] = rules.lowest_level_tolerance_percent
+            tol_by_level[nonzero_levels[-1]] = rules.highest_level_tolerance_percent
+            tol_by_level[nonzero_levels[0]] = rules.lowest_level_tolerance_percent
+        tol = tol_by_level[index]
         with np.errstate(invalid="ignore"):
             passing = judged & np.isfinite(re) & (np.abs(re) <= tol + _BOUNDARY)
 
         reasons: list[str] = []
         ok = True
         counted_excluded = excluded if rules.count_excluded_as_failing else 0
-        n_judged = int(judged.sum()) + counted_excluded + unusable
-        n_pass = int(passing.sum())
+        n_judged = int(np.count_nonzero(judged)) + counted_excluded + unusable
+        n_pass = int(np.count_nonzero(passing))
         if n_judged == 0:
             raise ProfileError("no standard of non-zero concentration to judge.")
-        frac_ok = Fraction(n_pass, n_judged) >= rules.min_fraction_passing
+        # passing/judged ≥ the fraction required, compared exactly in integers
+        required = rules.min_fraction_passing
+        frac_ok = n_pass * required.denominator >= required.numerator * n_judged
         ok &= frac_ok
         reasons.append(
             f"{'pass' if frac_ok else 'FAIL'}: {n_pass} of {n_judged} standards within limits "
@@ -276,13 +281,13 @@ class AcceptanceProfile:
             + (f"; {excluded} excluded standard(s) counted as not passing" if counted_excluded else "")
             + (f"; {excluded} excluded standard(s) with recorded reasons not counted" if excluded and not counted_excluded else "")
             + (f"; {unusable} standard(s) without a usable value counted as not passing" if unusable else "")
-            + (f"; {int(anchors.sum())} anchor point(s) fitted but not judged" if anchors.any() else "")
+            + (f"; {n_anchors} anchor point(s) fitted but not judged" if n_anchors else "")
         )
         # a level passes when passing/standards ≥ the fraction required, compared exactly in integers
         needed = Fraction(rules.min_fraction_passing_per_level)
-        per_level = np.bincount(levels.index, minlength=levels.n_levels)[nonzero_levels]
-        passing_per_level = np.bincount(levels.index[passing], minlength=levels.n_levels)[nonzero_levels]
-        level_pass = [bool(a * needed.denominator >= needed.numerator * b)
+        per_level = levels.count[nonzero_levels]
+        passing_per_level = np.bincount(index[passing], minlength=levels.n_levels)[nonzero_levels]
+        level_pass = [a * needed.denominator >= needed.numerator * b
                       for a, b in zip(passing_per_level.tolist(), per_level.tolist(), strict=True)]
         n_levels = int(nonzero_levels.size)
         n_levels_pass = int(sum(level_pass))
@@ -457,6 +462,7 @@ def _fraction(data: Mapping[str, Any], key: str, where: str) -> Fraction:
     return fraction
 
 
+@lru_cache(maxsize=64)
 def _percent_text(fraction: Fraction) -> str:
     if fraction == 1:
         return "all"

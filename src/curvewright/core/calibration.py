@@ -16,16 +16,16 @@ from ._arrays import FloatArray, as_finite_vector, frozen
 from .acceptance import AcceptanceProfile, AcceptanceVerdict
 from .errors import CalibrationInputError
 from .fitted_curve import FittedCurve
-from .influence import measure_influence
+from .influence import Influence, measure_influence, measure_influence_of_fits
 from .inverse import Quantitation, quantify, solve_z
 from .lack_of_fit import lack_of_fit_test
-from .least_squares import ROUNDOFF, solve_weighted, without_roundoff
+from .least_squares import ROUNDOFF, LeastSquaresSolution, solve_weighted, solve_weighted_stack, without_roundoff
 from .levels import Levels, group_levels
 from .models import Basis, Model, make_basis
 from .regression_test import regression_test
 from .response_factor import response_factor_weighting
 from .limits import DetectionLimits, detection_limits
-from .weighting import Weighting, make_weights
+from .weighting import Weighting, WeightModel, make_weights
 
 
 @dataclass(frozen=True, eq=False)
@@ -146,6 +146,113 @@ def fit(
         raise CalibrationInputError("standards: none given; a calibration needs standards.")
     if levels is None or levels.index.size != x.size:
         levels = group_levels(x, level_tolerance, level_labels)
+    _check_design(x, model, p)
+    x.setflags(write=False)
+    y.setflags(write=False)
+    if not model.is_polynomial:
+        if curve_fitter is None:
+            raise CalibrationInputError(f"model {model.value}: fitted by curvewright.fit, which also fits the curves "
+                                        "that are not polynomials.")
+        return curve_fitter(model, weighting, x, y, levels, response_sd, anchor_points)
+    if anchor_points is not None and np.any(np.asarray(anchor_points, dtype=bool)):
+        raise CalibrationInputError(
+            f"anchor points: a {model.description} has no asymptotes to anchor; anchor points belong to "
+            "the logistic curves (4pl, 5pl)."
+        )
+    weights = make_weights(weighting, x, y, levels, response_sd, model)
+    basis = make_basis(model, x, weights.weights)
+    # Values near the ends of double precision overflow here; they are refused by name below.
+    with np.errstate(over="ignore", under="ignore", invalid="ignore"):
+        solution = solve_weighted(basis.design(x), y, weights.weights)
+    core = _polynomial_core(model, weighting, x, y, levels, weights, basis, solution)
+    return _polynomial_calibration(core, measure_influence(solution.weighted_residuals, solution.leverage, p,
+                                                           core.root_wy))
+
+
+def fit_weightings(
+    concentration: object,
+    response: object,
+    model: Model | str,
+    weightings: Sequence[Weighting | str],
+    *,
+    response_sd: Sequence[object | None] | None = None,
+    level_tolerance: float | None = None,
+    levels: Levels | None = None,
+) -> list[Calibration | CalibrationInputError]:
+    """:func:`fit` of one polynomial model (line, quadratic, line through the origin) under each of
+    ``weightings``, the QR decompositions and the influence measures of all of them taken together.
+
+    ``response_sd`` gives each weighting's ``response_sd`` (None for none). Each entry of the result
+    is the calibration :func:`fit` returns for that weighting, or the :class:`CalibrationInputError`
+    it raises; every number is the same as from :func:`fit`.
+    """
+    model = Model.parse(model)
+    if not model.is_polynomial or model is Model.AVERAGE_RF:
+        raise CalibrationInputError(f"model {model.value}: fitted under several weightings by fit, one at a time.")
+    sds = list(response_sd) if response_sd is not None else [None] * len(weightings)
+    out: list[Calibration | CalibrationInputError | None] = [None] * len(weightings)
+    try:
+        x, y, levels = _checked_standards(concentration, response, model, level_tolerance, None, levels)
+    except CalibrationInputError as exc:
+        return [exc] * len(weightings)
+    p = model.n_parameters
+    prepared = []
+    for i, weighting in enumerate(weightings):
+        try:
+            w_kind = Weighting.parse(weighting)
+            weights = make_weights(w_kind, x, y, levels, sds[i], model)
+        except CalibrationInputError as exc:
+            out[i] = exc
+            continue
+        prepared.append((i, w_kind, weights, make_basis(model, x, weights.weights)))
+    if prepared:
+        designs = np.stack([basis.design(x) for _, _, _, basis in prepared])
+        with np.errstate(over="ignore", under="ignore", invalid="ignore"):
+            solutions = solve_weighted_stack(designs, y, np.stack([weights.weights for _, _, weights, _ in prepared]))
+        cores = []
+        for (i, w_kind, weights, basis), solution in zip(prepared, solutions, strict=True):
+            if isinstance(solution, CalibrationInputError):
+                out[i] = solution
+                continue
+            try:
+                cores.append((i, _polynomial_core(model, w_kind, x, y, levels, weights, basis, solution)))
+            except CalibrationInputError as exc:
+                out[i] = exc
+        if cores:
+            influences = measure_influence_of_fits(
+                np.stack([core.solution.weighted_residuals for _, core in cores]),
+                np.stack([core.solution.leverage for _, core in cores]), p,
+                np.stack([core.root_wy for _, core in cores]),
+            )
+            for (i, core), influence in zip(cores, influences, strict=True):
+                out[i] = _polynomial_calibration(core, influence)
+    return [entry for entry in out if entry is not None]
+
+
+def _checked_standards(
+    concentration: object, response: object, model: Model, level_tolerance: float | None,
+    level_labels: Sequence[str] | None, levels: Levels | None,
+) -> tuple[FloatArray, FloatArray, Levels]:
+    """The standards as read-only arrays with their levels, checked as :func:`fit` checks them for a
+    polynomial model (the checks that do not depend on the weighting)."""
+    x = as_finite_vector(concentration, "concentration", CalibrationInputError)
+    y = as_finite_vector(response, "response", CalibrationInputError)
+    if x.size != y.size:
+        raise CalibrationInputError(
+            f"standards: {x.size} concentrations but {y.size} responses; each standard needs both."
+        )
+    p = model.n_parameters
+    if x.size == 0:
+        raise CalibrationInputError("standards: none given; a calibration needs standards.")
+    if levels is None or levels.index.size != x.size:
+        levels = group_levels(x, level_tolerance, level_labels)
+    _check_design(x, model, p)
+    x.setflags(write=False)
+    y.setflags(write=False)
+    return x, y, levels
+
+
+def _check_design(x: FloatArray, model: Model, p: int) -> None:
     # Whether the curve can be fixed depends on the distinct concentrations, never on how they are
     # grouped into levels: 1e6 + 0…10 are eleven concentrations even if a tolerance makes one level.
     distinct = int(np.unique(x).size)
@@ -164,23 +271,36 @@ def fit(
             f"standards: {x.size} standards leave no degree of freedom to estimate the scatter of "
             f"the {model.description} ({p} parameters); at least {p + 1} are needed."
         )
-    x.setflags(write=False)
-    y.setflags(write=False)
-    if not model.is_polynomial:
-        if curve_fitter is None:
-            raise CalibrationInputError(f"model {model.value}: fitted by curvewright.fit, which also fits the curves "
-                                        "that are not polynomials.")
-        return curve_fitter(model, weighting, x, y, levels, response_sd, anchor_points)
-    if anchor_points is not None and np.any(np.asarray(anchor_points, dtype=bool)):
-        raise CalibrationInputError(
-            f"anchor points: a {model.description} has no asymptotes to anchor; anchor points belong to "
-            "the logistic curves (4pl, 5pl)."
-        )
-    weights = make_weights(weighting, x, y, levels, response_sd, model)
-    basis = make_basis(model, x, weights.weights)
-    # Values near the ends of double precision overflow here; they are refused by name below.
+
+
+@dataclass(frozen=True, eq=False)
+class _PolynomialCore:
+    """What a polynomial fit has worked out before its influence measures (see :func:`fit`)."""
+
+    model: Model
+    weighting: Weighting
+    x: FloatArray
+    y: FloatArray
+    levels: Levels
+    weights: WeightModel
+    basis: Basis
+    solution: LeastSquaresSolution
+    root_wy: FloatArray
+    clean: FloatArray
+    df: int
+    residual_sd: float
+    z_cov: FloatArray
+    coefficients: FloatArray
+    covariance: FloatArray
+
+
+def _polynomial_core(
+    model: Model, weighting: Weighting, x: FloatArray, y: FloatArray, levels: Levels, weights: WeightModel,
+    basis: Basis, solution: LeastSquaresSolution,
+) -> _PolynomialCore:
+    """The coefficients and their covariance in powers of x, refused by name when they leave double precision."""
+    p = model.n_parameters
     with np.errstate(over="ignore", under="ignore", invalid="ignore"):
-        solution = solve_weighted(basis.design(x), y, weights.weights)
         root_wy = np.sqrt(weights.weights) * y
         clean = without_roundoff(solution.weighted_residuals, root_wy)  # exact standards: zeros
         df = x.size - p
@@ -190,16 +310,27 @@ def fit(
         coefficients = transform @ solution.coefficients
         covariance = transform @ z_cov @ transform.T
     _refuse_unrepresentable(model, x, y, basis, coefficients, covariance, residual_sd)
+    return _PolynomialCore(model, weighting, x, y, levels, weights, basis, solution, root_wy, clean, df,
+                           residual_sd, z_cov, coefficients, covariance)
+
+
+def _polynomial_calibration(core: _PolynomialCore, influence: Influence) -> Calibration:
+    """The calibration from a fit's core and its influence measures: R², lack of fit, the regression
+    test, back-calculation and notes."""
+    model, weighting, x, y, levels = core.model, core.weighting, core.x, core.y, core.levels
+    weights, basis, solution = core.weights, core.basis, core.solution
+    root_wy, clean, df, residual_sd = core.root_wy, core.clean, core.df, core.residual_sd
+    z_cov, coefficients, covariance = core.z_cov, core.coefficients, core.covariance
+    p = model.n_parameters
     w = weights.weights
-    mean_w = float(np.sum(w * y) / np.sum(w))
-    sst = float(np.sum(w * (y - mean_w) ** 2))
+    mean_w = float(np.add.reduce(w * y) / np.add.reduce(w))
+    sst = float(np.add.reduce(w * (y - mean_w) ** 2))
     adjust = (x.size - 1) / df
-    if sst <= x.size * (ROUNDOFF * float(np.max(np.abs(root_wy)))) ** 2:
+    if sst <= x.size * (ROUNDOFF * float(np.maximum.reduce(np.abs(root_wy)))) ** 2:
         r_squared = 0.0  # the responses do not vary: nothing to explain
     else:
         r_squared = 1.0 - float(clean @ clean) / sst
     branch, vertex_z, notes = _quadratic_geometry(model, solution.coefficients, basis, x)
-    influence = measure_influence(solution.weighted_residuals, solution.leverage, p, root_wy)
     lack = lack_of_fit_test(clean / np.sqrt(w), w, levels, p, weights_from_replicates=weights.from_replicates)
     regression = regression_test(
         solution.coefficients, z_cov, basis.powers, solution.fitted, y, not np.any(clean), df

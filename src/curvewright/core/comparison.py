@@ -76,7 +76,7 @@ import numpy as np
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
 from ._arrays import as_finite_vector
-from .calibration import Calibration
+from .calibration import Calibration, fit_weightings
 from .fitting import fit
 from .distributions import f_quantile, f_upper_tail
 from .errors import CalibrationInputError
@@ -277,13 +277,37 @@ def compare(
         except CalibrationInputError as exc:
             skipped.append(SkippedCandidate(Model.AVERAGE_RF, Weighting.INVERSE_X2, str(exc)))
             first_error = exc
+    # the polynomials of one degree are fitted under every weighting together (the same numbers as one by one)
+    together = {
+        m: dict(zip(weighting_list, fit_weightings(
+            inner_x, inner_y, m, weighting_list,
+            response_sd=[sd if w is Weighting.INVERSE_S2 else None for w in weighting_list],
+            level_tolerance=level_tolerance, levels=inner_levels,
+        ), strict=True))
+        for m in model_list if m.is_polynomial and m not in added
+    }
+    if Model.POWER in model_list:
+        # the power curve under every weighting it takes, the standards checked and its starts found once
+        from .nonlinear_calibration import fit_curve_weightings  # loaded only when a curve is fitted
+
+        power_weightings = [w for w in weighting_list if Model.POWER not in added or w in NONLINEAR_WEIGHTINGS]
+        together[Model.POWER] = dict(zip(power_weightings, fit_curve_weightings(
+            inner_x, inner_y, Model.POWER, power_weightings,
+            response_sd=[sd if w is Weighting.INVERSE_S2 else None for w in power_weightings],
+            level_tolerance=level_tolerance, levels=inner_levels,
+        ), strict=True))
     for w in weighting_list:
         for m in model_list:
             if m in added and w not in NONLINEAR_WEIGHTINGS:
                 continue  # a curve brought in by the profile or the span, under the weightings it accepts
             logistic = m in (Model.FOUR_PL, Model.FIVE_PL)
             try:
-                if logistic:
+                if m in together:
+                    result = together[m][w]
+                    if isinstance(result, CalibrationInputError):
+                        raise result
+                    fits[(m, w)] = result
+                elif logistic:
                     fits[(m, w)] = fit(
                         x, y, m, w, response_sd=response_sd if w is Weighting.INVERSE_S2 else None,
                         level_tolerance=level_tolerance, levels=shared_levels,

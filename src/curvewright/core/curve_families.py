@@ -46,6 +46,14 @@ from ._arrays import FloatArray
 from .models import Model
 
 
+WeightedProblem = Callable[
+    [FloatArray, FloatArray, FloatArray],
+    tuple[Callable[[FloatArray], FloatArray], Callable[[FloatArray], FloatArray]],
+]
+"""(x, y, √w) → (β ↦ √wᵢ·(f(xᵢ; β) − yᵢ), β ↦ √wᵢ·∂f(xᵢ; β)/∂β), evaluated inside the fitter's
+error-state context; non-finite values are the fitter's to handle."""
+
+
 @dataclass(frozen=True)
 class CurveFamily:
     """One nonlinear calibration function: its formula, derivatives, inverse and start values."""
@@ -61,6 +69,10 @@ class CurveFamily:
     starts: Callable[[FloatArray, FloatArray], list[FloatArray]]
     """Start values to try, best first, from the standards (x, y)."""
     parameter_words: tuple[str, ...]
+    weighted_problem: WeightedProblem | None = None
+    """The weighted residuals and their Jacobian as functions of β for given (x, y, √w), worked out
+    with what does not change during a fit computed once; None: the fitter builds them from
+    ``function`` and ``jacobian`` (:func:`curvewright.core.nonlinear.fit_nonlinear`)."""
 
 
 # --- logistic ---------------------------------------------------------------------------------------
@@ -184,6 +196,32 @@ def _power_jacobian(x: FloatArray, p: FloatArray) -> FloatArray:
     return out
 
 
+def _power_problem(
+    x: FloatArray, y: FloatArray, root_w: FloatArray
+) -> tuple[Callable[[FloatArray], FloatArray], Callable[[FloatArray], FloatArray]]:
+    """:data:`WeightedProblem` of the power curve: √w·(a·x^b − y) and the columns √w·x^b and
+    √w·(a·x^b·ln x), with ln x taken once. The same operations as :func:`_power` and
+    :func:`_power_jacobian` weighted by √w, so the same numbers."""
+    x = np.asarray(x, dtype=np.float64)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        log_x = np.log(x)
+    shape = x.shape + (2,)
+
+    def residuals(p: FloatArray) -> FloatArray:
+        a, b = p
+        return root_w * (a * x**b - y)
+
+    def jacobian(p: FloatArray) -> FloatArray:
+        a, b = p
+        xb = x**b
+        out = np.empty(shape)
+        out[..., 0] = root_w * xb
+        out[..., 1] = root_w * (a * xb * log_x)
+        return out
+
+    return residuals, jacobian
+
+
 def _power_slope(x: FloatArray, p: FloatArray) -> FloatArray:
     a, b = p
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
@@ -227,6 +265,6 @@ FAMILIES = {
     Model.POWER: CurveFamily(
         Model.POWER, ("a", "b"), "y = a·x^b",
         _power, _power_jacobian, _power_slope, _power_inverse, _power_starts,
-        ("response at unit concentration", "exponent"),
+        ("response at unit concentration", "exponent"), _power_problem,
     ),
 }

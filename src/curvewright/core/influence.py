@@ -48,6 +48,7 @@ or infinite studentized residuals.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import lru_cache
 from enum import Enum
 
 import numpy as np
@@ -134,63 +135,94 @@ def measure_influence(
 
     ``weighted_response`` (√w·y) sets the round-off level below which residuals count as zero.
     """
-    n = weighted_residuals.size
+    return measure_influence_of_fits(
+        weighted_residuals[None, :], leverage[None, :], n_parameters,
+        None if weighted_response is None else weighted_response[None, :],
+    )[0]
+
+
+def measure_influence_of_fits(
+    weighted_residuals: FloatArray,
+    leverage: FloatArray,
+    n_parameters: int,
+    weighted_response: FloatArray | None = None,
+) -> list[Influence]:
+    """:func:`measure_influence` of k fits of one model to the same n standards (under k weightings),
+    from arrays of shape (k, n), in one pass: the same numbers as k calls, fit by fit."""
+    k, n = weighted_residuals.shape
     p = n_parameters
     df = n - p
     full = leverage >= FULL_LEVERAGE
-    scale = float(np.max(np.abs(weighted_response))) if weighted_response is not None else 0.0
+    scale = np.maximum.reduce(np.abs(weighted_response), axis=1) if weighted_response is not None else np.zeros(k)
     floor = ROUNDOFF * scale
-    e = np.where(np.abs(weighted_residuals) <= floor, 0.0, weighted_residuals)
-    sse = float(e @ e)
+    e = np.where(np.abs(weighted_residuals) <= floor[:, None], 0.0, weighted_residuals)
+    # each fit's sum of squares as a dot product of its own row, as one fit alone takes it
+    sse = np.array([float(row @ row) for row in e])
     s = np.sqrt(sse / df)
     one_minus_h = np.where(full, np.nan, 1.0 - leverage)
     with np.errstate(invalid="ignore", divide="ignore"):
-        internal = e / (s * np.sqrt(one_minus_h))
+        internal = e / (s[:, None] * np.sqrt(one_minus_h))
         if df > 1:
             # Deleted residual variance s²₍ᵢ₎ = (SSE − eᵢ²/(1 − hᵢ))/(n − p − 1), never below round-off.
-            deleted_sse = np.maximum(sse - e**2 / one_minus_h, (df - 1) * floor**2)
+            deleted_sse = np.maximum(sse[:, None] - e**2 / one_minus_h, (df - 1) * floor[:, None] ** 2)
             external = e / np.sqrt(deleted_sse / (df - 1) * one_minus_h)
             external = np.where(e == 0.0, np.where(full, np.nan, 0.0), external)
         else:
-            external = np.full(n, np.nan)
+            external = np.full((k, n), np.nan)
         cooks = internal**2 * leverage / (p * one_minus_h)
-    if s == 0.0:
+    perfect = s == 0.0
+    if perfect.any():
         # A perfect fit: every residual is zero (or round-off), nothing stands out.
-        internal = np.where(full, np.nan, 0.0)
-        external = np.where(full | (df <= 1), np.nan, 0.0)
-        cooks = np.where(full, np.nan, 0.0)
+        rows = perfect[:, None]
+        internal = np.where(rows, np.where(full, np.nan, 0.0), internal)
+        external = np.where(rows, np.where(full | (df <= 1), np.nan, 0.0), external)
+        cooks = np.where(rows, np.where(full, np.nan, 0.0), cooks)
     if df > 1:
-        from scipy import special  # loaded on first use: importing the engine stays light
-
-        studentized_threshold = float(special.stdtrit(df - 1, 1.0 - OUTLIER_ALPHA / (2 * n)))
-        cooks_threshold = float(special.fdtri(p, df, COOKS_QUANTILE))
+        studentized_threshold, cooks_threshold = _thresholds(n, p)
         influence_thresholds = influence_limit(leverage, p, n)
     else:
         studentized_threshold = cooks_threshold = float("nan")
-        influence_thresholds = np.full(n, np.nan)
+        influence_thresholds = np.full((k, n), np.nan)
     with np.errstate(invalid="ignore"):
         outlier = np.abs(external) > studentized_threshold
         influential = (cooks > cooks_threshold) & (np.abs(external) > influence_thresholds)
     # each standard's flags, by a code: 0 none, 1 outlier, 2 influential, 3 both, 4 leverage 1, 5 not studentized
     code = np.where(full, 4, 5) if df <= 1 else np.where(full, 4, outlier + 2 * influential.astype(np.int64))
-    flags = [_FLAG_SETS[c] for c in code.tolist()]
-    notes = tuple(
-        f"standard {i + 1} has leverage {leverage[i]:.2f} (above {HIGH_LEVERAGE:g}): the curve near it rests "
-        "mostly on this one standard, so an error in it would hardly show in its residual; replicate it "
-        "or add a standard nearby"
-        for i in np.flatnonzero((leverage > HIGH_LEVERAGE) & ~full)
-    )
-    return Influence(
-        leverage=frozen(np.minimum(leverage, 1.0)),
-        studentized_residuals=frozen(external),
-        cooks_distance=frozen(cooks),
-        flags=tuple(flags),
-        internal_studentized=frozen(internal),
-        studentized_threshold=studentized_threshold,
-        cooks_threshold=cooks_threshold,
-        influence_thresholds=frozen(np.asarray(influence_thresholds, dtype=float)),
-        notes=notes,
-    )
+    high = (leverage > HIGH_LEVERAGE) & ~full
+    capped = np.minimum(leverage, 1.0)
+    thresholds = np.asarray(influence_thresholds, dtype=float)
+    out = []
+    for j in range(k):
+        notes = tuple(
+            f"standard {i + 1} has leverage {leverage[j, i]:.2f} (above {HIGH_LEVERAGE:g}): the curve near it rests "
+            "mostly on this one standard, so an error in it would hardly show in its residual; replicate it "
+            "or add a standard nearby"
+            for i in np.flatnonzero(high[j])
+        )
+        out.append(Influence(
+            leverage=frozen(capped[j].copy()),
+            studentized_residuals=frozen(external[j].copy()),
+            cooks_distance=frozen(cooks[j].copy()),
+            flags=tuple(_FLAG_SETS[c] for c in code[j].tolist()),
+            internal_studentized=frozen(internal[j].copy()),
+            studentized_threshold=studentized_threshold,
+            cooks_threshold=cooks_threshold,
+            influence_thresholds=frozen(thresholds[j].copy()),
+            notes=notes,
+        ))
+    return out
+
+
+@lru_cache(maxsize=256)
+def _thresholds(n: int, p: int) -> tuple[float, float]:
+    """The Bonferroni outlier limit t(1 − α₁/(2n); n − p − 1) and the median of F(p, n − p), for n − p > 1.
+
+    They depend on n and p alone, so the candidates of a model screen share them."""
+    from scipy import special  # loaded on first use: importing the engine stays light
+
+    df = n - p
+    return (float(special.stdtrit(df - 1, 1.0 - OUTLIER_ALPHA / (2 * n))),
+            float(special.fdtri(p, df, COOKS_QUANTILE)))
 
 
 def influence_limit(leverage: FloatArray, n_parameters: int, n_standards: int) -> FloatArray:

@@ -98,8 +98,8 @@ def lack_of_fit_test(
         )
     level_weight = np.bincount(levels.index, weights=weights, minlength=c)
     mean_residual = np.bincount(levels.index, weights=weights * residuals, minlength=c) / level_weight
-    ss_pe = float(np.sum(weights * (residuals - mean_residual[levels.index]) ** 2))
-    ss_lf = float(np.sum(level_weight * mean_residual**2))
+    ss_pe = float(np.add.reduce(weights * (residuals - mean_residual[levels.index]) ** 2))
+    ss_lf = float(np.add.reduce(level_weight * mean_residual**2))
     if ss_pe <= 0.0:
         return LackOfFit(
             False,

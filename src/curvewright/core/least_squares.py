@@ -24,7 +24,7 @@ ROUNDOFF = 1000.0 * np.finfo(float).eps
 
 def without_roundoff(weighted_residuals: FloatArray, weighted_response: FloatArray) -> FloatArray:
     """``weighted_residuals`` with those at the level of round-off set to exactly zero."""
-    floor = ROUNDOFF * float(np.max(np.abs(weighted_response))) if weighted_response.size else 0.0
+    floor = ROUNDOFF * float(np.maximum.reduce(np.abs(weighted_response))) if weighted_response.size else 0.0
     return np.where(np.abs(weighted_residuals) <= floor, 0.0, weighted_residuals)
 
 
@@ -43,16 +43,44 @@ class LeastSquaresSolution:
 def solve_weighted(design: FloatArray, response: FloatArray, weights: FloatArray) -> LeastSquaresSolution:
     """Solve the weighted least-squares problem for ``design`` (n, p) and ``response`` (n,)."""
     root_w = np.sqrt(weights)
-    q, r = np.linalg.qr(design * root_w[:, None], mode="reduced")
-    diagonal = np.abs(np.diag(r))
-    if diagonal.min() <= RANK_TOLERANCE * diagonal.max():
+    q, r = _thin_qr(design * root_w[:, None])
+    return _solution(q, r, design, response, root_w)
+
+
+def solve_weighted_stack(
+    designs: FloatArray, response: FloatArray, weights: FloatArray
+) -> list[LeastSquaresSolution | CalibrationInputError]:
+    """:func:`solve_weighted` of k problems on the same responses: ``designs`` (k, n, p) and
+    ``weights`` (k, n), the k QR decompositions taken in one call. Each entry is the solution, or the
+    error :func:`solve_weighted` would raise for that problem; the numbers are the same as k calls."""
+    root_w = np.sqrt(weights)
+    qs, rs = _thin_qr(designs * root_w[:, :, None])
+    out: list[LeastSquaresSolution | CalibrationInputError] = []
+    for j in range(designs.shape[0]):
+        try:
+            out.append(_solution(qs[j], rs[j], designs[j], response, root_w[j]))
+        except CalibrationInputError as exc:
+            out.append(exc)
+    return out
+
+
+def _solution(
+    q: FloatArray, r: FloatArray, design: FloatArray, response: FloatArray, root_w: FloatArray
+) -> LeastSquaresSolution:
+    """The solution from the QR decomposition of the whitened design √w·Z = Q·R."""
+    # R is at most 3 × 3 here: its few numbers are worked as Python floats, which costs less than
+    # the call overhead of the numpy operations on arrays of one to three elements
+    rows = r.tolist()
+    p = len(rows)
+    diagonal = [abs(rows[i][i]) for i in range(p)]
+    if min(diagonal) <= RANK_TOLERANCE * max(diagonal):
         raise CalibrationInputError(
             "the standards cannot determine this model: its terms are not independent over these "
             "concentrations (too few distinct levels, or levels too close together)."
         )
-    qty = q.T @ (response * root_w)
-    r_inverse = _upper_triangular_inverse(r)
-    coefficients = _back_substitute(r, qty)
+    qty = (q.T @ (response * root_w)).tolist()
+    r_inverse = np.array([_back_substitute(rows, [1.0 if i == j else 0.0 for i in range(p)]) for j in range(p)]).T
+    coefficients = np.array(_back_substitute(rows, qty))
     fitted = design @ coefficients
     weighted_residuals = root_w * (response - fitted)
     return LeastSquaresSolution(
@@ -65,19 +93,52 @@ def solve_weighted(design: FloatArray, response: FloatArray, weights: FloatArray
     )
 
 
-def _back_substitute(r: FloatArray, b: FloatArray) -> FloatArray:
-    """Solve R·a = b for upper-triangular R by back substitution (p is 1 to 3 here)."""
-    p = r.shape[0]
-    a = np.zeros(p)
+def _thin_qr(a: FloatArray) -> tuple[FloatArray, FloatArray]:
+    """numpy.linalg.qr(a, mode="reduced") of a real n × p matrix (n ≥ p), or of a stack of them
+    (k, n, p), each decomposed on its own: the same LAPACK routines (Householder QR, then Q formed
+    from the reflectors) through numpy's own binding, without the wrapper's checks and error-state
+    set-up. Where they give numbers that are not finite, the answer is numpy.linalg.qr's."""
+    qr_raw, qr_reduced = _qr_bindings()
+    if qr_raw is not None and qr_reduced is not None:
+        packed = np.array(a, dtype=np.float64, order="C")  # overwritten by R and the reflectors
+        try:
+            with np.errstate(invalid="ignore"):  # a failure is answered by numpy.linalg.qr below
+                tau = qr_raw(packed, signature="d->d")
+                q = qr_reduced(packed, tau, signature="dd->d")
+        except (TypeError, ValueError):
+            q = None  # a numpy whose bindings are called otherwise: numpy.linalg.qr below
+        if q is not None:
+            p = packed.shape[-1]
+            r = np.triu(packed[..., :p, :])
+            if np.isfinite(np.add.reduce(q, axis=None)) and np.isfinite(np.add.reduce(r, axis=None)):
+                return q, r
+    q, r = np.linalg.qr(a, mode="reduced")
+    return q, r
+
+
+_QR: list[tuple[object, object]] = []
+
+
+def _qr_bindings() -> tuple[object, object]:
+    """numpy's compiled QR steps (what numpy.linalg.qr calls), or Nones where they are not found."""
+    if not _QR:
+        try:
+            from numpy.linalg import _umath_linalg  # type: ignore[attr-defined]
+
+            _QR.append((getattr(_umath_linalg, "qr_r_raw", None), getattr(_umath_linalg, "qr_reduced", None)))
+        except ImportError:
+            _QR.append((None, None))
+    return _QR[0]
+
+
+def _back_substitute(r: list[list[float]], b: list[float]) -> list[float]:
+    """Solve R·a = b for upper-triangular R (as nested lists) by back substitution (p is 1 to 3 here)."""
+    p = len(r)
+    a = [0.0] * p
     for i in range(p - 1, -1, -1):
-        a[i] = (b[i] - r[i, i + 1:] @ a[i + 1:]) / r[i, i]
+        row = r[i]
+        total = 0.0
+        for k in range(i + 1, p):
+            total += row[k] * a[k]
+        a[i] = (b[i] - total) / row[i]
     return a
-
-
-def _upper_triangular_inverse(r: FloatArray) -> FloatArray:
-    p = r.shape[0]
-    inverse = np.zeros((p, p))
-    identity = np.eye(p)
-    for j in range(p):
-        inverse[:, j] = _back_substitute(r, identity[:, j])
-    return inverse

@@ -80,11 +80,11 @@ def make_basis(model: Model, concentration: FloatArray, weights: FloatArray | No
     """
     w = np.ones_like(concentration) if weights is None else weights
     if model.has_intercept:
-        centre = float(np.sum(w * concentration) / np.sum(w))
-        scale = float(np.max(np.abs(concentration - centre)))
+        centre = float(np.add.reduce(w * concentration) / np.add.reduce(w))
+        scale = float(np.maximum.reduce(np.abs(concentration - centre)))
     else:
         centre = 0.0
-        scale = float(np.max(np.abs(concentration)))
+        scale = float(np.maximum.reduce(np.abs(concentration)))
     if not scale > 0:
         scale = 1.0
     return Basis(centre=centre, scale=scale, powers=model.powers)

@@ -7,7 +7,7 @@ Problem
 Method
     Levenberg–Marquardt with a trust region and scaling by the columns of the Jacobian (Moré, "The
     Levenberg–Marquardt algorithm: implementation and theory", Lecture Notes in Mathematics 630,
-    1978), as implemented by MINPACK's ``lmder`` (called through ``scipy.optimize.leastsq``).
+    1978), as implemented by MINPACK's ``lmder`` (scipy's binding of it, as ``scipy.optimize.leastsq`` calls it).
     The model gives its own analytic Jacobian ∂f/∂β; the fitter never differences numerically.
     Tolerances on the relative change of S, of β and on the gradient are 1e-15, so the fit stops
     only when double precision can improve nothing more.
@@ -27,6 +27,7 @@ Convergence
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
@@ -117,8 +118,14 @@ def fit_nonlinear(
     weights: FloatArray | None = None,
     *,
     max_evaluations: int | None = None,
+    problem: Callable[[FloatArray, FloatArray, FloatArray], tuple[Callable[[FloatArray], FloatArray],
+                                                                    Callable[[FloatArray], FloatArray]]] | None = None,
 ) -> NonlinearFit:
     """Fit ``function`` to (x, y) from ``start`` by weighted least squares (see the module docstring).
+
+    ``problem`` (x, y, √w) → (weighted residuals, their Jacobian) as functions of β, when the curve
+    gives a cheaper form of √w·(f − y) and √w·∂f/∂β than ``function`` and ``jacobian`` weighted here
+    (:attr:`curvewright.core.curve_families.CurveFamily.weighted_problem`); it must give the same numbers.
 
     Never raises for a fit that fails to converge: the result says so in ``converged`` and ``reason``,
     and the caller decides what to tell the analyst.
@@ -131,19 +138,9 @@ def fit_nonlinear(
     root_w = np.sqrt(w)
     limit = max_evaluations or MAX_EVALUATIONS_PER_PARAMETER * (p + 1)
 
-    def residuals(beta: FloatArray) -> FloatArray:
-        with np.errstate(all="ignore"):
-            r = root_w * (function(x, beta) - y)
-        # A non-finite residual makes MINPACK wander; a huge finite one makes it step back instead.
-        finite = np.isfinite(r)
-        return r if finite.all() else np.where(finite, r, 1e150)
-
-    def weighted_jacobian(beta: FloatArray) -> FloatArray:
-        with np.errstate(all="ignore"):
-            j = root_w[:, None] * jacobian(x, beta)
-        finite = np.isfinite(j)
-        return j if finite.all() else np.where(finite, j, 0.0)
-
+    residuals, weighted_jacobian = (
+        _weighted_problem(function, jacobian, x, y, root_w) if problem is None else _finite(*problem(x, y, root_w))
+    )
     if not np.all(np.isfinite(beta0)):
         return _failed(function, jacobian, x, y, beta0, root_w, 0, "the start values are not all finite numbers")
     if n < p:
@@ -153,18 +150,108 @@ def fit_nonlinear(
         # MINPACK's lmder itself (mode 1: the scaling follows the Jacobian's column norms, step bound
         # factor 100); the same iterations as least_squares(method="lm", x_scale="jac"), without its
         # per-call set-up, which costs more than the fit on a few dozen standards.
-        beta, _, info, _, code = optimize.leastsq(
-            residuals, beta0, Dfun=weighted_jacobian, full_output=True, col_deriv=False,
-            ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, maxfev=limit, factor=100.0, diag=None,
-        )
+        with np.errstate(all="ignore"):
+            beta, info, code = _lmder(residuals, weighted_jacobian, beta0, limit)
     except (ValueError, TypeError, np.linalg.LinAlgError) as exc:  # improper input reported by MINPACK
         return _failed(function, jacobian, x, y, beta0, root_w, 0, f"the fit could not start ({exc})")
     status = _STATUS.get(int(code), -1)
     beta = np.asarray(beta, dtype=np.float64)
     evaluations = int(info["nfev"])
+    return _finish(function, jacobian, x, y, root_w, residuals, weighted_jacobian, beta, status, code, evaluations,
+                   limit)
+
+
+def _lmder(
+    residuals: Callable[[FloatArray], FloatArray], jacobian: Callable[[FloatArray], FloatArray],
+    beta0: FloatArray, limit: int,
+) -> tuple[FloatArray, dict, int]:  # type: ignore[type-arg]
+    """MINPACK's lmder from ``beta0``: the parameters reached, the information record (``nfev``…) and
+    MINPACK's info code.
+
+    scipy's binding of lmder is called directly where it is present: ``leastsq`` around it would
+    evaluate the residuals and the Jacobian once more to check their shapes (ours are (n,) and
+    (n, p) by construction), and invert R for a covariance that is not used here. The iterations
+    are MINPACK's own either way, with the same arguments, so the results are the same.
+    """
+    binding = _minpack_lmder()
+    if binding is not None:
+        try:
+            # lmder(fcn, Dfun, x0, args, full_output, col_deriv, ftol, xtol, gtol, maxfev, factor, diag)
+            beta, info, code = binding(residuals, jacobian, beta0, (), 1, 0, TOLERANCE, TOLERANCE, TOLERANCE, limit,
+                                       100.0, None)
+            return beta, info, int(code)
+        except TypeError:
+            pass  # a scipy whose binding takes other arguments: leastsq below (which raises improper input again)
+    beta, _, info, _, code = optimize.leastsq(
+        residuals, beta0, Dfun=jacobian, full_output=True, col_deriv=False,
+        ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, maxfev=limit, factor=100.0, diag=None,
+    )
+    return beta, info, int(code)
+
+
+_BINDING: list[Callable[..., tuple[FloatArray, dict, int]] | None] = []  # type: ignore[type-arg]
+
+
+def _minpack_lmder() -> Callable[..., tuple[FloatArray, dict, int]] | None:  # type: ignore[type-arg]
+    """scipy's compiled lmder, or None where this scipy does not expose it under that name."""
+    if not _BINDING:
+        try:
+            from scipy.optimize import _minpack  # type: ignore[attr-defined]
+
+            _BINDING.append(getattr(_minpack, "_lmder", None))
+        except ImportError:
+            _BINDING.append(None)
+    return _BINDING[0]
+
+
+def _weighted_problem(
+    function: ModelFunction, jacobian: JacobianFunction, x: FloatArray, y: FloatArray, root_w: FloatArray
+) -> tuple[Callable[[FloatArray], FloatArray], Callable[[FloatArray], FloatArray]]:
+    """The weighted residuals √wᵢ·(f(xᵢ; β) − yᵢ) and their Jacobian, as functions of β."""
+
+    return _finite(lambda beta: root_w * (function(x, beta) - y), lambda beta: root_w[:, None] * jacobian(x, beta))
+
+
+def _finite(
+    residuals: Callable[[FloatArray], FloatArray], jacobian: Callable[[FloatArray], FloatArray]
+) -> tuple[Callable[[FloatArray], FloatArray], Callable[[FloatArray], FloatArray]]:
+    """The weighted residuals and Jacobian with their non-finite values replaced (see below).
+
+    Called only inside np.errstate(all="ignore") (around MINPACK and the Gauss–Newton steps), so
+    that an overflow on the way is not reported as an error: one context for all evaluations. A
+    finite sum means every term is finite (an infinity or NaN anywhere makes it infinite or NaN);
+    only when it is not are the values looked at one by one.
+    """
+
+    def finite_residuals(beta: FloatArray) -> FloatArray:
+        r = residuals(beta)
+        if np.isfinite(np.add.reduce(r)):
+            return r
+        # A non-finite residual makes MINPACK wander; a huge finite one makes it step back instead.
+        finite = np.isfinite(r)
+        return r if finite.all() else np.where(finite, r, 1e150)
+
+    def finite_jacobian(beta: FloatArray) -> FloatArray:
+        j = jacobian(beta)
+        if np.isfinite(np.add.reduce(j, axis=None)):
+            return j
+        finite = np.isfinite(j)
+        return j if finite.all() else np.where(finite, j, 0.0)
+
+    return finite_residuals, finite_jacobian
+
+
+def _finish(
+    function: ModelFunction, jacobian: JacobianFunction, x: FloatArray, y: FloatArray, root_w: FloatArray,
+    residuals: Callable[[FloatArray], FloatArray], weighted_jacobian: Callable[[FloatArray], FloatArray],
+    beta: FloatArray, status: int, code: int, evaluations: int, limit: int,
+) -> NonlinearFit:
+    """The fit's record from the point MINPACK reached, polished by :func:`_refine` when it converged."""
+    n, p = y.size, beta.size
     svd = None
     if status > 0:
-        beta, extra, svd = _refine(residuals, weighted_jacobian, beta)
+        with np.errstate(all="ignore"):
+            beta, extra, svd = _refine(residuals, weighted_jacobian, beta)
         evaluations += extra
     with np.errstate(all="ignore"):
         fitted = function(x, beta)
@@ -209,8 +296,8 @@ def _refine(
     """
     r = residuals(beta)
     j = jacobian(beta)
-    u, s, vt, scale = _scaled_svd(j)
-    gradient = float(np.linalg.norm((j / scale).T @ r))
+    u, s, vt, scale = _scaled_svd(j, quiet=True)
+    gradient = _norm((j / scale).T @ r)
     evaluations = 0
     for _ in range(_REFINE_STEPS):
         if s[-1] <= RANK_TOLERANCE * s[0] or gradient == 0.0:
@@ -219,21 +306,70 @@ def _refine(
         r_trial = residuals(trial)
         j_trial = jacobian(trial)
         evaluations += 1
-        u_t, s_t, vt_t, scale_t = _scaled_svd(j_trial)
-        gradient_trial = float(np.linalg.norm((j_trial / scale_t).T @ r_trial))
+        scale_t = _column_scale(j_trial)
+        scaled_t = j_trial / scale_t
+        gradient_trial = _norm(scaled_t.T @ r_trial)
         if not gradient_trial < gradient:
-            break
+            break  # the trial is not kept: its SVD is never needed
         beta, r, gradient = trial, r_trial, gradient_trial
-        u, s, vt, scale = u_t, s_t, vt_t, scale_t
+        u, s, vt = _thin_svd(scaled_t, quiet=True)
+        scale = scale_t
     return beta, evaluations, (u, s, vt, scale)
 
 
-def _scaled_svd(j: FloatArray) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
+def _norm(v: FloatArray) -> float:
+    """‖v‖₂ of a vector as numpy.linalg.norm takes it (√(v·v)), without its argument handling."""
+    return math.sqrt(float(v @ v))
+
+
+def _column_scale(j: FloatArray) -> FloatArray:
+    """The column norms of J (1 for a column of zeros)."""
+    scale = np.sqrt(np.add.reduce(j * j, axis=0))
+    return np.where(scale > 0, scale, 1.0)
+
+
+def _scaled_svd(j: FloatArray, quiet: bool = False) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:
     """SVD of J with its columns scaled to unit length: J·D⁻¹ = U·diag(s)·Vᵀ, D = column norms."""
-    scale = np.sqrt(np.sum(j * j, axis=0))
-    scale = np.where(scale > 0, scale, 1.0)
-    u, s, vt = np.linalg.svd(j / scale, full_matrices=False)
+    scale = _column_scale(j)
+    u, s, vt = _thin_svd(j / scale, quiet)
     return u, s, vt, scale
+
+
+def _thin_svd(a: FloatArray, quiet: bool = False) -> tuple[FloatArray, FloatArray, FloatArray]:
+    """numpy.linalg.svd(a, full_matrices=False) of a real matrix: the same LAPACK routine through
+    numpy's own binding, without the wrapper's checks and error-state set-up, which cost more than
+    the decomposition of a few dozen rows by two to five columns. Where the routine does not
+    converge (its values are not finite) the answer is numpy.linalg.svd's, which raises.
+    ``quiet``: the caller runs inside np.errstate(invalid="ignore") already (the Gauss–Newton steps)."""
+    binding = _svd_binding()
+    if binding is not None:
+        try:
+            if quiet:
+                u, s, vt = binding(a, signature="d->ddd")
+            else:
+                with np.errstate(invalid="ignore"):  # a failure is answered by numpy.linalg.svd below
+                    u, s, vt = binding(a, signature="d->ddd")
+        except (TypeError, ValueError):
+            s = np.array([np.nan])  # a numpy whose binding is called otherwise: numpy.linalg.svd below
+        if np.isfinite(np.add.reduce(s)):
+            return u, s, vt
+    u, s, vt = np.linalg.svd(a, full_matrices=False)
+    return u, s, vt
+
+
+_SVD: list[Callable[..., tuple[FloatArray, FloatArray, FloatArray]] | None] = []
+
+
+def _svd_binding() -> Callable[..., tuple[FloatArray, FloatArray, FloatArray]] | None:
+    """numpy's compiled thin SVD (what numpy.linalg.svd calls), or None where it is not found."""
+    if not _SVD:
+        try:
+            from numpy.linalg import _umath_linalg  # type: ignore[attr-defined]
+
+            _SVD.append(getattr(_umath_linalg, "svd_s", None))
+        except ImportError:
+            _SVD.append(None)
+    return _SVD[0]
 
 
 def _result(

@@ -172,8 +172,12 @@ def fit_nonlinear_curve(
     levels: Levels,
     response_sd: FloatArray | None,
     anchor_points: object | None,
+    shared: dict[str, list[FloatArray]] | None = None,
 ) -> NonlinearCalibration:
-    """Fit a 4PL, 5PL or power curve to checked standards (passed by :func:`~.fitting.fit` to :func:`~.calibration.fit`)."""
+    """Fit a 4PL, 5PL or power curve to checked standards (passed by :func:`~.fitting.fit` to :func:`~.calibration.fit`).
+
+    ``shared``: a dictionary kept by a caller fitting the same standards under several weightings, in
+    which the start values (they depend on the standards alone) are kept after the first fit."""
     family = FAMILIES[model]
     anchors = _anchor_mask(model, x, anchor_points)
     if model is Model.POWER:
@@ -194,7 +198,13 @@ def fit_nonlinear_curve(
     fitter = _MeanFitter(family) if weighting.variance_function is not None else None
     weights = make_weights(weighting, x, y, levels, response_sd, model, fitter)
     w = weights.weights
-    fit = _best_fit(family, x, y, w)
+    if shared is None:
+        starts = None
+    else:
+        if "starts" not in shared:
+            shared["starts"] = family.starts(x, y)
+        starts = shared["starts"]
+    fit = _best_fit(family, x, y, w, starts)
     if fitter is not None:
         fitter.start = fit.parameters.copy()
     p = model.n_parameters
@@ -205,10 +215,10 @@ def fit_nonlinear_curve(
     residual_sd = float(np.sqrt((clean @ clean) / df))
     covariance = residual_sd**2 * fit.unscaled_covariance
     coefficients = fit.parameters.copy()
-    mean_w = float(np.sum(w * y) / np.sum(w))
-    sst = float(np.sum(w * (y - mean_w) ** 2))
+    mean_w = float(np.add.reduce(w * y) / np.add.reduce(w))
+    sst = float(np.add.reduce(w * (y - mean_w) ** 2))
     sse = float(clean @ clean)
-    if sst <= x.size * (ROUNDOFF * float(np.max(np.abs(root_wy)))) ** 2:
+    if sst <= x.size * (ROUNDOFF * float(np.maximum.reduce(np.abs(root_wy)))) ** 2:
         r_squared = 0.0
     else:
         r_squared = 1.0 - sse / sst
@@ -268,6 +278,35 @@ def fit_nonlinear_curve(
     )
 
 
+def fit_curve_weightings(
+    concentration: object,
+    response: object,
+    model: Model,
+    weightings: list[Weighting],
+    *,
+    response_sd: list[object | None],
+    level_tolerance: float | None = None,
+    levels: Levels | None = None,
+) -> list[Calibration | CalibrationInputError]:
+    """:func:`~.fitting.fit` of the power curve under each of ``weightings`` (``response_sd``: each
+    one's, None for none): the standards checked once and the start values worked out once. Each
+    entry is the calibration fit() returns for that weighting or the error it raises, the same numbers."""
+    from .calibration import _checked_standards
+
+    try:
+        x, y, levels = _checked_standards(concentration, response, model, level_tolerance, None, levels)
+    except CalibrationInputError as exc:
+        return [exc] * len(weightings)
+    shared: dict[str, list[FloatArray]] = {}
+    out: list[Calibration | CalibrationInputError] = []
+    for weighting, sd in zip(weightings, response_sd, strict=True):
+        try:
+            out.append(fit_nonlinear_curve(model, weighting, x, y, levels, sd, None, shared))
+        except CalibrationInputError as exc:
+            out.append(exc)
+    return out
+
+
 class _MeanFitter:
     """The weighted nonlinear fit of ``family`` as the variance-function cycles call it (a
     :data:`~.variance_function.MeanFitter`).
@@ -286,7 +325,7 @@ class _MeanFitter:
         family = self.family
         fit = None
         if self.start is not None:
-            fit = fit_nonlinear(family.function, family.jacobian, x, y, self.start, w)
+            fit = fit_nonlinear(family.function, family.jacobian, x, y, self.start, w, problem=family.weighted_problem)
             if not fit.converged or _implausible(family, fit):
                 fit = None
         if fit is None:
@@ -335,13 +374,16 @@ def _anchor_mask(model: Model, x: FloatArray, anchor_points: object | None) -> n
     return mask.copy()
 
 
-def _best_fit(family: CurveFamily, x: FloatArray, y: FloatArray, w: FloatArray) -> NonlinearFit:
+def _best_fit(
+    family: CurveFamily, x: FloatArray, y: FloatArray, w: FloatArray, starts: list[FloatArray] | None = None
+) -> NonlinearFit:
     """Fit from every start; keep the converged, plausible fit with the smallest weighted sum of squares.
 
     A start that does not converge stops after a bounded number of evaluations (:mod:`.nonlinear`), and
-    the reasons of every failure are reported if no start succeeds.
+    the reasons of every failure are reported if no start succeeds. ``starts``: the family's start
+    values from these standards when the caller has them already.
     """
-    starts = family.starts(x, y)
+    starts = family.starts(x, y) if starts is None else list(starts)
     if family.model is Model.FIVE_PL:
         four = FAMILIES[Model.FOUR_PL]
         try:
@@ -352,7 +394,7 @@ def _best_fit(family: CurveFamily, x: FloatArray, y: FloatArray, w: FloatArray) 
     best: NonlinearFit | None = None
     failures: list[str] = []
     for start in starts:
-        result = fit_nonlinear(family.function, family.jacobian, x, y, start, w)
+        result = fit_nonlinear(family.function, family.jacobian, x, y, start, w, problem=family.weighted_problem)
         problem = _implausible(family, result) if result.converged else result.reason
         if problem:
             failures.append(problem)
@@ -384,7 +426,7 @@ def _implausible(family: CurveFamily, result: NonlinearFit) -> str | None:
 
 def _regression_test(fitted: FloatArray, y: FloatArray, sst: float, sse: float, p: int, df: int) -> RegressionTest:
     dfs = (p - 1, df)
-    if float(np.ptp(fitted)) <= ROUNDOFF * float(np.max(np.abs(y))):
+    if float(np.ptp(fitted)) <= ROUNDOFF * float(np.maximum.reduce(np.abs(y))):
         return RegressionTest(0.0, dfs, 1.0)
     if sse == 0.0:
         return RegressionTest(float("inf"), dfs, 0.0)

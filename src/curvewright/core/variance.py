@@ -97,11 +97,13 @@ def variance_evidence(response: FloatArray, levels: Levels, residuals: FloatArra
     """
     deviations = _within_level(response if residuals is None else residuals, levels)
     end = _end_level_test(deviations, levels)
-    groups = [deviations[levels.index == j] for j in np.flatnonzero(levels.count >= 2)]
-    bartlett = _across_levels("Bartlett", groups, bartlett_statistic)
+    replicated = levels.count >= 2
+    keep = replicated[levels.index]
+    groups = _Groups.of(deviations[keep], (np.cumsum(replicated) - 1)[levels.index[keep]], levels.count[replicated])
+    bartlett = _across_levels("Bartlett", groups, _bartlett)
     brown = (
-        _across_levels("Brown–Forsythe", groups, brown_forsythe_statistic)
-        if all(g.size >= 3 for g in groups)
+        _across_levels("Brown–Forsythe", groups, _brown_forsythe)
+        if bool(np.all(groups.size >= 3))
         else VarianceTest("Brown–Forsythe", False, "needs at least 3 replicates at every replicated level")
     )
     pooled, theta, interval, used, degrees = _pooled_power_test(response, deviations, levels)
@@ -225,12 +227,71 @@ def _end_level_test(deviations: FloatArray, levels: Levels) -> VarianceTest:
     )
 
 
+@dataclass(frozen=True)
+class _Groups:
+    """Groups of values held as flat arrays: ``values`` (shape (N,)), ``group`` (the group number of
+    each value, 0 to k − 1, every group present) and ``size`` (shape (k,), the number in each), so
+    that a statistic of every group is one pass over the arrays rather than one call per group."""
+
+    values: FloatArray
+    group: np.ndarray
+    size: np.ndarray
+
+    @classmethod
+    def of(cls, values: FloatArray, group: np.ndarray, size: np.ndarray) -> "_Groups":
+        return cls(np.asarray(values, dtype=float), np.asarray(group, dtype=np.intp), np.asarray(size, dtype=np.intp))
+
+    @classmethod
+    def from_list(cls, groups: tuple[FloatArray, ...]) -> "_Groups":
+        size = np.array([np.size(g) for g in groups], dtype=np.intp)
+        values = np.concatenate([np.ravel(np.asarray(g, dtype=float)) for g in groups]) if groups else np.zeros(0)
+        return cls(values, np.repeat(np.arange(size.size), size), size)
+
+    @property
+    def k(self) -> int:
+        return int(self.size.size)
+
+    def sums(self, values: FloatArray) -> FloatArray:
+        """Σ of ``values`` (aligned with :attr:`values`) within each group."""
+        return np.bincount(self.group, weights=values, minlength=self.k)
+
+    def means(self, values: FloatArray) -> FloatArray:
+        return self.sums(values) / self.size
+
+    def variances(self) -> FloatArray:
+        """Sample variance (n − 1) of each group: Σ(v − v̄)²/(n − 1)."""
+        return self.sums((self.values - self.means(self.values)[self.group]) ** 2) / (self.size - 1)
+
+    def sorted_values(self) -> FloatArray:
+        """The values sorted within each group, groups one after another in order."""
+        return self.values[np.lexsort((self.values, self.group))]
+
+    def starts(self) -> np.ndarray:
+        return np.concatenate(([0], np.cumsum(self.size)[:-1])).astype(np.intp)
+
+    def medians(self) -> FloatArray:
+        """Median of each group: the middle value, or the mean of the two middle values."""
+        ordered, starts = self.sorted_values(), self.starts()
+        lower = ordered[starts + (self.size - 1) // 2]
+        upper = ordered[starts + self.size // 2]
+        return np.where(self.size % 2 == 1, upper, (lower + upper) / 2)
+
+    def constant(self) -> np.ndarray:
+        """Boolean of shape (k,): all values of the group are equal."""
+        ordered, starts = self.sorted_values(), self.starts()
+        return ordered[starts] == ordered[starts + self.size - 1]
+
+
 def bartlett_statistic(*groups: FloatArray) -> tuple[float, float]:
     """Bartlett's T and its p-value (χ² with k − 1 df), as in Snedecor & Cochran, *Statistical Methods*:
     T = [(N − k)·ln s²_p − Σ(nᵢ − 1)·ln s²ᵢ] / [1 + (Σ 1/(nᵢ − 1) − 1/(N − k)) / (3(k − 1))]."""
-    n = np.array([g.size for g in groups], dtype=float)
-    var = np.array([np.var(g, ddof=1) for g in groups])
-    k, total = len(groups), n.sum()
+    return _bartlett(_Groups.from_list(groups))
+
+
+def _bartlett(groups: _Groups) -> tuple[float, float]:
+    n = groups.size.astype(float)
+    var = groups.variances()
+    k, total = groups.k, n.sum()
     pooled = np.sum((n - 1) * var) / (total - k)
     numerator = (total - k) * np.log(pooled) - np.sum((n - 1) * np.log(var))
     denominator = 1 + (np.sum(1 / (n - 1)) - 1 / (total - k)) / (3 * (k - 1))
@@ -243,24 +304,28 @@ def bartlett_statistic(*groups: FloatArray) -> tuple[float, float]:
 def brown_forsythe_statistic(*groups: FloatArray) -> tuple[float, float]:
     """Levene's W on absolute deviations from each group's median (Brown & Forsythe 1974), with its
     F(k − 1, N − k) p-value."""
-    deviations = [np.abs(g - np.median(g)) for g in groups]
-    n = np.array([d.size for d in deviations], dtype=float)
-    means = np.array([d.mean() for d in deviations])
-    k, total = len(groups), n.sum()
+    return _brown_forsythe(_Groups.from_list(groups))
+
+
+def _brown_forsythe(groups: _Groups) -> tuple[float, float]:
+    deviations = np.abs(groups.values - groups.medians()[groups.group])
+    n = groups.size.astype(float)
+    means = groups.means(deviations)
+    k, total = groups.k, n.sum()
     grand = np.sum(n * means) / total
-    within = sum(float(np.sum((d - m) ** 2)) for d, m in zip(deviations, means))
+    within = float(np.sum(groups.sums((deviations - means[groups.group]) ** 2)))
     statistic = float((total - k) / (k - 1) * np.sum(n * (means - grand) ** 2) / within)
     return statistic, f_upper_tail(statistic, k - 1, total - k)
 
 
-def _across_levels(name: str, groups: list[FloatArray], test) -> VarianceTest:  # type: ignore[no-untyped-def]
-    if len(groups) < 2:
+def _across_levels(name: str, groups: _Groups, test) -> VarianceTest:  # type: ignore[no-untyped-def]
+    if groups.k < 2:
         return VarianceTest(name, False, "needs at least two replicated levels")
-    if any(np.ptp(g) == 0.0 for g in groups):
+    if bool(np.any(groups.constant())):
         return VarianceTest(name, False, "a replicated level has identical replicates (zero variance)")
     with np.errstate(divide="ignore", invalid="ignore"):
-        stat, p = test(*groups)
+        stat, p = test(groups)
     if not (np.isfinite(stat) and np.isfinite(p)):
         return VarianceTest(name, False, "the replicates do not allow the test (degenerate spread)")
-    df = (len(groups) - 1,) if name == "Bartlett" else (len(groups) - 1, sum(map(len, groups)) - len(groups))
+    df = (groups.k - 1,) if name == "Bartlett" else (groups.k - 1, int(groups.size.sum()) - groups.k)
     return VarianceTest(name, True, statistic=stat, df=df, p_value=p, significant=bool(p < ACROSS_LEVELS_ALPHA))
