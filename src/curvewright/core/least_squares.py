@@ -16,6 +16,13 @@ import numpy as np
 from ._arrays import FloatArray
 from .errors import CalibrationInputError
 
+try:
+    from numpy.linalg import _umath_linalg as _numpy_routines  # type: ignore[attr-defined]
+except ImportError:  # a numpy that keeps its compiled routines elsewhere: numpy.linalg.qr is used
+    _numpy_routines = None
+_QR: tuple[object, object] = (getattr(_numpy_routines, "qr_r_raw", None), getattr(_numpy_routines, "qr_reduced", None))
+"""numpy's compiled QR steps (what numpy.linalg.qr calls), or Nones where this numpy has them not."""
+
 RANK_TOLERANCE = 1e-11
 """Smallest |R_jj|/max|R_kk| accepted before the design is called rank deficient."""
 ROUNDOFF = 1000.0 * np.finfo(float).eps
@@ -98,7 +105,7 @@ def _thin_qr(a: FloatArray) -> tuple[FloatArray, FloatArray]:
     (k, n, p), each decomposed on its own: the same LAPACK routines (Householder QR, then Q formed
     from the reflectors) through numpy's own binding, without the wrapper's checks and error-state
     set-up. Where they give numbers that are not finite, the answer is numpy.linalg.qr's."""
-    qr_raw, qr_reduced = _qr_bindings()
+    qr_raw, qr_reduced = _QR
     if qr_raw is not None and qr_reduced is not None:
         packed = np.array(a, dtype=np.float64, order="C")  # overwritten by R and the reflectors
         try:
@@ -114,21 +121,6 @@ def _thin_qr(a: FloatArray) -> tuple[FloatArray, FloatArray]:
                 return q, r
     q, r = np.linalg.qr(a, mode="reduced")
     return q, r
-
-
-_QR: list[tuple[object, object]] = []
-
-
-def _qr_bindings() -> tuple[object, object]:
-    """numpy's compiled QR steps (what numpy.linalg.qr calls), or Nones where they are not found."""
-    if not _QR:
-        try:
-            from numpy.linalg import _umath_linalg  # type: ignore[attr-defined]
-
-            _QR.append((getattr(_umath_linalg, "qr_r_raw", None), getattr(_umath_linalg, "qr_reduced", None)))
-        except ImportError:
-            _QR.append((None, None))
-    return _QR[0]
 
 
 def _back_substitute(r: list[list[float]], b: list[float]) -> list[float]:

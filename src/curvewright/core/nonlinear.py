@@ -36,6 +36,19 @@ from scipy import optimize
 
 from ._arrays import FloatArray, frozen
 
+try:
+    from numpy.linalg import _umath_linalg as _numpy_routines  # type: ignore[attr-defined]
+except ImportError:  # a numpy that keeps its compiled routines elsewhere: numpy.linalg.svd is used
+    _numpy_routines = None
+try:
+    from scipy.optimize import _minpack as _scipy_minpack  # type: ignore[attr-defined]
+except ImportError:  # a scipy that keeps its binding elsewhere: scipy.optimize.leastsq is used
+    _scipy_minpack = None
+_SVD: Callable[..., tuple[FloatArray, FloatArray, FloatArray]] | None = getattr(_numpy_routines, "svd_s", None)
+"""numpy's compiled thin SVD (what numpy.linalg.svd calls), or None where this numpy has it not."""
+_LMDER: Callable[..., tuple[FloatArray, dict, int]] | None = getattr(_scipy_minpack, "_lmder", None)  # type: ignore[type-arg]
+"""scipy's compiled MINPACK lmder (what scipy.optimize.leastsq calls), or None where this scipy has it not."""
+
 TOLERANCE = 1e-15
 """Relative tolerance on the sum of squares, the parameters and the gradient (MINPACK ftol, xtol, gtol)."""
 RANK_TOLERANCE = 1e-10
@@ -173,7 +186,7 @@ def _lmder(
     (n, p) by construction), and invert R for a covariance that is not used here. The iterations
     are MINPACK's own either way, with the same arguments, so the results are the same.
     """
-    binding = _minpack_lmder()
+    binding = _LMDER
     if binding is not None:
         try:
             # lmder(fcn, Dfun, x0, args, full_output, col_deriv, ftol, xtol, gtol, maxfev, factor, diag)
@@ -187,21 +200,6 @@ def _lmder(
         ftol=TOLERANCE, xtol=TOLERANCE, gtol=TOLERANCE, maxfev=limit, factor=100.0, diag=None,
     )
     return beta, info, int(code)
-
-
-_BINDING: list[Callable[..., tuple[FloatArray, dict, int]] | None] = []  # type: ignore[type-arg]
-
-
-def _minpack_lmder() -> Callable[..., tuple[FloatArray, dict, int]] | None:  # type: ignore[type-arg]
-    """scipy's compiled lmder, or None where this scipy does not expose it under that name."""
-    if not _BINDING:
-        try:
-            from scipy.optimize import _minpack  # type: ignore[attr-defined]
-
-            _BINDING.append(getattr(_minpack, "_lmder", None))
-        except ImportError:
-            _BINDING.append(None)
-    return _BINDING[0]
 
 
 def _weighted_problem(
@@ -341,7 +339,7 @@ def _thin_svd(a: FloatArray, quiet: bool = False) -> tuple[FloatArray, FloatArra
     the decomposition of a few dozen rows by two to five columns. Where the routine does not
     converge (its values are not finite) the answer is numpy.linalg.svd's, which raises.
     ``quiet``: the caller runs inside np.errstate(invalid="ignore") already (the Gauss–Newton steps)."""
-    binding = _svd_binding()
+    binding = _SVD
     if binding is not None:
         try:
             if quiet:
@@ -355,21 +353,6 @@ def _thin_svd(a: FloatArray, quiet: bool = False) -> tuple[FloatArray, FloatArra
             return u, s, vt
     u, s, vt = np.linalg.svd(a, full_matrices=False)
     return u, s, vt
-
-
-_SVD: list[Callable[..., tuple[FloatArray, FloatArray, FloatArray]] | None] = []
-
-
-def _svd_binding() -> Callable[..., tuple[FloatArray, FloatArray, FloatArray]] | None:
-    """numpy's compiled thin SVD (what numpy.linalg.svd calls), or None where it is not found."""
-    if not _SVD:
-        try:
-            from numpy.linalg import _umath_linalg  # type: ignore[attr-defined]
-
-            _SVD.append(getattr(_umath_linalg, "svd_s", None))
-        except ImportError:
-            _SVD.append(None)
-    return _SVD[0]
 
 
 def _result(
