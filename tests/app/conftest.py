@@ -78,6 +78,15 @@ def settle(qtbot, window) -> None:
     qtbot.wait(20)
 
 
+def close_unasked(window) -> None:  # type: ignore[no-untyped-def]
+    """Close a window once its analysis is done, as if its work had been saved (no question asked)."""
+    window.session.wait_for_analysis()
+    window.session.undo_stack.setClean()
+    window.session._unsaved_records = False
+    window.close()
+    window.deleteLater()
+
+
 class DialogAnswers(dict):
     """How the dialogs are answered, and what each one showed (``seen``: title and prompt)."""
 

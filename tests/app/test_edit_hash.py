@@ -11,7 +11,7 @@ import numpy as np
 from curvewright.app import standards_model as sm
 from curvewright.io.integrity import sha256_of_content
 from curvewright.io.run_document import dumps_run, loads_run
-from tests.app.conftest import ROOT, settle
+from tests.app.conftest import ROOT, close_unasked, settle
 
 NITRATE = ROOT / "sample_runs" / "nitrate_water_linear.json"
 
@@ -20,14 +20,6 @@ def document_hash(run) -> str:  # type: ignore[no-untyped-def]
     """The content hash of the run's document as written and read back (nothing kept from the run)."""
     text = dumps_run(run)
     return sha256_of_content(json.loads(text))
-
-
-def close(window) -> None:  # type: ignore[no-untyped-def]
-    window.session.wait_for_analysis()
-    window.session.undo_stack.setClean()
-    window.session._unsaved_records = False
-    window.close()
-    window.deleteLater()
 
 
 def test_a_typed_edit_records_the_hash_of_the_saved_content(make_window, qtbot, tmp_path, answer_dialogs) -> None:  # type: ignore[no-untyped-def]
@@ -52,8 +44,8 @@ def test_a_typed_edit_records_the_hash_of_the_saved_content(make_window, qtbot, 
     assert second.session.run is untouched
     assert second.session.run.audit[-1].content_sha256 == document_hash(untouched)
     assert first.session.run.audit[-1].content_sha256 != document_hash(untouched)
-    close(first)
-    close(second)
+    close_unasked(first)
+    close_unasked(second)
 
 
 def test_a_typed_sample_response_moves_its_point_and_its_result(make_window, qtbot, tmp_path, answer_dialogs) -> None:  # type: ignore[no-untyped-def]
@@ -91,7 +83,7 @@ def test_a_typed_sample_response_moves_its_point_and_its_result(make_window, qtb
     assert table.rows[shown[0]] is after
     entry = window.session.run.audit[-1]
     assert entry.action == "samples_edited" and entry.content_sha256 == document_hash(window.session.run)
-    close(window)
+    close_unasked(window)
 
 
 def test_the_curve_is_painted_once_after_an_edit(make_window, qtbot, tmp_path, answer_dialogs) -> None:  # type: ignore[no-untyped-def]
@@ -122,4 +114,4 @@ def test_the_curve_is_painted_once_after_an_edit(make_window, qtbot, tmp_path, a
         qtbot.wait(100)
         assert len(paints) == 1, paints
     viewport.removeEventFilter(counter)
-    close(window)
+    close_unasked(window)

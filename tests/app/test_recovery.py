@@ -8,7 +8,7 @@ import shutil
 
 from curvewright.app import standards_model as sm
 from curvewright.io.run_document import dumps_run, open_run
-from tests.app.conftest import ROOT, settle
+from tests.app.conftest import ROOT, close_unasked, settle
 
 NITRATE = ROOT / "sample_runs" / "nitrate_water_linear.json"
 
@@ -22,14 +22,6 @@ def edit_a_response(window, qtbot, text: str = "0.1111") -> None:  # type: ignor
     model.setData(model.index(3, sm.RESP), text)
     settle(qtbot, window)
     window.session.flush_recovery()
-
-
-def close(window) -> None:  # type: ignore[no-untyped-def]
-    window.session.wait_for_analysis()
-    window.session.undo_stack.setClean()
-    window.session._unsaved_records = False
-    window.close()
-    window.deleteLater()
 
 
 def test_save_as_of_a_new_run_leaves_nothing_to_recover(make_window, qtbot, tmp_path, settings, monkeypatch,
@@ -53,7 +45,7 @@ def test_save_as_of_a_new_run_leaves_nothing_to_recover(make_window, qtbot, tmp_
     monkeypatch.setattr(QMessageBox, "question", lambda *a, **k: asked.append(a) or QMessageBox.StandardButton.Yes)
     restarted = build_window(None, settings=settings, recovery_folder=folder)
     assert asked == [] and restarted.session.path is None  # nothing offered as unsaved work
-    close(restarted)
+    close_unasked(restarted)
 
 
 def test_the_recovery_file_names_its_document_by_itself(make_window, qtbot, tmp_path, settings, answer_dialogs) -> None:
@@ -72,7 +64,7 @@ def test_the_recovery_file_names_its_document_by_itself(make_window, qtbot, tmp_
     settle(qtbot, restored)
     assert restored.session.path == document
     assert restored.session.run.analyte("nitrate-N").standards[3].response.text == "0.1111"
-    close(restored)
+    close_unasked(restored)
 
 
 def test_a_recovery_file_of_the_earlier_kind_is_still_offered(qtbot, tmp_path, settings, answer_dialogs) -> None:
@@ -87,7 +79,7 @@ def test_a_recovery_file_of_the_earlier_kind_is_still_offered(qtbot, tmp_path, s
     settle(qtbot, restored)
     assert restored.session.path == NITRATE and restored.session.run.audit[-1].action == "recovered_after_crash"
     assert "recovery-0123456789abcdef.source" not in recovery_files(folder)  # offered once, then removed
-    close(restored)
+    close_unasked(restored)
 
 
 def test_a_damaged_recovery_file_falls_back_to_its_backup(qtbot, tmp_path, settings, answer_dialogs) -> None:
@@ -103,7 +95,7 @@ def test_a_damaged_recovery_file_falls_back_to_its_backup(qtbot, tmp_path, setti
     restored = build_window(None, settings=settings, recovery_folder=folder)
     settle(qtbot, restored)
     assert restored.session.path == NITRATE
-    close(restored)
+    close_unasked(restored)
 
 
 def test_a_recovery_folder_that_cannot_be_written_is_reported_once(qtbot, tmp_path, settings, answer_dialogs) -> None:
@@ -123,7 +115,7 @@ def test_a_recovery_folder_that_cannot_be_written_is_reported_once(qtbot, tmp_pa
     assert len(warnings) == 1
     assert "cannot be kept for recovery" in warnings[0] and str(blocker) in warnings[0]
     assert "Save the run to keep your changes" in warnings[0]
-    close(window)
+    close_unasked(window)
 
 
 def test_edits_made_while_a_recovery_write_is_under_way_are_written_once_together(make_window, qtbot, tmp_path,
@@ -165,4 +157,4 @@ def test_edits_made_while_a_recovery_write_is_under_way_are_written_once_togethe
     recovered, _ = open_recovery(session.recovery_path())
     assert recovered.run == session.run
     assert "0.1114" in [s.response.text for s in recovered.run.analytes[0].standards]
-    close(window)
+    close_unasked(window)

@@ -100,40 +100,31 @@ def test_variance_tests_against_scipy() -> None:
     assert stats.f.ppf(0.99, 9, 9) == pytest.approx(5.35, abs=0.005)
 
 
-def test_bartlett_and_brown_forsythe_match_scipy() -> None:
-    # scipy.stats is the reference library for both tests
+def assert_variance_tests_match_scipy(groups: list[np.ndarray], rel: float) -> None:
+    # scipy.stats.bartlett and scipy.stats.levene(center="median") are the reference library for both tests
     from scipy import stats
 
     from curvewright.core.variance import bartlett_statistic, brown_forsythe_statistic
 
-    rng = np.random.default_rng(5)
-    groups = [rng.normal(0, s, n) for s, n in ((1, 3), (2, 4), (4, 5), (3, 3))]
-    t, p = bartlett_statistic(*groups)
     ref = stats.bartlett(*groups)
-    assert (t, p) == pytest.approx((ref.statistic, ref.pvalue), rel=1e-12)
-    w, p = brown_forsythe_statistic(*groups)
+    assert bartlett_statistic(*groups) == pytest.approx((ref.statistic, ref.pvalue), rel=rel)
     ref = stats.levene(*groups, center="median")
-    assert (w, p) == pytest.approx((ref.statistic, ref.pvalue), rel=1e-12)
+    assert brown_forsythe_statistic(*groups) == pytest.approx((ref.statistic, ref.pvalue), rel=rel)
+
+
+def test_bartlett_and_brown_forsythe_match_scipy() -> None:
+    rng = np.random.default_rng(5)
+    assert_variance_tests_match_scipy([rng.normal(0, s, n) for s, n in ((1, 3), (2, 4), (4, 5), (3, 3))], 1e-12)
 
 
 def test_bartlett_and_brown_forsythe_match_scipy_over_unequal_groups() -> None:
-    # scipy.stats.bartlett and scipy.stats.levene(center="median") are the references. The groups are
-    # worked as flat arrays: odd and even sizes (the median of an even group is the mean of the
-    # middle two), groups of up to 12, given in any order within a group.
-    from scipy import stats
-
-    from curvewright.core.variance import bartlett_statistic, brown_forsythe_statistic
-
+    # The groups are worked as flat arrays: odd and even sizes (the median of an even group is the
+    # mean of the middle two), groups of up to 12, given in any order within a group.
     rng = np.random.default_rng(15)
     for _ in range(60):
         sizes = rng.integers(3, 13, size=rng.integers(2, 9))
         groups = [rng.normal(0, rng.uniform(0.1, 10), n) * 10 ** rng.uniform(-4, 4) for n in sizes]
-        t, p = bartlett_statistic(*groups)
-        ref = stats.bartlett(*groups)
-        assert (t, p) == pytest.approx((ref.statistic, ref.pvalue), rel=1e-11)
-        w, p = brown_forsythe_statistic(*groups)
-        ref = stats.levene(*groups, center="median")
-        assert (w, p) == pytest.approx((ref.statistic, ref.pvalue), rel=1e-11)
+        assert_variance_tests_match_scipy(groups, 1e-11)
 
 
 def test_the_line_through_the_origin_is_not_made_to_look_better_than_a_needed_intercept() -> None:

@@ -158,6 +158,21 @@ def test_a_run_that_could_not_be_opened_again_is_not_saved(tmp_path) -> None:
     assert path.read_bytes() == before
 
 
+def parsed_counting_oversized(text: str) -> tuple[object, bool]:
+    """The document parsed as the reader parses it, and whether a whole number was too long to keep."""
+    from curvewright.io import run_document
+
+    oversized: list[object] = []
+
+    def whole(digits: str) -> object:
+        value = run_document._whole_number(digits)
+        if isinstance(value, run_document._Oversized):
+            oversized.append(value)
+        return value
+
+    return json.loads(text, parse_int=whole), bool(oversized)
+
+
 @pytest.mark.parametrize("text", [
     "[]", "{}", '"plain"', "12", "[" * 64 + "]" * 64, "[" * 65 + "]" * 65, '{"a":' * 64 + "1" + "}" * 64,
     '{"a":' * 65 + "1" + "}" * 65, '["' + "[" * 200 + '"]', '{"k": "\\ud800"}', '{"\\udfff": 1}',
@@ -169,17 +184,9 @@ def test_the_quick_structure_check_never_passes_what_the_full_walk_refuses(text:
     quick check must find one whenever the walk would report something."""
     from curvewright.io import run_document
 
-    oversized: list[object] = []
-
-    def whole(digits: str) -> object:
-        value = run_document._whole_number(digits)
-        if isinstance(value, run_document._Oversized):
-            oversized.append(value)
-        return value
-
-    document = json.loads(text, parse_int=whole)
+    document, oversized = parsed_counting_oversized(text)
     found = run_document._structure_problems(document)
-    quick = run_document._may_have_structure_problems(text, document, bool(oversized))
+    quick = run_document._may_have_structure_problems(text, document, oversized)
     assert quick or not found, found
     # it finds a reason where there is none only for a surrogate-like escape (a pair, or a backslash written out)
     assert not quick or found or text in ('{"k": "\\ud83d\\ude00"}', '["\\\\ud800"]')
@@ -209,22 +216,14 @@ def test_every_kind_of_structure_problem_has_a_sign_the_quick_check_asks() -> No
     noted = set(re.findall(r'\bnote\("(\w+)"', inspect.getsource(run_document._structure_problems)))
     assert noted == set(run_document._STRUCTURE_KINDS) == set(_ONE_OF_EACH_KIND)
     for kind, (text, words) in _ONE_OF_EACH_KIND.items():
-        oversized: list[object] = []
-
-        def whole(digits: str) -> object:
-            value = run_document._whole_number(digits)
-            if isinstance(value, run_document._Oversized):
-                oversized.append(value)
-            return value
-
-        document = json.loads(text, parse_int=whole)
-        assert run_document._STRUCTURE_KINDS[kind](text, document, bool(oversized)), kind
-        assert run_document._may_have_structure_problems(text, document, bool(oversized)), kind
+        document, oversized = parsed_counting_oversized(text)
+        assert run_document._STRUCTURE_KINDS[kind](text, document, oversized), kind
+        assert run_document._may_have_structure_problems(text, document, oversized), kind
         found = run_document._structure_problems(document)
         assert len(found) == 1 and words in found[0], (kind, found)
         # the other signs stay quiet, so each kind is seen by its own sign
         others = [k for k, sign in run_document._STRUCTURE_KINDS.items()
-                  if k != kind and sign(text, document, bool(oversized))]
+                  if k != kind and sign(text, document, oversized)]
         assert others == [], (kind, others)
 
 

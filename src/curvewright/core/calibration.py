@@ -133,22 +133,11 @@ def fit(
     """
     model = Model.parse(model)
     weighting = Weighting.parse(weighting)
-    x = as_finite_vector(concentration, "concentration", CalibrationInputError)
-    y = as_finite_vector(response, "response", CalibrationInputError)
-    if x.size != y.size:
-        raise CalibrationInputError(
-            f"standards: {x.size} concentrations but {y.size} responses; each standard needs both."
-        )
+    x, y = _standard_vectors(concentration, response)
     p = model.n_parameters
-    if model is Model.AVERAGE_RF and x.size == y.size:
+    if model is Model.AVERAGE_RF:
         weighting = response_factor_weighting(weighting, x, response_sd)
-    if x.size == 0:
-        raise CalibrationInputError("standards: none given; a calibration needs standards.")
-    if levels is None or levels.index.size != x.size:
-        levels = group_levels(x, level_tolerance, level_labels)
-    _check_design(x, model, p)
-    x.setflags(write=False)
-    y.setflags(write=False)
+    levels = _checked_design(x, y, model, level_tolerance, level_labels, levels)
     if not model.is_polynomial:
         if curve_fitter is None:
             raise CalibrationInputError(f"model {model.value}: fitted by curvewright.fit, which also fits the curves "
@@ -235,21 +224,35 @@ def _checked_standards(
 ) -> tuple[FloatArray, FloatArray, Levels]:
     """The standards as read-only arrays with their levels, checked as :func:`fit` checks them for a
     polynomial model (the checks that do not depend on the weighting)."""
+    x, y = _standard_vectors(concentration, response)
+    return x, y, _checked_design(x, y, model, level_tolerance, level_labels, levels)
+
+
+def _standard_vectors(concentration: object, response: object) -> tuple[FloatArray, FloatArray]:
+    """The standards' concentrations and responses as finite vectors of one length."""
     x = as_finite_vector(concentration, "concentration", CalibrationInputError)
     y = as_finite_vector(response, "response", CalibrationInputError)
     if x.size != y.size:
         raise CalibrationInputError(
             f"standards: {x.size} concentrations but {y.size} responses; each standard needs both."
         )
-    p = model.n_parameters
+    return x, y
+
+
+def _checked_design(
+    x: FloatArray, y: FloatArray, model: Model, level_tolerance: float | None,
+    level_labels: Sequence[str] | None, levels: Levels | None,
+) -> Levels:
+    """The standards' levels, once the standards are known to be there and to support the model;
+    the vectors are made read-only."""
     if x.size == 0:
         raise CalibrationInputError("standards: none given; a calibration needs standards.")
     if levels is None or levels.index.size != x.size:
         levels = group_levels(x, level_tolerance, level_labels)
-    _check_design(x, model, p)
+    _check_design(x, model, model.n_parameters)
     x.setflags(write=False)
     y.setflags(write=False)
-    return x, y, levels
+    return levels
 
 
 def _check_design(x: FloatArray, model: Model, p: int) -> None:
