@@ -158,6 +158,22 @@ def test_many_runs_with_progress_and_processes(tmp_path) -> None:
     assert sorted(p.name for p in (tmp_path / "out").iterdir()) == sorted(p.stem + ".xlsx" for p in DEMO_RUNS)
 
 
+def test_many_runs_where_processes_are_started_afresh_give_the_same_json(tmp_path) -> None:
+    """Outside Linux the pool's processes are started afresh rather than forked (on macOS a forked
+    process may crash in the system's libraries): the same text as one process. The command runs as
+    it would on such a system, its platform name set before it starts."""
+    folder = tmp_path / "incoming"
+    folder.mkdir()
+    for path in DEMO_RUNS[:3]:
+        save_run(open_run(path).run, folder / path.name)
+    code = ("import sys; sys.platform = 'darwin'; from curvewright.cli import main; "
+            f"sys.exit(main(['quantify', {str(folder)!r}, '--json', '--jobs', '2']))")
+    fresh = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=300)
+    serial = run_cli("quantify", str(folder), "--json")
+    assert fresh.returncode == serial.returncode == 0, fresh.stderr + serial.stderr
+    assert fresh.stdout == serial.stdout and len(json.loads(fresh.stdout)) == 3
+
+
 def test_json_of_many_runs_in_two_processes_equals_the_json_of_one_process(tmp_path) -> None:
     """The results of each run reach the JSON alike whether a worker process made them or this one."""
     folder = tmp_path / "incoming"

@@ -359,7 +359,9 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
         # the pool processes start with them loaded instead of each importing them again.
         # The first run is analysed here too, which loads what its analysis asks for on the way
         # (not when a record is drawn: Qt is not loaded in a process that is then forked).
-        forked = "fork" in multiprocessing.get_all_start_methods()
+        # Forking is left to Linux: on macOS a forked process may crash in the system's own libraries,
+        # which is why Python starts processes afresh there (as on Windows, and here everywhere else).
+        forked = sys.platform.startswith("linux") and "fork" in multiprocessing.get_all_start_methods()
         outcomes = []
         if forked:
             _load_for_runs(settings)
@@ -370,7 +372,7 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
         rest = paths[len(outcomes):]
         chunk = max(1, min(16, len(rest) // (4 * args.jobs)))
         with ProcessPoolExecutor(max_workers=args.jobs,
-                                 mp_context=multiprocessing.get_context("fork") if forked else None) as pool:
+                                 mp_context=multiprocessing.get_context("fork" if forked else "spawn")) as pool:
             for path, outcome in zip(rest, pool.map(_quantify_file_in_list, rest, [settings] * len(rest),
                                                     chunksize=chunk)):
                 outcomes.append(outcome)
