@@ -1,5 +1,6 @@
 """The unknowns and QC samples as plotted (``figures.sample_points``): read over arrays, they are the
-same points and interval ends as chosen one sample at a time, on linear and log axes."""
+same points and interval ends as chosen one sample at a time from the samples' results, on linear
+and log axes."""
 
 from __future__ import annotations
 
@@ -10,7 +11,7 @@ import pytest
 
 from curvewright.app import figures
 from curvewright.core.run import SampleKind
-from curvewright.core.run_analysis import analyse_run
+from curvewright.core.run_analysis import SampleColumns, analyse_run
 from curvewright.io.run_document import open_run
 from tests.app.conftest import ROOT
 
@@ -44,7 +45,7 @@ def with_odd_ends(a):  # type: ignore[no-untyped-def]
         elif change == 5 and s.estimate is not None:
             s = replace(s, estimate=-1.0, lower=-2.0)
         odd.append(s)
-    return replace(a, samples=tuple(odd))
+    return replace(a, sample_columns=SampleColumns.of(a.sample_columns.analyte, tuple(odd)))
 
 
 @pytest.mark.parametrize("name", ["nitrate_water_linear", "zinc_emission_quadratic", "cytokine_serum_4pl",

@@ -199,26 +199,24 @@ def sample_points(a: AnalyteResult, kind, tx, ty, log_x: bool, log_y: bool):  # 
     response, and the interval's ends (an end that is missing, open or off a log axis drawn at the
     estimate), each through the axis transforms ``tx`` and ``ty``; None when there is none.
 
-    The results are read once into arrays (a missing value as NaN) and chosen over the arrays."""
-    samples = a.samples
-    n = len(samples)
-    if not n:
+    The results are read from the analysis's sample columns (a missing value as NaN), chosen over arrays."""
+    columns = a.sample_columns
+    if columns is None or not len(columns):
         return None
-    of_kind = np.fromiter((s.kind is kind and s.estimate is not None for s in samples), bool, n)
+    of_kind = np.fromiter((k is kind for k in columns.kinds), bool, len(columns))
+    of_kind &= columns.quantified & ~np.isnan(columns.estimate)
     if not of_kind.any():
         return None
-    chosen = [s for s, keep in zip(samples, of_kind.tolist()) if keep]
-    estimate = np.array([s.estimate for s in chosen], dtype=float)
-    mean = np.array([s.mean_response for s in chosen], dtype=float)
-    shown = np.ones(len(chosen), bool)
+    estimate, mean = columns.estimate[of_kind], columns.mean_response[of_kind]
+    shown = np.ones(estimate.size, bool)
     if log_x:
         shown &= estimate > 0
     if log_y:
         shown &= mean > 0
     if not shown.any():
         return None
-    lower = np.array([s.lower for s in chosen], dtype=float)[shown]  # None is read as NaN: not finite
-    upper = np.array([s.upper for s in chosen], dtype=float)[shown]
+    lower = columns.lower[of_kind][shown]  # a missing end is NaN: not finite
+    upper = columns.upper[of_kind][shown]
     estimate, mean = estimate[shown], mean[shown]
     lower_shown = np.isfinite(lower) & (lower > 0) if log_x else np.isfinite(lower)
     lo_raw = np.where(lower_shown, lower, estimate)
