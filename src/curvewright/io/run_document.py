@@ -211,26 +211,26 @@ def indented_json(value: Any, level: int = 0) -> str:
 
 def _lay_out(value: Any, level: int, out: list[str]) -> None:
     kind = type(value)
-    if kind is str:
-        out.append(encode_basestring(value))
-    elif kind is float:
-        # not finite: the encoder raises its own error, as it would within the document
-        out.append(float.__repr__(value) if value - value == 0.0 else json.dumps(value, indent=1, allow_nan=False))
-    elif kind is int:
-        out.append(int.__repr__(value))
-    elif value is None or kind is bool:
-        out.append(_WORDS[value])
-    elif kind is dict and all(type(k) is str for k in value):
+    if kind is dict and all(type(k) is str for k in value):
         if not value:
             out.append("{}")
             return
         pad = _PADS[level + 1] if level + 1 < len(_PADS) else "\n" + " " * (level + 1)
         lead = "{" + pad
         for k, v in value.items():
-            out.append(lead)
-            out.append(encode_basestring(k))
-            out.append(": ")
-            _lay_out(v, level + 1, out)
+            inner = type(v)
+            # a member holding plain text or a number is written here, one piece (the common case)
+            if inner is str:
+                out.append(f"{lead}{encode_basestring(k)}: {encode_basestring(v)}")
+            elif inner is int:
+                out.append(f"{lead}{encode_basestring(k)}: {int.__repr__(v)}")
+            elif inner is float and v - v == 0.0:
+                out.append(f"{lead}{encode_basestring(k)}: {float.__repr__(v)}")
+            elif v is None or inner is bool:
+                out.append(f"{lead}{encode_basestring(k)}: {_WORDS[v]}")
+            else:
+                out.append(f"{lead}{encode_basestring(k)}: ")
+                _lay_out(v, level + 1, out)
             lead = "," + pad
         out.append(pad[:-1] + "}")
     elif kind is list:
@@ -244,6 +244,15 @@ def _lay_out(value: Any, level: int, out: list[str]) -> None:
             _lay_out(v, level + 1, out)
             lead = "," + pad
         out.append(pad[:-1] + "]")
+    elif kind is str:
+        out.append(encode_basestring(value))
+    elif kind is float:
+        # not finite: the encoder raises its own error, as it would within the document
+        out.append(float.__repr__(value) if value - value == 0.0 else json.dumps(value, indent=1, allow_nan=False))
+    elif kind is int:
+        out.append(int.__repr__(value))
+    elif value is None or kind is bool:
+        out.append(_WORDS[value])
     else:
         text = json.dumps(value, indent=1, ensure_ascii=False, allow_nan=False)
         out.append(text.replace("\n", "\n" + " " * level) if level else text)
