@@ -50,7 +50,12 @@ def _canonical(value: Any) -> bytes:
         return float.__repr__(value).encode("ascii")
     if kind is int:
         return int.__repr__(value).encode("ascii")
-    return json.dumps(value, sort_keys=True, ensure_ascii=False, separators=(",", ":"), allow_nan=False).encode("utf-8")
+    return _CANONICAL_ENCODER.encode(value).encode("utf-8")
+
+
+_CANONICAL_ENCODER = json.JSONEncoder(sort_keys=True, ensure_ascii=False, separators=(",", ":"), allow_nan=False)
+"""The encoder ``json.dumps(value, sort_keys=True, ensure_ascii=False, separators=(",", ":"),
+allow_nan=False)`` would make for each call, made once (it keeps no state between calls)."""
 
 
 def content_of(mapping: Mapping[str, Any]) -> dict[str, Any]:
