@@ -133,3 +133,12 @@ def test_a_recovery_of_a_run_no_document_may_hold_is_refused_and_nothing_is_writ
     with pytest.raises(doc.DocumentError, match="not saved"):
         doc.save_recovery(replace(run, analytes=(bad,)), tmp_path / "recovery.json", None)
     assert not (tmp_path / "recovery.json").exists()
+
+
+@settings(max_examples=300, deadline=None)
+@given(json_values)
+def test_the_digests_canonical_json_is_the_standard_encoders_compact_sorted_text(value) -> None:
+    from curvewright.io.integrity import _canonical
+
+    expected = json.dumps(value, sort_keys=True, ensure_ascii=False, separators=(",", ":"), allow_nan=False)
+    assert _canonical(value) == expected.encode("utf-8")
