@@ -25,10 +25,10 @@ from __future__ import annotations
 
 import json
 import math
-from json.encoder import encode_basestring
 import re
 import sys
 from dataclasses import dataclass, replace
+from json.encoder import encode_basestring
 from pathlib import Path
 from typing import Any, Callable, Iterable, Mapping
 
@@ -369,7 +369,11 @@ def document_unchanged(path: str | Path, sha256: str | None) -> bool:
 
 def dumps_recovery(run: Run, source: str | Path | None) -> str:
     """A recovery file: the run and the document it belongs to ("" for a run never saved)."""
-    return _recovery_text(_run_texts(run)[0], source)
+    try:
+        run_text = indented_json(run_to_mapping(run))  # the run alone: a recovery file holds no digest
+    except ValueError as exc:
+        raise DocumentError(f"run {run.name!r} holds a value JSON cannot store ({exc}).") from None
+    return _recovery_text(run_text, source)
 
 
 def _recovery_text(run_text: str, source: str | Path | None) -> str:
