@@ -28,6 +28,7 @@ import math
 import re
 import sys
 from dataclasses import dataclass, replace
+from json.encoder import encode_basestring
 from pathlib import Path
 from typing import Any, Callable, Iterable, Mapping
 
@@ -171,12 +172,90 @@ def run_to_mapping(run: Run) -> dict[str, Any]:
 
 def dumps_run(run: Run) -> str:
     """The run document's text: the run, and the digest of its content (:mod:`.integrity`)."""
+    return _run_texts(run)[1]
+
+
+def _run_texts(run: Run) -> tuple[str, str]:
+    """The run's mapping as indented JSON (without the digest), and the run document's text: the
+    same members with the digest of the content (:mod:`.integrity`) as the last, written once. The
+    document is the text ``json.dumps(mapping, indent=1, ensure_ascii=False, allow_nan=False)``
+    writes (:func:`indented_json`); the digest is added by replacing the run's closing brace."""
     try:
         mapping = run_to_mapping(run)
-        mapping["content"] = digest_of(mapping)
-        return json.dumps(mapping, indent=1, ensure_ascii=False, allow_nan=False) + "\n"
+        text = indented_json(mapping)
+        content = indented_json(digest_of(mapping), 1)
     except ValueError as exc:
         raise DocumentError(f"run {run.name!r} holds a value JSON cannot store ({exc}).") from None
+    return text, f'{text[:-2]},\n "content": {content}\n}}\n'
+
+
+_PADS = ["\n" + " " * level for level in range(MAX_NESTING + 2)]
+_WORDS = {None: "null", True: "true", False: "false"}
+
+
+def indented_json(value: Any, level: int = 0) -> str:
+    """``value`` as ``json.dumps(value, indent=1, ensure_ascii=False, allow_nan=False)`` writes it, with
+    every line after the first indented by ``level`` more spaces (as it stands ``level`` deep in an
+    indented document), byte for byte; but written by the standard library's compiled parts (its
+    string escape, ``float.__repr__``, ``int.__repr__``) instead of its pure-Python encoder, which
+    the encoder uses whenever it indents. Objects and lists are laid out here, one member a line;
+    anything else than plain texts, numbers, true, false, null, lists and objects with text names
+    (a subclass, a tuple, another kind of name) goes through the encoder itself, its lines moved
+    ``level`` spaces in: text in JSON holds no line break (it is escaped), so every line break in
+    the encoder's text begins a line of its layout. A float that is not finite raises the encoder's
+    own ``ValueError``."""
+    out: list[str] = []
+    _lay_out(value, level, out)
+    return "".join(out)
+
+
+def _lay_out(value: Any, level: int, out: list[str]) -> None:
+    kind = type(value)
+    if kind is dict and all(type(k) is str for k in value):
+        if not value:
+            out.append("{}")
+            return
+        pad = _PADS[level + 1] if level + 1 < len(_PADS) else "\n" + " " * (level + 1)
+        lead = "{" + pad
+        for k, v in value.items():
+            inner = type(v)
+            # a member holding plain text or a number is written here, one piece (the common case)
+            if inner is str:
+                out.append(f"{lead}{encode_basestring(k)}: {encode_basestring(v)}")
+            elif inner is int:
+                out.append(f"{lead}{encode_basestring(k)}: {int.__repr__(v)}")
+            elif inner is float and v - v == 0.0:
+                out.append(f"{lead}{encode_basestring(k)}: {float.__repr__(v)}")
+            elif v is None or inner is bool:
+                out.append(f"{lead}{encode_basestring(k)}: {_WORDS[v]}")
+            else:
+                out.append(f"{lead}{encode_basestring(k)}: ")
+                _lay_out(v, level + 1, out)
+            lead = "," + pad
+        out.append(pad[:-1] + "}")
+    elif kind is list:
+        if not value:
+            out.append("[]")
+            return
+        pad = _PADS[level + 1] if level + 1 < len(_PADS) else "\n" + " " * (level + 1)
+        lead = "[" + pad
+        for v in value:
+            out.append(lead)
+            _lay_out(v, level + 1, out)
+            lead = "," + pad
+        out.append(pad[:-1] + "]")
+    elif kind is str:
+        out.append(encode_basestring(value))
+    elif kind is float:
+        # not finite: the encoder raises its own error, as it would within the document
+        out.append(float.__repr__(value) if value - value == 0.0 else json.dumps(value, indent=1, allow_nan=False))
+    elif kind is int:
+        out.append(int.__repr__(value))
+    elif value is None or kind is bool:
+        out.append(_WORDS[value])
+    else:
+        text = json.dumps(value, indent=1, ensure_ascii=False, allow_nan=False)
+        out.append(text.replace("\n", "\n" + " " * level) if level else text)
 
 
 class DocumentChanged(ExportError):
@@ -256,7 +335,13 @@ def _readable_document(run: Run, path: Path) -> bytes:
     """The document's bytes, once it is certain that they open again: a run holding what no run
     document may (a value out of range, text that is not characters) is not written, so that no
     save ever produces a file that cannot be opened."""
-    text = dumps_run(run)
+    return _readable_texts(run, path)[1]
+
+
+def _readable_texts(run: Run, path: Path) -> tuple[str, bytes]:
+    """The run's indented text (:func:`_run_texts`) and the document's bytes, once the document has
+    been read back in full (:func:`loads_run`) and opens."""
+    run_text, text = _run_texts(run)
     try:
         loads_run(text, origin=str(path))
     except DocumentError as exc:
@@ -265,7 +350,7 @@ def _readable_document(run: Run, path: Path) -> bytes:
             "opened again); nothing was written. Correct them and save again",
             exc.problems or (str(exc).split(": ", 1)[-1],),
         ) from None
-    return text.encode("utf-8")
+    return run_text, text.encode("utf-8")
 
 
 def document_sha256(path: str | Path) -> str | None:
@@ -284,19 +369,29 @@ def document_unchanged(path: str | Path, sha256: str | None) -> bool:
 
 def dumps_recovery(run: Run, source: str | Path | None) -> str:
     """A recovery file: the run and the document it belongs to ("" for a run never saved)."""
-    wrapper = {"format": RECOVERY_FORMAT, "schema_version": RECOVERY_VERSION,
-               "source": "" if source is None else str(source), "run": run_to_mapping(run)}
     try:
-        return json.dumps(wrapper, indent=1, ensure_ascii=False, allow_nan=False) + "\n"
+        run_text = indented_json(run_to_mapping(run))  # the run alone: a recovery file holds no digest
     except ValueError as exc:
         raise DocumentError(f"run {run.name!r} holds a value JSON cannot store ({exc}).") from None
+    return _recovery_text(run_text, source)
+
+
+def _recovery_text(run_text: str, source: str | Path | None) -> str:
+    """The recovery file around the run's indented text (:func:`_run_texts`): the text
+    ``json.dumps(wrapper, indent=1, ensure_ascii=False, allow_nan=False)`` writes for the wrapper
+    object, whose last member is the run, one level in."""
+    head = indented_json({"format": RECOVERY_FORMAT, "schema_version": RECOVERY_VERSION,
+                          "source": "" if source is None else str(source)})
+    return f'{head[:-2]},\n "run": {run_text.replace(chr(10), chr(10) + " ")}\n}}\n'
 
 
 def save_recovery(run: Run, path: str | Path, source: str | Path | None) -> None:
     """Write a recovery file atomically (the previous one kept as ``NAME.bak``): one file holds
-    both the run and where it came from, so a crash can never separate them."""
-    _readable_document(run, Path(path))
-    write_atomically(Path(path), dumps_recovery(run, source).encode("utf-8"), keep_backup=True)
+    both the run and where it came from, so a crash can never separate them. The run's text is
+    written once: the run document made of it is read back in full first (as :func:`save_run`
+    does), and the recovery file wraps the same text, so nothing is written that does not open."""
+    run_text, _document = _readable_texts(run, Path(path))
+    write_atomically(Path(path), _recovery_text(run_text, source).encode("utf-8"), keep_backup=True)
 
 
 def open_recovery(path: str | Path) -> tuple[OpenedRun, str]:
