@@ -18,11 +18,11 @@ from .errors import CalibrationInputError
 from .fitted_curve import FittedCurve
 from .influence import Influence, measure_influence, measure_influence_of_fits
 from .inverse import Quantitation, quantify, solve_z
-from .lack_of_fit import lack_of_fit_test
+from .lack_of_fit import LackOfFit, lack_of_fit_test, lack_of_fit_tests
 from .least_squares import ROUNDOFF, LeastSquaresSolution, solve_weighted, solve_weighted_stack, without_roundoff
 from .levels import Levels, group_levels
 from .models import Basis, Model, make_basis
-from .regression_test import regression_test
+from .regression_test import RegressionTest, regression_test, regression_tests
 from .response_factor import response_factor_weighting
 from .limits import DetectionLimits, detection_limits
 from .weighting import Weighting, WeightModel, make_weights
@@ -213,8 +213,17 @@ def fit_weightings(
                 np.stack([core.solution.leverage for _, core in cores]), p,
                 np.stack([core.root_wy for _, core in cores]),
             )
-            for (i, core), influence in zip(cores, influences, strict=True):
-                out[i] = _polynomial_calibration(core, influence)
+            lacks = lack_of_fit_tests(
+                np.stack([core.clean / np.sqrt(core.weights.weights) for _, core in cores]),
+                np.stack([core.weights.weights for _, core in cores]), levels, p,
+                [core.weights.from_replicates for _, core in cores],
+            )
+            regressions = regression_tests(
+                [(core.solution.coefficients, core.z_cov, core.solution.fitted, not np.any(core.clean))
+                 for _, core in cores], cores[0][1].basis.powers, y, cores[0][1].df,
+            )
+            for (i, core), influence, lack, regression in zip(cores, influences, lacks, regressions, strict=True):
+                out[i] = _polynomial_calibration(core, influence, lack, regression)
     return [entry for entry in out if entry is not None]
 
 
@@ -317,9 +326,13 @@ def _polynomial_core(
                            residual_sd, z_cov, coefficients, covariance)
 
 
-def _polynomial_calibration(core: _PolynomialCore, influence: Influence) -> Calibration:
-    """The calibration from a fit's core and its influence measures: R², lack of fit, the regression
-    test, back-calculation and notes."""
+def _polynomial_calibration(
+    core: _PolynomialCore, influence: Influence, lack: LackOfFit | None = None,
+    regression: RegressionTest | None = None,
+) -> Calibration:
+    """The calibration from a fit's core and its influence measures: R², lack of fit and the
+    regression test (unless given, as :func:`fit_weightings` makes them for all weightings at
+    once), back-calculation and notes."""
     model, weighting, x, y, levels = core.model, core.weighting, core.x, core.y, core.levels
     weights, basis, solution = core.weights, core.basis, core.solution
     root_wy, clean, df, residual_sd = core.root_wy, core.clean, core.df, core.residual_sd
@@ -334,10 +347,12 @@ def _polynomial_calibration(core: _PolynomialCore, influence: Influence) -> Cali
     else:
         r_squared = 1.0 - float(clean @ clean) / sst
     branch, vertex_z, notes = _quadratic_geometry(model, solution.coefficients, basis, x)
-    lack = lack_of_fit_test(clean / np.sqrt(w), w, levels, p, weights_from_replicates=weights.from_replicates)
-    regression = regression_test(
-        solution.coefficients, z_cov, basis.powers, solution.fitted, y, not np.any(clean), df
-    )
+    if lack is None:
+        lack = lack_of_fit_test(clean / np.sqrt(w), w, levels, p, weights_from_replicates=weights.from_replicates)
+    if regression is None:
+        regression = regression_test(
+            solution.coefficients, z_cov, basis.powers, solution.fitted, y, not np.any(clean), df
+        )
     if not regression.significant:
         notes = (regression.words,) + notes
     if weights.variance_fit is not None:
