@@ -7,6 +7,7 @@ answers everything the plot, the tables, the command line and the workbook need.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
@@ -405,17 +406,20 @@ def _refuse_unrepresentable(
     even though each value typed is a valid number.
     """
     problem = None
-    if not np.isfinite(residual_sd):
+    if not math.isfinite(residual_sd):
         problem = "the residual variance overflows"
-    elif not (np.all(np.isfinite(coefficients)) and np.all(np.isfinite(covariance))):
+    elif not (np.isfinite(coefficients).all() and np.isfinite(covariance).all()):
         problem = "a coefficient or its variance overflows"
     else:
-        with np.errstate(over="ignore", under="ignore"):
-            unit = np.array([np.float64(basis.scale) ** -p for p in basis.powers])
+        scale = float(basis.scale)
+        try:  # xᵏ's unit 1/scaleᵏ: a Python float raises on overflow and gives 0.0 on underflow
+            representable = all(math.isfinite(unit) and unit > 0 for unit in (scale ** -k for k in basis.powers))
+        except (OverflowError, ZeroDivisionError):
+            representable = False
         free = np.diag(covariance)[1 - int(model.has_intercept):]
-        if not np.all(np.isfinite(unit) & (unit > 0)):
+        if not representable:
             problem = f"x^{max(basis.powers)} leaves the range of representable numbers"
-        elif residual_sd > 0 and np.any(free <= 0):
+        elif residual_sd > 0 and bool(np.any(free <= 0)):
             problem = "a coefficient's variance underflows to zero"
     if problem is not None:
         raise CalibrationInputError(
