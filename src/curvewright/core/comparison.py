@@ -332,15 +332,16 @@ def compare(
         if (Model.LINEAR, w) in fits and (Model.QUADRATIC, w) in fits
     )
     mandel_by_weighting = {t.weighting: t for t in mandel}
+    verdicts = rules.evaluate_all(list(fits.values()))
     candidates = tuple(
         Candidate(
             calibration=cal,
-            verdict=rules.evaluate(cal),
+            verdict=verdict,
             mandel=mandel_by_weighting.get(w) if m.has_intercept else None,
             aicc=_aicc(cal),
             notes=(left_out(m),) if left_out is not None else (),
         )
-        for (m, w), cal in fits.items()
+        for ((m, w), cal), verdict in zip(fits.items(), verdicts, strict=True)
     )
     if not any(c.calibration.regression.significant for c in candidates):
         recommended = next((c for c in candidates if c.model is Model.LINEAR and c.weighting is Weighting.NONE), candidates[0])
