@@ -321,3 +321,26 @@ def test_lack_of_fit_and_regression_of_a_stack_are_each_row_tested_alone(case: i
     for i, (coefficients, z_cov, fitted, roundoff) in enumerate(fits):
         assert tests[i] == regression_test(coefficients, z_cov, (0, 1), fitted, y, roundoff, x.size - 2), i
     assert tests[3].p_value == 1.0 and tests[4].p_value == 0.0
+
+
+def test_a_screen_makes_each_weighting_once_for_its_models() -> None:
+    # The line, the quadratic and the power curve of a screen share each weighting's weights (read-only,
+    # the same numbers fit() makes); a variance-function weighting is estimated with each model apart.
+    x = np.concatenate([[0.0, 0.0], np.repeat([0.5, 2.0, 10.0, 50.0, 200.0], 2)])
+    rng = np.random.default_rng(41)
+    y = (0.02 + 0.9 * x) * (1 + 0.03 * rng.standard_normal(x.size)) + 0.01
+    result = cw.compare(x[2:], y[2:], models=("linear", "quadratic", "power"),
+                        weightings=("none", "1/x^2", "1/y", "power"))
+    for weighting in ("none", "1/x^2", "1/y"):
+        line, quadratic, power = (result.candidate(m, weighting).calibration for m in ("linear", "quadratic", "power"))
+        assert line.weight_model is quadratic.weight_model is power.weight_model
+        assert not line.weight_model.weights.flags.writeable
+        alone = cw.fit(x[2:], y[2:], "quadratic", weighting)
+        assert line.weight_model.weights.tobytes() == alone.weight_model.weights.tobytes()
+    assert (result.candidate("linear", "power").calibration.weight_model
+            is not result.candidate("quadratic", "power").calibration.weight_model)
+    # with blanks, the 1/x-type refusal is made once and given to each model in the same words
+    with_blanks = cw.compare(x, y, models=("linear", "quadratic"), weightings=("none", "1/x^2"))
+    reasons = [s.reason for s in with_blanks.skipped
+               if s.weighting is cw.Weighting.INVERSE_X2 and s.model.value in ("linear", "quadratic")]
+    assert len(reasons) == 2 and reasons[0] == reasons[1] and "standard 1 has concentration 0" in reasons[0]

@@ -168,13 +168,15 @@ def fit_weightings(
     response_sd: Sequence[object | None] | None = None,
     level_tolerance: float | None = None,
     levels: Levels | None = None,
+    shared_weights: SharedWeights | None = None,
 ) -> list[Calibration | CalibrationInputError]:
     """:func:`fit` of one polynomial model (line, quadratic, line through the origin) under each of
     ``weightings``, the QR decompositions and the influence measures of all of them taken together.
 
     ``response_sd`` gives each weighting's ``response_sd`` (None for none). Each entry of the result
     is the calibration :func:`fit` returns for that weighting, or the :class:`CalibrationInputError`
-    it raises; every number is the same as from :func:`fit`.
+    it raises; every number is the same as from :func:`fit`. ``shared_weights``: kept by a caller
+    fitting several models to the same standards (see :func:`shared_weights_for`).
     """
     model = Model.parse(model)
     if not model.is_polynomial or model is Model.AVERAGE_RF:
@@ -190,7 +192,7 @@ def fit_weightings(
     for i, weighting in enumerate(weightings):
         try:
             w_kind = Weighting.parse(weighting)
-            weights = make_weights(w_kind, x, y, levels, sds[i], model)
+            weights = shared_weights_for(shared_weights, w_kind, x, y, levels, sds[i], model)
         except CalibrationInputError as exc:
             out[i] = exc
             continue
@@ -226,6 +228,33 @@ def fit_weightings(
             for (i, core), influence, lack, regression in zip(cores, influences, lacks, regressions, strict=True):
                 out[i] = _polynomial_calibration(core, influence, lack, regression)
     return [entry for entry in out if entry is not None]
+
+
+SharedWeights = dict[tuple[Weighting, int | None], tuple[object, "WeightModel | CalibrationInputError"]]
+"""Weights already made for a set of standards, by weighting and the identity of the SDs given."""
+
+
+def shared_weights_for(
+    shared: SharedWeights | None, weighting: Weighting, x: FloatArray, y: FloatArray, levels: Levels,
+    response_sd: object | None, model: Model, mean_fitter: object | None = None,
+) -> WeightModel:
+    """:func:`~.weighting.make_weights`, made once per weighting for a caller fitting several models
+    to the same standards (a model screen) and kept in ``shared``; the weights that do not depend on
+    the model only (a variance function is fitted with the model, so those are always made afresh).
+    The weights are read-only, so the calibrations share them; a refusal is raised again as made."""
+    if shared is None or weighting.variance_function is not None:
+        return make_weights(weighting, x, y, levels, response_sd, model, mean_fitter)  # type: ignore[arg-type]
+    key = (weighting, None if response_sd is None else id(response_sd))
+    kept = shared.get(key)
+    if kept is None:
+        try:
+            made: WeightModel | CalibrationInputError = make_weights(weighting, x, y, levels, response_sd, model)  # type: ignore[arg-type]
+        except CalibrationInputError as exc:
+            made = exc
+        kept = shared[key] = (response_sd, made)  # the SDs kept with them, so that their identity stays theirs
+    if isinstance(kept[1], CalibrationInputError):
+        raise kept[1]
+    return kept[1]
 
 
 def _checked_standards(

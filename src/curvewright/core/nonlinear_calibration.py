@@ -51,7 +51,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ._arrays import FloatArray, frozen
-from .calibration import Calibration
+from .calibration import Calibration, SharedWeights, shared_weights_for
 from .curve_families import FAMILIES, CurveFamily
 from .distributions import f_upper_tail, t_quantile
 from .errors import CalibrationInputError, ConvergenceError, LimitsError
@@ -65,7 +65,7 @@ from .models import Basis, Model
 from .nonlinear import NonlinearFit, fit_nonlinear
 from .regression_test import RegressionTest
 from .variance_function import CYCLES, MeanFit
-from .weighting import Weighting, WeightModel, make_weights
+from .weighting import Weighting, WeightModel
 
 LOGISTIC_MODELS = (Model.FOUR_PL, Model.FIVE_PL)
 SEARCH_DECADES = 20.0
@@ -206,6 +206,7 @@ class _CurveCore:
 def _curve_core(
     model: Model, weighting: Weighting, x: FloatArray, y: FloatArray, levels: Levels,
     response_sd: FloatArray | None, anchor_points: object | None, shared: dict[str, list[FloatArray]] | None,
+    shared_weights: SharedWeights | None = None,
 ) -> _CurveCore:
     """The checks, the weights and the best fit of :func:`fit_nonlinear_curve`."""
     family = FAMILIES[model]
@@ -226,7 +227,7 @@ def _curve_core(
                 f"concentration: standard {i + 1} is at {x[i]:g}; a logistic curve needs concentrations of zero or more."
             )
     fitter = _MeanFitter(family) if weighting.variance_function is not None else None
-    weights = make_weights(weighting, x, y, levels, response_sd, model, fitter)
+    weights = shared_weights_for(shared_weights, weighting, x, y, levels, response_sd, model, fitter)
     w = weights.weights
     if shared is None:
         starts = None
@@ -324,10 +325,12 @@ def fit_curve_weightings(
     response_sd: list[object | None],
     level_tolerance: float | None = None,
     levels: Levels | None = None,
+    shared_weights: SharedWeights | None = None,
 ) -> list[Calibration | CalibrationInputError]:
     """:func:`~.fitting.fit` of the power curve under each of ``weightings`` (``response_sd``: each
     one's, None for none): the standards checked once and the start values worked out once. Each
-    entry is the calibration fit() returns for that weighting or the error it raises, the same numbers."""
+    entry is the calibration fit() returns for that weighting or the error it raises, the same numbers.
+    ``shared_weights``: as :func:`~.calibration.fit_weightings` takes it."""
     from .calibration import _checked_standards
 
     try:
@@ -339,7 +342,7 @@ def fit_curve_weightings(
     cores: list[tuple[int, _CurveCore]] = []
     for weighting, sd in zip(weightings, response_sd, strict=True):
         try:
-            cores.append((len(out), _curve_core(model, weighting, x, y, levels, sd, None, shared)))
+            cores.append((len(out), _curve_core(model, weighting, x, y, levels, sd, None, shared, shared_weights)))
             out.append(None)
         except CalibrationInputError as exc:
             out.append(exc)
