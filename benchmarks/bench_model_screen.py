@@ -176,7 +176,8 @@ def _sd_weights_given() -> np.ndarray:
 
 def engine_fits(models: tuple[str, ...]):  # type: ignore[no-untyped-def]
     """The fits of ``models`` under the six weightings as ``compare`` makes them (each model under
-    all weightings together, with the shared level grouping), alone: no comparison, no acceptance."""
+    all weightings together, with the shared level grouping and each weighting's weights made once),
+    alone: no comparison, no acceptance."""
     from curvewright.core.calibration import fit_weightings
     from curvewright.core.models import Model
     from curvewright.core.nonlinear_calibration import fit_curve_weightings
@@ -188,10 +189,11 @@ def engine_fits(models: tuple[str, ...]):  # type: ignore[no-untyped-def]
     sds = [sd if w is Weighting.INVERSE_S2 else None for w in weightings]
 
     def run() -> None:
+        shared_weights: dict = {}  # type: ignore[type-arg]  # each weighting's weights made once, as compare() makes them
         for model in models:
             m = Model.parse(model)
             together = fit_weightings if m.is_polynomial else fit_curve_weightings
-            results = together(X, Y, m, weightings, response_sd=sds, levels=levels)
+            results = together(X, Y, m, weightings, response_sd=sds, levels=levels, shared_weights=shared_weights)
             assert not any(isinstance(r, Exception) for r in results), results
 
     return run

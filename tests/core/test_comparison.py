@@ -283,3 +283,64 @@ def test_the_power_curves_of_a_screen_are_the_fits_made_one_by_one(case: int) ->
             assert _same(getattr(together, name), getattr(alone, name)), (weighting, name)
         assert together.lack_of_fit == alone.lack_of_fit
     assert fitted >= 4
+
+
+@pytest.mark.parametrize("case", range(6))
+def test_lack_of_fit_and_regression_of_a_stack_are_each_row_tested_alone(case: int) -> None:
+    # The screen tests lack of fit and the regression of all weightings of one model at once; each
+    # row must be the test of that row alone, to the last bit, including the rows that cannot be
+    # tested (weights from the replicates, replicates that agree exactly, a flat curve).
+    from curvewright.core.lack_of_fit import lack_of_fit_test, lack_of_fit_tests
+    from curvewright.core.levels import group_levels
+    from curvewright.core.regression_test import regression_test, regression_tests
+
+    rng = np.random.default_rng(300 + case)
+    x = np.repeat(np.geomspace(1.0, 10 ** rng.uniform(1, 3), int(rng.integers(4, 8))), int(rng.integers(2, 4)))
+    levels = group_levels(x)
+    k = 5
+    residuals = 0.02 * rng.standard_normal((k, x.size)) * (1 + x)
+    weights = rng.uniform(0.2, 3.0, (k, x.size))
+    # exact replicates: equal residuals within each level (small integers, equal weights)
+    residuals[2] = np.repeat(rng.integers(-3, 4, levels.n_levels), x.size // levels.n_levels)
+    weights[2] = 1.0
+    from_replicates = [False, True, False, False, False]
+    together = lack_of_fit_tests(residuals, weights, levels, 2, from_replicates)
+    for i in range(k):
+        alone = lack_of_fit_test(residuals[i].copy(), weights[i].copy(), levels, 2,
+                                 weights_from_replicates=from_replicates[i])
+        assert together[i] == alone, i
+    assert not together[1].available and not together[2].available and together[0].available
+
+    y = 0.1 + 2.0 * x
+    fits = []
+    for i in range(k):
+        z_cov = np.array([[0.01, 0.001 * i], [0.001 * i, 0.02 + 0.001 * i]])
+        fitted = y + residuals[i] if i != 3 else np.full_like(y, y.mean())  # row 3: a flat curve
+        fits.append((np.array([0.3, 0.05 * (i + 1)]), z_cov, fitted, i == 4))
+    tests = regression_tests(fits, (0, 1), y, x.size - 2)
+    for i, (coefficients, z_cov, fitted, roundoff) in enumerate(fits):
+        assert tests[i] == regression_test(coefficients, z_cov, (0, 1), fitted, y, roundoff, x.size - 2), i
+    assert tests[3].p_value == 1.0 and tests[4].p_value == 0.0
+
+
+def test_a_screen_makes_each_weighting_once_for_its_models() -> None:
+    # The line, the quadratic and the power curve of a screen share each weighting's weights (read-only,
+    # the same numbers fit() makes); a variance-function weighting is estimated with each model apart.
+    x = np.concatenate([[0.0, 0.0], np.repeat([0.5, 2.0, 10.0, 50.0, 200.0], 2)])
+    rng = np.random.default_rng(41)
+    y = (0.02 + 0.9 * x) * (1 + 0.03 * rng.standard_normal(x.size)) + 0.01
+    result = cw.compare(x[2:], y[2:], models=("linear", "quadratic", "power"),
+                        weightings=("none", "1/x^2", "1/y", "power"))
+    for weighting in ("none", "1/x^2", "1/y"):
+        line, quadratic, power = (result.candidate(m, weighting).calibration for m in ("linear", "quadratic", "power"))
+        assert line.weight_model is quadratic.weight_model is power.weight_model
+        assert not line.weight_model.weights.flags.writeable
+        alone = cw.fit(x[2:], y[2:], "quadratic", weighting)
+        assert line.weight_model.weights.tobytes() == alone.weight_model.weights.tobytes()
+    assert (result.candidate("linear", "power").calibration.weight_model
+            is not result.candidate("quadratic", "power").calibration.weight_model)
+    # with blanks, the 1/x-type refusal is made once and given to each model in the same words
+    with_blanks = cw.compare(x, y, models=("linear", "quadratic"), weightings=("none", "1/x^2"))
+    reasons = [s.reason for s in with_blanks.skipped
+               if s.weighting is cw.Weighting.INVERSE_X2 and s.model.value in ("linear", "quadratic")]
+    assert len(reasons) == 2 and reasons[0] == reasons[1] and "standard 1 has concentration 0" in reasons[0]

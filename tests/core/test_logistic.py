@@ -235,3 +235,30 @@ def test_coverage_of_the_95_percent_interval() -> None:
         covered += int(np.sum((q.lower <= x0) & (x0 <= q.upper)))
         total += x0.size
     assert 0.93 <= covered / total <= 0.97, covered / total
+
+
+def test_verdicts_judged_together_are_the_verdicts_judged_one_by_one() -> None:
+    # A model screen judges all its candidates at once, working out once per set of standards which
+    # are judged and at what limit; each verdict must be the one evaluate() gives for that fit alone,
+    # with anchor points (judged apart) among them. Invented standards.
+    rng = np.random.default_rng(6)
+    x = np.concatenate([[0.25, 2400.0], np.repeat(LEVELS, 2)])
+    y = four_pl(x, *TRUE_4PL) * (1 + 0.05 * rng.standard_normal(x.size))
+    anchor = np.zeros(x.size, dtype=bool)
+    anchor[:2] = True
+    inner = cw.compare(x[2:], y[2:], models=("linear", "quadratic"))
+    cals = [c.calibration for c in inner.candidates] + [cw.fit(x, y, "4pl", "1/y^2", anchor_points=anchor)]
+    outcomes = set()
+    for name in ("ich-m10-ligand-binding", "ich-m10-chromatographic", "environmental"):
+        profile = cw.load_profile(name)
+        together = profile.evaluate_all(cals)
+        assert len(together) == len(cals)
+        for cal, verdict in zip(cals, together, strict=True):
+            alone = profile.evaluate(cal)
+            assert (verdict.profile, verdict.passed, verdict.reasons) == (alone.profile, alone.passed, alone.reasons)
+            for field in ("passing", "judged", "tolerance_percent", "relative_error"):
+                a, b = getattr(verdict, field), getattr(alone, field)
+                assert a.tobytes() == b.tobytes() and not a.flags.writeable, field
+        assert not together[-1].judged[:2].any()
+        outcomes |= {v.passed for v in together}
+    assert outcomes == {True, False}  # verdicts both ways among them

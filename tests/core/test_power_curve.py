@@ -96,3 +96,34 @@ def test_the_fitters_form_of_the_weighted_problem_gives_the_curves_own_numbers()
     np.testing.assert_array_equal(fast.parameters, plain.parameters)
     np.testing.assert_array_equal(fast.covariance, plain.covariance)
     assert fast.evaluations == plain.evaluations
+
+
+@pytest.mark.parametrize("case", range(5))
+@pytest.mark.parametrize("weighting", ["none", "1/x^2", "1/y"])
+def test_the_polished_minimum_is_the_exact_one(case: int, weighting: str) -> None:
+    # The Gauss–Newton polish stops once a further step could only move the parameters by round-off;
+    # the parameters must still be the exact weighted least-squares minimum. Reference: the minimum
+    # worked out in 50-digit arithmetic (mpmath): for a given b the best a is Σw·y·xᵇ / Σw·x²ᵇ, and b
+    # is the root of the derivative of the weighted sum of squares along that profile. Invented
+    # standards over two to three decades.
+    import mpmath
+
+    rng = np.random.default_rng(500 + case)
+    x = np.repeat(np.geomspace(0.3, 0.3 * 10 ** rng.uniform(2, 3), int(rng.integers(5, 8))), int(rng.integers(2, 4)))
+    y = rng.uniform(0.5, 50) * x ** rng.uniform(0.7, 1.2) * (1 + 0.05 * rng.standard_normal(x.size))
+    cal = cw.fit(x, y, "power", weighting)
+    mpmath.mp.dps = 50
+    xs, ys = [mpmath.mpf(float(v)) for v in x], [mpmath.mpf(float(v)) for v in y]
+    ws = {"none": [mpmath.mpf(1)] * x.size, "1/x^2": [1 / v**2 for v in xs], "1/y": [1 / v for v in ys]}[weighting]
+
+    def best_a(b):  # type: ignore[no-untyped-def]
+        return (mpmath.fsum(w * v * u**b for w, u, v in zip(ws, xs, ys, strict=True))
+                / mpmath.fsum(w * u ** (2 * b) for w, u in zip(ws, xs, strict=True)))
+
+    def slope(b):  # type: ignore[no-untyped-def]
+        a = best_a(b)
+        return mpmath.fsum(w * (a * u**b - v) * a * u**b * mpmath.log(u) for w, u, v in zip(ws, xs, ys, strict=True))
+
+    b = mpmath.findroot(slope, mpmath.mpf(float(cal.coefficients[1])), tol=mpmath.mpf(10) ** -40)
+    exact = np.array([float(best_a(b)), float(b)])
+    np.testing.assert_allclose(cal.coefficients, exact, rtol=1e-12, atol=0)

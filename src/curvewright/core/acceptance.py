@@ -105,6 +105,19 @@ class AcceptanceVerdict:
     relative_error: FloatArray
 
 
+@dataclass(frozen=True, eq=False)
+class _Layout:
+    """What judging depends on besides the back-calculated values (see :meth:`AcceptanceProfile._layout`);
+    ``judged`` and ``tol`` are read-only and shared by the verdicts made from it."""
+
+    judged: np.ndarray
+    n_anchors: int
+    nonzero_levels: np.ndarray
+    tol: FloatArray
+    limit: FloatArray
+    n_judged: int
+
+
 @dataclass(frozen=True)
 class AcceptanceProfile:
     """A named set of acceptance rules with its source."""
@@ -242,9 +255,31 @@ class AcceptanceProfile:
         """
         if excluded < 0 or unusable < 0:
             raise ProfileError("excluded/unusable: the number of standards left out cannot be negative.")
+        return self._judge(cal, self._layout(cal), excluded, unusable)
+
+    def evaluate_all(self, cals: "list[FittedCurve]") -> list[AcceptanceVerdict]:
+        """:meth:`evaluate` of each of ``cals`` (no standard excluded or unusable): the standards
+        judged and their tolerances worked out once for the fits of the same standards (the same
+        concentration array and levels, as the candidates of a model screen are), the same verdicts."""
+        layouts: dict[tuple[int, int], tuple[object, object, _Layout]] = {}
+        out = []
+        for cal in cals:
+            anchors = getattr(cal, "anchors", None)
+            if anchors is not None and anchors.any():
+                out.append(self._judge(cal, self._layout(cal), 0, 0))
+                continue
+            key = (id(cal.concentration), id(cal.levels))
+            kept = layouts.get(key)
+            if kept is None:
+                # the arrays are kept beside their layout so that their ids stay theirs
+                kept = layouts[key] = (cal.concentration, cal.levels, self._layout(cal))
+            out.append(self._judge(cal, kept[2], 0, 0))
+        return out
+
+    def _layout(self, cal: "FittedCurve") -> "_Layout":
+        """Which standards are judged, the judged non-zero levels, and each standard's tolerance (%)."""
         rules = self.standards
         x = cal.concentration
-        re = cal.relative_error
         # anchor points (logistic curves) are fitted but never judged, and do not make a level
         anchors = getattr(cal, "anchors", None)
         n_anchors = 0 if anchors is None else int(np.count_nonzero(anchors))
@@ -259,13 +294,23 @@ class AcceptanceProfile:
             tol_by_level[nonzero_levels[-1]] = rules.highest_level_tolerance_percent
             tol_by_level[nonzero_levels[0]] = rules.lowest_level_tolerance_percent
         tol = tol_by_level[index]
+        return _Layout(frozen(judged), n_anchors, nonzero_levels, frozen(tol), tol + _BOUNDARY,
+                       int(np.count_nonzero(judged)))
+
+    def _judge(self, cal: "FittedCurve", layout: "_Layout", excluded: int, unusable: int) -> AcceptanceVerdict:
+        """The verdict on ``cal`` from its standards' :meth:`_layout`."""
+        rules = self.standards
+        re = cal.relative_error
+        judged, n_anchors, nonzero_levels, tol = layout.judged, layout.n_anchors, layout.nonzero_levels, layout.tol
+        levels = cal.levels
+        index = levels.index
         with np.errstate(invalid="ignore"):
-            passing = judged & np.isfinite(re) & (np.abs(re) <= tol + _BOUNDARY)
+            passing = judged & np.isfinite(re) & (np.abs(re) <= layout.limit)
 
         reasons: list[str] = []
         ok = True
         counted_excluded = excluded if rules.count_excluded_as_failing else 0
-        n_judged = int(np.count_nonzero(judged)) + counted_excluded + unusable
+        n_judged = layout.n_judged + counted_excluded + unusable
         n_pass = int(np.count_nonzero(passing))
         if n_judged == 0:
             raise ProfileError("no standard of non-zero concentration to judge.")
@@ -323,8 +368,8 @@ class AcceptanceProfile:
             passed=bool(ok),
             reasons=tuple(reasons),
             passing=frozen(passing),
-            judged=frozen(judged),
-            tolerance_percent=frozen(tol),
+            judged=judged,
+            tolerance_percent=tol,
             relative_error=re,
         )
 

@@ -7,6 +7,7 @@ answers everything the plot, the tables, the command line and the workbook need.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
@@ -18,11 +19,11 @@ from .errors import CalibrationInputError
 from .fitted_curve import FittedCurve
 from .influence import Influence, measure_influence, measure_influence_of_fits
 from .inverse import Quantitation, quantify, solve_z
-from .lack_of_fit import lack_of_fit_test
+from .lack_of_fit import LackOfFit, lack_of_fit_test, lack_of_fit_tests
 from .least_squares import ROUNDOFF, LeastSquaresSolution, solve_weighted, solve_weighted_stack, without_roundoff
 from .levels import Levels, group_levels
 from .models import Basis, Model, make_basis
-from .regression_test import regression_test
+from .regression_test import RegressionTest, regression_test, regression_tests
 from .response_factor import response_factor_weighting
 from .limits import DetectionLimits, detection_limits
 from .weighting import Weighting, WeightModel, make_weights
@@ -167,13 +168,15 @@ def fit_weightings(
     response_sd: Sequence[object | None] | None = None,
     level_tolerance: float | None = None,
     levels: Levels | None = None,
+    shared_weights: SharedWeights | None = None,
 ) -> list[Calibration | CalibrationInputError]:
     """:func:`fit` of one polynomial model (line, quadratic, line through the origin) under each of
     ``weightings``, the QR decompositions and the influence measures of all of them taken together.
 
     ``response_sd`` gives each weighting's ``response_sd`` (None for none). Each entry of the result
     is the calibration :func:`fit` returns for that weighting, or the :class:`CalibrationInputError`
-    it raises; every number is the same as from :func:`fit`.
+    it raises; every number is the same as from :func:`fit`. ``shared_weights``: kept by a caller
+    fitting several models to the same standards (see :func:`shared_weights_for`).
     """
     model = Model.parse(model)
     if not model.is_polynomial or model is Model.AVERAGE_RF:
@@ -189,7 +192,7 @@ def fit_weightings(
     for i, weighting in enumerate(weightings):
         try:
             w_kind = Weighting.parse(weighting)
-            weights = make_weights(w_kind, x, y, levels, sds[i], model)
+            weights = shared_weights_for(shared_weights, w_kind, x, y, levels, sds[i], model)
         except CalibrationInputError as exc:
             out[i] = exc
             continue
@@ -213,9 +216,45 @@ def fit_weightings(
                 np.stack([core.solution.leverage for _, core in cores]), p,
                 np.stack([core.root_wy for _, core in cores]),
             )
-            for (i, core), influence in zip(cores, influences, strict=True):
-                out[i] = _polynomial_calibration(core, influence)
+            lacks = lack_of_fit_tests(
+                np.stack([core.clean / np.sqrt(core.weights.weights) for _, core in cores]),
+                np.stack([core.weights.weights for _, core in cores]), levels, p,
+                [core.weights.from_replicates for _, core in cores],
+            )
+            regressions = regression_tests(
+                [(core.solution.coefficients, core.z_cov, core.solution.fitted, not np.any(core.clean))
+                 for _, core in cores], cores[0][1].basis.powers, y, cores[0][1].df,
+            )
+            for (i, core), influence, lack, regression in zip(cores, influences, lacks, regressions, strict=True):
+                out[i] = _polynomial_calibration(core, influence, lack, regression)
     return [entry for entry in out if entry is not None]
+
+
+SharedWeights = dict[tuple[Weighting, int | None], tuple[object, "WeightModel | CalibrationInputError"]]
+"""Weights already made for a set of standards, by weighting and the identity of the SDs given."""
+
+
+def shared_weights_for(
+    shared: SharedWeights | None, weighting: Weighting, x: FloatArray, y: FloatArray, levels: Levels,
+    response_sd: object | None, model: Model, mean_fitter: object | None = None,
+) -> WeightModel:
+    """:func:`~.weighting.make_weights`, made once per weighting for a caller fitting several models
+    to the same standards (a model screen) and kept in ``shared``; the weights that do not depend on
+    the model only (a variance function is fitted with the model, so those are always made afresh).
+    The weights are read-only, so the calibrations share them; a refusal is raised again as made."""
+    if shared is None or weighting.variance_function is not None:
+        return make_weights(weighting, x, y, levels, response_sd, model, mean_fitter)  # type: ignore[arg-type]
+    key = (weighting, None if response_sd is None else id(response_sd))
+    kept = shared.get(key)
+    if kept is None:
+        try:
+            made: WeightModel | CalibrationInputError = make_weights(weighting, x, y, levels, response_sd, model)  # type: ignore[arg-type]
+        except CalibrationInputError as exc:
+            made = exc
+        kept = shared[key] = (response_sd, made)  # the SDs kept with them, so that their identity stays theirs
+    if isinstance(kept[1], CalibrationInputError):
+        raise kept[1]
+    return kept[1]
 
 
 def _checked_standards(
@@ -317,9 +356,13 @@ def _polynomial_core(
                            residual_sd, z_cov, coefficients, covariance)
 
 
-def _polynomial_calibration(core: _PolynomialCore, influence: Influence) -> Calibration:
-    """The calibration from a fit's core and its influence measures: R², lack of fit, the regression
-    test, back-calculation and notes."""
+def _polynomial_calibration(
+    core: _PolynomialCore, influence: Influence, lack: LackOfFit | None = None,
+    regression: RegressionTest | None = None,
+) -> Calibration:
+    """The calibration from a fit's core and its influence measures: R², lack of fit and the
+    regression test (unless given, as :func:`fit_weightings` makes them for all weightings at
+    once), back-calculation and notes."""
     model, weighting, x, y, levels = core.model, core.weighting, core.x, core.y, core.levels
     weights, basis, solution = core.weights, core.basis, core.solution
     root_wy, clean, df, residual_sd = core.root_wy, core.clean, core.df, core.residual_sd
@@ -334,10 +377,12 @@ def _polynomial_calibration(core: _PolynomialCore, influence: Influence) -> Cali
     else:
         r_squared = 1.0 - float(clean @ clean) / sst
     branch, vertex_z, notes = _quadratic_geometry(model, solution.coefficients, basis, x)
-    lack = lack_of_fit_test(clean / np.sqrt(w), w, levels, p, weights_from_replicates=weights.from_replicates)
-    regression = regression_test(
-        solution.coefficients, z_cov, basis.powers, solution.fitted, y, not np.any(clean), df
-    )
+    if lack is None:
+        lack = lack_of_fit_test(clean / np.sqrt(w), w, levels, p, weights_from_replicates=weights.from_replicates)
+    if regression is None:
+        regression = regression_test(
+            solution.coefficients, z_cov, basis.powers, solution.fitted, y, not np.any(clean), df
+        )
     if not regression.significant:
         notes = (regression.words,) + notes
     if weights.variance_fit is not None:
@@ -390,17 +435,20 @@ def _refuse_unrepresentable(
     even though each value typed is a valid number.
     """
     problem = None
-    if not np.isfinite(residual_sd):
+    if not math.isfinite(residual_sd):
         problem = "the residual variance overflows"
-    elif not (np.all(np.isfinite(coefficients)) and np.all(np.isfinite(covariance))):
+    elif not (np.isfinite(coefficients).all() and np.isfinite(covariance).all()):
         problem = "a coefficient or its variance overflows"
     else:
-        with np.errstate(over="ignore", under="ignore"):
-            unit = np.array([np.float64(basis.scale) ** -p for p in basis.powers])
+        scale = float(basis.scale)
+        try:  # xᵏ's unit 1/scaleᵏ: a Python float raises on overflow and gives 0.0 on underflow
+            representable = all(math.isfinite(unit) and unit > 0 for unit in (scale ** -k for k in basis.powers))
+        except (OverflowError, ZeroDivisionError):
+            representable = False
         free = np.diag(covariance)[1 - int(model.has_intercept):]
-        if not np.all(np.isfinite(unit) & (unit > 0)):
+        if not representable:
             problem = f"x^{max(basis.powers)} leaves the range of representable numbers"
-        elif residual_sd > 0 and np.any(free <= 0):
+        elif residual_sd > 0 and bool(np.any(free <= 0)):
             problem = "a coefficient's variance underflows to zero"
     if problem is not None:
         raise CalibrationInputError(

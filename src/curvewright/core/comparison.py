@@ -76,7 +76,7 @@ import numpy as np
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
 from ._arrays import as_finite_vector
-from .calibration import Calibration, fit_weightings
+from .calibration import Calibration, SharedWeights, fit_weightings
 from .fitting import fit
 from .distributions import f_quantile, f_upper_tail
 from .errors import CalibrationInputError
@@ -278,11 +278,13 @@ def compare(
             skipped.append(SkippedCandidate(Model.AVERAGE_RF, Weighting.INVERSE_X2, str(exc)))
             first_error = exc
     # the polynomials of one degree are fitted under every weighting together (the same numbers as one by one)
+    # (the weights of each weighting made once for all these models)
+    shared_weights: SharedWeights = {}
     together = {
         m: dict(zip(weighting_list, fit_weightings(
             inner_x, inner_y, m, weighting_list,
             response_sd=[sd if w is Weighting.INVERSE_S2 else None for w in weighting_list],
-            level_tolerance=level_tolerance, levels=inner_levels,
+            level_tolerance=level_tolerance, levels=inner_levels, shared_weights=shared_weights,
         ), strict=True))
         for m in model_list if m.is_polynomial and m not in added
     }
@@ -294,7 +296,7 @@ def compare(
         together[Model.POWER] = dict(zip(power_weightings, fit_curve_weightings(
             inner_x, inner_y, Model.POWER, power_weightings,
             response_sd=[sd if w is Weighting.INVERSE_S2 else None for w in power_weightings],
-            level_tolerance=level_tolerance, levels=inner_levels,
+            level_tolerance=level_tolerance, levels=inner_levels, shared_weights=shared_weights,
         ), strict=True))
     for w in weighting_list:
         for m in model_list:
@@ -332,15 +334,16 @@ def compare(
         if (Model.LINEAR, w) in fits and (Model.QUADRATIC, w) in fits
     )
     mandel_by_weighting = {t.weighting: t for t in mandel}
+    verdicts = rules.evaluate_all(list(fits.values()))
     candidates = tuple(
         Candidate(
             calibration=cal,
-            verdict=rules.evaluate(cal),
+            verdict=verdict,
             mandel=mandel_by_weighting.get(w) if m.has_intercept else None,
             aicc=_aicc(cal),
             notes=(left_out(m),) if left_out is not None else (),
         )
-        for (m, w), cal in fits.items()
+        for ((m, w), cal), verdict in zip(fits.items(), verdicts, strict=True)
     )
     if not any(c.calibration.regression.significant for c in candidates):
         recommended = next((c for c in candidates if c.model is Model.LINEAR and c.weighting is Weighting.NONE), candidates[0])

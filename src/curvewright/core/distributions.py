@@ -22,6 +22,14 @@ def f_upper_tail(value: float, df1: float, df2: float) -> float:
     return float(special.fdtrc(df1, df2, value))
 
 
+def f_upper_tails(values: object, df1: object, df2: object) -> object:
+    """P(F > value) elementwise over arrays of values and degrees of freedom, in one call (the
+    same function as :func:`f_upper_tail`, so each element is the number it gives alone)."""
+    from scipy import special  # loaded on first use: importing the engine stays light
+
+    return special.fdtrc(df1, df2, values)
+
+
 def f_quantile(probability: float, df1: float, df2: float) -> float:
     """q such that P(F ≤ q) = probability."""
     from scipy import special  # loaded on first use: importing the engine stays light

@@ -26,12 +26,13 @@ ratio tests nothing and the test is not made.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
 
 from ._arrays import FloatArray
-from .distributions import f_upper_tail
+from .distributions import f_upper_tails
 from .levels import Levels
 
 
@@ -76,47 +77,76 @@ def lack_of_fit_test(
 
     ``residuals`` are yᵢ − ŷᵢ in response units, with round-off already set to zero.
     """
-    n = residuals.size
+    return lack_of_fit_tests(residuals[None, :], weights[None, :], levels, n_parameters, [weights_from_replicates])[0]
+
+
+def lack_of_fit_tests(
+    residuals: FloatArray,
+    weights: FloatArray,
+    levels: Levels,
+    n_parameters: int,
+    weights_from_replicates: Sequence[bool],
+) -> list[LackOfFit]:
+    """:func:`lack_of_fit_test` of k fits of one model to the same standards at once: ``residuals``
+    and ``weights`` are (k, n), one row per fit. The level sums of all rows are taken in one pass
+    and the p-values in one call; each row's numbers are those of the row tested alone."""
+    k, n = residuals.shape
     c = levels.n_levels
     df_pe = n - c
     df_lf = c - n_parameters
     if df_pe == 0:
-        return LackOfFit(False, "no standard is replicated, so there is no pure error to test against")
+        return [LackOfFit(False, "no standard is replicated, so there is no pure error to test against")] * k
     if df_lf <= 0:
-        return LackOfFit(
+        return [LackOfFit(
             False,
             f"there are {c} levels for {n_parameters} parameters, so no level is spare to test the "
             "shape of the curve",
-        )
-    if weights_from_replicates:
-        return LackOfFit(
-            False,
-            "the weights are the replicates' own SDs (1/s²), which fixes the pure error by construction, "
-            "so the test cannot be made; use known SDs or a variance function fitted to all levels",
-            df_lack_of_fit=df_lf,
-            df_pure_error=df_pe,
-        )
-    level_weight = np.bincount(levels.index, weights=weights, minlength=c)
-    mean_residual = np.bincount(levels.index, weights=weights * residuals, minlength=c) / level_weight
-    ss_pe = float(np.add.reduce(weights * (residuals - mean_residual[levels.index]) ** 2))
-    ss_lf = float(np.add.reduce(level_weight * mean_residual**2))
-    if ss_pe <= 0.0:
-        return LackOfFit(
-            False,
-            "the replicates agree exactly at every level, so the pure error is zero and the ratio "
-            "is undefined",
-            df_lack_of_fit=df_lf,
-            df_pure_error=df_pe,
-            ss_pure_error=0.0,
-        )
-    f = (ss_lf / df_lf) / (ss_pe / df_pe)
-    return LackOfFit(
-        available=True,
-        reason=None,
-        f_statistic=float(f),
-        df_lack_of_fit=df_lf,
-        df_pure_error=df_pe,
-        p_value=f_upper_tail(f, df_lf, df_pe),
-        ss_lack_of_fit=ss_lf,
-        ss_pure_error=ss_pe,
-    )
+        )] * k
+    out: list[LackOfFit | None] = [None] * k
+    tested = []
+    for i, from_replicates in enumerate(weights_from_replicates):
+        if from_replicates:
+            out[i] = LackOfFit(
+                False,
+                "the weights are the replicates' own SDs (1/s²), which fixes the pure error by construction, "
+                "so the test cannot be made; use known SDs or a variance function fitted to all levels",
+                df_lack_of_fit=df_lf,
+                df_pure_error=df_pe,
+            )
+        else:
+            tested.append(i)
+    if tested:
+        r, w = residuals[tested], weights[tested]
+        m = len(tested)
+        # bins of row i are i·c … i·c + c − 1: each level's sum is taken in the order of the
+        # standards, as for one row alone
+        bins = (levels.index[None, :] + c * np.arange(m)[:, None]).ravel()
+        level_weight = np.bincount(bins, weights=w.ravel(), minlength=m * c).reshape(m, c)
+        mean_residual = np.bincount(bins, weights=(w * r).ravel(), minlength=m * c).reshape(m, c) / level_weight
+        ss_pe = np.add.reduce(w * (r - mean_residual[:, levels.index]) ** 2, axis=1)
+        ss_lf = np.add.reduce(level_weight * mean_residual**2, axis=1)
+        positive = ss_pe > 0.0
+        f = (ss_lf / df_lf) / np.where(positive, ss_pe / df_pe, 1.0)
+        p_values = f_upper_tails(f, df_lf, df_pe)
+        for j, i in enumerate(tested):
+            if not positive[j]:
+                out[i] = LackOfFit(
+                    False,
+                    "the replicates agree exactly at every level, so the pure error is zero and the ratio "
+                    "is undefined",
+                    df_lack_of_fit=df_lf,
+                    df_pure_error=df_pe,
+                    ss_pure_error=0.0,
+                )
+                continue
+            out[i] = LackOfFit(
+                available=True,
+                reason=None,
+                f_statistic=float(f[j]),
+                df_lack_of_fit=df_lf,
+                df_pure_error=df_pe,
+                p_value=float(p_values[j]),
+                ss_lack_of_fit=float(ss_lf[j]),
+                ss_pure_error=float(ss_pe[j]),
+            )
+    return [entry for entry in out if entry is not None]

@@ -55,6 +55,9 @@ RANK_TOLERANCE = 1e-10
 """Smallest ratio of singular values of the column-scaled Jacobian accepted as full rank."""
 MAX_EVALUATIONS_PER_PARAMETER = 200
 _REFINE_STEPS = 3
+_NEGLIGIBLE_STEP = 1e-14
+"""A Gauss–Newton step of the polish that changes no parameter by more than this (relative) is the
+last: the next could only move them by round-off (a few parts in 10¹⁶)."""
 
 ModelFunction = Callable[[FloatArray, FloatArray], FloatArray]
 """f(x, β) → responses of shape (n,)."""
@@ -282,7 +285,8 @@ def _refine(
     residuals: Callable[[FloatArray], FloatArray], jacobian: Callable[[FloatArray], FloatArray], beta: FloatArray
 ) -> tuple[FloatArray, int, tuple[FloatArray, FloatArray, FloatArray, FloatArray]]:
     """Up to three full Gauss–Newton steps from the converged point, each kept while it brings the
-    gradient of S closer to zero.
+    gradient of S closer to zero, and none after a step whose successor could only move the
+    parameters by round-off (:data:`_NEGLIGIBLE_STEP`).
 
     MINPACK stops when a step changes S by less than its tolerance relative to S. Near the minimum S
     changes only in the square of the step, so S itself locates the minimum to no better than about
@@ -297,6 +301,7 @@ def _refine(
     u, s, vt, scale = _scaled_svd(j, quiet=True)
     gradient = _norm((j / scale).T @ r)
     evaluations = 0
+    last_step = math.inf
     for _ in range(_REFINE_STEPS):
         if s[-1] <= RANK_TOLERANCE * s[0] or gradient == 0.0:
             break
@@ -309,10 +314,29 @@ def _refine(
         gradient_trial = _norm(scaled_t.T @ r_trial)
         if not gradient_trial < gradient:
             break  # the trial is not kept: its SVD is never needed
+        step = _relative_step(trial, beta)
         beta, r, gradient = trial, r_trial, gradient_trial
         u, s, vt = _thin_svd(scaled_t, quiet=True)
         scale = scale_t
+        # Gauss–Newton closes in linearly, each step about the last one's ratio to the one before it
+        # times its size: stop once the next step could only move the parameters by round-off
+        if step <= _NEGLIGIBLE_STEP or (last_step < math.inf and step * step <= _NEGLIGIBLE_STEP * last_step):
+            break
+        last_step = step
     return beta, evaluations, (u, s, vt, scale)
+
+
+def _relative_step(new: FloatArray, old: FloatArray) -> float:
+    """The largest change of a parameter relative to its new value, max |Δβᵢ|/|βᵢ| (inf when a
+    parameter that changed is zero): the same in any units of the parameters."""
+    change = np.abs(new - old)
+    size = np.abs(new)
+    zero = size == 0.0
+    if zero.any():
+        if np.any(change[zero] > 0.0):
+            return math.inf
+        size = np.where(zero, 1.0, size)
+    return float(np.max(change / size))
 
 
 def _norm(v: FloatArray) -> float:

@@ -51,13 +51,13 @@ from dataclasses import dataclass
 import numpy as np
 
 from ._arrays import FloatArray, frozen
-from .calibration import Calibration
+from .calibration import Calibration, SharedWeights, shared_weights_for
 from .curve_families import FAMILIES, CurveFamily
 from .distributions import f_upper_tail, t_quantile
 from .errors import CalibrationInputError, ConvergenceError, LimitsError
-from .influence import measure_influence
+from .influence import Influence, measure_influence, measure_influence_of_fits
 from .inverse import RANGE_SLACK, QuantFlag, Quantitation, _refuse_unrepresentable, checked_request
-from .lack_of_fit import lack_of_fit_test
+from .lack_of_fit import LackOfFit, lack_of_fit_test, lack_of_fit_tests
 from .least_squares import ROUNDOFF, without_roundoff
 from .levels import Levels
 from .limits import DetectionLimits
@@ -65,7 +65,7 @@ from .models import Basis, Model
 from .nonlinear import NonlinearFit, fit_nonlinear
 from .regression_test import RegressionTest
 from .variance_function import CYCLES, MeanFit
-from .weighting import Weighting, make_weights
+from .weighting import Weighting, WeightModel
 
 LOGISTIC_MODELS = (Model.FOUR_PL, Model.FIVE_PL)
 SEARCH_DECADES = 20.0
@@ -178,6 +178,37 @@ def fit_nonlinear_curve(
 
     ``shared``: a dictionary kept by a caller fitting the same standards under several weightings, in
     which the start values (they depend on the standards alone) are kept after the first fit."""
+    core = _curve_core(model, weighting, x, y, levels, response_sd, anchor_points, shared)
+    influence = measure_influence(core.fit.weighted_residuals, core.fit.leverage, model.n_parameters, core.root_wy)
+    lack = lack_of_fit_test(core.clean / core.root_w, core.weights.weights, levels, model.n_parameters,
+                            weights_from_replicates=core.weights.from_replicates)
+    return _curve_calibration(core, influence, lack)
+
+
+@dataclass(frozen=True, eq=False)
+class _CurveCore:
+    """What a fit of a curve family has worked out before its influence measures and lack of fit."""
+
+    model: Model
+    weighting: Weighting
+    family: CurveFamily
+    x: FloatArray
+    y: FloatArray
+    levels: Levels
+    anchors: np.ndarray
+    weights: WeightModel
+    fit: NonlinearFit
+    root_w: FloatArray
+    root_wy: FloatArray
+    clean: FloatArray
+
+
+def _curve_core(
+    model: Model, weighting: Weighting, x: FloatArray, y: FloatArray, levels: Levels,
+    response_sd: FloatArray | None, anchor_points: object | None, shared: dict[str, list[FloatArray]] | None,
+    shared_weights: SharedWeights | None = None,
+) -> _CurveCore:
+    """The checks, the weights and the best fit of :func:`fit_nonlinear_curve`."""
     family = FAMILIES[model]
     anchors = _anchor_mask(model, x, anchor_points)
     if model is Model.POWER:
@@ -196,7 +227,7 @@ def fit_nonlinear_curve(
                 f"concentration: standard {i + 1} is at {x[i]:g}; a logistic curve needs concentrations of zero or more."
             )
     fitter = _MeanFitter(family) if weighting.variance_function is not None else None
-    weights = make_weights(weighting, x, y, levels, response_sd, model, fitter)
+    weights = shared_weights_for(shared_weights, weighting, x, y, levels, response_sd, model, fitter)
     w = weights.weights
     if shared is None:
         starts = None
@@ -207,11 +238,20 @@ def fit_nonlinear_curve(
     fit = _best_fit(family, x, y, w, starts)
     if fitter is not None:
         fitter.start = fit.parameters.copy()
-    p = model.n_parameters
-    df = x.size - p
     root_w = np.sqrt(w)
     root_wy = root_w * y
     clean = without_roundoff(fit.weighted_residuals, root_wy)
+    return _CurveCore(model, weighting, family, x, y, levels, anchors, weights, fit, root_w, root_wy, clean)
+
+
+def _curve_calibration(core: _CurveCore, influence: Influence, lack: LackOfFit) -> NonlinearCalibration:
+    """The calibration from a curve fit's core, its influence measures and lack of fit: R², the
+    regression test, back-calculation and notes."""
+    model, weighting, family, x, y, levels = core.model, core.weighting, core.family, core.x, core.y, core.levels
+    anchors, weights, fit, root_wy, clean = core.anchors, core.weights, core.fit, core.root_wy, core.clean
+    w = weights.weights
+    p = model.n_parameters
+    df = x.size - p
     residual_sd = float(np.sqrt((clean @ clean) / df))
     covariance = residual_sd**2 * fit.unscaled_covariance
     coefficients = fit.parameters.copy()
@@ -223,8 +263,6 @@ def fit_nonlinear_curve(
     else:
         r_squared = 1.0 - sse / sst
     regression = _regression_test(fit.fitted, y, sst, sse, p, df)
-    influence = measure_influence(fit.weighted_residuals, fit.leverage, p, root_wy)
-    lack = lack_of_fit_test(clean / root_w, w, levels, p, weights_from_replicates=weights.from_replicates)
     back, _ = family.inverse(y, coefficients)
     with np.errstate(invalid="ignore", divide="ignore"):
         relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
@@ -287,10 +325,12 @@ def fit_curve_weightings(
     response_sd: list[object | None],
     level_tolerance: float | None = None,
     levels: Levels | None = None,
+    shared_weights: SharedWeights | None = None,
 ) -> list[Calibration | CalibrationInputError]:
     """:func:`~.fitting.fit` of the power curve under each of ``weightings`` (``response_sd``: each
     one's, None for none): the standards checked once and the start values worked out once. Each
-    entry is the calibration fit() returns for that weighting or the error it raises, the same numbers."""
+    entry is the calibration fit() returns for that weighting or the error it raises, the same numbers.
+    ``shared_weights``: as :func:`~.calibration.fit_weightings` takes it."""
     from .calibration import _checked_standards
 
     try:
@@ -298,13 +338,29 @@ def fit_curve_weightings(
     except CalibrationInputError as exc:
         return [exc] * len(weightings)
     shared: dict[str, list[FloatArray]] = {}
-    out: list[Calibration | CalibrationInputError] = []
+    out: list[Calibration | CalibrationInputError | None] = []
+    cores: list[tuple[int, _CurveCore]] = []
     for weighting, sd in zip(weightings, response_sd, strict=True):
         try:
-            out.append(fit_nonlinear_curve(model, weighting, x, y, levels, sd, None, shared))
+            cores.append((len(out), _curve_core(model, weighting, x, y, levels, sd, None, shared, shared_weights)))
+            out.append(None)
         except CalibrationInputError as exc:
             out.append(exc)
-    return out
+    if cores:
+        # the influence measures and lack of fit of all weightings at once, the same numbers as fit by fit
+        p = model.n_parameters
+        influences = measure_influence_of_fits(
+            np.stack([core.fit.weighted_residuals for _, core in cores]),
+            np.stack([core.fit.leverage for _, core in cores]), p, np.stack([core.root_wy for _, core in cores]),
+        )
+        lacks = lack_of_fit_tests(
+            np.stack([core.clean / core.root_w for _, core in cores]),
+            np.stack([core.weights.weights for _, core in cores]), levels, p,
+            [core.weights.from_replicates for _, core in cores],
+        )
+        for (i, core), influence, lack in zip(cores, influences, lacks, strict=True):
+            out[i] = _curve_calibration(core, influence, lack)
+    return [entry for entry in out if entry is not None]
 
 
 class _MeanFitter:

@@ -21,12 +21,13 @@ response that is constant to round-off across the standards (all responses equal
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
 
 from ._arrays import FloatArray
-from .distributions import f_upper_tail
+from .distributions import f_upper_tails
 from .least_squares import ROUNDOFF
 
 REGRESSION_ALPHA = 0.05
@@ -74,15 +75,46 @@ def regression_test(
     df_residual: int,
 ) -> RegressionTest:
     """Test the terms of powers ≥ 1 (in the fitting variable z; f is constant in x exactly when it is in z)."""
+    return regression_tests([(z_coefficients, z_covariance, fitted, residual_sd_is_roundoff)], powers, response,
+                            df_residual)[0]
+
+
+def regression_tests(
+    fits: Sequence[tuple[FloatArray, FloatArray, FloatArray, bool]],
+    powers: tuple[int, ...],
+    response: FloatArray,
+    df_residual: int,
+) -> list[RegressionTest]:
+    """:func:`regression_test` of several fits of one model to the same responses, each given as
+    (z coefficients, z covariance, fitted values, whether the residual SD is round-off); the
+    p-values in one call, each the number the fit tested alone gets."""
     slope_terms = [i for i, p in enumerate(powers) if p >= 1]
     q = len(slope_terms)
     df = (q, df_residual)
-    change = float(np.ptp(fitted)) if fitted.size else 0.0
-    if change <= ROUNDOFF * float(np.max(np.abs(response), initial=0.0)):
-        return RegressionTest(0.0, df, 1.0)
-    if residual_sd_is_roundoff:
-        return RegressionTest(float("inf"), df, 0.0)
-    a = z_coefficients[slope_terms]
-    c = z_covariance[np.ix_(slope_terms, slope_terms)]
-    f = float(a @ np.linalg.solve(c, a)) / q
-    return RegressionTest(f, df, f_upper_tail(f, q, df_residual))
+    floor = ROUNDOFF * float(np.max(np.abs(response), initial=0.0))
+    # the terms of powers ≥ 1 follow the intercept's, so they are one block of the coefficients
+    first = slope_terms[0] if slope_terms == list(range(slope_terms[0], len(powers))) else None
+    out: list[RegressionTest | None] = [None] * len(fits)
+    tested = []
+    for i, (_, _, fitted, residual_sd_is_roundoff) in enumerate(fits):
+        change = float(np.maximum.reduce(fitted) - np.minimum.reduce(fitted)) if fitted.size else 0.0
+        if change <= floor:
+            out[i] = RegressionTest(0.0, df, 1.0)
+        elif residual_sd_is_roundoff:
+            out[i] = RegressionTest(float("inf"), df, 0.0)
+        else:
+            tested.append(i)
+    if tested:
+        if first is not None:
+            a = np.stack([fits[i][0][first:] for i in tested])
+            c = np.stack([fits[i][1][first:, first:] for i in tested])
+        else:
+            a = np.stack([fits[i][0][slope_terms] for i in tested])
+            c = np.stack([fits[i][1][np.ix_(slope_terms, slope_terms)] for i in tested])
+        # one LAPACK solve per fit in one call; each fit's quadratic form as its own dot product
+        solved = np.linalg.solve(c, a[:, :, None])[:, :, 0]
+        statistics = [float(a[j] @ solved[j]) / q for j in range(len(tested))]
+        p_values = f_upper_tails(np.array(statistics), q, df_residual)
+        for i, f, p_value in zip(tested, statistics, p_values, strict=True):
+            out[i] = RegressionTest(f, df, float(p_value))
+    return [entry for entry in out if entry is not None]
