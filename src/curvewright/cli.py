@@ -986,7 +986,9 @@ class _SampleRows:
         names: dict[int, list[str]] = {}
         words_of = {member: member.value for member in (*SampleKind, *ReportStatus)}
         text = self.rounding.text
-        in_range, below = ReportStatus.IN_RANGE, ReportStatus.BELOW_REPORTING_LIMIT
+        from .core.run_analysis import flag_words_of, is_reportable
+
+        in_range = ReportStatus.IN_RANGE
         for _, c in self.columns.chunks():
             for (sid, kind, order, count, quantified, mean, est, se, low, high, df, nominal, recovery, within, bits,
                  suggested, note, status, reported_text, words, short) in zip(
@@ -1006,9 +1008,6 @@ class _SampleRows:
                 flag_names = names.get(bits)
                 if flag_names is None:
                     flag_names = names[bits] = [] if bits < 0 else [f.name.lower() for f in QuantFlag(bits)]
-                parts = [words] if words else []
-                if note and note not in words:
-                    parts.append(note)
                 yield {
                     "id": sid, "kind": words_of[kind], "run_order": order, "replicates": count,
                     "mean_response": mean, "estimate": estimate, "standard_error": se,
@@ -1018,9 +1017,9 @@ class _SampleRows:
                     "reported_rounded": None if reported is None else (
                         reported_text if status is in_range else text(reported)),
                     "reported_text": reported_text, "status": words_of[status],
-                    "reportable": status is in_range or (status is below and "estimated" in short),
+                    "reportable": is_reportable(status, short),
                     "suggested_dilution": None if suggested != suggested else suggested,
-                    "flags": flag_names, "flag_words": "; ".join(parts), "nominal": None if nominal != nominal else nominal,
+                    "flags": flag_names, "flag_words": flag_words_of(words, note), "nominal": None if nominal != nominal else nominal,
                     "recovery_percent": None if recovery != recovery else recovery,
                     "within_limits": None if within < 0 else bool(within)}
 

@@ -76,6 +76,16 @@ def test_a_typed_sample_response_moves_its_point_and_its_result(make_window, qtb
     points.scatter.data["sourceRect"] = 0
     pg.ScatterPlotItem.updateSpots(points.scatter)
     assert np.array_equal(points.scatter.data["sourceRect"], placed)
+    # a pyqtgraph without the atlas parts the quick way uses is given the general way: the same places
+    from curvewright.app import curve_view
+
+    points.scatter.data["sourceRect"] = 0
+    curve_view._ATLAS_PARTS, kept = (*curve_view._ATLAS_PARTS, "a part this release lacks"), curve_view._ATLAS_PARTS
+    try:
+        points.scatter.updateSpots()
+    finally:
+        curve_view._ATLAS_PARTS = kept
+    assert np.array_equal(points.scatter.data["sourceRect"], placed)
     table = window.results_view.table.model()
     shown = [r for r in range(table.rowCount()) if table.data(table.index(r, results_model.SAMPLE)) == sample_id]
     assert shown

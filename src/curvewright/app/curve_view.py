@@ -60,6 +60,11 @@ def _one_style(data: np.ndarray) -> bool:
             and not any(v is not None for k in ("symbol", "pen", "brush") for v in data[k].tolist()))
 
 
+_ATLAS_PARTS = ("fragmentAtlas", "_maybeRebuildAtlas", "_updateMaxSpotSizes", "invalidate")
+"""What the quick way below uses of a scatter's symbol atlas; a pyqtgraph release without them is
+given the general way."""
+
+
 def _update_spots_of_one_style(scatter: pg.ScatterPlotItem, dataSet=None) -> None:  # type: ignore[no-untyped-def]  # noqa: N803
     """``ScatterPlotItem.updateSpots`` for points that all have the item's style: pyqtgraph looks the
     style up in its symbol atlas point by point (in Python, ~0.1 s per 10,000 points); here it is
@@ -67,7 +72,8 @@ def _update_spots_of_one_style(scatter: pg.ScatterPlotItem, dataSet=None) -> Non
     point by point gives each of them. Anything else goes the general way."""
     data = scatter.data if dataSet is None else dataSet
     opts = scatter.opts
-    if not (opts["pxMode"] and opts["useCache"]) or opts["hoverable"] or not _one_style(data):
+    if (not all(hasattr(scatter, part) for part in _ATLAS_PARTS) or "sourceRect" not in (data.dtype.names or ())
+            or not (opts["pxMode"] and opts["useCache"]) or opts["hoverable"] or not _one_style(data)):
         type(scatter).updateSpots(scatter, dataSet)
         return
     new = data["sourceRect"]["w"] == 0

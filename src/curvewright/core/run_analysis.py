@@ -80,10 +80,7 @@ class SampleResult:
     @property
     def flag_words(self) -> str:
         """Everything to know about the result, in words (one status, then qualifiers and notes)."""
-        parts = [self.words] if self.words else []
-        if self.note and self.note not in self.words:
-            parts.append(self.note)
-        return "; ".join(parts)
+        return flag_words_of(self.words, self.note)
 
     @property
     def short_flags(self) -> str:
@@ -95,8 +92,21 @@ class SampleResult:
     @property
     def reportable(self) -> bool:
         """A number may be reported for this result (inside the range, or estimated where allowed)."""
-        return self.status is ReportStatus.IN_RANGE or (
-            self.status is ReportStatus.BELOW_REPORTING_LIMIT and "estimated" in self.short)
+        return is_reportable(self.status, self.short)
+
+
+def flag_words_of(words: str, note: str) -> str:
+    """A result's status words, then its note where the words do not already say it (``flag_words``)."""
+    parts = [words] if words else []
+    if note and note not in words:
+        parts.append(note)
+    return "; ".join(parts)
+
+
+def is_reportable(status: ReportStatus, short: str) -> bool:
+    """A number may be reported: inside the range, or below the reporting limit where the short words
+    say it is estimated (``reportable``)."""
+    return status is ReportStatus.IN_RANGE or (status is ReportStatus.BELOW_REPORTING_LIMIT and "estimated" in short)
 
 
 _NONE = -1
