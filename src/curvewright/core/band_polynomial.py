@@ -102,24 +102,27 @@ class BandPolynomial:
         ``curve_variance`` is φ(z0)ᵀ·C·φ(z0) when the caller has it (the same bits as computed here).
         """
         f, c, w = self.fitted, self.curve_variance, self.new_variance
-        r = y0 - horner(z0, f)
-        s1 = f[1] + 2.0 * f[2] * z0
+        r = y0 - _trimmed_horner(z0, f)
+        # where f̂ or the curve variance has no term in z² and above, the terms they would add are
+        # exact zeros (z0 is finite for every unknown whose result is kept), and are left out
+        curved = f[2] != 0.0
+        s1 = f[1] + 2.0 * f[2] * z0 if curved else f[1]
         # Taylor coefficients of the curve variance about z0
-        c0 = horner(z0, c) if curve_variance is None else curve_variance
-        c1 = horner(z0, np.array([c[1], 2.0 * c[2], 3.0 * c[3], 4.0 * c[4]]))
-        c2 = horner(z0, np.array([c[2], 3.0 * c[3], 6.0 * c[4]]))
+        c0 = _trimmed_horner(z0, c) if curve_variance is None else curve_variance
+        c1 = _trimmed_horner(z0, np.array([c[1], 2.0 * c[2], 3.0 * c[3], 4.0 * c[4]]))
+        c2 = _trimmed_horner(z0, np.array([c[2], 3.0 * c[3], 6.0 * c[4]]))
         t2 = self.t2
         straight = f[2] == 0.0 and c[3] == 0.0 and c[4] == 0.0  # a straight line: g is quadratic in h
         base = [
             r * r - t2 * c0,
             -2.0 * r * s1 - t2 * c1,
-            s1 * s1 - 2.0 * r * f[2] - t2 * c2,
+            s1 * s1 - 2.0 * r * f[2] - t2 * c2 if curved else s1 * s1 - t2 * c2,
             0.0 if straight else 2.0 * s1 * f[2] - t2 * (c[3] + 4.0 * c[4] * z0),
             float(f[2] * f[2] - t2 * c[4]),
         ]
         tv = t2 * v
         upper = list(base)
-        upper[0] = base[0] - tv * horner(z0, w)
+        upper[0] = base[0] - tv * _trimmed_horner(z0, w)
         if w[1] != 0.0 or w[2] != 0.0:
             upper[1] = base[1] - tv * (w[1] + 2.0 * w[2] * z0)
             upper[2] = base[2] - tv * w[2]
@@ -246,33 +249,46 @@ def polynomial_band_edges(
     ends = []
     left = []
     past_vertex = np.zeros(y0.size, dtype=bool)
+    if h_vertex is not None:
+        # the vertex lies on one side of every unknown (the usual case) or not
+        lowest, highest = np.min(h_vertex), np.max(h_vertex)
     for direction in (-1.0, 1.0):
+        facing = None
         if h_vertex is not None:
-            towards = h_vertex * direction >= 0
-            reach = np.where(towards, np.abs(h_vertex), 0.0) + full_reach
+            if min(lowest * direction, highest * direction) >= 0:
+                facing = True  # every unknown faces the vertex on this side
+                reach = np.abs(h_vertex) + full_reach
+            elif max(lowest * direction, highest * direction) < 0:
+                facing = False  # none does: the vertex plays no part on this side
+                reach = full_reach
+            else:
+                towards = h_vertex * direction >= 0
+                reach = np.where(towards, np.abs(h_vertex), 0.0) + full_reach
         else:
             reach = full_reach
         h_end, certain = _convex_end(shifted, first, direction, reach, guess, start)
         rest = np.flatnonzero(~certain)
-        if h_vertex is not None:
+        if h_vertex is not None and facing is not False:
             # an end past the vertex leaves the band holding ȳ₀ all the way to the vertex
             beyond_vertex = h_end * direction > h_vertex * direction
         if defer:
             left.append(rest)
             if rest.size:
                 h_end[rest] = 0.0
-                if h_vertex is not None:
+                if h_vertex is not None and facing is not False:
                     beyond_vertex[rest] = False
         z_end = start + h_end
         if rest.size and not defer:
             z_end[rest], past = searched_end(
                 band, y0[rest], m[rest], start[rest], full_reach, vertex_z, guess[rest], direction
             )
-            if h_vertex is not None:
+            if h_vertex is not None and facing is not False:
                 beyond_vertex[rest] = past
         ends.append(z_end)
-        if h_vertex is not None:
+        if facing is None and h_vertex is not None:
             past_vertex |= towards & beyond_vertex
+        elif facing:
+            past_vertex |= beyond_vertex
     return ends[0], ends[1], past_vertex, (left[0], left[1]) if defer else None
 
 
@@ -617,13 +633,26 @@ def _cubic_real_roots(d3: float, d2: FloatArray, d1: FloatArray, d0: FloatArray)
 
 
 def horner(z: FloatArray, coefficients: FloatArray) -> FloatArray:
-    """Σ cᵢ·zⁱ by Horner's rule, in the order of numpy's ``polyval`` (so to the same bits), but with
-    each coefficient a scalar: ``polyval`` broadcasts a coefficient of shape (1,) against z, which
-    numpy works element by element far more slowly than a scalar."""
-    value = coefficients[-1] + 0.0 * z
-    for c in coefficients[-2::-1]:
-        value = c + value * z
+    """Σ cᵢ·zⁱ by Horner's rule, in the order of numpy's ``polyval``, so to the same bits wherever z
+    is finite (``polyval`` starts from cₙ + 0·z, which is cₙ there; here the first step is cₙ·z +
+    cₙ₋₁). Each coefficient is a scalar: ``polyval`` broadcasts coefficients of shape (1,) against z."""
+    if len(coefficients) == 1:
+        return coefficients[0] + 0.0 * z
+    value = coefficients[-1] * z
+    value += coefficients[-2]
+    for c in coefficients[-3::-1]:
+        value *= z
+        value += c
     return value
+
+
+def _trimmed_horner(z: FloatArray, coefficients: FloatArray) -> FloatArray | float:
+    """:func:`horner` without the highest coefficients that are zero (the same bits wherever z is
+    finite: each of them adds an exact zero), and one number where only a constant is left."""
+    n = len(coefficients)
+    while n > 1 and coefficients[n - 1] == 0.0:
+        n -= 1
+    return coefficients[0] if n == 1 else horner(z, coefficients[:n])
 
 
 def _padded(coefficients: FloatArray, size: int) -> FloatArray:

@@ -284,11 +284,22 @@ def _quantify_block(
                 cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale, band, t, new_var, curve_var
             )
     unsolved = bool(no_solution.any())
-    bad = ~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | np.isnan(lower) | np.isnan(upper)
+    finite_se = np.isfinite(se)
+    bad = np.isfinite(x_hat)
+    bad &= finite_se | flat if np.ndim(flat) or flat else finite_se
     if interval == "symmetric":
-        unbounded = ~np.isfinite(se)
+        unbounded = ~finite_se
+        bad = ~bad | np.isnan(lower) | np.isnan(upper)
     else:
-        unbounded = np.isinf(lower) | np.isinf(upper)
+        bounded = np.isfinite(lower)
+        bounded &= np.isfinite(upper)
+        if bounded.all():
+            # neither end is infinite, nor NaN
+            unbounded = ~bounded
+            np.logical_not(bad, out=bad)
+        else:
+            unbounded = np.isinf(lower) | np.isinf(upper)
+            bad = ~bad | np.isnan(lower) | np.isnan(upper)
     turning = at_turning_point | past_vertex
 
     low, high = cal.calibrated_range
@@ -443,21 +454,25 @@ def solve_z(
     disc = a1 * a1 - 4.0 * a2 * c
     no_solution = disc < 0
     root_disc = np.sqrt(np.maximum(disc, 0.0))
-    q = -0.5 * (a1 + np.copysign(root_disc, a1))
+    # a1 + sign(a1)·√disc (a1 is one number: the sign is chosen once)
+    q = a1 + root_disc if not np.signbit(a1) else a1 - root_disc
+    q *= -0.5
     with np.errstate(invalid="ignore", divide="ignore"):
         r1 = q / a2
-        r2 = np.where(q != 0.0, c / q, r1)
+        r2 = c / q
+    zero = q == 0.0
+    if zero.any():
+        r2[zero] = r1[zero]
     root = np.maximum(r1, r2) if branch > 0 else np.minimum(r1, r2)
     other = np.minimum(r1, r2) if branch > 0 else np.maximum(r1, r2)
     z_low, z_high = z_range
     tolerance = 1e-12 * (z_high - z_low)
-    ambiguous = (
-        ~no_solution
-        & (np.abs(other - root) > tolerance)
-        & (other >= z_low - tolerance)
-        & (other <= z_high + tolerance)
-    )
-    return np.where(no_solution, np.nan, root), no_solution, ambiguous
+    ambiguous = (other >= z_low - tolerance) & (other <= z_high + tolerance)
+    if ambiguous.any():
+        ambiguous &= ~no_solution & (np.abs(other - root) > tolerance)
+    if no_solution.any():
+        root[no_solution] = np.nan
+    return root, no_solution, ambiguous
 
 
 def _slope_z(cal: "FittedCurve", z: FloatArray) -> FloatArray | np.float64:
