@@ -266,7 +266,11 @@ def polynomial_band_edges(
                 reach = np.where(towards, np.abs(h_vertex), 0.0) + full_reach
         else:
             reach = full_reach
-        h_end, certain = _convex_end(shifted, first, direction, reach, guess, start)
+        h_end, certain, crossed = _convex_end(shifted, first, direction, reach, guess, start)
+        if crossed is not None and crossed.any():
+            # the interval crosses the lowest standard: its end is sought on the other piece
+            over = np.flatnonzero(crossed)
+            h_end[over], certain[over] = _end_in_the_other_piece(shifted, over, direction, reach, guess, start)
         rest = np.flatnonzero(~certain)
         if h_vertex is not None and facing is not False:
             # an end past the vertex leaves the band holding ȳ₀ all the way to the vertex
@@ -411,8 +415,37 @@ def _convex_end(
             convex = _convex(first, h)
         u = h * direction
         certain = np.isfinite(h) & (u > 0) & (u <= reach) & first.inside & convex & converged
+        crossed = None
         if first.below_break is not None:
-            certain &= first.below_break == (h < shifted.h_break)
+            same_piece = first.below_break == (h < shifted.h_break)
+            crossed = certain & ~same_piece
+            certain &= same_piece
+    return h, certain, crossed
+
+
+def _end_in_the_other_piece(
+    shifted: ShiftedBand,
+    index: np.ndarray,
+    direction: float,
+    reach: FloatArray | float,
+    guess: FloatArray,
+    start: FloatArray,
+) -> tuple[FloatArray, np.ndarray]:
+    """The ends at ``index`` found directly on the other side of the lowest standard, and where that
+    is certain: for unknowns whose direct end on the piece that holds ẑ (:func:`_convex_end`) was
+    certain but for lying beyond the break, so that g ≤ 0 from ẑ to the break. The same method on the
+    other piece from h = 0: when that piece is negative at 0 and convex on [0, h*] it is ≤ 0 there,
+    so between the break and h* too, and rises through zero at h*; h* must lie in that piece."""
+    below = shifted.h_break[index] > 0  # ẑ below the lowest standard: the other piece is the upper
+    pick = lambda c: c[index] if np.ndim(c) else c  # noqa: E731
+    other = [
+        np.where(below, pick(up), pick(lo)) if np.ndim(up) or np.ndim(lo) else up
+        for lo, up in zip(shifted.lower, shifted.upper)
+    ]
+    part = ShiftedBand(shifted.z0[index], other, None, None)
+    h, certain, _ = _convex_end(part, _Start(part), direction, reach if np.ndim(reach) == 0 else reach[index],
+                                guess[index], start[index])
+    certain &= (h < shifted.h_break[index]) != below
     return h, certain
 
 
