@@ -10,12 +10,13 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .acceptance import AcceptanceProfile, AcceptanceVerdict
-from .errors import CalibrationInputError
+from .errors import CalibrationInputError, LimitsError
 from .fitted_curve import FittedCurve
 from .influence import Influence, measure_influence, measure_influence_of_fits
 from .inverse import Quantitation, quantify, solve_z
@@ -68,6 +69,15 @@ class Calibration(FittedCurve):
     def limits(self, method: str = "residual_sd", **options: object) -> DetectionLimits:
         """Detection and quantitation limits; see :func:`curvewright.core.limits.detection_limits`."""
         return detection_limits(self, method, **options)  # type: ignore[arg-type]
+
+    @cached_property
+    def flag_limits(self) -> tuple[DetectionLimits | None, str | None]:
+        """The default :meth:`limits` that set the below-LOD/LOQ flags of :meth:`quantify`, worked out
+        once for this calibration (it never changes): (limits, None), or (None, why they could not be)."""
+        try:
+            return self.limits(), None
+        except LimitsError as exc:
+            return None, f"LOD/LOQ flags not set: {exc}"
 
     def evaluate(self, profile: AcceptanceProfile, excluded: int = 0, unusable: int = 0) -> AcceptanceVerdict:
         """Judge the back-calculated standards against an acceptance ``profile``."""

@@ -207,10 +207,13 @@ def quantify(
 
     limits_note = None
     if limits is None:
-        try:
-            limits = detection_limits(cal)
-        except LimitsError as exc:
-            limits_note = f"LOD/LOQ flags not set: {exc}"
+        if hasattr(type(cal), "flag_limits"):
+            limits, limits_note = cal.flag_limits  # type: ignore[attr-defined]
+        else:
+            try:
+                limits = detection_limits(cal)
+            except LimitsError as exc:
+                limits_note = f"LOD/LOQ flags not set: {exc}"
 
     k = y0.size
     estimate, standard_error, lower, upper = (np.empty(k) for _ in range(4))
