@@ -157,6 +157,8 @@ class ShiftedBand:
         if self.lower is None or self.h_break is None:
             return self.upper
         below = self.h_break > 0
+        if not below.any():
+            return self.upper  # every ẑ at or above the lowest standard
         return [np.where(below, lo, up) if np.ndim(up) or np.ndim(lo) else up for lo, up in zip(self.lower, self.upper)]
 
     def excess(self, h: FloatArray) -> FloatArray:
@@ -354,6 +356,14 @@ class _Start:
                 self.convex_margin = self.twice_c2 * (1.0 - 1e-6)
                 self.abs_six_c3 = np.abs(self.six_c3)
         self.below_break = None if shifted.h_break is None else shifted.h_break > 0
+        self._tolerance = None
+
+    def tolerance(self, start: FloatArray) -> FloatArray:
+        """The size of Halley's step below which an end counts as converged, beside its own size
+        (:data:`_CONVERGED` times |ẑ|): one array for both sides."""
+        if self._tolerance is None:
+            self._tolerance = _CONVERGED * np.abs(start)
+        return self._tolerance
 
 
 def _convex_end(
@@ -382,8 +392,10 @@ def _convex_end(
             convex = c[2] >= 0
             converged = np.isfinite(h)
         else:
-            h = np.where(np.isfinite(h) & (h * direction > 0), h, direction * guess)
-            tolerance = _CONVERGED * np.abs(start)
+            usable = np.isfinite(h) & (h * direction > 0)
+            if not usable.all():
+                h = np.where(usable, h, direction * guess)
+            tolerance = first.tolerance(start)
             # Halley's step: third-order convergence from the quadratic part's root. Every unknown
             # takes the first step; one whose step is already below the test stops there.
             step = _halley_step(first, h)
@@ -414,7 +426,12 @@ def _convex_end(
                     h[rest], converged[rest] = hr, ~moving
             convex = _convex(first, h)
         u = h * direction
-        certain = np.isfinite(h) & (u > 0) & (u <= reach) & first.inside & convex & converged
+        # within a finite reach, 0 < u ≤ reach holds only for a finite h
+        certain = (u > 0) & (u <= reach) if np.ndim(reach) == 0 and np.isfinite(reach) else (
+            np.isfinite(h) & (u > 0) & (u <= reach))
+        certain &= first.inside
+        certain &= convex
+        certain &= converged
         crossed = None
         if first.below_break is not None:
             same_piece = first.below_break == (h < shifted.h_break)
