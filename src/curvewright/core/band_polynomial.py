@@ -152,14 +152,17 @@ class ShiftedBand:
             None if self.h_break is None else self.h_break[index],
         )
 
-    def at_zero(self) -> list:
-        """Coefficients of the piece that holds h = 0 (z = z0)."""
+    def at_zero(self, below: np.ndarray | None = None) -> list:
+        """Coefficients of the piece that holds h = 0 (z = z0); ``below``: h_break > 0, when the
+        caller has it."""
         if self.lower is None or self.h_break is None:
             return self.upper
-        below = self.h_break > 0
+        below = self.h_break > 0 if below is None else below
         if not below.any():
             return self.upper  # every ẑ at or above the lowest standard
-        return [np.where(below, lo, up) if np.ndim(up) or np.ndim(lo) else up for lo, up in zip(self.lower, self.upper)]
+        # the pieces share their h³ and h⁴ terms (the same arrays): those need no choice
+        return [np.where(below, lo, up) if (np.ndim(up) or np.ndim(lo)) and lo is not up else up
+                for lo, up in zip(self.lower, self.upper)]
 
     def excess(self, h: FloatArray) -> FloatArray:
         value = _quartic(self.upper, h)
@@ -336,7 +339,8 @@ class _Start:
     its quadratic part, g(0) < 0, and the terms of g′ and g″ that do not depend on h."""
 
     def __init__(self, shifted: ShiftedBand) -> None:
-        c = shifted.at_zero()
+        self.below_break = None if shifted.h_break is None else shifted.h_break > 0
+        c = shifted.at_zero(self.below_break)
         self.c = c
         c0, c1, c2 = c[0], c[1], c[2]
         self.inside = c0 < 0
@@ -355,7 +359,6 @@ class _Start:
                 # round-off is below a few units in the last place of 2c2 + 6|c3·v| + 12|c4|·v².
                 self.convex_margin = self.twice_c2 * (1.0 - 1e-6)
                 self.abs_six_c3 = np.abs(self.six_c3)
-        self.below_break = None if shifted.h_break is None else shifted.h_break > 0
         self._tolerance = None
 
     def tolerance(self, start: FloatArray) -> FloatArray:
