@@ -17,8 +17,8 @@ import numpy as np
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .acceptance import AcceptanceProfile, AcceptanceVerdict
 from .errors import CalibrationInputError, LimitsError
-from .fitted_curve import FittedCurve
-from .influence import Influence, measure_influence, measure_influence_of_fits
+from .fitted_curve import Deferred, FittedCurve
+from .influence import Influence, leverage_notes, measure_influence, measure_influence_of_fits
 from .inverse import Quantitation, quantify, solve_z
 from .lack_of_fit import LackOfFit, lack_of_fit_test, lack_of_fit_tests
 from .least_squares import ROUNDOFF, LeastSquaresSolution, solve_weighted, solve_weighted_stack, without_roundoff
@@ -165,8 +165,10 @@ def fit(
     with np.errstate(over="ignore", under="ignore", invalid="ignore"):
         solution = solve_weighted(basis.design(x), y, weights.weights)
     core = _polynomial_core(model, weighting, x, y, levels, weights, basis, solution)
-    return _polynomial_calibration(core, measure_influence(solution.weighted_residuals, solution.leverage, p,
-                                                           core.root_wy))
+    # the influence measures and the lack-of-fit test are worked out when first read (a batch that
+    # only quantifies never reads them); the same numbers as made here at once
+    return _polynomial_calibration(core, Deferred(lambda: measure_influence(
+        solution.weighted_residuals, solution.leverage, p, core.root_wy)))
 
 
 def fit_weightings(
@@ -430,13 +432,14 @@ def _stacked_roots(model: Model, a: FloatArray, branch: np.ndarray, y: FloatArra
 
 
 def _polynomial_calibration(
-    core: _PolynomialCore, influence: Influence, lack: LackOfFit | None = None,
+    core: _PolynomialCore, influence: Influence | Deferred, lack: LackOfFit | None = None,
     regression: RegressionTest | None = None, stacked: tuple | None = None,
 ) -> Calibration:
     """The calibration from a fit's core and its influence measures: R², lack of fit and the
     regression test (unless given, as :func:`fit_weightings` makes them for all weightings at
-    once), back-calculation and notes. ``stacked``: the total sum of squares, the quadratic's
-    geometry and the back-calculation, when :func:`_stacked_parts` has them."""
+    once; the lack of fit is then worked out when first read, as the influence measures may be),
+    back-calculation and notes. ``stacked``: the total sum of squares, the quadratic's geometry and
+    the back-calculation, when :func:`_stacked_parts` has them."""
     model, weighting, x, y, levels = core.model, core.weighting, core.x, core.y, core.levels
     weights, basis, solution = core.weights, core.basis, core.solution
     root_wy, clean, df, residual_sd = core.root_wy, core.clean, core.df, core.residual_sd
@@ -456,7 +459,8 @@ def _polynomial_calibration(
     branch, vertex_z, notes = (
         _quadratic_geometry(model, solution.coefficients, basis, x) if stacked is None else stacked[1])
     if lack is None:
-        lack = lack_of_fit_test(clean / np.sqrt(w), w, levels, p, weights_from_replicates=weights.from_replicates)
+        lack = Deferred(lambda: lack_of_fit_test(clean / np.sqrt(w), w, levels, p,
+                                                 weights_from_replicates=weights.from_replicates))
     if regression is None:
         regression = regression_test(
             solution.coefficients, z_cov, basis.powers, solution.fitted, y, not np.any(clean), df
@@ -465,7 +469,8 @@ def _polynomial_calibration(
         notes = (regression.words,) + notes
     if weights.variance_fit is not None:
         notes = notes + (f"weights from a variance function: {weights.variance_fit.function.words}",)
-    notes = notes + influence.notes
+    # the notes the influence measures give, from the leverages alone
+    notes = notes + (leverage_notes(solution.leverage) if type(influence) is Deferred else influence.notes)
     if stacked is None:
         z_range = (float(basis.z(x.min())), float(basis.z(x.max())))
         z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
