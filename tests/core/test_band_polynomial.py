@@ -15,6 +15,7 @@ import pytest
 
 import curvewright as cw
 from curvewright.core import inverse
+from curvewright.core import band_polynomial as bp
 from curvewright.core.band_polynomial import band_polynomial
 from curvewright.core.distributions import t_quantile
 
@@ -211,3 +212,93 @@ def test_a_band_that_never_closes_is_unbounded_on_both_paths(monkeypatch) -> Non
     finite = np.isfinite(theirs.upper)
     np.testing.assert_allclose(ours.upper[finite], theirs.upper[finite], rtol=RTOL)
     np.testing.assert_allclose(ours.lower, theirs.lower, rtol=RTOL)
+
+
+def random_pieces(seed: int, size: int = 4000) -> "bp._Start":
+    """Band coefficients of every sign and over many scales, as the direct ends see them."""
+    rng = np.random.default_rng(seed)
+    scale = lambda: 10.0 ** rng.uniform(-6, 6, size)  # noqa: E731
+    c = [-scale(), rng.standard_normal(size) * scale(), rng.uniform(-0.2, 1.0, size) * scale(),
+         rng.standard_normal(size) * scale(), float(rng.standard_normal() * 10.0 ** rng.uniform(-6, 6))]
+    shifted = bp.ShiftedBand(np.zeros(size), c, None, None)
+    return bp._Start(shifted)
+
+
+@pytest.mark.parametrize("seed", range(8))
+def test_the_quick_convexity_bound_gives_the_exact_tests_answer(seed: int) -> None:
+    """g is convex on [0, h] when g″ = 2c2 + 6c3·v + 12c4·v² stays ≥ 0 there; the bound that decides
+    most unknowns at once must never call convex what the exact test does not (nor the reverse,
+    since the exact test decides the rest)."""
+    first = random_pieces(seed)
+    rng = np.random.default_rng(100 + seed)
+    for h in (rng.standard_normal(first.c[0].size) * 10.0 ** rng.uniform(-6, 3, first.c[0].size),
+              first.r1, first.r2):
+        exact = bp._exactly_convex(first.c, h)
+        assert np.array_equal(bp._convex(first, h), exact)
+        quick = np.abs(h) * first.abs_six_c3 + max(-12.0 * first.c[4], 0.0) * h * h <= first.convex_margin
+        assert quick.any() and (~quick).any()  # both ways of deciding are taken
+
+
+@pytest.mark.parametrize("seed", range(4))
+def test_the_halley_step_is_the_textbook_formula_to_the_bit(seed: int) -> None:
+    """h − 2·g·g′/(2·g′² − g·g″) (Halley's method, e.g. Press et al., Numerical Recipes, 3rd ed., §9.4;
+    section from memory), written with the twos cancelled: scaling by two is exact in binary floating
+    point, so the step is the same to the last bit."""
+    first = random_pieces(seed)
+    c = first.c
+    h = np.random.default_rng(seed).standard_normal(c[0].size)
+    value = (((c[4] * h + c[3]) * h + c[2]) * h + c[1]) * h + c[0]
+    slope = ((4.0 * c[4] * h + 3.0 * c[3]) * h + 2.0 * c[2]) * h + c[1]
+    bend = (12.0 * c[4] * h + 6.0 * c[3]) * h + 2.0 * c[2]
+    with np.errstate(all="ignore"):
+        textbook = 2.0 * value * slope / (2.0 * slope * slope - value * bend)
+        ours = bp._halley_step(first, h)
+    assert np.array_equal(ours, textbook, equal_nan=True)
+
+
+@pytest.mark.parametrize(("model", "weighting"), [("linear", "1/x^2"), ("quadratic", "1/x^2"), ("quadratic", "1/x")])
+def test_ends_across_the_lowest_standard_and_ends_searched_in_full(model: str, weighting: str, monkeypatch) -> None:
+    """Intervals that cross the lowest standard (where the 1/x-type band changes piece) end on the
+    other piece; ends the direct method cannot vouch for (near the top of a quadratic) are searched
+    in full after all blocks, together. Each must be what it is when its unknown is quantified
+    alone, and agree with the numeric inversion like every other end."""
+    rng = np.random.default_rng(11)
+    x = np.repeat([0.5, 1.0, 2.0, 5.0, 10.0, 20.0, 40.0], 2)
+    y = (0.05 + 1.2 * x - (0.004 * x * x if model == "quadratic" else 0.0)) * (1 + 0.05 * rng.standard_normal(x.size))
+    cal = cw.fit(x, y, model, weighting)
+    top = float(cal.predict(cal.vertex)) + 1.0 if cal.vertex is not None else float(cal.predict(80.0))
+    low_response = float(cal.predict(0.5))
+    many = np.concatenate([rng.uniform(low_response - 0.5, float(cal.predict(3.0)), inverse.CHUNK + 50),
+                           rng.uniform(low_response, top, inverse.CHUNK + 51)])
+    m = rng.integers(1, 4, many.size)
+    searched = []
+    search = inverse.searched_end
+    monkeypatch.setattr(inverse, "searched_end", lambda *args: (searched.append(args[1].size), search(*args))[1])
+    big = cal.quantify(many, m)
+    monkeypatch.undo()
+    crossing = np.flatnonzero((big.lower < 0.5) & (big.estimate > 0.5))
+    assert crossing.size > 100
+    if model == "quadratic":
+        assert sum(searched) > 1000  # the blocks' ends searched together, in full
+    picks = np.concatenate([crossing[:3], crossing[-3:], crossing[crossing > inverse.CHUNK][:3],
+                            np.arange(many.size - 5, many.size)])
+    for i in picks:
+        alone = cal.quantify(many[i : i + 1], m[i : i + 1])
+        for name in ("estimate", "lower", "upper", "standard_error", "flag_bits"):
+            assert np.array_equal(getattr(alone, name), getattr(big, name)[i : i + 1], equal_nan=True), (name, i)
+    theirs = numeric(cal, many[crossing], m[crossing], monkeypatch)
+    for name in ("lower", "upper"):
+        np.testing.assert_allclose(getattr(big, name)[crossing], getattr(theirs, name), rtol=RTOL, atol=1e-12)
+    assert np.array_equal(big.flag_bits[crossing], theirs.flag_bits)
+    # near the top of a quadratic the numeric inversion's doubling search can step over a narrow
+    # stretch where the band lets go: there the end found here is checked to be the first exit
+    some = np.arange(inverse.CHUNK, many.size, 37)
+    ours, theirs = cal.quantify(many[some], m[some]), numeric(cal, many[some], m[some], monkeypatch)
+    span = np.ptp(cal.concentration)
+    for name in ("lower", "upper"):
+        a, b = getattr(ours, name), getattr(theirs, name)
+        with np.errstate(invalid="ignore"):
+            close = (a == b) | (np.isfinite(a) & np.isfinite(b) & (np.abs(a - b) <= RTOL * np.maximum(np.abs(b), 1e-3 * span)))
+        for i in np.flatnonzero(~close):
+            target = b[i] if np.isfinite(b[i]) else a[i] + np.sign(a[i] - ours.estimate[i]) * 200 * span
+            assert_first_exit(cal, many[some][i], m[some][i], ours.estimate[i], a[i], target)

@@ -344,3 +344,26 @@ def test_a_screen_makes_each_weighting_once_for_its_models() -> None:
     reasons = [s.reason for s in with_blanks.skipped
                if s.weighting is cw.Weighting.INVERSE_X2 and s.model.value in ("linear", "quadratic")]
     assert len(reasons) == 2 and reasons[0] == reasons[1] and "standard 1 has concentration 0" in reasons[0]
+
+
+@pytest.mark.parametrize("model", ["linear", "quadratic", "proportional"])
+def test_the_stacks_back_calculation_is_each_rows_alone_to_the_bit(model: str) -> None:
+    """The screen back-calculates the standards of all of a model's weightings at once; each row
+    must be what solving the curve alone gives (both branches of a quadratic, responses it never
+    reaches, coefficients over many scales)."""
+    from curvewright.core.calibration import _stacked_roots
+    from curvewright.core.inverse import solve_z
+    from curvewright.core.models import Model
+
+    kind = Model.parse(model)
+    rng = np.random.default_rng(3)
+    p = kind.n_parameters
+    a = rng.standard_normal((40, p)) * 10.0 ** rng.uniform(-3, 3, (40, 1))
+    branch = rng.choice([-1, 1], 40)
+    y = rng.standard_normal(30) * 10.0
+    rows = _stacked_roots(kind, a, branch, y)
+    for i in range(40):
+        alone, _, _ = solve_z(kind, a[i], int(branch[i]), (-1.0, 1.0), y)
+        assert _same(rows[i], alone), i
+    if model == "quadratic":
+        assert np.isnan(rows).any() and np.isfinite(rows).any()

@@ -201,3 +201,33 @@ def test_average_response_factor_refuses_other_weightings(weighting: str) -> Non
     with pytest.raises(cw.WeightingError, match=re.escape(f"weighting {weighting}: the average response factor")):
         cw.fit(x, y, "average-rf", weighting)
 
+
+
+def test_diagnostics_are_worked_out_when_first_read_and_are_those_made_at_once() -> None:
+    """fit() defers the influence measures and the lack-of-fit test until they are read (a batch
+    that only quantifies never reads them); read, pickled or copied, they are the numbers the
+    measures give when made at once, and the fit's notes already hold the influence notes."""
+    import pickle
+
+    from curvewright.core.fitted_curve import Deferred
+    from curvewright.core.influence import measure_influence
+    from curvewright.core.lack_of_fit import lack_of_fit_test
+
+    x = np.repeat([0.5, 1.0, 2.0, 5.0, 10.0, 60.0], [2, 2, 2, 2, 2, 1])
+    y = (0.2 + 1.5 * x) * (1 + 0.03 * np.sin(7 * x))
+    cal = cw.fit(x, y, "quadratic", "1/x")
+    assert type(cal.__dict__["_influence"]) is Deferred and type(cal.__dict__["_lack_of_fit"]) is Deferred
+    copy = pickle.loads(pickle.dumps(cal))  # pickling works them out
+    assert type(cal.__dict__["_influence"]) is not Deferred
+    assert any("leverage" in note for note in cal.notes)
+    assert cal.influence.notes == tuple(note for note in cal.notes if "has leverage" in note)
+    w = cal.weights
+    root_wy = np.sqrt(w) * y
+    weighted = np.sqrt(w) * (y - cal.fitted)
+    made = measure_influence(weighted, cal.leverage, 3, root_wy)
+    np.testing.assert_allclose(cal.studentized_residuals, made.studentized_residuals, rtol=1e-12)
+    lack = lack_of_fit_test(y - cal.fitted, w, cal.levels, 3)
+    assert cal.lack_of_fit.p_value == pytest.approx(lack.p_value, rel=1e-12)
+    for name in ("leverage", "studentized_residuals", "cooks_distance"):
+        assert np.array_equal(getattr(copy, name), getattr(cal, name), equal_nan=True)
+    assert copy.lack_of_fit == cal.lack_of_fit

@@ -147,3 +147,17 @@ def test_levels_without_labels_are_those_of_empty_labels(tolerance: float | None
         assert fast.concentration.tolist() == general.concentration.tolist()
         assert fast.count.tolist() == general.count.tolist()
         assert fast.exact is general.exact
+
+
+def test_the_limits_that_set_the_flags_are_worked_out_once_and_are_the_default_limits() -> None:
+    """quantify() flags against the default limits (residual SD method); they are kept with the
+    calibration, so a second call reads the same object, and equal a fresh limits() field by field."""
+    x = np.repeat([1.0, 2.0, 5.0, 10.0, 20.0], 2)
+    cal = cw.fit(x, 0.3 + 1.7 * x + np.tile([0.02, -0.02], 5))
+    first = cal.quantify([0.5, 4.0]).limits
+    assert cal.quantify([9.0]).limits is first
+    assert first == cal.limits()
+    # a calibration whose slope is not significant has no limits: the note says why, every time
+    flat = cw.fit(x, 5.0 + np.tile([0.5, -0.5], 5) * np.arange(10) / 10)
+    assert not flat.regression.significant
+    assert flat.flag_limits[0] is None and "no limit can be computed" in flat.flag_limits[1]

@@ -32,8 +32,9 @@ def as_finite_vector(
         raise error(f"{field}: every value must be a number ({exc}).") from None
     if array.ndim != 1:
         raise error(f"{field}: expected a single column of numbers, got shape {array.shape}.")
-    bad = np.flatnonzero(~np.isfinite(array))
-    if bad.size:
+    finite = np.isfinite(array)
+    if not finite.all():
+        bad = np.flatnonzero(~finite)
         first = int(bad[0])
         raise error(
             f"{field}: {item} {first + 1} is {float(array[first])!r}; every value must be a finite number"

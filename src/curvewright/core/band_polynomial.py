@@ -92,31 +92,37 @@ class BandPolynomial:
             v = v * (ratio if self.response_power == 1 else ratio * ratio)
         return v
 
-    def about(self, y0: FloatArray, v: FloatArray, z0: FloatArray) -> "ShiftedBand":
+    def about(
+        self, y0: FloatArray, v: FloatArray, z0: FloatArray, curve_variance: FloatArray | None = None
+    ) -> "ShiftedBand":
         """g as polynomials in h = z − z0, one for each unknown, expanded about its own z0.
 
         With r = ȳ₀ − f̂(z0) and f̂(z0 + h) = f̂(z0) + f̂′(z0)·h + a₂·h², the square is
         (r − f̂′·h − a₂·h²)², expanded without the cancellation of ȳ₀² against f̂²: at ẑ, r is zero.
+        ``curve_variance`` is φ(z0)ᵀ·C·φ(z0) when the caller has it (the same bits as computed here).
         """
         f, c, w = self.fitted, self.curve_variance, self.new_variance
-        r = y0 - _horner(z0, f)
-        s1 = f[1] + 2.0 * f[2] * z0
+        r = y0 - _trimmed_horner(z0, f)
+        # where f̂ or the curve variance has no term in z² and above, the terms they would add are
+        # exact zeros (z0 is finite for every unknown whose result is kept), and are left out
+        curved = f[2] != 0.0
+        s1 = f[1] + 2.0 * f[2] * z0 if curved else f[1]
         # Taylor coefficients of the curve variance about z0
-        c0 = _horner(z0, c)
-        c1 = _horner(z0, np.array([c[1], 2.0 * c[2], 3.0 * c[3], 4.0 * c[4]]))
-        c2 = _horner(z0, np.array([c[2], 3.0 * c[3], 6.0 * c[4]]))
+        c0 = _trimmed_horner(z0, c) if curve_variance is None else curve_variance
+        c1 = _trimmed_horner(z0, np.array([c[1], 2.0 * c[2], 3.0 * c[3], 4.0 * c[4]]))
+        c2 = _trimmed_horner(z0, np.array([c[2], 3.0 * c[3], 6.0 * c[4]]))
         t2 = self.t2
         straight = f[2] == 0.0 and c[3] == 0.0 and c[4] == 0.0  # a straight line: g is quadratic in h
         base = [
             r * r - t2 * c0,
             -2.0 * r * s1 - t2 * c1,
-            s1 * s1 - 2.0 * r * f[2] - t2 * c2,
+            s1 * s1 - 2.0 * r * f[2] - t2 * c2 if curved else s1 * s1 - t2 * c2,
             0.0 if straight else 2.0 * s1 * f[2] - t2 * (c[3] + 4.0 * c[4] * z0),
             float(f[2] * f[2] - t2 * c[4]),
         ]
         tv = t2 * v
         upper = list(base)
-        upper[0] = base[0] - tv * _horner(z0, w)
+        upper[0] = base[0] - tv * _trimmed_horner(z0, w)
         if w[1] != 0.0 or w[2] != 0.0:
             upper[1] = base[1] - tv * (w[1] + 2.0 * w[2] * z0)
             upper[2] = base[2] - tv * w[2]
@@ -146,12 +152,17 @@ class ShiftedBand:
             None if self.h_break is None else self.h_break[index],
         )
 
-    def at_zero(self) -> list:
-        """Coefficients of the piece that holds h = 0 (z = z0)."""
+    def at_zero(self, below: np.ndarray | None = None) -> list:
+        """Coefficients of the piece that holds h = 0 (z = z0); ``below``: h_break > 0, when the
+        caller has it."""
         if self.lower is None or self.h_break is None:
             return self.upper
-        below = self.h_break > 0
-        return [np.where(below, lo, up) if np.ndim(up) or np.ndim(lo) else up for lo, up in zip(self.lower, self.upper)]
+        below = self.h_break > 0 if below is None else below
+        if not below.any():
+            return self.upper  # every ẑ at or above the lowest standard
+        # the pieces share their h³ and h⁴ terms (the same arrays): those need no choice
+        return [np.where(below, lo, up) if (np.ndim(up) or np.ndim(lo)) and lo is not up else up
+                for lo, up in zip(self.lower, self.upper)]
 
     def excess(self, h: FloatArray) -> FloatArray:
         value = _quartic(self.upper, h)
@@ -223,44 +234,144 @@ def polynomial_band_edges(
     full_reach: float,
     vertex_z: float | None,
     guess: FloatArray,
-) -> tuple[FloatArray, FloatArray, np.ndarray]:
+    curve_variance: FloatArray | None = None,
+    defer: bool = False,
+) -> tuple[FloatArray, FloatArray, np.ndarray, tuple[np.ndarray, np.ndarray] | None]:
     """Lower and upper ends of the calibration interval around ``start`` (ẑ), in z, and which
     unknowns' intervals reach past the vertex. The same search as the numeric inversion
     (:func:`curvewright.core.inverse._band_edges`), solved on the polynomial. ``guess`` is a distance
-    from ẑ close to either end (the half-width of the symmetric interval), used to narrow the bracket."""
+    from ẑ close to either end (the half-width of the symmetric interval), used to narrow the bracket;
+    ``curve_variance``, φᵀCφ at ``start``, when the caller has it.
+
+    With ``defer``, the ends that need the full search are not searched: each such end is left at
+    ``start`` and not counted past the vertex, and the last item returned holds the positions of the
+    unknowns whose lower and upper ends were left, for :func:`searched_end` (so that the few of a
+    large call are searched together, not block by block). Otherwise that item is None.
+    """
+    shifted = band.about(y0, band.multiplier(y0, m), start, curve_variance)
+    h_vertex = None if vertex_z is None else vertex_z - start
+    first = _Start(shifted)
+    ends = []
+    left = []
+    past_vertex = np.zeros(y0.size, dtype=bool)
+    if h_vertex is not None:
+        # the vertex lies on one side of every unknown (the usual case) or not
+        lowest, highest = np.min(h_vertex), np.max(h_vertex)
+    for direction in (-1.0, 1.0):
+        facing = None
+        if h_vertex is not None:
+            if min(lowest * direction, highest * direction) >= 0:
+                facing = True  # every unknown faces the vertex on this side
+                reach = np.abs(h_vertex) + full_reach
+            elif max(lowest * direction, highest * direction) < 0:
+                facing = False  # none does: the vertex plays no part on this side
+                reach = full_reach
+            else:
+                towards = h_vertex * direction >= 0
+                reach = np.where(towards, np.abs(h_vertex), 0.0) + full_reach
+        else:
+            reach = full_reach
+        h_end, certain, crossed = _convex_end(shifted, first, direction, reach, guess, start)
+        if crossed is not None and crossed.any():
+            # the interval crosses the lowest standard: its end is sought on the other piece
+            over = np.flatnonzero(crossed)
+            h_end[over], certain[over] = _end_in_the_other_piece(shifted, over, direction, reach, guess, start)
+        rest = np.flatnonzero(~certain)
+        if h_vertex is not None and facing is not False:
+            # an end past the vertex leaves the band holding ȳ₀ all the way to the vertex
+            beyond_vertex = h_end * direction > h_vertex * direction
+        if defer:
+            left.append(rest)
+            if rest.size:
+                h_end[rest] = 0.0
+                if h_vertex is not None and facing is not False:
+                    beyond_vertex[rest] = False
+        z_end = start + h_end
+        if rest.size and not defer:
+            z_end[rest], past = searched_end(
+                band, y0[rest], m[rest], start[rest], full_reach, vertex_z, guess[rest], direction
+            )
+            if h_vertex is not None and facing is not False:
+                beyond_vertex[rest] = past
+        ends.append(z_end)
+        if facing is None and h_vertex is not None:
+            past_vertex |= towards & beyond_vertex
+        elif facing:
+            past_vertex |= beyond_vertex
+    return ends[0], ends[1], past_vertex, (left[0], left[1]) if defer else None
+
+
+def searched_end(
+    band: BandPolynomial,
+    y0: FloatArray,
+    m: np.ndarray,
+    start: FloatArray,
+    full_reach: float,
+    vertex_z: float | None,
+    guess: FloatArray,
+    direction: float,
+) -> tuple[FloatArray, np.ndarray]:
+    """One end (``direction`` −1: lower, +1: upper), in z, found by the full search (:func:`_side`),
+    and whether it lies past the vertex on the side that faces it. Each unknown's end depends on its
+    own ȳ₀, m, ẑ and ``guess`` only, whichever others are searched with it."""
     shifted = band.about(y0, band.multiplier(y0, m), start)
     h_vertex = None if vertex_z is None else vertex_z - start
-    ends = []
-    past_vertex = np.zeros(y0.size, dtype=bool)
-    for direction in (-1.0, 1.0):
-        if h_vertex is not None:
-            towards = h_vertex * direction >= 0
-            reach = np.where(towards, np.abs(h_vertex), 0.0) + full_reach
-        else:
-            towards = np.zeros(y0.size, dtype=bool)
-            reach = np.full(y0.size, full_reach)
-        h_end, certain = _convex_end(shifted, direction, reach, guess, start)
-        # an end past the vertex leaves the band holding ȳ₀ all the way to the vertex
-        beyond_vertex = np.zeros(y0.size, dtype=bool) if h_vertex is None else h_end * direction > h_vertex * direction
-        rest = np.flatnonzero(~certain)
-        if rest.size:
-            part = shifted.take(rest)
-            splits = part.turning_points()
-            if part.h_break is not None:
-                splits.append(part.h_break)
-            if h_vertex is not None:
-                splits.append(h_vertex[rest])
-            h_end[rest], beyond_vertex[rest] = _side(
-                part, part.excess(np.zeros(rest.size)), direction, splits, reach[rest],
-                None if h_vertex is None else h_vertex[rest], guess[rest], start[rest],
-            )
-        ends.append(start + h_end)
-        past_vertex |= towards & beyond_vertex
-    return ends[0], ends[1], past_vertex
+    if h_vertex is not None:
+        towards = h_vertex * direction >= 0
+        reach = np.where(towards, np.abs(h_vertex), 0.0) + full_reach
+    else:
+        towards = np.zeros(y0.size, dtype=bool)
+        reach = np.full(y0.size, full_reach)
+    splits = shifted.turning_points()
+    if shifted.h_break is not None:
+        splits.append(shifted.h_break)
+    if h_vertex is not None:
+        splits.append(h_vertex)
+    h_end, beyond_vertex = _side(
+        shifted, shifted.excess(np.zeros(y0.size)), direction, splits, reach, h_vertex, guess, start
+    )
+    # ẑ plus the distance, as every other end is made
+    return start + h_end, towards & beyond_vertex
+
+
+class _Start:
+    """What both sides' direct ends share: the coefficients of the piece that holds ẑ, the roots of
+    its quadratic part, g(0) < 0, and the terms of g′ and g″ that do not depend on h."""
+
+    def __init__(self, shifted: ShiftedBand) -> None:
+        self.below_break = None if shifted.h_break is None else shifted.h_break > 0
+        c = shifted.at_zero(self.below_break)
+        self.c = c
+        c0, c1, c2 = c[0], c[1], c[2]
+        self.inside = c0 < 0
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            root = np.sqrt(c1 * c1 - 4.0 * c2 * c0)
+            q = -0.5 * (c1 + np.copysign(root, c1))
+            self.r1, self.r2 = q / c2, c0 / q
+            self.quartic = not (np.ndim(c[3]) == 0 and c[3] == 0.0 and c[4] == 0.0)
+            if self.quartic:
+                self.twice_c2 = 2.0 * c2
+                self.thrice_c3 = 3.0 * c[3]
+                self.six_c3 = 6.0 * c[3]
+                # g″(v) ≥ 2c2 − 6|c3|·|v| − 12·max(−c4, 0)·v² on [0, h]: when that bound stays above
+                # a margin of 1e-6 of 2c2, g is convex there, and g″ evaluated in floating point is ≥ 0
+                # at every point the exact test (see :func:`_exactly_convex`) would look at, since its
+                # round-off is below a few units in the last place of 2c2 + 6|c3·v| + 12|c4|·v².
+                self.convex_margin = self.twice_c2 * (1.0 - 1e-6)
+                self.abs_six_c3 = np.abs(self.six_c3)
+        self._tolerance = None
+
+    def tolerance(self, start: FloatArray) -> FloatArray:
+        """The size of Halley's step below which an end counts as converged, beside its own size
+        (:data:`_CONVERGED` times |ẑ|): one array for both sides."""
+        if self._tolerance is None:
+            self._tolerance = _CONVERGED * np.abs(start)
+        return self._tolerance
 
 
 def _convex_end(
     shifted: ShiftedBand,
+    first: _Start,
     direction: float,
     reach: FloatArray,
     guess: FloatArray,
@@ -275,45 +386,145 @@ def _convex_end(
     within reach and in the same piece as ẑ; it may lie past the vertex of a quadratic, since g ≤ 0
     all the way to it. The others are searched in full (:func:`_side`).
     """
-    c = shifted.at_zero()
-    c0, c1, c2 = c[0], c[1], c[2]
+    c = first.c
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        root = np.sqrt(c1 * c1 - 4.0 * c2 * c0)
-        q = -0.5 * (c1 + np.copysign(root, c1))
-        r1, r2 = q / c2, c0 / q
-        h = np.where(r1 * direction > 0, r1, r2)
-        quadratic = np.ndim(c[3]) == 0 and c[3] == 0.0 and c[4] == 0.0
-        if quadratic:
+        r1 = first.r1
+        h = np.where(r1 > 0 if direction > 0 else r1 < 0, r1, first.r2)
+        if not first.quartic:
             # g is c0 + c1·h + c2·h² (a straight line): that root is the end, and g″ = 2c2
-            convex = c2 >= 0
+            convex = c[2] >= 0
             converged = np.isfinite(h)
         else:
-            h = np.where(np.isfinite(h) & (h * direction > 0), h, direction * guess)
-            tolerance = _CONVERGED * np.abs(start)
-            converged = np.zeros(h.size, dtype=bool)
-            for _ in range(_CONVEX_STEPS):
-                value = _quartic(c, h)
-                slope = ((4.0 * c[4] * h + 3.0 * c[3]) * h + 2.0 * c2) * h + c1
-                bend = (12.0 * c[4] * h + 6.0 * c[3]) * h + 2.0 * c2
-                # Halley's step: third-order convergence from the quadratic part's root. Each unknown
-                # stops after its own converged step, so its end never depends on the others.
-                step = 2.0 * value * slope / (2.0 * slope * slope - value * bend)
-                h = np.where(converged, h, h - step)
-                converged |= np.abs(step) <= tolerance + _CONVERGED * np.abs(h)
-                if converged.all():
-                    break
-            # g″ = 2c2 + 6c3·h + 12c4·h² must not fall below zero on [0, h*]
-            curvature = lambda v: (12.0 * c[4] * v + 6.0 * c[3]) * v + 2.0 * c2  # noqa: E731
-            convex = (curvature(0.0) >= 0) & (curvature(h) >= 0)
-            if c[4] > 0:
-                lowest = -c[3] / (4.0 * c[4])
-                between = (lowest - 0.0) * (lowest - h) < 0
-                convex &= ~between | (curvature(lowest) >= 0)
+            usable = np.isfinite(h) & (h * direction > 0)
+            if not usable.all():
+                h = np.where(usable, h, direction * guess)
+            tolerance = first.tolerance(start)
+            # Halley's step: third-order convergence from the quadratic part's root. Every unknown
+            # takes the first step; one whose step is already below the test stops there.
+            step = _halley_step(first, h)
+            h -= step
+            converged = np.abs(step) <= tolerance + _CONVERGED * np.abs(h)
+            if not converged.all():
+                step = _halley_step(first, h)
+                after = h - step
+                done = np.abs(step) <= tolerance + _CONVERGED * np.abs(after)
+                if converged.any():
+                    after = np.where(converged, h, after)
+                    done |= converged
+                h, converged = after, done
+                if not converged.all():
+                    # the few still moving take their further steps alone
+                    rest = np.flatnonzero(~converged)
+                    part = _Start.__new__(_Start)
+                    part.c = [ci[rest] if np.ndim(ci) else ci for ci in c]
+                    part.twice_c2, part.thrice_c3, part.six_c3 = (
+                        first.twice_c2[rest], first.thrice_c3[rest], first.six_c3[rest])
+                    hr, tr, moving = h[rest], tolerance[rest], np.ones(rest.size, dtype=bool)
+                    for _ in range(_CONVEX_STEPS - 2):
+                        step = _halley_step(part, hr)
+                        hr = np.where(moving, hr - step, hr)
+                        moving &= ~(np.abs(step) <= tr + _CONVERGED * np.abs(hr))
+                        if not moving.any():
+                            break
+                    h[rest], converged[rest] = hr, ~moving
+            convex = _convex(first, h)
         u = h * direction
-        certain = np.isfinite(h) & (u > 0) & (u <= reach) & (c0 < 0) & convex & converged
-        if shifted.h_break is not None:
-            certain &= (shifted.h_break > 0) == (h < shifted.h_break)
+        # within a finite reach, 0 < u ≤ reach holds only for a finite h
+        certain = (u > 0) & (u <= reach) if np.ndim(reach) == 0 and np.isfinite(reach) else (
+            np.isfinite(h) & (u > 0) & (u <= reach))
+        certain &= first.inside
+        certain &= convex
+        certain &= converged
+        crossed = None
+        if first.below_break is not None:
+            same_piece = first.below_break == (h < shifted.h_break)
+            crossed = certain & ~same_piece
+            certain &= same_piece
+    return h, certain, crossed
+
+
+def _end_in_the_other_piece(
+    shifted: ShiftedBand,
+    index: np.ndarray,
+    direction: float,
+    reach: FloatArray | float,
+    guess: FloatArray,
+    start: FloatArray,
+) -> tuple[FloatArray, np.ndarray]:
+    """The ends at ``index`` found directly on the other side of the lowest standard, and where that
+    is certain: for unknowns whose direct end on the piece that holds ẑ (:func:`_convex_end`) was
+    certain but for lying beyond the break, so that g ≤ 0 from ẑ to the break. The same method on the
+    other piece from h = 0: when that piece is negative at 0 and convex on [0, h*] it is ≤ 0 there,
+    so between the break and h* too, and rises through zero at h*; h* must lie in that piece."""
+    below = shifted.h_break[index] > 0  # ẑ below the lowest standard: the other piece is the upper
+    pick = lambda c: c[index] if np.ndim(c) else c  # noqa: E731
+    other = [
+        np.where(below, pick(up), pick(lo)) if np.ndim(up) or np.ndim(lo) else up
+        for lo, up in zip(shifted.lower, shifted.upper)
+    ]
+    part = ShiftedBand(shifted.z0[index], other, None, None)
+    h, certain, _ = _convex_end(part, _Start(part), direction, reach if np.ndim(reach) == 0 else reach[index],
+                                guess[index], start[index])
+    certain &= (h < shifted.h_break[index]) != below
     return h, certain
+
+
+def _halley_step(first: _Start, h: FloatArray) -> FloatArray:
+    """Halley's step g·g′/(g′² − g·g″/2) at h on the piece that holds ẑ (the same bits as
+    2·g·g′/(2·g′² − g·g″): scaling by two is exact)."""
+    c = first.c
+    value = c[4] * h
+    value += c[3]
+    value *= h
+    value += c[2]
+    value *= h
+    value += c[1]
+    value *= h
+    value += c[0]
+    slope = (4.0 * c[4]) * h
+    slope += first.thrice_c3
+    slope *= h
+    slope += first.twice_c2
+    slope *= h
+    slope += c[1]
+    bend = (12.0 * c[4]) * h
+    bend += first.six_c3
+    bend *= h
+    bend += first.twice_c2
+    bend *= value
+    bend *= 0.5
+    numerator = value
+    numerator *= slope
+    slope *= slope
+    slope -= bend
+    numerator /= slope
+    return numerator
+
+
+def _convex(first: _Start, h: FloatArray) -> np.ndarray:
+    """Whether g is convex between 0 and h: the bound of :class:`_Start` where it decides, the exact
+    test (:func:`_exactly_convex`) for the others; the same answer as the exact test for every h."""
+    c = first.c
+    a = np.abs(h)
+    bound = a * first.abs_six_c3
+    if c[4] < 0:
+        bound += (-12.0 * c[4]) * a * a
+    convex = bound <= first.convex_margin
+    unsure = np.flatnonzero(~convex)
+    if unsure.size:
+        convex[unsure] = _exactly_convex([ci[unsure] if np.ndim(ci) else ci for ci in c], h[unsure])
+    return convex
+
+
+def _exactly_convex(c: list, h: FloatArray) -> np.ndarray:
+    """g″ = 2c2 + 6c3·v + 12c4·v² is ≥ 0 at 0, at h and, where it has its least value between them, there."""
+    curvature = lambda v: (12.0 * c[4] * v + 6.0 * c[3]) * v + 2.0 * c[2]  # noqa: E731
+    convex = (curvature(0.0) >= 0) & (curvature(h) >= 0)
+    if c[4] > 0:
+        lowest = -c[3] / (4.0 * c[4])
+        between = (lowest - 0.0) * (lowest - h) < 0
+        convex &= ~between | (curvature(lowest) >= 0)
+    return convex
 
 
 def _side(
@@ -474,12 +685,27 @@ def _cubic_real_roots(d3: float, d2: FloatArray, d1: FloatArray, d0: FloatArray)
         return polished
 
 
-def _horner(z: FloatArray, coefficients: FloatArray) -> FloatArray:
-    """Σ cᵢ·zⁱ by Horner's rule, in the order of numpy's ``polyval`` (so to the same bits)."""
-    value = coefficients[-1] + 0.0 * z
-    for c in coefficients[-2::-1]:
-        value = c + value * z
+def horner(z: FloatArray, coefficients: FloatArray) -> FloatArray:
+    """Σ cᵢ·zⁱ by Horner's rule, in the order of numpy's ``polyval``, so to the same bits wherever z
+    is finite (``polyval`` starts from cₙ + 0·z, which is cₙ there; here the first step is cₙ·z +
+    cₙ₋₁). Each coefficient is a scalar: ``polyval`` broadcasts coefficients of shape (1,) against z."""
+    if len(coefficients) == 1:
+        return coefficients[0] + 0.0 * z
+    value = coefficients[-1] * z
+    value += coefficients[-2]
+    for c in coefficients[-3::-1]:
+        value *= z
+        value += c
     return value
+
+
+def _trimmed_horner(z: FloatArray, coefficients: FloatArray) -> FloatArray | float:
+    """:func:`horner` without the highest coefficients that are zero (the same bits wherever z is
+    finite: each of them adds an exact zero), and one number where only a constant is left."""
+    n = len(coefficients)
+    while n > 1 and coefficients[n - 1] == 0.0:
+        n -= 1
+    return coefficients[0] if n == 1 else horner(z, coefficients[:n])
 
 
 def _padded(coefficients: FloatArray, size: int) -> FloatArray:

@@ -10,14 +10,15 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .acceptance import AcceptanceProfile, AcceptanceVerdict
-from .errors import CalibrationInputError
-from .fitted_curve import FittedCurve
-from .influence import Influence, measure_influence, measure_influence_of_fits
+from .errors import CalibrationInputError, LimitsError
+from .fitted_curve import Deferred, FittedCurve
+from .influence import Influence, leverage_notes, measure_influence, measure_influence_of_fits
 from .inverse import Quantitation, quantify, solve_z
 from .lack_of_fit import LackOfFit, lack_of_fit_test, lack_of_fit_tests
 from .least_squares import ROUNDOFF, LeastSquaresSolution, solve_weighted, solve_weighted_stack, without_roundoff
@@ -68,6 +69,15 @@ class Calibration(FittedCurve):
     def limits(self, method: str = "residual_sd", **options: object) -> DetectionLimits:
         """Detection and quantitation limits; see :func:`curvewright.core.limits.detection_limits`."""
         return detection_limits(self, method, **options)  # type: ignore[arg-type]
+
+    @cached_property
+    def flag_limits(self) -> tuple[DetectionLimits | None, str | None]:
+        """The default :meth:`limits` that set the below-LOD/LOQ flags of :meth:`quantify`, worked out
+        once for this calibration (it never changes): (limits, None), or (None, why they could not be)."""
+        try:
+            return self.limits(), None
+        except LimitsError as exc:
+            return None, f"LOD/LOQ flags not set: {exc}"
 
     def evaluate(self, profile: AcceptanceProfile, excluded: int = 0, unusable: int = 0) -> AcceptanceVerdict:
         """Judge the back-calculated standards against an acceptance ``profile``."""
@@ -155,8 +165,10 @@ def fit(
     with np.errstate(over="ignore", under="ignore", invalid="ignore"):
         solution = solve_weighted(basis.design(x), y, weights.weights)
     core = _polynomial_core(model, weighting, x, y, levels, weights, basis, solution)
-    return _polynomial_calibration(core, measure_influence(solution.weighted_residuals, solution.leverage, p,
-                                                           core.root_wy))
+    # the influence measures and the lack-of-fit test are worked out when first read (a batch that
+    # only quantifies never reads them); the same numbers as made here at once
+    return _polynomial_calibration(core, Deferred(lambda: measure_influence(
+        solution.weighted_residuals, solution.leverage, p, core.root_wy)))
 
 
 def fit_weightings(
@@ -225,8 +237,10 @@ def fit_weightings(
                 [(core.solution.coefficients, core.z_cov, core.solution.fitted, not np.any(core.clean))
                  for _, core in cores], cores[0][1].basis.powers, y, cores[0][1].df,
             )
-            for (i, core), influence, lack, regression in zip(cores, influences, lacks, regressions, strict=True):
-                out[i] = _polynomial_calibration(core, influence, lack, regression)
+            stacked = _stacked_parts([core for _, core in cores])
+            for (i, core), influence, lack, regression, parts in zip(cores, influences, lacks, regressions, stacked,
+                                                                      strict=True):
+                out[i] = _polynomial_calibration(core, influence, lack, regression, parts)
     return [entry for entry in out if entry is not None]
 
 
@@ -356,29 +370,97 @@ def _polynomial_core(
                            residual_sd, z_cov, coefficients, covariance)
 
 
+def _stacked_parts(cores: list[_PolynomialCore]) -> list[tuple[float, FloatArray, FloatArray]]:
+    """For fits of one model to the same standards (:func:`fit_weightings`): each fit's total sum of
+    squares about its weighted mean response and its back-calculated concentrations with their
+    relative errors, worked out over the (k, n) stack. Every operation is the one
+    :func:`_polynomial_calibration` makes for a fit alone, element by element or row by row (a
+    reduction along a row of a stack adds in the same order as along the row alone), so the numbers
+    are the same to the bit."""
+    model, x, y = cores[0].model, cores[0].x, cores[0].y
+    w = np.stack([core.weights.weights for core in cores])
+    mean_w = np.add.reduce(w * y, axis=1) / np.add.reduce(w, axis=1)
+    sst = np.add.reduce(w * (y - mean_w[:, None]) ** 2, axis=1)
+    a = np.stack([core.solution.coefficients for core in cores])
+    geometry = [_quadratic_geometry(model, core.solution.coefficients, core.basis, x) for core in cores]
+    z_back = np.empty((len(cores), y.size))
+    # the rows the stack works as the quadratic's root or the line's quotient; the others (no
+    # curvature at all, a flat line) each as a fit alone does
+    if model is Model.QUADRATIC:
+        usual = a[:, 2] != 0.0
+    else:
+        usual = a[:, -1] != 0.0
+    rows = np.flatnonzero(usual)
+    if rows.size:
+        z_back[rows] = _stacked_roots(model, a[rows], np.array([geometry[i][0] for i in rows]), y)
+    low, high = float(x.min()), float(x.max())
+    for i in np.flatnonzero(~usual):
+        basis = cores[i].basis
+        z_range = (float(basis.z(low)), float(basis.z(high)))
+        z_back[i] = solve_z(model, cores[i].solution.coefficients, geometry[i][0], z_range, y)[0]
+    centre = np.array([core.basis.centre for core in cores])[:, None]
+    scale = np.array([core.basis.scale for core in cores])[:, None]
+    back = centre + scale * z_back
+    with np.errstate(invalid="ignore", divide="ignore"):
+        relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
+    return [(float(sst[i]), geometry[i], back[i], relative[i]) for i in range(len(cores))]
+
+
+def _stacked_roots(model: Model, a: FloatArray, branch: np.ndarray, y: FloatArray) -> FloatArray:
+    """:func:`~.inverse.solve_z`'s root for each row of z-coefficients ``a`` (k, p) at responses ``y``,
+    element by element the same operations (rows with a non-zero highest coefficient only)."""
+    if model.through_origin:
+        return y / a[:, :1]
+    if model is not Model.QUADRATIC:
+        return (y - a[:, :1]) / a[:, 1:2]
+    a0, a1, a2 = a[:, :1], a[:, 1:2], a[:, 2:3]
+    c = a0 - y
+    disc = a1 * a1 - 4.0 * a2 * c
+    no_solution = disc < 0
+    root_disc = np.sqrt(np.maximum(disc, 0.0))
+    q = np.where(np.signbit(a1), a1 - root_disc, a1 + root_disc)
+    q *= -0.5
+    with np.errstate(invalid="ignore", divide="ignore"):
+        r1 = q / a2
+        r2 = c / q
+    zero = q == 0.0
+    if zero.any():
+        r2[zero] = r1[zero]
+    root = np.where(branch[:, None] > 0, np.maximum(r1, r2), np.minimum(r1, r2))
+    root[no_solution] = np.nan
+    return root
+
+
 def _polynomial_calibration(
-    core: _PolynomialCore, influence: Influence, lack: LackOfFit | None = None,
-    regression: RegressionTest | None = None,
+    core: _PolynomialCore, influence: Influence | Deferred, lack: LackOfFit | None = None,
+    regression: RegressionTest | None = None, stacked: tuple | None = None,
 ) -> Calibration:
     """The calibration from a fit's core and its influence measures: R², lack of fit and the
     regression test (unless given, as :func:`fit_weightings` makes them for all weightings at
-    once), back-calculation and notes."""
+    once; the lack of fit is then worked out when first read, as the influence measures may be),
+    back-calculation and notes. ``stacked``: the total sum of squares, the quadratic's geometry and
+    the back-calculation, when :func:`_stacked_parts` has them."""
     model, weighting, x, y, levels = core.model, core.weighting, core.x, core.y, core.levels
     weights, basis, solution = core.weights, core.basis, core.solution
     root_wy, clean, df, residual_sd = core.root_wy, core.clean, core.df, core.residual_sd
     z_cov, coefficients, covariance = core.z_cov, core.coefficients, core.covariance
     p = model.n_parameters
     w = weights.weights
-    mean_w = float(np.add.reduce(w * y) / np.add.reduce(w))
-    sst = float(np.add.reduce(w * (y - mean_w) ** 2))
+    if stacked is None:
+        mean_w = float(np.add.reduce(w * y) / np.add.reduce(w))
+        sst = float(np.add.reduce(w * (y - mean_w) ** 2))
+    else:
+        sst = stacked[0]
     adjust = (x.size - 1) / df
     if sst <= x.size * (ROUNDOFF * float(np.maximum.reduce(np.abs(root_wy)))) ** 2:
         r_squared = 0.0  # the responses do not vary: nothing to explain
     else:
         r_squared = 1.0 - float(clean @ clean) / sst
-    branch, vertex_z, notes = _quadratic_geometry(model, solution.coefficients, basis, x)
+    branch, vertex_z, notes = (
+        _quadratic_geometry(model, solution.coefficients, basis, x) if stacked is None else stacked[1])
     if lack is None:
-        lack = lack_of_fit_test(clean / np.sqrt(w), w, levels, p, weights_from_replicates=weights.from_replicates)
+        lack = Deferred(lambda: lack_of_fit_test(clean / np.sqrt(w), w, levels, p,
+                                                 weights_from_replicates=weights.from_replicates))
     if regression is None:
         regression = regression_test(
             solution.coefficients, z_cov, basis.powers, solution.fitted, y, not np.any(clean), df
@@ -387,12 +469,16 @@ def _polynomial_calibration(
         notes = (regression.words,) + notes
     if weights.variance_fit is not None:
         notes = notes + (f"weights from a variance function: {weights.variance_fit.function.words}",)
-    notes = notes + influence.notes
-    z_range = (float(basis.z(x.min())), float(basis.z(x.max())))
-    z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
-    back = basis.centre + basis.scale * z_back
-    with np.errstate(invalid="ignore", divide="ignore"):
-        relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
+    # the notes the influence measures give, from the leverages alone
+    notes = notes + (leverage_notes(solution.leverage) if type(influence) is Deferred else influence.notes)
+    if stacked is None:
+        z_range = (float(basis.z(x.min())), float(basis.z(x.max())))
+        z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
+        back = basis.centre + basis.scale * z_back
+        with np.errstate(invalid="ignore", divide="ignore"):
+            relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
+    else:
+        back, relative = stacked[2], stacked[3]
 
     return Calibration(
         model=model,

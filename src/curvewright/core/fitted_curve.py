@@ -9,6 +9,7 @@ take a ``FittedCurve``, and :class:`~curvewright.core.calibration.Calibration` a
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -23,6 +24,16 @@ from .models import Basis, Model
 from .regression_test import RegressionTest
 from .response_factor import ResponseFactors, response_factors
 from .weighting import WeightModel, Weighting
+
+
+class Deferred:
+    """A diagnostic of a fit worked out the first time it is read (see :class:`FittedCurve`):
+    ``make`` computes it from numbers the fit keeps, so the value is the one computed at once."""
+
+    __slots__ = ("make",)
+
+    def __init__(self, make: Callable[[], object]) -> None:
+        self.make = make
 
 
 @dataclass(frozen=True, eq=False)
@@ -260,3 +271,35 @@ class FittedCurve:
     def _t(self, level: float) -> float:
         value = as_confidence_level(level, CalibrationInputError)
         return t_quantile(0.5 + value / 2.0, self.df_residual)
+
+
+def _worked_out_on_first_use(name: str) -> property:
+    """The field ``name`` of :class:`FittedCurve` as a property: the dataclass's ``__init__`` stores
+    the value given (a :class:`Deferred` or the value itself) and the first read of a deferred one
+    works it out and keeps it. The curve never changes, so neither does the value."""
+    slot = "_" + name
+
+    def read(self: FittedCurve) -> object:
+        value = self.__dict__[slot]
+        if type(value) is Deferred:
+            value = value.make()
+            self.__dict__[slot] = value
+        return value
+
+    def store(self: FittedCurve, value: object) -> None:
+        self.__dict__[slot] = value
+
+    return property(read, store, doc=f"``{name}``, worked out on first use where the fit deferred it.")
+
+
+def _state(self: FittedCurve) -> dict:  # type: ignore[type-arg]
+    """A pickled curve carries its diagnostics worked out, never the code that would make them."""
+    for name in _DEFERRABLE:
+        getattr(self, name)
+    return dict(self.__dict__)
+
+
+_DEFERRABLE = ("influence", "lack_of_fit")
+for _name in _DEFERRABLE:
+    setattr(FittedCurve, _name, _worked_out_on_first_use(_name))
+FittedCurve.__getstate__ = _state  # type: ignore[method-assign]

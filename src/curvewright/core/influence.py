@@ -193,12 +193,7 @@ def measure_influence_of_fits(
     thresholds = np.asarray(influence_thresholds, dtype=float)
     out = []
     for j in range(k):
-        notes = tuple(
-            f"standard {i + 1} has leverage {leverage[j, i]:.2f} (above {HIGH_LEVERAGE:g}): the curve near it rests "
-            "mostly on this one standard, so an error in it would hardly show in its residual; replicate it "
-            "or add a standard nearby"
-            for i in np.flatnonzero(high[j])
-        )
+        notes = _leverage_notes(leverage[j], high[j])
         out.append(Influence(
             leverage=frozen(capped[j].copy()),
             studentized_residuals=frozen(external[j].copy()),
@@ -211,6 +206,22 @@ def measure_influence_of_fits(
             notes=notes,
         ))
     return out
+
+
+def leverage_notes(leverage: FloatArray) -> tuple[str, ...]:
+    """The notes :func:`measure_influence` gives a fit with these leverages (standards whose leverage
+    is above :data:`HIGH_LEVERAGE` and below 1), from the leverages alone."""
+    leverage = np.asarray(leverage, dtype=np.float64)
+    return _leverage_notes(leverage, (leverage > HIGH_LEVERAGE) & ~(leverage >= FULL_LEVERAGE))
+
+
+def _leverage_notes(leverage: FloatArray, high: np.ndarray) -> tuple[str, ...]:
+    return tuple(
+        f"standard {i + 1} has leverage {leverage[i]:.2f} (above {HIGH_LEVERAGE:g}): the curve near it rests "
+        "mostly on this one standard, so an error in it would hardly show in its residual; replicate it "
+        "or add a standard nearby"
+        for i in np.flatnonzero(high)
+    )
 
 
 @lru_cache(maxsize=256)

@@ -42,10 +42,9 @@ from functools import cached_property
 from typing import TYPE_CHECKING
 
 import numpy as np
-from numpy.polynomial.polynomial import polyval
 
 from ._arrays import FloatArray, as_confidence_level, as_finite_vector, frozen
-from .band_polynomial import BandPolynomial, band_polynomial, polynomial_band_edges
+from .band_polynomial import BandPolynomial, band_polynomial, horner, polynomial_band_edges, searched_end
 from .distributions import t_quantile
 from .errors import LimitsError, QuantitationInputError
 from .limits import DetectionLimits, detection_limits
@@ -208,10 +207,13 @@ def quantify(
 
     limits_note = None
     if limits is None:
-        try:
-            limits = detection_limits(cal)
-        except LimitsError as exc:
-            limits_note = f"LOD/LOQ flags not set: {exc}"
+        if hasattr(type(cal), "flag_limits"):
+            limits, limits_note = cal.flag_limits  # type: ignore[attr-defined]
+        else:
+            try:
+                limits = detection_limits(cal)
+            except LimitsError as exc:
+                limits_note = f"LOD/LOQ flags not set: {exc}"
 
     k = y0.size
     estimate, standard_error, lower, upper = (np.empty(k) for _ in range(4))
@@ -222,10 +224,16 @@ def quantify(
         band = band_polynomial(cal, t)
     # Unknowns are worked in blocks so that the working arrays stay a fixed size however many there
     # are; every unknown's result depends on its own response and replicate count only.
+    left = []
     for first in range(0, k, CHUNK):
         block = slice(first, first + CHUNK)
         (estimate[block], standard_error[block], lower[block], upper[block], bits[block],
-         bad[block]) = _quantify_block(cal, y0[block], m[block], probability, t, interval, limits, band)
+         bad[block], block_left) = _quantify_block(cal, y0[block], m[block], probability, t, interval, limits, band)
+        if block_left is not None:
+            left.append((first, block_left))
+    if left:
+        assert band is not None
+        _search_left(cal, band, y0, m, left, lower, upper, bits, bad)
     _refuse_unrepresentable(y0, bad)
     return Quantitation(
         mean_response=frozen(y0),
@@ -252,8 +260,9 @@ def _quantify_block(
     interval: str,
     limits: DetectionLimits | None,
     band: BandPolynomial | None,
-) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray, np.ndarray, np.ndarray]:
-    """Estimate, standard error, interval ends, flag bits and the unrepresentable mask of a block of unknowns."""
+) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray, np.ndarray, np.ndarray, tuple | None]:
+    """Estimate, standard error, interval ends, flag bits and the unrepresentable mask of a block of
+    unknowns, and the ends left for the full search of the polynomial band (see :func:`_search_left`)."""
     z_range = tuple(cal.basis.z(np.array(cal.calibrated_range)))
     # Overflow is detected below, per unknown, and refused by name rather than left as inf or NaN.
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
@@ -269,43 +278,112 @@ def _quantify_block(
         se = np.sqrt(new_var + curve_var) / np.abs(slope)
         flat = slope == 0.0
         past_vertex = np.zeros(y0.size, dtype=bool)
+        left = None
         if interval == "symmetric":
             t_hat = cal.band_t(probability, x_hat, new_var, curve_var)
             lower, upper = x_hat - t_hat * se, x_hat + t_hat * se
         else:
-            lower, upper, past_vertex = _band_interval(
-                cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale, band, t, new_var
+            lower, upper, past_vertex, left = _band_interval(
+                cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale, band, t, new_var, curve_var
             )
     unsolved = bool(no_solution.any())
-    bad = ~(np.isfinite(x_hat) & (np.isfinite(se) | flat)) | np.isnan(lower) | np.isnan(upper)
+    finite_se = np.isfinite(se)
+    bad = np.isfinite(x_hat)
+    bad &= finite_se | flat if np.ndim(flat) or flat else finite_se
     if interval == "symmetric":
-        unbounded = ~np.isfinite(se)
+        unbounded = ~finite_se
+        bad = ~bad | np.isnan(lower) | np.isnan(upper)
     else:
-        unbounded = np.isinf(lower) | np.isinf(upper)
+        bounded = np.isfinite(lower)
+        bounded &= np.isfinite(upper)
+        if bounded.all():
+            # neither end is infinite, nor NaN
+            unbounded = ~bounded
+            np.logical_not(bad, out=bad)
+        else:
+            unbounded = np.isinf(lower) | np.isinf(upper)
+            bad = ~bad | np.isnan(lower) | np.isnan(upper)
     turning = at_turning_point | past_vertex
 
     low, high = cal.calibrated_range
     # Round-off must not push a response read at exactly an end standard outside the range.
     slack = RANGE_SLACK * (high - low)
     low, high = low - slack, high + slack
-    bits = np.where(
-        x_hat < low, int(QuantFlag.BELOW_RANGE), np.where(x_hat > high, int(QuantFlag.ABOVE_RANGE), int(QuantFlag.IN_RANGE))
-    ).astype(np.int64, copy=False)
-    if limits is not None:
-        if limits.loq is not None:
-            np.bitwise_or(bits, int(QuantFlag.BELOW_LOQ), out=bits, where=x_hat < limits.loq)
-        np.bitwise_or(bits, int(QuantFlag.BELOW_LOD), out=bits, where=x_hat < limits.lod)
+    bits = _range_bits(x_hat, low, high, limits)
     for flag, mask in ((QuantFlag.AMBIGUOUS_ROOT, ambiguous), (QuantFlag.UNBOUNDED_INTERVAL, unbounded),
                        (QuantFlag.TURNING_POINT, turning)):
         if mask.any():
             np.bitwise_or(bits, int(flag), out=bits, where=mask)
     if not unsolved:
-        return x_hat, se, lower, upper, bits, bad
+        return x_hat, se, lower, upper, bits, bad, left
     # an unknown with no solution carries that flag alone, and NaN for every number
     bits[no_solution] = int(QuantFlag.NO_SOLUTION)
     bad &= ~no_solution
     nan = np.where(no_solution, np.nan, 0.0)
-    return x_hat + nan, se + nan, lower + nan, upper + nan, bits, bad
+    return x_hat + nan, se + nan, lower + nan, upper + nan, bits, bad, left
+
+
+def _search_left(
+    cal: "FittedCurve", band: BandPolynomial, y0: FloatArray, m: np.ndarray, left: list,
+    lower: FloatArray, upper: FloatArray, bits: np.ndarray, bad: np.ndarray,
+) -> None:
+    """The ends the blocks left for the full search of the polynomial band, searched together and
+    written in place: each end in x, its "unbounded" and "turning point" flags, and whether it can be
+    represented. The blocks counted such an end as bounded, finite and short of the vertex, so these
+    flags are only ever added here. Each end depends on its own unknown alone (see
+    :func:`.band_polynomial.searched_end`), so its bits are those a search block by block would give."""
+    vertex_z = cal.vertex_z if cal.model is Model.QUADRATIC else None
+    reach = _full_reach(cal)
+    for side, (direction, ends) in enumerate(((-1.0, lower), (1.0, upper))):
+        parts = [(first + part[0], part[1], part[2]) for first, block_left in left if (part := block_left[side])]
+        if not parts:
+            continue
+        index, start, guess = (np.concatenate(column) for column in zip(*parts))
+        for first in range(0, index.size, CHUNK):
+            at = slice(first, first + CHUNK)
+            i = index[at]
+            z_end, past = searched_end(band, y0[i], m[i], start[at], reach, vertex_z, guess[at], direction)
+            x_end = cal.basis.centre + cal.basis.scale * z_end
+            ends[i] = x_end
+            bits[i] |= np.where(np.isinf(x_end), int(QuantFlag.UNBOUNDED_INTERVAL), 0)
+            bits[i] |= np.where(past, int(QuantFlag.TURNING_POINT), 0)
+            bad[i] |= np.isnan(x_end)
+
+
+def _flag_table() -> np.ndarray:
+    """Flag bits for each code of :func:`_range_bits`: bit 0 below the range, bit 1 above it, bit 2
+    below the LOQ, bit 3 below the LOD."""
+    table = np.empty(16, dtype=np.int64)
+    for code in range(16):
+        flag = QuantFlag.BELOW_RANGE if code & 1 else QuantFlag.ABOVE_RANGE if code & 2 else QuantFlag.IN_RANGE
+        if code & 4:
+            flag |= QuantFlag.BELOW_LOQ
+        if code & 8:
+            flag |= QuantFlag.BELOW_LOD
+        table[code] = int(flag)
+    return table
+
+
+_FLAG_TABLE = _flag_table()
+
+
+def _range_bits(x_hat: FloatArray, low: float, high: float, limits: DetectionLimits | None) -> np.ndarray:
+    """The range, LOQ and LOD flags of each estimate: below ``low``, else above ``high``, else in
+    range; below the LOQ and below the LOD besides (NaN is none of these, so in range). The four
+    comparisons are packed as bits of one small code per unknown, read from a table in one pass."""
+    code = np.less(x_hat, low).view(np.uint8)
+    scratch = np.greater(x_hat, high).view(np.uint8)
+    scratch <<= 1
+    code |= scratch
+    if limits is not None:
+        if limits.loq is not None:
+            np.less(x_hat, limits.loq, out=scratch.view(np.bool_))
+            scratch <<= 2
+            code |= scratch
+        np.less(x_hat, limits.lod, out=scratch.view(np.bool_))
+        scratch <<= 3
+        code |= scratch
+    return _FLAG_TABLE[code]
 
 
 def _refuse_unrepresentable(y0: FloatArray, bad: np.ndarray) -> None:
@@ -379,21 +457,25 @@ def solve_z(
     disc = a1 * a1 - 4.0 * a2 * c
     no_solution = disc < 0
     root_disc = np.sqrt(np.maximum(disc, 0.0))
-    q = -0.5 * (a1 + np.copysign(root_disc, a1))
+    # a1 + sign(a1)·√disc (a1 is one number: the sign is chosen once)
+    q = a1 + root_disc if not np.signbit(a1) else a1 - root_disc
+    q *= -0.5
     with np.errstate(invalid="ignore", divide="ignore"):
         r1 = q / a2
-        r2 = np.where(q != 0.0, c / q, r1)
+        r2 = c / q
+    zero = q == 0.0
+    if zero.any():
+        r2[zero] = r1[zero]
     root = np.maximum(r1, r2) if branch > 0 else np.minimum(r1, r2)
     other = np.minimum(r1, r2) if branch > 0 else np.maximum(r1, r2)
     z_low, z_high = z_range
     tolerance = 1e-12 * (z_high - z_low)
-    ambiguous = (
-        ~no_solution
-        & (np.abs(other - root) > tolerance)
-        & (other >= z_low - tolerance)
-        & (other <= z_high + tolerance)
-    )
-    return np.where(no_solution, np.nan, root), no_solution, ambiguous
+    ambiguous = (other >= z_low - tolerance) & (other <= z_high + tolerance)
+    if ambiguous.any():
+        ambiguous &= ~no_solution & (np.abs(other - root) > tolerance)
+    if no_solution.any():
+        root[no_solution] = np.nan
+    return root, no_solution, ambiguous
 
 
 def _slope_z(cal: "FittedCurve", z: FloatArray) -> FloatArray | np.float64:
@@ -409,7 +491,7 @@ def _slope_z(cal: "FittedCurve", z: FloatArray) -> FloatArray | np.float64:
 def _curve_variance(cal: "FittedCurve", z: FloatArray) -> FloatArray:
     """Variance of the fitted curve at z: φ(z)ᵀ·C·φ(z), C the coefficient covariance, evaluated as
     the polynomial in z it is."""
-    return polyval(z, curve_polynomials(cal)[1])
+    return horner(z, curve_polynomials(cal)[1])
 
 
 def _new_response_variance(cal: "FittedCurve", x: FloatArray, y0: FloatArray, m: np.ndarray) -> FloatArray:
@@ -423,33 +505,43 @@ def _new_response_variance(cal: "FittedCurve", x: FloatArray, y0: FloatArray, m:
 def _band_interval(
     cal: "FittedCurve", y0: FloatArray, m: np.ndarray, probability: float, z_hat: FloatArray,
     no_solution: np.ndarray, guess: FloatArray, band: BandPolynomial | None = None, t: float | None = None,
-    new_var: FloatArray | None = None,
-) -> tuple[FloatArray, FloatArray, np.ndarray]:
-    """Both ends of the calibration interval, in x, and which unknowns' intervals reach past the vertex.
+    new_var: FloatArray | None = None, curve_var: FloatArray | None = None,
+) -> tuple[FloatArray, FloatArray, np.ndarray, tuple | None]:
+    """Both ends of the calibration interval, in x, which unknowns' intervals reach past the vertex,
+    and, for the polynomial band, the ends left for the full search: for each side None or the
+    positions, ẑ and guesses of its unknowns (see :func:`_search_left`; the ends left stand at ẑ).
 
     Fieller's closed form for a straight line whose weights do not depend on x; the polynomial band
     (:mod:`.band_polynomial`) wherever ``band`` is given; otherwise the numeric inversion. ``t`` is
     Student's quantile at ``probability`` and ``new_var`` the variance of the new responses' mean
-    (σ²/(m·w)), when the caller has them already.
+    (σ²/(m·w)), and ``curve_var`` the variance of the curve at ẑ, when the caller has them already.
     """
     closed_form = cal.model is not Model.QUADRATIC and not cal.weighting.uses_concentration
     past_vertex = np.zeros(y0.size, dtype=bool)
+    left = None
     if closed_form:
         # the weights of these fits do not depend on x, so the caller's new_var is Fieller's σ²/(m·w)
         t = t_quantile(probability, cal.df_residual) if t is None else t
         z_lo, z_hi = _fieller_z(cal, y0, m, t, new_var)
     elif band is not None:
-        start = np.where(no_solution, 0.0, z_hat)
-        z_lo, z_hi, past_vertex = polynomial_band_edges(
+        solved = not no_solution.any()
+        start = z_hat if solved else np.where(no_solution, 0.0, z_hat)
+        guess = np.where(np.isfinite(guess) & (guess > 0), guess, 1e-3)
+        z_lo, z_hi, past_vertex, sides = polynomial_band_edges(
             band, y0, m, start, _full_reach(cal), cal.vertex_z if cal.model is Model.QUADRATIC else None,
-            np.where(np.isfinite(guess) & (guess > 0), guess, 1e-3),
+            guess, curve_var if solved else None, defer=True,
         )
         past_vertex &= ~no_solution
+        assert sides is not None
+        # an unknown without a solution has no interval to search for
+        kept = [index if solved else index[~no_solution[index]] for index in sides]
+        if any(index.size for index in kept):
+            left = tuple((index, start[index], guess[index]) if index.size else None for index in kept)
     else:
         z_lo, z_hi, past_vertex = _band_edges(cal, y0, m, probability, z_hat, no_solution, guess)
     to_x = lambda z: cal.basis.centre + cal.basis.scale * z  # noqa: E731
     # scale > 0, so the order of the ends survives the change of variable.
-    return to_x(z_lo), to_x(z_hi), past_vertex
+    return to_x(z_lo), to_x(z_hi), past_vertex, left
 
 
 def _inside_band_at_vertex(
@@ -512,8 +604,8 @@ def _band_excess(
     z: FloatArray,
 ) -> FloatArray:
     """(ȳ₀ − f̂(z))² − t²·(σ²/(m·w) + var f̂(z)); ≤ 0 inside the calibration interval."""
-    fitted = polyval(z, polys[0])
-    curve_var = polyval(z, polys[1])
+    fitted = horner(z, polys[0])
+    curve_var = horner(z, polys[1])
     x = cal.basis.centre + cal.basis.scale * z
     new_var = cal.residual_sd**2 / (m * cal.weight_model.weight_at(x, y0))
     t = cal.band_t(probability, x, new_var, curve_var)

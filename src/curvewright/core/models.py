@@ -57,15 +57,27 @@ class Basis:
         (b0 = 0, b1).
         """
         degree = max(self.powers)
-        ratio, s = np.float64(-self.centre / self.scale), np.float64(self.scale)
         transform = np.zeros((degree + 1, len(self.powers)))
+        ratio, s = -self.centre / self.scale, float(self.scale)
+        try:
+            # Python floats: the same IEEE operations as numpy's scalars, without their overhead;
+            # a power that overflows raises here, and the entries are made below instead
+            entries = [(k, column, comb(p, k) * ratio ** (p - k) / s**k)
+                       for column, p in enumerate(self.powers) for k in range(p + 1)]
+        except (OverflowError, ZeroDivisionError):
+            entries = None
+        if entries is not None:
+            for k, column, value in entries:
+                transform[k, column] = value
+            return transform
+        np_ratio, np_s = np.float64(ratio), np.float64(s)
         # Far beyond the range of double precision (x near 1e200 for a quadratic) an entry overflows
         # to inf or underflows to 0; the caller checks the coefficients it gives and refuses them.
-        with np.errstate(over="ignore", under="ignore"):
+        with np.errstate(over="ignore", under="ignore", divide="ignore"):
             for column, p in enumerate(self.powers):
                 # ((x − c)/s)^p = Σ_k C(p, k) x^k (−c/s)^(p−k) / s^k
                 for k in range(p + 1):
-                    transform[k, column] = comb(p, k) * ratio ** (p - k) / s**k
+                    transform[k, column] = comb(p, k) * np_ratio ** (p - k) / np_s**k
         return transform
 
 

@@ -523,10 +523,7 @@ def _quantify(
 
     limits_note = None
     if limits is None:
-        try:
-            limits = cal.limits()
-        except LimitsError as exc:
-            limits_note = f"LOD/LOQ flags not set: {exc}"
+        limits, limits_note = cal.flag_limits
     low, high = cal.calibrated_range
     slack = RANGE_SLACK * (high - low)
     low, high = low - slack, high + slack
