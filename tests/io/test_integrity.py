@@ -168,3 +168,35 @@ def test_a_samples_kept_text_is_left_out_of_equality_copies_and_pickles() -> Non
     assert getattr(pickle.loads(pickle.dumps(sample)), "_kept_text", None) is None
     assert pickle.loads(pickle.dumps(sample)) == sample
     assert content_sha256(Run(name="r", analytes=(), samples=(changed,))) != first
+
+
+def test_a_run_of_many_samples_is_hashed_a_chunk_at_a_time(monkeypatch) -> None:  # type: ignore[no-untyped-def]
+    """The samples are written out a chunk at a time and the text hashed as it is made: the hash is the
+    SHA-256 of the one canonical text (the encoder's, as ``json.dumps`` writes it), across chunk
+    boundaries, and no chunk of plain data holds more than a chunk of samples."""
+    import hashlib
+    from dataclasses import replace
+
+    from curvewright.io import integrity, run_document
+
+    run = loads_run(DEMO.read_text(encoding="utf-8")).run
+    many = tuple(replace(run.samples[i % len(run.samples)], id=f"S-{i:05d}", run_order=i)
+                 for i in range(2 * integrity.SAMPLE_CHUNK + 3))
+    big = replace(run, samples=many)
+    canonical = json.dumps(integrity.content_of(run_document.run_to_mapping(big)), sort_keys=True,
+                           ensure_ascii=False, separators=(",", ":"), allow_nan=False).encode("utf-8")
+    sizes: list[int] = []
+    samples_out = run_document.samples_out
+
+    def counted(samples):  # type: ignore[no-untyped-def]
+        out = samples_out(samples)
+        sizes.append(len(out))
+        return out
+
+    monkeypatch.setattr(run_document, "samples_out", counted)
+    assert integrity.content_sha256(big) == hashlib.sha256(canonical).hexdigest()
+    assert [n for n in sizes if n] == [integrity.SAMPLE_CHUNK, integrity.SAMPLE_CHUNK, 3]
+    assert integrity.content_text(replace(big)) == canonical
+    assert integrity.content_text(replace(big, samples=())) == json.dumps(
+        integrity.content_of(run_document.run_to_mapping(replace(big, samples=()))), sort_keys=True,
+        ensure_ascii=False, separators=(",", ":"), allow_nan=False).encode("utf-8")

@@ -18,7 +18,7 @@ import json
 import math
 from json.encoder import encode_basestring
 from dataclasses import dataclass, replace
-from typing import Any, Mapping, Sequence
+from typing import Any, Iterator, Mapping, Sequence
 
 from ..core.run import Run, Sample
 
@@ -84,11 +84,15 @@ changed only. The document text is joined from the parts and hashed once per run
 def content_sha256(run: Run) -> str:
     """SHA-256 (hex) of the run's content in canonical JSON: the same digest as
     :func:`sha256_of_content` of the run's document mapping, worked out once per run value and, for
-    its samples, once per sample value."""
+    its samples, once per sample value. The text is hashed piece by piece as it is made (the samples
+    a chunk at a time), never joined into one text."""
     known = vars(run).get(_RUN_MEMO)
     if known is not None:
         return known
-    digest = hashlib.sha256(content_text(run)).hexdigest()
+    hasher = hashlib.sha256()
+    for piece in content_pieces(run):
+        hasher.update(piece)
+    digest = hasher.hexdigest()
     object.__setattr__(run, _RUN_MEMO, digest)
     return digest
 
@@ -97,12 +101,32 @@ def content_text(run: Run) -> bytes:
     """The run's content in canonical JSON, as :func:`_canonical` writes :func:`content_of` of its
     document mapping (the canonical JSON of an object is its members' texts, keys sorted, joined;
     of a list, its items' texts joined), with each sample's text kept with the sample."""
+    return b"".join(content_pieces(run))
+
+
+SAMPLE_CHUNK = 4096
+"""Samples turned into plain data and canonical text at a time (the plain data of all the samples of
+a large run at once would be several times their text)."""
+
+
+def content_pieces(run: Run) -> Iterator[bytes]:
+    """The pieces of :func:`content_text`, in order: the text made and handed on a part at a time."""
     from .run_document import run_to_mapping
 
     content = content_of(run_to_mapping(replace(run, samples=(), audit=(), signatures=())))
-    samples = b"[" + b",".join(sample_texts(run.samples)) + b"]"
-    return b"{" + b",".join(_canonical(k) + b":" + (samples if k == "samples" else _canonical(v))
-                            for k, v in sorted(content.items())) + b"}"
+    yield b"{"
+    for number, (k, v) in enumerate(sorted(content.items())):
+        yield (b"," if number else b"") + _canonical(k) + b":"
+        if k != "samples":
+            yield _canonical(v)
+            continue
+        yield b"["
+        samples = run.samples
+        for start in range(0, len(samples), SAMPLE_CHUNK):
+            texts = sample_texts(samples[start:start + SAMPLE_CHUNK])
+            yield (b"," if start else b"") + b",".join(texts)
+        yield b"]"
+    yield b"}"
 
 
 def sample_texts(samples: Sequence[Sample]) -> list[bytes]:
