@@ -910,6 +910,7 @@ def result_json(  # type: ignore[no-untyped-def]
     from .io.signatures import check_signatures
 
     run = result.run
+    chain_problems = verify_chain(run.audit)
     out: dict[str, Any] = {
         "run": run.name, "source": str(source) if source else None, "software_version": __version__,
         "accepted": result.accepted, "reasons": list(result.reasons), "profile": result.profile.name, "profile_caveat": result.profile.caveat or None,
@@ -917,8 +918,8 @@ def result_json(  # type: ignore[no-untyped-def]
         "method": None if result.method is None else {"id": result.method.id, "version": result.method.version,
                                                       "name": result.method.name, "sha256": result.method.sha256},
         "confidence_level": run.settings.confidence_level, "interval": run.settings.interval,
-        "audit_chain_verified": not verify_chain(run.audit), "data_match_audit_trail": content_change(run) is None,
-        "chain_check": chain_claim(run)[1],
+        "audit_chain_verified": not chain_problems, "data_match_audit_trail": content_change(run) is None,
+        "chain_check": chain_claim(run, chain_problems)[1],
         "signatures": [{"role": c.signature.role, "name": c.signature.name, "id": c.signature.person_id,
                         "time_utc": c.signature.time_utc, "meaning": c.signature.meaning,
                         "keyed": bool(c.signature.signature), "holds": c.holds, "check": c.words}
