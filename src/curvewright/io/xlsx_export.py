@@ -130,25 +130,26 @@ def _build(tables: list[Table], progress: Progress | None, target: Path | IO[byt
 
 def _cells_without_trial(sheet) -> None:  # type: ignore[no-untyped-def]
     """Make a write-only sheet take the cells of an appended row as openpyxl's own ``_values_to_row``
-    takes them, without first trying each of our styled cells as the value of a plain cell (which
-    fails, with an exception and the cell's repr, for every styled cell written)."""
+    takes them (a plain value in a plain cell of the sheet's, written before the next value is put
+    in it; a cell given as it is), without first trying each of our styled cells as the value of
+    the plain cell (which fails, with an exception and the cell's repr, for every styled cell
+    written) and so without a new plain cell after each styled one."""
+    plain = WriteOnlyCell(sheet)
 
     def values_to_row(values, row_idx):  # type: ignore[no-untyped-def]
-        cell = WriteOnlyCell(sheet)
         for col_idx, value in enumerate(values, 1):
             if value is None:
                 continue
             if isinstance(value, Cell):
                 cell = value
             else:
-                cell.value = value
+                cell = plain
+                cell.value = value  # a plain value never gives the cell a style or a hyperlink
             cell.column = col_idx
             cell.row = row_idx
             if cell.hyperlink is not None:
                 cell.hyperlink.ref = cell.coordinate
             yield cell
-            if cell.has_style or cell.hyperlink:  # a styled cell is not reused for the next value
-                cell = WriteOnlyCell(sheet)
 
     sheet._values_to_row = values_to_row
 
