@@ -303,3 +303,15 @@ def test_an_analyte_measured_by_standard_additions_only_is_reported_and_does_not
     assert ("cadmium (µg/L)\n  no calibration standards: measured by standard additions only, so the standards' "
             "acceptance does not apply; 1 of 1 series extrapolated") in result.stdout
     assert "not fitted" not in result.stdout.split("cadmium (µg/L)")[1]
+
+
+def test_an_altered_audit_entry_is_named_in_the_json_verdict_and_its_words(tmp_path, capsys) -> None:
+    """The chain is checked once for both: the verdict is false and the words say which entry."""
+    data = json.loads(DEMO_RUNS[0].read_text(encoding="utf-8"))
+    data["audit"][0]["details"] = {**data["audit"][0]["details"], "note": "added by hand"}
+    altered = tmp_path / "altered.json"
+    altered.write_text(json.dumps(data, indent=1), encoding="utf-8")
+    cli.main(["quantify", str(altered), "--json"])
+    out = json.loads(capsys.readouterr().out)
+    assert out["audit_chain_verified"] is False
+    assert out["chain_check"].startswith("NOT verified: audit entry 1 (") and "was altered after it was written" in out["chain_check"]

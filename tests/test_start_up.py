@@ -71,6 +71,23 @@ def test_quantify_json_loads_no_front_end_and_no_optimiser() -> None:
     assert {"numpy", "scipy"} <= tops(names)  # it does compute
     assert not tops(names) & FRONT_END
     assert "scipy.optimize" not in names and "scipy.stats" not in names
+    # what other commands use, loaded when they run: the archive commands, glob patterns, quoting
+    assert not names & {"curvewright.cli_archive", "glob", "shlex"}, sorted(names & {"curvewright.cli_archive", "glob", "shlex"})
+
+
+def test_the_lazily_loaded_parts_still_serve_their_commands(tmp_path: Path) -> None:
+    """A glob pattern of runs, a table given where a run is expected (its message quotes the name) and
+    the archive's parser: each loads what it needs when it is used."""
+    names, done = imported("quantify", str(ROOT / "sample_runs" / "veltaprine_*.json"), "--json")
+    assert done.returncode == 0, done.stderr[-2000:]
+    assert "glob" in names and done.stdout.lstrip().startswith("{")
+    table = tmp_path / "my standards.csv"
+    table.write_text("Concentration,Response\n1,2\n", encoding="utf-8")
+    names, done = imported("quantify", str(table))
+    assert done.returncode == 2 and "shlex" in names
+    assert f"--standards '{table}'" in done.stderr, done.stderr
+    names, done = imported("archive", "list", "--at", str(tmp_path / "no archive here"))
+    assert "curvewright.cli_archive" in names and "invalid choice" not in done.stderr, done.stderr
 
 
 def test_an_export_loads_what_it_writes_with(tmp_path: Path) -> None:

@@ -18,17 +18,15 @@ options, the choice is recorded as given on the command line.
 from __future__ import annotations
 
 import argparse
-import glob
 import json
 import os
-import shlex
 import sys
 import traceback
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any, Iterator, Mapping, Sequence
 
-from . import CAUTION, __version__, cli_archive
+from . import CAUTION, __version__
 
 EXIT_ACCEPTED, EXIT_REJECTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
@@ -95,7 +93,10 @@ class CommandParser(argparse.ArgumentParser):
         return self.formatter_class(prog=self.prog, width=HELP_COLUMNS - 2)  # argparse keeps 2 columns free
 
 
-def build_parser() -> argparse.ArgumentParser:
+def build_parser(only: str | None = None) -> argparse.ArgumentParser:
+    """The command parser; with ``only`` (a command's name), with that command's parser alone, which is
+    all that parsing its arguments needs (the help of every command is answered without a parser:
+    :mod:`curvewright.cli_help`)."""
     from .core.model_kinds import Model
     from .core.weighting_kinds import Weighting
 
@@ -109,67 +110,77 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"curvewright {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
 
-    q = sub.add_parser("quantify", help="fit, quantify every sample, and optionally export and report",
-                       epilog=EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
-    q.add_argument("runs", nargs="*", metavar="RUN", help="run documents, folders of them, or glob patterns")
-    q.add_argument("--standards", metavar="FILE", help="standards table (CSV or XLSX) instead of a run document")
-    q.add_argument("--samples", metavar="FILE", help="samples table (CSV or XLSX), with --standards")
-    q.add_argument("--analyte", action="append", metavar="NAME",
-                   help="analyte to process (repeatable; default all); with --standards, the analyte's name")
-    _table_options(q)
-    q.add_argument("--allow-unreadable", action="store_true",
-                   help="with --samples: accept sample readings that could not be read (still listed); "
-                        "otherwise the exit code is 2")
-    q.add_argument("--model", choices=tuple(m.value for m in Model),
-                   help="override the run's model (with tables: give --weighting too)")
-    q.add_argument("--weighting", choices=tuple(w.value for w in Weighting),
-                   help="override the weighting (with tables: give --model too)")
-    q.add_argument("--profile", help="acceptance profile id or file (default: the run's)")
-    q.add_argument("--level", type=float, help="confidence level of the intervals, e.g. 0.95 (default: the run's)")
-    q.add_argument("--export", metavar="PATH", help="results workbook (.xlsx) or samples table (.csv); a folder for many runs")
-    q.add_argument("--export-format", choices=("xlsx", "csv"), default="xlsx", help="format when --export is a folder")
-    q.add_argument("--csv-delimiter", choices=(",", ";", "tab"), default=",", help="CSV delimiter")
-    q.add_argument("--csv-decimal", choices=(".", ","), default=".", help="CSV decimal mark")
-    q.add_argument("--report", metavar="PATH", help="printable calibration record (.pdf); a folder for many runs")
-    q.add_argument("--record", action="store_true", help="append the exports to the run document's audit trail and save it")
-    q.add_argument("--json", action="store_true", help="print the results as JSON for scripts")
-    q.add_argument("--jobs", type=int, default=1, help="processes for many runs (default 1)")
-    q.add_argument("--method", metavar="METHOD.json", help="a validated method: it fixes the model, weighting, profile, "
-                   "units, levels and rounding (the recommendation is then shown for information only)")
-    q.add_argument("--reason", help="why the run departs from its method's model (with --model/--weighting)")
-    _identity_options(q)
+    if only in (None, "quantify"):
+        q = sub.add_parser("quantify", help="fit, quantify every sample, and optionally export and report",
+                           epilog=EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
+        q.add_argument("runs", nargs="*", metavar="RUN", help="run documents, folders of them, or glob patterns")
+        q.add_argument("--standards", metavar="FILE", help="standards table (CSV or XLSX) instead of a run document")
+        q.add_argument("--samples", metavar="FILE", help="samples table (CSV or XLSX), with --standards")
+        q.add_argument("--analyte", action="append", metavar="NAME",
+                       help="analyte to process (repeatable; default all); with --standards, the analyte's name")
+        _table_options(q)
+        q.add_argument("--allow-unreadable", action="store_true",
+                       help="with --samples: accept sample readings that could not be read (still listed); "
+                            "otherwise the exit code is 2")
+        q.add_argument("--model", choices=tuple(m.value for m in Model),
+                       help="override the run's model (with tables: give --weighting too)")
+        q.add_argument("--weighting", choices=tuple(w.value for w in Weighting),
+                       help="override the weighting (with tables: give --model too)")
+        q.add_argument("--profile", help="acceptance profile id or file (default: the run's)")
+        q.add_argument("--level", type=float, help="confidence level of the intervals, e.g. 0.95 (default: the run's)")
+        q.add_argument("--export", metavar="PATH", help="results workbook (.xlsx) or samples table (.csv); a folder for many runs")
+        q.add_argument("--export-format", choices=("xlsx", "csv"), default="xlsx", help="format when --export is a folder")
+        q.add_argument("--csv-delimiter", choices=(",", ";", "tab"), default=",", help="CSV delimiter")
+        q.add_argument("--csv-decimal", choices=(".", ","), default=".", help="CSV decimal mark")
+        q.add_argument("--report", metavar="PATH", help="printable calibration record (.pdf); a folder for many runs")
+        q.add_argument("--record", action="store_true", help="append the exports to the run document's audit trail and save it")
+        q.add_argument("--json", action="store_true", help="print the results as JSON for scripts")
+        q.add_argument("--jobs", type=int, default=1, help="processes for many runs (default 1)")
+        q.add_argument("--method", metavar="METHOD.json", help="a validated method: it fixes the model, weighting, profile, "
+                       "units, levels and rounding (the recommendation is then shown for information only)")
+        q.add_argument("--reason", help="why the run departs from its method's model (with --model/--weighting)")
+        _identity_options(q)
 
-    c = sub.add_parser("compare", help="the model-evidence table for each analyte",
-                       epilog=EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
-    c.add_argument("runs", nargs="*", metavar="RUN", help="run documents, folders of them, or glob patterns")
-    c.add_argument("--standards", metavar="FILE", help="a standards table (CSV or XLSX) instead of run documents")
-    c.add_argument("--analyte", action="append", metavar="NAME",
-                   help="analyte to show (repeatable); with --standards, the analyte's name")
-    _table_options(c)
-    c.add_argument("--json", action="store_true")
+    if only in (None, "compare"):
+        c = sub.add_parser("compare", help="the model-evidence table for each analyte",
+                           epilog=EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
+        c.add_argument("runs", nargs="*", metavar="RUN", help="run documents, folders of them, or glob patterns")
+        c.add_argument("--standards", metavar="FILE", help="a standards table (CSV or XLSX) instead of run documents")
+        c.add_argument("--analyte", action="append", metavar="NAME",
+                       help="analyte to show (repeatable); with --standards, the analyte's name")
+        _table_options(c)
+        c.add_argument("--json", action="store_true")
 
-    k = sub.add_parser("check", help="validate run documents, their audit trails, data and signatures")
-    k.add_argument("runs", nargs="+", metavar="RUN")
-    k.add_argument("--lab-key", metavar="PUBLIC.pem", help="the laboratory's public signing key, to check keyed signatures against")
+    if only in (None, "check"):
+        k = sub.add_parser("check", help="validate run documents, their audit trails, data and signatures")
+        k.add_argument("runs", nargs="+", metavar="RUN")
+        k.add_argument("--lab-key", metavar="PUBLIC.pem", help="the laboratory's public signing key, to check keyed signatures against")
 
-    g = sub.add_parser("sign", help="sign a run document as analyst, reviewer or approver (approval locks it)",
-                       epilog=SIGNING_EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
-    g.add_argument("run", metavar="RUN")
-    g.add_argument("--role", required=True, choices=("analyst", "reviewer", "approver"))
-    g.add_argument("--meaning", default="", help="what the signature means (default: the role's usual meaning)")
-    g.add_argument("--key", metavar="PRIVATE.pem", help="the laboratory's signing key: the signature is keyed")
-    _identity_options(g)
+    if only in (None, "sign"):
+        g = sub.add_parser("sign", help="sign a run document as analyst, reviewer or approver (approval locks it)",
+                           epilog=SIGNING_EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
+        g.add_argument("run", metavar="RUN")
+        g.add_argument("--role", required=True, choices=("analyst", "reviewer", "approver"))
+        g.add_argument("--meaning", default="", help="what the signature means (default: the role's usual meaning)")
+        g.add_argument("--key", metavar="PRIVATE.pem", help="the laboratory's signing key: the signature is keyed")
+        _identity_options(g)
 
-    w = sub.add_parser("withdraw-approval", help="withdraw the approval of a run document, with a reason (unlocks it)")
-    w.add_argument("run", metavar="RUN")
-    w.add_argument("--reason", required=True)
-    _identity_options(w)
+    if only in (None, "withdraw-approval"):
+        w = sub.add_parser("withdraw-approval", help="withdraw the approval of a run document, with a reason (unlocks it)")
+        w.add_argument("run", metavar="RUN")
+        w.add_argument("--reason", required=True)
+        _identity_options(w)
 
-    keys = sub.add_parser("keys", help="make a laboratory signing key pair")
-    keys.add_argument("action", choices=("new",))
-    keys.add_argument("--private", required=True, metavar="PRIVATE.pem", help="where the private key goes (only signers read it)")
-    keys.add_argument("--public", required=True, metavar="PUBLIC.pem", help="where the public key goes (for checking)")
-    cli_archive.add_parsers(sub)
+    if only in (None, "keys"):
+        keys = sub.add_parser("keys", help="make a laboratory signing key pair")
+        keys.add_argument("action", choices=("new",))
+        keys.add_argument("--private", required=True, metavar="PRIVATE.pem", help="where the private key goes (only signers read it)")
+        keys.add_argument("--public", required=True, metavar="PUBLIC.pem", help="where the public key goes (for checking)")
+
+    if only in (None, "archive", "trend"):
+        from . import cli_archive
+
+        cli_archive.add_parsers(sub)
     return parser
 
 
@@ -229,15 +240,18 @@ def main(argv: Sequence[str] | None = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
     if not argv or argv[0] == "--demo" or (argv[0] not in COMMANDS and not argv[0].startswith("-")):
         return open_app(argv)
-    parser = build_parser()
+    parser = build_parser(argv[0] if argv[0] in COMMANDS else None)
     args = parser.parse_args(argv)
     if args.command is None:
         parser.print_help()
         return EXIT_ACCEPTED
     try:
+        if args.command in ("archive", "trend"):
+            from . import cli_archive
+
+            return {"archive": cli_archive.cmd_archive, "trend": cli_archive.cmd_trend}[args.command](args)
         return {"quantify": cmd_quantify, "compare": cmd_compare, "check": cmd_check, "sign": cmd_sign,
-                "withdraw-approval": cmd_withdraw, "keys": cmd_keys,
-                "archive": cli_archive.cmd_archive, "trend": cli_archive.cmd_trend}[args.command](args)
+                "withdraw-approval": cmd_withdraw, "keys": cmd_keys}[args.command](args)
     except InputError as exc:
         print(f"curvewright: {exc}", file=sys.stderr)
         return EXIT_INPUT
@@ -276,6 +290,8 @@ def expand_runs(patterns: Sequence[str]) -> list[Path]:
         if path.is_dir():
             found += sorted(p for p in path.glob("*.json") if p.is_file())
         elif any(ch in pattern for ch in "*?["):
+            import glob
+
             matches = sorted(Path(p) for p in glob.glob(pattern))
             if not matches:
                 raise InputError(f"{pattern}: no file matches this pattern.")
@@ -658,6 +674,8 @@ def _refuse_tables(command: str, paths: Sequence[str]) -> None:
     for given in paths:
         if Path(given).suffix.lower() not in TABLE_SUFFIXES:
             continue
+        import shlex
+
         quantify = f"curvewright quantify --standards {shlex.quote(given)} --samples SAMPLES.csv --analyte NAME"
         takes = {"compare": "compare reads run documents (.json)",
                  "check": "check validates run documents (.json) and their audit trails",
@@ -892,6 +910,7 @@ def result_json(  # type: ignore[no-untyped-def]
     from .io.signatures import check_signatures
 
     run = result.run
+    chain_problems = verify_chain(run.audit)
     out: dict[str, Any] = {
         "run": run.name, "source": str(source) if source else None, "software_version": __version__,
         "accepted": result.accepted, "reasons": list(result.reasons), "profile": result.profile.name, "profile_caveat": result.profile.caveat or None,
@@ -899,8 +918,8 @@ def result_json(  # type: ignore[no-untyped-def]
         "method": None if result.method is None else {"id": result.method.id, "version": result.method.version,
                                                       "name": result.method.name, "sha256": result.method.sha256},
         "confidence_level": run.settings.confidence_level, "interval": run.settings.interval,
-        "audit_chain_verified": not verify_chain(run.audit), "data_match_audit_trail": content_change(run) is None,
-        "chain_check": chain_claim(run)[1],
+        "audit_chain_verified": not chain_problems, "data_match_audit_trail": content_change(run) is None,
+        "chain_check": chain_claim(run, chain_problems)[1],
         "signatures": [{"role": c.signature.role, "name": c.signature.name, "id": c.signature.person_id,
                         "time_utc": c.signature.time_utc, "meaning": c.signature.meaning,
                         "keyed": bool(c.signature.signature), "holds": c.holds, "check": c.words}

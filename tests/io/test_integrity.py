@@ -4,6 +4,10 @@ from __future__ import annotations
 
 import json
 
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
 from curvewright.io.run_document import loads_run
 from tests.io.helpers import ROOT
 
@@ -113,19 +117,18 @@ def test_an_edit_writes_out_only_the_samples_it_changed(monkeypatch) -> None:  #
     assert len(run.samples) >= 3
     integrity.content_sha256(run)
     written: list[str] = []
-    samples_out = run_document.samples_out
+    write_samples = integrity.write_samples
 
     def counted(samples):  # type: ignore[no-untyped-def]
-        out = samples_out(samples)
-        written.extend(s["id"] for s in out)
-        return out
+        written.extend(s.id for s in samples)
+        return write_samples(samples)
 
-    monkeypatch.setattr(run_document, "samples_out", counted)
+    monkeypatch.setattr(integrity, "write_samples", counted)
     changed = replace(run.samples[1], dilution_factor=run.samples[1].dilution_factor * 2)
     edited = replace(run, samples=(run.samples[0], changed, *run.samples[2:]))
     digest = integrity.content_sha256(edited)
     assert written == [changed.id]
-    monkeypatch.setattr(run_document, "samples_out", samples_out)
+    monkeypatch.setattr(integrity, "write_samples", write_samples)
     assert digest == integrity.sha256_of_content(run_document.run_to_mapping(edited)) != integrity.content_sha256(run)
 
 
@@ -168,3 +171,83 @@ def test_a_samples_kept_text_is_left_out_of_equality_copies_and_pickles() -> Non
     assert getattr(pickle.loads(pickle.dumps(sample)), "_kept_text", None) is None
     assert pickle.loads(pickle.dumps(sample)) == sample
     assert content_sha256(Run(name="r", analytes=(), samples=(changed,))) != first
+
+
+def test_a_run_of_many_samples_is_hashed_a_chunk_at_a_time(monkeypatch) -> None:  # type: ignore[no-untyped-def]
+    """The samples are written out a chunk at a time and the text hashed as it is made: the hash is the
+    SHA-256 of the one canonical text (the encoder's, as ``json.dumps`` writes it), across chunk
+    boundaries, and no more than a chunk of samples is written at once."""
+    import hashlib
+    from dataclasses import replace
+
+    from curvewright.io import integrity, run_document
+
+    run = loads_run(DEMO.read_text(encoding="utf-8")).run
+    many = tuple(replace(run.samples[i % len(run.samples)], id=f"S-{i:05d}", run_order=i)
+                 for i in range(2 * integrity.SAMPLE_CHUNK + 3))
+    big = replace(run, samples=many)
+    canonical = json.dumps(integrity.content_of(run_document.run_to_mapping(big)), sort_keys=True,
+                           ensure_ascii=False, separators=(",", ":"), allow_nan=False).encode("utf-8")
+    sizes: list[int] = []
+    write_samples = integrity.write_samples
+
+    def counted(samples):  # type: ignore[no-untyped-def]
+        sizes.append(len(samples))
+        return write_samples(samples)
+
+    monkeypatch.setattr(integrity, "write_samples", counted)
+    assert integrity.content_sha256(big) == hashlib.sha256(canonical).hexdigest()
+    assert sizes == [integrity.SAMPLE_CHUNK, integrity.SAMPLE_CHUNK, 3]
+    assert integrity.content_text(replace(big)) == canonical
+    assert integrity.content_text(replace(big, samples=())) == json.dumps(
+        integrity.content_of(run_document.run_to_mapping(replace(big, samples=()))), sort_keys=True,
+        ensure_ascii=False, separators=(",", ":"), allow_nan=False).encode("utf-8")
+
+
+_TEXTS = st.text(st.characters(codec="utf-8"), max_size=6) | st.sampled_from(["", "a\"b", "\\", "\x00\x1f\x7f", "µg/L", "\u2028"])
+_NUMBERS = (st.floats(allow_nan=True, allow_infinity=True) | st.sampled_from([0.0, -0.0, 5e-324, 1e300, 1.0, 0.1])
+            | st.integers(-3, 10**20) | st.booleans() | st.none())
+
+
+@st.composite
+def _readings(draw):  # type: ignore[no-untyped-def]
+    from curvewright.core.run import Reading
+
+    return Reading(draw(_NUMBERS), draw(_TEXTS), draw(st.none() | st.sampled_from(["<", ">", "ND"]) | _TEXTS),
+                   draw(st.none() | _NUMBERS))
+
+
+@st.composite
+def _samples(draw):  # type: ignore[no-untyped-def]
+    from curvewright.core.run import Addition, Measurement, Sample, SampleKind
+
+    measurements = tuple(Measurement(draw(_TEXTS), draw(st.integers(0, 4) | st.booleans()), draw(_readings()),
+                                     draw(st.none() | _readings())) for _ in range(draw(st.integers(0, 3))))
+    additions = tuple(Addition(draw(_TEXTS), draw(_NUMBERS), 1, draw(_readings()))
+                      for _ in range(draw(st.sampled_from([0, 0, 0, 1]))))
+    nominal = tuple((draw(_TEXTS), draw(_NUMBERS)) for _ in range(draw(st.integers(0, 2))))
+    return Sample(draw(_TEXTS), draw(st.sampled_from(list(SampleKind))), draw(st.none() | st.integers(-2, 10**6)),
+                  draw(_NUMBERS), measurements, nominal, additions)
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.lists(_samples(), max_size=4))
+def test_samples_written_directly_are_what_the_encoder_writes(samples) -> None:  # type: ignore[no-untyped-def]
+    """Each sample's canonical text is that of its plain data through the encoder, byte for byte
+    (``json.dumps`` with sorted keys, no spaces, UTF-8, no NaN), whatever its values: a value the
+    encoder refuses (NaN, an infinity) is refused as the encoder refuses it."""
+    from curvewright.io import integrity
+    from curvewright.io.run_document import samples_out
+
+    expected: list[bytes | type] = []
+    for data in samples_out(samples):
+        try:
+            expected.append(json.dumps(data, sort_keys=True, ensure_ascii=False, separators=(",", ":"),
+                                       allow_nan=False).encode("utf-8"))
+        except ValueError:
+            expected.append(ValueError)
+    if ValueError in expected:
+        with pytest.raises(ValueError):
+            integrity.write_samples(samples)
+    else:
+        assert integrity.write_samples(samples) == expected

@@ -272,8 +272,10 @@ def import_samples(
     still refuses its row (the answer is an import option, not a correction).
     """
     ctx = _Context(table, SAMPLE_FIELDS, mapping, decimal_mark, thousands, required=SAMPLE_REQUIRED)
-    info: dict[str, dict] = {}  # in the order the samples first appear
-    seen: dict[tuple[str, str, int], int] = {}
+    # In the order the samples first appear, each sample's
+    # [kind, run order, dilution, nominal values, measurements, first row, replicate counts, rows by replicate];
+    # a sample's counts and rows are made only when a second row of it comes (most samples have one).
+    info: dict[str, list] = {}
     for row_number, cells in ctx.body():
         sid = ctx.text(cells, "id", row_number)
         if not sid:
@@ -295,35 +297,42 @@ def import_samples(
         if ctx.row_failed(row_number):
             continue
         assert response is not None and kind is not None
-        first_row_of_sample = sid not in info  # a dict: the lookup stays constant-time however many samples
-        entry = info.setdefault(sid, {"kind": kind, "run_order": run_order, "dilution": dilution or 1.0,
-                                      "nominal": {}, "measurements": [], "counts": {}, "row": row_number})
-        if not first_row_of_sample:
-            first = entry["row"]
-            if entry["kind"] is not kind:
-                ctx.reject(row_number, "kind", ctx.raw(cells, "kind"),
-                           f"differs from row {first} of the same sample ({entry['kind'].words})", row_fails=True)
-            if entry["dilution"] != (dilution or 1.0):
-                ctx.reject(row_number, "dilution", ctx.raw(cells, "dilution"),
-                           f"differs from row {first} of the same sample ({entry['dilution']:g})", row_fails=True)
-            if ctx.row_failed(row_number):
-                continue
-        if replicate is None:
-            replicate = 1 + entry["counts"].get(name, 0)
-        key3 = (sid, name, replicate)
-        if key3 in seen:
-            ctx.reject(row_number, "replicate", str(replicate),
-                       f"sample {sid!r} already has replicate {replicate} of {name} (row {seen[key3]})", row_fails=True)
+        entry = info.get(sid)  # a dict: the lookup stays constant-time however many samples
+        if entry is None:
+            measurement = Measurement(name, 1 if replicate is None else replicate, response, is_response)
+            info[sid] = [kind, run_order, dilution or 1.0, None if nominal is None else {name: nominal},
+                         [measurement], row_number, None, None]
             continue
-        seen[key3] = row_number
+        first = entry[5]
+        if entry[0] is not kind:
+            ctx.reject(row_number, "kind", ctx.raw(cells, "kind"),
+                       f"differs from row {first} of the same sample ({entry[0].words})", row_fails=True)
+        if entry[2] != (dilution or 1.0):
+            ctx.reject(row_number, "dilution", ctx.raw(cells, "dilution"),
+                       f"differs from row {first} of the same sample ({entry[2]:g})", row_fails=True)
+        if ctx.row_failed(row_number):
+            continue
+        if entry[6] is None:
+            only = entry[4][0]
+            entry[6], entry[7] = {only.analyte: 1}, {(only.analyte, only.replicate): first}
+        counts, rows = entry[6], entry[7]
+        if replicate is None:
+            replicate = 1 + counts.get(name, 0)
+        if (name, replicate) in rows:
+            ctx.reject(row_number, "replicate", str(replicate),
+                       f"sample {sid!r} already has replicate {replicate} of {name} (row {rows[name, replicate]})",
+                       row_fails=True)
+            continue
+        rows[name, replicate] = row_number
         if nominal is not None:
-            entry["nominal"][name] = nominal
-        entry["measurements"].append(Measurement(name, replicate, response, is_response))
-        entry["counts"][name] = entry["counts"].get(name, 0) + 1
+            if entry[3] is None:
+                entry[3] = {}
+            entry[3][name] = nominal
+        entry[4].append(Measurement(name, replicate, response, is_response))
+        counts[name] = counts.get(name, 0) + 1
     samples = tuple(
-        Sample(sid, info[sid]["kind"], info[sid]["run_order"], info[sid]["dilution"],
-               tuple(info[sid]["measurements"]), tuple(info[sid]["nominal"].items()))
-        for sid in info
+        Sample(sid, kind, run_order, dilution, tuple(measurements), () if nominal is None else tuple(nominal.items()))
+        for sid, (kind, run_order, dilution, nominal, measurements, *_) in info.items()
     )
     return ctx.result(samples=samples)
 

@@ -18,7 +18,7 @@ import json
 import math
 from json.encoder import encode_basestring
 from dataclasses import dataclass, replace
-from typing import Any, Mapping, Sequence
+from typing import Any, Iterator, Mapping, Sequence
 
 from ..core.run import Run, Sample
 
@@ -84,11 +84,15 @@ changed only. The document text is joined from the parts and hashed once per run
 def content_sha256(run: Run) -> str:
     """SHA-256 (hex) of the run's content in canonical JSON: the same digest as
     :func:`sha256_of_content` of the run's document mapping, worked out once per run value and, for
-    its samples, once per sample value."""
+    its samples, once per sample value. The text is hashed piece by piece as it is made (the samples
+    a chunk at a time), never joined into one text."""
     known = vars(run).get(_RUN_MEMO)
     if known is not None:
         return known
-    digest = hashlib.sha256(content_text(run)).hexdigest()
+    hasher = hashlib.sha256()
+    for piece in content_pieces(run):
+        hasher.update(piece)
+    digest = hasher.hexdigest()
     object.__setattr__(run, _RUN_MEMO, digest)
     return digest
 
@@ -97,12 +101,32 @@ def content_text(run: Run) -> bytes:
     """The run's content in canonical JSON, as :func:`_canonical` writes :func:`content_of` of its
     document mapping (the canonical JSON of an object is its members' texts, keys sorted, joined;
     of a list, its items' texts joined), with each sample's text kept with the sample."""
+    return b"".join(content_pieces(run))
+
+
+SAMPLE_CHUNK = 4096
+"""Samples turned into plain data and canonical text at a time (the plain data of all the samples of
+a large run at once would be several times their text)."""
+
+
+def content_pieces(run: Run) -> Iterator[bytes]:
+    """The pieces of :func:`content_text`, in order: the text made and handed on a part at a time."""
     from .run_document import run_to_mapping
 
     content = content_of(run_to_mapping(replace(run, samples=(), audit=(), signatures=())))
-    samples = b"[" + b",".join(sample_texts(run.samples)) + b"]"
-    return b"{" + b",".join(_canonical(k) + b":" + (samples if k == "samples" else _canonical(v))
-                            for k, v in sorted(content.items())) + b"}"
+    yield b"{"
+    for number, (k, v) in enumerate(sorted(content.items())):
+        yield (b"," if number else b"") + _canonical(k) + b":"
+        if k != "samples":
+            yield _canonical(v)
+            continue
+        yield b"["
+        samples = run.samples
+        for start in range(0, len(samples), SAMPLE_CHUNK):
+            texts = sample_texts(samples[start:start + SAMPLE_CHUNK])
+            yield (b"," if start else b"") + b",".join(texts)
+        yield b"]"
+    yield b"}"
 
 
 def sample_texts(samples: Sequence[Sample]) -> list[bytes]:
@@ -111,13 +135,92 @@ def sample_texts(samples: Sequence[Sample]) -> list[bytes]:
     texts: list[bytes | None] = [getattr(s, _SAMPLE_MEMO, None) for s in samples]
     new = [i for i, t in enumerate(texts) if t is None]
     if new:
-        from .run_document import samples_out
-
-        for i, data in zip(new, samples_out(samples[i] for i in new)):
-            text = _canonical(data)
+        for i, text in zip(new, write_samples([samples[i] for i in new])):
             object.__setattr__(samples[i], _SAMPLE_MEMO, text)
             texts[i] = text
     return texts  # type: ignore[return-value]
+
+
+def write_samples(samples: Sequence[Sample]) -> list[bytes]:
+    """The samples' canonical JSON, as :func:`_canonical` writes each sample's data of
+    :func:`~.run_document.samples_out`. A sample of plain values (texts, whole numbers, finite floats,
+    none) with at most one nominal value and no standard additions, which is almost every sample, is
+    written directly, its keys in the order the encoder sorts them; any other through its plain data
+    and the encoder."""
+    out: list[bytes | None] = []
+    other: list[int] = []
+    for s in samples:
+        text = _plain_sample(s)
+        if text is None:
+            other.append(len(out))
+        out.append(text)
+    if other:
+        from .run_document import samples_out
+
+        for i, data in zip(other, samples_out(samples[i] for i in other)):
+            out[i] = _canonical(data)
+    return out  # type: ignore[return-value]
+
+
+def _plain(value: Any) -> str | None:
+    """A text, whole number, finite float or none as the encoder writes it (its string escape,
+    ``int.__repr__``, ``float.__repr__``, ``null``); None for anything else (a bool, a subclass, a
+    value that is not finite), which is left to the encoder."""
+    kind = type(value)
+    if kind is str:
+        return encode_basestring(value)
+    if kind is float:
+        return float.__repr__(value) if value - value == 0.0 else None  # NaN and the infinities make NaN
+    if kind is int:
+        return int.__repr__(value)
+    if value is None:
+        return "null"
+    return None
+
+
+def _plain_reading(reading: Any) -> str | None:
+    """A reading as :func:`~.run_document._reading_out` gives it, in canonical JSON (None: not plain)."""
+    if reading is None:
+        return "null"
+    text, value = _plain(reading.text), _plain(reading.value)
+    if text is None or value is None:
+        return None
+    if reading.limit is None and reading.qualifier is None:
+        return '{"text":' + text + ',"value":' + value + "}"
+    limit = None if reading.limit is None else _plain(reading.limit)
+    qualifier = None if reading.qualifier is None else _plain(reading.qualifier)
+    if (reading.limit is not None and limit is None) or (reading.qualifier is not None and qualifier is None):
+        return None
+    return ("{" + ("" if limit is None else '"limit":' + limit + ",")
+            + ("" if qualifier is None else '"qualifier":' + qualifier + ",") + '"text":' + text + ',"value":' + value + "}")
+
+
+def _plain_sample(s: Sample) -> bytes | None:
+    """One sample's canonical JSON written directly, or None to leave it to the encoder (see
+    :func:`write_samples`)."""
+    if s.additions or len(s.nominal) > 1:
+        return None
+    pieces = []
+    for m in s.measurements:
+        analyte, replicate = _plain(m.analyte), _plain(m.replicate)
+        response, internal = _plain_reading(m.response), _plain_reading(m.internal_standard_response)
+        if analyte is None or replicate is None or response is None or internal is None:
+            return None
+        pieces.append('{"analyte":' + analyte + ',"internal_standard_response":' + internal + ',"replicate":'
+                      + replicate + ',"response":' + response + "}")
+    if s.nominal:
+        (name, value), = s.nominal
+        name_text, value_text = _plain(name), _plain(value)
+        if name_text is None or value_text is None:
+            return None
+        nominal = "{" + name_text + ":" + value_text + "}"
+    else:
+        nominal = "{}"
+    dilution, sid, kind, order = _plain(s.dilution_factor), _plain(s.id), _plain(s.kind.value), _plain(s.run_order)
+    if dilution is None or sid is None or kind is None or order is None:
+        return None
+    return ('{"dilution_factor":' + dilution + ',"id":' + sid + ',"kind":' + kind + ',"measurements":['
+            + ",".join(pieces) + '],"nominal":' + nominal + ',"run_order":' + order + "}").encode("utf-8")
 
 
 def _short(value: Any) -> str:

@@ -361,11 +361,13 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
     return Table(f"Standards – {an.name}", columns, tuple(rows), rule)
 
 
-def chain_claim(run) -> tuple[bool, str]:  # type: ignore[no-untyped-def]
-    """What checking the run's audit trail showed, in words exactly as strong as the check."""
+def chain_claim(run, chain_problems: tuple[str, ...] | None = None) -> tuple[bool, str]:  # type: ignore[no-untyped-def]
+    """What checking the run's audit trail showed, in words exactly as strong as the check;
+    ``chain_problems`` is what :func:`.audit.verify_chain` gave for this run's trail, when the caller
+    has checked it already."""
     from .integrity import content_change
 
-    problems = list(verify_chain(run.audit))
+    problems = list(verify_chain(run.audit) if chain_problems is None else chain_problems)
     change = content_change(run)
     if change is not None:
         problems.append(str(change))

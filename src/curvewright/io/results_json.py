@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import json
 import math
-from typing import Any, Callable, Iterable, Iterator, Sequence, TextIO
+from typing import Any, Callable, Iterator, Sequence, TextIO
 
 _SCALARS = (str, int, float, bool, type(None))
 _FLUSH_EVERY = 512
@@ -97,8 +97,9 @@ so circular references are not looked for)."""
 
 
 def _row_line(row: dict[str, Any]) -> str:
-    """A row of :class:`Rows` on one line: its maker gives numbers, words and flat lists, so the JSON
-    encoder takes it as it is unless a number is not finite or is a numpy scalar."""
+    """A row on one line, as :func:`_one_line` writes it: a row of numbers, words and flat lists (as
+    the maker of :class:`Rows` gives) the JSON encoder takes as it is; only a row with a number that is
+    not finite or a numpy value goes through :func:`finite` first."""
     try:
         if _ROW_ENCODER is None:
             return json.dumps(row, ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
@@ -137,58 +138,76 @@ class Written:
 
     def __init__(self, value: Any, level: int) -> None:
         self.level = level
-        self.text = _one_line(value) if level and _is_row(value) else "".join(_pieces(value, level))
+        if level and _is_row(value):
+            self.text = _row_line(value)
+        else:
+            out: list[str] = []
+            _write(value, level, out, None)
+            self.text = "".join(out)
 
 
-def _pieces(value: Any, level: int) -> Iterable[str]:
-    """The JSON text of ``value`` at indentation ``level``, in pieces."""
+def _write(value: Any, level: int, out: list[str], flush: Callable[[], None] | None) -> None:
+    """Append the JSON text of ``value`` at indentation ``level`` to ``out``, in pieces; ``flush``
+    (when given) is called after each row of a long list, to hand the pieces gathered on."""
     if isinstance(value, Written):
         if value.level != level:
             raise ValueError(f"JSON text made for level {value.level} placed at level {level}")
-        yield value.text
+        out.append(value.text)
     elif isinstance(value, dict):
         if not value:
-            yield "{}"
+            out.append("{}")
             return
         inner = "\n" + " " * (level + 1)
-        yield "{"
-        for i, (key, item) in enumerate(value.items()):
-            yield ("," if i else "") + inner + _encode_text(str(key)) + ": "
-            yield from _pieces(item, level + 1)
-        yield "\n" + " " * level + "}"
+        out.append("{")
+        first = True
+        for key, item in value.items():
+            out.append(("" if first else ",") + inner + _encode_text(str(key)) + ": ")
+            first = False
+            _write(item, level + 1, out, flush)
+        out.append("\n" + " " * level + "}")
     elif isinstance(value, (list, tuple, Rows)):
         if len(value) == 0:
-            yield "[]"
+            out.append("[]")
             return
         inner = "\n" + " " * (level + 1)
-        made_as_rows = isinstance(value, Rows)  # its maker gives rows: no need to look inside each
-        yield "["
-        for i, item in enumerate(value):
-            yield "," if i else ""
-            if made_as_rows:
-                yield inner + _row_line(item)
-            elif isinstance(item, Written):
-                yield inner
-                yield from _pieces(item, level + 1)
-            elif _is_row(item):
-                yield inner + _one_line(item)
-            else:
-                yield inner
-                yield from _pieces(item, level + 1)
-        yield "\n" + " " * level + "]"
+        out.append("[")
+        if isinstance(value, Rows):  # its maker gives rows: no need to look inside each
+            comma = ""
+            for item in value:
+                out.append(comma + inner + _row_line(item))
+                comma = ","
+                if flush is not None:
+                    flush()
+        else:
+            first = True
+            for item in value:
+                if not first:
+                    out.append(",")
+                first = False
+                if isinstance(item, Written):
+                    out.append(inner)
+                    _write(item, level + 1, out, flush)
+                elif _is_row(item):
+                    out.append(inner + _row_line(item))
+                else:
+                    out.append(inner)
+                    _write(item, level + 1, out, flush)
+        out.append("\n" + " " * level + "]")
     elif hasattr(value, "tolist") and not isinstance(value, _SCALARS):
-        yield from _pieces(value.tolist(), level)
+        _write(value.tolist(), level, out, flush)
     else:
-        yield _scalar(value)
+        out.append(_scalar(value))
 
 
 def write_json(value: Any, stream: TextIO) -> None:
     """Write ``value`` to ``stream`` as JSON text followed by a newline, in pieces (see the module)."""
-    batch: list[str] = []
-    for piece in _pieces(value, 0):
-        batch.append(piece)
-        if len(batch) >= _FLUSH_EVERY:
-            stream.write("".join(batch))
-            batch.clear()
-    batch.append("\n")
-    stream.write("".join(batch))
+    out: list[str] = []
+
+    def flush() -> None:
+        if len(out) >= _FLUSH_EVERY:
+            stream.write("".join(out))
+            out.clear()
+
+    _write(value, 0, out, flush)
+    out.append("\n")
+    stream.write("".join(out))

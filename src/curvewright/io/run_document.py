@@ -752,13 +752,13 @@ class _Reader:
 
     # typed getters: they record a problem and return a safe default
     def get(self, obj: Mapping[str, Any], key: str, path: str, kind: str, default: Any = None, required: bool = True) -> Any:
-        where = f"{path}.{key}" if path else key
         if key not in obj:
             if required:
-                self.fail(where, "missing")
+                self.fail(f"{path}.{key}" if path else key, "missing")
             return default
         value = obj[key]
         if not _CHECKS[kind](value):
+            where = f"{path}.{key}" if path else key
             whole = f"a whole number within ±{MAX_WHOLE}"
             measure = _MEASURE_WORDS
             words = {"text": "text", "number": "a finite number", "number?": "a finite number or null",

@@ -28,7 +28,7 @@ from pathlib import Path
 from typing import IO, Callable, Iterator, Iterable
 
 from openpyxl import Workbook
-from openpyxl.cell import WriteOnlyCell
+from openpyxl.cell import Cell, WriteOnlyCell
 from openpyxl.styles import Alignment, Font
 from openpyxl.utils import get_column_letter
 from openpyxl.worksheet.properties import PageSetupProperties
@@ -101,6 +101,7 @@ def _build(tables: list[Table], progress: Progress | None, target: Path | IO[byt
         done = 0
         for table in tables:
             sheet = workbook.create_sheet(_sheet_name(table.title, used))
+            _cells_without_trial(sheet)
             widths = _lay_out(sheet, table)  # before the first row: widths and panes are written at the top of the sheet
             if scratch is not None:
                 _stream_to(sheet, scratch())
@@ -125,6 +126,32 @@ def _build(tables: list[Table], progress: Progress | None, target: Path | IO[byt
         raise
     if progress is not None:
         progress(total, total)
+
+
+def _cells_without_trial(sheet) -> None:  # type: ignore[no-untyped-def]
+    """Make a write-only sheet take the cells of an appended row as openpyxl's own ``_values_to_row``
+    takes them (a plain value in a plain cell of the sheet's, written before the next value is put
+    in it; a cell given as it is), without first trying each of our styled cells as the value of
+    the plain cell (which fails, with an exception and the cell's repr, for every styled cell
+    written) and so without a new plain cell after each styled one."""
+    plain = WriteOnlyCell(sheet)
+
+    def values_to_row(values, row_idx):  # type: ignore[no-untyped-def]
+        for col_idx, value in enumerate(values, 1):
+            if value is None:
+                continue
+            if isinstance(value, Cell):
+                cell = value
+            else:
+                cell = plain
+                cell.value = value  # a plain value never gives the cell a style or a hyperlink
+            cell.column = col_idx
+            cell.row = row_idx
+            if cell.hyperlink is not None:
+                cell.hyperlink.ref = cell.coordinate
+            yield cell
+
+    sheet._values_to_row = values_to_row
 
 
 def _stream_to(sheet, path: Path) -> None:  # type: ignore[no-untyped-def]
@@ -226,6 +253,8 @@ class _NumberCells:
             cell = WriteOnlyCell(self.sheet, value=value)
             cell.number_format = fmt
             self._styled[(j, fmt)] = cell
+        elif type(value) is float or type(value) is int:
+            cell._value = value  # a number, as the cell already holds one (its type stays numeric)
         else:
             cell.value = value
         return cell
@@ -262,6 +291,12 @@ _WRITER_LOCK = threading.Lock()
 
 def _exact_number_text(value: object) -> str:
     """Numbers as their shortest round-trip repr (17 significant digits when needed)."""
+    kind = type(value)
+    if kind is float:
+        if value - value == 0.0:  # finite (NaN and the infinities make NaN)
+            return float.__repr__(value)
+    elif kind is int:
+        return int.__repr__(value)
     from openpyxl.compat.numbers import NUMERIC_TYPES
     from openpyxl.compat.strings import safe_string
 
