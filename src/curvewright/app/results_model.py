@@ -18,7 +18,7 @@ from .table_view import FittedTableView, fit_columns
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
-    from ..core.run_analysis import AnalyteResult, RunResult, SampleResult
+    from ..core.run_analysis import AnalyteResult, RunResult, SampleColumns, SampleResult
 
 COLUMNS = ("Sample", "Reported", "Interval", "Flags", "Kind", "QC / check", "n", "Mean response",
            "Estimate", "Dilution", "Value × dilution")
@@ -42,6 +42,7 @@ class ResultsModel(QAbstractTableModel):
         super().__init__()
         self.result: RunResult | None = None
         self.analyte: AnalyteResult | None = None
+        self.columns: SampleColumns | None = None
         self._texts: dict[int, tuple[str, ...]] = {}
         self._attention: dict[int, bool] = {}
         """Each row's cell texts and whether it needs attention, worked out once per result (a table
@@ -50,33 +51,43 @@ class ResultsModel(QAbstractTableModel):
     def show(self, result: RunResult | None, analyte: str) -> bool:
         """Show ``analyte``'s samples in ``result``. The same samples as shown (a new analysis of the
         same run, after an edit) are updated in place, keeping the selection and scroll position;
-        the table is reset only when the rows are other samples. True when updated in place."""
+        the table is reset only when the rows are other samples. True when updated in place.
+
+        The table reads the analysis's sample columns (:attr:`AnalyteResult.sample_columns`): a row's
+        texts are worked out when it is first shown, with no result object for the rows never shown."""
         try:
             shown = result.analyte(analyte) if result is not None else None
         except KeyError:
             shown = None
-        old_rows = self.rows
-        new_rows = shown.samples if shown is not None else ()
-        in_place = bool(old_rows) and len(old_rows) == len(new_rows) and all(
-            a.sample_id == b.sample_id for a, b in zip(old_rows, new_rows))
+        old_ids = self.columns.ids if self.columns is not None else []
+        new_columns = shown.sample_columns if shown is not None else None
+        new_ids = new_columns.ids if new_columns is not None else []
+        in_place = bool(old_ids) and old_ids == new_ids
         if not in_place:
             self.beginResetModel()
         self._texts, self._attention = {}, {}
-        self.result, self.analyte = result, shown
+        self.result, self.analyte, self.columns = result, shown, new_columns
         if not in_place:
             self.endResetModel()
             return False
         last = len(COLUMNS) - 1
-        self.dataChanged.emit(self.index(0, 0), self.index(len(new_rows) - 1, last))
+        self.dataChanged.emit(self.index(0, 0), self.index(len(new_ids) - 1, last))
         self.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, last)
         return True
 
     @property
     def rows(self) -> tuple[SampleResult, ...]:
+        """Every row's result object (all made when first read; the table itself reads :meth:`sample`)."""
         return self.analyte.samples if self.analyte is not None else ()
 
+    def sample(self, row: int) -> SampleResult:
+        """The result shown in ``row``, made from the sample columns (or the result objects, where the
+        analysis has made them already)."""
+        made = vars(self.analyte).get("samples")
+        return made[row] if made is not None else self.columns.result(row)  # type: ignore[union-attr]
+
     def rowCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
-        return 0 if parent.isValid() else len(self.rows)
+        return 0 if parent.isValid() or self.columns is None else len(self.columns)
 
     def columnCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
         return 0 if parent.isValid() else len(COLUMNS)
@@ -112,16 +123,16 @@ class ResultsModel(QAbstractTableModel):
         if role == _BACKGROUND:
             attention = self._attention.get(row)
             if attention is None:
-                attention = self._attention[row] = self._needs_attention(self.rows[row])
+                attention = self._attention[row] = self._needs_attention(self.sample(row))
             return _ATTENTION_BRUSH if attention else None
-        return self.description(self.rows[row])  # the tooltip, asked for one cell at a time
+        return self.description(self.sample(row))  # the tooltip, asked for one cell at a time
 
     def row_texts(self, row: int) -> tuple[str, ...]:
         """The cell texts of one row, worked out when the row is first shown and kept for the result
         (a table asks for the same cells many times: sizing its columns, painting, scrolling)."""
         texts = self._texts.get(row)
         if texts is None:
-            s = self.rows[row]
+            s = self.sample(row)
             texts = self._texts[row] = tuple(self.text(s, c) for c in range(len(COLUMNS)))
         return texts
 
@@ -201,7 +212,7 @@ class ResultsModel(QAbstractTableModel):
 
     def as_text(self) -> str:
         lines = ["\t".join(self.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))]
-        lines += ["\t".join(self.text(s, c) for c in range(len(COLUMNS))) for s in self.rows]
+        lines += ["\t".join(self.row_texts(r)) for r in range(self.rowCount())]
         return "\n".join(lines) + "\n"
 
 
@@ -232,7 +243,7 @@ class ResultsView(QWidget):
         fit_columns(self.table)
         if in_place and selected >= 0:
             # the same samples, updated: the selection and current row stay; the words follow the values
-            self.details.setText(self.results_model.description(self.results_model.rows[selected]))
+            self.details.setText(self.results_model.description(self.results_model.sample(selected)))
         elif 0 <= selected < self.results_model.rowCount():
             self.table.selectRow(selected)
         else:
@@ -240,13 +251,13 @@ class ResultsView(QWidget):
 
     def _on_row(self, current: QModelIndex, _previous: QModelIndex) -> None:
         if current.isValid() and current.row() < self.results_model.rowCount():
-            self.details.setText(self.results_model.description(self.results_model.rows[current.row()]))
+            self.details.setText(self.results_model.description(self.results_model.sample(current.row())))
 
     def copy_selection(self) -> str:
         rows = sorted({i.row() for i in self.table.selectionModel().selectedIndexes()})
         model = self.results_model
         lines = ["\t".join(model.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))]
-        lines += ["\t".join(model.text(model.rows[r], c) for c in range(len(COLUMNS))) for r in rows or range(model.rowCount())]
+        lines += ["\t".join(model.row_texts(r)) for r in rows or range(model.rowCount())]
         text = "\n".join(lines) + "\n"
         QGuiApplication.clipboard().setText(text)
         return text
