@@ -31,7 +31,7 @@ from .checks import CheckInput, CheckVerdict, bracketing, judge_checks
 from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag
 from .limits import DetectionLimits
-from .reporting import ReportingRange, ReportStatus, report_value, report_values, reporting_range
+from .reporting import ReportingRange, ReportStatus, report_columns, report_value, reporting_range
 from .run import Analyte, Reading, Run, SampleKind, Standard
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -571,7 +571,7 @@ def _quantify_samples(
     Each sample's result is what :func:`_report` gives for it; the work is done over all samples at
     once: the replicate means of the samples with the same number of replicates as one array (each
     mean summed exactly as ``np.mean`` sums that sample's replicates alone), one call of the engine,
-    and the statuses and texts by :func:`.reporting.report_values`.
+    and the statuses and texts by :func:`.reporting.report_columns`.
     """
     settings = run.settings
     name, ratio = analyte.name, analyte.uses_internal_standard
@@ -650,26 +650,25 @@ def _quantify_samples(
         censored = censored_of.get(r)
         reason = f"reported as censored: {censored}" if censored else (refusal or note or "no numeric response")
         reasons[r] = reason if not note or reason == note else f"{reason}; {note}"
-    reported = report_values(estimate, dilution, flags, rng, settings.rounding, unit=analyte.concentration_unit,
-                             below_limit=profile.reporting.between_lod_and_reporting_limit, not_quantified=reasons)
+    reported = report_columns(estimate, dilution, flags, rng, settings.rounding, unit=analyte.concentration_unit,
+                              below_limit=profile.reporting.between_lod_and_reporting_limit, not_quantified=reasons)
     nominal = np.array(nominal_list, dtype=float)
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         got = estimate * dilution
         recovery = np.where(quantified & ~np.isnan(estimate) & ~np.isnan(nominal) & (nominal != 0),
                             100.0 * got / nominal, np.nan)
+    # a result with an estimate has the flags its report agrees with; any other keeps the engine's
     has_estimate = quantified & ~np.isnan(estimate)
-    bits = np.array([_NONE if (f := (v.flags if e else q)) is None else int(f)
-                     for v, e, q in zip(reported, has_estimate.tolist(), flags)], dtype=np.int64)
+    engine_bits = np.array([_NONE if f is None else int(f) for f in flags], dtype=np.int64)
+    bits = np.where(has_estimate, reported.bits, engine_bits)
     return SampleColumns(
         analyte=name, ids=ids, kinds=kinds, run_orders=run_orders, replicate_values=replicate_values,
         replicate_counts=replicate_counts, quantified=quantified, mean_response=mean_response, estimate=estimate,
         standard_error=standard_error, lower=lower, upper=upper, dilution=dilution, nominal=nominal,
         recovery_percent=recovery, within_limits=np.full(n, _NONE, dtype=np.int8), flags=bits,
         notes=[reasons[r] if not done else note for r, (done, note) in enumerate(zip(quantified.tolist(), notes))],
-        statuses=[v.status for v in reported], texts=[v.text for v in reported], words=[v.words for v in reported],
-        shorts=[v.short for v in reported],
-        suggested_dilution=np.array([np.nan if v.suggested_dilution is None else v.suggested_dilution
-                                     for v in reported], dtype=float),
+        statuses=reported.statuses, texts=reported.texts, words=reported.words, shorts=reported.shorts,
+        suggested_dilution=reported.suggested_dilution,
     )
 
 
