@@ -43,6 +43,7 @@ class ResultsModel(QAbstractTableModel):
         self.result: RunResult | None = None
         self.analyte: AnalyteResult | None = None
         self.columns: SampleColumns | None = None
+        self._headers: tuple[str, ...] | None = None
         self._texts: dict[int, tuple[str, ...]] = {}
         self._attention: dict[int, bool] = {}
         """Each row's cell texts and whether it needs attention, worked out once per result (a table
@@ -69,11 +70,19 @@ class ResultsModel(QAbstractTableModel):
         self.result, self.analyte, self.columns = result, shown, new_columns
         if not in_place:
             self.endResetModel()
+            self._headers_changed()
             return False
         last = len(COLUMNS) - 1
         self.dataChanged.emit(self.index(0, 0), self.index(len(new_ids) - 1, last))
-        self.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, last)
+        if self._headers_changed():  # a header told of a change lays the table out again and repaints it all
+            self.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, last)
         return True
+
+    def _headers_changed(self) -> bool:
+        """True when the column headers' texts differ from those last shown (kept here)."""
+        headers = tuple(self.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))
+        changed, self._headers = headers != self._headers, headers
+        return changed
 
     @property
     def rows(self) -> tuple[SampleResult, ...]:

@@ -1,0 +1,63 @@
+"""After an edit, the tables are told only what changed: a header is told of a change only when its
+texts change (a header told of a change has its table laid out and repainted whole), and a column
+keeps its width unless its contents need another (the last column is never set to its fitted width
+and then widened again to fill the table)."""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+from PySide6.QtCore import Qt
+
+from curvewright.app.results_model import REPORTED
+from curvewright.app.standards_model import CONC
+from tests.app.conftest import DEMOS, settle
+from tests.app.test_redraw import changed_response
+
+WEIGHTED = next(p for p in DEMOS if "weighted" in p.stem)
+
+
+def watch(window):  # type: ignore[no-untyped-def]
+    """Counts of header changes told and of columns resized, per table."""
+    counts = {"headers": [], "resized": []}
+    tables = {"standards": window.standards_view, "samples": window.samples_view, "results": window.results_view.table}
+    for name, view in tables.items():
+        view.model().headerDataChanged.connect(lambda *_a, name=name: counts["headers"].append(name))
+        view.horizontalHeader().sectionResized.connect(lambda c, old, new, name=name: counts["resized"].append((name, c, old, new)))
+    return counts
+
+
+def test_an_edit_that_changes_no_header_tells_no_header_and_resizes_no_unchanged_column(qtbot, make_window) -> None:
+    window = make_window(WEIGHTED)
+    session = window.session
+    session.apply(changed_response(session.run, 1), "Change a response")
+    settle(qtbot, window)
+    counts = watch(window)
+    widths = {name: [v.columnWidth(c) for c in range(v.model().columnCount())]
+              for name, v in (("samples", window.samples_view), ("results", window.results_view.table))}
+    session.apply(changed_response(session.run, 2), "Change a response")
+    settle(qtbot, window)
+    assert counts["headers"] == []
+    # the samples table shows nothing the analysis changes: no column of it is touched, not even for a moment
+    assert [r for r in counts["resized"] if r[0] == "samples"] == []
+    assert [window.samples_view.columnWidth(c) for c in range(window.samples_view.model().columnCount())] == widths["samples"]
+    # the results table's last column still fills the room the others leave
+    table = window.results_view.table
+    last = table.model().columnCount() - 1
+    others = sum(table.columnWidth(c) for c in range(last))
+    assert table.columnWidth(last) >= table.viewport().width() - others
+
+
+def test_a_new_unit_is_told_to_every_header_that_shows_it(qtbot, make_window) -> None:
+    window = make_window(WEIGHTED)
+    session = window.session
+    counts = watch(window)
+    analyte = session.run.analytes[0]
+    session.apply(replace(session.run, analytes=(replace(analyte, concentration_unit="nmol/L"),)), "Change the unit")
+    settle(qtbot, window)
+    assert {"standards", "results"} <= set(counts["headers"])
+    horizontal = Qt.Orientation.Horizontal
+    assert "nmol/L" in window.standards_view.model().headerData(CONC, horizontal)
+    assert "nmol/L" in window.results_view.table.model().headerData(REPORTED, horizontal)
+    # and what the header shows is the new text
+    assert "nmol/L" in window.results_view.table.horizontalHeader().model().headerData(REPORTED, horizontal)
