@@ -34,6 +34,8 @@ _DISPLAY, _TOOLTIP, _BACKGROUND, _ALIGNMENT = (int(r) for r in (
 _ANSWERED = frozenset((_DISPLAY, _TOOLTIP, _BACKGROUND, _ALIGNMENT))
 """The roles this table answers. A view asks for about eight roles of every cell it paints or
 measures (font, colours, check state, decoration, size...); the others are turned away first."""
+_BLOCK = 64
+"""Rows whose result objects are made together (a short table's, or a screenful and more of a long one)."""
 _ALIGNMENTS = tuple(_RIGHT if c in NUMERIC else None for c in range(len(COLUMNS)))
 
 
@@ -44,6 +46,8 @@ class ResultsModel(QAbstractTableModel):
         self.analyte: AnalyteResult | None = None
         self.columns: SampleColumns | None = None
         self._headers: tuple[str, ...] | None = None
+        self._blocks: dict[int, tuple[SampleResult, ...]] = {}
+        """The rows' result objects made so far, by block of rows (see :meth:`sample`)."""
         self._texts: dict[int, tuple[str, ...]] = {}
         self._attention: dict[int, bool] = {}
         """Each row's cell texts and whether it needs attention, worked out once per result (a table
@@ -66,7 +70,7 @@ class ResultsModel(QAbstractTableModel):
         in_place = bool(old_ids) and old_ids == new_ids
         if not in_place:
             self.beginResetModel()
-        self._texts, self._attention = {}, {}
+        self._texts, self._attention, self._blocks = {}, {}, {}
         self.result, self.analyte, self.columns = result, shown, new_columns
         if not in_place:
             self.endResetModel()
@@ -91,9 +95,16 @@ class ResultsModel(QAbstractTableModel):
 
     def sample(self, row: int) -> SampleResult:
         """The result shown in ``row``, made from the sample columns (or the result objects, where the
-        analysis has made them already)."""
+        analysis has made them already). Rows are made a block at a time, as a table shows them: the
+        rows in view, or all the rows of a short table it fits its columns to."""
         made = vars(self.analyte).get("samples")
-        return made[row] if made is not None else self.columns.result(row)  # type: ignore[union-attr]
+        if made is not None:
+            return made[row]
+        block, at = divmod(row, _BLOCK)
+        rows = self._blocks.get(block)
+        if rows is None:
+            rows = self._blocks[block] = self.columns.results(block * _BLOCK, (block + 1) * _BLOCK)  # type: ignore[union-attr]
+        return rows[at]
 
     def rowCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
         return 0 if parent.isValid() or self.columns is None else len(self.columns)

@@ -160,26 +160,33 @@ class SampleColumns:
 
     __hash__ = None  # type: ignore[assignment]
 
-    def chunks(self, size: int = 4096) -> Iterator[tuple[int, dict[str, list[Any]]]]:
-        """The columns ``size`` samples at a time, as plain Python values (NaN kept; see the class):
-        (index of the first sample, the columns by name)."""
+    def chunks(self, size: int = 4096, start: int = 0, stop: int | None = None,
+               ) -> Iterator[tuple[int, dict[str, list[Any]]]]:
+        """The columns ``size`` samples at a time (of the samples from ``start`` to ``stop``: all by
+        default), as plain Python values (NaN kept; see the class): (index of the first sample, the
+        columns by name)."""
         names = ("mean_response", "estimate", "standard_error", "lower", "upper", "dilution", "nominal",
                  "recovery_percent", "within_limits", "flags", "suggested_dilution", "quantified", "replicate_counts")
-        for start in range(0, len(self.ids), size):
-            stop = min(start + size, len(self.ids))
+        end = len(self.ids) if stop is None else min(stop, len(self.ids))
+        for start in range(start, end, size):
+            stop = min(start + size, end)
             out: dict[str, list[Any]] = {name: getattr(self, name)[start:stop].tolist() for name in names}
             for name in ("ids", "kinds", "run_orders", "notes", "statuses", "texts", "words", "shorts"):
                 out[name] = getattr(self, name)[start:stop]
             yield start, out
 
-    def results(self) -> tuple[SampleResult, ...]:
-        """Every sample's result."""
-        offsets = np.concatenate([[0], np.cumsum(self.replicate_counts)]).tolist()
-        values = self.replicate_values.tolist()
+    def results(self, start: int = 0, stop: int | None = None) -> tuple[SampleResult, ...]:
+        """Every sample's result (or those of the samples from ``start`` to ``stop``)."""
+        end = len(self.ids) if stop is None else min(stop, len(self.ids))
+        start = max(0, min(start, end))
+        first = int(np.sum(self.replicate_counts[:start]))
+        counts = self.replicate_counts[start:end]
+        offsets = np.concatenate([[0], np.cumsum(counts)]).tolist()
+        values = self.replicate_values[first:first + offsets[-1]].tolist()
         out = []
-        for start, c in self.chunks():
+        for begin, c in self.chunks(start=start, stop=end):
             for k in range(len(c["ids"])):
-                i = start + k
+                i = begin + k - start
                 out.append(_result_of(self.analyte, c, k, tuple(values[offsets[i]:offsets[i + 1]])))
         return tuple(out)
 
