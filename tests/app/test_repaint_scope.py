@@ -61,3 +61,39 @@ def test_a_new_unit_is_told_to_every_header_that_shows_it(qtbot, make_window) ->
     assert "nmol/L" in window.results_view.table.model().headerData(REPORTED, horizontal)
     # and what the header shows is the new text
     assert "nmol/L" in window.results_view.table.horizontalHeader().model().headerData(REPORTED, horizontal)
+
+
+def test_new_curve_words_of_as_many_lines_lay_nothing_out_again(qtbot, make_window) -> None:
+    from PySide6.QtCore import QEvent, QObject
+
+    from curvewright.io.model_outputs import curve_words
+
+    window = make_window(WEIGHTED)
+    session, view = window.session, window.curve_view
+    laid_out = []
+
+    class Watch(QObject):
+        def eventFilter(self, obj, event):  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+            if event.type() == QEvent.Type.LayoutRequest:
+                laid_out.append(obj)
+            return False
+
+    session.apply(changed_response(session.run, 2), "Change a response")  # the first redraw may size the axes
+    settle(qtbot, window)
+    watcher = Watch()
+    for widget in (view, view.parentWidget()):  # the view and the splitter it is laid out in
+        widget.installEventFilter(watcher)
+    before = view.curve_words.text()
+    height = view.curve_words.height()
+    session.apply(changed_response(session.run, 3), "Change a response")
+    settle(qtbot, window)
+    a = session.result.analytes[0]
+    assert view.curve_words.text() == curve_words(a.calibration, a.analyte.uses_internal_standard) != before
+    assert view.curve_words.label.heightForWidth(view.curve_words.width()) == height  # as many lines
+    assert laid_out == []
+    assert view.curve_words.label.geometry() == view.curve_words.rect()
+    # a text of more lines is laid out: the words take the height the label needs at their width
+    view.curve_words.setText(" ".join(["a long explanation of the fitted curve"] * 12))
+    qtbot.waitUntil(lambda: view.curve_words.height() > height)
+    assert view.curve_words.height() == view.curve_words.label.heightForWidth(view.curve_words.width())
+    assert view.curve_words.label.geometry() == view.curve_words.rect()

@@ -13,8 +13,8 @@ from __future__ import annotations
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QPointF, Qt, Signal
-from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QToolTip, QVBoxLayout, QWidget
+from PySide6.QtCore import QPointF, QSize, Qt, Signal
+from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QSizePolicy, QToolTip, QVBoxLayout, QWidget
 
 from . import figures, palette
 
@@ -337,6 +337,59 @@ class _LowerItems(_KeptPlot):
         return self.finish(self.items)
 
 
+class _Words(QWidget):
+    """A word-wrapped, selectable text, laid out exactly as the label it holds would be.
+
+    A label laid out with the view tells the layouts above it that its size may have changed with
+    every new text, and the window was laid out again and partly repainted after each redraw. The
+    box answers the label's size hints and height for a width, and tells its layout of a change only
+    when a new text changes where the words go (another number of lines, a longer word: see
+    :meth:`_hints`); otherwise the text is only repainted."""
+
+    def __init__(self, name: str) -> None:
+        super().__init__()
+        self.label = QLabel("", self)
+        self.label.setWordWrap(True)
+        self.label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self.label.setAccessibleName(name)
+        self.setSizePolicy(self.label.sizePolicy())
+
+    def text(self) -> str:
+        return self.label.text()
+
+    def setText(self, text: str) -> None:  # noqa: N802 - as QLabel
+        if text == self.label.text():
+            return
+        before = self._hints()
+        self.label.setText(text)
+        if self._hints() != before:
+            self.updateGeometry()
+
+    def _hints(self) -> tuple[QSize, int]:
+        """What the words' place in the view depends on: the smallest size the label takes, and its
+        height at the width it has (the view's layout gives it that height; its preferred size, which
+        moves with nearly every text, only adds to the view's preferred size and is told with the next
+        change that moves anything)."""
+        label = self.label
+        return label.minimumSizeHint(), label.heightForWidth(self.width())
+
+    def resizeEvent(self, event) -> None:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        super().resizeEvent(event)
+        self.label.setGeometry(self.rect())
+
+    def sizeHint(self) -> QSize:  # noqa: N802 - Qt override
+        return self.label.sizeHint()
+
+    def minimumSizeHint(self) -> QSize:  # noqa: N802 - Qt override
+        return self.label.minimumSizeHint()
+
+    def hasHeightForWidth(self) -> bool:  # noqa: N802 - Qt override
+        return self.label.hasHeightForWidth()
+
+    def heightForWidth(self, width: int) -> int:  # noqa: N802 - Qt override
+        return self.label.heightForWidth(width)
+
+
 class CurveView(QWidget):
     """The curve above, relative errors or residuals below."""
 
@@ -366,10 +419,7 @@ class CurveView(QWidget):
         self.lower_kind.addItems(["Relative error (%) with acceptance limits", "Residuals (response units)"])
         self.lower_kind.setAccessibleName("Lower plot")
         self.empty_note = QLabel("")
-        self.curve_words = QLabel("")
-        self.curve_words.setWordWrap(True)
-        self.curve_words.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-        self.curve_words.setAccessibleName("The fitted curve: equation and parameters")
+        self.curve_words = _Words("The fitted curve: equation and parameters")
         controls = QHBoxLayout()
         for w in (self.confidence, self.prediction, self.log_axis, QLabel("Below:"), self.lower_kind):
             controls.addWidget(w)
