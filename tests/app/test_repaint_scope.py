@@ -97,3 +97,28 @@ def test_new_curve_words_of_as_many_lines_lay_nothing_out_again(qtbot, make_wind
     qtbot.waitUntil(lambda: view.curve_words.height() > height)
     assert view.curve_words.height() == view.curve_words.label.heightForWidth(view.curve_words.width())
     assert view.curve_words.label.geometry() == view.curve_words.rect()
+
+
+def shown_on_screen(window, widget):  # type: ignore[no-untyped-def]
+    """What the screen shows of ``widget`` (the window's painted image, as the analyst sees it)."""
+    from PySide6.QtGui import QGuiApplication
+
+    screen = QGuiApplication.primaryScreen().grabWindow(window.winId())
+    at = widget.mapTo(window, widget.rect().topLeft())
+    return screen.copy(at.x(), at.y(), widget.width(), widget.height()).toImage()
+
+
+def test_after_edits_the_tables_on_screen_are_the_tables_painted_anew(qtbot, make_window) -> None:
+    """Only the cells that changed are repainted after an edit: what the screen then shows of each
+    table is what painting the whole table anew shows, through small and large changes (statuses,
+    flags and shading changing too) and a selected row."""
+    window = make_window(WEIGHTED)
+    session = window.session
+    window.results_view.table.selectRow(2)
+    for k in (1, 2, 300, 301, -400, 5):
+        session.apply(changed_response(session.run, k), "Change a response")
+        settle(qtbot, window)
+        qtbot.wait(30)
+        for view in (window.results_view.table, window.standards_view):
+            viewport = view.viewport()
+            assert shown_on_screen(window, viewport) == viewport.grab().toImage(), (k, view.accessibleName())

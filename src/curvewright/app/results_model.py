@@ -35,6 +35,9 @@ _ANSWERED = frozenset((_DISPLAY, _TOOLTIP, _BACKGROUND, _ALIGNMENT))
 """The roles this table answers. A view asks for about eight roles of every cell it paints or
 measures (font, colours, check state, decoration, size...); the others are turned away first."""
 _BLOCK = 64
+COMPARED_ROWS_UP_TO = 512
+"""After an edit, the cells of up to this many rows shown since the last result are compared, and
+only those that changed are told to the view (then repainted); beyond it, every cell is."""
 """Rows whose result objects are made together (a short table's, or a screenful and more of a long one)."""
 _ALIGNMENTS = tuple(_RIGHT if c in NUMERIC else None for c in range(len(COLUMNS)))
 
@@ -70,6 +73,7 @@ class ResultsModel(QAbstractTableModel):
         in_place = bool(old_ids) and old_ids == new_ids
         if not in_place:
             self.beginResetModel()
+        old_texts, old_attention = self._texts, self._attention
         self._texts, self._attention, self._blocks = {}, {}, {}
         self.result, self.analyte, self.columns = result, shown, new_columns
         if not in_place:
@@ -77,10 +81,45 @@ class ResultsModel(QAbstractTableModel):
             self._headers_changed()
             return False
         last = len(COLUMNS) - 1
-        self.dataChanged.emit(self.index(0, 0), self.index(len(new_ids) - 1, last))
+        if len(old_texts) + len(old_attention) > COMPARED_ROWS_UP_TO:
+            self.dataChanged.emit(self.index(0, 0), self.index(len(new_ids) - 1, last))
+        else:
+            self._tell_changed_cells(old_texts, old_attention)
         if self._headers_changed():  # a header told of a change lays the table out again and repaints it all
             self.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, last)
         return True
+
+    def _tell_changed_cells(self, old_texts: dict[int, tuple[str, ...]], old_attention: dict[int, bool]) -> None:
+        """Tell the view which cells changed: of the rows shown since the last result (every row in
+        view has been: it was painted, or its texts were worked out to fit the columns), the cells
+        whose text changed, and every cell of a row whose shading changed. A row not shown since is
+        worked out afresh when it is shown. One signal per column and run of rows."""
+        every = range(len(COLUMNS))
+        rows_of: dict[int, list[int]] = {}
+        for row in sorted(old_texts.keys() | old_attention.keys()):
+            before, shading = old_texts.get(row), old_attention.get(row)
+            after = self.row_texts(row)
+            if before is None or (shading is not None and self._attention_of(row) != shading):
+                changed = every
+            else:
+                changed = [c for c in every if after[c] != before[c]]
+            for c in changed:
+                rows_of.setdefault(c, []).append(row)
+        for c, rows in rows_of.items():
+            first = previous = rows[0]
+            for row in rows[1:] + [None]:
+                if row is not None and row == previous + 1:
+                    previous = row
+                    continue
+                self.dataChanged.emit(self.index(first, c), self.index(previous, c))
+                if row is not None:
+                    first = previous = row
+
+    def _attention_of(self, row: int) -> bool:
+        attention = self._attention.get(row)
+        if attention is None:
+            attention = self._attention[row] = self._needs_attention(self.sample(row))
+        return attention
 
     def _headers_changed(self) -> bool:
         """True when the column headers' texts differ from those last shown (kept here)."""
@@ -141,10 +180,7 @@ class ResultsModel(QAbstractTableModel):
             return _ALIGNMENTS[index.column()]
         row = index.row()
         if role == _BACKGROUND:
-            attention = self._attention.get(row)
-            if attention is None:
-                attention = self._attention[row] = self._needs_attention(self.sample(row))
-            return _ATTENTION_BRUSH if attention else None
+            return _ATTENTION_BRUSH if self._attention_of(row) else None
         return self.description(self.sample(row))  # the tooltip, asked for one cell at a time
 
     def row_texts(self, row: int) -> tuple[str, ...]:
