@@ -108,6 +108,20 @@ def shown_on_screen(window, widget):  # type: ignore[no-untyped-def]
     return screen.copy(at.x(), at.y(), widget.width(), widget.height()).toImage()
 
 
+def typed_response(run, k: int):  # type: ignore[no-untyped-def]
+    """The run with its first standard's response changed as an analyst types it (six figures, so
+    that the column keeps its width and nothing but the changed cells is repainted)."""
+    from curvewright.core.run import Reading
+    from curvewright.io import run_edits
+
+    analyte = run.analytes[0]
+    first = analyte.standards[0]
+    text = f"{float(first.response.value) * (1 + 0.001 * k):.6g}"
+    changed = replace(first, response=Reading(float(text), text))
+    return run_edits.update_standards(run, analyte.name, (changed, *analyte.standards[1:]), "typed",
+                                      reason="re-read from the instrument")
+
+
 def test_after_edits_the_tables_on_screen_are_the_tables_painted_anew(qtbot, make_window) -> None:
     """Only the cells that changed are repainted after an edit: what the screen then shows of each
     table is what painting the whole table anew shows, through small and large changes (statuses,
@@ -115,8 +129,9 @@ def test_after_edits_the_tables_on_screen_are_the_tables_painted_anew(qtbot, mak
     window = make_window(WEIGHTED)
     session = window.session
     window.results_view.table.selectRow(2)
+    window.standards_view.horizontalScrollBar().setValue(window.standards_view.horizontalScrollBar().maximum())
     for k in (1, 2, 300, 301, -400, 5):
-        session.apply(changed_response(session.run, k), "Change a response")
+        session.apply(typed_response(session.run, k), "Change a response")
         settle(qtbot, window)
         qtbot.wait(30)
         for view in (window.results_view.table, window.standards_view):
