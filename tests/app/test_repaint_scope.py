@@ -137,3 +137,29 @@ def test_after_edits_the_tables_on_screen_are_the_tables_painted_anew(qtbot, mak
         for view in (window.results_view.table, window.standards_view):
             viewport = view.viewport()
             assert shown_on_screen(window, viewport) == viewport.grab().toImage(), (k, view.accessibleName())
+
+
+def test_an_axis_whose_range_did_not_change_keeps_its_picture(qtbot, make_window) -> None:
+    """A response edited: the concentration axes are drawn from the same range, ticks and labels, so
+    they keep the picture they were painted with; the response axes, whose range moved, are drawn
+    anew. (That the view then looks as one drawn anew is held by tests/app/test_curve_items.py.)"""
+    window = make_window(WEIGHTED)
+    session, view = window.session, window.curve_view
+    session.apply(typed_response(session.run, 1), "Change a response")
+    settle(qtbot, window)
+    view.graphics.grab()
+    plots = (view.curve_plot, view.lower_plot)
+    before = {(i, side): plot.getAxis(side).picture for i, plot in enumerate(plots) for side in ("bottom", "left")}
+    ranges = {(i, side): tuple(plot.getAxis(side).range) for i, plot in enumerate(plots) for side in ("bottom", "left")}
+    session.last_analysis_work_seconds = 0.0  # analysed at once: the views are redrawn and not yet painted
+    session.apply(typed_response(session.run, 600), "Change a response")
+    assert session.result.run is session.run
+    for (i, side), picture in before.items():
+        axis = plots[i].getAxis(side)
+        assert picture is not None
+        if tuple(axis.range) == ranges[(i, side)]:
+            assert axis.picture is picture, (i, side)
+        else:
+            assert axis.picture is None, (i, side)  # drawn anew when next painted
+    assert any(plots[i].getAxis(side).picture is before[(i, side)] for i in (0, 1) for side in ("bottom",))
+    assert any(tuple(plots[i].getAxis("left").range) != ranges[(i, "left")] for i in (0, 1))

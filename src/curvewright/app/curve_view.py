@@ -53,6 +53,33 @@ def _as_float(v):  # type: ignore[no-untyped-def]
     return np.asarray(v, dtype=float)
 
 
+def _style_value(value: object) -> object:
+    """A style value of an axis as something compared by value (fonts and pens by what they draw)."""
+    from PySide6.QtGui import QColor, QFont, QPen
+
+    if isinstance(value, QFont):
+        return ("font", value.toString())
+    if isinstance(value, QPen):
+        return ("pen", value.color().name(QColor.NameFormat.HexArgb), value.widthF(), int(value.style().value),
+                value.isCosmetic())
+    if isinstance(value, (list, tuple)):
+        return tuple(_style_value(v) for v in value)
+    return value
+
+
+def _axis_state(axis: pg.AxisItem) -> tuple:  # type: ignore[type-arg]
+    """Everything an axis's picture is drawn from: its range and scale, ticks, label, style, pens,
+    text room, grid, and its place and the linked view's place (the grid lines cross the view)."""
+    view = axis.linkedView()
+    return (tuple(axis.range), axis.logMode, axis.scale, axis.autoSIPrefixScale, axis.labelUnitPrefix,
+            repr(axis._tickLevels), axis._tickDensity, repr(axis._tickSpacing), axis.grid, axis.labelString(),
+            axis.textWidth, axis.textHeight, axis.isVisible(),
+            tuple(sorted((k, _style_value(v)) for k, v in axis.style.items())),
+            _style_value(axis.pen()), _style_value(axis.textPen()),
+            axis.geometry().getRect(), axis.boundingRect().getRect(),
+            None if view is None else view.mapRectToItem(axis, view.boundingRect()).getRect())
+
+
 def _one_style(data: np.ndarray) -> bool:
     """No point of a scatter's data has a style of its own (all take the item's symbol, size, pen
     and brush)."""
@@ -95,6 +122,8 @@ class _KeptPlot:
         self.plot, self.legend = plot, legend
         self._entries: list[tuple[object, str]] = []
         self._shown: set[int] = set()
+        self._labelled: tuple[str, str, bool, bool] | None = None
+        self._pictures: dict[str, tuple[object, tuple]] = {}  # type: ignore[type-arg]
 
     def add(self, item, ignore_bounds: bool = False):  # type: ignore[no-untyped-def]
         if isinstance(item, pg.PlotDataItem) and item.opts["pen"] is None:
@@ -113,8 +142,23 @@ class _KeptPlot:
     def begin(self) -> None:
         self._shown = set()
         self._legend_wanted: list[tuple[object, str]] = []
+        # each axis's picture as last painted, with what it was drawn from (see keep_unchanged_axes)
+        self._pictures = {side: (axis.picture, _axis_state(axis)) for side in ("bottom", "left")
+                          if (axis := self.plot.getAxis(side)).picture is not None}
         for side in ("bottom", "left"):  # as a cleared plot starts
             self.ticks(side, None)
+
+    def keep_unchanged_axes(self) -> None:
+        """Give back to each axis the picture it was last painted with when it is drawn from the same
+        range, ticks, labels, style and geometry as then (once the view's ranges are worked out): the
+        drawing restyles, labels and ticks every axis, which has pyqtgraph draw its picture anew, but an
+        axis whose range did not change (the concentrations' axis, after a response is edited) would be
+        drawn the same."""
+        for side, (picture, state) in self._pictures.items():
+            axis = self.plot.getAxis(side)
+            if axis.picture is None and _axis_state(axis) == state:
+                axis.picture = picture
+        self._pictures = {}
 
     def show(self, item, *data, name: str | None = None, legend_item=None, named: bool = False, **options):  # type: ignore[no-untyped-def]
         """Give ``item`` its data (positional for a PlotDataItem, keywords for an ErrorBarItem) and show it;
@@ -148,12 +192,18 @@ class _KeptPlot:
     def labels(self, x_label: str, y_label: str, log_x: bool = False, log_y: bool = False) -> None:
         """The axis labels, set on every drawing and in the order the drawing functions set them
         (setting a label also sizes its axis to the tick texts last drawn, so the plots keep the
-        widths they had)."""
-        figures.styled_plot(self.plot, x_label, y_label)
-        if log_x:
-            self.plot.setLabel("bottom", x_label + " (log scale)")
-        if log_y:
-            self.plot.setLabel("left", y_label + " (log scale)")
+        widths they had). Labels as set last time are not set again: each axis is only sized to the tick
+        texts it last drew, which is all setting them again would change."""
+        if self._labelled == (x_label, y_label, log_x, log_y):
+            for side in ("bottom", "left"):
+                self.plot.getAxis(side)._adjustSize()
+        else:
+            self._labelled = (x_label, y_label, log_x, log_y)
+            figures.styled_plot(self.plot, x_label, y_label)
+            if log_x:
+                self.plot.setLabel("bottom", x_label + " (log scale)")
+            if log_y:
+                self.plot.setLabel("left", y_label + " (log scale)")
         for side in ("bottom", "left"):
             axis = self.plot.getAxis(side)
             if axis.autoSIPrefixScale != 1.0 or axis.labelUnitPrefix:
@@ -490,6 +540,8 @@ class CurveView(QWidget):
         self.curve_plot.getViewBox().autoRange(padding=0.04)
         self.lower_plot.getViewBox().autoRange(padding=0.08)
         self._settle_before_paint()
+        for kept in (self.curve_items, self.lower_items):
+            kept.keep_unchanged_axes()
         self.options_changed.emit()
 
     def _settle_before_paint(self) -> None:
