@@ -135,3 +135,33 @@ def test_a_response_typed_into_the_standards_table_shows_new_results_and_curve(q
     _sx, sy = window.curve_view.curve_items.standards.getData()
     np.testing.assert_array_equal(sy, np.log10(cal.response[shown]) if log_y else cal.response[shown])
     assert not np.array_equal(sy, before_standards)
+
+
+def test_the_curves_hover_texts_are_the_result_objects(qtbot, make_window) -> None:
+    """Hovering a sample's point names it from the analysis's columns, as its result object says it."""
+    checked = 0
+    for path in DEMOS:
+        window = make_window(path)
+        window.session.apply(varied_run(path), "Add samples")
+        settle(qtbot, window)
+        view = window.curve_view
+        for log_x in (False, True):
+            view.log_axis.setChecked(log_x)
+            a = view.analyte
+            shown = view._hover_points
+            log_y = log_x and bool(np.all(a.calibration.response > 0))
+            unit = a.analyte.concentration_unit
+            expected = []
+            for s in a.samples:  # the result objects, read as the hover texts were made from them
+                if s.estimate is None or (log_x and s.estimate <= 0) or (log_y and (s.mean_response or 0) <= 0):
+                    continue
+                expected.append((float(np.log10(s.estimate)) if log_x else s.estimate,
+                                 float(np.log10(s.mean_response)) if log_y else s.mean_response,
+                                 f"{s.kind.words} {s.sample_id}: {s.estimate:.5g} {unit} "
+                                 f"({s.lower:.5g} to {s.upper:.5g}); {s.flag_words}"))
+            assert expected and shown[len(shown) - len(expected):] == expected
+            assert all(text.startswith("standard ") for _x, _y, text in shown[:len(shown) - len(expected)])
+            checked += len(expected)
+        window.session.undo_stack.setClean()
+        window.session.discard_recovery()
+    assert checked > 50

@@ -587,11 +587,19 @@ class CurveView(QWidget):
             if used is not None and (s.concentration > 0 or not log_x) and (used > 0 or not log_y):
                 out.append((tx(s.concentration), ty(used), f"standard {s.id} (excluded: {s.exclusion_reason}): "
                                                            f"nominal {s.concentration:g} {unit}, response {used:.6g}"))
-        for s in a.samples:
-            if s.estimate is None or (log_x and s.estimate <= 0) or (log_y and (s.mean_response or 0) <= 0):
+        columns = a.sample_columns  # read as columns: no result object is made per sample
+        if columns is None:
+            return out
+        from ..core.run_analysis import flag_words_of
+
+        estimated = np.flatnonzero(columns.quantified & ~np.isnan(columns.estimate)).tolist()
+        estimate, mean = columns.estimate.tolist(), columns.mean_response.tolist()
+        lower, upper = columns.lower.tolist(), columns.upper.tolist()
+        for i in estimated:
+            if (log_x and estimate[i] <= 0) or (log_y and mean[i] <= 0):
                 continue
-            out.append((tx(s.estimate), ty(s.mean_response), f"{s.kind.words} {s.sample_id}: {s.estimate:.5g} {unit} "
-                        f"({s.lower:.5g} to {s.upper:.5g}); {s.flag_words}"))
+            out.append((tx(estimate[i]), ty(mean[i]), f"{columns.kinds[i].words} {columns.ids[i]}: {estimate[i]:.5g} {unit} "
+                        f"({lower[i]:.5g} to {upper[i]:.5g}); {flag_words_of(columns.words[i], columns.notes[i])}"))
         return out
 
     def _on_mouse(self, event) -> None:  # type: ignore[no-untyped-def]
