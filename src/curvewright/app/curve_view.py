@@ -53,30 +53,15 @@ def _as_float(v):  # type: ignore[no-untyped-def]
     return np.asarray(v, dtype=float)
 
 
-def _style_value(value: object) -> object:
-    """A style value of an axis as something compared by value (fonts and pens by what they draw)."""
-    from PySide6.QtGui import QColor, QFont, QPen
-
-    if isinstance(value, QFont):
-        return ("font", value.toString())
-    if isinstance(value, QPen):
-        return ("pen", value.color().name(QColor.NameFormat.HexArgb), value.widthF(), int(value.style().value),
-                value.isCosmetic())
-    if isinstance(value, (list, tuple)):
-        return tuple(_style_value(v) for v in value)
-    return value
-
-
 def _axis_state(axis: pg.AxisItem) -> tuple:  # type: ignore[type-arg]
-    """Everything an axis's picture is drawn from: its range and scale, ticks, label, style, pens,
-    text room, grid, and its place and the linked view's place (the grid lines cross the view)."""
+    """Everything an axis's picture is drawn from: its range and scale, ticks, label, style (fonts and
+    pens compare by value), text room, grid, and its place and the linked view's place (the grid
+    lines cross the view)."""
     view = axis.linkedView()
     return (tuple(axis.range), axis.logMode, axis.scale, axis.autoSIPrefixScale, axis.labelUnitPrefix,
             repr(axis._tickLevels), axis._tickDensity, repr(axis._tickSpacing), axis.grid, axis.labelString(),
-            axis.textWidth, axis.textHeight, axis.isVisible(),
-            tuple(sorted((k, _style_value(v)) for k, v in axis.style.items())),
-            _style_value(axis.pen()), _style_value(axis.textPen()),
-            axis.geometry().getRect(), axis.boundingRect().getRect(),
+            axis.textWidth, axis.textHeight, axis.isVisible(), tuple(axis.style.items()),
+            axis._pen, axis._textPen, axis.geometry().getRect(), axis.boundingRect().getRect(),
             None if view is None else view.mapRectToItem(axis, view.boundingRect()).getRect())
 
 
