@@ -489,7 +489,10 @@ def _analyse_analyte(
                                       s.dilution_factor, s.note) for s in check_results],
                           profile.checks, rng, profile.name, unit)
     samples: tuple[SampleResult, ...] | None = None
-    if checks is not None or SampleKind.QC in columns.kinds:  # results judged further: as objects
+    qc_verdict = None
+    if checks is None and SampleKind.QC in columns.kinds:  # QC samples judged over the columns
+        columns, qc_verdict = _judge_qc(columns, profile)
+    elif checks is not None:  # results judged further against the checks: as objects
         samples = columns.results()
     if checks is not None:
         by_id = {c.sample_id: c for c in checks.checks}
@@ -501,7 +504,6 @@ def _analyse_analyte(
             if s.sample_id in unbracketed and s.estimate is not None else s
             for s in samples
         )
-    qc_verdict = None
     if samples is not None:
         samples = tuple(
             replace(s, within_limits=abs(s.recovery_percent - 100.0) <= profile.qc.tolerance_percent + 1e-9)
@@ -531,6 +533,24 @@ def _analyse_analyte(
     if samples is not None:
         result.__dict__["samples"] = samples  # already made: the columns give the same results
     return result
+
+
+def _judge_qc(columns: SampleColumns, profile: AcceptanceProfile) -> tuple[SampleColumns, AcceptanceVerdict | None]:
+    """The QC samples judged over the columns: each with a recovery is within the profile's QC
+    tolerance or not, and the QC samples with a nominal value and a reported number are judged by the
+    profile's QC rules (what the result objects' judging gives, sample for sample)."""
+    is_qc = np.fromiter((k is SampleKind.QC for k in columns.kinds), bool, len(columns))
+    recovery = columns.recovery_percent
+    judged = is_qc & ~np.isnan(recovery)
+    within = columns.within_limits.copy()
+    within[judged] = np.abs(recovery[judged] - 100.0) <= profile.qc.tolerance_percent + 1e-9
+    counted = is_qc & ~np.isnan(columns.nominal) & columns.quantified & ~np.isnan(columns.estimate)
+    verdict = None
+    if counted.any():
+        # the reported number is the estimate times the dilution factor, as each result object has it
+        found = [e * d for e, d in zip(columns.estimate[counted].tolist(), columns.dilution[counted].tolist())]
+        verdict = profile.evaluate_qc(columns.nominal[counted].tolist(), found)
+    return replace(columns, within_limits=within), verdict
 
 
 def _method_reasons(run: Run, analyte: Analyte, cal: Calibration, model: str, weighting: str) -> tuple[str, ...]:
