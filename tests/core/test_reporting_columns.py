@@ -200,3 +200,30 @@ def test_rounded_texts_in_one_pass_equal_each_text() -> None:
     for rule in RULES + (RoundingRule("significant", 15), RoundingRule("decimals", 15, "half_even")):
         assert rule.texts(values) == [rule.text(v) for v in values]
     assert RoundingRule().texts([]) == []
+
+
+def test_reported_columns_of_many_random_results_equal_each_report() -> None:
+    """Columns made group by group (status, qualifiers, dilution) against ``report_value`` one result
+    at a time, on invented results spread over every status, with mixed dilutions and qualifiers."""
+    from curvewright.core.reporting import report_columns
+
+    rng = ReportingRange(lloq=0.5, uloq=50.0, lod=0.2, loq=0.8, reporting_limit=0.8, basis="LOQ", note="")
+    draw = np.random.default_rng(11)
+    n = 3000
+    estimates = np.exp(draw.uniform(np.log(0.01), np.log(500.0), n))
+    estimates[draw.random(n) < 0.05] = np.nan
+    dilutions = draw.choice([1.0, 2.0, 10.0, 0.5, 25.0], n)
+    choices = [None, QuantFlag(0), QuantFlag.AMBIGUOUS_ROOT, QuantFlag.UNBOUNDED_INTERVAL,
+               QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_ASYMPTOTE]
+    engine = [choices[k] for k in draw.integers(0, len(choices), n)]
+    reasons = ["reported as censored: <0.2" if e != e and k % 2 else "" for k, e in enumerate(estimates)]
+    for rule in RULES:
+        for below_limit in ("censor", "estimate"):
+            got = report_columns(estimates, dilutions, engine, rng, rule, unit="µg/L", below_limit=below_limit,
+                                 not_quantified=reasons)
+            expected = [report_value(None if e != e else float(e), float(d), f, rng, rule, unit="µg/L",
+                                     below_limit=below_limit, not_quantified=q)
+                        for e, d, f, q in zip(estimates, dilutions, engine, reasons)]
+            assert got.values() == expected
+            assert got.statuses == [v.status for v in expected] and got.texts == [v.text for v in expected]
+            assert len({v.status for v in expected}) == 5  # every status but not reportable is present

@@ -62,3 +62,18 @@ def test_edit_standard_needs_a_reason_for_an_entered_value() -> None:
     with pytest.raises(ReasonRequired):
         run_edits.edit_standard(run, "cobalt", sid, "concentration", 1.5)
     assert run_edits.edit_standard(run, "cobalt", sid, "concentration", 1.5, "re-read from the weighing record").audit[-1].details["reason"]
+
+
+def test_a_sample_edit_among_many_records_that_sample_alone() -> None:
+    """An edit of one sample compares only the samples that are new objects (runs and samples are
+    immutable, so one kept as it was has the same fields); a copy made field for field records nothing."""
+    run = small_run()
+    many = run.samples + tuple(Sample(f"Well {k:04d}", dilution_factor=1.0 + k % 3) for k in range(2000))
+    run = run_edits.update_samples(run, many, "added")
+    target = run.samples[1500]
+    edited = run.samples[:1500] + (replace(target, run_order=77),) + run.samples[1501:]
+    done = run_edits.update_samples(run, edited, "typed")
+    assert done.audit[-1].details["changes"] == [{"sample": target.id, "field": "run_order",
+                                                  "old": target.run_order, "new": 77}]
+    copies = tuple(replace(s) for s in run.samples)  # new objects, the same fields: nothing changed
+    assert run_edits.update_samples(run, copies, "typed") is run

@@ -13,8 +13,8 @@ from __future__ import annotations
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QPointF, Qt, Signal
-from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QToolTip, QVBoxLayout, QWidget
+from PySide6.QtCore import QPointF, QSize, Qt, Signal
+from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QSizePolicy, QToolTip, QVBoxLayout, QWidget
 
 from . import figures, palette
 
@@ -51,6 +51,18 @@ def _log10(v):  # type: ignore[no-untyped-def]
 
 def _as_float(v):  # type: ignore[no-untyped-def]
     return np.asarray(v, dtype=float)
+
+
+def _axis_state(axis: pg.AxisItem) -> tuple:  # type: ignore[type-arg]
+    """Everything an axis's picture is drawn from: its range and scale, ticks, label, style (fonts and
+    pens compare by value), text room, grid, and its place and the linked view's place (the grid
+    lines cross the view)."""
+    view = axis.linkedView()
+    return (tuple(axis.range), axis.logMode, axis.scale, axis.autoSIPrefixScale, axis.labelUnitPrefix,
+            repr(axis._tickLevels), axis._tickDensity, repr(axis._tickSpacing), axis.grid, axis.labelString(),
+            axis.textWidth, axis.textHeight, axis.isVisible(), tuple(axis.style.items()),
+            axis._pen, axis._textPen, axis.geometry().getRect(), axis.boundingRect().getRect(),
+            None if view is None else view.mapRectToItem(axis, view.boundingRect()).getRect())
 
 
 def _one_style(data: np.ndarray) -> bool:
@@ -95,6 +107,8 @@ class _KeptPlot:
         self.plot, self.legend = plot, legend
         self._entries: list[tuple[object, str]] = []
         self._shown: set[int] = set()
+        self._labelled: tuple[str, str, bool, bool] | None = None
+        self._pictures: dict[str, tuple[object, tuple]] = {}  # type: ignore[type-arg]
 
     def add(self, item, ignore_bounds: bool = False):  # type: ignore[no-untyped-def]
         if isinstance(item, pg.PlotDataItem) and item.opts["pen"] is None:
@@ -113,8 +127,23 @@ class _KeptPlot:
     def begin(self) -> None:
         self._shown = set()
         self._legend_wanted: list[tuple[object, str]] = []
+        # each axis's picture as last painted, with what it was drawn from (see keep_unchanged_axes)
+        self._pictures = {side: (axis.picture, _axis_state(axis)) for side in ("bottom", "left")
+                          if (axis := self.plot.getAxis(side)).picture is not None}
         for side in ("bottom", "left"):  # as a cleared plot starts
             self.ticks(side, None)
+
+    def keep_unchanged_axes(self) -> None:
+        """Give back to each axis the picture it was last painted with when it is drawn from the same
+        range, ticks, labels, style and geometry as then (once the view's ranges are worked out): the
+        drawing restyles, labels and ticks every axis, which has pyqtgraph draw its picture anew, but an
+        axis whose range did not change (the concentrations' axis, after a response is edited) would be
+        drawn the same."""
+        for side, (picture, state) in self._pictures.items():
+            axis = self.plot.getAxis(side)
+            if axis.picture is None and _axis_state(axis) == state:
+                axis.picture = picture
+        self._pictures = {}
 
     def show(self, item, *data, name: str | None = None, legend_item=None, named: bool = False, **options):  # type: ignore[no-untyped-def]
         """Give ``item`` its data (positional for a PlotDataItem, keywords for an ErrorBarItem) and show it;
@@ -148,12 +177,18 @@ class _KeptPlot:
     def labels(self, x_label: str, y_label: str, log_x: bool = False, log_y: bool = False) -> None:
         """The axis labels, set on every drawing and in the order the drawing functions set them
         (setting a label also sizes its axis to the tick texts last drawn, so the plots keep the
-        widths they had)."""
-        figures.styled_plot(self.plot, x_label, y_label)
-        if log_x:
-            self.plot.setLabel("bottom", x_label + " (log scale)")
-        if log_y:
-            self.plot.setLabel("left", y_label + " (log scale)")
+        widths they had). Labels as set last time are not set again: each axis is only sized to the tick
+        texts it last drew, which is all setting them again would change."""
+        if self._labelled == (x_label, y_label, log_x, log_y):
+            for side in ("bottom", "left"):
+                self.plot.getAxis(side)._adjustSize()
+        else:
+            self._labelled = (x_label, y_label, log_x, log_y)
+            figures.styled_plot(self.plot, x_label, y_label)
+            if log_x:
+                self.plot.setLabel("bottom", x_label + " (log scale)")
+            if log_y:
+                self.plot.setLabel("left", y_label + " (log scale)")
         for side in ("bottom", "left"):
             axis = self.plot.getAxis(side)
             if axis.autoSIPrefixScale != 1.0 or axis.labelUnitPrefix:
@@ -337,6 +372,59 @@ class _LowerItems(_KeptPlot):
         return self.finish(self.items)
 
 
+class _Words(QWidget):
+    """A word-wrapped, selectable text, laid out exactly as the label it holds would be.
+
+    A label laid out with the view tells the layouts above it that its size may have changed with
+    every new text, and the window was laid out again and partly repainted after each redraw. The
+    box answers the label's size hints and height for a width, and tells its layout of a change only
+    when a new text changes where the words go (another number of lines, a longer word: see
+    :meth:`_hints`); otherwise the text is only repainted."""
+
+    def __init__(self, name: str) -> None:
+        super().__init__()
+        self.label = QLabel("", self)
+        self.label.setWordWrap(True)
+        self.label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self.label.setAccessibleName(name)
+        self.setSizePolicy(self.label.sizePolicy())
+
+    def text(self) -> str:
+        return self.label.text()
+
+    def setText(self, text: str) -> None:  # noqa: N802 - as QLabel
+        if text == self.label.text():
+            return
+        before = self._hints()
+        self.label.setText(text)
+        if self._hints() != before:
+            self.updateGeometry()
+
+    def _hints(self) -> tuple[QSize, int]:
+        """What the words' place in the view depends on: the smallest size the label takes, and its
+        height at the width it has (the view's layout gives it that height; its preferred size, which
+        moves with nearly every text, only adds to the view's preferred size and is told with the next
+        change that moves anything)."""
+        label = self.label
+        return label.minimumSizeHint(), label.heightForWidth(self.width())
+
+    def resizeEvent(self, event) -> None:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        super().resizeEvent(event)
+        self.label.setGeometry(self.rect())
+
+    def sizeHint(self) -> QSize:  # noqa: N802 - Qt override
+        return self.label.sizeHint()
+
+    def minimumSizeHint(self) -> QSize:  # noqa: N802 - Qt override
+        return self.label.minimumSizeHint()
+
+    def hasHeightForWidth(self) -> bool:  # noqa: N802 - Qt override
+        return self.label.hasHeightForWidth()
+
+    def heightForWidth(self, width: int) -> int:  # noqa: N802 - Qt override
+        return self.label.heightForWidth(width)
+
+
 class CurveView(QWidget):
     """The curve above, relative errors or residuals below."""
 
@@ -366,10 +454,7 @@ class CurveView(QWidget):
         self.lower_kind.addItems(["Relative error (%) with acceptance limits", "Residuals (response units)"])
         self.lower_kind.setAccessibleName("Lower plot")
         self.empty_note = QLabel("")
-        self.curve_words = QLabel("")
-        self.curve_words.setWordWrap(True)
-        self.curve_words.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-        self.curve_words.setAccessibleName("The fitted curve: equation and parameters")
+        self.curve_words = _Words("The fitted curve: equation and parameters")
         controls = QHBoxLayout()
         for w in (self.confidence, self.prediction, self.log_axis, QLabel("Below:"), self.lower_kind):
             controls.addWidget(w)
@@ -440,6 +525,8 @@ class CurveView(QWidget):
         self.curve_plot.getViewBox().autoRange(padding=0.04)
         self.lower_plot.getViewBox().autoRange(padding=0.08)
         self._settle_before_paint()
+        for kept in (self.curve_items, self.lower_items):
+            kept.keep_unchanged_axes()
         self.options_changed.emit()
 
     def _settle_before_paint(self) -> None:
@@ -485,11 +572,19 @@ class CurveView(QWidget):
             if used is not None and (s.concentration > 0 or not log_x) and (used > 0 or not log_y):
                 out.append((tx(s.concentration), ty(used), f"standard {s.id} (excluded: {s.exclusion_reason}): "
                                                            f"nominal {s.concentration:g} {unit}, response {used:.6g}"))
-        for s in a.samples:
-            if s.estimate is None or (log_x and s.estimate <= 0) or (log_y and (s.mean_response or 0) <= 0):
+        columns = a.sample_columns  # read as columns: no result object is made per sample
+        if columns is None:
+            return out
+        from ..core.run_analysis import flag_words_of
+
+        estimated = np.flatnonzero(columns.quantified & ~np.isnan(columns.estimate)).tolist()
+        estimate, mean = columns.estimate.tolist(), columns.mean_response.tolist()
+        lower, upper = columns.lower.tolist(), columns.upper.tolist()
+        for i in estimated:
+            if (log_x and estimate[i] <= 0) or (log_y and mean[i] <= 0):
                 continue
-            out.append((tx(s.estimate), ty(s.mean_response), f"{s.kind.words} {s.sample_id}: {s.estimate:.5g} {unit} "
-                        f"({s.lower:.5g} to {s.upper:.5g}); {s.flag_words}"))
+            out.append((tx(estimate[i]), ty(mean[i]), f"{columns.kinds[i].words} {columns.ids[i]}: {estimate[i]:.5g} {unit} "
+                        f"({lower[i]:.5g} to {upper[i]:.5g}); {flag_words_of(columns.words[i], columns.notes[i])}"))
         return out
 
     def _on_mouse(self, event) -> None:  # type: ignore[no-untyped-def]

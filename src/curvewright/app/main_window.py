@@ -13,6 +13,7 @@ from dataclasses import replace
 from pathlib import Path
 from typing import Callable
 
+import numpy as np
 import shiboken6
 from PySide6.QtCore import QSettings, Qt, QTimer
 from PySide6.QtGui import QAction, QKeySequence
@@ -428,10 +429,14 @@ class MainWindow(QMainWindow):
                 lines.append(f"The concentration unit of {a.name} is not set (Analysis → Analyte name and units…).")
         if result is not None and result.run is run:
             for a in result.analytes:
-                missing = [s.sample_id for s in a.samples if s.reported is None]
-                if missing and a.calibration is not None:
+                columns = a.sample_columns
+                if columns is None or a.calibration is None:
+                    continue
+                # a sample without a reported number: not read through the curve, or no estimate
+                missing = [columns.ids[i] for i in np.flatnonzero(~columns.quantified | np.isnan(columns.estimate)).tolist()]
+                if missing:
                     shown = ", ".join(missing[:3]) + (f" and {len(missing) - 3} more" if len(missing) > 3 else "")
-                    lines.append(f"{len(missing)} of {len(a.samples)} samples of {a.analyte.name} have no result "
+                    lines.append(f"{len(missing)} of {len(columns)} samples of {a.analyte.name} have no result "
                                  f"({shown}); see the Results tab.")
         return lines
 

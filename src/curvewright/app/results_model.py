@@ -18,7 +18,7 @@ from .table_view import FittedTableView, fit_columns
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
-    from ..core.run_analysis import AnalyteResult, RunResult, SampleResult
+    from ..core.run_analysis import AnalyteResult, RunResult, SampleColumns, SampleResult
 
 COLUMNS = ("Sample", "Reported", "Interval", "Flags", "Kind", "QC / check", "n", "Mean response",
            "Estimate", "Dilution", "Value × dilution")
@@ -34,6 +34,11 @@ _DISPLAY, _TOOLTIP, _BACKGROUND, _ALIGNMENT = (int(r) for r in (
 _ANSWERED = frozenset((_DISPLAY, _TOOLTIP, _BACKGROUND, _ALIGNMENT))
 """The roles this table answers. A view asks for about eight roles of every cell it paints or
 measures (font, colours, check state, decoration, size...); the others are turned away first."""
+_BLOCK = 64
+COMPARED_ROWS_UP_TO = 512
+"""After an edit, the cells of up to this many rows shown since the last result are compared, and
+only those that changed are told to the view (then repainted); beyond it, every cell is."""
+"""Rows whose result objects are made together (a short table's, or a screenful and more of a long one)."""
 _ALIGNMENTS = tuple(_RIGHT if c in NUMERIC else None for c in range(len(COLUMNS)))
 
 
@@ -42,6 +47,10 @@ class ResultsModel(QAbstractTableModel):
         super().__init__()
         self.result: RunResult | None = None
         self.analyte: AnalyteResult | None = None
+        self.columns: SampleColumns | None = None
+        self._headers: tuple[str, ...] | None = None
+        self._blocks: dict[int, tuple[SampleResult, ...]] = {}
+        """The rows' result objects made so far, by block of rows (see :meth:`sample`)."""
         self._texts: dict[int, tuple[str, ...]] = {}
         self._attention: dict[int, bool] = {}
         """Each row's cell texts and whether it needs attention, worked out once per result (a table
@@ -50,33 +59,94 @@ class ResultsModel(QAbstractTableModel):
     def show(self, result: RunResult | None, analyte: str) -> bool:
         """Show ``analyte``'s samples in ``result``. The same samples as shown (a new analysis of the
         same run, after an edit) are updated in place, keeping the selection and scroll position;
-        the table is reset only when the rows are other samples. True when updated in place."""
+        the table is reset only when the rows are other samples. True when updated in place.
+
+        The table reads the analysis's sample columns (:attr:`AnalyteResult.sample_columns`): a row's
+        texts are worked out when it is first shown, with no result object for the rows never shown."""
         try:
             shown = result.analyte(analyte) if result is not None else None
         except KeyError:
             shown = None
-        old_rows = self.rows
-        new_rows = shown.samples if shown is not None else ()
-        in_place = bool(old_rows) and len(old_rows) == len(new_rows) and all(
-            a.sample_id == b.sample_id for a, b in zip(old_rows, new_rows))
+        old_ids = self.columns.ids if self.columns is not None else []
+        new_columns = shown.sample_columns if shown is not None else None
+        new_ids = new_columns.ids if new_columns is not None else []
+        in_place = bool(old_ids) and old_ids == new_ids
         if not in_place:
             self.beginResetModel()
-        self._texts, self._attention = {}, {}
-        self.result, self.analyte = result, shown
+        old_texts, old_attention = self._texts, self._attention
+        self._texts, self._attention, self._blocks = {}, {}, {}
+        self.result, self.analyte, self.columns = result, shown, new_columns
         if not in_place:
             self.endResetModel()
+            self._headers_changed()
             return False
         last = len(COLUMNS) - 1
-        self.dataChanged.emit(self.index(0, 0), self.index(len(new_rows) - 1, last))
-        self.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, last)
+        if len(old_texts) + len(old_attention) > COMPARED_ROWS_UP_TO:
+            self.dataChanged.emit(self.index(0, 0), self.index(len(new_ids) - 1, last))
+        else:
+            self._tell_changed_cells(old_texts, old_attention)
+        if self._headers_changed():  # a header told of a change lays the table out again and repaints it all
+            self.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, last)
         return True
+
+    def _tell_changed_cells(self, old_texts: dict[int, tuple[str, ...]], old_attention: dict[int, bool]) -> None:
+        """Tell the view which cells changed: of the rows shown since the last result (every row in
+        view has been: it was painted, or its texts were worked out to fit the columns), the cells
+        whose text changed, and every cell of a row whose shading changed. A row not shown since is
+        worked out afresh when it is shown. One signal per column and run of rows."""
+        every = range(len(COLUMNS))
+        rows_of: dict[int, list[int]] = {}
+        for row in sorted(old_texts.keys() | old_attention.keys()):
+            before, shading = old_texts.get(row), old_attention.get(row)
+            after = self.row_texts(row)
+            if before is None or (shading is not None and self._attention_of(row) != shading):
+                changed = every
+            else:
+                changed = [c for c in every if after[c] != before[c]]
+            for c in changed:
+                rows_of.setdefault(c, []).append(row)
+        for c, rows in rows_of.items():
+            first = previous = rows[0]
+            for row in rows[1:] + [None]:
+                if row is not None and row == previous + 1:
+                    previous = row
+                    continue
+                self.dataChanged.emit(self.index(first, c), self.index(previous, c))
+                if row is not None:
+                    first = previous = row
+
+    def _attention_of(self, row: int) -> bool:
+        attention = self._attention.get(row)
+        if attention is None:
+            attention = self._attention[row] = self._needs_attention(self.sample(row))
+        return attention
+
+    def _headers_changed(self) -> bool:
+        """True when the column headers' texts differ from those last shown (kept here)."""
+        headers = tuple(self.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))
+        changed, self._headers = headers != self._headers, headers
+        return changed
 
     @property
     def rows(self) -> tuple[SampleResult, ...]:
+        """Every row's result object (all made when first read; the table itself reads :meth:`sample`)."""
         return self.analyte.samples if self.analyte is not None else ()
 
+    def sample(self, row: int) -> SampleResult:
+        """The result shown in ``row``, made from the sample columns (or the result objects, where the
+        analysis has made them already). Rows are made a block at a time, as a table shows them: the
+        rows in view, or all the rows of a short table it fits its columns to."""
+        made = vars(self.analyte).get("samples")
+        if made is not None:
+            return made[row]
+        block, at = divmod(row, _BLOCK)
+        rows = self._blocks.get(block)
+        if rows is None:
+            rows = self._blocks[block] = self.columns.results(block * _BLOCK, (block + 1) * _BLOCK)  # type: ignore[union-attr]
+        return rows[at]
+
     def rowCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
-        return 0 if parent.isValid() else len(self.rows)
+        return 0 if parent.isValid() or self.columns is None else len(self.columns)
 
     def columnCount(self, parent: QModelIndex = QModelIndex()) -> int:  # noqa: N802
         return 0 if parent.isValid() else len(COLUMNS)
@@ -110,18 +180,15 @@ class ResultsModel(QAbstractTableModel):
             return _ALIGNMENTS[index.column()]
         row = index.row()
         if role == _BACKGROUND:
-            attention = self._attention.get(row)
-            if attention is None:
-                attention = self._attention[row] = self._needs_attention(self.rows[row])
-            return _ATTENTION_BRUSH if attention else None
-        return self.description(self.rows[row])  # the tooltip, asked for one cell at a time
+            return _ATTENTION_BRUSH if self._attention_of(row) else None
+        return self.description(self.sample(row))  # the tooltip, asked for one cell at a time
 
     def row_texts(self, row: int) -> tuple[str, ...]:
         """The cell texts of one row, worked out when the row is first shown and kept for the result
         (a table asks for the same cells many times: sizing its columns, painting, scrolling)."""
         texts = self._texts.get(row)
         if texts is None:
-            s = self.rows[row]
+            s = self.sample(row)
             texts = self._texts[row] = tuple(self.text(s, c) for c in range(len(COLUMNS)))
         return texts
 
@@ -201,7 +268,7 @@ class ResultsModel(QAbstractTableModel):
 
     def as_text(self) -> str:
         lines = ["\t".join(self.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))]
-        lines += ["\t".join(self.text(s, c) for c in range(len(COLUMNS))) for s in self.rows]
+        lines += ["\t".join(self.row_texts(r)) for r in range(self.rowCount())]
         return "\n".join(lines) + "\n"
 
 
@@ -232,7 +299,7 @@ class ResultsView(QWidget):
         fit_columns(self.table)
         if in_place and selected >= 0:
             # the same samples, updated: the selection and current row stay; the words follow the values
-            self.details.setText(self.results_model.description(self.results_model.rows[selected]))
+            self.details.setText(self.results_model.description(self.results_model.sample(selected)))
         elif 0 <= selected < self.results_model.rowCount():
             self.table.selectRow(selected)
         else:
@@ -240,13 +307,13 @@ class ResultsView(QWidget):
 
     def _on_row(self, current: QModelIndex, _previous: QModelIndex) -> None:
         if current.isValid() and current.row() < self.results_model.rowCount():
-            self.details.setText(self.results_model.description(self.results_model.rows[current.row()]))
+            self.details.setText(self.results_model.description(self.results_model.sample(current.row())))
 
     def copy_selection(self) -> str:
         rows = sorted({i.row() for i in self.table.selectionModel().selectedIndexes()})
         model = self.results_model
         lines = ["\t".join(model.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))]
-        lines += ["\t".join(model.text(model.rows[r], c) for c in range(len(COLUMNS))) for r in rows or range(model.rowCount())]
+        lines += ["\t".join(model.row_texts(r)) for r in rows or range(model.rowCount())]
         text = "\n".join(lines) + "\n"
         QGuiApplication.clipboard().setText(text)
         return text

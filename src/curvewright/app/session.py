@@ -111,14 +111,11 @@ class RunEvidence(Mapping):
 def analyse_with_evidence(run: Run) -> tuple[RunResult, RunEvidence]:
     """The run's results and, per analyte, its model comparison (the run's one evidence), which is
     worked out when first read (:class:`RunEvidence`). The engine, and scipy with it, is loaded here
-    on the first call: on the analysis thread, while the window is being shown. Each analyte's sample
-    results, kept by the analysis as columns, are made into the results table's rows here too, so that
-    the GUI thread does not make them."""
+    on the first call: on the analysis thread, while the window is being shown. The sample results
+    stay the analysis's columns: the results table reads its rows from them as they are shown."""
     from ..core.run_analysis import analyse_run
 
     result = analyse_run(run)
-    for analyte in result.analytes:
-        analyte.samples  # the results table's rows, made from the sample columns here rather than when first shown
     return result, RunEvidence(result)
 
 

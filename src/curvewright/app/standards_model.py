@@ -375,6 +375,23 @@ class StandardsModel(QAbstractTableModel):
             self.result = None
 
     def _on_result(self, result) -> None:  # type: ignore[no-untyped-def]
+        """Show a new result: the view is told only of the result cells whose text changed (their
+        shading follows the text), one signal per column and run of rows."""
+        standards = self.standards
+        before = [tuple(self._text(s, c) for c in RESULT_COLUMNS) for s in standards] if self.result is not None else None
         self._pick(result)
-        if self.rowCount():
-            self.dataChanged.emit(self.index(0, min(RESULT_COLUMNS)), self.index(self.rowCount() - 1, max(RESULT_COLUMNS)))
+        if not standards:
+            return
+        if before is None:
+            self.dataChanged.emit(self.index(0, min(RESULT_COLUMNS)), self.index(len(standards) - 1, max(RESULT_COLUMNS)))
+            return
+        after = [tuple(self._text(s, c) for c in RESULT_COLUMNS) for s in standards]
+        for j, column in enumerate(RESULT_COLUMNS):
+            rows = [r for r in range(len(standards)) if before[r][j] != after[r][j]]
+            start = 0
+            while start < len(rows):
+                stop = start
+                while stop + 1 < len(rows) and rows[stop + 1] == rows[stop] + 1:
+                    stop += 1
+                self.dataChanged.emit(self.index(rows[start], column), self.index(rows[stop], column))
+                start = stop + 1

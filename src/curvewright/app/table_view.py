@@ -57,9 +57,10 @@ def fit_columns(view: QTableView) -> None:
     header.setResizeContentsPrecision(0 if long_table else -1)
     if not hasattr(model, "fit_key"):
         view.resizeColumnsToContents()
+        view.setProperty("fitted_last_width", None)
     else:
-        _fit_changed_columns(view, model, long_table)
-    view.setProperty("fitted_last_width", None)
+        # the last column is set once, to the room left or its fitted width (never to one, then the other)
+        view.setProperty("fitted_last_width", _fit_changed_columns(view, model, long_table))
     fill_last_column(view)
 
 
@@ -76,9 +77,11 @@ def _rows_measured(view: QTableView, long_table: bool) -> range:
     return range(top, bottom + 1)
 
 
-def _fit_changed_columns(view: QTableView, model, long_table: bool) -> None:  # type: ignore[no-untyped-def]
+def _fit_changed_columns(view: QTableView, model, long_table: bool) -> int | None:  # type: ignore[no-untyped-def]
     """Each shown column fitted to its contents (as ``resizeColumnsToContents`` does), measuring
-    again only the columns whose header, cells or font changed since they were last measured."""
+    again only the columns whose header, cells or font changed since they were last measured. The
+    last shown column's fitted width is returned rather than set (see :func:`fill_last_column`); a
+    column is set only to a width other than its own."""
     from PySide6.QtCore import Qt
 
     rows = _rows_measured(view, long_table)
@@ -87,23 +90,22 @@ def _fit_changed_columns(view: QTableView, model, long_table: bool) -> None:  # 
     widest: dict[int, float] = view.__dict__.setdefault("_widest_text", {})
     """Per column, the widest text it was fitted to (see :func:`widen_to_rows_in_view`)."""
     metrics = QFontMetricsF(view.font())
-    for c in range(model.columnCount()):
-        if view.isColumnHidden(c):
-            continue
+    shown = [c for c in range(model.columnCount()) if not view.isColumnHidden(c)]
+    for c in shown:
         texts = model.fit_key(c, rows)
         key = (base, model.headerData(c, Qt.Orientation.Horizontal), texts)
         known = measured.get(c)
         if known is None or known[0] != key:
-            widest_text = _resize_to_texts(view, model, c, rows, texts, metrics)
-            known = measured[c] = (key, view.columnWidth(c), widest_text)
-        else:
+            known = measured[c] = (key, *_resize_to_texts(view, model, c, rows, texts, metrics))
+        if c != shown[-1] and view.columnWidth(c) != known[1]:
             view.setColumnWidth(c, known[1])
         widest[c] = known[2]
+    return measured[shown[-1]][1] if shown else None
 
 
-def _resize_to_texts(view: QTableView, model, c: int, rows: range, texts: tuple, metrics) -> float:  # type: ignore[no-untyped-def, type-arg]
-    """What ``view.resizeColumnToContents(c)`` does, asking the delegate only for the cells that can
-    be the widest; returns the widest text's advance (see :func:`_widest_advance`).
+def _resize_to_texts(view: QTableView, model, c: int, rows: range, texts: tuple, metrics) -> tuple[int, float]:  # type: ignore[no-untyped-def, type-arg]
+    """The width ``view.resizeColumnToContents(c)`` gives the column, asking the delegate only for the
+    cells that can be the widest, and the widest text's advance (see :func:`_widest_advance`).
 
     A cell's width is its text's laid-out width plus the same margins in every row, and texts of
     the same advance in the same font lay out alike. So the delegate measures one cell of each
@@ -127,8 +129,8 @@ def _resize_to_texts(view: QTableView, model, c: int, rows: range, texts: tuple,
     if view.showGrid():
         content += 1
     header = view.horizontalHeader()
-    view.setColumnWidth(c, max(content, 0 if header.isHidden() else header.sectionSizeHint(c)))
-    return math.inf if len(plain) < len(advances) else max(plain, default=0.0)
+    width = max(content, 0 if header.isHidden() else header.sectionSizeHint(c))
+    return width, (math.inf if len(plain) < len(advances) else max(plain, default=0.0))
 
 
 def _advance(metrics, text: object) -> float | None:  # type: ignore[no-untyped-def]
@@ -168,7 +170,9 @@ def fill_last_column(view: QTableView) -> None:
         natural = view.columnWidth(last)
         view.setProperty("fitted_last_width", natural)
     others = sum(view.columnWidth(c) for c in shown[:-1])
-    view.setColumnWidth(last, max(int(natural), view.viewport().width() - others))
+    width = max(int(natural), view.viewport().width() - others)
+    if view.columnWidth(last) != width:
+        view.setColumnWidth(last, width)
 
 
 def widen_to_rows_in_view(view: QTableView) -> None:
@@ -277,6 +281,18 @@ class RowCache:
 
     def __init__(self, model, rows: tuple, context: object = None) -> None:  # type: ignore[no-untyped-def]
         self.model, self.rows, self.context = model, rows, context
+        self.headers: tuple | None = None  # type: ignore[type-arg]
+        """The column headers' texts last told to the view (None: not yet)."""
+
+    def _headers_changed(self) -> bool:
+        """True when the column headers' texts differ from those last told to the view (a header told
+        of a change lays its table out again and repaints all of it)."""
+        from PySide6.QtCore import Qt
+
+        model = self.model
+        headers = tuple(model.headerData(c, Qt.Orientation.Horizontal) for c in range(model.columnCount()))
+        changed, self.headers = headers != self.headers, headers
+        return changed
 
     def update(self, rows: tuple, key, context: object = None) -> None:  # type: ignore[no-untyped-def]
         """Take the rows of a new run. Rows are immutable: a row that is the same object as before
@@ -309,9 +325,11 @@ class RowCache:
             i for i in range(min(len(old), len(rows))) if old[i] is not rows[i]]
         if len(changed):
             model.dataChanged.emit(model.index(changed[0], 0), model.index(changed[-1], last_column))
-        model.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, last_column)
+        if self._headers_changed():
+            model.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, last_column)
 
     def reset(self, rows: tuple, context: object = None) -> None:
         self.model.beginResetModel()
         self.rows, self.context = rows, context
         self.model.endResetModel()
+        self._headers_changed()  # a reset shows the headers anew

@@ -211,6 +211,32 @@ _NO_SOLUTION = int(QuantFlag.NO_SOLUTION)
 _QUALIFIER_BITS = int(QuantFlag.AMBIGUOUS_ROOT | QuantFlag.UNBOUNDED_INTERVAL)
 
 
+@dataclass(frozen=True, eq=False)
+class ReportedColumns:
+    """What :func:`report_value` gives for many results, as columns (one entry per result): the
+    statuses, texts, words and short words, the flag bits that agree with them (-1: None) and the
+    suggested dilutions (NaN: None)."""
+
+    statuses: list[ReportStatus]
+    texts: list[str]
+    words: list[str]
+    shorts: list[str]
+    bits: np.ndarray
+    suggested_dilution: np.ndarray
+
+    def values(self) -> list[ReportedValue]:
+        """One :class:`ReportedValue` per result."""
+        flag_of: dict[int, QuantFlag | None] = {-1: None}
+        out = []
+        for status, text, words, short, b, suggested in zip(self.statuses, self.texts, self.words, self.shorts,
+                                                            self.bits.tolist(), self.suggested_dilution.tolist()):
+            flag = flag_of.get(b)
+            if flag is None and b != -1:
+                flag = flag_of[b] = QuantFlag(b)
+            out.append(ReportedValue(status, text, words, short, flag, None if suggested != suggested else suggested))
+        return out
+
+
 def report_values(
     estimates: object,
     dilutions: object,
@@ -222,30 +248,59 @@ def report_values(
     below_limit: str = "censor",
     not_quantified: Sequence[str] | None = None,
 ) -> list[ReportedValue]:
-    """:func:`report_value` for many results at once, equal to it result by result.
+    """:func:`report_value` for many results at once, equal to it result by result (see
+    :func:`report_columns`)."""
+    return report_columns(estimates, dilutions, flags, rng, rule, unit=unit, below_limit=below_limit,
+                          not_quantified=not_quantified).values()
+
+
+def report_columns(
+    estimates: object,
+    dilutions: object,
+    flags: Sequence[QuantFlag | None],
+    rng: ReportingRange,
+    rule: RoundingRule,
+    *,
+    unit: str = "",
+    below_limit: str = "censor",
+    not_quantified: Sequence[str] | None = None,
+) -> ReportedColumns:
+    """:func:`report_value` for many results at once, as columns, equal to it result by result.
 
     ``estimates`` are the concentrations in the solution measured (NaN where there is none),
     ``dilutions`` the dilution factors, ``flags`` the engine's flags of each result and
     ``not_quantified`` the reason of each result without a number (None: none given). The status
-    and flag bits of the numeric results are worked out over arrays; each text that depends only on
-    the dilution factor or on the qualifiers is made once, and the rounded numbers in one pass
-    (:meth:`.RoundingRule.texts`).
+    and flag bits of the numeric results are worked out over arrays. A result's words, short words
+    and (but for the rounded number) text depend only on its status, qualifiers, dilution factor and
+    whether it lies below the LOD, except above the range (the suggested dilution): each such group's
+    are made once, by :func:`_numeric_value` itself, and the rounded numbers in one pass
+    (:meth:`.RoundingRule.texts`); a result above the range is reported one at a time.
     """
     est = np.asarray(estimates, dtype=float).reshape(-1)
     dil = np.asarray(dilutions, dtype=float).reshape(-1)
     n = est.size
     if dil.size != n or len(flags) != n or (not_quantified is not None and len(not_quantified) != n):
         raise ValueError("report_values: the estimates, dilutions, flags and reasons differ in length")
-    out: list[ReportedValue | None] = [None] * n
     bits_in = np.array([-1 if f is None else int(f) for f in flags], dtype=np.int64)
+    statuses = np.empty(n, dtype=object)
+    texts = np.empty(n, dtype=object)
+    words = np.empty(n, dtype=object)
+    shorts = np.empty(n, dtype=object)
+    bits_out = bits_in.copy()
+    suggested = np.full(n, np.nan)
     numeric = ~np.isnan(est) & ((bits_in < 0) | ((bits_in & _NO_SOLUTION) == 0))
+
+    def put(i: int, value: ReportedValue) -> None:
+        statuses[i], texts[i], words[i], shorts[i] = value.status, value.text, value.words, value.short
+        bits_out[i] = -1 if value.flags is None else int(value.flags)
+        if value.suggested_dilution is not None:
+            suggested[i] = value.suggested_dilution
+
     for i in np.flatnonzero(~numeric).tolist():  # no number: the reason is said for each
         estimate = None if math.isnan(est[i]) else float(est[i])
-        out[i] = report_value(estimate, float(dil[i]), flags[i], rng, rule, unit=unit, below_limit=below_limit,
-                              not_quantified=not_quantified[i] if not_quantified is not None else "")
+        put(i, report_value(estimate, float(dil[i]), flags[i], rng, rule, unit=unit, below_limit=below_limit,
+                            not_quantified=not_quantified[i] if not_quantified is not None else ""))
     where = np.flatnonzero(numeric)
-    if where.size == 0:
-        return out  # type: ignore[return-value]
     e, d = est[where], dil[where]
     extra = np.where(bits_in[where] < 0, 0, bits_in[where] & _QUALIFIER_BITS)
     limit = rng.reporting_limit
@@ -256,17 +311,21 @@ def report_values(
     bits |= np.where(e < limit, int(QuantFlag.BELOW_LOQ), 0)
     below_lod = e < rng.lod if rng.lod is not None else np.zeros(e.size, dtype=bool)
     bits |= np.where(below_lod, int(QuantFlag.BELOW_LOD), 0) | extra
+    bits_out[where] = bits
     reported = e * d
     estimated = below_limit == "estimate"
     # which results show a rounded number: inside the range, and estimates between the LOD and the limit
     numbered = (e <= rng.uloq) & ((e >= limit) | (estimated & ~below_lod))
-    numbers = iter(rule.texts(reported[numbered].tolist()))
-    flag_of: dict[int, QuantFlag] = {}
+    numbers = np.empty(where.size, dtype=object)
+    numbers[numbered] = rule.texts(reported[numbered].tolist())
+    # the order _numeric_value judges in: above the ULOQ, below the reporting limit, else in range
+    over = e > rng.uloq
+    case = np.where(over, 0, np.where(e < limit, np.where(below_lod, 1, 2), 3))
     qualifiers_of: dict[int, tuple[list[str], list[str]]] = {}
     by_dilution: dict[float, tuple[str, str, str, str]] = {}
-    number = numbers.__next__
-    for i, value, factor, b, x, low_lod in zip(where.tolist(), e.tolist(), d.tolist(), bits.tolist(), extra.tolist(),
-                                               below_lod.tolist()):
+    flag_of: dict[int, QuantFlag] = {}
+
+    def parts(b: int, x: int, factor: float) -> tuple[QuantFlag, tuple[list[str], list[str]], tuple[str, str, str, str]]:
         flag = flag_of.get(b)
         if flag is None:
             flag = flag_of[b] = QuantFlag(b)
@@ -274,8 +333,41 @@ def report_values(
         if quals is None:
             q = QuantFlag(x)
             quals = qualifiers_of[x] = ([q.words] if q else [], [q.short_words] if q else [])
-        texts = by_dilution.get(factor)
-        if texts is None:
-            texts = by_dilution[factor] = _dilution_texts(factor, rng, rule, unit)
-        out[i] = _numeric_value(value, factor, flag, quals, texts, number, rng, unit, estimated, low_lod)
-    return out  # type: ignore[return-value]
+        texts_here = by_dilution.get(factor)
+        if texts_here is None:
+            texts_here = by_dilution[factor] = _dilution_texts(factor, rng, rule, unit)
+        return flag, quals, texts_here
+
+    for k in np.flatnonzero(over).tolist():  # above the range: the suggested dilution is each result's own
+        flag, quals, texts_here = parts(int(bits[k]), int(extra[k]), float(d[k]))
+        put(int(where[k]), _numeric_value(float(e[k]), float(d[k]), flag, quals, texts_here, lambda: "", rng, unit,
+                                          estimated, bool(below_lod[k])))
+    # every other result: one group per status case, qualifiers and dilution factor (bits follow from them)
+    rest = np.flatnonzero(~over)
+    if rest.size:
+        keys = np.stack([case[rest], extra[rest], bits[rest]], axis=1)
+        factors = d[rest]
+        factor_codes, factor_of = np.unique(factors, return_inverse=True)
+        keys = np.concatenate([keys, factor_of.reshape(-1, 1)], axis=1)
+        groups, group_of = np.unique(keys, axis=0, return_inverse=True)
+        group_of = group_of.reshape(-1)
+        order = np.argsort(group_of, kind="stable")
+        bounds = np.searchsorted(group_of[order], np.arange(groups.shape[0] + 1))
+        for g, (c, x, b, f) in enumerate(groups.tolist()):
+            members = rest[order[bounds[g]:bounds[g + 1]]]
+            first = int(members[0])
+            factor = float(factor_codes[f])
+            flag, quals, texts_here = parts(b, x, factor)
+            marker = "\x00"  # stands for the rounded number in the group's text
+            value = _numeric_value(float(e[first]), factor, flag, quals, texts_here, lambda: marker, rng, unit,
+                                   estimated, c == 1)
+            rows = where[members]
+            statuses[rows] = value.status
+            words[rows] = value.words
+            shorts[rows] = value.short
+            if marker in value.text:
+                head, tail = value.text.split(marker)
+                texts[rows] = [head + t + tail for t in numbers[members].tolist()] if head or tail else numbers[members]
+            else:
+                texts[rows] = value.text
+    return ReportedColumns(statuses.tolist(), texts.tolist(), words.tolist(), shorts.tolist(), bits_out, suggested)

@@ -31,7 +31,7 @@ from .checks import CheckInput, CheckVerdict, bracketing, judge_checks
 from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag
 from .limits import DetectionLimits
-from .reporting import ReportingRange, ReportStatus, report_value, report_values, reporting_range
+from .reporting import ReportingRange, ReportStatus, report_columns, report_value, reporting_range
 from .run import Analyte, Reading, Run, SampleKind, Standard
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -160,26 +160,33 @@ class SampleColumns:
 
     __hash__ = None  # type: ignore[assignment]
 
-    def chunks(self, size: int = 4096) -> Iterator[tuple[int, dict[str, list[Any]]]]:
-        """The columns ``size`` samples at a time, as plain Python values (NaN kept; see the class):
-        (index of the first sample, the columns by name)."""
+    def chunks(self, size: int = 4096, start: int = 0, stop: int | None = None,
+               ) -> Iterator[tuple[int, dict[str, list[Any]]]]:
+        """The columns ``size`` samples at a time (of the samples from ``start`` to ``stop``: all by
+        default), as plain Python values (NaN kept; see the class): (index of the first sample, the
+        columns by name)."""
         names = ("mean_response", "estimate", "standard_error", "lower", "upper", "dilution", "nominal",
                  "recovery_percent", "within_limits", "flags", "suggested_dilution", "quantified", "replicate_counts")
-        for start in range(0, len(self.ids), size):
-            stop = min(start + size, len(self.ids))
+        end = len(self.ids) if stop is None else min(stop, len(self.ids))
+        for start in range(start, end, size):
+            stop = min(start + size, end)
             out: dict[str, list[Any]] = {name: getattr(self, name)[start:stop].tolist() for name in names}
             for name in ("ids", "kinds", "run_orders", "notes", "statuses", "texts", "words", "shorts"):
                 out[name] = getattr(self, name)[start:stop]
             yield start, out
 
-    def results(self) -> tuple[SampleResult, ...]:
-        """Every sample's result."""
-        offsets = np.concatenate([[0], np.cumsum(self.replicate_counts)]).tolist()
-        values = self.replicate_values.tolist()
+    def results(self, start: int = 0, stop: int | None = None) -> tuple[SampleResult, ...]:
+        """Every sample's result (or those of the samples from ``start`` to ``stop``)."""
+        end = len(self.ids) if stop is None else min(stop, len(self.ids))
+        start = max(0, min(start, end))
+        first = int(np.sum(self.replicate_counts[:start]))
+        counts = self.replicate_counts[start:end]
+        offsets = np.concatenate([[0], np.cumsum(counts)]).tolist()
+        values = self.replicate_values[first:first + offsets[-1]].tolist()
         out = []
-        for start, c in self.chunks():
+        for begin, c in self.chunks(start=start, stop=end):
             for k in range(len(c["ids"])):
-                i = start + k
+                i = begin + k - start
                 out.append(_result_of(self.analyte, c, k, tuple(values[offsets[i]:offsets[i + 1]])))
         return tuple(out)
 
@@ -482,7 +489,10 @@ def _analyse_analyte(
                                       s.dilution_factor, s.note) for s in check_results],
                           profile.checks, rng, profile.name, unit)
     samples: tuple[SampleResult, ...] | None = None
-    if checks is not None or SampleKind.QC in columns.kinds:  # results judged further: as objects
+    qc_verdict = None
+    if checks is None and SampleKind.QC in columns.kinds:  # QC samples judged over the columns
+        columns, qc_verdict = _judge_qc(columns, profile)
+    elif checks is not None:  # results judged further against the checks: as objects
         samples = columns.results()
     if checks is not None:
         by_id = {c.sample_id: c for c in checks.checks}
@@ -494,7 +504,6 @@ def _analyse_analyte(
             if s.sample_id in unbracketed and s.estimate is not None else s
             for s in samples
         )
-    qc_verdict = None
     if samples is not None:
         samples = tuple(
             replace(s, within_limits=abs(s.recovery_percent - 100.0) <= profile.qc.tolerance_percent + 1e-9)
@@ -524,6 +533,24 @@ def _analyse_analyte(
     if samples is not None:
         result.__dict__["samples"] = samples  # already made: the columns give the same results
     return result
+
+
+def _judge_qc(columns: SampleColumns, profile: AcceptanceProfile) -> tuple[SampleColumns, AcceptanceVerdict | None]:
+    """The QC samples judged over the columns: each with a recovery is within the profile's QC
+    tolerance or not, and the QC samples with a nominal value and a reported number are judged by the
+    profile's QC rules (what the result objects' judging gives, sample for sample)."""
+    is_qc = np.fromiter((k is SampleKind.QC for k in columns.kinds), bool, len(columns))
+    recovery = columns.recovery_percent
+    judged = is_qc & ~np.isnan(recovery)
+    within = columns.within_limits.copy()
+    within[judged] = np.abs(recovery[judged] - 100.0) <= profile.qc.tolerance_percent + 1e-9
+    counted = is_qc & ~np.isnan(columns.nominal) & columns.quantified & ~np.isnan(columns.estimate)
+    verdict = None
+    if counted.any():
+        # the reported number is the estimate times the dilution factor, as each result object has it
+        found = [e * d for e, d in zip(columns.estimate[counted].tolist(), columns.dilution[counted].tolist())]
+        verdict = profile.evaluate_qc(columns.nominal[counted].tolist(), found)
+    return replace(columns, within_limits=within), verdict
 
 
 def _method_reasons(run: Run, analyte: Analyte, cal: Calibration, model: str, weighting: str) -> tuple[str, ...]:
@@ -571,7 +598,7 @@ def _quantify_samples(
     Each sample's result is what :func:`_report` gives for it; the work is done over all samples at
     once: the replicate means of the samples with the same number of replicates as one array (each
     mean summed exactly as ``np.mean`` sums that sample's replicates alone), one call of the engine,
-    and the statuses and texts by :func:`.reporting.report_values`.
+    and the statuses and texts by :func:`.reporting.report_columns`.
     """
     settings = run.settings
     name, ratio = analyte.name, analyte.uses_internal_standard
@@ -650,26 +677,25 @@ def _quantify_samples(
         censored = censored_of.get(r)
         reason = f"reported as censored: {censored}" if censored else (refusal or note or "no numeric response")
         reasons[r] = reason if not note or reason == note else f"{reason}; {note}"
-    reported = report_values(estimate, dilution, flags, rng, settings.rounding, unit=analyte.concentration_unit,
-                             below_limit=profile.reporting.between_lod_and_reporting_limit, not_quantified=reasons)
+    reported = report_columns(estimate, dilution, flags, rng, settings.rounding, unit=analyte.concentration_unit,
+                              below_limit=profile.reporting.between_lod_and_reporting_limit, not_quantified=reasons)
     nominal = np.array(nominal_list, dtype=float)
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         got = estimate * dilution
         recovery = np.where(quantified & ~np.isnan(estimate) & ~np.isnan(nominal) & (nominal != 0),
                             100.0 * got / nominal, np.nan)
+    # a result with an estimate has the flags its report agrees with; any other keeps the engine's
     has_estimate = quantified & ~np.isnan(estimate)
-    bits = np.array([_NONE if (f := (v.flags if e else q)) is None else int(f)
-                     for v, e, q in zip(reported, has_estimate.tolist(), flags)], dtype=np.int64)
+    engine_bits = np.array([_NONE if f is None else int(f) for f in flags], dtype=np.int64)
+    bits = np.where(has_estimate, reported.bits, engine_bits)
     return SampleColumns(
         analyte=name, ids=ids, kinds=kinds, run_orders=run_orders, replicate_values=replicate_values,
         replicate_counts=replicate_counts, quantified=quantified, mean_response=mean_response, estimate=estimate,
         standard_error=standard_error, lower=lower, upper=upper, dilution=dilution, nominal=nominal,
         recovery_percent=recovery, within_limits=np.full(n, _NONE, dtype=np.int8), flags=bits,
         notes=[reasons[r] if not done else note for r, (done, note) in enumerate(zip(quantified.tolist(), notes))],
-        statuses=[v.status for v in reported], texts=[v.text for v in reported], words=[v.words for v in reported],
-        shorts=[v.short for v in reported],
-        suggested_dilution=np.array([np.nan if v.suggested_dilution is None else v.suggested_dilution
-                                     for v in reported], dtype=float),
+        statuses=reported.statuses, texts=reported.texts, words=reported.words, shorts=reported.shorts,
+        suggested_dilution=reported.suggested_dilution,
     )
 
 

@@ -417,8 +417,9 @@ def update_samples(
     added = [{"id": i, **_sample_fields(s)} for i, s in new.items() if i not in old]
     changes = []
     for i, s in new.items():
-        if i in old:
-            before, after = _sample_fields(old[i]), _sample_fields(s)
+        was = old.get(i)
+        if was is not None and was is not s:  # samples are immutable: the same object has the same fields
+            before, after = _sample_fields(was), _sample_fields(s)
             for field_name in dict.fromkeys([*after, *before]):
                 if after.get(field_name) != before.get(field_name):
                     changes.append({"sample": i, "field": field_name, "old": before.get(field_name),

@@ -1,0 +1,165 @@
+"""After an edit, the tables are told only what changed: a header is told of a change only when its
+texts change (a header told of a change has its table laid out and repainted whole), and a column
+keeps its width unless its contents need another (the last column is never set to its fitted width
+and then widened again to fill the table)."""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+from PySide6.QtCore import Qt
+
+from curvewright.app.results_model import REPORTED
+from curvewright.app.standards_model import CONC
+from tests.app.conftest import DEMOS, settle
+from tests.app.test_redraw import changed_response
+
+WEIGHTED = next(p for p in DEMOS if "weighted" in p.stem)
+
+
+def watch(window):  # type: ignore[no-untyped-def]
+    """Counts of header changes told and of columns resized, per table."""
+    counts = {"headers": [], "resized": []}
+    tables = {"standards": window.standards_view, "samples": window.samples_view, "results": window.results_view.table}
+    for name, view in tables.items():
+        view.model().headerDataChanged.connect(lambda *_a, name=name: counts["headers"].append(name))
+        view.horizontalHeader().sectionResized.connect(lambda c, old, new, name=name: counts["resized"].append((name, c, old, new)))
+    return counts
+
+
+def test_an_edit_that_changes_no_header_tells_no_header_and_resizes_no_unchanged_column(qtbot, make_window) -> None:
+    window = make_window(WEIGHTED)
+    session = window.session
+    session.apply(changed_response(session.run, 1), "Change a response")
+    settle(qtbot, window)
+    counts = watch(window)
+    widths = {name: [v.columnWidth(c) for c in range(v.model().columnCount())]
+              for name, v in (("samples", window.samples_view), ("results", window.results_view.table))}
+    session.apply(changed_response(session.run, 2), "Change a response")
+    settle(qtbot, window)
+    assert counts["headers"] == []
+    # the samples table shows nothing the analysis changes: no column of it is touched, not even for a moment
+    assert [r for r in counts["resized"] if r[0] == "samples"] == []
+    assert [window.samples_view.columnWidth(c) for c in range(window.samples_view.model().columnCount())] == widths["samples"]
+    # the results table's last column still fills the room the others leave
+    table = window.results_view.table
+    last = table.model().columnCount() - 1
+    others = sum(table.columnWidth(c) for c in range(last))
+    assert table.columnWidth(last) >= table.viewport().width() - others
+
+
+def test_a_new_unit_is_told_to_every_header_that_shows_it(qtbot, make_window) -> None:
+    window = make_window(WEIGHTED)
+    session = window.session
+    counts = watch(window)
+    analyte = session.run.analytes[0]
+    session.apply(replace(session.run, analytes=(replace(analyte, concentration_unit="nmol/L"),)), "Change the unit")
+    settle(qtbot, window)
+    assert {"standards", "results"} <= set(counts["headers"])
+    horizontal = Qt.Orientation.Horizontal
+    assert "nmol/L" in window.standards_view.model().headerData(CONC, horizontal)
+    assert "nmol/L" in window.results_view.table.model().headerData(REPORTED, horizontal)
+    # and what the header shows is the new text
+    assert "nmol/L" in window.results_view.table.horizontalHeader().model().headerData(REPORTED, horizontal)
+
+
+def test_new_curve_words_of_as_many_lines_lay_nothing_out_again(qtbot, make_window) -> None:
+    from PySide6.QtCore import QEvent, QObject
+
+    from curvewright.io.model_outputs import curve_words
+
+    window = make_window(WEIGHTED)
+    session, view = window.session, window.curve_view
+    laid_out = []
+
+    class Watch(QObject):
+        def eventFilter(self, obj, event):  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+            if event.type() == QEvent.Type.LayoutRequest:
+                laid_out.append(obj)
+            return False
+
+    session.apply(changed_response(session.run, 2), "Change a response")  # the first redraw may size the axes
+    settle(qtbot, window)
+    watcher = Watch()
+    for widget in (view, view.parentWidget()):  # the view and the splitter it is laid out in
+        widget.installEventFilter(watcher)
+    before = view.curve_words.text()
+    height = view.curve_words.height()
+    session.apply(changed_response(session.run, 3), "Change a response")
+    settle(qtbot, window)
+    a = session.result.analytes[0]
+    assert view.curve_words.text() == curve_words(a.calibration, a.analyte.uses_internal_standard) != before
+    assert view.curve_words.label.heightForWidth(view.curve_words.width()) == height  # as many lines
+    assert laid_out == []
+    assert view.curve_words.label.geometry() == view.curve_words.rect()
+    # a text of more lines is laid out: the words take the height the label needs at their width
+    view.curve_words.setText(" ".join(["a long explanation of the fitted curve"] * 12))
+    qtbot.waitUntil(lambda: view.curve_words.height() > height)
+    assert view.curve_words.height() == view.curve_words.label.heightForWidth(view.curve_words.width())
+    assert view.curve_words.label.geometry() == view.curve_words.rect()
+
+
+def shown_on_screen(window, widget):  # type: ignore[no-untyped-def]
+    """What the screen shows of ``widget`` (the window's painted image, as the analyst sees it)."""
+    from PySide6.QtGui import QGuiApplication
+
+    screen = QGuiApplication.primaryScreen().grabWindow(window.winId())
+    at = widget.mapTo(window, widget.rect().topLeft())
+    return screen.copy(at.x(), at.y(), widget.width(), widget.height()).toImage()
+
+
+def typed_response(run, k: int):  # type: ignore[no-untyped-def]
+    """The run with its first standard's response changed as an analyst types it (six figures, so
+    that the column keeps its width and nothing but the changed cells is repainted)."""
+    from curvewright.core.run import Reading
+    from curvewright.io import run_edits
+
+    analyte = run.analytes[0]
+    first = analyte.standards[0]
+    text = f"{float(first.response.value) * (1 + 0.001 * k):.6g}"
+    changed = replace(first, response=Reading(float(text), text))
+    return run_edits.update_standards(run, analyte.name, (changed, *analyte.standards[1:]), "typed",
+                                      reason="re-read from the instrument")
+
+
+def test_after_edits_the_tables_on_screen_are_the_tables_painted_anew(qtbot, make_window) -> None:
+    """Only the cells that changed are repainted after an edit: what the screen then shows of each
+    table is what painting the whole table anew shows, through small and large changes (statuses,
+    flags and shading changing too) and a selected row."""
+    window = make_window(WEIGHTED)
+    session = window.session
+    window.results_view.table.selectRow(2)
+    window.standards_view.horizontalScrollBar().setValue(window.standards_view.horizontalScrollBar().maximum())
+    for k in (1, 2, 300, 301, -400, 5):
+        session.apply(typed_response(session.run, k), "Change a response")
+        settle(qtbot, window)
+        qtbot.wait(30)
+        for view in (window.results_view.table, window.standards_view):
+            viewport = view.viewport()
+            assert shown_on_screen(window, viewport) == viewport.grab().toImage(), (k, view.accessibleName())
+
+
+def test_an_axis_whose_range_did_not_change_keeps_its_picture(qtbot, make_window) -> None:
+    """A response edited: the concentration axes are drawn from the same range, ticks and labels, so
+    they keep the picture they were painted with; the response axes, whose range moved, are drawn
+    anew. (That the view then looks as one drawn anew is held by tests/app/test_curve_items.py.)"""
+    window = make_window(WEIGHTED)
+    session, view = window.session, window.curve_view
+    session.apply(typed_response(session.run, 1), "Change a response")
+    settle(qtbot, window)
+    view.graphics.grab()
+    plots = (view.curve_plot, view.lower_plot)
+    before = {(i, side): plot.getAxis(side).picture for i, plot in enumerate(plots) for side in ("bottom", "left")}
+    ranges = {(i, side): tuple(plot.getAxis(side).range) for i, plot in enumerate(plots) for side in ("bottom", "left")}
+    session.last_analysis_work_seconds = 0.0  # analysed at once: the views are redrawn and not yet painted
+    session.apply(typed_response(session.run, 600), "Change a response")
+    assert session.result.run is session.run
+    for (i, side), picture in before.items():
+        axis = plots[i].getAxis(side)
+        assert picture is not None
+        if tuple(axis.range) == ranges[(i, side)]:
+            assert axis.picture is picture, (i, side)
+        else:
+            assert axis.picture is None, (i, side)  # drawn anew when next painted
+    assert any(plots[i].getAxis(side).picture is before[(i, side)] for i in (0, 1) for side in ("bottom",))
+    assert any(tuple(plots[i].getAxis("left").range) != ranges[(i, "left")] for i in (0, 1))
