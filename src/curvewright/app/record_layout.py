@@ -98,7 +98,7 @@ class ImageOp:
 
 @dataclass
 class FigureOp:
-    """A figure that paints itself into a rectangle (:class:`curvewright.app.figures.Figure`: vectors)."""
+    """A figure that paints itself into a rectangle (:class:`curvewright.app.record_figures.PlottedFigure`: vectors)."""
 
     rect: QRectF
     figure: object
