@@ -317,8 +317,9 @@ class _Layout:
         major, minor = levels
         major_values = tick_values(axis.low, axis.high, major)
         labelled = [(float(v), tick_text(float(v), major)) for v in major_values]
-        minor_values = [float(v) for v in tick_values(axis.low, axis.high, minor)
-                        if not np.any(np.isclose(major_values, v, rtol=0, atol=minor * 0.01))]
+        candidates = tick_values(axis.low, axis.high, minor)
+        on_major = (np.abs(candidates[:, None] - major_values[None, :]) <= minor * 0.01).any(axis=1)
+        minor_values = candidates[~on_major].tolist()
         # the minor ticks are labelled too unless all the labels together would crowd the axis: fill
         # more than 80 % of it, or 60 % with two major labels, 40 % with four, 20 % with six (the
         # screen's axes' rule; a label's height counted at 80 %)
@@ -564,6 +565,8 @@ def clip_polyline(x: np.ndarray, y: np.ndarray, box: tuple[float, float, float, 
     if x.size < 2:
         return np.empty(0), np.empty(0)
     x0, x1, y0, y1 = box
+    if np.all(np.isfinite(x) & np.isfinite(y) & (x >= x0) & (x <= x1) & (y >= y0) & (y <= y1)):
+        return x.copy(), y.copy()  # wholly inside: nothing to cut
     ax, ay, bx, by = x[:-1], y[:-1], x[1:], y[1:]
     ok = np.isfinite(ax) & np.isfinite(ay) & np.isfinite(bx) & np.isfinite(by)
     dx, dy = bx - ax, by - ay

@@ -64,6 +64,9 @@ def font(style: str) -> QFont:
 
 
 _FONTS: dict[str, QFont] = {}
+_FLAGS = {align: int(align | Qt.AlignmentFlag.AlignVCenter)
+          for align in (Qt.AlignmentFlag.AlignLeft, Qt.AlignmentFlag.AlignRight)}
+"""The drawing flags of a line of text aligned left or right, centred in its box's height."""
 
 
 @dataclass
@@ -175,15 +178,34 @@ class RecordLayout:
                 # it, and the line found word by word would be this one
                 lines.append(whole)
                 continue
-            line = ""
-            for token in self.tokens(style, paragraph, width):
-                candidate = token if not line else f"{line} {token}"
-                if self.m.width(style, candidate) <= width or not line:
-                    line = candidate
-                else:
-                    lines.append(line)
-                    line = token
-            lines.append(line)
+            lines += self._greedy(style, self.tokens(style, paragraph, width), width)
+        return lines
+
+    def _greedy(self, style: str, tokens: list[str], width: float) -> list[str]:
+        """``tokens`` set line by line, each line as many tokens as fit in ``width`` (at least one).
+
+        The line that fits is found from the tokens' own widths and the width of a space, then checked by
+        measuring it whole, and the line with one more token: lines are the same as found by measuring
+        every start of the line token by token (a longer start never measures narrower), with two
+        measurements a line instead of one a word."""
+        widths = [self.m.width(style, t) for t in tokens]
+        space = self.m.width(style, " ")
+        lines: list[str] = []
+        start = 0
+        while start < len(tokens):
+            # the estimate: tokens start..end-1 joined by spaces, summed
+            end, used = start + 1, widths[start]
+            while end < len(tokens) and used + space + widths[end] <= width:
+                used += space + widths[end]
+                end += 1
+            # checked against the measured lines: move the end back while the line is too wide, then on
+            # while the line with one more token still fits
+            while end - start > 1 and self.m.width(style, " ".join(tokens[start:end])) > width:
+                end -= 1
+            while end < len(tokens) and self.m.width(style, " ".join(tokens[start:end + 1])) <= width:
+                end += 1
+            lines.append(" ".join(tokens[start:end]))
+            start = end
         return lines
 
     def tokens(self, style: str, text: str, width: float) -> list[str]:
@@ -259,8 +281,17 @@ class RecordLayout:
     def _min_width(self, texts: list[str], style: str) -> float:
         """The narrowest a column can be without breaking a word."""
         limit = LONGEST_UNBROKEN * self.width
-        words = [w for t in texts for w in self.bound_words(str(t))]
-        longest = max((self.m.width(style, w) for w in words), default=0.0)
+        longest = 0.0
+        for text in texts:
+            text = str(text)
+            whole = self.m.width(style, text)
+            if whole <= longest:  # no word of it is wider than the text itself
+                continue
+            words = self.bound_words(text)
+            if len(words) == 1 and words[0] == text:
+                longest = whole
+            else:
+                longest = max(longest, max((self.m.width(style, w) for w in words), default=0.0))
         return min(longest, limit) + 2 * CELL_PAD_X + FIT_SLACK
 
     def _full_width(self, texts: list[str], style: str) -> float:
@@ -393,7 +424,7 @@ class RecordLayout:
                 painter.setFont(font(op.style))
                 painter.setPen(QColor(STYLES[op.style][2]))
                 self._text_style = op.style
-            painter.drawText(op.rect, int(op.align | Qt.AlignmentFlag.AlignVCenter), op.text)
+            painter.drawText(op.rect, _FLAGS[op.align], op.text)
         elif isinstance(op, LineOp):
             painter.setPen(QPen(QColor(op.colour), op.width * MM / 3))
             self._text_style = ""
