@@ -17,6 +17,7 @@ Figures
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 
 from PySide6.QtCore import QRectF, Qt
@@ -64,6 +65,8 @@ def font(style: str) -> QFont:
 
 
 _FONTS: dict[str, QFont] = {}
+_GLUE = re.compile("[<>≤≥–]")
+"""The characters of a word that :meth:`RecordLayout.bound_words` joins to its neighbours."""
 _FLAGS = {align: int(align | Qt.AlignmentFlag.AlignVCenter)
           for align in (Qt.AlignmentFlag.AlignLeft, Qt.AlignmentFlag.AlignRight)}
 """The drawing flags of a line of text aligned left or right, centred in its box's height."""
@@ -143,7 +146,8 @@ class RecordLayout:
         self.width = self.right - self.left
         self.pages: list[Page] = []
         self.section = ""
-        self._text_style = ""
+        self._font_style = ""  # the style whose font the painter holds ("" for none)
+        self._pen = None  # what the painter's pen is: a text style's colour, or a rule's (colour, width)
         self.new_page()
 
     # --- pages -------------------------------------------------------------------------------------
@@ -236,6 +240,8 @@ class RecordLayout:
     def bound_words(text: str) -> list[str]:
         """Words, with a lone comparison sign joined to the word after it and a lone dash to the
         words on both sides (joined by no-break spaces)."""
+        if _GLUE.search(text) is None:  # no sign and no dash: the words as they are (most cells)
+            return text.split()
         words: list[str] = []
         glue_next = False
         for word in text.split():
@@ -408,7 +414,7 @@ class RecordLayout:
         painter = QPainter(writer)
         painter.setRenderHint(QPainter.RenderHint.Antialiasing)
         painter.setRenderHint(QPainter.RenderHint.SmoothPixmapTransform)
-        self._text_style = ""  # the style whose font and colour the painter holds ("" for none)
+        self._font_style, self._pen = "", None
         total = len(self.pages)
         for number, page in enumerate(self.pages, start=1):
             if number > 1:
@@ -420,21 +426,28 @@ class RecordLayout:
 
     def _draw(self, painter: QPainter, op) -> None:  # type: ignore[no-untyped-def]
         if isinstance(op, TextOp):
-            if op.style != self._text_style:  # a page sets many lines in one style in a row
+            # a page sets many lines in one style in a row, and a table's rows alternate text and rules:
+            # the font and pen are set only when they change
+            if op.style != self._font_style:
                 painter.setFont(font(op.style))
-                painter.setPen(QColor(STYLES[op.style][2]))
-                self._text_style = op.style
+                self._font_style = op.style
+            colour = STYLES[op.style][2]
+            if colour != self._pen:
+                painter.setPen(QColor(colour))
+                self._pen = colour
             painter.drawText(op.rect, _FLAGS[op.align], op.text)
         elif isinstance(op, LineOp):
-            painter.setPen(QPen(QColor(op.colour), op.width * MM / 3))
-            self._text_style = ""
+            key = (op.colour, op.width)
+            if key != self._pen:
+                painter.setPen(QPen(QColor(op.colour), op.width * MM / 3))
+                self._pen = key
             painter.drawLine(int(op.x1), int(op.y1), int(op.x2), int(op.y2))
         elif isinstance(op, FillOp):
             painter.fillRect(op.rect, QColor(op.colour))
         elif isinstance(op, ImageOp):
             painter.drawImage(op.rect, op.image)
         elif isinstance(op, FigureOp):
-            op.figure.paint(painter, op.rect)
+            op.figure.paint(painter, op.rect)  # it leaves the painter's pen and font as it found them
 
     def _running(self, painter: QPainter, page: Page, number: int, total: int) -> None:
         line_h = self.m.line_height("running")
