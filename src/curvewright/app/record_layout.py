@@ -278,9 +278,11 @@ class RecordLayout:
     def table(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool],
               note: str = "") -> None:
         """A table in column groups that fit the page, rows never split, the header repeated."""
-        for group, group_title in self._column_groups(title, headings, rows):
+        # each column's narrowest and natural widths, measured once for the groups and their parts
+        columns = [self._column_widths(h, [r[c] for r in rows]) for c, h in enumerate(headings)]
+        for group, group_title in self._column_groups(title, headings, [m for m, _ in columns]):
             self._table_part(group_title, [headings[c] for c in group], [[r[c] for c in group] for r in rows],
-                             [numeric[c] for c in group])
+                             [numeric[c] for c in group], [columns[c] for c in group])
         if note:
             self.paragraph(note, "small")
 
@@ -303,9 +305,15 @@ class RecordLayout:
     def _full_width(self, texts: list[str], style: str) -> float:
         return min(max((self.m.width(style, str(t)) for t in texts), default=0.0), 0.6 * self.width) + 2 * CELL_PAD_X
 
-    def _column_groups(self, title: str, headings: list[str], rows: list[list[str]]):  # type: ignore[no-untyped-def]
-        mins = [max(self._min_width([h], "table_header"), self._min_width([r[c] for r in rows], "table"))
-                for c, h in enumerate(headings)]
+    def _column_widths(self, heading: str, cells: list[str]) -> tuple[float, float]:
+        """A column's narrowest width (no word broken) and its natural width (each cell on one line,
+        the heading on at most about two)."""
+        narrowest = max(self._min_width([heading], "table_header"), self._min_width(cells, "table"))
+        natural = max(narrowest, self._full_width(cells, "table"),
+                      min(self._full_width([heading], "table_header"), 2.2 * narrowest))
+        return narrowest, natural
+
+    def _column_groups(self, title: str, headings: list[str], mins: list[float]):  # type: ignore[no-untyped-def]
         if sum(mins) <= self.width or len(headings) <= 2:
             return [(list(range(len(headings))), title)]
         groups, current, used = [], [0], mins[0]
@@ -319,13 +327,10 @@ class RecordLayout:
         return [(g, title if i == 0 else f"{title} (continued: {', '.join(headings[c] for c in g[1:])})")
                 for i, g in enumerate(groups)]
 
-    def _widths(self, headings: list[str], rows: list[list[str]]) -> list[float]:
-        mins, fulls = [], []
-        for c, h in enumerate(headings):
-            cells = [r[c] for r in rows]
-            mins.append(max(self._min_width([h], "table_header"), self._min_width(cells, "table")))
-            fulls.append(max(mins[-1], self._full_width(cells, "table"),
-                             min(self._full_width([h], "table_header"), 2.2 * mins[-1])))
+    def _widths(self, columns: list[tuple[float, float]]) -> list[float]:
+        """The columns' widths: natural where they all fit, else each narrowest width with a share of
+        the room that is left."""
+        mins, fulls = [m for m, _ in columns], [f for _, f in columns]
         if sum(fulls) <= self.width:
             return fulls
         spare = self.width - sum(mins)
@@ -337,16 +342,18 @@ class RecordLayout:
         lines = max(len(w) for w in wrapped)
         return lines * self.m.line_height(style) + 2 * CELL_PAD_Y, wrapped
 
-    def _table_part(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool]) -> None:
-        widths = self._widths(headings, rows)
+    def _table_part(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool],
+                    columns: list[tuple[float, float]]) -> None:
+        widths = self._widths(columns)
         header_h, header_lines = self._row_height(headings, widths, "table_header")
-        first_h = self._row_height(rows[0], widths, "table")[0] if rows else 0.0
+        first = self._row_height(rows[0], widths, "table") if rows else None
+        first_h = first[0] if first is not None else 0.0
         title_h = self.m.line_height("subheading") + 1.4 * MM
         self.ensure(title_h + header_h + first_h)
         self.paragraph(title, "subheading")
         self._header_row(widths, header_h, header_lines)
-        for row in rows:
-            h, lines = self._row_height(row, widths, "table")
+        for k, row in enumerate(rows):
+            h, lines = first if k == 0 and first is not None else self._row_height(row, widths, "table")
             if h > self.room():
                 self.new_page()
                 self.paragraph(f"{title} (continued)", "small")
