@@ -308,7 +308,8 @@ def test_a_figure_of_a_record_fits_its_place_on_the_page(qapp, results) -> None:
         for a in result.analytes:
             if a.calibration is None:
                 continue
-            for figure in (curve_of(a, 0.95), record_figures.influence_figure(a)):
+            for figure in (curve_of(a, 0.95), record_figures.relative_error_figure(a, log_x=wide_range(a)),
+                           record_figures.influence_figure(a), *(record_figures.additions_figure(a, s) for s in a.additions)):
                 rect = QRectF(0, 0, 178 * MM, figure.height * MM)
                 picture_image = QImage(int(rect.width()) + 40, int(rect.height()) + 40, QImage.Format.Format_ARGB32)
                 picture_image.fill(QColor("white"))
@@ -321,3 +322,34 @@ def test_a_figure_of_a_record_fits_its_place_on_the_page(qapp, results) -> None:
                 ink = np.argwhere(pixels[..., :3].min(axis=2) < 250)
                 assert ink[:, 0].min() >= 20 - 1 and ink[:, 0].max() <= 20 + rect.height() + 1, a.analyte.name
                 assert ink[:, 1].min() >= 20 - 1 and ink[:, 1].max() <= 20 + rect.width() + 1, a.analyte.name
+
+
+def test_a_standard_outside_its_limits_and_one_flagged_for_influence_are_starred_and_named(qapp) -> None:  # type: ignore[no-untyped-def]
+    from curvewright.io import run_edits
+
+    run = open_run(demo("nitrate_water_linear")).run
+    top = next(s for s in run.analyte("nitrate-N").standards if s.concentration == 8)
+    # a response typed 35 % high at the top level: far outside its ±20 % and, at the top's leverage, an
+    # influential point
+    run = run_edits.edit_standard(run, "nitrate-N", top.id, "response", top.response.value * 1.35,
+                                  "typed high for the test", user="tester")
+    a = analyse_run(run).analytes[0]
+    cal, verdict = a.calibration, a.verdict
+    failing = verdict.judged & ~verdict.passing
+    flagged = np.array([bool(f) for f in cal.influence_flags])
+    assert failing.sum() == 1 and [s.id for s, f in zip(a.fitted_standards, flagged) if f] == [top.id]
+    errors = record_figures.relative_error_figure(a)
+    _, frame = painted(errors)
+    stars = errors.marks["outside the limits"]
+    wanted = [(page_x(frame, c), page_y(frame, e)) for c, e in zip(cal.concentration[failing], cal.relative_error[failing])]
+    assert np.allclose(stars, wanted, atol=1e-6)
+    assert len(errors.marks["within limits"]) == int((verdict.judged & verdict.passing).sum())
+    assert [e.text for e in errors.legend] == ["acceptance limit", "within limits", "outside the limits"]
+    influence = record_figures.influence_figure(a)
+    _, frame = painted(influence)
+    star = influence.marks["flagged standard (labelled)"]
+    assert np.allclose(star, [(page_x(frame, cal.leverage[flagged][0]),
+                               page_y(frame, cal.studentized_residuals[flagged][0]))], atol=1e-6)
+    labels = [layer for layer in influence.layers if isinstance(layer, record_figures.Labels)]
+    assert [layer.texts for layer in labels] == [(top.id,)]
+    assert "flagged standard (labelled)" in [e.text for e in influence.legend]

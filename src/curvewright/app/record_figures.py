@@ -5,7 +5,7 @@ Each figure is first described from the engine's results as what it plots, in da
 a rectangle of the page (:meth:`PlottedFigure.paint`) lays it out in that rectangle, measured in the
 fonts it is printed in, and draws it as vectors. The figures show what the screen's plots show
 (:mod:`.figures`) from the same values (:mod:`.plotted`), in a printed size: markers about 2 mm
-across, lines at least 0.3 pt, text at 7–7.5 pt.
+across, lines of 0.5–1 pt (grid lines 0.25 pt), text at 7–7.5 pt.
 
 * the curve: standards (in the fit: filled circles; excluded: open squares with a cross; anchor
   points ringed by open hexagons), the fitted curve with its confidence band (shaded) and prediction
