@@ -1,4 +1,5 @@
-"""The three views of a calibration, drawn with pyqtgraph from the engine's results.
+"""The three views of a calibration on screen, drawn with pyqtgraph from the engine's results (the printed
+record draws the same with QPainter: :mod:`.record_figures`).
 
 * the curve: standards (in the fit: filled circles; excluded: open squares), the fitted curve with
   its confidence band (shaded) and prediction band (dashed), unknowns and QC samples placed on the
@@ -27,7 +28,6 @@ from ..core.run import SampleKind
 from . import palette
 from .plotted import acceptance_steps, excluded_points, sample_points, wide_range  # noqa: F401 (shared with the record)
 from .plotted import finite as _finite
-from .qt_runtime import ensure_application
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -194,7 +194,7 @@ def draw_anchor_points(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.Legend
 
 def draw_curve_with_anchors(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
                             **options) -> None:  # type: ignore[no-untyped-def]
-    """:func:`draw_curve` with the anchor points ringed (the record's curve figure)."""
+    """:func:`draw_curve` with the anchor points ringed (the curve view's plot)."""
     draw_curve(plot, a, legend=legend, **options)
     if a.calibration is not None:
         draw_anchor_points(plot, a, legend=legend, log_x=bool(options.get("log_x", False)),
