@@ -134,6 +134,19 @@ class Metrics:
     def line_height(self, style: str) -> float:
         return self.metrics[style].lineSpacing()
 
+    def surely_within(self, style: str, text: str, width: float) -> bool:
+        """True when ``text`` is certainly no wider than ``width`` without measuring it: even at twice the
+        widest character of the font for each of its characters (a character drawn from another font
+        is never twice as wide as the widest of this one)."""
+        return 2 * len(text) * self.widest[style] <= width
+
+    @property
+    def widest(self) -> dict[str, float]:
+        found = self.__dict__.get("_widest")
+        if found is None:
+            found = self.__dict__["_widest"] = {name: m.maxWidth() for name, m in self.metrics.items()}
+        return found
+
 
 class RecordLayout:
     """Places blocks on pages; :meth:`paint` then draws them with the running header and footer."""
@@ -177,23 +190,25 @@ class RecordLayout:
         lines: list[str] = []
         for paragraph in str(text).split("\n"):
             whole = " ".join(self.bound_words(paragraph))
-            if self.m.width(style, whole) <= width:
+            measured = self.m.width(style, whole)
+            if measured <= width:
                 # it fits on one line (most cells and captions): so does every word and every start of
                 # it, and the line found word by word would be this one
                 lines.append(whole)
                 continue
-            lines += self._greedy(style, self.tokens(style, paragraph, width), width)
+            lines += self._greedy(style, self.tokens(style, paragraph, width), width, measured / max(len(whole), 1))
         return lines
 
-    def _greedy(self, style: str, tokens: list[str], width: float) -> list[str]:
+    def _greedy(self, style: str, tokens: list[str], width: float, per_character: float) -> list[str]:
         """``tokens`` set line by line, each line as many tokens as fit in ``width`` (at least one).
 
-        The line that fits is found from the tokens' own widths and the width of a space, then checked by
-        measuring it whole, and the line with one more token: lines are the same as found by measuring
-        every start of the line token by token (a longer start never measures narrower), with two
-        measurements a line instead of one a word."""
-        widths = [self.m.width(style, t) for t in tokens]
-        space = self.m.width(style, " ")
+        The line that fits is first estimated at ``per_character`` (the paragraph's mean width of a
+        character, space included), then checked by measuring it whole, and the line with one more
+        token, moving the end until the one fits and the other does not: lines are the same as found
+        by measuring every start of the line token by token (a longer start never measures narrower),
+        with a few measurements a line instead of one a word."""
+        widths = [len(t) * per_character for t in tokens]
+        space = per_character
         lines: list[str] = []
         start = 0
         while start < len(tokens):
@@ -218,7 +233,7 @@ class RecordLayout:
         them, else between characters (only ever a path or a hash, never a word of prose or a number)."""
         out = []
         for word in self.bound_words(text):
-            if self.m.width(style, word) <= width:
+            if self.m.surely_within(style, word, width) or self.m.width(style, word) <= width:
                 out.append(word)
                 continue
             piece = ""
