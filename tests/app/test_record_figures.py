@@ -353,3 +353,25 @@ def test_a_standard_outside_its_limits_and_one_flagged_for_influence_are_starred
     labels = [layer for layer in influence.layers if isinstance(layer, record_figures.Labels)]
     assert [layer.texts for layer in labels] == [(top.id,)]
     assert "flagged standard (labelled)" in [e.text for e in influence.legend]
+
+
+def test_the_additions_figure_puts_the_intercept_and_its_interval_on_the_concentration_axis(qapp, results) -> None:  # type: ignore[no-untyped-def]
+    a = next(a for a in results["volatiles_water_average_rf"].analytes if a.additions)
+    series = a.additions[0]
+    r = series.result
+    figure = record_figures.additions_figure(a, series)
+    _, frame = painted(figure)
+    assert figure.x.title == "Concentration added (µg/L)" and figure.y.title == "Response (area ratio)"
+    # the x-intercept at minus the concentration found, on the zero-response line, its bar from minus the
+    # interval's upper end to minus its lower end
+    assert np.allclose(figure.marks["x-intercept"], [(page_x(frame, -r.concentration), page_y(frame, 0.0))], atol=1e-6)
+    assert np.allclose(figure.marks["x-intercept interval"],
+                       [(page_x(frame, -r.upper), page_x(frame, -r.lower), page_y(frame, 0.0))], atol=1e-6)
+    means = figure.marks["mean response"]
+    wanted = [(page_x(frame, x), page_y(frame, y)) for x, y in zip(series.added, series.mean_response)]
+    assert np.allclose(sorted(map(tuple, means)), sorted(wanted), atol=1e-6)
+    # the dashed line runs from the intercept back up to the first addition, on the fitted line
+    dashed = next(layer for layer in figure.layers if isinstance(layer, record_figures.Lines)
+                  and layer.stroke.style == "dash")
+    assert dashed.x[0] == pytest.approx(-r.concentration, rel=1e-12) and dashed.y[0] == pytest.approx(0.0, abs=1e-9)
+    assert dashed.x[1] == pytest.approx(min(series.added), rel=1e-12)
