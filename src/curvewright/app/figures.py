@@ -1,4 +1,5 @@
-"""The three views of a calibration, drawn with pyqtgraph from the engine's results.
+"""The three views of a calibration on screen, drawn with pyqtgraph from the engine's results (the printed
+record draws the same with QPainter: :mod:`.record_figures`).
 
 * the curve: standards (in the fit: filled circles; excluded: open squares), the fitted curve with
   its confidence band (shaded) and prediction band (dashed), unknowns and QC samples placed on the
@@ -25,7 +26,8 @@ from PySide6.QtWidgets import QWidget
 from ..core.influence import HIGH_LEVERAGE, influence_boundary
 from ..core.run import SampleKind
 from . import palette
-from .qt_runtime import ensure_application
+from .plotted import acceptance_steps, excluded_points, sample_points, wide_range  # noqa: F401 (shared with the record)
+from .plotted import finite as _finite
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -46,15 +48,6 @@ def styled_plot(plot: pg.PlotItem, x_label: str, y_label: str, font_size: int = 
     plot.setLabel("left", y_label)
     plot.showGrid(x=True, y=True, alpha=0.15)
     return plot
-
-
-def wide_range(a: AnalyteResult) -> bool:
-    """True when the positive standards span two decades or more: a log concentration axis reads better."""
-    cal = a.calibration
-    if cal is None:
-        return False
-    positive = cal.concentration[cal.concentration > 0]
-    return positive.size > 1 and positive.max() / positive.min() >= 100
 
 
 def _axis_transform(plot: pg.PlotItem, log: bool, side: str = "bottom", span: tuple[float, float] | None = None):  # type: ignore[no-untyped-def]
@@ -180,50 +173,6 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
               f"{label} with interval")
 
 
-def excluded_points(a: AnalyteResult, tx, ty, log_x: bool, log_y: bool) -> tuple[list[float], list[float]]:  # type: ignore[no-untyped-def]
-    """The excluded standards that have a usable response and a place on the axes, as plotted
-    (concentration and response through the axis transforms ``tx`` and ``ty``)."""
-    from ..core.run_analysis import response_value
-
-    ex_x, ex_y = [], []
-    for s in a.excluded_standards:
-        used, _ = response_value(s.response, s.internal_standard_response, a.analyte.uses_internal_standard)
-        if used is not None and (s.concentration > 0 or not log_x) and (used > 0 or not log_y):
-            ex_x.append(float(tx(s.concentration)))
-            ex_y.append(float(ty(used)))
-    return ex_x, ex_y
-
-
-def sample_points(a: AnalyteResult, kind, tx, ty, log_x: bool, log_y: bool):  # type: ignore[no-untyped-def]
-    """The samples of ``kind`` with an estimate that the axes can show, as plotted: estimate, mean
-    response, and the interval's ends (an end that is missing, open or off a log axis drawn at the
-    estimate), each through the axis transforms ``tx`` and ``ty``; None when there is none.
-
-    The results are read from the analysis's sample columns (a missing value as NaN), chosen over arrays."""
-    columns = a.sample_columns
-    if columns is None or not len(columns):
-        return None
-    of_kind = np.fromiter((k is kind for k in columns.kinds), bool, len(columns))
-    of_kind &= columns.quantified & ~np.isnan(columns.estimate)
-    if not of_kind.any():
-        return None
-    estimate, mean = columns.estimate[of_kind], columns.mean_response[of_kind]
-    shown = np.ones(estimate.size, bool)
-    if log_x:
-        shown &= estimate > 0
-    if log_y:
-        shown &= mean > 0
-    if not shown.any():
-        return None
-    lower = columns.lower[of_kind][shown]  # a missing end is NaN: not finite
-    upper = columns.upper[of_kind][shown]
-    estimate, mean = estimate[shown], mean[shown]
-    lower_shown = np.isfinite(lower) & (lower > 0) if log_x else np.isfinite(lower)
-    lo_raw = np.where(lower_shown, lower, estimate)
-    hi_raw = np.where(np.isfinite(upper), upper, estimate)
-    return tx(estimate), ty(mean), tx(lo_raw), tx(hi_raw)
-
-
 def draw_anchor_points(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
                        log_x: bool = False, font_size: int = 10) -> None:
     """Ring the anchor points of a logistic curve (drawn by :func:`draw_curve` as standards in the fit)
@@ -245,16 +194,11 @@ def draw_anchor_points(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.Legend
 
 def draw_curve_with_anchors(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
                             **options) -> None:  # type: ignore[no-untyped-def]
-    """:func:`draw_curve` with the anchor points ringed (the record's curve figure)."""
+    """:func:`draw_curve` with the anchor points ringed (the curve view's plot)."""
     draw_curve(plot, a, legend=legend, **options)
     if a.calibration is not None:
         draw_anchor_points(plot, a, legend=legend, log_x=bool(options.get("log_x", False)),
                            font_size=int(options.get("font_size", 10)))
-
-
-def _finite(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    keep = np.isfinite(x) & np.isfinite(y)
-    return x[keep], y[keep]
 
 
 def draw_relative_errors(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None,
@@ -290,20 +234,6 @@ def draw_relative_errors(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.Lege
         outside = plot.plot(x[failing], cal.relative_error[failing], pen=None, symbol="star", symbolSize=12,
                             symbolBrush=palette.FLAGGED, symbolPen=None)
         _name(legend, outside, "outside the limits")
-
-
-def acceptance_steps(x: np.ndarray, verdict) -> tuple[np.ndarray, np.ndarray] | None:  # type: ignore[no-untyped-def]
-    """The acceptance limits as steps over the plotted concentrations ``x``: each judged level's
-    tolerance (%) held from midway to its neighbours; the step edges and the tolerances, or None
-    when no standard is judged."""
-    judged_levels = np.unique(x[verdict.judged])
-    if not judged_levels.size:
-        return None
-    tol_at = np.array([verdict.tolerance_percent[x == lv][0] for lv in judged_levels])
-    mids = (judged_levels[1:] + judged_levels[:-1]) / 2
-    spread = (judged_levels[-1] - judged_levels[0]) or abs(judged_levels[0]) or 1.0
-    edges = np.concatenate([[judged_levels[0] - 0.03 * spread], mids, [judged_levels[-1] + 0.03 * spread]])
-    return edges, tol_at
 
 
 def draw_residuals(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | None = None, log_x: bool = False,
@@ -378,237 +308,6 @@ def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem
         plot.addItem(label)
     plot.addItem(pg.PlotDataItem([grid[0], grid[-1]], [-top, top], pen=None))  # the range to show
     plot.setYRange(-top, top)
-
-
-class Canvas:
-    """A widget that is never shown, holding one plot with its legend in a column of its own to the
-    right, on which the figures of a record are drawn one after another. Clearing the plot costs
-    less than making a new one (its axes, view box and their items); :meth:`ready` leaves it as a new
-    plot starts, so that a figure drawn on it looks as one drawn on a new widget."""
-
-    def __init__(self, font_size: int = 10) -> None:
-        ensure_application()
-        self.font_size = font_size
-        self.widget = pg.GraphicsLayoutWidget()
-        self.widget.setBackground("w")
-        self.plot = self.widget.addPlot(row=0, col=0, enableMenu=False)  # never shown: no context menus to build
-        self.legend = new_legend(font_size)
-        # the room an axis starts with for its tick labels; it grows to fit them, and shrinks again only
-        # when they need clearly less, so a cleared plot must start from it again
-        self._text_room = {side: (self.plot.getAxis(side).textWidth, self.plot.getAxis(side).textHeight)
-                           for side in ("left", "bottom")}
-        self._drawn = False
-
-    def ready(self, width: int, height: int) -> None:
-        """Clear the last figure and size the widget to ``width`` × ``height`` pixels for the next one:
-        no items, no legend entries, the range found automatically again, the axes with their own ticks
-        and the room for tick labels a new plot starts with."""
-        if self._drawn:
-            self.plot.clear()
-            self.legend.clear()
-            view = self.plot.getViewBox()
-            view.setRange(xRange=(0, 1), yRange=(0, 1), padding=0)  # the range a new view box starts with
-            view.enableAutoRange()
-            for side, (text_width, text_height) in self._text_room.items():
-                axis = self.plot.getAxis(side)
-                axis.setTicks(None)
-                axis.textWidth, axis.textHeight = text_width, text_height
-                # a new axis shows no label and scales nothing: with its label hidden, the scale
-                # :func:`styled_plot` keeps when it turns the SI prefix off is 1 again, not one worked
-                # out from the last figure's range
-                axis.showLabel(False)
-                axis.enableAutoSIPrefix(True)
-        self._drawn = True
-        self.widget.resize(width, height)
-
-    def close(self) -> None:
-        self.widget.deleteLater()
-
-
-def laid_out(draw, a: AnalyteResult, width: int, height: int, *, canvas: Canvas | None = None,
-             **options) -> pg.GraphicsLayoutWidget:  # type: ignore[no-untyped-def]
-    """One view drawn by ``draw`` (one of the ``draw_*`` functions) in a widget of ``width`` × ``height``
-    pixels that is never shown, its legend in a column of its own to the right of the plot, and laid out
-    as a shown one is: the axes sized to their tick labels, the data range fitted with 4 % padding.
-    With ``canvas``, the view is drawn on its widget (cleared first) instead of a new one.
-
-    The axes measure their labels as they do before they paint (on a recording, with their tick font);
-    measuring, laying out and fitting the range are repeated until the axes keep their size, so nothing
-    is painted on a screen to get there."""
-    ensure_application()
-    from PySide6.QtWidgets import QApplication
-
-    if canvas is None or canvas.font_size != int(options.get("font_size", 10)):
-        canvas = Canvas(int(options.get("font_size", 10)))
-    canvas.ready(width, height)
-    widget, plot, legend = canvas.widget, canvas.plot, canvas.legend
-    draw(plot, a, legend=legend, **options)
-    legend_beside(widget.ci, legend, row=0)
-    widget.resizeEvent(None)  # the layout takes the widget's size, as when it is first shown
-    QApplication.processEvents()
-    kept = _measure_axes(plot)
-    QApplication.processEvents()
-    plot.getViewBox().autoRange(padding=0.04)
-    QApplication.processEvents()
-    sizes = _measure_axes(plot)
-    for _ in range(4):  # new ticks may need wider labels, which narrow the plot: until the axes settle
-        if sizes == kept:
-            # the axes kept the room they had when the layout was last settled: the plot keeps its
-            # size and its ticks, so measuring again would find the same
-            break
-        QApplication.processEvents()
-        kept, sizes = sizes, _measure_axes(plot)
-    return widget
-
-
-def _measure_axes(plot: pg.PlotItem) -> list[tuple[float, float]]:
-    """Let each axis measure its tick labels (what it does first when it paints), so that it asks the
-    layout for the room they take; returns the sizes the axes now keep."""
-    from PySide6.QtGui import QPainter, QPicture
-
-    sizes = []
-    for side in ("left", "bottom"):
-        axis = plot.getAxis(side)
-        recording = QPicture()
-        painter = QPainter(recording)
-        if axis.style["tickFont"]:
-            painter.setFont(axis.style["tickFont"])
-        axis.generateDrawSpecs(painter)
-        painter.end()
-        sizes.append((axis.textWidth, axis.textHeight))
-    return sizes
-
-
-def _paint_scene(widget: pg.GraphicsLayoutWidget, painter, *, vectors: bool) -> None:  # type: ignore[no-untyped-def]
-    """Paint the whole scene of ``widget`` on ``painter`` at its own size in pixels. With ``vectors``,
-    markers are drawn as shapes rather than from the on-screen cache of small images."""
-    from PySide6.QtCore import QRectF
-    from PySide6.QtGui import QPainter
-
-    scene = widget.scene()
-    whole = QRectF(0, 0, widget.width(), widget.height())
-    painter.setRenderHint(QPainter.RenderHint.Antialiasing)
-    scene.prepareForPaint()
-    items = [item for item in scene.items() if hasattr(item, "setExportMode")] if vectors else []
-    for item in items:
-        item.setExportMode(True, {"antialias": True, "background": QColor("white"), "painter": painter,
-                                  "resolutionScale": 1.0})
-    try:
-        scene.render(painter, whole, whole)
-    finally:
-        for item in items:
-            item.setExportMode(False)
-
-
-def _clip_polyline(x: np.ndarray, y: np.ndarray, box: tuple[float, float, float, float]) -> tuple[np.ndarray, np.ndarray]:
-    """The parts of the polyline (x, y) inside ``box`` = (x0, x1, y0, y1), each segment cut where it
-    crosses the box's edge (Liang–Barsky clipping); separate parts are separated by NaN."""
-    x0, x1, y0, y1 = box
-    xs: list[float] = []
-    ys: list[float] = []
-    for i in range(len(x) - 1):
-        ax, ay, bx, by = float(x[i]), float(y[i]), float(x[i + 1]), float(y[i + 1])
-        if not all(np.isfinite((ax, ay, bx, by))):
-            continue
-        dx, dy = bx - ax, by - ay
-        low, high = 0.0, 1.0
-        for p, q in ((-dx, ax - x0), (dx, x1 - ax), (-dy, ay - y0), (dy, y1 - ay)):
-            if p == 0:
-                if q < 0:
-                    low, high = 1.0, 0.0
-            elif p < 0:
-                low = max(low, q / p)
-            else:
-                high = min(high, q / p)
-        if low > high:
-            continue
-        start, end = (ax + low * dx, ay + low * dy), (ax + high * dx, ay + high * dy)
-        if not xs or (xs[-1], ys[-1]) != start:
-            if xs:
-                xs.append(np.nan)
-                ys.append(np.nan)
-            xs.append(start[0])
-            ys.append(start[1])
-        xs.append(end[0])
-        ys.append(end[1])
-    return np.asarray(xs), np.asarray(ys)
-
-
-def _trim_to_view(plot: pg.PlotItem) -> None:
-    """Cut the lines that do not set the plot's range (added with ``ignoreBounds``, such as the influence
-    limit that runs off the plot) to the plot's view, with a margin of 1 %. The view clips them as it
-    draws, so they look the same; a drawing of the figure then keeps no line outside it."""
-    view = plot.getViewBox()
-    (x0, x1), (y0, y1) = view.viewRange()
-    mx, my = 0.01 * (x1 - x0), 0.01 * (y1 - y0)
-    box = (x0 - mx, x1 + mx, y0 - my, y1 + my)
-    for item in view.childGroup.childItems():
-        if (isinstance(item, pg.PlotDataItem) and item not in view.addedItems and item.opts["pen"] is not None
-                and item.opts["symbol"] is None):
-            x, y = item.getData()
-            if x is None or not len(x):
-                continue
-            cx, cy = _clip_polyline(np.asarray(x, dtype=float), np.asarray(y, dtype=float), box)
-            item.setData(cx, cy, connect="finite")
-
-
-class Figure:
-    """One view recorded once as a drawing (lines, shapes and text, no pixels), to be painted at any size:
-    on the record's page as vectors (:meth:`paint`) or into an image (:meth:`image`).
-
-    ``width`` × ``height`` are the pixels the view was laid out in; the drawing keeps their proportions
-    and the sizes of text, lines and markers relative to them."""
-
-    def __init__(self, widget: pg.GraphicsLayoutWidget) -> None:
-        from PySide6.QtGui import QPainter, QPicture
-
-        self.width, self.height = widget.width(), widget.height()
-        _trim_to_view(widget.ci.getItem(0, 0))
-        self.picture = QPicture()
-        painter = QPainter(self.picture)
-        _paint_scene(widget, painter, vectors=True)
-        painter.end()
-
-    def paint(self, painter, rect) -> None:  # type: ignore[no-untyped-def]
-        """Draw the figure into ``rect`` (device units of ``painter``), scaled to its width."""
-        # a recording replays scaled by the device's resolution over its own (it is resolution
-        # independent), so the scale that maps its pixels onto rect is divided by that ratio
-        ratio = painter.device().logicalDpiX() / self.picture.logicalDpiX()
-        scale = rect.width() / self.width / ratio
-        painter.save()
-        painter.setClipRect(rect)
-        painter.translate(rect.left(), rect.top())
-        painter.scale(scale, scale)
-        painter.drawPicture(0, 0, self.picture)
-        painter.restore()
-
-
-def figure(draw, a: AnalyteResult, width: int = 1400, height: int = 820, *, canvas: Canvas | None = None,
-           **options) -> Figure:  # type: ignore[no-untyped-def]
-    """One view (``draw`` is one of the ``draw_*`` functions) laid out once off screen and recorded as a
-    :class:`Figure`, for the printed record; drawn on ``canvas`` when one is given (the record draws all
-    its figures on one), else on a widget of its own."""
-    widget = laid_out(draw, a, width, height, canvas=canvas, **options)
-    try:
-        return Figure(widget)
-    finally:
-        if canvas is None or widget is not canvas.widget:
-            widget.deleteLater()
-
-
-def render(draw, a: AnalyteResult, width: int = 1400, height: int = 820, **options) -> QImage:  # type: ignore[no-untyped-def]
-    """Draw one view off screen into an image (for exported plot images), its legend in a column of its
-    own to the right of the plot."""
-    from PySide6.QtGui import QPainter
-
-    widget = laid_out(draw, a, width, height, **options)
-    image = QImage(width, height, QImage.Format.Format_ARGB32_Premultiplied)  # the fast format to paint on
-    image.fill(QColor("white"))
-    painter = QPainter(image)
-    _paint_scene(widget, painter, vectors=False)
-    painter.end()
-    widget.deleteLater()
-    return image
 
 
 def plot_image_bytes(widget: QWidget, *, svg: bool = False, scale: float = 2.0) -> bytes:

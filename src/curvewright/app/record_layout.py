@@ -17,6 +17,7 @@ Figures
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 
 from PySide6.QtCore import QRectF, Qt
@@ -64,6 +65,11 @@ def font(style: str) -> QFont:
 
 
 _FONTS: dict[str, QFont] = {}
+_GLUE = re.compile("[<>≤≥–]")
+"""The characters of a word that :meth:`RecordLayout.bound_words` joins to its neighbours."""
+_FLAGS = {align: int(align | Qt.AlignmentFlag.AlignVCenter)
+          for align in (Qt.AlignmentFlag.AlignLeft, Qt.AlignmentFlag.AlignRight)}
+"""The drawing flags of a line of text aligned left or right, centred in its box's height."""
 
 
 @dataclass
@@ -98,7 +104,7 @@ class ImageOp:
 
 @dataclass
 class FigureOp:
-    """A figure that paints itself into a rectangle (:class:`curvewright.app.figures.Figure`: vectors)."""
+    """A figure that paints itself into a rectangle (:class:`curvewright.app.record_figures.PlottedFigure`: vectors)."""
 
     rect: QRectF
     figure: object
@@ -128,6 +134,19 @@ class Metrics:
     def line_height(self, style: str) -> float:
         return self.metrics[style].lineSpacing()
 
+    def surely_within(self, style: str, text: str, width: float) -> bool:
+        """True when ``text`` is certainly no wider than ``width`` without measuring it: even at twice the
+        widest character of the font for each of its characters (a character drawn from another font
+        is never twice as wide as the widest of this one)."""
+        return 2 * len(text) * self.widest[style] <= width
+
+    @property
+    def widest(self) -> dict[str, float]:
+        found = self.__dict__.get("_widest")
+        if found is None:
+            found = self.__dict__["_widest"] = {name: m.maxWidth() for name, m in self.metrics.items()}
+        return found
+
 
 class RecordLayout:
     """Places blocks on pages; :meth:`paint` then draws them with the running header and footer."""
@@ -140,7 +159,8 @@ class RecordLayout:
         self.width = self.right - self.left
         self.pages: list[Page] = []
         self.section = ""
-        self._text_style = ""
+        self._font_style = ""  # the style whose font the painter holds ("" for none)
+        self._pen = None  # what the painter's pen is: a text style's colour, or a rule's (colour, width)
         self.new_page()
 
     # --- pages -------------------------------------------------------------------------------------
@@ -170,20 +190,41 @@ class RecordLayout:
         lines: list[str] = []
         for paragraph in str(text).split("\n"):
             whole = " ".join(self.bound_words(paragraph))
-            if self.m.width(style, whole) <= width:
+            measured = self.m.width(style, whole)
+            if measured <= width:
                 # it fits on one line (most cells and captions): so does every word and every start of
                 # it, and the line found word by word would be this one
                 lines.append(whole)
                 continue
-            line = ""
-            for token in self.tokens(style, paragraph, width):
-                candidate = token if not line else f"{line} {token}"
-                if self.m.width(style, candidate) <= width or not line:
-                    line = candidate
-                else:
-                    lines.append(line)
-                    line = token
-            lines.append(line)
+            lines += self._greedy(style, self.tokens(style, paragraph, width), width, measured / max(len(whole), 1))
+        return lines
+
+    def _greedy(self, style: str, tokens: list[str], width: float, per_character: float) -> list[str]:
+        """``tokens`` set line by line, each line as many tokens as fit in ``width`` (at least one).
+
+        The line that fits is first estimated at ``per_character`` (the paragraph's mean width of a
+        character, space included), then checked by measuring it whole, and the line with one more
+        token, moving the end until the one fits and the other does not: lines are the same as found
+        by measuring every start of the line token by token (a longer start never measures narrower),
+        with a few measurements a line instead of one a word."""
+        widths = [len(t) * per_character for t in tokens]
+        space = per_character
+        lines: list[str] = []
+        start = 0
+        while start < len(tokens):
+            # the estimate: tokens start..end-1 joined by spaces, summed
+            end, used = start + 1, widths[start]
+            while end < len(tokens) and used + space + widths[end] <= width:
+                used += space + widths[end]
+                end += 1
+            # checked against the measured lines: move the end back while the line is too wide, then on
+            # while the line with one more token still fits
+            while end - start > 1 and self.m.width(style, " ".join(tokens[start:end])) > width:
+                end -= 1
+            while end < len(tokens) and self.m.width(style, " ".join(tokens[start:end + 1])) <= width:
+                end += 1
+            lines.append(" ".join(tokens[start:end]))
+            start = end
         return lines
 
     def tokens(self, style: str, text: str, width: float) -> list[str]:
@@ -192,7 +233,7 @@ class RecordLayout:
         them, else between characters (only ever a path or a hash, never a word of prose or a number)."""
         out = []
         for word in self.bound_words(text):
-            if self.m.width(style, word) <= width:
+            if self.m.surely_within(style, word, width) or self.m.width(style, word) <= width:
                 out.append(word)
                 continue
             piece = ""
@@ -214,6 +255,8 @@ class RecordLayout:
     def bound_words(text: str) -> list[str]:
         """Words, with a lone comparison sign joined to the word after it and a lone dash to the
         words on both sides (joined by no-break spaces)."""
+        if _GLUE.search(text) is None:  # no sign and no dash: the words as they are (most cells)
+            return text.split()
         words: list[str] = []
         glue_next = False
         for word in text.split():
@@ -250,25 +293,42 @@ class RecordLayout:
     def table(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool],
               note: str = "") -> None:
         """A table in column groups that fit the page, rows never split, the header repeated."""
-        for group, group_title in self._column_groups(title, headings, rows):
+        # each column's narrowest and natural widths, measured once for the groups and their parts
+        columns = [self._column_widths(h, [r[c] for r in rows]) for c, h in enumerate(headings)]
+        for group, group_title in self._column_groups(title, headings, [m for m, _ in columns]):
             self._table_part(group_title, [headings[c] for c in group], [[r[c] for c in group] for r in rows],
-                             [numeric[c] for c in group])
+                             [numeric[c] for c in group], [columns[c] for c in group])
         if note:
             self.paragraph(note, "small")
 
     def _min_width(self, texts: list[str], style: str) -> float:
         """The narrowest a column can be without breaking a word."""
         limit = LONGEST_UNBROKEN * self.width
-        words = [w for t in texts for w in self.bound_words(str(t))]
-        longest = max((self.m.width(style, w) for w in words), default=0.0)
+        longest = 0.0
+        for text in texts:
+            text = str(text)
+            whole = self.m.width(style, text)
+            if whole <= longest:  # no word of it is wider than the text itself
+                continue
+            words = self.bound_words(text)
+            if len(words) == 1 and words[0] == text:
+                longest = whole
+            else:
+                longest = max(longest, max((self.m.width(style, w) for w in words), default=0.0))
         return min(longest, limit) + 2 * CELL_PAD_X + FIT_SLACK
 
     def _full_width(self, texts: list[str], style: str) -> float:
         return min(max((self.m.width(style, str(t)) for t in texts), default=0.0), 0.6 * self.width) + 2 * CELL_PAD_X
 
-    def _column_groups(self, title: str, headings: list[str], rows: list[list[str]]):  # type: ignore[no-untyped-def]
-        mins = [max(self._min_width([h], "table_header"), self._min_width([r[c] for r in rows], "table"))
-                for c, h in enumerate(headings)]
+    def _column_widths(self, heading: str, cells: list[str]) -> tuple[float, float]:
+        """A column's narrowest width (no word broken) and its natural width (each cell on one line,
+        the heading on at most about two)."""
+        narrowest = max(self._min_width([heading], "table_header"), self._min_width(cells, "table"))
+        natural = max(narrowest, self._full_width(cells, "table"),
+                      min(self._full_width([heading], "table_header"), 2.2 * narrowest))
+        return narrowest, natural
+
+    def _column_groups(self, title: str, headings: list[str], mins: list[float]):  # type: ignore[no-untyped-def]
         if sum(mins) <= self.width or len(headings) <= 2:
             return [(list(range(len(headings))), title)]
         groups, current, used = [], [0], mins[0]
@@ -282,13 +342,10 @@ class RecordLayout:
         return [(g, title if i == 0 else f"{title} (continued: {', '.join(headings[c] for c in g[1:])})")
                 for i, g in enumerate(groups)]
 
-    def _widths(self, headings: list[str], rows: list[list[str]]) -> list[float]:
-        mins, fulls = [], []
-        for c, h in enumerate(headings):
-            cells = [r[c] for r in rows]
-            mins.append(max(self._min_width([h], "table_header"), self._min_width(cells, "table")))
-            fulls.append(max(mins[-1], self._full_width(cells, "table"),
-                             min(self._full_width([h], "table_header"), 2.2 * mins[-1])))
+    def _widths(self, columns: list[tuple[float, float]]) -> list[float]:
+        """The columns' widths: natural where they all fit, else each narrowest width with a share of
+        the room that is left."""
+        mins, fulls = [m for m, _ in columns], [f for _, f in columns]
         if sum(fulls) <= self.width:
             return fulls
         spare = self.width - sum(mins)
@@ -300,16 +357,18 @@ class RecordLayout:
         lines = max(len(w) for w in wrapped)
         return lines * self.m.line_height(style) + 2 * CELL_PAD_Y, wrapped
 
-    def _table_part(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool]) -> None:
-        widths = self._widths(headings, rows)
+    def _table_part(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool],
+                    columns: list[tuple[float, float]]) -> None:
+        widths = self._widths(columns)
         header_h, header_lines = self._row_height(headings, widths, "table_header")
-        first_h = self._row_height(rows[0], widths, "table")[0] if rows else 0.0
+        first = self._row_height(rows[0], widths, "table") if rows else None
+        first_h = first[0] if first is not None else 0.0
         title_h = self.m.line_height("subheading") + 1.4 * MM
         self.ensure(title_h + header_h + first_h)
         self.paragraph(title, "subheading")
         self._header_row(widths, header_h, header_lines)
-        for row in rows:
-            h, lines = self._row_height(row, widths, "table")
+        for k, row in enumerate(rows):
+            h, lines = first if k == 0 and first is not None else self._row_height(row, widths, "table")
             if h > self.room():
                 self.new_page()
                 self.paragraph(f"{title} (continued)", "small")
@@ -377,7 +436,7 @@ class RecordLayout:
         painter = QPainter(writer)
         painter.setRenderHint(QPainter.RenderHint.Antialiasing)
         painter.setRenderHint(QPainter.RenderHint.SmoothPixmapTransform)
-        self._text_style = ""  # the style whose font and colour the painter holds ("" for none)
+        self._font_style, self._pen = "", None
         total = len(self.pages)
         for number, page in enumerate(self.pages, start=1):
             if number > 1:
@@ -389,21 +448,28 @@ class RecordLayout:
 
     def _draw(self, painter: QPainter, op) -> None:  # type: ignore[no-untyped-def]
         if isinstance(op, TextOp):
-            if op.style != self._text_style:  # a page sets many lines in one style in a row
+            # a page sets many lines in one style in a row, and a table's rows alternate text and rules:
+            # the font and pen are set only when they change
+            if op.style != self._font_style:
                 painter.setFont(font(op.style))
-                painter.setPen(QColor(STYLES[op.style][2]))
-                self._text_style = op.style
-            painter.drawText(op.rect, int(op.align | Qt.AlignmentFlag.AlignVCenter), op.text)
+                self._font_style = op.style
+            colour = STYLES[op.style][2]
+            if colour != self._pen:
+                painter.setPen(QColor(colour))
+                self._pen = colour
+            painter.drawText(op.rect, _FLAGS[op.align], op.text)
         elif isinstance(op, LineOp):
-            painter.setPen(QPen(QColor(op.colour), op.width * MM / 3))
-            self._text_style = ""
+            key = (op.colour, op.width)
+            if key != self._pen:
+                painter.setPen(QPen(QColor(op.colour), op.width * MM / 3))
+                self._pen = key
             painter.drawLine(int(op.x1), int(op.y1), int(op.x2), int(op.y2))
         elif isinstance(op, FillOp):
             painter.fillRect(op.rect, QColor(op.colour))
         elif isinstance(op, ImageOp):
             painter.drawImage(op.rect, op.image)
         elif isinstance(op, FigureOp):
-            op.figure.paint(painter, op.rect)
+            op.figure.paint(painter, op.rect)  # it leaves the painter's pen and font as it found them
 
     def _running(self, painter: QPainter, page: Page, number: int, total: int) -> None:
         line_h = self.m.line_height("running")

@@ -2,8 +2,8 @@
 
 The content is placed with :class:`curvewright.app.record_layout.RecordLayout` (measured in the
 fonts it is printed in, rows never split, headers repeated, figures scaled to the text width) and
-painted on a QPdfWriter at 300 dpi. Each figure is laid out once off screen and painted on its page
-as lines, shapes and text (:func:`curvewright.app.figures.figure`), not as an image. The PDF carries
+painted on a QPdfWriter at 300 dpi. Each figure is drawn straight on its page with QPainter as lines,
+shapes and text (:mod:`curvewright.app.record_figures`), not as an image. The PDF carries
 its title, author (the analyst), subject, creator and creation date, in the document information
 dictionary and in the XMP metadata. Works offscreen.
 """
@@ -20,14 +20,12 @@ from ..io.audit import file_sha256
 from ..io.report import (FigureSlot, PageBreak, Paragraph, PrintedTable, ReportContent, Section, SignatureLines,
                          printed)
 from ..io.result_tables import Table
-from . import figures
+from . import record_figures
+from .plotted import wide_range
 from .qt_runtime import ensure_application
 
-FIGURE_PIXELS = {"curve": (1800, 980), "residuals": (1800, 720), "influence": (1800, 720)}
-"""Pixels each figure is laid out in (its proportions, and the sizes of its text, lines and markers
-relative to it); it is printed as vectors at the text width (178 mm)."""
-FIGURE_FONT_SIZE = 20
-"""Point size of the figures' lettering as they are laid out (the figure is then scaled to the text width)."""
+FIGURE_HEIGHTS_MM = {"curve": 96.9, "residuals": 71.2, "influence": 71.2, "additions": 89.0}
+"""Height of each figure as described at the text width (178 mm): its proportions as printed."""
 
 
 def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
@@ -36,19 +34,8 @@ def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
 
     layout = RecordLayout(device, content.header or content.title, content.footer or f"Curvewright {__version__}",
                           CAUTION)
-    draw = {"curve": figures.draw_curve_with_anchors, "residuals": figures.draw_relative_errors,
-            "influence": figures.draw_influence}
     level = content.result.run.settings.confidence_level
     rule = content.result.run.settings.rounding
-    canvas = figures.Canvas(FIGURE_FONT_SIZE)  # every figure of the record is drawn on it in turn
-    try:
-        _place_blocks(content, layout, canvas, draw, level, rule)
-    finally:
-        canvas.close()
-    return layout
-
-
-def _place_blocks(content: ReportContent, layout, canvas, draw, level: float, rule) -> None:  # type: ignore[no-untyped-def]
     for block in content.blocks:
         if isinstance(block, Section):
             layout.set_section(block.text)
@@ -61,35 +48,28 @@ def _place_blocks(content: ReportContent, layout, canvas, draw, level: float, ru
             table = block if isinstance(block, PrintedTable) else printed(block, rule)
             layout.table(table.title, list(table.headings), [list(r) for r in table.rows], list(table.numeric),
                          table.note)
-        elif isinstance(block, FigureSlot) and block.kind == "additions":
-            layout.figure(additions_figure(content, block, canvas), block.caption)
         elif isinstance(block, FigureSlot):
-            analyte = content.result.analyte(block.analyte)
-            options: dict[str, object] = {"font_size": FIGURE_FONT_SIZE}
-            if block.kind == "curve":
-                options["level"] = level
-            if block.kind in ("curve", "residuals"):
-                options["log_x"] = figures.wide_range(analyte)
-            drawn = figures.figure(draw[block.kind], analyte, *FIGURE_PIXELS[block.kind], canvas=canvas, **options)
-            layout.figure(drawn, block.caption)
+            layout.figure(record_figure(content, block, level), block.caption)
         elif isinstance(block, SignatureLines):
             layout.signatures(list(block.lines))
+    return layout
 
 
-def additions_figure(content: ReportContent, block: FigureSlot, canvas=None):  # type: ignore[no-untyped-def]
-    """The standard-addition series of one sample drawn as the app's Standard additions tab draws it,
-    recorded as a :class:`figures.Figure` (painted on the page as vectors, as the other figures are);
-    drawn on ``canvas`` (a :class:`figures.Canvas`) when one is given."""
-    from .additions_view import draw_additions
-
+def record_figure(content: ReportContent, block: FigureSlot, level: float):  # type: ignore[no-untyped-def]
+    """The figure ``block`` asks for, described from the analysis (:mod:`.record_figures`): the curve,
+    the relative errors, the influence plot, or one sample's standard-addition series."""
     analyte = content.result.analyte(block.analyte)
-    series = next(s for s in analyte.additions if s.sample_id == block.sample)
-    return figures.figure(draw_additions, analyte, *ADDITIONS_PIXELS, canvas=canvas, series=series,
-                          font_size=FIGURE_FONT_SIZE)
-
-
-ADDITIONS_PIXELS = (1800, 900)
-"""Size of a standard-additions figure as laid out (pixels of its off-screen view); printed at the text width."""
+    height = FIGURE_HEIGHTS_MM[block.kind]
+    if block.kind == "curve":
+        return record_figures.curve_figure(analyte, level=level, log_x=wide_range(analyte), height=height)
+    if block.kind == "residuals":
+        return record_figures.relative_error_figure(analyte, log_x=wide_range(analyte), height=height)
+    if block.kind == "influence":
+        return record_figures.influence_figure(analyte, height=height)
+    if block.kind == "additions":
+        series = next(s for s in analyte.additions if s.sample_id == block.sample)
+        return record_figures.additions_figure(analyte, series, height=height)
+    raise ValueError(f"figure {block.kind!r} of {block.analyte}: not a figure the record draws")
 
 
 def xmp_metadata(content: ReportContent) -> bytes:

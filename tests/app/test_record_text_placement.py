@@ -1,0 +1,84 @@
+"""Placing the record's text measures lines, not every start of a line: the lines and column widths must
+be exactly those found by measuring word by word, in every style of the record, for prose, numbers,
+intervals, signs kept with their numbers and paths broken where they must be."""
+
+from __future__ import annotations
+
+import random
+
+import pytest
+from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF
+from PySide6.QtGui import QPageLayout, QPageSize, QPdfWriter
+
+from curvewright.app.record_layout import CELL_PAD_X, FIT_SLACK, LONGEST_UNBROKEN, MM, STYLES, RecordLayout
+
+WORDS = ("the", "standard", "calibration", "back-calculated", "concentration", "within", "limits", "±20", "%",
+         "0.00352587", "<", "0.50", "4.99", "–", "5.02", "mg/L", "µg/L", "LLOQ", "(ULOQ)", "QC", "1/x²", "W", "i",
+         "Mandel's", "y = 0.725615 + 0.078304·x_added", "C:/lab/runs/2026/batch_118/nitrate-N_water_linear.json",
+         "9b0e30bdf0f211a5c8723e4f95d2a61b07c3e8f1d94b2a6c5e7f8091a2b3c4d5")
+
+
+@pytest.fixture(scope="module")
+def layout(qapp):  # type: ignore[no-untyped-def]
+    data = QByteArray()
+    buffer = QBuffer(data)
+    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
+    writer = QPdfWriter(buffer)
+    writer.setResolution(300)
+    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), QPageLayout.Orientation.Portrait,
+                                     QMarginsF(0, 0, 0, 0), QPageLayout.Unit.Millimeter))
+    yield RecordLayout(writer, "header", "footer", "caution")
+    del writer
+    buffer.close()
+
+
+def word_by_word(layout: RecordLayout, style: str, text: str, width: float) -> list[str]:
+    """Lines found by measuring each start of a line, one more word at a time (the plain greedy rule)."""
+    lines: list[str] = []
+    for paragraph in text.split("\n"):
+        line = ""
+        for token in layout.tokens(style, paragraph, width):
+            candidate = token if not line else f"{line} {token}"
+            if layout.m.metrics[style].horizontalAdvance(candidate) <= width or not line:
+                line = candidate
+            else:
+                lines.append(line)
+                line = token
+        lines.append(line)
+    return lines
+
+
+def test_lines_are_those_found_word_by_word(layout) -> None:  # type: ignore[no-untyped-def]
+    rng = random.Random(20261203)
+    checked = 0
+    for style in STYLES:
+        for _ in range(40):
+            text = " ".join(rng.choice(WORDS) for _ in range(rng.randint(1, 60)))
+            if rng.random() < 0.2:
+                text = text.replace(" the ", "\nthe ", 1)
+            for width in (layout.width, 0.5 * layout.width, 0.2 * layout.width, 25 * MM):
+                assert layout.wrap(style, text, width) == word_by_word(layout, style, text, width), (style, width, text)
+                checked += 1
+    assert checked == len(STYLES) * 40 * 4
+
+
+def test_every_line_fits_and_the_next_word_would_not(layout) -> None:  # type: ignore[no-untyped-def]
+    text = " ".join(WORDS[:24] * 3)
+    width = 0.45 * layout.width
+    lines = layout.wrap("body", text, width)
+    tokens = [t for line in lines for t in line.split(" ")]
+    assert " ".join(tokens) == " ".join(layout.tokens("body", text, width))  # nothing lost or repeated
+    for line, following in zip(lines, lines[1:]):
+        assert layout.m.metrics["body"].horizontalAdvance(line) <= width
+        assert layout.m.metrics["body"].horizontalAdvance(f"{line} {following.split(' ')[0]}") > width
+
+
+def test_a_columns_narrowest_width_is_its_widest_word(layout) -> None:  # type: ignore[no-untyped-def]
+    rng = random.Random(7)
+    for style in ("table", "table_header"):
+        for _ in range(50):
+            cells = [" ".join(rng.choice(WORDS) for _ in range(rng.randint(1, 4))) for _ in range(rng.randint(1, 12))]
+            words = [w for c in cells for w in layout.bound_words(c)]
+            widest = max(layout.m.metrics[style].horizontalAdvance(w) for w in words)
+            expected = min(widest, LONGEST_UNBROKEN * layout.width) + 2 * CELL_PAD_X + FIT_SLACK
+            assert layout._min_width(cells, style) == pytest.approx(expected, rel=1e-12), cells
