@@ -2,7 +2,8 @@
 (or residuals) of the standards with the acceptance limits. Hovering a point shows its values.
 
 The view draws what :func:`figures.draw_curve`, :func:`figures.draw_relative_errors` and
-:func:`figures.draw_residuals` draw for the printed record, but its plot items are made once and
+:func:`figures.draw_residuals` draw afresh with pyqtgraph (the printed record draws its own figures
+with the painter, in ``record_figures.py``, from the same ``plotted.py`` values), but its plot items are made once and
 given new data on each redraw (an edit redraws the view): the curve, each band, each set of points
 and all the unknowns' interval bars are one item each, and a legend is rebuilt only when its
 entries change. ``tests/app/test_curve_items.py`` checks that the view looks pixel for pixel as
