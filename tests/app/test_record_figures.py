@@ -18,8 +18,8 @@ import numpy as np
 import pypdfium2 as pdfium
 import pypdfium2.raw as pdfium_c
 import pytest
-from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF, QRectF
-from PySide6.QtGui import QColor, QImage, QPageLayout, QPageSize, QPainter, QPdfWriter
+from PySide6.QtCore import QRectF
+from PySide6.QtGui import QColor, QImage, QPainter
 
 from curvewright.app import palette, record_figures, report_pdf
 from curvewright.app.plotted import wide_range
@@ -28,6 +28,7 @@ from curvewright.core.run import SampleKind
 from curvewright.core.run_analysis import analyse_run
 from curvewright.io.report import build_report
 from curvewright.io.run_document import open_run
+from tests.app.conftest import in_memory_record
 from tests.io.helpers import DEMO_RUNS, ROOT
 
 TO_PT = 72 / 300
@@ -204,22 +205,13 @@ def words_on(page) -> list[tuple[str, float, float, float, float]]:  # type: ign
 def test_in_the_written_pdf_tick_labels_and_standards_stand_where_the_axes_put_them(qapp, tmp_path, results) -> None:  # type: ignore[no-untyped-def]
     result = results["nitrate_water_linear"]
     content = build_report(result)
-    data = QByteArray()
-    buffer = QBuffer(data)
-    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
-    writer = QPdfWriter(buffer)
-    writer.setResolution(300)
-    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), QPageLayout.Orientation.Portrait,
-                                     QMarginsF(0, 0, 0, 0), QPageLayout.Unit.Millimeter))
-    layout = report_pdf.lay_out(content, writer)
-    layout.paint(writer)
-    n, op = next((n, op) for n, page in enumerate(layout.pages) for op in page.ops if isinstance(op, FigureOp))
-    figure = op.figure
-    frame = figure.frame(op.rect, writer)  # measured on the writer, as when it was painted
-    del writer
-    buffer.close()
+    with in_memory_record() as record:
+        layout = report_pdf.lay_out(content, record.writer)
+        layout.paint(record.writer)
+        n, op = next((n, op) for n, page in enumerate(layout.pages) for op in page.ops if isinstance(op, FigureOp))
+        frame = op.figure.frame(op.rect, record.writer)  # measured on the writer, as when it was painted
     path = tmp_path / "nitrate.pdf"
-    path.write_bytes(bytes(data.data()))
+    path.write_bytes(record.pdf())
     pdf = pdfium.PdfDocument(path)
     page = pdf[n]
     height = page.get_size()[1]

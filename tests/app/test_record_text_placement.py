@@ -7,10 +7,9 @@ from __future__ import annotations
 import random
 
 import pytest
-from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF
-from PySide6.QtGui import QPageLayout, QPageSize, QPdfWriter
 
 from curvewright.app.record_layout import CELL_PAD_X, FIT_SLACK, LONGEST_UNBROKEN, MM, STYLES, RecordLayout
+from tests.app.conftest import in_memory_record
 
 WORDS = ("the", "standard", "calibration", "back-calculated", "concentration", "within", "limits", "±20", "%",
          "0.00352587", "<", "0.50", "4.99", "–", "5.02", "mg/L", "µg/L", "LLOQ", "(ULOQ)", "QC", "1/x²", "W", "i",
@@ -20,16 +19,8 @@ WORDS = ("the", "standard", "calibration", "back-calculated", "concentration", "
 
 @pytest.fixture(scope="module")
 def layout(qapp):  # type: ignore[no-untyped-def]
-    data = QByteArray()
-    buffer = QBuffer(data)
-    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
-    writer = QPdfWriter(buffer)
-    writer.setResolution(300)
-    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), QPageLayout.Orientation.Portrait,
-                                     QMarginsF(0, 0, 0, 0), QPageLayout.Unit.Millimeter))
-    yield RecordLayout(writer, "header", "footer", "caution")
-    del writer
-    buffer.close()
+    with in_memory_record() as record:
+        yield RecordLayout(record.writer, "header", "footer", "caution")
 
 
 def word_by_word(layout: RecordLayout, style: str, text: str, width: float) -> list[str]:

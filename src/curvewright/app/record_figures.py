@@ -766,19 +766,18 @@ def relative_error_figure(a: AnalyteResult, *, log_x: bool = False, height: floa
     layers.append(Rule("y", 0.0, Stroke("#777777", 0.5)))
     judged = verdict.judged & np.isfinite(cal.relative_error)
     passing, failing = judged & verdict.passing, judged & ~verdict.passing
-    within = Markers(x[passing], cal.relative_error[passing], "circle", STANDARD_MM, palette.INCLUDED, WHITE_EDGE,
-                     "within limits")
-    layers.append(within)
-    legend.append(Entry("within limits", within))
-    xs.append(x[passing])
-    ys.append(cal.relative_error[passing])
+
+    def standards(which: np.ndarray, shape: str, size: float, fill: object, edge: Stroke | None, name: str) -> None:
+        """The standards ``which`` as markers named in the legend, their values held in the axes' ranges."""
+        markers = Markers(x[which], cal.relative_error[which], shape, size, fill, edge, name)
+        layers.append(markers)
+        legend.append(Entry(name, markers))
+        xs.append(markers.x)
+        ys.append(markers.y)
+
+    standards(passing, "circle", STANDARD_MM, palette.INCLUDED, WHITE_EDGE, "within limits")
     if failing.any():
-        outside = Markers(x[failing], cal.relative_error[failing], "star", STAR_MM, palette.FLAGGED, None,
-                          "outside the limits")
-        layers.append(outside)
-        legend.append(Entry("outside the limits", outside))
-        xs.append(x[failing])
-        ys.append(cal.relative_error[failing])
+        standards(failing, "star", STAR_MM, palette.FLAGGED, None, "outside the limits")
     (x0, x1), (y0, y1) = _range(xs, ys)
     return PlottedFigure(FIGURE_WIDTH_MM, height, Axis(x_title, x0, x1, log_x), Axis("%RE", y0, y1), layers, legend)
 
