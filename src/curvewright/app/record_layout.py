@@ -233,8 +233,11 @@ class RecordLayout:
         """The words of ``text``, a sign kept with the number after it ("< 0.50") and an interval kept
         whole ("4.99 – 5.02"); a word wider than ``width`` is split at "/", "_" or "-" where it has
         them, else between characters (only ever a path or a hash, never a word of prose or a number)."""
+        words = self.bound_words(text)
+        if not words or self.m.surely_within(style, max(words, key=len), width):
+            return words  # every word is certainly within the width (the longest by characters is)
         out = []
-        for word in self.bound_words(text):
+        for word in words:
             if self.m.surely_within(style, word, width) or self.m.width(style, word) <= width:
                 out.append(word)
                 continue
