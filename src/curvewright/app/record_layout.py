@@ -323,7 +323,10 @@ class RecordLayout:
         return min(longest, limit) + 2 * CELL_PAD_X + FIT_SLACK
 
     def _full_width(self, texts: list[str], style: str) -> float:
-        return min(max((self.m.width(style, str(t)) for t in texts), default=0.0), 0.6 * self.width) + 2 * CELL_PAD_X
+        """The width that sets each text on one line (up to 0.6 of the text width), with the slack that
+        keeps rounding from wrapping the widest of them."""
+        longest = max((self.m.width(style, str(t)) for t in texts), default=0.0)
+        return min(longest, 0.6 * self.width) + 2 * CELL_PAD_X + FIT_SLACK
 
     def _column_widths(self, heading: str, cells: list[str]) -> tuple[float, float]:
         """A column's narrowest width (no word broken) and its natural width (each cell on one line,
