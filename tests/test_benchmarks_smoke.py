@@ -28,6 +28,10 @@ def test_benchmark_runs_in_smoke_mode(script: Path) -> None:
         for column in ("analysis answered", "views rebuilt", "window repainted", "GUI thread CPU", "analysis CPU",
                        "scrolling the results table"):
             assert column in result.stdout, column
+    if script.stem == "bench_record":  # the record's parts, the PDF writer's own work among them
+        for part in ("building the content", "placing the tables", "drawing the figures on the pages",
+                     "the PDF writer finishing pages and the document", "writer's own work"):
+            assert part in result.stdout, part
 
 
 def test_there_is_a_benchmark_for_each_target() -> None:

@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import os
+from collections.abc import Iterator
+from contextlib import contextmanager
 from pathlib import Path
 
 import pytest
@@ -158,3 +160,33 @@ def type_keys(qtbot, widget, key, modifiers=None) -> None:  # type: ignore[no-un
         qtbot.keyClick(widget, key, modifiers)
     for held in (Qt.Key.Key_Control, Qt.Key.Key_Shift, Qt.Key.Key_Alt):
         qtbot.keyRelease(widget, held, Qt.KeyboardModifier.NoModifier)
+
+
+class InMemoryRecord:
+    """A QPdfWriter set up as the record's (``report_pdf.record_writer``: A4, no page margins, 300 dpi)
+    writing into memory; :meth:`pdf` is what it wrote once a painter on it has ended."""
+
+    def __init__(self) -> None:
+        from PySide6.QtCore import QBuffer, QByteArray, QIODevice
+
+        from curvewright.app.report_pdf import record_writer
+
+        self.data = QByteArray()
+        self.buffer = QBuffer(self.data)
+        self.buffer.open(QIODevice.OpenModeFlag.WriteOnly)
+        self.writer = record_writer(self.buffer)
+
+    def pdf(self) -> bytes:
+        return bytes(self.data.data())
+
+
+@contextmanager
+def in_memory_record() -> Iterator[InMemoryRecord]:
+    """An :class:`InMemoryRecord` for the ``with`` block; the writer is let go and the buffer closed after
+    it (the writer before its buffer)."""
+    record = InMemoryRecord()
+    try:
+        yield record
+    finally:
+        del record.writer
+        record.buffer.close()

@@ -18,8 +18,8 @@ import numpy as np
 import pypdfium2 as pdfium
 import pypdfium2.raw as pdfium_c
 import pytest
-from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF, QRectF
-from PySide6.QtGui import QColor, QImage, QPageLayout, QPageSize, QPainter, QPdfWriter
+from PySide6.QtCore import QRectF
+from PySide6.QtGui import QColor, QImage, QPainter
 
 from curvewright.app import palette, record_figures, report_pdf
 from curvewright.app.plotted import wide_range
@@ -28,6 +28,7 @@ from curvewright.core.run import SampleKind
 from curvewright.core.run_analysis import analyse_run
 from curvewright.io.report import build_report
 from curvewright.io.run_document import open_run
+from tests.app.conftest import in_memory_record
 from tests.io.helpers import DEMO_RUNS, ROOT
 
 TO_PT = 72 / 300
@@ -204,22 +205,13 @@ def words_on(page) -> list[tuple[str, float, float, float, float]]:  # type: ign
 def test_in_the_written_pdf_tick_labels_and_standards_stand_where_the_axes_put_them(qapp, tmp_path, results) -> None:  # type: ignore[no-untyped-def]
     result = results["nitrate_water_linear"]
     content = build_report(result)
-    data = QByteArray()
-    buffer = QBuffer(data)
-    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
-    writer = QPdfWriter(buffer)
-    writer.setResolution(300)
-    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), QPageLayout.Orientation.Portrait,
-                                     QMarginsF(0, 0, 0, 0), QPageLayout.Unit.Millimeter))
-    layout = report_pdf.lay_out(content, writer)
-    layout.paint(writer)
-    n, op = next((n, op) for n, page in enumerate(layout.pages) for op in page.ops if isinstance(op, FigureOp))
-    figure = op.figure
-    frame = figure.frame(op.rect, writer)  # measured on the writer, as when it was painted
-    del writer
-    buffer.close()
+    with in_memory_record() as record:
+        layout = report_pdf.lay_out(content, record.writer)
+        layout.paint(record.writer)
+        n, op = next((n, op) for n, page in enumerate(layout.pages) for op in page.ops if isinstance(op, FigureOp))
+        frame = op.figure.frame(op.rect, record.writer)  # measured on the writer, as when it was painted
     path = tmp_path / "nitrate.pdf"
-    path.write_bytes(bytes(data.data()))
+    path.write_bytes(record.pdf())
     pdf = pdfium.PdfDocument(path)
     page = pdf[n]
     height = page.get_size()[1]
@@ -375,3 +367,64 @@ def test_the_additions_figure_puts_the_intercept_and_its_interval_on_the_concent
                   and layer.stroke.style == "dash")
     assert dashed.x[0] == pytest.approx(-r.concentration, rel=1e-12) and dashed.y[0] == pytest.approx(0.0, abs=1e-9)
     assert dashed.x[1] == pytest.approx(min(series.added), rel=1e-12)
+
+
+def clipped_segment_by_segment(x, y, box):  # type: ignore[no-untyped-def]
+    """The clipped polyline as it was first worked out: the segments' ends clipped over all segments at
+    once (Liang–Barsky), then joined one kept segment at a time, a NaN before each one that does not
+    start where the last one ended."""
+    x, y = np.asarray(x, float), np.asarray(y, float)
+    if x.size < 2:
+        return np.empty(0), np.empty(0)
+    x0, x1, y0, y1 = box
+    if np.all(np.isfinite(x) & np.isfinite(y) & (x >= x0) & (x <= x1) & (y >= y0) & (y <= y1)):
+        return x.copy(), y.copy()
+    ax, ay, bx, by = x[:-1], y[:-1], x[1:], y[1:]
+    ok = np.isfinite(ax) & np.isfinite(ay) & np.isfinite(bx) & np.isfinite(by)
+    dx, dy = bx - ax, by - ay
+    low, high = np.zeros(ax.size), np.ones(ax.size)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        for p, q in ((-dx, ax - x0), (dx, x1 - ax), (-dy, ay - y0), (dy, y1 - ay)):
+            ratio = q / p
+            low = np.where(p < 0, np.maximum(low, ratio), low)
+            high = np.where(p > 0, np.minimum(high, ratio), high)
+            ok &= ~((p == 0) & (q < 0))
+    ok &= low <= high
+    sx, sy, ex, ey = ax + low * dx, ay + low * dy, ax + high * dx, ay + high * dy
+    xs: list[float] = []
+    ys: list[float] = []
+    for i in np.flatnonzero(ok).tolist():
+        start, end = (float(sx[i]), float(sy[i])), (float(ex[i]), float(ey[i]))
+        if not xs or (xs[-1], ys[-1]) != start:
+            if xs:
+                xs.append(np.nan)
+                ys.append(np.nan)
+            xs.append(start[0])
+            ys.append(start[1])
+        xs.append(end[0])
+        ys.append(end[1])
+    return np.asarray(xs), np.asarray(ys)
+
+
+def test_clipping_a_line_joins_its_kept_segments_exactly_as_segment_by_segment() -> None:
+    # invented polylines: random walks across a box, with breaks (NaN), points on its edges, repeated
+    # points and lines along an edge; the parts must be the same numbers, the NaN breaks at the same places
+    rng = np.random.default_rng(20261203)
+    points = 0
+    for _ in range(6000):
+        k = int(rng.integers(0, 40))
+        x, y = rng.normal(0, 2, k), rng.normal(0, 2, k)
+        if k and rng.random() < 0.3:
+            x[rng.integers(0, k, 3)] = np.nan
+        if rng.random() < 0.2:
+            y = np.round(y)
+        if rng.random() < 0.2:
+            x = np.round(x)
+        box = (-1.0, 1.0, -1.0, 1.0) if rng.random() < 0.7 else (float(rng.integers(-2, 1)), 1.0, -1.0,
+                                                                   float(rng.integers(0, 3)))
+        got, expected = record_figures.clip_polyline(x, y, box), clipped_segment_by_segment(x, y, box)
+        for a, b in zip(got, expected):
+            assert a.dtype == b.dtype and a.shape == b.shape
+            assert np.array_equal(a, b, equal_nan=True)
+        points += got[0].size
+    assert points > 100_000  # most lines cross the box

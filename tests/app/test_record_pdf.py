@@ -25,6 +25,7 @@ from curvewright import CAUTION
 from curvewright.core.run_analysis import analyse_run
 from curvewright.io.report import PrintedTable, build_report
 from curvewright.io.run_document import open_run, save_run
+from tests.app.conftest import in_memory_record
 from tests.io.helpers import DEMO_RUNS, ICP_ELEMENTS, ROOT, many_element_run
 
 PRINTABLE_MARGIN_PT = 8 / 25.4 * 72
@@ -68,27 +69,16 @@ def printed_words(document: str) -> frozenset[str]:
 def figure_spans(document: str) -> tuple[tuple[tuple[float, float], ...], ...]:
     """For each page of the record, the vertical spans (top, bottom, in points from the page's top
     edge) of the figures on it, from the record's own layout of the same content."""
-    from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF
-    from PySide6.QtGui import QPageLayout, QPageSize, QPdfWriter
-
-    from curvewright.app.qt_runtime import ensure_application
     from curvewright.app.record_layout import FigureOp
     from curvewright.app.report_pdf import lay_out
 
-    ensure_application()
-    data = QByteArray()
-    buffer = QBuffer(data)
-    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
-    writer = QPdfWriter(buffer)
-    writer.setResolution(300)
-    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), QPageLayout.Orientation.Portrait,
-                                     QMarginsF(0, 0, 0, 0), QPageLayout.Unit.Millimeter))
-    layout = lay_out(build_report(analyse_run(open_run(Path(document)).run)), writer)
-    to_pt = 72 / 300
-    spans = tuple(tuple((op.rect.top() * to_pt, op.rect.bottom() * to_pt) for op in page.ops if isinstance(op, FigureOp))
-                  for page in layout.pages)
-    del layout, writer
-    buffer.close()
+    with in_memory_record() as record:
+        layout = lay_out(build_report(analyse_run(open_run(Path(document)).run)), record.writer)
+        to_pt = 72 / 300
+        spans = tuple(tuple((op.rect.top() * to_pt, op.rect.bottom() * to_pt) for op in page.ops
+                            if isinstance(op, FigureOp))
+                      for page in layout.pages)
+        del layout
     return spans
 
 

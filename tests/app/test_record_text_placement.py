@@ -7,10 +7,9 @@ from __future__ import annotations
 import random
 
 import pytest
-from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF
-from PySide6.QtGui import QPageLayout, QPageSize, QPdfWriter
 
 from curvewright.app.record_layout import CELL_PAD_X, FIT_SLACK, LONGEST_UNBROKEN, MM, STYLES, RecordLayout
+from tests.app.conftest import in_memory_record
 
 WORDS = ("the", "standard", "calibration", "back-calculated", "concentration", "within", "limits", "±20", "%",
          "0.00352587", "<", "0.50", "4.99", "–", "5.02", "mg/L", "µg/L", "LLOQ", "(ULOQ)", "QC", "1/x²", "W", "i",
@@ -20,16 +19,8 @@ WORDS = ("the", "standard", "calibration", "back-calculated", "concentration", "
 
 @pytest.fixture(scope="module")
 def layout(qapp):  # type: ignore[no-untyped-def]
-    data = QByteArray()
-    buffer = QBuffer(data)
-    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
-    writer = QPdfWriter(buffer)
-    writer.setResolution(300)
-    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), QPageLayout.Orientation.Portrait,
-                                     QMarginsF(0, 0, 0, 0), QPageLayout.Unit.Millimeter))
-    yield RecordLayout(writer, "header", "footer", "caution")
-    del writer
-    buffer.close()
+    with in_memory_record() as record:
+        yield RecordLayout(record.writer, "header", "footer", "caution")
 
 
 def word_by_word(layout: RecordLayout, style: str, text: str, width: float) -> list[str]:
@@ -82,3 +73,22 @@ def test_a_columns_narrowest_width_is_its_widest_word(layout) -> None:  # type: 
             widest = max(layout.m.metrics[style].horizontalAdvance(w) for w in words)
             expected = min(widest, LONGEST_UNBROKEN * layout.width) + 2 * CELL_PAD_X + FIT_SLACK
             assert layout._min_width(cells, style) == pytest.approx(expected, rel=1e-12), cells
+
+
+def test_a_table_that_fits_sets_every_cell_on_one_line(layout) -> None:  # type: ignore[no-untyped-def]
+    """Columns sized to their widest cell must never wrap that cell: the width handed to the wrapper is
+    the column's width less its padding, and rounding may not take it below the measured text."""
+    rng = random.Random(20261204)
+    checked = 0
+    for _ in range(200):
+        digits = rng.randint(3, 9)
+        cells = [f"y = {rng.uniform(0.001, 9.9):.{digits}f}·x", f"{rng.uniform(0, 500):.{rng.randint(0, 6)}f}", "1/x²"]
+        headings = ["Equation", "Value", "Weighting"]
+        pages, before = len(layout.pages), len(layout.pages[-1].ops)
+        layout.table("Fits", headings, [cells], [False, True, False])
+        if len(layout.pages) != pages:  # the table began a new page
+            before = 0
+        ops = [op for op in layout.pages[-1].ops[before:] if getattr(op, "style", "") == "table"]
+        assert [op.text for op in ops] == cells, cells
+        checked += 1
+    assert checked == 200

@@ -282,29 +282,38 @@ class _Layout:
         self.fonts = {"tick": _font(TICK_PT), "title": _font(TITLE_PT), "legend": _font(LEGEND_PT),
                       "label": _font(LABEL_PT)}
         self.metrics = {k: QFontMetricsF(f, device) for k, f in self.fonts.items()}
+        self._advances: dict[tuple[str, str], float] = {}
         mm = self.mm
         tick_h = self.metrics["tick"].height()
         title_h = self.metrics["title"].height()
         legend_w = 0.0
         if fig.legend:
-            legend_w = 7 * mm + max(self.metrics["legend"].horizontalAdvance(e.text) for e in fig.legend)
+            legend_w = 7 * mm + max(self.advance("legend", e.text) for e in fig.legend)
         self.legend_w = legend_w
         # the y axis's tick labels are measured once its ticks are known, which depend on its length only
         top = rect.top() + tick_h / 2 + 0.5 * mm
         bottom = rect.bottom() - (1.2 * mm + tick_h + 0.6 * mm + title_h + 0.3 * mm)
         self.y_ticks = self._ticks(fig.y, (bottom - top) / mm)
-        widest = max((self.metrics["tick"].horizontalAdvance(t) for _, t in self.y_ticks[0]), default=0.0)
+        widest = max((self.advance("tick", t) for _, t in self.y_ticks[0]), default=0.0)
         left = rect.left() + title_h + 1.0 * mm + widest + 1.2 * mm
         right = rect.right() - (legend_w + 3 * mm if legend_w else 0.0)
         self.x_ticks = self._ticks(fig.x, (right - left) / mm)
         # the last x label may stand out past the plot by half its width: keep it inside the rectangle
         if self.x_ticks[0] and not legend_w:
             last = self.x_ticks[0][-1]
-            half = self.metrics["tick"].horizontalAdvance(last[1]) / 2
+            half = self.advance("tick", last[1]) / 2
             overhang = left + (last[0] - fig.x.low) / (fig.x.high - fig.x.low) * (right - left) + half - rect.right()
             if overhang > 0:
                 right -= overhang
         self.frame = Frame(QRectF(left, top, right - left, bottom - top), fig.x, fig.y)
+
+    def advance(self, kind: str, text: str) -> float:
+        """The width of ``text`` in the font of ``kind`` (a tick label is measured to choose the ticks, to
+        place the plot and to centre it: once)."""
+        found = self._advances.get((kind, text))
+        if found is None:
+            found = self._advances[(kind, text)] = self.metrics[kind].horizontalAdvance(text)
+        return found
 
     def _ticks(self, axis: Axis, length_mm: float) -> tuple[list[tuple[float, str]], list[float]]:
         """(labelled ticks as (value, text), unlabelled ticks) for an axis ``length_mm`` long."""
@@ -325,7 +334,7 @@ class _Layout:
         # screen's axes' rule; a label's height counted at 80 %)
         minor_texts = [tick_text(v, minor) for v in minor_values]
         if axis is self.fig.x:
-            size = sum(self.metrics["tick"].horizontalAdvance(t) for t in [t for _, t in labelled] + minor_texts)
+            size = sum(self.advance("tick", t) for t in [t for _, t in labelled] + minor_texts)
         else:
             size = 0.8 * self.metrics["tick"].height() * (len(labelled) + len(minor_texts))
         ratio = size / (length_mm * self.mm)
@@ -436,7 +445,7 @@ class _Layout:
             painter.setPen(QColor(layer.colour))
             height = self.metrics["label"].height()
             for x, y, text in zip(f.page_x(layer.x).tolist(), f.page_y(layer.y).tolist(), layer.texts):
-                width = self.metrics["label"].horizontalAdvance(text)
+                width = self.advance("label", text)
                 box = QRectF(x + 1.2 * self.mm, y - 1.0 * self.mm - height, width, height)
                 if box.right() > plot.right():  # keep the label inside the plot: to the left of its point
                     box.moveRight(x - 1.2 * self.mm)
@@ -474,11 +483,11 @@ class _Layout:
             painter.drawLine(QPointF(plot.left() - tick / 2, py), QPointF(plot.left(), py))
         painter.setPen(QColor("#222222"))
         for px, text in labels_x:
-            width = self.metrics["tick"].horizontalAdvance(text)
+            width = self.advance("tick", text)
             painter.drawText(QRectF(px - width / 2 - 0.5 * mm, plot.bottom() + tick + 0.2 * mm, width + mm, height),
                              int(Qt.AlignmentFlag.AlignHCenter | Qt.AlignmentFlag.AlignTop), text)
         for py, text in labels_y:
-            width = self.metrics["tick"].horizontalAdvance(text)
+            width = self.advance("tick", text)
             painter.drawText(QRectF(plot.left() - tick - 0.3 * mm - width - mm, py - height / 2, width + mm, height),
                              int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter), text)
         painter.setFont(self.fonts["title"])
@@ -580,19 +589,24 @@ def clip_polyline(x: np.ndarray, y: np.ndarray, box: tuple[float, float, float, 
             ok &= ~parallel_outside
     ok &= low <= high
     sx, sy, ex, ey = ax + low * dx, ay + low * dy, ax + high * dx, ay + high * dy
-    xs: list[float] = []
-    ys: list[float] = []
-    for i in np.flatnonzero(ok).tolist():
-        start, end = (float(sx[i]), float(sy[i])), (float(ex[i]), float(ey[i]))
-        if not xs or (xs[-1], ys[-1]) != start:
-            if xs:
-                xs.append(np.nan)
-                ys.append(np.nan)
-            xs.append(start[0])
-            ys.append(start[1])
-        xs.append(end[0])
-        ys.append(end[1])
-    return np.asarray(xs), np.asarray(ys)
+    kept = np.flatnonzero(ok)
+    if not kept.size:
+        return np.empty(0), np.empty(0)
+    sx, sy, ex, ey = sx[kept], sy[kept], ex[kept], ey[kept]
+    # a kept segment that starts where the one before it ends continues its part (its end is added);
+    # any other starts a new part (NaN, unless it is the first, then its start and its end)
+    goes_on = np.zeros(kept.size, dtype=bool)
+    goes_on[1:] = (sx[1:] == ex[:-1]) & (sy[1:] == ey[:-1])
+    counts = np.where(goes_on, 1, 3)
+    counts[0] = 2
+    last = np.cumsum(counts) - 1  # where each segment's end goes
+    begins = ~goes_on
+    out_x, out_y = np.empty(int(last[-1]) + 1), np.empty(int(last[-1]) + 1)
+    out_x[last], out_y[last] = ex, ey
+    out_x[last[begins] - 1], out_y[last[begins] - 1] = sx[begins], sy[begins]
+    gaps = last[begins][1:] - 2
+    out_x[gaps], out_y[gaps] = np.nan, np.nan
+    return out_x, out_y
 
 
 # --- the figures ---------------------------------------------------------------------------------------
@@ -752,19 +766,18 @@ def relative_error_figure(a: AnalyteResult, *, log_x: bool = False, height: floa
     layers.append(Rule("y", 0.0, Stroke("#777777", 0.5)))
     judged = verdict.judged & np.isfinite(cal.relative_error)
     passing, failing = judged & verdict.passing, judged & ~verdict.passing
-    within = Markers(x[passing], cal.relative_error[passing], "circle", STANDARD_MM, palette.INCLUDED, WHITE_EDGE,
-                     "within limits")
-    layers.append(within)
-    legend.append(Entry("within limits", within))
-    xs.append(x[passing])
-    ys.append(cal.relative_error[passing])
+
+    def standards(which: np.ndarray, shape: str, size: float, fill: object, edge: Stroke | None, name: str) -> None:
+        """The standards ``which`` as markers named in the legend, their values held in the axes' ranges."""
+        markers = Markers(x[which], cal.relative_error[which], shape, size, fill, edge, name)
+        layers.append(markers)
+        legend.append(Entry(name, markers))
+        xs.append(markers.x)
+        ys.append(markers.y)
+
+    standards(passing, "circle", STANDARD_MM, palette.INCLUDED, WHITE_EDGE, "within limits")
     if failing.any():
-        outside = Markers(x[failing], cal.relative_error[failing], "star", STAR_MM, palette.FLAGGED, None,
-                          "outside the limits")
-        layers.append(outside)
-        legend.append(Entry("outside the limits", outside))
-        xs.append(x[failing])
-        ys.append(cal.relative_error[failing])
+        standards(failing, "star", STAR_MM, palette.FLAGGED, None, "outside the limits")
     (x0, x1), (y0, y1) = _range(xs, ys)
     return PlottedFigure(FIGURE_WIDTH_MM, height, Axis(x_title, x0, x1, log_x), Axis("%RE", y0, y1), layers, legend)
 

@@ -70,6 +70,7 @@ _GLUE = re.compile("[<>≤≥–]")
 _FLAGS = {align: int(align | Qt.AlignmentFlag.AlignVCenter)
           for align in (Qt.AlignmentFlag.AlignLeft, Qt.AlignmentFlag.AlignRight)}
 """The drawing flags of a line of text aligned left or right, centred in its box's height."""
+_LEFT, _RIGHT = Qt.AlignmentFlag.AlignLeft, Qt.AlignmentFlag.AlignRight
 
 
 @dataclass
@@ -122,6 +123,7 @@ class Metrics:
     def __init__(self, device) -> None:  # type: ignore[no-untyped-def]
         self.metrics = {name: QFontMetricsF(font(name), device) for name in STYLES}
         self._widths: dict[tuple[str, str], float] = {}
+        self._line_heights = {name: m.lineSpacing() for name, m in self.metrics.items()}
 
     def width(self, style: str, text: str) -> float:
         # a record measures the same words many times over (wrapping, column widths, row heights)
@@ -132,7 +134,7 @@ class Metrics:
         return found
 
     def line_height(self, style: str) -> float:
-        return self.metrics[style].lineSpacing()
+        return self._line_heights[style]
 
     def surely_within(self, style: str, text: str, width: float) -> bool:
         """True when ``text`` is certainly no wider than ``width`` without measuring it: even at twice the
@@ -231,8 +233,11 @@ class RecordLayout:
         """The words of ``text``, a sign kept with the number after it ("< 0.50") and an interval kept
         whole ("4.99 – 5.02"); a word wider than ``width`` is split at "/", "_" or "-" where it has
         them, else between characters (only ever a path or a hash, never a word of prose or a number)."""
+        words = self.bound_words(text)
+        if not words or self.m.surely_within(style, max(words, key=len), width):
+            return words  # every word is certainly within the width (the longest by characters is)
         out = []
-        for word in self.bound_words(text):
+        for word in words:
             if self.m.surely_within(style, word, width) or self.m.width(style, word) <= width:
                 out.append(word)
                 continue
@@ -318,7 +323,10 @@ class RecordLayout:
         return min(longest, limit) + 2 * CELL_PAD_X + FIT_SLACK
 
     def _full_width(self, texts: list[str], style: str) -> float:
-        return min(max((self.m.width(style, str(t)) for t in texts), default=0.0), 0.6 * self.width) + 2 * CELL_PAD_X
+        """The width that sets each text on one line (up to 0.6 of the text width), with the slack that
+        keeps rounding from wrapping the widest of them."""
+        longest = max((self.m.width(style, str(t)) for t in texts), default=0.0)
+        return min(longest, 0.6 * self.width) + 2 * CELL_PAD_X + FIT_SLACK
 
     def _column_widths(self, heading: str, cells: list[str]) -> tuple[float, float]:
         """A column's narrowest width (no word broken) and its natural width (each cell on one line,
@@ -360,6 +368,8 @@ class RecordLayout:
     def _table_part(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool],
                     columns: list[tuple[float, float]]) -> None:
         widths = self._widths(columns)
+        line_h = self.m.line_height("table")
+        aligns = [_RIGHT if right else _LEFT for right in numeric]
         header_h, header_lines = self._row_height(headings, widths, "table_header")
         first = self._row_height(rows[0], widths, "table") if rows else None
         first_h = first[0] if first is not None else 0.0
@@ -373,12 +383,11 @@ class RecordLayout:
                 self.new_page()
                 self.paragraph(f"{title} (continued)", "small")
                 self._header_row(widths, header_h, header_lines)
-            x = self.left
-            for w, cell_lines, right in zip(widths, lines, numeric):
+            x, top, page = self.left, self.y + CELL_PAD_Y, self.pages[-1].ops
+            for w, cell_lines, align in zip(widths, lines, aligns):
                 for k, line in enumerate(cell_lines):
-                    rect = QRectF(x + CELL_PAD_X, self.y + CELL_PAD_Y + k * self.m.line_height("table"),
-                                  w - 2 * CELL_PAD_X, self.m.line_height("table"))
-                    self.add(TextOp(rect, "table", line, Qt.AlignmentFlag.AlignRight if right else Qt.AlignmentFlag.AlignLeft))
+                    page.append(TextOp(QRectF(x + CELL_PAD_X, top + k * line_h, w - 2 * CELL_PAD_X, line_h), "table",
+                                       line, align))
                 x += w
             self.y += h
             self.add(LineOp(self.left, self.y, self.left + sum(widths), self.y, "#cccccc", 0.5))

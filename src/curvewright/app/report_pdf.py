@@ -91,23 +91,33 @@ def xmp_metadata(content: ReportContent) -> bytes:
     ).encode("utf-8")
 
 
+def record_writer(device):  # type: ignore[no-untyped-def]
+    """A QPdfWriter writing to ``device`` (an open QIODevice) as the record is written: A4 portrait with
+    no page margins (the layout keeps its own), at 300 dpi (what :mod:`.record_layout` measures in)."""
+    ensure_application()
+    from PySide6.QtCore import QMarginsF
+    from PySide6.QtGui import QPageLayout, QPageSize, QPdfWriter
+
+    writer = QPdfWriter(device)
+    writer.setResolution(300)
+    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), QPageLayout.Orientation.Portrait,
+                                     QMarginsF(0, 0, 0, 0), QPageLayout.Unit.Millimeter))
+    return writer
+
+
 def pdf_bytes(content: ReportContent) -> bytes:
     ensure_application()
-    from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF
-    from PySide6.QtGui import QPageLayout, QPageSize, QPdfWriter
+    from PySide6.QtCore import QBuffer, QByteArray, QIODevice
 
     data = QByteArray()
     buffer = QBuffer(data)
     buffer.open(QIODevice.OpenModeFlag.WriteOnly)
-    writer = QPdfWriter(buffer)
+    writer = record_writer(buffer)
     writer.setTitle(content.title)
     writer.setCreator(f"Curvewright {__version__}")
     if hasattr(writer, "setAuthor"):  # Qt 6.8 and later
         writer.setAuthor(content.author)
     writer.setDocumentXmpMetadata(xmp_metadata(content))
-    writer.setResolution(300)
-    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), QPageLayout.Orientation.Portrait,
-                                     QMarginsF(0, 0, 0, 0), QPageLayout.Unit.Millimeter))
     layout = lay_out(content, writer)
     layout.paint(writer)
     del writer
