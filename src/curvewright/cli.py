@@ -240,6 +240,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
     if not argv or argv[0] == "--demo" or (argv[0] not in COMMANDS and not argv[0].startswith("-")):
         return open_app(argv)
+    _one_blas_thread()
     parser = build_parser(argv[0] if argv[0] in COMMANDS else None)
     args = parser.parse_args(argv)
     if args.command is None:
@@ -264,6 +265,17 @@ def main(argv: Sequence[str] | None = None) -> int:
         print(f"curvewright: internal error: {exc!r}; please report this with the input file.", file=sys.stderr)
         traceback.print_exc(file=sys.stderr)
         return EXIT_INTERNAL
+
+
+def _one_blas_thread() -> None:
+    """Ask the linear algebra library numpy and scipy load for one thread, unless the user chose.
+
+    A command fits small matrices (a few columns, the standards as rows) and quantifies elementwise,
+    where a pool of threads does no work; starting the pools of numpy's and scipy's libraries costs
+    about 0.1 s of CPU at every start, and forked pool processes would not keep them anyway. Only
+    where numpy is not loaded yet (a command started afresh); the app decides for itself."""
+    if "numpy" not in sys.modules:
+        os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
 
 def open_app(argv: list[str]) -> int:
@@ -366,43 +378,92 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
     settings = _options(args)
     if args.jobs > 1 and len(paths) > 1:
         import multiprocessing
-        from concurrent.futures import ProcessPoolExecutor
 
-        # Each process sends back its runs' JSON text, written as it will stand in the list, rather
-        # than the results to be written here one after the other; runs go out in chunks, a few per
-        # process at a time, so that the processes stay busy without a round trip per run. Where
-        # processes can be forked, the modules an analysis needs are loaded here first, once, and
-        # the pool processes start with them loaded instead of each importing them again.
-        # The first run is analysed here too, which loads what its analysis asks for on the way
-        # (not when a record is drawn: Qt is not loaded in a process that is then forked).
+        # Each pool process sends back its runs' JSON text, written as it will stand in the list,
+        # rather than the results to be written here one after the other; runs go out in chunks, so
+        # that the processes stay busy without a round trip per run. Where processes can be forked,
+        # the modules an analysis needs are loaded here first, once, and the pool processes start
+        # with them loaded instead of each importing them again; this process is then one of the
+        # --jobs: it analyses the first run (which loads what its analysis asks for on the way) and
+        # then takes chunks from the end of the list that no pool process has started, while the
+        # other --jobs - 1 processes work from the front (not when a record is drawn: Qt is not
+        # loaded in a process that is then forked, so all the runs go to the pool).
         # Forking is left to Linux: on macOS a forked process may crash in the system's own libraries,
         # which is why Python starts processes afresh there (as on Windows, and here everywhere else).
         forked = sys.platform.startswith("linux") and "fork" in multiprocessing.get_all_start_methods()
+        works_here = forked and not settings["report"]
         outcomes = []
         if forked:
             _load_for_runs(settings)
-            if not settings["report"]:
-                outcomes.append(_quantify_file_in_list(paths[0], settings))
-                if progress:
-                    progress.step(paths[0].name)
-        rest = paths[len(outcomes):]
-        chunk = max(1, min(16, len(rest) // (4 * args.jobs)))
-        with ProcessPoolExecutor(max_workers=args.jobs,
-                                 mp_context=multiprocessing.get_context("fork" if forked else "spawn")) as pool:
-            for path, outcome in zip(rest, pool.map(_quantify_file_in_list, rest, [settings] * len(rest),
-                                                    chunksize=chunk)):
-                outcomes.append(outcome)
-                if progress:
-                    progress.step(path.name)
-    else:
-        outcomes = []
-        for path in paths:
-            outcomes.append(_quantify_file(path, settings))
+        if works_here:
+            outcomes.append(_quantify_file_in_list(paths[0], settings))
             if progress:
-                progress.step(path.name)
+                progress.step(paths[0].name)
+        rest = paths[len(outcomes):]
+        workers = args.jobs - 1 if works_here else args.jobs
+        if rest and workers > 0:
+            outcomes += _share_runs(rest, settings, workers, works_here, forked, progress)
+        else:
+            outcomes += [_quantify_in_list_shown(path, settings, progress) for path in rest]
+    else:
+        outcomes = [_quantify_in_list_shown(path, settings, progress, in_list=False) for path in paths]
     if progress:
         progress.done()
     return outcomes
+
+
+def _quantify_in_list_shown(path: Path, settings: dict[str, Any], progress: _Progress | None, *,
+                            in_list: bool = True) -> Outcome:
+    outcome = (_quantify_file_in_list if in_list else _quantify_file)(path, settings)
+    if progress:
+        progress.step(path.name)
+    return outcome
+
+
+def _share_runs(paths: list[Path], settings: dict[str, Any], workers: int, works_here: bool, forked: bool,
+                progress: _Progress | None) -> list[Outcome]:
+    """The outcomes of ``paths`` in their order, analysed by ``workers`` pool processes and, when
+    ``works_here``, by this process too.
+
+    The runs go to the pool in chunks. A chunk that no pool process has started yet can still be
+    withdrawn from the pool (its future cancelled); this process withdraws chunks from the end of
+    the list one at a time and analyses them itself, until the pool has started the next one."""
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+
+    processes = workers + (1 if works_here else 0)
+    size = max(1, min(16, len(paths) // (4 * processes)))
+    chunks = [paths[i:i + size] for i in range(0, len(paths), size)]
+    done_here: dict[int, list[Outcome]] = {}
+    shown = 0
+
+    def show_finished(futures) -> None:  # type: ignore[no-untyped-def]
+        """Step the progress bar over the pool's chunks that are finished, in the list's order."""
+        nonlocal shown
+        while progress and shown < len(chunks) and (shown in done_here or futures[shown].done()):
+            for path in chunks[shown]:
+                progress.step(path.name)
+            shown += 1
+
+    with ProcessPoolExecutor(max_workers=workers,
+                             mp_context=multiprocessing.get_context("fork" if forked else "spawn")) as pool:
+        futures = [pool.submit(_quantify_chunk, chunk, settings) for chunk in chunks]
+        if works_here:
+            for k in range(len(chunks) - 1, -1, -1):
+                if not futures[k].cancel():
+                    break
+                done_here[k] = [_quantify_file_in_list(path, settings) for path in chunks[k]]
+                show_finished(futures)
+        outcomes: list[Outcome] = []
+        for k in range(len(chunks)):
+            outcomes += done_here[k] if k in done_here else futures[k].result()
+            show_finished(futures)
+    return outcomes
+
+
+def _quantify_chunk(paths: list[Path], options: dict[str, Any]) -> list[Outcome]:
+    """Runs analysed one after the other in a pool process (:func:`_quantify_file_in_list`)."""
+    return [_quantify_file_in_list(path, options) for path in paths]
 
 
 def _load_for_runs(options: dict[str, Any]) -> None:
