@@ -28,6 +28,10 @@ def test_benchmark_runs_in_smoke_mode(script: Path) -> None:
         for column in ("analysis answered", "views rebuilt", "window repainted", "GUI thread CPU", "analysis CPU",
                        "scrolling the results table"):
             assert column in result.stdout, column
+    if script.stem == "bench_cli_start":  # CPU beside wall time, and the floor under the command's one BLAS thread
+        assert "CPU ratio" in result.stdout and "one BLAS thread" in result.stdout
+    if script.stem == "bench_many_runs":  # each side's CPU time beside its wall time
+        assert "CPU time (median)" in result.stdout
 
 
 def test_there_is_a_benchmark_for_each_target() -> None:
