@@ -495,7 +495,7 @@ def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
     try:
         opened = open_run(path)
         notes = [f"warning: {p}" for p in opened.integrity_problems]
-        return _quantify(opened.run, options, source=path, notes=notes)
+        return _quantify(opened.run, options, source=path, notes=notes, chain=(opened.run, opened.chain_problems))
     except (CurvewrightError, OSError, InputError) as exc:
         return Outcome(EXIT_INPUT, "", None, f"{path}: {exc}")
     except Exception as exc:  # noqa: BLE001 - reported as an internal error with its trace
@@ -771,10 +771,11 @@ def _table(path: str, sheet: str | None):  # type: ignore[no-untyped-def]
 def _quantify(  # type: ignore[no-untyped-def]
     run, options: dict[str, Any], *, source: Path | None, notes: list[str],
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
-    unusable: Sequence[tuple[str, Any]] = (),
+    unusable: Sequence[tuple[str, Any]] = (), chain: tuple[Any, tuple[str, ...]] | None = None,
 ) -> Outcome:
     """Analyse, export and report one run. ``choices`` says how each analyte's model was chosen
-    (default: from the run document, or the command line when --model/--weighting override it)."""
+    (default: from the run document, or the command line when --model/--weighting override it);
+    ``chain`` is a run and what checking its audit trail found (:func:`result_json`)."""
     from .core.run_analysis import analyse_run
     from .io.atomic import ensure_not_input
     from .io.run_document import append_to_run_document
@@ -816,7 +817,7 @@ def _quantify(  # type: ignore[no-untyped-def]
     code = EXIT_ACCEPTED if result.accepted else EXIT_REJECTED
     if options["json"]:
         data = result_json(result, source, written, choices=chosen, analyte_warnings=per_analyte, notes=notes,
-                           unusable=unusable)
+                           unusable=unusable, chain=chain)
         return Outcome(code, "", data)
     return Outcome(code, summary_text(result, source, notes, written, choices=chosen, analyte_warnings=per_analyte), None)
 
@@ -957,12 +958,14 @@ def _samples_lines(samples, rule, level: float) -> list[str]:  # type: ignore[no
 def result_json(  # type: ignore[no-untyped-def]
     result, source: Path | None, written: list[tuple[str, str, str]], *,
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
-    notes: Sequence[str] = (), unusable: Sequence[tuple[str, Any]] = (),
+    notes: Sequence[str] = (), unusable: Sequence[tuple[str, Any]] = (), chain: tuple[Any, tuple[str, ...]] | None = None,
 ) -> dict[str, Any]:
     """The results for scripts. Per analyte, ``model_chosen_by`` ("recommended", "command line",
     "run document" or "not chosen") and ``choice_reasons`` say how the model was chosen, and
     ``warnings`` what is missing (a unit, a name); ``unusable_readings`` lists the sample cells of
-    a table kept as typed."""
+    a table kept as typed. ``chain`` is a run and what :func:`.io.audit.verify_chain` found for its
+    trail when it was read: used when the results are of that very run (not of one changed since,
+    which gained audit entries), else the trail is checked here."""
     from .io.audit import verify_chain
     from .io.integrity import content_change
     from .io.model_outputs import additions_json, response_factor_json
@@ -971,7 +974,7 @@ def result_json(  # type: ignore[no-untyped-def]
     from .io.signatures import check_signatures
 
     run = result.run
-    chain_problems = verify_chain(run.audit)
+    chain_problems = chain[1] if chain is not None and chain[0] is run else verify_chain(run.audit)
     out: dict[str, Any] = {
         "run": run.name, "source": str(source) if source else None, "software_version": __version__,
         "accepted": result.accepted, "reasons": list(result.reasons), "profile": result.profile.name, "profile_caveat": result.profile.caveat or None,

@@ -344,30 +344,53 @@ def report_columns(
                                           estimated, bool(below_lod[k])))
     # every other result: one group per status case, qualifiers and dilution factor (bits follow from them)
     rest = np.flatnonzero(~over)
-    if rest.size:
-        keys = np.stack([case[rest], extra[rest], bits[rest]], axis=1)
-        factors = d[rest]
-        factor_codes, factor_of = np.unique(factors, return_inverse=True)
-        keys = np.concatenate([keys, factor_of.reshape(-1, 1)], axis=1)
-        groups, group_of = np.unique(keys, axis=0, return_inverse=True)
-        group_of = group_of.reshape(-1)
-        order = np.argsort(group_of, kind="stable")
-        bounds = np.searchsorted(group_of[order], np.arange(groups.shape[0] + 1))
-        for g, (c, x, b, f) in enumerate(groups.tolist()):
-            members = rest[order[bounds[g]:bounds[g + 1]]]
-            first = int(members[0])
-            factor = float(factor_codes[f])
-            flag, quals, texts_here = parts(b, x, factor)
-            marker = "\x00"  # stands for the rounded number in the group's text
-            value = _numeric_value(float(e[first]), factor, flag, quals, texts_here, lambda: marker, rng, unit,
-                                   estimated, c == 1)
-            rows = where[members]
-            statuses[rows] = value.status
-            words[rows] = value.words
-            shorts[rows] = value.short
-            if marker in value.text:
-                head, tail = value.text.split(marker)
-                texts[rows] = [head + t + tail for t in numbers[members].tolist()] if head or tail else numbers[members]
-            else:
-                texts[rows] = value.text
+    for c, x, b, factor, members in _groups(rest, case, extra, bits, d):
+        first = int(members[0])
+        flag, quals, texts_here = parts(b, x, factor)
+        marker = "\x00"  # stands for the rounded number in the group's text
+        value = _numeric_value(float(e[first]), factor, flag, quals, texts_here, lambda: marker, rng, unit,
+                               estimated, c == 1)
+        rows = where[members]
+        statuses[rows] = value.status
+        words[rows] = value.words
+        shorts[rows] = value.short
+        if marker in value.text:
+            head, tail = value.text.split(marker)
+            texts[rows] = [head + t + tail for t in numbers[members].tolist()] if head or tail else numbers[members]
+        else:
+            texts[rows] = value.text
     return ReportedColumns(statuses.tolist(), texts.tolist(), words.tolist(), shorts.tolist(), bits_out, suggested)
+
+
+_FEW = 256
+"""Up to this many results are grouped in a dictionary; more, over arrays (the same groups)."""
+
+
+def _groups(rest: np.ndarray, case: np.ndarray, extra: np.ndarray, bits: np.ndarray, d: np.ndarray,
+            ) -> list[tuple[int, int, int, float, np.ndarray]]:
+    """The results ``rest`` (positions in the numeric results) grouped by status case, qualifier bits,
+    flag bits and dilution factor: (case, qualifiers, bits, dilution factor, the members in ascending
+    order) per group. A few results are grouped in a dictionary, many over arrays; the groups and
+    their members are the same either way, and only their order may differ, which the caller does
+    not depend on (each result is written in its own place)."""
+    if rest.size == 0:
+        return []
+    if rest.size <= _FEW:
+        found: dict[tuple[int, int, int, float], list[int]] = {}
+        for k, key in zip(rest.tolist(), zip(case[rest].tolist(), extra[rest].tolist(), bits[rest].tolist(),
+                                             d[rest].tolist())):
+            members = found.get(key)
+            if members is None:
+                found[key] = [k]
+            else:
+                members.append(k)
+        return [(c, x, b, f, np.array(m, dtype=np.intp)) for (c, x, b, f), m in found.items()]
+    keys = np.stack([case[rest], extra[rest], bits[rest]], axis=1)
+    factor_codes, factor_of = np.unique(d[rest], return_inverse=True)
+    keys = np.concatenate([keys, factor_of.reshape(-1, 1)], axis=1)
+    groups, group_of = np.unique(keys, axis=0, return_inverse=True)
+    group_of = group_of.reshape(-1)
+    order = np.argsort(group_of, kind="stable")
+    bounds = np.searchsorted(group_of[order], np.arange(groups.shape[0] + 1))
+    return [(c, x, b, float(factor_codes[f]), rest[order[bounds[g]:bounds[g + 1]]])
+            for g, (c, x, b, f) in enumerate(groups.tolist())]
