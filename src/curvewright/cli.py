@@ -790,6 +790,10 @@ def _quantify(  # type: ignore[no-untyped-def]
     if run.settings.method is not None and (model or weighting):
         run, model, weighting = _depart_from_method(run, model, weighting, options)
     names = tuple(options["analyte"]) if options["analyte"] else None
+    if len(run.samples) > _MANY_SAMPLES and not options["record"]:  # no further edit of the run here
+        from .io.integrity import let_go_of_sample_texts
+
+        let_go_of_sample_texts(run)
     result = analyse_run(run, analytes=names, model=model, weighting=weighting)
     chosen = {a.analyte.name: _document_choice(a) for a in result.analytes}
     chosen.update(choices or {})
@@ -820,6 +824,11 @@ def _quantify(  # type: ignore[no-untyped-def]
                            unusable=unusable, chain=chain)
         return Outcome(code, "", data)
     return Outcome(code, summary_text(result, source, notes, written, choices=chosen, analyte_warnings=per_analyte), None)
+
+
+_MANY_SAMPLES = 4096
+"""A run of more samples lets go of their kept canonical texts before it is analysed
+(:func:`.io.integrity.let_go_of_sample_texts`)."""
 
 
 def _document_choice(a) -> ModelChoice:  # type: ignore[no-untyped-def]
