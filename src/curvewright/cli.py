@@ -975,12 +975,10 @@ def result_json(  # type: ignore[no-untyped-def]
     a table kept as typed. ``chain`` is a run and what :func:`.io.audit.verify_chain` found for its
     trail when it was read: used when the results are of that very run (not of one changed since,
     which gained audit entries), else the trail is checked here."""
-    from .io.audit import verify_chain
+    from .io.audit import chain_claim, verify_chain
     from .io.integrity import content_change
     from .io.model_outputs import additions_json, response_factor_json
-    from .io.result_tables import chain_claim
     from .io.results_json import Rows, finite
-    from .io.signatures import check_signatures
 
     run = result.run
     chain_problems = chain[1] if chain is not None and chain[0] is run else verify_chain(run.audit)
@@ -996,7 +994,7 @@ def result_json(  # type: ignore[no-untyped-def]
         "signatures": [{"role": c.signature.role, "name": c.signature.name, "id": c.signature.person_id,
                         "time_utc": c.signature.time_utc, "meaning": c.signature.meaning,
                         "keyed": bool(c.signature.signature), "holds": c.holds, "check": c.words}
-                       for c in check_signatures(run)],
+                       for c in _signature_checks(run)],
         "caution": CAUTION,
         "files_written": [{"kind": a, "path": p, "sha256": s} for a, p, s in written],
         "notes": list(notes),
@@ -1054,6 +1052,16 @@ def result_json(  # type: ignore[no-untyped-def]
         entry["samples"] = Rows(_SampleRows(a.sample_columns, run.settings.rounding), _as_made)
         out["analytes"].append(entry)
     return finite(out)
+
+
+def _signature_checks(run):  # type: ignore[no-untyped-def]
+    """What checking the run's signatures found (:func:`.io.signatures.check_signatures`); a run
+    without signatures has nothing to check, and the checker is not loaded for it."""
+    if not run.signatures:
+        return ()
+    from .io.signatures import check_signatures
+
+    return check_signatures(run)
 
 
 class _SampleRows:

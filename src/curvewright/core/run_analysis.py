@@ -25,10 +25,8 @@ from typing import TYPE_CHECKING, Any, Iterable, Iterator, Sequence
 import numpy as np
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
-from .addition_series import AdditionSeriesResult, analyse_additions
 from .calibration import Calibration
 from .fitting import fit
-from .checks import CheckInput, CheckVerdict, bracketing, judge_checks
 from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag
 from .limits import DetectionLimits
@@ -36,6 +34,8 @@ from .reporting import FlagBits, ReportingRange, ReportStatus, report_columns, r
 from .run import Analyte, Reading, Run, SampleKind, Standard
 
 if TYPE_CHECKING:  # pragma: no cover
+    from .addition_series import AdditionSeriesResult
+    from .checks import CheckVerdict
     from .comparison import ModelComparison
     from .method import Method
 
@@ -406,9 +406,19 @@ def analyse_run(
     return RunResult(
         run=run,
         profile=profile,
-        analytes=tuple(replace(_analyse_analyte(run, a, profile, model, weighting), additions=analyse_additions(run, a, response_value))
+        analytes=tuple(replace(_analyse_analyte(run, a, profile, model, weighting), additions=_additions(run, a))
                        for a in chosen),
     )
+
+
+def _additions(run: Run, analyte: Analyte) -> tuple["AdditionSeriesResult", ...]:
+    """The analyte's standard-addition series (:func:`.addition_series.analyse_additions`); none, and
+    nothing of them loaded, when no sample of the run was measured by standard additions."""
+    if not any(s.additions for s in run.samples):
+        return ()
+    from .addition_series import analyse_additions
+
+    return analyse_additions(run, analyte, response_value)
 
 
 def response_value(reading: Reading, internal_standard: Reading | None, ratio: bool) -> tuple[float | None, str]:
@@ -486,9 +496,13 @@ def _analyse_analyte(
     columns = _quantify_samples(run, analyte, cal, limits, rng, profile)
     check_kinds = {kind for kind in SampleKind if kind.is_check}
     check_results = [columns.result(i) for i, kind in enumerate(columns.kinds) if kind in check_kinds]
-    checks = judge_checks([CheckInput(s.sample_id, s.kind, s.run_order, s.nominal, s.reported, s.status,
-                                      s.dilution_factor, s.note) for s in check_results],
-                          profile.checks, rng, profile.name, unit)
+    checks = None  # no calibration check among the samples: none judged, and the judge is not loaded
+    if check_results:
+        from .checks import CheckInput, bracketing, judge_checks
+
+        checks = judge_checks([CheckInput(s.sample_id, s.kind, s.run_order, s.nominal, s.reported, s.status,
+                                          s.dilution_factor, s.note) for s in check_results],
+                              profile.checks, rng, profile.name, unit)
     samples: tuple[SampleResult, ...] | None = None
     qc_verdict = None
     if checks is None and SampleKind.QC in columns.kinds:  # QC samples judged over the columns
