@@ -470,7 +470,7 @@ def _load_for_runs(options: dict[str, Any]) -> None:
     """Import what analysing a run document and writing its results need (numpy, scipy and the
     engine among them), so that processes forked afterwards have them already."""
     from .core import run_analysis  # noqa: F401
-    from .io import audit, integrity, model_outputs, result_tables, results_json, run_document, signatures  # noqa: F401
+    from .io import audit, integrity, model_outputs, results_json, run_document  # noqa: F401
 
     if options.get("export"):
         from .io import csv_export, xlsx_export  # noqa: F401
@@ -975,6 +975,8 @@ def result_json(  # type: ignore[no-untyped-def]
     a table kept as typed. ``chain`` is a run and what :func:`.io.audit.verify_chain` found for its
     trail when it was read: used when the results are of that very run (not of one changed since,
     which gained audit entries), else the trail is checked here."""
+    import numpy as np
+
     from .io.audit import chain_claim, verify_chain
     from .io.integrity import content_change
     from .io.model_outputs import additions_json, response_factor_json
@@ -1011,6 +1013,10 @@ def result_json(  # type: ignore[no-untyped-def]
         cal = a.calibration
         if cal is not None:
             lof = cal.lack_of_fit
+            # each standard's numbers read from the curve's arrays once, as plain numbers
+            response, back_calculated, relative_error, leverage, cooks, studentized = (
+                np.asarray(column).tolist() for column in (cal.response, cal.back_calculated, cal.relative_error,
+                                                           cal.leverage, cal.cooks_distance, cal.studentized_residuals))
             entry.update({
                 "model": cal.model.value, "weighting": cal.weighting.value, "model_overridden": a.model_overridden,
                 "choice_reason": GIVEN if a.model_overridden else a.analyte.choice_reason, "equation": cal.equation(17),
@@ -1037,10 +1043,9 @@ def result_json(  # type: ignore[no-untyped-def]
                     "reporting_limit": a.reporting.reporting_limit, "basis": a.reporting.basis,
                     "note": a.reporting.note},
                 "standards": [
-                    {"id": s.id, "concentration": s.concentration, "response": cal.response[i],
-                     "back_calculated": cal.back_calculated[i], "relative_error": cal.relative_error[i],
-                     "leverage": cal.leverage[i], "cooks_distance": cal.cooks_distance[i],
-                     "studentized_residual": cal.studentized_residuals[i],
+                    {"id": s.id, "concentration": s.concentration, "response": response[i],
+                     "back_calculated": back_calculated[i], "relative_error": relative_error[i],
+                     "leverage": leverage[i], "cooks_distance": cooks[i], "studentized_residual": studentized[i],
                      "influence_flags": [f.name.lower() for f in cal.influence_flags[i]],
                      "within_limits": bool(a.verdict.passing[i]) if a.verdict and a.verdict.judged[i] else None}
                     for i, s in enumerate(a.fitted_standards)
