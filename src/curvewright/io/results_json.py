@@ -176,7 +176,11 @@ def _write(value: Any, level: int, out: list[str], flush: Callable[[], None] | N
         for key, item in value.items():
             out.append(("" if first else ",") + inner + _encode_text(str(key)) + ": ")
             first = False
-            _write(item, level + 1, out, flush)
+            plain = _PLAIN.get(type(item))
+            if plain is not None:  # a plain value written here, as _write writes it
+                out.append(plain(item))
+            else:
+                _write(item, level + 1, out, flush)
         out.append("\n" + " " * level + "}")
     elif isinstance(value, (list, tuple, Rows)):
         if len(value) == 0:
