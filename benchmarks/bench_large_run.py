@@ -8,7 +8,12 @@ process, its JSON going to a file, with its peak resident memory taken from the 
 model and weighting, the calibration fitted beforehand: the numerical work alone.
 
 Figures: wall time over the engine's time (target ≤ 5×) and peak resident memory per unknown, as
-measured and above the floor of a process that has imported numpy and scipy (target ≤ 1 KB).
+measured and above the floor of a process that has imported numpy and scipy (target ≤ 1 KB). The
+command asks for one BLAS thread (unless the user chose); the floor process is started the same
+way. Beside it, the same command on a table of one unknown: what the command holds whatever the
+number of unknowns (the modules of the model comparison among them), and the peak per unknown
+above that. The command's CPU time (user + system) is printed beside its wall time, and its bytecode
+is written in the warm-up, as an installed program has it.
 Both sides are run in interleaved rounds after a warm-up; every estimate and interval end of the
 command's JSON is compared with the engine's.
 
@@ -25,6 +30,7 @@ from __future__ import annotations
 import csv
 import json
 import os
+import resource
 import subprocess
 import sys
 import tempfile
@@ -79,14 +85,22 @@ the rest of its arguments, or only imports numpy and scipy when there are none."
 def _peak_of(arguments: list[str], stdout: Path | None, folder: Path) -> tuple[float, int]:
     """Wall seconds and peak resident bytes of one fresh process."""
     report = folder / "peak.txt"
-    env = {**os.environ, "PYTHONPATH": str(ROOT / "src")}
+    env = {**os.environ, "PYTHONPATH": str(ROOT / "src"), "OPENBLAS_NUM_THREADS": "1"}  # as the command sets it
+    env.pop("PYTHONDONTWRITEBYTECODE", None)  # an installed program has its bytecode
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.perf_counter()
     with (stdout.open("wb") if stdout else open(os.devnull, "wb")) as sink:
         result = subprocess.run([sys.executable, "-c", _PEAK_REPORTER, str(report), *arguments], stdout=sink,
                                 stderr=subprocess.DEVNULL, env=env)
     seconds = time.perf_counter() - start
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    CPU.append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
     assert result.returncode in (0, 1), f"the process ended with exit code {result.returncode}"
     return seconds, int(report.read_text(encoding="ascii")) * 1024
+
+
+CPU: list[float] = []
+"""CPU seconds (user + system) of each process started by :func:`_peak_of`, in order."""
 
 
 def run_command(standards: Path, samples: Path, out: Path) -> tuple[float, int]:
@@ -103,7 +117,8 @@ def floor_rss(folder: Path) -> int:
 def floor_parts(samples: Path, rows: list[dict], folder: Path) -> dict[str, float]:
     """Seconds of the work no command writing a JSON row per unknown can avoid (see the module)."""
     start = time.perf_counter()
-    subprocess.run([sys.executable, "-c", "import numpy, scipy.special"], check=True)
+    subprocess.run([sys.executable, "-c", "import numpy, scipy.special"], check=True,
+                   env={**os.environ, "OPENBLAS_NUM_THREADS": "1"})  # as the command starts
     process = time.perf_counter() - start
     start = time.perf_counter()
     with samples.open(encoding="utf-8", newline="") as f:
@@ -150,16 +165,22 @@ def main() -> None:
         del data, rows, order
 
         peaks: list[int] = [peak]
+        command_cpu: list[float] = []
 
         def command() -> None:
             _, p = run_command(standards, samples, out)
             peaks.append(p)
+            command_cpu.append(CPU[-1])
 
         timings = interleaved({"quantify --json (fresh process)": command,
                                "engine quantify": lambda: calibration.quantify(responses,
                                                                                level=0.95)},
                               rounds=rounds, warmup=0)
         floor = floor_rss(folder)
+        one = folder / "one"
+        one.mkdir()
+        _, one_samples, *_ = write_tables(one, 1)
+        fixed = run_command(standards, one_samples, one / "results.json")[1]
     command_time = timings["quantify --json (fresh process)"].median
     engine_time = timings["engine quantify"].median
     peak = max(peaks)
@@ -174,9 +195,12 @@ def main() -> None:
     floor_total = sum(floor_seconds.values())
     print(f"floor in all: {floor_total:.3f} s, {floor_total / engine_time:.1f}× the engine; the command is "
           f"{command_time / floor_total:.1f}× its floor")
+    print(f"CPU time of the command (user + system, median): {sorted(command_cpu)[len(command_cpu) // 2]:.2f} s")
     print(f"peak resident memory: {peak / 2**20:.0f} MiB, {peak / unknowns:.0f} B per unknown; above the "
           f"{floor / 2**20:.0f} MiB of a process that imported numpy and scipy: {(peak - floor) / unknowns:.0f} B "
           "per unknown (target ≤ 1 KB)")
+    print(f"the same command on one unknown: {fixed / 2**20:.0f} MiB ({(fixed - floor) / 2**20:.0f} MiB above that "
+          f"process, whatever the number of unknowns); above it: {(peak - fixed) / unknowns:.0f} B per unknown")
 
 
 if __name__ == "__main__":

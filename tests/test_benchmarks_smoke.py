@@ -32,6 +32,12 @@ def test_benchmark_runs_in_smoke_mode(script: Path) -> None:
         for part in ("building the content", "placing the tables", "drawing the figures on the pages",
                      "the PDF writer finishing pages and the document", "writer's own work"):
             assert part in result.stdout, part
+    if script.stem == "bench_cli_start":  # CPU beside wall time, and the floor under the command's one BLAS thread
+        assert "CPU ratio" in result.stdout and "one BLAS thread" in result.stdout
+    if script.stem == "bench_many_runs":  # each side's CPU time beside its wall time
+        assert "CPU time (median)" in result.stdout
+    if script.stem == "bench_large_run":  # the command's CPU time, and its memory above the command on one unknown
+        assert "CPU time of the command" in result.stdout and "the same command on one unknown" in result.stdout
 
 
 def test_there_is_a_benchmark_for_each_target() -> None:

@@ -10,6 +10,7 @@ lists every module the process imported. How long start-up takes is measured in
 
 from __future__ import annotations
 
+import json
 import subprocess
 import sys
 from pathlib import Path
@@ -73,6 +74,20 @@ def test_quantify_json_loads_no_front_end_and_no_optimiser() -> None:
     assert "scipy.optimize" not in names and "scipy.stats" not in names
     # what other commands use, loaded when they run: the archive commands, glob patterns, quoting
     assert not names & {"curvewright.cli_archive", "glob", "shlex"}, sorted(names & {"curvewright.cli_archive", "glob", "shlex"})
+
+
+def test_quantify_json_loads_the_parts_a_run_reaches_only() -> None:
+    """A run without calibration checks, standard additions or signatures does not load their judges,
+    and the JSON does not load the result tables (the chain's words come with the audit trail)."""
+    run = json.loads(RUN.read_text(encoding="utf-8"))
+    assert not run.get("signatures") and all(not s.get("additions") and s["kind"] in ("unknown", "qc", "blank")
+                                             for s in run["samples"])
+    names, done = imported("quantify", str(RUN), "--json")
+    assert done.returncode == 0, done.stderr[-2000:]
+    lazy = {"curvewright.core.checks", "curvewright.core.addition_series", "curvewright.core.standard_additions",
+            "curvewright.io.signatures", "curvewright.io.result_tables"}
+    assert not names & lazy, sorted(names & lazy)
+    assert json.loads(done.stdout)["chain_check"].startswith("verified")
 
 
 def test_the_lazily_loaded_parts_still_serve_their_commands(tmp_path: Path) -> None:

@@ -240,6 +240,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
     if not argv or argv[0] == "--demo" or (argv[0] not in COMMANDS and not argv[0].startswith("-")):
         return open_app(argv)
+    _one_blas_thread()
     parser = build_parser(argv[0] if argv[0] in COMMANDS else None)
     args = parser.parse_args(argv)
     if args.command is None:
@@ -264,6 +265,17 @@ def main(argv: Sequence[str] | None = None) -> int:
         print(f"curvewright: internal error: {exc!r}; please report this with the input file.", file=sys.stderr)
         traceback.print_exc(file=sys.stderr)
         return EXIT_INTERNAL
+
+
+def _one_blas_thread() -> None:
+    """Ask the linear algebra library numpy and scipy load for one thread, unless the user chose.
+
+    A command fits small matrices (a few columns, the standards as rows) and quantifies elementwise,
+    where a pool of threads does no work; starting the pools of numpy's and scipy's libraries costs
+    about 0.1 s of CPU at every start, and forked pool processes would not keep them anyway. Only
+    where numpy is not loaded yet (a command started afresh); the app decides for itself."""
+    if "numpy" not in sys.modules:
+        os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
 
 def open_app(argv: list[str]) -> int:
@@ -366,50 +378,99 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
     settings = _options(args)
     if args.jobs > 1 and len(paths) > 1:
         import multiprocessing
-        from concurrent.futures import ProcessPoolExecutor
 
-        # Each process sends back its runs' JSON text, written as it will stand in the list, rather
-        # than the results to be written here one after the other; runs go out in chunks, a few per
-        # process at a time, so that the processes stay busy without a round trip per run. Where
-        # processes can be forked, the modules an analysis needs are loaded here first, once, and
-        # the pool processes start with them loaded instead of each importing them again.
-        # The first run is analysed here too, which loads what its analysis asks for on the way
-        # (not when a record is drawn: Qt is not loaded in a process that is then forked).
+        # Each pool process sends back its runs' JSON text, written as it will stand in the list,
+        # rather than the results to be written here one after the other; runs go out in chunks, so
+        # that the processes stay busy without a round trip per run. Where processes can be forked,
+        # the modules an analysis needs are loaded here first, once, and the pool processes start
+        # with them loaded instead of each importing them again; this process is then one of the
+        # --jobs: it analyses the first run (which loads what its analysis asks for on the way) and
+        # then takes chunks from the end of the list that no pool process has started, while the
+        # other --jobs - 1 processes work from the front (not when a record is drawn: Qt is not
+        # loaded in a process that is then forked, so all the runs go to the pool).
         # Forking is left to Linux: on macOS a forked process may crash in the system's own libraries,
         # which is why Python starts processes afresh there (as on Windows, and here everywhere else).
         forked = sys.platform.startswith("linux") and "fork" in multiprocessing.get_all_start_methods()
+        works_here = forked and not settings["report"]
         outcomes = []
         if forked:
             _load_for_runs(settings)
-            if not settings["report"]:
-                outcomes.append(_quantify_file_in_list(paths[0], settings))
-                if progress:
-                    progress.step(paths[0].name)
-        rest = paths[len(outcomes):]
-        chunk = max(1, min(16, len(rest) // (4 * args.jobs)))
-        with ProcessPoolExecutor(max_workers=args.jobs,
-                                 mp_context=multiprocessing.get_context("fork" if forked else "spawn")) as pool:
-            for path, outcome in zip(rest, pool.map(_quantify_file_in_list, rest, [settings] * len(rest),
-                                                    chunksize=chunk)):
-                outcomes.append(outcome)
-                if progress:
-                    progress.step(path.name)
-    else:
-        outcomes = []
-        for path in paths:
-            outcomes.append(_quantify_file(path, settings))
+        if works_here:
+            outcomes.append(_quantify_file_in_list(paths[0], settings))
             if progress:
-                progress.step(path.name)
+                progress.step(paths[0].name)
+        rest = paths[len(outcomes):]
+        workers = args.jobs - 1 if works_here else args.jobs
+        if rest and workers > 0:
+            outcomes += _share_runs(rest, settings, workers, works_here, forked, progress)
+        else:
+            outcomes += [_quantify_in_list_shown(path, settings, progress) for path in rest]
+    else:
+        outcomes = [_quantify_in_list_shown(path, settings, progress, in_list=False) for path in paths]
     if progress:
         progress.done()
     return outcomes
+
+
+def _quantify_in_list_shown(path: Path, settings: dict[str, Any], progress: _Progress | None, *,
+                            in_list: bool = True) -> Outcome:
+    outcome = (_quantify_file_in_list if in_list else _quantify_file)(path, settings)
+    if progress:
+        progress.step(path.name)
+    return outcome
+
+
+def _share_runs(paths: list[Path], settings: dict[str, Any], workers: int, works_here: bool, forked: bool,
+                progress: _Progress | None) -> list[Outcome]:
+    """The outcomes of ``paths`` in their order, analysed by ``workers`` pool processes and, when
+    ``works_here``, by this process too.
+
+    The runs go to the pool in chunks. A chunk that no pool process has started yet can still be
+    withdrawn from the pool (its future cancelled); this process withdraws chunks from the end of
+    the list one at a time and analyses them itself, until the pool has started the next one."""
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+
+    processes = workers + (1 if works_here else 0)
+    size = max(1, min(16, len(paths) // (4 * processes)))
+    chunks = [paths[i:i + size] for i in range(0, len(paths), size)]
+    done_here: dict[int, list[Outcome]] = {}
+    shown = 0
+
+    def show_finished(futures) -> None:  # type: ignore[no-untyped-def]
+        """Step the progress bar over the pool's chunks that are finished, in the list's order."""
+        nonlocal shown
+        while progress and shown < len(chunks) and (shown in done_here or futures[shown].done()):
+            for path in chunks[shown]:
+                progress.step(path.name)
+            shown += 1
+
+    with ProcessPoolExecutor(max_workers=workers,
+                             mp_context=multiprocessing.get_context("fork" if forked else "spawn")) as pool:
+        futures = [pool.submit(_quantify_chunk, chunk, settings) for chunk in chunks]
+        if works_here:
+            for k in range(len(chunks) - 1, -1, -1):
+                if not futures[k].cancel():
+                    break
+                done_here[k] = [_quantify_file_in_list(path, settings) for path in chunks[k]]
+                show_finished(futures)
+        outcomes: list[Outcome] = []
+        for k in range(len(chunks)):
+            outcomes += done_here[k] if k in done_here else futures[k].result()
+            show_finished(futures)
+    return outcomes
+
+
+def _quantify_chunk(paths: list[Path], options: dict[str, Any]) -> list[Outcome]:
+    """Runs analysed one after the other in a pool process (:func:`_quantify_file_in_list`)."""
+    return [_quantify_file_in_list(path, options) for path in paths]
 
 
 def _load_for_runs(options: dict[str, Any]) -> None:
     """Import what analysing a run document and writing its results need (numpy, scipy and the
     engine among them), so that processes forked afterwards have them already."""
     from .core import run_analysis  # noqa: F401
-    from .io import audit, integrity, model_outputs, result_tables, results_json, run_document, signatures  # noqa: F401
+    from .io import audit, integrity, model_outputs, results_json, run_document  # noqa: F401
 
     if options.get("export"):
         from .io import csv_export, xlsx_export  # noqa: F401
@@ -434,7 +495,7 @@ def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
     try:
         opened = open_run(path)
         notes = [f"warning: {p}" for p in opened.integrity_problems]
-        return _quantify(opened.run, options, source=path, notes=notes)
+        return _quantify(opened.run, options, source=path, notes=notes, chain=(opened.run, opened.chain_problems))
     except (CurvewrightError, OSError, InputError) as exc:
         return Outcome(EXIT_INPUT, "", None, f"{path}: {exc}")
     except Exception as exc:  # noqa: BLE001 - reported as an internal error with its trace
@@ -710,10 +771,11 @@ def _table(path: str, sheet: str | None):  # type: ignore[no-untyped-def]
 def _quantify(  # type: ignore[no-untyped-def]
     run, options: dict[str, Any], *, source: Path | None, notes: list[str],
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
-    unusable: Sequence[tuple[str, Any]] = (),
+    unusable: Sequence[tuple[str, Any]] = (), chain: tuple[Any, tuple[str, ...]] | None = None,
 ) -> Outcome:
     """Analyse, export and report one run. ``choices`` says how each analyte's model was chosen
-    (default: from the run document, or the command line when --model/--weighting override it)."""
+    (default: from the run document, or the command line when --model/--weighting override it);
+    ``chain`` is a run and what checking its audit trail found (:func:`result_json`)."""
     from .core.run_analysis import analyse_run
     from .io.atomic import ensure_not_input
     from .io.run_document import append_to_run_document
@@ -728,6 +790,10 @@ def _quantify(  # type: ignore[no-untyped-def]
     if run.settings.method is not None and (model or weighting):
         run, model, weighting = _depart_from_method(run, model, weighting, options)
     names = tuple(options["analyte"]) if options["analyte"] else None
+    if len(run.samples) > _MANY_SAMPLES and not options["record"]:  # no further edit of the run here
+        from .io.integrity import let_go_of_sample_texts
+
+        let_go_of_sample_texts(run)
     result = analyse_run(run, analytes=names, model=model, weighting=weighting)
     chosen = {a.analyte.name: _document_choice(a) for a in result.analytes}
     chosen.update(choices or {})
@@ -755,9 +821,14 @@ def _quantify(  # type: ignore[no-untyped-def]
     code = EXIT_ACCEPTED if result.accepted else EXIT_REJECTED
     if options["json"]:
         data = result_json(result, source, written, choices=chosen, analyte_warnings=per_analyte, notes=notes,
-                           unusable=unusable)
+                           unusable=unusable, chain=chain)
         return Outcome(code, "", data)
     return Outcome(code, summary_text(result, source, notes, written, choices=chosen, analyte_warnings=per_analyte), None)
+
+
+_MANY_SAMPLES = 4096
+"""A run of more samples lets go of their kept canonical texts before it is analysed
+(:func:`.io.integrity.let_go_of_sample_texts`)."""
 
 
 def _document_choice(a) -> ModelChoice:  # type: ignore[no-untyped-def]
@@ -896,21 +967,23 @@ def _samples_lines(samples, rule, level: float) -> list[str]:  # type: ignore[no
 def result_json(  # type: ignore[no-untyped-def]
     result, source: Path | None, written: list[tuple[str, str, str]], *,
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
-    notes: Sequence[str] = (), unusable: Sequence[tuple[str, Any]] = (),
+    notes: Sequence[str] = (), unusable: Sequence[tuple[str, Any]] = (), chain: tuple[Any, tuple[str, ...]] | None = None,
 ) -> dict[str, Any]:
     """The results for scripts. Per analyte, ``model_chosen_by`` ("recommended", "command line",
     "run document" or "not chosen") and ``choice_reasons`` say how the model was chosen, and
     ``warnings`` what is missing (a unit, a name); ``unusable_readings`` lists the sample cells of
-    a table kept as typed."""
-    from .io.audit import verify_chain
+    a table kept as typed. ``chain`` is a run and what :func:`.io.audit.verify_chain` found for its
+    trail when it was read: used when the results are of that very run (not of one changed since,
+    which gained audit entries), else the trail is checked here."""
+    import numpy as np
+
+    from .io.audit import chain_claim, verify_chain
     from .io.integrity import content_change
     from .io.model_outputs import additions_json, response_factor_json
-    from .io.result_tables import chain_claim
     from .io.results_json import Rows, finite
-    from .io.signatures import check_signatures
 
     run = result.run
-    chain_problems = verify_chain(run.audit)
+    chain_problems = chain[1] if chain is not None and chain[0] is run else verify_chain(run.audit)
     out: dict[str, Any] = {
         "run": run.name, "source": str(source) if source else None, "software_version": __version__,
         "accepted": result.accepted, "reasons": list(result.reasons), "profile": result.profile.name, "profile_caveat": result.profile.caveat or None,
@@ -923,7 +996,7 @@ def result_json(  # type: ignore[no-untyped-def]
         "signatures": [{"role": c.signature.role, "name": c.signature.name, "id": c.signature.person_id,
                         "time_utc": c.signature.time_utc, "meaning": c.signature.meaning,
                         "keyed": bool(c.signature.signature), "holds": c.holds, "check": c.words}
-                       for c in check_signatures(run)],
+                       for c in _signature_checks(run)],
         "caution": CAUTION,
         "files_written": [{"kind": a, "path": p, "sha256": s} for a, p, s in written],
         "notes": list(notes),
@@ -940,6 +1013,10 @@ def result_json(  # type: ignore[no-untyped-def]
         cal = a.calibration
         if cal is not None:
             lof = cal.lack_of_fit
+            # each standard's numbers read from the curve's arrays once, as plain numbers
+            response, back_calculated, relative_error, leverage, cooks, studentized = (
+                np.asarray(column).tolist() for column in (cal.response, cal.back_calculated, cal.relative_error,
+                                                           cal.leverage, cal.cooks_distance, cal.studentized_residuals))
             entry.update({
                 "model": cal.model.value, "weighting": cal.weighting.value, "model_overridden": a.model_overridden,
                 "choice_reason": GIVEN if a.model_overridden else a.analyte.choice_reason, "equation": cal.equation(17),
@@ -966,10 +1043,9 @@ def result_json(  # type: ignore[no-untyped-def]
                     "reporting_limit": a.reporting.reporting_limit, "basis": a.reporting.basis,
                     "note": a.reporting.note},
                 "standards": [
-                    {"id": s.id, "concentration": s.concentration, "response": cal.response[i],
-                     "back_calculated": cal.back_calculated[i], "relative_error": cal.relative_error[i],
-                     "leverage": cal.leverage[i], "cooks_distance": cal.cooks_distance[i],
-                     "studentized_residual": cal.studentized_residuals[i],
+                    {"id": s.id, "concentration": s.concentration, "response": response[i],
+                     "back_calculated": back_calculated[i], "relative_error": relative_error[i],
+                     "leverage": leverage[i], "cooks_distance": cooks[i], "studentized_residual": studentized[i],
                      "influence_flags": [f.name.lower() for f in cal.influence_flags[i]],
                      "within_limits": bool(a.verdict.passing[i]) if a.verdict and a.verdict.judged[i] else None}
                     for i, s in enumerate(a.fitted_standards)
@@ -981,6 +1057,16 @@ def result_json(  # type: ignore[no-untyped-def]
         entry["samples"] = Rows(_SampleRows(a.sample_columns, run.settings.rounding), _as_made)
         out["analytes"].append(entry)
     return finite(out)
+
+
+def _signature_checks(run):  # type: ignore[no-untyped-def]
+    """What checking the run's signatures found (:func:`.io.signatures.check_signatures`); a run
+    without signatures has nothing to check, and the checker is not loaded for it."""
+    if not run.signatures:
+        return ()
+    from .io.signatures import check_signatures
+
+    return check_signatures(run)
 
 
 class _SampleRows:

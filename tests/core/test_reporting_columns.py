@@ -227,3 +227,31 @@ def test_reported_columns_of_many_random_results_equal_each_report() -> None:
             assert got.values() == expected
             assert got.statuses == [v.status for v in expected] and got.texts == [v.text for v in expected]
             assert len({v.status for v in expected}) == 5  # every status but not reportable is present
+
+
+@pytest.mark.parametrize("size", [1, 7, 40, 256, 257, 3000])
+def test_few_results_grouped_in_a_dictionary_equal_those_grouped_over_arrays(monkeypatch, size) -> None:
+    """A run of a few samples groups its results in a dictionary, a long one over arrays: both ways
+    give the same columns, entry for entry, and each equals ``report_value`` of its result."""
+    from curvewright.core import reporting
+
+    rng = ReportingRange(lloq=0.5, uloq=50.0, lod=0.2, loq=0.8, reporting_limit=0.8, basis="LOQ", note="")
+    draw = np.random.default_rng(size)
+    estimates = np.exp(draw.uniform(np.log(0.01), np.log(500.0), size))
+    dilutions = draw.choice([1.0, 2.0, 10.0, 0.5, 25.0], size)
+    choices = [None, QuantFlag(0), QuantFlag.AMBIGUOUS_ROOT, QuantFlag.UNBOUNDED_INTERVAL]
+    engine = [choices[k] for k in draw.integers(0, len(choices), size)]
+    made = {}
+    for few in (0, 10**9):  # every time over arrays; every time in a dictionary
+        monkeypatch.setattr(reporting, "_FEW", few)
+        for below_limit in ("censor", "estimate"):
+            got = reporting.report_columns(estimates, dilutions, engine, rng, RULES[1], unit="µg/L",
+                                           below_limit=below_limit)
+            made[few, below_limit] = (got.statuses, got.texts, got.words, got.shorts, got.bits.tolist(),
+                                      got.suggested_dilution.tolist())
+    for below_limit in ("censor", "estimate"):
+        assert made[0, below_limit][:5] == made[10**9, below_limit][:5]
+        np.testing.assert_array_equal(made[0, below_limit][5], made[10**9, below_limit][5])
+        expected = [report_value(float(e), float(d), f, rng, RULES[1], unit="µg/L", below_limit=below_limit)
+                    for e, d, f in zip(estimates, dilutions, engine)]
+        assert made[0, below_limit][1] == [v.text for v in expected]

@@ -251,3 +251,23 @@ def test_samples_written_directly_are_what_the_encoder_writes(samples) -> None: 
             integrity.write_samples(samples)
     else:
         assert integrity.write_samples(samples) == expected
+
+
+def test_texts_let_go_of_leave_the_hashes_as_they_were() -> None:
+    """A run that lets go of its samples' kept texts keeps its content hash, and a run made from it
+    afterwards (its samples written again) has the hash it would have had with the texts kept."""
+    from dataclasses import replace
+
+    from curvewright.io.integrity import content_sha256, let_go_of_sample_texts, sha256_of_content
+    from curvewright.io.run_document import run_to_mapping
+
+    path = ROOT / "sample_runs" / "veltaprine_plasma_weighted.json"
+    run = loads_run(path.read_text(encoding="utf-8")).run
+    assert any(e.content_sha256 for e in run.audit) and run.samples
+    kept = content_sha256(run)
+    assert all(getattr(s, "_kept_text", None) is not None for s in run.samples)
+    let_go_of_sample_texts(run)
+    assert all(getattr(s, "_kept_text", None) is None for s in run.samples)
+    assert content_sha256(run) == kept == sha256_of_content(run_to_mapping(run))
+    renamed = replace(run, name=run.name + " (copy)")
+    assert content_sha256(renamed) == sha256_of_content(run_to_mapping(renamed)) != kept

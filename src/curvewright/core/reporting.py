@@ -32,7 +32,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from enum import Enum
-from typing import Callable, Sequence
+from typing import Callable, Iterator, Sequence
 
 import numpy as np
 
@@ -207,6 +207,27 @@ def _one_two_five(factor: float) -> float:
     return 10.0 * decade
 
 
+class FlagBits:
+    """The engine's flags of many results as bits (an integer array, -1 where a result has none): read
+    one at a time, each is its :class:`~.inverse.QuantFlag` (or None), as the sequence of flags it
+    stands for; :func:`report_columns` reads the bits themselves, without a flag object per result."""
+
+    __slots__ = ("bits",)
+
+    def __init__(self, bits: object) -> None:
+        self.bits = np.asarray(bits, dtype=np.int64).reshape(-1)
+
+    def __len__(self) -> int:
+        return self.bits.size
+
+    def __getitem__(self, i: int) -> QuantFlag | None:
+        b = int(self.bits[i])
+        return None if b < 0 else QuantFlag(b)
+
+    def __iter__(self) -> Iterator[QuantFlag | None]:
+        return (None if b < 0 else QuantFlag(b) for b in self.bits.tolist())
+
+
 _NO_SOLUTION = int(QuantFlag.NO_SOLUTION)
 _QUALIFIER_BITS = int(QuantFlag.AMBIGUOUS_ROOT | QuantFlag.UNBOUNDED_INTERVAL)
 
@@ -257,7 +278,7 @@ def report_values(
 def report_columns(
     estimates: object,
     dilutions: object,
-    flags: Sequence[QuantFlag | None],
+    flags: Sequence[QuantFlag | None] | FlagBits,
     rng: ReportingRange,
     rule: RoundingRule,
     *,
@@ -269,7 +290,8 @@ def report_columns(
 
     ``estimates`` are the concentrations in the solution measured (NaN where there is none),
     ``dilutions`` the dilution factors, ``flags`` the engine's flags of each result and
-    ``not_quantified`` the reason of each result without a number (None: none given). The status
+    ``not_quantified`` the reason of each result without a number (None: none given); the flags may
+    be given as :class:`FlagBits`, read without a flag object per result. The status
     and flag bits of the numeric results are worked out over arrays. A result's words, short words
     and (but for the rounded number) text depend only on its status, qualifiers, dilution factor and
     whether it lies below the LOD, except above the range (the suggested dilution): each such group's
@@ -281,46 +303,8 @@ def report_columns(
     n = est.size
     if dil.size != n or len(flags) != n or (not_quantified is not None and len(not_quantified) != n):
         raise ValueError("report_values: the estimates, dilutions, flags and reasons differ in length")
-    bits_in = np.array([-1 if f is None else int(f) for f in flags], dtype=np.int64)
-    statuses = np.empty(n, dtype=object)
-    texts = np.empty(n, dtype=object)
-    words = np.empty(n, dtype=object)
-    shorts = np.empty(n, dtype=object)
-    bits_out = bits_in.copy()
-    suggested = np.full(n, np.nan)
-    numeric = ~np.isnan(est) & ((bits_in < 0) | ((bits_in & _NO_SOLUTION) == 0))
-
-    def put(i: int, value: ReportedValue) -> None:
-        statuses[i], texts[i], words[i], shorts[i] = value.status, value.text, value.words, value.short
-        bits_out[i] = -1 if value.flags is None else int(value.flags)
-        if value.suggested_dilution is not None:
-            suggested[i] = value.suggested_dilution
-
-    for i in np.flatnonzero(~numeric).tolist():  # no number: the reason is said for each
-        estimate = None if math.isnan(est[i]) else float(est[i])
-        put(i, report_value(estimate, float(dil[i]), flags[i], rng, rule, unit=unit, below_limit=below_limit,
-                            not_quantified=not_quantified[i] if not_quantified is not None else ""))
-    where = np.flatnonzero(numeric)
-    e, d = est[where], dil[where]
-    extra = np.where(bits_in[where] < 0, 0, bits_in[where] & _QUALIFIER_BITS)
-    limit = rng.reporting_limit
-    below_range = e < rng.lloq
-    above = ~below_range & (e > rng.uloq)
-    bits = np.where(below_range, int(QuantFlag.BELOW_RANGE),
-                    np.where(above, int(QuantFlag.ABOVE_RANGE), np.where(e >= limit, int(QuantFlag.IN_RANGE), 0)))
-    bits |= np.where(e < limit, int(QuantFlag.BELOW_LOQ), 0)
-    below_lod = e < rng.lod if rng.lod is not None else np.zeros(e.size, dtype=bool)
-    bits |= np.where(below_lod, int(QuantFlag.BELOW_LOD), 0) | extra
-    bits_out[where] = bits
-    reported = e * d
-    estimated = below_limit == "estimate"
-    # which results show a rounded number: inside the range, and estimates between the LOD and the limit
-    numbered = (e <= rng.uloq) & ((e >= limit) | (estimated & ~below_lod))
-    numbers = np.empty(where.size, dtype=object)
-    numbers[numbered] = rule.texts(reported[numbered].tolist())
-    # the order _numeric_value judges in: above the ULOQ, below the reporting limit, else in range
-    over = e > rng.uloq
-    case = np.where(over, 0, np.where(e < limit, np.where(below_lod, 1, 2), 3))
+    bits_in = (flags.bits if isinstance(flags, FlagBits) else
+               np.array([-1 if f is None else int(f) for f in flags], dtype=np.int64))
     qualifiers_of: dict[int, tuple[list[str], list[str]]] = {}
     by_dilution: dict[float, tuple[str, str, str, str]] = {}
     flag_of: dict[int, QuantFlag] = {}
@@ -338,25 +322,57 @@ def report_columns(
             texts_here = by_dilution[factor] = _dilution_texts(factor, rng, rule, unit)
         return flag, quals, texts_here
 
-    for k in np.flatnonzero(over).tolist():  # above the range: the suggested dilution is each result's own
-        flag, quals, texts_here = parts(int(bits[k]), int(extra[k]), float(d[k]))
-        put(int(where[k]), _numeric_value(float(e[k]), float(d[k]), flag, quals, texts_here, lambda: "", rng, unit,
-                                          estimated, bool(below_lod[k])))
-    # every other result: one group per status case, qualifiers and dilution factor (bits follow from them)
-    rest = np.flatnonzero(~over)
-    if rest.size:
-        keys = np.stack([case[rest], extra[rest], bits[rest]], axis=1)
-        factors = d[rest]
-        factor_codes, factor_of = np.unique(factors, return_inverse=True)
-        keys = np.concatenate([keys, factor_of.reshape(-1, 1)], axis=1)
-        groups, group_of = np.unique(keys, axis=0, return_inverse=True)
-        group_of = group_of.reshape(-1)
-        order = np.argsort(group_of, kind="stable")
-        bounds = np.searchsorted(group_of[order], np.arange(groups.shape[0] + 1))
-        for g, (c, x, b, f) in enumerate(groups.tolist()):
-            members = rest[order[bounds[g]:bounds[g + 1]]]
+    def part(est: np.ndarray, dil: np.ndarray, bits_in: np.ndarray, offset: int) -> ReportedColumns:
+        """The columns of the results from ``offset`` on (``est``, ``dil`` and ``bits_in`` are theirs)."""
+        n = est.size
+        statuses = np.empty(n, dtype=object)
+        texts = np.empty(n, dtype=object)
+        words = np.empty(n, dtype=object)
+        shorts = np.empty(n, dtype=object)
+        bits_out = bits_in.copy()
+        suggested = np.full(n, np.nan)
+        numeric = ~np.isnan(est) & ((bits_in < 0) | ((bits_in & _NO_SOLUTION) == 0))
+
+        def put(i: int, value: ReportedValue) -> None:
+            statuses[i], texts[i], words[i], shorts[i] = value.status, value.text, value.words, value.short
+            bits_out[i] = -1 if value.flags is None else int(value.flags)
+            if value.suggested_dilution is not None:
+                suggested[i] = value.suggested_dilution
+
+        for i in np.flatnonzero(~numeric).tolist():  # no number: the reason is said for each
+            estimate = None if math.isnan(est[i]) else float(est[i])
+            put(i, report_value(estimate, float(dil[i]), flags[offset + i], rng, rule, unit=unit, below_limit=below_limit,
+                                not_quantified=not_quantified[offset + i] if not_quantified is not None else ""))
+        where = np.flatnonzero(numeric)
+        e, d = est[where], dil[where]
+        extra = np.where(bits_in[where] < 0, 0, bits_in[where] & _QUALIFIER_BITS)
+        limit = rng.reporting_limit
+        below_range = e < rng.lloq
+        above = ~below_range & (e > rng.uloq)
+        bits = np.where(below_range, int(QuantFlag.BELOW_RANGE),
+                        np.where(above, int(QuantFlag.ABOVE_RANGE), np.where(e >= limit, int(QuantFlag.IN_RANGE), 0)))
+        bits |= np.where(e < limit, int(QuantFlag.BELOW_LOQ), 0)
+        below_lod = e < rng.lod if rng.lod is not None else np.zeros(e.size, dtype=bool)
+        bits |= np.where(below_lod, int(QuantFlag.BELOW_LOD), 0) | extra
+        bits_out[where] = bits
+        reported = e * d
+        estimated = below_limit == "estimate"
+        # which results show a rounded number: inside the range, and estimates between the LOD and the limit
+        numbered = (e <= rng.uloq) & ((e >= limit) | (estimated & ~below_lod))
+        numbers = np.empty(where.size, dtype=object)
+        numbers[numbered] = rule.texts(reported[numbered].tolist())
+        # the order _numeric_value judges in: above the ULOQ, below the reporting limit, else in range
+        over = e > rng.uloq
+        case = np.where(over, 0, np.where(e < limit, np.where(below_lod, 1, 2), 3))
+
+        for k in np.flatnonzero(over).tolist():  # above the range: the suggested dilution is each result's own
+            flag, quals, texts_here = parts(int(bits[k]), int(extra[k]), float(d[k]))
+            put(int(where[k]), _numeric_value(float(e[k]), float(d[k]), flag, quals, texts_here, lambda: "", rng, unit,
+                                              estimated, bool(below_lod[k])))
+        # every other result: one group per status case, qualifiers and dilution factor (bits follow from them)
+        rest = np.flatnonzero(~over)
+        for c, x, b, factor, members in _groups(rest, case, extra, bits, d):
             first = int(members[0])
-            factor = float(factor_codes[f])
             flag, quals, texts_here = parts(b, x, factor)
             marker = "\x00"  # stands for the rounded number in the group's text
             value = _numeric_value(float(e[first]), factor, flag, quals, texts_here, lambda: marker, rng, unit,
@@ -370,4 +386,63 @@ def report_columns(
                 texts[rows] = [head + t + tail for t in numbers[members].tolist()] if head or tail else numbers[members]
             else:
                 texts[rows] = value.text
-    return ReportedColumns(statuses.tolist(), texts.tolist(), words.tolist(), shorts.tolist(), bits_out, suggested)
+        return ReportedColumns(statuses.tolist(), texts.tolist(), words.tolist(), shorts.tolist(), bits_out, suggested)
+
+    if n <= _PART:
+        return part(est, dil, bits_in, 0)
+    # many results: a part at a time, so that the arrays of the work stay small; each result's entries
+    # depend on it alone, so they are the same as those of all the results worked out at once
+    statuses: list[ReportStatus] = []
+    texts: list[str] = []
+    words: list[str] = []
+    shorts: list[str] = []
+    bits_out = np.empty(n, dtype=np.int64)
+    suggested = np.empty(n)
+    for start in range(0, n, _PART):
+        stop = min(start + _PART, n)
+        done = part(est[start:stop], dil[start:stop], bits_in[start:stop], start)
+        statuses += done.statuses
+        texts += done.texts
+        words += done.words
+        shorts += done.shorts
+        bits_out[start:stop] = done.bits
+        suggested[start:stop] = done.suggested_dilution
+    return ReportedColumns(statuses, texts, words, shorts, bits_out, suggested)
+
+
+_PART = 8192
+"""Results reported at a time by :func:`report_columns`."""
+
+
+_FEW = 256
+"""Up to this many results are grouped in a dictionary; more, over arrays (the same groups)."""
+
+
+def _groups(rest: np.ndarray, case: np.ndarray, extra: np.ndarray, bits: np.ndarray, d: np.ndarray,
+            ) -> list[tuple[int, int, int, float, np.ndarray]]:
+    """The results ``rest`` (positions in the numeric results) grouped by status case, qualifier bits,
+    flag bits and dilution factor: (case, qualifiers, bits, dilution factor, the members in ascending
+    order) per group. A few results are grouped in a dictionary, many over arrays; the groups and
+    their members are the same either way, and only their order may differ, which the caller does
+    not depend on (each result is written in its own place)."""
+    if rest.size == 0:
+        return []
+    if rest.size <= _FEW:
+        found: dict[tuple[int, int, int, float], list[int]] = {}
+        for k, key in zip(rest.tolist(), zip(case[rest].tolist(), extra[rest].tolist(), bits[rest].tolist(),
+                                             d[rest].tolist())):
+            members = found.get(key)
+            if members is None:
+                found[key] = [k]
+            else:
+                members.append(k)
+        return [(c, x, b, f, np.array(m, dtype=np.intp)) for (c, x, b, f), m in found.items()]
+    keys = np.stack([case[rest], extra[rest], bits[rest]], axis=1)
+    factor_codes, factor_of = np.unique(d[rest], return_inverse=True)
+    keys = np.concatenate([keys, factor_of.reshape(-1, 1)], axis=1)
+    groups, group_of = np.unique(keys, axis=0, return_inverse=True)
+    group_of = group_of.reshape(-1)
+    order = np.argsort(group_of, kind="stable")
+    bounds = np.searchsorted(group_of[order], np.arange(groups.shape[0] + 1))
+    return [(c, x, b, float(factor_codes[f]), rest[order[bounds[g]:bounds[g + 1]]])
+            for g, (c, x, b, f) in enumerate(groups.tolist())]

@@ -24,6 +24,8 @@ class RoundingError(CurvewrightError, ValueError):
 
 
 _TIES = {"half_up": ROUND_HALF_UP, "half_even": ROUND_HALF_EVEN}
+_REMEMBERED = 4096
+"""Distinct values :meth:`RoundingRule.texts` remembers at most (their texts are the same either way)."""
 _PRECISION = 400
 """Decimal digits for the rounding: 309 integer digits of the largest double and 15 decimals fit."""
 
@@ -61,14 +63,17 @@ class RoundingRule:
             return self._rounded(value)
 
     def texts(self, values: Iterable[float]) -> list[str]:
-        """``text`` of each value, worked out in one pass: one decimal context for them all, and each
-        distinct value rounded once."""
+        """``text`` of each value, worked out in one pass: one decimal context for them all, and a
+        value met again among the last few thousand distinct ones rounded once (the values seen are
+        forgotten a few thousand at a time, so that many distinct values are not all held at once)."""
         out: list[str] = []
         seen: dict[float, str] = {}
         with localcontext() as context:
             context.prec = _PRECISION
             for value in values:
                 value = float(value)
+                if len(seen) >= _REMEMBERED:
+                    seen.clear()
                 text = seen.get(value)
                 if text is None or value == 0:  # 0.0 and −0.0 are equal keys; each is rounded as itself
                     if not math.isfinite(value):

@@ -17,6 +17,7 @@ failed check fails the run's verdict and is named in its reasons.
 
 from __future__ import annotations
 
+from array import array
 from dataclasses import dataclass, replace
 from functools import cached_property
 from typing import TYPE_CHECKING, Any, Iterable, Iterator, Sequence
@@ -24,17 +25,17 @@ from typing import TYPE_CHECKING, Any, Iterable, Iterator, Sequence
 import numpy as np
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
-from .addition_series import AdditionSeriesResult, analyse_additions
 from .calibration import Calibration
 from .fitting import fit
-from .checks import CheckInput, CheckVerdict, bracketing, judge_checks
 from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag
 from .limits import DetectionLimits
-from .reporting import ReportingRange, ReportStatus, report_columns, report_value, reporting_range
+from .reporting import FlagBits, ReportingRange, ReportStatus, report_columns, report_value, reporting_range
 from .run import Analyte, Reading, Run, SampleKind, Standard
 
 if TYPE_CHECKING:  # pragma: no cover
+    from .addition_series import AdditionSeriesResult
+    from .checks import CheckVerdict
     from .comparison import ModelComparison
     from .method import Method
 
@@ -405,9 +406,19 @@ def analyse_run(
     return RunResult(
         run=run,
         profile=profile,
-        analytes=tuple(replace(_analyse_analyte(run, a, profile, model, weighting), additions=analyse_additions(run, a, response_value))
+        analytes=tuple(replace(_analyse_analyte(run, a, profile, model, weighting), additions=_additions(run, a))
                        for a in chosen),
     )
+
+
+def _additions(run: Run, analyte: Analyte) -> tuple["AdditionSeriesResult", ...]:
+    """The analyte's standard-addition series (:func:`.addition_series.analyse_additions`); none, and
+    nothing of them loaded, when no sample of the run was measured by standard additions."""
+    if not any(s.additions for s in run.samples):
+        return ()
+    from .addition_series import analyse_additions
+
+    return analyse_additions(run, analyte, response_value)
 
 
 def response_value(reading: Reading, internal_standard: Reading | None, ratio: bool) -> tuple[float | None, str]:
@@ -485,9 +496,13 @@ def _analyse_analyte(
     columns = _quantify_samples(run, analyte, cal, limits, rng, profile)
     check_kinds = {kind for kind in SampleKind if kind.is_check}
     check_results = [columns.result(i) for i, kind in enumerate(columns.kinds) if kind in check_kinds]
-    checks = judge_checks([CheckInput(s.sample_id, s.kind, s.run_order, s.nominal, s.reported, s.status,
-                                      s.dilution_factor, s.note) for s in check_results],
-                          profile.checks, rng, profile.name, unit)
+    checks = None  # no calibration check among the samples: none judged, and the judge is not loaded
+    if check_results:
+        from .checks import CheckInput, bracketing, judge_checks
+
+        checks = judge_checks([CheckInput(s.sample_id, s.kind, s.run_order, s.nominal, s.reported, s.status,
+                                          s.dilution_factor, s.note) for s in check_results],
+                              profile.checks, rng, profile.name, unit)
     samples: tuple[SampleResult, ...] | None = None
     qc_verdict = None
     if checks is None and SampleKind.QC in columns.kinds:  # QC samples judged over the columns
@@ -605,10 +620,11 @@ def _quantify_samples(
     ids: list[str] = []
     kinds: list[SampleKind] = []
     run_orders: list[int | None] = []
-    dilution_list: list[float] = []
-    nominal_list: list[float] = []
-    values: list[float] = []
-    counts_list: list[int] = []
+    # numbers gathered in typed arrays (8 bytes each), not as lists of Python numbers
+    dilution_list = array("d")
+    nominal_list = array("d")
+    values = array("d")
+    counts_list = array("q")
     notes: list[str] = []
     censored_of: dict[int, str] = {}
     for sample in run.samples:
@@ -635,9 +651,10 @@ def _quantify_samples(
         counts_list.append(count)
         notes.append("; ".join(reasons_here))
     n = len(ids)
-    replicate_values = np.array(values, dtype=float)
+    replicate_values = np.frombuffer(values, dtype=float).copy() if values else np.empty(0)
     del values
-    replicate_counts = np.array(counts_list, dtype=np.int64)
+    replicate_counts = np.frombuffer(counts_list, dtype=np.int64).copy() if counts_list else np.empty(0, np.int64)
+    del counts_list
     offsets = np.concatenate([[0], np.cumsum(replicate_counts)])
     quantifiable = replicate_counts > 0
     if censored_of:
@@ -657,7 +674,8 @@ def _quantify_samples(
     estimate = np.full(n, np.nan)
     mean_response, standard_error, lower, upper = (np.full(n, np.nan) for _ in range(4))
     dilution = np.array(dilution_list, dtype=float)
-    flags: list[QuantFlag | None] = [None] * n
+    del dilution_list
+    engine_bits = np.full(n, _NONE, dtype=np.int64)  # the engine's flags of each sample (-1: None)
     quantified = np.zeros(n, dtype=bool)
     if quant is not None:
         quantified[positions] = True
@@ -666,8 +684,8 @@ def _quantify_samples(
         standard_error[positions] = quant.standard_error
         lower[positions] = quant.lower
         upper[positions] = quant.upper
-        for r, flag in zip(positions.tolist(), quant.flags):
-            flags[r] = flag
+        engine_bits[positions] = quant.flag_bits
+        del quant
     reasons = [""] * n
     no_estimate = np.isnan(estimate).tolist()
     for r, (done, note) in enumerate(zip(quantified.tolist(), notes)):
@@ -677,16 +695,17 @@ def _quantify_samples(
         censored = censored_of.get(r)
         reason = f"reported as censored: {censored}" if censored else (refusal or note or "no numeric response")
         reasons[r] = reason if not note or reason == note else f"{reason}; {note}"
-    reported = report_columns(estimate, dilution, flags, rng, settings.rounding, unit=analyte.concentration_unit,
+    reported = report_columns(estimate, dilution, FlagBits(engine_bits), rng, settings.rounding,
+                              unit=analyte.concentration_unit,
                               below_limit=profile.reporting.between_lod_and_reporting_limit, not_quantified=reasons)
     nominal = np.array(nominal_list, dtype=float)
+    del nominal_list
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         got = estimate * dilution
         recovery = np.where(quantified & ~np.isnan(estimate) & ~np.isnan(nominal) & (nominal != 0),
                             100.0 * got / nominal, np.nan)
     # a result with an estimate has the flags its report agrees with; any other keeps the engine's
     has_estimate = quantified & ~np.isnan(estimate)
-    engine_bits = np.array([_NONE if f is None else int(f) for f in flags], dtype=np.int64)
     bits = np.where(has_estimate, reported.bits, engine_bits)
     return SampleColumns(
         analyte=name, ids=ids, kinds=kinds, run_orders=run_orders, replicate_values=replicate_values,

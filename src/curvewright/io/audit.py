@@ -173,3 +173,25 @@ def file_sha256_streamed(path) -> str:  # type: ignore[no-untyped-def]
         for block in iter(lambda: stream.read(1 << 20), b""):
             digest.update(block)
     return digest.hexdigest()
+
+
+def chain_claim(run, chain_problems: tuple[str, ...] | None = None) -> tuple[bool, str]:  # type: ignore[no-untyped-def]
+    """What checking the run's audit trail showed, in words exactly as strong as the check;
+    ``chain_problems`` is what :func:`verify_chain` gave for this run's trail, when the caller
+    has checked it already."""
+    from .integrity import content_change
+
+    problems = list(verify_chain(run.audit) if chain_problems is None else chain_problems)
+    change = content_change(run)
+    if change is not None:
+        problems.append(str(change))
+    if problems:
+        return False, "NOT verified: " + "; ".join(problems)
+    recorded = any(e.content_sha256 for e in run.audit)
+    data = ("and the data match the content hash of the last entry" if recorded else
+            "but no entry records a content hash (written by an earlier version), so edits of the data cannot be seen")
+    keyed = any(s.signature for s in run.signatures)
+    return True, (f"verified: every entry follows the one before and is unaltered, {data}. This detects accidental or "
+                  "casual edits of the file; it does not detect someone who edits the data and rebuilds the whole chain"
+                  + (" — the keyed signatures below do" if keyed else " (only signatures with a laboratory key would)")
+                  + ".")

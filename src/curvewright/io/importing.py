@@ -272,10 +272,19 @@ def import_samples(
     still refuses its row (the answer is an import option, not a correction).
     """
     ctx = _Context(table, SAMPLE_FIELDS, mapping, decimal_mark, thousands, required=SAMPLE_REQUIRED)
-    # In the order the samples first appear, each sample's
-    # [kind, run order, dilution, nominal values, measurements, first row, replicate counts, rows by replicate];
-    # a sample's counts and rows are made only when a second row of it comes (most samples have one).
-    info: dict[str, list] = {}
+    # In the order the samples first appear, each sample's place in the lists of kinds, run orders,
+    # dilutions, nominal values, measurements (its one Measurement, a list once a second comes) and
+    # first rows; its replicate counts and rows by replicate are made only when a second row of it
+    # comes (most samples have one). Lists side by side rather than a list per sample: a large table
+    # leaves fewer objects behind to be freed.
+    index: dict[str, int] = {}
+    kinds: list[SampleKind] = []
+    orders: list[int | None] = []
+    dilutions: list[float] = []
+    nominals: list[dict[str, float] | None] = []
+    measured: list[Measurement | list[Measurement]] = []
+    firsts: list[int] = []
+    seen_rows: dict[int, tuple[dict[str, int], dict[tuple[str, int], int]]] = {}
     for row_number, cells in ctx.body():
         sid = ctx.text(cells, "id", row_number)
         if not sid:
@@ -297,25 +306,32 @@ def import_samples(
         if ctx.row_failed(row_number):
             continue
         assert response is not None and kind is not None
-        entry = info.get(sid)  # a dict: the lookup stays constant-time however many samples
-        if entry is None:
-            measurement = Measurement(name, 1 if replicate is None else replicate, response, is_response)
-            info[sid] = [kind, run_order, dilution or 1.0, None if nominal is None else {name: nominal},
-                         [measurement], row_number, None, None]
+        at = index.get(sid)  # a dict: the lookup stays constant-time however many samples
+        if at is None:
+            index[sid] = len(kinds)
+            kinds.append(kind)
+            orders.append(run_order)
+            dilutions.append(dilution or 1.0)
+            nominals.append(None if nominal is None else {name: nominal})
+            measured.append(Measurement(name, 1 if replicate is None else replicate, response, is_response))
+            firsts.append(row_number)
             continue
-        first = entry[5]
-        if entry[0] is not kind:
+        first = firsts[at]
+        if kinds[at] is not kind:
             ctx.reject(row_number, "kind", ctx.raw(cells, "kind"),
-                       f"differs from row {first} of the same sample ({entry[0].words})", row_fails=True)
-        if entry[2] != (dilution or 1.0):
+                       f"differs from row {first} of the same sample ({kinds[at].words})", row_fails=True)
+        if dilutions[at] != (dilution or 1.0):
             ctx.reject(row_number, "dilution", ctx.raw(cells, "dilution"),
-                       f"differs from row {first} of the same sample ({entry[2]:g})", row_fails=True)
+                       f"differs from row {first} of the same sample ({dilutions[at]:g})", row_fails=True)
         if ctx.row_failed(row_number):
             continue
-        if entry[6] is None:
-            only = entry[4][0]
-            entry[6], entry[7] = {only.analyte: 1}, {(only.analyte, only.replicate): first}
-        counts, rows = entry[6], entry[7]
+        seen = seen_rows.get(at)
+        if seen is None:
+            only = measured[at]
+            assert isinstance(only, Measurement)
+            seen = seen_rows[at] = ({only.analyte: 1}, {(only.analyte, only.replicate): first})
+            measured[at] = [only]
+        counts, rows = seen
         if replicate is None:
             replicate = 1 + counts.get(name, 0)
         if (name, replicate) in rows:
@@ -325,14 +341,19 @@ def import_samples(
             continue
         rows[name, replicate] = row_number
         if nominal is not None:
-            if entry[3] is None:
-                entry[3] = {}
-            entry[3][name] = nominal
-        entry[4].append(Measurement(name, replicate, response, is_response))
+            values = nominals[at]
+            if values is None:
+                values = nominals[at] = {}
+            values[name] = nominal
+        several = measured[at]
+        assert isinstance(several, list)
+        several.append(Measurement(name, replicate, response, is_response))
         counts[name] = counts.get(name, 0) + 1
     samples = tuple(
-        Sample(sid, kind, run_order, dilution, tuple(measurements), () if nominal is None else tuple(nominal.items()))
-        for sid, (kind, run_order, dilution, nominal, measurements, *_) in info.items()
+        Sample(sid, kinds[i], orders[i], dilutions[i],
+               (measured[i],) if type(measured[i]) is Measurement else tuple(measured[i]),  # type: ignore[arg-type]
+               () if nominals[i] is None else tuple(nominals[i].items()))  # type: ignore[union-attr]
+        for sid, i in index.items()
     )
     return ctx.result(samples=samples)
 

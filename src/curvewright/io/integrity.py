@@ -141,6 +141,19 @@ def sample_texts(samples: Sequence[Sample]) -> list[bytes]:
     return texts  # type: ignore[return-value]
 
 
+def let_go_of_sample_texts(run: Run) -> None:
+    """Let go of the canonical text each sample of ``run`` keeps (:func:`sample_texts`), for a run of
+    many samples that will not be edited again, once the run's own content hash is kept with it (it is
+    worked out here first when the audit trail records a content hash, which the results check the run
+    against). The texts are the largest part of a large run's memory; one asked for again afterwards
+    is written again, the same text."""
+    if any(e.content_sha256 for e in run.audit):
+        content_sha256(run)
+    for s in run.samples:
+        if getattr(s, _SAMPLE_MEMO, None) is not None:
+            object.__delattr__(s, _SAMPLE_MEMO)
+
+
 def write_samples(samples: Sequence[Sample]) -> list[bytes]:
     """The samples' canonical JSON, as :func:`_canonical` writes each sample's data of
     :func:`~.run_document.samples_out`. A sample of plain values (texts, whole numbers, finite floats,

@@ -9,10 +9,10 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any
 
 from ..core.fitted_curve import FittedCurve
-from .result_tables import Column, Table, Value
 
 if TYPE_CHECKING:  # pragma: no cover
     from ..core.run_analysis import AnalyteResult
+    from .result_tables import Table, Value
 
 
 def factor_name(uses_internal_standard: bool) -> str:
@@ -80,6 +80,8 @@ def curve_words(cal: FittedCurve, uses_internal_standard: bool) -> str:
 
 def additions_table(a: "AnalyteResult", level: float) -> Table:
     """One row per sample measured by standard additions: the line, the extrapolated concentration, its interval."""
+    from .result_tables import Column, Table  # loaded with the tables that hold it, not for the JSON
+
     unit = a.analyte.concentration_unit
     columns = (
         Column("Sample id"), Column("Additions", kind="int"), Column("Added", unit), Column("Mean responses"),

@@ -18,7 +18,7 @@ from ..core.errors import CurvewrightError
 from ..core.models import Model
 from ..core.rounding import RoundingRule
 from ..core.reporting import ReportStatus
-from .audit import verify_chain
+from .audit import chain_claim, verify_chain  # noqa: F401 - chain_claim: where the record and the tables take it
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -359,28 +359,6 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
         rows.append(tuple(base + [back, re_, None, "excluded" if not s.included else "not usable", None, None, None, "",
                                   "no", reason]))
     return Table(f"Standards – {an.name}", columns, tuple(rows), rule)
-
-
-def chain_claim(run, chain_problems: tuple[str, ...] | None = None) -> tuple[bool, str]:  # type: ignore[no-untyped-def]
-    """What checking the run's audit trail showed, in words exactly as strong as the check;
-    ``chain_problems`` is what :func:`.audit.verify_chain` gave for this run's trail, when the caller
-    has checked it already."""
-    from .integrity import content_change
-
-    problems = list(verify_chain(run.audit) if chain_problems is None else chain_problems)
-    change = content_change(run)
-    if change is not None:
-        problems.append(str(change))
-    if problems:
-        return False, "NOT verified: " + "; ".join(problems)
-    recorded = any(e.content_sha256 for e in run.audit)
-    data = ("and the data match the content hash of the last entry" if recorded else
-            "but no entry records a content hash (written by an earlier version), so edits of the data cannot be seen")
-    keyed = any(s.signature for s in run.signatures)
-    return True, (f"verified: every entry follows the one before and is unaltered, {data}. This detects accidental or "
-                  "casual edits of the file; it does not detect someone who edits the data and rebuilds the whole chain"
-                  + (" — the keyed signatures below do" if keyed else " (only signatures with a laboratory key would)")
-                  + ".")
 
 
 def audit_table(result: RunResult) -> Table:

@@ -50,6 +50,11 @@ class Rows:
 def finite(value: Any) -> Any:
     """``value`` with every non-finite float, at any depth, replaced by None; numpy arrays and
     numbers become lists and Python numbers."""
+    kind = type(value)
+    if kind is str or kind is int or kind is bool or value is None:  # the most common, as they are
+        return value
+    if kind is dict:
+        return {k: finite(v) for k, v in value.items()}
     if isinstance(value, float):
         return value if math.isfinite(value) else None
     if isinstance(value, _SCALARS):
@@ -146,10 +151,18 @@ class Written:
             self.text = "".join(out)
 
 
+_PLAIN = {str: _encode_text, int: int.__repr__, float: _scalar, bool: _scalar, type(None): _scalar}
+"""The scalars of exactly these types and how each is written (a subclass, such as a numpy number or
+an enumeration, goes the long way)."""
+
+
 def _write(value: Any, level: int, out: list[str], flush: Callable[[], None] | None) -> None:
     """Append the JSON text of ``value`` at indentation ``level`` to ``out``, in pieces; ``flush``
     (when given) is called after each row of a long list, to hand the pieces gathered on."""
-    if isinstance(value, Written):
+    plain = _PLAIN.get(type(value))
+    if plain is not None:
+        out.append(plain(value))
+    elif isinstance(value, Written):
         if value.level != level:
             raise ValueError(f"JSON text made for level {value.level} placed at level {level}")
         out.append(value.text)
@@ -163,7 +176,11 @@ def _write(value: Any, level: int, out: list[str], flush: Callable[[], None] | N
         for key, item in value.items():
             out.append(("" if first else ",") + inner + _encode_text(str(key)) + ": ")
             first = False
-            _write(item, level + 1, out, flush)
+            plain = _PLAIN.get(type(item))
+            if plain is not None:  # a plain value written here, as _write writes it
+                out.append(plain(item))
+            else:
+                _write(item, level + 1, out, flush)
         out.append("\n" + " " * level + "}")
     elif isinstance(value, (list, tuple, Rows)):
         if len(value) == 0:
