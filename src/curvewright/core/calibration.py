@@ -21,7 +21,7 @@ from .fitted_curve import Deferred, FittedCurve
 from .influence import Influence, leverage_notes, measure_influence, measure_influence_of_fits
 from .inverse import Quantitation, quantify, solve_z
 from .lack_of_fit import LackOfFit, lack_of_fit_test, lack_of_fit_tests
-from .least_squares import ROUNDOFF, LeastSquaresSolution, solve_weighted, solve_weighted_stack, without_roundoff
+from .least_squares import LeastSquaresSolution, roundoff_floor, solve_weighted, solve_weighted_stack, without_roundoff
 from .levels import Levels, group_levels
 from .models import Basis, Model, make_basis
 from .regression_test import RegressionTest, regression_test, regression_tests
@@ -300,18 +300,23 @@ def _checked_design(
     the vectors are made read-only."""
     if x.size == 0:
         raise CalibrationInputError("standards: none given; a calibration needs standards.")
+    distinct = None
     if levels is None or levels.index.size != x.size:
         levels = group_levels(x, level_tolerance, level_labels)
-    _check_design(x, model, model.n_parameters)
+        if not level_tolerance and level_labels is None:
+            distinct = levels.n_levels  # each distinct concentration is a level
+    _check_design(x, model, model.n_parameters, distinct)
     x.setflags(write=False)
     y.setflags(write=False)
     return levels
 
 
-def _check_design(x: FloatArray, model: Model, p: int) -> None:
+def _check_design(x: FloatArray, model: Model, p: int, distinct: int | None = None) -> None:
     # Whether the curve can be fixed depends on the distinct concentrations, never on how they are
     # grouped into levels: 1e6 + 0…10 are eleven concentrations even if a tolerance makes one level.
-    distinct = int(np.unique(x).size)
+    # ``distinct``: their number, when the caller has it.
+    if distinct is None:
+        distinct = int(np.unique(x).size)
     if distinct == 1:
         raise CalibrationInputError(
             f"concentration: all {x.size} standards are at {x[0]:g}; a curve needs "
@@ -342,6 +347,8 @@ class _PolynomialCore:
     basis: Basis
     solution: LeastSquaresSolution
     root_wy: FloatArray
+    roundoff: float
+    """Weighted residuals at or below this are round-off (see :func:`.least_squares.without_roundoff`)."""
     clean: FloatArray
     df: int
     residual_sd: float
@@ -358,7 +365,8 @@ def _polynomial_core(
     p = model.n_parameters
     with np.errstate(over="ignore", under="ignore", invalid="ignore"):
         root_wy = np.sqrt(weights.weights) * y
-        clean = without_roundoff(solution.weighted_residuals, root_wy)  # exact standards: zeros
+        roundoff = roundoff_floor(root_wy)
+        clean = without_roundoff(solution.weighted_residuals, root_wy, roundoff)  # exact standards: zeros
         df = x.size - p
         residual_sd = float(np.sqrt((clean @ clean) / df))
         z_cov = residual_sd**2 * solution.unscaled_covariance
@@ -366,7 +374,7 @@ def _polynomial_core(
         coefficients = transform @ solution.coefficients
         covariance = transform @ z_cov @ transform.T
     _refuse_unrepresentable(model, x, y, basis, coefficients, covariance, residual_sd)
-    return _PolynomialCore(model, weighting, x, y, levels, weights, basis, solution, root_wy, clean, df,
+    return _PolynomialCore(model, weighting, x, y, levels, weights, basis, solution, root_wy, roundoff, clean, df,
                            residual_sd, z_cov, coefficients, covariance)
 
 
@@ -452,12 +460,15 @@ def _polynomial_calibration(
     else:
         sst = stacked[0]
     adjust = (x.size - 1) / df
-    if sst <= x.size * (ROUNDOFF * float(np.maximum.reduce(np.abs(root_wy)))) ** 2:
+    if sst <= x.size * core.roundoff**2:
         r_squared = 0.0  # the responses do not vary: nothing to explain
     else:
         r_squared = 1.0 - float(clean @ clean) / sst
+    # the calibrated range in z: Python floats, the same operations as Basis.z
+    centre, scale = basis.centre, basis.scale
+    z_range = ((float(np.minimum.reduce(x)) - centre) / scale, (float(np.maximum.reduce(x)) - centre) / scale)
     branch, vertex_z, notes = (
-        _quadratic_geometry(model, solution.coefficients, basis, x) if stacked is None else stacked[1])
+        _quadratic_geometry(model, solution.coefficients, basis, x, z_range) if stacked is None else stacked[1])
     if lack is None:
         lack = Deferred(lambda: lack_of_fit_test(clean / np.sqrt(w), w, levels, p,
                                                  weights_from_replicates=weights.from_replicates))
@@ -472,7 +483,6 @@ def _polynomial_calibration(
     # the notes the influence measures give, from the leverages alone
     notes = notes + (leverage_notes(solution.leverage) if type(influence) is Deferred else influence.notes)
     if stacked is None:
-        z_range = (float(basis.z(x.min())), float(basis.z(x.max())))
         z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
         back = basis.centre + basis.scale * z_back
         with np.errstate(invalid="ignore", divide="ignore"):
@@ -546,16 +556,17 @@ def _refuse_unrepresentable(
 
 
 def _quadratic_geometry(
-    model: Model, z_coefficients: FloatArray, basis: Basis, x: FloatArray
+    model: Model, z_coefficients: FloatArray, basis: Basis, x: FloatArray, z_range: tuple[float, float] | None = None,
 ) -> tuple[int, float | None, tuple[str, ...]]:
-    """Which side of its vertex a quadratic is calibrated on, and where the vertex is (in z)."""
+    """Which side of its vertex a quadratic is calibrated on, and where the vertex is (in z);
+    ``z_range``: the lowest and highest standard in z, when the caller has them."""
     if model is not Model.QUADRATIC:
         return 0, None, ()
     _, a1, a2 = z_coefficients
     if a2 == 0.0:
         return (1 if a1 >= 0 else -1), None, ()
     vertex = -a1 / (2.0 * a2)
-    z_low, z_high = basis.z(np.array([x.min(), x.max()]))
+    z_low, z_high = basis.z(np.array([x.min(), x.max()])) if z_range is None else z_range
     if vertex <= z_low:
         return 1, float(vertex), ()
     if vertex >= z_high:

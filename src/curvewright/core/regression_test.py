@@ -104,6 +104,11 @@ def regression_tests(
             out[i] = RegressionTest(float("inf"), df, 0.0)
         else:
             tested.append(i)
+    if len(fits) == 1 and tested and first is not None:
+        # a fit alone (the usual case): the same LAPACK solve on its own block, without the stack
+        a1, c1 = fits[0][0][first:], fits[0][1][first:, first:]
+        f = float(a1 @ np.linalg.solve(c1, a1)) / q
+        return [RegressionTest(f, df, float(f_upper_tails(f, q, df_residual)))]
     if tested:
         if first is not None:
             a = np.stack([fits[i][0][first:] for i in tested])

@@ -1,0 +1,93 @@
+"""The shorter paths a single fit takes give the numbers of the general ones, to the bit.
+
+A fit alone groups its standards without a tolerance, counts its distinct concentrations from those
+levels, tests its regression without stacking it beside other fits and works out the LOD/LOQ of a
+1/x-type weighting without the curve's response at the lowest standard. Each is held here to the
+general path on many invented designs.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+import curvewright as cw
+from curvewright.core.levels import _group_equal, _group_sorted, group_levels
+from curvewright.core.regression_test import regression_tests
+
+
+def _invented_concentrations(seed: int) -> np.ndarray:
+    """Concentrations as analysts write them: replicated levels, zeros (blanks), negative values of
+    a baseline-corrected scale, signed zeros, values a few units in the last place apart, and
+    concentrations read from a balance."""
+    rng = np.random.default_rng(seed)
+    kind = seed % 5
+    if kind == 0:
+        values = np.repeat(rng.choice([0.0, 0.5, 1.0, 2.0, 5.0, 10.0, 25.0], rng.integers(2, 7), replace=False),
+                           rng.integers(1, 4))
+    elif kind == 1:
+        values = rng.uniform(-5.0, 5.0, rng.integers(1, 40))
+    elif kind == 2:
+        base = rng.uniform(0.1, 100.0)
+        values = base + np.array([0, 1, 1, 2, 3, 3, 3], dtype=float) * np.spacing(base)
+    elif kind == 3:
+        values = np.array([0.0, -0.0, 0.0, 1.0, 1.0, -1.0, 2.0])
+    else:
+        values = np.round(rng.uniform(0.0, 50.0, rng.integers(3, 30)), 1)
+    return rng.permutation(values)
+
+
+@pytest.mark.parametrize("seed", range(200))
+def test_grouping_without_a_tolerance_is_the_general_grouping(seed: int) -> None:
+    x = _invented_concentrations(seed)
+    key, exact = _group_equal(x)
+    general_key, general_exact = _group_sorted(x, 0.0)
+    assert key.dtype == general_key.dtype
+    assert np.array_equal(key, general_key)
+    assert exact == general_exact
+    levels = group_levels(x)
+    # every distinct concentration is one level, so the fit counts them from the levels
+    assert levels.n_levels == np.unique(x).size
+    # the levels of labelled standards with every label empty take the general path
+    labelled = group_levels(x, labels=[""] * x.size)
+    assert np.array_equal(levels.index, labelled.index)
+    assert np.array_equal(levels.concentration, labelled.concentration)
+    assert np.array_equal(levels.count, labelled.count) and levels.exact == labelled.exact
+
+
+def _invented_fit(seed: int, model: str, weighting: str) -> cw.Calibration:
+    rng = np.random.default_rng(1000 + seed)
+    x = np.repeat(np.geomspace(rng.uniform(0.05, 1.0), rng.uniform(50.0, 500.0), rng.integers(4, 9)),
+                  rng.integers(1, 4))
+    y = rng.uniform(0.0, 0.3) + rng.uniform(0.5, 3.0) * x * (1.0 - rng.uniform(0.0, 1e-3) * x)
+    y = y * (1.0 + 0.04 * rng.standard_normal(x.size))
+    return cw.fit(x, y, model, weighting)
+
+
+@pytest.mark.parametrize("model", ["linear", "quadratic", "proportional"])
+@pytest.mark.parametrize("seed", range(40))
+def test_the_regression_test_of_a_fit_alone_is_the_stacks(seed: int, model: str) -> None:
+    cal = _invented_fit(seed, model, ("none", "1/x", "1/x^2")[seed % 3])
+    fit = (cal.z_coefficients, cal.z_covariance, cal.fitted, False)
+    alone = regression_tests([fit], cal.basis.powers, cal.response, cal.df_residual)[0]
+    stacked = regression_tests([fit, fit], cal.basis.powers, cal.response, cal.df_residual)
+    for other in stacked:
+        assert alone.f_statistic == other.f_statistic
+        assert alone.p_value == other.p_value
+        assert alone.df == other.df
+    assert cal.regression.f_statistic == alone.f_statistic and cal.regression.p_value == alone.p_value
+
+
+@pytest.mark.parametrize("weighting", ["1/x", "1/x^2", "1/y", "1/y^2"])
+@pytest.mark.parametrize("seed", range(20))
+def test_weighted_limits_use_the_weight_at_the_lowest_standard(seed: int, weighting: str) -> None:
+    # ICH Q2 (R1), 6.3 and 7.3 (the 3.3·σ/S and 10·σ/S rules), with σ the residual SD of a new
+    # response at the lowest standard: s/√w(x_low, ŷ(x_low)); 1/x-type weights do not depend on ŷ.
+    cal = _invented_fit(seed, ("linear", "quadratic")[seed % 2], weighting)
+    x_low = float(cal.concentration.min())
+    weight = float(cal.weight_model.weight_at(np.array(x_low), np.array(float(cal.predict(x_low)))))
+    sigma = cal.residual_sd / np.sqrt(weight)
+    limits = cal.limits()
+    assert limits.sigma == float(sigma)
+    assert limits.lod == float(3.3 * sigma / abs(float(cal.coefficients[1])))
+    assert limits.loq == float(10.0 * sigma / abs(float(cal.coefficients[1])))
