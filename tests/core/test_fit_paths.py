@@ -91,3 +91,40 @@ def test_weighted_limits_use_the_weight_at_the_lowest_standard(seed: int, weight
     assert limits.sigma == float(sigma)
     assert limits.lod == float(3.3 * sigma / abs(float(cal.coefficients[1])))
     assert limits.loq == float(10.0 * sigma / abs(float(cal.coefficients[1])))
+
+
+@pytest.mark.parametrize("model", ["linear", "quadratic"])
+@pytest.mark.parametrize("weighting", ["none", "1/x", "1/x^2", "1/y^2"])
+@pytest.mark.parametrize("seed", range(15))
+def test_the_band_polynomial_kept_pieces_are_those_worked_out_afresh(seed: int, model: str, weighting: str) -> None:
+    from numpy.polynomial.polynomial import polymul
+
+    from curvewright.core.band_polynomial import band_polynomial
+    from curvewright.core.inverse import SEARCH_HALF_RANGES, _full_reach
+
+    cal = _invented_fit(seed, model, weighting)
+    # f̂ and φᵀCφ in z, summed term by term as the covariance's entries fall on each power
+    fitted, variance = np.zeros(3), np.zeros(5)
+    for i, p in enumerate(cal.basis.powers):
+        fitted[p] = cal.z_coefficients[i]
+        for j, q in enumerate(cal.basis.powers):
+            variance[p + q] += cal.z_covariance[i, j]
+    band = band_polynomial(cal, 2.1)
+    assert np.array_equal(band.fitted, fitted) and np.array_equal(band.curve_variance, variance)
+    assert not cal.z_polynomials[0].flags.writeable and not cal.z_polynomials[1].flags.writeable
+    wm = cal.weight_model
+    if weighting in ("1/x", "1/x^2"):
+        # σ²/(k·(x/r)^q) with x/r = centre/r + (scale/r)·z, its square by numpy's polynomial product
+        ratio = np.array([cal.basis.centre / wm.reference, cal.basis.scale / wm.reference])
+        shape = ratio if wm.power == 1 else polymul(ratio, ratio)
+        expected = np.zeros(3)
+        expected[: shape.size] = cal.residual_sd**2 / wm.normaliser * shape
+        assert np.array_equal(band.new_variance, expected)
+        # the weight of new responses, one per unknown, as numpy broadcasts it
+        x = np.linspace(0.0, 2.0 * cal.concentration.max(), 7)
+        y = np.linspace(0.1, 1.0, 7)
+        assert np.array_equal(wm.weight_at(x, y), np.broadcast_to(
+            wm.normaliser * (wm.reference / np.maximum(x, wm.lowest_concentration)) ** wm.power, x.shape))
+    # how far the ends are searched: the spread of every standard's z
+    spread = float(np.ptp(cal.basis.z(cal.concentration)))
+    assert _full_reach(cal) == SEARCH_HALF_RANGES * max(1.0, spread)

@@ -41,7 +41,6 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
-from numpy.polynomial.polynomial import polymul
 
 from ._arrays import FloatArray
 from .weighting import Weighting
@@ -198,21 +197,19 @@ def band_polynomial(cal: "FittedCurve", t: float) -> BandPolynomial | None:
     wm = cal.weight_model
     if wm.variance_fit is not None or cal.weighting is Weighting.INVERSE_S2:
         return None
-    powers = cal.basis.powers
-    fitted = np.zeros(3)
-    curve_variance = np.zeros(5)
-    for i, p in enumerate(powers):
-        fitted[p] = cal.z_coefficients[i]
-        for j, q in enumerate(powers):
-            curve_variance[p + q] += cal.z_covariance[i, j]
+    # the curve and its variance in z (the calibration keeps them), padded to a quadratic's
+    curve, variance = cal.z_polynomials
+    fitted = _padded(curve, 3)
+    curve_variance = _padded(variance, 5)
     s2 = cal.residual_sd**2
     centre, scale = cal.basis.centre, cal.basis.scale
     k, r, power = wm.normaliser, wm.reference, wm.power
     response = {}
     if cal.weighting in (Weighting.INVERSE_X, Weighting.INVERSE_X2):
-        ratio = np.array([centre / r, scale / r])  # x/r as a polynomial in z
-        shape = ratio if power == 1 else polymul(ratio, ratio)
-        new_variance = _padded(s2 / k * shape, 3)
+        a, b = centre / r, scale / r  # x/r = a + b·z
+        # (a + b·z)² = a² + 2ab·z + b²·z² (polymul's products; its middle term ab + ba is 2ab exactly)
+        shape = [a, b] if power == 1 else [a * a, 2.0 * (a * b), b * b]
+        new_variance = _padded(np.array([s2 / k * c for c in shape]), 3)
         low = wm.lowest_concentration
         below = float(s2 / (k * (r / low) ** power))
         z_break = float((low - centre) / scale)

@@ -502,7 +502,7 @@ def _polynomial_calibration(
         z_covariance=frozen(z_cov),
         coefficients=frozen(coefficients),
         covariance=frozen(covariance),
-        standard_errors=frozen(np.sqrt(np.maximum(np.diag(covariance), 0.0))),
+        standard_errors=frozen(np.sqrt(np.maximum(covariance.diagonal(), 0.0))),
         residual_sd=residual_sd,
         df_residual=df,
         r_squared=float(r_squared),
@@ -531,9 +531,10 @@ def _refuse_unrepresentable(
     even though each value typed is a valid number.
     """
     problem = None
+    # at most a dozen numbers: checked as Python floats, the same tests without numpy's call overhead
     if not math.isfinite(residual_sd):
         problem = "the residual variance overflows"
-    elif not (np.isfinite(coefficients).all() and np.isfinite(covariance).all()):
+    elif not (all(map(math.isfinite, coefficients.tolist())) and all(map(math.isfinite, covariance.ravel().tolist()))):
         problem = "a coefficient or its variance overflows"
     else:
         scale = float(basis.scale)
@@ -541,10 +542,10 @@ def _refuse_unrepresentable(
             representable = all(math.isfinite(unit) and unit > 0 for unit in (scale ** -k for k in basis.powers))
         except (OverflowError, ZeroDivisionError):
             representable = False
-        free = np.diag(covariance)[1 - int(model.has_intercept):]
+        free = covariance.diagonal().tolist()[1 - int(model.has_intercept):]
         if not representable:
             problem = f"x^{max(basis.powers)} leaves the range of representable numbers"
-        elif residual_sd > 0 and bool(np.any(free <= 0)):
+        elif residual_sd > 0 and any(v <= 0 for v in free):
             problem = "a coefficient's variance underflows to zero"
     if problem is not None:
         raise CalibrationInputError(

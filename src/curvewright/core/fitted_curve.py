@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 
@@ -147,6 +148,21 @@ class FittedCurve:
     @property
     def influence_flags(self) -> tuple[tuple[InfluenceFlag, ...], ...]:
         return self.influence.flags
+
+    @cached_property
+    def z_polynomials(self) -> tuple[FloatArray, FloatArray]:
+        """Ascending coefficients, in z, of the fitted curve f̂(z) and of its variance φ(z)ᵀ·C·φ(z)
+        (a polynomial curve; read-only, worked out once)."""
+        powers = self.basis.powers
+        fitted = np.zeros(max(powers) + 1)
+        variance = np.zeros(2 * max(powers) + 1)
+        for i, p in enumerate(powers):
+            fitted[p] = self.z_coefficients[i]
+            for j, q in enumerate(powers):
+                variance[p + q] += self.z_covariance[i, j]
+        fitted.setflags(write=False)
+        variance.setflags(write=False)
+        return fitted, variance
 
     @property
     def calibrated_range(self) -> tuple[float, float]:

@@ -263,7 +263,9 @@ def _quantify_block(
 ) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray, np.ndarray, np.ndarray, tuple | None]:
     """Estimate, standard error, interval ends, flag bits and the unrepresentable mask of a block of
     unknowns, and the ends left for the full search of the polynomial band (see :func:`_search_left`)."""
-    z_range = tuple(cal.basis.z(np.array(cal.calibrated_range)))
+    range_low, range_high = cal.calibrated_range
+    centre, scale = cal.basis.centre, cal.basis.scale
+    z_range = ((range_low - centre) / scale, (range_high - centre) / scale)  # Basis.z's operations, on floats
     # Overflow is detected below, per unknown, and refused by name rather than left as inf or NaN.
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
@@ -305,10 +307,9 @@ def _quantify_block(
             bad = ~bad | np.isnan(lower) | np.isnan(upper)
     turning = at_turning_point | past_vertex
 
-    low, high = cal.calibrated_range
     # Round-off must not push a response read at exactly an end standard outside the range.
-    slack = RANGE_SLACK * (high - low)
-    low, high = low - slack, high + slack
+    slack = RANGE_SLACK * (range_high - range_low)
+    low, high = range_low - slack, range_high + slack
     bits = _range_bits(x_hat, low, high, limits)
     for flag, mask in ((QuantFlag.AMBIGUOUS_ROOT, ambiguous), (QuantFlag.UNBOUNDED_INTERVAL, unbounded),
                        (QuantFlag.TURNING_POINT, turning)):
@@ -584,15 +585,9 @@ def _fieller_z(
 
 
 def curve_polynomials(cal: "FittedCurve") -> tuple[FloatArray, FloatArray]:
-    """Ascending coefficients, in z, of the fitted curve f̂(z) and of its variance φ(z)ᵀ·C·φ(z)."""
-    powers = cal.basis.powers
-    fitted = np.zeros(max(powers) + 1)
-    variance = np.zeros(2 * max(powers) + 1)
-    for i, p in enumerate(powers):
-        fitted[p] = cal.z_coefficients[i]
-        for j, q in enumerate(powers):
-            variance[p + q] += cal.z_covariance[i, j]
-    return fitted, variance
+    """Ascending coefficients, in z, of the fitted curve f̂(z) and of its variance φ(z)ᵀ·C·φ(z)
+    (kept with the calibration: :attr:`~.fitted_curve.FittedCurve.z_polynomials`)."""
+    return cal.z_polynomials
 
 
 def _band_excess(
@@ -657,7 +652,11 @@ def _band_edges(
 
 def _full_reach(cal: "FittedCurve") -> float:
     """How far beyond ẑ (or the vertex) the interval's ends are searched, in z."""
-    return SEARCH_HALF_RANGES * max(1.0, float(np.ptp(cal.basis.z(cal.concentration))))
+    # the spread of the standards in z: z rises with x, and so do its rounded values, so it is the
+    # highest standard's z less the lowest's (the same bits as the spread of every standard's z)
+    x, centre, scale = cal.concentration, cal.basis.centre, cal.basis.scale
+    spread = (float(np.maximum.reduce(x)) - centre) / scale - (float(np.minimum.reduce(x)) - centre) / scale
+    return SEARCH_HALF_RANGES * max(1.0, spread)
 
 
 def _band_crossing(
