@@ -128,3 +128,32 @@ def test_the_band_polynomial_kept_pieces_are_those_worked_out_afresh(seed: int, 
     # how far the ends are searched: the spread of every standard's z
     spread = float(np.ptp(cal.basis.z(cal.concentration)))
     assert _full_reach(cal) == SEARCH_HALF_RANGES * max(1.0, spread)
+
+
+@pytest.mark.parametrize("model", ["linear", "quadratic", "proportional"])
+@pytest.mark.parametrize("seed", range(10))
+def test_a_fit_is_assembled_as_the_constructor_makes_it(seed: int, model: str) -> None:
+    import dataclasses
+    import pickle
+
+    cal = _invented_fit(seed, model, ("none", "1/x^2")[seed % 2])
+    fields = {f.name: getattr(cal, f.name) for f in dataclasses.fields(cal)}
+    made = type(cal)(**fields)
+    assert list(vars(made)) == list(vars(cal))  # the same keys in the same order
+    assert all(vars(made)[key] is value for key, value in vars(cal).items())
+    assert pickle.dumps(made) == pickle.dumps(cal)
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        cal.residual_sd = 0.0  # type: ignore[misc]
+
+
+@pytest.mark.parametrize("powers", [(0, 1), (0, 1, 2), (1,)])
+def test_the_design_matrix_is_the_stack_of_powers(powers: tuple[int, ...]) -> None:
+    from curvewright.core.models import Basis
+
+    basis = Basis(centre=1.5, scale=2.5, powers=powers)
+    x = np.array([0.0, -0.0, 1.5, 1e-300, -3.5, 1e154, 7.25, 4.0])
+    for values in (x, x.reshape(2, 4), np.array(2.0)):
+        z = basis.z(values)
+        expected = np.stack([z**p for p in powers], axis=-1)
+        made = basis.design(values)
+        assert made.shape == expected.shape and made.tobytes() == expected.tobytes()

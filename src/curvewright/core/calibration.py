@@ -490,7 +490,7 @@ def _polynomial_calibration(
     else:
         back, relative = stacked[2], stacked[3]
 
-    return Calibration(
+    return Calibration._assembled(dict(  # type: ignore[return-value]
         model=model,
         weighting=weighting,
         concentration=x,
@@ -509,15 +509,15 @@ def _polynomial_calibration(
         adjusted_r_squared=float(1.0 - (1.0 - r_squared) * adjust),
         fitted=frozen(solution.fitted),
         residuals=frozen(y - solution.fitted),
-        influence=influence,
-        lack_of_fit=lack,
+        _influence=influence,
+        _lack_of_fit=lack,
         regression=regression,
         back_calculated=frozen(back),
         relative_error=frozen(relative),
         quadratic_branch=branch,
         vertex_z=vertex_z,
         notes=notes,
-    )
+    ))
 
 
 def _refuse_unrepresentable(

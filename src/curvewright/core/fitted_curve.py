@@ -101,6 +101,17 @@ class FittedCurve:
     vertex_z: float | None = None
     notes: tuple[str, ...] = field(default=())
 
+    @classmethod
+    def _assembled(cls, fields: dict) -> "FittedCurve":
+        """The result holding ``fields``: every field in the constructor's order, keyed as the
+        constructor stores them (the diagnostics that may be deferred, ``influence`` and
+        ``lack_of_fit``, under ``_influence`` and ``_lack_of_fit``; see the end of this module). Made
+        without the frozen constructor's one guarded assignment per field: the same object, as
+        immutable (``tests/core/test_fit_paths.py`` holds the two ways to the same state)."""
+        made = object.__new__(cls)
+        made.__dict__.update(fields)
+        return made
+
     # --- plain views of the result --------------------------------------------------------------
     @property
     def n_standards(self) -> int:
