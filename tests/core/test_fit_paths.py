@@ -157,3 +157,23 @@ def test_the_design_matrix_is_the_stack_of_powers(powers: tuple[int, ...]) -> No
         expected = np.stack([z**p for p in powers], axis=-1)
         made = basis.design(values)
         assert made.shape == expected.shape and made.tobytes() == expected.tobytes()
+
+
+@pytest.mark.parametrize("interval", ["band", "symmetric"])
+@pytest.mark.parametrize("model, weighting", [("linear", "none"), ("linear", "1/x^2"), ("quadratic", "1/x^2"),
+                                              ("proportional", "1/y")])
+def test_one_block_of_unknowns_gives_arrays_of_its_own(model: str, weighting: str, interval: str) -> None:
+    cal = _invented_fit(3, model, weighting)
+    y0 = np.linspace(float(cal.response.min()), float(cal.response.max()), 40)
+    given = y0.copy()
+    q = cal.quantify(y0, replicates=2, interval=interval)
+    arrays = [q.estimate, q.standard_error, q.lower, q.upper, q.flag_bits]
+    assert all(not a.flags.writeable for a in arrays)
+    assert not any(np.shares_memory(a, b) for i, a in enumerate(arrays) for b in arrays[i + 1:])
+    assert not any(np.shares_memory(a, y0) for a in arrays)
+    assert np.array_equal(y0, given)
+    # a whole count given as a Python int, a numpy int or a float: the same counts
+    for replicates in (np.int64(2), 2.0, [2] * y0.size):
+        other = cal.quantify(y0, replicates=replicates, interval=interval)
+        for name in ("estimate", "standard_error", "lower", "upper", "flag_bits", "replicates"):
+            assert np.array_equal(getattr(other, name), getattr(q, name), equal_nan=True)

@@ -216,21 +216,29 @@ def quantify(
                 limits_note = f"LOD/LOQ flags not set: {exc}"
 
     k = y0.size
-    estimate, standard_error, lower, upper = (np.empty(k) for _ in range(4))
-    bits = np.zeros(k, dtype=np.int64)
-    bad = np.zeros(k, dtype=bool)
     band = None
     if interval == "band" and (cal.model is Model.QUADRATIC or cal.weighting.uses_concentration):
         band = band_polynomial(cal, t)
     # Unknowns are worked in blocks so that the working arrays stay a fixed size however many there
     # are; every unknown's result depends on its own response and replicate count only.
     left = []
-    for first in range(0, k, CHUNK):
-        block = slice(first, first + CHUNK)
-        (estimate[block], standard_error[block], lower[block], upper[block], bits[block],
-         bad[block], block_left) = _quantify_block(cal, y0[block], m[block], probability, t, interval, limits, band)
+    if 0 < k <= CHUNK:
+        # one block: its arrays are the results (each made afresh by the block, none shared)
+        estimate, standard_error, lower, upper, bits, bad, block_left = _quantify_block(
+            cal, y0, m, probability, t, interval, limits, band)
         if block_left is not None:
-            left.append((first, block_left))
+            left.append((0, block_left))
+    else:
+        estimate, standard_error, lower, upper = (np.empty(k) for _ in range(4))
+        bits = np.zeros(k, dtype=np.int64)
+        bad = np.zeros(k, dtype=bool)
+        for first in range(0, k, CHUNK):
+            block = slice(first, first + CHUNK)
+            (estimate[block], standard_error[block], lower[block], upper[block], bits[block],
+             bad[block], block_left) = _quantify_block(cal, y0[block], m[block], probability, t, interval, limits,
+                                                       band)
+            if block_left is not None:
+                left.append((first, block_left))
     if left:
         assert band is not None
         _search_left(cal, band, y0, m, left, lower, upper, bits, bad)
@@ -399,6 +407,8 @@ def _refuse_unrepresentable(y0: FloatArray, bad: np.ndarray) -> None:
 
 
 def _replicate_counts(replicates: object, k: int) -> np.ndarray:
+    if type(replicates) is int and k > 0 and 1 <= replicates < 2**53:
+        return np.full(k, replicates, dtype=np.int64)  # one whole count for every unknown (the usual 1)
     if np.ndim(replicates) == 0 and k > 0:
         # one count for every unknown: checked once, as the first unknown's
         single = np.asarray(replicates)
