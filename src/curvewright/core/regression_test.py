@@ -91,7 +91,7 @@ def regression_tests(
     slope_terms = [i for i, p in enumerate(powers) if p >= 1]
     q = len(slope_terms)
     df = (q, df_residual)
-    floor = ROUNDOFF * float(np.max(np.abs(response), initial=0.0))
+    floor = ROUNDOFF * float(np.maximum.reduce(np.abs(response), initial=0.0))
     # the terms of powers ≥ 1 follow the intercept's, so they are one block of the coefficients
     first = slope_terms[0] if slope_terms == list(range(slope_terms[0], len(powers))) else None
     out: list[RegressionTest | None] = [None] * len(fits)

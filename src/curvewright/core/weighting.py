@@ -137,7 +137,7 @@ def make_weights(
             f"response SD: given, but weighting {weighting.value} does not use it; choose weighting "
             "1/s^2 to weight by these SDs, or leave them out."
         )
-    if weighting in (Weighting.INVERSE_X, Weighting.INVERSE_X2):
+    if weighting in (Weighting.INVERSE_X, Weighting.INVERSE_X2) and np.minimum.reduce(concentration) <= 0:
         bad = np.flatnonzero(concentration <= 0)
         if bad.size:
             i = int(bad[0])
@@ -146,7 +146,7 @@ def make_weights(
                 f"{concentration[i]:g}; 1/x-type weights need every concentration above zero "
                 "(leave blanks out of the fit or choose another weighting)."
             )
-    if weighting in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2):
+    if weighting in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2) and np.minimum.reduce(response) <= 0:
         bad = np.flatnonzero(response <= 0)
         if bad.size:
             i = int(bad[0])
@@ -187,7 +187,7 @@ def make_weights(
             f"{values[i]:g} (standard {i + 1}), too many orders of magnitude apart for the weights to be "
             "represented as numbers; check the units of the standards."
         )
-    normaliser = n / float(raw.sum())
+    normaliser = n / float(np.add.reduce(raw))
     lowest = int(concentration.argmin())
     return WeightModel(
         weighting=weighting,
