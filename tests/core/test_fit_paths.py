@@ -177,3 +177,40 @@ def test_one_block_of_unknowns_gives_arrays_of_its_own(model: str, weighting: st
         other = cal.quantify(y0, replicates=replicates, interval=interval)
         for name in ("estimate", "standard_error", "lower", "upper", "flag_bits", "replicates"):
             assert np.array_equal(getattr(other, name), getattr(q, name), equal_nan=True)
+
+
+def test_the_halley_convergence_test_in_place_is_the_written_out_test() -> None:
+    from curvewright.core.band_polynomial import _CONVERGED, _step_converged
+
+    rng = np.random.default_rng(11)
+    step = rng.standard_normal(4000) * 10.0 ** rng.uniform(-14, 2, 4000)
+    h = rng.standard_normal(4000) * 10.0 ** rng.uniform(-6, 3, 4000)
+    step[:6] = [np.nan, np.inf, -np.inf, 0.0, -0.0, 1e-300]
+    h[6:9] = [np.nan, np.inf, 0.0]
+    tolerance = _CONVERGED * np.abs(rng.uniform(-3, 3, 4000))
+    expected = np.abs(step) <= tolerance + _CONVERGED * np.abs(h)
+    assert np.array_equal(_step_converged(step.copy(), tolerance, h), expected)
+
+
+@pytest.mark.parametrize("seed", range(30))
+def test_the_convexity_bound_in_place_is_the_written_out_bound(seed: int) -> None:
+    from curvewright.core.band_polynomial import _convex, _exactly_convex, _Start
+
+    rng = np.random.default_rng(seed)
+    k = 500
+    first = _Start.__new__(_Start)
+    c4 = float(rng.uniform(-2.0, 2.0))
+    first.c = [rng.uniform(-2, -0.1, k), rng.standard_normal(k), rng.uniform(0.0, 3.0, k), rng.standard_normal(k), c4]
+    first.twice_c2 = 2.0 * first.c[2]
+    first.six_c3 = 6.0 * first.c[3]
+    first.convex_margin = first.twice_c2 * (1.0 - 1e-6)
+    first.abs_six_c3 = np.abs(first.six_c3)
+    h = rng.standard_normal(k) * 10.0 ** rng.uniform(-3, 1, k)
+    a = np.abs(h)
+    bound = a * first.abs_six_c3
+    if c4 < 0:
+        bound += (-12.0 * c4) * a * a
+    expected = bound <= first.convex_margin
+    unsure = np.flatnonzero(~expected)
+    expected[unsure] = _exactly_convex([ci[unsure] if np.ndim(ci) else ci for ci in first.c], h[unsure])
+    assert np.array_equal(_convex(first, h), expected)

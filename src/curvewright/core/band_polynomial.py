@@ -357,6 +357,13 @@ class _Start:
                 self.convex_margin = self.twice_c2 * (1.0 - 1e-6)
                 self.abs_six_c3 = np.abs(self.six_c3)
         self._tolerance = None
+        self._below_index = None
+
+    def below_index(self) -> np.ndarray:
+        """The positions of the unknowns whose ẑ lies below the lowest standard (h_break > 0)."""
+        if self._below_index is None:
+            self._below_index = np.flatnonzero(self.below_break)
+        return self._below_index
 
     def tolerance(self, start: FloatArray) -> FloatArray:
         """The size of Halley's step below which an end counts as converged, beside its own size
@@ -392,7 +399,8 @@ def _convex_end(
             convex = c[2] >= 0
             converged = np.isfinite(h)
         else:
-            usable = np.isfinite(h) & (h * direction > 0)
+            # h·direction > 0, compared without the product (multiplying by ±1 is exact)
+            usable = np.isfinite(h) & (h > 0 if direction > 0 else h < 0)
             if not usable.all():
                 h = np.where(usable, h, direction * guess)
             tolerance = first.tolerance(start)
@@ -400,11 +408,11 @@ def _convex_end(
             # takes the first step; one whose step is already below the test stops there.
             step = _halley_step(first, h)
             h -= step
-            converged = np.abs(step) <= tolerance + _CONVERGED * np.abs(h)
+            converged = _step_converged(step, tolerance, h)
             if not converged.all():
                 step = _halley_step(first, h)
                 after = h - step
-                done = np.abs(step) <= tolerance + _CONVERGED * np.abs(after)
+                done = _step_converged(step, tolerance, after)
                 if converged.any():
                     after = np.where(converged, h, after)
                     done |= converged
@@ -425,18 +433,35 @@ def _convex_end(
                             break
                     h[rest], converged[rest] = hr, ~moving
             convex = _convex(first, h)
-        u = h * direction
-        # within a finite reach, 0 < u ≤ reach holds only for a finite h
-        certain = (u > 0) & (u <= reach) if np.ndim(reach) == 0 and np.isfinite(reach) else (
-            np.isfinite(h) & (u > 0) & (u <= reach))
+        # 0 < u ≤ reach with u = h·direction, compared without the product (multiplying and negating
+        # by ±1 are exact); within a finite reach it holds only for a finite h
+        if direction > 0:
+            certain = h > 0
+            certain &= h <= reach
+        else:
+            certain = h < 0
+            certain &= h >= -reach
+        if not (np.ndim(reach) == 0 and np.isfinite(reach)):
+            certain &= np.isfinite(h)
         certain &= first.inside
         certain &= convex
         certain &= converged
         crossed = None
         if first.below_break is not None:
-            same_piece = first.below_break == (h < shifted.h_break)
-            crossed = certain & ~same_piece
-            certain &= same_piece
+            if direction > 0:
+                # above ẑ, only an unknown whose ẑ lies below the lowest standard can cross it: for the
+                # others h_break ≤ 0 < h, so the end lies in their piece (the test below gives them
+                # "same piece" too); those few are tested alone
+                below = first.below_index()
+                if below.size:
+                    same_piece = h[below] < shifted.h_break[below]
+                    crossed = np.zeros(h.size, dtype=bool)
+                    crossed[below] = certain[below] & ~same_piece
+                    certain[below] &= same_piece
+            else:
+                same_piece = first.below_break == (h < shifted.h_break)
+                crossed = certain & ~same_piece
+                certain &= same_piece
     return h, certain, crossed
 
 
@@ -498,6 +523,16 @@ def _halley_step(first: _Start, h: FloatArray) -> FloatArray:
     return numerator
 
 
+def _step_converged(step: FloatArray, tolerance: FloatArray, h: FloatArray) -> np.ndarray:
+    """|step| ≤ tolerance + 1e-6·|h|, worked in place in ``step`` (which the caller no longer
+    needs) and one scratch array; the same operations as written out (addition commutes exactly)."""
+    scratch = np.abs(h)
+    scratch *= _CONVERGED
+    scratch += tolerance
+    np.abs(step, out=step)
+    return np.less_equal(step, scratch)
+
+
 def _convex(first: _Start, h: FloatArray) -> np.ndarray:
     """Whether g is convex between 0 and h: the bound of :class:`_Start` where it decides, the exact
     test (:func:`_exactly_convex`) for the others; the same answer as the exact test for every h."""
@@ -505,7 +540,9 @@ def _convex(first: _Start, h: FloatArray) -> np.ndarray:
     a = np.abs(h)
     bound = a * first.abs_six_c3
     if c[4] < 0:
-        bound += (-12.0 * c[4]) * a * a
+        a *= -12.0 * c[4]  # (−12·c4·|h|)·|h|, in place: a is not read again
+        a *= np.abs(h)
+        bound += a
     convex = bound <= first.convex_margin
     unsure = np.flatnonzero(~convex)
     if unsure.size:
