@@ -245,8 +245,7 @@ def polynomial_band_edges(
     unknowns whose lower and upper ends were left, for :func:`searched_end` (so that the few of a
     large call are searched together, not block by block). Otherwise that item is None.
     """
-    shifted = band.about(y0, band.multiplier(y0, m), start, curve_variance)
-    h_vertex = None if vertex_z is None else vertex_z - start
+    shifted, h_vertex = _about_start(band, y0, m, start, vertex_z, curve_variance)
     first = _Start(shifted)
     ends = []
     left = []
@@ -264,8 +263,7 @@ def polynomial_band_edges(
                 facing = False  # none does: the vertex plays no part on this side
                 reach = full_reach
             else:
-                towards = h_vertex * direction >= 0
-                reach = np.where(towards, np.abs(h_vertex), 0.0) + full_reach
+                towards, reach = _reach_past_vertex(h_vertex, direction, full_reach)
         else:
             reach = full_reach
         h_end, certain, crossed = _convex_end(shifted, first, direction, reach, guess, start)
@@ -311,11 +309,9 @@ def searched_end(
     """One end (``direction`` −1: lower, +1: upper), in z, found by the full search (:func:`_side`),
     and whether it lies past the vertex on the side that faces it. Each unknown's end depends on its
     own ȳ₀, m, ẑ and ``guess`` only, whichever others are searched with it."""
-    shifted = band.about(y0, band.multiplier(y0, m), start)
-    h_vertex = None if vertex_z is None else vertex_z - start
+    shifted, h_vertex = _about_start(band, y0, m, start, vertex_z)
     if h_vertex is not None:
-        towards = h_vertex * direction >= 0
-        reach = np.where(towards, np.abs(h_vertex), 0.0) + full_reach
+        towards, reach = _reach_past_vertex(h_vertex, direction, full_reach)
     else:
         towards = np.zeros(y0.size, dtype=bool)
         reach = np.full(y0.size, full_reach)
@@ -329,6 +325,22 @@ def searched_end(
     )
     # ẑ plus the distance, as every other end is made
     return start + h_end, towards & beyond_vertex
+
+
+def _about_start(
+    band: BandPolynomial, y0: FloatArray, m: np.ndarray, start: FloatArray, vertex_z: float | None,
+    curve_variance: FloatArray | None = None,
+) -> tuple[ShiftedBand, FloatArray | None]:
+    """g about each unknown's ẑ (``start``) and the distance from ẑ to the vertex (None without one)."""
+    shifted = band.about(y0, band.multiplier(y0, m), start, curve_variance)
+    return shifted, None if vertex_z is None else vertex_z - start
+
+
+def _reach_past_vertex(h_vertex: FloatArray, direction: float, full_reach: float) -> tuple[np.ndarray, FloatArray]:
+    """Which unknowns face the vertex on the side ``direction``, and how far from ẑ that side is
+    searched: to the vertex and ``full_reach`` beyond it where it faces the vertex, else ``full_reach``."""
+    towards = h_vertex * direction >= 0
+    return towards, np.where(towards, np.abs(h_vertex), 0.0) + full_reach
 
 
 class _Start:

@@ -19,7 +19,7 @@ from .acceptance import AcceptanceProfile, AcceptanceVerdict
 from .errors import CalibrationInputError, LimitsError
 from .fitted_curve import Deferred, FittedCurve
 from .influence import Influence, leverage_notes, measure_influence, measure_influence_of_fits
-from .inverse import Quantitation, quantify, solve_z
+from .inverse import Quantitation, quadratic_roots, quantify, solve_z
 from .lack_of_fit import LackOfFit, lack_of_fit_test, lack_of_fit_tests
 from .least_squares import LeastSquaresSolution, roundoff_floor, solve_weighted, solve_weighted_stack, without_roundoff
 from .levels import Levels, group_levels
@@ -421,19 +421,7 @@ def _stacked_roots(model: Model, a: FloatArray, branch: np.ndarray, y: FloatArra
         return y / a[:, :1]
     if model is not Model.QUADRATIC:
         return (y - a[:, :1]) / a[:, 1:2]
-    a0, a1, a2 = a[:, :1], a[:, 1:2], a[:, 2:3]
-    c = a0 - y
-    disc = a1 * a1 - 4.0 * a2 * c
-    no_solution = disc < 0
-    root_disc = np.sqrt(np.maximum(disc, 0.0))
-    q = np.where(np.signbit(a1), a1 - root_disc, a1 + root_disc)
-    q *= -0.5
-    with np.errstate(invalid="ignore", divide="ignore"):
-        r1 = q / a2
-        r2 = c / q
-    zero = q == 0.0
-    if zero.any():
-        r2[zero] = r1[zero]
+    r1, r2, no_solution = quadratic_roots(a[:, :1], a[:, 1:2], a[:, 2:3], y)
     root = np.where(branch[:, None] > 0, np.maximum(r1, r2), np.minimum(r1, r2))
     root[no_solution] = np.nan
     return root

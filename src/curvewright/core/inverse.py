@@ -437,6 +437,31 @@ def _replicate_counts(replicates: object, k: int) -> np.ndarray:
     return as_float.astype(np.int64)
 
 
+def quadratic_roots(a0: object, a1: object, a2: object, y0: FloatArray) -> tuple[FloatArray, FloatArray, np.ndarray]:
+    """Both roots of a₂·z² + a₁·z + (a₀ − y₀) = 0 by the stable form q = −(a₁ + sign(a₁)·√disc)/2,
+    roots q/a₂ and c/q (Press et al., Numerical Recipes, 3rd ed., §5.6; section from memory), disc
+    clipped at zero, and the mask of responses with no real root (disc < 0). The coefficients are
+    numbers, or columns of a stack of curves (shape (k, 1)) against responses (n,). Where q is zero
+    both roots are q/a₂. :func:`solve_z` and the model screen's back-calculation share it."""
+    c = a0 - y0
+    disc = a1 * a1 - 4.0 * a2 * c
+    no_solution = disc < 0
+    root_disc = np.sqrt(np.maximum(disc, 0.0))
+    if np.ndim(a1) == 0:
+        # a1 + sign(a1)·√disc (a1 is one number: the sign is chosen once)
+        q = a1 + root_disc if not np.signbit(a1) else a1 - root_disc
+    else:
+        q = np.where(np.signbit(a1), a1 - root_disc, a1 + root_disc)
+    q *= -0.5
+    with np.errstate(invalid="ignore", divide="ignore"):
+        r1 = q / a2
+        r2 = c / q
+    zero = q == 0.0
+    if zero.any():
+        r2[zero] = r1[zero]
+    return r1, r2, no_solution
+
+
 def solve_z(
     model: Model,
     a: FloatArray,
@@ -464,19 +489,7 @@ def solve_z(
         if a1 == 0.0:
             return np.full(y0.size, np.nan), ~false, false
         return (y0 - a0) / a1, false, false
-    c = a0 - y0
-    disc = a1 * a1 - 4.0 * a2 * c
-    no_solution = disc < 0
-    root_disc = np.sqrt(np.maximum(disc, 0.0))
-    # a1 + sign(a1)·√disc (a1 is one number: the sign is chosen once)
-    q = a1 + root_disc if not np.signbit(a1) else a1 - root_disc
-    q *= -0.5
-    with np.errstate(invalid="ignore", divide="ignore"):
-        r1 = q / a2
-        r2 = c / q
-    zero = q == 0.0
-    if zero.any():
-        r2[zero] = r1[zero]
+    r1, r2, no_solution = quadratic_roots(a0, a1, a2, y0)
     root = np.maximum(r1, r2) if branch > 0 else np.minimum(r1, r2)
     other = np.minimum(r1, r2) if branch > 0 else np.maximum(r1, r2)
     z_low, z_high = z_range
