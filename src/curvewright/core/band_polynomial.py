@@ -492,7 +492,12 @@ def _end_in_the_other_piece(
     so between the break and h* too, and rises through zero at h*; h* must lie in that piece."""
     below = shifted.h_break[index] > 0  # ẑ below the lowest standard: the other piece is the upper
     pick = lambda c: c[index] if np.ndim(c) else c  # noqa: E731
+    # all of one side of the break, as is usual (a lower end crossing it from above), the other
+    # piece is taken whole; the terms the pieces share (the same arrays) need no choice either
+    side = "upper" if below.all() else "lower" if not below.any() else None
     other = [
+        pick(up) if np.ndim(up) and (lo is up or side == "upper") else
+        pick(lo) if np.ndim(lo) and np.ndim(up) and side == "lower" else
         np.where(below, pick(up), pick(lo)) if np.ndim(up) or np.ndim(lo) else up
         for lo, up in zip(shifted.lower, shifted.upper)
     ]
