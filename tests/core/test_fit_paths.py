@@ -214,3 +214,20 @@ def test_the_convexity_bound_in_place_is_the_written_out_bound(seed: int) -> Non
     unsure = np.flatnonzero(~expected)
     expected[unsure] = _exactly_convex([ci[unsure] if np.ndim(ci) else ci for ci in first.c], h[unsure])
     assert np.array_equal(_convex(first, h), expected)
+
+
+def test_models_and_weightings_read_by_name_as_before() -> None:
+    from curvewright.core.model_kinds import Model
+    from curvewright.core.weighting_kinds import Weighting
+
+    # the number of parameters and the powers of z of each calibration function (see their docstrings)
+    assert {m.value: (m.n_parameters, m.powers) for m in Model} == {
+        "linear": (2, (0, 1)), "quadratic": (3, (0, 1, 2)), "proportional": (1, (1,)), "average-rf": (1, (1,)),
+        "4pl": (4, ()), "5pl": (5, ()), "power": (2, ()),
+    }
+    for w in Weighting:
+        assert Weighting.parse(w.value) is w and Weighting.parse(w) is w
+        # the spellings an analyst types are read as before: the name is left as it is by them
+        assert w.value.strip().replace("²", "^2").replace(" ", "").lower() == w.value
+    assert Weighting.parse(" 1/X² ") is Weighting.INVERSE_X2 and Weighting.parse("1/s2") is Weighting.INVERSE_S2
+    assert Weighting.parse("") is Weighting.NONE and Weighting.parse("Two component") is Weighting.TWO_COMPONENT
