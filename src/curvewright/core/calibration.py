@@ -452,11 +452,13 @@ def _polynomial_calibration(
         r_squared = 0.0  # the responses do not vary: nothing to explain
     else:
         r_squared = 1.0 - float(clean @ clean) / sst
-    # the calibrated range in z: Python floats, the same operations as Basis.z
-    centre, scale = basis.centre, basis.scale
-    z_range = ((float(np.minimum.reduce(x)) - centre) / scale, (float(np.maximum.reduce(x)) - centre) / scale)
-    branch, vertex_z, notes = (
-        _quadratic_geometry(model, solution.coefficients, basis, x, z_range) if stacked is None else stacked[1])
+    if stacked is None:
+        # the calibrated range in z: Python floats, the same operations as Basis.z
+        centre, scale = basis.centre, basis.scale
+        z_range = ((float(np.minimum.reduce(x)) - centre) / scale, (float(np.maximum.reduce(x)) - centre) / scale)
+        branch, vertex_z, notes = _quadratic_geometry(model, solution.coefficients, basis, x, z_range)
+    else:
+        branch, vertex_z, notes = stacked[1]
     if lack is None:
         lack = Deferred(lambda: lack_of_fit_test(clean / np.sqrt(w), w, levels, p,
                                                  weights_from_replicates=weights.from_replicates))
