@@ -278,7 +278,8 @@ def _quantify_block(
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
         at_turning_point = _inside_band_at_vertex(cal, y0, m, probability, no_solution)
-        if at_turning_point.any():
+        any_at_turning_point = bool(at_turning_point.any())
+        if any_at_turning_point:
             z_hat = np.where(at_turning_point, cal.vertex_z if cal.vertex_z is not None else np.nan, z_hat)
             no_solution = no_solution & ~at_turning_point
         x_hat = cal.basis.centre + cal.basis.scale * z_hat
@@ -308,12 +309,12 @@ def _quantify_block(
         bounded &= np.isfinite(upper)
         if bounded.all():
             # neither end is infinite, nor NaN
-            unbounded = ~bounded
+            unbounded = None
             np.logical_not(bad, out=bad)
         else:
             unbounded = np.isinf(lower) | np.isinf(upper)
             bad = ~bad | np.isnan(lower) | np.isnan(upper)
-    turning = at_turning_point | past_vertex
+    turning = at_turning_point | past_vertex if any_at_turning_point else past_vertex
 
     # Round-off must not push a response read at exactly an end standard outside the range.
     slack = RANGE_SLACK * (range_high - range_low)
@@ -321,7 +322,7 @@ def _quantify_block(
     bits = _range_bits(x_hat, low, high, limits)
     for flag, mask in ((QuantFlag.AMBIGUOUS_ROOT, ambiguous), (QuantFlag.UNBOUNDED_INTERVAL, unbounded),
                        (QuantFlag.TURNING_POINT, turning)):
-        if mask.any():
+        if mask is not None and mask.any():
             np.bitwise_or(bits, int(flag), out=bits, where=mask)
     if not unsolved:
         return x_hat, se, lower, upper, bits, bad, left
