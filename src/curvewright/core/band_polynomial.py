@@ -41,7 +41,6 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
-from numpy.polynomial.polynomial import polymul
 
 from ._arrays import FloatArray
 from .weighting import Weighting
@@ -198,21 +197,19 @@ def band_polynomial(cal: "FittedCurve", t: float) -> BandPolynomial | None:
     wm = cal.weight_model
     if wm.variance_fit is not None or cal.weighting is Weighting.INVERSE_S2:
         return None
-    powers = cal.basis.powers
-    fitted = np.zeros(3)
-    curve_variance = np.zeros(5)
-    for i, p in enumerate(powers):
-        fitted[p] = cal.z_coefficients[i]
-        for j, q in enumerate(powers):
-            curve_variance[p + q] += cal.z_covariance[i, j]
+    # the curve and its variance in z (the calibration keeps them), padded to a quadratic's
+    curve, variance = cal.z_polynomials
+    fitted = _padded(curve, 3)
+    curve_variance = _padded(variance, 5)
     s2 = cal.residual_sd**2
     centre, scale = cal.basis.centre, cal.basis.scale
     k, r, power = wm.normaliser, wm.reference, wm.power
     response = {}
     if cal.weighting in (Weighting.INVERSE_X, Weighting.INVERSE_X2):
-        ratio = np.array([centre / r, scale / r])  # x/r as a polynomial in z
-        shape = ratio if power == 1 else polymul(ratio, ratio)
-        new_variance = _padded(s2 / k * shape, 3)
+        a, b = centre / r, scale / r  # x/r = a + b·z
+        # (a + b·z)² = a² + 2ab·z + b²·z² (polymul's products; its middle term ab + ba is 2ab exactly)
+        shape = [a, b] if power == 1 else [a * a, 2.0 * (a * b), b * b]
+        new_variance = _padded(np.array([s2 / k * c for c in shape]), 3)
         low = wm.lowest_concentration
         below = float(s2 / (k * (r / low) ** power))
         z_break = float((low - centre) / scale)
@@ -248,8 +245,7 @@ def polynomial_band_edges(
     unknowns whose lower and upper ends were left, for :func:`searched_end` (so that the few of a
     large call are searched together, not block by block). Otherwise that item is None.
     """
-    shifted = band.about(y0, band.multiplier(y0, m), start, curve_variance)
-    h_vertex = None if vertex_z is None else vertex_z - start
+    shifted, h_vertex = _about_start(band, y0, m, start, vertex_z, curve_variance)
     first = _Start(shifted)
     ends = []
     left = []
@@ -267,8 +263,7 @@ def polynomial_band_edges(
                 facing = False  # none does: the vertex plays no part on this side
                 reach = full_reach
             else:
-                towards = h_vertex * direction >= 0
-                reach = np.where(towards, np.abs(h_vertex), 0.0) + full_reach
+                towards, reach = _reach_past_vertex(h_vertex, direction, full_reach)
         else:
             reach = full_reach
         h_end, certain, crossed = _convex_end(shifted, first, direction, reach, guess, start)
@@ -314,11 +309,9 @@ def searched_end(
     """One end (``direction`` −1: lower, +1: upper), in z, found by the full search (:func:`_side`),
     and whether it lies past the vertex on the side that faces it. Each unknown's end depends on its
     own ȳ₀, m, ẑ and ``guess`` only, whichever others are searched with it."""
-    shifted = band.about(y0, band.multiplier(y0, m), start)
-    h_vertex = None if vertex_z is None else vertex_z - start
+    shifted, h_vertex = _about_start(band, y0, m, start, vertex_z)
     if h_vertex is not None:
-        towards = h_vertex * direction >= 0
-        reach = np.where(towards, np.abs(h_vertex), 0.0) + full_reach
+        towards, reach = _reach_past_vertex(h_vertex, direction, full_reach)
     else:
         towards = np.zeros(y0.size, dtype=bool)
         reach = np.full(y0.size, full_reach)
@@ -332,6 +325,22 @@ def searched_end(
     )
     # ẑ plus the distance, as every other end is made
     return start + h_end, towards & beyond_vertex
+
+
+def _about_start(
+    band: BandPolynomial, y0: FloatArray, m: np.ndarray, start: FloatArray, vertex_z: float | None,
+    curve_variance: FloatArray | None = None,
+) -> tuple[ShiftedBand, FloatArray | None]:
+    """g about each unknown's ẑ (``start``) and the distance from ẑ to the vertex (None without one)."""
+    shifted = band.about(y0, band.multiplier(y0, m), start, curve_variance)
+    return shifted, None if vertex_z is None else vertex_z - start
+
+
+def _reach_past_vertex(h_vertex: FloatArray, direction: float, full_reach: float) -> tuple[np.ndarray, FloatArray]:
+    """Which unknowns face the vertex on the side ``direction``, and how far from ẑ that side is
+    searched: to the vertex and ``full_reach`` beyond it where it faces the vertex, else ``full_reach``."""
+    towards = h_vertex * direction >= 0
+    return towards, np.where(towards, np.abs(h_vertex), 0.0) + full_reach
 
 
 class _Start:
@@ -360,6 +369,13 @@ class _Start:
                 self.convex_margin = self.twice_c2 * (1.0 - 1e-6)
                 self.abs_six_c3 = np.abs(self.six_c3)
         self._tolerance = None
+        self._below_index = None
+
+    def below_index(self) -> np.ndarray:
+        """The positions of the unknowns whose ẑ lies below the lowest standard (h_break > 0)."""
+        if self._below_index is None:
+            self._below_index = np.flatnonzero(self.below_break)
+        return self._below_index
 
     def tolerance(self, start: FloatArray) -> FloatArray:
         """The size of Halley's step below which an end counts as converged, beside its own size
@@ -395,7 +411,8 @@ def _convex_end(
             convex = c[2] >= 0
             converged = np.isfinite(h)
         else:
-            usable = np.isfinite(h) & (h * direction > 0)
+            # h·direction > 0, compared without the product (multiplying by ±1 is exact)
+            usable = np.isfinite(h) & (h > 0 if direction > 0 else h < 0)
             if not usable.all():
                 h = np.where(usable, h, direction * guess)
             tolerance = first.tolerance(start)
@@ -403,11 +420,11 @@ def _convex_end(
             # takes the first step; one whose step is already below the test stops there.
             step = _halley_step(first, h)
             h -= step
-            converged = np.abs(step) <= tolerance + _CONVERGED * np.abs(h)
+            converged = _step_converged(step, tolerance, h)
             if not converged.all():
                 step = _halley_step(first, h)
                 after = h - step
-                done = np.abs(step) <= tolerance + _CONVERGED * np.abs(after)
+                done = _step_converged(step, tolerance, after)
                 if converged.any():
                     after = np.where(converged, h, after)
                     done |= converged
@@ -428,18 +445,35 @@ def _convex_end(
                             break
                     h[rest], converged[rest] = hr, ~moving
             convex = _convex(first, h)
-        u = h * direction
-        # within a finite reach, 0 < u ≤ reach holds only for a finite h
-        certain = (u > 0) & (u <= reach) if np.ndim(reach) == 0 and np.isfinite(reach) else (
-            np.isfinite(h) & (u > 0) & (u <= reach))
+        # 0 < u ≤ reach with u = h·direction, compared without the product (multiplying and negating
+        # by ±1 are exact); within a finite reach it holds only for a finite h
+        if direction > 0:
+            certain = h > 0
+            certain &= h <= reach
+        else:
+            certain = h < 0
+            certain &= h >= -reach
+        if not (np.ndim(reach) == 0 and np.isfinite(reach)):
+            certain &= np.isfinite(h)
         certain &= first.inside
         certain &= convex
         certain &= converged
         crossed = None
         if first.below_break is not None:
-            same_piece = first.below_break == (h < shifted.h_break)
-            crossed = certain & ~same_piece
-            certain &= same_piece
+            if direction > 0:
+                # above ẑ, only an unknown whose ẑ lies below the lowest standard can cross it: for the
+                # others h_break ≤ 0 < h, so the end lies in their piece (the test below gives them
+                # "same piece" too); those few are tested alone
+                below = first.below_index()
+                if below.size:
+                    same_piece = h[below] < shifted.h_break[below]
+                    crossed = np.zeros(h.size, dtype=bool)
+                    crossed[below] = certain[below] & ~same_piece
+                    certain[below] &= same_piece
+            else:
+                same_piece = first.below_break == (h < shifted.h_break)
+                crossed = certain & ~same_piece
+                certain &= same_piece
     return h, certain, crossed
 
 
@@ -458,7 +492,12 @@ def _end_in_the_other_piece(
     so between the break and h* too, and rises through zero at h*; h* must lie in that piece."""
     below = shifted.h_break[index] > 0  # ẑ below the lowest standard: the other piece is the upper
     pick = lambda c: c[index] if np.ndim(c) else c  # noqa: E731
+    # all of one side of the break, as is usual (a lower end crossing it from above), the other
+    # piece is taken whole; the terms the pieces share (the same arrays) need no choice either
+    side = "upper" if below.all() else "lower" if not below.any() else None
     other = [
+        pick(up) if np.ndim(up) and (lo is up or side == "upper") else
+        pick(lo) if np.ndim(lo) and np.ndim(up) and side == "lower" else
         np.where(below, pick(up), pick(lo)) if np.ndim(up) or np.ndim(lo) else up
         for lo, up in zip(shifted.lower, shifted.upper)
     ]
@@ -501,6 +540,16 @@ def _halley_step(first: _Start, h: FloatArray) -> FloatArray:
     return numerator
 
 
+def _step_converged(step: FloatArray, tolerance: FloatArray, h: FloatArray) -> np.ndarray:
+    """|step| ≤ tolerance + 1e-6·|h|, worked in place in ``step`` (which the caller no longer
+    needs) and one scratch array; the same operations as written out (addition commutes exactly)."""
+    scratch = np.abs(h)
+    scratch *= _CONVERGED
+    scratch += tolerance
+    np.abs(step, out=step)
+    return np.less_equal(step, scratch)
+
+
 def _convex(first: _Start, h: FloatArray) -> np.ndarray:
     """Whether g is convex between 0 and h: the bound of :class:`_Start` where it decides, the exact
     test (:func:`_exactly_convex`) for the others; the same answer as the exact test for every h."""
@@ -508,7 +557,9 @@ def _convex(first: _Start, h: FloatArray) -> np.ndarray:
     a = np.abs(h)
     bound = a * first.abs_six_c3
     if c[4] < 0:
-        bound += (-12.0 * c[4]) * a * a
+        a *= -12.0 * c[4]  # (−12·c4·|h|)·|h|, in place: a is not read again
+        a *= np.abs(h)
+        bound += a
     convex = bound <= first.convex_margin
     unsure = np.flatnonzero(~convex)
     if unsure.size:

@@ -19,9 +19,9 @@ from .acceptance import AcceptanceProfile, AcceptanceVerdict
 from .errors import CalibrationInputError, LimitsError
 from .fitted_curve import Deferred, FittedCurve
 from .influence import Influence, leverage_notes, measure_influence, measure_influence_of_fits
-from .inverse import Quantitation, quantify, solve_z
+from .inverse import Quantitation, quadratic_roots, quantify, solve_z
 from .lack_of_fit import LackOfFit, lack_of_fit_test, lack_of_fit_tests
-from .least_squares import ROUNDOFF, LeastSquaresSolution, solve_weighted, solve_weighted_stack, without_roundoff
+from .least_squares import LeastSquaresSolution, roundoff_floor, solve_weighted, solve_weighted_stack, without_roundoff
 from .levels import Levels, group_levels
 from .models import Basis, Model, make_basis
 from .regression_test import RegressionTest, regression_test, regression_tests
@@ -300,18 +300,23 @@ def _checked_design(
     the vectors are made read-only."""
     if x.size == 0:
         raise CalibrationInputError("standards: none given; a calibration needs standards.")
+    distinct = None
     if levels is None or levels.index.size != x.size:
         levels = group_levels(x, level_tolerance, level_labels)
-    _check_design(x, model, model.n_parameters)
+        if not level_tolerance and level_labels is None:
+            distinct = levels.n_levels  # each distinct concentration is a level
+    _check_design(x, model, model.n_parameters, distinct)
     x.setflags(write=False)
     y.setflags(write=False)
     return levels
 
 
-def _check_design(x: FloatArray, model: Model, p: int) -> None:
+def _check_design(x: FloatArray, model: Model, p: int, distinct: int | None = None) -> None:
     # Whether the curve can be fixed depends on the distinct concentrations, never on how they are
     # grouped into levels: 1e6 + 0…10 are eleven concentrations even if a tolerance makes one level.
-    distinct = int(np.unique(x).size)
+    # ``distinct``: their number, when the caller has it.
+    if distinct is None:
+        distinct = int(np.unique(x).size)
     if distinct == 1:
         raise CalibrationInputError(
             f"concentration: all {x.size} standards are at {x[0]:g}; a curve needs "
@@ -342,6 +347,8 @@ class _PolynomialCore:
     basis: Basis
     solution: LeastSquaresSolution
     root_wy: FloatArray
+    roundoff: float
+    """Weighted residuals at or below this are round-off (see :func:`.least_squares.without_roundoff`)."""
     clean: FloatArray
     df: int
     residual_sd: float
@@ -358,7 +365,8 @@ def _polynomial_core(
     p = model.n_parameters
     with np.errstate(over="ignore", under="ignore", invalid="ignore"):
         root_wy = np.sqrt(weights.weights) * y
-        clean = without_roundoff(solution.weighted_residuals, root_wy)  # exact standards: zeros
+        roundoff = roundoff_floor(root_wy)
+        clean = without_roundoff(solution.weighted_residuals, root_wy, roundoff)  # exact standards: zeros
         df = x.size - p
         residual_sd = float(np.sqrt((clean @ clean) / df))
         z_cov = residual_sd**2 * solution.unscaled_covariance
@@ -366,7 +374,7 @@ def _polynomial_core(
         coefficients = transform @ solution.coefficients
         covariance = transform @ z_cov @ transform.T
     _refuse_unrepresentable(model, x, y, basis, coefficients, covariance, residual_sd)
-    return _PolynomialCore(model, weighting, x, y, levels, weights, basis, solution, root_wy, clean, df,
+    return _PolynomialCore(model, weighting, x, y, levels, weights, basis, solution, root_wy, roundoff, clean, df,
                            residual_sd, z_cov, coefficients, covariance)
 
 
@@ -413,19 +421,7 @@ def _stacked_roots(model: Model, a: FloatArray, branch: np.ndarray, y: FloatArra
         return y / a[:, :1]
     if model is not Model.QUADRATIC:
         return (y - a[:, :1]) / a[:, 1:2]
-    a0, a1, a2 = a[:, :1], a[:, 1:2], a[:, 2:3]
-    c = a0 - y
-    disc = a1 * a1 - 4.0 * a2 * c
-    no_solution = disc < 0
-    root_disc = np.sqrt(np.maximum(disc, 0.0))
-    q = np.where(np.signbit(a1), a1 - root_disc, a1 + root_disc)
-    q *= -0.5
-    with np.errstate(invalid="ignore", divide="ignore"):
-        r1 = q / a2
-        r2 = c / q
-    zero = q == 0.0
-    if zero.any():
-        r2[zero] = r1[zero]
+    r1, r2, no_solution = quadratic_roots(a[:, :1], a[:, 1:2], a[:, 2:3], y)
     root = np.where(branch[:, None] > 0, np.maximum(r1, r2), np.minimum(r1, r2))
     root[no_solution] = np.nan
     return root
@@ -452,12 +448,17 @@ def _polynomial_calibration(
     else:
         sst = stacked[0]
     adjust = (x.size - 1) / df
-    if sst <= x.size * (ROUNDOFF * float(np.maximum.reduce(np.abs(root_wy)))) ** 2:
+    if sst <= x.size * core.roundoff**2:
         r_squared = 0.0  # the responses do not vary: nothing to explain
     else:
         r_squared = 1.0 - float(clean @ clean) / sst
-    branch, vertex_z, notes = (
-        _quadratic_geometry(model, solution.coefficients, basis, x) if stacked is None else stacked[1])
+    if stacked is None:
+        # the calibrated range in z: Python floats, the same operations as Basis.z
+        centre, scale = basis.centre, basis.scale
+        z_range = ((float(np.minimum.reduce(x)) - centre) / scale, (float(np.maximum.reduce(x)) - centre) / scale)
+        branch, vertex_z, notes = _quadratic_geometry(model, solution.coefficients, basis, x, z_range)
+    else:
+        branch, vertex_z, notes = stacked[1]
     if lack is None:
         lack = Deferred(lambda: lack_of_fit_test(clean / np.sqrt(w), w, levels, p,
                                                  weights_from_replicates=weights.from_replicates))
@@ -472,7 +473,6 @@ def _polynomial_calibration(
     # the notes the influence measures give, from the leverages alone
     notes = notes + (leverage_notes(solution.leverage) if type(influence) is Deferred else influence.notes)
     if stacked is None:
-        z_range = (float(basis.z(x.min())), float(basis.z(x.max())))
         z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
         back = basis.centre + basis.scale * z_back
         with np.errstate(invalid="ignore", divide="ignore"):
@@ -480,7 +480,7 @@ def _polynomial_calibration(
     else:
         back, relative = stacked[2], stacked[3]
 
-    return Calibration(
+    return Calibration._assembled(dict(  # type: ignore[return-value]
         model=model,
         weighting=weighting,
         concentration=x,
@@ -492,22 +492,22 @@ def _polynomial_calibration(
         z_covariance=frozen(z_cov),
         coefficients=frozen(coefficients),
         covariance=frozen(covariance),
-        standard_errors=frozen(np.sqrt(np.maximum(np.diag(covariance), 0.0))),
+        standard_errors=frozen(np.sqrt(np.maximum(covariance.diagonal(), 0.0))),
         residual_sd=residual_sd,
         df_residual=df,
         r_squared=float(r_squared),
         adjusted_r_squared=float(1.0 - (1.0 - r_squared) * adjust),
         fitted=frozen(solution.fitted),
         residuals=frozen(y - solution.fitted),
-        influence=influence,
-        lack_of_fit=lack,
+        _influence=influence,
+        _lack_of_fit=lack,
         regression=regression,
         back_calculated=frozen(back),
         relative_error=frozen(relative),
         quadratic_branch=branch,
         vertex_z=vertex_z,
         notes=notes,
-    )
+    ))
 
 
 def _refuse_unrepresentable(
@@ -521,9 +521,10 @@ def _refuse_unrepresentable(
     even though each value typed is a valid number.
     """
     problem = None
+    # at most a dozen numbers: checked as Python floats, the same tests without numpy's call overhead
     if not math.isfinite(residual_sd):
         problem = "the residual variance overflows"
-    elif not (np.isfinite(coefficients).all() and np.isfinite(covariance).all()):
+    elif not (all(map(math.isfinite, coefficients.tolist())) and all(map(math.isfinite, covariance.ravel().tolist()))):
         problem = "a coefficient or its variance overflows"
     else:
         scale = float(basis.scale)
@@ -531,10 +532,10 @@ def _refuse_unrepresentable(
             representable = all(math.isfinite(unit) and unit > 0 for unit in (scale ** -k for k in basis.powers))
         except (OverflowError, ZeroDivisionError):
             representable = False
-        free = np.diag(covariance)[1 - int(model.has_intercept):]
+        free = covariance.diagonal().tolist()[1 - int(model.has_intercept):]
         if not representable:
             problem = f"x^{max(basis.powers)} leaves the range of representable numbers"
-        elif residual_sd > 0 and bool(np.any(free <= 0)):
+        elif residual_sd > 0 and any(v <= 0 for v in free):
             problem = "a coefficient's variance underflows to zero"
     if problem is not None:
         raise CalibrationInputError(
@@ -546,16 +547,17 @@ def _refuse_unrepresentable(
 
 
 def _quadratic_geometry(
-    model: Model, z_coefficients: FloatArray, basis: Basis, x: FloatArray
+    model: Model, z_coefficients: FloatArray, basis: Basis, x: FloatArray, z_range: tuple[float, float] | None = None,
 ) -> tuple[int, float | None, tuple[str, ...]]:
-    """Which side of its vertex a quadratic is calibrated on, and where the vertex is (in z)."""
+    """Which side of its vertex a quadratic is calibrated on, and where the vertex is (in z);
+    ``z_range``: the lowest and highest standard in z, when the caller has them."""
     if model is not Model.QUADRATIC:
         return 0, None, ()
     _, a1, a2 = z_coefficients
     if a2 == 0.0:
         return (1 if a1 >= 0 else -1), None, ()
     vertex = -a1 / (2.0 * a2)
-    z_low, z_high = basis.z(np.array([x.min(), x.max()]))
+    z_low, z_high = basis.z(np.array([x.min(), x.max()])) if z_range is None else z_range
     if vertex <= z_low:
         return 1, float(vertex), ()
     if vertex >= z_high:

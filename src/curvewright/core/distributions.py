@@ -7,9 +7,13 @@ Student's t quantile: ``stdtrit``; F upper tail and quantile: ``fdtrc`` and ``fd
 
 from __future__ import annotations
 
+from functools import lru_cache
 
+
+@lru_cache(maxsize=1024)
 def t_quantile(probability: float, df: float) -> float:
-    """q such that P(T ≤ q) = probability for Student's t with ``df`` degrees of freedom."""
+    """q such that P(T ≤ q) = probability for Student's t with ``df`` degrees of freedom (worked
+    out once for each pair: a batch of calibrations asks for the same few)."""
     from scipy import special  # loaded on first use: importing the engine stays light
 
     return float(special.stdtrit(df, probability))

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 
@@ -100,6 +101,17 @@ class FittedCurve:
     vertex_z: float | None = None
     notes: tuple[str, ...] = field(default=())
 
+    @classmethod
+    def _assembled(cls, fields: dict) -> "FittedCurve":
+        """The result holding ``fields``: every field in the constructor's order, keyed as the
+        constructor stores them (the diagnostics that may be deferred, ``influence`` and
+        ``lack_of_fit``, under ``_influence`` and ``_lack_of_fit``; see the end of this module). Made
+        without the frozen constructor's one guarded assignment per field: the same object, as
+        immutable (``tests/core/test_fit_paths.py`` holds the two ways to the same state)."""
+        made = object.__new__(cls)
+        made.__dict__.update(fields)
+        return made
+
     # --- plain views of the result --------------------------------------------------------------
     @property
     def n_standards(self) -> int:
@@ -147,6 +159,21 @@ class FittedCurve:
     @property
     def influence_flags(self) -> tuple[tuple[InfluenceFlag, ...], ...]:
         return self.influence.flags
+
+    @cached_property
+    def z_polynomials(self) -> tuple[FloatArray, FloatArray]:
+        """Ascending coefficients, in z, of the fitted curve f̂(z) and of its variance φ(z)ᵀ·C·φ(z)
+        (a polynomial curve; read-only, worked out once)."""
+        powers = self.basis.powers
+        fitted = np.zeros(max(powers) + 1)
+        variance = np.zeros(2 * max(powers) + 1)
+        for i, p in enumerate(powers):
+            fitted[p] = self.z_coefficients[i]
+            for j, q in enumerate(powers):
+                variance[p + q] += self.z_covariance[i, j]
+        fitted.setflags(write=False)
+        variance.setflags(write=False)
+        return fitted, variance
 
     @property
     def calibrated_range(self) -> tuple[float, float]:

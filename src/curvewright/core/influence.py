@@ -212,7 +212,10 @@ def leverage_notes(leverage: FloatArray) -> tuple[str, ...]:
     """The notes :func:`measure_influence` gives a fit with these leverages (standards whose leverage
     is above :data:`HIGH_LEVERAGE` and below 1), from the leverages alone."""
     leverage = np.asarray(leverage, dtype=np.float64)
-    return _leverage_notes(leverage, (leverage > HIGH_LEVERAGE) & ~(leverage >= FULL_LEVERAGE))
+    high = leverage > HIGH_LEVERAGE
+    if not high.any():
+        return ()  # the usual case: no standard stands out
+    return _leverage_notes(leverage, high & ~(leverage >= FULL_LEVERAGE))
 
 
 def _leverage_notes(leverage: FloatArray, high: np.ndarray) -> tuple[str, ...]:

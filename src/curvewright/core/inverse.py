@@ -216,21 +216,29 @@ def quantify(
                 limits_note = f"LOD/LOQ flags not set: {exc}"
 
     k = y0.size
-    estimate, standard_error, lower, upper = (np.empty(k) for _ in range(4))
-    bits = np.zeros(k, dtype=np.int64)
-    bad = np.zeros(k, dtype=bool)
     band = None
     if interval == "band" and (cal.model is Model.QUADRATIC or cal.weighting.uses_concentration):
         band = band_polynomial(cal, t)
     # Unknowns are worked in blocks so that the working arrays stay a fixed size however many there
     # are; every unknown's result depends on its own response and replicate count only.
     left = []
-    for first in range(0, k, CHUNK):
-        block = slice(first, first + CHUNK)
-        (estimate[block], standard_error[block], lower[block], upper[block], bits[block],
-         bad[block], block_left) = _quantify_block(cal, y0[block], m[block], probability, t, interval, limits, band)
+    if 0 < k <= CHUNK:
+        # one block: its arrays are the results (each made afresh by the block, none shared)
+        estimate, standard_error, lower, upper, bits, bad, block_left = _quantify_block(
+            cal, y0, m, probability, t, interval, limits, band)
         if block_left is not None:
-            left.append((first, block_left))
+            left.append((0, block_left))
+    else:
+        estimate, standard_error, lower, upper = (np.empty(k) for _ in range(4))
+        bits = np.zeros(k, dtype=np.int64)
+        bad = np.zeros(k, dtype=bool)
+        for first in range(0, k, CHUNK):
+            block = slice(first, first + CHUNK)
+            (estimate[block], standard_error[block], lower[block], upper[block], bits[block],
+             bad[block], block_left) = _quantify_block(cal, y0[block], m[block], probability, t, interval, limits,
+                                                       band)
+            if block_left is not None:
+                left.append((first, block_left))
     if left:
         assert band is not None
         _search_left(cal, band, y0, m, left, lower, upper, bits, bad)
@@ -263,12 +271,15 @@ def _quantify_block(
 ) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray, np.ndarray, np.ndarray, tuple | None]:
     """Estimate, standard error, interval ends, flag bits and the unrepresentable mask of a block of
     unknowns, and the ends left for the full search of the polynomial band (see :func:`_search_left`)."""
-    z_range = tuple(cal.basis.z(np.array(cal.calibrated_range)))
+    range_low, range_high = cal.calibrated_range
+    centre, scale = cal.basis.centre, cal.basis.scale
+    z_range = ((range_low - centre) / scale, (range_high - centre) / scale)  # Basis.z's operations, on floats
     # Overflow is detected below, per unknown, and refused by name rather than left as inf or NaN.
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         z_hat, no_solution, ambiguous = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y0)
         at_turning_point = _inside_band_at_vertex(cal, y0, m, probability, no_solution)
-        if at_turning_point.any():
+        any_at_turning_point = bool(at_turning_point.any())
+        if any_at_turning_point:
             z_hat = np.where(at_turning_point, cal.vertex_z if cal.vertex_z is not None else np.nan, z_hat)
             no_solution = no_solution & ~at_turning_point
         x_hat = cal.basis.centre + cal.basis.scale * z_hat
@@ -298,21 +309,20 @@ def _quantify_block(
         bounded &= np.isfinite(upper)
         if bounded.all():
             # neither end is infinite, nor NaN
-            unbounded = ~bounded
+            unbounded = None
             np.logical_not(bad, out=bad)
         else:
             unbounded = np.isinf(lower) | np.isinf(upper)
             bad = ~bad | np.isnan(lower) | np.isnan(upper)
-    turning = at_turning_point | past_vertex
+    turning = at_turning_point | past_vertex if any_at_turning_point else past_vertex
 
-    low, high = cal.calibrated_range
     # Round-off must not push a response read at exactly an end standard outside the range.
-    slack = RANGE_SLACK * (high - low)
-    low, high = low - slack, high + slack
+    slack = RANGE_SLACK * (range_high - range_low)
+    low, high = range_low - slack, range_high + slack
     bits = _range_bits(x_hat, low, high, limits)
     for flag, mask in ((QuantFlag.AMBIGUOUS_ROOT, ambiguous), (QuantFlag.UNBOUNDED_INTERVAL, unbounded),
                        (QuantFlag.TURNING_POINT, turning)):
-        if mask.any():
+        if mask is not None and mask.any():
             np.bitwise_or(bits, int(flag), out=bits, where=mask)
     if not unsolved:
         return x_hat, se, lower, upper, bits, bad, left
@@ -398,6 +408,8 @@ def _refuse_unrepresentable(y0: FloatArray, bad: np.ndarray) -> None:
 
 
 def _replicate_counts(replicates: object, k: int) -> np.ndarray:
+    if type(replicates) is int and k > 0 and 1 <= replicates < 2**53:
+        return np.full(k, replicates, dtype=np.int64)  # one whole count for every unknown (the usual 1)
     if np.ndim(replicates) == 0 and k > 0:
         # one count for every unknown: checked once, as the first unknown's
         single = np.asarray(replicates)
@@ -424,6 +436,31 @@ def _replicate_counts(replicates: object, k: int) -> np.ndarray:
             "averaged must be a whole number of at least 1."
         )
     return as_float.astype(np.int64)
+
+
+def quadratic_roots(a0: object, a1: object, a2: object, y0: FloatArray) -> tuple[FloatArray, FloatArray, np.ndarray]:
+    """Both roots of a₂·z² + a₁·z + (a₀ − y₀) = 0 by the stable form q = −(a₁ + sign(a₁)·√disc)/2,
+    roots q/a₂ and c/q (Press et al., Numerical Recipes, 3rd ed., §5.6; section from memory), disc
+    clipped at zero, and the mask of responses with no real root (disc < 0). The coefficients are
+    numbers, or columns of a stack of curves (shape (k, 1)) against responses (n,). Where q is zero
+    both roots are q/a₂. :func:`solve_z` and the model screen's back-calculation share it."""
+    c = a0 - y0
+    disc = a1 * a1 - 4.0 * a2 * c
+    no_solution = disc < 0
+    root_disc = np.sqrt(np.maximum(disc, 0.0))
+    if np.ndim(a1) == 0:
+        # a1 + sign(a1)·√disc (a1 is one number: the sign is chosen once)
+        q = a1 + root_disc if not np.signbit(a1) else a1 - root_disc
+    else:
+        q = np.where(np.signbit(a1), a1 - root_disc, a1 + root_disc)
+    q *= -0.5
+    with np.errstate(invalid="ignore", divide="ignore"):
+        r1 = q / a2
+        r2 = c / q
+    zero = q == 0.0
+    if zero.any():
+        r2[zero] = r1[zero]
+    return r1, r2, no_solution
 
 
 def solve_z(
@@ -453,19 +490,7 @@ def solve_z(
         if a1 == 0.0:
             return np.full(y0.size, np.nan), ~false, false
         return (y0 - a0) / a1, false, false
-    c = a0 - y0
-    disc = a1 * a1 - 4.0 * a2 * c
-    no_solution = disc < 0
-    root_disc = np.sqrt(np.maximum(disc, 0.0))
-    # a1 + sign(a1)·√disc (a1 is one number: the sign is chosen once)
-    q = a1 + root_disc if not np.signbit(a1) else a1 - root_disc
-    q *= -0.5
-    with np.errstate(invalid="ignore", divide="ignore"):
-        r1 = q / a2
-        r2 = c / q
-    zero = q == 0.0
-    if zero.any():
-        r2[zero] = r1[zero]
+    r1, r2, no_solution = quadratic_roots(a0, a1, a2, y0)
     root = np.maximum(r1, r2) if branch > 0 else np.minimum(r1, r2)
     other = np.minimum(r1, r2) if branch > 0 else np.maximum(r1, r2)
     z_low, z_high = z_range
@@ -584,15 +609,9 @@ def _fieller_z(
 
 
 def curve_polynomials(cal: "FittedCurve") -> tuple[FloatArray, FloatArray]:
-    """Ascending coefficients, in z, of the fitted curve f̂(z) and of its variance φ(z)ᵀ·C·φ(z)."""
-    powers = cal.basis.powers
-    fitted = np.zeros(max(powers) + 1)
-    variance = np.zeros(2 * max(powers) + 1)
-    for i, p in enumerate(powers):
-        fitted[p] = cal.z_coefficients[i]
-        for j, q in enumerate(powers):
-            variance[p + q] += cal.z_covariance[i, j]
-    return fitted, variance
+    """Ascending coefficients, in z, of the fitted curve f̂(z) and of its variance φ(z)ᵀ·C·φ(z)
+    (kept with the calibration: :attr:`~.fitted_curve.FittedCurve.z_polynomials`)."""
+    return cal.z_polynomials
 
 
 def _band_excess(
@@ -657,7 +676,11 @@ def _band_edges(
 
 def _full_reach(cal: "FittedCurve") -> float:
     """How far beyond ẑ (or the vertex) the interval's ends are searched, in z."""
-    return SEARCH_HALF_RANGES * max(1.0, float(np.ptp(cal.basis.z(cal.concentration))))
+    # the spread of the standards in z: z rises with x, and so do its rounded values, so it is the
+    # highest standard's z less the lowest's (the same bits as the spread of every standard's z)
+    x, centre, scale = cal.concentration, cal.basis.centre, cal.basis.scale
+    spread = (float(np.maximum.reduce(x)) - centre) / scale - (float(np.minimum.reduce(x)) - centre) / scale
+    return SEARCH_HALF_RANGES * max(1.0, spread)
 
 
 def _band_crossing(

@@ -29,9 +29,18 @@ ROUNDOFF = 1000.0 * np.finfo(float).eps
 """Weighted residuals below ROUNDOFF·max|√w·y| are round-off of standards exactly on the curve, not scatter."""
 
 
-def without_roundoff(weighted_residuals: FloatArray, weighted_response: FloatArray) -> FloatArray:
-    """``weighted_residuals`` with those at the level of round-off set to exactly zero."""
-    floor = ROUNDOFF * float(np.maximum.reduce(np.abs(weighted_response))) if weighted_response.size else 0.0
+def roundoff_floor(weighted_response: FloatArray) -> float:
+    """ROUNDOFF·max|√w·y|: weighted residuals at or below it are round-off."""
+    return ROUNDOFF * float(np.maximum.reduce(np.abs(weighted_response))) if weighted_response.size else 0.0
+
+
+def without_roundoff(
+    weighted_residuals: FloatArray, weighted_response: FloatArray, floor: float | None = None
+) -> FloatArray:
+    """``weighted_residuals`` with those at the level of round-off set to exactly zero; ``floor``:
+    :func:`roundoff_floor` of ``weighted_response``, when the caller has it."""
+    if floor is None:
+        floor = roundoff_floor(weighted_response)
     return np.where(np.abs(weighted_residuals) <= floor, 0.0, weighted_residuals)
 
 
@@ -116,7 +125,9 @@ def _thin_qr(a: FloatArray) -> tuple[FloatArray, FloatArray]:
             q = None  # a numpy whose bindings are called otherwise: numpy.linalg.qr below
         if q is not None:
             p = packed.shape[-1]
-            r = np.triu(packed[..., :p, :])
+            r = packed[..., :p, :].copy()  # R is the upper triangle (numpy.triu's numbers: zeros below)
+            for i in range(1, p):
+                r[..., i, :i] = 0.0
             if np.isfinite(np.add.reduce(q, axis=None)) and np.isfinite(np.add.reduce(r, axis=None)):
                 return q, r
     q, r = np.linalg.qr(a, mode="reduced")

@@ -90,7 +90,7 @@ def group_levels(
     if labels is None and n:
         # Without labels the levels are runs of the sorted values, numbered as they ascend already:
         # the renumbering below would leave them as they are.
-        index, exact = _group_sorted(concentration, tolerance or 0.0)
+        index, exact = _group_sorted(concentration, tolerance) if tolerance else _group_equal(concentration)
         count = np.bincount(index)
         means = np.bincount(index, weights=concentration) / count
         return Levels(index=frozen(index), concentration=frozen(means), count=frozen(count), exact=exact)
@@ -144,6 +144,20 @@ def _group_values(values: FloatArray, tolerance: float) -> np.ndarray:
     if values.size == 0:
         return np.zeros(0, dtype=np.intp)
     return _group_sorted(values, tolerance)[0]
+
+
+def _group_equal(values: FloatArray) -> tuple[np.ndarray, bool]:
+    """:func:`_group_sorted` with no tolerance, of at least one value: each distinct value is a level.
+    No two values can then be near without being equal, so the levels follow the gaps between the
+    sorted values, and every level holds a single value."""
+    order = np.argsort(values, kind="stable")
+    sorted_x = values[order]
+    level_of_sorted = np.empty(sorted_x.size, dtype=np.intp)
+    level_of_sorted[0] = 0
+    np.cumsum(sorted_x[1:] > sorted_x[:-1], out=level_of_sorted[1:])
+    key = np.empty_like(level_of_sorted)
+    key[order] = level_of_sorted
+    return key, True
 
 
 def _group_sorted(values: FloatArray, tolerance: float) -> tuple[np.ndarray, bool]:

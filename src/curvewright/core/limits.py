@@ -74,12 +74,13 @@ def detection_limits(
         sigma = float(cal.standard_errors[0])
         sigma_words = "standard error of the intercept"
     else:
-        x_low = float(cal.concentration.min())
         if cal.weighting is Weighting.NONE:
             sigma = cal.residual_sd
             sigma_words = "residual SD"
         else:
-            y_low = float(cal.predict(x_low))
+            x_low = float(cal.concentration.min())
+            # only 1/y-type weights follow the response; the others are the same whatever it is
+            y_low = float(cal.predict(x_low)) if cal.weighting in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2) else x_low
             weight = float(cal.weight_model.weight_at(np.array(x_low), np.array(y_low)))
             sigma = cal.residual_sd / np.sqrt(weight)
             sigma_words = f"residual SD at the lowest standard ({x_low:g}) under {cal.weighting.value} weighting"

@@ -24,10 +24,7 @@ class Model(str, Enum):
 
     @property
     def n_parameters(self) -> int:
-        return {
-            Model.LINEAR: 2, Model.QUADRATIC: 3, Model.PROPORTIONAL: 1, Model.AVERAGE_RF: 1, Model.FOUR_PL: 4,
-            Model.FIVE_PL: 5, Model.POWER: 2,
-        }[self]
+        return _N_PARAMETERS[self]
 
     @property
     def is_polynomial(self) -> bool:
@@ -51,8 +48,7 @@ class Model(str, Enum):
     @property
     def powers(self) -> tuple[int, ...]:
         """Powers of z in the design matrix (none for a curve that is not a polynomial)."""
-        return {Model.LINEAR: (0, 1), Model.QUADRATIC: (0, 1, 2), Model.PROPORTIONAL: (1,),
-                Model.AVERAGE_RF: (1,)}.get(self, ())
+        return _POWERS.get(self, ())
 
     @property
     def description(self) -> str:
@@ -73,3 +69,11 @@ class Model(str, Enum):
         except ValueError:
             names = ", ".join(repr(m.value) for m in cls)
             raise CalibrationInputError(f"model: {value!r} is not one of {names}.") from None
+
+
+# the tables the properties read, made once (a model is asked for them on every fit)
+_N_PARAMETERS = {
+    Model.LINEAR: 2, Model.QUADRATIC: 3, Model.PROPORTIONAL: 1, Model.AVERAGE_RF: 1, Model.FOUR_PL: 4,
+    Model.FIVE_PL: 5, Model.POWER: 2,
+}
+_POWERS = {Model.LINEAR: (0, 1), Model.QUADRATIC: (0, 1, 2), Model.PROPORTIONAL: (1,), Model.AVERAGE_RF: (1,)}

@@ -48,7 +48,11 @@ class Basis:
     def design(self, x: FloatArray) -> FloatArray:
         """Design matrix of shape (len(x), n_parameters) in powers of z."""
         z = self.z(x)
-        return np.stack([z**p for p in self.powers], axis=-1)
+        design = np.empty(z.shape + (len(self.powers),))
+        for i, p in enumerate(self.powers):
+            # z⁰ is 1 and z¹ is z exactly, as numpy's power gives them
+            design[..., i] = 1.0 if p == 0 else z if p == 1 else z**p
+        return design
 
     def power_transform(self) -> FloatArray:
         """Matrix T with b = T·a, from z-coefficients a to ascending powers of x (b0, b1, b2…).

@@ -91,7 +91,7 @@ def regression_tests(
     slope_terms = [i for i, p in enumerate(powers) if p >= 1]
     q = len(slope_terms)
     df = (q, df_residual)
-    floor = ROUNDOFF * float(np.max(np.abs(response), initial=0.0))
+    floor = ROUNDOFF * float(np.maximum.reduce(np.abs(response), initial=0.0))
     # the terms of powers ≥ 1 follow the intercept's, so they are one block of the coefficients
     first = slope_terms[0] if slope_terms == list(range(slope_terms[0], len(powers))) else None
     out: list[RegressionTest | None] = [None] * len(fits)
@@ -104,6 +104,11 @@ def regression_tests(
             out[i] = RegressionTest(float("inf"), df, 0.0)
         else:
             tested.append(i)
+    if len(fits) == 1 and tested and first is not None:
+        # a fit alone (the usual case): the same LAPACK solve on its own block, without the stack
+        a1, c1 = fits[0][0][first:], fits[0][1][first:, first:]
+        f = float(a1 @ np.linalg.solve(c1, a1)) / q
+        return [RegressionTest(f, df, float(f_upper_tails(f, q, df_residual)))]
     if tested:
         if first is not None:
             a = np.stack([fits[i][0][first:] for i in tested])

@@ -87,7 +87,9 @@ class WeightModel:
             case Weighting.NONE:
                 return np.ones(shape)
             case Weighting.INVERSE_X | Weighting.INVERSE_X2:
-                return np.broadcast_to(k * _power(r / np.maximum(x, self.lowest_concentration), q), shape)
+                weight = k * _power(r / np.maximum(x, self.lowest_concentration), q)
+                # already of the broadcast shape where the response has no more dimensions (quantify's case)
+                return weight if weight.shape == shape else np.broadcast_to(weight, shape)
             case Weighting.INVERSE_Y | Weighting.INVERSE_Y2:
                 return np.broadcast_to(k * _power(r / np.maximum(y, self.lowest_response), q), shape)
             case Weighting.INVERSE_S2:
@@ -99,6 +101,10 @@ class WeightModel:
                 x_low = np.maximum(x, self.lowest_concentration)
                 return np.broadcast_to(k / fit.function.relative_variance(fit.mean_at(x_low), r), shape)
         raise AssertionError(self.weighting)  # pragma: no cover - every member is matched
+
+
+_TINY = float(np.finfo(float).tiny)
+"""The smallest normal double: weights below it cannot be represented to full precision."""
 
 
 def _power(ratio: FloatArray, q: int) -> FloatArray:
@@ -131,7 +137,7 @@ def make_weights(
             f"response SD: given, but weighting {weighting.value} does not use it; choose weighting "
             "1/s^2 to weight by these SDs, or leave them out."
         )
-    if weighting in (Weighting.INVERSE_X, Weighting.INVERSE_X2):
+    if weighting in (Weighting.INVERSE_X, Weighting.INVERSE_X2) and np.minimum.reduce(concentration) <= 0:
         bad = np.flatnonzero(concentration <= 0)
         if bad.size:
             i = int(bad[0])
@@ -140,7 +146,7 @@ def make_weights(
                 f"{concentration[i]:g}; 1/x-type weights need every concentration above zero "
                 "(leave blanks out of the fit or choose another weighting)."
             )
-    if weighting in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2):
+    if weighting in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2) and np.minimum.reduce(response) <= 0:
         bad = np.flatnonzero(response <= 0)
         if bad.size:
             i = int(bad[0])
@@ -171,24 +177,24 @@ def make_weights(
         reference = variance_fit.floor
         raw = 1.0 / variance_fit.function.relative_variance(variance_fit.fitted_mean, reference)
     else:
-        reference = float(values.min())
+        reference = float(np.minimum.reduce(values))
         with np.errstate(under="ignore"):
             raw = np.ones(n) if power == 0 else _power(reference / values, power)
-    if raw.min() < np.finfo(float).tiny:
+    if np.minimum.reduce(raw) < _TINY:
         i = int(np.argmin(raw))
         raise WeightingError(
             f"weighting {weighting.value}: the values it weighs by run from {reference:g} to "
             f"{values[i]:g} (standard {i + 1}), too many orders of magnitude apart for the weights to be "
             "represented as numbers; check the units of the standards."
         )
-    normaliser = n / float(raw.sum())
-    lowest = int(np.argmin(concentration))
+    normaliser = n / float(np.add.reduce(raw))
+    lowest = int(concentration.argmin())
     return WeightModel(
         weighting=weighting,
         weights=frozen(raw * normaliser),
         normaliser=normaliser,
         lowest_concentration=float(concentration[lowest]),
-        lowest_response=float(np.min(response)),
+        lowest_response=float(np.minimum.reduce(response)),
         level_concentration=frozen(levels.concentration.copy()),
         level_sd=frozen(level_sd),
         reference=reference,

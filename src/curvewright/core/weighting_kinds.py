@@ -26,6 +26,9 @@ class Weighting(str, Enum):
     @classmethod
     def parse(cls, value: "Weighting | str") -> "Weighting":
         if isinstance(value, str):
+            exact = _BY_VALUE.get(value)
+            if exact is not None:
+                return exact  # a weighting's own name, which the spellings below leave as it is
             value = value.strip().replace("²", "^2").replace(" ", "").lower()
             value = {
                 "": "none", "1": "none", "1/x2": "1/x^2", "1/y2": "1/y^2", "1/s2": "1/s^2",
@@ -61,3 +64,6 @@ class Weighting(str, Enum):
     def variance_function(self) -> str | None:
         """"power" or "two-component" for the weightings that fit a variance function, else None."""
         return {Weighting.POWER: "power", Weighting.TWO_COMPONENT: "two-component"}.get(self)
+
+
+_BY_VALUE = {weighting.value: weighting for weighting in Weighting}
