@@ -8,6 +8,8 @@ linear map of each axis from its range to the plot's place on the page."""
 
 from __future__ import annotations
 
+import math
+
 import ctypes
 import re
 import subprocess
@@ -370,40 +372,39 @@ def test_the_additions_figure_puts_the_intercept_and_its_interval_on_the_concent
 
 
 def clipped_segment_by_segment(x, y, box):  # type: ignore[no-untyped-def]
-    """The clipped polyline as it was first worked out: the segments' ends clipped over all segments at
-    once (Liang–Barsky), then joined one kept segment at a time, a NaN before each one that does not
-    start where the last one ended."""
-    x, y = np.asarray(x, float), np.asarray(y, float)
-    if x.size < 2:
-        return np.empty(0), np.empty(0)
-    x0, x1, y0, y1 = box
-    if np.all(np.isfinite(x) & np.isfinite(y) & (x >= x0) & (x <= x1) & (y >= y0) & (y <= y1)):
-        return x.copy(), y.copy()
-    ax, ay, bx, by = x[:-1], y[:-1], x[1:], y[1:]
-    ok = np.isfinite(ax) & np.isfinite(ay) & np.isfinite(bx) & np.isfinite(by)
-    dx, dy = bx - ax, by - ay
-    low, high = np.zeros(ax.size), np.ones(ax.size)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        for p, q in ((-dx, ax - x0), (dx, x1 - ax), (-dy, ay - y0), (dy, y1 - ay)):
-            ratio = q / p
-            low = np.where(p < 0, np.maximum(low, ratio), low)
-            high = np.where(p > 0, np.minimum(high, ratio), high)
-            ok &= ~((p == 0) & (q < 0))
-    ok &= low <= high
-    sx, sy, ex, ey = ax + low * dx, ay + low * dy, ax + high * dx, ay + high * dy
+    """The clipped polyline worked out one segment at a time in plain floats (Liang–Barsky clipping of
+    each segment, from its textbook statement), then joined: a NaN before each kept segment that does not
+    start where the last one ended. Separate from the figures' code, which works over all segments at once."""
     xs: list[float] = []
     ys: list[float] = []
-    for i in np.flatnonzero(ok).tolist():
-        start, end = (float(sx[i]), float(sy[i])), (float(ex[i]), float(ey[i]))
+    x0, x1, y0, y1 = box
+    pts = [(float(a), float(b)) for a, b in zip(x, y)]
+    if len(pts) >= 2 and all(math.isfinite(a) and math.isfinite(b) and x0 <= a <= x1 and y0 <= b <= y1 for a, b in pts):
+        return np.asarray(x, dtype=float).copy(), np.asarray(y, dtype=float).copy()  # wholly inside: kept as given
+    for (ax, ay), (bx, by) in zip(pts, pts[1:]):
+        if not all(math.isfinite(v) for v in (ax, ay, bx, by)):
+            continue
+        dx, dy = bx - ax, by - ay
+        low, high, inside = 0.0, 1.0, True
+        for p, q in ((-dx, ax - x0), (dx, x1 - ax), (-dy, ay - y0), (dy, y1 - ay)):
+            if p == 0:
+                inside = inside and q >= 0
+            elif p < 0:
+                low = max(low, q / p)
+            else:
+                high = min(high, q / p)
+        if not inside or low > high:
+            continue
+        start, end = (ax + low * dx, ay + low * dy), (ax + high * dx, ay + high * dy)
         if not xs or (xs[-1], ys[-1]) != start:
             if xs:
-                xs.append(np.nan)
-                ys.append(np.nan)
+                xs.append(math.nan)
+                ys.append(math.nan)
             xs.append(start[0])
             ys.append(start[1])
         xs.append(end[0])
         ys.append(end[1])
-    return np.asarray(xs), np.asarray(ys)
+    return np.asarray(xs, dtype=float), np.asarray(ys, dtype=float)
 
 
 def test_clipping_a_line_joins_its_kept_segments_exactly_as_segment_by_segment() -> None:
