@@ -14,7 +14,8 @@ from __future__ import annotations
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QPointF, QSize, Qt, Signal
+from PySide6.QtCore import QPoint, QPointF, QRectF, QSize, Qt, Signal
+from PySide6.QtGui import QImage, QPainter, QPen, QPicture, QPixmap, QTransform
 from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QSizePolicy, QToolTip, QVBoxLayout, QWidget
 
 from . import figures, palette
@@ -97,6 +98,174 @@ def _update_spots_of_one_style(scatter: pg.ScatterPlotItem, dataSet=None) -> Non
     scatter._updateMaxSpotSizes(data=data)
     if np.any(new):
         scatter.invalidate()
+
+
+class _GridLayer:
+    """One transparent image, shared by the axes of a view, on which an axis draws its tick and grid
+    lines before they are laid over the plot (see :class:`_GridAxis`). It is as large as the device
+    coordinates reach, so that the lines are drawn through exactly the transform they would be drawn
+    through on the screen; only the part an axis covers is cleared and laid over."""
+
+    def __init__(self) -> None:
+        self.image: QImage | None = None
+
+    def covering(self, right: int, bottom: int) -> QImage:
+        image = self.image
+        if image is None or image.width() < right or image.height() < bottom:
+            width, height = max(right, 0 if image is None else image.width()), max(bottom, 0 if image is None else image.height())
+            image = self.image = QImage(width, height, QImage.Format.Format_ARGB32_Premultiplied)
+        return image
+
+
+def _pen_drawn_as_spans(pen: QPen) -> bool:
+    """A pen whose lines, drawn without antialiasing, cover whole pixels of one colour: cosmetic, at
+    most a pixel wide, solid, of a plain colour."""
+    return (pen.isCosmetic() and pen.widthF() <= 1.0 and pen.style() == Qt.PenStyle.SolidLine
+            and pen.brush().style() == Qt.BrushStyle.SolidPattern)
+
+
+def _drawn_by_qt_raster(device) -> bool:  # type: ignore[no-untyped-def]
+    """Qt's raster engine paints on this device: an image, a pixmap, or a plain widget (a widget's
+    backing store; not an OpenGL widget)."""
+    return type(device) in (QWidget, QImage, QPixmap)
+
+
+class _GridAxis(pg.AxisItem):
+    """A pyqtgraph axis that draws the same pixels as pyqtgraph's, faster where it has a grid.
+
+    pyqtgraph records an axis as one picture: the axis line, then each tick with its grid line across
+    the view (a faint, translucent line), then the tick labels; Qt blends a translucent line into the
+    screen pixel by pixel, and the grid took most of the plot's repaint. Here the tick and grid lines
+    are drawn on a transparent image (:class:`_GridLayer`) in the source composition mode, which stores
+    each covered pixel as the line's colour, through the same transform and the same line drawing, and
+    that image is laid over the screen (source over) between the axis line and the labels: each pixel
+    a line covers becomes what blending the line there gives (the colour plus the pixel below times one
+    less the line's opacity; the same arithmetic in both), and every other pixel is untouched. This
+    holds while no two lines share a pixel, so it is used only where the lines are parallel to each
+    other, at least one and a half pixels apart, drawn with a cosmetic solid pen at most a pixel wide, without
+    antialiasing, through a translation only, on Qt's raster engine (:func:`_drawn_by_qt_raster`); otherwise the axis draws its
+    picture as pyqtgraph does. ``tests/app/test_curve_items.py`` compares both ways pixel for pixel."""
+
+    def __init__(self, orientation: str, layer: _GridLayer) -> None:
+        super().__init__(orientation)
+        self._layer = layer
+        self._parts: tuple[object, tuple | None] = (None, None)  # type: ignore[type-arg]  # (picture, its parts)
+
+    def paint(self, p, opt, widget) -> None:  # type: ignore[no-untyped-def]
+        if self.picture is None:
+            self._record()
+        picture, parts = self._parts
+        if picture is not self.picture or parts is None or not self._paint_parts(p, *parts):
+            self.picture.play(p)
+
+    def _record(self) -> None:
+        """The picture pyqtgraph records, and beside it the same drawing in three parts (axis line,
+        tick and grid lines, labels) when the lines can be laid over as an image."""
+        picture = QPicture()
+        painter = QPainter(picture)
+        specs = None
+        try:
+            if self.style["tickFont"]:
+                painter.setFont(self.style["tickFont"])
+            specs = self.generateDrawSpecs(painter)
+            if specs is not None:
+                self.drawPicture(painter, *specs)
+        finally:
+            painter.end()
+        self.picture = picture
+        self._parts = (picture, self._split(*specs) if specs is not None else None)
+
+    def _split(self, axis_spec, tick_specs, text_specs):  # type: ignore[no-untyped-def]
+        vertical = self.orientation in ("left", "right")  # the grid lines run across: horizontal on a left axis
+        if not tick_specs or not all(_pen_drawn_as_spans(pen) for pen, _, _ in tick_specs):
+            return None
+        if vertical:
+            if any(a.y() != b.y() for _, a, b in tick_specs):
+                return None
+            across = sorted(a.y() for _, a, _ in tick_specs)
+        else:
+            if any(a.x() != b.x() for _, a, b in tick_specs):
+                return None
+            across = sorted(a.x() for _, a, _ in tick_specs)
+        if any(b - a < 1.5 for a, b in zip(across, across[1:])):
+            # Two lines might share a pixel. A line one pixel wide, parallel to an axis and drawn
+            # without antialiasing, covers one row (or column) of pixels, the one its position rounds
+            # to; positions a pixel and more apart round to different rows, whatever the rounding
+            # (its fixed-point steps are 1/64 pixel), and 1.5 leaves room for that.
+            return None
+        line, ticks, labels = QPicture(), QPicture(), QPicture()
+        bounds = QRectF()
+        # as AxisItem.drawPicture draws them, each part on its own picture
+        painter = QPainter(line)
+        try:
+            if self.style["tickFont"]:
+                painter.setFont(self.style["tickFont"])
+            painter.setRenderHint(QPainter.RenderHint.Antialiasing, False)
+            painter.setRenderHint(QPainter.RenderHint.TextAntialiasing, True)
+            pen, p1, p2 = axis_spec
+            painter.setPen(pen)
+            painter.drawLine(p1, p2)
+        finally:
+            painter.end()
+        painter = QPainter(ticks)
+        try:
+            painter.setRenderHint(QPainter.RenderHint.Antialiasing, False)
+            for pen, p1, p2 in tick_specs:
+                painter.setPen(pen)
+                painter.drawLine(p1, p2)
+                bounds |= QRectF(p1, p2).normalized()
+        finally:
+            painter.end()
+        painter = QPainter(labels)
+        try:
+            if self.style["tickFont"]:
+                painter.setFont(self.style["tickFont"])
+            painter.setRenderHint(QPainter.RenderHint.Antialiasing, False)
+            painter.setRenderHint(QPainter.RenderHint.TextAntialiasing, True)
+            if self.style["tickFont"] is not None:
+                painter.setFont(self.style["tickFont"])
+            painter.setPen(self.textPen())
+            painter.setClipRect(self.boundingRect().toAlignedRect())
+            for rect, flags, text in text_specs:
+                painter.drawText(rect, int(flags), text)
+        finally:
+            painter.end()
+        return line, ticks, labels, bounds.adjusted(-2.0, -2.0, 2.0, 2.0)
+
+    def _paint_parts(self, p, line, ticks, labels, bounds) -> bool:  # type: ignore[no-untyped-def]
+        device = p.deviceTransform()
+        world = p.worldTransform()
+        if (not _drawn_by_qt_raster(p.device())
+                or device.type().value > QTransform.TransformationType.TxTranslate.value
+                or world.type().value > QTransform.TransformationType.TxTranslate.value
+                or p.testRenderHint(QPainter.RenderHint.Antialiasing)):
+            return False
+        # where the lines fall in device pixels, and the offset of the device from the painter's
+        # coordinates once the item's own translation is undone (a whole number of pixels)
+        area = device.mapRect(bounds).toAlignedRect()
+        shift_x, shift_y = round(device.dx() - world.dx()), round(device.dy() - world.dy())
+        if (area.left() < 0 or area.top() < 0 or abs(device.dx() - world.dx() - shift_x) > 1e-6
+                or abs(device.dy() - world.dy() - shift_y) > 1e-6):
+            return False
+        image = self._layer.covering(area.right() + 1, area.bottom() + 1)
+        layer = QPainter(image)
+        try:
+            layer.setCompositionMode(QPainter.CompositionMode.CompositionMode_Source)
+            layer.fillRect(area, Qt.GlobalColor.transparent)
+            layer.setTransform(device)
+            layer.setRenderHint(QPainter.RenderHint.Antialiasing, False)
+            ticks.play(layer)
+        finally:
+            layer.end()
+        line.play(p)
+        p.save()
+        try:
+            p.resetTransform()
+            p.drawImage(QPoint(area.left() - shift_x, area.top() - shift_y), image, area)
+        finally:
+            p.restore()
+        labels.play(p)
+        return True
 
 
 class _KeptPlot:
@@ -437,8 +606,11 @@ class CurveView(QWidget):
         self.level = 0.95
         self.graphics = pg.GraphicsLayoutWidget()
         self.graphics.setBackground("w")
-        self.curve_plot = self.graphics.addPlot(row=0, col=0)
-        self.lower_plot = self.graphics.addPlot(row=1, col=0)
+        grid_layer = _GridLayer()
+        self.curve_plot = self.graphics.addPlot(row=0, col=0, axisItems={
+            side: _GridAxis(side, grid_layer) for side in ("left", "bottom")})
+        self.lower_plot = self.graphics.addPlot(row=1, col=0, axisItems={
+            side: _GridAxis(side, grid_layer) for side in ("left", "bottom")})
         # the legends sit in a column of their own, beside the data, never over it
         self.curve_legend = figures.new_legend()
         self.lower_legend = figures.new_legend()
