@@ -150,6 +150,12 @@ class _GridAxis(pg.AxisItem):
         super().__init__(orientation)
         self._layer = layer
         self._parts: tuple[object, tuple | None] = (None, None)  # type: ignore[type-arg]  # (picture, its parts)
+        self._bounds_while_recording: QRectF | None = None
+
+    def boundingRect(self) -> QRectF:  # noqa: N802 - Qt override
+        # working out the drawing asks for the bounds once per tick label; they do not change meanwhile
+        bounds = self._bounds_while_recording
+        return QRectF(bounds) if bounds is not None else super().boundingRect()
 
     def paint(self, p, opt, widget) -> None:  # type: ignore[no-untyped-def]
         if self.picture is None:
@@ -167,7 +173,11 @@ class _GridAxis(pg.AxisItem):
         try:
             if self.style["tickFont"]:
                 painter.setFont(self.style["tickFont"])
-            specs = self.generateDrawSpecs(painter)
+            self._bounds_while_recording = super().boundingRect()
+            try:
+                specs = self.generateDrawSpecs(painter)  # it sizes the axis to its labels only at its end
+            finally:
+                self._bounds_while_recording = None
             if specs is not None:
                 self.drawPicture(painter, *specs)
         finally:
@@ -177,7 +187,7 @@ class _GridAxis(pg.AxisItem):
 
     def _split(self, axis_spec, tick_specs, text_specs):  # type: ignore[no-untyped-def]
         vertical = self.orientation in ("left", "right")  # the grid lines run across: horizontal on a left axis
-        if not tick_specs or not all(_pen_drawn_as_spans(pen) for pen, _, _ in tick_specs):
+        if not tick_specs or not all(_pen_drawn_as_spans(pen) for pen in {id(pen): pen for pen, _, _ in tick_specs}.values()):
             return None
         if vertical:
             if any(a.y() != b.y() for _, a, b in tick_specs):
