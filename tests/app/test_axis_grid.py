@@ -122,3 +122,42 @@ def test_the_comparison_sees_the_grid(make_window, qtbot, monkeypatch) -> None:
     theirs = drawn(qtbot, view, monkeypatch, as_pyqtgraph=True)
     monkeypatch.setattr(curve_view._GridAxis, "_split", without_lines)
     assert drawn(qtbot, view, monkeypatch, as_pyqtgraph=False) != theirs
+
+
+@pytest.mark.parametrize("path", DEMOS, ids=[p.stem for p in DEMOS])
+def test_an_edit_paints_the_plots_once(make_window, qtbot, path) -> None:
+    """The bounds of the lines across the view and the shaded ranges are worked out before the
+    paint, so that working them out does not mark the plot changed and paint it a second time. (The
+    reason is given without a dialog here: a dialog that opens and closes has the window painted
+    again, as any window that another covered.)"""
+    from PySide6.QtCore import QEvent, QObject
+
+    window = make_window(path)
+    viewport = window.curve_view.graphics.viewport()
+    paints: list[int] = []
+
+    class Count(QObject):
+        def eventFilter(self, obj, event):  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+            if event.type() == QEvent.Type.Paint:
+                paints.append(1)
+            return False
+
+    counter = Count()
+    viewport.installEventFilter(counter)
+    model = window.standards_model
+    model.reason_provider = lambda _what: "re-read from the instrument's record"
+    row = next(r for r, s in enumerate(model.standards) if s.response.is_number and s.included)
+    from curvewright.app import figures
+
+    wide = figures.wide_range(window.curve_view.analyte)  # shown on a log axis whatever the box said
+    for log, factor in ((True, 1.05),) if wide else ((False, 1.05), (True, 1.1)):
+        window.curve_view.log_axis.setChecked(log)
+        qtbot.wait(500)  # the window's own first paints are over
+        window.session.last_analysis_work_seconds = 0.0  # analysed at once, on this thread
+        paints.clear()
+        value = float(window.session.run.analyte(window.current_analyte()).standards[row].response.value)
+        model.setData(model.index(row, sm.RESP), f"{value * factor:.6g}")
+        settle(qtbot, window)
+        qtbot.wait(100)
+        assert len(paints) == 1, (path.stem, log, len(paints))
+    viewport.removeEventFilter(counter)

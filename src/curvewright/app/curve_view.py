@@ -653,6 +653,12 @@ class CurveView(QWidget):
         self.lower_kind.currentIndexChanged.connect(self.redraw)
         self.curve_items = _CurveItems(self.curve_plot, self.curve_legend)
         self.lower_items = _LowerItems(self.lower_plot, self.lower_legend)
+        # the items whose bounds follow the view's range: pyqtgraph's lines across the view and shaded
+        # ranges (with their edge lines) work their bounds out when asked and then mark themselves changed
+        following = [item for kept in (self.curve_items, self.lower_items) for item in kept.items
+                     if isinstance(item, (pg.InfiniteLine, pg.LinearRegionItem))]
+        self._view_following = following + [line for item in following if isinstance(item, pg.LinearRegionItem)
+                                             for line in item.lines]
         self._hover_source: tuple[AnalyteResult, bool] | None = None
         self._hover_cache: list[tuple[float, float, str]] | None = None
         self._proxy = pg.SignalProxy(self.graphics.scene().sigMouseMoved, rateLimit=30, slot=self._on_mouse)
@@ -716,10 +722,10 @@ class CurveView(QWidget):
         """Work out now what pyqtgraph otherwise works out at the start of the next paint: the view
         boxes' ranges and transforms, and the bounds of the items that follow them (lines across the
         view, shaded ranges). Worked out during the paint, they mark those items changed again, and
-        the plot was painted a second time after every redraw. The same values either way."""
-        scene = self.graphics.scene()
-        scene.prepareForPaint()
-        for item in scene.items():
+        the plot was painted a second time after every redraw. The same values either way. (Other
+        items work their bounds out when painted without marking anything changed.)"""
+        self.graphics.scene().prepareForPaint()
+        for item in self._view_following:
             if item.isVisible():
                 item.boundingRect()
 
