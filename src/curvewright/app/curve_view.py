@@ -15,7 +15,7 @@ from __future__ import annotations
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QPoint, QPointF, QRectF, QSize, Qt, Signal
-from PySide6.QtGui import QImage, QPainter, QPen, QPicture, QPixmap, QTransform
+from PySide6.QtGui import QFont, QImage, QPainter, QPen, QPicture, QPixmap, QTransform
 from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QSizePolicy, QToolTip, QVBoxLayout, QWidget
 
 from . import figures, palette
@@ -61,10 +61,16 @@ def _axis_state(axis: pg.AxisItem) -> tuple:  # type: ignore[type-arg]
     lines cross the view)."""
     view = axis.linkedView()
     return (tuple(axis.range), axis.logMode, axis.scale, axis.autoSIPrefixScale, axis.labelUnitPrefix,
-            repr(axis._tickLevels), axis._tickDensity, repr(axis._tickSpacing), axis.grid, axis.labelString(),
+            _levels(axis._tickLevels), axis._tickDensity, _levels(axis._tickSpacing), axis.grid, axis.labelString(),
             axis.textWidth, axis.textHeight, axis.isVisible(), tuple(axis.style.items()),
             axis._pen, axis._textPen, axis.geometry().getRect(), axis.boundingRect().getRect(),
             None if view is None else view.mapRectToItem(axis, view.boundingRect()).getRect())
+
+
+def _levels(levels):  # type: ignore[no-untyped-def]
+    """Tick levels or spacings as values that compare by content (pyqtgraph keeps the lists it is
+    given; a copy, so that a list changed later in place would not compare equal to itself)."""
+    return None if levels is None else tuple(tuple(level) if isinstance(level, list) else level for level in levels)
 
 
 def _one_style(data: np.ndarray) -> bool:
@@ -568,6 +574,7 @@ class _Words(QWidget):
         self.label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
         self.label.setAccessibleName(name)
         self.setSizePolicy(self.label.sizePolicy())
+        self._kept_hints: tuple[str, int, QFont, tuple[QSize, int]] | None = None
 
     def text(self) -> str:
         return self.label.text()
@@ -575,9 +582,13 @@ class _Words(QWidget):
     def setText(self, text: str) -> None:  # noqa: N802 - as QLabel
         if text == self.label.text():
             return
-        before = self._hints()
+        kept = self._kept_hints  # the hints after the last new text, while its text, width and font are the same
+        before = kept[3] if kept is not None and kept[:3] == (self.label.text(), self.width(), self.label.font()) \
+            else self._hints()
         self.label.setText(text)
-        if self._hints() != before:
+        after = self._hints()
+        self._kept_hints = (text, self.width(), self.label.font(), after)
+        if after != before:
             self.updateGeometry()
 
     def _hints(self) -> tuple[QSize, int]:
