@@ -161,3 +161,21 @@ def test_an_edit_paints_the_plots_once(make_window, qtbot, path) -> None:
         qtbot.wait(100)
         assert len(paints) == 1, (path.stem, log, len(paints))
     viewport.removeEventFilter(counter)
+
+
+def test_edits_draw_no_symbol_again(make_window, qtbot) -> None:
+    """The points' symbols are drawn once: after many edits each set of points still has the one
+    symbol it had (pyqtgraph made a new brush with each new data, and drew and kept the symbol
+    again for it)."""
+    window = make_window(next(p for p in DEMOS if "weighted" in p.stem))
+    model = window.standards_model
+    model.reason_provider = lambda _what: "re-read from the instrument's record"
+    points = [item.scatter for kept in (window.curve_view.curve_items, window.curve_view.lower_items)
+              for item in kept.items if isinstance(item, pg.PlotDataItem) and item.opts["symbol"] is not None]
+    before = [len(scatter.fragmentAtlas) for scatter in points]
+    assert max(before) == 1
+    value = float(model.standards[2].response.value)
+    for k in range(8):
+        model.setData(model.index(2, sm.RESP), f"{value * (1 + 0.01 * (k + 1)):.6g}")
+        settle(qtbot, window)
+    assert [len(scatter.fragmentAtlas) for scatter in points] == before

@@ -98,12 +98,26 @@ def _update_spots_of_one_style(scatter: pg.ScatterPlotItem, dataSet=None) -> Non
         return
     new = data["sourceRect"]["w"] == 0
     if np.any(new):
+        _same_style_objects(scatter)
         style = (opts["symbol"], opts["size"], opts["pen"], opts["brush"])
         data["sourceRect"][new] = scatter.fragmentAtlas[[style]][0]
     scatter._maybeRebuildAtlas()
     scatter._updateMaxSpotSizes(data=data)
     if np.any(new):
         scatter.invalidate()
+
+
+def _same_style_objects(scatter: pg.ScatterPlotItem) -> None:
+    """Give the scatter back the pen and brush objects it drew its symbol with last time when the new
+    ones are equal to them. pyqtgraph makes a new brush with every new data and keys its symbol atlas
+    by the objects, so each redraw drew the symbol again and added it to the atlas."""
+    opts = scatter.opts
+    kept = getattr(scatter, "_kept_style_objects", None)
+    if kept is not None:
+        for key, before in zip(("pen", "brush"), kept):
+            if opts[key] is not before and opts[key] == before:
+                opts[key] = before
+    scatter._kept_style_objects = (opts["pen"], opts["brush"])
 
 
 class _GridLayer:
