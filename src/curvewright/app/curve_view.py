@@ -676,6 +676,11 @@ class CurveView(QWidget):
         for box in (self.confidence, self.prediction, self.log_axis):
             box.toggled.connect(self.redraw)
         self.lower_kind.currentIndexChanged.connect(self.redraw)
+        for plot in (self.curve_plot, self.lower_plot):
+            for side in ("right", "top"):
+                # hidden, but pyqtgraph works out a unit prefix for their labels at every new range
+                # (the label's text laid out again each time)
+                plot.getAxis(side).enableAutoSIPrefix(False)
         self.curve_items = _CurveItems(self.curve_plot, self.curve_legend)
         self.lower_items = _LowerItems(self.lower_plot, self.lower_legend)
         # the items whose bounds follow the view's range: pyqtgraph's lines across the view and shaded
