@@ -179,3 +179,29 @@ def test_edits_draw_no_symbol_again(make_window, qtbot) -> None:
         model.setData(model.index(2, sm.RESP), f"{value * (1 + 0.01 * (k + 1)):.6g}")
         settle(qtbot, window)
     assert [len(scatter.fragmentAtlas) for scatter in points] == before
+
+
+def test_items_whose_values_did_not_change_are_not_given_them_again(make_window, qtbot, monkeypatch) -> None:
+    """A response edited moves no acceptance limit: the limit lines keep their data (pyqtgraph would
+    work them out anew and mark them changed), and the plot still looks as drawn anew (the pixel
+    comparisons in test_curve_items.py)."""
+    window = make_window(next(p for p in DEMOS if "weighted" in p.stem))
+    lower = window.curve_view.lower_items
+    given: list = []  # type: ignore[type-arg]
+    set_data = pg.PlotDataItem.setData
+
+    def noting(self, *args, **kwargs):  # type: ignore[no-untyped-def]
+        given.append(self)
+        return set_data(self, *args, **kwargs)
+
+    monkeypatch.setattr(pg.PlotDataItem, "setData", noting)
+    assert lower.limit_upper.isVisible()
+    limits_before = (lower.limit_upper.xData.copy(), lower.limit_upper.yData.copy())
+    model = window.standards_model
+    model.reason_provider = lambda _what: "re-read from the instrument's record"
+    value = float(model.standards[2].response.value)
+    model.setData(model.index(2, sm.RESP), f"{value * 1.03:.6g}")
+    settle(qtbot, window)
+    assert lower.passing in given and window.curve_view.curve_items.curve in given  # what moved was given its values
+    assert lower.limit_upper not in given and lower.limit_lower not in given
+    assert (lower.limit_upper.xData == limits_before[0]).all() and (lower.limit_upper.yData == limits_before[1]).all()

@@ -298,6 +298,17 @@ class _GridAxis(pg.AxisItem):
         return True
 
 
+def _holds(item, *data) -> bool:  # type: ignore[no-untyped-def]
+    """The plot item holds these values already (x and y, the same numbers of the same type): given
+    them again, pyqtgraph would only work everything out anew and mark the item changed (the
+    acceptance limits, after a response is edited)."""
+    if len(data) != 2 or not isinstance(item, pg.PlotDataItem) or item.xData is None or item.yData is None:
+        return False
+    x, y = np.asarray(data[0]), np.asarray(data[1])
+    return (x.dtype == item.xData.dtype and y.dtype == item.yData.dtype
+            and np.array_equal(x, item.xData) and np.array_equal(y, item.yData))
+
+
 class _KeptPlot:
     """A plot whose items are made once, shown or hidden, and given new data; its legend is built
     again only when its entries change. Its axes are styled, labelled and ticked on every drawing,
@@ -351,7 +362,8 @@ class _KeptPlot:
         if named:
             item.opts["name"] = name
         if data:
-            item.setData(*data)
+            if not _holds(item, *data):
+                item.setData(*data)
         elif options:
             item.setData(**options)
         item.show()
