@@ -26,7 +26,7 @@ def test_benchmark_runs_in_smoke_mode(script: Path) -> None:
     assert "×" in result.stdout  # every benchmark reports its ratios
     if script.stem == "bench_edit_redraw":  # the parts of an edit, CPU times beside elapsed, and scrolling
         for column in ("analysis answered", "views rebuilt", "window repainted", "GUI thread CPU", "analysis CPU",
-                       "scrolling the results table"):
+                       "scrolling the results table", "load average"):
             assert column in result.stdout, column
 
 
