@@ -480,8 +480,16 @@ class _CurveItems(_KeptPlot):
         low, high = float(tx(low)), float(tx(high))
         finite = figures._finite
         if show_confidence:
-            self.confidence_upper.setData(*finite(x, ty(trace.confidence_upper)))
-            self.confidence_lower.setData(*finite(x, ty(trace.confidence_lower)))
+            # the band's outline is made once from both new edges (each edge given its data would
+            # otherwise have it made again, the first time with the other edge's old data)
+            for edge, edge_y in ((self.confidence_upper, trace.confidence_upper),
+                                 (self.confidence_lower, trace.confidence_lower)):
+                edge.blockSignals(True)
+                try:
+                    edge.setData(*finite(x, ty(edge_y)))
+                finally:
+                    edge.blockSignals(False)
+            self.confidence.updatePath()
             self.show(self.confidence, name=f"{level:.0%} confidence band", legend_item=self.confidence_sample)
         if show_prediction:
             self.show(self.prediction_upper, *finite(x, ty(trace.prediction_upper)), name=f"{level:.0%} prediction band", named=True)
