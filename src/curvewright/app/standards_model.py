@@ -72,6 +72,9 @@ class StandardsModel(QAbstractTableModel):
         self.analyte_name = analyte
         self.decimal_mark: str | None = None  # the analyst's decimal mark for typed and pasted values
         self.reason_provider: ReasonProvider | None = None  # asks why a raw value that was entered changes
+        self._input_texts: dict[int, tuple[Standard, tuple[str, ...]]] = {}
+        """Each standard shown and its texts in the columns of what was entered (by ``id``, the standard
+        kept beside them so that the number is never taken for another's)."""
         self._result_texts: tuple[object, tuple, list] | None = None  # type: ignore[type-arg]
         """The result columns' texts last shown: (the analyte's result, the standards' ids, inclusion and
         anchor marks, the texts), to compare the next result's with."""
@@ -168,8 +171,25 @@ class StandardsModel(QAbstractTableModel):
         font, or for an excluded standard its text in italics (see
         :func:`~curvewright.app.table_view.fit_columns`)."""
         standards = self.standards
-        return tuple(self._text(s, col) if s.included else (self._text(s, col), "italic")
-                     for s in (standards[r] for r in rows))
+        if col in RESULT_COLUMNS:
+            return tuple(self._text(s, col) if s.included else (self._text(s, col), "italic")
+                         for s in (standards[r] for r in rows))
+        texts = self._input_texts_of
+        return tuple(texts(s)[col] if s.included else (texts(s)[col], "italic") for s in (standards[r] for r in rows))
+
+    def _input_texts_of(self, s: Standard) -> tuple[str, ...]:
+        """A standard's texts in the columns of what was entered (the result columns left empty),
+        worked out once per standard: standards are immutable, and an edit replaces only those it
+        changes, so a table fitted after every analysis measures the others' texts again without
+        working them out again."""
+        kept = self._input_texts.get(id(s))
+        if kept is not None and kept[0] is s:
+            return kept[1]
+        if len(self._input_texts) > 4 * len(self.standards) + 64:
+            self._input_texts = {}  # standards no longer shown
+        texts = tuple("" if c in RESULT_COLUMNS else self._text(s, c) for c in range(len(COLUMNS)))
+        self._input_texts[id(s)] = (s, texts)
+        return texts
 
     def _problem(self, s: Standard, col: int) -> str | None:
         if col == CONC and not s.has_concentration:
