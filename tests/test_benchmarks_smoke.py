@@ -26,7 +26,7 @@ def test_benchmark_runs_in_smoke_mode(script: Path) -> None:
     assert "×" in result.stdout  # every benchmark reports its ratios
     if script.stem == "bench_edit_redraw":  # the parts of an edit, CPU times beside elapsed, and scrolling
         for column in ("analysis answered", "views rebuilt", "window repainted", "GUI thread CPU", "analysis CPU",
-                       "scrolling the results table"):
+                       "scrolling the results table", "load average"):
             assert column in result.stdout, column
     if script.stem == "bench_record":  # the record's parts, the PDF writer's own work among them
         for part in ("building the content", "placing the tables", "drawing the figures on the pages",

@@ -14,7 +14,8 @@ from __future__ import annotations
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QPointF, QSize, Qt, Signal
+from PySide6.QtCore import QPoint, QPointF, QRectF, QSize, Qt, Signal
+from PySide6.QtGui import QFont, QImage, QPainter, QPen, QPicture, QPixmap, QTransform
 from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QSizePolicy, QToolTip, QVBoxLayout, QWidget
 
 from . import figures, palette
@@ -60,10 +61,16 @@ def _axis_state(axis: pg.AxisItem) -> tuple:  # type: ignore[type-arg]
     lines cross the view)."""
     view = axis.linkedView()
     return (tuple(axis.range), axis.logMode, axis.scale, axis.autoSIPrefixScale, axis.labelUnitPrefix,
-            repr(axis._tickLevels), axis._tickDensity, repr(axis._tickSpacing), axis.grid, axis.labelString(),
+            _levels(axis._tickLevels), axis._tickDensity, _levels(axis._tickSpacing), axis.grid, axis.labelString(),
             axis.textWidth, axis.textHeight, axis.isVisible(), tuple(axis.style.items()),
             axis._pen, axis._textPen, axis.geometry().getRect(), axis.boundingRect().getRect(),
             None if view is None else view.mapRectToItem(axis, view.boundingRect()).getRect())
+
+
+def _levels(levels):  # type: ignore[no-untyped-def]
+    """Tick levels or spacings as values that compare by content (pyqtgraph keeps the lists it is
+    given; a copy, so that a list changed later in place would not compare equal to itself)."""
+    return None if levels is None else tuple(tuple(level) if isinstance(level, list) else level for level in levels)
 
 
 def _one_style(data: np.ndarray) -> bool:
@@ -91,12 +98,215 @@ def _update_spots_of_one_style(scatter: pg.ScatterPlotItem, dataSet=None) -> Non
         return
     new = data["sourceRect"]["w"] == 0
     if np.any(new):
+        _same_style_objects(scatter)
         style = (opts["symbol"], opts["size"], opts["pen"], opts["brush"])
         data["sourceRect"][new] = scatter.fragmentAtlas[[style]][0]
     scatter._maybeRebuildAtlas()
     scatter._updateMaxSpotSizes(data=data)
     if np.any(new):
         scatter.invalidate()
+
+
+def _same_style_objects(scatter: pg.ScatterPlotItem) -> None:
+    """Give the scatter back the pen and brush objects it drew its symbol with last time when the new
+    ones are equal to them. pyqtgraph makes a new brush with every new data and keys its symbol atlas
+    by the objects, so each redraw drew the symbol again and added it to the atlas."""
+    opts = scatter.opts
+    kept = getattr(scatter, "_kept_style_objects", None)
+    if kept is not None:
+        for key, before in zip(("pen", "brush"), kept):
+            if opts[key] is not before and opts[key] == before:
+                opts[key] = before
+    scatter._kept_style_objects = (opts["pen"], opts["brush"])
+
+
+class _GridLayer:
+    """One transparent image, shared by the axes of a view, on which an axis draws its tick and grid
+    lines before they are laid over the plot (see :class:`_GridAxis`). It is as large as the device
+    coordinates reach, so that the lines are drawn through exactly the transform they would be drawn
+    through on the screen; only the part an axis covers is cleared and laid over."""
+
+    def __init__(self) -> None:
+        self.image: QImage | None = None
+
+    def covering(self, right: int, bottom: int) -> QImage:
+        image = self.image
+        if image is None or image.width() < right or image.height() < bottom:
+            width, height = max(right, 0 if image is None else image.width()), max(bottom, 0 if image is None else image.height())
+            image = self.image = QImage(width, height, QImage.Format.Format_ARGB32_Premultiplied)
+        return image
+
+
+def _pen_drawn_as_spans(pen: QPen) -> bool:
+    """A pen whose lines, drawn without antialiasing, cover whole pixels of one colour: cosmetic, at
+    most a pixel wide, solid, of a plain colour."""
+    return (pen.isCosmetic() and pen.widthF() <= 1.0 and pen.style() == Qt.PenStyle.SolidLine
+            and pen.brush().style() == Qt.BrushStyle.SolidPattern)
+
+
+def _drawn_by_qt_raster(device) -> bool:  # type: ignore[no-untyped-def]
+    """Qt's raster engine paints on this device: an image, a pixmap, or a plain widget (a widget's
+    backing store; not an OpenGL widget)."""
+    return type(device) in (QWidget, QImage, QPixmap)
+
+
+class _GridAxis(pg.AxisItem):
+    """A pyqtgraph axis that draws the same pixels as pyqtgraph's, faster where it has a grid.
+
+    pyqtgraph records an axis as one picture: the axis line, then each tick with its grid line across
+    the view (a faint, translucent line), then the tick labels; Qt blends a translucent line into the
+    screen pixel by pixel, and the grid took most of the plot's repaint. Here the tick and grid lines
+    are drawn on a transparent image (:class:`_GridLayer`) in the source composition mode, which stores
+    each covered pixel as the line's colour, through the same transform and the same line drawing, and
+    that image is laid over the screen (source over) between the axis line and the labels: each pixel
+    a line covers becomes what blending the line there gives (the colour plus the pixel below times one
+    less the line's opacity; the same arithmetic in both), and every other pixel is untouched. This
+    holds while no two lines share a pixel, so it is used only where the lines are parallel to each
+    other, at least one and a half pixels apart, drawn with a cosmetic solid pen at most a pixel wide, without
+    antialiasing, through a translation only, on Qt's raster engine (:func:`_drawn_by_qt_raster`); otherwise the axis draws its
+    picture as pyqtgraph does. ``tests/app/test_curve_items.py`` compares both ways pixel for pixel."""
+
+    def __init__(self, orientation: str, layer: _GridLayer) -> None:
+        super().__init__(orientation)
+        self._layer = layer
+        self._parts: tuple[object, tuple | None] = (None, None)  # type: ignore[type-arg]  # (picture, its parts)
+        self._bounds_while_recording: QRectF | None = None
+
+    def boundingRect(self) -> QRectF:  # noqa: N802 - Qt override
+        # working out the drawing asks for the bounds once per tick label; they do not change meanwhile
+        bounds = self._bounds_while_recording
+        return QRectF(bounds) if bounds is not None else super().boundingRect()
+
+    def paint(self, p, opt, widget) -> None:  # type: ignore[no-untyped-def]
+        if self.picture is None:
+            self._record()
+        picture, parts = self._parts
+        if picture is not self.picture or parts is None or not self._paint_parts(p, *parts):
+            self.picture.play(p)
+
+    def _record(self) -> None:
+        """The picture pyqtgraph records, and beside it the same drawing in three parts (axis line,
+        tick and grid lines, labels) when the lines can be laid over as an image."""
+        picture = QPicture()
+        painter = QPainter(picture)
+        specs = None
+        try:
+            if self.style["tickFont"]:
+                painter.setFont(self.style["tickFont"])
+            self._bounds_while_recording = super().boundingRect()
+            try:
+                specs = self.generateDrawSpecs(painter)  # it sizes the axis to its labels only at its end
+            finally:
+                self._bounds_while_recording = None
+            if specs is not None:
+                self.drawPicture(painter, *specs)
+        finally:
+            painter.end()
+        self.picture = picture
+        self._parts = (picture, self._split(*specs) if specs is not None else None)
+
+    def _split(self, axis_spec, tick_specs, text_specs):  # type: ignore[no-untyped-def]
+        vertical = self.orientation in ("left", "right")  # the grid lines run across: horizontal on a left axis
+        if not tick_specs or not all(_pen_drawn_as_spans(pen) for pen in {id(pen): pen for pen, _, _ in tick_specs}.values()):
+            return None
+        if vertical:
+            if any(a.y() != b.y() for _, a, b in tick_specs):
+                return None
+            across = sorted(a.y() for _, a, _ in tick_specs)
+        else:
+            if any(a.x() != b.x() for _, a, b in tick_specs):
+                return None
+            across = sorted(a.x() for _, a, _ in tick_specs)
+        if any(b - a < 1.5 for a, b in zip(across, across[1:])):
+            # Two lines might share a pixel. A line one pixel wide, parallel to an axis and drawn
+            # without antialiasing, covers one row (or column) of pixels, the one its position rounds
+            # to; positions a pixel and more apart round to different rows, whatever the rounding
+            # (its fixed-point steps are 1/64 pixel), and 1.5 leaves room for that.
+            return None
+        line, ticks, labels = QPicture(), QPicture(), QPicture()
+        bounds = QRectF()
+        # as AxisItem.drawPicture draws them, each part on its own picture
+        painter = QPainter(line)
+        try:
+            if self.style["tickFont"]:
+                painter.setFont(self.style["tickFont"])
+            painter.setRenderHint(QPainter.RenderHint.Antialiasing, False)
+            painter.setRenderHint(QPainter.RenderHint.TextAntialiasing, True)
+            pen, p1, p2 = axis_spec
+            painter.setPen(pen)
+            painter.drawLine(p1, p2)
+        finally:
+            painter.end()
+        painter = QPainter(ticks)
+        try:
+            painter.setRenderHint(QPainter.RenderHint.Antialiasing, False)
+            for pen, p1, p2 in tick_specs:
+                painter.setPen(pen)
+                painter.drawLine(p1, p2)
+                bounds |= QRectF(p1, p2).normalized()
+        finally:
+            painter.end()
+        painter = QPainter(labels)
+        try:
+            if self.style["tickFont"]:
+                painter.setFont(self.style["tickFont"])
+            painter.setRenderHint(QPainter.RenderHint.Antialiasing, False)
+            painter.setRenderHint(QPainter.RenderHint.TextAntialiasing, True)
+            if self.style["tickFont"] is not None:
+                painter.setFont(self.style["tickFont"])
+            painter.setPen(self.textPen())
+            painter.setClipRect(self.boundingRect().toAlignedRect())
+            for rect, flags, text in text_specs:
+                painter.drawText(rect, int(flags), text)
+        finally:
+            painter.end()
+        return line, ticks, labels, bounds.adjusted(-2.0, -2.0, 2.0, 2.0)
+
+    def _paint_parts(self, p, line, ticks, labels, bounds) -> bool:  # type: ignore[no-untyped-def]
+        device = p.deviceTransform()
+        world = p.worldTransform()
+        if (not _drawn_by_qt_raster(p.device())
+                or device.type().value > QTransform.TransformationType.TxTranslate.value
+                or world.type().value > QTransform.TransformationType.TxTranslate.value
+                or p.testRenderHint(QPainter.RenderHint.Antialiasing)):
+            return False
+        # where the lines fall in device pixels, and the offset of the device from the painter's
+        # coordinates once the item's own translation is undone (a whole number of pixels)
+        area = device.mapRect(bounds).toAlignedRect()
+        shift_x, shift_y = round(device.dx() - world.dx()), round(device.dy() - world.dy())
+        if (area.left() < 0 or area.top() < 0 or abs(device.dx() - world.dx() - shift_x) > 1e-6
+                or abs(device.dy() - world.dy() - shift_y) > 1e-6):
+            return False
+        image = self._layer.covering(area.right() + 1, area.bottom() + 1)
+        layer = QPainter(image)
+        try:
+            layer.setCompositionMode(QPainter.CompositionMode.CompositionMode_Source)
+            layer.fillRect(area, Qt.GlobalColor.transparent)
+            layer.setTransform(device)
+            layer.setRenderHint(QPainter.RenderHint.Antialiasing, False)
+            ticks.play(layer)
+        finally:
+            layer.end()
+        line.play(p)
+        p.save()
+        try:
+            p.resetTransform()
+            p.drawImage(QPoint(area.left() - shift_x, area.top() - shift_y), image, area)
+        finally:
+            p.restore()
+        labels.play(p)
+        return True
+
+
+def _holds(item, *data) -> bool:  # type: ignore[no-untyped-def]
+    """The plot item holds these values already (x and y, the same numbers of the same type): given
+    them again, pyqtgraph would only work everything out anew and mark the item changed (the
+    acceptance limits, after a response is edited)."""
+    if len(data) != 2 or not isinstance(item, pg.PlotDataItem) or item.xData is None or item.yData is None:
+        return False
+    x, y = np.asarray(data[0]), np.asarray(data[1])
+    return (x.dtype == item.xData.dtype and y.dtype == item.yData.dtype
+            and np.array_equal(x, item.xData) and np.array_equal(y, item.yData))
 
 
 class _KeptPlot:
@@ -152,7 +362,8 @@ class _KeptPlot:
         if named:
             item.opts["name"] = name
         if data:
-            item.setData(*data)
+            if not _holds(item, *data):
+                item.setData(*data)
         elif options:
             item.setData(**options)
         item.show()
@@ -269,8 +480,16 @@ class _CurveItems(_KeptPlot):
         low, high = float(tx(low)), float(tx(high))
         finite = figures._finite
         if show_confidence:
-            self.confidence_upper.setData(*finite(x, ty(trace.confidence_upper)))
-            self.confidence_lower.setData(*finite(x, ty(trace.confidence_lower)))
+            # the band's outline is made once from both new edges (each edge given its data would
+            # otherwise have it made again, the first time with the other edge's old data)
+            for edge, edge_y in ((self.confidence_upper, trace.confidence_upper),
+                                 (self.confidence_lower, trace.confidence_lower)):
+                edge.blockSignals(True)
+                try:
+                    edge.setData(*finite(x, ty(edge_y)))
+                finally:
+                    edge.blockSignals(False)
+            self.confidence.updatePath()
             self.show(self.confidence, name=f"{level:.0%} confidence band", legend_item=self.confidence_sample)
         if show_prediction:
             self.show(self.prediction_upper, *finite(x, ty(trace.prediction_upper)), name=f"{level:.0%} prediction band", named=True)
@@ -389,6 +608,7 @@ class _Words(QWidget):
         self.label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
         self.label.setAccessibleName(name)
         self.setSizePolicy(self.label.sizePolicy())
+        self._kept_hints: tuple[str, int, QFont, tuple[QSize, int]] | None = None
 
     def text(self) -> str:
         return self.label.text()
@@ -396,9 +616,13 @@ class _Words(QWidget):
     def setText(self, text: str) -> None:  # noqa: N802 - as QLabel
         if text == self.label.text():
             return
-        before = self._hints()
+        kept = self._kept_hints  # the hints after the last new text, while its text, width and font are the same
+        before = kept[3] if kept is not None and kept[:3] == (self.label.text(), self.width(), self.label.font()) \
+            else self._hints()
         self.label.setText(text)
-        if self._hints() != before:
+        after = self._hints()
+        self._kept_hints = (text, self.width(), self.label.font(), after)
+        if after != before:
             self.updateGeometry()
 
     def _hints(self) -> tuple[QSize, int]:
@@ -437,8 +661,11 @@ class CurveView(QWidget):
         self.level = 0.95
         self.graphics = pg.GraphicsLayoutWidget()
         self.graphics.setBackground("w")
-        self.curve_plot = self.graphics.addPlot(row=0, col=0)
-        self.lower_plot = self.graphics.addPlot(row=1, col=0)
+        grid_layer = _GridLayer()
+        self.curve_plot = self.graphics.addPlot(row=0, col=0, axisItems={
+            side: _GridAxis(side, grid_layer) for side in ("left", "bottom")})
+        self.lower_plot = self.graphics.addPlot(row=1, col=0, axisItems={
+            side: _GridAxis(side, grid_layer) for side in ("left", "bottom")})
         # the legends sit in a column of their own, beside the data, never over it
         self.curve_legend = figures.new_legend()
         self.lower_legend = figures.new_legend()
@@ -469,8 +696,19 @@ class CurveView(QWidget):
         for box in (self.confidence, self.prediction, self.log_axis):
             box.toggled.connect(self.redraw)
         self.lower_kind.currentIndexChanged.connect(self.redraw)
+        for plot in (self.curve_plot, self.lower_plot):
+            for side in ("right", "top"):
+                # hidden, but pyqtgraph works out a unit prefix for their labels at every new range
+                # (the label's text laid out again each time)
+                plot.getAxis(side).enableAutoSIPrefix(False)
         self.curve_items = _CurveItems(self.curve_plot, self.curve_legend)
         self.lower_items = _LowerItems(self.lower_plot, self.lower_legend)
+        # the items whose bounds follow the view's range: pyqtgraph's lines across the view and shaded
+        # ranges (with their edge lines) work their bounds out when asked and then mark themselves changed
+        following = [item for kept in (self.curve_items, self.lower_items) for item in kept.items
+                     if isinstance(item, (pg.InfiniteLine, pg.LinearRegionItem))]
+        self._view_following = following + [line for item in following if isinstance(item, pg.LinearRegionItem)
+                                             for line in item.lines]
         self._hover_source: tuple[AnalyteResult, bool] | None = None
         self._hover_cache: list[tuple[float, float, str]] | None = None
         self._proxy = pg.SignalProxy(self.graphics.scene().sigMouseMoved, rateLimit=30, slot=self._on_mouse)
@@ -534,10 +772,10 @@ class CurveView(QWidget):
         """Work out now what pyqtgraph otherwise works out at the start of the next paint: the view
         boxes' ranges and transforms, and the bounds of the items that follow them (lines across the
         view, shaded ranges). Worked out during the paint, they mark those items changed again, and
-        the plot was painted a second time after every redraw. The same values either way."""
-        scene = self.graphics.scene()
-        scene.prepareForPaint()
-        for item in scene.items():
+        the plot was painted a second time after every redraw. The same values either way. (Other
+        items work their bounds out when painted without marking anything changed.)"""
+        self.graphics.scene().prepareForPaint()
+        for item in self._view_following:
             if item.isVisible():
                 item.boundingRect()
 

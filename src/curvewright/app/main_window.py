@@ -131,6 +131,8 @@ class MainWindow(QMainWindow):
         left_tabs.addTab(standards_page, "&Standards")
         left_tabs.addTab(self.samples_view, "Sa&mples")
         left_tabs.currentChanged.connect(self.command(self._update_buttons))
+        self._unfitted_tables: set[SheetTableView] = set()
+        left_tabs.currentChanged.connect(self._fit_opened_table)
         self.left_tabs = left_tabs
         left = QWidget()
         lv = QVBoxLayout(left)
@@ -355,9 +357,19 @@ class MainWindow(QMainWindow):
     def _on_result(self, result: RunResult) -> None:
         self._show_views()
         self.refit_label.setText(f"refit in {self.session.last_analysis_seconds * 1000:.0f} ms")
-        # the columns that show the engine's answers (back-calculated, %RE, flags) fit their text
-        fit_columns(self.standards_view)
-        fit_columns(self.samples_view)
+        # the columns that show the engine's answers (back-calculated, %RE, flags) fit their text; a
+        # table behind the other tab when its tab is opened
+        for view in (self.standards_view, self.samples_view):
+            if view.isVisibleTo(self):
+                fit_columns(view)
+            else:
+                self._unfitted_tables.add(view)
+
+    def _fit_opened_table(self, _index: int) -> None:
+        for view in list(self._unfitted_tables):
+            if view.isVisibleTo(self):
+                self._unfitted_tables.discard(view)
+                fit_columns(view)
 
     def _show_views(self) -> None:
         result = self.session.result

@@ -72,6 +72,12 @@ class StandardsModel(QAbstractTableModel):
         self.analyte_name = analyte
         self.decimal_mark: str | None = None  # the analyst's decimal mark for typed and pasted values
         self.reason_provider: ReasonProvider | None = None  # asks why a raw value that was entered changes
+        self._input_texts: dict[int, tuple[Standard, tuple[str, ...]]] = {}
+        """Each standard shown and its texts in the columns of what was entered (by ``id``, the standard
+        kept beside them so that the number is never taken for another's)."""
+        self._result_texts: tuple[object, tuple, list] | None = None  # type: ignore[type-arg]
+        """The result columns' texts last shown: (the analyte's result, the standards' ids, inclusion and
+        anchor marks, the texts), to compare the next result's with."""
         self.result: AnalyteResult | None = None
         self._positions: dict[str, int] = {}
         """Each fitted standard's place in the result's arrays, by id."""
@@ -165,8 +171,25 @@ class StandardsModel(QAbstractTableModel):
         font, or for an excluded standard its text in italics (see
         :func:`~curvewright.app.table_view.fit_columns`)."""
         standards = self.standards
-        return tuple(self._text(s, col) if s.included else (self._text(s, col), "italic")
-                     for s in (standards[r] for r in rows))
+        if col in RESULT_COLUMNS:
+            return tuple(self._text(s, col) if s.included else (self._text(s, col), "italic")
+                         for s in (standards[r] for r in rows))
+        texts = self._input_texts_of
+        return tuple(texts(s)[col] if s.included else (texts(s)[col], "italic") for s in (standards[r] for r in rows))
+
+    def _input_texts_of(self, s: Standard) -> tuple[str, ...]:
+        """A standard's texts in the columns of what was entered (the result columns left empty),
+        worked out once per standard: standards are immutable, and an edit replaces only those it
+        changes, so a table fitted after every analysis measures the others' texts again without
+        working them out again."""
+        kept = self._input_texts.get(id(s))
+        if kept is not None and kept[0] is s:
+            return kept[1]
+        if len(self._input_texts) > 4 * len(self.standards) + 64:
+            self._input_texts = {}  # standards no longer shown
+        texts = tuple("" if c in RESULT_COLUMNS else self._text(s, c) for c in range(len(COLUMNS)))
+        self._input_texts[id(s)] = (s, texts)
+        return texts
 
     def _problem(self, s: Standard, col: int) -> str | None:
         if col == CONC and not s.has_concentration:
@@ -378,14 +401,24 @@ class StandardsModel(QAbstractTableModel):
         """Show a new result: the view is told only of the result cells whose text changed (their
         shading follows the text), one signal per column and run of rows."""
         standards = self.standards
-        before = [tuple(self._text(s, c) for c in RESULT_COLUMNS) for s in standards] if self.result is not None else None
+        # what the result columns' texts depend on besides the result: each standard's place in the fit
+        shown = tuple((s.id, s.included, s.anchor) for s in standards)
+        kept = self._result_texts
+        if self.result is None:
+            before = None
+        elif kept is not None and kept[0] is self.result and kept[1] == shown:
+            before = kept[2]  # worked out for this result and these standards after the last analysis
+        else:
+            before = [tuple(self._text(s, c) for c in RESULT_COLUMNS) for s in standards]
         self._pick(result)
+        self._result_texts = None
         if not standards:
             return
         if before is None:
             self.dataChanged.emit(self.index(0, min(RESULT_COLUMNS)), self.index(len(standards) - 1, max(RESULT_COLUMNS)))
             return
         after = [tuple(self._text(s, c) for c in RESULT_COLUMNS) for s in standards]
+        self._result_texts = (self.result, shown, after)
         for j, column in enumerate(RESULT_COLUMNS):
             rows = [r for r in range(len(standards)) if before[r][j] != after[r][j]]
             start = 0
