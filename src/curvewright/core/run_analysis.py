@@ -393,6 +393,9 @@ class RunResult:
 def run_profile(run: Run) -> AcceptanceProfile:
     """The acceptance profile a run names (its own embedded profile, or a shipped one by id)."""
     if run.settings.custom_profile is not None:
+        kept = run.settings.kept_profile()  # read once, by the document's reader
+        if kept is not None:
+            return kept
         return AcceptanceProfile.from_mapping(run.settings.custom_profile, "run settings custom_profile")
     return load_profile(run.settings.acceptance_profile)
 
