@@ -357,9 +357,11 @@ class RunResult:
     @cached_property
     def method(self) -> "Method | None":
         """The validated method the run follows (from its stored copy), or None."""
+        if self.run.settings.method is None:  # nothing of methods loaded for a run without one
+            return None
         from .method import method_from_mapping
 
-        return None if self.run.settings.method is None else method_from_mapping(self.run.settings.method, "the run's method")
+        return method_from_mapping(self.run.settings.method, "the run's method")
 
     @cached_property
     def evidence(self) -> dict[str, "ModelComparison | str"]:
