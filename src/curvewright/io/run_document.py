@@ -883,6 +883,11 @@ class _Reader:
         return settings
 
     def reading(self, m: Any, path: str, required: bool = True) -> Reading | None:
+        if type(m) is dict and len(m) == 2:  # the common reading, a number and its text: read as the fields are
+            value, text = m.get("value", m), m.get("text")
+            if type(text) is str and (value is None or (type(value) is float and (
+                    value == 0 or MEASURE_RANGE[0] <= abs(value) <= MEASURE_RANGE[1]))):
+                return Reading(value, text, None, None)
         if m is None:
             if required:
                 self.fail(path, "missing reading")
