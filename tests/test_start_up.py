@@ -88,6 +88,35 @@ def test_quantify_json_loads_the_parts_a_run_reaches_only() -> None:
             "curvewright.io.signatures", "curvewright.io.result_tables"}
     assert not names & lazy, sorted(names & lazy)
     assert json.loads(done.stdout)["chain_check"].startswith("verified")
+    # nor a validated method's reader, nor the whole-curve rules, for a run whose settings and profile have none
+    assert run["settings"].get("method") is None and run["settings"]["custom_profile"].get("curve") is None
+    assert not names & {"curvewright.core.method", "curvewright.core.curve_rules"}
+
+
+def test_a_run_with_curve_rules_or_a_method_loads_their_readers(tmp_path: Path) -> None:
+    """The rules on the whole curve and a validated method are read where a run has them: the results are
+    those of the same run analysed in this process, where every module is loaded."""
+    from curvewright.core.run_analysis import analyse_run
+    from curvewright.io.run_document import open_run
+
+    with_curve = ROOT / "sample_runs" / "volatiles_water_average_rf.json"
+    assert json.loads(with_curve.read_text(encoding="utf-8"))["settings"]["custom_profile"].get("curve") is not None
+    names, done = imported("quantify", str(with_curve), "--json")
+    assert done.returncode in (0, 1), done.stderr[-2000:]
+    assert "curvewright.core.curve_rules" in names
+    result = analyse_run(open_run(with_curve).run)
+    assert result.profile.curve is not None
+    assert json.loads(done.stdout)["accepted"] == result.accepted
+    assert json.loads(done.stdout)["profile_sha256"] == result.profile.sha256
+
+    nitrate = ROOT / "sample_runs" / "nitrate_water_linear.json"
+    method = ROOT / "sample_runs" / "methods" / "demo_nitrate_uv_method.json"
+    names, done = imported("quantify", str(nitrate), "--json", "--method", str(method))
+    assert done.returncode in (0, 1), done.stderr[-2000:]
+    assert "curvewright.core.method" in names
+    stored = json.loads(method.read_text(encoding="utf-8"))
+    assert json.loads(done.stdout)["method"]["id"] == stored["id"] == "DEMO-NO3-UV"
+    assert any("method DEMO-NO3-UV" in r for r in json.loads(done.stdout)["reasons"])
 
 
 def test_the_lazily_loaded_parts_still_serve_their_commands(tmp_path: Path) -> None:

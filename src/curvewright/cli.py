@@ -1042,14 +1042,16 @@ def result_json(  # type: ignore[no-untyped-def]
                     "lloq": a.reporting.lloq, "uloq": a.reporting.uloq, "lod": a.reporting.lod, "loq": a.reporting.loq,
                     "reporting_limit": a.reporting.reporting_limit, "basis": a.reporting.basis,
                     "note": a.reporting.note},
-                "standards": [
+                # the standards are rows of plain values: written as they are, each on its line, with no
+                # walk over them for numbers that are not finite (a row holding one takes the long way)
+                "standards": Rows([
                     {"id": s.id, "concentration": s.concentration, "response": response[i],
                      "back_calculated": back_calculated[i], "relative_error": relative_error[i],
                      "leverage": leverage[i], "cooks_distance": cooks[i], "studentized_residual": studentized[i],
                      "influence_flags": [f.name.lower() for f in cal.influence_flags[i]],
                      "within_limits": bool(a.verdict.passing[i]) if a.verdict and a.verdict.judged[i] else None}
                     for i, s in enumerate(a.fitted_standards)
-                ],
+                ], _as_made),
                 "excluded_standards": [{"id": s.id, "reason": s.exclusion_reason} for s in a.excluded_standards],
                 "response_factors": response_factor_json(cal, a.analyte.uses_internal_standard),
             })

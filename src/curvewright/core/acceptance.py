@@ -25,11 +25,11 @@ from typing import TYPE_CHECKING, Any, Mapping
 import numpy as np
 
 from ._arrays import FloatArray, as_finite_vector, frozen
-from .curve_rules import CurveRules
 from .errors import ProfileError
 from .levels import group_levels
 
 if TYPE_CHECKING:  # pragma: no cover
+    from .curve_rules import CurveRules
     from .fitted_curve import FittedCurve
 
 PROFILE_FORMAT = "curvewright-acceptance-profile/1"
@@ -187,7 +187,11 @@ class AcceptanceProfile:
         caveat = data.get("caveat", "")
         if not isinstance(caveat, str):
             raise ProfileError(f"{origin}: 'caveat' must be text, found {caveat!r}.")
-        curve = None if data.get("curve") is None else CurveRules.from_mapping(data["curve"], f"{origin} curve")
+        curve = None
+        if data.get("curve") is not None:  # the rules' module loaded only for a profile that has them
+            from .curve_rules import CurveRules
+
+            curve = CurveRules.from_mapping(data["curve"], f"{origin} curve")
         return cls(standards=standards, qc=qc, checks=checks, reporting=reporting, caveat=caveat, curve=curve, **text)
 
     def with_limits(

@@ -222,6 +222,17 @@ class RunSettings:
     """The validated method the run follows: a copy of the method file's content (see
     :mod:`curvewright.core.method`), so that the run is judged as validated whatever version reopens it."""
 
+    def kept_profile(self) -> Any:
+        """The acceptance profile read from ``custom_profile`` when these settings were read, or None
+        (:meth:`keep_profile`)."""
+        return self.__dict__.get("_kept_profile")
+
+    def keep_profile(self, profile: Any) -> None:
+        """Keep the profile read from ``custom_profile`` with these settings, as a cached property keeps
+        what it works out, so that it is read once. It is not a field: equality and copies made by
+        :func:`dataclasses.replace` leave it out, so changed settings never carry it over."""
+        object.__setattr__(self, "_kept_profile", profile)
+
 
 @dataclass(frozen=True)
 class AuditEntry:

@@ -357,9 +357,11 @@ class RunResult:
     @cached_property
     def method(self) -> "Method | None":
         """The validated method the run follows (from its stored copy), or None."""
+        if self.run.settings.method is None:  # nothing of methods loaded for a run without one
+            return None
         from .method import method_from_mapping
 
-        return None if self.run.settings.method is None else method_from_mapping(self.run.settings.method, "the run's method")
+        return method_from_mapping(self.run.settings.method, "the run's method")
 
     @cached_property
     def evidence(self) -> dict[str, "ModelComparison | str"]:
@@ -393,6 +395,9 @@ class RunResult:
 def run_profile(run: Run) -> AcceptanceProfile:
     """The acceptance profile a run names (its own embedded profile, or a shipped one by id)."""
     if run.settings.custom_profile is not None:
+        kept = run.settings.kept_profile()  # read once, by the document's reader
+        if kept is not None:
+            return kept
         return AcceptanceProfile.from_mapping(run.settings.custom_profile, "run settings custom_profile")
     return load_profile(run.settings.acceptance_profile)
 

@@ -837,6 +837,7 @@ class _Reader:
             self.fail(f"{p}.limits_method", f"{limits!r} is not 'residual_sd', 'intercept_sd' or 'iso11843'")
         profile = self.get(m, "acceptance_profile", p, "text", "general")
         custom = self.get(m, "custom_profile", p, "object?", None, required=False)
+        stored = None
         if custom is not None:
             try:
                 stored = AcceptanceProfile.from_mapping(custom, f"{p}.custom_profile")
@@ -874,10 +875,19 @@ class _Reader:
                 method_from_mapping(method, f"{p}.method")
             except CurvewrightError as exc:
                 self.problems.append(str(exc))
-        return RunSettings(confidence_level=level, interval=interval, limits_method=limits, acceptance_profile=profile,
-                           custom_profile=custom, rounding=rounding, level_tolerance=tolerance, method=method)
+        settings = RunSettings(confidence_level=level, interval=interval, limits_method=limits,
+                               acceptance_profile=profile, custom_profile=custom, rounding=rounding,
+                               level_tolerance=tolerance, method=method)
+        if stored is not None:
+            settings.keep_profile(stored)
+        return settings
 
     def reading(self, m: Any, path: str, required: bool = True) -> Reading | None:
+        if type(m) is dict and len(m) == 2:  # the common reading, a number and its text: read as the fields are
+            value, text = m.get("value", m), m.get("text")
+            if type(text) is str and (value is None or (type(value) is float and (
+                    value == 0 or MEASURE_RANGE[0] <= abs(value) <= MEASURE_RANGE[1]))):
+                return Reading(value, text, None, None)
         if m is None:
             if required:
                 self.fail(path, "missing reading")
