@@ -280,3 +280,20 @@ def test_one_slope_terms_regression_test_is_lapacks_solve(seed: int, model: str)
     first = 1 if model == "linear" else 0
     a, c = cal.z_coefficients[first:], cal.z_covariance[first:, first:]
     assert cal.regression.f_statistic == float(a @ np.linalg.solve(c, a))
+
+
+@pytest.mark.parametrize("model", ["linear", "quadratic", "proportional"])
+@pytest.mark.parametrize("seed", range(20))
+def test_unit_weights_give_the_weighted_formulas_numbers(seed: int, model: str) -> None:
+    cal = _invented_fit(seed, model, "none")
+    x, y, n = cal.concentration, cal.response, cal.concentration.size
+    raw = np.ones(n)
+    normaliser = n / float(np.add.reduce(raw))
+    weights = cal.weight_model
+    assert weights.weights.tobytes() == (raw * normaliser).tobytes() and weights.normaliser == normaliser
+    assert weights.reference == float(np.minimum.reduce(raw)) and weights.power == 0
+    assert weights.lowest_concentration == float(x.min()) and weights.lowest_response == float(y.min())
+    assert np.isnan(weights.level_sd).all() and weights.level_sd.size == cal.levels.n_levels
+    # R² from the weighted sums with w = 1, as the stacked fits of a model screen work it out
+    together = cw.core.calibration.fit_weightings(x, y, model, ["none", "1/x"])[0]
+    assert together.r_squared == cal.r_squared and together.adjusted_r_squared == cal.adjusted_r_squared
