@@ -12,6 +12,7 @@ import numpy as np
 import pytest
 
 import curvewright as cw
+from curvewright.core import inverse
 from curvewright.core.levels import _group_equal, _group_sorted, group_levels
 from curvewright.core.regression_test import regression_tests
 
@@ -231,3 +232,68 @@ def test_models_and_weightings_read_by_name_as_before() -> None:
         assert w.value.strip().replace("²", "^2").replace(" ", "").lower() == w.value
     assert Weighting.parse(" 1/X² ") is Weighting.INVERSE_X2 and Weighting.parse("1/s2") is Weighting.INVERSE_S2
     assert Weighting.parse("") is Weighting.NONE and Weighting.parse("Two component") is Weighting.TWO_COMPONENT
+
+
+def _general_block(cal: cw.Calibration, y0: np.ndarray, replicates: object, level: float = 0.95) -> tuple:
+    """The general block of a quantitation, as every unknown went before the straight line's own path."""
+    checked, m, level = inverse.checked_request(cal, y0, replicates, level, "band")
+    probability = 0.5 + level / 2.0
+    t = inverse.t_quantile(probability, cal.df_residual)
+    limits, _ = cal.flag_limits
+    return inverse._quantify_block(cal, checked, m, probability, t, "band", limits, None)
+
+
+@pytest.mark.parametrize("weighting", ["none", "1/y", "1/y^2"])
+@pytest.mark.parametrize("seed", range(30))
+def test_the_straight_lines_own_block_is_the_general_block(seed: int, weighting: str) -> None:
+    cal = _invented_fit(seed, "linear", weighting)
+    rng = np.random.default_rng(seed)
+    low, high = float(cal.response.min()), float(cal.response.max())
+    # responses below, inside and above the standards', the end standards' own and the intercept
+    y0 = np.concatenate([rng.uniform(low - (high - low), high + (high - low), 500),
+                         [low, high, float(cal.z_coefficients[0])]])
+    for replicates in (1, 3, np.int64(2), rng.integers(1, 6, y0.size)):
+        q = cal.quantify(y0, replicates=replicates)
+        estimate, se, lower, upper, bits, bad, left = _general_block(cal, y0, replicates)
+        assert left is None and not bad.any()
+        for ours, general in ((q.estimate, estimate), (q.standard_error, se), (q.lower, lower), (q.upper, upper),
+                              (q.flag_bits, bits)):
+            assert ours.dtype == general.dtype and ours.tobytes() == general.tobytes()
+
+
+def test_a_line_whose_band_never_closes_takes_the_general_block() -> None:
+    # an invented line with a slope hardly above its noise: significant at the F-test, but the
+    # band at a higher level never closes, so the ends are infinite and flagged
+    x = np.repeat([1.0, 2.0, 3.0, 4.0], 2)
+    y = np.array([0.10, 0.25, 0.30, 0.22, 0.52, 0.32, 0.59, 0.41])  # slope's t about 3.8
+    cal = cw.fit(x, y, "linear", "none")
+    q = cal.quantify([0.3, 0.4], level=0.999)
+    estimate, se, lower, upper, bits, bad, left = _general_block(cal, np.array([0.3, 0.4]), 1, 0.999)
+    assert np.array_equal(q.lower, lower) and np.array_equal(q.upper, upper) and np.array_equal(q.flag_bits, bits)
+    assert np.isinf(q.lower).all() and all(inverse.QuantFlag.UNBOUNDED_INTERVAL in f for f in q.flags)
+
+
+@pytest.mark.parametrize("model", ["linear", "proportional"])
+@pytest.mark.parametrize("seed", range(40))
+def test_one_slope_terms_regression_test_is_lapacks_solve(seed: int, model: str) -> None:
+    cal = _invented_fit(seed, model, ("none", "1/x", "1/x^2", "1/y")[seed % 4])
+    first = 1 if model == "linear" else 0
+    a, c = cal.z_coefficients[first:], cal.z_covariance[first:, first:]
+    assert cal.regression.f_statistic == float(a @ np.linalg.solve(c, a))
+
+
+@pytest.mark.parametrize("model", ["linear", "quadratic", "proportional"])
+@pytest.mark.parametrize("seed", range(20))
+def test_unit_weights_give_the_weighted_formulas_numbers(seed: int, model: str) -> None:
+    cal = _invented_fit(seed, model, "none")
+    x, y, n = cal.concentration, cal.response, cal.concentration.size
+    raw = np.ones(n)
+    normaliser = n / float(np.add.reduce(raw))
+    weights = cal.weight_model
+    assert weights.weights.tobytes() == (raw * normaliser).tobytes() and weights.normaliser == normaliser
+    assert weights.reference == float(np.minimum.reduce(raw)) and weights.power == 0
+    assert weights.lowest_concentration == float(x.min()) and weights.lowest_response == float(y.min())
+    assert np.isnan(weights.level_sd).all() and weights.level_sd.size == cal.levels.n_levels
+    # R² from the weighted sums with w = 1, as the stacked fits of a model screen work it out
+    together = cw.core.calibration.fit_weightings(x, y, model, ["none", "1/x"])[0]
+    assert together.r_squared == cal.r_squared and together.adjusted_r_squared == cal.adjusted_r_squared

@@ -364,7 +364,8 @@ def _polynomial_core(
     """The coefficients and their covariance in powers of x, refused by name when they leave double precision."""
     p = model.n_parameters
     with np.errstate(over="ignore", under="ignore", invalid="ignore"):
-        root_wy = np.sqrt(weights.weights) * y
+        # unit weights: √1·y is y itself, copied (the general path's product makes a new array)
+        root_wy = y.copy() if weighting is Weighting.NONE else np.sqrt(weights.weights) * y
         roundoff = roundoff_floor(root_wy)
         clean = without_roundoff(solution.weighted_residuals, root_wy, roundoff)  # exact standards: zeros
         df = x.size - p
@@ -442,7 +443,11 @@ def _polynomial_calibration(
     z_cov, coefficients, covariance = core.z_cov, core.coefficients, core.covariance
     p = model.n_parameters
     w = weights.weights
-    if stacked is None:
+    if stacked is None and weighting is Weighting.NONE:
+        # unit weights: w·y is y and Σw is n exactly, so the same sums without the products by one
+        mean_w = float(np.add.reduce(y) / np.float64(x.size))
+        sst = float(np.add.reduce((y - mean_w) ** 2))
+    elif stacked is None:
         mean_w = float(np.add.reduce(w * y) / np.add.reduce(w))
         sst = float(np.add.reduce(w * (y - mean_w) ** 2))
     else:

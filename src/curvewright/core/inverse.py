@@ -222,7 +222,13 @@ def quantify(
     # Unknowns are worked in blocks so that the working arrays stay a fixed size however many there
     # are; every unknown's result depends on its own response and replicate count only.
     left = []
-    if 0 < k <= CHUNK:
+    fieller = interval == "band" and cal.model is Model.LINEAR and not cal.weighting.uses_concentration
+    line = _line_block(cal, y0, m, t, limits, replicates) if fieller and 0 < k <= CHUNK else None
+    if line is not None:
+        # one block of a straight line by Fieller's interval, every number finite
+        estimate, standard_error, lower, upper, bits = line
+        bad = None
+    elif 0 < k <= CHUNK:
         # one block: its arrays are the results (each made afresh by the block, none shared)
         estimate, standard_error, lower, upper, bits, bad, block_left = _quantify_block(
             cal, y0, m, probability, t, interval, limits, band)
@@ -242,7 +248,8 @@ def quantify(
     if left:
         assert band is not None
         _search_left(cal, band, y0, m, left, lower, upper, bits, bad)
-    _refuse_unrepresentable(y0, bad)
+    if bad is not None:
+        _refuse_unrepresentable(y0, bad)
     return Quantitation(
         mean_response=frozen(y0),
         replicates=frozen(m),
@@ -331,6 +338,77 @@ def _quantify_block(
     bad &= ~no_solution
     nan = np.where(no_solution, np.nan, 0.0)
     return x_hat + nan, se + nan, lower + nan, upper + nan, bits, bad, left
+
+
+def _line_block(
+    cal: "FittedCurve", y0: FloatArray, m: np.ndarray, t: float, limits: DetectionLimits | None,
+    replicates: object = None,
+) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray, np.ndarray] | None:
+    """Estimate, standard error, Fieller's interval ends and flag bits of one block of unknowns on a
+    straight line (with an intercept) whose weights do not depend on x: the operations of
+    :func:`_quantify_block` for that case, in the same order on the same numbers (so the same bits),
+    without the masks that are all false there (no unknown lacks a solution, none has two, none
+    reaches a turning point). None where that block would take another path or flag an unknown as
+    unbounded or unrepresentable (a slope of zero, a band that never closes, a number that is not
+    finite): the general block then works it out. ``replicates``, the count as the caller gave it:
+    one whole count (a Python int, already checked) makes σ²/m one number for every unknown of an
+    unweighted line (the same quotient as each element of σ²/m over the counts ``m``)."""
+    a0, a1 = cal.z_coefficients
+    scale = cal.basis.scale
+    slope = a1 / scale
+    if a1 == 0.0 or slope == 0.0:
+        return None
+    cov = cal.z_covariance
+    t2 = t * t
+    a_quad = a1 * a1 - t2 * cov[1, 1]
+    if a_quad <= 0.0:
+        return None
+    centre = cal.basis.centre
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        d = y0 - a0
+        z_hat = d / a1  # solve_z: (y0 − a₀)/a₁
+        x_hat = scale * z_hat
+        x_hat += centre
+        if type(replicates) is int and cal.weighting is Weighting.NONE:
+            new_var = cal.residual_sd**2 / replicates
+        else:
+            new_var = _new_response_variance(cal, x_hat, y0, m)
+        curve_var = horner(z_hat, cal.z_polynomials[1])
+        curve_var += new_var
+        se = np.sqrt(curve_var, out=curve_var)
+        se /= np.abs(slope)
+        # Fieller's A·z² + B·z + C = 0 (see _fieller_z): B = −2·(d·b + t²·c₀₁), C = d² − t²·(σ²/(m·w) + c₀₀)
+        b_quad = d * a1
+        b_quad += t2 * cov[0, 1]
+        b_quad *= -2.0
+        c_quad = new_var + cov[0, 0]
+        c_quad *= t2
+        np.multiply(d, d, out=d)
+        d -= c_quad
+        c_quad = d
+        disc = b_quad * b_quad
+        c_quad *= 4.0 * a_quad
+        disc -= c_quad
+        root = np.maximum(disc, 0.0, out=disc)
+        np.sqrt(root, out=root)
+        np.negative(b_quad, out=b_quad)
+        two_a = 2.0 * a_quad
+        lower = b_quad - root
+        lower /= two_a
+        lower *= scale
+        lower += centre
+        upper = np.add(b_quad, root, out=b_quad)
+        upper /= two_a
+        upper *= scale
+        upper += centre
+        total = x_hat + se
+        total += lower
+        total += upper
+    if not np.isfinite(total).all():
+        return None
+    range_low, range_high = cal.calibrated_range
+    slack = RANGE_SLACK * (range_high - range_low)
+    return x_hat, se, lower, upper, _range_bits(x_hat, range_low - slack, range_high + slack, limits)
 
 
 def _search_left(

@@ -107,7 +107,12 @@ def regression_tests(
     if len(fits) == 1 and tested and first is not None:
         # a fit alone (the usual case): the same LAPACK solve on its own block, without the stack
         a1, c1 = fits[0][0][first:], fits[0][1][first:, first:]
-        f = float(a1 @ np.linalg.solve(c1, a1)) / q
+        if q == 1:
+            # one slope term (a straight line): LAPACK's solve of a 1 × 1 system is the one division
+            slope = a1[0]
+            f = float(slope * (slope / c1[0, 0]))
+        else:
+            f = float(a1 @ np.linalg.solve(c1, a1)) / q
         return [RegressionTest(f, df, float(f_upper_tails(f, q, df_residual)))]
     if tested:
         if first is not None:

@@ -154,6 +154,22 @@ def make_weights(
                 f"weighting {weighting.value}: standard {i + 1} has response {response[i]:g}; "
                 "1/y-type weights need every response above zero."
             )
+    if weighting is Weighting.NONE:
+        # unit weights: the general path's numbers worked out (every raw weight 1, their least 1, their
+        # sum n exactly, so the normaliser n/n = 1 and the weights 1 × 1)
+        return WeightModel(
+            weighting=weighting,
+            weights=frozen(np.ones(n)),
+            normaliser=1.0,
+            lowest_concentration=float(concentration[int(concentration.argmin())]),
+            lowest_response=float(np.minimum.reduce(response)),
+            level_concentration=frozen(levels.concentration.copy()),
+            level_sd=frozen(level_sd),
+            reference=1.0,
+            power=0,
+            variance_fit=None,
+            from_replicates=False,
+        )
     variance_fit = None
     match weighting:
         case Weighting.NONE:
