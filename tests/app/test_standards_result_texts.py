@@ -56,3 +56,15 @@ def test_result_cells_read_what_the_shown_result_gives(make_window, qtbot) -> No
     settle(qtbot, window)
     assert first.id not in [s.id for s in model.standards]
     _check_every_result_cell(model)
+
+
+def test_fitted_widths_depend_on_the_texts_shown(make_window, qtbot) -> None:
+    """What a result column's width is measured from is the texts its cells show (kept or worked out)."""
+    window = make_window(NITRATE)
+    model = window.standards_model
+    rows = range(model.rowCount())
+    for col in sm.RESULT_COLUMNS:
+        expected = tuple(model._text(s, col) if s.included else (model._text(s, col), "italic") for s in model.standards)
+        assert model.fit_key(col, rows) == expected
+        assert tuple(k if isinstance(k, str) else k[0] for k in expected) == tuple(
+            model.index(r, col).data() for r in rows)

@@ -178,6 +178,10 @@ class StandardsModel(QAbstractTableModel):
         font, or for an excluded standard its text in italics (see
         :func:`~curvewright.app.table_view.fit_columns`)."""
         standards = self.standards
+        kept, j = self._result_texts, _RESULT_PLACE.get(col)
+        if j is not None and kept is not None and kept[0] is self.result and kept[3] is standards:
+            texts_of = kept[2]  # worked out when this result arrived, for these standards
+            return tuple(texts_of[r][j] if standards[r].included else (texts_of[r][j], "italic") for r in rows)
         if col in RESULT_COLUMNS:
             return tuple(self._text(s, col) if s.included else (self._text(s, col), "italic")
                          for s in (standards[r] for r in rows))
