@@ -29,6 +29,8 @@ COLUMNS = ("Id", "Level", "Rep.", "Nominal", "Response", "IS response", "Back-ca
            "In fit", "Influence", "Exclusion reason")
 ID, LEVEL, REP, CONC, RESP, IS, BACK, RE, LIMITS, IN_FIT, INFLUENCE, REASON = range(len(COLUMNS))
 RESULT_COLUMNS = (BACK, RE, LIMITS, INFLUENCE)
+_RESULT_PLACE = {c: j for j, c in enumerate(RESULT_COLUMNS)}
+"""A result column's place in the texts kept per standard when a result arrives."""
 """The columns that show what the engine found for each standard (read-only)."""
 FIELD_COLUMNS = {"id": ID, "level": LEVEL, "replicate": REP, "concentration": CONC, "response": RESP, "is_response": IS}
 """The column of each field a pasted block can fill."""
@@ -75,9 +77,10 @@ class StandardsModel(QAbstractTableModel):
         self._input_texts: dict[int, tuple[Standard, tuple[str, ...]]] = {}
         """Each standard shown and its texts in the columns of what was entered (by ``id``, the standard
         kept beside them so that the number is never taken for another's)."""
-        self._result_texts: tuple[object, tuple, list] | None = None  # type: ignore[type-arg]
+        self._result_texts: tuple[object, tuple, list, tuple] | None = None  # type: ignore[type-arg]
         """The result columns' texts last shown: (the analyte's result, the standards' ids, inclusion and
-        anchor marks, the texts), to compare the next result's with."""
+        anchor marks, the texts per standard, the standards they were worked out for), to compare the next
+        result's with and to answer the table from while the same result and standards are shown."""
         self.result: AnalyteResult | None = None
         self._positions: dict[str, int] = {}
         """Each fitted standard's place in the result's arrays, by id."""
@@ -134,9 +137,13 @@ class StandardsModel(QAbstractTableModel):
     def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):  # noqa: C901
         if role not in _ROLES_ANSWERED or not index.isValid():
             return None  # a role this table leaves to the view, turned away first
-        s = self.standards[index.row()]
-        col = index.column()
+        standards = self.standards
+        row, col = index.row(), index.column()
+        s = standards[row]
         if role == _DISPLAY or role == _EDIT:
+            kept, j = self._result_texts, _RESULT_PLACE.get(col)
+            if j is not None and kept is not None and kept[0] is self.result and kept[3] is standards:
+                return kept[2][row][j]  # the texts worked out when this result arrived, for these standards
             return self._text(s, col, edit=role == _EDIT)
         if role == _ALIGNMENT:
             return _RIGHT if col in _RIGHT_ALIGNED else None
@@ -171,6 +178,10 @@ class StandardsModel(QAbstractTableModel):
         font, or for an excluded standard its text in italics (see
         :func:`~curvewright.app.table_view.fit_columns`)."""
         standards = self.standards
+        kept, j = self._result_texts, _RESULT_PLACE.get(col)
+        if j is not None and kept is not None and kept[0] is self.result and kept[3] is standards:
+            texts_of = kept[2]  # worked out when this result arrived, for these standards
+            return tuple(texts_of[r][j] if standards[r].included else (texts_of[r][j], "italic") for r in rows)
         if col in RESULT_COLUMNS:
             return tuple(self._text(s, col) if s.included else (self._text(s, col), "italic")
                          for s in (standards[r] for r in rows))
@@ -418,7 +429,7 @@ class StandardsModel(QAbstractTableModel):
             self.dataChanged.emit(self.index(0, min(RESULT_COLUMNS)), self.index(len(standards) - 1, max(RESULT_COLUMNS)))
             return
         after = [tuple(self._text(s, c) for c in RESULT_COLUMNS) for s in standards]
-        self._result_texts = (self.result, shown, after)
+        self._result_texts = (self.result, shown, after, standards)
         for j, column in enumerate(RESULT_COLUMNS):
             rows = [r for r in range(len(standards)) if before[r][j] != after[r][j]]
             start = 0
