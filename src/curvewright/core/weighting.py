@@ -31,6 +31,7 @@ never narrower than at the bottom of the curve.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -38,8 +39,10 @@ from ._arrays import FloatArray, as_finite_vector, frozen
 from .errors import WeightingError
 from .levels import Levels
 from .models import Model
-from .variance_function import MeanFitter, VarianceFunctionFit, estimate_variance_function
 from .weighting_kinds import Weighting
+
+if TYPE_CHECKING:  # loaded where a variance function is estimated (make_weights), not on every run
+    from .variance_function import MeanFitter, VarianceFunctionFit
 
 MIN_REPLICATES_FOR_S2 = 10
 """Replicates per level below which 1/s² weights from the replicates are refused: their intervals
@@ -186,6 +189,7 @@ def make_weights(
             values, level_sd = _standard_deviations(concentration, response, levels, given_sd)
             power = 2
         case Weighting.POWER | Weighting.TWO_COMPONENT:
+            from .variance_function import estimate_variance_function
             variance_fit = estimate_variance_function(weighting.variance_function, model, concentration, response,  # type: ignore[arg-type]
                                                       mean_fitter)
             values, power = variance_fit.fitted_mean, 0
