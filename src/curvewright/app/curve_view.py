@@ -228,10 +228,7 @@ class _GridAxis(pg.AxisItem):
         # as AxisItem.drawPicture draws them, each part on its own picture
         painter = QPainter(line)
         try:
-            if self.style["tickFont"]:
-                painter.setFont(self.style["tickFont"])
-            painter.setRenderHint(QPainter.RenderHint.Antialiasing, False)
-            painter.setRenderHint(QPainter.RenderHint.TextAntialiasing, True)
+            self._set_up_as_drawn(painter)
             pen, p1, p2 = axis_spec
             painter.setPen(pen)
             painter.drawLine(p1, p2)
@@ -248,12 +245,7 @@ class _GridAxis(pg.AxisItem):
             painter.end()
         painter = QPainter(labels)
         try:
-            if self.style["tickFont"]:
-                painter.setFont(self.style["tickFont"])
-            painter.setRenderHint(QPainter.RenderHint.Antialiasing, False)
-            painter.setRenderHint(QPainter.RenderHint.TextAntialiasing, True)
-            if self.style["tickFont"] is not None:
-                painter.setFont(self.style["tickFont"])
+            self._set_up_as_drawn(painter)
             painter.setPen(self.textPen())
             painter.setClipRect(self.boundingRect().toAlignedRect())
             for rect, flags, text in text_specs:
@@ -261,6 +253,13 @@ class _GridAxis(pg.AxisItem):
         finally:
             painter.end()
         return line, ticks, labels, bounds.adjusted(-2.0, -2.0, 2.0, 2.0)
+
+    def _set_up_as_drawn(self, painter: QPainter) -> None:
+        """The font and render hints AxisItem.drawPicture sets before the axis line and the labels."""
+        if self.style["tickFont"]:
+            painter.setFont(self.style["tickFont"])
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, False)
+        painter.setRenderHint(QPainter.RenderHint.TextAntialiasing, True)
 
     def _paint_parts(self, p, line, ticks, labels, bounds) -> bool:  # type: ignore[no-untyped-def]
         device = p.deviceTransform()
