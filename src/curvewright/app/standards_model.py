@@ -29,9 +29,9 @@ COLUMNS = ("Id", "Level", "Rep.", "Nominal", "Response", "IS response", "Back-ca
            "In fit", "Influence", "Exclusion reason")
 ID, LEVEL, REP, CONC, RESP, IS, BACK, RE, LIMITS, IN_FIT, INFLUENCE, REASON = range(len(COLUMNS))
 RESULT_COLUMNS = (BACK, RE, LIMITS, INFLUENCE)
+"""The columns that show what the engine found for each standard (read-only)."""
 _RESULT_PLACE = {c: j for j, c in enumerate(RESULT_COLUMNS)}
 """A result column's place in the texts kept per standard when a result arrives."""
-"""The columns that show what the engine found for each standard (read-only)."""
 FIELD_COLUMNS = {"id": ID, "level": LEVEL, "replicate": REP, "concentration": CONC, "response": RESP, "is_response": IS}
 """The column of each field a pasted block can fill."""
 FIELD_WORDS = {ID: "id", LEVEL: "level", REP: "replicate", CONC: "nominal concentration", RESP: "response",
