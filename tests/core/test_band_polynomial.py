@@ -331,3 +331,23 @@ def test_ends_across_the_lowest_standard_solved_after_the_blocks_are_those_of_on
         for name in ("estimate", "standard_error", "lower", "upper", "flag_bits"):
             joined = np.concatenate([getattr(q, name) for q in pieces])
             assert np.array_equal(getattr(whole, name), joined, equal_nan=True), name
+
+
+@pytest.mark.parametrize("share", [0.0, 0.003, 0.05, 0.2, 0.9, 1.0])
+def test_the_piece_at_each_start_is_chosen_whole_from_its_piece(share: float) -> None:
+    """Where ẑ lies below the lowest standard the lower piece's coefficients are taken, elsewhere the
+    upper's: the same bits as choosing at every position, however few or many lie below, for pieces
+    of arrays, of numbers, and of arrays shared by both."""
+    rng = np.random.default_rng(int(share * 1000))
+    n = 5000
+    h_break = np.where(rng.random(n) < share, 1.0, -1.0) * rng.uniform(0.1, 2.0, n)
+    shared = rng.standard_normal(n)
+    upper = [rng.standard_normal(n), rng.standard_normal(n), rng.standard_normal(n), shared, 0.25]
+    lower = [rng.standard_normal(n), upper[1], -0.5, shared, 0.25]
+    piece = bp.ShiftedBand(np.zeros(n), upper, lower, h_break)
+    chosen = piece.at_zero()
+    below = h_break > 0
+    for c, lo, up in zip(chosen, lower, upper):
+        expected = np.where(below, lo, up) if (np.ndim(lo) or np.ndim(up)) and lo is not up else up
+        assert np.array_equal(c, expected) and np.shape(c) == np.shape(expected)
+    assert chosen[3] is shared and chosen[1] is upper[1]  # what both pieces share is not copied

@@ -151,17 +151,34 @@ class ShiftedBand:
             None if self.h_break is None else self.h_break[index],
         )
 
-    def at_zero(self, below: np.ndarray | None = None) -> list:
-        """Coefficients of the piece that holds h = 0 (z = z0); ``below``: h_break > 0, when the
-        caller has it."""
+    def at_zero(self, below: np.ndarray | None = None, below_index: np.ndarray | None = None) -> list:
+        """Coefficients of the piece that holds h = 0 (z = z0); ``below``: h_break > 0, and
+        ``below_index``, its positions, when the caller has them."""
         if self.lower is None or self.h_break is None:
             return self.upper
         below = self.h_break > 0 if below is None else below
-        if not below.any():
-            return self.upper  # every ẑ at or above the lowest standard
-        # the pieces share their h³ and h⁴ terms (the same arrays): those need no choice
-        return [np.where(below, lo, up) if (np.ndim(up) or np.ndim(lo)) and lo is not up else up
-                for lo, up in zip(self.lower, self.upper)]
+        if below_index is None:
+            if not below.any():
+                return self.upper  # every ẑ at or above the lowest standard
+            below_index = np.flatnonzero(below)
+        if not below_index.size:
+            return self.upper
+        # the pieces share their h³ and h⁴ terms (the same arrays): those need no choice. Each value
+        # is taken whole from its piece, so the same bits as np.where(below, lower, upper); where few
+        # ẑ lie below the lowest standard (the usual case) they are written over a copy of the upper
+        # piece, which is quicker than choosing at every position
+        few = 8 * below_index.size < below.size
+        out = []
+        for lo, up in zip(self.lower, self.upper):
+            if not (np.ndim(up) or np.ndim(lo)) or lo is up:
+                out.append(up)
+            elif not few:
+                out.append(np.where(below, lo, up))
+            else:
+                chosen = np.array(up, dtype=np.float64) if np.ndim(up) else np.full(below.size, up, dtype=np.float64)
+                chosen[below_index] = lo[below_index] if np.ndim(lo) else lo
+                out.append(chosen)
+        return out
 
     def excess(self, h: FloatArray) -> FloatArray:
         value = _quartic(self.upper, h)
@@ -394,7 +411,8 @@ class _Start:
 
     def __init__(self, shifted: ShiftedBand) -> None:
         self.below_break = None if shifted.h_break is None else shifted.h_break > 0
-        c = shifted.at_zero(self.below_break)
+        self._below_index = None
+        c = shifted.at_zero(self.below_break, None if self.below_break is None else self.below_index())
         self.c = c
         c0, c1, c2 = c[0], c[1], c[2]
         self.inside = c0 < 0
@@ -414,7 +432,6 @@ class _Start:
                 self.convex_margin = self.twice_c2 * (1.0 - 1e-6)
                 self.abs_six_c3 = np.abs(self.six_c3)
         self._tolerance = None
-        self._below_index = None
 
     def below_index(self) -> np.ndarray:
         """The positions of the unknowns whose ẑ lies below the lowest standard (h_break > 0)."""
