@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import gc
 import math
+import os
 import statistics
 import time
 
@@ -191,8 +192,14 @@ def fieller_floor(summary: tuple[float, ...], y0: np.ndarray) -> tuple[np.ndarra
     return x0, centre - half, centre + half
 
 
+def load_average() -> str:
+    """The system's load average over 1, 5 and 15 minutes, as `uptime` shows it."""
+    return ", ".join(f"{value:.2f}" for value in os.getloadavg()) if hasattr(os, "getloadavg") else "not known"
+
+
 def main() -> None:
     smoke = smoke_requested()
+    print(f"load average at the start: {load_average()}")
     n_analytes, n_unknowns = (2, 40) if smoke else (50, 2000)
     rounds = 2 if smoke else 3
     rows = []
@@ -254,6 +261,7 @@ def main() -> None:
           f"({'met' if floor_ratio <= 3 else 'NOT met'}, target ≤ 3×); in CPU time {line_cpu * 1e3:.1f} ms against "
           f"{cpu[floor] * 1e3:.1f} ms, {line_cpu / cpu[floor]:.2f}×; ends agree to {floor_difference:.1e}")
     print(f"the engine's interval ends agree with the peer's to {worst:.1e} (relative)")
+    print(f"load average at the end: {load_average()}")
     assert worst < 1e-9, worst
     assert floor_difference < 1e-9, floor_difference
 

@@ -34,6 +34,8 @@ def test_benchmark_runs_in_smoke_mode(script: Path) -> None:
             assert part in result.stdout, part
     if script.stem == "bench_cli_start":  # CPU beside wall time, and the floor under the command's one BLAS thread
         assert "CPU ratio" in result.stdout and "one BLAS thread" in result.stdout
+    if script.stem == "bench_batch_quantitation":  # the machine's load beside the ratios
+        assert "load average at the start" in result.stdout and "load average at the end" in result.stdout
     if script.stem == "bench_many_runs":  # each side's CPU time beside its wall time
         assert "CPU time (median)" in result.stdout
     if script.stem == "bench_large_run":  # the command's CPU time, and its memory above the command on one unknown

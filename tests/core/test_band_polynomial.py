@@ -302,3 +302,52 @@ def test_ends_across_the_lowest_standard_and_ends_searched_in_full(model: str, w
         for i in np.flatnonzero(~close):
             target = b[i] if np.isfinite(b[i]) else a[i] + np.sign(a[i] - ours.estimate[i]) * 200 * span
             assert_first_exit(cal, many[some][i], m[some][i], ours.estimate[i], a[i], target)
+
+
+@pytest.mark.parametrize(("model", "weighting"), [("linear", "1/x"), ("linear", "1/x^2"), ("quadratic", "1/x^2"),
+                                                  ("quadratic", "1/x")])
+def test_ends_across_the_lowest_standard_solved_after_the_blocks_are_those_of_one_block(
+        model: str, weighting: str, monkeypatch) -> None:
+    """A call of several blocks leaves the direct ends that cross the lowest standard and solves them
+    together after the blocks (``crossing_end``); one block solves them itself. Both must give the
+    same bits: the whole call against its pieces quantified one block at a time, at one, three and
+    mixed replicate counts."""
+    rng = np.random.default_rng(23)
+    x = np.repeat([0.5, 1.0, 2.0, 5.0, 10.0, 20.0, 40.0], 3)
+    y = (0.05 + 1.2 * x - (0.004 * x * x if model == "quadratic" else 0.0)) * (1 + 0.04 * rng.standard_normal(x.size))
+    cal = cw.fit(x, y, model, weighting)
+    low = float(cal.predict(0.5))
+    many = rng.uniform(low - 1.0, float(cal.predict(6.0)), 2 * inverse.CHUNK + 999)
+    solved = []
+    crossing = inverse.crossing_end
+    monkeypatch.setattr(inverse, "crossing_end", lambda *args: (solved.append(args[1].size), crossing(*args))[1])
+    for m in (1, 3, rng.integers(1, 5, many.size)):
+        solved.clear()
+        whole = cal.quantify(many, m)
+        assert len(solved) == 2 and sum(solved) > 500  # each side's crossing ends in one call
+        pieces = [cal.quantify(many[i : i + inverse.CHUNK], m if np.ndim(m) == 0 else m[i : i + inverse.CHUNK])
+                  for i in range(0, many.size, inverse.CHUNK)]
+        assert len(solved) == 2  # one block solves its own
+        for name in ("estimate", "standard_error", "lower", "upper", "flag_bits"):
+            joined = np.concatenate([getattr(q, name) for q in pieces])
+            assert np.array_equal(getattr(whole, name), joined, equal_nan=True), name
+
+
+@pytest.mark.parametrize("share", [0.0, 0.003, 0.05, 0.2, 0.9, 1.0])
+def test_the_piece_at_each_start_is_chosen_whole_from_its_piece(share: float) -> None:
+    """Where ẑ lies below the lowest standard the lower piece's coefficients are taken, elsewhere the
+    upper's: the same bits as choosing at every position, however few or many lie below, for pieces
+    of arrays, of numbers, and of arrays shared by both."""
+    rng = np.random.default_rng(int(share * 1000))
+    n = 5000
+    h_break = np.where(rng.random(n) < share, 1.0, -1.0) * rng.uniform(0.1, 2.0, n)
+    shared = rng.standard_normal(n)
+    upper = [rng.standard_normal(n), rng.standard_normal(n), rng.standard_normal(n), shared, 0.25]
+    lower = [rng.standard_normal(n), upper[1], -0.5, shared, 0.25]
+    piece = bp.ShiftedBand(np.zeros(n), upper, lower, h_break)
+    chosen = piece.at_zero()
+    below = h_break > 0
+    for c, lo, up in zip(chosen, lower, upper):
+        expected = np.where(below, lo, up) if (np.ndim(lo) or np.ndim(up)) and lo is not up else up
+        assert np.array_equal(c, expected) and np.shape(c) == np.shape(expected)
+    assert chosen[3] is shared and chosen[1] is upper[1]  # what both pieces share is not copied

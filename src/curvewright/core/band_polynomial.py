@@ -151,17 +151,34 @@ class ShiftedBand:
             None if self.h_break is None else self.h_break[index],
         )
 
-    def at_zero(self, below: np.ndarray | None = None) -> list:
-        """Coefficients of the piece that holds h = 0 (z = z0); ``below``: h_break > 0, when the
-        caller has it."""
+    def at_zero(self, below: np.ndarray | None = None, below_index: np.ndarray | None = None) -> list:
+        """Coefficients of the piece that holds h = 0 (z = z0); ``below``: h_break > 0, and
+        ``below_index``, its positions, when the caller has them."""
         if self.lower is None or self.h_break is None:
             return self.upper
         below = self.h_break > 0 if below is None else below
-        if not below.any():
-            return self.upper  # every ẑ at or above the lowest standard
-        # the pieces share their h³ and h⁴ terms (the same arrays): those need no choice
-        return [np.where(below, lo, up) if (np.ndim(up) or np.ndim(lo)) and lo is not up else up
-                for lo, up in zip(self.lower, self.upper)]
+        if below_index is None:
+            if not below.any():
+                return self.upper  # every ẑ at or above the lowest standard
+            below_index = np.flatnonzero(below)
+        if not below_index.size:
+            return self.upper
+        # the pieces share their h³ and h⁴ terms (the same arrays): those need no choice. Each value
+        # is taken whole from its piece, so the same bits as np.where(below, lower, upper); where few
+        # ẑ lie below the lowest standard (the usual case) they are written over a copy of the upper
+        # piece, which is quicker than choosing at every position
+        few = 8 * below_index.size < below.size
+        out = []
+        for lo, up in zip(self.lower, self.upper):
+            if not (np.ndim(up) or np.ndim(lo)) or lo is up:
+                out.append(up)
+            elif not few:
+                out.append(np.where(below, lo, up))
+            else:
+                chosen = np.array(up, dtype=np.float64) if np.ndim(up) else np.full(below.size, up, dtype=np.float64)
+                chosen[below_index] = lo[below_index] if np.ndim(lo) else lo
+                out.append(chosen)
+        return out
 
     def excess(self, h: FloatArray) -> FloatArray:
         value = _quartic(self.upper, h)
@@ -233,7 +250,8 @@ def polynomial_band_edges(
     guess: FloatArray,
     curve_variance: FloatArray | None = None,
     defer: bool = False,
-) -> tuple[FloatArray, FloatArray, np.ndarray, tuple[np.ndarray, np.ndarray] | None]:
+    defer_crossing: bool = False,
+) -> tuple[FloatArray, FloatArray, np.ndarray, tuple | None]:
     """Lower and upper ends of the calibration interval around ``start`` (ẑ), in z, and which
     unknowns' intervals reach past the vertex. The same search as the numeric inversion
     (:func:`curvewright.core.inverse._band_edges`), solved on the polynomial. ``guess`` is a distance
@@ -243,7 +261,11 @@ def polynomial_band_edges(
     With ``defer``, the ends that need the full search are not searched: each such end is left at
     ``start`` and not counted past the vertex, and the last item returned holds the positions of the
     unknowns whose lower and upper ends were left, for :func:`searched_end` (so that the few of a
-    large call are searched together, not block by block). Otherwise that item is None.
+    large call are searched together, not block by block). Otherwise that item is None. With
+    ``defer_crossing`` as well, the direct ends that lie across the lowest standard are left the same
+    way, for :func:`crossing_end` (so that the few of each block of a large call are solved together:
+    on tiny arrays each call's fixed cost is most of the work); the last item then holds, for each
+    side, the positions of the ends left for the full search and of those left across the standard.
     """
     shifted, h_vertex = _about_start(band, y0, m, start, vertex_z, curve_variance)
     first = _Start(shifted)
@@ -267,20 +289,27 @@ def polynomial_band_edges(
         else:
             reach = full_reach
         h_end, certain, crossed = _convex_end(shifted, first, direction, reach, guess, start)
+        over = None
         if crossed is not None and crossed.any():
             # the interval crosses the lowest standard: its end is sought on the other piece
             over = np.flatnonzero(crossed)
-            h_end[over], certain[over] = _end_in_the_other_piece(shifted, over, direction, reach, guess, start)
+            if defer and defer_crossing:
+                certain[over] = True  # left below, as the ends for the full search are
+            else:
+                h_end[over], certain[over] = _end_in_the_other_piece(shifted, over, direction, reach, guess, start)
+                over = None
         rest = np.flatnonzero(~certain)
         if h_vertex is not None and facing is not False:
             # an end past the vertex leaves the band holding ȳ₀ all the way to the vertex
             beyond_vertex = h_end * direction > h_vertex * direction
         if defer:
-            left.append(rest)
-            if rest.size:
-                h_end[rest] = 0.0
-                if h_vertex is not None and facing is not False:
-                    beyond_vertex[rest] = False
+            across = _NONE_LEFT if over is None else over
+            left.append((rest, across) if defer_crossing else rest)
+            for index in (rest, across):
+                if index.size:
+                    h_end[index] = 0.0
+                    if h_vertex is not None and facing is not False:
+                        beyond_vertex[index] = False
         z_end = start + h_end
         if rest.size and not defer:
             z_end[rest], past = searched_end(
@@ -294,6 +323,39 @@ def polynomial_band_edges(
         elif facing:
             past_vertex |= beyond_vertex
     return ends[0], ends[1], past_vertex, (left[0], left[1]) if defer else None
+
+
+_NONE_LEFT = np.zeros(0, dtype=np.intp)
+_NONE_LEFT.flags.writeable = False
+
+
+def crossing_end(
+    band: BandPolynomial,
+    y0: FloatArray,
+    m: np.ndarray,
+    start: FloatArray,
+    full_reach: float,
+    vertex_z: float | None,
+    guess: FloatArray,
+    direction: float,
+) -> tuple[FloatArray, np.ndarray, np.ndarray]:
+    """One end (``direction`` −1: lower, +1: upper), in z, of unknowns whose direct end on the piece
+    that holds ẑ lay across the lowest standard (left by :func:`polynomial_band_edges` with
+    ``defer_crossing``), solved on the other piece (:func:`_end_in_the_other_piece`); where that is
+    certain, and whether the end lies past the vertex on the side that faces it. The operations of
+    :func:`polynomial_band_edges` on the same numbers, each unknown on its own, so the same bits
+    whichever unknowns are solved together; the ends not certain go to :func:`searched_end`."""
+    shifted, h_vertex = _about_start(band, y0, m, start, vertex_z)
+    if h_vertex is not None:
+        towards, reach = _reach_past_vertex(h_vertex, direction, full_reach)
+    else:
+        reach = full_reach
+    h_end, certain = _end_in_the_other_piece(shifted, np.arange(y0.size), direction, reach, guess, start)
+    if h_vertex is not None:
+        past = towards & (h_end * direction > h_vertex * direction)
+    else:
+        past = np.zeros(y0.size, dtype=bool)
+    return start + h_end, certain, past
 
 
 def searched_end(
@@ -349,7 +411,8 @@ class _Start:
 
     def __init__(self, shifted: ShiftedBand) -> None:
         self.below_break = None if shifted.h_break is None else shifted.h_break > 0
-        c = shifted.at_zero(self.below_break)
+        self._below_index = None
+        c = shifted.at_zero(self.below_break, None if self.below_break is None else self.below_index())
         self.c = c
         c0, c1, c2 = c[0], c[1], c[2]
         self.inside = c0 < 0
@@ -369,7 +432,6 @@ class _Start:
                 self.convex_margin = self.twice_c2 * (1.0 - 1e-6)
                 self.abs_six_c3 = np.abs(self.six_c3)
         self._tolerance = None
-        self._below_index = None
 
     def below_index(self) -> np.ndarray:
         """The positions of the unknowns whose ẑ lies below the lowest standard (h_break > 0)."""

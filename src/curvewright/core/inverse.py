@@ -44,7 +44,9 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from ._arrays import FloatArray, as_confidence_level, as_finite_vector, frozen
-from .band_polynomial import BandPolynomial, band_polynomial, horner, polynomial_band_edges, searched_end
+from .band_polynomial import (
+    BandPolynomial, band_polynomial, crossing_end, horner, polynomial_band_edges, searched_end,
+)
 from .distributions import t_quantile
 from .errors import LimitsError, QuantitationInputError
 from .limits import DetectionLimits, detection_limits
@@ -242,7 +244,7 @@ def quantify(
             block = slice(first, first + CHUNK)
             (estimate[block], standard_error[block], lower[block], upper[block], bits[block],
              bad[block], block_left) = _quantify_block(cal, y0[block], m[block], probability, t, interval, limits,
-                                                       band)
+                                                       band, crossing_later=True)
             if block_left is not None:
                 left.append((first, block_left))
     if left:
@@ -275,9 +277,11 @@ def _quantify_block(
     interval: str,
     limits: DetectionLimits | None,
     band: BandPolynomial | None,
+    crossing_later: bool = False,
 ) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray, np.ndarray, np.ndarray, tuple | None]:
     """Estimate, standard error, interval ends, flag bits and the unrepresentable mask of a block of
-    unknowns, and the ends left for the full search of the polynomial band (see :func:`_search_left`)."""
+    unknowns, and the ends left for the full search of the polynomial band (see :func:`_search_left`);
+    with ``crossing_later`` (one block of many), also the direct ends across the lowest standard."""
     range_low, range_high = cal.calibrated_range
     centre, scale = cal.basis.centre, cal.basis.scale
     z_range = ((range_low - centre) / scale, (range_high - centre) / scale)  # Basis.z's operations, on floats
@@ -302,7 +306,8 @@ def _quantify_block(
             lower, upper = x_hat - t_hat * se, x_hat + t_hat * se
         else:
             lower, upper, past_vertex, left = _band_interval(
-                cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale, band, t, new_var, curve_var
+                cal, y0, m, probability, z_hat, no_solution, t * se / cal.basis.scale, band, t, new_var, curve_var,
+                crossing_later,
             )
     unsolved = bool(no_solution.any())
     finite_se = np.isfinite(se)
@@ -415,15 +420,32 @@ def _search_left(
     cal: "FittedCurve", band: BandPolynomial, y0: FloatArray, m: np.ndarray, left: list,
     lower: FloatArray, upper: FloatArray, bits: np.ndarray, bad: np.ndarray,
 ) -> None:
-    """The ends the blocks left for the full search of the polynomial band, searched together and
-    written in place: each end in x, its "unbounded" and "turning point" flags, and whether it can be
-    represented. The blocks counted such an end as bounded, finite and short of the vertex, so these
-    flags are only ever added here. Each end depends on its own unknown alone (see
-    :func:`.band_polynomial.searched_end`), so its bits are those a search block by block would give."""
+    """The ends the blocks left, solved together and written in place: each end in x, its
+    "unbounded" and "turning point" flags, and whether it can be represented. First the direct ends
+    across the lowest standard (:func:`.band_polynomial.crossing_end`), then the full search for the
+    ends left for it and those of the first that are not certain. The blocks counted such an end as
+    bounded, finite and short of the vertex, so these flags are only ever added here. Each end
+    depends on its own unknown alone (see :func:`.band_polynomial.searched_end`), so its bits are
+    those a search block by block would give."""
     vertex_z = cal.vertex_z if cal.model is Model.QUADRATIC else None
     reach = _full_reach(cal)
     for side, (direction, ends) in enumerate(((-1.0, lower), (1.0, upper))):
-        parts = [(first + part[0], part[1], part[2]) for first, block_left in left if (part := block_left[side])]
+        parts = [(first + part[0], part[1], part[2]) for first, block_left in left if (part := block_left[side][0])]
+        crossing = [(first + part[0], part[1], part[2]) for first, block_left in left
+                    if (part := block_left[side][1])]
+        if crossing:
+            index, start, guess = (np.concatenate(column) for column in zip(*crossing))
+            for first in range(0, index.size, CHUNK):
+                at = slice(first, first + CHUNK)
+                i = index[at]
+                z_end, certain, past = crossing_end(band, y0[i], m[i], start[at], reach, vertex_z, guess[at],
+                                                    direction)
+                x_end = cal.basis.centre + cal.basis.scale * z_end
+                ends[i[certain]] = x_end[certain]
+                bits[i] |= np.where(past & certain, int(QuantFlag.TURNING_POINT), 0)
+                if not certain.all():
+                    unsure = ~certain
+                    parts.append((i[unsure], start[at][unsure], guess[at][unsure]))
         if not parts:
             continue
         index, start, guess = (np.concatenate(column) for column in zip(*parts))
@@ -608,11 +630,13 @@ def _new_response_variance(cal: "FittedCurve", x: FloatArray, y0: FloatArray, m:
 def _band_interval(
     cal: "FittedCurve", y0: FloatArray, m: np.ndarray, probability: float, z_hat: FloatArray,
     no_solution: np.ndarray, guess: FloatArray, band: BandPolynomial | None = None, t: float | None = None,
-    new_var: FloatArray | None = None, curve_var: FloatArray | None = None,
+    new_var: FloatArray | None = None, curve_var: FloatArray | None = None, crossing_later: bool = False,
 ) -> tuple[FloatArray, FloatArray, np.ndarray, tuple | None]:
     """Both ends of the calibration interval, in x, which unknowns' intervals reach past the vertex,
-    and, for the polynomial band, the ends left for the full search: for each side None or the
-    positions, ẑ and guesses of its unknowns (see :func:`_search_left`; the ends left stand at ẑ).
+    and, for the polynomial band, the ends left for later: for each side a pair, the ends left for
+    the full search and (with ``crossing_later``) the direct ends across the lowest standard, each
+    None or the positions, ẑ and guesses of its unknowns (see :func:`_search_left`; the ends left
+    stand at ẑ).
 
     Fieller's closed form for a straight line whose weights do not depend on x; the polynomial band
     (:mod:`.band_polynomial`) wherever ``band`` is given; otherwise the numeric inversion. ``t`` is
@@ -632,14 +656,17 @@ def _band_interval(
         guess = np.where(np.isfinite(guess) & (guess > 0), guess, 1e-3)
         z_lo, z_hi, past_vertex, sides = polynomial_band_edges(
             band, y0, m, start, _full_reach(cal), cal.vertex_z if cal.model is Model.QUADRATIC else None,
-            guess, curve_var if solved else None, defer=True,
+            guess, curve_var if solved else None, defer=True, defer_crossing=crossing_later,
         )
         past_vertex &= ~no_solution
         assert sides is not None
         # an unknown without a solution has no interval to search for
-        kept = [index if solved else index[~no_solution[index]] for index in sides]
-        if any(index.size for index in kept):
-            left = tuple((index, start[index], guess[index]) if index.size else None for index in kept)
+        pairs = [side if crossing_later else (side, None) for side in sides]
+        kept = [[None if index is None else index if solved else index[~no_solution[index]] for index in pair]
+                for pair in pairs]
+        if any(index is not None and index.size for pair in kept for index in pair):
+            left = tuple(tuple((index, start[index], guess[index]) if index is not None and index.size else None
+                               for index in pair) for pair in kept)
     else:
         z_lo, z_hi, past_vertex = _band_edges(cal, y0, m, probability, z_hat, no_solution, guess)
     to_x = lambda z: cal.basis.centre + cal.basis.scale * z  # noqa: E731
