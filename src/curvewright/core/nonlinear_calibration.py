@@ -62,7 +62,7 @@ from .least_squares import ROUNDOFF, without_roundoff
 from .levels import Levels
 from .limits import DetectionLimits
 from .models import Basis, Model
-from .nonlinear import NonlinearFit, fit_nonlinear
+from .nonlinear import FitOutcome, NonlinearFit, fit_nonlinear, fit_outcome
 from .regression_test import RegressionTest
 from .variance_function import CYCLES, MeanFit
 from .weighting import Weighting, WeightModel
@@ -447,10 +447,11 @@ def _best_fit(
             starts = [np.append(start, 1.0)] + starts
         except ConvergenceError:
             pass
-    best: NonlinearFit | None = None
+    best: FitOutcome | None = None
     failures: list[str] = []
     for start in starts:
-        result = fit_nonlinear(family.function, family.jacobian, x, y, start, w, problem=family.weighted_problem)
+        # each start's outcome; the record is made of the one kept only
+        result = fit_outcome(family.function, family.jacobian, x, y, start, w, problem=family.weighted_problem)
         problem = _implausible(family, result) if result.converged else result.reason
         if problem:
             failures.append(problem)
@@ -463,10 +464,10 @@ def _best_fit(
             f"standards: the {family.model.description} could not be fitted to these standards from any of "
             f"{len(starts)} start values derived from them ({reasons}); check the standards, or choose another model."
         )
-    return best
+    return best.record()
 
 
-def _implausible(family: CurveFamily, result: NonlinearFit) -> str | None:
+def _implausible(family: CurveFamily, result: NonlinearFit | FitOutcome) -> str | None:
     """Why a converged logistic fit is not a calibration curve (None when it is)."""
     if family.model not in LOGISTIC_MODELS:
         return None
