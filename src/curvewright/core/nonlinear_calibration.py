@@ -296,7 +296,7 @@ def _curve_calibration(core: _CurveCore, influence: Influence, lack: LackOfFit) 
         z_covariance=frozen(covariance.copy()),
         coefficients=frozen(coefficients),
         covariance=frozen(covariance),
-        standard_errors=frozen(np.sqrt(np.maximum(np.diag(covariance), 0.0))),
+        standard_errors=frozen(np.sqrt(np.maximum(covariance.diagonal(), 0.0))),
         residual_sd=residual_sd,
         df_residual=df,
         r_squared=float(r_squared),
@@ -483,7 +483,8 @@ def _implausible(family: CurveFamily, result: NonlinearFit | FitOutcome) -> str 
 
 def _regression_test(fitted: FloatArray, y: FloatArray, sst: float, sse: float, p: int, df: int) -> RegressionTest:
     dfs = (p - 1, df)
-    if float(np.ptp(fitted)) <= ROUNDOFF * float(np.maximum.reduce(np.abs(y))):
+    # the spread of the fitted values, max − min (numpy.ptp's reductions, without its wrapper)
+    if float(np.maximum.reduce(fitted) - np.minimum.reduce(fitted)) <= ROUNDOFF * float(np.maximum.reduce(np.abs(y))):
         return RegressionTest(0.0, dfs, 1.0)
     if sse == 0.0:
         return RegressionTest(float("inf"), dfs, 0.0)
