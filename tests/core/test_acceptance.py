@@ -135,3 +135,33 @@ def test_profiles_define_check_windows_or_say_they_set_none() -> None:
     assert "Common practice" in general.checks.source
     m10 = cw.load_profile("ich-m10-chromatographic")
     assert m10.checks.window("ccv") is None and "sets no windows" in m10.checks.source
+
+
+def test_a_screen_s_candidates_judged_together_get_the_verdicts_judged_one_by_one() -> None:
+    # compare() judges its candidates together (errors stacked, counts taken for all at once): each
+    # verdict must be the one evaluate() gives that fit alone, word for word and bit for bit, over
+    # invented designs whose ends fail or pass and profiles with limits and fractions of their own.
+    rng = np.random.default_rng(31)
+    base = cw.load_profile("ich-m10-chromatographic")
+    profiles = [cw.load_profile("general"), base, base.with_limits(tolerance_percent=4.0),
+                base.with_limits(lowest_level_tolerance_percent=2.0, highest_level_tolerance_percent=3.0)]
+    outcomes, notes = set(), 0
+    for design in range(24):
+        levels = np.array([0.0, 1, 2, 5, 10, 20, 50, 100, 200])[(design % 3 == 0):]
+        x = np.repeat(levels, 1 + design % 3)
+        y = (0.05 + 0.8 * x) * (1 + (0.01 + 0.02 * (design % 4)) * rng.standard_normal(x.size))
+        y[0] += 0.3 * (design % 2)  # the lowest standard off the curve in half of them
+        screen = cw.compare(x, y, weightings=("none", "1/x", "1/x^2", "1/y", "1/y^2"))
+        cals = [c.calibration for c in screen.candidates]
+        for profile in profiles:
+            together = profile.evaluate_all(cals)
+            assert len(together) == len(cals)
+            for cal, verdict in zip(cals, together, strict=True):
+                alone = profile.evaluate(cal)
+                assert (verdict.profile, verdict.passed, verdict.reasons) == (alone.profile, alone.passed, alone.reasons)
+                for field in ("passing", "judged", "tolerance_percent", "relative_error"):
+                    a, b = getattr(verdict, field), getattr(alone, field)
+                    assert a.dtype == b.dtype and a.tobytes() == b.tobytes() and not a.flags.writeable, field
+                outcomes.add(verdict.passed)
+                notes += sum(r.startswith("note:") for r in verdict.reasons)
+    assert outcomes == {True, False} and notes > 0  # verdicts both ways, and failing ends among them

@@ -127,3 +127,47 @@ def test_the_polished_minimum_is_the_exact_one(case: int, weighting: str) -> Non
     b = mpmath.findroot(slope, mpmath.mpf(float(cal.coefficients[1])), tol=mpmath.mpf(10) ** -40)
     exact = np.array([float(best_a(b)), float(b)])
     np.testing.assert_allclose(cal.coefficients, exact, rtol=1e-12, atol=0)
+
+
+def test_a_jacobian_that_is_not_finite_at_the_minimum_is_still_refused() -> None:
+    # The record takes the refinement's last Jacobian rather than working it out once more. Where the
+    # curve's derivatives are not finite there (a blank: ∂(a·xᵇ)/∂b = a·xᵇ·ln x is 0·(−∞) at x = 0),
+    # the refinement's copy holds zeros in their place, and the fit must still be refused as not
+    # converged, with the same reason, from the curve's own functions and from its weighted problem.
+    from curvewright.core.curve_families import FAMILIES
+    from curvewright.core.models import Model
+    from curvewright.core.nonlinear import fit_nonlinear
+
+    family = FAMILIES[Model.POWER]
+    x, y = standards()
+    x, y = np.concatenate([[0.0], x]), np.concatenate([[0.0], y])  # the residual at the blank stays finite
+    for problem in (None, family.weighted_problem):
+        result = fit_nonlinear(family.function, family.jacobian, x, y, np.array([A, B]), problem=problem)
+        assert not result.converged
+        assert result.reason == "the curve or its derivatives stopped being finite numbers at the last parameters reached"
+        assert np.isnan(result.covariance).all() and np.isnan(result.weighted_jacobian).all()
+    # the same standards without the blank converge: the refusal is the blank's derivative alone
+    assert fit_nonlinear(family.function, family.jacobian, x[1:], y[1:], np.array([A, B])).converged
+
+
+def test_the_record_takes_the_refinements_jacobian_with_the_same_numbers() -> None:
+    # The fit's record (covariance, leverages, the weighted Jacobian) is made from the Jacobian the
+    # refinement evaluated last: it must equal √w·∂f/∂β worked out afresh at the parameters reached,
+    # to the last bit, under several weightings and starts. Invented standards.
+    from curvewright.core.curve_families import FAMILIES
+    from curvewright.core.models import Model
+    from curvewright.core.nonlinear import fit_nonlinear
+
+    family = FAMILIES[Model.POWER]
+    x, y = standards()
+    rng = np.random.default_rng(12)
+    for _ in range(20):
+        w = rng.uniform(0.05, 4.0, x.size)
+        w *= x.size / w.sum()
+        start = np.array([A * rng.uniform(0.5, 2.0), B * rng.uniform(0.7, 1.3)])
+        for problem in (None, family.weighted_problem):
+            result = fit_nonlinear(family.function, family.jacobian, x, y, start, w, problem=problem)
+            assert result.converged
+            fresh = np.sqrt(w)[:, None] * family.jacobian(x, result.parameters)
+            assert result.weighted_jacobian.tobytes() == fresh.tobytes()
+            np.testing.assert_array_equal(result.fitted, family.function(x, result.parameters))

@@ -26,7 +26,7 @@ import numpy as np
 
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .errors import ProfileError
-from .levels import group_levels
+from .levels import Levels, group_levels
 
 if TYPE_CHECKING:  # pragma: no cover
     from .curve_rules import CurveRules
@@ -116,6 +116,19 @@ class _Layout:
     tol: FloatArray
     limit: FloatArray
     n_judged: int
+
+
+@dataclass(frozen=True, eq=False)
+class _Wording:
+    """The words and exact fractions of a profile's standards rules, made once per judging
+    (see :meth:`AcceptanceProfile._wording`)."""
+
+    numerator: int
+    denominator: int
+    level_numerator: int
+    level_denominator: int
+    limits: str
+    levels_passing: str
 
 
 @dataclass(frozen=True)
@@ -262,23 +275,51 @@ class AcceptanceProfile:
         return self._judge(cal, self._layout(cal), excluded, unusable)
 
     def evaluate_all(self, cals: "list[FittedCurve]") -> list[AcceptanceVerdict]:
-        """:meth:`evaluate` of each of ``cals`` (no standard excluded or unusable): the standards
-        judged and their tolerances worked out once for the fits of the same standards (the same
-        concentration array and levels, as the candidates of a model screen are), the same verdicts."""
-        layouts: dict[tuple[int, int], tuple[object, object, _Layout]] = {}
-        out = []
-        for cal in cals:
+        """:meth:`evaluate` of each of ``cals`` (no standard excluded or unusable), the same verdicts.
+
+        The fits of the same standards (the same concentration array and levels, as the candidates of
+        a model screen are) share their standards' layout, and are judged together: their
+        back-calculated errors stacked, the standards passing and each level's count of them taken for
+        all at once, the words of the rules made once. A profile with rules on the whole curve judges
+        each fit by :meth:`evaluate`'s path, which those rules need."""
+        out: list[AcceptanceVerdict | None] = [None] * len(cals)
+        groups: dict[int, list[tuple[FloatArray, Levels, _Layout, list[int]]]] = {}
+        wording = self._wording()
+        for i, cal in enumerate(cals):
             anchors = getattr(cal, "anchors", None)
             if anchors is not None and anchors.any():
-                out.append(self._judge(cal, self._layout(cal), 0, 0))
+                out[i] = self._judge(cal, self._layout(cal), 0, 0, wording)
                 continue
-            key = (id(cal.concentration), id(cal.levels))
-            kept = layouts.get(key)
-            if kept is None:
-                # the arrays are kept beside their layout so that their ids stay theirs
-                kept = layouts[key] = (cal.concentration, cal.levels, self._layout(cal))
-            out.append(self._judge(cal, kept[2], 0, 0))
-        return out
+            # the same levels object and concentrations equal value for value (each model of a screen
+            # keeps its own copy of the checked standards): the same layout
+            x = cal.concentration
+            kept_here = groups.setdefault(id(cal.levels), [])
+            for kept in kept_here:
+                if kept[0] is x or (kept[0].shape == x.shape and bool((kept[0] == x).all())):
+                    break
+            else:
+                # the levels are kept beside their layout so that their id stays theirs
+                kept = (x, cal.levels, self._layout(cal), [])
+                kept_here.append(kept)
+            kept[3].append(i)
+        for _, levels, layout, members in (kept for kept_here in groups.values() for kept in kept_here):
+            if self.curve is not None or len(members) == 1:
+                for i in members:
+                    out[i] = self._judge(cals[i], layout, 0, 0, wording)
+                continue
+            errors = np.stack([cals[i].relative_error for i in members])
+            with np.errstate(invalid="ignore"):
+                passing = frozen(layout.judged & np.isfinite(errors) & (np.abs(errors) <= layout.limit))
+            n_pass = np.count_nonzero(passing, axis=1).tolist()
+            k, n_levels = len(members), levels.n_levels
+            rows, columns = np.nonzero(passing)
+            per_level = np.bincount(rows * n_levels + levels.index[columns], minlength=k * n_levels)
+            passing_per_level = per_level.reshape(k, n_levels)[:, layout.nonzero_levels].tolist()
+            level_sizes = levels.count[layout.nonzero_levels].tolist()
+            for row, i in enumerate(members):
+                out[i] = self._verdict(cals[i], layout, passing[row], n_pass[row], passing_per_level[row],
+                                       level_sizes, 0, 0, wording)
+        return [verdict for verdict in out if verdict is not None]
 
     def _layout(self, cal: "FittedCurve") -> "_Layout":
         """Which standards are judged, the judged non-zero levels, and each standard's tolerance (%)."""
@@ -301,44 +342,67 @@ class AcceptanceProfile:
         return _Layout(frozen(judged), n_anchors, nonzero_levels, frozen(tol), tol + _BOUNDARY,
                        int(np.count_nonzero(judged)))
 
-    def _judge(self, cal: "FittedCurve", layout: "_Layout", excluded: int, unusable: int) -> AcceptanceVerdict:
+    def _judge(
+        self, cal: "FittedCurve", layout: "_Layout", excluded: int, unusable: int,
+        wording: "_Wording | None" = None,
+    ) -> AcceptanceVerdict:
         """The verdict on ``cal`` from its standards' :meth:`_layout`."""
-        rules = self.standards
         re = cal.relative_error
-        judged, n_anchors, nonzero_levels, tol = layout.judged, layout.n_anchors, layout.nonzero_levels, layout.tol
         levels = cal.levels
-        index = levels.index
+        nonzero_levels = layout.nonzero_levels
         with np.errstate(invalid="ignore"):
-            passing = judged & np.isfinite(re) & (np.abs(re) <= layout.limit)
+            passing = layout.judged & np.isfinite(re) & (np.abs(re) <= layout.limit)
+        passing_per_level = np.bincount(levels.index[passing], minlength=levels.n_levels)[nonzero_levels]
+        return self._verdict(
+            cal, layout, frozen(passing), int(np.count_nonzero(passing)), passing_per_level.tolist(),
+            levels.count[nonzero_levels].tolist(), excluded, unusable,
+            self._wording() if wording is None else wording,
+        )
 
+    def _wording(self) -> "_Wording":
+        """The parts of the verdict's words that depend on the profile's rules alone."""
+        rules = self.standards
+        required = rules.min_fraction_passing
+        needed = Fraction(rules.min_fraction_passing_per_level)
+        return _Wording(
+            required.numerator, required.denominator, needed.numerator, needed.denominator,
+            f" (±{rules.tolerance_percent:g} %, ±{rules.lowest_level_tolerance_percent:g} % at the lowest "
+            f"level, ±{rules.highest_level_tolerance_percent:g} % at the highest); "
+            f"{_percent_text(rules.min_fraction_passing)} required",
+            f" levels pass (a level passes with {_percent_text(rules.min_fraction_passing_per_level)} of its "
+            f"standards within limits); at least {rules.min_levels_passing} required",
+        )
+
+    def _verdict(
+        self, cal: "FittedCurve", layout: "_Layout", passing: np.ndarray, n_pass: int,
+        passing_per_level: list[int], level_sizes: list[int], excluded: int, unusable: int, wording: "_Wording",
+    ) -> AcceptanceVerdict:
+        """The verdict from the standards passing (``passing``, read-only; ``n_pass`` of them), and the
+        count passing (``passing_per_level``) and of standards (``level_sizes``) of each judged level."""
+        rules = self.standards
+        n_anchors, nonzero_levels = layout.n_anchors, layout.nonzero_levels
+        levels = cal.levels
         reasons: list[str] = []
         ok = True
         counted_excluded = excluded if rules.count_excluded_as_failing else 0
         n_judged = layout.n_judged + counted_excluded + unusable
-        n_pass = int(np.count_nonzero(passing))
         if n_judged == 0:
             raise ProfileError("no standard of non-zero concentration to judge.")
         # passing/judged ≥ the fraction required, compared exactly in integers
-        required = rules.min_fraction_passing
-        frac_ok = n_pass * required.denominator >= required.numerator * n_judged
+        frac_ok = n_pass * wording.denominator >= wording.numerator * n_judged
         ok &= frac_ok
         reasons.append(
-            f"{'pass' if frac_ok else 'FAIL'}: {n_pass} of {n_judged} standards within limits "
-            f"(±{rules.tolerance_percent:g} %, ±{rules.lowest_level_tolerance_percent:g} % at the lowest "
-            f"level, ±{rules.highest_level_tolerance_percent:g} % at the highest); "
-            f"{_percent_text(rules.min_fraction_passing)} required"
+            f"{'pass' if frac_ok else 'FAIL'}: {n_pass} of {n_judged} standards within limits{wording.limits}"
             + (f"; {excluded} excluded standard(s) counted as not passing" if counted_excluded else "")
             + (f"; {excluded} excluded standard(s) with recorded reasons not counted" if excluded and not counted_excluded else "")
             + (f"; {unusable} standard(s) without a usable value counted as not passing" if unusable else "")
             + (f"; {n_anchors} anchor point(s) fitted but not judged" if n_anchors else "")
         )
         # a level passes when passing/standards ≥ the fraction required, compared exactly in integers
-        needed = Fraction(rules.min_fraction_passing_per_level)
-        per_level = levels.count[nonzero_levels]
-        passing_per_level = np.bincount(index[passing], minlength=levels.n_levels)[nonzero_levels]
-        level_pass = [a * needed.denominator >= needed.numerator * b
-                      for a, b in zip(passing_per_level.tolist(), per_level.tolist(), strict=True)]
-        n_levels = int(nonzero_levels.size)
+        level_numerator, level_denominator = wording.level_numerator, wording.level_denominator
+        level_pass = [a * level_denominator >= level_numerator * b
+                      for a, b in zip(passing_per_level, level_sizes, strict=True)]
+        n_levels = len(level_sizes)
         n_levels_pass = int(sum(level_pass))
         levels_ok = n_levels >= rules.min_levels
         ok &= levels_ok
@@ -348,11 +412,7 @@ class AcceptanceProfile:
         )
         passing_levels_ok = n_levels_pass >= rules.min_levels_passing
         ok &= passing_levels_ok
-        reasons.append(
-            f"{'pass' if passing_levels_ok else 'FAIL'}: {n_levels_pass} levels pass (a level passes with "
-            f"{_percent_text(rules.min_fraction_passing_per_level)} of its standards within limits); at "
-            f"least {rules.min_levels_passing} required"
-        )
+        reasons.append(f"{'pass' if passing_levels_ok else 'FAIL'}: {n_levels_pass}{wording.levels_passing}")
         if level_pass and not level_pass[0]:
             reasons.append(
                 f"note: the lowest level ({levels.concentration[nonzero_levels[0]]:g}) fails; the "
@@ -371,10 +431,10 @@ class AcceptanceProfile:
             profile=self.name,
             passed=bool(ok),
             reasons=tuple(reasons),
-            passing=frozen(passing),
-            judged=judged,
-            tolerance_percent=tol,
-            relative_error=re,
+            passing=passing,
+            judged=layout.judged,
+            tolerance_percent=layout.tol,
+            relative_error=cal.relative_error,
         )
 
     def evaluate_qc(self, nominal: object, found: object) -> AcceptanceVerdict:

@@ -75,7 +75,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
-from ._arrays import as_finite_vector
+from ._arrays import FloatArray, as_finite_vector
 from .calibration import Calibration, SharedWeights, fit_weightings
 from .fitting import fit
 from .distributions import f_quantile, f_upper_tail
@@ -335,12 +335,13 @@ def compare(
     )
     mandel_by_weighting = {t.weighting: t for t in mandel}
     verdicts = rules.evaluate_all(list(fits.values()))
+    log_weights: dict[int, tuple[FloatArray, float]] = {}  # Σ ln w of each weights array, the models sharing it
     candidates = tuple(
         Candidate(
             calibration=cal,
             verdict=verdict,
             mandel=mandel_by_weighting.get(w) if m.has_intercept else None,
-            aicc=_aicc(cal),
+            aicc=_aicc(cal, log_weights),
             notes=(left_out(m),) if left_out is not None else (),
         )
         for ((m, w), cal), verdict in zip(fits.items(), verdicts, strict=True)
@@ -403,12 +404,20 @@ def _mandel(linear: Calibration, quadratic: Calibration) -> MandelTest:
     )
 
 
-def _aicc(cal: Calibration) -> float | None:
+def _aicc(cal: Calibration, log_weights: dict[int, tuple[FloatArray, float]] | None = None) -> float | None:
+    """AICc of ``cal`` (module docstring). ``log_weights``: Σ ln w kept by weights array, for a caller
+    whose candidates share their weights (the models of a screen under one fixed weighting)."""
     n = cal.n_standards
     k = cal.n_parameters + 1 + (1 if cal.weight_model.variance_fit is not None else 0)
     if n - k - 1 <= 0 or cal.sse <= 0:
         return None
-    log_l = -0.5 * n * np.log(2 * np.pi * cal.sse / n) - 0.5 * n + 0.5 * float(np.sum(np.log(cal.weights)))
+    w = cal.weights
+    kept = None if log_weights is None else log_weights.get(id(w))
+    if kept is None or kept[0] is not w:
+        kept = (w, float(np.sum(np.log(w))))  # the array kept beside its sum, so that its id stays its own
+        if log_weights is not None:
+            log_weights[id(w)] = kept
+    log_l = -0.5 * n * np.log(2 * np.pi * cal.sse / n) - 0.5 * n + 0.5 * kept[1]
     return float(-2 * log_l + 2 * k + 2 * k * (k + 1) / (n - k - 1))
 
 

@@ -37,6 +37,7 @@ needs the analyst to guess them.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Callable
 
@@ -201,19 +202,25 @@ def _power_problem(
 ) -> tuple[Callable[[FloatArray], FloatArray], Callable[[FloatArray], FloatArray]]:
     """:data:`WeightedProblem` of the power curve: √w·(a·x^b − y) and the columns √w·x^b and
     √w·(a·x^b·ln x), with ln x taken once. The same operations as :func:`_power` and
-    :func:`_power_jacobian` weighted by √w, so the same numbers."""
+    :func:`_power_jacobian` weighted by √w, so the same numbers (x^b worked out once where the
+    Jacobian is asked for at the exponent of the last residuals)."""
     x = np.asarray(x, dtype=np.float64)
     with np.errstate(divide="ignore", invalid="ignore"):
         log_x = np.log(x)
     shape = x.shape + (2,)
+    # x^b of the last residuals, by b: the fitter asks for the Jacobian where it has just asked for
+    # the residuals, and x^b is the same number both times
+    kept: list = [math.nan, None]  # type: ignore[type-arg]
 
     def residuals(p: FloatArray) -> FloatArray:
         a, b = p
-        return root_w * (a * x**b - y)
+        xb = x**b
+        kept[0], kept[1] = b, xb
+        return root_w * (a * xb - y)
 
     def jacobian(p: FloatArray) -> FloatArray:
         a, b = p
-        xb = x**b
+        xb = kept[1] if b == kept[0] else x**b
         out = np.empty(shape)
         out[..., 0] = root_w * xb
         out[..., 1] = root_w * (a * xb * log_x)

@@ -189,21 +189,24 @@ def measure_influence_of_fits(
     # each standard's flags, by a code: 0 none, 1 outlier, 2 influential, 3 both, 4 leverage 1, 5 not studentized
     code = np.where(full, 4, 5) if df <= 1 else np.where(full, 4, outlier + 2 * influential.astype(np.int64))
     high = (leverage > HIGH_LEVERAGE) & ~full
-    capped = np.minimum(leverage, 1.0)
-    thresholds = np.asarray(influence_thresholds, dtype=float)
+    named = np.logical_or.reduce(high, axis=1).tolist()  # the fits with a standard to name in the notes
+    # each fit's arrays are the rows of these read-only stacks (its own values, as copies would hold them)
+    capped = frozen(np.minimum(leverage, 1.0))
+    external, cooks, internal = frozen(np.asarray(external)), frozen(np.asarray(cooks)), frozen(np.asarray(internal))
+    thresholds = frozen(np.array(influence_thresholds, dtype=float))
+    pick = _FLAG_SETS.__getitem__
     out = []
-    for j in range(k):
-        notes = _leverage_notes(leverage[j], high[j])
+    for j, codes in enumerate(code.tolist()):
         out.append(Influence(
-            leverage=frozen(capped[j].copy()),
-            studentized_residuals=frozen(external[j].copy()),
-            cooks_distance=frozen(cooks[j].copy()),
-            flags=tuple(_FLAG_SETS[c] for c in code[j].tolist()),
-            internal_studentized=frozen(internal[j].copy()),
+            leverage=capped[j],
+            studentized_residuals=external[j],
+            cooks_distance=cooks[j],
+            flags=tuple(map(pick, codes)),
+            internal_studentized=internal[j],
             studentized_threshold=studentized_threshold,
             cooks_threshold=cooks_threshold,
-            influence_thresholds=frozen(thresholds[j].copy()),
-            notes=notes,
+            influence_thresholds=thresholds[j],
+            notes=_leverage_notes(leverage[j], high[j]) if named[j] else (),
         ))
     return out
 

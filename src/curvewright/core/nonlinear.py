@@ -146,6 +146,25 @@ def fit_nonlinear(
     Never raises for a fit that fails to converge: the result says so in ``converged`` and ``reason``,
     and the caller decides what to tell the analyst.
     """
+    return fit_outcome(function, jacobian, x, y, start, weights, max_evaluations=max_evaluations,
+                       problem=problem).record()
+
+
+def fit_outcome(
+    function: ModelFunction,
+    jacobian: JacobianFunction,
+    x: FloatArray,
+    y: FloatArray,
+    start: FloatArray,
+    weights: FloatArray | None = None,
+    *,
+    max_evaluations: int | None = None,
+    problem: Callable[[FloatArray, FloatArray, FloatArray], tuple[Callable[[FloatArray], FloatArray],
+                                                                    Callable[[FloatArray], FloatArray]]] | None = None,
+) -> "FitOutcome":
+    """:func:`fit_nonlinear` up to its record: the point reached, whether it converged and why, its sum
+    of squares, and :meth:`FitOutcome.record` to make the :class:`NonlinearFit` (a caller trying
+    several starts makes the record of the one it keeps only; the same numbers)."""
     x = np.asarray(x, dtype=np.float64)
     y = np.asarray(y, dtype=np.float64)
     beta0 = np.asarray(start, dtype=np.float64).copy()
@@ -173,8 +192,10 @@ def fit_nonlinear(
     status = _STATUS.get(int(code), -1)
     beta = np.asarray(beta, dtype=np.float64)
     evaluations = int(info["nfev"])
+    # MINPACK's fvec: the weighted residuals at the β it returns, as the residuals function gave them
+    fvec = info.get("fvec")
     return _finish(function, jacobian, x, y, root_w, residuals, weighted_jacobian, beta, status, code, evaluations,
-                   limit)
+                   limit, None if fvec is None else np.asarray(fvec, dtype=np.float64))
 
 
 def _lmder(
@@ -221,12 +242,14 @@ def _finite(
     Called only inside np.errstate(all="ignore") (around MINPACK and the Gauss–Newton steps), so
     that an overflow on the way is not reported as an error: one context for all evaluations. A
     finite sum means every term is finite (an infinity or NaN anywhere makes it infinite or NaN);
-    only when it is not are the values looked at one by one.
+    only when it is not are the values looked at one by one. The Jacobian's function keeps, in its
+    attribute ``finite``, whether the last Jacobian it gave was the curve's own (no value replaced), so
+    that the fit's record may take the refinement's last Jacobian and still refuse one that was not.
     """
 
     def finite_residuals(beta: FloatArray) -> FloatArray:
         r = residuals(beta)
-        if np.isfinite(np.add.reduce(r)):
+        if math.isfinite(np.add.reduce(r)):
             return r
         # A non-finite residual makes MINPACK wander; a huge finite one makes it step back instead.
         finite = np.isfinite(r)
@@ -234,29 +257,42 @@ def _finite(
 
     def finite_jacobian(beta: FloatArray) -> FloatArray:
         j = jacobian(beta)
-        if np.isfinite(np.add.reduce(j, axis=None)):
+        if math.isfinite(np.add.reduce(j, axis=None)):
+            finite_jacobian.finite = True  # type: ignore[attr-defined]
             return j
         finite = np.isfinite(j)
-        return j if finite.all() else np.where(finite, j, 0.0)
+        everywhere = bool(finite.all())
+        finite_jacobian.finite = everywhere  # type: ignore[attr-defined]
+        return j if everywhere else np.where(finite, j, 0.0)
 
+    finite_jacobian.finite = True  # type: ignore[attr-defined]  # whether the last Jacobian given was the curve's own
     return finite_residuals, finite_jacobian
 
 
 def _finish(
     function: ModelFunction, jacobian: JacobianFunction, x: FloatArray, y: FloatArray, root_w: FloatArray,
     residuals: Callable[[FloatArray], FloatArray], weighted_jacobian: Callable[[FloatArray], FloatArray],
-    beta: FloatArray, status: int, code: int, evaluations: int, limit: int,
-) -> NonlinearFit:
-    """The fit's record from the point MINPACK reached, polished by :func:`_refine` when it converged."""
+    beta: FloatArray, status: int, code: int, evaluations: int, limit: int, fvec: FloatArray | None = None,
+) -> "FitOutcome":
+    """The fit's outcome from the point MINPACK reached, polished by :func:`_refine` when it converged.
+    ``fvec``: the weighted residuals at ``beta`` as MINPACK returned them (None: worked out again)."""
     n, p = y.size, beta.size
     svd = None
+    j = None
     if status > 0:
         with np.errstate(all="ignore"):
-            beta, extra, svd = _refine(residuals, weighted_jacobian, beta)
+            beta, extra, svd, j, j_finite = _refine(residuals, weighted_jacobian, beta, fvec)
         evaluations += extra
+        if not j_finite:
+            # the refinement's copy holds zeros in place of values that were not finite: its Jacobian
+            # is not the curve's, and the fit is refused below as the one worked out afresh would be
+            j = np.full((n, p), np.nan)
     with np.errstate(all="ignore"):
         fitted = function(x, beta)
-        j = root_w[:, None] * jacobian(x, beta)
+        if j is None:
+            j = root_w[:, None] * jacobian(x, beta)
+    # the refinement's Jacobian at β is √w·∂f/∂β there, the same numbers as worked out afresh here
+    # (``weighted_jacobian`` is √w times ``jacobian``, or the curve's own form of it giving the same numbers)
     r = root_w * (y - fitted)
     if not (np.all(np.isfinite(fitted)) and np.all(np.isfinite(j)) and np.all(np.isfinite(beta))):
         return _failed(
@@ -268,22 +304,23 @@ def _finish(
             f"no minimum was reached within {limit} evaluations of the curve"
             if status == 0 else f"the fit stopped: MINPACK reported code {int(code)} (improper input)"
         )
-        return _result(beta, j, fitted, r, n, p, evaluations, False, reason)
+        return FitOutcome(beta, j, fitted, r, n, p, evaluations, False, reason)
     # the refinement's SVD was taken of this same Jacobian (weighted_jacobian(β) is j when j is finite)
     svd = svd if svd is not None else _scaled_svd(j)
     s = svd[1]
     if s.size < p or s[-1] <= RANK_TOLERANCE * s[0]:
-        return _result(
+        return FitOutcome(
             beta, j, fitted, r, n, p, evaluations, False,
             "the data cannot separate the parameters at the point reached (the curve's derivatives "
             "with respect to them are linearly dependent over these concentrations)",
         )
-    return _result(beta, j, fitted, r, n, p, evaluations, True, _STOP_WORDS[status], svd)
+    return FitOutcome(beta, j, fitted, r, n, p, evaluations, True, _STOP_WORDS[status], svd)
 
 
 def _refine(
-    residuals: Callable[[FloatArray], FloatArray], jacobian: Callable[[FloatArray], FloatArray], beta: FloatArray
-) -> tuple[FloatArray, int, tuple[FloatArray, FloatArray, FloatArray, FloatArray]]:
+    residuals: Callable[[FloatArray], FloatArray], jacobian: Callable[[FloatArray], FloatArray], beta: FloatArray,
+    r: FloatArray | None = None,
+) -> tuple[FloatArray, int, tuple[FloatArray, FloatArray, FloatArray, FloatArray], FloatArray, bool]:
     """Up to three full Gauss–Newton steps from the converged point, each kept while it brings the
     gradient of S closer to zero, and none after a step whose successor could only move the
     parameters by round-off (:data:`_NEGLIGIBLE_STEP`).
@@ -294,12 +331,19 @@ def _refine(
     Jᵀr vanishes linearly there, so it locates the minimum to about ε times the condition number.
     A Gauss–Newton step, solved through the SVD of the column-scaled Jacobian, is kept while the
     scaled gradient shrinks, which gives the same parameters in any units. Returns the parameters,
-    the evaluations made and the SVD of the column-scaled Jacobian at them (:func:`_scaled_svd`).
+    the evaluations made, the SVD of the column-scaled Jacobian at them (:func:`_scaled_svd`), that
+    Jacobian, and whether it was finite as the curve gave it (``jacobian`` from :func:`_finite`, which
+    puts zeros in place of values that are not; True when ``jacobian`` does not say). ``r``: the
+    residuals at ``beta`` when the caller has them (MINPACK returns them with its point).
     """
-    r = residuals(beta)
+    if r is None:
+        r = residuals(beta)
     j = jacobian(beta)
-    u, s, vt, scale = _scaled_svd(j, quiet=True)
-    gradient = _norm((j / scale).T @ r)
+    j_finite = getattr(jacobian, "finite", True)
+    scale = _column_scale(j)
+    scaled = j / scale
+    u, s, vt = _thin_svd(scaled, quiet=True)
+    gradient = _norm(scaled.T @ r)
     evaluations = 0
     last_step = math.inf
     for _ in range(_REFINE_STEPS):
@@ -308,6 +352,7 @@ def _refine(
         trial = beta - (vt.T @ ((u.T @ r) / s)) / scale
         r_trial = residuals(trial)
         j_trial = jacobian(trial)
+        j_trial_finite = getattr(jacobian, "finite", True)
         evaluations += 1
         scale_t = _column_scale(j_trial)
         scaled_t = j_trial / scale_t
@@ -315,7 +360,7 @@ def _refine(
         if not gradient_trial < gradient:
             break  # the trial is not kept: its SVD is never needed
         step = _relative_step(trial, beta)
-        beta, r, gradient = trial, r_trial, gradient_trial
+        beta, r, gradient, j, j_finite = trial, r_trial, gradient_trial, j_trial, j_trial_finite
         u, s, vt = _thin_svd(scaled_t, quiet=True)
         scale = scale_t
         # Gauss–Newton closes in linearly, each step about the last one's ratio to the one before it
@@ -323,20 +368,24 @@ def _refine(
         if step <= _NEGLIGIBLE_STEP or (last_step < math.inf and step * step <= _NEGLIGIBLE_STEP * last_step):
             break
         last_step = step
-    return beta, evaluations, (u, s, vt, scale)
+    return beta, evaluations, (u, s, vt, scale), j, j_finite
 
 
 def _relative_step(new: FloatArray, old: FloatArray) -> float:
     """The largest change of a parameter relative to its new value, max |Δβᵢ|/|βᵢ| (inf when a
     parameter that changed is zero): the same in any units of the parameters."""
-    change = np.abs(new - old)
-    size = np.abs(new)
-    zero = size == 0.0
-    if zero.any():
-        if np.any(change[zero] > 0.0):
-            return math.inf
-        size = np.where(zero, 1.0, size)
-    return float(np.max(change / size))
+    # a few parameters: worked as Python floats (the same IEEE operations as numpy's on each element)
+    ratios = []
+    for a, b in zip(new.tolist(), old.tolist()):
+        change, size = abs(a - b), abs(a)
+        if size == 0.0:
+            if change > 0.0:
+                return math.inf  # a parameter that left zero (whatever the others did)
+            size = 1.0
+        ratios.append(change / size)
+    if any(ratio != ratio for ratio in ratios):
+        return math.nan  # as numpy's maximum, which a NaN wins
+    return max(ratios)
 
 
 def _norm(v: FloatArray) -> float:
@@ -379,14 +428,37 @@ def _thin_svd(a: FloatArray, quiet: bool = False) -> tuple[FloatArray, FloatArra
     return u, s, vt
 
 
+class FitOutcome:
+    """Where one fit from one start ended, before its record is made: the point reached, the weighted
+    Jacobian, fitted values and residuals there, whether it converged and why, and its sum of squares
+    (:func:`fit_outcome`). :meth:`record` makes the :class:`NonlinearFit`."""
+
+    __slots__ = ("parameters", "jacobian", "fitted", "residuals", "n", "p", "evaluations", "converged", "reason",
+                 "svd", "sse")
+
+    def __init__(
+        self, beta: FloatArray, j: FloatArray, fitted: FloatArray, r: FloatArray, n: int, p: int,
+        evaluations: int, converged: bool, reason: str,
+        svd: tuple[FloatArray, FloatArray, FloatArray, FloatArray] | None = None,
+    ) -> None:
+        self.parameters, self.jacobian, self.fitted, self.residuals = beta, j, fitted, r
+        self.n, self.p, self.evaluations, self.converged, self.reason, self.svd = n, p, evaluations, converged, reason, svd
+        self.sse = float(r @ r)
+
+    def record(self) -> NonlinearFit:
+        """The fit's record (see :func:`_result`)."""
+        return _result(self.parameters, self.jacobian, self.fitted, self.residuals, self.n, self.p, self.evaluations,
+                       self.converged, self.reason, self.svd, self.sse)
+
+
 def _result(
     beta: FloatArray, j: FloatArray, fitted: FloatArray, r: FloatArray, n: int, p: int,
     evaluations: int, converged: bool, reason: str,
-    svd: tuple[FloatArray, FloatArray, FloatArray, FloatArray] | None = None,
+    svd: tuple[FloatArray, FloatArray, FloatArray, FloatArray] | None = None, sse: float | None = None,
 ) -> NonlinearFit:
-    """The fit's record; ``svd`` is :func:`_scaled_svd` of ``j`` when the caller has it already."""
+    """The fit's record; ``svd`` is :func:`_scaled_svd` of ``j`` and ``sse`` is r·r when the caller has them already."""
     df = n - p
-    sse = float(r @ r)
+    sse = float(r @ r) if sse is None else sse
     residual_sd = float(np.sqrt(sse / df)) if df > 0 else float("nan")
     unscaled = np.full((p, p), np.nan)
     u = None
@@ -416,9 +488,9 @@ def _result(
 def _failed(
     function: ModelFunction, jacobian: JacobianFunction, x: FloatArray, y: FloatArray, beta: FloatArray,
     root_w: FloatArray, evaluations: int, reason: str,
-) -> NonlinearFit:
+) -> FitOutcome:
     n, p = y.size, beta.size
     with np.errstate(all="ignore"):
         fitted = np.asarray(function(x, beta), dtype=np.float64) if np.all(np.isfinite(beta)) else np.full(n, np.nan)
     j = np.full((n, p), np.nan)
-    return _result(beta, j, fitted, root_w * (y - fitted), n, p, evaluations, False, reason)
+    return FitOutcome(beta, j, fitted, root_w * (y - fitted), n, p, evaluations, False, reason)

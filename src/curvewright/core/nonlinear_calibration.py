@@ -62,7 +62,7 @@ from .least_squares import ROUNDOFF, without_roundoff
 from .levels import Levels
 from .limits import DetectionLimits
 from .models import Basis, Model
-from .nonlinear import NonlinearFit, fit_nonlinear
+from .nonlinear import FitOutcome, NonlinearFit, fit_nonlinear, fit_outcome
 from .regression_test import RegressionTest
 from .variance_function import CYCLES, MeanFit
 from .weighting import Weighting, WeightModel
@@ -296,7 +296,7 @@ def _curve_calibration(core: _CurveCore, influence: Influence, lack: LackOfFit) 
         z_covariance=frozen(covariance.copy()),
         coefficients=frozen(coefficients),
         covariance=frozen(covariance),
-        standard_errors=frozen(np.sqrt(np.maximum(np.diag(covariance), 0.0))),
+        standard_errors=frozen(np.sqrt(np.maximum(covariance.diagonal(), 0.0))),
         residual_sd=residual_sd,
         df_residual=df,
         r_squared=float(r_squared),
@@ -447,10 +447,11 @@ def _best_fit(
             starts = [np.append(start, 1.0)] + starts
         except ConvergenceError:
             pass
-    best: NonlinearFit | None = None
+    best: FitOutcome | None = None
     failures: list[str] = []
     for start in starts:
-        result = fit_nonlinear(family.function, family.jacobian, x, y, start, w, problem=family.weighted_problem)
+        # each start's outcome; the record is made of the one kept only
+        result = fit_outcome(family.function, family.jacobian, x, y, start, w, problem=family.weighted_problem)
         problem = _implausible(family, result) if result.converged else result.reason
         if problem:
             failures.append(problem)
@@ -463,10 +464,10 @@ def _best_fit(
             f"standards: the {family.model.description} could not be fitted to these standards from any of "
             f"{len(starts)} start values derived from them ({reasons}); check the standards, or choose another model."
         )
-    return best
+    return best.record()
 
 
-def _implausible(family: CurveFamily, result: NonlinearFit) -> str | None:
+def _implausible(family: CurveFamily, result: NonlinearFit | FitOutcome) -> str | None:
     """Why a converged logistic fit is not a calibration curve (None when it is)."""
     if family.model not in LOGISTIC_MODELS:
         return None
@@ -482,7 +483,8 @@ def _implausible(family: CurveFamily, result: NonlinearFit) -> str | None:
 
 def _regression_test(fitted: FloatArray, y: FloatArray, sst: float, sse: float, p: int, df: int) -> RegressionTest:
     dfs = (p - 1, df)
-    if float(np.ptp(fitted)) <= ROUNDOFF * float(np.maximum.reduce(np.abs(y))):
+    # the spread of the fitted values, max − min (numpy.ptp's reductions, without its wrapper)
+    if float(np.maximum.reduce(fitted) - np.minimum.reduce(fitted)) <= ROUNDOFF * float(np.maximum.reduce(np.abs(y))):
         return RegressionTest(0.0, dfs, 1.0)
     if sse == 0.0:
         return RegressionTest(float("inf"), dfs, 0.0)
