@@ -163,3 +163,49 @@ def test_an_axis_whose_range_did_not_change_keeps_its_picture(qtbot, make_window
             assert axis.picture is None, (i, side)  # drawn anew when next painted
     assert any(plots[i].getAxis(side).picture is before[(i, side)] for i in (0, 1) for side in ("bottom",))
     assert any(tuple(plots[i].getAxis("left").range) != ranges[(i, "left")] for i in (0, 1))
+
+
+def test_an_edit_repaints_the_cells_told_changed_and_no_cell_beside_them(qtbot, make_window) -> None:
+    """Qt marks a changed block of cells for repainting one pixel wider and taller than the block, so
+    every cell in the next column and the next row was laid out and painted again too (their texts
+    unchanged). The tables repaint the cells they are told changed and no other cell. What the
+    screen then shows is held to tables painted anew above."""
+    from PySide6.QtCore import QEvent, QObject, QRect
+    from PySide6.QtGui import QRegion
+
+    window = make_window(WEIGHTED)
+    session = window.session
+    session.apply(typed_response(session.run, 1), "Change a response")
+    settle(qtbot, window)
+    qtbot.wait(30)
+    views = (window.standards_view, window.results_view.table)
+    painted = {view: QRegion() for view in views}
+    told: dict[object, list[tuple[int, int, int, int]]] = {view: [] for view in views}
+
+    class Watch(QObject):
+        def eventFilter(self, obj, event):  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+            if event.type() == QEvent.Type.Paint:
+                for view in views:
+                    if obj is view.viewport():
+                        painted[view] = painted[view].united(event.region())
+            return False
+
+    watch = Watch()
+    for view in views:
+        view.viewport().installEventFilter(watch)
+        view.model().dataChanged.connect(
+            lambda a, b, *_roles, view=view: told[view].append((a.row(), b.row(), a.column(), b.column())))
+    session.apply(typed_response(session.run, 2), "Change a response")
+    settle(qtbot, window)
+    qtbot.wait(30)
+    for view in views:
+        name = view.accessibleName()
+        assert told[view] and not painted[view].isEmpty(), name  # some cells changed, and were repainted
+        model = view.model()
+        in_view = QRect(0, 0, view.viewport().width(), view.viewport().height())
+        beside = [(r, c) for r in range(model.rowCount()) for c in range(model.columnCount())
+                  if not view.isColumnHidden(c) and view.visualRect(model.index(r, c)).intersects(in_view)
+                  and not any(r0 <= r <= r1 and c0 <= c <= c1 for r0, r1, c0, c1 in told[view])]
+        assert beside, name  # cells in view that were not told changed
+        repainted = [(r, c) for r, c in beside if painted[view].intersects(view.visualRect(model.index(r, c)))]
+        assert repainted == [], (name, repainted[:5])

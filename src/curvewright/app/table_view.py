@@ -217,6 +217,44 @@ class FittedTableView(QTableView):
         self.fit_when_shown = False
         self.verticalScrollBar().valueChanged.connect(lambda _value: widen_to_rows_in_view(self))
 
+    def dataChanged(self, top_left, bottom_right, roles=()) -> None:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        """Repaint the cells of a changed block, and nothing beside them.
+
+        For a block of more than one cell Qt marks for repainting the block's rectangle one pixel wider
+        and taller, into the next column and the next row: the grid line after the last cell and the
+        first pixel of each cell beyond it. The table then lays out and paints every cell that pixel
+        touches (its texts unchanged), which after an edit doubled the cells painted. Here a block in
+        plain rows and columns (none moved) marks the cells' own rectangle, from the first cell's top
+        left to the last cell's bottom right, grid lines between them included. What Qt does besides
+        is done as Qt does it: the cell being edited, if any in the block, is told on its own (its
+        editor is given the new value), and a view that adjusts its size to its contents, the
+        accessibility tools, a hidden view, other parents and moved sections take Qt's own way."""
+        from PySide6.QtCore import QRect
+        from PySide6.QtGui import QAccessible
+        from PySide6.QtWidgets import QAbstractItemView, QAbstractScrollArea
+
+        horizontal, vertical = self.horizontalHeader(), self.verticalHeader()
+        if (top_left == bottom_right or not top_left.isValid() or not bottom_right.isValid() or not self.isVisible()
+                or top_left.parent() != self.rootIndex() or bottom_right.parent() != self.rootIndex()
+                or horizontal.sectionsMoved() or vertical.sectionsMoved() or QAccessible.isActive()
+                or self.sizeAdjustPolicy() != QAbstractScrollArea.SizeAdjustPolicy.AdjustIgnored):
+            super().dataChanged(top_left, bottom_right, roles)
+            return
+        first_row, last_row = top_left.row(), bottom_right.row()
+        first_column, last_column = top_left.column(), bottom_right.column()
+        editing = self.currentIndex() if self.state() == QAbstractItemView.State.EditingState else None
+        if (editing is not None and editing.isValid() and first_row <= editing.row() <= last_row
+                and first_column <= editing.column() <= last_column):
+            super().dataChanged(editing, editing, roles)
+        grid = 1 if self.showGrid() else 0
+        left = self.columnViewportPosition(first_column)
+        right = self.columnViewportPosition(last_column) + self.columnWidth(last_column) - grid
+        top = self.rowViewportPosition(first_row)
+        bottom = self.rowViewportPosition(last_row) + self.rowHeight(last_row) - grid
+        cells = QRect(left, top, right - left, bottom - top).intersected(self.viewport().rect())
+        if not cells.isEmpty():
+            self.viewport().update(cells)
+
     def showEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().showEvent(event)
         if self.fit_when_shown:
