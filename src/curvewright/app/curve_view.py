@@ -169,7 +169,8 @@ class _GridAxis(pg.AxisItem):
     def __init__(self, orientation: str, layer: _GridLayer) -> None:
         super().__init__(orientation)
         self._layer = layer
-        self._parts: tuple[object, tuple | None] = (None, None)  # type: ignore[type-arg]  # (picture, its parts)
+        self._parts: tuple[object, tuple | None, tuple | None] = (None, None, None)  # type: ignore[type-arg]
+        """(the picture, its three parts or None, the drawing's specs while the picture is still empty)"""
         self._bounds_while_recording: QRectF | None = None
 
     def boundingRect(self) -> QRectF:  # noqa: N802 - Qt override
@@ -180,13 +181,17 @@ class _GridAxis(pg.AxisItem):
     def paint(self, p, opt, widget) -> None:  # type: ignore[no-untyped-def]
         if self.picture is None:
             self._record()
-        picture, parts = self._parts
+        picture, parts, specs = self._parts
         if picture is not self.picture or parts is None or not self._paint_parts(p, *parts):
+            if picture is self.picture and specs is not None:
+                self._draw_whole_picture(specs)
             self.picture.play(p)
 
     def _record(self) -> None:
-        """The picture pyqtgraph records, and beside it the same drawing in three parts (axis line,
-        tick and grid lines, labels) when the lines can be laid over as an image."""
+        """The picture pyqtgraph records, or where the lines can be laid over as an image the same
+        drawing in three parts (axis line, tick and grid lines, labels). The whole picture is then
+        drawn only if it is ever played (on a device the image cannot be laid over): the
+        drawing is worked out once, and drawn once."""
         picture = QPicture()
         painter = QPainter(picture)
         specs = None
@@ -198,12 +203,25 @@ class _GridAxis(pg.AxisItem):
                 specs = self.generateDrawSpecs(painter)  # it sizes the axis to its labels only at its end
             finally:
                 self._bounds_while_recording = None
-            if specs is not None:
+            parts = self._split(*specs) if specs is not None else None
+            if specs is not None and parts is None:
                 self.drawPicture(painter, *specs)
         finally:
             painter.end()
         self.picture = picture
-        self._parts = (picture, self._split(*specs) if specs is not None else None)
+        self._parts = (picture, parts, specs if parts is not None else None)
+
+    def _draw_whole_picture(self, specs: tuple) -> None:  # type: ignore[type-arg]
+        """Draw the picture pyqtgraph records (left empty by :meth:`_record`) from its specs, once, on
+        the same picture object."""
+        painter = QPainter(self.picture)
+        try:
+            if self.style["tickFont"]:
+                painter.setFont(self.style["tickFont"])
+            self.drawPicture(painter, *specs)
+        finally:
+            painter.end()
+        self._parts = (self.picture, self._parts[1], None)
 
     def _split(self, axis_spec, tick_specs, text_specs):  # type: ignore[no-untyped-def]
         vertical = self.orientation in ("left", "right")  # the grid lines run across: horizontal on a left axis
