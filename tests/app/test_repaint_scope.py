@@ -209,3 +209,70 @@ def test_an_edit_repaints_the_cells_told_changed_and_no_cell_beside_them(qtbot, 
         assert beside, name  # cells in view that were not told changed
         repainted = [(r, c) for r, c in beside if painted[view].intersects(view.visualRect(model.index(r, c)))]
         assert repainted == [], (name, repainted[:5])
+
+
+def test_the_reason_dialog_opening_and_closing_repaints_nothing_of_the_plots(qtbot, make_window, monkeypatch) -> None:
+    """The reason dialog of a typed response deactivates the window while it is open, and closing it
+    activates the window again. The plots look the same in an active and an inactive window (they
+    draw with their own colours, never the palette's), so neither repaints them: they were painted
+    whole each time. Shown here with a palette whose inactive colours differ, and the app's own
+    modal dialog, answered from a timer inside its event loop."""
+    from PySide6.QtCore import QEvent, QObject, QTimer
+    from PySide6.QtGui import QColor, QPalette
+    from PySide6.QtWidgets import QApplication, QDialog, QDialogButtonBox
+
+    from curvewright.app.dialogs import ReasonDialog
+
+    monkeypatch.setattr(ReasonDialog, "exec", REAL_EXEC)
+    window = make_window(WEIGHTED)
+    graphics = window.curve_view.graphics
+    palette = window.palette()  # as on a desktop whose inactive windows look different
+    for role in (QPalette.ColorRole.Window, QPalette.ColorRole.Base, QPalette.ColorRole.Text,
+                 QPalette.ColorRole.WindowText, QPalette.ColorRole.Highlight):
+        palette.setColor(QPalette.ColorGroup.Inactive, role, QColor(200, 30, 160))
+    window.setPalette(palette)
+    window.activateWindow()
+    qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
+    qtbot.wait(50)
+    active = graphics.grab().toImage()
+    painted: list[object] = []
+
+    class Watch(QObject):
+        def eventFilter(self, obj, event):  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+            if event.type() == QEvent.Type.Paint and obj is graphics.viewport() and not grabbing:
+                painted.append(event.region().boundingRect())
+            return False
+
+    watch = Watch()
+    graphics.viewport().installEventFilter(watch)
+    seen: dict[str, object] = {}
+    grabbing = False  # a grab paints the view itself
+
+    def answer() -> None:
+        dialog = QApplication.activeModalWidget()
+        if not isinstance(dialog, ReasonDialog):
+            QTimer.singleShot(20, answer)
+            return
+        qtbot.wait(50)  # the window, deactivated, would repaint here
+        seen["active window"] = QApplication.activeWindow()
+        seen["painted while open"] = list(painted)
+        nonlocal grabbing
+        grabbing = True
+        seen["inactive"] = graphics.grab().toImage()
+        grabbing = False
+        dialog.choices.setCurrentIndex(1)
+        dialog.buttons.button(QDialogButtonBox.StandardButton.Ok).click()
+
+    QTimer.singleShot(20, answer)
+    assert window.ask_value_change_reason("The response changes.")
+    window.activateWindow()  # the window is active again once the dialog has closed
+    qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
+    qtbot.wait(50)
+    graphics.viewport().removeEventFilter(watch)
+    assert seen["active window"] is not window  # the window was inactive while the dialog was open
+    assert seen["painted while open"] == [] and painted == []
+    assert seen["inactive"] == active == graphics.grab().toImage()
+
+
+REAL_EXEC = __import__("PySide6.QtWidgets", fromlist=["QDialog"]).QDialog.exec
+"""The dialogs' own exec, taken when the module loads (before each test refuses unanswered dialogs)."""

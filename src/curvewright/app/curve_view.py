@@ -14,9 +14,10 @@ from __future__ import annotations
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QPoint, QPointF, QRectF, QSize, Qt, Signal
-from PySide6.QtGui import QFont, QImage, QPainter, QPen, QPicture, QPixmap, QTransform
-from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QSizePolicy, QToolTip, QVBoxLayout, QWidget
+from PySide6.QtCore import QEvent, QPoint, QPointF, QRectF, QSize, Qt, Signal
+from PySide6.QtGui import QFont, QImage, QPainter, QPalette, QPen, QPicture, QPixmap, QTransform
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QGraphicsItem, QGraphicsObject, QHBoxLayout, QLabel, QSizePolicy,
+                               QToolTip, QVBoxLayout, QWidget)
 
 from . import figures, palette
 
@@ -609,6 +610,49 @@ class _LowerItems(_KeptPlot):
         return self.finish(self.items)
 
 
+def _same_when_inactive(graphics: pg.GraphicsLayoutWidget) -> QGraphicsItem:
+    """Keep the window's activation from repainting the plots, which look the same either way.
+
+    When the window is deactivated or activated again (a dialog opens or closes: the reason asked
+    for a typed response), Qt repaints a widget whose palette has other colours for an inactive
+    window, and the scene tells its top-level item, the layout that holds the plots, which as any Qt
+    graphics widget marks all of itself for repainting whatever its palette. After a typed edit the
+    plots were so painted whole when the dialog opened and again when it closed. They draw with their
+    own pens, brushes, text colours and background, never the palette's (the view has no frame and
+    no scroll bars), so they look the same in an inactive window (``tests/app/test_repaint_scope.py``
+    compares them). The view's palette is given the same colours in both states, and the layout is
+    not told of the activation (the scene itself still follows it). Returns the item that filters
+    the layout's events (it draws nothing and takes no room)."""
+    palette = graphics.palette()
+    for role in QPalette.ColorRole:
+        if role is not QPalette.ColorRole.NColorRoles:
+            palette.setBrush(QPalette.ColorGroup.Inactive, role, palette.brush(QPalette.ColorGroup.Active, role))
+    graphics.setPalette(palette)
+    return _ActivationFilter(graphics.ci)
+
+
+class _ActivationFilter(QGraphicsObject):
+    """Filters the window's activation and deactivation out of what an item is sent (see
+    :func:`_same_when_inactive`)."""
+
+    _ACTIVATION = (QEvent.Type.WindowActivate, QEvent.Type.WindowDeactivate)
+
+    def __init__(self, item: QGraphicsItem) -> None:
+        super().__init__()
+        self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
+        item.scene().addItem(self)
+        item.installSceneEventFilter(self)
+
+    def boundingRect(self) -> QRectF:  # noqa: N802 - Qt override
+        return QRectF()
+
+    def paint(self, painter, option, widget=None) -> None:  # type: ignore[no-untyped-def]
+        return None
+
+    def sceneEventFilter(self, watched, event) -> bool:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        return event.type() in self._ACTIVATION
+
+
 class _Words(QWidget):
     """A word-wrapped, selectable text, laid out exactly as the label it holds would be.
 
@@ -729,6 +773,7 @@ class CurveView(QWidget):
         self._hover_source: tuple[AnalyteResult, bool] | None = None
         self._hover_cache: list[tuple[float, float, str]] | None = None
         self._proxy = pg.SignalProxy(self.graphics.scene().sigMouseMoved, rateLimit=30, slot=self._on_mouse)
+        self._activation_filter = _same_when_inactive(self.graphics)
 
     @property
     def _hover_points(self) -> list[tuple[float, float, str]]:
