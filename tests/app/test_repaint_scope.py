@@ -8,6 +8,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from PySide6.QtCore import Qt
+from PySide6.QtWidgets import QDialog
 
 from curvewright.app.results_model import REPORTED
 from curvewright.app.standards_model import CONC
@@ -15,6 +16,8 @@ from tests.app.conftest import DEMOS, settle
 from tests.app.test_redraw import changed_response
 
 WEIGHTED = next(p for p in DEMOS if "weighted" in p.stem)
+REAL_EXEC = QDialog.exec
+"""The dialogs' own exec, taken when the module loads (before each test refuses unanswered dialogs)."""
 
 
 def watch(window):  # type: ignore[no-untyped-def]
@@ -219,7 +222,7 @@ def test_the_reason_dialog_opening_and_closing_repaints_nothing_of_the_plots(qtb
     modal dialog, answered from a timer inside its event loop."""
     from PySide6.QtCore import QEvent, QObject, QTimer
     from PySide6.QtGui import QColor, QPalette
-    from PySide6.QtWidgets import QApplication, QDialog, QDialogButtonBox
+    from PySide6.QtWidgets import QApplication, QDialogButtonBox
 
     from curvewright.app.dialogs import ReasonDialog
 
@@ -272,7 +275,3 @@ def test_the_reason_dialog_opening_and_closing_repaints_nothing_of_the_plots(qtb
     assert seen["active window"] is not window  # the window was inactive while the dialog was open
     assert seen["painted while open"] == [] and painted == []
     assert seen["inactive"] == active == graphics.grab().toImage()
-
-
-REAL_EXEC = __import__("PySide6.QtWidgets", fromlist=["QDialog"]).QDialog.exec
-"""The dialogs' own exec, taken when the module loads (before each test refuses unanswered dialogs)."""
