@@ -121,6 +121,53 @@ def _same_style_objects(scatter: pg.ScatterPlotItem) -> None:
     scatter._kept_style_objects = (opts["pen"], opts["brush"])
 
 
+def _following_the_range(item: pg.PlotDataItem):  # type: ignore[no-untyped-def]
+    """``item.viewRangeChanged`` for a line that gives it its data again only when that changes what
+    it shows.
+
+    With a range limit pyqtgraph clips a line's values to a band many view heights (a million here)
+    above and below the view, and when the vertical range moves it works the line's shown data out
+    again and gives it to the line, which makes its path anew: after every edit, once the view has
+    autoranged, for the curve, the prediction band and the acceptance limits. Where the limit clips
+    nothing, before and after the move (the values pyqtgraph shows are its values themselves, and
+    they fit within the band around the new range: pyqtgraph's own test), the line would be given the
+    very arrays it holds; only that the range moved is noted, as pyqtgraph notes it. Any other case (a
+    line clipped to the view or downsampled, or clipped by the limit) and an item without these
+    parts (another pyqtgraph release) goes pyqtgraph's way."""
+    general = item.viewRangeChanged
+
+    def follow(vb=None, ranges=None, changed=None) -> None:  # type: ignore[no-untyped-def]
+        if (changed is not None and changed[1] and not item.opts.get("clipToView", True)
+                and not item.opts.get("autoDownsample", True) and _clips_nothing(item)):
+            # a horizontal move asks nothing of a line neither clipped to the view nor downsampled
+            if changed[0]:
+                item.setProperty("xViewRangeWasChanged", True)
+            item.setProperty("yViewRangeWasChanged", True)
+            return
+        general(vb, ranges, changed)
+
+    return follow
+
+
+def _clips_nothing(item: pg.PlotDataItem) -> bool:
+    """The line shows its values as they are, and pyqtgraph's range limit would clip none of them in
+    the view's range now (the conditions of ``PlotDataItem._getDisplayDataset``)."""
+    opts = item.opts
+    shown, mapped = getattr(item, "_datasetDisplay", None), getattr(item, "_datasetMapped", None)
+    limit, hysteresis = opts.get("dynamicRangeLimit"), opts.get("dynamicRangeHyst")
+    view = item.getViewBox()
+    if (shown is None or mapped is None or limit is None or hysteresis is None or view is None
+            or shown.x is not mapped.x or shown.y is not mapped.y or shown.connect is not None):
+        return False
+    data, in_view = mapped.dataRect(), view.viewRect()
+    if data is None:
+        return False
+    height = in_view.height()
+    clips = (height > 0 and not data.bottom() < in_view.top() and not data.top() > in_view.bottom()
+             and data.height() > 2 * hysteresis * limit * height)
+    return not clips
+
+
 class _GridLayer:
     """One transparent image, shared by the axes of a view, on which an axis draws its tick and grid
     lines before they are laid over the plot (see :class:`_GridAxis`). It is as large as the device
@@ -349,6 +396,10 @@ class _KeptPlot:
             # all its points have one style: looked up once per drawing, not once per point
             scatter = item.scatter
             scatter.updateSpots = lambda dataSet=None: _update_spots_of_one_style(scatter, dataSet)  # noqa: N803
+        elif isinstance(item, pg.PlotDataItem):
+            # a line keeps its range limit; it is given its data again only where the limit clips
+            # (connected when the item joins the plot, so set before)
+            item.viewRangeChanged = _following_the_range(item)
         self.plot.addItem(item, ignoreBounds=ignore_bounds)
         item.hide()
         return item
