@@ -676,8 +676,8 @@ def _same_when_inactive(graphics: pg.GraphicsLayoutWidget) -> QGraphicsItem:
     the layout's events (it draws nothing and takes no room)."""
     palette = graphics.palette()
     for role in QPalette.ColorRole:
-        if role is not QPalette.ColorRole.NColorRoles:
-            palette.setBrush(QPalette.ColorGroup.Inactive, role, palette.brush(QPalette.ColorGroup.Active, role))
+        if role is not QPalette.ColorRole.NColorRoles:  # every group set, so none follows the window's
+            palette.setBrush(QPalette.ColorGroup.All, role, palette.brush(QPalette.ColorGroup.Active, role))
     graphics.setPalette(palette)
     return _ActivationFilter(graphics.ci)
 
