@@ -6,8 +6,9 @@ from __future__ import annotations
 import math
 from typing import Callable, TypeVar
 
-from PySide6.QtGui import QFontMetricsF, QGuiApplication, QKeySequence
-from PySide6.QtWidgets import QAbstractItemView, QTableView
+from PySide6.QtCore import QRect
+from PySide6.QtGui import QAccessible, QFontMetricsF, QGuiApplication, QKeySequence
+from PySide6.QtWidgets import QAbstractItemView, QAbstractScrollArea, QTableView
 
 
 ReasonProvider = Callable[[str], "str | None"]
@@ -208,6 +209,10 @@ def widen_to_rows_in_view(view: QTableView) -> None:
             view.setColumnWidth(c, need)
 
 
+_ADJUST_IGNORED = QAbstractScrollArea.SizeAdjustPolicy.AdjustIgnored
+_EDITING = QAbstractItemView.State.EditingState
+
+
 class FittedTableView(QTableView):
     """A table whose last column fills the room left whenever the table changes size, and whose
     columns widen when a wider cell scrolls into view."""
@@ -224,36 +229,24 @@ class FittedTableView(QTableView):
         and taller, into the next column and the next row: the grid line after the last cell and the
         first pixel of each cell beyond it. The table then lays out and paints every cell that pixel
         touches (its texts unchanged), which after an edit doubled the cells painted. Here a block in
-        plain rows and columns (none moved) marks the cells' own rectangle, from the first cell's top
-        left to the last cell's bottom right, grid lines between them included. What Qt does besides
-        is done as Qt does it: the cell being edited, if any in the block, is told on its own (its
-        editor is given the new value), and a view that adjusts its size to its contents, the
-        accessibility tools, a hidden view, other parents and moved sections take Qt's own way."""
-        from PySide6.QtCore import QRect
-        from PySide6.QtGui import QAccessible
-        from PySide6.QtWidgets import QAbstractItemView, QAbstractScrollArea
-
-        horizontal, vertical = self.horizontalHeader(), self.verticalHeader()
-        if (top_left == bottom_right or not top_left.isValid() or not bottom_right.isValid() or not self.isVisible()
-                or top_left.parent() != self.rootIndex() or bottom_right.parent() != self.rootIndex()
-                or horizontal.sectionsMoved() or vertical.sectionsMoved() or QAccessible.isActive()
-                or self.sizeAdjustPolicy() != QAbstractScrollArea.SizeAdjustPolicy.AdjustIgnored):
+        plain rows and columns (none moved, no spans, both corner cells shown) marks the cells' own
+        rectangle, from the first cell's top left to the last cell's bottom right, the grid lines
+        between them included. What Qt does besides is done as Qt does it: the cell being edited, if
+        any in the block, is told on its own (its editor is given the new value), and a single cell, a
+        view that adjusts its size to its contents, the accessibility tools, a hidden view and moved
+        sections take Qt's own way."""
+        first, last = self.visualRect(top_left), self.visualRect(bottom_right)  # empty: hidden or not a cell here
+        if (top_left == bottom_right or first.isEmpty() or last.isEmpty() or not self.isVisible()
+                or self.horizontalHeader().sectionsMoved() or self.verticalHeader().sectionsMoved()
+                or QAccessible.isActive() or self.sizeAdjustPolicy() != _ADJUST_IGNORED):
             super().dataChanged(top_left, bottom_right, roles)
             return
-        first_row, last_row = top_left.row(), bottom_right.row()
-        first_column, last_column = top_left.column(), bottom_right.column()
-        editing = self.currentIndex() if self.state() == QAbstractItemView.State.EditingState else None
-        if (editing is not None and editing.isValid() and first_row <= editing.row() <= last_row
-                and first_column <= editing.column() <= last_column):
-            super().dataChanged(editing, editing, roles)
-        grid = 1 if self.showGrid() else 0
-        left = self.columnViewportPosition(first_column)
-        right = self.columnViewportPosition(last_column) + self.columnWidth(last_column) - grid
-        top = self.rowViewportPosition(first_row)
-        bottom = self.rowViewportPosition(last_row) + self.rowHeight(last_row) - grid
-        cells = QRect(left, top, right - left, bottom - top).intersected(self.viewport().rect())
-        if not cells.isEmpty():
-            self.viewport().update(cells)
+        if self.state() == _EDITING:
+            editing = self.currentIndex()
+            if (top_left.row() <= editing.row() <= bottom_right.row()
+                    and top_left.column() <= editing.column() <= bottom_right.column()):
+                super().dataChanged(editing, editing, roles)
+        self.viewport().update(QRect(first.topLeft(), last.bottomRight()))
 
     def showEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().showEvent(event)
