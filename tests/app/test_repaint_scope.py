@@ -246,6 +246,7 @@ def test_the_reason_dialog_opening_and_closing_repaints_nothing_of_the_plots(qtb
                 painted.append(event.region().boundingRect())
             return False
 
+    grabbing = False  # a grab paints the view itself
     watch = Watch()
     graphics.viewport().installEventFilter(watch)
     for _ in range(50):  # whatever was still to be painted has been, before the dialog opens
@@ -255,7 +256,6 @@ def test_the_reason_dialog_opening_and_closing_repaints_nothing_of_the_plots(qtb
             break
     assert painted == []
     seen: dict[str, object] = {}
-    grabbing = False  # a grab paints the view itself
 
     def answer() -> None:
         dialog = QApplication.activeModalWidget()
@@ -282,3 +282,83 @@ def test_the_reason_dialog_opening_and_closing_repaints_nothing_of_the_plots(qtb
     assert seen["painted while open"] == [], seen["painted while open"]
     assert painted == [], painted
     assert seen["inactive"] == active == graphics.grab().toImage()
+
+
+def test_the_reason_dialog_repaints_a_table_only_where_its_palette_differs_when_inactive(
+        qtbot, make_window, monkeypatch) -> None:
+    """Qt's item views repaint all their cells when the window is activated or deactivated, for the
+    colours of a selection in an inactive window. With a palette whose inactive colours are the
+    active ones (as here) a table with a selected row looks the same either way and nothing of it is
+    repainted when the reason dialog opens or closes; with a palette whose inactive colours differ,
+    it is repainted as Qt does (this platform draws the selection alike in both states, so the pixels
+    themselves cannot show the difference here)."""
+    from PySide6.QtCore import QEvent, QObject, QTimer
+    from PySide6.QtGui import QColor, QPalette
+    from PySide6.QtWidgets import QApplication, QDialogButtonBox
+
+    from curvewright.app.dialogs import ReasonDialog
+
+    monkeypatch.setattr(ReasonDialog, "exec", REAL_EXEC)
+    window = make_window(WEIGHTED)
+    tables = (window.standards_view, window.results_view.table)
+    window.results_view.table.selectRow(2)
+    window.standards_view.selectRow(1)
+
+    def through_the_dialog():  # type: ignore[no-untyped-def]
+        window.activateWindow()
+        qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
+        painted: dict[object, list[object]] = {view: [] for view in tables}
+        grabbing = [False]
+
+        class Watch(QObject):
+            def eventFilter(self, obj, event):  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+                if event.type() == QEvent.Type.Paint and not grabbing[0]:
+                    for view in tables:
+                        if obj is view.viewport():
+                            painted[view].append(event.region().boundingRect())
+                return False
+
+        watch = Watch()
+        for view in tables:
+            view.viewport().installEventFilter(watch)
+        for _ in range(50):  # whatever was still to be painted has been
+            for view in tables:
+                painted[view].clear()
+            qtbot.wait(100)
+            if not any(painted.values()):
+                break
+        grabbing[0] = True
+        active = [view.viewport().grab().toImage() for view in tables]
+        grabbing[0] = False
+        inactive: list[object] = []
+
+        def answer() -> None:
+            dialog = QApplication.activeModalWidget()
+            if not isinstance(dialog, ReasonDialog):
+                QTimer.singleShot(20, answer)
+                return
+            qtbot.wait(50)
+            grabbing[0] = True
+            inactive.extend(view.viewport().grab().toImage() for view in tables)
+            grabbing[0] = False
+            dialog.choices.setCurrentIndex(1)
+            dialog.buttons.button(QDialogButtonBox.StandardButton.Ok).click()
+
+        QTimer.singleShot(20, answer)
+        assert window.ask_value_change_reason("The response changes.")
+        window.activateWindow()
+        qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
+        qtbot.wait(50)
+        for view in tables:
+            view.viewport().removeEventFilter(watch)
+        return painted, active, inactive
+
+    assert window.palette().isEqual(QPalette.ColorGroup.Active, QPalette.ColorGroup.Inactive)
+    painted, active, inactive = through_the_dialog()
+    assert all(rects == [] for rects in painted.values()), painted
+    assert inactive == active
+    palette = window.palette()  # a desktop whose inactive windows look different
+    palette.setColor(QPalette.ColorGroup.Inactive, QPalette.ColorRole.Highlight, QColor(200, 30, 160))
+    window.setPalette(palette)
+    painted, _active, _inactive = through_the_dialog()
+    assert all(rects for rects in painted.values()), painted  # repainted, as Qt does

@@ -6,8 +6,8 @@ from __future__ import annotations
 import math
 from typing import Callable, TypeVar
 
-from PySide6.QtCore import QRect
-from PySide6.QtGui import QAccessible, QFontMetricsF, QGuiApplication, QKeySequence
+from PySide6.QtCore import QEvent, QRect
+from PySide6.QtGui import QAccessible, QFontMetricsF, QGuiApplication, QKeySequence, QPalette
 from PySide6.QtWidgets import QAbstractItemView, QAbstractScrollArea, QTableView
 
 
@@ -211,6 +211,7 @@ def widen_to_rows_in_view(view: QTableView) -> None:
 
 _ADJUST_IGNORED = QAbstractScrollArea.SizeAdjustPolicy.AdjustIgnored
 _EDITING = QAbstractItemView.State.EditingState
+_ACTIVATION = (QEvent.Type.WindowActivate, QEvent.Type.WindowDeactivate)
 
 
 class FittedTableView(QTableView):
@@ -221,6 +222,20 @@ class FittedTableView(QTableView):
         super().__init__(parent)
         self.fit_when_shown = False
         self.verticalScrollBar().valueChanged.connect(lambda _value: widen_to_rows_in_view(self))
+
+    def viewportEvent(self, event) -> bool:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        """The window's activation repaints the table only where it can look different.
+
+        Qt's item views repaint all of their cells when the window is activated or deactivated (a
+        dialog opens or closes: the reason asked for a typed response), for the colours a selection
+        takes in an inactive window: 8 ms for the standards table here. With a palette whose inactive
+        colours are the active ones the table looks the same either way (``tests/app/test_repaint_scope.py``
+        compares it), and the cells are handled as any widget handles the event: repainted where the
+        palette differs, children told. The keyboard focus the window loses or regains reaches the
+        table apart, as in Qt."""
+        if event.type() in _ACTIVATION and self.palette().isEqual(QPalette.ColorGroup.Active, QPalette.ColorGroup.Inactive):
+            return False
+        return super().viewportEvent(event)
 
     def dataChanged(self, top_left, bottom_right, roles=()) -> None:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
         """Repaint the cells of a changed block, and nothing beside them.
