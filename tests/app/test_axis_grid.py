@@ -108,6 +108,38 @@ def test_close_grid_lines_and_an_edit_look_the_same(make_window, qtbot, monkeypa
     assert drawn(qtbot, view, monkeypatch, as_pyqtgraph=False) == drawn(qtbot, view, monkeypatch, as_pyqtgraph=True)
 
 
+def test_where_the_image_cannot_be_laid_over_the_axes_draw_pyqtgraphs_picture(make_window, qtbot, monkeypatch) -> None:
+    """An axis whose lines can be laid over as an image keeps its whole picture undrawn until it is
+    played: where the image is not laid over (here a painter that antialiases; also a printer or a
+    picture) the picture is drawn then, and the view looks as pyqtgraph draws it; on the screen the
+    axis still lays its image over."""
+    from PySide6.QtGui import QPainter
+
+    window = make_window(next(p for p in DEMOS if "weighted" in p.stem))
+    view = window.curve_view
+    view.graphics.grab()  # recorded for the screen: the lines in an image, the whole picture left undrawn
+    assert all(axis._parts[1] is not None and axis._parts[2] is not None for axis in axes(view))
+    empty = [axis.picture.size() for axis in axes(view)]
+    used = laid_over(monkeypatch)
+    view.graphics.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+    for axis in axes(view):
+        axis.update()
+    view.graphics.grab()
+    assert used and not any(done for _axis, done in used)  # the whole picture played
+    assert all(axis.picture.size() > size for axis, size in zip(axes(view), empty))  # drawn when played
+    assert drawn(qtbot, view, monkeypatch, as_pyqtgraph=False) == drawn(qtbot, view, monkeypatch, as_pyqtgraph=True)
+    # an axis once played whole keeps its parts, and lays its image over where it can
+    view.graphics.setRenderHint(QPainter.RenderHint.Antialiasing, False)
+    pictures = [axis.picture for axis in axes(view)]
+    used.clear()
+    for axis in axes(view):
+        axis.update()
+    view.graphics.grab()
+    assert [axis.picture for axis in axes(view)] == pictures
+    assert {id(axis) for axis, done in used if done} == {id(axis) for axis in axes(view)}
+    assert drawn(qtbot, view, monkeypatch, as_pyqtgraph=False) == drawn(qtbot, view, monkeypatch, as_pyqtgraph=True)
+
+
 def test_the_comparison_sees_the_grid(make_window, qtbot, monkeypatch) -> None:
     """Without its tick and grid lines the view no longer looks as pyqtgraph draws it: the
     comparisons above would see a line drawn wrong."""

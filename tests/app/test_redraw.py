@@ -5,6 +5,7 @@ in view and widen as wider rows scroll into view. How long a redraw takes is mea
 
 from __future__ import annotations
 
+import numpy as np
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtGui import QStandardItem, QStandardItemModel
 
@@ -253,3 +254,61 @@ def test_a_redraw_gives_the_unknowns_points_their_data_once(qtbot, make_window, 
     session.apply(changed_response(session.run, 5), "Change a response")
     settle(qtbot, window)
     assert points.isVisible() and len(given) == 1
+
+
+def test_a_redraw_gives_each_line_its_data_once(qtbot, make_window, monkeypatch) -> None:
+    # with its range limit pyqtgraph worked a line's shown data out again when the vertical range
+    # moved, which every response edit does, and gave the line the same arrays a second time; the
+    # lines then show the data pyqtgraph works out (and the view looks as one drawn anew:
+    # tests/app/test_curve_items.py)
+    import pyqtgraph as pg
+
+    window = make_window(WEIGHTED)
+    session, view = window.session, window.curve_view
+    lines = [item for kept in (view.curve_items, view.lower_items) for item in kept.items
+             if isinstance(item, pg.PlotDataItem) and item.opts["pen"] is not None]
+    ranges = [tuple(plot.getViewBox().viewRange()[1]) for plot in (view.curve_plot, view.lower_plot)]
+    given: list = []  # type: ignore[type-arg]
+    update = pg.PlotDataItem.updateItems
+    monkeypatch.setattr(pg.PlotDataItem, "updateItems",
+                        lambda self, *a, **k: given.append(self) or update(self, *a, **k))
+    session.apply(changed_response(session.run, 40), "Change a response")
+    settle(qtbot, window)
+    moved = [tuple(plot.getViewBox().viewRange()[1]) for plot in (view.curve_plot, view.lower_plot)]
+    assert moved[0] != ranges[0] and moved[1] != ranges[1]  # both vertical ranges moved
+    shown = [line for line in lines if line.isVisible()]
+    # the curve and the prediction band's edges take new data once; the acceptance limits, which the
+    # edit does not move, keep theirs
+    times = {id(line): sum(item is line for item in given) for line in shown}
+    assert [times[id(line)] for line in (view.curve_items.curve, view.curve_items.prediction_upper,
+                                         view.curve_items.prediction_lower)] == [1, 1, 1]
+    assert max(times.values()) == 1
+    for line in shown:
+        x, y = line.getData()  # what pyqtgraph shows of the line's values in the view now
+        assert np.array_equal(line.curve.xData, x) and np.array_equal(line.curve.yData, y)
+
+
+def test_a_line_the_range_limit_clips_is_given_its_clipped_data(qtbot) -> None:
+    # zoomed in far enough, pyqtgraph's range limit clips a line's values around the view: the kept
+    # line then goes pyqtgraph's way and shows what pyqtgraph shows
+    import pyqtgraph as pg
+
+    from curvewright.app.curve_view import _KeptPlot
+
+    widget = pg.PlotWidget()
+    qtbot.addWidget(widget)
+    widget.resize(400, 300)
+    widget.show()
+    kept = _KeptPlot(widget.getPlotItem(), pg.LegendItem())
+    line = kept.add(pg.PlotDataItem(pen=pg.mkPen("k")))
+    x = np.linspace(0.0, 1.0, 201)
+    kept.show(line, x, 1e9 * x ** 3)
+    box = widget.getPlotItem().getViewBox()
+    box.autoRange()
+    qtbot.wait(10)
+    assert np.array_equal(line.curve.yData, 1e9 * x ** 3)  # nothing clipped: the values themselves
+    box.setYRange(0.0, 1e-3, padding=0)  # a view a trillionth of the data's height: the limit clips
+    qtbot.wait(10)
+    shown_x, shown_y = line.getData()
+    assert shown_y.max() < 1e9 * 0.5  # pyqtgraph's clipped values
+    assert np.array_equal(line.curve.xData, shown_x) and np.array_equal(line.curve.yData, shown_y)

@@ -8,6 +8,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from PySide6.QtCore import Qt
+from PySide6.QtWidgets import QDialog
 
 from curvewright.app.results_model import REPORTED
 from curvewright.app.standards_model import CONC
@@ -15,6 +16,8 @@ from tests.app.conftest import DEMOS, settle
 from tests.app.test_redraw import changed_response
 
 WEIGHTED = next(p for p in DEMOS if "weighted" in p.stem)
+REAL_EXEC = QDialog.exec
+"""The dialogs' own exec, taken when the module loads (before each test refuses unanswered dialogs)."""
 
 
 def watch(window):  # type: ignore[no-untyped-def]
@@ -163,3 +166,199 @@ def test_an_axis_whose_range_did_not_change_keeps_its_picture(qtbot, make_window
             assert axis.picture is None, (i, side)  # drawn anew when next painted
     assert any(plots[i].getAxis(side).picture is before[(i, side)] for i in (0, 1) for side in ("bottom",))
     assert any(tuple(plots[i].getAxis("left").range) != ranges[(i, "left")] for i in (0, 1))
+
+
+def test_an_edit_repaints_the_cells_told_changed_and_no_cell_beside_them(qtbot, make_window) -> None:
+    """Qt marks a changed block of cells for repainting one pixel wider and taller than the block, so
+    every cell in the next column and the next row was laid out and painted again too (their texts
+    unchanged). The tables repaint the cells they are told changed and no other cell. What the
+    screen then shows is held to tables painted anew above."""
+    from PySide6.QtCore import QEvent, QObject, QRect
+    from PySide6.QtGui import QRegion
+
+    window = make_window(WEIGHTED)
+    session = window.session
+    session.apply(typed_response(session.run, 1), "Change a response")
+    settle(qtbot, window)
+    qtbot.wait(30)
+    views = (window.standards_view, window.results_view.table)
+    painted = {view: QRegion() for view in views}
+    told: dict[object, list[tuple[int, int, int, int]]] = {view: [] for view in views}
+
+    class Watch(QObject):
+        def eventFilter(self, obj, event):  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+            if event.type() == QEvent.Type.Paint:
+                for view in views:
+                    if obj is view.viewport():
+                        painted[view] = painted[view].united(event.region())
+            return False
+
+    watch = Watch()
+    for view in views:
+        view.viewport().installEventFilter(watch)
+        view.model().dataChanged.connect(
+            lambda a, b, *_roles, view=view: told[view].append((a.row(), b.row(), a.column(), b.column())))
+    session.apply(typed_response(session.run, 2), "Change a response")
+    settle(qtbot, window)
+    qtbot.wait(30)
+    for view in views:
+        name = view.accessibleName()
+        assert told[view] and not painted[view].isEmpty(), name  # some cells changed, and were repainted
+        model = view.model()
+        in_view = QRect(0, 0, view.viewport().width(), view.viewport().height())
+        beside = [(r, c) for r in range(model.rowCount()) for c in range(model.columnCount())
+                  if not view.isColumnHidden(c) and view.visualRect(model.index(r, c)).intersects(in_view)
+                  and not any(r0 <= r <= r1 and c0 <= c <= c1 for r0, r1, c0, c1 in told[view])]
+        assert beside, name  # cells in view that were not told changed
+        repainted = [(r, c) for r, c in beside if painted[view].intersects(view.visualRect(model.index(r, c)))]
+        assert repainted == [], (name, repainted[:5])
+
+
+def test_the_reason_dialog_opening_and_closing_repaints_nothing_of_the_plots(qtbot, make_window, monkeypatch) -> None:
+    """The reason dialog of a typed response deactivates the window while it is open, and closing it
+    activates the window again. The plots look the same in an active and an inactive window (they
+    draw with their own colours, never the palette's), so neither repaints them: they were painted
+    whole each time. Shown here with a palette whose inactive colours differ, and the app's own
+    modal dialog, answered from a timer inside its event loop."""
+    from PySide6.QtCore import QEvent, QObject, QTimer
+    from PySide6.QtGui import QColor, QPalette
+    from PySide6.QtWidgets import QApplication, QDialogButtonBox
+
+    from curvewright.app.dialogs import ReasonDialog
+
+    monkeypatch.setattr(ReasonDialog, "exec", REAL_EXEC)
+    window = make_window(WEIGHTED)
+    graphics = window.curve_view.graphics
+    palette = window.palette()  # as on a desktop whose inactive windows look different
+    for role in (QPalette.ColorRole.Window, QPalette.ColorRole.Base, QPalette.ColorRole.Text,
+                 QPalette.ColorRole.WindowText, QPalette.ColorRole.Highlight):
+        palette.setColor(QPalette.ColorGroup.Inactive, role, QColor(200, 30, 160))
+    window.setPalette(palette)
+    window.activateWindow()
+    qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
+    qtbot.wait(50)
+    active = graphics.grab().toImage()
+    painted: list[object] = []
+
+    class Watch(QObject):
+        def eventFilter(self, obj, event):  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+            if event.type() == QEvent.Type.Paint and obj is graphics.viewport() and not grabbing:
+                painted.append(event.region().boundingRect())
+            return False
+
+    grabbing = False  # a grab paints the view itself
+    watch = Watch()
+    graphics.viewport().installEventFilter(watch)
+    for _ in range(50):  # whatever was still to be painted has been, before the dialog opens
+        painted.clear()
+        qtbot.wait(100)
+        if not painted:
+            break
+    assert painted == []
+    seen: dict[str, object] = {}
+
+    def answer() -> None:
+        dialog = QApplication.activeModalWidget()
+        if not isinstance(dialog, ReasonDialog):
+            QTimer.singleShot(20, answer)
+            return
+        qtbot.wait(50)  # the window, deactivated, would repaint here
+        seen["active window"] = QApplication.activeWindow()
+        seen["painted while open"] = list(painted)
+        nonlocal grabbing
+        grabbing = True
+        seen["inactive"] = graphics.grab().toImage()
+        grabbing = False
+        dialog.choices.setCurrentIndex(1)
+        dialog.buttons.button(QDialogButtonBox.StandardButton.Ok).click()
+
+    QTimer.singleShot(20, answer)
+    assert window.ask_value_change_reason("The response changes.")
+    window.activateWindow()  # the window is active again once the dialog has closed
+    qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
+    qtbot.wait(50)
+    graphics.viewport().removeEventFilter(watch)
+    assert seen["active window"] is not window  # the window was inactive while the dialog was open
+    assert seen["painted while open"] == [], seen["painted while open"]
+    assert painted == [], painted
+    assert seen["inactive"] == active == graphics.grab().toImage()
+
+
+def test_the_reason_dialog_repaints_a_table_only_where_its_palette_differs_when_inactive(
+        qtbot, make_window, monkeypatch) -> None:
+    """Qt's item views repaint all their cells when the window is activated or deactivated, for the
+    colours of a selection in an inactive window. With a palette whose inactive colours are the
+    active ones (as here) a table with a selected row looks the same either way and nothing of it is
+    repainted when the reason dialog opens or closes; with a palette whose inactive colours differ,
+    it is repainted as Qt does (this platform draws the selection alike in both states, so the pixels
+    themselves cannot show the difference here)."""
+    from PySide6.QtCore import QEvent, QObject, QTimer
+    from PySide6.QtGui import QColor, QPalette
+    from PySide6.QtWidgets import QApplication, QDialogButtonBox
+
+    from curvewright.app.dialogs import ReasonDialog
+
+    monkeypatch.setattr(ReasonDialog, "exec", REAL_EXEC)
+    window = make_window(WEIGHTED)
+    tables = (window.standards_view, window.results_view.table)
+    window.results_view.table.selectRow(2)
+    window.standards_view.selectRow(1)
+
+    def through_the_dialog():  # type: ignore[no-untyped-def]
+        window.activateWindow()
+        qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
+        painted: dict[object, list[object]] = {view: [] for view in tables}
+        grabbing = [False]
+
+        class Watch(QObject):
+            def eventFilter(self, obj, event):  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+                if event.type() == QEvent.Type.Paint and not grabbing[0]:
+                    for view in tables:
+                        if obj is view.viewport():
+                            painted[view].append(event.region().boundingRect())
+                return False
+
+        watch = Watch()
+        for view in tables:
+            view.viewport().installEventFilter(watch)
+        for _ in range(50):  # whatever was still to be painted has been
+            for view in tables:
+                painted[view].clear()
+            qtbot.wait(100)
+            if not any(painted.values()):
+                break
+        grabbing[0] = True
+        active = [view.viewport().grab().toImage() for view in tables]
+        grabbing[0] = False
+        inactive: list[object] = []
+
+        def answer() -> None:
+            dialog = QApplication.activeModalWidget()
+            if not isinstance(dialog, ReasonDialog):
+                QTimer.singleShot(20, answer)
+                return
+            qtbot.wait(50)
+            grabbing[0] = True
+            inactive.extend(view.viewport().grab().toImage() for view in tables)
+            grabbing[0] = False
+            dialog.choices.setCurrentIndex(1)
+            dialog.buttons.button(QDialogButtonBox.StandardButton.Ok).click()
+
+        QTimer.singleShot(20, answer)
+        assert window.ask_value_change_reason("The response changes.")
+        window.activateWindow()
+        qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
+        qtbot.wait(50)
+        for view in tables:
+            view.viewport().removeEventFilter(watch)
+        return painted, active, inactive
+
+    assert window.palette().isEqual(QPalette.ColorGroup.Active, QPalette.ColorGroup.Inactive)
+    painted, active, inactive = through_the_dialog()
+    assert all(rects == [] for rects in painted.values()), painted
+    assert inactive == active
+    palette = window.palette()  # a desktop whose inactive windows look different
+    palette.setColor(QPalette.ColorGroup.Inactive, QPalette.ColorRole.Highlight, QColor(200, 30, 160))
+    window.setPalette(palette)
+    painted, _active, _inactive = through_the_dialog()
+    assert all(rects for rects in painted.values()), painted  # repainted, as Qt does

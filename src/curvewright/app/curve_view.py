@@ -14,9 +14,10 @@ from __future__ import annotations
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QPoint, QPointF, QRectF, QSize, Qt, Signal
-from PySide6.QtGui import QFont, QImage, QPainter, QPen, QPicture, QPixmap, QTransform
-from PySide6.QtWidgets import QCheckBox, QComboBox, QHBoxLayout, QLabel, QSizePolicy, QToolTip, QVBoxLayout, QWidget
+from PySide6.QtCore import QEvent, QPoint, QPointF, QRectF, QSize, Qt, Signal
+from PySide6.QtGui import QFont, QImage, QPainter, QPalette, QPen, QPicture, QPixmap, QTransform
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QGraphicsItem, QGraphicsObject, QHBoxLayout, QLabel, QSizePolicy,
+                               QToolTip, QVBoxLayout, QWidget)
 
 from . import figures, palette
 
@@ -120,6 +121,53 @@ def _same_style_objects(scatter: pg.ScatterPlotItem) -> None:
     scatter._kept_style_objects = (opts["pen"], opts["brush"])
 
 
+def _following_the_range(item: pg.PlotDataItem):  # type: ignore[no-untyped-def]
+    """``item.viewRangeChanged`` for a line that gives it its data again only when that changes what
+    it shows.
+
+    With a range limit pyqtgraph clips a line's values to a band many view heights (a million here)
+    above and below the view, and when the vertical range moves it works the line's shown data out
+    again and gives it to the line, which makes its path anew: after every edit, once the view has
+    autoranged, for the curve, the prediction band and the acceptance limits. Where the limit clips
+    nothing, before and after the move (the values pyqtgraph shows are its values themselves, and
+    they fit within the band around the new range: pyqtgraph's own test), the line would be given the
+    very arrays it holds; only that the range moved is noted, as pyqtgraph notes it. Any other case (a
+    line clipped to the view or downsampled, or clipped by the limit) and an item without these
+    parts (another pyqtgraph release) goes pyqtgraph's way."""
+    general = item.viewRangeChanged
+
+    def follow(vb=None, ranges=None, changed=None) -> None:  # type: ignore[no-untyped-def]
+        if (changed is not None and changed[1] and not item.opts.get("clipToView", True)
+                and not item.opts.get("autoDownsample", True) and _clips_nothing(item)):
+            # a horizontal move asks nothing of a line neither clipped to the view nor downsampled
+            if changed[0]:
+                item.setProperty("xViewRangeWasChanged", True)
+            item.setProperty("yViewRangeWasChanged", True)
+            return
+        general(vb, ranges, changed)
+
+    return follow
+
+
+def _clips_nothing(item: pg.PlotDataItem) -> bool:
+    """The line shows its values as they are, and pyqtgraph's range limit would clip none of them in
+    the view's range now (the conditions of ``PlotDataItem._getDisplayDataset``)."""
+    opts = item.opts
+    shown, mapped = getattr(item, "_datasetDisplay", None), getattr(item, "_datasetMapped", None)
+    limit, hysteresis = opts.get("dynamicRangeLimit"), opts.get("dynamicRangeHyst")
+    view = item.getViewBox()
+    if (shown is None or mapped is None or limit is None or hysteresis is None or view is None
+            or shown.x is not mapped.x or shown.y is not mapped.y or shown.connect is not None):
+        return False
+    data, in_view = mapped.dataRect(), view.viewRect()
+    if data is None:
+        return False
+    height = in_view.height()
+    clips = (height > 0 and not data.bottom() < in_view.top() and not data.top() > in_view.bottom()
+             and data.height() > 2 * hysteresis * limit * height)
+    return not clips
+
+
 class _GridLayer:
     """One transparent image, shared by the axes of a view, on which an axis draws its tick and grid
     lines before they are laid over the plot (see :class:`_GridAxis`). It is as large as the device
@@ -169,7 +217,8 @@ class _GridAxis(pg.AxisItem):
     def __init__(self, orientation: str, layer: _GridLayer) -> None:
         super().__init__(orientation)
         self._layer = layer
-        self._parts: tuple[object, tuple | None] = (None, None)  # type: ignore[type-arg]  # (picture, its parts)
+        self._parts: tuple[object, tuple | None, tuple | None] = (None, None, None)  # type: ignore[type-arg]
+        """(the picture, its three parts or None, the drawing's specs while the picture is still empty)"""
         self._bounds_while_recording: QRectF | None = None
 
     def boundingRect(self) -> QRectF:  # noqa: N802 - Qt override
@@ -180,13 +229,17 @@ class _GridAxis(pg.AxisItem):
     def paint(self, p, opt, widget) -> None:  # type: ignore[no-untyped-def]
         if self.picture is None:
             self._record()
-        picture, parts = self._parts
+        picture, parts, specs = self._parts
         if picture is not self.picture or parts is None or not self._paint_parts(p, *parts):
+            if picture is self.picture and specs is not None:
+                self._draw_whole_picture(specs)
             self.picture.play(p)
 
     def _record(self) -> None:
-        """The picture pyqtgraph records, and beside it the same drawing in three parts (axis line,
-        tick and grid lines, labels) when the lines can be laid over as an image."""
+        """The picture pyqtgraph records, or where the lines can be laid over as an image the same
+        drawing in three parts (axis line, tick and grid lines, labels). The whole picture is then
+        drawn only if it is ever played (on a device the image cannot be laid over): the
+        drawing is worked out once, and drawn once."""
         picture = QPicture()
         painter = QPainter(picture)
         specs = None
@@ -198,12 +251,25 @@ class _GridAxis(pg.AxisItem):
                 specs = self.generateDrawSpecs(painter)  # it sizes the axis to its labels only at its end
             finally:
                 self._bounds_while_recording = None
-            if specs is not None:
+            parts = self._split(*specs) if specs is not None else None
+            if specs is not None and parts is None:
                 self.drawPicture(painter, *specs)
         finally:
             painter.end()
         self.picture = picture
-        self._parts = (picture, self._split(*specs) if specs is not None else None)
+        self._parts = (picture, parts, specs if parts is not None else None)
+
+    def _draw_whole_picture(self, specs: tuple) -> None:  # type: ignore[type-arg]
+        """Draw the picture pyqtgraph records (left empty by :meth:`_record`) from its specs, once, on
+        the same picture object."""
+        painter = QPainter(self.picture)
+        try:
+            if self.style["tickFont"]:
+                painter.setFont(self.style["tickFont"])
+            self.drawPicture(painter, *specs)
+        finally:
+            painter.end()
+        self._parts = (self.picture, self._parts[1], None)
 
     def _split(self, axis_spec, tick_specs, text_specs):  # type: ignore[no-untyped-def]
         vertical = self.orientation in ("left", "right")  # the grid lines run across: horizontal on a left axis
@@ -330,6 +396,10 @@ class _KeptPlot:
             # all its points have one style: looked up once per drawing, not once per point
             scatter = item.scatter
             scatter.updateSpots = lambda dataSet=None: _update_spots_of_one_style(scatter, dataSet)  # noqa: N803
+        elif isinstance(item, pg.PlotDataItem):
+            # a line keeps its range limit; it is given its data again only where the limit clips
+            # (connected when the item joins the plot, so set before)
+            item.viewRangeChanged = _following_the_range(item)
         self.plot.addItem(item, ignoreBounds=ignore_bounds)
         item.hide()
         return item
@@ -591,6 +661,49 @@ class _LowerItems(_KeptPlot):
         return self.finish(self.items)
 
 
+def _same_when_inactive(graphics: pg.GraphicsLayoutWidget) -> QGraphicsItem:
+    """Keep the window's activation from repainting the plots, which look the same either way.
+
+    When the window is deactivated or activated again (a dialog opens or closes: the reason asked
+    for a typed response), Qt repaints a widget whose palette has other colours for an inactive
+    window, and the scene tells its top-level item, the layout that holds the plots, which as any Qt
+    graphics widget marks all of itself for repainting whatever its palette. After a typed edit the
+    plots were so painted whole when the dialog opened and again when it closed. They draw with their
+    own pens, brushes, text colours and background, never the palette's (the view has no frame and
+    no scroll bars), so they look the same in an inactive window (``tests/app/test_repaint_scope.py``
+    compares them). The view's palette is given the same colours in both states, and the layout is
+    not told of the activation (the scene itself still follows it). Returns the item that filters
+    the layout's events (it draws nothing and takes no room)."""
+    palette = graphics.palette()
+    for role in QPalette.ColorRole:
+        if role is not QPalette.ColorRole.NColorRoles:  # every group set, so none follows the window's
+            palette.setBrush(QPalette.ColorGroup.All, role, palette.brush(QPalette.ColorGroup.Active, role))
+    graphics.setPalette(palette)
+    return _ActivationFilter(graphics.ci)
+
+
+class _ActivationFilter(QGraphicsObject):
+    """Filters the window's activation and deactivation out of what an item is sent (see
+    :func:`_same_when_inactive`)."""
+
+    _ACTIVATION = (QEvent.Type.WindowActivate, QEvent.Type.WindowDeactivate)
+
+    def __init__(self, item: QGraphicsItem) -> None:
+        super().__init__()
+        self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
+        item.scene().addItem(self)
+        item.installSceneEventFilter(self)
+
+    def boundingRect(self) -> QRectF:  # noqa: N802 - Qt override
+        return QRectF()
+
+    def paint(self, painter, option, widget=None) -> None:  # type: ignore[no-untyped-def]
+        return None
+
+    def sceneEventFilter(self, watched, event) -> bool:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        return event.type() in self._ACTIVATION
+
+
 class _Words(QWidget):
     """A word-wrapped, selectable text, laid out exactly as the label it holds would be.
 
@@ -711,6 +824,7 @@ class CurveView(QWidget):
         self._hover_source: tuple[AnalyteResult, bool] | None = None
         self._hover_cache: list[tuple[float, float, str]] | None = None
         self._proxy = pg.SignalProxy(self.graphics.scene().sigMouseMoved, rateLimit=30, slot=self._on_mouse)
+        self._activation_filter = _same_when_inactive(self.graphics)
 
     @property
     def _hover_points(self) -> list[tuple[float, float, str]]:

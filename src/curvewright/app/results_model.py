@@ -55,6 +55,8 @@ class ResultsModel(QAbstractTableModel):
         self._attention: dict[int, bool] = {}
         """Each row's cell texts and whether it needs attention, worked out once per result (a table
         asks for the same cells many times: sizing its columns, painting, scrolling)."""
+        self._attention_terms: tuple[object, object] | None = None
+        """The status and the flags that shade a row, looked up when first needed."""
 
     def show(self, result: RunResult | None, analyte: str) -> bool:
         """Show ``analyte``'s samples in ``result``. The same samples as shown (a new analysis of the
@@ -199,12 +201,17 @@ class ResultsModel(QAbstractTableModel):
         return tuple((known.get(r) or row_texts(r))[col] for r in rows)
 
     def _needs_attention(self, s: SampleResult) -> bool:
-        from ..core.inverse import QuantFlag  # loaded: rows exist only once a result has arrived
-        from ..core.reporting import ReportStatus
+        terms = self._attention_terms
+        if terms is None:
+            from ..core.inverse import QuantFlag  # loaded: rows exist only once a result has arrived
+            from ..core.reporting import ReportStatus
 
-        if s.within_limits is False or s.status is not ReportStatus.IN_RANGE:
+            # looked up once, not once per row (an edit shades every row shown again)
+            terms = self._attention_terms = (ReportStatus.IN_RANGE, QuantFlag.UNBOUNDED_INTERVAL | QuantFlag.AMBIGUOUS_ROOT)
+        in_range, flagged = terms
+        if s.within_limits is False or s.status is not in_range:
             return True
-        return bool(s.flags and s.flags & (QuantFlag.UNBOUNDED_INTERVAL | QuantFlag.AMBIGUOUS_ROOT))
+        return bool(s.flags and s.flags & flagged)
 
     @property
     def _rule(self):  # type: ignore[no-untyped-def]

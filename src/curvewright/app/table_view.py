@@ -6,8 +6,9 @@ from __future__ import annotations
 import math
 from typing import Callable, TypeVar
 
-from PySide6.QtGui import QFontMetricsF, QGuiApplication, QKeySequence
-from PySide6.QtWidgets import QAbstractItemView, QTableView
+from PySide6.QtCore import QEvent, QRect
+from PySide6.QtGui import QAccessible, QFontMetricsF, QGuiApplication, QKeySequence, QPalette
+from PySide6.QtWidgets import QAbstractItemView, QAbstractScrollArea, QTableView
 
 
 ReasonProvider = Callable[[str], "str | None"]
@@ -208,6 +209,11 @@ def widen_to_rows_in_view(view: QTableView) -> None:
             view.setColumnWidth(c, need)
 
 
+_ADJUST_IGNORED = QAbstractScrollArea.SizeAdjustPolicy.AdjustIgnored
+_EDITING = QAbstractItemView.State.EditingState
+_ACTIVATION = (QEvent.Type.WindowActivate, QEvent.Type.WindowDeactivate)
+
+
 class FittedTableView(QTableView):
     """A table whose last column fills the room left whenever the table changes size, and whose
     columns widen when a wider cell scrolls into view."""
@@ -216,6 +222,46 @@ class FittedTableView(QTableView):
         super().__init__(parent)
         self.fit_when_shown = False
         self.verticalScrollBar().valueChanged.connect(lambda _value: widen_to_rows_in_view(self))
+
+    def viewportEvent(self, event) -> bool:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        """The window's activation repaints the table only where it can look different.
+
+        Qt's item views repaint all of their cells when the window is activated or deactivated (a
+        dialog opens or closes: the reason asked for a typed response), for the colours a selection
+        takes in an inactive window: 8 ms for the standards table here. With a palette whose inactive
+        colours are the active ones the table looks the same either way (``tests/app/test_repaint_scope.py``
+        compares it), and the cells are handled as any widget handles the event: repainted where the
+        palette differs, children told. The keyboard focus the window loses or regains reaches the
+        table apart, as in Qt."""
+        if event.type() in _ACTIVATION and self.palette().isEqual(QPalette.ColorGroup.Active, QPalette.ColorGroup.Inactive):
+            return False
+        return super().viewportEvent(event)
+
+    def dataChanged(self, top_left, bottom_right, roles=()) -> None:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        """Repaint the cells of a changed block, and nothing beside them.
+
+        For a block of more than one cell Qt marks for repainting the block's rectangle one pixel wider
+        and taller, into the next column and the next row: the grid line after the last cell and the
+        first pixel of each cell beyond it. The table then lays out and paints every cell that pixel
+        touches (its texts unchanged), which after an edit doubled the cells painted. Here a block in
+        plain rows and columns (none moved, no spans, both corner cells shown) marks the cells' own
+        rectangle, from the first cell's top left to the last cell's bottom right, the grid lines
+        between them included. What Qt does besides is done as Qt does it: the cell being edited, if
+        any in the block, is told on its own (its editor is given the new value), and a single cell, a
+        view that adjusts its size to its contents, the accessibility tools, a hidden view and moved
+        sections take Qt's own way."""
+        first, last = self.visualRect(top_left), self.visualRect(bottom_right)  # empty: hidden or not a cell here
+        if (top_left == bottom_right or first.isEmpty() or last.isEmpty() or not self.isVisible()
+                or self.horizontalHeader().sectionsMoved() or self.verticalHeader().sectionsMoved()
+                or QAccessible.isActive() or self.sizeAdjustPolicy() != _ADJUST_IGNORED):
+            super().dataChanged(top_left, bottom_right, roles)
+            return
+        if self.state() == _EDITING:
+            editing = self.currentIndex()
+            if (top_left.row() <= editing.row() <= bottom_right.row()
+                    and top_left.column() <= editing.column() <= bottom_right.column()):
+                super().dataChanged(editing, editing, roles)
+        self.viewport().update(QRect(first.topLeft(), last.bottomRight()))
 
     def showEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().showEvent(event)
