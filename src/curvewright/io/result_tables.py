@@ -42,7 +42,7 @@ class Column:
 
     name: str
     unit: str = ""
-    kind: str = "text"  # text | number | int | reported
+    kind: str = "text"  # text | number | int | reported | words (the program's text, numbers inside it)
     display: str = ""
 
     @property
@@ -180,11 +180,11 @@ def samples_table(result: RunResult) -> Table:
     unit = {a.analyte.name: a.analyte.concentration_unit for a in result.analytes}
     columns = (
         Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Run order", kind="int"),
-        Column("Replicates", kind="int"), Column("Replicate responses"), Column("Mean response", kind="number", display="sig:6"),
+        Column("Replicates", kind="int"), Column("Replicate responses", kind="words"), Column("Mean response", kind="number", display="sig:6"),
         Column("Estimated concentration", kind="number", display="rule"), Column("Dilution factor", kind="number", display="plain"),
         Column("Concentration × dilution", kind="number", display="rule"), Column("Reported", kind="reported"),
         Column("Lower limit", kind="number", display="sig:5"), Column("Upper limit", kind="number", display="sig:5"),
-        Column("Interval"), Column("Unit"), Column("Status"), Column("Flags"),
+        Column("Interval", kind="words"), Column("Unit"), Column("Status"), Column("Flags", kind="words"),
         Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="plain"),
         Column("Recovery (%)", kind="number", display="dec:1"), Column("QC or check"),
     )
