@@ -166,7 +166,8 @@ def printed(table: Table, rule=None, note: str = "") -> PrintedTable:  # type: i
     from .result_tables import format_value
 
     return PrintedTable(table.title, tuple(c.heading for c in table.columns),
-                        tuple(tuple(format_value(v, c, rule) for v, c in zip(row, table.columns)) for row in table.rows),
+                        tuple(tuple(format_value(v, c, rule) for v, c in zip(row, table.columns_for(row)))
+                              for row in table.rows),
                         tuple(c.kind in ("number", "int", "reported") for c in table.columns), note)
 
 
