@@ -10,6 +10,7 @@ import json
 import math
 import re
 from dataclasses import dataclass
+from functools import cached_property
 from typing import Any
 
 import numpy as np
@@ -142,28 +143,47 @@ class Table:
     def columns_for(self, row: tuple[Value, ...]) -> tuple[Column, ...]:
         """The columns as they show the numbers of ``row``: a display that depends on the row (see
         :class:`Column`) settled to ``"dec:N"``, ``"plain"`` or ``"sig:6"``; the others as they are."""
-        if not any(c.display == "interval" or c.display.startswith("entered:") for c in self.columns):
+        plan = self._row_displays
+        if plan is None:
             return self.columns
-        ends = [i for i, c in enumerate(self.columns) if c.display == "interval"]
+        ends, dependent, settled = plan
         interval = "sig:6"
-        if len(ends) == 2:
-            lower, upper = (row[i] for i in ends)
+        if ends is not None:
+            lower, upper = row[ends[0]], row[ends[1]]
             if isinstance(lower, float) and isinstance(upper, float) and math.isfinite(lower) and math.isfinite(upper):
-                places = interval_decimals(lower, upper, self.rounding)
-                interval = f"dec:{max(places, 0)}"
+                interval = f"dec:{max(interval_decimals(lower, upper, self.rounding), 0)}"
             else:
                 interval = "plain"  # an end without a number, or unbounded: the other end as display_number shows it
+        columns = list(self.columns)
+        for j, source in dependent:
+            if source is None:
+                display = interval
+            else:
+                places = entered_decimals(row[source]) if source >= 0 else None
+                display = "sig:6" if places is None else f"dec:{places}"
+            column = settled.get((j, display))
+            if column is None:
+                c = self.columns[j]
+                column = settled[(j, display)] = Column(c.name, c.unit, c.kind, display)
+            columns[j] = column
+        return tuple(columns)
+
+    @cached_property
+    def _row_displays(self):  # type: ignore[no-untyped-def]
+        """For :meth:`columns_for`, worked out once: the two interval columns (or None), each column
+        shown by its row with the column its display reads (None: the interval; -1: a column the
+        table lacks), and the settled columns made so far; None when no column depends on the row."""
         index = {c.name: i for i, c in enumerate(self.columns)}
-        settled = []
-        for c in self.columns:
+        dependent = []
+        for j, c in enumerate(self.columns):
             if c.display == "interval":
-                c = Column(c.name, c.unit, c.kind, interval)
+                dependent.append((j, None))
             elif c.display.startswith("entered:"):
-                source = index.get(c.display.partition(":")[2])
-                places = entered_decimals(row[source]) if source is not None else None
-                c = Column(c.name, c.unit, c.kind, "sig:6" if places is None else f"dec:{places}")
-            settled.append(c)
-        return tuple(settled)
+                dependent.append((j, index.get(c.display.partition(":")[2], -1)))
+        if not dependent:
+            return None
+        ends = [j for j, source in dependent if source is None]
+        return (tuple(ends) if len(ends) == 2 else None), tuple(dependent), {}
 
 
 def interval_words(run_result: RunResult, analyte: AnalyteResult | None = None) -> str:
