@@ -38,3 +38,13 @@ def test_an_interval_never_collapses_to_one_number_at_the_reported_rounding() ->
     # reported as "131" at three significant figures, the ends still differ on the page
     low, high = interval_text(130.79, 131.34, THREE).split(" – ")
     assert low != high and float(low) <= 130.79 + 0.005 and float(high) >= 131.34 - 0.005
+
+
+def test_decimals_as_entered() -> None:
+    from curvewright.io.result_tables import entered_decimals
+
+    assert entered_decimals("47.38") == 2 and entered_decimals("2173,732") == 3 and entered_decimals(" 90 ") == 0
+    assert entered_decimals("47.380") == 3 and entered_decimals("-0.0042") == 4 and entered_decimals("１２.５") == 1
+    # the text does not say: an exponent, thousands separators, not a number, more digits than a double holds
+    for text in ("4.738E1", "1,234.5", "n.d.", "", None, "0.12345678901234567"):
+        assert entered_decimals(text) is None, text

@@ -164,3 +164,14 @@ def test_a_calibration_that_cannot_read_back_still_exports_its_standards(tmp_pat
     rows = list(openpyxl.load_workbook(path)["Standards – tin"].iter_rows(min_row=4, values_only=True))
     excluded = [r for r in rows if r[0] == "F-x"][0]
     assert excluded[6] is None and excluded[-1] == "vial broken"
+
+
+def test_decimal_comma_reaches_numbers_in_words_but_not_text_quoted_as_typed() -> None:
+    from curvewright.io.csv_export import decimal_comma_in_words
+
+    assert decimal_comma_in_words("below the reporting limit of 0.500 µg/L (LLOQ × dilution 2.5)") == \
+        "below the reporting limit of 0,500 µg/L (LLOQ × dilution 2,5)"
+    assert decimal_comma_in_words("12.5 | 3.0 | 1e-05 | 2.5e-07") == "12,5 | 3,0 | 1e-05 | 2,5e-07"
+    assert decimal_comma_in_words("replicate 2: response '1.2.3' is not a number; the sample's mean of 4.5") == \
+        "replicate 2: response '1.2.3' is not a number; the sample's mean of 4,5"
+    assert decimal_comma_in_words("response is censored (<0.5). Read again.") == "response is censored (<0,5). Read again."

@@ -63,7 +63,7 @@ def test_every_table_has_frozen_headings_a_filter_and_fitted_columns(demo_book) 
             assert max(len(w) for w in column.heading.split()) <= width, (sheet.title, column.heading)
             # every value shows whole, unless the column is held at the widest and the text wraps in its cell
             for i, row in enumerate(table.rows):
-                shown = format_value(row[j - 1], column, table.rounding)
+                shown = format_value(row[j - 1], table.columns_for(row)[j - 1], table.rounding)
                 cell = sheet.cell(HEADER_ROW + 1 + i, j)
                 assert len(shown) <= width or (width == 60 and cell.alignment.wrap_text), \
                     (sheet.title, column.heading, shown, width)
@@ -77,7 +77,7 @@ def test_numbers_keep_every_digit_and_show_as_the_record_prints_them(demo_book) 
     for table in all_tables(result):
         sheet = book[table.title[:31]]
         for i, row in enumerate(table.rows):
-            for j, (value, column) in enumerate(zip(row, table.columns), start=1):
+            for j, (value, column) in enumerate(zip(row, table.columns_for(row)), start=1):
                 cell = sheet.cell(HEADER_ROW + 1 + i, j)
                 if isinstance(value, float) and value == value and abs(value) != float("inf"):
                     assert cell.value == value, (sheet.title, column.heading)  # full precision

@@ -35,6 +35,12 @@ FIT_SLACK = 1.0
 """Device units added to a column's width so that rounding never breaks its longest word."""
 LONGEST_UNBROKEN = 0.45
 """Fraction of the text width beyond which a single token may be broken (paths, hashes)."""
+BREAKABLE_WIDTH = 0.1
+"""Fraction of the text width beyond which an id in a column of ids may be broken (at "-", "_" or "/"
+where it has them), so that the numbers beside it keep their width."""
+BREAKABLE_SHARE = 0.25
+"""The most of the text width a column of ids claims when the columns share the room of a table that
+does not fit on one line per cell."""
 
 STYLES = {
     # name: (point size, bold, colour)
@@ -296,13 +302,16 @@ class RecordLayout:
 
     # --- tables --------------------------------------------------------------------------------------
     def table(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool],
-              note: str = "") -> None:
-        """A table in column groups that fit the page, rows never split, the header repeated."""
+              note: str = "", breakable: list[bool] | None = None) -> None:
+        """A table in column groups that fit the page, rows never split, the header repeated.
+        ``breakable`` marks columns of ids whose long words may be broken at "-", "_" or "/": they give
+        way to the other columns (see :meth:`_widths`)."""
+        breaks = breakable or [False] * len(headings)
         # each column's narrowest and natural widths, measured once for the groups and their parts
-        columns = [self._column_widths(h, [r[c] for r in rows]) for c, h in enumerate(headings)]
+        columns = [self._column_widths(h, [r[c] for r in rows], breaks[c]) for c, h in enumerate(headings)]
         for group, group_title in self._column_groups(title, headings, [m for m, _ in columns]):
             self._table_part(group_title, [headings[c] for c in group], [[r[c] for c in group] for r in rows],
-                             [numeric[c] for c in group], [columns[c] for c in group])
+                             [numeric[c] for c in group], [columns[c] for c in group], [breaks[c] for c in group])
         if note:
             self.paragraph(note, "small")
 
@@ -328,10 +337,14 @@ class RecordLayout:
         longest = max((self.m.width(style, str(t)) for t in texts), default=0.0)
         return min(longest, 0.6 * self.width) + 2 * CELL_PAD_X + FIT_SLACK
 
-    def _column_widths(self, heading: str, cells: list[str]) -> tuple[float, float]:
-        """A column's narrowest width (no word broken) and its natural width (each cell on one line,
-        the heading on at most about two)."""
-        narrowest = max(self._min_width([heading], "table_header"), self._min_width(cells, "table"))
+    def _column_widths(self, heading: str, cells: list[str], breakable: bool = False) -> tuple[float, float]:
+        """A column's narrowest width (no word broken; in a ``breakable`` column no word of the heading,
+        and an id's words broken beyond :data:`BREAKABLE_WIDTH` of the text width) and its natural
+        width (each cell on one line, the heading on at most about two)."""
+        cells_narrowest = self._min_width(cells, "table")
+        if breakable:
+            cells_narrowest = min(cells_narrowest, BREAKABLE_WIDTH * self.width + 2 * CELL_PAD_X + FIT_SLACK)
+        narrowest = max(self._min_width([heading], "table_header"), cells_narrowest)
         natural = max(narrowest, self._full_width(cells, "table"),
                       min(self._full_width([heading], "table_header"), 2.2 * narrowest))
         return narrowest, natural
@@ -350,12 +363,25 @@ class RecordLayout:
         return [(g, title if i == 0 else f"{title} (continued: {', '.join(headings[c] for c in g[1:])})")
                 for i, g in enumerate(groups)]
 
-    def _widths(self, columns: list[tuple[float, float]]) -> list[float]:
-        """The columns' widths: natural where they all fit, else each narrowest width with a share of
-        the room that is left."""
+    def _widths(self, columns: list[tuple[float, float]], breakable: list[bool] | None = None) -> list[float]:
+        """The columns' widths: natural where they all fit; else, where the other columns fit at their
+        natural widths beside the ``breakable`` ones at their narrowest, those others natural and the
+        breakable ones sharing the room left; else each narrowest width with a share of the room that
+        is left."""
         mins, fulls = [m for m, _ in columns], [f for _, f in columns]
         if sum(fulls) <= self.width:
             return fulls
+        if breakable and any(breakable):
+            fixed = sum(f for f, b in zip(fulls, breakable) if not b)
+            give_way = [(m, f) for (m, f), b in zip(columns, breakable) if b]
+            spare = self.width - fixed - sum(m for m, _ in give_way)
+            if spare >= 0:
+                extra = sum(f - m for m, f in give_way) or 1.0
+                return [m + (f - m) * spare / extra if b else f for (m, f), b in zip(columns, breakable)]
+            # a breakable column claims a share of the room as if its ids needed no more than a quarter
+            # of the width on one line: long ids wrap, the numbers keep their room
+            fulls = [min(f, max(m, BREAKABLE_SHARE * self.width)) if b else f
+                     for (m, f), b in zip(columns, breakable)]
         spare = self.width - sum(mins)
         extra = sum(f - m for f, m in zip(fulls, mins)) or 1.0
         return [m + (f - m) * max(spare, 0.0) / extra for m, f in zip(mins, fulls)]
@@ -366,8 +392,8 @@ class RecordLayout:
         return lines * self.m.line_height(style) + 2 * CELL_PAD_Y, wrapped
 
     def _table_part(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool],
-                    columns: list[tuple[float, float]]) -> None:
-        widths = self._widths(columns)
+                    columns: list[tuple[float, float]], breakable: list[bool] | None = None) -> None:
+        widths = self._widths(columns, breakable)
         line_h = self.m.line_height("table")
         aligns = [_RIGHT if right else _LEFT for right in numeric]
         header_h, header_lines = self._row_height(headings, widths, "table_header")

@@ -47,7 +47,7 @@ def lay_out(content: ReportContent, device):  # type: ignore[no-untyped-def]
         elif isinstance(block, (PrintedTable, Table)):
             table = block if isinstance(block, PrintedTable) else printed(block, rule)
             layout.table(table.title, list(table.headings), [list(r) for r in table.rows], list(table.numeric),
-                         table.note)
+                         table.note, list(table.breakable) or None)
         elif isinstance(block, FigureSlot):
             layout.figure(record_figure(content, block, level), block.caption)
         elif isinstance(block, SignatureLines):

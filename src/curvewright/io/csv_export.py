@@ -2,7 +2,10 @@
 
 The first two lines start with "#": the caution, then the format (delimiter, decimal mark, text
 protection). Numbers are written at full precision (shortest round-trip repr), with a decimal comma
-when asked; the delimiter then cannot be a comma. Text that a spreadsheet could read as a formula
+when asked; the delimiter then cannot be a comma. The decimal mark holds for the numbers inside the
+program's own texts too (the reported text, the replicate responses, the flags and the interval's
+words: columns of kind "reported" or "words"), while text as the analyst typed it (a sample id, a
+unit, a refused entry quoted back) is written as it stands. Text that a spreadsheet could read as a formula
 is preceded by an apostrophe (:mod:`.safe_text`). Every field holding the delimiter, a double
 quote, a carriage return or a line feed is quoted (RFC 4180, with embedded quotes doubled), so no
 character inside a field can start a new record.
@@ -12,6 +15,7 @@ from __future__ import annotations
 
 import io
 from pathlib import Path
+import re
 from typing import Sequence
 
 from .. import CAUTION, __version__
@@ -23,6 +27,9 @@ from .result_tables import Table, samples_table
 from .safe_text import csv_safe
 
 DELIMITERS = {",": "comma", ";": "semicolon", "\t": "tab"}
+_QUOTED = re.compile(r"""(?<!\w)'[^']*'(?!\w)|(?<!\w)"[^"]*"(?!\w)""")
+"""Text quoted back as it was typed (a refused entry, 'n.d.'): its points are the analyst's own."""
+_DECIMAL_POINT = re.compile(r"(?<=\d)\.(?=\d)")
 
 
 def write_csv(result: RunResult, path: str | Path, *, delimiter: str = ",", decimal_mark: str = ".") -> str:
@@ -73,7 +80,18 @@ def _field(value: object, kind: str, decimal_mark: str) -> str:
         text = str(value)
     else:
         text = str(value)
-        if kind != "reported":
+        if kind not in ("reported", "words") or decimal_mark != ",":
             return csv_safe(text)
-        return csv_safe(text.replace(".", ",") if decimal_mark == "," else text)
+        return csv_safe(decimal_comma_in_words(text))
     return text.replace(".", ",") if decimal_mark == "," else text
+
+
+def decimal_comma_in_words(text: str) -> str:
+    """``text`` with the decimal point of every number in it ("0.500 µg/L", "133.925 | 3454.305",
+    "× dilution 2.5") written as a comma; text quoted back as typed keeps its points."""
+    out, at = [], 0
+    for quoted in _QUOTED.finditer(text):
+        out += [_DECIMAL_POINT.sub(",", text[at:quoted.start()]), quoted.group()]
+        at = quoted.end()
+    out.append(_DECIMAL_POINT.sub(",", text[at:]))
+    return "".join(out)

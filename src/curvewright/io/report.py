@@ -124,6 +124,8 @@ class PrintedTable:
     rows: tuple[tuple[str, ...], ...]
     numeric: tuple[bool, ...]
     note: str = ""
+    breakable: tuple[bool, ...] = ()
+    """Columns of ids whose long words may be broken so that the other columns keep their width."""
 
 
 Block = Paragraph | PrintedTable | Table | FigureSlot | PageBreak | Section | SignatureLines
@@ -166,7 +168,8 @@ def printed(table: Table, rule=None, note: str = "") -> PrintedTable:  # type: i
     from .result_tables import format_value
 
     return PrintedTable(table.title, tuple(c.heading for c in table.columns),
-                        tuple(tuple(format_value(v, c, rule) for v, c in zip(row, table.columns)) for row in table.rows),
+                        tuple(tuple(format_value(v, c, rule) for v, c in zip(row, table.columns_for(row)))
+                              for row in table.rows),
                         tuple(c.kind in ("number", "int", "reported") for c in table.columns), note)
 
 
@@ -447,7 +450,8 @@ def _samples_printed(result: RunResult, a: AnalyteResult) -> PrintedTable:
                                    if used & {w.strip() for w in short.split("/")}) + ". " + \
              "Each sample's flags in full are in the workbook."
     return PrintedTable(f"Samples – {a.analyte.name}", SAMPLE_COLUMNS, tuple(rows),
-                        (False, False, True, True, True, True, True, True, False, True, False), legend)
+                        (False, False, True, True, True, True, True, True, False, True, False), legend,
+                        (True,) + (False,) * (len(SAMPLE_COLUMNS) - 1))
 
 
 def precision_appendix(result: RunResult) -> list[Block]:

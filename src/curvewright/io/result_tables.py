@@ -8,7 +8,9 @@ from __future__ import annotations
 
 import json
 import math
+import re
 from dataclasses import dataclass
+from functools import cached_property
 from typing import Any
 
 import numpy as np
@@ -18,6 +20,7 @@ from ..core.errors import CurvewrightError
 from ..core.models import Model
 from ..core.rounding import RoundingRule
 from ..core.reporting import ReportStatus
+from .number_text import clean
 from .audit import chain_claim, verify_chain  # noqa: F401 - chain_claim: where the record and the tables take it
 
 TYPE_CHECKING = False
@@ -36,13 +39,17 @@ class Column:
     (N significant figures), ``"dec:N"`` (N decimals), ``"signed:N"`` (N decimals with a sign),
     ``"plain"`` (up to six significant figures without trailing zeros: for values as a person
     set them, such as a nominal concentration, a dilution factor or a tolerance) or ``""`` (six
-    significant figures). The workbook keeps every number at full precision and only
+    significant figures). Two depend on the row (:meth:`Table.columns_for` settles them):
+    ``"interval"`` (an end of the interval whose two ends are the table's two ``"interval"``
+    columns, shown as :func:`interval_text` prints the pair) and ``"entered:NAME"`` (a response
+    shown with the decimals it was entered with, the text in column NAME of the row). Unsettled,
+    they show six significant figures. The workbook keeps every number at full precision and only
     formats it so; the printed record prints it so.
     """
 
     name: str
     unit: str = ""
-    kind: str = "text"  # text | number | int | reported
+    kind: str = "text"  # text | number | int | reported | words (the program's text, numbers inside it)
     display: str = ""
 
     @property
@@ -133,6 +140,51 @@ class Table:
         return Table(title or self.title, tuple(self.columns[index[n]] for n in names),
                      tuple(tuple(r[index[n]] for n in names) for r in rows), self.rounding)
 
+    def columns_for(self, row: tuple[Value, ...]) -> tuple[Column, ...]:
+        """The columns as they show the numbers of ``row``: a display that depends on the row (see
+        :class:`Column`) settled to ``"dec:N"``, ``"plain"`` or ``"sig:6"``; the others as they are."""
+        plan = self._row_displays
+        if plan is None:
+            return self.columns
+        ends, dependent, settled = plan
+        interval = "sig:6"
+        if ends is not None:
+            lower, upper = row[ends[0]], row[ends[1]]
+            if isinstance(lower, float) and isinstance(upper, float) and math.isfinite(lower) and math.isfinite(upper):
+                interval = f"dec:{max(interval_decimals(lower, upper, self.rounding), 0)}"
+            else:
+                interval = "plain"  # an end without a number, or unbounded: the other end as display_number shows it
+        columns = list(self.columns)
+        for j, source in dependent:
+            if source is None:
+                display = interval
+            else:
+                places = entered_decimals(row[source]) if source >= 0 else None
+                display = "sig:6" if places is None else f"dec:{places}"
+            column = settled.get((j, display))
+            if column is None:
+                c = self.columns[j]
+                column = settled[(j, display)] = Column(c.name, c.unit, c.kind, display)
+            columns[j] = column
+        return tuple(columns)
+
+    @cached_property
+    def _row_displays(self):  # type: ignore[no-untyped-def]
+        """For :meth:`columns_for`, worked out once: the two interval columns (or None), each column
+        shown by its row with the column its display reads (None: the interval; -1: a column the
+        table lacks), and the settled columns made so far; None when no column depends on the row."""
+        index = {c.name: i for i, c in enumerate(self.columns)}
+        dependent = []
+        for j, c in enumerate(self.columns):
+            if c.display == "interval":
+                dependent.append((j, None))
+            elif c.display.startswith("entered:"):
+                dependent.append((j, index.get(c.display.partition(":")[2], -1)))
+        if not dependent:
+            return None
+        ends = [j for j, source in dependent if source is None]
+        return (tuple(ends) if len(ends) == 2 else None), tuple(dependent), {}
+
 
 def interval_words(run_result: RunResult, analyte: AnalyteResult | None = None) -> str:
     """How the run's intervals are computed, in words: for ``analyte``'s calibration, or for every analyte
@@ -180,11 +232,11 @@ def samples_table(result: RunResult) -> Table:
     unit = {a.analyte.name: a.analyte.concentration_unit for a in result.analytes}
     columns = (
         Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Run order", kind="int"),
-        Column("Replicates", kind="int"), Column("Replicate responses"), Column("Mean response", kind="number", display="sig:6"),
+        Column("Replicates", kind="int"), Column("Replicate responses", kind="words"), Column("Mean response", kind="number", display="sig:6"),
         Column("Estimated concentration", kind="number", display="rule"), Column("Dilution factor", kind="number", display="plain"),
         Column("Concentration × dilution", kind="number", display="rule"), Column("Reported", kind="reported"),
-        Column("Lower limit", kind="number", display="sig:5"), Column("Upper limit", kind="number", display="sig:5"),
-        Column("Interval"), Column("Unit"), Column("Status"), Column("Flags"),
+        Column("Lower limit", kind="number", display="interval"), Column("Upper limit", kind="number", display="interval"),
+        Column("Interval", kind="words"), Column("Unit"), Column("Status"), Column("Flags", kind="words"),
         Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="plain"),
         Column("Recovery (%)", kind="number", display="dec:1"), Column("QC or check"),
     )
@@ -318,7 +370,8 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
     columns = (
         Column("Standard id"), Column("Level"), Column("Replicate", kind="int"),
         Column("Nominal concentration", an.concentration_unit, "number", "plain"), Column("Response as entered"),
-        Column("Response used", kind="number", display="sig:6"),
+        Column("Response used", kind="number",
+               display="sig:6" if an.uses_internal_standard else "entered:Response as entered"),
         Column("Back-calculated", an.concentration_unit, "number", "rule"),
         Column("Relative error (%)", kind="number", display="signed:1"), Column("Tolerance (%)", kind="number", display="plain"),
         Column("Within limits"), Column("Leverage", kind="number", display="dec:3"),
@@ -491,7 +544,7 @@ def summary_table(result: RunResult) -> Table:
 
     columns = (Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Reported", kind="reported"), Column("Unit"),
                Column("Estimate × dilution", kind="number", display="rule"),
-               Column("Lower limit", kind="number", display="rule"), Column("Upper limit", kind="number", display="rule"),
+               Column("Lower limit", kind="number", display="interval"), Column("Upper limit", kind="number", display="interval"),
                Column("Status"), Column("Flags (short)"))
     rows = tuple(
         (s.sample_id, s.kind.words, s.analyte, s.reported_text or (None if s.reported is None else rule.text(s.reported)),
@@ -542,11 +595,34 @@ def interval_text(lower: float | None, upper: float | None, rule: RoundingRule |
     ends = (lower, upper)
     if not all(math.isfinite(v) for v in ends):
         return " – ".join(display_number(v, 6) for v in ends)
+    places = interval_decimals(lower, upper, rule)
+    return " – ".join(f"{v:.{max(places, 0)}f}" if places >= 0 else f"{round(v, places):.0f}" for v in ends)
+
+
+def interval_decimals(lower: float, upper: float, rule: RoundingRule | None = None) -> int:
+    """The decimal places :func:`interval_text` prints the finite ends of an interval with (negative:
+    rounded to tens, hundreds…, which only happens without a ``rule``)."""
     half = (upper - lower) / 2.0
     places = 1 - math.floor(math.log10(half)) if half > 0 else 0
     if rule is not None:
-        places = max(places, max(_decimal_places(rule.text(v)) for v in ends))
-    return " – ".join(f"{v:.{max(places, 0)}f}" if places >= 0 else f"{round(v, places):.0f}" for v in ends)
+        places = max(places, max(_decimal_places(rule.text(v)) for v in (lower, upper)))
+    return places
+
+
+_ENTERED = re.compile(r"^[+-]?\d*(?:[.,](\d*))?$")
+
+
+def entered_decimals(text: Value) -> int | None:
+    """The decimal places a number was typed with ("47.38": 2, "2173,732": 3, "90": 0); None when the
+    text does not say (exponent, thousands separators, not a number, or more digits than a double holds)."""
+    if not isinstance(text, str):
+        return None
+    t = clean(text)
+    match = _ENTERED.match(t)
+    if not t or match is None or not any(ch.isdigit() for ch in t):
+        return None
+    places = len(match.group(1) or "")
+    return places if sum(ch.isdigit() for ch in t.lstrip("+-0.,")) <= 15 else None
 
 
 def _decimal_places(text: str) -> int:

@@ -57,8 +57,17 @@ def freeze_cell(table: Table) -> str:
 
 
 def _shown(values: list[Value], column: Column, table: Table):  # type: ignore[no-untyped-def]
-    """The texts a reader sees in the column's cells (numbers measured on a sample and the extremes)."""
+    """The texts a reader sees in the column's cells (numbers measured on a sample and the extremes;
+    a column shown by its row (:meth:`~.result_tables.Table.columns_for`) each number as its row shows it)."""
     texts = (v for v in values if isinstance(v, str))
+    if column.display == "interval" or column.display.startswith("entered:"):
+        j = table.columns.index(column)
+        at = [i for i, v in enumerate(values) if isinstance(v, (int, float)) and not isinstance(v, bool)]
+        finite = [i for i in at if math.isfinite(float(values[i]))]  # type: ignore[arg-type]
+        unbounded = [i for i in at if not math.isfinite(float(values[i]))]  # type: ignore[arg-type]
+        extremes = (min(finite, key=values.__getitem__), max(finite, key=values.__getitem__)) if finite else ()
+        rows = chain(at[:MEASURED_NUMBERS], extremes, unbounded)
+        return chain(texts, (format_value(values[i], table.columns_for(table.rows[i])[j], table.rounding) for i in rows))
     numbers = [v for v in values if isinstance(v, (int, float)) and not isinstance(v, bool)]
     finite = [float(v) for v in numbers if math.isfinite(float(v))]
     extremes = [min(finite), max(finite)] if finite else []

@@ -2,7 +2,9 @@
 samples in full, a calibration, standards and checks sheet per analyte, signatures and the audit trail.
 
 Numbers are numeric cells at full double precision (written as their exact shortest repr), each with
-the number format that shows it as the printed record does (:func:`.result_tables.excel_format`); the
+the number format that shows it as the printed record does (:func:`.result_tables.excel_format`, in
+each row as :meth:`.result_tables.Table.columns_for` settles it: an interval's ends to the record's
+digits, a response with the decimals it was entered with); the
 "Reported" column holds the value rounded under the run's rule, displayed with exactly its digits.
 Each sheet has its columns fitted to what they show (:mod:`.sheet_layout`), its headings frozen, an
 autofilter over its table and a print set-up one page wide with the headings repeated. Every text cell is a string
@@ -116,7 +118,7 @@ def _build(tables: list[Table], progress: Progress | None, target: Path | IO[byt
             sheet.append(headings)
             cells = _NumberCells(sheet, table, widths)
             for row in table.rows:
-                sheet.append([cells.cell(j, value) for j, value in enumerate(row)])
+                sheet.append(cells.row(row))
                 done += 1
                 if progress is not None and done % 5000 == 0:
                     progress(done, total)
@@ -228,9 +230,15 @@ class _NumberCells:
         self.wrap_beyond = [w - MARGIN if w >= MAX_WIDTH else math.inf for w in widths]
         """Text longer than its column, in a column held at the widest, wraps inside its cell."""
         self._styled: dict[tuple[int, str], object] = {}
+        self._columns_for = table.columns_for
 
-    def cell(self, j: int, value: Value):  # type: ignore[no-untyped-def]
-        column = self.columns[j]
+    def row(self, row: tuple[Value, ...]) -> list:  # type: ignore[type-arg]
+        """The cells of one row, each number shown as the record prints it in this row."""
+        columns = self._columns_for(row)
+        return [self.cell(j, value, columns[j]) for j, value in enumerate(row)]
+
+    def cell(self, j: int, value: Value, column=None):  # type: ignore[no-untyped-def]
+        column = self.columns[j] if column is None else column
         if value is None:
             return None
         if isinstance(value, float) and not math.isfinite(value):
