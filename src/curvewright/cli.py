@@ -379,15 +379,14 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
     if args.jobs > 1 and len(paths) > 1:
         import multiprocessing
 
-        # Each pool process sends back its runs' JSON text, written as it will stand in the list,
-        # rather than the results to be written here one after the other; runs go out in chunks, so
-        # that the processes stay busy without a round trip per run. Where processes can be forked,
-        # the modules an analysis needs are loaded here first, once, and the pool processes start
-        # with them loaded instead of each importing them again; this process is then one of the
-        # --jobs: it analyses the first run (which loads what its analysis asks for on the way) and
-        # then takes chunks from the end of the list that no pool process has started, while the
-        # other --jobs - 1 processes work from the front (not when a record is drawn: Qt is not
-        # loaded in a process that is then forked, so all the runs go to the pool).
+        # Each other process sends back its runs' JSON text, written as it will stand in the list,
+        # rather than the results to be written here one after the other. Where processes can be
+        # forked, the modules an analysis needs are loaded here first, once, and the other processes
+        # start with them loaded instead of each importing them again; this process is then one of
+        # the --jobs: it analyses the first run (which loads what its analysis asks for on the way),
+        # forks the other --jobs - 1 and takes runs one at a time from the same shared counter as
+        # they do, so that no process waits for another at the end (not when a record is drawn: Qt
+        # is not loaded in a process that is then forked, so all the runs go to a pool).
         # Forking is left to Linux: on macOS a forked process may crash in the system's own libraries,
         # which is why Python starts processes afresh there (as on Windows, and here everywhere else).
         forked = sys.platform.startswith("linux") and "fork" in multiprocessing.get_all_start_methods()
@@ -399,12 +398,9 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
             outcomes.append(_quantify_file_in_list(paths[0], settings))
             if progress:
                 progress.step(paths[0].name)
-        rest = paths[len(outcomes):]
-        workers = args.jobs - 1 if works_here else args.jobs
-        if rest and workers > 0:
-            outcomes += _share_runs(rest, settings, workers, works_here, forked, progress)
+            outcomes += _share_forked(paths[1:], settings, args.jobs - 1, progress)
         else:
-            outcomes += [_quantify_in_list_shown(path, settings, progress) for path in rest]
+            outcomes += _share_runs(paths, settings, args.jobs, forked, progress)
     else:
         outcomes = [_quantify_in_list_shown(path, settings, progress, in_list=False) for path in paths]
     if progress:
@@ -420,44 +416,110 @@ def _quantify_in_list_shown(path: Path, settings: dict[str, Any], progress: _Pro
     return outcome
 
 
-def _share_runs(paths: list[Path], settings: dict[str, Any], workers: int, works_here: bool, forked: bool,
-                progress: _Progress | None) -> list[Outcome]:
-    """The outcomes of ``paths`` in their order, analysed by ``workers`` pool processes and, when
-    ``works_here``, by this process too.
+def _share_forked(paths: list[Path], settings: dict[str, Any], others: int,
+                  progress: _Progress | None) -> list[Outcome]:
+    """The outcomes of ``paths`` in their order, analysed by this process and ``others`` processes
+    forked from it.
 
-    The runs go to the pool in chunks. A chunk that no pool process has started yet can still be
-    withdrawn from the pool (its future cancelled); this process withdraws chunks from the end of
-    the list one at a time and analyses them itself, until the pool has started the next one."""
+    Every process takes the next run from one counter they share, one run at a time, so all of them
+    stop within about one run of each other. A forked process tells this one the number of each run
+    it finishes (for the progress bar) and, at the end, sends its outcomes in one message. A run whose
+    outcome never arrives (a process that died) is analysed here afterwards."""
+    import gc
+    import multiprocessing
+
+    if not paths:
+        return []
+    context = multiprocessing.get_context("fork")
+    counter = context.RawValue("l", 0)
+    lock = context.Lock()
+
+    def take() -> int:
+        with lock:
+            k = counter.value
+            counter.value = k + 1
+        return k
+
+    links, processes = [], []
+    gc.freeze()  # the objects made so far are left alone by the collector: their pages stay shared
+    try:
+        for _ in range(min(others, len(paths) - 1)):
+            receiving, sending = context.Pipe(duplex=False)
+            process = context.Process(target=_share_forked_part, args=(paths, settings, take, sending), daemon=True)
+            process.start()
+            sending.close()
+            links.append(receiving)
+            processes.append(process)
+    finally:
+        gc.unfreeze()
+    done: dict[int, Outcome] = {}
+    names = [path.name for path in paths]
+
+    def show(k: int) -> None:
+        if progress:
+            progress.step(names[k])
+
+    def hear(link, wait: bool) -> bool:  # type: ignore[no-untyped-def]
+        """Take the messages a forked process has sent (waiting for its last when ``wait``);
+        True once its outcomes are in or it is gone."""
+        try:
+            while wait or link.poll():
+                message = link.recv()
+                if isinstance(message, int):
+                    show(message)
+                else:
+                    done.update(message)
+                    return True
+        except (EOFError, OSError):
+            return True
+        return False
+
+    listening = list(links)
+    while (k := take()) < len(paths):
+        done[k] = _quantify_file_in_list(paths[k], settings)
+        show(k)
+        listening = [link for link in listening if not hear(link, wait=False)]
+    for link in listening:
+        hear(link, wait=True)
+    for link in links:
+        link.close()
+    for process in processes:
+        process.join()
+    for k in range(len(paths)):
+        if k not in done:  # its process died before sending it
+            done[k] = _quantify_file_in_list(paths[k], settings)
+            show(k)
+    return [done[k] for k in range(len(paths))]
+
+
+def _share_forked_part(paths: list[Path], settings: dict[str, Any], take, link) -> None:  # type: ignore[no-untyped-def]
+    """A forked process's part of :func:`_share_forked`: runs taken from the shared counter until
+    none is left; the number of each as it is finished, then the outcomes in one message."""
+    done: dict[int, Outcome] = {}
+    while (k := take()) < len(paths):
+        done[k] = _quantify_file_in_list(paths[k], settings)
+        link.send(k)
+    link.send(done)
+    link.close()
+
+
+def _share_runs(paths: list[Path], settings: dict[str, Any], workers: int, forked: bool,
+                progress: _Progress | None) -> list[Outcome]:
+    """The outcomes of ``paths`` in their order, analysed by a pool of ``workers`` processes, in
+    chunks of runs (where this process draws a record, or cannot fork)."""
     import multiprocessing
     from concurrent.futures import ProcessPoolExecutor
 
-    processes = workers + (1 if works_here else 0)
-    size = max(1, min(16, len(paths) // (4 * processes)))
+    size = max(1, min(16, len(paths) // (4 * workers)))
     chunks = [paths[i:i + size] for i in range(0, len(paths), size)]
-    done_here: dict[int, list[Outcome]] = {}
-    shown = 0
-
-    def show_finished(futures) -> None:  # type: ignore[no-untyped-def]
-        """Step the progress bar over the pool's chunks that are finished, in the list's order."""
-        nonlocal shown
-        while progress and shown < len(chunks) and (shown in done_here or futures[shown].done()):
-            for path in chunks[shown]:
-                progress.step(path.name)
-            shown += 1
-
+    outcomes: list[Outcome] = []
     with ProcessPoolExecutor(max_workers=workers,
                              mp_context=multiprocessing.get_context("fork" if forked else "spawn")) as pool:
-        futures = [pool.submit(_quantify_chunk, chunk, settings) for chunk in chunks]
-        if works_here:
-            for k in range(len(chunks) - 1, -1, -1):
-                if not futures[k].cancel():
-                    break
-                done_here[k] = [_quantify_file_in_list(path, settings) for path in chunks[k]]
-                show_finished(futures)
-        outcomes: list[Outcome] = []
-        for k in range(len(chunks)):
-            outcomes += done_here[k] if k in done_here else futures[k].result()
-            show_finished(futures)
+        for chunk, future in [(chunk, pool.submit(_quantify_chunk, chunk, settings)) for chunk in chunks]:
+            outcomes += future.result()
+            if progress:
+                for path in chunk:
+                    progress.step(path.name)
     return outcomes
 
 
