@@ -22,11 +22,12 @@ import json
 import os
 import sys
 import traceback
-from dataclasses import dataclass, field, replace
+from dataclasses import field, replace
 from pathlib import Path
 from typing import Any, Iterator, Mapping, Sequence
 
 from . import CAUTION, __version__
+from .core.values import frozen_value
 
 EXIT_ACCEPTED, EXIT_REJECTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
@@ -221,7 +222,7 @@ UNNAMED_ANALYTE = "unnamed analyte"
 GIVEN = "given on the command line"
 
 
-@dataclass(frozen=True)
+@frozen_value
 class ModelChoice:
     """How an analyte's model and weighting were chosen for this calculation, and why.
 
@@ -318,7 +319,7 @@ def expand_runs(patterns: Sequence[str]) -> list[Path]:
 
 
 # --- quantify ---------------------------------------------------------------------------------------
-@dataclass(frozen=True)
+@frozen_value
 class Outcome:
     code: int
     text: str
@@ -649,7 +650,7 @@ def _record_choice(run, analyte: str, model: str, weighting: str, reason: str,  
     return run_edits.choose_model(run, analyte, model, weighting, reason, recommended=recommended, user=user)
 
 
-@dataclass(frozen=True)
+@frozen_value
 class TableRun:
     """A run built from tables, with what the import found."""
 
