@@ -268,6 +268,26 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_INTERNAL
 
 
+def end_command(args: Sequence[str], code: int) -> int:
+    """End the process of a ``quantify`` started as the program once its output is written, with
+    ``code``, without the interpreter's teardown (freeing every object of numpy, scipy and the engine
+    one by one, about 40 ms of CPU after one run and 0.1 s after 200). Its files are written and
+    closed, its forked processes joined; where output cannot be flushed, another thread is still
+    running or Qt was loaded (a record was drawn), ``code`` is returned and the interpreter ends the
+    process as usual."""
+    if not args or args[0] != "quantify" or "PySide6" in sys.modules:
+        return code
+    threading = sys.modules.get("threading")
+    try:
+        if threading is not None and threading.active_count() > 1:
+            return code
+        sys.stdout.flush()
+        sys.stderr.flush()
+    except Exception:  # noqa: BLE001 - the interpreter reports it at its end, as it always has
+        return code
+    os._exit(code)
+
+
 def _one_blas_thread() -> None:
     """Ask the linear algebra library numpy and scipy load for one thread, unless the user chose.
 
@@ -1395,4 +1415,4 @@ def cmd_keys(args: argparse.Namespace) -> int:
 
 
 if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
+    sys.exit(end_command(sys.argv[1:], main()))
