@@ -443,9 +443,10 @@ def _share_forked(paths: list[Path], settings: dict[str, Any], others: int,
     forked from it.
 
     Every process takes the next run from one counter they share, one run at a time, so all of them
-    stop within about one run of each other. A forked process tells this one the number of each run
-    it finishes (for the progress bar) and, at the end, sends its outcomes in one message. A run whose
-    outcome never arrives (a process that died) is analysed here afterwards."""
+    stop within about one run of each other. A forked process sends each run's number and outcome as
+    it finishes it, and this one takes them in between its own runs (so that little is left to send
+    at the end), then a last word when it has no more. A run whose outcome never arrives (a process
+    that died) is analysed here afterwards."""
     import gc
     import multiprocessing
 
@@ -481,16 +482,16 @@ def _share_forked(paths: list[Path], settings: dict[str, Any], others: int,
             progress.step(names[k])
 
     def hear(link, wait: bool) -> bool:  # type: ignore[no-untyped-def]
-        """Take the messages a forked process has sent (waiting for its last when ``wait``);
-        True once its outcomes are in or it is gone."""
+        """Take the outcomes a forked process has sent (waiting for its last word when ``wait``);
+        True once it has no more or is gone."""
         try:
             while wait or link.poll():
                 message = link.recv()
-                if isinstance(message, int):
-                    show(message)
-                else:
-                    done.update(message)
+                if message is None:
                     return True
+                k, outcome = message
+                done[k] = outcome
+                show(k)
         except (EOFError, OSError):
             return True
         return False
@@ -515,12 +516,10 @@ def _share_forked(paths: list[Path], settings: dict[str, Any], others: int,
 
 def _share_forked_part(paths: list[Path], settings: dict[str, Any], take, link) -> None:  # type: ignore[no-untyped-def]
     """A forked process's part of :func:`_share_forked`: runs taken from the shared counter until
-    none is left; the number of each as it is finished, then the outcomes in one message."""
-    done: dict[int, Outcome] = {}
+    none is left, each run's number and outcome sent as it is finished, then None."""
     while (k := take()) < len(paths):
-        done[k] = _quantify_file_in_list(paths[k], settings)
-        link.send(k)
-    link.send(done)
+        link.send((k, _quantify_file_in_list(paths[k], settings)))
+    link.send(None)
     link.close()
 
 
