@@ -194,3 +194,17 @@ def test_other_commands_and_calls_with_arguments_end_as_usual() -> None:
                            cwd=ROOT, timeout=300)
     assert other.returncode == 0, other.stderr
     assert "interpreter teardown" in other.stderr
+
+
+@pytest.mark.parametrize("collecting", [True, False])
+def test_the_collector_is_left_as_it_was_found(collecting: bool) -> None:
+    """The cyclic garbage collector is paused while quantify loads the engine and scipy.special, and
+    afterwards collects (or not) as before the command."""
+    code = ("import contextlib, gc, io, sys\n"
+            f"{'gc.enable()' if collecting else 'gc.disable()'}\n"
+            "from curvewright.cli import main\n"
+            "with contextlib.redirect_stdout(io.StringIO()):\n"
+            f"    code = main(['quantify', {str(RUN)!r}, '--json'])\n"
+            "print(code, gc.isenabled(), 'scipy.special' in sys.modules)")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=300)
+    assert done.stdout.split() == ["0", str(collecting), "True"], done.stderr

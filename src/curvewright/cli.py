@@ -423,6 +423,7 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
         else:
             outcomes += _share_runs(paths, settings, args.jobs, forked, progress)
     else:
+        _load_for_runs(settings)
         outcomes = [_quantify_in_list_shown(path, settings, progress, in_list=False) for path in paths]
     if progress:
         progress.done()
@@ -549,13 +550,24 @@ def _quantify_chunk(paths: list[Path], options: dict[str, Any]) -> list[Outcome]
 
 
 def _load_for_runs(options: dict[str, Any]) -> None:
-    """Import what analysing a run document and writing its results need (numpy, scipy and the
-    engine among them), so that processes forked afterwards have them already."""
-    from .core import run_analysis  # noqa: F401
-    from .io import audit, integrity, model_outputs, results_json, run_document  # noqa: F401
+    """Import what analysing a run document and writing its results need (numpy, scipy.special for
+    the t and F distributions, and the engine among them), so that processes forked afterwards have
+    them already. The cyclic garbage collector is paused meanwhile: importing makes many objects and
+    no garbage, and its passes over them took 10-30 ms of a start."""
+    import gc
 
-    if options.get("export"):
-        from .io import csv_export, xlsx_export  # noqa: F401
+    collecting = gc.isenabled()
+    gc.disable()
+    try:
+        from scipy import special  # noqa: F401
+        from .core import run_analysis  # noqa: F401
+        from .io import audit, integrity, model_outputs, results_json, run_document  # noqa: F401
+
+        if options.get("export"):
+            from .io import csv_export, xlsx_export  # noqa: F401
+    finally:
+        if collecting:
+            gc.enable()
 
 
 def _options(args: argparse.Namespace) -> dict[str, Any]:
