@@ -116,18 +116,27 @@ def test_a_command_asks_for_one_blas_thread_unless_the_user_chose(tmp_path) -> N
     assert kept.stdout == chosen.stdout  # the same results either way
 
 
-@pytest.mark.parametrize("forked", [True, False] if sys.platform.startswith("linux") else [False])
-def test_a_pool_of_processes_gives_the_outcomes_of_one_process(tmp_path, forked) -> None:
+POOLED = """
+import json, sys
+from pathlib import Path
+from curvewright import cli
+
+folder, forked = Path(sys.argv[1]), sys.argv[2] == "fork"
+paths = sorted(folder.glob("*.json"))
+settings = cli._options(cli.build_parser("quantify").parse_args(["quantify", str(folder), "--json"]))
+pooled = cli._share_runs(paths, settings, 2, forked, None)
+here = [cli._quantify_file_in_list(path, settings) for path in paths]
+print(json.dumps([[[o.code, o.data.text, o.error, list(o.warnings)] for o in outcomes] for outcomes in (pooled, here)]))
+"""
+
+
+@pytest.mark.parametrize("start", ["fork", "spawn"] if sys.platform.startswith("linux") else ["spawn"])
+def test_a_pool_of_processes_gives_the_outcomes_of_one_process(tmp_path, start) -> None:
     """Where this process does not analyse runs itself (it draws records, or cannot fork), the runs go
     to a pool in chunks; the outcomes come back in the list's order, the same as analysed here."""
-    from pathlib import Path
-
-    from curvewright import cli
-
     folder = _folder(tmp_path, 9)
-    paths = sorted(Path(folder).glob("*.json"))
-    settings = cli._options(cli.build_parser("quantify").parse_args(["quantify", str(folder), "--json"]))
-    pooled = cli._share_runs(paths, settings, 2, forked, None)
-    here = [cli._quantify_file_in_list(path, settings) for path in paths]
-    assert [(o.code, o.data.text, o.error, o.warnings) for o in pooled] == \
-        [(o.code, o.data.text, o.error, o.warnings) for o in here]
+    done = subprocess.run([sys.executable, "-c", POOLED, str(folder), start], capture_output=True, text=True,
+                          cwd=ROOT, timeout=300)
+    assert done.returncode == 0, done.stderr
+    pooled, here = json.loads(done.stdout)
+    assert len(pooled) == 9 and pooled == here
