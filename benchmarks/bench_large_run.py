@@ -63,14 +63,19 @@ def write_tables(folder: Path, unknowns: int) -> tuple[Path, Path, np.ndarray, n
 
 
 _PEAK_REPORTER = (
-    "import atexit, runpy, sys\n"
-    "target = sys.argv[1]\n"
+    "import atexit, os, runpy, sys\n"
+    "target, me, end = sys.argv[1], os.getpid(), os._exit\n"
     "def report():\n"
     "    with open('/proc/self/status', encoding='ascii') as status:\n"
     "        kib = next(line.split()[1] for line in status if line.startswith('VmHWM:'))\n"
     "    with open(target, 'w', encoding='ascii') as out:\n"
     "        out.write(kib)\n"
+    "def report_and_end(code):\n"
+    "    if os.getpid() == me:\n"
+    "        report()\n"
+    "    end(code)\n"
     "atexit.register(report)\n"
+    "os._exit = report_and_end  # quantify ends its process without the interpreter's exit handlers\n"
     "if len(sys.argv) > 2:\n"
     "    sys.argv = ['curvewright', *sys.argv[2:]]\n"
     "    runpy.run_module('curvewright', run_name='__main__')\n"
@@ -79,7 +84,8 @@ _PEAK_REPORTER = (
 )
 """A process that writes its own peak resident memory (the kernel's high-water mark of this program,
 not of the process it was started from) to the file named first, then runs the command line with
-the rest of its arguments, or only imports numpy and scipy when there are none."""
+the rest of its arguments, or only imports numpy and scipy when there are none. The peak is written
+at the end of the process, whether it ends through the interpreter or (as ``quantify`` does) at once."""
 
 
 def _peak_of(arguments: list[str], stdout: Path | None, folder: Path) -> tuple[float, int]:

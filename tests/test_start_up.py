@@ -157,3 +157,54 @@ def test_every_public_name_resolves() -> None:
         assert getattr(curvewright, name) is not None
     with pytest.raises(AttributeError, match="no attribute 'nothing_here'"):
         curvewright.nothing_here  # noqa: B018 - the access is the check
+
+
+ENDS = ("import atexit, sys\n"
+        "atexit.register(lambda: print('interpreter teardown', file=sys.stderr))\n"
+        "from curvewright.__main__ import main\n"
+        "sys.exit(main())\n")
+
+
+@pytest.mark.parametrize("args", [(str(RUN), "--json"), (str(RUN),), ("no-such-run.json", "--json"),
+                                  (str(RUN), str(RUN), "--json", "--jobs", "2")])
+def test_quantify_as_the_program_ends_without_teardown_and_loses_nothing(args: tuple[str, ...]) -> None:
+    """``quantify`` started as the program ends its process once its output is written (the
+    interpreter's teardown, here an exit handler, never runs); its output and exit code are those
+    of the command run within a process that carries on."""
+    ended = subprocess.run([sys.executable, "-c", ENDS, "quantify", *args], capture_output=True, text=True,
+                           cwd=ROOT, timeout=300)
+    within = subprocess.run([sys.executable, "-c", "import sys\nfrom curvewright.cli import main\n"
+                             "code = main(sys.argv[1:])\nprint('carried on', file=sys.stderr)\nsys.exit(code)",
+                             "quantify", *args], capture_output=True, text=True, cwd=ROOT, timeout=300)
+    assert "interpreter teardown" not in ended.stderr
+    assert "carried on" in within.stderr
+    assert ended.returncode == within.returncode
+    assert ended.stdout == within.stdout and (ended.stdout.strip() or ended.returncode == 2)
+    assert ended.stderr == within.stderr.replace("carried on\n", "")
+
+
+def test_other_commands_and_calls_with_arguments_end_as_usual() -> None:
+    """Only ``quantify`` started as the program skips the teardown: ``main`` given its arguments
+    returns, and other commands end through the interpreter."""
+    given = subprocess.run([sys.executable, "-c", "from curvewright.__main__ import main\n"
+                            f"code = main(['quantify', {str(RUN)!r}, '--json'])\nprint('returned', code)"],
+                           capture_output=True, text=True, cwd=ROOT, timeout=300)
+    assert given.stdout.rstrip().endswith("returned 0")
+    other = subprocess.run([sys.executable, "-c", ENDS, "compare", str(RUN)], capture_output=True, text=True,
+                           cwd=ROOT, timeout=300)
+    assert other.returncode == 0, other.stderr
+    assert "interpreter teardown" in other.stderr
+
+
+@pytest.mark.parametrize("collecting", [True, False])
+def test_the_collector_is_left_as_it_was_found(collecting: bool) -> None:
+    """The cyclic garbage collector is paused while quantify loads the engine and scipy.special, and
+    afterwards collects (or not) as before the command."""
+    code = ("import contextlib, gc, io, sys\n"
+            f"{'gc.enable()' if collecting else 'gc.disable()'}\n"
+            "from curvewright.cli import main\n"
+            "with contextlib.redirect_stdout(io.StringIO()):\n"
+            f"    code = main(['quantify', {str(RUN)!r}, '--json'])\n"
+            "print(code, gc.isenabled(), 'scipy.special' in sys.modules)")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=300)
+    assert done.stdout.split() == ["0", str(collecting), "True"], done.stderr

@@ -28,9 +28,10 @@ def main(argv: Sequence[str] | None = None) -> int:
         if text is not None:
             sys.stdout.write(text)  # as argparse's print_help; it then exits with 0
             return 0
-    from .cli import main as run_command
+    from .cli import end_command, main as run_command
 
-    return run_command(args)
+    code = run_command(args)
+    return end_command(args, code) if argv is None else code  # started as the program: ended at once
 
 
 if __name__ == "__main__":

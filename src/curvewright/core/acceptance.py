@@ -15,7 +15,7 @@ Fractions are kept exact ("2/3", "3/4") so that 4 passing QCs out of 6 meet a tw
 from __future__ import annotations
 
 import json
-from dataclasses import dataclass, replace
+from dataclasses import replace
 from fractions import Fraction
 from functools import lru_cache
 from importlib import resources
@@ -24,6 +24,7 @@ from typing import TYPE_CHECKING, Any, Mapping
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .errors import ProfileError
 from .levels import Levels, group_levels
@@ -37,7 +38,7 @@ _BOUNDARY = 1e-9
 """Allowance (in % points) so that a back-calculated error of exactly the limit is not failed by round-off."""
 
 
-@dataclass(frozen=True)
+@frozen_value
 class StandardRules:
     tolerance_percent: float
     lowest_level_tolerance_percent: float
@@ -49,14 +50,14 @@ class StandardRules:
     count_excluded_as_failing: bool = True
 
 
-@dataclass(frozen=True)
+@frozen_value
 class QcRules:
     tolerance_percent: float
     min_fraction_passing: Fraction
     min_fraction_passing_per_level: Fraction
 
 
-@dataclass(frozen=True)
+@frozen_value
 class CheckRules:
     """Windows for the calibration checks, each in percent of the nominal (recovery within 100 ± window).
 
@@ -83,12 +84,12 @@ BELOW_LIMIT_RULES = ("censor", "estimate")
 (``censor``) or as the estimate with a qualifier that it is estimated (``estimate``)."""
 
 
-@dataclass(frozen=True)
+@frozen_value
 class ReportingRules:
     between_lod_and_reporting_limit: str = "censor"
 
 
-@dataclass(frozen=True)
+@frozen_value
 class AcceptanceVerdict:
     """Outcome of judging standards (or QC samples) against a profile.
 
@@ -105,7 +106,7 @@ class AcceptanceVerdict:
     relative_error: FloatArray
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class _Layout:
     """What judging depends on besides the back-calculated values (see :meth:`AcceptanceProfile._layout`);
     ``judged`` and ``tol`` are read-only and shared by the verdicts made from it."""
@@ -118,7 +119,7 @@ class _Layout:
     n_judged: int
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class _Wording:
     """The words and exact fractions of a profile's standards rules, made once per judging
     (see :meth:`AcceptanceProfile._wording`)."""
@@ -131,7 +132,7 @@ class _Wording:
     levels_passing: str
 
 
-@dataclass(frozen=True)
+@frozen_value
 class AcceptanceProfile:
     """A named set of acceptance rules with its source."""
 

@@ -37,11 +37,11 @@ Everything is vectorised over the unknowns of a call, and each unknown's ends de
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray
 from .weighting import Weighting
 
@@ -59,7 +59,7 @@ _CONVERGED = 1e-6
 after a step is of the order of the step cubed, far below a double's resolution."""
 
 
-@dataclass(frozen=True)
+@frozen_value
 class BandPolynomial:
     """The pieces of g for one calibration and confidence level (ascending coefficients in z).
 
@@ -132,7 +132,7 @@ class BandPolynomial:
         return ShiftedBand(z0, upper, lower, self.z_break - z0 if lower is not None else None)
 
 
-@dataclass(frozen=True)
+@frozen_value
 class ShiftedBand:
     """g about z0 for each unknown: ``upper`` holds where h ≥ ``h_break`` (everywhere when there is
     one piece), ``lower`` below it. Coefficient lists in ascending powers of h; the last (h⁴) is one

@@ -9,11 +9,11 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass
 from functools import cached_property
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .acceptance import AcceptanceProfile, AcceptanceVerdict
 from .errors import CalibrationInputError, LimitsError
@@ -30,7 +30,7 @@ from .limits import DetectionLimits, detection_limits
 from .weighting import Weighting, WeightModel, make_weights
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class Calibration(FittedCurve):
     """A fitted calibration curve that answers questions about unknowns, limits and acceptance.
 
@@ -334,7 +334,7 @@ def _check_design(x: FloatArray, model: Model, p: int, distinct: int | None = No
         )
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class _PolynomialCore:
     """What a polynomial fit has worked out before its influence measures (see :func:`fit`)."""
 

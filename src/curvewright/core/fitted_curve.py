@@ -10,11 +10,12 @@ take a ``FittedCurve``, and :class:`~curvewright.core.calibration.Calibration` a
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass, field
+from dataclasses import field
 from functools import cached_property
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray, as_confidence_level, as_whole_count
 from .distributions import t_quantile
 from .errors import CalibrationInputError
@@ -37,7 +38,7 @@ class Deferred:
         self.make = make
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class FittedCurve:
     """A fitted calibration curve. Immutable: every array is read-only.
 

@@ -47,12 +47,13 @@ or infinite studentized residuals.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 from functools import lru_cache
 from enum import Enum
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray, frozen
 from .least_squares import ROUNDOFF
 
@@ -99,7 +100,7 @@ class InfluenceFlag(str, Enum):
         }[self]
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class Influence:
     """Influence measures, one value per standard (arrays of shape (n,)).
 

@@ -36,13 +36,13 @@ Symmetric interval (``interval="symmetric"``)
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from enum import IntFlag
 from functools import cached_property
 from typing import TYPE_CHECKING
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray, as_confidence_level, as_finite_vector, frozen
 from .band_polynomial import (
     BandPolynomial, band_polynomial, crossing_end, horner, polynomial_band_edges, searched_end,
@@ -139,7 +139,7 @@ _SHORT_WORDS = {
 }
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class Quantitation:
     """Concentrations of a set of unknowns read from one calibration (arrays of shape (k,)).
 

@@ -27,16 +27,16 @@ ratio tests nothing and the test is not made.
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray
 from .distributions import f_upper_tails
 from .levels import Levels
 
 
-@dataclass(frozen=True)
+@frozen_value
 class LackOfFit:
     """Outcome of the lack-of-fit test.
 

@@ -9,10 +9,10 @@ row sums of Q² and (RᵀR)⁻¹ is the unscaled covariance of a.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray
 from .errors import CalibrationInputError
 
@@ -44,7 +44,7 @@ def without_roundoff(
     return np.where(np.abs(weighted_residuals) <= floor, 0.0, weighted_residuals)
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class LeastSquaresSolution:
     """The raw output of one weighted QR fit (not part of the public API)."""
 

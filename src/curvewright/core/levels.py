@@ -19,14 +19,14 @@ test therefore takes the pure error about the curve within each level (see :mod:
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray, frozen
 from .errors import CalibrationInputError
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class Levels:
     """Which level each standard belongs to.
 

@@ -19,11 +19,11 @@ Methods (the result always states which one was used):
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import as_whole_count
 from .errors import LimitsError
 from .models import Model
@@ -35,7 +35,7 @@ if TYPE_CHECKING:  # pragma: no cover
 LIMIT_METHODS = ("residual_sd", "intercept_sd", "iso11843")
 
 
-@dataclass(frozen=True)
+@frozen_value
 class DetectionLimits:
     """Limits in concentration units, with the method that produced them in words."""
 

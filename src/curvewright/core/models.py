@@ -24,17 +24,17 @@ twelve correct digits); :func:`to_power_basis` turns z-coefficients into ascendi
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from math import comb
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray
 from .errors import CalibrationInputError
 from .model_kinds import Model
 
 
-@dataclass(frozen=True)
+@frozen_value
 class Basis:
     """The change of variable z = (x − centre)/scale used for fitting."""
 

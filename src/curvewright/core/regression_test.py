@@ -22,10 +22,10 @@ response that is constant to round-off across the standards (all responses equal
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray
 from .distributions import f_upper_tails
 from .least_squares import ROUNDOFF
@@ -34,7 +34,7 @@ REGRESSION_ALPHA = 0.05
 """Significance level below which the response is taken to change with concentration (common practice)."""
 
 
-@dataclass(frozen=True)
+@frozen_value
 class RegressionTest:
     """Outcome of the F-test of the regression: does the response change with concentration?"""
 

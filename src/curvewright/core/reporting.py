@@ -30,12 +30,12 @@ series of suggested factors are common practice.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from enum import Enum
 from typing import Callable, Iterator, Sequence
 
 import numpy as np
 
+from .values import frozen_value
 from .inverse import QuantFlag
 from .rounding import RoundingRule
 
@@ -49,7 +49,7 @@ class ReportStatus(str, Enum):
     NOT_REPORTABLE = "not_reportable"
 
 
-@dataclass(frozen=True)
+@frozen_value
 class ReportingRange:
     """The range and limits results are reported against, in the concentration unit of the standards
     (the solution measured). ``basis`` says which limit is the reporting limit: "LLOQ" or "LOQ"."""
@@ -90,7 +90,7 @@ def reporting_range(concentrations: object, lod: float | None, loq: float | None
     return ReportingRange(lloq, uloq, lod, loq, lloq, "LLOQ", note)
 
 
-@dataclass(frozen=True)
+@frozen_value
 class ReportedValue:
     """What is reported for one result: its status, the text that stands for the value, the flags in
     words and in short words, the flag bits that agree with them, and for a result above the range the
@@ -232,7 +232,7 @@ _NO_SOLUTION = int(QuantFlag.NO_SOLUTION)
 _QUALIFIER_BITS = int(QuantFlag.AMBIGUOUS_ROOT | QuantFlag.UNBOUNDED_INTERVAL)
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class ReportedColumns:
     """What :func:`report_value` gives for many results, as columns (one entry per result): the
     statuses, texts, words and short words, the flag bits that agree with them (-1: None) and the

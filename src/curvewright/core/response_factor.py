@@ -41,16 +41,16 @@ Relative response factor
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .errors import CalibrationInputError, WeightingError
 from .weighting import Weighting
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class ResponseFactors:
     """The standards' response factors and their spread (arrays of shape (n,), read-only).
 

@@ -12,10 +12,10 @@ kept), so a large value is rounded exactly, never refused.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import Iterable
 from decimal import ROUND_HALF_EVEN, ROUND_HALF_UP, Decimal, localcontext
 
+from .values import frozen_value
 from .errors import CurvewrightError
 
 
@@ -30,7 +30,7 @@ _PRECISION = 400
 """Decimal digits for the rounding: 309 integer digits of the largest double and 15 decimals fit."""
 
 
-@dataclass(frozen=True)
+@frozen_value
 class RoundingRule:
     """``kind`` is "significant" or "decimals"; ``digits`` how many; ``tie`` "half_up" or "half_even"."""
 

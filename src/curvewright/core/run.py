@@ -9,10 +9,11 @@ lost; excluding a standard sets a flag with a reason and never removes it.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field, replace
+from dataclasses import field, replace
 from enum import Enum
 from typing import Any, Mapping
 
+from .values import frozen_value
 from .errors import CurvewrightError
 from .rounding import RoundingRule
 
@@ -25,7 +26,7 @@ CENSORED_WORDS = ("ND", "BLQ", "BQL", "NQ", "<LOD", "<LOQ", "<LLOQ", ">ULOQ", "N
 """Tokens kept as censored readings rather than numbers (non-detect, below/above limits)."""
 
 
-@dataclass(frozen=True, slots=True)
+@frozen_value(slots=True)
 class Reading:
     """One measured value as entered.
 
@@ -64,7 +65,7 @@ class Reading:
         return self.value is None and self.qualifier is None and bool(self.text.strip())
 
 
-@dataclass(frozen=True, slots=True)
+@frozen_value(slots=True)
 class Standard:
     """One calibration standard injection of one analyte.
 
@@ -121,7 +122,7 @@ _KIND_WORDS = {
 }
 
 
-@dataclass(frozen=True, slots=True)
+@frozen_value(slots=True)
 class Measurement:
     """One replicate response of one analyte in a sample."""
 
@@ -131,7 +132,7 @@ class Measurement:
     internal_standard_response: Reading | None = None
 
 
-@dataclass(frozen=True, slots=True)
+@frozen_value(slots=True)
 class Addition:
     """One replicate response of a portion of a sample spiked for standard additions.
 
@@ -155,7 +156,7 @@ class KeepsText:
     __slots__ = ("_kept_text",)
 
 
-@dataclass(frozen=True, slots=True)
+@frozen_value(slots=True)
 class Sample(KeepsText):
     """A sample measured in the run: an unknown, a QC sample, a blank or a check standard.
 
@@ -185,7 +186,7 @@ class Sample(KeepsText):
         return None
 
 
-@dataclass(frozen=True)
+@frozen_value
 class Analyte:
     """One analyte: units, standards, and the calibration choice with its reason."""
 
@@ -205,7 +206,7 @@ class Analyte:
         raise RunError(f"analyte {self.name!r}: there is no standard with id {standard_id!r}.")
 
 
-@dataclass(frozen=True)
+@frozen_value
 class RunSettings:
     """How the run is judged and reported."""
 
@@ -234,7 +235,7 @@ class RunSettings:
         object.__setattr__(self, "_kept_profile", profile)
 
 
-@dataclass(frozen=True)
+@frozen_value
 class AuditEntry:
     """One entry of the append-only audit trail; ``hash`` chains it to the entry before.
 
@@ -258,7 +259,7 @@ class AuditEntry:
 SIGNATURE_ROLES = ("analyst", "reviewer", "approver")
 
 
-@dataclass(frozen=True)
+@frozen_value
 class Signature:
     """A person's signature on the run's content, or (``role`` "approval withdrawn") the withdrawal of
     an approval with its reason in ``meaning``.
@@ -280,7 +281,7 @@ class Signature:
     signature: str = ""
 
 
-@dataclass(frozen=True)
+@frozen_value
 class Run:
     """One analytical batch."""
 

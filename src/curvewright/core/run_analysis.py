@@ -18,12 +18,13 @@ failed check fails the run's verdict and is named in its reasons.
 from __future__ import annotations
 
 from array import array
-from dataclasses import dataclass, replace
+from dataclasses import replace
 from functools import cached_property
 from typing import TYPE_CHECKING, Any, Iterable, Iterator, Sequence
 
 import numpy as np
 
+from .values import frozen_value
 from .acceptance import AcceptanceProfile, AcceptanceVerdict, load_profile
 from .calibration import Calibration
 from .fitting import fit
@@ -40,7 +41,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from .method import Method
 
 
-@dataclass(frozen=True)
+@frozen_value
 class SampleResult:
     """One sample × analyte. Concentrations in the analyte's unit; ``reported_*`` after dilution.
 
@@ -114,7 +115,7 @@ _NONE = -1
 """In an integer column (flag bits, ``within_limits``): the field is None."""
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class SampleColumns:
     """The samples of one analyte as columns, one entry per sample: what :class:`SampleResult` holds,
     without an object per sample. :meth:`result` makes one sample's result, :meth:`results` them all,
@@ -253,13 +254,13 @@ def _result_of(analyte: str, c: dict[str, list[Any]], k: int, values: tuple[floa
         reported_upper=None if high != high else high * df, **common)
 
 
-@dataclass(frozen=True)
+@frozen_value
 class UnusableStandard:
     standard_id: str
     reason: str
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class AnalyteResult:
     """Everything judged for one analyte. ``calibration`` is None when no curve could be fitted
     (``error`` then says why)."""
@@ -323,7 +324,7 @@ class AnalyteResult:
         return self.qc_verdict is None or self.qc_verdict.passed
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class RunResult:
     run: Run
     profile: AcceptanceProfile

@@ -30,11 +30,11 @@ never narrower than at the bottom of the curve.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
 
+from .values import frozen_value
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .errors import WeightingError
 from .levels import Levels
@@ -49,7 +49,7 @@ MIN_REPLICATES_FOR_S2 = 10
 covered under 93 % at a nominal 95 % in simulation (tests/core/test_estimated_weights.py)."""
 
 
-@dataclass(frozen=True, eq=False)
+@frozen_value(eq=False)
 class WeightModel:
     """The weighting of a fitted calibration, able to weigh new responses on the same scale.
 

@@ -19,10 +19,10 @@ import getpass
 import hashlib
 import json
 import os
-from dataclasses import dataclass
 from datetime import datetime, timezone
 from typing import Any, Callable, Mapping, Sequence
 
+from ..core.values import frozen_value
 from ..core.run import AuditEntry
 
 GENESIS = "0" * 64
@@ -57,7 +57,7 @@ ACTIONS = (
 Clock = Callable[[], datetime]
 
 
-@dataclass(frozen=True)
+@frozen_value
 class Identity:
     """Who acts: full name and laboratory ID (as set by the person), and the operating-system login."""
 

@@ -17,9 +17,10 @@ import hashlib
 import json
 import math
 from json.encoder import encode_basestring
-from dataclasses import dataclass, replace
+from dataclasses import replace
 from typing import Any, Iterator, Mapping, Sequence
 
+from ..core.values import frozen_value
 from ..core.run import Run, Sample
 
 LEFT_OUT = ("audit", "signatures", "content")
@@ -259,7 +260,7 @@ def digest_of(mapping: Mapping[str, Any]) -> dict[str, Any]:
     return {"sha256": sha256_of_content(mapping), "parts": parts_of(mapping)}
 
 
-@dataclass(frozen=True)
+@frozen_value
 class ContentChange:
     """The data no longer match the last audit entry that recorded their hash."""
 

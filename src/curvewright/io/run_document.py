@@ -27,11 +27,12 @@ import json
 import math
 import re
 import sys
-from dataclasses import dataclass, replace
+from dataclasses import replace
 from json.encoder import encode_basestring
 from pathlib import Path
 from typing import Any, Callable, Iterable, Mapping
 
+from ..core.values import frozen_value
 from .._version import __version__
 from ..core.acceptance import AcceptanceProfile, available_profiles
 from ..core.errors import CurvewrightError
@@ -80,7 +81,7 @@ MIGRATIONS: dict[int, Migration] = {}
 """``MIGRATIONS[v]`` turns a version-v document into version v + 1. None yet: version 1 is the first."""
 
 
-@dataclass(frozen=True)
+@frozen_value
 class OpenedRun:
     """A run read from disk, with what the reader must be told about it."""
 
