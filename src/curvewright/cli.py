@@ -27,6 +27,7 @@ from pathlib import Path
 from typing import Any, Iterator, Mapping, Sequence
 
 from . import CAUTION, __version__
+from .core.level_text import percent_label
 from .core.values import frozen_value
 
 EXIT_ACCEPTED, EXIT_REJECTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
@@ -1046,7 +1047,7 @@ def _samples_lines(samples, rule, level: float) -> list[str]:  # type: ignore[no
     """The samples as aligned text: what is reported, the number behind it, its interval, the flags."""
     from .io.result_tables import interval_text
 
-    heading = ("sample", "reported", "value", f"interval ({level:.0%})", "flags")
+    heading = ("sample", "reported", "value", f"interval ({percent_label(level)})", "flags")
     rows = [(s.sample_id, s.reported_text or "—", "—" if s.reported is None else rule.text(s.reported),
              "" if s.reported is None else interval_text(s.reported_lower, s.reported_upper, rule), s.flag_words)
             for s in samples]

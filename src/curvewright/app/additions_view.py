@@ -12,6 +12,7 @@ import pyqtgraph as pg
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QComboBox, QHBoxLayout, QLabel, QVBoxLayout, QWidget
 
+from ..core.level_text import percent_label
 from . import figures, palette
 
 TYPE_CHECKING = False
@@ -52,7 +53,7 @@ def draw_additions(plot: pg.PlotItem, a: AnalyteResult, series: AdditionSeriesRe
         _name(legend, plot.plot([x_low], [0.0], pen=None, symbol=palette.SYMBOL_UNKNOWN, symbolSize=10 * k,
                                 symbolBrush=palette.UNKNOWN, symbolPen=pg.mkPen("w", width=0.6 * k),
                                 name="x-intercept with interval"),
-              f"x-intercept −{r.concentration:.4g} with {r.level:.0%} interval (shaded)")
+              f"x-intercept −{r.concentration:.4g} with {percent_label(r.level)} interval (shaded)")
     _name(legend, plot.plot(added, means, pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8 * k,
                             symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8 * k), name="mean response"),
           "mean response of each addition")
@@ -71,7 +72,7 @@ def series_words(a: AnalyteResult, series: AdditionSeriesResult) -> str:
     if r is None:
         return f"{series.sample_id}: {series.note}"
     words = (f"{series.sample_id}: {r.equation(6)}; concentration a/b = {r.concentration:.5g}{in_unit} "
-             f"(standard error {r.standard_error:.3g}; {r.level:.0%} interval {r.lower:.5g} to {r.upper:.5g})")
+             f"(standard error {r.standard_error:.3g}; {percent_label(r.level)} interval {r.lower:.5g} to {r.upper:.5g})")
     if series.dilution_factor != 1:
         words += (f"; × dilution factor {series.dilution_factor:g} = {series.reported:.5g}{in_unit} "
                   f"({series.reported_lower:.5g} to {series.reported_upper:.5g})")

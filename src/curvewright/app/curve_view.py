@@ -19,6 +19,7 @@ from PySide6.QtGui import QFont, QImage, QPainter, QPalette, QPen, QPicture, QPi
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QGraphicsItem, QGraphicsObject, QHBoxLayout, QLabel, QSizePolicy,
                                QToolTip, QVBoxLayout, QWidget)
 
+from ..core.level_text import percent_label
 from . import figures, palette
 
 TYPE_CHECKING = False
@@ -559,9 +560,9 @@ class _CurveItems(_KeptPlot):
                 finally:
                     edge.blockSignals(False)
             self.confidence.updatePath()
-            self.show(self.confidence, name=f"{level:.0%} confidence band", legend_item=self.confidence_sample)
+            self.show(self.confidence, name=f"{percent_label(level)} confidence band", legend_item=self.confidence_sample)
         if show_prediction:
-            self.show(self.prediction_upper, *finite(x, ty(trace.prediction_upper)), name=f"{level:.0%} prediction band", named=True)
+            self.show(self.prediction_upper, *finite(x, ty(trace.prediction_upper)), name=f"{percent_label(level)} prediction band", named=True)
             self.show(self.prediction_lower, *finite(x, ty(trace.prediction_lower)))
         self.show(self.curve, *finite(x, ty(trace.response)), name="fitted curve", named=True)
         for item, region in zip(self.regions, ((x.min(), low), (high, x.max()))):

@@ -23,6 +23,7 @@ from PySide6.QtCore import Qt
 from PySide6.QtGui import QColor, QFont, QImage
 from PySide6.QtWidgets import QWidget
 
+from ..core.level_text import percent_label
 from ..core.influence import HIGH_LEVERAGE, influence_boundary
 from ..core.run import SampleKind
 from . import palette
@@ -135,11 +136,11 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
         lower = pg.PlotDataItem(*_finite(x, ty(trace.confidence_lower)), pen=None)
         plot.addItem(pg.FillBetweenItem(upper, lower, brush=pg.mkBrush(*palette.CONFIDENCE_FILL)))
         _name(legend, pg.BarGraphItem(x=[0], height=[0], width=0, brush=pg.mkBrush(*palette.CONFIDENCE_FILL)),
-              f"{level:.0%} confidence band")
+              f"{percent_label(level)} confidence band")
     if show_prediction:
         dashed = pg.mkPen(palette.PREDICTION, width=1.2, style=Qt.PenStyle.DashLine)
-        band = plot.plot(*_finite(x, ty(trace.prediction_upper)), pen=dashed, name=f"{level:.0%} prediction band")
-        _name(legend, band, f"{level:.0%} prediction band")
+        band = plot.plot(*_finite(x, ty(trace.prediction_upper)), pen=dashed, name=f"{percent_label(level)} prediction band")
+        _name(legend, band, f"{percent_label(level)} prediction band")
         plot.plot(*_finite(x, ty(trace.prediction_lower)), pen=dashed)
     _name(legend, plot.plot(*_finite(x, ty(trace.response)), pen=pg.mkPen(palette.CURVE, width=2), name="fitted curve"),
           "fitted curve")

@@ -32,6 +32,7 @@ import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QBrush, QColor, QFont, QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF
 
+from ..core.level_text import percent_label
 from . import palette
 from .plotted import acceptance_steps, excluded_points, finite, sample_points
 
@@ -677,14 +678,14 @@ def curve_figure(a: AnalyteResult, *, level: float = 0.95, log_x: bool = False, 
     lower = finite(x, ty(trace.confidence_lower))
     layers.append(Band(*upper, *lower, band_colour))
     ys += [upper[1], lower[1]]
-    legend.append(Entry(f"{level:.0%} confidence band", band_colour))
+    legend.append(Entry(f"{percent_label(level)} confidence band", band_colour))
     dashed = Stroke(palette.PREDICTION, 0.6, "dash")
     for end in (trace.prediction_upper, trace.prediction_lower):
         px, py = finite(x, ty(end))
         layers.append(Lines(px, py, dashed))
         xs.append(px)
         ys.append(py)
-    legend.append(Entry(f"{level:.0%} prediction band", dashed))
+    legend.append(Entry(f"{percent_label(level)} prediction band", dashed))
     cx, cy = finite(x, ty(trace.response))
     curve = Stroke(palette.CURVE, 1.0)
     layers.append(Lines(cx, cy, curve))
@@ -865,7 +866,7 @@ def additions_figure(a: AnalyteResult, series: AdditionSeriesResult, *, height: 
         intercept = Markers(np.array([x_low]), np.array([0.0]), "diamond", SAMPLE_MM, palette.UNKNOWN, WHITE_EDGE,
                             "x-intercept")
         layers.append(intercept)
-        legend.append(Entry(f"x-intercept −{r.concentration:.4g} with {r.level:.0%} interval (shaded)", intercept))
+        legend.append(Entry(f"x-intercept −{r.concentration:.4g} with {percent_label(r.level)} interval (shaded)", intercept))
     points = Markers(added, means, "circle", STANDARD_MM, palette.INCLUDED, WHITE_EDGE, "mean response")
     layers.append(points)
     legend.append(Entry("mean response of each addition", points))

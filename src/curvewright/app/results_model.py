@@ -13,6 +13,7 @@ from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtGui import QBrush, QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QLabel, QVBoxLayout, QWidget
 
+from ..core.level_text import percent_label
 from ..io.result_tables import display_number, interval_text
 from .table_view import FittedTableView, fit_columns
 
@@ -164,7 +165,7 @@ class ResultsModel(QAbstractTableModel):
             return str(section + 1)
         name = COLUMNS[section]
         if section == INTERVAL and self.result is not None:
-            name = f"{self.result.run.settings.confidence_level:.0%} interval"
+            name = f"{percent_label(self.result.run.settings.confidence_level)} interval"
         unit = self.analyte.analyte.concentration_unit if self.analyte else ""
         if unit and section in WITH_UNIT:
             return f"{name} ({unit})"
@@ -255,7 +256,7 @@ class ResultsModel(QAbstractTableModel):
     def description(self, s: SampleResult) -> str:
         """Everything about one sample's result in words (the tooltip and the details line)."""
         unit = self.analyte.analyte.concentration_unit if self.analyte else ""
-        level = f"{self.result.run.settings.confidence_level:.0%}" if self.result else ""
+        level = f"{percent_label(self.result.run.settings.confidence_level)}" if self.result else ""
         parts = [f"{s.kind.words} {s.sample_id}"]
         if s.reported is not None:
             parts.append(f"reported {s.reported_text or self._rounded(s.reported)}; value {self._rounded(s.reported)} {unit} ({level} interval "

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
+from ..core.level_text import percent_label
 from ..core.fitted_curve import FittedCurve
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -90,7 +91,7 @@ def additions_table(a: "AnalyteResult", level: float) -> Table:
         Column("Concentration a/b", unit, "number", "sig:5"), Column("Standard error", unit, "number", "sig:3"),
         Column("Dilution factor", kind="number", display="plain"),
         Column("Reported concentration", unit, "number", "sig:5"),
-        Column(f"Lower limit ({level:.0%})", unit, "number", "sig:5"), Column(f"Upper limit ({level:.0%})", unit, "number", "sig:5"),
+        Column(f"Lower limit ({percent_label(level)})", unit, "number", "sig:5"), Column(f"Upper limit ({percent_label(level)})", unit, "number", "sig:5"),
         Column("Warnings"), Column("Note"),
     )
     rows = []
@@ -120,7 +121,7 @@ def additions_lines(a: "AnalyteResult", level: float) -> list[str]:
             lines.append(f"    {s.sample_id}: {s.note}")
             continue
         lines.append(
-            f"    {s.sample_id}: {s.reported:.5g}{in_unit} ({level:.0%} interval {s.reported_lower:.5g} to "
+            f"    {s.sample_id}: {s.reported:.5g}{in_unit} ({percent_label(level)} interval {s.reported_lower:.5g} to "
             f"{s.reported_upper:.5g}; standard error {s.reported_standard_error:.3g}); line {r.equation(6)} over "
             f"{len(s.added)} additions" + (f"; dilution factor {s.dilution_factor:g}" if s.dilution_factor != 1 else "")
         )

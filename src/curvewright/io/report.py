@@ -17,6 +17,7 @@ import hashlib
 from dataclasses import dataclass
 from datetime import datetime, timezone
 
+from ..core.level_text import percent_label
 from .. import CAUTION, __version__
 from ..core.comparison import ModelComparison
 from ..core.inverse import INTERVAL_SCOPE_NOTE
@@ -289,7 +290,7 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
         anchored = bool(any(s.anchor for s in a.fitted_standards))
         blocks.append(FigureSlot("curve", name, f"{name}: standards (filled: in the fit; open squares: excluded"
                                  + ("; ringed by open hexagons: anchor points, fitted but not judged" if anchored else "")
-                                 + f"), fitted curve with {run.settings.confidence_level:.0%} confidence and prediction "
+                                 + f"), fitted curve with {percent_label(run.settings.confidence_level)} confidence and prediction "
                                  "bands, unknowns with their concentration intervals; calibrated range and LOQ marked."))
         blocks.append(FigureSlot("residuals", name, f"{name}: relative error of each back-calculated standard against "
                                  "concentration, with the acceptance limits"
@@ -335,7 +336,7 @@ def _additions_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     level = result.run.settings.confidence_level
     table = additions_table(a, level)
     names = ("Sample id", "Additions", "Intercept a", "Slope b", "Concentration a/b", "Standard error",
-             "Dilution factor", "Reported concentration", f"Lower limit ({level:.0%})", f"Upper limit ({level:.0%})")
+             "Dilution factor", "Reported concentration", f"Lower limit ({percent_label(level)})", f"Upper limit ({percent_label(level)})")
     notes = [f"{s.sample_id}: {s.note}" for s in a.additions if s.note]
     notes += [f"{s.sample_id}: {w}" for s in a.additions if s.result is not None for w in s.result.warnings[1:]]
     return [
@@ -368,7 +369,7 @@ def additions_figures(result: RunResult, a: AnalyteResult) -> list[Block]:
             f"against the concentration added ({unit or 'unit not set'}); the line {r.equation(6)} through them, "
             f"dashed where it is extended back to zero response; its x-intercept at −{r.concentration:.5g}{in_unit} "
             f"gives the concentration {r.concentration:.5g}{in_unit} in the measured solution, with its "
-            f"{r.level:.0%} interval {r.lower:.5g} to {r.upper:.5g}{in_unit} shaded (from −{r.upper:.5g} to "
+            f"{percent_label(r.level)} interval {r.lower:.5g} to {r.upper:.5g}{in_unit} shaded (from −{r.upper:.5g} to "
             f"−{r.lower:.5g}) on the concentration axis{diluted}. "
             f"Warning: {MATRIX_WARNING}.", sample=s.sample_id))
     return out

@@ -15,6 +15,7 @@ from typing import Any
 
 import numpy as np
 
+from ..core.level_text import percent_label
 from .. import CAUTION, __version__
 from ..core.errors import CurvewrightError
 from ..core.models import Model
@@ -190,7 +191,7 @@ def interval_words(run_result: RunResult, analyte: AnalyteResult | None = None) 
     """How the run's intervals are computed, in words: for ``analyte``'s calibration, or for every analyte
     of the run (one method, or each analyte's when they differ)."""
     s = run_result.run.settings
-    level = f"{s.confidence_level:.0%}"
+    level = f"{percent_label(s.confidence_level)}"
     if s.interval != "band":
         return f"{level} symmetric x̂ ± t·s_x̂ (s_x̂ by the delta method)"
     if analyte is not None:
