@@ -122,3 +122,12 @@ def test_nominal_with_an_empty_kind_is_said_to_be_unused(tmp_path: Path) -> None
     # the QC high alone is judged; the note does not change the verdict
     assert reasons[0].startswith("pass: 1 of 1 QC samples") and data["accepted"] is True
 
+
+
+def test_a_nominal_on_the_only_qc_like_sample_says_no_qc_was_judged(tmp_path: Path) -> None:
+    smp = write_csv(tmp_path / "zn_smp.csv", [("Sample", "Type", "Nominal", "Response (counts)"),
+                                              ("QC mid", "", "20", 1043.0), ("Well 7", "unknown", "", 402.2)])
+    done = run_cli("quantify", "--standards", str(standards(tmp_path)), "--samples", str(smp), *QUANTIFY)
+    assert done.returncode == 0, done.stdout + done.stderr
+    assert "QC note: no QC sample to judge" in done.stdout
+    assert "'QC mid' (20 µg/L); each is quantified as an unknown and its nominal is not used" in done.stdout

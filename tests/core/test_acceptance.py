@@ -93,6 +93,7 @@ def test_a_qc_sample_not_judged_counts_as_not_passing_and_fails_the_verdict() ->
     assert not alone.passed and alone.reasons[0].startswith("FAIL: 0 of 1 QC samples")
     noted = profile.evaluate_qc(nominal, found, notes=["a note"])
     assert noted.passed and noted.reasons[-1] == "note: a note"
+    assert profile.evaluate_qc([], [], notes=["a note"]).reasons == ("note: no QC sample to judge", "note: a note")
 
 
 def test_laboratory_limits_and_round_trip(tmp_path) -> None:

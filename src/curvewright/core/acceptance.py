@@ -410,6 +410,8 @@ class AcceptanceProfile:
                 + (f"; {unjudged} QC sample(s) not judged, counted as not passing" if unjudged else "")
             )
             ok = overall
+        else:
+            reasons.append("note: no QC sample to judge")
         if x.size:
             levels = group_levels(x)
             for j, level in enumerate(levels.concentration):

@@ -510,7 +510,8 @@ def _analyse_analyte(
                               profile.checks, rng, profile.name, unit)
     samples: tuple[SampleResult, ...] | None = None
     qc_verdict = None
-    if checks is None and SampleKind.QC in columns.kinds:  # QC samples judged over the columns
+    # QC samples judged over the columns (and a nominal value on another sample noted)
+    if checks is None and (SampleKind.QC in columns.kinds or not np.isnan(columns.nominal).all()):
         columns, qc_verdict = _judge_qc(columns, profile, unit)
     elif checks is not None:  # results judged further against the checks: as objects
         samples = columns.results()
