@@ -79,6 +79,23 @@ def test_two_thirds_rule_is_exact_for_qc() -> None:
     assert any("QC level 160" in r and r.startswith("FAIL") for r in failing.reasons)
 
 
+def test_a_qc_sample_not_judged_counts_as_not_passing_and_fails_the_verdict() -> None:
+    profile = cw.load_profile("ich-m10-chromatographic")
+    nominal, found = [3, 3, 40, 40, 160, 160.0], [3.0, 3.1, 40, 41, 160, 158.0]  # all six within ±15 %
+    assert profile.evaluate_qc(nominal, found).passed
+    # 6 of 7 passing would meet the two-thirds rule (ICH M10 QC acceptance as the profile holds it: at least
+    # 2/3 of QC samples within ±15 %, from memory); the QC that could not be judged still fails the run
+    verdict = profile.evaluate_qc(nominal, found, [("QC mid 2", "no nominal concentration")])
+    assert not verdict.passed
+    assert verdict.reasons[0].startswith("FAIL: 6 of 7 QC samples") and "1 QC sample(s) not judged" in verdict.reasons[0]
+    assert verdict.reasons[-1].startswith("FAIL: QC sample 'QC mid 2' not judged: no nominal concentration")
+    alone = profile.evaluate_qc([], [], [("QC mid 2", "no nominal concentration")])
+    assert not alone.passed and alone.reasons[0].startswith("FAIL: 0 of 1 QC samples")
+    noted = profile.evaluate_qc(nominal, found, notes=["a note"])
+    assert noted.passed and noted.reasons[-1] == "note: a note"
+    assert profile.evaluate_qc([], [], notes=["a note"]).reasons == ("note: no QC sample to judge", "note: a note")
+
+
 def test_laboratory_limits_and_round_trip(tmp_path) -> None:
     general = cw.load_profile("general").with_limits(tolerance_percent=10, lowest_level_tolerance_percent=25)
     assert general.standards.tolerance_percent == 10

@@ -450,6 +450,9 @@ class MainWindow(QMainWindow):
                     shown = ", ".join(missing[:3]) + (f" and {len(missing) - 3} more" if len(missing) > 3 else "")
                     lines.append(f"{len(missing)} of {len(columns)} samples of {a.analyte.name} have no result "
                                  f"({shown}); see the Results tab.")
+                # what the QC verdict notes (a nominal value given to a sample of kind unknown)
+                notes = [r[len("note: "):] for r in (a.qc_verdict.reasons if a.qc_verdict else ()) if r.startswith("note: ")]
+                lines += [f"{a.analyte.name}: {note}." for note in notes]
         return lines
 
     def _update_title(self) -> None:

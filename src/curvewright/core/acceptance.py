@@ -20,7 +20,7 @@ from fractions import Fraction
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
-from typing import TYPE_CHECKING, Any, Mapping
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import numpy as np
 
@@ -438,11 +438,20 @@ class AcceptanceProfile:
             relative_error=cal.relative_error,
         )
 
-    def evaluate_qc(self, nominal: object, found: object) -> AcceptanceVerdict:
-        """Judge QC samples: found concentrations against their nominal values (arrays of shape (k,))."""
+    def evaluate_qc(self, nominal: object, found: object, not_judged: Sequence[tuple[str, str]] = (),
+                    notes: Sequence[str] = ()) -> AcceptanceVerdict:
+        """Judge QC samples: found concentrations against their nominal values (arrays of shape (k,)).
+
+        ``not_judged`` names the QC samples that could not be judged, each with the reason (no nominal
+        concentration, no reported number): each is counted among the QC samples as not passing, and
+        the verdict fails, since a run is never accepted on a QC sample it could not judge. ``notes``
+        are said after the verdict's reasons and do not change it. ``passing`` and ``relative_error``
+        hold the judged QC samples only.
+        """
         x = as_finite_vector(nominal, "QC nominal concentration", ProfileError, item="QC sample")
         y = as_finite_vector(found, "QC found concentration", ProfileError, item="QC sample")
-        if x.size != y.size or x.size == 0:
+        unjudged = len(not_judged)
+        if x.size != y.size or (x.size == 0 and not unjudged and not notes):
             raise ProfileError(f"QC samples: {x.size} nominal values and {y.size} results; give one of each per QC.")
         bad = np.flatnonzero(x <= 0)
         if bad.size:
@@ -450,23 +459,34 @@ class AcceptanceProfile:
         rules = self.qc
         re = 100.0 * (y - x) / x
         passing = np.abs(re) <= rules.tolerance_percent + _BOUNDARY
-        levels = group_levels(x)
         n_pass = int(passing.sum())
-        overall = Fraction(n_pass, x.size) >= rules.min_fraction_passing
-        reasons = [
-            f"{'pass' if overall else 'FAIL'}: {n_pass} of {x.size} QC samples within ±{rules.tolerance_percent:g} %; "
-            f"{_percent_text(rules.min_fraction_passing)} required"
-        ]
-        ok = overall
-        for j, level in enumerate(levels.concentration):
-            at = levels.index == j
-            k_pass, k = int(passing[at].sum()), int(at.sum())
-            level_ok = Fraction(k_pass, k) >= rules.min_fraction_passing_per_level
-            ok &= level_ok
+        n_all = x.size + unjudged
+        reasons: list[str] = []
+        ok = True
+        if n_all:
+            overall = Fraction(n_pass, n_all) >= rules.min_fraction_passing and not unjudged
             reasons.append(
-                f"{'pass' if level_ok else 'FAIL'}: QC level {level:g}: {k_pass} of {k} within limits; "
-                f"{_percent_text(rules.min_fraction_passing_per_level)} required"
+                f"{'pass' if overall else 'FAIL'}: {n_pass} of {n_all} QC samples within ±{rules.tolerance_percent:g} %; "
+                f"{_percent_text(rules.min_fraction_passing)} required"
+                + (f"; {unjudged} QC sample(s) not judged, counted as not passing" if unjudged else "")
             )
+            ok = overall
+        else:
+            reasons.append("note: no QC sample to judge")
+        if x.size:
+            levels = group_levels(x)
+            for j, level in enumerate(levels.concentration):
+                at = levels.index == j
+                k_pass, k = int(passing[at].sum()), int(at.sum())
+                level_ok = Fraction(k_pass, k) >= rules.min_fraction_passing_per_level
+                ok &= level_ok
+                reasons.append(
+                    f"{'pass' if level_ok else 'FAIL'}: QC level {level:g}: {k_pass} of {k} within limits; "
+                    f"{_percent_text(rules.min_fraction_passing_per_level)} required"
+                )
+        reasons += [f"FAIL: QC sample {sample_id!r} not judged: {reason}; the run cannot be accepted on a QC "
+                    "sample it could not judge (review needed)" for sample_id, reason in not_judged]
+        reasons += [f"note: {note}" for note in notes]
         return AcceptanceVerdict(
             profile=self.name,
             passed=bool(ok),

@@ -151,18 +151,23 @@ def report_value(
                           unit, below_limit == "estimate", rng.lod is not None and estimate < rng.lod)
 
 
-def _dilution_texts(dilution: float, rng: ReportingRange, rule: RoundingRule, unit: str) -> tuple[str, str, str, str]:
+def _dilution_texts(dilution: float, rng: ReportingRange, rule: RoundingRule,
+                    unit: str) -> tuple[str, str, str, str, str]:
     """The texts of a result that depend only on its dilution factor: the dilution itself (empty at 1),
-    the reporting limit with its basis, the ULOQ and the LOD, each in the sample's own terms."""
+    the reporting limit with its basis, the ULOQ and the LOD, each in the sample's own terms, and the
+    ULOQ as the calibration has it and as the sample's (at 1: "50 µg/L"; at 10: "50 µg/L × dilution 10
+    = 500 µg/L", so that no number reads as multiplied again)."""
     u = f" {unit}" if unit else ""
     diluted = f" × dilution {dilution:g}" if dilution != 1 else ""
-    return (diluted, f"{rule.text(rng.reporting_limit * dilution)}{u} ({rng.basis}{diluted})",
-            f"{rule.text(rng.uloq * dilution)}{u}", f"{rule.text(rng.lod * dilution)}{u}" if rng.lod is not None else "")
+    uloq = f"{rule.text(rng.uloq * dilution)}{u}"
+    return (diluted, f"{rule.text(rng.reporting_limit * dilution)}{u} ({rng.basis}{diluted})", uloq,
+            f"{rule.text(rng.lod * dilution)}{u}" if rng.lod is not None else "",
+            f"{rule.text(rng.uloq)}{u}{diluted} = {uloq}" if diluted else uloq)
 
 
 def _numeric_value(
     estimate: float, dilution: float, flags: QuantFlag, qualifiers: tuple[list[str], list[str]],
-    texts: tuple[str, str, str, str], number: Callable[[], str], rng: ReportingRange, unit: str, estimated: bool,
+    texts: tuple[str, str, str, str, str], number: Callable[[], str], rng: ReportingRange, unit: str, estimated: bool,
     below_lod: bool,
 ) -> ReportedValue:
     """What is reported for a result with a number (and no reason it may not be reported): the words of
@@ -170,11 +175,11 @@ def _numeric_value(
     ``number`` gives the rounded text of the reported value (asked only when it is shown), ``estimated``
     says that results between the LOD and the reporting limit are shown as estimated numbers."""
     u = f" {unit}" if unit else ""
-    diluted, limit_text, uloq_text, lod_text = texts
+    diluted, limit_text, uloq_text, lod_text, uloq_words = texts
     words_q, short_q = qualifiers
     if estimate > rng.uloq:
         total = dilution * _one_two_five(estimate / rng.middle)
-        words = (f"above the calibrated range (ULOQ {uloq_text}{diluted}): not reported as a "
+        words = (f"above the calibrated range (ULOQ {uloq_words}): not reported as a "
                  f"number; re-assay at a dilution of ×{total:g} to bring it to mid-range")
         return ReportedValue(ReportStatus.ABOVE_RANGE, f"> {uloq_text} (ULOQ{diluted})",
                              "; ".join([words] + words_q), ", ".join(["> ULOQ"] + short_q), flags, total)
@@ -306,10 +311,10 @@ def report_columns(
     bits_in = (flags.bits if isinstance(flags, FlagBits) else
                np.array([-1 if f is None else int(f) for f in flags], dtype=np.int64))
     qualifiers_of: dict[int, tuple[list[str], list[str]]] = {}
-    by_dilution: dict[float, tuple[str, str, str, str]] = {}
+    by_dilution: dict[float, tuple[str, str, str, str, str]] = {}
     flag_of: dict[int, QuantFlag] = {}
 
-    def parts(b: int, x: int, factor: float) -> tuple[QuantFlag, tuple[list[str], list[str]], tuple[str, str, str, str]]:
+    def parts(b: int, x: int, factor: float) -> tuple[QuantFlag, tuple[list[str], list[str]], tuple[str, str, str, str, str]]:
         flag = flag_of.get(b)
         if flag is None:
             flag = flag_of[b] = QuantFlag(b)

@@ -511,8 +511,9 @@ def _analyse_analyte(
                               profile.checks, rng, profile.name, unit)
     samples: tuple[SampleResult, ...] | None = None
     qc_verdict = None
-    if checks is None and SampleKind.QC in columns.kinds:  # QC samples judged over the columns
-        columns, qc_verdict = _judge_qc(columns, profile)
+    # QC samples judged over the columns (and a nominal value on another sample noted)
+    if checks is None and (SampleKind.QC in columns.kinds or not np.isnan(columns.nominal).all()):
+        columns, qc_verdict = _judge_qc(columns, profile, unit)
     elif checks is not None:  # results judged further against the checks: as objects
         samples = columns.results()
     if checks is not None:
@@ -532,8 +533,10 @@ def _analyse_analyte(
             for s in samples
         )
         qc = [s for s in samples if s.kind is SampleKind.QC and s.nominal is not None and s.reported is not None]
-        qc_verdict = profile.evaluate_qc([s.nominal for s in qc], [s.reported for s in qc]) if qc else None
         columns = SampleColumns.of(analyte.name, samples)
+        not_judged, notes = _qc_not_judged(columns, unit)
+        qc_verdict = (profile.evaluate_qc([s.nominal for s in qc], [s.reported for s in qc], not_judged, notes)
+                      if qc or not_judged or notes else None)
     result = AnalyteResult(
         analyte=analyte,
         calibration=cal,
@@ -556,10 +559,12 @@ def _analyse_analyte(
     return result
 
 
-def _judge_qc(columns: SampleColumns, profile: AcceptanceProfile) -> tuple[SampleColumns, AcceptanceVerdict | None]:
+def _judge_qc(columns: SampleColumns, profile: AcceptanceProfile,
+              unit: str) -> tuple[SampleColumns, AcceptanceVerdict | None]:
     """The QC samples judged over the columns: each with a recovery is within the profile's QC
     tolerance or not, and the QC samples with a nominal value and a reported number are judged by the
-    profile's QC rules (what the result objects' judging gives, sample for sample)."""
+    profile's QC rules (what the result objects' judging gives, sample for sample); those without
+    either are named as not judged (:func:`_qc_not_judged`)."""
     is_qc = np.fromiter((k is SampleKind.QC for k in columns.kinds), bool, len(columns))
     recovery = columns.recovery_percent
     judged = is_qc & ~np.isnan(recovery)
@@ -567,11 +572,45 @@ def _judge_qc(columns: SampleColumns, profile: AcceptanceProfile) -> tuple[Sampl
     within[judged] = np.abs(recovery[judged] - 100.0) <= profile.qc.tolerance_percent + 1e-9
     counted = is_qc & ~np.isnan(columns.nominal) & columns.quantified & ~np.isnan(columns.estimate)
     verdict = None
-    if counted.any():
+    not_judged, notes = _qc_not_judged(columns, unit)
+    if counted.any() or not_judged or notes:
         # the reported number is the estimate times the dilution factor, as each result object has it
         found = [e * d for e, d in zip(columns.estimate[counted].tolist(), columns.dilution[counted].tolist())]
-        verdict = profile.evaluate_qc(columns.nominal[counted].tolist(), found)
+        verdict = profile.evaluate_qc(columns.nominal[counted].tolist(), found, not_judged, notes)
     return replace(columns, within_limits=within), verdict
+
+
+_NAMED = 5
+"""At most this many unknowns with a nominal concentration are named in the QC verdict's note."""
+
+
+def _qc_not_judged(columns: SampleColumns, unit: str) -> tuple[list[tuple[str, str]], list[str]]:
+    """The QC samples that cannot be judged, each with the reason (no nominal concentration, or no
+    reported number), and a note naming the unknowns that carry a nominal concentration (an empty or
+    unknown kind): they are quantified as unknowns and their nominal is not used."""
+    kinds = columns.kinds
+    has_nominal = ~np.isnan(columns.nominal)
+    is_qc = np.fromiter((k is SampleKind.QC for k in kinds), bool, len(columns))
+    has_number = columns.quantified & ~np.isnan(columns.estimate)
+    not_judged = []
+    for i in np.flatnonzero(is_qc & ~(has_nominal & has_number)).tolist():
+        if not has_nominal[i]:
+            reason = "no nominal concentration (the cell is empty or not a number)"
+        else:
+            said = columns.notes[i] or columns.words[i] or "not quantified"
+            reason = f"no reported number ({said})"
+        not_judged.append((columns.ids[i], reason))
+    notes = []
+    is_unknown = np.fromiter((k is SampleKind.UNKNOWN for k in kinds), bool, len(columns))
+    odd = np.flatnonzero(is_unknown & has_nominal).tolist()
+    if odd:
+        named = ", ".join(f"{columns.ids[i]!r} ({columns.nominal[i]:g} {unit})".replace(" )", ")")
+                          for i in odd[:_NAMED])
+        more = f" and {len(odd) - _NAMED} more" if len(odd) > _NAMED else ""
+        notes.append(f"{len(odd)} sample(s) of kind unknown (the kind cell empty or 'unknown') with a nominal "
+                     f"concentration: {named}{more}; each is quantified as an unknown and its nominal is not used "
+                     "(give the kind QC to judge it as a QC sample)")
+    return not_judged, notes
 
 
 def _method_reasons(run: Run, analyte: Analyte, cal: Calibration, model: str, weighting: str) -> tuple[str, ...]:

@@ -275,11 +275,26 @@ class ContentChange:
                 f"{self.entry_user}): {named}")
 
 
+_DIGEST_MEMO = "_stored_digest"
+"""Where a run read from a document keeps the digest the document carried (:func:`keep_stored_digest`),
+as it keeps its content hash: in its own attribute, never copied to a run made from it by an edit."""
+
+
+def keep_stored_digest(run: Run, stored: Any) -> None:
+    """Keep with ``run`` the digest its document carried, so that every later :func:`content_change`
+    of it (the record's, the workbook's and the JSON's statement of the chain) names what changed as
+    the reader did."""
+    object.__setattr__(run, _DIGEST_MEMO, stored)
+
+
 def content_change(run: Run, stored: Any = None) -> ContentChange | None:
     """Whether the run's content differs from the hash its audit trail recorded last, naming what
-    changed from the digest ``stored`` with the document (when that digest itself is intact)."""
+    changed from the digest ``stored`` with the document (when that digest itself is intact); without
+    ``stored``, from the digest kept with the run when it was read (:func:`keep_stored_digest`)."""
     from .run_document import run_to_mapping
 
+    if stored is None:
+        stored = vars(run).get(_DIGEST_MEMO)
     numbered = [(i + 1, e) for i, e in enumerate(run.audit) if e.content_sha256]
     if not numbered:
         return None

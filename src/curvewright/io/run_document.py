@@ -56,7 +56,7 @@ from ..core.weighting import Weighting
 from .atomic import exclusive_lock, write_atomically
 from .audit import Clock, Identity, append_entry, file_sha256, file_sha256_streamed, utc_now, verify_chain
 from .errors import DocumentError, ExportError
-from .integrity import ContentChange, content_change, content_sha256, digest_of
+from .integrity import ContentChange, content_change, content_sha256, digest_of, keep_stored_digest
 
 FORMAT = "curvewright-run"
 SCHEMA_VERSION = 1
@@ -718,8 +718,8 @@ def run_from_mapping(mapping: Any, origin: str = "run document") -> OpenedRun:
     if reader.problems:
         raise DocumentError(f"{origin}: the document has {len(reader.problems)} problem(s)", tuple(reader.problems))
     assert run is not None
-    return OpenedRun(run, None, verify_chain(run.audit), migrated_from,
-                     content_change=content_change(run, mapping.get("content")))
+    keep_stored_digest(run, mapping.get("content"))
+    return OpenedRun(run, None, verify_chain(run.audit), migrated_from, content_change=content_change(run))
 
 
 def _refuse_constant(name: str) -> None:

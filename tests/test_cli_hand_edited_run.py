@@ -1,0 +1,66 @@
+"""A run document whose response was edited by hand in a text editor, its digest left as saved: the
+record, the workbook and ``quantify --json`` name the changed value as ``check`` does, and quantify
+warns once. The commands as subprocesses on the edited file."""
+
+from __future__ import annotations
+
+import json
+import re
+import subprocess
+import sys
+import unicodedata
+from pathlib import Path
+
+import openpyxl
+from pypdf import PdfReader
+
+from tests.io.helpers import ROOT
+
+DEMO = ROOT / "sample_runs" / "nitrate_water_linear.json"
+NAMED = "the response of standard N-L2-2 of nitrate-N"
+UNNAMED = "cannot be said"
+
+
+def run_cli(*args: str) -> subprocess.CompletedProcess:
+    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
+                          cwd=ROOT, timeout=300)
+
+
+def hand_edited(tmp_path: Path) -> Path:
+    """The demo run with one response typed over in a text editor (value and text alike)."""
+    text = DEMO.read_text(encoding="utf-8")
+    edited = text.replace('"value": 0.1008,', '"value": 0.1108,', 1).replace('"text": "0.1008"', '"text": "0.1108"', 1)
+    assert edited != text
+    path = tmp_path / "nitrate_edited.json"
+    path.write_text(edited, encoding="utf-8")
+    return path
+
+
+def flat(text: str) -> str:
+    return re.sub(r"\s+", "", unicodedata.normalize("NFKC", text))
+
+
+def test_every_output_names_the_hand_edited_value_as_check_does(tmp_path: Path) -> None:
+    path = hand_edited(tmp_path)
+    checked = run_cli("check", str(path))
+    assert checked.returncode == 1 and NAMED in checked.stdout, checked.stdout + checked.stderr
+
+    book, record = tmp_path / "n.xlsx", tmp_path / "n.pdf"
+    done = run_cli("quantify", str(path), "--export", str(book), "--report", str(record))
+    said = done.stdout + done.stderr
+    assert said.count("data changed outside Curvewright") == 1, said  # warned once
+    assert NAMED in said and UNNAMED not in said
+
+    data = json.loads(run_cli("quantify", str(path), "--json").stdout)
+    assert data["data_match_audit_trail"] is False
+    assert data["chain_check"].startswith("NOT verified: data changed outside Curvewright")
+    assert data["chain_check"].endswith(NAMED), data["chain_check"]
+
+    sheet = openpyxl.load_workbook(book)["Run information"]
+    trail = [str(r[1]) for r in sheet.iter_rows(values_only=True) if r and r[0] == "Audit trail"]
+    assert trail and trail[0].endswith(NAMED) and UNNAMED not in trail[0], trail
+
+    reader = PdfReader(record)
+    first = flat(reader.pages[0].extract_text())
+    assert flat(NAMED) in first and flat(UNNAMED) not in first
+    assert flat(UNNAMED) not in flat(" ".join(p.extract_text() for p in reader.pages))
