@@ -618,9 +618,10 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
         smp = _import_table(import_samples, args.samples, args.sheet, smp_map, analyte=smp_name, **reading)
         results.append(smp)
     problems: list[str] = []
-    for result in results:
+    for result, what in zip(results, ("standards", "samples")):
         if result.rejected:
-            problems.append(f"{result.source}: {len(result.rejected)} cell(s) cannot be used; "
+            sheet = f", sheet {result.sheet!r}" if result.sheet is not None else ""
+            problems.append(f"{what} table {result.source}{sheet}: {len(result.rejected)} cell(s) cannot be used; "
                             f"{len(result.rejected_rows)} row(s) not imported:")
             problems += grouped_cells(result.rejected, cli_answer)
     if problems:

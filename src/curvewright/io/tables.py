@@ -9,6 +9,9 @@ from __future__ import annotations
 import csv
 import io
 import math
+import re
+import zipfile
+import zlib
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -31,6 +34,9 @@ class RawTable:
     source: str
     sha256: str | None = None
     sheet: str | None = None
+    uncalculated: tuple[tuple[int, int, str], ...] = ()
+    """(row number, 0-based column, formula) of each workbook cell holding a formula with no
+    calculated value: read as empty text, and refused by the importer wherever it is read."""
 
     @property
     def delimiter_name(self) -> str:
@@ -146,7 +152,8 @@ def xlsx_sheet_names(path: str | Path) -> tuple[str, ...]:
 def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
     """Read one sheet (the first when ``sheet`` is None) in read-only mode, taking the values the
     spreadsheet stored (a formula cell gives its last calculated value; one never calculated reads
-    as empty, and the importer then reports the cell as missing). Every row the sheet holds is read,
+    as empty and is listed in ``RawTable.uncalculated``, which the importer refuses wherever it is
+    read, so that no default stands in for it). Every row the sheet holds is read,
     each up to its last cell, whatever range the sheet's own dimension claims (a wrong claim would
     otherwise drop rows or pad every row to thousands of columns).
 
@@ -158,6 +165,8 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
     workbook = _open_workbook(path, data)
     rows: list[tuple[Cell, ...]] = []
     numbers: list[int] = []
+    formulas = _holds_formulas(data)
+    empties: list[tuple[int, int]] = []
     try:
         name = sheet or (workbook.sheetnames[0] if workbook.sheetnames else None)
         if name is None:
@@ -180,6 +189,8 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
                     )
                 rows.append(tuple(_cell(v) for v in record))
                 numbers.append(index)
+                if formulas:
+                    empties += [(index, column) for column, v in enumerate(record) if v is None]
         except ImportProblem:
             raise
         except Exception as exc:  # noqa: BLE001 - the XLSX reader raises many types on damaged files
@@ -189,7 +200,56 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
             ) from None
     finally:
         workbook.close()
-    return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name)
+    uncalculated = _formulas_among(path, data, name, empties) if empties else ()
+    return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name, uncalculated)
+
+
+_FORMULA_TAG = re.compile(rb"<(?:[A-Za-z_][\w.-]{0,31}:)?f[\s/>]")
+
+
+def _holds_formulas(data: bytes) -> bool:
+    """True when a worksheet part of the workbook holds a formula element (ECMA-376 Part 1, the
+    cell's ``f`` child). Only then are the empty cells looked at a second time."""
+    try:
+        with zipfile.ZipFile(io.BytesIO(data)) as archive:
+            return any(_FORMULA_TAG.search(archive.read(info))
+                       for info in archive.infolist() if info.filename.startswith("xl/worksheets/"))
+    except (zipfile.BadZipFile, OSError, ValueError, RuntimeError, EOFError, zlib.error):
+        return True  # the reading itself has passed: look again rather than guess
+
+
+def _formulas_among(path: Path, data: bytes, name: str, empties: list[tuple[int, int]]) -> tuple[tuple[int, int, str], ...]:
+    """Which of the empty cells (row number, 0-based column) of sheet ``name`` hold a formula, with
+    the formula's text: the sheet read again with the formulas instead of their stored values."""
+    import openpyxl
+
+    wanted: dict[int, set[int]] = {}
+    for row, column in empties:
+        wanted.setdefault(row, set()).add(column)
+    found: list[tuple[int, int, str]] = []
+    workbook = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
+    try:
+        worksheet = workbook[name]
+        worksheet.reset_dimensions()
+        for index, record in enumerate(worksheet.iter_rows(values_only=True), start=1):
+            columns = wanted.get(index)
+            if columns:
+                found += [(index, c, _formula_text(record[c])) for c in sorted(columns)
+                          if c < len(record) and record[c] is not None]
+    except Exception as exc:  # noqa: BLE001 - the XLSX reader raises many types on damaged files
+        raise ImportProblem(
+            f"{path}: sheet {name!r}: its formulas cannot be read ({_damage(exc)}); open the workbook in the "
+            "spreadsheet program and save it again as .xlsx."
+        ) from None
+    finally:
+        workbook.close()
+    return tuple(found)
+
+
+def _formula_text(value: object) -> str:
+    """A formula as the analyst typed it ("=2*5"); an array formula by its text."""
+    text = getattr(value, "text", value)
+    return text if isinstance(text, str) else "a formula"
 
 
 def _cell(value: object) -> Cell:
