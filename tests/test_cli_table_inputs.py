@@ -129,3 +129,52 @@ def test_an_uncalculated_sample_response_is_named_as_a_formula(tmp_path) -> None
     reported = {s["id"]: s["reported"] for s in json.loads(result.stdout)["analytes"][0]["samples"]}
     assert reported["FH-0301"] is None
     assert reported["FH-0302"] == pytest.approx(expected(288.140, 10), rel=1e-12)
+
+
+def both_tables(tmp_path: Path) -> Path:
+    """One workbook with the standards and the samples on sheets of their own, standards first."""
+    return workbook(tmp_path / "run.xlsx", {"Standards": STANDARD_ROWS, "Samples": [SAMPLE_HEADER] + SAMPLE_ROWS})
+
+
+def test_each_table_is_read_from_its_own_sheet(tmp_path) -> None:
+    book = both_tables(tmp_path)
+    for sheets in (("--standards-sheet", "Standards", "--samples-sheet", "Samples"),
+                   ("--sheet", "Samples", "--standards-sheet", "Standards")):  # --sheet for the table not named
+        result = quantify(book, book, *sheets, "--json")
+        assert result.returncode == 0, result.stderr
+        rows = json.loads(result.stdout)["analytes"][0]["samples"]
+        reported = {s["id"]: s["reported"] for s in rows}
+        assert set(reported) == {"FH-0301", "QC mid", "FH-0302"}
+        assert reported["FH-0301"] == pytest.approx(expected(301.552), rel=1e-12)
+        assert reported["FH-0302"] == pytest.approx(expected(288.140, 10), rel=1e-12)
+
+
+@pytest.mark.parametrize("sheets", [("--sheet", "Standards"), (), ("--standards-sheet", "Standards"),
+                                    ("--samples-sheet", "Samples", "--sheet", "Samples")])
+def test_one_sheet_is_never_read_as_both_tables(tmp_path, sheets: tuple[str, ...]) -> None:
+    book = both_tables(tmp_path)
+    result = quantify(book, book, *sheets)
+    assert result.returncode == 2, result.stdout
+    assert result.stdout == ""
+    assert re.search(r"the standards and the samples would both be read from sheet '(Standards|Samples)' of", result.stderr)
+    assert "--standards-sheet SHEET --samples-sheet SHEET (sheets: 'Standards', 'Samples')" in result.stderr
+
+
+def test_one_text_file_is_never_read_as_both_tables(tmp_path) -> None:
+    standards = tmp_path / "std.csv"
+    standards.write_bytes("\r\n".join(",".join(str(c) for c in row) for row in STANDARD_ROWS).encode() + b"\r\n")
+    result = quantify(standards, tmp_path / "." / "std.csv")
+    assert result.returncode == 2, result.stdout
+    assert "the standards and the samples would both be read from" in result.stderr
+
+
+def test_tables_failing_alike_are_each_named_once(tmp_path) -> None:
+    # both tables hold only values with three digits after one mark: each reads two ways
+    standards = tmp_path / "std.csv"
+    standards.write_bytes(b"Concentration;Response\r\n1;1,250\r\n2;2,500\r\n4;5,125\r\n")
+    samples = tmp_path / "smp.csv"
+    samples.write_bytes(b"Sample;Response\r\nS1;1,750\r\n")
+    result = quantify(standards, samples)
+    assert result.returncode == 2, result.stdout
+    assert result.stderr.count(f"standards table {standards}: 3 cell(s) cannot be used") == 1
+    assert result.stderr.count(f"samples table {samples}: 1 cell(s) cannot be used") == 1
