@@ -178,3 +178,68 @@ def test_tables_failing_alike_are_each_named_once(tmp_path) -> None:
     assert result.returncode == 2, result.stdout
     assert result.stderr.count(f"standards table {standards}: 3 cell(s) cannot be used") == 1
     assert result.stderr.count(f"samples table {samples}: 1 cell(s) cannot be used") == 1
+
+
+def standards_lines() -> list[str]:
+    return ["Standard,Concentration (µg/L),Response (counts)"] + [
+        f"CO-{i + 1:02d},{x:g},{y:.3f}" for i, (x, y) in enumerate(zip(CO_X, CO_Y))]
+
+
+def samples_csv(tmp_path: Path) -> Path:
+    path = tmp_path / "smp.csv"
+    path.write_bytes(b"Sample,Dilution,Response (counts)\r\nFH-0301,1,301.552\r\nFH-0302,10,288.140\r\n")
+    return path
+
+
+def test_lines_above_the_header_are_named(tmp_path) -> None:
+    # an instrument's export: a title line, a batch line and a blank line before the header
+    standards = tmp_path / "std.csv"
+    lines = ["Fernhollow laboratory (invented) - export", "Batch,FH-B-0301", ""] + standards_lines()
+    standards.write_bytes("\r\n".join(lines).encode("utf-8") + b"\r\n")
+    result = quantify(standards, samples_csv(tmp_path))
+    assert result.returncode == 2, result.stdout
+    assert ("line 1 ('Fernhollow laboratory (invented) - export') cannot be made a header or a row of the table: "
+            "it holds no comma while 13 lines from line 4 hold 2 each") in result.stderr
+    assert "delete the lines above it" in result.stderr
+
+
+def test_a_file_in_a_windows_code_page_is_named_by_line_and_character(tmp_path) -> None:
+    standards = tmp_path / "std.csv"
+    standards.write_bytes("\r\n".join(standards_lines()).encode("cp1252") + b"\r\n")
+    result = quantify(standards, samples_csv(tmp_path))
+    assert result.returncode == 2, result.stdout
+    # the micro sign is the 25th character of line 1: "Standard,Concentration (" is 24 characters
+    assert "line 1, character 25: byte 0xB5 is not UTF-8 text (as Windows-1252 it would be 'µ')" in result.stderr
+    assert "UTF-8 (with or without a byte-order mark) or UTF-16 with a byte-order mark" in result.stderr
+    assert 'save the file as "CSV UTF-8"' in result.stderr
+    # a later line: counted from 1 after the line end
+    lines = [line.replace("µg/L", "mg/L") for line in standards_lines()] + ["CO-13,25,2203.4 ±"]
+    standards.write_bytes(("\r\n".join(lines) + "\r\n").encode("cp1252"))
+    result = quantify(standards, samples_csv(tmp_path))
+    assert "line 14, character 17: byte 0xB1 is not UTF-8 text (as Windows-1252 it would be '±')" in result.stderr
+
+
+def test_a_unicode_text_file_with_a_byte_order_mark_is_read(tmp_path) -> None:
+    # a spreadsheet program's "Unicode text": UTF-16 little-endian with a byte-order mark, tab-separated
+    standards = tmp_path / "std.txt"
+    standards.write_bytes("\r\n".join(line.replace(",", "\t") for line in standards_lines()).encode("utf-16") + b"")
+    result = quantify(standards, samples_csv(tmp_path), "--json")
+    assert result.returncode == 0, result.stderr
+    reported = {s["id"]: s["reported"] for s in json.loads(result.stdout)["analytes"][0]["samples"]}
+    assert reported["FH-0302"] == pytest.approx(expected(288.140, 10), rel=1e-12)
+    # without its byte-order mark the same text is refused, naming where
+    standards.write_bytes("\r\n".join(line.replace(",", "\t") for line in standards_lines()).encode("utf-16-le"))
+    result = quantify(standards, samples_csv(tmp_path))
+    assert result.returncode == 2, result.stdout
+    assert "line 1, character 2 is a NUL character: the file seems to be UTF-16 text without a byte-order mark" \
+        in result.stderr
+
+
+def test_a_kind_is_quoted_back_as_typed(tmp_path) -> None:
+    samples = tmp_path / "smp.csv"
+    samples.write_bytes(b"Sample,Kind,Response (counts)\r\nFH-0301,QCC,301.552\r\n")
+    standards = tmp_path / "std.csv"
+    standards.write_bytes("\r\n".join(standards_lines()).encode("utf-8") + b"\r\n")
+    result = quantify(standards, samples)
+    assert result.returncode == 2, result.stdout
+    assert "row 2, column 2 (Kind): 'QCC' — not a sample kind" in result.stderr

@@ -305,7 +305,8 @@ def import_samples(
         kind_text = ctx.text(cells, "kind", row_number).lower()
         kind = KIND_WORDS.get(kind_text)
         if kind is None:
-            ctx.reject(row_number, "kind", kind_text, f"not a sample kind ({KIND_CHOICES})", row_fails=True)
+            ctx.reject(row_number, "kind", ctx.raw(cells, "kind").strip(), f"not a sample kind ({KIND_CHOICES})",
+                       row_fails=True)
         response = ctx.sample_reading(cells, "response", row_number, sid)
         is_response = ctx.sample_reading(cells, "is_response", row_number, sid) if "is_response" in ctx.mapping else None
         dilution = ctx.number(cells, "dilution", row_number)
