@@ -243,3 +243,21 @@ def test_a_kind_is_quoted_back_as_typed(tmp_path) -> None:
     result = quantify(standards, samples)
     assert result.returncode == 2, result.stdout
     assert "row 2, column 2 (Kind): 'QCC' — not a sample kind" in result.stderr
+
+
+def test_an_empty_dilution_cell_is_said_to_be_taken_as_one(tmp_path) -> None:
+    standards = tmp_path / "std.csv"
+    standards.write_bytes("\r\n".join(standards_lines()).encode("utf-8") + b"\r\n")
+    samples = tmp_path / "smp.csv"
+    samples.write_bytes(b"Sample,Dilution,Response (counts)\r\nFH-0301,,301.552\r\nFH-0302,10,288.140\r\n")
+    result = quantify(standards, samples, "--json")
+    assert result.returncode == 0, result.stderr
+    data = json.loads(result.stdout)
+    note = f"samples: {samples}: dilution cell empty in row(s) 2: taken as 1 (no dilution)"
+    assert note in data["notes"]
+    reported = {s["id"]: s["reported"] for s in data["analytes"][0]["samples"]}
+    assert reported["FH-0301"] == pytest.approx(expected(301.552), rel=1e-12)
+    assert note in quantify(standards, samples).stdout
+    # every dilution given: nothing is said
+    samples.write_bytes(b"Sample,Dilution,Response (counts)\r\nFH-0301,1,301.552\r\nFH-0302,10,288.140\r\n")
+    assert "taken as 1" not in quantify(standards, samples).stdout

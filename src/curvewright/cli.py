@@ -644,6 +644,10 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
     notes = [f"{what}: {r.headline}" for r, what in zip(results, ("standards", "samples"))]
     notes += [f"{what}: {r.source}: columns not used: {', '.join(repr(c) for c in r.unused_columns)}"
               for r, what in zip(results, ("standards", "samples")) if r.unused_columns]
+    if smp is not None and smp.dilution_taken_as_one:
+        rows = smp.dilution_taken_as_one
+        listed = ", ".join(map(str, rows[:10])) + (f" … and {len(rows) - 10} more" if len(rows) > 10 else "")
+        notes.append(f"samples: {smp.source}: dilution cell empty in row(s) {listed}: taken as 1 (no dilution)")
     unusable = [(smp.source, c) for c in smp.unusable_readings] if smp is not None else []
     warnings = [f"warning: {source}: {cell}" for source, cell in unusable]
     return TableRun(run, notes, warnings, unusable)

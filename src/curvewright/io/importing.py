@@ -194,6 +194,9 @@ class ImportResult:
     unused_columns: tuple[str, ...] = ()
     sheet: str | None = None
     """The workbook sheet the table was read from (None for text)."""
+    dilution_taken_as_one: tuple[int, ...] = ()
+    """Rows of samples imported whose dilution cell is empty, in a table with a dilution column:
+    the factor was taken as 1 (no dilution), as documented, and the front end says so."""
 
     @property
     def complete(self) -> bool:
@@ -295,6 +298,8 @@ def import_samples(
     measured: list[Measurement | list[Measurement]] = []
     firsts: list[int] = []
     seen_rows: dict[int, tuple[dict[str, int], dict[tuple[str, int], int]]] = {}
+    dilution_column = "dilution" in ctx.mapping
+    taken_as_one: list[int] = []
     for row_number, cells in ctx.body():
         sid = ctx.text(cells, "id", row_number)
         if not sid:
@@ -317,6 +322,8 @@ def import_samples(
         replicate = ctx.whole(cells, "replicate", row_number)
         if ctx.row_failed(row_number):
             continue
+        if dilution is None and dilution_column:
+            taken_as_one.append(row_number)
         assert response is not None and kind is not None
         at = index.get(sid)  # a dict: the lookup stays constant-time however many samples
         if at is None:
@@ -367,7 +374,8 @@ def import_samples(
                () if nominals[i] is None else tuple(nominals[i].items()))  # type: ignore[union-attr]
         for sid, i in index.items()
     )
-    return ctx.result(samples=samples)
+    failed = ctx.failed_rows
+    return ctx.result(samples=samples, dilution_taken_as_one=tuple(r for r in taken_as_one if r not in failed))
 
 
 def header_words(header: str) -> tuple[str, str]:
