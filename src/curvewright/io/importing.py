@@ -219,6 +219,9 @@ class ImportResult:
             lines += grouped_cells(self.unusable_readings, answer)
         if self.empty_rows:
             lines.append(f"empty rows passed over: {', '.join(map(str, self.empty_rows))}")
+        if self.dilution_taken_as_one:
+            lines.append(f"dilution cell empty, taken as 1 (no dilution): row(s) "
+                         f"{', '.join(map(str, self.dilution_taken_as_one))}")
         lines += self.warnings
         return "\n".join(lines)
 
