@@ -34,3 +34,24 @@ def test_the_dialog_says_an_empty_dilution_is_taken_as_one(qtbot, tmp_path) -> N
     qtbot.addWidget(dialog)
     assert "dilution cell empty, taken as 1 (no dilution): row(s) 2" in dialog.summary.toPlainText()
     assert [s.dilution_factor for s in dialog.result.samples] == [1.0, 10.0]
+
+
+def test_a_standard_whose_id_or_level_is_an_uncalculated_formula_is_not_imported(qtbot, tmp_path) -> None:
+    from curvewright.app.dialogs import ImportDialog
+
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.title = "Standards"
+    rows = [["Standard", "Level", "Concentration (µg/L)", "Response (counts)"],
+            ["CO-01", "L1", 0.5, 44.512], ['="CO-"&"02"', "L1", 0.5, 45.087], ["CO-03", '="L"&2', 1, 88.903],
+            ["CO-04", "L2", 1, 89.617]]
+    for row in rows:
+        sheet.append(row)
+    path = tmp_path / "standards.xlsx"
+    book.save(path)
+    dialog = ImportDialog("standards", path)
+    qtbot.addWidget(dialog)
+    summary = dialog.summary.toPlainText()
+    assert "row 3, column 1 (Standard): '=\"CO-\"&\"02\"' — a formula with no calculated value" in summary
+    assert "row 4, column 2 (Level): '=\"L\"&2' — a formula with no calculated value" in summary
+    assert [s.id for _, s in dialog.result.standards] == ["CO-01", "CO-04"]

@@ -252,6 +252,8 @@ def import_standards(
         response = ctx.reading(cells, "response", row_number, required=True)
         is_response = ctx.reading(cells, "is_response", row_number) if "is_response" in ctx.mapping else None
         replicate = ctx.whole(cells, "replicate", row_number)
+        sid = ctx.text(cells, "id", row_number) or f"row {row_number}"
+        level = ctx.text(cells, "level", row_number)
         if ctx.row_failed(row_number):
             continue
         assert conc is not None and response is not None
@@ -259,13 +261,12 @@ def import_standards(
             key = (name, conc)
             replicate_count[key] = replicate_count.get(key, 0) + 1
             replicate = replicate_count[key]
-        sid = ctx.text(cells, "id", row_number) or f"row {row_number}"
         if (name, sid) in first_seen:
             ctx.reject(row_number, "id", sid, f"duplicate standard id (first at row {first_seen[(name, sid)]})", row_fails=True)
             continue
         first_seen[(name, sid)] = row_number
         standards.append(
-            (name, Standard(sid, conc, response, replicate, ctx.text(cells, "level", row_number), True, "", is_response))
+            (name, Standard(sid, conc, response, replicate, level, True, "", is_response))
         )
     return ctx.result(standards=tuple(standards))
 
