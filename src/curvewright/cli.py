@@ -121,6 +121,7 @@ def build_parser(only: str | None = None) -> argparse.ArgumentParser:
         q.add_argument("--analyte", action="append", metavar="NAME",
                        help="analyte to process (repeatable; default all); with --standards, the analyte's name")
         _table_options(q)
+        q.add_argument("--samples-sheet", metavar="SHEET", help="sheet of an XLSX samples table (instead of --sheet)")
         q.add_argument("--allow-unreadable", action="store_true",
                        help="with --samples: accept sample readings that could not be read (still listed); "
                             "otherwise the exit code is 2")
@@ -195,7 +196,8 @@ def _identity_options(parser: argparse.ArgumentParser) -> None:
 
 def _table_options(parser: argparse.ArgumentParser) -> None:
     """How tables are read: shared by ``quantify`` and ``compare``."""
-    parser.add_argument("--sheet", help="sheet of an XLSX table (default: the first)")
+    parser.add_argument("--sheet", help="sheet of the XLSX tables, standards and samples alike (default: the first)")
+    parser.add_argument("--standards-sheet", metavar="SHEET", help="sheet of an XLSX standards table (instead of --sheet)")
     parser.add_argument("--map", action="append", metavar="FIELD=HEADER", default=[],
                         help="take FIELD from the column with this header text or 1-based number "
                              "(repeatable; standards.FIELD or samples.FIELD for one table only), "
@@ -705,17 +707,22 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
     std_map, smp_map = parse_maps(args.map)
     thousands = {"space": " "}.get(args.thousands, args.thousands)
     reading = {"decimal_mark": args.decimal_mark, "thousands": thousands}
-    std = _import_table(import_standards, args.standards, args.sheet, std_map, analyte=name, **reading)
+    std_sheet = args.standards_sheet or args.sheet
+    smp_sheet = (getattr(args, "samples_sheet", None) or args.sheet) if with_samples else None
+    if with_samples:
+        _refuse_one_table_as_both(args.standards, std_sheet, args.samples, smp_sheet)
+    std = _import_table(import_standards, args.standards, std_sheet, std_map, analyte=name, **reading)
     results = [std]
     smp = None
     if with_samples:
         smp_name = std.standards[0][0] if std.standards else name
-        smp = _import_table(import_samples, args.samples, args.sheet, smp_map, analyte=smp_name, **reading)
+        smp = _import_table(import_samples, args.samples, smp_sheet, smp_map, analyte=smp_name, **reading)
         results.append(smp)
     problems: list[str] = []
-    for result in results:
+    for result, what in zip(results, ("standards", "samples")):
         if result.rejected:
-            problems.append(f"{result.source}: {len(result.rejected)} cell(s) cannot be used; "
+            sheet = f", sheet {result.sheet!r}" if result.sheet is not None else ""
+            problems.append(f"{what} table {result.source}{sheet}: {len(result.rejected)} cell(s) cannot be used; "
                             f"{len(result.rejected_rows)} row(s) not imported:")
             problems += grouped_cells(result.rejected, cli_answer)
     if problems:
@@ -732,9 +739,41 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
     notes = [f"{what}: {r.headline}" for r, what in zip(results, ("standards", "samples"))]
     notes += [f"{what}: {r.source}: columns not used: {', '.join(repr(c) for c in r.unused_columns)}"
               for r, what in zip(results, ("standards", "samples")) if r.unused_columns]
+    if smp is not None and smp.dilution_taken_as_one:
+        rows = smp.dilution_taken_as_one
+        listed = ", ".join(map(str, rows[:10])) + (f" … and {len(rows) - 10} more" if len(rows) > 10 else "")
+        notes.append(f"samples: {smp.source}: dilution cell empty in row(s) {listed}: taken as 1 (no dilution)")
     unusable = [(smp.source, c) for c in smp.unusable_readings] if smp is not None else []
     warnings = [f"warning: {source}: {cell}" for source, cell in unusable]
     return TableRun(run, notes, warnings, unusable)
+
+
+def _refuse_one_table_as_both(standards: str, std_sheet: str | None, samples: str, smp_sheet: str | None) -> None:
+    """Stop when the standards and the samples would be read from the same sheet of the same file
+    (or the same text file): the one table cannot be both."""
+    try:
+        same = Path(standards).resolve() == Path(samples).resolve() or Path(standards).samefile(samples)
+    except OSError:
+        same = False
+    if not same:
+        return
+    if not _is_workbook(standards):
+        raise InputError(f"the standards and the samples would both be read from {standards}: one table cannot be "
+                         "both. Name the samples table's own file with --samples.")
+    if std_sheet and smp_sheet and std_sheet != smp_sheet:
+        return
+    from .io.tables import xlsx_sheet_names
+
+    sheets = xlsx_sheet_names(standards)
+    first = sheets[0] if sheets else None
+    if (std_sheet or first) != (smp_sheet or first):
+        return
+    listed = ", ".join(repr(n) for n in sheets)
+    raise InputError(
+        f"the standards and the samples would both be read from sheet {std_sheet or first!r} of {standards}: one "
+        f"sheet cannot be both tables. Give each table its own sheet: --standards-sheet SHEET --samples-sheet SHEET "
+        f"(sheets: {listed})."
+    )
 
 
 def _import_table(importer, path: str, sheet: str | None, mapping: dict[str, str | int], **options):  # type: ignore[no-untyped-def]
@@ -860,7 +899,11 @@ def _with_settings(run, level: float | None, profile: str | None):  # type: igno
 def _table(path: str, sheet: str | None):  # type: ignore[no-untyped-def]
     from .io.tables import table_from_csv, table_from_xlsx
 
-    return table_from_xlsx(path, sheet) if path.lower().endswith((".xlsx", ".xlsm")) else table_from_csv(path)
+    return table_from_xlsx(path, sheet) if _is_workbook(path) else table_from_csv(path)
+
+
+def _is_workbook(path: str) -> bool:
+    return path.lower().endswith((".xlsx", ".xlsm"))
 
 
 def _quantify(  # type: ignore[no-untyped-def]

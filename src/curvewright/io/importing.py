@@ -14,6 +14,11 @@ it, so that a front end can say once what the table shows and which of its contr
 table an empty response, or text that is neither a number nor a censored value, does not stop the
 import: the reading is kept as typed, the sample is reported without it, and the cell is listed in
 ``ImportResult.unusable_readings``.
+
+A workbook cell holding a formula never calculated (``RawTable.uncalculated``) is refused with its
+formula wherever it is read, never taken as empty: no default (a dilution of 1, an unknown kind, a
+counted replicate) stands in for it. In the samples table's responses it is a reading kept as
+typed, as text that is not a number is.
 """
 
 from __future__ import annotations
@@ -42,6 +47,9 @@ STANDARD_REQUIRED = ("concentration", "response")
 SAMPLE_REQUIRED = ("id", "response")
 TEXT_FIELDS = ("id", "analyte", "kind", "level")
 """Columns of words, not numbers: they are no evidence of the table's decimal mark."""
+UNCALCULATED = ("a formula with no calculated value; open and save the workbook in a spreadsheet program "
+                "(which calculates it), or type the value")
+"""Why a workbook cell holding a formula never calculated is refused (no default stands in for it)."""
 GROUP_LIMIT = 10
 """Cells listed under one grouped finding before "… and N more"."""
 
@@ -184,6 +192,11 @@ class ImportResult:
     warnings: tuple[str, ...] = field(default=())
     unusable_readings: tuple[RejectedCell, ...] = ()
     unused_columns: tuple[str, ...] = ()
+    sheet: str | None = None
+    """The workbook sheet the table was read from (None for text)."""
+    dilution_taken_as_one: tuple[int, ...] = ()
+    """Rows of samples imported whose dilution cell is empty, in a table with a dilution column:
+    the factor was taken as 1 (no dilution), as documented, and the front end says so."""
 
     @property
     def complete(self) -> bool:
@@ -206,6 +219,9 @@ class ImportResult:
             lines += grouped_cells(self.unusable_readings, answer)
         if self.empty_rows:
             lines.append(f"empty rows passed over: {', '.join(map(str, self.empty_rows))}")
+        if self.dilution_taken_as_one:
+            lines.append(f"dilution cell empty, taken as 1 (no dilution): row(s) "
+                         f"{', '.join(map(str, self.dilution_taken_as_one))}")
         lines += self.warnings
         return "\n".join(lines)
 
@@ -236,6 +252,8 @@ def import_standards(
         response = ctx.reading(cells, "response", row_number, required=True)
         is_response = ctx.reading(cells, "is_response", row_number) if "is_response" in ctx.mapping else None
         replicate = ctx.whole(cells, "replicate", row_number)
+        sid = ctx.text(cells, "id", row_number) or f"row {row_number}"
+        level = ctx.text(cells, "level", row_number)
         if ctx.row_failed(row_number):
             continue
         assert conc is not None and response is not None
@@ -243,13 +261,12 @@ def import_standards(
             key = (name, conc)
             replicate_count[key] = replicate_count.get(key, 0) + 1
             replicate = replicate_count[key]
-        sid = ctx.text(cells, "id", row_number) or f"row {row_number}"
         if (name, sid) in first_seen:
             ctx.reject(row_number, "id", sid, f"duplicate standard id (first at row {first_seen[(name, sid)]})", row_fails=True)
             continue
         first_seen[(name, sid)] = row_number
         standards.append(
-            (name, Standard(sid, conc, response, replicate, ctx.text(cells, "level", row_number), True, "", is_response))
+            (name, Standard(sid, conc, response, replicate, level, True, "", is_response))
         )
     return ctx.result(standards=tuple(standards))
 
@@ -285,16 +302,20 @@ def import_samples(
     measured: list[Measurement | list[Measurement]] = []
     firsts: list[int] = []
     seen_rows: dict[int, tuple[dict[str, int], dict[tuple[str, int], int]]] = {}
+    dilution_column = "dilution" in ctx.mapping
+    taken_as_one: list[int] = []
     for row_number, cells in ctx.body():
         sid = ctx.text(cells, "id", row_number)
         if not sid:
-            ctx.reject(row_number, "id", "", "a sample needs an id", row_fails=True)
+            if not ctx.row_failed(row_number):
+                ctx.reject(row_number, "id", "", "a sample needs an id", row_fails=True)
             continue
         name = ctx.text(cells, "analyte", row_number) or analyte
         kind_text = ctx.text(cells, "kind", row_number).lower()
         kind = KIND_WORDS.get(kind_text)
         if kind is None:
-            ctx.reject(row_number, "kind", kind_text, f"not a sample kind ({KIND_CHOICES})", row_fails=True)
+            ctx.reject(row_number, "kind", ctx.raw(cells, "kind").strip(), f"not a sample kind ({KIND_CHOICES})",
+                       row_fails=True)
         response = ctx.sample_reading(cells, "response", row_number, sid)
         is_response = ctx.sample_reading(cells, "is_response", row_number, sid) if "is_response" in ctx.mapping else None
         dilution = ctx.number(cells, "dilution", row_number)
@@ -305,6 +326,8 @@ def import_samples(
         replicate = ctx.whole(cells, "replicate", row_number)
         if ctx.row_failed(row_number):
             continue
+        if dilution is None and dilution_column:
+            taken_as_one.append(row_number)
         assert response is not None and kind is not None
         at = index.get(sid)  # a dict: the lookup stays constant-time however many samples
         if at is None:
@@ -355,7 +378,8 @@ def import_samples(
                () if nominals[i] is None else tuple(nominals[i].items()))  # type: ignore[union-attr]
         for sid, i in index.items()
     )
-    return ctx.result(samples=samples)
+    failed = ctx.failed_rows
+    return ctx.result(samples=samples, dilution_taken_as_one=tuple(r for r in taken_as_one if r not in failed))
 
 
 def header_words(header: str) -> tuple[str, str]:
@@ -385,6 +409,7 @@ class _Context:
         self.failed_rows: set[int] = set()
         self.empty_rows: list[int] = []
         self.warnings: list[str] = []
+        self.formulas = {(row, column): text for row, column, text in table.uncalculated}
         rows = list(zip(table.row_numbers, table.rows))
         while rows and all(_blank(c) for c in rows[0][1]):
             self.empty_rows.append(rows.pop(0)[0])
@@ -398,6 +423,8 @@ class _Context:
         if missing:
             raise MissingColumns(table.source, header_row, self.headers, missing)
         self.rows = rows[1:]
+        used = set(self.mapping.values())
+        self.formula_rows = {row for row, column in self.formulas if column in used}
         text_columns = {i for f, i in self.mapping.items() if f in TEXT_FIELDS}
         tokens = [c for _, r in self.rows for i, c in enumerate(r) if isinstance(c, str) and i not in text_columns]
         self.evidence: DecimalEvidence = decimal_evidence(tokens, table.delimiter)
@@ -470,7 +497,7 @@ class _Context:
     def body(self):  # type: ignore[no-untyped-def]
         width = len(self.headers)
         for row_number, cells in self.rows:
-            if all(_blank(c) for c in cells):
+            if all(_blank(c) for c in cells) and row_number not in self.formula_rows:
                 self.empty_rows.append(row_number)
                 continue
             if len(cells) > width and any(not _blank(c) for c in cells[width:]):
@@ -501,7 +528,23 @@ class _Context:
         return row in self.failed_rows
 
     def text(self, cells: tuple[Cell, ...], f: str, row: int) -> str:
-        return self.raw(cells, f).strip() if f in self.mapping else ""
+        if f not in self.mapping:
+            return ""
+        text = self.raw(cells, f).strip()
+        if not text and self.uncalculated(f, row):
+            return ""
+        return text
+
+    def uncalculated(self, f: str, row: int) -> bool:
+        """True, with the cell refused, when the cell of field ``f`` in ``row`` holds a formula with
+        no calculated value (only workbook cells read as empty can)."""
+        if not self.formulas:
+            return False
+        formula = self.formulas.get((row, self.mapping[f]))
+        if formula is None:
+            return False
+        self.reject(row, f, formula, UNCALCULATED, row_fails=True)
+        return True
 
     def mark_problem(self, value: str) -> tuple[str, Remedy] | None:
         """Why a token cannot be read while the table's decimal mark is undecided, and the option that answers."""
@@ -554,6 +597,8 @@ class _Context:
         value = cells[i] if i < len(cells) else ""
         if isinstance(value, float):
             return Reading(value, repr(value))
+        if not value and self.uncalculated(f, row):
+            return None
         reading, problem, remedy = self.parse(value)
         if problem:
             self.reject(row, f, value, problem, row_fails=True, remedy=remedy)
@@ -574,6 +619,10 @@ class _Context:
         if isinstance(value, float):
             return Reading(value, repr(value))
         what = "response" if f == "response" else "internal-standard response"
+        if not value and (formula := self.formulas.get((row, i))) is not None:
+            self.unusable.append(RejectedCell(row, self.column_name(f), formula,
+                                              f"{UNCALCULATED}; sample {sample_id!r} is reported without this {what}"))
+            return Reading(None, formula)  # kept as typed, as text that is not a number is
         reading, problem, remedy = self.parse(value)
         if problem and remedy is not None:
             self.reject(row, f, value, problem, row_fails=True, remedy=remedy)
@@ -596,6 +645,8 @@ class _Context:
         if isinstance(value, float):
             return value
         if not value.strip(" \u00a0\t"):
+            if not value and self.uncalculated(f, row):
+                return None
             if required:
                 self.reject(row, f, value, "empty: a number is needed here", row_fails=True)
             return None
@@ -637,6 +688,7 @@ class _Context:
             warnings=tuple(self.warnings),
             unusable_readings=tuple(c for c in self.unusable if c.row not in self.failed_rows),
             unused_columns=self.unused,
+            sheet=self.table.sheet,
             **parts,
         )
 

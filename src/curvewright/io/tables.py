@@ -9,6 +9,9 @@ from __future__ import annotations
 import csv
 import io
 import math
+import re
+import zipfile
+import zlib
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -31,6 +34,9 @@ class RawTable:
     source: str
     sha256: str | None = None
     sheet: str | None = None
+    uncalculated: tuple[tuple[int, int, str], ...] = ()
+    """(row number, 0-based column, formula) of each workbook cell holding a formula with no
+    calculated value: read as empty text, and refused by the importer wherever it is read."""
 
     @property
     def delimiter_name(self) -> str:
@@ -43,7 +49,8 @@ def detect_delimiter(text: str) -> str:
     Only what lies outside quoted fields counts: a tab or comma inside a quoted sample id
     (``"Well 3, rinse"``) says nothing about how the columns are separated.
     """
-    lines = [line for line in _outside_quotes(text).splitlines() if line.strip()]
+    outside = _outside_quotes(text)
+    lines = [line for line in outside.splitlines() if line.strip()]
     if not lines:
         raise ImportProblem("the table is empty: nothing was pasted or the file holds no rows.")
     if any("\t" in line for line in lines):
@@ -62,9 +69,42 @@ def detect_delimiter(text: str) -> str:
     if len(lines) == 1 or all(len(line.split()) == 1 for line in lines):
         return "\t"  # a single column
     raise ImportProblem(
-        "cannot tell how the columns are separated (no tab, semicolon or comma on every line); "
-        "copy the cells from the spreadsheet, or save as CSV."
+        "cannot tell how the columns are separated (no tab, semicolon or comma on every line)"
+        f"{_odd_line(text, outside)}; copy the cells from the spreadsheet, or save as CSV."
     )
+
+
+def _odd_line(text: str, outside: str) -> str:
+    """Words naming the first line that does not split like most lines (a title or batch line above
+    the header, a note below the table), or "" when no line stands out. Line numbers are given only
+    where no quoted field holds a line break (they are then the file's own)."""
+    numbered = [(n, line) for n, line in enumerate(_LINE_BREAK.split(outside), start=1) if line.strip()]
+    best: tuple[int, str, int] | None = None  # (lines that agree, delimiter, count per line)
+    for d in (";", ","):
+        counts = [line.count(d) for _, line in numbered]
+        usual = max((c for c in counts if c), key=counts.count, default=0)
+        if usual and (best is None or counts.count(usual) > best[0]):
+            best = (counts.count(usual), d, usual)
+    if best is None or best[0] < 2:
+        return ""
+    agree, d, usual = best
+    first = next(n for n, line in numbered if line.count(d) == usual)
+    odd = next(((n, line) for n, line in numbered if line.count(d) != usual), None)
+    if odd is None:  # lines split otherwise than by line ends alone (a form feed, a line separator)
+        return ""
+    originals = _LINE_BREAK.split(text)
+    exact = len(originals) == len(_LINE_BREAK.split(outside))
+    shown = originals[odd[0] - 1].strip() if exact else odd[1].strip()
+    shown = shown if len(shown) <= 60 else shown[:57] + "..."
+    name = {";": "semicolon", ",": "comma"}[d]
+    where = f"line {odd[0]} " if exact else "the line "
+    lines_from = f"from line {first} " if exact else ""
+    place = ("the header row must be the first line: delete the lines above it (a title, a batch line)"
+             if odd[0] < first else "delete the lines that are not rows of the table (a note below it)")
+    held = odd[1].count(d)
+    holds = f"no {name}" if held == 0 else f"1 {name}" if held == 1 else f"{held} {name}s"
+    return (f": {where}({shown!r}) cannot be made a header or a row of the table: it holds {holds} while "
+            f"{agree} lines {lines_from}hold {usual} each; {place}")
 
 
 def _outside_quotes(text: str) -> str:
@@ -125,13 +165,58 @@ def table_from_text(text: str, *, delimiter: str | None = None, source: str = "p
 def table_from_csv(path: str | Path, *, delimiter: str | None = None) -> RawTable:
     path = Path(path)
     data = _read_bytes(path)
-    try:
-        text = data.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
+    return table_from_text(_decoded(data, path), delimiter=delimiter, source=str(path), sha256=file_sha256(data))
+
+
+ENCODINGS_READ = "UTF-8 (with or without a byte-order mark) or UTF-16 with a byte-order mark"
+SAVE_AS_UTF8 = ('save the file as "CSV UTF-8" in the spreadsheet program (or with the encoding UTF-8 in a '
+                "text editor) and import again")
+
+
+def _decoded(data: bytes, path: Path) -> str:
+    """The text of a table file: UTF-8, or UTF-16 where a byte-order mark says so (a spreadsheet
+    program's "Unicode text"). Anything else is refused naming the line and character where it stops
+    being such text."""
+    if data.startswith((b"\xff\xfe", b"\xfe\xff")) and not data.startswith(b"\xff\xfe\x00\x00"):
+        try:
+            text = data.decode("utf-16")
+        except UnicodeDecodeError as exc:
+            raise ImportProblem(
+                f"{path}: the file begins as UTF-16 text but byte {exc.start + 1} is not; {SAVE_AS_UTF8}."
+            ) from None
+        text = text.lstrip("\ufeff")
+    elif b"\x00" in data:
+        before = _LINE_BREAK.split(data[:data.index(b"\x00")].decode("utf-8-sig", errors="replace"))
         raise ImportProblem(
-            f"{path}: byte {exc.start} is not UTF-8 text; save the file as CSV UTF-8 and import again."
-        ) from None
-    return table_from_text(text, delimiter=delimiter, source=str(path), sha256=file_sha256(data))
+            f"{path}: line {len(before)}, character {len(before[-1]) + 1} is a NUL character: the file seems to be "
+            f"UTF-16 text without a byte-order mark, or not text at all. Tables are read as {ENCODINGS_READ}: "
+            f"{SAVE_AS_UTF8}."
+        )
+    else:
+        try:
+            text = data.decode("utf-8-sig")
+        except UnicodeDecodeError as exc:
+            line, character = _position(data, exc.start)
+            byte = data[exc.start]
+            try:
+                as_windows = f" (as Windows-1252 it would be {bytes([byte]).decode('cp1252')!r})"
+            except UnicodeDecodeError:
+                as_windows = ""
+            raise ImportProblem(
+                f"{path}: line {line}, character {character}: byte 0x{byte:02X} is not UTF-8 text{as_windows}; "
+                f"the file seems saved in another encoding. Tables are read as {ENCODINGS_READ}: {SAVE_AS_UTF8}."
+            ) from None
+    return text
+
+
+_LINE_BREAK = re.compile(r"\r\n|\r|\n")
+"""Line ends as the CSV reader counts its lines."""
+
+
+def _position(data: bytes, offset: int) -> tuple[int, int]:
+    """(line, character), both from 1, of the byte at ``offset`` in UTF-8 ``data`` valid up to it."""
+    before = _LINE_BREAK.split(data[:offset].decode("utf-8-sig"))
+    return len(before), len(before[-1]) + 1
 
 
 def xlsx_sheet_names(path: str | Path) -> tuple[str, ...]:
@@ -146,7 +231,8 @@ def xlsx_sheet_names(path: str | Path) -> tuple[str, ...]:
 def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
     """Read one sheet (the first when ``sheet`` is None) in read-only mode, taking the values the
     spreadsheet stored (a formula cell gives its last calculated value; one never calculated reads
-    as empty, and the importer then reports the cell as missing). Every row the sheet holds is read,
+    as empty and is listed in ``RawTable.uncalculated``, which the importer refuses wherever it is
+    read, so that no default stands in for it). Every row the sheet holds is read,
     each up to its last cell, whatever range the sheet's own dimension claims (a wrong claim would
     otherwise drop rows or pad every row to thousands of columns).
 
@@ -158,6 +244,8 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
     workbook = _open_workbook(path, data)
     rows: list[tuple[Cell, ...]] = []
     numbers: list[int] = []
+    formulas = _holds_formulas(data)
+    empties: list[tuple[int, int]] = []
     try:
         name = sheet or (workbook.sheetnames[0] if workbook.sheetnames else None)
         if name is None:
@@ -180,6 +268,8 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
                     )
                 rows.append(tuple(_cell(v) for v in record))
                 numbers.append(index)
+                if formulas:
+                    empties += [(index, column) for column, v in enumerate(record) if v is None]
         except ImportProblem:
             raise
         except Exception as exc:  # noqa: BLE001 - the XLSX reader raises many types on damaged files
@@ -189,7 +279,56 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
             ) from None
     finally:
         workbook.close()
-    return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name)
+    uncalculated = _formulas_among(path, data, name, empties) if empties else ()
+    return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name, uncalculated)
+
+
+_FORMULA_TAG = re.compile(rb"<(?:[A-Za-z_][\w.-]{0,31}:)?f[\s/>]")
+
+
+def _holds_formulas(data: bytes) -> bool:
+    """True when a worksheet part of the workbook holds a formula element (ECMA-376 Part 1, the
+    cell's ``f`` child). Only then are the empty cells looked at a second time."""
+    try:
+        with zipfile.ZipFile(io.BytesIO(data)) as archive:
+            return any(_FORMULA_TAG.search(archive.read(info))
+                       for info in archive.infolist() if info.filename.startswith("xl/worksheets/"))
+    except (zipfile.BadZipFile, OSError, ValueError, RuntimeError, EOFError, zlib.error):
+        return True  # the reading itself has passed: look again rather than guess
+
+
+def _formulas_among(path: Path, data: bytes, name: str, empties: list[tuple[int, int]]) -> tuple[tuple[int, int, str], ...]:
+    """Which of the empty cells (row number, 0-based column) of sheet ``name`` hold a formula, with
+    the formula's text: the sheet read again with the formulas instead of their stored values."""
+    import openpyxl
+
+    wanted: dict[int, set[int]] = {}
+    for row, column in empties:
+        wanted.setdefault(row, set()).add(column)
+    found: list[tuple[int, int, str]] = []
+    workbook = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
+    try:
+        worksheet = workbook[name]
+        worksheet.reset_dimensions()
+        for index, record in enumerate(worksheet.iter_rows(values_only=True), start=1):
+            columns = wanted.get(index)
+            if columns:
+                found += [(index, c, _formula_text(record[c])) for c in sorted(columns)
+                          if c < len(record) and record[c] is not None]
+    except Exception as exc:  # noqa: BLE001 - the XLSX reader raises many types on damaged files
+        raise ImportProblem(
+            f"{path}: sheet {name!r}: its formulas cannot be read ({_damage(exc)}); open the workbook in the "
+            "spreadsheet program and save it again as .xlsx."
+        ) from None
+    finally:
+        workbook.close()
+    return tuple(found)
+
+
+def _formula_text(value: object) -> str:
+    """A formula as the analyst typed it ("=2*5"); an array formula by its text."""
+    text = getattr(value, "text", value)
+    return text if isinstance(text, str) else "a formula"
 
 
 def _cell(value: object) -> Cell:
