@@ -1413,6 +1413,11 @@ def cmd_check(args: argparse.Namespace) -> int:
                     "no entry records a content hash (written by an earlier version), so edits to the data cannot be detected")
             print(f"{path}: valid; audit trail verified ({len(run.audit)} entries); {data}; {len(run.analytes)} "
                   f"analyte(s), {standards} standards, {len(run.samples)} samples")
+        for number, entry in enumerate(run.audit, start=1):
+            if entry.action == "data_changed_outside":
+                from .io.audit_words import entry_words
+
+                print(f"  entry {number} records data changed outside Curvewright: {entry_words(entry)}")
         if opened.migrated_from is not None:
             print(f"  written in schema version {opened.migrated_from}; it opens as the current version")
         code = max(code, _print_signatures(run, lab_key))

@@ -580,7 +580,9 @@ class MainWindow(QMainWindow):
         self._remember(path)
         if problems:
             QMessageBox.warning(self, "Not as Curvewright left it",
-                                "This run opened, but it is not as Curvewright left it:\n\n" + "\n".join(problems))
+                                "This run opened, but it is not as Curvewright left it:\n\n" + "\n".join(problems)
+                                + ("\n\nThe change is now recorded in the audit trail; save the run to keep that record."
+                                   if self.session.dirty else ""))
         return True
 
     def save(self) -> bool:

@@ -329,8 +329,17 @@ class RunSession(QObject):
 
     @classmethod
     def open(cls, path: Path, **kwargs) -> tuple["RunSession", tuple[str, ...]]:  # type: ignore[no-untyped-def]
+        """The run in the document at ``path`` and what checking it found. Where its data were changed
+        outside Curvewright, the trail gets an entry naming the change at once (not undoable, saved with
+        the run), so that no later entry can make the change vanish from the trail."""
+        from ..io.run_edits import note_outside_change
+
         opened = open_run(path)
-        return cls(opened.run, Path(path), disk_sha256=opened.sha256, **kwargs), opened.integrity_problems
+        noted = note_outside_change(opened.run, user=kwargs.get("identity") or identity_from())
+        session = cls(noted, Path(path), disk_sha256=opened.sha256, **kwargs)
+        if noted is not opened.run:
+            session._unsaved_records = True  # the entry is not yet in the file: saving keeps it
+        return session, opened.integrity_problems
 
     # --- recovery ----------------------------------------------------------------------------------
     def recovery_path(self) -> Path:

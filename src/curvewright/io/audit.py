@@ -52,6 +52,7 @@ ACTIONS = (
     "signed",
     "approval_withdrawn",
     "method_applied",
+    "data_changed_outside",
 )
 
 Clock = Callable[[], datetime]
@@ -188,10 +189,12 @@ def chain_claim(run, chain_problems: tuple[str, ...] | None = None) -> tuple[boo
     if problems:
         return False, "NOT verified: " + "; ".join(problems)
     recorded = any(e.content_sha256 for e in run.audit)
+    outside = [i + 1 for i, e in enumerate(run.audit) if e.action == "data_changed_outside"]
     data = ("and the data match the content hash of the last entry" if recorded else
             "but no entry records a content hash (written by an earlier version), so edits of the data cannot be seen")
     keyed = any(s.signature for s in run.signatures)
     return True, (f"verified: every entry follows the one before and is unaltered, {data}. This detects accidental or "
                   "casual edits of the file; it does not detect someone who edits the data and rebuilds the whole chain"
                   + (" — the keyed signatures below do" if keyed else " (only signatures with a laboratory key would)")
-                  + ".")
+                  + "." + (f" The trail records data changed outside Curvewright (entry {', '.join(map(str, outside))}): "
+                           "see the audit trail." if outside else ""))

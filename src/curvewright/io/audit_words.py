@@ -120,6 +120,10 @@ def _entry_words(e: AuditEntry) -> str:
         return f"applied the validated method {d.get('method', '')} version {d.get('version', '')} ({d.get('name', '')})."
     if a in ("change_undone", "change_redone"):
         return f"{'undid' if a == 'change_undone' else 'redid'}: {d.get('change', '')}."
+    if a == "data_changed_outside":
+        changes = "; ".join(str(c) for c in d.get("changes") or ()) or "which values cannot be said"
+        return (f"found the data changed outside Curvewright after entry {d.get('after_entry', '')} "
+                f"({d.get('entry_time', '')}, {d.get('entry_by', '')}): {changes}.")
     if a == "recovered_after_crash":
         return "restored unsaved work after the program did not close normally."
     if a == "document_migrated":

@@ -298,11 +298,14 @@ def append_to_run_document(
     for _ in range(_APPEND_ATTEMPTS):
         with exclusive_lock(path) as locked:
             opened = open_run(path)
-            trail = opened.run.audit
+            from .run_edits import note_outside_change
+
+            noted = note_outside_change(opened.run, user=user, clock=clock)
+            trail = noted.audit
             unchanged = content_sha256(opened.run)
             for action, details in entries:
                 trail = append_entry(trail, action, details, user=user, clock=clock, content_sha256=unchanged)
-            run = replace(opened.run, audit=trail)
+            run = replace(noted, audit=trail)
             data = _readable_document(run, path)
             if not locked and not document_unchanged(path, opened.sha256):
                 continue  # another writer came in between: read its version and append to that

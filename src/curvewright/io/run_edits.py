@@ -41,6 +41,22 @@ def record(run: Run, action: str, details: Mapping[str, Any], *, user: Identity 
     return _log(run, action, details, user, clock)
 
 
+def note_outside_change(run: Run, *, user: Identity | str | None = None, clock: Clock = utc_now) -> Run:
+    """The run with an entry recording that its data no longer match the hash its trail recorded last
+    (changed outside Curvewright), naming what changed, when there is such a change; otherwise the same
+    run. Every later entry records the hash of the data as they are, so without this entry the outside
+    change would vanish from the trail: it is made before any other entry is added to a run read from a
+    document (the run as read, which keeps the digest its document carried)."""
+    from .integrity import content_change
+
+    change = content_change(run)
+    if change is None:
+        return run
+    details = {"after_entry": change.entry_number, "entry_time": change.entry_time, "entry_by": change.entry_user,
+               "changes": list(change.changes)}
+    return _log(run, "data_changed_outside", details, user, clock)
+
+
 def exclude_standard(
     run: Run, analyte: str, standard_id: str, reason: str, *, user: Identity | str | None = None, clock: Clock = utc_now
 ) -> Run:
@@ -287,7 +303,8 @@ class RunLocked(RunError):
     """The run is approved: its content cannot change until the approval is withdrawn, with a reason."""
 
 
-RECORDS_ONLY = ("export_written", "report_written", "recovered_after_crash", "document_migrated")
+RECORDS_ONLY = ("export_written", "report_written", "recovered_after_crash", "document_migrated",
+                "data_changed_outside")
 """Entries that record what was done with the run without changing its content (allowed on an
 approved run)."""
 

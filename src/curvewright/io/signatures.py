@@ -114,6 +114,12 @@ def sign(run: Run, role: str, person: Identity, *, meaning: str = "", key_file: 
                            "--analyst NAME on the command line).")
     if role == "approver" and run.approval is not None:
         raise SigningError(f"the run is already approved by {run.approval.name} ({run.approval.time_utc}).")
+    from .integrity import content_change
+
+    change = content_change(run)
+    if change is not None:
+        raise SigningError(f"{change}. A signature would cover data its audit trail does not account for: open the "
+                           "run in Curvewright, which records the change in the trail, review it and save, then sign.")
     meaning = (meaning or DEFAULT_MEANINGS[role]).strip()
     moment = clock().astimezone(timezone.utc)
     time_utc = _time_text(moment)
@@ -145,6 +151,9 @@ def withdraw_approval(run: Run, person: Identity, reason: str, *, clock: Clock =
     if not person.name.strip():
         raise SigningError("withdrawing an approval needs your full name (set it in the app's settings, or give "
                            "--analyst NAME on the command line).")
+    from .run_edits import note_outside_change
+
+    run = note_outside_change(run, user=person, clock=clock)
     moment = clock().astimezone(timezone.utc)
     time_utc = _time_text(moment)
     head = run.audit[-1].hash if run.audit else ""
