@@ -302,3 +302,32 @@ def test_a_curve_over_three_decades_opens_with_both_axes_said_logarithmic(make_w
     assert view.log_axis.isChecked()
     assert view.curve_plot.getAxis("bottom").labelText == "Concentration (ng/mL) (log scale)"
     assert view.curve_plot.getAxis("left").labelText == "Response (area ratio) (log scale)"
+
+
+def test_an_excluded_standard_shows_its_back_calculated_value_as_the_workbook_does(make_window, qtbot, tmp_path,
+                                                                                    answer_dialogs) -> None:
+    from curvewright.io.xlsx_export import write_xlsx
+
+    window = make_window(NITRATE)
+    answer_dialogs["reason"] = "spilled vial (bench note 7)"
+    window.standards_view.selectRow(20)
+    qtbot.mouseClick(window.exclude_button, Qt.MouseButton.LeftButton)
+    settle(qtbot, window)
+    model = window.standards_model
+    excluded = window.session.run.analyte("nitrate-N").standards[20]
+    assert not excluded.included
+    shown_back = model.data(model.index(20, sm.BACK))
+    shown_re = model.data(model.index(20, sm.RE))
+    assert shown_back and shown_re, "the excluded standard's back-calculated value and relative error are shown"
+
+    book = tmp_path / "nitrate.xlsx"
+    write_xlsx(window.session.result, book)
+    sheet = openpyxl.load_workbook(book)["Standards – nitrate-N"]
+    rows = list(sheet.iter_rows(values_only=True))
+    header = next(r for r in rows if r and r[0] == "Standard id")
+    row = next(r for r in rows if r and r[0] == excluded.id)
+    back = row[header.index("Back-calculated (mg/L)")]
+    relative = row[header.index("Relative error (%)")]
+    # the same numbers as the workbook's cells, shown to the table's digits
+    assert shown_back == f"{back:.5g}" and shown_re == f"{relative:+.2f}"
+    assert model.data(model.index(20, sm.IN_FIT)) == "excluded"

@@ -242,6 +242,14 @@ class StandardsModel(QAbstractTableModel):
         if position is None:
             if col == LIMITS:
                 return "excluded" if not s.included else "not used"
+            if col in (BACK, RE) and self.analyte is not None:
+                # read off the curve as the record and the workbook show it, though not in the fit
+                from ..core.run_analysis import back_calculated_outside_fit
+
+                back, relative = back_calculated_outside_fit(cal, s, self.analyte.uses_internal_standard)
+                if col == BACK:
+                    return "" if back is None else f"{back:.5g}"
+                return "" if relative is None else f"{relative:+.2f}"
             return ""
         if col == BACK:
             value = cal.back_calculated[position]

@@ -427,6 +427,27 @@ def _additions(run: Run, analyte: Analyte) -> tuple["AdditionSeriesResult", ...]
     return analyse_additions(run, analyte, response_value)
 
 
+def back_calculated_outside_fit(calibration: Calibration, standard: Standard,
+                                ratio: bool) -> tuple[float | None, float | None]:
+    """The back-calculated concentration of a standard that is not in the fit (excluded, or not
+    usable), read off the curve as one response of an unknown, and its relative error in % against
+    the nominal concentration, 100·(x̂ − x)/x; None where the standard has no usable response or
+    nominal, where the curve cannot read the response back, and for the relative error at a nominal
+    of zero."""
+    used, _ = response_value(standard.response, standard.internal_standard_response, ratio)
+    if used is None or not standard.has_concentration:
+        return None, None
+    try:
+        estimate = float(calibration.quantify([used]).estimate[0])
+    except CurvewrightError:
+        return None, None  # the curve cannot read responses back (the calibration says why)
+    if not np.isfinite(estimate):
+        return None, None
+    if standard.concentration == 0:
+        return estimate, None
+    return estimate, 100.0 * (estimate - standard.concentration) / standard.concentration
+
+
 def response_value(reading: Reading, internal_standard: Reading | None, ratio: bool) -> tuple[float | None, str]:
     """The response used for fitting: the reading, or reading/IS for ratio calibration; a reason if none."""
     if reading.is_censored:

@@ -380,7 +380,7 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
         Column("Studentized residual", kind="number", display="signed:2"), Column("Influence flags"), Column("Included"),
         Column("Exclusion reason"),
     )
-    from ..core.run_analysis import response_value
+    from ..core.run_analysis import back_calculated_outside_fit, response_value
 
     position = {s.id: i for i, s in enumerate(a.fitted_standards)}
     rows = []
@@ -400,13 +400,8 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
             ]))
             continue
         back = re_ = None
-        if cal is not None and used is not None and s.has_concentration:
-            try:
-                back = _finite(cal.quantify([used]).estimate[0])
-            except CurvewrightError:
-                back = None  # the curve cannot read responses back (it says why in the calibration sheet)
-            if back is not None and s.concentration != 0:
-                re_ = 100.0 * (back - s.concentration) / s.concentration
+        if cal is not None:
+            back, re_ = back_calculated_outside_fit(cal, s, an.uses_internal_standard)
         if not s.has_concentration:
             why = f"concentration {s.concentration_text.strip()!r} is not a number"
         reason = s.exclusion_reason if not s.included else f"not usable: {why}"
