@@ -177,3 +177,10 @@ def test_workbook_responses_show_as_entered(book_and_record) -> None:
         assert shown(row["Response used"]) == typed[standard].replace(",", "."), standard  # 1592,7 → 1592.7
         assert row["Response used"].value == float(typed[standard].replace(",", "."))
         assert f"{standard} " in record and f" {typed[standard]} " in record  # the record prints it as entered
+
+
+def test_the_command_names_a_csv_export_as_a_samples_table(tmp_path) -> None:
+    done = quantify(tmp_path, "--export", str(tmp_path / "nickel.csv"))
+    said = [line for line in done.stdout.splitlines() if " written: " in line]
+    assert said and said[0].startswith("samples table written: "), done.stdout
+    assert not any(line.startswith("workbook written") for line in said)

@@ -1082,7 +1082,9 @@ def summary_text(  # type: ignore[no-untyped-def]
         lines += _samples_lines(a.samples, rule, run.settings.confidence_level)
         lines += additions_lines(a, run.settings.confidence_level)
     for action, path, sha in written:
-        lines.append(f"{'workbook' if action == 'export_written' else 'report'} written: {path} (SHA-256 {sha[:16]}…)")
+        kind = ("report" if action != "export_written" else
+                "samples table" if path.lower().endswith(".csv") else "workbook")
+        lines.append(f"{kind} written: {path} (SHA-256 {sha[:16]}…)")
     return "\n".join(lines)
 
 
