@@ -315,3 +315,16 @@ def test_an_altered_audit_entry_is_named_in_the_json_verdict_and_its_words(tmp_p
     out = json.loads(capsys.readouterr().out)
     assert out["audit_chain_verified"] is False
     assert out["chain_check"].startswith("NOT verified: audit entry 1 (") and "was altered after it was written" in out["chain_check"]
+
+
+def test_output_closed_by_its_reader_ends_quietly(tmp_path) -> None:
+    # as `curvewright quantify RUN | head -1` in a shell, the reader gone before the output comes
+    book = tmp_path / "nitrate.xlsx"
+    process = subprocess.Popen([sys.executable, "-m", "curvewright", "quantify", str(DEMO_RUNS[0]), "--export", str(book)],
+                               stdout=subprocess.PIPE, stderr=subprocess.PIPE, cwd=ROOT)
+    process.stdout.close()  # closed before the command writes its first line (it is still starting)
+    with process.stderr:
+        err = process.stderr.read().decode("utf-8")
+    assert process.wait(timeout=300) == cli.EXIT_OUTPUT_CLOSED == 141
+    assert "Broken pipe" not in err and "Errno" not in err, err
+    assert book.stat().st_size > 0  # the files are written before the text

@@ -257,6 +257,8 @@ def main(argv: Sequence[str] | None = None) -> int:
             return {"archive": cli_archive.cmd_archive, "trend": cli_archive.cmd_trend}[args.command](args)
         return {"quantify": cmd_quantify, "compare": cmd_compare, "check": cmd_check, "sign": cmd_sign,
                 "withdraw-approval": cmd_withdraw, "keys": cmd_keys}[args.command](args)
+    except BrokenPipeError:
+        return _output_closed()
     except InputError as exc:
         print(f"curvewright: {exc}", file=sys.stderr)
         return EXIT_INPUT
@@ -269,6 +271,23 @@ def main(argv: Sequence[str] | None = None) -> int:
         print(f"curvewright: internal error: {exc!r}; please report this with the input file.", file=sys.stderr)
         traceback.print_exc(file=sys.stderr)
         return EXIT_INTERNAL
+
+
+EXIT_OUTPUT_CLOSED = 141
+"""The reader of the output stopped reading (``curvewright quantify RUN | head``): 128 + SIGPIPE, the
+code a shell reports for a program ended by a closed pipe."""
+
+
+def _output_closed() -> int:
+    """The program's output was closed by its reader: say nothing more (files the command writes are
+    written before its text), and send what is left to the null device, so that the interpreter's last
+    flush does not fail again."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+    except (OSError, ValueError):
+        pass
+    return EXIT_OUTPUT_CLOSED
 
 
 def end_command(args: Sequence[str], code: int) -> int:
