@@ -34,7 +34,7 @@ def test_a_995_level_is_labelled_995_in_the_text_and_the_workbook(tmp_path) -> N
     assert done.returncode == 0, done.stderr
     assert "interval (99.5%)" in done.stdout
     assert "100%" not in done.stdout
-    texts = [c.value for ws in load_workbook(book, read_only=True) for row in ws.iter_rows() for c in row
+    texts = [c.value for ws in load_workbook(book) for row in ws.iter_rows() for c in row
              if isinstance(c.value, str)]
     # the Run information and Samples sheets say how each interval was made, with its level
     assert any(t.startswith("99.5% prediction band inverted") for t in texts)

@@ -88,8 +88,10 @@ def test_qc_without_nominal_is_not_judged_and_the_run_not_accepted(tmp_path: Pat
     assert flat("QC sample 'QC low' not judged: no nominal concentration") in pages
 
 
-def test_uncalculated_nominal_formula_is_not_judged(tmp_path: Path) -> None:
-    # a spreadsheet saved by a program that does not calculate: the formula has no cached value
+def test_uncalculated_nominal_formula_is_refused_before_any_verdict(tmp_path: Path) -> None:
+    # a spreadsheet saved by a program that does not calculate: the formula has no cached value. The
+    # import refuses such a cell in every column (naming it), so no verdict is given on a QC sample
+    # whose nominal could not be read
     book = openpyxl.Workbook()
     sheet = book.active
     sheet.append(["Sample", "Type", "Dilution", "Nominal", "Response (counts)"])
@@ -98,9 +100,9 @@ def test_uncalculated_nominal_formula_is_not_judged(tmp_path: Path) -> None:
     smp = tmp_path / "zn_smp.xlsx"
     book.save(smp)
     done = run_cli("quantify", "--standards", str(standards(tmp_path)), "--samples", str(smp), *QUANTIFY)
-    assert done.returncode == 1, done.stdout + done.stderr
-    assert "verdict: NOT ACCEPTED" in done.stdout
-    assert "QC sample 'QC low' not judged" in done.stdout
+    assert done.returncode == 2, done.stdout + done.stderr
+    assert "nothing was quantified" in done.stderr and "verdict: ACCEPTED" not in done.stdout
+    assert "row 2, column 4 (Nominal): '=1.5*2' — a formula with no calculated value" in done.stderr
 
 
 def test_only_qc_without_nominal_is_not_accepted(tmp_path: Path) -> None:
