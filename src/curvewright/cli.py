@@ -376,6 +376,10 @@ def cmd_quantify(args: argparse.Namespace) -> int:
         raise InputError(f"--level: {args.level} must lie between 0 and 1 (e.g. 0.95).")
     if args.jobs < 1:
         raise InputError(f"--jobs: {args.jobs} must be 1 or more.")
+    if args.export and args.csv_decimal == "," and args.csv_delimiter == "," and (
+            args.export.lower().endswith(".csv") or (args.export_format == "csv" and not args.export.lower().endswith(".xlsx"))):
+        raise InputError("--csv-decimal ',': a decimal comma needs a semicolon or tab delimiter; add --csv-delimiter ';' "
+                         "or --csv-delimiter tab.")
     if args.standards:
         if args.runs:
             raise InputError("give either run documents or --standards/--samples, not both.")
