@@ -376,6 +376,9 @@ def cmd_quantify(args: argparse.Namespace) -> int:
         raise InputError(f"--level: {args.level} must lie between 0 and 1 (e.g. 0.95).")
     if args.jobs < 1:
         raise InputError(f"--jobs: {args.jobs} must be 1 or more.")
+    if args.record and not (args.export or args.report):
+        raise InputError("--record records the exports and reports written in the run document's audit trail, and "
+                         "nothing is written here: give --export PATH or --report PATH with it, or leave --record out.")
     if args.export and args.csv_decimal == "," and args.csv_delimiter == "," and (
             args.export.lower().endswith(".csv") or (args.export_format == "csv" and not args.export.lower().endswith(".xlsx"))):
         raise InputError("--csv-decimal ',': a decimal comma needs a semicolon or tab delimiter; add --csv-delimiter ';' "
