@@ -376,6 +376,13 @@ def cmd_quantify(args: argparse.Namespace) -> int:
         raise InputError(f"--level: {args.level} must lie between 0 and 1 (e.g. 0.95).")
     if args.jobs < 1:
         raise InputError(f"--jobs: {args.jobs} must be 1 or more.")
+    if args.record and not (args.export or args.report):
+        raise InputError("--record records the exports and reports written in the run document's audit trail, and "
+                         "nothing is written here: give --export PATH or --report PATH with it, or leave --record out.")
+    if args.export and args.csv_decimal == "," and args.csv_delimiter == "," and (
+            args.export.lower().endswith(".csv") or (args.export_format == "csv" and not args.export.lower().endswith(".xlsx"))):
+        raise InputError("--csv-decimal ',': a decimal comma needs a semicolon or tab delimiter; add --csv-delimiter ';' "
+                         "or --csv-delimiter tab.")
     if args.standards:
         if args.runs:
             raise InputError("give either run documents or --standards/--samples, not both.")
@@ -677,7 +684,7 @@ def _quantify_tables(args: argparse.Namespace) -> Outcome:
     options.update(analyte=None, record=False, model=None, weighting=None)  # the choice is in the run now
     options["inputs"] = {"standards table": args.standards, "samples table": args.samples}
     warnings = list(tables.warnings)
-    unreadable = [c for c in tables.unusable if c[1].text.strip()]
+    unreadable = [c for c in tables.unusable if c[-1].text.strip()]
     outcome = _quantify(run, options, source=None, notes=tables.notes, choices=choices,
                         analyte_warnings=_table_analyte_warnings(run), unusable=tables.unusable)
     code = outcome.code
@@ -710,8 +717,8 @@ class TableRun:
     run: Any
     notes: list[str]
     warnings: list[str]
-    unusable: list[tuple[str, Any]] = field(default_factory=list)
-    """(file, RejectedCell) of each sample reading kept as typed."""
+    unusable: list[tuple[str, str | None, Any]] = field(default_factory=list)
+    """(file, sheet or None, RejectedCell) of each sample reading kept as typed."""
 
 
 def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRun:
@@ -762,8 +769,10 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
         rows = smp.dilution_taken_as_one
         listed = ", ".join(map(str, rows[:10])) + (f" … and {len(rows) - 10} more" if len(rows) > 10 else "")
         notes.append(f"samples: {smp.source}: dilution cell empty in row(s) {listed}: taken as 1 (no dilution)")
-    unusable = [(smp.source, c) for c in smp.unusable_readings] if smp is not None else []
-    warnings = [f"warning: {source}: {cell}" for source, cell in unusable]
+    # each unusable reading with its file and sheet, as the other import messages name them
+    unusable = [(smp.source, smp.sheet, c) for c in smp.unusable_readings] if smp is not None else []
+    warnings = [f"warning: {source}{'' if sheet is None else f', sheet {sheet!r}'}: {cell}"
+                for source, sheet, cell in unusable]
     return TableRun(run, notes, warnings, unusable)
 
 
@@ -928,7 +937,7 @@ def _is_workbook(path: str) -> bool:
 def _quantify(  # type: ignore[no-untyped-def]
     run, options: dict[str, Any], *, source: Path | None, notes: list[str],
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
-    unusable: Sequence[tuple[str, Any]] = (), chain: tuple[Any, tuple[str, ...]] | None = None,
+    unusable: Sequence[tuple[str, str | None, Any]] = (), chain: tuple[Any, tuple[str, ...]] | None = None,
 ) -> Outcome:
     """Analyse, export and report one run. ``choices`` says how each analyte's model was chosen
     (default: from the run document, or the command line when --model/--weighting override it);
@@ -1126,7 +1135,7 @@ def _samples_lines(samples, rule, level: float) -> list[str]:  # type: ignore[no
 def result_json(  # type: ignore[no-untyped-def]
     result, source: Path | None, written: list[tuple[str, str, str]], *,
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
-    notes: Sequence[str] = (), unusable: Sequence[tuple[str, Any]] = (), chain: tuple[Any, tuple[str, ...]] | None = None,
+    notes: Sequence[str] = (), unusable: Sequence[tuple[str, str | None, Any]] = (), chain: tuple[Any, tuple[str, ...]] | None = None,
 ) -> dict[str, Any]:
     """The results for scripts. Per analyte, ``model_chosen_by`` ("recommended", "command line",
     "run document" or "not chosen") and ``choice_reasons`` say how the model was chosen, and
@@ -1159,8 +1168,8 @@ def result_json(  # type: ignore[no-untyped-def]
         "caution": CAUTION,
         "files_written": [{"kind": a, "path": p, "sha256": s} for a, p, s in written],
         "notes": list(notes),
-        "unusable_readings": [{"file": f, "row": c.row, "column": c.column, "text": c.text, "reason": c.reason}
-                              for f, c in unusable],
+        "unusable_readings": [{"file": f, "sheet": sheet, "row": c.row, "column": c.column, "text": c.text,
+                               "reason": c.reason} for f, sheet, c in unusable],
         "analytes": [],
     }
     for a in result.analytes:

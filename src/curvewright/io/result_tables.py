@@ -20,6 +20,7 @@ from .. import CAUTION, __version__
 from ..core.errors import CurvewrightError
 from ..core.models import Model
 from ..core.rounding import RoundingRule
+from ..core.run import SampleKind
 from ..core.reporting import ReportStatus
 from .number_text import clean
 from .audit import chain_claim, verify_chain  # noqa: F401 - chain_claim: where the record and the tables take it
@@ -244,16 +245,50 @@ def samples_table(result: RunResult) -> Table:
     rows = []
     for a in result.analytes:
         words = interval_words(result, a)
-        for s in a.samples:
+        # the readings as entered, sample by sample (the samples with a measurement of the analyte, in
+        # the run's order, as the results are made)
+        measured = [(sample.id, m) for sample in result.run.samples if (m := sample.measurements_of(a.analyte.name))]
+        if [i for i, _ in measured] == [s.sample_id for s in a.samples]:
+            measured = [m for _, m in measured]
+        else:
+            measured = [()] * len(a.samples)
+        for s, readings in zip(a.samples, measured):
             rows.append((
                 s.sample_id, s.kind.words, s.analyte, s.run_order, len(s.replicate_responses),
-                " | ".join(repr(v) for v in s.replicate_responses), s.mean_response, s.estimate, s.dilution_factor,
+                replicate_text(s.replicate_responses, readings, a.analyte.uses_internal_standard),
+                s.mean_response, s.estimate, s.dilution_factor,
                 s.reported, s.reported_text or (None if s.reported is None else rule.text(s.reported)),
                 s.reported_lower, s.reported_upper, words if s.reported is not None else "",
                 unit[s.analyte], STATUS_WORDS[s.status], s.flag_words, s.suggested_dilution, s.nominal,
-                s.recovery_percent, verdict_word(s.within_limits),
+                s.recovery_percent, qc_word(s.kind, s.within_limits),
             ))
     return Table("Samples", columns, tuple(rows), rule)
+
+
+def replicate_text(values: tuple[float, ...], measurements: tuple, ratio: bool) -> str:  # type: ignore[type-arg]
+    """The replicate responses used, joined by " | ": each as it was entered ("503.900" keeps its
+    zeros; "503,900" is written with the point), or as its shortest repr where the text does not
+    say its decimals (a ratio to the internal standard, an exponent, thousands separators)."""
+    from ..core.run_analysis import response_value
+
+    texts = [m.response.text for m in measurements
+             if response_value(m.response, m.internal_standard_response, ratio)[0] is not None]
+    if ratio or len(texts) != len(values):
+        return " | ".join(repr(v) for v in values)
+    out = []
+    for v, text in zip(values, texts):
+        places = entered_decimals(text)
+        shown = None if places is None else f"{v:.{places}f}"
+        out.append(shown if shown is not None and float(shown) == v else repr(v))
+    return " | ".join(out)
+
+
+def qc_word(kind: SampleKind, within: bool | None) -> str:
+    """The "QC or check" cell: pass or FAIL, "not judged" for a QC sample the profile could not judge
+    (no nominal concentration or no reported number; the QC verdict names the reason), else empty."""
+    if within is None and kind is SampleKind.QC:
+        return "not judged"
+    return verdict_word(within)
 
 
 STATUS_WORDS = {
