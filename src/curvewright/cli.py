@@ -1431,7 +1431,8 @@ def cmd_check(args: argparse.Namespace) -> int:
         run = opened.run
         if opened.integrity_problems:
             what = ("the audit trail does NOT verify" if opened.chain_problems else
-                    "the data do NOT match the audit trail")
+                    "the data do NOT match the audit trail" if opened.content_change else
+                    "a signature the audit trail records is missing")
             print(f"{path}: valid document, but {what}:")
             for p in opened.integrity_problems:
                 print(f"  - {p}")
@@ -1465,7 +1466,11 @@ def _print_signatures(run, lab_key: str | None) -> int:  # type: ignore[no-untyp
     for c in checks:
         print(f"  {'signature' if c.holds else 'signature does NOT hold'}: {c.words}")
     if run.approval is not None:
-        print(f"  approved by {run.approval.name} ({run.approval.time_utc}): the run is locked")
+        from .io.signatures import approval_problem
+
+        problem = approval_problem(run)
+        print(f"  approved by {run.approval.name} ({run.approval.time_utc})"
+              + (f", but the approval does NOT hold: {problem}" if problem else ": the run is locked"))
     return EXIT_ACCEPTED if all(c.holds for c in checks) else EXIT_REJECTED
 
 

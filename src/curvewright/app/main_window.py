@@ -431,8 +431,15 @@ class MainWindow(QMainWindow):
         lines = []
         run = self.session.run
         if run.approval is not None:
-            lines.append(f"Approved by {run.approval.name} ({run.approval.time_utc}): the run is locked "
-                         "(Review → Withdraw approval… to change it).")
+            from ..io.signatures import approval_problem
+
+            problem = approval_problem(run)
+            if problem is not None:
+                lines.append(f"Approved by {run.approval.name} ({run.approval.time_utc}), but the approval does NOT "
+                             f"hold: {problem} (Review → Withdraw approval… to change it).")
+            else:
+                lines.append(f"Approved by {run.approval.name} ({run.approval.time_utc}): the run is locked "
+                             "(Review → Withdraw approval… to change it).")
         if not self.session.identity.name:
             lines.append("Your full name is not set, so the audit trail records only your login "
                          "(Analysis → Run settings…).")

@@ -176,6 +176,29 @@ def file_sha256_streamed(path) -> str:  # type: ignore[no-untyped-def]
     return digest.hexdigest()
 
 
+def unheld_signatures(run) -> tuple[str, ...]:  # type: ignore[no-untyped-def]
+    """Signatures the audit trail records but the document no longer holds, in words: each "signed"
+    entry must have its signature in the run's signatures (the same role, person, time and signed
+    content hash), and each "approval_withdrawn" entry its withdrawal record. A removed signature
+    (an approval deleted from the file, say) is an integrity problem like an altered entry."""
+    held = [(s.role, s.name, s.time_utc, s.content_sha256) for s in run.signatures]
+    problems = []
+    for number, e in enumerate(run.audit, start=1):
+        if e.action == "signed":
+            role, name = e.details.get("role", ""), e.details.get("name", "") or e.analyst
+            wanted = (role, name, e.time_utc, e.details.get("signed_content_sha256", "") or e.content_sha256)
+            what = f"a signature ({role} {name}, {e.time_utc})"
+        elif e.action == "approval_withdrawn":
+            wanted = ("approval withdrawn", e.analyst, e.time_utc, e.content_sha256)
+            what = f"the withdrawal of an approval (by {e.analyst or e.user}, {e.time_utc})"
+        else:
+            continue
+        if not any(all(not w or w == h for w, h in zip(wanted, row)) and row[2] == e.time_utc for row in held):
+            problems.append(f"audit entry {number} records {what} that the document no longer holds: it was removed "
+                            "from the document's signatures after it was made")
+    return tuple(problems)
+
+
 def chain_claim(run, chain_problems: tuple[str, ...] | None = None) -> tuple[bool, str]:  # type: ignore[no-untyped-def]
     """What checking the run's audit trail showed, in words exactly as strong as the check;
     ``chain_problems`` is what :func:`verify_chain` gave for this run's trail, when the caller
@@ -186,6 +209,7 @@ def chain_claim(run, chain_problems: tuple[str, ...] | None = None) -> tuple[boo
     change = content_change(run)
     if change is not None:
         problems.append(str(change))
+    problems.extend(unheld_signatures(run))
     if problems:
         return False, "NOT verified: " + "; ".join(problems)
     recorded = any(e.content_sha256 for e in run.audit)

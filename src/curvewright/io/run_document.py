@@ -54,7 +54,8 @@ from ..core.run import (
 )
 from ..core.weighting import Weighting
 from .atomic import exclusive_lock, write_atomically
-from .audit import Clock, Identity, append_entry, file_sha256, file_sha256_streamed, utc_now, verify_chain
+from .audit import (Clock, Identity, append_entry, file_sha256, file_sha256_streamed, unheld_signatures, utc_now,
+                    verify_chain)
 from .errors import DocumentError, ExportError
 from .integrity import ContentChange, content_change, content_sha256, digest_of, keep_stored_digest
 
@@ -96,8 +97,10 @@ class OpenedRun:
 
     @property
     def integrity_problems(self) -> tuple[str, ...]:
-        """Everything that is not as Curvewright left it: the chain's problems and changed data."""
-        return self.chain_problems + ((str(self.content_change),) if self.content_change else ())
+        """Everything that is not as Curvewright left it: the chain's problems, changed data and
+        signatures the trail records but the document no longer holds."""
+        return (self.chain_problems + ((str(self.content_change),) if self.content_change else ())
+                + unheld_signatures(self.run))
 
     @property
     def chain_verified(self) -> bool:

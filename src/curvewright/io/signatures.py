@@ -167,19 +167,36 @@ def withdraw_approval(run: Run, person: Identity, reason: str, *, clock: Clock =
 
 @dataclass(frozen=True)
 class SignatureCheck:
-    """What checking one signature showed, in words, and whether it holds."""
+    """What checking one signature showed, in words, and whether it holds (``problem``: why not, briefly)."""
 
     signature: Signature
     holds: bool
     words: str
+    problem: str = ""
+
+
+APPROVAL_CHANGED = "the approved data were changed after approval"
+LOCK_WORDS = "the approval still locks the run until it is withdrawn with a reason"
+
+
+def approval_problem(run: Run) -> str | None:
+    """Why the approval in force (``run.approval``) does not cover the run's current data (they differ from the content it
+    signed: edited outside Curvewright after approval), in words; None when it covers them or there is
+    no approval. The approval still locks the run until it is withdrawn: the safe side."""
+    approval = run.approval
+    if approval is None or approval.content_sha256 == content_sha256(run):
+        return None
+    return f"{APPROVAL_CHANGED}: it does NOT cover the current data; {LOCK_WORDS}"
 
 
 def check_signatures(run: Run, lab_key_hex: str | None = None) -> tuple[SignatureCheck, ...]:
     """Check every signature: it is recorded in the audit trail, the trail it signed is still there,
     and (keyed) its Ed25519 signature verifies — against the laboratory's key when ``lab_key_hex`` is
     given. A signature on content that has since changed (through edits after a withdrawn approval)
-    holds for that earlier content, and says so."""
+    holds for that earlier content, and says so. The approval in force must cover the current data: where
+    they differ from the content it signed (changed after approval, outside Curvewright), it does not hold."""
     hashes = {e.hash for e in run.audit}
+    approval = run.approval
     signed_entries = [e for e in run.audit if e.action in ("signed", "approval_withdrawn")]
     current = content_sha256(run)
     out = []
@@ -210,8 +227,16 @@ def check_signatures(run: Run, lab_key_hex: str | None = None) -> tuple[Signatur
         else:
             meaning = f"“{s.meaning}”"
         later = "" if s.content_sha256 == current or s.role == WITHDRAWN else "; the data have changed since it was signed"
+        if s is approval and s.content_sha256 != current:
+            # an approval covers the data it signed, and nothing may change them while it stands: the
+            # current data were changed after approval, outside Curvewright
+            genuine = ("" if problems else
+                       f" is genuine — {keyed[2:]} —" if s.signature else " is recorded in the audit trail (not keyed)")
+            problems.append(f"{APPROVAL_CHANGED}: the signature{genuine} but does NOT cover the current data; "
+                            f"{LOCK_WORDS}" if genuine else
+                            f"{APPROVAL_CHANGED}: it does NOT cover the current data; {LOCK_WORDS}")
         words = f"{label}: {meaning}" + ("; " + "; ".join(problems) if problems else keyed + later)
-        out.append(SignatureCheck(s, not problems, words))
+        out.append(SignatureCheck(s, not problems, words, "; ".join(problems)))
     return tuple(out)
 
 
