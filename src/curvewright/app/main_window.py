@@ -872,6 +872,8 @@ class MainWindow(QMainWindow):
                                    f"Exclude {standard.id}")
                 self.show_message(f"Standard {standard.id} (row {row + 1}) excluded: {reason}")
         else:
+            if self.refused_when_locked("Include standard", f"include standard {standard.id} of {analyte} again"):
+                return
             dialog = ReasonDialog(f"Include standard {standard.id} again",
                                   f"Why is standard {standard.id} (row {row + 1}) of {analyte} put back in the fit? "
                                   f"It was excluded because: {standard.exclusion_reason}", (), self)
@@ -1066,6 +1068,8 @@ class MainWindow(QMainWindow):
             return
         what = "standard" if on_standards else "sample"
         ident = model.index(row, 0).data()
+        if self.refused_when_locked(f"Remove {what}", f"remove {what} {ident}"):
+            return
         dialog = ReasonDialog(f"Remove {what} {ident}", f"Why is {what} {ident} (row {row + 1}) removed? (To keep a "
                               "measured standard out of the fit, exclude it instead; its values stay in the audit trail "
                               "either way.)", (), self)
@@ -1119,6 +1123,17 @@ class MainWindow(QMainWindow):
         self.session.record_run(unlocked)
         self.show_message("Approval withdrawn; the run can be edited again.")
         return True
+
+    def refused_when_locked(self, title: str, what: str) -> bool:
+        """True, having said so, when the run is approved and locked: ``what`` (a change, as the analyst
+        asked for it) is refused before any reason is asked."""
+        try:
+            run_edits.refuse_if_locked(self.session.run, what)
+        except run_edits.RunLocked as exc:
+            QMessageBox.information(self, title, str(exc))
+            self.show_message(str(exc))
+            return True
+        return False
 
     def ask_value_change_reason(self, what: str) -> str | None:
         """Why a raw value that was already entered changes: a reason from the list, or typed."""
