@@ -1,6 +1,6 @@
 """A value typed into a table cell but not yet entered with Enter is entered, as Enter would enter it,
 before a command reads or writes the run: the analyst clicks the cell, types, and then chooses File →
-Save from the menu (or presses its shortcut), exports the workbook, or switches analyte. The reason
+Save from the menu (or presses its shortcut), exports the workbook, switches analyte or quits. The reason
 for the change is asked as for Enter; the saved file holds the typed value and its audit entry, and
 the editor is closed. When the analyst cancels the reason, the command goes on without the edit and the
 cell shows the value as it was (pytest-qt, offscreen)."""
@@ -18,6 +18,7 @@ from curvewright.io.run_document import open_run
 from tests.app.conftest import DEMOS, settle
 
 NITRATE = next(p for p in DEMOS if "nitrate" in p.stem)
+VOLATILES = next(p for p in DEMOS if "volatiles" in p.stem)
 TARGET = "N-L1-3"
 TYPED = "0.0999"
 
@@ -137,3 +138,45 @@ def test_exporting_the_workbook_enters_the_value_left_in_the_open_editor(
              for r in ws.iter_rows() for c in r if c.value is not None]
     assert TYPED in cells
     settle(qtbot, window)
+
+
+def test_switching_analyte_enters_the_value_into_the_analyte_it_was_typed_for(
+        make_window, qtbot, tmp_path, answer_dialogs) -> None:
+    path = tmp_path / "volatiles.json"
+    shutil.copyfile(VOLATILES, path)
+    window = make_window(path)
+    first, second = window.session.run.analytes[0].name, window.session.run.analytes[1].name
+    assert window.current_analyte() == first
+    standard = window.standards_model.standards[1]
+    typed = "123456"
+    assert standard.response.text != typed
+    _type_without_enter(qtbot, window, standard.id, typed)
+
+    window.analyte_box.setCurrentText(second)  # as picking it from the list does
+
+    assert window.current_analyte() == second
+    assert window.session.run.analyte(first).standard(standard.id).response.text == typed
+    if standard.id in {s.id for s in window.session.run.analyte(second).standards}:
+        other = window.session.run.analyte(second).standard(standard.id).response.text
+        assert other != typed
+    assert [title for title, _ in answer_dialogs.seen] == ["Why does this value change?"]
+    assert window.standards_view.state() != QAbstractItemView.State.EditingState
+    settle(qtbot, window)
+
+
+def test_closing_the_window_enters_the_value_then_offers_to_save_it(
+        make_window, qtbot, tmp_path, answer_dialogs) -> None:
+    from PySide6.QtWidgets import QMessageBox
+
+    window, path = _window_on_copy(make_window, tmp_path)
+    analyte = window.current_analyte()
+    assert not window.session.dirty
+    _type_without_enter(qtbot, window, TARGET, TYPED)
+    answer_dialogs["question"] = QMessageBox.StandardButton.Save  # "Save the changes?" → Save
+
+    window.actions_by_name["quit"].trigger()
+
+    titles = [title for title, _ in answer_dialogs.seen]
+    assert titles == ["Why does this value change?", "Unsaved changes"], titles
+    assert _saved_response(path, analyte, TARGET) == TYPED
+    assert not window.isVisible()
