@@ -134,8 +134,11 @@ def test_exporting_the_workbook_enters_the_value_left_in_the_open_editor(
     assert actions[-2:] == ["value_edited", "export_written"]
     from openpyxl import load_workbook
 
-    cells = [str(c.value) for ws in load_workbook(book, read_only=True).worksheets
-             for r in ws.iter_rows() for c in r if c.value is not None]
+    workbook = load_workbook(book, read_only=True)
+    try:
+        cells = [str(c.value) for ws in workbook.worksheets for r in ws.iter_rows() for c in r if c.value is not None]
+    finally:
+        workbook.close()
     assert TYPED in cells
     settle(qtbot, window)
 
