@@ -82,6 +82,23 @@ class MainWindow(QMainWindow):
             slot()
         return receive
 
+    def user_command(self, slot: Callable[[], object]) -> Callable[..., None]:
+        """A receiver for what the analyst asks for (a menu action, its shortcut, a button): like
+        :meth:`command`, after entering any value left typed in an open cell editor
+        (:meth:`commit_open_editors`)."""
+        def receive(*_signal_arguments: object) -> None:
+            self.commit_open_editors()
+            slot()
+        return receive
+
+    def commit_open_editors(self) -> None:
+        """Enter a value typed into a table cell but not yet entered with Enter, as Enter would (asking
+        why where a changed value needs a reason), before any command reads or writes the run: saving,
+        exporting, the record, signing, opening another run, switching analyte, closing. When the value is
+        refused or its reason is not given, the command goes on without it and the cell shows its value."""
+        for view in (self.standards_view, self.samples_view):
+            view.commit_open_editor()
+
     def _build(self) -> None:
         self.caution = QLabel("⚠ " + CAUTION)
         self.caution.setWordWrap(True)
@@ -100,22 +117,22 @@ class MainWindow(QMainWindow):
         self.analyte_box.currentTextChanged.connect(self._on_analyte)
         self.analyte_button = QPushButton("Name and &units…")
         self.analyte_button.setToolTip("Rename the analyte or set its concentration and response units")
-        self.analyte_button.clicked.connect(self.command(self.edit_analyte))
+        self.analyte_button.clicked.connect(self.user_command(self.edit_analyte))
         self.standards_view = SheetTableView("Standards")
         self.samples_view = SheetTableView("Samples")
         self.results_view = ResultsView()
         self.results_model = self.results_view.results_model
         self.exclude_button = QPushButton("E&xclude / include…")
         self.exclude_button.setAccessibleName("Exclude or include the selected standard")
-        self.exclude_button.clicked.connect(self.command(self.toggle_exclusion))
+        self.exclude_button.clicked.connect(self.user_command(self.toggle_exclusion))
         self.anchor_button = QPushButton("Anchor poin&ts…")
         self.anchor_button.setAccessibleName("Mark the selected standards as anchor points, or clear the mark")
-        self.anchor_button.clicked.connect(self.command(self.change_anchor_points))
+        self.anchor_button.clicked.connect(self.user_command(self.change_anchor_points))
         self.add_standard_button = QPushButton("&Add standard")
-        self.add_standard_button.clicked.connect(self.command(self.add_standard))
+        self.add_standard_button.clicked.connect(self.user_command(self.add_standard))
         self.remove_button = QPushButton("Remo&ve…")
         self.remove_button.setToolTip("Remove the selected row (entered by mistake), with a reason")
-        self.remove_button.clicked.connect(self.command(self.remove_row))
+        self.remove_button.clicked.connect(self.user_command(self.remove_row))
         left_tabs = QTabWidget()
         standards_page = QWidget()
         v = QVBoxLayout(standards_page)
@@ -204,7 +221,7 @@ class MainWindow(QMainWindow):
             act.setObjectName(f"action-{name}")
             if shortcut is not None:
                 act.setShortcut(shortcut)
-            act.triggered.connect(self.command(slot))
+            act.triggered.connect(self.user_command(slot))
             menu.addAction(act)
             self.actions_by_name[name] = act
             return act
@@ -329,6 +346,7 @@ class MainWindow(QMainWindow):
     def _on_analyte(self, name: str) -> None:
         if not name:
             return
+        self.commit_open_editors()  # entered into the analyte it was typed for
         self.standards_model.set_analyte(name)
         self.samples_model.set_analyte(name)
         self._show_internal_standard_column()
@@ -672,7 +690,7 @@ class MainWindow(QMainWindow):
         for p in self._recent():
             act = self.recent_menu.addAction(p)
             act.setObjectName("action-recent")
-            act.triggered.connect(self.command(lambda path=p: self.open_path(Path(path))))
+            act.triggered.connect(self.user_command(lambda path=p: self.open_path(Path(path))))
         self.recent_menu.setEnabled(bool(self._recent()))
 
     def import_table(self, what: str, *, path: str | None = None) -> bool:
@@ -861,6 +879,8 @@ class MainWindow(QMainWindow):
                                    f"Exclude {standard.id}")
                 self.show_message(f"Standard {standard.id} (row {row + 1}) excluded: {reason}")
         else:
+            if self.refused_when_locked("Include standard", f"include standard {standard.id} of {analyte} again"):
+                return
             dialog = ReasonDialog(f"Include standard {standard.id} again",
                                   f"Why is standard {standard.id} (row {row + 1}) of {analyte} put back in the fit? "
                                   f"It was excluded because: {standard.exclusion_reason}", (), self)
@@ -1055,6 +1075,8 @@ class MainWindow(QMainWindow):
             return
         what = "standard" if on_standards else "sample"
         ident = model.index(row, 0).data()
+        if self.refused_when_locked(f"Remove {what}", f"remove {what} {ident}"):
+            return
         dialog = ReasonDialog(f"Remove {what} {ident}", f"Why is {what} {ident} (row {row + 1}) removed? (To keep a "
                               "measured standard out of the fit, exclude it instead; its values stay in the audit trail "
                               "either way.)", (), self)
@@ -1108,6 +1130,17 @@ class MainWindow(QMainWindow):
         self.session.record_run(unlocked)
         self.show_message("Approval withdrawn; the run can be edited again.")
         return True
+
+    def refused_when_locked(self, title: str, what: str) -> bool:
+        """True, having said so, when the run is approved and locked: ``what`` (a change, as the analyst
+        asked for it) is refused before any reason is asked."""
+        try:
+            run_edits.refuse_if_locked(self.session.run, what)
+        except run_edits.RunLocked as exc:
+            QMessageBox.information(self, title, str(exc))
+            self.show_message(str(exc))
+            return True
+        return False
 
     def ask_value_change_reason(self, what: str) -> str | None:
         """Why a raw value that was already entered changes: a reason from the list, or typed."""
@@ -1204,6 +1237,7 @@ class MainWindow(QMainWindow):
                           f"laboratories.\n\n{CAUTION}")
 
     def closeEvent(self, event) -> None:  # noqa: N802 - Qt override
+        self.commit_open_editors()
         if self.maybe_save():
             self.session.discard_recovery()
             event.accept()

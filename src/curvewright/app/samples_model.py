@@ -78,7 +78,9 @@ class SamplesModel(QAbstractTableModel):
         return COLUMNS[section]
 
     def flags(self, index: QModelIndex) -> Qt.ItemFlag:
-        return Qt.ItemFlag.ItemIsEnabled | Qt.ItemFlag.ItemIsSelectable | Qt.ItemFlag.ItemIsEditable
+        base = Qt.ItemFlag.ItemIsEnabled | Qt.ItemFlag.ItemIsSelectable
+        # an approved run is locked: its cells open no editor (the approval is withdrawn first, with a reason)
+        return base | Qt.ItemFlag.ItemIsEditable if self.session.run.approval is None else base
 
     def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):
         if not index.isValid():

@@ -132,7 +132,9 @@ class StandardsModel(QAbstractTableModel):
 
     def flags(self, index: QModelIndex) -> Qt.ItemFlag:
         base = Qt.ItemFlag.ItemIsEnabled | Qt.ItemFlag.ItemIsSelectable
-        return base | Qt.ItemFlag.ItemIsEditable if index.column() in EDITABLE else base
+        # an approved run is locked: its cells open no editor (the approval is withdrawn first, with a reason)
+        editable = index.column() in EDITABLE and self.session.run.approval is None
+        return base | Qt.ItemFlag.ItemIsEditable if editable else base
 
     def data(self, index: QModelIndex, role: int = Qt.ItemDataRole.DisplayRole):  # noqa: C901
         if role not in _ROLES_ANSWERED or not index.isValid():

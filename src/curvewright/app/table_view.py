@@ -8,7 +8,7 @@ from typing import Callable, TypeVar
 
 from PySide6.QtCore import QEvent, QRect
 from PySide6.QtGui import QAccessible, QFontMetricsF, QGuiApplication, QKeySequence, QPalette
-from PySide6.QtWidgets import QAbstractItemView, QAbstractScrollArea, QTableView
+from PySide6.QtWidgets import QAbstractItemDelegate, QAbstractItemView, QAbstractScrollArea, QTableView
 
 
 ReasonProvider = Callable[[str], "str | None"]
@@ -298,6 +298,18 @@ class SheetTableView(FittedTableView):
             self.copy_selection()
             return
         super().keyPressEvent(event)
+
+    def commit_open_editor(self) -> None:
+        """Enter the text of a cell editor left open, as Enter would, and close the editor: its value is
+        entered (asking why where a changed value needs a reason), or, when refused or the reason is not
+        given, the cell shows its value as before; the typed text is never left in an open editor."""
+        if self.state() != QAbstractItemView.State.EditingState:
+            return
+        editor = self.indexWidget(self.currentIndex())
+        if editor is None:
+            return
+        self.commitData(editor)
+        self.closeEditor(editor, QAbstractItemDelegate.EndEditHint.NoHint)
 
     def paste(self, text: str | None = None) -> int:
         """Paste ``text`` (the clipboard's when None) at the current cell; returns the rows entered."""

@@ -152,6 +152,7 @@ def edit_standard(
     else:
         raise RunError(f"standard field {field!r} cannot be edited (concentration, response, internal_standard_response).")
     change = {"standard": standard_id, "field": field, "old": old, "new": new}
+    refuse_if_locked(run, refused_change("value_edited", {"analyte": analyte, **change}))  # before a reason is asked
     _require_reason(raw_changes([change], STANDARD_RAW_FIELDS), reason, analyte)
     return _log(run.with_analyte(_with_standard(a, updated)), "value_edited",
                 {"analyte": analyte, "standard": standard_id, "field": field, "old": old, "new": new,
@@ -310,19 +311,45 @@ approved run)."""
 
 
 def refuse_if_locked(run: Run, what: str) -> None:
-    """Raise :class:`RunLocked` when the run is approved."""
+    """Raise :class:`RunLocked` when the run is approved; ``what`` is the change refused, as the analyst
+    would ask for it ("exclude standard S-3")."""
     approval = run.approval
     if approval is not None:
         raise RunLocked(
-            f"{what}: the run was approved by {approval.name} ({approval.time_utc}) and is locked; withdraw the "
-            "approval, with a reason, before changing it.")
+            f"Cannot {what}: the run was approved by {approval.name} ({approval.time_utc}) and is locked; withdraw "
+            "the approval, with a reason, to change it.")
+
+
+def refused_change(action: str, details: Mapping[str, Any]) -> str:
+    """The change an audit entry of ``action`` would record, in the words of a refusal ("exclude
+    standard S-3 of nitrate")."""
+    analyte = f" of {details['analyte']}" if details.get("analyte") else ""
+    standard = details.get("standard")
+    if isinstance(standard, dict):
+        standard = standard.get("id")
+    if action == "standard_excluded":
+        return f"exclude standard {standard}{analyte}"
+    if action == "standard_included":
+        return f"include standard {standard}{analyte} again"
+    if action == "standard_removed_before_review":
+        return f"remove standard {standard}{analyte}"
+    if action == "value_edited" and standard:
+        return f"change the {str(details.get('field', 'value')).replace('_', ' ')} of standard {standard}{analyte}"
+    words = {
+        "value_edited": "change values of the standards", "standard_added": "add a standard",
+        "samples_edited": "change the samples", "anchor_points_marked": "mark anchor points",
+        "anchor_points_cleared": "clear anchor points", "model_chosen": "choose the model",
+        "profile_changed": "change the acceptance profile", "settings_changed": "change the run settings",
+        "analyte_edited": "change the analyte's name or units", "method_applied": "apply a method",
+    }
+    return words.get(action, action.replace("_", " ")) + analyte
 
 
 def _log(run: Run, action: str, details: Mapping[str, Any], user: Identity | str | None, clock: Clock) -> Run:
     """The run with one audit entry: the person, the change, and the hash of the content after it. An
     approved run takes only entries that record without changing its content."""
     if action not in RECORDS_ONLY:
-        refuse_if_locked(run, action.replace("_", " "))
+        refuse_if_locked(run, refused_change(action, details))
     return replace(run, audit=append_entry(run.audit, action, details, user=user, clock=clock,
                                            content_sha256=content_sha256(run)))
 
@@ -372,8 +399,10 @@ def update_standards(
                 changes.append({"standard": s.id, "field": field_name, "old": old_fields[field_name], "new": value})
     if not changes and not added:
         return run
-    _require_reason(raw_changes(changes, STANDARD_RAW_FIELDS), reason, analyte)
     action = "value_edited" if changes else "standard_added"
+    one = changes[0] if len(changes) == 1 and not added else {}
+    refuse_if_locked(run, refused_change(action, {"analyte": analyte, **one}))  # before a reason is asked
+    _require_reason(raw_changes(changes, STANDARD_RAW_FIELDS), reason, analyte)
     changed = replace(a, standards=standards)
     return _log(run.with_analyte(changed), action,
                 {"analyte": analyte, "note": note, "changes": changes, "added": added, "reason": reason.strip()},
@@ -443,6 +472,7 @@ def update_samples(
                                     "new": after.get(field_name)})
     if not (changes or added or removed) and tuple(old) == tuple(new):
         return run
+    refuse_if_locked(run, refused_change("samples_edited", {}))  # before a reason is asked
     _require_reason(raw_changes(changes, SAMPLE_RAW_FIELDS), reason, "samples")
     why = "; ".join(r.strip() for r in (reason, removed_reason) if r.strip())
     return _log(replace(run, samples=samples), "samples_edited",

@@ -1,0 +1,143 @@
+"""An approved run is locked. The analyst who tries to change it is told what was refused and how to
+unlock it, before any reason for the change is asked: its cells open no editor, and excluding,
+including again or removing a standard is refused in words that say it did not happen ("Cannot
+exclude standard …: the run was approved by … and is locked; withdraw the approval, with a reason,
+to change it."). Driven as a person would (pytest-qt, offscreen), on an approved copy of a demo run."""
+
+from __future__ import annotations
+
+import re
+from dataclasses import replace
+
+import pytest
+from PySide6.QtCore import Qt
+from PySide6.QtWidgets import QAbstractItemView, QApplication
+
+from curvewright.app import standards_model as sm
+from curvewright.core.run import Reading
+from curvewright.io import run_edits
+from curvewright.io.audit import Identity
+from curvewright.io.run_document import open_run, save_run
+from curvewright.io.run_edits import RunLocked
+from curvewright.io.signatures import sign
+from tests.app.conftest import DEMOS, settle
+
+NITRATE = next(p for p in DEMOS if "nitrate" in p.stem)
+APPROVER = Identity("Sam Approver", "QA-0007", "sam")  # an invented person
+REFUSAL = re.compile(r"^Cannot (?P<what>.+): the run was approved by Sam Approver \(.+\) and is locked; withdraw the "
+                     r"approval, with a reason, to change it\.$")
+
+
+@pytest.fixture
+def approved_window(make_window, tmp_path):  # type: ignore[no-untyped-def]
+    run = sign(open_run(NITRATE).run, "approver", APPROVER, meaning="released")
+    path = tmp_path / "approved nitrate.json"
+    save_run(run, path)
+    window = make_window(path)
+    assert window.session.run.approval is not None
+    return window
+
+
+def _click(qtbot, table, index) -> None:  # type: ignore[no-untyped-def]
+    table.scrollTo(index)
+    qtbot.mouseClick(table.viewport(), Qt.MouseButton.LeftButton, pos=table.visualRect(index).center())
+    assert table.currentIndex() == index
+
+
+def test_a_locked_runs_cells_open_no_editor_and_ask_no_reason(approved_window, qtbot, answer_dialogs) -> None:
+    window = approved_window
+    run = window.session.run
+    window.left_tabs.setCurrentIndex(0)
+    table, model = window.standards_view, window.standards_model
+    index = model.index(2, sm.RESP)
+    _click(qtbot, table, index)
+    qtbot.keyClicks(table, "9")  # typing over a cell opens its editor on a run that is not locked
+    qtbot.keyClick(table, Qt.Key.Key_F2)
+    qtbot.mouseDClick(table.viewport(), Qt.MouseButton.LeftButton, pos=table.visualRect(index).center())
+    assert table.state() != QAbstractItemView.State.EditingState
+    assert QApplication.focusWidget() is table or QApplication.focusWidget().parent() is not table.viewport()
+    assert answer_dialogs.seen == []  # no "Why does this value change?" asked and thrown away
+    assert window.session.run is run
+
+    window.left_tabs.setCurrentIndex(1)
+    samples = window.samples_view
+    _click(qtbot, samples, window.samples_model.index(0, 0))
+    qtbot.keyClicks(samples, "7")
+    assert samples.state() != QAbstractItemView.State.EditingState
+    assert answer_dialogs.seen == [] and window.session.run is run
+    settle(qtbot, window)
+
+
+def test_excluding_a_standard_of_a_locked_run_says_what_was_refused(approved_window, qtbot, answer_dialogs) -> None:
+    window = approved_window
+    run = window.session.run
+    analyte = window.current_analyte()
+    window.left_tabs.setCurrentIndex(0)
+    standard = window.standards_model.standards[1]
+    _click(qtbot, window.standards_view, window.standards_model.index(1, sm.ID))
+
+    window.actions_by_name["exclude"].trigger()
+
+    assert len(answer_dialogs.seen) == 1, answer_dialogs.seen  # the refusal only: no reason was asked
+    title, text = answer_dialogs.seen[0]
+    found = REFUSAL.match(text)
+    assert found, text
+    assert found["what"] == f"exclude standard {standard.id} of {analyte}"
+    assert "standard excluded" not in text
+    assert window.session.run is run and window.session.run.analyte(analyte).standard(standard.id).included
+    settle(qtbot, window)
+
+
+def test_removing_a_standard_of_a_locked_run_is_refused_before_a_reason_is_asked(
+        approved_window, qtbot, answer_dialogs) -> None:
+    window = approved_window
+    run = window.session.run
+    window.left_tabs.setCurrentIndex(0)
+    standard = window.standards_model.standards[0]
+    _click(qtbot, window.standards_view, window.standards_model.index(0, sm.ID))
+
+    window.actions_by_name["remove-row"].trigger()
+
+    assert len(answer_dialogs.seen) == 1, answer_dialogs.seen
+    found = REFUSAL.match(answer_dialogs.seen[0][1])
+    assert found and found["what"] == f"remove standard {standard.id}", answer_dialogs.seen
+    assert window.session.run is run
+    settle(qtbot, window)
+
+
+def test_a_value_change_on_a_locked_run_is_refused_before_its_reason_is_asked() -> None:
+    """The edit functions themselves refuse a locked run before they ask for the reason a changed value
+    needs, so that no caller asks for a reason it then throws away."""
+    run = sign(open_run(NITRATE).run, "approver", APPROVER)
+    analyte = run.analytes[0]
+    first = analyte.standards[0]
+    changed = (replace(first, response=Reading.of(first.response.value * 2)),
+               *analyte.standards[1:])
+    with pytest.raises(RunLocked) as refused:
+        run_edits.update_standards(run, analyte.name, changed, "typed")  # no reason given: refused, not asked
+    found = REFUSAL.match(str(refused.value))
+    assert found and found["what"] == f"change the response of standard {first.id} of {analyte.name}"
+    with pytest.raises(RunLocked, match=f"^Cannot change the response of standard {first.id} of "):
+        run_edits.edit_standard(run, analyte.name, first.id, "response", first.response.value * 2)
+
+
+def test_including_again_a_standard_of_a_locked_run_is_refused_before_a_reason_is_asked(
+        make_window, qtbot, tmp_path, answer_dialogs) -> None:
+    run = open_run(NITRATE).run
+    analyte = run.analytes[0].name
+    excluded = run.analytes[0].standards[3].id
+    run = run_edits.exclude_standard(run, analyte, excluded, "vial cracked (bench note 3)")
+    path = tmp_path / "approved with an exclusion.json"
+    save_run(sign(run, "approver", APPROVER), path)
+    window = make_window(path)
+    locked = window.session.run
+    window.left_tabs.setCurrentIndex(0)
+    _click(qtbot, window.standards_view, window.standards_model.index(3, sm.ID))
+
+    window.exclude_button.click()
+
+    assert len(answer_dialogs.seen) == 1, answer_dialogs.seen
+    found = REFUSAL.match(answer_dialogs.seen[0][1])
+    assert found and found["what"] == f"include standard {excluded} of {analyte} again", answer_dialogs.seen
+    assert window.session.run is locked and not locked.analyte(analyte).standard(excluded).included
+    settle(qtbot, window)
