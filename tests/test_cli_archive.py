@@ -197,3 +197,29 @@ def test_a_malformed_trend_rules_section_is_named_and_the_run_is_still_filed(tmp
     assert (f"{path}: filed, but the trend rules could not be judged: profile 'lead-lab' trend_rules: 'fail_on' "
             "names '3-1s', which is not one of 1-3s, 2-2s, R-4s, 4-1s, 10-x.") in out.stderr
     assert "Lead in water, run 001" in run_cli("archive", "list", "--at", str(tmp_path / "archive")).stdout
+
+
+def _hand_edited(source: Path, target: Path) -> Path:
+    """The run as someone changes it in a text editor: the first standard's response 10.519 made 15.519."""
+    text = source.read_text(encoding="utf-8")
+    assert '"value": 10.519,\n      "text": "10.519"' in text
+    target.write_text(text.replace('"value": 10.519,\n      "text": "10.519"', '"value": 15.519,\n      "text": "15.519"',
+                                   1), encoding="utf-8")
+    return target
+
+
+def test_a_run_whose_data_changed_outside_the_program_is_not_filed(tmp_path, lead_files) -> None:
+    folder = tmp_path / "archive"
+    edited = _hand_edited(lead_files[0], tmp_path / "edited.json")
+    check = run_cli("check", str(edited))
+    assert check.returncode == 1, check.stdout  # the exit code the archive must give too
+    out = run_cli("archive", "add", str(edited), str(lead_files[1]), "--to", str(folder))
+    assert out.returncode == 1, out.stderr
+    assert f"{edited}: not filed: its record is not as Curvewright left it:\n  - " in out.stderr
+    named = [line for line in check.stdout.splitlines() if line.startswith("  - ")]
+    assert named and all(f"{line}\n" in out.stderr for line in named)  # the problems check names
+    assert "filed: Lead in water, run 002" in out.stdout and "run 001" not in out.stdout
+    listed = json.loads(run_cli("archive", "list", "--at", str(folder), "--json").stdout)["runs"]
+    assert [r["run"] for r in listed] == ["Lead in water, run 002"]
+    report = json.loads(run_cli("archive", "add", str(edited), "--to", str(folder), "--json").stdout)["runs"]
+    assert report[0]["error"] == "not filed: its record is not as Curvewright left it" and report[0]["problems"]

@@ -8,7 +8,8 @@
 LOCATION is a folder (a SQLite archive is kept in it), a .sqlite file, ``sqlite:///PATH`` or
 ``postgresql://USER@HOST:PORT/DATABASE``; without ``--to``/``--at`` it is taken from
 ``CURVEWRIGHT_ARCHIVE_URL``. Exit codes as for the other commands: 0 done; 1 a filed run breaks a
-trend rule its acceptance profile makes a failure; 2 input error (a run that could not be filed,
+trend rule its acceptance profile makes a failure, or a run's record is not intact (the
+problems ``curvewright check`` reports: it is not filed); 2 input error (a run that could not be filed,
 an archive that cannot be reached); 3 internal error.
 """
 
@@ -48,7 +49,8 @@ judged against the mean ± 2 s and ± 3 s of a baseline: the first 20 accepted r
 
 exit codes:
   0  done
-  1  a filed run breaks a trend rule that its acceptance profile makes a failure
+  1  a filed run breaks a trend rule that its acceptance profile makes a failure, or a run is not
+     filed because its record is not intact (the problems curvewright check reports)
   2  input error: a run could not be filed (the others are), or the archive cannot be used
   3  internal error in Curvewright
 
@@ -134,6 +136,15 @@ def _expand(patterns: list[str]) -> list[Path]:
         raise CommandError(str(exc)) from None
 
 
+def _record_problems(opened) -> tuple[str, ...]:  # type: ignore[no-untyped-def]
+    """What ``curvewright check`` reports against a run's record (exit code 1 there): the audit trail's
+    and the data's integrity problems, and signatures that do not hold."""
+    from .io.signatures import check_signatures
+
+    return tuple(opened.integrity_problems) + tuple(f"signature does NOT hold: {c.words}"
+                                                    for c in check_signatures(opened.run) if not c.holds)
+
+
 def cmd_archive(args: argparse.Namespace) -> int:
     if args.archive_command is None:
         raise _input("give an action: curvewright archive add|list|show (see curvewright archive --help).")
@@ -156,9 +167,16 @@ def _add(args: argparse.Namespace) -> int:
         for path in paths:
             try:
                 opened = open_run(path)
-                if opened.chain_problems:
-                    raise _input(f"not filed: its audit trail does not verify ({opened.chain_problems[0]}); the "
-                                 "archive keeps only runs whose record is intact (curvewright check shows why).")
+                problems = _record_problems(opened)
+                if problems:
+                    what = ("its audit trail does not verify" if opened.chain_problems else
+                            "its record is not as Curvewright left it")
+                    print(f"curvewright: {path}: not filed: {what}:\n" + "".join(f"  - {p}\n" for p in problems)
+                          + "  the archive keeps only runs whose record is intact (curvewright check shows the "
+                          "same problems).", file=sys.stderr)
+                    code = max(code, EXIT_REJECTED)
+                    report.append({"file": str(path), "error": f"not filed: {what}", "problems": list(problems)})
+                    continue
                 result = analyse_run(opened.run)
                 receipt = archive.file(opened.run, source=str(path), result=result)
             except (CurvewrightError, OSError) as exc:
