@@ -271,3 +271,19 @@ def test_a_run_filed_despite_its_problems_is_marked_and_sets_no_limits(tmp_path,
     row = [line for line in text.splitlines() if "Lead in water, run 021" in line]
     assert len(row) == 1 and "accepted; record NOT intact" in row[0]
     assert "Entry 4 was filed although its record is not intact (" in text
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="the display is named by DISPLAY/WAYLAND_DISPLAY on Linux")
+def test_archive_show_without_a_display_says_so_in_the_project_s_words(tmp_path, lead_files) -> None:
+    folder = tmp_path / "archive"
+    run_cli("archive", "add", str(lead_files[0]), "--to", str(folder))
+    environ = {k: v for k, v in os.environ.items()
+               if k not in (ENVIRONMENT, "DISPLAY", "WAYLAND_DISPLAY", "QT_QPA_PLATFORM")}
+    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "archive", "show", "--at", str(folder), "--analyte",
+                          "lead"], capture_output=True, text=True, cwd=ROOT, timeout=120, env=environ)
+    assert out.returncode == 2, out.stderr
+    assert out.stderr == (f"curvewright: archive show opens a window, and there is no display here (neither DISPLAY "
+                          f"nor WAYLAND_DISPLAY is set). Run it in a desktop session, or see the same history as text, "
+                          f"JSON or a workbook: curvewright trend --at {folder} --analyte lead --quantity slope [--json] "
+                          "[--export history.xlsx].\n")
+    assert "qt.qpa" not in out.stderr and "platform plugin" not in out.stderr
