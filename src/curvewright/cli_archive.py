@@ -9,7 +9,8 @@ LOCATION is a folder (a SQLite archive is kept in it), a .sqlite file, ``sqlite:
 ``postgresql://USER@HOST:PORT/DATABASE``; without ``--to``/``--at`` it is taken from
 ``CURVEWRIGHT_ARCHIVE_URL``. Exit codes as for the other commands: 0 done; 1 a filed run breaks a
 trend rule its acceptance profile makes a failure, or a run's record is not intact (the
-problems ``curvewright check`` reports: it is not filed); 2 input error (a run that could not be filed,
+problems ``curvewright check`` reports: it is not filed, or filed marked with ``--despite-problems``);
+2 input error (a run that could not be filed,
 an archive that cannot be reached); 3 internal error.
 """
 
@@ -50,8 +51,9 @@ judged against the mean ± 2 s and ± 3 s of a baseline: the first 20 accepted r
 
 exit codes:
   0  done
-  1  a filed run breaks a trend rule that its acceptance profile makes a failure, or a run is not
-     filed because its record is not intact (the problems curvewright check reports)
+  1  a filed run breaks a trend rule that its acceptance profile makes a failure, or a run's record
+     is not intact (the problems curvewright check reports): not filed, or filed marked with
+     --despite-problems
   2  input error: a run could not be filed (the others are), or the archive cannot be used
   3  internal error in Curvewright
 
