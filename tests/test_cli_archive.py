@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import json
 import os
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -47,7 +48,7 @@ def test_filing_runs_lists_each_and_files_the_same_content_once(tmp_path, lead_f
     assert again.returncode == 0
     assert "already filed: Lead in water, run 004 (" in again.stdout and "; nothing added" in again.stdout
     listing = run_cli("archive", "list", "--at", str(folder))
-    assert f"(SQLite, schema version 1); {len(DEMO_RUNS) + len(SLOPES)} runs" in listing.stdout
+    assert f"(SQLite, schema version 2); {len(DEMO_RUNS) + len(SLOPES)} runs" in listing.stdout
     assert "Demo Water Lab (invented) — nitrate-N batch 118" in listing.stdout
     only_lead = json.loads(run_cli("archive", "list", "--at", str(folder), "--analyte", "lead", "--json").stdout)
     assert [r["run"] for r in only_lead["runs"]] == [f"Lead in water, run {i + 1:03d}" for i in range(len(SLOPES))]
@@ -114,7 +115,7 @@ def test_trend_json_and_workbook_hold_the_filed_values_at_full_precision(tmp_pat
     sheets = openpyxl.load_workbook(book)
     points = sheets.worksheets[0]
     assert points.cell(1, 1).value == CAUTION
-    values = [points.cell(row, 5).value for row in range(4, 4 + len(SLOPES))]
+    values = [points.cell(row, 7).value for row in range(4, 4 + len(SLOPES))]
     assert values == expected
     assert [s.title for s in sheets.worksheets][1:] == ["Control limits", "Rules"]
 
@@ -181,7 +182,7 @@ def test_filing_listing_and_trending_on_a_postgresql_server(pg_url, lead_files) 
     assert out.returncode == 0, out.stderr
     assert out.stdout.startswith(f"Archive: {pg_url}\n")
     listing = run_cli("archive", "list", "--at", pg_url)
-    assert f"(PostgreSQL, schema version 1); {len(SLOPES) + len(DEMO_RUNS)} runs" in listing.stdout
+    assert f"(PostgreSQL, schema version 2); {len(SLOPES) + len(DEMO_RUNS)} runs" in listing.stdout
     data = json.loads(run_cli("trend", "--at", pg_url, "--analyte", "lead", "--json").stdout)
     assert [p["rules_broken"] for p in data["points"]] == [[]] * 20 + [["1-3s"]]
     assert [p["value"] for p in data["points"]] == [tracked_values(analyse_run(lead_run(i + 1, slope=s)))[0].slope
@@ -197,3 +198,92 @@ def test_a_malformed_trend_rules_section_is_named_and_the_run_is_still_filed(tmp
     assert (f"{path}: filed, but the trend rules could not be judged: profile 'lead-lab' trend_rules: 'fail_on' "
             "names '3-1s', which is not one of 1-3s, 2-2s, R-4s, 4-1s, 10-x.") in out.stderr
     assert "Lead in water, run 001" in run_cli("archive", "list", "--at", str(tmp_path / "archive")).stdout
+
+
+def _hand_edited(source: Path, target: Path) -> Path:
+    """The run as someone changes it in a text editor: the first standard's response raised by 5."""
+    text = source.read_text(encoding="utf-8")
+    found = re.search(r'"response": \{\n +"value": ([0-9.]+),\n +"text": "([0-9.]+)"', text)
+    assert found is not None and found.group(1) == found.group(2)
+    changed = f"{float(found.group(1)) + 5:.3f}"
+    edited = found.group(0).replace(found.group(1), changed)
+    target.write_text(text[:found.start()] + edited + text[found.end():], encoding="utf-8")
+    return target
+
+
+def test_a_run_whose_data_changed_outside_the_program_is_not_filed(tmp_path, lead_files) -> None:
+    folder = tmp_path / "archive"
+    edited = _hand_edited(lead_files[0], tmp_path / "edited.json")
+    check = run_cli("check", str(edited))
+    assert check.returncode == 1, check.stdout  # the exit code the archive must give too
+    out = run_cli("archive", "add", str(edited), str(lead_files[1]), "--to", str(folder))
+    assert out.returncode == 1, out.stderr
+    assert f"{edited}: not filed: its record is not as Curvewright left it:\n  - " in out.stderr
+    named = [line for line in check.stdout.splitlines() if line.startswith("  - ")]
+    assert named and all(f"{line}\n" in out.stderr for line in named)  # the problems check names
+    assert "filed: Lead in water, run 002" in out.stdout and "run 001" not in out.stdout
+    listed = json.loads(run_cli("archive", "list", "--at", str(folder), "--json").stdout)["runs"]
+    assert [r["run"] for r in listed] == ["Lead in water, run 002"]
+    report = json.loads(run_cli("archive", "add", str(edited), "--to", str(folder), "--json").stdout)["runs"]
+    assert report[0]["error"] == "not filed: its record is not as Curvewright left it" and report[0]["problems"]
+
+
+def test_another_version_of_a_filed_run_is_refused_and_counts_once(tmp_path, lead_files) -> None:
+    folder = tmp_path / "archive"
+    from curvewright.io import run_edits
+
+    base = lead_run(3, slope=SLOPES[2])
+    versions = [run_edits.exclude_standard(base, "lead", f"Pb-{i}a", "bubble in the nebuliser", user="a.tester")
+                for i in (1, 2, 3)]
+    copies = write_runs(tmp_path / "copies", versions)  # three saved versions of run 003, each its own content
+    assert len({content_hash(v) for v in versions}) == 3
+    out = run_cli("archive", "add", *map(str, lead_files[:20]), *map(str, copies), "--to", str(folder))
+    assert out.returncode == 2, out.stderr
+    assert out.stdout.count("\nfiled: ") == 20
+    for copy in copies:
+        assert (f"{copy}: not filed: another version of this run is already filed: entry 3, 'Lead in water, run 003' "
+                f"(filed ") in out.stderr
+        assert f"from {lead_files[2]}, SHA-256 {content_hash(base)[:16]}…). Both are the run created " in out.stderr
+    again = run_cli("archive", "add", str(lead_files[2]), "--to", str(folder))  # the same content: nothing added
+    assert again.returncode == 0 and "already filed: Lead in water, run 003" in again.stdout
+    data = json.loads(run_cli("trend", "--at", str(folder), "--analyte", "lead", "--json").stdout)
+    assert data["limits"]["n"] == 20 and [p["entry"] for p in data["points"]] == list(range(1, 21))
+    assert [p["source"] for p in data["points"]] == list(map(str, lead_files[:20]))
+    text = run_cli("trend", "--at", str(folder), "--analyte", "lead").stdout
+    row = [line for line in text.splitlines() if "Lead in water, run 003" in line]
+    assert len(row) == 1 and row[0].split()[:2] == ["3", "3"]  # run number 3, archive entry 3
+
+
+def test_a_run_filed_despite_its_problems_is_marked_and_sets_no_limits(tmp_path, lead_files) -> None:
+    folder = tmp_path / "archive"
+    edited = _hand_edited(lead_files[20], tmp_path / "edited.json")
+    run_cli("archive", "add", *map(str, lead_files[:3]), "--to", str(folder))
+    out = run_cli("archive", "add", str(edited), "--to", str(folder), "--despite-problems")
+    assert out.returncode == 1, out.stderr  # filed on request, but its record is still not intact (as check says)
+    assert "filed: Lead in water, run 021 (" in out.stdout and "as entry 4" in out.stdout
+    assert "  marked: its record is NOT intact (" in out.stdout and "it never sets control limits" in out.stdout
+    listing = run_cli("archive", "list", "--at", str(folder)).stdout
+    assert "Lead in water, run 021 (record NOT intact)" in listing
+    data = json.loads(run_cli("trend", "--at", str(folder), "--analyte", "lead", "--json").stdout)
+    assert [p["in_baseline"] for p in data["points"]] == [True, True, True, False]
+    assert [p["record_intact"] for p in data["points"]] == [True, True, True, False] and data["limits"]["n"] == 3
+    text = run_cli("trend", "--at", str(folder), "--analyte", "lead").stdout
+    row = [line for line in text.splitlines() if "Lead in water, run 021" in line]
+    assert len(row) == 1 and "accepted; record NOT intact" in row[0]
+    assert "Entry 4 was filed although its record is not intact (" in text
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="the display is named by DISPLAY/WAYLAND_DISPLAY on Linux")
+def test_archive_show_without_a_display_says_so_in_the_project_s_words(tmp_path, lead_files) -> None:
+    folder = tmp_path / "archive"
+    run_cli("archive", "add", str(lead_files[0]), "--to", str(folder))
+    environ = {k: v for k, v in os.environ.items()
+               if k not in (ENVIRONMENT, "DISPLAY", "WAYLAND_DISPLAY", "QT_QPA_PLATFORM")}
+    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "archive", "show", "--at", str(folder), "--analyte",
+                          "lead"], capture_output=True, text=True, cwd=ROOT, timeout=120, env=environ)
+    assert out.returncode == 2, out.stderr
+    assert out.stderr == (f"curvewright: archive show opens a window, and there is no display here (neither DISPLAY "
+                          f"nor WAYLAND_DISPLAY is set). Run it in a desktop session, or see the same history as text, "
+                          f"JSON or a workbook: curvewright trend --at {folder} --analyte lead --quantity slope [--json] "
+                          "[--export history.xlsx].\n")
+    assert "qt.qpa" not in out.stderr and "platform plugin" not in out.stderr

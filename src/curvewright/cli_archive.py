@@ -8,7 +8,9 @@
 LOCATION is a folder (a SQLite archive is kept in it), a .sqlite file, ``sqlite:///PATH`` or
 ``postgresql://USER@HOST:PORT/DATABASE``; without ``--to``/``--at`` it is taken from
 ``CURVEWRIGHT_ARCHIVE_URL``. Exit codes as for the other commands: 0 done; 1 a filed run breaks a
-trend rule its acceptance profile makes a failure; 2 input error (a run that could not be filed,
+trend rule its acceptance profile makes a failure, or a run's record is not intact (the
+problems ``curvewright check`` reports: it is not filed, or filed marked with ``--despite-problems``);
+2 input error (a run that could not be filed,
 an archive that cannot be reached); 3 internal error.
 """
 
@@ -16,6 +18,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import sys
 from datetime import date
 from pathlib import Path
@@ -48,7 +51,9 @@ judged against the mean ± 2 s and ± 3 s of a baseline: the first 20 accepted r
 
 exit codes:
   0  done
-  1  a filed run breaks a trend rule that its acceptance profile makes a failure
+  1  a filed run breaks a trend rule that its acceptance profile makes a failure, or a run's record
+     is not intact (the problems curvewright check reports): not filed, or filed marked with
+     --despite-problems
   2  input error: a run could not be filed (the others are), or the archive cannot be used
   3  internal error in Curvewright
 
@@ -65,6 +70,9 @@ def add_parsers(sub: Any) -> None:
     add = actions.add_parser("add", help="file run documents into an archive", epilog=ARCHIVE_EPILOG, formatter_class=fmt)
     add.add_argument("runs", nargs="+", metavar="RUN", help="run documents, folders of them, or glob patterns")
     add.add_argument("--to", metavar="LOCATION", help="the archive (default: $CURVEWRIGHT_ARCHIVE_URL)")
+    add.add_argument("--despite-problems", action="store_true",
+                     help="file runs whose record is not intact (the problems curvewright check reports) all the "
+                          "same, marked with their problems and kept out of the control limits")
     _baseline_options(add)
     add.add_argument("--json", action="store_true", help="print what was filed as JSON for scripts")
     listing = actions.add_parser("list", help="the runs filed in an archive", epilog=ARCHIVE_EPILOG, formatter_class=fmt)
@@ -134,6 +142,15 @@ def _expand(patterns: list[str]) -> list[Path]:
         raise CommandError(str(exc)) from None
 
 
+def _record_problems(opened) -> tuple[str, ...]:  # type: ignore[no-untyped-def]
+    """What ``curvewright check`` reports against a run's record (exit code 1 there): the audit trail's
+    and the data's integrity problems, and signatures that do not hold."""
+    from .io.signatures import check_signatures
+
+    return tuple(opened.integrity_problems) + tuple(f"signature does NOT hold: {c.words}"
+                                                    for c in check_signatures(opened.run) if not c.holds)
+
+
 def cmd_archive(args: argparse.Namespace) -> int:
     if args.archive_command is None:
         raise _input("give an action: curvewright archive add|list|show (see curvewright archive --help).")
@@ -156,11 +173,19 @@ def _add(args: argparse.Namespace) -> int:
         for path in paths:
             try:
                 opened = open_run(path)
-                if opened.chain_problems:
-                    raise _input(f"not filed: its audit trail does not verify ({opened.chain_problems[0]}); the "
-                                 "archive keeps only runs whose record is intact (curvewright check shows why).")
+                problems = _record_problems(opened)
+                if problems and not args.despite_problems:
+                    what = ("its audit trail does not verify" if opened.chain_problems else
+                            "its record is not as Curvewright left it")
+                    print(f"curvewright: {path}: not filed: {what}:\n" + "".join(f"  - {p}\n" for p in problems)
+                          + "  the archive keeps only runs whose record is intact (curvewright check shows the "
+                          "same problems); to file it all the same, marked and kept out of the control limits, "
+                          "give --despite-problems.", file=sys.stderr)
+                    code = max(code, EXIT_REJECTED)
+                    report.append({"file": str(path), "error": f"not filed: {what}", "problems": list(problems)})
+                    continue
                 result = analyse_run(opened.run)
-                receipt = archive.file(opened.run, source=str(path), result=result)
+                receipt = archive.file(opened.run, source=str(path), result=result, record_problems=problems)
             except (CurvewrightError, OSError) as exc:
                 code = max(code, EXIT_INPUT)
                 text = str(exc) if str(exc).startswith("not filed") else f"not filed: {exc}"
@@ -173,12 +198,13 @@ def _add(args: argparse.Namespace) -> int:
                 code = max(code, EXIT_INPUT)
                 verdict = TrendVerdict((), (f"the trend rules could not be judged: {exc}",), baseline)
                 print(f"curvewright: {path}: filed, but the trend rules could not be judged: {exc}", file=sys.stderr)
-            if not verdict.passed:
+            if not verdict.passed or receipt.run.record_problems:
                 code = max(code, EXIT_REJECTED)
             entry = receipt.run
             report.append({"file": str(path), "run": entry.name, "entry": entry.entry, "sha256": entry.key,
                            "filed": receipt.new, "filed_utc": entry.filed_utc, "filed_by": entry.filed_by,
-                           "accepted": entry.accepted, "trend_rules_passed": verdict.passed,
+                           "accepted": entry.accepted, "record_problems": entry.record_problems,
+                           "trend_rules_passed": verdict.passed,
                            "trend_findings": [{"analyte": f.analyte, "quantity": f.quantity, "value": f.value, "z": f.z,
                                                "rule": f.rule_break.rule, "words": f.rule_break.words,
                                                "failing": f.failing, "provisional_limits": f.provisional}
@@ -188,6 +214,9 @@ def _add(args: argparse.Namespace) -> int:
                 continue
             if receipt.new:
                 print(f"filed: {entry.name} ({path}) as entry {entry.entry}, SHA-256 {entry.key[:16]}…")
+                if entry.record_problems:
+                    print(f"  marked: its record is NOT intact ({entry.record_problems}); filed on request "
+                          "(--despite-problems), it never sets control limits")
             else:
                 print(f"already filed: {entry.name} ({path}) is entry {entry.entry}, filed {entry.filed_utc} by "
                       f"{entry.filed_by}; nothing added")
@@ -215,7 +244,7 @@ def _list(args: argparse.Namespace) -> int:
         print(json.dumps({"archive": shown, "schema_version": version, "runs": [
             {"entry": e.entry, "run": e.name, "run_date": e.run_date, "sha256": e.key, "accepted": e.accepted,
              "filed_utc": e.filed_utc, "filed_by": e.filed_by, "source": e.source,
-             "software_version": e.software_version,
+             "software_version": e.software_version, "record_problems": e.record_problems,
              "analytes": [{"name": a.name, "method": a.method_key, "accepted": a.accepted, "error": a.error}
                           for a in e.analytes]} for e in entries], "caution": CAUTION}, indent=1, ensure_ascii=False))
         return 0
@@ -223,7 +252,7 @@ def _list(args: argparse.Namespace) -> int:
     print(f"Archive: {shown} ({kind}, schema version {version}); {len(entries)} run{'s' if len(entries) != 1 else ''}"
           + (f" with analyte {args.analyte}" if args.analyte else ""))
     heading = ("entry", "run date", "run", "analytes (method; verdict)", "SHA-256", "filed")
-    rows = [heading] + [(str(e.entry), e.run_date[:10], e.name,
+    rows = [heading] + [(str(e.entry), e.run_date[:10], e.name + (" (record NOT intact)" if e.record_problems else ""),
                          "; ".join(f"{a.name} ({a.method_key}; {'accepted' if a.accepted else 'NOT accepted'})"
                                    for a in e.analytes if args.analyte in (None, a.name)),
                          e.key[:12] + "…", f"{e.filed_utc} by {e.filed_by}") for e in entries]
@@ -235,10 +264,18 @@ def _list(args: argparse.Namespace) -> int:
 
 
 def _show(args: argparse.Namespace) -> int:
-    from .app.history_view import run_history_app
     from .io.archive import locate
 
     location = locate(args.at)
+    if (sys.platform.startswith("linux") and not os.environ.get("QT_QPA_PLATFORM")
+            and not os.environ.get("DISPLAY") and not os.environ.get("WAYLAND_DISPLAY")):
+        at = f" --at {args.at}" if args.at else ""
+        raise _input("archive show opens a window, and there is no display here (neither DISPLAY nor "
+                     "WAYLAND_DISPLAY is set). Run it in a desktop session, or see the same history as text, JSON "
+                     f"or a workbook: curvewright trend{at} --analyte {args.analyte or 'ANALYTE'} --quantity "
+                     f"{args.quantity} [--json] [--export history.xlsx].")
+    from .app.history_view import run_history_app
+
     return run_history_app(location.remembered if not location.has_password else args.at, analyte=args.analyte,
                            quantity=args.quantity, run_path=Path(args.run) if args.run else None)
 

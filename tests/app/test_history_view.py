@@ -252,3 +252,22 @@ def test_the_readme_command_builds_the_demo_archive_and_opens_its_history(tmp_pa
     points = drawn(view)["points"]
     assert len(points["o"][0]) == 59 and points["s"][0] == [17.0] and points["star"][0]  # run 17 not accepted
     view.close()
+
+
+def test_file_this_run_refuses_another_version_of_a_filed_run(make_window, settings, archive_folder, tmp_path,
+                                                               qtbot) -> None:
+    from curvewright.io import run_edits
+
+    settings.setValue(SETTINGS_KEY, str(archive_folder))
+    edited = tmp_path / "lead_run_020_edited.json"  # run 020 (filed) with a standard excluded since
+    save_run(run_edits.exclude_standard(lead_run(20, slope=SLOPES[19]), "lead", "Pb-1a", "bubble in the nebuliser",
+                                        user="a.tester"), edited)
+    window = make_window(edited)
+    window.actions_by_name["history"].trigger()
+    view = window.history_window
+    qtbot.mouseClick(view.file_button, Qt.MouseButton.LeftButton)
+    shown = plain(view.summary)
+    assert shown.startswith("Not filed: another version of this run is already filed: entry 20, "
+                            "'Lead in water, run 020'") and "not filed" not in shown
+    with open_archive(str(archive_folder)) as archive:
+        assert archive.count() == 20

@@ -388,3 +388,36 @@ def test_without_the_server_binaries_the_postgresql_tests_skip_saying_so(monkeyp
                                                     r"so the tests against a real PostgreSQL server are skipped; install "
                                                     r"them \(Debian: apt-get install postgresql\)"):
         server._start()
+
+
+def test_an_archive_of_schema_version_1_is_brought_up_to_date_and_still_files_each_run_once(tmp_path) -> None:
+    import sqlite3
+    import subprocess
+    import sys
+
+    from curvewright.io import run_edits
+    from curvewright.io.run_document import dumps_run
+    from tests.io.helpers import ROOT
+
+    folder = tmp_path / "archive"
+    run = lead_run(7)
+    with open_archive(str(folder), create=True) as archive:
+        archive.file(run, source="run_007.json")
+    # the archive as a version-1 Curvewright left it: no identity or record-problem columns
+    db = sqlite3.connect(folder / "curvewright-archive.sqlite")
+    with db:
+        db.execute("DROP INDEX runs_one_entry_per_run")
+        db.execute("ALTER TABLE runs DROP COLUMN run_identity")
+        db.execute("ALTER TABLE runs DROP COLUMN record_problems")
+        db.execute("DELETE FROM archive_schema WHERE version = 2")
+    db.close()
+    later = tmp_path / "run_007_later.json"
+    later.write_text(dumps_run(run_edits.exclude_standard(run, "lead", "Pb-2b", "bubble in the nebuliser",
+                                                          user="a.tester")), encoding="utf-8")
+    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "archive", "add", str(later), "--to", str(folder)],
+                         capture_output=True, text=True, cwd=ROOT, timeout=300)
+    assert out.returncode == 2, out.stderr
+    assert f"{later}: not filed: another version of this run is already filed: entry 1, 'Lead in water, run 007'" \
+        in out.stderr
+    with open_archive(str(folder)) as archive:
+        assert archive.version == schema.CURRENT_VERSION == 2 and archive.count() == 1

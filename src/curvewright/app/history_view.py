@@ -274,7 +274,8 @@ class HistoryWindow(QWidget):
             with open_archive(self.location_text, create=True) as archive:
                 receipt = archive.file(self.today_result.run, result=self.today_result)
         except CurvewrightError as exc:
-            self._problem(f"Not filed: {exc}")
+            said = str(exc)
+            self._problem(said[:1].upper() + said[1:] if said.startswith("not filed: ") else f"Not filed: {said}")
             return
         entry = receipt.run
         self.reload()

@@ -138,13 +138,19 @@ class RuleBreak:
 @dataclass(frozen=True)
 class TrendPoint:
     """One run's value of the quantity: ``key`` identifies the run (its content hash), ``label`` names it,
-    ``day`` is the run's date (UTC) as ``YYYY-MM-DD…``; ``accepted`` its verdict."""
+    ``day`` is the run's date (UTC) as ``YYYY-MM-DD…``; ``accepted`` its verdict; ``entry`` and ``source``
+    its archive entry number and the file it was filed from (None for a run not filed);
+    ``record_problems`` the integrity problems of a run filed although its record is not intact (such a
+    run never sets control limits)."""
 
     key: str
     label: str
     day: str
     value: float
     accepted: bool
+    entry: int | None = None
+    source: str | None = None
+    record_problems: str = ""
 
 
 @dataclass(frozen=True)
@@ -198,10 +204,11 @@ def control_limits(values: Sequence[float]) -> ControlLimits:
 
 
 def select_baseline(points: Sequence[TrendPoint], baseline: Baseline) -> tuple[int, ...]:
-    """Indices of the points that set the limits: accepted runs, the first N or those within the dates."""
+    """Indices of the points that set the limits: accepted runs whose record is intact, the first N or
+    those within the dates."""
     chosen = []
     for i, p in enumerate(points):
-        if not p.accepted:
+        if not p.accepted or p.record_problems:
             continue
         if baseline.by_date:
             day = date.fromisoformat(p.day[:10])

@@ -1,6 +1,6 @@
 """The archive's tables, their version, and the migrations that bring any archive up to date.
 
-Version 1 (the current one):
+Version 1:
 
 * ``archive_schema`` — one row per migration applied: version, time (UTC), software version;
 * ``runs`` — one row per filed run: its content hash (unique), name, date, who filed it and when,
@@ -11,6 +11,15 @@ Version 1 (the current one):
   quantities of :mod:`curvewright.core.tracked` (``rf_rsd_percent`` is filled only for
   calibrations by the average response factor);
 * ``recoveries`` — per run and analyte, the mean recovery of each QC level and calibration check.
+
+Version 2 (the current one) adds two columns to ``runs``:
+
+* ``run_identity`` — the hash of the run's first audit entry (its creation), the same in every
+  version of one run whatever was edited later; unique, so that a run is filed once (empty for runs
+  without an audit trail, and for runs filed under version 1, which are compared by their documents);
+* ``record_problems`` — empty for a run whose record was intact when filed; for a run filed on
+  request although ``curvewright check`` finds its record not intact, the problems found. Such a run
+  is shown marked and never sets control limits.
 
 Filed rows are never changed or removed: triggers refuse UPDATE and DELETE (and TRUNCATE on
 PostgreSQL) on the three tables of filed runs.
@@ -38,8 +47,10 @@ FILED_TABLES = ("runs", "run_analytes", "recoveries")
 ADVISORY_LOCK = 0x43_57_41_52_43_48  # "CWARCH": the key of the migration lock on PostgreSQL
 
 
-def _define(metadata: MetaData) -> dict[str, Table]:
-    """The tables of schema version 1."""
+def _define(metadata: MetaData, version: int = 2) -> dict[str, Table]:
+    """The tables of schema version ``version``."""
+    later = ([Column("run_identity", String(64)), Column("record_problems", Text),
+              Index("runs_one_entry_per_run", "run_identity", unique=True)] if version >= 2 else [])
     schema = Table(
         "archive_schema", metadata,
         Column("version", Integer, primary_key=True, autoincrement=False),
@@ -59,6 +70,7 @@ def _define(metadata: MetaData) -> dict[str, Table]:
         Column("software_version", String(64), nullable=False),
         Column("accepted", Boolean, nullable=False),
         Column("document", Text, nullable=False),
+        *later,
         Index("runs_by_date", "run_date_utc"),
     )
     analytes = Table(
@@ -112,7 +124,7 @@ recoveries = _tables["recoveries"]
 
 def _version_1(conn: Connection) -> None:
     frozen = MetaData()
-    _define(frozen)
+    _define(frozen, 1)
     frozen.create_all(conn)
     if conn.dialect.name == "postgresql":
         conn.exec_driver_sql(
@@ -131,6 +143,12 @@ def _version_1(conn: Connection) -> None:
                                      f"SELECT RAISE(ABORT, 'a filed run is immutable: {op} on {table} refused'); END")
 
 
+def _version_2(conn: Connection) -> None:
+    conn.exec_driver_sql("ALTER TABLE runs ADD COLUMN run_identity VARCHAR(64)")
+    conn.exec_driver_sql("ALTER TABLE runs ADD COLUMN record_problems TEXT")
+    conn.exec_driver_sql("CREATE UNIQUE INDEX runs_one_entry_per_run ON runs (run_identity)")
+
+
 @dataclass(frozen=True)
 class Migration:
     version: int
@@ -140,6 +158,8 @@ class Migration:
 
 MIGRATIONS: tuple[Migration, ...] = (
     Migration(1, "runs, their analytes' tracked quantities and recoveries; filed rows immutable", _version_1),
+    Migration(2, "runs: the identity of the run (one entry per run) and the record problems of a run filed "
+                 "despite them", _version_2),
 )
 CURRENT_VERSION = MIGRATIONS[-1].version
 

@@ -1,7 +1,9 @@
 """Filing runs into an archive and reading them back: one code path for SQLite and PostgreSQL.
 
 A run is filed with its content hash (:func:`content_hash`): filing the same content again finds
-the entry already there and adds nothing. Everything about one run (its row, its analytes' tracked
+the entry already there and adds nothing. A run is identified by its first audit entry, its creation
+(:func:`run_identity`): another version of a filed run (the same run with other content) is refused,
+so that each run is one entry and one point of every trend. Everything about one run (its row, its analytes' tracked
 quantities, their recoveries) is written in one transaction, so a failure half-way leaves no trace
 of it. On SQLite the archive is kept in WAL mode and a filing takes the write lock at its start
 (``BEGIN IMMEDIATE``, waiting up to :data:`BUSY_SECONDS` for another filing to finish); on
@@ -51,6 +53,24 @@ def content_hash(run: Run) -> str:
     return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
 
 
+def run_identity(run: Run) -> str | None:
+    """What identifies the run in the archive: the hash of its first audit entry (its creation), which
+    every later version of the run keeps; None for a run without an audit trail."""
+    return run.audit[0].hash if run.audit and run.audit[0].hash else None
+
+
+def _identity_of_document(document: str) -> str | None:
+    try:
+        audit = json.loads(document).get("audit") or []
+        return str(audit[0]["hash"]) if audit and audit[0].get("hash") else None
+    except (ValueError, TypeError, AttributeError, KeyError, IndexError):
+        return None
+
+
+class SameRunFiled(ArchiveError):
+    """Another version of the run (other content, the same creation) is already filed."""
+
+
 def run_date(run: Run) -> str | None:
     """The run's date: when it was created (its first audit entry), as UTC text; None without a trail."""
     if not run.audit:
@@ -83,6 +103,8 @@ class ArchivedRun:
     accepted: bool
     software_version: str
     analytes: tuple[ArchivedAnalyte, ...]
+    record_problems: str | None = None
+    """None when the run's record was intact when filed; else the problems found (filed on request)."""
 
 
 @dataclass(frozen=True)
@@ -208,9 +230,12 @@ class Archive:
 
     # --- filing ----------------------------------------------------------------------------------
     def file(self, run: Run, *, source: str | None = None, result: RunResult | None = None,
-             user: str | None = None) -> FilingReceipt:
+             user: str | None = None, record_problems: tuple[str, ...] = ()) -> FilingReceipt:
         """File ``run`` (analysed here unless its ``result`` is given). Filing the same content again
-        returns the entry already filed and changes nothing."""
+        returns the entry already filed and changes nothing; another version of a filed run (its first
+        audit entry the same, its content not) is refused with :class:`SameRunFiled`. ``record_problems``
+        are the integrity problems of a run filed although its record is not intact: it is marked with
+        them and never sets control limits."""
         if self.read_only:
             raise ArchiveError(f"{self.location.shown}: run {run.name!r} cannot be filed: you may read this archive "
                                "but not write in its folder. Who may file into a SQLite archive is whoever may write "
@@ -225,22 +250,57 @@ class Archive:
         filed = utc_text()
         row = dict(content_sha256=key, name=run.name, run_date_utc=run_date(run) or filed, filed_utc=filed,
                    filed_by=user or current_user(), source=source, software_version=__version__,
-                   accepted=result.accepted, document=document)
+                   accepted=result.accepted, document=document, run_identity=run_identity(run),
+                   record_problems="; ".join(record_problems) or None)
         for _ in range(3):
+            same_run = None
             try:
                 with self._write(f"filing run {run.name!r}") as conn:
                     existing = conn.execute(select(runs.c.id).where(runs.c.content_sha256 == key)).first()
                     if existing is None:
+                        same_run = self._same_run(conn, run)
+                    if existing is None and same_run is None:
                         run_id = int(conn.execute(insert(runs).values(**row)).inserted_primary_key[0])
                         for tracked in values:
                             self._file_analyte(conn, run_id, tracked)
             except IntegrityError:
-                continue  # the same content was filed at this moment by someone else: read their entry
+                continue  # the same run was filed at this moment by someone else: read their entry
+            if same_run is not None:
+                raise self._refusal(run, same_run)
             found = self.find(key)
             assert found is not None
             return FilingReceipt(found, new=existing is None)
         raise ArchiveError(f"{self.location.shown}: run {run.name!r} could not be filed (the archive refused its "
                            "entry three times); try again.")
+
+    @staticmethod
+    def _same_run(conn: Connection, run: Run) -> str | None:
+        """The content hash of the filed version of ``run`` (another content, the same creation), or None.
+        Runs filed before the archive kept identities are compared by their documents (those of the
+        same name)."""
+        identity = run_identity(run)
+        if identity is None:
+            return None
+        found = conn.execute(select(runs.c.content_sha256).where(runs.c.run_identity == identity)).scalar()
+        if found is not None:
+            return str(found)
+        for key, document in conn.execute(select(runs.c.content_sha256, runs.c.document)
+                                          .where(runs.c.run_identity.is_(None) & (runs.c.name == run.name))):
+            if _identity_of_document(document) == identity:
+                return str(key)
+        return None
+
+    def _refusal(self, run: Run, key: str) -> SameRunFiled:
+        entry = self.find(key)
+        assert entry is not None
+        created = run.audit[0]
+        source = f", from {entry.source}" if entry.source else ""
+        return SameRunFiled(
+            f"not filed: another version of this run is already filed: entry {entry.entry}, {entry.name!r} "
+            f"(filed {entry.filed_utc} by {entry.filed_by}{source}, SHA-256 {entry.key[:16]}…). Both are the run "
+            f"created {created.time_utc} by {created.user}, with different content; the archive keeps one entry "
+            "per run, so that it counts once in the control limits. Compare the two (curvewright check) and keep "
+            "the filed one as the run's record.")
 
     @staticmethod
     def _file_analyte(conn: Connection, run_id: int, tracked: TrackedValues) -> None:
@@ -266,7 +326,8 @@ class Archive:
     def entries(self, analyte: str | None = None, *, key: str | None = None) -> tuple[ArchivedRun, ...]:
         """The filed runs in run order (date, then entry), optionally only those with ``analyte``."""
         query = select(runs.c.id, runs.c.content_sha256, runs.c.name, runs.c.run_date_utc, runs.c.filed_utc,
-                       runs.c.filed_by, runs.c.source, runs.c.accepted, runs.c.software_version)
+                       runs.c.filed_by, runs.c.source, runs.c.accepted, runs.c.software_version,
+                       runs.c.record_problems)
         if key is not None:
             query = query.where(runs.c.content_sha256 == key)
         if analyte is not None:
@@ -281,7 +342,8 @@ class Archive:
                                       .where(run_analytes.c.run_id.in_(ids)).order_by(run_analytes.c.id)):
                     per_run[a.run_id].append(ArchivedAnalyte(a.analyte, a.method_key, bool(a.accepted), a.error))
         return tuple(ArchivedRun(r.id, r.content_sha256, r.name, r.run_date_utc, r.filed_utc, r.filed_by, r.source,
-                                 bool(r.accepted), r.software_version, tuple(per_run[r.id])) for r in rows)
+                                 bool(r.accepted), r.software_version, tuple(per_run[r.id]), r.record_problems)
+                     for r in rows)
 
     def count(self) -> int:
         with self._read("counting the filed runs") as conn:
@@ -304,7 +366,8 @@ class Archive:
     def records(self, analyte: str, method_key: str) -> "MethodRecords":
         """Every tracked value of ``analyte`` under ``method_key``, in run order (two queries)."""
         where = (run_analytes.c.analyte == analyte) & (run_analytes.c.method_key == method_key)
-        head = (runs.c.content_sha256, runs.c.name, runs.c.run_date_utc, run_analytes.c.accepted)
+        head = (runs.c.content_sha256, runs.c.name, runs.c.run_date_utc, run_analytes.c.accepted, runs.c.id,
+                runs.c.source, runs.c.record_problems)
         order = (runs.c.run_date_utc, runs.c.id)
         with self._read(f"reading the history of {analyte}") as conn:
             rows = conn.execute(select(*head, run_analytes.c.concentration_unit, run_analytes.c.response_unit,
@@ -317,15 +380,15 @@ class Archive:
                 .join(runs, runs.c.id == run_analytes.c.run_id).where(where).order_by(*order)).all()
         series: dict[str, list[TrendPoint]] = {}
         for row in rows:
-            for q, value in zip(CALIBRATION_QUANTITIES, row[6:]):
+            for q, value in zip(CALIBRATION_QUANTITIES, row[9:]):
                 if value is not None:
-                    series.setdefault(q, []).append(TrendPoint(row[0], row[1], row[2], float(value), bool(row[3])))
+                    series.setdefault(q, []).append(_point(row, float(value)))
         kinds = {"qc": 0, "icv": 1, "ccv": 2, "check_standard": 3, "low_level_check": 4}
         recovery_order = sorted({(kinds.get(r.kind, 9), r.nominal, r.quantity) for r in recovered})
         for r in recovered:
-            series.setdefault(r.quantity, []).append(TrendPoint(r[0], r[1], r[2], float(r.recovery_percent), bool(r[3])))
+            series.setdefault(r.quantity, []).append(_point(r, float(r.recovery_percent)))
         quantities = tuple(q for q in CALIBRATION_QUANTITIES if q in series) + tuple(q for *_, q in recovery_order)
-        units = (rows[-1][4], rows[-1][5]) if rows else ("", "")
+        units = (rows[-1][7], rows[-1][8]) if rows else ("", "")
         return MethodRecords(analyte, method_key, quantities, {q: tuple(v) for q, v in series.items()}, units)
 
     def quantities(self, analyte: str, method_key: str) -> tuple[str, ...]:
@@ -350,6 +413,12 @@ class Archive:
 
     def run(self, key: str) -> Run:
         return loads_run(self.document(key), origin=f"{self.location.shown}, run {key[:16]}…").run
+
+
+def _point(row, value: float) -> TrendPoint:  # type: ignore[no-untyped-def]
+    """A trend point of a filed run from a row that begins with :meth:`Archive.records`' ``head``."""
+    return TrendPoint(row[0], row[1], row[2], value, bool(row[3]), entry=int(row[4]), source=row[5],
+                      record_problems=row[6] or "")
 
 
 def open_archive(where: ArchiveLocation | str | None, *, create: bool = False) -> Archive:

@@ -21,7 +21,8 @@ def _point_rows(h: History) -> list[dict[str, Any]]:
     out = []
     for i, p in enumerate(h.points):
         out.append({
-            "number": i + 1, "date": p.day[:10], "run": p.label, "key": p.key, "value": p.value,
+            "number": i + 1, "entry": p.entry, "source": p.source, "date": p.day[:10], "run": p.label, "key": p.key,
+            "value": p.value, "record_intact": not p.record_problems, "record_problems": p.record_problems or None,
             "z": float(h.trend.z[i]) if h.trend is not None else None, "accepted": p.accepted,
             "in_baseline": i in baseline, "today": i == h.today,
             "rules_broken": [b.rule for b in h.breaks_at(i)],
@@ -69,16 +70,22 @@ def history_text(h: History, archive_shown: str) -> str:
     if h.today_note:
         lines.append(f"Today's run is not shown: {h.today_note}")
     rows = _point_rows(h)
-    heading = ("#", "run date", "run", "value", "z", "verdict", "baseline", "rules broken")
-    table = [heading] + [(str(r["number"]), r["date"], r["run"] + ("  ◀ today" if r["today"] else ""),
+    heading = ("#", "entry", "run date", "run", "value", "z", "verdict", "baseline", "rules broken")
+    table = [heading] + [(str(r["number"]), "—" if r["entry"] is None else str(r["entry"]), r["date"],
+                          r["run"] + ("  ◀ today" if r["today"] else ""),
                           f"{r['value']:.6g}", "" if r["z"] is None else f"{r['z']:+.2f}",
-                          "accepted" if r["accepted"] else "NOT accepted", "B" if r["in_baseline"] else "",
-                          ", ".join(r["rules_broken"])) for r in rows]
+                          ("accepted" if r["accepted"] else "NOT accepted")
+                          + ("" if r["record_intact"] else "; record NOT intact"),
+                          "B" if r["in_baseline"] else "", ", ".join(r["rules_broken"])) for r in rows]
     widths = [max(len(t[i]) for t in table) for i in range(len(heading))]
-    right = {0, 3, 4}
+    right = {0, 1, 4, 5}
     for t in table:
         lines.append("  " + "  ".join(c.rjust(w) if i in right else c.ljust(w)
                                       for i, (c, w) in enumerate(zip(t, widths))).rstrip())
+    for r in rows:
+        if not r["record_intact"]:
+            lines.append(f"Entry {r['entry']} was filed although its record is not intact ({r['record_problems']}); "
+                         "it never sets control limits.")
     flagged = [r for r in rows if r["rules_broken"]]
     if h.trend is not None:
         if flagged:
@@ -97,12 +104,14 @@ def history_tables(h: History, archive_shown: str) -> list[Table]:
     rows = _point_rows(h)
     points = Table(
         f"{h.analyte} {h.quantity}"[:31],
-        (Column("Run number", kind="int"), Column("Run date"), Column("Run"), Column("Content SHA-256"),
+        (Column("Run number", kind="int"), Column("Archive entry", kind="int"), Column("Filed from"),
+         Column("Run date"), Column("Run"), Column("Content SHA-256"),
          Column(h.words, kind="number"), Column("z", kind="number"), Column("Verdict"), Column("In baseline"),
-         Column("Today's run"), Column("Rules broken")),
-        tuple((r["number"], r["date"], r["run"], r["key"], r["value"], r["z"],
+         Column("Today's run"), Column("Rules broken"), Column("Record problems")),
+        tuple((r["number"], r["entry"], r["source"] or "", r["date"], r["run"], r["key"], r["value"], r["z"],
                "accepted" if r["accepted"] else "not accepted", "yes" if r["in_baseline"] else "",
-               "yes" if r["today"] else "", ", ".join(r["rules_broken"])) for r in rows),
+               "yes" if r["today"] else "", ", ".join(r["rules_broken"]), r["record_problems"] or "")
+              for r in rows),
     )
     limits = limits_of(h)
     about = [("Archive", archive_shown), ("Analyte", h.analyte), ("Method", h.method_key), ("Quantity", h.words),
