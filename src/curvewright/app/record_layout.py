@@ -155,6 +155,14 @@ class Metrics:
         return 2 * len(text) * self.widest[style] <= width
 
     @property
+    def average(self) -> dict[str, float]:
+        """Each style's mean width of a character (the font's own figure), for estimates only."""
+        found = self.__dict__.get("_average")
+        if found is None:
+            found = self.__dict__["_average"] = {name: m.averageCharWidth() for name, m in self.metrics.items()}
+        return found
+
+    @property
     def widest(self) -> dict[str, float]:
         found = self.__dict__.get("_widest")
         if found is None:
@@ -204,9 +212,18 @@ class RecordLayout:
     def wrap(self, style: str, text: str, width: float) -> list[str]:
         """Lines of ``text`` within ``width``, broken between words only (see :meth:`tokens`)."""
         lines: list[str] = []
+        known = self.m._widths[style]
         for paragraph in str(text).split("\n"):
             whole = " ".join(self.bound_words(paragraph))
-            measured = self.m.width(style, whole)
+            measured = known.get(whole)
+            if measured is None and len(whole) * self.m.average[style] > 2 * width:
+                # about two lines or more at the font's mean width of a character: set line by line from
+                # that estimate without measuring the paragraph whole (the lines are found by measuring
+                # them, so a paragraph that fits after all is still set on its one line)
+                lines += self._greedy(style, self.tokens(style, paragraph, width), width, self.m.average[style])
+                continue
+            if measured is None:
+                measured = self.m.width(style, whole)
             if measured <= width:
                 # it fits on one line (most cells and captions): so does every word and every start of
                 # it, and the line found word by word would be this one
@@ -219,10 +236,10 @@ class RecordLayout:
         """``tokens`` set line by line, each line as many tokens as fit in ``width`` (at least one).
 
         The line that fits is first estimated at ``per_character`` (the paragraph's mean width of a
-        character, space included), then checked by measuring it whole, and the line with one more
-        token, moving the end until the one fits and the other does not: lines are the same as found
-        by measuring every start of the line token by token (a longer start never measures narrower),
-        with a few measurements a line instead of one a word."""
+        character, space included, or the font's for a paragraph of several lines), then checked by
+        measuring it whole, and the line with one more token, moving the end until the one fits and the
+        other does not: lines are the same as found by measuring every start of the line token by token
+        (a longer start never measures narrower), with a few measurements a line instead of one a word."""
         widths = [len(t) * per_character for t in tokens]
         space = per_character
         lines: list[str] = []
