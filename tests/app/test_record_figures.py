@@ -429,3 +429,24 @@ def test_clipping_a_line_joins_its_kept_segments_exactly_as_segment_by_segment()
             assert np.array_equal(a, b, equal_nan=True)
         points += got[0].size
     assert points > 100_000  # most lines cross the box
+
+
+def test_a_lines_points_are_handed_to_qt_exactly_as_point_by_point(qapp) -> None:  # type: ignore[no-untyped-def]
+    """The figures' lines and bands are made into polygons from the arrays in one step: every point must
+    be the one a QPointF of its two values gives, in order, for any length (none, one, hundreds)."""
+    from PySide6.QtCore import QPointF
+    from PySide6.QtGui import QPolygonF
+
+    rng = np.random.default_rng(20261203)
+    for n in (0, 1, 2, 7, 240, 1000):
+        x = rng.uniform(-5e3, 5e3, n)
+        y = np.concatenate([rng.normal(0, 1e-9, n // 2), rng.uniform(1e5, 1e6, n - n // 2)])
+        made = record_figures.polygon_of(x, y)
+        expected = QPolygonF([QPointF(a, b) for a, b in zip(x.tolist(), y.tolist())])
+        assert made == expected, n
+        assert [(p.x(), p.y()) for p in made] == list(zip(x.tolist(), y.tolist()))
+    # a slice taken backwards (the band's lower edge) and integer arrays are read by value
+    x = np.arange(10.0)[::-1]
+    assert [p.x() for p in record_figures.polygon_of(x, np.arange(10))] == x.tolist()
+    with pytest.raises(ValueError, match="x values against"):
+        record_figures.polygon_of(np.arange(3.0), np.arange(4.0))

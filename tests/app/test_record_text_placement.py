@@ -8,7 +8,7 @@ import random
 
 import pytest
 
-from curvewright.app.record_layout import CELL_PAD_X, FIT_SLACK, LONGEST_UNBROKEN, MM, STYLES, RecordLayout
+from curvewright.app.record_layout import CELL_PAD_X, CELL_PAD_Y, FIT_SLACK, LONGEST_UNBROKEN, MM, STYLES, RecordLayout
 from tests.app.conftest import in_memory_record
 
 WORDS = ("the", "standard", "calibration", "back-calculated", "concentration", "within", "limits", "±20", "%",
@@ -92,3 +92,26 @@ def test_a_table_that_fits_sets_every_cell_on_one_line(layout) -> None:  # type:
         assert [op.text for op in ops] == cells, cells
         checked += 1
     assert checked == 200
+
+
+def test_a_rows_cells_are_set_as_wrapping_sets_them(layout) -> None:  # type: ignore[no-untyped-def]
+    """A row sets a cell of one word that fits without wrapping it: every cell's lines and the row's
+    height must be those that wrapping each cell gives, for words, numbers, signs kept with their
+    numbers, no-break and other spaces, line breaks, empty cells and words wider than their column."""
+    rng = random.Random(20261205)
+    pieces = WORDS + ("", " ", "\u00a0", "a\u00a0b", "x\ty", "two  spaces", " lead", "trail ", "5.0\n6.0", "≤",
+                      "<0.5", "4.99–5.02", "n/a")
+    checked = 0
+    for style in ("table", "table_header"):
+        for _ in range(300):
+            cells = ["".join(rng.choice(pieces) for _ in range(rng.randint(0, 2))) for _ in range(rng.randint(1, 6))]
+            widths = [rng.choice((8 * MM, 15 * MM, 30 * MM, layout.width / 2)) for _ in cells]
+            for cell in cells:  # some cells measured beforehand, as a table measures its columns first
+                if rng.random() < 0.7:
+                    layout.m.width(style, cell)
+            height, lines = layout._row_height(cells, widths, style)
+            expected = [layout.wrap(style, c, w - 2 * CELL_PAD_X) if c else [""] for c, w in zip(cells, widths)]
+            assert lines == expected, (cells, widths)
+            assert height == max(len(e) for e in expected) * layout.m.line_height(style) + 2 * CELL_PAD_Y
+            checked += 1
+    assert checked == 600

@@ -31,6 +31,7 @@ from math import ceil, floor, frexp, log10, sqrt
 import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QBrush, QColor, QFont, QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF
+from shiboken6 import VoidPtr
 
 from ..core.level_text import percent_label
 from . import palette
@@ -272,6 +273,11 @@ def _colour(value) -> QColor:  # type: ignore[no-untyped-def]
 
 
 _DASHES = {"solid": Qt.PenStyle.SolidLine, "dash": Qt.PenStyle.DashLine, "dot": Qt.PenStyle.DotLine}
+_LEFT_MIDDLE = int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter)
+_CENTRE_TOP = int(Qt.AlignmentFlag.AlignHCenter | Qt.AlignmentFlag.AlignTop)
+_RIGHT_MIDDLE = int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+"""The drawing flags of the figures' texts (labels and legend, tick labels and titles, the y axis's tick
+labels), combined once rather than for each of the few hundred texts a record's figures draw."""
 
 
 class _Layout:
@@ -395,8 +401,7 @@ class _Layout:
             xl, yl = finite(f.page_x(layer.x_lower), f.page_y(layer.y_lower))
             if not xu.size or not xl.size:
                 return
-            polygon = QPolygonF([QPointF(x, y) for x, y in zip(np.concatenate([xu, xl[::-1]]).tolist(),
-                                                               np.concatenate([yu, yl[::-1]]).tolist())])
+            polygon = polygon_of(np.concatenate([xu, xl[::-1]]), np.concatenate([yu, yl[::-1]]))
             path = QPainterPath()
             path.addPolygon(polygon)
             box = QPainterPath()
@@ -411,7 +416,7 @@ class _Layout:
             painter.setPen(self.pen(layer.stroke))
             painter.setBrush(Qt.BrushStyle.NoBrush)
             for part_x, part_y in _parts(x, y):
-                painter.drawPolyline(QPolygonF([QPointF(a, b) for a, b in zip(part_x.tolist(), part_y.tolist())]))
+                painter.drawPolyline(polygon_of(part_x, part_y))
         elif isinstance(layer, Rule):
             painter.setPen(self.pen(layer.stroke))
             if layer.axis == "x":
@@ -452,7 +457,7 @@ class _Layout:
                     box.moveRight(x - 1.2 * self.mm)
                 if box.top() < plot.top():
                     box.moveTop(y + 1.0 * self.mm)
-                painter.drawText(box, int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter), text)
+                painter.drawText(box, _LEFT_MIDDLE, text)
 
     def _markers(self, painter: QPainter, layer: Markers, x: np.ndarray, y: np.ndarray) -> None:
         shape = marker_path(layer.shape, layer.size * self.mm)
@@ -486,21 +491,21 @@ class _Layout:
         for px, text in labels_x:
             width = self.advance("tick", text)
             painter.drawText(QRectF(px - width / 2 - 0.5 * mm, plot.bottom() + tick + 0.2 * mm, width + mm, height),
-                             int(Qt.AlignmentFlag.AlignHCenter | Qt.AlignmentFlag.AlignTop), text)
+                             _CENTRE_TOP, text)
         for py, text in labels_y:
             width = self.advance("tick", text)
             painter.drawText(QRectF(plot.left() - tick - 0.3 * mm - width - mm, py - height / 2, width + mm, height),
-                             int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter), text)
+                             _RIGHT_MIDDLE, text)
         painter.setFont(self.fonts["title"])
         title_h = self.metrics["title"].height()
         below = plot.bottom() + tick + 0.2 * mm + height + 0.4 * mm
         painter.drawText(QRectF(plot.left(), below, plot.width(), title_h),
-                         int(Qt.AlignmentFlag.AlignHCenter | Qt.AlignmentFlag.AlignTop), f.x.title)
+                         _CENTRE_TOP, f.x.title)
         painter.save()
         painter.translate(self.rect.left(), plot.center().y())
         painter.rotate(-90)
         painter.drawText(QRectF(-plot.height() / 2, 0, plot.height(), title_h),
-                         int(Qt.AlignmentFlag.AlignHCenter | Qt.AlignmentFlag.AlignTop), f.y.title)
+                         _CENTRE_TOP, f.y.title)
         painter.restore()
 
     def _legend(self, painter: QPainter) -> None:
@@ -522,7 +527,36 @@ class _Layout:
                 painter.fillRect(QRectF(x0 + 0.5 * mm, y - 1.3 * mm, 4 * mm, 2.6 * mm), _colour(glyph))
             painter.setPen(QColor("#222222"))
             painter.drawText(QRectF(x0 + 7 * mm, y - row / 2, self.legend_w - 7 * mm, row),
-                             int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter), entry.text)
+                             _LEFT_MIDDLE, entry.text)
+
+
+def polygon_of(x: np.ndarray, y: np.ndarray) -> QPolygonF:
+    """The points (x[i], y[i]) as a QPolygonF, in device units: the polygon is sized first, then its
+    points (pairs of doubles, one after the other in its memory) are written from the arrays in one
+    step, the same values as QPointF by QPointF without making a Python object per point."""
+    x, y = np.asarray(x, dtype=np.float64), np.asarray(y, dtype=np.float64)
+    if x.shape != y.shape or x.ndim != 1:
+        raise ValueError(f"a figure's line: {x.shape} x values against {y.shape} y values")
+    if not _POINTS_ARE_DOUBLES:  # a Qt built with single-precision coordinates: point by point
+        return QPolygonF([QPointF(a, b) for a, b in zip(x.tolist(), y.tolist())])
+    polygon = QPolygonF()
+    polygon.resize(len(x))
+    if len(x):
+        points = np.frombuffer(VoidPtr(polygon.data(), 16 * len(x), True), dtype=np.float64).reshape(-1, 2)
+        points[:, 0] = x
+        points[:, 1] = y
+    return polygon
+
+
+def _points_are_doubles() -> bool:
+    """True when a QPolygonF keeps its points as pairs of doubles one after the other (read from a probe of
+    four points, whose first 32 bytes lie inside the polygon whatever the size of a coordinate)."""
+    probe = QPolygonF([QPointF(1.5, -2.25), QPointF(3.0, 4.0), QPointF(0.0, 0.0), QPointF(0.0, 0.0)])
+    found = np.frombuffer(VoidPtr(probe.data(), 32, False), dtype=np.float64)
+    return found.tolist() == [1.5, -2.25, 3.0, 4.0]
+
+
+_POINTS_ARE_DOUBLES = _points_are_doubles()
 
 
 def marker_path(shape: str, size: float) -> QPainterPath:

@@ -72,6 +72,9 @@ def font(style: str) -> QFont:
 
 _FONTS: dict[str, QFont] = {}
 _GLUE = re.compile("[<>≤≥–]")
+_ONE_WORD = re.compile(r"[^\s<>≤≥–]+")
+"""A text that :meth:`RecordLayout.wrap` sets as it is on one line wherever it fits: one word, without the
+signs that :meth:`RecordLayout.bound_words` joins to their neighbours."""
 """The characters of a word that :meth:`RecordLayout.bound_words` joins to its neighbours."""
 _FLAGS = {align: int(align | Qt.AlignmentFlag.AlignVCenter)
           for align in (Qt.AlignmentFlag.AlignLeft, Qt.AlignmentFlag.AlignRight)}
@@ -79,7 +82,7 @@ _FLAGS = {align: int(align | Qt.AlignmentFlag.AlignVCenter)
 _LEFT, _RIGHT = Qt.AlignmentFlag.AlignLeft, Qt.AlignmentFlag.AlignRight
 
 
-@dataclass
+@dataclass(slots=True)
 class TextOp:
     rect: QRectF
     style: str
@@ -87,7 +90,7 @@ class TextOp:
     align: Qt.AlignmentFlag = Qt.AlignmentFlag.AlignLeft
 
 
-@dataclass
+@dataclass(slots=True)
 class LineOp:
     x1: float
     y1: float
@@ -97,7 +100,7 @@ class LineOp:
     width: float = 0.6
 
 
-@dataclass
+@dataclass(slots=True)
 class FillOp:
     rect: QRectF
     colour: str
@@ -128,15 +131,18 @@ class Metrics:
 
     def __init__(self, device) -> None:  # type: ignore[no-untyped-def]
         self.metrics = {name: QFontMetricsF(font(name), device) for name in STYLES}
-        self._widths: dict[tuple[str, str], float] = {}
+        # each style's widths measured so far, and its measuring method (a record measures the same words
+        # many times over: wrapping, column widths, row heights)
+        self._widths: dict[str, dict[str, float]] = {name: {} for name in STYLES}
+        self._measure = {name: m.horizontalAdvance for name, m in self.metrics.items()}
         self._line_heights = {name: m.lineSpacing() for name, m in self.metrics.items()}
 
     def width(self, style: str, text: str) -> float:
-        # a record measures the same words many times over (wrapping, column widths, row heights)
-        key = (style, text)
-        found = self._widths.get(key)
+        """The advance of ``text`` in ``style``, in device units, measured once."""
+        known = self._widths[style]
+        found = known.get(text)
         if found is None:
-            found = self._widths[key] = self.metrics[style].horizontalAdvance(text)
+            found = known[text] = self._measure[style](text)
         return found
 
     def line_height(self, style: str) -> float:
@@ -147,6 +153,14 @@ class Metrics:
         widest character of the font for each of its characters (a character drawn from another font
         is never twice as wide as the widest of this one)."""
         return 2 * len(text) * self.widest[style] <= width
+
+    @property
+    def average(self) -> dict[str, float]:
+        """Each style's mean width of a character (the font's own figure), for estimates only."""
+        found = self.__dict__.get("_average")
+        if found is None:
+            found = self.__dict__["_average"] = {name: m.averageCharWidth() for name, m in self.metrics.items()}
+        return found
 
     @property
     def widest(self) -> dict[str, float]:
@@ -169,6 +183,8 @@ class RecordLayout:
         self.section = ""
         self._font_style = ""  # the style whose font the painter holds ("" for none)
         self._pen = None  # what the painter's pen is: a text style's colour, or a rule's (colour, width)
+        self._fonts: dict[str, QFont] = {}
+        self._colours: dict[str, QColor] = {}
         self.new_page()
 
     # --- pages -------------------------------------------------------------------------------------
@@ -196,9 +212,18 @@ class RecordLayout:
     def wrap(self, style: str, text: str, width: float) -> list[str]:
         """Lines of ``text`` within ``width``, broken between words only (see :meth:`tokens`)."""
         lines: list[str] = []
+        known = self.m._widths[style]
         for paragraph in str(text).split("\n"):
             whole = " ".join(self.bound_words(paragraph))
-            measured = self.m.width(style, whole)
+            measured = known.get(whole)
+            if measured is None and len(whole) * self.m.average[style] > 2 * width:
+                # about two lines or more at the font's mean width of a character: set line by line from
+                # that estimate without measuring the paragraph whole (the lines are found by measuring
+                # them, so a paragraph that fits after all is still set on its one line)
+                lines += self._greedy(style, self.tokens(style, paragraph, width), width, self.m.average[style])
+                continue
+            if measured is None:
+                measured = self.m.width(style, whole)
             if measured <= width:
                 # it fits on one line (most cells and captions): so does every word and every start of
                 # it, and the line found word by word would be this one
@@ -211,10 +236,10 @@ class RecordLayout:
         """``tokens`` set line by line, each line as many tokens as fit in ``width`` (at least one).
 
         The line that fits is first estimated at ``per_character`` (the paragraph's mean width of a
-        character, space included), then checked by measuring it whole, and the line with one more
-        token, moving the end until the one fits and the other does not: lines are the same as found
-        by measuring every start of the line token by token (a longer start never measures narrower),
-        with a few measurements a line instead of one a word."""
+        character, space included, or the font's for a paragraph of several lines), then checked by
+        measuring it whole, and the line with one more token, moving the end until the one fits and the
+        other does not: lines are the same as found by measuring every start of the line token by token
+        (a longer start never measures narrower), with a few measurements a line instead of one a word."""
         widths = [len(t) * per_character for t in tokens]
         space = per_character
         lines: list[str] = []
@@ -387,8 +412,23 @@ class RecordLayout:
         return [m + (f - m) * max(spare, 0.0) / extra for m, f in zip(mins, fulls)]
 
     def _row_height(self, cells: list[str], widths: list[float], style: str) -> tuple[float, list[list[str]]]:
-        wrapped = [self.wrap(style, t, w - 2 * CELL_PAD_X) if t else [""] for t, w in zip(cells, widths)]
-        lines = max(len(w) for w in wrapped)
+        known = self.m._widths[style]
+        wrapped = []
+        lines = 1
+        for t, w in zip(cells, widths):
+            if not t:
+                wrapped.append([""])
+                continue
+            # most cells are one word or number, measured already for the column's width: a text with no
+            # space, line break or sign to keep with its neighbour is its own one line where it fits
+            found = known.get(t) if t.__class__ is str else None
+            if found is not None and found <= w - 2 * CELL_PAD_X and _ONE_WORD.fullmatch(t):
+                wrapped.append([t])
+                continue
+            cell = self.wrap(style, t, w - 2 * CELL_PAD_X)
+            wrapped.append(cell)
+            if len(cell) > lines:
+                lines = len(cell)
         return lines * self.m.line_height(style) + 2 * CELL_PAD_Y, wrapped
 
     def _table_part(self, title: str, headings: list[str], rows: list[list[str]], numeric: list[bool],
@@ -409,11 +449,14 @@ class RecordLayout:
                 self.new_page()
                 self.paragraph(f"{title} (continued)", "small")
                 self._header_row(widths, header_h, header_lines)
-            x, top, page = self.left, self.y + CELL_PAD_Y, self.pages[-1].ops
+            x, top, append = self.left, self.y + CELL_PAD_Y, self.pages[-1].ops.append
             for w, cell_lines, align in zip(widths, lines, aligns):
-                for k, line in enumerate(cell_lines):
-                    page.append(TextOp(QRectF(x + CELL_PAD_X, top + k * line_h, w - 2 * CELL_PAD_X, line_h), "table",
-                                       line, align))
+                if len(cell_lines) == 1:  # most cells
+                    append(TextOp(QRectF(x + CELL_PAD_X, top, w - 2 * CELL_PAD_X, line_h), "table", cell_lines[0], align))
+                else:
+                    for k, line in enumerate(cell_lines):
+                        append(TextOp(QRectF(x + CELL_PAD_X, top + k * line_h, w - 2 * CELL_PAD_X, line_h), "table",
+                                      line, align))
                 x += w
             self.y += h
             self.add(LineOp(self.left, self.y, self.left + sum(widths), self.y, "#cccccc", 0.5))
@@ -472,6 +515,9 @@ class RecordLayout:
         painter.setRenderHint(QPainter.RenderHint.Antialiasing)
         painter.setRenderHint(QPainter.RenderHint.SmoothPixmapTransform)
         self._font_style, self._pen = "", None
+        # the few fonts and text colours of the record, made once for its thousand or so lines
+        self._fonts = {name: font(name) for name in STYLES}
+        self._colours = {name: QColor(colour) for name, (_, _, colour) in STYLES.items()}
         total = len(self.pages)
         for number, page in enumerate(self.pages, start=1):
             if number > 1:
@@ -482,15 +528,16 @@ class RecordLayout:
         painter.end()
 
     def _draw(self, painter: QPainter, op) -> None:  # type: ignore[no-untyped-def]
-        if isinstance(op, TextOp):
+        if op.__class__ is TextOp or isinstance(op, TextOp):
             # a page sets many lines in one style in a row, and a table's rows alternate text and rules:
             # the font and pen are set only when they change
-            if op.style != self._font_style:
-                painter.setFont(font(op.style))
-                self._font_style = op.style
-            colour = STYLES[op.style][2]
+            style = op.style
+            if style != self._font_style:
+                painter.setFont(self._fonts[style])
+                self._font_style = style
+            colour = STYLES[style][2]
             if colour != self._pen:
-                painter.setPen(QColor(colour))
+                painter.setPen(self._colours[style])
                 self._pen = colour
             painter.drawText(op.rect, _FLAGS[op.align], op.text)
         elif isinstance(op, LineOp):
