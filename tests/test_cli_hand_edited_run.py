@@ -14,10 +14,8 @@ from pathlib import Path
 import openpyxl
 from pypdf import PdfReader
 
-from tests.io.helpers import ROOT
+from tests.io.helpers import HAND_EDITED_NAMED as NAMED, ROOT, hand_edited_nitrate
 
-DEMO = ROOT / "sample_runs" / "nitrate_water_linear.json"
-NAMED = "the response of standard N-L2-2 of nitrate-N"
 UNNAMED = "cannot be said"
 
 
@@ -26,22 +24,12 @@ def run_cli(*args: str) -> subprocess.CompletedProcess:
                           cwd=ROOT, timeout=300)
 
 
-def hand_edited(tmp_path: Path) -> Path:
-    """The demo run with one response typed over in a text editor (value and text alike)."""
-    text = DEMO.read_text(encoding="utf-8")
-    edited = text.replace('"value": 0.1008,', '"value": 0.1108,', 1).replace('"text": "0.1008"', '"text": "0.1108"', 1)
-    assert edited != text
-    path = tmp_path / "nitrate_edited.json"
-    path.write_text(edited, encoding="utf-8")
-    return path
-
-
 def flat(text: str) -> str:
     return re.sub(r"\s+", "", unicodedata.normalize("NFKC", text))
 
 
 def test_every_output_names_the_hand_edited_value_as_check_does(tmp_path: Path) -> None:
-    path = hand_edited(tmp_path)
+    path = hand_edited_nitrate(tmp_path)
     checked = run_cli("check", str(path))
     assert checked.returncode == 1 and NAMED in checked.stdout, checked.stdout + checked.stderr
 
@@ -74,7 +62,7 @@ def test_recording_exports_keeps_the_outside_change_in_the_trail(tmp_path: Path)
     # --record adds entries that carry the hash of the data as they are; without an entry for the
     # outside change first, check would afterwards find the data matching the trail and the hand edit
     # would be gone from the record
-    path = hand_edited(tmp_path)
+    path = hand_edited_nitrate(tmp_path)
     before = _trail(path)
     done = run_cli("quantify", str(path), "--export", str(tmp_path / "n.xlsx"), "--record", "--analyst", "R. Ostrander")
     assert done.returncode == 0, done.stdout + done.stderr
@@ -98,7 +86,7 @@ def test_recording_exports_keeps_the_outside_change_in_the_trail(tmp_path: Path)
 
 
 def test_a_hand_edited_run_is_not_signed(tmp_path: Path) -> None:
-    path = hand_edited(tmp_path)
+    path = hand_edited_nitrate(tmp_path)
     before = path.read_bytes()
     done = run_cli("sign", str(path), "--role", "reviewer", "--analyst", "R. Ostrander")
     assert done.returncode != 0

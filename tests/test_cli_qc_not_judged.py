@@ -51,6 +51,13 @@ def samples(tmp_path: Path, low_kind: str, low_nominal: float | None) -> Path:
     ])
 
 
+def quantify_qc_mid(tmp_path: Path, kind: str, nominal: str) -> subprocess.CompletedProcess:
+    """quantify on samples of 'QC mid' (of ``kind``, with ``nominal``) beside one unknown, no dilution column."""
+    smp = write_csv(tmp_path / "zn_smp.csv", [("Sample", "Type", "Nominal", "Response (counts)"),
+                                              ("QC mid", kind, nominal, 1043.0), ("Well 7", "unknown", "", 402.2)])
+    return run_cli("quantify", "--standards", str(standards(tmp_path)), "--samples", str(smp), *QUANTIFY)
+
+
 def flat(text: str) -> str:
     return re.sub(r"\s+", "", unicodedata.normalize("NFKC", text))
 
@@ -106,9 +113,7 @@ def test_uncalculated_nominal_formula_is_refused_before_any_verdict(tmp_path: Pa
 
 
 def test_only_qc_without_nominal_is_not_accepted(tmp_path: Path) -> None:
-    smp = write_csv(tmp_path / "zn_smp.csv", [("Sample", "Type", "Nominal", "Response (counts)"),
-                                              ("QC mid", "QC", "", 1043.0), ("Well 7", "unknown", "", 402.2)])
-    done = run_cli("quantify", "--standards", str(standards(tmp_path)), "--samples", str(smp), *QUANTIFY)
+    done = quantify_qc_mid(tmp_path, "QC", "")
     assert done.returncode == 1, done.stdout + done.stderr
     assert "QC FAIL: 0 of 1 QC samples within ±15 %" in done.stdout
     assert "QC sample 'QC mid' not judged" in done.stdout
@@ -127,9 +132,7 @@ def test_nominal_with_an_empty_kind_is_said_to_be_unused(tmp_path: Path) -> None
 
 
 def test_a_nominal_on_the_only_qc_like_sample_says_no_qc_was_judged(tmp_path: Path) -> None:
-    smp = write_csv(tmp_path / "zn_smp.csv", [("Sample", "Type", "Nominal", "Response (counts)"),
-                                              ("QC mid", "", "20", 1043.0), ("Well 7", "unknown", "", 402.2)])
-    done = run_cli("quantify", "--standards", str(standards(tmp_path)), "--samples", str(smp), *QUANTIFY)
+    done = quantify_qc_mid(tmp_path, "", "20")
     assert done.returncode == 0, done.stdout + done.stderr
     assert "QC note: no QC sample to judge" in done.stdout
     assert "'QC mid' (20 µg/L); each is quantified as an unknown and its nominal is not used" in done.stdout

@@ -4,26 +4,15 @@ names the change, and the trail records it at once, so that no later edit or exp
 
 from __future__ import annotations
 
-from pathlib import Path
-
 from curvewright.io.run_document import open_run
 from tests.app.conftest import ROOT, settle
+from tests.io.helpers import HAND_EDITED_NAMED as NAMED, hand_edited_nitrate
 
 NITRATE = ROOT / "sample_runs" / "nitrate_water_linear.json"
-NAMED = "the response of standard N-L2-2 of nitrate-N"
-
-
-def _hand_edited(tmp_path: Path) -> Path:
-    text = NITRATE.read_text(encoding="utf-8")
-    edited = text.replace('"value": 0.1008,', '"value": 0.1108,', 1).replace('"text": "0.1008"', '"text": "0.1108"', 1)
-    assert edited != text
-    path = tmp_path / "nitrate_edited.json"
-    path.write_text(edited, encoding="utf-8")
-    return path
 
 
 def test_opening_a_hand_edited_run_records_the_change_in_its_trail(make_window, qtbot, tmp_path, answer_dialogs) -> None:
-    path = _hand_edited(tmp_path)
+    path = hand_edited_nitrate(tmp_path)
     entries_before = len(open_run(path).run.audit)
     window = make_window(NITRATE)
     assert window.open_path(path)

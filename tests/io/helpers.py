@@ -12,6 +12,8 @@ from curvewright.io.tables import table_from_text
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMO_RUNS = sorted((ROOT / "sample_runs").glob("*.json"))
+HAND_EDITED_NAMED = "the response of standard N-L2-2 of nitrate-N"
+"""How the program names the one value :func:`hand_edited_nitrate` types over."""
 
 STANDARDS_TSV = (
     "Standard id\tLevel\tConcentration (µg/L)\tReplicate\tResponse (counts)\n"
@@ -29,6 +31,17 @@ SAMPLES_TSV = (
     "+cmd|' /C calc'!A0\tunknown\t5\t1\t\t1\t500\n"
     "@SUM(1+1)\tunknown\t6\t1\t\t1\t45000\n"
 )
+
+
+def hand_edited_nitrate(folder: Path) -> Path:
+    """The nitrate demo run with one response typed over in a text editor (0.1008 to 0.1108, value
+    and text alike), its digest and audit trail left as saved: ``folder/nitrate_edited.json``."""
+    text = (ROOT / "sample_runs" / "nitrate_water_linear.json").read_text(encoding="utf-8")
+    edited = text.replace('"value": 0.1008,', '"value": 0.1108,', 1).replace('"text": "0.1008"', '"text": "0.1108"', 1)
+    assert edited != text
+    path = folder / "nitrate_edited.json"
+    path.write_text(edited, encoding="utf-8")
+    return path
 
 
 class FixedClock:

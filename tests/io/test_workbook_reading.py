@@ -21,6 +21,7 @@ from tests.io.workbook_files import (GOOD_ROWS, MAIN, SHEET, STRINGS, parts, rez
                                      strings_xml, workbook_bytes)
 
 TWO_STRINGS = strings_xml(["Concentration", "Response"])
+DAMAGED_FORMULA = b'<f t="shared" ref="B3:B4" si="0">B2&amp;"x</f>'  # a string left open, no stored value
 
 
 def refused(tmp_path, data: bytes, message: str, name: str = "cal.xlsx") -> str:
@@ -45,6 +46,9 @@ DAMAGED = [
     (shared_string_workbook(TWO_STRINGS, GOOD_ROWS.replace(b"<v>10.5</v>", b"<v>abc</v>")), "cannot be read after row 1"),
     (shared_string_workbook(TWO_STRINGS, GOOD_ROWS.replace(b'<c r="A3">', b'<c r="A3" t="d">')), "cannot be read after row 2"),
     (shared_string_workbook(TWO_STRINGS[:-3], GOOD_ROWS), f"malformed XML in part {STRINGS} at line 1"),
+    # a never-calculated formula whose text the reader cannot parse: the same words as any damaged row
+    (shared_string_workbook(TWO_STRINGS, GOOD_ROWS.replace(b"<v>20.25</v>", DAMAGED_FORMULA)),
+     "sheet 'Standards' cannot be read after row 2 (damaged content: Reached end of formula while parsing string"),
     (workbook_bytes()[:-30], "not a valid zip archive"),
     (b"PK\x03\x04" + b"\x00" * 100, "not a valid zip archive"),
     (b"Concentration;Response\n1;2\n", "not a valid zip archive"),
@@ -60,15 +64,19 @@ def test_a_damaged_workbook_is_an_import_problem_naming_the_file(tmp_path, data,
         assert str(exc).startswith(f"{tmp_path / 'cal.xlsx'}: ")
 
 
-def test_a_damaged_workbook_on_the_command_line_exits_2_naming_it(tmp_path) -> None:
+@pytest.mark.parametrize("damaged, reason", [(b"<v>20.25</v", "malformed XML"),
+                                             (DAMAGED_FORMULA, "damaged content: Reached end of formula")],
+                         ids=["malformed-xml", "unparsable-formula"])
+def test_a_damaged_workbook_on_the_command_line_exits_2_naming_it(tmp_path, damaged: bytes, reason: str) -> None:
     standards = tmp_path / "standards.xlsx"
-    standards.write_bytes(rezip(workbook_bytes(), {SHEET: lambda x: x.replace(b"<v>20.25</v>", b"<v>20.25</v", 1)}))
+    standards.write_bytes(rezip(workbook_bytes(), {SHEET: lambda x: x.replace(b"<v>20.25</v>", damaged, 1)}))
     samples = tmp_path / "samples.csv"
     samples.write_text("Sample;Response\nU1;20,1\n", encoding="utf-8")
     result = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", "--standards", str(standards),
                              "--samples", str(samples)], capture_output=True, text=True, timeout=300, cwd=ROOT)
     assert result.returncode == 2, result.stderr
-    assert f"{standards}: sheet 'Standards' cannot be read after row 2 (malformed XML" in result.stderr
+    said = f"{standards}: sheet 'Standards' cannot be read after row 2 ("
+    assert result.stderr.count(said) == 1 and f"{said}{reason}" in result.stderr, result.stderr
     assert "Traceback" not in result.stderr
 
 

@@ -12,8 +12,11 @@ import math
 import re
 import zipfile
 import zlib
+from collections.abc import Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 from .audit import file_sha256
 from .errors import ImportProblem
@@ -221,11 +224,10 @@ def _position(data: bytes, offset: int) -> tuple[int, int]:
 
 def xlsx_sheet_names(path: str | Path) -> tuple[str, ...]:
     path = Path(path)
-    workbook = _open_workbook(path, _read_bytes(path))
-    try:
+    data = _read_bytes(path)
+    check_workbook(data, str(path))
+    with _workbook(path, data) as workbook:
         return tuple(workbook.sheetnames)
-    finally:
-        workbook.close()
 
 
 def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
@@ -241,46 +243,73 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
     file and, where it is known, the part, the sheet and the row."""
     path = Path(path)
     data = _read_bytes(path)
-    workbook = _open_workbook(path, data)
+    check_workbook(data, str(path))
     rows: list[tuple[Cell, ...]] = []
     numbers: list[int] = []
     formulas = _holds_formulas(data)
     empties: list[tuple[int, int]] = []
-    try:
+    with _workbook(path, data) as workbook:
         name = sheet or (workbook.sheetnames[0] if workbook.sheetnames else None)
         if name is None:
             raise ImportProblem(f"{path}: the workbook has no sheets.")
         if name not in workbook.sheetnames:
             raise ImportProblem(f"{path}: there is no sheet {name!r} (sheets: {', '.join(workbook.sheetnames)}).")
-        worksheet = workbook[name]
-        if not hasattr(worksheet, "reset_dimensions"):
-            raise ImportProblem(f"{path}: sheet {name!r} is a chart, not a table of cells; choose another sheet.")
-        worksheet.reset_dimensions()
         cells = 0
-        try:
-            for index, record in enumerate(worksheet.iter_rows(values_only=True), start=1):
-                cells += len(record)
-                if cells > MAX_CELLS or index > MAX_ROWS:
-                    raise ImportProblem(
-                        f"{path}: sheet {name!r} holds more than {MAX_CELLS:,} cells or {MAX_ROWS:,} rows (counting "
-                        f"the empty cells up to the last one used, at row {index:,}); a table to import is smaller. "
-                        "Copy the table to a new workbook and import that."
-                    )
-                rows.append(tuple(_cell(v) for v in record))
-                numbers.append(index)
-                if formulas:
-                    empties += [(index, column) for column, v in enumerate(record) if v is None]
-        except ImportProblem:
-            raise
-        except Exception as exc:  # noqa: BLE001 - the XLSX reader raises many types on damaged files
-            raise ImportProblem(
-                f"{path}: sheet {name!r} cannot be read after row {len(rows)} ({_damage(exc)}); open the "
-                "workbook in the spreadsheet program and save it again as .xlsx."
-            ) from None
-    finally:
-        workbook.close()
+        for index, record in enumerate(_sheet_records(path, workbook, name), start=1):
+            cells += len(record)
+            if cells > MAX_CELLS or index > MAX_ROWS:
+                raise ImportProblem(
+                    f"{path}: sheet {name!r} holds more than {MAX_CELLS:,} cells or {MAX_ROWS:,} rows (counting "
+                    f"the empty cells up to the last one used, at row {index:,}); a table to import is smaller. "
+                    "Copy the table to a new workbook and import that."
+                )
+            rows.append(tuple(_cell(v) for v in record))
+            numbers.append(index)
+            if formulas:
+                empties += [(index, column) for column, v in enumerate(record) if v is None]
     uncalculated = _formulas_among(path, data, name, empties) if empties else ()
     return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name, uncalculated)
+
+
+@contextmanager
+def _workbook(path: Path, data: bytes, *, formulas: bool = False) -> Iterator[Any]:
+    """The workbook opened read-only, closed on leaving: with the values the spreadsheet stored, or
+    with ``formulas`` the formulas' text in their place. ``data`` must have passed
+    :func:`~.xlsx_checks.check_workbook`; what the reader still finds wrong ends in
+    :class:`ImportProblem` naming the file and the damaged part."""
+    import openpyxl
+
+    try:
+        workbook = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=not formulas, keep_links=False)
+    except Exception as exc:  # noqa: BLE001 - the XLSX reader raises many types on damaged files
+        raise ImportProblem(
+            f"{path}: not a readable XLSX workbook ({_damage(exc, malformed_part(data))}); open it in the "
+            "spreadsheet program and save it again as .xlsx."
+        ) from None
+    try:
+        yield workbook
+    finally:
+        workbook.close()
+
+
+def _sheet_records(path: Path, workbook: Any, name: str) -> Iterator[tuple[object, ...]]:
+    """The rows of sheet ``name`` as the reader gives them, each up to its last cell, whatever range
+    the sheet's own dimension claims. A sheet that is a chart, and a row the reader cannot parse,
+    end in :class:`ImportProblem` (naming the sheet and the last row read)."""
+    worksheet = workbook[name]
+    if not hasattr(worksheet, "reset_dimensions"):
+        raise ImportProblem(f"{path}: sheet {name!r} is a chart, not a table of cells; choose another sheet.")
+    worksheet.reset_dimensions()
+    read = 0
+    try:  # only the reader's errors arrive here: the caller's own are raised in the caller
+        for record in worksheet.iter_rows(values_only=True):
+            read += 1
+            yield record
+    except Exception as exc:  # noqa: BLE001 - the XLSX reader raises many types on damaged files
+        raise ImportProblem(
+            f"{path}: sheet {name!r} cannot be read after row {read} ({_damage(exc)}); open the "
+            "workbook in the spreadsheet program and save it again as .xlsx."
+        ) from None
 
 
 _FORMULA_TAG = re.compile(rb"<(?:[A-Za-z_][\w.-]{0,31}:)?f[\s/>]")
@@ -299,29 +328,18 @@ def _holds_formulas(data: bytes) -> bool:
 
 def _formulas_among(path: Path, data: bytes, name: str, empties: list[tuple[int, int]]) -> tuple[tuple[int, int, str], ...]:
     """Which of the empty cells (row number, 0-based column) of sheet ``name`` hold a formula, with
-    the formula's text: the sheet read again with the formulas instead of their stored values."""
-    import openpyxl
-
+    the formula's text: the sheet read again with the formulas instead of their stored values, opened
+    and guarded as the first reading was."""
     wanted: dict[int, set[int]] = {}
     for row, column in empties:
         wanted.setdefault(row, set()).add(column)
     found: list[tuple[int, int, str]] = []
-    workbook = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
-    try:
-        worksheet = workbook[name]
-        worksheet.reset_dimensions()
-        for index, record in enumerate(worksheet.iter_rows(values_only=True), start=1):
+    with _workbook(path, data, formulas=True) as workbook:
+        for index, record in enumerate(_sheet_records(path, workbook, name), start=1):
             columns = wanted.get(index)
             if columns:
                 found += [(index, c, _formula_text(record[c])) for c in sorted(columns)
                           if c < len(record) and record[c] is not None]
-    except Exception as exc:  # noqa: BLE001 - the XLSX reader raises many types on damaged files
-        raise ImportProblem(
-            f"{path}: sheet {name!r}: its formulas cannot be read ({_damage(exc)}); open the workbook in the "
-            "spreadsheet program and save it again as .xlsx."
-        ) from None
-    finally:
-        workbook.close()
     return tuple(found)
 
 
@@ -355,20 +373,6 @@ def _read_bytes(path: Path) -> bytes:
         return path.read_bytes()
     except OSError as exc:
         raise ImportProblem(f"{path}: cannot read ({exc.strerror or exc}).") from None
-
-
-def _open_workbook(path: Path, data: bytes):  # type: ignore[no-untyped-def]
-    """The workbook in read-only mode, after :func:`~.xlsx_checks.check_workbook` has passed it."""
-    import openpyxl
-
-    check_workbook(data, str(path))
-    try:
-        return openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=True, keep_links=False)
-    except Exception as exc:  # noqa: BLE001 - the XLSX reader raises many types on damaged files
-        raise ImportProblem(
-            f"{path}: not a readable XLSX workbook ({_damage(exc, malformed_part(data))}); open it in the "
-            "spreadsheet program and save it again as .xlsx."
-        ) from None
 
 
 def _damage(exc: BaseException, part: str | None = None) -> str:
