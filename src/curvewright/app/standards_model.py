@@ -16,6 +16,7 @@ from PySide6.QtGui import QBrush, QColor, QFont
 
 from ..core.run import Analyte, Reading, Run, RunError, Standard
 from ..io import run_edits
+from ..io.number_text import full_number, number_for_editing
 from ..io.paste import PastedBlock
 from .cells import display_reading, number_from_text, reading_from_text, reading_problem
 from .session import RunSession
@@ -221,8 +222,9 @@ class StandardsModel(QAbstractTableModel):
         if col == REP:
             return str(s.replicate)
         if col == CONC:
-            return repr(s.concentration) if s.has_concentration and edit else (
-                f"{s.concentration:g}" if s.has_concentration else s.concentration_text)
+            if not s.has_concentration:
+                return s.concentration_text
+            return number_for_editing(s.concentration, self.decimal_mark) if edit else full_number(s.concentration)
         if col == RESP:
             return display_reading(s.response)
         if col == IS:
