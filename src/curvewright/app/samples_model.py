@@ -179,7 +179,7 @@ class SamplesModel(QAbstractTableModel):
             if problem:
                 return refuse(problem)
             return True, replace(s, nominal=others + ((self.analyte_name, value),))
-        parts = [p for p in text.split(";")] if t else []
+        parts = text.split(";") if t else [""]  # an empty cell: one reading with none recorded, as a file import keeps it
         readings = [reading_from_text(p, decimal_mark)[0] for p in parts]
         others = tuple(m for m in s.measurements if m.analyte != self.analyte_name)
         mine = tuple(Measurement(self.analyte_name, i + 1, r) for i, r in enumerate(readings))

@@ -245,9 +245,11 @@ def samples_table(result: RunResult) -> Table:
     rows = []
     for a in result.analytes:
         words = interval_words(result, a)
-        # the readings as entered, sample by sample (the samples with a measurement of the analyte, in
-        # the run's order, as the results are made)
-        measured = [(sample.id, m) for sample in result.run.samples if (m := sample.measurements_of(a.analyte.name))]
+        # the readings as entered, sample by sample (the run's samples listed for the analyte, in the
+        # run's order, as the results are made; a sample entered without a response has none)
+        listed = {s.sample_id for s in a.samples}
+        measured = [(sample.id, sample.measurements_of(a.analyte.name)) for sample in result.run.samples
+                    if sample.id in listed]
         if [i for i, _ in measured] == [s.sample_id for s in a.samples]:
             measured = [m for _, m in measured]
         else:
