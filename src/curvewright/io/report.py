@@ -2,9 +2,9 @@
 it out on pages.
 
 The first page is a summary a reviewer can check in two minutes: the run, its method, instrument,
-analysts and dates; the verdict and its reasons; per analyte the equation, the calibrated range, the
-weighting, and how many results are reportable and how many are exceptions; the content hash and
-what the audit trail shows; and the signatures with what each means. Then, per analyte: the curve,
+analysts, reviewer, approver and dates; the verdict and its reasons; per analyte the equation, the
+calibrated range, the weighting, and how many results are reportable and how many are exceptions;
+the content hash and what the audit trail shows; and the signatures with what each means. Then, per analyte: the curve,
 relative-error and influence views, the calibration (numbers at the digits chosen for each
 quantity), the model evidence, the standards, the calibration checks and the samples (flags as short
 words with a legend). Then the full-precision coefficients, the signatures, the audit trail in
@@ -226,7 +226,9 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
     known = run_identity(result)
     dates = dict(known)
     identity = [(item, value) for item, value in known if item not in ("Created", "Last change")]
-    identity.insert(4, ("Dates", f"created {dates['Created']}; last change {dates['Last change']}; this record {when_text}"))
+    after_people = next(i for i, (item, _) in enumerate(identity) if item == "Approver") + 1
+    identity.insert(after_people, ("Dates", f"created {dates['Created']}; last change {dates['Last change']}; "
+                                            f"this record {when_text}"))
     blocks: list[Block] = [PrintedTable("Run", ("Item", "Value"), tuple(identity), (False, False))]
     word = "ACCEPTED" if result.accepted else "NOT ACCEPTED"
     failing = [r for r in result.reasons if "FAIL" in r]

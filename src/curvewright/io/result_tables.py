@@ -482,20 +482,48 @@ BELOW_LIMIT_WORDS = {"censor": "reported as below the reporting limit (\"< limit
                      "estimate": "reported as estimated values, marked so; below the LOD as \"< LOD\""}
 
 
+NOT_ANALYSIS = frozenset({"signed", "approval_withdrawn", "report_written", "data_changed_outside",
+                          "document_migrated"})
+"""Audit actions that record without doing the analysis: signing, withdrawing an approval, writing an
+export, and what opening a file notes (a change made outside the program, an older document read).
+A person with only these entries is not one of the run's analysts."""
+
+
 def analysts_of(result: RunResult) -> tuple[str, ...]:
-    """The people named in the audit trail, in the order they first appear."""
+    """The analysts: the people in the audit trail who entered, changed or judged the data, or signed
+    as analyst, in the order they first appear (a reviewer or approver who only signed is not one)."""
     from .audit_words import who
 
     seen: list[str] = []
     for e in result.run.audit:
+        works = e.action not in NOT_ANALYSIS or (e.action == "signed" and e.details.get("role") == "analyst")
         person = who(e)
-        if person not in seen:
+        if works and person not in seen:
             seen.append(person)
     return tuple(seen)
 
 
+def signers_of(result: RunResult, role: str) -> tuple[str, ...]:
+    """The people who signed the run in ``role`` ("reviewer", "approver"), in the order they signed,
+    as the audit trail names them; an approval withdrawn later says so."""
+    from .audit_words import who, when
+
+    trail = result.run.audit
+    named: list[str] = []
+    for i, e in enumerate(trail):
+        if e.action != "signed" or e.details.get("role") != role:
+            continue
+        words = f"{who(e)}, signed {when(e)}"
+        withdrawn = next((w for w in trail[i + 1:] if w.action == "approval_withdrawn"), None)
+        if role == "approver" and withdrawn is not None:
+            words += f" (approval withdrawn {when(withdrawn)} by {who(withdrawn)})"
+        named.append(words)
+    return tuple(named)
+
+
 def run_identity(result: RunResult) -> tuple[tuple[str, str], ...]:
-    """Who, what and with what: the run, its method, instrument, analysts, dates, profile and the software."""
+    """Who, what and with what: the run, its method, instrument, analysts, reviewer and approver (each
+    person named in their role), dates, profile and the software."""
     from .audit_words import when
 
     run, method, trail = result.run, result.method, result.run.audit
@@ -505,6 +533,8 @@ def run_identity(result: RunResult) -> tuple[tuple[str, str], ...]:
          else "no validated method stored with the run"),
         ("Instrument", run.instrument or "not recorded"),
         ("Analysts", "; ".join(analysts_of(result)) or "not recorded"),
+        ("Reviewer", "; ".join(signers_of(result, "reviewer")) or "not signed"),
+        ("Approver", "; ".join(signers_of(result, "approver")) or "not signed"),
         ("Created", when(trail[0]) if trail else "not recorded"),
         ("Last change", when(trail[-1]) if trail else "not recorded"),
         ("Acceptance profile", f"{result.profile.name} (rules SHA-256 {result.profile.sha256[:16]}…)"),
