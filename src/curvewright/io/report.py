@@ -4,10 +4,10 @@ it out on pages.
 The first page is a summary a reviewer can check in two minutes: the run, its method, instrument,
 analysts, reviewer, approver and dates; the verdict and its reasons; per analyte the equation, the
 calibrated range, the weighting, and how many results are reportable and how many are exceptions;
-the content hash and what the audit trail shows; and the signatures with what each means. Then, per analyte: the curve,
-relative-error and influence views, the calibration (numbers at the digits chosen for each
-quantity), the model evidence, the standards, the calibration checks and the samples (flags as short
-words with a legend). Then the full-precision coefficients, the signatures, the audit trail in
+the content hash and what the audit trail shows; and the signatures with what each means. Then, per
+analyte: the curve, relative-error and influence views, the calibration (numbers at the digits chosen
+for each quantity), the model evidence, the standards (those not in the fit with the reason), the
+calibration checks and the samples (flags as short words with a legend). Then the full-precision coefficients, the signatures, the audit trail in
 words, the formulas' sources and the caution.
 """
 
@@ -385,9 +385,10 @@ def exclusion_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     left it out and when (the last audit entry that excluded it)."""
     name = a.analyte.name
     excluded = [s for s in a.analyte.standards if not s.included]
+    out: list[Block] = unusable_blocks(a)
     if not excluded:
-        return [Paragraph(f"No standard of {name} is excluded from the fit.", "small")]
-    out: list[Block] = [Paragraph(f"Standards of {name} excluded from the fit ({len(excluded)}):", "small")]
+        return out + [Paragraph(f"No standard of {name} is excluded from the fit.", "small")]
+    out.append(Paragraph(f"Standards of {name} excluded from the fit ({len(excluded)}):", "small"))
     unit = a.analyte.concentration_unit
     for s in excluded:
         entry = next((e for e in reversed(result.run.audit) if e.action == "standard_excluded"
@@ -397,6 +398,19 @@ def exclusion_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
         out.append(Paragraph(f"• {s.id} (level {s.level or '—'}, {s.concentration:g} {unit}".rstrip() +
                              f"): {s.exclusion_reason or '(no reason recorded)'}{by}", "small"))
     return out
+
+
+def unusable_blocks(a: AnalyteResult) -> list[Block]:
+    """Every standard not in the fit because it has no usable value (no response, a nominal that is not
+    a number or is below zero), with the reason the analysis gives: the screen and the workbook say
+    the same."""
+    if not a.unusable_standards:
+        return []
+    rows = {s.id: i + 1 for i, s in enumerate(a.analyte.standards)}
+    return [Paragraph(f"Standards of {a.analyte.name} not in the fit, without a usable value "
+                      f"({len(a.unusable_standards)}):", "small")] + [
+        Paragraph(f"• {u.standard_id} (row {rows.get(u.standard_id, '—')}): {u.reason}", "small")
+        for u in a.unusable_standards]
 
 
 def anchor_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:

@@ -420,6 +420,7 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
     from ..core.run_analysis import back_calculated_outside_fit, response_value
 
     position = {s.id: i for i, s in enumerate(a.fitted_standards)}
+    unusable = {u.standard_id: u.reason for u in a.unusable_standards}  # why, as the analysis found it
     rows = []
     for s in an.standards:
         used, why = response_value(s.response, s.internal_standard_response, an.uses_internal_standard)
@@ -437,11 +438,9 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
             ]))
             continue
         back = re_ = None
-        if cal is not None:
+        if cal is not None and not s.included:  # an excluded standard read off the curve; an unusable one has nothing to read
             back, re_ = back_calculated_outside_fit(cal, s, an.uses_internal_standard)
-        if not s.has_concentration:
-            why = f"concentration {s.concentration_text.strip()!r} is not a number"
-        reason = s.exclusion_reason if not s.included else f"not usable: {why}"
+        reason = s.exclusion_reason if not s.included else f"not usable: {unusable.get(s.id) or why}"
         rows.append(tuple(base + [back, re_, None, "excluded" if not s.included else "not usable", None, None, None, "",
                                   "no", reason]))
     return Table(f"Standards – {an.name}", columns, tuple(rows), rule)
