@@ -99,3 +99,42 @@ def test_a_decimal_comma_table_reads_back_what_its_editor_shows(make_window, ans
     assert window.session.run is run
     assert len(answer_dialogs.seen) == asked
     assert window.session.run.analytes[0].standards[2].has_concentration
+
+
+def test_the_workbook_and_the_record_show_entered_values_in_full(make_window, answer_dialogs, qtbot, tmp_path,
+                                                                 monkeypatch) -> None:
+    """The dilution factor and the nominal value an analyst entered are printed as entered in the
+    record and formatted so in the workbook: 1234567, not 1.23457e+06; 4.123456789, not 4.12346."""
+    from pathlib import Path
+
+    import openpyxl
+    import pypdfium2 as pdfium
+    from PySide6.QtWidgets import QFileDialog
+
+    monkeypatch.setattr(QFileDialog, "getSaveFileName",
+                        lambda parent, caption, suggested="", *a, **k: (str(tmp_path / Path(suggested).name), ""))
+    window = make_window(None)
+    _fill(window, qtbot)
+    window.actions_by_name["export-record"].trigger()
+    settle(qtbot, window)
+    pdf = pdfium.PdfDocument(str(next(tmp_path.glob("*.pdf"))))
+    try:
+        text = " ".join(" ".join(pdf[i].get_textpage().get_text_range() for i in range(len(pdf))).split())
+    finally:
+        pdf.close()
+    samples = text[text.index("Samples – analyte 1 Sample"):]
+    assert "R-1 unknown 1 1234567 " in samples, samples[:400]
+    assert "Calibrated range 0.5–1234567 (LLOQ–ULOQ)" in text  # the highest standard, as entered
+    window.actions_by_name["export-xlsx"].trigger()
+    settle(qtbot, window)
+    book = openpyxl.load_workbook(next(tmp_path.glob("*.xlsx")))
+    try:
+        sheet = book["Samples"]
+        header_row = next(r for r in sheet.iter_rows() if r[0].value == "Sample id")
+        at = {c.value: c.column - 1 for c in header_row}
+        rows = {r[0].value: r for r in sheet.iter_rows(min_row=header_row[0].row + 1) if r[0].value}
+        dilution, nominal = rows["R-1"][at["Dilution factor"]], rows["QC-A"][at["Nominal"]]
+        assert dilution.value == 1234567 and dilution.number_format == "0"
+        assert nominal.value == 4.123456789 and nominal.number_format == "0.000000000"
+    finally:
+        book.close()

@@ -25,6 +25,7 @@ from ..core.reporting import ReportStatus
 from ..core.run_analysis import AnalyteResult, RunResult
 from .audit_words import entry_words, when, who
 from .integrity import content_sha256
+from .number_text import full_number
 from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
                             run_identity, samples_table, standards_table)
 from .signatures import APPROVAL_CHANGED, DEFAULT_MEANINGS, check_signatures, fingerprint
@@ -242,7 +243,7 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
         if a.calibration is None:
             rows.append((a.analyte.name, a.not_fitted_words, "", "", "", "", ""))
             continue
-        rng = f"{a.reporting.lloq:g}–{a.reporting.uloq:g} {unit}".strip() if a.reporting else ""
+        rng = f"{full_number(a.reporting.lloq)}–{full_number(a.reporting.uloq)} {unit}".strip() if a.reporting else ""
         reportable, exceptions = result_counts(a)
         rows.append((a.analyte.name, a.calibration.equation(6), rng, a.calibration.weighting.value,
                      str(reportable), str(exceptions), "accepted" if a.accepted else "NOT accepted"))
@@ -322,7 +323,7 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     if a.checks is not None:
         blocks.append(printed(checks_table(a, rule), rule, f"Check windows: {result.profile.checks.source}"))
     range_words = "" if a.reporting is None else (
-        f" Calibrated range {a.reporting.lloq:g}–{a.reporting.uloq:g} (LLOQ–ULOQ); {a.reporting.note}.")
+        f" Calibrated range {full_number(a.reporting.lloq)}–{full_number(a.reporting.uloq)} (LLOQ–ULOQ); {a.reporting.note}.")
     blocks.append(Paragraph(f"Samples – {name}: concentrations in {unit or '(unit not set)'} after dilution; "
                             f"interval: {interval_words(result, a)}; reported values rounded to "
                             f"{rule.description}.{range_words} {INTERVAL_SCOPE_NOTE}", "small"))
@@ -366,7 +367,7 @@ def additions_figures(result: RunResult, a: AnalyteResult) -> list[Block]:
         r = s.result
         if r is None:
             continue
-        diluted = (f"; × dilution factor {s.dilution_factor:g}, reported {s.reported:.5g}{in_unit} "
+        diluted = (f"; × dilution factor {full_number(s.dilution_factor)}, reported {s.reported:.5g}{in_unit} "
                    f"({s.reported_lower:.5g} to {s.reported_upper:.5g})" if s.dilution_factor != 1 else "")
         out.append(FigureSlot(
             "additions", a.analyte.name,
@@ -395,7 +396,7 @@ def exclusion_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
                       and e.details.get("analyte") == name and e.details.get("standard") == s.id), None)
         by = f"; excluded by {who(entry)}, {when(entry)}" if entry is not None else \
             "; no audit entry records the exclusion"
-        out.append(Paragraph(f"• {s.id} (level {s.level or '—'}, {s.concentration:g} {unit}".rstrip() +
+        out.append(Paragraph(f"• {s.id} (level {s.level or '—'}, {full_number(s.concentration)} {unit}".rstrip() +
                              f"): {s.exclusion_reason or '(no reason recorded)'}{by}", "small"))
     return out
 
@@ -432,7 +433,7 @@ def anchor_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
                    and s.id in (result.run.audit[i].details.get("standards") or [])), -1)
         groups.setdefault(at, []).append(s)
     for at, standards in groups.items():
-        named = ", ".join(f"{s.id} ({s.concentration:g} {unit})".replace(" )", ")") for s in standards)
+        named = ", ".join(f"{s.id} ({full_number(s.concentration)} {unit})".replace(" )", ")") for s in standards)
         if at < 0:
             out.append(Paragraph(f"• {named}: no audit entry records the mark", "small"))
             continue

@@ -22,7 +22,7 @@ from ..core.models import Model
 from ..core.rounding import RoundingRule
 from ..core.run import SampleKind
 from ..core.reporting import ReportStatus
-from .number_text import clean
+from .number_text import clean, full_number
 from .audit import chain_claim, verify_chain  # noqa: F401 - chain_claim: where the record and the tables take it
 
 TYPE_CHECKING = False
@@ -39,9 +39,11 @@ class Column:
 
     ``display`` is ``"rule"`` (the run's rounding rule, for reported concentrations), ``"sig:N"``
     (N significant figures), ``"dec:N"`` (N decimals), ``"signed:N"`` (N decimals with a sign),
-    ``"plain"`` (up to six significant figures without trailing zeros: for values as a person
-    set them, such as a nominal concentration, a dilution factor or a tolerance) or ``""`` (six
-    significant figures). Two depend on the row (:meth:`Table.columns_for` settles them):
+    ``"plain"`` (up to six significant figures without trailing zeros: for settings such as a
+    tolerance), ``"full"`` (every digit the value holds, without an exponent for ordinary magnitudes
+    (:func:`~.number_text.full_number`): for values a person entered, such as a nominal concentration
+    or a dilution factor, shown as entered) or ``""`` (six significant figures). Two depend on the
+    row (:meth:`Table.columns_for` settles them):
     ``"interval"`` (an end of the interval whose two ends are the table's two ``"interval"``
     columns, shown as :func:`interval_text` prints the pair) and ``"entered:NAME"`` (a response
     shown with the decimals it was entered with, the text in column NAME of the row). Unsettled,
@@ -63,8 +65,8 @@ def shown_decimals(value: float, display: str, rule: RoundingRule | None = None)
     """How many decimals a number is shown with under ``display`` (None: in scientific notation)."""
     if display == "rule" and rule is not None:
         return _decimal_places(rule.text(value))
-    if display == "plain":
-        text = f"{value:.6g}"
+    if display in ("plain", "full"):
+        text = f"{value:.6g}" if display == "plain" else full_number(value)
         return None if "e" in text else _decimal_places(text)
     kind, _, n = display.partition(":")
     if kind in ("dec", "signed"):
@@ -93,6 +95,8 @@ def format_value(value: Value, column: Column, rule: RoundingRule | None = None)
         return rule.text(v)
     if column.display == "plain":
         return f"{v:.6g}"
+    if column.display == "full":
+        return full_number(v)
     decimals = shown_decimals(v, column.display, rule)
     kind, _, n = column.display.partition(":")
     if decimals is None:
@@ -113,8 +117,8 @@ def excel_format(value: Value, column: Column, rule: RoundingRule | None = None)
     decimals = shown_decimals(v, column.display, rule)
     if decimals is None:
         kind, _, n = column.display.partition(":")
-        if kind == "plain":
-            mantissa = f"{v:.6g}".split("e")[0]
+        if kind in ("plain", "full"):
+            mantissa = (f"{v:.6g}" if kind == "plain" else full_number(v)).split("e")[0]
             return "0." + "0" * _decimal_places(mantissa) + "E+00" if "." in mantissa else "0E+00"
         return "0." + "0" * ((int(n) if kind == "sig" else 6) - 1) + "E+00"
     body = "0" if decimals == 0 else "0." + "0" * decimals
@@ -235,11 +239,11 @@ def samples_table(result: RunResult) -> Table:
     columns = (
         Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Run order", kind="int"),
         Column("Replicates", kind="int"), Column("Replicate responses", kind="words"), Column("Mean response", kind="number", display="sig:6"),
-        Column("Estimated concentration", kind="number", display="rule"), Column("Dilution factor", kind="number", display="plain"),
+        Column("Estimated concentration", kind="number", display="rule"), Column("Dilution factor", kind="number", display="full"),
         Column("Concentration × dilution", kind="number", display="rule"), Column("Reported", kind="reported"),
         Column("Lower limit", kind="number", display="interval"), Column("Upper limit", kind="number", display="interval"),
         Column("Interval", kind="words"), Column("Unit"), Column("Status"), Column("Flags", kind="words"),
-        Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="plain"),
+        Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="full"),
         Column("Recovery (%)", kind="number", display="dec:1"), Column("QC or check"),
     )
     rows = []
@@ -309,7 +313,7 @@ def checks_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table:
     """The calibration checks of one analyte: recovery, window and verdict, with the reason (``rule``:
     the run's rounding, for the found concentrations)."""
     unit = a.analyte.concentration_unit
-    columns = (Column("Check"), Column("Kind"), Column("Run order", kind="int"), Column("Nominal", unit, "number", "plain"),
+    columns = (Column("Check"), Column("Kind"), Column("Run order", kind="int"), Column("Nominal", unit, "number", "full"),
                Column("Found", unit, "number", "rule"), Column("Recovery (%)", kind="number", display="dec:1"),
                Column("Window (±%)", kind="number", display="plain"), Column("Verdict"), Column("Reason"))
     rows = tuple(
@@ -407,7 +411,7 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
     an = a.analyte
     columns = (
         Column("Standard id"), Column("Level"), Column("Replicate", kind="int"),
-        Column("Nominal concentration", an.concentration_unit, "number", "plain"), Column("Response as entered"),
+        Column("Nominal concentration", an.concentration_unit, "number", "full"), Column("Response as entered"),
         Column("Response used", kind="number",
                display="sig:6" if an.uses_internal_standard else "entered:Response as entered"),
         Column("Back-calculated", an.concentration_unit, "number", "rule"),
@@ -573,8 +577,8 @@ def result_counts(a: AnalyteResult) -> tuple[int, int]:
 
 def analytes_table(result: RunResult) -> Table:
     """One row per analyte: the equation, the calibrated range, the weighting, counts and the verdict."""
-    columns = (Column("Analyte"), Column("Equation"), Column("Weighting"), Column("LLOQ", kind="number", display="plain"),
-               Column("ULOQ", kind="number", display="plain"), Column("Unit"), Column("Reportable", kind="int"),
+    columns = (Column("Analyte"), Column("Equation"), Column("Weighting"), Column("LLOQ", kind="number", display="full"),
+               Column("ULOQ", kind="number", display="full"), Column("Unit"), Column("Reportable", kind="int"),
                Column("Exceptions", kind="int"), Column("Verdict"), Column("Not fitted because"))
     rows = []
     for a in result.analytes:
