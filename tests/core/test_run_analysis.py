@@ -145,3 +145,24 @@ def test_a_flat_calibration_reports_every_sample_as_not_quantified_with_the_reas
     assert u1.reported is None and u1.flags is None
     assert u1.note.startswith("not quantified: calibration: the response does not change significantly")
     assert a.limits is None and "no limit can be computed" in a.limits_note
+
+
+def test_a_sample_with_no_response_at_all_is_listed_and_says_so() -> None:
+    """A sample entered without a response (a row added, or pasted with its response cell empty) is one
+    of the analyte's results, "no response recorded", as an empty cell read from a file is; a sample
+    measured for another analyte only is not among this analyte's."""
+    from dataclasses import replace
+
+    run = invented_run()
+    run = replace(run, samples=run.samples + (
+        Sample("Blank row"),
+        Sample("Empty cell", measurements=(Measurement("copper", 1, Reading(None, "")),)),
+        Sample("Zinc only", measurements=(Measurement("zinc", 1, Reading.of(3.0)),)),
+    ))
+    listed = {s.sample_id: s for s in analyse_run(run).analytes[0].samples}
+    assert "Zinc only" not in listed
+    for name in ("Blank row", "Empty cell"):
+        s = listed[name]
+        assert s.reported is None and s.estimate is None
+        assert s.reported_text == "no response recorded" and s.short_flags == "no response"
+        assert "no response recorded" in s.flag_words

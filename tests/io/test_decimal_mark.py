@@ -157,3 +157,24 @@ def test_a_thousand_in_any_script_is_as_ambiguous_as_in_ascii_digits(text: str) 
     assert parse_reading(text, ".", thousands=",").reading.value == 1000.0
     assert parse_reading(text, ",").reading.value == 1.0
     assert parse_reading(text, ",").reading.text == text  # kept as typed
+
+
+def test_a_number_written_in_full_reads_back_as_the_same_value() -> None:
+    """Every float written by full_number/number_for_editing reads back bit for bit (Python's float
+    repr is the shortest text that round-trips, IEEE 754 binary64), in either decimal mark and when
+    the mark is not known, and ordinary values carry no exponent."""
+    import random
+
+    from curvewright.io.number_text import full_number, number_for_editing, parse_number
+
+    assert full_number(1234567.0) == "1234567"
+    assert full_number(4.123456789) == "4.123456789"
+    assert full_number(0.00001) == "0.00001"
+    assert full_number(2.5e-9) == "2.5e-09"
+    assert full_number(2.5, ",") == "2,5"
+    assert number_for_editing(1.125) == "1.1250"  # "1.125" alone would read as 1125 or 1.125
+    draw = random.Random(20261203)
+    for _ in range(20000):
+        value = draw.choice((1, -1)) * 10 ** draw.uniform(-12, 18)
+        for mark in (None, ".", ","):
+            assert parse_number(number_for_editing(value, mark), mark) == (value, None)

@@ -466,6 +466,13 @@ class MainWindow(QMainWindow):
                 lines.append(f"The concentration unit of {a.name} is not set (Analysis → Analyte name and units…).")
         if result is not None and result.run is run:
             for a in result.analytes:
+                rows = {s.id: i + 1 for i, s in enumerate(a.analyte.standards)}
+                for u in a.unusable_standards:  # as the verdict counts them: a blank's does not count
+                    counts = a.analyte.standard(u.standard_id).concentration != 0
+                    lines.append(f"Standard {u.standard_id} of {a.analyte.name} (row {rows.get(u.standard_id, '—')}) "
+                                 f"is not in the fit: {u.reason}"
+                                 + ("; it counts as not passing until its value is entered or it is excluded with a "
+                                    "reason." if counts else "."))
                 columns = a.sample_columns
                 if columns is None or a.calibration is None:
                     continue

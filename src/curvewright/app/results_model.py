@@ -14,6 +14,7 @@ from PySide6.QtGui import QBrush, QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QLabel, QVBoxLayout, QWidget
 
 from ..core.level_text import percent_label
+from ..io.number_text import full_number
 from ..io.result_tables import display_number, interval_text
 from .table_view import FittedTableView, fit_columns
 
@@ -250,7 +251,7 @@ class ResultsModel(QAbstractTableModel):
         if col == ESTIMATE:
             return display_number(s.estimate)
         if col == DILUTION:
-            return f"{s.dilution_factor:g}"
+            return full_number(s.dilution_factor)
         return display_number(s.reported, 12)  # the number behind what is reported, at full precision
 
     def description(self, s: SampleResult) -> str:
@@ -261,7 +262,7 @@ class ResultsModel(QAbstractTableModel):
         if s.reported is not None:
             parts.append(f"reported {s.reported_text or self._rounded(s.reported)}; value {self._rounded(s.reported)} {unit} ({level} interval "
                          f"{interval_text(s.reported_lower, s.reported_upper, self._rule)} {unit}); estimate {display_number(s.estimate)} {unit} × dilution "
-                         f"{s.dilution_factor:g}, from the mean of {len(s.replicate_responses)} response(s) "
+                         f"{full_number(s.dilution_factor)}, from the mean of {len(s.replicate_responses)} response(s) "
                          f"{display_number(s.mean_response)}")
         if s.flag_words:
             parts.append(s.flag_words)

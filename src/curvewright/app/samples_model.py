@@ -17,6 +17,7 @@ from PySide6.QtGui import QBrush
 from ..core.run import Measurement, Run, RunError, Sample, SampleKind
 from ..io import run_edits
 from ..io.importing import KIND_CHOICES, KIND_WORDS
+from ..io.number_text import full_number, number_for_editing
 from ..io.paste import PastedBlock
 from .cells import number_from_text, reading_from_text, reading_problem
 from .session import RunSession
@@ -90,7 +91,7 @@ class SamplesModel(QAbstractTableModel):
         pending = self.pending.get((s.id, col))
         problem = pending[1] if pending else self._problem(s, col)
         if role in (Qt.ItemDataRole.DisplayRole, Qt.ItemDataRole.EditRole):
-            return pending[0] if pending else self._text(s, col)
+            return pending[0] if pending else self._text(s, col, edit=role == Qt.ItemDataRole.EditRole)
         if role == Qt.ItemDataRole.ToolTipRole and problem:
             return f"Not used: {problem}"
         if role == Qt.ItemDataRole.BackgroundRole and problem:
@@ -104,7 +105,10 @@ class SamplesModel(QAbstractTableModel):
                     if (p := reading_problem(m.response, self.decimal_mark))]
         return "; ".join(problems) or None
 
-    def _text(self, s: Sample, col: int) -> str:
+    def _text(self, s: Sample, col: int, edit: bool = False) -> str:
+        """The cell's text: a number with every digit it holds (never rounded, so that opening a cell
+        and pressing Enter changes nothing), in the table's decimal mark in the editor."""
+        number = (lambda v: number_for_editing(v, self.decimal_mark)) if edit else full_number
         if col == ID:
             return s.id
         if col == KIND:
@@ -112,10 +116,10 @@ class SamplesModel(QAbstractTableModel):
         if col == ORDER:
             return "" if s.run_order is None else str(s.run_order)
         if col == DILUTION:
-            return f"{s.dilution_factor:g}"
+            return number(s.dilution_factor)
         if col == NOMINAL:
             value = s.nominal_of(self.analyte_name)
-            return "" if value is None else f"{value:g}"
+            return "" if value is None else number(value)
         return "; ".join(m.response.text.strip() for m in s.measurements_of(self.analyte_name))
 
     # --- editing ---------------------------------------------------------------------------------
@@ -175,7 +179,7 @@ class SamplesModel(QAbstractTableModel):
             if problem:
                 return refuse(problem)
             return True, replace(s, nominal=others + ((self.analyte_name, value),))
-        parts = [p for p in text.split(";")] if t else []
+        parts = text.split(";") if t else [""]  # an empty cell: one reading with none recorded, as a file import keeps it
         readings = [reading_from_text(p, decimal_mark)[0] for p in parts]
         others = tuple(m for m in s.measurements if m.analyte != self.analyte_name)
         mine = tuple(Measurement(self.analyte_name, i + 1, r) for i, r in enumerate(readings))

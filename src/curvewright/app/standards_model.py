@@ -16,6 +16,7 @@ from PySide6.QtGui import QBrush, QColor, QFont
 
 from ..core.run import Analyte, Reading, Run, RunError, Standard
 from ..io import run_edits
+from ..io.number_text import full_number, number_for_editing
 from ..io.paste import PastedBlock
 from .cells import display_reading, number_from_text, reading_from_text, reading_problem
 from .session import RunSession
@@ -28,8 +29,9 @@ if TYPE_CHECKING:
 COLUMNS = ("Id", "Level", "Rep.", "Nominal", "Response", "IS response", "Back-calc.", "%RE", "Within limits",
            "In fit", "Influence", "Exclusion reason")
 ID, LEVEL, REP, CONC, RESP, IS, BACK, RE, LIMITS, IN_FIT, INFLUENCE, REASON = range(len(COLUMNS))
-RESULT_COLUMNS = (BACK, RE, LIMITS, INFLUENCE)
-"""The columns that show what the engine found for each standard (read-only)."""
+RESULT_COLUMNS = (BACK, RE, LIMITS, IN_FIT, INFLUENCE)
+"""The columns that show what the engine found for each standard (read-only); "In fit" says whether
+the analysis could use the standard, and if not, why."""
 _RESULT_PLACE = {c: j for j, c in enumerate(RESULT_COLUMNS)}
 """A result column's place in the texts kept per standard when a result arrives."""
 FIELD_COLUMNS = {"id": ID, "level": LEVEL, "replicate": REP, "concentration": CONC, "response": RESP, "is_response": IS}
@@ -40,6 +42,8 @@ EDITABLE = (ID, LEVEL, REP, CONC, RESP, IS)
 INVALID = QColor(255, 214, 214)
 EXCLUDED = QColor(110, 110, 110)
 FAILING = QColor(255, 236, 200)
+BELOW_ZERO = "below zero: a nominal concentration cannot be negative"
+"""Why a nominal concentration below zero is marked (the analysis leaves the standard out of the fit)."""
 ANCHOR_WORDS = "anchor point, not judged"
 """What the Within-limits cell of an anchor point says: its %RE is shown, never judged."""
 ANCHOR_TIP = ("An anchor point of the logistic curve: fitted, but not judged for acceptance and outside the "
@@ -84,6 +88,8 @@ class StandardsModel(QAbstractTableModel):
         self.result: AnalyteResult | None = None
         self._positions: dict[str, int] = {}
         """Each fitted standard's place in the result's arrays, by id."""
+        self._unusable: dict[str, str] | None = None
+        """Why each standard the analysis could not use is not in the fit, by id."""
         first = session.run.analyte(analyte)
         self._cache = RowCache(self, first.standards, _context(first))
         session.run_changed.connect(self._reload)
@@ -108,6 +114,7 @@ class StandardsModel(QAbstractTableModel):
         self.analyte_name = name
         self.result = None
         self._positions = {}
+        self._unusable = None
         if self.session.result is not None:
             self._pick(self.session.result)
         analyte = self.session.run.analyte(name)
@@ -207,6 +214,8 @@ class StandardsModel(QAbstractTableModel):
     def _problem(self, s: Standard, col: int) -> str | None:
         if col == CONC and not s.has_concentration:
             return number_from_text(s.concentration_text, self.decimal_mark)[1] if s.concentration_text.strip() else "no concentration entered"
+        if col == CONC and s.concentration < 0:
+            return BELOW_ZERO
         if col == RESP:
             return reading_problem(s.response, self.decimal_mark) or ("no response entered" if s.response.is_missing else None)
         if col == IS and self.analyte is not None and self.analyte.uses_internal_standard:
@@ -221,19 +230,31 @@ class StandardsModel(QAbstractTableModel):
         if col == REP:
             return str(s.replicate)
         if col == CONC:
-            return repr(s.concentration) if s.has_concentration and edit else (
-                f"{s.concentration:g}" if s.has_concentration else s.concentration_text)
+            if not s.has_concentration:
+                return s.concentration_text
+            return number_for_editing(s.concentration, self.decimal_mark) if edit else full_number(s.concentration)
         if col == RESP:
             return display_reading(s.response)
         if col == IS:
             return display_reading(s.internal_standard_response)
-        if col == IN_FIT:
-            return ("yes, anchor point" if s.anchor else "yes") if s.included else "excluded"
         if col == REASON:
             return s.exclusion_reason
         return self._result_text(s, col)
 
+    def _not_usable(self, s: Standard) -> str | None:
+        """Why the analysis could not use an included standard (None when it could, or before a result)."""
+        if self.result is None:
+            return None
+        if self._unusable is None:
+            self._unusable = {u.standard_id: u.reason for u in self.result.unusable_standards}
+        return self._unusable.get(s.id)
+
     def _result_text(self, s: Standard, col: int) -> str:
+        if col == IN_FIT:
+            if not s.included:
+                return "excluded"
+            why = self._not_usable(s)
+            return f"no: {why}" if why else ("yes, anchor point" if s.anchor else "yes")
         a = self.result
         if a is None or a.calibration is None:
             return ""
@@ -243,8 +264,8 @@ class StandardsModel(QAbstractTableModel):
         position = self._positions.get(s.id)
         if position is None:
             if col == LIMITS:
-                return "excluded" if not s.included else "not used"
-            if col in (BACK, RE) and self.analyte is not None:
+                return "excluded" if not s.included else "not usable"
+            if col in (BACK, RE) and self.analyte is not None and not s.included:
                 # read off the curve as the record and the workbook show it, though not in the fit
                 from ..core.run_analysis import back_calculated_outside_fit
 
@@ -303,7 +324,8 @@ class StandardsModel(QAbstractTableModel):
             value, problem = number_from_text(text, decimal_mark)
             if problem:
                 return replace(s, concentration=math.nan, concentration_text=text), f"{where}: {text!r} {problem}; kept as typed, not used"
-            return replace(s, concentration=value, concentration_text=""), None
+            below = f"{where}: {text.strip()!r} is {BELOW_ZERO}; kept, not used in the fit" if value < 0 else None
+            return replace(s, concentration=value, concentration_text=""), below
         reading, problem = reading_from_text(text, decimal_mark)
         warning = f"{where}: {text!r} {problem}; kept as typed, not used" if problem else None
         if col == RESP:
@@ -413,6 +435,7 @@ class StandardsModel(QAbstractTableModel):
 
     def _pick(self, result) -> None:  # type: ignore[no-untyped-def]
         self._positions = {}
+        self._unusable = None
         try:
             self.result = result.analyte(self.analyte_name)
         except KeyError:

@@ -396,7 +396,8 @@ class AcceptanceProfile:
             f"{'pass' if frac_ok else 'FAIL'}: {n_pass} of {n_judged} standards within limits{wording.limits}"
             + (f"; {excluded} excluded standard(s) counted as not passing" if counted_excluded else "")
             + (f"; {excluded} excluded standard(s) with recorded reasons not counted" if excluded and not counted_excluded else "")
-            + (f"; {unusable} standard(s) without a usable value counted as not passing" if unusable else "")
+            + (f"; {unusable} standard(s) without a usable value (not in the fit) counted as not passing: "
+               "enter the value, or exclude the standard with a reason" if unusable else "")
             + (f"; {n_anchors} anchor point(s) fitted but not judged" if n_anchors else "")
         )
         # a level passes when passing/standards ≥ the fraction required, compared exactly in integers
@@ -413,7 +414,10 @@ class AcceptanceProfile:
         )
         passing_levels_ok = n_levels_pass >= rules.min_levels_passing
         ok &= passing_levels_ok
-        reasons.append(f"{'pass' if passing_levels_ok else 'FAIL'}: {n_levels_pass}{wording.levels_passing}")
+        reasons.append(f"{'pass' if passing_levels_ok else 'FAIL'}: {n_levels_pass}{wording.levels_passing}"
+                       + (f"; levels are judged on the standards in the fit: the {unusable} standard(s) without "
+                          "a usable value are in no level, and are counted as not passing among the standards"
+                          if unusable else ""))
         if level_pass and not level_pass[0]:
             reasons.append(
                 f"note: the lowest level ({levels.concentration[nonzero_levels[0]]:g}) fails; the "

@@ -49,6 +49,16 @@ class ReportStatus(str, Enum):
     NOT_REPORTABLE = "not_reportable"
 
 
+NO_RESPONSE = "no response recorded"
+"""Why a sample has no number when no response was entered for it (its cell left empty)."""
+
+
+def _nothing_recorded(reason: str) -> bool:
+    """The reason a result has no number is only that no response was recorded ("no response
+    recorded", or "replicate 1: no response recorded; replicate 2: …")."""
+    return bool(reason) and all(part.split(": ", 1)[-1] == NO_RESPONSE for part in reason.split("; "))
+
+
 @frozen_value
 class ReportingRange:
     """The range and limits results are reported against, in the concentration unit of the standards
@@ -128,6 +138,8 @@ def report_value(
             (flags & (QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_ASYMPTOTE)).words if flags is not None else "no numeric result"
         )
         censored = reason.startswith("reported as censored")
+        if _nothing_recorded(reason):  # said as such in every output, not as a failure to quantify
+            return ReportedValue(ReportStatus.NOT_QUANTIFIED, NO_RESPONSE, reason, "no response", flags)
         return ReportedValue(ReportStatus.NOT_QUANTIFIED, "not quantified" if not censored else reason.split(": ", 1)[-1],
                              reason, "censored" if censored else "not quantified", flags)
     bits = QuantFlag(0)

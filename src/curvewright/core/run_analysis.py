@@ -31,8 +31,8 @@ from .fitting import fit
 from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag
 from .limits import DetectionLimits
-from .reporting import FlagBits, ReportingRange, ReportStatus, report_columns, report_value, reporting_range
-from .run import Analyte, Reading, Run, SampleKind, Standard
+from .reporting import NO_RESPONSE, FlagBits, ReportingRange, ReportStatus, report_columns, report_value, reporting_range
+from .run import Analyte, Reading, Run, Sample, SampleKind, Standard
 
 if TYPE_CHECKING:  # pragma: no cover
     from .addition_series import AdditionSeriesResult
@@ -455,7 +455,7 @@ def response_value(reading: Reading, internal_standard: Reading | None, ratio: b
     if not reading.is_number:
         if reading.text.strip():
             return None, f"response {reading.text.strip()!r} is not a number"
-        return None, "no response recorded"
+        return None, NO_RESPONSE
     if not ratio:
         return float(reading.value), ""  # type: ignore[arg-type]
     if internal_standard is None or not internal_standard.is_number:
@@ -695,10 +695,10 @@ def _quantify_samples(
     censored_of: dict[int, str] = {}
     for sample in run.samples:
         measurements = [m for m in sample.measurements if m.analyte == name]
-        if not measurements:
-            continue
+        if not measurements and not _awaits_response(sample, name):
+            continue  # measured for another analyte only, or by standard additions
         r = len(ids)
-        count, reasons_here = 0, []
+        count, reasons_here = 0, [] if measurements else [NO_RESPONSE]
         for m in measurements:
             value, reason = response_value(m.response, m.internal_standard_response, ratio)
             if value is None:
@@ -782,6 +782,16 @@ def _quantify_samples(
         statuses=reported.statuses, texts=reported.texts, words=reported.words, shorts=reported.shorts,
         suggested_dilution=reported.suggested_dilution,
     )
+
+
+def _awaits_response(sample: Sample, analyte: str) -> bool:
+    """A sample entered with no response at all (no measurement of any analyte, no addition series,
+    and no nominal value of another analyte only): it is listed among ``analyte``'s samples with "no
+    response recorded", as a sample whose response cell was read empty from a file is, and never left
+    out of the results."""
+    if sample.measurements or sample.additions:
+        return False
+    return not sample.nominal or sample.nominal_of(analyte) is not None
 
 
 def _number(value: float) -> float | None:

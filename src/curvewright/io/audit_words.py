@@ -5,6 +5,7 @@ from __future__ import annotations
 from typing import Any, Mapping
 
 from ..core.run import AuditEntry
+from .number_text import full_number
 
 
 def who(e: AuditEntry) -> str:
@@ -23,7 +24,7 @@ def _value(v: Any) -> str:
     if v is None or v == "":
         return "(empty)"
     if isinstance(v, float):
-        return f"{v:g}"
+        return full_number(v)  # every digit recorded: a change in the 7th digit is seen
     if isinstance(v, dict):
         return "; ".join(f"{k}: {_value(x)}" for k, x in v.items()) or "(none)"
     if isinstance(v, list):

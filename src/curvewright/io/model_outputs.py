@@ -10,6 +10,7 @@ from typing import TYPE_CHECKING, Any
 
 from ..core.level_text import percent_label
 from ..core.fitted_curve import FittedCurve
+from .number_text import full_number
 
 if TYPE_CHECKING:  # pragma: no cover
     from ..core.run_analysis import AnalyteResult
@@ -89,7 +90,7 @@ def additions_table(a: "AnalyteResult", level: float) -> Table:
         Column("Replicates per addition"), Column("Intercept a", kind="number", display="sig:6"),
         Column("Slope b", kind="number", display="sig:6"), Column("Residual SD", kind="number", display="sig:4"),
         Column("Concentration a/b", unit, "number", "sig:5"), Column("Standard error", unit, "number", "sig:3"),
-        Column("Dilution factor", kind="number", display="plain"),
+        Column("Dilution factor", kind="number", display="full"),
         Column("Reported concentration", unit, "number", "sig:5"),
         Column(f"Lower limit ({percent_label(level)})", unit, "number", "sig:5"), Column(f"Upper limit ({percent_label(level)})", unit, "number", "sig:5"),
         Column("Warnings"), Column("Note"),
@@ -98,7 +99,7 @@ def additions_table(a: "AnalyteResult", level: float) -> Table:
     for s in a.additions:
         r = s.result
         rows.append((
-            s.sample_id, len(s.added), " | ".join(f"{x:g}" for x in s.added),
+            s.sample_id, len(s.added), " | ".join(full_number(x) for x in s.added),
             " | ".join(f"{y:.6g}" for y in s.mean_response), " | ".join(str(m) for m in s.replicates),
             None if r is None else r.intercept, None if r is None else r.slope, None if r is None else r.residual_sd,
             None if r is None else r.concentration, None if r is None else r.standard_error, s.dilution_factor,
@@ -123,7 +124,7 @@ def additions_lines(a: "AnalyteResult", level: float) -> list[str]:
         lines.append(
             f"    {s.sample_id}: {s.reported:.5g}{in_unit} ({percent_label(level)} interval {s.reported_lower:.5g} to "
             f"{s.reported_upper:.5g}; standard error {s.reported_standard_error:.3g}); line {r.equation(6)} over "
-            f"{len(s.added)} additions" + (f"; dilution factor {s.dilution_factor:g}" if s.dilution_factor != 1 else "")
+            f"{len(s.added)} additions" + (f"; dilution factor {full_number(s.dilution_factor)}" if s.dilution_factor != 1 else "")
         )
         lines += [f"      warning: {w}" for w in r.warnings[1:]]
         if s.note:

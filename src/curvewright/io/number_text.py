@@ -19,6 +19,7 @@ import math
 import re
 import unicodedata
 from dataclasses import dataclass
+from decimal import Decimal
 
 from ..core.run import CENSORED_WORDS, Reading
 
@@ -209,6 +210,38 @@ def thousands_separator_in(text: str) -> str | None:
     if match:
         return "'" if match.group(1) in "'’" else " "
     return None
+
+
+PLAIN_FROM = 1e-6
+PLAIN_BELOW = 1e15
+"""Magnitudes written without an exponent by :func:`full_number` (zero too): every value a laboratory
+types for a concentration, a dilution factor or a response; an exponent only beyond them."""
+
+
+def full_number(value: float, decimal_mark: str | None = None) -> str:
+    """A number written with every digit it holds, so that reading the text back gives the same value
+    bit for bit: the shortest such digits (Python's ``repr``), written out without an exponent for
+    magnitudes from 1e-6 to below 1e15 ("1234567", "0.000025", "4.123456789"), with one beyond them
+    ("2.5e-09"). ``decimal_mark`` "," writes a decimal comma; any other value a point."""
+    if not math.isfinite(value):
+        return repr(value)
+    text = repr(float(value))
+    if value == 0 or PLAIN_FROM <= abs(value) < PLAIN_BELOW:
+        text = format(Decimal(text), "f")
+        if "." in text:
+            text = text.rstrip("0").rstrip(".")
+        text = "0" if text in ("-0", "") else text
+    return text.replace(".", ",") if decimal_mark == "," else text
+
+
+def number_for_editing(value: float, decimal_mark: str | None = None) -> str:
+    """The text a cell's editor opens with: :func:`full_number` in the table's decimal mark, which
+    :func:`parse_number` reads back as the same value. When the table's mark is not known, a value
+    such as "1.125" that would read two ways is written "1.1250", which reads one way."""
+    text = full_number(value, decimal_mark)
+    if decimal_mark is None and ambiguous_problem(text):
+        text += "0"
+    return text
 
 
 def _values(count: int) -> str:

@@ -2,12 +2,12 @@
 it out on pages.
 
 The first page is a summary a reviewer can check in two minutes: the run, its method, instrument,
-analysts and dates; the verdict and its reasons; per analyte the equation, the calibrated range, the
-weighting, and how many results are reportable and how many are exceptions; the content hash and
-what the audit trail shows; and the signatures with what each means. Then, per analyte: the curve,
-relative-error and influence views, the calibration (numbers at the digits chosen for each
-quantity), the model evidence, the standards, the calibration checks and the samples (flags as short
-words with a legend). Then the full-precision coefficients, the signatures, the audit trail in
+analysts, reviewer, approver and dates; the verdict and its reasons; per analyte the equation, the
+calibrated range, the weighting, and how many results are reportable and how many are exceptions;
+the content hash and what the audit trail shows; and the signatures with what each means. Then, per
+analyte: the curve, relative-error and influence views, the calibration (numbers at the digits chosen
+for each quantity), the model evidence, the standards (those not in the fit with the reason), the
+calibration checks and the samples (flags as short words with a legend). Then the full-precision coefficients, the signatures, the audit trail in
 words, the formulas' sources and the caution.
 """
 
@@ -25,6 +25,7 @@ from ..core.reporting import ReportStatus
 from ..core.run_analysis import AnalyteResult, RunResult
 from .audit_words import entry_words, when, who
 from .integrity import content_sha256
+from .number_text import full_number
 from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
                             run_identity, samples_table, standards_table)
 from .signatures import APPROVAL_CHANGED, DEFAULT_MEANINGS, check_signatures, fingerprint
@@ -73,7 +74,8 @@ SHORT_FLAG_LEGEND = (
     ("> ULOQ", "above the calibrated range: not reported as a number; the flags say the dilution for a re-assay"),
     ("estimated", "between the detection and the reporting limit, reported as estimated (where the profile allows)"),
     ("not reportable", "a number exists, but the calibration checks do not bracket the sample"),
-    ("not quantified", "no numeric result (a response that is not a number, or none)"),
+    ("not quantified", "no numeric result (a response that is not a number, or none the curve can read)"),
+    ("no response", "no response was entered for the sample: reported as “no response recorded”"),
     ("censored", "reported as entered (e.g. ND, < 0.5)"),
     ("open interval", "the calibration cannot bound the concentration on one side"),
     ("two roots", "the curve reaches the response twice within the calibrated range"),
@@ -225,7 +227,9 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
     known = run_identity(result)
     dates = dict(known)
     identity = [(item, value) for item, value in known if item not in ("Created", "Last change")]
-    identity.insert(4, ("Dates", f"created {dates['Created']}; last change {dates['Last change']}; this record {when_text}"))
+    after_people = next(i for i, (item, _) in enumerate(identity) if item == "Approver") + 1
+    identity.insert(after_people, ("Dates", f"created {dates['Created']}; last change {dates['Last change']}; "
+                                            f"this record {when_text}"))
     blocks: list[Block] = [PrintedTable("Run", ("Item", "Value"), tuple(identity), (False, False))]
     word = "ACCEPTED" if result.accepted else "NOT ACCEPTED"
     failing = [r for r in result.reasons if "FAIL" in r]
@@ -239,7 +243,7 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
         if a.calibration is None:
             rows.append((a.analyte.name, a.not_fitted_words, "", "", "", "", ""))
             continue
-        rng = f"{a.reporting.lloq:g}–{a.reporting.uloq:g} {unit}".strip() if a.reporting else ""
+        rng = f"{full_number(a.reporting.lloq)}–{full_number(a.reporting.uloq)} {unit}".strip() if a.reporting else ""
         reportable, exceptions = result_counts(a)
         rows.append((a.analyte.name, a.calibration.equation(6), rng, a.calibration.weighting.value,
                      str(reportable), str(exceptions), "accepted" if a.accepted else "NOT accepted"))
@@ -319,7 +323,7 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     if a.checks is not None:
         blocks.append(printed(checks_table(a, rule), rule, f"Check windows: {result.profile.checks.source}"))
     range_words = "" if a.reporting is None else (
-        f" Calibrated range {a.reporting.lloq:g}–{a.reporting.uloq:g} (LLOQ–ULOQ); {a.reporting.note}.")
+        f" Calibrated range {full_number(a.reporting.lloq)}–{full_number(a.reporting.uloq)} (LLOQ–ULOQ); {a.reporting.note}.")
     blocks.append(Paragraph(f"Samples – {name}: concentrations in {unit or '(unit not set)'} after dilution; "
                             f"interval: {interval_words(result, a)}; reported values rounded to "
                             f"{rule.description}.{range_words} {INTERVAL_SCOPE_NOTE}", "small"))
@@ -363,7 +367,7 @@ def additions_figures(result: RunResult, a: AnalyteResult) -> list[Block]:
         r = s.result
         if r is None:
             continue
-        diluted = (f"; × dilution factor {s.dilution_factor:g}, reported {s.reported:.5g}{in_unit} "
+        diluted = (f"; × dilution factor {full_number(s.dilution_factor)}, reported {s.reported:.5g}{in_unit} "
                    f"({s.reported_lower:.5g} to {s.reported_upper:.5g})" if s.dilution_factor != 1 else "")
         out.append(FigureSlot(
             "additions", a.analyte.name,
@@ -382,18 +386,32 @@ def exclusion_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     left it out and when (the last audit entry that excluded it)."""
     name = a.analyte.name
     excluded = [s for s in a.analyte.standards if not s.included]
+    out: list[Block] = unusable_blocks(a)
     if not excluded:
-        return [Paragraph(f"No standard of {name} is excluded from the fit.", "small")]
-    out: list[Block] = [Paragraph(f"Standards of {name} excluded from the fit ({len(excluded)}):", "small")]
+        return out + [Paragraph(f"No standard of {name} is excluded from the fit.", "small")]
+    out.append(Paragraph(f"Standards of {name} excluded from the fit ({len(excluded)}):", "small"))
     unit = a.analyte.concentration_unit
     for s in excluded:
         entry = next((e for e in reversed(result.run.audit) if e.action == "standard_excluded"
                       and e.details.get("analyte") == name and e.details.get("standard") == s.id), None)
         by = f"; excluded by {who(entry)}, {when(entry)}" if entry is not None else \
             "; no audit entry records the exclusion"
-        out.append(Paragraph(f"• {s.id} (level {s.level or '—'}, {s.concentration:g} {unit}".rstrip() +
+        out.append(Paragraph(f"• {s.id} (level {s.level or '—'}, {full_number(s.concentration)} {unit}".rstrip() +
                              f"): {s.exclusion_reason or '(no reason recorded)'}{by}", "small"))
     return out
+
+
+def unusable_blocks(a: AnalyteResult) -> list[Block]:
+    """Every standard not in the fit because it has no usable value (no response, a nominal that is not
+    a number or is below zero), with the reason the analysis gives: the screen and the workbook say
+    the same."""
+    if not a.unusable_standards:
+        return []
+    rows = {s.id: i + 1 for i, s in enumerate(a.analyte.standards)}
+    return [Paragraph(f"Standards of {a.analyte.name} not in the fit, without a usable value "
+                      f"({len(a.unusable_standards)}):", "small")] + [
+        Paragraph(f"• {u.standard_id} (row {rows.get(u.standard_id, '—')}): {u.reason}", "small")
+        for u in a.unusable_standards]
 
 
 def anchor_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
@@ -415,7 +433,7 @@ def anchor_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
                    and s.id in (result.run.audit[i].details.get("standards") or [])), -1)
         groups.setdefault(at, []).append(s)
     for at, standards in groups.items():
-        named = ", ".join(f"{s.id} ({s.concentration:g} {unit})".replace(" )", ")") for s in standards)
+        named = ", ".join(f"{s.id} ({full_number(s.concentration)} {unit})".replace(" )", ")") for s in standards)
         if at < 0:
             out.append(Paragraph(f"• {named}: no audit entry records the mark", "small"))
             continue

@@ -22,7 +22,7 @@ from ..core.models import Model
 from ..core.rounding import RoundingRule
 from ..core.run import SampleKind
 from ..core.reporting import ReportStatus
-from .number_text import clean
+from .number_text import clean, full_number
 from .audit import chain_claim, verify_chain  # noqa: F401 - chain_claim: where the record and the tables take it
 
 TYPE_CHECKING = False
@@ -39,9 +39,11 @@ class Column:
 
     ``display`` is ``"rule"`` (the run's rounding rule, for reported concentrations), ``"sig:N"``
     (N significant figures), ``"dec:N"`` (N decimals), ``"signed:N"`` (N decimals with a sign),
-    ``"plain"`` (up to six significant figures without trailing zeros: for values as a person
-    set them, such as a nominal concentration, a dilution factor or a tolerance) or ``""`` (six
-    significant figures). Two depend on the row (:meth:`Table.columns_for` settles them):
+    ``"plain"`` (up to six significant figures without trailing zeros: for settings such as a
+    tolerance), ``"full"`` (every digit the value holds, without an exponent for ordinary magnitudes
+    (:func:`~.number_text.full_number`): for values a person entered, such as a nominal concentration
+    or a dilution factor, shown as entered) or ``""`` (six significant figures). Two depend on the
+    row (:meth:`Table.columns_for` settles them):
     ``"interval"`` (an end of the interval whose two ends are the table's two ``"interval"``
     columns, shown as :func:`interval_text` prints the pair) and ``"entered:NAME"`` (a response
     shown with the decimals it was entered with, the text in column NAME of the row). Unsettled,
@@ -63,8 +65,8 @@ def shown_decimals(value: float, display: str, rule: RoundingRule | None = None)
     """How many decimals a number is shown with under ``display`` (None: in scientific notation)."""
     if display == "rule" and rule is not None:
         return _decimal_places(rule.text(value))
-    if display == "plain":
-        text = f"{value:.6g}"
+    if display in ("plain", "full"):
+        text = f"{value:.6g}" if display == "plain" else full_number(value)
         return None if "e" in text else _decimal_places(text)
     kind, _, n = display.partition(":")
     if kind in ("dec", "signed"):
@@ -93,6 +95,8 @@ def format_value(value: Value, column: Column, rule: RoundingRule | None = None)
         return rule.text(v)
     if column.display == "plain":
         return f"{v:.6g}"
+    if column.display == "full":
+        return full_number(v)
     decimals = shown_decimals(v, column.display, rule)
     kind, _, n = column.display.partition(":")
     if decimals is None:
@@ -113,8 +117,8 @@ def excel_format(value: Value, column: Column, rule: RoundingRule | None = None)
     decimals = shown_decimals(v, column.display, rule)
     if decimals is None:
         kind, _, n = column.display.partition(":")
-        if kind == "plain":
-            mantissa = f"{v:.6g}".split("e")[0]
+        if kind in ("plain", "full"):
+            mantissa = (f"{v:.6g}" if kind == "plain" else full_number(v)).split("e")[0]
             return "0." + "0" * _decimal_places(mantissa) + "E+00" if "." in mantissa else "0E+00"
         return "0." + "0" * ((int(n) if kind == "sig" else 6) - 1) + "E+00"
     body = "0" if decimals == 0 else "0." + "0" * decimals
@@ -235,19 +239,21 @@ def samples_table(result: RunResult) -> Table:
     columns = (
         Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Run order", kind="int"),
         Column("Replicates", kind="int"), Column("Replicate responses", kind="words"), Column("Mean response", kind="number", display="sig:6"),
-        Column("Estimated concentration", kind="number", display="rule"), Column("Dilution factor", kind="number", display="plain"),
+        Column("Estimated concentration", kind="number", display="rule"), Column("Dilution factor", kind="number", display="full"),
         Column("Concentration × dilution", kind="number", display="rule"), Column("Reported", kind="reported"),
         Column("Lower limit", kind="number", display="interval"), Column("Upper limit", kind="number", display="interval"),
         Column("Interval", kind="words"), Column("Unit"), Column("Status"), Column("Flags", kind="words"),
-        Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="plain"),
+        Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="full"),
         Column("Recovery (%)", kind="number", display="dec:1"), Column("QC or check"),
     )
     rows = []
     for a in result.analytes:
         words = interval_words(result, a)
-        # the readings as entered, sample by sample (the samples with a measurement of the analyte, in
-        # the run's order, as the results are made)
-        measured = [(sample.id, m) for sample in result.run.samples if (m := sample.measurements_of(a.analyte.name))]
+        # the readings as entered, sample by sample (the run's samples listed for the analyte, in the
+        # run's order, as the results are made; a sample entered without a response has none)
+        listed = {s.sample_id for s in a.samples}
+        measured = [(sample.id, sample.measurements_of(a.analyte.name)) for sample in result.run.samples
+                    if sample.id in listed]
         if [i for i, _ in measured] == [s.sample_id for s in a.samples]:
             measured = [m for _, m in measured]
         else:
@@ -307,7 +313,7 @@ def checks_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table:
     """The calibration checks of one analyte: recovery, window and verdict, with the reason (``rule``:
     the run's rounding, for the found concentrations)."""
     unit = a.analyte.concentration_unit
-    columns = (Column("Check"), Column("Kind"), Column("Run order", kind="int"), Column("Nominal", unit, "number", "plain"),
+    columns = (Column("Check"), Column("Kind"), Column("Run order", kind="int"), Column("Nominal", unit, "number", "full"),
                Column("Found", unit, "number", "rule"), Column("Recovery (%)", kind="number", display="dec:1"),
                Column("Window (±%)", kind="number", display="plain"), Column("Verdict"), Column("Reason"))
     rows = tuple(
@@ -405,7 +411,7 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
     an = a.analyte
     columns = (
         Column("Standard id"), Column("Level"), Column("Replicate", kind="int"),
-        Column("Nominal concentration", an.concentration_unit, "number", "plain"), Column("Response as entered"),
+        Column("Nominal concentration", an.concentration_unit, "number", "full"), Column("Response as entered"),
         Column("Response used", kind="number",
                display="sig:6" if an.uses_internal_standard else "entered:Response as entered"),
         Column("Back-calculated", an.concentration_unit, "number", "rule"),
@@ -418,6 +424,7 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
     from ..core.run_analysis import back_calculated_outside_fit, response_value
 
     position = {s.id: i for i, s in enumerate(a.fitted_standards)}
+    unusable = {u.standard_id: u.reason for u in a.unusable_standards}  # why, as the analysis found it
     rows = []
     for s in an.standards:
         used, why = response_value(s.response, s.internal_standard_response, an.uses_internal_standard)
@@ -435,11 +442,9 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
             ]))
             continue
         back = re_ = None
-        if cal is not None:
+        if cal is not None and not s.included:  # an excluded standard read off the curve; an unusable one has nothing to read
             back, re_ = back_calculated_outside_fit(cal, s, an.uses_internal_standard)
-        if not s.has_concentration:
-            why = f"concentration {s.concentration_text.strip()!r} is not a number"
-        reason = s.exclusion_reason if not s.included else f"not usable: {why}"
+        reason = s.exclusion_reason if not s.included else f"not usable: {unusable.get(s.id) or why}"
         rows.append(tuple(base + [back, re_, None, "excluded" if not s.included else "not usable", None, None, None, "",
                                   "no", reason]))
     return Table(f"Standards – {an.name}", columns, tuple(rows), rule)
@@ -480,20 +485,48 @@ BELOW_LIMIT_WORDS = {"censor": "reported as below the reporting limit (\"< limit
                      "estimate": "reported as estimated values, marked so; below the LOD as \"< LOD\""}
 
 
+NOT_ANALYSIS = frozenset({"signed", "approval_withdrawn", "report_written", "data_changed_outside",
+                          "document_migrated"})
+"""Audit actions that record without doing the analysis: signing, withdrawing an approval, writing an
+export, and what opening a file notes (a change made outside the program, an older document read).
+A person with only these entries is not one of the run's analysts."""
+
+
 def analysts_of(result: RunResult) -> tuple[str, ...]:
-    """The people named in the audit trail, in the order they first appear."""
+    """The analysts: the people in the audit trail who entered, changed or judged the data, or signed
+    as analyst, in the order they first appear (a reviewer or approver who only signed is not one)."""
     from .audit_words import who
 
     seen: list[str] = []
     for e in result.run.audit:
+        works = e.action not in NOT_ANALYSIS or (e.action == "signed" and e.details.get("role") == "analyst")
         person = who(e)
-        if person not in seen:
+        if works and person not in seen:
             seen.append(person)
     return tuple(seen)
 
 
+def signers_of(result: RunResult, role: str) -> tuple[str, ...]:
+    """The people who signed the run in ``role`` ("reviewer", "approver"), in the order they signed,
+    as the audit trail names them; an approval withdrawn later says so."""
+    from .audit_words import who, when
+
+    trail = result.run.audit
+    named: list[str] = []
+    for i, e in enumerate(trail):
+        if e.action != "signed" or e.details.get("role") != role:
+            continue
+        words = f"{who(e)}, signed {when(e)}"
+        withdrawn = next((w for w in trail[i + 1:] if w.action == "approval_withdrawn"), None)
+        if role == "approver" and withdrawn is not None:
+            words += f" (approval withdrawn {when(withdrawn)} by {who(withdrawn)})"
+        named.append(words)
+    return tuple(named)
+
+
 def run_identity(result: RunResult) -> tuple[tuple[str, str], ...]:
-    """Who, what and with what: the run, its method, instrument, analysts, dates, profile and the software."""
+    """Who, what and with what: the run, its method, instrument, analysts, reviewer and approver (each
+    person named in their role), dates, profile and the software."""
     from .audit_words import when
 
     run, method, trail = result.run, result.method, result.run.audit
@@ -503,6 +536,8 @@ def run_identity(result: RunResult) -> tuple[tuple[str, str], ...]:
          else "no validated method stored with the run"),
         ("Instrument", run.instrument or "not recorded"),
         ("Analysts", "; ".join(analysts_of(result)) or "not recorded"),
+        ("Reviewer", "; ".join(signers_of(result, "reviewer")) or "not signed"),
+        ("Approver", "; ".join(signers_of(result, "approver")) or "not signed"),
         ("Created", when(trail[0]) if trail else "not recorded"),
         ("Last change", when(trail[-1]) if trail else "not recorded"),
         ("Acceptance profile", f"{result.profile.name} (rules SHA-256 {result.profile.sha256[:16]}…)"),
@@ -542,8 +577,8 @@ def result_counts(a: AnalyteResult) -> tuple[int, int]:
 
 def analytes_table(result: RunResult) -> Table:
     """One row per analyte: the equation, the calibrated range, the weighting, counts and the verdict."""
-    columns = (Column("Analyte"), Column("Equation"), Column("Weighting"), Column("LLOQ", kind="number", display="plain"),
-               Column("ULOQ", kind="number", display="plain"), Column("Unit"), Column("Reportable", kind="int"),
+    columns = (Column("Analyte"), Column("Equation"), Column("Weighting"), Column("LLOQ", kind="number", display="full"),
+               Column("ULOQ", kind="number", display="full"), Column("Unit"), Column("Reportable", kind="int"),
                Column("Exceptions", kind="int"), Column("Verdict"), Column("Not fitted because"))
     rows = []
     for a in result.analytes:
