@@ -22,13 +22,14 @@ def record_problems(run: Run, chain_problems: tuple[str, ...] | None = None) -> 
     document lost, and signatures that do not hold. ``chain_problems`` is what
     :func:`.audit.verify_chain` already found for this run's trail (as :class:`.run_document.OpenedRun`
     keeps it); otherwise the trail is checked here."""
+    change = content_change(run)
+    problems = (tuple(verify_chain(run.audit) if chain_problems is None else chain_problems)
+                + ((str(change),) if change is not None else ()) + unheld_signatures(run))
+    if not run.signatures:  # nothing to check (and the checker is not loaded)
+        return problems
     from .signatures import check_signatures
 
-    change = content_change(run)
-    return (tuple(verify_chain(run.audit) if chain_problems is None else chain_problems)
-            + ((str(change),) if change is not None else ())
-            + unheld_signatures(run)
-            + tuple(f"signature does NOT hold: {c.words}" for c in check_signatures(run) if not c.holds))
+    return problems + tuple(f"signature does NOT hold: {c.words}" for c in check_signatures(run) if not c.holds)
 
 
 def record_not_intact_words(run: Run, chain_problems: tuple[str, ...] | None = None) -> str:
