@@ -18,7 +18,6 @@ from __future__ import annotations
 
 import argparse
 import json
-import os
 import sys
 from datetime import date
 from pathlib import Path
@@ -257,14 +256,15 @@ def _list(args: argparse.Namespace) -> int:
 def _show(args: argparse.Namespace) -> int:
     from .io.archive import locate
 
+    from .app.qt_runtime import window_problem
+
     location = locate(args.at)
-    if (sys.platform.startswith("linux") and not os.environ.get("QT_QPA_PLATFORM")
-            and not os.environ.get("DISPLAY") and not os.environ.get("WAYLAND_DISPLAY")):
+    problem = window_problem()
+    if problem is not None:
         at = f" --at {args.at}" if args.at else ""
-        raise _input("archive show opens a window, and there is no display here (neither DISPLAY nor "
-                     "WAYLAND_DISPLAY is set). Run it in a desktop session, or see the same history as text, JSON "
-                     f"or a workbook: curvewright trend{at} --analyte {args.analyte or 'ANALYTE'} --quantity "
-                     f"{args.quantity} [--json] [--export history.xlsx].")
+        raise _input(f"archive show opens a window, and {problem}. Run it in a desktop session, or see the same "
+                     f"history as text, JSON or a workbook: curvewright trend{at} --analyte "
+                     f"{args.analyte or 'ANALYTE'} --quantity {args.quantity} [--json] [--export history.xlsx].")
     from .app.history_view import run_history_app
 
     return run_history_app(location.remembered if not location.has_password else args.at, analyte=args.analyte,
