@@ -287,3 +287,35 @@ def test_archive_show_without_a_display_says_so_in_the_project_s_words(tmp_path,
                           f"JSON or a workbook: curvewright trend --at {folder} --analyte lead --quantity slope [--json] "
                           "[--export history.xlsx].\n")
     assert "qt.qpa" not in out.stderr and "platform plugin" not in out.stderr
+
+
+def _unanswered_display() -> str:
+    """An X display name that no server answers here (its socket does not exist)."""
+    number = next(n for n in range(97, 200) if not Path(f"/tmp/.X11-unix/X{n}").exists())
+    return f":{number}"
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="the display is named by DISPLAY/WAYLAND_DISPLAY on Linux")
+@pytest.mark.parametrize("setting", ["offscreen platform", "display nobody answers", "xcb without a display"])
+def test_archive_show_where_qt_can_open_no_window_says_so_and_does_not_abort(tmp_path, lead_files, setting) -> None:
+    folder = tmp_path / "archive"
+    run_cli("archive", "add", str(lead_files[0]), "--to", str(folder))
+    environ = {k: v for k, v in os.environ.items()
+               if k not in (ENVIRONMENT, "DISPLAY", "WAYLAND_DISPLAY", "QT_QPA_PLATFORM")}
+    display = _unanswered_display()
+    environ.update({"offscreen platform": {"QT_QPA_PLATFORM": "offscreen", "DISPLAY": display},
+                    "display nobody answers": {"DISPLAY": display},
+                    "xcb without a display": {"QT_QPA_PLATFORM": "xcb"}}[setting])
+    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "archive", "show", "--at", str(folder), "--analyte",
+                          "lead"], capture_output=True, text=True, cwd=ROOT, timeout=120, env=environ)
+    assert out.returncode == 2, (out.returncode, out.stderr)  # not Qt's abort (134)
+    why = {"offscreen platform": "QT_QPA_PLATFORM=offscreen draws no window on a screen (unset it, or set it to the "
+                                 "desktop's platform)",
+           "display nobody answers": f"Qt cannot open a window on the display named here (DISPLAY={display}): no "
+                                     "display answers there, or Qt's platform for it cannot be loaded",
+           "xcb without a display": "Qt cannot open a window on the display named here (QT_QPA_PLATFORM=xcb): no "
+                                    "display answers there, or Qt's platform for it cannot be loaded"}[setting]
+    assert out.stderr == (f"curvewright: archive show opens a window, and {why}. Run it in a desktop session, or see "
+                          f"the same history as text, JSON or a workbook: curvewright trend --at {folder} --analyte "
+                          "lead --quantity slope [--json] [--export history.xlsx].\n")
+    assert "qt.qpa" not in out.stderr and "platform plugin" not in out.stderr

@@ -65,7 +65,9 @@ def test_recording_exports_keeps_the_outside_change_in_the_trail(tmp_path: Path)
     path = hand_edited_nitrate(tmp_path)
     before = _trail(path)
     done = run_cli("quantify", str(path), "--export", str(tmp_path / "n.xlsx"), "--record", "--analyst", "R. Ostrander")
-    assert done.returncode == 0, done.stdout + done.stderr
+    # the run as read was not intact: exit code 1, as check's on it (the verdict line says so)
+    assert done.returncode == 1, done.stdout + done.stderr
+    assert "but the run's record is NOT intact" in done.stdout
     after = _trail(path)
     added = after[len(before):]
     assert [e["action"] for e in added][:2] == ["data_changed_outside", "export_written"], added

@@ -88,3 +88,14 @@ def test_help_loads_neither_argparse_nor_the_numerics(args: tuple[str, ...]) -> 
                                   ["quantify"], []])
 def test_other_command_lines_go_to_the_parser(args: list[str]) -> None:
     assert cli_help.help_text(args) is None
+
+
+def test_the_readme_and_the_help_give_exit_code_1_the_same_causes() -> None:
+    readme = " ".join((ROOT / "README.md").read_text(encoding="utf-8").split())
+    said = readme[readme.index("Exit codes: 0 accepted"):].split(", 2 input error")[0]
+    for key in (("quantify",), ()):
+        helped = " ".join(PARSER_TEXTS[key].split())
+        one = helped[helped.index(" 1 completed"):helped.index(" 2 input error")]
+        assert "acceptance profile" in one and "acceptance profile" in said
+        assert "the run's record is not intact" in one and "the run's record is not intact" in said
+        assert "check" in one and "curvewright check" in said

@@ -1,8 +1,10 @@
 """The ``curvewright`` command: a thin layer over the core and io packages.
 
 Exit codes (also in ``curvewright --help``):
-  0  completed; every run accepted (for ``check``: valid and the audit trail verifies)
-  1  completed, but a run failed its acceptance profile (``check``: the audit trail does not verify)
+  0  completed; every run accepted and its record intact (for ``check``: valid, the record intact)
+  1  completed, but a run failed its acceptance profile or the run's record is not intact (its data
+     changed outside Curvewright, its audit trail altered, a signature lost or not holding; ``check``
+     reports the same problems and exits 1)
   2  input error: a file or an option could not be used (the message names the row and field);
      with ``--standards``/``--samples`` also when a sample reading could not be read: the other
      samples are still quantified and reported, the unreadable cells are listed on stderr, and
@@ -71,8 +73,10 @@ tables (--standards, --samples):
   An empty sample response, or one that is not a number, is reported for that sample only.
 
 exit codes:
-  0  completed; every run accepted (check: valid, audit trail verified)
-  1  completed, but a run failed its acceptance profile (check: audit trail not verified)
+  0  completed; every run accepted and its record intact (check: valid, the record intact)
+  1  completed, but a run failed its acceptance profile or the run's record is not intact
+     (its data changed outside Curvewright, its audit trail altered, a signature lost or not
+     holding: the problems check reports, and check exits 1)
   2  input error (the message names the file, row and field); with tables also when sample
      readings could not be read: the rest is still quantified and reported, the cells are listed,
      and --allow-unreadable accepts them
@@ -613,12 +617,15 @@ def _options(args: argparse.Namespace) -> dict[str, Any]:
 def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
     """One run document, start to finish; never raises (the outcome carries the exit code)."""
     from .core.errors import CurvewrightError
+    from .io.record_check import record_problems
     from .io.run_document import open_run
 
     try:
         opened = open_run(path)
-        notes = [f"warning: {p}" for p in opened.integrity_problems]
-        return _quantify(opened.run, options, source=path, notes=notes, chain=(opened.run, opened.chain_problems))
+        problems = record_problems(opened.run, opened.chain_problems)
+        notes = [f"warning: {p}" for p in problems]
+        return _quantify(opened.run, options, source=path, notes=notes, chain=(opened.run, opened.chain_problems),
+                         record=problems)
     except (CurvewrightError, OSError, InputError) as exc:
         return Outcome(EXIT_INPUT, "", None, f"{path}: {exc}")
     except Exception as exc:  # noqa: BLE001 - reported as an internal error with its trace
@@ -938,10 +945,13 @@ def _quantify(  # type: ignore[no-untyped-def]
     run, options: dict[str, Any], *, source: Path | None, notes: list[str],
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
     unusable: Sequence[tuple[str, str | None, Any]] = (), chain: tuple[Any, tuple[str, ...]] | None = None,
+    record: tuple[str, ...] = (),
 ) -> Outcome:
     """Analyse, export and report one run. ``choices`` says how each analyte's model was chosen
     (default: from the run document, or the command line when --model/--weighting override it);
-    ``chain`` is a run and what checking its audit trail found (:func:`result_json`)."""
+    ``chain`` is a run and what checking its audit trail found (:func:`result_json`); ``record`` the
+    problems with the record of the run as read (:func:`.io.record_check.record_problems`): the exit
+    code is then 1, whatever the acceptance rules say."""
     from .core.run_analysis import analyse_run
     from .io.atomic import ensure_not_input
     from .io.run_document import append_to_run_document
@@ -984,12 +994,13 @@ def _quantify(  # type: ignore[no-untyped-def]
     if options["record"] and source is not None and written:
         append_to_run_document(source, [(action, {"path": path, "sha256": sha}) for action, path, sha in written],
                                user=options.get("person"))
-    code = EXIT_ACCEPTED if result.accepted else EXIT_REJECTED
+    code = EXIT_ACCEPTED if result.accepted and not record else EXIT_REJECTED
     if options["json"]:
         data = result_json(result, source, written, choices=chosen, analyte_warnings=per_analyte, notes=notes,
-                           unusable=unusable, chain=chain)
+                           unusable=unusable, chain=chain, record=record)
         return Outcome(code, "", data)
-    return Outcome(code, summary_text(result, source, notes, written, choices=chosen, analyte_warnings=per_analyte), None)
+    return Outcome(code, summary_text(result, source, notes, written, choices=chosen, analyte_warnings=per_analyte,
+                                      record=record), None)
 
 
 _MANY_SAMPLES = 4096
@@ -1033,13 +1044,15 @@ def _export(result, target: Path, options: dict[str, Any]) -> str:  # type: igno
 def summary_text(  # type: ignore[no-untyped-def]
     result, source: Path | None, notes: list[str], written: list[tuple[str, str, str]], *,
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
+    record: Sequence[str] = (),
 ) -> str:
-    """The results as text. A missing unit is said once per analyte and never printed empty."""
+    """The results as text. A missing unit is said once per analyte and never printed empty. ``record``:
+    the problems with the run's record, which the verdict line names beside the acceptance rules'."""
     from .io.model_outputs import additions_lines, response_factor_lines
 
     run = result.run
     lines = [f"Run: {run.name}" + (f"  ({source})" if source else ""),
-             f"Profile: {result.profile.name}; verdict: {'ACCEPTED' if result.accepted else 'NOT ACCEPTED'}"]
+             f"Profile: {result.profile.name}; verdict: {verdict_words(result.accepted, record)}"]
     if result.profile.caveat:
         lines.append(f"About the profile: {result.profile.caveat}")
     lines.append(f"Profile rules by content: SHA-256 {result.profile.sha256[:16]}…")
@@ -1116,6 +1129,16 @@ def summary_text(  # type: ignore[no-untyped-def]
     return "\n".join(lines)
 
 
+def verdict_words(accepted: bool, record: Sequence[str]) -> str:
+    """The run's verdict in words: the acceptance rules' and, when the run's record is not intact
+    (``record``: its problems), that too, so that neither is read without the other."""
+    if not record:
+        return "ACCEPTED" if accepted else "NOT ACCEPTED"
+    rules = "the acceptance rules are met" if accepted else "NOT ACCEPTED by the acceptance rules"
+    return (f"{rules}, but the run's record is NOT intact ({len(record)} problem{'s' if len(record) > 1 else ''} "
+            "in the warnings above; curvewright check names them): exit code 1")
+
+
 def _samples_lines(samples, rule, level: float) -> list[str]:  # type: ignore[no-untyped-def]
     """The samples as aligned text: what is reported, the number behind it, its interval, the flags."""
     from .io.result_tables import interval_text
@@ -1136,13 +1159,17 @@ def result_json(  # type: ignore[no-untyped-def]
     result, source: Path | None, written: list[tuple[str, str, str]], *,
     choices: Mapping[str, ModelChoice] | None = None, analyte_warnings: Mapping[str, list[str]] | None = None,
     notes: Sequence[str] = (), unusable: Sequence[tuple[str, str | None, Any]] = (), chain: tuple[Any, tuple[str, ...]] | None = None,
+    record: Sequence[str] | None = None,
 ) -> dict[str, Any]:
     """The results for scripts. Per analyte, ``model_chosen_by`` ("recommended", "command line",
     "run document" or "not chosen") and ``choice_reasons`` say how the model was chosen, and
     ``warnings`` what is missing (a unit, a name); ``unusable_readings`` lists the sample cells of
     a table kept as typed. ``chain`` is a run and what :func:`.io.audit.verify_chain` found for its
     trail when it was read: used when the results are of that very run (not of one changed since,
-    which gained audit entries), else the trail is checked here."""
+    which gained audit entries), else the trail is checked here. ``record_intact`` and
+    ``record_problems`` say whether the record of the run as read is intact (what ``curvewright check``
+    reports; ``record``, else checked here): ``accepted`` is the acceptance rules' verdict alone, and
+    the exit code is 1 when either fails."""
     import numpy as np
 
     from .io.audit import chain_claim, verify_chain
@@ -1152,6 +1179,12 @@ def result_json(  # type: ignore[no-untyped-def]
 
     run = result.run
     chain_problems = chain[1] if chain is not None and chain[0] is run else verify_chain(run.audit)
+    if record is None:
+        from .io.record_check import record_problems
+
+        problems: Sequence[str] = record_problems(run, chain_problems)
+    else:
+        problems = record
     out: dict[str, Any] = {
         "run": run.name, "source": str(source) if source else None, "software_version": __version__,
         "accepted": result.accepted, "reasons": list(result.reasons), "profile": result.profile.name, "profile_caveat": result.profile.caveat or None,
@@ -1161,6 +1194,7 @@ def result_json(  # type: ignore[no-untyped-def]
         "confidence_level": run.settings.confidence_level, "interval": run.settings.interval,
         "audit_chain_verified": not chain_problems, "data_match_audit_trail": content_change(run) is None,
         "chain_check": chain_claim(run, chain_problems)[1],
+        "record_intact": not problems, "record_problems": list(problems),
         "signatures": [{"role": c.signature.role, "name": c.signature.name, "id": c.signature.person_id,
                         "time_utc": c.signature.time_utc, "meaning": c.signature.meaning,
                         "keyed": bool(c.signature.signature), "holds": c.holds, "check": c.words}

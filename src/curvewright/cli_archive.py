@@ -18,7 +18,6 @@ from __future__ import annotations
 
 import argparse
 import json
-import os
 import sys
 from datetime import date
 from pathlib import Path
@@ -142,15 +141,6 @@ def _expand(patterns: list[str]) -> list[Path]:
         raise CommandError(str(exc)) from None
 
 
-def _record_problems(opened) -> tuple[str, ...]:  # type: ignore[no-untyped-def]
-    """What ``curvewright check`` reports against a run's record (exit code 1 there): the audit trail's
-    and the data's integrity problems, and signatures that do not hold."""
-    from .io.signatures import check_signatures
-
-    return tuple(opened.integrity_problems) + tuple(f"signature does NOT hold: {c.words}"
-                                                    for c in check_signatures(opened.run) if not c.holds)
-
-
 def cmd_archive(args: argparse.Namespace) -> int:
     if args.archive_command is None:
         raise _input("give an action: curvewright archive add|list|show (see curvewright archive --help).")
@@ -160,7 +150,7 @@ def cmd_archive(args: argparse.Namespace) -> int:
 def _add(args: argparse.Namespace) -> int:
     from .cli import EXIT_ACCEPTED, EXIT_INPUT, EXIT_REJECTED
     from .core.run_analysis import analyse_run
-    from .io.archive import TrendVerdict, judge_run, open_archive
+    from .io.archive import RecordNotIntact, TrendVerdict, judge_run, open_archive
     from .io.run_document import open_run
 
     baseline = _baseline(args)
@@ -173,19 +163,19 @@ def _add(args: argparse.Namespace) -> int:
         for path in paths:
             try:
                 opened = open_run(path)
-                problems = _record_problems(opened)
-                if problems and not args.despite_problems:
-                    what = ("its audit trail does not verify" if opened.chain_problems else
-                            "its record is not as Curvewright left it")
-                    print(f"curvewright: {path}: not filed: {what}:\n" + "".join(f"  - {p}\n" for p in problems)
-                          + "  the archive keeps only runs whose record is intact (curvewright check shows the "
-                          "same problems); to file it all the same, marked and kept out of the control limits, "
-                          "give --despite-problems.", file=sys.stderr)
-                    code = max(code, EXIT_REJECTED)
-                    report.append({"file": str(path), "error": f"not filed: {what}", "problems": list(problems)})
-                    continue
                 result = analyse_run(opened.run)
-                receipt = archive.file(opened.run, source=str(path), result=result, record_problems=problems)
+                receipt = archive.file(opened.run, source=str(path), result=result,
+                                       despite_problems=args.despite_problems, chain_problems=opened.chain_problems)
+            except RecordNotIntact as refused:
+                print(f"curvewright: {path}: not filed: {refused.what}:\n"
+                      + "".join(f"  - {p}\n" for p in refused.problems)
+                      + "  the archive keeps only runs whose record is intact (curvewright check shows the "
+                      "same problems); to file it all the same, marked and kept out of the control limits, "
+                      "give --despite-problems.", file=sys.stderr)
+                code = max(code, EXIT_REJECTED)
+                report.append({"file": str(path), "error": f"not filed: {refused.what}",
+                               "problems": list(refused.problems)})
+                continue
             except (CurvewrightError, OSError) as exc:
                 code = max(code, EXIT_INPUT)
                 text = str(exc) if str(exc).startswith("not filed") else f"not filed: {exc}"
@@ -266,14 +256,15 @@ def _list(args: argparse.Namespace) -> int:
 def _show(args: argparse.Namespace) -> int:
     from .io.archive import locate
 
+    from .app.qt_runtime import window_problem
+
     location = locate(args.at)
-    if (sys.platform.startswith("linux") and not os.environ.get("QT_QPA_PLATFORM")
-            and not os.environ.get("DISPLAY") and not os.environ.get("WAYLAND_DISPLAY")):
+    problem = window_problem()
+    if problem is not None:
         at = f" --at {args.at}" if args.at else ""
-        raise _input("archive show opens a window, and there is no display here (neither DISPLAY nor "
-                     "WAYLAND_DISPLAY is set). Run it in a desktop session, or see the same history as text, JSON "
-                     f"or a workbook: curvewright trend{at} --analyte {args.analyte or 'ANALYTE'} --quantity "
-                     f"{args.quantity} [--json] [--export history.xlsx].")
+        raise _input(f"archive show opens a window, and {problem}. Run it in a desktop session, or see the same "
+                     f"history as text, JSON or a workbook: curvewright trend{at} --analyte "
+                     f"{args.analyte or 'ANALYTE'} --quantity {args.quantity} [--json] [--export history.xlsx].")
     from .app.history_view import run_history_app
 
     return run_history_app(location.remembered if not location.has_password else args.at, analyte=args.analyte,

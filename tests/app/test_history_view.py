@@ -11,6 +11,7 @@ import numpy as np
 import pyqtgraph as pg
 import pytest
 from PySide6.QtCore import Qt
+from PySide6.QtWidgets import QMessageBox
 
 from curvewright import CAUTION
 from curvewright.app.history_view import SETTINGS_KEY, HistoryWindow
@@ -271,3 +272,53 @@ def test_file_this_run_refuses_another_version_of_a_filed_run(make_window, setti
                             "'Lead in water, run 020'") and "not filed" not in shown
     with open_archive(str(archive_folder)) as archive:
         assert archive.count() == 20
+
+
+def test_file_this_run_refuses_a_hand_edited_run_as_archive_add_does_and_files_it_marked_only_when_asked(
+        make_window, settings, archive_folder, tmp_path, qtbot, answer_dialogs, capsys) -> None:
+    from curvewright import cli
+    from curvewright.io.audit import Identity
+    from curvewright.io.signatures import sign
+
+    # run 021, approved, then changed in a text editor: the approval no longer covers the data
+    approved = tmp_path / "lead_run_021_approved.json"
+    save_run(sign(lead_run(21, slope=10.1), "approver", Identity("Sam Approver", "QA-0007", "sam")), approved)
+    text = approved.read_text(encoding="utf-8")
+    found = re.search(r'"response": \{\n +"value": ([0-9.]+),\n +"text": "([0-9.]+)"', text)
+    assert found is not None and found.group(1) == found.group(2)
+    edited = found.group(0).replace(found.group(1), f"{float(found.group(1)) + 5:.3f}")
+    approved.write_text(text[:found.start()] + edited + text[found.end():], encoding="utf-8")
+    assert cli.main(["check", str(approved)]) == 1
+    held_not = [line.strip() for line in capsys.readouterr().out.splitlines()
+                if line.strip().startswith("signature does NOT hold")]
+    assert held_not
+
+    settings.setValue(SETTINGS_KEY, str(archive_folder))
+    window = make_window(approved)
+    answer_dialogs.seen.clear()  # opening says the file is not as Curvewright left it
+    window.actions_by_name["history"].trigger()
+    view = window.history_window
+    answer_dialogs["question"] = QMessageBox.StandardButton.No  # do not file it
+    qtbot.mouseClick(view.file_button, Qt.MouseButton.LeftButton)
+    assert len(answer_dialogs.seen) == 1, answer_dialogs.seen
+    title, asked = answer_dialogs.seen[0]
+    assert title == "Record not intact: not filed"
+    assert asked.startswith("Lead in water, run 021 is not filed: its record is not as Curvewright left it:")
+    assert all(f"• {line}" in asked for line in held_not)  # the problems check names
+    assert "File it all the same, marked “record NOT intact” and kept out of the control limits?" in asked
+    assert plain(view.verdict).startswith("Not filed: its record is not as Curvewright left it: signature does NOT hold")
+    with open_archive(str(archive_folder)) as archive:
+        assert archive.count() == 20
+    assert view.file_button.text() == "File &this run into the archive"
+
+    answer_dialogs["question"] = QMessageBox.StandardButton.Yes  # file it all the same, marked
+    qtbot.mouseClick(view.file_button, Qt.MouseButton.LeftButton)
+    assert len(answer_dialogs.seen) == 2
+    with open_archive(str(archive_folder)) as archive:
+        assert archive.count() == 21
+        last = archive.entries()[-1]
+        assert last.name == "Lead in water, run 021" and last.record_problems == "; ".join(held_not)
+        h = history(archive, "lead", "slope")
+    assert h.points[-1].record_problems and h.trend.limits.n == 20  # charted, never in the control limits
+    assert "Filed as entry 21 (SHA-256 " in plain(view.verdict)
+    assert "Marked: its record is NOT intact (signature does NOT hold" in plain(view.verdict)

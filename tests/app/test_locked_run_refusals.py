@@ -141,3 +141,158 @@ def test_including_again_a_standard_of_a_locked_run_is_refused_before_a_reason_i
     assert found and found["what"] == f"include standard {excluded} of {analyte} again", answer_dialogs.seen
     assert window.session.run is locked and not locked.analyte(analyte).standard(excluded).included
     settle(qtbot, window)
+
+
+@pytest.fixture
+def forms_opened(monkeypatch):
+    """Every form, file chooser and preview that would ask the analyst something, recorded instead of
+    shown (each answered "Cancel"): a refusal must come before any of them."""
+    from PySide6.QtWidgets import QDialog, QFileDialog
+
+    from curvewright.app import dialogs, paste_dialog
+
+    opened: list[str] = []
+
+    def record(name: str):  # type: ignore[no-untyped-def]
+        def exec_(self) -> int:
+            opened.append(f"{name}: {self.windowTitle()}")
+            return QDialog.DialogCode.Rejected
+        return exec_
+
+    for cls in (dialogs.SettingsDialog, dialogs.AnalyteDialog, dialogs.RunDetailsDialog, dialogs.ImportDialog,
+                dialogs.SignDialog, dialogs.ReasonDialog, paste_dialog.PasteDialog):
+        monkeypatch.setattr(cls, "exec", record(cls.__name__))
+    monkeypatch.setattr(QFileDialog, "getOpenFileName", lambda *a, **k: (opened.append("file chooser"), ("", ""))[1])
+    return opened
+
+
+def _one_refusal(answer_dialogs, forms_opened, what: str) -> str:
+    """The one message shown: the refusal of ``what``; nothing was asked before it."""
+    assert forms_opened == [], forms_opened
+    assert len(answer_dialogs.seen) == 1, answer_dialogs.seen
+    text = answer_dialogs.seen[0][1]
+    found = REFUSAL.match(text.split("\n\n")[0])
+    assert found, text
+    assert found["what"] == what
+    return text
+
+
+@pytest.mark.parametrize("action, what", [
+    ("settings", "change the run settings"),
+    ("rename-run", "change the run's name, instrument or description"),
+    ("edit-analyte", "change the name or units of {analyte}"),
+    ("add-analyte", "add an analyte"),
+    ("import-standards", "import standards"),
+    ("import-samples", "import samples"),
+    ("add-standard", "add a standard to {analyte}"),
+    ("add-sample", "add a sample"),
+    ("sign-approver", "approve the run again"),
+])
+def test_a_locked_run_refuses_each_change_from_the_menus_before_asking_anything(
+        approved_window, qtbot, answer_dialogs, forms_opened, action, what) -> None:
+    window = approved_window
+    run = window.session.run
+    window.actions_by_name[action].trigger()
+    text = _one_refusal(answer_dialogs, forms_opened, what.format(analyte=window.current_analyte()))
+    assert window.session.run is run
+    assert text.split("\n\n")[0] in window.statusBar().currentMessage()
+    settle(qtbot, window)
+
+
+def test_the_run_settings_of_a_locked_run_are_refused_and_the_analysts_own_settings_stay_reachable(
+        approved_window, qtbot, answer_dialogs, forms_opened, monkeypatch) -> None:
+    from PySide6.QtWidgets import QDialog
+
+    from curvewright.app import dialogs
+
+    window = approved_window
+    run = window.session.run
+    assert window.actions_by_name["settings"].shortcut().toString() == "Ctrl+,"
+    window.actions_by_name["settings"].trigger()
+    text = _one_refusal(answer_dialogs, forms_opened, "change the run settings")
+    assert text.endswith("\n\nYour name, ID and decimal mark: Analysis → Your name and decimal mark…")
+
+    shown: list[list[str]] = []
+
+    def type_a_name(self) -> int:  # the analyst's own form: no run setting, no reason asked
+        from PySide6.QtWidgets import QFormLayout
+
+        form = self.layout()
+        labels = [form.itemAt(r, QFormLayout.ItemRole.LabelRole) for r in range(form.rowCount())]
+        shown.append([label.widget().text() for label in labels if label is not None])
+        self.person_name.setText("Kim Reviewer")  # an invented person
+        return QDialog.DialogCode.Accepted
+
+    monkeypatch.setattr(dialogs.SettingsDialog, "exec", type_a_name)
+    window.actions_by_name["preferences"].trigger()
+    assert shown == [["Decimal mark of typed and &pasted values", "Your &full name", "Your laboratory &ID"]]
+    assert window.session.identity.name == "Kim Reviewer" and window.settings.value("identity/name") == "Kim Reviewer"
+    assert window.session.run is run and window.session.run.settings == run.settings
+    settle(qtbot, window)
+
+
+def test_the_name_and_units_button_of_a_locked_run_refuses_before_its_form(
+        approved_window, qtbot, answer_dialogs, forms_opened) -> None:
+    window = approved_window
+    run = window.session.run
+    qtbot.mouseClick(window.analyte_button, Qt.MouseButton.LeftButton)
+    _one_refusal(answer_dialogs, forms_opened, f"change the name or units of {window.current_analyte()}")
+    assert window.session.run is run
+    settle(qtbot, window)
+
+
+def test_choosing_another_model_for_a_locked_run_is_refused_before_its_reason_is_asked(
+        approved_window, qtbot, answer_dialogs, forms_opened) -> None:
+    window = approved_window
+    run = window.session.run
+    window.bottom_tabs.setCurrentWidget(window.evidence_panel)
+    table = window.evidence_panel.table
+    qtbot.waitUntil(lambda: table.rowCount() > 1, timeout=10000)
+    recommended = window.evidence_panel.comparison.recommended
+    row = next(r for r in range(table.rowCount())
+               if table.item(r, 0).data(Qt.ItemDataRole.UserRole) != (recommended.model.value, recommended.weighting.value))
+    table.selectRow(row)
+    qtbot.mouseClick(window.evidence_panel.use_button, Qt.MouseButton.LeftButton)
+    _one_refusal(answer_dialogs, forms_opened, f"choose the model for {window.current_analyte()}")
+    assert window.session.run is run
+    settle(qtbot, window)
+
+
+@pytest.mark.parametrize("tab", [0, 1])
+def test_pasting_into_a_locked_run_is_refused_before_the_preview(
+        approved_window, qtbot, answer_dialogs, forms_opened, tab) -> None:
+    from PySide6.QtGui import QGuiApplication
+
+    from tests.app.conftest import type_keys
+
+    window = approved_window
+    run = window.session.run
+    window.left_tabs.setCurrentIndex(tab)
+    view = (window.standards_view, window.samples_view)[tab]
+    _click(qtbot, view, view.model().index(0, 0))
+    block = ("Conc\tResponse\n0.5\t0.051\n1.0\t0.102\n" if tab == 0 else "Sample\tResponse\nLake 9\t0.31\nLake 10\t0.29\n")
+    QGuiApplication.clipboard().setText(block)
+    type_keys(qtbot, view, Qt.Key.Key_V, Qt.KeyboardModifier.ControlModifier)  # the paste shortcut
+    _one_refusal(answer_dialogs, forms_opened, f"paste into the {('standards', 'samples')[tab]} table")
+    assert answer_dialogs.paste_dialogs == []
+    assert window.session.run is run
+    settle(qtbot, window)
+
+
+def test_marking_anchor_points_and_removing_a_sample_of_a_locked_run_ask_nothing_first(
+        approved_window, qtbot, answer_dialogs, forms_opened) -> None:
+    window = approved_window
+    run = window.session.run
+    window.left_tabs.setCurrentIndex(0)
+    _click(qtbot, window.standards_view, window.standards_model.index(1, sm.ID))
+    window.actions_by_name["anchor"].trigger()
+    _one_refusal(answer_dialogs, forms_opened, f"mark anchor points of {window.current_analyte()}")
+
+    answer_dialogs.seen.clear()
+    window.left_tabs.setCurrentIndex(1)
+    sample = window.samples_model.samples[0]
+    _click(qtbot, window.samples_view, window.samples_model.index(0, 0))
+    window.actions_by_name["remove-row"].trigger()
+    _one_refusal(answer_dialogs, forms_opened, f"remove sample {sample.id}")
+    assert window.session.run is run
+    settle(qtbot, window)

@@ -216,6 +216,9 @@ def test_every_menu_item_does_what_it_says(demo, make_window, qtbot, slot_errors
     assert window.evidence_panel.table.selectionModel().selectedRows()[0].row() == 0
     do("settings")
     assert window.session.run.settings.confidence_level == 0.99
+    audited = len(window.session.run.audit)
+    do("preferences")  # the analyst's own name and decimal mark: kept in the app's settings, not the run
+    assert len(window.session.run.audit) == audited and window.session.identity.name == "Robin Example"
     do("rename-run")
     assert window.session.run.name == typed_dialogs["run name"]
     assert window.session.run.instrument == "UV-Vis spectrophotometer, asset DEMO-7 (invented)"

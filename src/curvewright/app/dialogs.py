@@ -344,12 +344,14 @@ def _choices(labels: tuple[tuple[str, str], ...], current: str) -> QComboBox:
 
 
 class SettingsDialog(QDialog):
-    """The run's confidence level, acceptance profile and rounding rule."""
+    """The run's confidence level, acceptance profile and rounding rule, with the analyst's own name,
+    laboratory ID and decimal mark; ``personal_only``: these last alone (kept in the app's settings, not
+    in the run, so that a locked run does not refuse them)."""
 
     def __init__(self, run: Run, parent: QWidget | None = None, decimal_mark: str = "system",
-                 identity: Identity | None = None) -> None:
+                 identity: Identity | None = None, *, personal_only: bool = False) -> None:
         super().__init__(parent)
-        self.setWindowTitle("Run settings")
+        self.setWindowTitle("Your name and decimal mark" if personal_only else "Run settings")
         self.person_name = QLineEdit(identity.name if identity else "")
         self.person_name.setPlaceholderText("as it should appear in the audit trail and the record")
         self.person_id = QLineEdit(identity.id if identity else "")
@@ -381,17 +383,19 @@ class SettingsDialog(QDialog):
         self.reason = QLineEdit()
         self.reason.setPlaceholderText("why the settings change (recorded in the audit trail)")
         form = QFormLayout(self)
-        form.addRow("&Confidence level", self.level)
-        form.addRow("&Interval", self.interval)
-        form.addRow("&LOD/LOQ method", self.limits)
-        form.addRow("Acceptance &profile", self.profile)
-        form.addRow("&Rounding of reported values", self.rounding_kind)
-        form.addRow("&Digits (figures or places)", self.rounding_digits)
-        form.addRow("&Tie-break", self.rounding_tie)
+        if not personal_only:
+            form.addRow("&Confidence level", self.level)
+            form.addRow("&Interval", self.interval)
+            form.addRow("&LOD/LOQ method", self.limits)
+            form.addRow("Acceptance &profile", self.profile)
+            form.addRow("&Rounding of reported values", self.rounding_kind)
+            form.addRow("&Digits (figures or places)", self.rounding_digits)
+            form.addRow("&Tie-break", self.rounding_tie)
         form.addRow("Decimal mark of typed and &pasted values", self.decimal)
         form.addRow("Your &full name", self.person_name)
         form.addRow("Your laboratory &ID", self.person_id)
-        form.addRow("R&eason", self.reason)
+        if not personal_only:
+            form.addRow("R&eason", self.reason)
         buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Ok | QDialogButtonBox.StandardButton.Cancel)
         buttons.accepted.connect(self.accept)
         buttons.rejected.connect(self.reject)

@@ -19,15 +19,16 @@ import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QSettings, Qt
 from PySide6.QtGui import QFont, QFontMetrics
-from PySide6.QtWidgets import (QComboBox, QFileDialog, QHBoxLayout, QHeaderView, QInputDialog, QLabel, QPushButton,
-                               QSpinBox, QTableWidget, QTableWidgetItem, QVBoxLayout, QWidget)
+from PySide6.QtWidgets import (QComboBox, QFileDialog, QHBoxLayout, QHeaderView, QInputDialog, QLabel, QMessageBox,
+                               QPushButton, QSpinBox, QTableWidget, QTableWidgetItem, QVBoxLayout, QWidget)
 
 from .. import CAUTION
 from ..core.errors import CurvewrightError
 from ..core.run_analysis import RunResult
 from ..core.tracked import quantity_words
 from ..core.trends import DEFAULT_BASELINE_RUNS, RULES, Baseline
-from ..io.archive import ENVIRONMENT, ArchiveError, History, Today, history, locate, open_archive
+from ..io.archive import (ENVIRONMENT, ArchiveError, History, RecordNotIntact, Today, history, locate,
+                          open_archive)
 from . import figures, palette
 
 SETTINGS_KEY = "archive/location"
@@ -264,24 +265,49 @@ class HistoryWindow(QWidget):
             self.quantity_box.setCurrentIndex(index)
 
     def file_today(self) -> None:
-        """File the run open in the main window into the archive (made when it does not exist yet)."""
+        """File the run open in the main window into the archive (made when it does not exist yet). A run
+        whose record is not intact (what ``curvewright check`` reports) is refused as ``curvewright archive
+        add`` refuses it, naming the problems; the analyst may then file it all the same, marked "record
+        NOT intact" and kept out of the control limits (``--despite-problems``), or not file it."""
         if self.today_result is None:
             return
         if not self.location_text:
             self._problem(f"Choose the archive first (a folder or a PostgreSQL URL, or set {ENVIRONMENT}).")
             return
-        try:
-            with open_archive(self.location_text, create=True) as archive:
-                receipt = archive.file(self.today_result.run, result=self.today_result)
-        except CurvewrightError as exc:
-            said = str(exc)
-            self._problem(said[:1].upper() + said[1:] if said.startswith("not filed: ") else f"Not filed: {said}")
-            return
+        run, despite = self.today_result.run, False
+        while True:
+            try:
+                with open_archive(self.location_text, create=True) as archive:
+                    receipt = archive.file(run, result=self.today_result, despite_problems=despite)
+                break
+            except RecordNotIntact as refused:
+                if despite or not self._file_despite(refused):
+                    self.verdict.setText(f"<b>Not filed: {_escape(refused.what)}:</b> "
+                                         + _escape("; ".join(refused.problems)) + ".")
+                    return
+                despite = True
+            except CurvewrightError as exc:
+                said = str(exc)
+                self._problem(said[:1].upper() + said[1:] if said.startswith("not filed: ") else f"Not filed: {said}")
+                return
         entry = receipt.run
         self.reload()
         self.file_button.setText("Filed" if receipt.new else "Already filed")
-        self.verdict.setText(f"{'Filed' if receipt.new else 'Already filed'} as entry {entry.entry} "
-                             f"(SHA-256 {entry.key[:16]}…). " + self.verdict.text())
+        marked = (f" Marked: its record is NOT intact ({entry.record_problems}); filed on request, it never sets "
+                  "control limits." if entry.record_problems else "")
+        self.verdict.setText(_escape(f"{'Filed' if receipt.new else 'Already filed'} as entry {entry.entry} "
+                                     f"(SHA-256 {entry.key[:16]}…).{marked} ") + self.verdict.text())
+
+    def _file_despite(self, refused: RecordNotIntact) -> bool:
+        """Ask whether a run whose record is not intact is filed all the same, marked; True only when the
+        analyst says so (the default is not to file it)."""
+        answer = QMessageBox.question(
+            self, "Record not intact: not filed",
+            f"{refused.run_name} is not filed: {refused.what}:\n\n" + "\n".join(f"• {p}" for p in refused.problems)
+            + "\n\nThe archive keeps only runs whose record is intact (curvewright check names the same problems). "
+            "File it all the same, marked “record NOT intact” and kept out of the control limits?",
+            QMessageBox.StandardButton.Yes | QMessageBox.StandardButton.No, QMessageBox.StandardButton.No)
+        return answer == QMessageBox.StandardButton.Yes
 
     # --- drawing -----------------------------------------------------------------------------------
     def _clear_chart(self) -> None:

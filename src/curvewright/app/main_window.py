@@ -47,6 +47,8 @@ if TYPE_CHECKING:
     from ..core.run_analysis import RunResult
 
 MAX_RECENT = 8
+PREFERENCES_MENU = "Analysis → Your name and decimal mark…"
+"""Where the analyst's own name, laboratory ID and decimal mark are set (a locked run's too)."""
 def blank_run(settings: QSettings | None = None) -> Run:
     from ..core.rounding import RoundingRule
     from ..core.run import RunSettings
@@ -267,6 +269,7 @@ class MainWindow(QMainWindow):
         analysis = self.menuBar().addMenu("&Analysis")
         action(analysis, "choose-model", "&Choose model…", self.choose_model_dialog, "Ctrl+M")
         action(analysis, "settings", "Run &settings…", self.edit_settings, "Ctrl+,")
+        action(analysis, "preferences", "Your &name and decimal mark…", self.edit_preferences)
         action(analysis, "rename-run", "Run name and &instrument…", self.rename_run)
         action(analysis, "edit-analyte", "Analyte name and &units…", self.edit_analyte)
         action(analysis, "add-analyte", "Add &analyte…", self.add_analyte)
@@ -460,7 +463,7 @@ class MainWindow(QMainWindow):
                              "(Review → Withdraw approval… to change it).")
         if not self.session.identity.name:
             lines.append("Your full name is not set, so the audit trail records only your login "
-                         "(Analysis → Run settings…).")
+                         f"({PREFERENCES_MENU}).")
         for a in run.analytes:
             if a.standards and not a.concentration_unit.strip():
                 lines.append(f"The concentration unit of {a.name} is not set (Analysis → Analyte name and units…).")
@@ -701,7 +704,10 @@ class MainWindow(QMainWindow):
         self.recent_menu.setEnabled(bool(self._recent()))
 
     def import_table(self, what: str, *, path: str | None = None) -> bool:
-        """File → Import standards/samples: a table file read with a preview of every value."""
+        """File → Import standards/samples: a table file read with a preview of every value (a locked run
+        refuses before a file is asked for)."""
+        if self.refused_when_locked(f"Import {what}", f"import {what}"):
+            return False
         if path is None:
             path, _ = QFileDialog.getOpenFileName(self, f"Import {what}", "", "Tables (*.csv *.txt *.tsv *.xlsx)")
             if not path:
@@ -854,11 +860,15 @@ class MainWindow(QMainWindow):
 
     def add_standard(self) -> None:
         self.left_tabs.setCurrentIndex(0)
+        if self.refused_when_locked("Add standard", f"add a standard to {self.current_analyte()}"):
+            return
         self.standards_model.add_row()
         self.standards_view.setCurrentIndex(self.standards_model.index(self.standards_model.rowCount() - 1, 0))
 
     def add_sample(self) -> None:
         self.left_tabs.setCurrentIndex(1)
+        if self.refused_when_locked("Add sample", "add a sample"):
+            return
         self.samples_model.add_row()
         self.samples_view.setCurrentIndex(self.samples_model.index(self.samples_model.rowCount() - 1, 0))
 
@@ -955,6 +965,8 @@ class MainWindow(QMainWindow):
 
     def choose_model(self, model: str, weighting: str, recommended) -> bool:  # type: ignore[no-untyped-def]
         analyte = self.current_analyte()
+        if self.refused_when_locked("Choose the model", f"choose the model for {analyte}"):
+            return False
         method = self.session.result.method if self.session.result is not None else None
         fixed = method.analyte(analyte) if method is not None else None
         if fixed is not None:
@@ -990,30 +1002,49 @@ class MainWindow(QMainWindow):
         self.show_message("Select a candidate and press 'Use the selected model'.")
 
     def edit_settings(self) -> None:
+        """Analysis → Run settings: the run's confidence level, interval, limits, profile and rounding, with
+        the analyst's name and decimal mark. A locked run's settings are refused before anything is asked
+        (the analyst's own name and decimal mark stay at Analysis → Your name and decimal mark…)."""
+        if self.refused_when_locked("Run settings", run_edits.refused_change("settings_changed", {}),
+                                    also=f"Your name, ID and decimal mark: {PREFERENCES_MENU}"):
+            return
         dialog = SettingsDialog(self.session.run, self, str(self.settings.value("input/decimal_mark", "system")),
                                 identity=self.session.identity)
         if dialog.exec() != SettingsDialog.DialogCode.Accepted:
             return
-        name, person_id = dialog.identity()
-        self.settings.setValue("identity/name", name)
-        self.settings.setValue("identity/id", person_id)
-        self.session.identity = settings_identity(self.settings)
-        self._show_verdict(self.session.result)
+        self._keep_preferences(dialog)
         try:
             new_run = run_edits.change_settings(self.session.run, dialog.settings(self.session.run), dialog.reason.text(),
                                                 user=self.session.identity)
         except CurvewrightError as exc:
             QMessageBox.warning(self, "Settings", str(exc))
             return
-        self.settings.setValue("input/decimal_mark", dialog.decimal_setting())
-        for model in (self.standards_model, self.samples_model):
-            model.decimal_mark = self.decimal_mark()
         self.session.apply(new_run, "Change run settings")
         self.settings.setValue("defaults/confidence_level", new_run.settings.confidence_level)
         self.settings.setValue("defaults/profile", new_run.settings.acceptance_profile)
         self.settings.setValue("defaults/rounding_kind", new_run.settings.rounding.kind)
         self.settings.setValue("defaults/rounding_digits", new_run.settings.rounding.digits)
         self.settings.setValue("defaults/rounding_tie", new_run.settings.rounding.tie)
+
+    def edit_preferences(self) -> None:
+        """Analysis → Your name and decimal mark: the analyst's own settings (kept in the app's settings,
+        not in the run), which a locked run does not refuse."""
+        dialog = SettingsDialog(self.session.run, self, str(self.settings.value("input/decimal_mark", "system")),
+                                identity=self.session.identity, personal_only=True)
+        if dialog.exec() != SettingsDialog.DialogCode.Accepted:
+            return
+        self._keep_preferences(dialog)
+
+    def _keep_preferences(self, dialog: SettingsDialog) -> None:
+        """Keep the name, laboratory ID and decimal mark typed in ``dialog`` in the app's settings."""
+        name, person_id = dialog.identity()
+        self.settings.setValue("identity/name", name)
+        self.settings.setValue("identity/id", person_id)
+        self.session.identity = settings_identity(self.settings)
+        self.settings.setValue("input/decimal_mark", dialog.decimal_setting())
+        for model in (self.standards_model, self.samples_model):
+            model.decimal_mark = self.decimal_mark()
+        self._show_verdict(self.session.result)
 
     def open_history(self) -> None:
         """Analysis → Calibration history: the archive's control charts, with this run marked."""
@@ -1025,6 +1056,8 @@ class MainWindow(QMainWindow):
         """Analysis → Run name and instrument: the run's name, instrument and description."""
         from .dialogs import RunDetailsDialog
 
+        if self.refused_when_locked("Run name and instrument", "change the run's name, instrument or description"):
+            return
         dialog = RunDetailsDialog(self.session.run, self)
         if dialog.exec() != RunDetailsDialog.DialogCode.Accepted:
             return
@@ -1038,6 +1071,8 @@ class MainWindow(QMainWindow):
     def edit_analyte(self) -> None:
         """Analysis → Analyte name and units: rename the current analyte or set its units."""
         name = self.current_analyte()
+        if self.refused_when_locked("Analyte name and units", f"change the name or units of {name}"):
+            return
         dialog = AnalyteDialog(self.session.run.analyte(name), self)
         if dialog.exec() != AnalyteDialog.DialogCode.Accepted:
             return
@@ -1053,6 +1088,8 @@ class MainWindow(QMainWindow):
 
     def add_analyte(self) -> None:
         """Analysis → Add analyte: a new analyte with its name and units."""
+        if self.refused_when_locked("Add analyte", "add an analyte"):
+            return
         dialog = AnalyteDialog(None, self)
         if dialog.exec() != AnalyteDialog.DialogCode.Accepted:
             return
@@ -1095,10 +1132,12 @@ class MainWindow(QMainWindow):
         from ..io.signatures import sign
         from .dialogs import SignDialog
 
+        if role == "approver" and self.refused_when_locked("Approve the run", "approve the run again"):
+            return False
         person = self.session.identity
         if not person.name:
-            QMessageBox.warning(self, "Sign the run", "A signature needs your full name: set it under Analysis → Run "
-                                "settings… (“Your full name”), then sign.")
+            QMessageBox.warning(self, "Sign the run", f"A signature needs your full name: set it under "
+                                f"{PREFERENCES_MENU} (“Your full name”), then sign.")
             return False
         dialog = SignDialog(role, person.words, str(self.settings.value("signing/key_file", "") or ""), self)
         if dialog.exec() != SignDialog.DialogCode.Accepted:
@@ -1138,14 +1177,15 @@ class MainWindow(QMainWindow):
         self.show_message("Approval withdrawn; the run can be edited again.")
         return True
 
-    def refused_when_locked(self, title: str, what: str) -> bool:
+    def refused_when_locked(self, title: str, what: str, *, also: str = "") -> bool:
         """True, having said so, when the run is approved and locked: ``what`` (a change, as the analyst
-        asked for it) is refused before any reason is asked."""
+        asked for it) is refused before anything is asked (a reason, a file, a preview, a form); ``also``
+        is said after the refusal (where something related can still be done)."""
         try:
             run_edits.refuse_if_locked(self.session.run, what)
         except run_edits.RunLocked as exc:
-            QMessageBox.information(self, title, str(exc))
-            self.show_message(str(exc))
+            QMessageBox.information(self, title, str(exc) + (f"\n\n{also}" if also else ""))
+            self.show_message(str(exc) + (f" {also}" if also else ""))
             return True
         return False
 
@@ -1183,6 +1223,8 @@ class MainWindow(QMainWindow):
         if not one_cell.strip():
             self.show_message("The clipboard holds no text to paste.")
             return 0
+        if self.refused_when_locked("Paste", f"paste into the {model.target} table"):
+            return 0  # before the block is read and previewed
         if current.isValid() and not any(ch in one_cell for ch in "\t\r\n"):
             return 1 if model.setData(current, one_cell) else 0
         fields = {column: field for field, column in model.field_columns().items()}

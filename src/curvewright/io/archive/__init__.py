@@ -13,8 +13,8 @@ from __future__ import annotations
 from .errors import ArchiveError
 from .history import History, Today, TrendVerdict, history, judge_run
 from .location import ARCHIVE_FILE, ENVIRONMENT, ArchiveLocation, locate
-from .store import Archive, ArchivedRun, FilingReceipt, content_hash, open_archive
+from .store import Archive, ArchivedRun, FilingReceipt, RecordNotIntact, content_hash, open_archive
 
 __all__ = ["ARCHIVE_FILE", "ENVIRONMENT", "Archive", "ArchiveError", "ArchiveLocation", "ArchivedRun",
-           "FilingReceipt", "History", "Today", "TrendVerdict", "content_hash", "history", "judge_run", "locate",
+           "FilingReceipt", "History", "RecordNotIntact", "Today", "TrendVerdict", "content_hash", "history", "judge_run", "locate",
            "open_archive"]

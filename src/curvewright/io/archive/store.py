@@ -71,6 +71,18 @@ class SameRunFiled(ArchiveError):
     """Another version of the run (other content, the same creation) is already filed."""
 
 
+class RecordNotIntact(ArchiveError):
+    """The run's record is not intact (what ``curvewright check`` reports: :mod:`..record_check`), and it
+    was not asked to be filed all the same. ``what`` says briefly what is wrong, ``problems`` names each
+    problem."""
+
+    def __init__(self, run_name: str, what: str, problems: tuple[str, ...]) -> None:
+        super().__init__(f"not filed: {what}: " + "; ".join(problems) + ". The archive keeps only runs whose record "
+                         "is intact (curvewright check shows the same problems); a run can be filed all the same, "
+                         "marked and kept out of the control limits, on request.")
+        self.run_name, self.what, self.problems = run_name, what, problems
+
+
 def run_date(run: Run) -> str | None:
     """The run's date: when it was created (its first audit entry), as UTC text; None without a trail."""
     if not run.audit:
@@ -230,12 +242,20 @@ class Archive:
 
     # --- filing ----------------------------------------------------------------------------------
     def file(self, run: Run, *, source: str | None = None, result: RunResult | None = None,
-             user: str | None = None, record_problems: tuple[str, ...] = ()) -> FilingReceipt:
+             user: str | None = None, despite_problems: bool = False,
+             chain_problems: tuple[str, ...] | None = None) -> FilingReceipt:
         """File ``run`` (analysed here unless its ``result`` is given). Filing the same content again
         returns the entry already filed and changes nothing; another version of a filed run (its first
-        audit entry the same, its content not) is refused with :class:`SameRunFiled`. ``record_problems``
-        are the integrity problems of a run filed although its record is not intact: it is marked with
-        them and never sets control limits."""
+        audit entry the same, its content not) is refused with :class:`SameRunFiled`. A run whose record
+        is not intact (:func:`..record_check.record_problems`, what ``curvewright check`` reports) is
+        refused with :class:`RecordNotIntact`, unless ``despite_problems``: it is then filed marked with
+        its problems and never sets control limits. ``chain_problems`` is what checking the run's audit
+        trail found when it was read (checked here otherwise)."""
+        from ..record_check import record_not_intact_words, record_problems
+
+        problems = record_problems(run, chain_problems)
+        if problems and not despite_problems:
+            raise RecordNotIntact(run.name, record_not_intact_words(run, chain_problems), problems)
         if self.read_only:
             raise ArchiveError(f"{self.location.shown}: run {run.name!r} cannot be filed: you may read this archive "
                                "but not write in its folder. Who may file into a SQLite archive is whoever may write "
@@ -251,7 +271,7 @@ class Archive:
         row = dict(content_sha256=key, name=run.name, run_date_utc=run_date(run) or filed, filed_utc=filed,
                    filed_by=user or current_user(), source=source, software_version=__version__,
                    accepted=result.accepted, document=document, run_identity=run_identity(run),
-                   record_problems="; ".join(record_problems) or None)
+                   record_problems="; ".join(problems) or None)
         for _ in range(3):
             same_run = None
             try:
