@@ -680,6 +680,13 @@ def _quantify_tables(args: argparse.Namespace) -> Outcome:
             choices[a.name] = ModelChoice("command line", (GIVEN,))
     else:
         run, choices = _choose_recommended(run, _options(args)["person"])
+        refused = [(name, c.reasons[0]) for name, c in choices.items()
+                   if c.by == "not chosen" and c.reasons[0].startswith("no model recommended: ")]
+        if refused:  # never quantify quietly with a model the comparison rejects
+            raise InputError(" ".join(
+                f"{name}: {reason}." for name, reason in refused)
+                + " Nothing was quantified: give --model and --weighting to choose a model yourself "
+                "(curvewright compare --standards FILE shows the evidence).")
     options = _options(args)
     options.update(analyte=None, record=False, model=None, weighting=None)  # the choice is in the run now
     options["inputs"] = {"standards table": args.standards, "samples table": args.samples}
@@ -868,6 +875,9 @@ def _choose_recommended(run, person=None):  # type: ignore[no-untyped-def]
         comparison = provisional.evidence[analyte.name]  # the run's one model evidence
         if isinstance(comparison, str):
             choices[analyte.name] = ModelChoice("not chosen", (f"no model comparison: {comparison}",))
+            continue
+        if comparison.recommendation is None:  # no candidate is acceptable: nothing is chosen for the analyte
+            choices[analyte.name] = ModelChoice("not chosen", (f"no model recommended: {comparison.no_recommendation}",))
             continue
         rec = comparison.recommended
         pick = (rec.model.value, rec.weighting.value)
@@ -1392,6 +1402,9 @@ def _print_evidence(run, result, as_json: bool, payload: list[dict[str, Any]],  
         elif choice.by == "recommended":
             print(f"recommended: {a.analyte.model}, {a.analyte.weighting} (what quantify --standards uses unless "
                   "--model and --weighting are given)")
+        elif choice.reasons and choice.reasons[0].startswith("no model recommended: "):
+            print("recommended: none — no candidate is acceptable (see below); quantify --standards refuses to "
+                  "quantify unless --model and --weighting are given")
         else:
             print(f"no recommendation: {'; '.join(choice.reasons)}")
         for r in reasons:

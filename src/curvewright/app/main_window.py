@@ -957,8 +957,10 @@ class MainWindow(QMainWindow):
             settled = f"fixed by the validated method {method.label}"
         else:
             needs_reason = recommended is not None and (model, weighting) != tuple(recommended)
-            prompt = (f"{model}, {weighting} is not the recommended {recommended[0]}, {recommended[1]}. Why is it chosen?"
-                      if needs_reason else "")
+            prompt = ("" if not needs_reason else
+                      f"No model is recommended for {analyte}: no candidate is acceptable (see the model evidence). "
+                      f"Why is {model}, {weighting} chosen?" if not recommended else
+                      f"{model}, {weighting} is not the recommended {recommended[0]}, {recommended[1]}. Why is it chosen?")
             settled = "the recommended model (see the model evidence)"
         if needs_reason:
             dialog = ReasonDialog(f"Choose the model for {analyte}", prompt, (), self)

@@ -193,7 +193,7 @@ def evidence_table(result: RunResult, a: AnalyteResult) -> tuple[Table, tuple[st
         rows.append((
             c.model.value, c.weighting.value, c.residual_sd, c.adjusted_r_squared, c.lack_of_fit_p,
             c.mandel.p_value if c.mandel else None, c.sum_abs_relative_error, c.standards_failing, c.aicc,
-            "recommended" if c is comparison.recommended else "",
+            "recommended" if c is comparison.recommendation else "",
             "chosen" if (c.model is cal.model and c.weighting is cal.weighting) else "",
         ))
     skipped: dict[str, list[str]] = {}
