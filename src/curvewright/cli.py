@@ -67,7 +67,8 @@ tables (--standards, --samples):
   columns are found by their header (see README, "Table layout"); --map FIELD=HEADER names one
   (HEADER a header text or a column number; standards.FIELD or samples.FIELD for one table only).
   The decimal mark is decided from the whole table; --decimal-mark answers when it cannot be.
-  Without --model and --weighting the recommended model is used and recorded as recommended.
+  Without --model and --weighting the recommended model is used and recorded as recommended;
+  when no candidate is acceptable nothing is quantified (exit 2): give --model and --weighting.
   An empty sample response, or one that is not a number, is reported for that sample only.
 
 exit codes:
