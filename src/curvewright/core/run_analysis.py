@@ -519,7 +519,9 @@ def _analyse_analyte(
     unit = analyte.concentration_unit
     low, high = cal.calibrated_range  # anchor points of a logistic curve lie outside it
     in_range = cal.concentration[(cal.concentration >= low) & (cal.concentration <= high)]
-    rng = reporting_range(in_range, limits.lod if limits else None, limits.loq if limits else None, unit)
+    rng = reporting_range(in_range, limits.lod if limits else None, limits.loq if limits else None, unit,
+                          verdict.passing_range, verdict.narrowing,
+                          limits.critical_concentration if limits else None)
     columns = _quantify_samples(run, analyte, cal, limits, rng, profile)
     check_kinds = {kind for kind in SampleKind if kind.is_check}
     check_results = [columns.result(i) for i, kind in enumerate(columns.kinds) if kind in check_kinds]
@@ -770,6 +772,12 @@ def _quantify_samples(
         upper[positions] = quant.upper
         engine_bits[positions] = quant.flag_bits
         del quant
+        # a response beyond a quadratic's turning point: the engine's stand-in (the vertex) is no result
+        beyond = (engine_bits >= 0) & ((engine_bits & int(QuantFlag.BEYOND_TURNING_POINT)) != 0)
+        if beyond.any():  # no number, and that flag alone (as a response with no solution has its own)
+            for column in (estimate, standard_error, lower, upper):
+                column[beyond] = np.nan
+            engine_bits[beyond] = int(QuantFlag.BEYOND_TURNING_POINT)
     reasons = [""] * n
     no_estimate = np.isnan(estimate).tolist()
     for r, (done, note) in enumerate(zip(quantified.tolist(), notes)):

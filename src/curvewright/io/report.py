@@ -240,6 +240,8 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
             rows.append((a.analyte.name, a.not_fitted_words, "", "", "", "", ""))
             continue
         rng = f"{a.reporting.lloq:g}–{a.reporting.uloq:g} {unit}".strip() if a.reporting else ""
+        if a.reporting is not None and a.reporting.narrowing:
+            rng += " (narrowed: an end level fails)"
         reportable, exceptions = result_counts(a)
         rows.append((a.analyte.name, a.calibration.equation(6), rng, a.calibration.weighting.value,
                      str(reportable), str(exceptions), "accepted" if a.accepted else "NOT accepted"))
@@ -319,7 +321,9 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     if a.checks is not None:
         blocks.append(printed(checks_table(a, rule), rule, f"Check windows: {result.profile.checks.source}"))
     range_words = "" if a.reporting is None else (
-        f" Calibrated range {a.reporting.lloq:g}–{a.reporting.uloq:g} (LLOQ–ULOQ); {a.reporting.note}.")
+        f" Calibrated range {a.reporting.lloq:g}–{a.reporting.uloq:g} (LLOQ–ULOQ); {a.reporting.note}."
+        + (f" Range narrowed from the standards' {a.reporting.standards_range[0]:g}–"
+           f"{a.reporting.standards_range[1]:g}: {a.reporting.narrowing}." if a.reporting.narrowing else ""))
     blocks.append(Paragraph(f"Samples – {name}: concentrations in {unit or '(unit not set)'} after dilution; "
                             f"interval: {interval_words(result, a)}; reported values rounded to "
                             f"{rule.description}.{range_words} {INTERVAL_SCOPE_NOTE}", "small"))
