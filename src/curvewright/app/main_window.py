@@ -466,6 +466,10 @@ class MainWindow(QMainWindow):
                 lines.append(f"The concentration unit of {a.name} is not set (Analysis → Analyte name and units…).")
         if result is not None and result.run is run:
             for a in result.analytes:
+                rng = a.reporting
+                if rng is not None and rng.narrowing:  # said with the verdict's own words
+                    lines.append(f"{a.analyte.name}: {rng.narrowing} (the standards in the fit span "
+                                 f"{rng.standards_range[0]:g}–{rng.standards_range[1]:g}).")
                 columns = a.sample_columns
                 if columns is None or a.calibration is None:
                     continue
