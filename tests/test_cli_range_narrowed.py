@@ -90,3 +90,26 @@ def test_failed_lowest_level_narrows_the_range_from_below(tmp_path: Path) -> Non
     assert low["status"] == "below_reporting_limit", low
     assert any("the lowest level (1) fails; the reporting range is narrowed to the passing levels 2–800" in r
                for r in analyte["verdict"]["reasons"])
+
+
+def test_a_profile_that_only_notes_a_failing_end_level_keeps_the_range(tmp_path: Path) -> None:
+    from importlib import resources
+
+    data = json.loads(resources.files("curvewright.core").joinpath("profiles", "ich_m10_chromatographic.json")
+                      .read_text("utf-8"))
+    data["id"], data["standards"]["failed_end_level"] = "lab-note-only", "note"
+    profile = tmp_path / "note_only.json"
+    profile.write_text(json.dumps(data), encoding="utf-8")
+    std = standards(tmp_path / "std.csv")
+    smp = samples(tmp_path / "smp.csv", ("High-1", 6.5), (350, 4.38))
+    out = run_cli("quantify", "--standards", str(std), "--samples", str(smp), "--analyte", "drozafen",
+                  "--model", "linear", "--weighting", "1/x^2", "--profile", str(profile), "--json")
+    analyte = json.loads(out.stdout)["analytes"][0]
+    assert analyte["reporting_range"]["uloq"] == 800 and analyte["reporting_range"]["narrowed"] is False
+    assert any("the highest level (800) fails; the quantitation range would have to end" in r
+               for r in analyte["verdict"]["reasons"])
+    bad = dict(data, standards=dict(data["standards"], failed_end_level="shrink"))
+    profile.write_text(json.dumps(bad), encoding="utf-8")
+    refused = run_cli("quantify", "--standards", str(std), "--samples", str(smp), "--analyte", "drozafen",
+                      "--model", "linear", "--weighting", "1/x^2", "--profile", str(profile))
+    assert refused.returncode == 2 and "'failed_end_level' must be one of narrow_range, note" in refused.stderr
