@@ -69,7 +69,8 @@ tables (--standards, --samples):
   columns are found by their header (see README, "Table layout"); --map FIELD=HEADER names one
   (HEADER a header text or a column number; standards.FIELD or samples.FIELD for one table only).
   The decimal mark is decided from the whole table; --decimal-mark answers when it cannot be.
-  Without --model and --weighting the recommended model is used and recorded as recommended.
+  Without --model and --weighting the recommended model is used and recorded as recommended;
+  when no candidate is acceptable nothing is quantified (exit 2): give --model and --weighting.
   An empty sample response, or one that is not a number, is reported for that sample only.
 
 exit codes:
@@ -687,6 +688,13 @@ def _quantify_tables(args: argparse.Namespace) -> Outcome:
             choices[a.name] = ModelChoice("command line", (GIVEN,))
     else:
         run, choices = _choose_recommended(run, _options(args)["person"])
+        refused = [(name, c.reasons[0]) for name, c in choices.items()
+                   if c.by == "not chosen" and c.reasons[0].startswith("no model recommended: ")]
+        if refused:  # never quantify quietly with a model the comparison rejects
+            raise InputError(" ".join(
+                f"{name}: {reason}." for name, reason in refused)
+                + " Nothing was quantified: give --model and --weighting to choose a model yourself "
+                "(curvewright compare --standards FILE shows the evidence).")
     options = _options(args)
     options.update(analyte=None, record=False, model=None, weighting=None)  # the choice is in the run now
     options["inputs"] = {"standards table": args.standards, "samples table": args.samples}
@@ -875,6 +883,9 @@ def _choose_recommended(run, person=None):  # type: ignore[no-untyped-def]
         comparison = provisional.evidence[analyte.name]  # the run's one model evidence
         if isinstance(comparison, str):
             choices[analyte.name] = ModelChoice("not chosen", (f"no model comparison: {comparison}",))
+            continue
+        if comparison.recommendation is None:  # no candidate is acceptable: nothing is chosen for the analyte
+            choices[analyte.name] = ModelChoice("not chosen", (f"no model recommended: {comparison.no_recommendation}",))
             continue
         rec = comparison.recommended
         pick = (rec.model.value, rec.weighting.value)
@@ -1099,9 +1110,7 @@ def summary_text(  # type: ignore[no-untyped-def]
                     else f"lack of fit not tested ({lof.reason})")
         lines.append(f"  residual SD {cal.residual_sd:.6g}; adjusted R² {cal.adjusted_r_squared:.6f}; {lof_text}")
         if a.limits:
-            loq = f"{a.limits.loq:.4g}" if a.limits.loq is not None else "not defined"
-            loq_unit = in_unit if a.limits.loq is not None else ""
-            lines.append(f"  LOD {a.limits.lod:.4g}{in_unit}, LOQ {loq}{loq_unit} ({a.limits.description})")
+            lines.append(f"  {a.limits.values_words(in_unit.strip())} ({a.limits.description})")
         flagged = [f"{s.id} ({', '.join(f.value for f in cal.influence_flags[i])})"
                    for i, s in enumerate(a.fitted_standards) if cal.influence_flags[i]]
         if flagged:
@@ -1120,6 +1129,9 @@ def summary_text(  # type: ignore[no-untyped-def]
             rr = a.reporting
             lines.append(f"  calibrated range {rr.lloq:g}–{rr.uloq:g}{in_unit} (LLOQ–ULOQ); reporting limit "
                          f"{rr.reporting_limit:.4g}{in_unit} ({rr.basis}): {rr.note}")
+            if rr.narrowing:
+                lines.append(f"  RANGE NARROWED from the standards' {rr.standards_range[0]:g}–{rr.standards_range[1]:g}"
+                             f"{in_unit}: {rr.narrowing}")
         lines += _samples_lines(a.samples, rule, run.settings.confidence_level)
         lines += additions_lines(a, run.settings.confidence_level)
     for action, path, sha in written:
@@ -1226,12 +1238,14 @@ def result_json(  # type: ignore[no-untyped-def]
                 "coefficients": cal.coefficients, "standard_errors": cal.standard_errors, "covariance": cal.covariance,
                 "convergence": getattr(cal, "convergence", None), "notes": list(cal.notes),
                 "residual_sd": cal.residual_sd, "df_residual": cal.df_residual, "r_squared": cal.r_squared,
-                "adjusted_r_squared": cal.adjusted_r_squared, "calibrated_range": list(cal.calibrated_range),
+                "adjusted_r_squared": cal.adjusted_r_squared, "calibrated_range": None if a.reporting is None else [a.reporting.lloq, a.reporting.uloq],
                 "lack_of_fit": {"available": lof.available, "reason": lof.reason, "f_statistic": lof.f_statistic,
                                 "df_lack_of_fit": lof.df_lack_of_fit, "df_pure_error": lof.df_pure_error,
                                 "p_value": lof.p_value},
                 "limits": None if a.limits is None else {"method": a.limits.method, "description": a.limits.description,
-                                                         "lod": a.limits.lod, "loq": a.limits.loq},
+                                                         "lod": a.limits.lod, "loq": a.limits.loq,
+                                                         "critical_concentration": a.limits.critical_concentration,
+                                                         "critical_response": a.limits.critical_response},
                 "verdict": {"passed": a.verdict.passed, "reasons": list(a.verdict.reasons)} if a.verdict else None,
                 "qc_verdict": {"passed": a.qc_verdict.passed, "reasons": list(a.qc_verdict.reasons)} if a.qc_verdict else None,
                 "calibration_checks": None if a.checks is None else {
@@ -1243,7 +1257,10 @@ def result_json(  # type: ignore[no-untyped-def]
                 "reporting_range": None if a.reporting is None else {
                     "lloq": a.reporting.lloq, "uloq": a.reporting.uloq, "lod": a.reporting.lod, "loq": a.reporting.loq,
                     "reporting_limit": a.reporting.reporting_limit, "basis": a.reporting.basis,
-                    "note": a.reporting.note},
+                    "detection_limit": a.reporting.detection_limit, "detection_basis": a.reporting.detection_label,
+                    "note": a.reporting.note, "narrowed": bool(a.reporting.narrowing),
+                    "narrowing": a.reporting.narrowing or None,
+                    "standards_range": list(a.reporting.standards_range or (a.reporting.lloq, a.reporting.uloq))},
                 # the standards are rows of plain values: written as they are, each on its line, with no
                 # walk over them for numbers that are not finite (a row holding one takes the long way)
                 "standards": Rows([
@@ -1426,6 +1443,9 @@ def _print_evidence(run, result, as_json: bool, payload: list[dict[str, Any]],  
         elif choice.by == "recommended":
             print(f"recommended: {a.analyte.model}, {a.analyte.weighting} (what quantify --standards uses unless "
                   "--model and --weighting are given)")
+        elif choice.reasons and choice.reasons[0].startswith("no model recommended: "):
+            print("recommended: none — no candidate is acceptable (see below); quantify --standards refuses to "
+                  "quantify unless --model and --weighting are given")
         else:
             print(f"no recommendation: {'; '.join(choice.reasons)}")
         for r in reasons:

@@ -229,6 +229,29 @@ def test_reported_columns_of_many_random_results_equal_each_report() -> None:
             assert len({v.status for v in expected}) == 5  # every status but not reportable is present
 
 
+@pytest.mark.parametrize("critical", [0.35, 0.9])
+def test_columns_under_iso11843_limits_equal_each_report(critical: float) -> None:
+    """ISO 11843-2 limits (x_c the detection limit, x_d kept as the LOD, no LOQ), x_c below and above
+    the LLOQ, and results beyond a quadratic's turning point: the columns equal ``report_value``."""
+    from curvewright.core.reporting import report_columns, reporting_range
+
+    rng = reporting_range([0.5, 1.0, 50.0], 1.6, None, "µg/L", critical_value=critical)
+    draw = np.random.default_rng(12)
+    n = 2000
+    estimates = np.exp(draw.uniform(np.log(0.05), np.log(80.0), n))
+    estimates[draw.random(n) < 0.03] = np.nan
+    dilutions = draw.choice([1.0, 2.0, 10.0], n)
+    choices = [None, QuantFlag(0), QuantFlag.TURNING_POINT, QuantFlag.TURNING_POINT | QuantFlag.BEYOND_TURNING_POINT]
+    engine = [choices[k] for k in draw.integers(0, len(choices), n)]
+    for below_limit in ("censor", "estimate"):
+        got = report_columns(estimates, dilutions, engine, rng, RULES[2], unit="µg/L", below_limit=below_limit)
+        expected = [report_value(None if e != e else float(e), float(d), f, rng, RULES[2], unit="µg/L",
+                                 below_limit=below_limit) for e, d, f in zip(estimates, dilutions, engine)]
+        assert got.values() == expected
+        flags = [v.flags for v in expected if v.flags is not None]
+        assert any(QuantFlag.BELOW_MIN_DETECTABLE in f for f in flags)
+
+
 @pytest.mark.parametrize("size", [1, 7, 40, 256, 257, 3000])
 def test_few_results_grouped_in_a_dictionary_equal_those_grouped_over_arrays(monkeypatch, size) -> None:
     """A run of a few samples groups its results in a dictionary, a long one over arrays: both ways

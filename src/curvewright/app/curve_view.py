@@ -565,6 +565,7 @@ class _CurveItems(_KeptPlot):
             self.show(self.prediction_upper, *finite(x, ty(trace.prediction_upper)), name=f"{percent_label(level)} prediction band", named=True)
             self.show(self.prediction_lower, *finite(x, ty(trace.prediction_lower)))
         self.show(self.curve, *finite(x, ty(trace.response)), name="fitted curve", named=True)
+        low, high = figures.shaded_ends(a, low, high, tx)
         for item, region in zip(self.regions, ((x.min(), low), (high, x.max()))):
             if region[1] > region[0]:
                 item.setRegion(region)

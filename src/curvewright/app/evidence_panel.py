@@ -20,7 +20,7 @@ HEADERS = ("Model", "Weighting", "Residual SD", "Adjusted R²", "Lack-of-fit p",
 
 
 class EvidencePanel(QWidget):
-    choose_requested = Signal(str, str, object)  # model, weighting, recommended (model, weighting) | None
+    choose_requested = Signal(str, str, object)  # model, weighting, recommended (model, weighting), () for none, or None
 
     def __init__(self, parent: QWidget | None = None) -> None:
         super().__init__(parent)
@@ -68,12 +68,12 @@ class EvidencePanel(QWidget):
         bold = QFont()
         bold.setBold(True)
         # the recommended candidate on top, then the chosen one, then the rest in the engine's order
-        order = sorted(self.comparison.candidates, key=lambda c: (c is not self.comparison.recommended,
+        order = sorted(self.comparison.candidates, key=lambda c: (c is not self.comparison.recommendation,
                        not (c.model.value == analyte.model and c.weighting.value == analyte.weighting)))
         for c in order:
             r = self.table.rowCount()
             self.table.insertRow(r)
-            recommended = c is self.comparison.recommended
+            recommended = c is self.comparison.recommendation  # none when no candidate is acceptable
             chosen = c.model.value == analyte.model and c.weighting.value == analyte.weighting
             values = (c.model.value, c.weighting.value, display_number(c.residual_sd, 4),
                       display_number(c.adjusted_r_squared, 6), display_number(c.lack_of_fit_p, 3),
@@ -105,7 +105,8 @@ class EvidencePanel(QWidget):
         if not rows or self.comparison is None:
             return
         model, weighting = self.table.item(rows[0].row(), 0).data(Qt.ItemDataRole.UserRole)
-        rec = self.comparison.recommended
-        # with a method, what the choice departs from is the method's model (run_edits asks the reason)
+        rec = self.comparison.recommendation
+        # with a method, what the choice departs from is the method's model (run_edits asks the reason);
+        # with no model recommended, () asks the reason for any choice
         self.choose_requested.emit(model, weighting, None if getattr(self, "method_fixes", False)
-                                   else (rec.model.value, rec.weighting.value))
+                                   else () if rec is None else (rec.model.value, rec.weighting.value))

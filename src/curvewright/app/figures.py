@@ -27,7 +27,7 @@ from ..core.level_text import percent_label
 from ..core.influence import HIGH_LEVERAGE, influence_boundary
 from ..core.run import SampleKind
 from . import palette
-from .plotted import acceptance_steps, excluded_points, sample_points, wide_range  # noqa: F401 (shared with the record)
+from .plotted import acceptance_steps, excluded_points, sample_points, shaded_ends, wide_range  # noqa: F401 (shared with the record)
 from .plotted import finite as _finite
 
 TYPE_CHECKING = False
@@ -144,6 +144,7 @@ def draw_curve(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem | N
         plot.plot(*_finite(x, ty(trace.prediction_lower)), pen=dashed)
     _name(legend, plot.plot(*_finite(x, ty(trace.response)), pen=pg.mkPen(palette.CURVE, width=2), name="fitted curve"),
           "fitted curve")
+    low, high = shaded_ends(a, low, high, tx)
     for region in ((x.min(), low), (high, x.max())):
         if region[1] > region[0]:
             plot.addItem(pg.LinearRegionItem(values=region, movable=False, brush=pg.mkBrush(*palette.RANGE_SHADE),

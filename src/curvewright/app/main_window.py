@@ -476,6 +476,10 @@ class MainWindow(QMainWindow):
                                  f"is not in the fit: {u.reason}"
                                  + ("; it counts as not passing until its value is entered or it is excluded with a "
                                     "reason." if counts else "."))
+                rng = a.reporting
+                if rng is not None and rng.narrowing:  # said with the verdict's own words
+                    lines.append(f"{a.analyte.name}: {rng.narrowing} (the standards in the fit span "
+                                 f"{rng.standards_range[0]:g}–{rng.standards_range[1]:g}).")
                 columns = a.sample_columns
                 if columns is None or a.calibration is None:
                     continue
@@ -976,8 +980,10 @@ class MainWindow(QMainWindow):
             settled = f"fixed by the validated method {method.label}"
         else:
             needs_reason = recommended is not None and (model, weighting) != tuple(recommended)
-            prompt = (f"{model}, {weighting} is not the recommended {recommended[0]}, {recommended[1]}. Why is it chosen?"
-                      if needs_reason else "")
+            prompt = ("" if not needs_reason else
+                      f"No model is recommended for {analyte}: no candidate is acceptable (see the model evidence). "
+                      f"Why is {model}, {weighting} chosen?" if not recommended else
+                      f"{model}, {weighting} is not the recommended {recommended[0]}, {recommended[1]}. Why is it chosen?")
             settled = "the recommended model (see the model evidence)"
         if needs_reason:
             dialog = ReasonDialog(f"Choose the model for {analyte}", prompt, (), self)

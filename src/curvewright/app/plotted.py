@@ -22,6 +22,16 @@ def wide_range(a: AnalyteResult) -> bool:
     return positive.size > 1 and positive.max() / positive.min() >= 100
 
 
+def shaded_ends(a: AnalyteResult, low: float, high: float, tx) -> tuple[float, float]:  # type: ignore[no-untyped-def]
+    """The ends of the range the plots leave unshaded, as plotted: the calibrated range (``low``,
+    ``high``, already through the axis transform ``tx``), or the narrowed reporting range (LLOQ–ULOQ)
+    when a failing end level narrowed it (:attr:`.reporting.ReportingRange.narrowing`)."""
+    rng = a.reporting
+    if rng is None or not rng.narrowing:
+        return low, high
+    return float(tx(rng.lloq)), float(tx(rng.uloq))
+
+
 def excluded_points(a: AnalyteResult, tx, ty, log_x: bool, log_y: bool) -> tuple[list[float], list[float]]:  # type: ignore[no-untyped-def]
     """The excluded standards that have a usable response and a place on the axes, as plotted
     (concentration and response through the axis transforms ``tx`` and ``ty``)."""

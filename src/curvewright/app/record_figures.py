@@ -35,7 +35,7 @@ from shiboken6 import VoidPtr
 
 from ..core.level_text import percent_label
 from . import palette
-from .plotted import acceptance_steps, excluded_points, finite, sample_points
+from .plotted import acceptance_steps, excluded_points, finite, sample_points, shaded_ends
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -726,6 +726,7 @@ def curve_figure(a: AnalyteResult, *, level: float = 0.95, log_x: bool = False, 
     ys.append(cy)
     legend.append(Entry("fitted curve", curve))
     finite_x = x[np.isfinite(x)]
+    low, high = shaded_ends(a, low, high, tx)
     for region in ((float(finite_x.min()), low), (high, float(finite_x.max()))):
         if region[1] > region[0]:
             layers.insert(0, Span("x", region[0], region[1], palette.RANGE_SHADE))

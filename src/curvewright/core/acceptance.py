@@ -48,6 +48,17 @@ class StandardRules:
     min_levels_passing: int
     min_fraction_passing_per_level: Fraction
     count_excluded_as_failing: bool = True
+    failed_end_level: str = "narrow_range"
+    """What a failing lowest or highest level does (:data:`FAILED_END_LEVEL_RULES`)."""
+
+
+FAILED_END_LEVEL_RULES = ("narrow_range", "note")
+"""What a failing lowest or highest non-zero level does: ``narrow_range`` (the default) narrows the
+range results are reported in to the lowest and highest passing levels, which become the LLOQ and
+the ULOQ, so that nothing beyond the remaining passing standards is reported as a number (ICH M10,
+calibration curve: the next passing standard becomes the LLOQ or ULOQ; TNI 2016 Standard V1M4
+§1.7.1.1: results outside the range of the remaining standards are not reported quantitatively;
+both recalled, not re-read); ``note`` only says so in the verdict's reasons."""
 
 
 @frozen_value
@@ -104,6 +115,11 @@ class AcceptanceVerdict:
     judged: np.ndarray
     tolerance_percent: FloatArray
     relative_error: FloatArray
+    passing_range: tuple[float, float] | None = None
+    """For standards: the lowest and highest passing non-zero levels, when the profile narrows the
+    range to them (``failed_end_level: narrow_range``) and an end level fails; else None."""
+    narrowing: str = ""
+    """Why the range was narrowed, in words (empty when it was not)."""
 
 
 @frozen_value(eq=False)
@@ -169,6 +185,7 @@ class AcceptanceProfile:
             min_levels_passing=_count(s, "min_levels_passing", where),
             min_fraction_passing_per_level=_fraction(s, "min_fraction_passing_per_level", where),
             count_excluded_as_failing=_flag(s, "count_excluded_as_failing", where),
+            failed_end_level=_choice(s, "failed_end_level", where, FAILED_END_LEVEL_RULES),
         )
         where = f"{origin} qc"
         qc = QcRules(
@@ -238,7 +255,12 @@ class AcceptanceProfile:
     def to_mapping(self) -> dict[str, Any]:
         """The profile as JSON-ready data (the inverse of :meth:`from_mapping`)."""
         def plain(rules: object) -> dict[str, Any]:
-            return {k: (str(v) if isinstance(v, Fraction) else v) for k, v in vars(rules).items()}
+            out = {k: (str(v) if isinstance(v, Fraction) else v) for k, v in vars(rules).items()}
+            # the default rule for a failing end level is left out, so that the content hash of a
+            # profile that does not name it (every profile written before it could be named) is unchanged
+            if out.get("failed_end_level") == FAILED_END_LEVEL_RULES[0]:
+                del out["failed_end_level"]
+            return out
 
         out = {
             "format": PROFILE_FORMAT,
@@ -418,16 +440,33 @@ class AcceptanceProfile:
                        + (f"; levels are judged on the standards in the fit: the {unusable} standard(s) without "
                           "a usable value are in no level, and are counted as not passing among the standards"
                           if unusable else ""))
-        if level_pass and not level_pass[0]:
-            reasons.append(
-                f"note: the lowest level ({levels.concentration[nonzero_levels[0]]:g}) fails; the "
-                "quantitation range would have to start at the next passing level"
-            )
-        if len(level_pass) > 1 and not level_pass[-1]:
-            reasons.append(
-                f"note: the highest level ({levels.concentration[nonzero_levels[-1]]:g}) fails; the "
-                "quantitation range would have to end at the previous passing level"
-            )
+        passing_range, narrowing = None, ""
+        ends_fail = bool(level_pass) and (not level_pass[0] or not level_pass[-1])
+        passed_levels = [j for j, ok_level in enumerate(level_pass) if ok_level]
+        if ends_fail and rules.failed_end_level == "narrow_range" and passed_levels:
+            concentration = levels.concentration[nonzero_levels]
+            # the range's ends are the standards' own concentrations (a level's may differ slightly)
+            x = cal.concentration
+            low = float(x[levels.index == nonzero_levels[passed_levels[0]]].min())
+            high = float(x[levels.index == nonzero_levels[passed_levels[-1]]].max())
+            failed = [f"the {end} level ({float(concentration[j]):g}) fails"
+                      for end, j, fails in (("lowest", 0, not level_pass[0]),
+                                            ("highest", len(level_pass) - 1, not level_pass[-1])) if fails]
+            narrowing = (f"{' and '.join(failed)}; the reporting range is narrowed to the passing levels "
+                         f"{low:g}–{high:g} (LLOQ–ULOQ): results outside it are not reported as numbers")
+            passing_range = (low, high)
+            reasons.append(f"note: {narrowing}")
+        else:
+            if level_pass and not level_pass[0]:
+                reasons.append(
+                    f"note: the lowest level ({levels.concentration[nonzero_levels[0]]:g}) fails; the "
+                    "quantitation range would have to start at the next passing level"
+                )
+            if len(level_pass) > 1 and not level_pass[-1]:
+                reasons.append(
+                    f"note: the highest level ({levels.concentration[nonzero_levels[-1]]:g}) fails; the "
+                    "quantitation range would have to end at the previous passing level"
+                )
         if self.curve is not None:
             curve_ok, curve_reasons = self.curve.judge(cal)
             ok &= curve_ok
@@ -440,6 +479,8 @@ class AcceptanceProfile:
             judged=layout.judged,
             tolerance_percent=layout.tol,
             relative_error=cal.relative_error,
+            passing_range=passing_range,
+            narrowing=narrowing,
         )
 
     def evaluate_qc(self, nominal: object, found: object, not_judged: Sequence[tuple[str, str]] = (),
@@ -580,6 +621,14 @@ def _flag(data: Mapping[str, Any], key: str, where: str) -> bool:
     value = data.get(key)
     if not isinstance(value, bool):
         raise ProfileError(f"{where}: '{key}' must be true or false, found {value!r}.")
+    return value
+
+
+def _choice(data: Mapping[str, Any], key: str, where: str, allowed: tuple[str, ...]) -> str:
+    """An optional choice among ``allowed`` (the first when the key is left out)."""
+    value = data.get(key, allowed[0])
+    if value not in allowed:
+        raise ProfileError(f"{where}: '{key}' must be one of {', '.join(allowed)}, found {value!r}.")
     return value
 
 

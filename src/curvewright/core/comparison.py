@@ -197,6 +197,16 @@ class ModelComparison:
     reasons: tuple[str, ...]
     profile: str
     notes: tuple[str, ...] = (R_SQUARED_NOTE,)
+    no_recommendation: str = ""
+    """Why no candidate is acceptable, when none is (empty otherwise): the straight line is rejected by
+    its lack-of-fit or Mandel's test and no other candidate replaces it (the quadratic turns over
+    inside the range or could not be fitted), or no candidate shows a significant regression.
+    ``recommended`` then holds the candidate the evidence shows first, which is not a recommendation."""
+
+    @property
+    def recommendation(self) -> Candidate | None:
+        """The recommended candidate, or None when no candidate is acceptable (``no_recommendation`` says why)."""
+        return None if self.no_recommendation else self.recommended
 
     def candidate(self, model: Model | str, weighting: Weighting | str) -> Candidate:
         m, w = Model.parse(model), Weighting.parse(weighting)
@@ -352,6 +362,7 @@ def compare(
             recommended.calibration.regression.words,
             "no candidate can be recommended: check the standards' concentrations and responses",
         ]
+        refused = f"no candidate shows a significant regression ({recommended.calibration.regression.words})"
     else:
         recommended, reasons = _recommend(candidates, evidence, mandel_by_weighting)
         recommended, reasons = _consider_curves(
@@ -359,6 +370,9 @@ def compare(
         )
         if rules.curve is not None:
             recommended, reasons = _under_curve_rules(candidates, skipped, recommended, reasons, rules)
+        refused = _rejected(recommended)
+        if refused:
+            reasons = [f"no candidate is acceptable, so none is recommended: {refused}"] + list(reasons)
     if anchors.any():
         reasons = list(reasons) + [_anchor_reason(x[anchors])]
     reasons = list(reasons) + [R_SQUARED_NOTE]
@@ -370,7 +384,27 @@ def compare(
         recommended=recommended,
         reasons=tuple(reasons),
         profile=rules.name,
+        no_recommendation=refused,
     )
+
+
+def _rejected(chosen: Candidate) -> str:
+    """Why ``chosen`` may not be recommended: a straight line its own lack-of-fit test (p < 0.05) or
+    Mandel's test (p < 0.01) rejects, left as the choice only because no quadratic could replace it
+    (:func:`_model_for`); empty when it may."""
+    if chosen.model is not Model.LINEAR:
+        return ""
+    lof = chosen.calibration.lack_of_fit
+    tests = []
+    if lof.significant(LACK_OF_FIT_ALPHA):
+        tests.append(f"its lack-of-fit test (p = {lof.p_value:.3g})")
+    if chosen.mandel is not None and chosen.mandel.significant:
+        tests.append(f"Mandel's test (p = {chosen.mandel.p_value:.3g})")
+    if not tests:
+        return ""
+    return (f"the straight line ({chosen.weighting.description}) is rejected by {' and '.join(tests)}, and no "
+            "quadratic can replace it (it turns over inside the calibrated range, or could not be fitted); narrow "
+            "the range or check the standards, or choose a model yourself with a recorded reason")
 
 
 def mandel_test(linear: Calibration, quadratic: Calibration) -> MandelTest:
@@ -392,8 +426,11 @@ def _mandel(linear: Calibration, quadratic: Calibration) -> MandelTest:
         basis = make_basis(Model.QUADRATIC, linear.concentration, w)
         same_weights = solve_weighted(basis.design(linear.concentration), linear.response, w)
         s2 = same_weights.sse / (n - 3)
-    ds2 = (n - 2) * s1 - (n - 3) * s2
-    pg = ds2 / s2 if s2 > 0 else np.inf
+    # The line is the quadratic without its x² term, so under one set of weights its sum of squares is
+    # never the smaller: DS² ≥ 0, and a negative difference is round-off of two equal sums (a line
+    # with no curvature). It is zero then, and so is PG (ISO 8466-1: the test value is DS²/s₂² ≥ 0).
+    ds2 = max((n - 2) * s1 - (n - 3) * s2, 0.0)
+    pg = ds2 / s2 if s2 > 0 else (np.inf if ds2 > 0 else 0.0)
     df = (1, n - 3)
     return MandelTest(
         weighting=linear.weighting,

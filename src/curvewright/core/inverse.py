@@ -4,8 +4,10 @@ Point estimate
     x̂ solves f(x) = ȳ₀. A straight line gives x̂ = (ȳ₀ − b0)/b1. For the quadratic the root is
     taken on the calibrated branch, the side of the vertex that holds the standards. A response
     beyond the curve's highest (or lowest) value that the prediction band still holds at the vertex
-    is read as the vertex itself, flagged ``TURNING_POINT`` (its symmetric interval is unbounded,
-    since the slope there is zero); only a response outside the band even there has no solution.
+    is read as the vertex itself, flagged ``TURNING_POINT`` and ``BEYOND_TURNING_POINT`` (its
+    symmetric interval is unbounded, since the slope there is zero): no concentration gives such a
+    response, so the vertex is a stand-in the engine keeps, never a result to report
+    (:mod:`.reporting` reports none). Only a response outside the band even there has no solution.
 
 Standard error (delta method)
     s_x̂ = √(σ²/(m·w₀) + var f̂(x̂)) / |f'(x̂)|, with w₀ the weight of the new mean response
@@ -91,6 +93,8 @@ class QuantFlag(IntFlag):
     UNBOUNDED_INTERVAL = 128
     TURNING_POINT = 256
     BEYOND_ASYMPTOTE = 512
+    BEYOND_TURNING_POINT = 1024
+    BELOW_MIN_DETECTABLE = 2048
 
     @property
     def words(self) -> str:
@@ -117,12 +121,19 @@ _WORDS = {
     QuantFlag.UNBOUNDED_INTERVAL: "interval unbounded: the calibration cannot bound this concentration",
     QuantFlag.TURNING_POINT: (
         "at the curve's turning point: the prediction band holds this response on both sides of the "
-        "turning point, so the interval is read from the band on both sides (where the response lies "
-        "beyond the curve's highest or lowest value, the estimate is the turning point itself)"
+        "turning point, so the interval is read from the band on both sides"
     ),
     QuantFlag.BEYOND_ASYMPTOTE: (
         "beyond an asymptote: the curve approaches this response but never reaches it, so no "
         "concentration gives it"
+    ),
+    QuantFlag.BEYOND_TURNING_POINT: (
+        "beyond the curve's turning point: the response lies beyond the highest (or lowest) value the "
+        "curve reaches, so no concentration can be read from it"
+    ),
+    QuantFlag.BELOW_MIN_DETECTABLE: (
+        "detected (at or above the critical value x_c) but below the minimum detectable value x_d "
+        "(ISO 11843-2): at this level the analyte is missed with a probability above β"
     ),
 }
 _SHORT_WORDS = {
@@ -136,6 +147,8 @@ _SHORT_WORDS = {
     QuantFlag.UNBOUNDED_INTERVAL: "open interval",
     QuantFlag.TURNING_POINT: "turning point",
     QuantFlag.BEYOND_ASYMPTOTE: "beyond asymptote",
+    QuantFlag.BEYOND_TURNING_POINT: "beyond turning point",
+    QuantFlag.BELOW_MIN_DETECTABLE: "< x_d",
 }
 
 
@@ -333,7 +346,8 @@ def _quantify_block(
     low, high = range_low - slack, range_high + slack
     bits = _range_bits(x_hat, low, high, limits)
     for flag, mask in ((QuantFlag.AMBIGUOUS_ROOT, ambiguous), (QuantFlag.UNBOUNDED_INTERVAL, unbounded),
-                       (QuantFlag.TURNING_POINT, turning)):
+                       (QuantFlag.TURNING_POINT, turning),
+                       (QuantFlag.BEYOND_TURNING_POINT, at_turning_point if any_at_turning_point else None)):
         if mask is not None and mask.any():
             np.bitwise_or(bits, int(flag), out=bits, where=mask)
     if not unsolved:

@@ -48,6 +48,18 @@ class DetectionLimits:
     critical_response: float | None = None
     critical_concentration: float | None = None
 
+    def values_words(self, unit: str = "") -> str:
+        """The limits with their values, in words: "LOD 0.35 ng/mL, LOQ 1.05 ng/mL", or for ISO 11843-2
+        the critical value x_c, the critical response y_c and the minimum detectable value x_d (4
+        significant digits)."""
+        u = f" {unit}" if unit else ""
+        if self.critical_concentration is not None:
+            return (f"critical value x_c {self.critical_concentration:.4g}{u} (critical response y_c "
+                    f"{self.critical_response:.4g}), minimum detectable value x_d {self.lod:.4g}{u}; "
+                    "LOQ not defined")
+        loq = f"{self.loq:.4g}{u}" if self.loq is not None else "not defined"
+        return f"LOD {self.lod:.4g}{u}, LOQ {loq}"
+
 
 def detection_limits(
     cal: "FittedCurve",

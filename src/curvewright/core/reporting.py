@@ -16,7 +16,8 @@ that no sample is called "inside the calibrated range" and "below the LOQ" at on
 ``BELOW_REPORTING_LIMIT`` LOD ≤ x̂ < reporting limit: "< reporting limit", or, where the profile
                           allows it (``estimate``), the number marked as estimated
 ``BELOW_LOD``             x̂ < LOD: "< reporting limit" (with ``estimate``: "< LOD")
-``NOT_QUANTIFIED``        no numeric result (censored, unreadable, no solution on the curve)
+``NOT_QUANTIFIED``        no numeric result (censored, unreadable, no solution on the curve, a
+                          response beyond a quadratic's turning point: a re-assay diluted is asked)
 ``NOT_REPORTABLE``        a number exists but may not be reported (not bracketed by passing
                           calibration checks); the reason says why
 ========================  =========================================================================
@@ -38,6 +39,18 @@ import numpy as np
 from .values import frozen_value
 from .inverse import QuantFlag
 from .rounding import RoundingRule
+
+
+_QUALIFIERS = QuantFlag.AMBIGUOUS_ROOT | QuantFlag.UNBOUNDED_INTERVAL | QuantFlag.TURNING_POINT
+"""The engine's flags said beside a result's status, in words and short words."""
+_NO_NUMBER = QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_TURNING_POINT
+"""The engine's flags of a result from which no concentration is read: the curve never gives the
+response (for a response beyond a quadratic's turning point, the engine's stand-in estimate, the
+vertex, is not a result)."""
+BEYOND_TURNING_POINT_ADVICE = (
+    "no number is reported; re-assay the sample diluted (no dilution factor can be worked out from a response "
+    "the curve never reaches: choose one that brings the response well inside the standards' responses)")
+"""What a result beyond the curve's turning point asks for (common practice: dilute into the range)."""
 
 
 class ReportStatus(str, Enum):
@@ -71,6 +84,32 @@ class ReportingRange:
     reporting_limit: float
     basis: str
     note: str
+    narrowing: str = ""
+    """Why the range is narrower than the standards' (a failing end level, under the profile's
+    ``failed_end_level: narrow_range``), in words; empty when it is not narrowed."""
+    standards_range: tuple[float, float] | None = None
+    """The lowest and highest non-zero standards in the fit, when the range was narrowed (else None:
+    the range is theirs)."""
+    critical_value: float | None = None
+    """ISO 11843-2 limits: the critical value of the net concentration x_c, below which a result is
+    "not detected" (``lod`` then holds the minimum detectable value x_d); None for other limits,
+    whose LOD is the detection threshold."""
+
+    @property
+    def detection_limit(self) -> float | None:
+        """The concentration below which a result is not detected: x_c for ISO 11843-2 limits, else the LOD."""
+        return self.critical_value if self.critical_value is not None else self.lod
+
+    @property
+    def detection_label(self) -> str:
+        """The name of :attr:`detection_limit`: "x_c" or "LOD"."""
+        return "x_c" if self.critical_value is not None else "LOD"
+
+    @property
+    def not_detected_words(self) -> str:
+        """What a result below :attr:`detection_limit` is, in words."""
+        return ("below the critical value x_c: not detected (ISO 11843-2)" if self.critical_value is not None
+                else "below the detection limit (LOD)")
 
     @property
     def middle(self) -> float:
@@ -78,26 +117,46 @@ class ReportingRange:
         return 0.5 * (self.lloq + self.uloq)
 
 
-def reporting_range(concentrations: object, lod: float | None, loq: float | None, unit: str = "") -> ReportingRange:
+def reporting_range(concentrations: object, lod: float | None, loq: float | None, unit: str = "",
+                    passing_range: tuple[float, float] | None = None, narrowing: str = "",
+                    critical_value: float | None = None) -> ReportingRange:
     """The calibrated range of the standards in the fit and the reporting limit.
 
     ``concentrations`` are the nominal concentrations of the standards in the fit; ``lod`` and
-    ``loq`` the computed limits (None where the method gives none).
+    ``loq`` the computed limits (None where the method gives none). ``passing_range`` (with the
+    words ``narrowing`` saying why) narrows the range to the lowest and highest passing levels
+    when an end level fails the acceptance profile (:attr:`.acceptance.AcceptanceVerdict.passing_range`):
+    they become the LLOQ and the ULOQ. ``critical_value`` is the ISO 11843-2 critical value x_c
+    (``lod`` then the minimum detectable value x_d): a result below x_c is not detected, so where x_c
+    lies above the LLOQ (and the standard defines no LOQ) it is the reporting limit.
     """
     values = [float(c) for c in concentrations]  # type: ignore[attr-defined]
     positive = [c for c in values if c > 0]
     if not positive:
         raise ValueError("no standard of non-zero concentration: the calibrated range is not defined")
     lloq, uloq = min(positive), max(positive)
+    standards_range = None
+    if passing_range is not None and passing_range != (lloq, uloq):
+        standards_range = (lloq, uloq)
+        lloq, uloq = passing_range
+    else:
+        narrowing = ""
     u = f" {unit}" if unit else ""
+    lowest = "lowest passing standard" if standards_range and lloq != standards_range[0] else "lowest standard"
     if loq is not None and math.isfinite(loq) and loq > lloq:
         return ReportingRange(lloq, uloq, lod, loq, loq, "LOQ",
-                              f"the computed LOQ ({loq:.4g}{u}) lies above the lowest standard ({lloq:g}{u}): the "
-                              "reporting limit is the LOQ, and results between them are below it")
-    note = (f"the computed LOQ ({loq:.4g}{u}) lies below the lowest standard ({lloq:g}{u}): the reporting limit is "
-            "the LLOQ, the lowest standard" if loq is not None and math.isfinite(loq)
-            else "the reporting limit is the LLOQ, the lowest standard (no LOQ was computed)")
-    return ReportingRange(lloq, uloq, lod, loq, lloq, "LLOQ", note)
+                              f"the computed LOQ ({loq:.4g}{u}) lies above the {lowest} ({lloq:g}{u}): the "
+                              "reporting limit is the LOQ, and results between them are below it",
+                              narrowing, standards_range, critical_value)
+    if critical_value is not None and math.isfinite(critical_value) and critical_value > lloq:
+        return ReportingRange(lloq, uloq, lod, loq, critical_value, "x_c",
+                              f"the critical value x_c ({critical_value:.4g}{u}, ISO 11843-2) lies above the {lowest} "
+                              f"({lloq:g}{u}): a result below it is not detected, so the reporting limit is x_c",
+                              narrowing, standards_range, critical_value)
+    note = (f"the computed LOQ ({loq:.4g}{u}) lies below the {lowest} ({lloq:g}{u}): the reporting limit is "
+            f"the LLOQ, the {lowest}" if loq is not None and math.isfinite(loq)
+            else f"the reporting limit is the LLOQ, the {lowest} (no LOQ was computed)")
+    return ReportingRange(lloq, uloq, lod, loq, lloq, "LLOQ", note, narrowing, standards_range, critical_value)
 
 
 @frozen_value
@@ -130,13 +189,18 @@ def report_value(
     dilution factor), ``flags`` the quantitation flags of the engine (for the no-solution, two-root and
     unbounded-interval qualifiers). ``not_quantified`` gives the reason when there is no number;
     ``not_reportable`` the reason a number may not be reported."""
-    extra = flags & (QuantFlag.AMBIGUOUS_ROOT | QuantFlag.UNBOUNDED_INTERVAL) if flags is not None else QuantFlag(0)
+    extra = flags & _QUALIFIERS if flags is not None else QuantFlag(0)
+    if estimate is not None and _below_min_detectable(estimate, rng):
+        extra |= QuantFlag.BELOW_MIN_DETECTABLE
     qualifiers = [extra.words] if extra else []
     short_qualifiers = [extra.short_words] if extra else []
-    if estimate is None or (flags is not None and QuantFlag.NO_SOLUTION in flags):
+    if estimate is None or (flags is not None and flags & _NO_NUMBER):
         reason = not_quantified or (
-            (flags & (QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_ASYMPTOTE)).words if flags is not None else "no numeric result"
+            (flags & (QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_ASYMPTOTE | QuantFlag.BEYOND_TURNING_POINT)).words
+            if flags is not None else "no numeric result"
         )
+        if not not_quantified and flags is not None and QuantFlag.BEYOND_TURNING_POINT in flags:
+            reason += f"; {BEYOND_TURNING_POINT_ADVICE}"
         censored = reason.startswith("reported as censored")
         if _nothing_recorded(reason):  # said as such in every output, not as a failure to quantify
             return ReportedValue(ReportStatus.NOT_QUANTIFIED, NO_RESPONSE, reason, "no response", flags)
@@ -151,7 +215,8 @@ def report_value(
         bits |= QuantFlag.IN_RANGE if estimate >= rng.reporting_limit else QuantFlag(0)
     if estimate < rng.reporting_limit:
         bits |= QuantFlag.BELOW_LOQ
-    if rng.lod is not None and estimate < rng.lod:
+    detection = rng.detection_limit
+    if detection is not None and estimate < detection:
         bits |= QuantFlag.BELOW_LOD
     bits |= extra
     if not_reportable:
@@ -160,7 +225,7 @@ def report_value(
                              ", ".join(["not reportable"] + short_qualifiers), bits)
     return _numeric_value(estimate, dilution, bits, (qualifiers, short_qualifiers),
                           _dilution_texts(dilution, rng, rule, unit), lambda: rule.text(estimate * dilution), rng,
-                          unit, below_limit == "estimate", rng.lod is not None and estimate < rng.lod)
+                          unit, below_limit == "estimate", detection is not None and estimate < detection)
 
 
 def _dilution_texts(dilution: float, rng: ReportingRange, rule: RoundingRule,
@@ -173,7 +238,7 @@ def _dilution_texts(dilution: float, rng: ReportingRange, rule: RoundingRule,
     diluted = f" × dilution {dilution:g}" if dilution != 1 else ""
     uloq = f"{rule.text(rng.uloq * dilution)}{u}"
     return (diluted, f"{rule.text(rng.reporting_limit * dilution)}{u} ({rng.basis}{diluted})", uloq,
-            f"{rule.text(rng.lod * dilution)}{u}" if rng.lod is not None else "",
+            f"{rule.text(rng.detection_limit * dilution)}{u}" if rng.detection_limit is not None else "",
             f"{rule.text(rng.uloq)}{u}{diluted} = {uloq}" if diluted else uloq)
 
 
@@ -199,18 +264,27 @@ def _numeric_value(
         status = ReportStatus.BELOW_LOD if below_lod else ReportStatus.BELOW_REPORTING_LIMIT
         if estimated:
             if below_lod:
-                text, words, short = f"< {lod_text} (LOD{diluted})", "below the detection limit (LOD): not detected", "< LOD"
+                label = rng.detection_label
+                text, words, short = (f"< {lod_text} ({label}{diluted})",
+                                      rng.not_detected_words + ("" if label == "x_c" else ": not detected"), f"< {label}")
             else:
                 text = f"{number()}{u} (estimated, below {rng.basis})"
                 words = f"estimated: between the detection limit and the reporting limit of {limit_text}"
                 short = "estimated"
         else:
             text = f"< {limit_text}"
-            words = f"below the reporting limit of {limit_text}" + ("; below the detection limit (LOD)" if below_lod else "")
-            short = f"< {rng.basis}" + (", < LOD" if below_lod else "")
+            words = f"below the reporting limit of {limit_text}" + (f"; {rng.not_detected_words}" if below_lod else "")
+            short = f"< {rng.basis}" + (f", < {rng.detection_label}" if below_lod and rng.basis != rng.detection_label
+                                        else "")
         return ReportedValue(status, text, "; ".join([words] + words_q), ", ".join([short] + short_q), flags)
     return ReportedValue(ReportStatus.IN_RANGE, number(), "; ".join(["inside the calibrated range"] + words_q),
                          ", ".join(["in range"] + short_q), flags)
+
+
+def _below_min_detectable(estimate: float, rng: ReportingRange) -> bool:
+    """ISO 11843-2 limits: the result is detected (at or above x_c) but below the minimum detectable value x_d."""
+    return (rng.critical_value is not None and rng.lod is not None
+            and rng.critical_value <= estimate < rng.lod)
 
 
 def _one_two_five(factor: float) -> float:
@@ -245,8 +319,8 @@ class FlagBits:
         return (None if b < 0 else QuantFlag(b) for b in self.bits.tolist())
 
 
-_NO_SOLUTION = int(QuantFlag.NO_SOLUTION)
-_QUALIFIER_BITS = int(QuantFlag.AMBIGUOUS_ROOT | QuantFlag.UNBOUNDED_INTERVAL)
+_NO_NUMBER_BITS = int(_NO_NUMBER)
+_QUALIFIER_BITS = int(_QUALIFIERS)
 
 
 @frozen_value(eq=False)
@@ -348,7 +422,7 @@ def report_columns(
         shorts = np.empty(n, dtype=object)
         bits_out = bits_in.copy()
         suggested = np.full(n, np.nan)
-        numeric = ~np.isnan(est) & ((bits_in < 0) | ((bits_in & _NO_SOLUTION) == 0))
+        numeric = ~np.isnan(est) & ((bits_in < 0) | ((bits_in & _NO_NUMBER_BITS) == 0))
 
         def put(i: int, value: ReportedValue) -> None:
             statuses[i], texts[i], words[i], shorts[i] = value.status, value.text, value.words, value.short
@@ -369,7 +443,10 @@ def report_columns(
         bits = np.where(below_range, int(QuantFlag.BELOW_RANGE),
                         np.where(above, int(QuantFlag.ABOVE_RANGE), np.where(e >= limit, int(QuantFlag.IN_RANGE), 0)))
         bits |= np.where(e < limit, int(QuantFlag.BELOW_LOQ), 0)
-        below_lod = e < rng.lod if rng.lod is not None else np.zeros(e.size, dtype=bool)
+        detection = rng.detection_limit
+        below_lod = e < detection if detection is not None else np.zeros(e.size, dtype=bool)
+        if rng.critical_value is not None and rng.lod is not None:  # detected, but below x_d (ISO 11843-2)
+            extra = extra | np.where(~below_lod & (e < rng.lod), int(QuantFlag.BELOW_MIN_DETECTABLE), 0)
         bits |= np.where(below_lod, int(QuantFlag.BELOW_LOD), 0) | extra
         bits_out[where] = bits
         reported = e * d

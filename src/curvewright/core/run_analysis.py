@@ -519,7 +519,9 @@ def _analyse_analyte(
     unit = analyte.concentration_unit
     low, high = cal.calibrated_range  # anchor points of a logistic curve lie outside it
     in_range = cal.concentration[(cal.concentration >= low) & (cal.concentration <= high)]
-    rng = reporting_range(in_range, limits.lod if limits else None, limits.loq if limits else None, unit)
+    rng = reporting_range(in_range, limits.lod if limits else None, limits.loq if limits else None, unit,
+                          verdict.passing_range, verdict.narrowing,
+                          limits.critical_concentration if limits else None)
     columns = _quantify_samples(run, analyte, cal, limits, rng, profile)
     check_kinds = {kind for kind in SampleKind if kind.is_check}
     check_results = [columns.result(i) for i, kind in enumerate(columns.kinds) if kind in check_kinds]
@@ -550,10 +552,11 @@ def _analyse_analyte(
     if samples is not None:
         samples = tuple(
             replace(s, within_limits=abs(s.recovery_percent - 100.0) <= profile.qc.tolerance_percent + 1e-9)
-            if s.recovery_percent is not None and s.kind is SampleKind.QC else s
+            if s.recovery_percent is not None and s.kind is SampleKind.QC and _inside(s.flags) else s
             for s in samples
         )
-        qc = [s for s in samples if s.kind is SampleKind.QC and s.nominal is not None and s.reported is not None]
+        qc = [s for s in samples if s.kind is SampleKind.QC and s.nominal is not None and s.reported is not None
+              and _inside(s.flags)]
         columns = SampleColumns.of(analyte.name, samples)
         not_judged, notes = _qc_not_judged(columns, unit)
         qc_verdict = (profile.evaluate_qc([s.nominal for s in qc], [s.reported for s in qc], not_judged, notes)
@@ -582,16 +585,20 @@ def _analyse_analyte(
 
 def _judge_qc(columns: SampleColumns, profile: AcceptanceProfile,
               unit: str) -> tuple[SampleColumns, AcceptanceVerdict | None]:
-    """The QC samples judged over the columns: each with a recovery is within the profile's QC
-    tolerance or not, and the QC samples with a nominal value and a reported number are judged by the
-    profile's QC rules (what the result objects' judging gives, sample for sample); those without
-    either are named as not judged (:func:`_qc_not_judged`)."""
+    """The QC samples judged over the columns: each with a recovery and a result reported as a number
+    inside the range is within the profile's QC tolerance or not, and the QC samples with a nominal
+    value and such a result are judged by the profile's QC rules (what the result objects' judging
+    gives, sample for sample); the others are named as not judged (:func:`_qc_not_judged`), which
+    fails the QC verdict: a QC sample is judged on the number the run reports for it, never on one
+    it does not report (below the reporting limit, above the ULOQ, estimated; common practice); a QC
+    sample held back only because a calibration check around it failed is still judged."""
     is_qc = np.fromiter((k is SampleKind.QC for k in columns.kinds), bool, len(columns))
     recovery = columns.recovery_percent
-    judged = is_qc & ~np.isnan(recovery)
+    reported = _in_range(columns)
+    judged = is_qc & ~np.isnan(recovery) & reported
     within = columns.within_limits.copy()
     within[judged] = np.abs(recovery[judged] - 100.0) <= profile.qc.tolerance_percent + 1e-9
-    counted = is_qc & ~np.isnan(columns.nominal) & columns.quantified & ~np.isnan(columns.estimate)
+    counted = is_qc & ~np.isnan(columns.nominal) & columns.quantified & ~np.isnan(columns.estimate) & reported
     verdict = None
     not_judged, notes = _qc_not_judged(columns, unit)
     if counted.any() or not_judged or notes:
@@ -599,6 +606,17 @@ def _judge_qc(columns: SampleColumns, profile: AcceptanceProfile,
         found = [e * d for e, d in zip(columns.estimate[counted].tolist(), columns.dilution[counted].tolist())]
         verdict = profile.evaluate_qc(columns.nominal[counted].tolist(), found, not_judged, notes)
     return replace(columns, within_limits=within), verdict
+
+
+def _in_range(columns: SampleColumns) -> np.ndarray:
+    """Which results have a number inside the range, at or above the reporting limit (the flag
+    ``IN_RANGE``: reported as the number, or not reportable for a reason of the run's checks alone)."""
+    return (columns.flags >= 0) & ((columns.flags & int(QuantFlag.IN_RANGE)) != 0)
+
+
+def _inside(flags: QuantFlag | None) -> bool:
+    """One result's :func:`_in_range`."""
+    return flags is not None and QuantFlag.IN_RANGE in flags
 
 
 _NAMED = 5
@@ -612,14 +630,16 @@ def _qc_not_judged(columns: SampleColumns, unit: str) -> tuple[list[tuple[str, s
     kinds = columns.kinds
     has_nominal = ~np.isnan(columns.nominal)
     is_qc = np.fromiter((k is SampleKind.QC for k in kinds), bool, len(columns))
-    has_number = columns.quantified & ~np.isnan(columns.estimate)
+    has_number = columns.quantified & ~np.isnan(columns.estimate) & _in_range(columns)
     not_judged = []
     for i in np.flatnonzero(is_qc & ~(has_nominal & has_number)).tolist():
         if not has_nominal[i]:
             reason = "no nominal concentration (the cell is empty or not a number)"
         else:
             said = columns.notes[i] or columns.words[i] or "not quantified"
-            reason = f"no reported number ({said})"
+            reason = (f"no reported number ({said})" if np.isnan(columns.estimate[i]) or not columns.quantified[i]
+                      else f"its result is not reported as a number ({said}), and a QC sample is judged only on "
+                      "a number the run reports")
         not_judged.append((columns.ids[i], reason))
     notes = []
     is_unknown = np.fromiter((k is SampleKind.UNKNOWN for k in kinds), bool, len(columns))
@@ -752,6 +772,12 @@ def _quantify_samples(
         upper[positions] = quant.upper
         engine_bits[positions] = quant.flag_bits
         del quant
+        # a response beyond a quadratic's turning point: the engine's stand-in (the vertex) is no result
+        beyond = (engine_bits >= 0) & ((engine_bits & int(QuantFlag.BEYOND_TURNING_POINT)) != 0)
+        if beyond.any():  # no number, and that flag alone (as a response with no solution has its own)
+            for column in (estimate, standard_error, lower, upper):
+                column[beyond] = np.nan
+            engine_bits[beyond] = int(QuantFlag.BEYOND_TURNING_POINT)
     reasons = [""] * n
     no_estimate = np.isnan(estimate).tolist()
     for r, (done, note) in enumerate(zip(quantified.tolist(), notes)):

@@ -195,7 +195,7 @@ def evidence_table(result: RunResult, a: AnalyteResult) -> tuple[Table, tuple[st
         rows.append((
             c.model.value, c.weighting.value, c.residual_sd, c.adjusted_r_squared, c.lack_of_fit_p,
             c.mandel.p_value if c.mandel else None, c.sum_abs_relative_error, c.standards_failing, c.aicc,
-            "recommended" if c is comparison.recommended else "",
+            "recommended" if c is comparison.recommendation else "",
             "chosen" if (c.model is cal.model and c.weighting is cal.weighting) else "",
         ))
     skipped: dict[str, list[str]] = {}
@@ -244,6 +244,8 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
             rows.append((a.analyte.name, a.not_fitted_words, "", "", "", "", ""))
             continue
         rng = f"{full_number(a.reporting.lloq)}–{full_number(a.reporting.uloq)} {unit}".strip() if a.reporting else ""
+        if a.reporting is not None and a.reporting.narrowing:
+            rng += " (narrowed: an end level fails)"
         reportable, exceptions = result_counts(a)
         rows.append((a.analyte.name, a.calibration.equation(6), rng, a.calibration.weighting.value,
                      str(reportable), str(exceptions), "accepted" if a.accepted else "NOT accepted"))
@@ -323,7 +325,9 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     if a.checks is not None:
         blocks.append(printed(checks_table(a, rule), rule, f"Check windows: {result.profile.checks.source}"))
     range_words = "" if a.reporting is None else (
-        f" Calibrated range {full_number(a.reporting.lloq)}–{full_number(a.reporting.uloq)} (LLOQ–ULOQ); {a.reporting.note}.")
+        f" Calibrated range {full_number(a.reporting.lloq)}–{full_number(a.reporting.uloq)} (LLOQ–ULOQ); {a.reporting.note}."
+        + (f" Range narrowed from the standards' {full_number(a.reporting.standards_range[0])}–"
+           f"{full_number(a.reporting.standards_range[1])}: {a.reporting.narrowing}." if a.reporting.narrowing else ""))
     blocks.append(Paragraph(f"Samples – {name}: concentrations in {unit or '(unit not set)'} after dilution; "
                             f"interval: {interval_words(result, a)}; reported values rounded to "
                             f"{rule.description}.{range_words} {INTERVAL_SCOPE_NOTE}", "small"))

@@ -373,9 +373,16 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     rows.append(("Mandel's test PG (ISO 8466-1)", mandel[0], None))
     rows.append(("Mandel's test p", mandel[1], None))
     if a.reporting is not None:
-        rows += [("Calibrated range, LLOQ (lowest non-zero standard)", a.reporting.lloq, None),
-                 ("Calibrated range, ULOQ (highest standard)", a.reporting.uloq, None),
-                 (f"Reporting limit ({a.reporting.basis})", a.reporting.reporting_limit, None),
+        narrowed = a.reporting.narrowing
+        rows += [("Calibrated range, LLOQ (lowest passing non-zero standard)" if narrowed else
+                  "Calibrated range, LLOQ (lowest non-zero standard)", a.reporting.lloq, None),
+                 ("Calibrated range, ULOQ (highest passing standard)" if narrowed else
+                  "Calibrated range, ULOQ (highest standard)", a.reporting.uloq, None)]
+        if narrowed:
+            rows += [("Range of the standards in the fit", f"{a.reporting.standards_range[0]:g}–"
+                      f"{a.reporting.standards_range[1]:g}", None),
+                     ("Range narrowed, why", narrowed, None)]
+        rows += [(f"Reporting limit ({a.reporting.basis})", a.reporting.reporting_limit, None),
                  ("Reporting limit, why", a.reporting.note, None),
                  ("Between the LOD and the reporting limit", BELOW_LIMIT_WORDS[result.profile.reporting.between_lod_and_reporting_limit], None)]
     if cal.vertex is not None:
@@ -385,7 +392,12 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     rows.append(("Reported values rounded to", result.run.settings.rounding.description, None))
     rows.append(("Interval", interval_words(result, a), None))
     if a.limits is not None:
-        rows += [("LOD", a.limits.lod, None), ("LOQ", a.limits.loq if a.limits.loq is not None else "not defined by this method", None),
+        if a.limits.critical_concentration is not None:  # ISO 11843-2: the decision limits with their values
+            rows += [("Critical value x_c (not detected below it)", a.limits.critical_concentration, None),
+                     ("Critical response y_c", a.limits.critical_response, None)]
+        rows += [("Minimum detectable value x_d" if a.limits.critical_concentration is not None else "LOD",
+                  a.limits.lod, None),
+                 ("LOQ", a.limits.loq if a.limits.loq is not None else "not defined by this method", None),
                  ("LOD/LOQ method", a.limits.description, None)]
     else:
         rows.append(("LOD/LOQ", f"not computed: {a.limits_note}", None))

@@ -164,7 +164,8 @@ def choose_model(
     recommended: tuple[str, str] | None = None, user: Identity | str | None = None, clock: Clock = utc_now,
 ) -> Run:
     """Record the calibration function chosen for an analyte. A choice against the recommendation, or
-    against the model the run's validated method fixes, needs a reason."""
+    against the model the run's validated method fixes, needs a reason; so does any choice where no
+    model is recommended (``recommended`` empty: no candidate is acceptable)."""
     m, w = Model.parse(model).value, Weighting.parse(weighting).value
     fixed = method_of(run)
     fixed_analyte = fixed.analyte(analyte) if fixed is not None else None
@@ -176,6 +177,8 @@ def choose_model(
     if fixed_analyte is None and recommended is not None and (m, w) != tuple(recommended) and not reason.strip():
         raise RunError(
             f"{analyte}: {m}, {w} differs from the recommended {recommended[0]}, {recommended[1]}; give the reason for the choice."
+            if recommended else f"{analyte}: no model is recommended (no candidate is acceptable); give the reason for "
+            f"choosing {m}, {w}."
         )
     a = run.analyte(analyte)
     changed = replace(a, model=m, weighting=w, choice_reason=reason.strip())

@@ -1,0 +1,65 @@
+"""A response beyond a quadratic's turning point gives no concentration, in every output.
+
+Invented scenario: the Brackenfield metals laboratory's zinc emission line (mg/L), duplicates at
+eight levels from 0.5 to 50 mg/L, curving over towards the top, fitted as a quadratic weighted 1/x.
+The curve's highest value (its vertex) is checked here with numpy's weighted polynomial fit
+(``numpy.polyfit``, weights √(1/x) on the residuals): two samples read above it, where no
+concentration gives their response. The engine's stand-in, the vertex itself, must not be reported as
+a result, nor a dilution worked out from it.
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import numpy as np
+import openpyxl
+
+from tests.test_cli_tables import run_cli, write
+
+STANDARDS = [("Z00", 0.5, 51.46), ("Z01", 0.5, 51.72), ("Z10", 1, 100.95), ("Z11", 1, 100.31),
+             ("Z20", 2, 199.11), ("Z21", 2, 198.87), ("Z30", 5, 481.26), ("Z31", 5, 479.85),
+             ("Z40", 10, 923.71), ("Z41", 10, 925.47), ("Z50", 20, 1682.63), ("Z51", 20, 1685.52),
+             ("Z60", 35, 2520.32), ("Z61", 35, 2541.44), ("Z70", 50, 2999.38), ("Z71", 50, 2991.27)]
+SAMPLES = [("E1", 2990), ("E3", 3100), ("E4", 3126), ("E5", 3140), ("E7", 1500)]
+
+
+def test_a_response_above_the_curves_maximum_is_not_given_a_number_or_a_dilution(tmp_path: Path) -> None:
+    x = np.array([c for _, c, _ in STANDARDS], dtype=float)
+    y = np.array([r for _, _, r in STANDARDS])
+    c2, c1, c0 = np.polyfit(x, y, 2, w=np.sqrt(1 / x))  # numpy: minimises Σ (w·residual)², so w² = 1/x
+    vertex = -c1 / (2 * c2)
+    top = c0 + c1 * vertex + c2 * vertex**2
+    assert 62.0 < vertex < 62.3 and 3118 < top < 3119  # the curve's maximum, 3118.4 at 62.13 mg/L
+    assert 3126 > top and 3140 > top and 3100 < top     # E4 and E5 read above it, E3 below it
+
+    std = write(tmp_path / "std.csv", ["Standard,Level,Concentration (mg/L),Emission",
+                                       *[f"{i},L{k // 2},{c},{r}" for k, (i, c, r) in enumerate(STANDARDS)]])
+    smp = write(tmp_path / "smp.csv", ["Sample,Dilution,Emission", *[f"{i},1,{r}" for i, r in SAMPLES]])
+    args = ("quantify", "--standards", str(std), "--samples", str(smp), "--analyte", "zinc",
+            "--model", "quadratic", "--weighting", "1/x")
+    book = tmp_path / "out.xlsx"
+    text = run_cli(*args, "--export", str(book))
+    assert text.returncode in (0, 1), text.stderr
+    for sid in ("E4", "E5"):
+        row = next(line for line in text.stdout.splitlines() if line.strip().startswith(sid + " "))
+        assert "not quantified" in row and "beyond the curve's turning point" in row and "re-assay the sample diluted" in row
+        assert "62.1" not in row and "×5" not in row, row
+
+    data = json.loads(run_cli(*args, "--json").stdout)
+    by_id = {s["id"]: s for s in data["analytes"][0]["samples"]}
+    for sid in ("E4", "E5"):
+        s = by_id[sid]
+        assert s["status"] == "not_quantified" and s["flags"] == ["beyond_turning_point"]
+        assert s["reported"] is None and s["lower"] is None and s["upper"] is None
+        assert s["suggested_dilution"] is None and "no number is reported" in s["flag_words"]
+    # below the maximum: a root on the calibrated branch, above the ULOQ, the interval across the vertex said
+    assert by_id["E3"]["status"] == "above_range" and "turning_point" in by_id["E3"]["flags"]
+    assert "at the curve's turning point" in by_id["E3"]["flag_words"]
+
+    sheet = openpyxl.load_workbook(book)["Summary"]
+    rows = [r for r in sheet.iter_rows(values_only=True) if r and r[0] in ("E4", "E5")]
+    assert len(rows) == 2
+    for r in rows:
+        assert "not quantified" in r and not any(isinstance(v, float) and 62 < v < 63 for v in r), r
