@@ -21,6 +21,7 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QGraphicsItem, QGraphicsObj
 
 from ..core.level_text import percent_label
 from . import figures, palette
+from .flow_layout import FlowRow
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -786,6 +787,10 @@ class CurveView(QWidget):
         figures.legend_beside(self.graphics.ci, self.lower_legend, row=1)
         self.graphics.ci.layout.setRowStretchFactor(0, 3)
         self.graphics.ci.layout.setRowStretchFactor(1, 2)
+        # each plot keeps room for its data (four text lines high) and its legend beside it whole;
+        # the view asks its window for that height (see _fit_plot_heights)
+        for plot in (self.curve_plot, self.lower_plot):
+            plot.getViewBox().setMinimumHeight(4 * self.fontMetrics().height())
         self.confidence = QCheckBox("&Confidence band")
         self.prediction = QCheckBox("&Prediction band")
         self.log_axis = QCheckBox("&Log concentration axis")
@@ -796,10 +801,16 @@ class CurveView(QWidget):
         self.lower_kind.setAccessibleName("Lower plot")
         self.empty_note = QLabel("")
         self.curve_words = _Words("The fitted curve: equation and parameters")
-        controls = QHBoxLayout()
-        for w in (self.confidence, self.prediction, self.log_axis, QLabel("Below:"), self.lower_kind):
+        # the options in one row where the view is wide enough, else on as many rows as they need
+        # (never squeezed below their texts); the lower plot's choice stays beside its label
+        below = QWidget()
+        below_row = QHBoxLayout(below)
+        below_row.setContentsMargins(0, 0, 0, 0)
+        below_row.addWidget(QLabel("Below:"))
+        below_row.addWidget(self.lower_kind)
+        controls = FlowRow()
+        for w in (self.confidence, self.prediction, self.log_axis, below):
             controls.addWidget(w)
-        controls.addStretch(1)
         layout = QVBoxLayout(self)
         layout.setContentsMargins(0, 0, 0, 0)
         layout.addLayout(controls)
@@ -826,6 +837,8 @@ class CurveView(QWidget):
         self._hover_cache: list[tuple[float, float, str]] | None = None
         self._proxy = pg.SignalProxy(self.graphics.scene().sigMouseMoved, rateLimit=30, slot=self._on_mouse)
         self._activation_filter = _same_when_inactive(self.graphics)
+        self._smallest_height: int | None = None
+        """The height the view needs at its width, as last told to its layout (see :meth:`resizeEvent`)."""
 
     @property
     def _hover_points(self) -> list[tuple[float, float, str]]:
@@ -899,6 +912,37 @@ class CurveView(QWidget):
         width = max(figures.fit_legend(self.graphics.ci, legend) for legend in legends)
         for legend in legends:
             legend.setFixedWidth(width)
+        self._fit_plot_heights()
+
+    def _fit_plot_heights(self) -> None:
+        """Ask for the height the plots need at the least: each plot's row as tall as its legend, and
+        as its axes and four text lines of data. (A graphics view tells its layout nothing of the
+        items it shows: without this the window let the lower plot shrink to a line and cut the
+        legends.)"""
+        from math import ceil
+
+        needed = self.graphics.ci.effectiveSizeHint(Qt.SizeHint.MinimumSize).height()
+        self.graphics.setMinimumHeight(ceil(needed) + 2 * self.graphics.frameWidth())
+
+    def minimumSizeHint(self) -> QSize:  # noqa: N802 - Qt override
+        """The smallest size of the view at its width: the options take more rows when narrow."""
+        hint = super().minimumSizeHint()
+        if self.width() > 0:
+            hint.setHeight(max(hint.height(), self.heightForWidth(self.width())))
+        return hint
+
+    def heightForWidth(self, width: int) -> int:  # noqa: N802 - Qt override
+        """The height the view needs at ``width`` (its options' rows, the words' lines, the plots'
+        smallest height); any more height goes to the plots."""
+        return self.layout().minimumHeightForWidth(width)
+
+    def resizeEvent(self, event) -> None:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        super().resizeEvent(event)
+        if event.size().width() != event.oldSize().width():
+            smallest = self.layout().minimumHeightForWidth(self.width())
+            if smallest != self._smallest_height:
+                self._smallest_height = smallest
+                self.updateGeometry()  # the options took another number of rows
 
     def _points(self, a: AnalyteResult, log_x: bool) -> list[tuple[float, float, str]]:
         from ..core.run_analysis import response_value
