@@ -200,7 +200,49 @@ def _drawn_by_qt_raster(device) -> bool:  # type: ignore[no-untyped-def]
     return type(device) in (QWidget, QImage, QPixmap)
 
 
-class _GridAxis(pg.AxisItem):
+class _TitledAxis(pg.AxisItem):
+    """A pyqtgraph axis whose title, where it is longer than the axis, goes on to more lines
+    (centred) rather than being cut: the axis then takes the room of the added lines beside it (a
+    plot's left axis is as long as the plot is high, and a long response title with "(log scale)"
+    did not fit a plot of a laptop's height). A title that fits is laid out as pyqtgraph lays it out."""
+
+    def resizeEvent(self, ev=None) -> None:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        if self.label is not None and self._wrap_title():
+            # the title took another number of lines: the axis takes their room beside it
+            if self.orientation in ("left", "right"):
+                self._updateWidth()
+            else:
+                self._updateHeight()
+        super().resizeEvent(ev)
+
+    def _updateLabel(self) -> None:  # noqa: N802 - pyqtgraph override
+        self.label.setTextWidth(-1)  # a new title is measured on one line, then wrapped to the axis
+        super()._updateLabel()
+        if self._wrap_title():
+            self._adjustSize()
+
+    def _wrap_title(self) -> bool:
+        """Wrap the title to the axis' length where it is longer on one line; True when that changed
+        its lines."""
+        label = self.label
+        vertical = self.orientation in ("left", "right")
+        length = self.size().height() if vertical else self.size().width()
+        before = label.textWidth()
+        if before >= 0:
+            label.setTextWidth(-1)
+        margin = label.document().documentMargin()  # the text lies this far within the title's box
+        one_line = label.boundingRect().width() - 2 * margin
+        # a pixel less than the axis: pyqtgraph places the title on whole pixels
+        wanted = float(length) - 1 + 2 * margin if 0 < length < one_line else -1.0
+        if wanted != -1.0:
+            option = label.document().defaultTextOption()
+            option.setAlignment(Qt.AlignmentFlag.AlignHCenter)
+            label.document().setDefaultTextOption(option)
+            label.setTextWidth(wanted)
+        return wanted != before
+
+
+class _GridAxis(_TitledAxis):
     """A pyqtgraph axis that draws the same pixels as pyqtgraph's, faster where it has a grid.
 
     pyqtgraph records an axis as one picture: the axis line, then each tick with its grid line across
@@ -1014,7 +1056,7 @@ class InfluenceView(QWidget):
         super().__init__(parent)
         self.widget = pg.GraphicsLayoutWidget()
         self.widget.setBackground("w")
-        self.plot = self.widget.addPlot(row=0, col=0)
+        self.plot = self.widget.addPlot(row=0, col=0, axisItems={side: _TitledAxis(side) for side in ("left", "bottom")})
         self.legend = figures.new_legend()
         figures.legend_beside(self.widget.ci, self.legend, row=0)
         self.note = QLabel("Leverage against the externally studentized residual (as in the standards table and its "
