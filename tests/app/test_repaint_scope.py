@@ -84,7 +84,7 @@ def test_new_curve_words_of_as_many_lines_lay_nothing_out_again(qtbot, make_wind
     session.apply(changed_response(session.run, 2), "Change a response")  # the first redraw may size the axes
     settle(qtbot, window)
     watcher = Watch()
-    for widget in (view, view.parentWidget()):  # the view and the splitter it is laid out in
+    for widget in (view, view.parentWidget()):  # the view and the widget it is laid out in
         widget.installEventFilter(watcher)
     before = view.curve_words.text()
     height = view.curve_words.height()
@@ -147,6 +147,8 @@ def test_an_axis_whose_range_did_not_change_keeps_its_picture(qtbot, make_window
     they keep the picture they were painted with; the response axes, whose range moved, are drawn
     anew. (That the view then looks as one drawn anew is held by tests/app/test_curve_items.py.)"""
     window = make_window(WEIGHTED)
+    # plots wide enough that the points' pixel margins leave the concentration ranges as they were
+    window.resize(1457, 901)
     session, view = window.session, window.curve_view
     session.apply(typed_response(session.run, 1), "Change a response")
     settle(qtbot, window)

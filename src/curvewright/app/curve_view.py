@@ -21,6 +21,7 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QGraphicsItem, QGraphicsObj
 
 from ..core.level_text import percent_label
 from . import figures, palette
+from .flow_layout import FlowRow
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -199,7 +200,49 @@ def _drawn_by_qt_raster(device) -> bool:  # type: ignore[no-untyped-def]
     return type(device) in (QWidget, QImage, QPixmap)
 
 
-class _GridAxis(pg.AxisItem):
+class _TitledAxis(pg.AxisItem):
+    """A pyqtgraph axis whose title, where it is longer than the axis, goes on to more lines
+    (centred) rather than being cut: the axis then takes the room of the added lines beside it (a
+    plot's left axis is as long as the plot is high, and a long response title with "(log scale)"
+    did not fit a plot of a laptop's height). A title that fits is laid out as pyqtgraph lays it out."""
+
+    def resizeEvent(self, ev=None) -> None:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        if self.label is not None and self._wrap_title():
+            # the title took another number of lines: the axis takes their room beside it
+            if self.orientation in ("left", "right"):
+                self._updateWidth()
+            else:
+                self._updateHeight()
+        super().resizeEvent(ev)
+
+    def _updateLabel(self) -> None:  # noqa: N802 - pyqtgraph override
+        self.label.setTextWidth(-1)  # a new title is measured on one line, then wrapped to the axis
+        super()._updateLabel()
+        if self._wrap_title():
+            self._adjustSize()
+
+    def _wrap_title(self) -> bool:
+        """Wrap the title to the axis' length where it is longer on one line; True when that changed
+        its lines."""
+        label = self.label
+        vertical = self.orientation in ("left", "right")
+        length = self.size().height() if vertical else self.size().width()
+        before = label.textWidth()
+        if before >= 0:
+            label.setTextWidth(-1)
+        margin = label.document().documentMargin()  # the text lies this far within the title's box
+        one_line = label.boundingRect().width() - 2 * margin
+        # a pixel less than the axis: pyqtgraph places the title on whole pixels
+        wanted = float(length) - 1 + 2 * margin if 0 < length < one_line else -1.0
+        if wanted != -1.0:
+            option = label.document().defaultTextOption()
+            option.setAlignment(Qt.AlignmentFlag.AlignHCenter)
+            label.document().setDefaultTextOption(option)
+            label.setTextWidth(wanted)
+        return wanted != before
+
+
+class _GridAxis(_TitledAxis):
     """A pyqtgraph axis that draws the same pixels as pyqtgraph's, faster where it has a grid.
 
     pyqtgraph records an axis as one picture: the axis line, then each tick with its grid line across
@@ -787,6 +830,10 @@ class CurveView(QWidget):
         figures.legend_beside(self.graphics.ci, self.lower_legend, row=1)
         self.graphics.ci.layout.setRowStretchFactor(0, 3)
         self.graphics.ci.layout.setRowStretchFactor(1, 2)
+        # each plot keeps room for its data (four text lines high) and its legend beside it whole;
+        # the view asks its window for that height (see _fit_plot_heights)
+        for plot in (self.curve_plot, self.lower_plot):
+            plot.getViewBox().setMinimumHeight(4 * self.fontMetrics().height())
         self.confidence = QCheckBox("&Confidence band")
         self.prediction = QCheckBox("&Prediction band")
         self.log_axis = QCheckBox("&Log concentration axis")
@@ -797,10 +844,16 @@ class CurveView(QWidget):
         self.lower_kind.setAccessibleName("Lower plot")
         self.empty_note = QLabel("")
         self.curve_words = _Words("The fitted curve: equation and parameters")
-        controls = QHBoxLayout()
-        for w in (self.confidence, self.prediction, self.log_axis, QLabel("Below:"), self.lower_kind):
+        # the options in one row where the view is wide enough, else on as many rows as they need
+        # (never squeezed below their texts); the lower plot's choice stays beside its label
+        below = QWidget()
+        below_row = QHBoxLayout(below)
+        below_row.setContentsMargins(0, 0, 0, 0)
+        below_row.addWidget(QLabel("Below:"))
+        below_row.addWidget(self.lower_kind)
+        controls = FlowRow()
+        for w in (self.confidence, self.prediction, self.log_axis, below):
             controls.addWidget(w)
-        controls.addStretch(1)
         layout = QVBoxLayout(self)
         layout.setContentsMargins(0, 0, 0, 0)
         layout.addLayout(controls)
@@ -827,6 +880,8 @@ class CurveView(QWidget):
         self._hover_cache: list[tuple[float, float, str]] | None = None
         self._proxy = pg.SignalProxy(self.graphics.scene().sigMouseMoved, rateLimit=30, slot=self._on_mouse)
         self._activation_filter = _same_when_inactive(self.graphics)
+        self._smallest_height: int | None = None
+        """The height the view needs at its width, as last told to its layout (see :meth:`resizeEvent`)."""
 
     @property
     def _hover_points(self) -> list[tuple[float, float, str]]:
@@ -900,6 +955,37 @@ class CurveView(QWidget):
         width = max(figures.fit_legend(self.graphics.ci, legend) for legend in legends)
         for legend in legends:
             legend.setFixedWidth(width)
+        self._fit_plot_heights()
+
+    def _fit_plot_heights(self) -> None:
+        """Ask for the height the plots need at the least: each plot's row as tall as its legend, and
+        as its axes and four text lines of data. (A graphics view tells its layout nothing of the
+        items it shows: without this the window let the lower plot shrink to a line and cut the
+        legends.)"""
+        from math import ceil
+
+        needed = self.graphics.ci.effectiveSizeHint(Qt.SizeHint.MinimumSize).height()
+        self.graphics.setMinimumHeight(ceil(needed) + 2 * self.graphics.frameWidth())
+
+    def minimumSizeHint(self) -> QSize:  # noqa: N802 - Qt override
+        """The smallest size of the view at its width: the options take more rows when narrow."""
+        hint = super().minimumSizeHint()
+        if self.width() > 0:
+            hint.setHeight(max(hint.height(), self.heightForWidth(self.width())))
+        return hint
+
+    def heightForWidth(self, width: int) -> int:  # noqa: N802 - Qt override
+        """The height the view needs at ``width`` (its options' rows, the words' lines, the plots'
+        smallest height); any more height goes to the plots."""
+        return self.layout().minimumHeightForWidth(width)
+
+    def resizeEvent(self, event) -> None:  # type: ignore[no-untyped-def]  # noqa: N802 - Qt override
+        super().resizeEvent(event)
+        if event.size().width() != event.oldSize().width():
+            smallest = self.layout().minimumHeightForWidth(self.width())
+            if smallest != self._smallest_height:
+                self._smallest_height = smallest
+                self.updateGeometry()  # the options took another number of rows
 
     def _points(self, a: AnalyteResult, log_x: bool) -> list[tuple[float, float, str]]:
         from ..core.run_analysis import response_value
@@ -971,7 +1057,7 @@ class InfluenceView(QWidget):
         super().__init__(parent)
         self.widget = pg.GraphicsLayoutWidget()
         self.widget.setBackground("w")
-        self.plot = self.widget.addPlot(row=0, col=0)
+        self.plot = self.widget.addPlot(row=0, col=0, axisItems={side: _TitledAxis(side) for side in ("left", "bottom")})
         self.legend = figures.new_legend()
         figures.legend_beside(self.widget.ci, self.legend, row=0)
         self.note = QLabel("Leverage against the externally studentized residual (as in the standards table and its "

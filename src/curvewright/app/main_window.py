@@ -17,9 +17,9 @@ import numpy as np
 import shiboken6
 from PySide6.QtCore import QSettings, Qt, QTimer
 from PySide6.QtGui import QAction, QKeySequence
-from PySide6.QtWidgets import (QComboBox, QFileDialog, QHBoxLayout, QLabel, QMainWindow, QMenu,
-                               QMessageBox, QProgressDialog, QPushButton, QSplitter, QTabWidget, QVBoxLayout,
-                               QWidget)
+from PySide6.QtWidgets import (QComboBox, QFileDialog, QFrame, QHBoxLayout, QLabel, QMainWindow, QMenu,
+                               QMessageBox, QProgressDialog, QPushButton, QScrollArea, QSplitter, QTabWidget,
+                               QVBoxLayout, QWidget)
 
 from .. import CAUTION, __version__
 from ..core.errors import CurvewrightError
@@ -49,6 +49,24 @@ if TYPE_CHECKING:
 MAX_RECENT = 8
 PREFERENCES_MENU = "Analysis → Your name and decimal mark…"
 """Where the analyst's own name, laboratory ID and decimal mark are set (a locked run's too)."""
+
+
+def standards_key_columns() -> tuple[int, ...]:
+    """The standards table's columns kept in view where the window is wide enough: the standard, what
+    was entered for it, and what the fit found (back-calculated value, %RE, within limits). Whether a
+    standard is in the fit shows in its row too (an excluded standard's row is greyed)."""
+    from . import standards_model as sm
+
+    return (sm.ID, sm.LEVEL, sm.REP, sm.CONC, sm.RESP, sm.IS, sm.BACK, sm.RE, sm.LIMITS)
+
+
+def results_key_columns() -> tuple[int, ...]:
+    """The results table's columns kept in view: the sample, what is reported, its interval, its flags."""
+    from . import results_model as rm
+
+    return (rm.SAMPLE, rm.REPORTED, rm.INTERVAL, rm.FLAGS)
+
+
 def blank_run(settings: QSettings | None = None) -> Run:
     from ..core.rounding import RoundingRule
     from ..core.run import RunSettings
@@ -72,7 +90,6 @@ class MainWindow(QMainWindow):
         self.settings = settings
         self.session: RunSession = session
         self.actions_by_name: dict[str, QAction] = {}
-        self.setMinimumSize(960, 600)
         self._build()
         self._menus()
         self.attach(session)
@@ -175,17 +192,33 @@ class MainWindow(QMainWindow):
         self.additions_view = AdditionsView()
         self.bottom_tabs.addTab(self.additions_view, "Standard a&dditions")
         self.bottom_tabs.currentChanged.connect(self._refresh_tab)
+        # the plots keep the height they need whole; on a screen too short for them and the results,
+        # their part of the window scrolls
+        self.curve_area = QScrollArea()
+        self.curve_area.setWidget(self.curve_view)
+        self.curve_area.setWidgetResizable(True)
+        self.curve_area.setFrameShape(QFrame.Shape.NoFrame)
+        self.curve_area.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        self.curve_area.setMinimumWidth(self.curve_view.minimumSizeHint().width()
+                                        + self.curve_area.verticalScrollBar().sizeHint().width())
         right = QSplitter(Qt.Orientation.Vertical)
-        right.addWidget(self.curve_view)
+        right.addWidget(self.curve_area)
         right.addWidget(self.bottom_tabs)
         right.setStretchFactor(0, 5)
         right.setStretchFactor(1, 4)
+        self.right_splitter = right
         split = QSplitter(Qt.Orientation.Horizontal)
         split.addWidget(left)
         split.addWidget(right)
         split.setStretchFactor(0, 2)
         split.setStretchFactor(1, 3)
         self.splitter = split
+        self._arranged_by_user: set[QSplitter] = set()
+        self._panes_arranged_for: RunSession | None = None
+        self._key_widths: dict[str, int | None] = {}
+        """The pane widths the tables' key columns needed when last laid out (see :meth:`arrange_panes`)."""
+        for splitter in (split, right):
+            splitter.splitterMoved.connect(lambda _pos, _index, moved=splitter: self._arranged_by_user.add(moved))
         central = QWidget()
         layout = QVBoxLayout(central)
         layout.setContentsMargins(6, 4, 6, 2)
@@ -202,13 +235,67 @@ class MainWindow(QMainWindow):
 
     def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().resizeEvent(event)
-        # the inputs take two fifths of the width, the curve and the results the rest
-        if not getattr(self, "_split_placed", False) and self.width() > 0:
-            self.splitter.setSizes([int(self.width() * 0.4), int(self.width() * 0.6)])
+        self.arrange_panes()
 
     def showEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().showEvent(event)
-        self._split_placed = True
+        self.arrange_panes()
+
+    def arrange_panes(self) -> None:
+        """Share the window between the panes, until the analyst moves a divider (then that divider
+        stays where it was put).
+
+        Across: the inputs take two fifths of the width, or more (up to eleven twentieths) where that
+        leaves the standards' key columns (the id to the judgement against the limits) to be scrolled
+        to sideways, as long as the results keep theirs (the sample to its flags) in view. Down: the
+        plots take five ninths of the height, or more where they need it whole, as long as the results
+        keep their smallest height; on a screen too short for both, the plots' part scrolls.
+
+        The panes are arranged when the window is shown or resized, and when the first result of the
+        open run is shown (the columns of what the fit found then take their widths): an edit never
+        moves them."""
+        if not self.isVisible():
+            return
+        if self.splitter not in self._arranged_by_user and self.splitter.width() > 0:
+            self._arrange_across()
+        if self.right_splitter not in self._arranged_by_user and self.right_splitter.height() > 0:
+            self._arrange_down()
+
+    def _arrange_across(self) -> None:
+        split, right = self.splitter, self.right_splitter
+        shown = split.sizes()
+        needed_left = self._key_columns_width(self.standards_view, standards_key_columns(), shown[0])
+        needed_right = self._key_columns_width(self.results_view.table, results_key_columns(), shown[1])
+        # a table behind another tab keeps the width it needed when last seen
+        needed_left = self._key_widths["standards"] = needed_left or self._key_widths.get("standards")
+        needed_right = self._key_widths["results"] = needed_right or self._key_widths.get("results")
+        room = split.width() - split.handleWidth()
+        left = int(room * 0.4)
+        if needed_left is not None:
+            left = max(left, min(needed_left, room - (needed_right or 0), int(room * 0.55)))
+        left = max(split.widget(0).minimumSizeHint().width(),
+                   min(left, room - right.minimumSizeHint().width()))
+        if shown != [left, room - left]:
+            split.setSizes([left, room - left])
+
+    def _arrange_down(self) -> None:
+        right = self.right_splitter
+        shown = right.sizes()
+        needed = self.curve_view.heightForWidth(self.curve_area.width())
+        room = right.height() - right.handleWidth()
+        top = max(room * 5 // 9, min(needed, room - self.bottom_tabs.minimumSizeHint().height()))
+        if shown != [top, room - top]:
+            right.setSizes([top, room - top])
+
+    @staticmethod
+    def _key_columns_width(view, columns, pane_width: int) -> int | None:  # type: ignore[no-untyped-def]
+        """The pane width at which ``view`` shows ``columns`` (leftmost first) without scrolling
+        sideways: their widths, and what the pane takes besides its table's cells (row numbers, frames,
+        scroll bar), as laid out now. None while the table is not laid out."""
+        if not view.isVisible() or view.model() is None or view.viewport().width() <= 0:
+            return None
+        cells = sum(view.columnWidth(c) for c in columns if not view.isColumnHidden(c))
+        return cells + pane_width - view.viewport().width()
 
     def paintEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().paintEvent(event)
@@ -385,6 +472,9 @@ class MainWindow(QMainWindow):
                 fit_columns(view)
             else:
                 self._unfitted_tables.add(view)
+        if self.isVisible() and self._panes_arranged_for is not self.session:
+            self._panes_arranged_for = self.session  # the open run's first result: its columns' widths known
+            self.arrange_panes()
 
     def _fit_opened_table(self, _index: int) -> None:
         for view in list(self._unfitted_tables):
