@@ -413,3 +413,49 @@ def test_the_half_widths_used_as_guesses() -> None:
     odd = np.array([0.5, np.nan, np.inf, 0.0, -1.0, -np.inf, 3.0])
     assert np.array_equal(inverse._usable_guess(odd), [0.5, 1e-3, 1e-3, 1e-3, 1e-3, 1e-3, 3.0])
     assert inverse._usable_guess(np.zeros(0)).size == 0
+
+
+def test_the_tests_for_every_stop_and_a_convex_band_never_overrule_the_test_at_each_position() -> None:
+    """The block's extremes may tell that every unknown stops after Halley's second step, and that
+    the quick convexity bound holds at every position; where they say so, the tests at each position
+    (``_step_converged``, ``_convex``) must agree, including a step and a bound exactly at their
+    limits, and numbers that are not finite are left to those tests."""
+    rng = np.random.default_rng(9)
+    decided = {"stops": 0, "convex": 0}
+    for trial in range(300):
+        # pieces as a block's direct ends see them: negative at ẑ, curving up, small h³ and h⁴ terms
+        # (of either sign, some large enough for the quick bound to fail somewhere)
+        n = int(rng.integers(1, 60))
+        size = 10.0 ** rng.uniform(-3, 3)
+        c = [-rng.uniform(0.1, 1.0, n) * size, rng.standard_normal(n) * size, rng.uniform(0.5, 2.0, n) * size,
+             rng.standard_normal(n) * size * 10.0 ** rng.uniform(-3, 1), float(rng.standard_normal() * size)]
+        first = bp._Start(bp.ShiftedBand(np.zeros(n), c, None, None))
+        start = rng.uniform(-3, 3, n)
+        h = rng.uniform(0.5, 2.0, n) * 10.0 ** rng.uniform(-4, 0) * (1 if trial % 2 else -1)
+        if trial % 5 == 0:
+            h[0] = -h[0]  # h of both signs
+        tolerance = first.tolerance(start)
+        step = rng.uniform(-1.0, 1.0, n) * 10.0 ** rng.uniform(-12, -6)
+        if trial % 3 == 0:
+            # the largest step exactly at the least limit
+            i = int(np.argmin(np.abs(h)))
+            least = np.abs(h[i]) * bp._CONVERGED + float(np.min(tolerance))
+            step[i] = least
+        if trial % 13 == 0:
+            step[int(rng.integers(n))] = np.nan
+        low, high = float(np.min(h)), float(np.max(h))
+        if bp._all_converged(step, first, start, low, high):
+            decided["stops"] += 1
+            assert bp._step_converged(step.copy(), tolerance, h).all(), trial
+        if bp._surely_convex(first, low, high):
+            decided["convex"] += 1
+            assert bp._convex(first, h).all(), trial
+    assert decided["stops"] > 30 and decided["convex"] > 30, decided  # both are exercised
+    first = random_pieces(0)
+    with np.errstate(invalid="ignore"):
+        assert not bp._surely_convex(first, float("nan"), 1.0)
+        assert not bp._all_converged(np.array([np.inf]), first, np.ones(1), 1.0, 1.0)
+    # a piece of no unknowns gives no ends (the extremes of nothing decide nothing)
+    none = bp.ShiftedBand(np.zeros(0), [np.zeros(0) - 1.0, np.zeros(0), np.zeros(0) + 1.0, np.zeros(0), 0.5], None, None)
+    h, certain, _ = bp._convex_end(none, bp._Start(none), 1.0, 10.0, np.zeros(0), np.zeros(0))
+    assert h.size == 0 and certain.size == 0

@@ -419,6 +419,12 @@ def _reach_past_vertex(h_vertex: FloatArray, direction: float, full_reach: float
     return towards, np.where(towards, np.abs(h_vertex), 0.0) + full_reach
 
 
+def _extreme(ufunc: np.ufunc, values: FloatArray | float) -> float:
+    """The least (``np.minimum``) or largest (``np.maximum``) of ``values`` (NaN where one is NaN, or
+    where there are none, so that no test on it passes)."""
+    return float(ufunc.reduce(values, axis=None)) if np.size(values) else float("nan")
+
+
 class _Start:
     """What both sides' direct ends share: the coefficients of the piece that holds ẑ, the roots of
     its quadratic part, g(0) < 0, and the terms of g′ and g″ that do not depend on h."""
@@ -447,6 +453,9 @@ class _Start:
                 self.abs_six_c3 = np.abs(self.six_c3)
         self._tolerance = None
         self._largest_tolerance: float | None = None
+        self._least_tolerance: float | None = None
+        self._largest_abs_six_c3: float | None = None
+        self._least_convex_margin: float | None = None
 
     def below_index(self) -> np.ndarray:
         """The positions of the unknowns whose ẑ lies below the lowest standard (h_break > 0)."""
@@ -461,10 +470,28 @@ class _Start:
             self._tolerance = _CONVERGED * np.abs(start)
         return self._tolerance
 
+    def least_tolerance(self, start: FloatArray) -> float:
+        """The least of :meth:`tolerance` (NaN where one is NaN), worked out once for both sides."""
+        if self._least_tolerance is None:
+            self._least_tolerance = _extreme(np.minimum, self.tolerance(start))
+        return self._least_tolerance
+
+    def largest_abs_six_c3(self) -> float:
+        """The largest |6c3| (NaN where one is NaN), worked out once for both sides."""
+        if self._largest_abs_six_c3 is None:
+            self._largest_abs_six_c3 = _extreme(np.maximum, self.abs_six_c3)
+        return self._largest_abs_six_c3
+
+    def least_convex_margin(self) -> float:
+        """The least of the convexity margins (NaN where one is NaN), worked out once for both sides."""
+        if self._least_convex_margin is None:
+            self._least_convex_margin = _extreme(np.minimum, self.convex_margin)
+        return self._least_convex_margin
+
     def largest_tolerance(self, start: FloatArray) -> float:
         """The largest of :meth:`tolerance` (NaN where one is NaN), worked out once for both sides."""
         if self._largest_tolerance is None:
-            self._largest_tolerance = float(np.maximum.reduce(self.tolerance(start)))
+            self._largest_tolerance = _extreme(np.maximum, self.tolerance(start))
         return self._largest_tolerance
 
 
@@ -503,14 +530,21 @@ def _convex_end(
             # takes the first step; one whose step is already below the test stops there.
             step = _halley_step(first, h)
             h -= step
-            if _none_converged(step, first.largest_tolerance(start), h):
-                # no unknown stops after the first step (the usual case): every one takes the
-                # second, in place; the same bits as the general case below with no step-one stops
+            # which stop after the first step: none (the usual case) where the block's extremes tell
+            stops = None if _none_converged(step, first.largest_tolerance(start), h) else (
+                _step_converged(step, tolerance, h))
+            if stops is None or not stops.any():
+                # no unknown stops after the first step: every one takes the second, in place; the
+                # same bits as the general case below with no step-one stops
                 step = _halley_step(first, h)
                 h -= step
-                converged = _step_converged(step, tolerance, h)
+                h_low, h_high = (np.minimum.reduce(h), np.maximum.reduce(h)) if h.size else (np.nan, np.nan)
+                # every unknown stopping after the second step is the usual case: decided from the
+                # block's extremes where they tell (True stands for "all"), else at each position
+                converged = True if _all_converged(step, first, start, h_low, h_high) else (
+                    _step_converged(step, tolerance, h))
             else:
-                converged = _step_converged(step, tolerance, h)
+                converged = stops
                 if not converged.all():
                     step = _halley_step(first, h)
                     after = h - step
@@ -519,7 +553,7 @@ def _convex_end(
                         after = np.where(converged, h, after)
                         done |= converged
                     h, converged = after, done
-            if not converged.all():
+            if converged is not True and not converged.all():
                 # the few still moving take their further steps alone
                 rest = np.flatnonzero(~converged)
                 part = _Start.__new__(_Start)
@@ -534,7 +568,7 @@ def _convex_end(
                     if not moving.any():
                         break
                 h[rest], converged[rest] = hr, ~moving
-            convex = _convex(first, h)
+            convex = True if converged is True and _surely_convex(first, h_low, h_high) else _convex(first, h)
         # 0 < u ≤ reach with u = h·direction, compared without the product (multiplying and negating
         # by ±1 are exact); within a finite reach it holds only for a finite h
         if direction > 0:
@@ -546,8 +580,10 @@ def _convex_end(
         if not (np.ndim(reach) == 0 and np.isfinite(reach)):
             certain &= np.isfinite(h)
         certain &= first.inside
-        certain &= convex
-        certain &= converged
+        if convex is not True:
+            certain &= convex
+        if converged is not True:
+            certain &= converged
         crossed = None
         if first.below_break is not None:
             if direction > 0:
@@ -652,6 +688,39 @@ def _none_converged(step: FloatArray, largest_tolerance: float, h: FloatArray) -
     bound = max(-h_low, h_high) * _CONVERGED
     bound += largest_tolerance
     return bool(least > bound)
+
+
+def _all_converged(step: FloatArray, first: "_Start", start: FloatArray, h_low: float, h_high: float) -> bool:
+    """True only where every unknown passes :func:`_step_converged` (|step| ≤ tolerance + 1e-6·|h|),
+    found from the block's extremes (``h_low`` and ``h_high``, the least and largest h): each
+    unknown's right-hand side, worked in floating point, is at least fl(fl(1e-6·min|h|) + min
+    tolerance), and its |step| at most the largest |step|, since rounding and each operation on
+    non-negative numbers keep the order. False (the full test decides) where a number is not finite."""
+    if not step.size or not (np.isfinite(h_low) and np.isfinite(h_high)):
+        return False
+    low, high = np.minimum.reduce(step), np.maximum.reduce(step)
+    if not (np.isfinite(low) and np.isfinite(high)):
+        return False
+    # the least |h|: zero where h changes sign (a bound all the same)
+    least_h = h_low if h_low > 0.0 else -h_high if h_high < 0.0 else 0.0
+    bound = least_h * _CONVERGED
+    bound += first.least_tolerance(start)
+    return bool(max(-low, high) <= bound)
+
+
+def _surely_convex(first: "_Start", h_low: float, h_high: float) -> bool:
+    """True only where :func:`_convex`'s bound holds at every position (so that it finds g convex
+    between 0 and every h): its bound |h|·|6c3| (+ (−12c4·|h|)·|h| where c4 < 0), worked in floating
+    point, is at most the same worked with the largest |h| and the largest |6c3|, and it must not
+    exceed the least margin. False (the test at each position decides) where a number is not finite."""
+    if not (np.isfinite(h_low) and np.isfinite(h_high)):
+        return False
+    largest_h = max(-h_low, h_high)
+    bound = largest_h * first.largest_abs_six_c3()
+    c4 = first.c[4]
+    if c4 < 0:
+        bound += (largest_h * (-12.0 * c4)) * largest_h
+    return bool(bound <= first.least_convex_margin())
 
 
 def _step_converged(step: FloatArray, tolerance: FloatArray, h: FloatArray) -> np.ndarray:
