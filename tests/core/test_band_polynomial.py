@@ -456,6 +456,7 @@ def test_the_tests_for_every_stop_and_a_convex_band_never_overrule_the_test_at_e
         assert not bp._surely_convex(first, float("nan"), 1.0)
         assert not bp._all_converged(np.array([np.inf]), first, np.ones(1), 1.0, 1.0)
     # a piece of no unknowns gives no ends (the extremes of nothing decide nothing)
-    none = bp.ShiftedBand(np.zeros(0), [np.zeros(0) - 1.0, np.zeros(0), np.zeros(0) + 1.0, np.zeros(0), 0.5], None, None)
+    empty = np.zeros(0)
+    none = bp.ShiftedBand(empty, [empty - 1.0, empty, empty + 1.0, empty, 0.5], None, None)
     h, certain, _ = bp._convex_end(none, bp._Start(none), 1.0, 10.0, np.zeros(0), np.zeros(0))
     assert h.size == 0 and certain.size == 0
