@@ -54,6 +54,10 @@ _FULL_WIDTH_STEPS = 4
 """Newton steps taken on every unknown of a block before the few still moving are worked alone."""
 _EPS = float(np.finfo(float).eps)
 _CONVEX_STEPS = 4
+_EXTREMES_FROM = 8192
+"""Unknowns in a block from which the tests of Halley's steps are first tried on the block's extremes
+(a few reductions) before each position: below it a reduction costs about as much as the passes it
+would save (numpy's fixed cost per call), so every position is tested."""
 _CONVERGED = 1e-6
 """Relative size of the last of Halley's steps above which the direct end is not trusted: the error
 after a step is of the order of the step cubed, far below a double's resolution."""
@@ -531,18 +535,23 @@ def _convex_end(
             step = _halley_step(first, h)
             h -= step
             # which stop after the first step: none (the usual case) where the block's extremes tell
-            stops = None if _none_converged(step, first.largest_tolerance(start), h) else (
+            by_extremes = h.size >= _EXTREMES_FROM
+            stops = None if by_extremes and _none_converged(step, first.largest_tolerance(start), h) else (
                 _step_converged(step, tolerance, h))
             if stops is None or not stops.any():
                 # no unknown stops after the first step: every one takes the second, in place; the
                 # same bits as the general case below with no step-one stops
                 step = _halley_step(first, h)
                 h -= step
-                h_low, h_high = (np.minimum.reduce(h), np.maximum.reduce(h)) if h.size else (np.nan, np.nan)
                 # every unknown stopping after the second step is the usual case: decided from the
                 # block's extremes where they tell (True stands for "all"), else at each position
-                converged = True if _all_converged(step, first, start, h_low, h_high) else (
-                    _step_converged(step, tolerance, h))
+                converged = None
+                if by_extremes:
+                    h_low, h_high = np.minimum.reduce(h), np.maximum.reduce(h)
+                    if _all_converged(step, first, start, h_low, h_high):
+                        converged = True
+                if converged is None:
+                    converged = _step_converged(step, tolerance, h)
             else:
                 converged = stops
                 if not converged.all():
