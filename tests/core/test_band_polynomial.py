@@ -351,3 +351,112 @@ def test_the_piece_at_each_start_is_chosen_whole_from_its_piece(share: float) ->
         expected = np.where(below, lo, up) if (np.ndim(lo) or np.ndim(up)) and lo is not up else up
         assert np.array_equal(c, expected) and np.shape(c) == np.shape(expected)
     assert chosen[3] is shared and chosen[1] is upper[1]  # what both pieces share is not copied
+
+
+@pytest.mark.parametrize(("model", "weighting"), [("linear", "1/x"), ("linear", "1/x^2"), ("quadratic", "none"),
+                                                  ("quadratic", "1/x^2"), ("quadratic", "1/y")])
+def test_one_count_for_every_unknown_gives_the_bits_of_a_count_for_each(model: str, weighting: str) -> None:
+    """Where every unknown of a call has the same replicate count, the variance of the new mean is
+    scaled by one number instead of an array of equal numbers. An unknown's result depends on its own
+    response and count alone, so the same unknowns quantified beside one unknown of another count
+    (which makes the counts differ within the call) give the same bits, for the single count given
+    as a number and as an array; ends across the lowest standard included."""
+    rng = np.random.default_rng(41)
+    x = np.repeat([0.5, 1.0, 2.0, 5.0, 10.0, 20.0, 40.0], 3)
+    y = (0.05 + 1.2 * x - (0.004 * x * x if model == "quadratic" else 0.0)) * (1 + 0.04 * rng.standard_normal(x.size))
+    cal = cw.fit(x, y, model, weighting)
+    y0 = rng.uniform(float(cal.predict(0.3)) - 0.5, float(cal.predict(45.0)), 3000)
+    for count in (1, 3):
+        alone = [cal.quantify(y0, count), cal.quantify(y0, np.full(y0.size, count))]
+        counts = np.append(np.full(y0.size, count), count + 1)
+        beside = cal.quantify(np.append(y0, y0[0]), counts)
+        for q in alone:
+            for name in ("estimate", "standard_error", "lower", "upper", "flag_bits"):
+                assert np.array_equal(getattr(q, name), getattr(beside, name)[:-1], equal_nan=True), (count, name)
+
+
+def test_the_test_for_no_stop_after_one_step_never_misses_a_stop() -> None:
+    """The block's extremes may tell that no unknown stops after Halley's first step; they must never
+    say so where the test at each position (``_step_converged``) finds one that stops, including one
+    whose step equals its tolerance exactly, and they leave steps of both signs and numbers that are
+    not finite to that test."""
+    rng = np.random.default_rng(8)
+    for trial in range(400):
+        n = int(rng.integers(1, 50))
+        h = rng.uniform(0.5, 2.0, n) * 10.0 ** rng.uniform(-3, 3) * (1 if trial % 2 else -1)
+        tolerance = bp._CONVERGED * np.abs(rng.uniform(-5, 5, n))
+        step = rng.uniform(0.1, 10.0, n) * 10.0 ** rng.uniform(-9, -3) * (1 if trial % 3 else -1)
+        if trial % 4 == 0:
+            # one step exactly at its limit: it stops
+            i = int(rng.integers(n))
+            step[i] = np.copysign(np.abs(h[i]) * bp._CONVERGED + tolerance[i], step[i])
+        if trial % 7 == 0:
+            step[int(rng.integers(n))] = np.nan
+        if trial % 11 == 0:
+            h[int(rng.integers(n))] = np.inf
+        stops = bp._step_converged(step.copy(), tolerance, h)
+        none = bp._none_converged(step, float(np.max(tolerance)), h)
+        if none:
+            assert not stops.any(), trial
+        if trial % 4 == 0 and np.isfinite(step).all() and np.isfinite(h).all():
+            assert stops.any() and not none, trial
+    mixed = np.array([1e-3, -1e-3])
+    assert not bp._none_converged(mixed, 0.0, np.ones(2))
+    assert bp._none_converged(np.array([1e-3, 2e-3]), 1e-9, np.ones(2))  # both decide: far above the limit
+
+
+def test_the_half_widths_used_as_guesses() -> None:
+    """The symmetric half-width guides the search where it is finite and positive; 1e-3 stands in for
+    any other value (the array itself is used when every value is fine)."""
+    fine = np.array([0.5, 2.0, 1e-300])
+    assert inverse._usable_guess(fine) is fine
+    odd = np.array([0.5, np.nan, np.inf, 0.0, -1.0, -np.inf, 3.0])
+    assert np.array_equal(inverse._usable_guess(odd), [0.5, 1e-3, 1e-3, 1e-3, 1e-3, 1e-3, 3.0])
+    assert inverse._usable_guess(np.zeros(0)).size == 0
+
+
+def test_the_tests_for_every_stop_and_a_convex_band_never_overrule_the_test_at_each_position() -> None:
+    """The block's extremes may tell that every unknown stops after Halley's second step, and that
+    the quick convexity bound holds at every position; where they say so, the tests at each position
+    (``_step_converged``, ``_convex``) must agree, including a step and a bound exactly at their
+    limits, and numbers that are not finite are left to those tests."""
+    rng = np.random.default_rng(9)
+    decided = {"stops": 0, "convex": 0}
+    for trial in range(300):
+        # pieces as a block's direct ends see them: negative at ẑ, curving up, small h³ and h⁴ terms
+        # (of either sign, some large enough for the quick bound to fail somewhere)
+        n = int(rng.integers(1, 60))
+        size = 10.0 ** rng.uniform(-3, 3)
+        c = [-rng.uniform(0.1, 1.0, n) * size, rng.standard_normal(n) * size, rng.uniform(0.5, 2.0, n) * size,
+             rng.standard_normal(n) * size * 10.0 ** rng.uniform(-3, 1), float(rng.standard_normal() * size)]
+        first = bp._Start(bp.ShiftedBand(np.zeros(n), c, None, None))
+        start = rng.uniform(-3, 3, n)
+        h = rng.uniform(0.5, 2.0, n) * 10.0 ** rng.uniform(-4, 0) * (1 if trial % 2 else -1)
+        if trial % 5 == 0:
+            h[0] = -h[0]  # h of both signs
+        tolerance = first.tolerance(start)
+        step = rng.uniform(-1.0, 1.0, n) * 10.0 ** rng.uniform(-12, -6)
+        if trial % 3 == 0:
+            # the largest step exactly at the least limit
+            i = int(np.argmin(np.abs(h)))
+            least = np.abs(h[i]) * bp._CONVERGED + float(np.min(tolerance))
+            step[i] = least
+        if trial % 13 == 0:
+            step[int(rng.integers(n))] = np.nan
+        low, high = float(np.min(h)), float(np.max(h))
+        if bp._all_converged(step, first, start, low, high):
+            decided["stops"] += 1
+            assert bp._step_converged(step.copy(), tolerance, h).all(), trial
+        if bp._surely_convex(first, low, high):
+            decided["convex"] += 1
+            assert bp._convex(first, h).all(), trial
+    assert decided["stops"] > 30 and decided["convex"] > 30, decided  # both are exercised
+    first = random_pieces(0)
+    with np.errstate(invalid="ignore"):
+        assert not bp._surely_convex(first, float("nan"), 1.0)
+        assert not bp._all_converged(np.array([np.inf]), first, np.ones(1), 1.0, 1.0)
+    # a piece of no unknowns gives no ends (the extremes of nothing decide nothing)
+    empty = np.zeros(0)
+    none = bp.ShiftedBand(empty, [empty - 1.0, empty, empty + 1.0, empty, 0.5], None, None)
+    h, certain, _ = bp._convex_end(none, bp._Start(none), 1.0, 10.0, np.zeros(0), np.zeros(0))
+    assert h.size == 0 and certain.size == 0

@@ -54,6 +54,10 @@ _FULL_WIDTH_STEPS = 4
 """Newton steps taken on every unknown of a block before the few still moving are worked alone."""
 _EPS = float(np.finfo(float).eps)
 _CONVEX_STEPS = 4
+_EXTREMES_FROM = 8192
+"""Unknowns in a block from which the tests of Halley's steps are first tried on the block's extremes
+(a few reductions) before each position: below it a reduction costs about as much as the passes it
+would save (numpy's fixed cost per call), so every position is tested."""
 _CONVERGED = 1e-6
 """Relative size of the last of Halley's steps above which the direct end is not trusted: the error
 after a step is of the order of the step cubed, far below a double's resolution."""
@@ -83,8 +87,12 @@ class BandPolynomial:
     response_floor: float = 0.0
     response_reference: float = 1.0
 
-    def multiplier(self, y0: FloatArray, m: np.ndarray) -> FloatArray:
-        """v for each unknown (see the class)."""
+    def multiplier(self, y0: FloatArray, m: np.ndarray) -> FloatArray | float:
+        """v for each unknown (see the class): one number where the weights do not follow the
+        response and every unknown has the same count (the usual single count), the same quotient
+        1/m as each element of the array would hold."""
+        if not self.response_power and m.size and m.min() == m.max():
+            return 1.0 / float(m[0])
         v = 1.0 / m.astype(np.float64)
         if self.response_power:
             ratio = np.maximum(y0, self.response_floor) / self.response_reference
@@ -92,7 +100,7 @@ class BandPolynomial:
         return v
 
     def about(
-        self, y0: FloatArray, v: FloatArray, z0: FloatArray, curve_variance: FloatArray | None = None
+        self, y0: FloatArray, v: FloatArray | float, z0: FloatArray, curve_variance: FloatArray | None = None
     ) -> "ShiftedBand":
         """g as polynomials in h = z − z0, one for each unknown, expanded about its own z0.
 
@@ -112,10 +120,13 @@ class BandPolynomial:
         c2 = _trimmed_horner(z0, np.array([c[2], 3.0 * c[3], 6.0 * c[4]]))
         t2 = self.t2
         straight = f[2] == 0.0 and c[3] == 0.0 and c[4] == 0.0  # a straight line: g is quadratic in h
+        # −2r is made once for the h and h² terms: s1² − (2r)·a₂ is s1² + (−2r)·a₂, the same bits
+        # (negating is exact, so (−2r)·a₂ is −((2r)·a₂), infinities included)
+        minus_2r = -2.0 * r
         base = [
             r * r - t2 * c0,
-            -2.0 * r * s1 - t2 * c1,
-            s1 * s1 - 2.0 * r * f[2] - t2 * c2 if curved else s1 * s1 - t2 * c2,
+            minus_2r * s1 - t2 * c1,
+            s1 * s1 + minus_2r * f[2] - t2 * c2 if curved else s1 * s1 - t2 * c2,
             0.0 if straight else 2.0 * s1 * f[2] - t2 * (c[3] + 4.0 * c[4] * z0),
             float(f[2] * f[2] - t2 * c[4]),
         ]
@@ -125,6 +136,12 @@ class BandPolynomial:
         if w[1] != 0.0 or w[2] != 0.0:
             upper[1] = base[1] - tv * (w[1] + 2.0 * w[2] * z0)
             upper[2] = base[2] - tv * w[2]
+            if np.ndim(upper[2]) == 0 and np.ndim(base[2]) == 0:
+                # one v for every unknown and a curve without h² terms of its own (a straight line):
+                # this piece's h² term differs from the other piece's, so it is held as an array, as
+                # with a v for each unknown (the pieces are chosen term by term, and a number is
+                # taken as shared by both)
+                upper[2] = np.full(z0.shape, upper[2])
         lower = None
         if np.isfinite(self.z_break):
             lower = list(base)
@@ -300,8 +317,9 @@ def polynomial_band_edges(
                 over = None
         rest = np.flatnonzero(~certain)
         if h_vertex is not None and facing is not False:
-            # an end past the vertex leaves the band holding ȳ₀ all the way to the vertex
-            beyond_vertex = h_end * direction > h_vertex * direction
+            # an end past the vertex leaves the band holding ȳ₀ all the way to the vertex; h·direction
+            # compared without the products (multiplying by ±1 is exact, and NaN compares false)
+            beyond_vertex = h_end > h_vertex if direction > 0 else h_end < h_vertex
         if defer:
             across = _NONE_LEFT if over is None else over
             left.append((rest, across) if defer_crossing else rest)
@@ -405,6 +423,12 @@ def _reach_past_vertex(h_vertex: FloatArray, direction: float, full_reach: float
     return towards, np.where(towards, np.abs(h_vertex), 0.0) + full_reach
 
 
+def _extreme(ufunc: np.ufunc, values: FloatArray | float) -> float:
+    """The least (``np.minimum``) or largest (``np.maximum``) of ``values`` (NaN where one is NaN, or
+    where there are none, so that no test on it passes)."""
+    return float(ufunc.reduce(values, axis=None)) if np.size(values) else float("nan")
+
+
 class _Start:
     """What both sides' direct ends share: the coefficients of the piece that holds ẑ, the roots of
     its quadratic part, g(0) < 0, and the terms of g′ and g″ that do not depend on h."""
@@ -432,6 +456,10 @@ class _Start:
                 self.convex_margin = self.twice_c2 * (1.0 - 1e-6)
                 self.abs_six_c3 = np.abs(self.six_c3)
         self._tolerance = None
+        self._largest_tolerance: float | None = None
+        self._least_tolerance: float | None = None
+        self._largest_abs_six_c3: float | None = None
+        self._least_convex_margin: float | None = None
 
     def below_index(self) -> np.ndarray:
         """The positions of the unknowns whose ẑ lies below the lowest standard (h_break > 0)."""
@@ -445,6 +473,30 @@ class _Start:
         if self._tolerance is None:
             self._tolerance = _CONVERGED * np.abs(start)
         return self._tolerance
+
+    def least_tolerance(self, start: FloatArray) -> float:
+        """The least of :meth:`tolerance` (NaN where one is NaN), worked out once for both sides."""
+        if self._least_tolerance is None:
+            self._least_tolerance = _extreme(np.minimum, self.tolerance(start))
+        return self._least_tolerance
+
+    def largest_abs_six_c3(self) -> float:
+        """The largest |6c3| (NaN where one is NaN), worked out once for both sides."""
+        if self._largest_abs_six_c3 is None:
+            self._largest_abs_six_c3 = _extreme(np.maximum, self.abs_six_c3)
+        return self._largest_abs_six_c3
+
+    def least_convex_margin(self) -> float:
+        """The least of the convexity margins (NaN where one is NaN), worked out once for both sides."""
+        if self._least_convex_margin is None:
+            self._least_convex_margin = _extreme(np.minimum, self.convex_margin)
+        return self._least_convex_margin
+
+    def largest_tolerance(self, start: FloatArray) -> float:
+        """The largest of :meth:`tolerance` (NaN where one is NaN), worked out once for both sides."""
+        if self._largest_tolerance is None:
+            self._largest_tolerance = _extreme(np.maximum, self.tolerance(start))
+        return self._largest_tolerance
 
 
 def _convex_end(
@@ -482,31 +534,50 @@ def _convex_end(
             # takes the first step; one whose step is already below the test stops there.
             step = _halley_step(first, h)
             h -= step
-            converged = _step_converged(step, tolerance, h)
-            if not converged.all():
+            # which stop after the first step: none (the usual case) where the block's extremes tell
+            by_extremes = h.size >= _EXTREMES_FROM
+            stops = None if by_extremes and _none_converged(step, first.largest_tolerance(start), h) else (
+                _step_converged(step, tolerance, h))
+            if stops is None or not stops.any():
+                # no unknown stops after the first step: every one takes the second, in place; the
+                # same bits as the general case below with no step-one stops
                 step = _halley_step(first, h)
-                after = h - step
-                done = _step_converged(step, tolerance, after)
-                if converged.any():
-                    after = np.where(converged, h, after)
-                    done |= converged
-                h, converged = after, done
+                h -= step
+                # every unknown stopping after the second step is the usual case: decided from the
+                # block's extremes where they tell (True stands for "all"), else at each position
+                converged = None
+                if by_extremes:
+                    h_low, h_high = np.minimum.reduce(h), np.maximum.reduce(h)
+                    if _all_converged(step, first, start, h_low, h_high):
+                        converged = True
+                if converged is None:
+                    converged = _step_converged(step, tolerance, h)
+            else:
+                converged = stops
                 if not converged.all():
-                    # the few still moving take their further steps alone
-                    rest = np.flatnonzero(~converged)
-                    part = _Start.__new__(_Start)
-                    part.c = [ci[rest] if np.ndim(ci) else ci for ci in c]
-                    part.twice_c2, part.thrice_c3, part.six_c3 = (
-                        first.twice_c2[rest], first.thrice_c3[rest], first.six_c3[rest])
-                    hr, tr, moving = h[rest], tolerance[rest], np.ones(rest.size, dtype=bool)
-                    for _ in range(_CONVEX_STEPS - 2):
-                        step = _halley_step(part, hr)
-                        hr = np.where(moving, hr - step, hr)
-                        moving &= ~(np.abs(step) <= tr + _CONVERGED * np.abs(hr))
-                        if not moving.any():
-                            break
-                    h[rest], converged[rest] = hr, ~moving
-            convex = _convex(first, h)
+                    step = _halley_step(first, h)
+                    after = h - step
+                    done = _step_converged(step, tolerance, after)
+                    if converged.any():
+                        after = np.where(converged, h, after)
+                        done |= converged
+                    h, converged = after, done
+            if converged is not True and not converged.all():
+                # the few still moving take their further steps alone
+                rest = np.flatnonzero(~converged)
+                part = _Start.__new__(_Start)
+                part.c = [ci[rest] if np.ndim(ci) else ci for ci in c]
+                part.twice_c2, part.thrice_c3, part.six_c3 = (
+                    first.twice_c2[rest], first.thrice_c3[rest], first.six_c3[rest])
+                hr, tr, moving = h[rest], tolerance[rest], np.ones(rest.size, dtype=bool)
+                for _ in range(_CONVEX_STEPS - 2):
+                    step = _halley_step(part, hr)
+                    hr = np.where(moving, hr - step, hr)
+                    moving &= ~(np.abs(step) <= tr + _CONVERGED * np.abs(hr))
+                    if not moving.any():
+                        break
+                h[rest], converged[rest] = hr, ~moving
+            convex = True if converged is True and _surely_convex(first, h_low, h_high) else _convex(first, h)
         # 0 < u ≤ reach with u = h·direction, compared without the product (multiplying and negating
         # by ±1 are exact); within a finite reach it holds only for a finite h
         if direction > 0:
@@ -518,8 +589,10 @@ def _convex_end(
         if not (np.ndim(reach) == 0 and np.isfinite(reach)):
             certain &= np.isfinite(h)
         certain &= first.inside
-        certain &= convex
-        certain &= converged
+        if convex is not True:
+            certain &= convex
+        if converged is not True:
+            certain &= converged
         crossed = None
         if first.below_break is not None:
             if direction > 0:
@@ -600,6 +673,63 @@ def _halley_step(first: _Start, h: FloatArray) -> FloatArray:
     slope -= bend
     numerator /= slope
     return numerator
+
+
+def _none_converged(step: FloatArray, largest_tolerance: float, h: FloatArray) -> bool:
+    """True only where no unknown passes :func:`_step_converged` (|step| ≤ tolerance + 1e-6·|h|),
+    found from the block's extremes instead of a test at every position: each unknown's right-hand
+    side, worked in floating point, is at most fl(fl(1e-6·max|h|) + max tolerance), since rounding
+    and each operation on non-negative numbers keep the order; so when the least |step| exceeds that,
+    none passes. False (the full test decides) where the steps change sign or a number is not finite
+    (a NaN makes every comparison false)."""
+    if not step.size:
+        return False
+    low, high = np.minimum.reduce(step), np.maximum.reduce(step)
+    if low > 0.0:
+        least = low
+    elif high < 0.0:
+        least = -high
+    else:
+        return False
+    h_low, h_high = np.minimum.reduce(h), np.maximum.reduce(h)
+    if not (np.isfinite(h_low) and np.isfinite(h_high)):
+        return False
+    bound = max(-h_low, h_high) * _CONVERGED
+    bound += largest_tolerance
+    return bool(least > bound)
+
+
+def _all_converged(step: FloatArray, first: "_Start", start: FloatArray, h_low: float, h_high: float) -> bool:
+    """True only where every unknown passes :func:`_step_converged` (|step| ≤ tolerance + 1e-6·|h|),
+    found from the block's extremes (``h_low`` and ``h_high``, the least and largest h): each
+    unknown's right-hand side, worked in floating point, is at least fl(fl(1e-6·min|h|) + min
+    tolerance), and its |step| at most the largest |step|, since rounding and each operation on
+    non-negative numbers keep the order. False (the full test decides) where a number is not finite."""
+    if not step.size or not (np.isfinite(h_low) and np.isfinite(h_high)):
+        return False
+    low, high = np.minimum.reduce(step), np.maximum.reduce(step)
+    if not (np.isfinite(low) and np.isfinite(high)):
+        return False
+    # the least |h|: zero where h changes sign (a bound all the same)
+    least_h = h_low if h_low > 0.0 else -h_high if h_high < 0.0 else 0.0
+    bound = least_h * _CONVERGED
+    bound += first.least_tolerance(start)
+    return bool(max(-low, high) <= bound)
+
+
+def _surely_convex(first: "_Start", h_low: float, h_high: float) -> bool:
+    """True only where :func:`_convex`'s bound holds at every position (so that it finds g convex
+    between 0 and every h): its bound |h|·|6c3| (+ (−12c4·|h|)·|h| where c4 < 0), worked in floating
+    point, is at most the same worked with the largest |h| and the largest |6c3|, and it must not
+    exceed the least margin. False (the test at each position decides) where a number is not finite."""
+    if not (np.isfinite(h_low) and np.isfinite(h_high)):
+        return False
+    largest_h = max(-h_low, h_high)
+    bound = largest_h * first.largest_abs_six_c3()
+    c4 = first.c[4]
+    if c4 < 0:
+        bound += (largest_h * (-12.0 * c4)) * largest_h
+    return bool(bound <= first.least_convex_margin())
 
 
 def _step_converged(step: FloatArray, tolerance: FloatArray, h: FloatArray) -> np.ndarray:

@@ -667,7 +667,7 @@ def _band_interval(
     elif band is not None:
         solved = not no_solution.any()
         start = z_hat if solved else np.where(no_solution, 0.0, z_hat)
-        guess = np.where(np.isfinite(guess) & (guess > 0), guess, 1e-3)
+        guess = _usable_guess(guess)
         z_lo, z_hi, past_vertex, sides = polynomial_band_edges(
             band, y0, m, start, _full_reach(cal), cal.vertex_z if cal.model is Model.QUADRATIC else None,
             guess, curve_var if solved else None, defer=True, defer_crossing=crossing_later,
@@ -686,6 +686,14 @@ def _band_interval(
     to_x = lambda z: cal.basis.centre + cal.basis.scale * z  # noqa: E731
     # scale > 0, so the order of the ends survives the change of variable.
     return to_x(z_lo), to_x(z_hi), past_vertex, left
+
+
+def _usable_guess(guess: FloatArray) -> FloatArray:
+    """The half-widths where each is finite and positive, 1e-3 elsewhere: the array itself when all
+    are (its least above zero and its largest finite, found in two reductions; a NaN fails both)."""
+    if guess.size and np.minimum.reduce(guess) > 0 and np.maximum.reduce(guess) < np.inf:
+        return guess
+    return np.where(np.isfinite(guess) & (guess > 0), guess, 1e-3)
 
 
 def _inside_band_at_vertex(
