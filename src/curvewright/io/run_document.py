@@ -839,7 +839,7 @@ _ENTRY_OPTIONAL = ("analyst", "analyst_id", "content_sha256")
 
 
 def _plain_entry(m: Any) -> AuditEntry | None:
-    """The common audit entry, its texts texts and its details an object, read as its fields are:
+    """The common audit entry, its fields texts and its details an object, read as its fields are:
     the entry :meth:`_Reader.entry` builds for it with no problem. None for anything else, which is
     left to the field-by-field checks."""
     if type(m) is not dict:
