@@ -25,6 +25,7 @@ import os
 import sys
 import traceback
 from dataclasses import field, replace
+from functools import lru_cache
 from pathlib import Path
 from typing import Any, Iterator, Mapping, Sequence
 
@@ -1305,7 +1306,6 @@ class _SampleRows:
     def __iter__(self) -> Iterator[dict[str, Any]]:
         if self.columns is None:
             return
-        from .core.inverse import QuantFlag
         from .core.reporting import ReportStatus
         from .core.run import SampleKind
 
@@ -1333,7 +1333,7 @@ class _SampleRows:
                     mean = estimate = se = low = high = reported = reported_lower = reported_upper = None
                 flag_names = names.get(bits)
                 if flag_names is None:
-                    flag_names = names[bits] = [] if bits < 0 else [f.name.lower() for f in QuantFlag(bits)]
+                    flag_names = names[bits] = list(_flag_names(bits))
                 yield {
                     "id": sid, "kind": words_of[kind], "run_order": order, "replicates": count,
                     "mean_response": mean, "estimate": estimate, "standard_error": se,
@@ -1348,6 +1348,16 @@ class _SampleRows:
                     "flags": flag_names, "flag_words": flag_words_of(words, note), "nominal": None if nominal != nominal else nominal,
                     "recovery_percent": None if recovery != recovery else recovery,
                     "within_limits": None if within < 0 else bool(within)}
+
+
+@lru_cache(maxsize=256)
+def _flag_names(bits: int) -> tuple[str, ...]:
+    """The names of the engine's flags set in ``bits`` (lower case, in the flags' order), none for -1
+    (no flags), as a sample's row gives them; worked out once for each set of flags, since the runs
+    of a batch meet the same few."""
+    from .core.inverse import QuantFlag
+
+    return () if bits < 0 else tuple(f.name.lower() for f in QuantFlag(bits))
 
 
 def _as_made(row: dict[str, Any]) -> dict[str, Any]:

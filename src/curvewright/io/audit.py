@@ -109,8 +109,13 @@ def entry_hash(time_utc: str, user: str, action: str, details: Mapping[str, Any]
     for key, value in (("analyst", analyst), ("analyst_id", analyst_id), ("content_sha256", content_sha256)):
         if value:
             payload[key] = value
-    canonical = json.dumps(payload, sort_keys=True, separators=(",", ":"), ensure_ascii=False, allow_nan=False)
+    canonical = _ENTRY_ENCODER.encode(payload)
     return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
+
+
+_ENTRY_ENCODER = json.JSONEncoder(sort_keys=True, separators=(",", ":"), ensure_ascii=False, allow_nan=False)
+"""The encoder ``json.dumps(payload, sort_keys=True, separators=(",", ":"), ensure_ascii=False,
+allow_nan=False)`` would make for each entry, made once (it keeps no state between calls)."""
 
 
 def hash_of(e: AuditEntry) -> str:

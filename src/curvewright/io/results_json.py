@@ -86,7 +86,12 @@ def _is_row(value: Any) -> bool:
 
 
 def _one_line(value: Any) -> str:
-    return json.dumps(finite(value), ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
+    return _ONE_LINE.encode(finite(value))
+
+
+_ONE_LINE = json.JSONEncoder(ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
+"""The encoder ``json.dumps(value, ensure_ascii=False, allow_nan=False, separators=(", ", ": "))``
+would make for each row, made once (it keeps no state between calls)."""
 
 
 def _refuse(value: Any) -> Any:

@@ -728,6 +728,134 @@ def run_from_mapping(mapping: Any, origin: str = "run document") -> OpenedRun:
     return OpenedRun(run, None, verify_chain(run.audit), migrated_from, content_change=content_change(run))
 
 
+def _plain_measure(value: Any) -> bool:
+    """A float that :func:`_measure` accepts (zero, or within :data:`MEASURE_RANGE` in size)."""
+    return type(value) is float and (value == 0 or MEASURE_RANGE[0] <= abs(value) <= MEASURE_RANGE[1])
+
+
+def _plain_reading(m: Any) -> Reading | None:
+    """The common reading, an object of a number (or null) and its text and nothing else, read as
+    its fields are: the reading :meth:`_Reader.reading` gives for it with no problem. None for any
+    other value (absent, censored, a number of another type or outside the range…), which is left
+    to the field-by-field checks."""
+    if type(m) is dict and len(m) == 2:
+        value, text = m.get("value", m), m.get("text")
+        if type(text) is str and (value is None or _plain_measure(value)):
+            return Reading(value, text, None, None)
+    return None
+
+
+def _plain_standard(s: Any) -> Standard | None:
+    """The common standard, every field of its plain kind and within its limits, read as its fields
+    are: the standard :meth:`_Reader.analyte` builds for it with no problem. None for anything else
+    (a field missing or of another type, a number outside its range, an excluded standard without a
+    reason, a reading that is not plain…), which is left to the field-by-field checks: they build the
+    standard and name every problem with its path."""
+    if type(s) is not dict:
+        return None
+    get = s.get
+    sid, included, reason, replicate = get("id"), get("included"), get("exclusion_reason"), get("replicate")
+    if not (type(sid) is str and type(included) is bool and type(reason) is str and type(replicate) is int
+            and 1 <= replicate <= MAX_WHOLE and (included or reason.strip())):
+        return None
+    concentration = get("concentration", s)
+    if concentration is None:
+        concentration = math.nan  # not entered, or typed text that is not a number (in concentration_text)
+    elif not _plain_measure(concentration):
+        return None
+    typed, level, anchor = get("concentration_text", ""), get("level", ""), get("anchor", False)
+    if not (type(typed) is str and type(level) is str and type(anchor) is bool):
+        return None
+    response = _plain_reading(get("response"))
+    internal = get("internal_standard_response")
+    if response is None or (internal is not None and (internal := _plain_reading(internal)) is None):
+        return None
+    return Standard(id=sid, concentration=concentration, concentration_text=typed, response=response,
+                    replicate=replicate, level=level, included=included, exclusion_reason=reason,
+                    internal_standard_response=internal, anchor=anchor)
+
+
+def _plain_measurement(m: Any, analytes: set[str]) -> Measurement | None:
+    """The common measurement of a sample, of an analyte of the run, a whole replicate number and
+    plain readings, read as its fields are: the measurement :meth:`_Reader.sample` builds for it with
+    no problem. None for anything else, which is left to the field-by-field checks."""
+    if type(m) is not dict:
+        return None
+    get = m.get
+    analyte, replicate = get("analyte"), get("replicate")
+    if not (type(analyte) is str and analyte in analytes and type(replicate) is int
+            and -MAX_WHOLE <= replicate <= MAX_WHOLE):
+        return None
+    response = _plain_reading(get("response"))
+    internal = get("internal_standard_response")
+    if response is None or (internal is not None and (internal := _plain_reading(internal)) is None):
+        return None
+    return Measurement(analyte=analyte, replicate=replicate, response=response, internal_standard_response=internal)
+
+
+_SAMPLE_KINDS = {kind.value: kind for kind in SampleKind}
+
+
+def _plain_sample(m: Any, analytes: set[str]) -> Sample | None:
+    """The common sample, every field of its plain kind and within its limits, each measurement
+    plain (:func:`_plain_measurement`), no two of them of the same analyte and replicate, and no
+    standard additions, read as its fields are: the sample :meth:`_Reader.sample` builds for it with
+    no problem. None for anything else, which is left to the field-by-field checks."""
+    if type(m) is not dict:
+        return None
+    get = m.get
+    sid, kind_text, dilution, order = get("id"), get("kind"), get("dilution_factor"), get("run_order")
+    if not (type(sid) is str and type(kind_text) is str and _plain_measure(dilution) and dilution > 0
+            and (order is None or (type(order) is int and -MAX_WHOLE <= order <= MAX_WHOLE))):
+        return None
+    kind = _SAMPLE_KINDS.get(kind_text)
+    listed, nominal_map, additions = get("measurements"), get("nominal", _NO_NOMINAL), get("additions", _NO_ADDITIONS)
+    if kind is None or type(listed) is not list or type(nominal_map) is not dict or not (
+            type(additions) is list and not additions):
+        return None
+    nominal = []
+    for name, value in nominal_map.items():
+        if name not in analytes or not _plain_measure(value) or (kind is SampleKind.QC and value <= 0):
+            return None
+        nominal.append((name, value))
+    measurements = []
+    for item in listed:
+        measurement = _plain_measurement(item, analytes)
+        if measurement is None:
+            return None
+        measurements.append(measurement)
+    if len({f"{x.analyte}/{x.replicate}" for x in measurements}) != len(measurements):
+        return None
+    return Sample(id=sid, kind=kind, run_order=order, dilution_factor=dilution, measurements=tuple(measurements),
+                  nominal=tuple(nominal), additions=())
+
+
+_NO_NOMINAL: dict[str, Any] = {}
+_NO_ADDITIONS: list[Any] = []
+"""What a sample without the optional ``nominal`` or ``additions`` field reads as (never changed)."""
+
+_ENTRY_TEXTS = ("time_utc", "user", "action", "previous_hash", "hash")
+_ENTRY_OPTIONAL = ("analyst", "analyst_id", "content_sha256")
+
+
+def _plain_entry(m: Any) -> AuditEntry | None:
+    """The common audit entry, its fields texts and its details an object, read as its fields are:
+    the entry :meth:`_Reader.entry` builds for it with no problem. None for anything else, which is
+    left to the field-by-field checks."""
+    if type(m) is not dict:
+        return None
+    get = m.get
+    time_utc, user, action, previous, hashed = (get(k) for k in _ENTRY_TEXTS)
+    analyst, analyst_id, content = (get(k, "") for k in _ENTRY_OPTIONAL)
+    details = get("details")
+    if not (type(time_utc) is str and type(user) is str and type(action) is str and type(previous) is str
+            and type(hashed) is str and type(analyst) is str and type(analyst_id) is str and type(content) is str
+            and type(details) is dict):
+        return None
+    return AuditEntry(time_utc=time_utc, user=user, action=action, details=details, previous_hash=previous,
+                      hash=hashed, analyst=analyst, analyst_id=analyst_id, content_sha256=content)
+
+
 def _refuse_constant(name: str) -> None:
     raise ValueError(name)
 
@@ -791,12 +919,12 @@ class _Reader:
         names = {a.name for a in analytes}
         samples = tuple(
             built for i, item in enumerate(self.get(m, "samples", "", "list", []))
-            if (built := self.sample(item, f"samples[{i}]", names)) is not None
+            if (built := _plain_sample(item, names) or self.sample(item, f"samples[{i}]", names)) is not None
         )
         self.unique([s.id for s in samples], "samples", "sample id")
         audit = tuple(
             built for i, item in enumerate(self.get(m, "audit", "", "list", []))
-            if (built := self.entry(item, f"audit[{i}]")) is not None
+            if (built := _plain_entry(item) or self.entry(item, f"audit[{i}]")) is not None
         )
         signatures = tuple(
             built for i, item in enumerate(self.get(m, "signatures", "", "list", [], required=False))
@@ -890,11 +1018,9 @@ class _Reader:
         return settings
 
     def reading(self, m: Any, path: str, required: bool = True) -> Reading | None:
-        if type(m) is dict and len(m) == 2:  # the common reading, a number and its text: read as the fields are
-            value, text = m.get("value", m), m.get("text")
-            if type(text) is str and (value is None or (type(value) is float and (
-                    value == 0 or MEASURE_RANGE[0] <= abs(value) <= MEASURE_RANGE[1]))):
-                return Reading(value, text, None, None)
+        plain = _plain_reading(m)  # the common reading, a number and its text: read as the fields are
+        if plain is not None:
+            return plain
         if m is None:
             if required:
                 self.fail(path, "missing reading")
@@ -923,6 +1049,10 @@ class _Reader:
             self.fail(f"{path}.weighting", f"{weighting!r} is not one of {', '.join(x.value for x in Weighting)}")
         standards = []
         for i, s in enumerate(self.get(m, "standards", path, "list", [])):
+            standard = _plain_standard(s)  # the common standard: read as its fields are
+            if standard is not None:
+                standards.append(standard)
+                continue
             sp = f"{path}.standards[{i}]"
             if not isinstance(s, dict):
                 self.fail(sp, "expected a standard object")
@@ -994,6 +1124,10 @@ class _Reader:
             nominal.append((name, float(value)))
         measurements = []
         for i, mm in enumerate(self.get(m, "measurements", path, "list", [])):
+            measurement = _plain_measurement(mm, analytes)  # the common measurement: read as its fields are
+            if measurement is not None:
+                measurements.append(measurement)
+                continue
             mp = f"{path}.measurements[{i}]"
             if not isinstance(mm, dict):
                 self.fail(mp, "expected a measurement object")
