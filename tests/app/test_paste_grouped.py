@@ -51,6 +51,36 @@ def test_the_separator_chosen_in_the_preview_is_used(make_window, qtbot, answer_
     assert [s.response.value for s in window.session.run.analytes[0].standards] == [1250.0, 2500.0, 5125.0]
 
 
+def test_refused_values_are_kept_and_the_verdict_says_why_no_curve(make_window, qtbot, answer_dialogs) -> None:
+    window = make_window()
+    window.settings.setValue("input/decimal_mark", "ask")
+
+    def refuse_separators(dialog) -> None:
+        dialog.thousands.setCurrentIndex(dialog.thousands.findData(""))  # "none (refuse)"
+
+    answer_dialogs["paste"] = refuse_separators
+    type_paste(window, qtbot, window.standards_view, GROUPED)
+    standards = window.session.run.analytes[0].standards
+    # nothing typed is lost: every response kept as typed, not used
+    assert [s.response.text for s in standards] == [line.split("\t")[2] for line in GROUPED.splitlines()[1:]]
+    assert all(s.response.value is None for s in standards)
+    status = window.statusBar().currentMessage()
+    assert "row 1, response: '1.234,5' has thousands separators" in status
+    # the model marks the cell with the same reason
+    tip = window.standards_model.data(window.standards_model.index(0, sm.RESP), sm.Qt.ItemDataRole.ToolTipRole)
+    assert "thousands separators" in str(tip)
+    verdict = window.verdict.text()
+    assert "none given" not in verdict
+    assert "none of the 12 standards entered can be used in the fit" in verdict
+    assert "STD-1: response '1.234,5' is not a number" in verdict and "and 9 more" in verdict
+    # the line of what needs attention names them, their rows and the reason, in one line, not twelve
+    attention = window.attention.text()
+    assert window.attention.isVisible() and attention.count("⚠") == 1
+    assert ("12 standards of analyte 1 are not in the fit for want of a usable value: STD-1 (row 1): response "
+            "'1.234,5' is not a number;") in attention
+    assert "and 9 more, each marked in its row; 12 of them count as not passing" in attention
+
+
 def test_sample_responses_with_thousands_separators_are_read(make_window, qtbot, answer_dialogs) -> None:
     window = make_window()
     type_paste(window, qtbot, window.standards_view, GROUPED)

@@ -466,13 +466,7 @@ class MainWindow(QMainWindow):
                 lines.append(f"The concentration unit of {a.name} is not set (Analysis → Analyte name and units…).")
         if result is not None and result.run is run:
             for a in result.analytes:
-                rows = {s.id: i + 1 for i, s in enumerate(a.analyte.standards)}
-                for u in a.unusable_standards:  # as the verdict counts them: a blank's does not count
-                    counts = a.analyte.standard(u.standard_id).concentration != 0
-                    lines.append(f"Standard {u.standard_id} of {a.analyte.name} (row {rows.get(u.standard_id, '—')}) "
-                                 f"is not in the fit: {u.reason}"
-                                 + ("; it counts as not passing until its value is entered or it is excluded with a "
-                                    "reason." if counts else "."))
+                lines += self._unusable_lines(a)
                 columns = a.sample_columns
                 if columns is None or a.calibration is None:
                     continue
@@ -486,6 +480,29 @@ class MainWindow(QMainWindow):
                 notes = [r[len("note: "):] for r in (a.qc_verdict.reasons if a.qc_verdict else ()) if r.startswith("note: ")]
                 lines += [f"{a.analyte.name}: {note}." for note in notes]
         return lines
+
+    @staticmethod
+    def _unusable_lines(a) -> list[str]:  # type: ignore[no-untyped-def]
+        """The analyte's standards that are not in the fit for want of a usable value, with their rows
+        and reasons: one line each for up to three, else one line naming the first three and the count
+        (each row's cell is marked with its reason), so that a pasted table nothing of which could be
+        read does not push the rest of the window away."""
+        unusable = a.unusable_standards
+        rows = {s.id: i + 1 for i, s in enumerate(a.analyte.standards)}
+        # as the verdict counts them: a blank's does not count
+        counts = [a.analyte.standard(u.standard_id).concentration != 0 for u in unusable]
+        if len(unusable) <= 3:
+            return [f"Standard {u.standard_id} of {a.analyte.name} (row {rows.get(u.standard_id, '—')}) "
+                    f"is not in the fit: {u.reason}"
+                    + ("; it counts as not passing until its value is entered or it is excluded with a "
+                       "reason." if counted else ".")
+                    for u, counted in zip(unusable, counts)]
+        shown = "; ".join(f"{u.standard_id} (row {rows.get(u.standard_id, '—')}): {u.reason}" for u in unusable[:3])
+        passing = sum(counts)
+        return [f"{len(unusable)} standards of {a.analyte.name} are not in the fit for want of a usable value: "
+                f"{shown}; and {len(unusable) - 3} more, each marked in its row"
+                + (f"; {passing} of them count as not passing until their values are entered or they are excluded "
+                   "with a reason." if passing else ".")]
 
     def _update_title(self) -> None:
         self.setWindowTitle(f"{self.session.run.name}[*] — Curvewright")
