@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import hashlib
 from dataclasses import dataclass
+from typing import Sequence
 from datetime import datetime, timezone
 
 from ..core.level_text import percent_label
@@ -22,13 +23,14 @@ from .. import CAUTION, __version__
 from ..core.comparison import ModelComparison
 from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.reporting import ReportStatus
+from ..core.run import Run
 from ..core.run_analysis import AnalyteResult, RunResult
 from .audit_words import entry_words, when, who
 from .integrity import content_sha256
 from .number_text import full_number
 from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
                             run_identity, samples_table, standards_table)
-from .signatures import APPROVAL_CHANGED, DEFAULT_MEANINGS, check_signatures, fingerprint
+from .signatures import APPROVAL_CHANGED, DEFAULT_MEANINGS, SignatureCheck, check_signatures, fingerprint
 
 FORMULA_SOURCES = (
     "Least squares by QR decomposition on a centred, scaled basis (Björck 1996); weights scaled to sum to n "
@@ -257,15 +259,8 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
                             "small"))
     checks = check_signatures(run)
     if checks:
-        blocks.append(PrintedTable("Signatures", ("Role", "Name", "Time (UTC)", "Meaning", "Check"),
-                                   tuple((c.signature.role, c.signature.name + (f" (ID {c.signature.person_id})"
-                                                                                if c.signature.person_id else ""),
-                                          c.signature.time_utc.replace("T", " ")[:19], c.signature.meaning,
-                                          ("keyed " + fingerprint(c.signature.public_key) if c.signature.signature
-                                           else "not keyed") + ("" if c.holds else "; does NOT hold" + (
-                                               f": {APPROVAL_CHANGED}, so it does not cover the current data"
-                                               if APPROVAL_CHANGED in c.problem else "")))
-                                         for c in checks), (False, False, False, False, False)))
+        blocks.append(PrintedTable("Signatures", SIGNATURE_COLUMNS, signature_rows(checks),
+                                   (False, False, False, False, False)))
     signed = {c.signature.role for c in checks}
     to_sign = tuple((role.capitalize(), DEFAULT_MEANINGS[role]) for role in ("analyst", "reviewer", "approver")
                     if role not in signed)
@@ -494,14 +489,36 @@ def precision_appendix(result: RunResult) -> list[Block]:
     return blocks
 
 
+SIGNATURE_COLUMNS = ("Role", "Name", "Time (UTC)", "Meaning", "Check")
+"""The columns of the signatures table, as the record prints it and the app shows it."""
+AUDIT_COLUMNS = ("Entry", "Time", "Who", "What was done", "Entry hash")
+"""The columns of the audit trail in words, as the record prints it and the app shows it."""
+
+
+def signature_rows(checks: Sequence[SignatureCheck]) -> tuple[tuple[str, ...], ...]:
+    """One row per checked signature (:data:`SIGNATURE_COLUMNS`): role, name with ID, time (UTC),
+    what it means, and whether it is keyed and holds."""
+    return tuple((c.signature.role, c.signature.name + (f" (ID {c.signature.person_id})" if c.signature.person_id else ""),
+                  c.signature.time_utc.replace("T", " ")[:19], c.signature.meaning,
+                  ("keyed " + fingerprint(c.signature.public_key) if c.signature.signature else "not keyed")
+                  + ("" if c.holds else "; does NOT hold" + (
+                      f": {APPROVAL_CHANGED}, so it does not cover the current data"
+                      if APPROVAL_CHANGED in c.problem else "")))
+                 for c in checks)
+
+
+def audit_rows(run: Run) -> tuple[tuple[str, ...], ...]:
+    """The audit trail in words, one row per entry in order (:data:`AUDIT_COLUMNS`): number, time,
+    who, what changed from what to what and why, and the first 12 hex digits of the entry's hash."""
+    return tuple((str(i), when(e), who(e), entry_words(e), e.hash[:12]) for i, e in enumerate(run.audit, start=1))
+
+
 def audit_blocks(result: RunResult) -> list[Block]:
     """The audit trail in words: who, when, what changed from what to what, and why."""
-    trail = result.run.audit
     ok, claim = chain_claim(result.run)
-    rows = tuple((str(i), when(e), who(e), entry_words(e), e.hash[:12]) for i, e in enumerate(trail, start=1))
     return [Section(APPENDIX), Paragraph("Audit trail", "heading"),
             Paragraph(f"Chain check: {claim}", "small"),
-            PrintedTable("Audit trail in words", ("Entry", "Time", "Who", "What was done", "Entry hash"), rows,
+            PrintedTable("Audit trail in words", AUDIT_COLUMNS, audit_rows(result.run),
                          (True, False, False, False, False),
                          "Entry hash: the first 12 hex digits of each entry's SHA-256 (all digits in the workbook).")]
 
