@@ -31,6 +31,7 @@ from ..io.run_document import DocumentChanged, document_sha256
 from .curve_view import CurveView, InfluenceView
 from ..io.paste import read_block
 from .dialogs import AnalyteDialog, ImportDialog, ReasonDialog, SettingsDialog, ask_anchor_points, ask_exclusion
+from .audit_view import AuditTrailView
 from .paste_dialog import PasteDialog
 from .evidence_panel import EvidencePanel
 from .figures import plot_image_bytes
@@ -172,6 +173,8 @@ class MainWindow(QMainWindow):
         self.bottom_tabs.addTab(self.influence_view, "&Influence")
         self.additions_view = AdditionsView()
         self.bottom_tabs.addTab(self.additions_view, "Standard a&dditions")
+        self.audit_view = AuditTrailView()
+        self.bottom_tabs.addTab(self.audit_view, "A&udit trail")
         self.bottom_tabs.currentChanged.connect(self._refresh_tab)
         right = QSplitter(Qt.Orientation.Vertical)
         right.addWidget(self.curve_view)
@@ -369,7 +372,8 @@ class MainWindow(QMainWindow):
         self._update_title()
         self._update_buttons()
         self._show_verdict(self.session.result)
-        self._stale_tabs = getattr(self, "_stale_tabs", set()) | {self.evidence_panel}
+        # the audit trail grows with every change, undo, redo and signature
+        self._stale_tabs = getattr(self, "_stale_tabs", set()) | {self.evidence_panel, self.audit_view}
         self._refresh_tab(self.bottom_tabs.currentIndex())
 
     def _on_result(self, result: RunResult) -> None:
@@ -402,7 +406,7 @@ class MainWindow(QMainWindow):
         self.curve_view.show_analyte(analyte, level)
         self._shown_analyte = analyte
         # the views behind other tabs are drawn when their tab is opened
-        self._stale_tabs = {self.influence_view, self.evidence_panel, self.additions_view}
+        self._stale_tabs = {self.influence_view, self.evidence_panel, self.additions_view, self.audit_view}
         self._refresh_tab(self.bottom_tabs.currentIndex())
         self.results_view.show_result(result, name)
         self._show_verdict(result)
@@ -419,6 +423,8 @@ class MainWindow(QMainWindow):
             self.influence_view.show_analyte(getattr(self, "_shown_analyte", None))
         elif widget is self.additions_view:
             self.additions_view.show_analyte(getattr(self, "_shown_analyte", None))
+        elif widget is self.audit_view:
+            self.audit_view.show_run(self.session.run)
         elif widget is self.evidence_panel:
             self.evidence_panel.show_evidence(self.session.evidence.get(name), self.session.run.analyte(name),
                                               method=self.session.result.method if self.session.result else None)
