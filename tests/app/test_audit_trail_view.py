@@ -11,8 +11,8 @@ from PySide6.QtWidgets import QDialog
 from curvewright.app import dialogs
 from curvewright.app import standards_model as sm
 from curvewright.io.audit import chain_claim
-from curvewright.io.report import audit_rows, signature_rows
-from curvewright.io.signatures import check_signatures
+from curvewright.io.audit_words import audit_rows
+from curvewright.io.signatures import check_signatures, signature_rows
 from tests.app.conftest import DEMOS, settle
 from tests.app.test_anchor_points import click_rows
 

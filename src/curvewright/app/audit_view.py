@@ -1,9 +1,9 @@
 """The Audit trail tab: what the reviewer signs for, read on screen without exporting anything.
 
 Read only. It shows the chain check's finding (:func:`curvewright.io.audit.chain_claim`), every audit
-entry in order in the record's words (:func:`curvewright.io.report.audit_rows`: number, time, who,
+entry in order in the record's words (:func:`curvewright.io.audit_words.audit_rows`: number, time, who,
 what changed from what to what and why, entry hash) and the run's signatures as the record lists
-them (:func:`curvewright.io.report.signature_rows`: role, person, time, meaning, whether each holds).
+them (:func:`curvewright.io.signatures.signature_rows`: role, person, time, meaning, whether each holds).
 Nothing is worded here: the record's audit-trail pages and this tab take the same rows.
 """
 
@@ -15,8 +15,8 @@ from PySide6.QtWidgets import (QAbstractItemView, QHeaderView, QLabel, QTableWid
 
 from ..core.run import Run
 from ..io.audit import chain_claim
-from ..io.report import AUDIT_COLUMNS, SIGNATURE_COLUMNS, audit_rows, signature_rows
-from ..io.signatures import check_signatures
+from ..io.audit_words import AUDIT_COLUMNS, audit_rows
+from ..io.signatures import SIGNATURE_COLUMNS, check_signatures, signature_rows
 
 NOT_HOLDING = "#a11b1b"
 PERSON_WIDTH = 170

@@ -15,7 +15,6 @@ from __future__ import annotations
 
 import hashlib
 from dataclasses import dataclass
-from typing import Sequence
 from datetime import datetime, timezone
 
 from ..core.level_text import percent_label
@@ -23,14 +22,13 @@ from .. import CAUTION, __version__
 from ..core.comparison import ModelComparison
 from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.reporting import ReportStatus
-from ..core.run import Run
 from ..core.run_analysis import AnalyteResult, RunResult
-from .audit_words import entry_words, when, who
+from .audit_words import AUDIT_COLUMNS, audit_rows, when, who
 from .integrity import content_sha256
 from .number_text import full_number
 from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
                             run_identity, samples_table, standards_table)
-from .signatures import APPROVAL_CHANGED, DEFAULT_MEANINGS, SignatureCheck, check_signatures, fingerprint
+from .signatures import DEFAULT_MEANINGS, SIGNATURE_COLUMNS, check_signatures, signature_rows
 
 FORMULA_SOURCES = (
     "Least squares by QR decomposition on a centred, scaled basis (Björck 1996); weights scaled to sum to n "
@@ -487,30 +485,6 @@ def precision_appendix(result: RunResult) -> list[Block]:
         blocks.append(PrintedTable(f"{a.analyte.name}: {cal.equation(6)}", ("Coefficient", "Value", "Standard error"),
                                    tuple(rows), (False, True, True)))
     return blocks
-
-
-SIGNATURE_COLUMNS = ("Role", "Name", "Time (UTC)", "Meaning", "Check")
-"""The columns of the signatures table, as the record prints it and the app shows it."""
-AUDIT_COLUMNS = ("Entry", "Time", "Who", "What was done", "Entry hash")
-"""The columns of the audit trail in words, as the record prints it and the app shows it."""
-
-
-def signature_rows(checks: Sequence[SignatureCheck]) -> tuple[tuple[str, ...], ...]:
-    """One row per checked signature (:data:`SIGNATURE_COLUMNS`): role, name with ID, time (UTC),
-    what it means, and whether it is keyed and holds."""
-    return tuple((c.signature.role, c.signature.name + (f" (ID {c.signature.person_id})" if c.signature.person_id else ""),
-                  c.signature.time_utc.replace("T", " ")[:19], c.signature.meaning,
-                  ("keyed " + fingerprint(c.signature.public_key) if c.signature.signature else "not keyed")
-                  + ("" if c.holds else "; does NOT hold" + (
-                      f": {APPROVAL_CHANGED}, so it does not cover the current data"
-                      if APPROVAL_CHANGED in c.problem else "")))
-                 for c in checks)
-
-
-def audit_rows(run: Run) -> tuple[tuple[str, ...], ...]:
-    """The audit trail in words, one row per entry in order (:data:`AUDIT_COLUMNS`): number, time,
-    who, what changed from what to what and why, and the first 12 hex digits of the entry's hash."""
-    return tuple((str(i), when(e), who(e), entry_words(e), e.hash[:12]) for i, e in enumerate(run.audit, start=1))
 
 
 def audit_blocks(result: RunResult) -> list[Block]:
