@@ -8,23 +8,26 @@ from ..core.run import Reading
 from ..io.number_text import clean, parse_number, parse_reading
 
 
-def reading_from_text(text: str, decimal_mark: str | None = None) -> tuple[Reading, str | None]:
+def reading_from_text(text: str, decimal_mark: str | None = None,
+                      thousands: str | None = None) -> tuple[Reading, str | None]:
     """A reading and, when the text is not usable, why (the text is kept either way).
 
     ``decimal_mark`` is the analyst's stated mark ("." or ","); None refuses tokens that read two ways.
+    ``thousands`` the separator a pasted block groups thousands with; None refuses grouped values.
     """
-    parsed = parse_reading(text, decimal_mark)
+    parsed = parse_reading(text, decimal_mark, thousands)
     if parsed.reading is not None:
         return parsed.reading, None
     return Reading(None, text), (parsed.problem or "not a number").split(": ", 1)[-1]
 
 
-def number_from_text(text: str, decimal_mark: str | None = None) -> tuple[float, str | None]:
-    """A finite number, or NaN and why."""
+def number_from_text(text: str, decimal_mark: str | None = None,
+                     thousands: str | None = None) -> tuple[float, str | None]:
+    """A finite number, or NaN and why (``thousands`` as for :func:`reading_from_text`)."""
     t = clean(text)
     if not t:
         return math.nan, "empty: a number is needed here"
-    value, problem = parse_number(t, decimal_mark)
+    value, problem = parse_number(t, decimal_mark, thousands)
     if problem or value is None:
         return math.nan, problem or "not a number"
     return value, None

@@ -31,6 +31,7 @@ from ..io.run_document import DocumentChanged, document_sha256
 from .curve_view import CurveView, InfluenceView
 from ..io.paste import read_block
 from .dialogs import AnalyteDialog, ImportDialog, ReasonDialog, SettingsDialog, ask_anchor_points, ask_exclusion
+from .audit_view import AuditTrailView
 from .paste_dialog import PasteDialog
 from .evidence_panel import EvidencePanel
 from .figures import plot_image_bytes
@@ -191,6 +192,8 @@ class MainWindow(QMainWindow):
         self.bottom_tabs.addTab(self.influence_view, "&Influence")
         self.additions_view = AdditionsView()
         self.bottom_tabs.addTab(self.additions_view, "Standard a&dditions")
+        self.audit_view = AuditTrailView()
+        self.bottom_tabs.addTab(self.audit_view, "A&udit trail")
         self.bottom_tabs.currentChanged.connect(self._refresh_tab)
         # the plots keep the height they need whole; on a screen too short for them and the results,
         # their part of the window scrolls
@@ -459,7 +462,8 @@ class MainWindow(QMainWindow):
         self._update_title()
         self._update_buttons()
         self._show_verdict(self.session.result)
-        self._stale_tabs = getattr(self, "_stale_tabs", set()) | {self.evidence_panel}
+        # the audit trail grows with every change, undo, redo and signature
+        self._stale_tabs = getattr(self, "_stale_tabs", set()) | {self.evidence_panel, self.audit_view}
         self._refresh_tab(self.bottom_tabs.currentIndex())
 
     def _on_result(self, result: RunResult) -> None:
@@ -495,7 +499,7 @@ class MainWindow(QMainWindow):
         self.curve_view.show_analyte(analyte, level)
         self._shown_analyte = analyte
         # the views behind other tabs are drawn when their tab is opened
-        self._stale_tabs = {self.influence_view, self.evidence_panel, self.additions_view}
+        self._stale_tabs = {self.influence_view, self.evidence_panel, self.additions_view, self.audit_view}
         self._refresh_tab(self.bottom_tabs.currentIndex())
         self.results_view.show_result(result, name)
         self._show_verdict(result)
@@ -512,6 +516,8 @@ class MainWindow(QMainWindow):
             self.influence_view.show_analyte(getattr(self, "_shown_analyte", None))
         elif widget is self.additions_view:
             self.additions_view.show_analyte(getattr(self, "_shown_analyte", None))
+        elif widget is self.audit_view:
+            self.audit_view.show_run(self.session.run)
         elif widget is self.evidence_panel:
             self.evidence_panel.show_evidence(self.session.evidence.get(name), self.session.run.analyte(name),
                                               method=self.session.result.method if self.session.result else None)
@@ -559,13 +565,7 @@ class MainWindow(QMainWindow):
                 lines.append(f"The concentration unit of {a.name} is not set (Analysis → Analyte name and units…).")
         if result is not None and result.run is run:
             for a in result.analytes:
-                rows = {s.id: i + 1 for i, s in enumerate(a.analyte.standards)}
-                for u in a.unusable_standards:  # as the verdict counts them: a blank's does not count
-                    counts = a.analyte.standard(u.standard_id).concentration != 0
-                    lines.append(f"Standard {u.standard_id} of {a.analyte.name} (row {rows.get(u.standard_id, '—')}) "
-                                 f"is not in the fit: {u.reason}"
-                                 + ("; it counts as not passing until its value is entered or it is excluded with a "
-                                    "reason." if counts else "."))
+                lines += self._unusable_lines(a)
                 rng = a.reporting
                 if rng is not None and rng.narrowing:  # said with the verdict's own words
                     lines.append(f"{a.analyte.name}: {rng.narrowing} (the standards in the fit span "
@@ -583,6 +583,29 @@ class MainWindow(QMainWindow):
                 notes = [r[len("note: "):] for r in (a.qc_verdict.reasons if a.qc_verdict else ()) if r.startswith("note: ")]
                 lines += [f"{a.analyte.name}: {note}." for note in notes]
         return lines
+
+    @staticmethod
+    def _unusable_lines(a) -> list[str]:  # type: ignore[no-untyped-def]
+        """The analyte's standards that are not in the fit for want of a usable value, with their rows
+        and reasons: one line each for up to three, else one line naming the first three and the count
+        (each row's cell is marked with its reason), so that a pasted table nothing of which could be
+        read does not push the rest of the window away."""
+        unusable = a.unusable_standards
+        rows = {s.id: i + 1 for i, s in enumerate(a.analyte.standards)}
+        # as the verdict counts them: a blank's does not count
+        counts = [a.analyte.standard(u.standard_id).concentration != 0 for u in unusable]
+        if len(unusable) <= 3:
+            return [f"Standard {u.standard_id} of {a.analyte.name} (row {rows.get(u.standard_id, '—')}) "
+                    f"is not in the fit: {u.reason}"
+                    + ("; it counts as not passing until its value is entered or it is excluded with a "
+                       "reason." if counted else ".")
+                    for u, counted in zip(unusable, counts)]
+        shown = "; ".join(f"{u.standard_id} (row {rows.get(u.standard_id, '—')}): {u.reason}" for u in unusable[:3])
+        passing = sum(counts)
+        return [f"{len(unusable)} standards of {a.analyte.name} are not in the fit for want of a usable value: "
+                f"{shown}; and {len(unusable) - 3} more, each marked in its row"
+                + (f"; {passing} of them count as not passing until their values are entered or they are excluded "
+                   "with a reason." if passing else ".")]
 
     def _update_title(self) -> None:
         self.setWindowTitle(f"{self.session.run.name}[*] — Curvewright")

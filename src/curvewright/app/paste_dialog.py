@@ -1,9 +1,9 @@
 """The preview of a pasted block: where each column goes, how each value reads, where the rows land.
 
 The block is read by :func:`curvewright.io.paste.read_block` (the same header names and decimal-mark
-rule as a file import). The analyst can move a column to another field, set the decimal mark, and
-choose between adding the rows below the last and overwriting from the selected row, before
-anything changes.
+rule as a file import). The analyst can move a column to another field, set the decimal mark and the
+thousands separator (as the file import offers them), and choose between adding the rows below the
+last and overwriting from the selected row, before anything changes.
 """
 
 from __future__ import annotations
@@ -41,6 +41,12 @@ class PasteDialog(QDialog):
         self.decimal.addItem(", (comma)", ",")
         if block.decimal_note.endswith("as chosen") and block.decimal_mark in (".", ","):
             self.decimal.setCurrentIndex(self.decimal.findData(block.decimal_mark))
+        self.thousands = QComboBox()
+        self.thousands.setAccessibleName("Thousands separator of the pasted values")
+        self.thousands.addItem("as the block shows it", None)
+        self.thousands.addItem("none (refuse values written with one)", "")
+        for label, separator in ((",", ","), (".", "."), ("space", " "), ("'", "'")):
+            self.thousands.addItem(label, separator)
         self.preview = QTableWidget()
         self.preview.setAccessibleName("How each pasted value was read")
         self.field_boxes: list[QComboBox] = []
@@ -50,6 +56,7 @@ class PasteDialog(QDialog):
         form = QFormLayout()
         form.addRow("&Rows", self.placement)
         form.addRow("&Decimal mark", self.decimal)
+        form.addRow("&Thousands separator", self.thousands)
         layout = QVBoxLayout(self)
         layout.addWidget(self.summary)
         layout.addLayout(form)
@@ -59,6 +66,7 @@ class PasteDialog(QDialog):
         layout.addWidget(self.buttons)
         self._fill_placement(block.has_header or selected_row is None)
         self.decimal.currentIndexChanged.connect(lambda _index: self._reread())
+        self.thousands.currentIndexChanged.connect(lambda _index: self._reread())
         self.placement.currentIndexChanged.connect(lambda _index: self._describe())
         self._fill_preview()
 
@@ -80,7 +88,7 @@ class PasteDialog(QDialog):
 
     def _reread(self) -> None:
         fields = {i: (box.currentData() or None) for i, box in enumerate(self.field_boxes)}
-        self.block = self.block.with_fields(fields, self.decimal.currentData())
+        self.block = self.block.with_fields(fields, self.decimal.currentData(), self.thousands.currentData())
         self._fill_placement(self.top is None)
         self._fill_preview()
 
@@ -89,8 +97,9 @@ class PasteDialog(QDialog):
         header = ("its first row is a header, so each column goes where its header says" if b.has_header
                   else "it has no header row, so the columns fill the table from the selected column")
         unused = f" Columns not used: {', '.join(b.unused())}." if b.unused() else ""
+        grouped = f"; {b.thousands_note}" if b.thousands_note else ""
         self.summary.setText(f"{len(b.rows)} row(s) read ({header}); columns separated by {b.delimiter}; "
-                             f"{b.decimal_note}.{unused}")
+                             f"{b.decimal_note}{grouped}.{unused}")
         ok = self.buttons.button(QDialogButtonBox.StandardButton.Ok)
         ok.setEnabled(any(f is not None for f in b.fields) and bool(b.rows))
 
@@ -125,7 +134,7 @@ class PasteDialog(QDialog):
     def _shown(self, text: str, field: str | None) -> str:
         if field is None or field in TEXT_FIELDS or not text.strip():
             return text
-        parsed = parse_reading(text, self.block.decimal_mark)
+        parsed = parse_reading(text, self.block.decimal_mark, self.block.thousands)
         if parsed.reading is None:
             return text
         if parsed.reading.is_censored:
@@ -136,6 +145,7 @@ class PasteDialog(QDialog):
         if field is None or field in TEXT_FIELDS or not text.strip():
             return None
         if field == "response" and self.block.target == "samples":
-            problems = [parse_reading(p, self.block.decimal_mark).problem for p in text.split(";") if p.strip()]
+            problems = [parse_reading(p, self.block.decimal_mark, self.block.thousands).problem
+                        for p in text.split(";") if p.strip()]
             return "; ".join(p for p in problems if p) or None
-        return parse_reading(text, self.block.decimal_mark).problem
+        return parse_reading(text, self.block.decimal_mark, self.block.thousands).problem

@@ -136,9 +136,10 @@ class SamplesModel(QAbstractTableModel):
         return self._commit(tuple(samples), f"Edit {FIELD_WORDS[col]} of {sample.id}")
 
     def _with_cell(self, s: Sample, col: int, text: str, row_number: int, decimal_mark: str | None,
-                   report: Callable[[str], object]) -> tuple[bool, Sample]:
+                   report: Callable[[str], object], thousands: str | None = None) -> tuple[bool, Sample]:
         """The sample with one cell's text entered, or (False, the sample unchanged) when the value is
-        refused (the cell then keeps the text, marked); ``report`` receives what needs attention."""
+        refused (the cell then keeps the text, marked); ``report`` receives what needs attention.
+        ``thousands`` is the separator of a pasted block (None: grouped values are refused)."""
         where = f"samples row {row_number}, {FIELD_WORDS[col]}"
         self.pending.pop((s.id, col), None)
         t = text.strip()
@@ -162,12 +163,12 @@ class SamplesModel(QAbstractTableModel):
         if col == ORDER:
             if not t:
                 return True, replace(s, run_order=None)
-            value, problem = number_from_text(t, decimal_mark)
+            value, problem = number_from_text(t, decimal_mark, thousands)
             if problem or value != int(value) or value < 0:
                 return refuse("is not a whole number")
             return True, replace(s, run_order=int(value))
         if col == DILUTION:
-            value, problem = number_from_text(t, decimal_mark)
+            value, problem = number_from_text(t, decimal_mark, thousands)
             if problem or value <= 0:
                 return refuse(problem or "must be above zero")
             return True, replace(s, dilution_factor=value)
@@ -175,15 +176,15 @@ class SamplesModel(QAbstractTableModel):
             others = tuple((a, v) for a, v in s.nominal if a != self.analyte_name)
             if not t:
                 return True, replace(s, nominal=others)
-            value, problem = number_from_text(t, decimal_mark)
+            value, problem = number_from_text(t, decimal_mark, thousands)
             if problem:
                 return refuse(problem)
             return True, replace(s, nominal=others + ((self.analyte_name, value),))
         parts = text.split(";") if t else [""]  # an empty cell: one reading with none recorded, as a file import keeps it
-        readings = [reading_from_text(p, decimal_mark)[0] for p in parts]
+        readings = [reading_from_text(p, decimal_mark, thousands)[0] for p in parts]
         others = tuple(m for m in s.measurements if m.analyte != self.analyte_name)
         mine = tuple(Measurement(self.analyte_name, i + 1, r) for i, r in enumerate(readings))
-        bad = [f"replicate {i + 1}: {reading_from_text(p, decimal_mark)[1]}" for i, p in enumerate(parts) if reading_from_text(p, decimal_mark)[1]]
+        bad = [f"replicate {i + 1}: {reading_from_text(p, decimal_mark, thousands)[1]}" for i, p in enumerate(parts) if reading_from_text(p, decimal_mark, thousands)[1]]
         if bad:
             report(f"{where}: " + "; ".join(bad) + "; kept as typed, not used")
         return True, replace(s, measurements=others + mine)
@@ -235,7 +236,7 @@ class SamplesModel(QAbstractTableModel):
                 cells = {k: v for k, v in cells.items() if k != "id"}
             for name, text in cells.items():
                 ok, sample = self._with_cell(samples[row], FIELD_COLUMNS[name], text, row + 1, block.decimal_mark,
-                                             notes.append)
+                                             notes.append, block.thousands)
                 if ok:
                     samples[row] = sample
         if not records:

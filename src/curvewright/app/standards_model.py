@@ -303,9 +303,10 @@ class StandardsModel(QAbstractTableModel):
         return self._commit(tuple(standards), f"Edit {FIELD_WORDS[index.column()]} of {updated.id}", warning)
 
     def _with_cell(self, s: Standard, col: int, text: str, row_number: int,
-                   decimal_mark: str | None) -> tuple[Standard, str | None]:
+                   decimal_mark: str | None, thousands: str | None = None) -> tuple[Standard, str | None]:
         """The standard with one cell's text entered (kept as typed when it is not a usable value), and
-        a warning naming the row, the field and the reason when it is not."""
+        a warning naming the row, the field and the reason when it is not. ``thousands`` is the
+        separator of a pasted block (None: grouped values are refused)."""
         where = f"row {row_number}, {FIELD_WORDS[col]}"
         if col == ID:
             if not text.strip():
@@ -316,17 +317,17 @@ class StandardsModel(QAbstractTableModel):
         if col == LEVEL:
             return replace(s, level=text.strip()), None
         if col == REP:
-            value, problem = number_from_text(text, decimal_mark)
+            value, problem = number_from_text(text, decimal_mark, thousands)
             if problem or value != int(value) or value < 1:
                 raise RunError(f"{where}: {text!r} is not a whole number of 1 or more; the replicate stays {s.replicate}.")
             return replace(s, replicate=int(value)), None
         if col == CONC:
-            value, problem = number_from_text(text, decimal_mark)
+            value, problem = number_from_text(text, decimal_mark, thousands)
             if problem:
                 return replace(s, concentration=math.nan, concentration_text=text), f"{where}: {text!r} {problem}; kept as typed, not used"
             below = f"{where}: {text.strip()!r} is {BELOW_ZERO}; kept, not used in the fit" if value < 0 else None
             return replace(s, concentration=value, concentration_text=""), below
-        reading, problem = reading_from_text(text, decimal_mark)
+        reading, problem = reading_from_text(text, decimal_mark, thousands)
         warning = f"{where}: {text!r} {problem}; kept as typed, not used" if problem else None
         if col == RESP:
             return replace(s, response=reading), warning
@@ -378,7 +379,7 @@ class StandardsModel(QAbstractTableModel):
             for name, text in cells.items():
                 try:
                     standards[row], warning = self._with_cell(standards[row], FIELD_COLUMNS[name], text, row + 1,
-                                                              block.decimal_mark)
+                                                              block.decimal_mark, block.thousands)
                 except RunError as exc:
                     warnings.append(str(exc))
                     continue

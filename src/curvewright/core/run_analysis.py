@@ -465,6 +465,26 @@ def response_value(reading: Reading, internal_standard: Reading | None, ratio: b
     return float(reading.value) / float(internal_standard.value), ""  # type: ignore[arg-type]
 
 
+def _not_fitted(exc: CurvewrightError, analyte: Analyte, fitted: list[Standard], excluded: list[Standard],
+                unusable: list[UnusableStandard]) -> str:
+    """Why no curve was fitted, in terms of the standards entered (never "none given" when the table
+    holds standards): with none usable, that none of those entered can be used, how many are excluded
+    and why the first three others cannot be used; with some usable, the fit's reason and the same
+    account of the others."""
+    if not unusable and not excluded:
+        return str(exc)
+    shown = "; ".join(f"{u.standard_id}: {u.reason}" for u in unusable[:3])
+    more = f" and {len(unusable) - 3} more" if len(unusable) > 3 else ""
+    parts = ", ".join(part for part in (f"{len(excluded)} excluded" if excluded else "",
+                                        f"{len(unusable)} without a usable value ({shown}{more})" if unusable else "")
+                      if part)
+    if not fitted:
+        n = len(analyte.standards)
+        entered = "the one standard entered" if n == 1 else f"the {n} standards entered"
+        return f"standards: none of {entered} can be used in the fit: {parts}."
+    return f"{str(exc).rstrip('.')}; {len(fitted)} standard(s) usable, {parts}."
+
+
 def _analyse_analyte(
     run: Run, analyte: Analyte, profile: AcceptanceProfile, model: str | None, weighting: str | None
 ) -> AnalyteResult:
@@ -504,7 +524,8 @@ def _analyse_analyte(
                   anchor_points=anchors if any(anchors) else None)
     except CurvewrightError as exc:
         return AnalyteResult(
-            analyte=analyte, calibration=None, error=str(exc), fitted_standards=tuple(fitted),
+            analyte=analyte, calibration=None, error=_not_fitted(exc, analyte, fitted, excluded, unusable),
+            fitted_standards=tuple(fitted),
             excluded_standards=tuple(excluded), unusable_standards=tuple(unusable), limits=None,
             limits_note=None, verdict=None, qc_verdict=None, sample_columns=None, model_overridden=overridden,
         )

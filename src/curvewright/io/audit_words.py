@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Any, Mapping
 
-from ..core.run import AuditEntry
+from ..core.run import AuditEntry, Run
 from .number_text import full_number
 
 
@@ -130,3 +130,13 @@ def _entry_words(e: AuditEntry) -> str:
     if a == "document_migrated":
         return f"opened the document in a newer format ({_value(dict(d))})."
     return f"{a.replace('_', ' ')}: {_value(dict(d))}."
+
+
+AUDIT_COLUMNS = ("Entry", "Time", "Who", "What was done", "Entry hash")
+"""The columns of the audit trail in words, as the record prints it and the app shows it."""
+
+
+def audit_rows(run: Run) -> tuple[tuple[str, ...], ...]:
+    """The audit trail in words, one row per entry in order (:data:`AUDIT_COLUMNS`): number, time,
+    who, what changed from what to what and why, and the first 12 hex digits of the entry's hash."""
+    return tuple((str(i), when(e), who(e), entry_words(e), e.hash[:12]) for i, e in enumerate(run.audit, start=1))

@@ -212,6 +212,37 @@ def thousands_separator_in(text: str) -> str | None:
     return None
 
 
+def thousands_evidence(tokens: list[str], decimal_mark: str | None) -> tuple[str | None, str]:
+    """The thousands separator a table's values show one way only, and how it was found.
+
+    A value that is not a plain number and names a separator (:func:`thousands_separator_in`:
+    "12.480,9", "1,234.5", "12 480", "1'000") counts for it. The separator is taken when every such value
+    names the same one and it is not the table's decimal mark; otherwise none is taken and those values
+    stay refused until the analyst names the separator. A value such as "1,000" that reads two ways
+    counts for nothing.
+    """
+    found: dict[str, int] = {}
+    example: dict[str, str] = {}
+    for token in tokens:
+        t = clean(token).lstrip("<>≤≥").strip()
+        if not t or _PLAIN.match(t):
+            continue
+        sep = thousands_separator_in(t)
+        if sep is not None:
+            found[sep] = found.get(sep, 0) + 1
+            example.setdefault(sep, t)
+    if not found:
+        return None, ""
+    shown = {" ": "a space", "'": "an apostrophe"}
+    if len(found) > 1:
+        names = " and ".join(shown.get(sep, repr(sep)) for sep in found)
+        return None, f"values group thousands with {names}; choose the separator the table uses"
+    sep, count = next(iter(found.items()))
+    if sep == decimal_mark:
+        return None, f"{count} value(s) such as {example[sep]!r} group thousands with the decimal mark {sep!r}"
+    return sep, f"thousands separator {shown.get(sep, repr(sep))} (shown by {count} value(s) such as {example[sep]!r})"
+
+
 PLAIN_FROM = 1e-6
 PLAIN_BELOW = 1e15
 """Magnitudes written without an exponent by :func:`full_number` (zero too): every value a laboratory

@@ -11,6 +11,10 @@
 * The decimal mark is decided from the block's numeric cells as a whole, as for a file
   (:func:`.number_text.decimal_evidence`); the analyst's usual mark is taken only when the block
   shows none, and a mark chosen in the preview overrides both.
+* A thousands separator is taken where the block shows it one way only (:func:`.number_text.thousands_evidence`): values
+  written with both marks ("12.480,9", "1,234.5"), or with a space or an apostrophe between groups of
+  three digits ("12 480"), all naming one separator that is not the decimal mark. A separator chosen
+  in the preview overrides it, "" refuses every grouped value, as a file import without one does.
 * Nothing is read here into values: the front end keeps every cell's text, and a value that cannot
   be read stays as typed, marked, with the reason.
 """
@@ -22,7 +26,7 @@ from typing import Mapping
 
 from .errors import ImportProblem
 from .importing import SYNONYMS, TEXT_FIELDS, header_words
-from .number_text import decimal_evidence, parse_number
+from .number_text import decimal_evidence, parse_number, thousands_evidence
 from .tables import table_from_text
 
 STANDARD_COLUMNS = ("id", "level", "replicate", "concentration", "response", "is_response")
@@ -60,6 +64,10 @@ class PastedBlock:
     """How the columns were separated, in words ("tab", "semicolon", "comma")."""
     separator: str | None = None
     """The character itself."""
+    thousands: str | None = None
+    """The thousands separator the values are read with ("." "," " " "'"), None for none."""
+    thousands_note: str = ""
+    """How the separator was decided, in words for the analyst ("" when the block shows none)."""
 
     @property
     def fields(self) -> tuple[str | None, ...]:
@@ -97,12 +105,14 @@ class PastedBlock:
         """Headers (or column numbers) of the columns that fill no field of the table."""
         return tuple(c.header or f"column {i + 1}" for i, c in enumerate(self.columns) if c.field is None)
 
-    def with_fields(self, fields: Mapping[int, str | None], decimal_mark: str | None = None) -> "PastedBlock":
+    def with_fields(self, fields: Mapping[int, str | None], decimal_mark: str | None = None,
+                    thousands: str | None = None) -> "PastedBlock":
         """The same block with the columns at the given 0-based positions moved to other fields (the
-        analyst's correction in the preview), the decimal mark decided again unless one is given."""
+        analyst's correction in the preview), the decimal mark and thousands separator decided again
+        unless given (``thousands`` "" for none)."""
         columns = tuple(PastedColumn(c.header, fields.get(i, c.field), c.unit) for i, c in enumerate(self.columns))
-        mark, note = _decimal_mark(self.rows, tuple(c.field for c in columns), decimal_mark, self.separator)
-        return PastedBlock(self.target, columns, self.has_header, self.rows, mark, note, self.delimiter, self.separator)
+        return _read(self.target, columns, self.has_header, self.rows, self.delimiter, self.separator,
+                     decimal_mark, thousands, None)
 
 
 def table_fields(target: str) -> tuple[str, ...]:
@@ -114,13 +124,14 @@ def table_fields(target: str) -> tuple[str, ...]:
 
 
 def read_block(text: str, target: str, *, start_field: str | None = None, decimal_mark: str | None = None,
-               usual_mark: str | None = None) -> PastedBlock:
+               usual_mark: str | None = None, thousands: str | None = None) -> PastedBlock:
     """Read a pasted block for the ``target`` table ("standards" or "samples").
 
     ``start_field`` is the field of the selected column (None when no cell is selected);
     ``decimal_mark`` a mark to use whatever the block shows ("." or ","), None to decide it from the
     block; ``usual_mark`` the analyst's usual mark, taken only when the block shows none (never when
-    it shows both). Raises :class:`~curvewright.io.errors.ImportProblem` when the text holds no cells.
+    it shows both); ``thousands`` a separator to use (``""`` for none), None to take the one the block
+    shows (:func:`.number_text.thousands_evidence`). Raises :class:`~curvewright.io.errors.ImportProblem` when the text holds no cells.
     """
     order = table_fields(target)
     if start_field is not None and start_field not in order:
@@ -139,8 +150,30 @@ def read_block(text: str, target: str, *, start_field: str | None = None, decima
         columns, body = _positional_columns(width, order, start_field, target), rows
     columns = columns + tuple(PastedColumn("", None) for _ in range(width - len(columns)))
     body = tuple(r + ("",) * (width - len(r)) for r in body)
-    mark, note = _decimal_mark(body, tuple(c.field for c in columns), decimal_mark, table.delimiter, usual_mark)
-    return PastedBlock(target, columns, header is not None, body, mark, note, table.delimiter_name, table.delimiter)
+    return _read(target, columns, header is not None, body, table.delimiter_name, table.delimiter,
+                 decimal_mark, thousands, usual_mark)
+
+
+def _read(target, columns, has_header, rows, delimiter, separator, decimal_mark, thousands,  # type: ignore[no-untyped-def]
+          usual_mark) -> PastedBlock:
+    """The block with its decimal mark and thousands separator decided (given, or as the values show)."""
+    fields = tuple(c.field for c in columns)
+    mark, note = _decimal_mark(rows, fields, decimal_mark, separator, usual_mark)
+    if thousands == "":
+        grouped, grouped_note = None, "no thousands separator (values written with one are refused)"
+    elif thousands is not None:
+        grouped, grouped_note = thousands, f"thousands separator {thousands!r} as chosen"
+    else:
+        grouped, grouped_note = thousands_evidence(_numeric_tokens(rows, fields), mark)
+    if thousands in (".", ",") and decimal_mark is None:  # as a file import reads a named separator
+        mark = "," if grouped == "." else "."
+        note = f"decimal mark {mark!r} (the thousands separator is {grouped!r})"
+    return PastedBlock(target, columns, has_header, rows, mark, note, delimiter, separator, grouped, grouped_note)
+
+
+def _numeric_tokens(rows, fields) -> list[str]:  # type: ignore[no-untyped-def]
+    return [cells[i] for cells in rows for i, f in enumerate(fields)
+            if f is not None and f not in TEXT_FIELDS and i < len(cells)]
 
 
 def _header_columns(first: tuple[str, ...], order: tuple[str, ...]) -> tuple[PastedColumn, ...] | None:
@@ -171,9 +204,7 @@ def _decimal_mark(rows, fields, given: str | None, separator: str | None,  # typ
                   usual: str | None = None) -> tuple[str | None, str]:
     if given is not None:
         return given, f"decimal mark {given!r} as chosen"
-    tokens = [cells[i] for cells in rows for i, f in enumerate(fields)
-              if f is not None and f not in TEXT_FIELDS and i < len(cells)]
-    evidence = decimal_evidence(tokens, separator)
+    evidence = decimal_evidence(_numeric_tokens(rows, fields), separator)
     if evidence.mark is None and usual is not None and not evidence.conflict:
         return usual, f"decimal mark {usual!r} as set in the settings ({evidence.note})"
     return evidence.mark, evidence.note

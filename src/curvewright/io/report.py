@@ -23,12 +23,12 @@ from ..core.comparison import ModelComparison
 from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.reporting import ReportStatus
 from ..core.run_analysis import AnalyteResult, RunResult
-from .audit_words import entry_words, when, who
+from .audit_words import AUDIT_COLUMNS, audit_rows, when, who
 from .integrity import content_sha256
 from .number_text import full_number
 from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
                             run_identity, samples_table, standards_table)
-from .signatures import APPROVAL_CHANGED, DEFAULT_MEANINGS, check_signatures, fingerprint
+from .signatures import DEFAULT_MEANINGS, SIGNATURE_COLUMNS, check_signatures, signature_rows
 
 FORMULA_SOURCES = (
     "Least squares by QR decomposition on a centred, scaled basis (Björck 1996); weights scaled to sum to n "
@@ -259,15 +259,8 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
                             "small"))
     checks = check_signatures(run)
     if checks:
-        blocks.append(PrintedTable("Signatures", ("Role", "Name", "Time (UTC)", "Meaning", "Check"),
-                                   tuple((c.signature.role, c.signature.name + (f" (ID {c.signature.person_id})"
-                                                                                if c.signature.person_id else ""),
-                                          c.signature.time_utc.replace("T", " ")[:19], c.signature.meaning,
-                                          ("keyed " + fingerprint(c.signature.public_key) if c.signature.signature
-                                           else "not keyed") + ("" if c.holds else "; does NOT hold" + (
-                                               f": {APPROVAL_CHANGED}, so it does not cover the current data"
-                                               if APPROVAL_CHANGED in c.problem else "")))
-                                         for c in checks), (False, False, False, False, False)))
+        blocks.append(PrintedTable("Signatures", SIGNATURE_COLUMNS, signature_rows(checks),
+                                   (False, False, False, False, False)))
     signed = {c.signature.role for c in checks}
     to_sign = tuple((role.capitalize(), DEFAULT_MEANINGS[role]) for role in ("analyst", "reviewer", "approver")
                     if role not in signed)
@@ -500,12 +493,10 @@ def precision_appendix(result: RunResult) -> list[Block]:
 
 def audit_blocks(result: RunResult) -> list[Block]:
     """The audit trail in words: who, when, what changed from what to what, and why."""
-    trail = result.run.audit
     ok, claim = chain_claim(result.run)
-    rows = tuple((str(i), when(e), who(e), entry_words(e), e.hash[:12]) for i, e in enumerate(trail, start=1))
     return [Section(APPENDIX), Paragraph("Audit trail", "heading"),
             Paragraph(f"Chain check: {claim}", "small"),
-            PrintedTable("Audit trail in words", ("Entry", "Time", "Who", "What was done", "Entry hash"), rows,
+            PrintedTable("Audit trail in words", AUDIT_COLUMNS, audit_rows(result.run),
                          (True, False, False, False, False),
                          "Entry hash: the first 12 hex digits of each entry's SHA-256 (all digits in the workbook).")]
 

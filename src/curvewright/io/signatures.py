@@ -23,6 +23,7 @@ from __future__ import annotations
 import hashlib
 import json
 from dataclasses import dataclass, replace
+from typing import Sequence
 from datetime import datetime, timezone
 from pathlib import Path
 
@@ -249,3 +250,19 @@ def _verifies(s: Signature) -> bool:
     except (InvalidSignature, ValueError):
         return False
     return True
+
+
+SIGNATURE_COLUMNS = ("Role", "Name", "Time (UTC)", "Meaning", "Check")
+"""The columns of the signatures table, as the record prints it and the app shows it."""
+
+
+def signature_rows(checks: Sequence[SignatureCheck]) -> tuple[tuple[str, ...], ...]:
+    """One row per checked signature (:data:`SIGNATURE_COLUMNS`): role, name with ID, time (UTC),
+    what it means, and whether it is keyed and holds."""
+    return tuple((c.signature.role, c.signature.name + (f" (ID {c.signature.person_id})" if c.signature.person_id else ""),
+                  c.signature.time_utc.replace("T", " ")[:19], c.signature.meaning,
+                  ("keyed " + fingerprint(c.signature.public_key) if c.signature.signature else "not keyed")
+                  + ("" if c.holds else "; does NOT hold" + (
+                      f": {APPROVAL_CHANGED}, so it does not cover the current data"
+                      if APPROVAL_CHANGED in c.problem else "")))
+                 for c in checks)
