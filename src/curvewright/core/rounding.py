@@ -7,6 +7,14 @@ Decimal arithmetic on the shortest repr of the double, so 0.145 rounds to 0.15 u
 reader of the printed value expects (Ph. Eur. example), not to 0.14 as binary round-off would give.
 The arithmetic runs with enough decimal digits for any double (up to about 1.8e308 with 15 decimals
 kept), so a large value is rounded exactly, never refused.
+
+Round-off is removed before the rule is applied: the value is first rounded to
+``CLEAN_SIGNIFICANT`` (12) significant figures, half to even, and the rule then rounds that. A result
+computed as 2.3450000000000024 for an exact 2.345 (a fitted intercept of 4.999999999999972 for 5) is
+a tie, as the arithmetic on exact inputs makes it; 2 decimals half to even give 2.34 and half up
+2.35. Twelve figures lie far above the precision of any calibration result and far below the last
+digits a double's round-off reaches after a fit (common practice: a double carries 15–17 figures,
+and a least-squares fit loses a few of them).
 """
 
 from __future__ import annotations
@@ -26,6 +34,8 @@ class RoundingError(CurvewrightError, ValueError):
 _TIES = {"half_up": ROUND_HALF_UP, "half_even": ROUND_HALF_EVEN}
 _REMEMBERED = 4096
 """Distinct values :meth:`RoundingRule.texts` remembers at most (their texts are the same either way)."""
+CLEAN_SIGNIFICANT = 12
+"""Significant figures a value is first rounded to (half to even), to remove binary round-off."""
 _PRECISION = 400
 """Decimal digits for the rounding: 309 integer digits of the largest double and 15 decimals fit."""
 
@@ -88,6 +98,8 @@ class RoundingRule:
     def _rounded(self, value: float) -> str:
         """The rounded text of a finite ``value``, in a decimal context of ``_PRECISION`` digits."""
         d = Decimal(repr(float(value)))
+        if not d.is_zero():
+            d = d.quantize(Decimal(1).scaleb(d.adjusted() - (CLEAN_SIGNIFICANT - 1)), rounding=ROUND_HALF_EVEN)
         if self.kind == "decimals":
             exponent = -self.digits
         else:
