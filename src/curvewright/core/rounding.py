@@ -110,14 +110,19 @@ class RoundingRule:
     def text_within(self, value: float, lower: float | None, upper: float | None) -> str:
         """``value`` as :meth:`text` rounds it, unless that is coarser than its interval
         ``lower``–``upper`` supports (see the module's text): then to the interval's printed places."""
-        places = self.places_within(value, lower, upper)
-        return self.text(value) if places is None else self.at_places(value, places)
+        text = self.text(value)
+        if lower is None or upper is None or _plainly_within(float(value), float(lower), float(upper), text):
+            return text
+        places = self.places_within(value, lower, upper, text)
+        return text if places is None else self.at_places(value, places)
 
     def texts_within(self, values: Iterable[float], lowers: Iterable[float | None],
                      uppers: Iterable[float | None]) -> list[str]:
         """:meth:`text_within` of each value with its interval's ends (None or NaN: no interval)."""
         out = self.texts(values)
         for k, (value, lower, upper) in enumerate(zip(self._floats(out, values), lowers, uppers)):
+            if lower is None or upper is None or _plainly_within(value, float(lower), float(upper), out[k]):
+                continue
             places = self.places_within(value, lower, upper, out[k])
             if places is not None:
                 out[k] = self.at_places(value, places)
@@ -187,6 +192,20 @@ class RoundingRule:
         """The rounded value as a number (for numeric "reported" cells)."""
         text = self.text(value)
         return float(text.replace("∞", "inf").replace("−", "-")) if text else math.nan
+
+
+def _plainly_within(value: float, lower: float, upper: float, text: str) -> bool:
+    """A quick sufficient test that :meth:`RoundingRule.places_within` keeps the rule's ``text``: a text
+    with decimals, a value not near zero at the interval's resolution, and the value farther from each
+    end than the rounding of the value and of the printed end can move them together (with a margin for
+    the float arithmetic of this test)."""
+    if "." not in text or not (math.isfinite(lower) and math.isfinite(upper)) or not upper > lower:
+        return False
+    unit = 10.0 ** -(1 - math.floor(math.log10((upper - lower) / 2.0)))  # second figure of the half-width
+    if abs(value) < unit:
+        return False
+    slack = 1.01 * (0.5 * 10.0 ** -len(text.split(".", 1)[1]) + 0.5 * unit)
+    return value - lower > slack and upper - value > slack
 
 
 def _clean(d: Decimal) -> Decimal:
