@@ -1061,6 +1061,7 @@ def summary_text(  # type: ignore[no-untyped-def]
     """The results as text. A missing unit is said once per analyte and never printed empty. ``record``:
     the problems with the run's record, which the verdict line names beside the acceptance rules'."""
     from .io.model_outputs import additions_lines, response_factor_lines
+    from .io.result_tables import rule_departures
 
     run = result.run
     lines = [f"Run: {run.name}" + (f"  ({source})" if source else ""),
@@ -1134,6 +1135,11 @@ def summary_text(  # type: ignore[no-untyped-def]
                 lines.append(f"  RANGE NARROWED from the standards' {rr.standards_range[0]:g}–{rr.standards_range[1]:g}"
                              f"{in_unit}: {rr.narrowing}")
         lines += _samples_lines(a.samples, rule, run.settings.confidence_level)
+        departed = rule_departures(a, rule)
+        if departed:
+            lines.append(f"  shown to the decimal place of their interval: {', '.join(departed)} (the rounding rule, "
+                         f"{rule.description}, would show {'it' if len(departed) == 1 else 'them'} outside the "
+                         "interval or end a whole number in zeros read as exact digits)")
         lines += additions_lines(a, run.settings.confidence_level)
     for action, path, sha in written:
         kind = ("report" if action != "export_written" else
@@ -1157,7 +1163,8 @@ def _samples_lines(samples, rule, level: float) -> list[str]:  # type: ignore[no
     from .io.result_tables import interval_text
 
     heading = ("sample", "reported", "value", f"interval ({percent_label(level)})", "flags")
-    rows = [(s.sample_id, s.reported_text or "—", "—" if s.reported is None else rule.text(s.reported),
+    rows = [(s.sample_id, s.reported_text or "—",
+             "—" if s.reported is None else rule.text_within(s.reported, s.reported_lower, s.reported_upper),
              "" if s.reported is None else interval_text(s.reported_lower, s.reported_upper, rule), s.flag_words)
             for s in samples]
     widths = [max(len(r[i]) for r in [heading, *rows]) for i in range(4)]
@@ -1311,7 +1318,7 @@ class _SampleRows:
 
         names: dict[int, list[str]] = {}
         words_of = {member: member.value for member in (*SampleKind, *ReportStatus)}
-        text = self.rounding.text
+        text = self.rounding.text_within
         from .core.run_analysis import flag_words_of, is_reportable
 
         in_range = ReportStatus.IN_RANGE
@@ -1341,7 +1348,7 @@ class _SampleRows:
                     "reported_lower": reported_lower, "reported_upper": reported_upper,
                     # inside the range, the reported text is the rounded number itself
                     "reported_rounded": None if reported is None else (
-                        reported_text if status is in_range else text(reported)),
+                        reported_text if status is in_range else text(reported, reported_lower, reported_upper)),
                     "reported_text": reported_text, "status": words_of[status],
                     "reportable": is_reportable(status, short),
                     "suggested_dilution": None if suggested != suggested else suggested,

@@ -105,8 +105,10 @@ def per_sample_definitions(run: Run, name: str) -> list[tuple]:
         if values and censored is None:
             estimate = None if math.isnan(quant.estimate[i]) else float(quant.estimate[i])
             engine = quant.flags[i]
+            interval = tuple(None if math.isnan(v) else float(v) for v in (quant.lower[i], quant.upper[i]))
             value = report_value(estimate, df, engine, rng, settings.rounding, unit=analyte.concentration_unit,
-                                 below_limit=below_limit, not_quantified=note if estimate is None else "")
+                                 below_limit=below_limit, not_quantified=note if estimate is None else "",
+                                 interval=interval)
             out.append((sample.id, float(quant.mean_response[i]), estimate,
                         None if estimate is None else estimate * df,
                         None if math.isnan(quant.lower[i]) else float(quant.lower[i]) * df,

@@ -219,18 +219,22 @@ class ResultsModel(QAbstractTableModel):
     def _rule(self):  # type: ignore[no-untyped-def]
         return self.result.run.settings.rounding if self.result else None
 
-    def _rounded(self, value: float | None) -> str:
+    def _rounded(self, s: SampleResult) -> str:
+        """The sample's reported value under the run's rule, never more coarsely than its interval supports."""
+        value = s.reported
         if value is None:
             return "—"
         if value in (float("inf"), float("-inf")):
             return display_number(value)
-        return self._rule.text(value) if self._rule is not None else display_number(value)
+        if self._rule is None:
+            return display_number(value)
+        return self._rule.text_within(value, s.reported_lower, s.reported_upper)
 
     def text(self, s: SampleResult, col: int) -> str:
         if col == SAMPLE:
             return s.sample_id
         if col == REPORTED:
-            return s.reported_text or self._rounded(s.reported)
+            return s.reported_text or self._rounded(s)
         if col == INTERVAL:
             if s.reported is None:
                 return ""
@@ -260,7 +264,7 @@ class ResultsModel(QAbstractTableModel):
         level = f"{percent_label(self.result.run.settings.confidence_level)}" if self.result else ""
         parts = [f"{s.kind.words} {s.sample_id}"]
         if s.reported is not None:
-            parts.append(f"reported {s.reported_text or self._rounded(s.reported)}; value {self._rounded(s.reported)} {unit} ({level} interval "
+            parts.append(f"reported {s.reported_text or self._rounded(s)}; value {self._rounded(s)} {unit} ({level} interval "
                          f"{interval_text(s.reported_lower, s.reported_upper, self._rule)} {unit}); estimate {display_number(s.estimate)} {unit} × dilution "
                          f"{full_number(s.dilution_factor)}, from the mean of {len(s.replicate_responses)} response(s) "
                          f"{display_number(s.mean_response)}")

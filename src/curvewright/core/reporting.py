@@ -184,10 +184,13 @@ def report_value(
     below_limit: str = "censor",
     not_quantified: str = "",
     not_reportable: str = "",
+    interval: tuple[float | None, float | None] = (None, None),
 ) -> ReportedValue:
     """Report one result: ``estimate`` is the concentration in the solution measured (before the
     dilution factor), ``flags`` the quantitation flags of the engine (for the no-solution, two-root and
-    unbounded-interval qualifiers). ``not_quantified`` gives the reason when there is no number;
+    unbounded-interval qualifiers), ``interval`` the ends of its interval in the same terms as
+    ``estimate`` (the number is never shown more coarsely than they support:
+    :meth:`.RoundingRule.text_within`). ``not_quantified`` gives the reason when there is no number;
     ``not_reportable`` the reason a number may not be reported."""
     extra = flags & _QUALIFIERS if flags is not None else QuantFlag(0)
     if estimate is not None and _below_min_detectable(estimate, rng):
@@ -224,8 +227,13 @@ def report_value(
                              "; ".join([f"not reportable: {not_reportable}"] + qualifiers),
                              ", ".join(["not reportable"] + short_qualifiers), bits)
     return _numeric_value(estimate, dilution, bits, (qualifiers, short_qualifiers),
-                          _dilution_texts(dilution, rng, rule, unit), lambda: rule.text(estimate * dilution), rng,
+                          _dilution_texts(dilution, rng, rule, unit), lambda: rule.text_within(estimate * dilution, *_diluted(interval, dilution)), rng,
                           unit, below_limit == "estimate", detection is not None and estimate < detection)
+
+
+def _diluted(interval: tuple[float | None, float | None], dilution: float) -> tuple[float | None, float | None]:
+    """The ends of an interval times the dilution factor (None, or NaN, stays None)."""
+    return tuple(None if v is None or v != v else v * dilution for v in interval)  # type: ignore[return-value]
 
 
 def _dilution_texts(dilution: float, rng: ReportingRange, rule: RoundingRule,
@@ -376,22 +384,27 @@ def report_columns(
     unit: str = "",
     below_limit: str = "censor",
     not_quantified: Sequence[str] | None = None,
+    lowers: object = None,
+    uppers: object = None,
 ) -> ReportedColumns:
     """:func:`report_value` for many results at once, as columns, equal to it result by result.
 
     ``estimates`` are the concentrations in the solution measured (NaN where there is none),
     ``dilutions`` the dilution factors, ``flags`` the engine's flags of each result and
-    ``not_quantified`` the reason of each result without a number (None: none given); the flags may
+    ``not_quantified`` the reason of each result without a number (None: none given), ``lowers`` and
+    ``uppers`` the ends of each result's interval in the terms of ``estimates`` (NaN or None: none); the flags may
     be given as :class:`FlagBits`, read without a flag object per result. The status
     and flag bits of the numeric results are worked out over arrays. A result's words, short words
     and (but for the rounded number) text depend only on its status, qualifiers, dilution factor and
     whether it lies below the LOD, except above the range (the suggested dilution): each such group's
     are made once, by :func:`_numeric_value` itself, and the rounded numbers in one pass
-    (:meth:`.RoundingRule.texts`); a result above the range is reported one at a time.
+    (:meth:`.RoundingRule.texts_within`); a result above the range is reported one at a time.
     """
     est = np.asarray(estimates, dtype=float).reshape(-1)
     dil = np.asarray(dilutions, dtype=float).reshape(-1)
     n = est.size
+    low = np.full(n, np.nan) if lowers is None else np.asarray(lowers, dtype=float).reshape(-1)
+    high = np.full(n, np.nan) if uppers is None else np.asarray(uppers, dtype=float).reshape(-1)
     if dil.size != n or len(flags) != n or (not_quantified is not None and len(not_quantified) != n):
         raise ValueError("report_values: the estimates, dilutions, flags and reasons differ in length")
     bits_in = (flags.bits if isinstance(flags, FlagBits) else
@@ -413,7 +426,8 @@ def report_columns(
             texts_here = by_dilution[factor] = _dilution_texts(factor, rng, rule, unit)
         return flag, quals, texts_here
 
-    def part(est: np.ndarray, dil: np.ndarray, bits_in: np.ndarray, offset: int) -> ReportedColumns:
+    def part(est: np.ndarray, dil: np.ndarray, bits_in: np.ndarray, offset: int, low: np.ndarray,
+             high: np.ndarray) -> ReportedColumns:
         """The columns of the results from ``offset`` on (``est``, ``dil`` and ``bits_in`` are theirs)."""
         n = est.size
         statuses = np.empty(n, dtype=object)
@@ -454,7 +468,8 @@ def report_columns(
         # which results show a rounded number: inside the range, and estimates between the LOD and the limit
         numbered = (e <= rng.uloq) & ((e >= limit) | (estimated & ~below_lod))
         numbers = np.empty(where.size, dtype=object)
-        numbers[numbered] = rule.texts(reported[numbered].tolist())
+        numbers[numbered] = rule.texts_within(reported[numbered].tolist(), (low[where] * d)[numbered].tolist(),
+                                              (high[where] * d)[numbered].tolist())
         # the order _numeric_value judges in: above the ULOQ, below the reporting limit, else in range
         over = e > rng.uloq
         case = np.where(over, 0, np.where(e < limit, np.where(below_lod, 1, 2), 3))
@@ -483,7 +498,7 @@ def report_columns(
         return ReportedColumns(statuses.tolist(), texts.tolist(), words.tolist(), shorts.tolist(), bits_out, suggested)
 
     if n <= _PART:
-        return part(est, dil, bits_in, 0)
+        return part(est, dil, bits_in, 0, low, high)
     # many results: a part at a time, so that the arrays of the work stay small; each result's entries
     # depend on it alone, so they are the same as those of all the results worked out at once
     statuses: list[ReportStatus] = []
@@ -494,7 +509,7 @@ def report_columns(
     suggested = np.empty(n)
     for start in range(0, n, _PART):
         stop = min(start + _PART, n)
-        done = part(est[start:stop], dil[start:stop], bits_in[start:stop], start)
+        done = part(est[start:stop], dil[start:stop], bits_in[start:stop], start, low[start:stop], high[start:stop])
         statuses += done.statuses
         texts += done.texts
         words += done.words

@@ -7,6 +7,26 @@ Decimal arithmetic on the shortest repr of the double, so 0.145 rounds to 0.15 u
 reader of the printed value expects (Ph. Eur. example), not to 0.14 as binary round-off would give.
 The arithmetic runs with enough decimal digits for any double (up to about 1.8e308 with 15 decimals
 kept), so a large value is rounded exactly, never refused.
+
+Round-off is removed before the rule is applied: the value is first rounded to
+``CLEAN_SIGNIFICANT`` (12) significant figures, half to even, and the rule then rounds that. A result
+computed as 2.3450000000000024 for an exact 2.345 (a fitted intercept of 4.999999999999972 for 5) is
+a tie, as the arithmetic on exact inputs makes it; 2 decimals half to even give 2.34 and half up
+2.35. Twelve figures lie far above the precision of any calibration result and far below the last
+digits a double's round-off reaches after a fit (common practice: a double carries 15–17 figures,
+and a least-squares fit loses a few of them).
+
+A result with an interval is never shown more coarsely than its interval supports
+(:meth:`RoundingRule.text_within`; GUM JCGM 100:2008 §7.2.6: the uncertainty to at most two significant
+figures and the result to the same decimal place). The run's rule (a method's, or the default three
+significant figures) stands unless it would show the value outside its interval as printed
+(:func:`interval_places`), or end a whole number in zeros that read as exact digits ("14500") where
+the interval supports digits there (the place of the second significant figure of its half-width);
+then the value is shown to the decimal place of its printed interval. A value that rounds to zero at
+the place of the second significant figure of its half-width (a response equal to the intercept gives
+3.55e-15 with an interval of ±0.066) is indistinguishable from zero at the calibration's resolution and
+is shown as zero to the interval's decimal place ("0.000"), never as round-off digits. So 1705105.57 with the interval 1704513 – 1705698 reads 1705106, not
+1710000 (three significant figures), which looks exact and lies outside its own interval.
 """
 
 from __future__ import annotations
@@ -26,6 +46,8 @@ class RoundingError(CurvewrightError, ValueError):
 _TIES = {"half_up": ROUND_HALF_UP, "half_even": ROUND_HALF_EVEN}
 _REMEMBERED = 4096
 """Distinct values :meth:`RoundingRule.texts` remembers at most (their texts are the same either way)."""
+CLEAN_SIGNIFICANT = 12
+"""Significant figures a value is first rounded to (half to even), to remove binary round-off."""
 _PRECISION = 400
 """Decimal digits for the rounding: 309 integer digits of the largest double and 15 decimals fit."""
 
@@ -85,9 +107,71 @@ class RoundingRule:
                 out.append(text)
         return out
 
+    def text_within(self, value: float, lower: float | None, upper: float | None) -> str:
+        """``value`` as :meth:`text` rounds it, unless that is coarser than its interval
+        ``lower``–``upper`` supports (see the module's text): then to the interval's printed places."""
+        text = self.text(value)
+        if lower is None or upper is None or _plainly_within(float(value), float(lower), float(upper), text):
+            return text
+        places = self.places_within(value, lower, upper, text)
+        return text if places is None else self.at_places(value, places)
+
+    def texts_within(self, values: Iterable[float], lowers: Iterable[float | None],
+                     uppers: Iterable[float | None]) -> list[str]:
+        """:meth:`text_within` of each value with its interval's ends (None or NaN: no interval)."""
+        out = self.texts(values)
+        for k, (value, lower, upper) in enumerate(zip(self._floats(out, values), lowers, uppers)):
+            if lower is None or upper is None or _plainly_within(value, float(lower), float(upper), out[k]):
+                continue
+            places = self.places_within(value, lower, upper, out[k])
+            if places is not None:
+                out[k] = self.at_places(value, places)
+        return out
+
+    @staticmethod
+    def _floats(out: list[str], values: Iterable[float]) -> list[float]:
+        listed = [float(v) for v in values]
+        if len(listed) != len(out):
+            raise ValueError("texts_within: the values and their texts differ in length")
+        return listed
+
+    def places_within(self, value: float, lower: float | None, upper: float | None,
+                      text: str | None = None) -> int | None:
+        """The decimal places ``value`` is shown with instead of this rule, because the rule would put it
+        outside its interval as printed, or end a whole number in zeros where the interval supports digits
+        (see the module's text); None when the rule stands (or there is no finite interval)."""
+        if lower is None or upper is None or not math.isfinite(value):
+            return None
+        lower, upper = float(lower), float(upper)
+        if not (math.isfinite(lower) and math.isfinite(upper)) or not upper > lower:
+            return None
+        text = self.text(value) if text is None else text
+        places = interval_places(lower, upper, self)
+        kept = _kept_exponent(text)
+        # zeros ending a whole number ("14500") read as exact digits: they may stand only beyond the place
+        # of the second significant figure of the half-width, which the interval's own print keeps
+        second_figure = 1 - math.floor(math.log10((upper - lower) / 2.0))
+        if abs(value) < 0.5 * 10.0 ** -second_figure:
+            return places  # zero at the interval's resolution (round-off such as 3.55e-15): shown as zero there
+        if kept <= 0 or -kept >= second_figure:
+            shown_lower, shown_upper = (Decimal(self.at_places(v, places)) for v in (lower, upper))
+            if shown_lower <= Decimal(text) <= shown_upper:
+                return None
+        return places
+
+    def at_places(self, value: float, places: int) -> str:
+        """``value`` rounded to ``places`` decimals (negative: tens, hundreds…) with this rule's tie-break,
+        from the value cleaned of round-off as :meth:`text` does."""
+        with localcontext() as context:
+            context.prec = _PRECISION
+            d = _clean(Decimal(repr(float(value))))
+            rounded = d.quantize(Decimal(1).scaleb(-places), rounding=_TIES[self.tie])
+            text = format(rounded, "f")
+            return text[1:] if rounded.is_zero() and text.startswith("-") else text
+
     def _rounded(self, value: float) -> str:
         """The rounded text of a finite ``value``, in a decimal context of ``_PRECISION`` digits."""
-        d = Decimal(repr(float(value)))
+        d = _clean(Decimal(repr(float(value))))
         if self.kind == "decimals":
             exponent = -self.digits
         else:
@@ -108,3 +192,49 @@ class RoundingRule:
         """The rounded value as a number (for numeric "reported" cells)."""
         text = self.text(value)
         return float(text.replace("∞", "inf").replace("−", "-")) if text else math.nan
+
+
+def _plainly_within(value: float, lower: float, upper: float, text: str) -> bool:
+    """A quick sufficient test that :meth:`RoundingRule.places_within` keeps the rule's ``text``: a text
+    with decimals, a value not near zero at the interval's resolution, and the value farther from each
+    end than the rounding of the value and of the printed end can move them together (with a margin for
+    the float arithmetic of this test)."""
+    if "." not in text or not (math.isfinite(lower) and math.isfinite(upper)) or not upper > lower:
+        return False
+    unit = 10.0 ** -(1 - math.floor(math.log10((upper - lower) / 2.0)))  # second figure of the half-width
+    if abs(value) < unit:
+        return False
+    slack = 1.01 * (0.5 * 10.0 ** -len(text.split(".", 1)[1]) + 0.5 * unit)
+    return value - lower > slack and upper - value > slack
+
+
+def _clean(d: Decimal) -> Decimal:
+    """``d`` rounded to ``CLEAN_SIGNIFICANT`` significant figures, half to even (round-off removed)."""
+    if d.is_zero() or not d.is_finite():
+        return d
+    return d.quantize(Decimal(1).scaleb(d.adjusted() - (CLEAN_SIGNIFICANT - 1)), rounding=ROUND_HALF_EVEN)
+
+
+def _kept_exponent(text: str) -> int:
+    """The power of ten of the last digit a rounded text keeps: −2 for "2.34"; for a whole number, its
+    last non-zero digit ("1710000": 4), as a reader takes trailing zeros of a whole number to be padding."""
+    if "." in text:
+        return -len(text.split(".", 1)[1])
+    digits = text.lstrip("-+")
+    stripped = digits.rstrip("0")
+    return len(digits) - len(stripped) if stripped else 0
+
+
+def interval_places(lower: float, upper: float, rule: RoundingRule | None = None) -> int:
+    """The decimal places the finite ends of an interval are printed with: the place of the second
+    significant figure of its half-width (GUM §7.2.6), and never fewer than ``rule`` prints the ends
+    with (negative: tens, hundreds…, which only happens without a ``rule``)."""
+    half = (upper - lower) / 2.0
+    places = 1 - math.floor(math.log10(half)) if half > 0 else 0
+    if rule is not None:
+        places = max(places, max(_decimal_places(rule.text(v)) for v in (lower, upper)))
+    return places
+
+
+def _decimal_places(text: str) -> int:
+    return len(text.split(".", 1)[1]) if "." in text else 0

@@ -706,7 +706,8 @@ def _report(s: SampleResult, rng: ReportingRange, run: Run, profile: AcceptanceP
     engine = s.flags
     value = report_value(s.estimate, s.dilution_factor, engine, rng, run.settings.rounding, unit=unit,
                          below_limit=profile.reporting.between_lod_and_reporting_limit,
-                         not_quantified=s.note if s.estimate is None else "", not_reportable=not_reportable)
+                         not_quantified=s.note if s.estimate is None else "", not_reportable=not_reportable,
+                         interval=(s.lower, s.upper))
     return replace(s, status=value.status, reported_text=value.text, words=value.words, short=value.short,
                    flags=value.flags if s.estimate is not None else engine, suggested_dilution=value.suggested_dilution)
 
@@ -810,7 +811,8 @@ def _quantify_samples(
         reasons[r] = reason if not note or reason == note else f"{reason}; {note}"
     reported = report_columns(estimate, dilution, FlagBits(engine_bits), rng, settings.rounding,
                               unit=analyte.concentration_unit,
-                              below_limit=profile.reporting.between_lod_and_reporting_limit, not_quantified=reasons)
+                              below_limit=profile.reporting.between_lod_and_reporting_limit, not_quantified=reasons,
+                              lowers=lower, uppers=upper)
     nominal = np.array(nominal_list, dtype=float)
     del nominal_list
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):

@@ -37,7 +37,7 @@ FORMULA_SOURCES = (
     "Mandel's fitting test (ISO 8466-1; DIN 38402-51); end-level variance F-test (ISO 8466-1); "
     "Bartlett (1937) and Brown–Forsythe (1974) tests across levels.",
     "Leverage, externally studentized residuals (Belsley, Kuh & Welsch 1980), Cook's distance (Cook 1977); "
-    "flags: Bonferroni outlier limit on the studentized residual, and Cook's distance above the median of "
+    "flags: Bonferroni outlier limit on the externally studentized residual, and Cook's distance above the median of "
     "F(p, n − p) with a residual beyond chance for its leverage (Cook & Weisberg 1982; split of a 5 % false-alarm "
     "rate checked by simulation); leverage above 0.5 noted (Huber 1981).",
     "Calibration interval by inverting the prediction band for the mean of m responses (Fieller's interval for a "
@@ -64,7 +64,7 @@ STANDARD_ACCURACY_COLUMNS = ("Standard id", "Level", "Replicate", "Nominal conce
                              "Back-calculated", "Relative error (%)", "Tolerance (%)", "Within limits")
 """The printed accuracy table ("Within limits" says "excluded" for a standard left out); each
 exclusion's reason, person and time are listed beneath it."""
-STANDARD_INFLUENCE_COLUMNS = ("Standard id", "Leverage", "Cook's distance", "Studentized residual", "Influence flags")
+STANDARD_INFLUENCE_COLUMNS = ("Standard id", "Leverage", "Cook's distance", "Externally studentized residual", "Influence flags")
 SAMPLE_COLUMNS = ("Sample id", "Kind", "Run order", "Replicates", "Dilution factor", "Concentration × dilution",
                   "Reported", "Interval", "Flags", "Recovery (%)", "QC or check")
 SHORT_FLAG_LEGEND = (
@@ -457,8 +457,10 @@ def _samples_printed(result: RunResult, a: AnalyteResult) -> PrintedTable:
     index = {c.name: i for i, c in enumerate(full.columns)}
     rows = []
     for s, row in zip(a.samples, (r for r in full.rows if r[index["Analyte"]] == a.analyte.name)):
+        shown = full.columns_for(row)
+
         def cell(name: str) -> str:
-            return format_value(row[index[name]], full.columns[index[name]], rule)
+            return format_value(row[index[name]], shown[index[name]], rule)
         rows.append((s.sample_id, s.kind.words, cell("Run order"), cell("Replicates"), cell("Dilution factor"),
                      cell("Concentration × dilution"), s.reported_text,
                      interval_text(s.reported_lower, s.reported_upper, rule) if s.reported is not None else "",

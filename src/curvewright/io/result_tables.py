@@ -19,7 +19,7 @@ from ..core.level_text import percent_label
 from .. import CAUTION, __version__
 from ..core.errors import CurvewrightError
 from ..core.models import Model
-from ..core.rounding import RoundingRule
+from ..core.rounding import RoundingRule, interval_places
 from ..core.run import SampleKind
 from ..core.reporting import ReportStatus
 from .number_text import clean, full_number
@@ -63,6 +63,7 @@ class Column:
 
 def shown_decimals(value: float, display: str, rule: RoundingRule | None = None) -> int | None:
     """How many decimals a number is shown with under ``display`` (None: in scientific notation)."""
+    display = _unsettled(display)
     if display == "rule" and rule is not None:
         return _decimal_places(rule.text(value))
     if display in ("plain", "full"):
@@ -91,7 +92,7 @@ def format_value(value: Value, column: Column, rule: RoundingRule | None = None)
     v = float(value)
     if not math.isfinite(v):
         return display_number(v)
-    if column.display == "rule" and rule is not None:
+    if _unsettled(column.display) == "rule" and rule is not None:
         return rule.text(v)
     if column.display == "plain":
         return f"{v:.6g}"
@@ -148,22 +149,26 @@ class Table:
 
     def columns_for(self, row: tuple[Value, ...]) -> tuple[Column, ...]:
         """The columns as they show the numbers of ``row``: a display that depends on the row (see
-        :class:`Column`) settled to ``"dec:N"``, ``"plain"`` or ``"sig:6"``; the others as they are."""
+        :class:`Column`) settled to ``"dec:N"``, ``"plain"``, ``"rule"`` or ``"sig:6"``; the others as they are."""
         plan = self._row_displays
         if plan is None:
             return self.columns
         ends, dependent, settled = plan
         interval = "sig:6"
+        lower = upper = None
         if ends is not None:
             lower, upper = row[ends[0]], row[ends[1]]
             if isinstance(lower, float) and isinstance(upper, float) and math.isfinite(lower) and math.isfinite(upper):
                 interval = f"dec:{max(interval_decimals(lower, upper, self.rounding), 0)}"
             else:
                 interval = "plain"  # an end without a number, or unbounded: the other end as display_number shows it
+                lower = upper = None
         columns = list(self.columns)
-        for j, source in dependent:
-            if source is None:
+        for j, kind, source in dependent:
+            if kind == "interval":
                 display = interval
+            elif kind == "within":
+                display = self._within(row[j], lower, upper, row[source] if source is not None and source >= 0 else 1.0)
             else:
                 places = entered_decimals(row[source]) if source >= 0 else None
                 display = "sig:6" if places is None else f"dec:{places}"
@@ -174,21 +179,35 @@ class Table:
             columns[j] = column
         return tuple(columns)
 
+    def _within(self, value: Value, lower: float | None, upper: float | None, factor: Value) -> str:
+        """A ``"within"`` column's display for its row: the run's rule, or ``"dec:N"`` where the rule
+        would show the value more coarsely than its interval supports (:meth:`.RoundingRule.places_within`)."""
+        if self.rounding is None or not isinstance(value, float) or lower is None or upper is None:
+            return "rule"
+        if not isinstance(factor, (int, float)) or isinstance(factor, bool) or not factor > 0:
+            return "rule"
+        places = self.rounding.places_within(value, lower / factor, upper / factor)
+        return "rule" if places is None else f"dec:{places}"
+
     @cached_property
     def _row_displays(self):  # type: ignore[no-untyped-def]
         """For :meth:`columns_for`, worked out once: the two interval columns (or None), each column
-        shown by its row with the column its display reads (None: the interval; -1: a column the
-        table lacks), and the settled columns made so far; None when no column depends on the row."""
+        shown by its row with what its display reads ("interval"; "within" and the dilution column, or
+        None; "entered" and the column of the text, -1 for a column the table lacks), and the settled
+        columns made so far; None when no column depends on the row."""
         index = {c.name: i for i, c in enumerate(self.columns)}
         dependent = []
         for j, c in enumerate(self.columns):
             if c.display == "interval":
-                dependent.append((j, None))
+                dependent.append((j, "interval", None))
+            elif c.display == "within" or c.display.startswith("within:"):
+                name = c.display.partition(":")[2]
+                dependent.append((j, "within", index.get(name, -1) if name else None))
             elif c.display.startswith("entered:"):
-                dependent.append((j, index.get(c.display.partition(":")[2], -1)))
+                dependent.append((j, "entered", index.get(c.display.partition(":")[2], -1)))
         if not dependent:
             return None
-        ends = [j for j, source in dependent if source is None]
+        ends = [j for j, kind, _ in dependent if kind == "interval"]
         return (tuple(ends) if len(ends) == 2 else None), tuple(dependent), {}
 
 
@@ -239,8 +258,9 @@ def samples_table(result: RunResult) -> Table:
     columns = (
         Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Run order", kind="int"),
         Column("Replicates", kind="int"), Column("Replicate responses", kind="words"), Column("Mean response", kind="number", display="sig:6"),
-        Column("Estimated concentration", kind="number", display="rule"), Column("Dilution factor", kind="number", display="full"),
-        Column("Concentration × dilution", kind="number", display="rule"), Column("Reported", kind="reported"),
+        Column("Estimated concentration", kind="number", display="within:Dilution factor"),
+        Column("Dilution factor", kind="number", display="full"),
+        Column("Concentration × dilution", kind="number", display="within"), Column("Reported", kind="reported"),
         Column("Lower limit", kind="number", display="interval"), Column("Upper limit", kind="number", display="interval"),
         Column("Interval", kind="words"), Column("Unit"), Column("Status"), Column("Flags", kind="words"),
         Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="full"),
@@ -263,7 +283,7 @@ def samples_table(result: RunResult) -> Table:
                 s.sample_id, s.kind.words, s.analyte, s.run_order, len(s.replicate_responses),
                 replicate_text(s.replicate_responses, readings, a.analyte.uses_internal_standard),
                 s.mean_response, s.estimate, s.dilution_factor,
-                s.reported, s.reported_text or (None if s.reported is None else rule.text(s.reported)),
+                s.reported, s.reported_text or (None if s.reported is None else rule.text_within(s.reported, s.reported_lower, s.reported_upper)),
                 s.reported_lower, s.reported_upper, words if s.reported is not None else "",
                 unit[s.analyte], STATUS_WORDS[s.status], s.flag_words, s.suggested_dilution, s.nominal,
                 s.recovery_percent, qc_word(s.kind, s.within_limits),
@@ -389,7 +409,14 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         rows.append(("Vertex of the quadratic", cal.vertex, None))
     for note in cal.notes:
         rows.append(("Note", note, None))
-    rows.append(("Reported values rounded to", result.run.settings.rounding.description, None))
+    rule = result.run.settings.rounding
+    rows.append(("Reported values rounded to", rule.description, None))
+    departed = rule_departures(a, rule)
+    if departed:
+        rows.append(("Shown to the decimal place of their interval instead",
+                     f"{', '.join(departed)}: the rule ({rule.description}) would show "
+                     + ("it" if len(departed) == 1 else "them")
+                     + " outside the interval or end a whole number in zeros read as exact digits", None))
     rows.append(("Interval", interval_words(result, a), None))
     if a.limits is not None:
         if a.limits.critical_concentration is not None:  # ISO 11843-2: the decision limits with their values
@@ -418,6 +445,17 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value", display="plain"), Column("Standard error", display="sig:3")), tuple(rows))
 
 
+def rule_departures(a: AnalyteResult, rule: RoundingRule) -> tuple[str, ...]:
+    """The samples of ``a`` whose reported value is shown to its interval's decimal place rather than by
+    ``rule`` (:meth:`.RoundingRule.places_within`), each named once."""
+    out: list[str] = []
+    for s in a.samples:
+        if s.reported is not None and s.sample_id not in out and \
+                rule.places_within(s.reported, s.reported_lower, s.reported_upper) is not None:
+            out.append(s.sample_id)
+    return tuple(out)
+
+
 def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table:
     cal = a.calibration
     an = a.analyte
@@ -430,7 +468,7 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
         Column("Relative error (%)", kind="number", display="signed:1"), Column("Tolerance (%)", kind="number", display="plain"),
         Column("Within limits"), Column("Leverage", kind="number", display="dec:3"),
         Column("Cook's distance", kind="number", display="sig:3"),
-        Column("Studentized residual", kind="number", display="signed:2"), Column("Influence flags"), Column("Included"),
+        Column("Externally studentized residual", kind="number", display="signed:2"), Column("Influence flags"), Column("Included"),
         Column("Exclusion reason"),
     )
     from ..core.run_analysis import back_calculated_outside_fit, response_value
@@ -621,11 +659,12 @@ def summary_table(result: RunResult) -> Table:
         return (s.run_order if s.run_order is not None else math.inf, first_seen[s.sample_id], analyte_order[s.analyte])
 
     columns = (Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Reported", kind="reported"), Column("Unit"),
-               Column("Estimate × dilution", kind="number", display="rule"),
+               Column("Estimate × dilution", kind="number", display="within"),
                Column("Lower limit", kind="number", display="interval"), Column("Upper limit", kind="number", display="interval"),
                Column("Status"), Column("Flags (short)"))
     rows = tuple(
-        (s.sample_id, s.kind.words, s.analyte, s.reported_text or (None if s.reported is None else rule.text(s.reported)),
+        (s.sample_id, s.kind.words, s.analyte,
+         s.reported_text or (None if s.reported is None else rule.text_within(s.reported, s.reported_lower, s.reported_upper)),
          unit[s.analyte], _finite(s.reported) if s.reported is not None else None,
          _finite(s.reported_lower) if s.reported_lower is not None else None,
          _finite(s.reported_upper) if s.reported_upper is not None else None,
@@ -679,12 +718,8 @@ def interval_text(lower: float | None, upper: float | None, rule: RoundingRule |
 
 def interval_decimals(lower: float, upper: float, rule: RoundingRule | None = None) -> int:
     """The decimal places :func:`interval_text` prints the finite ends of an interval with (negative:
-    rounded to tens, hundreds…, which only happens without a ``rule``)."""
-    half = (upper - lower) / 2.0
-    places = 1 - math.floor(math.log10(half)) if half > 0 else 0
-    if rule is not None:
-        places = max(places, max(_decimal_places(rule.text(v)) for v in (lower, upper)))
-    return places
+    rounded to tens, hundreds…, which only happens without a ``rule``): :func:`.core.rounding.interval_places`."""
+    return interval_places(lower, upper, rule)
 
 
 _ENTERED = re.compile(r"^[+-]?\d*(?:[.,](\d*))?$")
@@ -701,6 +736,11 @@ def entered_decimals(text: Value) -> int | None:
         return None
     places = len(match.group(1) or "")
     return places if sum(ch.isdigit() for ch in t.lstrip("+-0.,")) <= 15 else None
+
+
+def _unsettled(display: str) -> str:
+    """A ``"within"`` display not settled by its row (see :meth:`Table.columns_for`) shows as ``"rule"``."""
+    return "rule" if display == "within" or display.startswith("within:") else display
 
 
 def _decimal_places(text: str) -> int:
