@@ -31,6 +31,7 @@ from typing import Any, Iterator, Mapping, Sequence
 
 from . import CAUTION, __version__
 from .core.level_text import percent_label
+from .core.number_words import full_number
 from .core.values import frozen_value
 
 EXIT_ACCEPTED, EXIT_REJECTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
@@ -1132,7 +1133,7 @@ def summary_text(  # type: ignore[no-untyped-def]
             lines.append(f"  calibrated range {rr.lloq:g}–{rr.uloq:g}{in_unit} (LLOQ–ULOQ); reporting limit "
                          f"{rr.reporting_limit:.4g}{in_unit} ({rr.basis}): {rr.note}")
             if rr.narrowing:
-                lines.append(f"  RANGE NARROWED from the standards' {rr.standards_range[0]:g}–{rr.standards_range[1]:g}"
+                lines.append(f"  RANGE NARROWED from the standards' {full_number(rr.standards_range[0])}–{full_number(rr.standards_range[1])}"
                              f"{in_unit}: {rr.narrowing}")
         lines += _samples_lines(a.samples, rule, run.settings.confidence_level)
         departed = rule_departures(a, rule)

@@ -124,7 +124,9 @@ def test_the_workbook_and_the_record_show_entered_values_in_full(make_window, an
         pdf.close()
     samples = text[text.index("Samples – analyte 1 Sample"):]
     assert "R-1 unknown 1 1234567 " in samples, samples[:400]
-    assert "Calibrated range 0.5–1234567 (LLOQ–ULOQ)" in text  # the highest standard, as entered
+    # the standards as entered (the lowest level fails its limits here, so the range is narrowed to the highest)
+    assert "Range of the standards in the fit 0.5–1234567" in text
+    assert "narrowed to the passing levels 1234567–1234567" in text
     window.actions_by_name["export-xlsx"].trigger()
     settle(qtbot, window)
     book = openpyxl.load_workbook(next(tmp_path.glob("*.xlsx")))

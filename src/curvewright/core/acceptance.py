@@ -28,6 +28,7 @@ from .values import frozen_value
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .errors import ProfileError
 from .levels import Levels, group_levels
+from .number_words import full_number
 
 if TYPE_CHECKING:  # pragma: no cover
     from .curve_rules import CurveRules
@@ -449,11 +450,11 @@ class AcceptanceProfile:
             x = cal.concentration
             low = float(x[levels.index == nonzero_levels[passed_levels[0]]].min())
             high = float(x[levels.index == nonzero_levels[passed_levels[-1]]].max())
-            failed = [f"the {end} level ({float(concentration[j]):g}) fails"
+            failed = [f"the {end} level ({full_number(float(concentration[j]))}) fails"
                       for end, j, fails in (("lowest", 0, not level_pass[0]),
                                             ("highest", len(level_pass) - 1, not level_pass[-1])) if fails]
             narrowing = (f"{' and '.join(failed)}; the reporting range is narrowed to the passing levels "
-                         f"{low:g}–{high:g} (LLOQ–ULOQ): results outside it are not reported as numbers")
+                         f"{full_number(low)}–{full_number(high)} (LLOQ–ULOQ): results outside it are not reported as numbers")
             passing_range = (low, high)
             reasons.append(f"note: {narrowing}")
         else:

@@ -19,8 +19,8 @@ import math
 import re
 import unicodedata
 from dataclasses import dataclass
-from decimal import Decimal
 
+from ..core.number_words import PLAIN_BELOW, PLAIN_FROM, full_number  # noqa: F401  (read from here too)
 from ..core.run import CENSORED_WORDS, Reading
 
 SPACES = "\u00a0\u202f\u2007\u2009 \t"
@@ -241,28 +241,6 @@ def thousands_evidence(tokens: list[str], decimal_mark: str | None) -> tuple[str
     if sep == decimal_mark:
         return None, f"{count} value(s) such as {example[sep]!r} group thousands with the decimal mark {sep!r}"
     return sep, f"thousands separator {shown.get(sep, repr(sep))} (shown by {count} value(s) such as {example[sep]!r})"
-
-
-PLAIN_FROM = 1e-6
-PLAIN_BELOW = 1e15
-"""Magnitudes written without an exponent by :func:`full_number` (zero too): every value a laboratory
-types for a concentration, a dilution factor or a response; an exponent only beyond them."""
-
-
-def full_number(value: float, decimal_mark: str | None = None) -> str:
-    """A number written with every digit it holds, so that reading the text back gives the same value
-    bit for bit: the shortest such digits (Python's ``repr``), written out without an exponent for
-    magnitudes from 1e-6 to below 1e15 ("1234567", "0.000025", "4.123456789"), with one beyond them
-    ("2.5e-09"). ``decimal_mark`` "," writes a decimal comma; any other value a point."""
-    if not math.isfinite(value):
-        return repr(value)
-    text = repr(float(value))
-    if value == 0 or PLAIN_FROM <= abs(value) < PLAIN_BELOW:
-        text = format(Decimal(text), "f")
-        if "." in text:
-            text = text.rstrip("0").rstrip(".")
-        text = "0" if text in ("-0", "") else text
-    return text.replace(".", ",") if decimal_mark == "," else text
 
 
 def number_for_editing(value: float, decimal_mark: str | None = None) -> str:

@@ -399,8 +399,8 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
                  ("Calibrated range, ULOQ (highest passing standard)" if narrowed else
                   "Calibrated range, ULOQ (highest standard)", a.reporting.uloq, None)]
         if narrowed:
-            rows += [("Range of the standards in the fit", f"{a.reporting.standards_range[0]:g}–"
-                      f"{a.reporting.standards_range[1]:g}", None),
+            rows += [("Range of the standards in the fit", f"{full_number(a.reporting.standards_range[0])}–"
+                      f"{full_number(a.reporting.standards_range[1])}", None),
                      ("Range narrowed, why", narrowed, None)]
         rows += [(f"Reporting limit ({a.reporting.basis})", a.reporting.reporting_limit, None),
                  ("Reporting limit, why", a.reporting.note, None),
