@@ -27,7 +27,7 @@ from ..core.run import Analyte, Run
 from ..io import run_edits
 from ..io.atomic import write_atomically
 from ..io.errors import ExportError
-from ..io.run_document import DocumentChanged, document_sha256
+from ..io.run_document import DocumentChanged, RecordsWouldBeLost, document_sha256
 from .curve_view import CurveView, InfluenceView
 from ..io.paste import read_block
 from .dialogs import AnalyteDialog, ImportDialog, ReasonDialog, SettingsDialog, ask_anchor_points, ask_exclusion
@@ -622,6 +622,8 @@ class MainWindow(QMainWindow):
     def _save_to(self, path: Path) -> bool:
         try:
             self.session.save(path)
+        except RecordsWouldBeLost as exc:
+            return self._records_on_disk(path, exc)
         except DocumentChanged:
             answer = QMessageBox.question(
                 self, "The file was changed on disk",
@@ -633,6 +635,8 @@ class MainWindow(QMainWindow):
                 return False
             try:
                 self.session.save(path, overwrite_changes=True)
+            except RecordsWouldBeLost as exc:  # recorded in it between the question and the save
+                return self._records_on_disk(path, exc)
             except CurvewrightError as exc:
                 QMessageBox.warning(self, "Not saved", str(exc))
                 return False
@@ -642,6 +646,28 @@ class MainWindow(QMainWindow):
         self._remember(path)
         self.show_message(f"Saved {path}")
         return True
+
+    def _records_on_disk(self, path: Path, refused: RecordsWouldBeLost) -> bool:
+        """A save over ``path`` was refused because the file records what this run does not (a
+        signature, an approval, audit entries written by another window or command since it was read):
+        never overwritten; the user saves this run under another name, or opens the file again."""
+        unsaved = ("Your unsaved changes here would be lost: save them under another name first if you need them."
+                   if self.session.dirty else "")
+        answer = QMessageBox.question(
+            self, "The file records more than this run",
+            f"{path} was not saved: since it was opened here, it was signed or recorded in elsewhere, and "
+            "saving this run over it would drop what it records:\n\n"
+            + "\n".join(f"- {line}" for line in refused.records)
+            + "\n\nSave: save this run under another name (the file stays as it is).\n"
+            f"Open: open the file again as it is now. {unsaved}\nCancel: do neither.",
+            QMessageBox.StandardButton.Save | QMessageBox.StandardButton.Open | QMessageBox.StandardButton.Cancel)
+        if answer == QMessageBox.StandardButton.Save:
+            return self.save_as()
+        if answer == QMessageBox.StandardButton.Open:
+            self.session.undo_stack.setClean()
+            self.session._unsaved_records = False
+            self.open_path(path)
+        return False
 
     def changeEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().changeEvent(event)
