@@ -1119,12 +1119,22 @@ class MainWindow(QMainWindow):
             QMessageBox.warning(self, "Sign the run", "A signature needs your full name: set it under Analysis → Run "
                                 "settings… (“Your full name”), then sign.")
             return False
-        dialog = SignDialog(role, person.words, str(self.settings.value("signing/key_file", "") or ""), self)
+        from ..io.signatures import roles_signed_by
+
+        result = self._fresh_result()  # the verdict shown is that of the run as it is now
+        accepted = result.accepted if result is not None else None
+        failing = [r for r in result.reasons if "FAIL" in r] if result is not None else []
+        verdict = ("" if accepted is None else ("ACCEPTED" if accepted else "NOT ACCEPTED")
+                   + (" — " + "; ".join(failing) if failing else ""))
+        dialog = SignDialog(role, person.words, str(self.settings.value("signing/key_file", "") or ""), self,
+                            verdict=verdict, accepted=accepted, given=self.session.run.signatures,
+                            also_signed_as=roles_signed_by(self.session.run, person, besides=role))
         if dialog.exec() != SignDialog.DialogCode.Accepted:
             return False
         meaning, key_file = dialog.values()
         try:
-            signed = sign(self.session.run, role, person, meaning=meaning, key_file=key_file)
+            signed = sign(self.session.run, role, person, meaning=meaning, key_file=key_file,
+                          verdict_accepted=accepted, not_accepted_reason=dialog.not_accepted_reason())
         except CurvewrightError as exc:
             QMessageBox.warning(self, "Not signed", str(exc))
             return False

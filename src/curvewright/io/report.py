@@ -27,7 +27,7 @@ from .audit_words import entry_words, when, who
 from .integrity import content_sha256
 from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
                             run_identity, samples_table, standards_table)
-from .signatures import APPROVAL_CHANGED, DEFAULT_MEANINGS, check_signatures, fingerprint
+from .signatures import APPROVAL_CHANGED, DEFAULT_MEANINGS, check_signatures, fingerprint, people_in_several_roles
 
 FORMULA_SOURCES = (
     "Least squares by QR decomposition on a centred, scaled basis (Björck 1996); weights scaled to sum to n "
@@ -262,6 +262,10 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
                                                f": {APPROVAL_CHANGED}, so it does not cover the current data"
                                                if APPROVAL_CHANGED in c.problem else "")))
                                          for c in checks), (False, False, False, False, False)))
+        several = people_in_several_roles(run)
+        if several:
+            blocks.append(Paragraph("One person signed in several roles: " + "; ".join(several)
+                                    + ". The laboratory's procedures say whether that is allowed.", "small"))
     signed = {c.signature.role for c in checks}
     to_sign = tuple((role.capitalize(), DEFAULT_MEANINGS[role]) for role in ("analyst", "reviewer", "approver")
                     if role not in signed)
