@@ -304,6 +304,8 @@ class MainWindow(QMainWindow):
         session.analysis_failed.connect(lambda e: self.show_message(f"analysis failed: {e}"))
         session.dirty_changed.connect(lambda _: self._update_title())
         session.path_changed.connect(lambda _: self._update_title())
+        session.path_changed.connect(self._hold_marker)
+        self._hold_marker()
         session.undo_stack.undoTextChanged.connect(self.command(self._update_undo_texts))
         session.undo_stack.redoTextChanged.connect(self.command(self._update_undo_texts))
         session.undo_stack.canUndoChanged.connect(self.command(self._update_undo_texts))
@@ -548,8 +550,73 @@ class MainWindow(QMainWindow):
             return self.save()
         return answer == QMessageBox.StandardButton.Discard
 
+    def _hold_marker(self, *_args) -> None:  # type: ignore[no-untyped-def]
+        """Mark the run's file as open here (``.NAME.open``, refreshed while it stays open), so that
+        another Curvewright opening it tells its user; a marker for a file left behind is removed."""
+        from PySide6.QtCore import QTimer
+
+        from ..io import open_marker
+        from ..io.audit import utc_now
+
+        path = self.session.path
+        held = getattr(self, "_marked", None)
+        if held is not None and held != path:
+            open_marker.let_go(held)
+        if path is not None and held != path:
+            self._marked_since = utc_now().strftime("%Y-%m-%dT%H:%M:%SZ")
+        self._marked = path
+        if path is not None:
+            open_marker.hold(path, self.session.identity, self._marked_since)
+        if not hasattr(self, "_marker_timer"):
+            self._marker_timer = QTimer(self)
+            self._marker_timer.setInterval(int(open_marker.REFRESH_SECONDS * 1000))
+            self._marker_timer.timeout.connect(self._hold_marker)
+            self._marker_timer.start()
+
+    def _let_go_marker(self) -> None:
+        from ..io import open_marker
+
+        held = getattr(self, "_marked", None)
+        if held is not None:
+            open_marker.let_go(held)
+        self._marked = None
+
+    def _already_open(self, path: Path) -> bool:
+        """When ``path`` is open in this window or another window of this program, bring that window
+        forward and say so; return True (nothing else is opened)."""
+        from PySide6.QtWidgets import QApplication
+
+        from ..io.atomic import same_file
+
+        for window in [self] + [w for w in QApplication.topLevelWidgets() if isinstance(w, MainWindow) and w is not self]:
+            if window.session.path is not None and same_file(window.session.path, path):
+                window.show()
+                window.raise_()
+                window.activateWindow()
+                window.show_message(f"{path} is already open in this window.")
+                if window is self:
+                    self.check_file_on_disk()
+                return True
+        return False
+
+    def _open_elsewhere_agreed(self, path: Path) -> bool:
+        """When another Curvewright holds ``path`` open (its marker), tell the user who, where and
+        since when, and ask whether to open it anyway; True to go on."""
+        from ..io import open_marker
+
+        marker = open_marker.current(path)
+        if marker is None:
+            return True
+        answer = QMessageBox.question(
+            self, "The run is open elsewhere",
+            f"{path} is open in another Curvewright: {marker.words()}.\n\nIf you both change it, the second to "
+            "save is refused and must save under another name or open the file again. Open it here anyway?",
+            QMessageBox.StandardButton.Open | QMessageBox.StandardButton.Cancel)
+        return answer == QMessageBox.StandardButton.Open
+
     def replace_session(self, session: RunSession) -> None:
         old = self.session
+        self._let_go_marker()
         for signal in (old.run_changed, old.analysis_ready, old.analysis_failed, old.dirty_changed, old.path_changed,
                        old.recovery_failed,
                        old.undo_stack.undoTextChanged, old.undo_stack.redoTextChanged, old.undo_stack.canUndoChanged,
@@ -592,7 +659,15 @@ class MainWindow(QMainWindow):
         if path:
             self.open_path(Path(path))
 
-    def open_path(self, path: Path) -> bool:
+    def open_path(self, path: Path, *, again: bool = False) -> bool:
+        """Open the run at ``path`` in this window; ``again``: the window's own file read anew. A run
+        already open in a window of this program is brought forward instead; one open in another
+        Curvewright (its marker) is opened only when the user agrees."""
+        if not again:
+            if self._already_open(Path(path)):
+                return True
+            if not self._open_elsewhere_agreed(Path(path)):
+                return False
         if not self.maybe_save():
             return False
         try:
@@ -666,7 +741,7 @@ class MainWindow(QMainWindow):
         if answer == QMessageBox.StandardButton.Open:
             self.session.undo_stack.setClean()
             self.session._unsaved_records = False
-            self.open_path(path)
+            self.open_path(path, again=True)
         return False
 
     def changeEvent(self, event) -> None:  # noqa: N802 - Qt override
@@ -698,7 +773,7 @@ class MainWindow(QMainWindow):
                 return False
             self.session.undo_stack.setClean()
             self.session._unsaved_records = False
-            return self.open_path(path)  # type: ignore[arg-type]
+            return self.open_path(path, again=True)  # type: ignore[arg-type]
         finally:
             self._asking_about_disk = False
 
@@ -1276,6 +1351,7 @@ class MainWindow(QMainWindow):
         self.commit_open_editors()
         if self.maybe_save():
             self.session.discard_recovery()
+            self._let_go_marker()
             event.accept()
         else:
             event.ignore()
