@@ -69,3 +69,18 @@ def test_the_out_of_date_window_cannot_overwrite_even_when_asked_to(
     first.actions_by_name["save"].trigger()
     assert path.read_bytes() == approved and first.session.dirty
     assert not any("Overwrite" in text for _title, text in answer_dialogs.seen)
+
+
+def test_choosing_the_same_name_again_is_refused_once(make_window, qtbot, tmp_path, monkeypatch,
+                                                       answer_dialogs) -> None:
+    """"Save under another name" answered with the file's own name: said once, nothing written."""
+    path = tmp_path / "run.json"
+    shutil.copy(DEMOS[0], path)
+    first, approved = approved_in_a_second_window(make_window, qtbot, monkeypatch, path)
+    monkeypatch.setattr(QFileDialog, "getSaveFileName", lambda *a, **k: (str(path), ""))
+    answer_dialogs["question"] = QMessageBox.StandardButton.Save
+    first.actions_by_name["save"].trigger()
+    assert answer_dialogs.seen[-1] == ("Not saved", f"{path} is the file that records more than this run; it was left "
+                                       "as it is. Save this run under another name, or open the file again.")
+    assert [title for title, _ in answer_dialogs.seen].count("The file records more than this run") == 1
+    assert path.read_bytes() == approved and first.session.dirty

@@ -737,7 +737,17 @@ class MainWindow(QMainWindow):
             f"Open: open the file again as it is now. {unsaved}\nCancel: do neither.",
             QMessageBox.StandardButton.Save | QMessageBox.StandardButton.Open | QMessageBox.StandardButton.Cancel)
         if answer == QMessageBox.StandardButton.Save:
-            return self.save_as()
+            from ..io.atomic import same_file
+
+            chosen, _ = QFileDialog.getSaveFileName(self, "Save run under another name", f"{self.session.run.name}.json",
+                                                    "Curvewright runs (*.json)")
+            if not chosen:
+                return False
+            if same_file(Path(chosen), path):
+                QMessageBox.warning(self, "Not saved", f"{chosen} is the file that records more than this run; it was "
+                                    "left as it is. Save this run under another name, or open the file again.")
+                return False
+            return self._save_to(Path(chosen))
         if answer == QMessageBox.StandardButton.Open:
             self.session.undo_stack.setClean()
             self.session._unsaved_records = False
