@@ -86,3 +86,18 @@ def test_a_marker_from_another_computer_counts_until_it_is_no_longer_refreshed(t
     now = time.time()
     assert open_marker.current(path, now=now).host == "bench-pc-7"
     assert open_marker.current(path, now=now + open_marker.STALE_AFTER_SECONDS + 1) is None
+
+
+def test_a_run_open_in_another_program_given_at_start_up_is_named_first(make_window, tmp_path, answer_dialogs) -> None:
+    path = tmp_path / "run.json"
+    shutil.copy(DEMOS[0], path)
+    holder = subprocess.Popen([sys.executable, "-c", HOLDER, str(path)], cwd=ROOT, stdout=subprocess.PIPE, text=True)
+    try:
+        assert holder.stdout.readline().strip() == "holding"
+        answer_dialogs["question"] = QMessageBox.StandardButton.Cancel
+        window = make_window(path)  # as when the program is started with the run's file
+        assert answer_dialogs.seen[-1][0] == "The run is open elsewhere" and window.session.path is None
+    finally:
+        holder.kill()
+        holder.wait(timeout=60)
+        holder.stdout.close()
