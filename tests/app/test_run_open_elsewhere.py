@@ -101,3 +101,13 @@ def test_a_run_open_in_another_program_given_at_start_up_is_named_first(make_win
         holder.kill()
         holder.wait(timeout=60)
         holder.stdout.close()
+
+
+def test_a_closed_window_holds_nothing_open(make_window, tmp_path, monkeypatch, answer_dialogs) -> None:
+    path = tmp_path / "run.json"
+    shutil.copy(DEMOS[0], path)
+    first = make_window(path)
+    first.close()  # closed; the object lives on until it is deleted
+    second = make_window(None)
+    open_from_menu(second, monkeypatch, path)
+    assert second.session.path == path and not first.isVisible()

@@ -588,7 +588,8 @@ class MainWindow(QMainWindow):
 
         from ..io.atomic import same_file
 
-        for window in [self] + [w for w in QApplication.topLevelWidgets() if isinstance(w, MainWindow) and w is not self]:
+        others = [w for w in QApplication.topLevelWidgets() if isinstance(w, MainWindow) and w is not self and w.isVisible()]
+        for window in [self] + others:  # a closed window (hidden, not yet deleted) holds nothing open
             if window.session.path is not None and same_file(window.session.path, path):
                 window.show()
                 window.raise_()
