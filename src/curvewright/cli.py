@@ -45,6 +45,11 @@ what a signature proves:
   that nothing it signed was changed, even by someone who rebuilt the whole audit trail. Without a key,
   the chain detects accidental or casual edits of the file, not a deliberate rebuild.
 
+the verdict and the people:
+  A run whose verdict is NOT ACCEPTED is approved only with --approve-not-accepted REASON: the reason is
+  recorded in the audit trail and printed beside the approval in the record. One person may sign in
+  several roles (laboratories differ); the command warns, and the trail and the record say so.
+
 examples:
   curvewright sign run.json --role analyst --analyst "Robin Example" --analyst-id QA-0042
   curvewright sign run.json --role approver --key lab-signing.key --meaning "released for the client report"
@@ -173,6 +178,8 @@ def build_parser(only: str | None = None) -> argparse.ArgumentParser:
         g.add_argument("--role", required=True, choices=("analyst", "reviewer", "approver"))
         g.add_argument("--meaning", default="", help="what the signature means (default: the role's usual meaning)")
         g.add_argument("--key", metavar="PRIVATE.pem", help="the laboratory's signing key: the signature is keyed")
+        g.add_argument("--approve-not-accepted", metavar="REASON", default="",
+                       help="approve although the run's verdict is NOT ACCEPTED, for this reason (recorded and printed)")
         _identity_options(g)
 
     if only in (None, "withdraw-approval"):
@@ -1549,12 +1556,32 @@ def _print_signatures(run, lab_key: str | None) -> int:  # type: ignore[no-untyp
 def cmd_sign(args: argparse.Namespace) -> int:
     from .io.audit import identity_from
     from .io.run_document import update_run_document
-    from .io.signatures import sign
+    from .io.signatures import SigningError, sign
+
+    from .core.run_analysis import analyse_run
+    from .io.signatures import roles_signed_by
 
     person = identity_from(args.analyst, args.analyst_id)
-    run = update_run_document(args.run, lambda r: sign(r, args.role, person, meaning=args.meaning, key_file=args.key))
+    also: list[tuple[str, ...]] = []
+
+    def signed_now(run):  # type: ignore[no-untyped-def]
+        """The run as read under the document's lock, signed: its verdict analysed from that very run."""
+        also[:] = [roles_signed_by(run, person, besides=args.role)]
+        accepted = analyse_run(run).accepted
+        if args.approve_not_accepted.strip() and (args.role != "approver" or accepted):
+            raise SigningError("--approve-not-accepted: " + ("only an approval of a run whose verdict is NOT ACCEPTED "
+                               "takes it" if args.role != "approver" else "the run's verdict is ACCEPTED; "
+                               "nothing needs a reason") + "; nothing was signed.")
+        return sign(run, args.role, person, meaning=args.meaning, key_file=args.key, verdict_accepted=accepted,
+                    not_accepted_reason=args.approve_not_accepted)
+
+    run = update_run_document(args.run, signed_now)
     signed = run.signatures[-1]
     keyed = " (keyed)" if signed.signature else ""
+    if also and also[0]:
+        print(f"warning: {signed.name} has already signed this run as {' and '.join(also[0])}; one person now signs "
+              f"it in several roles (allowed where the laboratory's procedures allow it; the record says so)",
+              file=sys.stderr)
     print(f"{args.run}: signed by {signed.name} as {signed.role}{keyed}: “{signed.meaning}”")
     if run.approval is not None:
         print("the run is approved and locked; edits are refused until the approval is withdrawn with a reason")

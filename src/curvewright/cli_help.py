@@ -345,7 +345,8 @@ TEXTS: dict[tuple[str, ...], str] = {
     ('sign',): (
         'usage: curvewright sign [-h] --role {analyst,reviewer,approver}\n'
         '                        [--meaning MEANING] [--key PRIVATE.pem]\n'
-        '                        [--analyst NAME] [--analyst-id ID]\n'
+        '                        [--approve-not-accepted REASON] [--analyst NAME]\n'
+        '                        [--analyst-id ID]\n'
         '                        RUN\n'
         '\n'
         'positional arguments:\n'
@@ -357,6 +358,9 @@ TEXTS: dict[tuple[str, ...], str] = {
         "  --meaning MEANING     what the signature means (default: the role's usual\n"
         '                        meaning)\n'
         "  --key PRIVATE.pem     the laboratory's signing key: the signature is keyed\n"
+        '  --approve-not-accepted REASON\n'
+        "                        approve although the run's verdict is NOT ACCEPTED,\n"
+        '                        for this reason (recorded and printed)\n'
         '  --analyst NAME        your full name for the audit trail (default:\n'
         '                        $CURVEWRIGHT_ANALYST)\n'
         '  --analyst-id ID       your laboratory ID (default: $CURVEWRIGHT_ANALYST_ID)\n'
@@ -368,6 +372,11 @@ TEXTS: dict[tuple[str, ...], str] = {
         "  'curvewright keys new'), the signature is keyed: 'curvewright check --lab-key PUBLIC.pem' then shows\n"
         '  that nothing it signed was changed, even by someone who rebuilt the whole audit trail. Without a key,\n'
         '  the chain detects accidental or casual edits of the file, not a deliberate rebuild.\n'
+        '\n'
+        'the verdict and the people:\n'
+        '  A run whose verdict is NOT ACCEPTED is approved only with --approve-not-accepted REASON: the reason is\n'
+        '  recorded in the audit trail and printed beside the approval in the record. One person may sign in\n'
+        '  several roles (laboratories differ); the command warns, and the trail and the record say so.\n'
         '\n'
         'examples:\n'
         '  curvewright sign run.json --role analyst --analyst "Robin Example" --analyst-id QA-0042\n'

@@ -8,7 +8,7 @@ import shutil
 import subprocess
 import sys
 
-from PySide6.QtWidgets import QMessageBox
+from PySide6.QtWidgets import QFileDialog, QMessageBox
 
 from curvewright.app import standards_model as sm
 from curvewright.io.run_document import open_run
@@ -38,8 +38,8 @@ def test_a_file_changed_on_disk_is_offered_for_reload(make_window, qtbot, tmp_pa
     assert not window.check_file_on_disk()  # nothing changed since the reload: nothing asked
 
 
-def test_a_save_never_overwrites_changes_made_on_disk_without_asking(make_window, qtbot, tmp_path,
-                                                                    answer_dialogs) -> None:
+def test_a_save_never_overwrites_entries_recorded_on_disk(make_window, qtbot, tmp_path, monkeypatch,
+                                                         answer_dialogs) -> None:
     path = tmp_path / "run.json"
     shutil.copy(DEMOS[0], path)
     window = make_window(path)
@@ -50,7 +50,29 @@ def test_a_save_never_overwrites_changes_made_on_disk_without_asking(make_window
     theirs = path.read_bytes()
     answer_dialogs["question"] = QMessageBox.StandardButton.No  # keep working on my version
     assert not window.check_file_on_disk()
-    answer_dialogs["question"] = QMessageBox.StandardButton.Cancel  # then save: asked, and cancelled
+    answer_dialogs["question"] = QMessageBox.StandardButton.Cancel  # then save: refused, and cancelled
+    window.actions_by_name["save"].trigger()
+    assert path.read_bytes() == theirs and answer_dialogs.seen[-1][0] == "The file records more than this run"
+    assert "1 audit trail entry (export_written)" in answer_dialogs.seen[-1][1]  # their entry is never dropped
+    answer_dialogs["question"] = QMessageBox.StandardButton.Save  # refused again: save mine under another name
+    monkeypatch.setattr(QFileDialog, "getSaveFileName", lambda *a, **k: (str(tmp_path / "mine.json"), ""))
+    window.actions_by_name["save"].trigger()
+    assert path.read_bytes() == theirs and open_run(tmp_path / "mine.json").run == window.session.run
+
+
+def test_a_file_changed_outside_curvewright_is_overwritten_only_when_asked(make_window, qtbot, tmp_path,
+                                                                          answer_dialogs) -> None:
+    """A change that records nothing (the same document laid out anew by a text editor) may be
+    overwritten, after a question; its version is kept as .bak."""
+    path = tmp_path / "run.json"
+    shutil.copy(DEMOS[0], path)
+    window = make_window(path)
+    model = window.standards_model
+    assert model.setData(model.index(3, sm.RESP), "0.2037")
+    settle(qtbot, window)
+    theirs = path.read_bytes().replace(b"\n", b"\r\n")
+    path.write_bytes(theirs)
+    answer_dialogs["question"] = QMessageBox.StandardButton.Cancel
     window.actions_by_name["save"].trigger()
     assert path.read_bytes() == theirs and answer_dialogs.seen[-1][0] == "The file was changed on disk"
     answer_dialogs["question"] = QMessageBox.StandardButton.Save  # asked again, and overwritten this time

@@ -78,8 +78,11 @@ def test_a_program_holding_the_document_learns_that_it_changed(tmp_path) -> None
     assert doc.document_unchanged(document, opened.sha256)
     doc.append_to_run_document(document, [("report_written", {"path": "r.pdf", "sha256": "1" * 64})])
     assert not doc.document_unchanged(document, opened.sha256)
-    with pytest.raises(doc.DocumentChanged, match=r"changed on disk after it was opened .*; nothing was written"):
+    with pytest.raises(doc.RecordsWouldBeLost, match=r"(?s)now records what this run does not.*\n- 1 audit trail "
+                       r"entry \(report_written\).*Nothing was written"):
         doc.save_run(opened.run, document, expected_sha256=opened.sha256)
+    with pytest.raises(doc.RecordsWouldBeLost):  # nor when told to overwrite: the check is made at the write
+        doc.save_run(opened.run, document)
     assert doc.open_run(document).run.audit[-1].action == "report_written"  # the other writer's entry is kept
     reopened = doc.open_run(document)
     written = doc.save_run(reopened.run, document, expected_sha256=reopened.sha256)
@@ -117,3 +120,14 @@ def test_without_file_locks_an_append_still_keeps_the_other_writers_entry(tmp_pa
     actions = [(e.action, e.details["path"]) for e in doc.open_run(document).run.audit[-2:]]
     assert actions == [("report_written", "other.pdf"), ("export_written", "mine.xlsx")]
     assert saved == doc.open_run(document).run and doc.open_run(document).chain_verified
+
+
+def test_a_document_changed_without_new_records_is_refused_only_while_its_reader_expects_it(tmp_path) -> None:
+    document = tmp_path / "R.json"
+    doc.save_run(small_run(), document)
+    opened = doc.open_run(document)
+    document.write_bytes(document.read_bytes().replace(b"\n", b"\r\n"))  # laid out anew, nothing recorded
+    with pytest.raises(doc.DocumentChanged, match=r"changed on disk after it was opened .*; nothing was written"):
+        doc.save_run(opened.run, document, expected_sha256=opened.sha256)
+    doc.save_run(opened.run, document)  # the caller chose to overwrite: nothing recorded is lost
+    assert doc.open_run(document).run == opened.run

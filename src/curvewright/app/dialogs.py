@@ -7,14 +7,14 @@ from pathlib import Path
 
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QBrush
-from PySide6.QtWidgets import (QComboBox, QDialog, QDialogButtonBox, QDoubleSpinBox, QFormLayout, QLabel,
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QDialog, QDialogButtonBox, QDoubleSpinBox, QFormLayout, QLabel,
                                QLineEdit, QPlainTextEdit, QSpinBox, QTableWidget, QTableWidgetItem, QVBoxLayout,
                                QWidget)
 
 from ..core.acceptance import available_profiles, load_profile
 from ..core.errors import CurvewrightError
 from ..core.rounding import RoundingRule
-from ..core.run import Analyte, Run
+from ..core.run import Analyte, Run, Signature
 from ..io import run_edits
 from ..io.audit import Identity
 from ..io.importing import ImportResult, import_samples, import_standards
@@ -418,11 +418,16 @@ class SettingsDialog(QDialog):
 
 
 class SignDialog(QDialog):
-    """Signing the run: the role, what the signature means (the role's usual words, which the signer may
-    change), and the laboratory's signing key when the signature is to be keyed."""
+    """Signing the run: the run's verdict and the signatures already given (role, person, time), the
+    role, what the signature means (the role's usual words, which the signer may change), and the
+    laboratory's signing key when the signature is to be keyed. Approving a NOT ACCEPTED run needs an
+    explicit confirmation and a reason; signing a second role as the same person is said plainly
+    (it is allowed: laboratories differ)."""
 
-    def __init__(self, role: str, signer: str, key_file: str = "", parent: QWidget | None = None) -> None:
-        from ..io.signatures import DEFAULT_MEANINGS
+    def __init__(self, role: str, signer: str, key_file: str = "", parent: QWidget | None = None, *,
+                 verdict: str = "", accepted: bool | None = None, given: tuple[Signature, ...] = (),
+                 also_signed_as: tuple[str, ...] = ()) -> None:
+        from ..io.signatures import DEFAULT_MEANINGS, WITHDRAWN
 
         super().__init__(parent)
         self.setWindowTitle(f"Sign the run as {role}")
@@ -436,24 +441,65 @@ class SignDialog(QDialog):
         self.buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Ok | QDialogButtonBox.StandardButton.Cancel)
         self.buttons.accepted.connect(self.accept)
         self.buttons.rejected.connect(self.reject)
+        form = QFormLayout(self)
+        self.verdict = QLabel(f"Run verdict: {verdict}" if verdict else "Run verdict: not yet analysed")
+        self.verdict.setObjectName("sign-verdict")
+        self.verdict.setWordWrap(True)
+        form.addRow(self.verdict)
+        lines = [(f"{s.role}: {s.name}" + (f" (ID {s.person_id})" if s.person_id else "")
+                  + f", {s.time_utc.replace('T', ' ')[:19]} UTC"
+                  + (f" — {s.meaning}" if s.role == WITHDRAWN else "")) for s in given]
+        self.given = QLabel("Signatures already given:\n" + "\n".join(lines) if lines else "No signatures yet.")
+        self.given.setObjectName("sign-given")
+        self.given.setWordWrap(True)
+        form.addRow(self.given)
+        self.same_person = QLabel(
+            f"You have already signed this run as {' and '.join(also_signed_as)}. You may sign as {role} too if "
+            "your laboratory's procedures allow one person in several roles; the record will say so."
+            if also_signed_as else "")
+        self.same_person.setObjectName("sign-same-person")
+        self.same_person.setWordWrap(True)
+        self.same_person.setVisible(bool(also_signed_as))
+        if also_signed_as:
+            form.addRow(self.same_person)
         note = QLabel(f"Signed by {signer}. The signature records your name, ID and login, the role, its meaning, the "
                       "time and the SHA-256 of the data and of the audit trail."
                       + (" Approval locks the run: edits are refused until the approval is withdrawn with a reason."
                          if role == "approver" else ""))
         note.setWordWrap(True)
-        form = QFormLayout(self)
         form.addRow(note)
         form.addRow("&Meaning", self.meaning)
+        self.needs_reason = role == "approver" and accepted is False
+        self.despite = QCheckBox("I approve these results although the run is NOT ACCEPTED")
+        self.despite.setObjectName("sign-despite")
+        self.despite_reason = QPlainTextEdit()
+        self.despite_reason.setAccessibleName("Why the run is approved although it is not accepted")
+        self.despite_reason.setPlaceholderText("required: why these results are released although the run's "
+                                               "checks fail (recorded in the audit trail and printed beside "
+                                               "the approval)")
+        self.despite_reason.setTabChangesFocus(True)
+        if self.needs_reason:
+            form.addRow(self.despite)
+            form.addRow("&Reason", self.despite_reason)
         form.addRow("Signing &key", self.key_file)
         form.addRow(self.buttons)
         self.meaning.textChanged.connect(self._update)
+        self.despite.toggled.connect(self._update)
+        self.despite_reason.textChanged.connect(self._update)
         self._update()
 
     def values(self) -> tuple[str, str | None]:
         return self.meaning.toPlainText().strip(), (self.key_file.text().strip() or None)
 
+    def not_accepted_reason(self) -> str:
+        """Why a NOT ACCEPTED run is approved ("" when the dialog did not ask)."""
+        return self.despite_reason.toPlainText().strip() if self.needs_reason and self.despite.isChecked() else ""
+
     def _update(self) -> None:
-        self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(bool(self.meaning.toPlainText().strip()))
+        ready = bool(self.meaning.toPlainText().strip())
+        if self.needs_reason:
+            ready = ready and self.despite.isChecked() and bool(self.despite_reason.toPlainText().strip())
+        self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(ready)
 
 
 class RunDetailsDialog(QDialog):

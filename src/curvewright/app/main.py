@@ -84,16 +84,22 @@ def build_window(path: Path | None = None, *, settings: QSettings | None = None,
     settings = settings or QSettings("Curvewright", "Curvewright")
     identity = settings_identity(settings)
     session = offer_recovery(recovery_folder, identity=identity)
+    from ..io import open_marker
+
     problems: tuple[str, ...] = ()
+    # a run open in another Curvewright: the window starts blank and asks before opening it
+    elsewhere = session is None and path is not None and open_marker.current(Path(path)) is not None
     if session is None:
-        if path is not None:
+        if path is not None and not elsewhere:
             session, problems = RunSession.open(path, recovery_folder=recovery_folder, identity=identity,
                                                 defer_analysis=True)
         else:
             session = RunSession(blank_run(settings), recovery_folder=recovery_folder, identity=identity,
                                  defer_analysis=True)
     window = MainWindow(session, settings)
-    if path is not None:
+    if elsewhere:
+        window.open_path(Path(path))  # type: ignore[arg-type]
+    elif path is not None:
         window._remember(path)
     if problems:
         QMessageBox.warning(window, "Not as Curvewright left it", "\n".join(problems))

@@ -28,7 +28,7 @@ from ..core.run import Analyte, Run
 from ..io import run_edits
 from ..io.atomic import write_atomically
 from ..io.errors import ExportError
-from ..io.run_document import DocumentChanged, document_sha256
+from ..io.run_document import DocumentChanged, RecordsWouldBeLost, document_sha256
 from .curve_view import CurveView, InfluenceView
 from ..io.paste import read_block
 from .dialogs import AnalyteDialog, ImportDialog, ReasonDialog, SettingsDialog, ask_anchor_points, ask_exclusion
@@ -398,6 +398,8 @@ class MainWindow(QMainWindow):
         session.analysis_failed.connect(lambda e: self.show_message(f"analysis failed: {e}"))
         session.dirty_changed.connect(lambda _: self._update_title())
         session.path_changed.connect(lambda _: self._update_title())
+        session.path_changed.connect(self._hold_marker)
+        self._hold_marker()
         session.undo_stack.undoTextChanged.connect(self.command(self._update_undo_texts))
         session.undo_stack.redoTextChanged.connect(self.command(self._update_undo_texts))
         session.undo_stack.canUndoChanged.connect(self.command(self._update_undo_texts))
@@ -676,8 +678,74 @@ class MainWindow(QMainWindow):
             return self.save()
         return answer == QMessageBox.StandardButton.Discard
 
+    def _hold_marker(self, *_args) -> None:  # type: ignore[no-untyped-def]
+        """Mark the run's file as open here (``.NAME.open``, refreshed while it stays open), so that
+        another Curvewright opening it tells its user; a marker for a file left behind is removed."""
+        from PySide6.QtCore import QTimer
+
+        from ..io import open_marker
+        from ..io.audit import utc_now
+
+        path = self.session.path
+        held = getattr(self, "_marked", None)
+        if held is not None and held != path:
+            open_marker.let_go(held)
+        if path is not None and held != path:
+            self._marked_since = utc_now().strftime("%Y-%m-%dT%H:%M:%SZ")
+        self._marked = path
+        if path is not None:
+            open_marker.hold(path, self.session.identity, self._marked_since)
+        if not hasattr(self, "_marker_timer"):
+            self._marker_timer = QTimer(self)
+            self._marker_timer.setInterval(int(open_marker.REFRESH_SECONDS * 1000))
+            self._marker_timer.timeout.connect(self._hold_marker)
+            self._marker_timer.start()
+
+    def _let_go_marker(self) -> None:
+        from ..io import open_marker
+
+        held = getattr(self, "_marked", None)
+        if held is not None:
+            open_marker.let_go(held)
+        self._marked = None
+
+    def _already_open(self, path: Path) -> bool:
+        """When ``path`` is open in this window or another window of this program, bring that window
+        forward and say so; return True (nothing else is opened)."""
+        from PySide6.QtWidgets import QApplication
+
+        from ..io.atomic import same_file
+
+        others = [w for w in QApplication.topLevelWidgets() if isinstance(w, MainWindow) and w is not self and w.isVisible()]
+        for window in [self] + others:  # a closed window (hidden, not yet deleted) holds nothing open
+            if window.session.path is not None and same_file(window.session.path, path):
+                window.show()
+                window.raise_()
+                window.activateWindow()
+                window.show_message(f"{path} is already open in this window.")
+                if window is self:
+                    self.check_file_on_disk()
+                return True
+        return False
+
+    def _open_elsewhere_agreed(self, path: Path) -> bool:
+        """When another Curvewright holds ``path`` open (its marker), tell the user who, where and
+        since when, and ask whether to open it anyway; True to go on."""
+        from ..io import open_marker
+
+        marker = open_marker.current(path)
+        if marker is None:
+            return True
+        answer = QMessageBox.question(
+            self, "The run is open elsewhere",
+            f"{path} is open in another Curvewright: {marker.words()}.\n\nIf you both change it, the second to "
+            "save is refused and must save under another name or open the file again. Open it here anyway?",
+            QMessageBox.StandardButton.Open | QMessageBox.StandardButton.Cancel)
+        return answer == QMessageBox.StandardButton.Open
+
     def replace_session(self, session: RunSession) -> None:
         old = self.session
+        self._let_go_marker()
         for signal in (old.run_changed, old.analysis_ready, old.analysis_failed, old.dirty_changed, old.path_changed,
                        old.recovery_failed,
                        old.undo_stack.undoTextChanged, old.undo_stack.redoTextChanged, old.undo_stack.canUndoChanged,
@@ -720,7 +788,15 @@ class MainWindow(QMainWindow):
         if path:
             self.open_path(Path(path))
 
-    def open_path(self, path: Path) -> bool:
+    def open_path(self, path: Path, *, again: bool = False) -> bool:
+        """Open the run at ``path`` in this window; ``again``: the window's own file read anew. A run
+        already open in a window of this program is brought forward instead; one open in another
+        Curvewright (its marker) is opened only when the user agrees."""
+        if not again:
+            if self._already_open(Path(path)):
+                return True
+            if not self._open_elsewhere_agreed(Path(path)):
+                return False
         if not self.maybe_save():
             return False
         try:
@@ -750,6 +826,8 @@ class MainWindow(QMainWindow):
     def _save_to(self, path: Path) -> bool:
         try:
             self.session.save(path)
+        except RecordsWouldBeLost as exc:
+            return self._records_on_disk(path, exc)
         except DocumentChanged:
             answer = QMessageBox.question(
                 self, "The file was changed on disk",
@@ -761,6 +839,8 @@ class MainWindow(QMainWindow):
                 return False
             try:
                 self.session.save(path, overwrite_changes=True)
+            except RecordsWouldBeLost as exc:  # recorded in it between the question and the save
+                return self._records_on_disk(path, exc)
             except CurvewrightError as exc:
                 QMessageBox.warning(self, "Not saved", str(exc))
                 return False
@@ -770,6 +850,38 @@ class MainWindow(QMainWindow):
         self._remember(path)
         self.show_message(f"Saved {path}")
         return True
+
+    def _records_on_disk(self, path: Path, refused: RecordsWouldBeLost) -> bool:
+        """A save over ``path`` was refused because the file records what this run does not (a
+        signature, an approval, audit entries written by another window or command since it was read):
+        never overwritten; the user saves this run under another name, or opens the file again."""
+        unsaved = ("Your unsaved changes here would be lost: save them under another name first if you need them."
+                   if self.session.dirty else "")
+        answer = QMessageBox.question(
+            self, "The file records more than this run",
+            f"{path} was not saved: since it was opened here, it was signed or recorded in elsewhere, and "
+            "saving this run over it would drop what it records:\n\n"
+            + "\n".join(f"- {line}" for line in refused.records)
+            + "\n\nSave: save this run under another name (the file stays as it is).\n"
+            f"Open: open the file again as it is now. {unsaved}\nCancel: do neither.",
+            QMessageBox.StandardButton.Save | QMessageBox.StandardButton.Open | QMessageBox.StandardButton.Cancel)
+        if answer == QMessageBox.StandardButton.Save:
+            from ..io.atomic import same_file
+
+            chosen, _ = QFileDialog.getSaveFileName(self, "Save run under another name", f"{self.session.run.name}.json",
+                                                    "Curvewright runs (*.json)")
+            if not chosen:
+                return False
+            if same_file(Path(chosen), path):
+                QMessageBox.warning(self, "Not saved", f"{chosen} is the file that records more than this run; it was "
+                                    "left as it is. Save this run under another name, or open the file again.")
+                return False
+            return self._save_to(Path(chosen))
+        if answer == QMessageBox.StandardButton.Open:
+            self.session.undo_stack.setClean()
+            self.session._unsaved_records = False
+            self.open_path(path, again=True)
+        return False
 
     def changeEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().changeEvent(event)
@@ -800,7 +912,7 @@ class MainWindow(QMainWindow):
                 return False
             self.session.undo_stack.setClean()
             self.session._unsaved_records = False
-            return self.open_path(path)  # type: ignore[arg-type]
+            return self.open_path(path, again=True)  # type: ignore[arg-type]
         finally:
             self._asking_about_disk = False
 
@@ -1259,12 +1371,22 @@ class MainWindow(QMainWindow):
             QMessageBox.warning(self, "Sign the run", f"A signature needs your full name: set it under "
                                 f"{PREFERENCES_MENU} (“Your full name”), then sign.")
             return False
-        dialog = SignDialog(role, person.words, str(self.settings.value("signing/key_file", "") or ""), self)
+        from ..io.signatures import roles_signed_by
+
+        result = self._fresh_result()  # the verdict shown is that of the run as it is now
+        accepted = result.accepted if result is not None else None
+        failing = [r for r in result.reasons if "FAIL" in r] if result is not None else []
+        verdict = ("" if accepted is None else ("ACCEPTED" if accepted else "NOT ACCEPTED")
+                   + (" — " + "; ".join(failing) if failing else ""))
+        dialog = SignDialog(role, person.words, str(self.settings.value("signing/key_file", "") or ""), self,
+                            verdict=verdict, accepted=accepted, given=self.session.run.signatures,
+                            also_signed_as=roles_signed_by(self.session.run, person, besides=role))
         if dialog.exec() != SignDialog.DialogCode.Accepted:
             return False
         meaning, key_file = dialog.values()
         try:
-            signed = sign(self.session.run, role, person, meaning=meaning, key_file=key_file)
+            signed = sign(self.session.run, role, person, meaning=meaning, key_file=key_file,
+                          verdict_accepted=accepted, not_accepted_reason=dialog.not_accepted_reason())
         except CurvewrightError as exc:
             QMessageBox.warning(self, "Not signed", str(exc))
             return False
@@ -1409,6 +1531,7 @@ class MainWindow(QMainWindow):
         self.commit_open_editors()
         if self.maybe_save():
             self.session.discard_recovery()
+            self._let_go_marker()
             event.accept()
         else:
             event.ignore()

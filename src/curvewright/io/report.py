@@ -28,7 +28,8 @@ from .integrity import content_sha256
 from .number_text import full_number
 from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
                             run_identity, samples_table, standards_table)
-from .signatures import DEFAULT_MEANINGS, SIGNATURE_COLUMNS, check_signatures, signature_rows
+from .signatures import (DEFAULT_MEANINGS, SIGNATURE_COLUMNS, check_signatures, people_in_several_roles,
+                         signature_rows)
 
 FORMULA_SOURCES = (
     "Least squares by QR decomposition on a centred, scaled basis (Björck 1996); weights scaled to sum to n "
@@ -261,6 +262,10 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
     if checks:
         blocks.append(PrintedTable("Signatures", SIGNATURE_COLUMNS, signature_rows(checks),
                                    (False, False, False, False, False)))
+        several = people_in_several_roles(run)
+        if several:
+            blocks.append(Paragraph("One person signed in several roles: " + "; ".join(several)
+                                    + ". The laboratory's procedures say whether that is allowed.", "small"))
     signed = {c.signature.role for c in checks}
     to_sign = tuple((role.capitalize(), DEFAULT_MEANINGS[role]) for role in ("analyst", "reviewer", "approver")
                     if role not in signed)

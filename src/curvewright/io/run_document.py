@@ -15,7 +15,10 @@ lock on ``.NAME.lock`` beside it, so that :func:`append_to_run_document` (the co
 processes recording at once both keep their entries. A program that holds a document open can pass
 the :attr:`OpenedRun.sha256` it read to :func:`save_run` (``expected_sha256``), which then refuses
 with :class:`DocumentChanged` if the file on disk changed meanwhile; :func:`document_unchanged` asks
-the same question without saving.
+the same question without saving. A save never drops what the file on disk records and the run does
+not (signatures, an approval, audit entries written elsewhere since it was read): that is checked
+under the lock, just before the write, and refused with :class:`RecordsWouldBeLost`, even when the
+caller chose to overwrite.
 
 Recovery files (the app's autosave) are a small wrapper, format ``curvewright-recovery``, holding
 the run and the path of the document it belongs to (:func:`save_recovery`, :func:`open_recovery`).
@@ -266,20 +269,80 @@ class DocumentChanged(ExportError):
     """The document on disk is no longer the one that was opened; nothing was written."""
 
 
+class RecordsWouldBeLost(DocumentChanged):
+    """The document on disk records what the run being saved does not (audit entries, signatures,
+    an approval added since it was read); overwriting it would drop them, so nothing was written.
+    ``records`` says what, one line each."""
+
+    def __init__(self, message: str, records: tuple[str, ...]) -> None:
+        super().__init__(message)
+        self.records = records
+
+
+def records_not_kept(on_disk: Run, run: Run) -> tuple[str, ...]:
+    """What the run ``on_disk`` records that ``run`` does not, one line each: its signatures
+    (approvals and withdrawals among them) and its audit entries absent from ``run``'s trail
+    (compared by their chain hashes). Only for two versions of one run (their trails start with
+    the same entry); for anything else, nothing is compared and () is returned."""
+    if on_disk.audit and run.audit and on_disk.audit[0].hash != run.audit[0].hash:
+        return ()
+    kept = {(s.role, s.name, s.person_id, s.time_utc, s.content_sha256) for s in run.signatures}
+    lines = [
+        f"the {s.role} signature of {s.name or s.login} ({s.time_utc})" if s.role in SIGNATURE_ROLES
+        else f"a record that {s.name or s.login} withdrew an approval ({s.time_utc})"
+        for s in on_disk.signatures if (s.role, s.name, s.person_id, s.time_utc, s.content_sha256) not in kept
+    ]
+    held = {e.hash for e in run.audit}
+    missing = [e for e in on_disk.audit if e.hash not in held]
+    if missing:
+        actions = ", ".join(dict.fromkeys(e.action for e in missing))
+        lines.append(f"{len(missing)} audit trail entr{'y' if len(missing) == 1 else 'ies'} ({actions}), "
+                     f"the last by {missing[-1].analyst or missing[-1].user} at {missing[-1].time_utc}")
+    return tuple(lines)
+
+
+def _refuse_losing_records(run: Run, path: Path) -> None:
+    """Raise :class:`RecordsWouldBeLost` when the run document now at ``path`` records what ``run``
+    does not (a file that is not a readable run document is not compared: it holds no trail)."""
+    if not path.is_file():
+        return
+    try:
+        on_disk = open_run(path).run
+    except (CurvewrightError, OSError):
+        return
+    lost = records_not_kept(on_disk, run)
+    if lost:
+        raise RecordsWouldBeLost(
+            f"{path}: not saved, because the file now records what this run does not, and saving over it "
+            "would drop it:\n" + "\n".join(f"- {line}" for line in lost)
+            + "\nNothing was written. Open the file again to see it, or save this run under another name.",
+            lost,
+        )
+
+
 def save_run(run: Run, path: str | Path, *, expected_sha256: str | None = None) -> str:
     """Save atomically under the document's lock, keeping the previous file as ``NAME.bak``;
     return the SHA-256 of what was written. With ``expected_sha256`` (the :attr:`OpenedRun.sha256`
     read when the document was opened, or returned by the last save) the save is refused with
-    :class:`DocumentChanged` when the file on disk is no longer that one."""
+    :class:`DocumentChanged` when the file on disk is no longer that one.
+
+    Whenever the file on disk is not that one (or none was expected), it is read under the lock,
+    just before it would be replaced: when it is a version of the same run that records audit
+    entries or signatures this run lacks (another window or command signed, approved or recorded
+    in it since this run was read), the save is refused with :class:`RecordsWouldBeLost`, even
+    when the caller chose to overwrite changes: nothing recorded is ever dropped by a save."""
     path = Path(path)
     data = _readable_document(run, path)
     with exclusive_lock(path):
-        if expected_sha256 is not None and document_sha256(path) != expected_sha256:
-            raise DocumentChanged(
-                f"{path}: not saved, because the file was changed on disk after it was opened (by another "
-                "program, or by a command that recorded an export in it); nothing was written. Open it again "
-                "to see the changes, or save this run under another name."
-            )
+        on_disk = document_sha256(path) if path.exists() else None
+        if on_disk is not None and on_disk != expected_sha256:
+            _refuse_losing_records(run, path)
+            if expected_sha256 is not None:
+                raise DocumentChanged(
+                    f"{path}: not saved, because the file was changed on disk after it was opened (by another "
+                    "program, or by a command that recorded an export in it); nothing was written. Open it again "
+                    "to see the changes, or save this run under another name."
+                )
         write_atomically(path, data, keep_backup=True)
     return file_sha256(data)
 

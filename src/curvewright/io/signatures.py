@@ -104,10 +104,47 @@ def public_key_hex(path: str | Path) -> str:
     return key.public_bytes(serialization.Encoding.Raw, serialization.PublicFormat.Raw).hex()
 
 
+NOT_ACCEPTED_WORDS = "Approved although the run verdict is NOT ACCEPTED; reason:"
+"""Begins what an approval of a NOT ACCEPTED run adds to its meaning (printed beside it, and signed)."""
+
+
+def _same_person(s: Signature, person: Identity) -> bool:
+    """One person: the same laboratory ID where both have one, else the same full name (case ignored)."""
+    if s.person_id.strip() and person.id.strip():
+        return s.person_id.strip() == person.id.strip()
+    return s.name.strip().casefold() == person.name.strip().casefold()
+
+
+def roles_signed_by(run: Run, person: Identity, *, besides: str = "") -> tuple[str, ...]:
+    """The roles (analyst, reviewer, approver) in which ``person`` has already signed the run, other
+    than ``besides``, in signing order without repeats. Labs differ on whether one person may sign in
+    several roles: Curvewright warns and records it, and never forbids it."""
+    return tuple(dict.fromkeys(s.role for s in run.signatures
+                               if s.role in SIGNATURE_ROLES and s.role != besides and _same_person(s, person)))
+
+
+def people_in_several_roles(run: Run) -> tuple[str, ...]:
+    """One line for each person who signed the run in more than one role: "NAME as analyst, approver"."""
+    roles: dict[tuple[str, str], list[str]] = {}
+    for s in run.signatures:
+        if s.role in SIGNATURE_ROLES:
+            key = (s.person_id.strip(), "") if s.person_id.strip() else ("", s.name.strip().casefold())
+            names = roles.setdefault(key, [s.name])
+            if s.role not in names[1:]:
+                names.append(s.role)
+    return tuple(f"{v[0]} as {', '.join(v[1:])}" for v in roles.values() if len(v) > 2)
+
+
 def sign(run: Run, role: str, person: Identity, *, meaning: str = "", key_file: str | Path | None = None,
-         clock: Clock = utc_now) -> Run:
+         clock: Clock = utc_now, verdict_accepted: bool | None = None, not_accepted_reason: str = "") -> Run:
     """The run signed by ``person`` in ``role`` (the role's usual meaning unless one is given), keyed
-    when ``key_file`` is given. An approver's signature locks the run."""
+    when ``key_file`` is given. An approver's signature locks the run.
+
+    ``verdict_accepted`` is the run's verdict as analysed now (None: not known to the caller). An
+    approval of a run whose verdict is NOT ACCEPTED is refused unless ``not_accepted_reason`` gives
+    the reason; the reason is then part of the approval's meaning (signed, and printed beside it
+    in the record) and recorded in the audit entry. A person who already signed in another role
+    may sign: the audit entry records the other roles (``also_signed_as``)."""
     if role not in SIGNATURE_ROLES:
         raise SigningError(f"role: {role!r} is not one of {', '.join(SIGNATURE_ROLES)}.")
     if not person.name.strip():
@@ -115,6 +152,11 @@ def sign(run: Run, role: str, person: Identity, *, meaning: str = "", key_file: 
                            "--analyst NAME on the command line).")
     if role == "approver" and run.approval is not None:
         raise SigningError(f"the run is already approved by {run.approval.name} ({run.approval.time_utc}).")
+    despite = not_accepted_reason.strip() if role == "approver" and verdict_accepted is False else ""
+    if role == "approver" and verdict_accepted is False and not despite:
+        raise SigningError("the run's verdict is NOT ACCEPTED: approving it needs your explicit confirmation and a "
+                           "reason, which are recorded in the audit trail and printed beside the approval (on the "
+                           "command line: --approve-not-accepted REASON).")
     from .integrity import content_change
 
     change = content_change(run)
@@ -122,6 +164,9 @@ def sign(run: Run, role: str, person: Identity, *, meaning: str = "", key_file: 
         raise SigningError(f"{change}. A signature would cover data its audit trail does not account for: open the "
                            "run in Curvewright, which records the change in the trail, review it and save, then sign.")
     meaning = (meaning or DEFAULT_MEANINGS[role]).strip()
+    if despite:
+        meaning = f"{meaning} {NOT_ACCEPTED_WORDS} {despite}"
+    also = roles_signed_by(run, person, besides=role)
     moment = clock().astimezone(timezone.utc)
     time_utc = _time_text(moment)
     head = run.audit[-1].hash if run.audit else ""
@@ -138,6 +183,12 @@ def sign(run: Run, role: str, person: Identity, *, meaning: str = "", key_file: 
                "signed_content_sha256": signature.content_sha256, "signed_trail_sha256": head,
                "key_fingerprint": fingerprint(signature.public_key) if signature.public_key else None,
                "signature": signature.signature or None}
+    if verdict_accepted is not None:
+        details["run_verdict"] = "ACCEPTED" if verdict_accepted else "NOT ACCEPTED"
+    if despite:
+        details["approved_although_not_accepted"] = despite
+    if also:
+        details["also_signed_as"] = list(also)
     trail = append_entry(run.audit, "signed", details, user=person, clock=lambda: moment,
                          content_sha256=signature.content_sha256)
     return replace(run, signatures=run.signatures + (signature,), audit=trail)
