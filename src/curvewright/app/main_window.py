@@ -464,6 +464,7 @@ class MainWindow(QMainWindow):
         self._show_internal_standard_column()
         self._update_title()
         self._update_buttons()
+        self._update_undo_texts()  # a signature empties the undo history
         self._show_verdict(self.session.result)
         # the audit trail grows with every change, undo, redo and signature
         self._stale_tabs = getattr(self, "_stale_tabs", set()) | {self.evidence_panel, self.audit_view}
@@ -620,8 +621,11 @@ class MainWindow(QMainWindow):
             return  # the stack is going away with its session
         self.undo_action.setText(f"&Undo {stack.undoText()}" if stack.canUndo() else "&Undo")
         self.redo_action.setText(f"&Redo {stack.redoText()}" if stack.canRedo() else "&Redo")
-        self.undo_action.setEnabled(stack.canUndo())
-        self.redo_action.setEnabled(stack.canRedo())
+        # back at a signature, Undo and Redo stay available to say why they go no further
+        floor = self.session.undo_floor
+        for act, can in ((self.undo_action, stack.canUndo()), (self.redo_action, stack.canRedo())):
+            act.setEnabled(can or floor is not None)
+            act.setStatusTip("" if can or floor is None else floor)
 
     def _update_buttons(self) -> None:
         """The buttons say what they will act on: the standard selected, or that one must be selected."""
@@ -1083,10 +1087,14 @@ class MainWindow(QMainWindow):
 
     # --- edits -----------------------------------------------------------------------------------
     def undo(self) -> None:
-        self.session.undo_stack.undo()
+        refused = self.session.undo()
+        if refused:
+            self.show_message(refused)
 
     def redo(self) -> None:
-        self.session.undo_stack.redo()
+        refused = self.session.redo()
+        if refused:
+            self.show_message(refused)
 
     def add_standard(self) -> None:
         self.left_tabs.setCurrentIndex(0)

@@ -26,10 +26,11 @@ from PySide6.QtCore import QObject, QRunnable, QStandardPaths, QThreadPool, QTim
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
 from ..core.errors import CurvewrightError
-from ..core.run import Run
+from ..core.run import Run, Signature
 from ..io.audit import Identity, append_entry, identity_from
 from ..io.integrity import content_sha256
 from ..io.run_document import document_unchanged, open_recovery, open_run, save_recovery, save_run
+from ..io.signatures import WITHDRAWN
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -200,6 +201,9 @@ class RunSession(QObject):
         file someone else has changed since (see :meth:`changed_on_disk`)."""
         self._unsaved_records = False
         self.undo_stack = QUndoStack(self)
+        self.undo_floor: str | None = None
+        """Why the undo history goes back no further, once a signature, an approval or its withdrawal
+        has emptied it in this session (:meth:`record_run`); None before."""
         self.undo_stack.cleanChanged.connect(self._on_clean_changed)
         # after the stack has moved (its clean state is then current), keep the recovery file in step
         self.undo_stack.indexChanged.connect(self._on_index_changed)
@@ -279,12 +283,18 @@ class RunSession(QObject):
 
     def record_run(self, new_run: Run) -> None:
         """Make current a run that differs only in what it records (audit entries, signatures): not
-        undoable. An approval also empties the undo history, so that nothing approved can be undone."""
+        undoable. A signature, an approval or its withdrawal also empties the undo history: each covers
+        the run as it is, so no change made before it can be undone or redone past it (that would drop
+        the signature from the run while its audit entry stays, or bring back an approval without its
+        signature). :attr:`undo_floor` then says why, in words for the analyst."""
         previous = self._run
         self._run = new_run
         if self.result is not None and self.result.run is previous:
             self.result = replace(self.result, run=self._run)
-        if new_run.approval is not None:
+        if new_run.signatures != previous.signatures:
+            self.undo_stack.clear()
+            self.undo_floor = undo_floor_words(new_run.signatures[-1])
+        elif new_run.approval is not None:
             self.undo_stack.clear()
         self._unsaved_records = True
         self.dirty_changed.emit(True)
@@ -296,6 +306,21 @@ class RunSession(QObject):
         if new_run is self._run:
             return
         self.undo_stack.push(RunChange(self, self._run, new_run, description))
+
+    def undo(self) -> str | None:
+        """Undo the last change, if there is one since the latest signature; else why not (the
+        :attr:`undo_floor` words), or None when nothing was ever signed in this session."""
+        if self.undo_stack.canUndo():
+            self.undo_stack.undo()
+            return None
+        return self.undo_floor
+
+    def redo(self) -> str | None:
+        """Redo the last change undone since the latest signature, if any; else why not, as :meth:`undo`."""
+        if self.undo_stack.canRedo():
+            self.undo_stack.redo()
+            return None
+        return self.undo_floor
 
     def _set_run(self, run: Run) -> None:
         self._run = run
@@ -480,6 +505,18 @@ class RunSession(QObject):
             self._start_analysis()
             return self._pool.waitForDone(timeout_ms)
         return True
+
+
+def undo_floor_words(signature: Signature) -> str:
+    """Why no change made before ``signature`` (a signature, an approval or a withdrawn approval) is
+    undone or redone, and how the signed run is changed instead: one line of the status bar."""
+    by = f"by {signature.name} ({signature.time_utc.replace('T', ' ')[:19]} UTC)"
+    if signature.role == WITHDRAWN:
+        return f"Not undone: the withdrawal of the approval {by} stays on record; to approve again, sign as approver."
+    if signature.role == "approver":
+        return (f"Not undone: the approval {by} locks the run; to change it, use Review → Withdraw approval… "
+                "with a reason.")
+    return f"Not undone: the {signature.role} signature {by} covers the run as signed; change it by a new edit, with its reason."
 
 
 def default_recovery_folder() -> Path:
