@@ -95,3 +95,32 @@ def test_recovery_and_relative_error_show_their_side_of_the_limit(tmp_path: Path
     assert "115.0 FAIL" not in text and "85.0 FAIL" not in text
     for words in ("+15.01 15 NO", "+14.999 15 yes", "+15.0 15 yes"):  # the standards' table: %RE, tolerance, verdict
         assert words in text, words
+
+
+# continuing calibration verifications at 20 mg/L found at 110.010 %, 109.990 % and 110.000 %; the
+# general profile judges a CCV within ±10 % (the profile's own window)
+CHECKS = """K1,ccv,1,20.0,225.02
+K2,ccv,1,20.0,224.98
+K3,ccv,1,20.0,225.0
+"""
+
+
+def test_a_calibration_check_shows_its_side_of_its_window(tmp_path: Path) -> None:
+    import json
+
+    (tmp_path / "std.csv").write_bytes(STANDARDS.replace("\n", "\r\n").encode())
+    (tmp_path / "smp.csv").write_bytes((SAMPLES + CHECKS).replace("\n", "\r\n").encode())
+    done = subprocess.run(
+        [sys.executable, "-m", "curvewright", "quantify", "--standards", str(tmp_path / "std.csv"),
+         "--samples", str(tmp_path / "smp.csv"), "--analyte", "tin", "--model", "linear", "--weighting", "none",
+         "--profile", "general", "--export", str(tmp_path / "out.xlsx"), "--json"],
+        capture_output=True, text=True, cwd=ROOT, env={"PYTHONPATH": str(ROOT / "src"), "PATH": "/usr/bin:/bin"},
+        timeout=300)
+    assert done.returncode in (0, 1), done.stderr
+    reasons = [c["reason"] for a in json.loads(done.stdout)["analytes"] for c in a["calibration_checks"]["checks"]]
+    assert [r.split(" of ")[0] for r in reasons] == ["FAIL: CCV K1: recovery 110.01 %", "pass: CCV K2: recovery 109.99 %",
+                                                     "pass: CCV K3: recovery 110.0 %"], reasons
+    book = openpyxl.load_workbook(tmp_path / "out.xlsx")
+    for sheet in (book["Samples"], next(s for s in book.worksheets if s.title.startswith("Calibration checks"))):
+        recovery = column(sheet, "Recovery (%)")
+        assert [recovery[k].number_format for k in ("K1", "K2", "K3")] == ["0.00", "0.00", "0.0"], sheet.title
