@@ -14,8 +14,8 @@ from PySide6.QtGui import QBrush, QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QLabel, QVBoxLayout, QWidget
 
 from ..core.level_text import percent_label
-from ..io.number_text import full_number
-from ..io.result_tables import display_number, interval_text
+from ..io.number_text import full_number, percent_beside_limits
+from ..io.result_tables import display_number, interval_text, recovery_windows
 from .table_view import FittedTableView, fit_columns
 
 TYPE_CHECKING = False
@@ -247,7 +247,7 @@ class ResultsModel(QAbstractTableModel):
             verdict = "" if s.within_limits is None else ("pass" if s.within_limits else "FAIL")
             if s.recovery_percent is None:
                 return verdict
-            return f"{s.recovery_percent:.1f} % {verdict}".rstrip()
+            return f"{self._recovery_text(s)} % {verdict}".rstrip()
         if col == N:
             return str(len(s.replicate_responses))
         if col == MEAN:
@@ -257,6 +257,14 @@ class ResultsModel(QAbstractTableModel):
         if col == DILUTION:
             return full_number(s.dilution_factor)
         return display_number(s.reported, 12)  # the number behind what is reported, at full precision
+
+    def _recovery_text(self, s: SampleResult) -> str:
+        """The recovery with the decimals that show on which side of its window's limits it lies
+        (one, or more near a limit: :func:`~..io.number_text.percent_beside_limits`)."""
+        window = None
+        if self.result is not None and s.within_limits is not None:
+            window = recovery_windows(self.result).get(s.kind.words)
+        return percent_beside_limits(s.recovery_percent, 1, 100.0, window)
 
     def description(self, s: SampleResult) -> str:
         """Everything about one sample's result in words (the tooltip and the details line)."""
@@ -272,7 +280,7 @@ class ResultsModel(QAbstractTableModel):
             parts.append(s.flag_words)
         if s.recovery_percent is not None:
             window = "its check window" if s.kind.is_check else "the QC tolerance"
-            parts.append(f"recovery {s.recovery_percent:.1f} % of nominal {display_number(s.nominal)} {unit}"
+            parts.append(f"recovery {self._recovery_text(s)} % of nominal {display_number(s.nominal)} {unit}"
                          + ("" if s.within_limits is None else (f", within {window}" if s.within_limits
                                                                  else f", OUTSIDE {window}")))
         elif s.kind.is_check and s.within_limits is not None:

@@ -16,7 +16,7 @@ from PySide6.QtGui import QBrush, QColor, QFont
 
 from ..core.run import Analyte, Reading, Run, RunError, Standard
 from ..io import run_edits
-from ..io.number_text import full_number, number_for_editing
+from ..io.number_text import full_number, number_for_editing, percent_beside_limits
 from ..io.paste import PastedBlock
 from .cells import display_reading, number_from_text, reading_from_text, reading_problem
 from .session import RunSession
@@ -279,7 +279,11 @@ class StandardsModel(QAbstractTableModel):
             return f"{value:.5g}" if np.isfinite(value) else "no solution"
         if col == RE:
             value = cal.relative_error[position]
-            return f"{value:+.2f}" if np.isfinite(value) else "—"
+            if not np.isfinite(value):
+                return "—"
+            judged = a.verdict is not None and bool(a.verdict.judged[position])
+            return percent_beside_limits(float(value), 2, 0.0,
+                                         float(a.verdict.tolerance_percent[position]) if judged else None, signed=True)
         if col == LIMITS and a.verdict is not None:
             if not a.verdict.judged[position]:
                 return ANCHOR_WORDS if s.anchor else "not judged (blank)"

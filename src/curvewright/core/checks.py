@@ -22,6 +22,7 @@ from dataclasses import dataclass
 from typing import Sequence
 
 from .acceptance import CheckRules
+from .limit_digits import recovery_decimals
 from .reporting import ReportingRange, ReportStatus
 from .run import SampleKind
 
@@ -96,7 +97,8 @@ def judge_check(c: CheckInput, rules: CheckRules, rng: ReportingRange | None, pr
     recovery = 100.0 * c.reported / c.nominal
     passed = abs(recovery - 100.0) <= window + BOUNDARY
     where = "within" if passed else "outside"
-    return result(passed, f"recovery {recovery:.1f} % of {c.nominal:g}{u}, {where} {100 - window:g}–{100 + window:g} %",
+    shown = f"{recovery:.{recovery_decimals(recovery, window)}f}"  # more decimals where one would read as the limit
+    return result(passed, f"recovery {shown} % of {c.nominal:g}{u}, {where} {100 - window:g}–{100 + window:g} %",
                   recovery, window)
 
 

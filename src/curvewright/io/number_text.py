@@ -255,3 +255,17 @@ def number_for_editing(value: float, decimal_mark: str | None = None) -> str:
 
 def _values(count: int) -> str:
     return f"{count} value" if count == 1 else f"{count} values"
+
+
+def percent_beside_limits(value: float, usual: int, centre: float, window: float | None, signed: bool = False) -> str:
+    """A recovery or %RE judged within ``centre`` ± ``window`` (None: not judged), printed with
+    ``usual`` decimals, or with more where ``usual`` would show it on or across a limit it does not
+    lie on (:func:`curvewright.core.limit_digits.decimals_beside_limits`): 115.01 beside FAIL, never
+    "115.0". The workbook's and the record's tables apply the same rule (``"beside:"`` columns of
+    :mod:`.result_tables`)."""
+    from ..core.limit_digits import decimals_beside_limits
+
+    decimals = usual
+    if window is not None and math.isfinite(value) and math.isfinite(window):
+        decimals = decimals_beside_limits(value, usual, (centre - window, centre + window))
+    return f"{value:+.{decimals}f}" if signed else f"{value:.{decimals}f}"

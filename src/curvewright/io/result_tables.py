@@ -45,9 +45,13 @@ class Column:
     or a dilution factor, shown as entered) or ``""`` (six significant figures). Two depend on the
     row (:meth:`Table.columns_for` settles them):
     ``"interval"`` (an end of the interval whose two ends are the table's two ``"interval"``
-    columns, shown as :func:`interval_text` prints the pair) and ``"entered:NAME"`` (a response
-    shown with the decimals it was entered with, the text in column NAME of the row). Unsettled,
-    they show six significant figures. The workbook keeps every number at full precision and only
+    columns, shown as :func:`interval_text` prints the pair), ``"entered:NAME"`` (a response
+    shown with the decimals it was entered with, the text in column NAME of the row) and
+    ``"beside:KIND:N:CENTRE:WINDOW"`` (a recovery or %RE judged within CENTRE ± window: ``"KIND:N"``
+    (``dec`` or ``signed``), with more decimals where N would show it on or across a limit
+    (:func:`~curvewright.core.limit_digits.decimals_beside_limits`); WINDOW is the column holding
+    the row's window, or ``@NAME``: the table's window for the row's value in column NAME). Unsettled,
+    they show six significant figures (``"beside:"``: its usual decimals). The workbook keeps every number at full precision and only
     formats it so; the printed record prints it so.
     """
 
@@ -98,8 +102,9 @@ def format_value(value: Value, column: Column, rule: RoundingRule | None = None)
         return f"{v:.6g}"
     if column.display == "full":
         return full_number(v)
-    decimals = shown_decimals(v, column.display, rule)
-    kind, _, n = column.display.partition(":")
+    display = _unsettled(column.display)
+    decimals = shown_decimals(v, display, rule)
+    kind, _, n = display.partition(":")
     if decimals is None:
         return f"{v:.{(int(n) if kind == 'sig' else 6) - 1}e}"
     return f"{v:+.{decimals}f}" if kind == "signed" else f"{v:.{decimals}f}"
@@ -115,15 +120,16 @@ def excel_format(value: Value, column: Column, rule: RoundingRule | None = None)
     v = float(value)
     if not math.isfinite(v):
         return None
-    decimals = shown_decimals(v, column.display, rule)
+    display = _unsettled(column.display)
+    decimals = shown_decimals(v, display, rule)
     if decimals is None:
-        kind, _, n = column.display.partition(":")
+        kind, _, n = display.partition(":")
         if kind in ("plain", "full"):
             mantissa = (f"{v:.6g}" if kind == "plain" else full_number(v)).split("e")[0]
             return "0." + "0" * _decimal_places(mantissa) + "E+00" if "." in mantissa else "0E+00"
         return "0." + "0" * ((int(n) if kind == "sig" else 6) - 1) + "E+00"
     body = "0" if decimals == 0 else "0." + "0" * decimals
-    return f"+{body};-{body};{body}" if column.display.startswith("signed") else body
+    return f"+{body};-{body};{body}" if display.startswith("signed") else body
 
 
 @dataclass(frozen=True)
@@ -134,6 +140,7 @@ class Table:
     columns: tuple[Column, ...]
     rows: tuple[tuple[Value, ...], ...]
     rounding: RoundingRule | None = None
+    windows: tuple[tuple[str, float], ...] = ()  # for a "beside:...:@NAME" column: the window by the value in NAME
 
     def select(self, names: tuple[str, ...], title: str | None = None, where: tuple[str, Value] | None = None) -> "Table":
         """The named columns only (in that order), optionally only rows whose column ``where[0]`` equals ``where[1]``."""
@@ -145,7 +152,7 @@ class Table:
         if where is not None:
             rows = tuple(r for r in rows if r[index[where[0]]] == where[1])
         return Table(title or self.title, tuple(self.columns[index[n]] for n in names),
-                     tuple(tuple(r[index[n]] for n in names) for r in rows), self.rounding)
+                     tuple(tuple(r[index[n]] for n in names) for r in rows), self.rounding, self.windows)
 
     def columns_for(self, row: tuple[Value, ...]) -> tuple[Column, ...]:
         """The columns as they show the numbers of ``row``: a display that depends on the row (see
@@ -169,6 +176,8 @@ class Table:
                 display = interval
             elif kind == "within":
                 display = self._within(row[j], lower, upper, row[source] if source is not None and source >= 0 else 1.0)
+            elif kind == "beside":
+                display = self._beside(self.columns[j].display, row[j], row, source)
             else:
                 places = entered_decimals(row[source]) if source >= 0 else None
                 display = "sig:6" if places is None else f"dec:{places}"
@@ -189,6 +198,25 @@ class Table:
         places = self.rounding.places_within(value, lower / factor, upper / factor)
         return "rule" if places is None else f"dec:{places}"
 
+    def _beside(self, display: str, value: Value, row: tuple[Value, ...], source: tuple[int, bool]) -> str:
+        """A ``"beside:"`` column's display for its row: ``"KIND:N"`` with the decimals that show on
+        which side of its acceptance limits the value lies (:mod:`curvewright.core.limit_digits`)."""
+        from ..core.limit_digits import decimals_beside_limits
+
+        _, kind, usual, centre, _name = display.split(":", 4)
+        index, by_table = source
+        window: Value = None
+        if index >= 0:
+            window = row[index]
+            if by_table:
+                window = dict(self.windows).get(window) if isinstance(window, str) else None
+        decimals = int(usual)
+        if isinstance(value, float) and isinstance(window, (int, float)) and not isinstance(window, bool) \
+                and math.isfinite(float(window)):
+            c, w = float(centre), float(window)
+            decimals = decimals_beside_limits(value, decimals, (c - w, c + w))
+        return f"{kind}:{decimals}"
+
     @cached_property
     def _row_displays(self):  # type: ignore[no-untyped-def]
         """For :meth:`columns_for`, worked out once: the two interval columns (or None), each column
@@ -205,6 +233,9 @@ class Table:
                 dependent.append((j, "within", index.get(name, -1) if name else None))
             elif c.display.startswith("entered:"):
                 dependent.append((j, "entered", index.get(c.display.partition(":")[2], -1)))
+            elif c.display.startswith("beside:"):
+                name = c.display.split(":", 4)[4]
+                dependent.append((j, "beside", (index.get(name.lstrip("@"), -1), name.startswith("@"))))
         if not dependent:
             return None
         ends = [j for j, kind, _ in dependent if kind == "interval"]
@@ -264,7 +295,7 @@ def samples_table(result: RunResult) -> Table:
         Column("Lower limit", kind="number", display="interval"), Column("Upper limit", kind="number", display="interval"),
         Column("Interval", kind="words"), Column("Unit"), Column("Status"), Column("Flags", kind="words"),
         Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="full"),
-        Column("Recovery (%)", kind="number", display="dec:1"), Column("QC or check"),
+        Column("Recovery (%)", kind="number", display="beside:dec:1:100:@Kind"), Column("QC or check"),
     )
     rows = []
     for a in result.analytes:
@@ -288,7 +319,19 @@ def samples_table(result: RunResult) -> Table:
                 unit[s.analyte], STATUS_WORDS[s.status], s.flag_words, s.suggested_dilution, s.nominal,
                 s.recovery_percent, qc_word(s.kind, s.within_limits),
             ))
-    return Table("Samples", columns, tuple(rows), rule)
+    return Table("Samples", columns, tuple(rows), rule, tuple(recovery_windows(result).items()))
+
+
+def recovery_windows(result: RunResult) -> dict[str, float]:
+    """The window (±%) around 100 % each judged kind's recovery is judged within, by the kind's words:
+    the profile's tolerance for a QC sample, the calibration checks' own for each kind of check (for
+    the decimals shown beside the verdict, :mod:`curvewright.core.limit_digits`)."""
+    windows = {SampleKind.QC.words: float(result.profile.qc.tolerance_percent)}
+    for a in result.analytes:
+        for c in (a.checks.checks if a.checks else ()):
+            if c.window_percent is not None:
+                windows.setdefault(c.kind.words, float(c.window_percent))
+    return windows
 
 
 def replicate_text(values: tuple[float, ...], measurements: tuple, ratio: bool) -> str:  # type: ignore[type-arg]
@@ -334,7 +377,7 @@ def checks_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table:
     the run's rounding, for the found concentrations)."""
     unit = a.analyte.concentration_unit
     columns = (Column("Check"), Column("Kind"), Column("Run order", kind="int"), Column("Nominal", unit, "number", "full"),
-               Column("Found", unit, "number", "rule"), Column("Recovery (%)", kind="number", display="dec:1"),
+               Column("Found", unit, "number", "rule"), Column("Recovery (%)", kind="number", display="beside:dec:1:100:Window (±%)"),
                Column("Window (±%)", kind="number", display="plain"), Column("Verdict"), Column("Reason"))
     rows = tuple(
         (c.sample_id, c.kind.words, c.run_order, c.nominal, c.found, c.recovery_percent, c.window_percent,
@@ -465,7 +508,7 @@ def standards_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table
         Column("Response used", kind="number",
                display="sig:6" if an.uses_internal_standard else "entered:Response as entered"),
         Column("Back-calculated", an.concentration_unit, "number", "rule"),
-        Column("Relative error (%)", kind="number", display="signed:1"), Column("Tolerance (%)", kind="number", display="plain"),
+        Column("Relative error (%)", kind="number", display="beside:signed:1:0:Tolerance (%)"), Column("Tolerance (%)", kind="number", display="plain"),
         Column("Within limits"), Column("Leverage", kind="number", display="dec:3"),
         Column("Cook's distance", kind="number", display="sig:3"),
         Column("Externally studentized residual", kind="number", display="signed:2"), Column("Influence flags"), Column("Included"),
@@ -740,6 +783,8 @@ def entered_decimals(text: Value) -> int | None:
 
 def _unsettled(display: str) -> str:
     """A ``"within"`` display not settled by its row (see :meth:`Table.columns_for`) shows as ``"rule"``."""
+    if display.startswith("beside:"):
+        return ":".join(display.split(":", 4)[1:3])
     return "rule" if display == "within" or display.startswith("within:") else display
 
 
