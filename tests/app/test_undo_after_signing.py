@@ -113,7 +113,13 @@ def test_undo_and_redo_stop_at_a_signature(make_window, qtbot, answer_dialogs, m
 
 def test_undo_and_redo_stop_at_an_approval_and_at_its_withdrawal(make_window, qtbot, answer_dialogs,
                                                                  monkeypatch) -> None:
-    monkeypatch.setattr(dialogs.SignDialog, "exec", lambda self: QDialog.DialogCode.Accepted)
+    def sign_exec(self) -> int:  # the edits leave the run NOT ACCEPTED: approved with a reason, as a person would
+        if self.needs_reason:
+            self.despite.setChecked(True)
+            self.despite_reason.setPlainText("released under deviation DV-17 (invented)")
+        return QDialog.DialogCode.Accepted
+
+    monkeypatch.setattr(dialogs.SignDialog, "exec", sign_exec)
     window = make_window(NITRATE)
     window.bottom_tabs.setCurrentWidget(window.audit_view)
     second = response(window, 3)
