@@ -195,16 +195,22 @@ class RoundingRule:
 
 
 def _plainly_within(value: float, lower: float, upper: float, text: str) -> bool:
-    """A quick sufficient test that :meth:`RoundingRule.places_within` keeps the rule's ``text``: a text
-    with decimals, a value not near zero at the interval's resolution, and the value farther from each
-    end than the rounding of the value and of the printed end can move them together (with a margin for
-    the float arithmetic of this test)."""
-    if "." not in text or not (math.isfinite(lower) and math.isfinite(upper)) or not upper > lower:
+    """A quick sufficient test that :meth:`RoundingRule.places_within` keeps the rule's ``text``: a value
+    not near zero at the interval's resolution; a text whose last kept digit (:func:`_kept_exponent`) is a
+    decimal, or a whole number whose trailing zeros stand beyond the second figure of the half-width; and
+    the value farther from each end than the rounding of the value (at most half a unit of that last
+    digit, since a rounded value is a multiple of its rounding unit) and of the printed end can move them
+    together (with a margin for the float arithmetic of this test)."""
+    if not (math.isfinite(lower) and math.isfinite(upper)) or not upper > lower:
         return False
-    unit = 10.0 ** -(1 - math.floor(math.log10((upper - lower) / 2.0)))  # second figure of the half-width
+    second_figure = 1 - math.floor(math.log10((upper - lower) / 2.0))
+    unit = 10.0 ** -second_figure  # the second figure of the half-width
     if abs(value) < unit:
         return False
-    slack = 1.01 * (0.5 * 10.0 ** -len(text.split(".", 1)[1]) + 0.5 * unit)
+    kept = _kept_exponent(text)
+    if kept > 0 and -kept < second_figure:
+        return False  # zeros that would read as exact digits: the full test decides
+    slack = 1.01 * (0.5 * 10.0 ** kept + 0.5 * unit)
     return value - lower > slack and upper - value > slack
 
 
