@@ -31,7 +31,7 @@ def not_accepted_run(tmp_path: Path) -> Path:
     analyte = run.analytes[0]
     standard = analyte.standards[3]
     run = run_edits.edit_standard(run, analyte.name, standard.id, "response", standard.response.value * 3,
-                                  "transcription", user="analyst")
+                                  "typing error at entry", user="analyst")
     path = tmp_path / "run.json"
     save_run(run, path)
     assert not analyse_run(open_run(path).run).accepted
