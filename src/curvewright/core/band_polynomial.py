@@ -37,6 +37,7 @@ Everything is vectorised over the unknowns of a call, and each unknown's ends de
 
 from __future__ import annotations
 
+import math
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -664,25 +665,29 @@ def _few_in_the_other_piece(
     the other piece as the arrays' path chooses it: the upper piece's where ẑ lies below the lowest
     standard, else the lower's, and a term held as a number by both pieces is taken as shared."""
     n = index.size
+    is_array = lambda c: isinstance(c, np.ndarray) and c.ndim > 0  # noqa: E731 (np.ndim's cost, without it)
+    below_list = below.tolist()
     terms = []
     for lo, up in zip(shifted.lower, shifted.upper):
-        if not (np.ndim(up) or np.ndim(lo)):
+        up_array, lo_array = is_array(up), is_array(lo)
+        if not (up_array or lo_array):
             terms.append([float(up)] * n)
         else:
-            up_values = up[index].tolist() if np.ndim(up) else [float(up)] * n
-            lo_values = lo[index].tolist() if np.ndim(lo) else [float(lo)] * n
-            terms.append([u if b else l for u, l, b in zip(up_values, lo_values, below.tolist())])
+            up_values = up[index].tolist() if up_array else [float(up)] * n
+            lo_values = lo[index].tolist() if lo_array else [float(lo)] * n
+            terms.append([u if b else l for u, l, b in zip(up_values, lo_values, below_list)])
     # whether the other piece has h³ or h⁴ terms, decided for the whole call as the arrays' path does
     c3, c4 = shifted.upper[3], shifted.upper[4]
-    shared = not (np.ndim(shifted.lower[3]) or np.ndim(c3)) and not (np.ndim(shifted.lower[4]) or np.ndim(c4))
+    shared = not (is_array(shifted.lower[3]) or is_array(c3) or is_array(shifted.lower[4]) or is_array(c4))
     quartic = not (shared and c3 == 0.0 and c4 == 0.0)
-    finite_reach = np.ndim(reach) == 0 and bool(np.isfinite(reach))
-    reaches = [float(reach)] * n if np.ndim(reach) == 0 else reach[index].tolist()
+    one_reach = not is_array(reach)
+    finite_reach = one_reach and math.isfinite(reach)
+    reaches = [float(reach)] * n if one_reach else reach[index].tolist()
     h = np.empty(n)
     certain = np.empty(n, dtype=bool)
     for k, (coefficients, u, g, z, hb, b) in enumerate(zip(
         zip(*terms), reaches, guess[index].tolist(), start[index].tolist(), shifted.h_break[index].tolist(),
-        below.tolist(),
+        below_list,
     )):
         h[k], certain[k] = other_piece_end(
             coefficients, quartic, direction, u, finite_reach, g, z, hb, b, _CONVERGED, _CONVEX_STEPS - 2
