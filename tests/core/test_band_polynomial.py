@@ -519,8 +519,8 @@ def test_the_few_ends_path_and_the_arrays_agree_on_odd_coefficients(monkeypatch)
             return values
         upper = [term(0), term(1), np.abs(term(2)) if trial % 5 else term(2),
                  term(3) if trial % 4 else 0.0, float(rng.standard_normal() * 0.01) if trial % 4 else 0.0]
-        lower = [term(0), upper[1] if trial % 2 else term(1), float(rng.standard_normal()) if trial % 3 == 0 else term(2),
-                 upper[3], upper[4]]
+        lower = [term(0), upper[1] if trial % 2 else term(1),
+                 float(rng.standard_normal()) if trial % 3 == 0 else term(2), upper[3], upper[4]]
         if trial % 6 == 0:
             upper[0] = -np.abs(upper[0])
             lower[0] = -np.abs(lower[0])
