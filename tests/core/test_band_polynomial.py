@@ -460,3 +460,83 @@ def test_the_tests_for_every_stop_and_a_convex_band_never_overrule_the_test_at_e
     none = bp.ShiftedBand(empty, [empty - 1.0, empty, empty + 1.0, empty, 0.5], None, None)
     h, certain, _ = bp._convex_end(none, bp._Start(none), 1.0, 10.0, np.zeros(0), np.zeros(0))
     assert h.size == 0 and certain.size == 0
+
+
+def _same_bits(a, b) -> bool:  # type: ignore[no-untyped-def]
+    return np.asarray(a).tobytes() == np.asarray(b).tobytes() and np.shape(a) == np.shape(b)
+
+
+@pytest.mark.parametrize(("model", "weighting"), [("linear", "1/x"), ("linear", "1/x^2"), ("quadratic", "1/x"),
+                                                  ("quadratic", "1/x^2")])
+def test_a_few_ends_across_the_lowest_standard_are_solved_alone_to_the_bits_of_the_arrays(
+        model: str, weighting: str, monkeypatch) -> None:
+    """In a call of a few thousand unknowns only a handful of direct ends cross the lowest standard;
+    up to ``_FEW_ENDS`` of them are solved one by one in Python floats (core/band_few_ends.py), the
+    others as arrays. Quantified as an analyst does (invented calibrations, unknowns around the
+    lowest standard, one, three and mixed replicate counts), every number is the same to the bit
+    whichever way its ends were solved, and the few path is taken on both sides."""
+    alone = []
+    solve = bp.other_piece_end
+    monkeypatch.setattr(bp, "other_piece_end", lambda *args: (alone.append(args[2]), solve(*args))[1])
+    for seed in range(20):
+        rng = np.random.default_rng(seed)
+        levels = np.sort(rng.uniform(0.5, 100.0, rng.integers(4, 8)))
+        x = np.repeat(levels, rng.integers(1, 4))
+        slope = rng.uniform(0.1, 3.0)
+        curvature = rng.uniform(-0.01, 0.01) * slope if model == "quadratic" else 0.0
+        y = (0.2 + slope * x + curvature * x * x) * (1 + rng.uniform(0.002, 0.08) * rng.standard_normal(x.size))
+        cal = cw.fit(x, y, model, weighting)
+        low = float(cal.predict(levels[0]))
+        spread = float(np.ptp(y))
+        for size in (3, 40, 2000):
+            y0 = rng.uniform(low - 0.2 * spread, low + 0.2 * spread, size)
+            for m in (1, 3, rng.integers(1, 5, size)):
+                few = cal.quantify(y0, m)
+                with monkeypatch.context() as patch:
+                    patch.setattr(bp, "_FEW_ENDS", -1)  # every end across the standard solved as arrays
+                    arrays = cal.quantify(y0, m)
+                for name in ("estimate", "standard_error", "lower", "upper", "flag_bits"):
+                    assert _same_bits(getattr(few, name), getattr(arrays, name)), (seed, size, name)
+    assert -1.0 in alone and 1.0 in alone  # the few path was taken, on both sides
+
+
+def test_the_few_ends_path_and_the_arrays_agree_on_odd_coefficients(monkeypatch) -> None:
+    """The other piece's end for one unknown at a time against the arrays' path, on invented
+    coefficients that reach every branch: quadratic parts with no real root, a zero leading term,
+    zero divisors, NaN and infinite values, bands that are not convex, steps that do not settle,
+    reaches finite and infinite, as numbers and arrays, and the two sides of the break."""
+    rng = np.random.default_rng(5)
+    compared = 0
+    for trial in range(600):
+        n = int(rng.integers(1, bp._FEW_ENDS + 1))
+        scale = 10.0 ** rng.uniform(-3, 3)
+        def term(k: int):  # type: ignore[no-untyped-def]
+            values = rng.standard_normal(n) * scale ** (k % 3)
+            if trial % 9 == 0:
+                values[rng.random(n) < 0.2] = 0.0
+            if trial % 13 == 0:
+                values[rng.random(n) < 0.2] = [np.nan, np.inf, -np.inf][trial % 3]
+            return values
+        upper = [term(0), term(1), np.abs(term(2)) if trial % 5 else term(2),
+                 term(3) if trial % 4 else 0.0, float(rng.standard_normal() * 0.01) if trial % 4 else 0.0]
+        lower = [term(0), upper[1] if trial % 2 else term(1),
+                 float(rng.standard_normal()) if trial % 3 == 0 else term(2), upper[3], upper[4]]
+        if trial % 6 == 0:
+            upper[0] = -np.abs(upper[0])
+            lower[0] = -np.abs(lower[0])
+        h_break = rng.uniform(-2.0, 2.0, n) * scale
+        start = rng.uniform(-3.0, 3.0, n) * [1.0, 0.0][trial % 11 == 0]
+        guess = np.abs(rng.standard_normal(n)) + 1e-3
+        reach = [np.inf, 5.0 * scale, rng.uniform(0.1, 5.0, n) * scale][trial % 3]
+        shifted = bp.ShiftedBand(start, upper, lower, h_break)
+        index = np.arange(n)
+        for direction in (-1.0, 1.0):
+            with np.errstate(all="ignore"):
+                few = bp._end_in_the_other_piece(shifted, index, direction, reach, guess, start)
+                with monkeypatch.context() as patch:
+                    patch.setattr(bp, "_FEW_ENDS", -1)
+                    arrays = bp._end_in_the_other_piece(shifted, index, direction, reach, guess, start)
+            assert _same_bits(few[0], arrays[0]), (trial, direction)
+            assert _same_bits(few[1], arrays[1]), (trial, direction)
+            compared += n
+    assert compared > 5000

@@ -37,10 +37,12 @@ Everything is vectorised over the unknowns of a call, and each unknown's ends de
 
 from __future__ import annotations
 
+import math
 from typing import TYPE_CHECKING
 
 import numpy as np
 
+from .band_few_ends import other_piece_end
 from .values import frozen_value
 from ._arrays import FloatArray
 from .weighting import Weighting
@@ -58,6 +60,9 @@ _EXTREMES_FROM = 8192
 """Unknowns in a block from which the tests of Halley's steps are first tried on the block's extremes
 (a few reductions) before each position: below it a reduction costs about as much as the passes it
 would save (numpy's fixed cost per call), so every position is tested."""
+_FEW_ENDS = 16
+"""Up to this many ends across the lowest standard are solved one by one in Python floats
+(:mod:`.band_few_ends`), where numpy's fixed cost per operation would be most of the work."""
 _CONVERGED = 1e-6
 """Relative size of the last of Halley's steps above which the direct end is not trusted: the error
 after a step is of the order of the step cubed, far below a double's resolution."""
@@ -626,6 +631,8 @@ def _end_in_the_other_piece(
     other piece from h = 0: when that piece is negative at 0 and convex on [0, h*] it is ≤ 0 there,
     so between the break and h* too, and rises through zero at h*; h* must lie in that piece."""
     below = shifted.h_break[index] > 0  # ẑ below the lowest standard: the other piece is the upper
+    if index.size <= _FEW_ENDS:
+        return _few_in_the_other_piece(shifted, index, below, direction, reach, guess, start)
     pick = lambda c: c[index] if np.ndim(c) else c  # noqa: E731
     # all of one side of the break, as is usual (a lower end crossing it from above), the other
     # piece is taken whole; the terms the pieces share (the same arrays) need no choice either
@@ -640,6 +647,51 @@ def _end_in_the_other_piece(
     h, certain, _ = _convex_end(part, _Start(part), direction, reach if np.ndim(reach) == 0 else reach[index],
                                 guess[index], start[index])
     certain &= (h < shifted.h_break[index]) != below
+    return h, certain
+
+
+def _few_in_the_other_piece(
+    shifted: ShiftedBand,
+    index: np.ndarray,
+    below: np.ndarray,
+    direction: float,
+    reach: FloatArray | float,
+    guess: FloatArray,
+    start: FloatArray,
+) -> tuple[FloatArray, np.ndarray]:
+    """:func:`_end_in_the_other_piece` for a few unknowns, each solved alone in Python floats
+    (:func:`.band_few_ends.other_piece_end`: the same operations on the same numbers, so the same
+    bits, without numpy's fixed cost per operation on arrays of one or two elements). Each term of
+    the other piece as the arrays' path chooses it: the upper piece's where ẑ lies below the lowest
+    standard, else the lower's, and a term held as a number by both pieces is taken as shared."""
+    n = index.size
+    is_array = lambda c: isinstance(c, np.ndarray) and c.ndim > 0  # noqa: E731 (np.ndim's cost, without it)
+    below_list = below.tolist()
+    terms = []
+    for lo, up in zip(shifted.lower, shifted.upper):
+        up_array, lo_array = is_array(up), is_array(lo)
+        if not (up_array or lo_array):
+            terms.append([float(up)] * n)
+        else:
+            up_values = up[index].tolist() if up_array else [float(up)] * n
+            lo_values = lo[index].tolist() if lo_array else [float(lo)] * n
+            terms.append([u if b else l for u, l, b in zip(up_values, lo_values, below_list)])
+    # whether the other piece has h³ or h⁴ terms, decided for the whole call as the arrays' path does
+    c3, c4 = shifted.upper[3], shifted.upper[4]
+    shared = not (is_array(shifted.lower[3]) or is_array(c3) or is_array(shifted.lower[4]) or is_array(c4))
+    quartic = not (shared and c3 == 0.0 and c4 == 0.0)
+    one_reach = not is_array(reach)
+    finite_reach = one_reach and math.isfinite(reach)
+    reaches = [float(reach)] * n if one_reach else reach[index].tolist()
+    h = np.empty(n)
+    certain = np.empty(n, dtype=bool)
+    for k, (coefficients, u, g, z, hb, b) in enumerate(zip(
+        zip(*terms), reaches, guess[index].tolist(), start[index].tolist(), shifted.h_break[index].tolist(),
+        below_list,
+    )):
+        h[k], certain[k] = other_piece_end(
+            coefficients, quartic, direction, u, finite_reach, g, z, hb, b, _CONVERGED, _CONVEX_STEPS - 2
+        )
     return h, certain
 
 
