@@ -1386,15 +1386,19 @@ class MainWindow(QMainWindow):
         failing = [r for r in result.reasons if "FAIL" in r] if result is not None else []
         verdict = ("" if accepted is None else ("ACCEPTED" if accepted else "NOT ACCEPTED")
                    + (" — " + "; ".join(failing) if failing else ""))
+        from ..io.record_check import record_problems
+
         dialog = SignDialog(role, person.words, str(self.settings.value("signing/key_file", "") or ""), self,
                             verdict=verdict, accepted=accepted, given=self.session.run.signatures,
-                            also_signed_as=roles_signed_by(self.session.run, person, besides=role))
+                            also_signed_as=roles_signed_by(self.session.run, person, besides=role),
+                            record_problems=record_problems(self.session.run))
         if dialog.exec() != SignDialog.DialogCode.Accepted:
             return False
         meaning, key_file = dialog.values()
         try:
             signed = sign(self.session.run, role, person, meaning=meaning, key_file=key_file,
-                          verdict_accepted=accepted, not_accepted_reason=dialog.not_accepted_reason())
+                          verdict_accepted=accepted, not_accepted_reason=dialog.not_accepted_reason(),
+                          record_problems_reason=dialog.record_problems_reason())
         except CurvewrightError as exc:
             QMessageBox.warning(self, "Not signed", str(exc))
             return False
