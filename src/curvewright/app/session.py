@@ -492,7 +492,9 @@ class RunSession(QObject):
         if self.result is not None and self.result.run is self._run:
             return self.result
         answer = analysis_answer(self._run, self._generation, self.evidence_wanted)
+        running = self._running
         self._on_answer(answer)
+        self._running = running  # the analysis thread is still under way: its answer comes, and is passed over
         return self.result if answer.result is not None else None
 
     @Slot(object)
