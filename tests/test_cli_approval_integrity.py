@@ -98,8 +98,12 @@ def test_a_removed_approval_is_named_by_check_and_every_output(tmp_path: Path) -
     assert trail and named in trail[0], trail
     assert flat(named) in flat(PdfReader(record).pages[0].extract_text())
 
-    # another approval afterwards does not hide the removed one
-    again = run_cli("sign", str(path), "--role", "approver", "--analyst", "Noor Haddad")
+    # another approval is refused over the removed one, unless the approver confirms it with a reason;
+    # it then does not hide the removed one
+    refused = run_cli("sign", str(path), "--role", "approver", "--analyst", "Noor Haddad")
+    assert refused.returncode != 0 and "record is NOT intact" in refused.stderr and named in refused.stderr
+    again = run_cli("sign", str(path), "--role", "approver", "--analyst", "Noor Haddad",
+                    "--despite-record-problems", "approval lost when the file was copied; re-approved after review")
     assert again.returncode == 0, again.stdout + again.stderr
     checked = run_cli("check", str(path))
     assert checked.returncode == 1 and named in checked.stdout, checked.stdout

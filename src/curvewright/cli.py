@@ -50,6 +50,12 @@ the verdict and the people:
   recorded in the audit trail and printed beside the approval in the record. One person may sign in
   several roles (laboratories differ); the command warns, and the trail and the record say so.
 
+a record that is not intact:
+  A run whose record 'curvewright check' finds not intact (a signature the audit trail records was
+  removed from the file, the trail does not verify, a signature does not hold) is signed only with
+  --despite-record-problems REASON: the problems and the reason are recorded in the audit trail, the
+  reason is printed beside the signature, and 'check' and the record go on naming the problems.
+
 examples:
   curvewright sign run.json --role analyst --analyst "Robin Example" --analyst-id QA-0042
   curvewright sign run.json --role approver --key lab-signing.key --meaning "released for the client report"
@@ -180,6 +186,9 @@ def build_parser(only: str | None = None) -> argparse.ArgumentParser:
         g.add_argument("--key", metavar="PRIVATE.pem", help="the laboratory's signing key: the signature is keyed")
         g.add_argument("--approve-not-accepted", metavar="REASON", default="",
                        help="approve although the run's verdict is NOT ACCEPTED, for this reason (recorded and printed)")
+        g.add_argument("--despite-record-problems", metavar="REASON", default="",
+                       help="sign although the run's record is not intact (what 'check' reports), for this reason "
+                            "(recorded with the problems, and printed)")
         _identity_options(g)
 
     if only in (None, "withdraw-approval"):
@@ -1573,10 +1582,15 @@ def cmd_sign(args: argparse.Namespace) -> int:
                                "takes it" if args.role != "approver" else "the run's verdict is ACCEPTED; "
                                "nothing needs a reason") + "; nothing was signed.")
         return sign(run, args.role, person, meaning=args.meaning, key_file=args.key, verdict_accepted=accepted,
-                    not_accepted_reason=args.approve_not_accepted)
+                    not_accepted_reason=args.approve_not_accepted, record_problems_reason=args.despite_record_problems)
 
     run = update_run_document(args.run, signed_now)
     signed = run.signatures[-1]
+    problems = run.audit[-1].details.get("record_problems") or ()
+    if problems:
+        print(f"warning: the run's record is NOT intact ({'; '.join(problems)}); signed on your explicit confirmation "
+              "and reason, which the audit trail records; 'curvewright check' still reports the problems",
+              file=sys.stderr)
     keyed = " (keyed)" if signed.signature else ""
     if also and also[0]:
         print(f"warning: {signed.name} has already signed this run as {' and '.join(also[0])}; one person now signs "

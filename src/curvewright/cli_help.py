@@ -345,7 +345,8 @@ TEXTS: dict[tuple[str, ...], str] = {
     ('sign',): (
         'usage: curvewright sign [-h] --role {analyst,reviewer,approver}\n'
         '                        [--meaning MEANING] [--key PRIVATE.pem]\n'
-        '                        [--approve-not-accepted REASON] [--analyst NAME]\n'
+        '                        [--approve-not-accepted REASON]\n'
+        '                        [--despite-record-problems REASON] [--analyst NAME]\n'
         '                        [--analyst-id ID]\n'
         '                        RUN\n'
         '\n'
@@ -361,6 +362,10 @@ TEXTS: dict[tuple[str, ...], str] = {
         '  --approve-not-accepted REASON\n'
         "                        approve although the run's verdict is NOT ACCEPTED,\n"
         '                        for this reason (recorded and printed)\n'
+        '  --despite-record-problems REASON\n'
+        "                        sign although the run's record is not intact (what\n"
+        "                        'check' reports), for this reason (recorded with the\n"
+        '                        problems, and printed)\n'
         '  --analyst NAME        your full name for the audit trail (default:\n'
         '                        $CURVEWRIGHT_ANALYST)\n'
         '  --analyst-id ID       your laboratory ID (default: $CURVEWRIGHT_ANALYST_ID)\n'
@@ -377,6 +382,12 @@ TEXTS: dict[tuple[str, ...], str] = {
         '  A run whose verdict is NOT ACCEPTED is approved only with --approve-not-accepted REASON: the reason is\n'
         '  recorded in the audit trail and printed beside the approval in the record. One person may sign in\n'
         '  several roles (laboratories differ); the command warns, and the trail and the record say so.\n'
+        '\n'
+        'a record that is not intact:\n'
+        "  A run whose record 'curvewright check' finds not intact (a signature the audit trail records was\n"
+        '  removed from the file, the trail does not verify, a signature does not hold) is signed only with\n'
+        '  --despite-record-problems REASON: the problems and the reason are recorded in the audit trail, the\n'
+        "  reason is printed beside the signature, and 'check' and the record go on naming the problems.\n"
         '\n'
         'examples:\n'
         '  curvewright sign run.json --role analyst --analyst "Robin Example" --analyst-id QA-0042\n'

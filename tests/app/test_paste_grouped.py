@@ -72,12 +72,14 @@ def test_refused_values_are_kept_and_the_verdict_says_why_no_curve(make_window, 
     verdict = window.verdict.text()
     assert "none given" not in verdict
     assert "none of the 12 standards entered can be used in the fit" in verdict
-    assert "STD-1: response '1.234,5' is not a number" in verdict and "and 9 more" in verdict
+    # in the words of the cell's reason (thousands separators), not a bare "is not a number"
+    assert ("STD-1: response '1.234,5' has thousands separators, so it was not read as a number" in verdict
+            and "and 9 more" in verdict)
     # the line of what needs attention names them, their rows and the reason, in one line, not twelve
     attention = window.attention.text()
     assert window.attention.isVisible() and attention.count("⚠") == 1
     assert ("12 standards of analyte 1 are not in the fit for want of a usable value: STD-1 (row 1): response "
-            "'1.234,5' is not a number;") in attention
+            "'1.234,5' has thousands separators, so it was not read as a number;") in attention
     assert "and 9 more, each marked in its row; 12 of them count as not passing" in attention
 
 

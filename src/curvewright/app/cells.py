@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 
 from ..core.run import Reading
+from ..core.unread_text import why_not_read
 from ..io.number_text import clean, parse_number, parse_reading
 
 
@@ -14,11 +15,13 @@ def reading_from_text(text: str, decimal_mark: str | None = None,
 
     ``decimal_mark`` is the analyst's stated mark ("." or ","); None refuses tokens that read two ways.
     ``thousands`` the separator a pasted block groups thousands with; None refuses grouped values.
+    The kept text is the cell's text trimmed of spaces around it, as the analyst would type it again.
     """
+    text = text.strip()  # kept as the analyst would type it again: a pasted "a; b" keeps no space before b
     parsed = parse_reading(text, decimal_mark, thousands)
     if parsed.reading is not None:
         return parsed.reading, None
-    return Reading(None, text), (parsed.problem or "not a number").split(": ", 1)[-1]
+    return Reading(None, text), (parsed.problem or why_not_read(text)).split(": ", 1)[-1]
 
 
 def number_from_text(text: str, decimal_mark: str | None = None,
@@ -34,10 +37,11 @@ def number_from_text(text: str, decimal_mark: str | None = None,
 
 
 def reading_problem(reading: Reading | None, decimal_mark: str | None = None) -> str | None:
-    """Why a stored reading is not usable (None when it is a number, censored or empty)."""
+    """Why a stored reading is not usable (None when it is a number, censored or empty); where its text
+    reads now (the decimal mark was changed since), why it was not read when entered."""
     if reading is None or not reading.is_unreadable:
         return None
-    return reading_from_text(reading.text, decimal_mark)[1] or "not a number"
+    return reading_from_text(reading.text, decimal_mark)[1] or why_not_read(reading.text)
 
 
 def display_reading(reading: Reading | None) -> str:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import html
 from dataclasses import replace
 from pathlib import Path
 
@@ -422,11 +423,13 @@ class SignDialog(QDialog):
     role, what the signature means (the role's usual words, which the signer may change), and the
     laboratory's signing key when the signature is to be keyed. Approving a NOT ACCEPTED run needs an
     explicit confirmation and a reason; signing a second role as the same person is said plainly
-    (it is allowed: laboratories differ)."""
+    (it is allowed: laboratories differ). A run whose record is not intact (``record_problems``, what
+    ``curvewright check`` reports) shows its problems first, in red, and is signed only with an
+    explicit confirmation and a reason too."""
 
     def __init__(self, role: str, signer: str, key_file: str = "", parent: QWidget | None = None, *,
                  verdict: str = "", accepted: bool | None = None, given: tuple[Signature, ...] = (),
-                 also_signed_as: tuple[str, ...] = ()) -> None:
+                 also_signed_as: tuple[str, ...] = (), record_problems: tuple[str, ...] = ()) -> None:
         from ..io.signatures import DEFAULT_MEANINGS, WITHDRAWN
 
         super().__init__(parent)
@@ -442,6 +445,19 @@ class SignDialog(QDialog):
         self.buttons.accepted.connect(self.accept)
         self.buttons.rejected.connect(self.reject)
         form = QFormLayout(self)
+        self.record_problems = QLabel(
+            "<b>The run's record is NOT intact.</b> Curvewright's check found:<br>"
+            + "<br>".join(f"• {html.escape(p)}" for p in record_problems)
+            + "<br>A signature now covers the run as it is; the problems stay on record (the check and the "
+              "printed record go on naming them). Sign only if your laboratory's procedures allow it, and say why."
+            if record_problems else "")
+        self.record_problems.setObjectName("sign-record-problems")
+        self.record_problems.setWordWrap(True)
+        self.record_problems.setTextFormat(Qt.TextFormat.RichText)
+        self.record_problems.setStyleSheet("color:#a11b1b; border:2px solid #a11b1b; padding:6px;")
+        self.record_problems.setVisible(bool(record_problems))
+        if record_problems:
+            form.addRow(self.record_problems)
         self.verdict = QLabel(f"Run verdict: {verdict}" if verdict else "Run verdict: not yet analysed")
         self.verdict.setObjectName("sign-verdict")
         self.verdict.setWordWrap(True)
@@ -481,11 +497,25 @@ class SignDialog(QDialog):
         if self.needs_reason:
             form.addRow(self.despite)
             form.addRow("&Reason", self.despite_reason)
+        self.needs_record_reason = bool(record_problems)
+        self.despite_record = QCheckBox("I sign although the run's record is NOT intact")
+        self.despite_record.setObjectName("sign-despite-record")
+        self.despite_record_reason = QPlainTextEdit()
+        self.despite_record_reason.setAccessibleName("Why the run is signed although its record is not intact")
+        self.despite_record_reason.setPlaceholderText("required: why you sign although the record is not intact "
+                                                      "(recorded in the audit trail with the problems, and printed "
+                                                      "beside the signature)")
+        self.despite_record_reason.setTabChangesFocus(True)
+        if self.needs_record_reason:
+            form.addRow(self.despite_record)
+            form.addRow("Reason for the &record", self.despite_record_reason)
         form.addRow("Signing &key", self.key_file)
         form.addRow(self.buttons)
         self.meaning.textChanged.connect(self._update)
         self.despite.toggled.connect(self._update)
         self.despite_reason.textChanged.connect(self._update)
+        self.despite_record.toggled.connect(self._update)
+        self.despite_record_reason.textChanged.connect(self._update)
         self._update()
 
     def values(self) -> tuple[str, str | None]:
@@ -495,10 +525,17 @@ class SignDialog(QDialog):
         """Why a NOT ACCEPTED run is approved ("" when the dialog did not ask)."""
         return self.despite_reason.toPlainText().strip() if self.needs_reason and self.despite.isChecked() else ""
 
+    def record_problems_reason(self) -> str:
+        """Why a run whose record is not intact is signed ("" when the dialog did not ask)."""
+        return (self.despite_record_reason.toPlainText().strip()
+                if self.needs_record_reason and self.despite_record.isChecked() else "")
+
     def _update(self) -> None:
         ready = bool(self.meaning.toPlainText().strip())
         if self.needs_reason:
             ready = ready and self.despite.isChecked() and bool(self.despite_reason.toPlainText().strip())
+        if self.needs_record_reason:
+            ready = ready and self.despite_record.isChecked() and bool(self.despite_record_reason.toPlainText().strip())
         self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(ready)
 
 

@@ -1075,15 +1075,9 @@ class MainWindow(QMainWindow):
         return True
 
     def _fresh_result(self) -> RunResult | None:
-        self.session.wait_for_analysis()
-        from PySide6.QtWidgets import QApplication
-
-        QApplication.processEvents()
-        if self.session.result is None or self.session.result.run is not self.session.run:
-            from ..core.run_analysis import analyse_run
-
-            return analyse_run(self.session.run)
-        return self.session.result
+        """The results of the run as it is now, shown in the window before a command uses them
+        (:meth:`RunSession.current_result`); None when the analysis fails (the status line says why)."""
+        return self.session.current_result()
 
     # --- edits -----------------------------------------------------------------------------------
     def undo(self) -> None:
@@ -1381,20 +1375,32 @@ class MainWindow(QMainWindow):
             return False
         from ..io.signatures import roles_signed_by
 
-        result = self._fresh_result()  # the verdict shown is that of the run as it is now
-        accepted = result.accepted if result is not None else None
-        failing = [r for r in result.reasons if "FAIL" in r] if result is not None else []
-        verdict = ("" if accepted is None else ("ACCEPTED" if accepted else "NOT ACCEPTED")
-                   + (" — " + "; ".join(failing) if failing else ""))
+        result = self._fresh_result()  # the verdict shown (in the window and the dialog) is that of the run as it is now
+        run = self.session.run
+        if result is None:
+            QMessageBox.warning(self, "Not signed", "The run as it is now could not be analysed, so its verdict is "
+                                "not known (the status line says why). Nothing was signed.")
+            return False
+        accepted = result.accepted
+        failing = [r for r in result.reasons if "FAIL" in r]
+        verdict = ("ACCEPTED" if accepted else "NOT ACCEPTED") + (" — " + "; ".join(failing) if failing else "")
+        from ..io.record_check import record_problems
+
         dialog = SignDialog(role, person.words, str(self.settings.value("signing/key_file", "") or ""), self,
                             verdict=verdict, accepted=accepted, given=self.session.run.signatures,
-                            also_signed_as=roles_signed_by(self.session.run, person, besides=role))
+                            also_signed_as=roles_signed_by(self.session.run, person, besides=role),
+                            record_problems=record_problems(self.session.run))
         if dialog.exec() != SignDialog.DialogCode.Accepted:
             return False
         meaning, key_file = dialog.values()
+        if self.session.run is not run or result.run is not run:
+            QMessageBox.warning(self, "Not signed", "The run changed while the sign dialog was open, so the verdict "
+                                "it showed is not that of the run as it is now. Nothing was signed; sign again.")
+            return False
         try:
-            signed = sign(self.session.run, role, person, meaning=meaning, key_file=key_file,
-                          verdict_accepted=accepted, not_accepted_reason=dialog.not_accepted_reason())
+            signed = sign(run, role, person, meaning=meaning, key_file=key_file,
+                          verdict_accepted=accepted, not_accepted_reason=dialog.not_accepted_reason(),
+                          record_problems_reason=dialog.record_problems_reason())
         except CurvewrightError as exc:
             QMessageBox.warning(self, "Not signed", str(exc))
             return False

@@ -181,13 +181,25 @@ class SamplesModel(QAbstractTableModel):
                 return refuse(problem)
             return True, replace(s, nominal=others + ((self.analyte_name, value),))
         parts = text.split(";") if t else [""]  # an empty cell: one reading with none recorded, as a file import keeps it
-        readings = [reading_from_text(p, decimal_mark, thousands)[0] for p in parts]
+        before = s.measurements_of(self.analyte_name)
         others = tuple(m for m in s.measurements if m.analyte != self.analyte_name)
-        mine = tuple(Measurement(self.analyte_name, i + 1, r) for i, r in enumerate(readings))
-        bad = [f"replicate {i + 1}: {reading_from_text(p, decimal_mark, thousands)[1]}" for i, p in enumerate(parts) if reading_from_text(p, decimal_mark, thousands)[1]]
+        mine: list[Measurement] = []
+        bad = []
+        for i, part in enumerate(parts):
+            old = before[i] if i < len(before) else None
+            if old is not None and part.strip() == old.response.text.strip() and (
+                    old.response.is_number or old.response.is_censored):
+                # a replicate left as it was keeps the reading it was entered with (a pasted "7.388,2" was
+                # read with the block's thousands separator, which a typed edit does not take)
+                mine.append(replace(old, replicate=i + 1))
+                continue
+            reading, problem = reading_from_text(part, decimal_mark, thousands)
+            mine.append(Measurement(self.analyte_name, i + 1, reading))
+            if problem:
+                bad.append(f"replicate {i + 1}: {problem}")
         if bad:
             report(f"{where}: " + "; ".join(bad) + "; kept as typed, not used")
-        return True, replace(s, measurements=others + mine)
+        return True, replace(s, measurements=others + tuple(mine))
 
     def _commit(self, samples: tuple[Sample, ...], description: str, reason: str = "") -> bool:
         """Make the samples current as one undoable step (``reason`` for a removal); a changed raw value

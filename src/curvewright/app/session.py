@@ -22,7 +22,7 @@ from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, replace
 from pathlib import Path
 
-from PySide6.QtCore import QObject, QRunnable, QStandardPaths, QThreadPool, QTimer, Signal, Slot
+from PySide6.QtCore import QCoreApplication, QObject, QRunnable, QStandardPaths, QThreadPool, QTimer, Signal, Slot
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
 from ..core.errors import CurvewrightError
@@ -44,6 +44,10 @@ DEFERRED_START_MS = 300
 event loop runs, if no window has asked for it sooner."""
 RECOVERY_DELAY_MS = 400
 """The recovery file is written this long after the last change (at most this much work is at risk)."""
+ANSWER_WAIT_MS = 10000
+"""A command that needs the results of the run as it is now (signing, the workbook, the record) waits
+this long for the analysis under way; then it analyses the run itself, on the GUI thread
+(:meth:`RunSession.current_result`)."""
 
 
 class RunChange(QUndoCommand):
@@ -475,6 +479,24 @@ class RunSession(QObject):
         """True while the latest change has not been analysed yet."""
         return self._answered != self._generation
 
+    def current_result(self) -> RunResult | None:
+        """The results of the run as it is now, made the shown ones before they are returned (None when
+        the analysis fails; :attr:`analysis_failed` says why). The analysis under way is waited for
+        (:data:`ANSWER_WAIT_MS`); when it has not answered by then, the run is analysed here, on the GUI
+        thread, and that answer is shown at once: the late answer of the same run is then passed over.
+        A command that signs or writes results reads them from here, so that what it records is what
+        the window shows."""
+        if not (self.result is not None and self.result.run is self._run):
+            self.wait_for_analysis(ANSWER_WAIT_MS)
+            QCoreApplication.processEvents()  # the answer, queued by the analysis thread
+        if self.result is not None and self.result.run is self._run:
+            return self.result
+        answer = analysis_answer(self._run, self._generation, self.evidence_wanted)
+        running = self._running
+        self._on_answer(answer)
+        self._running = running  # the analysis thread is still under way: its answer comes, and is passed over
+        return self.result if answer.result is not None else None
+
     @Slot(object)
     def _on_answer(self, answer: AnalysisAnswer) -> None:
         if self._running == answer.generation:
@@ -484,13 +506,20 @@ class RunSession(QObject):
             if self._running is None and self._answered != self._generation:
                 self._start_analysis()
             return
+        if answer.generation == self._answered:
+            return  # answered already (analysed on the GUI thread while this one ran: current_result)
         self._answered = answer.generation
         self.last_analysis_seconds = answer.seconds
         self.last_analysis_work_seconds = answer.seconds if answer.work_seconds is None else answer.work_seconds
         if answer.result is None:
             self.analysis_failed.emit(answer.error or "analysis failed")
             return
-        self.result = answer.result
+        result = answer.result
+        if result.run is not self._run:
+            # the same content: only what the run records (a signature, an export's entry) changed
+            # since this was asked for (record_run does not start an analysis), so it is the current run's
+            result = replace(result, run=self._run)
+        self.result = result
         self.evidence = answer.evidence if answer.evidence is not None else {}  # not worked out here
         self.analysis_ready.emit(answer.result)
 

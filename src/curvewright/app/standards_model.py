@@ -331,6 +331,9 @@ class StandardsModel(QAbstractTableModel):
                 return replace(s, concentration=math.nan, concentration_text=text), f"{where}: {text!r} {problem}; kept as typed, not used"
             below = f"{where}: {text.strip()!r} is {BELOW_ZERO}; kept, not used in the fit" if value < 0 else None
             return replace(s, concentration=value, concentration_text=""), below
+        old = s.response if col == RESP else s.internal_standard_response
+        if old is not None and text.strip() == old.text.strip() and (old.is_number or old.is_censored):
+            return s, None  # left as it was: the reading it was entered with (pasted with a thousands separator)
         reading, problem = reading_from_text(text, decimal_mark, thousands)
         warning = f"{where}: {text!r} {problem}; kept as typed, not used" if problem else None
         if col == RESP:

@@ -33,6 +33,7 @@ from .inverse import QuantFlag
 from .limits import DetectionLimits
 from .reporting import NO_RESPONSE, FlagBits, ReportingRange, ReportStatus, report_columns, report_value, reporting_range
 from .run import Analyte, Reading, Run, Sample, SampleKind, Standard
+from .unread_text import why_not_read
 
 if TYPE_CHECKING:  # pragma: no cover
     from .addition_series import AdditionSeriesResult
@@ -453,8 +454,8 @@ def response_value(reading: Reading, internal_standard: Reading | None, ratio: b
     if reading.is_censored:
         return None, f"response is censored ({reading.text})"
     if not reading.is_number:
-        if reading.text.strip():
-            return None, f"response {reading.text.strip()!r} is not a number"
+        if reading.text.strip():  # kept as typed: why, in the words its cell uses
+            return None, f"response {reading.text.strip()!r} {why_not_read(reading.text)}"
         return None, NO_RESPONSE
     if not ratio:
         return float(reading.value), ""  # type: ignore[arg-type]
@@ -497,7 +498,8 @@ def _analyse_analyte(
             continue
         if not s.has_concentration:
             text = s.concentration_text.strip()
-            unusable.append(UnusableStandard(s.id, f"concentration {text!r} is not a number" if text else "no concentration entered"))
+            unusable.append(UnusableStandard(s.id, f"concentration {text!r} {why_not_read(text)}" if text
+                                                else "no concentration entered"))
             continue
         if s.concentration < 0:
             unusable.append(UnusableStandard(s.id, f"concentration {s.concentration:g} is below zero"))

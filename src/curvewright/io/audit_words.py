@@ -114,7 +114,9 @@ def _entry_words(e: AuditEntry) -> str:
         return f"wrote {what} to {d.get('path', '')}{sha}."
     if a == "signed":
         keyed = f", keyed with key {d['key_fingerprint']}" if d.get("key_fingerprint") else ", not keyed"
-        return f"signed as {d.get('role', '')}: “{d.get('meaning', '')}”{keyed}."
+        problems = "; ".join(str(p) for p in d.get("record_problems") or ())
+        return (f"signed as {d.get('role', '')}: “{d.get('meaning', '')}”{keyed}."
+                + (f" The record was NOT intact when signed: {problems}." if problems else ""))
     if a == "approval_withdrawn":
         return f"withdrew the approval by {d.get('approval_by', '')} ({d.get('approved_at', '')})." + _because(d)
     if a == "method_applied":

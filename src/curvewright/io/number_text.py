@@ -17,16 +17,18 @@ from __future__ import annotations
 
 import math
 import re
-import unicodedata
 from dataclasses import dataclass
 
 from ..core.number_words import PLAIN_BELOW, PLAIN_FROM, full_number  # noqa: F401  (read from here too)
 from ..core.run import CENSORED_WORDS, Reading
+# one set of patterns and words for the cells and for the analysis's account of text it cannot use
+from ..core.unread_text import GROUPED_COMMA as _GROUPED_COMMA
+from ..core.unread_text import GROUPED_OTHER as _GROUPED_OTHER
+from ..core.unread_text import GROUPED_POINT as _GROUPED_POINT
+from ..core.unread_text import MIXED_WORDS, NOT_A_NUMBER_WORDS, THOUSANDS_WORDS
+from ..core.unread_text import PLAIN as _PLAIN
+from ..core.unread_text import SPACES, clean  # noqa: F401  (read from here too)
 
-SPACES = "\u00a0\u202f\u2007\u2009 \t"
-_PLAIN = re.compile(r"^[+-]?(\d+([.,]\d*)?|[.,]\d+)([eE][+-]?\d+)?$")
-_GROUPED_POINT = re.compile(r"^[+-]?\d{1,3}(,\d{3})+(\.\d*)?$")
-_GROUPED_COMMA = re.compile(r"^[+-]?\d{1,3}(\.\d{3})+(,\d*)?$")
 _AMBIGUOUS = re.compile(r"^[+-]?[1-9]\d{0,2}[.,]\d{3}$")
 """1–3 digits (not starting with 0), one mark, exactly 3 digits: "1,000" and "2.500" read two ways;
 "0.101" does not (a group of thousands never starts with 0)."""
@@ -38,21 +40,6 @@ class ParsedCell:
 
     reading: Reading | None
     problem: str | None = None
-
-
-def clean(text: str) -> str:
-    """The text of a cell as a number is read from it: spaces around it stripped, the minus sign
-    as "-", and digits of any script (full-width "１", Arabic-Indic "١"…) and full-width signs and
-    marks as their ASCII forms, so that the same rules (the ambiguity guard among them) apply to
-    every way of writing a number."""
-    t = text.strip(SPACES).replace("\u2212", "-")
-    return t if t.isascii() else _ascii_digits(t)
-
-
-def _ascii_digits(text: str) -> str:
-    folded = unicodedata.normalize("NFKC", text)  # full-width digits, signs, comma and full stop
-    return "".join(str(unicodedata.decimal(c)) if not c.isascii() and c.isdecimal() else c
-                   for c in folded).strip(SPACES).replace("\u2212", "-")
 
 
 def ambiguous_problem(text: str) -> str | None:
@@ -100,11 +87,11 @@ def parse_number(t: str, decimal_mark: str | None, thousands: str | None = None)
         elif grouped is not None and grouped.match(t):
             t = t.replace(thousands, "")
     if not _PLAIN.match(t):
-        if _GROUPED_POINT.match(t) or _GROUPED_COMMA.match(t) or re.match(r"^[+-]?\d+[ '’]\d{3}", t):
-            return None, "has thousands separators; remove them or say which separator the table uses"
+        if _GROUPED_POINT.match(t) or _GROUPED_COMMA.match(t) or _GROUPED_OTHER.match(t):
+            return None, f"{THOUSANDS_WORDS}; remove them or say which separator the table uses"
         if t.count(",") + t.count(".") > 1:
-            return None, "mixes decimal marks or separators; it is not a number as it stands"
-        return None, "is not a number"
+            return None, f"{MIXED_WORDS}; it is not a number as it stands"
+        return None, NOT_A_NUMBER_WORDS
     mark = "," if "," in t else "." if "." in t else None
     if mark is not None:
         if decimal_mark is None:

@@ -106,6 +106,9 @@ def public_key_hex(path: str | Path) -> str:
 
 NOT_ACCEPTED_WORDS = "Approved although the run verdict is NOT ACCEPTED; reason:"
 """Begins what an approval of a NOT ACCEPTED run adds to its meaning (printed beside it, and signed)."""
+RECORD_PROBLEMS_WORDS = "Signed although the run's record is NOT intact; reason:"
+"""Begins what a signature given over a record that is not intact (:func:`.record_check.record_problems`)
+adds to its meaning (printed beside it, and signed); the problems are listed in its audit entry."""
 
 
 def _same_person(s: Signature, person: Identity) -> bool:
@@ -136,7 +139,8 @@ def people_in_several_roles(run: Run) -> tuple[str, ...]:
 
 
 def sign(run: Run, role: str, person: Identity, *, meaning: str = "", key_file: str | Path | None = None,
-         clock: Clock = utc_now, verdict_accepted: bool | None = None, not_accepted_reason: str = "") -> Run:
+         clock: Clock = utc_now, verdict_accepted: bool | None = None, not_accepted_reason: str = "",
+         record_problems_reason: str = "") -> Run:
     """The run signed by ``person`` in ``role`` (the role's usual meaning unless one is given), keyed
     when ``key_file`` is given. An approver's signature locks the run.
 
@@ -144,7 +148,14 @@ def sign(run: Run, role: str, person: Identity, *, meaning: str = "", key_file: 
     approval of a run whose verdict is NOT ACCEPTED is refused unless ``not_accepted_reason`` gives
     the reason; the reason is then part of the approval's meaning (signed, and printed beside it
     in the record) and recorded in the audit entry. A person who already signed in another role
-    may sign: the audit entry records the other roles (``also_signed_as``)."""
+    may sign: the audit entry records the other roles (``also_signed_as``).
+
+    A run whose record is not intact (:func:`.record_check.record_problems`: a signature the trail
+    records was removed from the document, the trail does not verify, a signature does not hold) is
+    signed only with ``record_problems_reason``, the signer's explicit reason: it is then part of the
+    meaning (signed, and printed beside the signature in the record), and the audit entry records the
+    problems as they stood and the reason. The problems stay: ``check`` and the record go on naming
+    them. A reason given for a run whose record is intact is refused (nothing is signed)."""
     if role not in SIGNATURE_ROLES:
         raise SigningError(f"role: {role!r} is not one of {', '.join(SIGNATURE_ROLES)}.")
     if not person.name.strip():
@@ -163,9 +174,23 @@ def sign(run: Run, role: str, person: Identity, *, meaning: str = "", key_file: 
     if change is not None:
         raise SigningError(f"{change}. A signature would cover data its audit trail does not account for: open the "
                            "run in Curvewright, which records the change in the trail, review it and save, then sign.")
+    from .record_check import record_problems
+
+    problems = record_problems(run)
+    despite_record = record_problems_reason.strip()
+    if problems and not despite_record:
+        raise SigningError("the run's record is NOT intact: " + "; ".join(problems) + ". Signing it needs your "
+                           "explicit confirmation and a reason, which are recorded in the audit trail and printed "
+                           "beside the signature; the problems stay on record (on the command line: "
+                           "--despite-record-problems REASON).")
+    if despite_record and not problems:
+        raise SigningError("the run's record is intact: signing it needs no reason for record problems; "
+                           "nothing was signed.")
     meaning = (meaning or DEFAULT_MEANINGS[role]).strip()
     if despite:
         meaning = f"{meaning} {NOT_ACCEPTED_WORDS} {despite}"
+    if despite_record:
+        meaning = f"{meaning} {RECORD_PROBLEMS_WORDS} {despite_record}"
     also = roles_signed_by(run, person, besides=role)
     moment = clock().astimezone(timezone.utc)
     time_utc = _time_text(moment)
@@ -187,6 +212,9 @@ def sign(run: Run, role: str, person: Identity, *, meaning: str = "", key_file: 
         details["run_verdict"] = "ACCEPTED" if verdict_accepted else "NOT ACCEPTED"
     if despite:
         details["approved_although_not_accepted"] = despite
+    if despite_record:
+        details["record_problems"] = list(problems)
+        details["signed_although_record_not_intact"] = despite_record
     if also:
         details["also_signed_as"] = list(also)
     trail = append_entry(run.audit, "signed", details, user=person, clock=lambda: moment,
