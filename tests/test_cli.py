@@ -6,7 +6,6 @@ import json
 import subprocess
 import unicodedata
 import sys
-from pathlib import Path
 
 import numpy as np
 import pytest
@@ -17,11 +16,7 @@ from curvewright import cli
 from curvewright.core.run_analysis import analyse_run
 from curvewright.io.run_document import open_run, save_run
 from tests.io.helpers import DEMO_RUNS, ROOT
-
-
-def run_cli(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          cwd=cwd or ROOT, timeout=300)
+from tests.cli_runs import run_cli
 
 
 @pytest.mark.parametrize("path", DEMO_RUNS, ids=[p.stem for p in DEMO_RUNS])

@@ -4,8 +4,6 @@ from __future__ import annotations
 
 import json
 import re
-import subprocess
-import sys
 import unicodedata
 
 import openpyxl
@@ -17,11 +15,7 @@ from curvewright.core.run_analysis import analyse_run
 from curvewright.io.run_document import dumps_run
 from tests.core.test_addition_series import invented_run
 from tests.io.helpers import ROOT
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          cwd=ROOT, timeout=300)
+from tests.cli_runs import run_cli
 
 
 @pytest.fixture

@@ -7,28 +7,17 @@ from __future__ import annotations
 
 import json
 import re
-import subprocess
-import sys
-import unicodedata
 from pathlib import Path
 
 import openpyxl
 from pypdf import PdfReader
 
 from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli, flat
 
 DEMO = ROOT / "sample_runs" / "nitrate_water_linear.json"
 REVIEWER, APPROVER = "Ines Varga", "Tomas Reyes"
 CHANGED = "the approved data were changed after approval"
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          cwd=ROOT, timeout=300)
-
-
-def flat(text: str) -> str:
-    return re.sub(r"\s+", "", unicodedata.normalize("NFKC", text))
 
 
 def signed_run(tmp_path: Path) -> Path:

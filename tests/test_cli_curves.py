@@ -8,8 +8,6 @@ printed is checked against cw.fit(...).quantify(...) computed here.
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 from pathlib import Path
 
 import numpy as np
@@ -17,17 +15,13 @@ import pytest
 
 import curvewright as cw
 from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli
 
 LEVELS = [1.0, 2.5, 6.0, 15.0, 40.0, 100.0, 250.0, 600.0]
 rng = np.random.default_rng(3)
 X = np.repeat(LEVELS, 2)
 Y = np.round((2.8 + (0.05 - 2.8) / (1 + (X / 60.0) ** 1.3)) * (1 + 0.03 * rng.standard_normal(X.size)), 4)
 SAMPLES = [("HIL-P-01", 1, 0.412), ("HIL-P-01", 1, 0.405), ("HIL-P-02", 2, 1.733), ("HIL-P-03", 1, 2.95)]
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          cwd=ROOT, timeout=300)
 
 
 def files(folder: Path) -> tuple[Path, Path]:

@@ -8,12 +8,11 @@ from __future__ import annotations
 import csv
 import io
 import subprocess
-import sys
 from pathlib import Path
 
 import openpyxl
 
-from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli
 
 STANDARDS = [["Standard id", "Level", "Concentration (µg/L)", "Response (counts)"]] + [
     [f"MN-{i + 1:02d}", f"L{i // 2 + 1}", x, y] for i, (x, y) in enumerate(zip(
@@ -25,11 +24,6 @@ SAMPLES = [["Sample", "Type", "Dilution", "Nominal", "Response (counts)"],
            ["QC mid", "QC", "1", "5", "503.900"],
            ["QC low", "QC", "1", "", "52.3"],
            ["LKW-0713", "unknown", "2", "", "1503.80"]]
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          cwd=ROOT, timeout=300)
 
 
 def write_csv(path: Path, rows: list[list[object]]) -> Path:

@@ -5,27 +5,15 @@ warns once. The commands as subprocesses on the edited file."""
 from __future__ import annotations
 
 import json
-import re
-import subprocess
-import sys
-import unicodedata
 from pathlib import Path
 
 import openpyxl
 from pypdf import PdfReader
 
-from tests.io.helpers import HAND_EDITED_NAMED as NAMED, ROOT, hand_edited_nitrate
+from tests.io.helpers import HAND_EDITED_NAMED as NAMED, hand_edited_nitrate
+from tests.cli_runs import run_cli, flat
 
 UNNAMED = "cannot be said"
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          cwd=ROOT, timeout=300)
-
-
-def flat(text: str) -> str:
-    return re.sub(r"\s+", "", unicodedata.normalize("NFKC", text))
 
 
 def test_every_output_names_the_hand_edited_value_as_check_does(tmp_path: Path) -> None:

@@ -17,7 +17,8 @@ import numpy as np
 import openpyxl
 from scipy import optimize, stats
 
-from tests.test_cli_tables import run_cli, write
+from tests.cli_runs import run_cli
+from tests.test_cli_tables import write
 
 STANDARDS = [("C-01", 0.5, 55.83), ("C-02", 0.5, 49.96), ("C-03", 1, 104.21), ("C-04", 1, 98.47),
              ("C-05", 2.5, 251.9), ("C-06", 2.5, 262.4), ("C-07", 5, 511.7), ("C-08", 5, 494.2),

@@ -19,7 +19,8 @@ import numpy as np
 import statsmodels.api as sm
 from statsmodels.formula.api import ols
 
-from tests.test_cli_tables import run_cli, write
+from tests.cli_runs import run_cli
+from tests.test_cli_tables import write
 
 K = [(125, 160), (100, 112), (200, 124), (75, 28), (150, 152), (175, 156), (75, 42), (175, 124), (125, 150),
      (200, 104), (100, 136)]

@@ -6,16 +6,13 @@ the way an instrument and a spreadsheet write them; its JSON, workbook and recor
 from __future__ import annotations
 
 import json
-import re
 import subprocess
-import sys
-import unicodedata
 from pathlib import Path
 
 import openpyxl
 from pypdf import PdfReader
 
-from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli, flat
 
 # An invented zinc run: six levels in duplicate, response ≈ 4 + 52·x counts.
 STANDARDS = [("ZN-1a", 1, 56.1), ("ZN-1b", 1, 55.2), ("ZN-2a", 2, 108.4), ("ZN-2b", 2, 107.9),
@@ -23,11 +20,6 @@ STANDARDS = [("ZN-1a", 1, 56.1), ("ZN-1b", 1, 55.2), ("ZN-2a", 2, 108.4), ("ZN-2
              ("ZN-5a", 20, 1043.9), ("ZN-5b", 20, 1046.0), ("ZN-6a", 50, 2599.5), ("ZN-6b", 50, 2607.3)]
 QUANTIFY = ("--analyte", "zinc", "--model", "linear", "--weighting", "1/x", "--decimal-mark", ".",
             "--profile", "ich-m10-chromatographic")
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          cwd=ROOT, timeout=300)
 
 
 def write_csv(path: Path, rows: list[tuple]) -> Path:
@@ -56,10 +48,6 @@ def quantify_qc_mid(tmp_path: Path, kind: str, nominal: str) -> subprocess.Compl
     smp = write_csv(tmp_path / "zn_smp.csv", [("Sample", "Type", "Nominal", "Response (counts)"),
                                               ("QC mid", kind, nominal, 1043.0), ("Well 7", "unknown", "", 402.2)])
     return run_cli("quantify", "--standards", str(standards(tmp_path)), "--samples", str(smp), *QUANTIFY)
-
-
-def flat(text: str) -> str:
-    return re.sub(r"\s+", "", unicodedata.normalize("NFKC", text))
 
 
 def test_qc_without_nominal_is_not_judged_and_the_run_not_accepted(tmp_path: Path) -> None:
@@ -128,7 +116,6 @@ def test_nominal_with_an_empty_kind_is_said_to_be_unused(tmp_path: Path) -> None
                and "its nominal is not used" in r for r in reasons)
     # the QC high alone is judged; the note does not change the verdict
     assert reasons[0].startswith("pass: 1 of 1 QC samples") and data["accepted"] is True
-
 
 
 def test_a_nominal_on_the_only_qc_like_sample_says_no_qc_was_judged(tmp_path: Path) -> None:

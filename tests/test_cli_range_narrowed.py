@@ -17,7 +17,8 @@ from pathlib import Path
 import openpyxl
 import pypdfium2 as pdfium
 
-from tests.test_cli_tables import run_cli, write
+from tests.cli_runs import run_cli
+from tests.test_cli_tables import write
 
 HEADER = "Standard id,Level,Concentration (ng/mL),Response"
 # (level, concentration, responses of the two standards): a line 0.0049 + 0.01183·x, invented

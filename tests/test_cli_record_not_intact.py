@@ -8,19 +8,13 @@ on files edited as a person edits them."""
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 from pathlib import Path
 
 from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli
 
 DEMO = ROOT / "sample_runs" / "nitrate_water_linear.json"
 VERDICT_PREFIX = "Profile: "
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          encoding="utf-8", cwd=ROOT, timeout=300)
 
 
 def edit_response(path: Path) -> None:

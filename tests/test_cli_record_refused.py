@@ -5,16 +5,10 @@ command runs as a subprocess on a copy of the demo run."""
 from __future__ import annotations
 
 import shutil
-import subprocess
-import sys
 from pathlib import Path
 
 from tests.io.helpers import ROOT
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          cwd=ROOT, timeout=300)
+from tests.cli_runs import run_cli
 
 
 def test_record_without_anything_written_is_refused(tmp_path: Path) -> None:

@@ -6,22 +6,16 @@ says so. Signing reads the document under its lock, so nothing signed elsewhere 
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 from pathlib import Path
 
 from curvewright.core.run_analysis import analyse_run
 from curvewright.io import run_edits
 from curvewright.io.run_document import open_run, save_run
 from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli
 
 DEMO = ROOT / "sample_runs" / "nitrate_water_linear.json"
 REASON = "Standard 4 misread; samples re-run in batch 12 agree"
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          cwd=ROOT, timeout=300)
 
 
 def not_accepted_run(tmp_path: Path) -> Path:

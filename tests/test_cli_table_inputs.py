@@ -14,7 +14,7 @@ import openpyxl
 import pytest
 
 import curvewright as cw
-from tests.test_cli_tables import run_cli
+from tests.cli_runs import run_cli
 
 # Fernhollow cobalt standards (invented): duplicates at six levels, µg/L against counts
 CO_X = [0.5, 0.5, 1, 1, 2, 2, 5, 5, 10, 10, 20, 20]

@@ -8,8 +8,6 @@ Each number the command prints is checked against ``cw.fit(...).quantify(...)`` 
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 from pathlib import Path
 
 import numpy as np
@@ -17,6 +15,7 @@ import pytest
 
 import curvewright as cw
 from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli
 
 # Larkmoor manganese standards, duplicates at six levels, responses with three decimals (invented)
 MN_X = [0.5, 0.5, 1, 1, 2, 2, 5, 5, 10, 10, 20, 20]
@@ -28,11 +27,6 @@ MN_SAMPLES = [("LWL-0412", 1, 640.225), ("LWL-0412", 1, 652.118), ("Well 3, rins
 ZN_X = [1, 1, 2, 2, 5, 5, 10, 10, 20, 20, 40, 40]
 ZN_Y = [998.581, 983.043, 1972.561, 1983.43, 4784.837, 4798.136, 9176.482, 9185.657, 16777.374, 16801.474,
         27185.988, 27209.069]
-
-
-def run_cli(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          cwd=cwd or ROOT, timeout=300)
 
 
 def write(path: Path, lines: list[str], *, bom: bool = False, newline: str = "\n") -> Path:

@@ -16,7 +16,8 @@ from pathlib import Path
 import numpy as np
 import openpyxl
 
-from tests.test_cli_tables import run_cli, write
+from tests.cli_runs import run_cli
+from tests.test_cli_tables import write
 
 STANDARDS = [("Z00", 0.5, 51.46), ("Z01", 0.5, 51.72), ("Z10", 1, 100.95), ("Z11", 1, 100.31),
              ("Z20", 2, 199.11), ("Z21", 2, 198.87), ("Z30", 5, 481.26), ("Z31", 5, 479.85),

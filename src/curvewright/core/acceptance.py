@@ -28,6 +28,7 @@ from .values import frozen_value
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .errors import ProfileError
 from .levels import Levels, group_levels
+from .limit_digits import BOUNDARY
 from .number_words import full_number
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -35,8 +36,6 @@ if TYPE_CHECKING:  # pragma: no cover
     from .fitted_curve import FittedCurve
 
 PROFILE_FORMAT = "curvewright-acceptance-profile/1"
-_BOUNDARY = 1e-9
-"""Allowance (in % points) so that a back-calculated error of exactly the limit is not failed by round-off."""
 
 
 @frozen_value
@@ -363,7 +362,7 @@ class AcceptanceProfile:
             tol_by_level[nonzero_levels[-1]] = rules.highest_level_tolerance_percent
             tol_by_level[nonzero_levels[0]] = rules.lowest_level_tolerance_percent
         tol = tol_by_level[index]
-        return _Layout(frozen(judged), n_anchors, nonzero_levels, frozen(tol), tol + _BOUNDARY,
+        return _Layout(frozen(judged), n_anchors, nonzero_levels, frozen(tol), tol + BOUNDARY,
                        int(np.count_nonzero(judged)))
 
     def _judge(
@@ -504,7 +503,7 @@ class AcceptanceProfile:
             raise ProfileError(f"QC nominal concentration: QC sample {int(bad[0]) + 1} has {x[bad[0]]:g}; it must be above zero.")
         rules = self.qc
         re = 100.0 * (y - x) / x
-        passing = np.abs(re) <= rules.tolerance_percent + _BOUNDARY
+        passing = np.abs(re) <= rules.tolerance_percent + BOUNDARY
         n_pass = int(passing.sum())
         n_all = x.size + unjudged
         reasons: list[str] = []

@@ -22,12 +22,9 @@ from dataclasses import dataclass
 from typing import Sequence
 
 from .acceptance import CheckRules
-from .limit_digits import recovery_decimals
+from .limit_digits import BOUNDARY, recovery_decimals
 from .reporting import ReportingRange, ReportStatus
 from .run import SampleKind
-
-BOUNDARY = 1e-9
-"""Allowance (in % points) so that a recovery at exactly the window's edge is not failed by round-off."""
 
 
 @dataclass(frozen=True)

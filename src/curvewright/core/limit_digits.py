@@ -17,7 +17,10 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable
 
-BOUNDARY = 1e-9  # the tolerance with which the verdicts take a value on a limit (core.checks, core.acceptance)
+BOUNDARY = 1e-9
+"""The tolerance, in the units of the limit (percentage points), within which every verdict of the
+program takes a value as on a limit: the standards' and the QC samples' (core.acceptance, core.checks,
+core.run_analysis) and the decimals shown beside them here. Defined once, so that they cannot disagree."""
 MOST_MORE = 4
 
 

@@ -30,6 +30,7 @@ from .calibration import Calibration
 from .fitting import fit
 from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag
+from .limit_digits import BOUNDARY
 from .limits import DetectionLimits
 from .reporting import NO_RESPONSE, FlagBits, ReportingRange, ReportStatus, report_columns, report_value, reporting_range
 from .run import Analyte, Reading, Run, Sample, SampleKind, Standard
@@ -574,7 +575,7 @@ def _analyse_analyte(
         )
     if samples is not None:
         samples = tuple(
-            replace(s, within_limits=abs(s.recovery_percent - 100.0) <= profile.qc.tolerance_percent + 1e-9)
+            replace(s, within_limits=abs(s.recovery_percent - 100.0) <= profile.qc.tolerance_percent + BOUNDARY)
             if s.recovery_percent is not None and s.kind is SampleKind.QC and _inside(s.flags) else s
             for s in samples
         )
@@ -620,7 +621,7 @@ def _judge_qc(columns: SampleColumns, profile: AcceptanceProfile,
     reported = _in_range(columns)
     judged = is_qc & ~np.isnan(recovery) & reported
     within = columns.within_limits.copy()
-    within[judged] = np.abs(recovery[judged] - 100.0) <= profile.qc.tolerance_percent + 1e-9
+    within[judged] = np.abs(recovery[judged] - 100.0) <= profile.qc.tolerance_percent + BOUNDARY
     counted = is_qc & ~np.isnan(columns.nominal) & columns.quantified & ~np.isnan(columns.estimate) & reported
     verdict = None
     not_judged, notes = _qc_not_judged(columns, unit)
