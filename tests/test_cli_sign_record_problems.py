@@ -8,22 +8,16 @@ from __future__ import annotations
 
 import json
 import re
-import subprocess
-import sys
 import unicodedata
 from pathlib import Path
 
 import pypdfium2 as pdfium
 
+from tests.cli_runs import run_cli
 from tests.io.helpers import ROOT
 
 DEMO = ROOT / "sample_runs" / "nitrate_water_linear.json"
 REASON = "Reviewer signature lost in a file transfer; data re-checked against the raw printout"
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          cwd=ROOT, timeout=300)
 
 
 def reviewer_cut_out(tmp_path: Path) -> tuple[Path, str]:
