@@ -237,9 +237,28 @@ def interval_places(lower: float, upper: float, rule: RoundingRule | None = None
     with (negative: tens, hundreds…, which only happens without a ``rule``)."""
     half = (upper - lower) / 2.0
     places = 1 - math.floor(math.log10(half)) if half > 0 else 0
-    if rule is not None:
+    if rule is not None and places < _rule_places_at_most(rule, lower, upper):
         places = max(places, max(_decimal_places(rule.text(v)) for v in (lower, upper)))
     return places
+
+
+def _rule_places_at_most(rule: RoundingRule, lower: float, upper: float) -> float:
+    """A bound, never below the truth, of the decimal places ``rule.text`` prints ``lower`` and ``upper``
+    with, found without rounding them; infinity where none is found so (an end zero or not finite).
+
+    Under ``decimals`` a finite value is printed with exactly ``digits`` places. Under ``significant``
+    the last kept digit of a value v ≠ 0 stands at 10^(e − digits + 1), e the exponent of v's first
+    significant digit after round-off is removed; removing round-off and rounding can only raise e
+    (9.996 → 10.0), so v is printed with at most max(0, digits − 1 − e₀) places, e₀ = ⌊log10|v|⌋. One
+    place more is allowed for ``math.log10`` rounding up just below a power of ten. Where the
+    interval's own places reach this bound the rule cannot add to them, and the ends are not rounded
+    (an interval's ends are printed for every sample shown after each edit)."""
+    bound = 0
+    for v in (lower, upper):
+        if v == 0 or not math.isfinite(v):
+            return math.inf
+        bound = max(bound, rule.digits if rule.kind == "decimals" else rule.digits - math.floor(math.log10(abs(v))))
+    return bound
 
 
 def _decimal_places(text: str) -> int:
