@@ -61,14 +61,15 @@ def test_an_intervals_places_are_those_of_its_ends_rounded_in_full() -> None:
 
 
 def test_the_quick_path_rounds_no_end_where_the_rule_cannot_add_places(monkeypatch) -> None:
-    """Three significant figures on 123.4 ± 0.5 print two places (the half-width's second figure):
-    the ends need not be rounded; ± 50 prints none of its own, so the ends are rounded, and the rule
+    """Three significant figures on 123.4 ± 0.5 print two places (the half-width's second figure),
+    on 862.7 ± 67.7 none: the ends need not be rounded; ± 50 prints none of its own, so the ends are rounded, and the rule
     prints 73.4 with one place."""
     rule = RoundingRule("significant", 3)
     rounded: list[float] = []
     original = RoundingRule.text
     monkeypatch.setattr(RoundingRule, "text", lambda self, v: rounded.append(v) or original(self, v))
     assert interval_places(122.9, 123.9, rule) == 2
+    assert interval_places(794.99, 930.46, rule) == 0  # 795 and 930, whole numbers under the rule too
     assert rounded == []
     assert interval_places(73.4, 173.4, rule) == 1
     assert rounded == [73.4, 173.4]
