@@ -21,11 +21,12 @@ def full_number(value: float, decimal_mark: str | None = None) -> str:
     ("2.5e-09"). ``decimal_mark`` "," writes a decimal comma; any other value a point."""
     if not math.isfinite(value):
         return repr(value)
-    from decimal import Decimal  # loaded when first needed: not on the command line's start-up path
-
     text = repr(float(value))
     if value == 0 or PLAIN_FROM <= abs(value) < PLAIN_BELOW:
-        text = format(Decimal(text), "f")
+        if "e" in text:  # a repr without an exponent is written out already, as Decimal writes it ("2.5", "0.0001")
+            from decimal import Decimal  # loaded when first needed: not on the command line's start-up path
+
+            text = format(Decimal(text), "f")
         if "." in text:
             text = text.rstrip("0").rstrip(".")
         text = "0" if text in ("-0", "") else text

@@ -237,9 +237,36 @@ def interval_places(lower: float, upper: float, rule: RoundingRule | None = None
     with (negative: tens, hundreds…, which only happens without a ``rule``)."""
     half = (upper - lower) / 2.0
     places = 1 - math.floor(math.log10(half)) if half > 0 else 0
-    if rule is not None:
+    if rule is not None and places < _rule_places_at_most(rule, lower, upper):
         places = max(places, max(_decimal_places(rule.text(v)) for v in (lower, upper)))
     return places
+
+
+def _rule_places_at_most(rule: RoundingRule, lower: float, upper: float) -> float:
+    """A bound, never below the truth, of the decimal places ``rule.text`` prints ``lower`` and ``upper``
+    with, found without rounding them; infinity where none is found so (an end zero or not finite).
+
+    Under ``decimals`` a finite value is printed with exactly ``digits`` places. Under ``significant``
+    the last kept digit of a value v ≠ 0 stands at 10^(e − digits + 1), e the exponent of the first
+    significant digit of v's shortest repr after round-off is removed; removing round-off and rounding
+    can only raise e (9.996 → 10.0), so v is printed with at most max(0, digits − 1 − e₀) places for
+    any e₀ ≤ e. e₀ = ⌊log10|v|⌋ where |v| ≥ 10^e₀ is checked exactly (10^e₀ is a double for
+    0 ≤ e₀ ≤ 22; the repr of such a v is not below it either); otherwise one less, as ``math.log10``
+    may round up to a power of ten from just below it. Where the interval's own places reach this
+    bound the rule cannot add to them, and the ends are not rounded (an interval's ends are printed
+    for every sample shown, after each edit)."""
+    bound = 0
+    for v in (lower, upper):
+        if v == 0 or not math.isfinite(v):
+            return math.inf
+        if rule.kind == "decimals":
+            bound = max(bound, rule.digits)
+            continue
+        exponent = math.floor(math.log10(abs(v)))
+        if not (0 <= exponent <= 22 and abs(v) >= 10.0 ** exponent):
+            exponent -= 1
+        bound = max(bound, rule.digits - 1 - exponent)
+    return bound
 
 
 def _decimal_places(text: str) -> int:
