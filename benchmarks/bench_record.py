@@ -3,7 +3,8 @@
 For each demo run (analysed once, its model evidence computed beforehand, as in ``quantify``), the
 time to build and write the PDF record is compared with the time to write the XLSX workbook, per
 analyte. Both are warmed once and then timed in interleaved rounds, as elapsed time and as processor
-time of this process (``time.process_time``, which the machine's other work moves much less). The
+time of this process (``time.process_time``, which the machine's other work moves much less), with the
+garbage collected before each side and held off while it runs (as ``common.interleaved`` times). The
 record's time is split into its parts: building the content, describing the figures from the results,
 placing tables and text, drawing the figures on the pages, the PDF writer's own work when a page is
 finished and when the document is closed (compressing each page's content, embedding the glyphs of the
@@ -17,6 +18,7 @@ Run: python benchmarks/bench_record.py [--smoke]
 
 from __future__ import annotations
 
+import gc
 import os
 import statistics
 import tempfile
@@ -77,16 +79,28 @@ def main() -> None:
         PARTS.clear()
         xlsx, pdf, content, xlsx_cpu, pdf_cpu = [], [], [], [], []
         for _ in range(rounds):
-            start, cpu = time.perf_counter(), time.process_time()
-            write_xlsx(result, workbook)
-            xlsx.append(time.perf_counter() - start)
-            xlsx_cpu.append(time.process_time() - cpu)
-            start, cpu = time.perf_counter(), time.process_time()
-            built = report.build_report(result)
-            content.append(time.perf_counter() - start)
-            report_pdf.write_report(built, record)
-            pdf.append(time.perf_counter() - start)
-            pdf_cpu.append(time.process_time() - cpu)
+            # as in common.interleaved: one side's garbage is collected before the other is timed, and
+            # none while either runs
+            gc.collect()
+            gc.disable()
+            try:
+                start, cpu = time.perf_counter(), time.process_time()
+                write_xlsx(result, workbook)
+                xlsx.append(time.perf_counter() - start)
+                xlsx_cpu.append(time.process_time() - cpu)
+            finally:
+                gc.enable()
+            gc.collect()
+            gc.disable()
+            try:
+                start, cpu = time.perf_counter(), time.process_time()
+                built = report.build_report(result)
+                content.append(time.perf_counter() - start)
+                report_pdf.write_report(built, record)
+                pdf.append(time.perf_counter() - start)
+                pdf_cpu.append(time.process_time() - cpu)
+            finally:
+                gc.enable()
         analytes = len(result.analytes)
         ratio = statistics.median(pdf) / analytes / statistics.median(xlsx)
         cpu_ratio = statistics.median(pdf_cpu) / analytes / statistics.median(xlsx_cpu)
