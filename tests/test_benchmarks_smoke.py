@@ -47,3 +47,40 @@ def test_there_is_a_benchmark_for_each_target() -> None:
                                           "bench_edit_redraw", "bench_xlsx_export", "bench_safe_files",
                                           "bench_import_scaling", "bench_many_runs", "bench_scaling",
                                           "bench_cli_start", "bench_record", "bench_large_run"}
+
+
+def test_record_benchmark_times_both_sides_with_the_collector_held_off(tmp_path: Path) -> None:
+    """Benchmark 10 times the workbook and the record as ``common.interleaved`` times its sides: the
+    garbage collector held off while each runs, so that a collection triggered by one side's garbage
+    never lands inside the other's timing. Run as it is run, with its two timed calls observed."""
+    observer = tmp_path / "observe.py"
+    observer.write_text(
+        "import gc, json, runpy, sys\n"
+        "sys.argv = [sys.argv[1], '--smoke']\n"
+        "import curvewright.io.xlsx_export as xlsx_export, curvewright.app.report_pdf as report_pdf\n"
+        "seen = []\n"
+        "def observed(name, inner):\n"
+        "    def call(*args, **kwargs):\n"
+        "        seen.append((name, gc.isenabled()))\n"
+        "        return inner(*args, **kwargs)\n"
+        "    return call\n"
+        "xlsx_export.write_xlsx = observed('workbook', xlsx_export.write_xlsx)\n"
+        "report_pdf.write_report = observed('record', report_pdf.write_report)\n"
+        "sys.path.insert(0, str(__import__('pathlib').Path(sys.argv[0]).parent))\n"
+        "runpy.run_path(sys.argv[0], run_name='__main__')\n"
+        "print('OBSERVED ' + json.dumps({'calls': seen, 'enabled_after': gc.isenabled()}))\n"
+    )
+    script = ROOT / "benchmarks" / "bench_record.py"
+    env = {**os.environ, "QT_QPA_PLATFORM": "offscreen",
+           "PYTHONPATH": os.pathsep.join([str(ROOT / "src"), str(ROOT / "benchmarks")])}
+    result = subprocess.run([sys.executable, str(observer), str(script)], capture_output=True, text=True,
+                            timeout=600, env=env, cwd=ROOT)
+    assert result.returncode == 0, result.stdout[-2000:] + result.stderr[-2000:]
+    import json
+
+    observed = json.loads(result.stdout.rsplit("OBSERVED ", 1)[1])
+    seen = observed["calls"]
+    # the smoke run: one demo run, warmed once (workbook, record), then one timed round of each
+    assert [name for name, _ in seen] == ["workbook", "record", "workbook", "record"]
+    assert [enabled for _, enabled in seen[2:]] == [False, False]  # timed with the collector held off
+    assert observed["enabled_after"]  # and given back to the interpreter afterwards

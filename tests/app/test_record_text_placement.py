@@ -30,7 +30,7 @@ def word_by_word(layout: RecordLayout, style: str, text: str, width: float) -> l
         line = ""
         for token in layout.tokens(style, paragraph, width):
             candidate = token if not line else f"{line} {token}"
-            if layout.m.metrics[style].horizontalAdvance(candidate) <= width or not line:
+            if layout.m.measure(style, candidate) <= width or not line:
                 line = candidate
             else:
                 lines.append(line)
@@ -60,8 +60,8 @@ def test_every_line_fits_and_the_next_word_would_not(layout) -> None:  # type: i
     tokens = [t for line in lines for t in line.split(" ")]
     assert " ".join(tokens) == " ".join(layout.tokens("body", text, width))  # nothing lost or repeated
     for line, following in zip(lines, lines[1:]):
-        assert layout.m.metrics["body"].horizontalAdvance(line) <= width
-        assert layout.m.metrics["body"].horizontalAdvance(f"{line} {following.split(' ')[0]}") > width
+        assert layout.m.measure("body", line) <= width
+        assert layout.m.measure("body", f"{line} {following.split(' ')[0]}") > width
 
 
 def test_a_columns_narrowest_width_is_its_widest_word(layout) -> None:  # type: ignore[no-untyped-def]
@@ -70,7 +70,7 @@ def test_a_columns_narrowest_width_is_its_widest_word(layout) -> None:  # type: 
         for _ in range(50):
             cells = [" ".join(rng.choice(WORDS) for _ in range(rng.randint(1, 4))) for _ in range(rng.randint(1, 12))]
             words = [w for c in cells for w in layout.bound_words(c)]
-            widest = max(layout.m.metrics[style].horizontalAdvance(w) for w in words)
+            widest = max(layout.m.measure(style, w) for w in words)
             expected = min(widest, LONGEST_UNBROKEN * layout.width) + 2 * CELL_PAD_X + FIT_SLACK
             assert layout._min_width(cells, style) == pytest.approx(expected, rel=1e-12), cells
 
