@@ -10,21 +10,12 @@ from __future__ import annotations
 
 from PySide6.QtCore import Qt
 
-from curvewright.core.run import Analyte, Reading, Standard
-from curvewright.io import run_edits
-from curvewright.io.run_document import dumps_run
 from tests.app.conftest import settle
-from tests.test_cli_quadratic_lacks_fit import ZINC
+from tests.test_cli_quadratic_lacks_fit import zinc_run_document
 
 
 def test_evidence_panel_recommends_no_quadratic_that_lacks_fit(make_window, qtbot, answer_dialogs, tmp_path) -> None:
-    standards = tuple(Standard(f"Zn-{i + 1}", float(c), Reading(r, f"{r:.2f}"), 1 + i % 2, f"L{i // 2 + 1}")
-                      for i, (c, r) in enumerate(ZINC))
-    run = run_edits.new_run("Zinc, Harrowgate batch 7", (Analyte("zinc", "mg/L", "counts", standards),),
-                            user="a.tester")
-    path = tmp_path / "zinc.json"
-    path.write_text(dumps_run(run), encoding="utf-8")
-    window = make_window(path)
+    window = make_window(zinc_run_document(tmp_path / "zinc.json"))
     window.bottom_tabs.setCurrentWidget(window.evidence_panel)
     panel = window.evidence_panel
     assert panel.comparison.recommendation is None
