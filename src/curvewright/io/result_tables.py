@@ -489,12 +489,15 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
 
 
 def rule_departures(a: AnalyteResult, rule: RoundingRule) -> tuple[str, ...]:
-    """The samples of ``a`` whose reported value is shown to its interval's decimal place rather than by
-    ``rule`` (:meth:`.RoundingRule.places_within`), each named once."""
+    """The samples of ``a`` whose reported value is shown otherwise than ``rule`` shows it, because the
+    rule would show it more coarsely than its interval supports (:meth:`.RoundingRule.text_within`),
+    each named once. A value whose text is the same either way ("370" by three significant figures and
+    at the unit place of its interval) is not named: what it shows is the rule's."""
     out: list[str] = []
     for s in a.samples:
-        if s.reported is not None and s.sample_id not in out and \
-                rule.places_within(s.reported, s.reported_lower, s.reported_upper) is not None:
+        if s.reported is None or s.sample_id in out:
+            continue
+        if rule.text_within(s.reported, s.reported_lower, s.reported_upper) != rule.text(s.reported):
             out.append(s.sample_id)
     return tuple(out)
 
