@@ -631,7 +631,8 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
                 w = min(fitting, key=lambda v: abs(IMPLIED_POWER.get(v, theta) - theta))
                 if w in IMPLIED_POWER:
                     return choices[w], f"{shape}, which {w.value} weights (θ = {IMPLIED_POWER[w]:g}) match"
-                return choices[w], f"{shape}; no fixed weighting matches, so the weights follow a variance function fitted to all standards ({w.value})"
+                return choices[w], (f"{shape}; no fixed weighting matches, so the weights follow a variance function "
+                                    f"fitted to all standards ({w.value}): {_weights_use(choices[w], theta)}")
     weighted = list(choices.values())
     best = min(c.sum_abs_relative_error for c in weighted)
     tied = [c for c in weighted if c.sum_abs_relative_error <= best * (1 + TIE_FRACTION) + 1e-12]
@@ -642,6 +643,24 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
         if len(tied) == 1
         else f"{chosen.weighting.value} is the simplest within {TIE_FRACTION:.0%} of the smallest sum of absolute relative errors"
     )
+
+
+def _weights_use(chosen: Candidate, evidence_theta: float) -> str:
+    """The variance function ``chosen``'s weights use, told apart from the replicate evidence's θ
+    (``evidence_theta``): the evidence fits SD ∝ mean^θ to the replicates' scatter about their level
+    means (:mod:`.variance`), the weights fit it to the residuals of all standards about the curve
+    (:mod:`.variance_function`), so the two estimates differ a little."""
+    fitted = chosen.calibration.weight_model.variance_fit
+    name = _SHORT_NAMES.get(chosen.model, f"the {chosen.model.value}").split(" ", 1)[1]
+    if fitted is None:
+        return f"the {name}'s weights hold no fitted variance function"
+    function = fitted.function
+    if function.kind == "power":
+        return (f"the {name}'s weights use θ = {function.parameter:.3g}, fitted to the residuals of all standards "
+                f"about the curve; θ = {evidence_theta:.2f} is the replicate evidence's estimate, fitted to the "
+                "replicates' scatter about their level means")
+    return (f"the {name}'s weights use SD² = a² + b²·(mean response)² with a/b = {function.parameter:.4g}, fitted "
+            "to the residuals of all standards about the curve")
 
 
 def _anchor_mask(anchor_points: Sequence[bool] | None, n: int) -> np.ndarray:
