@@ -1343,10 +1343,11 @@ class _SampleRows:
                     reported = None if estimate is None else estimate * df
                     se = None if se != se else se
                     low, high = (None if low != low else low), (None if high != high else high)
+                    reported_se = None if se is None else se * df
                     reported_lower = None if low is None else low * df
                     reported_upper = None if high is None else high * df
                 else:
-                    mean = estimate = se = low = high = reported = reported_lower = reported_upper = None
+                    mean = estimate = se = low = high = reported = reported_se = reported_lower = reported_upper = None
                 flag_names = names.get(bits)
                 if flag_names is None:
                     flag_names = names[bits] = list(_flag_names(bits))
@@ -1354,6 +1355,7 @@ class _SampleRows:
                     "id": sid, "kind": words_of[kind], "run_order": order, "replicates": count,
                     "mean_response": mean, "estimate": estimate, "standard_error": se,
                     "lower": low, "upper": high, "dilution_factor": df, "reported": reported,
+                    "reported_standard_error": reported_se,
                     "reported_lower": reported_lower, "reported_upper": reported_upper,
                     # inside the range, the reported text is the rounded number itself
                     "reported_rounded": None if reported is None else (
