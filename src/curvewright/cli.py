@@ -1138,7 +1138,7 @@ def summary_text(  # type: ignore[no-untyped-def]
         rule = run.settings.rounding
         if a.reporting is not None:
             rr = a.reporting
-            lines.append(f"  calibrated range {rr.lloq:g}–{rr.uloq:g}{in_unit} (LLOQ–ULOQ); reporting limit "
+            lines.append(f"  calibrated range {full_number(rr.lloq)}–{full_number(rr.uloq)}{in_unit} (LLOQ–ULOQ); reporting limit "
                          f"{rr.reporting_limit:.4g}{in_unit} ({rr.basis}): {rr.note}")
             if rr.narrowing:
                 lines.append(f"  RANGE NARROWED from the standards' {full_number(rr.standards_range[0])}–{full_number(rr.standards_range[1])}"
