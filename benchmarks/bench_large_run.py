@@ -161,7 +161,10 @@ def main() -> None:
         order = {row["id"]: row for row in rows}
         ids = [f"LWL-{i + 1:07d}" for i in range(unknowns)]
         engine = calibration.quantify(responses, level=data["confidence_level"])
-        for name, column in (("estimate", engine.estimate), ("lower", engine.lower), ("upper", engine.upper)):
+        # no dilution: the reported scale is the measured one, each field beside its own
+        for name, column in (("estimate", engine.estimate), ("standard_error", engine.standard_error),
+                             ("lower", engine.lower), ("upper", engine.upper), ("reported", engine.estimate),
+                             ("reported_standard_error", engine.standard_error)):
             theirs = np.array([np.nan if order[i][name] is None else order[i][name] for i in ids], dtype=float)
             both = np.isfinite(theirs) & np.isfinite(column)
             assert np.array_equal(np.isfinite(theirs), np.isfinite(column)), name

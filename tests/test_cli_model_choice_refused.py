@@ -39,7 +39,7 @@ def test_no_candidate_acceptable_recommends_nothing_and_quantify_refuses(tmp_pat
     std = write(tmp_path / "k_std.csv", ["Concentration,Response", *[f"{c},{r}" for c, r in K]])
     smp = write(tmp_path / "k_smp.csv", ["Sample,Response", "K-1,140", "K-2,90"])
     out = run_cli("compare", "--standards", str(std), "--analyte", "k")
-    assert out.returncode == 0, out.stderr
+    assert out.returncode == 1, out.stderr  # nothing recommended: a result for the analyst, not a usage error
     assert "recommended: none — no candidate is acceptable" in out.stdout
     assert "recommended: linear" not in out.stdout
     assert "no candidate is acceptable, so none is recommended: the straight line" in out.stdout

@@ -58,6 +58,7 @@ def reference_row(rounding, s) -> dict:  # type: ignore[no-untyped-def]
         "id": s.sample_id, "kind": s.kind.value, "run_order": s.run_order, "replicates": len(s.replicate_responses),
         "mean_response": s.mean_response, "estimate": s.estimate, "standard_error": s.standard_error,
         "lower": s.lower, "upper": s.upper, "dilution_factor": s.dilution_factor, "reported": s.reported,
+        "reported_standard_error": s.reported_standard_error,
         "reported_lower": s.reported_lower, "reported_upper": s.reported_upper,
         "reported_rounded": None if s.reported is None else rounding.text_within(s.reported, s.reported_lower,
                                                                                   s.reported_upper),

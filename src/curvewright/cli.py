@@ -90,7 +90,8 @@ exit codes:
   0  completed; every run accepted and its record intact (check: valid, the record intact)
   1  completed, but a run failed its acceptance profile or the run's record is not intact
      (its data changed outside Curvewright, its audit trail altered, a signature lost or not
-     holding: the problems check reports, and check exits 1)
+     holding: the problems check reports, and check exits 1); compare: for an analyte no
+     candidate is acceptable, so no model is recommended (the evidence says why)
   2  input error (the message names the file, row and field); with tables also when sample
      readings could not be read: the rest is still quantified and reported, the cells are listed,
      and --allow-unreadable accepts them
@@ -1146,7 +1147,7 @@ def summary_text(  # type: ignore[no-untyped-def]
         rule = run.settings.rounding
         if a.reporting is not None:
             rr = a.reporting
-            lines.append(f"  calibrated range {rr.lloq:g}–{rr.uloq:g}{in_unit} (LLOQ–ULOQ); reporting limit "
+            lines.append(f"  calibrated range {full_number(rr.lloq)}–{full_number(rr.uloq)}{in_unit} (LLOQ–ULOQ); reporting limit "
                          f"{rr.reporting_limit:.4g}{in_unit} ({rr.basis}): {rr.note}")
             if rr.narrowing:
                 lines.append(f"  RANGE NARROWED from the standards' {full_number(rr.standards_range[0])}–{full_number(rr.standards_range[1])}"
@@ -1351,10 +1352,11 @@ class _SampleRows:
                     reported = None if estimate is None else estimate * df
                     se = None if se != se else se
                     low, high = (None if low != low else low), (None if high != high else high)
+                    reported_se = None if se is None else se * df
                     reported_lower = None if low is None else low * df
                     reported_upper = None if high is None else high * df
                 else:
-                    mean = estimate = se = low = high = reported = reported_lower = reported_upper = None
+                    mean = estimate = se = low = high = reported = reported_se = reported_lower = reported_upper = None
                 flag_names = names.get(bits)
                 if flag_names is None:
                     flag_names = names[bits] = list(_flag_names(bits))
@@ -1362,6 +1364,7 @@ class _SampleRows:
                     "id": sid, "kind": words_of[kind], "run_order": order, "replicates": count,
                     "mean_response": mean, "estimate": estimate, "standard_error": se,
                     "lower": low, "upper": high, "dilution_factor": df, "reported": reported,
+                    "reported_standard_error": reported_se,
                     "reported_lower": reported_lower, "reported_upper": reported_upper,
                     # inside the range, the reported text is the rounded number itself
                     "reported_rounded": None if reported is None else (
@@ -1428,7 +1431,8 @@ def cmd_compare(args: argparse.Namespace) -> int:
         if not args.json:
             for note in tables.notes:
                 print(note)
-        _print_evidence(run, analyse_run(run), args.json, payload, choices)
+        if _print_evidence(run, analyse_run(run), args.json, payload, choices):
+            code = EXIT_REJECTED
     else:
         if not args.runs:
             raise InputError("give a run document, or a standards table with --standards FILE; see curvewright compare --help.")
@@ -1445,7 +1449,8 @@ def cmd_compare(args: argparse.Namespace) -> int:
                 print(f"curvewright: {path}: {exc}", file=sys.stderr)
                 code = EXIT_INPUT
                 continue
-            _print_evidence(run, result, args.json, payload, None)
+            if _print_evidence(run, result, args.json, payload, None):
+                code = max(code, EXIT_REJECTED)
     if args.json:
         print(json.dumps(payload, indent=1, ensure_ascii=False, allow_nan=False))
     else:
@@ -1454,11 +1459,18 @@ def cmd_compare(args: argparse.Namespace) -> int:
 
 
 def _print_evidence(run, result, as_json: bool, payload: list[dict[str, Any]],  # type: ignore[no-untyped-def]
-                    choices: Mapping[str, ModelChoice] | None) -> None:
-    """Print (or add to ``payload``) the evidence table of each analyte; ``choices`` for a table's recommendation."""
+                    choices: Mapping[str, ModelChoice] | None) -> bool:
+    """Print (or add to ``payload``) the evidence table of each analyte; ``choices`` for a table's recommendation.
+    True when the comparison of an analyte recommends no model (no candidate is acceptable): ``compare``
+    then ends with exit code 1, a result that needs the analyst's decision."""
+    from .core.comparison import ModelComparison
     from .io.report import evidence_table
 
+    nothing_recommended = False
     for a in result.analytes:
+        comparison = result.evidence.get(a.analyte.name)
+        if isinstance(comparison, ModelComparison) and comparison.recommendation is None:
+            nothing_recommended = True
         table, reasons = evidence_table(result, a)
         choice = (choices or {}).get(a.analyte.name)
         if choice is not None:  # a table holds no choice of its own: show the evidence and the recommendation
@@ -1485,6 +1497,7 @@ def _print_evidence(run, result, as_json: bool, payload: list[dict[str, Any]],  
         for r in reasons:
             print(f"  • {r}")
         print()
+    return nothing_recommended
 
 
 def _text_table(table) -> str:  # type: ignore[no-untyped-def]

@@ -137,7 +137,8 @@ TEXTS: dict[tuple[str, ...], str] = {
         '  0  completed; every run accepted and its record intact (check: valid, the record intact)\n'
         "  1  completed, but a run failed its acceptance profile or the run's record is not intact\n"
         '     (its data changed outside Curvewright, its audit trail altered, a signature lost or not\n'
-        '     holding: the problems check reports, and check exits 1)\n'
+        '     holding: the problems check reports, and check exits 1); compare: for an analyte no\n'
+        '     candidate is acceptable, so no model is recommended (the evidence says why)\n'
         '  2  input error (the message names the file, row and field); with tables also when sample\n'
         '     readings could not be read: the rest is still quantified and reported, the cells are listed,\n'
         '     and --allow-unreadable accepts them\n'
@@ -251,7 +252,8 @@ TEXTS: dict[tuple[str, ...], str] = {
         '  0  completed; every run accepted and its record intact (check: valid, the record intact)\n'
         "  1  completed, but a run failed its acceptance profile or the run's record is not intact\n"
         '     (its data changed outside Curvewright, its audit trail altered, a signature lost or not\n'
-        '     holding: the problems check reports, and check exits 1)\n'
+        '     holding: the problems check reports, and check exits 1); compare: for an analyte no\n'
+        '     candidate is acceptable, so no model is recommended (the evidence says why)\n'
         '  2  input error (the message names the file, row and field); with tables also when sample\n'
         '     readings could not be read: the rest is still quantified and reported, the cells are listed,\n'
         '     and --allow-unreadable accepts them\n'
@@ -323,7 +325,8 @@ TEXTS: dict[tuple[str, ...], str] = {
         '  0  completed; every run accepted and its record intact (check: valid, the record intact)\n'
         "  1  completed, but a run failed its acceptance profile or the run's record is not intact\n"
         '     (its data changed outside Curvewright, its audit trail altered, a signature lost or not\n'
-        '     holding: the problems check reports, and check exits 1)\n'
+        '     holding: the problems check reports, and check exits 1); compare: for an analyte no\n'
+        '     candidate is acceptable, so no model is recommended (the evidence says why)\n'
         '  2  input error (the message names the file, row and field); with tables also when sample\n'
         '     readings could not be read: the rest is still quantified and reported, the cells are listed,\n'
         '     and --allow-unreadable accepts them\n'

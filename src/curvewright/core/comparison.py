@@ -24,7 +24,9 @@ How the recommendation is reached (the simplest adequate model):
    favours 1/x² even for constant variance (Tellinghuisen 2007, Analyst 132:536).
 2. Model, under each weighting: the straight line unless its lack-of-fit test (p < 0.05) or
    Mandel's test (p < 0.01) rejects it, and then the quadratic only if it does not turn over
-   inside the calibrated range.
+   inside the calibrated range and its own lack-of-fit test (p < 0.05) does not reject it. When
+   neither may be used and no curve of steps 4 and 5 replaces them, nothing is recommended
+   (``ModelComparison.no_recommendation`` says why).
 3. Among weightings, when weighting is needed: the fixed weighting in concentration whose assumed
    power of the mean (1/x²: SD ∝ mean, 1/x: SD ∝ √mean) lies in the 95 % interval of the fitted
    power; else the fitted variance function itself; else a 1/y-type weighting that matches; and
@@ -200,7 +202,8 @@ class ModelComparison:
     no_recommendation: str = ""
     """Why no candidate is acceptable, when none is (empty otherwise): the straight line is rejected by
     its lack-of-fit or Mandel's test and no other candidate replaces it (the quadratic turns over
-    inside the range or could not be fitted), or no candidate shows a significant regression.
+    inside the range, could not be fitted, or is rejected by its own lack-of-fit test), or no
+    candidate shows a significant regression.
     ``recommended`` then holds the candidate the evidence shows first, which is not a recommendation."""
 
     @property
@@ -370,7 +373,7 @@ def compare(
         )
         if rules.curve is not None:
             recommended, reasons = _under_curve_rules(candidates, skipped, recommended, reasons, rules)
-        refused = _rejected(recommended)
+        refused = _rejected(recommended, candidates)
         if refused:
             reasons = [f"no candidate is acceptable, so none is recommended: {refused}"] + list(reasons)
     if anchors.any():
@@ -388,23 +391,41 @@ def compare(
     )
 
 
-def _rejected(chosen: Candidate) -> str:
-    """Why ``chosen`` may not be recommended: a straight line its own lack-of-fit test (p < 0.05) or
-    Mandel's test (p < 0.01) rejects, left as the choice only because no quadratic could replace it
-    (:func:`_model_for`); empty when it may."""
-    if chosen.model is not Model.LINEAR:
+def _rejected(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:
+    """Why ``chosen`` may not be recommended, empty when it may. A straight line or a quadratic is
+    rejected by its own lack-of-fit test (p < 0.05), and a straight line also by Mandel's test
+    (p < 0.01): such a polynomial is left as the choice only because no other candidate replaces it
+    (:func:`_model_for`, :func:`_consider_curves`)."""
+    if chosen.model is Model.LINEAR:
+        tests = _line_rejected_by(chosen)
+        if not tests:
+            return ""
+        return (f"the straight line ({chosen.weighting.description}) is rejected by {tests}, and no quadratic can "
+                "replace it (it turns over inside the calibrated range, or could not be fitted); narrow the range "
+                "or check the standards, or choose a model yourself with a recorded reason")
+    if chosen.model is not Model.QUADRATIC:
         return ""
     lof = chosen.calibration.lack_of_fit
+    if not lof.significant(LACK_OF_FIT_ALPHA):
+        return ""
+    line = next((c for c in candidates if c.model is Model.LINEAR and c.weighting is chosen.weighting), None)
+    line_tests = _line_rejected_by(line) if line is not None else ""
+    line_words = (f"the straight line is rejected by {line_tests}" if line_tests
+                  else "the straight line could not be fitted")
+    return (f"the quadratic ({chosen.weighting.description}) is rejected by its lack-of-fit test (p = {lof.p_value:.3g}) "
+            f"and {line_words}: neither model follows the data; narrow the range or check the standards, or choose "
+            "a model yourself with a recorded reason")
+
+
+def _line_rejected_by(line: Candidate) -> str:
+    """The tests that reject the straight line ``line``, in words ("" when none does)."""
+    lof = line.calibration.lack_of_fit
     tests = []
     if lof.significant(LACK_OF_FIT_ALPHA):
         tests.append(f"its lack-of-fit test (p = {lof.p_value:.3g})")
-    if chosen.mandel is not None and chosen.mandel.significant:
-        tests.append(f"Mandel's test (p = {chosen.mandel.p_value:.3g})")
-    if not tests:
-        return ""
-    return (f"the straight line ({chosen.weighting.description}) is rejected by {' and '.join(tests)}, and no "
-            "quadratic can replace it (it turns over inside the calibrated range, or could not be fitted); narrow "
-            "the range or check the standards, or choose a model yourself with a recorded reason")
+    if line.mandel is not None and line.mandel.significant:
+        tests.append(f"Mandel's test (p = {line.mandel.p_value:.3g})")
+    return " and ".join(tests)
 
 
 def mandel_test(linear: Calibration, quadratic: Calibration) -> MandelTest:
@@ -498,9 +519,10 @@ def _model_for(
     q_lof = quadratic.calibration.lack_of_fit
     if q_lof.available and q_lof.significant(LACK_OF_FIT_ALPHA):
         reasons.append(
-            f"the quadratic also lacks fit (p = {q_lof.p_value:.3g}); neither model follows the data — "
-            "check the standards or narrow the range"
+            f"the straight line is rejected, and the quadratic also lacks fit (p = {q_lof.p_value:.3g}), so it "
+            "cannot replace it; neither model follows the data — check the standards or narrow the range"
         )
+        return quadratic, reasons
     reasons.append("the straight line is rejected, so the quadratic is recommended")
     return quadratic, reasons
 
@@ -609,7 +631,8 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
                 w = min(fitting, key=lambda v: abs(IMPLIED_POWER.get(v, theta) - theta))
                 if w in IMPLIED_POWER:
                     return choices[w], f"{shape}, which {w.value} weights (θ = {IMPLIED_POWER[w]:g}) match"
-                return choices[w], f"{shape}; no fixed weighting matches, so the weights follow a variance function fitted to all standards ({w.value})"
+                return choices[w], (f"{shape}; no fixed weighting matches, so the weights follow a variance function "
+                                    f"fitted to all standards ({w.value}): {_weights_use(choices[w], theta)}")
     weighted = list(choices.values())
     best = min(c.sum_abs_relative_error for c in weighted)
     tied = [c for c in weighted if c.sum_abs_relative_error <= best * (1 + TIE_FRACTION) + 1e-12]
@@ -620,6 +643,24 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
         if len(tied) == 1
         else f"{chosen.weighting.value} is the simplest within {TIE_FRACTION:.0%} of the smallest sum of absolute relative errors"
     )
+
+
+def _weights_use(chosen: Candidate, evidence_theta: float) -> str:
+    """The variance function ``chosen``'s weights use, told apart from the replicate evidence's θ
+    (``evidence_theta``): the evidence fits SD ∝ mean^θ to the replicates' scatter about their level
+    means (:mod:`.variance`), the weights fit it to the residuals of all standards about the curve
+    (:mod:`.variance_function`), so the two estimates differ a little."""
+    fitted = chosen.calibration.weight_model.variance_fit
+    name = _SHORT_NAMES.get(chosen.model, f"the {chosen.model.value}").split(" ", 1)[1]
+    if fitted is None:
+        return f"the {name}'s weights hold no fitted variance function"
+    function = fitted.function
+    if function.kind == "power":
+        return (f"the {name}'s weights use θ = {function.parameter:.3g}, fitted to the residuals of all standards "
+                f"about the curve; θ = {evidence_theta:.2f} is the replicate evidence's estimate, fitted to the "
+                "replicates' scatter about their level means")
+    return (f"the {name}'s weights use SD² = a² + b²·(mean response)² with a/b = {function.parameter:.4g}, fitted "
+            "to the residuals of all standards about the curve")
 
 
 def _anchor_mask(anchor_points: Sequence[bool] | None, n: int) -> np.ndarray:

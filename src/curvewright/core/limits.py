@@ -24,6 +24,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from .values import frozen_value
+from .number_words import full_number
 from ._arrays import as_whole_count
 from .errors import LimitsError
 from .models import Model
@@ -95,7 +96,7 @@ def detection_limits(
             y_low = float(cal.predict(x_low)) if cal.weighting in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2) else x_low
             weight = float(cal.weight_model.weight_at(np.array(x_low), np.array(y_low)))
             sigma = cal.residual_sd / np.sqrt(weight)
-            sigma_words = f"residual SD at the lowest standard ({x_low:g}) under {cal.weighting.value} weighting"
+            sigma_words = f"residual SD at the lowest standard ({full_number(x_low)}) under {cal.weighting.value} weighting"
     lod = 3.3 * sigma / abs(slope)
     loq = 10.0 * sigma / abs(slope)
     return DetectionLimits(

@@ -37,6 +37,7 @@ from typing import Callable, Iterator, Sequence
 import numpy as np
 
 from .values import frozen_value
+from .number_words import full_number
 from .inverse import QuantFlag
 from .rounding import RoundingRule
 
@@ -145,15 +146,15 @@ def reporting_range(concentrations: object, lod: float | None, loq: float | None
     lowest = "lowest passing standard" if standards_range and lloq != standards_range[0] else "lowest standard"
     if loq is not None and math.isfinite(loq) and loq > lloq:
         return ReportingRange(lloq, uloq, lod, loq, loq, "LOQ",
-                              f"the computed LOQ ({loq:.4g}{u}) lies above the {lowest} ({lloq:g}{u}): the "
+                              f"the computed LOQ ({loq:.4g}{u}) lies above the {lowest} ({full_number(lloq)}{u}): the "
                               "reporting limit is the LOQ, and results between them are below it",
                               narrowing, standards_range, critical_value)
     if critical_value is not None and math.isfinite(critical_value) and critical_value > lloq:
         return ReportingRange(lloq, uloq, lod, loq, critical_value, "x_c",
                               f"the critical value x_c ({critical_value:.4g}{u}, ISO 11843-2) lies above the {lowest} "
-                              f"({lloq:g}{u}): a result below it is not detected, so the reporting limit is x_c",
+                              f"({full_number(lloq)}{u}): a result below it is not detected, so the reporting limit is x_c",
                               narrowing, standards_range, critical_value)
-    note = (f"the computed LOQ ({loq:.4g}{u}) lies below the {lowest} ({lloq:g}{u}): the reporting limit is "
+    note = (f"the computed LOQ ({loq:.4g}{u}) lies below the {lowest} ({full_number(lloq)}{u}): the reporting limit is "
             f"the LLOQ, the {lowest}" if loq is not None and math.isfinite(loq)
             else f"the reporting limit is the LLOQ, the {lowest} (no LOQ was computed)")
     return ReportingRange(lloq, uloq, lod, loq, lloq, "LLOQ", note, narrowing, standards_range, critical_value)

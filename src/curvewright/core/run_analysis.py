@@ -45,7 +45,10 @@ if TYPE_CHECKING:  # pragma: no cover
 
 @frozen_value
 class SampleResult:
-    """One sample × analyte. Concentrations in the analyte's unit; ``reported_*`` after dilution.
+    """One sample × analyte. Concentrations in the analyte's unit. ``estimate``, ``standard_error``,
+    ``lower`` and ``upper`` are in the solution measured (read from the curve); ``reported``,
+    ``reported_standard_error``, ``reported_lower`` and ``reported_upper`` are each of them times the
+    dilution factor, in the sample as received.
 
     ``reported`` is the number (estimate × dilution factor), kept for the reviewer whatever is
     reported; ``reported_text`` is what stands for the result ("12.3", "< 1.00 ng/mL (LLOQ)", "> 1000
@@ -80,6 +83,11 @@ class SampleResult:
     short: str = ""
     suggested_dilution: float | None = None
     """For a result above the range: the total dilution factor for a re-assay in mid-range."""
+
+    @property
+    def reported_standard_error(self) -> float | None:
+        """The standard error of ``reported``: ``standard_error`` × dilution factor (concentration units)."""
+        return None if self.standard_error is None else self.standard_error * self.dilution_factor
 
     @property
     def flag_words(self) -> str:

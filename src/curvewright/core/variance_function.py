@@ -92,10 +92,12 @@ class VarianceFunction:
     @property
     def words(self) -> str:
         if self.kind == "power":
-            return f"SD ∝ (mean response)^θ with θ = {self.parameter:.3g}, fitted to all standards"
+            return (f"SD ∝ (mean response)^θ with θ = {self.parameter:.3g}, the θ the weights use, fitted to the "
+                    "residuals of all standards")
         return (
             f"SD² = a² + b²·(mean response)² with a/b = {self.parameter:.4g} (the response at which the "
-            "constant and the proportional parts are equal), fitted to all standards"
+            "constant and the proportional parts are equal), the a/b the weights use, fitted to the residuals "
+            "of all standards"
         )
 
 

@@ -59,9 +59,12 @@ def response_factor_json(cal: FittedCurve, uses_internal_standard: bool) -> dict
 
 
 def curve_words(cal: FittedCurve, uses_internal_standard: bool) -> str:
-    """The calibration in one line for the app: model, equation, each parameter with its standard error, and
+    """The calibration in one line for the app: model, weighting (with the variance function its weights
+    use, when they are estimated from all standards), equation, each parameter with its standard error, and
     the model's own diagnostic (the RF %RSD for the average response factor, R² otherwise)."""
-    parts = [f"{cal.model.description}, {cal.weighting.description}: {cal.equation(6)}"]
+    fitted = cal.weight_model.variance_fit
+    weights = cal.weighting.description + (f" ({fitted.function.words})" if fitted is not None else "")
+    parts = [f"{cal.model.description}, {weights}: {cal.equation(6)}"]
     rf = cal.response_factors
     if rf is not None:
         short = "RRF" if uses_internal_standard else "RF"

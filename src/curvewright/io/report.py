@@ -14,7 +14,7 @@ words, the formulas' sources and the caution.
 from __future__ import annotations
 
 import hashlib
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from datetime import datetime, timezone
 
 from ..core.level_text import percent_label
@@ -306,9 +306,8 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
                                  "with the outlier and influence limits the flags use; flagged standards labelled."))
     calibration = calibration_table(a, result)
     if a.calibration is not None:  # six significant figures here; every digit in the appendix and the workbook
-        calibration = Table(calibration.title, calibration.columns,
-                            tuple(("Equation", a.calibration.equation(6), None) if row[0] == "Equation" else row
-                                  for row in calibration.rows), calibration.rounding)
+        calibration = replace(calibration, rows=tuple(("Equation", a.calibration.equation(6), None)
+                                                      if row[0] == "Equation" else row for row in calibration.rows))
     blocks.append(printed(calibration, rule))
     table, reasons = evidence_table(result, a)
     blocks.append(_evidence_printed(table, rule))

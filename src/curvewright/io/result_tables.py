@@ -50,8 +50,10 @@ class Column:
     ``"beside:KIND:N:CENTRE:WINDOW"`` (a recovery or %RE judged within CENTRE ± window: ``"KIND:N"``
     (``dec`` or ``signed``), with more decimals where N would show it on or across a limit
     (:func:`~curvewright.core.limit_digits.decimals_beside_limits`); WINDOW is the column holding
-    the row's window, or ``@NAME``: the table's window for the row's value in column NAME). Unsettled,
-    they show six significant figures (``"beside:"``: its usual decimals). The workbook keeps every number at full precision and only
+    the row's window, or ``@NAME``: the table's window for the row's value in column NAME) and
+    ``"item:NAME"`` (``"full"`` for a row whose item, in column NAME, is one of the table's ``entered``
+    items, a value a person entered such as a calibrated range's end; ``"plain"`` otherwise). Unsettled,
+    they show six significant figures (``"beside:"``: its usual decimals; ``"item:"``: ``"plain"``). The workbook keeps every number at full precision and only
     formats it so; the printed record prints it so.
     """
 
@@ -141,6 +143,7 @@ class Table:
     rows: tuple[tuple[Value, ...], ...]
     rounding: RoundingRule | None = None
     windows: tuple[tuple[str, float], ...] = ()  # for a "beside:...:@NAME" column: the window by the value in NAME
+    entered: tuple[str, ...] = ()  # for an "item:NAME" column: the items whose value was entered, shown in full
 
     def select(self, names: tuple[str, ...], title: str | None = None, where: tuple[str, Value] | None = None) -> "Table":
         """The named columns only (in that order), optionally only rows whose column ``where[0]`` equals ``where[1]``."""
@@ -152,7 +155,8 @@ class Table:
         if where is not None:
             rows = tuple(r for r in rows if r[index[where[0]]] == where[1])
         return Table(title or self.title, tuple(self.columns[index[n]] for n in names),
-                     tuple(tuple(r[index[n]] for n in names) for r in rows), self.rounding, self.windows)
+                     tuple(tuple(r[index[n]] for n in names) for r in rows), self.rounding, self.windows,
+                     self.entered)
 
     def columns_for(self, row: tuple[Value, ...]) -> tuple[Column, ...]:
         """The columns as they show the numbers of ``row``: a display that depends on the row (see
@@ -178,6 +182,8 @@ class Table:
                 display = self._within(row[j], lower, upper, row[source] if source is not None and source >= 0 else 1.0)
             elif kind == "beside":
                 display = self._beside(self.columns[j].display, row[j], row, source)
+            elif kind == "item":
+                display = "full" if source >= 0 and row[source] in self.entered else "plain"
             else:
                 places = entered_decimals(row[source]) if source >= 0 else None
                 display = "sig:6" if places is None else f"dec:{places}"
@@ -236,6 +242,8 @@ class Table:
             elif c.display.startswith("beside:"):
                 name = c.display.split(":", 4)[4]
                 dependent.append((j, "beside", (index.get(name.lstrip("@"), -1), name.startswith("@"))))
+            elif c.display.startswith("item:"):
+                dependent.append((j, "item", index.get(c.display.partition(":")[2], -1)))
         if not dependent:
             return None
         ends = [j for j, kind, _ in dependent if kind == "interval"]
@@ -387,6 +395,12 @@ def checks_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table:
     return Table(f"Calibration checks – {a.analyte.name}", columns, rows, rule)
 
 
+_CALIBRATION_COLUMNS = (Column("Item"), Column("Value", display="item:Item"), Column("Standard error", display="sig:3"))
+"""The calibration table's columns: a value that is a standard's concentration as entered (the table's
+``entered`` items) is shown in full (:func:`~curvewright.core.number_words.full_number`), as the
+standards table shows it; every other value to six significant figures at most."""
+
+
 def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     """Key–value rows describing one analyte's calibration."""
     cal = a.calibration
@@ -407,7 +421,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     ]
     if cal is None:
         rows.append(("Calibration", a.not_fitted_words, None))
-        return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value", display="plain"), Column("Standard error", display="sig:3")), tuple(rows))
+        return Table(f"Calibration – {an.name}", _CALIBRATION_COLUMNS, tuple(rows))
     rows.append(("Equation", cal.equation(12), None))
     names = cal.coefficient_names
     for power, (name, words, b, se) in enumerate(zip(names, cal.coefficient_descriptions, cal.coefficients,
@@ -435,12 +449,17 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     mandel = _mandel(cal)
     rows.append(("Mandel's test PG (ISO 8466-1)", mandel[0], None))
     rows.append(("Mandel's test p", mandel[1], None))
+    entered: list[str] = []  # the items whose value is a standard's concentration as entered
     if a.reporting is not None:
         narrowed = a.reporting.narrowing
-        rows += [("Calibrated range, LLOQ (lowest passing non-zero standard)" if narrowed else
-                  "Calibrated range, LLOQ (lowest non-zero standard)", a.reporting.lloq, None),
-                 ("Calibrated range, ULOQ (highest passing standard)" if narrowed else
-                  "Calibrated range, ULOQ (highest standard)", a.reporting.uloq, None)]
+        ends = [("Calibrated range, LLOQ (lowest passing non-zero standard)" if narrowed else
+                 "Calibrated range, LLOQ (lowest non-zero standard)", a.reporting.lloq, None),
+                ("Calibrated range, ULOQ (highest passing standard)" if narrowed else
+                 "Calibrated range, ULOQ (highest standard)", a.reporting.uloq, None)]
+        rows += ends
+        entered += [item for item, _, _ in ends]
+        if a.reporting.basis == "LLOQ" and a.reporting.reporting_limit == a.reporting.lloq:
+            entered.append("Reporting limit (LLOQ)")
         if narrowed:
             rows += [("Range of the standards in the fit", f"{full_number(a.reporting.standards_range[0])}–"
                       f"{full_number(a.reporting.standards_range[1])}", None),
@@ -485,16 +504,19 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         rows.append(("Calibration check windows, source", result.profile.checks.source, None))
     for u in a.unusable_standards:
         rows.append(("Standard not usable", f"{u.standard_id}: {u.reason}", None))
-    return Table(f"Calibration – {an.name}", (Column("Item"), Column("Value", display="plain"), Column("Standard error", display="sig:3")), tuple(rows))
+    return Table(f"Calibration – {an.name}", _CALIBRATION_COLUMNS, tuple(rows), entered=tuple(entered))
 
 
 def rule_departures(a: AnalyteResult, rule: RoundingRule) -> tuple[str, ...]:
-    """The samples of ``a`` whose reported value is shown to its interval's decimal place rather than by
-    ``rule`` (:meth:`.RoundingRule.places_within`), each named once."""
+    """The samples of ``a`` whose reported value is shown otherwise than ``rule`` shows it, because the
+    rule would show it more coarsely than its interval supports (:meth:`.RoundingRule.text_within`),
+    each named once. A value whose text is the same either way ("370" by three significant figures and
+    at the unit place of its interval) is not named: what it shows is the rule's."""
     out: list[str] = []
     for s in a.samples:
-        if s.reported is not None and s.sample_id not in out and \
-                rule.places_within(s.reported, s.reported_lower, s.reported_upper) is not None:
+        if s.reported is None or s.sample_id in out:
+            continue
+        if rule.text_within(s.reported, s.reported_lower, s.reported_upper) != rule.text(s.reported):
             out.append(s.sample_id)
     return tuple(out)
 
@@ -785,6 +807,8 @@ def _unsettled(display: str) -> str:
     """A ``"within"`` display not settled by its row (see :meth:`Table.columns_for`) shows as ``"rule"``."""
     if display.startswith("beside:"):
         return ":".join(display.split(":", 4)[1:3])
+    if display.startswith("item:"):
+        return "plain"
     return "rule" if display == "within" or display.startswith("within:") else display
 
 
