@@ -128,7 +128,12 @@ def test_no_button_check_box_label_or_combo_box_is_cut(laptop_window, qtbot) -> 
     window = laptop_window
     window.left_tabs.setCurrentIndex(0)
     window.standards_view.selectRow(0)  # the buttons then name the standard they act on
-    qtbot.wait(20)
+    # the rows of options are laid out again once Qt has handled the longer texts' layout requests; on a
+    # busy machine that takes more than a few milliseconds: wait for it (as a person's eye does) up to 3 s
+    try:
+        qtbot.waitUntil(lambda: not cut_texts(window), timeout=3000)
+    except qtbot.TimeoutError:
+        pass
     assert cut_texts(window) == []
 
 
