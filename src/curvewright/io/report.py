@@ -259,8 +259,9 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
     blocks.append(Paragraph(f"Content SHA-256: {content_sha256(run)}. Audit trail ({len(trail)} entries): {claim}",
                             "small"))
     checks = check_signatures(run)
-    if checks:
-        blocks.append(PrintedTable("Signatures", SIGNATURE_COLUMNS, signature_rows(checks),
+    signature_table = signature_rows(checks, run)
+    if signature_table:
+        blocks.append(PrintedTable("Signatures", SIGNATURE_COLUMNS, signature_table,
                                    (False, False, False, False, False)))
         several = people_in_several_roles(run)
         if several:

@@ -563,11 +563,16 @@ def signatures_table(result: RunResult) -> Table:
     """The run's signatures and withdrawals: who, role, meaning, when, keyed or not, and whether each holds."""
     from .signatures import check_signatures, fingerprint
 
+    from .audit import recorded_signatures
+
     rows = tuple(
         (c.signature.role, c.signature.name, c.signature.person_id, c.signature.time_utc, c.signature.meaning,
          fingerprint(c.signature.public_key) if c.signature.public_key else "not keyed",
          "holds" if c.holds else "does NOT hold", c.words)
         for c in check_signatures(result.run)
+    ) + tuple(
+        (r.role, r.name, r.person_id, r.time_utc, r.meaning, "", "NOT in the file", r.removed_words)
+        for r in recorded_signatures(result.run) if not r.held
     )
     columns = (Column("Role"), Column("Name"), Column("ID"), Column("Time (UTC)"), Column("Meaning"),
                Column("Key fingerprint"), Column("Check"), Column("What was checked"))
@@ -601,16 +606,22 @@ def analysts_of(result: RunResult) -> tuple[str, ...]:
 
 def signers_of(result: RunResult, role: str) -> tuple[str, ...]:
     """The people who signed the run in ``role`` ("reviewer", "approver"), in the order they signed,
-    as the audit trail names them; an approval withdrawn later says so."""
+    as the audit trail names them (:func:`.audit.recorded_signatures`); an approval withdrawn later
+    says so, and a signature the file no longer holds says that instead of "signed"."""
+    from .audit import recorded_signatures
     from .audit_words import who, when
 
     trail = result.run.audit
     named: list[str] = []
-    for i, e in enumerate(trail):
-        if e.action != "signed" or e.details.get("role") != role:
+    for r in recorded_signatures(result.run):
+        if r.role != role:
+            continue
+        e = trail[r.entry - 1]
+        if not r.held:
+            named.append(f"{who(e)}: NOT signed — {r.removed_words}")
             continue
         words = f"{who(e)}, signed {when(e)}"
-        withdrawn = next((w for w in trail[i + 1:] if w.action == "approval_withdrawn"), None)
+        withdrawn = next((w for w in trail[r.entry:] if w.action == "approval_withdrawn"), None)
         if role == "approver" and withdrawn is not None:
             words += f" (approval withdrawn {when(withdrawn)} by {who(withdrawn)})"
         named.append(words)
@@ -730,7 +741,7 @@ def all_tables(result: RunResult) -> tuple[Table, ...]:
             from .model_outputs import additions_table
 
             tables.append(additions_table(a, result.run.settings.confidence_level))
-    if result.run.signatures:
+    if result.run.signatures or any(e.action in ("signed", "approval_withdrawn") for e in result.run.audit):
         tables.append(signatures_table(result))
     tables.append(audit_table(result))
     return tuple(tables)
