@@ -141,6 +141,8 @@ class Table:
     rows: tuple[tuple[Value, ...], ...]
     rounding: RoundingRule | None = None
     windows: tuple[tuple[str, float], ...] = ()  # for a "beside:...:@NAME" column: the window by the value in NAME
+    notice: str = ""
+    """What a reader must not miss about the whole table (a record that is not intact), beside its title."""
 
     def select(self, names: tuple[str, ...], title: str | None = None, where: tuple[str, Value] | None = None) -> "Table":
         """The named columns only (in that order), optionally only rows whose column ``where[0]`` equals ``where[1]``."""
@@ -653,13 +655,17 @@ def run_information_table(result: RunResult) -> Table:
     """The run's identity, verdict, interval method, content hash and what the audit trail shows."""
     from .integrity import content_sha256
 
+    from .record_check import not_intact_notice, record_problems
+
     _, claim = chain_claim(result.run)
+    notice = not_intact_notice(record_problems(result.run))
     rows: list[tuple[Value, ...]] = [(item, value) for item, value in run_identity(result)]
     if result.method is not None:
         rows.append(("Method content SHA-256", result.method.sha256))
     rows.append(("Acceptance profile rules SHA-256", result.profile.sha256))
     rows += [
         ("Run verdict", "ACCEPTED" if result.accepted else "NOT ACCEPTED"),
+        *((("Record", notice),) if notice else ()),
         *(("Reason", r) for r in result.reasons),
         ("Intervals", interval_words(result)),
         ("Between the LOD and the reporting limit", BELOW_LIMIT_WORDS[result.profile.reporting.between_lod_and_reporting_limit]),
@@ -668,7 +674,7 @@ def run_information_table(result: RunResult) -> Table:
     ]
     if result.run.description:
         rows.insert(1, ("Description", result.run.description))
-    return Table("Run information", (Column("Item"), Column("Value")), tuple(rows))
+    return Table("Run information", (Column("Item"), Column("Value")), tuple(rows), notice=notice)
 
 
 def result_counts(a: AnalyteResult) -> tuple[int, int]:
