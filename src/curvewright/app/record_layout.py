@@ -184,10 +184,10 @@ class RecordLayout:
         self.left, self.right = MARGIN_LEFT, PAGE_WIDTH - MARGIN_RIGHT
         self.top, self.bottom = MARGIN_TOP, PAGE_HEIGHT - MARGIN_BOTTOM
         self.width = self.right - self.left
-        self.pages: list[Page] = []
-        self.section = ""
         self.alarm_page: int | None = None
         """The page (1-based) of the first notice that the record is not intact; every footer points there."""
+        self.pages: list[Page] = []
+        self.section = ""
         self._font_style = ""  # the style whose font the painter holds ("" for none)
         self._pen = None  # what the painter's pen is: a text style's colour, or a rule's (colour, width)
         self._fonts: dict[str, QFont] = {}
