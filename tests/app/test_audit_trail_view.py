@@ -64,7 +64,7 @@ def test_the_audit_trail_tab_shows_entries_chain_and_signatures(make_window, qtb
     assert signatures[0][0] == "reviewer" and "Robin Example" in signatures[0][1] and "NOT" not in signatures[0][4]
     # the same rows, in the same words, as the record's pages
     assert view.rows(view.entries) == list(audit_rows(run))
-    assert signatures == list(signature_rows(check_signatures(run)))
+    assert signatures == list(signature_rows(check_signatures(run), run))
     assert view.chain.text() == f"Chain check: {chain_claim(run)[1]}"
     # numbered in order, one row per entry
     assert [r[0] for r in view.rows(view.entries)] == [str(i) for i in range(1, len(run.audit) + 1)]

@@ -48,10 +48,14 @@ class AuditTrailView(QWidget):
         self.chain.setStyleSheet("" if ok else f"color:{NOT_HOLDING}; font-weight:bold;")
         _fill(self.entries, audit_rows(run))
         self.entries.scrollToBottom()
-        checks = check_signatures(run)
-        self.signatures_title.setText(f"Signatures ({len(checks)}):" if checks else "Signatures: none yet.")
-        _fill(self.signatures, signature_rows(checks))
-        self.signatures.setVisible(bool(checks))
+        rows = signature_rows(check_signatures(run), run)
+        removed = len(rows) - len(run.signatures)
+        self.signatures_title.setText(
+            (f"Signatures ({len(rows)}" + (f", {removed} of them NOT in the file" if removed else "") + "):")
+            if rows else "Signatures: none yet.")
+        self.signatures_title.setStyleSheet(f"color:{NOT_HOLDING}; font-weight:bold;" if removed else "")
+        _fill(self.signatures, rows)
+        self.signatures.setVisible(bool(rows))
 
     def rows(self, table: QTableWidget) -> list[tuple[str, ...]]:
         """The texts of a table's rows, as shown."""

@@ -15,7 +15,7 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QDialog, QDialogButtonBox, 
 from ..core.acceptance import available_profiles, load_profile
 from ..core.errors import CurvewrightError
 from ..core.rounding import RoundingRule
-from ..core.run import Analyte, Run, Signature
+from ..core.run import Analyte, Run
 from ..io import run_edits
 from ..io.audit import Identity
 from ..io.importing import ImportResult, import_samples, import_standards
@@ -428,9 +428,9 @@ class SignDialog(QDialog):
     explicit confirmation and a reason too."""
 
     def __init__(self, role: str, signer: str, key_file: str = "", parent: QWidget | None = None, *,
-                 verdict: str = "", accepted: bool | None = None, given: tuple[Signature, ...] = (),
+                 verdict: str = "", accepted: bool | None = None, given: str = "No signatures yet.",
                  also_signed_as: tuple[str, ...] = (), record_problems: tuple[str, ...] = ()) -> None:
-        from ..io.signatures import DEFAULT_MEANINGS, WITHDRAWN
+        from ..io.signatures import DEFAULT_MEANINGS
 
         super().__init__(parent)
         self.setWindowTitle(f"Sign the run as {role}")
@@ -462,10 +462,7 @@ class SignDialog(QDialog):
         self.verdict.setObjectName("sign-verdict")
         self.verdict.setWordWrap(True)
         form.addRow(self.verdict)
-        lines = [(f"{s.role}: {s.name}" + (f" (ID {s.person_id})" if s.person_id else "")
-                  + f", {s.time_utc.replace('T', ' ')[:19]} UTC"
-                  + (f" — {s.meaning}" if s.role == WITHDRAWN else "")) for s in given]
-        self.given = QLabel("Signatures already given:\n" + "\n".join(lines) if lines else "No signatures yet.")
+        self.given = QLabel(given)  # io.signatures.signature_list: held and removed signatures alike
         self.given.setObjectName("sign-given")
         self.given.setWordWrap(True)
         form.addRow(self.given)

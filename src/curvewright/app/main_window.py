@@ -1373,7 +1373,7 @@ class MainWindow(QMainWindow):
             QMessageBox.warning(self, "Sign the run", f"A signature needs your full name: set it under "
                                 f"{PREFERENCES_MENU} (“Your full name”), then sign.")
             return False
-        from ..io.signatures import roles_signed_by
+        from ..io.signatures import roles_signed_by, signature_list
 
         result = self._fresh_result()  # the verdict shown (in the window and the dialog) is that of the run as it is now
         run = self.session.run
@@ -1387,7 +1387,7 @@ class MainWindow(QMainWindow):
         from ..io.record_check import record_problems
 
         dialog = SignDialog(role, person.words, str(self.settings.value("signing/key_file", "") or ""), self,
-                            verdict=verdict, accepted=accepted, given=self.session.run.signatures,
+                            verdict=verdict, accepted=accepted, given=signature_list(self.session.run),
                             also_signed_as=roles_signed_by(self.session.run, person, besides=role),
                             record_problems=record_problems(self.session.run))
         if dialog.exec() != SignDialog.DialogCode.Accepted:

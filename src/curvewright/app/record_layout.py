@@ -53,9 +53,14 @@ STYLES = {
     "table": (7.2, False, "#111111"),
     "table_header": (7.2, True, "#111111"),
     "running": (7.2, False, "#444444"),
+    "alarm": (10.0, True, "#a11b1b"),  # a record that is not intact: the verdict's size and weight, in red
+    "running_alarm": (7.2, True, "#a11b1b"),
 }
 SPACE_BEFORE = {"heading": 2.5, "subheading": 1.8}
-SPACE_AFTER = {"title": 2.5, "heading": 2.0, "subheading": 1.4, "body": 1.4, "small": 1.0, "caution": 2.0}
+SPACE_AFTER = {"title": 2.5, "heading": 2.0, "subheading": 1.4, "body": 1.4, "small": 1.0, "caution": 2.0,
+               "alarm": 1.4}
+ALARM_FOOTER = "Record NOT intact — see page {page}"
+"""Every page's footer when the record carries a notice that it is not intact (an "alarm" paragraph)."""
 
 
 def font(style: str) -> QFont:
@@ -210,6 +215,8 @@ class RecordLayout:
         self.left, self.right = MARGIN_LEFT, PAGE_WIDTH - MARGIN_RIGHT
         self.top, self.bottom = MARGIN_TOP, PAGE_HEIGHT - MARGIN_BOTTOM
         self.width = self.right - self.left
+        self.alarm_page: int | None = None
+        """The page (1-based) of the first notice that the record is not intact; every footer points there."""
         self.pages: list[Page] = []
         self.section = ""
         self._font_style: tuple[str, bool] | str = ""  # the style and kind of font the painter holds ("" none)
@@ -355,6 +362,8 @@ class RecordLayout:
             self.y += 1 * MM
         for line in lines:
             self.ensure(height)
+            if style == "alarm" and self.alarm_page is None:
+                self.alarm_page = len(self.pages)
             self.add(TextOp(QRectF(self.left + (2 * MM if box else 0), self.y, self.width, height), style, line))
             self.y += height
         self.y += SPACE_AFTER.get(style, 1.0) * MM + (1 * MM if box else 0)
@@ -605,8 +614,13 @@ class RecordLayout:
                                    self.footer_left))
         self._draw(painter, TextOp(QRectF(self.left + self.width * 0.8, foot_y + 1 * MM, self.width * 0.2, line_h),
                                    "running", f"page {number} of {total}", Qt.AlignmentFlag.AlignRight))
+        below = 1
+        if self.alarm_page is not None:  # under the footer's rule, before the caution: no page leaves it out
+            self._draw(painter, TextOp(QRectF(self.left, foot_y + 1 * MM + line_h, self.width, line_h), "running_alarm",
+                                       ALARM_FOOTER.format(page=self.alarm_page)))
+            below = 2
         for k, line in enumerate(self.wrap("running", self.caution, self.width)[:2]):
-            self._draw(painter, TextOp(QRectF(self.left, foot_y + 1 * MM + (k + 1) * line_h, self.width, line_h),
+            self._draw(painter, TextOp(QRectF(self.left, foot_y + 1 * MM + (k + below) * line_h, self.width, line_h),
                                        "running", line))
 
     def _fit(self, style: str, text: str, width: float) -> str:

@@ -92,8 +92,11 @@ class SamplesModel(QAbstractTableModel):
         problem = pending[1] if pending else self._problem(s, col)
         if role in (Qt.ItemDataRole.DisplayRole, Qt.ItemDataRole.EditRole):
             return pending[0] if pending else self._text(s, col, edit=role == Qt.ItemDataRole.EditRole)
-        if role == Qt.ItemDataRole.ToolTipRole and problem:
-            return f"Not used: {problem}"
+        if role == Qt.ItemDataRole.ToolTipRole:
+            tip = [f"Not used: {problem}"] if problem else []
+            if col == RESPONSES and not pending:
+                tip += [kept] if (kept := self._internal_standard_words(s)) else []
+            return "\n".join(tip) or None
         if role == Qt.ItemDataRole.BackgroundRole and problem:
             return QBrush(INVALID)
         return None
@@ -104,6 +107,13 @@ class SamplesModel(QAbstractTableModel):
         problems = [f"replicate {m.replicate}: {p}" for m in s.measurements_of(self.analyte_name)
                     if (p := reading_problem(m.response, self.decimal_mark))]
         return "; ".join(problems) or None
+
+    def _internal_standard_words(self, s: Sample) -> str:
+        """The internal-standard responses of the analyte's replicates, which this table has no cell
+        for: they are kept when a response is corrected, and named here so the analyst sees them."""
+        held = [f"replicate {m.replicate}: {m.internal_standard_response.text.strip() or '(empty)'}"
+                for m in s.measurements_of(self.analyte_name) if m.internal_standard_response is not None]
+        return ("Internal-standard responses (kept when a response is corrected): " + "; ".join(held)) if held else ""
 
     def _text(self, s: Sample, col: int, edit: bool = False) -> str:
         """The cell's text: a number with every digit it holds (never rounded, so that opening a cell
@@ -194,7 +204,10 @@ class SamplesModel(QAbstractTableModel):
                 mine.append(replace(old, replicate=i + 1))
                 continue
             reading, problem = reading_from_text(part, decimal_mark, thousands)
-            mine.append(Measurement(self.analyte_name, i + 1, reading))
+            # the table has no cell for the internal-standard response: a corrected analyte response
+            # keeps the one entered or imported with its replicate (nothing typed is lost)
+            mine.append(Measurement(self.analyte_name, i + 1, reading,
+                                    old.internal_standard_response if old is not None else None))
             if problem:
                 bad.append(f"replicate {i + 1}: {problem}")
         if bad:

@@ -181,26 +181,68 @@ def file_sha256_streamed(path) -> str:  # type: ignore[no-untyped-def]
     return digest.hexdigest()
 
 
-def unheld_signatures(run) -> tuple[str, ...]:  # type: ignore[no-untyped-def]
-    """Signatures the audit trail records but the document no longer holds, in words: each "signed"
-    entry must have its signature in the run's signatures (the same role, person, time and signed
-    content hash), and each "approval_withdrawn" entry its withdrawal record. A removed signature
-    (an approval deleted from the file, say) is an integrity problem like an altered entry."""
+@frozen_value
+class RecordedSignature:
+    """A signature (or the withdrawal of an approval) as the audit trail records it, and whether the
+    document still holds it. Every output that lists signers (the Audit trail tab, the sign dialog, the
+    workbook, the record) reads these from :func:`recorded_signatures`, so that none can say a person
+    signed while another offers that signature line as open."""
+
+    entry: int
+    """The audit entry's number (1-based, as the trail lists it)."""
+    role: str
+    name: str
+    person_id: str
+    time_utc: str
+    meaning: str
+    held: bool
+    """Whether the document still holds the signature (the same role, person, time and signed content)."""
+
+    @property
+    def removed_words(self) -> str:
+        """What a signature the document no longer holds means, for a reader: the trail records it,
+        the file lost it, and its line is open again."""
+        if self.role == "approval withdrawn":
+            return (f"audit entry {self.entry} records the withdrawal of an approval by {self.name}, "
+                    f"{self.time_utc}, that the file no longer holds")
+        return (f"audit entry {self.entry} records a {self.role}'s signature by {self.name}, {self.time_utc}, that the "
+                f"file no longer holds: it was removed from the file, so the {self.role}'s signature line is open again")
+
+
+def recorded_signatures(run) -> tuple[RecordedSignature, ...]:  # type: ignore[no-untyped-def]
+    """Every signature and withdrawal the audit trail records, in order, each with whether the document
+    still holds it: a "signed" entry's signature must be in the run's signatures with the same role,
+    person, time and signed content hash, and an "approval_withdrawn" entry its withdrawal record."""
     held = [(s.role, s.name, s.time_utc, s.content_sha256) for s in run.signatures]
-    problems = []
+    out = []
     for number, e in enumerate(run.audit, start=1):
         if e.action == "signed":
             role, name = e.details.get("role", ""), e.details.get("name", "") or e.analyst
             wanted = (role, name, e.time_utc, e.details.get("signed_content_sha256", "") or e.content_sha256)
-            what = f"a signature ({role} {name}, {e.time_utc})"
+            person_id, meaning = e.details.get("person_id", "") or e.analyst_id, e.details.get("meaning", "")
         elif e.action == "approval_withdrawn":
             wanted = ("approval withdrawn", e.analyst, e.time_utc, e.content_sha256)
-            what = f"the withdrawal of an approval (by {e.analyst or e.user}, {e.time_utc})"
+            name, person_id, meaning = e.analyst or e.user, e.analyst_id, e.details.get("reason", "")
         else:
             continue
-        if not any(all(not w or w == h for w, h in zip(wanted, row)) and row[2] == e.time_utc for row in held):
-            problems.append(f"audit entry {number} records {what} that the document no longer holds: it was removed "
-                            "from the document's signatures after it was made")
+        kept = any(all(not w or w == h for w, h in zip(wanted, row)) and row[2] == e.time_utc for row in held)
+        out.append(RecordedSignature(number, wanted[0], str(name), str(person_id or ""), e.time_utc, str(meaning or ""),
+                                     kept))
+    return tuple(out)
+
+
+def unheld_signatures(run) -> tuple[str, ...]:  # type: ignore[no-untyped-def]
+    """Signatures the audit trail records but the document no longer holds, in words
+    (:func:`recorded_signatures`). A removed signature (an approval deleted from the file, say) is an
+    integrity problem like an altered entry."""
+    problems = []
+    for r in recorded_signatures(run):
+        if r.held:
+            continue
+        what = (f"the withdrawal of an approval (by {r.name}, {r.time_utc})" if r.role == "approval withdrawn"
+                else f"a signature ({r.role} {r.name}, {r.time_utc})")
+        problems.append(f"audit entry {r.entry} records {what} that the document no longer holds: it was removed "
+                        "from the document's signatures after it was made")
     return tuple(problems)
 
 

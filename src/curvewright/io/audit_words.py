@@ -44,7 +44,9 @@ def _changes(changes: Any, subject: str) -> str:
     parts = []
     for c in changes or []:
         item = c.get(subject) or c.get("standard") or c.get("sample") or ""
-        parts.append(f"{c.get('field', '').replace('_', ' ')} of {item} from {_value(c.get('old'))} to {_value(c.get('new'))}")
+        kept = c.get("internal_standard_kept")
+        parts.append(f"{c.get('field', '').replace('_', ' ')} of {item} from {_value(c.get('old'))} to {_value(c.get('new'))}"
+                     + (f" (internal-standard response kept: {_value(kept)})" if kept else ""))
     return "; ".join(parts)
 
 

@@ -37,3 +37,13 @@ def record_not_intact_words(run: Run, chain_problems: tuple[str, ...] | None = N
     not as Curvewright left it (data, signatures)."""
     problems = verify_chain(run.audit) if chain_problems is None else chain_problems
     return "its audit trail does not verify" if problems else "its record is not as Curvewright left it"
+
+
+def not_intact_notice(problems: tuple[str, ...]) -> str:
+    """The notice a record or workbook carries beside its verdict when :func:`record_problems` found
+    ``problems`` (empty when there are none): as plain, and as strong, as the verdict."""
+    if not problems:
+        return ""
+    return ("Record NOT intact: its audit trail or signatures do not check, so what it shows cannot be taken as "
+            "Curvewright left it — " + "; ".join(problems))
+

@@ -26,6 +26,7 @@ from ..core.run_analysis import AnalyteResult, RunResult
 from .audit_words import AUDIT_COLUMNS, audit_rows, when, who
 from .integrity import content_sha256
 from .number_text import full_number
+from .record_check import not_intact_notice, record_problems
 from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
                             run_identity, samples_table, standards_table)
 from .signatures import (DEFAULT_MEANINGS, SIGNATURE_COLUMNS, check_signatures, people_in_several_roles,
@@ -88,7 +89,7 @@ SHORT_FLAG_LEGEND = (
 @dataclass(frozen=True)
 class Paragraph:
     text: str
-    style: str = "body"  # title | heading | subheading | body | caution | small
+    style: str = "body"  # title | heading | subheading | body | caution | small | alarm (record not intact)
 
 
 @dataclass(frozen=True)
@@ -236,6 +237,9 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
     failing = [r for r in result.reasons if "FAIL" in r]
     blocks.append(Paragraph(f"Run verdict: {word}" + (" — " + "; ".join(failing) if failing else
                                                       f" — all checks of {result.profile.name} pass"), "subheading"))
+    notice = not_intact_notice(record_problems(run))
+    if notice:  # beside the verdict, as strong as it; every page's footer points here
+        blocks.append(Paragraph(notice, "alarm"))
     if result.profile.caveat:
         blocks.append(Paragraph(f"About the profile: {result.profile.caveat}", "small"))
     rows = []
@@ -259,8 +263,9 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
     blocks.append(Paragraph(f"Content SHA-256: {content_sha256(run)}. Audit trail ({len(trail)} entries): {claim}",
                             "small"))
     checks = check_signatures(run)
-    if checks:
-        blocks.append(PrintedTable("Signatures", SIGNATURE_COLUMNS, signature_rows(checks),
+    signature_table = signature_rows(checks, run)
+    if signature_table:
+        blocks.append(PrintedTable("Signatures", SIGNATURE_COLUMNS, signature_table,
                                    (False, False, False, False, False)))
         several = people_in_several_roles(run)
         if several:

@@ -9,7 +9,7 @@ from __future__ import annotations
 import json
 import math
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import cached_property
 from typing import Any
 
@@ -144,6 +144,8 @@ class Table:
     rounding: RoundingRule | None = None
     windows: tuple[tuple[str, float], ...] = ()  # for a "beside:...:@NAME" column: the window by the value in NAME
     entered: tuple[str, ...] = ()  # for an "item:NAME" column: the items whose value was entered, shown in full
+    notice: str = ""
+    """What a reader must not miss about the whole table (a record that is not intact), beside its title."""
 
     def select(self, names: tuple[str, ...], title: str | None = None, where: tuple[str, Value] | None = None) -> "Table":
         """The named columns only (in that order), optionally only rows whose column ``where[0]`` equals ``where[1]``."""
@@ -154,9 +156,8 @@ class Table:
         rows = self.rows
         if where is not None:
             rows = tuple(r for r in rows if r[index[where[0]]] == where[1])
-        return Table(title or self.title, tuple(self.columns[index[n]] for n in names),
-                     tuple(tuple(r[index[n]] for n in names) for r in rows), self.rounding, self.windows,
-                     self.entered)
+        return replace(self, title=title or self.title, columns=tuple(self.columns[index[n]] for n in names),
+                       rows=tuple(tuple(r[index[n]] for n in names) for r in rows))
 
     def columns_for(self, row: tuple[Value, ...]) -> tuple[Column, ...]:
         """The columns as they show the numbers of ``row``: a display that depends on the row (see
@@ -585,11 +586,16 @@ def signatures_table(result: RunResult) -> Table:
     """The run's signatures and withdrawals: who, role, meaning, when, keyed or not, and whether each holds."""
     from .signatures import check_signatures, fingerprint
 
+    from .audit import recorded_signatures
+
     rows = tuple(
         (c.signature.role, c.signature.name, c.signature.person_id, c.signature.time_utc, c.signature.meaning,
          fingerprint(c.signature.public_key) if c.signature.public_key else "not keyed",
          "holds" if c.holds else "does NOT hold", c.words)
         for c in check_signatures(result.run)
+    ) + tuple(
+        (r.role, r.name, r.person_id, r.time_utc, r.meaning, "", "NOT in the file", r.removed_words)
+        for r in recorded_signatures(result.run) if not r.held
     )
     columns = (Column("Role"), Column("Name"), Column("ID"), Column("Time (UTC)"), Column("Meaning"),
                Column("Key fingerprint"), Column("Check"), Column("What was checked"))
@@ -623,16 +629,22 @@ def analysts_of(result: RunResult) -> tuple[str, ...]:
 
 def signers_of(result: RunResult, role: str) -> tuple[str, ...]:
     """The people who signed the run in ``role`` ("reviewer", "approver"), in the order they signed,
-    as the audit trail names them; an approval withdrawn later says so."""
+    as the audit trail names them (:func:`.audit.recorded_signatures`); an approval withdrawn later
+    says so, and a signature the file no longer holds says that instead of "signed"."""
+    from .audit import recorded_signatures
     from .audit_words import who, when
 
     trail = result.run.audit
     named: list[str] = []
-    for i, e in enumerate(trail):
-        if e.action != "signed" or e.details.get("role") != role:
+    for r in recorded_signatures(result.run):
+        if r.role != role:
+            continue
+        e = trail[r.entry - 1]
+        if not r.held:
+            named.append(f"{who(e)}: NOT signed — {r.removed_words}")
             continue
         words = f"{who(e)}, signed {when(e)}"
-        withdrawn = next((w for w in trail[i + 1:] if w.action == "approval_withdrawn"), None)
+        withdrawn = next((w for w in trail[r.entry:] if w.action == "approval_withdrawn"), None)
         if role == "approver" and withdrawn is not None:
             words += f" (approval withdrawn {when(withdrawn)} by {who(withdrawn)})"
         named.append(words)
@@ -664,13 +676,17 @@ def run_information_table(result: RunResult) -> Table:
     """The run's identity, verdict, interval method, content hash and what the audit trail shows."""
     from .integrity import content_sha256
 
+    from .record_check import not_intact_notice, record_problems
+
     _, claim = chain_claim(result.run)
+    notice = not_intact_notice(record_problems(result.run))
     rows: list[tuple[Value, ...]] = [(item, value) for item, value in run_identity(result)]
     if result.method is not None:
         rows.append(("Method content SHA-256", result.method.sha256))
     rows.append(("Acceptance profile rules SHA-256", result.profile.sha256))
     rows += [
         ("Run verdict", "ACCEPTED" if result.accepted else "NOT ACCEPTED"),
+        *((("Record", notice),) if notice else ()),
         *(("Reason", r) for r in result.reasons),
         ("Intervals", interval_words(result)),
         ("Between the LOD and the reporting limit", BELOW_LIMIT_WORDS[result.profile.reporting.between_lod_and_reporting_limit]),
@@ -679,7 +695,7 @@ def run_information_table(result: RunResult) -> Table:
     ]
     if result.run.description:
         rows.insert(1, ("Description", result.run.description))
-    return Table("Run information", (Column("Item"), Column("Value")), tuple(rows))
+    return Table("Run information", (Column("Item"), Column("Value")), tuple(rows), notice=notice)
 
 
 def result_counts(a: AnalyteResult) -> tuple[int, int]:
@@ -752,7 +768,7 @@ def all_tables(result: RunResult) -> tuple[Table, ...]:
             from .model_outputs import additions_table
 
             tables.append(additions_table(a, result.run.settings.confidence_level))
-    if result.run.signatures:
+    if result.run.signatures or any(e.action in ("signed", "approval_withdrawn") for e in result.run.audit):
         tables.append(signatures_table(result))
     tables.append(audit_table(result))
     return tuple(tables)

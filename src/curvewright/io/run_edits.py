@@ -243,7 +243,7 @@ VALUE_CHANGE_REASONS = (
 )
 """Reasons offered when a raw value that was already entered is changed (the analyst may type another)."""
 STANDARD_RAW_FIELDS = ("concentration", "response", "internal_standard_response")
-SAMPLE_RAW_FIELDS = ("dilution_factor", "nominal", "responses", "additions")
+SAMPLE_RAW_FIELDS = ("dilution_factor", "nominal", "responses", "internal_standard_responses", "additions")
 
 
 class ReasonRequired(RunError):
@@ -266,7 +266,7 @@ def raw_changes(changes: list[dict[str, Any]], raw_fields: tuple[str, ...]) -> l
     for c in changes:
         if c["field"] not in raw_fields:
             continue
-        if c["field"] in ("responses", "additions"):
+        if c["field"] in _PER_REPLICATE:
             replaced = {k: v for k, v in (c["old"] or {}).items() if entered(v) and (c["new"] or {}).get(k) != v}
             if replaced:
                 out.append(c)
@@ -431,10 +431,37 @@ def _sample_fields(s: Sample) -> dict[str, Any]:
         "kind": s.kind.value, "run_order": s.run_order, "dilution_factor": s.dilution_factor,
         "nominal": dict(s.nominal),
         "responses": {f"{m.analyte}/{m.replicate}": m.response.text for m in s.measurements},
+        # internal-standard responses, only where entered (so the audit of other samples reads as before)
+        **({"internal_standard_responses": {f"{m.analyte}/{m.replicate}": m.internal_standard_response.text
+                                            for m in s.measurements if m.internal_standard_response is not None}}
+           if any(m.internal_standard_response is not None for m in s.measurements) else {}),
         # standard additions, only where measured (so the audit of other samples reads as before)
         **({"additions": {f"{a.analyte}/{a.added!r}/{a.replicate}": a.response.text for a in s.additions}}
            if s.additions else {}),
     }
+
+
+_PER_REPLICATE = ("responses", "internal_standard_responses", "additions")
+"""Sample fields that hold one value per replicate: a change lists only the replicates that changed."""
+
+
+def _sample_change(sample: str, field_name: str, old: Any, new: Any, old_internal: dict[str, str] | None,
+                   new_internal: dict[str, str] | None) -> dict[str, Any]:
+    """One changed field of a sample, old → new. A field held per replicate lists only the replicates
+    that changed (a replicate added or removed shows as empty on the other side); a corrected response
+    whose internal-standard response stayed names it as kept (``internal_standard_kept``)."""
+    change: dict[str, Any] = {"sample": sample, "field": field_name, "old": old, "new": new}
+    if field_name not in _PER_REPLICATE:
+        return change
+    before, after = old or {}, new or {}
+    change["old"] = {k: v for k, v in before.items() if k not in after or after[k] != v}
+    change["new"] = {k: v for k, v in after.items() if k not in before or before[k] != v}
+    if field_name == "responses":
+        held_before, held_after = old_internal or {}, new_internal or {}
+        kept = {k: held_after[k] for k in change["new"] if k in held_after and held_before.get(k) == held_after[k]}
+        if kept:
+            change["internal_standard_kept"] = kept
+    return change
 
 
 def update_samples(
@@ -471,8 +498,9 @@ def update_samples(
             before, after = _sample_fields(was), _sample_fields(s)
             for field_name in dict.fromkeys([*after, *before]):
                 if after.get(field_name) != before.get(field_name):
-                    changes.append({"sample": i, "field": field_name, "old": before.get(field_name),
-                                    "new": after.get(field_name)})
+                    changes.append(_sample_change(i, field_name, before.get(field_name), after.get(field_name),
+                                                  before.get("internal_standard_responses"),
+                                                  after.get("internal_standard_responses")))
     if not (changes or added or removed) and tuple(old) == tuple(new):
         return run
     refuse_if_locked(run, refused_change("samples_edited", {}))  # before a reason is asked

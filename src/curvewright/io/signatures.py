@@ -29,7 +29,7 @@ from pathlib import Path
 
 from ..core.run import SIGNATURE_ROLES, Run, RunError, Signature
 from .atomic import write_atomically
-from .audit import Clock, Identity, append_entry, utc_now
+from .audit import Clock, Identity, RecordedSignature, append_entry, recorded_signatures, utc_now
 from .errors import DocumentError
 from .integrity import content_sha256
 
@@ -335,13 +335,38 @@ SIGNATURE_COLUMNS = ("Role", "Name", "Time (UTC)", "Meaning", "Check")
 """The columns of the signatures table, as the record prints it and the app shows it."""
 
 
-def signature_rows(checks: Sequence[SignatureCheck]) -> tuple[tuple[str, ...], ...]:
+def signature_rows(checks: Sequence[SignatureCheck], run: Run | None = None) -> tuple[tuple[str, ...], ...]:
     """One row per checked signature (:data:`SIGNATURE_COLUMNS`): role, name with ID, time (UTC),
-    what it means, and whether it is keyed and holds."""
-    return tuple((c.signature.role, c.signature.name + (f" (ID {c.signature.person_id})" if c.signature.person_id else ""),
+    what it means, and whether it is keyed and holds; then, given the ``run``, one row per signature
+    its audit trail records that the file no longer holds (:func:`.audit.recorded_signatures`)."""
+    held = tuple((c.signature.role, c.signature.name + (f" (ID {c.signature.person_id})" if c.signature.person_id else ""),
                   c.signature.time_utc.replace("T", " ")[:19], c.signature.meaning,
                   ("keyed " + fingerprint(c.signature.public_key) if c.signature.signature else "not keyed")
                   + ("" if c.holds else "; does NOT hold" + (
                       f": {APPROVAL_CHANGED}, so it does not cover the current data"
                       if APPROVAL_CHANGED in c.problem else "")))
                  for c in checks)
+    return held + tuple((r.role, r.name + (f" (ID {r.person_id})" if r.person_id else ""),
+                         r.time_utc.replace("T", " ")[:19], r.meaning, f"NOT in the file: {r.removed_words}")
+                        for r in removed_signatures(run))
+
+
+def removed_signatures(run: Run | None) -> tuple[RecordedSignature, ...]:
+    """The signatures and withdrawals ``run``'s audit trail records that its file no longer holds."""
+    return () if run is None else tuple(r for r in recorded_signatures(run) if not r.held)
+
+
+def signature_list(run: Run) -> str:
+    """The signatures already given, one line each, as the sign dialog lists them: those the file holds
+    (role, person, time; a withdrawal with its reason), then those the audit trail records that the file
+    no longer holds. "No signatures yet." only when the trail records none either."""
+    lines = [(f"{s.role}: {s.name}" + (f" (ID {s.person_id})" if s.person_id else "")
+              + f", {s.time_utc.replace('T', ' ')[:19]} UTC"
+              + (f" — {s.meaning}" if s.role == WITHDRAWN else "")) for s in run.signatures]
+    removed = [f"{r.role}: {r.name}" + (f" (ID {r.person_id})" if r.person_id else "")
+               + f", {r.time_utc.replace('T', ' ')[:19]} UTC — NOT in the file: {r.removed_words}"
+               for r in removed_signatures(run)]
+    if not lines and not removed:
+        return "No signatures yet."
+    return (("Signatures already given:\n" + "\n".join(lines)) if lines else "No signature is held in the file.") + (
+        "\nSignatures the audit trail records that the file no longer holds:\n" + "\n".join(removed) if removed else "")

@@ -111,7 +111,8 @@ def _build(tables: list[Table], progress: Progress | None, target: Path | IO[byt
             caution.font = bold
             sheet.append([caution])
             note = [_text_cell(sheet, INTERVAL_SCOPE_NOTE)] if any(c.heading == "Interval" for c in table.columns) else []
-            sheet.append([_text_cell(sheet, table.title, bold)] + note)
+            alarm = [_text_cell(sheet, table.notice, _ALARM)] if table.notice else []
+            sheet.append([_text_cell(sheet, table.title, bold)] + note + alarm)
             headings = [_text_cell(sheet, c.heading, bold) for c in table.columns]
             for cell in headings:
                 cell.alignment = _WRAPPED
@@ -279,6 +280,8 @@ def _text_cell(sheet, text: str, font: Font | None = None, wrap: bool = False): 
 
 
 _WRAPPED = Alignment(wrap_text=True, vertical="top")
+_ALARM = Font(bold=True, color="A11B1B")
+"""A table's notice (a record that is not intact): bold and red, as the record prints it."""
 
 
 def _sheet_name(title: str, used: set[str]) -> str:
