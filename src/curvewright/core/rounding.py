@@ -25,8 +25,10 @@ the interval supports digits there (the place of the second significant figure o
 then the value is shown to the decimal place of its printed interval. A value that rounds to zero at
 the place of the second significant figure of its half-width (a response equal to the intercept gives
 3.55e-15 with an interval of ±0.066) is indistinguishable from zero at the calibration's resolution and
-is shown as zero to the interval's decimal place ("0.000"), never as round-off digits. So 1705105.57 with the interval 1704513 – 1705698 reads 1705106, not
-1710000 (three significant figures), which looks exact and lies outside its own interval.
+is shown as zero to the interval's decimal place ("0.000"), never as round-off digits. So 1705105.57 with
+the interval 1704513.37 – 1705697.76 (half-width 592: tens) reads 1705110 beside 1704510 – 1705700, not
+1710000 (three significant figures), which looks exact and lies outside its own interval. The ends are
+printed to that place unless the rule keeps a finer place of them (:func:`interval_places`).
 """
 
 from __future__ import annotations
@@ -157,7 +159,7 @@ class RoundingRule:
             shown_lower, shown_upper = (Decimal(self.at_places(v, places)) for v in (lower, upper))
             if shown_lower <= Decimal(text) <= shown_upper:
                 return None
-        return places
+        return None if self.at_places(value, places) == text else places  # the same digits: the rule stands
 
     def at_places(self, value: float, places: int) -> str:
         """``value`` rounded to ``places`` decimals (negative: tens, hundreds…) with this rule's tie-break,
@@ -171,7 +173,14 @@ class RoundingRule:
 
     def _rounded(self, value: float) -> str:
         """The rounded text of a finite ``value``, in a decimal context of ``_PRECISION`` digits."""
-        d = _clean(Decimal(repr(float(value))))
+        rounded = self._quantized(_clean(Decimal(repr(float(value)))))
+        text = format(rounded, "f")
+        if rounded.is_zero() and text.startswith("-"):
+            text = text[1:]  # a rounded −0.00 is reported as 0.00
+        return text
+
+    def _quantized(self, d: Decimal) -> Decimal:
+        """``d`` (cleaned of round-off) rounded under this rule, in a decimal context of ``_PRECISION`` digits."""
         if self.kind == "decimals":
             exponent = -self.digits
         else:
@@ -183,10 +192,19 @@ class RoundingRule:
         if self.kind == "significant" and not rounded.is_zero() and rounded.adjusted() > d.adjusted():
             # 9.99 → 10.0: the carry added a digit; drop one decimal to keep the figure count.
             rounded = rounded.quantize(Decimal(1).scaleb(exponent + 1), rounding=_TIES[self.tie])
-        text = format(rounded, "f")
-        if rounded.is_zero() and text.startswith("-"):
-            text = text[1:]  # a rounded −0.00 is reported as 0.00
-        return text
+        return rounded
+
+    def places(self, value: float) -> int:
+        """The decimal place of the last digit this rule keeps of a finite ``value`` (negative: tens,
+        hundreds…): the rule's decimals, or the place of the last significant figure kept, which for
+        three significant figures is −3 for 684788 (685000: thousands), 2 for 1.2345 and 8 for 1.2345e-6.
+        Unlike the count of decimals in :meth:`text`, this tells the place of a whole number's last kept
+        figure, which its text ("685000") does not."""
+        if self.kind == "decimals":
+            return self.digits
+        with localcontext() as context:
+            context.prec = _PRECISION
+            return -self._quantized(_clean(Decimal(repr(float(value))))).as_tuple().exponent
 
     def value(self, value: float) -> float:
         """The rounded value as a number (for numeric "reported" cells)."""
@@ -232,15 +250,14 @@ def _kept_exponent(text: str) -> int:
 
 
 def interval_places(lower: float, upper: float, rule: RoundingRule | None = None) -> int:
-    """The decimal places the finite ends of an interval are printed with: the place of the second
-    significant figure of its half-width (GUM §7.2.6), and never fewer than ``rule`` prints the ends
-    with (negative: tens, hundreds…, which only happens without a ``rule``)."""
+    """The decimal places the finite ends of an interval are printed with (negative: tens, hundreds…):
+    the place of the second significant figure of its half-width (GUM §7.2.6), and never coarser than
+    the place of the last digit ``rule`` keeps of either end (:meth:`RoundingRule.places`: its decimals,
+    or the place of its last significant figure). So 684788 – 705635 (half-width 10424) is printed to
+    the thousand under three significant figures, 685000 – 706000, and 1704513.37 – 1705697.76
+    (half-width 592) to the ten, 1704510 – 1705700."""
     half = (upper - lower) / 2.0
     places = 1 - math.floor(math.log10(half)) if half > 0 else 0
     if rule is not None:
-        places = max(places, max(_decimal_places(rule.text(v)) for v in (lower, upper)))
+        places = max(places, rule.places(lower), rule.places(upper))
     return places
-
-
-def _decimal_places(text: str) -> int:
-    return len(text.split(".", 1)[1]) if "." in text else 0
