@@ -157,9 +157,10 @@ class RoundingRule:
             return places  # zero at the interval's resolution (round-off such as 3.55e-15): shown as zero there
         if kept <= 0 or -kept >= second_figure:
             shown_lower, shown_upper = (Decimal(self.at_places(v, places)) for v in (lower, upper))
-            if shown_lower <= Decimal(text) <= shown_upper:
-                return None
-        return None if self.at_places(value, places) == text else places  # the same digits: the rule stands
+            return None if shown_lower <= Decimal(text) <= shown_upper else places
+        # zeros where the interval supports digits, unless the digits there are zeros too ("202000000"
+        # for 202024126 printed to the hundred thousand): then the rule's text is the interval's
+        return None if self.at_places(value, places) == text else places
 
     def at_places(self, value: float, places: int) -> str:
         """``value`` rounded to ``places`` decimals (negative: tens, hundreds…) with this rule's tie-break,
