@@ -100,43 +100,47 @@ def pontius_table() -> str:
 
 def test_a_large_result_is_shown_to_the_digits_of_its_interval_not_three_figures(tmp_path) -> None:
     # NIST/SEMATECH e-Handbook §4.6.1.10: deflection 1.239722 gives a load of 1705106 (printed to the unit);
-    # its 95 % interval 1704513.37 – 1705697.76 as held in tests/core/test_reference_nist.py. Three
-    # significant figures (1710000) would lie outside that interval and look exact (GUM §7.2.6: the result
-    # to the decimal place of its uncertainty, which is given to at most two significant figures).
+    # its 95 % interval 1704513.37 – 1705697.76 as held in tests/core/test_reference_nist.py. Its half-width,
+    # 592.2, has its second significant figure in the tens, so the ends are printed to the tens and so is
+    # the load (GUM JCGM 100:2008 §7.2.6: the uncertainty to at most two significant figures and the result
+    # to the same decimal place). Three significant figures (1710000) would lie outside that interval and
+    # look exact.
     samples = "Sample,Response\nLC-1,1.239722\n"
     out = quantify(tmp_path, pontius_table(), samples, "--analyte", "load", "--model", "quadratic", "--weighting",
                    "none", "--export", str(tmp_path / "load.xlsx"), "--report", str(tmp_path / "load.pdf"))
     line = next(line for line in out.stdout.splitlines() if line.startswith("  LC-1 "))
-    assert line.split()[1:6] == ["1705106", "1705106", "1704513", "–", "1705698"], line
+    assert line.split()[1:6] == ["1705110", "1705110", "1704510", "–", "1705700"], line
     assert "shown to the decimal place of their interval: LC-1 (the rounding rule, 3 significant figures" in out.stdout
     data = json.loads(quantify(tmp_path, pontius_table(), samples, "--analyte", "load", "--model", "quadratic",
                                "--weighting", "none", "--json").stdout)
-    assert data["analytes"][0]["samples"][0]["reported_rounded"] == "1705106"
+    assert data["analytes"][0]["samples"][0]["reported_rounded"] == "1705110"
     book = openpyxl.load_workbook(tmp_path / "load.xlsx")
     try:
         summary = sheet_rows(book, "Summary")[0]
         samples_row = sheet_rows(book, "Samples")[0]
+        # the Reported cell holds the number rounded to the tens; the cells that keep the full number show
+        # it to the unit, as a number format cannot round to the tens
         assert [shown(summary[c]) for c in ("Reported", "Estimate × dilution", "Lower limit", "Upper limit")] == \
-            ["1705106", "1705106", "1704513", "1705698"]
+            ["1705110", "1705106", "1704513", "1705698"]
         assert [shown(samples_row[c]) for c in ("Estimated concentration", "Concentration × dilution", "Reported")] == \
-            ["1705106", "1705106", "1705106"]
+            ["1705106", "1705106", "1705110"]
         said = {r["Item"].value: r["Value"].value for r in sheet_rows(book, "Calibration – load")}
         assert said["Shown to the decimal place of their interval instead"].startswith("LC-1: the rule")
     finally:
         book.close()
     record = " ".join(unicodedata.normalize("NFKC", " ".join(
         page.extract_text() for page in PdfReader(tmp_path / "load.pdf").pages)).split())
-    assert "1710000" not in record and "1705106 1705106 1704513 – 1705698" in record
+    assert "1710000" not in record and "1705110 1705110 1704510 – 1705700" in record
 
 
 def test_a_whole_number_keeps_the_digits_its_interval_supports() -> None:
-    # GUM §7.2.6 (JCGM 100:2008): with a half-width of 125 the result is given to the unit place of its
-    # printed interval; "14500" would read as five exact figures. With ±1500, three figures say no more
-    # than the interval does, and the rule stands.
+    # GUM §7.2.6 (JCGM 100:2008): with a half-width of 125 (its second significant figure in the tens) the
+    # result is given to the tens, the place of its printed interval; "14500" would read as five exact
+    # figures. With ±1500, three figures say no more than the interval does, and the rule stands.
     from curvewright.core.rounding import RoundingRule
 
     rule = RoundingRule("significant", 3)
-    assert rule.text_within(14524.0, 14399.0, 14649.0) == "14524"
+    assert rule.text_within(14524.0, 14399.0, 14649.0) == "14520"
     assert rule.text_within(14524.0, 13024.0, 16024.0) == "14500"
     # decimals stop where they are shown: 2 decimals with a half-width of 0.065 stand (common practice)
     assert RoundingRule("decimals", 2, "half_even").text_within(2.345, 2.28, 2.41) == "2.34"

@@ -81,7 +81,8 @@ def test_clear_and_mark_anchor_points_with_a_reason_then_undo_and_redo(make_wind
     # the refit is shown before the change is made: the same curve, judged over a wider range
     assert "after the change" in prompt
     preview = " ".join(re.sub(r"<[^>]+>", " ", prompt).split())
-    assert "Calibrated range 3 to 1600 3 to 6000" in preview
+    # the range every output reports (LLOQ–ULOQ): the failing top level narrows it back to 3–1600
+    assert "Calibrated range 3–1600 pg/mL (LLOQ–ULOQ) 3–1600 pg/mL (LLOQ–ULOQ, narrowed)" in preview
     assert "Standards within limits 16 of 16 judged 16 of 18 judged" in preview
     assert anchors(window) == ["A1-1", "A1-2"]
     entry = window.session.run.audit[-1]

@@ -16,10 +16,11 @@ from curvewright.core.rounding import RoundingRule, interval_places
 
 
 def _places_in_full(lower: float, upper: float, rule: RoundingRule) -> int:
-    """The places as the rule's texts of both ends give them, with the half-width's second figure."""
+    """The places of the half-width's second figure, or the last place the rule keeps of either end
+    (worked out by rounding both ends), whichever is finer."""
     half = (upper - lower) / 2.0
     places = 1 - math.floor(math.log10(half)) if half > 0 else 0
-    return max(places, *(rounding._decimal_places(rule.text(v)) for v in (lower, upper)))
+    return max(places, rule.places(lower), rule.places(upper))
 
 
 RULES = [RoundingRule(kind, digits, tie) for kind, digits in (
@@ -66,8 +67,8 @@ def test_the_quick_path_rounds_no_end_where_the_rule_cannot_add_places(monkeypat
     prints 73.4 with one place."""
     rule = RoundingRule("significant", 3)
     rounded: list[float] = []
-    original = RoundingRule.text
-    monkeypatch.setattr(RoundingRule, "text", lambda self, v: rounded.append(v) or original(self, v))
+    original = RoundingRule.places
+    monkeypatch.setattr(RoundingRule, "places", lambda self, v: rounded.append(v) or original(self, v))
     assert interval_places(122.9, 123.9, rule) == 2
     assert interval_places(794.99, 930.46, rule) == 0  # 795 and 930, whole numbers under the rule too
     assert rounded == []

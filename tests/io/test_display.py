@@ -19,8 +19,11 @@ THREE = RoundingRule("significant", 3)
         (130.62, 131.38, THREE, "130.62 – 131.38"),
         # never coarser than the reported value's rounding: 0.00494 → 5 decimals
         (-0.0056634, 0.015504, THREE, "-0.00566 – 0.01550"),
-        # a wide interval keeps the reported value's whole units
-        (1380.2, 1620.7, THREE, "1380 – 1621"),
+        # a wide interval: half-width 120, to the tens (GUM §7.2.6); three significant figures of the ends
+        # keep the tens too, so no units are added to them
+        (1380.2, 1620.7, THREE, "1380 – 1620"),
+        # large whole numbers: half-width 10424, to the thousands; three significant figures keep the thousands
+        (684787.56, 705635.11, THREE, "685000 – 706000"),
         (55.61, 65.44, RoundingRule("decimals", 2), "55.61 – 65.44"),
         (123456.0, 234567.0, None, "123000 – 235000"),
     ],

@@ -20,6 +20,7 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QGraphicsItem, QGraphicsObj
                                QToolTip, QVBoxLayout, QWidget)
 
 from ..core.level_text import percent_label
+from ..io.number_text import signed_text
 from . import figures, palette
 from .flow_layout import FlowRow
 
@@ -1006,7 +1007,7 @@ class CurveView(QWidget):
                 continue
             out.append((tx(s.concentration), ty(cal.response[i]),
                         f"standard {s.id}{' (anchor point: fitted, not judged)' if s.anchor else ''}: nominal {s.concentration:g} {unit}, response {cal.response[i]:.6g}, "
-                        f"back-calculated {cal.back_calculated[i]:.5g} ({cal.relative_error[i]:+.2f} %)"))
+                        f"back-calculated {cal.back_calculated[i]:.5g} ({signed_text(float(cal.relative_error[i]), 2)} %)"))
         for s in a.excluded_standards:
             used, _ = response_value(s.response, s.internal_standard_response, a.analyte.uses_internal_standard)
             if used is not None and (s.concentration > 0 or not log_x) and (used > 0 or not log_y):

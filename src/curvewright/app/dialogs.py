@@ -112,11 +112,10 @@ def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
         if isinstance(a, str) or a.calibration is None:
             return [a if isinstance(a, str) else a.not_fitted_words] + [""] * 6
         cal = a.calibration
-        low, high = cal.calibrated_range
         judged = (f"{int(a.verdict.passing.sum())} of {int(a.verdict.judged.sum())} judged"
                   if a.verdict is not None else "")
         return [cal.equation(6), f"{cal.residual_sd:.5g}", f"{cal.adjusted_r_squared:.6f}",
-                f"{cal.n_standards}", f"{low:g} to {high:g}", judged, "accepted" if a.accepted else "NOT accepted"]
+                f"{cal.n_standards}", reporting_range_words(a), judged, "accepted" if a.accepted else "NOT accepted"]
 
     names = ("Curve", "Residual SD", "Adjusted R²", "Standards in fit", "Calibrated range", "Standards within limits",
              "Verdict")
@@ -126,6 +125,17 @@ def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
                    f"<th>after the change</th></tr>{rows}</table>")
     label.setTextFormat(Qt.TextFormat.RichText)
     return label
+
+
+def reporting_range_words(a) -> str:  # type: ignore[no-untyped-def]
+    """The calibrated range of an analysed analyte as every output gives it: the analysis's reporting
+    range (LLOQ–ULOQ, the non-zero standards in the fit, narrowed where a failing end level narrows it),
+    with "narrowed" said when it is; "not defined" without one."""
+    rng = a.reporting
+    if rng is None:
+        return "not defined"
+    unit = f" {a.analyte.concentration_unit}" if a.analyte.concentration_unit else ""
+    return f"{rng.lloq:g}–{rng.uloq:g}{unit} (LLOQ–ULOQ{', narrowed' if rng.narrowing else ''})"
 
 
 def ask_exclusion(parent: QWidget, run: Run, analyte: str, standard_id: str, *, row: int | None = None) -> str | None:

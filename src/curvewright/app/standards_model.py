@@ -16,7 +16,7 @@ from PySide6.QtGui import QBrush, QColor, QFont
 
 from ..core.run import Analyte, Reading, Run, RunError, Standard
 from ..io import run_edits
-from ..io.number_text import full_number, number_for_editing, percent_beside_limits
+from ..io.number_text import full_number, number_for_editing, percent_beside_limits, signed_text
 from ..io.paste import PastedBlock
 from .cells import display_reading, number_from_text, reading_from_text, reading_problem
 from .session import RunSession
@@ -272,7 +272,7 @@ class StandardsModel(QAbstractTableModel):
                 back, relative = back_calculated_outside_fit(cal, s, self.analyte.uses_internal_standard)
                 if col == BACK:
                     return "" if back is None else f"{back:.5g}"
-                return "" if relative is None else f"{relative:+.2f}"
+                return "" if relative is None else signed_text(relative, 2)
             return ""
         if col == BACK:
             value = cal.back_calculated[position]

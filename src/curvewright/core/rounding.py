@@ -25,8 +25,10 @@ the interval supports digits there (the place of the second significant figure o
 then the value is shown to the decimal place of its printed interval. A value that rounds to zero at
 the place of the second significant figure of its half-width (a response equal to the intercept gives
 3.55e-15 with an interval of ±0.066) is indistinguishable from zero at the calibration's resolution and
-is shown as zero to the interval's decimal place ("0.000"), never as round-off digits. So 1705105.57 with the interval 1704513 – 1705698 reads 1705106, not
-1710000 (three significant figures), which looks exact and lies outside its own interval.
+is shown as zero to the interval's decimal place ("0.000"), never as round-off digits. So 1705105.57 with
+the interval 1704513.37 – 1705697.76 (half-width 592: tens) reads 1705110 beside 1704510 – 1705700, not
+1710000 (three significant figures), which looks exact and lies outside its own interval. The ends are
+printed to that place unless the rule keeps a finer place of them (:func:`interval_places`).
 """
 
 from __future__ import annotations
@@ -155,9 +157,10 @@ class RoundingRule:
             return places  # zero at the interval's resolution (round-off such as 3.55e-15): shown as zero there
         if kept <= 0 or -kept >= second_figure:
             shown_lower, shown_upper = (Decimal(self.at_places(v, places)) for v in (lower, upper))
-            if shown_lower <= Decimal(text) <= shown_upper:
-                return None
-        return places
+            return None if shown_lower <= Decimal(text) <= shown_upper else places
+        # zeros where the interval supports digits, unless the digits there are zeros too ("202000000"
+        # for 202024126 printed to the hundred thousand): then the rule's text is the interval's
+        return None if self.at_places(value, places) == text else places
 
     def at_places(self, value: float, places: int) -> str:
         """``value`` rounded to ``places`` decimals (negative: tens, hundreds…) with this rule's tie-break,
@@ -171,7 +174,14 @@ class RoundingRule:
 
     def _rounded(self, value: float) -> str:
         """The rounded text of a finite ``value``, in a decimal context of ``_PRECISION`` digits."""
-        d = _clean(Decimal(repr(float(value))))
+        rounded = self._quantized(_clean(Decimal(repr(float(value)))))
+        text = format(rounded, "f")
+        if rounded.is_zero() and text.startswith("-"):
+            text = text[1:]  # a rounded −0.00 is reported as 0.00
+        return text
+
+    def _quantized(self, d: Decimal) -> Decimal:
+        """``d`` (cleaned of round-off) rounded under this rule, in a decimal context of ``_PRECISION`` digits."""
         if self.kind == "decimals":
             exponent = -self.digits
         else:
@@ -183,10 +193,19 @@ class RoundingRule:
         if self.kind == "significant" and not rounded.is_zero() and rounded.adjusted() > d.adjusted():
             # 9.99 → 10.0: the carry added a digit; drop one decimal to keep the figure count.
             rounded = rounded.quantize(Decimal(1).scaleb(exponent + 1), rounding=_TIES[self.tie])
-        text = format(rounded, "f")
-        if rounded.is_zero() and text.startswith("-"):
-            text = text[1:]  # a rounded −0.00 is reported as 0.00
-        return text
+        return rounded
+
+    def places(self, value: float) -> int:
+        """The decimal place of the last digit this rule keeps of a finite ``value`` (negative: tens,
+        hundreds…): the rule's decimals, or the place of the last significant figure kept, which for
+        three significant figures is −3 for 684788 (685000: thousands), 2 for 1.2345 and 8 for 1.2345e-6.
+        Unlike the count of decimals in :meth:`text`, this tells the place of a whole number's last kept
+        figure, which its text ("685000") does not."""
+        if self.kind == "decimals":
+            return self.digits
+        with localcontext() as context:
+            context.prec = _PRECISION
+            return -self._quantized(_clean(Decimal(repr(float(value))))).as_tuple().exponent
 
     def value(self, value: float) -> float:
         """The rounded value as a number (for numeric "reported" cells)."""
@@ -232,30 +251,34 @@ def _kept_exponent(text: str) -> int:
 
 
 def interval_places(lower: float, upper: float, rule: RoundingRule | None = None) -> int:
-    """The decimal places the finite ends of an interval are printed with: the place of the second
-    significant figure of its half-width (GUM §7.2.6), and never fewer than ``rule`` prints the ends
-    with (negative: tens, hundreds…, which only happens without a ``rule``)."""
+    """The decimal places the finite ends of an interval are printed with (negative: tens, hundreds…):
+    the place of the second significant figure of its half-width (GUM §7.2.6), and never coarser than
+    the place of the last digit ``rule`` keeps of either end (:meth:`RoundingRule.places`: its decimals,
+    or the place of its last significant figure). So 684788 – 705635 (half-width 10424) is printed to
+    the thousand under three significant figures, 685000 – 706000, and 1704513.37 – 1705697.76
+    (half-width 592) to the ten, 1704510 – 1705700."""
     half = (upper - lower) / 2.0
     places = 1 - math.floor(math.log10(half)) if half > 0 else 0
     if rule is not None and places < _rule_places_at_most(rule, lower, upper):
-        places = max(places, max(_decimal_places(rule.text(v)) for v in (lower, upper)))
+        places = max(places, rule.places(lower), rule.places(upper))
     return places
 
 
 def _rule_places_at_most(rule: RoundingRule, lower: float, upper: float) -> float:
-    """A bound, never below the truth, of the decimal places ``rule.text`` prints ``lower`` and ``upper``
-    with, found without rounding them; infinity where none is found so (an end zero or not finite).
+    """A bound, never below the truth, of the place of the last digit ``rule`` keeps of ``lower`` and
+    ``upper`` (:meth:`RoundingRule.places`), found without rounding them; infinity where none is found so
+    (an end zero or not finite).
 
     Under ``decimals`` a finite value is printed with exactly ``digits`` places. Under ``significant``
     the last kept digit of a value v ≠ 0 stands at 10^(e − digits + 1), e the exponent of the first
     significant digit of v's shortest repr after round-off is removed; removing round-off and rounding
-    can only raise e (9.996 → 10.0), so v is printed with at most max(0, digits − 1 − e₀) places for
-    any e₀ ≤ e. e₀ = ⌊log10|v|⌋ where |v| ≥ 10^e₀ is checked exactly (10^e₀ is a double for
+    can only raise e (9.996 → 10.0), so the rule keeps v to at most digits − 1 − e₀ places (negative:
+    tens, hundreds…) for any e₀ ≤ e. e₀ = ⌊log10|v|⌋ where |v| ≥ 10^e₀ is checked exactly (10^e₀ is a double for
     0 ≤ e₀ ≤ 22; the repr of such a v is not below it either); otherwise one less, as ``math.log10``
     may round up to a power of ten from just below it. Where the interval's own places reach this
     bound the rule cannot add to them, and the ends are not rounded (an interval's ends are printed
     for every sample shown, after each edit)."""
-    bound = 0
+    bound = -math.inf
     for v in (lower, upper):
         if v == 0 or not math.isfinite(v):
             return math.inf
@@ -268,6 +291,3 @@ def _rule_places_at_most(rule: RoundingRule, lower: float, upper: float) -> floa
         bound = max(bound, rule.digits - 1 - exponent)
     return bound
 
-
-def _decimal_places(text: str) -> int:
-    return len(text.split(".", 1)[1]) if "." in text else 0

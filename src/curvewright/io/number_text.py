@@ -244,6 +244,14 @@ def _values(count: int) -> str:
     return f"{count} value" if count == 1 else f"{count} values"
 
 
+def signed_text(value: float, decimals: int) -> str:
+    """``value`` with ``decimals`` decimals and its sign ("+1.2", "-0.4"), except where it rounds to zero
+    at those decimals: "0.0", with no sign, as a sign on zero would state a direction the printed digits
+    do not have (a %RE of 0.017 % at one decimal is "0.0", not "+0.0"; −1e-14 is "0.00", not "-0.00")."""
+    text = f"{value:+.{decimals}f}"
+    return text[1:] if text[1:].strip("0.") == "" else text
+
+
 def percent_beside_limits(value: float, usual: int, centre: float, window: float | None, signed: bool = False) -> str:
     """A recovery or %RE judged within ``centre`` ± ``window`` (None: not judged), printed with
     ``usual`` decimals, or with more where ``usual`` would show it on or across a limit it does not
@@ -255,4 +263,4 @@ def percent_beside_limits(value: float, usual: int, centre: float, window: float
     decimals = usual
     if window is not None and math.isfinite(value) and math.isfinite(window):
         decimals = decimals_beside_limits(value, usual, (centre - window, centre + window))
-    return f"{value:+.{decimals}f}" if signed else f"{value:.{decimals}f}"
+    return signed_text(value, decimals) if signed else f"{value:.{decimals}f}"

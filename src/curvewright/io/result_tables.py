@@ -22,7 +22,7 @@ from ..core.models import Model
 from ..core.rounding import RoundingRule, interval_places
 from ..core.run import SampleKind
 from ..core.reporting import ReportStatus
-from .number_text import clean, full_number
+from .number_text import clean, full_number, signed_text
 from .audit import chain_claim, verify_chain  # noqa: F401 - chain_claim: where the record and the tables take it
 
 TYPE_CHECKING = False
@@ -109,7 +109,9 @@ def format_value(value: Value, column: Column, rule: RoundingRule | None = None)
     kind, _, n = display.partition(":")
     if decimals is None:
         return f"{v:.{(int(n) if kind == 'sig' else 6) - 1}e}"
-    return f"{v:+.{decimals}f}" if kind == "signed" else f"{v:.{decimals}f}"
+    if decimals < 0:  # a value shown to the tens, hundreds… of its interval (RoundingRule.places_within)
+        return rule.at_places(v, decimals) if rule is not None else f"{round(v, decimals):.0f}"
+    return signed_text(v, decimals) if kind == "signed" else f"{v:.{decimals}f}"
 
 
 def excel_format(value: Value, column: Column, rule: RoundingRule | None = None) -> str | None:
@@ -130,8 +132,14 @@ def excel_format(value: Value, column: Column, rule: RoundingRule | None = None)
             mantissa = (f"{v:.6g}" if kind == "plain" else full_number(v)).split("e")[0]
             return "0." + "0" * _decimal_places(mantissa) + "E+00" if "." in mantissa else "0E+00"
         return "0." + "0" * ((int(n) if kind == "sig" else 6) - 1) + "E+00"
-    body = "0" if decimals == 0 else "0." + "0" * decimals
-    return f"+{body};-{body};{body}" if display.startswith("signed") else body
+    # a number format shows decimals, never tens or hundreds: a value whose interval supports no units
+    # shows its full number to the unit (the Reported cell holds the number rounded to its place)
+    body = "0" if decimals <= 0 else "0." + "0" * decimals
+    if display.startswith("signed"):
+        # a value that rounds to zero at the shown decimals is shown with no sign (signed_text): "0.0" for
+        # it either side of zero, which a format "+0.0;-0.0;0.0" gives only to an exact zero
+        return f"{body};{body}" if signed_text(v, max(decimals, 0))[0] not in "+-" else f"+{body};-{body};{body}"
+    return body
 
 
 @dataclass(frozen=True)
@@ -799,7 +807,7 @@ def interval_text(lower: float | None, upper: float | None, rule: RoundingRule |
 
 def interval_decimals(lower: float, upper: float, rule: RoundingRule | None = None) -> int:
     """The decimal places :func:`interval_text` prints the finite ends of an interval with (negative:
-    rounded to tens, hundreds…, which only happens without a ``rule``): :func:`.core.rounding.interval_places`."""
+    rounded to tens, hundreds…): :func:`.core.rounding.interval_places`."""
     return interval_places(lower, upper, rule)
 
 
