@@ -10,7 +10,6 @@ import math
 
 import numpy as np
 
-from curvewright.core import rounding
 from curvewright.core.number_words import full_number
 from curvewright.core.rounding import RoundingRule, interval_places
 
