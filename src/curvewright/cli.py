@@ -210,7 +210,7 @@ def _identity_options(parser: argparse.ArgumentParser) -> None:
 
 def _table_options(parser: argparse.ArgumentParser) -> None:
     """How tables are read: shared by ``quantify`` and ``compare``."""
-    parser.add_argument("--sheet", help="sheet of the XLSX tables, standards and samples alike (default: the first)")
+    parser.add_argument("--sheet", help="sheet of the XLSX tables, standards and samples alike (default: the active sheet, never a hidden one unless named)")
     parser.add_argument("--standards-sheet", metavar="SHEET", help="sheet of an XLSX standards table (instead of --sheet)")
     parser.add_argument("--map", action="append", metavar="FIELD=HEADER", default=[],
                         help="take FIELD from the column with this header text or 1-based number "
@@ -814,10 +814,12 @@ def _refuse_one_table_as_both(standards: str, std_sheet: str | None, samples: st
                          "both. Name the samples table's own file with --samples.")
     if std_sheet and smp_sheet and std_sheet != smp_sheet:
         return
-    from .io.tables import xlsx_sheet_names
+    from .io.tables import default_sheet, xlsx_sheets
 
-    sheets = xlsx_sheet_names(standards)
-    first = sheets[0] if sheets else None
+    infos = xlsx_sheets(standards)
+    sheets = tuple(s.name for s in infos)
+    chosen = default_sheet(infos)
+    first = chosen.name if chosen else None
     if (std_sheet or first) != (smp_sheet or first):
         return
     listed = ", ".join(repr(n) for n in sheets)

@@ -174,7 +174,8 @@ TEXTS: dict[tuple[str, ...], str] = {
         '  --analyte NAME        analyte to process (repeatable; default all); with\n'
         "                        --standards, the analyte's name\n"
         '  --sheet SHEET         sheet of the XLSX tables, standards and samples alike\n'
-        '                        (default: the first)\n'
+        '                        (default: the active sheet, never a hidden one unless\n'
+        '                        named)\n'
         '  --standards-sheet SHEET\n'
         '                        sheet of an XLSX standards table (instead of --sheet)\n'
         '  --map FIELD=HEADER    take FIELD from the column with this header text or\n'
@@ -278,7 +279,8 @@ TEXTS: dict[tuple[str, ...], str] = {
         '  --analyte NAME        analyte to show (repeatable); with --standards, the\n'
         "                        analyte's name\n"
         '  --sheet SHEET         sheet of the XLSX tables, standards and samples alike\n'
-        '                        (default: the first)\n'
+        '                        (default: the active sheet, never a hidden one unless\n'
+        '                        named)\n'
         '  --standards-sheet SHEET\n'
         '                        sheet of an XLSX standards table (instead of --sheet)\n'
         '  --map FIELD=HEADER    take FIELD from the column with this header text or\n'

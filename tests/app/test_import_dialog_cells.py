@@ -55,3 +55,20 @@ def test_a_standard_whose_id_or_level_is_an_uncalculated_formula_is_not_imported
     assert "row 3, column 1 (Standard): '=\"CO-\"&\"02\"' — a formula with no calculated value" in summary
     assert "row 4, column 2 (Level): '=\"L\"&2' — a formula with no calculated value" in summary
     assert [s.id for _, s in dialog.result.standards] == ["CO-01", "CO-04"]
+
+
+def test_the_dialog_starts_on_the_shown_sheet_and_marks_a_hidden_one(qtbot, tmp_path) -> None:
+    from curvewright.app.dialogs import ImportDialog
+    from tests.test_cli_workbook_sheets import BATCH, TEMPLATE, hidden_template_workbook
+
+    path = hidden_template_workbook(tmp_path / "batch.xlsx")
+    dialog = ImportDialog("standards", path)
+    qtbot.addWidget(dialog)
+    offered = [dialog.sheet.itemText(i) for i in range(dialog.sheet.count())]
+    assert offered == ["Template (hidden)", "Standards"]
+    assert dialog.sheet.currentText() == "Standards"
+    assert [s.response.value for _, s in dialog.result.standards] == [y for _, y in BATCH]
+    assert "sheet 'Standards'" in dialog.summary.toPlainText()
+    dialog.sheet.setCurrentIndex(0)  # the analyst chooses the hidden sheet on purpose
+    assert [s.response.value for _, s in dialog.result.standards] == [y for _, y in TEMPLATE]
+    assert "sheet 'Template' (hidden in the workbook" in dialog.summary.toPlainText()

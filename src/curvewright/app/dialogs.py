@@ -18,7 +18,7 @@ from ..core.run import Analyte, Run, Signature
 from ..io import run_edits
 from ..io.audit import Identity
 from ..io.importing import ImportResult, import_samples, import_standards
-from ..io.tables import RawTable, table_from_csv, table_from_text, table_from_xlsx, xlsx_sheet_names
+from ..io.tables import RawTable, default_sheet, table_from_csv, table_from_text, table_from_xlsx, xlsx_sheets
 from .standards_model import INVALID
 
 EXCLUSION_REASONS = (
@@ -245,7 +245,12 @@ class ImportDialog(QDialog):
         self.analyte = QLineEdit(analyte)
         form = QFormLayout()
         if not text and str(source).lower().endswith((".xlsx", ".xlsm")):
-            self.sheet.addItems(list(xlsx_sheet_names(source)))
+            sheets = xlsx_sheets(source)
+            for info in sheets:  # a hidden sheet is offered marked as such, never chosen first
+                self.sheet.addItem(info.label, info.name)
+            chosen = default_sheet(sheets)
+            if chosen is not None:
+                self.sheet.setCurrentIndex(sheets.index(chosen))
             form.addRow("&Sheet", self.sheet)
         form.addRow("&Decimal mark", self.decimal)
         form.addRow("&Thousands separator", self.thousands)
@@ -273,7 +278,7 @@ class ImportDialog(QDialog):
             return table_from_text(str(self.source))
         path = str(self.source)
         if path.lower().endswith((".xlsx", ".xlsm")):
-            return table_from_xlsx(path, self.sheet.currentText() or None)
+            return table_from_xlsx(path, self.sheet.currentData() or None)
         return table_from_csv(path)
 
     def refresh(self) -> None:

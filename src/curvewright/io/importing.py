@@ -194,6 +194,8 @@ class ImportResult:
     unused_columns: tuple[str, ...] = ()
     sheet: str | None = None
     """The workbook sheet the table was read from (None for text)."""
+    hidden_sheet: bool = False
+    """That sheet is hidden in the workbook (read because it was named)."""
     dilution_taken_as_one: tuple[int, ...] = ()
     """Rows of samples imported whose dilution cell is empty, in a table with a dilution column:
     the factor was taken as 1 (no dilution), as documented, and the front end says so."""
@@ -206,7 +208,10 @@ class ImportResult:
     def headline(self) -> str:
         """What was imported and how the text was read, in one line."""
         what = f"{len(self.standards)} standards" if self.standards or not self.samples else f"{len(self.samples)} samples"
-        return f"{self.source}: imported {what}; columns separated by {self.delimiter}; {self.decimal_note}"
+        where = self.source if self.sheet is None else (
+            f"{self.source}, sheet {self.sheet!r}" + (" (hidden in the workbook; read because it was named)"
+                                                      if self.hidden_sheet else ""))
+        return f"{where}: imported {what}; columns separated by {self.delimiter}; {self.decimal_note}"
 
     def summary(self, answer: Callable[[Remedy], str] = dialog_answer) -> str:
         """The headline, then every cell not used, grouped by the option that answers it."""
@@ -689,6 +694,7 @@ class _Context:
             unusable_readings=tuple(c for c in self.unusable if c.row not in self.failed_rows),
             unused_columns=self.unused,
             sheet=self.table.sheet,
+            hidden_sheet=self.table.hidden_sheet,
             **parts,
         )
 

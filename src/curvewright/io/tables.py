@@ -40,6 +40,8 @@ class RawTable:
     uncalculated: tuple[tuple[int, int, str], ...] = ()
     """(row number, 0-based column, formula) of each workbook cell holding a formula with no
     calculated value: read as empty text, and refused by the importer wherever it is read."""
+    hidden_sheet: bool = False
+    """The sheet read is hidden in the workbook (read only because it was named)."""
 
     @property
     def delimiter_name(self) -> str:
@@ -223,15 +225,52 @@ def _position(data: bytes, offset: int) -> tuple[int, int]:
 
 
 def xlsx_sheet_names(path: str | Path) -> tuple[str, ...]:
+    return tuple(sheet.name for sheet in xlsx_sheets(path))
+
+
+@dataclass(frozen=True)
+class SheetInfo:
+    """One sheet of a workbook: its name, whether it is shown (not hidden, not "very hidden") and
+    whether it is the sheet the workbook opens on (the active one)."""
+
+    name: str
+    visible: bool
+    active: bool
+
+    @property
+    def label(self) -> str:
+        """The sheet's name as offered for a choice, a hidden one marked so."""
+        return self.name if self.visible else f"{self.name} (hidden)"
+
+
+def xlsx_sheets(path: str | Path) -> tuple[SheetInfo, ...]:
+    """The sheets of a workbook, in their order, each with whether it is shown and active."""
     path = Path(path)
     data = _read_bytes(path)
     check_workbook(data, str(path))
     with _workbook(path, data) as workbook:
-        return tuple(workbook.sheetnames)
+        return _sheet_infos(workbook)
+
+
+def _sheet_infos(workbook: Any) -> tuple[SheetInfo, ...]:
+    try:
+        active = workbook.active.title if workbook.active is not None else None
+    except (AttributeError, IndexError):
+        active = None
+    return tuple(SheetInfo(name, getattr(workbook[name], "sheet_state", "visible") == "visible", name == active)
+                 for name in workbook.sheetnames)
+
+
+def default_sheet(sheets: tuple[SheetInfo, ...]) -> SheetInfo | None:
+    """The sheet read when none is named: the active sheet when it is shown, else the first shown
+    sheet. A hidden sheet (often an old template's data) is never read unless it is named."""
+    shown = [s for s in sheets if s.visible]
+    return next((s for s in shown if s.active), shown[0] if shown else None)
 
 
 def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
-    """Read one sheet (the first when ``sheet`` is None) in read-only mode, taking the values the
+    """Read one sheet (when ``sheet`` is None the active sheet, or the first shown one: never a
+    hidden sheet, :func:`default_sheet`) in read-only mode, taking the values the
     spreadsheet stored (a formula cell gives its last calculated value; one never calculated reads
     as empty and is listed in ``RawTable.uncalculated``, which the importer refuses wherever it is
     read, so that no default stands in for it). Every row the sheet holds is read,
@@ -249,11 +288,17 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
     formulas = _holds_formulas(data)
     empties: list[tuple[int, int]] = []
     with _workbook(path, data) as workbook:
-        name = sheet or (workbook.sheetnames[0] if workbook.sheetnames else None)
-        if name is None:
+        infos = _sheet_infos(workbook)
+        listed = ", ".join(s.label for s in infos)
+        if not workbook.sheetnames:
             raise ImportProblem(f"{path}: the workbook has no sheets.")
+        chosen = default_sheet(infos)
+        if sheet is None and chosen is None:
+            raise ImportProblem(f"{path}: every sheet of the workbook is hidden ({listed}); name the sheet to read.")
+        name = sheet or chosen.name  # type: ignore[union-attr]
         if name not in workbook.sheetnames:
-            raise ImportProblem(f"{path}: there is no sheet {name!r} (sheets: {', '.join(workbook.sheetnames)}).")
+            raise ImportProblem(f"{path}: there is no sheet {name!r} (sheets: {listed}).")
+        hidden = not next(s for s in infos if s.name == name).visible
         cells = 0
         for index, record in enumerate(_sheet_records(path, workbook, name), start=1):
             cells += len(record)
@@ -268,7 +313,8 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
             if formulas:
                 empties += [(index, column) for column, v in enumerate(record) if v is None]
     uncalculated = _formulas_among(path, data, name, empties) if empties else ()
-    return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name, uncalculated)
+    return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name, uncalculated,
+                    hidden_sheet=hidden)
 
 
 @contextmanager
