@@ -216,6 +216,9 @@ def _table_options(parser: argparse.ArgumentParser) -> None:
                         help="take FIELD from the column with this header text or 1-based number "
                              "(repeatable; standards.FIELD or samples.FIELD for one table only), "
                              "e.g. --map \"response=Peak height\"")
+    parser.add_argument("--hidden-rows", choices=("include", "skip"), default=None,
+                        help="hidden rows of an XLSX table that hold values: include them or skip them "
+                             "(default: the import stops and names them)")
     parser.add_argument("--decimal-mark", choices=(".", ","), metavar="MARK",
                         help="decimal mark of the tables, . or , (default: decided from the values)")
     parser.add_argument("--thousands", choices=(",", ".", "space", "'"), metavar="SEP",
@@ -761,12 +764,15 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
     smp_sheet = (getattr(args, "samples_sheet", None) or args.sheet) if with_samples else None
     if with_samples:
         _refuse_one_table_as_both(args.standards, std_sheet, args.samples, smp_sheet)
-    std = _import_table(import_standards, args.standards, std_sheet, std_map, analyte=name, **reading)
+    hidden = getattr(args, "hidden_rows", None)
+    std = _import_table(import_standards, args.standards, std_sheet, std_map, analyte=name, hidden_rows=hidden,
+                        **reading)
     results = [std]
     smp = None
     if with_samples:
         smp_name = std.standards[0][0] if std.standards else name
-        smp = _import_table(import_samples, args.samples, smp_sheet, smp_map, analyte=smp_name, **reading)
+        smp = _import_table(import_samples, args.samples, smp_sheet, smp_map, analyte=smp_name, hidden_rows=hidden,
+                            **reading)
         results.append(smp)
     problems: list[str] = []
     for result, what in zip(results, ("standards", "samples")):
@@ -830,12 +836,15 @@ def _refuse_one_table_as_both(standards: str, std_sheet: str | None, samples: st
     )
 
 
-def _import_table(importer, path: str, sheet: str | None, mapping: dict[str, str | int], **options):  # type: ignore[no-untyped-def]
-    """One table through its importer, with the command line's words added to a missing-column message."""
+def _import_table(importer, path: str, sheet: str | None, mapping: dict[str, str | int],  # type: ignore[no-untyped-def]
+                  hidden_rows: str | None = None, **options):
+    """One table through its importer, with the command line's words added to a missing-column message;
+    a workbook's hidden rows included or skipped as ``hidden_rows`` says (none said: refused, named)."""
     from .io.importing import ColumnMappingProblem, MissingColumns
+    from .io.tables import hidden_rows_chosen
 
     try:
-        return importer(_table(path, sheet), mapping=mapping, **options)
+        return importer(hidden_rows_chosen(_table(path, sheet), hidden_rows), mapping=mapping, **options)
     except MissingColumns as exc:
         maps = " or ".join(f"--map {f}=HEADER" for f in exc.missing)
         raise InputError(f"{exc} On the command line: {maps} (HEADER a header text or a column number).") from None

@@ -39,7 +39,7 @@ from .number_text import (
     parse_reading,
     thousands_separator_in,
 )
-from .tables import Cell, RawTable
+from .tables import Cell, RawTable, hidden_rows_note
 
 STANDARD_FIELDS = ("id", "analyte", "level", "concentration", "response", "replicate", "is_response")
 SAMPLE_FIELDS = ("id", "analyte", "kind", "run_order", "dilution", "nominal", "response", "replicate", "is_response")
@@ -196,6 +196,8 @@ class ImportResult:
     """The workbook sheet the table was read from (None for text)."""
     hidden_sheet: bool = False
     """That sheet is hidden in the workbook (read because it was named)."""
+    hidden_rows: str = ""
+    """What was done with the sheet's hidden rows, as chosen (:func:`.tables.hidden_rows_note`)."""
     dilution_taken_as_one: tuple[int, ...] = ()
     """Rows of samples imported whose dilution cell is empty, in a table with a dilution column:
     the factor was taken as 1 (no dilution), as documented, and the front end says so."""
@@ -211,7 +213,8 @@ class ImportResult:
         where = self.source if self.sheet is None else (
             f"{self.source}, sheet {self.sheet!r}" + (" (hidden in the workbook; read because it was named)"
                                                       if self.hidden_sheet else ""))
-        return f"{where}: imported {what}; columns separated by {self.delimiter}; {self.decimal_note}"
+        hidden = f"; {self.hidden_rows}" if self.hidden_rows else ""
+        return f"{where}: imported {what}; columns separated by {self.delimiter}; {self.decimal_note}{hidden}"
 
     def summary(self, answer: Callable[[Remedy], str] = dialog_answer) -> str:
         """The headline, then every cell not used, grouped by the option that answers it."""
@@ -695,6 +698,7 @@ class _Context:
             unused_columns=self.unused,
             sheet=self.table.sheet,
             hidden_sheet=self.table.hidden_sheet,
+            hidden_rows=hidden_rows_note(self.table),
             **parts,
         )
 

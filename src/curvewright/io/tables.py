@@ -14,7 +14,7 @@ import zipfile
 import zlib
 from collections.abc import Iterator
 from contextlib import contextmanager
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any
 
@@ -42,6 +42,11 @@ class RawTable:
     calculated value: read as empty text, and refused by the importer wherever it is read."""
     hidden_sheet: bool = False
     """The sheet read is hidden in the workbook (read only because it was named)."""
+    hidden_rows: tuple[int, ...] = ()
+    """Row numbers of the sheet's rows that are hidden and hold a value (the importer asks whether
+    they are left out or included: :func:`hidden_rows_chosen`)."""
+    hidden_rows_choice: str = ""
+    """What was chosen for :attr:`hidden_rows`: "" (not yet), "include" or "skip"."""
 
     @property
     def delimiter_name(self) -> str:
@@ -312,9 +317,82 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
             numbers.append(index)
             if formulas:
                 empties += [(index, column) for column, v in enumerate(record) if v is None]
+        part = getattr(workbook[name], "_worksheet_path", None)
     uncalculated = _formulas_among(path, data, name, empties) if empties else ()
+    filled = {n for n, row in zip(numbers, rows) if any(c != "" for c in row)}
+    hidden_rows = tuple(n for n in _hidden_row_numbers(data, part) if n in filled) if part else ()
     return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name, uncalculated,
-                    hidden_sheet=hidden)
+                    hidden_sheet=hidden, hidden_rows=hidden_rows)
+
+
+HIDDEN_ROW_CHOICES = ("include", "skip")
+_ROW_TAG = re.compile(rb"<(?:\w+:)?row\b([^>]*)>")
+_ROW_NUMBER = re.compile(rb'\br="(\d+)"')
+_HIDDEN = re.compile(rb'\bhidden="(?:1|true)"')
+
+
+def _hidden_row_numbers(data: bytes, part: str) -> tuple[int, ...]:
+    """The numbers of the rows a worksheet part marks hidden (``<row r="5" hidden="1">``, ECMA-376
+    Part 1, 18.3.1.73). Only the row start tags are read; a part without the word "hidden" is
+    passed over at once."""
+    with zipfile.ZipFile(io.BytesIO(data)) as archive:
+        try:
+            xml = archive.read(part.lstrip("/"))
+        except KeyError:
+            return ()
+    if b"hidden=" not in xml:
+        return ()
+    out = []
+    for tag in _ROW_TAG.finditer(xml):
+        attributes = tag.group(1)
+        number = _ROW_NUMBER.search(attributes)
+        if number and _HIDDEN.search(attributes):
+            out.append(int(number.group(1)))
+    return tuple(out)
+
+
+def hidden_rows_chosen(table: RawTable, choice: str | None) -> RawTable:
+    """The table with its hidden rows included or left out, as ``choice`` says ("include" or "skip").
+
+    A hidden row usually means the analyst chose to leave it out, but the workbook cannot say so:
+    neither importing it nor leaving it out is done without a word. With no choice and hidden rows
+    holding values, :class:`ImportProblem` names the sheet, the rows and their cells and how to
+    choose; the choice made is kept on the table (:attr:`RawTable.hidden_rows_choice`) for the notes.
+    """
+    if not table.hidden_rows:
+        return table
+    if choice not in HIDDEN_ROW_CHOICES:
+        raise ImportProblem(
+            f"{table.source}: sheet {table.sheet!r} has hidden rows holding values: {hidden_rows_listed(table)}. "
+            "A hidden row may have been hidden to leave it out, or by accident: choose whether they are "
+            "included or left out (on the command line --hidden-rows include or --hidden-rows skip; in the "
+            "import dialog, the choice for hidden rows).")
+    if choice == "include":
+        return replace(table, hidden_rows_choice="include")
+    hidden = set(table.hidden_rows)
+    kept = [(n, r) for n, r in zip(table.row_numbers, table.rows) if n not in hidden]
+    return replace(table, rows=tuple(r for _, r in kept), row_numbers=tuple(n for n, _ in kept),
+                   hidden_rows_choice="skip")
+
+
+def hidden_rows_listed(table: RawTable) -> str:
+    """The hidden rows of a table, each with its cells ("row 5 (Std-04, 1, 99.7)")."""
+    cells_of = dict(zip(table.row_numbers, table.rows))
+    listed = []
+    for n in table.hidden_rows[:20]:
+        cells = ", ".join((repr(c) if isinstance(c, float) else c) for c in cells_of.get(n, ()) if c != "")
+        listed.append(f"row {n} ({cells})")
+    more = len(table.hidden_rows) - 20
+    return "; ".join(listed) + (f"; and {more} more" if more > 0 else "")
+
+
+def hidden_rows_note(table: RawTable) -> str:
+    """What was done with the table's hidden rows, in words ("" when it has none)."""
+    if not table.hidden_rows or not table.hidden_rows_choice:
+        return ""
+    done = "included" if table.hidden_rows_choice == "include" else "left out"
+    numbers = ", ".join(map(str, table.hidden_rows[:20])) + (" …" if len(table.hidden_rows) > 20 else "")
+    return f"hidden row(s) {numbers} {done}, as chosen"
 
 
 @contextmanager
