@@ -215,7 +215,8 @@ def _table_options(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--map", action="append", metavar="FIELD=HEADER", default=[],
                         help="take FIELD from the column with this header text or 1-based number "
                              "(repeatable; standards.FIELD or samples.FIELD for one table only), "
-                             "e.g. --map \"response=Peak height\"")
+                             "e.g. --map \"response=Peak height\"; samples.response given again reads each "
+                             "further column as a replicate; skip=HEADER leaves a column out on purpose")
     parser.add_argument("--hidden-rows", choices=("include", "skip"), default=None,
                         help="hidden rows of an XLSX table that hold values: include them or skip them "
                              "(default: the import stops and names them)")
@@ -793,7 +794,7 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
                                user=person)
     run = _with_settings(run, getattr(args, "level", None), getattr(args, "profile", None))
     notes = [f"{what}: {r.headline}" for r, what in zip(results, ("standards", "samples"))]
-    notes += [f"{what}: {r.source}: columns not used: {', '.join(repr(c) for c in r.unused_columns)}"
+    notes += [f"{what}: {r.source}{'' if r.sheet is None else f', sheet {r.sheet!r}'}: columns not used: {', '.join(repr(c) for c in r.unused_columns)}"
               for r, what in zip(results, ("standards", "samples")) if r.unused_columns]
     if smp is not None and smp.dilution_taken_as_one:
         rows = smp.dilution_taken_as_one
@@ -857,7 +858,7 @@ def _import_table(importer, path: str, sheet: str | None, mapping: dict[str, str
 
 def parse_maps(items: Sequence[str]) -> tuple[dict[str, str | int], dict[str, str | int]]:
     """``--map`` options as (standards mapping, samples mapping); a header of digits is a column number."""
-    from .io.importing import SAMPLE_FIELDS, STANDARD_FIELDS
+    from .io.importing import REPLICATE_FIELDS, SAMPLE_FIELDS, SKIP, STANDARD_FIELDS
 
     fields = {"standards": STANDARD_FIELDS, "samples": SAMPLE_FIELDS}
     maps: dict[str, dict[str, str | int]] = {"standards": {}, "samples": {}}
@@ -872,12 +873,20 @@ def parse_maps(items: Sequence[str]) -> tuple[dict[str, str | int], dict[str, st
         name = name.strip().lower().replace(" ", "_").replace("-", "_")
         if table not in ("", "standards", "samples"):
             raise InputError(f"--map {item!r}: {table!r} is not 'standards' or 'samples'.")
-        targets = [t for t in ("standards", "samples") if table in ("", t) and name in fields[t]]
+        targets = [t for t in ("standards", "samples") if table in ("", t) and (name in fields[t] or name == SKIP)]
         if not targets:
             where = f"a field of the {table} table" if table else "a field of either table"
-            raise InputError(f"--map {item!r}: {name!r} is not {where} ({listing}).")
+            raise InputError(f"--map {item!r}: {name!r} is not {where} ({listing}; or skip, a column left out).")
         for t in targets:
-            maps[t][name] = int(header) if header.isdigit() else header
+            where = int(header) if header.isdigit() else header
+            if name not in maps[t]:
+                maps[t][name] = where
+            elif (name in REPLICATE_FIELDS and t == "samples") or name == SKIP:  # several columns: a list
+                before = maps[t][name]
+                maps[t][name] = [*(before if isinstance(before, list) else [before]), where]  # type: ignore[assignment]
+            else:
+                raise InputError(f"--map {item!r}: {t} field {name!r} is mapped twice; only the samples' response "
+                                 "may take several columns (each a further replicate).")
     return maps["standards"], maps["samples"]
 
 
