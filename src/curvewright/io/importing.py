@@ -119,6 +119,8 @@ def table_place(table: RawTable) -> str:
     return table.source if table.sheet is None else f"{table.source}, sheet {table.sheet!r}"
 
 
+HEADER_SEARCH_ROWS = 20
+"""How many rows below a title a header row is looked for, to name the rows above it."""
 REPLICATE_FIELDS = ("response",)
 """Sample fields that may be taken from several columns, each a further replicate of the row's sample."""
 SKIP = "skip"
@@ -487,6 +489,7 @@ class _Context:
         self.mapping, self.units = self._map_columns(fields, override)
         missing = [f for f in required if f not in self.mapping]
         if missing:
+            self._refuse_rows_above_header(rows, required, override)
             raise MissingColumns(table_place(table), header_row, self.headers, missing)
         self._check_replicate_columns()
         self.rows = rows[1:]
@@ -509,6 +512,21 @@ class _Context:
             decimal_mark, self.decimal_note = self.evidence.mark, self.evidence.note
         self.decimal_mark = decimal_mark
         self.decimal_conflict = decimal_mark is None and self.evidence.conflict
+
+    def _refuse_rows_above_header(self, rows: list[tuple[int, tuple[Cell, ...]]], required: tuple[str, ...],
+                                  override: Mapping[str, str | int]) -> None:
+        """Stop with the same advice a text table gets when the header row stands below a title or batch
+        line (a workbook's merged title in row 1, the header in row 2): the rows above it are named."""
+        for n, (row_number, cells) in enumerate(rows[1:HEADER_SEARCH_ROWS], start=1):
+            words = {header_words(str(c))[0] for c in cells if isinstance(c, str) and c.strip()}
+            texts = {str(c).strip() for c in cells if isinstance(c, str)}
+            if all(f in override and str(override[f]) in texts or words & set(SYNONYMS[f]) for f in required):
+                above = "; ".join(f"row {r} ({', '.join(repr(c) for c in row if not _blank(c)) or 'empty'})"
+                                  for r, row in rows[:n])
+                found = ", ".join(repr(str(c).strip()) for c in cells if not _blank(c))
+                raise ImportProblem(
+                    f"{table_place(self.table)}: the header row must be the first row of the table: delete the rows "
+                    f"above it (a title, a batch line): {above}. The header stands in row {row_number} ({found}).")
 
     def _column_of(self, f: str, where: str | int, normal: list[tuple[str, str]]) -> int:
         """The 0-based column a mapping names (a 1-based number or a header text)."""
