@@ -628,6 +628,13 @@ def _options(args: argparse.Namespace) -> dict[str, Any]:
     return options
 
 
+def _naming(path: Path, exc: BaseException) -> str:
+    """The message of a problem with one file, naming the file once: most of the project's messages
+    begin with the file already; any other is preceded by it."""
+    text = str(exc)
+    return text if text.startswith((str(path), f"{path.name}:")) else f"{path}: {text}"
+
+
 def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
     """One run document, start to finish; never raises (the outcome carries the exit code)."""
     from .core.errors import CurvewrightError
@@ -641,7 +648,7 @@ def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
         return _quantify(opened.run, options, source=path, notes=notes, chain=(opened.run, opened.chain_problems),
                          record=problems)
     except (CurvewrightError, OSError, InputError) as exc:
-        return Outcome(EXIT_INPUT, "", None, f"{path}: {exc}")
+        return Outcome(EXIT_INPUT, "", None, _naming(path, exc))
     except Exception as exc:  # noqa: BLE001 - reported as an internal error with its trace
         return Outcome(EXIT_INTERNAL, "", None, f"{path}: internal error: {exc!r}\n{traceback.format_exc()}")
 
@@ -1453,7 +1460,7 @@ def cmd_compare(args: argparse.Namespace) -> int:
 
                 if not isinstance(exc, (CurvewrightError, OSError)):
                     raise
-                print(f"curvewright: {path}: {exc}", file=sys.stderr)
+                print(f"curvewright: {_naming(path, exc)}", file=sys.stderr)
                 code = EXIT_INPUT
                 continue
             _print_evidence(run, result, args.json, payload, None)

@@ -628,6 +628,14 @@ class _Context:
     def column_name(self, f: str) -> str:
         return self.label(self.mapping[f])
 
+    def dated(self, row: int, i: int | None, reason: str) -> str:
+        """The reason a cell cannot be used, said of a date where the workbook holds one there: a number
+        the spreadsheet program turned into a date ("1-10" typed as a dilution) reads as a date."""
+        if i is None or (row, i) not in self.table.dates:
+            return reason
+        return ("is a date in the workbook, not a number (the spreadsheet program probably turned what was typed "
+                "into a date: format the cell as a number and type the value again)")
+
     def label(self, i: int) -> str:
         """Column ``i`` (0-based) as messages name it: "5 (Response 3)"."""
         return f"{i + 1} ({self.headers[i]})" if i < len(self.headers) and self.headers[i] else str(i + 1)
@@ -642,6 +650,8 @@ class _Context:
                at: int | None = None) -> None:
         if remedy is not None:
             reason = reason.split("; ", 1)[0]  # the advice is given once, with the remedy
+        index = at if at is not None else self.mapping.get(f)
+        reason = self.dated(row, index, reason)
         column = self.label(at) if at is not None else self.column_name(f) if f in self.mapping else f
         self.rejected.append(RejectedCell(row, column, text, reason, remedy))
         if row_fails:
@@ -754,8 +764,8 @@ class _Context:
             self.reject(row, f, value, problem, row_fails=True, remedy=remedy, at=i)
             return None
         if problem:
-            self.unusable.append(RejectedCell(row, self.label(i), value,
-                                              f"{problem}; sample {sample_id!r} is reported without this {what}"))
+            self.unusable.append(RejectedCell(row, self.label(i), value, f"{self.dated(row, i, problem)}; sample "
+                                              f"{sample_id!r} is reported without this {what}"))
             return Reading(None, value)
         assert reading is not None
         if reading.is_missing:

@@ -7,6 +7,7 @@ sees it, 1-based, and ``column`` the 1-based column. Workbook numbers stay numbe
 from __future__ import annotations
 
 import csv
+import datetime
 import io
 import math
 import re
@@ -47,6 +48,9 @@ class RawTable:
     they are left out or included: :func:`hidden_rows_chosen`)."""
     hidden_rows_choice: str = ""
     """What was chosen for :attr:`hidden_rows`: "" (not yet), "include" or "skip"."""
+    dates: frozenset[tuple[int, int]] = frozenset()
+    """(row number, 0-based column) of each workbook cell holding a date or time (its text is the
+    date's): the importer says so where a number was expected."""
 
     @property
     def delimiter_name(self) -> str:
@@ -292,6 +296,7 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
     numbers: list[int] = []
     formulas = _holds_formulas(data)
     empties: list[tuple[int, int]] = []
+    dates: list[tuple[int, int]] = []
     with _workbook(path, data) as workbook:
         infos = _sheet_infos(workbook)
         listed = ", ".join(s.label for s in infos)
@@ -315,6 +320,7 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
                 )
             rows.append(tuple(_cell(v) for v in record))
             numbers.append(index)
+            dates += [(index, column) for column, v in enumerate(record) if isinstance(v, _DATES)]
             if formulas:
                 empties += [(index, column) for column, v in enumerate(record) if v is None]
         part = getattr(workbook[name], "_worksheet_path", None)
@@ -322,7 +328,7 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
     filled = {n for n, row in zip(numbers, rows) if any(c != "" for c in row)}
     hidden_rows = tuple(n for n in _hidden_row_numbers(data, part) if n in filled) if part else ()
     return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name, uncalculated,
-                    hidden_sheet=hidden, hidden_rows=hidden_rows)
+                    hidden_sheet=hidden, hidden_rows=hidden_rows, dates=frozenset(dates))
 
 
 HIDDEN_ROW_CHOICES = ("include", "skip")
@@ -473,6 +479,9 @@ def _formula_text(value: object) -> str:
     return text if isinstance(text, str) else "a formula"
 
 
+_DATES = (datetime.date, datetime.time, datetime.timedelta)
+
+
 def _cell(value: object) -> Cell:
     """A workbook value as a cell: numbers as finite floats; everything else as text, including a
     number no double holds (kept as its digits or "inf"/"nan", which the importer reports)."""
@@ -486,6 +495,8 @@ def _cell(value: object) -> Cell:
         except OverflowError:
             return str(value)
         return number if math.isfinite(number) else repr(number)
+    if isinstance(value, datetime.datetime) and value.time() == datetime.time(0):
+        return value.date().isoformat()  # a date the spreadsheet holds, without its midnight
     return str(value)
 
 
