@@ -73,3 +73,17 @@ def test_mixed_censored_and_measured_replicates_keep_both(tmp_path: Path) -> Non
              for c in row if c is not None]
     assert any("replicate 2 300.2" in c for c in cells)
     assert not any(c.strip().startswith("<20") for c in cells)
+
+
+def test_the_record_names_every_reading_of_a_mixed_sample(tmp_path: Path) -> None:
+    import pypdfium2
+
+    record = tmp_path / "record.pdf"
+    _quantify(tmp_path, ["Fluss-M,1,<20", "Fluss-M,1,300.2", "Fluss-G,1,<20"], "--report", str(record))
+    document = pypdfium2.PdfDocument(str(record))
+    try:
+        text = " ".join(page.get_textpage().get_text_range() for page in document).replace("\r\n", " ")
+    finally:
+        document.close()
+    assert "Fluss-M (censored: replicate 1 <20; measured: replicate 2 300.2)" in " ".join(text.split())
+    assert "censored — reported as entered (e.g. ND, < 0.5)" not in text  # a limit is not reported as entered

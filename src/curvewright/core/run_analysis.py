@@ -839,6 +839,10 @@ def _quantify_samples(
     )
 
 
+MIXED_READINGS = "the replicates mix censored and measured readings"
+"""How the reason of a sample not quantified for mixing censored and measured replicates names it."""
+
+
 def _censored_limit(m: Measurement, ratio: bool) -> float | None:
     """The response limit of a censored reading ("<20": 20), as the fit's responses are (for ratio
     calibration divided by the internal-standard response); None for a word ("ND") or where the
@@ -873,7 +877,7 @@ def _censored_reasons(censored_of: dict[int, list[tuple[Measurement, float | Non
         measured = measured_of.get(r)
         if measured:
             shown = "; ".join(f"replicate {m.replicate} {m.response.text.strip()}" for m in measured)
-            reasons[r] = (f"not quantified: the replicates mix censored and measured readings (censored: "
+            reasons[r] = (f"not quantified: {MIXED_READINGS} (censored: "
                           f"{'; '.join(texts)}; measured: {shown}); no mean is formed from part of them: "
                           "review the readings")
             continue
