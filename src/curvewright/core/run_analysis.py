@@ -754,8 +754,10 @@ def _quantify_samples(
                 reasons_here.append(f"replicate {m.replicate}: {reason}")
             else:
                 values.append(value)
-                measured_of.setdefault(r, []).append(m)
                 count += 1
+        if count and r in censored_of:  # censored and measured replicates: the measured ones are named too
+            measured_of[r] = [m for m in measurements
+                              if response_value(m.response, m.internal_standard_response, ratio)[0] is not None]
         ids.append(sample.id)
         kinds.append(sample.kind)
         run_orders.append(sample.run_order)
