@@ -295,18 +295,21 @@ def censored_bound_reason(sign: str, response_text: str, bound: float, increasin
 
 def _outward(rule: RoundingRule, value: float, up: bool) -> str:
     """``value`` rounded under ``rule`` away from the inside of a bound: up for an upper bound, down
-    for a lower one, so that the statement shown ("< 2.92") is never stricter than the one worked out
-    (< 2.9117 is shown as "< 2.92", not "< 2.91")."""
+    for a lower one, so that the statement shown is never stricter than the one worked out
+    (< 2.9917 is shown as "< 3.00", not "< 2.99"; < 123,456.7 as "< 124000")."""
     text = rule.text(value)
     try:
         shown = float(text)
     except ValueError:
         return text
-    if (shown < value) if up else (shown > value):
-        decimals = len(text.split(".", 1)[1]) if "." in text else 0
-        step = 10.0 ** -decimals
-        text = f"{shown + step if up else shown - step:.{decimals}f}"
-    return text
+    if not math.isfinite(value) or value == 0 or ((shown >= value) if up else (shown <= value)):
+        return text
+    if rule.kind == "significant":
+        step = 10.0 ** (math.floor(math.log10(abs(value))) - rule.digits + 1)
+    else:
+        step = 10.0 ** -rule.digits
+    steps = math.ceil(value / step) if up else math.floor(value / step)
+    return rule.text(steps * step)
 
 
 def _diluted(interval: tuple[float | None, float | None], dilution: float) -> tuple[float | None, float | None]:
