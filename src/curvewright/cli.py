@@ -220,12 +220,16 @@ def _identity_options(parser: argparse.ArgumentParser) -> None:
 
 def _table_options(parser: argparse.ArgumentParser) -> None:
     """How tables are read: shared by ``quantify`` and ``compare``."""
-    parser.add_argument("--sheet", help="sheet of the XLSX tables, standards and samples alike (default: the first)")
+    parser.add_argument("--sheet", help="sheet of the XLSX tables, standards and samples alike (default: the active sheet, never a hidden one unless named)")
     parser.add_argument("--standards-sheet", metavar="SHEET", help="sheet of an XLSX standards table (instead of --sheet)")
     parser.add_argument("--map", action="append", metavar="FIELD=HEADER", default=[],
                         help="take FIELD from the column with this header text or 1-based number "
                              "(repeatable; standards.FIELD or samples.FIELD for one table only), "
-                             "e.g. --map \"response=Peak height\"")
+                             "e.g. --map \"response=Peak height\"; samples.response given again reads each "
+                             "further column as a replicate; skip=HEADER leaves a column out on purpose")
+    parser.add_argument("--hidden-rows", choices=("include", "skip"), default=None,
+                        help="hidden rows of an XLSX table that hold values: include them or skip them "
+                             "(default: the import stops and names them)")
     parser.add_argument("--decimal-mark", choices=(".", ","), metavar="MARK",
                         help="decimal mark of the tables, . or , (default: decided from the values)")
     parser.add_argument("--thousands", choices=(",", ".", "space", "'"), metavar="SEP",
@@ -634,6 +638,13 @@ def _options(args: argparse.Namespace) -> dict[str, Any]:
     return options
 
 
+def _naming(path: Path, exc: BaseException) -> str:
+    """The message of a problem with one file, naming the file once: most of the project's messages
+    begin with the file already; any other is preceded by it."""
+    text = str(exc)
+    return text if text.startswith((str(path), f"{path.name}:")) else f"{path}: {text}"
+
+
 def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
     """One run document, start to finish; never raises (the outcome carries the exit code)."""
     from .core.errors import CurvewrightError
@@ -647,7 +658,7 @@ def _quantify_file(path: Path, options: dict[str, Any]) -> Outcome:
         return _quantify(opened.run, options, source=path, notes=notes, chain=(opened.run, opened.chain_problems),
                          record=problems)
     except (CurvewrightError, OSError, InputError) as exc:
-        return Outcome(EXIT_INPUT, "", None, f"{path}: {exc}")
+        return Outcome(EXIT_INPUT, "", None, _naming(path, exc))
     except Exception as exc:  # noqa: BLE001 - reported as an internal error with its trace
         return Outcome(EXIT_INTERNAL, "", None, f"{path}: internal error: {exc!r}\n{traceback.format_exc()}")
 
@@ -771,12 +782,15 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
     smp_sheet = (getattr(args, "samples_sheet", None) or args.sheet) if with_samples else None
     if with_samples:
         _refuse_one_table_as_both(args.standards, std_sheet, args.samples, smp_sheet)
-    std = _import_table(import_standards, args.standards, std_sheet, std_map, analyte=name, **reading)
+    hidden = getattr(args, "hidden_rows", None)
+    std = _import_table(import_standards, args.standards, std_sheet, std_map, analyte=name, hidden_rows=hidden,
+                        **reading)
     results = [std]
     smp = None
     if with_samples:
         smp_name = std.standards[0][0] if std.standards else name
-        smp = _import_table(import_samples, args.samples, smp_sheet, smp_map, analyte=smp_name, **reading)
+        smp = _import_table(import_samples, args.samples, smp_sheet, smp_map, analyte=smp_name, hidden_rows=hidden,
+                            **reading)
         results.append(smp)
     problems: list[str] = []
     for result, what in zip(results, ("standards", "samples")):
@@ -797,7 +811,7 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
                                user=person)
     run = _with_settings(run, getattr(args, "level", None), getattr(args, "profile", None))
     notes = [f"{what}: {r.headline}" for r, what in zip(results, ("standards", "samples"))]
-    notes += [f"{what}: {r.source}: columns not used: {', '.join(repr(c) for c in r.unused_columns)}"
+    notes += [f"{what}: {r.source}{'' if r.sheet is None else f', sheet {r.sheet!r}'}: columns not used: {', '.join(repr(c) for c in r.unused_columns)}"
               for r, what in zip(results, ("standards", "samples")) if r.unused_columns]
     if smp is not None and smp.dilution_taken_as_one:
         rows = smp.dilution_taken_as_one
@@ -824,10 +838,12 @@ def _refuse_one_table_as_both(standards: str, std_sheet: str | None, samples: st
                          "both. Name the samples table's own file with --samples.")
     if std_sheet and smp_sheet and std_sheet != smp_sheet:
         return
-    from .io.tables import xlsx_sheet_names
+    from .io.tables import default_sheet, xlsx_sheets
 
-    sheets = xlsx_sheet_names(standards)
-    first = sheets[0] if sheets else None
+    infos = xlsx_sheets(standards)
+    sheets = tuple(s.name for s in infos)
+    chosen = default_sheet(infos)
+    first = chosen.name if chosen else None
     if (std_sheet or first) != (smp_sheet or first):
         return
     listed = ", ".join(repr(n) for n in sheets)
@@ -838,12 +854,15 @@ def _refuse_one_table_as_both(standards: str, std_sheet: str | None, samples: st
     )
 
 
-def _import_table(importer, path: str, sheet: str | None, mapping: dict[str, str | int], **options):  # type: ignore[no-untyped-def]
-    """One table through its importer, with the command line's words added to a missing-column message."""
+def _import_table(importer, path: str, sheet: str | None, mapping: dict[str, str | int],  # type: ignore[no-untyped-def]
+                  hidden_rows: str | None = None, **options):
+    """One table through its importer, with the command line's words added to a missing-column message;
+    a workbook's hidden rows included or skipped as ``hidden_rows`` says (none said: refused, named)."""
     from .io.importing import ColumnMappingProblem, MissingColumns
+    from .io.tables import hidden_rows_chosen
 
     try:
-        return importer(_table(path, sheet), mapping=mapping, **options)
+        return importer(hidden_rows_chosen(_table(path, sheet), hidden_rows), mapping=mapping, **options)
     except MissingColumns as exc:
         maps = " or ".join(f"--map {f}=HEADER" for f in exc.missing)
         raise InputError(f"{exc} On the command line: {maps} (HEADER a header text or a column number).") from None
@@ -856,7 +875,7 @@ def _import_table(importer, path: str, sheet: str | None, mapping: dict[str, str
 
 def parse_maps(items: Sequence[str]) -> tuple[dict[str, str | int], dict[str, str | int]]:
     """``--map`` options as (standards mapping, samples mapping); a header of digits is a column number."""
-    from .io.importing import SAMPLE_FIELDS, STANDARD_FIELDS
+    from .io.importing import REPLICATE_FIELDS, SAMPLE_FIELDS, SKIP, STANDARD_FIELDS
 
     fields = {"standards": STANDARD_FIELDS, "samples": SAMPLE_FIELDS}
     maps: dict[str, dict[str, str | int]] = {"standards": {}, "samples": {}}
@@ -871,12 +890,20 @@ def parse_maps(items: Sequence[str]) -> tuple[dict[str, str | int], dict[str, st
         name = name.strip().lower().replace(" ", "_").replace("-", "_")
         if table not in ("", "standards", "samples"):
             raise InputError(f"--map {item!r}: {table!r} is not 'standards' or 'samples'.")
-        targets = [t for t in ("standards", "samples") if table in ("", t) and name in fields[t]]
+        targets = [t for t in ("standards", "samples") if table in ("", t) and (name in fields[t] or name == SKIP)]
         if not targets:
             where = f"a field of the {table} table" if table else "a field of either table"
-            raise InputError(f"--map {item!r}: {name!r} is not {where} ({listing}).")
+            raise InputError(f"--map {item!r}: {name!r} is not {where} ({listing}; or skip, a column left out).")
         for t in targets:
-            maps[t][name] = int(header) if header.isdigit() else header
+            where = int(header) if header.isdigit() else header
+            if name not in maps[t]:
+                maps[t][name] = where
+            elif (name in REPLICATE_FIELDS and t == "samples") or name == SKIP:  # several columns: a list
+                before = maps[t][name]
+                maps[t][name] = [*(before if isinstance(before, list) else [before]), where]  # type: ignore[assignment]
+            else:
+                raise InputError(f"--map {item!r}: {t} field {name!r} is mapped twice; only the samples' response "
+                                 "may take several columns (each a further replicate).")
     return maps["standards"], maps["samples"]
 
 
@@ -1446,7 +1473,7 @@ def cmd_compare(args: argparse.Namespace) -> int:
 
                 if not isinstance(exc, (CurvewrightError, OSError)):
                     raise
-                print(f"curvewright: {path}: {exc}", file=sys.stderr)
+                print(f"curvewright: {_naming(path, exc)}", file=sys.stderr)
                 code = EXIT_INPUT
                 continue
             if _print_evidence(run, result, args.json, payload, None):

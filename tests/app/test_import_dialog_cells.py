@@ -55,3 +55,50 @@ def test_a_standard_whose_id_or_level_is_an_uncalculated_formula_is_not_imported
     assert "row 3, column 1 (Standard): '=\"CO-\"&\"02\"' — a formula with no calculated value" in summary
     assert "row 4, column 2 (Level): '=\"L\"&2' — a formula with no calculated value" in summary
     assert [s.id for _, s in dialog.result.standards] == ["CO-01", "CO-04"]
+
+
+def test_the_dialog_starts_on_the_shown_sheet_and_marks_a_hidden_one(qtbot, tmp_path) -> None:
+    from curvewright.app.dialogs import ImportDialog
+    from tests.test_cli_workbook_sheets import BATCH, TEMPLATE, hidden_template_workbook
+
+    path = hidden_template_workbook(tmp_path / "batch.xlsx")
+    dialog = ImportDialog("standards", path)
+    qtbot.addWidget(dialog)
+    offered = [dialog.sheet.itemText(i) for i in range(dialog.sheet.count())]
+    assert offered == ["Template (hidden)", "Standards"]
+    assert dialog.sheet.currentText() == "Standards"
+    assert [s.response.value for _, s in dialog.result.standards] == [y for _, y in BATCH]
+    assert "sheet 'Standards'" in dialog.summary.toPlainText()
+    dialog.sheet.setCurrentIndex(0)  # the analyst chooses the hidden sheet on purpose
+    assert [s.response.value for _, s in dialog.result.standards] == [y for _, y in TEMPLATE]
+    assert "sheet 'Template' (hidden in the workbook" in dialog.summary.toPlainText()
+
+
+def test_the_dialog_marks_hidden_rows_and_imports_only_after_a_choice(qtbot, tmp_path) -> None:
+    from curvewright.app.dialogs import ImportDialog
+    from PySide6.QtWidgets import QDialogButtonBox
+    from tests.test_cli_hidden_rows import HIDDEN, ROWS, workbook_with_a_hidden_row
+
+    dialog = ImportDialog("standards", workbook_with_a_hidden_row(tmp_path / "batch.xlsx"))
+    qtbot.addWidget(dialog)
+    ok = dialog.buttons.button(QDialogButtonBox.StandardButton.Ok)
+    headers = [dialog.preview.verticalHeaderItem(i).text() for i in range(dialog.preview.rowCount())]
+    assert headers[HIDDEN - 1] == f"{HIDDEN} (hidden)" and headers.count(f"{HIDDEN} (hidden)") == 1
+    assert "row 5 (Zr-04, 2.0, 211.4)" in dialog.summary.toPlainText()
+    assert dialog.result is None and not ok.isEnabled()
+    dialog.hidden_rows.setCurrentText("leave them out")
+    assert [s.id for _, s in dialog.result.standards] == [r[0] for r in ROWS if r[0] != "Zr-04"]
+    assert "hidden row(s) 5 left out, as chosen" in dialog.summary.toPlainText() and ok.isEnabled()
+    dialog.hidden_rows.setCurrentText("include them")
+    assert [s.id for _, s in dialog.result.standards] == [r[0] for r in ROWS]
+    assert "hidden row(s) 5 included, as chosen" in dialog.summary.toPlainText()
+
+
+def test_the_hidden_rows_choice_is_not_shown_for_a_sheet_without_them(qtbot, tmp_path) -> None:
+    from curvewright.app.dialogs import ImportDialog
+
+    path = tmp_path / "standards.csv"
+    path.write_text("Standard id,Concentration (µg/L),Response (counts)\nZr-01,0.5,51.2\nZr-02,1,101.9\n")
+    dialog = ImportDialog("standards", path)
+    qtbot.addWidget(dialog)
+    assert not dialog.form.isRowVisible(dialog.hidden_rows) and dialog.result is not None

@@ -158,3 +158,57 @@ def test_paste_keeps_unreadable_cells_as_typed(make_window, qtbot, answer_dialog
     assert len(standards) == 4 and standards[1].concentration_text == "abc" and np.isnan(standards[1].concentration)
     assert standards[3].response.qualifier == "ND"
     assert "need attention" in window.statusBar().currentMessage() and "row 2" in window.statusBar().currentMessage()
+
+
+def test_pasted_censored_responses_are_never_shown_as_concentrations(make_window, qtbot, answer_dialogs) -> None:
+    """"<0.1" is a limit of the ABSORBANCE: the results table shows a concentration statement read
+    through the curve (times the dilution) or no number, and a sample with a censored and a measured
+    replicate keeps both readings in its words and is not quantified."""
+    window = make_window(NITRATE)
+    window.left_tabs.setCurrentIndex(1)
+    window.samples_view.setCurrentIndex(window.samples_model.index(-1, -1))
+    type_paste(window, qtbot, window.samples_view,
+               "Sample\tDilution\tResponse\nRiver-M\t1\t<0.1\nRiver-M\t1\t0.6262\nRiver-Q\t10\t<0.1\n")
+    results = {s.sample_id: s for s in window.session.result.analytes[0].samples}
+    unit = window.session.run.analytes[0].concentration_unit
+    mixed, diluted = results["River-M"], results["River-Q"]
+    assert mixed.reported is None and mixed.reported_text == "not quantified"
+    assert "replicate 1 <0.1" in mixed.words and "replicate 2 0.6262" in mixed.words
+    # an absorbance below 0.1 reads below the lowest standard (0.5 mg/L), times the dilution of 10
+    assert diluted.reported_text == f"< 5.00 {unit} (LLOQ × dilution 10)"
+    assert "<0.1" not in diluted.reported_text and "a limit of the response" in diluted.words
+    table = window.results_view.table.model()
+    shown = [[table.index(r, c).data() for c in range(table.columnCount())] for r in range(table.rowCount())]
+    assert not any(str(cell).startswith("<0.1") for row in shown for cell in row)
+
+
+def test_typed_replicates_mixing_a_censored_reading_keep_both(make_window, qtbot, answer_dialogs) -> None:
+    """Replicates typed into one cell, one of them a limit: the sample is not quantified, both readings
+    named in its result and in the results table's words for the row."""
+    window = make_window(NITRATE)
+    window.left_tabs.setCurrentIndex(1)
+    view = window.samples_view
+    index = view.model().index(0, smp.RESPONSES)
+    sid = window.session.run.samples[0].id
+    view.setCurrentIndex(index)
+    view.setFocus()
+    view.edit(index)
+    qtbot.wait(50)
+    editor = QApplication.focusWidget()
+    editor.selectAll()
+    qtbot.keyClicks(editor, "0.0887; <0.05")
+    qtbot.keyClick(editor, Qt.Key.Key_Return)
+    settle(qtbot, window)
+    assert [m.response.text.strip() for m in window.session.run.samples[0].measurements] == ["0.0887", "<0.05"]
+
+    def result_of_sample():  # type: ignore[no-untyped-def]
+        return next(s for s in window.session.result.analytes[0].samples if s.sample_id == sid)
+
+    qtbot.waitUntil(lambda: len(result_of_sample().replicate_responses) == 1, timeout=10000)  # the refit is done
+    result = result_of_sample()
+    assert result.reported is None and result.reported_text == "not quantified"
+    assert "replicate 2 <0.05" in result.words and "replicate 1 0.0887" in result.words
+    table = window.results_view.table.model()
+    row = next(r for r in range(table.rowCount()) if table.index(r, 0).data() == sid)
+    shown = str(table.index(row, 0).data(Qt.ItemDataRole.ToolTipRole))  # the row's result in words
+    assert "replicate 2 <0.05" in shown and "replicate 1 0.0887" in shown

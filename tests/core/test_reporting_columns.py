@@ -17,7 +17,7 @@ import numpy as np
 import pytest
 
 from curvewright.core.inverse import QuantFlag
-from curvewright.core.reporting import ReportingRange, report_value, report_values
+from curvewright.core.reporting import ReportingRange, censored_word_reason, report_value, report_values
 from curvewright.core.rounding import RoundingRule
 from curvewright.core.run import Analyte, Measurement, Reading, Run, RunSettings, Sample, SampleKind, Standard
 from curvewright.core.run_analysis import analyse_run, response_value
@@ -86,7 +86,7 @@ def per_sample_definitions(run: Run, name: str) -> list[tuple]:
         measurements = sample.measurements_of(name)
         if not measurements:
             continue
-        values, notes, censored = [], [], None
+        values, notes, censored, read = [], [], None, []
         for m in measurements:
             value, reason = response_value(m.response, m.internal_standard_response, analyte.uses_internal_standard)
             if value is None:
@@ -94,6 +94,14 @@ def per_sample_definitions(run: Run, name: str) -> list[tuple]:
                 notes.append(f"replicate {m.replicate}: {reason}")
             else:
                 values.append(value)
+                read.append(f"replicate {m.replicate} {m.response.text}")
+        if censored is not None and values:  # censored and measured replicates: no mean, every reading named
+            censored = ("not quantified: the replicates mix censored and measured readings (censored: "
+                        + "; ".join(f"replicate {m.replicate} {m.response.text}" for m in measurements
+                                    if m.response.is_censored)
+                        + f"; measured: {'; '.join(read)}); no mean is formed from part of them: review the readings")
+        elif censored is not None:
+            censored = censored_word_reason(censored)
         rows.append((sample, values, "; ".join(notes), censored))
         if values and censored is None:
             means.append(float(np.mean(values)))
@@ -116,7 +124,7 @@ def per_sample_definitions(run: Run, name: str) -> list[tuple]:
                         value.flags if estimate is not None else engine, value.suggested_dilution, note))
             i += 1
         else:
-            reason = f"reported as censored: {censored}" if censored else (note or "no numeric response")
+            reason = censored or note or "no numeric response"
             note = reason if not note or reason == note else f"{reason}; {note}"
             value = report_value(None, df, None, rng, settings.rounding, unit=analyte.concentration_unit,
                                  below_limit=below_limit, not_quantified=note)

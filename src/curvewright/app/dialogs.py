@@ -7,7 +7,7 @@ from dataclasses import replace
 from pathlib import Path
 
 from PySide6.QtCore import Qt
-from PySide6.QtGui import QBrush
+from PySide6.QtGui import QBrush, QColor
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDialog, QDialogButtonBox, QDoubleSpinBox, QFormLayout, QLabel,
                                QLineEdit, QPlainTextEdit, QSpinBox, QTableWidget, QTableWidgetItem, QVBoxLayout,
                                QWidget)
@@ -19,7 +19,8 @@ from ..core.run import Analyte, Run
 from ..io import run_edits
 from ..io.audit import Identity
 from ..io.importing import ImportResult, import_samples, import_standards
-from ..io.tables import RawTable, table_from_csv, table_from_text, table_from_xlsx, xlsx_sheet_names
+from ..io.tables import (RawTable, default_sheet, hidden_rows_chosen, hidden_rows_listed, table_from_csv, table_from_text,
+                         table_from_xlsx, xlsx_sheets)
 from .standards_model import INVALID
 
 EXCLUSION_REASONS = (
@@ -256,8 +257,17 @@ class ImportDialog(QDialog):
         self.analyte = QLineEdit(analyte)
         form = QFormLayout()
         if not text and str(source).lower().endswith((".xlsx", ".xlsm")):
-            self.sheet.addItems(list(xlsx_sheet_names(source)))
+            sheets = xlsx_sheets(source)
+            for info in sheets:  # a hidden sheet is offered marked as such, never chosen first
+                self.sheet.addItem(info.label, info.name)
+            chosen = default_sheet(sheets)
+            if chosen is not None:
+                self.sheet.setCurrentIndex(sheets.index(chosen))
             form.addRow("&Sheet", self.sheet)
+        self.hidden_rows = QComboBox()  # shown only for a sheet with hidden rows: the analyst must choose
+        self.hidden_rows.addItems(list(HIDDEN_ROW_LABELS))
+        form.addRow("&Hidden rows", self.hidden_rows)
+        self.form = form
         form.addRow("&Decimal mark", self.decimal)
         form.addRow("&Thousands separator", self.thousands)
         form.addRow("&Analyte name (when the table has no analyte column)", self.analyte)
@@ -274,7 +284,7 @@ class ImportDialog(QDialog):
         layout.addWidget(self.preview, 3)
         layout.addWidget(self.summary, 1)
         layout.addWidget(self.buttons)
-        for combo in (self.sheet, self.decimal, self.thousands):
+        for combo in (self.sheet, self.hidden_rows, self.decimal, self.thousands):
             combo.currentIndexChanged.connect(self.refresh)
         self.analyte.editingFinished.connect(self.refresh)
         self.refresh()
@@ -284,32 +294,45 @@ class ImportDialog(QDialog):
             return table_from_text(str(self.source))
         path = str(self.source)
         if path.lower().endswith((".xlsx", ".xlsm")):
-            return table_from_xlsx(path, self.sheet.currentText() or None)
+            return table_from_xlsx(path, self.sheet.currentData() or None)
         return table_from_csv(path)
 
     def refresh(self) -> None:
         decimal = {0: None, 1: ".", 2: ","}[self.decimal.currentIndex()]
         thousands = {0: None, 1: ",", 2: ".", 3: " ", 4: "'"}[self.thousands.currentIndex()]
         importer = import_standards if self.what == "standards" else import_samples
+        options = dict(decimal_mark=decimal, thousands=thousands, analyte=self.analyte.text() or "analyte")
         try:
-            table = self.table()
-            self.result = importer(table, decimal_mark=decimal, thousands=thousands, analyte=self.analyte.text() or "analyte")
+            read = self.table()
+            self.form.setRowVisible(self.hidden_rows, bool(read.hidden_rows))
+            choice = HIDDEN_ROW_LABELS[self.hidden_rows.currentText()]
+            if read.hidden_rows and choice is None:  # shown, marked, but nothing imported until the analyst chooses
+                asked = hidden_rows_message(read)
+                self.result = None
+                self._fill(read, importer(read, **options), set(read.hidden_rows))
+                self.summary.setPlainText(asked)
+                self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(False)
+                return
+            table = hidden_rows_chosen(read, choice)
+            self.result = importer(table, **options)
         except CurvewrightError as exc:
             self.result = None
             self.summary.setPlainText(str(exc))
             self.preview.setRowCount(0)
             self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(False)
             return
-        self._fill(table, self.result)
+        self._fill(read, self.result, set(read.hidden_rows))
         self.summary.setPlainText(self.result.summary())
         self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(bool(self.result.standards or self.result.samples))
 
-    def _fill(self, table: RawTable, result: ImportResult) -> None:
+    def _fill(self, table: RawTable, result: ImportResult, hidden: set[int] = frozenset()) -> None:  # type: ignore[assignment]
+        """The preview: every row read, each cell with the value read from it, cells that cannot be used
+        red, and the sheet's hidden rows marked grey (row header "5 (hidden)")."""
         rows = list(zip(table.row_numbers, table.rows))
         width = max((len(r) for _, r in rows), default=0)
         self.preview.setRowCount(len(rows))
         self.preview.setColumnCount(width)
-        self.preview.setVerticalHeaderLabels([str(n) for n, _ in rows])
+        self.preview.setVerticalHeaderLabels([f"{n} (hidden)" if n in hidden else str(n) for n, _ in rows])
         bad = {(r.row, r.column.split(" ")[0]): r.reason for r in result.rejected}
         from ..io.number_text import parse_reading
 
@@ -324,12 +347,28 @@ class ImportDialog(QDialog):
                     elif parsed.reading is not None and parsed.reading.is_censored:
                         shown = f"{cell} → censored"
                 item = QTableWidgetItem(shown)
+                if number in hidden:
+                    item.setBackground(QBrush(HIDDEN_ROW))
+                    item.setToolTip("a hidden row of the sheet: choose whether hidden rows are included")
                 reason = bad.get((number, str(j + 1)))
                 if reason:
                     item.setBackground(QBrush(INVALID))
                     item.setToolTip(reason)
                 self.preview.setItem(i, j, item)
         self.preview.resizeColumnsToContents()
+
+
+HIDDEN_ROW_LABELS = {"choose whether they are imported…": None, "leave them out": "skip", "include them": "include"}
+"""The import dialog's choice for a sheet's hidden rows: words shown, and the choice of
+:func:`..io.tables.hidden_rows_chosen` (None: not yet chosen, nothing is imported)."""
+HIDDEN_ROW = QColor(215, 215, 215)
+
+
+def hidden_rows_message(table: RawTable) -> str:
+    """Why nothing is imported yet from a sheet with hidden rows, naming them."""
+    return (f"{table.source}: sheet {table.sheet!r} has hidden rows holding values: {hidden_rows_listed(table)}. "
+            "A hidden row may have been hidden to leave it out, or by accident: choose above whether they are "
+            "left out or included (they are marked grey below).")
 
 
 INTERVAL_LABELS = (

@@ -205,10 +205,10 @@ def report_value(
         )
         if not not_quantified and flags is not None and QuantFlag.BEYOND_TURNING_POINT in flags:
             reason += f"; {BEYOND_TURNING_POINT_ADVICE}"
-        censored = reason.startswith("reported as censored")
+        censored = reason.startswith((CENSORED_BELOW, CENSORED_BOUND))
         if _nothing_recorded(reason):  # said as such in every output, not as a failure to quantify
             return ReportedValue(ReportStatus.NOT_QUANTIFIED, NO_RESPONSE, reason, "no response", flags)
-        return ReportedValue(ReportStatus.NOT_QUANTIFIED, "not quantified" if not censored else reason.split(": ", 1)[-1],
+        return ReportedValue(ReportStatus.NOT_QUANTIFIED, "not quantified" if not censored else censored_text(reason),
                              reason, "censored" if censored else "not quantified", flags)
     bits = QuantFlag(0)
     if estimate < rng.lloq:
@@ -230,6 +230,87 @@ def report_value(
     return _numeric_value(estimate, dilution, bits, (qualifiers, short_qualifiers),
                           _dilution_texts(dilution, rng, rule, unit), lambda: rule.text_within(estimate * dilution, *_diluted(interval, dilution)), rng,
                           unit, below_limit == "estimate", detection is not None and estimate < detection)
+
+
+CENSORED_BELOW = "reported as censored: "
+"""How the reason of a censored result begins when it states a non-detect or a concentration below the
+reporting limit (what a calibration blank is asked to show)."""
+CENSORED_BOUND = "reported as a censored bound: "
+"""How the reason of any other censored result that is reported as a statement begins ("> 50 µg/L")."""
+_EXPLAINED = " — "
+
+
+def censored_text(reason: str) -> str:
+    """What stands for a censored result: the statement of its reason, before its explanation
+    ("reported as censored: < 0.500 µg/L (LLOQ) — …; replicate 1: …" gives "< 0.500 µg/L (LLOQ)")."""
+    rest = reason.split(": ", 1)[-1]
+    return rest.split(_EXPLAINED, 1)[0].split("; ", 1)[0]
+
+
+def censored_word_reason(word: str) -> str:
+    """The reason of a result whose readings are all the one censoring word ("ND", "BLQ", ">ULOQ"…):
+    the word stands for the result, as entered; only words of a result above the range (">ULOQ")
+    are not a non-detect."""
+    start = CENSORED_BOUND if word.startswith(">") else CENSORED_BELOW
+    return (f"{start}{word}{_EXPLAINED}the word entered for the response, reported as entered "
+            "(no concentration is read from it)")
+
+
+def censored_bound_reason(sign: str, response_text: str, bound: float, increasing: bool, dilution: float,
+                          rng: ReportingRange, rule: RoundingRule, unit: str = "", response_unit: str = "") -> str:
+    """Why, and as what, a sample whose response was entered as a limit ("<20", ">2500") is reported.
+
+    The limit is a RESPONSE. Read through the curve it gives ``bound``, the concentration in the
+    solution measured (NaN where the curve never gives that response). On a rising curve a response
+    below the limit means a concentration below ``bound`` (on a falling curve, above it), and the
+    dilution factor multiplies it: the sample is reported as "< bound × dilution". Where the bound
+    lies below the reporting limit the sample is reported as below that limit ("< 0.500 µg/L (LLOQ)"),
+    as a measured result there is; where it lies above the ULOQ, "> ULOQ". A bound that says nothing
+    within the calibrated range (an upper bound above the ULOQ, a lower bound below the LLOQ) or that
+    the curve cannot give is not reported: the reason (a "not quantified: …" text) says why. The
+    returned reason begins with :data:`CENSORED_BELOW` or :data:`CENSORED_BOUND` when a statement is
+    reported (:func:`censored_text` gives it).
+    """
+    u = f" {unit}" if unit else ""
+    ru = f" {response_unit}" if response_unit else ""
+    diluted, limit_text, uloq_text, _, _ = _dilution_texts(dilution, rng, rule, unit)
+    entered = f"the response was entered as {response_text}{ru}, a limit of the response, not a concentration"
+    if not math.isfinite(bound):
+        return f"not quantified: {entered}, and the curve never gives the response {response_text[1:].strip()}{ru}"
+    below = (sign == "<") == increasing  # the concentration lies below the bound
+    read = (f"{entered}; read through the curve it gives {rule.text(bound)}{u} in the solution measured"
+            + (f" ({rule.text(bound * dilution)}{u} with the dilution factor {dilution:g})" if dilution != 1 else ""))
+    if below and bound < rng.reporting_limit:
+        return f"{CENSORED_BELOW}< {limit_text}{_EXPLAINED}{read}, below the reporting limit"
+    if below and bound > rng.uloq:
+        return (f"not quantified: {read}, above the calibrated range (ULOQ {uloq_text}): a bound read beyond the "
+                "standards is not reported; re-assay diluted")
+    if not below and bound > rng.uloq:
+        return f"{CENSORED_BOUND}> {uloq_text} (ULOQ{diluted}){_EXPLAINED}{read}, above the calibrated range"
+    if not below and bound < rng.lloq:
+        return (f"not quantified: {read}, below the calibrated range (LLOQ {rule.text(rng.lloq * dilution)}{u}): "
+                "a lower bound there says nothing of the concentration")
+    statement = f"{'<' if below else '>'} {_outward(rule, bound * dilution, below)}{u}"
+    return f"{CENSORED_BOUND}{statement}{_EXPLAINED}{read}"
+
+
+def _outward(rule: RoundingRule, value: float, up: bool) -> str:
+    """``value`` rounded under ``rule`` away from the inside of a bound: up for an upper bound, down
+    for a lower one, so that the statement shown is never stricter than the one worked out
+    (< 2.9917 is shown as "< 3.00", not "< 2.99"; < 123,456.7 as "< 124000")."""
+    text = rule.text(value)
+    try:
+        shown = float(text)
+    except ValueError:
+        return text
+    if not math.isfinite(value) or value == 0 or ((shown >= value) if up else (shown <= value)):
+        return text
+    if rule.kind == "significant":
+        step = 10.0 ** (math.floor(math.log10(abs(value))) - rule.digits + 1)
+    else:
+        step = 10.0 ** -rule.digits
+    steps = math.ceil(value / step) if up else math.floor(value / step)
+    return rule.text(steps * step)
 
 
 def _diluted(interval: tuple[float | None, float | None], dilution: float) -> tuple[float | None, float | None]:

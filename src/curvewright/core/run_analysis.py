@@ -5,7 +5,9 @@ or more and a numeric response (and, for internal-standard calibration, the rati
 response); any other included standard is reported as not usable, with the reason. Each sample's replicate responses
 are averaged (m = number of numeric replicates) and read through the curve; the dilution factor
 multiplies the estimate and both interval ends to give the reported concentration. A censored
-replicate ("ND", "<0.5") gives no numeric result: the sample is reported with its censored text.
+replicate gives no numeric result: a response limit ("<20") is read through the curve and reported as
+a concentration statement (times the dilution), a word ("ND") as entered, and a sample whose replicates
+mix censored and measured readings is not quantified, every reading named (:func:`_censored_reasons`).
 
 Each result is then reported against the calibrated range (LLOQ–ULOQ, the non-zero standards in the
 fit) and the reporting limit (:mod:`.reporting`): one status per result, and its words. QC samples
@@ -32,8 +34,10 @@ from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag
 from .limit_digits import BOUNDARY
 from .limits import DetectionLimits
-from .reporting import NO_RESPONSE, FlagBits, ReportingRange, ReportStatus, report_columns, report_value, reporting_range
-from .run import Analyte, Reading, Run, Sample, SampleKind, Standard
+from .reporting import (NO_RESPONSE, FlagBits, ReportingRange, ReportStatus, censored_bound_reason, censored_word_reason,
+                        report_columns, report_value, reporting_range)
+from .rounding import RoundingRule
+from .run import Analyte, Measurement, Reading, Run, Sample, SampleKind, Standard
 from .unread_text import why_not_read
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -745,7 +749,8 @@ def _quantify_samples(
     values = array("d")
     counts_list = array("q")
     notes: list[str] = []
-    censored_of: dict[int, str] = {}
+    censored_of: dict[int, list[tuple[Measurement, float | None]]] = {}
+    measured_of: dict[int, list[Measurement]] = {}
     for sample in run.samples:
         measurements = [m for m in sample.measurements if m.analyte == name]
         if not measurements and not _awaits_response(sample, name):
@@ -756,11 +761,14 @@ def _quantify_samples(
             value, reason = response_value(m.response, m.internal_standard_response, ratio)
             if value is None:
                 if m.response.is_censored:
-                    censored_of[r] = m.response.text
+                    censored_of.setdefault(r, []).append((m, _censored_limit(m, ratio)))
                 reasons_here.append(f"replicate {m.replicate}: {reason}")
             else:
                 values.append(value)
                 count += 1
+        if count and r in censored_of:  # censored and measured replicates: the measured ones are named too
+            measured_of[r] = [m for m in measurements
+                              if response_value(m.response, m.internal_standard_response, ratio)[0] is not None]
         ids.append(sample.id)
         kinds.append(sample.kind)
         run_orders.append(sample.run_order)
@@ -811,14 +819,14 @@ def _quantify_samples(
             for column in (estimate, standard_error, lower, upper):
                 column[beyond] = np.nan
             engine_bits[beyond] = int(QuantFlag.BEYOND_TURNING_POINT)
+    censored_reasons = _censored_reasons(censored_of, measured_of, cal, analyte, rng, settings.rounding, dilution)
     reasons = [""] * n
     no_estimate = np.isnan(estimate).tolist()
     for r, (done, note) in enumerate(zip(quantified.tolist(), notes)):
         if done:  # quantified: without an estimate (no solution), the replicates' notes say why
             reasons[r] = note if no_estimate[r] else ""
             continue
-        censored = censored_of.get(r)
-        reason = f"reported as censored: {censored}" if censored else (refusal or note or "no numeric response")
+        reason = censored_reasons.get(r) or refusal or note or "no numeric response"
         reasons[r] = reason if not note or reason == note else f"{reason}; {note}"
     reported = report_columns(estimate, dilution, FlagBits(engine_bits), rng, settings.rounding,
                               unit=analyte.concentration_unit,
@@ -842,6 +850,80 @@ def _quantify_samples(
         statuses=reported.statuses, texts=reported.texts, words=reported.words, shorts=reported.shorts,
         suggested_dilution=reported.suggested_dilution,
     )
+
+
+MIXED_READINGS = "the replicates mix censored and measured readings"
+"""How the reason of a sample not quantified for mixing censored and measured replicates names it."""
+
+
+def _censored_limit(m: Measurement, ratio: bool) -> float | None:
+    """The response limit of a censored reading ("<20": 20), as the fit's responses are (for ratio
+    calibration divided by the internal-standard response); None for a word ("ND") or where the
+    ratio cannot be formed."""
+    limit = m.response.limit
+    if limit is None or m.response.qualifier not in ("<", ">"):
+        return None
+    if not ratio:
+        return float(limit)
+    istd = m.internal_standard_response
+    if istd is None or not istd.is_number or istd.value <= 0:  # type: ignore[operator]
+        return None
+    return float(limit) / float(istd.value)  # type: ignore[arg-type]
+
+
+def _censored_reasons(censored_of: dict[int, list[tuple[Measurement, float | None]]],
+                      measured_of: dict[int, list[Measurement]], cal: Calibration, analyte: Analyte,
+                      rng: ReportingRange, rule: RoundingRule, dilution: np.ndarray) -> dict[int, str]:
+    """What each sample with a censored reading is reported as (its reason; see
+    :func:`.reporting.censored_bound_reason`).
+
+    A sample whose replicates mix censored and measured readings is not quantified: no mean is formed
+    from part of its readings, and the reason names every reading of both kinds. Replicates all "<"
+    limits are read at the largest limit, all ">" at the smallest (each replicate's response lies
+    beyond its own limit, so the mean lies beyond that one); replicates all the same word ("ND") are
+    reported as that word; any other mixture is not quantified, its readings named. The response
+    limits are read through the curve in one call."""
+    reasons: dict[int, str] = {}
+    wanted: dict[int, tuple[str, float, str]] = {}
+    for r, entries in censored_of.items():
+        texts = [f"replicate {m.replicate} {m.response.text.strip()}" for m, _ in entries]
+        measured = measured_of.get(r)
+        if measured:
+            shown = "; ".join(f"replicate {m.replicate} {m.response.text.strip()}" for m in measured)
+            reasons[r] = (f"not quantified: {MIXED_READINGS} (censored: "
+                          f"{'; '.join(texts)}; measured: {shown}); no mean is formed from part of them: "
+                          "review the readings")
+            continue
+        signs = {m.response.qualifier for m, _ in entries}
+        limits = [limit for _, limit in entries]
+        if len(signs) == 1 and None not in limits and signs <= {"<", ">"}:
+            sign = signs.pop()
+            pick = max if sign == "<" else min
+            limit, text = pick(((lim, m.response.text.strip()) for m, lim in entries), key=lambda e: e[0])
+            wanted[r] = (sign, limit, text)
+        elif len({m.response.text.strip().upper() for m, _ in entries}) == 1 and None in limits:
+            word = entries[0][0].response.text.strip()
+            reasons[r] = (censored_word_reason(word) if entries[0][0].response.limit is None else
+                          f"not quantified: the censored response {word} cannot be read through the curve "
+                          "(no internal-standard response for the ratio)")
+        else:
+            reasons[r] = f"not quantified: the replicates are censored differently ({'; '.join(texts)})"
+    if wanted:
+        rows = list(wanted)
+        responses = np.array([wanted[r][1] for r in rows])
+        with np.errstate(all="ignore"):
+            try:
+                quant = cal.quantify(responses, 1)
+                bounds = np.where((quant.flag_bits & int(QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_TURNING_POINT)) != 0, np.nan, quant.estimate)
+            except CurvewrightError:
+                bounds = np.full(len(rows), np.nan)
+            low, high = cal.predict(np.array([rng.lloq, rng.uloq]))
+        increasing = bool(high > low)
+        for r, bound in zip(rows, bounds.tolist()):
+            sign, _, text = wanted[r]
+            reasons[r] = censored_bound_reason(sign, text, float(bound), increasing, float(dilution[r]), rng, rule,
+                                               analyte.concentration_unit, analyte.response_unit)
+    return reasons
 
 
 def _awaits_response(sample: Sample, analyte: str) -> bool:

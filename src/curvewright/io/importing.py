@@ -39,7 +39,7 @@ from .number_text import (
     parse_reading,
     thousands_separator_in,
 )
-from .tables import Cell, RawTable
+from .tables import Cell, RawTable, hidden_rows_note
 
 STANDARD_FIELDS = ("id", "analyte", "level", "concentration", "response", "replicate", "is_response")
 SAMPLE_FIELDS = ("id", "analyte", "kind", "run_order", "dilution", "nominal", "response", "replicate", "is_response")
@@ -112,6 +112,20 @@ class RejectedCell:
 
 class ColumnMappingProblem(ImportProblem):
     """A column named by the caller (header text or number) is not in the table, or fits more than one."""
+
+
+def table_place(table: RawTable) -> str:
+    """Where a table was read from, as messages name it: the file, and the sheet of a workbook."""
+    return table.source if table.sheet is None else f"{table.source}, sheet {table.sheet!r}"
+
+
+HEADER_SEARCH_ROWS = 20
+"""How many rows below a title a header row is looked for, to name the rows above it."""
+REPLICATE_FIELDS = ("response",)
+"""Sample fields that may be taken from several columns, each a further replicate of the row's sample."""
+SKIP = "skip"
+"""The pseudo-field of a column left out on purpose (no further reading is looked for in it)."""
+_NUMBERED = re.compile(r"^(.*?)[\s_#.-]*(\d+)$")
 
 
 class MissingColumns(ImportProblem):
@@ -194,6 +208,13 @@ class ImportResult:
     unused_columns: tuple[str, ...] = ()
     sheet: str | None = None
     """The workbook sheet the table was read from (None for text)."""
+    hidden_sheet: bool = False
+    """That sheet is hidden in the workbook (read because it was named)."""
+    hidden_rows: str = ""
+    """What was done with the sheet's hidden rows, as chosen (:func:`.tables.hidden_rows_note`)."""
+    replicate_columns: str = ""
+    """Which columns the responses were read from when several, each a replicate, and the empty
+    cells among them passed over, in words ("" for one response column)."""
     dilution_taken_as_one: tuple[int, ...] = ()
     """Rows of samples imported whose dilution cell is empty, in a table with a dilution column:
     the factor was taken as 1 (no dilution), as documented, and the front end says so."""
@@ -206,7 +227,11 @@ class ImportResult:
     def headline(self) -> str:
         """What was imported and how the text was read, in one line."""
         what = f"{len(self.standards)} standards" if self.standards or not self.samples else f"{len(self.samples)} samples"
-        return f"{self.source}: imported {what}; columns separated by {self.delimiter}; {self.decimal_note}"
+        where = self.source if self.sheet is None else (
+            f"{self.source}, sheet {self.sheet!r}" + (" (hidden in the workbook; read because it was named)"
+                                                      if self.hidden_sheet else ""))
+        hidden = "".join(f"; {said}" for said in (self.replicate_columns, self.hidden_rows) if said)
+        return f"{where}: imported {what}; columns separated by {self.delimiter}; {self.decimal_note}{hidden}"
 
     def summary(self, answer: Callable[[Remedy], str] = dialog_answer) -> str:
         """The headline, then every cell not used, grouped by the option that answers it."""
@@ -304,6 +329,11 @@ def import_samples(
     seen_rows: dict[int, tuple[dict[str, int], dict[tuple[str, int], int]]] = {}
     dilution_column = "dilution" in ctx.mapping
     taken_as_one: list[int] = []
+    further_columns = ctx.replicate_columns.get("response", [])
+    if further_columns and "replicate" in ctx.mapping:
+        raise ColumnMappingProblem(f"{table_place(table)}: the response is mapped to several columns, each a "
+                                   "replicate, and the table has a replicate column too: map one or the other.")
+    passed_over: list[str] = []
     for row_number, cells in ctx.body():
         sid = ctx.text(cells, "id", row_number)
         if not sid:
@@ -317,6 +347,12 @@ def import_samples(
             ctx.reject(row_number, "kind", ctx.raw(cells, "kind").strip(), f"not a sample kind ({KIND_CHOICES})",
                        row_fails=True)
         response = ctx.sample_reading(cells, "response", row_number, sid)
+        further = []  # the row's readings in further replicate columns; an empty cell is no reading
+        for i in further_columns:
+            if _blank(cells[i] if i < len(cells) else "") and (row_number, i) not in ctx.formulas:
+                passed_over.append(f"row {row_number} column {ctx.label(i)}")
+            else:
+                further.append(ctx.reading_at(cells, i, "response", row_number, sid))
         is_response = ctx.sample_reading(cells, "is_response", row_number, sid) if "is_response" in ctx.mapping else None
         dilution = ctx.number(cells, "dilution", row_number)
         if dilution is not None and dilution <= 0:
@@ -329,6 +365,10 @@ def import_samples(
         if dilution is None and dilution_column:
             taken_as_one.append(row_number)
         assert response is not None and kind is not None
+        if None in further:
+            continue  # a further reading refused its row (a decimal mark or separator to choose)
+        if further:
+            replicate = None  # each column's reading numbered in turn, after the sample's earlier ones
         at = index.get(sid)  # a dict: the lookup stays constant-time however many samples
         if at is None:
             index[sid] = len(kinds)
@@ -338,7 +378,10 @@ def import_samples(
             nominals.append(None if nominal is None else {name: nominal})
             measured.append(Measurement(name, 1 if replicate is None else replicate, response, is_response))
             firsts.append(row_number)
-            continue
+            if not further:
+                continue
+            response, further = further[0], further[1:]
+            at = index[sid]
         first = firsts[at]
         if kinds[at] is not kind:
             ctx.reject(row_number, "kind", ctx.raw(cells, "kind"),
@@ -372,6 +415,11 @@ def import_samples(
         assert isinstance(several, list)
         several.append(Measurement(name, replicate, response, is_response))
         counts[name] = counts.get(name, 0) + 1
+        for reading in further:
+            replicate = 1 + counts.get(name, 0)
+            several.append(Measurement(name, replicate, reading, is_response))
+            rows[name, replicate] = row_number
+            counts[name] = replicate
     samples = tuple(
         Sample(sid, kinds[i], orders[i], dilutions[i],
                (measured[i],) if type(measured[i]) is Measurement else tuple(measured[i]),  # type: ignore[arg-type]
@@ -379,7 +427,15 @@ def import_samples(
         for sid, i in index.items()
     )
     failed = ctx.failed_rows
-    return ctx.result(samples=samples, dilution_taken_as_one=tuple(r for r in taken_as_one if r not in failed))
+    columns = ""
+    if further_columns:
+        named = [ctx.column_name("response")] + [ctx.label(i) for i in further_columns]
+        columns = f"responses read from the columns {', '.join(named)}, each a replicate"
+        if passed_over:
+            columns += f"; empty replicate cells passed over: {', '.join(passed_over[:10])}" + (
+                f" … and {len(passed_over) - 10} more" if len(passed_over) > 10 else "")
+    return ctx.result(samples=samples, dilution_taken_as_one=tuple(r for r in taken_as_one if r not in failed),
+                      replicate_columns=columns)
 
 
 def header_words(header: str) -> tuple[str, str]:
@@ -418,10 +474,24 @@ class _Context:
         header_row, header = rows[0]
         self.header_row = header_row
         self.headers = [str(h).strip() if not isinstance(h, float) else repr(h) for h in header]
-        self.mapping, self.units = self._map_columns(fields, mapping or {})
+        override = dict(mapping or {})
+        several = {f: list(override.pop(f)) for f in list(override) if isinstance(override[f], (list, tuple))}
+        skipped = several.pop(SKIP, [override.pop(SKIP)] if SKIP in override else [])
+        for f, wheres in several.items():
+            if f not in REPLICATE_FIELDS or fields is not SAMPLE_FIELDS:
+                raise ColumnMappingProblem(f"{table_place(table)}: column mapping: {f} is mapped to "
+                                           f"{len(wheres)} columns; only a samples table's response may take several "
+                                           "(each a further replicate)")
+            override[f] = wheres[0]
+        normal = [header_words(h) for h in self.headers]
+        self.replicate_columns = {f: [self._column_of(f, w, normal) for w in wheres[1:]] for f, wheres in several.items()}
+        self.skipped = [self._column_of(SKIP, w, normal) for w in skipped]
+        self.mapping, self.units = self._map_columns(fields, override)
         missing = [f for f in required if f not in self.mapping]
         if missing:
-            raise MissingColumns(table.source, header_row, self.headers, missing)
+            self._refuse_rows_above_header(rows, required, override)
+            raise MissingColumns(table_place(table), header_row, self.headers, missing)
+        self._check_replicate_columns()
         self.rows = rows[1:]
         used = set(self.mapping.values())
         self.formula_rows = {row for row, column in self.formulas if column in used}
@@ -443,23 +513,71 @@ class _Context:
         self.decimal_mark = decimal_mark
         self.decimal_conflict = decimal_mark is None and self.evidence.conflict
 
+    def _refuse_rows_above_header(self, rows: list[tuple[int, tuple[Cell, ...]]], required: tuple[str, ...],
+                                  override: Mapping[str, str | int]) -> None:
+        """Stop with the same advice a text table gets when the header row stands below a title or batch
+        line (a workbook's merged title in row 1, the header in row 2): the rows above it are named."""
+        for n, (row_number, cells) in enumerate(rows[1:HEADER_SEARCH_ROWS], start=1):
+            words = {header_words(str(c))[0] for c in cells if isinstance(c, str) and c.strip()}
+            texts = {str(c).strip() for c in cells if isinstance(c, str)}
+            if all(f in override and str(override[f]) in texts or words & set(SYNONYMS[f]) for f in required):
+                above = "; ".join(f"row {r} ({', '.join(repr(c) for c in row if not _blank(c)) or 'empty'})"
+                                  for r, row in rows[:n])
+                found = ", ".join(repr(str(c).strip()) for c in cells if not _blank(c))
+                raise ImportProblem(
+                    f"{table_place(self.table)}: the header row must be the first row of the table: delete the rows "
+                    f"above it (a title, a batch line): {above}. The header stands in row {row_number} ({found}).")
+
+    def _column_of(self, f: str, where: str | int, normal: list[tuple[str, str]]) -> int:
+        """The 0-based column a mapping names (a 1-based number or a header text)."""
+        if isinstance(where, int):
+            if not (1 <= where <= len(self.headers)):
+                raise ColumnMappingProblem(
+                    f"{table_place(self.table)}: column mapping: {f} → column {where}, but the table has "
+                    f"{len(self.headers)} columns."
+                )
+            return where - 1
+        return self._header_index(f, where, normal)
+
+    def _check_replicate_columns(self) -> None:
+        """Refuse a samples table whose unmapped columns look like further readings of the response
+        column ("Response 1" mapped, "Response 2" and "Response 3" not): reading one of three readings
+        as the sample's result would drop the others without a word."""
+        if "response" not in self.mapping or self.replicate_columns.get("response"):
+            return
+        if "replicate" in self.mapping:
+            return  # one reading per row, numbered by its own column
+        stem = _NUMBERED.match(self.headers[self.mapping["response"]])
+        if stem is None:
+            return
+        base = header_words(stem.group(1))[0]
+        taken = set(self.mapping.values()) | set(self.skipped)
+        alike = [self.headers[i] for i in range(len(self.headers)) if i not in taken
+                 and (m := _NUMBERED.match(self.headers[i])) and header_words(m.group(1))[0] == base]
+        if not alike:
+            return
+        first = self.headers[self.mapping["response"]]
+        maps = " ".join(f'--map samples.response="{h}"' for h in [first, *alike])
+        raise ColumnMappingProblem(
+            f"{table_place(self.table)}: the response is read from column {first!r}, but the columns "
+            f"{', '.join(repr(h) for h in alike)} look like further readings of the same samples, and would not be "
+            f"read. Map every column of readings to the response, each read as a further replicate ({maps}), or "
+            f"leave a column out on purpose (--map samples.skip=\"{alike[0]}\")."
+        )
+
     def _map_columns(self, fields, override):  # type: ignore[no-untyped-def]
         mapping: dict[str, int] = {}
         units: dict[str, str] = {}
         normal = [header_words(h) for h in self.headers]
         for f, where in override.items():
             if f not in fields:
-                raise ColumnMappingProblem(f"{self.table.source}: column mapping: {f!r} is not one of {', '.join(fields)}.")
-            if isinstance(where, int):
-                if not (1 <= where <= len(self.headers)):
-                    raise ColumnMappingProblem(
-                        f"{self.table.source}: column mapping: {f} → column {where}, but the table has "
-                        f"{len(self.headers)} columns."
-                    )
-                mapping[f] = where - 1
-            else:
-                mapping[f] = self._header_index(f, where, normal)
-        taken = set(mapping.values())
+                raise ColumnMappingProblem(f"{table_place(self.table)}: column mapping: {f!r} is not one of {', '.join(fields)}.")
+            mapping[f] = self._column_of(f, where, normal)
+        taken = set(mapping.values()) | set(self.skipped)
+        for columns in self.replicate_columns.values():
+            taken.update(columns)
+        if len(taken) < len(mapping) + len(self.skipped) + sum(map(len, self.replicate_columns.values())):
+            raise ColumnMappingProblem(f"{table_place(self.table)}: column mapping: one column is mapped twice.")
         for f in fields:
             if f in mapping:
                 continue
@@ -471,7 +589,8 @@ class _Context:
         for f, i in mapping.items():
             if normal[i][1]:
                 units[f] = normal[i][1]
-        self.unused = tuple(self.headers[i] for i in range(len(self.headers)) if i not in taken and self.headers[i])
+        self.unused = tuple(self.headers[i] for i in range(len(self.headers))
+                            if (i not in taken or i in self.skipped) and self.headers[i])
         if self.unused:
             self.warnings.append(f"columns not used: {', '.join(repr(u) for u in self.unused)}")
         return mapping, units
@@ -485,11 +604,11 @@ class _Context:
         headers = ", ".join(repr(h) for h in self.headers)
         if not matches:
             raise ColumnMappingProblem(
-                f"{self.table.source}: column mapping: {f} → {where!r}, but no header is {where!r} (headers: {headers})."
+                f"{table_place(self.table)}: column mapping: {f} → {where!r}, but no header is {where!r} (headers: {headers})."
             )
         if len(matches) > 1:
             raise ColumnMappingProblem(
-                f"{self.table.source}: column mapping: {f} → {where!r} fits columns "
+                f"{table_place(self.table)}: column mapping: {f} → {where!r} fits columns "
                 f"{', '.join(str(i + 1) for i in matches)}; give the column number instead."
             )
         return matches[0]
@@ -507,8 +626,19 @@ class _Context:
             yield row_number, cells
 
     def column_name(self, f: str) -> str:
-        i = self.mapping[f]
-        return f"{i + 1} ({self.headers[i]})" if self.headers[i] else str(i + 1)
+        return self.label(self.mapping[f])
+
+    def dated(self, row: int, i: int | None, reason: str) -> str:
+        """The reason a cell cannot be used, said of a date where the workbook holds one there: a number
+        the spreadsheet program turned into a date ("1-10" typed as a dilution) reads as a date."""
+        if i is None or (row, i) not in self.table.dates:
+            return reason
+        return ("is a date in the workbook, not a number (the spreadsheet program probably turned what was typed "
+                "into a date: format the cell as a number and type the value again)")
+
+    def label(self, i: int) -> str:
+        """Column ``i`` (0-based) as messages name it: "5 (Response 3)"."""
+        return f"{i + 1} ({self.headers[i]})" if i < len(self.headers) and self.headers[i] else str(i + 1)
 
     def raw(self, cells: tuple[Cell, ...], f: str) -> str:
         if f not in self.mapping or self.mapping[f] >= len(cells):
@@ -516,10 +646,13 @@ class _Context:
         value = cells[self.mapping[f]]
         return repr(value) if isinstance(value, float) else value
 
-    def reject(self, row: int, f: str, text: str, reason: str, *, row_fails: bool, remedy: Remedy | None = None) -> None:
+    def reject(self, row: int, f: str, text: str, reason: str, *, row_fails: bool, remedy: Remedy | None = None,
+               at: int | None = None) -> None:
         if remedy is not None:
             reason = reason.split("; ", 1)[0]  # the advice is given once, with the remedy
-        column = self.column_name(f) if f in self.mapping else f
+        index = at if at is not None else self.mapping.get(f)
+        reason = self.dated(row, index, reason)
+        column = self.label(at) if at is not None else self.column_name(f) if f in self.mapping else f
         self.rejected.append(RejectedCell(row, column, text, reason, remedy))
         if row_fails:
             self.failed_rows.add(row)
@@ -614,26 +747,29 @@ class _Context:
         a value that needs the table's decimal mark or thousands separator refuses the row."""
         if f not in self.mapping:
             return None
-        i = self.mapping[f]
+        return self.reading_at(cells, self.mapping[f], f, row, sample_id)
+
+    def reading_at(self, cells: tuple[Cell, ...], i: int, f: str, row: int, sample_id: str) -> Reading:
+        """The reading of column ``i`` (field ``f``), as :meth:`sample_reading` reads it."""
         value = cells[i] if i < len(cells) else ""
         if isinstance(value, float):
             return Reading(value, repr(value))
         what = "response" if f == "response" else "internal-standard response"
         if not value and (formula := self.formulas.get((row, i))) is not None:
-            self.unusable.append(RejectedCell(row, self.column_name(f), formula,
+            self.unusable.append(RejectedCell(row, self.label(i), formula,
                                               f"{UNCALCULATED}; sample {sample_id!r} is reported without this {what}"))
             return Reading(None, formula)  # kept as typed, as text that is not a number is
         reading, problem, remedy = self.parse(value)
         if problem and remedy is not None:
-            self.reject(row, f, value, problem, row_fails=True, remedy=remedy)
+            self.reject(row, f, value, problem, row_fails=True, remedy=remedy, at=i)
             return None
         if problem:
-            self.unusable.append(RejectedCell(row, self.column_name(f), value,
-                                              f"{problem}; sample {sample_id!r} is reported without this {what}"))
+            self.unusable.append(RejectedCell(row, self.label(i), value, f"{self.dated(row, i, problem)}; sample "
+                                              f"{sample_id!r} is reported without this {what}"))
             return Reading(None, value)
         assert reading is not None
         if reading.is_missing:
-            self.unusable.append(RejectedCell(row, self.column_name(f), value,
+            self.unusable.append(RejectedCell(row, self.label(i), value,
                                               f"empty: no {what} recorded; sample {sample_id!r} is reported without it"))
         return reading
 
@@ -689,6 +825,8 @@ class _Context:
             unusable_readings=tuple(c for c in self.unusable if c.row not in self.failed_rows),
             unused_columns=self.unused,
             sheet=self.table.sheet,
+            hidden_sheet=self.table.hidden_sheet,
+            hidden_rows=hidden_rows_note(self.table),
             **parts,
         )
 

@@ -78,7 +78,8 @@ SHORT_FLAG_LEGEND = (
     ("not reportable", "a number exists, but the calibration checks do not bracket the sample"),
     ("not quantified", "no numeric result (a response that is not a number, or none the curve can read)"),
     ("no response", "no response was entered for the sample: reported as “no response recorded”"),
-    ("censored", "reported as entered (e.g. ND, < 0.5)"),
+    ("censored", "the response was entered as a limit (< 20) or a word (ND): a limit is read through the curve and "
+                 "reported as the concentration it bounds, times the dilution; a word as entered"),
     ("open interval", "the calibration cannot bound the concentration on one side"),
     ("two roots", "the curve reaches the response twice within the calibrated range"),
     ("turning point", "the response lies beyond the curve's extreme; read at the extreme"),
@@ -458,7 +459,9 @@ def _evidence_printed(table: Table, rule) -> PrintedTable:  # type: ignore[no-un
 
 
 def _samples_printed(result: RunResult, a: AnalyteResult) -> PrintedTable:
-    """The samples of one analyte, the flags as short words (the legend below the table)."""
+    """The samples of one analyte, the flags as short words (the legend below the table), and every
+    reading of a sample whose replicates mix censored and measured readings."""
+    from ..core.run_analysis import MIXED_READINGS
     from .result_tables import format_value, interval_text
 
     rule = result.run.settings.rounding
@@ -478,6 +481,11 @@ def _samples_printed(result: RunResult, a: AnalyteResult) -> PrintedTable:
     legend = "Flags: " + "; ".join(f"{short} — {meaning}" for short, meaning in SHORT_FLAG_LEGEND
                                    if used & {w.strip() for w in short.split("/")}) + ". " + \
              "Each sample's flags in full are in the workbook."
+    mixed = [f"{s.sample_id} ({s.note.split('(', 1)[1].split(')', 1)[0]})" for s in a.samples
+             if MIXED_READINGS in s.note]
+    if mixed:  # every reading of these samples is named here, none left to the workbook alone
+        legend += (f" Not quantified because {MIXED_READINGS} (no mean is formed from part of them): "
+                   + "; ".join(mixed) + ".")
     return PrintedTable(f"Samples – {a.analyte.name}", SAMPLE_COLUMNS, tuple(rows),
                         (False, False, True, True, True, True, True, True, False, True, False), legend,
                         (True,) + (False,) * (len(SAMPLE_COLUMNS) - 1))

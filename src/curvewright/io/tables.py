@@ -7,6 +7,7 @@ sees it, 1-based, and ``column`` the 1-based column. Workbook numbers stay numbe
 from __future__ import annotations
 
 import csv
+import datetime
 import io
 import math
 import re
@@ -14,7 +15,7 @@ import zipfile
 import zlib
 from collections.abc import Iterator
 from contextlib import contextmanager
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any
 
@@ -40,6 +41,16 @@ class RawTable:
     uncalculated: tuple[tuple[int, int, str], ...] = ()
     """(row number, 0-based column, formula) of each workbook cell holding a formula with no
     calculated value: read as empty text, and refused by the importer wherever it is read."""
+    hidden_sheet: bool = False
+    """The sheet read is hidden in the workbook (read only because it was named)."""
+    hidden_rows: tuple[int, ...] = ()
+    """Row numbers of the sheet's rows that are hidden and hold a value (the importer asks whether
+    they are left out or included: :func:`hidden_rows_chosen`)."""
+    hidden_rows_choice: str = ""
+    """What was chosen for :attr:`hidden_rows`: "" (not yet), "include" or "skip"."""
+    dates: frozenset[tuple[int, int]] = frozenset()
+    """(row number, 0-based column) of each workbook cell holding a date or time (its text is the
+    date's): the importer says so where a number was expected."""
 
     @property
     def delimiter_name(self) -> str:
@@ -223,15 +234,52 @@ def _position(data: bytes, offset: int) -> tuple[int, int]:
 
 
 def xlsx_sheet_names(path: str | Path) -> tuple[str, ...]:
+    return tuple(sheet.name for sheet in xlsx_sheets(path))
+
+
+@dataclass(frozen=True)
+class SheetInfo:
+    """One sheet of a workbook: its name, whether it is shown (not hidden, not "very hidden") and
+    whether it is the sheet the workbook opens on (the active one)."""
+
+    name: str
+    visible: bool
+    active: bool
+
+    @property
+    def label(self) -> str:
+        """The sheet's name as offered for a choice, a hidden one marked so."""
+        return self.name if self.visible else f"{self.name} (hidden)"
+
+
+def xlsx_sheets(path: str | Path) -> tuple[SheetInfo, ...]:
+    """The sheets of a workbook, in their order, each with whether it is shown and active."""
     path = Path(path)
     data = _read_bytes(path)
     check_workbook(data, str(path))
     with _workbook(path, data) as workbook:
-        return tuple(workbook.sheetnames)
+        return _sheet_infos(workbook)
+
+
+def _sheet_infos(workbook: Any) -> tuple[SheetInfo, ...]:
+    try:
+        active = workbook.active.title if workbook.active is not None else None
+    except (AttributeError, IndexError):
+        active = None
+    return tuple(SheetInfo(name, getattr(workbook[name], "sheet_state", "visible") == "visible", name == active)
+                 for name in workbook.sheetnames)
+
+
+def default_sheet(sheets: tuple[SheetInfo, ...]) -> SheetInfo | None:
+    """The sheet read when none is named: the active sheet when it is shown, else the first shown
+    sheet. A hidden sheet (often an old template's data) is never read unless it is named."""
+    shown = [s for s in sheets if s.visible]
+    return next((s for s in shown if s.active), shown[0] if shown else None)
 
 
 def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
-    """Read one sheet (the first when ``sheet`` is None) in read-only mode, taking the values the
+    """Read one sheet (when ``sheet`` is None the active sheet, or the first shown one: never a
+    hidden sheet, :func:`default_sheet`) in read-only mode, taking the values the
     spreadsheet stored (a formula cell gives its last calculated value; one never calculated reads
     as empty and is listed in ``RawTable.uncalculated``, which the importer refuses wherever it is
     read, so that no default stands in for it). Every row the sheet holds is read,
@@ -248,12 +296,19 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
     numbers: list[int] = []
     formulas = _holds_formulas(data)
     empties: list[tuple[int, int]] = []
+    dates: list[tuple[int, int]] = []
     with _workbook(path, data) as workbook:
-        name = sheet or (workbook.sheetnames[0] if workbook.sheetnames else None)
-        if name is None:
+        infos = _sheet_infos(workbook)
+        listed = ", ".join(s.label for s in infos)
+        if not workbook.sheetnames:
             raise ImportProblem(f"{path}: the workbook has no sheets.")
+        chosen = default_sheet(infos)
+        if sheet is None and chosen is None:
+            raise ImportProblem(f"{path}: every sheet of the workbook is hidden ({listed}); name the sheet to read.")
+        name = sheet or chosen.name  # type: ignore[union-attr]
         if name not in workbook.sheetnames:
-            raise ImportProblem(f"{path}: there is no sheet {name!r} (sheets: {', '.join(workbook.sheetnames)}).")
+            raise ImportProblem(f"{path}: there is no sheet {name!r} (sheets: {listed}).")
+        hidden = not next(s for s in infos if s.name == name).visible
         cells = 0
         for index, record in enumerate(_sheet_records(path, workbook, name), start=1):
             cells += len(record)
@@ -265,10 +320,85 @@ def table_from_xlsx(path: str | Path, sheet: str | None = None) -> RawTable:
                 )
             rows.append(tuple(_cell(v) for v in record))
             numbers.append(index)
+            dates += [(index, column) for column, v in enumerate(record) if isinstance(v, _DATES)]
             if formulas:
                 empties += [(index, column) for column, v in enumerate(record) if v is None]
+        part = getattr(workbook[name], "_worksheet_path", None)
     uncalculated = _formulas_among(path, data, name, empties) if empties else ()
-    return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name, uncalculated)
+    filled = {n for n, row in zip(numbers, rows) if any(c != "" for c in row)}
+    hidden_rows = tuple(n for n in _hidden_row_numbers(data, part) if n in filled) if part else ()
+    return RawTable(tuple(rows), tuple(numbers), None, str(path), file_sha256(data), name, uncalculated,
+                    hidden_sheet=hidden, hidden_rows=hidden_rows, dates=frozenset(dates))
+
+
+HIDDEN_ROW_CHOICES = ("include", "skip")
+_ROW_TAG = re.compile(rb"<(?:\w+:)?row\b([^>]*)>")
+_ROW_NUMBER = re.compile(rb'\br="(\d+)"')
+_HIDDEN = re.compile(rb'\bhidden="(?:1|true)"')
+
+
+def _hidden_row_numbers(data: bytes, part: str) -> tuple[int, ...]:
+    """The numbers of the rows a worksheet part marks hidden (``<row r="5" hidden="1">``, ECMA-376
+    Part 1, 18.3.1.73). Only the row start tags are read; a part without the word "hidden" is
+    passed over at once."""
+    with zipfile.ZipFile(io.BytesIO(data)) as archive:
+        try:
+            xml = archive.read(part.lstrip("/"))
+        except KeyError:
+            return ()
+    if b"hidden=" not in xml:
+        return ()
+    out = []
+    for tag in _ROW_TAG.finditer(xml):
+        attributes = tag.group(1)
+        number = _ROW_NUMBER.search(attributes)
+        if number and _HIDDEN.search(attributes):
+            out.append(int(number.group(1)))
+    return tuple(out)
+
+
+def hidden_rows_chosen(table: RawTable, choice: str | None) -> RawTable:
+    """The table with its hidden rows included or left out, as ``choice`` says ("include" or "skip").
+
+    A hidden row usually means the analyst chose to leave it out, but the workbook cannot say so:
+    neither importing it nor leaving it out is done without a word. With no choice and hidden rows
+    holding values, :class:`ImportProblem` names the sheet, the rows and their cells and how to
+    choose; the choice made is kept on the table (:attr:`RawTable.hidden_rows_choice`) for the notes.
+    """
+    if not table.hidden_rows:
+        return table
+    if choice not in HIDDEN_ROW_CHOICES:
+        raise ImportProblem(
+            f"{table.source}: sheet {table.sheet!r} has hidden rows holding values: {hidden_rows_listed(table)}. "
+            "A hidden row may have been hidden to leave it out, or by accident: choose whether they are "
+            "included or left out (on the command line --hidden-rows include or --hidden-rows skip; in the "
+            "import dialog, the choice for hidden rows).")
+    if choice == "include":
+        return replace(table, hidden_rows_choice="include")
+    hidden = set(table.hidden_rows)
+    kept = [(n, r) for n, r in zip(table.row_numbers, table.rows) if n not in hidden]
+    return replace(table, rows=tuple(r for _, r in kept), row_numbers=tuple(n for n, _ in kept),
+                   hidden_rows_choice="skip")
+
+
+def hidden_rows_listed(table: RawTable) -> str:
+    """The hidden rows of a table, each with its cells ("row 5 (Std-04, 1, 99.7)")."""
+    cells_of = dict(zip(table.row_numbers, table.rows))
+    listed = []
+    for n in table.hidden_rows[:20]:
+        cells = ", ".join((repr(c) if isinstance(c, float) else c) for c in cells_of.get(n, ()) if c != "")
+        listed.append(f"row {n} ({cells})")
+    more = len(table.hidden_rows) - 20
+    return "; ".join(listed) + (f"; and {more} more" if more > 0 else "")
+
+
+def hidden_rows_note(table: RawTable) -> str:
+    """What was done with the table's hidden rows, in words ("" when it has none)."""
+    if not table.hidden_rows or not table.hidden_rows_choice:
+        return ""
+    done = "included" if table.hidden_rows_choice == "include" else "left out"
+    numbers = ", ".join(map(str, table.hidden_rows[:20])) + (" …" if len(table.hidden_rows) > 20 else "")
+    return f"hidden row(s) {numbers} {done}, as chosen"
 
 
 @contextmanager
@@ -349,6 +479,9 @@ def _formula_text(value: object) -> str:
     return text if isinstance(text, str) else "a formula"
 
 
+_DATES = (datetime.date, datetime.time, datetime.timedelta)
+
+
 def _cell(value: object) -> Cell:
     """A workbook value as a cell: numbers as finite floats; everything else as text, including a
     number no double holds (kept as its digits or "inf"/"nan", which the importer reports)."""
@@ -362,6 +495,8 @@ def _cell(value: object) -> Cell:
         except OverflowError:
             return str(value)
         return number if math.isfinite(number) else repr(number)
+    if isinstance(value, datetime.datetime) and value.time() == datetime.time(0):
+        return value.date().isoformat()  # a date the spreadsheet holds, without its midnight
     return str(value)
 
 
