@@ -10,7 +10,6 @@ from __future__ import annotations
 import ctypes
 import json
 import subprocess
-import sys
 import unicodedata
 from pathlib import Path
 
@@ -19,15 +18,11 @@ import pypdfium2 as pdfium
 import pypdfium2.raw as pdfium_c
 
 from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli
 
 DEMO = ROOT / "sample_runs" / "nitrate_water_linear.json"
 FOOTER = "Record NOT intact — see page 1"
 NOTICE = "Record NOT intact: its audit trail or signatures do not check"
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          encoding="utf-8", cwd=ROOT, timeout=300)
 
 
 def written(tmp_path: Path, remove_signature: bool) -> tuple[Path, Path]:

@@ -9,8 +9,6 @@ earlier signatures (which does not say "No signatures yet.") say it in the same 
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 import unicodedata
 from pathlib import Path
 
@@ -20,15 +18,11 @@ from PySide6.QtWidgets import QDialog
 
 from curvewright.app import dialogs
 from tests.app.conftest import DEMOS, ROOT
+from tests.cli_runs import run_cli
 
 NITRATE = next(p for p in DEMOS if p.name.startswith("nitrate"))
 REVIEWER = "Kim Quillfeather"  # an invented person
 ANALYST = "Ola Brightwater"  # an invented person
-
-
-def run_cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                          encoding="utf-8", cwd=ROOT, timeout=300)
 
 
 def signed_then_reviewer_removed(tmp_path: Path) -> tuple[Path, str, int]:
