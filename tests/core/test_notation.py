@@ -2,8 +2,19 @@
 
 import pytest
 
-from curvewright.core.notation import computed, computed_within, entered, entered_span, excel_format, figures, span, written
+from curvewright.core import notation
+from curvewright.core.notation import excel_format, is_plain, machine
 from curvewright.core.rounding import RoundingRule
+
+
+def _spaced(function):  # type: ignore[no-untyped-def]
+    """The function's text with its no-break spaces as plain ones, as the expectations here are typed."""
+    return lambda *args, **kwargs: function(*args, **kwargs).replace("\u00a0", " ")
+
+
+computed, computed_within, entered, entered_span, figures, span, written = (
+    _spaced(getattr(notation, name))
+    for name in ("computed", "computed_within", "entered", "entered_span", "figures", "span", "written"))
 
 THREE = RoundingRule("significant", 3, "half_up")
 
@@ -69,3 +80,26 @@ def test_workbook_format_shows_the_same_digits():
     assert excel_format(THREE.text(0.00025), 3) == "0.000000"
     assert excel_format(THREE.text(1234.5), 3) == "0"
     assert excel_format(THREE.text(12000000.0), 3) == "0.00E+00"
+
+
+def test_quick_plain_test_agrees_with_the_decimal_one():
+    for text in ("0", "0.00", "-0.0001", "0.0001", "0.00009999", "9999999", "9999999.99", "10000000", "1",
+                 "0.000", "123.456", "-12", "0,00012", "0.00001"):
+        d = float(text.replace(",", "."))
+        assert is_plain(text) == (d == 0 or 1e-4 <= abs(d) < 1e7), text
+
+
+def test_machine_text_of_written_words():
+    words = f"< {computed(3.2e-5, THREE)} mg/L (LLOQ × dilution 10)"
+    assert machine(words) == "< 3.20e-5 mg/L (LLOQ × dilution 10)"
+    assert float(machine(computed(-1.2e8, THREE))) == -1.2e8
+
+
+def test_exponent_texts_keep_their_digits():
+    assert written("1.20e7") == "1.20 × 10⁷"
+    assert excel_format("1.20e7") == "0.00E+00"
+    assert excel_format("9.95e-6") == "0.00E+00"
+
+
+def test_a_number_is_never_broken_across_lines():
+    assert notation.computed(3.2e-5, THREE) == "3.20\u00a0×\u00a010⁻⁵"

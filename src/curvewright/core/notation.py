@@ -12,8 +12,8 @@ The digits come from elsewhere; this module decides only how they are written:
 
 The notation. A magnitude from ``PLAIN_FROM`` (1e-4) to below ``PLAIN_BELOW`` (1e7), and zero, is
 written in plain decimals ("0.000250", "2500000"); a magnitude outside it in scientific notation with
-the same significant digits, "3.20 × 10⁻⁵" (a multiplication sign between spaces and a superscript
-exponent; the mantissa's minus as the plain text writes it). The bounds (common
+the same significant digits, "3.20 × 10⁻⁵" (a multiplication sign between no-break spaces and a
+superscript exponent; the mantissa's minus as the plain text writes it). The bounds (common
 practice, our choice): a laboratory writes 0.0001 to 9 999 999 plainly (mg/L, µg/L, counts of a few
 million), while four zeros after the decimal point or eight digits before it are miscounted at a
 glance. Both ends of a range are written in the same notation (:func:`span`): if either needs an
@@ -31,6 +31,7 @@ Pure Python (no numpy, no Qt).
 from __future__ import annotations
 
 import math
+import re
 from decimal import Decimal, InvalidOperation
 from typing import TYPE_CHECKING
 
@@ -43,7 +44,8 @@ PLAIN_FROM = Decimal("1e-4")
 PLAIN_BELOW = Decimal("1e7")
 """Magnitudes written in plain decimals (zero too); an exponent outside them."""
 
-TIMES = " × 10"
+TIMES = "\u00a0×\u00a010"
+"""Between the mantissa and the power: no-break spaces, so that a table cell never breaks a number."""
 _SUPERSCRIPT = str.maketrans("0123456789-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁻")
 
 
@@ -58,8 +60,14 @@ def _parsed(text: str) -> tuple[Decimal, str] | None:
     return (d, mark) if d.is_finite() else None
 
 
+_SURELY_PLAIN = re.compile(r"^-?(?:[1-9]\d{0,6}(?:[.,]\d*)?|0(?:[.,](?:0{0,3}[1-9]\d*|0*))?)$")
+"""Texts plain at a glance, read without a decimal: 1 to 9 999 999.…, 0.0001… and above, zero."""
+
+
 def is_plain(text: str) -> bool:
     """Whether the number ``text`` holds is written without an exponent (texts that are no number: True)."""
+    if _SURELY_PLAIN.match(text):
+        return True
     parsed = _parsed(text)
     if parsed is None:
         return True
@@ -67,16 +75,17 @@ def is_plain(text: str) -> bool:
     return d.is_zero() or PLAIN_FROM <= abs(d) < PLAIN_BELOW
 
 
-def _digits(d: Decimal, significant: int | None) -> tuple[str, int]:
+def _digits(d: Decimal, significant: int | None, padded: bool = True) -> tuple[str, int]:
     """The significant digits of ``d`` and the power of ten of the first. A whole number's trailing
-    zeros are padding (as a reader takes them) unless ``significant`` says how many digits it holds."""
+    zeros written out (``padded``: not in an exponent form) are padding, as a reader takes them, unless
+    ``significant`` says how many digits it holds."""
     sign, digits, exponent = d.as_tuple()
     shown = "".join(map(str, digits)).lstrip("0") or "0"
     first = d.adjusted()
     if significant is not None:
         keep = max(significant, len(shown.rstrip("0")))
         shown = (shown + "0" * keep)[:keep]
-    elif isinstance(exponent, int) and exponent >= 0:
+    elif padded and isinstance(exponent, int) and exponent >= 0:
         shown = shown.rstrip("0") or "0"
     return shown, first
 
@@ -88,6 +97,8 @@ def written(text: str, *, significant: int | None = None, scientific: bool | Non
     ``significant`` is the count of significant figures the text holds when it is a whole number whose
     trailing zeros are digits ("12000000" rounded to 3 figures). ``scientific`` forces the choice (a
     range's ends). A text that is no number ("", "∞") is returned as it is."""
+    if not scientific and _SURELY_PLAIN.match(text):
+        return text
     parsed = _parsed(text)
     if parsed is None:
         return text
@@ -95,12 +106,25 @@ def written(text: str, *, significant: int | None = None, scientific: bool | Non
     exponent_form = not is_plain(text) if scientific is None else scientific
     if not exponent_form or d.is_zero():
         return format(d, "f").replace(".", mark) if "e" in text.lower() else text
-    shown, power = _digits(d, significant)
+    shown, power = _digits(d, significant, "e" not in text.lower())
     mantissa = shown[0] + (mark + shown[1:] if len(shown) > 1 else "")
     sign = "-" if d.is_signed() else ""
     if machine:
         return f"{sign}{mantissa}e{power}"
     return f"{sign}{mantissa}{TIMES}{str(power).translate(_SUPERSCRIPT)}"
+
+
+_WRITTEN = re.compile(r"(-?\d+(?:[.,]\d+)?)[ \u00a0]×[ \u00a0]10([⁻⁰¹²³⁴⁵⁶⁷⁸⁹]+)")
+_PLAIN_SUPERSCRIPT = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹⁻", "0123456789-")
+
+
+def machine(text: str) -> str:
+    """A text for a file's text field (a CSV cell, a JSON string): every number :func:`written` put in
+    scientific notation ("< 3.20 × 10⁻⁵ mg/L (LLOQ)") in the form programs read ("< 3.20e-5 mg/L
+    (LLOQ)"); the rest unchanged."""
+    if "×" not in text:
+        return text
+    return _WRITTEN.sub(lambda m: f"{m.group(1)}e{m.group(2).translate(_PLAIN_SUPERSCRIPT)}", text)
 
 
 def span(low: str, high: str, between: str = "–", *, significant: int | None = None,
@@ -135,8 +159,15 @@ def computed_within(value: float, lower: float | None, upper: float | None, rule
     """:meth:`.rounding.RoundingRule.text_within` (never coarser than the interval supports) in this
     module's notation. The significant figures are known only where the rule's own text stands."""
     text = rule.text_within(value, lower, upper)
-    kept = rule.kind == "significant" and text == rule.text(value)
-    return written(text, significant=rule.digits if kept else None)
+    if _SURELY_PLAIN.match(text):
+        return text
+    if text == rule.text(value):
+        return written(text, significant=rule.digits if rule.kind == "significant" else None)
+    places = rule.places_within(value, lower, upper)  # the interval's place: its zeros are digits
+    parsed = _parsed(text)
+    if places is None or parsed is None or parsed[0].is_zero():
+        return written(text)
+    return written(text, significant=max(1, parsed[0].adjusted() + places + 1))
 
 
 def figures(value: float, significant: int) -> str:
@@ -149,7 +180,7 @@ def figures(value: float, significant: int) -> str:
     return written(format(Decimal(text), "f") if "e" in text else text)
 
 
-def excel_format(text: str, significant: int | None = None) -> str:
+def excel_format(text: str, significant: int | None = None, scientific: bool | None = None) -> str:
     """A workbook number format that shows a cell's number with the digits and notation :func:`written`
     gives its plain ``text`` (the rule's text, before the notation): "0.000" for "0.123"; "0.00E+00"
     for "0.0000320" (written "3.20 × 10⁻⁵"; a spreadsheet's number formats know only their own
@@ -158,8 +189,8 @@ def excel_format(text: str, significant: int | None = None) -> str:
     if parsed is None:
         return "General"
     d = parsed[0]
-    if is_plain(text):
+    if (is_plain(text) if scientific is None else not scientific) or d.is_zero():
         places = max(0, -d.as_tuple().exponent) if isinstance(d.as_tuple().exponent, int) else 0
         return "0." + "0" * places if places else "0"
-    shown, _ = _digits(d, significant)
+    shown, _ = _digits(d, significant, "e" not in text.lower())
     return ("0." + "0" * (len(shown) - 1) if len(shown) > 1 else "0") + "E+00"

@@ -38,6 +38,7 @@ import numpy as np
 
 from .values import frozen_value
 from .inverse import QuantFlag
+from .notation import computed, computed_within, entered, figures, is_plain
 from .rounding import RoundingRule
 
 
@@ -119,7 +120,7 @@ class ReportingRange:
 
 def reporting_range(concentrations: object, lod: float | None, loq: float | None, unit: str = "",
                     passing_range: tuple[float, float] | None = None, narrowing: str = "",
-                    critical_value: float | None = None) -> ReportingRange:
+                    critical_value: float | None = None, rule: RoundingRule | None = None) -> ReportingRange:
     """The calibrated range of the standards in the fit and the reporting limit.
 
     ``concentrations`` are the nominal concentrations of the standards in the fit; ``lod`` and
@@ -128,7 +129,9 @@ def reporting_range(concentrations: object, lod: float | None, loq: float | None
     when an end level fails the acceptance profile (:attr:`.acceptance.AcceptanceVerdict.passing_range`):
     they become the LLOQ and the ULOQ. ``critical_value`` is the ISO 11843-2 critical value x_c
     (``lod`` then the minimum detectable value x_d): a result below x_c is not detected, so where x_c
-    lies above the LLOQ (and the standard defines no LOQ) it is the reporting limit.
+    lies above the LLOQ (and the standard defines no LOQ) it is the reporting limit. The note writes
+    the computed limits by ``rule`` (the run's rounding rule; without one, to 4 significant figures)
+    and the standards' concentrations as entered (:mod:`.notation`).
     """
     values = [float(c) for c in concentrations]  # type: ignore[attr-defined]
     positive = [c for c in values if c > 0]
@@ -142,18 +145,19 @@ def reporting_range(concentrations: object, lod: float | None, loq: float | None
     else:
         narrowing = ""
     u = f" {unit}" if unit else ""
+    shown = (lambda v: computed(v, rule)) if rule is not None else (lambda v: figures(v, 4))
     lowest = "lowest passing standard" if standards_range and lloq != standards_range[0] else "lowest standard"
     if loq is not None and math.isfinite(loq) and loq > lloq:
         return ReportingRange(lloq, uloq, lod, loq, loq, "LOQ",
-                              f"the computed LOQ ({loq:.4g}{u}) lies above the {lowest} ({lloq:g}{u}): the "
+                              f"the computed LOQ ({shown(loq)}{u}) lies above the {lowest} ({entered(lloq)}{u}): the "
                               "reporting limit is the LOQ, and results between them are below it",
                               narrowing, standards_range, critical_value)
     if critical_value is not None and math.isfinite(critical_value) and critical_value > lloq:
         return ReportingRange(lloq, uloq, lod, loq, critical_value, "x_c",
-                              f"the critical value x_c ({critical_value:.4g}{u}, ISO 11843-2) lies above the {lowest} "
-                              f"({lloq:g}{u}): a result below it is not detected, so the reporting limit is x_c",
+                              f"the critical value x_c ({shown(critical_value)}{u}, ISO 11843-2) lies above the {lowest} "
+                              f"({entered(lloq)}{u}): a result below it is not detected, so the reporting limit is x_c",
                               narrowing, standards_range, critical_value)
-    note = (f"the computed LOQ ({loq:.4g}{u}) lies below the {lowest} ({lloq:g}{u}): the reporting limit is "
+    note = (f"the computed LOQ ({shown(loq)}{u}) lies below the {lowest} ({entered(lloq)}{u}): the reporting limit is "
             f"the LLOQ, the {lowest}" if loq is not None and math.isfinite(loq)
             else f"the reporting limit is the LLOQ, the {lowest} (no LOQ was computed)")
     return ReportingRange(lloq, uloq, lod, loq, lloq, "LLOQ", note, narrowing, standards_range, critical_value)
@@ -227,7 +231,7 @@ def report_value(
                              "; ".join([f"not reportable: {not_reportable}"] + qualifiers),
                              ", ".join(["not reportable"] + short_qualifiers), bits)
     return _numeric_value(estimate, dilution, bits, (qualifiers, short_qualifiers),
-                          _dilution_texts(dilution, rng, rule, unit), lambda: rule.text_within(estimate * dilution, *_diluted(interval, dilution)), rng,
+                          _dilution_texts(dilution, rng, rule, unit), lambda: computed_within(estimate * dilution, *_diluted(interval, dilution), rule), rng,
                           unit, below_limit == "estimate", detection is not None and estimate < detection)
 
 
@@ -243,11 +247,11 @@ def _dilution_texts(dilution: float, rng: ReportingRange, rule: RoundingRule,
     ULOQ as the calibration has it and as the sample's (at 1: "50 µg/L"; at 10: "50 µg/L × dilution 10
     = 500 µg/L", so that no number reads as multiplied again)."""
     u = f" {unit}" if unit else ""
-    diluted = f" × dilution {dilution:g}" if dilution != 1 else ""
-    uloq = f"{rule.text(rng.uloq * dilution)}{u}"
-    return (diluted, f"{rule.text(rng.reporting_limit * dilution)}{u} ({rng.basis}{diluted})", uloq,
-            f"{rule.text(rng.detection_limit * dilution)}{u}" if rng.detection_limit is not None else "",
-            f"{rule.text(rng.uloq)}{u}{diluted} = {uloq}" if diluted else uloq)
+    diluted = f" × dilution {entered(dilution)}" if dilution != 1 else ""
+    uloq = f"{computed(rng.uloq * dilution, rule)}{u}"
+    return (diluted, f"{computed(rng.reporting_limit * dilution, rule)}{u} ({rng.basis}{diluted})", uloq,
+            f"{computed(rng.detection_limit * dilution, rule)}{u}" if rng.detection_limit is not None else "",
+            f"{computed(rng.uloq, rule)}{u}{diluted} = {uloq}" if diluted else uloq)
 
 
 def _numeric_value(
@@ -265,7 +269,7 @@ def _numeric_value(
     if estimate > rng.uloq:
         total = dilution * _one_two_five(estimate / rng.middle)
         words = (f"above the calibrated range (ULOQ {uloq_words}): not reported as a "
-                 f"number; re-assay at a dilution of ×{total:g} to bring it to mid-range")
+                 f"number; re-assay at a dilution of ×{entered(total)} to bring it to mid-range")
         return ReportedValue(ReportStatus.ABOVE_RANGE, f"> {uloq_text} (ULOQ{diluted})",
                              "; ".join([words] + words_q), ", ".join(["> ULOQ"] + short_q), flags, total)
     if estimate < rng.reporting_limit:
@@ -468,8 +472,10 @@ def report_columns(
         # which results show a rounded number: inside the range, and estimates between the LOD and the limit
         numbered = (e <= rng.uloq) & ((e >= limit) | (estimated & ~below_lod))
         numbers = np.empty(where.size, dtype=object)
-        numbers[numbered] = rule.texts_within(reported[numbered].tolist(), (low[where] * d)[numbered].tolist(),
-                                              (high[where] * d)[numbered].tolist())
+        shown_low, shown_high = (low[where] * d)[numbered].tolist(), (high[where] * d)[numbered].tolist()
+        rounded = rule.texts_within(reported[numbered].tolist(), shown_low, shown_high)
+        numbers[numbered] = [t if is_plain(t) else computed_within(v, lo, hi, rule)  # written as the notation says
+                             for t, v, lo, hi in zip(rounded, reported[numbered].tolist(), shown_low, shown_high)]
         # the order _numeric_value judges in: above the ULOQ, below the reporting limit, else in range
         over = e > rng.uloq
         case = np.where(over, 0, np.where(e < limit, np.where(below_lod, 1, 2), 3))
