@@ -20,6 +20,7 @@ from ..io.audit import Identity
 from ..io.importing import ImportResult, import_samples, import_standards
 from ..io.tables import RawTable, table_from_csv, table_from_text, table_from_xlsx, xlsx_sheet_names
 from .standards_model import INVALID
+from ..core.notation import entered, figures
 
 EXCLUSION_REASONS = (
     "preparation error (standard made up wrongly)",
@@ -114,8 +115,8 @@ def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
         low, high = cal.calibrated_range
         judged = (f"{int(a.verdict.passing.sum())} of {int(a.verdict.judged.sum())} judged"
                   if a.verdict is not None else "")
-        return [cal.equation(6), f"{cal.residual_sd:.5g}", f"{cal.adjusted_r_squared:.6f}",
-                f"{cal.n_standards}", f"{low:g} to {high:g}", judged, "accepted" if a.accepted else "NOT accepted"]
+        return [cal.equation(6), f"{figures(cal.residual_sd, 5)}", f"{cal.adjusted_r_squared:.6f}",
+                f"{cal.n_standards}", f"{entered(low)} to {entered(high)}", judged, "accepted" if a.accepted else "NOT accepted"]
 
     names = ("Curve", "Residual SD", "Adjusted R²", "Standards in fit", "Calibrated range", "Standards within limits",
              "Verdict")
@@ -139,7 +140,7 @@ def ask_exclusion(parent: QWidget, run: Run, analyte: str, standard_id: str, *, 
     a = run.analyte(analyte)
     s = a.standard(standard_id)
     where = f"row {row + 1}, " if row is not None else ""
-    conc = f"{s.concentration:g} {a.concentration_unit}".strip() if s.has_concentration else repr(s.concentration_text)
+    conc = f"{entered(s.concentration)} {a.concentration_unit}".strip() if s.has_concentration else repr(s.concentration_text)
     dialog = ReasonDialog(f"Exclude standard {standard_id}",
                           f"Why is standard {standard_id} ({where}nominal {conc}, response {s.response.text.strip()}) "
                           f"of {analyte} excluded from the fit? The standard stays in the run, flagged, with your "
@@ -178,7 +179,7 @@ def ask_anchor_points(parent: QWidget, run: Run, analyte: str, standard_ids: lis
                             f"{', '.join(standard_ids)} of {analyte}. The fit refuses it: {refusal}")
         return None
     a = run.analyte(analyte)
-    named = "; ".join(f"{s.id} (row {row + 1}, nominal {s.concentration:g} {a.concentration_unit})".replace(" )", ")")
+    named = "; ".join(f"{s.id} (row {row + 1}, nominal {entered(s.concentration)} {a.concentration_unit})".replace(" )", ")")
                       for s, row in zip((a.standard(i) for i in standard_ids), rows))
     prompt = (f"Why are standard(s) {named} of {analyte} marked as anchor points? They stay in the fit, but are not "
               "judged for acceptance and lie outside the calibrated range (LLOQ to ULOQ); your reason goes into the "
