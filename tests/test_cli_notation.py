@@ -91,9 +91,15 @@ def test_csv_workbook_and_record_write_the_same_digits(tmp_path) -> None:
         book.close()
     pdf = pdfium.PdfDocument(tmp_path / "trace.pdf")
     try:
-        record = nfkc(" ".join(pdf[i].get_textpage().get_text_range() for i in range(len(pdf))))
+        pages = [pdf[i].get_textpage().get_text_range() for i in range(len(pdf))]
     finally:
         pdf.close()
+    record = nfkc(" ".join(pages))
+    # a number is never broken across the lines of a table cell: U1's concentration × dilution and
+    # reported value each whole on their line, and its interval broken only after its dash
+    lines = [nfkc(line) for page in pages for line in page.splitlines()]
+    assert sum(line.count("9.95 × 10⁻⁶") for line in lines) == 2, [line for line in lines if "9.95" in line]
+    assert any(re.search(r"\d\.\d+ × 10⁻⁶ –", line) for line in lines if "U1" in line)
     assert not PYTHON_EXPONENT.search(record)
     assert "Calibrated range 1 × 10⁻⁶–3.2 × 10⁻⁵ (LLOQ–ULOQ)" in record
     assert "U1 unknown 1 1 9.95 × 10⁻⁶ 9.95 × 10⁻⁶" in record

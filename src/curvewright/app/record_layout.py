@@ -72,6 +72,8 @@ def font(style: str) -> QFont:
 
 _FONTS: dict[str, QFont] = {}
 _GLUE = re.compile("[<>≤≥–]")
+_BREAKING_SPACES = re.compile("[^\\S\u00a0]+")
+"""White space a line may break at: any but the no-break space."""
 _ONE_WORD = re.compile(r"[^\s<>≤≥–]+")
 """A text that :meth:`RecordLayout.wrap` sets as it is on one line wherever it fits: one word, without the
 signs that :meth:`RecordLayout.bound_words` joins to their neighbours."""
@@ -289,18 +291,20 @@ class RecordLayout:
 
     @staticmethod
     def bound_words(text: str) -> list[str]:
-        """Words, with a lone comparison sign joined to the word after it and a lone dash to the
-        words on both sides (joined by no-break spaces)."""
+        """Words (split at spaces, not at no-break spaces: "3.20 × 10⁻⁵" is one), with a lone
+        comparison sign joined to the word after it and a lone dash to the words on both sides (joined
+        by no-break spaces; to the word before it only where that is a number with an exponent)."""
         if _GLUE.search(text) is None:  # no sign and no dash: the words as they are (most cells)
-            return text.split()
+            return text.split() if "\u00a0" not in text else _BREAKING_SPACES.split(text.strip())
         words: list[str] = []
         glue_next = False
-        for word in text.split():
+        for word in (text.split() if "\u00a0" not in text else _BREAKING_SPACES.split(text.strip())):
             if glue_next and words:
                 words[-1] += "\u00a0" + word
             elif word == "–" and words:
+                # an interval whose ends are written with an exponent may break after its dash
+                glue_next = "\u00a0" not in words[-1]
                 words[-1] += "\u00a0" + word
-                glue_next = True
                 continue
             else:
                 words.append(word)
