@@ -156,7 +156,7 @@ def test_weights_of_tiny_but_representable_concentrations_stay_finite() -> None:
         ({"mean_response": [0.5], "level": "0.95"}, r"confidence level: '0.95' is not a number"),
         ({"mean_response": [0.5], "level": True}, r"confidence level: True is not a number"),
         ({"mean_response": [0.5], "replicates": "two"}, r"replicates: 'two'"),
-        ({"mean_response": [0.5, 1e308]}, r"mean response: unknown 2 is 1e\+308"),
+        ({"mean_response": [0.5, 1e308]}, r"mean response: unknown 2 is 1\s×\s10³⁰⁸"),
     ],
 )
 def test_quantify_refuses_text_and_unrepresentable_values(kwargs, message) -> None:

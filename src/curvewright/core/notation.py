@@ -64,6 +64,10 @@ _SURELY_PLAIN = re.compile(r"^-?(?:[1-9]\d{0,6}(?:[.,]\d*)?|0(?:[.,](?:0{0,3}[1-
 """Texts plain at a glance, read without a decimal: 1 to 9 999 999.…, 0.0001… and above, zero."""
 
 
+_SMALL = re.compile(r"^(-?)0([.,])(0{4,})(\d+)$")
+"""A decimal below 1e-4 written out: sign, mark, the zeros after the mark, its significant digits."""
+
+
 def is_plain(text: str) -> bool:
     """Whether the number ``text`` holds is written without an exponent (texts that are no number: True)."""
     if _SURELY_PLAIN.match(text):
@@ -99,6 +103,12 @@ def written(text: str, *, significant: int | None = None, scientific: bool | Non
     range's ends). A text that is no number ("", "∞") is returned as it is."""
     if not scientific and _SURELY_PLAIN.match(text):
         return text
+    small = _SMALL.match(text) if significant is None else None
+    if small is not None and small.group(4)[0] != "0":  # "0.0000320": its digits read off the text
+        sign, mark, zeros, shown = small.groups()
+        mantissa = shown[0] + (mark + shown[1:] if len(shown) > 1 else "")
+        power = -(len(zeros) + 1)
+        return f"{sign}{mantissa}e{power}" if machine else f"{sign}{mantissa}{TIMES}{str(power).translate(_SUPERSCRIPT)}"
     parsed = _parsed(text)
     if parsed is None:
         return text
@@ -155,12 +165,17 @@ def computed(value: float, rule: "RoundingRule") -> str:
     return written(rule.text(value), significant=rule.digits if rule.kind == "significant" else None)
 
 
-def computed_within(value: float, lower: float | None, upper: float | None, rule: "RoundingRule") -> str:
-    """:meth:`.rounding.RoundingRule.text_within` (never coarser than the interval supports) in this
-    module's notation. The significant figures are known only where the rule's own text stands."""
-    text = rule.text_within(value, lower, upper)
+def computed_within(value: float, lower: float | None, upper: float | None, rule: "RoundingRule",
+                    text: str | None = None) -> str:
+    """:meth:`.rounding.RoundingRule.text_within` (never coarser than the interval supports; ``text``
+    when the caller has it already) in this module's notation. A decimal text shows its figures; a
+    whole number's trailing zeros are figures where the rule's own text stands, or down to the
+    interval's place."""
+    text = rule.text_within(value, lower, upper) if text is None else text
     if _SURELY_PLAIN.match(text):
         return text
+    if "." in text or "," in text:
+        return written(text)  # its zeros after the mark are figures
     if text == rule.text(value):
         return written(text, significant=rule.digits if rule.kind == "significant" else None)
     places = rule.places_within(value, lower, upper)  # the interval's place: its zeros are digits

@@ -38,7 +38,7 @@ import numpy as np
 
 from .values import frozen_value
 from .inverse import QuantFlag
-from .notation import computed, computed_within, entered, figures, is_plain
+from .notation import computed, computed_within, entered, figures
 from .rounding import RoundingRule
 
 
@@ -473,9 +473,15 @@ def report_columns(
         numbered = (e <= rng.uloq) & ((e >= limit) | (estimated & ~below_lod))
         numbers = np.empty(where.size, dtype=object)
         shown_low, shown_high = (low[where] * d)[numbered].tolist(), (high[where] * d)[numbered].tolist()
-        rounded = rule.texts_within(reported[numbered].tolist(), shown_low, shown_high)
-        numbers[numbered] = [t if is_plain(t) else computed_within(v, lo, hi, rule)  # written as the notation says
-                             for t, v, lo, hi in zip(rounded, reported[numbered].tolist(), shown_low, shown_high)]
+        values = reported[numbered]
+        rounded = rule.texts_within(values.tolist(), shown_low, shown_high)
+        # written as the notation says; a value well inside its plain magnitudes needs no look at its text
+        magnitude = np.abs(values)
+        surely_plain = ((magnitude >= 1.001e-4) & (magnitude < 0.999e7)) | (magnitude == 0)
+        if not surely_plain.all():
+            for k in np.flatnonzero(~surely_plain).tolist():
+                rounded[k] = computed_within(float(values[k]), shown_low[k], shown_high[k], rule, text=rounded[k])
+        numbers[numbered] = rounded
         # the order _numeric_value judges in: above the ULOQ, below the reporting limit, else in range
         over = e > rng.uloq
         case = np.where(over, 0, np.where(e < limit, np.where(below_lod, 1, 2), 3))
