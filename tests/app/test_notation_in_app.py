@@ -50,3 +50,14 @@ def test_results_and_standards_tabs_write_tiny_values_with_an_exponent(make_wind
         f"{m}{NBSP}×{NBSP}10⁻{p}" for m, p in (("1", "⁶"), ("2", "⁶"), ("4", "⁶"), ("8", "⁶"), ("1.6", "⁵"), ("3.2", "⁵"))]
     assert all(re.fullmatch(rf"\d\.\d+{NBSP}×{NBSP}10⁻[⁵⁶]", row[standards_model.BACK]) for row in shown), shown
     assert not any(PYTHON_EXPONENT.search(cell) for row in shown for cell in row)
+
+
+def test_import_preview_says_how_a_tiny_value_was_read(qtbot, tmp_path: Path) -> None:
+    from curvewright.app.dialogs import ImportDialog
+
+    path = tmp_path / "standards.csv"
+    path.write_text("Concentration;Response\n0,0000025;10,5\n0,000005;21,0\n", encoding="utf-8")
+    dialog = ImportDialog("standards", path)
+    qtbot.addWidget(dialog)
+    texts = [dialog.preview.item(r, 0).text() for r in range(dialog.preview.rowCount())]
+    assert f"0,0000025 → 2.5{NBSP}×{NBSP}10⁻⁶" in texts and f"0,000005 → 5{NBSP}×{NBSP}10⁻⁶" in texts, texts

@@ -305,12 +305,12 @@ class ImportDialog(QDialog):
 
         for i, (number, cells) in enumerate(rows):
             for j, cell in enumerate(cells):
-                text = repr(cell) if isinstance(cell, float) else cell
+                text = entered(cell) if isinstance(cell, float) else cell
                 shown = text
                 if i > 0 and isinstance(cell, str) and cell.strip():
                     parsed = parse_reading(cell, result.decimal_mark)
                     if parsed.reading is not None and parsed.reading.is_number:
-                        shown = f"{cell} → {parsed.reading.value!r}"
+                        shown = f"{cell} → {entered(parsed.reading.value)}"
                     elif parsed.reading is not None and parsed.reading.is_censored:
                         shown = f"{cell} → censored"
                 item = QTableWidgetItem(shown)
