@@ -66,6 +66,7 @@ def test_statistics_without_a_rule_drop_python_exponents():
     assert figures(2.5641e-7, 4) == "2.564 × 10⁻⁷"
     assert figures(3e6, 6) == "3000000"
     assert figures(0.012345, 3) == "0.0123"
+    assert figures(float("nan"), 3) == "—" and figures(float("inf"), 3) == "∞"
 
 
 def test_interval_places_are_not_counted_as_figures():

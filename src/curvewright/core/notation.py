@@ -188,9 +188,9 @@ def computed_within(value: float, lower: float | None, upper: float | None, rule
 def figures(value: float, significant: int) -> str:
     """A statistic no rounding rule governs (a test statistic, a p-value, a coefficient) to
     ``significant`` figures as Python's "g" format gives them (trailing zeros dropped), in this
-    module's notation: "2.564 × 10⁻⁷", "0.0123", "3000000"."""
+    module's notation: "2.564 × 10⁻⁷", "0.0123", "3000000"; "—" for a statistic that is not a number."""
     if not math.isfinite(value):
-        return "" if math.isnan(value) else ("∞" if value > 0 else "−∞")
+        return "—" if math.isnan(value) else ("∞" if value > 0 else "−∞")
     text = f"{value:.{significant}g}"
     return written(format(Decimal(text), "f") if "e" in text else text)
 
