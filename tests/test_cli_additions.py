@@ -11,6 +11,7 @@ import pytest
 from pypdf import PdfReader
 
 import curvewright as cw
+from curvewright.core.notation import figures
 from curvewright.core.run_analysis import analyse_run
 from curvewright.io.run_document import dumps_run
 from tests.core.test_addition_series import invented_run
@@ -32,8 +33,9 @@ def test_text_and_json_report_each_series(document) -> None:
     out = text.stdout
     assert "standard additions (x-intercept of the line through the spiked portions; matrix-matched linearity is assumed):" in out
     river = engine[0]
-    assert (f"River 4: {river.reported:.5g} µg/L (95% interval {river.reported_lower:.5g} to {river.reported_upper:.5g}; "
-            f"standard error {river.reported_standard_error:.3g})") in out
+    # written in the one notation (core/notation.py): a standard error of about 5e-15 with its exponent
+    assert (f"River 4: {figures(river.reported, 5)} µg/L (95% interval {figures(river.reported_lower, 5)} to "
+            f"{figures(river.reported_upper, 5)}; standard error {figures(river.reported_standard_error, 3)})") in out
     assert "Flat: not extrapolated: response: the line through the additions has slope 0" in out
     assert cw.CAUTION in out
     data = json.loads(run_cli("quantify", str(document), "--json").stdout)

@@ -17,6 +17,8 @@ import numpy as np
 import openpyxl
 from scipy import optimize, stats
 
+from curvewright.core.notation import computed
+from curvewright.core.rounding import RoundingRule
 from tests.cli_runs import run_cli
 from tests.test_cli_tables import write
 
@@ -59,8 +61,10 @@ def test_iso11843_limits_are_shown_and_results_judged_against_them(tmp_path: Pat
     book = tmp_path / "out.xlsx"
     out = run_cli(*args, "--export", str(book))
     assert out.returncode in (0, 1), out.stderr
-    assert (f"critical value x_c {x_c:.4g} µg/L (critical response y_c {y_c:.4g}), "
-            f"minimum detectable value x_d {x_d:.4g} µg/L") in out.stdout
+    # the limits by the run's rounding rule (the method's, or three significant figures), core/notation.py
+    rule = RoundingRule(**METHOD["rounding"]) if "rounding" in METHOD else RoundingRule()
+    assert (f"critical value x_c {computed(x_c, rule)} µg/L (critical response y_c {computed(y_c, rule)}), "
+            f"minimum detectable value x_d {computed(x_d, rule)} µg/L") in out.stdout
     rows = {line.split()[0] + (" " + line.split()[1] if line.split()[0] == "QC" else ""): line
             for line in out.stdout.splitlines()[-8:] if line.startswith("  ")}
     assert "below the minimum detectable value x_d" in rows["QC low"] and "1.46" in rows["QC low"]

@@ -17,6 +17,7 @@ from pathlib import Path
 import pytest
 
 from curvewright import cli
+from curvewright.core.notation import computed_within, machine
 from tests.io.helpers import ROOT
 
 STANDARDS = ["Standard id,Level,Concentration (µg/L),Response (counts)"] + [
@@ -60,12 +61,13 @@ def reference_row(rounding, s) -> dict:  # type: ignore[no-untyped-def]
         "lower": s.lower, "upper": s.upper, "dilution_factor": s.dilution_factor, "reported": s.reported,
         "reported_standard_error": s.reported_standard_error,
         "reported_lower": s.reported_lower, "reported_upper": s.reported_upper,
-        "reported_rounded": None if s.reported is None else rounding.text_within(s.reported, s.reported_lower,
-                                                                                  s.reported_upper),
-        "reported_text": s.reported_text, "status": s.status.value, "reportable": s.reportable,
+        # text fields in the notation's machine-readable form (core/notation.py)
+        "reported_rounded": None if s.reported is None else machine(computed_within(s.reported, s.reported_lower,
+                                                                                    s.reported_upper, rounding)),
+        "reported_text": machine(s.reported_text), "status": s.status.value, "reportable": s.reportable,
         "suggested_dilution": s.suggested_dilution,
         "flags": [f.name.lower() for f in s.flags] if s.flags is not None else [],
-        "flag_words": s.flag_words, "nominal": s.nominal, "recovery_percent": s.recovery_percent,
+        "flag_words": machine(s.flag_words), "nominal": s.nominal, "recovery_percent": s.recovery_percent,
         "within_limits": s.within_limits}
 
 

@@ -14,6 +14,7 @@ import numpy as np
 import pytest
 
 import curvewright as cw
+from curvewright.core.notation import machine
 from tests.io.helpers import ROOT
 from tests.cli_runs import run_cli
 
@@ -131,7 +132,7 @@ def test_a_curved_table_uses_the_recommended_quadratic_and_says_why(tmp_path) ->
     entry = data["analytes"][0]
     assert (entry["model"], entry["weighting"]) == ("quadratic", rec.weighting.value)
     assert entry["model_chosen_by"] == "recommended"
-    assert entry["choice_reasons"] == list(comparison.reasons)
+    assert entry["choice_reasons"] == [machine(r) for r in comparison.reasons]  # JSON text: machine-readable exponents
     assert entry["choice_reason"].startswith("recommended by the model comparison")
     assert "given on the command line" not in json.dumps(data, ensure_ascii=False)
     expected = expected_reports(ZN_X, ZN_Y, zn_samples, "quadratic", rec.weighting.value)

@@ -31,8 +31,8 @@ from typing import Any, Iterator, Mapping, Sequence
 
 from . import CAUTION, __version__
 from .core.level_text import percent_label
-from .core.number_words import full_number
 from .core.values import frozen_value
+from .core.notation import computed, computed_within, entered, entered_span, figures, machine
 
 EXIT_ACCEPTED, EXIT_REJECTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
@@ -1149,15 +1149,15 @@ def summary_text(  # type: ignore[no-untyped-def]
         lines += response_factor_lines(cal, a.analyte.uses_internal_standard)
         if not cal.model.is_polynomial:
             lines.append("  parameters: " + "; ".join(
-                f"{name} ({words}) = {b:.6g} ± {se:.2g}" for name, words, b, se in
+                f"{name} ({words}) = {figures(b, 6)} ± {figures(se, 2)}" for name, words, b, se in
                 zip(cal.coefficient_names, cal.coefficient_descriptions, cal.coefficients, cal.standard_errors)))
             lines.append(f"  fit: {'; '.join(n for n in cal.notes if n.startswith('fitted by nonlinear'))}")
         lof = cal.lack_of_fit
-        lof_text = (f"lack-of-fit F = {lof.f_statistic:.4g}, p = {lof.p_value:.3g}" if lof.available
+        lof_text = (f"lack-of-fit F = {figures(lof.f_statistic, 4)}, p = {figures(lof.p_value, 3)}" if lof.available
                     else f"lack of fit not tested ({lof.reason})")
-        lines.append(f"  residual SD {cal.residual_sd:.6g}; adjusted R² {cal.adjusted_r_squared:.6f}; {lof_text}")
+        lines.append(f"  residual SD {figures(cal.residual_sd, 6)}; adjusted R² {cal.adjusted_r_squared:.6f}; {lof_text}")
         if a.limits:
-            lines.append(f"  {a.limits.values_words(in_unit.strip())} ({a.limits.description})")
+            lines.append(f"  {a.limits.values_words(in_unit.strip(), run.settings.rounding)} ({a.limits.description})")
         flagged = [f"{s.id} ({', '.join(f.value for f in cal.influence_flags[i])})"
                    for i, s in enumerate(a.fitted_standards) if cal.influence_flags[i]]
         if flagged:
@@ -1174,10 +1174,11 @@ def summary_text(  # type: ignore[no-untyped-def]
         rule = run.settings.rounding
         if a.reporting is not None:
             rr = a.reporting
-            lines.append(f"  calibrated range {full_number(rr.lloq)}–{full_number(rr.uloq)}{in_unit} (LLOQ–ULOQ); reporting limit "
-                         f"{rr.reporting_limit:.4g}{in_unit} ({rr.basis}): {rr.note}")
+            limit = entered(rr.reporting_limit) if rr.basis == "LLOQ" else computed(rr.reporting_limit, rule)
+            lines.append(f"  calibrated range {entered_span(rr.lloq, rr.uloq)}{in_unit} (LLOQ–ULOQ); reporting limit "
+                         f"{limit}{in_unit} ({rr.basis}): {rr.note}")
             if rr.narrowing:
-                lines.append(f"  RANGE NARROWED from the standards' {full_number(rr.standards_range[0])}–{full_number(rr.standards_range[1])}"
+                lines.append(f"  RANGE NARROWED from the standards' {entered_span(*rr.standards_range)}"
                              f"{in_unit}: {rr.narrowing}")
         lines += _samples_lines(a.samples, rule, run.settings.confidence_level)
         departed = rule_departures(a, rule)
@@ -1209,7 +1210,7 @@ def _samples_lines(samples, rule, level: float) -> list[str]:  # type: ignore[no
 
     heading = ("sample", "reported", "value", f"interval ({percent_label(level)})", "flags")
     rows = [(s.sample_id, s.reported_text or "—",
-             "—" if s.reported is None else rule.text_within(s.reported, s.reported_lower, s.reported_upper),
+             "—" if s.reported is None else computed_within(s.reported, s.reported_lower, s.reported_upper, rule),
              "" if s.reported is None else interval_text(s.reported_lower, s.reported_upper, rule), s.flag_words)
             for s in samples]
     widths = [max(len(r[i]) for r in [heading, *rows]) for i in range(4)]
@@ -1252,7 +1253,7 @@ def result_json(  # type: ignore[no-untyped-def]
         problems = record
     out: dict[str, Any] = {
         "run": run.name, "source": str(source) if source else None, "software_version": __version__,
-        "accepted": result.accepted, "reasons": list(result.reasons), "profile": result.profile.name, "profile_caveat": result.profile.caveat or None,
+        "accepted": result.accepted, "reasons": [machine(r) for r in result.reasons], "profile": result.profile.name, "profile_caveat": result.profile.caveat or None,
         "profile_sha256": result.profile.sha256,
         "method": None if result.method is None else {"id": result.method.id, "version": result.method.version,
                                                       "name": result.method.name, "sha256": result.method.sha256},
@@ -1266,7 +1267,7 @@ def result_json(  # type: ignore[no-untyped-def]
                        for c in _signature_checks(run)],
         "caution": CAUTION,
         "files_written": [{"kind": a, "path": p, "sha256": s} for a, p, s in written],
-        "notes": list(notes),
+        "notes": [machine(n) for n in notes],
         "unusable_readings": [{"file": f, "sheet": sheet, "row": c.row, "column": c.column, "text": c.text,
                                "reason": c.reason} for f, sheet, c in unusable],
         "analytes": [],
@@ -1275,8 +1276,8 @@ def result_json(  # type: ignore[no-untyped-def]
         choice = (choices or {}).get(a.analyte.name) or _document_choice(a)
         entry: dict[str, Any] = {"name": a.analyte.name, "concentration_unit": a.analyte.concentration_unit,
                                  "response_unit": a.analyte.response_unit, "error": a.error, "accepted": a.accepted,
-                                 "warnings": list((analyte_warnings or {}).get(a.analyte.name, [])),
-                                 "model_chosen_by": choice.by, "choice_reasons": list(choice.reasons)}
+                                 "warnings": [machine(w) for w in (analyte_warnings or {}).get(a.analyte.name, [])],
+                                 "model_chosen_by": choice.by, "choice_reasons": [machine(r) for r in choice.reasons]}
         cal = a.calibration
         if cal is not None:
             lof = cal.lack_of_fit
@@ -1286,10 +1287,10 @@ def result_json(  # type: ignore[no-untyped-def]
                                                            cal.leverage, cal.cooks_distance, cal.studentized_residuals))
             entry.update({
                 "model": cal.model.value, "weighting": cal.weighting.value, "model_overridden": a.model_overridden,
-                "choice_reason": GIVEN if a.model_overridden else a.analyte.choice_reason, "equation": cal.equation(17),
+                "choice_reason": GIVEN if a.model_overridden else a.analyte.choice_reason, "equation": machine(cal.equation(17)),
                 "coefficient_names": list(cal.coefficient_names),
                 "coefficients": cal.coefficients, "standard_errors": cal.standard_errors, "covariance": cal.covariance,
-                "convergence": getattr(cal, "convergence", None), "notes": list(cal.notes),
+                "convergence": getattr(cal, "convergence", None), "notes": [machine(n) for n in cal.notes],
                 "residual_sd": cal.residual_sd, "df_residual": cal.df_residual, "r_squared": cal.r_squared,
                 "adjusted_r_squared": cal.adjusted_r_squared, "calibrated_range": None if a.reporting is None else [a.reporting.lloq, a.reporting.uloq],
                 "lack_of_fit": {"available": lof.available, "reason": lof.reason, "f_statistic": lof.f_statistic,
@@ -1299,20 +1300,20 @@ def result_json(  # type: ignore[no-untyped-def]
                                                          "lod": a.limits.lod, "loq": a.limits.loq,
                                                          "critical_concentration": a.limits.critical_concentration,
                                                          "critical_response": a.limits.critical_response},
-                "verdict": {"passed": a.verdict.passed, "reasons": list(a.verdict.reasons)} if a.verdict else None,
-                "qc_verdict": {"passed": a.qc_verdict.passed, "reasons": list(a.qc_verdict.reasons)} if a.qc_verdict else None,
+                "verdict": {"passed": a.verdict.passed, "reasons": [machine(r) for r in a.verdict.reasons]} if a.verdict else None,
+                "qc_verdict": {"passed": a.qc_verdict.passed, "reasons": [machine(r) for r in a.qc_verdict.reasons]} if a.qc_verdict else None,
                 "calibration_checks": None if a.checks is None else {
-                    "passed": a.checks.passed, "reasons": list(a.checks.reasons),
+                    "passed": a.checks.passed, "reasons": [machine(r) for r in a.checks.reasons],
                     "checks": [{"id": c.sample_id, "kind": c.kind.value, "run_order": c.run_order, "nominal": c.nominal,
                                 "found": c.found, "recovery_percent": c.recovery_percent,
-                                "window_percent": c.window_percent, "passed": c.passed, "reason": c.reason}
+                                "window_percent": c.window_percent, "passed": c.passed, "reason": machine(c.reason)}
                                for c in a.checks.checks]},
                 "reporting_range": None if a.reporting is None else {
                     "lloq": a.reporting.lloq, "uloq": a.reporting.uloq, "lod": a.reporting.lod, "loq": a.reporting.loq,
                     "reporting_limit": a.reporting.reporting_limit, "basis": a.reporting.basis,
                     "detection_limit": a.reporting.detection_limit, "detection_basis": a.reporting.detection_label,
-                    "note": a.reporting.note, "narrowed": bool(a.reporting.narrowing),
-                    "narrowing": a.reporting.narrowing or None,
+                    "note": machine(a.reporting.note), "narrowed": bool(a.reporting.narrowing),
+                    "narrowing": machine(a.reporting.narrowing) or None,
                     "standards_range": list(a.reporting.standards_range or (a.reporting.lloq, a.reporting.uloq))},
                 # the standards are rows of plain values: written as they are, each on its line, with no
                 # walk over them for numbers that are not finite (a row holding one takes the long way)
@@ -1363,7 +1364,7 @@ class _SampleRows:
 
         names: dict[int, list[str]] = {}
         words_of = {member: member.value for member in (*SampleKind, *ReportStatus)}
-        text = self.rounding.text_within
+        text = computed_within
         from .core.run_analysis import flag_words_of, is_reportable
 
         in_range = ReportStatus.IN_RANGE
@@ -1394,12 +1395,12 @@ class _SampleRows:
                     "reported_standard_error": reported_se,
                     "reported_lower": reported_lower, "reported_upper": reported_upper,
                     # inside the range, the reported text is the rounded number itself
-                    "reported_rounded": None if reported is None else (
-                        reported_text if status is in_range else text(reported, reported_lower, reported_upper)),
-                    "reported_text": reported_text, "status": words_of[status],
+                    "reported_rounded": None if reported is None else machine(
+                        reported_text if status is in_range else text(reported, reported_lower, reported_upper, self.rounding)),
+                    "reported_text": machine(reported_text), "status": words_of[status],
                     "reportable": is_reportable(status, short),
                     "suggested_dilution": None if suggested != suggested else suggested,
-                    "flags": flag_names, "flag_words": flag_words_of(words, note), "nominal": None if nominal != nominal else nominal,
+                    "flags": flag_names, "flag_words": machine(flag_words_of(words, note)), "nominal": None if nominal != nominal else nominal,
                     "recovery_percent": None if recovery != recovery else recovery,
                     "within_limits": None if within < 0 else bool(within)}
 
@@ -1504,7 +1505,7 @@ def _print_evidence(run, result, as_json: bool, payload: list[dict[str, Any]],  
             table = table.select(tuple(c.name for c in table.columns if c.name != "Chosen"))
         if as_json:
             entry = {"run": run.name, "analyte": a.analyte.name, "columns": [c.heading for c in table.columns],
-                     "rows": _finite(list(table.rows)), "reasons": list(reasons)}
+                     "rows": _finite(list(table.rows)), "reasons": [machine(r) for r in reasons]}
             if choice is not None:
                 entry["recommended"] = [a.analyte.model, a.analyte.weighting] if choice.by == "recommended" else None
             payload.append(entry)
@@ -1531,7 +1532,7 @@ def _text_table(table) -> str:  # type: ignore[no-untyped-def]
     def cell(v: Any) -> str:
         if v is None:
             return "—"
-        return f"{v:.6g}" if isinstance(v, float) else str(v)
+        return f"{figures(v, 6)}" if isinstance(v, float) else str(v)
 
     rows = [[c.heading for c in table.columns]] + [[cell(v) for v in r] for r in table.rows]
     widths = [max(len(r[i]) for r in rows) for i in range(len(rows[0]))]

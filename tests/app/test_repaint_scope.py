@@ -72,6 +72,8 @@ def test_new_curve_words_of_as_many_lines_lay_nothing_out_again(qtbot, make_wind
     from curvewright.io.model_outputs import curve_words
 
     window = make_window(WEIGHTED)
+    window.resize(1500, 820)  # the words of both curves on two lines (a standard error of 4.51 × 10⁻⁵ takes room)
+    settle(qtbot, window)
     session, view = window.session, window.curve_view
     laid_out = []
 

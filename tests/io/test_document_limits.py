@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 from pathlib import Path
 
 import pytest
@@ -100,7 +101,8 @@ def test_a_value_above_1e26_rounds_to_its_decimals(tmp_path, capsys) -> None:
     cli.main(["quantify", str(path), "--json"])
     samples = json.loads(capsys.readouterr().out)["analytes"][0]["samples"]
     diluted = next(s for s in samples if s["dilution_factor"] == 1e30)
-    assert diluted["reported"] > 1e26 and diluted["reported_rounded"].endswith(".00")
+    # two decimals of a 31-digit number: all 33 figures, in the JSON's machine-readable exponent form
+    assert diluted["reported"] > 1e26 and re.fullmatch(r"9\.\d{30}00e30", diluted["reported_rounded"])
     # rounded from the value cleaned of round-off to 12 significant figures (core.rounding.CLEAN_SIGNIFICANT)
     assert float(diluted["reported_rounded"]) == pytest.approx(diluted["reported"], rel=5e-12)
 

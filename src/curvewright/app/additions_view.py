@@ -14,6 +14,7 @@ from PySide6.QtWidgets import QComboBox, QHBoxLayout, QLabel, QVBoxLayout, QWidg
 
 from ..core.level_text import percent_label
 from . import figures, palette
+from ..core.notation import entered, figures as sig_figures
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:  # the engine loads on the analysis thread, after the window is painted
@@ -53,7 +54,7 @@ def draw_additions(plot: pg.PlotItem, a: AnalyteResult, series: AdditionSeriesRe
         _name(legend, plot.plot([x_low], [0.0], pen=None, symbol=palette.SYMBOL_UNKNOWN, symbolSize=10 * k,
                                 symbolBrush=palette.UNKNOWN, symbolPen=pg.mkPen("w", width=0.6 * k),
                                 name="x-intercept with interval"),
-              f"x-intercept −{r.concentration:.4g} with {percent_label(r.level)} interval (shaded)")
+              f"x-intercept −{sig_figures(r.concentration, 4)} with {percent_label(r.level)} interval (shaded)")
     _name(legend, plot.plot(added, means, pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8 * k,
                             symbolBrush=palette.INCLUDED, symbolPen=pg.mkPen("w", width=0.8 * k), name="mean response"),
           "mean response of each addition")
@@ -71,11 +72,11 @@ def series_words(a: AnalyteResult, series: AdditionSeriesResult) -> str:
     r = series.result
     if r is None:
         return f"{series.sample_id}: {series.note}"
-    words = (f"{series.sample_id}: {r.equation(6)}; concentration a/b = {r.concentration:.5g}{in_unit} "
-             f"(standard error {r.standard_error:.3g}; {percent_label(r.level)} interval {r.lower:.5g} to {r.upper:.5g})")
+    words = (f"{series.sample_id}: {r.equation(6)}; concentration a/b = {sig_figures(r.concentration, 5)}{in_unit} "
+             f"(standard error {sig_figures(r.standard_error, 3)}; {percent_label(r.level)} interval {sig_figures(r.lower, 5)} to {sig_figures(r.upper, 5)})")
     if series.dilution_factor != 1:
-        words += (f"; × dilution factor {series.dilution_factor:g} = {series.reported:.5g}{in_unit} "
-                  f"({series.reported_lower:.5g} to {series.reported_upper:.5g})")
+        words += (f"; × dilution factor {entered(series.dilution_factor)} = {sig_figures(series.reported, 5)}{in_unit} "
+                  f"({sig_figures(series.reported_lower, 5)} to {sig_figures(series.reported_upper, 5)})")
     extra = [w for w in r.warnings[1:]] + ([series.note] if series.note else [])
     from ..core.standard_additions import MATRIX_WARNING
 

@@ -23,6 +23,7 @@ from ..core.level_text import percent_label
 from ..io.number_text import signed_text
 from . import figures, palette
 from .flow_layout import FlowRow
+from ..core.notation import entered, figures as sig_figures
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -45,7 +46,7 @@ def _concentration_label(a: AnalyteResult) -> str:
 def _decade_ticks(low: float, high: float) -> list:  # type: ignore[type-arg]
     """The ticks :func:`figures._decade_ticks` puts on a log axis from ``low`` to ``high``."""
     first, last = int(np.floor(np.log10(low))) - 1, int(np.ceil(np.log10(high))) + 1
-    major = [(float(k), f"{10.0 ** k:g}") for k in range(first, last + 1)]
+    major = [(float(k), f"{entered(10.0 ** k)}") for k in range(first, last + 1)]
     minor = [(float(np.log10(m * 10.0**k)), "") for k in range(first, last) for m in range(2, 10)]
     return [major, minor]
 
@@ -1006,13 +1007,13 @@ class CurveView(QWidget):
             if log_x and s.concentration <= 0:
                 continue
             out.append((tx(s.concentration), ty(cal.response[i]),
-                        f"standard {s.id}{' (anchor point: fitted, not judged)' if s.anchor else ''}: nominal {s.concentration:g} {unit}, response {cal.response[i]:.6g}, "
-                        f"back-calculated {cal.back_calculated[i]:.5g} ({signed_text(float(cal.relative_error[i]), 2)} %)"))
+                        f"standard {s.id}{' (anchor point: fitted, not judged)' if s.anchor else ''}: nominal {entered(s.concentration)} {unit}, response {sig_figures(cal.response[i], 6)}, "
+                        f"back-calculated {sig_figures(cal.back_calculated[i], 5)} ({signed_text(float(cal.relative_error[i]), 2)} %)"))
         for s in a.excluded_standards:
             used, _ = response_value(s.response, s.internal_standard_response, a.analyte.uses_internal_standard)
             if used is not None and (s.concentration > 0 or not log_x) and (used > 0 or not log_y):
                 out.append((tx(s.concentration), ty(used), f"standard {s.id} (excluded: {s.exclusion_reason}): "
-                                                           f"nominal {s.concentration:g} {unit}, response {used:.6g}"))
+                                                           f"nominal {entered(s.concentration)} {unit}, response {sig_figures(used, 6)}"))
         columns = a.sample_columns  # read as columns: no result object is made per sample
         if columns is None:
             return out
@@ -1024,8 +1025,8 @@ class CurveView(QWidget):
         for i in estimated:
             if (log_x and estimate[i] <= 0) or (log_y and mean[i] <= 0):
                 continue
-            out.append((tx(estimate[i]), ty(mean[i]), f"{columns.kinds[i].words} {columns.ids[i]}: {estimate[i]:.5g} {unit} "
-                        f"({lower[i]:.5g} to {upper[i]:.5g}); {flag_words_of(columns.words[i], columns.notes[i])}"))
+            out.append((tx(estimate[i]), ty(mean[i]), f"{columns.kinds[i].words} {columns.ids[i]}: {sig_figures(estimate[i], 5)} {unit} "
+                        f"({sig_figures(lower[i], 5)} to {sig_figures(upper[i], 5)}); {flag_words_of(columns.words[i], columns.notes[i])}"))
         return out
 
     def _on_mouse(self, event) -> None:  # type: ignore[no-untyped-def]

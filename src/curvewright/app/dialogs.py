@@ -22,6 +22,7 @@ from ..io.importing import ImportResult, import_samples, import_standards
 from ..io.tables import (RawTable, default_sheet, hidden_rows_chosen, hidden_rows_listed, table_from_csv, table_from_text,
                          table_from_xlsx, xlsx_sheets)
 from .standards_model import INVALID
+from ..core.notation import entered, entered_span, figures
 
 EXCLUSION_REASONS = (
     "preparation error (standard made up wrongly)",
@@ -115,7 +116,7 @@ def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
         cal = a.calibration
         judged = (f"{int(a.verdict.passing.sum())} of {int(a.verdict.judged.sum())} judged"
                   if a.verdict is not None else "")
-        return [cal.equation(6), f"{cal.residual_sd:.5g}", f"{cal.adjusted_r_squared:.6f}",
+        return [cal.equation(6), f"{figures(cal.residual_sd, 5)}", f"{cal.adjusted_r_squared:.6f}",
                 f"{cal.n_standards}", reporting_range_words(a), judged, "accepted" if a.accepted else "NOT accepted"]
 
     names = ("Curve", "Residual SD", "Adjusted R²", "Standards in fit", "Calibrated range", "Standards within limits",
@@ -136,7 +137,7 @@ def reporting_range_words(a) -> str:  # type: ignore[no-untyped-def]
     if rng is None:
         return "not defined"
     unit = f" {a.analyte.concentration_unit}" if a.analyte.concentration_unit else ""
-    return f"{rng.lloq:g}–{rng.uloq:g}{unit} (LLOQ–ULOQ{', narrowed' if rng.narrowing else ''})"
+    return f"{entered_span(rng.lloq, rng.uloq)}{unit} (LLOQ–ULOQ{', narrowed' if rng.narrowing else ''})"
 
 
 def ask_exclusion(parent: QWidget, run: Run, analyte: str, standard_id: str, *, row: int | None = None) -> str | None:
@@ -151,7 +152,7 @@ def ask_exclusion(parent: QWidget, run: Run, analyte: str, standard_id: str, *, 
     a = run.analyte(analyte)
     s = a.standard(standard_id)
     where = f"row {row + 1}, " if row is not None else ""
-    conc = f"{s.concentration:g} {a.concentration_unit}".strip() if s.has_concentration else repr(s.concentration_text)
+    conc = f"{entered(s.concentration)} {a.concentration_unit}".strip() if s.has_concentration else repr(s.concentration_text)
     dialog = ReasonDialog(f"Exclude standard {standard_id}",
                           f"Why is standard {standard_id} ({where}nominal {conc}, response {s.response.text.strip()}) "
                           f"of {analyte} excluded from the fit? The standard stays in the run, flagged, with your "
@@ -190,7 +191,7 @@ def ask_anchor_points(parent: QWidget, run: Run, analyte: str, standard_ids: lis
                             f"{', '.join(standard_ids)} of {analyte}. The fit refuses it: {refusal}")
         return None
     a = run.analyte(analyte)
-    named = "; ".join(f"{s.id} (row {row + 1}, nominal {s.concentration:g} {a.concentration_unit})".replace(" )", ")")
+    named = "; ".join(f"{s.id} (row {row + 1}, nominal {entered(s.concentration)} {a.concentration_unit})".replace(" )", ")")
                       for s, row in zip((a.standard(i) for i in standard_ids), rows))
     prompt = (f"Why are standard(s) {named} of {analyte} marked as anchor points? They stay in the fit, but are not "
               "judged for acceptance and lie outside the calibrated range (LLOQ to ULOQ); your reason goes into the "
@@ -338,12 +339,12 @@ class ImportDialog(QDialog):
 
         for i, (number, cells) in enumerate(rows):
             for j, cell in enumerate(cells):
-                text = repr(cell) if isinstance(cell, float) else cell
+                text = entered(cell) if isinstance(cell, float) else cell
                 shown = text
                 if i > 0 and isinstance(cell, str) and cell.strip():
                     parsed = parse_reading(cell, result.decimal_mark)
                     if parsed.reading is not None and parsed.reading.is_number:
-                        shown = f"{cell} → {parsed.reading.value!r}"
+                        shown = f"{cell} → {entered(parsed.reading.value)}"
                     elif parsed.reading is not None and parsed.reading.is_censored:
                         shown = f"{cell} → censored"
                 item = QTableWidgetItem(shown)

@@ -29,6 +29,7 @@ from ..core.run import SampleKind
 from . import palette
 from .plotted import acceptance_steps, excluded_points, sample_points, shaded_ends, wide_range  # noqa: F401 (shared with the record)
 from .plotted import finite as _finite
+from ..core.notation import entered
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -69,7 +70,7 @@ def _axis_transform(plot: pg.PlotItem, log: bool, side: str = "bottom", span: tu
 def _decade_ticks(axis: pg.AxisItem, low: float, high: float) -> None:
     """Major ticks labelled at each power of ten, unlabelled minor ticks at 2…9 times it."""
     first, last = int(np.floor(np.log10(low))) - 1, int(np.ceil(np.log10(high))) + 1
-    major = [(float(k), f"{10.0 ** k:g}") for k in range(first, last + 1)]
+    major = [(float(k), f"{entered(10.0 ** k)}") for k in range(first, last + 1)]
     minor = [(float(np.log10(m * 10.0**k)), "") for k in range(first, last) for m in range(2, 10)]
     axis.setTicks([major, minor])
 
@@ -294,7 +295,7 @@ def draw_influence(plot: pg.PlotItem, a: AnalyteResult, *, legend: pg.LegendItem
         _name(legend, upper, "influence limit (Cook's D and residual)")
     leverage_pen = pg.mkPen("#888888", style=Qt.PenStyle.DotLine)
     plot.addItem(pg.InfiniteLine(pos=HIGH_LEVERAGE, angle=90, pen=leverage_pen))
-    _name(legend, pg.PlotDataItem([0], [0], pen=leverage_pen), f"leverage {HIGH_LEVERAGE:g} (noted)")
+    _name(legend, pg.PlotDataItem([0], [0], pen=leverage_pen), f"leverage {entered(HIGH_LEVERAGE)} (noted)")
     flagged = np.array([bool(f) for f in cal.influence_flags])
     plain = finite & ~flagged
     _name(legend, plot.plot(h[plain], t[plain], pen=None, symbol=palette.SYMBOL_INCLUDED, symbolSize=8,

@@ -30,6 +30,7 @@ from ..core.trends import DEFAULT_BASELINE_RUNS, RULES, Baseline
 from ..io.archive import (ENVIRONMENT, ArchiveError, History, RecordNotIntact, Today, history, locate,
                           open_archive)
 from . import figures, palette
+from ..core.notation import figures as sig_figures
 
 SETTINGS_KEY = "archive/location"
 TODAY_COLOUR = "#2a7f62"
@@ -360,8 +361,8 @@ class HistoryWindow(QWidget):
             lim = h.trend.limits
             (l2, u2), (l3, u3) = lim.limit(2), lim.limit(3)
             self.summary.setText(
-                f"{_escape(h.words)} — limits from {_escape(h.trend.baseline_words)}: mean {lim.mean:.6g}, "
-                f"s {lim.sd:.4g}; ±2 s {l2:.6g} to {u2:.6g}; ±3 s {l3:.6g} to {u3:.6g}. Rules: {', '.join(RULES)} "
+                f"{_escape(h.words)} — limits from {_escape(h.trend.baseline_words)}: mean {sig_figures(lim.mean, 6)}, "
+                f"s {sig_figures(lim.sd, 4)}; ±2 s {sig_figures(l2, 6)} to {sig_figures(u2, 6)}; ±3 s {sig_figures(l3, 6)} to {sig_figures(u3, 6)}. Rules: {', '.join(RULES)} "
                 "(Westgard et al., Clin. Chem. 1981).")
         which = "Today's run" if self.today_label == "today" else f"The {self.today_label}"
         if self.today is None:
@@ -381,7 +382,7 @@ class HistoryWindow(QWidget):
         for r, i in enumerate(rows):
             p = h.points[i]
             z = float(h.trend.z[i]) if h.trend is not None else float("nan")
-            cells = (f"{i + 1}: {p.label}", p.day[:10], f"{p.value:.6g}", f"{z:+.2f}",
+            cells = (f"{i + 1}: {p.label}", p.day[:10], f"{sig_figures(p.value, 6)}", f"{z:+.2f}",
                      "; ".join(b.words for b in h.breaks_at(i)))
             for c, text in enumerate(cells):
                 self.breaks_table.setItem(r, c, QTableWidgetItem(text))

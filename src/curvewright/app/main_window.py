@@ -23,7 +23,7 @@ from PySide6.QtWidgets import (QComboBox, QFileDialog, QFrame, QHBoxLayout, QLab
 
 from .. import CAUTION, __version__
 from ..core.errors import CurvewrightError
-from ..core.number_words import full_number
+from ..core.notation import entered_span
 from ..core.run import Analyte, Run
 from ..io import run_edits
 from ..io.atomic import write_atomically
@@ -573,7 +573,7 @@ class MainWindow(QMainWindow):
                 rng = a.reporting
                 if rng is not None and rng.narrowing:  # said with the verdict's own words
                     lines.append(f"{a.analyte.name}: {rng.narrowing} (the standards in the fit span "
-                                 f"{full_number(rng.standards_range[0])}–{full_number(rng.standards_range[1])}).")
+                                 f"{entered_span(*rng.standards_range)}).")
                 columns = a.sample_columns
                 if columns is None or a.calibration is None:
                     continue

@@ -12,6 +12,7 @@ from PySide6.QtGui import QBrush
 from PySide6.QtWidgets import (QComboBox, QDialog, QDialogButtonBox, QFormLayout, QLabel, QTableWidget,
                                QTableWidgetItem, QVBoxLayout, QWidget)
 
+from ..core.notation import entered
 from ..io.number_text import parse_reading
 from ..io.paste import FIELD_WORDS, TEXT_FIELDS, PastedBlock, table_fields
 from .standards_model import INVALID
@@ -139,7 +140,7 @@ class PasteDialog(QDialog):
             return text
         if parsed.reading.is_censored:
             return f"{text} → censored"
-        return f"{text} → {parsed.reading.value!r}"
+        return f"{text} → {entered(parsed.reading.value)}"
 
     def _problem(self, text: str, field: str | None) -> str | None:
         if field is None or field in TEXT_FIELDS or not text.strip():

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import os
 import sys
+from ..core.notation import entered
 
 
 def ensure_application(offscreen_if_headless: bool = True):  # type: ignore[no-untyped-def]
@@ -55,7 +56,7 @@ def window_problem() -> str | None:
     try:
         probe = subprocess.run([sys.executable, "-c", _PROBE], capture_output=True, timeout=PROBE_SECONDS)
     except subprocess.TimeoutExpired:
-        return f"the display ({named}) did not answer within {PROBE_SECONDS:g} s"
+        return f"the display ({named}) did not answer within {entered(PROBE_SECONDS)} s"
     except OSError as exc:
         return f"Qt could not be started to open a window ({exc})"
     if probe.returncode != 0:

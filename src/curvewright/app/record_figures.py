@@ -36,6 +36,7 @@ from shiboken6 import VoidPtr
 from ..core.level_text import percent_label
 from . import palette
 from .plotted import acceptance_steps, excluded_points, finite, sample_points, shaded_ends
+from ..core.notation import entered, figures, is_plain
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -244,9 +245,12 @@ def tick_values(low: float, high: float, spacing: float) -> np.ndarray:
 
 
 def tick_text(value: float, spacing: float) -> str:
-    """A tick label: as many decimals as the spacing needs; very small or large values in %g."""
-    if abs(value) < 0.001 or abs(value) >= 10000:
-        return "%g" % value
+    """A tick label: as many decimals as the spacing needs; zero as "0"; a value the notation writes
+    with an exponent (:mod:`curvewright.core.notation`) to six significant figures ("2 × 10⁻⁶")."""
+    if value == 0:
+        return "0"
+    if not is_plain(repr(float(value))):
+        return figures(value, 6)
     places = max(0, ceil(-log10(spacing)))
     return f"{value:.{places}f}"
 
@@ -254,7 +258,7 @@ def tick_text(value: float, spacing: float) -> str:
 def decade_ticks(low: float, high: float) -> tuple[list[tuple[float, str]], list[float]]:
     """On a log axis showing log10 values from ``low`` to ``high``: each power of ten inside, labelled
     with its value ("0.01", "100"), and unlabelled ticks at 2…9 times each."""
-    major = [(float(k), f"{10.0 ** k:g}") for k in range(int(floor(low)), int(ceil(high)) + 1) if low <= k <= high]
+    major = [(float(k), f"{entered(10.0 ** k)}") for k in range(int(floor(low)), int(ceil(high)) + 1) if low <= k <= high]
     minor = [float(log10(m * 10.0 ** k)) for k in range(int(floor(low)) - 1, int(ceil(high)) + 1) for m in range(2, 10)]
     return major, [v for v in minor if low <= v <= high]
 
@@ -849,7 +853,7 @@ def influence_figure(a: AnalyteResult, *, height: float = 71.2) -> PlottedFigure
         legend.append(Entry("influence limit (Cook's D and residual)", boundary))
     noted = Stroke("#888888", 0.5, "dot")
     layers.append(Rule("x", HIGH_LEVERAGE, noted))
-    legend.append(Entry(f"leverage {HIGH_LEVERAGE:g} (noted)", noted))
+    legend.append(Entry(f"leverage {entered(HIGH_LEVERAGE)} (noted)", noted))
     flagged = np.array([bool(f) for f in cal.influence_flags], dtype=bool)
     plain = ok & ~flagged
     standard = Markers(h[plain], t[plain], "circle", STANDARD_MM, palette.INCLUDED, WHITE_EDGE, "standard")
@@ -901,7 +905,7 @@ def additions_figure(a: AnalyteResult, series: AdditionSeriesResult, *, height: 
         intercept = Markers(np.array([x_low]), np.array([0.0]), "diamond", SAMPLE_MM, palette.UNKNOWN, WHITE_EDGE,
                             "x-intercept")
         layers.append(intercept)
-        legend.append(Entry(f"x-intercept −{r.concentration:.4g} with {percent_label(r.level)} interval (shaded)", intercept))
+        legend.append(Entry(f"x-intercept −{figures(r.concentration, 4)} with {percent_label(r.level)} interval (shaded)", intercept))
     points = Markers(added, means, "circle", STANDARD_MM, palette.INCLUDED, WHITE_EDGE, "mean response")
     layers.append(points)
     legend.append(Entry("mean response of each addition", points))

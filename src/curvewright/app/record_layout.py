@@ -97,11 +97,13 @@ comment) is set with the shaping :func:`font` as before."""
 _FONTS: dict[str, QFont] = {}
 _SET_PLAIN = SET_PLAIN.fullmatch
 _GLUE = re.compile("[<>≤≥–]")
-_NUMBER_THEN_UNIT = re.compile(r"\d[)\]]?\s+(?:[µμ]?[A-Za-z]{1,3}/[A-Za-z]{1,3}|%|ppm|ppb|ppt)(?![\w/])")
+_NUMBER_THEN_UNIT = re.compile(r"[\d⁰¹²³⁴⁵⁶⁷⁸⁹][)\]]?\s+(?:[µμ]?[A-Za-z]{1,3}/[A-Za-z]{1,3}|%|ppm|ppb|ppt)(?![\w/])")
 """A number followed by its unit ("0.4545 µg/L", "(12 ng/mL)", "3.5 %"): a unit is a quotient of two short
 symbols or a part-per word. :meth:`RecordLayout.bound_words` keeps the two on one line."""
 _UNIT = re.compile(r"(?:[µμ]?[A-Za-z]{1,3}/[A-Za-z]{1,3}|%|ppm|ppb|ppt)[)\],;:.]*")
-_NUMBER_END = re.compile(r".*\d[)\]]?")
+_NUMBER_END = re.compile(r".*[\d⁰¹²³⁴⁵⁶⁷⁸⁹][)\]]?")
+_BREAKING_SPACES = re.compile("[^\\S\u00a0]+")
+"""White space a line may break at: any but the no-break space."""
 _ONE_WORD = re.compile(r"[^\s<>≤≥–]+")
 """A text that :meth:`RecordLayout.wrap` sets as it is on one line wherever it fits: one word, without the
 signs that :meth:`RecordLayout.bound_words` joins to their neighbours."""
@@ -327,21 +329,25 @@ class RecordLayout:
 
     @staticmethod
     def bound_words(text: str) -> list[str]:
-        """Words, with a lone comparison sign joined to the word after it, a lone dash to the words on
-        both sides and a unit to the number before it ("0.4545 µg/L"), joined by no-break spaces: a
-        reader must never find a number on one line and its unit on the next."""
+        """Words (split at spaces, not at no-break spaces: "3.20 × 10⁻⁵" is one), with a lone
+        comparison sign joined to the word after it, a lone dash to the words on both sides (to the word
+        before it only where that is a number with an exponent) and a unit to the number before it
+        ("0.4545 µg/L"), joined by no-break spaces: a reader must never find a number on one line and its
+        unit on the next."""
         if _GLUE.search(text) is None and _NUMBER_THEN_UNIT.search(text) is None:
-            return text.split()  # no sign, no dash and no unit after a number: the words as they are (most cells)
+            # no sign, no dash and no unit after a number: the words as they are (most cells)
+            return text.split() if "\u00a0" not in text else _BREAKING_SPACES.split(text.strip())
         words: list[str] = []
         glue_next = False
-        for word in text.split():
+        for word in (text.split() if "\u00a0" not in text else _BREAKING_SPACES.split(text.strip())):
             if words and _UNIT.fullmatch(word) and _NUMBER_END.fullmatch(words[-1]):
                 words[-1] += "\u00a0" + word
             elif glue_next and words:
                 words[-1] += "\u00a0" + word
             elif word == "–" and words:
+                # an interval whose ends are written with an exponent may break after its dash
+                glue_next = "\u00a0" not in words[-1]
                 words[-1] += "\u00a0" + word
-                glue_next = True
                 continue
             else:
                 words.append(word)

@@ -14,7 +14,8 @@ from PySide6.QtGui import QBrush, QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QLabel, QVBoxLayout, QWidget
 
 from ..core.level_text import percent_label
-from ..io.number_text import full_number, percent_beside_limits
+from ..core.notation import computed_within, entered, machine
+from ..io.number_text import percent_beside_limits
 from ..io.result_tables import display_number, interval_text, recovery_windows
 from .table_view import FittedTableView, fit_columns
 
@@ -228,7 +229,7 @@ class ResultsModel(QAbstractTableModel):
             return display_number(value)
         if self._rule is None:
             return display_number(value)
-        return self._rule.text_within(value, s.reported_lower, s.reported_upper)
+        return computed_within(value, s.reported_lower, s.reported_upper, self._rule)
 
     def text(self, s: SampleResult, col: int) -> str:
         if col == SAMPLE:
@@ -255,7 +256,7 @@ class ResultsModel(QAbstractTableModel):
         if col == ESTIMATE:
             return display_number(s.estimate)
         if col == DILUTION:
-            return full_number(s.dilution_factor)
+            return entered(s.dilution_factor)
         return display_number(s.reported, 12)  # the number behind what is reported, at full precision
 
     def _recovery_text(self, s: SampleResult) -> str:
@@ -274,13 +275,13 @@ class ResultsModel(QAbstractTableModel):
         if s.reported is not None:
             parts.append(f"reported {s.reported_text or self._rounded(s)}; value {self._rounded(s)} {unit} ({level} interval "
                          f"{interval_text(s.reported_lower, s.reported_upper, self._rule)} {unit}); estimate {display_number(s.estimate)} {unit} × dilution "
-                         f"{full_number(s.dilution_factor)}, from the mean of {len(s.replicate_responses)} response(s) "
+                         f"{entered(s.dilution_factor)}, from the mean of {len(s.replicate_responses)} response(s) "
                          f"{display_number(s.mean_response)}")
         if s.flag_words:
             parts.append(s.flag_words)
         if s.recovery_percent is not None:
             window = "its check window" if s.kind.is_check else "the QC tolerance"
-            parts.append(f"recovery {self._recovery_text(s)} % of nominal {display_number(s.nominal)} {unit}"
+            parts.append(f"recovery {self._recovery_text(s)} % of nominal {entered(s.nominal)} {unit}"
                          + ("" if s.within_limits is None else (f", within {window}" if s.within_limits
                                                                  else f", OUTSIDE {window}")))
         elif s.kind.is_check and s.within_limits is not None:
@@ -289,7 +290,8 @@ class ResultsModel(QAbstractTableModel):
 
     def as_text(self) -> str:
         lines = ["\t".join(self.headerData(c, Qt.Orientation.Horizontal) for c in range(len(COLUMNS)))]
-        lines += ["\t".join(self.row_texts(r)) for r in range(self.rowCount())]
+        # for a spreadsheet: a number in scientific notation as programs read it ("3.20e-5")
+        lines += ["\t".join(machine(t) for t in self.row_texts(r)) for r in range(self.rowCount())]
         return "\n".join(lines) + "\n"
 
 

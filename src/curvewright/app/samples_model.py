@@ -17,7 +17,8 @@ from PySide6.QtGui import QBrush
 from ..core.run import Measurement, Run, RunError, Sample, SampleKind
 from ..io import run_edits
 from ..io.importing import KIND_CHOICES, KIND_WORDS
-from ..io.number_text import full_number, number_for_editing
+from ..core.notation import entered
+from ..io.number_text import number_for_editing
 from ..io.paste import PastedBlock
 from .cells import number_from_text, reading_from_text, reading_problem
 from .session import RunSession
@@ -118,7 +119,7 @@ class SamplesModel(QAbstractTableModel):
     def _text(self, s: Sample, col: int, edit: bool = False) -> str:
         """The cell's text: a number with every digit it holds (never rounded, so that opening a cell
         and pressing Enter changes nothing), in the table's decimal mark in the editor."""
-        number = (lambda v: number_for_editing(v, self.decimal_mark)) if edit else full_number
+        number = (lambda v: number_for_editing(v, self.decimal_mark)) if edit else entered
         if col == ID:
             return s.id
         if col == KIND:

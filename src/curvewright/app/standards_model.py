@@ -16,11 +16,12 @@ from PySide6.QtGui import QBrush, QColor, QFont
 
 from ..core.run import Analyte, Reading, Run, RunError, Standard
 from ..io import run_edits
-from ..io.number_text import full_number, number_for_editing, percent_beside_limits, signed_text
+from ..io.number_text import number_for_editing, percent_beside_limits, signed_text
 from ..io.paste import PastedBlock
 from .cells import display_reading, number_from_text, reading_from_text, reading_problem
 from .session import RunSession
 from .table_view import ReasonProvider, RowCache, ask_reason_when_required
+from ..core.notation import entered, figures
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -232,7 +233,7 @@ class StandardsModel(QAbstractTableModel):
         if col == CONC:
             if not s.has_concentration:
                 return s.concentration_text
-            return number_for_editing(s.concentration, self.decimal_mark) if edit else full_number(s.concentration)
+            return number_for_editing(s.concentration, self.decimal_mark) if edit else entered(s.concentration)
         if col == RESP:
             return display_reading(s.response)
         if col == IS:
@@ -271,12 +272,12 @@ class StandardsModel(QAbstractTableModel):
 
                 back, relative = back_calculated_outside_fit(cal, s, self.analyte.uses_internal_standard)
                 if col == BACK:
-                    return "" if back is None else f"{back:.5g}"
+                    return "" if back is None else f"{figures(back, 5)}"
                 return "" if relative is None else signed_text(relative, 2)
             return ""
         if col == BACK:
             value = cal.back_calculated[position]
-            return f"{value:.5g}" if np.isfinite(value) else "no solution"
+            return f"{figures(value, 5)}" if np.isfinite(value) else "no solution"
         if col == RE:
             value = cal.relative_error[position]
             if not np.isfinite(value):

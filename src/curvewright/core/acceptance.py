@@ -30,6 +30,7 @@ from .errors import ProfileError
 from .levels import Levels, group_levels
 from .limit_digits import BOUNDARY
 from .number_words import full_number
+from .notation import entered
 
 if TYPE_CHECKING:  # pragma: no cover
     from .curve_rules import CurveRules
@@ -245,7 +246,7 @@ class AcceptanceProfile:
         for key, value in changes.items():
             if not (0 < value < 1000):
                 raise ProfileError(f"{key}: {value!r} must be a percentage above 0.")
-        label = ", ".join(f"{k.replace('_', ' ')} {v:g}" for k, v in changes.items())
+        label = ", ".join(f"{k.replace('_', ' ')} {entered(v)}" for k, v in changes.items())
         return replace(
             self,
             standards=replace(self.standards, **changes),
@@ -389,8 +390,8 @@ class AcceptanceProfile:
         needed = Fraction(rules.min_fraction_passing_per_level)
         return _Wording(
             required.numerator, required.denominator, needed.numerator, needed.denominator,
-            f" (±{rules.tolerance_percent:g} %, ±{rules.lowest_level_tolerance_percent:g} % at the lowest "
-            f"level, ±{rules.highest_level_tolerance_percent:g} % at the highest); "
+            f" (±{entered(rules.tolerance_percent)} %, ±{entered(rules.lowest_level_tolerance_percent)} % at the lowest "
+            f"level, ±{entered(rules.highest_level_tolerance_percent)} % at the highest); "
             f"{_percent_text(rules.min_fraction_passing)} required",
             f" levels pass (a level passes with {_percent_text(rules.min_fraction_passing_per_level)} of its "
             f"standards within limits); at least {rules.min_levels_passing} required",
@@ -459,12 +460,12 @@ class AcceptanceProfile:
         else:
             if level_pass and not level_pass[0]:
                 reasons.append(
-                    f"note: the lowest level ({levels.concentration[nonzero_levels[0]]:g}) fails; the "
+                    f"note: the lowest level ({entered(levels.concentration[nonzero_levels[0]])}) fails; the "
                     "quantitation range would have to start at the next passing level"
                 )
             if len(level_pass) > 1 and not level_pass[-1]:
                 reasons.append(
-                    f"note: the highest level ({levels.concentration[nonzero_levels[-1]]:g}) fails; the "
+                    f"note: the highest level ({entered(levels.concentration[nonzero_levels[-1]])}) fails; the "
                     "quantitation range would have to end at the previous passing level"
                 )
         if self.curve is not None:
@@ -500,7 +501,7 @@ class AcceptanceProfile:
             raise ProfileError(f"QC samples: {x.size} nominal values and {y.size} results; give one of each per QC.")
         bad = np.flatnonzero(x <= 0)
         if bad.size:
-            raise ProfileError(f"QC nominal concentration: QC sample {int(bad[0]) + 1} has {x[bad[0]]:g}; it must be above zero.")
+            raise ProfileError(f"QC nominal concentration: QC sample {int(bad[0]) + 1} has {entered(x[bad[0]])}; it must be above zero.")
         rules = self.qc
         re = 100.0 * (y - x) / x
         passing = np.abs(re) <= rules.tolerance_percent + BOUNDARY
@@ -511,7 +512,7 @@ class AcceptanceProfile:
         if n_all:
             overall = Fraction(n_pass, n_all) >= rules.min_fraction_passing and not unjudged
             reasons.append(
-                f"{'pass' if overall else 'FAIL'}: {n_pass} of {n_all} QC samples within ±{rules.tolerance_percent:g} %; "
+                f"{'pass' if overall else 'FAIL'}: {n_pass} of {n_all} QC samples within ±{entered(rules.tolerance_percent)} %; "
                 f"{_percent_text(rules.min_fraction_passing)} required"
                 + (f"; {unjudged} QC sample(s) not judged, counted as not passing" if unjudged else "")
             )
@@ -526,7 +527,7 @@ class AcceptanceProfile:
                 level_ok = Fraction(k_pass, k) >= rules.min_fraction_passing_per_level
                 ok &= level_ok
                 reasons.append(
-                    f"{'pass' if level_ok else 'FAIL'}: QC level {level:g}: {k_pass} of {k} within limits; "
+                    f"{'pass' if level_ok else 'FAIL'}: QC level {entered(level)}: {k_pass} of {k} within limits; "
                     f"{_percent_text(rules.min_fraction_passing_per_level)} required"
                 )
         reasons += [f"FAIL: QC sample {sample_id!r} not judged: {reason}; the run cannot be accepted on a QC "
@@ -651,4 +652,4 @@ def _percent_text(fraction: Fraction) -> str:
         return "all"
     if fraction.denominator in (3, 6):
         return f"at least {fraction.numerator}/{fraction.denominator}"
-    return f"at least {float(fraction) * 100:g} %"
+    return f"at least {entered(float(fraction) * 100)} %"

@@ -18,6 +18,7 @@ import numpy as np
 from .errors import CurvewrightError
 from .run import Analyte, Reading, Run
 from .standard_additions import StandardAdditions, standard_additions
+from .notation import entered
 
 
 @dataclass(frozen=True, eq=False)
@@ -69,7 +70,7 @@ def analyse_additions(run: Run, analyte: Analyte, response_value: ResponseRule) 
         for a in additions:
             value, reason = response_value(a.response, a.internal_standard_response, analyte.uses_internal_standard)
             if value is None:
-                notes.append(f"addition {a.added:g}, replicate {a.replicate}: {reason}")
+                notes.append(f"addition {entered(a.added)}, replicate {a.replicate}: {reason}")
                 continue
             by_added.setdefault(a.added, []).append(value)
         added = tuple(sorted(by_added))

@@ -28,6 +28,7 @@ from .regression_test import RegressionTest, regression_test, regression_tests
 from .response_factor import response_factor_weighting
 from .limits import DetectionLimits, detection_limits
 from .weighting import Weighting, WeightModel, make_weights
+from .notation import entered, figures
 
 
 @frozen_value(eq=False)
@@ -319,7 +320,7 @@ def _check_design(x: FloatArray, model: Model, p: int, distinct: int | None = No
         distinct = int(np.unique(x).size)
     if distinct == 1:
         raise CalibrationInputError(
-            f"concentration: all {x.size} standards are at {x[0]:g}; a curve needs "
+            f"concentration: all {x.size} standards are at {entered(x[0])}; a curve needs "
             "standards at different concentrations."
         )
     if distinct < p:
@@ -545,7 +546,7 @@ def _refuse_unrepresentable(
     if problem is not None:
         raise CalibrationInputError(
             f"concentration and response: a {model.description} over concentrations up to "
-            f"{float(np.max(np.abs(x))):g} and responses up to {float(np.max(np.abs(y))):g} cannot be "
+            f"{entered(float(np.max(np.abs(x))))} and responses up to {entered(float(np.max(np.abs(y))))} cannot be "
             f"computed in double precision ({problem}); express them in units that bring the values "
             "nearer to 1 (a larger or smaller unit)."
         )
@@ -570,6 +571,6 @@ def _quadratic_geometry(
     branch = 1 if (z_high - vertex) >= (vertex - z_low) else -1
     at = basis.centre + basis.scale * vertex
     return branch, float(vertex), (
-        f"the quadratic turns over at concentration {at:.6g}, inside the calibrated range: "
+        f"the quadratic turns over at concentration {figures(at, 6)}, inside the calibrated range: "
         "responses near the top of the curve may be reached twice",
     )

@@ -25,6 +25,7 @@ from .acceptance import CheckRules
 from .limit_digits import BOUNDARY, recovery_decimals
 from .reporting import ReportingRange, ReportStatus
 from .run import SampleKind
+from .notation import entered, figures
 
 
 @dataclass(frozen=True)
@@ -82,8 +83,8 @@ def judge_check(c: CheckInput, rules: CheckRules, rng: ReportingRange | None, pr
             return result(False, f"no usable result ({c.note or 'no numeric response'})")
         limit = rng.reporting_limit * c.dilution
         if c.reported < limit:
-            return result(True, f"{c.reported:.4g}{u} is below the reporting limit {limit:.4g}{u}")
-        return result(False, f"{c.reported:.4g}{u} is not below the reporting limit {limit:.4g}{u}")
+            return result(True, f"{figures(c.reported, 4)}{u} is below the reporting limit {figures(limit, 4)}{u}")
+        return result(False, f"{figures(c.reported, 4)}{u} is not below the reporting limit {figures(limit, 4)}{u}")
     window = rules.window(c.kind.value)
     if window is None:
         return result(False, f"profile {profile!r} sets no window for a {c.kind.words}; it cannot be judged")
@@ -95,7 +96,7 @@ def judge_check(c: CheckInput, rules: CheckRules, rng: ReportingRange | None, pr
     passed = abs(recovery - 100.0) <= window + BOUNDARY
     where = "within" if passed else "outside"
     shown = f"{recovery:.{recovery_decimals(recovery, window)}f}"  # more decimals where one would read as the limit
-    return result(passed, f"recovery {shown} % of {c.nominal:g}{u}, {where} {100 - window:g}–{100 + window:g} %",
+    return result(passed, f"recovery {shown} % of {entered(c.nominal)}{u}, {where} {entered(100 - window)}–{entered(100 + window)} %",
                   recovery, window)
 
 

@@ -87,6 +87,7 @@ from .least_squares import solve_weighted
 from .models import Model, make_basis
 from .variance import VarianceEvidence, variance_evidence
 from .weighting import Weighting
+from .notation import entered, figures
 
 POWER_MIN_DECADES = 2.0
 """The power curve is considered, and may be recommended, when the positive standards span at least this many decades."""
@@ -412,7 +413,7 @@ def _rejected(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:
     line_tests = _line_rejected_by(line) if line is not None else ""
     line_words = (f"the straight line is rejected by {line_tests}" if line_tests
                   else "the straight line could not be fitted")
-    return (f"the quadratic ({chosen.weighting.description}) is rejected by its lack-of-fit test (p = {lof.p_value:.3g}) "
+    return (f"the quadratic ({chosen.weighting.description}) is rejected by its lack-of-fit test (p = {figures(lof.p_value, 3)}) "
             f"and {line_words}: neither model follows the data; narrow the range or check the standards, or choose "
             "a model yourself with a recorded reason")
 
@@ -422,9 +423,9 @@ def _line_rejected_by(line: Candidate) -> str:
     lof = line.calibration.lack_of_fit
     tests = []
     if lof.significant(LACK_OF_FIT_ALPHA):
-        tests.append(f"its lack-of-fit test (p = {lof.p_value:.3g})")
+        tests.append(f"its lack-of-fit test (p = {figures(lof.p_value, 3)})")
     if line.mandel is not None and line.mandel.significant:
-        tests.append(f"Mandel's test (p = {line.mandel.p_value:.3g})")
+        tests.append(f"Mandel's test (p = {figures(line.mandel.p_value, 3)})")
     return " and ".join(tests)
 
 
@@ -494,14 +495,14 @@ def _model_for(
     mandel_rejects = mandel.significant if mandel is not None else False
     if lof.available:
         reasons.append(
-            f"straight line lack-of-fit: F = {lof.f_statistic:.4g} on ({lof.df_lack_of_fit}, {lof.df_pure_error}) df, "
-            f"p = {lof.p_value:.3g} ({'significant' if lof_rejects else 'not significant'} at {LACK_OF_FIT_ALPHA:g})"
+            f"straight line lack-of-fit: F = {figures(lof.f_statistic, 4)} on ({lof.df_lack_of_fit}, {lof.df_pure_error}) df, "
+            f"p = {figures(lof.p_value, 3)} ({'significant' if lof_rejects else 'not significant'} at {entered(LACK_OF_FIT_ALPHA)})"
         )
     else:
         reasons.append(f"no lack-of-fit test for the straight line: {lof.reason}")
     if mandel is not None:
         reasons.append(
-            f"Mandel's test: PG = {mandel.statistic:.4g}, p = {mandel.p_value:.3g} "
+            f"Mandel's test: PG = {figures(mandel.statistic, 4)}, p = {figures(mandel.p_value, 3)} "
             f"({'the quadratic fits significantly better' if mandel_rejects else 'the quadratic is no significant improvement'} at 99 %)"
         )
     if not (lof_rejects or mandel_rejects):
@@ -519,7 +520,7 @@ def _model_for(
     q_lof = quadratic.calibration.lack_of_fit
     if q_lof.available and q_lof.significant(LACK_OF_FIT_ALPHA):
         reasons.append(
-            f"the straight line is rejected, and the quadratic also lacks fit (p = {q_lof.p_value:.3g}), so it "
+            f"the straight line is rejected, and the quadratic also lacks fit (p = {figures(q_lof.p_value, 3)}), so it "
             "cannot replace it; neither model follows the data — check the standards or narrow the range"
         )
         return quadratic, reasons
@@ -543,7 +544,7 @@ def _recommend(
             w: _model_for(models, mandel.get(w), w)[0] for w, models in by_weighting.items() if w is not Weighting.NONE
         }
         chosen, why = _weighting_for(evidence, choices)
-        listing = ", ".join(f"{c.weighting.value} (Σ|%RE| = {c.sum_abs_relative_error:.3g})" for c in choices.values())
+        listing = ", ".join(f"{c.weighting.value} (Σ|%RE| = {figures(c.sum_abs_relative_error, 3)})" for c in choices.values())
         reasons.append(f"weighting is needed; {why}; Σ|%RE| of the weighted candidates: {listing}")
         _, model_reasons = _model_for(by_weighting[chosen.weighting], mandel.get(chosen.weighting), chosen.weighting)
         reasons.extend(model_reasons)
@@ -589,17 +590,17 @@ def _under_curve_rules(
     assert rsd is not None
     if rsd <= limit and rf.verdict.passed:
         return rf, [
-            f"the response factors' %RSD is {rsd:.3g} %, within the profile's {limit:g} %, and every rule of "
-            f"the profile passes, so the average response factor (RF = {rf.calibration.coefficients[1]:.6g}) is "
+            f"the response factors' %RSD is {figures(rsd, 3)} %, within the profile's {entered(limit)} %, and every rule of "
+            f"the profile passes, so the average response factor (RF = {figures(rf.calibration.coefficients[1], 6)}) is "
             "the simplest adequate calibration",
             f"had a fitted curve been needed it would have been the {curve.label}",
         ]
     if rsd <= limit:
         failing = "; ".join(r for r in rf.verdict.reasons if r.startswith("FAIL"))
-        head = (f"the response factors' %RSD is {rsd:.3g} %, within the profile's {limit:g} %, but the average "
+        head = (f"the response factors' %RSD is {figures(rsd, 3)} %, within the profile's {entered(limit)} %, but the average "
                 f"response factor fails the profile ({failing}), so a fitted curve is recommended")
     else:
-        head = (f"the response factors' %RSD is {rsd:.3g} %, above the profile's {limit:g} %, so the average "
+        head = (f"the response factors' %RSD is {figures(rsd, 3)} %, above the profile's {entered(limit)} %, so the average "
                 "response factor may not be used and a fitted curve is recommended")
     curve_words = [r for r in curve.verdict.reasons if "r = " in r or "r² = " in r]
     return curve, [head] + reasons + [f"the recommended curve: {w}" for w in curve_words]
@@ -630,7 +631,7 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
             if fitting:
                 w = min(fitting, key=lambda v: abs(IMPLIED_POWER.get(v, theta) - theta))
                 if w in IMPLIED_POWER:
-                    return choices[w], f"{shape}, which {w.value} weights (θ = {IMPLIED_POWER[w]:g}) match"
+                    return choices[w], f"{shape}, which {w.value} weights (θ = {entered(IMPLIED_POWER[w])}) match"
                 return choices[w], (f"{shape}; no fixed weighting matches, so the weights follow a variance function "
                                     f"fitted to all standards ({w.value}): {_weights_use(choices[w], theta)}")
     weighted = list(choices.values())
@@ -656,10 +657,10 @@ def _weights_use(chosen: Candidate, evidence_theta: float) -> str:
         return f"the {name}'s weights hold no fitted variance function"
     function = fitted.function
     if function.kind == "power":
-        return (f"the {name}'s weights use θ = {function.parameter:.3g}, fitted to the residuals of all standards "
+        return (f"the {name}'s weights use θ = {figures(function.parameter, 3)}, fitted to the residuals of all standards "
                 f"about the curve; θ = {evidence_theta:.2f} is the replicate evidence's estimate, fitted to the "
                 "replicates' scatter about their level means")
-    return (f"the {name}'s weights use SD² = a² + b²·(mean response)² with a/b = {function.parameter:.4g}, fitted "
+    return (f"the {name}'s weights use SD² = a² + b²·(mean response)² with a/b = {figures(function.parameter, 4)}, fitted "
             "to the residuals of all standards about the curve")
 
 
@@ -694,7 +695,7 @@ def _left_out_words(count: int) -> Callable[[Model], str]:
 
 
 def _anchor_reason(at: np.ndarray) -> str:
-    levels = ", ".join(f"{v:g}" for v in np.unique(at))
+    levels = ", ".join(f"{entered(v)}" for v in np.unique(at))
     return (
         f"{at.size} anchor point(s) (concentration {levels}) fix the logistic curves' asymptotes and are fitted "
         "only by them; every other candidate is fitted without them, no candidate judges them for acceptance, "
@@ -748,13 +749,13 @@ def _consider_curves(
             test = _extra_parameter_test(four.calibration, five.calibration)
             if test is not None and test[1] < FIVE_PL_ALPHA:
                 words.append(
-                    f"the 5PL's asymmetry improves the fit significantly (F = {test[0]:.4g} on (1, "
-                    f"{five.calibration.df_residual}) df, p = {test[1]:.3g}), so the 5PL"
+                    f"the 5PL's asymmetry improves the fit significantly (F = {figures(test[0], 4)} on (1, "
+                    f"{five.calibration.df_residual}) df, p = {figures(test[1], 3)}), so the 5PL"
                 )
                 return five, words + _failing_words(five, candidates)
             if test is not None:
                 words.append(
-                    f"the 5PL's asymmetry is no significant improvement (F = {test[0]:.4g}, p = {test[1]:.3g}), "
+                    f"the 5PL's asymmetry is no significant improvement (F = {figures(test[0], 4)}, p = {figures(test[1], 3)}), "
                     "so the simpler 4PL"
                 )
             return four, words + _failing_words(four, candidates)
@@ -768,15 +769,15 @@ def _consider_curves(
             four_lof = four.calibration.lack_of_fit
             if four_lof.available and not four_lof.significant(LACK_OF_FIT_ALPHA):
                 return four, reasons + [
-                    f"the {chosen.model.value} lacks fit but the 4PL does not (p = {four_lof.p_value:.3g}), so the 4PL"
+                    f"the {chosen.model.value} lacks fit but the 4PL does not (p = {figures(four_lof.p_value, 3)}), so the 4PL"
                 ] + _failing_words(four, candidates)
         reasons.append("the logistic curves are listed for comparison; a polynomial that fits is kept (not a ligand-binding profile)")
     power = table.get((Model.POWER, chosen.weighting))
     if Model.POWER in considered:
         if decades is None or decades < POWER_MIN_DECADES:
-            span = "fewer than two positive concentrations" if decades is None else f"{decades:.2g} decades"
+            span = "fewer than two positive concentrations" if decades is None else f"{figures(decades, 2)} decades"
             reasons.append(
-                f"the power curve is recommended only when the standards span at least {POWER_MIN_DECADES:g} "
+                f"the power curve is recommended only when the standards span at least {entered(POWER_MIN_DECADES)} "
                 f"decades; these span {span}"
             )
         elif power is None:
@@ -787,13 +788,13 @@ def _consider_curves(
             better = chosen.aicc - power.aicc > AICC_MARGIN
             if better and not rejected:
                 return power, reasons + [
-                    f"over {decades:.2g} decades the power curve y = a·x^b fits better than the {chosen.model.value} "
-                    f"(AICc {power.aicc:.4g} against {chosen.aicc:.4g}, more than {AICC_MARGIN:g} lower"
-                    + (f"; its lack-of-fit p = {lof.p_value:.3g}" if lof.available else "") + "), so the power curve"
+                    f"over {figures(decades, 2)} decades the power curve y = a·x^b fits better than the {chosen.model.value} "
+                    f"(AICc {figures(power.aicc, 4)} against {figures(chosen.aicc, 4)}, more than {entered(AICC_MARGIN)} lower"
+                    + (f"; its lack-of-fit p = {figures(lof.p_value, 3)}" if lof.available else "") + "), so the power curve"
                 ] + _failing_words(power, candidates)
             reasons.append(
-                f"the power curve (AICc {power.aicc:.4g}) is no substantial improvement on the {chosen.model.value} "
-                f"(AICc {chosen.aicc:.4g})" + ("; its lack-of-fit test rejects it" if rejected else "")
+                f"the power curve (AICc {figures(power.aicc, 4)}) is no substantial improvement on the {chosen.model.value} "
+                f"(AICc {figures(chosen.aicc, 4)})" + ("; its lack-of-fit test rejects it" if rejected else "")
             )
     return chosen, reasons
 
@@ -829,7 +830,7 @@ def _intercept_note(chosen: Candidate) -> list[str]:
     p = float(2 * special.stdtr(cal.df_residual, -abs(t_value)))
     if p >= 0.05:
         return [
-            f"the intercept is not significantly different from zero (p = {p:.3g}); a line through the "
+            f"the intercept is not significantly different from zero (p = {figures(p, 3)}); a line through the "
             "origin is possible only where the laboratory's procedure permits it"
         ]
     return []

@@ -21,6 +21,7 @@ import numpy as np
 
 from .errors import ProfileError
 from .models import Model
+from .notation import entered, figures
 
 if TYPE_CHECKING:  # pragma: no cover
     from .fitted_curve import FittedCurve
@@ -60,18 +61,18 @@ class CurveRules:
             assert rsd is not None
             ok = rsd <= self.max_rf_rsd_percent
             return ok, (
-                f"{'pass' if ok else 'FAIL'}: response factor %RSD = {rsd:.3g} %; at most "
-                f"{self.max_rf_rsd_percent:g} % for an average response factor calibration"
+                f"{'pass' if ok else 'FAIL'}: response factor %RSD = {figures(rsd, 3)} %; at most "
+                f"{entered(self.max_rf_rsd_percent)} % for an average response factor calibration"
                 + ("" if ok else "; use a fitted curve instead"),
             )
         r_squared = cal.r_squared
         r = float(np.sqrt(max(r_squared, 0.0)))
         if cal.model is Model.LINEAR or cal.model is Model.PROPORTIONAL:
             ok = r >= self.min_r
-            words = f"r = {r:.5f}; at least {self.min_r:g} for a straight line"
+            words = f"r = {r:.5f}; at least {entered(self.min_r)} for a straight line"
         else:
             ok = r_squared >= self.min_r_squared
-            words = f"r² = {r_squared:.5f}; at least {self.min_r_squared:g} for a {cal.model.value} curve"
+            words = f"r² = {r_squared:.5f}; at least {entered(self.min_r_squared)} for a {cal.model.value} curve"
         return ok, (f"{'pass' if ok else 'FAIL'}: {words}",)
 
     def to_mapping(self) -> dict[str, Any]:

@@ -26,6 +26,7 @@ from .models import Basis, Model
 from .regression_test import RegressionTest
 from .response_factor import ResponseFactors, response_factors
 from .weighting import WeightModel, Weighting
+from .notation import figures
 
 
 class Deferred:
@@ -233,7 +234,7 @@ class FittedCurve:
         for power, b in enumerate(self.coefficients):
             if self.model.through_origin and power == 0:
                 continue
-            text = f"{abs(b):.{digits}g}{names[power]}"
+            text = f"{figures(abs(b), digits)}{names[power]}"
             terms.append((b < 0, text))
         out = ("−" if terms[0][0] else "") + terms[0][1]
         for negative, text in terms[1:]:

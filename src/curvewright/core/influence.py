@@ -56,6 +56,7 @@ import numpy as np
 from .values import frozen_value
 from ._arrays import FloatArray, frozen
 from .least_squares import ROUNDOFF
+from .notation import entered
 
 FULL_LEVERAGE = 1.0 - 1e-9
 """Leverage at or above which a standard is taken to fix the curve through itself."""
@@ -224,7 +225,7 @@ def leverage_notes(leverage: FloatArray) -> tuple[str, ...]:
 
 def _leverage_notes(leverage: FloatArray, high: np.ndarray) -> tuple[str, ...]:
     return tuple(
-        f"standard {i + 1} has leverage {leverage[i]:.2f} (above {HIGH_LEVERAGE:g}): the curve near it rests "
+        f"standard {i + 1} has leverage {leverage[i]:.2f} (above {entered(HIGH_LEVERAGE)}): the curve near it rests "
         "mostly on this one standard, so an error in it would hardly show in its residual; replicate it "
         "or add a standard nearby"
         for i in np.flatnonzero(high)

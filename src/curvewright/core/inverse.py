@@ -54,6 +54,7 @@ from .errors import LimitsError, QuantitationInputError
 from .limits import DetectionLimits, detection_limits
 from .models import Model
 from .weighting import Weighting
+from .notation import entered
 
 if TYPE_CHECKING:  # pragma: no cover
     from .fitted_curve import FittedCurve
@@ -515,7 +516,7 @@ def _refuse_unrepresentable(y0: FloatArray, bad: np.ndarray) -> None:
     if bad.any():
         i = int(np.flatnonzero(bad)[0])
         raise QuantitationInputError(
-            f"mean response: unknown {i + 1} is {y0[i]:g}, so far beyond the standards that its "
+            f"mean response: unknown {i + 1} is {entered(y0[i])}, so far beyond the standards that its "
             "concentration or interval cannot be represented as a number; check the value and its unit"
             + (f" ({int(bad.sum())} such unknowns in all)." if bad.sum() > 1 else ".")
         )

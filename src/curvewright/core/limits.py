@@ -29,8 +29,10 @@ from ._arrays import as_whole_count
 from .errors import LimitsError
 from .models import Model
 from .weighting import Weighting
+from .notation import entered, figures
 
 if TYPE_CHECKING:  # pragma: no cover
+    from .rounding import RoundingRule
     from .fitted_curve import FittedCurve
 
 LIMIT_METHODS = ("residual_sd", "intercept_sd", "iso11843")
@@ -49,17 +51,23 @@ class DetectionLimits:
     critical_response: float | None = None
     critical_concentration: float | None = None
 
-    def values_words(self, unit: str = "") -> str:
+    def values_words(self, unit: str = "", rule: "RoundingRule | None" = None) -> str:
         """The limits with their values, in words: "LOD 0.35 ng/mL, LOQ 1.05 ng/mL", or for ISO 11843-2
-        the critical value x_c, the critical response y_c and the minimum detectable value x_d (4
-        significant digits)."""
+        the critical value x_c, the critical response y_c and the minimum detectable value x_d; each
+        rounded by ``rule`` (the run's rounding rule; without one, 4 significant figures) and written as
+        :mod:`.notation` says ("LOD 2.56 × 10⁻⁷ mg/L")."""
+        from .notation import computed, figures
+
+        def shown(value: float) -> str:
+            return computed(value, rule) if rule is not None else figures(value, 4)
+
         u = f" {unit}" if unit else ""
         if self.critical_concentration is not None:
-            return (f"critical value x_c {self.critical_concentration:.4g}{u} (critical response y_c "
-                    f"{self.critical_response:.4g}), minimum detectable value x_d {self.lod:.4g}{u}; "
+            return (f"critical value x_c {shown(self.critical_concentration)}{u} (critical response y_c "
+                    f"{shown(self.critical_response)}), minimum detectable value x_d {shown(self.lod)}{u}; "
                     "LOQ not defined")
-        loq = f"{self.loq:.4g}{u}" if self.loq is not None else "not defined"
-        return f"LOD {self.lod:.4g}{u}, LOQ {loq}"
+        loq = f"{shown(self.loq)}{u}" if self.loq is not None else "not defined"
+        return f"LOD {shown(self.lod)}{u}, LOQ {loq}"
 
 
 def detection_limits(
@@ -96,7 +104,7 @@ def detection_limits(
             y_low = float(cal.predict(x_low)) if cal.weighting in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2) else x_low
             weight = float(cal.weight_model.weight_at(np.array(x_low), np.array(y_low)))
             sigma = cal.residual_sd / np.sqrt(weight)
-            sigma_words = f"residual SD at the lowest standard ({full_number(x_low)}) under {cal.weighting.value} weighting"
+            sigma_words = f"residual SD at the lowest standard ({entered(x_low)}) under {cal.weighting.value} weighting"
     lod = 3.3 * sigma / abs(slope)
     loq = 10.0 * sigma / abs(slope)
     return DetectionLimits(
@@ -139,7 +147,7 @@ def _iso11843(cal: "FittedCurve", slope: float, alpha: float, beta: float, repli
         method="iso11843",
         description=(
             f"ISO 11843-2: critical value x_c = t·(σ/b)·q, minimum detectable value x_d = δ·(σ/b)·q; "
-            f"α = {alpha:g}, β = {beta:g}, K = {replicates} replicate(s), ν = {nu}, δ = {delta:.6g}; "
+            f"α = {entered(alpha)}, β = {entered(beta)}, K = {replicates} replicate(s), ν = {nu}, δ = {figures(delta, 6)}; "
             "no quantitation limit is defined"
         ),
         lod=float(x_d),

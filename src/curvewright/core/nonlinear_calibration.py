@@ -66,6 +66,7 @@ from .nonlinear import FitOutcome, NonlinearFit, fit_nonlinear, fit_outcome
 from .regression_test import RegressionTest
 from .variance_function import CYCLES, MeanFit
 from .weighting import Weighting, WeightModel
+from .notation import entered, figures
 
 LOGISTIC_MODELS = (Model.FOUR_PL, Model.FIVE_PL)
 SEARCH_DECADES = 20.0
@@ -124,7 +125,7 @@ class NonlinearCalibration(Calibration):
     def equation(self, digits: int = 10) -> str:
         """The formula and its fitted parameters to ``digits`` significant figures."""
         assert self.family is not None
-        values = ", ".join(f"{name} = {value:.{digits}g}" for name, value in self.parameters.items())
+        values = ", ".join(f"{name} = {figures(value, digits)}" for name, value in self.parameters.items())
         return f"{self.family.formula} with {values}"
 
     def predict(self, concentration: object) -> FloatArray:
@@ -216,7 +217,7 @@ def _curve_core(
         if bad.size:
             i = int(bad[0])
             raise CalibrationInputError(
-                f"concentration: standard {i + 1} is at {x[i]:g}; a power curve y = a·x^b is fitted to "
+                f"concentration: standard {i + 1} is at {entered(x[i])}; a power curve y = a·x^b is fitted to "
                 "concentrations above zero (leave blanks out of this fit)."
             )
     else:
@@ -224,7 +225,7 @@ def _curve_core(
         if bad.size:
             i = int(bad[0])
             raise CalibrationInputError(
-                f"concentration: standard {i + 1} is at {x[i]:g}; a logistic curve needs concentrations of zero or more."
+                f"concentration: standard {i + 1} is at {entered(x[i])}; a logistic curve needs concentrations of zero or more."
             )
     fitter = _MeanFitter(family) if weighting.variance_function is not None else None
     weights = shared_weights_for(shared_weights, weighting, x, y, levels, response_sd, model, fitter)
@@ -424,8 +425,8 @@ def _anchor_mask(model: Model, x: FloatArray, anchor_points: object | None) -> n
     if inside.size:
         i = int(inside[0])
         raise CalibrationInputError(
-            f"anchor points: the standard at concentration {x[i]:g} is marked as an anchor point but lies "
-            f"within the range of the calibration standards ({low:g} to {high:g}); anchor points lie outside it."
+            f"anchor points: the standard at concentration {entered(x[i])} is marked as an anchor point but lies "
+            f"within the range of the calibration standards ({entered(low)} to {entered(high)}); anchor points lie outside it."
         )
     return mask.copy()
 
@@ -473,7 +474,7 @@ def _implausible(family: CurveFamily, result: NonlinearFit | FitOutcome) -> str 
         return None
     b, c = result.parameters[1], result.parameters[2]
     if not c > 0:
-        return f"the fit converged to an inflection point of {c:.4g}, not a concentration above zero"
+        return f"the fit converged to an inflection point of {figures(c, 4)}, not a concentration above zero"
     if not b > 0:
         return "the fit converged to a slope factor b ≤ 0"
     if family.model is Model.FIVE_PL and not result.parameters[4] > 0:

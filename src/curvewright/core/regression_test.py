@@ -29,6 +29,7 @@ from .values import frozen_value
 from ._arrays import FloatArray
 from .distributions import f_upper_tails
 from .least_squares import ROUNDOFF
+from .notation import figures
 
 REGRESSION_ALPHA = 0.05
 """Significance level below which the response is taken to change with concentration (common practice)."""
@@ -51,7 +52,7 @@ class RegressionTest:
     def words(self) -> str:
         """The outcome in words, with the statistic."""
         numbers = (
-            f"F = {self.f_statistic:.4g} on ({self.df[0]}, {self.df[1]}) df, p = {self.p_value:.3g}"
+            f"F = {figures(self.f_statistic, 4)} on ({self.df[0]}, {self.df[1]}) df, p = {figures(self.p_value, 3)}"
             if np.isfinite(self.f_statistic)
             else "every standard lies on the curve"
         )

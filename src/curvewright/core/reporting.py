@@ -39,6 +39,7 @@ import numpy as np
 from .values import frozen_value
 from .number_words import full_number
 from .inverse import QuantFlag
+from .notation import computed, computed_within, entered, figures, written
 from .rounding import RoundingRule
 
 
@@ -120,7 +121,7 @@ class ReportingRange:
 
 def reporting_range(concentrations: object, lod: float | None, loq: float | None, unit: str = "",
                     passing_range: tuple[float, float] | None = None, narrowing: str = "",
-                    critical_value: float | None = None) -> ReportingRange:
+                    critical_value: float | None = None, rule: RoundingRule | None = None) -> ReportingRange:
     """The calibrated range of the standards in the fit and the reporting limit.
 
     ``concentrations`` are the nominal concentrations of the standards in the fit; ``lod`` and
@@ -129,7 +130,9 @@ def reporting_range(concentrations: object, lod: float | None, loq: float | None
     when an end level fails the acceptance profile (:attr:`.acceptance.AcceptanceVerdict.passing_range`):
     they become the LLOQ and the ULOQ. ``critical_value`` is the ISO 11843-2 critical value x_c
     (``lod`` then the minimum detectable value x_d): a result below x_c is not detected, so where x_c
-    lies above the LLOQ (and the standard defines no LOQ) it is the reporting limit.
+    lies above the LLOQ (and the standard defines no LOQ) it is the reporting limit. The note writes
+    the computed limits by ``rule`` (the run's rounding rule; without one, to 4 significant figures)
+    and the standards' concentrations as entered (:mod:`.notation`).
     """
     values = [float(c) for c in concentrations]  # type: ignore[attr-defined]
     positive = [c for c in values if c > 0]
@@ -143,18 +146,19 @@ def reporting_range(concentrations: object, lod: float | None, loq: float | None
     else:
         narrowing = ""
     u = f" {unit}" if unit else ""
+    shown = (lambda v: computed(v, rule)) if rule is not None else (lambda v: figures(v, 4))
     lowest = "lowest passing standard" if standards_range and lloq != standards_range[0] else "lowest standard"
     if loq is not None and math.isfinite(loq) and loq > lloq:
         return ReportingRange(lloq, uloq, lod, loq, loq, "LOQ",
-                              f"the computed LOQ ({loq:.4g}{u}) lies above the {lowest} ({full_number(lloq)}{u}): the "
+                              f"the computed LOQ ({shown(loq)}{u}) lies above the {lowest} ({entered(lloq)}{u}): the "
                               "reporting limit is the LOQ, and results between them are below it",
                               narrowing, standards_range, critical_value)
     if critical_value is not None and math.isfinite(critical_value) and critical_value > lloq:
         return ReportingRange(lloq, uloq, lod, loq, critical_value, "x_c",
-                              f"the critical value x_c ({critical_value:.4g}{u}, ISO 11843-2) lies above the {lowest} "
-                              f"({full_number(lloq)}{u}): a result below it is not detected, so the reporting limit is x_c",
+                              f"the critical value x_c ({shown(critical_value)}{u}, ISO 11843-2) lies above the {lowest} "
+                              f"({entered(lloq)}{u}): a result below it is not detected, so the reporting limit is x_c",
                               narrowing, standards_range, critical_value)
-    note = (f"the computed LOQ ({loq:.4g}{u}) lies below the {lowest} ({full_number(lloq)}{u}): the reporting limit is "
+    note = (f"the computed LOQ ({shown(loq)}{u}) lies below the {lowest} ({entered(lloq)}{u}): the reporting limit is "
             f"the LLOQ, the {lowest}" if loq is not None and math.isfinite(loq)
             else f"the reporting limit is the LLOQ, the {lowest} (no LOQ was computed)")
     return ReportingRange(lloq, uloq, lod, loq, lloq, "LLOQ", note, narrowing, standards_range, critical_value)
@@ -228,7 +232,7 @@ def report_value(
                              "; ".join([f"not reportable: {not_reportable}"] + qualifiers),
                              ", ".join(["not reportable"] + short_qualifiers), bits)
     return _numeric_value(estimate, dilution, bits, (qualifiers, short_qualifiers),
-                          _dilution_texts(dilution, rng, rule, unit), lambda: rule.text_within(estimate * dilution, *_diluted(interval, dilution)), rng,
+                          _dilution_texts(dilution, rng, rule, unit), lambda: computed_within(estimate * dilution, *_diluted(interval, dilution), rule), rng,
                           unit, below_limit == "estimate", detection is not None and estimate < detection)
 
 
@@ -274,12 +278,12 @@ def censored_bound_reason(sign: str, response_text: str, bound: float, increasin
     u = f" {unit}" if unit else ""
     ru = f" {response_unit}" if response_unit else ""
     diluted, limit_text, uloq_text, _, _ = _dilution_texts(dilution, rng, rule, unit)
-    entered = f"the response was entered as {response_text}{ru}, a limit of the response, not a concentration"
+    as_entered = f"the response was entered as {response_text}{ru}, a limit of the response, not a concentration"
     if not math.isfinite(bound):
-        return f"not quantified: {entered}, and the curve never gives the response {response_text[1:].strip()}{ru}"
+        return f"not quantified: {as_entered}, and the curve never gives the response {response_text[1:].strip()}{ru}"
     below = (sign == "<") == increasing  # the concentration lies below the bound
-    read = (f"{entered}; read through the curve it gives {rule.text(bound)}{u} in the solution measured"
-            + (f" ({rule.text(bound * dilution)}{u} with the dilution factor {dilution:g})" if dilution != 1 else ""))
+    read = (f"{as_entered}; read through the curve it gives {computed(bound, rule)}{u} in the solution measured"
+            + (f" ({computed(bound * dilution, rule)}{u} with the dilution factor {entered(dilution)})" if dilution != 1 else ""))
     if below and bound < rng.reporting_limit:
         return f"{CENSORED_BELOW}< {limit_text}{_EXPLAINED}{read}, below the reporting limit"
     if below and bound > rng.uloq:
@@ -288,9 +292,10 @@ def censored_bound_reason(sign: str, response_text: str, bound: float, increasin
     if not below and bound > rng.uloq:
         return f"{CENSORED_BOUND}> {uloq_text} (ULOQ{diluted}){_EXPLAINED}{read}, above the calibrated range"
     if not below and bound < rng.lloq:
-        return (f"not quantified: {read}, below the calibrated range (LLOQ {rule.text(rng.lloq * dilution)}{u}): "
+        return (f"not quantified: {read}, below the calibrated range (LLOQ {computed(rng.lloq * dilution, rule)}{u}): "
                 "a lower bound there says nothing of the concentration")
-    statement = f"{'<' if below else '>'} {_outward(rule, bound * dilution, below)}{u}"
+    outward = written(_outward(rule, bound * dilution, below), significant=rule.digits if rule.kind == "significant" else None)
+    statement = f"{'<' if below else '>'} {outward}{u}"
     return f"{CENSORED_BOUND}{statement}{_EXPLAINED}{read}"
 
 
@@ -325,11 +330,11 @@ def _dilution_texts(dilution: float, rng: ReportingRange, rule: RoundingRule,
     ULOQ as the calibration has it and as the sample's (at 1: "50 µg/L"; at 10: "50 µg/L × dilution 10
     = 500 µg/L", so that no number reads as multiplied again)."""
     u = f" {unit}" if unit else ""
-    diluted = f" × dilution {dilution:g}" if dilution != 1 else ""
-    uloq = f"{rule.text(rng.uloq * dilution)}{u}"
-    return (diluted, f"{rule.text(rng.reporting_limit * dilution)}{u} ({rng.basis}{diluted})", uloq,
-            f"{rule.text(rng.detection_limit * dilution)}{u}" if rng.detection_limit is not None else "",
-            f"{rule.text(rng.uloq)}{u}{diluted} = {uloq}" if diluted else uloq)
+    diluted = f" × dilution {entered(dilution)}" if dilution != 1 else ""
+    uloq = f"{computed(rng.uloq * dilution, rule)}{u}"
+    return (diluted, f"{computed(rng.reporting_limit * dilution, rule)}{u} ({rng.basis}{diluted})", uloq,
+            f"{computed(rng.detection_limit * dilution, rule)}{u}" if rng.detection_limit is not None else "",
+            f"{computed(rng.uloq, rule)}{u}{diluted} = {uloq}" if diluted else uloq)
 
 
 def _numeric_value(
@@ -347,7 +352,7 @@ def _numeric_value(
     if estimate > rng.uloq:
         total = dilution * _one_two_five(estimate / rng.middle)
         words = (f"above the calibrated range (ULOQ {uloq_words}): not reported as a "
-                 f"number; re-assay at a dilution of ×{total:g} to bring it to mid-range")
+                 f"number; re-assay at a dilution of ×{entered(total)} to bring it to mid-range")
         return ReportedValue(ReportStatus.ABOVE_RANGE, f"> {uloq_text} (ULOQ{diluted})",
                              "; ".join([words] + words_q), ", ".join(["> ULOQ"] + short_q), flags, total)
     if estimate < rng.reporting_limit:
@@ -550,8 +555,16 @@ def report_columns(
         # which results show a rounded number: inside the range, and estimates between the LOD and the limit
         numbered = (e <= rng.uloq) & ((e >= limit) | (estimated & ~below_lod))
         numbers = np.empty(where.size, dtype=object)
-        numbers[numbered] = rule.texts_within(reported[numbered].tolist(), (low[where] * d)[numbered].tolist(),
-                                              (high[where] * d)[numbered].tolist())
+        shown_low, shown_high = (low[where] * d)[numbered].tolist(), (high[where] * d)[numbered].tolist()
+        values = reported[numbered]
+        rounded = rule.texts_within(values.tolist(), shown_low, shown_high)
+        # written as the notation says; a value well inside its plain magnitudes needs no look at its text
+        magnitude = np.abs(values)
+        surely_plain = ((magnitude >= 1.001e-4) & (magnitude < 0.999e7)) | (magnitude == 0)
+        if not surely_plain.all():
+            for k in np.flatnonzero(~surely_plain).tolist():
+                rounded[k] = computed_within(float(values[k]), shown_low[k], shown_high[k], rule, text=rounded[k])
+        numbers[numbered] = rounded
         # the order _numeric_value judges in: above the ULOQ, below the reporting limit, else in range
         over = e > rng.uloq
         case = np.where(over, 0, np.where(e < limit, np.where(below_lod, 1, 2), 3))

@@ -48,6 +48,7 @@ from .values import frozen_value
 from ._arrays import FloatArray, as_finite_vector, frozen
 from .errors import CalibrationInputError, WeightingError
 from .weighting import Weighting
+from .notation import entered
 
 
 @frozen_value(eq=False)
@@ -106,7 +107,7 @@ def refuse_non_positive(concentration: FloatArray) -> None:
     if bad.size:
         i = int(bad[0])
         raise CalibrationInputError(
-            f"concentration: standard {i + 1} is at {concentration[i]:g}; a response factor y/x needs a "
+            f"concentration: standard {i + 1} is at {entered(concentration[i])}; a response factor y/x needs a "
             "concentration above zero (leave blanks out of an average response factor calibration)."
         )
 

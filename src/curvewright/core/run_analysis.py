@@ -39,6 +39,7 @@ from .reporting import (NO_RESPONSE, FlagBits, ReportingRange, ReportStatus, cen
 from .rounding import RoundingRule
 from .run import Analyte, Measurement, Reading, Run, Sample, SampleKind, Standard
 from .unread_text import why_not_read
+from .notation import entered
 
 if TYPE_CHECKING:  # pragma: no cover
     from .addition_series import AdditionSeriesResult
@@ -515,7 +516,7 @@ def _analyse_analyte(
                                                 else "no concentration entered"))
             continue
         if s.concentration < 0:
-            unusable.append(UnusableStandard(s.id, f"concentration {s.concentration:g} is below zero"))
+            unusable.append(UnusableStandard(s.id, f"concentration {entered(s.concentration)} is below zero"))
             continue
         if s.concentration == 0 and use_model == "average-rf":
             unusable.append(UnusableStandard(s.id, "a response factor y/x needs a concentration above zero, so a "
@@ -557,7 +558,7 @@ def _analyse_analyte(
     in_range = cal.concentration[(cal.concentration >= low) & (cal.concentration <= high)]
     rng = reporting_range(in_range, limits.lod if limits else None, limits.loq if limits else None, unit,
                           verdict.passing_range, verdict.narrowing,
-                          limits.critical_concentration if limits else None)
+                          limits.critical_concentration if limits else None, settings.rounding)
     columns = _quantify_samples(run, analyte, cal, limits, rng, profile)
     check_kinds = {kind for kind in SampleKind if kind.is_check}
     check_results = [columns.result(i) for i, kind in enumerate(columns.kinds) if kind in check_kinds]
@@ -681,7 +682,7 @@ def _qc_not_judged(columns: SampleColumns, unit: str) -> tuple[list[tuple[str, s
     is_unknown = np.fromiter((k is SampleKind.UNKNOWN for k in kinds), bool, len(columns))
     odd = np.flatnonzero(is_unknown & has_nominal).tolist()
     if odd:
-        named = ", ".join(f"{columns.ids[i]!r} ({columns.nominal[i]:g} {unit})".replace(" )", ")")
+        named = ", ".join(f"{columns.ids[i]!r} ({entered(columns.nominal[i])} {unit})".replace(" )", ")")
                           for i in odd[:_NAMED])
         more = f" and {len(odd) - _NAMED} more" if len(odd) > _NAMED else ""
         notes.append(f"{len(odd)} sample(s) of kind unknown (the kind cell empty or 'unknown') with a nominal "
@@ -704,7 +705,7 @@ def _method_reasons(run: Run, analyte: Analyte, cal: Calibration, model: str, we
     out = []
     missing = method.missing_levels(analyte.name, cal.concentration)
     out.append(("FAIL: " if missing else "pass: ")
-               + (f"the method's level(s) {', '.join(f'{v:g}' for v in missing)} have no standard in the fit"
+               + (f"the method's level(s) {', '.join(f'{entered(v)}' for v in missing)} have no standard in the fit"
                   if missing else f"every level of method {method.label} has a standard in the fit"))
     if (model, weighting) != (fixed.model, fixed.weighting):
         reason = analyte.choice_reason.strip()

@@ -36,6 +36,7 @@ import numpy as np
 from ._arrays import FloatArray, as_confidence_level, as_finite_vector, as_whole_count, frozen
 from .distributions import t_quantile
 from .errors import CalibrationInputError
+from .notation import entered, figures
 
 MATRIX_WARNING = (
     "standard additions assume matrix-matched linearity: the response stays a straight line in the "
@@ -79,7 +80,7 @@ class StandardAdditions:
 
     def equation(self, digits: int = 10) -> str:
         sign = "−" if self.slope < 0 else "+"
-        return f"y = {self.intercept:.{digits}g} {sign} {abs(self.slope):.{digits}g}·x_added"
+        return f"y = {figures(self.intercept, digits)} {sign} {figures(abs(self.slope), digits)}·x_added"
 
 
 def standard_additions(
@@ -112,7 +113,7 @@ def standard_additions(
     negative = np.flatnonzero(x < 0)
     if negative.size:
         i = int(negative[0])
-        raise CalibrationInputError(f"added concentration: addition {i + 1} is {x[i]:g}; an addition cannot be below zero.")
+        raise CalibrationInputError(f"added concentration: addition {i + 1} is {entered(x[i])}; an addition cannot be below zero.")
     if x.size < 3:
         raise CalibrationInputError(
             f"standard additions: {x.size} points leave no degree of freedom for the scatter about the line; "
@@ -134,12 +135,12 @@ def standard_additions(
     residual_sd = float(np.sqrt(np.sum(w * residuals**2) / df))
     if not slope > 0:
         raise CalibrationInputError(
-            f"response: the line through the additions has slope {slope:.6g}; the response must rise with the "
+            f"response: the line through the additions has slope {figures(slope, 6)}; the response must rise with the "
             "added concentration for standard additions."
         )
     if not intercept > 0:
         raise CalibrationInputError(
-            f"response: the line meets zero response at added concentration {-intercept / slope:.6g}, not below "
+            f"response: the line meets zero response at added concentration {figures(-intercept / slope, 6)}, not below "
             "zero; the unspiked sample gives no response of its own above the line's origin."
         )
     concentration = intercept / slope
@@ -150,8 +151,8 @@ def standard_additions(
     span = float(x.max() - x.min())
     if concentration > span:
         warnings.append(
-            f"the extrapolation ({concentration:.4g}) reaches further below the first addition than the additions "
-            f"span ({span:.4g}); larger additions would shorten it"
+            f"the extrapolation ({figures(concentration, 4)}) reaches further below the first addition than the additions "
+            f"span ({figures(span, 4)}); larger additions would shorten it"
         )
     return StandardAdditions(
         added=frozen(x), response=frozen(y), replicates=frozen(counts), level=confidence,

@@ -39,6 +39,7 @@ import numpy as np
 
 from .run import SampleKind
 from .run_analysis import AnalyteResult, RunResult
+from .notation import entered
 
 CALIBRATION_QUANTITIES = ("slope", "intercept", "curvature", "residual_sd", "r", "rf_rsd_percent", "lloq",
                           "is_response")
@@ -145,7 +146,7 @@ def quantity_words(quantity: str, concentration_unit: str = "", response_unit: s
     if parsed is None:
         return quantity
     kind, nominal = parsed
-    return f"{_KIND_WORDS[kind]} recovery at {nominal:g}{' ' + c if c else ''} (%)"
+    return f"{_KIND_WORDS[kind]} recovery at {entered(nominal)}{' ' + c if c else ''} (%)"
 
 
 def tracked_values(result: RunResult) -> tuple[TrackedValues, ...]:

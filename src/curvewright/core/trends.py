@@ -38,6 +38,7 @@ from numpy.lib.stride_tricks import sliding_window_view
 
 from ._arrays import FloatArray, frozen
 from .errors import CurvewrightError
+from .notation import entered
 
 RULES = ("1-3s", "2-2s", "R-4s", "4-1s", "10-x")
 """The multi-rule checks, in the order they are reported."""
@@ -198,7 +199,7 @@ def control_limits(values: Sequence[float]) -> ControlLimits:
         raise TrendError("control limits: a baseline value is not a finite number.")
     sd = float(np.std(x, ddof=1))
     if not sd > 0:
-        raise TrendError(f"control limits: the {x.size} baseline values are all {float(x[0]):g}; with no scatter "
+        raise TrendError(f"control limits: the {x.size} baseline values are all {entered(float(x[0]))}; with no scatter "
                          "there are no limits to set.")
     return ControlLimits(float(np.mean(x)), sd, int(x.size))
 

@@ -39,6 +39,7 @@ import numpy as np
 from ._arrays import FloatArray
 from .distributions import f_quantile, f_upper_tail
 from .levels import Levels
+from .notation import figures
 
 ISO_8466_LEVEL = 0.99
 """Confidence level of the ISO 8466-1 variance F-test (ISO 8466-1)."""
@@ -115,10 +116,10 @@ def variance_evidence(response: FloatArray, levels: Levels, residuals: FloatArra
             f"θ = {theta:.2f} (95 % interval {low:.2f} to {high:.2f}); "
         )
         if hetero:
-            summary += f"the scatter grows with the response (one-sided p = {pooled.p_value:.2g})"
+            summary += f"the scatter grows with the response (one-sided p = {figures(pooled.p_value, 2)})"
         else:
             summary += (
-                f"no significant growth of the scatter with the response (one-sided p = {pooled.p_value:.2g}). "
+                f"no significant growth of the scatter with the response (one-sided p = {figures(pooled.p_value, 2)}). "
                 "This does not show the scatter to be constant"
             )
             if high >= 1.0:
@@ -127,15 +128,15 @@ def variance_evidence(response: FloatArray, levels: Levels, residuals: FloatArra
                 summary += f"; with {degrees} replicate degrees of freedom the test has little power"
         if end.available and end.df is not None:
             summary += (
-                f"; ISO 8466-1 end-level F-test for reference: F = {end.statistic:.4g} on ({end.df[0]}, "
+                f"; ISO 8466-1 end-level F-test for reference: F = {figures(end.statistic, 4)} on ({end.df[0]}, "
                 f"{end.df[1]}) df, {'significant' if end.significant else 'not significant'} at 99 %"
                 + (" (little power with so few replicates)" if min(end.df) < LOW_POWER_DF else "")
             )
     elif end.available and end.df is not None:
         hetero = bool(end.significant)
         summary = (
-            f"ISO 8466-1 F-test of the end levels: F = {end.statistic:.4g} "
-            f"{'>' if hetero else '≤'} F({end.df[0]}, {end.df[1]}; 99 %) = {end.critical_value:.4g}: "
+            f"ISO 8466-1 F-test of the end levels: F = {figures(end.statistic, 4)} "
+            f"{'>' if hetero else '≤'} F({end.df[0]}, {end.df[1]}; 99 %) = {figures(end.critical_value, 4)}: "
             + ("the variance changes across the range" if hetero else "no significant change across the range")
         )
         if min(end.df) < LOW_POWER_DF:

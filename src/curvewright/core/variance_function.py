@@ -56,6 +56,7 @@ from ._arrays import FloatArray
 from .errors import CalibrationInputError, WeightingError
 from .least_squares import ROUNDOFF, solve_weighted, without_roundoff
 from .models import Basis, Model, make_basis
+from .notation import entered, figures
 
 CYCLES = 3
 """Generalized least-squares cycles: fit, estimate the variance function, refit (Carroll & Ruppert 1988)."""
@@ -92,10 +93,10 @@ class VarianceFunction:
     @property
     def words(self) -> str:
         if self.kind == "power":
-            return (f"SD ∝ (mean response)^θ with θ = {self.parameter:.3g}, the θ the weights use, fitted to the "
+            return (f"SD ∝ (mean response)^θ with θ = {figures(self.parameter, 3)}, the θ the weights use, fitted to the "
                     "residuals of all standards")
         return (
-            f"SD² = a² + b²·(mean response)² with a/b = {self.parameter:.4g} (the response at which the "
+            f"SD² = a² + b²·(mean response)² with a/b = {figures(self.parameter, 4)} (the response at which the "
             "constant and the proportional parts are equal), the a/b the weights use, fitted to the residuals "
             "of all standards"
         )
@@ -243,7 +244,7 @@ def estimate_variance_function(
                 i = int(bad[0])
                 raise WeightingError(
                     f"weighting power: the fitted response at standard {i + 1} (concentration "
-                    f"{concentration[i]:g}) is {mean[i]:.4g}, not above zero; a power of the mean needs every "
+                    f"{entered(concentration[i])}) is {figures(mean[i], 4)}, not above zero; a power of the mean needs every "
                     "fitted response above zero (choose 'two-component', whose constant part covers "
                     "responses near zero)."
                 )

@@ -40,6 +40,7 @@ from .errors import WeightingError
 from .levels import Levels
 from .models import Model
 from .weighting_kinds import Weighting
+from .notation import entered
 
 if TYPE_CHECKING:  # loaded where a variance function is estimated (make_weights), not on every run
     from .variance_function import MeanFitter, VarianceFunctionFit
@@ -146,7 +147,7 @@ def make_weights(
             i = int(bad[0])
             raise WeightingError(
                 f"weighting {weighting.value}: standard {i + 1} has concentration "
-                f"{concentration[i]:g}; 1/x-type weights need every concentration above zero "
+                f"{entered(concentration[i])}; 1/x-type weights need every concentration above zero "
                 "(leave blanks out of the fit or choose another weighting)."
             )
     if weighting in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2) and np.minimum.reduce(response) <= 0:
@@ -154,7 +155,7 @@ def make_weights(
         if bad.size:
             i = int(bad[0])
             raise WeightingError(
-                f"weighting {weighting.value}: standard {i + 1} has response {response[i]:g}; "
+                f"weighting {weighting.value}: standard {i + 1} has response {entered(response[i])}; "
                 "1/y-type weights need every response above zero."
             )
     if weighting is Weighting.NONE:
@@ -203,8 +204,8 @@ def make_weights(
     if np.minimum.reduce(raw) < _TINY:
         i = int(np.argmin(raw))
         raise WeightingError(
-            f"weighting {weighting.value}: the values it weighs by run from {reference:g} to "
-            f"{values[i]:g} (standard {i + 1}), too many orders of magnitude apart for the weights to be "
+            f"weighting {weighting.value}: the values it weighs by run from {entered(reference)} to "
+            f"{entered(values[i])} (standard {i + 1}), too many orders of magnitude apart for the weights to be "
             "represented as numbers; check the units of the standards."
         )
     normaliser = n / float(np.add.reduce(raw))
@@ -235,7 +236,7 @@ def _checked_sd(response_sd: object, n: int) -> FloatArray:
     if bad.size:
         i = int(bad[0])
         raise WeightingError(
-            f"response SD: standard {i + 1} has SD {sd[i]:g}; a standard deviation must be above zero."
+            f"response SD: standard {i + 1} has SD {entered(sd[i])}; a standard deviation must be above zero."
         )
     return sd
 
@@ -253,7 +254,7 @@ def _standard_deviations(
     if few.size:
         j = int(few[0])
         raise WeightingError(
-            f"weighting 1/s^2: the level at concentration {levels.concentration[j]:g} has "
+            f"weighting 1/s^2: the level at concentration {entered(levels.concentration[j])} has "
             f"{int(levels.count[j])} replicate(s); weights from fewer than {MIN_REPLICATES_FOR_S2} "
             "replicates at every level are too imprecise for honest intervals (in simulation a 95 % "
             "interval covered the truth about 86 % of the time with duplicates). Give known response "
@@ -264,7 +265,7 @@ def _standard_deviations(
     if zero.size:
         j = int(zero[0])
         raise WeightingError(
-            f"weighting 1/s^2: the replicates at concentration {levels.concentration[j]:g} are all "
+            f"weighting 1/s^2: the replicates at concentration {entered(levels.concentration[j])} are all "
             "identical, so their SD is zero and cannot give a weight."
         )
     return level_sd[levels.index], level_sd

@@ -19,6 +19,8 @@ import re
 from typing import Sequence
 
 from .. import CAUTION, __version__
+from ..core.notation import machine, written
+from ..core.number_words import full_number
 from ..core.run_analysis import RunResult
 from .atomic import write_atomically
 from .audit import file_sha256
@@ -75,11 +77,13 @@ def _field(value: object, kind: str, decimal_mark: str) -> str:
     if value is None:
         return ""
     if isinstance(value, float):
-        text = repr(value)
+        text = written(full_number(value), machine=True) if "e" in repr(value) else repr(value)  # "3000000", "2.5e-9"
     elif isinstance(value, int):
         text = str(value)
     else:
         text = str(value)
+        if kind in ("reported", "words"):
+            text = machine(text)  # "3.20 × 10⁻⁵" as programs read it: "3.20e-5"
         if kind not in ("reported", "words") or decimal_mark != ",":
             return csv_safe(text)
         return csv_safe(decimal_comma_in_words(text))

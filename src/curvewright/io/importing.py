@@ -40,6 +40,7 @@ from .number_text import (
     thousands_separator_in,
 )
 from .tables import Cell, RawTable, hidden_rows_note
+from ..core.notation import entered
 
 STANDARD_FIELDS = ("id", "analyte", "level", "concentration", "response", "replicate", "is_response")
 SAMPLE_FIELDS = ("id", "analyte", "kind", "run_order", "dilution", "nominal", "response", "replicate", "is_response")
@@ -388,7 +389,7 @@ def import_samples(
                        f"differs from row {first} of the same sample ({kinds[at].words})", row_fails=True)
         if dilutions[at] != (dilution or 1.0):
             ctx.reject(row_number, "dilution", ctx.raw(cells, "dilution"),
-                       f"differs from row {first} of the same sample ({dilutions[at]:g})", row_fails=True)
+                       f"differs from row {first} of the same sample ({entered(dilutions[at])})", row_fails=True)
         if ctx.row_failed(row_number):
             continue
         seen = seen_rows.get(at)

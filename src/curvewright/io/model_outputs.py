@@ -11,6 +11,7 @@ from typing import TYPE_CHECKING, Any
 from ..core.level_text import percent_label
 from ..core.fitted_curve import FittedCurve
 from .number_text import full_number
+from ..core.notation import figures
 
 if TYPE_CHECKING:  # pragma: no cover
     from ..core.run_analysis import AnalyteResult
@@ -34,7 +35,7 @@ def response_factor_rows(cal: FittedCurve, uses_internal_standard: bool) -> list
         (f"Mean {name}", rf.mean, rf.standard_error),
         (f"{short} standard deviation (n − 1)", rf.sd, None),
         (f"{short} %RSD", rf.rsd_percent, None),
-        (f"{short} of each standard", " | ".join(f"{v:.6g}" for v in rf.factors), None),
+        (f"{short} of each standard", " | ".join(f"{figures(v, 6)}" for v in rf.factors), None),
     ]
 
 
@@ -45,8 +46,8 @@ def response_factor_lines(cal: FittedCurve, uses_internal_standard: bool) -> lis
         return []
     short = "RRF" if uses_internal_standard else "RF"
     return [
-        f"  mean {factor_name(uses_internal_standard)} {rf.mean:.6g} (standard error {rf.standard_error:.3g}); "
-        f"{short} SD {rf.sd:.4g}, %RSD {rf.rsd_percent:.3g} % over {rf.n} standards",
+        f"  mean {factor_name(uses_internal_standard)} {figures(rf.mean, 6)} (standard error {figures(rf.standard_error, 3)}); "
+        f"{short} SD {figures(rf.sd, 4)}, %RSD {figures(rf.rsd_percent, 3)} % over {rf.n} standards",
     ]
 
 
@@ -68,18 +69,18 @@ def curve_words(cal: FittedCurve, uses_internal_standard: bool) -> str:
     rf = cal.response_factors
     if rf is not None:
         short = "RRF" if uses_internal_standard else "RF"
-        parts.append(f"mean {short} = {rf.mean:.6g} (standard error {rf.standard_error:.3g}), {short} %RSD = "
-                     f"{rf.rsd_percent:.3g} % over {rf.n} standards")
+        parts.append(f"mean {short} = {figures(rf.mean, 6)} (standard error {figures(rf.standard_error, 3)}), {short} %RSD = "
+                     f"{figures(rf.rsd_percent, 3)} % over {rf.n} standards")
     else:
         if cal.model.is_polynomial:  # b0 … b2; a line through the origin has no b0 to show
-            terms = [f"b{p} = {b:.6g} (SE {se:.3g})" for p, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors))
+            terms = [f"b{p} = {figures(b, 6)} (SE {figures(se, 3)})" for p, (b, se) in enumerate(zip(cal.coefficients, cal.standard_errors))
                      if not cal.through_origin or p > 0]
         else:  # the curve's own named parameters
-            terms = [f"{name} = {b:.6g} (SE {se:.3g})"
+            terms = [f"{name} = {figures(b, 6)} (SE {figures(se, 3)})"
                      for name, b, se in zip(cal.coefficient_names, cal.coefficients, cal.standard_errors)]
         parts.append(", ".join(terms))
         parts.append(f"R² = {cal.r_squared:.6f}")
-    parts.append(f"residual SD {cal.residual_sd:.4g} on {cal.df_residual} df")
+    parts.append(f"residual SD {figures(cal.residual_sd, 4)} on {cal.df_residual} df")
     return "; ".join(parts)
 
 
@@ -103,7 +104,7 @@ def additions_table(a: "AnalyteResult", level: float) -> Table:
         r = s.result
         rows.append((
             s.sample_id, len(s.added), " | ".join(full_number(x) for x in s.added),
-            " | ".join(f"{y:.6g}" for y in s.mean_response), " | ".join(str(m) for m in s.replicates),
+            " | ".join(f"{figures(y, 6)}" for y in s.mean_response), " | ".join(str(m) for m in s.replicates),
             None if r is None else r.intercept, None if r is None else r.slope, None if r is None else r.residual_sd,
             None if r is None else r.concentration, None if r is None else r.standard_error, s.dilution_factor,
             s.reported, s.reported_lower, s.reported_upper, "" if r is None else "; ".join(r.warnings), s.note,
@@ -125,8 +126,8 @@ def additions_lines(a: "AnalyteResult", level: float) -> list[str]:
             lines.append(f"    {s.sample_id}: {s.note}")
             continue
         lines.append(
-            f"    {s.sample_id}: {s.reported:.5g}{in_unit} ({percent_label(level)} interval {s.reported_lower:.5g} to "
-            f"{s.reported_upper:.5g}; standard error {s.reported_standard_error:.3g}); line {r.equation(6)} over "
+            f"    {s.sample_id}: {figures(s.reported, 5)}{in_unit} ({percent_label(level)} interval {figures(s.reported_lower, 5)} to "
+            f"{figures(s.reported_upper, 5)}; standard error {figures(s.reported_standard_error, 3)}); line {r.equation(6)} over "
             f"{len(s.added)} additions" + (f"; dilution factor {full_number(s.dilution_factor)}" if s.dilution_factor != 1 else "")
         )
         lines += [f"      warning: {w}" for w in r.warnings[1:]]

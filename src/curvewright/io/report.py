@@ -22,10 +22,10 @@ from .. import CAUTION, __version__
 from ..core.comparison import ModelComparison
 from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.reporting import ReportStatus
+from ..core.notation import entered, entered_span, figures
 from ..core.run_analysis import AnalyteResult, RunResult
 from .audit_words import AUDIT_COLUMNS, audit_rows, when, who
 from .integrity import content_sha256
-from .number_text import full_number
 from .record_check import not_intact_notice, record_problems
 from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
                             run_identity, samples_table, standards_table)
@@ -249,7 +249,7 @@ def summary_blocks(result: RunResult, when_text: str) -> list[Block]:
         if a.calibration is None:
             rows.append((a.analyte.name, a.not_fitted_words, "", "", "", "", ""))
             continue
-        rng = f"{full_number(a.reporting.lloq)}–{full_number(a.reporting.uloq)} {unit}".strip() if a.reporting else ""
+        rng = f"{entered_span(a.reporting.lloq, a.reporting.uloq)} {unit}".strip() if a.reporting else ""
         if a.reporting is not None and a.reporting.narrowing:
             rng += " (narrowed: an end level fails)"
         reportable, exceptions = result_counts(a)
@@ -328,9 +328,9 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     if a.checks is not None:
         blocks.append(printed(checks_table(a, rule), rule, f"Check windows: {result.profile.checks.source}"))
     range_words = "" if a.reporting is None else (
-        f" Calibrated range {full_number(a.reporting.lloq)}–{full_number(a.reporting.uloq)} (LLOQ–ULOQ); {a.reporting.note}."
-        + (f" Range narrowed from the standards' {full_number(a.reporting.standards_range[0])}–"
-           f"{full_number(a.reporting.standards_range[1])}: {a.reporting.narrowing}." if a.reporting.narrowing else ""))
+        f" Calibrated range {entered_span(a.reporting.lloq, a.reporting.uloq)} (LLOQ–ULOQ); {a.reporting.note}."
+        + (f" Range narrowed from the standards' {entered_span(*a.reporting.standards_range)}: "
+           f"{a.reporting.narrowing}." if a.reporting.narrowing else ""))
     blocks.append(Paragraph(f"Samples – {name}: concentrations in {unit or '(unit not set)'} after dilution; "
                             f"interval: {interval_words(result, a)}; reported values rounded to "
                             f"{rule.description}.{range_words} {INTERVAL_SCOPE_NOTE}", "small"))
@@ -374,16 +374,16 @@ def additions_figures(result: RunResult, a: AnalyteResult) -> list[Block]:
         r = s.result
         if r is None:
             continue
-        diluted = (f"; × dilution factor {full_number(s.dilution_factor)}, reported {s.reported:.5g}{in_unit} "
-                   f"({s.reported_lower:.5g} to {s.reported_upper:.5g})" if s.dilution_factor != 1 else "")
+        diluted = (f"; × dilution factor {entered(s.dilution_factor)}, reported {figures(s.reported, 5)}{in_unit} "
+                   f"({figures(s.reported_lower, 5)} to {figures(s.reported_upper, 5)})" if s.dilution_factor != 1 else "")
         out.append(FigureSlot(
             "additions", a.analyte.name,
             f"{a.analyte.name}, {s.sample_id}: the standard-addition series. Mean response of each addition "
             f"against the concentration added ({unit or 'unit not set'}); the line {r.equation(6)} through them, "
-            f"dashed where it is extended back to zero response; its x-intercept at −{r.concentration:.5g}{in_unit} "
-            f"gives the concentration {r.concentration:.5g}{in_unit} in the measured solution, with its "
-            f"{percent_label(r.level)} interval {r.lower:.5g} to {r.upper:.5g}{in_unit} shaded (from −{r.upper:.5g} to "
-            f"−{r.lower:.5g}) on the concentration axis{diluted}. "
+            f"dashed where it is extended back to zero response; its x-intercept at −{figures(r.concentration, 5)}{in_unit} "
+            f"gives the concentration {figures(r.concentration, 5)}{in_unit} in the measured solution, with its "
+            f"{percent_label(r.level)} interval {figures(r.lower, 5)} to {figures(r.upper, 5)}{in_unit} shaded (from −{figures(r.upper, 5)} to "
+            f"−{figures(r.lower, 5)}) on the concentration axis{diluted}. "
             f"Warning: {MATRIX_WARNING}.", sample=s.sample_id))
     return out
 
@@ -403,7 +403,7 @@ def exclusion_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
                       and e.details.get("analyte") == name and e.details.get("standard") == s.id), None)
         by = f"; excluded by {who(entry)}, {when(entry)}" if entry is not None else \
             "; no audit entry records the exclusion"
-        out.append(Paragraph(f"• {s.id} (level {s.level or '—'}, {full_number(s.concentration)} {unit}".rstrip() +
+        out.append(Paragraph(f"• {s.id} (level {s.level or '—'}, {entered(s.concentration)} {unit}".rstrip() +
                              f"): {s.exclusion_reason or '(no reason recorded)'}{by}", "small"))
     return out
 
@@ -440,7 +440,7 @@ def anchor_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
                    and s.id in (result.run.audit[i].details.get("standards") or [])), -1)
         groups.setdefault(at, []).append(s)
     for at, standards in groups.items():
-        named = ", ".join(f"{s.id} ({full_number(s.concentration)} {unit})".replace(" )", ")") for s in standards)
+        named = ", ".join(f"{s.id} ({entered(s.concentration)} {unit})".replace(" )", ")") for s in standards)
         if at < 0:
             out.append(Paragraph(f"• {named}: no audit entry records the mark", "small"))
             continue
@@ -500,11 +500,11 @@ def precision_appendix(result: RunResult) -> list[Block]:
         if cal is None:
             continue
         names = cal.coefficient_names
-        rows = [(name, repr(float(b)), repr(float(se))) for name, b, se in zip(names, cal.coefficients, cal.standard_errors)]
+        rows = [(name, entered(float(b)), entered(float(se))) for name, b, se in zip(names, cal.coefficients, cal.standard_errors)]
         for i in range(cal.covariance.shape[0]):
             for j in range(i + 1, cal.covariance.shape[0]):
-                rows.append((f"covariance({names[i]}, {names[j]})", repr(float(cal.covariance[i, j])), ""))
-        rows.append(("residual SD", repr(float(cal.residual_sd)), ""))
+                rows.append((f"covariance({names[i]}, {names[j]})", entered(float(cal.covariance[i, j])), ""))
+        rows.append(("residual SD", entered(float(cal.residual_sd)), ""))
         blocks.append(PrintedTable(f"{a.analyte.name}: {cal.equation(6)}", ("Coefficient", "Value", "Standard error"),
                                    tuple(rows), (False, True, True)))
     return blocks

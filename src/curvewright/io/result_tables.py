@@ -22,6 +22,7 @@ from ..core.models import Model
 from ..core.rounding import RoundingRule, interval_places
 from ..core.run import SampleKind
 from ..core.reporting import ReportStatus
+from ..core.notation import excel_format as notation_excel_format, figures, is_plain, written
 from .number_text import clean, full_number, signed_text
 from .audit import chain_claim, verify_chain  # noqa: F401 - chain_claim: where the record and the tables take it
 
@@ -68,27 +69,57 @@ class Column:
 
 
 def shown_decimals(value: float, display: str, rule: RoundingRule | None = None) -> int | None:
-    """How many decimals a number is shown with under ``display`` (None: in scientific notation)."""
-    display = _unsettled(display)
-    if display == "rule" and rule is not None:
-        return _decimal_places(rule.text(value))
-    if display in ("plain", "full"):
-        text = f"{value:.6g}" if display == "plain" else full_number(value)
-        return None if "e" in text else _decimal_places(text)
-    kind, _, n = display.partition(":")
-    if kind in ("dec", "signed"):
-        return int(n)
-    digits = int(n) if kind == "sig" else 6
-    if value == 0:
-        return digits - 1
-    magnitude = math.floor(math.log10(abs(value)))
-    if magnitude < -4 or magnitude >= 9:
+    """How many decimals a number is shown with under ``display`` (None: in scientific notation,
+    :mod:`curvewright.core.notation`)."""
+    text, significant, scientific = _plain_text(float(value), _unsettled(display), rule)
+    if scientific or (scientific is None and not is_plain(text)):
         return None
-    return max(digits - 1 - magnitude, 0)
+    return _decimal_places(text)
+
+
+def _plain_text(v: float, display: str, rule: RoundingRule | None) -> tuple[str, int | None, bool | None]:
+    """The plain digits a finite number is shown with under a settled ``display``, the significant
+    figures they hold where a whole number's zeros may be digits, and the notation when the display
+    fixes it (True: scientific, as the other end of its interval needs; None: as the notation says)."""
+    if display == "rule" and rule is not None:
+        return rule.text(v), (rule.digits if rule.kind == "significant" else None), None
+    if display == "plain":
+        return _figures_text(v, 6, strip=True), None, None
+    if display == "full":
+        return full_number(v), None, None
+    kind, _, n = display.partition(":")
+    if kind in ("dec", "signed", "decsci"):
+        places = int(n)
+        if places < 0:  # a value shown to the tens, hundreds… of its interval (RoundingRule.places_within)
+            text = rule.at_places(v, places) if rule is not None else f"{round(v, places):.0f}"
+        elif kind == "signed":
+            text = signed_text(v, places)  # no sign on a value that rounds to zero
+        else:
+            text = f"{v:.{places}f}"
+        return text, _figures_at(v, places), (True if kind == "decsci" else None)
+    digits = int(n) if kind == "sig" else 6
+    return _figures_text(v, digits), digits, None
+
+
+def _figures_at(v: float, places: int) -> int | None:
+    """The significant figures of ``v`` printed to ``places`` decimals (None for zero)."""
+    return None if v == 0 else max(1, math.floor(math.log10(abs(v))) + places + 1)
+
+
+def _figures_text(v: float, digits: int, strip: bool = False) -> str:
+    """``v`` to ``digits`` significant figures in plain digits (trailing zeros kept unless ``strip``)."""
+    if v == 0:
+        return "0" if strip else f"{0:.{digits - 1}f}"
+    text = f"{v:.{digits - 1}e}"
+    mantissa, power = text.split("e")
+    places = digits - 1 - int(power)
+    plain = f"{float(text):.{max(places, 0)}f}"
+    return plain.rstrip("0").rstrip(".") if strip and "." in plain else plain
 
 
 def format_value(value: Value, column: Column, rule: RoundingRule | None = None) -> str:
-    """A value as printed for reading (the record): numbers by the column's ``display``."""
+    """A value as printed for reading (the record): numbers by the column's ``display``, written as
+    :mod:`curvewright.core.notation` says ("0.0125", "3.20 × 10⁻⁵")."""
     if value is None:
         return ""
     if isinstance(value, str):
@@ -98,25 +129,14 @@ def format_value(value: Value, column: Column, rule: RoundingRule | None = None)
     v = float(value)
     if not math.isfinite(v):
         return display_number(v)
-    if _unsettled(column.display) == "rule" and rule is not None:
-        return rule.text(v)
-    if column.display == "plain":
-        return f"{v:.6g}"
-    if column.display == "full":
-        return full_number(v)
-    display = _unsettled(column.display)
-    decimals = shown_decimals(v, display, rule)
-    kind, _, n = display.partition(":")
-    if decimals is None:
-        return f"{v:.{(int(n) if kind == 'sig' else 6) - 1}e}"
-    if decimals < 0:  # a value shown to the tens, hundreds… of its interval (RoundingRule.places_within)
-        return rule.at_places(v, decimals) if rule is not None else f"{round(v, decimals):.0f}"
-    return signed_text(v, decimals) if kind == "signed" else f"{v:.{decimals}f}"
+    text, significant, scientific = _plain_text(v, _unsettled(column.display), rule)
+    return written(text, significant=significant, scientific=scientific)
 
 
 def excel_format(value: Value, column: Column, rule: RoundingRule | None = None) -> str | None:
     """The number format that shows a workbook cell as :func:`format_value` prints it, while the cell
-    keeps the full-precision number; None for text."""
+    keeps the full-precision number; None for text. Scientific notation is the spreadsheet's own
+    ("0.00E+00"), with the digits :func:`format_value` prints."""
     if not isinstance(value, (int, float)) or isinstance(value, bool):
         return None
     if column.kind == "int" or isinstance(value, int):
@@ -125,20 +145,12 @@ def excel_format(value: Value, column: Column, rule: RoundingRule | None = None)
     if not math.isfinite(v):
         return None
     display = _unsettled(column.display)
-    decimals = shown_decimals(v, display, rule)
-    if decimals is None:
-        kind, _, n = display.partition(":")
-        if kind in ("plain", "full"):
-            mantissa = (f"{v:.6g}" if kind == "plain" else full_number(v)).split("e")[0]
-            return "0." + "0" * _decimal_places(mantissa) + "E+00" if "." in mantissa else "0E+00"
-        return "0." + "0" * ((int(n) if kind == "sig" else 6) - 1) + "E+00"
-    # a number format shows decimals, never tens or hundreds: a value whose interval supports no units
-    # shows its full number to the unit (the Reported cell holds the number rounded to its place)
-    body = "0" if decimals <= 0 else "0." + "0" * decimals
-    if display.startswith("signed"):
+    text, significant, scientific = _plain_text(v, display, rule)
+    body = notation_excel_format(text, significant, scientific)
+    if display.startswith("signed") and "E" not in body:
         # a value that rounds to zero at the shown decimals is shown with no sign (signed_text): "0.0" for
         # it either side of zero, which a format "+0.0;-0.0;0.0" gives only to an exact zero
-        return f"{body};{body}" if signed_text(v, max(decimals, 0))[0] not in "+-" else f"+{body};-{body};{body}"
+        return f"{body};{body}" if text[:1] not in "+-" else f"+{body};-{body};{body}"
     return body
 
 
@@ -179,7 +191,9 @@ class Table:
         if ends is not None:
             lower, upper = row[ends[0]], row[ends[1]]
             if isinstance(lower, float) and isinstance(upper, float) and math.isfinite(lower) and math.isfinite(upper):
-                interval = f"dec:{max(interval_decimals(lower, upper, self.rounding), 0)}"
+                places = max(interval_decimals(lower, upper, self.rounding), 0)
+                both_plain = all(is_plain(f"{v:.{places}f}") for v in (lower, upper))
+                interval = f"dec:{places}" if both_plain else f"decsci:{places}"  # both ends in one notation
             else:
                 interval = "plain"  # an end without a number, or unbounded: the other end as display_number shows it
                 lower = upper = None
@@ -789,7 +803,7 @@ def display_number(value: float | None, digits: int = 6) -> str:
         return "—"
     if value in (float("inf"), float("-inf")):
         return "∞" if value > 0 else "−∞"
-    return f"{value:.{digits}g}"
+    return figures(value, digits)
 
 
 def interval_text(lower: float | None, upper: float | None, rule: RoundingRule | None = None) -> str:
@@ -802,7 +816,10 @@ def interval_text(lower: float | None, upper: float | None, rule: RoundingRule |
     if not all(math.isfinite(v) for v in ends):
         return " – ".join(display_number(v, 6) for v in ends)
     places = interval_decimals(lower, upper, rule)
-    return " – ".join(f"{v:.{max(places, 0)}f}" if places >= 0 else f"{round(v, places):.0f}" for v in ends)
+    texts = [f"{v:.{max(places, 0)}f}" if places >= 0 else f"{round(v, places):.0f}" for v in ends]
+    scientific = not all(is_plain(t) for t in texts)  # both ends in one notation
+    return " – ".join(written(t, significant=_figures_at(v, places), scientific=scientific)
+                      for t, v in zip(texts, ends))
 
 
 def interval_decimals(lower: float, upper: float, rule: RoundingRule | None = None) -> int:

@@ -23,6 +23,7 @@ import errno
 import io
 import math
 import os
+import re
 import threading
 import zipfile
 from contextlib import contextmanager, suppress
@@ -37,6 +38,7 @@ from openpyxl.worksheet.properties import PageSetupProperties
 
 from .. import CAUTION
 from ..core.inverse import INTERVAL_SCOPE_NOTE
+from ..core.notation import excel_format as notation_excel_format, machine
 from ..core.run_analysis import RunResult
 from .atomic import atomic_target, new_temporary, resolve_target
 from .audit import file_sha256_streamed
@@ -245,9 +247,10 @@ class _NumberCells:
         if isinstance(value, float) and not math.isfinite(value):
             return _text_cell(self.sheet, "∞" if value > 0 else "−∞" if value < 0 else "not a number")
         if isinstance(value, str):
-            if column.kind == "reported" and value and value.lstrip("-").replace(".", "", 1).isdigit():
-                decimals = len(value.split(".", 1)[1]) if "." in value else 0
-                return self._numeric(j, float(value), "0" if decimals == 0 else "0." + "0" * decimals)
+            if column.kind == "reported" and value:
+                number = machine(value)  # "3.20 × 10⁻⁵" read back as the number it writes
+                if _REPORTED_NUMBER.match(number):
+                    return self._numeric(j, float(number), notation_excel_format(number))
             if value.startswith("=") or _needs_escaping(value) or len(value) > self.wrap_beyond[j]:
                 return _text_cell(self.sheet, value, wrap=len(value) > self.wrap_beyond[j])
             return value  # openpyxl writes any other text as a plain string cell
@@ -279,6 +282,9 @@ def _text_cell(sheet, text: str, font: Font | None = None, wrap: bool = False): 
     return cell
 
 
+_REPORTED_NUMBER = re.compile(r"^-?\d+(?:\.\d+)?(?:e-?\d+)?$")
+"""A reported text that is the rounded number itself ("0.0125", "3.20e-5" as :func:`machine` reads
+"3.20 × 10⁻⁵"), written to its cell as a number."""
 _WRAPPED = Alignment(wrap_text=True, vertical="top")
 _ALARM = Font(bold=True, color="A11B1B")
 """A table's notice (a record that is not intact): bold and red, as the record prints it."""

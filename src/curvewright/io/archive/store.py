@@ -36,6 +36,7 @@ from ..run_document import dumps_run, loads_run
 from .errors import ArchiveError
 from .location import ArchiveLocation, locate
 from .schema import CURRENT_VERSION, migrate, recoveries, run_analytes, runs, stored_version, utc_text
+from ...core.notation import entered
 
 BUSY_SECONDS = 60.0
 """How long a SQLite filing waits for another one to finish before it gives up."""
@@ -488,7 +489,7 @@ def explain(exc: DBAPIError, location: ArchiveLocation, doing: str) -> str:
             return (f"{where}: {doing} is not possible: {said}. Who may file into a SQLite archive is whoever may "
                     "write in its folder: check the folder's permissions.")
         if "locked" in lowered or "busy" in lowered:
-            return (f"{where}: {doing} waited {BUSY_SECONDS:g} s for another filing to finish and gave up ({said}); "
+            return (f"{where}: {doing} waited {entered(BUSY_SECONDS)} s for another filing to finish and gave up ({said}); "
                     "try again.")
         return f"{where}: {doing} failed: {said}."
     if state == "42501":

@@ -14,6 +14,7 @@ from ...core.trends import RULE_SOURCES, RULE_WORDS, RULES
 from ..result_tables import Column, Table
 from ..xlsx_export import write_tables
 from .history import History
+from ...core.notation import figures
 
 
 def _point_rows(h: History) -> list[dict[str, Any]]:
@@ -64,16 +65,16 @@ def history_text(h: History, archive_shown: str) -> str:
     else:
         assert h.trend is not None
         lines.append(f"Control limits from {h.trend.baseline_words}:")
-        lines.append(f"  mean {limits['mean']:.6g}, s {limits['sd']:.4g} (n = {limits['n']}); "
-                     f"±2 s {limits['lower_2s']:.6g} to {limits['upper_2s']:.6g}; "
-                     f"±3 s {limits['lower_3s']:.6g} to {limits['upper_3s']:.6g}")
+        lines.append(f"  mean {figures(limits['mean'], 6)}, s {figures(limits['sd'], 4)} (n = {limits['n']}); "
+                     f"±2 s {figures(limits['lower_2s'], 6)} to {figures(limits['upper_2s'], 6)}; "
+                     f"±3 s {figures(limits['lower_3s'], 6)} to {figures(limits['upper_3s'], 6)}")
     if h.today_note:
         lines.append(f"Today's run is not shown: {h.today_note}")
     rows = _point_rows(h)
     heading = ("#", "entry", "run date", "run", "value", "z", "verdict", "baseline", "rules broken")
     table = [heading] + [(str(r["number"]), "—" if r["entry"] is None else str(r["entry"]), r["date"],
                           r["run"] + ("  ◀ today" if r["today"] else ""),
-                          f"{r['value']:.6g}", "" if r["z"] is None else f"{r['z']:+.2f}",
+                          f"{figures(r['value'], 6)}", "" if r["z"] is None else f"{r['z']:+.2f}",
                           ("accepted" if r["accepted"] else "NOT accepted")
                           + ("" if r["record_intact"] else "; record NOT intact"),
                           "B" if r["in_baseline"] else "", ", ".join(r["rules_broken"])) for r in rows]
