@@ -312,6 +312,10 @@ class RecordLayout:
             if self.m.surely_within(style, word, width) or self.m.width(style, word) <= width:
                 out.append(word)
                 continue
+            head, _, unit = word.rpartition("\u00a0")
+            if head and _UNIT.fullmatch(unit) and self.m.width(style, head) <= width:
+                out += [head, unit]  # a number and its unit wider than a table's cell: the unit on the next line
+                continue
             piece = ""
             for ch in word:
                 if piece and self.m.width(style, piece + ch) > width:
@@ -328,19 +332,21 @@ class RecordLayout:
         return out
 
     @staticmethod
-    def bound_words(text: str) -> list[str]:
+    def bound_words(text: str, units: bool = True) -> list[str]:
         """Words (split at spaces, not at no-break spaces: "3.20 × 10⁻⁵" is one), with a lone
         comparison sign joined to the word after it, a lone dash to the words on both sides (to the word
         before it only where that is a number with an exponent) and a unit to the number before it
         ("0.4545 µg/L"), joined by no-break spaces: a reader must never find a number on one line and its
-        unit on the next."""
-        if _GLUE.search(text) is None and _NUMBER_THEN_UNIT.search(text) is None:
+        unit on the next. Without ``units`` a unit stays a word of its own: a table column's narrowest width
+        is found so (:meth:`_min_width`), and a cell too narrow for a number with its unit sets the unit
+        on the cell's next line (:meth:`tokens`) rather than the table being split into column groups."""
+        if _GLUE.search(text) is None and (not units or _NUMBER_THEN_UNIT.search(text) is None):
             # no sign, no dash and no unit after a number: the words as they are (most cells)
             return text.split() if "\u00a0" not in text else _BREAKING_SPACES.split(text.strip())
         words: list[str] = []
         glue_next = False
         for word in (text.split() if "\u00a0" not in text else _BREAKING_SPACES.split(text.strip())):
-            if words and _UNIT.fullmatch(word) and _NUMBER_END.fullmatch(words[-1]):
+            if units and words and _UNIT.fullmatch(word) and _NUMBER_END.fullmatch(words[-1]):
                 words[-1] += "\u00a0" + word
             elif glue_next and words:
                 words[-1] += "\u00a0" + word
@@ -398,7 +404,7 @@ class RecordLayout:
             whole = self.m.width(style, text)
             if whole <= longest:  # no word of it is wider than the text itself
                 continue
-            words = self.bound_words(text)
+            words = self.bound_words(text, units=False)
             if len(words) == 1 and words[0] == text:
                 longest = whole
             else:
