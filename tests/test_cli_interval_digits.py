@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 import subprocess
 import sys
 from decimal import ROUND_HALF_EVEN, Decimal
@@ -51,11 +52,25 @@ def quantify(folder: Path, scale: float, *extra: str) -> str:
 
 
 def sample_line(text: str, sample: str) -> list[str]:
-    """The reported text, the value and the interval's ends of ``sample`` as the command line prints them."""
+    """The reported text, the value and the interval's ends of ``sample`` as the command line prints them
+    (a number in scientific notation, "2.026 × 10⁸", is held together by no-break spaces)."""
     line = next(line for line in text.splitlines() if line.startswith(f"  {sample}  "))
-    words = line[len(sample) + 2:].split()
+    words = re.split(r" +", line[len(sample) + 2:].strip())
     assert words[3] == "–", line
     return [words[0], words[1], words[2], words[4]]
+
+
+_SUPERSCRIPTS = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹⁻", "0123456789-")
+
+
+def as_decimal(text: str) -> Decimal:
+    """The number a shown text stands for, with the digits it shows: "2.026 × 10⁸" is 2.026E+8, "1.968e8"
+    (a file's text field) 1.968E+8, "693200" 693200."""
+    text = text.replace("\u00a0", " ").replace("\u2212", "-")
+    if "×" in text:
+        mantissa, power = text.split(" × 10")
+        return Decimal(mantissa).scaleb(int(power.translate(_SUPERSCRIPTS)))
+    return Decimal(text)
 
 
 def gum_ends(lower: float, upper: float) -> tuple[Decimal, Decimal, int]:
@@ -79,11 +94,12 @@ def test_large_whole_numbers_are_printed_to_the_place_their_interval_supports(tm
         lower, upper, places = gum_ends(row["reported_lower"], row["reported_upper"])
         assert places < 0  # the interval supports no units
         assert [Decimal(w) for w in want[2:]] == [lower, upper]  # GUM §7.2.6, as worked out above
-        assert sample_line(text, sample) == want
+        assert [as_decimal(w) for w in sample_line(text, sample)] == [Decimal(w) for w in want]
         # the value to the same place as its interval (GUM §7.2.6), inside its printed interval
         assert Decimal(want[1]) == Decimal(repr(row["reported"])).quantize(Decimal(1).scaleb(-places))
         assert lower <= Decimal(want[1]) <= upper
-        assert row["reported_rounded"] == row["reported_text"] == want[0]
+        assert row["reported_rounded"] == row["reported_text"]
+        assert as_decimal(row["reported_rounded"]) == Decimal(want[0])
     # the workbook's Reported cell holds the number rounded to that place and shows it so; the estimate
     # and the ends keep their full numbers (a number format cannot round to tens or hundreds)
     book = openpyxl.load_workbook(tmp_path / "k.xlsx")
@@ -91,7 +107,13 @@ def test_large_whole_numbers_are_printed_to_the_place_their_interval_supports(tm
         summary = {r["Sample id"].value: r for r in sheet_rows(book, "Summary")}
         samples = {r["Sample id"].value: r for r in sheet_rows(book, "Samples")}
         for sample, want in expected.items():
-            assert shown(summary[sample]["Reported"]) == shown(samples[sample]["Reported"]) == want[0]
+            for cell in (summary[sample]["Reported"], samples[sample]["Reported"]):
+                if "E" in cell.number_format:  # scientific, as the text: the mantissa's decimals are the text's
+                    assert Decimal(repr(cell.value)) == Decimal(want[0])
+                    figures = as_decimal(sample_line(text, sample)[0]).as_tuple()
+                    assert cell.number_format == "0." + "0" * (len(figures.digits) - 1) + "E+00"
+                else:
+                    assert shown(cell) == want[0]
             for row in (summary[sample], samples[sample]):
                 for name in ("Lower limit", "Upper limit"):
                     assert row[name].value == rows[sample]["reported_" + name.split()[0].lower()]
@@ -103,8 +125,9 @@ def test_large_whole_numbers_are_printed_to_the_place_their_interval_supports(tm
     finally:
         pdf.close()
     # the record's samples table: reported, concentration × dilution, interval (the same GUM place)
-    assert "Brine A unknown 1 1000 202600000 202600000 196800000 – 208500000" in record, record
-    assert "Brine B unknown 2 1 693200 693200 685200 – 701300" in record, record
+    for sample, head in (("Brine A", "Brine A unknown 1 1000"), ("Brine B", "Brine B unknown 2 1")):
+        reported, value, low, high = (" ".join(w.split()) for w in sample_line(text, sample))
+        assert f"{head} {reported} {value} {low} – {high}" in record, record
 
 
 def test_trace_values_keep_the_digits_of_their_interval(tmp_path) -> None:
@@ -115,7 +138,7 @@ def test_trace_values_keep_the_digits_of_their_interval(tmp_path) -> None:
         words = sample_line(text, row["id"])
         # GUM §7.2.6: the ends to the second significant figure of the half-width, finer than three
         # significant figures of the ends would keep here
-        assert [Decimal(w) for w in words[2:]] == [lower, upper], words
-        assert lower <= Decimal(words[1]) <= upper
-        assert words[1] == row["reported_rounded"]
-        assert -Decimal(words[1]).as_tuple().exponent <= places  # never finer than the interval's place
+        assert [as_decimal(w) for w in words[2:]] == [lower, upper], words
+        assert lower <= as_decimal(words[1]) <= upper
+        assert as_decimal(words[1]) == as_decimal(row["reported_rounded"])
+        assert -as_decimal(words[1]).as_tuple().exponent <= places  # never finer than the interval's place

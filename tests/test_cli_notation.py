@@ -108,10 +108,11 @@ def test_csv_workbook_and_record_write_the_same_digits(tmp_path) -> None:
 
 def test_nist_pontius_range_and_inverse_prediction_read_plainly(tmp_path) -> None:
     # NIST StRD Pontius: loads 150000 to 3000000. NIST/SEMATECH e-Handbook §4.6.1.10: the deflection
-    # 1.239722 gives a load of 1705106 (to the unit its interval supports).
+    # 1.239722 gives a load of 1705106; its interval's half-width (about 592) has its second figure in the
+    # tens (GUM JCGM 100:2008 §7.2.6), so the value and the ends are printed to the tens.
     out = quantify(tmp_path, pontius_table(), "Sample,Response\nLC-1,1.239722\n", "--analyte", "load",
                    "--model", "quadratic", "--weighting", "none").stdout
     assert not PYTHON_EXPONENT.search(out), out
     assert "calibrated range 150000–3000000 (LLOQ–ULOQ)" in out
     line = next(line for line in out.splitlines() if line.startswith("  LC-1 "))
-    assert line.split()[1:6] == ["1705106", "1705106", "1704513", "–", "1705698"], line
+    assert line.split()[1:6] == ["1705110", "1705110", "1704510", "–", "1705700"], line

@@ -42,8 +42,8 @@ def test_a_quadratic_that_lacks_fit_is_not_recommended(tmp_path: Path) -> None:
     assert "recommended: none — no candidate is acceptable" in out.stdout, out.stdout
     assert "the quadratic is recommended" not in out.stdout and "recommended: quadratic" not in out.stdout
     assert ("no candidate is acceptable, so none is recommended: the quadratic (unweighted (ordinary least squares)) "
-            "is rejected by its lack-of-fit test (p = 7.49e-07) and the straight line is rejected by") in out.stdout
-    assert "the quadratic also lacks fit (p = 7.49e-07), so it cannot replace it" in out.stdout
+            "is rejected by its lack-of-fit test (p = 7.49\u00a0×\u00a010⁻⁷) and the straight line is rejected by") in out.stdout
+    assert "the quadratic also lacks fit (p = 7.49\u00a0×\u00a010⁻⁷), so it cannot replace it" in out.stdout
     as_json = run_cli("compare", "--standards", str(std), "--analyte", "zinc", "--json")
     assert as_json.returncode == 1, as_json.stderr
     entry = json.loads(as_json.stdout)[0]

@@ -23,7 +23,7 @@ def test_evidence_panel_recommends_no_quadratic_that_lacks_fit(make_window, qtbo
     assert marks == [""] * len(marks)
     assert panel.reasons.toPlainText().startswith(
         "• no candidate is acceptable, so none is recommended: the quadratic (unweighted (ordinary least squares)) "
-        "is rejected by its lack-of-fit test (p = 7.49e-07)")
+        "is rejected by its lack-of-fit test (p = 7.49 × 10⁻⁷)")  # the panel's plain text gives no-break spaces as spaces
     assert "the quadratic is recommended" not in panel.reasons.toPlainText()
 
     panel.select("quadratic", "none")

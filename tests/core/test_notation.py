@@ -70,8 +70,9 @@ def test_statistics_without_a_rule_drop_python_exponents():
 
 
 def test_interval_places_are_not_counted_as_figures():
-    # 1705105.57 in 1704513 – 1705698 is shown to its interval's units (the rule's own test)
-    assert computed_within(1705105.57, 1704513.0, 1705698.0, THREE) == "1705106"
+    # 1705105.57 in 1704513 – 1705698 (half-width 592.5: its second figure in the tens, GUM JCGM 100:2008
+    # §7.2.6) is shown to the tens: plain digits, its zero a padding the interval's print makes plain
+    assert computed_within(1705105.57, 1704513.0, 1705698.0, THREE) == "1705110"
     # the same numbers a million times smaller: the interval's places, written with an exponent
     assert computed_within(1.705105e-6, 1.704513e-6, 1.705698e-6, THREE) == "1.70511 × 10⁻⁶"
 
