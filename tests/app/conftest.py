@@ -72,6 +72,28 @@ def make_window(qtbot, tmp_path, settings):
     qtbot.wait(10)
 
 
+@pytest.fixture
+def import_csv(qtbot, tmp_path, monkeypatch):
+    """Import tables into a window as an analyst does: ``import_csv(window, standards=TEXT, samples=TEXT)``
+    writes each table as ``KIND.csv`` with CRLF line ends, as a spreadsheet saves it, imports it through
+    the window's import command with its preview accepted as shown, in the order given, and waits until
+    the run with all of them is analysed and shown."""
+    from curvewright.app import main_window
+
+    monkeypatch.setattr(main_window.ImportDialog, "exec", lambda self: main_window.ImportDialog.DialogCode.Accepted)
+
+    def imported(window, **tables: str) -> None:  # type: ignore[no-untyped-def]
+        for kind, text in tables.items():
+            path = tmp_path / f"{kind}.csv"
+            path.write_bytes(text.replace("\n", "\r\n").encode())
+            assert window.import_table(kind, path=str(path))
+            settle(qtbot, window)
+        window.session.wait_for_analysis()
+        settle(qtbot, window)
+
+    return imported
+
+
 def settle(qtbot, window) -> None:
     """Wait until the latest edit has been analysed and shown."""
     session = window.session
