@@ -184,6 +184,23 @@ def type_keys(qtbot, widget, key, modifiers=None) -> None:  # type: ignore[no-un
         qtbot.keyRelease(widget, held, Qt.KeyboardModifier.NoModifier)
 
 
+def open_cell_editor(qtbot, window, view, index):  # type: ignore[no-untyped-def]
+    """Click the cell at ``index`` of ``view`` in ``window`` and open its editor with F2, as the analyst
+    does; the editor, which has the keyboard focus."""
+    from PySide6.QtCore import Qt
+    from PySide6.QtWidgets import QApplication
+
+    window.activateWindow()
+    qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
+    view.scrollTo(index)
+    qtbot.mouseClick(view.viewport(), Qt.MouseButton.LeftButton, pos=view.visualRect(index).center())
+    assert view.currentIndex() == index
+    type_keys(qtbot, view, Qt.Key.Key_F2)
+    editor = QApplication.focusWidget()
+    assert editor is not view and editor.parent() is view.viewport(), "F2 did not open the cell's editor"
+    return editor
+
+
 class InMemoryRecord:
     """A QPdfWriter set up as the record's (``report_pdf.record_writer``: A4, no page margins, 300 dpi)
     writing into memory; :meth:`pdf` is what it wrote once a painter on it has ended."""
