@@ -5,9 +5,7 @@ person signing in a second role is told so before signing, and the record says s
 from __future__ import annotations
 
 import shutil
-import unicodedata
 
-import pypdfium2 as pdfium
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QDialog, QDialogButtonBox, QFileDialog
@@ -15,6 +13,7 @@ from PySide6.QtWidgets import QDialog, QDialogButtonBox, QFileDialog
 from curvewright.app import dialogs
 from curvewright.app import standards_model as sm
 from tests.app.conftest import DEMOS, settle
+from tests.printed import printed_text
 
 NITRATE = next(p for p in DEMOS if p.name.startswith("nitrate"))
 
@@ -23,12 +22,7 @@ def record_text(window, monkeypatch, path) -> str:  # type: ignore[no-untyped-de
     """File → Export calibration record, read back as a reader's PDF software gives its text."""
     monkeypatch.setattr(QFileDialog, "getSaveFileName", lambda *a, **k: (str(path), ""))
     window.actions_by_name["export-record"].trigger()
-    document = pdfium.PdfDocument(str(path))
-    try:
-        text = " ".join(document[i].get_textpage().get_text_range() for i in range(len(document)))
-    finally:
-        document.close()
-    return " ".join(unicodedata.normalize("NFKC", text).replace("\u00a0", " ").split())
+    return printed_text(path)
 
 
 def test_approving_a_not_accepted_run_needs_a_reason_that_the_record_prints(
