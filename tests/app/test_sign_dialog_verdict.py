@@ -25,14 +25,24 @@ def record_text(window, monkeypatch, path) -> str:  # type: ignore[no-untyped-de
     return printed_text(path)
 
 
-def test_approving_a_not_accepted_run_needs_a_reason_that_the_record_prints(
-        make_window, qtbot, tmp_path, monkeypatch, answer_dialogs) -> None:
+def window_on_a_demo_copy(make_window, tmp_path):  # type: ignore[no-untyped-def]
+    """A window on a copy of the nitrate demo run, ``tmp_path/run.json``."""
     path = tmp_path / "run.json"
     shutil.copy(NITRATE, path)
-    window = make_window(path)
+    return make_window(path)
+
+
+def misread_standard_4(window, qtbot) -> None:  # type: ignore[no-untyped-def]
+    """Standard 4's response typed over with three times its value (a wrong reading), and the run analysed."""
     model = window.standards_model
-    assert model.setData(model.index(3, sm.RESP), str(float(model.index(3, sm.RESP).data()) * 3))  # a wrong reading
+    assert model.setData(model.index(3, sm.RESP), str(float(model.index(3, sm.RESP).data()) * 3))
     settle(qtbot, window)
+
+
+def test_approving_a_not_accepted_run_needs_a_reason_that_the_record_prints(
+        make_window, qtbot, tmp_path, monkeypatch, answer_dialogs) -> None:
+    window = window_on_a_demo_copy(make_window, tmp_path)
+    misread_standard_4(window, qtbot)
     assert not window.session.result.accepted
     shown = []
 
@@ -63,12 +73,8 @@ def test_approving_a_not_accepted_run_needs_a_reason_that_the_record_prints(
 
 def test_a_not_accepted_run_is_not_approved_without_the_confirmation(
         make_window, qtbot, tmp_path, monkeypatch, answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(NITRATE, path)
-    window = make_window(path)
-    model = window.standards_model
-    assert model.setData(model.index(3, sm.RESP), str(float(model.index(3, sm.RESP).data()) * 3))
-    settle(qtbot, window)
+    window = window_on_a_demo_copy(make_window, tmp_path)
+    misread_standard_4(window, qtbot)
 
     def press_ok(self) -> int:  # OK pressed as the dialog stands: refused, nothing signed
         ok = self.buttons.button(QDialogButtonBox.StandardButton.Ok)
@@ -82,9 +88,7 @@ def test_a_not_accepted_run_is_not_approved_without_the_confirmation(
 
 def test_one_person_in_a_second_role_is_told_and_the_record_says_so(
         make_window, qtbot, tmp_path, monkeypatch, answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(NITRATE, path)
-    window = make_window(path)
+    window = window_on_a_demo_copy(make_window, tmp_path)
     assert window.session.result.accepted
     seen = []
 
