@@ -184,6 +184,17 @@ def type_keys(qtbot, widget, key, modifiers=None) -> None:  # type: ignore[no-un
         qtbot.keyRelease(widget, held, Qt.KeyboardModifier.NoModifier)
 
 
+def paste_from_menu(qtbot, window, view, text: str) -> None:  # type: ignore[no-untyped-def]
+    """Put ``text`` on the clipboard and paste it into ``view`` with Edit → Paste, as the analyst does;
+    then wait until the run is analysed and shown."""
+    from PySide6.QtGui import QGuiApplication
+
+    view.setFocus()
+    QGuiApplication.clipboard().setText(text)
+    window.actions_by_name["paste"].trigger()
+    settle(qtbot, window)
+
+
 def open_cell_editor(qtbot, window, view, index):  # type: ignore[no-untyped-def]
     """Click the cell at ``index`` of ``view`` in ``window`` and open its editor with F2, as the analyst
     does; the editor, which has the keyboard focus."""
