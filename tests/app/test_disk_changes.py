@@ -23,6 +23,18 @@ def record_an_export_from_another_process(path, tmp_path) -> None:
     assert done.returncode in (0, 1), done.stderr
 
 
+def edited_demo_copy(make_window, qtbot, tmp_path):  # type: ignore[no-untyped-def]
+    """A copy of the first demo run (``tmp_path/run.json``) open in a window, standard 4's response typed
+    over and not saved: the copy and the window."""
+    path = tmp_path / "run.json"
+    shutil.copy(DEMOS[0], path)
+    window = make_window(path)
+    model = window.standards_model
+    assert model.setData(model.index(3, sm.RESP), "0.2037")
+    settle(qtbot, window)
+    return path, window
+
+
 def test_a_file_changed_on_disk_is_offered_for_reload(make_window, qtbot, tmp_path, answer_dialogs) -> None:
     path = tmp_path / "run.json"
     shutil.copy(DEMOS[0], path)
@@ -40,12 +52,7 @@ def test_a_file_changed_on_disk_is_offered_for_reload(make_window, qtbot, tmp_pa
 
 def test_a_save_never_overwrites_entries_recorded_on_disk(make_window, qtbot, tmp_path, monkeypatch,
                                                          answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(DEMOS[0], path)
-    window = make_window(path)
-    model = window.standards_model
-    assert model.setData(model.index(3, sm.RESP), "0.2037")
-    settle(qtbot, window)
+    path, window = edited_demo_copy(make_window, qtbot, tmp_path)
     record_an_export_from_another_process(path, tmp_path)
     theirs = path.read_bytes()
     answer_dialogs["question"] = QMessageBox.StandardButton.No  # keep working on my version
@@ -64,12 +71,7 @@ def test_a_file_changed_outside_curvewright_is_overwritten_only_when_asked(make_
                                                                           answer_dialogs) -> None:
     """A change that records nothing (the same document laid out anew by a text editor) may be
     overwritten, after a question; its version is kept as .bak."""
-    path = tmp_path / "run.json"
-    shutil.copy(DEMOS[0], path)
-    window = make_window(path)
-    model = window.standards_model
-    assert model.setData(model.index(3, sm.RESP), "0.2037")
-    settle(qtbot, window)
+    path, window = edited_demo_copy(make_window, qtbot, tmp_path)
     theirs = path.read_bytes().replace(b"\n", b"\r\n")
     path.write_bytes(theirs)
     answer_dialogs["question"] = QMessageBox.StandardButton.Cancel
