@@ -94,6 +94,17 @@ def import_csv(qtbot, tmp_path, monkeypatch):
     return imported
 
 
+@pytest.fixture
+def save_in_tmp_path(monkeypatch, tmp_path) -> Path:
+    """Every "save as" file dialog answered with the name it suggests, in ``tmp_path`` (returned), as an
+    analyst who accepts the suggested name in that folder."""
+    from PySide6.QtWidgets import QFileDialog
+
+    monkeypatch.setattr(QFileDialog, "getSaveFileName",
+                        lambda parent, caption, suggested="", *a, **k: (str(tmp_path / Path(suggested).name), ""))
+    return tmp_path
+
+
 def settle(qtbot, window) -> None:
     """Wait until the latest edit has been analysed and shown."""
     session = window.session

@@ -13,6 +13,7 @@ from curvewright.app import samples_model as smod
 from curvewright.app import standards_model as stmod
 from curvewright.io.audit_words import entry_words
 from tests.app.conftest import paste_from_menu, settle
+from tests.printed import printed_text
 
 STANDARDS = ("Conc\tResponse\n0.5\t0.0123\n1\t0.0248\n2.5\t0.0619\n5\t0.1248\n10\t0.2490\n20\t0.4975\n"
              "1234567\t0.61\n")
@@ -94,26 +95,16 @@ def test_a_decimal_comma_table_reads_back_what_its_editor_shows(make_window, ans
 
 
 def test_the_workbook_and_the_record_show_entered_values_in_full(make_window, answer_dialogs, qtbot, tmp_path,
-                                                                 monkeypatch) -> None:
+                                                                 save_in_tmp_path) -> None:
     """The dilution factor and the nominal value an analyst entered are printed as entered in the
     record and formatted so in the workbook: 1234567, not 1.23457e+06; 4.123456789, not 4.12346."""
-    from pathlib import Path
-
     import openpyxl
-    import pypdfium2 as pdfium
-    from PySide6.QtWidgets import QFileDialog
 
-    monkeypatch.setattr(QFileDialog, "getSaveFileName",
-                        lambda parent, caption, suggested="", *a, **k: (str(tmp_path / Path(suggested).name), ""))
     window = make_window(None)
     _fill(window, qtbot)
     window.actions_by_name["export-record"].trigger()
     settle(qtbot, window)
-    pdf = pdfium.PdfDocument(str(next(tmp_path.glob("*.pdf"))))
-    try:
-        text = " ".join(" ".join(pdf[i].get_textpage().get_text_range() for i in range(len(pdf))).split())
-    finally:
-        pdf.close()
+    text = printed_text(next(tmp_path.glob("*.pdf")))
     samples = text[text.index("Samples – analyte 1 Sample"):]
     assert "R-1 unknown 1 1234567 " in samples, samples[:400]
     # the standards as entered (the lowest level fails its limits here, so the range is narrowed to the highest)

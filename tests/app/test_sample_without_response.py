@@ -6,10 +6,8 @@ File menu's actions, answered through the save dialog (pytest-qt, offscreen)."""
 
 from __future__ import annotations
 
-from pathlib import Path
 
 import openpyxl
-from PySide6.QtWidgets import QFileDialog
 
 from curvewright.app import results_model as rm
 from tests.app.conftest import paste_from_menu, settle
@@ -21,9 +19,7 @@ SAMPLES = "Sample\tResponse\tWeight\tComment\nS1\t0.1\t1.02\tok\nS2\t\t1.01\t\nS
 
 
 def test_a_sample_with_an_empty_response_is_listed_everywhere(make_window, answer_dialogs, qtbot, tmp_path,
-                                                              monkeypatch) -> None:
-    monkeypatch.setattr(QFileDialog, "getSaveFileName",
-                        lambda parent, caption, suggested="", *a, **k: (str(tmp_path / Path(suggested).name), ""))
+                                                              save_in_tmp_path) -> None:
     window = make_window(None)
     paste_from_menu(qtbot, window, window.standards_view, STANDARDS)
     window.left_tabs.setCurrentIndex(1)

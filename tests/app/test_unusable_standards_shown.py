@@ -6,12 +6,10 @@ dialog answered), the workbook and the record exported through the File menu (py
 
 from __future__ import annotations
 
-from pathlib import Path
 
 import openpyxl
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
-from PySide6.QtWidgets import QFileDialog
 
 from curvewright.app import standards_model as sm
 from curvewright.app.standards_model import INVALID
@@ -40,9 +38,7 @@ def _type_over(window, qtbot, row: int, col: int, text: str) -> None:  # type: i
 
 
 def test_standards_without_a_usable_value_say_so_everywhere(make_window, answer_dialogs, qtbot, tmp_path,
-                                                            monkeypatch) -> None:
-    monkeypatch.setattr(QFileDialog, "getSaveFileName",
-                        lambda parent, caption, suggested="", *a, **k: (str(tmp_path / Path(suggested).name), ""))
+                                                            save_in_tmp_path) -> None:
     window = make_window(None)
     paste_from_menu(qtbot, window, window.standards_view, STANDARDS)
     _type_over(window, qtbot, 2, sm.RESP, "")
