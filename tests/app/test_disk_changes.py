@@ -5,21 +5,18 @@ said once."""
 from __future__ import annotations
 
 import shutil
-import subprocess
-import sys
 
 from PySide6.QtWidgets import QFileDialog, QMessageBox
 
 from curvewright.app import standards_model as sm
 from curvewright.io.run_document import open_run
-from tests.app.conftest import DEMOS, ROOT, settle
+from tests.app.conftest import DEMOS, settle
+from tests.cli_runs import run_cli
 
 
 def record_an_export_from_another_process(path, tmp_path) -> None:
     """What a colleague's command does to the file: append an export entry to its audit trail."""
-    done = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", str(path), "--export",
-                           str(tmp_path / "colleague.xlsx"), "--record"], capture_output=True, text=True, cwd=ROOT,
-                          timeout=300)
+    done = run_cli("quantify", str(path), "--export", str(tmp_path / "colleague.xlsx"), "--record")
     assert done.returncode in (0, 1), done.stderr
 
 
