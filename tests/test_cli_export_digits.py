@@ -8,7 +8,6 @@ import csv
 import io
 import re
 import subprocess
-import sys
 import unicodedata
 from pathlib import Path
 
@@ -16,7 +15,7 @@ import openpyxl
 import pytest
 from pypdf import PdfReader
 
-from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli
 
 STANDARDS = """Standard id;Level;Concentration (µg/L);Response (counts)
 Ni-A1-1;A1;0,5;34,71
@@ -60,9 +59,8 @@ def write_table(path: Path, text: str) -> Path:
 def quantify(folder: Path, *extra: str) -> subprocess.CompletedProcess:
     std = write_table(folder / "nickel_standards.csv", STANDARDS)
     smp = write_table(folder / "nickel_samples.csv", SAMPLES)
-    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", "--standards", str(std), "--samples",
-                          str(smp), "--analyte", "nickel", "--model", "linear", "--weighting", "1/x^2", *extra],
-                         capture_output=True, text=True, cwd=ROOT, timeout=300)
+    out = run_cli("quantify", "--standards", str(std), "--samples", str(smp), "--analyte", "nickel", "--model",
+                  "linear", "--weighting", "1/x^2", *extra)
     assert out.returncode == 0, out.stderr
     return out
 

@@ -17,15 +17,13 @@ from __future__ import annotations
 import json
 import math
 import re
-import subprocess
-import sys
 from decimal import ROUND_HALF_EVEN, Decimal
 from pathlib import Path
 
 import openpyxl
 import pypdfium2
 
-from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli
 from tests.test_cli_export_digits import shown, sheet_rows
 
 LEVELS = (50000, 100000, 200000, 500000, 1000000, 2000000)
@@ -44,9 +42,8 @@ def quantify(folder: Path, scale: float, *extra: str) -> str:
     std, smp = folder / "standards.csv", folder / "samples.csv"
     std.write_text(standards(scale), encoding="utf-8")
     smp.write_text(SAMPLES, encoding="utf-8")
-    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", "--standards", str(std), "--samples",
-                          str(smp), "--analyte", "potassium", "--model", "linear", "--weighting", "1/x", *extra],
-                         capture_output=True, text=True, cwd=ROOT, timeout=300)
+    out = run_cli("quantify", "--standards", str(std), "--samples", str(smp), "--analyte", "potassium",
+                  "--model", "linear", "--weighting", "1/x", *extra)
     assert out.returncode == 0, out.stderr
     return out.stdout
 

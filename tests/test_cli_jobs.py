@@ -16,6 +16,7 @@ import sys
 import pytest
 
 from curvewright.io.run_document import open_run, save_run
+from tests.cli_runs import run_cli
 from tests.io.helpers import DEMO_RUNS, ROOT
 
 SHARING = """
@@ -53,8 +54,7 @@ def _folder(tmp_path, count: int):
 
 
 def _serial(folder) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", str(folder), "--json"],
-                          capture_output=True, text=True, cwd=ROOT, timeout=300)
+    return run_cli("quantify", str(folder), "--json")
 
 
 @pytest.mark.skipif(not sys.platform.startswith("linux"), reason="processes are forked on Linux only")

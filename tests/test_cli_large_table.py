@@ -14,15 +14,13 @@ blanks, empty, unreadable and censored readings, results below the LOD, inside a
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 from pathlib import Path
 
 import numpy as np
 
 from curvewright import cli
 from curvewright.core import reporting, rounding
-from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli
 from tests.test_cli_sample_columns import ReferenceRows
 
 SAMPLES = 20_500  # more than two parts of the report and than the samples kept with their texts
@@ -63,8 +61,7 @@ def test_a_large_table_gives_the_text_of_the_work_done_in_one_piece(tmp_path, mo
     standards, samples = write_tables(tmp_path)
     args = ["quantify", "--standards", str(standards), "--samples", str(samples), "--analyte", "nickel",
             "--allow-unreadable", "--json"]
-    done = subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True, cwd=ROOT,
-                          timeout=600)
+    done = run_cli(*args, timeout=600)
     assert done.returncode in (0, 1), done.stderr
     # the same command with the work in one piece, and the rows made from the result objects
     monkeypatch.setattr(reporting, "_PART", 10**9)

@@ -5,15 +5,12 @@ tables are written as a spreadsheet saves CSV (quoted where a field holds a comm
 
 from __future__ import annotations
 
-import subprocess
-import sys
 import unicodedata
-from pathlib import Path
 
 import pytest
 from pypdf import PdfReader
 
-from tests.io.helpers import ROOT
+from tests.cli_runs import run_cli
 
 STANDARDS = """Standard id,Level,Concentration (µg/L),Response (counts)
 Ni-A1-1,A1,0.5,34.71
@@ -52,10 +49,9 @@ def record(tmp_path_factory) -> PdfReader:
     folder = tmp_path_factory.mktemp("record")
     (folder / "standards.csv").write_text(STANDARDS, encoding="utf-8")
     (folder / "samples.csv").write_text(SAMPLES, encoding="utf-8")
-    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", "--standards", str(folder / "standards.csv"),
-                          "--samples", str(folder / "samples.csv"), "--analyte", "nickel", "--model", "linear",
-                          "--weighting", "1/x^2", "--report", str(folder / "record.pdf")],
-                         capture_output=True, text=True, cwd=ROOT, timeout=300)
+    out = run_cli("quantify", "--standards", str(folder / "standards.csv"), "--samples", str(folder / "samples.csv"),
+                  "--analyte", "nickel", "--model", "linear", "--weighting", "1/x^2", "--report",
+                  str(folder / "record.pdf"))
     assert out.returncode == 0, out.stderr
     return PdfReader(folder / "record.pdf")
 

@@ -8,7 +8,6 @@ from __future__ import annotations
 import json
 import re
 import subprocess
-import sys
 import unicodedata
 from pathlib import Path
 
@@ -16,6 +15,7 @@ import openpyxl
 import pytest
 from pypdf import PdfReader
 
+from tests.cli_runs import run_cli
 from tests.io.helpers import ROOT
 from tests.test_cli_export_digits import shown, sheet_rows
 
@@ -41,8 +41,7 @@ def quantify(folder: Path, standards: str, samples: str, *extra: str) -> subproc
     std, smp = folder / "standards.csv", folder / "samples.csv"
     std.write_text(standards, encoding="utf-8")
     smp.write_text(samples, encoding="utf-8")
-    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", "--standards", str(std), "--samples",
-                          str(smp), *extra], capture_output=True, text=True, cwd=ROOT, timeout=300)
+    out = run_cli("quantify", "--standards", str(std), "--samples", str(smp), *extra)
     assert out.returncode == 0, out.stderr
     return out
 

@@ -10,14 +10,13 @@ censored reading, results below the LOD and the LOQ and above the range.
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 from pathlib import Path
 
 import pytest
 
 from curvewright import cli
 from curvewright.core.notation import computed_within, machine
+from tests.cli_runs import run_cli
 from tests.io.helpers import ROOT
 
 STANDARDS = ["Standard id,Level,Concentration (µg/L),Response (counts)"] + [
@@ -102,8 +101,7 @@ def test_rows_from_columns_are_the_rows_of_the_result_objects(tmp_path, monkeypa
     samples = write(tmp_path / "cu_samples.csv", SAMPLES)
     args = ["quantify", "--standards", str(standards), "--samples", str(samples), "--analyte", "copper",
             "--allow-unreadable", "--json", *extra]
-    done = subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True, cwd=ROOT,
-                          timeout=300)
+    done = run_cli(*args)
     assert done.returncode in (0, 1), done.stderr
     monkeypatch.setattr(cli, "_SampleRows", ReferenceRows)
     code = cli.main(args)
@@ -129,8 +127,7 @@ def test_a_calibration_check_among_the_samples_gives_the_same_rows(tmp_path, mon
     samples = write(tmp_path / "cu_samples.csv", SAMPLES + ["CCV-1,CCV,1,10,502.7,16"])
     args = ["quantify", "--standards", str(standards), "--samples", str(samples), "--analyte", "copper",
             "--allow-unreadable", "--json"]
-    done = subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True, cwd=ROOT,
-                          timeout=300)
+    done = run_cli(*args)
     monkeypatch.setattr(cli, "_SampleRows", ReferenceRows)
     cli.main(args)
     assert done.stdout == capsys.readouterr().out
@@ -141,9 +138,8 @@ def test_a_calibration_check_among_the_samples_gives_the_same_rows(tmp_path, mon
 def test_a_bad_cell_is_still_named_by_file_row_field_and_reason(tmp_path) -> None:
     standards = write(tmp_path / "cu_standards.csv", STANDARDS)
     samples = write(tmp_path / "cu_samples.csv", SAMPLES + ["FR-013,unknown,-2,,100.0,17"])
-    done = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", "--standards", str(standards),
-                           "--samples", str(samples), "--analyte", "copper", "--json"],
-                          capture_output=True, text=True, cwd=ROOT, timeout=300)
+    done = run_cli("quantify", "--standards", str(standards), "--samples", str(samples), "--analyte", "copper",
+                   "--json")
     assert done.returncode == 2, done.stderr
     assert f"{samples}: 1 cell(s) cannot be used" in done.stderr
     assert "row 20" in done.stderr and "3 (Dilution)" in done.stderr

@@ -7,13 +7,11 @@ record shows both, and ``check`` goes on naming the removed signature."""
 from __future__ import annotations
 
 import json
-import re
-import unicodedata
 from pathlib import Path
 
-import pypdfium2 as pdfium
-
 from tests.cli_runs import run_cli
+from tests.printed import printed_text
+from tests.signed_runs import cut_out_reviewer_signature
 from tests.io.helpers import ROOT
 
 DEMO = ROOT / "sample_runs" / "nitrate_water_linear.json"
@@ -27,23 +25,7 @@ def reviewer_cut_out(tmp_path: Path) -> tuple[Path, str]:
     path.write_bytes(DEMO.read_bytes())
     done = run_cli("sign", str(path), "--role", "reviewer", "--analyst", "Ines Varga")
     assert done.returncode == 0, done.stdout + done.stderr
-    text = path.read_text(encoding="utf-8")
-    cut, n = re.subn(r'"signatures": \[\n\s*\{\n\s*"role": "reviewer",.*?\n\s*\}\n\s*\]', '"signatures": []', text,
-                     count=1, flags=re.S)
-    assert n == 1
-    path.write_text(cut, encoding="utf-8")
-    entries = json.loads(text)["audit"]
-    number = next(i for i, e in enumerate(entries, start=1) if e["action"] == "signed")
-    return path, f"audit entry {number} records a signature (reviewer Ines Varga, {entries[number - 1]['time_utc']})"
-
-
-def pdf_text(path: Path) -> str:
-    document = pdfium.PdfDocument(str(path))
-    try:
-        text = " ".join(document[i].get_textpage().get_text_range() for i in range(len(document)))
-    finally:
-        document.close()
-    return " ".join(unicodedata.normalize("NFKC", text).replace("\u00a0", " ").split())
+    return path, cut_out_reviewer_signature(path, "Ines Varga")
 
 
 def test_signing_over_a_removed_signature_needs_a_reason_and_the_problem_stays(tmp_path) -> None:
@@ -77,7 +59,7 @@ def test_signing_over_a_removed_signature_needs_a_reason_and_the_problem_stays(t
     record = tmp_path / "record.pdf"
     printed = run_cli("quantify", str(path), "--report", str(record))
     assert printed.returncode == 1, printed.stdout + printed.stderr  # the record is not intact
-    text = pdf_text(record)
+    text = printed_text(record)
     assert f"Signed although the run's record is NOT intact; reason: {REASON}" in text
     assert "NOT verified" in text and "The record was NOT intact when signed" in text
 

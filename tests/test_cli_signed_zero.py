@@ -9,32 +9,22 @@ y = 5 + 10·x counts per mg/L, so each %RE is zero up to the fit's binary round-
 from __future__ import annotations
 
 import re
-import subprocess
-import sys
-from pathlib import Path
 
 import openpyxl
-import pypdfium2
 
+from tests.cli_runs import run_cli
 from tests.io.helpers import ROOT
+from tests.printed import printed_text
 from tests.test_cli_export_digits import sheet_rows
 
 COPPER = "Standard id,Concentration (mg/L),Response\n" + "".join(
     f"Cu{c}-{i},{c},{5 + 10 * c}\n" for c in (1, 2, 4, 8, 16, 32) for i in (1, 2))
 
 
-def run_cli(*args: str) -> None:
-    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", *args], capture_output=True, text=True,
-                         cwd=ROOT, timeout=300)
+def quantify(*args: str) -> None:
+    """``curvewright quantify ARGS`` run as a person runs it; it must succeed."""
+    out = run_cli("quantify", *args)
     assert out.returncode == 0, out.stderr
-
-
-def record_text(path: Path) -> str:
-    pdf = pypdfium2.PdfDocument(path)
-    try:
-        return " ".join(" ".join(pdf[i].get_textpage().get_text_range().split()) for i in range(len(pdf)))
-    finally:
-        pdf.close()
 
 
 def shown_in_spreadsheet(value: float, number_format: str) -> str:
@@ -63,9 +53,9 @@ def relative_errors(book: openpyxl.Workbook, sheet: str) -> dict[str, str]:
 
 
 def test_a_relative_error_that_rounds_to_zero_has_no_sign(tmp_path) -> None:
-    run_cli(str(ROOT / "sample_runs" / "zinc_emission_quadratic.json"), "--export", str(tmp_path / "zn.xlsx"),
+    quantify(str(ROOT / "sample_runs" / "zinc_emission_quadratic.json"), "--export", str(tmp_path / "zn.xlsx"),
             "--report", str(tmp_path / "zn.pdf"))
-    record = record_text(tmp_path / "zn.pdf")
+    record = printed_text(tmp_path / "zn.pdf")
     # the record's standards table: id, level, replicate, nominal, response, back-calculated, %RE, tolerance
     assert re.search(r"Zn-8a S8 1 10 11391\.5 10\.0 0\.0 20 yes", record), record
     assert re.search(r"Zn-2a S2 1 1 1476\.1 0\.997 -0\.3 30 yes", record), record  # a sign where digits show
@@ -81,9 +71,9 @@ def test_round_off_on_an_exact_line_reads_as_zero_either_side(tmp_path) -> None:
     std, smp = tmp_path / "copper.csv", tmp_path / "digests.csv"
     std.write_text(COPPER, encoding="utf-8")
     smp.write_text("Sample,Response\nDigest 1,125\n", encoding="utf-8")
-    run_cli("--standards", str(std), "--samples", str(smp), "--analyte", "copper", "--model", "linear", "--weighting", "none",
+    quantify("--standards", str(std), "--samples", str(smp), "--analyte", "copper", "--model", "linear", "--weighting", "none",
             "--export", str(tmp_path / "cu.xlsx"), "--report", str(tmp_path / "cu.pdf"))
-    record = record_text(tmp_path / "cu.pdf")
+    record = printed_text(tmp_path / "cu.pdf")
     # id, replicate, nominal, response, back-calculated, %RE, tolerance, within limits
     rows = re.findall(r"(Cu\d+-\d) (\d) (\d+) (\d+) (\S+) (\S+) \d+ yes", record)
     assert len(rows) == 12, record

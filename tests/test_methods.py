@@ -5,7 +5,6 @@ from __future__ import annotations
 
 import json
 import subprocess
-import sys
 from pathlib import Path
 
 import jsonschema
@@ -16,6 +15,7 @@ from curvewright.core.run import RunError
 from curvewright.core.run_analysis import analyse_run
 from curvewright.io import run_edits
 from curvewright.io.run_document import loads_run, dumps_run, open_run, save_run
+from tests.cli_runs import run_cli
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO_METHOD = ROOT / "sample_runs" / "methods" / "demo_nitrate_uv_method.json"
@@ -23,8 +23,7 @@ NITRATE = ROOT / "sample_runs" / "nitrate_water_linear.json"
 
 
 def cli(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True, cwd=ROOT,
-                          timeout=300)
+    return run_cli(*args)
 
 
 def curved_tables(tmp_path: Path) -> tuple[Path, Path]:

@@ -72,6 +72,39 @@ def make_window(qtbot, tmp_path, settings):
     qtbot.wait(10)
 
 
+@pytest.fixture
+def import_csv(qtbot, tmp_path, monkeypatch):
+    """Import tables into a window as an analyst does: ``import_csv(window, standards=TEXT, samples=TEXT)``
+    writes each table as ``KIND.csv`` with CRLF line ends, as a spreadsheet saves it, imports it through
+    the window's import command with its preview accepted as shown, in the order given, and waits until
+    the run with all of them is analysed and shown."""
+    from curvewright.app import main_window
+
+    monkeypatch.setattr(main_window.ImportDialog, "exec", lambda self: main_window.ImportDialog.DialogCode.Accepted)
+
+    def imported(window, **tables: str) -> None:  # type: ignore[no-untyped-def]
+        for kind, text in tables.items():
+            path = tmp_path / f"{kind}.csv"
+            path.write_bytes(text.replace("\n", "\r\n").encode())
+            assert window.import_table(kind, path=str(path))
+            settle(qtbot, window)
+        window.session.wait_for_analysis()
+        settle(qtbot, window)
+
+    return imported
+
+
+@pytest.fixture
+def save_in_tmp_path(monkeypatch, tmp_path) -> Path:
+    """Every "save as" file dialog answered with the name it suggests, in ``tmp_path`` (returned), as an
+    analyst who accepts the suggested name in that folder."""
+    from PySide6.QtWidgets import QFileDialog
+
+    monkeypatch.setattr(QFileDialog, "getSaveFileName",
+                        lambda parent, caption, suggested="", *a, **k: (str(tmp_path / Path(suggested).name), ""))
+    return tmp_path
+
+
 def settle(qtbot, window) -> None:
     """Wait until the latest edit has been analysed and shown."""
     session = window.session
@@ -160,6 +193,34 @@ def type_keys(qtbot, widget, key, modifiers=None) -> None:  # type: ignore[no-un
         qtbot.keyClick(widget, key, modifiers)
     for held in (Qt.Key.Key_Control, Qt.Key.Key_Shift, Qt.Key.Key_Alt):
         qtbot.keyRelease(widget, held, Qt.KeyboardModifier.NoModifier)
+
+
+def paste_from_menu(qtbot, window, view, text: str) -> None:  # type: ignore[no-untyped-def]
+    """Put ``text`` on the clipboard and paste it into ``view`` with Edit → Paste, as the analyst does;
+    then wait until the run is analysed and shown."""
+    from PySide6.QtGui import QGuiApplication
+
+    view.setFocus()
+    QGuiApplication.clipboard().setText(text)
+    window.actions_by_name["paste"].trigger()
+    settle(qtbot, window)
+
+
+def open_cell_editor(qtbot, window, view, index):  # type: ignore[no-untyped-def]
+    """Click the cell at ``index`` of ``view`` in ``window`` and open its editor with F2, as the analyst
+    does; the editor, which has the keyboard focus."""
+    from PySide6.QtCore import Qt
+    from PySide6.QtWidgets import QApplication
+
+    window.activateWindow()
+    qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
+    view.scrollTo(index)
+    qtbot.mouseClick(view.viewport(), Qt.MouseButton.LeftButton, pos=view.visualRect(index).center())
+    assert view.currentIndex() == index
+    type_keys(qtbot, view, Qt.Key.Key_F2)
+    editor = QApplication.focusWidget()
+    assert editor is not view and editor.parent() is view.viewport(), "F2 did not open the cell's editor"
+    return editor
 
 
 class InMemoryRecord:

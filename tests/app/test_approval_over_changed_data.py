@@ -4,11 +4,10 @@ does not cover the current data (and that it still locks the run), not the plain
 
 from __future__ import annotations
 
-import subprocess
-import sys
 from pathlib import Path
 
 from tests.app.conftest import ROOT, settle
+from tests.cli_runs import run_cli
 
 NITRATE = ROOT / "sample_runs" / "nitrate_water_linear.json"
 
@@ -19,8 +18,7 @@ def _approved_then_edited(tmp_path: Path) -> Path:
     key = tmp_path / "lab.key"
     for args in (("keys", "new", "--private", str(key), "--public", str(tmp_path / "lab.pub")),
                  ("sign", str(path), "--role", "approver", "--analyst", "Tomas Reyes", "--key", str(key))):
-        done = subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                              cwd=ROOT, timeout=300)
+        done = run_cli(*args)
         assert done.returncode == 0, done.stdout + done.stderr
     text = path.read_text(encoding="utf-8")
     edited = text.replace('"value": 0.1008,', '"value": 0.1108,', 1).replace('"text": "0.1008"', '"text": "0.1108"', 1)

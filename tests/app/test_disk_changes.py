@@ -5,22 +5,31 @@ said once."""
 from __future__ import annotations
 
 import shutil
-import subprocess
-import sys
 
 from PySide6.QtWidgets import QFileDialog, QMessageBox
 
 from curvewright.app import standards_model as sm
 from curvewright.io.run_document import open_run
-from tests.app.conftest import DEMOS, ROOT, settle
+from tests.app.conftest import DEMOS, settle
+from tests.cli_runs import run_cli
 
 
 def record_an_export_from_another_process(path, tmp_path) -> None:
     """What a colleague's command does to the file: append an export entry to its audit trail."""
-    done = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", str(path), "--export",
-                           str(tmp_path / "colleague.xlsx"), "--record"], capture_output=True, text=True, cwd=ROOT,
-                          timeout=300)
+    done = run_cli("quantify", str(path), "--export", str(tmp_path / "colleague.xlsx"), "--record")
     assert done.returncode in (0, 1), done.stderr
+
+
+def edited_demo_copy(make_window, qtbot, tmp_path):  # type: ignore[no-untyped-def]
+    """A copy of the first demo run (``tmp_path/run.json``) open in a window, standard 4's response typed
+    over and not saved: the copy and the window."""
+    path = tmp_path / "run.json"
+    shutil.copy(DEMOS[0], path)
+    window = make_window(path)
+    model = window.standards_model
+    assert model.setData(model.index(3, sm.RESP), "0.2037")
+    settle(qtbot, window)
+    return path, window
 
 
 def test_a_file_changed_on_disk_is_offered_for_reload(make_window, qtbot, tmp_path, answer_dialogs) -> None:
@@ -40,12 +49,7 @@ def test_a_file_changed_on_disk_is_offered_for_reload(make_window, qtbot, tmp_pa
 
 def test_a_save_never_overwrites_entries_recorded_on_disk(make_window, qtbot, tmp_path, monkeypatch,
                                                          answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(DEMOS[0], path)
-    window = make_window(path)
-    model = window.standards_model
-    assert model.setData(model.index(3, sm.RESP), "0.2037")
-    settle(qtbot, window)
+    path, window = edited_demo_copy(make_window, qtbot, tmp_path)
     record_an_export_from_another_process(path, tmp_path)
     theirs = path.read_bytes()
     answer_dialogs["question"] = QMessageBox.StandardButton.No  # keep working on my version
@@ -64,12 +68,7 @@ def test_a_file_changed_outside_curvewright_is_overwritten_only_when_asked(make_
                                                                           answer_dialogs) -> None:
     """A change that records nothing (the same document laid out anew by a text editor) may be
     overwritten, after a question; its version is kept as .bak."""
-    path = tmp_path / "run.json"
-    shutil.copy(DEMOS[0], path)
-    window = make_window(path)
-    model = window.standards_model
-    assert model.setData(model.index(3, sm.RESP), "0.2037")
-    settle(qtbot, window)
+    path, window = edited_demo_copy(make_window, qtbot, tmp_path)
     theirs = path.read_bytes().replace(b"\n", b"\r\n")
     path.write_bytes(theirs)
     answer_dialogs["question"] = QMessageBox.StandardButton.Cancel

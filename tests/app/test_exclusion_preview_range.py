@@ -9,12 +9,11 @@ from __future__ import annotations
 import json
 import re
 import shutil
-import subprocess
-import sys
 from pathlib import Path
 
 from tests.app.conftest import ROOT, settle
 from tests.app.test_user_journeys import select_standard
+from tests.cli_runs import run_cli
 
 
 def preview_rows(prompt: str) -> dict[str, tuple[str, str]]:
@@ -30,16 +29,14 @@ def preview_rows(prompt: str) -> dict[str, tuple[str, str]]:
 
 def cli_range(path: Path) -> str:
     """The calibrated range ``quantify`` prints for the run at ``path``, as the program is run."""
-    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", str(path)], capture_output=True,
-                         text=True, cwd=ROOT, timeout=300)
+    out = run_cli("quantify", str(path))
     assert out.returncode == 0, out.stderr
     line = next(line for line in out.stdout.splitlines() if line.startswith("  calibrated range "))
     return line[len("  calibrated range "):].split(";")[0]
 
 
 def cli_json_range(path: Path) -> list[float]:
-    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", "--json", str(path)],
-                         capture_output=True, text=True, cwd=ROOT, timeout=300)
+    out = run_cli("quantify", "--json", str(path))
     assert out.returncode == 0, out.stderr
     return json.loads(out.stdout)["analytes"][0]["calibrated_range"]
 

@@ -7,25 +7,18 @@ the clipboard, select the cell, F2, Enter (pytest-qt, offscreen)."""
 from __future__ import annotations
 
 from PySide6.QtCore import Qt
-from PySide6.QtGui import QGuiApplication
 from PySide6.QtTest import QTest
 
 from curvewright.app import samples_model as smod
 from curvewright.app import standards_model as stmod
 from curvewright.io.audit_words import entry_words
-from tests.app.conftest import settle
+from tests.app.conftest import paste_from_menu, settle
+from tests.printed import printed_text
 
 STANDARDS = ("Conc\tResponse\n0.5\t0.0123\n1\t0.0248\n2.5\t0.0619\n5\t0.1248\n10\t0.2490\n20\t0.4975\n"
              "1234567\t0.61\n")
 SAMPLES = ("Sample\tType\tDilution\tNominal\tResponse\nQC-A\tQC\t1\t4.123456789\t0.1030\n"
            "R-1\tunknown\t1234567\t\t0.2\nR-3\tunknown\t1.125\t\t0.3\n")
-
-
-def _paste(window, qtbot, view, text: str) -> None:  # type: ignore[no-untyped-def]
-    view.setFocus()
-    QGuiApplication.clipboard().setText(text)
-    window.actions_by_name["paste"].trigger()
-    settle(qtbot, window)
 
 
 def _open_and_enter(window, qtbot, view, row: int, col: int) -> str:  # type: ignore[no-untyped-def]
@@ -42,9 +35,9 @@ def _open_and_enter(window, qtbot, view, row: int, col: int) -> str:  # type: ig
 
 
 def _fill(window, qtbot) -> None:  # type: ignore[no-untyped-def]
-    _paste(window, qtbot, window.standards_view, STANDARDS)
+    paste_from_menu(qtbot, window, window.standards_view, STANDARDS)
     window.left_tabs.setCurrentIndex(1)
-    _paste(window, qtbot, window.samples_view, SAMPLES)
+    paste_from_menu(qtbot, window, window.samples_view, SAMPLES)
 
 
 def test_enter_in_an_unchanged_cell_keeps_every_digit_and_asks_nothing(make_window, answer_dialogs, qtbot) -> None:
@@ -89,9 +82,9 @@ def test_a_real_change_is_recorded_with_its_full_values(make_window, answer_dial
 def test_a_decimal_comma_table_reads_back_what_its_editor_shows(make_window, answer_dialogs, qtbot, settings) -> None:
     settings.setValue("input/decimal_mark", ",")
     window = make_window(None)
-    _paste(window, qtbot, window.standards_view, STANDARDS.replace("0.", "0,").replace("2.5", "2,5"))
+    paste_from_menu(qtbot, window, window.standards_view, STANDARDS.replace("0.", "0,").replace("2.5", "2,5"))
     window.left_tabs.setCurrentIndex(1)
-    _paste(window, qtbot, window.samples_view, SAMPLES.replace(".", ","))
+    paste_from_menu(qtbot, window, window.samples_view, SAMPLES.replace(".", ","))
     run, asked = window.session.run, len(answer_dialogs.seen)
     assert _open_and_enter(window, qtbot, window.samples_view, 0, smod.NOMINAL) == "4,123456789"
     window.left_tabs.setCurrentIndex(0)
@@ -102,26 +95,16 @@ def test_a_decimal_comma_table_reads_back_what_its_editor_shows(make_window, ans
 
 
 def test_the_workbook_and_the_record_show_entered_values_in_full(make_window, answer_dialogs, qtbot, tmp_path,
-                                                                 monkeypatch) -> None:
+                                                                 save_in_tmp_path) -> None:
     """The dilution factor and the nominal value an analyst entered are printed as entered in the
     record and formatted so in the workbook: 1234567, not 1.23457e+06; 4.123456789, not 4.12346."""
-    from pathlib import Path
-
     import openpyxl
-    import pypdfium2 as pdfium
-    from PySide6.QtWidgets import QFileDialog
 
-    monkeypatch.setattr(QFileDialog, "getSaveFileName",
-                        lambda parent, caption, suggested="", *a, **k: (str(tmp_path / Path(suggested).name), ""))
     window = make_window(None)
     _fill(window, qtbot)
     window.actions_by_name["export-record"].trigger()
     settle(qtbot, window)
-    pdf = pdfium.PdfDocument(str(next(tmp_path.glob("*.pdf"))))
-    try:
-        text = " ".join(" ".join(pdf[i].get_textpage().get_text_range() for i in range(len(pdf))).split())
-    finally:
-        pdf.close()
+    text = printed_text(next(tmp_path.glob("*.pdf")))
     samples = text[text.index("Samples – analyte 1 Sample"):]
     assert "R-1 unknown 1 1234567 " in samples, samples[:400]
     # the standards as entered (the lowest level fails its limits here, so the range is narrowed to the highest)

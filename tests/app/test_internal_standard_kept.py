@@ -8,28 +8,20 @@ kept. The standards table (which has an IS column) keeps it the same way."""
 from __future__ import annotations
 
 from PySide6.QtCore import Qt
-from PySide6.QtWidgets import QApplication
 
 from curvewright.app import results_model as rm
 from curvewright.app import samples_model as smp
 from curvewright.app import standards_model as sm
 from curvewright.io.audit_words import audit_rows
 from curvewright.io.result_tables import display_number
-from tests.app.conftest import DEMOS, settle, type_keys
+from tests.app.conftest import DEMOS, open_cell_editor, settle, type_keys
 
 VELTAPRINE = next(p for p in DEMOS if "veltaprine" in p.stem)  # samples and standards with IS responses
 
 
 def retype(qtbot, window, view, index, text: str) -> None:  # type: ignore[no-untyped-def]
     """Click the cell, open its editor with F2, type ``text`` over it and press Enter."""
-    window.activateWindow()
-    qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
-    view.scrollTo(index)
-    qtbot.mouseClick(view.viewport(), Qt.MouseButton.LeftButton, pos=view.visualRect(index).center())
-    assert view.currentIndex() == index
-    type_keys(qtbot, view, Qt.Key.Key_F2)
-    editor = QApplication.focusWidget()
-    assert editor is not view and editor.parent() is view.viewport(), "F2 did not open the cell's editor"
+    editor = open_cell_editor(qtbot, window, view, index)
     editor.selectAll()
     qtbot.keyClicks(editor, text)
     type_keys(qtbot, editor, Qt.Key.Key_Return)

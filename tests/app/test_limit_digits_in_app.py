@@ -4,29 +4,18 @@ them; invented data, the same tables as tests/test_cli_limit_digits.py)."""
 
 from __future__ import annotations
 
-from pathlib import Path
-
-from tests.app.conftest import settle
 from tests.test_cli_limit_digits import SAMPLES, STANDARDS
 
 
-def test_recovery_and_relative_error_in_the_app_tables(make_window, settings, qtbot, tmp_path: Path, monkeypatch,
-                                                        answer_dialogs) -> None:
+def test_recovery_and_relative_error_in_the_app_tables(make_window, settings, import_csv, answer_dialogs) -> None:
     from PySide6.QtCore import Qt
 
-    from curvewright.app import main_window, results_model, standards_model
+    from curvewright.app import results_model, standards_model
 
-    monkeypatch.setattr(main_window.ImportDialog, "exec", lambda self: main_window.ImportDialog.DialogCode.Accepted)
     settings.setValue("defaults/profile", "ich-m10-chromatographic")  # a new run's profile, as last chosen
     window = make_window(None)
     assert window.session.run.settings.acceptance_profile == "ich-m10-chromatographic"
-    for kind, text in (("standards", STANDARDS), ("samples", SAMPLES)):
-        path = tmp_path / f"{kind}.csv"
-        path.write_bytes(text.replace("\n", "\r\n").encode())
-        assert window.import_table(kind, path=str(path))
-        settle(qtbot, window)
-    window.session.wait_for_analysis()
-    settle(qtbot, window)
+    import_csv(window, standards=STANDARDS, samples=SAMPLES)
 
     model = window.results_model
     ids = {model.data(model.index(r, 0), Qt.ItemDataRole.DisplayRole): r for r in range(model.rowCount())}

@@ -177,6 +177,14 @@ def _one_refusal(answer_dialogs, forms_opened, what: str) -> str:
     return text
 
 
+def _refused_unchanged(qtbot, window, run, answer_dialogs, forms_opened, what: str) -> str:  # type: ignore[no-untyped-def]
+    """:func:`_one_refusal` of ``what``, the window's run still ``run``, and the window settled."""
+    text = _one_refusal(answer_dialogs, forms_opened, what)
+    assert window.session.run is run
+    settle(qtbot, window)
+    return text
+
+
 @pytest.mark.parametrize("action, what", [
     ("settings", "change the run settings"),
     ("rename-run", "change the run's name, instrument or description"),
@@ -236,9 +244,8 @@ def test_the_name_and_units_button_of_a_locked_run_refuses_before_its_form(
     window = approved_window
     run = window.session.run
     qtbot.mouseClick(window.analyte_button, Qt.MouseButton.LeftButton)
-    _one_refusal(answer_dialogs, forms_opened, f"change the name or units of {window.current_analyte()}")
-    assert window.session.run is run
-    settle(qtbot, window)
+    _refused_unchanged(qtbot, window, run, answer_dialogs, forms_opened,
+                       f"change the name or units of {window.current_analyte()}")
 
 
 def test_choosing_another_model_for_a_locked_run_is_refused_before_its_reason_is_asked(
@@ -253,9 +260,8 @@ def test_choosing_another_model_for_a_locked_run_is_refused_before_its_reason_is
                if table.item(r, 0).data(Qt.ItemDataRole.UserRole) != (recommended.model.value, recommended.weighting.value))
     table.selectRow(row)
     qtbot.mouseClick(window.evidence_panel.use_button, Qt.MouseButton.LeftButton)
-    _one_refusal(answer_dialogs, forms_opened, f"choose the model for {window.current_analyte()}")
-    assert window.session.run is run
-    settle(qtbot, window)
+    _refused_unchanged(qtbot, window, run, answer_dialogs, forms_opened,
+                       f"choose the model for {window.current_analyte()}")
 
 
 @pytest.mark.parametrize("tab", [0, 1])
@@ -273,10 +279,9 @@ def test_pasting_into_a_locked_run_is_refused_before_the_preview(
     block = ("Conc\tResponse\n0.5\t0.051\n1.0\t0.102\n" if tab == 0 else "Sample\tResponse\nLake 9\t0.31\nLake 10\t0.29\n")
     QGuiApplication.clipboard().setText(block)
     type_keys(qtbot, view, Qt.Key.Key_V, Qt.KeyboardModifier.ControlModifier)  # the paste shortcut
-    _one_refusal(answer_dialogs, forms_opened, f"paste into the {('standards', 'samples')[tab]} table")
+    _refused_unchanged(qtbot, window, run, answer_dialogs, forms_opened,
+                       f"paste into the {('standards', 'samples')[tab]} table")
     assert answer_dialogs.paste_dialogs == []
-    assert window.session.run is run
-    settle(qtbot, window)
 
 
 def test_marking_anchor_points_and_removing_a_sample_of_a_locked_run_ask_nothing_first(
@@ -286,13 +291,12 @@ def test_marking_anchor_points_and_removing_a_sample_of_a_locked_run_ask_nothing
     window.left_tabs.setCurrentIndex(0)
     _click(qtbot, window.standards_view, window.standards_model.index(1, sm.ID))
     window.actions_by_name["anchor"].trigger()
-    _one_refusal(answer_dialogs, forms_opened, f"mark anchor points of {window.current_analyte()}")
+    _refused_unchanged(qtbot, window, run, answer_dialogs, forms_opened,
+                       f"mark anchor points of {window.current_analyte()}")
 
     answer_dialogs.seen.clear()
     window.left_tabs.setCurrentIndex(1)
     sample = window.samples_model.samples[0]
     _click(qtbot, window.samples_view, window.samples_model.index(0, 0))
     window.actions_by_name["remove-row"].trigger()
-    _one_refusal(answer_dialogs, forms_opened, f"remove sample {sample.id}")
-    assert window.session.run is run
-    settle(qtbot, window)
+    _refused_unchanged(qtbot, window, run, answer_dialogs, forms_opened, f"remove sample {sample.id}")

@@ -7,27 +7,18 @@ from __future__ import annotations
 import re
 from pathlib import Path
 
-from tests.app.conftest import settle
 from tests.test_cli_notation import PYTHON_EXPONENT, TRACE_SAMPLES, TRACE_STANDARDS
 
 NBSP = "\u00a0"
 
 
-def test_results_and_standards_tabs_write_tiny_values_with_an_exponent(make_window, qtbot, tmp_path: Path, monkeypatch,
-                                                                      answer_dialogs) -> None:
+def test_results_and_standards_tabs_write_tiny_values_with_an_exponent(make_window, import_csv, answer_dialogs) -> None:
     from PySide6.QtCore import Qt
 
-    from curvewright.app import main_window, results_model, standards_model
+    from curvewright.app import results_model, standards_model
 
-    monkeypatch.setattr(main_window.ImportDialog, "exec", lambda self: main_window.ImportDialog.DialogCode.Accepted)
     window = make_window(None)
-    for kind, text in (("standards", TRACE_STANDARDS), ("samples", TRACE_SAMPLES)):
-        path = tmp_path / f"{kind}.csv"
-        path.write_bytes(text.replace("\n", "\r\n").encode())
-        assert window.import_table(kind, path=str(path))
-        settle(qtbot, window)
-    window.session.wait_for_analysis()
-    settle(qtbot, window)
+    import_csv(window, standards=TRACE_STANDARDS, samples=TRACE_SAMPLES)
     display = Qt.ItemDataRole.DisplayRole
 
     results = window.results_view.table.model()

@@ -8,8 +8,6 @@ import csv
 import io
 import json
 import re
-import subprocess
-import sys
 import unicodedata
 
 import openpyxl
@@ -20,7 +18,8 @@ from curvewright.app import results_model as rm
 from curvewright.core.run_analysis import analyse_run
 from curvewright.io.report import PrintedTable, build_report, evidence_table
 from curvewright.io.run_document import open_run
-from tests.app.conftest import DEMOS, ROOT
+from tests.app.conftest import DEMOS
+from tests.cli_runs import run_cli
 
 
 def squeeze(text: str) -> str:
@@ -34,8 +33,7 @@ def test_every_output_reads_one_analysis(demo, make_window, tmp_path) -> None:
     engine = analyse_run(open_run(demo).run)
     workbook, table, record = tmp_path / "r.xlsx", tmp_path / "r.csv", tmp_path / "r.pdf"
     commands = (["--json"], ["--export", str(workbook), "--report", str(record)], ["--export", str(table)], [])
-    outputs = [subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", str(demo), *extra],
-                              capture_output=True, text=True, cwd=ROOT, timeout=300) for extra in commands]
+    outputs = [run_cli("quantify", str(demo), *extra) for extra in commands]
     for out in outputs:
         assert out.returncode == (0 if engine.accepted else 1), out.stderr
     data = json.loads(outputs[0].stdout)

@@ -8,11 +8,9 @@ the analysis's account of it give the same reason."""
 from __future__ import annotations
 
 from PySide6.QtCore import Qt
-from PySide6.QtWidgets import QApplication
 
-from curvewright.app import results_model as rm
 from curvewright.app import samples_model as smp
-from tests.app.conftest import settle, type_keys
+from tests.app.conftest import open_cell_editor, settle, type_keys
 from tests.app.test_paste import type_paste
 from tests.app.test_paste_grouped import GROUPED
 
@@ -21,17 +19,7 @@ SAMPLES = "Sample\tArea\nU-1\t7.410,6\nU-1\t7.388,2\nU-2\t30.115,0\n"
 
 def open_editor(qtbot, window, row: int):  # type: ignore[no-untyped-def]
     """Click the sample's Responses cell and open its editor with F2, as the analyst does."""
-    view, model = window.samples_view, window.samples_model
-    window.activateWindow()
-    qtbot.waitUntil(lambda: QApplication.activeWindow() is window)
-    index = model.index(row, smp.RESPONSES)
-    view.scrollTo(index)
-    qtbot.mouseClick(view.viewport(), Qt.MouseButton.LeftButton, pos=view.visualRect(index).center())
-    assert view.currentIndex() == index
-    type_keys(qtbot, view, Qt.Key.Key_F2)
-    editor = QApplication.focusWidget()
-    assert editor is not view and editor.parent() is view.viewport(), "F2 did not open the cell's editor"
-    return editor
+    return open_cell_editor(qtbot, window, window.samples_view, window.samples_model.index(row, smp.RESPONSES))
 
 
 def test_pasted_replicates_keep_trimmed_text_and_an_unchanged_cell_is_not_refused(
@@ -94,10 +82,8 @@ def test_a_pasted_standard_entered_again_unchanged_is_not_refused(
     run, asked = session.run, len(answer_dialogs.seen)
     view, model = window.standards_view, window.standards_model
     index = model.index(0, sm.RESP)
-    qtbot.mouseClick(view.viewport(), Qt.MouseButton.LeftButton, pos=view.visualRect(index).center())
-    type_keys(qtbot, view, Qt.Key.Key_F2)
-    editor = QApplication.focusWidget()
-    assert editor is not view and editor.text() == "1.234,5"
+    editor = open_cell_editor(qtbot, window, view, index)
+    assert editor.text() == "1.234,5"
     type_keys(qtbot, editor, Qt.Key.Key_Return)
     settle(qtbot, window)
     assert session.run is run and len(answer_dialogs.seen) == asked

@@ -5,8 +5,6 @@ read back page by page. The pages are kept under ``test-artefacts/record/`` for 
 from __future__ import annotations
 
 import shutil
-import subprocess
-import sys
 import unicodedata
 from pathlib import Path
 
@@ -22,6 +20,7 @@ from curvewright.io.report import FigureSlot, build_report
 from curvewright.io.run_document import open_run
 from tests.app.conftest import ROOT, settle
 from tests.app.test_record_pdf import ARTEFACTS, save_preview, text_of
+from tests.cli_runs import run_cli
 
 CYTOKINE = ROOT / "sample_runs" / "cytokine_serum_4pl.json"
 VOLATILES = ROOT / "sample_runs" / "volatiles_water_average_rf.json"
@@ -85,8 +84,7 @@ def test_the_record_exported_from_the_app_says_which_standards_are_anchor_points
 def test_the_record_has_a_figure_for_each_standard_addition_series(tmp_path) -> None:
     copy = Path(shutil.copy(VOLATILES, tmp_path / VOLATILES.name))
     pdf_path = tmp_path / "volatiles.pdf"
-    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", str(copy), "--report", str(pdf_path)],
-                         capture_output=True, text=True, cwd=ROOT, timeout=600)
+    out = run_cli("quantify", str(copy), "--report", str(pdf_path), timeout=600)
     assert out.returncode == 0, out.stderr
     result = analyse_run(open_run(VOLATILES).run)
     series = [(a, s) for a in result.analytes for s in a.additions]

@@ -10,8 +10,6 @@ from __future__ import annotations
 
 import re
 import shutil
-import subprocess
-import sys
 import unicodedata
 from functools import lru_cache
 from pathlib import Path
@@ -26,6 +24,7 @@ from curvewright.core.run_analysis import analyse_run
 from curvewright.io.report import PrintedTable, build_report
 from curvewright.io.run_document import open_run, save_run
 from tests.app.conftest import in_memory_record
+from tests.cli_runs import run_cli
 from tests.io.helpers import DEMO_RUNS, ICP_ELEMENTS, ROOT, many_element_run
 
 PRINTABLE_MARGIN_PT = 8 / 25.4 * 72
@@ -47,8 +46,7 @@ def write_record(document: Path, folder: Path) -> Path:
     copy = folder / document.name
     shutil.copyfile(document, copy)
     pdf = folder / (document.stem + ".pdf")
-    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", str(copy), "--report", str(pdf)],
-                         capture_output=True, text=True, cwd=ROOT, timeout=600)
+    out = run_cli("quantify", str(copy), "--report", str(pdf), timeout=600)
     assert out.returncode == 0, out.stderr
     return pdf
 

@@ -11,7 +11,7 @@ from pathlib import Path
 
 import openpyxl
 import pypdfium2 as pdfium
-from PySide6.QtWidgets import QDialog, QFileDialog
+from PySide6.QtWidgets import QDialog
 
 from curvewright.app import dialogs
 from tests.app.conftest import DEMOS, settle
@@ -36,10 +36,8 @@ def _between(text: str, start: str, end: str) -> str:
 
 
 def test_each_person_is_named_in_their_role(make_window, answer_dialogs, qtbot, tmp_path, settings,
-                                            monkeypatch) -> None:
+                                            monkeypatch, save_in_tmp_path) -> None:
     monkeypatch.setattr(dialogs.SignDialog, "exec", lambda self: QDialog.DialogCode.Accepted)
-    monkeypatch.setattr(QFileDialog, "getSaveFileName",
-                        lambda parent, caption, suggested="", *a, **k: (str(tmp_path / Path(suggested).name), ""))
     run_file = tmp_path / "nitrate.json"
     shutil.copyfile(NITRATE, run_file)
     window = None

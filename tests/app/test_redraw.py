@@ -103,8 +103,8 @@ def needed(view: FittedTableView, text: str) -> int:
     return view.fontMetrics().horizontalAdvance(text)
 
 
-def test_a_short_table_is_fitted_to_every_row(qtbot) -> None:
-    texts = ["a"] * (FIT_EVERY_ROW_UP_TO - 1) + ["a much longer sample name, far below the rows in view"]
+def fitted_on_screen(qtbot, texts: list[str]) -> FittedTableView:  # type: ignore[no-untyped-def]
+    """A 400 × 200 table view of one column of ``texts``, shown, with its columns fitted."""
     view = FittedTableView()
     qtbot.addWidget(view)
     view.setModel(table_of(texts))
@@ -112,19 +112,19 @@ def test_a_short_table_is_fitted_to_every_row(qtbot) -> None:
     view.show()
     qtbot.waitExposed(view)
     fit_columns(view)
+    return view
+
+
+def test_a_short_table_is_fitted_to_every_row(qtbot) -> None:
+    texts = ["a"] * (FIT_EVERY_ROW_UP_TO - 1) + ["a much longer sample name, far below the rows in view"]
+    view = fitted_on_screen(qtbot, texts)
     assert view.columnWidth(0) >= needed(view, texts[-1])
 
 
 def test_a_long_table_widens_as_wider_rows_scroll_into_view(qtbot) -> None:
     long_text = "a much longer sample name, far below the rows in view"
     texts = ["a"] * (5 * FIT_EVERY_ROW_UP_TO) + [long_text]
-    view = FittedTableView()
-    qtbot.addWidget(view)
-    view.setModel(table_of(texts))
-    view.resize(400, 200)
-    view.show()
-    qtbot.waitExposed(view)
-    fit_columns(view)
+    view = fitted_on_screen(qtbot, texts)
     assert view.columnWidth(0) < needed(view, long_text)  # fitted to the rows in view only
     view.scrollToBottom()
     assert view.columnWidth(0) >= needed(view, long_text)  # widened once the row is in view

@@ -9,16 +9,15 @@ earlier signatures (which does not say "No signatures yet.") say it in the same 
 from __future__ import annotations
 
 import json
-import unicodedata
 from pathlib import Path
 
 import openpyxl
-import pypdfium2 as pdfium
 from PySide6.QtWidgets import QDialog
 
 from curvewright.app import dialogs
-from tests.app.conftest import DEMOS, ROOT
+from tests.app.conftest import DEMOS
 from tests.cli_runs import run_cli
+from tests.printed import printed_pages
 
 NITRATE = next(p for p in DEMOS if p.name.startswith("nitrate"))
 REVIEWER = "Kim Quillfeather"  # an invented person
@@ -43,15 +42,6 @@ def signed_then_reviewer_removed(tmp_path: Path) -> tuple[Path, str, int]:
     return path, entry["time_utc"], number
 
 
-def pdf_text(path: Path) -> list[str]:
-    document = pdfium.PdfDocument(str(path))
-    try:
-        pages = [document[i].get_textpage().get_text_range() for i in range(len(document))]
-    finally:
-        document.close()
-    return [" ".join(unicodedata.normalize("NFKC", t).replace("\u00a0", " ").split()) for t in pages]
-
-
 def test_a_removed_reviewer_signature_is_told_alike_everywhere(
         make_window, qtbot, tmp_path, monkeypatch, answer_dialogs) -> None:
     path, time_utc, number = signed_then_reviewer_removed(tmp_path)
@@ -62,7 +52,7 @@ def test_a_removed_reviewer_signature_is_told_alike_everywhere(
     record, book = tmp_path / "record.pdf", tmp_path / "book.xlsx"
     done = run_cli("quantify", str(path), "--report", str(record), "--export", str(book))
     assert done.returncode == 1, done.stdout + done.stderr  # the record is not intact
-    first = pdf_text(record)[0]
+    first = printed_pages(record)[0]
     reviewer_row = first.split(" Reviewer ", 1)[1].split(" Approver ", 1)[0]  # the Run table's row
     assert reviewer_row.startswith(REVIEWER) and reviewer_row.endswith(f": NOT signed — {removed}")
     assert ", signed " not in reviewer_row  # never listed as having signed

@@ -9,6 +9,9 @@ import shutil
 import subprocess
 import sys
 import time
+from collections.abc import Iterator
+from contextlib import contextmanager
+from pathlib import Path
 
 from PySide6.QtWidgets import QFileDialog, QMessageBox
 
@@ -26,14 +29,34 @@ time.sleep(120)
 """
 
 
+def demo_copy(tmp_path: Path) -> Path:
+    """A copy of the first demo run, ``tmp_path/run.json``."""
+    path = tmp_path / "run.json"
+    shutil.copy(DEMOS[0], path)
+    return path
+
+
+@contextmanager
+def held_elsewhere(path: Path) -> Iterator[None]:
+    """``path`` held open by another Curvewright (a process holding its open marker) for the ``with``
+    block; that process is then killed, as a crash ends it, which leaves its marker behind."""
+    holder = subprocess.Popen([sys.executable, "-c", HOLDER, str(path)], cwd=ROOT, stdout=subprocess.PIPE, text=True)
+    try:
+        assert holder.stdout.readline().strip() == "holding"
+        yield
+    finally:
+        holder.kill()
+        holder.wait(timeout=60)
+        holder.stdout.close()
+
+
 def open_from_menu(window, monkeypatch, path) -> None:  # type: ignore[no-untyped-def]
     monkeypatch.setattr(QFileDialog, "getOpenFileName", lambda *a, **k: (str(path), ""))
     window.actions_by_name["open"].trigger()
 
 
 def test_a_run_open_in_another_window_is_brought_forward(make_window, tmp_path, monkeypatch, answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(DEMOS[0], path)
+    path = demo_copy(tmp_path)
     first = make_window(path)
     second = make_window(None)
     open_from_menu(second, monkeypatch, path)
@@ -43,11 +66,8 @@ def test_a_run_open_in_another_window_is_brought_forward(make_window, tmp_path, 
 
 def test_a_run_open_in_another_program_is_named_before_it_opens(make_window, tmp_path, monkeypatch,
                                                                 answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(DEMOS[0], path)
-    holder = subprocess.Popen([sys.executable, "-c", HOLDER, str(path)], cwd=ROOT, stdout=subprocess.PIPE, text=True)
-    try:
-        assert holder.stdout.readline().strip() == "holding"
+    path = demo_copy(tmp_path)
+    with held_elsewhere(path):
         window = make_window(None)
         answer_dialogs["question"] = QMessageBox.StandardButton.Cancel
         open_from_menu(window, monkeypatch, path)
@@ -57,20 +77,12 @@ def test_a_run_open_in_another_program_is_named_before_it_opens(make_window, tmp
         answer_dialogs["question"] = QMessageBox.StandardButton.Open  # open it anyway
         open_from_menu(window, monkeypatch, path)
         assert window.session.path == path
-    finally:
-        holder.kill()
-        holder.wait(timeout=60)
-        holder.stdout.close()
 
 
 def test_a_marker_left_by_a_crashed_program_is_ignored(make_window, tmp_path, monkeypatch, answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(DEMOS[0], path)
-    holder = subprocess.Popen([sys.executable, "-c", HOLDER, str(path)], cwd=ROOT, stdout=subprocess.PIPE, text=True)
-    assert holder.stdout.readline().strip() == "holding"
-    holder.kill()  # a crash: the marker stays behind
-    holder.wait(timeout=60)
-    holder.stdout.close()
+    path = demo_copy(tmp_path)
+    with held_elsewhere(path):
+        pass  # then a crash: the marker stays behind
     assert open_marker.marker_path(path).exists()
     window = make_window(None)
     open_from_menu(window, monkeypatch, path)
@@ -79,8 +91,7 @@ def test_a_marker_left_by_a_crashed_program_is_ignored(make_window, tmp_path, mo
 
 
 def test_a_marker_from_another_computer_counts_until_it_is_no_longer_refreshed(tmp_path) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(DEMOS[0], path)
+    path = demo_copy(tmp_path)
     open_marker.marker_path(path).write_text('{"name": "Ines Varga", "login": "ivarga", "host": "bench-pc-7", '
                                              '"pid": 4242, "opened_utc": "2026-12-03T09:15:00Z"}', encoding="utf-8")
     now = time.time()
@@ -89,23 +100,15 @@ def test_a_marker_from_another_computer_counts_until_it_is_no_longer_refreshed(t
 
 
 def test_a_run_open_in_another_program_given_at_start_up_is_named_first(make_window, tmp_path, answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(DEMOS[0], path)
-    holder = subprocess.Popen([sys.executable, "-c", HOLDER, str(path)], cwd=ROOT, stdout=subprocess.PIPE, text=True)
-    try:
-        assert holder.stdout.readline().strip() == "holding"
+    path = demo_copy(tmp_path)
+    with held_elsewhere(path):
         answer_dialogs["question"] = QMessageBox.StandardButton.Cancel
         window = make_window(path)  # as when the program is started with the run's file
         assert answer_dialogs.seen[-1][0] == "The run is open elsewhere" and window.session.path is None
-    finally:
-        holder.kill()
-        holder.wait(timeout=60)
-        holder.stdout.close()
 
 
 def test_a_closed_window_holds_nothing_open(make_window, tmp_path, monkeypatch, answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(DEMOS[0], path)
+    path = demo_copy(tmp_path)
     first = make_window(path)
     first.close()  # closed; the object lives on until it is deleted
     second = make_window(None)

@@ -6,44 +6,24 @@ File menu's actions, answered through the save dialog (pytest-qt, offscreen)."""
 
 from __future__ import annotations
 
-from pathlib import Path
 
 import openpyxl
-import pypdfium2 as pdfium
-from PySide6.QtGui import QGuiApplication
-from PySide6.QtWidgets import QFileDialog
 
 from curvewright.app import results_model as rm
-from tests.app.conftest import settle
+from tests.app.conftest import paste_from_menu, settle
+from tests.printed import printed_text
 
 STANDARDS = ("Conc\tResponse\n0.5\t0.0123\n0.5\t0.0127\n1\t0.0248\n1\t0.0251\n2.5\t0.0619\n2.5\t0.0622\n"
              "5\t0.1248\n5\t0.1239\n10\t0.2490\n10\t0.2502\n20\t0.4975\n20\t0.5010\n")
 SAMPLES = "Sample\tResponse\tWeight\tComment\nS1\t0.1\t1.02\tok\nS2\t\t1.01\t\nS3\t0.3\t0.98\tfoam\n"
 
 
-def _paste(window, qtbot, view, text: str) -> None:  # type: ignore[no-untyped-def]
-    view.setFocus()
-    QGuiApplication.clipboard().setText(text)
-    window.actions_by_name["paste"].trigger()
-    settle(qtbot, window)
-
-
-def _record_text(path: Path) -> str:
-    pdf = pdfium.PdfDocument(str(path))
-    try:
-        return "\n".join(pdf[i].get_textpage().get_text_range() for i in range(len(pdf)))
-    finally:
-        pdf.close()
-
-
 def test_a_sample_with_an_empty_response_is_listed_everywhere(make_window, answer_dialogs, qtbot, tmp_path,
-                                                              monkeypatch) -> None:
-    monkeypatch.setattr(QFileDialog, "getSaveFileName",
-                        lambda parent, caption, suggested="", *a, **k: (str(tmp_path / Path(suggested).name), ""))
+                                                              save_in_tmp_path) -> None:
     window = make_window(None)
-    _paste(window, qtbot, window.standards_view, STANDARDS)
+    paste_from_menu(qtbot, window, window.standards_view, STANDARDS)
     window.left_tabs.setCurrentIndex(1)
-    _paste(window, qtbot, window.samples_view, SAMPLES)
+    paste_from_menu(qtbot, window, window.samples_view, SAMPLES)
 
     results = window.results_model
     rows = {results.index(r, rm.SAMPLE).data(): r for r in range(results.rowCount())}
@@ -65,7 +45,7 @@ def test_a_sample_with_an_empty_response_is_listed_everywhere(make_window, answe
 
     window.actions_by_name["export-record"].trigger()
     settle(qtbot, window)
-    text = " ".join(_record_text(next(tmp_path.glob("*.pdf"))).split())  # cells wrap over lines
+    text = printed_text(next(tmp_path.glob("*.pdf")))  # cells wrap over lines
     table = text[text.index("Samples – analyte 1"):]
     row = table[table.index(" S2 unknown"):table.index(" S3 unknown")]
     assert "no response recorded" in row, row

@@ -5,7 +5,6 @@ entry records the problems, and the printed record shows both and still names th
 
 from __future__ import annotations
 
-import re
 import shutil
 
 from PySide6.QtCore import Qt
@@ -18,6 +17,7 @@ from curvewright.io.run_document import open_run, save_run
 from curvewright.io.signatures import sign
 from tests.app.conftest import DEMOS
 from tests.app.test_sign_dialog_verdict import record_text
+from tests.signed_runs import cut_out_reviewer_signature
 
 NITRATE = next(p for p in DEMOS if p.name.startswith("nitrate"))
 REASON = "Reviewer signature lost in a file transfer; data re-checked against the raw printout"
@@ -30,13 +30,7 @@ def reviewer_cut_out(tmp_path) -> tuple:  # type: ignore[no-untyped-def]
     shutil.copy(NITRATE, path)
     run = sign(open_run(path).run, "reviewer", identity_from("Ines Varga", "QA-7"))
     save_run(run, path)
-    text = path.read_text(encoding="utf-8")
-    cut, n = re.subn(r'"signatures": \[\n\s*\{\n\s*"role": "reviewer",.*?\n\s*\}\n\s*\]', '"signatures": []', text,
-                     count=1, flags=re.S)
-    assert n == 1
-    path.write_text(cut, encoding="utf-8")
-    number = next(i for i, e in enumerate(run.audit, start=1) if e.action == "signed")
-    return path, f"audit entry {number} records a signature (reviewer Ines Varga, {run.audit[number - 1].time_utc})"
+    return path, cut_out_reviewer_signature(path, "Ines Varga")
 
 
 def test_the_sign_dialog_shows_the_problems_and_signing_needs_a_kept_reason(

@@ -5,9 +5,7 @@ person signing in a second role is told so before signing, and the record says s
 from __future__ import annotations
 
 import shutil
-import unicodedata
 
-import pypdfium2 as pdfium
 from PySide6.QtCore import Qt
 from PySide6.QtTest import QTest
 from PySide6.QtWidgets import QDialog, QDialogButtonBox, QFileDialog
@@ -15,6 +13,7 @@ from PySide6.QtWidgets import QDialog, QDialogButtonBox, QFileDialog
 from curvewright.app import dialogs
 from curvewright.app import standards_model as sm
 from tests.app.conftest import DEMOS, settle
+from tests.printed import printed_text
 
 NITRATE = next(p for p in DEMOS if p.name.startswith("nitrate"))
 
@@ -23,22 +22,27 @@ def record_text(window, monkeypatch, path) -> str:  # type: ignore[no-untyped-de
     """File → Export calibration record, read back as a reader's PDF software gives its text."""
     monkeypatch.setattr(QFileDialog, "getSaveFileName", lambda *a, **k: (str(path), ""))
     window.actions_by_name["export-record"].trigger()
-    document = pdfium.PdfDocument(str(path))
-    try:
-        text = " ".join(document[i].get_textpage().get_text_range() for i in range(len(document)))
-    finally:
-        document.close()
-    return " ".join(unicodedata.normalize("NFKC", text).replace("\u00a0", " ").split())
+    return printed_text(path)
+
+
+def window_on_a_demo_copy(make_window, tmp_path):  # type: ignore[no-untyped-def]
+    """A window on a copy of the nitrate demo run, ``tmp_path/run.json``."""
+    path = tmp_path / "run.json"
+    shutil.copy(NITRATE, path)
+    return make_window(path)
+
+
+def misread_standard_4(window, qtbot) -> None:  # type: ignore[no-untyped-def]
+    """Standard 4's response typed over with three times its value (a wrong reading), and the run analysed."""
+    model = window.standards_model
+    assert model.setData(model.index(3, sm.RESP), str(float(model.index(3, sm.RESP).data()) * 3))
+    settle(qtbot, window)
 
 
 def test_approving_a_not_accepted_run_needs_a_reason_that_the_record_prints(
         make_window, qtbot, tmp_path, monkeypatch, answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(NITRATE, path)
-    window = make_window(path)
-    model = window.standards_model
-    assert model.setData(model.index(3, sm.RESP), str(float(model.index(3, sm.RESP).data()) * 3))  # a wrong reading
-    settle(qtbot, window)
+    window = window_on_a_demo_copy(make_window, tmp_path)
+    misread_standard_4(window, qtbot)
     assert not window.session.result.accepted
     shown = []
 
@@ -69,12 +73,8 @@ def test_approving_a_not_accepted_run_needs_a_reason_that_the_record_prints(
 
 def test_a_not_accepted_run_is_not_approved_without_the_confirmation(
         make_window, qtbot, tmp_path, monkeypatch, answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(NITRATE, path)
-    window = make_window(path)
-    model = window.standards_model
-    assert model.setData(model.index(3, sm.RESP), str(float(model.index(3, sm.RESP).data()) * 3))
-    settle(qtbot, window)
+    window = window_on_a_demo_copy(make_window, tmp_path)
+    misread_standard_4(window, qtbot)
 
     def press_ok(self) -> int:  # OK pressed as the dialog stands: refused, nothing signed
         ok = self.buttons.button(QDialogButtonBox.StandardButton.Ok)
@@ -88,9 +88,7 @@ def test_a_not_accepted_run_is_not_approved_without_the_confirmation(
 
 def test_one_person_in_a_second_role_is_told_and_the_record_says_so(
         make_window, qtbot, tmp_path, monkeypatch, answer_dialogs) -> None:
-    path = tmp_path / "run.json"
-    shutil.copy(NITRATE, path)
-    window = make_window(path)
+    window = window_on_a_demo_copy(make_window, tmp_path)
     assert window.session.result.accepted
     seen = []
 

@@ -5,8 +5,6 @@ y = 5 + 10·x counts per mg/L, so each %RE is zero up to the fit's binary round-
 
 from __future__ import annotations
 
-from pathlib import Path
-
 from PySide6.QtCore import Qt
 
 from tests.app.conftest import settle
@@ -14,18 +12,11 @@ from tests.app.test_user_journeys import select_standard
 from tests.test_cli_signed_zero import COPPER
 
 
-def test_a_relative_error_of_zero_has_no_sign_in_the_app(make_window, qtbot, tmp_path: Path, monkeypatch,
-                                                          answer_dialogs) -> None:
-    from curvewright.app import main_window, standards_model
+def test_a_relative_error_of_zero_has_no_sign_in_the_app(make_window, qtbot, import_csv, answer_dialogs) -> None:
+    from curvewright.app import standards_model
 
-    monkeypatch.setattr(main_window.ImportDialog, "exec", lambda self: main_window.ImportDialog.DialogCode.Accepted)
     window = make_window(None)
-    path = tmp_path / "copper.csv"
-    path.write_bytes(COPPER.replace("\n", "\r\n").encode())
-    assert window.import_table("standards", path=str(path))
-    settle(qtbot, window)
-    window.session.wait_for_analysis()
-    settle(qtbot, window)
+    import_csv(window, standards=COPPER)
     table = window.standards_model
 
     def relative_errors() -> list[str]:

@@ -6,18 +6,15 @@ dialog answered), the workbook and the record exported through the File menu (py
 
 from __future__ import annotations
 
-from pathlib import Path
 
 import openpyxl
-import pypdfium2 as pdfium
 from PySide6.QtCore import Qt
-from PySide6.QtGui import QGuiApplication
 from PySide6.QtTest import QTest
-from PySide6.QtWidgets import QFileDialog
 
 from curvewright.app import standards_model as sm
 from curvewright.app.standards_model import INVALID
-from tests.app.conftest import settle
+from tests.app.conftest import paste_from_menu, settle
+from tests.printed import printed_text
 
 STANDARDS = ("Conc\tResponse\n0.5\t0.0123\n0.5\t0.0127\n1\t0.0248\n1\t0.0251\n2.5\t0.0619\n2.5\t0.0622\n"
              "5\t0.1248\n5\t0.1239\n10\t0.2490\n10\t0.2502\n20\t0.4975\n20\t0.5010\n")
@@ -40,23 +37,10 @@ def _type_over(window, qtbot, row: int, col: int, text: str) -> None:  # type: i
     settle(qtbot, window)
 
 
-def _record_text(path: Path) -> str:
-    pdf = pdfium.PdfDocument(str(path))
-    try:
-        return " ".join(" ".join(pdf[i].get_textpage().get_text_range() for i in range(len(pdf))).split())
-    finally:
-        pdf.close()
-
-
 def test_standards_without_a_usable_value_say_so_everywhere(make_window, answer_dialogs, qtbot, tmp_path,
-                                                            monkeypatch) -> None:
-    monkeypatch.setattr(QFileDialog, "getSaveFileName",
-                        lambda parent, caption, suggested="", *a, **k: (str(tmp_path / Path(suggested).name), ""))
+                                                            save_in_tmp_path) -> None:
     window = make_window(None)
-    window.standards_view.setFocus()
-    QGuiApplication.clipboard().setText(STANDARDS)
-    window.actions_by_name["paste"].trigger()
-    settle(qtbot, window)
+    paste_from_menu(qtbot, window, window.standards_view, STANDARDS)
     _type_over(window, qtbot, 2, sm.RESP, "")
     _type_over(window, qtbot, 0, sm.CONC, "abc")
     _type_over(window, qtbot, 4, sm.CONC, "-2.5")
@@ -93,6 +77,6 @@ def test_standards_without_a_usable_value_say_so_everywhere(make_window, answer_
 
     window.actions_by_name["export-record"].trigger()
     settle(qtbot, window)
-    text = _record_text(next(tmp_path.glob("*.pdf")))
+    text = printed_text(next(tmp_path.glob("*.pdf")))
     for sid, reason in EXPECTED.items():
         assert f"{sid} (row {rows[sid] + 1}): {reason}" in text, sid

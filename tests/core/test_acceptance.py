@@ -8,6 +8,7 @@ import numpy as np
 import pytest
 
 import curvewright as cw
+from tests.core.verdicts import judged_alike
 
 
 def calibration_with_errors(level_errors: list[float]) -> cw.Calibration:
@@ -171,14 +172,7 @@ def test_a_screen_s_candidates_judged_together_get_the_verdicts_judged_one_by_on
         screen = cw.compare(x, y, weightings=("none", "1/x", "1/x^2", "1/y", "1/y^2"))
         cals = [c.calibration for c in screen.candidates]
         for profile in profiles:
-            together = profile.evaluate_all(cals)
-            assert len(together) == len(cals)
-            for cal, verdict in zip(cals, together, strict=True):
-                alone = profile.evaluate(cal)
-                assert (verdict.profile, verdict.passed, verdict.reasons) == (alone.profile, alone.passed, alone.reasons)
-                for field in ("passing", "judged", "tolerance_percent", "relative_error"):
-                    a, b = getattr(verdict, field), getattr(alone, field)
-                    assert a.dtype == b.dtype and a.tobytes() == b.tobytes() and not a.flags.writeable, field
+            for verdict in judged_alike(profile, cals):
                 outcomes.add(verdict.passed)
                 notes += sum(r.startswith("note:") for r in verdict.reasons)
     assert outcomes == {True, False} and notes > 0  # verdicts both ways, and failing ends among them

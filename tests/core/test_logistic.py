@@ -9,6 +9,7 @@ from scipy import optimize
 
 import curvewright as cw
 from curvewright.core.nonlinear_calibration import NonlinearCalibration
+from tests.core.verdicts import judged_alike
 
 # An invented sandwich immunoassay: 8 levels in duplicate from 1 to 600 pg/mL, optical density
 # rising from 0.05 to 2.8, 3 % relative scatter.
@@ -251,14 +252,7 @@ def test_verdicts_judged_together_are_the_verdicts_judged_one_by_one() -> None:
     outcomes = set()
     for name in ("ich-m10-ligand-binding", "ich-m10-chromatographic", "environmental"):
         profile = cw.load_profile(name)
-        together = profile.evaluate_all(cals)
-        assert len(together) == len(cals)
-        for cal, verdict in zip(cals, together, strict=True):
-            alone = profile.evaluate(cal)
-            assert (verdict.profile, verdict.passed, verdict.reasons) == (alone.profile, alone.passed, alone.reasons)
-            for field in ("passing", "judged", "tolerance_percent", "relative_error"):
-                a, b = getattr(verdict, field), getattr(alone, field)
-                assert a.tobytes() == b.tobytes() and not a.flags.writeable, field
+        together = judged_alike(profile, cals)
         assert not together[-1].judged[:2].any()
         outcomes |= {v.passed for v in together}
     assert outcomes == {True, False}  # verdicts both ways among them

@@ -19,6 +19,7 @@ from curvewright.core.trends import Baseline
 from curvewright.io.archive import ArchiveError, Today, content_hash, history, judge_run, open_archive
 from curvewright.io.archive import schema, store
 from curvewright.io.run_document import dumps_run, loads_run
+from tests.cli_runs import run_cli
 from tests.io.archive_runs import lead_run
 from tests.postgres_server import pg_url, postgres_server  # noqa: F401 - fixtures
 
@@ -414,8 +415,7 @@ def test_an_archive_of_schema_version_1_is_brought_up_to_date_and_still_files_ea
     later = tmp_path / "run_007_later.json"
     later.write_text(dumps_run(run_edits.exclude_standard(run, "lead", "Pb-2b", "bubble in the nebuliser",
                                                           user="a.tester")), encoding="utf-8")
-    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "archive", "add", str(later), "--to", str(folder)],
-                         capture_output=True, text=True, cwd=ROOT, timeout=300)
+    out = run_cli("archive", "add", str(later), "--to", str(folder))
     assert out.returncode == 2, out.stderr
     assert f"{later}: not filed: another version of this run is already filed: entry 1, 'Lead in water, run 007'" \
         in out.stderr

@@ -3,11 +3,12 @@
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import replace
 
 import pytest
 
-from curvewright.core.run import Reading, Sample, Standard
+from curvewright.core.run import Reading, RunError, Sample, Standard
 from curvewright.io import run_edits
 from curvewright.io.run_edits import ReasonRequired
 from tests.io.helpers import small_run
@@ -77,3 +78,20 @@ def test_a_sample_edit_among_many_records_that_sample_alone() -> None:
                                                   "old": target.run_order, "new": 77}]
     copies = tuple(replace(s) for s in run.samples)  # new objects, the same fields: nothing changed
     assert run_edits.update_samples(run, copies, "typed") is run
+
+
+def test_an_id_used_twice_is_refused_for_standards_and_samples_alike() -> None:
+    # the first id repeated going down the table is named, in the words of its table
+    run = small_run()
+    standards = run.analytes[0].standards
+    twice = (*standards[:3], replace(standards[3], id=standards[1].id), replace(standards[4], id=standards[0].id),
+             *standards[5:])
+    with pytest.raises(RunError, match=rf"^cobalt: standard id '{re.escape(standards[1].id)}' is used twice; each standard needs "
+                                       r"its own id\.$"):
+        run_edits.update_standards(run, "cobalt", twice, "typed")
+    samples = run.samples
+    assert len(samples) >= 2
+    with pytest.raises(RunError, match=rf"^sample id '{re.escape(samples[0].id)}' is used twice; each sample needs its own id\.$"):
+        run_edits.update_samples(run, (*samples, replace(samples[-1], id=samples[0].id)), "typed")
+    assert run_edits.repeated_id(["a", "b", "c"]) is None
+    assert run_edits.repeated_id(["a", "b", "b", "a"]) == "b"

@@ -12,14 +12,14 @@ from pathlib import Path
 import pytest
 
 from curvewright.io import run_document as doc
+from tests.cli_runs import run_cli
 from tests.io.helpers import DEMO_RUNS, ROOT, small_run
 
 
 def record_in_parallel(document: Path, out: Path, rounds: int) -> None:
     """``rounds`` times, two ``quantify --record`` commands started together on the same document."""
     def one(tag: str) -> subprocess.CompletedProcess:
-        return subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", str(document), "--export",
-                               str(out / f"{tag}.xlsx"), "--record"], capture_output=True, text=True, timeout=300, cwd=ROOT)
+        return run_cli("quantify", str(document), "--export", str(out / f"{tag}.xlsx"), "--record")
 
     with ThreadPoolExecutor(max_workers=2) as pool:
         for i in range(rounds):

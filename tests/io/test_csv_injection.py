@@ -5,8 +5,6 @@ from __future__ import annotations
 
 import csv
 import io
-import subprocess
-import sys
 from dataclasses import replace
 
 import pytest
@@ -16,7 +14,8 @@ from curvewright.io.csv_export import csv_text
 from curvewright.io.result_tables import Column, Table
 from curvewright.io.run_document import save_run
 from curvewright.io.safe_text import looks_like_formula
-from tests.io.helpers import ROOT, small_run
+from tests.cli_runs import run_cli
+from tests.io.helpers import small_run
 
 # (sample id as typed, what the CSV cell must hold)
 IDS = [
@@ -54,9 +53,8 @@ def test_exported_ids_never_split_a_record_or_start_a_formula(tmp_path, delimite
     document = tmp_path / "run.json"
     save_run(run_with_ids([typed for typed, _ in IDS]), document)
     out = tmp_path / "samples.csv"
-    result = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", str(document), "--export", str(out),
-                             "--csv-delimiter", delimiter, "--csv-decimal", decimal],
-                            capture_output=True, text=True, timeout=300, cwd=ROOT)
+    result = run_cli("quantify", str(document), "--export", str(out), "--csv-delimiter", delimiter, "--csv-decimal",
+                     decimal)
     assert result.returncode in (0, 1), result.stderr
     rows = read_back(out.read_bytes().decode("utf-8"), delimiter)
     header, records = rows[0], rows[1:]

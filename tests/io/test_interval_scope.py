@@ -2,14 +2,13 @@
 
 from __future__ import annotations
 
-import subprocess
-import sys
 import unicodedata
 
 import openpyxl
 from pypdf import PdfReader
 
 from curvewright.core.inverse import INTERVAL_SCOPE_NOTE
+from tests.cli_runs import run_cli
 from tests.io.helpers import ROOT
 
 ZINC = ROOT / "sample_runs" / "zinc_emission_quadratic.json"
@@ -17,10 +16,7 @@ ZINC = ROOT / "sample_runs" / "zinc_emission_quadratic.json"
 
 def test_workbook_and_record_say_the_interval_is_not_the_full_uncertainty(tmp_path) -> None:
     workbook, record = tmp_path / "results.xlsx", tmp_path / "record.pdf"
-    done = subprocess.run(
-        [sys.executable, "-m", "curvewright.cli", "quantify", str(ZINC), "--export", str(workbook), "--report", str(record)],
-        capture_output=True, text=True, cwd=ROOT,
-    )
+    done = run_cli("quantify", str(ZINC), "--export", str(workbook), "--report", str(record))
     assert done.returncode == 0, done.stderr
     samples = openpyxl.load_workbook(workbook)["Samples"]
     assert "Interval" in [c.value for c in samples[3]]

@@ -3,8 +3,6 @@
 from __future__ import annotations
 
 import csv
-import subprocess
-import sys
 from pathlib import Path
 
 import pytest
@@ -12,6 +10,7 @@ import pytest
 from curvewright.core.run_analysis import analyse_run
 from curvewright.io.result_tables import interval_words, samples_table, standards_table
 from curvewright.io.run_document import open_run
+from tests.cli_runs import run_cli
 from tests.io.helpers import ROOT
 
 DEMOS = ROOT / "sample_runs"
@@ -65,9 +64,7 @@ def test_anchor_points_are_not_judged_in_the_standards_table() -> None:
 
 def test_the_exported_samples_table_names_the_method_of_a_logistic_curve(tmp_path: Path) -> None:
     out = tmp_path / "cytokine.csv"
-    result = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify",
-                             str(DEMOS / "cytokine_serum_4pl.json"), "--export", str(out)],
-                            capture_output=True, text=True, cwd=ROOT, timeout=300)
+    result = run_cli("quantify", str(DEMOS / "cytokine_serum_4pl.json"), "--export", str(out))
     assert result.returncode in (0, 1), result.stderr
     with out.open(encoding="utf-8-sig", newline="") as handle:
         rows = [r for r in csv.reader(handle)]

@@ -5,7 +5,6 @@ from __future__ import annotations
 
 import json
 import subprocess
-import sys
 from dataclasses import replace
 
 import pytest
@@ -17,7 +16,8 @@ from curvewright.io.integrity import content_sha256, digest_of
 from curvewright.io.run_document import loads_run, run_to_mapping, save_run
 from curvewright.io.run_edits import RunLocked
 from curvewright.io.signatures import SigningError, check_signatures, new_key_pair, sign, withdraw_approval
-from tests.io.helpers import ROOT, small_run
+from tests.cli_runs import run_cli
+from tests.io.helpers import small_run
 
 ANALYST = Identity("Robin Example", "QA-0042", "robin")
 APPROVER = Identity("Sam Approver", "QA-0007", "sam")
@@ -105,8 +105,7 @@ def test_sign_and_check_from_the_command_line(tmp_path) -> None:
     save_run(small_run(), path)
 
     def cli(*args: str) -> subprocess.CompletedProcess:
-        return subprocess.run([sys.executable, "-m", "curvewright.cli", *args], capture_output=True, text=True,
-                              cwd=ROOT, timeout=300)
+        return run_cli(*args)
 
     assert cli("keys", "new", "--private", str(tmp_path / "lab.key"), "--public", str(tmp_path / "lab.pub")).returncode == 0
     done = cli("sign", str(path), "--role", "approver", "--key", str(tmp_path / "lab.key"), "--analyst", "Sam Approver",

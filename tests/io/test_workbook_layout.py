@@ -6,8 +6,6 @@ read back from the file."""
 from __future__ import annotations
 
 import shutil
-import subprocess
-import sys
 from pathlib import Path
 
 import openpyxl
@@ -18,6 +16,7 @@ from curvewright.core.run_analysis import analyse_run
 from curvewright.io.integrity import content_sha256
 from curvewright.io.result_tables import all_tables, format_value
 from curvewright.io.run_document import open_run, save_run
+from tests.cli_runs import run_cli
 from tests.io.helpers import ICP_ELEMENTS, ROOT, many_element_run
 
 DEMO = ROOT / "sample_runs" / "veltaprine_plasma_weighted.json"
@@ -29,8 +28,7 @@ def export(document: Path, folder: Path) -> Path:
     if copy != document:
         shutil.copyfile(document, copy)
     book = folder / (document.stem + ".xlsx")
-    out = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", str(copy), "--export", str(book)],
-                         capture_output=True, text=True, cwd=ROOT, timeout=300)
+    out = run_cli("quantify", str(copy), "--export", str(book))
     assert out.returncode == 0, out.stderr
     return book
 

@@ -16,6 +16,7 @@ import pytest
 from curvewright.io import xlsx_checks
 from curvewright.io.errors import ImportProblem
 from curvewright.io.tables import table_from_xlsx, xlsx_sheet_names
+from tests.cli_runs import run_cli
 from tests.io.helpers import ROOT
 from tests.io.workbook_files import (GOOD_ROWS, MAIN, SHEET, STRINGS, parts, rezip, shared_string_workbook,
                                      strings_xml, workbook_bytes)
@@ -72,8 +73,7 @@ def test_a_damaged_workbook_on_the_command_line_exits_2_naming_it(tmp_path, dama
     standards.write_bytes(rezip(workbook_bytes(), {SHEET: lambda x: x.replace(b"<v>20.25</v>", damaged, 1)}))
     samples = tmp_path / "samples.csv"
     samples.write_text("Sample;Response\nU1;20,1\n", encoding="utf-8")
-    result = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", "--standards", str(standards),
-                             "--samples", str(samples)], capture_output=True, text=True, timeout=300, cwd=ROOT)
+    result = run_cli("quantify", "--standards", str(standards), "--samples", str(samples))
     assert result.returncode == 2, result.stderr
     said = f"{standards}: sheet 'Standards' cannot be read after row 2 ("
     assert result.stderr.count(said) == 1 and f"{said}{reason}" in result.stderr, result.stderr

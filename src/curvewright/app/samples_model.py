@@ -22,7 +22,7 @@ from ..io.number_text import number_for_editing
 from ..io.paste import PastedBlock
 from .cells import number_from_text, reading_from_text, reading_problem
 from .session import RunSession
-from .table_view import ReasonProvider, RowCache, ask_reason_when_required
+from .table_view import ReasonProvider, RowCache, commit_edit
 from .standards_model import INVALID
 
 COLUMNS = ("Id", "Kind", "Order", "Dilution", "Nominal", "Responses")
@@ -222,18 +222,7 @@ class SamplesModel(QAbstractTableModel):
             return run_edits.update_samples(self.session.run, samples, description, reason=why, removed_reason=reason,
                                             user=self.session.identity)
 
-        try:
-            new_run = ask_reason_when_required(update, self.reason_provider)
-        except RunError as exc:
-            self.message.emit(str(exc))
-            return False
-        if new_run is None:
-            self.message.emit("Not changed: a changed value needs a reason.")
-            self.pending.clear()
-            self.dataChanged.emit(self.index(0, 0), self.index(max(self.rowCount() - 1, 0), len(COLUMNS) - 1))
-            return False
-        self.session.apply(new_run, description)
-        return True
+        return commit_edit(self, update, description, refused=self.pending.clear)
 
     @staticmethod
     def field_columns() -> dict[str, int]:

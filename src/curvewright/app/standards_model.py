@@ -20,7 +20,7 @@ from ..io.number_text import number_for_editing, percent_beside_limits, signed_t
 from ..io.paste import PastedBlock
 from .cells import display_reading, number_from_text, reading_from_text, reading_problem
 from .session import RunSession
-from .table_view import ReasonProvider, RowCache, ask_reason_when_required
+from .table_view import ReasonProvider, RowCache, commit_edit
 from ..core.notation import entered, figures
 
 TYPE_CHECKING = False
@@ -348,16 +348,8 @@ class StandardsModel(QAbstractTableModel):
             return run_edits.update_standards(self.session.run, self.analyte_name, standards, description, reason=reason,
                                               user=self.session.identity)
 
-        try:
-            new_run = ask_reason_when_required(update, self.reason_provider)
-        except RunError as exc:
-            self.message.emit(str(exc))
+        if not commit_edit(self, update, description):
             return False
-        if new_run is None:
-            self.message.emit("Not changed: a changed value needs a reason.")
-            self.dataChanged.emit(self.index(0, 0), self.index(max(self.rowCount() - 1, 0), len(COLUMNS) - 1))
-            return False
-        self.session.apply(new_run, description)
         if warning:
             self.message.emit(warning)
         return True

@@ -30,6 +30,35 @@ def ask_reason_when_required(update: Callable[..., T], provider: ReasonProvider 
         return update(reason)
 
 
+NO_REASON_GIVEN = "Not changed: a changed value needs a reason."
+"""What a table says when the analyst gives no reason for changing a raw value that was entered."""
+
+
+def commit_edit(model, update: Callable[..., object], description: str,  # type: ignore[no-untyped-def]
+                refused: Callable[[], None] | None = None) -> bool:
+    """Make the run ``update()`` returns current in ``model.session`` as one undoable step named
+    ``description``; where a raw value that was entered changes, the analyst is first asked why
+    (``model.reason_provider``, :func:`ask_reason_when_required`). When the run refuses the edit
+    (:class:`~curvewright.core.run.RunError`) or no reason is given, nothing changes: the model says why
+    on its ``message`` signal and, after no reason, calls ``refused()`` (to forget what it showed of the
+    edit) and has its cells read again. True when the run changed."""
+    from ..core.run import RunError
+
+    try:
+        new_run = ask_reason_when_required(update, model.reason_provider)
+    except RunError as exc:
+        model.message.emit(str(exc))
+        return False
+    if new_run is None:
+        model.message.emit(NO_REASON_GIVEN)
+        if refused is not None:
+            refused()
+        model.dataChanged.emit(model.index(0, 0), model.index(max(model.rowCount() - 1, 0), model.columnCount() - 1))
+        return False
+    model.session.apply(new_run, description)
+    return True
+
+
 FIT_EVERY_ROW_UP_TO = 200
 """Tables up to this many rows are fitted to every row; longer ones to the rows in view, and widened
 as more rows scroll into view (:func:`widen_to_rows_in_view`), so that measuring thousands of cells

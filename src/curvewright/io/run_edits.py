@@ -6,7 +6,7 @@ The app's undo stack keeps the runs; the audit trail keeps what was done, by who
 from __future__ import annotations
 
 from dataclasses import replace
-from typing import Any, Mapping
+from typing import Any, Mapping, Sequence
 
 from ..core.acceptance import AcceptanceProfile, load_profile
 from ..core.method import Method, method_from_mapping
@@ -366,6 +366,19 @@ def _standard_fields(s: Standard) -> dict[str, Any]:
     }
 
 
+def repeated_id(ids: Sequence[str]) -> str | None:
+    """The first id in ``ids`` that an earlier one already has (the one a reader finds repeated first,
+    going down the table), or None when every id is its own."""
+    if len(set(ids)) == len(ids):
+        return None
+    seen: set[str] = set()
+    for i in ids:
+        if i in seen:
+            return i
+        seen.add(i)
+    return None
+
+
 def update_standards(
     run: Run, analyte: str, standards: tuple[Standard, ...], note: str, *, reason: str = "",
     user: Identity | str | None = None, clock: Clock = utc_now,
@@ -381,9 +394,7 @@ def update_standards(
     old = {s.id: s for s in a.standards}
     ids = [s.id for s in standards]
     id_set = set(ids)
-    if len(id_set) != len(ids):
-        seen: set[str] = set()
-        duplicate = next(i for i in ids if i in seen or seen.add(i))  # type: ignore[func-returns-value]
+    if (duplicate := repeated_id(ids)) is not None:
         raise RunError(f"{analyte}: standard id {duplicate!r} is used twice; each standard needs its own id.")
     missing = [i for i in old if i not in id_set]
     if missing:
@@ -473,10 +484,7 @@ def update_samples(
     Removing a sample needs a reason (``removed_reason``), and so does changing a dilution factor, a
     nominal value or a response that was already entered (``reason``; :class:`ReasonRequired`)."""
     ids = [s.id for s in samples]
-    id_set = set(ids)
-    if len(id_set) != len(ids):
-        seen: set[str] = set()
-        duplicate = next(i for i in ids if i in seen or seen.add(i))  # type: ignore[func-returns-value]
+    if (duplicate := repeated_id(ids)) is not None:
         raise RunError(f"sample id {duplicate!r} is used twice; each sample needs its own id.")
     known = {a.name for a in run.analytes}
     for s in samples:
