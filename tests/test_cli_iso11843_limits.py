@@ -34,11 +34,11 @@ METHOD = {"format": "curvewright-method/1", "id": "OV-CD-11843", "name": "Cadmiu
           "confidence_level": 0.95, "interval": "band", "limits_method": "iso11843"}
 
 
-def iso11843(x: np.ndarray, y: np.ndarray) -> tuple[float, float, float]:
+def iso11843(x: np.ndarray, y: np.ndarray, readings: int = 1) -> tuple[float, float, float]:
     n = x.size
     b, a = np.polyfit(x, y, 1)
     sigma = np.sqrt(np.sum((y - a - b * x) ** 2) / (n - 2))
-    q = np.sqrt(1 + 1 / n + x.mean() ** 2 / np.sum((x - x.mean()) ** 2))
+    q = np.sqrt(1 / readings + 1 / n + x.mean() ** 2 / np.sum((x - x.mean()) ** 2))
     t = stats.t.ppf(0.95, n - 2)
     delta = optimize.brentq(lambda d: stats.nct.cdf(t, n - 2, d) - 0.05, 0, 50)
     return t * sigma / b * q, a + t * sigma * q, delta * sigma / b * q
@@ -89,3 +89,48 @@ def test_iso11843_limits_are_shown_and_results_judged_against_them(tmp_path: Pat
     assert abs(sheet["Critical value x_c (not detected below it)"] - x_c) < 1e-9
     assert abs(sheet["Critical response y_c"] - y_c) < 1e-9
     assert abs(sheet["Minimum detectable value x_d"] - x_d) < 1e-8
+
+
+def test_a_sample_read_three_times_is_judged_against_the_limits_for_three_readings(tmp_path: Path) -> None:
+    """ISO 11843-2's q holds 1/K, K the readings of the test sample: read three times, a sample has a lower
+    x_c (0.527 µg/L here) than read once (0.831 µg/L). Three readings averaging 76.0 counts (0.70 µg/L) are
+    detected; one reading of 76.0 counts is not. The limits for K = 3 are worked out here independently
+    (scipy.stats, the formulas in the module docstring) and shown beside those for one reading."""
+    x = np.array([c for _, c, _ in STANDARDS])
+    y = np.array([r for _, _, r in STANDARDS])
+    x_c1, _, _ = iso11843(x, y)
+    x_c3, y_c3, x_d3 = iso11843(x, y, readings=3)
+    assert round(x_c3, 4) == 0.5272 and round(y_c3, 2) == 58.92
+    std = write(tmp_path / "std.csv", ["Standard id,Level,Concentration (µg/L),Response (counts)",
+                                       *[f"{i},L,{c},{r}" for i, c, r in STANDARDS]])
+    smp = write(tmp_path / "smp.csv", ["Sample,Type,Dilution,Response 1,Response 2,Response 3",
+                                       "OV-211,unknown,1,74.1,77.9,76.0", "OV-212,unknown,1,76.0,,"])
+    method = tmp_path / "method.json"
+    method.write_text(json.dumps(METHOD), encoding="utf-8")
+    book = tmp_path / "out.xlsx"
+    args = ("quantify", "--standards", str(std), "--samples", str(smp), "--analyte", "cadmium", "--method", str(method),
+            "--map", "samples.response=Response 1", "--map", "samples.response=Response 2",
+            "--map", "samples.response=Response 3")
+    out = run_cli(*args, "--export", str(book))
+    assert out.returncode in (0, 1), out.stderr
+    rule = RoundingRule(**METHOD["rounding"])
+    assert (f"for samples read 3 times: critical value x_c {computed(x_c3, rule)} µg/L (critical response y_c "
+            f"{computed(y_c3, rule)}), minimum detectable value x_d {computed(x_d3, rule)} µg/L") in out.stdout
+    rows = {line.split()[0]: line for line in out.stdout.splitlines() if line.startswith("  OV-")}
+    assert "not detected" not in rows["OV-211"] and "below the minimum detectable value x_d" in rows["OV-211"]
+    assert "not detected" in rows["OV-212"] and f"< {computed(x_c1, rule)} µg/L (x_c)" in rows["OV-212"]
+
+    data = json.loads(run_cli(*args, "--json").stdout)
+    analyte = data["analytes"][0]
+    [by_three] = analyte["limits"]["by_readings"]
+    assert by_three["readings"] == 3 and abs(by_three["critical_concentration"] - x_c3) < 1e-9 * x_c3
+    assert abs(by_three["lod"] - x_d3) < 1e-8 * x_d3
+    by_id = {s["id"]: s for s in analyte["samples"]}
+    assert "below_lod" not in by_id["OV-211"]["flags"] and "below_min_detectable" in by_id["OV-211"]["flags"]
+    assert by_id["OV-212"]["status"] == "below_lod"
+
+    sheet = {r[0]: r[1] for r in openpyxl.load_workbook(book)["Calibration – cadmium"].iter_rows(values_only=True)
+             if r and r[0]}
+    assert abs(sheet["Critical value x_c for 1 reading (not detected below it)"] - x_c1) < 1e-9
+    assert abs(sheet["Critical value x_c for 3 readings (not detected below it)"] - x_c3) < 1e-9
+    assert abs(sheet["Minimum detectable value x_d for 3 readings"] - x_d3) < 1e-8

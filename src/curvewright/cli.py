@@ -1158,6 +1158,9 @@ def summary_text(  # type: ignore[no-untyped-def]
         lines.append(f"  residual SD {figures(cal.residual_sd, 6)}; adjusted R² {cal.adjusted_r_squared:.6f}; {lof_text}")
         if a.limits:
             lines.append(f"  {a.limits.values_words(in_unit.strip(), run.settings.rounding)} ({a.limits.description})")
+            for by_k in a.limits_by_readings:  # ISO 11843-2: the limits for the samples read K > 1 times
+                lines.append(f"  for samples read {by_k.readings} times: "
+                             f"{by_k.values_words(in_unit.strip(), run.settings.rounding)}")
         flagged = [f"{s.id} ({', '.join(f.value for f in cal.influence_flags[i])})"
                    for i, s in enumerate(a.fitted_standards) if cal.influence_flags[i]]
         if flagged:
@@ -1299,7 +1302,13 @@ def result_json(  # type: ignore[no-untyped-def]
                 "limits": None if a.limits is None else {"method": a.limits.method, "description": a.limits.description,
                                                          "lod": a.limits.lod, "loq": a.limits.loq,
                                                          "critical_concentration": a.limits.critical_concentration,
-                                                         "critical_response": a.limits.critical_response},
+                                                         "critical_response": a.limits.critical_response,
+                                                         "readings": a.limits.readings,
+                                                         "by_readings": [
+                                                             {"readings": b.readings, "lod": b.lod,
+                                                              "critical_concentration": b.critical_concentration,
+                                                              "critical_response": b.critical_response}
+                                                             for b in a.limits_by_readings]},
                 "verdict": {"passed": a.verdict.passed, "reasons": [machine(r) for r in a.verdict.reasons]} if a.verdict else None,
                 "qc_verdict": {"passed": a.qc_verdict.passed, "reasons": [machine(r) for r in a.qc_verdict.reasons]} if a.qc_verdict else None,
                 "calibration_checks": None if a.checks is None else {

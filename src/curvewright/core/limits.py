@@ -50,6 +50,8 @@ class DetectionLimits:
     slope: float
     critical_response: float | None = None
     critical_concentration: float | None = None
+    readings: int = 1
+    """ISO 11843-2: the number K of readings of a test sample the limits are for (1 for other methods)."""
 
     def values_words(self, unit: str = "", rule: "RoundingRule | None" = None) -> str:
         """The limits with their values, in words: "LOD 0.35 ng/mL, LOQ 1.05 ng/mL", or for ISO 11843-2
@@ -156,4 +158,5 @@ def _iso11843(cal: "FittedCurve", slope: float, alpha: float, beta: float, repli
         slope=slope,
         critical_response=float(cal.coefficients[0] + t * sigma * q),
         critical_concentration=float(x_c),
+        readings=replicates,
     )

@@ -96,6 +96,9 @@ class ReportingRange:
     """ISO 11843-2 limits: the critical value of the net concentration x_c, below which a result is
     "not detected" (``lod`` then holds the minimum detectable value x_d); None for other limits,
     whose LOD is the detection threshold."""
+    critical_replicates: int = 1
+    """ISO 11843-2 limits: the number K of readings of a test sample that x_c and x_d are for (they
+    shrink with K: q = √(1/K + 1/N + x̄²/Sxx)); 1 for other limits."""
 
     @property
     def detection_limit(self) -> float | None:
@@ -104,14 +107,17 @@ class ReportingRange:
 
     @property
     def detection_label(self) -> str:
-        """The name of :attr:`detection_limit`: "x_c" or "LOD"."""
-        return "x_c" if self.critical_value is not None else "LOD"
+        """The name of :attr:`detection_limit`: "x_c" (for one reading; "x_c for 3 readings" for a
+        sample read three times) or "LOD"."""
+        if self.critical_value is None:
+            return "LOD"
+        return "x_c" if self.critical_replicates == 1 else f"x_c for {self.critical_replicates} readings"
 
     @property
     def not_detected_words(self) -> str:
         """What a result below :attr:`detection_limit` is, in words."""
-        return ("below the critical value x_c: not detected (ISO 11843-2)" if self.critical_value is not None
-                else "below the detection limit (LOD)")
+        return (f"below the critical value {self.detection_label}: not detected (ISO 11843-2)"
+                if self.critical_value is not None else "below the detection limit (LOD)")
 
     @property
     def middle(self) -> float:
@@ -121,7 +127,8 @@ class ReportingRange:
 
 def reporting_range(concentrations: object, lod: float | None, loq: float | None, unit: str = "",
                     passing_range: tuple[float, float] | None = None, narrowing: str = "",
-                    critical_value: float | None = None, rule: RoundingRule | None = None) -> ReportingRange:
+                    critical_value: float | None = None, rule: RoundingRule | None = None,
+                    critical_replicates: int = 1) -> ReportingRange:
     """The calibrated range of the standards in the fit and the reporting limit.
 
     ``concentrations`` are the nominal concentrations of the standards in the fit; ``lod`` and
@@ -130,7 +137,8 @@ def reporting_range(concentrations: object, lod: float | None, loq: float | None
     when an end level fails the acceptance profile (:attr:`.acceptance.AcceptanceVerdict.passing_range`):
     they become the LLOQ and the ULOQ. ``critical_value`` is the ISO 11843-2 critical value x_c
     (``lod`` then the minimum detectable value x_d): a result below x_c is not detected, so where x_c
-    lies above the LLOQ (and the standard defines no LOQ) it is the reporting limit. The note writes
+    lies above the LLOQ (and the standard defines no LOQ) it is the reporting limit; ``critical_replicates``
+    is the number K of readings of a test sample that x_c and x_d are for. The note writes
     the computed limits by ``rule`` (the run's rounding rule; without one, to 4 significant figures)
     and the standards' concentrations as entered (:mod:`.notation`).
     """
@@ -152,16 +160,18 @@ def reporting_range(concentrations: object, lod: float | None, loq: float | None
         return ReportingRange(lloq, uloq, lod, loq, loq, "LOQ",
                               f"the computed LOQ ({shown(loq)}{u}) lies above the {lowest} ({entered(lloq)}{u}): the "
                               "reporting limit is the LOQ, and results between them are below it",
-                              narrowing, standards_range, critical_value)
+                              narrowing, standards_range, critical_value, critical_replicates)
     if critical_value is not None and math.isfinite(critical_value) and critical_value > lloq:
-        return ReportingRange(lloq, uloq, lod, loq, critical_value, "x_c",
-                              f"the critical value x_c ({shown(critical_value)}{u}, ISO 11843-2) lies above the {lowest} "
+        x_c = "x_c" if critical_replicates == 1 else f"x_c for {critical_replicates} readings"
+        return ReportingRange(lloq, uloq, lod, loq, critical_value, x_c,
+                              f"the critical value {x_c} ({shown(critical_value)}{u}, ISO 11843-2) lies above the {lowest} "
                               f"({entered(lloq)}{u}): a result below it is not detected, so the reporting limit is x_c",
-                              narrowing, standards_range, critical_value)
+                              narrowing, standards_range, critical_value, critical_replicates)
     note = (f"the computed LOQ ({shown(loq)}{u}) lies below the {lowest} ({entered(lloq)}{u}): the reporting limit is "
             f"the LLOQ, the {lowest}" if loq is not None and math.isfinite(loq)
             else f"the reporting limit is the LLOQ, the {lowest} (no LOQ was computed)")
-    return ReportingRange(lloq, uloq, lod, loq, lloq, "LLOQ", note, narrowing, standards_range, critical_value)
+    return ReportingRange(lloq, uloq, lod, loq, lloq, "LLOQ", note, narrowing, standards_range, critical_value,
+                          critical_replicates)
 
 
 @frozen_value
@@ -361,7 +371,8 @@ def _numeric_value(
             if below_lod:
                 label = rng.detection_label
                 text, words, short = (f"< {lod_text} ({label}{diluted})",
-                                      rng.not_detected_words + ("" if label == "x_c" else ": not detected"), f"< {label}")
+                                      rng.not_detected_words + ("" if rng.critical_value is not None else ": not detected"),
+                                      f"< {label}")
             else:
                 text = f"{number()}{u} (estimated, below {rng.basis})"
                 words = f"estimated: between the detection limit and the reporting limit of {limit_text}"

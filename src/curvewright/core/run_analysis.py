@@ -295,6 +295,9 @@ class AnalyteResult:
     model_overridden: bool = False
     checks: CheckVerdict | None = None
     reporting: ReportingRange | None = None
+    limits_by_readings: tuple[DetectionLimits, ...] = ()
+    """ISO 11843-2 limits for the numbers of readings K > 1 that the analyte's samples have, in
+    increasing K (``limits`` are those for one reading); empty for other limits."""
     method_reasons: tuple[str, ...] = ()
     """What the run's validated method requires of this analyte and is not met (a level without a
     standard, a model departing from the method's), or what it notes; "FAIL" marks a failure."""
@@ -559,7 +562,18 @@ def _analyse_analyte(
     rng = reporting_range(in_range, limits.lod if limits else None, limits.loq if limits else None, unit,
                           verdict.passing_range, verdict.narrowing,
                           limits.critical_concentration if limits else None, settings.rounding)
-    columns = _quantify_samples(run, analyte, cal, limits, rng, profile)
+    limits_by_readings: dict[int, DetectionLimits] = {}
+    ranges_by_readings: dict[int, ReportingRange] = {}
+    if limits is not None and limits.critical_concentration is not None:
+        # ISO 11843-2: x_c and x_d depend on the number K of readings of the test sample (q = √(1/K + …)),
+        # so a sample read K times is judged against the limits for K, not those for one reading
+        for k in _reading_counts(run, analyte):
+            if k > 1:
+                limits_by_readings[k] = cal.limits(settings.limits_method, replicates=k)
+                ranges_by_readings[k] = reporting_range(
+                    in_range, limits_by_readings[k].lod, None, unit, verdict.passing_range, verdict.narrowing,
+                    limits_by_readings[k].critical_concentration, settings.rounding, critical_replicates=k)
+    columns = _quantify_samples(run, analyte, cal, limits, rng, profile, ranges_by_readings)
     check_kinds = {kind for kind in SampleKind if kind.is_check}
     check_results = [columns.result(i) for i, kind in enumerate(columns.kinds) if kind in check_kinds]
     checks = None  # no calibration check among the samples: none judged, and the judge is not loaded
@@ -582,7 +596,8 @@ def _analyse_analyte(
         samples = tuple(
             replace(s, within_limits=by_id[s.sample_id].passed, recovery_percent=by_id[s.sample_id].recovery_percent)
             if s.sample_id in by_id else
-            _report(s, rng, run, profile, unit, not_reportable=unbracketed[s.sample_id])
+            _report(s, ranges_by_readings.get(len(s.replicate_responses), rng), run, profile, unit,
+                    not_reportable=unbracketed[s.sample_id])
             if s.sample_id in unbracketed and s.estimate is not None else s
             for s in samples
         )
@@ -613,6 +628,7 @@ def _analyse_analyte(
         model_overridden=overridden,
         checks=checks,
         reporting=rng,
+        limits_by_readings=tuple(limits_by_readings[k] for k in sorted(limits_by_readings)),
         method_reasons=_method_reasons(run, analyte, cal, use_model, use_weighting),
     )
     if samples is not None:
@@ -728,16 +744,26 @@ def _report(s: SampleResult, rng: ReportingRange, run: Run, profile: AcceptanceP
                    flags=value.flags if s.estimate is not None else engine, suggested_dilution=value.suggested_dilution)
 
 
+def _reading_counts(run: Run, analyte: Analyte) -> set[int]:
+    """The numbers of numeric readings the analyte's samples have (as :func:`_quantify_samples` counts them)."""
+    name, ratio = analyte.name, analyte.uses_internal_standard
+    return {sum(1 for m in sample.measurements if m.analyte == name
+                and response_value(m.response, m.internal_standard_response, ratio)[0] is not None)
+            for sample in run.samples}
+
+
 def _quantify_samples(
     run: Run, analyte: Analyte, cal: Calibration, limits: DetectionLimits | None, rng: ReportingRange,
-    profile: AcceptanceProfile,
+    profile: AcceptanceProfile, ranges_by_readings: dict[int, ReportingRange] | None = None,
 ) -> SampleColumns:
     """Every sample of the analyte, quantified and reported, as columns.
 
     Each sample's result is what :func:`_report` gives for it; the work is done over all samples at
     once: the replicate means of the samples with the same number of replicates as one array (each
     mean summed exactly as ``np.mean`` sums that sample's replicates alone), one call of the engine,
-    and the statuses and texts by :func:`.reporting.report_columns`.
+    and the statuses and texts by :func:`.reporting.report_columns`. ``ranges_by_readings`` holds, for
+    ISO 11843-2 limits, the reporting range of the samples read K > 1 times (their x_c and x_d are
+    those for K readings); every other sample is reported against ``rng``.
     """
     settings = run.settings
     name, ratio = analyte.name, analyte.uses_internal_standard
@@ -833,6 +859,19 @@ def _quantify_samples(
                               unit=analyte.concentration_unit,
                               below_limit=profile.reporting.between_lod_and_reporting_limit, not_quantified=reasons,
                               lowers=lower, uppers=upper)
+    for k, rng_k in (ranges_by_readings or {}).items():  # samples read K times: judged against the limits for K
+        rows = np.flatnonzero(quantified & (replicate_counts == k))
+        if rows.size:
+            part = report_columns(estimate[rows], dilution[rows], FlagBits(engine_bits[rows]), rng_k, settings.rounding,
+                                  unit=analyte.concentration_unit,
+                                  below_limit=profile.reporting.between_lod_and_reporting_limit,
+                                  not_quantified=[reasons[r] for r in rows.tolist()], lowers=lower[rows],
+                                  uppers=upper[rows])
+            for j, r in enumerate(rows.tolist()):
+                reported.statuses[r], reported.texts[r] = part.statuses[j], part.texts[j]
+                reported.words[r], reported.shorts[r] = part.words[j], part.shorts[j]
+            reported.bits[rows] = part.bits
+            reported.suggested_dilution[rows] = part.suggested_dilution
     nominal = np.array(nominal_list, dtype=float)
     del nominal_list
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):

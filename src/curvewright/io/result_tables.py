@@ -504,12 +504,20 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
                      + " outside the interval or end a whole number in zeros read as exact digits", None))
     rows.append(("Interval", interval_words(result, a), None))
     if a.limits is not None:
-        if a.limits.critical_concentration is not None:  # ISO 11843-2: the decision limits with their values
-            rows += [("Critical value x_c (not detected below it)", a.limits.critical_concentration, None),
-                     ("Critical response y_c", a.limits.critical_response, None)]
-        rows += [("Minimum detectable value x_d" if a.limits.critical_concentration is not None else "LOD",
-                  a.limits.lod, None),
-                 ("LOQ", a.limits.loq if a.limits.loq is not None else "not defined by this method", None),
+        # ISO 11843-2: the decision limits with their values, for one reading of a test sample and for
+        # each other number of readings K the samples have (the limits shrink with K)
+        one = " for 1 reading" if a.limits_by_readings else ""
+        if a.limits.critical_concentration is not None:
+            rows += [(f"Critical value x_c{one} (not detected below it)", a.limits.critical_concentration, None),
+                     (f"Critical response y_c{one}", a.limits.critical_response, None)]
+        rows += [(f"Minimum detectable value x_d{one}" if a.limits.critical_concentration is not None else "LOD",
+                  a.limits.lod, None)]
+        for by_k in a.limits_by_readings:
+            k = by_k.readings
+            rows += [(f"Critical value x_c for {k} readings (not detected below it)", by_k.critical_concentration, None),
+                     (f"Critical response y_c for {k} readings", by_k.critical_response, None),
+                     (f"Minimum detectable value x_d for {k} readings", by_k.lod, None)]
+        rows += [("LOQ", a.limits.loq if a.limits.loq is not None else "not defined by this method", None),
                  ("LOD/LOQ method", a.limits.description, None)]
     else:
         rows.append(("LOD/LOQ", f"not computed: {a.limits_note}", None))
