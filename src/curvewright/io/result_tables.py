@@ -53,7 +53,9 @@ class Column:
     (:func:`~curvewright.core.limit_digits.decimals_beside_limits`); WINDOW is the column holding
     the row's window, or ``@NAME``: the table's window for the row's value in column NAME) and
     ``"item:NAME"`` (``"full"`` for a row whose item, in column NAME, is one of the table's ``entered``
-    items, a value a person entered such as a calibrated range's end; ``"plain"`` otherwise). Unsettled,
+    items, a value a person entered such as a calibrated range's end; ``"rule"`` for one of its ``ruled``
+    items, a computed concentration such as the LOD, shown by the run's rounding rule like every other
+    computed value; ``"plain"`` otherwise). Unsettled,
     they show six significant figures (``"beside:"``: its usual decimals; ``"item:"``: ``"plain"``). The workbook keeps every number at full precision and only
     formats it so; the printed record prints it so.
     """
@@ -164,6 +166,7 @@ class Table:
     rounding: RoundingRule | None = None
     windows: tuple[tuple[str, float], ...] = ()  # for a "beside:...:@NAME" column: the window by the value in NAME
     entered: tuple[str, ...] = ()  # for an "item:NAME" column: the items whose value was entered, shown in full
+    ruled: tuple[str, ...] = ()  # for an "item:NAME" column: the items shown by the run's rule (``rounding``)
     notice: str = ""
     """What a reader must not miss about the whole table (a record that is not intact), beside its title."""
 
@@ -206,7 +209,9 @@ class Table:
             elif kind == "beside":
                 display = self._beside(self.columns[j].display, row[j], row, source)
             elif kind == "item":
-                display = "full" if source >= 0 and row[source] in self.entered else "plain"
+                item = row[source] if source >= 0 else None
+                display = ("full" if item in self.entered else
+                           "rule" if item in self.ruled and self.rounding is not None else "plain")
             else:
                 places = entered_decimals(row[source]) if source >= 0 else None
                 display = "sig:6" if places is None else f"dec:{places}"
@@ -421,7 +426,9 @@ def checks_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table:
 _CALIBRATION_COLUMNS = (Column("Item"), Column("Value", display="item:Item"), Column("Standard error", display="sig:3"))
 """The calibration table's columns: a value that is a standard's concentration as entered (the table's
 ``entered`` items) is shown in full (:func:`~curvewright.core.number_words.full_number`), as the
-standards table shows it; every other value to six significant figures at most."""
+standards table shows it; a computed limit (the LOD, LOQ, x_c, y_c, x_d and a reporting limit taken
+from them: the table's ``ruled`` items) by the run's rounding rule, as every other output shows it;
+every other value to six significant figures at most."""
 
 
 def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
@@ -473,6 +480,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     rows.append(("Mandel's test PG (ISO 8466-1)", mandel[0], None))
     rows.append(("Mandel's test p", mandel[1], None))
     entered: list[str] = []  # the items whose value is a standard's concentration as entered
+    ruled: list[str] = []  # the computed limits, shown by the run's rounding rule
     if a.reporting is not None:
         narrowed = a.reporting.narrowing
         ends = [("Calibrated range, LLOQ (lowest passing non-zero standard)" if narrowed else
@@ -483,6 +491,8 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         entered += [item for item, _, _ in ends]
         if a.reporting.basis == "LLOQ" and a.reporting.reporting_limit == a.reporting.lloq:
             entered.append("Reporting limit (LLOQ)")
+        else:  # the LOQ or x_c: a computed limit
+            ruled.append(f"Reporting limit ({a.reporting.basis})")
         if narrowed:
             rows += [("Range of the standards in the fit", f"{full_number(a.reporting.standards_range[0])}–"
                       f"{full_number(a.reporting.standards_range[1])}", None),
@@ -507,6 +517,8 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         if a.limits.critical_concentration is not None:  # ISO 11843-2: the decision limits with their values
             rows += [("Critical value x_c (not detected below it)", a.limits.critical_concentration, None),
                      ("Critical response y_c", a.limits.critical_response, None)]
+            ruled += ["Critical value x_c (not detected below it)", "Critical response y_c"]
+        ruled += ["Minimum detectable value x_d" if a.limits.critical_concentration is not None else "LOD", "LOQ"]
         rows += [("Minimum detectable value x_d" if a.limits.critical_concentration is not None else "LOD",
                   a.limits.lod, None),
                  ("LOQ", a.limits.loq if a.limits.loq is not None else "not defined by this method", None),
@@ -527,7 +539,8 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         rows.append(("Calibration check windows, source", result.profile.checks.source, None))
     for u in a.unusable_standards:
         rows.append(("Standard not usable", f"{u.standard_id}: {u.reason}", None))
-    return Table(f"Calibration – {an.name}", _CALIBRATION_COLUMNS, tuple(rows), entered=tuple(entered))
+    return Table(f"Calibration – {an.name}", _CALIBRATION_COLUMNS, tuple(rows), rule, entered=tuple(entered),
+                 ruled=tuple(ruled))
 
 
 def rule_departures(a: AnalyteResult, rule: RoundingRule) -> tuple[str, ...]:
