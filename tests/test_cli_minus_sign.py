@@ -53,4 +53,4 @@ def test_negative_numbers_carry_the_minus_sign_for_a_person_and_the_hyphen_for_p
     quantify(tmp_path, "--export", str(tmp_path / "tin.csv"))
     body = [line for line in (tmp_path / "tin.csv").read_text(encoding="utf-8").splitlines() if not line.startswith("#")]
     table = {r["Sample id"]: r for r in csv.DictReader(io.StringIO("\n".join(body)))}
-    assert float(table["B-2"]["Lower limit"]) < 0 and "−" not in "".join(table["B-2"].values())
+    assert float(table["B-2"]["Lower limit × dilution"]) < 0 and "−" not in "".join(table["B-2"].values())

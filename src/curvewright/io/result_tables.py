@@ -319,7 +319,9 @@ def band_method_words(cal: Calibration) -> str:
 
 
 def samples_table(result: RunResult) -> Table:
-    """One row per sample × analyte: what is reported (text), and the working behind it at full precision."""
+    """One row per sample × analyte: what is reported (text), and the working behind it at full precision.
+    The standard error and the interval's ends are on the reported scale (the solution measured × the
+    dilution factor), as their headings say."""
     rule = result.run.settings.rounding
     unit = {a.analyte.name: a.analyte.concentration_unit for a in result.analytes}
     columns = (
@@ -328,7 +330,9 @@ def samples_table(result: RunResult) -> Table:
         Column("Estimated concentration", kind="number", display="within:Dilution factor"),
         Column("Dilution factor", kind="number", display="full"),
         Column("Concentration × dilution", kind="number", display="within"), Column("Reported", kind="reported"),
-        Column("Lower limit", kind="number", display="interval"), Column("Upper limit", kind="number", display="interval"),
+        Column("Standard error × dilution", kind="number", display="sig:3"),
+        Column("Lower limit × dilution", kind="number", display="interval"),
+        Column("Upper limit × dilution", kind="number", display="interval"),
         Column("Interval", kind="words"), Column("Unit"), Column("Status"), Column("Flags", kind="words"),
         Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="full"),
         Column("Recovery (%)", kind="number", display="beside:dec:1:100:@Kind"), Column("QC or check"),
@@ -351,7 +355,7 @@ def samples_table(result: RunResult) -> Table:
                 replicate_text(s.replicate_responses, readings, a.analyte.uses_internal_standard),
                 s.mean_response, s.estimate, s.dilution_factor,
                 s.reported, s.reported_text or (None if s.reported is None else rule.text_within(s.reported, s.reported_lower, s.reported_upper)),
-                s.reported_lower, s.reported_upper, words if s.reported is not None else "",
+                s.reported_standard_error, s.reported_lower, s.reported_upper, words if s.reported is not None else "",
                 unit[s.analyte], STATUS_WORDS[s.status], s.flag_words, s.suggested_dilution, s.nominal,
                 s.recovery_percent, qc_word(s.kind, s.within_limits),
             ))
