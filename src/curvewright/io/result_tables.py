@@ -633,7 +633,8 @@ def signatures_table(result: RunResult) -> Table:
          "holds" if c.holds else "does NOT hold", c.words)
         for c in check_signatures(result.run)
     ) + tuple(
-        (r.role, r.name, r.person_id, r.time_utc, r.meaning, "", "NOT in the file", r.removed_words)
+        (r.role, r.name, r.person_id, r.time_utc, r.meaning,
+         r.key_fingerprint or ("" if r.role == "approval withdrawn" else "not keyed"), "NOT in the file", r.removed_words)
         for r in recorded_signatures(result.run) if not r.held
     )
     columns = (Column("Role"), Column("Name"), Column("ID"), Column("Time (UTC)"), Column("Meaning"),
@@ -654,16 +655,25 @@ A person with only these entries is not one of the run's analysts."""
 
 def analysts_of(result: RunResult) -> tuple[str, ...]:
     """The analysts: the people in the audit trail who entered, changed or judged the data, or signed
-    as analyst, in the order they first appear (a reviewer or approver who only signed is not one)."""
+    as analyst, in the order they first appear (a reviewer or approver who only signed is not one).
+    An analyst's signature the file no longer holds (:func:`.audit.recorded_signatures`) makes no one
+    an analyst: a person named only by it is named with what the trail records, as :func:`signers_of`
+    names a removed reviewer's or approver's signature, never as having signed."""
+    from .audit import recorded_signatures
     from .audit_words import who
 
+    removed = {r.entry: r for r in recorded_signatures(result.run) if not r.held and r.role == "analyst"}
     seen: list[str] = []
-    for e in result.run.audit:
-        works = e.action not in NOT_ANALYSIS or (e.action == "signed" and e.details.get("role") == "analyst")
+    lost: list[tuple[str, str]] = []  # (person, what the trail records) of each removed analyst signature
+    for number, e in enumerate(result.run.audit, start=1):
         person = who(e)
+        if number in removed:
+            lost.append((person, removed[number].removed_words))
+            continue
+        works = e.action not in NOT_ANALYSIS or (e.action == "signed" and e.details.get("role") == "analyst")
         if works and person not in seen:
             seen.append(person)
-    return tuple(seen)
+    return tuple(seen) + tuple(f"{person}: NOT signed — {words}" for person, words in lost if person not in seen)
 
 
 def signers_of(result: RunResult, role: str) -> tuple[str, ...]:
