@@ -68,7 +68,7 @@ class CheckInput:
 def judge_check(c: CheckInput, rules: CheckRules, rng: ReportingRange | None, profile: str, unit: str = "") -> CheckResult:
     """Judge one calibration check against the profile's window for its kind."""
     u = f" {unit}" if unit else ""
-    label = f"{c.kind.words} {c.sample_id}" + (f" (run order {c.run_order})" if c.run_order is not None else "")
+    label = c.kind.named(c.sample_id) + (f" (run order {c.run_order})" if c.run_order is not None else "")
 
     def result(passed: bool, reason: str, recovery: float | None = None, window: float | None = None) -> CheckResult:
         return CheckResult(c.sample_id, c.kind, c.run_order, c.nominal, c.reported, recovery, window, passed,
@@ -137,9 +137,9 @@ def bracketing(samples: Sequence[tuple[str, int | None]], checks: Sequence[Check
         previous = before[-1] if before else None
         following = after[0] if after else None
         if previous is not None and not previous.passed:
-            out[sid] = f"it follows the failed {previous.kind.words} {previous.sample_id} (run order {previous.run_order})"
+            out[sid] = f"it follows the failed {previous.kind.named(previous.sample_id)} (run order {previous.run_order})"
         elif following is not None and not following.passed:
-            out[sid] = (f"the check after it, {following.kind.words} {following.sample_id} (run order "
+            out[sid] = (f"the check after it, {following.kind.named(following.sample_id)} (run order "
                         f"{following.run_order}), failed")
         elif following is None:
             out[sid] = f"no calibration check follows it (the last is {ordered[-1].sample_id}, run order {ordered[-1].run_order})"
