@@ -109,8 +109,12 @@ def written(text: str, *, significant: int | None = None, scientific: bool | Non
             machine: bool = False) -> str:
     """A number's plain text in this module's notation, a negative one with the person's minus sign
     (``machine``: the hyphen-minus programs read); see :func:`_written`."""
+    if not scientific and _SURELY_PLAIN.match(text):  # the common case, plain as it stands
+        return MINUS + text[1:] if text[:1] == "-" and not machine else text
     out = _written(text, significant=significant, scientific=scientific, machine=machine)
-    return _HUMAN_SIGN.sub("-", out) if machine else _HYPHEN_SIGN.sub(MINUS, out)
+    if machine:
+        return _HUMAN_SIGN.sub("-", out) if MINUS in out else out
+    return _HYPHEN_SIGN.sub(MINUS, out) if out[:1] == "-" else out
 
 
 def _written(text: str, *, significant: int | None = None, scientific: bool | None = None,
@@ -195,7 +199,7 @@ def computed_within(value: float, lower: float | None, upper: float | None, rule
     interval's place."""
     text = rule.text_within(value, lower, upper) if text is None else text
     if _SURELY_PLAIN.match(text):
-        return _HYPHEN_SIGN.sub(MINUS, text)
+        return _HYPHEN_SIGN.sub(MINUS, text) if text[:1] == "-" else text
     if "." in text or "," in text:
         return written(text)  # its zeros after the mark are figures
     if text == rule.text(value):
