@@ -244,8 +244,8 @@ def test_a_failed_calibration_check_shows_its_recovery_and_fails_the_run(tmp_pat
     result = run_cli("quantify", str(path))
     assert result.returncode == 1
     assert "verdict: NOT ACCEPTED" in result.stdout
-    assert "FAIL: CCV CCV-1 (run order 3): recovery 144.0 % of 5 mg/L, outside 90–110 %" in result.stdout
-    assert "pass: ICV ICV (run order 1): recovery 100.0 %" in result.stdout
+    assert "FAIL: CCV-1 (run order 3): recovery 144.0 % of 5 mg/L, outside 90–110 %" in result.stdout
+    assert "pass: ICV (run order 1): recovery 100.0 %" in result.stdout
     tap = next(line for line in result.stdout.splitlines() if line.strip().startswith("Tap 1"))
     assert "not reportable" in tap and "CCV-1" in tap
     data = json.loads(run_cli("quantify", str(path), "--json").stdout)

@@ -78,7 +78,7 @@ def test_environmental_demo_reports_the_average_rrf_from_the_command_line() -> N
         assert entry["model"] == "average-rf" and entry["equation"] == a.calibration.equation(17)
         assert entry["response_factors"]["rsd_percent"] == rf.rsd_percent and entry["response_factors"]["relative"] is True
         assert f"pass: response factor %RSD = {rf.rsd_percent:.3g} %; at most 20 %" in text.stdout
-    assert "pass: CCV CCV-2 10 (closing)" in text.stdout
+    assert "pass: CCV-2 10 (closing)" in text.stdout
 
 
 def test_environmental_demo_workbook_and_record_carry_the_rrf_and_its_rsd(tmp_path) -> None:

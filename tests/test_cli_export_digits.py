@@ -145,22 +145,25 @@ def test_workbook_intervals_show_the_digits_of_the_record_and_the_command_line(b
              or line.startswith("  QC ") or line.startswith("  Field blank")}
     rows = sheet_rows(book, sheet)
     assert len(rows) == 7
+    # the Samples sheet names the scale of its ends: after dilution, as reported
+    low, high = ("Lower limit", "Upper limit") if sheet == "Summary" else ("Lower limit × dilution", "Upper limit × dilution")
     for row in rows:
         sample = row["Sample id"].value
-        interval = f"{shown(row['Lower limit'])} – {shown(row['Upper limit'])}"
+        # the cells' numbers as their formats show them, each minus sign as a person reads it (U+2212)
+        interval = f"{shown(row[low])} – {shown(row[high])}".replace("-", "−")
         where = record.index(f"{sample} {row['Kind'].value} ")  # the sample's row in the record's samples table
         assert interval in record[where:where + 120], (sheet, sample, interval, record[where:where + 120])
         assert interval in lines[sample], (sheet, sample, interval, lines[sample])
     by_id = {row["Sample id"].value: row for row in rows}
     # the intervals the record prints for these rows (read from it by eye as well)
-    assert f"{shown(by_id['QC low']['Lower limit'])} – {shown(by_id['QC low']['Upper limit'])}" == "1.455 – 1.529"
-    assert f"{shown(by_id['MB-117']['Lower limit'])} – {shown(by_id['MB-117']['Upper limit'])}" == "424 – 447"
+    assert f"{shown(by_id['QC low'][low])} – {shown(by_id['QC low'][high])}" == "1.455 – 1.529"
+    assert f"{shown(by_id['MB-117'][low])} – {shown(by_id['MB-117'][high])}" == "424 – 447"
 
 
 def test_workbook_cells_keep_every_digit_of_the_interval(book_and_record) -> None:
     book, _, _ = book_and_record
     for row in sheet_rows(book, "Samples"):
-        for end in ("Lower limit", "Upper limit"):
+        for end in ("Lower limit × dilution", "Upper limit × dilution"):
             assert len(repr(row[end].value)) > len(shown(row[end])), (row["Sample id"].value, end)  # full precision
 
 

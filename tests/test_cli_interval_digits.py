@@ -83,8 +83,11 @@ def test_large_whole_numbers_are_printed_to_the_place_their_interval_supports(tm
     data = json.loads(quantify(tmp_path, 1.0, "--json"))
     rows = {r["id"]: r for r in data["analytes"][0]["samples"]}
     # GUM §7.2.6: Brine A's half-width is about 5.8e6 mg/L (second figure: hundred thousands) and Brine B's
-    # about 8.0e3 (hundreds); three significant figures keep coarser places of the ends, so the GUM place stands
-    expected = {"Brine A": ["202600000", "202600000", "196800000", "208500000"],
+    # about 8.0e3 (hundreds); three significant figures keep coarser places of the ends, so the GUM place
+    # stands for the ends. Brine B's value by the rule, 693000, would end in zeros read as exact digits:
+    # it is shown to its interval's place. Brine A's, 2.03 × 10⁸, is written with an exponent, where no
+    # zero reads as exact, and lies inside its interval: the rule (three significant figures) stands.
+    expected = {"Brine A": ["203000000", "203000000", "196800000", "208500000"],
                 "Brine B": ["693200", "693200", "685200", "701300"]}
     for sample, want in expected.items():
         row = rows[sample]
@@ -92,11 +95,15 @@ def test_large_whole_numbers_are_printed_to_the_place_their_interval_supports(tm
         assert places < 0  # the interval supports no units
         assert [Decimal(w) for w in want[2:]] == [lower, upper]  # GUM §7.2.6, as worked out above
         assert [as_decimal(w) for w in sample_line(text, sample)] == [Decimal(w) for w in want]
-        # the value to the same place as its interval (GUM §7.2.6), inside its printed interval
-        assert Decimal(want[1]) == Decimal(repr(row["reported"])).quantize(Decimal(1).scaleb(-places))
+        # the value inside its printed interval; to the same place as it (GUM §7.2.6) where the rule's
+        # zeros would read as exact, else to the rule's three significant figures
+        step = Decimal(1).scaleb(-places) if sample == "Brine B" else Decimal("1e6")  # 2.03 × 10⁸: the millions
+        assert Decimal(want[1]) == Decimal(repr(row["reported"])).quantize(step)
         assert lower <= Decimal(want[1]) <= upper
         assert row["reported_rounded"] == row["reported_text"]
         assert as_decimal(row["reported_rounded"]) == Decimal(want[0])
+    # the note names the value shown to its interval's place, and not the one written with an exponent
+    assert "shown to the decimal place of their interval: Brine B (the rounding rule" in text
     # the workbook's Reported cell holds the number rounded to that place and shows it so; the estimate
     # and the ends keep their full numbers (a number format cannot round to tens or hundreds)
     book = openpyxl.load_workbook(tmp_path / "k.xlsx")
@@ -111,9 +118,11 @@ def test_large_whole_numbers_are_printed_to_the_place_their_interval_supports(tm
                     assert cell.number_format == "0." + "0" * (len(figures.digits) - 1) + "E+00"
                 else:
                     assert shown(cell) == want[0]
-            for row in (summary[sample], samples[sample]):
+            for row, after in ((summary[sample], ""), (samples[sample], " × dilution")):
                 for name in ("Lower limit", "Upper limit"):
-                    assert row[name].value == rows[sample]["reported_" + name.split()[0].lower()]
+                    assert row[name + after].value == rows[sample]["reported_" + name.split()[0].lower()]
+        said = {r["Item"].value: r["Value"].value for r in sheet_rows(book, "Calibration – potassium")}
+        assert said["Shown to the decimal place of their interval instead"].startswith("Brine B: the rule")
     finally:
         book.close()
     pdf = pypdfium2.PdfDocument(tmp_path / "k.pdf")
@@ -125,6 +134,7 @@ def test_large_whole_numbers_are_printed_to_the_place_their_interval_supports(tm
     for sample, head in (("Brine A", "Brine A unknown 1 1000"), ("Brine B", "Brine B unknown 2 1")):
         reported, value, low, high = (" ".join(w.split()) for w in sample_line(text, sample))
         assert f"{head} {reported} {value} {low} – {high}" in record, record
+    assert "Shown to the decimal place of their interval instead Brine B: the rule" in record
 
 
 def test_trace_values_keep_the_digits_of_their_interval(tmp_path) -> None:

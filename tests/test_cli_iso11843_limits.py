@@ -19,7 +19,7 @@ from scipy import optimize, stats
 
 from curvewright.core.notation import computed
 from curvewright.core.rounding import RoundingRule
-from tests.cli_runs import run_cli
+from tests.cli_runs import flat, run_cli
 from tests.test_cli_tables import write
 
 STANDARDS = [("C-01", 0.5, 55.83), ("C-02", 0.5, 49.96), ("C-03", 1, 104.21), ("C-04", 1, 98.47),
@@ -134,3 +134,44 @@ def test_a_sample_read_three_times_is_judged_against_the_limits_for_three_readin
     assert abs(sheet["Critical value x_c for 1 reading (not detected below it)"] - x_c1) < 1e-9
     assert abs(sheet["Critical value x_c for 3 readings (not detected below it)"] - x_c3) < 1e-9
     assert abs(sheet["Minimum detectable value x_d for 3 readings"] - x_d3) < 1e-8
+
+
+def test_the_calibration_table_shows_the_limits_by_the_runs_rule(tmp_path: Path) -> None:
+    # The run's rule (two decimals, the method's) governs every computed value: the calibration table's
+    # x_c, y_c and x_d too, in the workbook (the cell keeps the full number, its format shows two
+    # decimals) and in the record, as the command's text shows them (core/notation.py).
+    x = np.array([c for _, c, _ in STANDARDS])
+    y = np.array([r for _, _, r in STANDARDS])
+    x_c, y_c, x_d = iso11843(x, y)
+    std = write(tmp_path / "std.csv", ["Standard id,Level,Concentration (µg/L),Response (counts)",
+                                       *[f"{i},L,{c},{r}" for i, c, r in STANDARDS]])
+    smp = write(tmp_path / "smp.csv", ["Sample,Type,Dilution,Nominal,Response (counts)", "OV-110,unknown,1,,1905.0"])
+    method = tmp_path / "method.json"
+    method.write_text(json.dumps(METHOD), encoding="utf-8")
+    book, record = tmp_path / "out.xlsx", tmp_path / "out.pdf"
+    out = run_cli("quantify", "--standards", str(std), "--samples", str(smp), "--analyte", "cadmium", "--method",
+                  str(method), "--export", str(book), "--report", str(record))
+    assert out.returncode in (0, 1), out.stderr
+    rule = RoundingRule(**METHOD["rounding"])
+    wb = openpyxl.load_workbook(book)
+    try:
+        cells = {r[0].value: r[1] for r in wb["Calibration – cadmium"].iter_rows() if r and r[0].value}
+    finally:
+        wb.close()
+    for item, value in (("Critical value x_c (not detected below it)", x_c), ("Critical response y_c", y_c),
+                        ("Minimum detectable value x_d", x_d)):
+        cell = cells[item]
+        assert abs(cell.value - value) < 1e-8 * value, item  # the full number kept
+        assert cell.number_format == "0.00", (item, cell.number_format)
+        assert f"{cell.value:.2f}" == computed(value, rule)
+    import pypdfium2 as pdfium
+
+    pdf = pdfium.PdfDocument(str(record))
+    try:
+        text = flat(" ".join(pdf[i].get_textpage().get_text_range() for i in range(len(pdf))))
+    finally:
+        pdf.close()
+    for item, value in (("Criticalvaluex_c(notdetectedbelowit)", x_c), ("Criticalresponsey_c", y_c),
+                        ("Minimumdetectablevaluex_d", x_d)):
+        assert item + computed(value, rule) in text, item
+        assert item + f"{value:.6g}" not in text, item

@@ -154,7 +154,7 @@ def test_a_value_at_zero_within_its_resolution_reads_as_zero_not_round_off(tmp_p
                    "--concentration-unit", "mg/L", "--export", str(tmp_path / "tin.xlsx"), "--report",
                    str(tmp_path / "tin.pdf"))
     line = next(line for line in out.stdout.splitlines() if line.startswith("  Z "))
-    assert "0.0000  -0.0658 – 0.0657" in line and "e-" not in line and "00000000" not in line, line
+    assert "0.0000  −0.0658 – 0.0657" in line and "e-" not in line and "00000000" not in line, line
     book = openpyxl.load_workbook(tmp_path / "tin.xlsx")
     try:
         summary = sheet_rows(book, "Summary")[0]
@@ -166,5 +166,5 @@ def test_a_value_at_zero_within_its_resolution_reads_as_zero_not_round_off(tmp_p
         book.close()
     record = " ".join(unicodedata.normalize("NFKC", " ".join(
         page.extract_text() for page in PdfReader(tmp_path / "tin.pdf").pages)).split())
-    assert "0.0000 < 1.00 mg/L (LLOQ) -0.0658 – 0.0657" in record
+    assert "0.0000 < 1.00 mg/L (LLOQ) −0.0658 – 0.0657" in record
     assert not re.search(r"(?<![\d.])-?0\.0{10,}[1-9]", record)  # no round-off shown as digits of a result

@@ -58,7 +58,7 @@ def test_a_relative_error_that_rounds_to_zero_has_no_sign(tmp_path) -> None:
     record = printed_text(tmp_path / "zn.pdf")
     # the record's standards table: id, level, replicate, nominal, response, back-calculated, %RE, tolerance
     assert re.search(r"Zn-8a S8 1 10 11391\.5 10\.0 0\.0 20 yes", record), record
-    assert re.search(r"Zn-2a S2 1 1 1476\.1 0\.997 -0\.3 30 yes", record), record  # a sign where digits show
+    assert re.search(r"Zn-2a S2 1 1 1476\.1 0\.997 −0\.3 30 yes", record), record  # a sign where digits show
     book = openpyxl.load_workbook(tmp_path / "zn.xlsx")
     try:
         shown = relative_errors(book, "Standards – zinc")

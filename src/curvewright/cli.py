@@ -821,7 +821,15 @@ def _run_from_tables(args: argparse.Namespace, *, with_samples: bool) -> TableRu
     unusable = [(smp.source, smp.sheet, c) for c in smp.unusable_readings] if smp is not None else []
     warnings = [f"warning: {source}{'' if sheet is None else f', sheet {sheet!r}'}: {cell}"
                 for source, sheet, cell in unusable]
+    warnings += import_warnings(results, ("standards", "samples"))
     return TableRun(run, notes, warnings, unusable)
+
+
+def import_warnings(results, what: Sequence[str]) -> list[str]:  # type: ignore[no-untyped-def]
+    """What each import warned of (:attr:`.io.importing.ImportResult.warnings`), one line each, naming the
+    table, its file (and sheet) and the warning's own words (the columns or rows it concerns and why)."""
+    return [f"warning: {kind} table {r.source}{'' if r.sheet is None else f', sheet {r.sheet!r}'}: {w}"
+            for r, kind in zip(results, what) for w in r.warnings]
 
 
 def _refuse_one_table_as_both(standards: str, std_sheet: str | None, samples: str, smp_sheet: str | None) -> None:
@@ -1464,6 +1472,8 @@ def cmd_compare(args: argparse.Namespace) -> int:
         if args.runs:
             raise InputError("give either run documents or --standards, not both.")
         tables = _run_from_tables(args, with_samples=False)
+        for warning in tables.warnings:
+            print(f"curvewright: {warning}", file=sys.stderr)
         run, choices = _choose_recommended(tables.run)
         if not args.json:
             for note in tables.notes:

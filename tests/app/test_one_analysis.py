@@ -64,7 +64,8 @@ def test_every_output_reads_one_analysis(demo, make_window, tmp_path) -> None:
         assert entry["coefficients"] == cal.coefficients.tolist()
         assert cal.equation(10) in text and squeeze(f"Equation: {cal.equation(6)}") in squeeze(pages)
         # every digit of each coefficient in the record's appendix
-        assert all(repr(float(b)) in squeeze(pages) for b in cal.coefficients)
+        # (a negative one with the minus sign U+2212 a person reads, core/notation.py)
+        assert all(repr(float(b)).replace("-", "\u2212", 1 if b < 0 else 0) in squeeze(pages) for b in cal.coefficients)
         sheet = {r[0]: r[1] for r in book[f"Calibration – {name}"].iter_rows(min_row=4, values_only=True)}
         labels = [f"{n} ({w})" for n, w in zip(cal.coefficient_names, cal.coefficient_descriptions, strict=True)]
         assert [sheet[label] for label in labels] == cal.coefficients.tolist()

@@ -61,7 +61,7 @@ def test_the_record_exported_from_the_app_says_which_standards_are_anchor_points
     # the table may run on to the next page
     text = " ".join(" ".join(text_of(pdf[k]) for k in range(n, min(n + 2, len(pdf)))).split())
     for row in ("A1-1 A1 1 0.8 0.0519 0.878 +9.8 anchor point, not judged",
-                "A2-1 A2 1 6000 3.0064 3750 -37.5 anchor point, not judged",
+                "A2-1 A2 1 6000 3.0064 3750 −37.5 anchor point, not judged",
                 "A2-2 A2 2 6000 3.0968 9190 +53.2 anchor point, not judged",
                 "S1-1 S1 1 3 0.0729 3.01 +0.2 25 yes"):
         assert row in text, row

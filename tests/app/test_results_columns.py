@@ -137,6 +137,12 @@ def test_a_response_typed_into_the_standards_table_shows_new_results_and_curve(q
     assert not np.array_equal(sy, before_standards)
 
 
+def person(value: float) -> str:
+    """A number to five significant figures as a person reads it: a negative one with the minus sign U+2212."""
+    text = f"{value:.5g}"
+    return "\u2212" + text[1:] if text.startswith("-") else text
+
+
 def test_the_curves_hover_texts_are_the_result_objects(qtbot, make_window) -> None:
     """Hovering a sample's point names it from the analysis's columns, as its result object says it."""
     checked = 0
@@ -157,8 +163,8 @@ def test_the_curves_hover_texts_are_the_result_objects(qtbot, make_window) -> No
                     continue
                 expected.append((float(np.log10(s.estimate)) if log_x else s.estimate,
                                  float(np.log10(s.mean_response)) if log_y else s.mean_response,
-                                 f"{s.kind.words} {s.sample_id}: {s.estimate:.5g} {unit} "
-                                 f"({s.lower:.5g} to {s.upper:.5g}); {s.flag_words}"))
+                                 f"{s.kind.named(s.sample_id)}: {person(s.estimate)} {unit} "
+                                 f"({person(s.lower)} to {person(s.upper)}); {s.flag_words}"))
             assert expected and shown[len(shown) - len(expected):] == expected
             assert all(text.startswith("standard ") for _x, _y, text in shown[:len(shown) - len(expected)])
             checked += len(expected)

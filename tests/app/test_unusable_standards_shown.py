@@ -19,7 +19,7 @@ from tests.printed import printed_text
 STANDARDS = ("Conc\tResponse\n0.5\t0.0123\n0.5\t0.0127\n1\t0.0248\n1\t0.0251\n2.5\t0.0619\n2.5\t0.0622\n"
              "5\t0.1248\n5\t0.1239\n10\t0.2490\n10\t0.2502\n20\t0.4975\n20\t0.5010\n")
 EXPECTED = {"STD-3": "no response recorded", "STD-1": "concentration 'abc' is not a number",
-            "STD-5": "concentration -2.5 is below zero"}
+            "STD-5": "concentration −2.5 is below zero"}
 
 
 def _type_over(window, qtbot, row: int, col: int, text: str) -> None:  # type: ignore[no-untyped-def]

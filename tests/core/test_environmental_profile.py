@@ -120,4 +120,4 @@ def test_continuing_checks_are_judged_in_the_profile_windows() -> None:
     assert by_id["CCV-1"].within_limits is False
     # the unknown before the failed CCV is not bracketed by passing checks, so it is not reported
     assert by_id["U1"].reported_text == "not reportable"
-    assert "the check after it, CCV CCV-1 (run order 3), failed" in by_id["U1"].words
+    assert "the check after it, CCV-1 (run order 3), failed" in by_id["U1"].words

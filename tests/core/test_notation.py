@@ -27,7 +27,7 @@ THREE = RoundingRule("significant", 3, "half_up")
     (3e6, "3000000"),
     (9999999.7, "1.00 × 10⁷"),    # judged on the rounded value
     (12000000.0, "1.20 × 10⁷"),   # a whole number's zeros that are the rule's figures are kept
-    (-4.2e-9, "-4.20 × 10⁻⁹"),
+    (-4.2e-9, "−4.20 × 10⁻⁹"),  # a person's minus sign, U+2212
     (0.0, "0.00"),
 ])
 def test_computed_values_use_the_rule_digits_and_one_notation(value, text):

@@ -153,8 +153,8 @@ def test_only_samples_bracketed_by_passing_checks_are_reportable() -> None:
     ))
     by_id = {s.sample_id: s for s in result_of(run).samples}
     assert [by_id[k].reportable for k in "ABCDEF"] == [False, False, False, True, False, False]
-    assert "the check after it, CCV CCV-1 (run order 4), failed" in by_id["A"].flag_words
-    assert "follows the failed CCV CCV-1" in by_id["C"].flag_words
+    assert "the check after it, CCV-1 (run order 4), failed" in by_id["A"].flag_words
+    assert "follows the failed CCV-1" in by_id["C"].flag_words
     assert "no calibration check follows it" in by_id["E"].flag_words
     assert "no run order" in by_id["F"].flag_words
     assert by_id["D"].reported_text == "3.00" and by_id["C"].reported_text == "not reportable"

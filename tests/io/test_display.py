@@ -18,7 +18,7 @@ THREE = RoundingRule("significant", 3)
         # half-width 0.38 → to the second significant figure of the half-width, 0.01 (GUM §7.2.6)
         (130.62, 131.38, THREE, "130.62 – 131.38"),
         # never coarser than the reported value's rounding: 0.00494 → 5 decimals
-        (-0.0056634, 0.015504, THREE, "-0.00566 – 0.01550"),
+        (-0.0056634, 0.015504, THREE, "−0.00566 – 0.01550"),
         # a wide interval: half-width 120, to the tens (GUM §7.2.6); three significant figures of the ends
         # keep the tens too, so no units are added to them
         (1380.2, 1620.7, THREE, "1380 – 1620"),

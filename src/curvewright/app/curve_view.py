@@ -1025,7 +1025,7 @@ class CurveView(QWidget):
         for i in estimated:
             if (log_x and estimate[i] <= 0) or (log_y and mean[i] <= 0):
                 continue
-            out.append((tx(estimate[i]), ty(mean[i]), f"{columns.kinds[i].words} {columns.ids[i]}: {sig_figures(estimate[i], 5)} {unit} "
+            out.append((tx(estimate[i]), ty(mean[i]), f"{columns.kinds[i].named(columns.ids[i])}: {sig_figures(estimate[i], 5)} {unit} "
                         f"({sig_figures(lower[i], 5)} to {sig_figures(upper[i], 5)}); {flag_words_of(columns.words[i], columns.notes[i])}"))
         return out
 

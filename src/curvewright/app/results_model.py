@@ -271,7 +271,7 @@ class ResultsModel(QAbstractTableModel):
         """Everything about one sample's result in words (the tooltip and the details line)."""
         unit = self.analyte.analyte.concentration_unit if self.analyte else ""
         level = f"{percent_label(self.result.run.settings.confidence_level)}" if self.result else ""
-        parts = [f"{s.kind.words} {s.sample_id}"]
+        parts = [s.kind.named(s.sample_id)]
         if s.reported is not None:
             parts.append(f"reported {s.reported_text or self._rounded(s)}; value {self._rounded(s)} {unit} ({level} interval "
                          f"{interval_text(s.reported_lower, s.reported_upper, self._rule)} {unit}); estimate {display_number(s.estimate)} {unit} × dilution "

@@ -23,7 +23,7 @@ from typing import Sequence
 
 from .acceptance import CheckRules
 from .limit_digits import BOUNDARY, recovery_decimals
-from .reporting import ReportingRange, ReportStatus
+from .reporting import CENSORED_BELOW, CENSORED_BOUND, ReportingRange, ReportStatus, censored_text
 from .run import SampleKind
 from .notation import entered, figures
 
@@ -68,7 +68,7 @@ class CheckInput:
 def judge_check(c: CheckInput, rules: CheckRules, rng: ReportingRange | None, profile: str, unit: str = "") -> CheckResult:
     """Judge one calibration check against the profile's window for its kind."""
     u = f" {unit}" if unit else ""
-    label = f"{c.kind.words} {c.sample_id}" + (f" (run order {c.run_order})" if c.run_order is not None else "")
+    label = c.kind.named(c.sample_id) + (f" (run order {c.run_order})" if c.run_order is not None else "")
 
     def result(passed: bool, reason: str, recovery: float | None = None, window: float | None = None) -> CheckResult:
         return CheckResult(c.sample_id, c.kind, c.run_order, c.nominal, c.reported, recovery, window, passed,
@@ -77,8 +77,18 @@ def judge_check(c: CheckInput, rules: CheckRules, rng: ReportingRange | None, pr
     if c.kind is SampleKind.CALIBRATION_BLANK:
         if rules.calibration_blank_below is None:
             return result(False, f"profile {profile!r} sets no rule for calibration blanks; it cannot be judged")
-        if c.status is ReportStatus.NOT_QUANTIFIED and c.note.startswith("reported as censored"):
+        if c.status is ReportStatus.NOT_QUANTIFIED and c.note.startswith(CENSORED_BELOW):
             return result(True, f"non-detect ({c.note.split(': ', 1)[-1]})")
+        if c.status is ReportStatus.NOT_QUANTIFIED and c.note.startswith(CENSORED_BOUND) and rng is not None:
+            # a censored statement that is no non-detect: "> ULOQ", or "< bound" with the bound above the
+            # reporting limit, which leaves the blank anywhere below the bound, at the limit and above it
+            statement = censored_text(c.note)
+            limit = f"{figures(rng.reporting_limit * c.dilution, 4)}{u}"
+            why = ("a result above the calibrated range" if statement.startswith(">") else
+                   f"its bound lies above the reporting limit {limit}, so the blank may lie at the limit or above it")
+            return result(False, f"reported as {statement}, a censored result that is not a non-detect: {why}; "
+                          f"a calibration blank passes only below the reporting limit {limit} "
+                          f"({c.note.split(' — ', 1)[-1]})")
         if c.reported is None or rng is None:
             return result(False, f"no usable result ({c.note or 'no numeric response'})")
         limit = rng.reporting_limit * c.dilution
@@ -127,9 +137,9 @@ def bracketing(samples: Sequence[tuple[str, int | None]], checks: Sequence[Check
         previous = before[-1] if before else None
         following = after[0] if after else None
         if previous is not None and not previous.passed:
-            out[sid] = f"it follows the failed {previous.kind.words} {previous.sample_id} (run order {previous.run_order})"
+            out[sid] = f"it follows the failed {previous.kind.named(previous.sample_id)} (run order {previous.run_order})"
         elif following is not None and not following.passed:
-            out[sid] = (f"the check after it, {following.kind.words} {following.sample_id} (run order "
+            out[sid] = (f"the check after it, {following.kind.named(following.sample_id)} (run order "
                         f"{following.run_order}), failed")
         elif following is None:
             out[sid] = f"no calibration check follows it (the last is {ordered[-1].sample_id}, run order {ordered[-1].run_order})"

@@ -20,6 +20,12 @@ glance. Both ends of a range are written in the same notation (:func:`span`): if
 exponent, both have one. Whether a value is plain is judged on the written (rounded) value, so 9999999.7
 rounded to 1.00 × 10⁷ is written with its exponent.
 
+The minus sign. Text for a person writes a negative number with the minus sign U+2212 ("−0.042",
+"−3.2 × 10⁻⁵"), as the equations write their terms, so that a sign is never read as a hyphen or a
+dash beside the en dash between an interval's ends; text for programs (:func:`machine`, the
+``machine`` form of :func:`written`) writes the ASCII hyphen-minus, which ``float()`` and every
+spreadsheet read. :func:`written` is the one place a person's minus is made.
+
 Python's exponent forms ("1e-06", "3e+06") are never shown to a person. Where a file's text field is
 read by programs (CSV cells, JSON strings), :func:`machine` writes the same digits as "3.20e-5",
 which every spreadsheet and ``float()`` read back; JSON numbers stay numbers and workbook cells that
@@ -43,6 +49,11 @@ if TYPE_CHECKING:  # pragma: no cover
 PLAIN_FROM = Decimal("1e-4")
 PLAIN_BELOW = Decimal("1e7")
 """Magnitudes written in plain decimals (zero too); an exponent outside them."""
+
+MINUS = "\u2212"
+"""The minus sign of a negative number written for a person (U+2212)."""
+_HYPHEN_SIGN = re.compile(r"^-(?=[\d.,])")
+_HUMAN_SIGN = re.compile(r"\u2212(?=[\d.,])")
 
 TIMES = "\u00a0×\u00a010"
 """Between the mantissa and the power: no-break spaces, so that a table cell never breaks a number."""
@@ -96,6 +107,18 @@ def _digits(d: Decimal, significant: int | None, padded: bool = True) -> tuple[s
 
 def written(text: str, *, significant: int | None = None, scientific: bool | None = None,
             machine: bool = False) -> str:
+    """A number's plain text in this module's notation, a negative one with the person's minus sign
+    (``machine``: the hyphen-minus programs read); see :func:`_written`."""
+    if not scientific and _SURELY_PLAIN.match(text):  # the common case, plain as it stands
+        return MINUS + text[1:] if text[:1] == "-" and not machine else text
+    out = _written(text, significant=significant, scientific=scientific, machine=machine)
+    if machine:
+        return _HUMAN_SIGN.sub("-", out) if MINUS in out else out
+    return _HYPHEN_SIGN.sub(MINUS, out) if out[:1] == "-" else out
+
+
+def _written(text: str, *, significant: int | None = None, scientific: bool | None = None,
+             machine: bool = False) -> str:
     """A number's plain text (as a rounding rule, :func:`.number_words.full_number` or a format gives it)
     in the notation of this module: unchanged where plain, else "3.20 × 10⁻⁵" (``machine``: "3.20e-5").
     ``significant`` is the count of significant figures the text holds when it is a whole number whose
@@ -131,7 +154,10 @@ _PLAIN_SUPERSCRIPT = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹⁻", "0123456789
 def machine(text: str) -> str:
     """A text for a file's text field (a CSV cell, a JSON string): every number :func:`written` put in
     scientific notation ("< 3.20 × 10⁻⁵ mg/L (LLOQ)") in the form programs read ("< 3.20e-5 mg/L
-    (LLOQ)"); the rest unchanged."""
+    (LLOQ)"), and a person's minus sign before a number as the hyphen-minus ("−0.042": "-0.042");
+    the rest unchanged."""
+    if MINUS in text:
+        text = _HUMAN_SIGN.sub("-", text)  # a person's minus sign before a number: the hyphen-minus
     if "×" not in text:
         return text
     return _WRITTEN.sub(lambda m: f"{m.group(1)}e{m.group(2).translate(_PLAIN_SUPERSCRIPT)}", text)
@@ -173,7 +199,7 @@ def computed_within(value: float, lower: float | None, upper: float | None, rule
     interval's place."""
     text = rule.text_within(value, lower, upper) if text is None else text
     if _SURELY_PLAIN.match(text):
-        return text
+        return _HYPHEN_SIGN.sub(MINUS, text) if text[:1] == "-" else text
     if "." in text or "," in text:
         return written(text)  # its zeros after the mark are figures
     if text == rule.text(value):

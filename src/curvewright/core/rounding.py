@@ -22,7 +22,9 @@ figures and the result to the same decimal place). The run's rule (a method's, o
 significant figures) stands unless it would show the value outside its interval as printed
 (:func:`interval_places`), or end a whole number in zeros that read as exact digits ("14500") where
 the interval supports digits there (the place of the second significant figure of its half-width);
-then the value is shown to the decimal place of its printed interval. A value that rounds to zero at
+then the value is shown to the decimal place of its printed interval. A whole number written with an
+exponent (from 1e7 up, :mod:`.notation`: "2.03 × 10⁸") ends in no zero read as exact, so for it only
+the first reason holds, as for a decimal. A value that rounds to zero at
 the place of the second significant figure of its half-width (a response equal to the intercept gives
 3.55e-15 with an interval of ±0.066) is indistinguishable from zero at the calibration's resolution and
 is shown as zero to the interval's decimal place ("0.000"), never as round-off digits. So 1705105.57 with
@@ -37,6 +39,7 @@ import math
 from typing import Iterable
 from decimal import ROUND_HALF_EVEN, ROUND_HALF_UP, Decimal, localcontext
 
+from .notation import is_plain
 from .values import frozen_value
 from .errors import CurvewrightError
 
@@ -149,7 +152,7 @@ class RoundingRule:
             return None
         text = self.text(value) if text is None else text
         places = interval_places(lower, upper, self)
-        kept = _kept_exponent(text)
+        kept = _kept_exponent(text) if is_plain(text) else 0  # "2.03 × 10⁸": no zero read as exact
         # zeros ending a whole number ("14500") read as exact digits: they may stand only beyond the place
         # of the second significant figure of the half-width, which the interval's own print keeps
         second_figure = 1 - math.floor(math.log10((upper - lower) / 2.0))
@@ -227,7 +230,7 @@ def _plainly_within(value: float, lower: float, upper: float, text: str) -> bool
     if abs(value) < unit:
         return False
     kept = _kept_exponent(text)
-    if kept > 0 and -kept < second_figure:
+    if kept > 0 and -kept < second_figure and is_plain(text):
         return False  # zeros that would read as exact digits: the full test decides
     slack = 1.01 * (0.5 * 10.0 ** kept + 0.5 * unit)
     return value - lower > slack and upper - value > slack

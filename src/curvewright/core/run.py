@@ -109,6 +109,17 @@ class SampleKind(str, Enum):
     def words(self) -> str:
         return _KIND_WORDS[self.value]
 
+    def named(self, sample_id: str) -> str:
+        """The kind and a sample's id in words, the kind said once: "ICV ICV-2" would repeat it, so an id
+        that begins with the kind's words (in any case, followed by no letter or digit) stands alone
+        ("ICV 10 (second source)", "CCV-1"); any other id follows the kind ("check standard Check 5 mg/L",
+        "QC sample QC low")."""
+        words = self.words
+        head, rest = sample_id[:len(words)], sample_id[len(words):]
+        if head.casefold() == words.casefold() and not rest[:1].isalnum():
+            return sample_id
+        return f"{words} {sample_id}"
+
     @property
     def is_check(self) -> bool:
         """A calibration check: judged against its own window, and bracketing the samples around it."""

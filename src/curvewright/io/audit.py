@@ -197,6 +197,9 @@ class RecordedSignature:
     meaning: str
     held: bool
     """Whether the document still holds the signature (the same role, person, time and signed content)."""
+    key_fingerprint: str = ""
+    """The fingerprint of the key the signature was made with, as the trail records it ("" when not keyed,
+    and for a withdrawal)."""
 
     @property
     def removed_words(self) -> str:
@@ -205,7 +208,8 @@ class RecordedSignature:
         if self.role == "approval withdrawn":
             return (f"audit entry {self.entry} records the withdrawal of an approval by {self.name}, "
                     f"{self.time_utc}, that the file no longer holds")
-        return (f"audit entry {self.entry} records a {self.role}'s signature by {self.name}, {self.time_utc}, that the "
+        article = "an" if self.role[:1] in ("a", "e", "i", "o", "u") else "a"  # an analyst's, an approver's
+        return (f"audit entry {self.entry} records {article} {self.role}'s signature by {self.name}, {self.time_utc}, that the "
                 f"file no longer holds: it was removed from the file, so the {self.role}'s signature line is open again")
 
 
@@ -220,14 +224,16 @@ def recorded_signatures(run) -> tuple[RecordedSignature, ...]:  # type: ignore[n
             role, name = e.details.get("role", ""), e.details.get("name", "") or e.analyst
             wanted = (role, name, e.time_utc, e.details.get("signed_content_sha256", "") or e.content_sha256)
             person_id, meaning = e.details.get("person_id", "") or e.analyst_id, e.details.get("meaning", "")
+            key = e.details.get("key_fingerprint") or ""
         elif e.action == "approval_withdrawn":
             wanted = ("approval withdrawn", e.analyst, e.time_utc, e.content_sha256)
             name, person_id, meaning = e.analyst or e.user, e.analyst_id, e.details.get("reason", "")
+            key = ""
         else:
             continue
         kept = any(all(not w or w == h for w, h in zip(wanted, row)) and row[2] == e.time_utc for row in held)
         out.append(RecordedSignature(number, wanted[0], str(name), str(person_id or ""), e.time_utc, str(meaning or ""),
-                                     kept))
+                                     kept, str(key)))
     return tuple(out)
 
 

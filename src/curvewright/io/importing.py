@@ -806,7 +806,7 @@ class _Context:
         return int(value)
 
     def result(self, **parts) -> ImportResult:  # type: ignore[no-untyped-def]
-        if self.table.delimiter is not None:
+        if self.table.delimiter is not None and self.table.sha256 is None:  # pasted text, not a file
             self.warnings.append(
                 "values copied from a spreadsheet carry only the digits it displayed; paste from a "
                 "full-precision column if the displayed values were rounded"

@@ -53,7 +53,9 @@ class Column:
     (:func:`~curvewright.core.limit_digits.decimals_beside_limits`); WINDOW is the column holding
     the row's window, or ``@NAME``: the table's window for the row's value in column NAME) and
     ``"item:NAME"`` (``"full"`` for a row whose item, in column NAME, is one of the table's ``entered``
-    items, a value a person entered such as a calibrated range's end; ``"plain"`` otherwise). Unsettled,
+    items, a value a person entered such as a calibrated range's end; ``"rule"`` for one of its ``ruled``
+    items, a computed concentration such as the LOD, shown by the run's rounding rule like every other
+    computed value; ``"plain"`` otherwise). Unsettled,
     they show six significant figures (``"beside:"``: its usual decimals; ``"item:"``: ``"plain"``). The workbook keeps every number at full precision and only
     formats it so; the printed record prints it so.
     """
@@ -164,6 +166,7 @@ class Table:
     rounding: RoundingRule | None = None
     windows: tuple[tuple[str, float], ...] = ()  # for a "beside:...:@NAME" column: the window by the value in NAME
     entered: tuple[str, ...] = ()  # for an "item:NAME" column: the items whose value was entered, shown in full
+    ruled: tuple[str, ...] = ()  # for an "item:NAME" column: the items shown by the run's rule (``rounding``)
     notice: str = ""
     """What a reader must not miss about the whole table (a record that is not intact), beside its title."""
 
@@ -206,7 +209,9 @@ class Table:
             elif kind == "beside":
                 display = self._beside(self.columns[j].display, row[j], row, source)
             elif kind == "item":
-                display = "full" if source >= 0 and row[source] in self.entered else "plain"
+                item = row[source] if source >= 0 else None
+                display = ("full" if item in self.entered else
+                           "rule" if item in self.ruled and self.rounding is not None else "plain")
             else:
                 places = entered_decimals(row[source]) if source >= 0 else None
                 display = "sig:6" if places is None else f"dec:{places}"
@@ -314,7 +319,9 @@ def band_method_words(cal: Calibration) -> str:
 
 
 def samples_table(result: RunResult) -> Table:
-    """One row per sample × analyte: what is reported (text), and the working behind it at full precision."""
+    """One row per sample × analyte: what is reported (text), and the working behind it at full precision.
+    The standard error and the interval's ends are on the reported scale (the solution measured × the
+    dilution factor), as their headings say."""
     rule = result.run.settings.rounding
     unit = {a.analyte.name: a.analyte.concentration_unit for a in result.analytes}
     columns = (
@@ -323,7 +330,9 @@ def samples_table(result: RunResult) -> Table:
         Column("Estimated concentration", kind="number", display="within:Dilution factor"),
         Column("Dilution factor", kind="number", display="full"),
         Column("Concentration × dilution", kind="number", display="within"), Column("Reported", kind="reported"),
-        Column("Lower limit", kind="number", display="interval"), Column("Upper limit", kind="number", display="interval"),
+        Column("Standard error × dilution", kind="number", display="sig:3"),
+        Column("Lower limit × dilution", kind="number", display="interval"),
+        Column("Upper limit × dilution", kind="number", display="interval"),
         Column("Interval", kind="words"), Column("Unit"), Column("Status"), Column("Flags", kind="words"),
         Column("Suggested dilution", kind="number", display="plain"), Column("Nominal", kind="number", display="full"),
         Column("Recovery (%)", kind="number", display="beside:dec:1:100:@Kind"), Column("QC or check"),
@@ -346,7 +355,7 @@ def samples_table(result: RunResult) -> Table:
                 replicate_text(s.replicate_responses, readings, a.analyte.uses_internal_standard),
                 s.mean_response, s.estimate, s.dilution_factor,
                 s.reported, s.reported_text or (None if s.reported is None else rule.text_within(s.reported, s.reported_lower, s.reported_upper)),
-                s.reported_lower, s.reported_upper, words if s.reported is not None else "",
+                s.reported_standard_error, s.reported_lower, s.reported_upper, words if s.reported is not None else "",
                 unit[s.analyte], STATUS_WORDS[s.status], s.flag_words, s.suggested_dilution, s.nominal,
                 s.recovery_percent, qc_word(s.kind, s.within_limits),
             ))
@@ -421,7 +430,9 @@ def checks_table(a: AnalyteResult, rule: RoundingRule | None = None) -> Table:
 _CALIBRATION_COLUMNS = (Column("Item"), Column("Value", display="item:Item"), Column("Standard error", display="sig:3"))
 """The calibration table's columns: a value that is a standard's concentration as entered (the table's
 ``entered`` items) is shown in full (:func:`~curvewright.core.number_words.full_number`), as the
-standards table shows it; every other value to six significant figures at most."""
+standards table shows it; a computed limit (the LOD, LOQ, x_c, y_c, x_d and a reporting limit taken
+from them: the table's ``ruled`` items) by the run's rounding rule, as every other output shows it;
+every other value to six significant figures at most."""
 
 
 def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
@@ -473,6 +484,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     rows.append(("Mandel's test PG (ISO 8466-1)", mandel[0], None))
     rows.append(("Mandel's test p", mandel[1], None))
     entered: list[str] = []  # the items whose value is a standard's concentration as entered
+    ruled: list[str] = []  # the computed limits, shown by the run's rounding rule
     if a.reporting is not None:
         narrowed = a.reporting.narrowing
         ends = [("Calibrated range, LLOQ (lowest passing non-zero standard)" if narrowed else
@@ -483,6 +495,8 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         entered += [item for item, _, _ in ends]
         if a.reporting.basis == "LLOQ" and a.reporting.reporting_limit == a.reporting.lloq:
             entered.append("Reporting limit (LLOQ)")
+        else:  # the LOQ or x_c: a computed limit
+            ruled.append(f"Reporting limit ({a.reporting.basis})")
         if narrowed:
             rows += [("Range of the standards in the fit", f"{full_number(a.reporting.standards_range[0])}–"
                       f"{full_number(a.reporting.standards_range[1])}", None),
@@ -510,13 +524,16 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         if a.limits.critical_concentration is not None:
             rows += [(f"Critical value x_c{one} (not detected below it)", a.limits.critical_concentration, None),
                      (f"Critical response y_c{one}", a.limits.critical_response, None)]
-        rows += [(f"Minimum detectable value x_d{one}" if a.limits.critical_concentration is not None else "LOD",
-                  a.limits.lod, None)]
+            ruled += [f"Critical value x_c{one} (not detected below it)", f"Critical response y_c{one}"]
+        lod_label = f"Minimum detectable value x_d{one}" if a.limits.critical_concentration is not None else "LOD"
+        ruled += [lod_label, "LOQ"]
+        rows += [(lod_label, a.limits.lod, None)]
         for by_k in a.limits_by_readings:
             k = by_k.readings
-            rows += [(f"Critical value x_c for {k} readings (not detected below it)", by_k.critical_concentration, None),
-                     (f"Critical response y_c for {k} readings", by_k.critical_response, None),
-                     (f"Minimum detectable value x_d for {k} readings", by_k.lod, None)]
+            labels = [f"Critical value x_c for {k} readings (not detected below it)",
+                      f"Critical response y_c for {k} readings", f"Minimum detectable value x_d for {k} readings"]
+            rows += list(zip(labels, (by_k.critical_concentration, by_k.critical_response, by_k.lod), (None,) * 3))
+            ruled += labels
         rows += [("LOQ", a.limits.loq if a.limits.loq is not None else "not defined by this method", None),
                  ("LOD/LOQ method", a.limits.description, None)]
     else:
@@ -535,7 +552,8 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         rows.append(("Calibration check windows, source", result.profile.checks.source, None))
     for u in a.unusable_standards:
         rows.append(("Standard not usable", f"{u.standard_id}: {u.reason}", None))
-    return Table(f"Calibration – {an.name}", _CALIBRATION_COLUMNS, tuple(rows), entered=tuple(entered))
+    return Table(f"Calibration – {an.name}", _CALIBRATION_COLUMNS, tuple(rows), rule, entered=tuple(entered),
+                 ruled=tuple(ruled))
 
 
 def rule_departures(a: AnalyteResult, rule: RoundingRule) -> tuple[str, ...]:
@@ -624,7 +642,8 @@ def signatures_table(result: RunResult) -> Table:
          "holds" if c.holds else "does NOT hold", c.words)
         for c in check_signatures(result.run)
     ) + tuple(
-        (r.role, r.name, r.person_id, r.time_utc, r.meaning, "", "NOT in the file", r.removed_words)
+        (r.role, r.name, r.person_id, r.time_utc, r.meaning,
+         r.key_fingerprint or ("" if r.role == "approval withdrawn" else "not keyed"), "NOT in the file", r.removed_words)
         for r in recorded_signatures(result.run) if not r.held
     )
     columns = (Column("Role"), Column("Name"), Column("ID"), Column("Time (UTC)"), Column("Meaning"),
@@ -645,16 +664,25 @@ A person with only these entries is not one of the run's analysts."""
 
 def analysts_of(result: RunResult) -> tuple[str, ...]:
     """The analysts: the people in the audit trail who entered, changed or judged the data, or signed
-    as analyst, in the order they first appear (a reviewer or approver who only signed is not one)."""
+    as analyst, in the order they first appear (a reviewer or approver who only signed is not one).
+    An analyst's signature the file no longer holds (:func:`.audit.recorded_signatures`) makes no one
+    an analyst: a person named only by it is named with what the trail records, as :func:`signers_of`
+    names a removed reviewer's or approver's signature, never as having signed."""
+    from .audit import recorded_signatures
     from .audit_words import who
 
+    removed = {r.entry: r for r in recorded_signatures(result.run) if not r.held and r.role == "analyst"}
     seen: list[str] = []
-    for e in result.run.audit:
-        works = e.action not in NOT_ANALYSIS or (e.action == "signed" and e.details.get("role") == "analyst")
+    lost: list[tuple[str, str]] = []  # (person, what the trail records) of each removed analyst signature
+    for number, e in enumerate(result.run.audit, start=1):
         person = who(e)
+        if number in removed:
+            lost.append((person, removed[number].removed_words))
+            continue
+        works = e.action not in NOT_ANALYSIS or (e.action == "signed" and e.details.get("role") == "analyst")
         if works and person not in seen:
             seen.append(person)
-    return tuple(seen)
+    return tuple(seen) + tuple(f"{person}: NOT signed — {words}" for person, words in lost if person not in seen)
 
 
 def signers_of(result: RunResult, role: str) -> tuple[str, ...]:
