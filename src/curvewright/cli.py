@@ -1371,9 +1371,10 @@ class _SampleRows:
 
         in_range = ReportStatus.IN_RANGE
         for _, c in self.columns.chunks():
-            for (sid, kind, order, count, quantified, mean, est, se, low, high, df, nominal, recovery, within, bits,
-                 suggested, note, status, reported_text, words, short) in zip(
-                    c["ids"], c["kinds"], c["run_orders"], c["replicate_counts"], c["quantified"], c["mean_response"],
+            for (sid, kind, order, count, entered_count, censored, quantified, mean, est, se, low, high, df, nominal,
+                 recovery, within, bits, suggested, note, status, reported_text, words, short) in zip(
+                    c["ids"], c["kinds"], c["run_orders"], c["replicate_counts"], c["reading_counts"],
+                    c["censored_counts"], c["quantified"], c["mean_response"],
                     c["estimate"], c["standard_error"], c["lower"], c["upper"], c["dilution"], c["nominal"],
                     c["recovery_percent"], c["within_limits"], c["flags"], c["suggested_dilution"], c["notes"],
                     c["statuses"], c["texts"], c["words"], c["shorts"]):
@@ -1391,7 +1392,8 @@ class _SampleRows:
                 if flag_names is None:
                     flag_names = names[bits] = list(_flag_names(bits))
                 yield {
-                    "id": sid, "kind": words_of[kind], "run_order": order, "replicates": count,
+                    "id": sid, "kind": words_of[kind], "run_order": order,
+                    "replicates": max(entered_count, count), "replicates_measured": count, "replicates_censored": censored,
                     "mean_response": mean, "estimate": estimate, "standard_error": se,
                     "lower": low, "upper": high, "dilution_factor": df, "reported": reported,
                     "reported_standard_error": reported_se,
