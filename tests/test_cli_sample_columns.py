@@ -55,7 +55,8 @@ def write(path: Path, lines: list[str]) -> Path:
 def reference_row(rounding, s) -> dict:  # type: ignore[no-untyped-def]
     """One sample's JSON row made from its result object: the definition the columns must meet."""
     return {
-        "id": s.sample_id, "kind": s.kind.value, "run_order": s.run_order, "replicates": len(s.replicate_responses),
+        "id": s.sample_id, "kind": s.kind.value, "run_order": s.run_order, "replicates": s.replicates,
+        "replicates_measured": len(s.replicate_responses), "replicates_censored": s.censored_readings,
         "mean_response": s.mean_response, "estimate": s.estimate, "standard_error": s.standard_error,
         "lower": s.lower, "upper": s.upper, "dilution_factor": s.dilution_factor, "reported": s.reported,
         "reported_standard_error": s.reported_standard_error,

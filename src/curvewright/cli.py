@@ -91,7 +91,9 @@ exit codes:
   1  completed, but a run failed its acceptance profile or the run's record is not intact
      (its data changed outside Curvewright, its audit trail altered, a signature lost or not
      holding: the problems check reports, and check exits 1); compare: for an analyte no
-     candidate is acceptable, so no model is recommended (the evidence says why)
+     candidate is acceptable, so no model is recommended (the evidence says why), or no
+     comparison could be made at all (too few standards or levels for any candidate: the
+     reason is printed in its place)
   2  input error (the message names the file, row and field); with tables also when sample
      readings could not be read: the rest is still quantified and reported, the cells are listed,
      and --allow-unreadable accepts them
@@ -1386,9 +1388,10 @@ class _SampleRows:
 
         in_range = ReportStatus.IN_RANGE
         for _, c in self.columns.chunks():
-            for (sid, kind, order, count, quantified, mean, est, se, low, high, df, nominal, recovery, within, bits,
-                 suggested, note, status, reported_text, words, short) in zip(
-                    c["ids"], c["kinds"], c["run_orders"], c["replicate_counts"], c["quantified"], c["mean_response"],
+            for (sid, kind, order, count, entered_count, censored, quantified, mean, est, se, low, high, df, nominal,
+                 recovery, within, bits, suggested, note, status, reported_text, words, short) in zip(
+                    c["ids"], c["kinds"], c["run_orders"], c["replicate_counts"], c["reading_counts"],
+                    c["censored_counts"], c["quantified"], c["mean_response"],
                     c["estimate"], c["standard_error"], c["lower"], c["upper"], c["dilution"], c["nominal"],
                     c["recovery_percent"], c["within_limits"], c["flags"], c["suggested_dilution"], c["notes"],
                     c["statuses"], c["texts"], c["words"], c["shorts"]):
@@ -1406,7 +1409,8 @@ class _SampleRows:
                 if flag_names is None:
                     flag_names = names[bits] = list(_flag_names(bits))
                 yield {
-                    "id": sid, "kind": words_of[kind], "run_order": order, "replicates": count,
+                    "id": sid, "kind": words_of[kind], "run_order": order,
+                    "replicates": max(entered_count, count), "replicates_measured": count, "replicates_censored": censored,
                     "mean_response": mean, "estimate": estimate, "standard_error": se,
                     "lower": low, "upper": high, "dilution_factor": df, "reported": reported,
                     "reported_standard_error": reported_se,
@@ -1508,15 +1512,17 @@ def cmd_compare(args: argparse.Namespace) -> int:
 def _print_evidence(run, result, as_json: bool, payload: list[dict[str, Any]],  # type: ignore[no-untyped-def]
                     choices: Mapping[str, ModelChoice] | None) -> bool:
     """Print (or add to ``payload``) the evidence table of each analyte; ``choices`` for a table's recommendation.
-    True when the comparison of an analyte recommends no model (no candidate is acceptable): ``compare``
-    then ends with exit code 1, a result that needs the analyst's decision."""
+    True when for an analyte no model is recommended (no candidate is acceptable, or no comparison could
+    be made: too few standards or levels for any candidate, no standards at all): ``compare`` then ends
+    with exit code 1, a result that needs the analyst's decision."""
     from .core.comparison import ModelComparison
     from .io.report import evidence_table
 
     nothing_recommended = False
     for a in result.analytes:
         comparison = result.evidence.get(a.analyte.name)
-        if isinstance(comparison, ModelComparison) and comparison.recommendation is None:
+        # no candidate acceptable, or no comparison made at all (too few standards or levels): nothing recommended
+        if not isinstance(comparison, ModelComparison) or comparison.recommendation is None:
             nothing_recommended = True
         table, reasons = evidence_table(result, a)
         choice = (choices or {}).get(a.analyte.name)

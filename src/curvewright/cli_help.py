@@ -138,7 +138,9 @@ TEXTS: dict[tuple[str, ...], str] = {
         "  1  completed, but a run failed its acceptance profile or the run's record is not intact\n"
         '     (its data changed outside Curvewright, its audit trail altered, a signature lost or not\n'
         '     holding: the problems check reports, and check exits 1); compare: for an analyte no\n'
-        '     candidate is acceptable, so no model is recommended (the evidence says why)\n'
+        '     candidate is acceptable, so no model is recommended (the evidence says why), or no\n'
+        '     comparison could be made at all (too few standards or levels for any candidate: the\n'
+        '     reason is printed in its place)\n'
         '  2  input error (the message names the file, row and field); with tables also when sample\n'
         '     readings could not be read: the rest is still quantified and reported, the cells are listed,\n'
         '     and --allow-unreadable accepts them\n'
@@ -261,7 +263,9 @@ TEXTS: dict[tuple[str, ...], str] = {
         "  1  completed, but a run failed its acceptance profile or the run's record is not intact\n"
         '     (its data changed outside Curvewright, its audit trail altered, a signature lost or not\n'
         '     holding: the problems check reports, and check exits 1); compare: for an analyte no\n'
-        '     candidate is acceptable, so no model is recommended (the evidence says why)\n'
+        '     candidate is acceptable, so no model is recommended (the evidence says why), or no\n'
+        '     comparison could be made at all (too few standards or levels for any candidate: the\n'
+        '     reason is printed in its place)\n'
         '  2  input error (the message names the file, row and field); with tables also when sample\n'
         '     readings could not be read: the rest is still quantified and reported, the cells are listed,\n'
         '     and --allow-unreadable accepts them\n'
@@ -341,7 +345,9 @@ TEXTS: dict[tuple[str, ...], str] = {
         "  1  completed, but a run failed its acceptance profile or the run's record is not intact\n"
         '     (its data changed outside Curvewright, its audit trail altered, a signature lost or not\n'
         '     holding: the problems check reports, and check exits 1); compare: for an analyte no\n'
-        '     candidate is acceptable, so no model is recommended (the evidence says why)\n'
+        '     candidate is acceptable, so no model is recommended (the evidence says why), or no\n'
+        '     comparison could be made at all (too few standards or levels for any candidate: the\n'
+        '     reason is printed in its place)\n'
         '  2  input error (the message names the file, row and field); with tables also when sample\n'
         '     readings could not be read: the rest is still quantified and reported, the cells are listed,\n'
         '     and --allow-unreadable accepts them\n'

@@ -139,8 +139,9 @@ def test_export_and_read_the_workbook_back(make_window, qtbot, tmp_path) -> None
     book = openpyxl.load_workbook(path)
     assert "Calibration – zinc" in book.sheetnames
     rows = list(book["Samples"].iter_rows(min_row=4, values_only=True))
+    column = next(book["Samples"].iter_rows(min_row=3, max_row=3, values_only=True)).index("Concentration × dilution")
     shown = [window.results_model.rows[i].reported for i in range(window.results_model.rowCount())]
-    assert [r[9] for r in rows] == shown
+    assert [r[column] for r in rows] == shown
     assert window.session.run.audit[-1].action == "export_written"
     assert window.export_plot(path=str(tmp_path / "curve.png")) and (tmp_path / "curve.png").stat().st_size > 1000
     assert window.export_plot(path=str(tmp_path / "curve.svg")) and "<svg" in (tmp_path / "curve.svg").read_text()[:500]

@@ -18,7 +18,7 @@ from ..core.rounding import RoundingRule
 from ..core.run import Analyte, Run
 from ..io import run_edits
 from ..io.audit import Identity
-from ..io.importing import ImportResult, import_samples, import_standards
+from ..io.importing import SAMPLE_FIELDS, SKIP, STANDARD_FIELDS, ImportResult, import_samples, import_standards
 from ..io.tables import (RawTable, default_sheet, hidden_rows_chosen, hidden_rows_listed, table_from_csv, table_from_text,
                          table_from_xlsx, xlsx_sheets)
 from .standards_model import INVALID
@@ -240,8 +240,17 @@ class AnalyteDialog(QDialog):
         self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(bool(self.name.text().strip()))
 
 
+LEFT_TO_HEADER = "(by its header)"
+"""A column-meaning choice that gives no meaning of its own: the import reads the column by its header."""
+NOT_USED = "not used"
+"""A column-meaning choice: the column is left out (the command line's ``--map samples.skip=…``)."""
+
+
 class ImportDialog(QDialog):
-    """Shows how every value of a table was read before it is imported."""
+    """Shows how every value of a table was read before it is imported, and lets the analyst say which
+    column is which: one choice per column of the preview, prefilled with the field its header was
+    taken for (the command line's ``--map``; the samples' response chosen for several columns reads
+    each as a further replicate)."""
 
     def __init__(self, what: str, source: Path | str, parent: QWidget | None = None, *, text: bool = False,
                  analyte: str = "analyte") -> None:
@@ -276,17 +285,27 @@ class ImportDialog(QDialog):
         self.summary.setReadOnly(True)
         self.preview = QTableWidget()
         self.preview.setAccessibleName("How each value was read")
+        self.meanings: list[QComboBox] = []
+        self._meaning_headers: list[str] = []
+        self.columns_row = QTableWidget(1, 0)
+        self.columns_row.setAccessibleName("What each column holds")
+        self.columns_row.verticalHeader().setVisible(False)
+        self.columns_row.horizontalScrollBar().valueChanged.connect(self.preview.horizontalScrollBar().setValue)
+        self.preview.horizontalScrollBar().valueChanged.connect(self.columns_row.horizontalScrollBar().setValue)
         self.buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Ok | QDialogButtonBox.StandardButton.Cancel)
         self.buttons.accepted.connect(self.accept)
         self.buttons.rejected.connect(self.reject)
         layout = QVBoxLayout(self)
         layout.addLayout(form)
+        layout.addWidget(QLabel("What each column holds (guessed from its header; choose to change):"))
+        layout.addWidget(self.columns_row)
         layout.addWidget(QLabel("Each cell shows the text found → the value read; red cells cannot be used:"))
         layout.addWidget(self.preview, 3)
         layout.addWidget(self.summary, 1)
         layout.addWidget(self.buttons)
         for combo in (self.sheet, self.hidden_rows, self.decimal, self.thousands):
             combo.currentIndexChanged.connect(self.refresh)
+        self.sheet.currentIndexChanged.connect(self._forget_meanings)
         self.analyte.editingFinished.connect(self.refresh)
         self.refresh()
 
@@ -302,9 +321,11 @@ class ImportDialog(QDialog):
         decimal = {0: None, 1: ".", 2: ","}[self.decimal.currentIndex()]
         thousands = {0: None, 1: ",", 2: ".", 3: " ", 4: "'"}[self.thousands.currentIndex()]
         importer = import_standards if self.what == "standards" else import_samples
-        options = dict(decimal_mark=decimal, thousands=thousands, analyte=self.analyte.text() or "analyte")
+        options = dict(decimal_mark=decimal, thousands=thousands, analyte=self.analyte.text() or "analyte",
+                       mapping=self.column_mapping() or None)
         try:
             read = self.table()
+            self._offer_meanings(read)
             self.form.setRowVisible(self.hidden_rows, bool(read.hidden_rows))
             choice = HIDDEN_ROW_LABELS[self.hidden_rows.currentText()]
             if read.hidden_rows and choice is None:  # shown, marked, but nothing imported until the analyst chooses
@@ -323,8 +344,69 @@ class ImportDialog(QDialog):
             self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(False)
             return
         self._fill(read, self.result, set(read.hidden_rows))
+        self._show_guess(self.result)
         self.summary.setPlainText(self.result.summary())
         self.buttons.button(QDialogButtonBox.StandardButton.Ok).setEnabled(bool(self.result.standards or self.result.samples))
+
+    def column_mapping(self) -> dict[str, object]:
+        """The meanings chosen, as the importers take them: field → 1-based column (a list for the samples'
+        response over several columns, each a further replicate), ``skip`` → the columns not used.
+        Columns left to their header are not named: the import reads them by their header."""
+        mapping: dict[str, object] = {}
+        for column, combo in enumerate(self.meanings, start=1):
+            field = combo.currentData()
+            if field is None:
+                continue
+            if field in mapping:  # several columns: the importer reads them as replicates, or says why it cannot
+                before = mapping[field]
+                mapping[field] = [*(before if isinstance(before, list) else [before]), column]
+            else:
+                mapping[field] = column
+        return mapping
+
+    def _offer_meanings(self, table: RawTable) -> None:
+        """One choice per column of ``table`` (kept while the table's columns stay the same)."""
+        headers = next((row for row in table.rows if any(str(c).strip() for c in row)), ())
+        names = [entered(h) if isinstance(h, float) else str(h) for h in headers]
+        if len(names) == len(self.meanings) and names == self._meaning_headers:
+            return
+        self._meaning_headers = names
+        fields = STANDARD_FIELDS if self.what == "standards" else SAMPLE_FIELDS
+        self.meanings = []
+        self.columns_row.setColumnCount(len(names))
+        self.columns_row.setHorizontalHeaderLabels(names)
+        for j, name in enumerate(names):
+            combo = QComboBox()
+            combo.setAccessibleName(f"What column {j + 1} ({name}) holds")
+            combo.setSizeAdjustPolicy(QComboBox.SizeAdjustPolicy.AdjustToContents)
+            combo.addItem(LEFT_TO_HEADER, None)
+            combo.addItem(NOT_USED, SKIP)
+            for field in fields:
+                combo.addItem(field.replace("_", " "), field)
+            combo.currentIndexChanged.connect(self.refresh)
+            self.columns_row.setCellWidget(0, j, combo)
+            self.meanings.append(combo)
+
+    def _forget_meanings(self) -> None:
+        """Another sheet: its columns are offered afresh (on the next refresh)."""
+        self._meaning_headers = []
+
+    def _show_guess(self, result: ImportResult) -> None:
+        """Each column left to its header shows the field the import took it for."""
+        taken = {column: field for field, column in result.mapping.items()}
+        for j, combo in enumerate(self.meanings, start=1):
+            if combo.currentData() is None:
+                field = taken.get(j)
+                combo.setItemText(0, LEFT_TO_HEADER if field is None else
+                                  f"{field.replace('_', ' ')} {LEFT_TO_HEADER}")
+        for j in range(len(self.meanings)):
+            self.columns_row.setColumnWidth(j, max(self.preview.columnWidth(j), self.meanings[j].sizeHint().width()))
+            self.preview.setColumnWidth(j, self.columns_row.columnWidth(j))
+        if self.meanings:
+            self.columns_row.setRowHeight(0, self.meanings[0].sizeHint().height())
+            self.columns_row.setFixedHeight(self.columns_row.horizontalHeader().sizeHint().height()
+                                            + self.columns_row.rowHeight(0) + 2 * self.columns_row.frameWidth()
+                                            + self.columns_row.horizontalScrollBar().sizeHint().height())
 
     def _fill(self, table: RawTable, result: ImportResult, hidden: set[int] = frozenset()) -> None:  # type: ignore[assignment]
         """The preview: every row read, each cell with the value read from it, cells that cannot be used

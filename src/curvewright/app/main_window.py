@@ -452,11 +452,14 @@ class MainWindow(QMainWindow):
         self._update_buttons()
 
     def _show_internal_standard_column(self) -> None:
-        """The IS-response column only for an analyte calibrated against an internal standard."""
+        """The IS-response column only for an analyte calibrated against an internal standard (and in
+        the samples table also where a sample holds an internal-standard response for it)."""
+        from . import samples_model
         from .standards_model import IS
 
         uses = self.session.run.analyte(self.current_analyte()).uses_internal_standard
         self.standards_view.setColumnHidden(IS, not uses)
+        self.samples_view.setColumnHidden(samples_model.IS, not self.samples_model.has_internal_standard())
 
     def _on_run_changed(self, run: Run) -> None:
         if [a.name for a in run.analytes] != [self.analyte_box.itemText(i) for i in range(self.analyte_box.count())]:

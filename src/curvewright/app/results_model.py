@@ -250,7 +250,7 @@ class ResultsModel(QAbstractTableModel):
                 return verdict
             return f"{self._recovery_text(s)} % {verdict}".rstrip()
         if col == N:
-            return str(len(s.replicate_responses))
+            return s.replicate_words
         if col == MEAN:
             return display_number(s.mean_response)
         if col == ESTIMATE:

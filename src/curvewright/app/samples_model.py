@@ -1,6 +1,7 @@
 """The samples of the run as an editable table, showing the responses of the selected analyte.
 
-Responses of replicates are typed in one cell separated by ";" (e.g. "0.512; 0.508"). A value
+Responses of replicates are typed in one cell separated by ";" (e.g. "0.512; 0.508"), and so are
+their internal-standard responses in the IS column (shown where the analyte has any). A value
 that cannot be used is never dropped: a response that is not a number is kept as typed and marked;
 a dilution factor, run order or nominal value that is not a number is refused, stays in the cell
 marked in red with the reason, and is named in the status line.
@@ -25,12 +26,12 @@ from .session import RunSession
 from .table_view import ReasonProvider, RowCache, commit_edit
 from .standards_model import INVALID
 
-COLUMNS = ("Id", "Kind", "Order", "Dilution", "Nominal", "Responses")
-ID, KIND, ORDER, DILUTION, NOMINAL, RESPONSES = range(len(COLUMNS))
+COLUMNS = ("Id", "Kind", "Order", "Dilution", "Nominal", "Responses", "IS responses")
+ID, KIND, ORDER, DILUTION, NOMINAL, RESPONSES, IS = range(len(COLUMNS))
 FIELD_COLUMNS = {"id": ID, "kind": KIND, "run_order": ORDER, "dilution": DILUTION, "nominal": NOMINAL, "response": RESPONSES}
 """The column of each field a pasted block can fill."""
 FIELD_WORDS = {ID: "id", KIND: "kind", ORDER: "run order", DILUTION: "dilution factor", NOMINAL: "nominal value",
-               RESPONSES: "responses"}
+               RESPONSES: "responses", IS: "internal-standard responses"}
 
 
 class SamplesModel(QAbstractTableModel):
@@ -65,6 +66,8 @@ class SamplesModel(QAbstractTableModel):
     def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole):  # noqa: N802
         if role == Qt.ItemDataRole.ToolTipRole and orientation == Qt.Orientation.Horizontal and section == RESPONSES:
             return "The responses of the replicates, separated by ';' (e.g. 0.512; 0.508)"
+        if role == Qt.ItemDataRole.ToolTipRole and orientation == Qt.Orientation.Horizontal and section == IS:
+            return "The internal-standard responses of the replicates, in the order of their responses, separated by ';'"
         if role != Qt.ItemDataRole.DisplayRole:
             return None
         if orientation == Qt.Orientation.Vertical:
@@ -77,6 +80,8 @@ class SamplesModel(QAbstractTableModel):
             return f"Nominal ({unit})" if unit else "Nominal"
         if section == RESPONSES:
             return f"{self.analyte_name} responses (replicates: a; b)"
+        if section == IS:
+            return "IS responses (replicates: a; b)"
         return COLUMNS[section]
 
     def flags(self, index: QModelIndex) -> Qt.ItemFlag:
@@ -103,11 +108,28 @@ class SamplesModel(QAbstractTableModel):
         return None
 
     def _problem(self, s: Sample, col: int) -> str | None:
+        if col == IS:
+            problems = [f"replicate {m.replicate}: {p}" for m in s.measurements_of(self.analyte_name)
+                        if m.internal_standard_response is not None
+                        and (p := reading_problem(m.internal_standard_response, self.decimal_mark))]
+            return "; ".join(problems) or None
         if col != RESPONSES:
             return None
         problems = [f"replicate {m.replicate}: {p}" for m in s.measurements_of(self.analyte_name)
                     if (p := reading_problem(m.response, self.decimal_mark))]
         return "; ".join(problems) or None
+
+    def has_internal_standard(self) -> bool:
+        """The analyte is calibrated against an internal standard, or a sample holds an internal-standard
+        response for it: the IS column is shown."""
+        run = self.session.run
+        try:
+            if run.analyte(self.analyte_name).uses_internal_standard:
+                return True
+        except RunError:
+            return False
+        return any(m.internal_standard_response is not None and m.analyte == self.analyte_name
+                   for s in run.samples for m in s.measurements)
 
     def _internal_standard_words(self, s: Sample) -> str:
         """The internal-standard responses of the analyte's replicates, which this table has no cell
@@ -131,6 +153,9 @@ class SamplesModel(QAbstractTableModel):
         if col == NOMINAL:
             value = s.nominal_of(self.analyte_name)
             return "" if value is None else number(value)
+        if col == IS:
+            return "; ".join("" if m.internal_standard_response is None else m.internal_standard_response.text.strip()
+                             for m in s.measurements_of(self.analyte_name))
         return "; ".join(m.response.text.strip() for m in s.measurements_of(self.analyte_name))
 
     # --- editing ---------------------------------------------------------------------------------
@@ -191,6 +216,8 @@ class SamplesModel(QAbstractTableModel):
             if problem:
                 return refuse(problem)
             return True, replace(s, nominal=others + ((self.analyte_name, value),))
+        if col == IS:
+            return self._with_internal_standard(s, text, where, decimal_mark, thousands, refuse, report)
         parts = text.split(";") if t else [""]  # an empty cell: one reading with none recorded, as a file import keeps it
         before = s.measurements_of(self.analyte_name)
         others = tuple(m for m in s.measurements if m.analyte != self.analyte_name)
@@ -214,6 +241,32 @@ class SamplesModel(QAbstractTableModel):
         if bad:
             report(f"{where}: " + "; ".join(bad) + "; kept as typed, not used")
         return True, replace(s, measurements=others + tuple(mine))
+
+    def _with_internal_standard(self, s: Sample, text: str, where: str, decimal_mark: str | None,
+                                thousands: str | None, refuse, report) -> tuple[bool, Sample]:  # type: ignore[no-untyped-def]
+        """The sample with the internal-standard responses of its replicates entered, in their order
+        (";" between them; an empty part: none for that replicate). Each belongs to a replicate's
+        response: more than the replicates entered are refused."""
+        mine = s.measurements_of(self.analyte_name)
+        parts = text.split(";") if text.strip() else [""] * len(mine)
+        if len(parts) > len(mine):
+            return refuse(f"gives {len(parts)} internal-standard responses for {len(mine)} replicate(s); enter "
+                          "each replicate's response first")
+        changed, bad = [], []
+        for i, m in enumerate(mine):
+            part = parts[i] if i < len(parts) else ""
+            old = m.internal_standard_response
+            if old is not None and part.strip() == old.text.strip():
+                changed.append(m)  # left as it was: the reading it was entered with
+                continue
+            reading, problem = reading_from_text(part, decimal_mark, thousands) if part.strip() else (None, None)
+            changed.append(replace(m, internal_standard_response=reading))
+            if problem:
+                bad.append(f"replicate {m.replicate}: {problem}")
+        if bad:
+            report(f"{where}: " + "; ".join(bad) + "; kept as typed, not used")
+        others = tuple(m for m in s.measurements if m.analyte != self.analyte_name)
+        return True, replace(s, measurements=others + tuple(changed))
 
     def _commit(self, samples: tuple[Sample, ...], description: str, reason: str = "") -> bool:
         """Make the samples current as one undoable step (``reason`` for a removal); a changed raw value

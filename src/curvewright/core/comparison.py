@@ -67,6 +67,8 @@ one: each takes several nonlinear fits and a jackknife of them):
    more than 2 below the chosen polynomial's (a difference of 2 as "substantial" is common practice;
    Burnham & Anderson, *Model Selection and Multimodel Inference*, 2nd ed., 2002, §2.6, from
    memory) and its lack-of-fit test, where there is one, does not reject it.
+Whatever the steps choose, a candidate its own lack-of-fit test rejects (p < 0.05; a straight line also
+Mandel's test) is not recommended: ``ModelComparison.no_recommendation`` names the test and its p value.
 """
 
 from __future__ import annotations
@@ -203,8 +205,9 @@ class ModelComparison:
     no_recommendation: str = ""
     """Why no candidate is acceptable, when none is (empty otherwise): the straight line is rejected by
     its lack-of-fit or Mandel's test and no other candidate replaces it (the quadratic turns over
-    inside the range, could not be fitted, or is rejected by its own lack-of-fit test), or no
-    candidate shows a significant regression.
+    inside the range, could not be fitted, or is rejected by its own lack-of-fit test), the candidate
+    the steps chose (a logistic curve under a ligand-binding profile, say) is rejected by its own
+    lack-of-fit test, or no candidate shows a significant regression.
     ``recommended`` then holds the candidate the evidence shows first, which is not a recommendation."""
 
     @property
@@ -393,10 +396,10 @@ def compare(
 
 
 def _rejected(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:
-    """Why ``chosen`` may not be recommended, empty when it may. A straight line or a quadratic is
-    rejected by its own lack-of-fit test (p < 0.05), and a straight line also by Mandel's test
-    (p < 0.01): such a polynomial is left as the choice only because no other candidate replaces it
-    (:func:`_model_for`, :func:`_consider_curves`)."""
+    """Why ``chosen`` may not be recommended, empty when it may. Every candidate with a lack-of-fit
+    test is rejected by it (p < 0.05), and a straight line also by Mandel's test (p < 0.01): such a
+    candidate is left as the choice only because no other candidate replaces it (:func:`_model_for`,
+    :func:`_consider_curves`; a logistic curve a ligand-binding profile or anchor points call for)."""
     if chosen.model is Model.LINEAR:
         tests = _line_rejected_by(chosen)
         if not tests:
@@ -404,11 +407,13 @@ def _rejected(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:
         return (f"the straight line ({chosen.weighting.description}) is rejected by {tests}, and no quadratic can "
                 "replace it (it turns over inside the calibrated range, or could not be fitted); narrow the range "
                 "or check the standards, or choose a model yourself with a recorded reason")
-    if chosen.model is not Model.QUADRATIC:
-        return ""
     lof = chosen.calibration.lack_of_fit
-    if not lof.significant(LACK_OF_FIT_ALPHA):
+    if not (lof.available and lof.significant(LACK_OF_FIT_ALPHA)):
         return ""
+    if chosen.model is not Model.QUADRATIC:
+        return (f"the {_rejected_name(chosen)} ({chosen.weighting.description}) is rejected by its lack-of-fit test "
+                f"(p = {figures(lof.p_value, 3)}): it does not follow the data, and no other candidate replaces it; "
+                "narrow the range or check the standards, or choose a model yourself with a recorded reason")
     line = next((c for c in candidates if c.model is Model.LINEAR and c.weighting is chosen.weighting), None)
     line_tests = _line_rejected_by(line) if line is not None else ""
     line_words = (f"the straight line is rejected by {line_tests}" if line_tests
@@ -416,6 +421,13 @@ def _rejected(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:
     return (f"the quadratic ({chosen.weighting.description}) is rejected by its lack-of-fit test (p = {figures(lof.p_value, 3)}) "
             f"and {line_words}: neither model follows the data; narrow the range or check the standards, or choose "
             "a model yourself with a recorded reason")
+
+
+def _rejected_name(chosen: Candidate) -> str:
+    """The candidate's model in the words of a reason ("4PL logistic curve", "power curve")."""
+    if chosen.model in (Model.FOUR_PL, Model.FIVE_PL):
+        return f"{chosen.model.value.upper()} logistic curve"
+    return _SHORT_NAMES.get(chosen.model, f"a {chosen.model.value}").split(" ", 1)[1]
 
 
 def _line_rejected_by(line: Candidate) -> str:

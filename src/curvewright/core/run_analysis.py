@@ -88,6 +88,23 @@ class SampleResult:
     short: str = ""
     suggested_dilution: float | None = None
     """For a result above the range: the total dilution factor for a re-assay in mid-range."""
+    readings: int = 0
+    """Every reading entered for the analyte (its replicates; an empty cell is none): measured, censored
+    ("<20", "ND") or not usable (text that is not a number, a ratio without its internal-standard
+    response). ``replicate_responses`` holds the measured ones."""
+    censored_readings: int = 0
+    """How many of ``readings`` are censored."""
+
+    @property
+    def replicates(self) -> int:
+        """The replicates entered: every reading, whether measured, censored or not usable."""
+        return max(self.readings, len(self.replicate_responses))
+
+    @property
+    def replicate_words(self) -> str:
+        """The replicates entered, with how many were measured, censored and not usable where they
+        differ ("2 (1 measured, 1 censored)"); the count alone where every reading was measured."""
+        return replicate_words(self.replicates, len(self.replicate_responses), self.censored_readings)
 
     @property
     def reported_standard_error(self) -> float | None:
@@ -110,6 +127,20 @@ class SampleResult:
     def reportable(self) -> bool:
         """A number may be reported for this result (inside the range, or estimated where allowed)."""
         return is_reportable(self.status, self.short)
+
+
+def replicate_words(readings: int, measured: int, censored: int) -> str:
+    """``readings`` replicates entered, of which ``measured`` were measured and ``censored`` censored
+    (the rest not usable), in words: "2", or "2 (1 measured, 1 censored)", each count held to
+    its word by a no-break space so that a narrow column breaks the words only between the counts."""
+    if measured == readings:
+        return str(readings)
+    parts = [f"{measured}\u00a0measured"]
+    if censored:
+        parts.append(f"{censored}\u00a0censored")
+    if readings - measured - censored:
+        parts.append(f"{readings - measured - censored}\u00a0not\u00a0usable")
+    return f"{readings} ({', '.join(parts)})"
 
 
 def flag_words_of(words: str, note: str) -> str:
@@ -140,7 +171,8 @@ class SampleColumns:
     only they have a mean response (kept as computed) and the numbers that follow from the estimate
     (``reported`` = estimate × dilution factor, and the interval ends likewise). The replicate
     responses of all samples stand one after another in ``replicate_values``, ``replicate_counts``
-    of them per sample. ``flags`` holds the flag bits (-1: None), ``within_limits`` 1, 0 or -1 (None).
+    of them per sample; ``reading_counts`` holds every reading entered per sample (measured, censored
+    or not usable; an empty cell is none) and ``censored_counts`` the censored ones. ``flags`` holds the flag bits (-1: None), ``within_limits`` 1, 0 or -1 (None).
     """
 
     analyte: str
@@ -149,6 +181,8 @@ class SampleColumns:
     run_orders: list[int | None]
     replicate_values: np.ndarray
     replicate_counts: np.ndarray
+    reading_counts: np.ndarray
+    censored_counts: np.ndarray
     quantified: np.ndarray
     mean_response: np.ndarray
     estimate: np.ndarray
@@ -183,7 +217,8 @@ class SampleColumns:
         default), as plain Python values (NaN kept; see the class): (index of the first sample, the
         columns by name)."""
         names = ("mean_response", "estimate", "standard_error", "lower", "upper", "dilution", "nominal",
-                 "recovery_percent", "within_limits", "flags", "suggested_dilution", "quantified", "replicate_counts")
+                 "recovery_percent", "within_limits", "flags", "suggested_dilution", "quantified", "replicate_counts",
+                 "reading_counts", "censored_counts")
         end = len(self.ids) if stop is None else min(stop, len(self.ids))
         for start in range(start, end, size):
             stop = min(start + size, end)
@@ -215,7 +250,7 @@ class SampleColumns:
             (name, getattr(self, name)) for name in (
                 "mean_response", "estimate", "standard_error", "lower", "upper", "dilution", "nominal",
                 "recovery_percent", "within_limits", "flags", "suggested_dilution", "quantified", "replicate_counts",
-                "ids", "kinds", "run_orders", "notes", "statuses", "texts", "words", "shorts"))}
+                "reading_counts", "censored_counts", "ids", "kinds", "run_orders", "notes", "statuses", "texts", "words", "shorts"))}
         return _result_of(self.analyte, c, 0, values)
 
     @classmethod
@@ -230,6 +265,8 @@ class SampleColumns:
             run_orders=[s.run_order for s in results],
             replicate_values=np.array([v for s in results for v in s.replicate_responses], dtype=float),
             replicate_counts=np.array([len(s.replicate_responses) for s in results], dtype=np.int64),
+            reading_counts=np.array([s.replicates for s in results], dtype=np.int64),
+            censored_counts=np.array([s.censored_readings for s in results], dtype=np.int64),
             quantified=quantified, mean_response=floats(s.mean_response for s in results),
             estimate=floats(s.estimate for s in results), standard_error=floats(s.standard_error for s in results),
             lower=floats(s.lower for s in results), upper=floats(s.upper for s in results),
@@ -257,7 +294,8 @@ def _result_of(analyte: str, c: dict[str, list[Any]], k: int, values: tuple[floa
                   flags=flags, note=c["notes"][k], recovery_percent=some(c["recovery_percent"][k]),
                   within_limits=None if within == _NONE else bool(within), status=c["statuses"][k],
                   reported_text=c["texts"][k], words=c["words"][k], short=c["shorts"][k],
-                  suggested_dilution=some(c["suggested_dilution"][k]))
+                  suggested_dilution=some(c["suggested_dilution"][k]), readings=c["reading_counts"][k],
+                  censored_readings=c["censored_counts"][k])
     if not c["quantified"][k]:
         return SampleResult(mean_response=None, estimate=None, standard_error=None, lower=None, upper=None,
                             reported=None, reported_lower=None, reported_upper=None, **common)
@@ -775,6 +813,8 @@ def _quantify_samples(
     nominal_list = array("d")
     values = array("d")
     counts_list = array("q")
+    readings_list = array("q")  # every reading entered, and the censored ones among them
+    censored_list = array("q")
     notes: list[str] = []
     censored_of: dict[int, list[tuple[Measurement, float | None]]] = {}
     measured_of: dict[int, list[Measurement]] = {}
@@ -783,12 +823,15 @@ def _quantify_samples(
         if not measurements and not _awaits_response(sample, name):
             continue  # measured for another analyte only, or by standard additions
         r = len(ids)
-        count, reasons_here = 0, [] if measurements else [NO_RESPONSE]
+        count, censored, unusable, reasons_here = 0, 0, 0, [] if measurements else [NO_RESPONSE]
         for m in measurements:
             value, reason = response_value(m.response, m.internal_standard_response, ratio)
             if value is None:
                 if m.response.is_censored:
+                    censored += 1
                     censored_of.setdefault(r, []).append((m, _censored_limit(m, ratio)))
+                elif not m.response.is_missing:  # entered, but not a number the curve can use
+                    unusable += 1
                 reasons_here.append(f"replicate {m.replicate}: {reason}")
             else:
                 values.append(value)
@@ -803,6 +846,8 @@ def _quantify_samples(
         nominal = sample.nominal_of(name)
         nominal_list.append(np.nan if nominal is None else nominal)
         counts_list.append(count)
+        readings_list.append(count + censored + unusable)
+        censored_list.append(censored)
         notes.append("; ".join(reasons_here))
     n = len(ids)
     replicate_values = np.frombuffer(values, dtype=float).copy() if values else np.empty(0)
@@ -883,7 +928,9 @@ def _quantify_samples(
     bits = np.where(has_estimate, reported.bits, engine_bits)
     return SampleColumns(
         analyte=name, ids=ids, kinds=kinds, run_orders=run_orders, replicate_values=replicate_values,
-        replicate_counts=replicate_counts, quantified=quantified, mean_response=mean_response, estimate=estimate,
+        replicate_counts=replicate_counts, quantified=quantified,
+        reading_counts=np.frombuffer(readings_list, dtype=np.int64).copy() if readings_list else np.empty(0, np.int64),
+        censored_counts=np.frombuffer(censored_list, dtype=np.int64).copy() if censored_list else np.empty(0, np.int64), mean_response=mean_response, estimate=estimate,
         standard_error=standard_error, lower=lower, upper=upper, dilution=dilution, nominal=nominal,
         recovery_percent=recovery, within_limits=np.full(n, _NONE, dtype=np.int8), flags=bits,
         notes=[reasons[r] if not done else note for r, (done, note) in enumerate(zip(quantified.tolist(), notes))],

@@ -473,7 +473,7 @@ def _samples_printed(result: RunResult, a: AnalyteResult) -> PrintedTable:
 
         def cell(name: str) -> str:
             return format_value(row[index[name]], shown[index[name]], rule)
-        rows.append((s.sample_id, s.kind.words, cell("Run order"), cell("Replicates"), cell("Dilution factor"),
+        rows.append((s.sample_id, s.kind.words, cell("Run order"), s.replicate_words, cell("Dilution factor"),
                      cell("Concentration × dilution"), s.reported_text,
                      interval_text(s.reported_lower, s.reported_upper, rule) if s.reported is not None else "",
                      s.short_flags, cell("Recovery (%)"), cell("QC or check")))

@@ -326,7 +326,8 @@ def samples_table(result: RunResult) -> Table:
     unit = {a.analyte.name: a.analyte.concentration_unit for a in result.analytes}
     columns = (
         Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Run order", kind="int"),
-        Column("Replicates", kind="int"), Column("Replicate responses", kind="words"), Column("Mean response", kind="number", display="sig:6"),
+        Column("Replicates", kind="int"), Column("Measured", kind="int"), Column("Censored", kind="int"),
+        Column("Replicate responses", kind="words"), Column("Mean response", kind="number", display="sig:6"),
         Column("Estimated concentration", kind="number", display="within:Dilution factor"),
         Column("Dilution factor", kind="number", display="full"),
         Column("Concentration × dilution", kind="number", display="within"), Column("Reported", kind="reported"),
@@ -351,7 +352,8 @@ def samples_table(result: RunResult) -> Table:
             measured = [()] * len(a.samples)
         for s, readings in zip(a.samples, measured):
             rows.append((
-                s.sample_id, s.kind.words, s.analyte, s.run_order, len(s.replicate_responses),
+                s.sample_id, s.kind.words, s.analyte, s.run_order, s.replicates, len(s.replicate_responses),
+                s.censored_readings,
                 replicate_text(s.replicate_responses, readings, a.analyte.uses_internal_standard),
                 s.mean_response, s.estimate, s.dilution_factor,
                 s.reported, s.reported_text or (None if s.reported is None else rule.text_within(s.reported, s.reported_lower, s.reported_upper)),
