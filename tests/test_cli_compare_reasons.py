@@ -1,0 +1,35 @@
+"""The model comparison's reasons say what its numbers say, in `compare` as an analyst runs it.
+
+Invented scenarios of a fictional laboratory (the Kestrel Hollow water lab); the reference values are
+worked out here with numpy and scipy.stats.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+
+from tests.cli_runs import run_cli
+from tests.test_cli_tables import write
+
+# Manganese by ICP-OES (invented): blanks and six levels from 2 to 100 µg/L, each in duplicate. The blank's
+# replicates agree far more closely than any standard's, as blanks near the noise floor often do.
+MANGANESE = [(0, 8.1), (0, 8.0), (2, 204.6), (2, 199.8), (5, 512.3), (5, 503.9), (10, 1012.8), (10, 1027.4),
+             (20, 2031.0), (20, 2002.6), (50, 5046.0), (50, 4980.0), (100, 10090.0), (100, 9962.0)]
+
+
+def test_the_end_level_f_test_takes_the_lowest_standard_above_zero(tmp_path: Path) -> None:
+    from scipy import stats
+
+    x = np.array([c for c, _ in MANGANESE], dtype=float)
+    y = np.array([r for _, r in MANGANESE])
+    var = {c: float(np.var(y[x == c], ddof=1)) for c in (0.0, 2.0, 100.0)}
+    f = var[100.0] / var[2.0]  # ISO 8466-1 §5: s² of the highest over s² of the lowest working-range standard
+    assert round(f, 1) == 711.1 and f < stats.f.ppf(0.99, 1, 1)  # F(1, 1; 0.99) = 4052 (scipy.stats)
+    assert var[100.0] / var[0.0] > stats.f.ppf(0.99, 1, 1)  # the blank would make it "significant"
+
+    std = write(tmp_path / "mn_std.csv", ["Concentration (µg/L),Intensity", *[f"{c},{r}" for c, r in MANGANESE]])
+    out = run_cli("compare", "--standards", str(std), "--analyte", "manganese")
+    assert out.returncode in (0, 1), out.stderr
+    assert "ISO 8466-1 end-level F-test for reference: F = 711.1 on (1, 1) df, not significant at 99 %" in out.stdout, out.stdout
