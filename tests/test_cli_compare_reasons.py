@@ -6,6 +6,8 @@ worked out here with numpy and scipy.stats.
 
 from __future__ import annotations
 
+import json
+import re
 from pathlib import Path
 
 import numpy as np
@@ -33,3 +35,30 @@ def test_the_end_level_f_test_takes_the_lowest_standard_above_zero(tmp_path: Pat
     out = run_cli("compare", "--standards", str(std), "--analyte", "manganese")
     assert out.returncode in (0, 1), out.stderr
     assert "ISO 8466-1 end-level F-test for reference: F = 711.1 on (1, 1) df, not significant at 99 %" in out.stdout, out.stdout
+
+
+# Sucrose by HPLC with an evaporative light-scattering detector (invented): triplicates at seven levels over two
+# decades; the response rises as a power of the concentration (about x^1.4) with a roughly constant relative SD.
+SUCROSE = [(10, 23.3), (10, 24.9), (10, 25.1), (20, 61.9), (20, 68.6), (20, 67.8), (50, 246.2), (50, 246.0),
+           (50, 245.8), (100, 606.8), (100, 632.2), (100, 675.0), (200, 1634.1), (200, 1734.1), (200, 1646.7),
+           (500, 6620.0), (500, 6418.3), (500, 6367.7), (1000, 16344.5), (1000, 18315.5), (1000, 17727.9)]
+
+
+def sucrose_comparison(tmp_path: Path) -> dict:
+    std = write(tmp_path / "sucrose_std.csv", ["Concentration (mg/L),Peak area", *[f"{c},{r}" for c, r in SUCROSE]])
+    out = run_cli("compare", "--standards", str(std), "--analyte", "sucrose", "--json")
+    assert out.returncode == 0, out.stderr
+    return json.loads(out.stdout)[0]
+
+
+def test_the_weighting_reason_quotes_the_recommended_models_rows(tmp_path: Path) -> None:
+    entry = sucrose_comparison(tmp_path)
+    assert entry["recommended"] == ["power", "1/x^2"]
+    model, weighting, sum_re = (entry["columns"].index(k) for k in ("Model", "Weighting", "Σ|%RE|"))
+    power_rows = {row[weighting]: row[sum_re] for row in entry["rows"] if row[model] == "power" and row[weighting] != "none"}
+    (reason,) = [r for r in entry["reasons"] if r.startswith("weighting is needed")]
+    head, listing = reason.split("; Σ|%RE| of the power curve under each weighting: ")
+    quoted = dict(re.findall(r"(\S+) \(Σ\|%RE\| = ([^)]+)\)", listing))
+    assert quoted.keys() == power_rows.keys()
+    for w, value in quoted.items():  # each figure is the table's own row, to the three figures it shows
+        assert float(value) == float(f"{power_rows[w]:.3g}"), (w, value, power_rows[w])

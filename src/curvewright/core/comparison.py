@@ -377,6 +377,7 @@ def compare(
         refused = _rejected(recommended, candidates)
         if refused:
             reasons = [f"no candidate is acceptable, so none is recommended: {refused}"] + list(reasons)
+    reasons = [r + _weighted_listing(recommended, candidates) if r.startswith(WEIGHTING_NEEDED) else r for r in reasons]
     if anchors.any():
         reasons = list(reasons) + [_anchor_reason(x[anchors])]
     reasons = list(reasons) + [R_SQUARED_NOTE]
@@ -544,8 +545,7 @@ def _recommend(
             w: _model_for(models, mandel.get(w), w)[0] for w, models in by_weighting.items() if w is not Weighting.NONE
         }
         chosen, why = _weighting_for(evidence, choices)
-        listing = ", ".join(f"{c.weighting.value} (Σ|%RE| = {figures(c.sum_abs_relative_error, 3)})" for c in choices.values())
-        reasons.append(f"weighting is needed; {why}; Σ|%RE| of the weighted candidates: {listing}")
+        reasons.append(f"{WEIGHTING_NEEDED}{why}")  # the Σ|%RE| listing follows in compare, of the model recommended
         _, model_reasons = _model_for(by_weighting[chosen.weighting], mandel.get(chosen.weighting), chosen.weighting)
         reasons.extend(model_reasons)
     else:
@@ -646,13 +646,33 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
     )
 
 
+WEIGHTING_NEEDED = "weighting is needed; "
+"""How the reason for weighting begins (the Σ|%RE| of the recommended model's weightings is added to it)."""
+
+
+def _weighted_listing(recommended: Candidate, candidates: tuple[Candidate, ...]) -> str:
+    """Σ|%RE| of the recommended model under each weighting it was fitted with, the model named: the
+    figures quoted in the weighting reason are those of the table's rows of that model."""
+    rows = [c for c in candidates if c.model is recommended.model and c.weighting is not Weighting.NONE]
+    if not rows:
+        return ""
+    listing = ", ".join(f"{c.weighting.value} (Σ|%RE| = {figures(c.sum_abs_relative_error, 3)})" for c in rows)
+    return f"; Σ|%RE| of the {_model_name(recommended.model)} under each weighting: {listing}"
+
+
+def _model_name(model: Model) -> str:
+    """The model in running text, without its article ("straight line", "power curve", "4PL")."""
+    short = _SHORT_NAMES.get(model)
+    return short.split(" ", 1)[1] if short else model.value
+
+
 def _weights_use(chosen: Candidate, evidence_theta: float) -> str:
     """The variance function ``chosen``'s weights use, told apart from the replicate evidence's θ
     (``evidence_theta``): the evidence fits SD ∝ mean^θ to the replicates' scatter about their level
     means (:mod:`.variance`), the weights fit it to the residuals of all standards about the curve
     (:mod:`.variance_function`), so the two estimates differ a little."""
     fitted = chosen.calibration.weight_model.variance_fit
-    name = _SHORT_NAMES.get(chosen.model, f"the {chosen.model.value}").split(" ", 1)[1]
+    name = _model_name(chosen.model)
     if fitted is None:
         return f"the {name}'s weights hold no fitted variance function"
     function = fitted.function
