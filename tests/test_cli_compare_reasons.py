@@ -62,3 +62,21 @@ def test_the_weighting_reason_quotes_the_recommended_models_rows(tmp_path: Path)
     assert quoted.keys() == power_rows.keys()
     for w, value in quoted.items():  # each figure is the table's own row, to the three figures it shows
         assert float(value) == float(f"{power_rows[w]:.3g}"), (w, value, power_rows[w])
+
+
+def manganese_compare(tmp_path: Path) -> str:
+    std = write(tmp_path / "mn_std.csv", ["Concentration (µg/L),Intensity", *[f"{c},{r}" for c, r in MANGANESE]])
+    out = run_cli("compare", "--standards", str(std), "--analyte", "manganese")
+    assert out.returncode == 0, out.stderr
+    assert "recommended: linear, power" in out.stdout, out.stdout
+    return out.stdout
+
+
+def test_a_candidate_not_fitted_is_named(tmp_path: Path) -> None:
+    # the straight line is recommended under power weighting: the weighting the line through the origin
+    # could not take (its fitted response at the blank is 0) must not read as the recommended line's
+    out = manganese_compare(tmp_path)
+    assert ("not fitted with power weighting for the line through the origin: the fitted response at standard 1 "
+            "(concentration 0) is 0, not above zero") in out, out
+    assert ("not fitted with 1/x weighting for the straight line, the quadratic and the line through the origin: "
+            "standard 1 has concentration 0") in out, out

@@ -201,16 +201,34 @@ def evidence_table(result: RunResult, a: AnalyteResult) -> tuple[Table, tuple[st
             "recommended" if c is comparison.recommendation else "",
             "chosen" if (c.model is cal.model and c.weighting is cal.weighting) else "",
         ))
-    skipped: dict[str, list[str]] = {}
+    return Table("Model evidence", columns, tuple(rows)), tuple(comparison.reasons) + skipped_reasons(comparison)
+
+
+_MODEL_WORDS = {
+    "linear": "the straight line", "quadratic": "the quadratic", "proportional": "the line through the origin",
+    "power": "the power curve", "average-rf": "the average response factor", "4pl": "the 4PL", "5pl": "the 5PL",
+}
+
+
+def skipped_reasons(comparison: ModelComparison) -> tuple[str, ...]:
+    """One line per weighting that some candidates could not be fitted with, each reason with the
+    models it holds for ("not fitted with power weighting for the line through the origin: …"), so
+    that a reason about one model is not read as one about the model recommended."""
+    by_weighting: dict[str, dict[str, list[str]]] = {}
     for s in comparison.skipped:
         reason = s.reason.split(": ", 1)[-1] if s.reason.startswith("weighting") else s.reason
-        skipped.setdefault(s.weighting.value, [])
-        if reason not in skipped[s.weighting.value]:
-            skipped[s.weighting.value].append(reason)
-    reasons = tuple(comparison.reasons) + tuple(
-        f"not fitted with {w} weighting: {'; '.join(why)}" for w, why in skipped.items()
+        models = by_weighting.setdefault(s.weighting.value, {}).setdefault(reason, [])
+        name = _MODEL_WORDS.get(s.model.value, f"the {s.model.value}")
+        if name not in models:
+            models.append(name)
+    return tuple(
+        f"not fitted with {w} weighting " + "; ".join(f"for {_and_list(models)}: {reason}" for reason, models in why.items())
+        for w, why in by_weighting.items()
     )
-    return Table("Model evidence", columns, tuple(rows)), reasons
+
+
+def _and_list(words: list[str]) -> str:
+    return words[0] if len(words) == 1 else f"{', '.join(words[:-1])} and {words[-1]}"
 
 
 
