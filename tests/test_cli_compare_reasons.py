@@ -80,3 +80,16 @@ def test_a_candidate_not_fitted_is_named(tmp_path: Path) -> None:
             "(concentration 0) is 0, not above zero") in out, out
     assert ("not fitted with 1/x weighting for the straight line, the quadratic and the line through the origin: "
             "standard 1 has concentration 0") in out, out
+
+
+def test_the_weighting_reason_says_why_a_matching_1_over_y_weighting_is_not_taken(tmp_path: Path) -> None:
+    out = manganese_compare(tmp_path)
+    interval = re.search(r"\(95 % interval (\S+) to (\S+)\)", out)
+    assert interval is not None, out
+    low, high = (float(v) for v in interval.groups())
+    assert low <= 0.5 <= high and low <= 1.0 <= high  # θ of 1/y (SD ∝ √mean) and of 1/y² (SD ∝ mean) both allowed
+    assert "no fixed weighting matches" not in out, out
+    assert ("1/x^2 and 1/x weights could not be fitted (see the candidates not fitted), so the weights follow a "
+            "variance function fitted to all standards (power)") in out, out
+    assert ("1/y (θ = 0.5) and 1/y^2 (θ = 1) lie in the interval too, but weights taken from each standard's own "
+            "response are ranked after a variance function fitted to all standards") in out, out

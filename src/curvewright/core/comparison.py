@@ -632,8 +632,9 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
                 w = min(fitting, key=lambda v: abs(IMPLIED_POWER.get(v, theta) - theta))
                 if w in IMPLIED_POWER:
                     return choices[w], f"{shape}, which {w.value} weights (θ = {entered(IMPLIED_POWER[w])}) match"
-                return choices[w], (f"{shape}; no fixed weighting matches, so the weights follow a variance function "
-                                    f"fitted to all standards ({w.value}): {_weights_use(choices[w], theta)}")
+                return choices[w], (f"{shape}; {_in_concentration_words(choices, low, high)}, so the weights follow a variance "
+                                    f"function fitted to all standards ({w.value}): {_weights_use(choices[w], theta)}"
+                                    + _in_response_words(choices, low, high))
     weighted = list(choices.values())
     best = min(c.sum_abs_relative_error for c in weighted)
     tied = [c for c in weighted if c.sum_abs_relative_error <= best * (1 + TIE_FRACTION) + 1e-12]
@@ -644,6 +645,39 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
         if len(tied) == 1
         else f"{chosen.weighting.value} is the simplest within {TIE_FRACTION:.0%} of the smallest sum of absolute relative errors"
     )
+
+
+def _in_concentration_words(choices: dict[Weighting, Candidate], low: float, high: float) -> str:
+    """Why no weighting in concentration was taken, once neither one's θ lies in the interval: each
+    either does not match or could not be fitted (a blank rules out 1/x-type weights). When every fixed
+    weighting was fitted and none matches, it says so in one phrase."""
+    if all(w in choices and not low <= theta <= high for w, theta in IMPLIED_POWER.items()):
+        return "no fixed weighting matches"
+    fitted = [w for w in (Weighting.INVERSE_X2, Weighting.INVERSE_X) if w in choices]
+    missing = [w for w in (Weighting.INVERSE_X2, Weighting.INVERSE_X) if w not in choices]
+    words = [f"{w.value} weights (θ = {entered(IMPLIED_POWER[w])})" for w in fitted]
+    parts = []
+    if len(words) == 2:
+        parts.append(f"neither {words[0]} nor {words[1]} match")
+    elif words:
+        parts.append(f"{words[0]} do not match")
+    if missing:
+        names = " and ".join(w.value for w in missing)
+        parts.append(f"{names} weights could not be fitted (see the candidates not fitted)")
+    return "; ".join(parts)
+
+
+def _in_response_words(choices: dict[Weighting, Candidate], low: float, high: float) -> str:
+    """What the reason says of the 1/y-type weightings whose θ lies in the interval too (empty when
+    none does): by design they are ranked after the fitted variance function (:func:`_weighting_for`)."""
+    inside = [w for w in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2)
+              if w in choices and low <= IMPLIED_POWER[w] <= high]
+    if not inside:
+        return ""
+    words = " and ".join(f"{w.value} (θ = {entered(IMPLIED_POWER[w])})" for w in inside)
+    verb = "lies" if len(inside) == 1 else "lie"
+    return (f"; {words} {verb} in the interval too, but weights taken from each standard's own response are "
+            "ranked after a variance function fitted to all standards")
 
 
 WEIGHTING_NEEDED = "weighting is needed; "
