@@ -93,3 +93,32 @@ def test_the_weighting_reason_says_why_a_matching_1_over_y_weighting_is_not_take
             "variance function fitted to all standards (power)") in out, out
     assert ("1/y (θ = 0.5) and 1/y^2 (θ = 1) lie in the interval too, but weights taken from each standard's own "
             "response are ranked after a variance function fitted to all standards") in out, out
+
+
+def test_the_power_curve_reason_says_which_polynomials_fail_and_why_it_is_taken(tmp_path: Path) -> None:
+    entry = sucrose_comparison(tmp_path)
+    reasons = entry["reasons"]
+    assert not any("check the standards or narrow the range" in r for r in reasons), reasons
+    (power,) = [r for r in reasons if "power curve y = a·x^b" in r]
+    assert power.startswith("under 1/x^2 neither the straight line nor the quadratic follows the data (the straight "
+                            "line rejected by its lack-of-fit test"), power
+    assert "the quadratic by its lack-of-fit test (p = " in power
+    assert re.search(r"the power curve y = a·x\^b is not rejected by its lack-of-fit test \(p = 0\.\d+\) and fits "
+                     r"better than the quadratic \(AICc [\d.]+ against [\d.]+, more than 2 lower\), so the power curve "
+                     r"is recommended$", power), power
+
+
+# Copper by flame absorption (invented): triplicates at six levels from 1 to 10 mg/L whose response bends upward
+# more than a quadratic follows, so both the straight line and the quadratic lack fit; less than two decades,
+# so no power curve is considered.
+COPPER = [(1, 4.98), (1, 4.95), (1, 5.01), (2, 8.18), (2, 8.22), (2, 8.17), (4, 15.25), (4, 15.24), (4, 15.32),
+          (6, 24.4), (6, 24.33), (6, 24.26), (8, 36.19), (8, 36.32), (8, 36.25), (10, 51.91), (10, 52.0), (10, 51.94)]
+
+
+def test_neither_model_following_the_data_is_said_once(tmp_path: Path) -> None:
+    std = write(tmp_path / "cu_std.csv", ["Concentration (mg/L),Absorbance", *[f"{c},{r}" for c, r in COPPER]])
+    out = run_cli("compare", "--standards", str(std), "--analyte", "copper")
+    assert "recommended: none — no candidate is acceptable" in out.stdout, out.stdout
+    assert out.stdout.count("neither model follows the data") == 1, out.stdout
+    assert re.search(r"the straight line is rejected, and the quadratic also lacks fit \(p = [^)]+\), so it cannot "
+                     r"replace it\n", out.stdout), out.stdout

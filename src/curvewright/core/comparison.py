@@ -522,7 +522,7 @@ def _model_for(
     if q_lof.available and q_lof.significant(LACK_OF_FIT_ALPHA):
         reasons.append(
             f"the straight line is rejected, and the quadratic also lacks fit (p = {figures(q_lof.p_value, 3)}), so it "
-            "cannot replace it; neither model follows the data — check the standards or narrow the range"
+            "cannot replace it"
         )
         return quadratic, reasons
     reasons.append("the straight line is rejected, so the quadratic is recommended")
@@ -841,6 +841,14 @@ def _consider_curves(
             rejected = lof.available and lof.significant(LACK_OF_FIT_ALPHA)
             better = chosen.aicc - power.aicc > AICC_MARGIN
             if better and not rejected:
+                fails = _polynomials_fail(chosen, candidates)
+                if fails:  # the power curve replaces polynomials that may not be used: say so, and why it is taken
+                    return power, reasons + [
+                        f"{fails}; over {figures(decades, 2)} decades the power curve y = a·x^b "
+                        + (f"is not rejected by its lack-of-fit test (p = {figures(lof.p_value, 3)}) and " if lof.available else "")
+                        + f"fits better than the {chosen.model.value} (AICc {figures(power.aicc, 4)} against "
+                        f"{figures(chosen.aicc, 4)}, more than {entered(AICC_MARGIN)} lower), so the power curve is recommended"
+                    ] + _failing_words(power, candidates)
                 return power, reasons + [
                     f"over {figures(decades, 2)} decades the power curve y = a·x^b fits better than the {chosen.model.value} "
                     f"(AICc {figures(power.aicc, 4)} against {figures(chosen.aicc, 4)}, more than {entered(AICC_MARGIN)} lower"
@@ -851,6 +859,21 @@ def _consider_curves(
                 f"(AICc {figures(chosen.aicc, 4)})" + ("; its lack-of-fit test rejects it" if rejected else "")
             )
     return chosen, reasons
+
+
+def _polynomials_fail(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:
+    """Which of the straight line and the quadratic may not be used, when ``chosen`` (the polynomial
+    step 2 left) is one of them that :func:`_rejected` refuses; empty otherwise."""
+    if not _rejected(chosen, candidates):
+        return ""
+    if chosen.model is Model.QUADRATIC:
+        line = next((c for c in candidates if c.model is Model.LINEAR and c.weighting is chosen.weighting), None)
+        line_tests = _line_rejected_by(line) if line is not None else ""
+        line_words = f"the straight line rejected by {line_tests}" if line_tests else "the straight line not fitted"
+        return (f"under {chosen.weighting.value} neither the straight line nor the quadratic follows the data ({line_words}, "
+                f"the quadratic by its lack-of-fit test (p = {figures(chosen.calibration.lack_of_fit.p_value, 3)}))")
+    return (f"under {chosen.weighting.value} the straight line is rejected by {_line_rejected_by(chosen)} and no quadratic "
+            "can replace it")
 
 
 def _extra_parameter_test(four: Calibration, five: Calibration) -> tuple[float, float] | None:
