@@ -122,3 +122,16 @@ def test_neither_model_following_the_data_is_said_once(tmp_path: Path) -> None:
     assert out.stdout.count("neither model follows the data") == 1, out.stdout
     assert re.search(r"the straight line is rejected, and the quadratic also lacks fit \(p = [^)]+\), so it cannot "
                      r"replace it\n", out.stdout), out.stdout
+
+
+def test_a_refusal_shared_by_models_is_said_once() -> None:
+    # the shipped demo run (an invented ligand-binding assay with anchor points): 1/s² is refused for every model
+    # for the same reason, at a different lowest level for the logistic curves (they alone take the anchor points)
+    out = run_cli("compare", "sample_runs/cytokine_serum_4pl.json")
+    assert out.returncode in (0, 1), out.stderr
+    (line,) = [ln for ln in out.stdout.splitlines() if "not fitted with 1/s^2 weighting" in ln]
+    assert ".;" not in line
+    assert line.count("weights from fewer than 10 replicates at every level are too imprecise") == 1, line
+    assert ("for the straight line, the quadratic, the line through the origin and the power curve (the level at "
+            "concentration 3 has 2 replicate(s)) and for the 4PL and the 5PL (the level at concentration 0.8 has 2 "
+            "replicate(s)): weights from fewer than 10") in line, line

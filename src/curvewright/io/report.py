@@ -221,9 +221,22 @@ def skipped_reasons(comparison: ModelComparison) -> tuple[str, ...]:
         name = _MODEL_WORDS.get(s.model.value, f"the {s.model.value}")
         if name not in models:
             models.append(name)
-    return tuple(
-        f"not fitted with {w} weighting " + "; ".join(f"for {_and_list(models)}: {reason}" for reason, models in why.items())
-        for w, why in by_weighting.items()
+    return tuple(_not_fitted_line(w, why) for w, why in by_weighting.items())
+
+
+def _not_fitted_line(weighting: str, why: dict[str, list[str]]) -> str:
+    """One weighting's refusals. Reasons that differ only in their first clause (the level each model's
+    standards hold, with anchor points left out of all but the logistic curves) give that clause by
+    model and their shared explanation once; other reasons follow one another, each once."""
+    if len(why) > 1:
+        parts = [reason.split("; ", 1) for reason in why]
+        tails = {part[1] for part in parts if len(part) == 2}
+        if len(tails) == 1 and all(len(part) == 2 for part in parts):
+            heads = " and ".join(f"for {_and_list(models)} ({part[0]})" for part, models in zip(parts, why.values()))
+            return f"not fitted with {weighting} weighting {heads}: {tails.pop()}"
+    return f"not fitted with {weighting} weighting " + "; ".join(
+        f"for {_and_list(models)}: {reason.rstrip('.') if i < len(why) - 1 else reason}"
+        for i, (reason, models) in enumerate(why.items())
     )
 
 
