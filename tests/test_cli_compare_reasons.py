@@ -135,3 +135,32 @@ def test_a_refusal_shared_by_models_is_said_once() -> None:
     assert ("for the straight line, the quadratic, the line through the origin and the power curve (the level at "
             "concentration 3 has 2 replicate(s)) and for the 4PL and the 5PL (the level at concentration 0.8 has 2 "
             "replicate(s)): weights from fewer than 10") in line, line
+
+
+# Nickel by ICP-MS (invented): triplicates at six levels whose means lie almost exactly on a straight line, so the
+# lack-of-fit F is tiny and its p rounds to 1 at three figures without being 1.
+NICKEL_MEANS = {1: 10.01, 2: 19.98, 4: 40.01, 6: 60.02, 8: 79.99, 10: 100.0}
+NICKEL = [(c, round(m + e, 2)) for c, m in NICKEL_MEANS.items() for e in (-3.0, 0.0, 3.0)]
+
+
+def test_a_lack_of_fit_p_below_1_is_not_shown_as_1(tmp_path: Path) -> None:
+    from scipy import stats
+
+    x = np.array([c for c, _ in NICKEL], dtype=float)
+    y = np.array([r for _, r in NICKEL])
+    line = np.polyval(np.polyfit(x, y, 1), x)
+    means = np.array([y[x == c].mean() for c in x])
+    ss_pe, ss_lof = float(np.sum((y - means) ** 2)), float(np.sum((means - line) ** 2))
+    f = (ss_lof / 4) / (ss_pe / 12)  # pure-error lack-of-fit F on (6 − 2, 18 − 6) df (ISO 8466-1 / Draper & Smith)
+    p = float(stats.f.sf(f, 4, 12))  # scipy.stats
+    assert 0.999 < p < 1.0 and f"{p:.3g}" == "1"
+
+    std = write(tmp_path / "ni_std.csv", ["Concentration (µg/L),Counts", *[f"{c},{r}" for c, r in NICKEL]])
+    smp = write(tmp_path / "ni_smp.csv", ["Sample,Counts", "NI-1,55.5"])
+    done = run_cli("quantify", "--standards", str(std), "--samples", str(smp), "--analyte", "nickel",
+                   "--model", "linear", "--weighting", "none")
+    assert done.returncode in (0, 1), done.stderr
+    assert ", p > 0.999" in done.stdout and "p = 1\n" not in done.stdout and "p = 1;" not in done.stdout, done.stdout
+    compared = run_cli("compare", "--standards", str(std), "--analyte", "nickel")
+    assert "straight line lack-of-fit: F = " in compared.stdout
+    assert "df, p > 0.999 (not significant at 0.05)" in compared.stdout, compared.stdout

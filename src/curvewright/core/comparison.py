@@ -87,7 +87,7 @@ from .least_squares import solve_weighted
 from .models import Model, make_basis
 from .variance import VarianceEvidence, variance_evidence
 from .weighting import Weighting
-from .notation import entered, figures
+from .notation import entered, figures, p_equals
 
 POWER_MIN_DECADES = 2.0
 """The power curve is considered, and may be recommended, when the positive standards span at least this many decades."""
@@ -414,7 +414,7 @@ def _rejected(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:
     line_tests = _line_rejected_by(line) if line is not None else ""
     line_words = (f"the straight line is rejected by {line_tests}" if line_tests
                   else "the straight line could not be fitted")
-    return (f"the quadratic ({chosen.weighting.description}) is rejected by its lack-of-fit test (p = {figures(lof.p_value, 3)}) "
+    return (f"the quadratic ({chosen.weighting.description}) is rejected by its lack-of-fit test ({p_equals(lof.p_value, 3)}) "
             f"and {line_words}: neither model follows the data; narrow the range or check the standards, or choose "
             "a model yourself with a recorded reason")
 
@@ -424,9 +424,9 @@ def _line_rejected_by(line: Candidate) -> str:
     lof = line.calibration.lack_of_fit
     tests = []
     if lof.significant(LACK_OF_FIT_ALPHA):
-        tests.append(f"its lack-of-fit test (p = {figures(lof.p_value, 3)})")
+        tests.append(f"its lack-of-fit test ({p_equals(lof.p_value, 3)})")
     if line.mandel is not None and line.mandel.significant:
-        tests.append(f"Mandel's test (p = {figures(line.mandel.p_value, 3)})")
+        tests.append(f"Mandel's test ({p_equals(line.mandel.p_value, 3)})")
     return " and ".join(tests)
 
 
@@ -497,13 +497,13 @@ def _model_for(
     if lof.available:
         reasons.append(
             f"straight line lack-of-fit: F = {figures(lof.f_statistic, 4)} on ({lof.df_lack_of_fit}, {lof.df_pure_error}) df, "
-            f"p = {figures(lof.p_value, 3)} ({'significant' if lof_rejects else 'not significant'} at {entered(LACK_OF_FIT_ALPHA)})"
+            f"{p_equals(lof.p_value, 3)} ({'significant' if lof_rejects else 'not significant'} at {entered(LACK_OF_FIT_ALPHA)})"
         )
     else:
         reasons.append(f"no lack-of-fit test for the straight line: {lof.reason}")
     if mandel is not None:
         reasons.append(
-            f"Mandel's test: PG = {figures(mandel.statistic, 4)}, p = {figures(mandel.p_value, 3)} "
+            f"Mandel's test: PG = {figures(mandel.statistic, 4)}, {p_equals(mandel.p_value, 3)} "
             f"({'the quadratic fits significantly better' if mandel_rejects else 'the quadratic is no significant improvement'} at 99 %)"
         )
     if not (lof_rejects or mandel_rejects):
@@ -521,7 +521,7 @@ def _model_for(
     q_lof = quadratic.calibration.lack_of_fit
     if q_lof.available and q_lof.significant(LACK_OF_FIT_ALPHA):
         reasons.append(
-            f"the straight line is rejected, and the quadratic also lacks fit (p = {figures(q_lof.p_value, 3)}), so it "
+            f"the straight line is rejected, and the quadratic also lacks fit ({p_equals(q_lof.p_value, 3)}), so it "
             "cannot replace it"
         )
         return quadratic, reasons
@@ -804,12 +804,12 @@ def _consider_curves(
             if test is not None and test[1] < FIVE_PL_ALPHA:
                 words.append(
                     f"the 5PL's asymmetry improves the fit significantly (F = {figures(test[0], 4)} on (1, "
-                    f"{five.calibration.df_residual}) df, p = {figures(test[1], 3)}), so the 5PL"
+                    f"{five.calibration.df_residual}) df, {p_equals(test[1], 3)}), so the 5PL"
                 )
                 return five, words + _failing_words(five, candidates)
             if test is not None:
                 words.append(
-                    f"the 5PL's asymmetry is no significant improvement (F = {figures(test[0], 4)}, p = {figures(test[1], 3)}), "
+                    f"the 5PL's asymmetry is no significant improvement (F = {figures(test[0], 4)}, {p_equals(test[1], 3)}), "
                     "so the simpler 4PL"
                 )
             return four, words + _failing_words(four, candidates)
@@ -823,7 +823,7 @@ def _consider_curves(
             four_lof = four.calibration.lack_of_fit
             if four_lof.available and not four_lof.significant(LACK_OF_FIT_ALPHA):
                 return four, reasons + [
-                    f"the {chosen.model.value} lacks fit but the 4PL does not (p = {figures(four_lof.p_value, 3)}), so the 4PL"
+                    f"the {chosen.model.value} lacks fit but the 4PL does not ({p_equals(four_lof.p_value, 3)}), so the 4PL"
                 ] + _failing_words(four, candidates)
         reasons.append("the logistic curves are listed for comparison; a polynomial that fits is kept (not a ligand-binding profile)")
     power = table.get((Model.POWER, chosen.weighting))
@@ -845,14 +845,14 @@ def _consider_curves(
                 if fails:  # the power curve replaces polynomials that may not be used: say so, and why it is taken
                     return power, reasons + [
                         f"{fails}; over {figures(decades, 2)} decades the power curve y = a·x^b "
-                        + (f"is not rejected by its lack-of-fit test (p = {figures(lof.p_value, 3)}) and " if lof.available else "")
+                        + (f"is not rejected by its lack-of-fit test ({p_equals(lof.p_value, 3)}) and " if lof.available else "")
                         + f"fits better than the {chosen.model.value} (AICc {figures(power.aicc, 4)} against "
                         f"{figures(chosen.aicc, 4)}, more than {entered(AICC_MARGIN)} lower), so the power curve is recommended"
                     ] + _failing_words(power, candidates)
                 return power, reasons + [
                     f"over {figures(decades, 2)} decades the power curve y = a·x^b fits better than the {chosen.model.value} "
                     f"(AICc {figures(power.aicc, 4)} against {figures(chosen.aicc, 4)}, more than {entered(AICC_MARGIN)} lower"
-                    + (f"; its lack-of-fit p = {figures(lof.p_value, 3)}" if lof.available else "") + "), so the power curve"
+                    + (f"; its lack-of-fit {p_equals(lof.p_value, 3)}" if lof.available else "") + "), so the power curve"
                 ] + _failing_words(power, candidates)
             reasons.append(
                 f"the power curve (AICc {figures(power.aicc, 4)}) is no substantial improvement on the {chosen.model.value} "
@@ -871,7 +871,7 @@ def _polynomials_fail(chosen: Candidate, candidates: tuple[Candidate, ...]) -> s
         line_tests = _line_rejected_by(line) if line is not None else ""
         line_words = f"the straight line rejected by {line_tests}" if line_tests else "the straight line not fitted"
         return (f"under {chosen.weighting.value} neither the straight line nor the quadratic follows the data ({line_words}, "
-                f"the quadratic by its lack-of-fit test (p = {figures(chosen.calibration.lack_of_fit.p_value, 3)}))")
+                f"the quadratic by its lack-of-fit test ({p_equals(chosen.calibration.lack_of_fit.p_value, 3)}))")
     return (f"under {chosen.weighting.value} the straight line is rejected by {_line_rejected_by(chosen)} and no quadratic "
             "can replace it")
 
@@ -907,7 +907,7 @@ def _intercept_note(chosen: Candidate) -> list[str]:
     p = float(2 * special.stdtr(cal.df_residual, -abs(t_value)))
     if p >= 0.05:
         return [
-            f"the intercept is not significantly different from zero (p = {figures(p, 3)}); a line through the "
+            f"the intercept is not significantly different from zero ({p_equals(p, 3)}); a line through the "
             "origin is possible only where the laboratory's procedure permits it"
         ]
     return []

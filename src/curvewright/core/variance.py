@@ -40,7 +40,7 @@ import numpy as np
 from ._arrays import FloatArray
 from .distributions import f_quantile, f_upper_tail
 from .levels import Levels
-from .notation import figures
+from .notation import figures, p_equals
 
 ISO_8466_LEVEL = 0.99
 """Confidence level of the ISO 8466-1 variance F-test (ISO 8466-1)."""
@@ -117,10 +117,10 @@ def variance_evidence(response: FloatArray, levels: Levels, residuals: FloatArra
             f"θ = {theta:.2f} (95 % interval {low:.2f} to {high:.2f}); "
         )
         if hetero:
-            summary += f"the scatter grows with the response (one-sided p = {figures(pooled.p_value, 2)})"
+            summary += f"the scatter grows with the response (one-sided {p_equals(pooled.p_value, 2)})"
         else:
             summary += (
-                f"no significant growth of the scatter with the response (one-sided p = {figures(pooled.p_value, 2)}). "
+                f"no significant growth of the scatter with the response (one-sided {p_equals(pooled.p_value, 2)}). "
                 "This does not show the scatter to be constant"
             )
             if high >= 1.0:
