@@ -105,3 +105,13 @@ def test_exponent_texts_keep_their_digits():
 
 def test_a_number_is_never_broken_across_lines():
     assert notation.computed(3.2e-5, THREE) == "3.20\u00a0×\u00a010⁻⁵"
+
+
+def test_a_p_value_is_never_shown_as_certain() -> None:
+    from curvewright.core.notation import p_equals
+
+    assert p_equals(0.99966, 3) == "p > 0.999"  # would read "1" at three figures
+    assert p_equals(0.996, 2) == "p > 0.99"
+    assert p_equals(1.0, 3) == "p = 1"  # exactly 1: a statistic of zero
+    assert p_equals(0.994, 3) == "p = 0.994"
+    assert p_equals(2.6e-7, 2) == "p = 2.6\u00a0×\u00a010⁻⁷"

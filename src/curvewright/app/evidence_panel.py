@@ -91,7 +91,10 @@ class EvidencePanel(QWidget):
         self.table.selectRow(0)
         self.table.scrollToTop()
         lines = [f"• {r}" for r in self.comparison.reasons]
-        lines += [f"• not fitted: {s.model.value}, {s.weighting.value}: {s.reason}" for s in self.comparison.skipped]
+        # the candidates not fitted in the words the command line and the record give them
+        from ..io.report import skipped_reasons  # loaded when evidence is first shown, as the record's writer is
+
+        lines += [f"• {r}" for r in skipped_reasons(self.comparison)]
         self.reasons.setPlainText("\n".join(lines))
 
     def select(self, model: str, weighting: str) -> None:

@@ -89,7 +89,7 @@ from .least_squares import solve_weighted
 from .models import Model, make_basis
 from .variance import VarianceEvidence, variance_evidence
 from .weighting import Weighting
-from .notation import entered, figures
+from .notation import entered, figures, p_equals
 
 POWER_MIN_DECADES = 2.0
 """The power curve is considered, and may be recommended, when the positive standards span at least this many decades."""
@@ -380,6 +380,7 @@ def compare(
         refused = _rejected(recommended, candidates)
         if refused:
             reasons = [f"no candidate is acceptable, so none is recommended: {refused}"] + list(reasons)
+    reasons = [r + _weighted_listing(recommended, candidates) if r.startswith(WEIGHTING_NEEDED) else r for r in reasons]
     if anchors.any():
         reasons = list(reasons) + [_anchor_reason(x[anchors])]
     reasons = list(reasons) + [R_SQUARED_NOTE]
@@ -418,7 +419,7 @@ def _rejected(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:
     line_tests = _line_rejected_by(line) if line is not None else ""
     line_words = (f"the straight line is rejected by {line_tests}" if line_tests
                   else "the straight line could not be fitted")
-    return (f"the quadratic ({chosen.weighting.description}) is rejected by its lack-of-fit test (p = {figures(lof.p_value, 3)}) "
+    return (f"the quadratic ({chosen.weighting.description}) is rejected by its lack-of-fit test ({p_equals(lof.p_value, 3)}) "
             f"and {line_words}: neither model follows the data; narrow the range or check the standards, or choose "
             "a model yourself with a recorded reason")
 
@@ -435,9 +436,9 @@ def _line_rejected_by(line: Candidate) -> str:
     lof = line.calibration.lack_of_fit
     tests = []
     if lof.significant(LACK_OF_FIT_ALPHA):
-        tests.append(f"its lack-of-fit test (p = {figures(lof.p_value, 3)})")
+        tests.append(f"its lack-of-fit test ({p_equals(lof.p_value, 3)})")
     if line.mandel is not None and line.mandel.significant:
-        tests.append(f"Mandel's test (p = {figures(line.mandel.p_value, 3)})")
+        tests.append(f"Mandel's test ({p_equals(line.mandel.p_value, 3)})")
     return " and ".join(tests)
 
 
@@ -508,13 +509,13 @@ def _model_for(
     if lof.available:
         reasons.append(
             f"straight line lack-of-fit: F = {figures(lof.f_statistic, 4)} on ({lof.df_lack_of_fit}, {lof.df_pure_error}) df, "
-            f"p = {figures(lof.p_value, 3)} ({'significant' if lof_rejects else 'not significant'} at {entered(LACK_OF_FIT_ALPHA)})"
+            f"{p_equals(lof.p_value, 3)} ({'significant' if lof_rejects else 'not significant'} at {entered(LACK_OF_FIT_ALPHA)})"
         )
     else:
         reasons.append(f"no lack-of-fit test for the straight line: {lof.reason}")
     if mandel is not None:
         reasons.append(
-            f"Mandel's test: PG = {figures(mandel.statistic, 4)}, p = {figures(mandel.p_value, 3)} "
+            f"Mandel's test: PG = {figures(mandel.statistic, 4)}, {p_equals(mandel.p_value, 3)} "
             f"({'the quadratic fits significantly better' if mandel_rejects else 'the quadratic is no significant improvement'} at 99 %)"
         )
     if not (lof_rejects or mandel_rejects):
@@ -532,8 +533,8 @@ def _model_for(
     q_lof = quadratic.calibration.lack_of_fit
     if q_lof.available and q_lof.significant(LACK_OF_FIT_ALPHA):
         reasons.append(
-            f"the straight line is rejected, and the quadratic also lacks fit (p = {figures(q_lof.p_value, 3)}), so it "
-            "cannot replace it; neither model follows the data — check the standards or narrow the range"
+            f"the straight line is rejected, and the quadratic also lacks fit ({p_equals(q_lof.p_value, 3)}), so it "
+            "cannot replace it"
         )
         return quadratic, reasons
     reasons.append("the straight line is rejected, so the quadratic is recommended")
@@ -556,8 +557,7 @@ def _recommend(
             w: _model_for(models, mandel.get(w), w)[0] for w, models in by_weighting.items() if w is not Weighting.NONE
         }
         chosen, why = _weighting_for(evidence, choices)
-        listing = ", ".join(f"{c.weighting.value} (Σ|%RE| = {figures(c.sum_abs_relative_error, 3)})" for c in choices.values())
-        reasons.append(f"weighting is needed; {why}; Σ|%RE| of the weighted candidates: {listing}")
+        reasons.append(f"{WEIGHTING_NEEDED}{why}")  # the Σ|%RE| listing follows in compare, of the model recommended
         _, model_reasons = _model_for(by_weighting[chosen.weighting], mandel.get(chosen.weighting), chosen.weighting)
         reasons.extend(model_reasons)
     else:
@@ -644,8 +644,9 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
                 w = min(fitting, key=lambda v: abs(IMPLIED_POWER.get(v, theta) - theta))
                 if w in IMPLIED_POWER:
                     return choices[w], f"{shape}, which {w.value} weights (θ = {entered(IMPLIED_POWER[w])}) match"
-                return choices[w], (f"{shape}; no fixed weighting matches, so the weights follow a variance function "
-                                    f"fitted to all standards ({w.value}): {_weights_use(choices[w], theta)}")
+                return choices[w], (f"{shape}; {_in_concentration_words(choices, low, high)}, so the weights follow a variance "
+                                    f"function fitted to all standards ({w.value}): {_weights_use(choices[w], theta)}"
+                                    + _in_response_words(choices, low, high))
     weighted = list(choices.values())
     best = min(c.sum_abs_relative_error for c in weighted)
     tied = [c for c in weighted if c.sum_abs_relative_error <= best * (1 + TIE_FRACTION) + 1e-12]
@@ -658,13 +659,66 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
     )
 
 
+def _in_concentration_words(choices: dict[Weighting, Candidate], low: float, high: float) -> str:
+    """Why no weighting in concentration was taken, once neither one's θ lies in the interval: each
+    either does not match or could not be fitted (a blank rules out 1/x-type weights). When every fixed
+    weighting was fitted and none matches, it says so in one phrase."""
+    if all(w in choices and not low <= theta <= high for w, theta in IMPLIED_POWER.items()):
+        return "no fixed weighting matches"
+    fitted = [w for w in (Weighting.INVERSE_X2, Weighting.INVERSE_X) if w in choices]
+    missing = [w for w in (Weighting.INVERSE_X2, Weighting.INVERSE_X) if w not in choices]
+    words = [f"{w.value} weights (θ = {entered(IMPLIED_POWER[w])})" for w in fitted]
+    parts = []
+    if len(words) == 2:
+        parts.append(f"neither {words[0]} nor {words[1]} match")
+    elif words:
+        parts.append(f"{words[0]} do not match")
+    if missing:
+        names = " and ".join(w.value for w in missing)
+        parts.append(f"{names} weights could not be fitted (see the candidates not fitted)")
+    return "; ".join(parts)
+
+
+def _in_response_words(choices: dict[Weighting, Candidate], low: float, high: float) -> str:
+    """What the reason says of the 1/y-type weightings whose θ lies in the interval too (empty when
+    none does): by design they are ranked after the fitted variance function (:func:`_weighting_for`)."""
+    inside = [w for w in (Weighting.INVERSE_Y, Weighting.INVERSE_Y2)
+              if w in choices and low <= IMPLIED_POWER[w] <= high]
+    if not inside:
+        return ""
+    words = " and ".join(f"{w.value} (θ = {entered(IMPLIED_POWER[w])})" for w in inside)
+    verb = "lies" if len(inside) == 1 else "lie"
+    return (f"; {words} {verb} in the interval too, but weights taken from each standard's own response are "
+            "ranked after a variance function fitted to all standards")
+
+
+WEIGHTING_NEEDED = "weighting is needed; "
+"""How the reason for weighting begins (the Σ|%RE| of the recommended model's weightings is added to it)."""
+
+
+def _weighted_listing(recommended: Candidate, candidates: tuple[Candidate, ...]) -> str:
+    """Σ|%RE| of the recommended model under each weighting it was fitted with, the model named: the
+    figures quoted in the weighting reason are those of the table's rows of that model."""
+    rows = [c for c in candidates if c.model is recommended.model and c.weighting is not Weighting.NONE]
+    if not rows:
+        return ""
+    listing = ", ".join(f"{c.weighting.value} (Σ|%RE| = {figures(c.sum_abs_relative_error, 3)})" for c in rows)
+    return f"; Σ|%RE| of the {_model_name(recommended.model)} under each weighting: {listing}"
+
+
+def _model_name(model: Model) -> str:
+    """The model in running text, without its article ("straight line", "power curve", "4PL")."""
+    short = _SHORT_NAMES.get(model)
+    return short.split(" ", 1)[1] if short else model.value
+
+
 def _weights_use(chosen: Candidate, evidence_theta: float) -> str:
     """The variance function ``chosen``'s weights use, told apart from the replicate evidence's θ
     (``evidence_theta``): the evidence fits SD ∝ mean^θ to the replicates' scatter about their level
     means (:mod:`.variance`), the weights fit it to the residuals of all standards about the curve
     (:mod:`.variance_function`), so the two estimates differ a little."""
     fitted = chosen.calibration.weight_model.variance_fit
-    name = _SHORT_NAMES.get(chosen.model, f"the {chosen.model.value}").split(" ", 1)[1]
+    name = _model_name(chosen.model)
     if fitted is None:
         return f"the {name}'s weights hold no fitted variance function"
     function = fitted.function
@@ -762,12 +816,12 @@ def _consider_curves(
             if test is not None and test[1] < FIVE_PL_ALPHA:
                 words.append(
                     f"the 5PL's asymmetry improves the fit significantly (F = {figures(test[0], 4)} on (1, "
-                    f"{five.calibration.df_residual}) df, p = {figures(test[1], 3)}), so the 5PL"
+                    f"{five.calibration.df_residual}) df, {p_equals(test[1], 3)}), so the 5PL"
                 )
                 return five, words + _failing_words(five, candidates)
             if test is not None:
                 words.append(
-                    f"the 5PL's asymmetry is no significant improvement (F = {figures(test[0], 4)}, p = {figures(test[1], 3)}), "
+                    f"the 5PL's asymmetry is no significant improvement (F = {figures(test[0], 4)}, {p_equals(test[1], 3)}), "
                     "so the simpler 4PL"
                 )
             return four, words + _failing_words(four, candidates)
@@ -781,7 +835,7 @@ def _consider_curves(
             four_lof = four.calibration.lack_of_fit
             if four_lof.available and not four_lof.significant(LACK_OF_FIT_ALPHA):
                 return four, reasons + [
-                    f"the {chosen.model.value} lacks fit but the 4PL does not (p = {figures(four_lof.p_value, 3)}), so the 4PL"
+                    f"the {chosen.model.value} lacks fit but the 4PL does not ({p_equals(four_lof.p_value, 3)}), so the 4PL"
                 ] + _failing_words(four, candidates)
         reasons.append("the logistic curves are listed for comparison; a polynomial that fits is kept (not a ligand-binding profile)")
     power = table.get((Model.POWER, chosen.weighting))
@@ -799,16 +853,39 @@ def _consider_curves(
             rejected = lof.available and lof.significant(LACK_OF_FIT_ALPHA)
             better = chosen.aicc - power.aicc > AICC_MARGIN
             if better and not rejected:
+                fails = _polynomials_fail(chosen, candidates)
+                if fails:  # the power curve replaces polynomials that may not be used: say so, and why it is taken
+                    return power, reasons + [
+                        f"{fails}; over {figures(decades, 2)} decades the power curve y = a·x^b "
+                        + (f"is not rejected by its lack-of-fit test ({p_equals(lof.p_value, 3)}) and " if lof.available else "")
+                        + f"fits better than the {chosen.model.value} (AICc {figures(power.aicc, 4)} against "
+                        f"{figures(chosen.aicc, 4)}, more than {entered(AICC_MARGIN)} lower), so the power curve is recommended"
+                    ] + _failing_words(power, candidates)
                 return power, reasons + [
                     f"over {figures(decades, 2)} decades the power curve y = a·x^b fits better than the {chosen.model.value} "
                     f"(AICc {figures(power.aicc, 4)} against {figures(chosen.aicc, 4)}, more than {entered(AICC_MARGIN)} lower"
-                    + (f"; its lack-of-fit p = {figures(lof.p_value, 3)}" if lof.available else "") + "), so the power curve"
+                    + (f"; its lack-of-fit {p_equals(lof.p_value, 3)}" if lof.available else "") + "), so the power curve"
                 ] + _failing_words(power, candidates)
             reasons.append(
                 f"the power curve (AICc {figures(power.aicc, 4)}) is no substantial improvement on the {chosen.model.value} "
                 f"(AICc {figures(chosen.aicc, 4)})" + ("; its lack-of-fit test rejects it" if rejected else "")
             )
     return chosen, reasons
+
+
+def _polynomials_fail(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:
+    """Which of the straight line and the quadratic may not be used, when ``chosen`` (the polynomial
+    step 2 left) is one of them that :func:`_rejected` refuses; empty otherwise."""
+    if not _rejected(chosen, candidates):
+        return ""
+    if chosen.model is Model.QUADRATIC:
+        line = next((c for c in candidates if c.model is Model.LINEAR and c.weighting is chosen.weighting), None)
+        line_tests = _line_rejected_by(line) if line is not None else ""
+        line_words = f"the straight line rejected by {line_tests}" if line_tests else "the straight line not fitted"
+        return (f"under {chosen.weighting.value} neither the straight line nor the quadratic follows the data ({line_words}, "
+                f"the quadratic by its lack-of-fit test ({p_equals(chosen.calibration.lack_of_fit.p_value, 3)}))")
+    return (f"under {chosen.weighting.value} the straight line is rejected by {_line_rejected_by(chosen)} and no quadratic "
+            "can replace it")
 
 
 def _extra_parameter_test(four: Calibration, five: Calibration) -> tuple[float, float] | None:
@@ -842,7 +919,7 @@ def _intercept_note(chosen: Candidate) -> list[str]:
     p = float(2 * special.stdtr(cal.df_residual, -abs(t_value)))
     if p >= 0.05:
         return [
-            f"the intercept is not significantly different from zero (p = {figures(p, 3)}); a line through the "
+            f"the intercept is not significantly different from zero ({p_equals(p, 3)}); a line through the "
             "origin is possible only where the laboratory's procedure permits it"
         ]
     return []

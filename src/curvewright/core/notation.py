@@ -221,6 +221,17 @@ def figures(value: float, significant: int) -> str:
     return written(format(Decimal(text), "f") if "e" in text else text)
 
 
+def p_equals(value: float, significant: int) -> str:
+    """A p-value in running text, to ``significant`` figures as :func:`figures` gives them: "p = 0.994",
+    "p = 2.6 × 10⁻⁷". A p-value below 1 whose figures round up to 1 is written "p > 0.999" (as many nines
+    as figures), so that a test's p is never shown as certain; a p of exactly 1 (a statistic of zero) is
+    "p = 1"."""
+    text = figures(value, significant)
+    if text == "1" and value < 1.0:
+        return f"p > 0.{'9' * significant}"
+    return f"p = {text}"
+
+
 def excel_format(text: str, significant: int | None = None, scientific: bool | None = None) -> str:
     """A workbook number format that shows a cell's number with the digits and notation :func:`written`
     gives its plain ``text`` (the rule's text, before the notation): "0.000" for "0.123"; "0.00E+00"

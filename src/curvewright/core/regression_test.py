@@ -29,7 +29,7 @@ from .values import frozen_value
 from ._arrays import FloatArray
 from .distributions import f_upper_tails
 from .least_squares import ROUNDOFF
-from .notation import figures
+from .notation import figures, p_equals
 
 REGRESSION_ALPHA = 0.05
 """Significance level below which the response is taken to change with concentration (common practice)."""
@@ -52,7 +52,7 @@ class RegressionTest:
     def words(self) -> str:
         """The outcome in words, with the statistic."""
         numbers = (
-            f"F = {figures(self.f_statistic, 4)} on ({self.df[0]}, {self.df[1]}) df, p = {figures(self.p_value, 3)}"
+            f"F = {figures(self.f_statistic, 4)} on ({self.df[0]}, {self.df[1]}) df, {p_equals(self.p_value, 3)}"
             if np.isfinite(self.f_statistic)
             else "every standard lies on the curve"
         )

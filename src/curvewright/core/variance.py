@@ -16,7 +16,8 @@
   it weighted a true 5 % CV in 93.5 % of calibrations and a constant SD in 5 %.
 * The ISO 8466-1 variance F-test of the end levels, PG = s²(larger)/s²(smaller) against
   F(f_larger, f_smaller) at 99 % (ISO 8466-1:1990 §5; the standard asks for 10 replicates at each end,
-  where the critical value is F(9, 9; 0.99) = 5.35). With duplicates it has 1 and 1 degrees of freedom
+  where the critical value is F(9, 9; 0.99) = 5.35). The ends are those of the working range: the
+  lowest level above zero concentration and the highest (a blank is left out, as above). With duplicates it has 1 and 1 degrees of freedom
   and almost no power, so it decides only when fewer than three levels are replicated, and is then
   worded as the weak test it is.
 * Across every replicated level: Bartlett's test (Bartlett 1937, Proc. R. Soc. A 160:268) and the
@@ -39,7 +40,7 @@ import numpy as np
 from ._arrays import FloatArray
 from .distributions import f_quantile, f_upper_tail
 from .levels import Levels
-from .notation import figures
+from .notation import figures, p_equals
 
 ISO_8466_LEVEL = 0.99
 """Confidence level of the ISO 8466-1 variance F-test (ISO 8466-1)."""
@@ -116,10 +117,10 @@ def variance_evidence(response: FloatArray, levels: Levels, residuals: FloatArra
             f"θ = {theta:.2f} (95 % interval {low:.2f} to {high:.2f}); "
         )
         if hetero:
-            summary += f"the scatter grows with the response (one-sided p = {figures(pooled.p_value, 2)})"
+            summary += f"the scatter grows with the response (one-sided {p_equals(pooled.p_value, 2)})"
         else:
             summary += (
-                f"no significant growth of the scatter with the response (one-sided p = {figures(pooled.p_value, 2)}). "
+                f"no significant growth of the scatter with the response (one-sided {p_equals(pooled.p_value, 2)}). "
                 "This does not show the scatter to be constant"
             )
             if high >= 1.0:
@@ -203,10 +204,16 @@ def _pooled_power_test(
 
 
 def _end_level_test(deviations: FloatArray, levels: Levels) -> VarianceTest:
+    """ISO 8466-1 F-test of the working range's end levels: the lowest level above zero concentration
+    (a blank is no standard of the working range, and its scatter is not the lowest standard's) and
+    the highest level."""
     name = "ISO 8466-1 end-level F-test"
-    low, high = 0, levels.n_levels - 1
+    above_zero = np.flatnonzero(levels.concentration > 0)
+    if above_zero.size < 2:
+        return VarianceTest(name, False, "needs two or more levels above zero concentration")
+    low, high = int(above_zero[0]), levels.n_levels - 1
     if levels.count[low] < 2 or levels.count[high] < 2:
-        return VarianceTest(name, False, "needs replicates at both the lowest and the highest level")
+        return VarianceTest(name, False, "needs replicates at both the lowest level above zero and the highest level")
     sd = levels.level_sd(deviations)
     var_low, var_high = sd[low] ** 2, sd[high] ** 2
     df_low, df_high = int(levels.count[low]) - 1, int(levels.count[high]) - 1

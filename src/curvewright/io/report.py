@@ -201,16 +201,47 @@ def evidence_table(result: RunResult, a: AnalyteResult) -> tuple[Table, tuple[st
             "recommended" if c is comparison.recommendation else "",
             "chosen" if (c.model is cal.model and c.weighting is cal.weighting) else "",
         ))
-    skipped: dict[str, list[str]] = {}
+    return Table("Model evidence", columns, tuple(rows)), tuple(comparison.reasons) + skipped_reasons(comparison)
+
+
+_MODEL_WORDS = {
+    "linear": "the straight line", "quadratic": "the quadratic", "proportional": "the line through the origin",
+    "power": "the power curve", "average-rf": "the average response factor", "4pl": "the 4PL", "5pl": "the 5PL",
+}
+
+
+def skipped_reasons(comparison: ModelComparison) -> tuple[str, ...]:
+    """One line per weighting that some candidates could not be fitted with, each reason with the
+    models it holds for ("not fitted with power weighting for the line through the origin: …"), so
+    that a reason about one model is not read as one about the model recommended."""
+    by_weighting: dict[str, dict[str, list[str]]] = {}
     for s in comparison.skipped:
         reason = s.reason.split(": ", 1)[-1] if s.reason.startswith("weighting") else s.reason
-        skipped.setdefault(s.weighting.value, [])
-        if reason not in skipped[s.weighting.value]:
-            skipped[s.weighting.value].append(reason)
-    reasons = tuple(comparison.reasons) + tuple(
-        f"not fitted with {w} weighting: {'; '.join(why)}" for w, why in skipped.items()
+        models = by_weighting.setdefault(s.weighting.value, {}).setdefault(reason, [])
+        name = _MODEL_WORDS.get(s.model.value, f"the {s.model.value}")
+        if name not in models:
+            models.append(name)
+    return tuple(_not_fitted_line(w, why) for w, why in by_weighting.items())
+
+
+def _not_fitted_line(weighting: str, why: dict[str, list[str]]) -> str:
+    """One weighting's refusals. Reasons that differ only in their first clause (the level each model's
+    standards hold, with anchor points left out of all but the logistic curves) give that clause by
+    model and their shared explanation once; other reasons follow one another, each once."""
+    if len(why) > 1:
+        parts = [reason.split("; ", 1) for reason in why]
+        tails = {part[1] for part in parts if len(part) == 2}
+        if len(tails) == 1 and all(len(part) == 2 for part in parts):
+            heads = " and ".join(f"for {_and_list(models)} ({part[0]})" for part, models in zip(parts, why.values()))
+            return f"not fitted with {weighting} weighting {heads}: {tails.pop()}"
+    return f"not fitted with {weighting} weighting " + "; ".join(
+        f"for {_and_list(models)}: {reason.rstrip('.') if i < len(why) - 1 else reason}"
+        for i, (reason, models) in enumerate(why.items())
     )
-    return Table("Model evidence", columns, tuple(rows)), reasons
+
+
+def _and_list(words: list[str]) -> str:
+    return words[0] if len(words) == 1 else f"{', '.join(words[:-1])} and {words[-1]}"
 
 
 
