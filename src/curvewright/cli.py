@@ -1116,7 +1116,7 @@ def summary_text(  # type: ignore[no-untyped-def]
     """The results as text. A missing unit is said once per analyte and never printed empty. ``record``:
     the problems with the run's record, which the verdict line names beside the acceptance rules'."""
     from .io.model_outputs import additions_lines, response_factor_lines
-    from .io.result_tables import rule_departures
+    from .io.result_tables import recovery_windows, rule_departures
 
     run = result.run
     lines = [f"Run: {run.name}" + (f"  ({source})" if source else ""),
@@ -1128,6 +1128,7 @@ def summary_text(  # type: ignore[no-untyped-def]
         lines.append(f"Method: {result.method.label} — {result.method.name} (content SHA-256 {result.method.sha256[:16]}…); "
                      "it fixes the calibration function: the model comparison is for information only")
     lines += notes
+    windows = recovery_windows(result)
     for a in result.analytes:
         unit = a.analyte.concentration_unit.strip()
         in_unit = f" {unit}" if unit else ""
@@ -1193,7 +1194,7 @@ def summary_text(  # type: ignore[no-untyped-def]
             if rr.narrowing:
                 lines.append(f"  RANGE NARROWED from the standards' {entered_span(*rr.standards_range)}"
                              f"{in_unit}: {rr.narrowing}")
-        lines += _samples_lines(a.samples, rule, run.settings.confidence_level)
+        lines += _samples_lines(a.samples, rule, run.settings.confidence_level, windows)
         departed = rule_departures(a, rule)
         if departed:
             lines.append(f"  shown to the decimal place of their interval: {', '.join(departed)} (the rounding rule, "
@@ -1217,19 +1218,32 @@ def verdict_words(accepted: bool, record: Sequence[str]) -> str:
             "in the warnings above; curvewright check names them): exit code 1")
 
 
-def _samples_lines(samples, rule, level: float) -> list[str]:  # type: ignore[no-untyped-def]
-    """The samples as aligned text: what is reported, the number behind it, its interval, the flags."""
-    from .io.result_tables import interval_text
+def _samples_lines(samples, rule, level: float, windows: Mapping[str, float]) -> list[str]:  # type: ignore[no-untyped-def]
+    """The samples as aligned text: what is reported, the number behind it, its interval, and, where a
+    sample is judged (a QC sample, a calibration check), its recovery and "pass" or "FAIL" as the record
+    and the workbook give them (``windows``: the window around 100 % each judged kind is judged within,
+    :func:`.io.result_tables.recovery_windows`); then the flags."""
+    from .io.number_text import percent_beside_limits
+    from .io.result_tables import interval_text, qc_word
 
-    heading = ("sample", "reported", "value", f"interval ({percent_label(level)})", "flags")
-    rows = [(s.sample_id, s.reported_text or "—",
-             "—" if s.reported is None else computed_within(s.reported, s.reported_lower, s.reported_upper, rule),
-             "" if s.reported is None else interval_text(s.reported_lower, s.reported_upper, rule), s.flag_words)
-            for s in samples]
-    widths = [max(len(r[i]) for r in [heading, *rows]) for i in range(4)]
+    judged = [(s.recovery_percent, qc_word(s.kind, s.within_limits)) for s in samples]
+    shown_judged = any(r is not None or word for r, word in judged)
+    heading = ("sample", "reported", "value", f"interval ({percent_label(level)})")
+    heading += ("recovery (%)", "QC or check", "flags") if shown_judged else ("flags",)
+    rows = []
+    for s, (recovery, word) in zip(samples, judged):
+        row = (s.sample_id, s.reported_text or "—",
+               "—" if s.reported is None else computed_within(s.reported, s.reported_lower, s.reported_upper, rule),
+               "" if s.reported is None else interval_text(s.reported_lower, s.reported_upper, rule))
+        if shown_judged:
+            row += ("" if recovery is None else percent_beside_limits(recovery, 1, 100.0, windows.get(s.kind.words)), word)
+        rows.append(row + (s.flag_words,))
+    last = len(heading) - 1
+    widths = [max(len(r[i]) for r in [heading, *rows]) for i in range(last)]
+    left = {0, 1, 5}  # the sample, what is reported and the verdict word read from the left; numbers line up right
     out = []
-    for i, r in enumerate([heading, *rows]):
-        cells = [r[0].ljust(widths[0]), r[1].ljust(widths[1]), r[2].rjust(widths[2]), r[3].rjust(widths[3]), r[4]]
+    for r in [heading, *rows]:
+        cells = [r[i].ljust(widths[i]) if i in left else r[i].rjust(widths[i]) for i in range(last)] + [r[last]]
         out.append("  " + "  ".join(cells).rstrip())
     return out
 

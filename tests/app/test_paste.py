@@ -212,3 +212,41 @@ def test_typed_replicates_mixing_a_censored_reading_keep_both(make_window, qtbot
     row = next(r for r in range(table.rowCount()) if table.index(r, 0).data() == sid)
     shown = str(table.index(row, 0).data(Qt.ItemDataRole.ToolTipRole))  # the row's result in words
     assert "replicate 2 <0.05" in shown and "replicate 1 0.0887" in shown
+
+
+GERMAN_BLOCK = ("Konzentration (mg/L)\tFläche\n0,5\t512,4\n1\t1.021,7\n2\t2.040,3\n5\t5.112,9\n10\t10.207,5\n"
+                "20\t20.390,1\n")
+
+
+def test_a_header_in_words_the_import_does_not_know_is_a_header_not_a_standard(make_window, qtbot,
+                                                                                 answer_dialogs) -> None:
+    window = make_window()
+    window.left_tabs.setCurrentIndex(0)
+    type_paste(window, qtbot, window.standards_view, GERMAN_BLOCK)
+    standards = window.session.run.analytes[0].standards
+    # the row of text above the numbers is the header: six standards, none of them made of its words
+    assert [s.concentration for s in standards] == [0.5, 1.0, 2.0, 5.0, 10.0, 20.0]
+    assert [s.response.value for s in standards] == [512.4, 1021.7, 2040.3, 5112.9, 10207.5, 20390.1]
+    # the unit in its brackets is taken as for a header the import knows
+    assert window.session.run.analytes[0].concentration_unit == "mg/L"
+    title, summary = answer_dialogs.seen[-1]
+    assert "first row is text above rows of numbers, read as a header" in summary
+    assert window.session.result.analytes[0].calibration is not None
+
+
+def test_the_preview_enters_a_header_of_text_as_data_when_the_analyst_says_so(make_window, qtbot,
+                                                                              answer_dialogs) -> None:
+    window = make_window()
+    offered = []
+
+    def untick(dialog) -> None:  # type: ignore[no-untyped-def]
+        offered.append((dialog.first_row_header.isEnabled(), dialog.first_row_header.isChecked()))
+        dialog.first_row_header.click()
+
+    answer_dialogs["paste"] = untick
+    type_paste(window, qtbot, window.standards_view, GERMAN_BLOCK)
+    assert offered == [(True, True)]  # offered, preselected
+    standards = window.session.run.analytes[0].standards
+    # nothing typed is lost: the row is entered as typed and marked, the numbers below it as before
+    assert len(standards) == 7 and standards[0].response.text == "Fläche"
+    assert [s.response.value for s in standards[1:]] == [512.4, 1021.7, 2040.3, 5112.9, 10207.5, 20390.1]

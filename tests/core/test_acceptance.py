@@ -66,6 +66,19 @@ def test_exclusions_count_against_the_fraction_passing() -> None:
     verdict = cal.evaluate(profile, excluded=6)  # 16 of 22 = 73 % < 75 %
     assert not verdict.passed
     assert "6 excluded standard(s) counted as not passing" in verdict.reasons[0]
+    # the count every output gives is the verdict's own: 16 within limits of the 22 counted
+    assert (verdict.n_within, verdict.n_counted, verdict.counted_excluded) == (16, 22, 6)
+    assert verdict.count_words() == "16 of 22 (6 excluded counted as not passing)"
+    assert "16 of 22 standards within limits" in verdict.reasons[0]
+
+
+def test_the_count_leaves_out_exclusions_where_the_profile_does_not_count_them() -> None:
+    cal = calibration_with_errors([0, 0, 0, 0, 0, 0, 0, 0])
+    verdict = cal.evaluate(cw.load_profile("general"), excluded=3, unusable=1)
+    # excluded standards not counted (count_excluded_as_failing: false); one without a usable value is
+    assert (verdict.n_within, verdict.n_counted) == (16, 17)
+    assert verdict.count_words() == "16 of 17 (1 without a usable value counted as not passing)"
+    assert "16 of 17 standards within limits" in verdict.reasons[0]
 
 
 def test_two_thirds_rule_is_exact_for_qc() -> None:

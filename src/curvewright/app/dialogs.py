@@ -112,21 +112,36 @@ def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
 
     def describe(a) -> list[str]:  # type: ignore[no-untyped-def]
         if isinstance(a, str) or a.calibration is None:
-            return [a if isinstance(a, str) else a.not_fitted_words] + [""] * 6
+            return [a if isinstance(a, str) else a.not_fitted_words] + [""] * 7
         cal = a.calibration
-        judged = (f"{int(a.verdict.passing.sum())} of {int(a.verdict.judged.sum())} judged"
-                  if a.verdict is not None else "")
+        # counted as the verdict counts (excluded standards and those without a usable value included
+        # where the profile counts them as not passing)
+        judged = a.verdict.count_words() if a.verdict is not None else ""
         return [cal.equation(6), f"{figures(cal.residual_sd, 5)}", f"{cal.adjusted_r_squared:.6f}",
-                f"{cal.n_standards}", reporting_range_words(a), judged, "accepted" if a.accepted else "NOT accepted"]
+                f"{cal.n_standards}", reporting_range_words(a), judged, "accepted" if a.accepted else "NOT accepted",
+                "<br>".join(html.escape(r) for r in failing_reasons(a))]
 
     names = ("Curve", "Residual SD", "Adjusted R²", "Standards in fit", "Calibrated range", "Standards within limits",
-             "Verdict")
+             "Verdict", "Checks that fail")
     old, new = describe(results[0]), describe(results[1])
+    if not old[-1] and not new[-1]:
+        names, old, new = names[:-1], old[:-1], new[:-1]
     rows = "".join(f"<tr><td>{n}</td><td>{o}</td><td><b>{w}</b></td></tr>" for n, o, w in zip(names, old, new))
     label = QLabel(f"<p>The refit, before it is committed:</p><table cellpadding='3'><tr><th></th><th>now</th>"
                    f"<th>after the change</th></tr>{rows}</table>")
     label.setTextFormat(Qt.TextFormat.RichText)
+    label.setWordWrap(True)  # a failing check's words wrap within the dialog
+    # wide enough for the equations and counts on one line each (about 110 characters)
+    label.setMinimumWidth(label.fontMetrics().averageCharWidth() * 110)
     return label
+
+
+def failing_reasons(a) -> list[str]:  # type: ignore[no-untyped-def]
+    """The analysed analyte's checks that fail, in the verdict's own words (standards, QC samples,
+    calibration checks, method), as the run's reasons give them."""
+    groups = (("standards", a.verdict.reasons if a.verdict else ()), ("QC", a.qc_verdict.reasons if a.qc_verdict else ()),
+              ("calibration check", a.checks.reasons if a.checks else ()), ("method", a.method_reasons))
+    return [f"{name}: {r[len('FAIL: '):]}" for name, reasons in groups for r in reasons if r.startswith("FAIL")]
 
 
 def reporting_range_words(a) -> str:  # type: ignore[no-untyped-def]

@@ -218,7 +218,9 @@ class MainWindow(QMainWindow):
         split.setStretchFactor(1, 3)
         self.splitter = split
         self._arranged_by_user: set[QSplitter] = set()
-        self._panes_arranged_for: RunSession | None = None
+        self._panes_arranged_for: tuple[RunSession, bool, str, str] | None = None
+        """The session whose result last arranged the panes, whether that result held a fitted curve, and
+        the analyte shown then with its concentration unit."""
         self._key_widths: dict[str, int | None] = {}
         """The pane widths the tables' key columns needed when last laid out (see :meth:`arrange_panes`)."""
         for splitter in (split, right):
@@ -255,9 +257,11 @@ class MainWindow(QMainWindow):
         plots take five ninths of the height, or more where they need it whole, as long as the results
         keep their smallest height; on a screen too short for both, the plots' part scrolls.
 
-        The panes are arranged when the window is shown or resized, and when the first result of the
-        open run is shown (the columns of what the fit found then take their widths): an edit never
-        moves them."""
+        The panes are arranged when the window is shown or resized, when the first result of the open
+        run is shown, when its first fitted curve is shown (the columns of what the fit found then
+        take their widths; a run begun empty is fitted only once standards are entered or pasted), and
+        when the shown analyte's concentration unit is set or changed (a unit named by a pasted header
+        widens the nominal and back-calculated headers): no other edit moves them."""
         if not self.isVisible():
             return
         if self.splitter not in self._arranged_by_user and self.splitter.width() > 0:
@@ -483,8 +487,17 @@ class MainWindow(QMainWindow):
                 fit_columns(view)
             else:
                 self._unfitted_tables.add(view)
-        if self.isVisible() and self._panes_arranged_for is not self.session:
-            self._panes_arranged_for = self.session  # the open run's first result: its columns' widths known
+        # the open run's first result, its first with a fitted curve (a run begun empty and pasted into),
+        # and one after the shown analyte's unit was set or changed (it widens two key headers): the
+        # widths of the key columns are known only then
+        model = self.standards_model
+        fitted = model.result is not None and model.result.calibration is not None
+        analyte = model.analyte
+        unit = analyte.concentration_unit if analyte is not None else ""
+        arranged = self._panes_arranged_for
+        if self.isVisible() and (arranged is None or arranged[0] is not self.session or (fitted and not arranged[1])
+                                 or (arranged[2] == model.analyte_name and arranged[3] != unit)):
+            self._panes_arranged_for = (self.session, fitted, model.analyte_name, unit)
             self.arrange_panes()
 
     def _fit_opened_table(self, _index: int) -> None:

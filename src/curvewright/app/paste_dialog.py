@@ -2,14 +2,16 @@
 
 The block is read by :func:`curvewright.io.paste.read_block` (the same header names and decimal-mark
 rule as a file import). The analyst can move a column to another field, set the decimal mark and the
-thousands separator (as the file import offers them), and choose between adding the rows below the
-last and overwriting from the selected row, before anything changes.
+thousands separator (as the file import offers them), say whether the first row is a header (offered,
+and preselected as read, whenever it holds no value; a row of text above numbers is read as one), and
+choose between adding the rows below the last and overwriting from the selected row, before anything
+changes.
 """
 
 from __future__ import annotations
 
 from PySide6.QtGui import QBrush
-from PySide6.QtWidgets import (QComboBox, QDialog, QDialogButtonBox, QFormLayout, QLabel, QTableWidget,
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QDialog, QDialogButtonBox, QFormLayout, QLabel, QTableWidget,
                                QTableWidgetItem, QVBoxLayout, QWidget)
 
 from ..core.notation import entered
@@ -48,6 +50,10 @@ class PasteDialog(QDialog):
         self.thousands.addItem("none (refuse values written with one)", "")
         for label, separator in ((",", ","), (".", "."), ("space", " "), ("'", "'")):
             self.thousands.addItem(label, separator)
+        self.first_row_header = QCheckBox("First row is a header (its texts name the columns; not entered)")
+        self.first_row_header.setAccessibleName("Whether the first pasted row is a header")
+        self.first_row_header.setChecked(block.has_header)
+        self.first_row_header.setEnabled(block.can_have_header())
         self.preview = QTableWidget()
         self.preview.setAccessibleName("How each pasted value was read")
         self.field_boxes: list[QComboBox] = []
@@ -58,6 +64,7 @@ class PasteDialog(QDialog):
         form.addRow("&Rows", self.placement)
         form.addRow("&Decimal mark", self.decimal)
         form.addRow("&Thousands separator", self.thousands)
+        form.addRow("&Header", self.first_row_header)
         layout = QVBoxLayout(self)
         layout.addWidget(self.summary)
         layout.addLayout(form)
@@ -68,6 +75,7 @@ class PasteDialog(QDialog):
         self._fill_placement(block.has_header or selected_row is None)
         self.decimal.currentIndexChanged.connect(lambda _index: self._reread())
         self.thousands.currentIndexChanged.connect(lambda _index: self._reread())
+        self.first_row_header.toggled.connect(self._header_chosen)
         self.placement.currentIndexChanged.connect(lambda _index: self._describe())
         self._fill_preview()
 
@@ -93,10 +101,21 @@ class PasteDialog(QDialog):
         self._fill_placement(self.top is None)
         self._fill_preview()
 
+    def _header_chosen(self, as_header: bool) -> None:
+        """The analyst's answer to "First row is a header": the columns are placed again as read."""
+        self.block = self.block.with_header(as_header, self.decimal.currentData(), self.thousands.currentData())
+        self._fill_placement(self.block.has_header or self.selected_row is None)
+        self._fill_preview()
+
     def _describe(self) -> None:
         b = self.block
-        header = ("its first row is a header, so each column goes where its header says" if b.has_header
-                  else "it has no header row, so the columns fill the table from the selected column")
+        if b.has_header and b.header_named:
+            header = "its first row is a header, so each column goes where its header says"
+        elif b.has_header:
+            header = ("its first row is text above rows of numbers, read as a header and not entered; the columns "
+                      "fill the table from the selected column; untick \"First row is a header\" to enter it as data")
+        else:
+            header = "it has no header row, so the columns fill the table from the selected column"
         unused = f" Columns not used: {', '.join(b.unused())}." if b.unused() else ""
         grouped = f"; {b.thousands_note}" if b.thousands_note else ""
         self.summary.setText(f"{len(b.rows)} row(s) read ({header}); columns separated by {b.delimiter}; "

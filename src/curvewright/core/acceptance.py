@@ -116,11 +116,27 @@ class AcceptanceVerdict:
     judged: np.ndarray
     tolerance_percent: FloatArray
     relative_error: FloatArray
+    n_within: int
+    """How many standards (QC samples) are within limits: the numerator of the fraction rule."""
+    n_counted: int
+    """How many the fraction rule counts: those judged, with the excluded standards when the profile
+    counts them as not passing, the standards without a usable value, and the QC samples not judged.
+    Every output that gives the count ("n_within of n_counted") reads these two, as the verdict does."""
+    counted_excluded: int = 0
+    """How many of ``n_counted`` are excluded standards counted as not passing."""
+    counted_unusable: int = 0
+    """How many of ``n_counted`` are standards without a usable value (or QC samples not judged)."""
     passing_range: tuple[float, float] | None = None
     """For standards: the lowest and highest passing non-zero levels, when the profile narrows the
     range to them (``failed_end_level: narrow_range``) and an end level fails; else None."""
     narrowing: str = ""
     """Why the range was narrowed, in words (empty when it was not)."""
+
+    def count_words(self) -> str:
+        """The fraction rule's count as the verdict counts it: "11 of 16 (5 excluded counted as not passing)"."""
+        extra = [f"{self.counted_excluded} excluded counted as not passing"] if self.counted_excluded else []
+        extra += [f"{self.counted_unusable} without a usable value counted as not passing"] if self.counted_unusable else []
+        return f"{self.n_within} of {self.n_counted}" + (f" ({'; '.join(extra)})" if extra else "")
 
 
 @frozen_value(eq=False)
@@ -480,6 +496,10 @@ class AcceptanceProfile:
             judged=layout.judged,
             tolerance_percent=layout.tol,
             relative_error=cal.relative_error,
+            n_within=n_pass,
+            n_counted=n_judged,
+            counted_excluded=counted_excluded,
+            counted_unusable=unusable,
             passing_range=passing_range,
             narrowing=narrowing,
         )
@@ -541,6 +561,9 @@ class AcceptanceProfile:
             judged=frozen(np.ones(x.size, dtype=bool)),
             tolerance_percent=frozen(np.full(x.size, rules.tolerance_percent)),
             relative_error=frozen(re),
+            n_within=n_pass,
+            n_counted=n_all,
+            counted_unusable=unjudged,
         )
 
 

@@ -4,6 +4,12 @@
 * Its first row is a header when one of its cells names a column (the header names a file import
   accepts, a unit in brackets read from it, e.g. "Concentration (ng/mL)") and none of its cells is a
   number. The columns then go where their headers say, wherever the block is pasted.
+* A first row of text in words the import does not know ("Konzentration (mg/L)", "Fläche") is a
+  header too when it stands above rows of numbers: none of its cells reads as a value (a number or a
+  censored reading, under either decimal mark) while every column that holds a number below it holds
+  text in it. Its columns then fill the table from the selected column, as a block without a header
+  does, and a unit in brackets is read from it as from a known header. The preview offers the row
+  back as data (:meth:`PastedBlock.with_header`): nothing typed is lost.
 * Without a header the columns fill the table's columns from the one selected, in the table's
   order (:data:`STANDARD_COLUMNS`, :data:`SAMPLE_COLUMNS`). With no cell selected, standards start
   at the nominal concentration (concentration, then response, as instruments list them) and a
@@ -26,7 +32,7 @@ from typing import Mapping
 
 from .errors import ImportProblem
 from .importing import SYNONYMS, TEXT_FIELDS, header_words
-from .number_text import decimal_evidence, parse_number, thousands_evidence
+from .number_text import decimal_evidence, parse_number, parse_reading, thousands_evidence
 from .tables import table_from_text
 
 STANDARD_COLUMNS = ("id", "level", "replicate", "concentration", "response", "is_response")
@@ -68,6 +74,12 @@ class PastedBlock:
     """The thousands separator the values are read with ("." "," " " "'"), None for none."""
     thousands_note: str = ""
     """How the separator was decided, in words for the analyst ("" when the block shows none)."""
+    first_row: tuple[str, ...] = ()
+    """The row read as the header (its cells as pasted), () when the first row is data."""
+    header_named: bool = False
+    """True when the header names the table's columns, False for a row of text above numbers."""
+    start_field: str | None = None
+    """The field of the column selected when the block was pasted (None when no cell was selected)."""
 
     @property
     def fields(self) -> tuple[str | None, ...]:
@@ -112,7 +124,35 @@ class PastedBlock:
         unless given (``thousands`` "" for none)."""
         columns = tuple(PastedColumn(c.header, fields.get(i, c.field), c.unit) for i, c in enumerate(self.columns))
         return _read(self.target, columns, self.has_header, self.rows, self.delimiter, self.separator,
-                     decimal_mark, thousands, None)
+                     decimal_mark, thousands, None, self.first_row, self.header_named, self.start_field)
+
+    def can_have_header(self) -> bool:
+        """Whether the first row may be read as a header: it is one, or none of its cells reads as a value."""
+        return self.has_header or (bool(self.rows) and not any(_is_reading(c) for c in self.rows[0]))
+
+    def with_header(self, as_header: bool, decimal_mark: str | None = None,
+                    thousands: str | None = None) -> "PastedBlock":
+        """The same block with its first row read as a header (``as_header``) or entered as data (the
+        analyst's answer in the preview); the columns are placed again as :func:`read_block` places them."""
+        if as_header == self.has_header:
+            return self
+        order = table_fields(self.target)
+        width = len(self.columns)
+        named = None
+        if as_header:
+            if not self.can_have_header():
+                raise ValueError("the first pasted row holds values; it cannot be read as a header")
+            first, body = self.rows[0], self.rows[1:]
+            named = _header_columns(first, order)
+            columns = named if named is not None else _text_header_columns(
+                first, _positional_columns(width, order, self.start_field, self.target))
+        else:
+            first, body = (), (self.first_row,) + self.rows
+            columns = _positional_columns(width, order, self.start_field, self.target)
+        columns = columns + tuple(PastedColumn("", None) for _ in range(width - len(columns)))
+        body = tuple(r + ("",) * (width - len(r)) for r in body)
+        return _read(self.target, columns, as_header, body, self.delimiter, self.separator, decimal_mark,
+                     thousands, None, tuple(first), as_header and named is not None, self.start_field)
 
 
 def table_fields(target: str) -> tuple[str, ...]:
@@ -144,18 +184,22 @@ def read_block(text: str, target: str, *, start_field: str | None = None, decima
         raise ImportProblem("the clipboard holds no cells to paste.")
     width = max(len(r) for r in rows)
     header = _header_columns(rows[0], order)
+    positional = _positional_columns(width, order, start_field, target)
+    named = header is not None
+    if header is None and _text_above_numbers(rows, positional):
+        header = _text_header_columns(rows[0], positional)
     if header is not None:
-        columns, body = header, rows[1:]
+        columns, body, first = header, rows[1:], rows[0]
     else:
-        columns, body = _positional_columns(width, order, start_field, target), rows
+        columns, body, first = positional, rows, ()
     columns = columns + tuple(PastedColumn("", None) for _ in range(width - len(columns)))
     body = tuple(r + ("",) * (width - len(r)) for r in body)
     return _read(target, columns, header is not None, body, table.delimiter_name, table.delimiter,
-                 decimal_mark, thousands, usual_mark)
+                 decimal_mark, thousands, usual_mark, tuple(first), named, start_field)
 
 
 def _read(target, columns, has_header, rows, delimiter, separator, decimal_mark, thousands,  # type: ignore[no-untyped-def]
-          usual_mark) -> PastedBlock:
+          usual_mark, first_row=(), header_named=False, start_field=None) -> PastedBlock:
     """The block with its decimal mark and thousands separator decided (given, or as the values show)."""
     fields = tuple(c.field for c in columns)
     mark, note = _decimal_mark(rows, fields, decimal_mark, separator, usual_mark)
@@ -168,7 +212,8 @@ def _read(target, columns, has_header, rows, delimiter, separator, decimal_mark,
     if thousands in (".", ",") and decimal_mark is None:  # as a file import reads a named separator
         mark = "," if grouped == "." else "."
         note = f"decimal mark {mark!r} (the thousands separator is {grouped!r})"
-    return PastedBlock(target, columns, has_header, rows, mark, note, delimiter, separator, grouped, grouped_note)
+    return PastedBlock(target, columns, has_header, rows, mark, note, delimiter, separator, grouped, grouped_note,
+                       tuple(first_row), bool(header_named), start_field)
 
 
 def _numeric_tokens(rows, fields) -> list[str]:  # type: ignore[no-untyped-def]
@@ -191,6 +236,24 @@ def _header_columns(first: tuple[str, ...], order: tuple[str, ...]) -> tuple[Pas
     return tuple(columns) if taken else None
 
 
+def _text_above_numbers(rows, positional) -> bool:  # type: ignore[no-untyped-def]
+    """True when the first row is text above rows of numbers: none of its cells reads as a value, and
+    every column placed in a numeric field that holds a number in a row below holds text in the first."""
+    first, body = rows[0], rows[1:]
+    if not body or any(_is_reading(c) for c in first):
+        return False
+    numeric = [i for i, c in enumerate(positional) if c.field is not None and c.field not in TEXT_FIELDS]
+    with_numbers = [i for i in numeric if any(i < len(r) and _is_number(r[i]) for r in body)]
+    return bool(with_numbers) and all(i < len(first) and first[i].strip() for i in with_numbers)
+
+
+def _text_header_columns(first, positional) -> tuple[PastedColumn, ...]:  # type: ignore[no-untyped-def]
+    """The positional columns headed by the first row's texts, each with the unit its brackets name."""
+    return tuple(PastedColumn(first[i].strip() if i < len(first) else "", c.field,
+                              header_words(first[i])[1] if i < len(first) else "")
+                 for i, c in enumerate(positional))
+
+
 def _positional_columns(width: int, order: tuple[str, ...], start: str | None, target: str) -> tuple[PastedColumn, ...]:
     if start is None and target == "samples" and width == 2:
         fields: tuple[str, ...] = ("id", "response")
@@ -208,6 +271,17 @@ def _decimal_mark(rows, fields, given: str | None, separator: str | None,  # typ
     if evidence.mark is None and usual is not None and not evidence.conflict:
         return usual, f"decimal mark {usual!r} as set in the settings ({evidence.note})"
     return evidence.mark, evidence.note
+
+
+def _is_reading(text: str) -> bool:
+    """True when the cell reads as a value under either decimal mark: a number or a censored reading."""
+    if not text.strip():
+        return False
+    for mark in (".", ","):
+        reading = parse_reading(text, mark).reading
+        if reading is not None and (reading.is_number or reading.is_censored):
+            return True
+    return False
 
 
 def _is_number(text: str) -> bool:
