@@ -321,7 +321,8 @@ class _GridAxis(_TitledAxis):
         out, the same numbers in the same order (``tests/app/test_axis_specs.py`` compares the two over
         many ranges, sizes and both tick kinds), with less Python per tick: each tick's ends are made
         as plain points, and the label flags, the text offset and the axis' bounds are looked up once
-        rather than once per label. An edit redraws two axes; this is most of their drawing time."""
+        rather than once per label. An edit works this out for each axis whose range moved (the two
+        response axes after a response is edited)."""
         style = self.style
         if style["tickFont"] is not None:
             p.setFont(style["tickFont"])
