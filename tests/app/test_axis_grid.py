@@ -19,11 +19,12 @@ def axes(view):  # type: ignore[no-untyped-def]
 
 
 def drawn(qtbot, view, monkeypatch, *, as_pyqtgraph: bool):  # type: ignore[no-untyped-def]
-    """The view as painted now, its axes drawn afresh either by pyqtgraph's own AxisItem.paint or by
-    the view's axes."""
+    """The view as painted now, its axes drawn afresh either by pyqtgraph's own AxisItem.paint (from
+    its own AxisItem.generateDrawSpecs) or by the view's axes."""
     with monkeypatch.context() as patch:
-        if as_pyqtgraph:
+        if as_pyqtgraph:  # pyqtgraph's drawing from its own working out
             patch.setattr(curve_view._GridAxis, "paint", pg.AxisItem.paint)
+            patch.setattr(curve_view._GridAxis, "generateDrawSpecs", pg.AxisItem.generateDrawSpecs)
         for axis in axes(view):
             axis.picture = None
         return view.grab().toImage()
