@@ -540,3 +540,34 @@ def test_the_few_ends_path_and_the_arrays_agree_on_odd_coefficients(monkeypatch)
             assert _same_bits(few[1], arrays[1]), (trial, direction)
             compared += n
     assert compared > 5000
+
+
+def test_a_weighted_quadratics_convex_band_is_decided_from_the_blocks_extremes(monkeypatch) -> None:
+    """Under 1/x² the tolerances of Halley's steps (1e-6·|ẑ|) span orders of magnitude, so whether
+    every step stops is tested at each position; whether the band is convex is still decided from the
+    block's extremes where they tell (the quick bound holds for the largest |h| and |6c3| against the
+    least margin), not at each position. Every number the same to the bit as with every test made at
+    each position."""
+    rng = np.random.default_rng(21)
+    levels = np.repeat([1.0, 2.0, 5.0, 10.0, 20.0, 50.0, 100.0, 200.0], 3)
+    response = (0.05 + 1.3 * levels - 0.002 * levels**2) * (1 + 0.03 * rng.standard_normal(levels.size))
+    cal = cw.fit(levels, response, "quadratic", "1/x^2")
+    y0 = rng.uniform(response.min(), 120.0, bp._EXTREMES_FROM + 5000)  # one block, tested by its extremes
+    decided = {"stops": [], "convex": []}
+    all_converged, surely_convex = bp._all_converged, bp._surely_convex
+    monkeypatch.setattr(bp, "_all_converged", lambda *a: (decided["stops"].append(all_converged(*a)),
+                                                             decided["stops"][-1])[1])
+    monkeypatch.setattr(bp, "_surely_convex", lambda *a: (decided["convex"].append(surely_convex(*a)),
+                                                           decided["convex"][-1])[1])
+    at_each_position = []
+    convex = bp._convex
+    monkeypatch.setattr(bp, "_convex", lambda first, h: (at_each_position.append(h.size), convex(first, h))[1])
+    ours = cal.quantify(y0)
+    assert decided["stops"] == [False, False]  # the steps' test is made at each position on both sides
+    # (the few ends across the lowest standard are worked apart, at each position)
+    assert decided["convex"] == [True, True] and y0.size not in at_each_position
+    monkeypatch.setattr(bp, "_EXTREMES_FROM", 1 << 62)
+    theirs = cal.quantify(y0)
+    assert at_each_position.count(y0.size) == 2
+    for name in ("estimate", "standard_error", "lower", "upper", "flag_bits"):
+        assert _same_bits(getattr(ours, name), getattr(theirs, name)), name

@@ -582,7 +582,18 @@ def _convex_end(
                     if not moving.any():
                         break
                 h[rest], converged[rest] = hr, ~moving
-            convex = True if converged is True and _surely_convex(first, h_low, h_high) else _convex(first, h)
+            # the quick convexity bound decided from the block's extremes where they tell, whether or not
+            # every unknown stopped (under 1/x² the steps' test is made at each position, but the bound
+            # still holds for the whole block); the extremes of h as it now is
+            convex = None
+            if by_extremes:
+                if converged is not True:
+                    # some unknowns took other steps, or the extremes were not taken
+                    h_low, h_high = np.minimum.reduce(h), np.maximum.reduce(h)
+                if _surely_convex(first, h_low, h_high):
+                    convex = True
+            if convex is None:
+                convex = _convex(first, h)
         # 0 < u ≤ reach with u = h·direction, compared without the product (multiplying and negating
         # by ±1 are exact); within a finite reach it holds only for a finite h
         if direction > 0:
