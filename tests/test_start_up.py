@@ -208,3 +208,47 @@ def test_the_collector_is_left_as_it_was_found(collecting: bool) -> None:
             "print(code, gc.isenabled(), 'scipy.special' in sys.modules)")
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=300)
     assert done.stdout.split() == ["0", str(collecting), "True"], done.stderr
+
+
+_WATCHED_COLLECTIONS = (
+    "import contextlib, gc, io, sys\n"
+    "{before}\n"
+    "passes = []  # at each pass of the collector: the objects frozen, and whether the engine is loaded\n"
+    "gc.callbacks.append(lambda phase, info: passes.append((gc.get_freeze_count(),\n"
+    "                    'curvewright.core.run_analysis' in sys.modules)) if phase == 'start' else None)\n"
+    "from curvewright.cli import main\n"
+    "start = gc.get_freeze_count()\n"
+    "with contextlib.redirect_stdout(io.StringIO()):\n"
+    "    code = main({argv!r})\n"
+    "during = [frozen for frozen, loaded in passes if loaded]\n"
+    "print(code, start, sum(n > 20_000 for n in during), len(during), gc.get_freeze_count(), gc.isenabled())"
+)
+"""A command run in a fresh process that watches the collector: the exit code, the objects frozen before the
+command, the collector's passes in this process after the engine was loaded that left more than 20,000 objects
+alone (frozen) and all such passes, the objects frozen after the command, and whether the collector runs."""
+
+
+@pytest.mark.parametrize("jobs", ["1", "2"])
+def test_the_loaded_modules_are_left_alone_by_the_collector_while_runs_are_analysed(tmp_path: Path, jobs: str) -> None:
+    """The objects made in loading the engine, numpy and scipy.special (tens of thousands) are not walked by
+    the collector's passes while the runs are analysed, and are collected as before once the command is done."""
+    folder = tmp_path / "runs"
+    folder.mkdir()
+    for i in range(6):
+        (folder / f"run_{i}.json").write_bytes(RUN.read_bytes())
+    code = _WATCHED_COLLECTIONS.format(before="gc.set_threshold(50)  # passes during every run",
+                                       argv=["quantify", str(folder), "--json", "--jobs", jobs])
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=300)
+    exit_code, start, passes_left_alone, passes, after, enabled = done.stdout.split()
+    assert (exit_code, start, after, enabled) == ("0", "0", "0", "True"), done.stderr
+    # all but the few passes after the runs, while their JSON is written
+    assert int(passes) > 6 and int(passes_left_alone) >= 0.8 * int(passes), done.stdout
+
+
+def test_objects_frozen_by_the_caller_stay_frozen() -> None:
+    """A program that froze objects of its own before calling the command finds them frozen after it."""
+    code = _WATCHED_COLLECTIONS.format(before="gc.freeze()", argv=["quantify", str(RUN), "--json"])
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, timeout=300)
+    exit_code, start, _, _, after, enabled = done.stdout.split()
+    # the frozen objects that died meanwhile are no longer counted
+    assert exit_code == "0" and int(after) > int(start) * 0.9 > 0 and enabled == "True", (done.stdout, done.stderr)

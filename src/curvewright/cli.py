@@ -454,8 +454,23 @@ def _finish(outcomes: list[Outcome], as_json: bool) -> int:
 
 
 def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
-    progress = _Progress(len(paths)) if len(paths) > 1 else None
+    """The outcomes of the run documents ``paths``, in their order. The objects made in loading what
+    an analysis needs are left alone by the collector until the runs are done (:func:`_load_for_runs`),
+    unless the caller had frozen objects of its own."""
+    import gc
+
     settings = _options(args)
+    left_alone = gc.get_freeze_count() == 0  # objects frozen by the caller are theirs to unfreeze
+    try:
+        return _analyse_runs(paths, args, settings, left_alone)
+    finally:
+        if left_alone:
+            gc.unfreeze()
+
+
+def _analyse_runs(paths: list[Path], args: argparse.Namespace, settings: dict[str, Any],
+                  left_alone: bool) -> list[Outcome]:
+    progress = _Progress(len(paths)) if len(paths) > 1 else None
     if args.jobs > 1 and len(paths) > 1:
         import multiprocessing
 
@@ -473,7 +488,7 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
         works_here = forked and not settings["report"]
         outcomes = []
         if forked:
-            _load_for_runs(settings)
+            _load_for_runs(settings, left_alone)
         if works_here:
             outcomes.append(_quantify_file_in_list(paths[0], settings))
             if progress:
@@ -482,7 +497,7 @@ def _run_many(paths: list[Path], args: argparse.Namespace) -> list[Outcome]:
         else:
             outcomes += _share_runs(paths, settings, args.jobs, forked, progress)
     else:
-        _load_for_runs(settings)
+        _load_for_runs(settings, left_alone)
         outcomes = [_quantify_in_list_shown(path, settings, progress, in_list=False) for path in paths]
     if progress:
         progress.done()
@@ -523,7 +538,11 @@ def _share_forked(paths: list[Path], settings: dict[str, Any], others: int,
         return k
 
     links, processes = [], []
-    gc.freeze()  # the objects made so far are left alone by the collector: their pages stay shared
+    # the objects made so far are left alone by the collector in the forked processes, so that their
+    # pages stay shared; here those made before the runs stay left alone until the runs are done
+    # (:func:`_run_many`), the others are collected again
+    frozen_before = gc.get_freeze_count()
+    gc.freeze()
     try:
         for _ in range(min(others, len(paths) - 1)):
             receiving, sending = context.Pipe(duplex=False)
@@ -533,7 +552,8 @@ def _share_forked(paths: list[Path], settings: dict[str, Any], others: int,
             links.append(receiving)
             processes.append(process)
     finally:
-        gc.unfreeze()
+        if not frozen_before:
+            gc.unfreeze()
     done: dict[int, Outcome] = {}
     names = [path.name for path in paths]
 
@@ -608,11 +628,16 @@ def _quantify_chunk(paths: list[Path], options: dict[str, Any]) -> list[Outcome]
     return [_quantify_file_in_list(path, options) for path in paths]
 
 
-def _load_for_runs(options: dict[str, Any]) -> None:
+def _load_for_runs(options: dict[str, Any], left_alone: bool = False) -> None:
     """Import what analysing a run document and writing its results need (numpy, scipy.special for
     the t and F distributions, and the engine among them), so that processes forked afterwards have
     them already. The cyclic garbage collector is paused meanwhile: importing makes many objects and
-    no garbage, and its passes over them took 10-30 ms of a start."""
+    no garbage, and its passes over them took 10-30 ms of a start.
+
+    With ``left_alone`` the objects made so far (the modules and what they hold, some 300,000) are
+    then frozen (:func:`gc.freeze`), and the caller unfreezes them when its runs are done: the
+    collector's first pass after the pause otherwise walked them all before the first run was done,
+    and the passes over the older generations walked them again."""
     import gc
 
     collecting = gc.isenabled()
@@ -624,6 +649,8 @@ def _load_for_runs(options: dict[str, Any]) -> None:
 
         if options.get("export"):
             from .io import csv_export, xlsx_export  # noqa: F401
+        if left_alone:
+            gc.freeze()
     finally:
         if collecting:
             gc.enable()
