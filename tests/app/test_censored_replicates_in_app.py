@@ -13,8 +13,8 @@ import openpyxl
 from PySide6.QtWidgets import QFileDialog
 
 from curvewright.app import results_model as rm
-from tests.app.conftest import settle
-from tests.app.test_sample_without_response import _paste, _record_text
+from tests.app.conftest import paste_from_menu, settle
+from tests.printed import printed_text
 
 STANDARDS = ("Conc\tResponse\n0.5\t51.2\n0.5\t50.8\n1\t101.9\n1\t99.7\n2\t203.1\n2\t198.4\n5\t506.2\n5\t497.0\n"
              "10\t1003.5\n10\t995.1\n20\t2011.8\n20\t1992.2\n")
@@ -26,9 +26,9 @@ def test_a_censored_reading_is_counted_among_the_replicates(make_window, answer_
     monkeypatch.setattr(QFileDialog, "getSaveFileName",
                         lambda parent, caption, suggested="", *a, **k: (str(tmp_path / Path(suggested).name), ""))
     window = make_window(None)
-    _paste(window, qtbot, window.standards_view, STANDARDS)
+    paste_from_menu(qtbot, window, window.standards_view, STANDARDS)
     window.left_tabs.setCurrentIndex(1)
-    _paste(window, qtbot, window.samples_view, SAMPLES)
+    paste_from_menu(qtbot, window, window.samples_view, SAMPLES)
 
     results = window.results_model
     rows = {results.index(r, rm.SAMPLE).data(): r for r in range(results.rowCount())}
@@ -49,6 +49,6 @@ def test_a_censored_reading_is_counted_among_the_replicates(make_window, answer_
 
     window.actions_by_name["export-record"].trigger()
     settle(qtbot, window)
-    text = " ".join(_record_text(next(tmp_path.glob("*.pdf"))).split())
+    text = " ".join(printed_text(next(tmp_path.glob("*.pdf"))).split())
     table = text[text.index("Samples – analyte 1"):]
     assert table[table.index(" W-7 unknown"):].startswith(" W-7 unknown 2 (1 measured, 1 censored)"), table[:300]
