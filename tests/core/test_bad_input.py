@@ -23,8 +23,8 @@ Y = [0.11, 0.20, 0.41, 0.79, 1.62]
         ([1, 2], [1, 2], {}, r"2 standards leave no degree of freedom"),
         ([], [], {}, r"none given"),
         ([0, 1, 2, 4, 8], Y, {"weighting": "1/x"}, r"standard 1 has concentration 0"),
-        ([-1, 1, 2, 4, 8], Y, {"weighting": "1/x^2"}, r"standard 1 has concentration -1"),
-        (X, [0.1, -0.2, 0.4, 0.8, 1.6], {"weighting": "1/y"}, r"standard 2 has response -0.2"),
+        ([-1, 1, 2, 4, 8], Y, {"weighting": "1/x^2"}, r"standard 1 has concentration −1"),
+        (X, [0.1, -0.2, 0.4, 0.8, 1.6], {"weighting": "1/y"}, r"standard 2 has response −0.2"),
         (X, Y, {"weighting": "1/s^2"}, r"level at concentration 1 has 1 replicate\(s\); weights from fewer than 10"),
         ([1, 1, 2, 2, 4, 4], [1, 1.1, 2, 2.1, 4, 4.2], {"weighting": "1/s^2"}, r"choose 'power' or 'two-component'"),
         (np.repeat([1.0, 2.0, 4.0], 10), np.concatenate([np.full(10, 1.0), 2 + 0.01 * np.arange(10), 4 + 0.01 * np.arange(10)]),
@@ -188,7 +188,7 @@ def test_iso11843_options_are_checked(options, message) -> None:
 
 
 def test_response_sds_are_checked_and_never_silently_ignored() -> None:
-    with pytest.raises(cw.WeightingError, match=r"response SD: standard 1 has SD -1; a standard deviation must be above zero"):
+    with pytest.raises(cw.WeightingError, match=r"response SD: standard 1 has SD −1; a standard deviation must be above zero"):
         cw.fit(X, Y, response_sd=[-1, 0.1, 0.1, 0.1, 0.1])
     with pytest.raises(cw.WeightingError, match=r"response SD: given, but weighting none does not use it"):
         cw.fit(X, Y, response_sd=[0.1] * 5)

@@ -215,7 +215,7 @@ def test_negative_concentrations_are_refused_by_name() -> None:
     x, y = assay()
     x = x.copy()
     x[2] = -1.0
-    with pytest.raises(cw.CalibrationInputError, match="standard 3 is at -1"):
+    with pytest.raises(cw.CalibrationInputError, match="standard 3 is at −1"):
         cw.fit(x, y, "4pl")
 
 

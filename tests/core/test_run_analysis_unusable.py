@@ -16,7 +16,7 @@ def test_a_negative_nominal_concentration_is_not_usable() -> None:
     run = Run("invented", (Analyte("boron", "mg/L", "AU", standards),), (), RunSettings())
     result = analyse_run(run).analytes[0]
     assert [u.standard_id for u in result.unusable_standards] == ["S5"]
-    assert result.unusable_standards[0].reason == "concentration -2 is below zero"
+    assert result.unusable_standards[0].reason == "concentration −2 is below zero"
     assert [s.id for s in result.fitted_standards] == ["S0", "S1", "S2", "S3", "S4"]
     direct = cw.fit(xs[:5], [s.response.value for s in standards[:5]])  # the same fit, computed directly
     assert result.calibration.coefficients.tolist() == pytest.approx(direct.coefficients.tolist(), rel=1e-14)

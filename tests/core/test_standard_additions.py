@@ -86,7 +86,7 @@ def test_every_result_warns_that_matrix_matched_linearity_is_assumed() -> None:
 
 @pytest.mark.parametrize("added, response, message", [
     ([0, 1, 2], [1.0, 2.0], "3 additions but 2 responses"),
-    ([0, -1, 2], [1.0, 2.0, 3.0], "addition 2 is -1; an addition cannot be below zero"),
+    ([0, -1, 2], [1.0, 2.0, 3.0], "addition 2 is −1; an addition cannot be below zero"),
     ([0, 1], [1.0, 2.0], "2 points leave no degree of freedom"),
     ([0, 1, 2], [3.0, 2.0, 1.0], "the response must rise with the added concentration"),
     ([0, 1, 2], [0.0, 1.0, 2.0], "not below zero"),

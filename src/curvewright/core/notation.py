@@ -39,12 +39,11 @@ from __future__ import annotations
 import math
 import re
 from decimal import Decimal, InvalidOperation
-from typing import TYPE_CHECKING
 
 from .number_words import full_number
 
-if TYPE_CHECKING:  # pragma: no cover
-    from .rounding import RoundingRule
+# "RoundingRule" in the annotations is .rounding.RoundingRule, not imported: the rule's module reads this one
+# (a rounded text's notation), and the core's modules form no circle
 
 PLAIN_FROM = Decimal("1e-4")
 PLAIN_BELOW = Decimal("1e7")

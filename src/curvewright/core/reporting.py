@@ -575,6 +575,8 @@ def report_columns(
         if not surely_plain.all():
             for k in np.flatnonzero(~surely_plain).tolist():
                 rounded[k] = computed_within(float(values[k]), shown_low[k], shown_high[k], rule, text=rounded[k])
+        for k in np.flatnonzero(surely_plain & (values < 0)).tolist():  # the person's minus sign, as written
+            rounded[k] = computed_within(float(values[k]), shown_low[k], shown_high[k], rule, text=rounded[k])
         numbers[numbered] = rounded
         # the order _numeric_value judges in: above the ULOQ, below the reporting limit, else in range
         over = e > rng.uloq
