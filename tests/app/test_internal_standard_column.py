@@ -31,7 +31,7 @@ def test_an_internal_standard_response_is_shown_and_corrected_with_a_reason(
     index = model.index(row, smp.IS)
     assert index.data() == "179207"
     trail = len(session.run.audit)
-    answer_dialogs["reason"] = "transcription error: the instrument printout reads 179270"
+    answer_dialogs["reason"] = "copying error: the instrument printout reads 179270"
 
     retype(qtbot, window, view, index, "179270")
 
@@ -41,7 +41,7 @@ def test_an_internal_standard_response_is_shown_and_corrected_with_a_reason(
     assert len(session.run.audit) == trail + 1
     entry = session.run.audit[-1]
     assert entry.action == "samples_edited" and entry.user and entry.time_utc
-    assert entry.details["reason"] == "transcription error: the instrument printout reads 179270"
+    assert entry.details["reason"] == "copying error: the instrument printout reads 179270"
     assert entry.details["changes"] == [{"sample": "Subject 07 t2h", "field": "internal_standard_responses",
                                          "old": {"veltaprine/1": "179207"}, "new": {"veltaprine/1": "179270"}}]
     words = audit_rows(session.run)[-1][3]
