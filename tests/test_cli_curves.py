@@ -120,7 +120,11 @@ def test_demo_ligand_binding_run_with_anchor_points() -> None:
     assert entry["reporting_range"]["lloq"] == 3.0 and entry["reporting_range"]["uloq"] == 1600.0
     assert any("4 anchor point(s) fitted but not judged" in r for r in entry["verdict"]["reasons"])
     by_id = {s["id"]: s for s in entry["samples"]}
-    assert by_id["Donor 035"]["status"] == "not_quantified" and "beyond_asymptote" in by_id["Donor 035"]["flags"]
+    # above the upper asymptote, on the highest standard's side: "> ULOQ", no number, a re-assay diluted asked
+    donor = by_id["Donor 035"]
+    assert donor["status"] == "above_range" and {"beyond_asymptote", "above_range"} <= set(donor["flags"])
+    assert donor["reported"] is None and donor["suggested_dilution"] is None
+    assert donor["reported_text"].startswith("> ") and "re-assay the sample diluted" in donor["flag_words"]
     assert "below_range" in by_id["Donor 033"]["flags"]
 
 

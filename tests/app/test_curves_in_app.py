@@ -36,10 +36,11 @@ def test_immunoassay_demo_shows_its_4pl_and_the_logistic_evidence(make_window, q
     x_curve, y_curve = curve.getData()
     np.testing.assert_allclose(y_curve, cal.predict(x_curve), rtol=1e-12)
     assert x_curve.min() <= 0.8 and x_curve.max() >= 6000.0
-    # a donor read beyond the upper asymptote is shown as not quantified, with the reason
+    # a donor read beyond the upper asymptote is shown above the range, with no number and the reason
     model = window.results_model
     row = next(r for r in model.rows if r.sample_id == "Donor 035")
-    assert row.reported_text == "not quantified" and "asymptote" in model.description(row)
+    assert row.reported_text.startswith("> ") and "(ULOQ" in row.reported_text, row.reported_text
+    assert "asymptote" in model.description(row) and "re-assay the sample diluted" in model.description(row)
 
 
 def test_choosing_the_5pl_from_the_evidence_panel(make_window, qtbot, answer_dialogs) -> None:

@@ -113,6 +113,15 @@ def per_sample_definitions(run: Run, name: str) -> list[tuple]:
         if values and censored is None:
             estimate = None if math.isnan(quant.estimate[i]) else float(quant.estimate[i])
             engine = quant.flags[i]
+            if engine is not None and engine & (QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_TURNING_POINT):
+                # a response the curve never gives: the side of the range it lies on, from the fitted
+                # responses at the range's ends (beyond the lowest standard's side: below the reporting limit)
+                at_low, at_high = (float(v) for v in cal.predict(np.array([rng.lloq, rng.uloq])))
+                y, rising = float(quant.mean_response[i]), at_high > at_low
+                if (y < at_low) if rising else (y > at_low):
+                    engine |= QuantFlag.BELOW_RANGE | QuantFlag.BELOW_LOQ
+                elif (y > at_high) if rising else (y < at_high):
+                    engine |= QuantFlag.ABOVE_RANGE
             interval = tuple(None if math.isnan(v) else float(v) for v in (quant.lower[i], quant.upper[i]))
             value = report_value(estimate, df, engine, rng, settings.rounding, unit=analyte.concentration_unit,
                                  below_limit=below_limit, not_quantified=note if estimate is None else "",

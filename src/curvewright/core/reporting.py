@@ -12,12 +12,14 @@ that no sample is called "inside the calibrated range" and "below the LOQ" at on
 ========================  =========================================================================
 ``IN_RANGE``              reporting limit ≤ x̂ ≤ ULOQ: reported as the number
 ``ABOVE_RANGE``           x̂ > ULOQ: reported as "> ULOQ", with the dilution that brings it to the
-                          middle of the range, (LLOQ + ULOQ)/2, for the re-assay
+                          middle of the range, (LLOQ + ULOQ)/2, for the re-assay; also a response the
+                          curve never gives, on the highest standard's side (no number, no factor)
 ``BELOW_REPORTING_LIMIT`` LOD ≤ x̂ < reporting limit: "< reporting limit", or, where the profile
-                          allows it (``estimate``), the number marked as estimated
+                          allows it (``estimate``), the number marked as estimated; also a response
+                          the curve never gives, on the lowest standard's side (no number)
 ``BELOW_LOD``             x̂ < LOD: "< reporting limit" (with ``estimate``: "< LOD")
-``NOT_QUANTIFIED``        no numeric result (censored, unreadable, no solution on the curve, a
-                          response beyond a quadratic's turning point: a re-assay diluted is asked)
+``NOT_QUANTIFIED``        no numeric result (censored, unreadable, or a response the curve never
+                          gives whose side of the range is not known)
 ``NOT_REPORTABLE``        a number exists but may not be reported (not bracketed by passing
                           calibration checks); the reason says why
 ========================  =========================================================================
@@ -31,6 +33,7 @@ series of suggested factors are common practice.
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 from enum import Enum
 from typing import Callable, Iterator, Sequence
 
@@ -217,6 +220,11 @@ def report_value(
             (flags & (QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_ASYMPTOTE | QuantFlag.BEYOND_TURNING_POINT)).words
             if flags is not None else "no numeric result"
         )
+        if flags is not None and flags & _BEYOND_THE_CURVE and flags & _SIDE:
+            # the side of the range a response the curve never gives lies on (the replicates' notes said beside)
+            value = (_below_the_curve if QuantFlag.BELOW_RANGE in flags else _above_the_curve)(
+                flags, dilution, rng, rule, unit)
+            return replace(value, words=f"{value.words}; {not_quantified}") if not_quantified else value
         if not not_quantified and flags is not None and QuantFlag.BEYOND_TURNING_POINT in flags:
             reason += f"; {BEYOND_TURNING_POINT_ADVICE}"
         censored = reason.startswith((CENSORED_BELOW, CENSORED_BOUND))
@@ -244,6 +252,47 @@ def report_value(
     return _numeric_value(estimate, dilution, bits, (qualifiers, short_qualifiers),
                           _dilution_texts(dilution, rng, rule, unit), lambda: computed_within(estimate * dilution, *_diluted(interval, dilution), rule), rng,
                           unit, below_limit == "estimate", detection is not None and estimate < detection)
+
+
+_BEYOND_THE_CURVE = QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_TURNING_POINT | QuantFlag.BEYOND_ASYMPTOTE
+"""The engine's flags of a response the curve never gives on its calibrated branch."""
+_SIDE = QuantFlag.BELOW_RANGE | QuantFlag.ABOVE_RANGE
+"""The side of the calibrated range such a response lies on, where the analysis has worked it out."""
+
+
+def _never_given(flags: QuantFlag) -> str:
+    """Why the curve gives no concentration for the response, in words: beyond its turning point,
+    beyond an asymptote, or beyond every response it gives within its prediction band."""
+    if QuantFlag.BEYOND_TURNING_POINT in flags:
+        return "the response lies beyond the curve's turning point, where no concentration gives it"
+    if QuantFlag.BEYOND_ASYMPTOTE in flags:
+        return "the response lies beyond an asymptote of the curve, which no concentration reaches"
+    return "the curve never gives the response on its calibrated branch, not even within its prediction band"
+
+
+def _below_the_curve(flags: QuantFlag, dilution: float, rng: ReportingRange, rule: RoundingRule,
+                     unit: str) -> ReportedValue:
+    """A response the curve never gives, on the side of concentrations below the lowest standard (below the
+    lowest response of a rising curve, above the highest of a falling one): every concentration it could
+    stand for lies below the calibrated range, so it is reported below the reporting limit, with no number
+    and no interval; diluting could not bring it into the range (ICH M10 practice for results below the
+    LLOQ, from memory; common practice elsewhere)."""
+    _, limit_text, _, _, _ = _dilution_texts(dilution, rng, rule, unit)
+    words = (f"below the reporting limit of {limit_text}: {_never_given(flags)}; it lies on the side of the "
+             "lowest standard, so the concentration lies below the calibrated range and no number is read (a "
+             "re-assay diluted would not help)")
+    return ReportedValue(ReportStatus.BELOW_REPORTING_LIMIT, f"< {limit_text}", words, f"< {rng.basis}", flags)
+
+
+def _above_the_curve(flags: QuantFlag, dilution: float, rng: ReportingRange, rule: RoundingRule,
+                     unit: str) -> ReportedValue:
+    """A response the curve never gives, on the side of concentrations above the highest standard: reported
+    above the ULOQ with no number, and a re-assay diluted is asked (without a dilution factor, none can be
+    worked out from a response the curve never gives; common practice: dilute into the range)."""
+    diluted, _, uloq_text, _, uloq_words = _dilution_texts(dilution, rng, rule, unit)
+    words = (f"above the calibrated range (ULOQ {uloq_words}): {_never_given(flags)}; it lies on the side of "
+             f"the highest standard: {BEYOND_TURNING_POINT_ADVICE}")
+    return ReportedValue(ReportStatus.ABOVE_RANGE, f"> {uloq_text} (ULOQ{diluted})", words, "> ULOQ", flags)
 
 
 CENSORED_BELOW = "reported as censored: "

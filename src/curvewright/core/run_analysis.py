@@ -19,6 +19,7 @@ failed check fails the run's verdict and is named in its reasons.
 
 from __future__ import annotations
 
+import math
 from array import array
 from dataclasses import replace
 from functools import cached_property
@@ -891,6 +892,7 @@ def _quantify_samples(
             for column in (estimate, standard_error, lower, upper):
                 column[beyond] = np.nan
             engine_bits[beyond] = int(QuantFlag.BEYOND_TURNING_POINT)
+        _mark_side_of_curve(engine_bits, mean_response, cal, rng)
     censored_reasons = _censored_reasons(censored_of, measured_of, cal, analyte, rng, settings.rounding, dilution)
     reasons = [""] * n
     no_estimate = np.isnan(estimate).tolist()
@@ -1011,6 +1013,35 @@ def _censored_reasons(censored_of: dict[int, list[tuple[Measurement, float | Non
             reasons[r] = censored_bound_reason(sign, text, float(bound), increasing, float(dilution[r]), rng, rule,
                                                analyte.concentration_unit, analyte.response_unit)
     return reasons
+
+
+def _mark_side_of_curve(engine_bits: np.ndarray, mean_response: np.ndarray, cal: Calibration,
+                        rng: ReportingRange) -> None:
+    """Add, in place, to each result from which the curve reads no concentration (no solution, beyond the
+    turning point or an asymptote) the side of the calibrated range its response lies on.
+
+    The calibrated branch of the curve is monotone and runs through the fitted responses f(LLOQ) and
+    f(ULOQ); a response it never gives lies beyond one end of the branch. Beyond the low-concentration
+    end (below the lowest response of a rising curve, above the highest of a falling one) every
+    concentration the curve could stand for lies below the lowest standard: the result is reported
+    below the reporting limit (``BELOW_RANGE``), as a measured result there is, and diluting could not
+    help. Beyond the high-concentration end it lies above the highest standard (``ABOVE_RANGE``) and a
+    re-assay diluted is asked. Reporting results below the LLOQ as below it and diluting those above
+    the ULOQ is the practice ICH M10 sets for study samples and common practice elsewhere (from memory).
+    """
+    no_number = (engine_bits >= 0) & ((engine_bits & int(QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_TURNING_POINT)) != 0)
+    if not no_number.any():
+        return
+    with np.errstate(all="ignore"):
+        at_low, at_high = (float(v) for v in cal.predict(np.array([rng.lloq, rng.uloq])))
+    if not (math.isfinite(at_low) and math.isfinite(at_high)) or at_low == at_high:
+        return
+    rising = at_high > at_low
+    y = mean_response
+    low_side = no_number & ((y < at_low) if rising else (y > at_low))
+    high_side = no_number & ((y > at_high) if rising else (y < at_high))
+    engine_bits[low_side] |= int(QuantFlag.BELOW_RANGE | QuantFlag.BELOW_LOQ)
+    engine_bits[high_side] |= int(QuantFlag.ABOVE_RANGE)
 
 
 def _awaits_response(sample: Sample, analyte: str) -> bool:
