@@ -807,10 +807,10 @@ def _consider_curves(
         if four is None and five is None:
             pick = min(logistic, key=lambda c: c.sum_abs_relative_error)
             return pick, reasons[:1] + [
-                f"{logistic_because}: a logistic curve is recommended; under {weighting.value} none could be "
+                f"{_logistic_head(logistic_because, pick, candidates)}; under {weighting.value} none could be "
                 f"fitted, so {pick.label} (the smallest Σ|%RE| among the logistic candidates)"
             ]
-        words = reasons[:1] + [f"{logistic_because}: a logistic curve is recommended; {why}"]
+        words: list[str] = []
         if four is not None and five is not None:
             test = _extra_parameter_test(four.calibration, five.calibration)
             if test is not None and test[1] < FIVE_PL_ALPHA:
@@ -818,16 +818,20 @@ def _consider_curves(
                     f"the 5PL's asymmetry improves the fit significantly (F = {figures(test[0], 4)} on (1, "
                     f"{five.calibration.df_residual}) df, {p_equals(test[1], 3)}), so the 5PL"
                 )
-                return five, words + _failing_words(five, candidates)
-            if test is not None:
-                words.append(
-                    f"the 5PL's asymmetry is no significant improvement (F = {figures(test[0], 4)}, {p_equals(test[1], 3)}), "
-                    "so the simpler 4PL"
-                )
-            return four, words + _failing_words(four, candidates)
-        pick = four or five
-        assert pick is not None
-        return pick, words + [f"only the {pick.model.value} could be fitted under {weighting.value}"] + _failing_words(pick, candidates)
+                pick = five
+            else:
+                if test is not None:
+                    words.append(
+                        f"the 5PL's asymmetry is no significant improvement (F = {figures(test[0], 4)}, {p_equals(test[1], 3)}), "
+                        "so the simpler 4PL"
+                    )
+                pick = four
+        else:
+            pick = four or five
+            assert pick is not None
+            words.append(f"only the {pick.model.value} could be fitted under {weighting.value}")
+        head = f"{_logistic_head(logistic_because, pick, candidates)}; {why}"
+        return pick, reasons[:1] + [head] + words + _failing_words(pick, candidates)
     if logistic:
         four = table.get((Model.FOUR_PL, chosen.weighting))
         lof = chosen.calibration.lack_of_fit
@@ -871,6 +875,15 @@ def _consider_curves(
                 f"(AICc {figures(chosen.aicc, 4)})" + ("; its lack-of-fit test rejects it" if rejected else "")
             )
     return chosen, reasons
+
+
+def _logistic_head(because: str, pick: Candidate, candidates: tuple[Candidate, ...]) -> str:
+    """How the reason for a logistic curve begins: it is recommended, or, when its own lack-of-fit test
+    rejects the one the steps pick (:func:`_rejected`), only called for, since nothing is recommended then."""
+    if _rejected(pick, candidates):
+        return (f"{because}: a logistic curve is called for, but the {_rejected_name(pick)} chosen below lacks fit "
+                "(see the first reason), so none is recommended")
+    return f"{because}: a logistic curve is recommended"
 
 
 def _polynomials_fail(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:
