@@ -3,11 +3,11 @@
 Invented scenario: the Quillmere IL-6 plate, triplicates at nine levels from 1.5 to 400 pg/mL, rises as a 4PL
 with a ±10 % wave along the log-concentration axis, far beyond the triplicates' ±0.4 % scatter. The profile
 calls for a logistic curve weighted 1/y²; the 5PL's asymmetry is no significant improvement, and the 4PL's
-own lack-of-fit test rejects it. Its lack-of-fit p is worked out here independently: the 4PL fitted with
-scipy's ``curve_fit`` (sigma = y, i.e. weights 1/y²) and the pure-error F-test
-F = [(SSE − SSPE)/(m − 4)] / [SSPE/(n − m)] on (m − 4, n − m) df (Draper & Smith, *Applied Regression
-Analysis*, 3rd ed., §2.1, from memory). The first reason says no candidate is acceptable; the reason for the
-logistic curve must agree with it, in the text and in the JSON.
+own lack-of-fit test rejects it. Its lack-of-fit p is worked out independently as in
+``tests/test_cli_logistic_lacks_fit.py``: the 4PL fitted with scipy's ``curve_fit`` (sigma = y, i.e. weights
+1/y²) and the pure-error F-test (Draper & Smith, *Applied Regression Analysis*, 3rd ed., §2.1, from memory).
+The first reason says no candidate is acceptable; the reason for the logistic curve must agree with it, in
+the text and in the JSON.
 """
 
 from __future__ import annotations
@@ -15,12 +15,8 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
-import numpy as np
-
-from curvewright.core.run import Analyte, Reading, RunSettings, Standard
-from curvewright.io import run_edits
-from curvewright.io.run_document import dumps_run
 from tests.cli_runs import run_cli
+from tests.test_cli_logistic_lacks_fit import independent_lack_of_fit_p, plate_run_document
 
 PLATE = [(1.5, 122.5), (1.5, 121.9), (1.5, 121.6), (3, 204.9), (3, 205.9), (3, 206.5), (6, 326.7), (6, 325.1),
          (6, 324.1), (12, 589.6), (12, 592.6), (12, 594.3), (25, 1211.8), (25, 1205.8), (25, 1202.1),
@@ -28,38 +24,15 @@ PLATE = [(1.5, 122.5), (1.5, 121.9), (1.5, 121.6), (3, 204.9), (3, 205.9), (3, 2
          (200, 2464.9), (200, 2477.3), (200, 2484.7), (400, 3119.9), (400, 3104.3), (400, 3095.0)]
 
 
-def independent_lack_of_fit_p() -> float:
-    from scipy import optimize, stats
-
-    x, y = (np.array(v, dtype=float) for v in zip(*PLATE))
-
-    def four_pl(c, a, d, c50, b):  # a at zero concentration, d at infinite concentration
-        return d + (a - d) / (1 + (c / c50) ** b)
-
-    params, _ = optimize.curve_fit(four_pl, x, y, p0=(40, 3200, 45, 1.1), sigma=y, maxfev=20000)
-    w = 1 / y**2
-    sse = float(np.sum(w * (y - four_pl(x, *params)) ** 2))
-    levels = np.unique(x)
-    sspe = sum(float(np.sum(w[x == c] * (y[x == c] - np.average(y[x == c], weights=w[x == c])) ** 2)) for c in levels)
-    m, n = levels.size, x.size
-    f = ((sse - sspe) / (m - 4)) / (sspe / (n - m))
-    return float(stats.f.sf(f, m - 4, n - m))
-
-
-def plate_run_document(path: Path) -> Path:
+def quillmere_document(path: Path) -> Path:
     """The plate as a run document saved by the program, judged by the ligand-binding profile."""
-    standards = tuple(Standard(f"S-{i + 1}", float(c), Reading(r, f"{r:.1f}"), 1 + i % 3, f"L{i // 3 + 1}")
-                      for i, (c, r) in enumerate(PLATE))
-    run = run_edits.new_run("IL-6, Quillmere plate 7", (Analyte("IL-6", "pg/mL", "RLU", standards),),
-                            settings=RunSettings(acceptance_profile="ich-m10-ligand-binding"), user="a.tester")
-    path.write_text(dumps_run(run), encoding="utf-8")
-    return path
+    return plate_run_document(path, PLATE, replicates=3, title="IL-6, Quillmere plate 7", analyte="IL-6", prefix="S")
 
 
 def test_the_logistic_reason_does_not_recommend_a_curve_that_lacks_fit(tmp_path: Path) -> None:
-    p = independent_lack_of_fit_p()
-    assert f"{p:.3g}" == "3.26e-22"  # scipy curve_fit + pure-error F-test, as in the module docstring
-    args = ("compare", str(plate_run_document(tmp_path / "il6.json")))
+    p = independent_lack_of_fit_p(PLATE, start=(40, 3200, 45, 1.1))
+    assert f"{p:.3g}" == "3.26e-22"  # scipy curve_fit + pure-error F-test (module docstring)
+    args = ("compare", str(quillmere_document(tmp_path / "il6.json")))
     as_json = run_cli(*args, "--json")
     assert as_json.returncode == 1, as_json.stderr  # nothing recommended (README's exit codes)
     entry = json.loads(as_json.stdout)[0]
