@@ -644,15 +644,20 @@ def _under_curve_rules(
             "the simplest adequate calibration",
             f"had a fitted curve been needed it would have been the {curve.label}",
         ]
+    # a fitted curve its own lack-of-fit test rejects is not recommended (the first reason says why): say so here too
+    refused = bool(_rejected(curve, candidates))
+    outcome = ("a fitted curve is needed, but none is recommended (see the first reason)" if refused
+               else "a fitted curve is recommended")
     if rsd <= limit:
         failing = "; ".join(r for r in rf.verdict.reasons if r.startswith("FAIL"))
         head = (f"the response factors' %RSD is {figures(rsd, 3)} %, within the profile's {entered(limit)} %, but the average "
-                f"response factor fails the profile ({failing}), so a fitted curve is recommended")
+                f"response factor fails the profile ({failing}), so {outcome}")
     else:
         head = (f"the response factors' %RSD is {figures(rsd, 3)} %, above the profile's {entered(limit)} %, so the average "
-                "response factor may not be used and a fitted curve is recommended")
+                f"response factor may not be used and {outcome}")
     curve_words = [r for r in curve.verdict.reasons if "r = " in r or "r² = " in r]
-    return curve, [head] + reasons + [f"the recommended curve: {w}" for w in curve_words]
+    name = f"the {curve.label}, shown but not recommended" if refused else "the recommended curve"
+    return curve, [head] + reasons + [f"{name}: {w}" for w in curve_words]
 
 
 IMPLIED_POWER = {
