@@ -28,15 +28,16 @@ PLATE = [(1, 66.3), (1, 65.7), (2, 98.0), (2, 97.0), (4, 127.4), (4, 126.1), (8,
          (16, 542.6), (16, 537.2), (32, 782.3), (32, 774.5), (64, 1414.3), (64, 1400.2), (128, 1716.2), (128, 1699.2)]
 
 
-def independent_lack_of_fit_p() -> float:
+def independent_lack_of_fit_p(plate=PLATE, start=(50, 2000, 40, 1.3)) -> float:  # type: ignore[no-untyped-def]
+    """The 4PL's lack-of-fit p of ``plate`` ((concentration, response) pairs), fitted from ``start`` (a, d, c50, b)."""
     from scipy import optimize, stats
 
-    x, y = (np.array(v, dtype=float) for v in zip(*PLATE))
+    x, y = (np.array(v, dtype=float) for v in zip(*plate))
 
     def four_pl(c, a, d, c50, b):  # a at zero concentration, d at infinite concentration
         return d + (a - d) / (1 + (c / c50) ** b)
 
-    params, _ = optimize.curve_fit(four_pl, x, y, p0=(50, 2000, 40, 1.3), sigma=y, maxfev=20000)
+    params, _ = optimize.curve_fit(four_pl, x, y, p0=start, sigma=y, maxfev=20000)
     w = 1 / y**2
     sse = float(np.sum(w * (y - four_pl(x, *params)) ** 2))
     levels = np.unique(x)
@@ -46,11 +47,13 @@ def independent_lack_of_fit_p() -> float:
     return float(stats.f.sf(f, m - 4, n - m))
 
 
-def plate_run_document(path: Path) -> Path:
-    """The plate as a run document saved by the program, judged by the ligand-binding profile."""
-    standards = tuple(Standard(f"C-{i + 1}", float(c), Reading(r, f"{r:.1f}"), 1 + i % 2, f"L{i // 2 + 1}")
-                      for i, (c, r) in enumerate(PLATE))
-    run = run_edits.new_run("Cytokine, Fernhollow plate 3", (Analyte("cytokine", "pg/mL", "RLU", standards),),
+def plate_run_document(path: Path, plate=PLATE, *, replicates: int = 2, title: str = "Cytokine, Fernhollow plate 3",  # type: ignore[no-untyped-def]
+                       analyte: str = "cytokine", prefix: str = "C") -> Path:
+    """The plate as a run document saved by the program, judged by the ligand-binding profile: ``plate``
+    holds (concentration, response) pairs, ``replicates`` of each level one after the other."""
+    standards = tuple(Standard(f"{prefix}-{i + 1}", float(c), Reading(r, f"{r:.1f}"), 1 + i % replicates,
+                               f"L{i // replicates + 1}") for i, (c, r) in enumerate(plate))
+    run = run_edits.new_run(title, (Analyte(analyte, "pg/mL", "RLU", standards),),
                             settings=RunSettings(acceptance_profile="ich-m10-ligand-binding"), user="a.tester")
     path.write_text(dumps_run(run), encoding="utf-8")
     return path

@@ -15,7 +15,7 @@ from pathlib import Path
 
 import pypdfium2 as pdfium
 
-from curvewright.core.run import Analyte, Reading, Standard
+from curvewright.core.run import Analyte, Reading, RunSettings, Standard
 from curvewright.io import run_edits
 from curvewright.io.run_document import dumps_run
 from tests.test_cli_tables import run_cli, write
@@ -68,12 +68,13 @@ def test_a_quadratic_that_lacks_fit_is_not_recommended(tmp_path: Path) -> None:
     assert "• no candidate is acceptable, so none is recommended: the quadratic" in text
 
 
-def zinc_run_document(path: Path) -> Path:
-    """The zinc standards as a run document saved by the program (straight line chosen, as a new run has it)."""
+def zinc_run_document(path: Path, profile: str = "general") -> Path:
+    """The zinc standards as a run document saved by the program (straight line chosen, as a new run has it),
+    judged by the acceptance ``profile``."""
     standards = tuple(Standard(f"Zn-{i + 1}", float(c), Reading(r, f"{r:.2f}"), 1 + i % 2, f"L{i // 2 + 1}")
                       for i, (c, r) in enumerate(ZINC))
     run = run_edits.new_run("Zinc, Harrowgate batch 7", (Analyte("zinc", "mg/L", "counts", standards),),
-                            user="a.tester")
+                            settings=RunSettings(acceptance_profile=profile), user="a.tester")
     path.write_text(dumps_run(run), encoding="utf-8")
     return path
 
@@ -94,3 +95,20 @@ def test_compare_ends_with_exit_code_1_when_it_recommends_nothing(tmp_path: Path
             in " ".join(helped.stdout.split()))
     assert ("compare: for an analyte no candidate is acceptable, so no model is recommended (the evidence says why)"
             in " ".join(helped.stdout.split()))
+
+
+def test_under_the_environmental_profile_no_reason_recommends_the_curve_that_lacks_fit(tmp_path: Path) -> None:
+    # the profile's rules on the whole curve refuse the average response factor (its %RSD is above 20 %), and the
+    # fitted curve left is the quadratic its lack-of-fit test rejects: the reasons say a curve is needed, not that
+    # one is recommended
+    zinc = zinc_run_document(tmp_path / "zinc.json", profile="environmental")
+    out = run_cli("compare", str(zinc), "--json")
+    assert out.returncode == 1, out.stderr
+    entry = json.loads(out.stdout)[0]
+    reasons = entry["reasons"]
+    assert reasons[0].startswith("no candidate is acceptable, so none is recommended: the quadratic")
+    assert any(r.startswith("the response factors' %RSD is 27.6 %, above the profile's 20 %, so the average response "
+                            "factor may not be used and a fitted curve is needed, but none is recommended") for r in reasons)
+    assert not any("recommended curve" in r or "a fitted curve is recommended" in r for r in reasons), reasons
+    assert any(r.startswith("the quadratic, unweighted (ordinary least squares), shown but not recommended: pass: r²")
+               for r in reasons), reasons

@@ -206,6 +206,76 @@ def paste_from_menu(qtbot, window, view, text: str) -> None:  # type: ignore[no-
     settle(qtbot, window)
 
 
+def paste_standards_and_samples(qtbot, window, standards: str, samples: str) -> dict[str, int]:  # type: ignore[no-untyped-def]
+    """Paste ``standards`` into the Standards table and ``samples`` into the Samples table with Edit → Paste,
+    as the analyst does in a new run; the results table's row of each sample, by sample id, in its order."""
+    from curvewright.app import results_model as rm
+
+    paste_from_menu(qtbot, window, window.standards_view, standards)
+    window.left_tabs.setCurrentIndex(1)
+    paste_from_menu(qtbot, window, window.samples_view, samples)
+    results = window.results_model
+    return {results.index(r, rm.SAMPLE).data(): r for r in range(results.rowCount())}
+
+
+@pytest.fixture
+def new_run_pasted(make_window, qtbot, answer_dialogs, save_in_tmp_path):  # type: ignore[no-untyped-def]
+    """A new run's window with blocks pasted as the analyst pastes them (:func:`paste_standards_and_samples`),
+    its dialogs answered and its exports saved in ``tmp_path``: call it with the standards' and the samples'
+    blocks; the window and the results table's row of each sample, by sample id."""
+    def pasted(standards: str, samples: str):  # type: ignore[no-untyped-def]
+        window = make_window(None)
+        return window, paste_standards_and_samples(qtbot, window, standards, samples)
+
+    return pasted
+
+
+def exported_sheets(qtbot, window, folder: Path, *names: str) -> dict[str, list[list]]:  # type: ignore[no-untyped-def]
+    """Export the results workbook with File → Export results as XLSX (saved in ``folder``) and read the sheets ``names``, row by row."""
+    import openpyxl
+
+    window.actions_by_name["export-xlsx"].trigger()
+    settle(qtbot, window)
+    workbook = openpyxl.load_workbook(next(folder.glob("*.xlsx")), read_only=True)
+    try:
+        return {name: [list(row) for row in workbook[name].iter_rows(values_only=True)] for name in names}
+    finally:
+        workbook.close()
+
+
+def exported_record_text(qtbot, window, folder: Path) -> str:  # type: ignore[no-untyped-def]
+    """Export the calibration record with File → Export calibration record (saved in ``folder``); the text of its pages."""
+    from tests.printed import printed_text
+
+    window.actions_by_name["export-record"].trigger()
+    settle(qtbot, window)
+    return printed_text(next(folder.glob("*.pdf")))
+
+
+def show_evidence(window):  # type: ignore[no-untyped-def]
+    """Show the Model evidence tab of ``window``, as the analyst does; its panel."""
+    window.bottom_tabs.setCurrentWidget(window.evidence_panel)
+    return window.evidence_panel
+
+
+def recommended_marks(panel) -> list[str]:  # type: ignore[no-untyped-def]
+    """The Recommended column of the model evidence table, row by row."""
+    return [panel.table.item(r, 9).text() for r in range(panel.table.rowCount())]
+
+
+def use_from_evidence(qtbot, window, answer_dialogs, model: str, weighting: str, reason: str):  # type: ignore[no-untyped-def]
+    """Select the candidate ``model`` × ``weighting`` in the model evidence table, click its Use button and
+    give ``reason`` when asked; the reason dialog's prompt and the audit entry it made."""
+    from PySide6.QtCore import Qt
+
+    panel = window.evidence_panel
+    panel.select(model, weighting)
+    answer_dialogs["reason"] = reason
+    qtbot.mouseClick(panel.use_button, Qt.MouseButton.LeftButton)
+    settle(qtbot, window)
+    return answer_dialogs.seen[-1][1], window.session.run.audit[-1]
+
+
 def open_cell_editor(qtbot, window, view, index):  # type: ignore[no-untyped-def]
     """Click the cell at ``index`` of ``view`` in ``window`` and open its editor with F2, as the analyst
     does; the editor, which has the keyboard focus."""

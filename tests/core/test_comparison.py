@@ -367,3 +367,25 @@ def test_the_stacks_back_calculation_is_each_rows_alone_to_the_bit(model: str) -
         assert _same(rows[i], alone), i
     if model == "quadratic":
         assert np.isnan(rows).any() and np.isfinite(rows).any()
+
+
+def test_the_power_curve_tried_under_the_variance_function_is_the_fit_made_alone() -> None:
+    # compare() fits the power curve the span brings in under the variance function the polynomials were
+    # weighted by (the Tarnwick boron standards of tests/test_cli_power_curve_under_variance_function.py); that
+    # candidate must be fit() alone to the last bit, judged by the profile as fit() alone is, and listed after
+    # its weighting's other rows.
+    from tests.test_cli_power_curve_under_variance_function import BORON
+
+    x, y = (np.array(v, dtype=float) for v in zip(*BORON))
+    result = cw.compare(x, y)
+    rows = [(c.model.value, c.weighting.value) for c in result.candidates]
+    at = rows.index(("power", "power"))
+    assert rows[at - 2:at] == [("linear", "power"), ("quadratic", "power")]
+    together = result.candidate("power", "power")
+    alone = cw.fit(x, y, "power", "power")
+    for name in ("coefficients", "covariance", "standard_errors", "residual_sd", "adjusted_r_squared", "weights",
+                 "fitted", "back_calculated", "leverage", "studentized_residuals", "cooks_distance", "notes"):
+        assert _same(getattr(together.calibration, name), getattr(alone, name)), name
+    assert together.calibration.lack_of_fit == alone.lack_of_fit
+    assert together.verdict.passed == cw.load_profile("general").evaluate(alone).passed
+    assert result.recommendation is together

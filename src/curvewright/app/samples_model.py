@@ -1,7 +1,8 @@
 """The samples of the run as an editable table, showing the responses of the selected analyte.
 
 Responses of replicates are typed in one cell separated by ";" (e.g. "0.512; 0.508"), and so are
-their internal-standard responses in the IS column (shown where the analyte has any). A value
+their internal-standard responses in the IS column (shown where the analyte has any); a block pasted
+into either column is entered as the same cells typed would be, responses before their IS responses. A value
 that cannot be used is never dropped: a response that is not a number is kept as typed and marked;
 a dilution factor, run order or nominal value that is not a number is refused, stays in the cell
 marked in red with the reason, and is named in the status line.
@@ -28,7 +29,8 @@ from .standards_model import INVALID
 
 COLUMNS = ("Id", "Kind", "Order", "Dilution", "Nominal", "Responses", "IS responses")
 ID, KIND, ORDER, DILUTION, NOMINAL, RESPONSES, IS = range(len(COLUMNS))
-FIELD_COLUMNS = {"id": ID, "kind": KIND, "run_order": ORDER, "dilution": DILUTION, "nominal": NOMINAL, "response": RESPONSES}
+FIELD_COLUMNS = {"id": ID, "kind": KIND, "run_order": ORDER, "dilution": DILUTION, "nominal": NOMINAL, "response": RESPONSES,
+                 "is_response": IS}
 """The column of each field a pasted block can fill."""
 FIELD_WORDS = {ID: "id", KIND: "kind", ORDER: "run order", DILUTION: "dilution factor", NOMINAL: "nominal value",
                RESPONSES: "responses", IS: "internal-standard responses"}
@@ -302,7 +304,8 @@ class SamplesModel(QAbstractTableModel):
                     sid = self._new_id(samples)
                 samples.append(Sample(sid))
                 cells = {k: v for k, v in cells.items() if k != "id"}
-            for name, text in cells.items():
+            # the internal-standard responses last: each belongs to a replicate's response, entered first
+            for name, text in sorted(cells.items(), key=lambda item: item[0] == "is_response"):
                 ok, sample = self._with_cell(samples[row], FIELD_COLUMNS[name], text, row + 1, block.decimal_mark,
                                              notes.append, block.thousands)
                 if ok:

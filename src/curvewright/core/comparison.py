@@ -53,7 +53,9 @@ among the standards failing or adds their relative errors to Σ|%RE|; the span o
 that of the other standards. AICc then compares only candidates fitted to the same standards.
 The curves that are not polynomials (see :mod:`.nonlinear_calibration`) are considered where they apply,
 under the fixed weightings (a variance function may be chosen for them, but the comparison does not try
-one: each takes several nonlinear fits and a jackknife of them):
+every one: each takes several nonlinear fits and a jackknife of them). The power curve the span brings in is
+fitted under a variance function too when steps 1 to 3 weight the polynomials by one, so that step 5 compares
+it under the weighting the data led to (the candidate is listed after that weighting's other rows):
 4. Logistic curves (4PL, 5PL): on a ligand-binding profile, when anchor points are marked, and
    whenever asked for. On a ligand-binding profile, and with anchor points (which no other curve
    takes), the recommendation is a logistic curve: weighted 1/y² when the variance
@@ -63,7 +65,8 @@ one: each takes several nonlinear fits and a jackknife of them):
    for both). Elsewhere they are listed, and recommended only when the polynomial chosen lacks fit
    (p < 0.05) and the 4PL does not.
 5. The power curve: whenever the positive standards span at least two decades (and whenever asked).
-   It is recommended only over at least two decades, when under the chosen weighting its AICc is
+   It is recommended only over at least two decades, when under the chosen weighting (a variance function
+   included, see above) its AICc is
    more than 2 below the chosen polynomial's (a difference of 2 as "substantial" is common practice;
    Burnham & Anderson, *Model Selection and Multimodel Inference*, 2nd ed., 2002, §2.6, from
    memory) and its lack-of-fit test, where there is one, does not reject it.
@@ -372,9 +375,24 @@ def compare(
         refused = f"no candidate shows a significant regression ({recommended.calibration.regression.words})"
     else:
         recommended, reasons = _recommend(candidates, evidence, mandel_by_weighting)
+        w = recommended.weighting
+        if (Model.POWER in added and w.variance_function is not None and (Model.POWER, w) not in fits
+                and decades is not None and decades >= POWER_MIN_DECADES):
+            # the power curve brought in by the span is tried under the variance function the data led to
+            # as well, so that it is compared under the weighting the polynomials were judged by (step 5)
+            candidates = _with_power_under(candidates, w, inner_x, inner_y, level_tolerance, inner_levels, rules,
+                                           left_out, skipped, log_weights)
+            # the same polynomial and weighting again (a power curve takes no part in that step), its reasons
+            # now naming the new row among the candidates that pass
+            recommended, reasons = _recommend(candidates, evidence, mandel_by_weighting)
+        polynomial = recommended
         recommended, reasons = _consider_curves(
             candidates, recommended, list(reasons), evidence, logistic_because, decades, asked | added
         )
+        if recommended is not polynomial and recommended.weighting is polynomial.weighting and evidence.sd_power is not None:
+            # the weighting reason quotes the weights of the model recommended, as its Σ|%RE| listing does
+            before, after = (_weights_use(c, evidence.sd_power) for c in (polynomial, recommended))
+            reasons = [r.replace(before, after) if r.startswith(WEIGHTING_NEEDED) else r for r in reasons]
         if rules.curve is not None:
             recommended, reasons = _under_curve_rules(candidates, skipped, recommended, reasons, rules)
         refused = _rejected(recommended, candidates)
@@ -394,6 +412,25 @@ def compare(
         profile=rules.name,
         no_recommendation=refused,
     )
+
+
+def _with_power_under(
+    candidates: tuple[Candidate, ...], weighting: Weighting, x: FloatArray, y: object, level_tolerance: float | None,
+    levels: object, rules: AcceptanceProfile, left_out: Callable[[Model], str] | None, skipped: list[SkippedCandidate],
+    log_weights: dict[int, tuple[FloatArray, float]],
+) -> tuple[Candidate, ...]:
+    """``candidates`` with the power curve under ``weighting`` (a variance function) placed after that
+    weighting's other rows, fitted as :func:`~.fitting.fit` fits it alone; when it cannot be fitted it is
+    added to ``skipped`` with the reason instead."""
+    try:
+        cal = fit(x, y, Model.POWER, weighting, level_tolerance=level_tolerance, levels=levels)
+    except CalibrationInputError as exc:
+        skipped.append(SkippedCandidate(Model.POWER, weighting, str(exc)))
+        return candidates
+    power = Candidate(calibration=cal, verdict=rules.evaluate_all([cal])[0], mandel=None,
+                      aicc=_aicc(cal, log_weights), notes=(left_out(Model.POWER),) if left_out is not None else ())
+    at = max(i for i, c in enumerate(candidates) if c.weighting is weighting) + 1
+    return candidates[:at] + (power,) + candidates[at:]
 
 
 def _rejected(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:
@@ -607,15 +644,20 @@ def _under_curve_rules(
             "the simplest adequate calibration",
             f"had a fitted curve been needed it would have been the {curve.label}",
         ]
+    # a fitted curve its own lack-of-fit test rejects is not recommended (the first reason says why): say so here too
+    refused = bool(_rejected(curve, candidates))
+    outcome = ("a fitted curve is needed, but none is recommended (see the first reason)" if refused
+               else "a fitted curve is recommended")
     if rsd <= limit:
         failing = "; ".join(r for r in rf.verdict.reasons if r.startswith("FAIL"))
         head = (f"the response factors' %RSD is {figures(rsd, 3)} %, within the profile's {entered(limit)} %, but the average "
-                f"response factor fails the profile ({failing}), so a fitted curve is recommended")
+                f"response factor fails the profile ({failing}), so {outcome}")
     else:
         head = (f"the response factors' %RSD is {figures(rsd, 3)} %, above the profile's {entered(limit)} %, so the average "
-                "response factor may not be used and a fitted curve is recommended")
+                f"response factor may not be used and {outcome}")
     curve_words = [r for r in curve.verdict.reasons if "r = " in r or "r² = " in r]
-    return curve, [head] + reasons + [f"the recommended curve: {w}" for w in curve_words]
+    name = f"the {curve.label}, shown but not recommended" if refused else "the recommended curve"
+    return curve, [head] + reasons + [f"{name}: {w}" for w in curve_words]
 
 
 IMPLIED_POWER = {
@@ -807,10 +849,10 @@ def _consider_curves(
         if four is None and five is None:
             pick = min(logistic, key=lambda c: c.sum_abs_relative_error)
             return pick, reasons[:1] + [
-                f"{logistic_because}: a logistic curve is recommended; under {weighting.value} none could be "
+                f"{_logistic_head(logistic_because, pick, candidates)}; under {weighting.value} none could be "
                 f"fitted, so {pick.label} (the smallest Σ|%RE| among the logistic candidates)"
             ]
-        words = reasons[:1] + [f"{logistic_because}: a logistic curve is recommended; {why}"]
+        words: list[str] = []
         if four is not None and five is not None:
             test = _extra_parameter_test(four.calibration, five.calibration)
             if test is not None and test[1] < FIVE_PL_ALPHA:
@@ -818,16 +860,20 @@ def _consider_curves(
                     f"the 5PL's asymmetry improves the fit significantly (F = {figures(test[0], 4)} on (1, "
                     f"{five.calibration.df_residual}) df, {p_equals(test[1], 3)}), so the 5PL"
                 )
-                return five, words + _failing_words(five, candidates)
-            if test is not None:
-                words.append(
-                    f"the 5PL's asymmetry is no significant improvement (F = {figures(test[0], 4)}, {p_equals(test[1], 3)}), "
-                    "so the simpler 4PL"
-                )
-            return four, words + _failing_words(four, candidates)
-        pick = four or five
-        assert pick is not None
-        return pick, words + [f"only the {pick.model.value} could be fitted under {weighting.value}"] + _failing_words(pick, candidates)
+                pick = five
+            else:
+                if test is not None:
+                    words.append(
+                        f"the 5PL's asymmetry is no significant improvement (F = {figures(test[0], 4)}, {p_equals(test[1], 3)}), "
+                        "so the simpler 4PL"
+                    )
+                pick = four
+        else:
+            pick = four or five
+            assert pick is not None
+            words.append(f"only the {pick.model.value} could be fitted under {weighting.value}")
+        head = f"{_logistic_head(logistic_because, pick, candidates)}; {why}"
+        return pick, reasons[:1] + [head] + words + _failing_words(pick, candidates)
     if logistic:
         four = table.get((Model.FOUR_PL, chosen.weighting))
         lof = chosen.calibration.lack_of_fit
@@ -871,6 +917,15 @@ def _consider_curves(
                 f"(AICc {figures(chosen.aicc, 4)})" + ("; its lack-of-fit test rejects it" if rejected else "")
             )
     return chosen, reasons
+
+
+def _logistic_head(because: str, pick: Candidate, candidates: tuple[Candidate, ...]) -> str:
+    """How the reason for a logistic curve begins: it is recommended, or, when its own lack-of-fit test
+    rejects the one the steps pick (:func:`_rejected`), only called for, since nothing is recommended then."""
+    if _rejected(pick, candidates):
+        return (f"{because}: a logistic curve is called for, but the {_rejected_name(pick)} chosen below lacks fit "
+                "(see the first reason), so none is recommended")
+    return f"{because}: a logistic curve is recommended"
 
 
 def _polynomials_fail(chosen: Candidate, candidates: tuple[Candidate, ...]) -> str:

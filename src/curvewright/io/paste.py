@@ -37,7 +37,7 @@ from .tables import table_from_text
 
 STANDARD_COLUMNS = ("id", "level", "replicate", "concentration", "response", "is_response")
 """The fields of the standards table, in its column order."""
-SAMPLE_COLUMNS = ("id", "kind", "run_order", "dilution", "nominal", "response")
+SAMPLE_COLUMNS = ("id", "kind", "run_order", "dilution", "nominal", "response", "is_response")
 """The fields of the samples table, in its column order."""
 FIELD_WORDS = {
     "id": "id", "level": "level", "replicate": "replicate", "concentration": "nominal concentration",
@@ -94,7 +94,9 @@ class PastedBlock:
         """The rows to enter, each as texts by field with the 0-based body rows it came from.
 
         For samples, rows with the same sample id are one sample, as in a file import: their responses
-        become that sample's replicates (joined with "; "), the other cells come from its first row.
+        become that sample's replicates (joined with "; "), and so do their internal-standard responses,
+        each beside its replicate's response (an empty one kept in its place, none for that replicate);
+        the other cells come from its first row.
         """
         records: list[tuple[dict[str, str], list[int]]] = []
         by_id: dict[str, int] = {}
@@ -106,6 +108,10 @@ class PastedBlock:
                 if cells.get("response", "").strip():
                     earlier = merged.get("response", "").strip()
                     merged["response"] = f"{earlier}; {cells['response'].strip()}" if earlier else cells["response"]
+                    if "is_response" in cells:  # in step with the responses: the n-th belongs to the n-th replicate
+                        beside = merged.get("is_response", "").strip()
+                        merged["is_response"] = (f"{beside}; {cells['is_response'].strip()}" if earlier
+                                                 else cells["is_response"])
                 sources.append(i)
                 continue
             if self.target == "samples" and sid:
