@@ -49,6 +49,10 @@ def test_blank_limits_chosen_in_the_settings_are_shown_saved_exported_and_printe
     settle(qtbot, window)
     assert NAME in offered and "mean blank + 3 SD and + 10 SD read through the curve (common practice)" in offered
     assert window.session.run.settings.limits_method == "blank_sd"
+    from curvewright.io.audit_words import entry_words
+
+    assert (f"limits method from residual_sd (ICH Q2: 3.3σ/slope and 10σ/slope, σ the residual SD) to blank_sd "
+            f"({NAME})") in entry_words(window.session.run.audit[-1])
 
     x = np.array([c for _, c, _ in STANDARDS])
     y = np.array([r for _, _, r in STANDARDS])
@@ -66,6 +70,9 @@ def test_blank_limits_chosen_in_the_settings_are_shown_saved_exported_and_printe
     window.actions_by_name["save-as"].trigger()
     saved = json.loads((save_in_tmp_path / f"{window.session.run.name}.json").read_text(encoding="utf-8"))
     assert saved["settings"]["limits_method"] == "blank_sd"
+    from curvewright.io.run_document import open_run
+
+    assert open_run(save_in_tmp_path / f"{window.session.run.name}.json").run.settings.limits_method == "blank_sd"
 
     window.actions_by_name["export-xlsx"].trigger()
     sheet = {r[0]: r[1] for r in openpyxl.load_workbook(save_in_tmp_path / f"{window.session.run.name}.xlsx")[
