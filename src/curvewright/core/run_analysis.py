@@ -787,7 +787,7 @@ def _report(s: SampleResult, rng: ReportingRange, run: Run, profile: AcceptanceP
 
 def blank_readings(run: Run, analyte: Analyte) -> BlankReadings:
     """The analyte's readings in the run's samples of type blank: every numeric response (the ratio to
-    the internal standard where the analyte uses one), in run order as entered, and each reading that
+    the internal standard where the analyte uses one), in the order the samples were entered, and each reading that
     cannot enter an SD with its reason; a blank sample without a reading of the analyte is not counted."""
     name, ratio = analyte.name, analyte.uses_internal_standard
     values: list[float] = []
