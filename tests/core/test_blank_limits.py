@@ -81,3 +81,8 @@ def test_every_method_has_one_name() -> None:
     assert set(LIMIT_METHOD_NAMES) == set(LIMIT_METHODS)
     assert len(set(LIMIT_METHOD_NAMES.values())) == len(LIMIT_METHODS)
     assert "common practice" in LIMIT_METHOD_NAMES["blank_mean"]
+
+
+def test_a_power_curve_refuses_the_blank_limits_and_says_for_which_curves_they_are_made() -> None:
+    with pytest.raises(LimitsError, match="LOD and LOQ from blanks are computed here for straight lines and quadratics"):
+        cw.fit(X, Y, "power").limits("blank_sd", blanks=BlankReadings(BLANKS, 6))
