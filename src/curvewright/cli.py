@@ -1143,7 +1143,7 @@ def summary_text(  # type: ignore[no-untyped-def]
     """The results as text. A missing unit is said once per analyte and never printed empty. ``record``:
     the problems with the run's record, which the verdict line names beside the acceptance rules'."""
     from .io.model_outputs import additions_lines, response_factor_lines
-    from .io.result_tables import recovery_windows, rule_departures
+    from .io.result_tables import limits_words, recovery_windows, rule_departures
 
     run = result.run
     lines = [f"Run: {run.name}" + (f"  ({source})" if source else ""),
@@ -1196,9 +1196,13 @@ def summary_text(  # type: ignore[no-untyped-def]
         lines.append(f"  residual SD {figures(cal.residual_sd, 6)}; adjusted R² {cal.adjusted_r_squared:.6f}; {lof_text}")
         if a.limits:
             lines.append(f"  {a.limits.values_words(in_unit.strip(), run.settings.rounding)} ({a.limits.description})")
+            if a.limits.blank_readings:  # the blanks the limits come from, beside them
+                lines.append(f"  limits {a.limits.blank_words(a.analyte.response_unit.strip())}")
             for by_k in a.limits_by_readings:  # ISO 11843-2: the limits for the samples read K > 1 times
                 lines.append(f"  for samples read {by_k.readings} times: "
                              f"{by_k.values_words(in_unit.strip(), run.settings.rounding)}")
+        elif a.limits_note:
+            lines.append(f"  {limits_words(a, result)}")
         flagged = [f"{s.id} ({', '.join(f.value for f in cal.influence_flags[i])})"
                    for i, s in enumerate(a.fitted_standards) if cal.influence_flags[i]]
         if flagged:
@@ -1355,11 +1359,16 @@ def result_json(  # type: ignore[no-untyped-def]
                                                          "critical_concentration": a.limits.critical_concentration,
                                                          "critical_response": a.limits.critical_response,
                                                          "readings": a.limits.readings,
+                                                         "name": a.limits.name,
+                                                         "blank_readings": a.limits.blank_readings,
+                                                         "blank_mean": a.limits.blank_mean,
+                                                         "blank_sd": a.limits.sigma if a.limits.blank_readings else None,
                                                          "by_readings": [
                                                              {"readings": b.readings, "lod": b.lod,
                                                               "critical_concentration": b.critical_concentration,
                                                               "critical_response": b.critical_response}
                                                              for b in a.limits_by_readings]},
+                "limits_note": None if a.limits_note is None else machine(a.limits_note),
                 "verdict": {"passed": a.verdict.passed, "reasons": [machine(r) for r in a.verdict.reasons]} if a.verdict else None,
                 "qc_verdict": {"passed": a.qc_verdict.passed, "reasons": [machine(r) for r in a.qc_verdict.reasons]} if a.qc_verdict else None,
                 "calibration_checks": None if a.checks is None else {

@@ -14,6 +14,7 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QDialog, QDialogButtonBox, 
 
 from ..core.acceptance import available_profiles, load_profile
 from ..core.errors import CurvewrightError
+from ..core.limits import LIMIT_METHOD_NAMES, LIMIT_METHODS
 from ..core.rounding import RoundingRule
 from ..core.run import Analyte, Run
 from ..io import run_edits
@@ -473,11 +474,8 @@ INTERVAL_LABELS = (
     ("prediction band inverted (Fieller's interval for a straight line; the band's ends for every other curve)", "band"),
     ("symmetric: estimate ± t·standard error", "symmetric"),
 )
-LIMITS_LABELS = (
-    ("ICH Q2: 3.3σ/slope and 10σ/slope, σ the residual SD", "residual_sd"),
-    ("ICH Q2: 3.3σ/slope and 10σ/slope, σ the SD of the intercept", "intercept_sd"),
-    ("ISO 11843-2: critical value and minimum detectable value", "iso11843"),
-)
+LIMITS_LABELS = tuple((LIMIT_METHOD_NAMES[m], m) for m in LIMIT_METHODS)
+"""The limits methods in the words every list of them uses (:data:`~..core.limits.LIMIT_METHOD_NAMES`)."""
 ROUNDING_KIND_LABELS = (("significant figures", "significant"), ("decimal places", "decimals"))
 TIE_LABELS = (("round half up (5 rounds up)", "half_up"), ("round half to even", "half_even"))
 

@@ -16,7 +16,7 @@ from PySide6.QtWidgets import QAbstractItemView, QLabel, QVBoxLayout, QWidget
 from ..core.level_text import percent_label
 from ..core.notation import computed_within, entered, machine
 from ..io.number_text import percent_beside_limits
-from ..io.result_tables import display_number, interval_text, recovery_windows
+from ..io.result_tables import display_number, interval_text, limits_words, recovery_windows
 from .table_view import FittedTableView, fit_columns
 
 TYPE_CHECKING = False
@@ -306,17 +306,24 @@ class ResultsView(QWidget):
         self.table.setModel(self.results_model)
         self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
         self.table.setAlternatingRowColors(True)
+        self.limits = QLabel("")
+        self.limits.setWordWrap(True)
+        self.limits.setAccessibleName("Detection and quantitation limits")
+        self.limits.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self.limits.setVisible(False)
         self.details = QLabel("Select a sample to read its result in words.")
         self.details.setWordWrap(True)
         self.details.setAccessibleName("The selected sample's result in words")
         self.details.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
         layout = QVBoxLayout(self)
         layout.setContentsMargins(0, 0, 0, 0)
+        layout.addWidget(self.limits)
         layout.addWidget(self.table, 1)
         layout.addWidget(self.details)
         self.table.selectionModel().currentRowChanged.connect(self._on_row)
 
     def show_result(self, result: RunResult | None, analyte: str) -> None:
+        self._show_limits(result, analyte)
         selected = self.table.currentIndex().row()
         in_place = self.results_model.show(result, analyte)
         fit_columns(self.table)
@@ -327,6 +334,14 @@ class ResultsView(QWidget):
             self.table.selectRow(selected)
         else:
             self.details.setText("Select a sample to read its result in words.")
+
+    def _show_limits(self, result: RunResult | None, analyte: str) -> None:
+        """The analyte's LOD and LOQ above the table, as the command's text and the record give them
+        (:func:`~..io.result_tables.limits_words`), or why there are none."""
+        found = [a for a in result.analytes if a.analyte.name == analyte] if result is not None else []
+        text = limits_words(found[0], result) if found and found[0].calibration is not None else ""
+        self.limits.setText(text)
+        self.limits.setVisible(bool(text))
 
     def _on_row(self, current: QModelIndex, _previous: QModelIndex) -> None:
         if current.isValid() and current.row() < self.results_model.rowCount():

@@ -20,6 +20,7 @@ from typing import Any, Mapping
 
 from .acceptance import AcceptanceProfile, load_profile
 from .errors import CurvewrightError
+from .limits import LIMIT_METHODS, limit_methods_words
 from .models import Model
 from .rounding import RoundingRule
 from .weighting import Weighting
@@ -172,8 +173,8 @@ def method_from_mapping(data: Any, origin: str = "method") -> Method:
         fail("interval", f"{interval!r} is not 'band' or 'symmetric'")
         interval = None
     limits = data.get("limits_method")
-    if limits is not None and limits not in ("residual_sd", "intercept_sd", "iso11843"):
-        fail("limits_method", f"{limits!r} is not 'residual_sd', 'intercept_sd' or 'iso11843'")
+    if limits is not None and limits not in LIMIT_METHODS:
+        fail("limits_method", f"{limits!r} is not {limit_methods_words()}")
         limits = None
     if problems or profile is None:
         raise MethodError(f"{origin}: the method file cannot be used: " + "; ".join(problems))

@@ -56,6 +56,7 @@ from .curve_families import FAMILIES, CurveFamily
 from .distributions import f_upper_tail, t_quantile
 from .errors import CalibrationInputError, ConvergenceError, LimitsError
 from .influence import Influence, measure_influence, measure_influence_of_fits
+from .limits import BLANK_METHODS
 from .inverse import RANGE_SLACK, QuantFlag, Quantitation, _refuse_unrepresentable, checked_request
 from .lack_of_fit import LackOfFit, lack_of_fit_test, lack_of_fit_tests
 from .least_squares import ROUNDOFF, without_roundoff
@@ -147,6 +148,11 @@ class NonlinearCalibration(Calibration):
 
     def limits(self, method: str = "residual_sd", **options: object) -> DetectionLimits:
         """Refused: see the module docstring (the range of quantitation comes from acceptance)."""
+        if method in BLANK_METHODS:
+            raise LimitsError(
+                f"LOD and LOQ from blanks are computed here for straight lines and quadratics; for a "
+                f"{self.model.description} the range of quantitation runs from the lowest to the highest "
+                "standard that meets acceptance (LLOQ to ULOQ).")
         raise LimitsError(
             f"LOD and LOQ from the residual SD and the slope (ICH Q2) are defined for straight lines and "
             f"quadratics; for a {self.model.description} the range of quantitation runs from the lowest "

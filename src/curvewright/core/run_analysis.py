@@ -34,7 +34,7 @@ from .fitting import fit
 from .errors import CurvewrightError, LimitsError, QuantitationInputError
 from .inverse import QuantFlag
 from .limit_digits import BOUNDARY
-from .limits import DetectionLimits
+from .limits import BLANK_METHODS, BlankReadings, DetectionLimits
 from .reporting import (NO_RESPONSE, FlagBits, ReportingRange, ReportStatus, censored_bound_reason, censored_word_reason,
                         report_columns, report_value, reporting_range)
 from .rounding import RoundingRule
@@ -589,7 +589,10 @@ def _analyse_analyte(
         )
     limits, limits_note = None, None
     try:
-        limits = cal.limits(settings.limits_method)
+        if settings.limits_method in BLANK_METHODS:
+            limits = cal.limits(settings.limits_method, blanks=blank_readings(run, analyte))
+        else:
+            limits = cal.limits(settings.limits_method)
     except LimitsError as exc:
         limits_note = str(exc)
     excluded_nonzero = sum(1 for s in excluded if s.concentration != 0)
@@ -781,6 +784,30 @@ def _report(s: SampleResult, rng: ReportingRange, run: Run, profile: AcceptanceP
                          interval=(s.lower, s.upper))
     return replace(s, status=value.status, reported_text=value.text, words=value.words, short=value.short,
                    flags=value.flags if s.estimate is not None else engine, suggested_dilution=value.suggested_dilution)
+
+
+def blank_readings(run: Run, analyte: Analyte) -> BlankReadings:
+    """The analyte's readings in the run's samples of type blank: every numeric response (the ratio to
+    the internal standard where the analyte uses one), in the order the samples were entered, and each reading that
+    cannot enter an SD with its reason; a blank sample without a reading of the analyte is not counted."""
+    name, ratio = analyte.name, analyte.uses_internal_standard
+    values: list[float] = []
+    not_numeric: list[str] = []
+    samples = 0
+    for sample in run.samples:
+        if sample.kind is not SampleKind.BLANK:
+            continue
+        measured = [m for m in sample.measurements if m.analyte == name]
+        if not measured:
+            continue
+        samples += 1
+        for m in measured:
+            value, reason = response_value(m.response, m.internal_standard_response, ratio)
+            if value is None:
+                not_numeric.append(f"{sample.id}: {reason}")
+            else:
+                values.append(value)
+    return BlankReadings(tuple(values), samples, tuple(not_numeric))
 
 
 def _reading_counts(run: Run, analyte: Analyte) -> set[int]:

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from typing import Any, Mapping
 
+from ..core.limits import LIMIT_METHOD_NAMES
 from ..core.run import AuditEntry, Run
 from .number_text import full_number
 
@@ -37,9 +38,17 @@ def _because(d: Mapping[str, Any]) -> str:
     return f" Reason: {reason}." if reason else ""
 
 
+def _setting(key: str, value: Any) -> str:
+    """A setting's recorded value, a limits method with its name beside it (as every list of the
+    methods names it: :data:`~..core.limits.LIMIT_METHOD_NAMES`)."""
+    if key == "limits_method" and isinstance(value, str) and value in LIMIT_METHOD_NAMES:
+        return f"{_value(value)} ({LIMIT_METHOD_NAMES[value]})"
+    return _value(value)
+
+
 def _changes(changes: Any, subject: str) -> str:
     if isinstance(changes, dict):
-        return "; ".join(f"{k.replace('_', ' ')} from {_value(c.get('old'))} to {_value(c.get('new'))}"
+        return "; ".join(f"{k.replace('_', ' ')} from {_setting(k, c.get('old'))} to {_setting(k, c.get('new'))}"
                          if isinstance(c, dict) else f"{k.replace('_', ' ')}: {_value(c)}" for k, c in changes.items())
     parts = []
     for c in changes or []:

@@ -45,7 +45,9 @@ FORMULA_SOURCES = (
     "Calibration interval by inverting the prediction band for the mean of m responses (Fieller's interval for a "
     "straight line; Draper & Smith 1998, §3.2); standard error of the estimated concentration by the delta method, equal to "
     "(s/b)·√(1/m + 1/n + (ȳ₀ − ȳ)²/(b²·Sxx)) for an unweighted line, Sxx being the sum of squared deviations of the standards' concentrations from their mean (Miller & Miller, ch. 5).",
-    "LOD = 3.3σ/S and LOQ = 10σ/S (ICH Q2(R1)); critical value and minimum detectable value (ISO 11843-2).",
+    "LOD = 3.3σ/S and LOQ = 10σ/S (ICH Q2(R1) §6.3, §7.3), σ the residual SD, the SD of the intercept or the SD "
+    "of the blank readings (§6.3.2); critical value and minimum detectable value (ISO 11843-2); mean blank + 3 SD "
+    "and + 10 SD read through the curve (common practice).",
     "AICc (Hurvich & Tsai 1989); weighting choice by Σ|%RE| (Almeida, Castel-Branco & Falcão 2002) and by the "
     "growth of the replicate SD (Tellinghuisen 2007).",
     "Four- and five-parameter logistic and power curves by weighted nonlinear least squares (Levenberg–Marquardt; "

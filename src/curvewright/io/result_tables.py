@@ -18,6 +18,7 @@ import numpy as np
 from ..core.level_text import percent_label
 from .. import CAUTION, __version__
 from ..core.errors import CurvewrightError
+from ..core.limits import LIMIT_METHOD_NAMES
 from ..core.models import Model
 from ..core.rounding import RoundingRule, interval_places
 from ..core.run import SampleKind
@@ -537,9 +538,15 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
             rows += list(zip(labels, (by_k.critical_concentration, by_k.critical_response, by_k.lod), (None,) * 3))
             ruled += labels
         rows += [("LOQ", a.limits.loq if a.limits.loq is not None else "not defined by this method", None),
-                 ("LOD/LOQ method", a.limits.description, None)]
+                 ("LOD/LOQ method", a.limits.name, None), ("LOD/LOQ formula", a.limits.description, None)]
+        if a.limits.blank_readings:
+            unit = f" ({an.response_unit})" if an.response_unit.strip() else " (response units)"
+            rows += [("Blank readings (n)", a.limits.blank_readings, None),
+                     (f"Blank mean ȳ_b{unit}", a.limits.blank_mean, None),
+                     (f"Blank SD σ_b{unit}", a.limits.sigma, None)]
     else:
-        rows.append(("LOD/LOQ", f"not computed: {a.limits_note}", None))
+        rows += [("LOD/LOQ method", LIMIT_METHOD_NAMES[result.run.settings.limits_method], None),
+                 ("LOD/LOQ", f"not computed: {a.limits_note}", None)]
     if a.verdict is not None:
         rows.append(("Acceptance profile", result.profile.name, None))
         rows.append(("Profile source", result.profile.source, None))
@@ -556,6 +563,19 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
         rows.append(("Standard not usable", f"{u.standard_id}: {u.reason}", None))
     return Table(f"Calibration – {an.name}", _CALIBRATION_COLUMNS, tuple(rows), rule, entered=tuple(entered),
                  ruled=tuple(ruled))
+
+
+def limits_words(a: AnalyteResult, result: RunResult) -> str:
+    """The analyte's limits in one line, as the command's text and the app's results show them: the
+    values by the run's rounding rule in the concentration unit, the method's name, and for a blank
+    method the blank readings' count, mean and SD in the response unit; or why none were computed."""
+    method = LIMIT_METHOD_NAMES[result.run.settings.limits_method]
+    if a.limits is None:
+        return f"LOD/LOQ not computed ({method}): {a.limits_note}" if a.limits_note else ""
+    unit = a.analyte.concentration_unit.strip()
+    line = f"{a.limits.values_words(unit, result.run.settings.rounding)} — {a.limits.name}"
+    blanks = a.limits.blank_words(a.analyte.response_unit.strip())
+    return f"{line}; {blanks}" if blanks else line
 
 
 def rule_departures(a: AnalyteResult, rule: RoundingRule) -> tuple[str, ...]:

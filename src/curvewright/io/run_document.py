@@ -39,6 +39,7 @@ from ..core.values import frozen_value
 from .._version import __version__
 from ..core.acceptance import AcceptanceProfile, available_profiles
 from ..core.errors import CurvewrightError
+from ..core.limits import LIMIT_METHODS, limit_methods_words
 from ..core.models import Model
 from ..core.rounding import RoundingRule
 from ..core.run import (
@@ -1031,8 +1032,8 @@ class _Reader:
         if interval not in ("band", "symmetric"):
             self.fail(f"{p}.interval", f"{interval!r} is not 'band' or 'symmetric'")
         limits = self.get(m, "limits_method", p, "text", "residual_sd")
-        if limits not in ("residual_sd", "intercept_sd", "iso11843"):
-            self.fail(f"{p}.limits_method", f"{limits!r} is not 'residual_sd', 'intercept_sd' or 'iso11843'")
+        if limits not in LIMIT_METHODS:
+            self.fail(f"{p}.limits_method", f"{limits!r} is not {limit_methods_words()}")
         profile = self.get(m, "acceptance_profile", p, "text", "general")
         custom = self.get(m, "custom_profile", p, "object?", None, required=False)
         stored = None
