@@ -900,9 +900,13 @@ def caution_line() -> str:
 
 
 def _chooser(result: RunResult, analyte: str) -> str:
+    """Who chose the analyte's calibration function and when, as the record names every person
+    (:func:`.audit_words.who`, :func:`.audit_words.when`): the last entry that chose it."""
+    from .audit_words import when, who
+
     for e in reversed(result.run.audit):
         if e.action == "model_chosen" and e.details.get("analyte") == analyte:
-            return f"{e.user}, {e.time_utc}"
+            return f"{who(e)}, {when(e)}"
     return "(no choice recorded in the audit trail)"
 
 
