@@ -17,6 +17,7 @@ from PySide6.QtWidgets import QDialog
 
 from curvewright.app import dialogs
 from tests.app.conftest import settle
+from tests.cli_runs import run_cli
 from tests.printed import printed_text
 
 STANDARDS = """Analyte,Standard id,Level,Concentration (ng/mL),Peak area
@@ -127,3 +128,80 @@ def test_chosen_by_names_the_person_and_time_as_the_exclusion_does(make_window, 
     assert PERSON.match(chosen.removeprefix("Chosen by ")), chosen
     assert PERSON.fullmatch(str(sheets["velmorin"]["Chosen by"])), sheets["velmorin"]["Chosen by"]
     assert sheets["ostarin"]["Chosen by"] == "(no choice recorded in the audit trail)"
+
+
+def test_who_excluded_and_who_chose_survive_renaming_the_analyte(make_window, qtbot, answer_dialogs, import_csv, tmp_path,
+                                                                  monkeypatch, save_in_tmp_path):
+    w = make_window(None)
+    import_csv(w, standards=STANDARDS, samples=SAMPLES)
+    _analyte(w, qtbot, "velmorin")
+    _exclude(w, qtbot, answer_dialogs, "VEL-L4-2", "injection problem noted in the run log")
+    _choose(w, qtbot, answer_dialogs, "quadratic", "1/x", "as the laboratory's procedure fixes")
+    _rename(w, qtbot, monkeypatch, "velmorin-M1")
+    text, sheets = _outputs(w, tmp_path, "renamed")
+
+    excluded = _excluded_line(text, "VEL-L4-2")
+    assert "injection problem noted in the run log; excluded by " in excluded and PERSON.search(excluded), excluded
+    assert "no audit entry records the exclusion" not in text
+    assert PERSON.fullmatch(str(sheets["velmorin-M1"]["Chosen by"])), sheets["velmorin-M1"]["Chosen by"]
+    chosen = text[text.index("Chosen by", text.index("Calibration – velmorin-M1")):][:120]
+    assert PERSON.match(chosen.removeprefix("Chosen by ")), chosen
+
+    # the saved run, quantified on the command line, names them alike in its record and workbook
+    w.actions_by_name["save-as"].trigger()
+    saved = next(save_in_tmp_path.glob("*.json"))
+    done = run_cli("quantify", str(saved), "--report", str(tmp_path / "cli.pdf"), "--export", str(tmp_path / "cli.xlsx"))
+    assert done.returncode == 0, done.stdout + done.stderr
+    text = printed_text(tmp_path / "cli.pdf")
+    assert PERSON.search(_excluded_line(text, "VEL-L4-2")), _excluded_line(text, "VEL-L4-2")
+    book = openpyxl.load_workbook(tmp_path / "cli.xlsx", read_only=True)
+    rows = {row[0]: row[1] for row in book["Calibration – velmorin-M1"].iter_rows(values_only=True) if len(row) > 1}
+    book.close()
+    assert PERSON.fullmatch(str(rows["Chosen by"])), rows["Chosen by"]
+
+
+def test_several_renames_and_a_rename_back_keep_every_entry_under_each_name(
+        make_window, qtbot, answer_dialogs, import_csv, tmp_path, monkeypatch):
+    """Excluded under the first name, renamed, chosen under the second name, renamed again and back to the
+    first name: both lines name the person; the second exclusion, made under the last name, too."""
+    w = make_window(None)
+    import_csv(w, standards=STANDARDS, samples=SAMPLES)
+    _analyte(w, qtbot, "velmorin")
+    _exclude(w, qtbot, answer_dialogs, "VEL-L4-2", "injection problem noted in the run log")
+    _rename(w, qtbot, monkeypatch, "velmorin (lot A)")
+    _choose(w, qtbot, answer_dialogs, "quadratic", "1/x", "as the laboratory's procedure fixes")
+    _rename(w, qtbot, monkeypatch, "velmorin (lot B)")
+    _exclude(w, qtbot, answer_dialogs, "VEL-L1-1", "vial cap pierced twice")
+    _rename(w, qtbot, monkeypatch, "velmorin")
+    text, sheets = _outputs(w, tmp_path, "renamed-back")
+
+    for standard_id in ("VEL-L4-2", "VEL-L1-1"):
+        excluded = _excluded_line(text, standard_id)
+        assert PERSON.search(excluded), excluded
+    assert "no audit entry records" not in text
+    assert PERSON.fullmatch(str(sheets["velmorin"]["Chosen by"])), sheets["velmorin"]["Chosen by"]
+
+
+@pytest.mark.parametrize("how", ["another analyte renamed to it", "a new analyte added with it"])
+def test_an_analyte_given_an_old_name_does_not_take_the_other_analytes_entries(
+        make_window, qtbot, answer_dialogs, import_csv, tmp_path, monkeypatch, how):
+    """velmorin is renamed velmorin-M1; then ostarin is renamed velmorin (or a new analyte velmorin is
+    added). The choice made for the first velmorin belongs to velmorin-M1 alone."""
+    w = make_window(None)
+    import_csv(w, standards=STANDARDS, samples=SAMPLES)
+    _analyte(w, qtbot, "velmorin")
+    _choose(w, qtbot, answer_dialogs, "quadratic", "1/x", "as the laboratory's procedure fixes")
+    _rename(w, qtbot, monkeypatch, "velmorin-M1")
+    if how == "another analyte renamed to it":
+        _analyte(w, qtbot, "ostarin")
+        _rename(w, qtbot, monkeypatch, "velmorin")
+    else:
+        _dialog_names(monkeypatch, "velmorin")
+        answer_dialogs["reason"] = "second compound of the panel"
+        w.actions_by_name["add-analyte"].trigger()
+        settle(qtbot, w)
+        assert "velmorin" in [a.name for a in w.session.run.analytes]
+    text, sheets = _outputs(w, tmp_path, "old-name")
+
+    assert PERSON.fullmatch(str(sheets["velmorin-M1"]["Chosen by"])), sheets["velmorin-M1"]["Chosen by"]
+    assert sheets["velmorin"]["Chosen by"] == "(no choice recorded in the audit trail)"
