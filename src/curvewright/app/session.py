@@ -70,9 +70,21 @@ class RunChange(QUndoCommand):
         self.session._set_run(self._with_trail(self.before, "change_undone"))
 
     def _with_trail(self, content: Run, action: str) -> Run:
-        trail = append_entry(self.session.run.audit, action, {"change": self.text()}, user=self.session.identity,
+        details = {"change": self.text(), "entries": undone_entries(self.before, self.after)}
+        trail = append_entry(self.session.run.audit, action, details, user=self.session.identity,
                              content_sha256=content_sha256(content))
         return replace(content, audit=trail)
+
+
+def undone_entries(before: Run, after: Run) -> list[dict]:  # type: ignore[type-arg]
+    """The audit entries a change wrote (those ``after`` holds beyond ``before``'s trail), as an undo or
+    redo entry names them: each one's action, details and hash. The trail then says what an undo
+    restored and a redo made again, in the words of the entries themselves
+    (:func:`curvewright.io.audit_words.entry_words`), and which entries they were."""
+    n = len(before.audit)
+    follows = len(after.audit) >= n and (n == 0 or after.audit[n - 1].hash == before.audit[-1].hash)
+    written = after.audit[n:] if follows else ()
+    return [{"action": e.action, "details": dict(e.details), "hash": e.hash} for e in written]
 
 
 @dataclass(frozen=True)
