@@ -132,3 +132,20 @@ def test_a_run_with_the_short_undo_entries_of_earlier_versions_opens_and_prints(
     assert _trail_words(w)[-1] == f"undid: Exclude {standard}."
     w.export_report(path=str(tmp_path / "earlier.pdf"))
     assert f"undid: Exclude {standard}." in printed_text(tmp_path / "earlier.pdf")
+
+
+def test_an_exclusion_made_before_a_rename_that_was_undone_keeps_its_person(
+        make_window, qtbot, answer_dialogs, import_csv, tmp_path, monkeypatch):
+    """Excluded, renamed, the rename undone (Edit → Undo): the trail's last rename goes from velmorin
+    away, and only the undo entry says the name came back; the exclusion is still the analyst's."""
+    w = make_window(None)
+    import_csv(w, standards=STANDARDS, samples=SAMPLES)
+    _analyte(w, qtbot, "velmorin")
+    _exclude(w, qtbot, answer_dialogs, "VEL-L4-2", "injection problem noted in the run log")
+    _rename(w, qtbot, monkeypatch, "velmorin-M1")
+    _undo(w, qtbot)
+    assert "velmorin" in [a.name for a in w.session.run.analytes]
+    w.export_report(path=str(tmp_path / "record.pdf"))
+    text = printed_text(tmp_path / "record.pdf")
+    line = text[text.index("• VEL-L4-2 ("):][:200]
+    assert PERSON.search(line), line
