@@ -23,7 +23,7 @@ def _added_name(e: AuditEntry) -> str | None:
     return None
 
 
-def _rename_of(action: str, details: Any) -> tuple[str, str] | None:
+def rename_of(action: str, details: Any) -> tuple[str, str] | None:
     """(old, new) of the rename an ``analyte_edited`` entry's details record, if it renamed."""
     if action != "analyte_edited" or not isinstance(details, Mapping):
         return None
@@ -37,7 +37,7 @@ def _rename_of(action: str, details: Any) -> tuple[str, str] | None:
 def renames(e: AuditEntry) -> tuple[tuple[str, str], ...]:
     """The renames (old name, new name) an entry made, in the order made: a rename; the undo of a
     rename (new back to old) or its redo, where the undo or redo entry names the entries it acted on."""
-    own = _rename_of(e.action, e.details)
+    own = rename_of(e.action, e.details)
     if own is not None:
         return (own,)
     if e.action not in ("change_undone", "change_redone") or not isinstance(e.details, Mapping):
@@ -45,7 +45,7 @@ def renames(e: AuditEntry) -> tuple[tuple[str, str], ...]:
     acted = e.details.get("entries")
     if not isinstance(acted, (list, tuple)):
         return ()
-    found = [r for r in (_rename_of(x.get("action"), x.get("details")) for x in acted if isinstance(x, Mapping))
+    found = [r for r in (rename_of(x.get("action"), x.get("details")) for x in acted if isinstance(x, Mapping))
              if r is not None]
     if e.action == "change_undone":  # the names go back, the last rename first
         return tuple((new, old) for old, new in reversed(found))
