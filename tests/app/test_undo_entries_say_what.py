@@ -149,3 +149,26 @@ def test_an_exclusion_made_before_a_rename_that_was_undone_keeps_its_person(
     text = printed_text(tmp_path / "record.pdf")
     line = text[text.index("• VEL-L4-2 ("):][:200]
     assert PERSON.search(line), line
+
+
+def test_a_choice_undone_is_no_longer_named_as_the_choice(make_window, qtbot, answer_dialogs, import_csv, tmp_path):
+    """Chosen, then Edit → Undo: the analyte is back on the function it had, chosen by no one, and the
+    record and the workbook say so; Edit → Redo names the analyst again."""
+    import openpyxl
+
+    w = make_window(None)
+    import_csv(w, standards=STANDARDS, samples=SAMPLES)
+    _analyte(w, qtbot, "velmorin")
+    _choose(w, qtbot, answer_dialogs, "quadratic", "1/x", "as the laboratory's procedure fixes")
+    _undo(w, qtbot)
+    assert w.session.run.analyte("velmorin").model == "linear"
+    w.export_results("xlsx", path=str(tmp_path / "undone.xlsx"))
+    book = openpyxl.load_workbook(tmp_path / "undone.xlsx", read_only=True)
+    rows = {row[0]: row[1] for row in book["Calibration – velmorin"].iter_rows(values_only=True) if len(row) > 1}
+    book.close()
+    assert rows["Chosen by"] == "(no choice recorded in the audit trail)", rows["Chosen by"]
+    _redo(w, qtbot)
+    w.export_report(path=str(tmp_path / "redone.pdf"))
+    text = printed_text(tmp_path / "redone.pdf")
+    chosen = text[text.index("Chosen by", text.index("Calibration – velmorin")):][:120]
+    assert PERSON.match(chosen.removeprefix("Chosen by ")), chosen

@@ -84,14 +84,29 @@ def analyte_entries(trail: Sequence[AuditEntry], name: str) -> tuple[int, ...]:
 def last_entry(trail: Sequence[AuditEntry], name: str, action: str, **details: Any) -> tuple[int, AuditEntry] | None:
     """The position and entry of the latest ``action`` entry of the analyte now called ``name`` whose
     details hold each of ``details`` (a value that is a list is matched when it contains the one given),
-    or None."""
+    or None. An entry whose change was undone, and not redone since, is passed over: what it did is no
+    longer in the run."""
+    undone = undone_hashes(trail)
     for i in reversed(analyte_entries(trail, name)):
         e = trail[i]
-        if e.action != action:
+        if e.action != action or e.hash in undone:
             continue
         if all(_holds(e.details.get(k), v) for k, v in details.items()):
             return i, e
     return None
+
+
+def undone_hashes(trail: Sequence[AuditEntry]) -> frozenset[str]:
+    """The hashes of the entries whose change is undone now: the latest undo or redo entry naming each
+    (the entries it acted on) is an undo. Undo entries of earlier versions name no entries."""
+    latest: dict[str, str] = {}
+    for e in reversed(trail):
+        if e.action in ("change_undone", "change_redone") and isinstance(e.details, Mapping):
+            acted = e.details.get("entries")
+            for x in acted if isinstance(acted, (list, tuple)) else ():
+                if isinstance(x, Mapping) and isinstance(x.get("hash"), str):
+                    latest.setdefault(x["hash"], e.action)
+    return frozenset(h for h, action in latest.items() if action == "change_undone")
 
 
 def _holds(recorded: Any, wanted: Any) -> bool:
