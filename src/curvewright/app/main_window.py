@@ -433,9 +433,11 @@ class MainWindow(QMainWindow):
         current = self.analyte_box.currentText()
         return current if current in names else names[0]
 
-    def _fill_analytes(self) -> None:
+    def _fill_analytes(self, shown: str | None = None) -> None:
+        """The analyte box filled with the run's analytes, showing ``shown`` when given and in the run,
+        else the analyte shown before (the first when it is gone)."""
         names = [a.name for a in self.session.run.analytes]
-        current = self.analyte_box.currentText()
+        current = shown if shown in names else self.analyte_box.currentText()
         self.analyte_box.blockSignals(True)
         self.analyte_box.clear()
         self.analyte_box.addItems(names)
@@ -466,8 +468,11 @@ class MainWindow(QMainWindow):
         self.samples_view.setColumnHidden(samples_model.IS, not self.samples_model.has_internal_standard())
 
     def _on_run_changed(self, run: Run) -> None:
+        acted_on = self.session.acted_on  # an undo or redo shows the analyte it acts on
         if [a.name for a in run.analytes] != [self.analyte_box.itemText(i) for i in range(self.analyte_box.count())]:
-            self._fill_analytes()
+            self._fill_analytes(acted_on)
+        elif acted_on is not None and acted_on != self.analyte_box.currentText():
+            self.analyte_box.setCurrentText(acted_on)
         self._show_internal_standard_column()
         self._update_title()
         self._update_buttons()

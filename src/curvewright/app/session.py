@@ -27,6 +27,7 @@ from PySide6.QtGui import QUndoCommand, QUndoStack
 
 from ..core.errors import CurvewrightError
 from ..core.run import Run, Signature
+from ..io.analyte_trail import rename_of
 from ..io.audit import Identity, append_entry, identity_from
 from ..io.integrity import content_sha256
 from ..io.run_document import document_unchanged, open_recovery, open_run, save_recovery, save_run
@@ -64,15 +65,44 @@ class RunChange(QUndoCommand):
             self._done_once = True
             self.session._set_run(self.after)
             return
-        self.session._set_run(self._with_trail(self.after, "change_redone"))
+        self.session._set_run(self._with_trail(self.after, "change_redone"), acted_on=self.analyte(undoing=False))
 
     def undo(self) -> None:
-        self.session._set_run(self._with_trail(self.before, "change_undone"))
+        self.session._set_run(self._with_trail(self.before, "change_undone"), acted_on=self.analyte(undoing=True))
+
+    def analyte(self, *, undoing: bool) -> str | None:
+        """The analyte this change acts on, by its name once undone (``undoing``) or done again: the one
+        its audit entries name (a rename: the name it goes back to, or on to), else the one whose content
+        it changes; None when it changes no analyte's (samples, settings)."""
+        shown = self.before if undoing else self.after
+        names = {a.name for a in shown.analytes}
+        for x in reversed(undone_entries(self.before, self.after)):
+            renamed = rename_of(x["action"], x["details"])
+            name = (renamed[0] if undoing else renamed[1]) if renamed else x["details"].get("analyte")
+            if name in names:
+                return name
+        if len(self.before.analytes) == len(self.after.analytes):
+            for old, new in zip(self.before.analytes, self.after.analytes):
+                if old is not new:
+                    return (old if undoing else new).name
+        return None
 
     def _with_trail(self, content: Run, action: str) -> Run:
-        trail = append_entry(self.session.run.audit, action, {"change": self.text()}, user=self.session.identity,
+        details = {"change": self.text(), "entries": undone_entries(self.before, self.after)}
+        trail = append_entry(self.session.run.audit, action, details, user=self.session.identity,
                              content_sha256=content_sha256(content))
         return replace(content, audit=trail)
+
+
+def undone_entries(before: Run, after: Run) -> list[dict]:  # type: ignore[type-arg]
+    """The audit entries a change wrote (those ``after`` holds beyond ``before``'s trail), as an undo or
+    redo entry names them: each one's action, details and hash. The trail then says what an undo
+    restored and a redo made again, in the words of the entries themselves
+    (:func:`curvewright.io.audit_words.entry_words`), and which entries they were."""
+    n = len(before.audit)
+    follows = len(after.audit) >= n and (n == 0 or after.audit[n - 1].hash == before.audit[-1].hash)
+    written = after.audit[n:] if follows else ()
+    return [{"action": e.action, "details": dict(e.details), "hash": e.hash} for e in written]
 
 
 @dataclass(frozen=True)
@@ -208,6 +238,8 @@ class RunSession(QObject):
         self.undo_floor: str | None = None
         """Why the undo history goes back no further, once a signature, an approval or its withdrawal
         has emptied it in this session (:meth:`record_run`); None before."""
+        self.acted_on: str | None = None
+        """The analyte an undo or redo acts on, while its :attr:`run_changed` is handled; else None."""
         self.undo_stack.cleanChanged.connect(self._on_clean_changed)
         # after the stack has moved (its clean state is then current), keep the recovery file in step
         self.undo_stack.indexChanged.connect(self._on_index_changed)
@@ -326,9 +358,15 @@ class RunSession(QObject):
             return None
         return self.undo_floor
 
-    def _set_run(self, run: Run) -> None:
+    def _set_run(self, run: Run, *, acted_on: str | None = None) -> None:
+        """Make ``run`` current; an undo or redo names the analyte it acts on (:attr:`acted_on`, while
+        :attr:`run_changed` is handled), so that the window shows it."""
         self._run = run
-        self.run_changed.emit(run)
+        self.acted_on = acted_on
+        try:
+            self.run_changed.emit(run)
+        finally:
+            self.acted_on = None
         self.request_analysis()
 
     # --- files -------------------------------------------------------------------------------------

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
 from typing import Any, Mapping
 
 from ..core.limits import LIMIT_METHOD_NAMES
@@ -133,7 +134,7 @@ def _entry_words(e: AuditEntry) -> str:
     if a == "method_applied":
         return f"applied the validated method {d.get('method', '')} version {d.get('version', '')} ({d.get('name', '')})."
     if a in ("change_undone", "change_redone"):
-        return f"{'undid' if a == 'change_undone' else 'redid'}: {d.get('change', '')}."
+        return _undo_words(a, d)
     if a == "data_changed_outside":
         changes = "; ".join(str(c) for c in d.get("changes") or ()) or "which values cannot be said"
         return (f"found the data changed outside Curvewright after entry {d.get('after_entry', '')} "
@@ -143,6 +144,97 @@ def _entry_words(e: AuditEntry) -> str:
     if a == "document_migrated":
         return f"opened the document in a newer format ({_value(dict(d))})."
     return f"{a.replace('_', ' ')}: {_value(dict(d))}."
+
+
+def _undo_words(action: str, d: Mapping[str, Any]) -> str:
+    """An undo or a redo: the change's label, and what it restored or made again in the words of the
+    entries it acted on (an undo reads each entry reversed, new → old; a redo as written). Entries of
+    earlier versions name the label alone."""
+    undoing = action == "change_undone"
+    label = d.get("change", "")
+    acted = d.get("entries")
+    if not isinstance(acted, list) or not acted:
+        return f"{'undid' if undoing else 'redid'}: {label}."
+    said = []
+    for x in acted:
+        entry = AuditEntry("", "", str(x.get("action", "")), x.get("details") or {}, "", str(x.get("hash", "")))
+        said.append(_reversed_words(entry) if undoing else entry_words(entry))
+    if undoing:
+        return f"undid “{label}”, restoring what it changed: " + " ".join(said)
+    return f"redid “{label}”: " + " ".join(said)
+
+
+def _swapped(value: Any) -> Any:
+    """Changes read backwards: each old/new pair swapped."""
+    if isinstance(value, list):
+        return [_swapped(v) for v in value]
+    if isinstance(value, Mapping):
+        out = {k: _swapped(v) if k == "changes" or isinstance(v, Mapping) else v for k, v in value.items()}
+        if "old" in value and "new" in value:
+            out["old"], out["new"] = value["new"], value["old"]
+        return out
+    return value
+
+
+def _reversed_words(e: AuditEntry) -> str:
+    """What undoing one entry restored, in the entry's own words read backwards (new → old). The entry's
+    reason belongs to the change, not to its undoing, and is left out."""
+    try:
+        return _reversed(e)
+    except (AttributeError, IndexError, KeyError, TypeError, ValueError):
+        return f"took back: {entry_words(e)}"
+
+
+def _reversed(e: AuditEntry) -> str:
+    d = {k: v for k, v in e.details.items() if k not in ("reason", "recommended", "note")}
+    a = e.action
+    analyte = d.get("analyte", "")
+    if a == "standard_excluded":
+        return (f"put standard {d.get('standard', '')} of {analyte} back in the fit (its exclusion undone: "
+                f"{e.details.get('reason', '')}).")
+    if a == "standard_included":
+        return (f"excluded standard {d.get('standard', '')} of {analyte} from the fit again "
+                f"({d.get('previous_reason', '')}).")
+    if a in ("anchor_points_marked", "anchor_points_cleared"):
+        other = "anchor_points_cleared" if a == "anchor_points_marked" else "anchor_points_marked"
+        return _entry_words(replace(e, action=other, details=d))
+    if a == "standard_added":
+        ids = ", ".join(str(s.get("id", "")) for s in d.get("added") or [])
+        return f"took standard(s) {ids} out of {analyte} again (their addition undone)."
+    if a == "standard_removed_before_review":
+        standard = d.get("standard") or {}
+        return f"put standard {standard.get('id', '')} of {analyte} back ({_value(standard)})."
+    if a == "model_chosen":
+        old, new = d.get("old") or ["", ""], d.get("new") or ["", ""]
+        return f"set {analyte} back to {old[0]}, {old[1]} (from {new[0]}, {new[1]})."
+    if a == "profile_changed" and "changes" not in d:
+        return f"set the acceptance profile back to {d.get('old', '')} (from {d.get('new', '')})."
+    if a == "settings_changed" and isinstance(d.get("changes"), Mapping) and "analyte_added" in d["changes"]:
+        return f"took analyte {d['changes']['analyte_added']} out of the run again (its addition undone)."
+    if a == "value_edited" and "changes" in d:
+        added = ", ".join(str(s.get("id", "")) for s in d.get("added") or [])
+        return (f"changed, for {analyte}: {_changes(_swapped(d.get('changes')), 'standard')}"
+                + (f"; took out standard(s) {added} again" if added else "") + ".")
+    if a == "analyte_edited":
+        changes = _swapped(d.get("changes"))
+        name = changes.get("name") if isinstance(changes, Mapping) else None
+        current = name.get("old") if isinstance(name, Mapping) else analyte
+        return f"changed analyte {current}: {_changes(changes, '')}."
+    if a == "samples_edited":
+        parts = []
+        if d.get("changes"):
+            parts.append("changed " + _changes(_swapped(d.get("changes")), "sample"))
+        for verb, key in (("put back", "removed"), ("took out", "added")):
+            for sample in d.get(key) or []:
+                values = {k.replace("_", " "): v for k, v in sample.items() if k != "id"}
+                parts.append(f"{verb} sample {sample.get('id', '')} ({_value(values)})")
+        return ("; ".join(parts) or "restored the samples") + "."
+    if a in ("value_edited", "settings_changed", "profile_changed"):
+        return _entry_words(replace(e, details=_swapped(d)))
+    if a == "method_applied":
+        return (f"took back the validated method {d.get('method', '')} version {d.get('version', '')} "
+                "(the settings and calibration functions before it restored).")
+    return f"took back: {entry_words(e)}"
 
 
 AUDIT_COLUMNS = ("Entry", "Time", "Who", "What was done", "Entry hash")

@@ -24,6 +24,7 @@ from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.reporting import ReportStatus
 from ..core.notation import entered, entered_span, figures
 from ..core.run_analysis import AnalyteResult, RunResult
+from .analyte_trail import last_entry
 from .audit_words import AUDIT_COLUMNS, audit_rows, when, who
 from .integrity import content_sha256
 from .record_check import not_intact_notice, record_problems
@@ -423,7 +424,7 @@ def additions_figures(result: RunResult, a: AnalyteResult) -> list[Block]:
 
 def exclusion_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     """Every standard left out of the fit: its level and nominal concentration, the reason, and who
-    left it out and when (the last audit entry that excluded it)."""
+    left it out and when (the last audit entry that excluded it, under whichever name the analyte then had)."""
     name = a.analyte.name
     excluded = [s for s in a.analyte.standards if not s.included]
     out: list[Block] = unusable_blocks(a)
@@ -432,8 +433,8 @@ def exclusion_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     out.append(Paragraph(f"Standards of {name} excluded from the fit ({len(excluded)}):", "small"))
     unit = a.analyte.concentration_unit
     for s in excluded:
-        entry = next((e for e in reversed(result.run.audit) if e.action == "standard_excluded"
-                      and e.details.get("analyte") == name and e.details.get("standard") == s.id), None)
+        last = last_entry(result.run.audit, name, "standard_excluded", standard=s.id)
+        entry = last[1] if last is not None else None
         by = f"; excluded by {who(entry)}, {when(entry)}" if entry is not None else \
             "; no audit entry records the exclusion"
         out.append(Paragraph(f"• {s.id} (level {s.level or '—'}, {entered(s.concentration)} {unit}".rstrip() +
@@ -468,9 +469,8 @@ def anchor_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
                                   "shown for information.", "small")]
     groups: dict[int, list] = {}  # the standards each marking entry (by its position in the trail) still holds
     for s in marked:
-        at = next((i for i in range(len(result.run.audit) - 1, -1, -1) if result.run.audit[i].action == "anchor_points_marked"
-                   and result.run.audit[i].details.get("analyte") == name
-                   and s.id in (result.run.audit[i].details.get("standards") or [])), -1)
+        last = last_entry(result.run.audit, name, "anchor_points_marked", standards=s.id)
+        at = last[0] if last is not None else -1
         groups.setdefault(at, []).append(s)
     for at, standards in groups.items():
         named = ", ".join(f"{s.id} ({entered(s.concentration)} {unit})".replace(" )", ")") for s in standards)

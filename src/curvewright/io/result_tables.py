@@ -920,9 +920,15 @@ def caution_line() -> str:
 
 
 def _chooser(result: RunResult, analyte: str) -> str:
-    for e in reversed(result.run.audit):
-        if e.action == "model_chosen" and e.details.get("analyte") == analyte:
-            return f"{e.user}, {e.time_utc}"
+    """Who chose the analyte's calibration function and when, as the record names every person
+    (:func:`.audit_words.who`, :func:`.audit_words.when`): the last entry that chose it, under whichever
+    name the analyte then had (:mod:`.analyte_trail`)."""
+    from .analyte_trail import last_entry
+    from .audit_words import when, who
+
+    last = last_entry(result.run.audit, analyte, "model_chosen")
+    if last is not None:
+        return f"{who(last[1])}, {when(last[1])}"
     return "(no choice recorded in the audit trail)"
 
 
