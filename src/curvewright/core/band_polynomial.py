@@ -524,7 +524,6 @@ class _Start:
             if self.quartic:
                 self.twice_c2 = 2.0 * c2
                 self.thrice_c3 = 3.0 * c[3]
-                self.six_c3 = 6.0 * c[3]
         self._tolerance = None
         self._largest_tolerance: float | None = None
         self._least_tolerance: float | None = None
@@ -542,6 +541,11 @@ class _Start:
     def convex_margin(self) -> FloatArray:
         """2c2·(1 − 1e-6) at each position."""
         return self.twice_c2 * (1.0 - 1e-6)
+
+    @functools.cached_property
+    def six_c3(self) -> FloatArray:
+        """6c3 at each position."""
+        return 6.0 * self.c[3]
 
     @functools.cached_property
     def abs_six_c3(self) -> FloatArray:
@@ -658,8 +662,7 @@ def _convex_end(
                 rest = np.flatnonzero(~converged)
                 part = _Start.__new__(_Start)
                 part.c = [ci[rest] if np.ndim(ci) else ci for ci in c]
-                part.twice_c2, part.thrice_c3, part.six_c3 = (
-                    first.twice_c2[rest], first.thrice_c3[rest], first.six_c3[rest])
+                part.twice_c2, part.thrice_c3 = first.twice_c2[rest], first.thrice_c3[rest]
                 hr, tr, moving = h[rest], tolerance[rest], np.ones(rest.size, dtype=bool)
                 for _ in range(_CONVEX_STEPS - 2):
                     step = _halley_step(part, hr)
@@ -794,7 +797,10 @@ def _few_in_the_other_piece(
 
 def _halley_step(first: _Start, h: FloatArray) -> FloatArray:
     """Halley's step g·g′/(g′² − g·g″/2) at h on the piece that holds ẑ (the same bits as
-    2·g·g′/(2·g′² − g·g″): scaling by two is exact)."""
+    2·g·g′/(2·g′² − g·g″): scaling by two is exact). g″/2 = 6c4·h² + 3c3·h + c2 is worked from
+    halved coefficients, not halved after: scaling by two commutes with every rounding, so the same
+    bits wherever no term overflows or falls below the normal range (|·| above about 1e308 or below
+    about 2e-308)."""
     c = first.c
     value = c[4] * h
     value += c[3]
@@ -810,12 +816,11 @@ def _halley_step(first: _Start, h: FloatArray) -> FloatArray:
     slope += first.twice_c2
     slope *= h
     slope += c[1]
-    bend = (12.0 * c[4]) * h
-    bend += first.six_c3
+    bend = (6.0 * c[4]) * h
+    bend += first.thrice_c3
     bend *= h
-    bend += first.twice_c2
+    bend += c[2]
     bend *= value
-    bend *= 0.5
     numerator = value
     numerator *= slope
     slope *= slope
