@@ -576,7 +576,8 @@ def test_a_weighted_quadratics_convex_band_is_decided_from_the_blocks_extremes(m
 def test_the_margins_and_the_sizes_of_6c3_at_each_position_are_made_only_where_tested(monkeypatch) -> None:
     """A block decided from its extremes never makes the convexity margins, 6c3 or |6c3| at each
     position (three whole-array passes a block): their least and largest come from the least 2c2 and
-    the largest |c3|, and Halley's step takes g″/2 from 3c3. The ends are the same to the bit as with both made at each position."""
+    the largest |c3|, and Halley's step takes g″/2 from 3c3. The ends are the same to the bit as
+    with them made at each position."""
     rng = np.random.default_rng(22)
     levels = np.repeat([1.0, 2.0, 5.0, 10.0, 20.0, 50.0, 100.0, 200.0], 3)
     response = (0.05 + 1.3 * levels - 0.002 * levels**2) * (1 + 0.03 * rng.standard_normal(levels.size))
@@ -664,7 +665,8 @@ def test_the_expansion_about_each_start_is_the_written_out_expansion_to_the_bit(
         pytest.skip("no polynomial band for this weighting")
     z0 = np.random.default_rng(seed).uniform(-3.0, 3.0, y0.size)
     f, c, w = band.fitted, band.curve_variance, band.new_variance
-    for v, given in ((band.multiplier(y0, m), None), (0.5, bp.horner(z0, c)), (band.multiplier(y0, m), bp.horner(z0, c))):
+    each_count = band.multiplier(y0, m)
+    for v, given in ((each_count, None), (0.5, bp.horner(z0, c)), (each_count, bp.horner(z0, c))):
         inputs = [y0.copy(), z0.copy(), None if given is None else given.copy()]
         shifted = band.about(y0, v, z0, given)
         assert _same_bits(y0, inputs[0]) and _same_bits(z0, inputs[1])
