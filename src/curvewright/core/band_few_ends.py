@@ -56,7 +56,7 @@ def _halley_step(c0: float, c1: float, c2: float, c3: float, c4: float, h: float
     twice_c2 = 2.0 * c2
     value = ((((c4 * h + c3) * h + c2) * h + c1) * h) + c0
     slope = ((((4.0 * c4) * h + 3.0 * c3) * h + twice_c2) * h) + c1
-    bend = ((((12.0 * c4) * h + 6.0 * c3) * h + twice_c2) * value) * 0.5
+    bend = (((6.0 * c4) * h + 3.0 * c3) * h + c2) * value
     return _divide(value * slope, slope * slope - bend)
 
 

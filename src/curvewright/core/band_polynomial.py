@@ -37,6 +37,7 @@ Everything is vectorised over the unknowns of a call, and each unknown's ends de
 
 from __future__ import annotations
 
+import functools
 import math
 from typing import TYPE_CHECKING
 
@@ -114,11 +115,20 @@ class BandPolynomial:
         ``curve_variance`` is φ(z0)ᵀ·C·φ(z0) when the caller has it (the same bits as computed here).
         """
         f, c, w = self.fitted, self.curve_variance, self.new_variance
-        r = y0 - _trimmed_horner(z0, f)
+        # Each array below is made once and then worked in place where its old value is not read
+        # again (the same operations on the same numbers, so the same bits as the expressions in the
+        # comments; + and × commute exactly): fewer fresh arrays, and those in use stay in the cache.
+        # r = ȳ₀ − f̂(z0)
+        r = _trimmed_horner(z0, f)
+        r = np.subtract(y0, r, out=r) if _owned(r, y0) else y0 - r
         # where f̂ or the curve variance has no term in z² and above, the terms they would add are
         # exact zeros (z0 is finite for every unknown whose result is kept), and are left out
         curved = f[2] != 0.0
-        s1 = f[1] + 2.0 * f[2] * z0 if curved else f[1]
+        if curved:
+            s1 = z0 * (2.0 * f[2])  # f̂′(z0) = f[1] + 2·f[2]·z0
+            s1 += f[1]
+        else:
+            s1 = f[1]
         # Taylor coefficients of the curve variance about z0
         c0 = _trimmed_horner(z0, c) if curve_variance is None else curve_variance
         c1 = _trimmed_horner(z0, np.array([c[1], 2.0 * c[2], 3.0 * c[3], 4.0 * c[4]]))
@@ -127,19 +137,48 @@ class BandPolynomial:
         straight = f[2] == 0.0 and c[3] == 0.0 and c[4] == 0.0  # a straight line: g is quadratic in h
         # −2r is made once for the h and h² terms: s1² − (2r)·a₂ is s1² + (−2r)·a₂, the same bits
         # (negating is exact, so (−2r)·a₂ is −((2r)·a₂), infinities included)
-        minus_2r = -2.0 * r
-        base = [
-            r * r - t2 * c0,
-            minus_2r * s1 - t2 * c1,
-            s1 * s1 + minus_2r * f[2] - t2 * c2 if curved else s1 * s1 - t2 * c2,
-            0.0 if straight else 2.0 * s1 * f[2] - t2 * (c[3] + 4.0 * c[4] * z0),
-            float(f[2] * f[2] - t2 * c[4]),
-        ]
+        minus_2r = r * -2.0
+        # h²: s1² + (−2r)·a₂ − t²·c2 (s1² − t²·c2 without curvature)
+        c2 = _times(c2, t2, z0)
+        if curved:
+            base2 = s1 * s1
+            base2 += minus_2r * f[2]
+            base2 -= c2
+        else:
+            base2 = s1 * s1 - c2
+        # h: (−2r)·s1 − t²·c1
+        minus_2r = np.multiply(minus_2r, s1, out=minus_2r) if _owned(minus_2r, s1) else minus_2r * s1
+        c1 = _times(c1, t2, z0)
+        base1 = np.subtract(minus_2r, c1, out=minus_2r) if _owned(minus_2r, c1) else minus_2r - c1
+        # constant: r² − t²·c0
+        base0 = np.multiply(r, r, out=r)
+        base0 -= t2 * c0 if curve_variance is not None else _times(c0, t2, z0)
+        # h³: 2·s1·a₂ − t²·(c3 + 4·c4·z0)
+        if straight:
+            base3 = 0.0
+        else:
+            cubic = z0 * (4.0 * c[4])
+            cubic += c[3]
+            cubic *= t2
+            if isinstance(s1, np.ndarray):
+                base3 = np.multiply(s1, 2.0, out=s1)  # s1 is not read again
+                base3 *= f[2]
+                base3 -= cubic
+            else:
+                base3 = (2.0 * s1) * f[2] - cubic
+        base = [base0, base1, base2, base3, float(f[2] * f[2] - t2 * c[4])]
         tv = t2 * v
         upper = list(base)
-        upper[0] = base[0] - tv * _trimmed_horner(z0, w)
+        new_constant = _trimmed_horner(z0, w)
+        new_constant = _times(new_constant, tv, z0)
+        upper[0] = np.subtract(base[0], new_constant, out=new_constant) if _owned(new_constant, base[0]) else (
+            base[0] - new_constant)
         if w[1] != 0.0 or w[2] != 0.0:
-            upper[1] = base[1] - tv * (w[1] + 2.0 * w[2] * z0)
+            new_linear = z0 * (2.0 * w[2])  # tv·(w1 + 2·w2·z0)
+            new_linear += w[1]
+            new_linear = _times(new_linear, tv, z0)
+            upper[1] = np.subtract(base[1], new_linear, out=new_linear) if _owned(new_linear, base[1]) else (
+                base[1] - new_linear)
             upper[2] = base[2] - tv * w[2]
             if np.ndim(upper[2]) == 0 and np.ndim(base[2]) == 0:
                 # one v for every unknown and a curve without h² terms of its own (a straight line):
@@ -221,6 +260,24 @@ class ShiftedBand:
                     root = np.where(inside, root, np.nan)
                 out.append(root)
         return out
+
+
+def _owned(made: object, other: object) -> bool:
+    """Whether ``made``, just made by the caller, is an array of the shape of the result of an
+    element-wise operation with ``other`` (a number or an array), so that it may take that result in
+    place."""
+    return isinstance(made, np.ndarray) and made.ndim > 0 and (
+        not isinstance(other, np.ndarray) or other.shape == made.shape)
+
+
+def _times(made: FloatArray | float, factor: FloatArray | float, z0: FloatArray) -> FloatArray | float:
+    """``factor``·``made``, in place in ``made`` where it is an array the caller just made (one or
+    more unknowns, the shape of ``z0``); multiplication commutes exactly."""
+    if isinstance(made, np.ndarray) and made.shape == z0.shape and (
+            not isinstance(factor, np.ndarray) or factor.shape == made.shape):
+        made *= factor
+        return made
+    return factor * made
 
 
 def _quartic(c: list, h: FloatArray) -> FloatArray:
@@ -428,6 +485,15 @@ def _reach_past_vertex(h_vertex: FloatArray, direction: float, full_reach: float
     return towards, np.where(towards, np.abs(h_vertex), 0.0) + full_reach
 
 
+def _largest_magnitude(values: FloatArray | float) -> float:
+    """The largest |value| of ``values``, from their least and largest (NaN where one is NaN, or
+    where there are none)."""
+    low, high = _extreme(np.minimum, values), _extreme(np.maximum, values)
+    if math.isnan(low) or math.isnan(high):
+        return float("nan")
+    return max(abs(low), abs(high))
+
+
 def _extreme(ufunc: np.ufunc, values: FloatArray | float) -> float:
     """The least (``np.minimum``) or largest (``np.maximum``) of ``values`` (NaN where one is NaN, or
     where there are none, so that no test on it passes)."""
@@ -446,25 +512,45 @@ class _Start:
         c0, c1, c2 = c[0], c[1], c[2]
         self.inside = c0 < 0
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-            root = np.sqrt(c1 * c1 - 4.0 * c2 * c0)
-            q = -0.5 * (c1 + np.copysign(root, c1))
+            # q = −(c1 + sign(c1)·√(c1² − 4·c2·c0))/2, worked in place in one array (the same bits)
+            q = c1 * c1
+            q -= (4.0 * c2) * c0
+            np.sqrt(q, out=q)
+            np.copysign(q, c1, out=q)
+            q += c1
+            q *= -0.5
             self.r1, self.r2 = q / c2, c0 / q
             self.quartic = not (np.ndim(c[3]) == 0 and c[3] == 0.0 and c[4] == 0.0)
             if self.quartic:
                 self.twice_c2 = 2.0 * c2
                 self.thrice_c3 = 3.0 * c[3]
-                self.six_c3 = 6.0 * c[3]
-                # g″(v) ≥ 2c2 − 6|c3|·|v| − 12·max(−c4, 0)·v² on [0, h]: when that bound stays above
-                # a margin of 1e-6 of 2c2, g is convex there, and g″ evaluated in floating point is ≥ 0
-                # at every point the exact test (see :func:`_exactly_convex`) would look at, since its
-                # round-off is below a few units in the last place of 2c2 + 6|c3·v| + 12|c4|·v².
-                self.convex_margin = self.twice_c2 * (1.0 - 1e-6)
-                self.abs_six_c3 = np.abs(self.six_c3)
         self._tolerance = None
         self._largest_tolerance: float | None = None
         self._least_tolerance: float | None = None
         self._largest_abs_six_c3: float | None = None
         self._least_convex_margin: float | None = None
+
+    # g″(v) ≥ 2c2 − 6|c3|·|v| − 12·max(−c4, 0)·v² on [0, h]: when that bound stays above a margin of
+    # 1e-6 of 2c2, g is convex there, and g″ evaluated in floating point is ≥ 0 at every point the
+    # exact test (see :func:`_exactly_convex`) would look at, since its round-off is below a few units
+    # in the last place of 2c2 + 6|c3·v| + 12|c4|·v². The margins and |6c3| at each position are
+    # made only when the test at each position is made (:func:`_convex`); the block's extremes of
+    # them come from the extremes of 2c2 and c3 (see :meth:`least_convex_margin`).
+
+    @functools.cached_property
+    def convex_margin(self) -> FloatArray:
+        """2c2·(1 − 1e-6) at each position."""
+        return self.twice_c2 * (1.0 - 1e-6)
+
+    @functools.cached_property
+    def six_c3(self) -> FloatArray:
+        """6c3 at each position."""
+        return 6.0 * self.c[3]
+
+    @functools.cached_property
+    def abs_six_c3(self) -> FloatArray:
+        """|6c3| at each position."""
+        return np.abs(self.six_c3)
 
     def below_index(self) -> np.ndarray:
         """The positions of the unknowns whose ẑ lies below the lowest standard (h_break > 0)."""
@@ -488,13 +574,17 @@ class _Start:
     def largest_abs_six_c3(self) -> float:
         """The largest |6c3| (NaN where one is NaN), worked out once for both sides."""
         if self._largest_abs_six_c3 is None:
-            self._largest_abs_six_c3 = _extreme(np.maximum, self.abs_six_c3)
+            # max |fl(6c3)| is fl(6·max |c3|): rounding is monotone and symmetric about zero, so the
+            # same bits as the largest of :attr:`abs_six_c3`, without making it (NaN where one is NaN)
+            self._largest_abs_six_c3 = 6.0 * _largest_magnitude(self.c[3])
         return self._largest_abs_six_c3
 
     def least_convex_margin(self) -> float:
         """The least of the convexity margins (NaN where one is NaN), worked out once for both sides."""
         if self._least_convex_margin is None:
-            self._least_convex_margin = _extreme(np.minimum, self.convex_margin)
+            # min fl(2c2·(1 − 1e-6)) is fl(min(2c2)·(1 − 1e-6)): multiplying by a positive number and
+            # rounding keep the order, so the same bits as the least of :attr:`convex_margin`
+            self._least_convex_margin = _extreme(np.minimum, self.twice_c2) * (1.0 - 1e-6)
         return self._least_convex_margin
 
     def largest_tolerance(self, start: FloatArray) -> float:
@@ -531,8 +621,8 @@ def _convex_end(
             converged = np.isfinite(h)
         else:
             # h·direction > 0, compared without the product (multiplying by ±1 is exact)
-            usable = np.isfinite(h) & (h > 0 if direction > 0 else h < 0)
-            if not usable.all():
+            if not _all_on_the_side(h, direction):
+                usable = np.isfinite(h) & (h > 0 if direction > 0 else h < 0)
                 h = np.where(usable, h, direction * guess)
             tolerance = first.tolerance(start)
             # Halley's step: third-order convergence from the quadratic part's root. Every unknown
@@ -572,8 +662,7 @@ def _convex_end(
                 rest = np.flatnonzero(~converged)
                 part = _Start.__new__(_Start)
                 part.c = [ci[rest] if np.ndim(ci) else ci for ci in c]
-                part.twice_c2, part.thrice_c3, part.six_c3 = (
-                    first.twice_c2[rest], first.thrice_c3[rest], first.six_c3[rest])
+                part.twice_c2, part.thrice_c3 = first.twice_c2[rest], first.thrice_c3[rest]
                 hr, tr, moving = h[rest], tolerance[rest], np.ones(rest.size, dtype=bool)
                 for _ in range(_CONVEX_STEPS - 2):
                     step = _halley_step(part, hr)
@@ -602,7 +691,7 @@ def _convex_end(
         else:
             certain = h < 0
             certain &= h >= -reach
-        if not (np.ndim(reach) == 0 and np.isfinite(reach)):
+        if not _reach_bounded(reach):
             certain &= np.isfinite(h)
         certain &= first.inside
         if convex is not True:
@@ -708,7 +797,10 @@ def _few_in_the_other_piece(
 
 def _halley_step(first: _Start, h: FloatArray) -> FloatArray:
     """Halley's step g·g′/(g′² − g·g″/2) at h on the piece that holds ẑ (the same bits as
-    2·g·g′/(2·g′² − g·g″): scaling by two is exact)."""
+    2·g·g′/(2·g′² − g·g″): scaling by two is exact). g″/2 = 6c4·h² + 3c3·h + c2 is worked from
+    halved coefficients, not halved after: scaling by two commutes with every rounding, so the same
+    bits wherever no term overflows or falls below the normal range (|·| above about 1e308 or below
+    about 2e-308)."""
     c = first.c
     value = c[4] * h
     value += c[3]
@@ -724,18 +816,38 @@ def _halley_step(first: _Start, h: FloatArray) -> FloatArray:
     slope += first.twice_c2
     slope *= h
     slope += c[1]
-    bend = (12.0 * c[4]) * h
-    bend += first.six_c3
+    bend = (6.0 * c[4]) * h
+    bend += first.thrice_c3
     bend *= h
-    bend += first.twice_c2
+    bend += c[2]
     bend *= value
-    bend *= 0.5
     numerator = value
     numerator *= slope
     slope *= slope
     slope -= bend
     numerator /= slope
     return numerator
+
+
+def _all_on_the_side(h: FloatArray, direction: float) -> bool:
+    """Whether every h is finite and on the side ``direction`` (h > 0 above, h < 0 below), decided
+    from the least and largest h (two reductions instead of a test at each position). True where
+    there are none; False where one is NaN (a NaN makes both comparisons false)."""
+    if not h.size:
+        return True
+    low, high = np.minimum.reduce(h), np.maximum.reduce(h)
+    if direction > 0:
+        return bool(low > 0.0) and bool(high < np.inf)
+    return bool(high < 0.0) and bool(low > -np.inf)
+
+
+def _reach_bounded(reach: FloatArray | float) -> bool:
+    """Whether no ``reach`` is +inf or NaN: then 0 < h ≤ reach (or −reach ≤ h < 0) holds only for a
+    finite h (a reach of −inf lets no h through), and no test of h for finiteness is needed. Decided
+    from the largest reach (a NaN makes the comparison false: then the test is made)."""
+    if np.ndim(reach) == 0:
+        return bool(reach < np.inf)
+    return bool(np.size(reach) == 0 or np.maximum.reduce(reach) < np.inf)
 
 
 def _none_converged(step: FloatArray, largest_tolerance: float, h: FloatArray) -> bool:
