@@ -32,7 +32,7 @@ from typing import Any, Iterator, Mapping, Sequence
 from . import CAUTION, __version__
 from .core.level_text import percent_label
 from .core.values import frozen_value
-from .core.notation import computed, computed_within, entered, entered_span, figures, machine, p_equals
+from .core.notation import computed, computed_within, entered, entered_span, figures, fixed, machine, p_equals
 
 EXIT_ACCEPTED, EXIT_REJECTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
@@ -1193,7 +1193,7 @@ def summary_text(  # type: ignore[no-untyped-def]
         lof = cal.lack_of_fit
         lof_text = (f"lack-of-fit F = {figures(lof.f_statistic, 4)}, {p_equals(lof.p_value, 3)}" if lof.available
                     else f"lack of fit not tested ({lof.reason})")
-        lines.append(f"  residual SD {figures(cal.residual_sd, 6)}; adjusted R² {cal.adjusted_r_squared:.6f}; {lof_text}")
+        lines.append(f"  residual SD {figures(cal.residual_sd, 6)}; adjusted R² {fixed(cal.adjusted_r_squared, 6)}; {lof_text}")
         if a.limits:
             lines.append(f"  {a.limits.values_words(in_unit.strip(), run.settings.rounding)} ({a.limits.description})")
             for by_k in a.limits_by_readings:  # ISO 11843-2: the limits for the samples read K > 1 times

@@ -220,6 +220,22 @@ def figures(value: float, significant: int) -> str:
     return written(format(Decimal(text), "f") if "e" in text else text)
 
 
+def fixed(value: float, places: int, *, plus: bool = False, machine: bool = False) -> str:
+    """``value`` with ``places`` decimals for a person: a negative value with the minus sign ("−2.97";
+    ``machine``: the hyphen-minus programs read), a positive one with "+" where ``plus`` asks for its
+    direction ("+2.97", a %RE or a z-score), and a value that rounds to zero at those decimals with no
+    sign ("0.00", never "−0.00" or "+0.00": a sign would state a direction the printed digits do not
+    have). A value that is not a number: as :func:`figures` writes it."""
+    if not math.isfinite(value):
+        return figures(value, 1)
+    text = f"{value:+.{places}f}"
+    if text[1:].strip("0.") == "":
+        return text[1:]
+    if text[0] == "-":
+        return ("-" if machine else MINUS) + text[1:]
+    return text if plus else text[1:]
+
+
 def p_equals(value: float, significant: int) -> str:
     """A p-value in running text, to ``significant`` figures as :func:`figures` gives them: "p = 0.994",
     "p = 2.6 × 10⁻⁷". A p-value below 1 whose figures round up to 1 is written "p > 0.999" (as many nines

@@ -152,7 +152,7 @@ def excel_format(value: Value, column: Column, rule: RoundingRule | None = None)
     if display.startswith("signed") and "E" not in body:
         # a value that rounds to zero at the shown decimals is shown with no sign (signed_text): "0.0" for
         # it either side of zero, which a format "+0.0;-0.0;0.0" gives only to an exact zero
-        return f"{body};{body}" if text[:1] not in "+-" else f"+{body};-{body};{body}"
+        return f"{body};{body}" if text[:1] not in "+-\u2212" else f"+{body};-{body};{body}"
     return body
 
 
