@@ -801,7 +801,8 @@ def summary_table(result: RunResult) -> Table:
 
     columns = (Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Reported", kind="reported"), Column("Unit"),
                Column("Estimate × dilution", kind="number", display="within"),
-               Column("Lower limit", kind="number", display="interval"), Column("Upper limit", kind="number", display="interval"),
+               Column("Lower limit × dilution", kind="number", display="interval"),
+               Column("Upper limit × dilution", kind="number", display="interval"),
                Column("Status"), Column("Flags (short)"))
     rows = tuple(
         (s.sample_id, s.kind.words, s.analyte,
