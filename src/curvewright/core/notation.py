@@ -236,15 +236,28 @@ def fixed(value: float, places: int, *, plus: bool = False, machine: bool = Fals
     return text if plus else text[1:]
 
 
+P_FIGURES = 3
+"""The significant figures every p-value is shown with (text, tables, workbook, record; common practice)."""
+
+
+def p_text(value: float, significant: int = P_FIGURES) -> str:
+    """A p-value as a table cell shows it, to ``significant`` figures as :func:`figures` gives them
+    ("0.994", "2.6 × 10⁻⁷"); a p-value below 1 whose figures round up to 1 is "> 0.999" (as many nines
+    as figures), so that a test's p is never shown as certain; a p of exactly 1 (a statistic of zero)
+    is "1"."""
+    text = figures(value, significant)
+    if text == "1" and value < 1.0:
+        return f"> 0.{'9' * significant}"
+    return text
+
+
 def p_equals(value: float, significant: int) -> str:
     """A p-value in running text, to ``significant`` figures as :func:`figures` gives them: "p = 0.994",
     "p = 2.6 × 10⁻⁷". A p-value below 1 whose figures round up to 1 is written "p > 0.999" (as many nines
     as figures), so that a test's p is never shown as certain; a p of exactly 1 (a statistic of zero) is
     "p = 1"."""
-    text = figures(value, significant)
-    if text == "1" and value < 1.0:
-        return f"p > 0.{'9' * significant}"
-    return f"p = {text}"
+    text = p_text(value, significant)
+    return f"p {text}" if text.startswith(">") else f"p = {text}"
 
 
 def excel_format(text: str, significant: int | None = None, scientific: bool | None = None) -> str:
