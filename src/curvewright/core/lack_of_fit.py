@@ -41,7 +41,7 @@ from .values import frozen_value
 from ._arrays import FloatArray
 from .distributions import f_upper_tails
 from .levels import Levels
-from .least_squares import roundoff_floor
+from .least_squares import ROUNDOFF
 
 
 @frozen_value
@@ -138,8 +138,8 @@ def lack_of_fit_tests(
         ss_pe = np.add.reduce(w * (r - mean_residual[:, levels.index]) ** 2, axis=1)
         ss_lf = np.add.reduce(level_weight * mean_residual**2, axis=1)
         # a sum no larger than if each weighted residual were at the round-off floor is round-off
-        tiny = (np.zeros(m) if weighted_response is None else
-                n * np.array([roundoff_floor(row) for row in weighted_response[tested]]) ** 2)
+        tiny = (np.zeros(m) if weighted_response is None else  # n·(roundoff_floor of each row)²
+                n * (ROUNDOFF * np.maximum.reduce(np.abs(weighted_response[tested]), axis=1)) ** 2)
         ss_lf = np.where(ss_lf <= tiny, 0.0, ss_lf)
         positive = ss_pe > tiny
         f = (ss_lf / df_lf) / np.where(positive, ss_pe / df_pe, 1.0)
