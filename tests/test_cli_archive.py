@@ -65,7 +65,7 @@ def test_filing_reports_the_rules_the_new_run_breaks(tmp_path, lead_files) -> No
     assert out.returncode == 0  # the general profile makes no rule a failure: a warning
     assert "trend rules (control limits from the first 20 accepted runs; 1-3s, 2-2s, R-4s, 4-1s, 10-x):" in out.stdout
     slope = tracked_values(analyse_run(lead_run(21, slope=SLOPES[20])))[0].slope
-    assert f"lead: slope b1 (counts per µg/L) {slope:.6g} (z = -" in out.stdout
+    assert f"lead: slope b1 (counts per µg/L) {slope:.6g} (z = −" in out.stdout
     assert "1-3s: one value beyond the mean ± 3 s (below the mean) — warning" in out.stdout
 
 
@@ -94,7 +94,7 @@ def test_trend_prints_the_limits_and_every_run_with_the_rules_it_breaks(tmp_path
     assert f"mean {lim.mean:.6g}, s {lim.sd:.4g} (n = 20)" in out.stdout
     assert f"±3 s {lim.limit(3)[0]:.6g} to {lim.limit(3)[1]:.6g}" in out.stdout
     last = [line for line in out.stdout.splitlines() if "Lead in water, run 021" in line]
-    assert len(last) == 1 and last[0].rstrip().endswith("1-3s") and f"{h.trend.z[-1]:+.2f}" in last[0]
+    assert len(last) == 1 and last[0].rstrip().endswith("1-3s") and f"{h.trend.z[-1]:+.2f}".replace("-", "−") in last[0]
     assert "Rules broken in 1 of 21 runs: 1-3s 1." in out.stdout and CAUTION in out.stdout
 
 

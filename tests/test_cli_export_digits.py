@@ -145,8 +145,8 @@ def test_workbook_intervals_show_the_digits_of_the_record_and_the_command_line(b
              or line.startswith("  QC ") or line.startswith("  Field blank")}
     rows = sheet_rows(book, sheet)
     assert len(rows) == 7
-    # the Samples sheet names the scale of its ends: after dilution, as reported
-    low, high = ("Lower limit", "Upper limit") if sheet == "Summary" else ("Lower limit × dilution", "Upper limit × dilution")
+    # both sheets name the scale of their ends: after dilution, as reported
+    low, high = "Lower limit × dilution", "Upper limit × dilution"
     for row in rows:
         sample = row["Sample id"].value
         # the cells' numbers as their formats show them, each minus sign as a person reads it (U+2212)

@@ -118,9 +118,9 @@ def test_large_whole_numbers_are_printed_to_the_place_their_interval_supports(tm
                     assert cell.number_format == "0." + "0" * (len(figures.digits) - 1) + "E+00"
                 else:
                     assert shown(cell) == want[0]
-            for row, after in ((summary[sample], ""), (samples[sample], " × dilution")):
+            for row in (summary[sample], samples[sample]):
                 for name in ("Lower limit", "Upper limit"):
-                    assert row[name + after].value == rows[sample]["reported_" + name.split()[0].lower()]
+                    assert row[name + " × dilution"].value == rows[sample]["reported_" + name.split()[0].lower()]
         said = {r["Item"].value: r["Value"].value for r in sheet_rows(book, "Calibration – potassium")}
         assert said["Shown to the decimal place of their interval instead"].startswith("Brine B: the rule")
     finally:

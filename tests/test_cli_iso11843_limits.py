@@ -175,3 +175,27 @@ def test_the_calibration_table_shows_the_limits_by_the_runs_rule(tmp_path: Path)
                         ("Minimumdetectablevaluex_d", x_d)):
         assert item + computed(value, rule) in text, item
         assert item + f"{value:.6g}" not in text, item
+
+
+def test_a_sample_below_x_d_is_told_the_number_of_readings_x_d_is_for(tmp_path: Path) -> None:
+    """A sample read three times and found between its x_c and x_d is told both limits for three readings,
+    as a sample below x_c is told "the critical value x_c for 3 readings"; a sample read once is told
+    them without a count (the limits for one reading, as everywhere)."""
+    std = write(tmp_path / "std.csv", ["Standard id,Level,Concentration (µg/L),Response (counts)",
+                                       *[f"{i},L,{c},{r}" for i, c, r in STANDARDS]], newline="\r\n")
+    smp = write(tmp_path / "smp.csv", ["Sample,Type,Dilution,Response 1,Response 2,Response 3",
+                                       "OV-211,unknown,1,74.1,77.9,76.0", "OV-213,unknown,1,150,,"], newline="\r\n")
+    method = tmp_path / "method.json"
+    method.write_text(json.dumps(METHOD), encoding="utf-8")
+    args = ("quantify", "--standards", str(std), "--samples", str(smp), "--analyte", "cadmium", "--method", str(method),
+            "--map", "samples.response=Response 1", "--map", "samples.response=Response 2",
+            "--map", "samples.response=Response 3")
+    out = run_cli(*args)
+    assert out.returncode in (0, 1), out.stderr
+    rows = {line.split()[0]: line for line in out.stdout.splitlines() if line.startswith("  OV-")}
+    assert ("detected (at or above the critical value x_c for 3 readings) but below the minimum detectable value "
+            "x_d for 3 readings (ISO 11843-2)") in rows["OV-211"], rows["OV-211"]
+    assert ("detected (at or above the critical value x_c) but below the minimum detectable value x_d "
+            "(ISO 11843-2)") in rows["OV-213"], rows["OV-213"]
+    samples = {s["id"]: s for s in json.loads(run_cli(*args, "--json").stdout)["analytes"][0]["samples"]}
+    assert "below the minimum detectable value x_d for 3 readings" in samples["OV-211"]["flag_words"]

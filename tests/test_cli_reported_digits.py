@@ -119,7 +119,7 @@ def test_a_large_result_is_shown_to_the_digits_of_its_interval_not_three_figures
         samples_row = sheet_rows(book, "Samples")[0]
         # the Reported cell holds the number rounded to the tens; the cells that keep the full number show
         # it to the unit, as a number format cannot round to the tens
-        assert [shown(summary[c]) for c in ("Reported", "Estimate × dilution", "Lower limit", "Upper limit")] == \
+        assert [shown(summary[c]) for c in ("Reported", "Estimate × dilution", "Lower limit × dilution", "Upper limit × dilution")] == \
             ["1705110", "1705106", "1704513", "1705698"]
         assert [shown(samples_row[c]) for c in ("Estimated concentration", "Concentration × dilution", "Reported")] == \
             ["1705106", "1705106", "1705110"]

@@ -32,10 +32,16 @@ def test_the_samples_sheet_gives_the_standard_error_and_the_ends_after_dilution(
     workbook = openpyxl.load_workbook(book)
     try:
         rows = {r["Sample id"].value: r for r in sheet_rows(workbook, "Samples")}
+        summary = {r["Sample id"].value: r for r in sheet_rows(workbook, "Summary")}
     finally:
         workbook.close()
     headings = list(next(iter(rows.values())))
     assert "Lower limit" not in headings and "Upper limit" not in headings  # no end without its scale
+    # the Summary sheet's ends are on the same (reported) scale, and say so
+    assert "Lower limit" not in list(next(iter(summary.values()))) and "Upper limit" not in list(next(iter(summary.values())))
+    for sample in ("EX-1", "EX-2"):
+        assert summary[sample]["Lower limit × dilution"].value == rows[sample]["Lower limit × dilution"].value
+        assert summary[sample]["Upper limit × dilution"].value == rows[sample]["Upper limit × dilution"].value
     for sample, dilution in (("EX-1", 1), ("EX-2", 10)):
         row, said = rows[sample], data[sample]
         se = row["Standard error × dilution"]

@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import math
 import os
 import sys
 import traceback
@@ -32,7 +33,7 @@ from typing import Any, Iterator, Mapping, Sequence
 from . import CAUTION, __version__
 from .core.level_text import percent_label
 from .core.values import frozen_value
-from .core.notation import computed, computed_within, entered, entered_span, figures, machine, p_equals
+from .core.notation import computed, computed_within, entered, entered_span, figures, fixed, machine, p_equals, p_text
 
 EXIT_ACCEPTED, EXIT_REJECTED, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
 
@@ -1193,7 +1194,7 @@ def summary_text(  # type: ignore[no-untyped-def]
         lof = cal.lack_of_fit
         lof_text = (f"lack-of-fit F = {figures(lof.f_statistic, 4)}, {p_equals(lof.p_value, 3)}" if lof.available
                     else f"lack of fit not tested ({lof.reason})")
-        lines.append(f"  residual SD {figures(cal.residual_sd, 6)}; adjusted R² {cal.adjusted_r_squared:.6f}; {lof_text}")
+        lines.append(f"  residual SD {figures(cal.residual_sd, 6)}; adjusted R² {fixed(cal.adjusted_r_squared, 6)}; {lof_text}")
         if a.limits:
             lines.append(f"  {a.limits.values_words(in_unit.strip(), run.settings.rounding)} ({a.limits.description})")
             if a.limits.blank_readings:  # the blanks the limits come from, beside them
@@ -1604,12 +1605,14 @@ def _print_evidence(run, result, as_json: bool, payload: list[dict[str, Any]],  
 
 
 def _text_table(table) -> str:  # type: ignore[no-untyped-def]
-    def cell(v: Any) -> str:
+    def cell(v: Any, column) -> str:  # type: ignore[no-untyped-def]
         if v is None:
             return "—"
+        if isinstance(v, float) and column.display.startswith("p:") and math.isfinite(v):
+            return p_text(v, int(column.display[2:]))  # "> 0.999" where the figures would read 1
         return f"{figures(v, 6)}" if isinstance(v, float) else str(v)
 
-    rows = [[c.heading for c in table.columns]] + [[cell(v) for v in r] for r in table.rows]
+    rows = [[c.heading for c in table.columns]] + [[cell(v, c) for v, c in zip(r, table.columns)] for r in table.rows]
     widths = [max(len(r[i]) for r in rows) for i in range(len(rows[0]))]
     return "\n".join("  ".join(v.ljust(w) for v, w in zip(r, widths)).rstrip() for r in rows)
 

@@ -49,8 +49,8 @@ def test_the_standards_table_and_the_curve_show_the_anchor_points(make_window) -
         assert cell(window, row, sm.LIMITS) == "anchor point, not judged"
         assert "not judged for acceptance" in cell(window, row, sm.LIMITS, Qt.ItemDataRole.ToolTipRole)
         # the back-calculated value and %RE are shown, for information
-        assert cell(window, row, sm.RE) == f"{cal.relative_error[row]:+.2f}"
-    assert cell(window, 18, sm.RE) == "-37.50" and cell(window, 19, sm.RE) == "+53.18"
+        assert cell(window, row, sm.RE) == f"{cal.relative_error[row]:+.2f}".replace("-", "−")  # the minus sign
+    assert cell(window, 18, sm.RE) == "−37.50" and cell(window, 19, sm.RE) == "+53.18"
     assert cell(window, 2, sm.IN_FIT) == "yes" and cell(window, 2, sm.LIMITS) == "yes"
     rings = drawn(window, "anchor point (fitted, not judged)")
     assert len(rings) == 1

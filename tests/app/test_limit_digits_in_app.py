@@ -26,4 +26,4 @@ def test_recovery_and_relative_error_in_the_app_tables(make_window, settings, im
     table = window.standards_model
     relative = [table.data(table.index(r, standards_model.RE), Qt.ItemDataRole.DisplayRole) for r in range(table.rowCount())]
     # two decimals as the app shows a %RE, three where two would read as the ±15 % limit itself
-    assert relative[2:8] == ["+15.01", "-15.01", "+14.999", "-14.999", "+15.00", "-15.00"]
+    assert relative[2:8] == ["+15.01", "−15.01", "+14.999", "−14.999", "+15.00", "−15.00"]

@@ -231,7 +231,7 @@ def test_today_s_run_is_judged_at_the_end_of_its_history_when_not_filed(where) -
         verdict = judge_run(archive, analyse_run(today))
         assert verdict.passed  # the general profile makes no rule a failure
         assert [(f.quantity, f.rule_break.rule) for f in verdict.findings] == [("slope", "1-3s")]
-        assert "warning" in verdict.findings[0].line and "z = -" in verdict.findings[0].line
+        assert "warning" in verdict.findings[0].line and "z = −" in verdict.findings[0].line
         archive.file(today)
         h = history(archive, "lead", "slope", today=Today.of(analyse_run(today)))
         assert h.today == 20 and h.points[-1].label == "Lead in water, run 030"

@@ -23,7 +23,7 @@ from ..io.importing import SAMPLE_FIELDS, SKIP, STANDARD_FIELDS, ImportResult, i
 from ..io.tables import (RawTable, default_sheet, hidden_rows_chosen, hidden_rows_listed, table_from_csv, table_from_text,
                          table_from_xlsx, xlsx_sheets)
 from .standards_model import INVALID
-from ..core.notation import entered, entered_span, figures
+from ..core.notation import entered, entered_span, figures, fixed
 
 EXCLUSION_REASONS = (
     "preparation error (standard made up wrongly)",
@@ -118,7 +118,7 @@ def refit_preview(before: Run, after: Run, analyte: str) -> QLabel:
         # counted as the verdict counts (excluded standards and those without a usable value included
         # where the profile counts them as not passing)
         judged = a.verdict.count_words() if a.verdict is not None else ""
-        return [cal.equation(6), f"{figures(cal.residual_sd, 5)}", f"{cal.adjusted_r_squared:.6f}",
+        return [cal.equation(6), f"{figures(cal.residual_sd, 5)}", fixed(cal.adjusted_r_squared, 6),
                 f"{cal.n_standards}", reporting_range_words(a), judged, "accepted" if a.accepted else "NOT accepted",
                 "<br>".join(html.escape(r) for r in failing_reasons(a))]
 

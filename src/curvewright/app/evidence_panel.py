@@ -3,13 +3,22 @@ recommended one marked with its reasons, and the analyst's current choice."""
 
 from __future__ import annotations
 
+import math
+
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtGui import QFont
 from PySide6.QtWidgets import (QAbstractItemView, QHBoxLayout, QLabel, QPushButton, QTableWidget, QTableWidgetItem,
                                QTextBrowser, QVBoxLayout, QWidget)
 
 from ..core.run import Analyte
+from ..core.notation import P_FIGURES, p_text
 from ..io.result_tables import display_number
+
+
+def p_shown(value: float | None) -> str:
+    """A p-value in a table cell as every output shows it ("> 0.999" where its figures would read 1)."""
+    return display_number(value, P_FIGURES) if value is None or not math.isfinite(value) else p_text(value)
+
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -76,8 +85,7 @@ class EvidencePanel(QWidget):
             recommended = c is self.comparison.recommendation  # none when no candidate is acceptable
             chosen = c.model.value == analyte.model and c.weighting.value == analyte.weighting
             values = (c.model.value, c.weighting.value, display_number(c.residual_sd, 4),
-                      display_number(c.adjusted_r_squared, 6), display_number(c.lack_of_fit_p, 3),
-                      display_number(c.mandel.p_value if c.mandel else None, 3),
+                      display_number(c.adjusted_r_squared, 6), p_shown(c.lack_of_fit_p), p_shown(c.mandel.p_value if c.mandel else None),
                       display_number(c.sum_abs_relative_error, 4), str(c.standards_failing),
                       display_number(c.aicc, 5),
                       "★ recommended" if recommended else "", "● chosen" if chosen else "")

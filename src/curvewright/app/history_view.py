@@ -30,7 +30,7 @@ from ..core.trends import DEFAULT_BASELINE_RUNS, RULES, Baseline
 from ..io.archive import (ENVIRONMENT, ArchiveError, History, RecordNotIntact, Today, history, locate,
                           open_archive)
 from . import figures, palette
-from ..core.notation import figures as sig_figures
+from ..core.notation import figures as sig_figures, fixed
 
 SETTINGS_KEY = "archive/location"
 TODAY_COLOUR = "#2a7f62"
@@ -382,7 +382,7 @@ class HistoryWindow(QWidget):
         for r, i in enumerate(rows):
             p = h.points[i]
             z = float(h.trend.z[i]) if h.trend is not None else float("nan")
-            cells = (f"{i + 1}: {p.label}", p.day[:10], f"{sig_figures(p.value, 6)}", f"{z:+.2f}",
+            cells = (f"{i + 1}: {p.label}", p.day[:10], f"{sig_figures(p.value, 6)}", fixed(z, 2, plus=True),
                      "; ".join(b.words for b in h.breaks_at(i)))
             for c, text in enumerate(cells):
                 self.breaks_table.setItem(r, c, QTableWidgetItem(text))

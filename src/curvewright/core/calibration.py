@@ -232,7 +232,7 @@ def fit_weightings(
             lacks = lack_of_fit_tests(
                 np.stack([core.clean / np.sqrt(core.weights.weights) for _, core in cores]),
                 np.stack([core.weights.weights for _, core in cores]), levels, p,
-                [core.weights.from_replicates for _, core in cores],
+                [core.weights.from_replicates for _, core in cores], np.stack([core.root_wy for _, core in cores]),
             )
             regressions = regression_tests(
                 [(core.solution.coefficients, core.z_cov, core.solution.fitted, not np.any(core.clean))
@@ -467,7 +467,7 @@ def _polynomial_calibration(
         branch, vertex_z, notes = stacked[1]
     if lack is None:
         lack = Deferred(lambda: lack_of_fit_test(clean / np.sqrt(w), w, levels, p,
-                                                 weights_from_replicates=weights.from_replicates))
+                                                 weights_from_replicates=weights.from_replicates, weighted_response=root_wy))
     if regression is None:
         regression = regression_test(
             solution.coefficients, z_cov, basis.powers, solution.fitted, y, not np.any(clean), df

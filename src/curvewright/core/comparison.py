@@ -92,7 +92,7 @@ from .least_squares import solve_weighted
 from .models import Model, make_basis
 from .variance import VarianceEvidence, variance_evidence
 from .weighting import Weighting
-from .notation import entered, figures, p_equals
+from .notation import entered, figures, fixed, p_equals
 
 POWER_MIN_DECADES = 2.0
 """The power curve is considered, and may be recommended, when the positive standards span at least this many decades."""
@@ -678,7 +678,7 @@ def _weighting_for(evidence: VarianceEvidence, choices: dict[Weighting, Candidat
     theta, interval = evidence.sd_power, evidence.power_interval
     if theta is not None and interval is not None:
         low, high = interval
-        shape = f"the replicate SD grows as (mean response)^{theta:.2f} (95 % interval {low:.2f} to {high:.2f})"
+        shape = f"the replicate SD grows as (mean response)^{fixed(theta, 2)} (95 % interval {fixed(low, 2)} to {fixed(high, 2)})"
         for group in ((Weighting.INVERSE_X2, Weighting.INVERSE_X), (Weighting.POWER, Weighting.TWO_COMPONENT),
                       (Weighting.INVERSE_Y2, Weighting.INVERSE_Y)):
             fitting = [w for w in group if w in choices and (w not in IMPLIED_POWER or low <= IMPLIED_POWER[w] <= high)]
@@ -766,7 +766,7 @@ def _weights_use(chosen: Candidate, evidence_theta: float) -> str:
     function = fitted.function
     if function.kind == "power":
         return (f"the {name}'s weights use θ = {figures(function.parameter, 3)}, fitted to the residuals of all standards "
-                f"about the curve; θ = {evidence_theta:.2f} is the replicate evidence's estimate, fitted to the "
+                f"about the curve; θ = {fixed(evidence_theta, 2)} is the replicate evidence's estimate, fitted to the "
                 "replicates' scatter about their level means")
     return (f"the {name}'s weights use SD² = a² + b²·(mean response)² with a/b = {figures(function.parameter, 4)}, fitted "
             "to the residuals of all standards about the curve")

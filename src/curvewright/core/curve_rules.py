@@ -21,7 +21,7 @@ import numpy as np
 
 from .errors import ProfileError
 from .models import Model
-from .notation import entered, figures
+from .notation import entered, figures, fixed
 
 if TYPE_CHECKING:  # pragma: no cover
     from .fitted_curve import FittedCurve
@@ -69,10 +69,10 @@ class CurveRules:
         r = float(np.sqrt(max(r_squared, 0.0)))
         if cal.model is Model.LINEAR or cal.model is Model.PROPORTIONAL:
             ok = r >= self.min_r
-            words = f"r = {r:.5f}; at least {entered(self.min_r)} for a straight line"
+            words = f"r = {fixed(r, 5)}; at least {entered(self.min_r)} for a straight line"
         else:
             ok = r_squared >= self.min_r_squared
-            words = f"r² = {r_squared:.5f}; at least {entered(self.min_r_squared)} for a {cal.model.value} curve"
+            words = f"r² = {fixed(r_squared, 5)}; at least {entered(self.min_r_squared)} for a {cal.model.value} curve"
         return ok, (f"{'pass' if ok else 'FAIL'}: {words}",)
 
     def to_mapping(self) -> dict[str, Any]:

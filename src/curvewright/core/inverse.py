@@ -107,6 +107,26 @@ class QuantFlag(IntFlag):
         """The flag(s) as short words for a table cell, joined by ', ' (``words`` says them in full)."""
         return ", ".join(_SHORT_WORDS[member] for member in self)  # type: ignore[index]
 
+    def words_for(self, readings: int) -> tuple[str, str]:
+        """:attr:`words` and :attr:`short_words` with ISO 11843-2's x_c and x_d named for the ``readings``
+        (K) of a test sample they are for ("below the minimum detectable value x_d for 3 readings"), as
+        the critical value's own words name them (:func:`min_detectable_words`)."""
+        if readings == 1 or QuantFlag.BELOW_MIN_DETECTABLE not in self:
+            return self.words, self.short_words
+        words, short = min_detectable_words(readings)
+        members = list(self)
+        return ("; ".join(words if m is QuantFlag.BELOW_MIN_DETECTABLE else _WORDS[m] for m in members),  # type: ignore[index]
+                ", ".join(short if m is QuantFlag.BELOW_MIN_DETECTABLE else _SHORT_WORDS[m] for m in members))  # type: ignore[index]
+
+
+def min_detectable_words(readings: int) -> tuple[str, str]:
+    """The words and short words of a result detected but below the minimum detectable value x_d
+    (ISO 11843-2), x_c and x_d named for the number K of readings of a test sample they are for
+    (nothing added for one reading)."""
+    each = "" if readings == 1 else f" for {readings} readings"
+    return (f"detected (at or above the critical value x_c{each}) but below the minimum detectable value x_d{each} "
+            "(ISO 11843-2): at this level the analyte is missed with a probability above β", f"< x_d{each}")
+
 
 _WORDS = {
     QuantFlag.IN_RANGE: "inside the calibrated range",
@@ -132,10 +152,7 @@ _WORDS = {
         "beyond the curve's turning point: the response lies beyond the highest (or lowest) value the "
         "curve reaches, so no concentration can be read from it"
     ),
-    QuantFlag.BELOW_MIN_DETECTABLE: (
-        "detected (at or above the critical value x_c) but below the minimum detectable value x_d "
-        "(ISO 11843-2): at this level the analyte is missed with a probability above β"
-    ),
+    QuantFlag.BELOW_MIN_DETECTABLE: min_detectable_words(1)[0],
 }
 _SHORT_WORDS = {
     QuantFlag.IN_RANGE: "in range",
@@ -149,7 +166,7 @@ _SHORT_WORDS = {
     QuantFlag.TURNING_POINT: "turning point",
     QuantFlag.BEYOND_ASYMPTOTE: "beyond asymptote",
     QuantFlag.BEYOND_TURNING_POINT: "beyond turning point",
-    QuantFlag.BELOW_MIN_DETECTABLE: "< x_d",
+    QuantFlag.BELOW_MIN_DETECTABLE: min_detectable_words(1)[1],
 }
 
 

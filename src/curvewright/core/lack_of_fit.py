@@ -19,6 +19,13 @@ made SS_PE exceed SSE in most runs). This uses near replicates as Kutner et al. 
 (from memory); the F-test is then approximate. A small p says the model does not follow the levels
 within the replicate scatter.
 
+Sums of squares at the level of round-off are not scatter. Where the level means lie on the curve to
+within round-off (SS_LF no larger than if every weighted residual were at the round-off floor
+ROUNDOFF·max|√w·y|, :func:`.least_squares.roundoff_floor`), SS_LF is taken as zero: F = 0 and p = 1,
+never an F of 10⁻²⁶ made of the last bits of the arithmetic. Where the replicates also agree to within
+round-off, the standards lie on the curve: the fit is exact and no lack-of-fit test is meaningful, and
+the result says so. Where only the replicates agree, the pure error is zero and the ratio undefined.
+
 When the weights are the replicates' own SDs (1/s² estimated from the same standards), the pure
 error is fixed by construction (each level contributes its degrees of freedom exactly), so the
 ratio tests nothing and the test is not made.
@@ -34,6 +41,7 @@ from .values import frozen_value
 from ._arrays import FloatArray
 from .distributions import f_upper_tails
 from .levels import Levels
+from .least_squares import ROUNDOFF
 
 
 @frozen_value
@@ -72,12 +80,15 @@ def lack_of_fit_test(
     n_parameters: int,
     *,
     weights_from_replicates: bool = False,
+    weighted_response: FloatArray | None = None,
 ) -> LackOfFit:
     """Split the weighted residual sum of squares over ``levels`` and test lack of fit against pure error.
 
-    ``residuals`` are yᵢ − ŷᵢ in response units, with round-off already set to zero.
+    ``residuals`` are yᵢ − ŷᵢ in response units, with round-off already set to zero; ``weighted_response``
+    (√w·y) sets the round-off level of the sums of squares (None: only exact zeros are round-off).
     """
-    return lack_of_fit_tests(residuals[None, :], weights[None, :], levels, n_parameters, [weights_from_replicates])[0]
+    return lack_of_fit_tests(residuals[None, :], weights[None, :], levels, n_parameters, [weights_from_replicates],
+                             None if weighted_response is None else weighted_response[None, :])[0]
 
 
 def lack_of_fit_tests(
@@ -86,6 +97,7 @@ def lack_of_fit_tests(
     levels: Levels,
     n_parameters: int,
     weights_from_replicates: Sequence[bool],
+    weighted_response: FloatArray | None = None,
 ) -> list[LackOfFit]:
     """:func:`lack_of_fit_test` of k fits of one model to the same standards at once: ``residuals``
     and ``weights`` are (k, n), one row per fit. The level sums of all rows are taken in one pass
@@ -125,14 +137,30 @@ def lack_of_fit_tests(
         mean_residual = np.bincount(bins, weights=(w * r).ravel(), minlength=m * c).reshape(m, c) / level_weight
         ss_pe = np.add.reduce(w * (r - mean_residual[:, levels.index]) ** 2, axis=1)
         ss_lf = np.add.reduce(level_weight * mean_residual**2, axis=1)
-        positive = ss_pe > 0.0
+        # a sum no larger than if each weighted residual were at the round-off floor is round-off
+        tiny = (np.zeros(m) if weighted_response is None else  # n·(roundoff_floor of each row)²
+                n * (ROUNDOFF * np.maximum.reduce(np.abs(weighted_response[tested]), axis=1)) ** 2)
+        ss_lf = np.where(ss_lf <= tiny, 0.0, ss_lf)
+        positive = ss_pe > tiny
         f = (ss_lf / df_lf) / np.where(positive, ss_pe / df_pe, 1.0)
         p_values = f_upper_tails(f, df_lf, df_pe)
         for j, i in enumerate(tested):
+            if not positive[j] and ss_lf[j] == 0.0:
+                out[i] = LackOfFit(
+                    False,
+                    "the standards lie on the curve to within round-off (the replicates agree and the levels lie "
+                    "on the curve), so the fit is exact and no lack-of-fit test is meaningful",
+                    df_lack_of_fit=df_lf,
+                    df_pure_error=df_pe,
+                    ss_lack_of_fit=0.0,
+                    ss_pure_error=0.0,
+                )
+                continue
             if not positive[j]:
                 out[i] = LackOfFit(
                     False,
-                    "the replicates agree exactly at every level, so the pure error is zero and the ratio "
+                    "the replicates agree exactly (to within round-off) at every level, so the pure error is zero "
+                    "and the ratio "
                     "is undefined",
                     df_lack_of_fit=df_lf,
                     df_pure_error=df_pe,

@@ -188,7 +188,7 @@ def fit_nonlinear_curve(
     core = _curve_core(model, weighting, x, y, levels, response_sd, anchor_points, shared)
     influence = measure_influence(core.fit.weighted_residuals, core.fit.leverage, model.n_parameters, core.root_wy)
     lack = lack_of_fit_test(core.clean / core.root_w, core.weights.weights, levels, model.n_parameters,
-                            weights_from_replicates=core.weights.from_replicates)
+                            weights_from_replicates=core.weights.from_replicates, weighted_response=core.root_wy)
     return _curve_calibration(core, influence, lack)
 
 
@@ -363,7 +363,7 @@ def fit_curve_weightings(
         lacks = lack_of_fit_tests(
             np.stack([core.clean / core.root_w for _, core in cores]),
             np.stack([core.weights.weights for _, core in cores]), levels, p,
-            [core.weights.from_replicates for _, core in cores],
+            [core.weights.from_replicates for _, core in cores], np.stack([core.root_wy for _, core in cores]),
         )
         for (i, core), influence, lack in zip(cores, influences, lacks, strict=True):
             out[i] = _curve_calibration(core, influence, lack)

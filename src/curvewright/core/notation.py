@@ -220,15 +220,44 @@ def figures(value: float, significant: int) -> str:
     return written(format(Decimal(text), "f") if "e" in text else text)
 
 
+def fixed(value: float, places: int, *, plus: bool = False, machine: bool = False) -> str:
+    """``value`` with ``places`` decimals for a person: a negative value with the minus sign ("−2.97";
+    ``machine``: the hyphen-minus programs read), a positive one with "+" where ``plus`` asks for its
+    direction ("+2.97", a %RE or a z-score), and a value that rounds to zero at those decimals with no
+    sign ("0.00", never "−0.00" or "+0.00": a sign would state a direction the printed digits do not
+    have). A value that is not a number: as :func:`figures` writes it."""
+    if not math.isfinite(value):
+        return figures(value, 1)
+    text = f"{value:+.{places}f}"
+    if text[1:].strip("0.") == "":
+        return text[1:]
+    if text[0] == "-":
+        return ("-" if machine else MINUS) + text[1:]
+    return text if plus else text[1:]
+
+
+P_FIGURES = 3
+"""The significant figures every p-value is shown with (text, tables, workbook, record; common practice)."""
+
+
+def p_text(value: float, significant: int = P_FIGURES) -> str:
+    """A p-value as a table cell shows it, to ``significant`` figures as :func:`figures` gives them
+    ("0.994", "2.6 × 10⁻⁷"); a p-value below 1 whose figures round up to 1 is "> 0.999" (as many nines
+    as figures), so that a test's p is never shown as certain; a p of exactly 1 (a statistic of zero)
+    is "1"."""
+    text = figures(value, significant)
+    if text == "1" and value < 1.0:
+        return f"> 0.{'9' * significant}"
+    return text
+
+
 def p_equals(value: float, significant: int) -> str:
     """A p-value in running text, to ``significant`` figures as :func:`figures` gives them: "p = 0.994",
     "p = 2.6 × 10⁻⁷". A p-value below 1 whose figures round up to 1 is written "p > 0.999" (as many nines
     as figures), so that a test's p is never shown as certain; a p of exactly 1 (a statistic of zero) is
     "p = 1"."""
-    text = figures(value, significant)
-    if text == "1" and value < 1.0:
-        return f"p > 0.{'9' * significant}"
-    return f"p = {text}"
+    text = p_text(value, significant)
+    return f"p {text}" if text.startswith(">") else f"p = {text}"
 
 
 def excel_format(text: str, significant: int | None = None, scientific: bool | None = None) -> str:

@@ -213,8 +213,9 @@ def report_value(
     extra = flags & _QUALIFIERS if flags is not None else QuantFlag(0)
     if estimate is not None and _below_min_detectable(estimate, rng):
         extra |= QuantFlag.BELOW_MIN_DETECTABLE
-    qualifiers = [extra.words] if extra else []
-    short_qualifiers = [extra.short_words] if extra else []
+    qualifier_words, qualifier_short = extra.words_for(rng.critical_replicates)
+    qualifiers = [qualifier_words] if extra else []
+    short_qualifiers = [qualifier_short] if extra else []
     if estimate is None or (flags is not None and flags & _NO_NUMBER):
         reason = not_quantified or (
             (flags & (QuantFlag.NO_SOLUTION | QuantFlag.BEYOND_ASYMPTOTE | QuantFlag.BEYOND_TURNING_POINT)).words
@@ -567,7 +568,8 @@ def report_columns(
         quals = qualifiers_of.get(x)
         if quals is None:
             q = QuantFlag(x)
-            quals = qualifiers_of[x] = ([q.words] if q else [], [q.short_words] if q else [])
+            q_words, q_short = q.words_for(rng.critical_replicates)
+            quals = qualifiers_of[x] = ([q_words] if q else [], [q_short] if q else [])
         texts_here = by_dilution.get(factor)
         if texts_here is None:
             texts_here = by_dilution[factor] = _dilution_texts(factor, rng, rule, unit)

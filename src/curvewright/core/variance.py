@@ -40,7 +40,7 @@ import numpy as np
 from ._arrays import FloatArray
 from .distributions import f_quantile, f_upper_tail
 from .levels import Levels
-from .notation import figures, p_equals
+from .notation import figures, fixed, p_equals
 
 ISO_8466_LEVEL = 0.99
 """Confidence level of the ISO 8466-1 variance F-test (ISO 8466-1)."""
@@ -114,7 +114,7 @@ def variance_evidence(response: FloatArray, levels: Levels, residuals: FloatArra
         low, high = interval
         summary = (
             f"variance function fitted to the replicates of {used} levels: SD ∝ (mean response)^θ with "
-            f"θ = {theta:.2f} (95 % interval {low:.2f} to {high:.2f}); "
+            f"θ = {fixed(theta, 2)} (95 % interval {fixed(low, 2)} to {fixed(high, 2)}); "
         )
         if hetero:
             summary += f"the scatter grows with the response (one-sided {p_equals(pooled.p_value, 2)})"

@@ -55,7 +55,9 @@ GROUP_LIMIT = 10
 """Cells listed under one grouped finding before "… and N more"."""
 
 SYNONYMS = {
-    "id": ("id", "sample id", "sample", "sample name", "name", "standard", "standard id", "std id"),
+    "id": ("id", "sample id", "sample", "sample name", "name", "standard", "standard id", "std id", "std", "std.",
+           "std. id", "std no", "std no.", "std. no", "std. no.", "std number", "standard no", "standard no.",
+           "standard number", "standard name", "std name"),
     "analyte": ("analyte", "compound", "element", "component", "parameter"),
     "level": ("level", "cal level", "calibration level", "std level"),
     "concentration": ("concentration", "conc", "conc.", "nominal concentration", "nominal", "amount", "x"),

@@ -11,7 +11,7 @@ from typing import TYPE_CHECKING, Any
 from ..core.level_text import percent_label
 from ..core.fitted_curve import FittedCurve
 from .number_text import full_number
-from ..core.notation import figures
+from ..core.notation import figures, fixed
 
 if TYPE_CHECKING:  # pragma: no cover
     from ..core.run_analysis import AnalyteResult
@@ -79,7 +79,7 @@ def curve_words(cal: FittedCurve, uses_internal_standard: bool) -> str:
             terms = [f"{name} = {figures(b, 6)} (SE {figures(se, 3)})"
                      for name, b, se in zip(cal.coefficient_names, cal.coefficients, cal.standard_errors)]
         parts.append(", ".join(terms))
-        parts.append(f"R² = {cal.r_squared:.6f}")
+        parts.append(f"R² = {fixed(cal.r_squared, 6)}")
     parts.append(f"residual SD {figures(cal.residual_sd, 4)} on {cal.df_residual} df")
     return "; ".join(parts)
 

@@ -19,6 +19,7 @@ import math
 import re
 from dataclasses import dataclass
 
+from ..core.notation import fixed
 from ..core.number_words import PLAIN_BELOW, PLAIN_FROM, full_number  # noqa: F401  (read from here too)
 from ..core.run import CENSORED_WORDS, Reading
 # one set of patterns and words for the cells and for the analysis's account of text it cannot use
@@ -245,11 +246,11 @@ def _values(count: int) -> str:
 
 
 def signed_text(value: float, decimals: int) -> str:
-    """``value`` with ``decimals`` decimals and its sign ("+1.2", "-0.4"), except where it rounds to zero
-    at those decimals: "0.0", with no sign, as a sign on zero would state a direction the printed digits
-    do not have (a %RE of 0.017 % at one decimal is "0.0", not "+0.0"; −1e-14 is "0.00", not "-0.00")."""
-    text = f"{value:+.{decimals}f}"
-    return text[1:] if text[1:].strip("0.") == "" else text
+    """``value`` with ``decimals`` decimals and its sign, for a person ("+1.2", "−0.4" with the minus sign
+    U+2212), except where it rounds to zero at those decimals: "0.0", with no sign, as a sign on zero would
+    state a direction the printed digits do not have (a %RE of 0.017 % at one decimal is "0.0", not
+    "+0.0"; −1e-14 is "0.00", not "−0.00"): :func:`curvewright.core.notation.fixed`."""
+    return fixed(value, decimals, plus=True)
 
 
 def percent_beside_limits(value: float, usual: int, centre: float, window: float | None, signed: bool = False) -> str:
@@ -263,4 +264,4 @@ def percent_beside_limits(value: float, usual: int, centre: float, window: float
     decimals = usual
     if window is not None and math.isfinite(value) and math.isfinite(window):
         decimals = decimals_beside_limits(value, usual, (centre - window, centre + window))
-    return signed_text(value, decimals) if signed else f"{value:.{decimals}f}"
+    return fixed(value, decimals, plus=signed)

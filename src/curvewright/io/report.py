@@ -22,7 +22,7 @@ from .. import CAUTION, __version__
 from ..core.comparison import ModelComparison
 from ..core.inverse import INTERVAL_SCOPE_NOTE
 from ..core.reporting import ReportStatus
-from ..core.notation import entered, entered_span, figures
+from ..core.notation import P_FIGURES, entered, entered_span, figures
 from ..core.run_analysis import AnalyteResult, RunResult
 from .analyte_trail import last_entry
 from .audit_words import AUDIT_COLUMNS, audit_rows, when, who
@@ -188,7 +188,8 @@ def evidence_table(result: RunResult, a: AnalyteResult) -> tuple[Table, tuple[st
     cal = a.calibration
     columns = (
         Column("Model"), Column("Weighting"), Column("Residual SD", kind="number"), Column("Adjusted R²", kind="number"),
-        Column("Lack-of-fit p", kind="number"), Column("Mandel p", kind="number"), Column("Σ|%RE|", kind="number"),
+        Column("Lack-of-fit p", kind="number", display=f"p:{P_FIGURES}"),
+        Column("Mandel p", kind="number", display=f"p:{P_FIGURES}"), Column("Σ|%RE|", kind="number"),
         Column("Standards failing", kind="int"), Column("AICc", kind="number"), Column("Recommended"), Column("Chosen"),
     )
     if cal is None:

@@ -7,6 +7,7 @@ full precision, whole numbers, or None for an empty cell. Renderers only lay the
 from __future__ import annotations
 
 import json
+from decimal import Decimal
 import math
 import re
 from dataclasses import dataclass, replace
@@ -23,7 +24,8 @@ from ..core.models import Model
 from ..core.rounding import RoundingRule, interval_places
 from ..core.run import SampleKind
 from ..core.reporting import ReportStatus
-from ..core.notation import excel_format as notation_excel_format, figures, is_plain, written
+from ..core.notation import excel_format as notation_excel_format, figures, is_plain, p_text, written
+from ..core.notation import P_FIGURES
 from .number_text import clean, full_number, signed_text
 from .audit import chain_claim, verify_chain  # noqa: F401 - chain_claim: where the record and the tables take it
 
@@ -40,7 +42,9 @@ class Column:
     """A column: its name and unit, the kind of its values, and how a number is shown for reading.
 
     ``display`` is ``"rule"`` (the run's rounding rule, for reported concentrations), ``"sig:N"``
-    (N significant figures), ``"dec:N"`` (N decimals), ``"signed:N"`` (N decimals with a sign),
+    (N significant figures), ``"p:N"`` (a p-value to N significant figures, "> 0.999" where they would
+    round a p below 1 up to 1: :func:`~curvewright.core.notation.p_text`), ``"dec:N"`` (N decimals),
+    ``"signed:N"`` (N decimals with a sign),
     ``"plain"`` (up to six significant figures without trailing zeros: for settings such as a
     tolerance), ``"full"`` (every digit the value holds, without an exponent for ordinary magnitudes
     (:func:`~.number_text.full_number`): for values a person entered, such as a nominal concentration
@@ -104,6 +108,12 @@ def _plain_text(v: float, display: str, rule: RoundingRule | None) -> tuple[str,
     return _figures_text(v, digits), digits, None
 
 
+def _p_plain(v: float, significant: int) -> str:
+    """The plain digits :func:`~curvewright.core.notation.figures` writes a p-value with."""
+    text = f"{v:.{significant}g}"
+    return format(Decimal(text), "f") if "e" in text else text
+
+
 def _figures_at(v: float, places: int) -> int | None:
     """The significant figures of ``v`` printed to ``places`` decimals (None for zero)."""
     return None if v == 0 else max(1, math.floor(math.log10(abs(v))) + places + 1)
@@ -132,6 +142,8 @@ def format_value(value: Value, column: Column, rule: RoundingRule | None = None)
     v = float(value)
     if not math.isfinite(v):
         return display_number(v)
+    if column.display.startswith("p:"):
+        return p_text(v, int(column.display[2:]))
     text, significant, scientific = _plain_text(v, _unsettled(column.display), rule)
     return written(text, significant=significant, scientific=scientific)
 
@@ -147,13 +159,16 @@ def excel_format(value: Value, column: Column, rule: RoundingRule | None = None)
     v = float(value)
     if not math.isfinite(v):
         return None
+    if column.display.startswith("p:"):  # the literal "> 0.999" where the figures would read 1
+        shown = p_text(v, int(column.display[2:]))
+        return f'"{shown}"' if shown.startswith(">") else notation_excel_format(_p_plain(v, int(column.display[2:])))
     display = _unsettled(column.display)
     text, significant, scientific = _plain_text(v, display, rule)
     body = notation_excel_format(text, significant, scientific)
     if display.startswith("signed") and "E" not in body:
         # a value that rounds to zero at the shown decimals is shown with no sign (signed_text): "0.0" for
         # it either side of zero, which a format "+0.0;-0.0;0.0" gives only to an exact zero
-        return f"{body};{body}" if text[:1] not in "+-" else f"+{body};-{body};{body}"
+        return f"{body};{body}" if text[:1] not in "+-\u2212" else f"+{body};-{body};{body}"
     return body
 
 
@@ -168,6 +183,7 @@ class Table:
     windows: tuple[tuple[str, float], ...] = ()  # for a "beside:...:@NAME" column: the window by the value in NAME
     entered: tuple[str, ...] = ()  # for an "item:NAME" column: the items whose value was entered, shown in full
     ruled: tuple[str, ...] = ()  # for an "item:NAME" column: the items shown by the run's rule (``rounding``)
+    p_values: tuple[str, ...] = ()  # for an "item:NAME" column: the items that are p-values (``"p:3"``)
     notice: str = ""
     """What a reader must not miss about the whole table (a record that is not intact), beside its title."""
 
@@ -212,7 +228,8 @@ class Table:
             elif kind == "item":
                 item = row[source] if source >= 0 else None
                 display = ("full" if item in self.entered else
-                           "rule" if item in self.ruled and self.rounding is not None else "plain")
+                           "rule" if item in self.ruled and self.rounding is not None else
+                           f"p:{P_FIGURES}" if item in self.p_values else "plain")
             else:
                 places = entered_decimals(row[source]) if source >= 0 else None
                 display = "sig:6" if places is None else f"dec:{places}"
@@ -562,7 +579,7 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     for u in a.unusable_standards:
         rows.append(("Standard not usable", f"{u.standard_id}: {u.reason}", None))
     return Table(f"Calibration – {an.name}", _CALIBRATION_COLUMNS, tuple(rows), rule, entered=tuple(entered),
-                 ruled=tuple(ruled))
+                 ruled=tuple(ruled), p_values=("Lack-of-fit p", "Mandel's test p"))
 
 
 def limits_words(a: AnalyteResult, result: RunResult) -> str:
@@ -821,7 +838,8 @@ def summary_table(result: RunResult) -> Table:
 
     columns = (Column("Sample id"), Column("Kind"), Column("Analyte"), Column("Reported", kind="reported"), Column("Unit"),
                Column("Estimate × dilution", kind="number", display="within"),
-               Column("Lower limit", kind="number", display="interval"), Column("Upper limit", kind="number", display="interval"),
+               Column("Lower limit × dilution", kind="number", display="interval"),
+               Column("Upper limit × dilution", kind="number", display="interval"),
                Column("Status"), Column("Flags (short)"))
     rows = tuple(
         (s.sample_id, s.kind.words, s.analyte,

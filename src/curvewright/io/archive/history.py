@@ -25,7 +25,7 @@ from ...core.trends import RULES, Baseline, RuleBreak, Trend, TrendError, TrendP
 from .errors import ArchiveError
 from .schema import utc_text
 from .store import Archive, MethodRecords, MethodSummary, content_hash, run_date
-from ...core.notation import figures
+from ...core.notation import figures, fixed
 
 
 @dataclass(frozen=True)
@@ -147,7 +147,7 @@ class Finding:
     def line(self) -> str:
         verdict = "FAIL (the profile makes this rule a failure)" if self.failing else "warning"
         limits = "; provisional limits" if self.provisional else ""
-        return (f"{self.analyte}: {self.words} {figures(self.value, 6)} (z = {self.z:+.2f}{limits}): "
+        return (f"{self.analyte}: {self.words} {figures(self.value, 6)} (z = {fixed(self.z, 2, plus=True)}{limits}): "
                 f"{self.rule_break.words} — {verdict}")
 
 

@@ -14,7 +14,7 @@ from ...core.trends import RULE_SOURCES, RULE_WORDS, RULES
 from ..result_tables import Column, Table
 from ..xlsx_export import write_tables
 from .history import History
-from ...core.notation import figures
+from ...core.notation import figures, fixed
 
 
 def _point_rows(h: History) -> list[dict[str, Any]]:
@@ -74,7 +74,7 @@ def history_text(h: History, archive_shown: str) -> str:
     heading = ("#", "entry", "run date", "run", "value", "z", "verdict", "baseline", "rules broken")
     table = [heading] + [(str(r["number"]), "—" if r["entry"] is None else str(r["entry"]), r["date"],
                           r["run"] + ("  ◀ today" if r["today"] else ""),
-                          f"{figures(r['value'], 6)}", "" if r["z"] is None else f"{r['z']:+.2f}",
+                          f"{figures(r['value'], 6)}", "" if r["z"] is None else fixed(r['z'], 2, plus=True),
                           ("accepted" if r["accepted"] else "NOT accepted")
                           + ("" if r["record_intact"] else "; record NOT intact"),
                           "B" if r["in_baseline"] else "", ", ".join(r["rules_broken"])) for r in rows]
