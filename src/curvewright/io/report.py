@@ -26,6 +26,7 @@ from ..core.notation import entered, entered_span, figures
 from ..core.run_analysis import AnalyteResult, RunResult
 from .audit_words import AUDIT_COLUMNS, audit_rows, when, who
 from .integrity import content_sha256
+from .model_choice import NOT_CHOSEN, chosen, function_words
 from .record_check import not_intact_notice, record_problems
 from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
                             run_identity, samples_table, standards_table)
@@ -348,8 +349,11 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     blocks.append(printed(calibration, rule))
     table, reasons = evidence_table(result, a)
     blocks.append(_evidence_printed(table, rule))
-    blocks.append(Paragraph(f"Chosen: {a.analyte.model}, {a.analyte.weighting}. Reason given: "
-                            f"{a.analyte.choice_reason or '(none recorded)'}", "body"))
+    if chosen(result.run, name):
+        blocks.append(Paragraph(f"Chosen: {a.analyte.model}, {a.analyte.weighting}. Reason given: "
+                                f"{a.analyte.choice_reason or '(none recorded)'}", "body"))
+    else:
+        blocks.append(Paragraph(f"Used: {function_words(a.analyte.model, a.analyte.weighting)}: the {NOT_CHOSEN}.", "body"))
     blocks += [Paragraph("• " + r, "small") for r in reasons]
     standards = standards_table(a, result.run.settings.rounding)
     blocks.append(printed(standards.select(STANDARD_ACCURACY_COLUMNS, f"Standards – {name}: back-calculated accuracy"), rule))

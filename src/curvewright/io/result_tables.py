@@ -25,6 +25,7 @@ from ..core.reporting import ReportStatus
 from ..core.notation import excel_format as notation_excel_format, figures, is_plain, written
 from .number_text import clean, full_number, signed_text
 from .audit import chain_claim, verify_chain  # noqa: F401 - chain_claim: where the record and the tables take it
+from .model_choice import NOT_CHOSEN, NOT_CHOSEN_BY, chosen
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -452,7 +453,8 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     rows += [
         ("Model", model + (" (given for this calculation, not the run's choice)" if a.model_overridden else ""), None),
         ("Weighting", cal.weighting.description if cal else an.weighting, None),
-        ("Reason for the choice", an.choice_reason or "(none recorded)", None),
+        ("Reason for the choice", an.choice_reason or ("(none recorded)" if chosen(result.run, an.name) else NOT_CHOSEN),
+         None),
         ("Chosen by", chosen_by, None),
     ]
     if cal is None:
@@ -903,7 +905,7 @@ def _chooser(result: RunResult, analyte: str) -> str:
     for e in reversed(result.run.audit):
         if e.action == "model_chosen" and e.details.get("analyte") == analyte:
             return f"{e.user}, {e.time_utc}"
-    return "(no choice recorded in the audit trail)"
+    return "(no choice recorded in the audit trail)" if chosen(result.run, analyte) else NOT_CHOSEN_BY
 
 
 def _mandel(cal: Calibration) -> tuple[Any, Any]:
