@@ -84,7 +84,7 @@ SHORT_FLAG_LEGEND = (
     ("open interval", "the calibration cannot bound the concentration on one side"),
     ("two roots", "the curve reaches the response twice within the calibrated range"),
     ("turning point", "the response lies beyond the curve's extreme; read at the extreme"),
-    ("replicate not usable", "a replicate was left out (its note says why)"),
+    ("replicate not usable", "a replicate was left out (the lines below the table say which and why)"),
 )
 
 
@@ -521,6 +521,14 @@ def _samples_printed(result: RunResult, a: AnalyteResult) -> PrintedTable:
     if mixed:  # every reading of these samples is named here, none left to the workbook alone
         legend += (f" Not quantified because {MIXED_READINGS} (no mean is formed from part of them): "
                    + "; ".join(mixed) + ".")
+    # why a sample has no result, or a result from part of its replicates, in the note's own words
+    why = [f"{s.sample_id}: {s.note}" for s in a.samples if s.note and MIXED_READINGS not in s.note and s.estimate is None]
+    part = [f"{s.sample_id}: {s.note}" for s in a.samples if s.note and MIXED_READINGS not in s.note
+            and s.estimate is not None]
+    if why:
+        legend += " Not quantified: " + "; ".join(why) + "."
+    if part:
+        legend += " Quantified from the usable replicates only: " + "; ".join(part) + "."
     return PrintedTable(f"Samples – {a.analyte.name}", SAMPLE_COLUMNS, tuple(rows),
                         (False, False, True, True, True, True, True, True, False, True, False), legend,
                         (True,) + (False,) * (len(SAMPLE_COLUMNS) - 1))
