@@ -2,9 +2,10 @@
 
 Invented scenario (the Larkmoor zirconium line of ``tests/test_cli_censored_samples.py``): sample
 Fluss-M was read twice, "<20" and 300.2 counts; Fluss-G once, "<20"; Fluss-D twice, both measured;
-Fluss-U has 305.1, a reading mistyped "64O.2" and an empty cell (no reading). The command's JSON, the
-workbook's Samples sheet and the printed record all give Fluss-M two replicates, one measured and one
-censored, and Fluss-U two, one of them not usable; a sample measured throughout shows its count alone.
+Fluss-U has 305.1, a reading mistyped "64O.2" and a row with an empty response cell. The command's
+JSON, the workbook's Samples sheet and the printed record all give Fluss-M two replicates, one measured
+and one censored, and Fluss-U three, two of them not usable (the flag "replicate not usable" names both
+rows); a sample measured throughout shows its count alone.
 """
 
 from __future__ import annotations
@@ -32,7 +33,7 @@ def test_censored_readings_count_among_the_replicates(tmp_path: Path) -> None:
     js = run_cli(*args, "--json")
     rows = {s["id"]: s for s in json.loads(js.stdout)["analytes"][0]["samples"]}
     assert [(rows[i]["replicates"], rows[i]["replicates_measured"], rows[i]["replicates_censored"])
-            for i in ("Fluss-M", "Fluss-G", "Fluss-D", "Fluss-U")] == [(2, 1, 1), (1, 0, 1), (2, 2, 0), (2, 1, 0)]
+            for i in ("Fluss-M", "Fluss-G", "Fluss-D", "Fluss-U")] == [(2, 1, 1), (1, 0, 1), (2, 2, 0), (3, 1, 0)]
 
     sheet = openpyxl.load_workbook(workbook, read_only=True)["Samples"]
     values = [list(r) for r in sheet.iter_rows(values_only=True)]
@@ -40,7 +41,7 @@ def test_censored_readings_count_among_the_replicates(tmp_path: Path) -> None:
     names = values[head]
     got = {r[0]: (r[names.index("Replicates")], r[names.index("Measured")], r[names.index("Censored")])
            for r in values[head + 1:] if r and r[0]}
-    assert got == {"Fluss-M": (2, 1, 1), "Fluss-G": (1, 0, 1), "Fluss-D": (2, 2, 0), "Fluss-U": (2, 1, 0)}
+    assert got == {"Fluss-M": (2, 1, 1), "Fluss-G": (1, 0, 1), "Fluss-D": (2, 2, 0), "Fluss-U": (3, 1, 0)}
 
     pdf = pdfium.PdfDocument(str(record))
     try:
@@ -50,5 +51,5 @@ def test_censored_readings_count_among_the_replicates(tmp_path: Path) -> None:
     samples = text[text.index("Samples – zirconium"):]
     assert "Fluss-M unknown 2 (1 measured, 1 censored)" in samples, samples[:600]
     assert "Fluss-G unknown 1 (0 measured, 1 censored)" in samples
-    assert "Fluss-U unknown 2 (1 measured, 1 not usable)" in samples
+    assert "Fluss-U unknown 3 (1 measured, 2 not usable)" in samples
     assert "Fluss-D unknown 2 1" in samples  # measured throughout: the count alone, then the dilution factor

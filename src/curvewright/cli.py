@@ -958,6 +958,7 @@ def cli_answer(remedy) -> str:  # type: ignore[no-untyped-def]
 def _choose_recommended(run, person=None):  # type: ignore[no-untyped-def]
     """Each analyte gets the model and weighting the comparison recommends on its standards in the fit."""
     from .core.run_analysis import analyse_run
+    from .io.model_choice import recommendation_reason
 
     provisional = analyse_run(replace(run, samples=()))
     profile = provisional.profile
@@ -973,8 +974,7 @@ def _choose_recommended(run, person=None):  # type: ignore[no-untyped-def]
             continue
         rec = comparison.recommended
         pick = (rec.model.value, rec.weighting.value)
-        reason = (f"recommended by the model comparison on the {len(a.fitted_standards)} standards in the fit, acceptance profile "
-                  f"{profile.name!r}: " + "; ".join(comparison.reasons))
+        reason = recommendation_reason(comparison, len(a.fitted_standards), profile.name)
         run = _record_choice(run, analyte.name, *pick, reason, recommended=pick, user=person)
         choices[analyte.name] = ModelChoice("recommended", tuple(comparison.reasons))
     return run, choices

@@ -12,6 +12,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QHBoxLayout, QLabel, QPushButt
 
 from ..core.run import Analyte
 from ..core.notation import P_FIGURES, p_text
+from ..io.model_choice import NOT_CHOSEN
 from ..io.result_tables import display_number
 
 
@@ -66,8 +67,9 @@ class EvidencePanel(QWidget):
         self.table.setRowCount(0)
         fixed = method.analyte(analyte.name) if method is not None else None
         self.method_fixes = fixed is not None
-        self.choice.setText(f"Chosen for {analyte.name}: {analyte.model}, {analyte.weighting}"
-                            + (f" — {analyte.choice_reason}" if analyte.choice_reason else " — no reason recorded yet")
+        self.choice.setText((f"Chosen for {analyte.name}: {analyte.model}, {analyte.weighting} — {analyte.choice_reason}"
+                             if analyte.choice_reason else
+                             f"{analyte.name}: {analyte.model}, {analyte.weighting}, the {NOT_CHOSEN}")
                             + (f". Method {method.label} fixes {fixed.model}, {fixed.weighting}: the recommendation "
                                "below is for information only, and departing from the method needs a reason."
                                if fixed is not None else ""))

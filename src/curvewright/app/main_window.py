@@ -133,6 +133,19 @@ class MainWindow(QMainWindow):
         self.attention.setWordWrap(True)
         self.attention.setAccessibleName("What needs attention")
         self.attention.setStyleSheet("color:#6b4a00;")
+        self.default_model_note = QLabel("")
+        self.default_model_note.setWordWrap(True)
+        self.default_model_note.setAccessibleName("Calibration function not chosen")
+        self.default_model_note.setStyleSheet("color:#6b4a00;")
+        self.take_recommendation_button = QPushButton("")
+        self.take_recommendation_button.setAccessibleName("Use the recommended calibration function")
+        self.take_recommendation_button.clicked.connect(self.user_command(self.take_recommendation))
+        self.default_model_row = QWidget()
+        note_row = QHBoxLayout(self.default_model_row)
+        note_row.setContentsMargins(0, 0, 0, 0)
+        note_row.addWidget(self.default_model_note, 1)
+        note_row.addWidget(self.take_recommendation_button, 0, Qt.AlignmentFlag.AlignVCenter)
+        self.default_model_row.setVisible(False)
         self.analyte_box = QComboBox()
         self.analyte_box.setAccessibleName("Analyte")
         self.analyte_box.currentTextChanged.connect(self._on_analyte)
@@ -232,6 +245,7 @@ class MainWindow(QMainWindow):
         layout.addWidget(self.caution)
         layout.addWidget(self.verdict)
         layout.addWidget(self.attention)
+        layout.addWidget(self.default_model_row)
         layout.addWidget(split, 1)
         self.setCentralWidget(central)
         self.refit_label = QLabel("")
@@ -299,11 +313,14 @@ class MainWindow(QMainWindow):
     def _key_columns_width(view, columns, pane_width: int) -> int | None:  # type: ignore[no-untyped-def]
         """The pane width at which ``view`` shows ``columns`` (leftmost first) without scrolling
         sideways: their widths, and what the pane takes besides its table's cells (row numbers, frames,
-        scroll bar), as laid out now. None while the table is not laid out."""
+        scroll bar), as laid out now; room for the upright scroll bar is kept while it is hidden, as
+        a note shown above the panes (a function nobody chose) can make the table too short for its rows.
+        None while the table is not laid out."""
         if not view.isVisible() or view.model() is None or view.viewport().width() <= 0:
             return None
         cells = sum(view.columnWidth(c) for c in columns if not view.isColumnHidden(c))
-        return cells + pane_width - view.viewport().width()
+        bar = view.verticalScrollBar()
+        return cells + pane_width - view.viewport().width() + (0 if bar.isVisible() else bar.sizeHint().width())
 
     def paintEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().paintEvent(event)
@@ -549,6 +566,7 @@ class MainWindow(QMainWindow):
 
     def _show_verdict(self, result: RunResult | None) -> None:
         run = self.session.run
+        self._show_default_model(result)
         self.attention.setText(" ".join(f"⚠ {line}" for line in self.attention_lines(result)))
         self.attention.setVisible(bool(self.attention.text()))
         if not any(a.standards for a in run.analytes):
@@ -566,6 +584,51 @@ class MainWindow(QMainWindow):
         detail = "; ".join(failing[:3]) if failing else f"all checks of {result.profile.name} pass"
         self.verdict.setText(f"<b style='color:{colour}'>{word}</b> — {detail}")
         self.verdict.setToolTip("\n".join(result.reasons + ((result.profile.caveat,) if result.profile.caveat else ())))
+
+    def _show_default_model(self, result: RunResult | None) -> None:
+        """For the analyte shown, when its calibration function is the default nobody chose: say so, say
+        what the model comparison recommends and why, and offer to take the recommendation."""
+        from ..io.model_choice import chosen, function_words
+
+        run, name = self.session.run, self.current_analyte()
+        analyte = run.analyte(name)
+        method = result.method if result is not None and result.run is run else None
+        if (not analyte.standards or chosen(run, name) or (method is not None and method.analyte(name) is not None)
+                or result is None or result.run is not run):
+            self.default_model_row.setVisible(False)
+            self._recommendation = None
+            return
+        comparison = self.session.evidence.get(name)
+        from ..core.comparison import ModelComparison
+
+        text = (f"<b>{name}: the calibration function is the default ({function_words(analyte.model, analyte.weighting)}); "
+                "nobody has chosen it.</b> ")
+        rec = comparison.recommendation if isinstance(comparison, ModelComparison) else None
+        self._recommendation = (rec.model.value, rec.weighting.value) if rec is not None else None
+        if not isinstance(comparison, ModelComparison):
+            text += f"No model comparison: {comparison or 'not worked out'}."
+        elif rec is None:
+            text += (f"The model comparison recommends no model: {comparison.no_recommendation}. Choose one in the "
+                     "Model evidence tab, with your reason.")
+        elif self._recommendation == (analyte.model, analyte.weighting):
+            text += "The model comparison recommends this function too; taking it records who chose it and why."
+        else:
+            text += (f"The model comparison recommends {function_words(*self._recommendation)}: "
+                     + _compared(comparison, analyte))
+        self.default_model_note.setText(text)
+        self.default_model_note.setToolTip("\n".join(f"• {r}" for r in comparison.reasons)
+                                           if isinstance(comparison, ModelComparison) else "")
+        self.take_recommendation_button.setVisible(self._recommendation is not None)
+        if self._recommendation is not None:
+            self.take_recommendation_button.setText(f"Use {function_words(*self._recommendation)}")
+        self.default_model_row.setVisible(True)
+
+    def take_recommendation(self) -> None:
+        """Take the model comparison's recommendation for the analyte shown, as the Model evidence tab's
+        choice does (:meth:`choose_model`: who chose it and the recommendation's reasons are recorded)."""
+        recommended = getattr(self, "_recommendation", None)
+        if recommended is not None:
+            self.choose_model(*recommended, recommended)
 
     def attention_lines(self, result: RunResult | None) -> list[str]:
         """What the analyst should see to before signing, beyond the verdict (missing units, samples
@@ -1233,7 +1296,7 @@ class MainWindow(QMainWindow):
                       f"No model is recommended for {analyte}: no candidate is acceptable (see the model evidence). "
                       f"Why is {model}, {weighting} chosen?" if not recommended else
                       f"{model}, {weighting} is not the recommended {recommended[0]}, {recommended[1]}. Why is it chosen?")
-            settled = "the recommended model (see the model evidence)"
+            settled = self._recommendation_reason(analyte)
         if needs_reason:
             dialog = ReasonDialog(f"Choose the model for {analyte}", prompt, (), self)
             if dialog.exec() != ReasonDialog.DialogCode.Accepted:
@@ -1249,6 +1312,17 @@ class MainWindow(QMainWindow):
             return False
         self.session.apply(new_run, f"Choose {model}, {weighting} for {analyte}")
         return True
+
+    def _recommendation_reason(self, analyte: str) -> str:
+        """The reason recorded when the recommendation is taken: the comparison's reasons, in the words
+        ``quantify --standards`` records."""
+        from ..core.comparison import ModelComparison
+        from ..io.model_choice import recommendation_reason
+
+        comparison, result = self.session.evidence.get(analyte), self.session.result
+        if not isinstance(comparison, ModelComparison) or result is None:
+            return "the recommended model (see the model evidence)"
+        return recommendation_reason(comparison, len(result.analyte(analyte).fitted_standards), result.profile.name)
 
     def choose_model_dialog(self) -> None:
         """Analysis → Choose model: opens the model evidence with the recommended model selected."""
@@ -1570,3 +1644,22 @@ class MainWindow(QMainWindow):
             event.accept()
         else:
             event.ignore()
+
+
+def _compared(comparison, analyte) -> str:  # type: ignore[no-untyped-def]
+    """The default and the recommended candidate side by side: lack-of-fit p and standards outside the
+    acceptance limits (every reason in the tooltip and the Model evidence tab)."""
+    from ..io.result_tables import display_number
+
+    def described(c) -> str:  # type: ignore[no-untyped-def]
+        p = display_number(c.lack_of_fit_p, 3)
+        return (f"lack-of-fit p = {p}, " if c.lack_of_fit_p is not None and p else "") + \
+            f"{c.standards_failing} standard(s) outside the acceptance limits"
+
+    rec = comparison.recommendation
+    try:
+        default = comparison.candidate(analyte.model, analyte.weighting)
+    except KeyError:
+        default = None
+    return ((f"the default has {described(default)}; the recommended {described(rec)}" if default is not None
+             else f"the recommended has {described(rec)}") + ". Every reason: Model evidence tab.")

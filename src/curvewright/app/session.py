@@ -10,7 +10,8 @@ while it runs are analysed together once it answers (so a burst of edits costs a
 analysis more than the last).
 
 The model comparison (the model-evidence tab) is worked out on the analysis thread only while that
-tab is shown (:attr:`RunSession.evidence_wanted`); otherwise it is worked out when it is first read,
+tab is shown (:attr:`RunSession.evidence_wanted`) or an analyte keeps the default calibration function
+nobody chose (the window then says what the comparison recommends); otherwise it is worked out when it is first read,
 from the same result, so an edit that the evidence tab does not show never waits for it.
 """
 
@@ -506,11 +507,19 @@ class RunSession(QObject):
     @Slot()
     def _start_analysis(self) -> None:
         self._running = self._generation
-        self._pool.start(_AnalysisJob(self._run, self._generation, self._signals, self.evidence_wanted))
+        self._pool.start(_AnalysisJob(self._run, self._generation, self._signals, self._evidence_needed()))
 
     def _analyse_here(self) -> None:
         """The analysis on the GUI thread, for runs that take less than a frame."""
-        self._on_answer(analysis_answer(self._run, self._generation, self.evidence_wanted))
+        self._on_answer(analysis_answer(self._run, self._generation, self._evidence_needed()))
+
+    def _evidence_needed(self) -> bool:
+        """Whether the analysis works out the model comparison too: while the model evidence is shown,
+        and while an analyte keeps the default calibration function nobody chose (the window then says
+        what the comparison recommends)."""
+        from ..io.model_choice import any_not_chosen
+
+        return self.evidence_wanted or any_not_chosen(self._run)
 
     @property
     def analysis_pending(self) -> bool:
@@ -529,7 +538,7 @@ class RunSession(QObject):
             QCoreApplication.processEvents()  # the answer, queued by the analysis thread
         if self.result is not None and self.result.run is self._run:
             return self.result
-        answer = analysis_answer(self._run, self._generation, self.evidence_wanted)
+        answer = analysis_answer(self._run, self._generation, self._evidence_needed())
         running = self._running
         self._on_answer(answer)
         self._running = running  # the analysis thread is still under way: its answer comes, and is passed over

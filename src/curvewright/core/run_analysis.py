@@ -90,9 +90,10 @@ class SampleResult:
     suggested_dilution: float | None = None
     """For a result above the range: the total dilution factor for a re-assay in mid-range."""
     readings: int = 0
-    """Every reading entered for the analyte (its replicates; an empty cell is none): measured, censored
-    ("<20", "ND") or not usable (text that is not a number, a ratio without its internal-standard
-    response). ``replicate_responses`` holds the measured ones."""
+    """Every reading entered for the analyte (its replicates, one per replicate row): measured, censored
+    ("<20", "ND") or not usable (text that is not a number, a row whose response cell is empty, a
+    ratio without its internal-standard response), as the flag "replicate not usable" and the note
+    say. ``replicate_responses`` holds the measured ones."""
     censored_readings: int = 0
     """How many of ``readings`` are censored."""
 
@@ -173,7 +174,7 @@ class SampleColumns:
     (``reported`` = estimate × dilution factor, and the interval ends likewise). The replicate
     responses of all samples stand one after another in ``replicate_values``, ``replicate_counts``
     of them per sample; ``reading_counts`` holds every reading entered per sample (measured, censored
-    or not usable; an empty cell is none) and ``censored_counts`` the censored ones. ``flags`` holds the flag bits (-1: None), ``within_limits`` 1, 0 or -1 (None).
+    or not usable, a row with an empty response cell too) and ``censored_counts`` the censored ones. ``flags`` holds the flag bits (-1: None), ``within_limits`` 1, 0 or -1 (None).
     """
 
     analyte: str
@@ -858,7 +859,7 @@ def _quantify_samples(
                 if m.response.is_censored:
                     censored += 1
                     censored_of.setdefault(r, []).append((m, _censored_limit(m, ratio)))
-                elif not m.response.is_missing:  # entered, but not a number the curve can use
+                else:  # a replicate row without a number the curve can use: text, an empty cell, no IS response
                     unusable += 1
                 reasons_here.append(f"replicate {m.replicate}: {reason}")
             else:

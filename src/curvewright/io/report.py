@@ -27,6 +27,7 @@ from ..core.run_analysis import AnalyteResult, RunResult
 from .analyte_trail import last_entry
 from .audit_words import AUDIT_COLUMNS, audit_rows, when, who
 from .integrity import content_sha256
+from .model_choice import NOT_CHOSEN, chosen, function_words
 from .record_check import not_intact_notice, record_problems
 from .result_tables import (Column, Table, calibration_table, chain_claim, checks_table, interval_words, result_counts,
                             run_identity, samples_table, standards_table)
@@ -86,7 +87,7 @@ SHORT_FLAG_LEGEND = (
     ("open interval", "the calibration cannot bound the concentration on one side"),
     ("two roots", "the curve reaches the response twice within the calibrated range"),
     ("turning point", "the response lies beyond the curve's extreme; read at the extreme"),
-    ("replicate not usable", "a replicate was left out (its note says why)"),
+    ("replicate not usable", "a replicate was left out (the lines below the table say which and why)"),
 )
 
 
@@ -352,8 +353,11 @@ def analyte_blocks(result: RunResult, a: AnalyteResult) -> list[Block]:
     blocks.append(printed(calibration, rule))
     table, reasons = evidence_table(result, a)
     blocks.append(_evidence_printed(table, rule))
-    blocks.append(Paragraph(f"Chosen: {a.analyte.model}, {a.analyte.weighting}. Reason given: "
-                            f"{a.analyte.choice_reason or '(none recorded)'}", "body"))
+    if chosen(result.run, name):
+        blocks.append(Paragraph(f"Chosen: {a.analyte.model}, {a.analyte.weighting}. Reason given: "
+                                f"{a.analyte.choice_reason or '(none recorded)'}", "body"))
+    else:
+        blocks.append(Paragraph(f"Used: {function_words(a.analyte.model, a.analyte.weighting)}: the {NOT_CHOSEN}.", "body"))
     blocks += [Paragraph("• " + r, "small") for r in reasons]
     standards = standards_table(a, result.run.settings.rounding)
     blocks.append(printed(standards.select(STANDARD_ACCURACY_COLUMNS, f"Standards – {name}: back-calculated accuracy"), rule))
@@ -520,6 +524,14 @@ def _samples_printed(result: RunResult, a: AnalyteResult) -> PrintedTable:
     if mixed:  # every reading of these samples is named here, none left to the workbook alone
         legend += (f" Not quantified because {MIXED_READINGS} (no mean is formed from part of them): "
                    + "; ".join(mixed) + ".")
+    # why a sample has no result, or a result from part of its replicates, in the note's own words
+    why = [f"{s.sample_id}: {s.note}" for s in a.samples if s.note and MIXED_READINGS not in s.note and s.estimate is None]
+    part = [f"{s.sample_id}: {s.note}" for s in a.samples if s.note and MIXED_READINGS not in s.note
+            and s.estimate is not None]
+    if why:
+        legend += " Not quantified: " + "; ".join(why) + "."
+    if part:
+        legend += " Quantified from the usable replicates only: " + "; ".join(part) + "."
     return PrintedTable(f"Samples – {a.analyte.name}", SAMPLE_COLUMNS, tuple(rows),
                         (False, False, True, True, True, True, True, True, False, True, False), legend,
                         (True,) + (False,) * (len(SAMPLE_COLUMNS) - 1))

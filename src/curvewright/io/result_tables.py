@@ -28,6 +28,7 @@ from ..core.notation import excel_format as notation_excel_format, figures, is_p
 from ..core.notation import P_FIGURES
 from .number_text import clean, full_number, signed_text
 from .audit import chain_claim, verify_chain  # noqa: F401 - chain_claim: where the record and the tables take it
+from .model_choice import NOT_CHOSEN, NOT_CHOSEN_BY, chosen
 
 TYPE_CHECKING = False
 if TYPE_CHECKING:
@@ -470,7 +471,8 @@ def calibration_table(a: AnalyteResult, result: RunResult) -> Table:
     rows += [
         ("Model", model + (" (given for this calculation, not the run's choice)" if a.model_overridden else ""), None),
         ("Weighting", cal.weighting.description if cal else an.weighting, None),
-        ("Reason for the choice", an.choice_reason or "(none recorded)", None),
+        ("Reason for the choice", an.choice_reason or ("(none recorded)" if chosen(result.run, an.name) else NOT_CHOSEN),
+         None),
         ("Chosen by", chosen_by, None),
     ]
     if cal is None:
@@ -940,14 +942,14 @@ def caution_line() -> str:
 def _chooser(result: RunResult, analyte: str) -> str:
     """Who chose the analyte's calibration function and when, as the record names every person
     (:func:`.audit_words.who`, :func:`.audit_words.when`): the last entry that chose it, under whichever
-    name the analyte then had (:mod:`.analyte_trail`)."""
+    name the analyte then had (:mod:`.analyte_trail`); for a function nobody chose, :data:`.model_choice.NOT_CHOSEN_BY`."""
     from .analyte_trail import last_entry
     from .audit_words import when, who
 
     last = last_entry(result.run.audit, analyte, "model_chosen")
     if last is not None:
         return f"{who(last[1])}, {when(last[1])}"
-    return "(no choice recorded in the audit trail)"
+    return "(no choice recorded in the audit trail)" if chosen(result.run, analyte) else NOT_CHOSEN_BY
 
 
 def _mandel(cal: Calibration) -> tuple[Any, Any]:
