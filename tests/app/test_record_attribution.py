@@ -127,7 +127,7 @@ def test_chosen_by_names_the_person_and_time_as_the_exclusion_does(make_window, 
     chosen = text[text.index("Chosen by", text.index("Calibration – velmorin")):][:120]
     assert PERSON.match(chosen.removeprefix("Chosen by ")), chosen
     assert PERSON.fullmatch(str(sheets["velmorin"]["Chosen by"])), sheets["velmorin"]["Chosen by"]
-    assert sheets["ostarin"]["Chosen by"] == "(no choice recorded in the audit trail)"
+    assert sheets["ostarin"]["Chosen by"] == "nobody (the program's default)"
 
 
 def test_who_excluded_and_who_chose_survive_renaming_the_analyte(make_window, qtbot, answer_dialogs, import_csv, tmp_path,
@@ -204,4 +204,4 @@ def test_an_analyte_given_an_old_name_does_not_take_the_other_analytes_entries(
     text, sheets = _outputs(w, tmp_path, "old-name")
 
     assert PERSON.fullmatch(str(sheets["velmorin-M1"]["Chosen by"])), sheets["velmorin-M1"]["Chosen by"]
-    assert sheets["velmorin"]["Chosen by"] == "(no choice recorded in the audit trail)"
+    assert sheets["velmorin"]["Chosen by"] == "nobody (the program's default)"

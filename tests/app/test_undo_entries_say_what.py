@@ -166,7 +166,7 @@ def test_a_choice_undone_is_no_longer_named_as_the_choice(make_window, qtbot, an
     book = openpyxl.load_workbook(tmp_path / "undone.xlsx", read_only=True)
     rows = {row[0]: row[1] for row in book["Calibration – velmorin"].iter_rows(values_only=True) if len(row) > 1}
     book.close()
-    assert rows["Chosen by"] == "(no choice recorded in the audit trail)", rows["Chosen by"]
+    assert rows["Chosen by"] == "nobody (the program's default)", rows["Chosen by"]
     _redo(w, qtbot)
     w.export_report(path=str(tmp_path / "redone.pdf"))
     text = printed_text(tmp_path / "redone.pdf")
