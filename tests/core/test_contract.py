@@ -234,3 +234,40 @@ def test_diagnostics_are_worked_out_when_first_read_and_are_those_made_at_once()
     for name in ("leverage", "studentized_residuals", "cooks_distance"):
         assert np.array_equal(getattr(copy, name), getattr(cal, name), equal_nan=True)
     assert copy.lack_of_fit == cal.lack_of_fit
+
+
+@pytest.mark.parametrize("model", ["linear", "quadratic", "proportional"])
+@pytest.mark.parametrize("first", ["back_calculated", "relative_error", "pickle"])
+def test_the_back_calculation_is_worked_out_when_first_read_and_is_the_one_made_at_once(model: str, first: str) -> None:
+    """fit() reads the standards back through the curve only when asked (quantifying unknowns never
+    asks); whichever is read first, or when the curve is pickled, the standards read back and their
+    relative errors are those worked out at once: each standard's root of f(z) = y on the calibrated
+    branch, x̂ = c + s·ẑ, and 100·(x̂ − x)/x (NaN at the zero-concentration blank)."""
+    import pickle
+
+    from curvewright.core.fitted_curve import Deferred
+    from curvewright.core.inverse import solve_z
+
+    x = np.repeat([0.0, 0.5, 1.0, 2.0, 5.0, 10.0, 40.0], [2, 2, 2, 2, 2, 2, 1])
+    y = (0.05 + 1.5 * x - 0.004 * x * x) * (1 + 0.02 * np.sin(7 * x)) + 0.01 * np.cos(3 * x)
+    cal = cw.fit(x, y, model, "none")
+    assert type(cal.__dict__["_back_calculated"]) is Deferred and type(cal.__dict__["_relative_error"]) is Deferred
+    if first == "pickle":
+        copy = pickle.loads(pickle.dumps(cal))
+        assert type(cal.__dict__["_back_calculated"]) is not Deferred
+        assert np.array_equal(copy.back_calculated, cal.back_calculated)
+        assert np.array_equal(copy.relative_error, cal.relative_error, equal_nan=True)
+    else:
+        getattr(cal, first)
+    low, high = cal.calibrated_range
+    z_range = (float(cal.basis.z(low)), float(cal.basis.z(high)))
+    z_back = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y)[0]
+    back = cal.basis.centre + cal.basis.scale * z_back
+    assert np.array_equal(cal.back_calculated, back)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
+    assert np.array_equal(cal.relative_error, relative, equal_nan=True)
+    assert np.isnan(cal.relative_error[0]) and np.isnan(cal.relative_error[1])
+    assert not cal.back_calculated.flags.writeable and not cal.relative_error.flags.writeable
+    # read twice: the same arrays, worked out once
+    assert cal.back_calculated is cal.back_calculated and cal.relative_error is cal.relative_error

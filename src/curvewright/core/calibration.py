@@ -437,7 +437,8 @@ def _polynomial_calibration(
     regression test (unless given, as :func:`fit_weightings` makes them for all weightings at
     once; the lack of fit is then worked out when first read, as the influence measures may be),
     back-calculation and notes. ``stacked``: the total sum of squares, the quadratic's geometry and
-    the back-calculation, when :func:`_stacked_parts` has them."""
+    the back-calculation, when :func:`_stacked_parts` has them; without them the back-calculation is
+    worked out when first read)."""
     model, weighting, x, y, levels = core.model, core.weighting, core.x, core.y, core.levels
     weights, basis, solution = core.weights, core.basis, core.solution
     root_wy, clean, df, residual_sd = core.root_wy, core.clean, core.df, core.residual_sd
@@ -479,12 +480,11 @@ def _polynomial_calibration(
     # the notes the influence measures give, from the leverages alone
     notes = notes + (leverage_notes(solution.leverage) if type(influence) is Deferred else influence.notes)
     if stacked is None:
-        z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
-        back = basis.centre + basis.scale * z_back
-        with np.errstate(invalid="ignore", divide="ignore"):
-            relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
+        # read back when first asked for (the acceptance, the tables; a batch that only quantifies
+        # never asks): the same numbers as worked out here at once
+        back, relative = _deferred_back_calculation(model, solution.coefficients, branch, z_range, basis, x, y)
     else:
-        back, relative = stacked[2], stacked[3]
+        back, relative = frozen(stacked[2]), frozen(stacked[3])
 
     return Calibration._assembled(dict(  # type: ignore[return-value]
         model=model,
@@ -508,12 +508,34 @@ def _polynomial_calibration(
         _influence=influence,
         _lack_of_fit=lack,
         regression=regression,
-        back_calculated=frozen(back),
-        relative_error=frozen(relative),
+        _back_calculated=back,
+        _relative_error=relative,
         quadratic_branch=branch,
         vertex_z=vertex_z,
         notes=notes,
     ))
+
+
+def _deferred_back_calculation(
+    model: Model, z_coefficients: FloatArray, branch: int, z_range: tuple[float, float], basis: Basis,
+    x: FloatArray, y: FloatArray,
+) -> tuple[Deferred, Deferred]:
+    """The standards read back through the curve and their relative errors (see
+    :class:`~.fitted_curve.FittedCurve`), as two diagnostics worked out together the first time
+    either is read: x̂ = c + s·ẑ with ẑ the root of f(z) = y on the calibrated ``branch``
+    (:func:`~.inverse.solve_z`), and 100·(x̂ − x)/x where x ≠ 0 (NaN at a zero concentration)."""
+    made: list[FloatArray] = []
+
+    def both() -> list[FloatArray]:
+        if not made:
+            z_back, _, _ = solve_z(model, z_coefficients, branch, z_range, y)
+            back = basis.centre + basis.scale * z_back
+            with np.errstate(invalid="ignore", divide="ignore"):
+                relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
+            made.extend((frozen(back), frozen(relative)))
+        return made
+
+    return Deferred(lambda: both()[0]), Deferred(lambda: both()[1])
 
 
 def _refuse_unrepresentable(
