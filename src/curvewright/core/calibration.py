@@ -445,20 +445,11 @@ def _polynomial_calibration(
     z_cov, coefficients, covariance = core.z_cov, core.coefficients, core.covariance
     p = model.n_parameters
     w = weights.weights
-    if stacked is None and weighting is Weighting.NONE:
-        # unit weights: w·y is y and Σw is n exactly, so the same sums without the products by one
-        mean_w = float(np.add.reduce(y) / np.float64(x.size))
-        sst = float(np.add.reduce((y - mean_w) ** 2))
-    elif stacked is None:
-        mean_w = float(np.add.reduce(w * y) / np.add.reduce(w))
-        sst = float(np.add.reduce(w * (y - mean_w) ** 2))
+    if stacked is None:
+        # R² is worked out when first read (quantifying unknowns never reads it): the same numbers
+        r_squared, adjusted_r_squared = _deferred_r_squared(weighting, w, y, clean, df, core.roundoff)
     else:
-        sst = stacked[0]
-    adjust = (x.size - 1) / df
-    if sst <= x.size * core.roundoff**2:
-        r_squared = 0.0  # the responses do not vary: nothing to explain
-    else:
-        r_squared = 1.0 - float(clean @ clean) / sst
+        r_squared, adjusted_r_squared = _r_squared(stacked[0], clean, df, core.roundoff)
     if stacked is None:
         # the calibrated range in z: Python floats, the same operations as Basis.z
         centre, scale = basis.centre, basis.scale
@@ -501,8 +492,8 @@ def _polynomial_calibration(
         standard_errors=frozen(np.sqrt(np.maximum(covariance.diagonal(), 0.0))),
         residual_sd=residual_sd,
         df_residual=df,
-        r_squared=float(r_squared),
-        adjusted_r_squared=float(1.0 - (1.0 - r_squared) * adjust),
+        _r_squared=r_squared,
+        _adjusted_r_squared=adjusted_r_squared,
         fitted=frozen(solution.fitted),
         residuals=frozen(y - solution.fitted),
         _influence=influence,
@@ -514,6 +505,44 @@ def _polynomial_calibration(
         vertex_z=vertex_z,
         notes=notes,
     ))
+
+
+def _total_sum_of_squares(weighting: Weighting, w: FloatArray, y: FloatArray) -> float:
+    """SST = Σwᵢ(yᵢ − ȳ_w)² about the weighted mean response ȳ_w = Σwᵢyᵢ/Σwᵢ."""
+    if weighting is Weighting.NONE:
+        # unit weights: w·y is y and Σw is n exactly, so the same sums without the products by one
+        mean_w = float(np.add.reduce(y) / np.float64(y.size))
+        return float(np.add.reduce((y - mean_w) ** 2))
+    mean_w = float(np.add.reduce(w * y) / np.add.reduce(w))
+    return float(np.add.reduce(w * (y - mean_w) ** 2))
+
+
+def _r_squared(sst: float, clean: FloatArray, df: int, roundoff: float) -> tuple[float, float]:
+    """R² = 1 − SSE/SST and the adjusted R² = 1 − (1 − R²)·(n − 1)/(n − p), with SSE from the weighted
+    residuals ``clean`` (round-off set to zero) and ``df`` = n − p; R² is 0 when SST is round-off
+    (the responses do not vary: nothing to explain)."""
+    n = clean.size
+    adjust = (n - 1) / df
+    if sst <= n * roundoff**2:
+        r_squared = 0.0
+    else:
+        r_squared = 1.0 - float(clean @ clean) / sst
+    return float(r_squared), float(1.0 - (1.0 - r_squared) * adjust)
+
+
+def _deferred_r_squared(
+    weighting: Weighting, w: FloatArray, y: FloatArray, clean: FloatArray, df: int, roundoff: float
+) -> tuple[Deferred, Deferred]:
+    """:func:`_r_squared` of the fit's :func:`_total_sum_of_squares`, as two diagnostics worked out
+    together the first time either is read."""
+    made: list[float] = []
+
+    def both() -> list[float]:
+        if not made:
+            made.extend(_r_squared(_total_sum_of_squares(weighting, w, y), clean, df, roundoff))
+        return made
+
+    return Deferred(lambda: both()[0]), Deferred(lambda: both()[1])
 
 
 def _deferred_back_calculation(
