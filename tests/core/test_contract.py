@@ -234,3 +234,70 @@ def test_diagnostics_are_worked_out_when_first_read_and_are_those_made_at_once()
     for name in ("leverage", "studentized_residuals", "cooks_distance"):
         assert np.array_equal(getattr(copy, name), getattr(cal, name), equal_nan=True)
     assert copy.lack_of_fit == cal.lack_of_fit
+
+
+@pytest.mark.parametrize("model", ["linear", "quadratic", "proportional"])
+@pytest.mark.parametrize("first", ["back_calculated", "relative_error", "pickle"])
+def test_the_back_calculation_is_worked_out_when_first_read_and_is_the_one_made_at_once(model: str, first: str) -> None:
+    """fit() reads the standards back through the curve only when asked (quantifying unknowns never
+    asks); whichever is read first, or when the curve is pickled, the standards read back and their
+    relative errors are those worked out at once: each standard's root of f(z) = y on the calibrated
+    branch, x̂ = c + s·ẑ, and 100·(x̂ − x)/x (NaN at the zero-concentration blank)."""
+    import pickle
+
+    from curvewright.core.fitted_curve import Deferred
+    from curvewright.core.inverse import solve_z
+
+    x = np.repeat([0.0, 0.5, 1.0, 2.0, 5.0, 10.0, 40.0], [2, 2, 2, 2, 2, 2, 1])
+    y = (0.05 + 1.5 * x - 0.004 * x * x) * (1 + 0.02 * np.sin(7 * x)) + 0.01 * np.cos(3 * x)
+    cal = cw.fit(x, y, model, "none")
+    assert type(cal.__dict__["_back_calculated"]) is Deferred and type(cal.__dict__["_relative_error"]) is Deferred
+    if first == "pickle":
+        copy = pickle.loads(pickle.dumps(cal))
+        assert type(cal.__dict__["_back_calculated"]) is not Deferred
+        assert np.array_equal(copy.back_calculated, cal.back_calculated)
+        assert np.array_equal(copy.relative_error, cal.relative_error, equal_nan=True)
+    else:
+        getattr(cal, first)
+    low, high = cal.calibrated_range
+    z_range = (float(cal.basis.z(low)), float(cal.basis.z(high)))
+    z_back = solve_z(cal.model, cal.z_coefficients, cal.quadratic_branch, z_range, y)[0]
+    back = cal.basis.centre + cal.basis.scale * z_back
+    assert np.array_equal(cal.back_calculated, back)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
+    assert np.array_equal(cal.relative_error, relative, equal_nan=True)
+    assert np.isnan(cal.relative_error[0]) and np.isnan(cal.relative_error[1])
+    assert not cal.back_calculated.flags.writeable and not cal.relative_error.flags.writeable
+    # read twice: the same arrays, worked out once
+    assert cal.back_calculated is cal.back_calculated and cal.relative_error is cal.relative_error
+
+
+@pytest.mark.parametrize("weighting", ["none", "1/x", "1/x^2"])
+@pytest.mark.parametrize("model", ["linear", "quadratic", "proportional"])
+def test_r_squared_is_worked_out_when_first_read_and_is_the_screens(model: str, weighting: str) -> None:
+    """fit() works out R² and the adjusted R² only when one is read (quantifying unknowns never
+    reads them): 1 − SSE/SST about the weighted mean response and 1 − (1 − R²)(n − 1)/(n − p)
+    (Draper & Smith, *Applied Regression Analysis*, 3rd ed., §1.3 and §5.2), the same bits as the
+    model screen's candidate fitted under every weighting at once."""
+    import pickle
+
+    from curvewright.core.calibration import fit_weightings
+    from curvewright.core.fitted_curve import Deferred
+
+    x = np.repeat([0.5, 1.0, 2.0, 5.0, 10.0, 40.0], [3, 2, 2, 3, 2, 1])
+    y = (0.05 + 1.5 * x - 0.004 * x * x) * (1 + 0.03 * np.sin(7 * x))
+    cal = cw.fit(x, y, model, weighting)
+    assert type(cal.__dict__["_r_squared"]) is Deferred and type(cal.__dict__["_adjusted_r_squared"]) is Deferred
+    screen = fit_weightings(x, y, model, [weighting])[0]
+    assert type(screen.__dict__["_r_squared"]) is float  # the screen makes it over its stack at once
+    copy = pickle.loads(pickle.dumps(cal))
+    assert copy.r_squared == screen.r_squared and copy.adjusted_r_squared == screen.adjusted_r_squared
+    assert cal.adjusted_r_squared == screen.adjusted_r_squared and cal.r_squared == screen.r_squared
+    w = cal.weights
+    mean_w = np.sum(w * y) / np.sum(w)
+    sse = np.sum(w * (y - cal.fitted) ** 2)
+    r2 = 1.0 - sse / np.sum(w * (y - mean_w) ** 2)
+    assert cal.r_squared == pytest.approx(r2, rel=1e-12)
+    n, p = x.size, cal.n_parameters
+    assert cal.adjusted_r_squared == pytest.approx(1.0 - (1.0 - r2) * (n - 1) / (n - p), rel=1e-12)

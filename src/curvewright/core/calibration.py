@@ -437,27 +437,19 @@ def _polynomial_calibration(
     regression test (unless given, as :func:`fit_weightings` makes them for all weightings at
     once; the lack of fit is then worked out when first read, as the influence measures may be),
     back-calculation and notes. ``stacked``: the total sum of squares, the quadratic's geometry and
-    the back-calculation, when :func:`_stacked_parts` has them."""
+    the back-calculation, when :func:`_stacked_parts` has them; without them the back-calculation is
+    worked out when first read)."""
     model, weighting, x, y, levels = core.model, core.weighting, core.x, core.y, core.levels
     weights, basis, solution = core.weights, core.basis, core.solution
     root_wy, clean, df, residual_sd = core.root_wy, core.clean, core.df, core.residual_sd
     z_cov, coefficients, covariance = core.z_cov, core.coefficients, core.covariance
     p = model.n_parameters
     w = weights.weights
-    if stacked is None and weighting is Weighting.NONE:
-        # unit weights: w·y is y and Σw is n exactly, so the same sums without the products by one
-        mean_w = float(np.add.reduce(y) / np.float64(x.size))
-        sst = float(np.add.reduce((y - mean_w) ** 2))
-    elif stacked is None:
-        mean_w = float(np.add.reduce(w * y) / np.add.reduce(w))
-        sst = float(np.add.reduce(w * (y - mean_w) ** 2))
+    if stacked is None:
+        # R² is worked out when first read (quantifying unknowns never reads it): the same numbers
+        r_squared, adjusted_r_squared = _deferred_r_squared(weighting, w, y, clean, df, core.roundoff)
     else:
-        sst = stacked[0]
-    adjust = (x.size - 1) / df
-    if sst <= x.size * core.roundoff**2:
-        r_squared = 0.0  # the responses do not vary: nothing to explain
-    else:
-        r_squared = 1.0 - float(clean @ clean) / sst
+        r_squared, adjusted_r_squared = _r_squared(stacked[0], clean, df, core.roundoff)
     if stacked is None:
         # the calibrated range in z: Python floats, the same operations as Basis.z
         centre, scale = basis.centre, basis.scale
@@ -479,12 +471,11 @@ def _polynomial_calibration(
     # the notes the influence measures give, from the leverages alone
     notes = notes + (leverage_notes(solution.leverage) if type(influence) is Deferred else influence.notes)
     if stacked is None:
-        z_back, _, _ = solve_z(model, solution.coefficients, branch, z_range, y)
-        back = basis.centre + basis.scale * z_back
-        with np.errstate(invalid="ignore", divide="ignore"):
-            relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
+        # read back when first asked for (the acceptance, the tables; a batch that only quantifies
+        # never asks): the same numbers as worked out here at once
+        back, relative = _deferred_back_calculation(model, solution.coefficients, branch, z_range, basis, x, y)
     else:
-        back, relative = stacked[2], stacked[3]
+        back, relative = frozen(stacked[2]), frozen(stacked[3])
 
     return Calibration._assembled(dict(  # type: ignore[return-value]
         model=model,
@@ -501,19 +492,79 @@ def _polynomial_calibration(
         standard_errors=frozen(np.sqrt(np.maximum(covariance.diagonal(), 0.0))),
         residual_sd=residual_sd,
         df_residual=df,
-        r_squared=float(r_squared),
-        adjusted_r_squared=float(1.0 - (1.0 - r_squared) * adjust),
+        _r_squared=r_squared,
+        _adjusted_r_squared=adjusted_r_squared,
         fitted=frozen(solution.fitted),
         residuals=frozen(y - solution.fitted),
         _influence=influence,
         _lack_of_fit=lack,
         regression=regression,
-        back_calculated=frozen(back),
-        relative_error=frozen(relative),
+        _back_calculated=back,
+        _relative_error=relative,
         quadratic_branch=branch,
         vertex_z=vertex_z,
         notes=notes,
     ))
+
+
+def _total_sum_of_squares(weighting: Weighting, w: FloatArray, y: FloatArray) -> float:
+    """SST = Σwᵢ(yᵢ − ȳ_w)² about the weighted mean response ȳ_w = Σwᵢyᵢ/Σwᵢ."""
+    if weighting is Weighting.NONE:
+        # unit weights: w·y is y and Σw is n exactly, so the same sums without the products by one
+        mean_w = float(np.add.reduce(y) / np.float64(y.size))
+        return float(np.add.reduce((y - mean_w) ** 2))
+    mean_w = float(np.add.reduce(w * y) / np.add.reduce(w))
+    return float(np.add.reduce(w * (y - mean_w) ** 2))
+
+
+def _r_squared(sst: float, clean: FloatArray, df: int, roundoff: float) -> tuple[float, float]:
+    """R² = 1 − SSE/SST and the adjusted R² = 1 − (1 − R²)·(n − 1)/(n − p), with SSE from the weighted
+    residuals ``clean`` (round-off set to zero) and ``df`` = n − p; R² is 0 when SST is round-off
+    (the responses do not vary: nothing to explain)."""
+    n = clean.size
+    adjust = (n - 1) / df
+    if sst <= n * roundoff**2:
+        r_squared = 0.0
+    else:
+        r_squared = 1.0 - float(clean @ clean) / sst
+    return float(r_squared), float(1.0 - (1.0 - r_squared) * adjust)
+
+
+def _deferred_r_squared(
+    weighting: Weighting, w: FloatArray, y: FloatArray, clean: FloatArray, df: int, roundoff: float
+) -> tuple[Deferred, Deferred]:
+    """:func:`_r_squared` of the fit's :func:`_total_sum_of_squares`, as two diagnostics worked out
+    together the first time either is read."""
+    made: list[float] = []
+
+    def both() -> list[float]:
+        if not made:
+            made.extend(_r_squared(_total_sum_of_squares(weighting, w, y), clean, df, roundoff))
+        return made
+
+    return Deferred(lambda: both()[0]), Deferred(lambda: both()[1])
+
+
+def _deferred_back_calculation(
+    model: Model, z_coefficients: FloatArray, branch: int, z_range: tuple[float, float], basis: Basis,
+    x: FloatArray, y: FloatArray,
+) -> tuple[Deferred, Deferred]:
+    """The standards read back through the curve and their relative errors (see
+    :class:`~.fitted_curve.FittedCurve`), as two diagnostics worked out together the first time
+    either is read: x̂ = c + s·ẑ with ẑ the root of f(z) = y on the calibrated ``branch``
+    (:func:`~.inverse.solve_z`), and 100·(x̂ − x)/x where x ≠ 0 (NaN at a zero concentration)."""
+    made: list[FloatArray] = []
+
+    def both() -> list[FloatArray]:
+        if not made:
+            z_back, _, _ = solve_z(model, z_coefficients, branch, z_range, y)
+            back = basis.centre + basis.scale * z_back
+            with np.errstate(invalid="ignore", divide="ignore"):
+                relative = np.where(x != 0, 100.0 * (back - x) / x, np.nan)
+            made.extend((frozen(back), frozen(relative)))
+        return made
+
+    return Deferred(lambda: both()[0]), Deferred(lambda: both()[1])
 
 
 def _refuse_unrepresentable(

@@ -106,8 +106,10 @@ class FittedCurve:
     @classmethod
     def _assembled(cls, fields: dict) -> "FittedCurve":
         """The result holding ``fields``: every field in the constructor's order, keyed as the
-        constructor stores them (the diagnostics that may be deferred, ``influence`` and
-        ``lack_of_fit``, under ``_influence`` and ``_lack_of_fit``; see the end of this module). Made
+        constructor stores them (the diagnostics that may be deferred, ``influence``,
+        ``lack_of_fit``, ``back_calculated``, ``relative_error``, ``r_squared`` and
+        ``adjusted_r_squared``, under their names with a leading
+        underscore; see the end of this module). Made
         without the frozen constructor's one guarded assignment per field: the same object, as
         immutable (``tests/core/test_fit_paths.py`` holds the two ways to the same state)."""
         made = object.__new__(cls)
@@ -328,7 +330,8 @@ def _state(self: FittedCurve) -> dict:  # type: ignore[type-arg]
     return dict(self.__dict__)
 
 
-_DEFERRABLE = ("influence", "lack_of_fit")
+_DEFERRABLE = ("influence", "lack_of_fit", "back_calculated", "relative_error", "r_squared",
+               "adjusted_r_squared")
 for _name in _DEFERRABLE:
     setattr(FittedCurve, _name, _worked_out_on_first_use(_name))
 FittedCurve.__getstate__ = _state  # type: ignore[method-assign]
