@@ -23,6 +23,7 @@ import numpy as np
 import openpyxl
 
 from tests.cli_runs import run_cli
+from tests.printed import printed_text
 from tests.test_cli_tables import write
 
 STANDARDS = [("Z00", 0.5, 51.46), ("Z01", 0.5, 51.72), ("Z10", 1, 100.95), ("Z11", 1, 100.31),
@@ -115,3 +116,11 @@ def test_a_response_below_the_curves_lowest_point_is_reported_below_the_reportin
         assert s["reported"] is None and s["lower"] is None and s["upper"] is None and s["suggested_dilution"] is None
     assert by_id["F-1"]["reported_text"] == by_id["F-2"]["reported_text"]
     assert "beyond_turning_point" in by_id["F-1"]["flags"] and "no_solution" in by_id["F-3"]["flags"]
+
+    # the record's samples table says why there is no number, and its key explains the short words
+    record = tmp_path / "record.pdf"
+    assert run_cli(*args, "--report", str(record)).returncode in (0, 1)
+    printed = " ".join(printed_text(record).split())
+    assert "beyond turning point — the response lies beyond the curve's turning point" in printed, printed
+    assert "no solution — the curve never gives the response" in printed, printed
+    assert "read at the extreme" not in printed

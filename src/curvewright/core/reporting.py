@@ -282,7 +282,8 @@ def _below_the_curve(flags: QuantFlag, dilution: float, rng: ReportingRange, rul
     words = (f"below the reporting limit of {limit_text}: {_never_given(flags)}; it lies on the side of the "
              "lowest standard, so the concentration lies below the calibrated range and no number is read (a "
              "re-assay diluted would not help)")
-    return ReportedValue(ReportStatus.BELOW_REPORTING_LIMIT, f"< {limit_text}", words, f"< {rng.basis}", flags)
+    return ReportedValue(ReportStatus.BELOW_REPORTING_LIMIT, f"< {limit_text}", words,
+                         f"< {rng.basis}, {(flags & _BEYOND_THE_CURVE).short_words}", flags)
 
 
 def _above_the_curve(flags: QuantFlag, dilution: float, rng: ReportingRange, rule: RoundingRule,
@@ -293,7 +294,8 @@ def _above_the_curve(flags: QuantFlag, dilution: float, rng: ReportingRange, rul
     diluted, _, uloq_text, _, uloq_words = _dilution_texts(dilution, rng, rule, unit)
     words = (f"above the calibrated range (ULOQ {uloq_words}): {_never_given(flags)}; it lies on the side of "
              f"the highest standard: {BEYOND_TURNING_POINT_ADVICE}")
-    return ReportedValue(ReportStatus.ABOVE_RANGE, f"> {uloq_text} (ULOQ{diluted})", words, "> ULOQ", flags)
+    return ReportedValue(ReportStatus.ABOVE_RANGE, f"> {uloq_text} (ULOQ{diluted})", words,
+                         f"> ULOQ, {(flags & _BEYOND_THE_CURVE).short_words}", flags)
 
 
 CENSORED_BELOW = "reported as censored: "

@@ -86,7 +86,14 @@ SHORT_FLAG_LEGEND = (
                  "reported as the concentration it bounds, times the dilution; a word as entered"),
     ("open interval", "the calibration cannot bound the concentration on one side"),
     ("two roots", "the curve reaches the response twice within the calibrated range"),
-    ("turning point", "the response lies beyond the curve's extreme; read at the extreme"),
+    ("turning point", "the prediction band holds the response on both sides of the curve's turning point: the "
+                      "interval is read from the band on both sides"),
+    ("beyond turning point", "the response lies beyond the curve's turning point, where no concentration gives it: "
+                             "no number; reported by the side of the range it lies on"),
+    ("beyond asymptote", "the response lies beyond an asymptote of the curve: no number; reported by the side of the "
+                         "range it lies on"),
+    ("no solution", "the curve never gives the response, not even within its prediction band: no number; reported "
+                    "by the side of the range it lies on"),
     ("replicate not usable", "a replicate was left out (the lines below the table say which and why)"),
 )
 
