@@ -268,10 +268,9 @@ def _from_blanks(cal: "FittedCurve", method: str, slope: float, slope_words: str
             blank_readings=n_b, blank_mean=mean_b,
         )
     responses = np.array([mean_b + 3.0 * sd_b, mean_b + 10.0 * sd_b])
-    from .inverse import quantify  # the inverse reads back through the curve; it imports this module
-
     at_zero = float(np.asarray(cal.predict(np.array([0.0])))[0])
-    estimate = np.asarray(quantify(cal, responses).estimate, dtype=float)
+    # read back through the curve by the calibration's own inverse (the inverse module imports this one)
+    estimate = np.asarray(cal.quantify(responses).estimate, dtype=float)  # type: ignore[attr-defined]
     for name, y, x in (("LOD", responses[0], estimate[0]), ("LOQ", responses[1], estimate[1])):
         if not np.isfinite(x):
             raise LimitsError(f"the {name} response ȳ_b + {3 if name == 'LOD' else 10}·σ_b = {figures(y, 4)} is "
