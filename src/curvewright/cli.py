@@ -1066,7 +1066,7 @@ def _quantify(  # type: ignore[no-untyped-def]
 
         let_go_of_sample_texts(run)
     result = analyse_run(run, analytes=names, model=model, weighting=weighting)
-    chosen = {a.analyte.name: _document_choice(a) for a in result.analytes}
+    chosen = {a.analyte.name: _document_choice(a, result.run) for a in result.analytes}
     chosen.update(choices or {})
     per_analyte = {a.analyte.name: _document_warnings(a) if analyte_warnings is None
                    else list(analyte_warnings.get(a.analyte.name, [])) for a in result.analytes}
@@ -1098,15 +1098,30 @@ def _quantify(  # type: ignore[no-untyped-def]
                                       record=record), None)
 
 
+def _not_chosen_words(run, a) -> str:  # type: ignore[no-untyped-def]
+    """What ``compare`` says of a run document's function that has no recorded reason: the program's
+    default where nobody chose it (as the screen, workbook and record say), else that no reason is recorded."""
+    from .io.model_choice import NOT_CHOSEN, chosen
+
+    return "(no reason recorded)" if chosen(run, a.analyte.name) else NOT_CHOSEN
+
+
 _MANY_SAMPLES = 4096
 """A run of more samples lets go of their kept canonical texts before it is analysed
 (:func:`.io.integrity.let_go_of_sample_texts`)."""
 
 
-def _document_choice(a) -> ModelChoice:  # type: ignore[no-untyped-def]
-    """How a run document's analyte got its model: the run's own recorded choice, or the command line."""
+def _document_choice(a, run=None) -> ModelChoice:  # type: ignore[no-untyped-def]
+    """How a run document's analyte got its model: the run's own recorded choice, or the command line;
+    "not chosen" where ``run`` shows that nobody chose it (no reason recorded, no choice in the audit
+    trail: the program's default, as the screen, workbook and record say)."""
     if a.model_overridden:
         return ModelChoice("command line", (GIVEN,))
+    if run is not None and not a.analyte.choice_reason.strip():
+        from .io.model_choice import NOT_CHOSEN, chosen
+
+        if not chosen(run, a.analyte.name):
+            return ModelChoice("not chosen", (NOT_CHOSEN,))
     return ModelChoice("run document", (a.analyte.choice_reason,) if a.analyte.choice_reason else ())
 
 
@@ -1589,7 +1604,7 @@ def _print_evidence(run, result, as_json: bool, payload: list[dict[str, Any]],  
         print(f"{run.name} — {a.analyte.name}")
         print(_text_table(table))
         if choice is None:
-            print(f"chosen: {a.analyte.model}, {a.analyte.weighting} — {a.analyte.choice_reason or '(no reason recorded)'}")
+            print(f"chosen: {a.analyte.model}, {a.analyte.weighting} — {a.analyte.choice_reason or _not_chosen_words(run, a)}")
         elif choice.by == "recommended":
             print(f"recommended: {a.analyte.model}, {a.analyte.weighting} (what quantify --standards uses unless "
                   "--model and --weighting are given)")

@@ -98,6 +98,20 @@ def test_the_default_is_told_and_the_recommendation_taken_in_one_click(make_wind
     assert "(none recorded)" not in text
     assert "Used: linear, unweighted: the default, not chosen by anyone." in text
 
+    # the run saved before anyone chose: the command line says the same of it as the screen
+    window.actions_by_name["save-as"].trigger()
+    settle(qtbot, window)
+    saved = next(tmp_path.glob("*.json"))
+    env = dict(os.environ, PYTHONPATH=os.pathsep.join([str(ROOT / "src"), str(ROOT)]))
+    compared = subprocess.run([sys.executable, "-m", "curvewright.cli", "compare", str(saved)],
+                              capture_output=True, text=True, env=env, cwd=tmp_path, timeout=120)
+    assert "chosen: linear, none — default, not chosen by anyone" in compared.stdout, compared.stdout + compared.stderr
+    quantified = subprocess.run([sys.executable, "-m", "curvewright.cli", "quantify", str(saved), "--json"],
+                                capture_output=True, text=True, env=env, cwd=tmp_path, timeout=120)
+    entry = json.loads(quantified.stdout)["analytes"][0]
+    assert entry["model_chosen_by"] == "not chosen", entry["model_chosen_by"]
+    assert entry["choice_reasons"] == ["default, not chosen by anyone"], entry["choice_reasons"]
+
     # one click takes the recommendation, recorded as the Model evidence tab records a choice
     qtbot.mouseClick(window.take_recommendation_button, Qt.MouseButton.LeftButton)
     settle(qtbot, window)
