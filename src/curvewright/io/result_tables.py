@@ -949,7 +949,9 @@ def _chooser(result: RunResult, analyte: str) -> str:
     last = last_entry(result.run.audit, analyte, "model_chosen")
     if last is not None:
         return f"{who(last[1])}, {when(last[1])}"
-    return "(no choice recorded in the audit trail)" if chosen(result.run, analyte) else NOT_CHOSEN_BY
+    # no choice in the trail: chosen only if a reason was recorded with the function (:func:`.model_choice.chosen`)
+    reason = result.run.analyte(analyte).choice_reason.strip()
+    return "(no choice recorded in the audit trail)" if reason else NOT_CHOSEN_BY
 
 
 def _mandel(cal: Calibration) -> tuple[Any, Any]:
